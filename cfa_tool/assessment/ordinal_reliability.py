@@ -52,6 +52,15 @@ def _sum_variance(item: np.ndarray, t: np.ndarray, d: np.ndarray, rho: np.ndarra
     return float(d @ (joint - np.outer(special.ndtr(t), special.ndtr(t))) @ d)
 
 
+def observed_sum_variance(thresholds: Sequence[np.ndarray], steps: Sequence[np.ndarray], mean: np.ndarray,
+                          sigma: np.ndarray, keys: np.ndarray) -> float:
+    """Var(X) of the keyed sum of ordinal answers under the fitted model, the denominator of
+    :func:`observed_sum_omega` (Green & Yang 2009, eq. 19; arguments as there)."""
+    sd = np.sqrt(np.diag(sigma))
+    item, t, d = _keyed_codes(thresholds, steps, mean, sd, keys)
+    return _sum_variance(item, t, d, sigma / np.outer(sd, sd), whole=True)
+
+
 def observed_sum_omega(thresholds: Sequence[np.ndarray], steps: Sequence[np.ndarray], mean: np.ndarray,
                        sigma: np.ndarray, common: np.ndarray, keys: np.ndarray) -> float:
     """Green & Yang's (2009) reliability of the keyed sum of ordinal answers (module docstring).

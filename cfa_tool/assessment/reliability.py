@@ -152,6 +152,13 @@ def item_keys(G: np.ndarray, member: np.ndarray, observed: tuple[str, ...],
     return K, direction, (vote == 0) & member.any(axis=0)
 
 
+def keyed_omega(K: np.ndarray, G: np.ndarray, factor_variances: np.ndarray, sum_variances: np.ndarray) -> np.ndarray:
+    """The one formula of a keyed sum's omega (McDonald 1999), per factor (column): (sum_i k_i G_if)^2 Phi_ff /
+    k'Sigma k, for keys K (p, m), total loadings G (p, m), the factors' variances Phi_ff (m) and the keyed sums'
+    variances k'Sigma k (m), which the callers need for more than omega."""
+    return np.einsum("ij,ij->j", K, G) ** 2 * factor_variances / sum_variances
+
+
 def cronbach_alpha(S: np.ndarray, keys: np.ndarray | None = None) -> float:
     """Cronbach's (1951) alpha of the sum of items with covariance matrix S, each item multiplied by
     its key (+1, or -1 for a reversed item)."""
@@ -197,7 +204,7 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     # AVE), NaN comparisons for them (and a negative AVE: no Fornell-Larcker comparison holds), a factor of one item
     with np.errstate(divide="ignore", invalid="ignore"):
         totals = np.einsum("ij,ij->j", K, sigma @ K)
-        omega = np.einsum("ij,ij->j", K, G) ** 2 * phi.diagonal() / totals
+        omega = keyed_omega(K, G, phi.diagonal(), totals)
         omega_total = 1.0 - np.einsum("ij,ij->j", K, theta @ K) / totals
         sd_lat = np.sqrt(np.maximum(phi.diagonal(), 1e-300))
         sd_obs = np.sqrt(np.maximum(sigma.diagonal(), 1e-300))

@@ -86,7 +86,13 @@ def run(args: argparse.Namespace) -> int:
                         missing_codes=args.missing_codes, keep=args.keep, rename=args.rename, ordinal=O.ordinal_arg(args.ordinal),
                         ordinal_estimator=args.ordinal_estimator, missing=args.missing,
                         max_iterations=args.max_iterations, least_answered=args.least_answered, **O.design_args(args))
-    rows = ("--output", result.csv(), f"Scores of {result.rows} rows written to {args.output}")
+    from cfa_tool.reporting.score_report import rows_scored
+    from cfa_tool.workflows.factor_scores import WHY_NOT_SCORED_COLUMN
+
+    empty = result.rows - result.rows_scored
+    rows = ("--output", result.csv(), f"Scores of {rows_scored(result)} written to {args.output}"
+            + (f"; the {empty} without any score keep their line, empty, with the reason in {WHY_NOT_SCORED_COLUMN}"
+               if empty else ""))
     emit_report(args, result, [args.model, args.data, args.from_fit], first=[rows])
     if result.low_determinacy:
         say(args, f"Caution: the determinacy of {', '.join(result.low_determinacy)} is below .80; see the report")

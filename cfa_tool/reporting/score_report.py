@@ -9,7 +9,7 @@ from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.options import Option
 from cfa_tool.reporting.numbers import num, unit, word_list
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
-from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT
+from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT, WHY_NOT_SCORED_COLUMN
 from cfa_tool.scoring.methods import (DETERMINACY_CAUTION, INDIVIDUAL_DECISIONS, ITEM_METHODS, LINEAR_METHODS,
                                       ScoreMethod, Unscored)
 
@@ -40,14 +40,30 @@ def header_lines(result) -> list[str]:
     scored = [f"Scored data: {result.scored_source} (with the parameters of the fit above)"] if result.scored_source else []
     return [f"Model file: {fit.model_source}", f"Data: {fit.data.source}; the model was fitted to {fit.n_obs} rows",
             f"Estimation of the fit: {fit.estimator}", *scored,
-            f"Scores ({methods}) of {result.rows} rows, one per row of the data in the file's order; columns: "
-            f"{first}one per factor" + ("" if not result.standard_errors else
+            f"Scores ({methods}) of {rows_scored(result)}, one line per row of the data in the file's order"
+            + _empty_lines(result) + f"; columns: {first}one per factor" + ("" if not result.standard_errors else
                                         " with its posterior standard deviation" if ScoreMethod.EXPECTED_A_POSTERIORI
                                         in result.methods else " with its standard error")
             + (" (factor scores only)" if result.standard_errors and any(m in ITEM_METHODS for m in result.methods)
                else "")
             + f"{' and method' if len(result.methods) > 1 else ''}, then per factor the number of its items the row "
-              f"answered"] + _design_line(fit)
+              f"answered" + (f", then {WHY_NOT_SCORED_COLUMN}" if result.not_scored else "")] + _design_line(fit)
+
+
+def rows_scored(result) -> str:
+    """'250 of the 480 rows' when some lines of the scores file hold no score, else '480 rows'."""
+    if result.rows_scored == result.rows:
+        return f"{result.rows} rows"
+    return f"{result.rows_scored} of the {result.rows} rows"
+
+
+def _empty_lines(result) -> str:
+    """What the lines without any score are, with their count by reason (the words of the why_not_scored column)."""
+    if not result.not_scored:
+        return ""
+    counts = ", ".join(f"{why.value} {n}" for why, n in result.not_scored.items())
+    return (f" (the {result.rows - result.rows_scored} without any score keep their line with empty cells, the column "
+            f"{WHY_NOT_SCORED_COLUMN} saying why: {counts})")
 
 
 def _design_line(fit) -> list[str]:
@@ -133,7 +149,7 @@ def quality_table(result, k: int) -> ReportTable:
 def _precision_of(result, q) -> tuple[ScoreMethod | None, tuple]:
     """(the method, its scoring.quality.Precision per factor) of one group's scores: the first factor-score method
     written (the posterior means for ordinal items, their one method); (None, ()) for item sums and means alone,
-    whose reliability the quality table gives."""
+    whose precision has its own table (:func:`item_sum_precision_table`)."""
     from cfa_tool.scoring.quality import precision_of
 
     method = next((m for m in result.methods if m not in ITEM_METHODS), None)
@@ -167,7 +183,7 @@ def precision_table(result, k: int) -> ReportTable | None:
         own = ("each row's own standard error is the _se column of the file" if result.standard_errors else
                "each row's own standard error is written to the file when standard errors are asked for")
         first = f"For {METHOD_LABELS[method]} scores with every item answered ({own}). "
-    sds = ", ".join(f"{p.factor} {num(p.factor_sd, 2)}" for p in found)
+    sds = ", ".join(f"{p.factor} {num(p.scale_sd, 2)}" for p in found)
     first += (f"Scores, SEs and bands are in each factor's units as the model scales it (the factor's standard "
               f"deviation: {sds}). ")
     note = (first + f"SE: the typical distance of a score from the person's factor value; 95% band: "
@@ -176,6 +192,50 @@ def precision_table(result, k: int) -> ReportTable | None:
             f"the factor's standard deviation." + _one_item_sentence(result.fit))  # (Gulliksen: scoring.quality)
     return _table(f"score_precision_{k}", "How precise is one person's score?" + _where(q), cols, rows, note,
                   values=([c for c, _ in cols], values))
+
+
+def item_sum_precision_table(result, k: int) -> ReportTable | None:
+    """How precise one person's item sum (or mean) is: its standard error of measurement from the sum's SD under the
+    fitted model and its omega (scoring.quality.item_sum_precision), with the band and real difference of factor
+    scores, in the sum's (or mean's) own units."""
+    q = result.quality[k]
+    sums = _item_sums_of(result, q)
+    if sums is None or not sums.precision:
+        return None
+    kinds = {p.method for p in sums.precision}
+    both, mean_only = len(kinds) > 1, kinds == {ScoreMethod.ITEM_MEAN}
+    count = dict(zip(sums.factors, (len(items) for items in sums.items)))
+    rows, values = [], []
+    for p in sums.precision:
+        label = [METHOD_LABELS[p.method]] if both else []
+        rows.append([p.factor, *label, str(count[p.factor]), unit(p.reliability), num(p.scale_sd, 2),
+                     num(p.standard_error, 2), f"±{num(p.band, 2)}", num(p.smallest_difference, 2)])
+        values.append([p.factor, *label, count[p.factor], p.reliability, p.scale_sd, p.standard_error, p.band,
+                       p.smallest_difference])
+    cols = [("Factor", "l")] + ([("Score", "l")] if both else []) + [
+        ("Items", "r"), ("ω", "r"), ("SD", "r"), ("SEM", "r"), ("95% band", "r"), ("Real difference", "r")]
+    ordinal = not hasattr(q, "methods")
+    codes = " of the answers' codes" if ordinal else ""
+    spread = ("from the fitted thresholds, loadings and factor variance, Green & Yang 2009" if ordinal else
+              "√(k'Σk) for the keys k and the fitted covariance matrix Σ")
+    if mean_only:
+        units, sd = ("in the units of the answer scale (the keyed sum's figures divided by the number of items)",
+                     f"the item mean's standard deviation under the fitted model ({spread}, divided by the number "
+                     f"of items)")
+    else:
+        units = (f"in the units of the keyed sum{codes}" if not both else
+                 f"in each score's own units (an item sum's those of the keyed sum{codes}, an item mean's those of "
+                 f"the answer scale: the sum's divided by the number of items)")
+        sd = f"the keyed sum's standard deviation under the fitted model ({spread})"
+    written = word_list(METHOD_LABELS[m] for m in ITEM_METHODS if m in kinds)
+    note = (f"For the {written} of rows that answered every item of the factor, {units}. SD: {sd}; ω: its "
+            f"reliability, as in the quality table; SEM: the standard error of measurement, SD × √(1 − ω) (Lord & "
+            f"Novick 1968), the typical distance of a person's score from their true score; 95% band: ±1.96 SEM "
+            f"about a score (normal approximation); real difference: the smallest difference between two people's "
+            f"scores that exceeds chance at the 5% level, 1.96 × √2 × SEM (Gulliksen 1950). A prorated score, of "
+            f"fewer items, is less precise than this.")
+    return _table(f"item_sum_precision_{k}", "How precise is one person's item score?" + _where(q), cols, rows,
+                  note, values=([c for c, _ in cols], values))
 
 
 def precision_cautions(result) -> list[str]:
@@ -343,15 +403,16 @@ def unscored_table(result) -> ReportTable | None:
     values = [[reason, label, *counts] for (reason, _, counts), label in zip(result.unscored, labels)]
     return _table("unscored", "Rows without scores (empty cells), by reason",
                   [("Reason", "l"), ("Method: rows without a score", "l")], rows,
-                  "These rows stay in the file, in their place, with empty cells.",
+                  "These rows stay in the file, in their place, with empty cells; a row without any score says "
+                  f"why in the column {WHY_NOT_SCORED_COLUMN}.",
                   values=(["Reason", "Method", *result.factors], values))
 
 
 def score_tables(result) -> list[ReportTable]:
     out = []
     for k in range(len(result.quality)):
-        out += [t for t in (quality_table(result, k), precision_table(result, k), correlation_table(result, k),
-                            sum_table(result, k)) if t is not None]
+        out += [t for t in (quality_table(result, k), precision_table(result, k), item_sum_precision_table(result, k),
+                            correlation_table(result, k), sum_table(result, k)) if t is not None]
     extra = unscored_table(result)
     if extra is not None:
         out.append(extra)

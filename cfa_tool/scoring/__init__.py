@@ -16,7 +16,7 @@ from cfa_tool.scoring.item_sums import ItemSumRule, ItemSums, item_sums
 from cfa_tool.scoring.linear import LinearScorer, ScoreBlock, row_blocks, score_blocks, score_groups, score_rows
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_METHODS, ScoreMethod, Unscored
 from cfa_tool.scoring.model import (OrdinalScoringModel, ScoringModel, one_group_ordinal_inputs, ordinal_score_inputs,
-                                    score_inputs, scoring_model, without_own_answers)
+                                    items_answered, score_inputs, scoring_model)
 from cfa_tool.scoring.ordinal import EapScorer, PosteriorScores, eap_blocks, eap_scores
 from cfa_tool.scoring.quality import ScoreQuality, score_quality
 
@@ -24,4 +24,4 @@ __all__ = ["DETERMINACY_CAUTION", "EapScorer", "ITEM_METHODS", "ItemSumRule", "I
            "LinearScorer", "OrdinalScoringModel", "PosteriorScores", "ScoreBlock", "ScoreMethod", "ScoreQuality",
            "ScoringModel", "Unscored", "eap_blocks", "eap_scores", "item_sums", "one_group_ordinal_inputs",
            "ordinal_score_inputs", "row_blocks", "score_blocks", "score_groups", "score_inputs", "score_quality",
-           "score_rows", "scoring_model", "without_own_answers"]
+           "score_rows", "scoring_model", "items_answered"]

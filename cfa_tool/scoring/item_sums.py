@@ -24,7 +24,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.scoring.methods import LEAST_SHARE_ANSWERED, Unscored
+from cfa_tool.scoring.methods import LEAST_SHARE_ANSWERED, Unscored, rows_without_answers
 
 
 @dataclass(frozen=True)
@@ -92,9 +92,7 @@ def item_sums(rows: np.ndarray, keys: np.ndarray, lowest: np.ndarray, highest: n
     with np.errstate(invalid="ignore", divide="ignore"):
         means = np.where(enough, total / count, np.nan)
     sums = means * items
-    unscored: dict = {}
-    if not anything.all():
-        unscored[Unscored.NO_ANSWERS] = np.full(m, int((~anything).sum()), dtype=np.int64)
+    unscored: dict = rows_without_answers(anything, m)
     answering = int(anything.sum())
     for why in dict.fromkeys(w for w in not_summed if w is not None):
         unscored[why] = np.array([answering if w is why else 0 for w in not_summed], dtype=np.int64)

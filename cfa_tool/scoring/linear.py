@@ -17,7 +17,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.data.patterns import group_patterns
-from cfa_tool.scoring.methods import LINEAR_METHODS, ScoreMethod, Unscored
+from cfa_tool.scoring.methods import LINEAR_METHODS, ScoreMethod, Unscored, rows_without_answers
 from cfa_tool.scoring.model import ScoringModel
 from cfa_tool.scoring.weights import pattern_weights
 
@@ -108,10 +108,7 @@ class LinearScorer:
         mask = ~np.isnan(rows)
         answered = mask.any(axis=1)
         out = {method: (np.full((n, m), np.nan), np.full((n, m), np.nan)) for method in self.methods}
-        counts = {method: {} for method in self.methods}
-        if not answered.all():
-            for method in self.methods:
-                counts[method][Unscored.NO_ANSWERS] = np.full(m, int((~answered).sum()))
+        counts = {method: rows_without_answers(answered, m) for method in self.methods}
         if not answered.any():
             return {method: ScoreBlock(method, self.model.factors, *out[method], counts[method]) for method in self.methods}
         if mask.all():  # complete rows: one pattern, no selection

@@ -4,6 +4,8 @@ from __future__ import annotations
 
 from enum import Enum
 
+import numpy as np
+
 
 class ScoreMethod(Enum):
     """How a person's factor scores are computed from their answers (each under its published name)."""
@@ -45,6 +47,14 @@ class Unscored(Enum):
     NOT_ITEMS_ALONE = "an item sum or mean is only for a factor measured by its own items alone"
     #: item sums and means: a method factor describes a way of answering (wording, acquiescence), not a trait
     NOT_A_TRAIT = "a method factor describes a way of answering, not a trait, and has no item sum or mean"
+
+
+def rows_without_answers(answered, m: int) -> dict:
+    """The count of rows that answered none of the model's items (``answered``: per row, whether it answered any),
+    for each of the ``m`` factors, as {:attr:`Unscored.NO_ANSWERS`: counts}; {} when every row answered something.
+    The one count of every method (factor scores, posterior means, item sums)."""
+    missing = int(np.size(answered) - np.count_nonzero(answered))
+    return {Unscored.NO_ANSWERS: np.full(m, missing, dtype=np.int64)} if missing else {}
 
 
 #: determinacy below this is a caution against using the scores for decisions about individuals

@@ -103,12 +103,12 @@ class ScoringModel:
         return out
 
 
-def without_own_answers(model: ScoringModel, rows: np.ndarray) -> np.ndarray:
-    """(n, m) bool: rows that answered none of the items measuring a factor.  Their regression or EAP
-    score of that factor rests on the other factors' items alone (through the factors' correlations),
-    which a report should say."""
+def items_answered(model: ScoringModel, rows: np.ndarray) -> np.ndarray:
+    """(n, m): how many of the items that measure each factor (directly or through the factors below it) each row
+    answered.  A row with 0 for a factor that still gets a score of it (regression or EAP) has it from the other
+    factors' items alone (through the factors' correlations), which a report should say."""
     answered = (~np.isnan(np.asarray(rows, dtype=float))).astype(float)
-    return answered @ model.reach.astype(float) == 0
+    return answered @ model.reach.astype(float)
 
 
 def scoring_model(mats: ModelMatrices, items: tuple[str, ...], factors: tuple[str, ...], group: str | None = None,

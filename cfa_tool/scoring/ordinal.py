@@ -30,7 +30,7 @@ import numpy as np
 from scipy.special import log_ndtr
 
 from cfa_tool.errors import EstimationError
-from cfa_tool.scoring.methods import ScoreMethod, Unscored
+from cfa_tool.scoring.methods import ScoreMethod, rows_without_answers
 from cfa_tool.scoring.model import OrdinalScoringModel
 from cfa_tool.scoring.quadrature import Rule, default_rule
 
@@ -168,9 +168,7 @@ class EapScorer:
         scores = np.full((n, m), np.nan)
         covs = np.full((n, m, m), np.nan)
         answered = (codes >= 0).any(axis=1)
-        unscored = {}
-        if not answered.all():
-            unscored[Unscored.NO_ANSWERS] = np.full(m, int((~answered).sum()))
+        unscored = rows_without_answers(answered, m)
         take = np.flatnonzero(answered)
         if not self.continuous.any() and len(take):  # rows with the same answers have the same scores: score each once
             keys = np.ascontiguousarray(codes[take].astype(np.int8)).view(np.dtype((np.void, base.p))).ravel()

@@ -20,27 +20,33 @@ band of +/- 1.96 SE about the score (a normal approximation); and the smallest d
 scores that exceeds chance at the 5% level, 1.96 sqrt(2) SE, the standard error of the difference of two
 independent errors (Gulliksen 1950; recalled from memory, common practice).
 
+Precision of a person's item sum (or mean: the sum divided by the number of items): the standard error of
+measurement SEM = SD sqrt(1 - omega) (Lord & Novick 1968), SD the keyed sum's standard deviation under the fitted
+model and omega its reliability, with the same band and smallest real difference as a factor score's.
+
 Sum scores of ordinal items: the same keyed sums of the answers' codes, with the reliability of Green & Yang (2009)
 from the thresholds, loadings and factor covariances (:mod:`cfa_tool.assessment.ordinal_reliability`).
 
 Sum scores: the unit-weighted sum of the items that measure a factor (directly or through the
 factors below it), each reverse-keyed item (negative total loading) reversed (its sign flipped), with
 omega of the sum (McDonald 1999): omega = (k'G_f)^2 Phi_ff / k'Sigma k for keys k and total loadings
-G = L A; with every key positive this is the omega of :mod:`cfa_tool.assessment.reliability`.
+G = L A, by the formula and keys of the fit's reliability (:func:`cfa_tool.assessment.reliability.keyed_omega`,
+:func:`cfa_tool.assessment.reliability.item_keys`).
 Each person's item sum and mean, prorated from the answered items: :mod:`cfa_tool.scoring.item_sums`.
 """
 
 from __future__ import annotations
 
-from collections.abc import Collection
+from collections.abc import Collection, Sequence
 from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.assessment.ordinal_reliability import observed_sum_factor_correlation, observed_sum_omega
-from cfa_tool.assessment.reliability import item_keys
+from cfa_tool.assessment.ordinal_reliability import (observed_sum_factor_correlation, observed_sum_omega,
+                                                     observed_sum_variance)
+from cfa_tool.assessment.reliability import item_keys, keyed_omega
 from cfa_tool.numerics.plain import clean
-from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
+from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_METHODS, ScoreMethod
 from cfa_tool.scoring.model import OrdinalScoringModel, ScoringModel, checked_covariance
 from cfa_tool.scoring.weights import pattern_weights
 
@@ -94,29 +100,29 @@ class Precision:
 
     factor: str
     method: ScoreMethod
-    factor_sd: float  # the factor's standard deviation
+    scale_sd: float  # the standard deviation of the score's scale: the factor's, or an item sum's or mean's
     reliability: float  # of the method's scores
-    standard_error: float  # root mean squared error of the score about its factor
+    standard_error: float  # root mean squared error of the score about its factor (an item sum's: its SEM)
     band: float  # half-width of the 95% band, Z95 * SE
     smallest_difference: float  # Z95 * sqrt(2) * SE
 
     @classmethod
-    def of(cls, factor: str, method: ScoreMethod, factor_sd: float, reliability: float,
+    def of(cls, factor: str, method: ScoreMethod, scale_sd: float, reliability: float,
            standard_error: float) -> Precision:
         """The band and the smallest real difference from the standard error (module docstring: Gulliksen 1950)."""
         se = float(standard_error)
-        return cls(factor, method, float(factor_sd), float(reliability), se, Z95 * se, Z95 * np.sqrt(2.0) * se)
+        return cls(factor, method, float(scale_sd), float(reliability), se, Z95 * se, Z95 * np.sqrt(2.0) * se)
 
     @property
     def band_in_sd(self) -> float:
-        return self.band / self.factor_sd
+        return self.band / self.scale_sd
 
     @property
     def smallest_difference_in_sd(self) -> float:
-        return self.smallest_difference / self.factor_sd
+        return self.smallest_difference / self.scale_sd
 
     def to_dict(self) -> dict:
-        return clean({"factor": self.factor, "method": self.method.value, "factor_sd": self.factor_sd,
+        return clean({"factor": self.factor, "method": self.method.value, "scale_sd": self.scale_sd,
                       "reliability": self.reliability, "standard_error": self.standard_error, "band_95": self.band,
                       "band_95_in_sd": self.band_in_sd, "smallest_difference": self.smallest_difference,
                       "smallest_difference_in_sd": self.smallest_difference_in_sd})
@@ -204,22 +210,77 @@ def sum_keys(model: ScoringModel, declared: Collection[str] | None = None) -> np
     return item_keys(np.where(G != 0, G, L), model.reach, model.items, declared)[0]
 
 
+def _keyed_variances(sigma: np.ndarray, keys: np.ndarray) -> np.ndarray:
+    """k'Sigma k of each column of keys (p, m): the variance of each factor's keyed sum under the model."""
+    return np.einsum("ij,ij->j", keys, sigma @ keys)
+
+
 def sum_quality(model: ScoringModel, declared: Collection[str] | None = None) -> tuple[SumScore, ...]:
     """Omega (McDonald 1999) and validity of each factor's keyed sum (keys: :func:`sum_keys`)."""
     sigma = checked_covariance(model)
     keys = sum_keys(model, declared)
     G, phi, C = model.total_loadings, model.factor_covariance, model.item_factor_covariance
+    variances = _keyed_variances(sigma, keys)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        omegas = keyed_omega(keys, G, np.diag(phi), variances)  # the fit's reliability's formula
     out = []
     for f, name in enumerate(model.factors):
         k = keys[:, f]
         if not k.any():
             continue
-        variance = float(k @ sigma @ k)
-        omega = float((k @ G[:, f]) ** 2 * phi[f, f] / variance)
+        variance, omega = float(variances[f]), float(omegas[f])
         validity = float(k @ C[:, f] / np.sqrt(variance * phi[f, f]))
         items = tuple(model.items[i] for i in np.flatnonzero(k))
         reversed_items = tuple(model.items[i] for i in np.flatnonzero(k < 0))
         out.append(SumScore(name, items, reversed_items, omega, validity))
+    return tuple(out)
+
+
+def _ordinal_sum_items(model: OrdinalScoringModel, keys: np.ndarray) -> np.ndarray | None:
+    """The items of one factor's keyed sum of ordinal answers (``keys``: its column of :func:`sum_keys`); None when
+    it has none, or takes in a continuous item beside the ordinal ones (whose codes are no answers to a threshold
+    model, so that the sum's reliability and spread under the model are not known)."""
+    idx = np.flatnonzero(keys)
+    return None if not len(idx) or any(not len(model.thresholds[i]) for i in idx) else idx
+
+
+def keyed_sum_sds(model: ScoringModel | OrdinalScoringModel, keys: np.ndarray) -> np.ndarray:
+    """(m,) the standard deviation under the fitted model of each factor's keyed sum of answers (keys (p, m):
+    :func:`sum_keys`): sqrt(k'Sigma k) for continuous items; for ordinal items that of the sum of the answers'
+    codes, from the thresholds (Green & Yang 2009, eq. 19: assessment.ordinal_reliability); NaN where a factor has
+    no items, or its sum takes in a continuous item beside ordinal ones (:func:`ordinal_sum_quality`)."""
+    keys = np.asarray(keys, dtype=float)
+    if isinstance(model, ScoringModel):
+        variances = _keyed_variances(checked_covariance(model), keys)
+        return np.where((keys != 0).any(axis=0), np.sqrt(np.clip(variances, 0.0, None)), np.nan)
+    base = model.base
+    sigma = checked_covariance(base)
+    mean = base.intercepts + base.total_loadings @ base.factor_means
+    out = np.full(keys.shape[1], np.nan)
+    for f in range(keys.shape[1]):
+        idx = _ordinal_sum_items(model, keys[:, f])
+        if idx is None:
+            continue
+        out[f] = np.sqrt(max(observed_sum_variance([model.thresholds[i] for i in idx],
+                                                   [np.diff(model.categories[i]) for i in idx], mean[idx],
+                                                   sigma[np.ix_(idx, idx)], keys[idx, f]), 0.0))
+    return out
+
+
+def item_sum_precision(factors: Sequence[str], item_counts: Sequence[int], sums_sd: Sequence[float],
+                       omegas: Sequence[float], methods: Sequence[ScoreMethod]) -> tuple[Precision, ...]:
+    """The :class:`Precision` of each factor's item sum and item mean among ``methods``, from the keyed sum's
+    standard deviation SD under the model (:func:`keyed_sum_sds`) and its reliability omega: the standard error of
+    measurement SEM = SD sqrt(1 - omega) (Lord & Novick 1968; every psychometrics handbook), with its band and
+    smallest real difference by the rule of factor scores (Gulliksen 1950); a mean's are the sum's divided by the
+    factor's number of items.  Factors without a finite SD or omega are left out."""
+    out = []
+    for method in (m for m in methods if m in ITEM_METHODS):
+        for name, count, sd, omega in zip(factors, item_counts, sums_sd, omegas):
+            if not (np.isfinite(sd) and np.isfinite(omega)) or count < 1:
+                continue
+            scale = float(sd) / (count if method is ScoreMethod.ITEM_MEAN else 1)
+            out.append(Precision.of(name, method, scale, omega, scale * np.sqrt(max(1.0 - float(omega), 0.0))))
     return tuple(out)
 
 
@@ -234,8 +295,8 @@ def ordinal_sum_quality(model: OrdinalScoringModel, declared: Collection[str] | 
     mean = base.intercepts + G @ base.factor_means
     out = []
     for f, name in enumerate(base.factors):
-        idx = np.flatnonzero(keys[:, f])
-        if not len(idx) or any(not len(model.thresholds[i]) for i in idx):
+        idx = _ordinal_sum_items(model, keys[:, f])
+        if idx is None:
             continue
         g = G[idx, f]
         taus, steps = [model.thresholds[i] for i in idx], [np.diff(model.categories[i]) for i in idx]

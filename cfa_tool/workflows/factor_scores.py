@@ -32,12 +32,33 @@ from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_M
 from cfa_tool.scoring.quality import Precision, ScoreQuality, ordinal_sum_quality
 
 
-class RowLeftOut(Enum):
-    """Why a whole row of the data has no scores, beyond the reasons of :class:`Unscored`."""
+class NotScored(Enum):
+    """Why a whole line of the scores file has no score at all: the words of :data:`WHY_NOT_SCORED_COLUMN`, and
+    (:attr:`reason`) the reason the table of empty cells gives for every cell of such a row."""
 
-    FILTERED = "left out by a row filter (--keep)"
-    NO_GROUP = "no value in the group column"
-    UNKNOWN_GROUP = "a group the fit does not have"
+    FILTERED = "filtered out"
+    BLANK = "blank row"  # a blank row of the file, kept as an empty line so that the lines match the file's rows
+    NO_ANSWERS = "no answers"
+    NO_GROUP = "no group"
+    UNKNOWN_GROUP = "group not in the fit"
+    TOO_FEW_ANSWERS = "too few answers"  # answers, but too few for any score asked for (an item sum's least share)
+
+    @property
+    def reason(self) -> str:
+        return _REASONS[self]
+
+
+_REASONS = {NotScored.FILTERED: "left out by a row filter (--keep)", NotScored.BLANK: "a blank row of the file",
+            NotScored.NO_ANSWERS: Unscored.NO_ANSWERS.value, NotScored.NO_GROUP: "no value in the group column",
+            NotScored.UNKNOWN_GROUP: "a group the fit does not have",
+            NotScored.TOO_FEW_ANSWERS: "too few answers for any score asked for"}
+
+#: the reasons a whole row has no score that the scoring of each group does not count (its rows are not scored)
+_ROWS_LEFT_OUT = (NotScored.FILTERED, NotScored.NO_GROUP, NotScored.UNKNOWN_GROUP)
+
+
+#: output column of the reason a line has no score at all (:class:`NotScored`), written when some line has none
+WHY_NOT_SCORED_COLUMN = "why_not_scored"
 
 
 #: the row of a summary-statistics file that gives what a fit lacks (data.summary_stats.NotGiven)
@@ -100,6 +121,14 @@ def item_rule(chosen, least_answered) -> ItemSumRule | None:
                                    open_low=True))
 
 
+def _refuse_id_named_as(id_name: str | None, written, what: str = "a column") -> None:
+    """The one error when the id column (``id_name``, None: none) has the name of a column the output writes beside
+    it (``written``): one of the two would overwrite the other."""
+    if id_name is not None and id_name in written:
+        raise OptionError(f"the id column '{printable(id_name)}' has the name of {what} the output holds; rename that "
+                          f"column in the data, or name the rows by another column")
+
+
 def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, errors: dict,
                    with_errors: bool, answered: np.ndarray) -> tuple[str | None, dict[str, object]]:
     """(name of the id column or None, the output's columns): the ids first, then each method's score of each
@@ -114,16 +143,12 @@ def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, er
         for f, name in enumerate(factors):
             errors_here = with_errors and meth not in ITEM_METHODS  # a sum has no standard error of its own
             written = (column_name(name, meth),) + ((column_name(name, meth, "se"),) if errors_here else ())
-            if id_name in written:
-                raise OptionError(f"the id column '{printable(id_name)}' has the name of a column of scores the output "
-                                  f"holds; rename that column in the data, or name the rows by another column")
+            _refuse_id_named_as(id_name, written, "a column of scores")
             columns[column_name(name, meth)] = values[meth][:, f]
             if errors_here:
                 columns[column_name(name, meth, "se")] = errors[meth][:, f]
     for f, name in enumerate(factors):
-        if id_name == answered_column(name):
-            raise OptionError(f"the id column '{printable(id_name)}' has the name of a column the output holds; "
-                              f"rename that column in the data, or name the rows by another column")
+        _refuse_id_named_as(id_name, (answered_column(name),))
         columns[answered_column(name)] = pd.array([None if np.isnan(v) else int(v) for v in answered[:, f]],
                                                   dtype="Int64")
     return id_name, columns
@@ -143,9 +168,7 @@ def _with_same_answer_column(columns: dict, id_name, spec, items, rows: np.ndarr
     turned = np.array([x in spec.reverse_keyed for x in items], dtype=bool)
     if not spec.reversed or not turned.any() or turned.all():
         return columns
-    if id_name == SAME_ANSWER_COLUMN:
-        raise OptionError(f"the id column '{printable(id_name)}' has the name of a column the output holds; "
-                          f"rename that column in the data, or name the rows by another column")
+    _refuse_id_named_as(id_name, (SAME_ANSWER_COLUMN,))
     found = same_answer_rows(rows, np.arange(len(rows)), turned)
     flags = np.full(n, -1)
     flags[at] = 0
@@ -162,8 +185,10 @@ def answered_column(factor: str) -> str:
 def _items_answered(model, rows: np.ndarray, at: np.ndarray, n: int) -> np.ndarray:
     """(n, m): how many of each factor's items (directly or through the factors below it) each row answered, at
     the rows' places ``at`` among the ``n`` rows read; NaN for rows not scored (left out by a filter)."""
+    from cfa_tool.scoring.model import items_answered
+
     out = np.full((n, model.m), np.nan)
-    out[at] = (~np.isnan(rows)).astype(float) @ model.reach.astype(float)
+    out[at] = items_answered(model, rows)
     return out
 
 
@@ -198,6 +223,51 @@ def _in_file_order(table: pd.DataFrame, data) -> pd.DataFrame:
     return table
 
 
+def _row_reasons(read_index: pd.Index, kept: pd.Index, rows: np.ndarray, group_of_row: np.ndarray, group,
+                 labels) -> pd.Series:
+    """The reason each row read would have no score at all, before scoring (None: the row is scored unless every
+    score it gets is empty): left out by a row filter, no group, a group the fit does not have, no answers on the
+    model's items (``rows``, ``group_of_row``: of the ``kept`` rows)."""
+    reasons = pd.Series(None, index=read_index, dtype=object)
+    reasons[~read_index.isin(kept)] = NotScored.FILTERED
+    own = np.full(len(kept), None, dtype=object)
+    own[np.isnan(rows).all(axis=1)] = NotScored.NO_ANSWERS
+    if group is not None:
+        missing = pd.isna(group_of_row)
+        own[~missing & ~np.isin(group_of_row, np.asarray(list(labels), dtype=object))] = NotScored.UNKNOWN_GROUP
+        own[missing] = NotScored.NO_GROUP
+    reasons[kept] = own
+    return reasons
+
+
+def _count_rows_left_out(reasons: pd.Series, chosen, m: int, counts: dict) -> None:
+    """The rows left out before scoring (:data:`_ROWS_LEFT_OUT`; ``reasons``: :func:`_row_reasons`) counted into
+    ``counts`` by (reason, method), every factor's cell empty."""
+    for why in _ROWS_LEFT_OUT:
+        number = sum(1 for r in reasons if r is why)
+        if number:
+            for meth in chosen:
+                counts[(why.reason, meth.value)] = np.full(m, number)
+
+
+def _with_why_not_scored(table: pd.DataFrame, id_name, score_columns: list[str], reasons: pd.Series) -> pd.DataFrame:
+    """``table`` (the scores in file order, blank rows of the file as empty lines) with :data:`WHY_NOT_SCORED_COLUMN`
+    last when some line has no score at all, saying why (:class:`NotScored`; ``reasons``: :func:`_row_reasons`), so
+    that a line left empty is told apart from a person with no answers when the file is merged back; unchanged when
+    every line has a score."""
+    scored = table[score_columns].notna().any(axis=1).to_numpy()
+    if scored.all():
+        return table
+    _refuse_id_named_as(id_name, (WHY_NOT_SCORED_COLUMN,))
+    known = table.index.isin(reasons.index)
+    why = np.full(len(table), None, dtype=object)
+    why[known] = reasons.reindex(table.index[known]).to_numpy()
+    why[~known] = NotScored.BLANK
+    why[scored] = None
+    why[~scored & pd.isna(why)] = NotScored.TOO_FEW_ANSWERS
+    return table.assign(**{WHY_NOT_SCORED_COLUMN: [None if w is None else w.value for w in why]})
+
+
 def partly_answered_note(model, answered: np.ndarray, method: ScoreMethod, errors: np.ndarray) -> list[str]:
     """The note on the scored rows that answered some but not all of a factor's items (``answered``: see
     :func:`_items_answered`; ``errors``: the standard errors of ``method``'s scores at the same places): their
@@ -222,6 +292,11 @@ def partly_answered_note(model, answered: np.ndarray, method: ScoreMethod, error
     return [f"Rows that answered some but not all of a factor's items are scored from the items they answered (the "
             f"_items_answered columns): their scores are less precise than the precision table says, which is for "
             f"rows that answered every item ({'; '.join(parts)}; SE: the {what})."]
+
+
+def score_columns(methods, factors) -> list[str]:
+    """The output's columns of scores (no standard errors), each method's factors in turn."""
+    return [column_name(f, meth) for meth in methods for f in factors]
 
 
 def column_name(factor: str, method: ScoreMethod, what: str = "") -> str:
@@ -268,12 +343,16 @@ class ItemSumSummary:
     not_summed: tuple[tuple[str, Unscored], ...]  # (factor, why it has no item sum)
     shared: tuple[tuple[str, tuple[str, ...]], ...]  # (item, the summed factors it counts on) for items on several
     prorated: tuple[int, ...] = ()  # rows of this group prorated, per summed factor
+    # scoring.quality.Precision of each summed factor's item sum and mean written (their standard error of
+    # measurement, from the sum's SD under the fitted model and its omega)
+    precision: tuple[Precision, ...] = ()
 
     def to_dict(self) -> dict:
         return clean({"group": self.group, "least_share_answered": self.rule.least_share,
                       "least_share_is_default": self.rule.default,
                       "factors": [{"factor": f, "items": list(items), "omega": w, "rows_prorated": n}
                                   for f, items, w, n in zip(self.factors, self.items, self.omega, self.prorated)],
+                      "precision": [p.to_dict() for p in self.precision],
                       "reversed": [r.to_dict() for r in self.reversals],
                       "not_summed": [{"factor": f, "reason": why.value} for f, why in self.not_summed],
                       "items_on_several_factors": [{"item": x, "factors": list(fs)} for x, fs in self.shared]})
@@ -454,7 +533,21 @@ class ScoreResult(Presentable):
 
     @property
     def rows(self) -> int:
+        """Lines of the scores file: one per row of the data read, in the file's order (blank rows of a file too)."""
         return len(self.table)
+
+    @property
+    def rows_scored(self) -> int:
+        """Lines with at least one score."""
+        return int(self.table[score_columns(self.methods, self.factors)].notna().any(axis=1).sum())
+
+    @property
+    def not_scored(self) -> dict[NotScored, int]:
+        """The lines without any score, by reason (:data:`WHY_NOT_SCORED_COLUMN`), in :class:`NotScored` order."""
+        if WHY_NOT_SCORED_COLUMN not in self.table.columns:
+            return {}
+        counts = self.table[WHY_NOT_SCORED_COLUMN].value_counts()
+        return {why: int(counts[why.value]) for why in NotScored if why.value in counts.index}
 
     @property
     def low_determinacy(self) -> tuple[str, ...]:
@@ -469,6 +562,8 @@ class ScoreResult(Presentable):
             "admissible": self.fit.admissible,
             "problems": [p.to_dict() for p in self.fit.problems],
             "rows": self.rows,
+            "rows_scored": self.rows_scored,
+            "rows_not_scored": {why.value: n for why, n in self.not_scored.items()},
             "methods": [m.value for m in self.methods],
             "factors": list(self.factors),
             "id_column": self.id_name,
@@ -585,15 +680,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     position = pd.Series(np.arange(len(read_index)), index=read_index)
     summaries = _score_each_group(models, labels, spec, result, rule, rows, group_of_row, group, chosen,
                                   bool(ordinal_items), position.loc[kept].to_numpy(), values, errors, counts)
-    left_out = len(read_index) - len(frame)
-    if left_out:
-        for meth in chosen:
-            counts[(RowLeftOut.FILTERED.value, meth.value)] = np.full(m, left_out)
-    if group is not None:
-        no_group = int(pd.isna(group_of_row).sum())
-        if no_group:
-            for meth in chosen:
-                counts[(RowLeftOut.NO_GROUP.value, meth.value)] = np.full(m, no_group)
+    reasons = _row_reasons(read_index, kept, rows, group_of_row, group, labels)
+    _count_rows_left_out(reasons, chosen, m, counts)
 
     answered = _items_answered(models[0].base if ordinal_items else models[0], rows,
                                position.loc[kept].to_numpy(), len(read_index))
@@ -602,8 +690,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     columns = _with_same_answer_column(columns, id_name, spec, items, rows, position.loc[kept].to_numpy(),
                                        len(read_index))
     table = _in_file_order(pd.DataFrame(columns, index=read_index), data)  # a data frame's own index: scores join
-    if id_name is not None and id_name in list(table.columns)[1:]:
-        raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
+    table = _with_why_not_scored(table, id_name, score_columns(chosen, factors), reasons)
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
                                spec, answered) if ordinal_items else _linear_quality(models, spec)
     result = _with_repeated_ids(result, ids, id_column)
@@ -612,7 +699,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     if ids is not None and id_column is None:
         extra.insert(0, f"The first column holds the row names of {source} (its first column, which has no name in "
                         f"the header); give {Option.ID_COLUMN.given('COLUMN')} to name the rows by another column.")
-    own = _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal_items)
+    own = _without_own_answers_note(answered, values, chosen, factors)
     unweighted = len(frame) - len(fitted_rows)  # weight 0: not in the fit, yet scored like every row
     if unweighted:
         which = "The row of weight 0 is" if unweighted == 1 else f"The {unweighted} rows of weight 0 are"
@@ -662,8 +749,21 @@ def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group
                     key = (why.value, meth.value)
                     counts[key] = counts.get(key, np.zeros(m, dtype=np.int64)) + np.asarray(c, dtype=np.int64)
         if parts is not None:
-            summaries.append(replace(parts.summary, prorated=prorated or (0,) * len(parts.summary.factors)))
+            summaries.append(replace(parts.summary, prorated=prorated or (0,) * len(parts.summary.factors),
+                                     precision=_item_sum_precision(model_g, parts, chosen)))
     return tuple(summaries)
+
+
+def _item_sum_precision(model, parts: _ItemParts, chosen) -> tuple[Precision, ...]:
+    """The precision of one group's item sums and means written (scoring.quality.item_sum_precision), from the sums'
+    SDs under the model (``model``: the group's scoring model, ordinal or not) and their omega in the fit."""
+    from cfa_tool.scoring.quality import item_sum_precision, keyed_sum_sds
+
+    summary = parts.summary
+    summed = [j for j, why in enumerate(parts.not_summed) if why is None]
+    sds = keyed_sum_sds(model, parts.keys)
+    return item_sum_precision(summary.factors, [len(items) for items in summary.items], sds[summed], summary.omega,
+                              chosen)
 
 
 def _partly_answered(model, answered: np.ndarray, chosen, errors: dict) -> list[str]:
@@ -821,20 +921,14 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     counts: dict = {}
     summaries = _score_each_group(models, labels, spec, result, rule, rows, group_of_row, group, chosen, ordinal,
                                   position.loc[frame.index].to_numpy(), values, errors, counts)
-    for reason, number in ((RowLeftOut.FILTERED.value, n - len(frame)),
-                           (RowLeftOut.NO_GROUP.value, int(pd.isna(group_of_row).sum()) if group is not None else 0),
-                           (RowLeftOut.UNKNOWN_GROUP.value, int(sum(1 for v in group_of_row if not pd.isna(v)
-                                                                    and v not in labels)) if group is not None else 0)):
-        if number:
-            for meth in chosen:
-                counts[(reason, meth.value)] = np.full(m, number)
+    reasons = _row_reasons(read_frame.index, frame.index, rows, group_of_row, group, labels)
+    _count_rows_left_out(reasons, chosen, m, counts)
     factors = base.factors
     with_errors = bool(standard_errors or ordinal)  # a posterior mean always comes with its posterior SD
     answered = _items_answered(base, rows, position.loc[frame.index].to_numpy(), n)
     id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, with_errors, answered)
     columns = _with_same_answer_column(columns, id_name, spec, base.items, rows, position.loc[frame.index].to_numpy(), n)
-    warnings = centred_in_each_group(result.estimates) + _without_own_answers_note(models, labels, rows, group_of_row,
-                                                                                  group, factors, ordinal)
+    warnings = centred_in_each_group(result.estimates) + _without_own_answers_note(answered, values, chosen, factors)
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     scored_problems = []  # first in every view, before the fit's own (the rows scored are this run's data)
@@ -867,9 +961,9 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
-    return ScoreResult(result, chosen, tuple(factors), id_name, _in_file_order(pd.DataFrame(columns, index=read_frame.index),
-                                                                               data),
-                       tuple(quality),
+    table = _with_why_not_scored(_in_file_order(pd.DataFrame(columns, index=read_frame.index), data), id_name,
+                                 score_columns(chosen, factors), reasons)
+    return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
                        unscored, with_errors, tuple(notes), source, tuple(warnings), summaries)
 
 
@@ -1439,15 +1533,15 @@ def centred_in_each_group(estimates) -> list[str]:
             f"that group's own units."]
 
 
-def _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal) -> list[str]:
-    from cfa_tool.scoring.model import without_own_answers
-
-    total = np.zeros(len(factors), dtype=np.int64)
-    for model_g, label in zip(models, labels):
-        sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(rows))
-        part = rows[sel]
-        answered = ~np.isnan(part).all(axis=1)
-        total += without_own_answers(model_g.base if ordinal else model_g, part[answered]).sum(axis=0)
+def _without_own_answers_note(answered: np.ndarray, values: dict, chosen, factors) -> list[str]:
+    """The caution on rows that answered none of a factor's items and still have a factor score of it (``answered``:
+    :func:`_items_answered`; ``values``: each method's scores at the same places): it rests on the other factors'
+    items alone.  Item sums and means leave such cells empty, and Bartlett and correlation-preserving scores as a
+    rule too (the unscored table counts them), so only the cells a factor-score method filled are counted."""
+    scored = np.zeros(answered.shape, dtype=bool)
+    for meth in factor_methods(chosen):
+        scored |= ~np.isnan(values[meth])
+    total = ((answered == 0) & scored).sum(axis=0)
     return [f"{int(n)} {'row' if n == 1 else 'rows'} answered none of the items of {name}; {'its' if n == 1 else 'their'} "
             f"score of {name} rests on the other factors' items alone (through the factors' correlations), and the "
             f"column {answered_column(name)} marks {'it' if n == 1 else 'them'} with 0"

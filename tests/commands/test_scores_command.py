@@ -125,6 +125,46 @@ def test_filtered_rows_stay_in_place_with_empty_cells(tmp_path, model_file, caps
     assert reasons == {"left out by a row filter (--keep)": int(left_out.sum())}
 
 
+def test_rows_without_any_score_say_why_and_are_not_counted_as_scored(tmp_path, model_file, capsys):
+    # a new-user trial (s13): '--keep' wrote every row of the file, the filtered ones empty, and said "Scores of 900
+    # rows" while 810 were kept; an empty line of a filtered row looked like a person without answers.  Expected here
+    # from the file by pandas: which rows the filter keeps, and the one kept row whose answers are all removed.
+    raw = pd.read_csv(HS_FILE, index_col=0)
+    gaps = raw.copy()
+    kept = (gaps["school"] == "Pasteur").to_numpy()
+    empty = int(np.flatnonzero(kept)[3])
+    gaps.loc[gaps.index[empty], ITEMS] = np.nan
+    gaps.to_csv(tmp_path / "gaps.csv")
+    out, js = tmp_path / "scores.csv", tmp_path / "scores.json"
+    code, text, err = _run(["scores", model_file, "--data", tmp_path / "gaps.csv", "--output", out, "--json", js,
+                            "--id", "id", "--keep", "school = Pasteur", "--method", "regression,item-sum"], capsys)
+    assert code == 0, err
+    written = pd.read_csv(out, dtype={"id": str})
+    assert written["id"].tolist() == [str(v) for v in raw["id"]]  # every row in its place, merged back by id
+    expected = ["" if k else "filtered out" for k in kept]
+    expected[empty] = "no answers"
+    assert written["why_not_scored"].fillna("").tolist() == expected
+    scored = int(kept.sum()) - 1
+    assert written.filter(like="_regression").notna().any(axis=1).sum() == scored
+    result = json.loads(js.read_text())
+    assert (result["rows"], result["rows_scored"]) == (len(raw), scored)
+    assert result["rows_not_scored"] == {"filtered out": int((~kept).sum()), "no answers": 1}
+    flat = " ".join(text.split())
+    assert f"Scores of {scored} of the {len(raw)} rows written to {out}" in flat
+    assert (f"Scores (regression, item sum) of {scored} of the {len(raw)} rows, one line per row of the data in the "
+            f"file's order (the {len(raw) - scored} without any score keep their line with empty cells, the column "
+            f"why_not_scored saying why: filtered out {int((~kept).sum())}, no answers 1)") in flat
+    # an id column of that name would be overwritten: the one error of ids named like a column written
+    gaps.rename(columns={"id": "why_not_scored"}).to_csv(tmp_path / "named.csv")
+    code, _, err = _run(["scores", model_file, "--data", tmp_path / "named.csv", "--output", tmp_path / "named_out.csv",
+                         "--id", "why_not_scored", "--keep", "school = Pasteur"], capsys)
+    assert code == 2 and "'why_not_scored' has the name of a column the output holds" in err
+    assert not (tmp_path / "named_out.csv").exists()
+    # every row scored: no such column, and the count is of every row
+    assert _run(["scores", model_file, "--data", HS_FILE, "--output", tmp_path / "all.csv"], capsys)[0] == 0
+    assert "why_not_scored" not in pd.read_csv(tmp_path / "all.csv").columns
+
+
 def test_an_inadmissible_solution_writes_no_scores_and_exits_3(tmp_path, capsys):
     # the Heywood case of tests/assessment/test_admissibility.py: a negative residual variance of x9
     model = tmp_path / "heywood.cfa"
@@ -389,5 +429,9 @@ def test_a_blank_row_of_the_file_keeps_an_empty_line_so_the_scores_line_up(tmp_p
                 capsys)[0] == 0
     blank = (tmp_path / "b.csv").read_text().splitlines()
     plain = (tmp_path / "p.csv").read_text().splitlines()
-    assert len(blank) == len(plain) + 1 and set(blank[10]) <= {","}  # line 11, as the sheet's row 11
-    assert blank[:10] + blank[11:] == plain
+    # line 11, as the sheet's row 11, holds no score and says why in the last column, which only a file with a line
+    # without any score has (the other lines end with it empty)
+    assert len(blank) == len(plain) + 1 and blank[0] == plain[0] + ",why_not_scored"
+    assert set(blank[10].removesuffix("blank row")) <= {","} and blank[10].endswith(",blank row")
+    others = blank[1:10] + blank[11:]
+    assert all(line.endswith(",") for line in others) and [line[:-1] for line in others] == plain[1:]

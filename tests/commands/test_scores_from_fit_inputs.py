@@ -266,6 +266,10 @@ def test_rows_in_groups_the_fit_does_not_have_are_said_first_and_none_scored_is_
     assert text.index("Check before interpreting") < text.index("Scores of")
     scored = pd.read_csv(out)
     assert scored.filter(like="_regression").notna().all(axis=1).sum() == len(hs_data) - 10
+    # the lines without a score say why, and the count said is of the rows scored (it said "Scores of 301 rows")
+    unknown = (some["school"] == "pasteur").to_numpy()  # the rows relabelled above, found again by pandas
+    assert scored["why_not_scored"].eq("group not in the fit").to_numpy().tolist() == unknown.tolist()
+    assert f"Scores of {len(hs_data) - 10} of the {len(hs_data)} rows written" in text
 
 
 def test_answers_outside_the_fitted_rows_range_are_said_first(tmp_path, model_file, hs_data, capsys):

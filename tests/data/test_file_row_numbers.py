@@ -123,9 +123,10 @@ def test_a_footer_row_gets_empty_scores(rider_demo, rider_model, tmp_path, metho
     # one line per row of the sheet from the first row of data to the footer: its blank rows as empty lines, so that
     # the scores line up with the sheet (hostile trial s11)
     assert len(table) == len(rider_demo) + 1 + 8 and list(table.index) == list(range(table.index[0], table.index[-1] + 1))
-    assert table.isna().all(axis=1).sum() == 8
+    why = table.pop("why_not_scored")  # the lines without any score say why (the blank rows, the footer)
+    assert table.isna().all(axis=1).sum() == 8 and why[table.isna().all(axis=1)].eq("blank row").all()
     footer = table[table["rider_id"] == FOOTER]
-    assert len(footer) == 1
+    assert len(footer) == 1 and why[footer.index].tolist() == ["no answers"]
     score_columns = [c for c in table.columns if c.endswith(method.replace("-", "_"))]
     assert len(score_columns) == 3
     assert footer[score_columns].isna().all(axis=None)  # no answer: no score, never 0

@@ -147,13 +147,13 @@ def test_each_group_is_scored_with_its_own_intercepts_and_factor_means():
 
 
 def test_rows_that_answered_none_of_a_factors_items_are_marked():
-    from cfa_tool.scoring.model import without_own_answers
+    from cfa_tool.scoring.model import items_answered
 
     model = _model()
     rows = np.ones((3, 8))
     rows[1, :4] = np.nan  # y3 also measures b (cross-loading), so b keeps items; a has none
     rows[2, 4:] = np.nan  # b is still measured by y3
-    np.testing.assert_array_equal(without_own_answers(model, rows), [[False, False], [True, False], [False, False]])
+    np.testing.assert_array_equal(items_answered(model, rows) == 0, [[False, False], [True, False], [False, False]])
 
 
 def test_scores_from_a_full_information_fit_use_its_intercepts_and_each_rows_answers():
