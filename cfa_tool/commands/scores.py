@@ -91,7 +91,8 @@ def run(args: argparse.Namespace) -> int:
 
     empty = result.rows - result.rows_scored
     rows = ("--output", result.csv(), f"Scores of {rows_scored(result)} written to {args.output}"
-            + (f"; the {empty} without any score keep their line, empty, with the reason in {WHY_NOT_SCORED_COLUMN}"
+            + (f"; the {empty} without any score {'keeps its' if empty == 1 else 'keep their'} line, empty, with the "
+               f"reason in {WHY_NOT_SCORED_COLUMN}"
                if empty else ""))
     emit_report(args, result, [args.model, args.data, args.from_fit], first=[rows])
     if result.low_determinacy:

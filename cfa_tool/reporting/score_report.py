@@ -62,7 +62,9 @@ def _empty_lines(result) -> str:
     if not result.not_scored:
         return ""
     counts = ", ".join(f"{why.value} {n}" for why, n in result.not_scored.items())
-    return (f" (the {result.rows - result.rows_scored} without any score keep their line with empty cells, the column "
+    empty = result.rows - result.rows_scored
+    keep = "keeps its line" if empty == 1 else "keep their line"
+    return (f" (the {empty} without any score {keep} with empty cells, the column "
             f"{WHY_NOT_SCORED_COLUMN} saying why: {counts})")
 
 

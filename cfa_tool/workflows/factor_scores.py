@@ -38,6 +38,7 @@ class NotScored(Enum):
 
     FILTERED = "filtered out"
     BLANK = "blank row"  # a blank row of the file, kept as an empty line so that the lines match the file's rows
+    ABOVE_ANSWERS = "above the answers"  # a row between the names and the first row of answers (--first-data-row)
     NO_ANSWERS = "no answers"
     NO_GROUP = "no group"
     UNKNOWN_GROUP = "group not in the fit"
@@ -49,6 +50,7 @@ class NotScored(Enum):
 
 
 _REASONS = {NotScored.FILTERED: "left out by a row filter (--keep)", NotScored.BLANK: "a blank row of the file",
+            NotScored.ABOVE_ANSWERS: "a row above the first row of answers (--first-data-row)",
             NotScored.NO_ANSWERS: Unscored.NO_ANSWERS.value, NotScored.NO_GROUP: "no value in the group column",
             NotScored.UNKNOWN_GROUP: "a group the fit does not have",
             NotScored.TOO_FEW_ANSWERS: "too few answers for any score asked for"}
@@ -209,17 +211,22 @@ def _rows_as_read(loaded) -> pd.DataFrame:
     return read
 
 
-def _in_file_order(table: pd.DataFrame, data) -> pd.DataFrame:
+def _in_file_order(table: pd.DataFrame, data, names_row: int | None = None) -> pd.DataFrame:
     """The scores of a file's rows with an empty line for each blank row the reader skipped between them (hostile
     trial s11: a blank sheet row dropped from the scores file shifted every later score onto the row above when
-    the file was pasted beside the sheet).  A file's rows are indexed by their place in the file
-    (data.moments.file_rows_index), so a gap in the index is a blank row; a data frame's scores keep its own index
-    (they join to its rows)."""
-    if isinstance(data, pd.DataFrame) or len(table) < 2 or not pd.api.types.is_integer_dtype(table.index):
+    the file was pasted beside the sheet), and for each row between the column names (``names_row``, else the
+    first row) and the first row of answers (--first-data-row: a row of question texts; hostile tester s13: without
+    them every score sat one respondent off).  A file's rows are indexed by their place in the file
+    (data.moments.file_rows_index: the row's number less one), so a gap in the index is a row not read; a data
+    frame's scores keep its own index (they join to its rows)."""
+    if isinstance(data, pd.DataFrame) or not len(table) or not pd.api.types.is_integer_dtype(table.index):
         return table
     index = table.index
-    if index.is_monotonic_increasing and index[-1] - index[0] + 1 > len(index):
-        return table.reindex(pd.RangeIndex(index[0], index[-1] + 1))
+    if not index.is_monotonic_increasing:
+        return table
+    first = min(index[0], names_row or 1)  # the row just below the names: index = its number - 1 = the names' row
+    if index[-1] - first + 1 > len(index):
+        return table.reindex(pd.RangeIndex(first, index[-1] + 1))
     return table
 
 
@@ -263,6 +270,8 @@ def _with_why_not_scored(table: pd.DataFrame, id_name, score_columns: list[str],
     why = np.full(len(table), None, dtype=object)
     why[known] = reasons.reindex(table.index[known]).to_numpy()
     why[~known] = NotScored.BLANK
+    if len(reasons):  # the rows above the first row read: skipped by --first-data-row, not blank
+        why[~known & (table.index < reasons.index.min())] = NotScored.ABOVE_ANSWERS
     why[scored] = None
     why[~scored & pd.isna(why)] = NotScored.TOO_FEW_ANSWERS
     return table.assign(**{WHY_NOT_SCORED_COLUMN: [None if w is None else w.value for w in why]})
@@ -689,7 +698,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                       bool(standard_errors or ordinal_items), answered)
     columns = _with_same_answer_column(columns, id_name, spec, items, rows, position.loc[kept].to_numpy(),
                                        len(read_index))
-    table = _in_file_order(pd.DataFrame(columns, index=read_index), data)  # a data frame's own index: scores join
+    table = _in_file_order(pd.DataFrame(columns, index=read_index), data, names_row)  # a frame's own index: joins
     table = _with_why_not_scored(table, id_name, score_columns(chosen, factors), reasons)
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
                                spec, answered) if ordinal_items else _linear_quality(models, spec)
@@ -961,7 +970,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
-    table = _with_why_not_scored(_in_file_order(pd.DataFrame(columns, index=read_frame.index), data), id_name,
+    table = _with_why_not_scored(_in_file_order(pd.DataFrame(columns, index=read_frame.index), data, names_row), id_name,
                                  score_columns(chosen, factors), reasons)
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
                        unscored, with_errors, tuple(notes), source, tuple(warnings), summaries)

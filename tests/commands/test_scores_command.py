@@ -435,3 +435,31 @@ def test_a_blank_row_of_the_file_keeps_an_empty_line_so_the_scores_line_up(tmp_p
     assert set(blank[10].removesuffix("blank row")) <= {","} and blank[10].endswith(",blank row")
     others = blank[1:10] + blank[11:]
     assert all(line.endswith(",") for line in others) and [line[:-1] for line in others] == plain[1:]
+
+
+@pytest.mark.parametrize("from_fit", [False, True])
+def test_rows_above_the_first_row_of_answers_keep_their_lines(tmp_path, model_file, capsys, from_fit):
+    # hostile tester s13: a survey export with question texts on line 2 (--first-data-row 3) gave scores whose line 2
+    # was the data's line 3, so every score pasted beside the file sat one respondent off.  Check: line k of the
+    # scores is line k of the data file, against the scores of the file without the question-text line.
+    raw = pd.read_csv(HS_FILE)
+    lines = (tmp_path / "plain.csv")
+    raw.to_csv(lines, index=False)
+    text = lines.read_text().splitlines()
+    questions = ",".join(f'"Question {k}"' for k in range(len(raw.columns)))
+    (tmp_path / "questions.csv").write_text("\n".join([text[0], questions] + text[1:]) + "\n")
+    extra = []
+    if from_fit:
+        assert _run(["fit", model_file, "--data", lines, "--json", tmp_path / "fit.json"], capsys)[0] == 0
+        extra = ["--from-fit", tmp_path / "fit.json"]
+    code, out, _ = _run(["scores", model_file, "--data", tmp_path / "questions.csv", "--first-data-row", "3",
+                         "--output", tmp_path / "q.csv"] + extra, capsys)
+    assert code == 0
+    assert _run(["scores", model_file, "--data", lines, "--output", tmp_path / "p.csv"] + extra, capsys)[0] == 0
+    scored = (tmp_path / "q.csv").read_text().splitlines()
+    plain = (tmp_path / "p.csv").read_text().splitlines()
+    assert len(scored) == len(text) + 1 == len(plain) + 1  # one line per line of the data file
+    assert scored[0] == plain[0] + ",why_not_scored"
+    assert scored[1].endswith(",above the answers") and set(scored[1].removesuffix("above the answers")) <= {","}
+    assert [line[:-1] for line in scored[2:]] == plain[1:]
+    assert "keeps its line" in " ".join(out.split())
