@@ -26,6 +26,7 @@ from cfa_tool.assessment.normality import Whitened, whitened_rows
 from cfa_tool.data.kept_rows import ROW_NAMED_BY, RowNaming
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.linalg import spd_inverse
+from cfa_tool.numerics.plain import clean
 
 
 @dataclass(frozen=True)
@@ -48,6 +49,27 @@ class CaseDiagnostic:
         if self.answered is not None:
             out.update(answered=self.answered, model_mahalanobis=self.model_mahalanobis)
         return out
+
+
+def case_dicts(cases, naming: RowNaming = RowNaming.FILE_ROW) -> list[dict]:
+    """The rows as JSON: what ``clean(case.to_dict(naming))`` (numerics.plain.clean) gives for each, built at once;
+    a row whose numbers are all finite Python floats (its row an int, its id text or None) needs no cleaning."""
+    word = naming.json_word
+    out = []
+    for c in cases:
+        row, id_, m, p, s = c.row, c.id, c.mahalanobis, c.p_value, c.chi_square_share
+        d = {"row": row, ROW_NAMED_BY: word}
+        if id_ is not None:
+            d["id"] = id_
+        d["mahalanobis"], d["p_value"], d["chi_square_share"] = m, p, s
+        plain = (type(row) is int and (id_ is None or type(id_) is str) and type(m) is float and type(p) is float
+                 and type(s) is float and m - m == 0.0 and p - p == 0.0 and s - s == 0.0)
+        if c.answered is not None:
+            d["answered"], d["model_mahalanobis"] = c.answered, c.model_mahalanobis
+            plain = plain and type(c.answered) is int and type(c.model_mahalanobis) is float and (
+                c.model_mahalanobis - c.model_mahalanobis == 0.0)
+        out.append(d if plain else clean(d))
+    return out
 
 
 def normalized_residuals(S: np.ndarray, sigma: np.ndarray, n_obs: int) -> np.ndarray:

@@ -145,8 +145,11 @@ def item_keys(G: np.ndarray, member: np.ndarray, observed: tuple[str, ...],
     items load positively), -1 where it points against its keys; ``split`` (m): True where half of a factor's
     items point each way, so that no majority gives its direction."""
     signs = np.where(G < 0, -1.0, 1.0)
-    keys = np.array([-1.0 if declared is not None and x in declared else 1.0 for x in observed])[:, None]
-    vote, tie_break = (keys * signs * member).sum(axis=0), (keys * G * member).sum(axis=0)
+    if declared is None:  # every key +1: the products below without them (multiplying by 1.0 changes no bit)
+        vote, tie_break = (signs * member).sum(axis=0), (G * member).sum(axis=0)
+    else:
+        keys = np.array([-1.0 if x in declared else 1.0 for x in observed])[:, None]
+        vote, tie_break = (keys * signs * member).sum(axis=0), (keys * G * member).sum(axis=0)
     direction = np.where(np.where(vote == 0, tie_break, vote) < 0, -1.0, 1.0)  # each factor's majority
     K = (signs * direction if declared is None else keys) * member
     return K, direction, (vote == 0) & member.any(axis=0)
@@ -192,11 +195,14 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     # K restricted to each first-order factor's own items; the sums of the module docstring are then columns of
     # K' X K and K' x for the matrices X and vectors x involved
     direct = np.abs(L) > 0
-    member = (np.abs(G) > 1e-12) | direct
-    higher = np.abs(mats.B).sum(axis=0) > 0
+    if mats.has_paths:
+        member = (np.abs(G) > 1e-12) | direct
+        higher = np.abs(mats.B).sum(axis=0) > 0
+    else:  # G is L (so every item the loadings reach is one of direct's) and B is zero: no higher-order factor
+        member, higher = direct, np.zeros(m, dtype=bool)
     K, direction, split = item_keys(G, member, observed, declared)
     if declared is None:
-        against = np.zeros((p, m), dtype=bool)
+        against = None
     else:
         # contradictions are reported once, for the factor the items load on directly
         against = member & (K * np.where(G < 0, -1.0, 1.0) != direction) & (G != 0) & ~higher
@@ -217,20 +223,25 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         cr = keyed_sum**2 / (keyed_sum**2 + err)
         ave = lam_squares / (lam_squares + err)
         counts = direct.sum(axis=0)
-        first_order = [j for j in range(m) if member[:, j].any() and latent[j] not in not_traits and not higher[j]]
+        reached, higher_l = member.any(axis=0).tolist(), higher.tolist()
+        first_order = [j for j in range(m) if reached[j] and not higher_l[j] and latent[j] not in not_traits]
         general, shared = _bifactor(direct, corr_lat, higher, observed, latent, not_traits)
         # per factor, as lists read in the loop below: the largest |correlation| with another first-order factor
         # (-inf with none) and whether sqrt(AVE) exceeds it (Fornell-Larcker); a bifactor model's general and
         # specific factors are not compared (the module docstring)
         others = np.zeros(m, dtype=bool)
         others[first_order] = True
-        apart = np.zeros((m, m), dtype=bool)  # a general factor and its specific ones (none outside bifactor models)
-        index = {name: j for j, name in enumerate(latent)}
-        for a, sharing in shared.items():
-            apart[index[a], [index[b] for b in sharing]] = True
-        compared = others[None, :] & ~np.eye(m, dtype=bool) & ~apart
+        compared = others[None, :] & ~np.eye(m, dtype=bool)
+        apart = None  # a general factor and its specific ones (none outside bifactor models)
+        if shared:
+            apart = np.zeros((m, m), dtype=bool)
+            index = {name: j for j, name in enumerate(latent)}
+            for a, sharing in shared.items():
+                apart[index[a], [index[b] for b in sharing]] = True
+            compared &= ~apart
         largest_a = np.where(compared, np.abs(corr_lat), -np.inf).max(axis=1)
         largest_l, holds_l = largest_a.tolist(), (np.sqrt(ave) > largest_a).tolist()
+        compared_l = compared.any(axis=1).tolist()
         if S is not None:
             SK = S @ Kd
             keyed_totals = np.einsum("ij,ij->j", Kd, SK)  # k'S k over each factor's own items
@@ -251,20 +262,24 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
             mono_l = ((keyed_r.diagonal() - direct.T @ R.diagonal()) / (counts * (counts - 1))).tolist()
             keyed_r_l = keyed_r.tolist()
     keying = Keying.SIGNS if declared is None else Keying.DECLARED
-    member_l, direct_l = [c.nonzero()[0].tolist() for c in member.T], [c.nonzero()[0].tolist() for c in direct.T]
-    negative, against_l = (K < 0).tolist(), against.tolist()
+    member_l = [c.nonzero()[0].tolist() for c in member.T]
+    direct_l = member_l if member is direct else [c.nonzero()[0].tolist() for c in direct.T]
+    negative = (K < 0).T.tolist()  # by factor, then item
+    against_l = against.T.tolist() if against is not None else None
     omega_l, omega_total_l, cr_l, ave_l = omega.tolist(), omega_total.tolist(), cr.tolist(), ave.tolist()
     # a factor split evenly has no majority to point against (its tie-break only orders the keys)
     turned_l, tied_l = ((direction < 0) & ~split).tolist(), split.tolist()
-    counts_l, higher_l = counts.tolist(), higher.tolist()
+    counts_l = counts.tolist()
+    reported_sums = S is not None and sum_scores
     results = []
     for j, name in enumerate(latent):
         items = member_l[j]
         if not items or name in not_traits:
             continue
         names = tuple([observed[i] for i in items])
-        reversed_items = tuple([observed[i] for i in items if negative[i][j]])
-        against_items = tuple([observed[i] for i in items if against_l[i][j]])
+        turned_j = negative[j]
+        reversed_items = tuple([observed[i] for i in items if turned_j[i]])
+        against_items = () if against_l is None else tuple([observed[i] for i in items if against_l[j][i]])
         turned, tied = turned_l[j], tied_l[j]
         if higher_l[j]:
             results.append(FactorReliability(name, names, "higher-order", omega_l[j], omega_total_l[j], omega_l[j],
@@ -274,21 +289,22 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         alpha_j = mean = sd = None
         item_total: tuple[float, ...] = ()
         if S is not None:
-            own_items = direct_l[j]
             alpha_j = alpha_l[j]
-            if sum_scores:
-                sd = sd_l[j]
-                item_total = tuple([item_total_l[j][i] for i in own_items]) if len(own_items) > 1 else ()
-            if sum_scores and means is not None:
-                mean = _sum_score_mean([means_l[i] for i in own_items], [negative[i][j] for i in own_items],
-                                       [observed[i] for i in own_items], declared)
+        if reported_sums:
+            own_items = direct_l[j]
+            sd = sd_l[j]
+            if len(own_items) > 1:
+                row = item_total_l[j]
+                item_total = tuple([row[i] for i in own_items])
+            if means_l is not None:
+                mean = _sum_score_mean(means_l, turned_j, own_items, observed, declared)
         if counts_l[j] == 1:  # one item: its coefficients only restate the error variance the model had to fix
             results.append(FactorReliability(name, names, "first-order", float("nan"), float("nan"), None, None, None,
                                              None, None, None, reversed_items, keying, mean, sd, item_total,
                                              against_items))
             continue
         largest = holds = None
-        if compared[j].any():  # another first-order factor to compare with
+        if compared_l[j]:  # another first-order factor to compare with
             largest, holds = largest_l[j], holds_l[j]
         part = (None if name not in shared else BifactorPart.GENERAL if name in general else BifactorPart.SPECIFIC)
         results.append(FactorReliability(name, names, "first-order", omega_l[j], omega_total_l[j],
@@ -301,8 +317,8 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     if S is not None:
         for a_pos, a in enumerate(first_order):
             for b in first_order[a_pos + 1:]:
-                if apart[a, b]:  # a general factor and one of its specific factors (the module docstring)
-                    continue
+                if apart is not None and apart[a, b]:  # a general factor and one of its specific factors (the module
+                    continue  # docstring)
                 short = [latent[f] for f in (a, b) if counts_l[f] < 2]
                 if short:
                     htmt.append(Htmt(latent[a], latent[b], None, f"{' and '.join(short)} "
@@ -336,17 +352,18 @@ def _bifactor(direct: np.ndarray, corr_lat: np.ndarray, higher: np.ndarray, obse
     return set(parts), shared
 
 
-def _sum_score_mean(means: list[float], reversed_: list[bool], names: list[str],
+def _sum_score_mean(means: list[float], reversed_: list[bool], items: list[int], observed: tuple[str, ...],
                     declared: dict[str, tuple[float, float]] | None) -> float | None:
-    """Mean of the keyed sum of items with these means (a reversed item's answers counting as minimum + maximum - x);
-    None when an item is reversed without a declared scale range."""
+    """Mean of the keyed sum of ``items`` (positions among ``observed``; ``means`` and ``reversed_`` by position), a
+    reversed item's answers counting as minimum + maximum - x; None when an item is reversed without a declared scale
+    range."""
     total = 0.0
-    for mean, turned, name in zip(means, reversed_, names):
-        if not turned:
-            total += mean
-        elif declared is not None and name in declared:
-            low, high = declared[name]
-            total += low + high - mean
+    for i in items:
+        if not reversed_[i]:
+            total += means[i]
+        elif declared is not None and observed[i] in declared:
+            low, high = declared[observed[i]]
+            total += low + high - means[i]
         else:
             return None
     return total

@@ -9,6 +9,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from cfa_tool.assessment.admissibility import solution_first
+from cfa_tool.assessment.diagnostics import case_dicts
 from cfa_tool.assessment.fit_indices import FitIndices, IndicesToRead
 from cfa_tool.assessment.modification import ModificationIndices
 from cfa_tool.assessment.normality import Normality
@@ -332,8 +333,8 @@ class GroupResult:
         """``naming``: how the fit names its rows (DataSummary.row_naming), which each case row's JSON says."""
         return {
             "normalized_residuals": plain_array(self.normalized_residuals) if self.normalized_residuals is not None else None,
-            "unusual_cases": [clean(c.to_dict(naming)) for c in self.unusual_cases],
-            "influential_cases": [clean(c.to_dict(naming)) for c in self.influential_cases],
+            "unusual_cases": case_dicts(self.unusual_cases, naming),
+            "influential_cases": case_dicts(self.influential_cases, naming),
         }
 
     def residuals_dict(self, observed: tuple[str, ...]) -> dict:
