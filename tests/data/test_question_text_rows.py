@@ -111,7 +111,7 @@ def test_a_text_file_keeps_its_line_numbers(tmp_path):
     assert any("line 2 was not read as data" in note for note in loaded.notes)
 
 
-def test_scores_file_has_no_row_of_question_texts(tmp_path):
+def test_scores_file_scores_no_row_of_question_texts(tmp_path):
     frame = _answers()
     path, model, out = tmp_path / "riders.xlsx", tmp_path / "riders.cfa", tmp_path / "scores.csv"
     _workbook(path, frame)
@@ -120,8 +120,13 @@ def test_scores_file_has_no_row_of_question_texts(tmp_path):
                            "Response ID", "--first-data-row", "3", "--output", str(out)], capture_output=True, text=True)
     assert done.returncode == 0, done.stderr
     written = pd.read_csv(out)
-    assert written["Response ID"].tolist() == frame["Response ID"].tolist()  # no row 'Response ID'
-    assert f"Scores of {N} rows" in done.stdout + done.stderr
+    # the question texts' row keeps an empty line, as a blank row does, so that line k of the scores is row k of the
+    # sheet (hostile tester s13); it is not scored and says why
+    assert written["Response ID"].tolist()[1:] == frame["Response ID"].tolist()  # no row 'Response ID'
+    first = written.iloc[0]
+    assert pd.isna(first["Response ID"]) and first["why_not_scored"] == "above the answers"
+    assert written.drop(columns=["Response ID", "why_not_scored"]).iloc[0].isna().all()
+    assert f"Scores (regression) of {N} of the {N + 1} rows" in " ".join((done.stdout + done.stderr).split())
 
 
 def test_a_first_row_of_data_that_cannot_apply(tmp_path):
