@@ -32,6 +32,7 @@ from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, holds_summary, pasted_m
 from cfa_tool import options as opt
 from cfa_tool.options import Option, option_in_both, own_keywords
 from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, check_rows_counted, printable
+from cfa_tool.input_files import DATA_FRAME
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
@@ -144,11 +145,11 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             raise OptionError(f"a first row of data ({first_data_option(names_option)}) is read from a file, and the "
                               f"data are a data frame, whose rows are all data; leave it out")
         frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
-        frame = renamed_frame(frame, renames, "<data frame>", rename_option)
-        frame, blank = drop_blank_rows(frame, "<data frame>")  # as the readers leave them out
-        renamed = (rename_note(renames, "<data frame>", rename_option),) if renames else ()
-        return with_no_answers_read(LoadedData(frame, "<data frame>", notes=renamed + blank, renamed=renames),
-                                    missing_codes, "<data frame>", text_columns, items, listed,
+        frame = renamed_frame(frame, renames, DATA_FRAME, rename_option)
+        frame, blank = drop_blank_rows(frame, DATA_FRAME)  # as the readers leave them out
+        renamed = (rename_note(renames, DATA_FRAME, rename_option),) if renames else ()
+        return with_no_answers_read(LoadedData(frame, DATA_FRAME, notes=renamed + blank, renamed=renames),
+                                    missing_codes, DATA_FRAME, text_columns, items, listed,
                                     filters)  # as a file's cells are read
     if isinstance(data, (str, Path)):
         if summary_source(data):
