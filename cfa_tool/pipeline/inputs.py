@@ -23,7 +23,7 @@ from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import (HiddenRows, LoadedData, blank_text_as_missing, drop_blank_rows,
                                    first_data_option, read_data, with_no_answers_read)
-from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame
+from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame, renamed_hint
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
                                          design_weights, refuse_shared_clusters)
@@ -1148,7 +1148,7 @@ def check_helper_columns(helpers: tuple[str, ...], frame: pd.DataFrame, source: 
     for name in helpers:
         if name not in columns:
             guess = close_names(name, columns)
-            hint = f"; did you mean '{printable(guess[0])}'?" if guess else ""
+            hint = renamed_hint(frame, name) or (f"; did you mean '{printable(guess[0])}'?" if guess else "")
             raise OptionError(f"the missing-data helper '{printable(name)}' ({Option.MISSING_HELPERS}) is not a column "
                               f"of {source}{hint}")
         if name in spec.observed_names:
