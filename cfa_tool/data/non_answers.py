@@ -29,6 +29,7 @@ from cfa_tool.language.spec import answer_key
 from cfa_tool.errors import printable
 from cfa_tool.numbers import number
 from cfa_tool.input_files import base_name
+from cfa_tool.options import Option
 
 #: phrases that say a value is not an answer (compared after :func:`_plain`): one vocabulary for labels and cells
 NON_ANSWER_PHRASES = frozenset({
@@ -203,8 +204,8 @@ class BeyondScale:
         return f"{where} ({self.scale[0]:g} to {self.scale[1]:g}), analysed as an answer: a code of no answer?"
 
     def advice(self) -> str:
-        return (f"If {self.value:g} '{printable(self.label)}' is not an answer on the scale, give --missing-codes "
-                f"{self.value:g}; if it is, nothing.")
+        return (f"If {self.value:g} '{printable(self.label)}' is not an answer on the scale, give "
+                f"{Option.MISSING_CODES.given(f'{self.value:g}')}; if it is, nothing.")
 
 
 def beyond_scale(frame: pd.DataFrame, names, value_labels: dict, rows: np.ndarray) -> tuple[BeyondScale, ...]:

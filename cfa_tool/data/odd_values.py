@@ -113,7 +113,8 @@ class OddValues:
 
     def advice(self) -> str:
         if self.kind is OddKind.MISSING_CODE:
-            return (f"If {_number(self.values[0])} means 'no answer', give --missing-codes {_number(self.values[0])} "
+            return (f"If {_number(self.values[0])} means 'no answer', give "
+                    f"{Option.MISSING_CODES.given(_number(self.values[0]))} "
                     f"(or correct those answers in the file).")
         holder = "data frame" if self.naming is RowNaming.INDEX_LABEL else "file"
         return (f"Delete {self.naming.one_row(self.rows[0])} from the {holder} (or leave it out with a row filter, "

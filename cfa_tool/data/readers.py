@@ -215,7 +215,7 @@ def sheet_of_each(sources, sheet: str | None) -> tuple[str | None, ...]:
     if not any(workbook):
         named = " and ".join(f"'{printable(str(s))}'" if isinstance(s, (str, Path)) else "a data frame" for s in sources)
         raise DataError(f"none of {named} is an Excel workbook, so a sheet ('{printable(str(sheet))}') cannot be "
-                        f"chosen; leave --sheet out")
+                        f"chosen; leave {Option.SHEET} out")
     return tuple(sheet if w else None for w in workbook)
 
 
@@ -514,11 +514,11 @@ def _sheet_note(path: Path, read: str, names: list[str], hidden: list[str], name
     others = [n for n in names if n != read]
     listed = ", ".join(f"'{printable(n)}'" + (" (hidden)" if n in hidden else "") for n in others)
     if named:
-        how = "as named with --sheet" + ("; the workbook hides this sheet" if read in hidden else "")
+        how = f"as named with {Option.SHEET}" + ("; the workbook hides this sheet" if read in hidden else "")
     elif hidden and names.index(read) > 0:
-        how = "the first sheet the workbook shows (hidden sheets are not read unless named with --sheet)"
+        how = f"the first sheet the workbook shows (hidden sheets are not read unless named with {Option.SHEET})"
     else:
-        how = "the first sheet; name another with --sheet"
+        how = f"the first sheet; name another with {Option.SHEET}"
     return f"{path}: the sheet '{printable(read)}' was analysed, {how}; the workbook also has {listed}"
 
 

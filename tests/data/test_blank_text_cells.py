@@ -165,7 +165,7 @@ def test_a_labelled_code_beyond_the_scale_is_named_first(rider_demo, rider_model
     check = cfa_tool.check(rider_model, str(path))
     first = check.problems[0].explanation
     assert "clean" in first and "'Something else'" in first and "24 cells" in first
-    assert "--missing-codes 6" in check.problems[0].advice
+    assert "missing_codes=[6]" in check.problems[0].advice  # the keyword: a Python call
 
 
 @pytest.mark.parametrize("labels, present", [

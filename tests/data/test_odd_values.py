@@ -38,7 +38,7 @@ def test_a_forgotten_code_in_a_simulated_item_is_named_with_its_rows():
     odd = found[0]
     assert odd.kind is OddKind.MISSING_CODE and odd.columns == ("x3",) and odd.values == (-99.0,)
     assert odd.rows == (5, 18, 251) and odd.answers == 3 and odd.others == (1.0, 5.0)
-    assert "--missing-codes -99" in odd.advice()
+    assert "missing_codes=[-99]" in odd.advice()  # the keyword: a Python call
 
 
 def test_codes_within_codes_and_codes_of_nines():
@@ -113,7 +113,7 @@ def test_a_failed_estimation_names_the_values_first():
         with odd_values_named(loaded):
             raise EstimationError("the estimation did not converge")
     message = str(caught.value)
-    assert message.index("-99") < message.index("--missing-codes -99") < message.index("did not converge")
+    assert message.index("-99") < message.index("missing_codes=[-99]") < message.index("did not converge")
 
 
 def test_the_columns_skipped_before_peeling_hold_nothing_to_peel():
