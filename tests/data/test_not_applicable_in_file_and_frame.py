@@ -43,3 +43,11 @@ def test_a_word_of_no_answer_is_a_caution_in_the_file_and_in_the_frame(marker, t
     assert "the file" not in cautions[1].explanation and cautions[1].advice.endswith("in a copy of the data frame.")
     assert not [w for w in from_file.warnings if "cells written as" in w]  # not also a note
     assert from_file.fit.chi_square == pytest.approx(from_frame.fit.chi_square, rel=1e-10)
+
+
+def test_the_methods_text_names_a_data_frame_as_one(tmp_path):
+    """The methods text of a data frame's fit does not speak of a data file."""
+    _, as_frame = _gappy(tmp_path, "N/A")
+    text = " ".join(methods_paragraph(cfa_tool.fit(MODEL, as_frame)).split())
+    assert "text cells of the data frame that say no answer were treated as missing ('N/A' in on_time and clean)" in text
+    assert "data file marks" not in text
