@@ -22,6 +22,10 @@ def _short(path: str | Path) -> str:
     return text if len(text) <= 200 else text[:120] + "..." + text[-60:]
 
 
+#: how messages and results name data given as a data frame from Python (LoadedData.source), not a file
+DATA_FRAME = "<data frame>"
+
+
 def base_name(source: str | Path) -> str:
     """The file's own name without its folders, as messages name a data source: the part after the last '/' or
     '\\' (a Windows path read on any system: 'C:\\survey\\riders.csv' -> 'riders.csv'); a name without folders, or a

@@ -23,6 +23,7 @@ from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.options import Option
 from cfa_tool.language.names import written_name
 from cfa_tool.numbers import number
+from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names
 
 #: the test of each operator a row filter may use (the comparisons of the filter's column with its value)
@@ -166,7 +167,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
     for f in filters:
         if f.column not in frame.columns:
             guess = close_names(f.column, [str(c) for c in frame.columns])
-            hint = f"; did you mean '{guess[0]}'?" if guess else ""
+            hint = renamed_hint(frame, f.column) or (f"; did you mean '{guess[0]}'?" if guess else "")
             raise OptionError(f"row filter '{printable(f)}': {source} has no column '{printable(f.column)}'{hint}")
         column = frame[f.column]
         labels = (value_labels or {}).get(f.column)

@@ -8,6 +8,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.labels import code_order, label_text, ordered_labels
+from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names
 from cfa_tool.data.moments import SampleMoments, sample_moments
 from cfa_tool.errors import DataError, OptionError, check_rows_counted, printable
@@ -22,7 +23,7 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
         raise OptionError(f"the group column must be given by its name (text), not {type(column).__name__}")
     if column not in frame.columns:
         guess = close_names(column, [str(c) for c in frame.columns])
-        hint = f"; did you mean '{guess[0]}'?" if guess else ""
+        hint = renamed_hint(frame, column) or (f"; did you mean '{guess[0]}'?" if guess else "")
         raise OptionError(f"{source}: there is no group column '{printable(column)}'{hint}")
     values = frame[column].dropna()
     labels = ordered_labels({_label(v) for v in values}, frame, column)

@@ -264,14 +264,14 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
                 out.append(f"{data_name}: '{x}' has the answer {v:g} ({listed(column == v)}), outside the scale "
                            f"{low:g} to {high:g} that the 'reversed' statement declares for the items of {factor}; "
                            f"so many of its answers lie outside that it is read as answered on another scale; if "
-                           f"{v:g} is a typing error or means 'no answer', give --missing-codes {v:g}")
+                           f"{v:g} is a typing error or means 'no answer', give {Option.MISSING_CODES.given(f'{v:g}')}")
             continue
         known = {float(k) for k in labels.get(x) or () if isinstance(k, (int, float))}
         if known:
             for v in sorted(set(column[answered].tolist()) - known):
                 out.append(f"{data_name}: '{x}' has the value {v:g} ({listed(column == v)}), which has no value "
                            f"label, while its other values are labelled; if it is a typing error or means 'no "
-                           f"answer', give --missing-codes {v:g} (or correct it in a copy of the file)")
+                           f"answer', give {Option.MISSING_CODES.given(f'{v:g}')} (or correct it in a copy of the file)")
     return out
 
 

@@ -24,12 +24,12 @@ def missing_codes_note(source: str | Path, codes, read_as_none: list[tuple[str, 
     given = ", ".join(f"{c:g}" if isinstance(c, (int, float)) else printable(str(c)) for c in codes)
     name = base_name(source)
     if not read_as_none:
-        return f"{name}: no cell {where or 'of numbers'} holds any of the codes given with --missing-codes ({given})"
+        return f"{name}: no cell {where or 'of numbers'} holds any of the codes given with {Option.MISSING_CODES} ({given})"
     total = sum(n for _, n in read_as_none)
     shown = ", ".join(f"{printable(str(column))} {n}" for column, n in read_as_none[:NAMED_COLUMNS]) + (
         f" and {len(read_as_none) - NAMED_COLUMNS} more column{'s' if len(read_as_none) - NAMED_COLUMNS != 1 else ''}" if len(read_as_none) > NAMED_COLUMNS else "")
     return (f"{name}: {total} {'cell' if total == 1 else 'cells'} {where + ' ' if where else ''}holding a code given "
-            f"with --missing-codes ({given}) {'was' if total == 1 else 'were'} read as no answer ({shown})")
+            f"with {Option.MISSING_CODES} ({given}) {'was' if total == 1 else 'were'} read as no answer ({shown})")
 
 
 def apply_missing_codes(frame: pd.DataFrame, codes, source: str | Path, items: Collection[str] | None = None,
@@ -80,5 +80,5 @@ def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int]], filt
     open_ = [(column, code) for column, code, _ in kept if not _left_out(column, code, filters)]
     advice = (f"; to leave those rows out, give a row filter such as "
               f"{Option.KEEP.given(f'{printable(str(open_[0][0]))} != {open_[0][1]:g}')}" if open_ else "")
-    return (f"{base_name(source)}: --missing-codes applies to the model's items; other columns keep such a value as "
+    return (f"{base_name(source)}: {Option.MISSING_CODES} applies to the model's items; other columns keep such a value as "
             f"it is ({shown}{more}){advice}")

@@ -28,7 +28,8 @@ import pandas as pd
 from cfa_tool.language.spec import answer_key
 from cfa_tool.errors import printable
 from cfa_tool.numbers import number
-from cfa_tool.input_files import base_name
+from cfa_tool.input_files import DATA_FRAME, base_name
+from cfa_tool.options import Option
 
 #: phrases that say a value is not an answer (compared after :func:`_plain`): one vocabulary for labels and cells
 NON_ANSWER_PHRASES = frozenset({
@@ -203,8 +204,8 @@ class BeyondScale:
         return f"{where} ({self.scale[0]:g} to {self.scale[1]:g}), analysed as an answer: a code of no answer?"
 
     def advice(self) -> str:
-        return (f"If {self.value:g} '{printable(self.label)}' is not an answer on the scale, give --missing-codes "
-                f"{self.value:g}; if it is, nothing.")
+        return (f"If {self.value:g} '{printable(self.label)}' is not an answer on the scale, give "
+                f"{Option.MISSING_CODES.given(f'{self.value:g}')}; if it is, nothing.")
 
 
 def beyond_scale(frame: pd.DataFrame, names, value_labels: dict, rows: np.ndarray) -> tuple[BeyondScale, ...]:
@@ -325,11 +326,12 @@ def _brief(names: list[str], noun: str) -> str:
     return shown[0] if len(shown) == 1 else f"{', '.join(shown[:-1])} and {shown[-1]}"
 
 
-def non_answer_clause(found: tuple[NonAnswer, ...], items=None) -> str:
+def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | None = None) -> str:
     """The values of the model's ``items`` (None: of every column in ``found``) that the file marks as no answer and
     that were read as missing, in a clause of a methods paragraph: each value (with its label) and the items holding
     it, briefly: values the data file marks as no answer were treated as missing (8 'refused' in q1, q2, q3 and 2
-    more items; 'don't know' in q4); '' when there are none."""
+    more items; 'don't know' in q4); '' when there are none.  ``source``: the data's source, whose words name a data
+    frame as one ('the data frame holds')."""
     mine = [f for f in found if items is None or f.column in set(items)]
     if not mine:
         return ""
@@ -338,6 +340,8 @@ def non_answer_clause(found: tuple[NonAnswer, ...], items=None) -> str:
         columns.setdefault(f.shown(), []).append(printable(f.column))
     values = [f"{value} in {_brief(list(dict.fromkeys(names)), 'item')}" for value, names in columns.items()]
     shown = "; ".join(values[:BRIEF]) + (f"; and {_more(len(values) - BRIEF, 'value')}" if len(values) > BRIEF else "")
+    if source == DATA_FRAME:
+        return f"text cells of the data frame that say no answer were treated as missing ({shown})"
     return f"values the data file marks as no answer were treated as missing ({shown})"
 
 
@@ -348,7 +352,8 @@ def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items=None) ->
     mine = [f for f in found if items is None or f.column in set(items)]
     if not mine:
         return None
-    name = base_name(source)
+    frame = source == DATA_FRAME
+    name = "the data frame" if frame else base_name(source)
     by_value: dict[tuple, list[NonAnswer]] = {}
     for f in mine:
         by_value.setdefault((f.kind, f.value, f.label if f.kind is NonAnswerKind.LABELLED else None), []).append(f)
@@ -363,11 +368,12 @@ def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items=None) ->
     how = " and ".join(w for k, w in ((NonAnswerKind.LABELLED, "labels as no answer"),
                                       (NonAnswerKind.DECLARED, "declares as missing values"),
                                       (NonAnswerKind.WRITTEN, "writes as no answer")) if k in kinds)
-    caution = (f"{total} cell{'s' if total != 1 else ''} of the items in {name} hold values that the file {how}, "
+    held = "text that says no answer" if frame else f"values that the file {how}"
+    caution = (f"{total} cell{'s' if total != 1 else ''} of the items in {name} hold {held}, "
                f"read as missing, not as answers: {'; '.join(parts)}.")
     undo = "; ".join(w for k, w in ((NonAnswerKind.LABELLED, "give its code another value label"),
                                      (NonAnswerKind.DECLARED, "remove its declaration as a missing value"),
                                      (NonAnswerKind.WRITTEN, "write the answer's number in the cell")) if k in kinds)
     advice = (f"Nothing, if they are not answers: they are left out as empty cells are. To analyse one as an "
-              f"answer, {undo}, in a copy of the file.")
+              f"answer, {undo}, in a copy of the {'data frame' if frame else 'file'}.")
     return caution, advice

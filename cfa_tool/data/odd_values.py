@@ -13,6 +13,12 @@ normal data, the bundled demo data and Holzinger & Swineford 1939):
   more than ten times that range beyond them (a typing error such as 55 for 5 on a 1 to 5 scale); a single
   value only a few ranges beyond the others is left alone, since skewed measures (reaction times, incomes)
   give such values;
+* **outside the answer scale**: in an item answered on a scale of whole numbers (the other answers fill a run of
+  at most :data:`MAX_SCALE_POINTS` consecutive whole numbers, such as 1 to 5), a few cells (together at most
+  :data:`FEW_SHARE` of the column's answers) that lie at least two steps beyond the run's end (12 or 7 beside
+  1 to 5; a 6 might be the scale's own top answer), when the scale's end next to them is a common answer (at
+  least :data:`FEW_SHARE` of the answers): a scale that ends there, not a thinning tail of counts.  Measures with
+  many different values (reaction times, incomes, counts of many sizes) form no such run and are never judged so;
 * **a row of sums or means**: a row whose values equal, in every item column it answers (three or more), the
   sums (to within 0.5) or the means (to within 0.005, two decimals) of the other rows' answers.
 
@@ -40,6 +46,8 @@ MIN_OTHERS = 10  # answers a judgement needs besides the value judged
 FAR_RANGES = 2.0  # a row with values further beyond the others than this many times their range in half its columns
 FAR_ALONE = 10.0  # ... or with one value this many ranges beyond them
 SHOWN = 3  # columns, values and row numbers a caution names before 'and N more'
+MAX_SCALE_POINTS = 11  # the answers of an answer scale: at most 0 to 10
+FEW_SHARE = 0.02  # values outside a scale: at most this share of the answers (at least one cell); its end: at least it
 MEAN_TOLERANCE = 0.005  # means written to two decimals
 SUM_TOLERANCE = 0.5  # sums written as whole numbers
 
@@ -48,6 +56,7 @@ class OddKind(enum.Enum):
     """Why values look like no answers; ``value`` is the word the JSON uses."""
 
     MISSING_CODE = "missing-value code"
+    OUTSIDE_SCALE = "outside the answer scale"
     FAR_BEYOND = "far beyond the other rows"
     SUMS_ROW = "row of sums"
     MEANS_ROW = "row of means"
@@ -55,8 +64,8 @@ class OddKind(enum.Enum):
 
 @dataclass(frozen=True)
 class OddValues:
-    """Values of one kind that look like no answers: a code (``kind`` MISSING_CODE, one ``value`` in several
-    columns) or one row (the other kinds: ``values`` per column).  ``rows`` are row numbers (as the file
+    """Values of one kind that look like no answers: a code or a value outside the answer scale (``kind``
+    MISSING_CODE, OUTSIDE_SCALE: one ``value`` in several columns) or one row (the other kinds: ``values`` per column).  ``rows`` are row numbers (as the file
     numbers them, data.moments.row_numbers; a data frame's index labels, as ``naming`` says); ``answers`` counts the
     cells."""
 
@@ -85,6 +94,14 @@ class OddValues:
                     f"{_listed(self.rows)}), "
                     f"far outside the other answers ({_number(low)} to {_number(high)}): a missing-value code read "
                     f"as an answer?")
+        if self.kind is OddKind.OUTSIDE_SCALE:
+            value = _number(self.values[0])
+            where = (f"The item column {printable(self.columns[0])} of {name} holds" if len(self.columns) == 1 else
+                     f"{len(self.columns)} item columns of {name} ({_listed(self.columns)}) hold")
+            return (f"{where} the value {value} ({self.answers} answer{'s' if self.answers != 1 else ''} in "
+                    f"{self.naming.of(len(self.rows))} {_listed(self.rows)}), outside the answer "
+                    f"scale of the other answers ({_number(low)} to {_number(high)}), analysed as an answer: a typing "
+                    f"error?")
         shown = ", ".join(f"{printable(c)} {_number(v)}" for c, v in zip(self.columns[:SHOWN], self.values[:SHOWN]))
         more = f" and {len(self.columns) - SHOWN} more" if len(self.columns) > SHOWN else ""
         what = {OddKind.FAR_BEYOND: f"values far beyond every other row's answers ({_number(low)} to {_number(high)})",
@@ -106,6 +123,10 @@ class OddValues:
             return (f"the value {_number(self.values[0])} in {_listed(written_name(c) for c in self.columns)} "
                     f"({self.answers} answer{'s' if self.answers != 1 else ''}), far outside the other answers "
                     f"({_number(low)} to {_number(high)}): perhaps a missing-value code")
+        if self.kind is OddKind.OUTSIDE_SCALE:
+            return (f"the value {_number(self.values[0])} in {_listed(written_name(c) for c in self.columns)} "
+                    f"({self.answers} answer{'s' if self.answers != 1 else ''}), outside the answer scale of the other "
+                    f"answers ({_number(low)} to {_number(high)}): perhaps a typing error")
         if self.kind is OddKind.FAR_BEYOND:
             return (f"{self.naming.one_row(self.rows[0])}, with values far beyond every other row's answers ({_number(low)} to "
                     f"{_number(high)}) in {len(self.columns)} item column{'s' if len(self.columns) != 1 else ''}: "
@@ -116,8 +137,14 @@ class OddValues:
 
     def advice(self) -> str:
         if self.kind is OddKind.MISSING_CODE:
-            return (f"If {_number(self.values[0])} means 'no answer', give --missing-codes {_number(self.values[0])} "
+            return (f"If {_number(self.values[0])} means 'no answer', give "
+                    f"{Option.MISSING_CODES.given(_number(self.values[0]))} "
                     f"(or correct those answers in the file).")
+        if self.kind is OddKind.OUTSIDE_SCALE:
+            holder = "data frame" if self.naming is RowNaming.INDEX_LABEL else "file"
+            return (f"Check those answers: correct a typing error in a copy of the {holder}, or, if "
+                    f"{_number(self.values[0])} means 'no answer', give "
+                    f"{Option.MISSING_CODES.given(_number(self.values[0]))}.")
         holder = "data frame" if self.naming is RowNaming.INDEX_LABEL else "file"
         return (f"Delete {self.naming.one_row(self.rows[0])} from the {holder} (or leave it out with a row filter, "
                 f"{Option.KEEP}) if it holds no one's answers; otherwise check those answers.")
@@ -151,10 +178,13 @@ def _odd_values(frame: pd.DataFrame, columns, row_numbers, X) -> tuple[OddValues
         if not names:
             return ()
         X = frame[names].to_numpy(dtype=float, na_value=np.nan)  # infinite values are judged by no rule
-    flagged = [(j, value, code, ranges) for j in _may_stand_out(X) for value, code, ranges in _peeled(X[:, j])]
-    if not flagged:  # the common case: only the rows-of-sums-or-means rule to apply, and no row far beyond
+    standing, apart = _may_stand_out(X)
+    flagged = [(j, value, code, ranges) for j in standing for value, code, ranges in _peeled(X[:, j])]
+    if not flagged:
+        outside = _outside_scales(X, apart, set(), names, numbers)  # the common case: only the rows-of-sums-or-means rule to apply, and no row far beyond
         summary = _summary_rows(X, X)
-        return tuple(_row_findings(X, X, X, np.zeros(X.shape, dtype=bool), summary, names, numbers)) if summary else ()
+        return outside + (tuple(_row_findings(X, X, X, np.zeros(X.shape, dtype=bool), summary, names, numbers))
+                          if summary else ())
     codes: dict[float, list[int]] = {}  # code -> columns
     code_cells = np.zeros(X.shape, dtype=bool)
     far = np.zeros(X.shape, dtype=bool)
@@ -178,7 +208,9 @@ def _odd_values(frame: pd.DataFrame, columns, row_numbers, X) -> tuple[OddValues
                                tuple(int(numbers[r]) for r in rows), int(cells.sum()), _others(X[:, js][~cells])))
     clean = np.where(code_cells, np.nan, X)
     base = np.where(far, np.nan, clean)
-    return tuple(found) + tuple(_row_findings(X, clean, base, far, _summary_rows(clean, base), names, numbers))
+    named = {(j, float(v)) for j in range(X.shape[1]) for v in np.unique(X[code_cells[:, j] | far[:, j], j])}
+    outside = _outside_scales(X, apart, named, names, numbers)
+    return tuple(found) + outside + tuple(_row_findings(X, clean, base, far, _summary_rows(clean, base), names, numbers))
 
 
 def _row_findings(X: np.ndarray, clean: np.ndarray, base: np.ndarray, far: np.ndarray, summary: dict[int, OddKind],
@@ -194,6 +226,61 @@ def _row_findings(X: np.ndarray, clean: np.ndarray, base: np.ndarray, far: np.nd
     return found
 
 
+def _outside_scales(X: np.ndarray, apart: np.ndarray, named: set, names: list[str],
+                    numbers: np.ndarray) -> tuple[OddValues, ...]:
+    """The values outside the answer scale of their item (see the module's rules), one finding for each value and
+    scale, naming every column that holds it and its rows; values the other rules name (``named``: (column,
+    value)) are left to them.  Only the columns ``apart`` are looked at (:func:`_may_stand_out`: an extreme at
+    least two steps beyond the next value), so that ordinary data cost nothing more."""
+    found: dict[tuple[float, float, float], list[tuple[int, np.ndarray]]] = {}
+    for j in apart:
+        for value, low, high in _outside_scale(X[:, j]):
+            if (j, value) not in named:
+                found.setdefault((value, low, high), []).append((j, X[:, j] == value))
+    out = []
+    for (value, low, high), held in sorted(found.items(), key=lambda kv: -sum(int(c.sum()) for _, c in kv[1])):
+        cells = np.column_stack([c for _, c in held])
+        rows = np.flatnonzero(cells.any(axis=1))
+        out.append(OddValues(OddKind.OUTSIDE_SCALE, tuple(names[j] for j, _ in held), (float(value),) * len(held),
+                             tuple(int(numbers[r]) for r in rows), int(cells.sum()), (low, high)))
+    return tuple(out)
+
+
+def _outside_scale(x: np.ndarray) -> list[tuple[float, float, float]]:
+    """(value, the scale's lowest and highest answer) of each value of one column outside its answer scale: the
+    longest run of consecutive whole numbers among its values (at most MAX_SCALE_POINTS; the one with more answers
+    of two as long), holding all but at most FEW_SHARE of the answers; a value at least two steps beyond its end,
+    that end given in at least FEW_SHARE of the answers."""
+    x = x[np.isfinite(x)]
+    few = max(1.0, FEW_SHARE * len(x))
+    values, counts = np.unique(x, return_counts=True)
+    if len(values) > MAX_SCALE_POINTS + few:  # a measure of many values (the common case of numbers apart)
+        return []
+    whole = values == np.round(values)
+    best = None  # (length, answers, first, last) of the longest run
+    start = 0
+    for k in range(1, len(values) + 1):
+        if k == len(values) or not (whole[k] and whole[k - 1] and values[k] - values[k - 1] == 1):
+            if whole[start]:
+                run = (k - start, int(counts[start:k].sum()), start, k - 1)
+                if best is None or run[:2] > best[:2]:
+                    best = run
+            start = k
+    if best is None or not 2 <= best[0] <= MAX_SCALE_POINTS:
+        return []
+    _, inside, first, last = best
+    if len(x) - inside > few or inside < MIN_OTHERS:
+        return []
+    low, high = float(values[first]), float(values[last])
+    out = []
+    for k, value in enumerate(values):
+        end = first if value < low else last if value > high else None
+        if end is None or abs(value - values[end]) < 2 or counts[end] < max(2.0, FEW_SHARE * len(x)):
+            continue
+        out.append((float(value), low, high))
+    return out
+
+
 def code_like(value: float) -> bool:
     """A whole number that is negative or written with nines only (9, 99, 999, -9, -99, ...): the values data
     collection programs commonly use for 'no answer'."""
@@ -203,11 +290,12 @@ def code_like(value: float) -> bool:
     return value < 0 or set(digits) == {"9"}
 
 
-def _may_stand_out(X: np.ndarray) -> np.ndarray:
+def _may_stand_out(X: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """The columns in which :func:`_peeled` can find a value, all columns at once: its first judgement at the top
     needs the highest answer at least the range of the others beyond them (highest - next <= next - lowest fails
     it), and at the bottom likewise; a column failing both has nothing to peel.  Comparisons with NaN keep a
-    column (``_peeled`` judges it)."""
+    column (``_peeled`` judges it).  Second, the columns in which :func:`_outside_scale` can find a value: an
+    extreme at least two steps beyond the next value."""
     finite = np.isfinite(X)  # the extremes over masks (no masked copy of the data: on a thousand rows its
     bottom, top = answer_extremes(X, finite)  # allocation costs more than the comparisons)
     if finite.all():  # no gaps (the common case): fewer masks
@@ -217,7 +305,8 @@ def _may_stand_out(X: np.ndarray) -> np.ndarray:
         next_top = X.max(axis=0, initial=-np.inf, where=finite & (X < top))
         next_bottom = X.min(axis=0, initial=np.inf, where=finite & (X > bottom))
     quiet = (top - next_top < next_top - bottom) & (next_bottom - bottom < top - next_bottom)
-    return np.flatnonzero(~quiet)
+    apart = (top - next_top >= 2) | (next_bottom - bottom >= 2)
+    return np.flatnonzero(~quiet), np.flatnonzero(apart)
 
 
 def _peeled(x: np.ndarray) -> list[tuple[float, bool, float]]:

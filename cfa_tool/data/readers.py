@@ -30,7 +30,7 @@ from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, sa
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
 from cfa_tool.errors import DataError, printable
 from cfa_tool.options import Option
-from cfa_tool.input_files import check_input_path, input_bytes, line_count, utf16_text
+from cfa_tool.input_files import base_name, check_input_path, input_bytes, line_count, utf16_text
 from cfa_tool.numbers import number
 
 if TYPE_CHECKING:
@@ -139,9 +139,11 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         names: list[pd.Series] = []
         sheets: list[str] = []
         hidden: list = []
+        written: list = []  # item cells written as a word of no answer among the markers ('N/A')
         loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden, names_in_file(renames, items), names_row,
-                                        names_option, _listed_in_file(renames, listed), first_data_row), str(path),
-                            notes=tuple(notes), row_names=names[0] if names else None, cautions=tuple(hidden),
+                                        names_option, _listed_in_file(renames, listed), first_data_row, written),
+                            str(path), notes=tuple(notes), row_names=names[0] if names else None,
+                            cautions=tuple(hidden), non_answers=tuple(written),
                             sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else ())
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _read_labelled(path)
@@ -151,11 +153,14 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         notes = []
         names = []
         reading: list[TextReading] = []
+        unread: list = []
+        written = []
         loaded = LoadedData(read_table(path, notes, names, names_in_file(renames, text_columns),
                                        names_in_file(renames, items), names_row, reading, names_option,
-                                       _listed_in_file(renames, listed), first_data_row), str(path),
+                                       _listed_in_file(renames, listed), first_data_row, unread, written), str(path),
                             notes=tuple(notes), row_names=names[0] if names else None,
-                            reading=reading[0] if reading else None)
+                            reading=reading[0] if reading else None, cautions=tuple(unread),
+                            non_answers=tuple(written))
         if loaded.reading is not None and not loaded.reading.plain():  # said when it is not plain UTF-8 with commas
             loaded = replace(loaded, notes=(f"{path}: {loaded.reading.words()}",) + loaded.notes)
     loaded = _renamed(_composed_names(loaded), renames, renames_option)
@@ -215,7 +220,7 @@ def sheet_of_each(sources, sheet: str | None) -> tuple[str | None, ...]:
     if not any(workbook):
         named = " and ".join(f"'{printable(str(s))}'" if isinstance(s, (str, Path)) else "a data frame" for s in sources)
         raise DataError(f"none of {named} is an Excel workbook, so a sheet ('{printable(str(sheet))}') cannot be "
-                        f"chosen; leave --sheet out")
+                        f"chosen; leave {Option.SHEET} out")
     return tuple(sheet if w else None for w in workbook)
 
 
@@ -328,6 +333,7 @@ def _renamed(loaded: LoadedData, renames: tuple[ColumnRename, ...], option: Opti
     frame = renamed_frame(loaded.frame, renames, loaded.source, option, (SHEET_COLUMNS, MARKED, SPELLINGS))
     names = {r.old: r.new for r in renames}
     return replace(loaded, frame=frame, renamed=renames,
+                   non_answers=tuple(replace(f, column=names.get(f.column, f.column)) for f in loaded.non_answers),
                    variable_labels={names.get(k, k): v for k, v in loaded.variable_labels.items()},
                    value_labels={names.get(k, k): v for k, v in loaded.value_labels.items()},
                    notes=loaded.notes + (rename_note(renames, loaded.source, option),))
@@ -336,7 +342,7 @@ def _renamed(loaded: LoadedData, renames: tuple[ColumnRename, ...], option: Opti
 def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list | None = None,
                 sheets_out: list | None = None, hidden_out: list | None = None, items=None,
                 names_row: int | None = None, names_option: Option = Option.NAMES_ROW, listed=None,
-                first_data_row: int | None = None) -> pd.DataFrame:
+                first_data_row: int | None = None, written_out: list | None = None) -> pd.DataFrame:
     try:
         import openpyxl
         from openpyxl.utils import get_column_letter
@@ -388,8 +394,10 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
         first += 1
         rows = rows[1:]
     data_start = first + 2  # the sheet's row of the first row of data
+    between: list[tuple[int, tuple]] = []  # the rows a first row of data leaves unread, with their sheet rows
     if first_data_row is not None:
         data_start = _first_data_start(first_data_row, first + 1, len(rows) + first, where, "row", names_option, notes)
+        between = list(enumerate(rows[1:data_start - first - 1], start=first + 2))
         rows = rows[:1] + rows[data_start - first - 1:]
     merged = [str(rng) for rng in ws.merged_cells.ranges if rng.min_row == first + 1]
     if merged:
@@ -428,13 +436,23 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     if not body:
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
     marked: dict[int, dict[str, int]] = {}  # column position -> {marker: cells}, counted once
-    for r in body:
+    marked_rows: dict[int, dict[str, list[int]]] = {}  # column position -> {marker: sheet rows}
+    for number, r in zip(kept, body):
         for k, v in enumerate(r):
             if isinstance(v, str) and v.strip() in _MARKER_SET:
                 counted = marked.setdefault(k, {})
                 counted[v.strip()] = counted.get(v.strip(), 0) + 1
+                marked_rows.setdefault(k, {}).setdefault(v.strip(), []).append(number)
                 r[k] = None
-    _say_markers(_marker_totals(marked.values()), where, notes)
+    in_note = dict(marked)
+    if written_out is not None:
+        chosen = _marker_items(header, items)
+        for k, by_marker in marked_rows.items():
+            cells = pd.Series([m for m, rows in by_marker.items() for _ in rows],
+                              index=file_rows_index([r for rows in by_marker.values() for r in rows]), dtype=object)
+            said = _words_of_no_answer(header[k], cells, chosen, written_out)
+            in_note[k] = {m: n for m, n in marked[k].items() if m not in said}
+    _say_markers(_marker_totals(in_note.values()), where, notes)
     if any(v is None for r in body for v in r):
         _check_uncomputed_formulas(path, ws.title, data_start - 2)
     frame = pd.DataFrame(body, columns=header, index=file_rows_index(kept))
@@ -443,6 +461,10 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
         frame.attrs[MARKED] = {header[k]: counted for k, counted in marked.items()}
     _check_header_rows(frame, where, False, items=items, header_row=first + 1, names_option=names_option,
                        listed=listed)
+    unread = _skipped_answers(frame, [(k, list(r[skipped:skipped + width])) for k, r in between], items, (), False,
+                              where, "row", data_start, first_data_option(names_option)) if between else None
+    if unread is not None and hidden_out is not None:
+        hidden_out.append(unread)
     if row_names:
         frame = _split_row_names(frame, names_out)
         notes.append(f"{path} (sheet '{ws.title}'): the first column has no name in the header and was read as row "
@@ -540,6 +562,93 @@ class OtherSheets:
         return {"sheet_read": self.read, "other_sheets_with_items": list(self.sheets)}
 
 
+SHOWN_ROWS = 5  # rows a caution lists before 'and N more'
+
+
+@dataclass(frozen=True)
+class SkippedAnswers:
+    """Rows that a first row of data (--first-data-row) left unread though they look like the rows of answers below
+    them (a mistyped row number): named first, since they change what is analysed.  ``rows``: their rows (of a
+    sheet) or lines (of a text file); ``start``: the row where the answers seem to start (the first of them, when
+    every row from it to ``first_data_row`` looks so), else None."""
+
+    where: str  # the file (and sheet) as messages name it
+    word: str  # 'row' (a sheet) or 'line' (a text file)
+    rows: tuple[int, ...]
+    first_data_row: int
+    option: Option
+    start: int | None
+
+    def caution(self, source: str) -> str:
+        several = len(self.rows) > 1
+        first, last = self.rows[0], self.rows[-1]
+        shown = (f"{self.word} {first}" if not several else f"{self.word}s {first}-{last}"
+                 if last - first == len(self.rows) - 1 else
+                 f"{self.word}s " + ", ".join(str(r) for r in self.rows[:SHOWN_ROWS])
+                 + (f" and {len(self.rows) - SHOWN_ROWS} more" if len(self.rows) > SHOWN_ROWS else ""))
+        return (f"{base_name(self.where)}: {shown}, left unread by {self.option.given(self.first_data_row)}, "
+                f"{'hold' if several else 'holds'} answers like the rows read (in every item column that "
+                f"{'they fill' if several else 'it fills'}, a number or an answer the other rows give), so "
+                f"{len(self.rows)} {'rows' if several else 'row'} of answers {'are' if several else 'is'} not analysed.")
+
+    def advice(self) -> str:
+        if self.start is not None:
+            return (f"If the answers start at {self.word} {self.start}, give "
+                    f"{self.option.given(self.start)}; if those rows are rightly left out, nothing.")
+        return (f"Give the {self.word} where the answers start with {self.option}; if those rows are rightly left "
+                f"out, nothing.")
+
+
+def _skipped_answers(frame: pd.DataFrame, between: list[tuple[int, list]], items, text_columns, decimal_comma: bool,
+                     where: str, word: str, first_data_row: int, option: Option) -> SkippedAnswers | None:
+    """The rows ``between`` ((row, cells aligned with ``frame``'s columns)), which a first row of data left unread,
+    that look like the rows of answers read (``frame``): in every item column (``items``; None: every column but
+    ``text_columns``) that holds answers (numbers, or a few words each given several times) and that the row fills,
+    a number or one of the column's answers (or a word that says no answer), in two such columns at least (one when
+    there is only one).  Rows of question texts or import ids hold text there, and are skipped quietly."""
+    if not between:
+        return None
+    wanted = None if items is None else {str(x) for x in items}
+    columns: list[tuple[int, frozenset | None]] = []  # position, the column's answers (None: numbers)
+    for position, name in enumerate(frame.columns):
+        if not str(name) or name in text_columns or (wanted is not None and str(name) not in wanted):
+            continue
+        column = frame.iloc[:, position]
+        if column.dtype.kind in "iuf":
+            columns.append((position, None))
+        elif _text_dtype(column):
+            cells = [v.strip() for v in column.dropna().tolist() if isinstance(v, str) and v.strip()]
+            seen = frozenset(cells)
+            if cells and len(seen) <= MAX_ANSWER_WORDS and len(cells) >= 2 * len(seen):
+                columns.append((position, seen))
+    if not columns:
+        return None
+
+    def filled(v) -> bool:
+        return v is not None and not (isinstance(v, float) and np.isnan(v)) and not (
+            isinstance(v, str) and (not v.strip() or v.strip() in _MARKER_SET))
+
+    def answer(v, words) -> bool:
+        if isinstance(v, str) and says_no_answer(v):
+            return True
+        if words is None:
+            return (isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, (bool, np.bool_))) or (
+                isinstance(v, str) and number(v, decimal_comma) is not None)
+        return isinstance(v, str) and v.strip() in words
+
+    found = []
+    for row, cells in between:
+        held = [(cells[p] if p < len(cells) else None, words) for p, words in columns]
+        given = [(v, words) for v, words in held if filled(v)]
+        if len(given) >= min(2, len(columns)) and all(answer(v, words) for v, words in given):
+            found.append(row)
+    if not found:
+        return None
+    numbers = [row for row, _ in between]
+    start = found[0] if numbers[numbers.index(found[0]):] == found else None
+    return SkippedAnswers(where, word, tuple(found), first_data_row, option, start)
+
+
 def _filter_kept(ws, header: list, skipped: int) -> str | None:
     """The --keep filter equal to a sheet's filter when it keeps one value of one column ('district == \'north\''),
     else None."""
@@ -565,11 +674,11 @@ def _sheet_note(path: Path, read: str, names: list[str], hidden: list[str], name
     others = [n for n in names if n != read]
     listed = ", ".join(f"'{printable(n)}'" + (" (hidden)" if n in hidden else "") for n in others)
     if named:
-        how = "as named with --sheet" + ("; the workbook hides this sheet" if read in hidden else "")
+        how = f"as named with {Option.SHEET}" + ("; the workbook hides this sheet" if read in hidden else "")
     elif hidden and names.index(read) > 0:
-        how = "the first sheet the workbook shows (hidden sheets are not read unless named with --sheet)"
+        how = f"the first sheet the workbook shows (hidden sheets are not read unless named with {Option.SHEET})"
     else:
-        how = "the first sheet; name another with --sheet"
+        how = f"the first sheet; name another with {Option.SHEET}"
     return f"{path}: the sheet '{printable(read)}' was analysed, {how}; the workbook also has {listed}"
 
 
@@ -808,14 +917,17 @@ def _shown_delimiter(d: str) -> str:
 def read_table(path: str | Path, notes: list[str] | None = None, row_names: list | None = None,
                text_columns: tuple[str, ...] = (), items=None, names_row: int | None = None,
                reading: list | None = None, names_option: Option = Option.NAMES_ROW, listed=None,
-               first_data_row: int | None = None) -> pd.DataFrame:
+               first_data_row: int | None = None, cautions: list | None = None,
+               written: list | None = None) -> pd.DataFrame:
     """A delimited text file as a DataFrame, its rows indexed by their lines (data.moments.file_rows_index).
     ``notes`` receives what was done to read it that the report should mention (empty fields dropped at the ends
     of rows, a row-name column); ``row_names`` receives the row-name column's values (a Series of text) when the
     file has one; ``names_row``: the line of the column names (the lines above it are not read), given by
     ``names_option``; ``reading``
     receives how the text was read (:class:`TextReading`); ``first_data_row``: the line where the rows of data start,
-    the lines between it and the column names not read."""
+    the lines between it and the column names not read; ``cautions`` receives those lines when they look like the
+    rows of answers below them (:class:`SkippedAnswers`); ``written`` receives the cells of the item columns written
+    as a word of no answer among the markers ('N/A'; :func:`_marker_items`), as data.non_answers.NonAnswer."""
     path = Path(path)
     raw = input_bytes(path, "data file", DataError, MAX_TEXT_BYTES)
     if not raw.strip():
@@ -836,8 +948,9 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
         if notes is not None:
             notes.append(_names_row_note(str(path), start, "line", names_option))
     header_line, header = first
+    between: list[tuple[int, list[str]]] = []  # the lines a first row of data leaves unread
     if first_data_row is not None:
-        text = _skip_to_data(text, delimiter, header_line, first_data_row, str(path), names_option, notes)
+        text = _skip_to_data(text, delimiter, header_line, first_data_row, str(path), names_option, notes, between)
     header = [h.strip() for h in header]
     trailing = 0
     while len(header) > 1 and not header[-1]:  # a delimiter at the end of the header line
@@ -883,11 +996,15 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     frame = blank_text_as_missing(frame, text_columns, MISSING_MARKERS, decimal == ",")  # 'NA ' is 'NA'
     raw = _RawCells(body, delimiter, widest, len(header), frame.index)
     _check_header_rows(frame, str(path), decimal == ",", text_columns, items, header_line, names_option, listed)
+    unread = _skipped_answers(frame, between, items, text_columns, decimal == ",", str(path), "line",
+                              int(first_data_row), first_data_option(names_option)) if between else None
+    if unread is not None and cautions is not None:
+        cautions.append(unread)
     if decimal == ",":
         _check_dotted_thousands(frame, raw, header, path, notes)
         _check_decimal_points(frame, str(path), text_columns)
     _keep_number_spellings(frame, raw)
-    _note_missing_markers(raw, header, path, notes, frame)
+    _note_missing_markers(raw, header, path, notes, frame, _marker_items(header, items, text_columns), written)
     empty = widest - len(header)
     if empty and notes is not None:
         notes.append(f"{path}: empty fields at the end of the lines (a delimiter after the last value) were ignored")
@@ -945,11 +1062,15 @@ def _skipped_note(where: str, word: str, names_row: int, skipped: int, first_dat
 
 
 def _skip_to_data(text: str, delimiter: str, header_line: int, first_data_row, where: str, names_option: Option,
-                  notes: list[str] | None) -> str:
+                  notes: list[str] | None, between: list | None = None) -> str:
     """``text`` with the lines between the header (on ``header_line``) and ``first_data_row`` left empty, so that
-    they are not read and every other line keeps its number; an error when no record starts on that line."""
+    they are not read and every other line keeps its number; an error when no record starts on that line.
+    ``between`` receives the records left unread: (line, fields)."""
     start = _first_data_start(first_data_row, header_line, line_count(text), where, "line", names_option, None)
-    after = [line for line, _ in _records(text, delimiter, delimiters_only=True) if line > header_line]
+    records = [(line, fields) for line, fields in _records(text, delimiter, delimiters_only=True) if line > header_line]
+    after = [line for line, _ in records]
+    if between is not None:
+        between.extend((line, fields) for line, fields in records if line < start)
     if start not in after:
         raise DataError(f"{where}: line {start} ({first_data_option(names_option).given(start)}) starts no row of "
                         f"data (it is empty, or inside a quoted field of the line above)")
@@ -1173,22 +1294,55 @@ _MARKER = re.compile(r"(?:^|[,;\t|])\s*\"?(?:" + "|".join(map(re.escape, MISSING
 
 
 def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list[str] | None,
-                          frame: pd.DataFrame | None = None) -> None:
+                          frame: pd.DataFrame | None = None, items: frozenset = frozenset(),
+                          written: list | None = None) -> None:
     """A note naming the cells written as a marker of no answer ('.', 'NA', ...), which are read as empty cells: the
     tool's messages ask for empty cells, so a file of markers should say how it was read (new-user trial); each
-    column's markers kept in ``frame.attrs`` (:data:`MARKED`)."""
+    column's markers kept in ``frame.attrs`` (:data:`MARKED`).  In the item columns ``items``, the markers that are
+    words of no answer ('N/A') go to ``written`` instead (:func:`_words_of_no_answer`)."""
     if notes is None or not _MARKER.search(raw.body):
         return
     cells = raw.frame()
     marked = {}  # column -> {marker: cells}, counted once for the note and the column's record
+    in_note = {}
     for k, name in enumerate(header):
         stripped = cells.iloc[:, k].str.strip()
-        counted = stripped[stripped.isin(MISSING_MARKERS)].value_counts(sort=False)
+        hit = stripped.isin(MISSING_MARKERS)
+        counted = stripped[hit].value_counts(sort=False)
         if len(counted):
             marked[name] = {str(m): int(n) for m, n in counted.items()}
-    _say_markers(_marker_totals(marked.values()), path, notes)
+            said = _words_of_no_answer(name, stripped[hit], items, written)
+            in_note[name] = {m: n for m, n in marked[name].items() if m not in said}
+    _say_markers(_marker_totals(in_note.values()), path, notes)
     if frame is not None and marked:
         frame.attrs[MARKED] = marked
+
+
+def _marker_items(header: list, items, text_columns=()) -> frozenset:
+    """The columns (of ``header``) whose markers that are words of no answer are read as the file's words of no answer
+    (data.non_answers): the model's items (``items``; None, no model yet: every named column but ``text_columns``)."""
+    if items is not None:
+        return frozenset(str(x) for x in items)
+    return frozenset(str(h) for h in header if h and h not in text_columns)
+
+
+def _words_of_no_answer(column, cells: pd.Series, items: frozenset, written: list | None) -> set[str]:
+    """The markers among ``cells`` (a column's cells written as a marker of no answer, on the rows' index) that are
+    words saying no answer ('N/A', 'NA': data.non_answers.says_no_answer), in an item column (``items``), each as a
+    data.non_answers.NonAnswer appended to ``written``: a file's 'N/A' is named first and in the methods text, as the
+    same cell of a data frame is.  '.', 'NaN' (a program's empty cell) stay a note.  Returns the markers taken."""
+    if written is None or str(column) not in items:
+        return set()
+    from cfa_tool.data.non_answers import NonAnswer, NonAnswerKind
+
+    said = set()
+    numbers = row_numbers(cells)
+    for marker in dict.fromkeys(cells.tolist()):
+        if says_no_answer(marker):
+            hit = (cells == marker).to_numpy()
+            written.append(NonAnswer(NonAnswerKind.WRITTEN, column, marker, None, tuple(int(r) for r in numbers[hit])))
+            said.add(marker)
+    return said
 
 
 #: the key of DataFrame.attrs that keeps, for each column, the markers of no answer its cells were written as and

@@ -116,11 +116,29 @@ def renamed_frame(frame: pd.DataFrame, renames: tuple[ColumnRename, ...], source
                             f"cannot share a name (rename that one too, or give another name)")
     names = {r.old: r.new for r in renames}
     out = frame.set_axis([names.get(str(c), c) for c in frame.columns], axis=1)
+    out.attrs[RENAMED] = {**frame.attrs.get(RENAMED, {}), **{r.old: (r.new, option.given({r.old: r.new}))
+                                                             for r in renames}}
     for key in keyed_attrs:
         held = frame.attrs.get(key)
         if isinstance(held, dict):
             out.attrs[key] = {names.get(k, k) if isinstance(k, str) else k: v for k, v in held.items()}
     return out
+
+
+#: the key of DataFrame.attrs that keeps the renames of the frame's columns ({old: (new, the option as given)}): a
+#: message about a column that is not there says when the name given is one a rename took away
+RENAMED = "renamed_columns"
+
+
+def renamed_hint(frame: pd.DataFrame, name) -> str:
+    """Words for a message about a column ``name`` that ``frame`` lacks: that a rename took that name away ("; the
+    column 'district' was renamed to 'area' by --rename district=area: name it 'area'"), as the model's
+    unknown-variable error says it (readers.LoadedData.column_hint); '' otherwise."""
+    held = frame.attrs.get(RENAMED, {}).get(str(name)) if isinstance(frame.attrs.get(RENAMED), dict) else None
+    if held is None:
+        return ""
+    new, given = held
+    return f"; the column '{printable(str(name))}' was renamed to '{printable(new)}' by {given}: name it '{printable(new)}'"
 
 
 def names_in_file(renames: tuple[ColumnRename, ...], names) -> tuple[str, ...] | None:

@@ -11,6 +11,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.errors import OptionError, printable
+from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names
 
 
@@ -34,7 +35,7 @@ def row_ids(frame: pd.DataFrame, source: str, id_column: str | None, model_varia
     columns = [str(c) for c in frame.columns]
     if id_column not in columns:
         guess = close_names(id_column, columns)
-        hint = f"; did you mean '{printable(guess[0])}'?" if guess else ""
+        hint = renamed_hint(frame, id_column) or (f"; did you mean '{printable(guess[0])}'?" if guess else "")
         raise OptionError(f"the id column '{printable(id_column)}' is not a column of {source}{hint}")
     if id_column in model_variables:
         raise OptionError(f"'{printable(id_column)}' is a variable of the model and cannot also be the id column "

@@ -33,7 +33,7 @@ import pandas as pd
 from cfa_tool.data.moments import LARGEST_VALUE, SMALLEST_SPREAD, SampleMoments, _check_moments
 from cfa_tool import options as check
 from cfa_tool.errors import DataError, printable
-from cfa_tool.input_files import input_text, normalise_line_ends, text_lines, utf16_text
+from cfa_tool.input_files import DATA_FRAME, input_text, normalise_line_ends, text_lines, utf16_text
 from cfa_tool.numbers import number, whole_number
 from cfa_tool.options import MAX_OBSERVATIONS
 
@@ -354,12 +354,14 @@ def pasted_matrix(frame: pd.DataFrame, row_names: pd.Series | None, items, sourc
     if len(items) < 2 or any(x not in frame.columns for x in items):
         return
     corner = "empty"
-    from_python = row_names is None and len(frame) and not pd.api.types.is_integer_dtype(frame.index)
+    frame_given = source == DATA_FRAME
+    from_python = frame_given and row_names is None and len(frame) and not pd.api.types.is_integer_dtype(frame.index)
     if from_python:
         row_names = pd.Series([str(x) for x in frame.index])
     elif row_names is None:
         others = [c for c in frame.columns if str(c) not in items]
         if not others:
+            _unnamed_matrix(frame, items, source)
             return
         row_names, corner = frame[others[0]], f"'{printable(str(others[0]))}'"
     names = [str(x).strip() for x in row_names.iloc[:len(items) + 10].tolist()]  # a pasted matrix starts the file
@@ -367,6 +369,7 @@ def pasted_matrix(frame: pd.DataFrame, row_names: pd.Series | None, items, sourc
     for position, name in enumerate(names):
         where.setdefault(name, position)
     if any(x not in where for x in items):
+        _unnamed_matrix(frame, items, source)
         return
     block = frame[items].iloc[[where[x] for x in items]].apply(pd.to_numeric, errors="coerce").to_numpy(dtype=float)
     kind = _matrix_kind(block)
@@ -375,13 +378,10 @@ def pasted_matrix(frame: pd.DataFrame, row_names: pd.Series | None, items, sourc
     span = f"('{printable(items[0])}' to '{printable(items[-1])}')"
     shown = ("with 1 on the diagonal" if kind == "correlation" else
              "symmetric, with positive variances on the diagonal")
-    if from_python:
-        how = ("covariance=<the matrix>, n_obs=<the number of observations>" if kind == "covariance" else
-               "covariance=<the matrix>, matrix='correlation', n_obs=<the number of observations> and, if you have "
-               "them, sds=<the standard deviations>")
+    if frame_given:
         raise DataError(f"the data frame looks like a {kind} matrix, not rows of answers: its rows are named as its "
-                        f"columns {span}, {shown}; to fit it as summary statistics give it as {how}, not as the data "
-                        f"(or pass the rows of answers themselves as the data)")
+                        f"columns {span}, {shown}; to fit it as summary statistics give it as {_api_advice(kind)}, "
+                        f"not as the data (or pass the rows of answers themselves as the data)")
     columns = {str(c) for c in frame.columns}
     others = [n for n in names if n not in columns and n]  # rows after the matrix (a variable's row is no such row)
     rename = (f"; after the matrix come only rows named {', '.join(EXTRA_ROWS)} (here "
@@ -395,6 +395,40 @@ def pasted_matrix(frame: pd.DataFrame, row_names: pd.Series | None, items, sourc
                     f"summary statistics write '{kind}' in its first cell (now {corner}) and add a row 'n' with "
                     f"the number of observations after the matrix{rename} (the README's section on summary "
                     f"statistics shows the layout)")
+
+
+def _unnamed_matrix(frame: pd.DataFrame, items: list[str], source: str) -> None:
+    """A covariance or correlation matrix saved without its row names (pandas' ``cov().to_csv(index=False)``, R's
+    ``write.csv(cov(x), row.names = FALSE)``, a data frame of the matrix's values): as many rows as columns, every
+    cell a number, the block symmetric with ones or positive variances on its diagonal.  An error saying how to give
+    it as summary statistics (:func:`pasted_matrix`'s advice), rather than a fit of its rows as answers."""
+    if len(frame) != frame.shape[1] or any(x not in frame.columns for x in items):
+        return
+    block = frame.apply(pd.to_numeric, errors="coerce").to_numpy(dtype=float)
+    if not np.isfinite(block).all() or not np.allclose(block, block.T, rtol=1e-6, atol=1e-12):
+        return
+    kind = _matrix_kind(block)
+    if kind is None:
+        return
+    columns = [str(c) for c in frame.columns]
+    span = f"('{printable(columns[0])}' to '{printable(columns[-1])}')"
+    shown = ("symmetric, with 1 on the diagonal" if kind == "correlation" else
+             "symmetric, with positive variances on the diagonal")
+    if source == DATA_FRAME:
+        raise DataError(f"the data frame looks like a {kind} matrix, not rows of answers: as many rows as columns "
+                        f"{span}, {shown}; to fit it as summary statistics give it as {_api_advice(kind)}, not as "
+                        f"the data (or pass the rows of answers themselves as the data)")
+    raise DataError(f"{source} looks like a {kind} matrix saved without its row names, not rows of answers: as many "
+                    f"rows as columns {span}, {shown}; to fit it as summary statistics add a first column that names "
+                    f"each row as its column, with '{kind}' in its first cell, and a row 'n' with the number of "
+                    f"observations after the matrix (the README's section on summary statistics shows the layout)")
+
+
+def _api_advice(kind: str) -> str:
+    """How to give a matrix from Python (:func:`pasted_matrix`)."""
+    return ("covariance=<the matrix>, n_obs=<the number of observations>" if kind == "covariance" else
+            "covariance=<the matrix>, matrix='correlation', n_obs=<the number of observations> and, if you have "
+            "them, sds=<the standard deviations>")
 
 
 def _matrix_kind(block: np.ndarray) -> str | None:

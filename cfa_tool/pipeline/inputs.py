@@ -25,7 +25,7 @@ from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.halves import RandomHalf, half_kept
 from cfa_tool.data.readers import (HiddenRows, LoadedData, blank_text_as_missing, drop_blank_rows,
                                    first_data_option, read_data, with_no_answers_read)
-from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame
+from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame, renamed_hint
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
                                          design_weights, refuse_shared_clusters)
@@ -34,6 +34,7 @@ from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, holds_summary, pasted_m
 from cfa_tool import options as opt
 from cfa_tool.options import Option, option_in_both, own_keywords
 from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, check_rows_counted, printable
+from cfa_tool.input_files import DATA_FRAME
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
@@ -146,11 +147,11 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             raise OptionError(f"a first row of data ({first_data_option(names_option)}) is read from a file, and the "
                               f"data are a data frame, whose rows are all data; leave it out")
         frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
-        frame = renamed_frame(frame, renames, "<data frame>", rename_option)
-        frame, blank = drop_blank_rows(frame, "<data frame>")  # as the readers leave them out
-        renamed = (rename_note(renames, "<data frame>", rename_option),) if renames else ()
-        return with_no_answers_read(LoadedData(frame, "<data frame>", notes=renamed + blank, renamed=renames),
-                                    missing_codes, "<data frame>", text_columns, items, listed,
+        frame = renamed_frame(frame, renames, DATA_FRAME, rename_option)
+        frame, blank = drop_blank_rows(frame, DATA_FRAME)  # as the readers leave them out
+        renamed = (rename_note(renames, DATA_FRAME, rename_option),) if renames else ()
+        return with_no_answers_read(LoadedData(frame, DATA_FRAME, notes=renamed + blank, renamed=renames),
+                                    missing_codes, DATA_FRAME, text_columns, items, listed,
                                     filters)  # as a file's cells are read
     if isinstance(data, (str, Path)):
         if summary_source(data):
@@ -1191,7 +1192,7 @@ def check_helper_columns(helpers: tuple[str, ...], frame: pd.DataFrame, source: 
     for name in helpers:
         if name not in columns:
             guess = close_names(name, columns)
-            hint = f"; did you mean '{printable(guess[0])}'?" if guess else ""
+            hint = renamed_hint(frame, name) or (f"; did you mean '{printable(guess[0])}'?" if guess else "")
             raise OptionError(f"the missing-data helper '{printable(name)}' ({Option.MISSING_HELPERS}) is not a column "
                               f"of {source}{hint}")
         if name in spec.observed_names:

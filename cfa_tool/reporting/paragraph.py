@@ -428,7 +428,7 @@ def _read_as_missing(data) -> str:
     if codes:
         clauses.append(f"the code{'s' if len(codes) > 1 else ''} {_list(codes)}, declared to mean no answer, "
                        f"{'were' if len(codes) > 1 else 'was'} treated as missing")
-    marked = non_answer_clause(getattr(data, "non_answers", ()))
+    marked = non_answer_clause(getattr(data, "non_answers", ()), source=getattr(data, "source", None))
     if marked:
         clauses.append(marked)
     return "; ".join(clauses)

@@ -278,3 +278,25 @@ def test_a_model_name_that_a_rename_took_away_is_said_to_be_renamed():
     with pytest.raises(ModelError, match=r"unknown variable 'x1' \(not a column of holzinger_swineford_1939\.csv; "
                                          r"its columns read under new names: 'x1' as 'first'\)"):
         cfa_tool.fit(MODEL, HS_FILE, rename={"x1": "first"})
+
+
+@pytest.mark.parametrize("option", [["--keep", "School = Pasteur"], ["--id", "School"], ["--group-column", "School"],
+                                    ["--weights", "School"], ["--cluster", "School"], ["--strata", "School"],
+                                    ["--missing-helpers", "School"]])
+def test_an_option_naming_a_column_by_its_old_name_is_told_it_was_renamed(option, files, capsys):
+    """A column option that names a column by the name --rename took away is told the new name, as the model's
+    unknown-variable error is (review s12: it said only that the file has no such column, which it has)."""
+    copy, model = files["renamed"], files["model"]
+    code, out, err = run_cli(["fit", model, "--data", copy, "--rename", RENAME] + option, capsys)
+    assert code == 2 and out == ""
+    assert err.count("\n") == 1 and "Traceback" not in err
+    assert "the column 'School' was renamed to 'school' by --rename School=school: name it 'school'" in err, err
+
+
+def test_a_keyword_naming_a_column_by_its_old_name_is_told_it_was_renamed(files):
+    """From Python the message names the keyword as given (rename={...})."""
+    frame = pd.read_csv(files["renamed"], index_col=0)
+    for keywords in ({"group": "School"}, {"keep": "School = Pasteur"}, {"id_column": "School"}):
+        with pytest.raises(OptionError, match=r"the column 'School' was renamed to 'school' by "
+                                              r"rename=\{'School': 'school'\}: name it 'school'"):
+            cfa_tool.fit(MODEL, frame, rename={"School": "school", "x3r": "x3"}, **keywords)

@@ -50,7 +50,7 @@ def test_a_partner_answered_mostly_outside_the_declared_scale_is_read_as_on_anot
     named = [w for w in result.warnings if "outside the scale 1 to 5" in w]
     assert [w.split(" (")[0] for w in named] == [f"<data frame>: 'a2' has the answer {v}" for v in (0, 6, 8, 10)]
     assert all("read as answered on another scale" in w for w in named)
-    assert named[0].endswith("if 0 is a typing error or means 'no answer', give --missing-codes 0")
+    assert named[0].endswith("if 0 is a typing error or means 'no answer', give missing_codes=[0]")  # the keyword: a Python call
 
 
 def test_values_without_a_value_label_are_named(tmp_path, answers):
@@ -63,10 +63,10 @@ def test_values_without_a_value_label_are_named(tmp_path, answers):
     named = [w for w in result.warnings if "has no value label" in w]
     assert named == [
         "labelled.sav: 'a2' has the value 0 (rows 10, 20), which has no value label, while its other values are "
-        "labelled; if it is a typing error or means 'no answer', give --missing-codes 0 (or correct it in a copy of "
+        "labelled; if it is a typing error or means 'no answer', give missing_codes=[0] (or correct it in a copy of "
         "the file)",
         "labelled.sav: 'b3' has the value 9 (row 41), which has no value label, while its other values are "
-        "labelled; if it is a typing error or means 'no answer', give --missing-codes 9 (or correct it in a copy of "
+        "labelled; if it is a typing error or means 'no answer', give missing_codes=[9] (or correct it in a copy of "
         "the file)"]
 
 

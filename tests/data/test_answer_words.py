@@ -253,7 +253,7 @@ def test_missing_codes_apply_to_items_coded_from_words(tmp_path):
     for model in (MODEL, MODEL.rstrip("\n") + ", -99 = -99\n"):
         result = cfa_tool.fit(model, path, missing_codes=[-99])
         assert result.fit.chi_square == pytest.approx(reference.fit.chi_square, rel=1e-10)
-        assert any("3 cells of the items coded by an 'answers' statement holding a code given with --missing-codes" in w
+        assert any("3 cells of the items coded by an 'answers' statement holding a code given with missing_codes=..." in w
                    for w in result.warnings)
 
 

@@ -94,7 +94,8 @@ def test_csv_cell_na_with_a_space_is_the_no_answer_na(rider_demo, tmp_path):
     items = _items(rider_demo)
     assert loaded.frame[items].dtypes.map(lambda d: d.kind in "iuf").all()
     assert int(loaded.frame[items].isna().to_numpy().sum()) == int(rider_demo[items].isna().to_numpy().sum())
-    assert any("'NA'" in note for note in loaded.notes)  # the reading is said
+    # the reading is said: 'NA' is a word of no answer, named among the file's (a caution), as in a data frame
+    assert {f.value for f in loaded.non_answers} == {"NA"}
 
 
 def test_spss_text_items_with_labelled_text_codes(rider_demo, rider_model, tmp_path):
@@ -165,7 +166,7 @@ def test_a_labelled_code_beyond_the_scale_is_named_first(rider_demo, rider_model
     check = cfa_tool.check(rider_model, str(path))
     first = check.problems[0].explanation
     assert "clean" in first and "'Something else'" in first and "24 cells" in first
-    assert "--missing-codes 6" in check.problems[0].advice
+    assert "missing_codes=[6]" in check.problems[0].advice  # the keyword: a Python call
 
 
 @pytest.mark.parametrize("labels, present", [

@@ -34,8 +34,8 @@ def test_a_group_column_keeps_a_value_given_as_a_missing_code(answers, tmp_path)
         assert [g.label for g in fitted.groups] == ["6", "7", "8", "9"]
         assert fitted.data.rows_read == 400
         notes = " ".join(fitted.warnings)
-        assert "3 cells holding a code given with --missing-codes (9) were read as no answer (a2 3)" in notes
-        assert ("--missing-codes applies to the model's items; other columns keep such a value as it is ('grade' "
+        assert "3 cells holding a code given with missing_codes=... (9) were read as no answer (a2 3)" in notes
+        assert ("missing_codes=... applies to the model's items; other columns keep such a value as it is ('grade' "
                 "holds 9 in 100 rows)") in notes and "keep=['grade != 9']" in notes  # as a Python call writes it
     # the same fit as the data with those three cells empty (written by pandas), the grade column as it is
     gaps = answers.assign(a2=answers["a2"].replace(9.0, np.nan))

@@ -38,7 +38,7 @@ def test_a_forgotten_code_in_a_simulated_item_is_named_with_its_rows():
     odd = found[0]
     assert odd.kind is OddKind.MISSING_CODE and odd.columns == ("x3",) and odd.values == (-99.0,)
     assert odd.rows == (5, 18, 251) and odd.answers == 3 and odd.others == (1.0, 5.0)
-    assert "--missing-codes -99" in odd.advice()
+    assert "missing_codes=[-99]" in odd.advice()  # the keyword: a Python call
 
 
 def test_codes_within_codes_and_codes_of_nines():
@@ -113,14 +113,14 @@ def test_a_failed_estimation_names_the_values_first():
         with odd_values_named(loaded):
             raise EstimationError("the estimation did not converge")
     message = str(caught.value)
-    assert message.index("-99") < message.index("--missing-codes -99") < message.index("did not converge")
+    assert message.index("-99") < message.index("missing_codes=[-99]") < message.index("did not converge")
 
 
 def test_the_columns_skipped_before_peeling_hold_nothing_to_peel():
     """The screening peels only the columns whose highest or lowest answer lies at least the others' range beyond them
     (``_may_stand_out``, all columns at once); on seeded data with codes, far values, gaps, infinities and ties,
     every column it skips gives no finding when peeled one by one."""
-    from cfa_tool.data.odd_values import _may_stand_out, _peeled
+    from cfa_tool.data.odd_values import _may_stand_out, _outside_scale, _peeled
 
     rng = np.random.default_rng(20)
     skipped = 0
@@ -130,10 +130,12 @@ def test_the_columns_skipped_before_peeling_hold_nothing_to_peel():
         for _ in range(int(rng.integers(0, 4))):
             X[rng.integers(0, n), rng.integers(0, p)] = rng.choice([-99, 999, 9, 55, np.nan, np.inf, -np.inf, 1e308])
         with np.errstate(over="ignore", invalid="ignore"):
-            kept = set(_may_stand_out(X).tolist())
+            kept, apart = (set(columns.tolist()) for columns in _may_stand_out(X))
             for j in set(range(p)) - kept:
                 skipped += 1
                 assert _peeled(X[:, j]) == [], (X[:, j], j)
+            for j in set(range(p)) - apart:
+                assert _outside_scale(X[:, j]) == [], (X[:, j], j)
     assert skipped > 200  # the shortcut is taken (most columns have nothing to peel)
 
 
@@ -182,3 +184,37 @@ def test_a_means_row_that_stops_an_ordinal_fit_is_named_as_one_first():
     assert message.startswith("Index label 200 of <data frame> holds the means of the other rows' answers")
     assert "leave it out with a row filter, keep=..." in message  # a Python caller reads the Python keyword
     assert message.index("What to try first") < message.index("has the answer") < message.index("in index label 200")
+
+
+@pytest.mark.parametrize("value", [7, 10, 12, 20])
+def test_an_answer_outside_a_bounded_answer_scale_is_named_with_item_value_and_rows(value):
+    """Review s12: 12 on an item answered 1 to 5 was analysed with no word (9 is a code, 55 is far beyond, 10 to 44
+    were neither).  A few cells two or more steps beyond a scale of whole numbers whose end is a common answer are
+    named; 6 beside 1 to 5 may be the scale's own top answer and is left alone."""
+    frame = _likert(8)
+    frame.loc[[10, 200], "x2"] = value
+    frame.loc[30, "x5"] = value
+    frame.loc[50, "x4"] = 6
+    found = odd_values(frame, list(frame.columns))
+    assert [(o.kind, o.columns, o.values, o.rows, o.answers, o.others) for o in found] == [
+        (OddKind.OUTSIDE_SCALE, ("x2", "x5"), (float(value),) * 2, (11, 31, 201), 3, (1.0, 5.0))]
+    caution = found[0].caution("survey.csv")
+    assert caution.startswith(f"2 item columns of survey.csv (x2, x5) hold the value {value} (3 answers in rows 11, "
+                              f"31, 201), outside the answer scale of the other answers (1 to 5)")
+    assert f"give missing_codes=[{value}]" in found[0].advice()
+
+
+def test_measures_of_many_values_and_thinning_counts_are_not_judged_by_a_scale():
+    """No false alarm where the values form no bounded scale: seeded counts of trips (Poisson, whose highest counts
+    are rare: a tail, not the end of a scale), incomes (lognormal, rounded to whole units) and reaction times; and a
+    seeded 1-to-5 scale without a stray value."""
+    alarms = []
+    for seed in range(100):
+        rng = np.random.default_rng(seed)
+        n = int(rng.integers(50, 1000))
+        data = {"trips": rng.poisson(1.5, n), "income": np.round(rng.lognormal(10, 0.6, n)),
+                "reaction": rng.gamma(2.0, 150.0, n), "likert": _likert(seed, n, 1)["x1"].to_numpy()}
+        frame = pd.DataFrame({k: np.asarray(v, dtype=float) for k, v in data.items()})
+        alarms += [(seed, o.kind, o.columns) for o in odd_values(frame, list(frame.columns))
+                   if o.kind is OddKind.OUTSIDE_SCALE]
+    assert alarms == []

@@ -85,3 +85,53 @@ def test_rows_of_answers_are_not_taken_for_a_matrix(answers):
     assert _matrix_kind(np.array([[1.0, 3.0], [3.0, 4.0]])) is None
     assert _matrix_kind(np.array([[2.0, 1.0], [1.0, 4.0]])) == "covariance"
     assert _matrix_kind(np.array([[2.0, np.nan], [1.0, 4.0]])) == "covariance"  # a lower triangle as printed
+
+
+@pytest.mark.parametrize("kind", ["covariance", "correlation"])
+def test_matrix_saved_without_row_names_is_refused_and_the_advice_fits(kind, answers, rider_model, tmp_path, capsys):
+    """pandas' ``cov().to_csv(index=False)`` and R's ``write.csv(cov(x), row.names = FALSE)`` (quoted names, written
+    here as R writes them: recalled from R's documentation of write.csv, not run) drop the row names: the square block
+    alone is still a matrix (review s12: it was fitted as rows of answers, or refused only for its few rows)."""
+    matrix = answers.cov() if kind == "covariance" else answers.corr()
+    by_pandas = tmp_path / f"{kind}_pandas.csv"
+    matrix.to_csv(by_pandas, index=False)
+    by_r = tmp_path / f"{kind}_r.csv"
+    by_r.write_text(",".join(f'"{c}"' for c in matrix.columns) + "\n"
+                    + "".join(",".join(f"{v:.15g}" for v in row) + "\n" for row in matrix.to_numpy()))
+    model = tmp_path / "m.cfa"
+    model.write_text(rider_model)
+    for path in (by_pandas, by_r):
+        code, out, err = run_cli(["fit", model, "--data", path], capsys)
+        assert code == 2 and out == ""
+        assert f"{path} looks like a {kind} matrix saved without its row names, not rows of answers" in err
+        assert f"add a first column that names each row as its column, with '{kind}' in its first cell" in err
+    # the advice followed gives the fit of the rows themselves
+    lines = by_pandas.read_text().splitlines()
+    fixed = [kind + "," + lines[0]] + [f"{name},{line}" for name, line in zip(matrix.columns, lines[1:])]
+    fixed += [f"n,{len(answers)}"] + ([] if kind == "covariance" else
+                                       ["sd," + ",".join(f"{s!r}" for s in answers.std())])
+    stats = tmp_path / f"{kind}_stats.csv"
+    stats.write_text("\n".join(fixed) + "\n")
+    assert cfa_tool.fit(FOUR, stats).fit.chi_square == pytest.approx(cfa_tool.fit(FOUR, answers).fit.chi_square,
+                                                                      rel=1e-6)
+
+
+def test_matrix_frame_without_row_names_or_with_them_as_a_column_points_to_the_keyword(answers):
+    """From Python the advice is the keyword's (covariance=, n_obs=), also for a matrix whose row names became a
+    column (``cov().reset_index()``) or were dropped (a frame of its values): the file's advice (write 'covariance'
+    in the first cell) fits no data frame."""
+    for frame in (answers.cov().reset_index(), pd.DataFrame(answers.cov().to_numpy(), columns=answers.columns)):
+        with pytest.raises(DataError) as raised:
+            cfa_tool.fit(FOUR, frame)
+        message = str(raised.value)
+        assert message.startswith("the data frame looks like a covariance matrix, not rows of answers")
+        assert "give it as covariance=<the matrix>, n_obs=" in message and "first cell" not in message
+    with pytest.raises(DataError, match=r"the data frame looks like a correlation matrix.*matrix='correlation'"):
+        cfa_tool.fit(FOUR, answers.corr().reset_index())
+
+
+def test_a_few_rows_of_answers_as_many_as_the_columns_are_no_matrix(answers, tmp_path):
+    """Twelve rows of answers for twelve columns are not symmetric: they are read as rows of answers."""
+    path = tmp_path / "few.csv"
+    answers.iloc[:12].to_csv(path, index=False)
+    assert cfa_tool.fit(FOUR, path).n_obs == 12

@@ -175,3 +175,47 @@ def test_a_first_respondent_who_answered_dont_know_throughout_is_no_header_row(t
     result = cfa_tool.fit((resource_dir("models") / "rider_three_factors.cfa").read_text(), path)
     assert result.n_obs == len(rows) - 1  # the row answers nothing: left out as such, not refused as a header
     assert sum(len(f.rows) for f in result.data.non_answers) == len(items)
+
+
+def test_a_mistyped_first_row_of_data_that_skips_answers_is_a_caution(tmp_path):
+    """Review s12: --first-data-row 5 where the answers start at row 3 left two respondents out with only a note.
+    Rows 3 and 4 hold answer words like the rows below, so they are named first, with the row where the answers
+    start; the rows analysed are counted against pandas' own count of the rows written (the reference)."""
+    frame = _answers()
+    book, text = tmp_path / "riders.xlsx", tmp_path / "riders.csv"
+    _workbook(book, frame)
+    _text_file(text, frame)
+    for path, word, where in ((book, "row", "riders.xlsx (sheet 'Sheet')"), (text, "line", "riders.csv")):
+        fitted = cfa_tool.fit(MODEL + CODED, path, first_data_row=5)
+        assert fitted.n_obs == len(frame) - 2  # pandas: the rows written, less the two skipped
+        cautions = [p for p in fitted.problems if "left unread by first_data_row=5" in p.explanation]
+        assert len(cautions) == 1, [p.explanation for p in fitted.problems]
+        assert cautions[0].explanation.startswith(f"{where}: {word}s 3-4, left unread by first_data_row=5, hold "
+                                                  "answers like the rows read")
+        assert "so 2 rows of answers are not analysed" in cautions[0].explanation
+        assert cautions[0].advice.startswith(f"If the answers start at {word} 3, give first_data_row=3")
+        # the right row: the question texts skip quietly, as before
+        right = cfa_tool.fit(MODEL + CODED, path, first_data_row=3)
+        assert right.n_obs == len(frame)
+        assert not [p for p in right.problems if "left unread" in p.explanation]
+
+
+def test_skipped_rows_of_numbers_are_named_on_the_command_line(tmp_path, rider_demo, rider_model, capsys):
+    """The rider demo's numbers under one row of question texts, read with --first-data-row 6: lines 3-5 (three
+    respondents) are named first; the question row stays quiet."""
+    from tests.conftest import run_cli
+
+    path, model = tmp_path / "riders.csv", tmp_path / "riders.cfa"
+    path.write_text(",".join(rider_demo.columns) + "\n" + ",".join(["Rider", "District"] + [f"Q{k}" for k in range(12)])
+                    + "\n" + rider_demo.to_csv(index=False, header=False), encoding="utf-8")
+    model.write_text(rider_model, encoding="utf-8")
+    code, out, err = run_cli(["fit", model, "--data", path, "--first-data-row", "6", "--json", "-"], capsys)
+    assert code == 0, err
+    import json
+
+    result = json.loads(out)
+    said = [p["explanation"] for p in result["problems"] if "left unread" in p["explanation"]]
+    assert said == ["riders.csv: lines 3-5, left unread by --first-data-row 6, hold answers like the rows read (in "
+                    "every item column that they fill, a number or an answer the other rows give), so 3 rows of "
+                    "answers are not analysed."]
+    assert result["n_obs"] == len(rider_demo) - 3  # pandas' count of the rows written, less three

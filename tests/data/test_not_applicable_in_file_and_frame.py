@@ -1,0 +1,53 @@
+"""'N/A' read as no answer says the same in a file and in a data frame (review s12: from a CSV file it was a plain
+note and missing from the methods text's list of values read as no answer; from a data frame it was a caution that
+said 'the file writes').  The reference is pandas' own reading of the same cells (``read_csv`` counts 'N/A' as a
+gap by default): the cells named are the cells pandas leaves empty."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.reporting.paragraph import methods_paragraph
+from tests.commands.test_cli import DATA, MODEL
+
+
+def _gappy(tmp_path, marker: str):
+    frame = pd.read_csv(DATA).dropna().reset_index(drop=True)  # only the gaps made here
+    frame.loc[[3, 40], "on_time"] = np.nan
+    frame.loc[5, "clean"] = np.nan
+    path = tmp_path / "riders.csv"
+    frame.to_csv(path, index=False, na_rep=marker)
+    as_frame = frame.astype(object).where(frame.notna(), marker)
+    return path, as_frame
+
+
+@pytest.mark.parametrize("marker", ["N/A", "n/a", "NA"])
+def test_a_word_of_no_answer_is_a_caution_in_the_file_and_in_the_frame(marker, tmp_path):
+    path, as_frame = _gappy(tmp_path, marker)
+    gaps = int(pd.read_csv(path)[["on_time", "clean"]].isna().to_numpy().sum())  # pandas' reading: the reference
+    from_file, from_frame = cfa_tool.fit(MODEL, path), cfa_tool.fit(MODEL, as_frame)
+    cautions = []
+    for result in (from_file, from_frame):
+        said = [p for p in result.problems if "no answer" in p.explanation]
+        assert len(said) == 1, [p.explanation for p in result.problems]
+        cautions.append(said[0])
+        assert f"'{marker}' ({gaps} cells: on_time 2, clean 1)" in said[0].explanation
+        assert f"'{marker}' in on_time and clean" in " ".join(methods_paragraph(result).split())
+    assert cautions[0].explanation.startswith(f"{gaps} cells of the items in riders.csv hold values that the file "
+                                              "writes as no answer")
+    assert cautions[1].explanation.startswith(f"{gaps} cells of the items in the data frame hold text that says no "
+                                              "answer")
+    assert "the file" not in cautions[1].explanation and cautions[1].advice.endswith("in a copy of the data frame.")
+    assert not [w for w in from_file.warnings if "cells written as" in w]  # not also a note
+    assert from_file.fit.chi_square == pytest.approx(from_frame.fit.chi_square, rel=1e-10)
+
+
+def test_the_methods_text_names_a_data_frame_as_one(tmp_path):
+    """The methods text of a data frame's fit does not speak of a data file."""
+    _, as_frame = _gappy(tmp_path, "N/A")
+    text = " ".join(methods_paragraph(cfa_tool.fit(MODEL, as_frame)).split())
+    assert "text cells of the data frame that say no answer were treated as missing ('N/A' in on_time and clean)" in text
+    assert "data file marks" not in text
