@@ -52,6 +52,7 @@ class HalfRows:
     empty = 0
     dropped = 0
     shared = ()
+    other_case = ()
 
     @property
     def value(self) -> str:

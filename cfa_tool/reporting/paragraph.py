@@ -827,6 +827,23 @@ def _latent_response_sentence(result) -> str:
             f"Estabrook, 2016).")
 
 
+def _stated(result) -> bool:
+    """Whether the model fixes every parameter (a population or published values tested on the data): nothing was
+    estimated."""
+    return not result.parameter_labels
+
+
+def _estimated_by(result, groups: str) -> str:
+    """'was estimated by maximum likelihood, with standard errors from ...'; for a model fixing every parameter,
+    what was done instead (review s13: the text said estimated, with standard errors, where nothing was)."""
+    if _stated(result):
+        base = ("the full-information maximum-likelihood discrepancy" if result.method.full_information else
+                "the maximum-likelihood discrepancy")
+        return (f"with every parameter fixed at a stated value was tested against the data{groups} by {base}, so "
+                f"nothing was estimated and no standard errors apply")
+    return f"was estimated{groups} by {_estimator_phrase(result)}"
+
+
 def methods_paragraph(result) -> str:
     if not result.converged or result.fit is None:
         return "The model did not converge, so no results are reported."
@@ -836,8 +853,8 @@ def methods_paragraph(result) -> str:
     parts = []
     if d is not None:
         shape = _shape(result, d)
-        parts.append(f"A confirmatory factor analysis with {_structure(d, shape)} was estimated{groups} by "
-                     f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
+        parts.append(f"A confirmatory factor analysis with {_structure(d, shape)} {_estimated_by(result, groups)} "
+                     f"({_sample_phrase(result)}).")
         parts += _scale_sentences(d, result.problems)
         if d.exploratory:
             parts.append(_block_sentences(result, d))
@@ -854,8 +871,8 @@ def methods_paragraph(result) -> str:
         parts += [sentence for sentence in (_factor_means_sentence(result), _latent_response_sentence(result))
                   if sentence]
     else:
-        parts.append(f"A confirmatory factor analysis with {len(result.observed)} indicators was estimated{groups} by "
-                     f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
+        parts.append(f"A confirmatory factor analysis with {len(result.observed)} indicators "
+                     f"{_estimated_by(result, groups)} ({_sample_phrase(result)}).")
     matrix = _matrix_sentence(result)
     if matrix:  # right after the sentence naming the estimation and N
         parts.insert(1, matrix)
@@ -900,6 +917,8 @@ def methods_paragraph(result) -> str:
     across = f" across the {_count(len(groups), 'group')}" if groups else ""
     if loadings:
         which = "on the confirmatory factors " if blocks else ("of the items " if second else "")
+        if _stated(result):  # the values given, not estimates
+            which = "implied by the stated values " + which
         negative = sum(v < 0 for v in loadings)
         if negative:  # reverse-keyed items: a range from -.76 to .81 would read as if -.76 were the weakest
             sizes = [abs(v) for v in loadings]
@@ -1227,7 +1246,11 @@ def invariance_paragraph(result, levels) -> str:
                  f"{rule}" + (f", the difference test being {_list([m.phrase for m in methods])}" if methods else "")
                  + ".")
     if result.freed:  # the search's guide, as the table of freed parameters and the JSON name it
-        parts.append(f"The partial-invariance search was guided by {result.score_tests.phrase}.")
+        # with rows with gaps, normal-theory score tests rest on the expected information: the assumption the report's
+        # note and the JSON name is the paper's too (review s13)
+        assumed = (", which with rows with gaps rest on the expected information and so assume answers missing "
+                   "completely at random (Kenward & Molenberghs, 1998)" if result.score_tests_assume_mcar else "")
+        parts.append(f"The partial-invariance search was guided by {result.score_tests.phrase}{assumed}.")
     problems = _step_problems(steps)
     if problems:  # problems first: before any step reads as held
         parts.append(problems)

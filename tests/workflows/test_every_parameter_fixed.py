@@ -42,6 +42,13 @@ def test_fit_of_a_fully_fixed_model_is_the_chi_square_of_the_stated_matrix(capfd
     assert fit["chi_square"] == pytest.approx(n * F, rel=1e-9)
     assert fit["df"] == p * (p + 1) // 2
     assert result.converged
+    # the methods text says what was done: nothing estimated, no standard errors (review s13)
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    text = " ".join(methods_paragraph(result).split())
+    assert ("with every parameter fixed at a stated value was tested against the data by the maximum-likelihood "
+            "discrepancy, so nothing was estimated and no standard errors apply") in text
+    assert "was estimated by" not in text and "Standardized loadings implied by the stated values" in text
     # LAPACK's complaint about a 0 x 0 matrix ("On entry to DTRTRI ...") never reaches the terminal
     out, err = capfd.readouterr()
     assert "DTRTRI" not in out + err and "illegal value" not in out + err

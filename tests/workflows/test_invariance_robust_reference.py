@@ -481,6 +481,11 @@ def test_the_normal_theory_score_tests_with_gaps_say_what_they_assume():
     assert said in " ".join(str(invariance_report(gaps)).split())
     robust = invariance(THREE_FACTORS, _with_gaps(), "school", partial="auto", test="robust")
     complete = invariance(THREE_FACTORS, holzinger_swineford(), "school", partial="auto", missing="full-information")
+    # the methods paragraph says it too, when the search freed something (review s13)
+    in_paper = ("which with rows with gaps rest on the expected information and so assume answers missing completely "
+                "at random")
+    assert gaps.freed and in_paper in " ".join(invariance_report(gaps).paragraph.split())
     for result in (robust, complete):
         assert not result.score_tests_assume_mcar
         assert said not in " ".join(str(invariance_report(result)).split())
+        assert in_paper not in " ".join(invariance_report(result).paragraph.split())
