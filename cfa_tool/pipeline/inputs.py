@@ -1662,9 +1662,9 @@ def _group_parts(spec: Spec, frame: pd.DataFrame, source: str, group: str | None
     if group is None:
         return [(None, numeric_columns(frame, names, source))]
     _check_group_column(spec, group)
+    labels = group_labels(frame, group, source, reference_group)  # first: a column not in the file is its error
     keys = frame[group].map(lambda v: None if pd.isna(v) else label_text(v))
-    return [(label, numeric_columns(frame.loc[(keys == label).to_numpy()], names, source))
-            for label in group_labels(frame, group, source, reference_group)]
+    return [(label, numeric_columns(frame.loc[(keys == label).to_numpy()], names, source)) for label in labels]
 
 
 def _sparse_answers(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,
