@@ -245,9 +245,28 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         if loaded.value_labels else ()
     frame = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)  # said where used (labels.label_notes)
     items = ItemColumns(frame, spec.observed_names, values)  # the items' codes are kept as they are
-    found = odd_values(frame, spec.observed_names, row_numbers(frame), items.values)
+    found = _within_declared_scales(odd_values(frame, spec.observed_names, row_numbers(frame), items.values), spec,
+                                    frame)
     return spec, replace(loaded, frame=frame, cautions=cautions + beyond, items=items,
                          odd_values=found + summary_rows_kept(loaded, frame, spec.observed_names, found)), notes
+
+
+def _within_declared_scales(found: tuple, spec: Spec, frame: pd.DataFrame) -> tuple:
+    """``found`` (data.odd_values) without the values outside the answers' own run that lie on the scale a
+    'reversed ... on MIN to MAX' statement declares for every column holding them (a 7 among answers 1 to 5 of an
+    item declared on 1 to 7 is an answer the model file names; review s13).  Values beyond a declared scale are an
+    error before this (data.matching.check_declared_ranges)."""
+    from cfa_tool.data.matching import declared_scales
+    from cfa_tool.data.odd_values import OddKind
+
+    if not spec.reversed or not any(o.kind is OddKind.OUTSIDE_SCALE for o in found):
+        return found
+    scales = declared_scales(spec, frame)
+
+    def declared(o) -> bool:
+        return all(c in scales and scales[c][0] <= v <= scales[c][1] for c, v in zip(o.columns, o.values))
+
+    return tuple(o for o in found if not (o.kind is OddKind.OUTSIDE_SCALE and declared(o)))
 
 
 def summary_rows_kept(loaded: LoadedData, frame: pd.DataFrame, names: tuple[str, ...], found: tuple) -> tuple:

@@ -1,0 +1,28 @@
+"""A value outside the run of an item's other answers (7 among answers 1 to 5) is a caution, unless the model file
+declares a scale that holds it ('reversed on_time on 1 to 7'): then it is an answer the model names, not a typing
+error (review s13: the caution ignored the declared scale).  Demo data of the fictional rider survey, two answers
+of on_time set to 7."""
+
+from __future__ import annotations
+
+import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.resources import resource_dir
+
+MODEL = (resource_dir("models") / "rider_three_factors.cfa").read_text()
+
+
+def _outside(result) -> list:
+    return [p for p in result.problems if "outside the answer scale" in p.explanation]
+
+
+def test_a_value_on_the_declared_scale_is_no_typing_error():
+    import pandas as pd
+
+    data = pd.read_csv(resource_dir("demo") / "rider_survey.csv")
+    data.loc[[3, 50], "on_time"] = 7
+    assert set(data["on_time"].dropna()) == {1, 2, 3, 4, 5, 7}
+    plain = cfa_tool.fit(MODEL, data)
+    assert len(_outside(plain)) == 1 and _outside(plain)[0].kind is ProblemKind.VALUES_NOT_ANSWERS
+    declared = cfa_tool.fit(MODEL + "reversed on_time on 1 to 7\n", data)
+    assert _outside(declared) == []
