@@ -517,6 +517,8 @@ class HiddenRows:
 
 #: rows at the top of another sheet searched for the model's item names (a title and question texts may come first)
 SHEET_HEADER_ROWS = 20
+SHEET_ANSWER_ROWS = 50  # rows below another sheet's names looked at for answers
+SHEET_ANSWER_ROWS_NEEDED = 5  # of those, rows filling half the items' columns or more: a sheet of answers
 
 
 def _sheets_with_items(book, read: str, items) -> tuple[str, ...]:
@@ -529,9 +531,18 @@ def _sheets_with_items(book, read: str, items) -> tuple[str, ...]:
         ws = book[name]
         if name == read or not hasattr(ws, "iter_rows"):
             continue
-        for row in ws.iter_rows(max_row=SHEET_HEADER_ROWS, values_only=True):
-            if wanted <= {str(v).strip() for v in row if v is not None}:
-                found.append(name)
+        rows = ws.iter_rows(max_row=SHEET_HEADER_ROWS + SHEET_ANSWER_ROWS, values_only=True)
+        for k, row in enumerate(rows):
+            if k >= SHEET_HEADER_ROWS:
+                break
+            names = [str(v).strip() if v is not None else "" for v in row]
+            if wanted <= set(names):
+                # rows of answers below the names (a labels or codebook sheet has a row of question texts at most:
+                # review s13): rows filling at least half of the items' columns
+                at = [names.index(x) for x in wanted]
+                filled = sum(1 for r in rows if sum(p < len(r) and r[p] not in (None, "") for p in at) * 2 >= len(at))
+                if filled >= SHEET_ANSWER_ROWS_NEEDED:
+                    found.append(name)
                 break
     return tuple(found)
 

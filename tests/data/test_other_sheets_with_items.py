@@ -43,3 +43,14 @@ def test_other_sheets_with_the_items_are_named_first(rider_demo, rider_model, tm
         rider_demo.to_excel(writer, sheet_name="Data", index=False)
         rider_demo[["rider_id", "district"]].to_excel(writer, sheet_name="Riders", index=False)
     assert ProblemKind.OTHER_SHEETS_WITH_ITEMS not in [p.kind for p in cfa_tool.fit(rider_model, other).problems]
+
+
+def test_a_sheet_of_question_texts_under_the_item_names_is_no_second_sheet_of_answers(rider_demo, rider_model,
+                                                                                         tmp_path):
+    # review s13: a 'Labels' sheet (the item names and one row of question texts) was called a sheet of answers
+    book = tmp_path / "labelled.xlsx"
+    labels = pd.DataFrame([{c: f"How do you rate: {c}?" for c in rider_demo.columns}])
+    with pd.ExcelWriter(book) as writer:
+        rider_demo.to_excel(writer, sheet_name="Data", index=False)
+        labels.to_excel(writer, sheet_name="Labels", index=False)
+    assert ProblemKind.OTHER_SHEETS_WITH_ITEMS not in [p.kind for p in cfa_tool.fit(rider_model, book).problems]
