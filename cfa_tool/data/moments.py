@@ -467,7 +467,7 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
     data = values[answered]
     n, p = data.shape
     if n <= p:
-        raise DataError(f"{source}: {n} rows with any answer for {p} variables; the analysis needs more rows than variables")
+        raise DataError(f"{source}: {n} row{'' if n == 1 else 's'} with any answer for {p} variables; the analysis needs more rows than variables")
     counts = (~np.isnan(data)).sum(axis=0)
     for j, c in enumerate(counts):
         if c < 2:
