@@ -139,11 +139,9 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         names: list[pd.Series] = []
         sheets: list[str] = []
         hidden: list = []
-        written: list = []  # item cells written as a word of no answer among the markers ('N/A')
         loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden, names_in_file(renames, items), names_row,
-                                        names_option, _listed_in_file(renames, listed), first_data_row, written),
-                            str(path), notes=tuple(notes), row_names=names[0] if names else None,
-                            cautions=tuple(hidden), non_answers=tuple(written),
+                                        names_option, _listed_in_file(renames, listed), first_data_row), str(path),
+                            notes=tuple(notes), row_names=names[0] if names else None, cautions=tuple(hidden),
                             sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else ())
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _read_labelled(path)
@@ -154,13 +152,11 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         names = []
         reading: list[TextReading] = []
         unread: list = []
-        written = []
         loaded = LoadedData(read_table(path, notes, names, names_in_file(renames, text_columns),
                                        names_in_file(renames, items), names_row, reading, names_option,
-                                       _listed_in_file(renames, listed), first_data_row, unread, written), str(path),
+                                       _listed_in_file(renames, listed), first_data_row, unread), str(path),
                             notes=tuple(notes), row_names=names[0] if names else None,
-                            reading=reading[0] if reading else None, cautions=tuple(unread),
-                            non_answers=tuple(written))
+                            reading=reading[0] if reading else None, cautions=tuple(unread))
         if loaded.reading is not None and not loaded.reading.plain():  # said when it is not plain UTF-8 with commas
             loaded = replace(loaded, notes=(f"{path}: {loaded.reading.words()}",) + loaded.notes)
     loaded = _renamed(_composed_names(loaded), renames, renames_option)
@@ -333,7 +329,6 @@ def _renamed(loaded: LoadedData, renames: tuple[ColumnRename, ...], option: Opti
     frame = renamed_frame(loaded.frame, renames, loaded.source, option, (SHEET_COLUMNS, MARKED, SPELLINGS))
     names = {r.old: r.new for r in renames}
     return replace(loaded, frame=frame, renamed=renames,
-                   non_answers=tuple(replace(f, column=names.get(f.column, f.column)) for f in loaded.non_answers),
                    variable_labels={names.get(k, k): v for k, v in loaded.variable_labels.items()},
                    value_labels={names.get(k, k): v for k, v in loaded.value_labels.items()},
                    notes=loaded.notes + (rename_note(renames, loaded.source, option),))
@@ -342,7 +337,7 @@ def _renamed(loaded: LoadedData, renames: tuple[ColumnRename, ...], option: Opti
 def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list | None = None,
                 sheets_out: list | None = None, hidden_out: list | None = None, items=None,
                 names_row: int | None = None, names_option: Option = Option.NAMES_ROW, listed=None,
-                first_data_row: int | None = None, written_out: list | None = None) -> pd.DataFrame:
+                first_data_row: int | None = None) -> pd.DataFrame:
     try:
         import openpyxl
         from openpyxl.utils import get_column_letter
@@ -436,23 +431,13 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     if not body:
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
     marked: dict[int, dict[str, int]] = {}  # column position -> {marker: cells}, counted once
-    marked_rows: dict[int, dict[str, list[int]]] = {}  # column position -> {marker: sheet rows}
-    for number, r in zip(kept, body):
+    for r in body:
         for k, v in enumerate(r):
             if isinstance(v, str) and v.strip() in _MARKER_SET:
                 counted = marked.setdefault(k, {})
                 counted[v.strip()] = counted.get(v.strip(), 0) + 1
-                marked_rows.setdefault(k, {}).setdefault(v.strip(), []).append(number)
                 r[k] = None
-    in_note = dict(marked)
-    if written_out is not None:
-        chosen = _marker_items(header, items)
-        for k, by_marker in marked_rows.items():
-            cells = pd.Series([m for m, rows in by_marker.items() for _ in rows],
-                              index=file_rows_index([r for rows in by_marker.values() for r in rows]), dtype=object)
-            said = _words_of_no_answer(header[k], cells, chosen, written_out)
-            in_note[k] = {m: n for m, n in marked[k].items() if m not in said}
-    _say_markers(_marker_totals(in_note.values()), where, notes)
+    _say_markers(_marker_totals(marked.values()), where, notes)
     if any(v is None for r in body for v in r):
         _check_uncomputed_formulas(path, ws.title, data_start - 2)
     frame = pd.DataFrame(body, columns=header, index=file_rows_index(kept))
@@ -928,8 +913,7 @@ def _shown_delimiter(d: str) -> str:
 def read_table(path: str | Path, notes: list[str] | None = None, row_names: list | None = None,
                text_columns: tuple[str, ...] = (), items=None, names_row: int | None = None,
                reading: list | None = None, names_option: Option = Option.NAMES_ROW, listed=None,
-               first_data_row: int | None = None, cautions: list | None = None,
-               written: list | None = None) -> pd.DataFrame:
+               first_data_row: int | None = None, cautions: list | None = None) -> pd.DataFrame:
     """A delimited text file as a DataFrame, its rows indexed by their lines (data.moments.file_rows_index).
     ``notes`` receives what was done to read it that the report should mention (empty fields dropped at the ends
     of rows, a row-name column); ``row_names`` receives the row-name column's values (a Series of text) when the
@@ -937,8 +921,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     ``names_option``; ``reading``
     receives how the text was read (:class:`TextReading`); ``first_data_row``: the line where the rows of data start,
     the lines between it and the column names not read; ``cautions`` receives those lines when they look like the
-    rows of answers below them (:class:`SkippedAnswers`); ``written`` receives the cells of the item columns written
-    as a word of no answer among the markers ('N/A'; :func:`_marker_items`), as data.non_answers.NonAnswer."""
+    rows of answers below them (:class:`SkippedAnswers`)."""
     path = Path(path)
     raw = input_bytes(path, "data file", DataError, MAX_TEXT_BYTES)
     if not raw.strip():
@@ -1015,7 +998,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
         _check_dotted_thousands(frame, raw, header, path, notes)
         _check_decimal_points(frame, str(path), text_columns)
     _keep_number_spellings(frame, raw)
-    _note_missing_markers(raw, header, path, notes, frame, _marker_items(header, items, text_columns), written)
+    _note_missing_markers(raw, header, path, notes, frame)
     empty = widest - len(header)
     if empty and notes is not None:
         notes.append(f"{path}: empty fields at the end of the lines (a delimiter after the last value) were ignored")
@@ -1305,55 +1288,22 @@ _MARKER = re.compile(r"(?:^|[,;\t|])\s*\"?(?:" + "|".join(map(re.escape, MISSING
 
 
 def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list[str] | None,
-                          frame: pd.DataFrame | None = None, items: frozenset = frozenset(),
-                          written: list | None = None) -> None:
+                          frame: pd.DataFrame | None = None) -> None:
     """A note naming the cells written as a marker of no answer ('.', 'NA', ...), which are read as empty cells: the
     tool's messages ask for empty cells, so a file of markers should say how it was read (new-user trial); each
-    column's markers kept in ``frame.attrs`` (:data:`MARKED`).  In the item columns ``items``, the markers that are
-    words of no answer ('N/A') go to ``written`` instead (:func:`_words_of_no_answer`)."""
+    column's markers kept in ``frame.attrs`` (:data:`MARKED`)."""
     if notes is None or not _MARKER.search(raw.body):
         return
     cells = raw.frame()
     marked = {}  # column -> {marker: cells}, counted once for the note and the column's record
-    in_note = {}
     for k, name in enumerate(header):
         stripped = cells.iloc[:, k].str.strip()
-        hit = stripped.isin(MISSING_MARKERS)
-        counted = stripped[hit].value_counts(sort=False)
+        counted = stripped[stripped.isin(MISSING_MARKERS)].value_counts(sort=False)
         if len(counted):
             marked[name] = {str(m): int(n) for m, n in counted.items()}
-            said = _words_of_no_answer(name, stripped[hit], items, written)
-            in_note[name] = {m: n for m, n in marked[name].items() if m not in said}
-    _say_markers(_marker_totals(in_note.values()), path, notes)
+    _say_markers(_marker_totals(marked.values()), path, notes)
     if frame is not None and marked:
         frame.attrs[MARKED] = marked
-
-
-def _marker_items(header: list, items, text_columns=()) -> frozenset:
-    """The columns (of ``header``) whose markers that are words of no answer are read as the file's words of no answer
-    (data.non_answers): the model's items (``items``; None, no model yet: every named column but ``text_columns``)."""
-    if items is not None:
-        return frozenset(str(x) for x in items)
-    return frozenset(str(h) for h in header if h and h not in text_columns)
-
-
-def _words_of_no_answer(column, cells: pd.Series, items: frozenset, written: list | None) -> set[str]:
-    """The markers among ``cells`` (a column's cells written as a marker of no answer, on the rows' index) that are
-    words saying no answer ('N/A', 'NA': data.non_answers.says_no_answer), in an item column (``items``), each as a
-    data.non_answers.NonAnswer appended to ``written``: a file's 'N/A' is named first and in the methods text, as the
-    same cell of a data frame is.  '.', 'NaN' (a program's empty cell) stay a note.  Returns the markers taken."""
-    if written is None or str(column) not in items:
-        return set()
-    from cfa_tool.data.non_answers import NonAnswer, NonAnswerKind
-
-    said = set()
-    numbers = row_numbers(cells)
-    for marker in dict.fromkeys(cells.tolist()):
-        if says_no_answer(marker):
-            hit = (cells == marker).to_numpy()
-            written.append(NonAnswer(NonAnswerKind.WRITTEN, column, marker, None, tuple(int(r) for r in numbers[hit])))
-            said.add(marker)
-    return said
 
 
 #: the key of DataFrame.attrs that keeps, for each column, the markers of no answer its cells were written as and
