@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import os
+from collections import Counter
 from contextlib import contextmanager
 from dataclasses import replace
 from types import SimpleNamespace
@@ -1402,9 +1403,14 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
 def _described(result: FitResult, spec: Spec, groups: tuple[str, ...] | None, ordinal_items=()) -> FitResult:
     """The result with the description of exactly the model fitted (for the methods paragraph).  ``ordinal_items``:
     the ordinal items' names, or a mapping of each to its number of thresholds (pipeline.ordinal.threshold_counts),
-    which decides whether a later group's residual variance is free (model.parameters); names alone count as one
-    threshold each."""
-    counts = ordinal_items if isinstance(ordinal_items, dict) else dict.fromkeys(ordinal_items, 1)
+    which decides whether a later group's residual variance is free (model.parameters); for names alone, the
+    thresholds the fit estimated in its first group (one when it has none: a fit of one group)."""
+    if isinstance(ordinal_items, dict):
+        counts = ordinal_items
+    else:  # names alone: the thresholds the fit estimated say how many each item has (fit and compare pass names)
+        first = groups[0] if groups else None
+        fitted = Counter(r.variables[0] for r in result.estimates if r.kind == "threshold" and r.group == first)
+        counts = {x: fitted.get(x) or 1 for x in ordinal_items}
     items = tuple(sorted(counts.items())) if groups is not None else None
     return replace(result, description=_description(spec, groups, items), data=_with_coding(result.data, spec))
 

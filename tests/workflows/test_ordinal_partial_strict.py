@@ -65,3 +65,22 @@ def test_a_freeing_the_model_cannot_take_is_not_proposed():
     counts["q2"] = 4  # with four thresholds the same freeing is a free parameter: kept
     kept = _buildable_first((pinned, other), spec, classes, exempt, ("north", "south"), counts)
     assert kept == (pinned, other)
+
+
+def test_a_plain_fit_and_a_comparison_declaring_the_same_freeing_are_described():
+    # the same freeing declared in a model file ('noninvariant intercept(q2), variance(q2)' with 'invariance strict')
+    # stopped a plain fit and a comparison with the same error at the description of the model fitted: they passed
+    # the ordinal items' names alone, read as one threshold each (review of s13's ordinal fix: its neighbours)
+    import cfa_tool
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    rng = np.random.default_rng(5)
+    data = pd.concat([_draw(rng, 900).assign(site="north"), _draw(rng, 900, 0.8, 2.0).assign(site="south")],
+                     ignore_index=True)
+    declared = MODEL + "invariance strict\nnoninvariant intercept(q2), variance(q2)\n"
+    fitted = cfa_tool.fit(declared, data, group="site")
+    rows = {(p.kind, p.variables, p.group): p for p in fitted.estimates}
+    assert rows[("residual_variance", ("q2",), "south")].free and not rows[("residual_variance", ("q3",), "south")].free
+    assert "except the intercept of q2 and the residual variance of q2" in " ".join(methods_paragraph(fitted).split())
+    compared = cfa_tool.compare([declared, MODEL + "invariance strict\n"], data, group="site")
+    assert len(compared.results) == 2
