@@ -78,6 +78,11 @@ STOP_CAP = "the search reached its limit of {cap} freed parameters at this step"
 STOP_NOT_SIGNIFICANT = ("no equality's score test is significant at the level the steps are tested at, so these data "
                         "point to none to free")
 STOP_LAST_EQUALITY = "freeing another equality would leave the step nothing to test"
+#: review s13: the candidates the model cannot free (_buildable_first) had made the search say that nothing was left
+#: to free or that no score test was significant
+STOP_PINNED = ("the equalities whose score tests remain cannot be freed in this model (an ordinal item's residual "
+               "variance stays fixed while its intercept differs and it has one threshold; Wu & Estabrook 2016), and "
+               "no other equality has a significant score test")
 #: a step whose model adds no equality to the one before (every parameter of its class declared or freed): untested
 STOP_UNTESTED = "the step adds no equality to test (0 degrees of freedom), so it cannot show that invariance holds"
 #: The configural model is judged on its own fit by these indices, against the report's guide values
@@ -443,8 +448,11 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 culprits = tuple(ladder.constraint_tests(est, kinds, result.robust is not None)) if kinds else ()
             culprits = _one_per_constraint(tuple(c for c in culprits if _may_free(c, exceptions, level_spec, kinds)),
                                            labels)
+            pinned: tuple[ModificationIndex, ...] = ()  # the largest tests of freeings the model cannot take
             if partial != "none" and not holds:  # only a freeing the model can take is proposed
-                culprits = _buildable_first(culprits, spec, classes, exceptions, labels, ordinal_items)
+                buildable = _buildable_first(culprits, spec, classes, exceptions, labels, ordinal_items)
+                pinned, culprits = culprits[:len(culprits) - len(buildable)], buildable
+            significant_pinned = bool(pinned) and dist.chi2_sf(pinned[0].index, 1) < alpha
             if holds:
                 stopped = STOP_HOLDS
             elif untested:
@@ -452,11 +460,11 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             elif partial == "none":
                 stopped = STOP_OFF
             elif not culprits:
-                stopped = STOP_NOTHING_LEFT
+                stopped = STOP_PINNED if pinned else STOP_NOTHING_LEFT
             elif test is not None and test.df_difference <= 1:
                 stopped = STOP_LAST_EQUALITY
             elif not dist.chi2_sf(culprits[0].index, 1) < alpha:  # the largest score test: not significant
-                stopped = STOP_NOT_SIGNIFICANT
+                stopped = STOP_PINNED if significant_pinned else STOP_NOT_SIGNIFICANT
             elif len(freed_here) >= MAX_FREED_PER_STEP:
                 stopped = STOP_CAP.format(cap=MAX_FREED_PER_STEP)
             if progress is not None:
@@ -501,7 +509,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                             f"set is likely to fit these data by chance")
         if step.level != "configural" and not step.holds and (
                 step.stopped in (STOP_NOTHING_LEFT, STOP_CAP.format(cap=MAX_FREED_PER_STEP), STOP_NOT_SIGNIFICANT,
-                                 STOP_LAST_EQUALITY, STOP_UNTESTED)):
+                                 STOP_LAST_EQUALITY, STOP_UNTESTED, STOP_PINNED)):
             warnings.append(f"the search at the {step.level} step stopped without the step holding: {step.stopped}")
     # rows left out for a gap: a caution first when many were (after an inadmissible solution's), else a note
     left_out, left_notes = _rows_left_out(steps[0].result)

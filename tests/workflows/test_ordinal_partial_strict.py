@@ -84,3 +84,18 @@ def test_a_plain_fit_and_a_comparison_declaring_the_same_freeing_are_described()
     assert "except the intercept of q2 and the residual variance of q2" in " ".join(methods_paragraph(fitted).split())
     compared = cfa_tool.compare([declared, MODEL + "invariance strict\n"], data, group="site")
     assert len(compared.results) == 2
+
+
+def test_a_search_whose_candidates_the_model_cannot_free_says_so(monkeypatch):
+    # review s13: when the filter of freeings the model can take dropped every candidate, the search said that one
+    # loading and one intercept per factor must stay equal (or that no test was significant), which was not why it
+    # stopped.  Holzinger & Swineford (1939) by school: the scalar step fails (x3's intercept, a significant test);
+    # with every candidate taken as one the model cannot free, the stop names that reason.
+    import cfa_tool.workflows.invariance as ladder
+    from tests.conftest import THREE_FACTORS, holzinger_swineford
+
+    monkeypatch.setattr(ladder, "_buildable_first", lambda culprits, *args: ())
+    result = invariance(THREE_FACTORS, holzinger_swineford(), "school", partial="auto")
+    scalar = next(s for s in result.steps if s.level == "scalar")
+    assert not scalar.holds and scalar.stopped == ladder.STOP_PINNED
+    assert any(ladder.STOP_PINNED in w for w in result.warnings)
