@@ -143,8 +143,9 @@ class CheckResult(Presentable):
             read += f", {self.zero_weight} of weight 0 (left out)"
         read = (f"{read}, {self.without_group} without a group label (left out), {self.rows} with one:"
                 if self.without_group else f"{read},")
-        odd = (f" (and {self.complete_by_odd_values} complete only if the values that look like no answers, named "
-               f"above, are answers)" if self.complete_by_odd_values else "")
+        # codes for no answer, typing errors or a totals row: whatever the cautions above call them (review s13)
+        odd = (f" (and {self.complete_by_odd_values} complete only if the odd values named above are answers)"
+               if self.complete_by_odd_values else "")
         lines.append(f"Rows: {read} {self.complete} complete{odd}, {self.with_gaps} with missing answers "
                      f"({'used through pairwise present rows for ordinal items' if self.ordinal else 'used by full-information ML'}, "
                      f"the default), {self.empty} with no answer to any model variable"
