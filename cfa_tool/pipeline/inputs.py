@@ -549,7 +549,8 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     if row_naming(loaded.frame) is not RowNaming.FILE_ROW:
         result = replace(result, data=replace(result.data, row_naming=row_naming(loaded.frame)))
     codes = missing_codes_option(missing_codes)
-    items = set(result.observed)
+    # the missing-data helpers' cells read as missing too: they enter the likelihood as the items do (review s13)
+    items = set(result.observed) | set(getattr(result.method, "helpers", None) or ())
     marked = tuple(f for f in loaded.non_answers if f.column in items)
     odd = tuple(o for o in loaded.odd_values if items.intersection(o.columns))
     if not codes and not marked and not odd:

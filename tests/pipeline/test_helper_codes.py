@@ -75,3 +75,17 @@ def test_a_helper_of_dates_or_true_false_is_refused_as_a_helper(coded, tmp_path,
     assert code == 2 and "holds text ('south' in row 2, and" in err  # the file's row 2: its first row of data
     with pytest.raises(OptionError, match=r"holds text \('south' in index label 0, and"):
         cfa_tool.fit(MODEL, dated, missing_helpers="district")
+
+
+def test_words_of_no_answer_in_a_helper_are_said_in_the_methods_text(frame, tmp_path):  # noqa: F811
+    # review s13: "don't know" in a helper was read as missing (the helper enters the likelihood as an item does) but
+    # neither the methods text nor the data summary said so, as they say it for the items
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    out = frame[["y1", "y2", "y3", "y4", "age"]].astype(object)
+    out.loc[out.index[[2, 7]], "age"] = "don't know"
+    path = tmp_path / "answers.csv"
+    out.to_csv(path, index=False)
+    result = cfa_tool.fit(MODEL, path, missing_helpers="age")
+    assert [(f.column, f.value, len(f.rows)) for f in result.data.non_answers] == [("age", "don't know", 2)]
+    assert "treated as missing ('don't know' in age)" in " ".join(methods_paragraph(result).split())
