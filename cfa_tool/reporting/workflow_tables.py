@@ -858,7 +858,12 @@ def bootstrap_report(boot) -> Report:
     kept = not_admissible_sentence([(boot.inadmissible, boot.converged, boot.inadmissible_named, "")], "resamples",
                                    "the intervals, which are of the estimates' sampling distribution, such solutions "
                                    "included")
-    return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", _fit_notice(result), tuple(lines), (table,),
+    if not boot.intervals:  # a model fixing every parameter: nothing estimated, no interval (an empty table before)
+        lines.append("The model fixes every parameter, so there are no estimates to give intervals for; the resamples "
+                     "serve the test of the stated values" + (" (the Bollen-Stine p-value above)."
+                                                              if boot.bollen_stine_p is not None else "."))
+    return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", _fit_notice(result), tuple(lines),
+                  (table,) if boot.intervals else (),
                   tuple(result.warnings), (HIGH_STAKES_NOTE,), warnings=((kept,) if kept else ()) + ((few,) if few else ()))
 
 

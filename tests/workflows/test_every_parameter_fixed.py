@@ -89,3 +89,14 @@ def test_a_step_that_adds_no_equality_says_so():
 
     row = report_of(result).tables[0].rows[0]
     assert row[1] == "nothing: the step adds no equality" and row[3] == "" and row[4] == ""
+
+
+def test_the_bootstrap_of_a_fully_fixed_model_says_there_is_nothing_to_interval():
+    # the Bollen-Stine p of the stated values is the bootstrap's one figure; the intervals table was printed empty
+    from cfa_tool.reporting.reports import report_of
+
+    boot = cfa_tool.bootstrap(POPULATION, _answers(), replications=60, seed=2, workers=1)
+    report = report_of(boot)
+    assert not [t for t in report.tables if t.key == "bootstrap_intervals"]
+    assert any(line.startswith("The model fixes every parameter, so there are no estimates to give intervals for")
+               for line in report.lines)
