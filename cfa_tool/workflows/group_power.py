@@ -28,7 +28,7 @@ from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.plain import clean
 from cfa_tool.views import Presentable
 from cfa_tool.workflows.group_population import GroupPopulation, designs_of, group_population
-from cfa_tool.workflows.invariance import LEVELS, NormalLadder, rejected_by_test, spec_of_level
+from cfa_tool.workflows.invariance import LEVELS, NormalLadder, ref_kind, rejected_by_test, spec_of_level
 from cfa_tool.workflows.nesting import NESTING_TOLERANCE
 from cfa_tool.workflows.parallel import run_tasks
 
@@ -152,6 +152,14 @@ def _ladder_of(spec: Spec, highest: str) -> tuple[tuple[str, Spec], ...]:
     return tuple(out)
 
 
+def _statement_of(difference, statements):
+    """The reference of the 'in group' statement among ``statements`` ('start' or 'fix' settings) that gives a
+    group's population ``difference`` (group_population.GroupDifference), or None."""
+    word = ref_kind(difference.kind)
+    return next((r for s in statements for r in s.refs if r.group == difference.group and r.kind == word
+                 and sorted(r.names) == sorted(difference.variables)), None)
+
+
 def _differences_tested(spec: Spec, population: GroupPopulation, highest: str) -> None:
     """An error at the 'in group' statement whose population difference only a step beyond ``highest`` tests (an
     intercept with the ladder stopping at metric, a residual variance before strict): up to ``highest`` those
@@ -163,10 +171,8 @@ def _differences_tested(spec: Spec, population: GroupPopulation, highest: str) -
         level = tested_at.get(d.kind)
         if level is None or [name for name, _, _ in LEVELS].index(level) <= stop:
             continue
-        word = {"residual_variance": "variance", "residual_covariance": "covariance"}.get(d.kind, d.kind)
-        ref = next((r for s in spec.starts + spec.fixed for r in s.refs if r.group == d.group and r.kind == word
-                    and sorted(r.names) == sorted(d.variables)), None)
-        what = f"{ref}" if ref is not None else f"{word}({', '.join(d.variables)}) in group {d.group}"
+        ref = _statement_of(d, spec.starts + spec.fixed)
+        what = f"{ref}" if ref is not None else f"{ref_kind(d.kind)}({', '.join(d.variables)}) in group {d.group}"
         message = (f"{what} makes group '{d.group}' differ from '{population.labels[0]}' ({d.value:g} against "
                    f"{d.reference_value:g}), which only the {level} step tests, and {check.Option.HIGHEST_LEVEL} "
                    f"{highest} stops before it: up to {highest} the parameter is free in each group, so the difference "
@@ -181,9 +187,7 @@ def _fixed_differences(spec: Spec, population: GroupPopulation) -> None:
     every 'fix' (only 'start' values are population values alone, :func:`_ladder_of`), so each model fitted holds
     the difference and no step tests it; a plan with it would report a false-alarm rate where the groups differ."""
     for d in population.differences:
-        word = {"residual_variance": "variance", "residual_covariance": "covariance"}.get(d.kind, d.kind)
-        ref = next((r for s in spec.fixed for r in s.refs if r.group == d.group and r.kind == word
-                    and sorted(r.names) == sorted(d.variables)), None)
+        ref = _statement_of(d, spec.fixed)
         if ref is None:
             continue
         message = (f"'fix' holds {ref} at {d.value:g} (against {d.reference_value:g} in group "

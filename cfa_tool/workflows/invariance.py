@@ -945,7 +945,7 @@ def _exempts_a_class_of(ref: ParameterRef, classes: tuple[str, ...]) -> bool:
 def search_exemption(candidate: ModificationIndex) -> ParameterRef:
     """The exemption the partial search makes of a score test: no line of the model file (the search chose it), so
     no error about it can point at the researcher's file."""
-    return ParameterRef(_ref_kind(candidate.kind), _ref_names(candidate), None)
+    return ParameterRef(ref_kind(candidate.kind), _ref_names(candidate), None)
 
 
 def _buildable_first(culprits: tuple[ModificationIndex, ...], spec: Spec, classes: tuple[str, ...],
@@ -972,13 +972,15 @@ def _ref_names(candidate: ModificationIndex) -> tuple[str, ...]:
     return candidate.variables[:1] if candidate.kind == "threshold" else candidate.variables
 
 
-def _ref_kind(kind: str) -> str:
+def ref_kind(kind: str) -> str:
+    """The word a model statement names a parameter kind by (residual variances and covariances as variance(x),
+    covariance(x, y))."""
     return {"residual_variance": "variance", "residual_covariance": "covariance"}.get(kind, kind)
 
 
 def _may_free(candidate: ModificationIndex, exceptions: list[ParameterRef], spec: Spec, kinds: tuple[str, ...]) -> bool:
     """Keep at least one loading and one intercept per factor held equal, so factor scales and means stay comparable."""
-    key = (_ref_kind(candidate.kind), _ref_names(candidate))
+    key = (ref_kind(candidate.kind), _ref_names(candidate))
     if any((r.kind, r.names) == key for r in exceptions):
         return False
     if candidate.kind == "threshold":
