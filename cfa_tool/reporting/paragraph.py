@@ -728,14 +728,14 @@ def _keyed_sum_words(rows) -> str:
     return f", with {_names(reversed_items)} reversed in the sums ({why})"
 
 
-def _negative_count(result, methods, groups: list) -> str:
-    """How many standardized loadings of the items are negative: '6 negative', with groups '6 negative in each group'
-    or 'negative: 6 in A and 5 in B' (the rows of every group counted together would read as one group's)."""
-    rows = [r for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed
-            and r.variables[0] not in methods and r.standardized < 0]
+def _negative_count(rows, groups: list) -> str:
+    """How many of the items' standardized loadings (``rows``, estimate rows) are negative: '6 negative', with groups
+    '6 negative in each group' or 'negative: 6 in A and 5 in B' (the rows of every group counted together would read
+    as one group's)."""
+    negative = [r for r in rows if r.standardized < 0]
     if not groups:
-        return f"{len(rows)} negative"
-    counts = [sum(r.group == g for r in rows) for g in groups]
+        return f"{len(negative)} negative"
+    counts = [sum(r.group == g for r in negative) for g in groups]
     if len(set(counts)) == 1:
         return f"{counts[0]} negative in each group"
     return "negative: " + _list([f"{n} in {g}" for n, g in zip(counts, groups)])
@@ -908,8 +908,9 @@ def methods_paragraph(result) -> str:
         parts.append(weak)
     parts.append(_fit_sentence(result))
     methods = set(getattr(result.description, "method_factors", ()) or ())
-    loadings = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed
-                and r.variables[0] not in methods]
+    item_loadings = [r for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed
+                     and r.variables[0] not in methods]
+    loadings = [r.standardized for r in item_loadings]
     second = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] not in result.observed]
     blocks = getattr(result, "exploratory", ())
     groups = [g.label for g in result.groups] if result.multigroup else []
@@ -923,7 +924,7 @@ def methods_paragraph(result) -> str:
         if negative:  # reverse-keyed items: a range from -.76 to .81 would read as if -.76 were the weakest
             sizes = [abs(v) for v in loadings]
             parts.append(f"Standardized loadings {which}ranged from {unit(min(sizes), 2)} to {unit(max(sizes), 2)} in "
-                         f"absolute value{across} ({_negative_count(result, methods, groups)}).")
+                         f"absolute value{across} ({_negative_count(item_loadings, groups)}).")
         else:
             parts.append(f"Standardized loadings {which}ranged from {unit(min(loadings), 2)} to "
                          f"{unit(max(loadings), 2)}{across}.")
