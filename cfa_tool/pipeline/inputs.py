@@ -246,10 +246,17 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         if loaded.value_labels else ()
     frame = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)  # said where used (labels.label_notes)
     items = ItemColumns(frame, spec.observed_names, values)  # the items' codes are kept as they are
-    found = _within_declared_scales(odd_values(frame, spec.observed_names, row_numbers(frame), items.values), spec,
-                                    frame)
     return spec, replace(loaded, frame=frame, cautions=cautions + beyond, items=items,
-                         odd_values=found + summary_rows_kept(loaded, frame, spec.observed_names, found)), notes
+                         odd_values=_screened_items(loaded, frame, spec, items.values)), notes
+
+
+def _screened_items(loaded: LoadedData, frame: pd.DataFrame, spec: Spec, values: np.ndarray | None = None) -> tuple:
+    """The values of the model's items among ``frame``'s rows that look like no answers (data.odd_values), those on a
+    scale the model declares left out (:func:`_within_declared_scales`), with the rows of sums or means of the whole
+    file that the row filters kept (:func:`summary_rows_kept`): one screen for the rows read and, with groups, for
+    the rows with a group label (:func:`analysed_odd_values`)."""
+    found = _within_declared_scales(odd_values(frame, spec.observed_names, row_numbers(frame), values), spec, frame)
+    return found + summary_rows_kept(loaded, frame, spec.observed_names, found)
 
 
 def _within_declared_scales(found: tuple, spec: Spec, frame: pd.DataFrame) -> tuple:
@@ -975,7 +982,7 @@ def analysed_odd_values(loaded: LoadedData, spec: Spec, group: str | None) -> Lo
     analysed = _labelled(loaded.frame, group)
     if len(analysed) == len(loaded.frame):
         return loaded
-    return replace(loaded, odd_values=odd_values(analysed, spec.observed_names, row_numbers(analysed)))
+    return replace(loaded, odd_values=_screened_items(loaded, analysed, spec))
 
 
 @contextmanager

@@ -26,3 +26,17 @@ def test_a_value_on_the_declared_scale_is_no_typing_error():
     assert len(_outside(plain)) == 1 and _outside(plain)[0].kind is ProblemKind.VALUES_NOT_ANSWERS
     declared = cfa_tool.fit(MODEL + "reversed on_time on 1 to 7\n", data)
     assert _outside(declared) == []
+
+
+def test_the_declared_scale_holds_also_for_the_rows_with_a_group_label():
+    # the rows with a group label are screened again (a row without one is left out); that screen ignored the
+    # declared scale, so the 7s were flagged again as soon as one row had no group (reread of s13)
+    import pandas as pd
+
+    data = pd.read_csv(resource_dir("demo") / "rider_survey.csv")
+    data.loc[[3, 50], "on_time"] = 7
+    data.loc[100, "district"] = None
+    data.loc[[7, 60, 90], "clean"] = -99  # another finding, so that the rows with a group label are screened again
+    declared = cfa_tool.fit(MODEL + "reversed on_time on 1 to 7\n", data, group="district")
+    assert _outside(declared) == []
+    assert len(_outside(cfa_tool.fit(MODEL, data, group="district"))) == 1
