@@ -9,7 +9,7 @@ from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.options import Option
 from cfa_tool.reporting.numbers import num, unit, word_list
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
-from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT, WHY_NOT_SCORED_COLUMN
+from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT, WHY_NOT_SCORED_COLUMN, factor_methods
 from cfa_tool.scoring.methods import (DETERMINACY_CAUTION, INDIVIDUAL_DECISIONS, ITEM_METHODS, LINEAR_METHODS,
                                       ScoreMethod, Unscored)
 
@@ -154,7 +154,7 @@ def _precision_of(result, q) -> tuple[ScoreMethod | None, tuple]:
     whose precision has its own table (:func:`item_sum_precision_table`)."""
     from cfa_tool.scoring.quality import precision_of
 
-    method = next((m for m in result.methods if m not in ITEM_METHODS), None)
+    method = next(iter(factor_methods(result.methods)), None)
     return method, precision_of(q, method) if method is not None else ()
 
 

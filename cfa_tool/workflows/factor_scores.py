@@ -547,8 +547,9 @@ class ScoreResult(Presentable):
 
     @property
     def rows_scored(self) -> int:
-        """Lines with at least one score."""
-        return int(self.table[score_columns(self.methods, self.factors)].notna().any(axis=1).sum())
+        """Lines with at least one score: every line but those the why_not_scored column gives a reason
+        (:func:`_with_why_not_scored` fills it on exactly the lines without any score)."""
+        return self.rows - sum(self.not_scored.values())
 
     @property
     def not_scored(self) -> dict[NotScored, int]:
