@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from functools import cached_property
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -395,6 +396,11 @@ class FitResult(Presentable):
         return pd.DataFrame(self.parameter_covariance, index=labels, columns=labels)
 
     def held_equal_across_groups(self) -> frozenset[tuple]:
+        """:attr:`_held_equal`, worked out once per result (every group's tables and the JSON read it)."""
+        return self._held_equal
+
+    @cached_property
+    def _held_equal(self) -> frozenset[tuple]:
         """(kind, variables, group) of each free estimate of a multi-group fit that is one parameter shared with
         another group (an 'invariance' level or an 'equal across groups' statement): a shared parameter is labelled
         once, in the first group that has it (model.parameters), so a later group's row has no label of its own,
