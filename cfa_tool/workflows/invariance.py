@@ -876,7 +876,7 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
 
     q, k = len(theta), len(found)
     I, J = vech_indices(model.p)
-    complete = not hasattr(likelihood, "patterns")
+    complete = likelihood.complete_data
     information = np.zeros((q + k, q + k))  # the index's own: h comes from it
     bread = information if complete else np.zeros((q + k, q + k))  # L comes from it
     meat = np.zeros((q + k, q + k))
