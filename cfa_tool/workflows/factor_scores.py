@@ -378,6 +378,11 @@ class _ItemParts:
     not_summed: list
     summary: ItemSumSummary
 
+    @property
+    def summed(self) -> list[int]:
+        """The factors that get a sum (no reason in :attr:`not_summed`)."""
+        return [j for j, why in enumerate(self.not_summed) if why is None]
+
 
 def _item_parts(model, spec, fit_data, omegas: dict, rule: ItemSumRule, categories=None) -> _ItemParts:
     """One group's :class:`_ItemParts` (``model``: its ScoringModel; ``fit_data``: the fit's DataSummary, whose
@@ -475,7 +480,7 @@ def _score_group(model, rows: np.ndarray, chosen, ordinal: bool, parts: _ItemPar
     for meth, values in ((ScoreMethod.ITEM_SUM, sums.sums), (ScoreMethod.ITEM_MEAN, sums.means)):
         if meth in chosen:
             out[meth] = (values, none, sums.unscored)
-    summed = [j for j, why in enumerate(parts.not_summed) if why is None]
+    summed = parts.summed
     return out, tuple(int(sums.prorated[j]) for j in summed)
 
 
@@ -770,7 +775,7 @@ def _item_sum_precision(model, parts: _ItemParts, chosen) -> tuple[Precision, ..
     from cfa_tool.scoring.quality import item_sum_precision, keyed_sum_sds
 
     summary = parts.summary
-    summed = [j for j, why in enumerate(parts.not_summed) if why is None]
+    summed = parts.summed
     sds = keyed_sum_sds(model, parts.keys)
     return item_sum_precision(summary.factors, [len(items) for items in summary.items], sds[summed], summary.omega,
                               chosen)
