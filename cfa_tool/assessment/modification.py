@@ -189,12 +189,12 @@ def candidate_layout(cands: list[Candidate], p: int, m: int) -> CandidateLayout:
 
 def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]],
                 layouts: list[CandidateLayout] | None = None, mats: list | None = None,
-                factor: ScaledFactor | None = None) -> ModificationIndices:
+                factor: ScaledFactor | None = None, joint=None) -> ModificationIndices:
     """MI and EPC for each group's candidate entries (``candidates[g]``; ``layouts[g]`` their
     :func:`candidate_layout`, made here when not given); ``mats``: each group's model matrices at theta when the
     caller has them (their implied moments computed once); ``factor``: with complete data, the
     :func:`~cfa_tool.numerics.linalg.scaled_factor` of the information at theta when the caller has made it (for the
-    rank check and the standard errors)."""
+    rank check and the standard errors); ``joint``: with missing-data helpers, see :func:`helper_modification_indices`."""
     table = model.table
     if layouts is None:
         layouts = [candidate_layout(c, model.p, model.m) for c in candidates]
@@ -206,7 +206,7 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
         parts = [(g, weight, mats[g], likelihood.candidate_scores(theta, g, layouts[g].bases))
                  for g, weight in enumerate(likelihood.weights) if candidates[g]]
     else:
-        H_tt, parts = _chunked_blocks(model, theta, likelihood, candidates, layouts, mats)
+        H_tt, parts = _chunked_blocks(model, theta, likelihood, candidates, layouts, mats, joint)
     # one factorisation for every group and chunk (the caller's, for complete data)
     forms = inverse_quadratic_forms(H_tt, factor if hasattr(likelihood, "candidate_scores") else None)
     n = likelihood.n_total
@@ -250,16 +250,19 @@ def candidate_arrays(cands: list[Candidate]) -> tuple[np.ndarray, np.ndarray, np
 
 
 def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]],
-                    layouts: list[CandidateLayout], matrices: list):
+                    layouts: list[CandidateLayout], matrices: list, joint=None):
     """The same blocks from full derivative matrices, in chunks (incomplete data; every group's information is
-    summed before the blocks are used, so they are held)."""
+    summed before the blocks are used, so they are held).  ``joint``: the model with missing-data helpers
+    (estimation.auxiliary.JointModel) whose likelihood and ``theta`` these are; a candidate is an entry of the
+    model's matrices, so its derivative is the model's with zeros in the helpers' rows and columns, and the
+    information is the joint one, the helpers' parameters among the free ones."""
     q = len(theta)
     H_tt = np.zeros((q, q))
     parts = []
     for g, weight in enumerate(likelihood.weights):
         mats = matrices[g]
         group = likelihood.group_parts(theta, g)
-        t_sigma, t_mu = model.jacobian(theta, g)
+        t_sigma, t_mu = (model if joint is None else joint).jacobian(theta, g)
         H_tt += weight * group.information(t_sigma, t_mu)
         if not candidates[g]:
             continue
@@ -267,10 +270,20 @@ def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candi
         blocks = []
         for sl in lay.chunks:  # bounded memory for models with thousands of candidates
             c_sigma, c_mu = entry_derivatives(mats, lay.codes[sl], lay.rows[sl], lay.cols[sl])
+            if joint is not None:
+                c_sigma, c_mu = _with_helpers(c_sigma, c_mu, joint.r)
             blocks.append((group.gradient(c_sigma, c_mu), group.information(c_sigma, c_mu, t_sigma, t_mu),
                            group.information_diagonal(c_sigma, c_mu)))
         parts.append((g, weight, mats, blocks))
     return H_tt, parts
+
+
+def _with_helpers(d_sigma: np.ndarray, d_mu: np.ndarray, r: int) -> tuple[np.ndarray, np.ndarray]:
+    """Derivatives over the items padded with zeros for ``r`` helpers (their moments do not move with the entry)."""
+    E, p, _ = d_sigma.shape
+    padded = np.zeros((E, p + r, p + r))
+    padded[:, :p, :p] = d_sigma
+    return padded, np.concatenate([d_mu, np.zeros((E, r))], axis=1)
 
 
 def modification_indices(model: StructuredModel, theta: np.ndarray, likelihood: Objective,
@@ -284,6 +297,19 @@ def modification_indices(model: StructuredModel, theta: np.ndarray, likelihood: 
         candidates = [candidate_entries(table, exogenous, g) for g in range(table.n_groups)]
         model.derived[key] = candidates, [candidate_layout(c, model.p, model.m) for c in candidates]
     return score_tests(model, theta, likelihood, *model.derived[key], mats=mats, factor=factor)
+
+
+def helper_modification_indices(model: StructuredModel, joint, theta: np.ndarray, likelihood,
+                                exogenous: tuple[str, ...], mats: list) -> ModificationIndices:
+    """Score tests of every zero parameter that could be freed, in the fit with missing-data helpers (Graham 2003's
+    saturated correlates): ``joint`` is its estimation.auxiliary.JointModel, ``theta`` and ``likelihood`` the joint
+    fit's, ``mats`` each group's matrices of the model (not the joint ones).  The score and information of a
+    candidate are those of the joint likelihood, the helpers' means and covariances free beside the model's
+    parameters (Sorbom 1989's statistic with the patterns-fixed information of full-information ML)."""
+    table = model.table
+    candidates = [candidate_entries(table, exogenous, g) for g in range(table.n_groups)]
+    layouts = [candidate_layout(c, model.p, model.m) for c in candidates]
+    return score_tests(model, theta, likelihood, candidates, layouts, mats, joint=joint)
 
 
 def equality_score_tests(model: StructuredModel, theta: np.ndarray, likelihood: Objective,

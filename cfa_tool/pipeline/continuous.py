@@ -20,7 +20,7 @@ from cfa_tool.assessment.diagnostics import case_diagnostics, incomplete_case_di
 from cfa_tool.assessment.fit_indices import (baseline_chi_square, cfi_value, fit_indices, normal_theory_parts,
                                              rmsea_value, srmr, srmr_value)
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
-from cfa_tool.assessment.modification import ModificationIndices, modification_indices
+from cfa_tool.assessment.modification import ModificationIndices, helper_modification_indices, modification_indices
 from cfa_tool.assessment.normality import Whitened, mardia, whitened_rows
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
@@ -457,6 +457,10 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         inference = wald_inference(values, model.J, cov_theta)
         if options.modification_indices and est.auxiliary is None:
             mis = modification_indices(model, theta, likelihood, exogenous_factors(spec), mats, factor)
+        elif options.modification_indices:  # the joint likelihood's score tests, the helpers' parameters free
+            joint = est.auxiliary
+            mis = helper_modification_indices(model, joint.likelihood.model, joint.theta, joint.likelihood,
+                                              exogenous_factors(spec), mats)
     else:
         # a model that is not identified often shows itself by not converging: say so when it is the cause
         evaluation = likelihood.evaluate(theta)
@@ -516,8 +520,6 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     method = FitMethod(Estimator.MAXIMUM_LIKELIHOOD, options.test, information,
                        MissingData.LISTWISE if likelihood.complete_data else MissingData.FULL_INFORMATION,
                        helpers=est.auxiliary.names if est.auxiliary is not None else ())
-    if est.auxiliary is not None and est.converged and options.modification_indices:
-        warnings.append(HELPERS_WITHOUT_SCORE_TESTS)
     each = [r.data.ranges for r in group_results]
     if all(each):  # every group's (lowest, highest) answer per item: the lowest and highest over the groups
         extremes = np.array(each)
@@ -578,12 +580,6 @@ def _completely_at_random(likelihood: MissingDataLikelihood, labels, saturated=N
     saturated = saturated or [(gm.mean, gm.covariance) for gm in likelihood.groups]  # the items' own EM estimates
     return completely_at_random_test([(label, data, mu, sigma)
                                       for label, data, (mu, sigma) in zip(labels, likelihood.patterns, saturated)])
-
-
-#: the note of a fit with missing-data helpers, which has no modification indices
-HELPERS_WITHOUT_SCORE_TESTS = ("modification indices are not computed with missing-data helpers (auxiliary variables): "
-                               "their score tests would need the helpers' parameters beside the model's; fit without "
-                               "the helpers to see them")
 
 
 def _helper_baseline(auxiliary: AuxiliaryFit, options: FitOptions) -> tuple[float, int]:

@@ -712,6 +712,13 @@ def _completely_at_random_note(result) -> str:
             f"p {p_phrase(test.p_value)}{f' ({each})' if each else ''}.{verdict} {READING}")
 
 
+#: what the modification indices of a full-information fit of rows with gaps assume (the note under their table)
+FULL_INFORMATION_SCORE_TESTS = (
+    "With rows with gaps the indices rest on the information with the patterns of answers held fixed, which holds "
+    "when answers are missing completely at random (Kenward & Molenberghs 1998); freeing a parameter and comparing "
+    "the two fits ('cfa-tool compare') tests it when they are missing at random.")
+
+
 def modification_table(result, group: int | None = None, limit: int = 10) -> ReportTable | None:
     """The largest modification indices, for one group of a fit of several (``group``, its index; each group's
     table under its own heading, as its estimates and local fit are, so that a parameter's words need not carry its
@@ -753,6 +760,8 @@ def modification_table(result, group: int | None = None, limit: int = 10) -> Rep
         note += (f" {len(beyond)} expected residual correlation{'s are' if len(beyond) > 1 else ' is'} beyond +/-1: the "
                  "expected change is a linear approximation that fails this far from the current estimate, so only a "
                  "refit shows the value the parameter would take.")
+    if result.method.missing is MissingData.FULL_INFORMATION and not result.method.ordinal:
+        note += f" {FULL_INFORMATION_SCORE_TESTS}"
     note += (" Freeing parameters because of large modification indices capitalises on chance; a model changed that "
              "way needs confirmation in new data.")
     values = [[m.kind, names_text(m.variables), m.group or "", m.index, m.expected_change, m.standardized_expected_change]
