@@ -173,13 +173,14 @@ def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Seq
         (_, n, q), = noted
         return tuple(problems), (f"{n:g} rows for the {q} free parameters of the model{besides}, fewer than "
                                  f"{ROWS_PER_PARAMETER} "
-                                 f"per parameter ({ROWS_RULE}): estimates and fit indices of a sample this small vary "
-                                 f"much from sample to sample",)
+                                 f"per parameter ({ROWS_RULE}): with fewer rows per parameter, estimates and fit "
+                                 f"indices vary more from sample to sample",)
     each = [f"{printable(str(label))} ({n:g} rows for {q} parameters)" for label, n, q in noted]
     listed = each[0] if len(each) == 1 else f"{', '.join(each[:-1])} and {each[-1]}"
     return tuple(problems), (f"group{'s' if len(each) > 1 else ''} {listed}: fewer than {ROWS_PER_PARAMETER} rows per "
-                             f"free parameter of the group's model ({ROWS_RULE}): the estimates of a group this small, "
-                             f"and every comparison with the other groups, vary much from sample to sample",)
+                             f"free parameter of the group's model ({ROWS_RULE}): with fewer rows per parameter, a "
+                             f"group's estimates, and every comparison with the other groups, vary more from sample to "
+                             f"sample",)
 
 
 def counted_parameters(free: int, labels: Iterable[str]) -> int:

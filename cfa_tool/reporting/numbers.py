@@ -78,11 +78,14 @@ def p_phrase(p) -> str:
 
 def signed(value, digits: int = 3, beside: float | None = None) -> str:
     """A change bounded by 1 in size with its sign and without its leading zero (+.026, -.035); ``beside`` as for
-    :func:`unit`."""
+    :func:`unit`.  A change that rounds to zero keeps the sign of its direction (-.000 for -0.0002: the restricted
+    model fits worse, if by less than the digits show), and no change at all has none (.000)."""
     if missing(value):
         return ""
     text = unit(value, digits, beside)
-    return text if text.startswith("-") else "+" + text
+    if text.startswith("-"):
+        return text
+    return "-" + text if value < 0 else text if value == 0 else "+" + text
 
 
 def short(value) -> str:

@@ -50,6 +50,15 @@ def _name(name) -> str:
     return written_name(str(name))
 
 
+def _group_names(groups) -> list[str]:
+    """The groups' labels written alike: every one in double quotes when any needs them (a label with spaces or
+    punctuation), so that a list of groups does not quote some and not others (new user s14)."""
+    written = [_name(g.label) for g in groups]
+    if any(w.startswith('"') for w in written):
+        return [w if w.startswith('"') else f'"{w}"' for w in written]
+    return written
+
+
 def _names(names) -> str:
     """Names as a sentence lists them, each written by :func:`_name`."""
     return _list([_name(n) for n in names])
@@ -268,7 +277,10 @@ def _scales_in_words(chosen, every) -> str:
         if method == "marker":
             markers = (_list([f"{_name(s.marker)} for {_name(s.factor)}" for s in scales]) if len(scales) > 1
                        else _name(scales[0].marker))
-            parts.append(f"{subject} set by fixing the loading of one indicator to 1 ({markers})"
+            factors = {x.factor for x in every}
+            which = ("one indicator (for a higher-order factor, one of its factors)"
+                     if any(s.marker in factors for s in scales) else "one indicator")
+            parts.append(f"{subject} set by fixing the loading of {which} to 1 ({markers})"
                          + _keyed_markers(scales))
         elif method == "variance":
             which = "disturbance variance" if disturbance else "variance"
@@ -849,7 +861,8 @@ def methods_paragraph(result) -> str:
         return "The model did not converge, so no results are reported."
     d = result.description
     groups = (f" in {_count(len(result.groups), 'group')} defined by {_name(result.group_column)} ("
-              + "; ".join(f"{_name(g.label)}, n = {g.data.n_obs}" for g in result.groups) + ")" if result.multigroup else "")
+              + "; ".join(f"{w}, n = {g.data.n_obs}" for w, g in zip(_group_names(result.groups), result.groups)) + ")"
+              if result.multigroup else "")
     parts = []
     if d is not None:
         shape = _shape(result, d)
@@ -906,6 +919,9 @@ def methods_paragraph(result) -> str:
     weak = _weak_factor_sentence(result, "The solution")
     if weak:
         parts.append(weak)
+    small = _small_groups(result)
+    if small:  # the report's first caution, before the fit (new user s14)
+        parts.append(small)
     parts.append(_fit_sentence(result))
     methods = set(getattr(result.description, "method_factors", ()) or ())
     item_loadings = [r for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed
@@ -1199,6 +1215,23 @@ def _step_problems(steps) -> str:
             f"their fit.")
 
 
+def _small_groups(result) -> str:
+    """The groups with fewer rows than their model's free parameters (ProblemKind.SMALL_GROUP), or the sample with
+    fewer rows than the model's (SMALL_SAMPLE): the caution that opens the report, in one sentence ('' when none)."""
+    if any(p.kind is ProblemKind.SMALL_SAMPLE for p in result.problems):
+        n = next(p.value for p in result.problems if p.kind is ProblemKind.SMALL_SAMPLE)
+        return (f"The sample had fewer rows ({n:g}) than the model's free parameters, so every estimate and fit index "
+                f"rests on too few answers.")
+    small = [p for p in result.problems if p.kind is ProblemKind.SMALL_GROUP]
+    if not small:
+        return ""
+    named = _list([f"{_name(p.group)} ({p.value:g} rows)" for p in small])
+    one = len(small) == 1
+    return (f"{'Group' if one else 'Groups'} {named} had fewer rows than the free parameters of {'its' if one else 'their'}"
+            f" model, so {'its' if one else 'their'} estimates, and every comparison with the other groups, rest on "
+            f"too few answers.")
+
+
 def invariance_paragraph(result, levels) -> str:
     """The methods-and-results paragraph of an invariance ladder: the groups and rows, exactly the models of the
     ladder (what each level holds equal, ``levels`` being the ladder's (level, classes held equal, ...) rows), the
@@ -1208,7 +1241,7 @@ def invariance_paragraph(result, levels) -> str:
 
     steps = result.steps
     first = steps[0].result
-    sizes = "; ".join(f"{_name(g.label)}, n = {g.data.n_obs}" for g in first.groups)
+    sizes = "; ".join(f"{w}, n = {g.data.n_obs}" for w, g in zip(_group_names(first.groups), first.groups))
     held = {level: classes for level, classes, *_ in levels}
     ladder = []
     for step in steps:
@@ -1255,6 +1288,9 @@ def invariance_paragraph(result, levels) -> str:
     problems = _step_problems(steps)
     if problems:  # problems first: before any step reads as held
         parts.append(problems)
+    small = _small_groups(first)
+    if small:  # the report's first caution, in the paper too (new user s14)
+        parts.append(small)
     parts.append(f"The configural model {_held(steps[0])}" + (f" ({_fit_figures(first)})." if first.converged else "."))
     for k, step in enumerate(steps[1:], start=1):
         name = _capital(_LEVEL_WORDS.get(step.level, step.level))

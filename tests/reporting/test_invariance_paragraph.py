@@ -30,7 +30,7 @@ def partial_ladder(hs_data):
 
 def test_the_paragraph_names_the_ladder_the_groups_and_the_test(partial_ladder):
     text = _text(partial_ladder)
-    assert text.startswith('Measurement invariance across school (two groups: "Grant-White", n = 145; Pasteur, n = 156)')
+    assert text.startswith('Measurement invariance across school (two groups: "Grant-White", n = 145; "Pasteur", n = 156)')
     assert ("configural, metric (loadings equal across groups), scalar (loadings and intercepts equal across groups), "
             "and strict (loadings, intercepts, and error variances and covariances equal across groups)") in text
     assert "The configural model had nine indicators of three correlated factors (visual, textual, and speed)" in text
