@@ -245,7 +245,8 @@ def halves_file(args: argparse.Namespace, halves: list[tuple[str, tuple[int, ...
         return []
     from cfa_tool.data.halves import halves_text
 
-    return [(HALVES_FILE, halves_text(halves, seed, args.data), f"The rows of each half written to {args.halves_file}")]
+    return [(HALVES_FILE, halves_text(halves, seed, args.data, getattr(args, "sheet", None)),
+             f"The rows of each half written to {args.halves_file}")]
 
 
 HALF = "--half"

@@ -1,8 +1,10 @@
 """Random halves saved in a file (explore --split, replicate --data, with --halves-file) and one of them read back.
 
 The halves file is the one record of which rows went to which half: one line per row split, ``row,half,seed,
-data_file,data_sha256`` (the row's number as the data file numbers them, data.moments.row_numbers; the half's name;
-the seed that drew the halves; the data file's name and the SHA-256 of its bytes).  A half of it is analysed by
+data_file,data_sha256,sheet`` (the row's number as the data file numbers them, data.moments.row_numbers; the half's
+name; the seed that drew the halves; the data file's name and the SHA-256 of its bytes; the sheet asked for, empty
+when none was).  The halves are drawn by one rule (:func:`draw_halves`), so the seed and the rows split say which
+half each row is in, and a file whose halves are not those is refused (edited by hand, or of another seed).  A half of it is analysed by
 choosing it among the row selections (``--half FILE.csv NAME``, ``keep=[RandomHalf('FILE.csv', 'NAME')]``): the rows
 are read from the data file itself, never from a copy, and the halves file is checked against that file first: the
 same contents (the checksum), and the same rows split (the rows the data file holds after the row filters are those
@@ -25,7 +27,20 @@ from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.options import Option
 
 #: the columns of a halves file, in order
-HALVES_COLUMNS = ("row", "half", "seed", "data_file", "data_sha256")
+HALVES_COLUMNS = ("row", "half", "seed", "data_file", "data_sha256", "sheet")
+
+
+#: the names of the two halves as the commands write them, the first drawn first (explore --split; replicate --data)
+DRAWN_HALVES = (("exploration", "confirmation"), ("A", "B"))
+
+
+def draw_halves(count: int, seed: int) -> tuple[np.ndarray, np.ndarray]:
+    """The positions (in the rows' order) of the two random halves of ``count`` rows drawn with ``seed``: a random
+    permutation (numpy's default generator), its first ceil(count / 2) positions the first half (which so takes the
+    odd row), each half in the rows' order.  The one rule of explore --split and replicate --data."""
+    order = np.random.default_rng(seed).permutation(count)
+    first = (count + 1) // 2
+    return np.sort(order[:first]), np.sort(order[first:])
 
 
 @dataclass(frozen=True)
@@ -89,16 +104,17 @@ def fingerprint(path) -> str:
     return digest.hexdigest()
 
 
-def halves_text(halves: list[tuple[str, tuple[int, ...]]], seed: int, data) -> str:
+def halves_text(halves: list[tuple[str, tuple[int, ...]]], seed: int, data, sheet: str | None = None) -> str:
     """The halves file: one line per row split, in the order of the rows (``halves``: each half's name and its rows'
-    numbers, data.moments.row_numbers), each with the seed and the data file's name and checksum."""
+    numbers, data.moments.row_numbers, the first half first), each with the seed, the data file's name and checksum
+    and the sheet asked for."""
     name = Path(data).name if isinstance(data, (str, Path)) else ""
     sums = fingerprint(data)
     out = io.StringIO()
     writer = csv.writer(out, lineterminator="\n")
     writer.writerow(HALVES_COLUMNS)
     for row, half in sorted((row, half) for half, numbers in halves for row in numbers):
-        writer.writerow((row, half, seed, name, sums))
+        writer.writerow((row, half, seed, name, sums, sheet or ""))
     return out.getvalue()
 
 
@@ -113,6 +129,7 @@ class SavedHalves:
     seed: int
     data_file: str
     data_sha256: str
+    sheet: str = ""
 
     def names(self) -> tuple[str, ...]:
         return tuple(dict.fromkeys(self.halves))
@@ -125,14 +142,19 @@ def read_halves(path) -> SavedHalves:
         text = Path(path).read_text(encoding="utf-8-sig")
     except FileNotFoundError:
         raise OptionError(f"the halves file '{shown}' does not exist") from None
-    except (OSError, UnicodeDecodeError) as exc:
-        raise DataError(f"{shown}: cannot read the halves file ({exc.__class__.__name__})") from None
+    except IsADirectoryError:
+        raise OptionError(f"the halves file '{shown}' is a folder, not the CSV file --halves-file wrote") from None
+    except UnicodeDecodeError:
+        raise DataError(f"{shown}: not a halves file (not text: a workbook or another binary file; a halves file is "
+                        f"the CSV file --halves-file wrote)") from None
+    except OSError as exc:
+        raise DataError(f"{shown}: cannot read the halves file ({printable(exc.strerror or 'unreadable')})") from None
     lines = list(csv.reader(io.StringIO(text)))
     if not lines or tuple(c.strip() for c in lines[0]) != HALVES_COLUMNS:
-        earlier = bool(lines) and tuple(c.strip() for c in lines[0]) == HALVES_COLUMNS[:2]
+        earlier = bool(lines) and tuple(c.strip() for c in lines[0]) in (HALVES_COLUMNS[:2], HALVES_COLUMNS[:5])
         raise DataError(f"{shown}, line 1: " + (
-            "a halves file of an earlier version, without the seed and the data file's checksum that a half is "
-            "checked by; write the halves again (cfa-tool explore --split SEED --halves-file NEW.csv draws the same "
+            "a halves file of an earlier version, without the seed, the data file's checksum or the sheet that a half "
+            "is checked by; write the halves again (cfa-tool explore --split SEED --halves-file NEW.csv draws the same "
             "halves from as many rows)" if earlier else
             f"not a halves file (its first line must be '{','.join(HALVES_COLUMNS)}', as explore --split and "
             f"replicate --data write it with --halves-file)"))
@@ -143,7 +165,7 @@ def read_halves(path) -> SavedHalves:
         if len(cells) != len(HALVES_COLUMNS):
             raise DataError(f"{shown}, line {number}: {len(cells)} values, and a halves file has "
                             f"{len(HALVES_COLUMNS)} ({', '.join(HALVES_COLUMNS)})")
-        row, half, seed, name, sums = (c.strip() for c in cells)
+        row, half, seed, name, sums, sheet = (c.strip() for c in cells)
         if not row.isdigit() or int(row) < 1:
             raise DataError(f"{shown}, line {number}, column row: '{printable(row)}' is not a row number")
         if not half:
@@ -157,22 +179,25 @@ def read_halves(path) -> SavedHalves:
         rows.append(int(row))
         halves.append(half)
         seeds.add(int(seed))
-        data.add((name, sums))
+        data.add((name, sums, sheet))
         if len(seeds) > 1 or len(data) > 1:
             raise DataError(f"{shown}, line {number}: another seed or data file than the lines above; a halves file "
                             f"holds the halves of one split of one data file")
     if not rows:
         raise DataError(f"{shown}: the halves file lists no rows")
-    name, sums = data.pop()
-    return SavedHalves(str(path), np.asarray(rows, dtype=np.int64), tuple(halves), seeds.pop(), name, sums)
+    name, sums, sheet = data.pop()
+    return SavedHalves(str(path), np.asarray(rows, dtype=np.int64), tuple(halves), seeds.pop(), name, sums, sheet)
 
 
-def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str) -> tuple[pd.DataFrame, HalfRows]:
-    """The rows of ``frame`` (the data file's rows after the row filters) in the half ``choice`` names, and the half
-    as found; a refusal when the halves file is not that of these rows: drawn from a file of other contents (the
-    checksum), naming rows the data do not hold, or leaving rows of the data out (another selection of rows)."""
+def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str,
+              sheet: str | None = None) -> tuple[pd.DataFrame, HalfRows]:
+    """The rows of ``frame`` (the data file's rows after the row filters; ``sheet`` the sheet asked for) in the half
+    ``choice`` names, and the half as found; a refusal when the halves file is not that of these rows: drawn from a
+    file of other contents (the checksum) or another sheet, naming rows the data do not hold, or leaving rows of the
+    data out (another selection of rows), or halves that its seed does not draw from its rows (edited by hand)."""
     saved = read_halves(choice.path)
     shown = printable(str(choice.path))
+    _check_drawn(saved, shown)
     if choice.name not in saved.names():
         listed = " and ".join(f"'{printable(n)}'" for n in saved.names())
         raise OptionError(f"{shown} holds the halves {listed}, not '{printable(choice.name)}'")
@@ -184,6 +209,11 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str) -> tup
                         f"as it was when the halves were drawn), not those of {source}: give the data file the halves "
                         f"were drawn from; if that file was corrected since, write the halves again from it (cfa-tool "
                         f"explore --split {saved.seed} --halves-file NEW.csv draws the same halves from as many rows)")
+    if (sheet or "") != saved.sheet:
+        drawn = f"the sheet '{printable(saved.sheet)}'" if saved.sheet else "the first sheet (no sheet asked for)"
+        asked = f"the sheet '{printable(sheet)}'" if sheet else "the first sheet (no sheet asked for)"
+        raise DataError(f"{shown} holds the halves of {drawn} of '{printable(saved.data_file)}', and this run reads "
+                        f"{asked}: give the {Option.SHEET} of the run that drew them")
     numbers = row_numbers(frame)
     naming = row_naming(frame)
     absent = np.setdiff1d(saved.rows, numbers)
@@ -200,3 +230,18 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str) -> tup
     half = HalfRows(shown, choice.name, saved.seed, int(mask.sum()), len(numbers))
     chosen.attrs[KEPT_BY] = tuple(frame.attrs.get(KEPT_BY, ())) + (half.text,)
     return chosen, half
+
+
+def _check_drawn(saved: SavedHalves, shown: str) -> None:
+    """A refusal when the halves listed are not those :func:`draw_halves` draws with the file's seed from its rows
+    (in their order): a file edited by hand, or one whose seed was changed, would pass rows the model was chosen on
+    as rows it was not."""
+    order = np.argsort(saved.rows, kind="stable")
+    halves = np.asarray(saved.halves)[order]
+    first, second = draw_halves(len(order), saved.seed)
+    named = next((pair for pair in DRAWN_HALVES if set(saved.names()) == set(pair)), None)
+    if named is not None and np.all(halves[first] == named[0]) and np.all(halves[second] == named[1]):
+        return
+    raise DataError(f"{shown}: its halves are not those seed {saved.seed} draws from its {len(order)} rows (edited by "
+                    f"hand, or written with another seed): a half is analysed only as drawn; write the halves again "
+                    f"(cfa-tool explore --split SEED --halves-file NEW.csv)")

@@ -231,7 +231,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     notes: list[str] = list(loaded.notes)
     loaded, filter_notes = rows_kept(replace(loaded, frame=frame) if frame is not loaded.frame else loaded, filters)
     if halves:  # the halves were drawn from the rows the filters kept
-        loaded = half_of(loaded, halves[0], data)
+        loaded = half_of(loaded, halves[0], data, sheet)
         notes.append(loaded.row_filters[-1].note())
     frame, cautions, filters = loaded.frame, loaded.cautions, loaded.row_filters
     notes += [f"{loaded.source}: {note}" for note in filter_notes] if name_the_file else filter_notes
@@ -305,10 +305,10 @@ def rows_kept(loaded: LoadedData, filters) -> tuple[LoadedData, list[str]]:
                    row_filters=tuple(filters)), notes
 
 
-def half_of(loaded: LoadedData, choice: RandomHalf, data) -> LoadedData:
+def half_of(loaded: LoadedData, choice: RandomHalf, data, sheet: str | None = None) -> LoadedData:
     """``loaded`` with only the rows of one half of a halves file (data.halves.half_kept, checked against the data
-    file ``data``), the half joining the row filters that the reports name."""
-    frame, half = half_kept(loaded.frame, choice, data, loaded.source)
+    file ``data`` and the ``sheet`` asked for), the half joining the row filters that the reports name."""
+    frame, half = half_kept(loaded.frame, choice, data, loaded.source, sheet)
     return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame),
                    read_frame=loaded.read_frame if loaded.read_frame is not None else loaded.frame,
                    row_filters=tuple(loaded.row_filters) + (half,))

@@ -15,6 +15,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.halves import draw_halves
 from cfa_tool.assessment.admissibility import sample_size_problems
 from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 from cfa_tool.errors import DataError, OptionError, printable
@@ -672,9 +673,7 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     if split is not None:
         split = options.seed(split)
         numbers = row_numbers(frame)
-        order = np.random.default_rng(split).permutation(len(frame))
-        first = np.sort(order[: (len(frame) + 1) // 2])
-        second = np.sort(order[(len(frame) + 1) // 2:])
+        first, second = draw_halves(len(frame), split)  # the one rule, which a halves file is checked by
         explored, confirming = frame.iloc[first], frame.iloc[second]
         halves = (tuple(int(v) for v in numbers[first]), tuple(int(v) for v in numbers[second]), confirming)
         frame = explored

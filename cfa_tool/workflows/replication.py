@@ -63,6 +63,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.halves import draw_halves
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.pipeline.inputs import (_described, data_problems, load_spec, make_options, odd_values_named,
                                       read_inputs_with_notes, refit_missing_handling, with_row_filters)
@@ -699,10 +700,9 @@ def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal
     if len(complete) < 4 * len(spec.observed_names):
         raise DataError(f"{source}: {len(complete)} {kind} are too few to split into two halves for "
                         f"{len(spec.observed_names)} variables")
-    order = np.random.default_rng(seed).permutation(len(complete))
-    half = (len(order) + 1) // 2  # half A takes the odd row, as explore's exploration half does: the same halves
-    a = complete.iloc[np.sort(order[:half])]
-    b = complete.iloc[np.sort(order[half:])]
+    first, second = draw_halves(len(complete), seed)  # half A takes the odd row, as explore's exploration half does
+    a = complete.iloc[first]
+    b = complete.iloc[second]
     rows = (tuple(int(v) for v in row_numbers(a)), tuple(int(v) for v in row_numbers(b)))
     if ordinal_items:
         ma = _ordinal_moments(spec, a, f"{source} (half A, seed {seed})", ordinal_items, pairwise)

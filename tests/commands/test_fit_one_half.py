@@ -88,9 +88,10 @@ def test_halves_of_another_file_or_selection_are_refused(explored, tmp_path):
 @pytest.mark.parametrize("text, words", [
     ("row,half\n2,confirmation\n", "line 1: a halves file of an earlier version"),
     ("a,b,c\n", "line 1: not a halves file"),
-    ("row,half,seed,data_file,data_sha256\n2,A,1,x.csv,00\n2,B,1,x.csv,00\n", "line 3: row 2 is listed twice (line 2"),
-    ("row,half,seed,data_file,data_sha256\n2,A,1,x.csv,00\n3,B,2,x.csv,00\n", "line 3: another seed or data file"),
-    ("row,half,seed,data_file,data_sha256\nx,A,1,x.csv,00\n", "line 2, column row: 'x' is not a row number"),
+    ("row,half,seed,data_file,data_sha256\n2,A,1,x.csv,00\n", "line 1: a halves file of an earlier version"),
+    ("row,half,seed,data_file,data_sha256,sheet\n2,A,1,x.csv,00,\n2,B,1,x.csv,00,\n", "line 3: row 2 is listed twice (line 2"),
+    ("row,half,seed,data_file,data_sha256,sheet\n2,A,1,x.csv,00,\n3,B,2,x.csv,00,\n", "line 3: another seed or data file"),
+    ("row,half,seed,data_file,data_sha256,sheet\nx,A,1,x.csv,00,\n", "line 2, column row: 'x' is not a row number"),
 ])
 def test_a_broken_halves_file_is_a_one_line_error_with_its_line(tmp_path, capsys, text, words):
     halves = tmp_path / "halves.csv"
@@ -100,3 +101,62 @@ def test_a_broken_halves_file_is_a_one_line_error_with_its_line(tmp_path, capsys
     code, _, err = _run(["check", model, "--data", HS_FILE, "--half", halves, "A"], capsys)
     assert code == 2 and words in err.splitlines()[0] and len(err.splitlines()) == 1
     assert halves.read_text() == text
+
+
+def test_halves_edited_by_hand_or_of_another_seed_are_refused(explored, tmp_path, capsys):
+    """The seed draws the halves (data.halves.draw_halves, numpy's generator): a file with 30 exploration rows
+    relabelled, another seed written in, or the halves' names swapped is refused, not analysed as the half it names
+    (a hostile tester's finding: 270 rows, 30 of them the model was chosen on, reported as the confirmation half)."""
+    data, halves, _ = explored
+    model = tmp_path / "edited.cfa"
+    model.write_text(EDITED)
+    saved = pd.read_csv(halves, keep_default_na=False)
+    relabelled = saved.copy()
+    relabelled.loc[relabelled.index[relabelled["half"] == "exploration"][:30], "half"] = "confirmation"
+    reseeded = saved.assign(seed=99)
+    swapped = saved.assign(half=saved["half"].map({"exploration": "confirmation", "confirmation": "exploration"}))
+    for name, frame in (("relabelled", relabelled), ("reseeded", reseeded), ("swapped", swapped)):
+        path = tmp_path / f"{name}.csv"
+        frame.to_csv(path, index=False)
+        before = path.read_bytes()
+        code, _, err = _run(["fit", model, "--data", data, "--half", path, "confirmation"], capsys)
+        assert code == 2, name
+        seed = 99 if name == "reseeded" else 11
+        assert f"its halves are not those seed {seed} draws from its 301 rows (edited by hand" in err, name
+        assert len(err.strip().splitlines()) == 1 and path.read_bytes() == before
+
+
+def test_halves_of_another_sheet_are_refused(tmp_path, capsys):
+    """explore --sheet Wave1 --split, then fit --sheet Wave2 --half: the workbook's checksum is the same, so the halves
+    file names the sheet it was drawn from and another sheet is refused (a hostile tester's finding: the second
+    sheet's rows, the same riders reordered, were fitted as the confirmation half)."""
+    hs = pd.read_csv(HS_FILE)
+    book = tmp_path / "waves.xlsx"
+    with pd.ExcelWriter(book) as writer:
+        hs.to_excel(writer, sheet_name="Wave1", index=False)
+        hs.iloc[::-1].to_excel(writer, sheet_name="Wave2", index=False)
+    halves = tmp_path / "halves.csv"
+    code, _, err = _run(["explore", "--data", book, "--sheet", "Wave1", "--items", "x1..x9", "--factors", 3,
+                         "--split", 5, "--halves-file", halves], capsys)
+    assert code == 0, err
+    assert set(pd.read_csv(halves)["sheet"]) == {"Wave1"}
+    model = tmp_path / "m.cfa"
+    model.write_text(EDITED)
+    code, _, err = _run(["fit", model, "--data", book, "--sheet", "Wave2", "--half", halves, "confirmation"], capsys)
+    assert code == 2 and "holds the halves of the sheet 'Wave1' of 'waves.xlsx', and this run reads the sheet 'Wave2'" \
+        in err
+    code, _, err = _run(["fit", model, "--data", book, "--half", halves, "confirmation"], capsys)
+    assert code == 2 and "this run reads the first sheet (no sheet asked for)" in err
+    code, out, err = _run(["fit", model, "--data", book, "--sheet", "Wave1", "--half", halves, "confirmation"], capsys)
+    assert code == 0, err
+
+
+def test_a_halves_file_that_is_a_folder_or_a_workbook_is_said_so(tmp_path, capsys):
+    model = tmp_path / "m.cfa"
+    model.write_text(EDITED)
+    book = tmp_path / "h.xlsx"
+    pd.DataFrame({"row": [2], "half": ["A"]}).to_excel(book, index=False)
+    for path, words in ((tmp_path, "is a folder, not the CSV file --halves-file wrote"),
+                        (book, "not a halves file (not text: a workbook or another binary file")):
+        code, _, err = _run(["fit", model, "--data", HS_FILE, "--half", path, "A"], capsys)
+        assert code == 2 and words in err and "Error)" not in err
