@@ -884,11 +884,15 @@ def _check_field_counts(text: str, delimiter: str, named: int, width: int, path:
     widest = width
     records = _records(text, delimiter, delimiters_only=True)  # (``text`` starts at the header line)
     next(records, None)  # the header
+    previous = None
     for line, fields in records:
         n = len(fields)
         line += header_line - 1
         if lines is not None:
             lines.append(line)
+        if previous is not None and line - previous[0] > 1:  # the record before ran over several lines
+            _check_quoted_rows(*previous, delimiter, named, path)
+        previous = (line, fields)
         if n == named or (n > named and not any(f.strip() for f in fields[named:])) or not any(f.strip() for f in fields):
             widest = max(widest, n)
             continue
@@ -903,7 +907,30 @@ def _check_field_counts(text: str, delimiter: str, named: int, width: int, path:
         taken = f"; {_header_taken(f'line {header_line}', names_option)}" if n > named else ""
         raise DataError(f"{path}: line {line} has {n} fields but the header has {named} ({more} than the header{hint}); "
                         f"every row needs one value (or an empty field) per column{taken}")
+    if previous is not None:
+        _check_quoted_rows(*previous, delimiter, named, path)
     return widest
+
+
+def _check_quoted_rows(line: int, fields: list[str], delimiter: str, named: int, path: Path) -> None:
+    """A refusal when a quoted value of the record starting on ``line`` runs over several lines and one of them holds
+    the separators of a whole row: a quote opened in a free-text cell and closed only rows later (or never) makes
+    the rows between one cell, and they would vanish from the analysis unseen (a hostile tester's finding: 200 of
+    480 rows).  A value with line breaks and fewer separators per line (a comment of several lines) is read as it
+    is."""
+    if named < 4:
+        return
+    for column, value in enumerate(fields, start=1):
+        if "\n" not in value:
+            continue
+        parts = value.split("\n")
+        rows = sum(1 for part in parts[1:] if part.count(delimiter) >= named - 1)
+        if rows:
+            raise DataError(f"{path}: line {line}, column {column}: a quoted value runs over {len(parts)} lines, to "
+                            f"line {line + len(parts) - 1}, and holds {rows} line{'s' if rows > 1 else ''} with the "
+                            f"separators of a whole row: a quote opened there (\"...) and closed only lines later "
+                            f"makes those rows one cell; remove the stray quote (or double it, \"\", inside a "
+                            f"quoted value)")
 
 
 def _shown_delimiter(d: str) -> str:
