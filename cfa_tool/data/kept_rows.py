@@ -94,3 +94,29 @@ def rows_described(frame: pd.DataFrame) -> str:
     filters = frame.attrs.get(KEPT_BY, ())
     kept = Option.KEEP.given([printable(text) for text in filters])
     return f"the {len(frame)} {'row' if len(frame) == 1 else 'rows'}" + (f" kept by {kept}" if filters else "")
+
+
+#: a survey platform's record of whether a respondent finished the questionnaire: the column's name (case aside)
+FINISHED_COLUMNS = ("finished",)
+#: the values such a column holds for a finished and an unfinished response (case aside)
+_FINISHED_VALUES = {"true": True, "1": True, "yes": True, "1.0": True, "false": False, "0": False, "no": False,
+                    "0.0": False}
+
+
+def unfinished_rows_note(frame: pd.DataFrame, source: str) -> str | None:
+    """A note when a survey export's 'Finished' column (FINISHED_COLUMNS) marks some of the rows analysed as not
+    finished: they are analysed with the answers they gave, and a row filter leaves them out (a new user had to
+    decide alone: 69 unfinished, partly answered responses were fitted without a word).  None otherwise."""
+    column = next((c for c in frame.columns if str(c).strip().casefold() in FINISHED_COLUMNS), None)
+    if column is None:
+        return None
+    values = frame[column]
+    cells = values.dropna().astype(str).str.strip().str.casefold()
+    read = cells.map(_FINISHED_VALUES)
+    if not len(cells) or read.isna().any() or read.all() or not read.any():
+        return None
+    finished = next(str(v).strip() for v, ok in zip(values.dropna(), read) if ok)
+    unfinished = int((~read.astype(bool)).sum())
+    return (f"{source}: the column '{printable(str(column))}' marks {unfinished} of the {len(frame)} rows as not "
+            f"finished: they are analysed with the answers they gave; to leave them out, "
+            f"{Option.KEEP.given(f'{column} = {finished}')}")

@@ -15,7 +15,7 @@ import pandas as pd
 
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.groups import split_moments
-from cfa_tool.data.kept_rows import RowNaming, named_by_index_label, row_naming
+from cfa_tool.data.kept_rows import RowNaming, named_by_index_label, row_naming, unfinished_rows_note
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
 from cfa_tool.data.matching import answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
@@ -235,6 +235,9 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         notes.append(loaded.row_filters[-1].note())
     frame, cautions, filters = loaded.frame, loaded.cautions, loaded.row_filters
     notes += [f"{loaded.source}: {note}" for note in filter_notes] if name_the_file else filter_notes
+    unfinished = unfinished_rows_note(frame, loaded.source)
+    if unfinished:
+        notes.append(unfinished)
     check_columns(spec, columns, loaded.source, loaded.column_hint())
     frame, coding_notes = code_answer_words(spec, frame, loaded.source,  # 'answers' statements: words as codes
                                             missing_codes=missing_codes_option(missing_codes))

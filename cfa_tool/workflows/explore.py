@@ -319,7 +319,8 @@ COLUMN_ROLE_WORDS = {
     # who answered (new-user trial s11: a clinic's age column was explored as an item)
     "the respondents' particulars": ("age", "sex", "gender", "dob", "birthyear"),
     # the records a survey platform adds to an export: how far and how long a respondent answered, where from
-    "survey records": ("progress", "duration", "latitude", "longitude", "locationlatitude", "locationlongitude"),
+    "survey records": ("progress", "finished", "duration", "latitude", "longitude", "locationlatitude",
+                       "locationlongitude"),
 }
 _ROLE_OF_WORD = {word: role for role, words in COLUMN_ROLE_WORDS.items() for word in words}
 

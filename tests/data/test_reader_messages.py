@@ -66,6 +66,7 @@ def test_explore_leaves_out_a_constant_column_and_platform_records(riders, tmp_p
     data.insert(0, "Progress", 100)
     data.insert(1, "Duration (in seconds)", rng.integers(60, 900, len(data)))
     data.insert(2, "form", 2)  # one version of the questionnaire for every row
+    data.insert(3, "Finished", (np.arange(len(data)) % 9 != 0).astype(int))  # 0/1: explored as an item before s14
     path = tmp_path / "export.csv"
     data.to_csv(path, index=False)
     result = cfa_tool.explore(str(path), factors=2, replications=5)
@@ -73,3 +74,4 @@ def test_explore_leaves_out_a_constant_column_and_platform_records(riders, tmp_p
     note = next(n for n in result.notes if n.startswith("Items:"))
     assert "Left out as constant (one value in every row, which says nothing of the other answers): form." in note
     assert "Progress (survey records)" in note and "Duration (in seconds) (survey records)" in note
+    assert "Finished (survey records)" in note
