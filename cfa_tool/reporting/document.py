@@ -86,6 +86,10 @@ class Listing:
     text: str
 
 
+
+#: the heading of a report's methods-and-results paragraph, in every view that has headings (HTML, Markdown, Word)
+PARAGRAPH_HEADING = "Summary for a paper"
+
 @dataclass(frozen=True)
 class Report:
     """Every view draws, in this order: the notice, the title, the lines, the warnings, the paragraph, the
@@ -99,7 +103,7 @@ class Report:
     tables: tuple[ReportTable, ...]
     notes: tuple[str, ...] = ()  # after the tables
     cautions: tuple[str, ...] = ()  # last, in every view
-    paragraph: str | None = None  # the methods-and-results paragraph for a paper
+    paragraph: str | None = None  # the methods-and-results paragraph for a paper, under PARAGRAPH_HEADING
     figures: tuple[Figure, ...] = ()
     # the problems as a table for data files, when the solution's problems have more to say than the notice's
     # lines (parameters, values, advice)

@@ -25,7 +25,7 @@ from cfa_tool.reporting.column_parts import column_parts, label_columns
 from cfa_tool.reporting.diagram import MIN_FIGURE_TEXT  # the smallest lettering of a figure in print
 from cfa_tool.reporting.picture import (DEFAULT_DPI, page_fit, png_converter, smallest_text, svg_size, svg_strips,
                                        svg_to_png)
-from cfa_tool.reporting.document import WARNINGS
+from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.tables import ReportTable
 
@@ -457,7 +457,7 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
         for line in report.warnings:
             document.add_paragraph(printable(line), style="List Bullet")
     if report.paragraph:
-        document.add_heading("Method and results", level=2)
+        document.add_heading(PARAGRAPH_HEADING, level=2)
         document.add_paragraph(typeset(report.paragraph))
     if report.figures:
         if png_converter() is None:

@@ -7,7 +7,7 @@ from cfa_tool.version import __version__
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.diagram import MIN_FIGURE_TEXT
 from cfa_tool.reporting.picture import smallest_text, svg_size
-from cfa_tool.reporting.document import WARNINGS
+from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.reporting.tables import ReportTable
 
@@ -107,7 +107,7 @@ def report_html_fragment(report, heading: bool = False) -> str:
         parts.append(f'<div class="caution" id="warnings"><strong>{esc(WARNINGS)}</strong><ul class="warnings">'
                      + "".join(f"<li>{esc(w)}</li>" for w in report.warnings) + "</ul></div>")
     if report.paragraph:
-        parts += ["<h2>Summary for a paper</h2>", f'<p class="summary" id="methods-paragraph">{esc(report.paragraph)}</p>']
+        parts += [f"<h2>{PARAGRAPH_HEADING}</h2>", f'<p class="summary" id="methods-paragraph">{esc(report.paragraph)}</p>']
     for figure in report.figures:
         data = base64.b64encode(figure.svg.encode("utf-8")).decode("ascii")
         wide = " landscape" if landscape_figure(figure.svg) else ""  # printed on a landscape page, as wide tables

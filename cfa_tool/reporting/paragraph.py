@@ -986,13 +986,17 @@ _PREFERRED = (DifferenceMethod.SCALE_SHIFTED, DifferenceMethod.SATORRA_BENTLER_2
               DifferenceMethod.SATORRA_BENTLER_2001, DifferenceMethod.LIKELIHOOD_RATIO)
 
 
-def _model_sentences(name: str, result) -> str:
-    """Exactly one model of a comparison: its factors and indicators, scales and departures from simple structure."""
+def _model_sentences(name: str, result, keys_said: bool = False) -> str:
+    """Exactly one model of a comparison: its factors and indicators, scales and departures from simple structure
+    (``keys_said``: the items declared reverse-keyed were said once for every model, not again)."""
     d = result.description
     if d is None:
         return f"{name} had {_count(len(result.observed), 'indicator')}."
     shape = _shape(result, d)
-    parts = [f"{name} had {_structure(d, shape).rstrip(',')}."] + _scale_sentences(d, result.problems)
+    scales = _scale_sentences(d, result.problems)
+    if keys_said and d.reverse_keyed:
+        scales = [x for x in scales if x != _reverse_keyed_sentence(d)]
+    parts = [f"{name} had {_structure(d, shape).rstrip(',')}."] + scales
     departures = _departures(d, shape)
     if departures:
         parts.append(departures.replace("The model also included", f"{name} also included", 1))
@@ -1078,7 +1082,12 @@ def comparison_paragraph(comparison) -> str:
     restricted = range_restriction_sentence(first.data.row_filters, {x for r in results for x in r.observed})
     if restricted:  # the models may place the items differently: their factors are not named
         parts.append(restricted)
-    parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
+    keys = {tuple(r.description.reverse_keyed) if r.description is not None else None for r in results}
+    keys_said = len(keys) == 1 and bool(next(iter(keys)))  # every model declares the same items: said once
+    if keys_said:
+        said = _reverse_keyed_sentence(first.description)
+        parts.append(f"In every model, {said[:1].lower()}{said[1:]}")
+    parts += [_model_sentences(f"{label[name]} ({name})", r, keys_said) for name, r in zip(names, results)]
     parts += _design_sentences(list(results))
     statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
     for name, r in zip(names, results):  # problems first: before the figures a reader might take as support

@@ -11,7 +11,7 @@ import numpy as np
 from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import latex_text, markdown_text
-from cfa_tool.reporting.document import WARNINGS
+from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS
 from cfa_tool.reporting.tables import ReportTable
 
 
@@ -106,7 +106,7 @@ def report_markdown(report) -> str:
     if report.warnings:
         parts += [f"**{WARNINGS}**", ""] + [f"- {markdown_text(w)}" for w in report.warnings] + [""]
     if report.paragraph:
-        parts += ["## Summary for a paper", "", markdown_text(report.paragraph), ""]
+        parts += [f"## {PARAGRAPH_HEADING}", "", markdown_text(report.paragraph), ""]
     for figure in report.figures:  # an image of its SVG (a data address): nothing in it can run
         data = base64.b64encode(figure.svg.encode("utf-8")).decode("ascii")
         parts += [f"**{markdown_text(figure.title)}**", "", f"![{markdown_text(figure.title)}](data:image/svg+xml;base64,"

@@ -90,3 +90,15 @@ def test_group_labels_are_quoted_alike_and_factor_markers_named(hs_data):
     higher = cfa_tool.fit(THREE + "factor g: visual, textual, speed\n", hs_data)
     assert ("fixing the loading of one indicator (for a higher-order factor, one of its factors) to 1 (x1 for visual, "
             "x4 for textual, x7 for speed, and visual for g)") in " ".join(methods_paragraph(higher).split())
+
+
+def test_a_comparison_says_the_reverse_keyed_items_once_when_every_model_declares_them(hs_data):
+    """Three models declaring the same reverse-keyed items: one sentence, not one per model (new user s14)."""
+    from cfa_tool.reporting.paragraph import comparison_paragraph
+
+    keyed = "reversed x2, x5 on 0 to 10\n"
+    one = "factor g: x1, x2, x3, x4, x5, x6, x7, x8, x9\n" + keyed
+    comparison = cfa_tool.compare([one, THREE + keyed], hs_data)
+    text = " ".join(comparison_paragraph(comparison).split())
+    assert text.count("declared reverse-keyed") == 1
+    assert "In every model, the items x2 and x5 were declared reverse-keyed" in text

@@ -219,7 +219,7 @@ def test_every_view_gives_the_option_of_a_remedy_and_the_methods_paragraph_none(
     assert lines[0] in next(t for t in report.tables if t.key == "fit").note  # under the fit table, in every view
     assert "--" not in report.paragraph
     texts = [p.text for p in word.paragraphs]
-    method = texts[texts.index("Method and results") + 1]
+    method = texts[texts.index("Summary for a paper") + 1]
     assert "--" not in method and method.startswith("A confirmatory factor analysis")
     assert any(f"({Remedy.COMPLETE_ROWS.option})" in t for t in texts)
 
