@@ -207,7 +207,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
                                     f"a date (a day that exists, written YYYY-MM-DD), and its other cells are "
                                     f"dates{more}, so row filter '{printable(f)}' cannot compare them by order; "
                                     f"correct the cell, or leave it empty in a copy of the file")
-                raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds text"
+                raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' of {source} holds text"
                                   f"{_first_text(column, numeric)}, which can only be compared with = or !=")
             values = column.map(lambda v: None if pd.isna(v) else _cell_label(v))
             target = label_text(f.value)

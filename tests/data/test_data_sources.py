@@ -600,7 +600,7 @@ def test_a_filter_comparing_with_text_names_the_value(hs_data):
         cfa_tool.fit(THREE_FACTORS, hs_data, keep=["x1 > abc"])
     with pytest.raises(OptionError, match="'1,5' is not a number"):
         cfa_tool.fit(THREE_FACTORS, hs_data, keep=["x1 > 1,5"])
-    with pytest.raises(OptionError, match="'school' holds text"):
+    with pytest.raises(OptionError, match="'school' of <data frame> holds text"):
         cfa_tool.fit(THREE_FACTORS, hs_data, keep=["school > 3"])
 
 

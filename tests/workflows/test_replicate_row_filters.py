@@ -81,3 +81,27 @@ def test_replicate_takes_keep_on_the_command_line(tmp_path):
     kept = int((frame["Finished"] == "yes").sum())
     assert f"The {kept} rows kept by the row filter 'Finished = yes' (of the {len(frame)} rows in the file) were split " \
            f"at random into two halves." in text
+
+
+def test_a_filter_comparing_text_by_order_names_the_file_that_holds_the_text(tmp_path, capsys):
+    """replicate --keep 'grade >= 6' where the validation file writes grades as text: the error names that file
+    (hostile s14: 'grade' holds text, in which of the two files?)."""
+    import numpy as np
+    import pandas as pd
+
+    from cfa_tool.cli import main
+    from tests.conftest import DATASETS
+
+    hs = pd.read_csv(DATASETS / "holzinger_swineford_1939.csv")
+    rng = np.random.default_rng(1)
+    cal, val = hs.iloc[:150].copy(), hs.iloc[150:].copy()
+    cal["grade"] = rng.integers(1, 13, len(cal))
+    val["grade"] = [f"Grade {g}" for g in rng.integers(1, 13, len(val))]
+    cal.to_csv(tmp_path / "cal.csv", index=False)
+    val.to_csv(tmp_path / "val.csv", index=False)
+    model = tmp_path / "m.cfa"
+    model.write_text("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n")
+    code = main(["replicate", str(model), "--calibration", str(tmp_path / "cal.csv"), "--validation",
+                 str(tmp_path / "val.csv"), "--keep", "grade >= 6"])
+    err = capsys.readouterr().err
+    assert code == 2 and f"'grade' of {tmp_path / 'val.csv'} holds text" in err and len(err.strip().splitlines()) == 1
