@@ -1688,16 +1688,15 @@ def make_options(options: dict, own: tuple[str, ...] = (), helpers: bool = False
 def _group_parts(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,
                  reference_group: str | None) -> list[tuple[str | None, np.ndarray]]:
     """Each group's (label, model items' values), as data.groups splits the rows (one part without groups)."""
-    from cfa_tool.data.groups import group_labels
+    from cfa_tool.data.groups import group_rows
     from cfa_tool.data.moments import numeric_columns
 
     names = spec.observed_names
     if group is None:
         return [(None, numeric_columns(frame, names, source))]
     _check_group_column(spec, group)
-    labels = group_labels(frame, group, source, reference_group)  # first: a column not in the file is its error
-    keys = frame[group].map(lambda v: None if pd.isna(v) else label_text(v))
-    return [(label, numeric_columns(frame.loc[(keys == label).to_numpy()], names, source)) for label in labels]
+    parts, _ = group_rows(frame, group, source, reference_group)  # first: a column not in the file is its error
+    return [(label, numeric_columns(part, names, source)) for label, part in parts]
 
 
 def _sparse_answers(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,
