@@ -1704,7 +1704,8 @@ def _sparse_answers(spec: Spec, frame: pd.DataFrame, source: str, group: str | N
     """The cautions of a check whose rows with gaps leave full-information ML's saturated model without an estimate
     (assessment.missingness.sparse_answers_problem), in each group: a pair of items no row answers together, or the
     EM iterations finding no maximum; () when the saturated model can be estimated (or its failure has another
-    cause, which the moments then report as a fit would)."""
+    cause, which the moments then report as a fit would).  Asked only when the moments could not be estimated
+    (:func:`check`), so that every group that fails is named."""
     from cfa_tool.assessment.missingness import never_together, sparse_answers_problem
     from cfa_tool.data.moments import moments_with_gaps
 
@@ -1787,13 +1788,18 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
             ordinal_moments(frame, spec.observed_names, source,
                             frozenset(x for x in spec.observed_names if x not in ordinal_items), pairwise=True)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
-    sparse = _sparse_answers(spec, frame, source, group, reference_group) \
-        if options.missing is MissingData.FULL_INFORMATION and design is None else ()
-    if sparse:  # the rows are reported, with the caution that a fit of them stops (no saturated model to estimate)
-        groups, group_notes = _rows_answering(spec, frame, source, group, reference_group)
-    else:
+    sparse = ()
+    try:  # the saturated (EM) moments once; where they cannot be estimated, whether the gaps are why
         groups, group_notes = moments_for(spec, frame, source, group, reference_group, missing=options.missing,
                                           design=design)
+    except (DataError, EstimationError):
+        if options.missing is not MissingData.FULL_INFORMATION or design is not None:
+            raise
+        sparse = _sparse_answers(spec, frame, source, group, reference_group)
+        if not sparse:  # another cause (a constant item, an exact combination): reported as a fit reports it
+            raise
+        # the rows are reported, with the caution that a fit of them stops (no saturated model to estimate)
+        groups, group_notes = _rows_answering(spec, frame, source, group, reference_group)
     notes += group_notes
     labels = tuple(label for label, _ in groups) if group is not None else None
     table = build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION)
