@@ -77,7 +77,8 @@ def moment_scores(data: PatternData, mu: np.ndarray, sigma: np.ndarray) -> np.nd
 
 def scores_meat(data: PatternData, mu: np.ndarray, sigma: np.ndarray, design) -> np.ndarray:
     """B of the module docstring: the mean outer product of the rows' scores in beta at (mu, Sigma)
-    (:func:`moment_scores`), or with a sampling ``design`` its design-based meat (inference.design, Asparouhov 2005)."""
+    (:func:`moment_scores`), or with a sampling ``design`` its design-based meat (inference.design, Asparouhov
+    2005)."""
     return design_meat(moment_scores(data, mu, sigma), design)
 
 
