@@ -26,7 +26,7 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
         hint = renamed_hint(frame, column) or (f"; did you mean '{guess[0]}'?" if guess else "")
         raise OptionError(f"{source}: there is no group column '{printable(column)}'{hint}")
     values = frame[column].dropna()
-    labels = ordered_labels({_label(v) for v in values}, frame, column)
+    labels = ordered_labels({label_text(v) for v in values}, frame, column)
     if len(labels) > MAX_GROUPS:
         raise OptionError(f"{source}: the group column '{printable(column)}' has {len(labels):,} different values; a "
                           f"multi-group fit estimates the model in each group, at most {MAX_GROUPS} of them (is it the "
@@ -45,9 +45,6 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
     labels.remove(reference)
     labels.insert(0, reference)  # the reference group first, the others in the order of their labels
     return labels
-
-
-_label = label_text
 
 
 class ReferenceRule(Enum):
@@ -107,7 +104,7 @@ def group_rows(frame: pd.DataFrame, column: str, source: str, reference: str | N
     """Each group's rows of ``frame`` as (label, rows), the reference group first (:func:`group_labels`), and the
     number of rows without a group label: the one split of the rows by a group column."""
     labels = group_labels(frame, column, source, reference)
-    keys = frame[column].map(lambda v: None if pd.isna(v) else _label(v))
+    keys = frame[column].map(lambda v: None if pd.isna(v) else label_text(v))
     return [(label, frame.loc[(keys == label).to_numpy()]) for label in labels], int(keys.isna().sum())
 
 
@@ -153,6 +150,3 @@ def pooled(moments: list[SampleMoments]) -> tuple[np.ndarray, np.ndarray]:
     cov = sum(m.n_obs * m.covariance for m in moments) / n
     mean = sum(m.n_obs * m.means for m in moments) / n
     return cov, mean
-
-
-

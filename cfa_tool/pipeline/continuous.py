@@ -244,11 +244,9 @@ def _estimate_with_helpers(spec: Spec, groups: list[tuple[str | None, SampleMome
                  for gm, (_, m) in zip(joint, items_only)]
     items = copy(first.likelihood)  # its patterns and EM moments, whose pieces are computed once
     items.groups = summaries
-    saturated = [(gm.mean, gm.covariance) for gm in joint]
     joint_model = JointModel(model, r, len(joint))
-    likelihood = AuxiliaryLikelihood(joint_model, [pattern_data(gm.rows, w) for gm, w in zip(joint, weights)],
-                                     saturated, [GroupMoments(gm.covariance, gm.mean, gm.n_obs, design=gm.design)
-                                                 for gm in joint])
+    patterns, saturated, joint_summaries = full_information_data(joint)  # of the p + r columns
+    likelihood = AuxiliaryLikelihood(joint_model, patterns, saturated, joint_summaries)
     free = np.full(joint_model.n_free - joint_model.q, np.inf)
     found = minimise(likelihood.evaluate, likelihood.value, np.concatenate([first.theta, joint_start(
                          p, r, saturated, [first.model.matrices(first.theta, g).implied_covariance()
