@@ -17,7 +17,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.kept_rows import KEPT_BY, cell_words, row_naming
-from cfa_tool.data.labels import label_text
+from cfa_tool.data.labels import label_text, other_case, shared_labels
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.options import Option
@@ -214,13 +214,15 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
             if target.casefold() in ("true", "false") and values.isin(("TRUE", "FALSE")).any():
                 target = target.upper()  # a TRUE/FALSE cell as a spreadsheet shows it, whatever the case typed
         keep = OPERATOR_TESTS[f.operator](values, target) & column.notna()
+        # labels differing from a text compared only in case: a filter matches text exactly (data.labels' rule)
+        cased = other_case(values.dropna(), target) if f.operator in ("=", "!=") and isinstance(target, str) else ()
         absent = ""
         if f.operator in ("=", "!=") and not (values == target).any():  # a value no row has: which ones are there
             absent = (f"; no row has '{printable(label_text(f.value))}' in '{printable(f.column)}' (values present: "
-                      f"{_present(values, target)})" + _case_hint(values, target))
+                      f"{_present(values, target)})" + (_case_hint(cased) if isinstance(target, str) else ""))
         before = len(frame)
         f = replace(f, empty=int(column.isna().sum()), dropped=int((~keep & column.notna()).sum()), shared=shared,
-                    other_case=_other_case(values, target) if f.operator in ("=", "!=") else ())
+                    other_case=cased)
         counted.append(f)
         frame = frame.loc[keep.to_numpy()]
         emptied = (f"left out {f.empty_words()} (an empty cell meets no comparison, '!=' included), and "
@@ -236,12 +238,9 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
 
 
 def _codes_of_label(column: pd.Series, labels: dict, value) -> tuple[tuple[str, int], ...]:
-    """The codes of ``column`` (as text) that carry the value label ``value`` (read as data.labels.label_text reads
-    labels), each with its rows, when at least two codes present carry it; () otherwise."""
-    target = label_text(value)
-    codes = [code for code, label in labels.items() if label_text(label) == target]
-    if len(codes) < 2:
-        return ()
+    """The codes of ``column`` (as text) that carry the value label ``value`` (data.labels.shared_labels), each with
+    its rows, when at least two codes present carry it; () otherwise."""
+    codes = dict(shared_labels(labels)).get(label_text(value), [])
     counted = [(label_text(code), int((column == code).sum())) for code in codes]
     present = tuple((code, n) for code, n in counted if n)
     return present if len(present) > 1 else ()
@@ -264,26 +263,13 @@ def _present(values: pd.Series, target, shown: int = 8) -> str:
     return ", ".join(printable(t) for t in texts[:shown]) + more
 
 
-def _case_hint(values: pd.Series, target) -> str:
+def _case_hint(alike: tuple[tuple[str, int], ...]) -> str:
     """How a row filter matches text, said when no row has the text: exactly, upper and lower case included (unlike
-    the words of an 'answers' statement, which ignore case), with the labels present that differ only in case."""
-    if isinstance(target, float):
-        return ""
-    alike = sorted({str(v) for v in values.dropna() if str(v).casefold() == str(target).casefold()})
+    the words of an 'answers' statement, which ignore case), with the labels present that differ only in case
+    (``alike``: data.labels.other_case)."""
     return ("; a row filter matches text exactly, upper and lower case included (unlike the words of an 'answers' "
-            "statement)" + (f": write {' or '.join(repr(printable(a)) for a in alike)} as the data have it"
+            "statement)" + (f": write {' or '.join(repr(printable(a)) for a, _ in alike)} as the data have it"
                             if alike else ""))
-
-
-def _other_case(values: pd.Series, target) -> tuple[tuple[str, int], ...]:
-    """The labels among ``values`` (as a filter compares them) that differ from the text ``target`` only in upper
-    and lower case, each with its rows: ('North', 63) for 'north'; () for a number."""
-    if isinstance(target, float) or not isinstance(target, str):
-        return ()
-    folded = target.casefold()
-    counts = values.dropna().map(str).value_counts()
-    return tuple(sorted((str(label), int(n)) for label, n in counts.items()
-                        if label != target and label.casefold() == folded))
 
 
 def _cell_label(value) -> str:

@@ -26,7 +26,7 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
         hint = renamed_hint(frame, column) or (f"; did you mean '{guess[0]}'?" if guess else "")
         raise OptionError(f"{source}: there is no group column '{printable(column)}'{hint}")
     values = frame[column].dropna()
-    labels = ordered_labels({_label(v) for v in values}, frame, column)
+    labels = ordered_labels({label_text(v) for v in values}, frame, column)
     if len(labels) > MAX_GROUPS:
         raise OptionError(f"{source}: the group column '{printable(column)}' has {len(labels):,} different values; a "
                           f"multi-group fit estimates the model in each group, at most {MAX_GROUPS} of them (is it the "
@@ -45,9 +45,6 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
     labels.remove(reference)
     labels.insert(0, reference)  # the reference group first, the others in the order of their labels
     return labels
-
-
-_label = label_text
 
 
 class ReferenceRule(Enum):
@@ -102,27 +99,26 @@ def reference_rule(frame: pd.DataFrame, column: str, reference: str | None = Non
     return default_reference(frame, column, present)[1]  # the branch the choice took, by the one rule
 
 
+def group_rows(frame: pd.DataFrame, column: str, source: str, reference: str | None = None
+               ) -> tuple[list[tuple[str, pd.DataFrame]], int]:
+    """Each group's rows of ``frame`` as (label, rows), the reference group first (:func:`group_labels`), and the
+    number of rows without a group label: the one split of the rows by a group column."""
+    labels = group_labels(frame, column, source, reference)
+    keys = frame[column].map(lambda v: None if pd.isna(v) else label_text(v))
+    return [(label, frame.loc[(keys == label).to_numpy()]) for label in labels], int(keys.isna().sum())
+
+
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,
                   reference: str | None = None, missing: MissingData | str = MissingData.LISTWISE,
                   weights: str | None = None) -> tuple[list[tuple[str, SampleMoments]], int]:
     """Per-group moments (reference group first) and the number of rows without a group value;
     ``weights`` a column of row weights (see :func:`sample_moments`)."""
-    labels = group_labels(frame, column, source, reference)
-    keys = frame[column].map(lambda v: None if pd.isna(v) else _label(v))
-    out = []
-    for label in labels:
-        part = frame.loc[(keys == label).to_numpy()]
-        out.append((label, sample_moments(part, names, source, group=f"'{label}' of {column}", missing=missing,
-                                          weights=weights)))
-    return out, _without_group(out, keys, frame, column)
-
-
-def _without_group(groups: list, keys: pd.Series, frame: pd.DataFrame, column: str) -> int:
-    """The rows with no group label, after checking that the groups' rows and those rows are no more than the rows
-    of ``frame`` (each row in one group at most: errors.check_rows_counted)."""
-    without = int(keys.isna().sum())
-    check_rows_counted(sum(m.rows_read for _, m in groups) + without, len(frame), f"the groups of column '{column}'")
-    return without
+    parts, without = group_rows(frame, column, source, reference)
+    out = [(label, sample_moments(part, names, source, group=f"'{label}' of {column}", missing=missing,
+                                  weights=weights)) for label, part in parts]
+    # each row in one group at most (errors.check_rows_counted)
+    check_rows_counted(sum(m.rows_read for _, m in out) + without, len(frame), f"the groups of column '{column}'")
+    return out, without
 
 
 def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,
@@ -134,9 +130,8 @@ def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ..
     :func:`cfa_tool.data.polychoric.ordinal_moments`)."""
     from cfa_tool.data.polychoric import empty_categories_in_groups, ordinal_moments, shared_levels
 
-    labels = group_labels(frame, column, source, reference)
-    keys = frame[column].map(lambda v: None if pd.isna(v) else _label(v))
-    parts = [frame.loc[(keys == label).to_numpy()] for label in labels]
+    split, without = group_rows(frame, column, source, reference)
+    labels, parts = [label for label, _ in split], [part for _, part in split]
     levels = shared_levels(parts, names, source, pairwise, continuous)  # (a continuous item's are not used)
     # every empty category of every group and item in one message (not one per run)
     empty_categories_in_groups(parts, [f" (group '{label}' of {column})" for label in labels], names, source, levels,
@@ -144,7 +139,7 @@ def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ..
     out = [(label, ordinal_moments(part, names, source, continuous, levels=levels,
                                    where=f" (group '{label}' of {column})", pairwise=pairwise, design=design))
            for label, part in zip(labels, parts)]
-    return out, int(keys.isna().sum())
+    return out, without
 
 
 def pooled(moments: list[SampleMoments]) -> tuple[np.ndarray, np.ndarray]:
@@ -155,6 +150,3 @@ def pooled(moments: list[SampleMoments]) -> tuple[np.ndarray, np.ndarray]:
     cov = sum(m.n_obs * m.covariance for m in moments) / n
     mean = sum(m.n_obs * m.means for m in moments) / n
     return cov, mean
-
-
-

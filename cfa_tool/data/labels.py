@@ -46,13 +46,24 @@ def case_variants(values) -> list[list[tuple[str, int]]]:
     """Labels (as :func:`label_text` reads them) that differ only in upper and lower case ('north', 'North'), each
     with its number of cells: [[(label, cells), ...], ...].  They stay different groups, since only the user knows
     whether they are one."""
+    return [sorted(found) for _, found in sorted(_by_case(values).items()) if len(found) > 1]
+
+
+def other_case(values, label: str) -> tuple[tuple[str, int], ...]:
+    """The labels among ``values`` (as :func:`label_text` reads them) that differ from ``label`` only in upper and
+    lower case, each with its number of cells: (('North', 63),) for 'north'; the rule of :func:`case_variants` for
+    one label (a row filter's text)."""
+    return tuple(sorted(found for found in _by_case(values).get(label.casefold(), ()) if found[0] != label))
+
+
+def _by_case(values) -> dict[str, list[tuple[str, int]]]:
+    """The labels of ``values`` (read by :func:`label_text`) with their numbers of cells, by their case-folded text."""
     from collections import Counter
 
-    counts = Counter(label_text(v) for v in values)
     by_fold: dict[str, list[tuple[str, int]]] = {}
-    for label, n in counts.items():
+    for label, n in Counter(label_text(v) for v in values).items():
         by_fold.setdefault(label.casefold(), []).append((label, n))
-    return [sorted(found) for _, found in sorted(by_fold.items()) if len(found) > 1]
+    return by_fold
 
 
 def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "group", unit: str = "group") -> list[str]:
@@ -174,12 +185,13 @@ def own_labels(column: str, value_labels: dict) -> bool:
 CODED_LABELS = "coded_labels"
 
 
-def shared_labels(coded: dict[str, str]) -> list[tuple[str, list[str]]]:
-    """The value labels that several codes carry ({code: label} as :func:`code_order` gives it, labels read by
-    :func:`label_text`), each with its codes in code order: [(label, [code, ...])]; such codes are one group."""
-    codes: dict[str, list[str]] = {}
+def shared_labels(coded: dict) -> list[tuple[str, list]]:
+    """The value labels that several codes carry ({code: label}, as :func:`code_order` gives it or as a data file's
+    value labels hold it; labels read by :func:`label_text`), each with its codes in the order given:
+    [(label, [code, ...])]; such codes are one group."""
+    codes: dict[str, list] = {}
     for code, label in coded.items():
-        codes.setdefault(label, []).append(code)
+        codes.setdefault(label_text(label), []).append(code)
     return [(label, found) for label, found in codes.items() if len(found) > 1]
 
 

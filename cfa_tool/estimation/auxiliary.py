@@ -201,18 +201,20 @@ class _BaselineLikelihood(MissingDataLikelihood):
         return None
 
 
-def auxiliary_baseline(patterns: list[PatternData], saturated: list[tuple[np.ndarray, np.ndarray]],
-                       groups, p: int, r: int, max_iterations: int = 500) -> tuple[float, int] | None:
+def auxiliary_baseline(patterns: list[PatternData], groups, p: int, r: int, max_iterations: int = 500
+                       ) -> tuple[float, int] | None:
     """(chi-square, df) of the baseline model with auxiliaries (Savalei & Bentler 2009; module docstring): in each
     group the items uncorrelated with each other, every mean and variance and every covariance that involves an
-    auxiliary free; df = p(p-1)/2 per group, as without auxiliaries.  None when its search does not converge."""
+    auxiliary free; df = p(p-1)/2 per group, as without auxiliaries.  ``groups``: each group's saturated (EM) moments
+    of the p + r columns (the joint likelihood's).  None when its search does not converge."""
     from cfa_tool.estimation.optimizer import minimise
 
+    model = LinearJointModel(p, r)  # the same in every group
+    a, b = np.tril_indices(r)
     chi = 0.0
-    for data, (mu, sigma), gm in zip(patterns, saturated, groups):
-        model = LinearJointModel(p, r)
+    for data, gm in zip(patterns, groups):
+        mu, sigma = gm.mean, gm.covariance
         likelihood = _BaselineLikelihood(model, [data], [(mu, sigma)], [gm])
-        a, b = np.tril_indices(r)
         # start: the items uncorrelated with everything (positive definite whatever the data)
         start = np.concatenate([mu[:p], np.diag(sigma)[:p], mu[p:], np.zeros(p * r), sigma[p:, p:][a, b]])
         bound = np.full(len(start), np.inf)
@@ -234,6 +236,9 @@ class AuxiliaryFit:
     likelihood: AuxiliaryLikelihood
     theta: np.ndarray
     items_saturated: tuple[tuple[np.ndarray, np.ndarray], ...]
+    #: each group's rows (of its moments, in their order) that answer some item: a row answering helpers only adds
+    #: to the joint likelihood but has no distance on the items (pipeline.inputs.with_helpers keeps such rows)
+    answered: tuple[np.ndarray, ...] = ()
 
     @property
     def q(self) -> int:

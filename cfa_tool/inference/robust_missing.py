@@ -75,6 +75,19 @@ def moment_scores(data: PatternData, mu: np.ndarray, sigma: np.ndarray) -> np.nd
     return np.hstack([-2.0 * u, (A_patterns[:, I, J][data.index] - u[:, I] * u[:, J]) * scale])
 
 
+def scores_meat(data: PatternData, mu: np.ndarray, sigma: np.ndarray, design) -> np.ndarray:
+    """B of the module docstring: the mean outer product of the rows' scores in beta at (mu, Sigma)
+    (:func:`moment_scores`), or with a sampling ``design`` its design-based meat (inference.design, Asparouhov
+    2005)."""
+    return design_meat(moment_scores(data, mu, sigma), design)
+
+
+def group_meat(likelihood: MissingDataLikelihood, g: int, mats) -> np.ndarray:
+    """Group g's B (:func:`scores_meat`) at the model's implied moments ``mats`` (its matrices at theta)."""
+    return scores_meat(likelihood.patterns[g], mats.implied_mean(), mats.implied_covariance(),
+                       likelihood.groups[g].design)
+
+
 def _unstructured_trace(data: PatternData, mu: np.ndarray, sigma: np.ndarray, D: np.ndarray | None, design) -> float:
     """tr(H^-1 B) of a model linear in beta at its estimates (mu, Sigma): H its observed information, B the
     meat of its rows' scores (D = None: the saturated model itself; else the columns of beta it frees)."""
@@ -82,8 +95,9 @@ def _unstructured_trace(data: PatternData, mu: np.ndarray, sigma: np.ndarray, D:
     if D is not None:
         d_sigma, d_mu = np.tensordot(D.T, d_sigma, axes=1), D.T @ d_mu
     H = moment_hessian(data, mu, sigma, d_sigma, d_mu)
-    scores = moment_scores(data, mu, sigma)
-    B = design_meat(scores if D is None else scores @ D, design)
+    B = scores_meat(data, mu, sigma, design)
+    if D is not None:
+        B = D.T @ B @ D
     return float(np.sum(scaled_inverse(H) * B.T))
 
 
@@ -102,11 +116,9 @@ def robust_missing(likelihood: MissingDataLikelihood, theta: np.ndarray, saturat
     meat_total = np.zeros((q, q))
     trace_sat = trace_base = 0.0
     for g, data in enumerate(likelihood.patterns):
-        mats = likelihood.model.matrices(theta, g)
         D = _model_directions(likelihood, theta, g)
         design = likelihood.groups[g].design
-        meat_total += likelihood.weights[g] * D.T @ design_meat(
-            moment_scores(data, mats.implied_mean(), mats.implied_covariance()), design) @ D
+        meat_total += likelihood.weights[g] * D.T @ group_meat(likelihood, g, likelihood.model.matrices(theta, g)) @ D
         trace_sat += _unstructured_trace(data, *saturated[g], None, design)
         if base_df is None:
             continue

@@ -410,8 +410,9 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         return index_of_root[find(key)]
 
     def scale_fixed_everywhere(ref: ParameterRef) -> bool:
-        """The parameter is fixed to give a factor its scale (a marker's loading, a factor's variance) in every
-        group the statement names: a start value, a bound or an exemption there would have no effect."""
+        """The parameter is fixed to give a factor its scale (a marker's loading, a factor's variance) or an ordinal
+        item's latent response its origin and unit in every group the statement names: a start value, a bound or an
+        exemption there would have no effect (:func:`cannot_apply` says why)."""
         keys = [(g, *ref.key()) for g in groups_of(ref)]
         return all(entries[k]["fixed"] is not None and entries[k]["origin"] == "scale" for k in keys)
 
@@ -431,8 +432,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         reasons = [_why_not_free(spec, k, entries, effects, fixed_by, tied_to, multi, group_labels) for k in keys]
         if any(r is None for r in reasons):
             return None
-        if all(entries[k]["origin"] == "scale" and k not in tied_to and k not in effects for k in keys) and (
-                ref.names[0] in lat_ix):
+        if scale_fixed_everywhere(ref) and ref.names[0] in lat_ix:  # a factor's (not an ordinal item's) scale
             return no_effect(ref, word)  # the advice names the scale's other ways
         # the tie is named where there is one (a group's mean held equal to the first group's names the tie)
         at = next((i for i, k in enumerate(keys) if k in tied_to), 0)
@@ -444,7 +444,8 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             why = f"fixed in every group (in group {group_labels[first_key[0]]}: {why})"
         how = (" (the invariance command reads it at the step that holds the intercepts equal)"
                if everywhere and word == "a start value" else "")
-        return _fail(spec, f"{ref} is {why}, so {word} on it has no effect; remove the {word.removeprefix('a ')}"
+        removed = word.removeprefix("a ") if word.startswith("a ") else f"{word} statement"
+        return _fail(spec, f"{ref} is {why}, so {word} on it has no effect; remove the {removed}"
                            f"{' or the tie' if first_key in tied_to else ''}{how}", ref)
 
     for setting in spec.starts:
@@ -459,7 +460,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                 raise error
     for ref in spec.noninvariant:
         if ref.kind != "threshold" and scale_fixed_everywhere(ref):
-            raise no_effect(ref, "'noninvariant'")
+            raise cannot_apply(ref, "'noninvariant'")
 
     start = np.full(n_free, np.nan)
     for k, value in _start_values(spec, groups_of, free_index, multi).items():

@@ -210,10 +210,11 @@ def _estimate_with_helpers(spec: Spec, groups: list[tuple[str | None, SampleMome
     likelihood for what the helpers do not change: identification, case diagnostics), then the joint search over
     items and helpers.  ``groups``' moments hold the items and the helpers, their covariance the EM estimate of
     both."""
+    from copy import copy
+
     from cfa_tool.data.em import em_saturated
     from cfa_tool.data.patterns import pattern_data
     from cfa_tool.estimation.auxiliary import AuxiliaryFit, AuxiliaryLikelihood, JointModel, joint_start
-    from cfa_tool.estimation.fiml import MissingDataLikelihood
     from cfa_tool.estimation.optimizer import minimise
 
     helpers = options.missing_helpers
@@ -241,12 +242,11 @@ def _estimate_with_helpers(spec: Spec, groups: list[tuple[str | None, SampleMome
     # (the design of the rows answering some item: each of them has a case diagnostic)
     summaries = [GroupMoments(gm.covariance[:p, :p], gm.mean[:p], gm.n_obs, design=m.design)
                  for gm, (_, m) in zip(joint, items_only)]
-    items = MissingDataLikelihood(model, first.likelihood.patterns, items_saturated, summaries)
-    saturated = [(gm.mean, gm.covariance) for gm in joint]
+    items = copy(first.likelihood)  # its patterns and EM moments, whose pieces are computed once
+    items.groups = summaries
     joint_model = JointModel(model, r, len(joint))
-    likelihood = AuxiliaryLikelihood(joint_model, [pattern_data(gm.rows, w) for gm, w in zip(joint, weights)],
-                                     saturated, [GroupMoments(gm.covariance, gm.mean, gm.n_obs, design=gm.design)
-                                                 for gm in joint])
+    patterns, saturated, joint_summaries = full_information_data(joint)  # of the p + r columns
+    likelihood = AuxiliaryLikelihood(joint_model, patterns, saturated, joint_summaries)
     free = np.full(joint_model.n_free - joint_model.q, np.inf)
     found = minimise(likelihood.evaluate, likelihood.value, np.concatenate([first.theta, joint_start(
                          p, r, saturated, [first.model.matrices(first.theta, g).implied_covariance()
@@ -260,7 +260,8 @@ def _estimate_with_helpers(spec: Spec, groups: list[tuple[str | None, SampleMome
                f"(the model without them did); the helpers may go with the items too closely (a helper that nearly "
                f"repeats an item), or the iteration limit ({Option.MAX_ITERATIONS}) may be too low")
     return Estimation(table, model, items, found.theta[: joint_model.q].copy(), found.value, found.converged,
-                      iterations, message, AuxiliaryFit(helpers, likelihood, found.theta, tuple(items_saturated)))
+                      iterations, message, AuxiliaryFit(helpers, likelihood, found.theta, tuple(items_saturated),
+                                                        tuple(answered)))
 
 
 def full_information_data(moments: list[GroupMoments]) -> tuple[list, list, list[GroupMoments]]:
@@ -390,7 +391,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     left_out, warnings = rows_left_out([(label, m.rows_dropped, m.rows_read, m.n_obs, m.unanswered_rows,
                                          m.unanswered_ids, m.row_naming) for label, m in groups],
                                        options.missing)  # cautions first in every view, notes among the warnings
-    helpers_only = [_helpers_only(m, table.observed) if est.auxiliary is not None else 0 for _, m in groups]
+    # with helpers, the rows that answer no item but a helper (inputs.with_helpers keeps them)
+    helpers_only = ([int((~a).sum()) for a in est.auxiliary.answered] if est.auxiliary is not None
+                    else [0] * len(groups))
     if sum(helpers_only):
         warnings.append(helpers_only_note(sum(helpers_only), sum(m.rows_read for _, m in groups)))
     fit = None
@@ -495,8 +498,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 implied_mean=mats[g].implied_mean() if means else None,
                 latent_covariance=mats[g].latent_covariance(),
                 normality=mardia(gm.rows, whitened, _frequency_weights(gm)) if whitened is not None else None,
-                **_group_diagnostics(mats[g], table, gm, _answering_items(m, table.observed) if est.auxiliary
-                                     is not None else m, sigma, est.converged and options.diagnostics,
+                **_group_diagnostics(mats[g], table, gm, _answering_items(m, est.auxiliary.answered[g])
+                                     if est.auxiliary is not None else m, sigma, est.converged and options.diagnostics,
                                      spec.reverse_keyed or None, spec.method_factors | spec.exploratory_factors, whitened,
                                      likelihood.sigma_inverse(theta, g) if hasattr(likelihood, "sigma_inverse") else None,
                                      likelihood.patterns[g].rows if hasattr(likelihood, "patterns") else None),
@@ -539,17 +542,6 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                       completely_at_random=missingness)
 
 
-def _answered_items(moments: SampleMoments, observed: tuple[str, ...]) -> np.ndarray:
-    """Which of the rows of ``moments`` (a fit with missing-data helpers: items and helpers) answer some item."""
-    items = [moments.names.index(x) for x in observed]
-    return ~np.isnan(moments.rows[:, items]).all(axis=1)
-
-
-def _helpers_only(moments: SampleMoments, observed: tuple[str, ...]) -> int:
-    """The rows of a fit with missing-data helpers that answer no item but a helper (inputs.with_helpers keeps them)."""
-    return 0 if moments.rows is None else int((~_answered_items(moments, observed)).sum())
-
-
 def helpers_only_note(count: int, read: int) -> str:
     """The note on the rows that answer no item but a missing-data helper: analysed, and why."""
     return (f"{count} of {read} rows answer none of the model's items but a missing-data helper: they are analysed "
@@ -558,13 +550,13 @@ def helpers_only_note(count: int, read: int) -> str:
             f"helpers' correlations with the items imply; left out, they would leave a sample selected by the helpers")
 
 
-def _answering_items(moments: SampleMoments, observed: tuple[str, ...]) -> SampleMoments:
-    """A fit with missing-data helpers: ``moments`` with the row numbers of the rows that answer some item only, in
-    the order of the items' own full-information patterns, which the case diagnostics read (a row answering only
-    helpers has no distance on the items)."""
+def _answering_items(moments: SampleMoments, answered: np.ndarray) -> SampleMoments:
+    """A fit with missing-data helpers: ``moments`` with the row numbers of the rows that answer some item only
+    (``answered``: AuxiliaryFit.answered), in the order of the items' own full-information patterns, which the case
+    diagnostics read (a row answering only helpers has no distance on the items)."""
     if moments.rows is None or moments.row_numbers is None:
         return moments
-    return replace(moments, row_numbers=moments.row_numbers[_answered_items(moments, observed)])
+    return replace(moments, row_numbers=moments.row_numbers[answered])
 
 
 def _completely_at_random(likelihood: MissingDataLikelihood, labels, saturated=None):
@@ -589,7 +581,7 @@ def _helper_baseline(auxiliary: AuxiliaryFit, options: FitOptions) -> tuple[floa
     from cfa_tool.estimation.auxiliary import auxiliary_baseline
 
     joint = auxiliary.likelihood
-    found = auxiliary_baseline(joint.patterns, [(gm.mean, gm.covariance) for gm in joint.groups], joint.groups,
+    found = auxiliary_baseline(joint.patterns, joint.groups,
                                joint.model.items, joint.model.r, options.max_iterations)
     if found is None:
         raise EstimationError("the baseline model of the fit with missing-data helpers (the items uncorrelated, the "

@@ -1689,32 +1689,34 @@ def make_options(options: dict, own: tuple[str, ...] = (), helpers: bool = False
 
 
 def _group_parts(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,
-                 reference_group: str | None) -> list[tuple[str | None, np.ndarray]]:
-    """Each group's (label, model items' values), as data.groups splits the rows (one part without groups)."""
-    from cfa_tool.data.groups import group_labels
+                 reference_group: str | None) -> tuple[list[tuple[str | None, np.ndarray]], int]:
+    """Each group's (label, model items' values in its rows that answer some item), as data.groups splits the rows
+    (one part without groups), and the number of rows without a group label."""
+    from cfa_tool.data.groups import group_rows
     from cfa_tool.data.moments import numeric_columns
 
-    names = spec.observed_names
-    if group is None:
-        return [(None, numeric_columns(frame, names, source))]
-    _check_group_column(spec, group)
-    labels = group_labels(frame, group, source, reference_group)  # first: a column not in the file is its error
-    keys = frame[group].map(lambda v: None if pd.isna(v) else label_text(v))
-    return [(label, numeric_columns(frame.loc[(keys == label).to_numpy()], names, source)) for label in labels]
+    split, without = [(None, frame)], 0
+    if group is not None:
+        _check_group_column(spec, group)
+        split, without = group_rows(frame, group, source, reference_group)  # a column not in the file: its error
+    parts = []
+    for label, part in split:
+        values = numeric_columns(part, spec.observed_names, source)
+        parts.append((label, values[~np.isnan(values).all(axis=1)]))
+    return parts, without
 
 
-def _sparse_answers(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,
-                    reference_group: str | None) -> tuple:
+def _sparse_answers(spec: Spec, parts: list[tuple[str | None, np.ndarray]], source: str) -> tuple:
     """The cautions of a check whose rows with gaps leave full-information ML's saturated model without an estimate
-    (assessment.missingness.sparse_answers_problem), in each group: a pair of items no row answers together, or the
-    EM iterations finding no maximum; () when the saturated model can be estimated (or its failure has another
-    cause, which the moments then report as a fit would)."""
+    (assessment.missingness.sparse_answers_problem), in each group (``parts``: :func:`_group_parts`): a pair of
+    items no row answers together, or the EM iterations finding no maximum; () when the saturated model can be
+    estimated (or its failure has another cause, which the moments then report as a fit would).  Asked only when
+    the moments could not be estimated (:func:`check`), so that every group that fails is named."""
     from cfa_tool.assessment.missingness import never_together, sparse_answers_problem
     from cfa_tool.data.moments import moments_with_gaps
 
     found = []
-    for label, values in _group_parts(spec, frame, source, group, reference_group):
-        values = values[~np.isnan(values).all(axis=1)]
+    for label, values in parts:
         if not np.isnan(values).any() or len(values) <= len(spec.observed_names):
             continue  # complete rows, or too few rows: not the saturated model's gaps (the moments say so)
         if never_together(values, spec.observed_names):
@@ -1730,16 +1732,15 @@ def _sparse_answers(spec: Spec, frame: pd.DataFrame, source: str, group: str | N
     return tuple(found)
 
 
-def _rows_answering(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,
-                    reference_group: str | None) -> tuple[list[tuple[str | None, SimpleNamespace]], list[str]]:
-    """Each group's rows that answer some model item, for a check whose saturated model cannot be estimated
-    (:func:`_sparse_answers`): (label, an object with ``n_obs``) as :func:`moments_for` gives moments, and its
-    notes on rows without a group label."""
-    parts = _group_parts(spec, frame, source, group, reference_group)
-    counted = [(label, SimpleNamespace(n_obs=int((~np.isnan(values).all(axis=1)).sum()))) for label, values in parts]
+def _rows_answering(parts: list[tuple[str | None, np.ndarray]], without: int, frame: pd.DataFrame,
+                    group: str | None) -> tuple[list[tuple[str | None, SimpleNamespace]], list[str]]:
+    """Each group's rows that answer some model item (``parts`` and ``without``: :func:`_group_parts`), for a check
+    whose saturated model cannot be estimated (:func:`_sparse_answers`): (label, an object with ``n_obs``) as
+    :func:`moments_for` gives moments, and its notes on rows without a group label."""
+    counted = [(label, SimpleNamespace(n_obs=len(values))) for label, values in parts]
     if group is None:
         return counted, []
-    return counted, _no_group_notes(int(frame[group].isna().sum()), group) + label_notes(frame, group)
+    return counted, _no_group_notes(without, group) + label_notes(frame, group)
 
 
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,
@@ -1791,13 +1792,19 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
             ordinal_moments(frame, spec.observed_names, source,
                             frozenset(x for x in spec.observed_names if x not in ordinal_items), pairwise=True)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
-    sparse = _sparse_answers(spec, frame, source, group, reference_group) \
-        if options.missing is MissingData.FULL_INFORMATION and design is None else ()
-    if sparse:  # the rows are reported, with the caution that a fit of them stops (no saturated model to estimate)
-        groups, group_notes = _rows_answering(spec, frame, source, group, reference_group)
-    else:
+    sparse = ()
+    try:  # the saturated (EM) moments once; where they cannot be estimated, whether the gaps are why
         groups, group_notes = moments_for(spec, frame, source, group, reference_group, missing=options.missing,
                                           design=design)
+    except (DataError, EstimationError):
+        if options.missing is not MissingData.FULL_INFORMATION or design is not None:
+            raise
+        parts, without = _group_parts(spec, frame, source, group, reference_group)
+        sparse = _sparse_answers(spec, parts, source)
+        if not sparse:  # another cause (a constant item, an exact combination): reported as a fit reports it
+            raise
+        # the rows are reported, with the caution that a fit of them stops (no saturated model to estimate)
+        groups, group_notes = _rows_answering(parts, without, frame, group)
     notes += group_notes
     labels = tuple(label for label, _ in groups) if group is not None else None
     table = build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION)

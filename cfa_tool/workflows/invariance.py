@@ -890,8 +890,7 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
             delta, V = _group_blocks(model, theta, likelihood, g)
             extra = np.vstack([c_mu.T, c_sigma[:, I, J].T]) if likelihood.means else c_sigma[:, I, J].T
         else:  # means, vech: the layout of inference.robust_missing
-            from cfa_tool.inference.design import design_meat
-            from cfa_tool.inference.robust_missing import _model_directions, _moment_directions, moment_scores
+            from cfa_tool.inference.robust_missing import _model_directions, _moment_directions, group_meat
 
             delta = _model_directions(likelihood, theta, g)
             extra = np.vstack([c_mu.T, c_sigma[:, I, J].T])
@@ -907,8 +906,7 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
             weighted.append(w * VX)
         else:
             bread += w * X.T @ observed @ X
-            scores = moment_scores(likelihood.patterns[g], mats.implied_mean(), mats.implied_covariance())
-            meat += w * X.T @ design_meat(scores, likelihood.groups[g].design) @ X
+            meat += w * X.T @ group_meat(likelihood, g, mats) @ X  # inference.robust_missing's per-group B
     if complete:
         meat = omega.middle(weighted)
     K = information[q:, :q] @ scaled_inverse(information[:q, :q])  # A_gt A_tt^-1 of the index's information

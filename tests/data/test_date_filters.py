@@ -86,3 +86,18 @@ def test_a_date_without_a_time_means_the_whole_day_of_date_time_values(tmp_path,
     # a time given is compared as it is: 08:30 on that day is not after 08:30
     later = sum(d > day for d in rides["ride_date"])
     assert cfa_tool.check(MODEL, path, keep=[f"ride_date > {day} 08:30"]).rows == later
+
+
+def test_a_date_no_ride_has_is_not_said_to_be_a_matter_of_upper_and_lower_case(rides):
+    """A date filter that keeps no row names the dates present, and not the advice on the case of text (which
+    data.labels.other_case gives for text only; the two rules for text and labels were twins that differed here:
+    the text rule was right).  The date, 2026-06-01, lies after the 90 days of rides from 2026-02-01."""
+    from cfa_tool.data.filters import apply_filters, parse_filter
+    from cfa_tool.errors import DataError
+
+    assert max(rides["ride_date"]) < datetime.date(2026, 6, 1)
+    with pytest.raises(DataError, match=r"no row has '2026-06-01' in 'ride_date'") as error:
+        apply_filters(rides, [parse_filter("ride_date = 2026-06-01")], "rides.csv")
+    assert "upper and lower case" not in str(error.value)
+    kept, _, (said,) = apply_filters(rides, [parse_filter("ride_date != 2026-06-01")], "rides.csv")
+    assert len(kept) == len(rides) and said.other_case == ()

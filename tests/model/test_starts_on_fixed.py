@@ -110,3 +110,24 @@ def test_a_start_on_a_factor_mean_is_not_refused_at_a_ladder_step(statement):
     table = build_parameter_table(spec_of_level(parse_model(F + statement, "m.cfa"), (), ()), GROUPS)
     assert "mean(f) [south]" not in table.free_labels
     assert np.isnan(table.start).all()
+
+
+@pytest.mark.parametrize("kind, fixed", [("intercept", "fixed at 0 to give the latent response of the ordinal item "
+                                                       "'a' its origin (Wu & Estabrook 2016)"),
+                                         ("variance", "fixed at 1 to give the latent response of the ordinal item 'a' "
+                                                      "its unit (Wu & Estabrook 2016)")])
+def test_noninvariant_on_an_ordinal_items_fixed_latent_response_says_why_as_a_start_does(kind, fixed):
+    """An ordinal item's latent response has its intercept fixed at 0 and its variance at 1 in every group while its
+    thresholds may differ (Wu & Estabrook 2016), so exempting either from being held equal has no effect.  The
+    'noninvariant' check and the start's check were two rules for 'fixed to set a scale'; the 'noninvariant' one
+    took the item for a factor ('scale a by marker'), the start's one was right: both now say why as the start's
+    did.  Item 'a' is the ordinal item (two thresholds), b, c and d continuous."""
+    held = "intercepts" if kind == "intercept" else "error variances"
+    spec = parse_model(f"factor f: a, b, c, d\nequal across groups: loadings, {held}\nnoninvariant {kind}(a)\n",
+                       "m.cfa")
+    with pytest.raises(ModelError) as info:
+        build_parameter_table(spec, GROUPS, mean_structure=True, ordinal={"a": 2})
+    assert (info.value.location.line, info.value.location.column) == (3, 14)
+    assert (f"{kind}(a) is fixed in every group (in group north: {fixed}), so 'noninvariant' on it has no effect; "
+            f"remove the 'noninvariant' statement") in str(info.value)
+    assert "marker" not in str(info.value)

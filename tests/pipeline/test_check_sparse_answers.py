@@ -79,3 +79,30 @@ def test_a_group_whose_pair_is_never_answered_together_is_named():
     assert sparse[0].explanation.startswith("No row answers both 'x1' and 'x2'")  # the views name the group first
     assert "or leave the group out with a row filter (keep=...)" in sparse[0].advice
     assert found.group_rows == (200, 120)
+
+
+@pytest.mark.parametrize("group", [None, "site"])
+def test_check_estimates_the_saturated_moments_of_rows_with_gaps_once(monkeypatch, group):
+    """The EM estimate of the saturated model (Dempster, Laird & Rubin 1977) is run once per group by a check whose
+    rows have gaps: the moments are computed once and the caution on sparse answers is asked only when they cannot
+    be estimated.  The rows are planted: rows 0-40 lack x1 and rows 60-90 lack x3, so 72 of 300 have a gap."""
+    import cfa_tool.data.em as em
+
+    runs = []
+    original = em.em_saturated
+
+    def counted(*args, **kwargs):
+        runs.append(1)
+        return original(*args, **kwargs)
+
+    monkeypatch.setattr(em, "em_saturated", counted)
+    rng = np.random.default_rng(1)
+    factor = rng.normal(size=300)
+    data = pd.DataFrame({f"x{j}": 0.8 * factor + rng.normal(scale=0.6, size=300) for j in range(1, 5)})
+    data.loc[:40, "x1"] = np.nan
+    data.loc[60:90, "x3"] = np.nan
+    data["site"] = np.where(np.arange(300) % 2, "north", "south")
+    found = cfa_tool.check("factor f: x1..x4\n", data, group=group)
+    assert not [p for p in found.problems if p.kind is ProblemKind.SPARSE_ANSWERS]
+    assert (found.rows, found.complete, found.with_gaps) == (300, 228, 72)  # 41 + 31 rows with one gap each
+    assert len(runs) == (1 if group is None else 2)

@@ -110,3 +110,28 @@ def test_the_other_commands_refuse_them(command, capsys):
         main([command, "--missing-helpers", "age"])
     assert stop.value.code == 2
     assert f"{command}: --missing-helpers cannot apply" in capsys.readouterr().err
+
+
+def test_the_items_likelihood_and_the_baseline_model_are_built_once(frame, monkeypatch):
+    """A fit with helpers builds the items' own full-information likelihood once (the first fit's, with the joint
+    N's summaries) and the baseline's linear model once for every group (it is the same in each: Savalei & Bentler
+    2009's baseline with the helpers free).  The counts are the check; the fit's numbers are checked in
+    tests/estimation/test_auxiliary.py."""
+    from cfa_tool.estimation import auxiliary, fiml
+
+    built = {"items": 0, "baseline": 0}
+    items_init, baseline_init = fiml.MissingDataLikelihood.__init__, auxiliary.LinearJointModel.__init__
+
+    def items(self, *args, **kwargs):
+        built["items"] += type(self) is fiml.MissingDataLikelihood
+        items_init(self, *args, **kwargs)
+
+    def baseline(self, *args, **kwargs):
+        built["baseline"] += 1
+        baseline_init(self, *args, **kwargs)
+
+    monkeypatch.setattr(fiml.MissingDataLikelihood, "__init__", items)
+    monkeypatch.setattr(auxiliary.LinearJointModel, "__init__", baseline)
+    result = cfa_tool.fit(MODEL, frame, missing_helpers=["age"], group="district")
+    assert result.converged and np.isfinite(result.fit.cfi)
+    assert built == {"items": 1, "baseline": 1}
