@@ -109,15 +109,15 @@ def quality_table(result, k: int) -> ReportTable:
         note = ("Posterior-mean scores in these data: reliability Var(score) / (Var(score) + mean posterior variance), the "
                 "squared correlation of the score with its factor (law of total variance); determinacy its square root.")
         if sums is not None:
-            omega = dict(zip(sums.factors, sums.omega))
             cols.append(("Item sum ω", "r"))
-            rows = [row + [unit(omega[name]) if name in omega else "—"] for row, name in zip(rows, q.factors)]
+            rows = [row + [_omega_cell(sums, name)] for row, name in zip(rows, q.factors)]
             note += (" Item sum ω: the reliability of the keyed sum of the answers' codes (and of the item mean, its "
                      "multiple) of rows that answered every item, from the fitted thresholds, loadings and factor "
                      "variance (Green & Yang 2009; a prorated sum of fewer items is less reliable), as the "
                      "fit gives it: the agreement of the sum with its own true score, not with the factor, so it is "
                      "not comparable with the posterior means' reliability beside it; — where a factor has no item "
-                     "sum.")
+                     "sum or its sum none (one item, or continuous items beside ordinal ones: the notes say why)."
+                     + _one_item_sentence(result.fit))
     else:
         cols = [("Factor", "l"), ("Determinacy", "r")] + [(METHOD_COLUMNS[m.method], "r") for m in q.methods]
         rows = []
@@ -126,9 +126,8 @@ def quality_table(result, k: int) -> ReportTable:
                          + (f" (below {unit(DETERMINACY_CAUTION, 2)})" if q.low_determinacy[f] else "")]
                         + [unit(m.reliability[f]) for m in q.methods])
         if sums is not None:
-            omega = dict(zip(sums.factors, sums.omega))
             cols.append(("Item sum ω", "r"))
-            rows = [row + [unit(omega[name]) if name in omega else "—"] for row, name in zip(rows, q.factors)]
+            rows = [row + [_omega_cell(sums, name)] for row, name in zip(rows, q.factors)]
         note = ("Determinacy: the correlation of the regression scores with their factor (Grice 2001). Then the "
                 "reliability of each method's scores (Corr.-preserving: correlation-preserving scores): the squared correlation of "
                 "the score with its factor (Beauducel 2011). Values "
@@ -141,11 +140,19 @@ def quality_table(result, k: int) -> ReportTable:
                    "omega (McDonald 1999) as the fit gives it, the share of the sum's variance due to the factor; for "
                    "items that load on one factor only it is the squared correlation of the sum with the factor, as "
                    "the methods' reliabilities are; it is that of rows that answered every item (a prorated sum of "
-                   "fewer items is less reliable); — where a factor has no item sum." if sums is not None else "")
+                   "fewer items is less reliable); — where a factor has no item sum or its sum none (one item)."
+                   if sums is not None else "")
                 + _one_item_sentence(result.fit))
     title = "Quality of the scores" + _where(q) + ("" if ordinal else ": determinacy, and reliability by method")
     return _table(f"score_quality_{k}", title, cols, rows, note,
                   flagged=tuple(i for i, low in enumerate(q.low_determinacy) if low))
+
+
+def _omega_cell(sums, factor: str) -> str:
+    """The item sum's omega of ``factor`` in the quality table: the one value of the sums' table
+    (scoring.quality.SumScore, read through the item sums' summary), '—' where it has none."""
+    omega = dict(zip(sums.factors, sums.omega)).get(factor, float("nan"))
+    return "—" if omega != omega else unit(omega)
 
 
 def _precision_of(result, q) -> tuple[ScoreMethod | None, tuple]:
@@ -325,6 +332,11 @@ def item_sum_notes(result) -> list[str]:
         if g.not_summed:
             lines.append(f"No item sum or mean{where} for " + "; ".join(f"{f} ({why.value})" for f, why in g.not_summed)
                          + ".")
+        if g.mixed:
+            lines.append(f"No reliability or standard error of measurement{where} for the item sums and means of "
+                         f"{word_list(g.mixed)}: they add continuous items' values to ordinal answers' codes, and the "
+                         f"fitted model gives the spread of a sum of answers' codes alone (Green & Yang 2009), not of "
+                         f"such a mixture.")
     return lines
 
 
@@ -361,7 +373,7 @@ def sum_table(result, k: int) -> ReportTable | None:
         return None
     rho = dict(zip(q.factors, q.determinacy))
     if not hasattr(q, "methods"):  # ordinal items: the sum of the answers' codes (Green & Yang 2009)
-        rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), unit(s.omega), unit(s.validity),
+        rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), _sum_omega(s), unit(s.validity),
                  unit(rho[s.factor])] for s in q.sums]
         return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(q),
                       [("Factor", "l"), ("Items", "r"), ("Reversed", "l"), ("Sum omega", "r"),
@@ -372,16 +384,21 @@ def sum_table(result, k: int) -> ReportTable | None:
                       "categories is a curved function of the factor, so it is not comparable with a score's "
                       "agreement with the factor. Sum's r: the sum's correlation with the factor under the fitted "
                       "model; score's r: the posterior-mean score's in these data (the square root of its reliability "
-                      "in the quality table); the two show what the simpler score loses.")
-    rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), unit(s.omega), unit(s.validity), unit(rho[s.factor])]
-            for s in q.sums]
+                      "in the quality table); the two show what the simpler score loses." + _one_item_sentence(result.fit))
+    rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), _sum_omega(s), unit(s.validity),
+             unit(rho[s.factor])] for s in q.sums]
     return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(q),
                   [("Factor", "l"), ("Items", "r"), ("Reversed", "l"), ("Sum omega", "r"), ("Sum's r", "r"),
                    ("Score's r", "r")], rows,
                   "The unit-weighted sum of each factor's items (reversed: the reverse-keyed items, reversed in the "
                   "sum); sum omega: its reliability (McDonald 1999); sum's r and score's r: the correlations of the "
                   "sum and of the regression score with the factor under the fitted model, which show what the "
-                  "simpler score loses against the factor score.")
+                  "simpler score loses against the factor score." + _one_item_sentence(result.fit))
+
+
+def _sum_omega(s) -> str:
+    """A keyed sum's omega cell (scoring.quality.SumScore), '—' for a sum of one item, which has none."""
+    return "—" if s.omega != s.omega else unit(s.omega)
 
 
 def _unscored_counts(factors, counts) -> str:

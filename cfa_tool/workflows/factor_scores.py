@@ -29,7 +29,8 @@ from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.scoring.item_sums import ItemSumRule
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_METHODS, ScoreMethod, Unscored
-from cfa_tool.scoring.quality import Precision, ScoreQuality, ordinal_sum_quality
+from cfa_tool.scoring.quality import (Precision, ScoreQuality, SumScore, item_sum_precision, mixed_sums,
+                                      ordinal_sum_quality, sum_quality)
 
 
 class NotScored(Enum):
@@ -347,7 +348,9 @@ class ItemSumSummary:
     rule: ItemSumRule
     factors: tuple[str, ...]  # the factors summed
     items: tuple[tuple[str, ...], ...]  # each summed factor's items
-    omega: tuple[float, ...]  # of each summed factor's keyed sum, from the fit's reliability (McDonald 1999)
+    #: scoring.quality.SumScore of the summed factors that have one: the very objects of the group's quality
+    #: (ScoreQuality.sums, OrdinalQuality.sums), whose omega and SD every table reads
+    sums: tuple[SumScore, ...]
     reversals: tuple[Reversal, ...]
     not_summed: tuple[tuple[str, Unscored], ...]  # (factor, why it has no item sum)
     shared: tuple[tuple[str, tuple[str, ...]], ...]  # (item, the summed factors it counts on) for items on several
@@ -355,6 +358,15 @@ class ItemSumSummary:
     # scoring.quality.Precision of each summed factor's item sum and mean written (their standard error of
     # measurement, from the sum's SD under the fitted model and its omega)
     precision: tuple[Precision, ...] = ()
+    #: summed factors whose sum adds continuous items' values to ordinal answers' codes: no reliability or SEM
+    #: (scoring.quality.mixed_sums)
+    mixed: tuple[str, ...] = ()
+
+    @property
+    def omega(self) -> tuple[float, ...]:
+        """Each summed factor's omega of its keyed sum (:attr:`sums`; NaN where it has none)."""
+        found = {s.factor: s.omega for s in self.sums}
+        return tuple(found.get(f, float("nan")) for f in self.factors)
 
     def to_dict(self) -> dict:
         return clean({"group": self.group, "least_share_answered": self.rule.least_share,
@@ -384,11 +396,13 @@ class _ItemParts:
         return [j for j, why in enumerate(self.not_summed) if why is None]
 
 
-def _item_parts(model, spec, fit_data, omegas: dict, rule: ItemSumRule, categories=None) -> _ItemParts:
+def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSumRule, categories=None,
+                mixed: tuple[str, ...] = ()) -> _ItemParts:
     """One group's :class:`_ItemParts` (``model``: its ScoringModel; ``fit_data``: the fit's DataSummary, whose
-    answer ranges give the scale of a reverse-keyed item no statement gives one; ``omegas``: factor -> omega of
-    the keyed sum in the fit's reliability, assessment.reliability; ``categories``: ordinal items' answer values in
-    the fitted rows, item by item, which give that scale when the fit keeps no answer ranges)."""
+    answer ranges give the scale of a reverse-keyed item no statement gives one; ``sums``: the group's keyed sums'
+    quality (scoring.quality.SumScore); ``categories``: ordinal items' answer values in the fitted rows, item by
+    item, which give that scale when the fit keeps no answer ranges; ``mixed``: the factors whose sum mixes
+    continuous and ordinal items, scoring.quality.mixed_sums)."""
     from cfa_tool.scoring.quality import sum_keys
 
     keys = sum_keys(model, _declared(spec))
@@ -424,34 +438,14 @@ def _item_parts(model, spec, fit_data, omegas: dict, rule: ItemSumRule, categori
     counted = (keys != 0)[:, summed]
     shared = tuple((model.items[i], tuple(model.factors[summed[k]] for k in np.flatnonzero(counted[i])))
                    for i in np.flatnonzero(counted.sum(axis=1) > 1))
-    summary = ItemSumSummary(model.group, rule, tuple(model.factors[j] for j in summed),
+    names = tuple(model.factors[j] for j in summed)
+    summary = ItemSumSummary(model.group, rule, names,
                              tuple(tuple(model.items[i] for i in np.flatnonzero(keys[:, j])) for j in summed),
-                             tuple(float(omegas.get(model.factors[j], float("nan"))) for j in summed),
+                             tuple(s for s in sums if s.factor in names),
                              tuple(reversals), tuple((f, why) for f, why in zip(model.factors, not_summed)
-                                                     if why is not None), shared)
+                                                     if why is not None), shared,
+                             mixed=tuple(f for f in names if f in mixed))
     return _ItemParts(keys, lowest, highest, not_summed, summary)
-
-
-def _fitted_omegas(fit, ordinal: bool) -> dict:
-    """Each group's label -> {factor: omega of the keyed sum} in the fit's reliability (assessment.reliability, as
-    the fit's report gives it), from a fit result or from the reliability a saved fit's JSON holds; for ordinal items
-    the omega of the sum of the answers' codes (Green & Yang 2009) the fit gives beside its latent-response omega."""
-    field = "observed_sum_omega" if ordinal else "omega"
-    if isinstance(fit, SavedFit):
-        payload = fit.payload
-        if fit.group_column is not None:
-            parts = {g.get("name"): g.get("reliability") or {} for g in payload.get("groups", ())}
-        else:
-            parts = {None: payload.get("reliability") or {}}
-        found = {label: {r["factor"]: float("nan") if r.get(field) is None else float(r[field])
-                         for r in part.get("factors", ()) if isinstance(r, dict) and "factor" in r}
-                 for label, part in parts.items()}
-    else:
-        found = {g.label: {r.factor: float("nan") if getattr(r, field) is None else float(getattr(r, field))
-                           for r in g.reliability} for g in fit.groups}
-    if len(found) == 1:  # one group: whatever its label, the one set
-        found[None] = next(iter(found.values()))
-    return found
 
 
 def _score_group(model, rows: np.ndarray, chosen, ordinal: bool, parts: _ItemParts | None) -> tuple[dict, tuple]:
@@ -693,8 +687,9 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     errors = {meth: np.full((len(read_index), m), np.nan) for meth in chosen}
     counts: dict = {}
     position = pd.Series(np.arange(len(read_index)), index=read_index)
+    sums = _sum_scores(models, spec, bool(ordinal_items))
     summaries = _score_each_group(models, labels, spec, result, rule, rows, group_of_row, group, chosen,
-                                  bool(ordinal_items), position.loc[kept].to_numpy(), values, errors, counts)
+                                  bool(ordinal_items), position.loc[kept].to_numpy(), values, errors, counts, sums)
     reasons = _row_reasons(read_index, kept, rows, group_of_row, group, labels)
     _count_rows_left_out(reasons, chosen, m, counts)
 
@@ -707,7 +702,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     table = _in_file_order(pd.DataFrame(columns, index=read_index), data, names_row)  # a frame's own index: joins
     table = _with_why_not_scored(table, id_name, score_columns(chosen, factors), reasons)
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
-                               spec, answered) if ordinal_items else _linear_quality(models, spec)
+                               spec, answered, sums) if ordinal_items else _linear_quality(models, spec, sums)
     result = _with_repeated_ids(result, ids, id_column)
     extra = duplicate_note(ids, "id column" if id_column is not None else "row names", False) + _partly_answered(
         models[0].base if ordinal_items else models[0], answered, chosen, errors)
@@ -742,18 +737,19 @@ def _with_repeated_ids(result, ids, id_column):
 
 
 def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group, chosen, ordinal: bool,
-                      places: np.ndarray, values: dict, errors: dict, counts: dict) -> tuple[ItemSumSummary, ...]:
+                      places: np.ndarray, values: dict, errors: dict, counts: dict,
+                      sums: list) -> tuple[ItemSumSummary, ...]:
     """Every row of each group scored by each chosen method into ``values`` and ``errors`` (rows read, at
     ``places``: the place of each row of ``rows`` among them), the rows without a score counted into ``counts``
-    by (reason, method); the summary of each group's item sums and means (none when ``rule`` is None)."""
+    by (reason, method); the summary of each group's item sums and means (none when ``rule`` is None), whose
+    reliability and spread are the group's keyed sums' quality ``sums[g]`` (:func:`_sum_scores`)."""
     m = values[chosen[0]].shape[1]
-    omegas = _fitted_omegas(fit, ordinal) if rule is not None else {}
     summaries = []
-    for model_g, label in zip(models, labels):
+    for model_g, label, sums_g in zip(models, labels, sums):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(rows))
-        parts = None if rule is None else _item_parts(model_g.base if ordinal else model_g, spec, fit.data,
-                                                       omegas.get(label, {}), rule,
-                                                       model_g.categories if ordinal else None)
+        parts = None if rule is None else _item_parts(model_g.base if ordinal else model_g, spec, fit.data, sums_g,
+                                                       rule, model_g.categories if ordinal else None,
+                                                       mixed_sums(model_g, _declared(spec)) if ordinal else ())
         prorated: tuple = ()
         if len(sel):
             at = places[sel]
@@ -765,20 +761,16 @@ def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group
                     counts[key] = counts.get(key, np.zeros(m, dtype=np.int64)) + np.asarray(c, dtype=np.int64)
         if parts is not None:
             summaries.append(replace(parts.summary, prorated=prorated or (0,) * len(parts.summary.factors),
-                                     precision=_item_sum_precision(model_g, parts, chosen)))
+                                     precision=item_sum_precision(parts.summary.sums, chosen)))
     return tuple(summaries)
 
 
-def _item_sum_precision(model, parts: _ItemParts, chosen) -> tuple[Precision, ...]:
-    """The precision of one group's item sums and means written (scoring.quality.item_sum_precision), from the sums'
-    SDs under the model (``model``: the group's scoring model, ordinal or not) and their omega in the fit."""
-    from cfa_tool.scoring.quality import item_sum_precision, keyed_sum_sds
-
-    summary = parts.summary
-    summed = parts.summed
-    sds = keyed_sum_sds(model, parts.keys)
-    return item_sum_precision(summary.factors, [len(items) for items in summary.items], sds[summed], summary.omega,
-                              chosen)
+def _sum_scores(models, spec, ordinal: bool) -> list[tuple[SumScore, ...]]:
+    """Each group's keyed sums with their reliability and spread under the fitted model (scoring.quality
+    .sum_quality, or ordinal_sum_quality for ordinal items), computed once: the quality tables and the item sums'
+    summary read the same objects."""
+    declared = _declared(spec)
+    return [ordinal_sum_quality(m, declared) if ordinal else sum_quality(m, declared) for m in models]
 
 
 def _partly_answered(model, answered: np.ndarray, chosen, errors: dict) -> list[str]:
@@ -934,8 +926,9 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     if ordinal:
         _check_categories(models[0], rows, row_numbers(frame), source, row_naming(frame))
     counts: dict = {}
+    sums = _sum_scores(models, spec, ordinal)
     summaries = _score_each_group(models, labels, spec, result, rule, rows, group_of_row, group, chosen, ordinal,
-                                  position.loc[frame.index].to_numpy(), values, errors, counts)
+                                  position.loc[frame.index].to_numpy(), values, errors, counts, sums)
     reasons = _row_reasons(read_frame.index, frame.index, rows, group_of_row, group, labels)
     _count_rows_left_out(reasons, chosen, m, counts)
     factors = base.factors
@@ -967,12 +960,12 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes += label_notes(frame, group)
     if ordinal:
         quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, frame.index,
-                                   group_of_row, group, spec, answered)
+                                   group_of_row, group, spec, answered, sums)
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source} (loadings, thresholds and factor covariances); the quality figures "
                         f"(marginal reliability) are those of the scores of {source}.")
     else:
-        quality = _linear_quality(models, spec)
+        quality = _linear_quality(models, spec, sums)
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
@@ -1463,11 +1456,12 @@ def _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, 
     return list(ordinal_score_inputs(_Fitted(table, StructuredModel(table), result.theta), groups)), list(labels)
 
 
-def _linear_quality(models, spec) -> list[ScoreQuality]:
+def _linear_quality(models, spec, sums: list) -> list[ScoreQuality]:
+    """Each group's :class:`ScoreQuality`, holding the group's keyed sums ``sums[g]`` (:func:`_sum_scores`)."""
     from cfa_tool.scoring.methods import LINEAR_METHODS
     from cfa_tool.scoring.quality import score_quality
 
-    return [score_quality(m, LINEAR_METHODS, _declared(spec)) for m in models]
+    return [score_quality(m, LINEAR_METHODS, _declared(spec), s) for m, s in zip(models, sums)]
 
 
 def _declared(spec):
@@ -1477,11 +1471,12 @@ def _declared(spec):
 
 
 def _ordinal_quality(models, labels, values, errors, position, kept, group_of_row, group, spec,
-                     answered: np.ndarray) -> list[OrdinalQuality]:
+                     answered: np.ndarray, sums: list) -> list[OrdinalQuality]:
     """Each group's :class:`OrdinalQuality`; ``answered``: how many of each factor's items each row answered
-    (:func:`_items_answered`), at the same places as ``values`` and ``errors``."""
+    (:func:`_items_answered`), at the same places as ``values`` and ``errors``; ``sums``: each group's keyed sums
+    (:func:`_sum_scores`)."""
     out = []
-    for model_g, label in zip(models, labels):
+    for model_g, label, sums_g in zip(models, labels, sums):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(kept))
         at = position.loc[kept[sel]].to_numpy()
         v, e = values[at], errors[at]
@@ -1497,7 +1492,7 @@ def _ordinal_quality(models, labels, values, errors, position, kept, group_of_ro
         sd = np.sqrt(np.diag(phi))
         precision, by_level = _ordinal_precision(model_g.base, v, e, answered[at], reliability, sd)
         out.append(OrdinalQuality(label, model_g.base.factors, tuple(reliability), phi / np.outer(sd, sd), scores,
-                                  ordinal_sum_quality(model_g, _declared(spec)), precision, by_level))
+                                  sums_g, precision, by_level))
     return out
 
 
