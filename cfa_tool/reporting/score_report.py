@@ -9,7 +9,7 @@ from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.options import Option
 from cfa_tool.reporting.numbers import num, unit, word_list
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
-from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT, WHY_NOT_SCORED_COLUMN, factor_methods
+from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT, SAME_ANSWER_COLUMN, WHY_NOT_SCORED_COLUMN, factor_methods
 from cfa_tool.scoring.methods import (DETERMINACY_CAUTION, INDIVIDUAL_DECISIONS, ITEM_METHODS, LINEAR_METHODS,
                                       ScoreMethod, Unscored)
 
@@ -47,7 +47,8 @@ def header_lines(result) -> list[str]:
             + (" (factor scores only)" if result.standard_errors and any(m in ITEM_METHODS for m in result.methods)
                else "")
             + f"{' and method' if len(result.methods) > 1 else ''}, then per factor the number of its items the row "
-              f"answered" + (f", then {WHY_NOT_SCORED_COLUMN}" if result.not_scored else "")] + _design_line(fit)
+              f"answered, then {SAME_ANSWER_COLUMN} and {WHY_NOT_SCORED_COLUMN} (always written, empty where there "
+              f"is nothing to say)"] + _design_line(fit)
 
 
 def rows_scored(result) -> str:

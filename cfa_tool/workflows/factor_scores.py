@@ -60,7 +60,8 @@ _REASONS = {NotScored.FILTERED: "left out by a row filter (--keep)", NotScored.B
 _ROWS_LEFT_OUT = (NotScored.FILTERED, NotScored.NO_GROUP, NotScored.UNKNOWN_GROUP)
 
 
-#: output column of the reason a line has no score at all (:class:`NotScored`), written when some line has none
+#: output column of the reason a line has no score at all (:class:`NotScored`), the file's last, always written (empty
+#: on the lines scored)
 WHY_NOT_SCORED_COLUMN = "why_not_scored"
 
 
@@ -158,20 +159,22 @@ def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, er
 
 
 #: output column that marks the rows that gave one answer to every item they answered, reverse-worded ones included
-#: (data.same_answers: 1, else 0; empty for rows not scored), written when the model declares reversed items
+#: (data.same_answers: 1, else 0; empty for rows not scored, and on every line when the model declares no reversed
+#: items beside others), always written, before :data:`WHY_NOT_SCORED_COLUMN`: the file's columns never vary
 SAME_ANSWER_COLUMN = "same_answer_to_every_item"
 
 
 def _with_same_answer_column(columns: dict, id_name, spec, items, rows: np.ndarray, at: np.ndarray, n: int) -> dict:
     """``columns`` with :data:`SAME_ANSWER_COLUMN` last (``rows``: the answers of the rows read, at the places ``at``
-    of the ``n`` output rows); unchanged without a 'reversed' statement, where one answer throughout contradicts
-    nothing the model knows."""
+    of the ``n`` output rows); the column is empty without a 'reversed' statement naming some but not all items,
+    where one answer throughout contradicts nothing the model knows (written all the same: a researcher's script
+    reads the same columns from every run)."""
     from cfa_tool.data.same_answers import same_answer_rows
 
+    _refuse_id_named_as(id_name, (SAME_ANSWER_COLUMN,))
     turned = np.array([x in spec.reverse_keyed for x in items], dtype=bool)
     if not spec.reversed or not turned.any() or turned.all():
-        return columns
-    _refuse_id_named_as(id_name, (SAME_ANSWER_COLUMN,))
+        return {**columns, SAME_ANSWER_COLUMN: pd.array([None] * n, dtype="Int64")}
     found = same_answer_rows(rows, np.arange(len(rows)), turned)
     flags = np.full(n, -1)
     flags[at] = 0
@@ -260,13 +263,13 @@ def _count_rows_left_out(reasons: pd.Series, chosen, m: int, counts: dict) -> No
 
 def _with_why_not_scored(table: pd.DataFrame, id_name, score_columns: list[str], reasons: pd.Series) -> pd.DataFrame:
     """``table`` (the scores in file order, blank rows of the file as empty lines) with :data:`WHY_NOT_SCORED_COLUMN`
-    last when some line has no score at all, saying why (:class:`NotScored`; ``reasons``: :func:`_row_reasons`), so
-    that a line left empty is told apart from a person with no answers when the file is merged back; unchanged when
-    every line has a score."""
+    last, saying why a line has no score at all (:class:`NotScored`; ``reasons``: :func:`_row_reasons`), so that a
+    line left empty is told apart from a person with no answers when the file is merged back; empty on the lines
+    scored, and on every line when each has a score (written all the same: the file's columns never vary)."""
+    _refuse_id_named_as(id_name, (WHY_NOT_SCORED_COLUMN,))
     scored = table[score_columns].notna().any(axis=1).to_numpy()
     if scored.all():
-        return table
-    _refuse_id_named_as(id_name, (WHY_NOT_SCORED_COLUMN,))
+        return table.assign(**{WHY_NOT_SCORED_COLUMN: pd.Series([None] * len(table), index=table.index, dtype=object)})
     known = table.index.isin(reasons.index)
     why = np.full(len(table), None, dtype=object)
     why[known] = reasons.reindex(table.index[known]).to_numpy()
