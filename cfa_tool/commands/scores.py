@@ -30,7 +30,9 @@ def add_parser(sub) -> None:
                         "prorated from the answered ones (default 0.5, common practice); a row that answered fewer "
                         "gets empty cells")
     p.add_argument("--standard-errors", action="store_true",
-                   help="also write each score's standard error (for regression scores the posterior standard deviation); "
+                   help="also write each score's standard error (for regression scores the posterior standard deviation; "
+                        "for item sums and means, _sem, their standard error of measurement from the items the row "
+                        "answered); "
                         "ordinal items always have theirs written, so the option is not given with them")
     p.add_argument("--id", metavar="COLUMN", help="column written first to name each row (never analysed); default: "
                                                   "the file's row names, when its first header cell is empty")

@@ -44,8 +44,8 @@ def header_lines(result) -> list[str]:
             + _empty_lines(result) + f"; columns: {first}one per factor" + ("" if not result.standard_errors else
                                         " with its posterior standard deviation" if ScoreMethod.EXPECTED_A_POSTERIORI
                                         in result.methods else " with its standard error")
-            + (" (factor scores only)" if result.standard_errors and any(m in ITEM_METHODS for m in result.methods)
-               else "")
+            + (" (an item sum's or mean's: its standard error of measurement, _sem)" if result.standard_errors
+               and any(m in ITEM_METHODS for m in result.methods) else "")
             + f"{' and method' if len(result.methods) > 1 else ''}, then per factor the number of its items the row "
               f"answered, then {SAME_ANSWER_COLUMN} and {WHY_NOT_SCORED_COLUMN} (always written, empty where there "
               f"is nothing to say)"] + _design_line(fit)
@@ -242,10 +242,27 @@ def item_sum_precision_table(result, k: int) -> ReportTable | None:
             f"reliability, as in the quality table; SEM: the standard error of measurement, SD × √(1 − ω) (Lord & "
             f"Novick 1968), the typical distance of a person's score from their true score; 95% band: ±1.96 SEM "
             f"about a score (normal approximation); real difference: the smallest difference between two people's "
-            f"scores that exceeds chance at the 5% level, 1.96 × √2 × SEM (Gulliksen 1950). A prorated score, of "
-            f"fewer items, is less precise than this.")
+            f"scores that exceeds chance at the 5% level, 1.96 × √2 × SEM (Gulliksen 1950). "
+            + _prorated_sentence(result, sums))
     return _table(f"item_sum_precision_{k}", "How precise is one person's item score?" + _where(q), cols, rows,
                   note, values=([c for c, _ in cols], values))
+
+
+def _prorated_sentence(result, sums) -> str:
+    """What the item-score precision table says of prorated scores: each row's own SEM is that of the sum of the
+    items it answered, SD √(1 − ω) of their sum under the fitted model (Lord & Novick 1968; scoring.quality
+    .answered_sum_sems), scaled as the score is; the range of the prorated rows' SEMs, per factor."""
+    where = ("the _sem columns of the file" if result.standard_errors else
+             f"written to the file (_sem columns) with {Option.STANDARD_ERRORS}")
+    said = (f"A prorated score rests on the items the row answered, and its own SEM is that of their sum, SD × "
+            f"√(1 − ω) of that sum under the fitted model, scaled as the score is (times J/a for a sum prorated from a "
+            f"of J items, divided by a for a mean), as a rule larger than the figure above: each row's is {where}.")
+    if sums.prorated_sem:
+        said += " Prorated rows here: " + "; ".join(
+            f"{f} {n} {'row' if n == 1 else 'rows'}, {METHOD_LABELS[m]} SEM "
+            + (num(low, 2) if num(low, 2) == num(high, 2) else f"{num(low, 2)} to {num(high, 2)}")
+            for f, m, low, high, n in sums.prorated_sem) + "."
+    return said
 
 
 def precision_cautions(result) -> list[str]:

@@ -22,7 +22,9 @@ independent errors (Gulliksen 1950; recalled from memory, common practice).
 
 Precision of a person's item sum (or mean: the sum divided by the number of items): the standard error of
 measurement SEM = SD sqrt(1 - omega) (Lord & Novick 1968), SD the keyed sum's standard deviation under the fitted
-model and omega its reliability, with the same band and smallest real difference as a factor score's.
+model and omega its reliability, with the same band and smallest real difference as a factor score's.  A row that
+answered a of the J items: the SEM of the sum of those items by the same formula (their SD and omega under the
+model), times J/a for the prorated sum and divided by a for the mean (:func:`answered_sum_sems`).
 
 Sum scores of ordinal items: the same keyed sums of the answers' codes, with the reliability of Green & Yang (2009)
 from the thresholds, loadings and factor covariances (:mod:`cfa_tool.assessment.ordinal_reliability`).
@@ -291,17 +293,63 @@ def ordinal_sum_quality(model: OrdinalScoringModel, declared: Collection[str] | 
         idx = _ordinal_sum_items(model, keys[:, f])
         if idx is None:
             continue
-        g = G[idx, f]
+        omega, variance = _ordinal_sum_parts(model, sigma, mean, idx, f, keys[:, f])
         taus, steps = [model.thresholds[i] for i in idx], [np.diff(model.categories[i]) for i in idx]
-        part = sigma[np.ix_(idx, idx)]
-        omega, variance = observed_sum_reliability(taus, steps, mean[idx], part, np.outer(g, g) * phi[f, f],
-                                                   keys[idx, f])
-        validity = observed_sum_factor_correlation(taus, steps, mean[idx], part, (G @ phi)[idx, f], phi[f, f],
-                                                   keys[idx, f])
+        validity = observed_sum_factor_correlation(taus, steps, mean[idx], sigma[np.ix_(idx, idx)], (G @ phi)[idx, f],
+                                                   phi[f, f], keys[idx, f])
         items = tuple(base.items[i] for i in idx)
         out.append(SumScore(name, items, tuple(base.items[i] for i in idx if keys[i, f] < 0),
                             _one_item_omega(omega, items), validity, variance))
     return tuple(out)
+
+
+def _ordinal_sum_parts(model: OrdinalScoringModel, sigma: np.ndarray, mean: np.ndarray, idx: np.ndarray, f: int,
+                       keys: np.ndarray) -> tuple[float, float]:
+    """(omega, variance) of the keyed sum of the answers' codes of the ordinal items ``idx`` for factor ``f``
+    (Green & Yang 2009; ``sigma``, ``mean``: the latent responses' implied covariance and means)."""
+    base = model.base
+    g = base.total_loadings[idx, f]
+    taus, steps = [model.thresholds[i] for i in idx], [np.diff(model.categories[i]) for i in idx]
+    return observed_sum_reliability(taus, steps, mean[idx], sigma[np.ix_(idx, idx)],
+                                    np.outer(g, g) * base.factor_covariance[f, f], keys[idx])
+
+
+def answered_sum_sems(model: ScoringModel | OrdinalScoringModel, sums: Sequence[SumScore], keys: np.ndarray,
+                      answered: np.ndarray) -> dict[str, np.ndarray]:
+    """factor -> (n,) the standard error of measurement of each row's keyed sum of the items of the factor it answered
+    (``answered`` (n, p): whether each row answered each item; ``keys`` (p, m): :func:`sum_keys`), for the factors of
+    ``sums`` that have an omega: SEM = SD_A sqrt(1 - omega_A) (Lord & Novick 1968), SD_A the spread under the fitted
+    model of the sum of the answered items A and omega_A its reliability (McDonald 1999 from the fitted loadings,
+    Green & Yang 2009 for ordinal answers' codes), computed once per pattern of answered items; NaN for a row that
+    answered none of them.  With every item answered it is the SEM of :func:`item_sum_precision`; a prorated sum,
+    J/a times the sum of the a answered items, has J/a times it, and an item mean 1/a times it."""
+    ordinal = isinstance(model, OrdinalScoringModel)
+    base = model.base if ordinal else model
+    sigma = checked_covariance(base)
+    mean = base.intercepts + base.total_loadings @ base.factor_means
+    G, phi = base.total_loadings, np.diag(base.factor_covariance)
+    answered = np.asarray(answered, dtype=bool)
+    out = {}
+    for s in sums:
+        f = base.factors.index(s.factor)
+        member = np.flatnonzero(keys[:, f])
+        if not np.isfinite(s.omega):
+            continue
+        patterns, which = np.unique(answered[:, member], axis=0, return_inverse=True)
+        found = np.full(len(patterns), np.nan)
+        for k, pattern in enumerate(patterns):
+            idx = member[pattern]
+            if not len(idx):
+                continue
+            if ordinal:
+                omega, variance = _ordinal_sum_parts(model, sigma, mean, idx, f, keys[:, f])
+            else:
+                k_a = keys[idx, f]
+                variance = float(k_a @ sigma[np.ix_(idx, idx)] @ k_a)
+                omega = float(keyed_omega(k_a[:, None], G[idx, f][:, None], phi[f:f + 1], np.array([variance]))[0])
+            found[k] = np.sqrt(max(variance * (1.0 - omega), 0.0))
+        out[s.factor] = found[np.ravel(which)]
+    return out
 
 
 def mixed_sums(model: OrdinalScoringModel, declared: Collection[str] | None = None) -> tuple[str, ...]:

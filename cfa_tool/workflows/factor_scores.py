@@ -29,8 +29,8 @@ from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.scoring.item_sums import ItemSumRule
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_METHODS, ScoreMethod, Unscored
-from cfa_tool.scoring.quality import (Precision, ScoreQuality, SumScore, item_sum_precision, mixed_sums,
-                                      ordinal_sum_quality, sum_quality)
+from cfa_tool.scoring.quality import (Precision, ScoreQuality, SumScore, answered_sum_sems, item_sum_precision,
+                                      mixed_sums, ordinal_sum_quality, sum_quality)
 
 
 class NotScored(Enum):
@@ -145,12 +145,13 @@ def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, er
         columns[id_name] = ids.tolist()
     for meth in chosen:
         for f, name in enumerate(factors):
-            errors_here = with_errors and meth not in ITEM_METHODS  # a sum has no standard error of its own
-            written = (column_name(name, meth),) + ((column_name(name, meth, "se"),) if errors_here else ())
+            # an item sum's or mean's error is its standard error of measurement (about its own true score)
+            what = "sem" if meth in ITEM_METHODS else "se"
+            written = (column_name(name, meth),) + ((column_name(name, meth, what),) if with_errors else ())
             _refuse_id_named_as(id_name, written, "a column of scores")
             columns[column_name(name, meth)] = values[meth][:, f]
-            if errors_here:
-                columns[column_name(name, meth, "se")] = errors[meth][:, f]
+            if with_errors:
+                columns[column_name(name, meth, what)] = errors[meth][:, f]
     for f, name in enumerate(factors):
         _refuse_id_named_as(id_name, (answered_column(name),))
         columns[answered_column(name)] = pd.array([None if np.isnan(v) else int(v) for v in answered[:, f]],
@@ -313,10 +314,13 @@ def score_columns(methods, factors) -> list[str]:
 
 
 def column_name(factor: str, method: ScoreMethod, what: str = "") -> str:
-    """Output column of a factor's score by a method: e.g. 'visual_regression', 'visual_regression_se'."""
+    """Output column of a factor's score by a method: e.g. 'visual_regression', 'visual_regression_se',
+    'visual_item_sum_sem' (``what``: '', 'se', or 'sem', an item sum's or mean's standard error of measurement)."""
     word = {ScoreMethod.EXPECTED_A_POSTERIORI: "posterior_mean"}.get(method, method.value.replace("-", "_"))
     if what == "se":
         word = "posterior_sd" if method is ScoreMethod.EXPECTED_A_POSTERIORI else word + "_se"
+    elif what == "sem":
+        word += "_sem"
     return f"{factor}_{word}"
 
 
@@ -364,6 +368,9 @@ class ItemSumSummary:
     #: summed factors whose sum adds continuous items' values to ordinal answers' codes: no reliability or SEM
     #: (scoring.quality.mixed_sums)
     mixed: tuple[str, ...] = ()
+    #: (factor, method, least, largest, rows): the standard errors of measurement of the prorated rows' item sums (or
+    #: means, when no sum is written), from the items each answered (_item_sum_sems)
+    prorated_sem: tuple = ()
 
     @property
     def omega(self) -> tuple[float, ...]:
@@ -377,6 +384,9 @@ class ItemSumSummary:
                       "factors": [{"factor": f, "items": list(items), "omega": w, "rows_prorated": n}
                                   for f, items, w, n in zip(self.factors, self.items, self.omega, self.prorated)],
                       "precision": [p.to_dict() for p in self.precision],
+                      "prorated_standard_errors_of_measurement": [
+                          {"factor": f, "method": m.value, "least": low, "largest": high, "rows": n}
+                          for f, m, low, high, n in self.prorated_sem],
                       "reversed": [r.to_dict() for r in self.reversals],
                       "not_summed": [{"factor": f, "reason": why.value} for f, why in self.not_summed],
                       "items_on_several_factors": [{"item": x, "factors": list(fs)} for x, fs in self.shared]})
@@ -451,9 +461,12 @@ def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSum
     return _ItemParts(keys, lowest, highest, not_summed, summary)
 
 
-def _score_group(model, rows: np.ndarray, chosen, ordinal: bool, parts: _ItemParts | None) -> tuple[dict, tuple]:
-    """(method -> (scores, standard errors, unscored counts), rows prorated per summed factor) of one group's
-    rows: factor scores by the linear methods or the posterior mean, item sums and means by their rule."""
+def _score_group(model, rows: np.ndarray, chosen, ordinal: bool,
+                 parts: _ItemParts | None) -> tuple[dict, tuple, tuple]:
+    """(method -> (scores, standard errors, unscored counts), rows prorated per summed factor, the prorated rows'
+    standard errors of measurement: (factor, method, least, largest, rows) per summed factor with such rows, for the
+    first item method written) of one group's rows: factor scores by the linear methods or the posterior mean, item
+    sums and means by their rule (an item sum's or mean's standard error: its SEM, :func:`_item_sum_sems`)."""
     out = {}
     factor_ones = factor_methods(chosen)
     if factor_ones:
@@ -467,18 +480,45 @@ def _score_group(model, rows: np.ndarray, chosen, ordinal: bool, parts: _ItemPar
             found = score_rows(model, rows, factor_ones)
         out = {meth: (b.scores, b.standard_errors, b.unscored) for meth, b in found.items()}
     if parts is None:
-        return out, ()
+        return out, (), ()
     from cfa_tool.scoring.item_sums import item_sums
 
     base = model.base if ordinal else model
     sums = item_sums(rows, parts.keys, parts.lowest, parts.highest, parts.not_summed, base.factors,
                      parts.summary.rule)
-    none = np.full(sums.sums.shape, np.nan)
-    for meth, values in ((ScoreMethod.ITEM_SUM, sums.sums), (ScoreMethod.ITEM_MEAN, sums.means)):
+    sum_sem, mean_sem = _item_sum_sems(model, parts, rows, sums.sums)
+    for meth, values, sem in ((ScoreMethod.ITEM_SUM, sums.sums, sum_sem), (ScoreMethod.ITEM_MEAN, sums.means, mean_sem)):
         if meth in chosen:
-            out[meth] = (values, none, sums.unscored)
+            out[meth] = (values, sem, sums.unscored)
     summed = parts.summed
-    return out, tuple(int(sums.prorated[j]) for j in summed)
+    first = next(m for m in ITEM_METHODS if m in chosen)
+    values, sem = out[first][0], out[first][1]
+    prorated = np.isfinite(values) & ((~np.isnan(rows)).astype(float) @ (parts.keys != 0) < (parts.keys != 0).sum(axis=0))
+    spread = []
+    for j in summed:
+        found = sem[prorated[:, j] & np.isfinite(sem[:, j]), j]
+        if len(found):
+            spread.append((base.factors[j], first, float(found.min()), float(found.max()), len(found)))
+    return out, tuple(int(sums.prorated[j]) for j in summed), tuple(spread)
+
+
+def _item_sum_sems(model, parts: _ItemParts, rows: np.ndarray, sums: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """(n, m) each row's standard error of measurement of its item sum and of its item mean (NaN where it has no
+    sum, or its sum no omega): the SEM of the sum of the items the row answered (scoring.quality.answered_sum_sems),
+    times J/a for the sum prorated from a of the factor's J items, divided by a for the mean."""
+    answered = ~np.isnan(rows)
+    found = answered_sum_sems(model, parts.summary.sums, parts.keys, answered)
+    member = parts.keys != 0
+    count = answered.astype(float) @ member
+    sum_sem, mean_sem = np.full(sums.shape, np.nan), np.full(sums.shape, np.nan)
+    factors = (model.base if hasattr(model, "base") else model).factors
+    for name, sem in found.items():
+        f = factors.index(name)
+        has = np.isfinite(sums[:, f])
+        a = count[has, f]
+        sum_sem[has, f] = sem[has] * member[:, f].sum() / a
+        mean_sem[has, f] = sem[has] / a
+    return sum_sem, mean_sem
 
 
 @dataclass(frozen=True, eq=False)
@@ -654,8 +694,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                           "that every row can be scored in its place")
     ids = row_ids(read_frame, source, id_column, spec.observed_names, group, loaded.row_names)
     ordinal_items = api.ordinal_items_of(spec, ordinal)
-    chosen = _ordinal_methods(methods, chosen, standard_errors, "") if ordinal_items else \
-        _with_factor_method(chosen, standard_errors)
+    if ordinal_items:
+        chosen = _ordinal_methods(methods, chosen, standard_errors, "")
     design = design_columns(weights, cluster, strata, weight_kind)
     # the weights parsed once, as fit parses them: for the fit, the groups weighted out and the rows scored from
     loaded = api.with_design_weights(api.analysed_odd_values(loaded, spec, group), design, spec, group)
@@ -754,9 +794,10 @@ def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group
                                                        rule, model_g.categories if ordinal else None,
                                                        mixed_sums(model_g, _declared(spec)) if ordinal else ())
         prorated: tuple = ()
+        spread: tuple = ()
         if len(sel):
             at = places[sel]
-            out, prorated = _score_group(model_g, rows[sel], chosen, ordinal, parts)
+            out, prorated, spread = _score_group(model_g, rows[sel], chosen, ordinal, parts)
             for meth, (v, e, unscored) in out.items():
                 values[meth][at], errors[meth][at] = v, e
                 for why, c in unscored.items():
@@ -764,7 +805,7 @@ def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group
                     counts[key] = counts.get(key, np.zeros(m, dtype=np.int64)) + np.asarray(c, dtype=np.int64)
         if parts is not None:
             summaries.append(replace(parts.summary, prorated=prorated or (0,) * len(parts.summary.factors),
-                                     precision=item_sum_precision(parts.summary.sums, chosen)))
+                                     precision=item_sum_precision(parts.summary.sums, chosen), prorated_sem=spread))
     return tuple(summaries)
 
 
@@ -781,17 +822,6 @@ def _partly_answered(model, answered: np.ndarray, chosen, errors: dict) -> list[
     whose prorating the report says)."""
     first = factor_methods(chosen)
     return partly_answered_note(model, answered, first[0], errors[first[0]]) if first else []
-
-
-def _with_factor_method(chosen, standard_errors: bool) -> tuple[ScoreMethod, ...]:
-    """``chosen``, refused with standard errors when it holds no factor-score method (a sum has no standard error
-    about the factor of its own: the report gives its reliability)."""
-    if standard_errors and not factor_methods(chosen):
-        raise OptionError(f"standard errors are those of factor scores, and item sums and means have none of their "
-                          f"own (their reliability is in the report), so standard errors cannot apply; add a factor "
-                          f"score method ({Option.SCORE_METHODS.given(['regression', 'item-sum'])}) or remove that "
-                          f"option")
-    return chosen
 
 
 def _ordinal_methods(methods, chosen, standard_errors: bool, whose: str) -> tuple[ScoreMethod, ...]:
@@ -1000,7 +1030,7 @@ def _saved_methods(methods, ordinal: bool, standard_errors: bool = False) -> tup
     beside it when asked for)."""
     chosen = method_option(methods)
     if not ordinal:
-        return _with_factor_method(chosen, standard_errors)
+        return chosen
     return _ordinal_methods(methods, chosen, standard_errors, "the earlier fit has ordinal items, which are")
 
 
