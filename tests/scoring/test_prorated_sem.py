@@ -15,12 +15,12 @@ Check values and their sources:
 from __future__ import annotations
 
 import numpy as np
-import pandas as pd
 import pytest
 from scipy import stats
 
 import cfa_tool
 from cfa_tool.reporting.score_report import scores_report
+from tests.scoring.test_item_sum_quality_once import _ordinal_answers
 
 MODEL = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\n"
 
@@ -74,13 +74,7 @@ def _error_variance_by_hand(lam, phi, thresholds, codes):
 
 
 def test_an_ordinal_prorated_sum_has_the_sem_of_its_answered_codes():
-    rng = np.random.default_rng(1404)
-    n = 1200
-    eta = rng.standard_normal(n)
-    loadings = np.array([0.8, 0.7, 0.75, 0.6])
-    latent = eta[:, None] * loadings + rng.standard_normal((n, 4)) * np.sqrt(1 - loadings**2)
-    answers = 1 + (latent[:, :, None] > np.array([-1.0, 0.0, 0.8])).sum(axis=2)
-    frame = pd.DataFrame(answers, columns=["a1", "a2", "a3", "a4"]).astype(float)
+    frame = _ordinal_answers(1200, 1404)
     frame.loc[7, "a2"] = np.nan
     result = cfa_tool.scores("factor f: a1, a2, a3, a4\n", frame, methods="item-sum", ordinal="all")
     est = {(r.kind, r.variables): r.estimate for r in result.fit.estimates}
