@@ -69,11 +69,18 @@ def observed_sum_omega(thresholds: Sequence[np.ndarray], steps: Sequence[np.ndar
     the differences of its consecutive answer codes (one per threshold), ``mean`` and ``sigma`` the latent
     responses' implied means and covariance matrix, ``common`` the covariance due to the factor
     (G_if G_jf Phi_ff) and ``keys`` +1 or -1 per item."""
+    return observed_sum_reliability(thresholds, steps, mean, sigma, common, keys)[0]
+
+
+def observed_sum_reliability(thresholds: Sequence[np.ndarray], steps: Sequence[np.ndarray], mean: np.ndarray,
+                             sigma: np.ndarray, common: np.ndarray, keys: np.ndarray) -> tuple[float, float]:
+    """(:func:`observed_sum_omega`, :func:`observed_sum_variance`) of one keyed sum, the variance computed once
+    (Green & Yang 2009, eqs. 19-21; arguments as for :func:`observed_sum_omega`)."""
     sd = np.sqrt(np.diag(sigma))
     item, t, d = _keyed_codes(thresholds, steps, mean, sd, keys)
     total = _sum_variance(item, t, d, sigma / np.outer(sd, sd), whole=True)
     due = _sum_variance(item, t, d, common / np.outer(sd, sd), whole=False)
-    return due / total if total > 0 else float("nan")
+    return (due / total if total > 0 else float("nan")), total
 
 
 def observed_sum_factor_correlation(thresholds: Sequence[np.ndarray], steps: Sequence[np.ndarray], mean: np.ndarray,

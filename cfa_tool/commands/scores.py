@@ -14,7 +14,12 @@ def add_parser(sub) -> None:
     p = sub.add_parser("scores", help="fit a model and write factor scores of every row, with their quality")
     p.add_argument("model", metavar="MODEL", help="model file")
     p.add_argument("--data", required=True, metavar="FILE", help="data file (rows of answers)")
-    p.add_argument("--output", required=True, metavar="PATH", help="CSV file to write the scores to ('-' for standard output)")
+    p.add_argument("--output", required=True, metavar="PATH",
+                   help="CSV file to write the scores to ('-' for standard output); its columns, in this order in "
+                        "every run: the id (--id or the file's row names, when given), each factor's score by each "
+                        "method (with its standard error when asked for), each factor's items answered, "
+                        "same_answer_to_every_item (1 for a row that gave one answer to every item, reversed ones "
+                        "included; empty without a 'reversed' statement) and why_not_scored (empty for rows scored)")
     p.add_argument("--method", metavar="LIST",
                    help="comma-separated: regression (default), bartlett, correlation-preserving, item-sum, item-mean "
                         "(the keyed sum or mean of each factor's items, reverse-keyed items reversed); ordinal items "
@@ -25,7 +30,9 @@ def add_parser(sub) -> None:
                         "prorated from the answered ones (default 0.5, common practice); a row that answered fewer "
                         "gets empty cells")
     p.add_argument("--standard-errors", action="store_true",
-                   help="also write each score's standard error (for regression scores the posterior standard deviation); "
+                   help="also write each score's standard error (for regression scores the posterior standard deviation; "
+                        "for item sums and means, _sem, their standard error of measurement from the items the row "
+                        "answered); "
                         "ordinal items always have theirs written, so the option is not given with them")
     p.add_argument("--id", metavar="COLUMN", help="column written first to name each row (never analysed); default: "
                                                   "the file's row names, when its first header cell is empty")

@@ -567,7 +567,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
                       observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=estimates,
                       modification_indices=modification_rows, groups=group_results, warnings=warnings, options=options,
                       group_column=group_column, problems=problems,
-                      parameter_covariance=cov_theta if est.converged else None, parameter_labels=table.free_labels)
+                      parameter_covariance=cov_theta if est.converged else None, parameter_labels=table.free_labels,
+                      table=table)
 
 
 def fit_ordinal_groups(spec: Spec, groups: list, options, method: Weighting | str = Weighting.DIAGONAL,

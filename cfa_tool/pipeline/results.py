@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from functools import cached_property
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -384,6 +383,9 @@ class FitResult(Presentable):
     design: object | None = None  # data.sample_design.SampleDesign: weights, clusters and strata used, if any
     #: assessment.missingness.CompletelyAtRandomTest: Little's test of rows with gaps under full-information ML
     completely_at_random: object | None = None
+    #: (kind, variables, group) of the free estimates held equal across groups (held_equal_entries of the model's
+    #: parameter table): every group's tables and the JSON read it
+    held_equal: frozenset = frozenset()
 
     def cov_params(self):
         """The covariance matrix of the free parameters' estimates (the one the standard errors come from:
@@ -396,34 +398,10 @@ class FitResult(Presentable):
         return pd.DataFrame(self.parameter_covariance, index=labels, columns=labels)
 
     def held_equal_across_groups(self) -> frozenset[tuple]:
-        """:attr:`_held_equal`, worked out once per result (every group's tables and the JSON read it)."""
-        return self._held_equal
-
-    @cached_property
-    def _held_equal(self) -> frozenset[tuple]:
         """(kind, variables, group) of each free estimate of a multi-group fit that is one parameter shared with
-        another group (an 'invariance' level or an 'equal across groups' statement): a shared parameter is labelled
-        once, in the first group that has it (model.parameters), so a later group's row has no label of its own,
-        and its estimate is the very value of the same row in that group.  Empty with one group."""
-        from cfa_tool.language.names import reference_text
-
-        if not self.multigroup:
-            return frozenset()
-        own = set(self.parameter_labels)
-        by_parameter: dict[tuple, list] = {}
-        for r in self.estimates:
-            if r.free:
-                by_parameter.setdefault((r.kind, r.variables), []).append(r)
-        shared = set()
-        for rows in by_parameter.values():
-            for r in rows:
-                if reference_text(r.kind, r.variables, r.group) in own:
-                    continue
-                same = [o for o in rows if o is not r and o.estimate == r.estimate
-                        and reference_text(o.kind, o.variables, o.group) in own]
-                if same:
-                    shared.update({(r.kind, r.variables, r.group), *((o.kind, o.variables, o.group) for o in same)})
-        return frozenset(shared)
+        another group (an 'invariance' level or an 'equal across groups' statement), as the parameter table says
+        (:func:`held_equal_entries`, read once where the result is built); empty with one group."""
+        return self.held_equal
 
     def conf_int(self, level: float = 0.95):
         """Wald intervals of the free parameters' estimates at ``level`` (estimate +/- z SE), one row per
@@ -564,12 +542,28 @@ class FitResult(Presentable):
         return scorer()(self, data, **options)
 
 
+def held_equal_entries(table) -> frozenset[tuple]:
+    """(kind, variables, group label) of each free entry of a multi-group parameter table (model.parameters
+    .ParameterTable) that is one parameter with the same entry of another group: the same free parameters with the same
+    coefficients (``Parameter.terms``, indices into theta) and the same offset, so that its value is that entry's
+    whatever the estimates (a loading shared by an invariance level; under effects coding also the loading that the
+    shared others determine).  Estimates that merely happen to be equal are not held equal; empty with one group."""
+    if not table.multigroup:
+        return frozenset()
+    groups_of: dict[tuple, set[int]] = {}
+    for par in table.parameters:
+        if par.terms:
+            groups_of.setdefault((par.kind, par.variables, par.terms, par.offset), set()).add(par.group)
+    return frozenset((kind, variables, table.groups[g]) for (kind, variables, _, _), groups in groups_of.items()
+                     if len(groups) > 1 for g in groups)
+
+
 def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, message: str, theta: np.ndarray | None,
                n_obs: int, data: DataSummary, observed: tuple[str, ...], latent: tuple[str, ...], fit: FitIndices | None,
                robust: RobustFit | None, estimates, modification_indices, groups, warnings, options,
                group_column: str | None = None, problems: tuple = (), parameter_covariance: np.ndarray | None = None,
                parameter_labels: tuple[str, ...] = (), model=None,
-               unit_variance_items: frozenset[str] = frozenset(), completely_at_random=None) -> FitResult:
+               unit_variance_items: frozenset[str] = frozenset(), completely_at_random=None, table=None) -> FitResult:
     """The one place a FitResult is assembled, for every estimator (continuous, incomplete and ordinal
     items, one group or several), from the estimation's and the assessment's pieces.  The model's
     names and text come from ``spec``, the estimator line from ``method``, the display settings of
@@ -577,8 +571,13 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
     exploratory blocks: they are rotated here (``unit_variance_items``: the items whose model-implied variance is 1,
     as the latent responses of ordinal items), and the modification indices that name their factors are left out
     (they would test the unrotated factors, which the report does not show).
-    ``completely_at_random``: Little's test of the rows with gaps (assessment.missingness), when computed."""
+    ``completely_at_random``: Little's test of the rows with gaps (assessment.missingness), when computed.
+    ``table``: the model's parameter table (model.parameters.ParameterTable; ``model.table`` when not given), from
+    which the estimates held equal across groups are read (:func:`held_equal_entries`)."""
     groups = tuple(groups)
+    if table is None and model is not None:
+        table = model.table
+    held = held_equal_entries(table) if table is not None and group_column is not None else frozenset()
     blocks = ()
     if spec.exploratory:
         from cfa_tool.exploration.blocks import rotate_blocks
@@ -620,4 +619,5 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
         group_column=group_column, warnings=tuple(warnings), mi_threshold=options.mi_threshold, mi_top=options.mi_top,
         theta=theta, problems=tuple(problems), parameter_covariance=parameter_covariance,
         parameter_labels=tuple(parameter_labels), exploratory=blocks, completely_at_random=completely_at_random,
+        held_equal=held,
     )

@@ -9,7 +9,7 @@ from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.options import Option
 from cfa_tool.reporting.numbers import num, unit, word_list
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
-from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT, WHY_NOT_SCORED_COLUMN, factor_methods
+from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT, SAME_ANSWER_COLUMN, WHY_NOT_SCORED_COLUMN, factor_methods
 from cfa_tool.scoring.methods import (DETERMINACY_CAUTION, INDIVIDUAL_DECISIONS, ITEM_METHODS, LINEAR_METHODS,
                                       ScoreMethod, Unscored)
 
@@ -44,10 +44,11 @@ def header_lines(result) -> list[str]:
             + _empty_lines(result) + f"; columns: {first}one per factor" + ("" if not result.standard_errors else
                                         " with its posterior standard deviation" if ScoreMethod.EXPECTED_A_POSTERIORI
                                         in result.methods else " with its standard error")
-            + (" (factor scores only)" if result.standard_errors and any(m in ITEM_METHODS for m in result.methods)
-               else "")
+            + (" (an item sum's or mean's: its standard error of measurement, _sem)" if result.standard_errors
+               and any(m in ITEM_METHODS for m in result.methods) else "")
             + f"{' and method' if len(result.methods) > 1 else ''}, then per factor the number of its items the row "
-              f"answered" + (f", then {WHY_NOT_SCORED_COLUMN}" if result.not_scored else "")] + _design_line(fit)
+              f"answered, then {SAME_ANSWER_COLUMN} and {WHY_NOT_SCORED_COLUMN} (always written, empty where there "
+              f"is nothing to say)"] + _design_line(fit)
 
 
 def rows_scored(result) -> str:
@@ -109,15 +110,15 @@ def quality_table(result, k: int) -> ReportTable:
         note = ("Posterior-mean scores in these data: reliability Var(score) / (Var(score) + mean posterior variance), the "
                 "squared correlation of the score with its factor (law of total variance); determinacy its square root.")
         if sums is not None:
-            omega = dict(zip(sums.factors, sums.omega))
             cols.append(("Item sum ω", "r"))
-            rows = [row + [unit(omega[name]) if name in omega else "—"] for row, name in zip(rows, q.factors)]
+            rows = [row + [_omega_cell(sums, name)] for row, name in zip(rows, q.factors)]
             note += (" Item sum ω: the reliability of the keyed sum of the answers' codes (and of the item mean, its "
                      "multiple) of rows that answered every item, from the fitted thresholds, loadings and factor "
                      "variance (Green & Yang 2009; a prorated sum of fewer items is less reliable), as the "
                      "fit gives it: the agreement of the sum with its own true score, not with the factor, so it is "
                      "not comparable with the posterior means' reliability beside it; — where a factor has no item "
-                     "sum.")
+                     "sum or its sum none (one item, or continuous items beside ordinal ones: the notes say why)."
+                     + _one_item_sentence(result.fit))
     else:
         cols = [("Factor", "l"), ("Determinacy", "r")] + [(METHOD_COLUMNS[m.method], "r") for m in q.methods]
         rows = []
@@ -126,9 +127,8 @@ def quality_table(result, k: int) -> ReportTable:
                          + (f" (below {unit(DETERMINACY_CAUTION, 2)})" if q.low_determinacy[f] else "")]
                         + [unit(m.reliability[f]) for m in q.methods])
         if sums is not None:
-            omega = dict(zip(sums.factors, sums.omega))
             cols.append(("Item sum ω", "r"))
-            rows = [row + [unit(omega[name]) if name in omega else "—"] for row, name in zip(rows, q.factors)]
+            rows = [row + [_omega_cell(sums, name)] for row, name in zip(rows, q.factors)]
         note = ("Determinacy: the correlation of the regression scores with their factor (Grice 2001). Then the "
                 "reliability of each method's scores (Corr.-preserving: correlation-preserving scores): the squared correlation of "
                 "the score with its factor (Beauducel 2011). Values "
@@ -141,11 +141,19 @@ def quality_table(result, k: int) -> ReportTable:
                    "omega (McDonald 1999) as the fit gives it, the share of the sum's variance due to the factor; for "
                    "items that load on one factor only it is the squared correlation of the sum with the factor, as "
                    "the methods' reliabilities are; it is that of rows that answered every item (a prorated sum of "
-                   "fewer items is less reliable); — where a factor has no item sum." if sums is not None else "")
+                   "fewer items is less reliable); — where a factor has no item sum or its sum none (one item)."
+                   if sums is not None else "")
                 + _one_item_sentence(result.fit))
     title = "Quality of the scores" + _where(q) + ("" if ordinal else ": determinacy, and reliability by method")
     return _table(f"score_quality_{k}", title, cols, rows, note,
                   flagged=tuple(i for i, low in enumerate(q.low_determinacy) if low))
+
+
+def _omega_cell(sums, factor: str) -> str:
+    """The item sum's omega of ``factor`` in the quality table: the one value of the sums' table
+    (scoring.quality.SumScore, read through the item sums' summary), '—' where it has none."""
+    omega = dict(zip(sums.factors, sums.omega)).get(factor, float("nan"))
+    return "—" if omega != omega else unit(omega)
 
 
 def _precision_of(result, q) -> tuple[ScoreMethod | None, tuple]:
@@ -234,10 +242,27 @@ def item_sum_precision_table(result, k: int) -> ReportTable | None:
             f"reliability, as in the quality table; SEM: the standard error of measurement, SD × √(1 − ω) (Lord & "
             f"Novick 1968), the typical distance of a person's score from their true score; 95% band: ±1.96 SEM "
             f"about a score (normal approximation); real difference: the smallest difference between two people's "
-            f"scores that exceeds chance at the 5% level, 1.96 × √2 × SEM (Gulliksen 1950). A prorated score, of "
-            f"fewer items, is less precise than this.")
+            f"scores that exceeds chance at the 5% level, 1.96 × √2 × SEM (Gulliksen 1950). "
+            + _prorated_sentence(result, sums))
     return _table(f"item_sum_precision_{k}", "How precise is one person's item score?" + _where(q), cols, rows,
                   note, values=([c for c, _ in cols], values))
+
+
+def _prorated_sentence(result, sums) -> str:
+    """What the item-score precision table says of prorated scores: each row's own SEM is that of the sum of the
+    items it answered, SD √(1 − ω) of their sum under the fitted model (Lord & Novick 1968; scoring.quality
+    .answered_sum_sems), scaled as the score is; the range of the prorated rows' SEMs, per factor."""
+    where = ("the _sem columns of the file" if result.standard_errors else
+             f"written to the file (_sem columns) with {Option.STANDARD_ERRORS}")
+    said = (f"A prorated score rests on the items the row answered, and its own SEM is that of their sum, SD × "
+            f"√(1 − ω) of that sum under the fitted model, scaled as the score is (times J/a for a sum prorated from a "
+            f"of J items, divided by a for a mean), as a rule larger than the figure above: each row's is {where}.")
+    if sums.prorated_sem:
+        said += " Prorated rows here: " + "; ".join(
+            f"{f} {n} {'row' if n == 1 else 'rows'}, {METHOD_LABELS[m]} SEM "
+            + (num(low, 2) if num(low, 2) == num(high, 2) else f"{num(low, 2)} to {num(high, 2)}")
+            for f, m, low, high, n in sums.prorated_sem) + "."
+    return said
 
 
 def precision_cautions(result) -> list[str]:
@@ -325,6 +350,11 @@ def item_sum_notes(result) -> list[str]:
         if g.not_summed:
             lines.append(f"No item sum or mean{where} for " + "; ".join(f"{f} ({why.value})" for f, why in g.not_summed)
                          + ".")
+        if g.mixed:
+            lines.append(f"No reliability or standard error of measurement{where} for the item sums and means of "
+                         f"{word_list(g.mixed)}: they add continuous items' values to ordinal answers' codes, and the "
+                         f"fitted model gives the spread of a sum of answers' codes alone (Green & Yang 2009), not of "
+                         f"such a mixture.")
     return lines
 
 
@@ -361,7 +391,7 @@ def sum_table(result, k: int) -> ReportTable | None:
         return None
     rho = dict(zip(q.factors, q.determinacy))
     if not hasattr(q, "methods"):  # ordinal items: the sum of the answers' codes (Green & Yang 2009)
-        rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), unit(s.omega), unit(s.validity),
+        rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), _sum_omega(s), unit(s.validity),
                  unit(rho[s.factor])] for s in q.sums]
         return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(q),
                       [("Factor", "l"), ("Items", "r"), ("Reversed", "l"), ("Sum omega", "r"),
@@ -372,16 +402,21 @@ def sum_table(result, k: int) -> ReportTable | None:
                       "categories is a curved function of the factor, so it is not comparable with a score's "
                       "agreement with the factor. Sum's r: the sum's correlation with the factor under the fitted "
                       "model; score's r: the posterior-mean score's in these data (the square root of its reliability "
-                      "in the quality table); the two show what the simpler score loses.")
-    rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), unit(s.omega), unit(s.validity), unit(rho[s.factor])]
-            for s in q.sums]
+                      "in the quality table); the two show what the simpler score loses." + _one_item_sentence(result.fit))
+    rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), _sum_omega(s), unit(s.validity),
+             unit(rho[s.factor])] for s in q.sums]
     return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(q),
                   [("Factor", "l"), ("Items", "r"), ("Reversed", "l"), ("Sum omega", "r"), ("Sum's r", "r"),
                    ("Score's r", "r")], rows,
                   "The unit-weighted sum of each factor's items (reversed: the reverse-keyed items, reversed in the "
                   "sum); sum omega: its reliability (McDonald 1999); sum's r and score's r: the correlations of the "
                   "sum and of the regression score with the factor under the fitted model, which show what the "
-                  "simpler score loses against the factor score.")
+                  "simpler score loses against the factor score." + _one_item_sentence(result.fit))
+
+
+def _sum_omega(s) -> str:
+    """A keyed sum's omega cell (scoring.quality.SumScore), '—' for a sum of one item, which has none."""
+    return "—" if s.omega != s.omega else unit(s.omega)
 
 
 def _unscored_counts(factors, counts) -> str:

@@ -15,7 +15,9 @@ items the row answered:
 An item that loads on several factors counts on each of them (its answer is part of each scale).  A factor measured
 through other factors (higher-order) or a method factor (a way of answering) gets no item sum: the caller says which
 (``summed``).  Under the fitted model the reliability of such a sum (and of the mean, its multiple) is omega
-(McDonald 1999), which :mod:`cfa_tool.assessment.reliability` computes for the fit.
+(McDonald 1999), and each row's standard error of measurement that of the sum of the items it answered, which
+:mod:`cfa_tool.scoring.quality` computes (:class:`~cfa_tool.scoring.quality.SumScore`,
+:func:`~cfa_tool.scoring.quality.answered_sum_sems`).
 """
 
 from __future__ import annotations

@@ -22,7 +22,9 @@ independent errors (Gulliksen 1950; recalled from memory, common practice).
 
 Precision of a person's item sum (or mean: the sum divided by the number of items): the standard error of
 measurement SEM = SD sqrt(1 - omega) (Lord & Novick 1968), SD the keyed sum's standard deviation under the fitted
-model and omega its reliability, with the same band and smallest real difference as a factor score's.
+model and omega its reliability, with the same band and smallest real difference as a factor score's.  A row that
+answered a of the J items: the SEM of the sum of those items by the same formula (their SD and omega under the
+model), times J/a for the prorated sum and divided by a for the mean (:func:`answered_sum_sems`).
 
 Sum scores of ordinal items: the same keyed sums of the answers' codes, with the reliability of Green & Yang (2009)
 from the thresholds, loadings and factor covariances (:mod:`cfa_tool.assessment.ordinal_reliability`).
@@ -42,8 +44,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.assessment.ordinal_reliability import (observed_sum_factor_correlation, observed_sum_omega,
-                                                     observed_sum_variance)
+from cfa_tool.assessment.ordinal_reliability import observed_sum_factor_correlation, observed_sum_reliability
 from cfa_tool.assessment.reliability import item_keys, keyed_omega
 from cfa_tool.numerics.plain import clean
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_METHODS, ScoreMethod
@@ -77,17 +78,27 @@ class MethodQuality:
 
 @dataclass(frozen=True)
 class SumScore:
-    """The keyed unit-weighted sum of one factor's items."""
+    """The keyed unit-weighted sum of one factor's items with every item answered: its reliability and spread under
+    the fitted model, computed once (:func:`sum_quality`, :func:`ordinal_sum_quality`) and read by every table that
+    shows them (the sums' table, the item sums' column of the quality table, their precision)."""
 
     factor: str
     items: tuple[str, ...]
     reversed_items: tuple[str, ...]  # reverse-keyed (negative total loading): their sign is flipped in the sum
-    omega: float  # McDonald (1999), of the keyed sum
+    #: McDonald (1999) of the keyed sum (Green & Yang 2009 for ordinal answers' codes); NaN for a sum of one item,
+    #: whose reliability restates the error variance the model fixes (Bollen 1989, ch. 7), as the fit's reliability
+    omega: float
     validity: float  # correlation of the sum with the factor
+    variance: float = float("nan")  # of the keyed sum under the fitted model (k'Sigma k; Green & Yang 2009, eq. 19)
+
+    @property
+    def sd(self) -> float:
+        """The keyed sum's standard deviation under the fitted model."""
+        return float(np.sqrt(self.variance)) if self.variance >= 0 else float("nan")
 
     def to_dict(self) -> dict:
         return clean({"factor": self.factor, "items": list(self.items), "reversed_items": list(self.reversed_items),
-                      "omega": self.omega, "validity": self.validity})
+                      "omega": self.omega, "validity": self.validity, "sd": self.sd})
 
 
 #: the normal quantile of a two-sided 95% band
@@ -215,8 +226,15 @@ def _keyed_variances(sigma: np.ndarray, keys: np.ndarray) -> np.ndarray:
     return np.einsum("ij,ij->j", keys, sigma @ keys)
 
 
+def _one_item_omega(omega: float, items: Sequence) -> float:
+    """``omega``, or NaN for a sum of one item: with one indicator the factor's share of its variance is whatever the
+    fixed error variance makes it (Bollen 1989, ch. 7), the rule of the fit's reliability
+    (assessment.reliability), so the scores' tables show no coefficient the fit's table withholds."""
+    return float("nan") if len(items) == 1 else float(omega)
+
+
 def sum_quality(model: ScoringModel, declared: Collection[str] | None = None) -> tuple[SumScore, ...]:
-    """Omega (McDonald 1999) and validity of each factor's keyed sum (keys: :func:`sum_keys`)."""
+    """Omega (McDonald 1999), validity and variance k'Sigma k of each factor's keyed sum (keys: :func:`sum_keys`)."""
     sigma = checked_covariance(model)
     keys = sum_keys(model, declared)
     G, phi, C = model.total_loadings, model.factor_covariance, model.item_factor_covariance
@@ -232,7 +250,7 @@ def sum_quality(model: ScoringModel, declared: Collection[str] | None = None) ->
         validity = float(k @ C[:, f] / np.sqrt(variance * phi[f, f]))
         items = tuple(model.items[i] for i in np.flatnonzero(k))
         reversed_items = tuple(model.items[i] for i in np.flatnonzero(k < 0))
-        out.append(SumScore(name, items, reversed_items, omega, validity))
+        out.append(SumScore(name, items, reversed_items, _one_item_omega(omega, items), validity, variance))
     return tuple(out)
 
 
@@ -244,50 +262,27 @@ def _ordinal_sum_items(model: OrdinalScoringModel, keys: np.ndarray) -> np.ndarr
     return None if not len(idx) or any(not len(model.thresholds[i]) for i in idx) else idx
 
 
-def keyed_sum_sds(model: ScoringModel | OrdinalScoringModel, keys: np.ndarray) -> np.ndarray:
-    """(m,) the standard deviation under the fitted model of each factor's keyed sum of answers (keys (p, m):
-    :func:`sum_keys`): sqrt(k'Sigma k) for continuous items; for ordinal items that of the sum of the answers'
-    codes, from the thresholds (Green & Yang 2009, eq. 19: assessment.ordinal_reliability); NaN where a factor has
-    no items, or its sum takes in a continuous item beside ordinal ones (:func:`ordinal_sum_quality`)."""
-    keys = np.asarray(keys, dtype=float)
-    if isinstance(model, ScoringModel):
-        variances = _keyed_variances(checked_covariance(model), keys)
-        return np.where((keys != 0).any(axis=0), np.sqrt(np.clip(variances, 0.0, None)), np.nan)
-    base = model.base
-    sigma = checked_covariance(base)
-    mean = base.intercepts + base.total_loadings @ base.factor_means
-    out = np.full(keys.shape[1], np.nan)
-    for f in range(keys.shape[1]):
-        idx = _ordinal_sum_items(model, keys[:, f])
-        if idx is None:
-            continue
-        out[f] = np.sqrt(max(observed_sum_variance([model.thresholds[i] for i in idx],
-                                                   [np.diff(model.categories[i]) for i in idx], mean[idx],
-                                                   sigma[np.ix_(idx, idx)], keys[idx, f]), 0.0))
-    return out
-
-
-def item_sum_precision(factors: Sequence[str], item_counts: Sequence[int], sums_sd: Sequence[float],
-                       omegas: Sequence[float], methods: Sequence[ScoreMethod]) -> tuple[Precision, ...]:
-    """The :class:`Precision` of each factor's item sum and item mean among ``methods``, from the keyed sum's
-    standard deviation SD under the model (:func:`keyed_sum_sds`) and its reliability omega: the standard error of
-    measurement SEM = SD sqrt(1 - omega) (Lord & Novick 1968; every psychometrics handbook), with its band and
-    smallest real difference by the rule of factor scores (Gulliksen 1950); a mean's are the sum's divided by the
-    factor's number of items.  Factors without a finite SD or omega are left out."""
+def item_sum_precision(sums: Sequence[SumScore], methods: Sequence[ScoreMethod]) -> tuple[Precision, ...]:
+    """The :class:`Precision` of each keyed sum's item sum and item mean among ``methods``, from the sum's standard
+    deviation SD under the model and its reliability omega (:class:`SumScore`, the one value every table reads): the
+    standard error of measurement SEM = SD sqrt(1 - omega) (Lord & Novick 1968; every psychometrics handbook), with
+    its band and smallest real difference by the rule of factor scores (Gulliksen 1950); a mean's are the sum's
+    divided by its number of items.  Sums without a finite SD or omega are left out."""
     out = []
     for method in (m for m in methods if m in ITEM_METHODS):
-        for name, count, sd, omega in zip(factors, item_counts, sums_sd, omegas):
-            if not (np.isfinite(sd) and np.isfinite(omega)) or count < 1:
+        for s in sums:
+            sd, omega = s.sd, s.omega
+            if not (np.isfinite(sd) and np.isfinite(omega)):
                 continue
-            scale = float(sd) / (count if method is ScoreMethod.ITEM_MEAN else 1)
-            out.append(Precision.of(name, method, scale, omega, scale * np.sqrt(max(1.0 - float(omega), 0.0))))
+            scale = sd / (len(s.items) if method is ScoreMethod.ITEM_MEAN else 1)
+            out.append(Precision.of(s.factor, method, scale, omega, scale * np.sqrt(max(1.0 - omega, 0.0))))
     return tuple(out)
 
 
 def ordinal_sum_quality(model: OrdinalScoringModel, declared: Collection[str] | None = None) -> tuple[SumScore, ...]:
-    """Each factor's keyed sum of ordinal answers with its reliability (Green & Yang 2009); sums that would take in
-    a continuous item beside the ordinal ones are left out (their codes are not answers to a threshold model).
-    Validity: the sum's correlation with its factor under the model (assessment.ordinal_reliability)."""
+    """Each factor's keyed sum of ordinal answers with its reliability and variance (Green & Yang 2009); sums that
+    would take in a continuous item beside the ordinal ones are left out (:func:`mixed_sums`).  Validity: the sum's
+    correlation with its factor under the model (assessment.ordinal_reliability)."""
     base = model.base
     sigma = checked_covariance(base)
     keys = sum_keys(base, declared)
@@ -298,25 +293,82 @@ def ordinal_sum_quality(model: OrdinalScoringModel, declared: Collection[str] | 
         idx = _ordinal_sum_items(model, keys[:, f])
         if idx is None:
             continue
-        g = G[idx, f]
+        omega, variance = _ordinal_sum_parts(model, sigma, mean, idx, f, keys[:, f])
         taus, steps = [model.thresholds[i] for i in idx], [np.diff(model.categories[i]) for i in idx]
-        part = sigma[np.ix_(idx, idx)]
-        omega = observed_sum_omega(taus, steps, mean[idx], part, np.outer(g, g) * phi[f, f], keys[idx, f])
-        validity = observed_sum_factor_correlation(taus, steps, mean[idx], part, (G @ phi)[idx, f], phi[f, f],
-                                                   keys[idx, f])
-        out.append(SumScore(name, tuple(base.items[i] for i in idx),
-                            tuple(base.items[i] for i in idx if keys[i, f] < 0), omega, validity))
+        validity = observed_sum_factor_correlation(taus, steps, mean[idx], sigma[np.ix_(idx, idx)], (G @ phi)[idx, f],
+                                                   phi[f, f], keys[idx, f])
+        items = tuple(base.items[i] for i in idx)
+        out.append(SumScore(name, items, tuple(base.items[i] for i in idx if keys[i, f] < 0),
+                            _one_item_omega(omega, items), validity, variance))
     return tuple(out)
 
 
+def _ordinal_sum_parts(model: OrdinalScoringModel, sigma: np.ndarray, mean: np.ndarray, idx: np.ndarray, f: int,
+                       keys: np.ndarray) -> tuple[float, float]:
+    """(omega, variance) of the keyed sum of the answers' codes of the ordinal items ``idx`` for factor ``f``
+    (Green & Yang 2009; ``sigma``, ``mean``: the latent responses' implied covariance and means)."""
+    base = model.base
+    g = base.total_loadings[idx, f]
+    taus, steps = [model.thresholds[i] for i in idx], [np.diff(model.categories[i]) for i in idx]
+    return observed_sum_reliability(taus, steps, mean[idx], sigma[np.ix_(idx, idx)],
+                                    np.outer(g, g) * base.factor_covariance[f, f], keys[idx])
+
+
+def answered_sum_sems(model: ScoringModel | OrdinalScoringModel, sums: Sequence[SumScore], keys: np.ndarray,
+                      answered: np.ndarray) -> dict[str, np.ndarray]:
+    """factor -> (n,) the standard error of measurement of each row's keyed sum of the items of the factor it answered
+    (``answered`` (n, p): whether each row answered each item; ``keys`` (p, m): :func:`sum_keys`), for the factors of
+    ``sums`` that have an omega: SEM = SD_A sqrt(1 - omega_A) (Lord & Novick 1968), SD_A the spread under the fitted
+    model of the sum of the answered items A and omega_A its reliability (McDonald 1999 from the fitted loadings,
+    Green & Yang 2009 for ordinal answers' codes), computed once per pattern of answered items; NaN for a row that
+    answered none of them.  With every item answered it is the SEM of :func:`item_sum_precision`; a prorated sum,
+    J/a times the sum of the a answered items, has J/a times it, and an item mean 1/a times it."""
+    ordinal = isinstance(model, OrdinalScoringModel)
+    base = model.base if ordinal else model
+    sigma = checked_covariance(base)
+    mean = base.intercepts + base.total_loadings @ base.factor_means
+    G, phi = base.total_loadings, np.diag(base.factor_covariance)
+    answered = np.asarray(answered, dtype=bool)
+    out = {}
+    for s in sums:
+        f = base.factors.index(s.factor)
+        member = np.flatnonzero(keys[:, f])
+        if not np.isfinite(s.omega):
+            continue
+        patterns, which = np.unique(answered[:, member], axis=0, return_inverse=True)
+        found = np.full(len(patterns), np.nan)
+        for k, pattern in enumerate(patterns):
+            idx = member[pattern]
+            if not len(idx):
+                continue
+            if ordinal:
+                omega, variance = _ordinal_sum_parts(model, sigma, mean, idx, f, keys[:, f])
+            else:
+                k_a = keys[idx, f]
+                variance = float(k_a @ sigma[np.ix_(idx, idx)] @ k_a)
+                omega = float(keyed_omega(k_a[:, None], G[idx, f][:, None], phi[f:f + 1], np.array([variance]))[0])
+            found[k] = np.sqrt(max(variance * (1.0 - omega), 0.0))
+        out[s.factor] = found[np.ravel(which)]
+    return out
+
+
+def mixed_sums(model: OrdinalScoringModel, declared: Collection[str] | None = None) -> tuple[str, ...]:
+    """The factors whose keyed sum adds continuous items' values to ordinal answers' codes: the model gives the
+    spread of a sum of answers' codes from the thresholds (Green & Yang 2009), not of such a mixture, so these sums
+    get no reliability or standard error of measurement (:func:`ordinal_sum_quality` leaves them out)."""
+    keys = sum_keys(model.base, declared)
+    return tuple(name for f, name in enumerate(model.base.factors)
+                 if keys[:, f].any() and _ordinal_sum_items(model, keys[:, f]) is None)
+
+
 def score_quality(model: ScoringModel, methods: tuple[ScoreMethod, ...] = LINEAR_METHODS,
-                  declared: Collection[str] | None = None) -> ScoreQuality:
+                  declared: Collection[str] | None = None, sums: tuple[SumScore, ...] | None = None) -> ScoreQuality:
     """Everything :class:`ScoreQuality` holds, for one group (``declared``: the items of the model's 'reversed'
-    statement, None without one)."""
+    statement, None without one; ``sums``: the group's :func:`sum_quality` when already computed)."""
     rho = determinacy(model)
     qualities = method_quality(model, methods)
     factor_sd = np.sqrt(np.clip(np.diag(model.factor_covariance), 0.0, None))
     return ScoreQuality(model.group, model.factors, tuple(float(v) for v in rho),
                         tuple(bool(v < DETERMINACY_CAUTION) for v in rho), _correlation(model.factor_covariance),
-                        qualities, sum_quality(model, declared),
+                        qualities, sum_quality(model, declared) if sums is None else sums,
                         tuple(p for q in qualities for p in method_precision(q, factor_sd)))

@@ -29,7 +29,8 @@ from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.scoring.item_sums import ItemSumRule
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_METHODS, ScoreMethod, Unscored
-from cfa_tool.scoring.quality import Precision, ScoreQuality, ordinal_sum_quality
+from cfa_tool.scoring.quality import (Precision, ScoreQuality, SumScore, answered_sum_sems, item_sum_precision,
+                                      mixed_sums, ordinal_sum_quality, sum_quality)
 
 
 class NotScored(Enum):
@@ -59,7 +60,8 @@ _REASONS = {NotScored.FILTERED: "left out by a row filter (--keep)", NotScored.B
 _ROWS_LEFT_OUT = (NotScored.FILTERED, NotScored.NO_GROUP, NotScored.UNKNOWN_GROUP)
 
 
-#: output column of the reason a line has no score at all (:class:`NotScored`), written when some line has none
+#: output column of the reason a line has no score at all (:class:`NotScored`), the file's last, always written (empty
+#: on the lines scored)
 WHY_NOT_SCORED_COLUMN = "why_not_scored"
 
 
@@ -143,12 +145,13 @@ def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, er
         columns[id_name] = ids.tolist()
     for meth in chosen:
         for f, name in enumerate(factors):
-            errors_here = with_errors and meth not in ITEM_METHODS  # a sum has no standard error of its own
-            written = (column_name(name, meth),) + ((column_name(name, meth, "se"),) if errors_here else ())
+            # an item sum's or mean's error is its standard error of measurement (about its own true score)
+            what = "sem" if meth in ITEM_METHODS else "se"
+            written = (column_name(name, meth),) + ((column_name(name, meth, what),) if with_errors else ())
             _refuse_id_named_as(id_name, written, "a column of scores")
             columns[column_name(name, meth)] = values[meth][:, f]
-            if errors_here:
-                columns[column_name(name, meth, "se")] = errors[meth][:, f]
+            if with_errors:
+                columns[column_name(name, meth, what)] = errors[meth][:, f]
     for f, name in enumerate(factors):
         _refuse_id_named_as(id_name, (answered_column(name),))
         columns[answered_column(name)] = pd.array([None if np.isnan(v) else int(v) for v in answered[:, f]],
@@ -157,20 +160,22 @@ def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, er
 
 
 #: output column that marks the rows that gave one answer to every item they answered, reverse-worded ones included
-#: (data.same_answers: 1, else 0; empty for rows not scored), written when the model declares reversed items
+#: (data.same_answers: 1, else 0; empty for rows not scored, and on every line when the model declares no reversed
+#: items beside others), always written, before :data:`WHY_NOT_SCORED_COLUMN`: the file's columns never vary
 SAME_ANSWER_COLUMN = "same_answer_to_every_item"
 
 
 def _with_same_answer_column(columns: dict, id_name, spec, items, rows: np.ndarray, at: np.ndarray, n: int) -> dict:
     """``columns`` with :data:`SAME_ANSWER_COLUMN` last (``rows``: the answers of the rows read, at the places ``at``
-    of the ``n`` output rows); unchanged without a 'reversed' statement, where one answer throughout contradicts
-    nothing the model knows."""
+    of the ``n`` output rows); the column is empty without a 'reversed' statement naming some but not all items,
+    where one answer throughout contradicts nothing the model knows (written all the same: a researcher's script
+    reads the same columns from every run)."""
     from cfa_tool.data.same_answers import same_answer_rows
 
+    _refuse_id_named_as(id_name, (SAME_ANSWER_COLUMN,))
     turned = np.array([x in spec.reverse_keyed for x in items], dtype=bool)
     if not spec.reversed or not turned.any() or turned.all():
-        return columns
-    _refuse_id_named_as(id_name, (SAME_ANSWER_COLUMN,))
+        return {**columns, SAME_ANSWER_COLUMN: pd.array([None] * n, dtype="Int64")}
     found = same_answer_rows(rows, np.arange(len(rows)), turned)
     flags = np.full(n, -1)
     flags[at] = 0
@@ -259,13 +264,13 @@ def _count_rows_left_out(reasons: pd.Series, chosen, m: int, counts: dict) -> No
 
 def _with_why_not_scored(table: pd.DataFrame, id_name, score_columns: list[str], reasons: pd.Series) -> pd.DataFrame:
     """``table`` (the scores in file order, blank rows of the file as empty lines) with :data:`WHY_NOT_SCORED_COLUMN`
-    last when some line has no score at all, saying why (:class:`NotScored`; ``reasons``: :func:`_row_reasons`), so
-    that a line left empty is told apart from a person with no answers when the file is merged back; unchanged when
-    every line has a score."""
+    last, saying why a line has no score at all (:class:`NotScored`; ``reasons``: :func:`_row_reasons`), so that a
+    line left empty is told apart from a person with no answers when the file is merged back; empty on the lines
+    scored, and on every line when each has a score (written all the same: the file's columns never vary)."""
+    _refuse_id_named_as(id_name, (WHY_NOT_SCORED_COLUMN,))
     scored = table[score_columns].notna().any(axis=1).to_numpy()
     if scored.all():
-        return table
-    _refuse_id_named_as(id_name, (WHY_NOT_SCORED_COLUMN,))
+        return table.assign(**{WHY_NOT_SCORED_COLUMN: pd.Series([None] * len(table), index=table.index, dtype=object)})
     known = table.index.isin(reasons.index)
     why = np.full(len(table), None, dtype=object)
     why[known] = reasons.reindex(table.index[known]).to_numpy()
@@ -309,10 +314,13 @@ def score_columns(methods, factors) -> list[str]:
 
 
 def column_name(factor: str, method: ScoreMethod, what: str = "") -> str:
-    """Output column of a factor's score by a method: e.g. 'visual_regression', 'visual_regression_se'."""
+    """Output column of a factor's score by a method: e.g. 'visual_regression', 'visual_regression_se',
+    'visual_item_sum_sem' (``what``: '', 'se', or 'sem', an item sum's or mean's standard error of measurement)."""
     word = {ScoreMethod.EXPECTED_A_POSTERIORI: "posterior_mean"}.get(method, method.value.replace("-", "_"))
     if what == "se":
         word = "posterior_sd" if method is ScoreMethod.EXPECTED_A_POSTERIORI else word + "_se"
+    elif what == "sem":
+        word += "_sem"
     return f"{factor}_{word}"
 
 
@@ -347,7 +355,9 @@ class ItemSumSummary:
     rule: ItemSumRule
     factors: tuple[str, ...]  # the factors summed
     items: tuple[tuple[str, ...], ...]  # each summed factor's items
-    omega: tuple[float, ...]  # of each summed factor's keyed sum, from the fit's reliability (McDonald 1999)
+    #: scoring.quality.SumScore of the summed factors that have one: the very objects of the group's quality
+    #: (ScoreQuality.sums, OrdinalQuality.sums), whose omega and SD every table reads
+    sums: tuple[SumScore, ...]
     reversals: tuple[Reversal, ...]
     not_summed: tuple[tuple[str, Unscored], ...]  # (factor, why it has no item sum)
     shared: tuple[tuple[str, tuple[str, ...]], ...]  # (item, the summed factors it counts on) for items on several
@@ -355,6 +365,18 @@ class ItemSumSummary:
     # scoring.quality.Precision of each summed factor's item sum and mean written (their standard error of
     # measurement, from the sum's SD under the fitted model and its omega)
     precision: tuple[Precision, ...] = ()
+    #: summed factors whose sum adds continuous items' values to ordinal answers' codes: no reliability or SEM
+    #: (scoring.quality.mixed_sums)
+    mixed: tuple[str, ...] = ()
+    #: (factor, method, least, largest, rows): the standard errors of measurement of the prorated rows' item sums (or
+    #: means, when no sum is written), from the items each answered (_item_sum_sems)
+    prorated_sem: tuple = ()
+
+    @property
+    def omega(self) -> tuple[float, ...]:
+        """Each summed factor's omega of its keyed sum (:attr:`sums`; NaN where it has none)."""
+        found = {s.factor: s.omega for s in self.sums}
+        return tuple(found.get(f, float("nan")) for f in self.factors)
 
     def to_dict(self) -> dict:
         return clean({"group": self.group, "least_share_answered": self.rule.least_share,
@@ -362,6 +384,9 @@ class ItemSumSummary:
                       "factors": [{"factor": f, "items": list(items), "omega": w, "rows_prorated": n}
                                   for f, items, w, n in zip(self.factors, self.items, self.omega, self.prorated)],
                       "precision": [p.to_dict() for p in self.precision],
+                      "prorated_standard_errors_of_measurement": [
+                          {"factor": f, "method": m.value, "least": low, "largest": high, "rows": n}
+                          for f, m, low, high, n in self.prorated_sem],
                       "reversed": [r.to_dict() for r in self.reversals],
                       "not_summed": [{"factor": f, "reason": why.value} for f, why in self.not_summed],
                       "items_on_several_factors": [{"item": x, "factors": list(fs)} for x, fs in self.shared]})
@@ -384,11 +409,13 @@ class _ItemParts:
         return [j for j, why in enumerate(self.not_summed) if why is None]
 
 
-def _item_parts(model, spec, fit_data, omegas: dict, rule: ItemSumRule, categories=None) -> _ItemParts:
+def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSumRule, categories=None,
+                mixed: tuple[str, ...] = ()) -> _ItemParts:
     """One group's :class:`_ItemParts` (``model``: its ScoringModel; ``fit_data``: the fit's DataSummary, whose
-    answer ranges give the scale of a reverse-keyed item no statement gives one; ``omegas``: factor -> omega of
-    the keyed sum in the fit's reliability, assessment.reliability; ``categories``: ordinal items' answer values in
-    the fitted rows, item by item, which give that scale when the fit keeps no answer ranges)."""
+    answer ranges give the scale of a reverse-keyed item no statement gives one; ``sums``: the group's keyed sums'
+    quality (scoring.quality.SumScore); ``categories``: ordinal items' answer values in the fitted rows, item by
+    item, which give that scale when the fit keeps no answer ranges; ``mixed``: the factors whose sum mixes
+    continuous and ordinal items, scoring.quality.mixed_sums)."""
     from cfa_tool.scoring.quality import sum_keys
 
     keys = sum_keys(model, _declared(spec))
@@ -424,39 +451,22 @@ def _item_parts(model, spec, fit_data, omegas: dict, rule: ItemSumRule, categori
     counted = (keys != 0)[:, summed]
     shared = tuple((model.items[i], tuple(model.factors[summed[k]] for k in np.flatnonzero(counted[i])))
                    for i in np.flatnonzero(counted.sum(axis=1) > 1))
-    summary = ItemSumSummary(model.group, rule, tuple(model.factors[j] for j in summed),
+    names = tuple(model.factors[j] for j in summed)
+    summary = ItemSumSummary(model.group, rule, names,
                              tuple(tuple(model.items[i] for i in np.flatnonzero(keys[:, j])) for j in summed),
-                             tuple(float(omegas.get(model.factors[j], float("nan"))) for j in summed),
+                             tuple(s for s in sums if s.factor in names),
                              tuple(reversals), tuple((f, why) for f, why in zip(model.factors, not_summed)
-                                                     if why is not None), shared)
+                                                     if why is not None), shared,
+                             mixed=tuple(f for f in names if f in mixed))
     return _ItemParts(keys, lowest, highest, not_summed, summary)
 
 
-def _fitted_omegas(fit, ordinal: bool) -> dict:
-    """Each group's label -> {factor: omega of the keyed sum} in the fit's reliability (assessment.reliability, as
-    the fit's report gives it), from a fit result or from the reliability a saved fit's JSON holds; for ordinal items
-    the omega of the sum of the answers' codes (Green & Yang 2009) the fit gives beside its latent-response omega."""
-    field = "observed_sum_omega" if ordinal else "omega"
-    if isinstance(fit, SavedFit):
-        payload = fit.payload
-        if fit.group_column is not None:
-            parts = {g.get("name"): g.get("reliability") or {} for g in payload.get("groups", ())}
-        else:
-            parts = {None: payload.get("reliability") or {}}
-        found = {label: {r["factor"]: float("nan") if r.get(field) is None else float(r[field])
-                         for r in part.get("factors", ()) if isinstance(r, dict) and "factor" in r}
-                 for label, part in parts.items()}
-    else:
-        found = {g.label: {r.factor: float("nan") if getattr(r, field) is None else float(getattr(r, field))
-                           for r in g.reliability} for g in fit.groups}
-    if len(found) == 1:  # one group: whatever its label, the one set
-        found[None] = next(iter(found.values()))
-    return found
-
-
-def _score_group(model, rows: np.ndarray, chosen, ordinal: bool, parts: _ItemParts | None) -> tuple[dict, tuple]:
-    """(method -> (scores, standard errors, unscored counts), rows prorated per summed factor) of one group's
-    rows: factor scores by the linear methods or the posterior mean, item sums and means by their rule."""
+def _score_group(model, rows: np.ndarray, chosen, ordinal: bool,
+                 parts: _ItemParts | None) -> tuple[dict, tuple, tuple]:
+    """(method -> (scores, standard errors, unscored counts), rows prorated per summed factor, the prorated rows'
+    standard errors of measurement: (factor, method, least, largest, rows) per summed factor with such rows, for the
+    first item method written) of one group's rows: factor scores by the linear methods or the posterior mean, item
+    sums and means by their rule (an item sum's or mean's standard error: its SEM, :func:`_item_sum_sems`)."""
     out = {}
     factor_ones = factor_methods(chosen)
     if factor_ones:
@@ -470,18 +480,45 @@ def _score_group(model, rows: np.ndarray, chosen, ordinal: bool, parts: _ItemPar
             found = score_rows(model, rows, factor_ones)
         out = {meth: (b.scores, b.standard_errors, b.unscored) for meth, b in found.items()}
     if parts is None:
-        return out, ()
+        return out, (), ()
     from cfa_tool.scoring.item_sums import item_sums
 
     base = model.base if ordinal else model
     sums = item_sums(rows, parts.keys, parts.lowest, parts.highest, parts.not_summed, base.factors,
                      parts.summary.rule)
-    none = np.full(sums.sums.shape, np.nan)
-    for meth, values in ((ScoreMethod.ITEM_SUM, sums.sums), (ScoreMethod.ITEM_MEAN, sums.means)):
+    sum_sem, mean_sem = _item_sum_sems(model, parts, rows, sums.sums)
+    for meth, values, sem in ((ScoreMethod.ITEM_SUM, sums.sums, sum_sem), (ScoreMethod.ITEM_MEAN, sums.means, mean_sem)):
         if meth in chosen:
-            out[meth] = (values, none, sums.unscored)
+            out[meth] = (values, sem, sums.unscored)
     summed = parts.summed
-    return out, tuple(int(sums.prorated[j]) for j in summed)
+    first = next(m for m in ITEM_METHODS if m in chosen)
+    values, sem = out[first][0], out[first][1]
+    prorated = np.isfinite(values) & ((~np.isnan(rows)).astype(float) @ (parts.keys != 0) < (parts.keys != 0).sum(axis=0))
+    spread = []
+    for j in summed:
+        found = sem[prorated[:, j] & np.isfinite(sem[:, j]), j]
+        if len(found):
+            spread.append((base.factors[j], first, float(found.min()), float(found.max()), len(found)))
+    return out, tuple(int(sums.prorated[j]) for j in summed), tuple(spread)
+
+
+def _item_sum_sems(model, parts: _ItemParts, rows: np.ndarray, sums: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """(n, m) each row's standard error of measurement of its item sum and of its item mean (NaN where it has no
+    sum, or its sum no omega): the SEM of the sum of the items the row answered (scoring.quality.answered_sum_sems),
+    times J/a for the sum prorated from a of the factor's J items, divided by a for the mean."""
+    answered = ~np.isnan(rows)
+    found = answered_sum_sems(model, parts.summary.sums, parts.keys, answered)
+    member = parts.keys != 0
+    count = answered.astype(float) @ member
+    sum_sem, mean_sem = np.full(sums.shape, np.nan), np.full(sums.shape, np.nan)
+    factors = (model.base if hasattr(model, "base") else model).factors
+    for name, sem in found.items():
+        f = factors.index(name)
+        has = np.isfinite(sums[:, f])
+        a = count[has, f]
+        sum_sem[has, f] = sem[has] * member[:, f].sum() / a
+        mean_sem[has, f] = sem[has] / a
+    return sum_sem, mean_sem
 
 
 @dataclass(frozen=True, eq=False)
@@ -657,8 +694,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                           "that every row can be scored in its place")
     ids = row_ids(read_frame, source, id_column, spec.observed_names, group, loaded.row_names)
     ordinal_items = api.ordinal_items_of(spec, ordinal)
-    chosen = _ordinal_methods(methods, chosen, standard_errors, "") if ordinal_items else \
-        _with_factor_method(chosen, standard_errors)
+    if ordinal_items:
+        chosen = _ordinal_methods(methods, chosen, standard_errors, "")
     design = design_columns(weights, cluster, strata, weight_kind)
     # the weights parsed once, as fit parses them: for the fit, the groups weighted out and the rows scored from
     loaded = api.with_design_weights(api.analysed_odd_values(loaded, spec, group), design, spec, group)
@@ -693,8 +730,9 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     errors = {meth: np.full((len(read_index), m), np.nan) for meth in chosen}
     counts: dict = {}
     position = pd.Series(np.arange(len(read_index)), index=read_index)
+    sums = _sum_scores(models, spec, bool(ordinal_items))
     summaries = _score_each_group(models, labels, spec, result, rule, rows, group_of_row, group, chosen,
-                                  bool(ordinal_items), position.loc[kept].to_numpy(), values, errors, counts)
+                                  bool(ordinal_items), position.loc[kept].to_numpy(), values, errors, counts, sums)
     reasons = _row_reasons(read_index, kept, rows, group_of_row, group, labels)
     _count_rows_left_out(reasons, chosen, m, counts)
 
@@ -707,7 +745,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     table = _in_file_order(pd.DataFrame(columns, index=read_index), data, names_row)  # a frame's own index: joins
     table = _with_why_not_scored(table, id_name, score_columns(chosen, factors), reasons)
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
-                               spec, answered) if ordinal_items else _linear_quality(models, spec)
+                               spec, answered, sums) if ordinal_items else _linear_quality(models, spec, sums)
     result = _with_repeated_ids(result, ids, id_column)
     extra = duplicate_note(ids, "id column" if id_column is not None else "row names", False) + _partly_answered(
         models[0].base if ordinal_items else models[0], answered, chosen, errors)
@@ -742,22 +780,24 @@ def _with_repeated_ids(result, ids, id_column):
 
 
 def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group, chosen, ordinal: bool,
-                      places: np.ndarray, values: dict, errors: dict, counts: dict) -> tuple[ItemSumSummary, ...]:
+                      places: np.ndarray, values: dict, errors: dict, counts: dict,
+                      sums: list) -> tuple[ItemSumSummary, ...]:
     """Every row of each group scored by each chosen method into ``values`` and ``errors`` (rows read, at
     ``places``: the place of each row of ``rows`` among them), the rows without a score counted into ``counts``
-    by (reason, method); the summary of each group's item sums and means (none when ``rule`` is None)."""
+    by (reason, method); the summary of each group's item sums and means (none when ``rule`` is None), whose
+    reliability and spread are the group's keyed sums' quality ``sums[g]`` (:func:`_sum_scores`)."""
     m = values[chosen[0]].shape[1]
-    omegas = _fitted_omegas(fit, ordinal) if rule is not None else {}
     summaries = []
-    for model_g, label in zip(models, labels):
+    for model_g, label, sums_g in zip(models, labels, sums):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(rows))
-        parts = None if rule is None else _item_parts(model_g.base if ordinal else model_g, spec, fit.data,
-                                                       omegas.get(label, {}), rule,
-                                                       model_g.categories if ordinal else None)
+        parts = None if rule is None else _item_parts(model_g.base if ordinal else model_g, spec, fit.data, sums_g,
+                                                       rule, model_g.categories if ordinal else None,
+                                                       mixed_sums(model_g, _declared(spec)) if ordinal else ())
         prorated: tuple = ()
+        spread: tuple = ()
         if len(sel):
             at = places[sel]
-            out, prorated = _score_group(model_g, rows[sel], chosen, ordinal, parts)
+            out, prorated, spread = _score_group(model_g, rows[sel], chosen, ordinal, parts)
             for meth, (v, e, unscored) in out.items():
                 values[meth][at], errors[meth][at] = v, e
                 for why, c in unscored.items():
@@ -765,20 +805,16 @@ def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group
                     counts[key] = counts.get(key, np.zeros(m, dtype=np.int64)) + np.asarray(c, dtype=np.int64)
         if parts is not None:
             summaries.append(replace(parts.summary, prorated=prorated or (0,) * len(parts.summary.factors),
-                                     precision=_item_sum_precision(model_g, parts, chosen)))
+                                     precision=item_sum_precision(parts.summary.sums, chosen), prorated_sem=spread))
     return tuple(summaries)
 
 
-def _item_sum_precision(model, parts: _ItemParts, chosen) -> tuple[Precision, ...]:
-    """The precision of one group's item sums and means written (scoring.quality.item_sum_precision), from the sums'
-    SDs under the model (``model``: the group's scoring model, ordinal or not) and their omega in the fit."""
-    from cfa_tool.scoring.quality import item_sum_precision, keyed_sum_sds
-
-    summary = parts.summary
-    summed = parts.summed
-    sds = keyed_sum_sds(model, parts.keys)
-    return item_sum_precision(summary.factors, [len(items) for items in summary.items], sds[summed], summary.omega,
-                              chosen)
+def _sum_scores(models, spec, ordinal: bool) -> list[tuple[SumScore, ...]]:
+    """Each group's keyed sums with their reliability and spread under the fitted model (scoring.quality
+    .sum_quality, or ordinal_sum_quality for ordinal items), computed once: the quality tables and the item sums'
+    summary read the same objects."""
+    declared = _declared(spec)
+    return [ordinal_sum_quality(m, declared) if ordinal else sum_quality(m, declared) for m in models]
 
 
 def _partly_answered(model, answered: np.ndarray, chosen, errors: dict) -> list[str]:
@@ -786,17 +822,6 @@ def _partly_answered(model, answered: np.ndarray, chosen, errors: dict) -> list[
     whose prorating the report says)."""
     first = factor_methods(chosen)
     return partly_answered_note(model, answered, first[0], errors[first[0]]) if first else []
-
-
-def _with_factor_method(chosen, standard_errors: bool) -> tuple[ScoreMethod, ...]:
-    """``chosen``, refused with standard errors when it holds no factor-score method (a sum has no standard error
-    about the factor of its own: the report gives its reliability)."""
-    if standard_errors and not factor_methods(chosen):
-        raise OptionError(f"standard errors are those of factor scores, and item sums and means have none of their "
-                          f"own (their reliability is in the report), so standard errors cannot apply; add a factor "
-                          f"score method ({Option.SCORE_METHODS.given(['regression', 'item-sum'])}) or remove that "
-                          f"option")
-    return chosen
 
 
 def _ordinal_methods(methods, chosen, standard_errors: bool, whose: str) -> tuple[ScoreMethod, ...]:
@@ -934,8 +959,9 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     if ordinal:
         _check_categories(models[0], rows, row_numbers(frame), source, row_naming(frame))
     counts: dict = {}
+    sums = _sum_scores(models, spec, ordinal)
     summaries = _score_each_group(models, labels, spec, result, rule, rows, group_of_row, group, chosen, ordinal,
-                                  position.loc[frame.index].to_numpy(), values, errors, counts)
+                                  position.loc[frame.index].to_numpy(), values, errors, counts, sums)
     reasons = _row_reasons(read_frame.index, frame.index, rows, group_of_row, group, labels)
     _count_rows_left_out(reasons, chosen, m, counts)
     factors = base.factors
@@ -967,12 +993,12 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes += label_notes(frame, group)
     if ordinal:
         quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, frame.index,
-                                   group_of_row, group, spec, answered)
+                                   group_of_row, group, spec, answered, sums)
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source} (loadings, thresholds and factor covariances); the quality figures "
                         f"(marginal reliability) are those of the scores of {source}.")
     else:
-        quality = _linear_quality(models, spec)
+        quality = _linear_quality(models, spec, sums)
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
@@ -1004,7 +1030,7 @@ def _saved_methods(methods, ordinal: bool, standard_errors: bool = False) -> tup
     beside it when asked for)."""
     chosen = method_option(methods)
     if not ordinal:
-        return _with_factor_method(chosen, standard_errors)
+        return chosen
     return _ordinal_methods(methods, chosen, standard_errors, "the earlier fit has ordinal items, which are")
 
 
@@ -1463,11 +1489,12 @@ def _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, 
     return list(ordinal_score_inputs(_Fitted(table, StructuredModel(table), result.theta), groups)), list(labels)
 
 
-def _linear_quality(models, spec) -> list[ScoreQuality]:
+def _linear_quality(models, spec, sums: list) -> list[ScoreQuality]:
+    """Each group's :class:`ScoreQuality`, holding the group's keyed sums ``sums[g]`` (:func:`_sum_scores`)."""
     from cfa_tool.scoring.methods import LINEAR_METHODS
     from cfa_tool.scoring.quality import score_quality
 
-    return [score_quality(m, LINEAR_METHODS, _declared(spec)) for m in models]
+    return [score_quality(m, LINEAR_METHODS, _declared(spec), s) for m, s in zip(models, sums)]
 
 
 def _declared(spec):
@@ -1477,11 +1504,12 @@ def _declared(spec):
 
 
 def _ordinal_quality(models, labels, values, errors, position, kept, group_of_row, group, spec,
-                     answered: np.ndarray) -> list[OrdinalQuality]:
+                     answered: np.ndarray, sums: list) -> list[OrdinalQuality]:
     """Each group's :class:`OrdinalQuality`; ``answered``: how many of each factor's items each row answered
-    (:func:`_items_answered`), at the same places as ``values`` and ``errors``."""
+    (:func:`_items_answered`), at the same places as ``values`` and ``errors``; ``sums``: each group's keyed sums
+    (:func:`_sum_scores`)."""
     out = []
-    for model_g, label in zip(models, labels):
+    for model_g, label, sums_g in zip(models, labels, sums):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(kept))
         at = position.loc[kept[sel]].to_numpy()
         v, e = values[at], errors[at]
@@ -1497,7 +1525,7 @@ def _ordinal_quality(models, labels, values, errors, position, kept, group_of_ro
         sd = np.sqrt(np.diag(phi))
         precision, by_level = _ordinal_precision(model_g.base, v, e, answered[at], reliability, sd)
         out.append(OrdinalQuality(label, model_g.base.factors, tuple(reliability), phi / np.outer(sd, sd), scores,
-                                  ordinal_sum_quality(model_g, _declared(spec)), precision, by_level))
+                                  sums_g, precision, by_level))
     return out
 
 

@@ -160,9 +160,9 @@ def test_rows_without_any_score_say_why_and_are_not_counted_as_scored(tmp_path, 
                          "--id", "why_not_scored", "--keep", "school = Pasteur"], capsys)
     assert code == 2 and "'why_not_scored' has the name of a column the output holds" in err
     assert not (tmp_path / "named_out.csv").exists()
-    # every row scored: no such column, and the count is of every row
+    # every row scored: the column is there all the same (a script reads the same columns from every run), empty
     assert _run(["scores", model_file, "--data", HS_FILE, "--output", tmp_path / "all.csv"], capsys)[0] == 0
-    assert "why_not_scored" not in pd.read_csv(tmp_path / "all.csv").columns
+    assert pd.read_csv(tmp_path / "all.csv")["why_not_scored"].isna().all()
 
 
 def test_an_inadmissible_solution_writes_no_scores_and_exits_3(tmp_path, capsys):
@@ -214,7 +214,8 @@ def test_ordinal_items_get_posterior_means_and_standard_deviations(tmp_path, cap
     code, text, err = _run(["scores", model, "--data", data, "--output", out, "--ordinal", "all"], capsys)
     assert code == 0, err
     written = pd.read_csv(out)
-    assert list(written.columns) == ["f_posterior_mean", "f_posterior_sd", "f_items_answered"]
+    assert list(written.columns) == ["f_posterior_mean", "f_posterior_sd", "f_items_answered",
+                                     "same_answer_to_every_item", "why_not_scored"]
     s = written["f_posterior_mean"]
     assert abs(s.mean()) < 4 * s.std() / np.sqrt(n)  # E[EAP] = the factor mean, 0 here
     assert (written["f_posterior_sd"] > 0).all()
@@ -232,8 +233,10 @@ def test_python_entry_point_with_groups(hs_data):
     result = cfa_tool.scores(THREE_FACTORS, hs_data, group="school", methods="bartlett", id_column="id")
     assert dataclasses.is_dataclass(result) and result.__dataclass_params__.frozen
     assert list(result.table.columns) == (["id"] + [f"{f}_bartlett" for f in FACTORS]
-                                          + [f"{f}_items_answered" for f in FACTORS])
-    assert len(result.table) == len(hs_data) and not result.table.isna().any().any()
+                                          + [f"{f}_items_answered" for f in FACTORS]
+                                          + ["same_answer_to_every_item", "why_not_scored"])
+    assert len(result.table) == len(hs_data) and not result.table.iloc[:, :-2].isna().any().any()
+    assert result.table.iloc[:, -2:].isna().all().all()  # nothing to say: no 'reversed' statement, every row scored
     assert [q.group for q in result.quality] == ["Grant-White", "Pasteur"]  # one quality record per group
     assert result.to_dict()["methods"] == ["bartlett"] and result.to_dict()["fit"]["group_column"] == "school"
     assert "Quality of the scores (group Pasteur)" in result.summary()
@@ -429,12 +432,12 @@ def test_a_blank_row_of_the_file_keeps_an_empty_line_so_the_scores_line_up(tmp_p
                 capsys)[0] == 0
     blank = (tmp_path / "b.csv").read_text().splitlines()
     plain = (tmp_path / "p.csv").read_text().splitlines()
-    # line 11, as the sheet's row 11, holds no score and says why in the last column, which only a file with a line
-    # without any score has (the other lines end with it empty)
-    assert len(blank) == len(plain) + 1 and blank[0] == plain[0] + ",why_not_scored"
+    # line 11, as the sheet's row 11, holds no score and says why in the last column, which every file has (the
+    # other lines end with it empty)
+    assert len(blank) == len(plain) + 1 and blank[0] == plain[0] and plain[0].endswith(",why_not_scored")
     assert set(blank[10].removesuffix("blank row")) <= {","} and blank[10].endswith(",blank row")
     others = blank[1:10] + blank[11:]
-    assert all(line.endswith(",") for line in others) and [line[:-1] for line in others] == plain[1:]
+    assert all(line.endswith(",") for line in others) and others == plain[1:]
 
 
 @pytest.mark.parametrize("from_fit", [False, True])
@@ -459,7 +462,7 @@ def test_rows_above_the_first_row_of_answers_keep_their_lines(tmp_path, model_fi
     scored = (tmp_path / "q.csv").read_text().splitlines()
     plain = (tmp_path / "p.csv").read_text().splitlines()
     assert len(scored) == len(text) + 1 == len(plain) + 1  # one line per line of the data file
-    assert scored[0] == plain[0] + ",why_not_scored"
+    assert scored[0] == plain[0] and plain[0].endswith(",why_not_scored")
     assert scored[1].endswith(",above the answers") and set(scored[1].removesuffix("above the answers")) <= {","}
-    assert [line[:-1] for line in scored[2:]] == plain[1:]
+    assert scored[2:] == plain[1:]
     assert "keeps its line" in " ".join(out.split())

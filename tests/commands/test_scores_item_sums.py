@@ -106,7 +106,6 @@ def test_a_higher_order_factor_has_no_item_sum(files, capsys):
     (["--least-answered", "0.5"], "--least-answered is the rule of item sums and means"),
     (["--method", "item-sum", "--least-answered", "0"], "must be above 0"),
     (["--method", "item-mean", "--least-answered", "1.5"], "must be at most 1"),
-    (["--method", "item-sum", "--standard-errors"], "standard errors cannot apply"),
 ])
 def test_options_that_cannot_apply_are_refused(files, capsys, extra, said):
     folder, _ = files

@@ -160,7 +160,9 @@ def test_scores_of_other_data_name_that_files_rows_and_say_which_are_the_fits(sa
 def test_the_scores_file_marks_the_same_answer_rows():
     frame = _planted(_answers())
     table = cfa_tool.scores(MODEL + REVERSED, frame, id_column="respondent").table
-    assert table.columns[-1] == "same_answer_to_every_item"
+    assert list(table.columns[-2:]) == ["same_answer_to_every_item", "why_not_scored"]
     assert table.loc[table["same_answer_to_every_item"] == 1, "respondent"].tolist() == ["P007", "P041"]
-    # without a 'reversed' statement no row is judged, and the file has no such column
-    assert "same_answer_to_every_item" not in cfa_tool.scores(MODEL, frame).table.columns
+    # without a 'reversed' statement no row is judged: the column is there all the same, empty
+    plain = cfa_tool.scores(MODEL, frame).table
+    assert list(plain.columns[-2:]) == ["same_answer_to_every_item", "why_not_scored"]
+    assert plain["same_answer_to_every_item"].isna().all()

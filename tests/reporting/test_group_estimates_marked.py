@@ -96,3 +96,47 @@ def test_the_pattern_counts_of_the_table_and_of_littles_test_are_explained():
     assert f"{pooled} distinct patterns over all rows" in note
     assert f"over {within} patterns counted group by group" in note
     assert f"hence more than the {pooled} distinct patterns above" in note
+
+
+TIED_WITHIN = THREE_FACTORS + "equal loading(visual, x2), loading(visual, x3)\ninvariance metric\n"
+
+
+def test_the_marks_come_from_the_parameter_table_not_from_equal_estimates():
+    """Which estimates are one parameter is what the model declares: 'invariance metric' holds every free loading equal
+    across the schools, and the 'equal' statement ties x3's loading to x2's in each school, so x3's loading is the
+    same parameter in both (before, a loading tied within its group was never marked, having no label of its own)."""
+    result = cfa_tool.fit(TIED_WITHIN, holzinger_swineford(), group="school")
+    held = result.held_equal_across_groups()
+    for group in ("Grant-White", "Pasteur"):
+        assert ("loading", ("visual", "x2"), group) in held
+        assert ("loading", ("visual", "x3"), group) in held
+        assert ("residual_variance", ("x3",), group) not in held  # free in each school at the metric level
+    data = json.loads(to_json(result))
+    assert {"kind": "loading", "variables": ["visual", "x3"], "group": "Grant-White"} in (
+        data["parameters_held_equal_across_groups"])
+
+
+def test_equal_estimates_by_chance_are_not_marked_and_shared_ones_stay_marked_whatever_their_digits():
+    """Configural loadings that happen to share an estimate are two parameters; a loading held equal is one even if
+    its two rows' numbers differ in the last digits.  The estimates are set here by hand, which the marks must not
+    follow (before, they were inferred from equal estimates and moved with them)."""
+    from dataclasses import replace
+
+    one_group_tie = THREE_FACTORS + "in group Pasteur: equal loading(visual, x2), loading(visual, x3)\n"
+    result = cfa_tool.fit(one_group_tie, holzinger_swineford(), group="school")
+    pasteur_x3 = next(r for r in result.estimates if r.kind == "loading" and r.variables == ("visual", "x3")
+                      and r.group == "Pasteur")
+    chance = replace(result, estimates=tuple(
+        replace(r, estimate=pasteur_x3.estimate) if r.kind == "loading" and r.variables == ("visual", "x3") else r
+        for r in result.estimates))
+    assert chance.held_equal_across_groups() == frozenset()  # no equality across groups in this model
+    for t in fit_report(chance).tables:
+        assert "Held equal" not in t.columns and "Held equal" not in (t.note or ""), t.title
+    metric = cfa_tool.fit(THREE_FACTORS + "invariance metric\n", holzinger_swineford(), group="school")
+    nudged = replace(metric, estimates=tuple(
+        replace(r, estimate=r.estimate * (1 + 1e-9)) if r.group == "Pasteur" and r.kind == "loading" else r
+        for r in metric.estimates))
+    assert ("loading", ("visual", "x2"), "Pasteur") in nudged.held_equal_across_groups()
+    assert ("loading", ("visual", "x2"), "Grant-White") in nudged.held_equal_across_groups()
+    table = next(t for t in fit_report(nudged).tables if t.title.startswith("Factor visual") and t.title.endswith("Pasteur"))
+    assert "Held equal across groups (one estimate shared): the loadings of x2 and x3" in table.note

@@ -232,7 +232,11 @@ def test_a_reversed_item_without_any_scale_is_refused_naming_the_statement_to_wr
                          np.zeros(3), np.diag([0.36, 0.64, 0.51]))
     no_ranges = SimpleNamespace(variables=("y1", "y2", "y3"), ranges=())  # e.g. a saved fit that kept none
     with pytest.raises(OptionError, match=r"reverses 'y2'.*'reversed y2 on LOWEST to HIGHEST'"):
-        _item_parts(model, spec, no_ranges, {}, ItemSumRule())
+        _item_parts(model, spec, no_ranges, (), ItemSumRule())
+    from cfa_tool.scoring.quality import SumScore
+
+    given = SumScore("f", ("y1", "y2", "y3"), ("y2",), 0.7, 0.9, 4.0)  # the sums' quality is passed in, not computed
     parts = _item_parts(model, spec, SimpleNamespace(variables=("y1", "y2", "y3"), ranges=((1, 5), (2, 6), (1, 5))),
-                        {"f": 0.7}, ItemSumRule())
+                        (given,), ItemSumRule())
     assert (parts.lowest[1], parts.highest[1]) == (2.0, 6.0) and parts.summary.omega == (0.7,)
+    assert parts.summary.sums == (given,)
