@@ -265,6 +265,10 @@ def _prorated_sentence(result, sums) -> str:
     return said
 
 
+#: the heading of the scores' first box when its only cautions are the scores' precision
+SCORES_PRECISION_HEADING = "Check before using these scores"
+
+
 def precision_cautions(result) -> list[str]:
     """Factors whose scores' reliability is below what decisions about individuals usually need."""
     lines = []
@@ -491,7 +495,21 @@ def scores_report(result):
     file shows, and what a saved result holds."""
     from cfa_tool.reporting.document import Report, ResultKind
 
-    return Report(ResultKind.SCORES, f"Factor scores: {result.fit.model_name}", T.problem_notice(result.fit),
+    return Report(ResultKind.SCORES, f"Factor scores: {result.fit.model_name}", scores_notice(result),
                   tuple(header_lines(result)) + tuple(caution_lines(result)), tuple(score_tables(result)),
-                  tuple(result.notes) + tuple(item_sum_notes(result)), (SCORES_CAUTION, *precision_cautions(result), HIGH_STAKES_NOTE),
+                  tuple(result.notes) + tuple(item_sum_notes(result)), (SCORES_CAUTION, HIGH_STAKES_NOTE),
                   problem_table=T.problem_table(result.fit), warnings=tuple(warnings(result)))
+
+
+def scores_notice(result):
+    """What the scores' report shows first: the fit's problems and the rows scored (workflows.factor_scores), then the
+    factors whose scores are less reliable than decisions about individuals usually need (:func:`precision_cautions`):
+    scores are made to be read one person at a time, so their precision is a caution first, not a note last (a new
+    user scoring staff for feedback found it on the last page)."""
+    notice = T.problem_notice(result.fit)
+    precision = tuple(precision_cautions(result))
+    if not precision:
+        return notice
+    if notice is None:
+        return T.ProblemNotice(SCORES_PRECISION_HEADING, precision, False)
+    return T.ProblemNotice(notice.heading, notice.lines + precision, notice.inadmissible)

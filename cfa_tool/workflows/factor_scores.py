@@ -752,7 +752,9 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     if ids is not None and id_column is None:
         extra.insert(0, f"The first column holds the row names of {source} (its first column, which has no name in "
                         f"the header); give {Option.ID_COLUMN.given('COLUMN')} to name the rows by another column.")
-    own = _without_own_answers_note(answered, values, chosen, factors)
+    own = _without_own_answers(answered, values, chosen, factors)
+    if own:
+        result = replace(result, problems=tuple(own) + tuple(result.problems))
     unweighted = len(frame) - len(fitted_rows)  # weight 0: not in the fit, yet scored like every row
     if unweighted:
         which = "The row of weight 0 is" if unweighted == 1 else f"The {unweighted} rows of weight 0 are"
@@ -761,7 +763,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality), unscored,
                        bool(standard_errors or ordinal_items), tuple(extra),
-                       warnings=tuple(centred_in_each_group(result.estimates) + own), item_sums=summaries)
+                       warnings=tuple(centred_in_each_group(result.estimates)), item_sums=summaries)
 
 
 def _with_repeated_ids(result, ids, id_column):
@@ -969,10 +971,11 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     answered = _items_answered(base, rows, position.loc[frame.index].to_numpy(), n)
     id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, with_errors, answered)
     columns = _with_same_answer_column(columns, id_name, spec, base.items, rows, position.loc[frame.index].to_numpy(), n)
-    warnings = centred_in_each_group(result.estimates) + _without_own_answers_note(answered, values, chosen, factors)
+    warnings = centred_in_each_group(result.estimates)
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
-    scored_problems = []  # first in every view, before the fit's own (the rows scored are this run's data)
+    # first in every view, before the fit's own (the rows scored are this run's data)
+    scored_problems = list(_without_own_answers(answered, values, chosen, factors))
     if unknown_groups:
         scored_problems.append(Problem(ProblemKind.UNKNOWN_GROUPS_SCORED, (), None, unknown_groups + ".",
                                        "write each row's group as the fit's data wrote it, or fit the model to "
@@ -1576,16 +1579,26 @@ def centred_in_each_group(estimates) -> list[str]:
             f"that group's own units."]
 
 
-def _without_own_answers_note(answered: np.ndarray, values: dict, chosen, factors) -> list[str]:
-    """The caution on rows that answered none of a factor's items and still have a factor score of it (``answered``:
-    :func:`_items_answered`; ``values``: each method's scores at the same places): it rests on the other factors'
-    items alone.  Item sums and means leave such cells empty, and Bartlett and correlation-preserving scores as a
-    rule too (the unscored table counts them), so only the cells a factor-score method filled are counted."""
+def _without_own_answers(answered: np.ndarray, values: dict, chosen, factors) -> tuple:
+    """The caution, first in every view, on rows that answered none of a factor's items and still have a factor score
+    of it (``answered``: :func:`_items_answered`; ``values``: each method's scores at the same places): such a score
+    rests on the other factors' items alone, a prediction a report to the person could mistake for their own
+    (a new user scoring staff for feedback found 63 such scores said only in a note).  Item sums and means leave
+    such cells empty, and Bartlett and correlation-preserving scores as a rule too (the unscored table counts them),
+    so only the cells a factor-score method filled are counted.  () when there are none."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
     scored = np.zeros(answered.shape, dtype=bool)
     for meth in factor_methods(chosen):
         scored |= ~np.isnan(values[meth])
     total = ((answered == 0) & scored).sum(axis=0)
-    return [f"{int(n)} {'row' if n == 1 else 'rows'} answered none of the items of {name}; {'its' if n == 1 else 'their'} "
-            f"score of {name} rests on the other factors' items alone (through the factors' correlations), and the "
-            f"column {answered_column(name)} marks {'it' if n == 1 else 'them'} with 0"
+    said = [f"{int(n)} {'row' if n == 1 else 'rows'} answered none of the items of {name}, and "
+            f"{'its' if n == 1 else 'their'} score of {name} rests on the other factors' items alone (through the "
+            f"factors' correlations); the column {answered_column(name)} marks {'it' if n == 1 else 'them'} with 0"
             for name, n in zip(factors, total) if n]
+    if not said:
+        return ()
+    return (Problem(ProblemKind.SCORED_WITHOUT_OWN_ANSWERS, (), float(total.sum()), "; ".join(said) + ".",
+                    "treat such a score as a prediction from the row's other answers, not as a measure of the factor "
+                    "for that person: leave it out of any report to the person, or score the rows' own items only "
+                    "(item sums or means leave it empty)."),)

@@ -35,9 +35,12 @@ def test_standard_error_band_and_smallest_difference_by_hand(hs_data):
     report = scores_report(result)
     table = next(t for t in report.tables if t.title.startswith("How precise"))
     assert table.rows[0][:3] == ("visual", f"{se:.2f}", f"±{1.959964 * se:.2f}")
-    # three items of a reliability below .90: the caution beside the one on high-stakes use
-    low = [c for c in report.cautions if "below the .90 that decisions about individuals usually need" in c]
+    # three items of a reliability below .90: a caution first, in the box read before the scores (new user s14:
+    # it came last, after the tables), not among the closing cautions
+    low = [c for c in report.notice.lines if "below the .90 that decisions about individuals usually need" in c]
     assert len(low) == 1 and f"visual {p.reliability:.2f}".replace("0.", ".") in low[0]
+    assert report.notice.heading == "Check before using these scores"
+    assert not [c for c in report.cautions if "decisions about individuals usually need" in c]
 
 
 def test_the_precision_table_is_of_the_first_method_written(hs_data):
@@ -67,7 +70,9 @@ def test_no_precision_caution_when_the_scores_are_reliable_enough():
     result = cfa_tool.scores("factor f: q1..q8\n", data)
     (p,) = precision_of(result.quality[0], ScoreMethod.REGRESSION)
     assert p.reliability > 0.9
-    assert not [c for c in scores_report(result).cautions if "decisions about individuals usually need" in c]
+    report = scores_report(result)
+    assert not [c for c in report.cautions + (report.notice.lines if report.notice else ())
+                if "decisions about individuals usually need" in c]
 
 
 def test_a_factor_of_one_item_is_said_to_restate_its_fixed_error_variance(hs_data):
