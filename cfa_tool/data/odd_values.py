@@ -15,10 +15,18 @@ normal data, the bundled demo data and Holzinger & Swineford 1939):
   give such values;
 * **outside the answer scale**: in an item answered on a scale of whole numbers (the other answers fill a run of
   at most :data:`MAX_SCALE_POINTS` consecutive whole numbers, such as 1 to 5), a few cells (together at most
-  :data:`FEW_SHARE` of the column's answers) that lie at least two steps beyond the run's end (12 or 7 beside
-  1 to 5; a 6 might be the scale's own top answer), when the scale's end next to them is a common answer (at
-  least :data:`FEW_SHARE` of the answers): a scale that ends there, not a thinning tail of counts.  Measures with
-  many different values (reaction times, incomes, counts of many sizes) form no such run and are never judged so;
+  :data:`FEW_SHARE` of the column's answers) whose value is separated from the rest of the item's answers by a
+  gap (at least two steps beyond the run's end: 12 or 7 beside 1 to 5; a 6 might be the scale's own top answer),
+  when the scale's end next to them is a common answer (at least :data:`FEW_SHARE` of the answers: a scale that
+  ends there, not a thinning tail of counts), AND that lies beyond the range the other items of the same scale
+  use: the runs of the other columns screened with the same lowest or the same highest answer (1 to 5 beside 1 to
+  5, 0 to 10 beside 0 to 8).  A skewed 0-to-10 or 1-to-7 item whose second-highest answer no one chose is so left
+  alone when the other items of its scale reach its top answer (review s13); a column with no other item of its
+  scale is not judged by this rule (nothing says where its scale ends; a scale a 'reversed' statement declares
+  is judged by the model's own check, data.matching.check_declared_ranges).  Common practice of data screening
+  (a value outside the range the questionnaire's items use is a keying error), written as this project's rule,
+  not a published test.  Measures with many different values (reaction times, incomes, counts of many sizes)
+  form no such run and are never judged so;
 * **a row of sums or means**: a row whose values equal, in every item column it answers (three or more), the
   sums (to within 0.5) or the means (to within 0.005, two decimals) of the other rows' answers.
 
@@ -229,14 +237,24 @@ def _row_findings(X: np.ndarray, clean: np.ndarray, base: np.ndarray, far: np.nd
 def _outside_scales(X: np.ndarray, apart: np.ndarray, named: set, names: list[str],
                     numbers: np.ndarray) -> tuple[OddValues, ...]:
     """The values outside the answer scale of their item (see the module's rules), one finding for each value and
-    scale, naming every column that holds it and its rows; values the other rules name (``named``: (column,
-    value)) are left to them.  Only the columns ``apart`` are looked at (:func:`_may_stand_out`: an extreme at
+    scale, naming every column that holds it and its rows: separated from the item's own answers by a gap
+    (:func:`_outside_scale`) and beyond the range that the answer runs of the other columns of the same scale
+    (the same lowest or highest answer) use; values the other rules name (``named``: (column, value)) are left to
+    them.  Only the columns ``apart`` are looked at (:func:`_may_stand_out`: an extreme at
     least two steps beyond the next value), so that ordinary data cost nothing more."""
     found: dict[tuple[float, float, float], list[tuple[int, np.ndarray]]] = {}
+    runs: dict[int, tuple[float, float] | None] = {}  # each column's answer run, found when first needed
     for j in apart:
         for value, low, high in _outside_scale(X[:, j]):
-            if (j, value) not in named:
-                found.setdefault((value, low, high), []).append((j, X[:, j] == value))
+            if (j, value) in named:
+                continue
+            for k in range(X.shape[1]):
+                if k != j and k not in runs:
+                    runs[k] = _answer_run(X[:, k])
+            scale = [r for k, r in runs.items() if k != j and r is not None and (r[0] == low or r[1] == high)]
+            if not scale or min(r[0] for r in scale) <= value <= max(r[1] for r in scale):
+                continue  # no other item of its scale, or one that uses the value: not beyond the scale's range
+            found.setdefault((value, low, high), []).append((j, X[:, j] == value))
     out = []
     for (value, low, high), held in sorted(found.items(), key=lambda kv: -sum(int(c.sum()) for _, c in kv[1])):
         cells = np.column_stack([c for _, c in held])
@@ -247,15 +265,40 @@ def _outside_scales(X: np.ndarray, apart: np.ndarray, named: set, names: list[st
 
 
 def _outside_scale(x: np.ndarray) -> list[tuple[float, float, float]]:
-    """(value, the scale's lowest and highest answer) of each value of one column outside its answer scale: the
-    longest run of consecutive whole numbers among its values (at most MAX_SCALE_POINTS; the one with more answers
-    of two as long), holding all but at most FEW_SHARE of the answers; a value at least two steps beyond its end,
-    that end given in at least FEW_SHARE of the answers."""
+    """(value, the scale's lowest and highest answer) of each value of one column separated from its answer run by
+    a gap (:func:`_run_of`): a value at least two steps beyond the run's end, that end given in at least FEW_SHARE
+    of the answers.  Whether the value also lies beyond the range the other items of its scale use is
+    :func:`_outside_scales`' judgement."""
+    found = _run_of(x)
+    if found is None:
+        return []
+    x, values, counts, first, last = found
+    low, high = float(values[first]), float(values[last])
+    out = []
+    for k, value in enumerate(values):
+        end = first if value < low else last if value > high else None
+        if end is None or abs(value - values[end]) < 2 or counts[end] < max(2.0, FEW_SHARE * len(x)):
+            continue
+        out.append((float(value), low, high))
+    return out
+
+
+def _answer_run(x: np.ndarray) -> tuple[float, float] | None:
+    """The lowest and highest answer of a column's answer run (:func:`_run_of`), or None when it has none."""
+    found = _run_of(x)
+    return None if found is None else (float(found[1][found[3]]), float(found[1][found[4]]))
+
+
+def _run_of(x: np.ndarray):
+    """A column's answer run: the longest run of consecutive whole numbers among its values (at most
+    MAX_SCALE_POINTS; the one with more answers of two as long), holding all but at most FEW_SHARE of the answers
+    and at least MIN_OTHERS of them, as (answers, distinct values, their counts, the run's first and last
+    position among the values); None when there is none (a measure of many values, too few answers)."""
     x = x[np.isfinite(x)]
     few = max(1.0, FEW_SHARE * len(x))
     values, counts = np.unique(x, return_counts=True)
     if len(values) > MAX_SCALE_POINTS + few:  # a measure of many values (the common case of numbers apart)
-        return []
+        return None
     whole = values == np.round(values)
     best = None  # (length, answers, first, last) of the longest run
     start = 0
@@ -267,18 +310,11 @@ def _outside_scale(x: np.ndarray) -> list[tuple[float, float, float]]:
                     best = run
             start = k
     if best is None or not 2 <= best[0] <= MAX_SCALE_POINTS:
-        return []
+        return None
     _, inside, first, last = best
     if len(x) - inside > few or inside < MIN_OTHERS:
-        return []
-    low, high = float(values[first]), float(values[last])
-    out = []
-    for k, value in enumerate(values):
-        end = first if value < low else last if value > high else None
-        if end is None or abs(value - values[end]) < 2 or counts[end] < max(2.0, FEW_SHARE * len(x)):
-            continue
-        out.append((float(value), low, high))
-    return out
+        return None
+    return x, values, counts, first, last
 
 
 def code_like(value: float) -> bool:
