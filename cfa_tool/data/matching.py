@@ -181,7 +181,7 @@ def _summary_row_first(frame, spec: Spec, data_name: str, strays: set[int], scal
     from cfa_tool.data.moments import row_numbers
     import numpy as np
 
-    from cfa_tool.data.odd_values import OddKind, odd_values
+    from cfa_tool.data.odd_values import OddKind, naming_cell, odd_values
 
     rows = row_numbers(frame)
     found = [o for o in odd_values(frame, spec.observed_names, rows)
@@ -191,26 +191,13 @@ def _summary_row_first(frame, spec: Spec, data_name: str, strays: set[int], scal
         return
     odd = found[0]
     position = int(np.flatnonzero(np.asarray(rows) == odd.rows[0])[0])
-    named = _naming_cell(frame, spec, position)
+    named = naming_cell(frame, spec.observed_names, position)
     keep = f" ({Option.KEEP.given(f'{printable(named[0])} != {printable(named[1])}')})" if named else ""
     more = f" (and {len(found) - 1} more such rows)" if len(found) > 1 else ""
     raise DataError(f"{odd.caution(data_name)}{more} Its values lie outside the scale {scale} that a 'reversed' "
                     f"statement of the model declares, so the model cannot be fitted with it. What to try: delete "
                     f"the row from the file, or leave it out with a row filter{keep}; its values are not "
                     f"missing-value codes.")
-
-
-def _naming_cell(frame, spec: Spec, position: int) -> tuple[str, str] | None:
-    """The first column outside the model whose cell at ``position`` is text that no other row holds ('resp_id',
-    'Total'), or None: a row filter can leave that row out by it."""
-    for column in frame.columns:
-        if column in spec.observed_names:
-            continue
-        value = frame[column].iloc[position]
-        if isinstance(value, str) and value.strip() and "'" not in value and '"' not in value \
-                and int((frame[column] == value).sum()) == 1:
-            return str(column), value.strip()
-    return None
 
 
 def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict | None = None,

@@ -28,7 +28,9 @@ normal data, the bundled demo data and Holzinger & Swineford 1939):
   not a published test.  Measures with many different values (reaction times, incomes, counts of many sizes)
   form no such run and are never judged so;
 * **a row of sums or means**: a row whose values equal, in every item column it answers (three or more), the
-  sums (to within 0.5) or the means (to within 0.005, two decimals) of the other rows' answers.
+  sums (to within 0.5, and beyond the range of the other answers in at least half of those columns, as sums of
+  ten or more answers of one sign lie: small answers of data centred at zero are near their sums too) or the means
+  (to within 0.005, two decimals) of the other rows' answers.
 
 Values are judged from the most extreme inwards, so that -99 and -9 in one column are both found; each
 judgement needs at least ten other answers.
@@ -110,16 +112,33 @@ class OddValues:
                     f"{self.naming.of(len(self.rows))} {_listed(self.rows)}), outside the answer "
                     f"scale of the other answers ({_number(low)} to {_number(high)}), analysed as an answer: a typing "
                     f"error?")
+        guess = ("a totals or means row, or a typing error?" if self.kind is OddKind.FAR_BEYOND
+                 else "a totals or means row of a spreadsheet?")
+        return f"{self._row_holds(name)}: {guess}"
+
+    def _row_holds(self, name: str) -> str:
+        """What one row holds, as a caution or an error names it: 'Row 482 of survey.csv holds the sums of the
+        other rows' answers in 12 item columns (on_time 1500, short_wait 1509, accurate_info 1545 and 9 more)'."""
+        low, high = self.others
         shown = ", ".join(f"{printable(c)} {_number(v)}" for c, v in zip(self.columns[:SHOWN], self.values[:SHOWN]))
         more = f" and {len(self.columns) - SHOWN} more" if len(self.columns) > SHOWN else ""
         what = {OddKind.FAR_BEYOND: f"values far beyond every other row's answers ({_number(low)} to {_number(high)})",
                 OddKind.SUMS_ROW: "the sums of the other rows' answers",
                 OddKind.MEANS_ROW: "the means of the other rows' answers"}[self.kind]
-        guess = ("a totals or means row, or a typing error?" if self.kind is OddKind.FAR_BEYOND
-                 else "a totals or means row of a spreadsheet?")
         row = self.naming.one_row(self.rows[0])
         return (f"{row[0].upper()}{row[1:]} of {name} holds {what} in {len(self.columns)} item "
-                f"column{'s' if len(self.columns) != 1 else ''} ({shown}{more}): {guess}")
+                f"column{'s' if len(self.columns) != 1 else ''} ({shown}{more})")
+
+    def totals_refusal(self, source: str, naming: tuple[str, str] | None = None) -> str:
+        """The one-line error of a totals row among the rows analysed (kind SUMS_ROW): the file, the row and what it
+        holds, and how to leave it out: by a row filter on the text cell that names it (``naming``: column and
+        value, :func:`naming_cell`) when it has one."""
+        holder = "data frame" if self.naming is RowNaming.INDEX_LABEL else "file"
+        keep = (f" ({Option.KEEP.given(f'{printable(naming[0])} != {printable(naming[1])}')})" if naming
+                else f" ({Option.KEEP})")
+        return (f"{self._row_holds(base_name(source))}: a spreadsheet's totals row, not anyone's answers (analysed "
+                f"as answers, that one row would decide the results). What to try: delete "
+                f"{self.naming.one_row(self.rows[0])} from the {holder}, or leave it out with a row filter{keep}.")
 
     def kept_words(self) -> str:
         """The finding in the words of a methods section, for a run that analysed the values as the file holds them:
@@ -317,6 +336,19 @@ def _run_of(x: np.ndarray):
     return x, values, counts, first, last
 
 
+def naming_cell(frame: pd.DataFrame, items, position: int) -> tuple[str, str] | None:
+    """The first column outside ``items`` whose cell at ``position`` (a place among ``frame``'s rows) is text that no
+    other row holds ('rider_id', 'Total'), or None: a row filter can leave that row out by it."""
+    for column in frame.columns:
+        if column in items:
+            continue
+        value = frame[column].iloc[position]
+        if isinstance(value, str) and value.strip() and "'" not in value and '"' not in value \
+                and int((frame[column] == value).sum()) == 1:
+            return str(column), value.strip()
+    return None
+
+
 def code_like(value: float) -> bool:
     """A whole number that is negative or written with nines only (9, 99, 999, -9, -99, ...): the values data
     collection programs commonly use for 'no answer'."""
@@ -405,11 +437,26 @@ def _summary_rows(X: np.ndarray, base: np.ndarray) -> dict[int, OddKind]:
         if not len(rows):
             return {}
     out: dict[int, OddKind] = {}
-    for r, summed in zip(rows, as_sum):
+    for r, summed, meaned in zip(rows, as_sum, as_mean):
         js = np.flatnonzero(np.isfinite(X[r]))
-        if any((np.delete(X[:, j], r) != X[r, j]).all() for j in js):
-            out[int(r)] = OddKind.SUMS_ROW if summed else OddKind.MEANS_ROW
+        if not any((np.delete(X[:, j], r) != X[r, j]).all() for j in js):
+            continue
+        if summed and not _beyond_the_others(X[r, js], np.delete(base[:, js], r, axis=0)):
+            summed = False  # sums inside the other answers' range: answers near zero, not a totals row
+            if not meaned:
+                continue
+        out[int(r)] = OddKind.SUMS_ROW if summed else OddKind.MEANS_ROW
     return out
+
+
+def _beyond_the_others(row: np.ndarray, others: np.ndarray) -> bool:
+    """Whether ``row`` lies beyond the range of the ``others``' answers (below the lowest or above the highest) in at
+    least half of its columns: a totals row of ten or more answers of one sign does, answers near zero of data
+    centred at zero (whose sums are near zero too, within SUM_TOLERANCE of a row of small answers) do not."""
+    answered = np.isfinite(others)
+    low = np.min(others, axis=0, initial=np.inf, where=answered)
+    high = np.max(others, axis=0, initial=-np.inf, where=answered)
+    return 2 * int(((row < low) | (row > high)).sum()) >= len(row)
 
 
 def _others(values: np.ndarray) -> tuple[float, float]:

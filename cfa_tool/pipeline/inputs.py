@@ -678,9 +678,11 @@ def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answe
     """``frame`` as loaded data holding the values among the columns ``names`` that look like no answers, and
     those of ``non_answers`` (``LoadedData.non_answers``, read as missing) in them, for the commands that read
     their data without :func:`read_inputs_with_notes` (replicate, explore): their cautions
-    (:func:`odd_value_problems`) and :func:`odd_values_named` then work as for every other command."""
-    return LoadedData(frame, source, odd_values=odd_values(frame, tuple(names), row_numbers(frame)),
-                      non_answers=tuple(f for f in non_answers if f.column in set(names)), cautions=cautions)
+    (:func:`odd_value_problems`) and :func:`odd_values_named` then work as for every other command, and a totals
+    row among them is refused as every other command refuses it (:func:`refuse_totals_rows`)."""
+    return refuse_totals_rows(LoadedData(frame, source, odd_values=odd_values(frame, tuple(names), row_numbers(frame)),
+                                         non_answers=tuple(f for f in non_answers if f.column in set(names)),
+                                         cautions=cautions))
 
 
 def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | None = None,
@@ -976,13 +978,31 @@ def _nearly_constant_problems(names: tuple[str, ...], loaded: LoadedData | None,
 
 def analysed_odd_values(loaded: LoadedData, spec: Spec, group: str | None) -> LoadedData:
     """``loaded`` with the values that look like no answers among the rows analysed: with groups, the rows with a
-    group label (a totals row without one is left out, and named in a note)."""
+    group label (a totals row without one is left out, and named in a note); a totals row among them is refused
+    (:func:`refuse_totals_rows`)."""
     if group is None or not isinstance(group, str) or group not in loaded.frame.columns or not loaded.odd_values:
-        return loaded
+        return refuse_totals_rows(loaded)
     analysed = _labelled(loaded.frame, group)
     if len(analysed) == len(loaded.frame):
+        return refuse_totals_rows(loaded)
+    return refuse_totals_rows(replace(loaded, odd_values=_screened_items(loaded, analysed, spec)))
+
+
+def refuse_totals_rows(loaded: LoadedData) -> LoadedData:
+    """``loaded``, unless a row it analyses holds the sums of the other rows' answers in every item column it
+    answers (data.odd_values: a spreadsheet's totals row): that is bad input, refused with a one-line data error
+    naming the file and the row and how to leave it out (exit 2; hostile trial s13: the fit stopped with exit 3,
+    "the model cannot be estimated", naming the row only as a likely cause).  Called where the rows analysed are
+    known, before any estimation: by :func:`analysed_odd_values` and on entering :func:`odd_values_named` (a means
+    row, which moves the estimates little, stays a caution)."""
+    from cfa_tool.data.odd_values import OddKind, naming_cell
+
+    odd = next((o for o in loaded.odd_values if o.kind is OddKind.SUMS_ROW), None)
+    if odd is None:
         return loaded
-    return replace(loaded, odd_values=_screened_items(loaded, analysed, spec))
+    at = np.flatnonzero(np.asarray(row_numbers(loaded.frame)) == odd.rows[0])
+    named = naming_cell(loaded.frame, odd.columns, int(at[0])) if len(at) else None
+    raise DataError(odd.totals_refusal(loaded.source, named))
 
 
 @contextmanager
@@ -990,7 +1010,9 @@ def odd_values_named(loaded: LoadedData):
     """An estimation that fails on data holding values that look like no answers says so first: they are the
     likelier cause than the iterations or the identification the failure's own advice names; a data error about a
     row that the reading found to look like a row of totals or means (a fractional answer of an ordinal item in it)
-    says that first, with the way to leave the row out."""
+    says that first, with the way to leave the row out.  A totals row among the rows is refused on entering
+    (:func:`refuse_totals_rows`)."""
+    refuse_totals_rows(loaded)
     try:
         yield
     except RowDataError as exc:  # a data row the reading already found to look like no one's answers: said first
@@ -1004,10 +1026,15 @@ def odd_values_named(loaded: LoadedData):
     except EstimationError as exc:
         if not loaded.odd_values:
             raise
-        first = loaded.odd_values[0]
+        from cfa_tool.data.odd_values import OddKind
+
+        # a row far beyond the others in several item columns (a spreadsheet's COUNT or totals row of other rows)
+        # is bad input, the likelier cause of the failure: a data error (exit 2), that row named first
+        row = next((o for o in loaded.odd_values if o.kind is OddKind.FAR_BEYOND and len(o.columns) > 1), None)
+        first = row or loaded.odd_values[0]
         more = f" (and {len(loaded.odd_values) - 1} more such findings)" if len(loaded.odd_values) > 1 else ""
-        raise EstimationError(f"{first.caution(loaded.source)}{more} What to try first: {first.advice()} "
-                              f"Then: {exc}") from None
+        raise (DataError if row is not None else EstimationError)(
+            f"{first.caution(loaded.source)}{more} What to try first: {first.advice()} Then: {exc}") from None
 
 
 def named_cases(result: FitResult, ids: dict) -> FitResult:

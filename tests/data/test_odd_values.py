@@ -260,3 +260,19 @@ def test_a_twelve_among_answers_one_to_five_is_still_named():
     ten.loc[[4], "t3"] = 12  # row 5; t3's answers otherwise 0 to 10
     found = [o for o in odd_values(ten, list(ten.columns)) if o.kind is OddKind.OUTSIDE_SCALE]
     assert [(o.columns, o.values, o.rows) for o in found] == [(("t3",), (12.0,), (5,))]
+
+
+def test_small_answers_of_data_centred_at_zero_are_no_totals_row():
+    """Each column centred at zero (as researchers centre or standardise data) sums to zero, so a row of answers
+    within 0.25 of zero in every column lay within the sums rule's 0.5 of the other rows' sums and was named a
+    totals row (since s14 a totals row is refused): a totals row also lies beyond the other answers' range."""
+    rng = np.random.default_rng(11)
+    X = rng.standard_normal((500, 3))
+    frame = pd.DataFrame(X - X.mean(axis=0), columns=["z1", "z2", "z3"])  # numpy's centring
+    near = int((frame.abs() <= 0.25).all(axis=1).sum())  # rows within the tolerance of the sums (pandas' count)
+    assert near >= 1  # the seed gives such rows
+    assert [o for o in odd_values(frame, list(frame.columns)) if o.kind is OddKind.SUMS_ROW] == []
+    # a true totals row under the same data is still found
+    scaled = frame + 3.0  # answers around 3, all positive
+    totals = pd.concat([scaled, scaled.sum().to_frame().T], ignore_index=True)
+    assert [(o.kind, o.rows) for o in odd_values(totals, list(totals.columns))] == [(OddKind.SUMS_ROW, (501,))]
