@@ -17,7 +17,8 @@ from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_
 from cfa_tool.data.groups import split_moments
 from cfa_tool.data.kept_rows import RowNaming, named_by_index_label, row_naming
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
-from cfa_tool.data.matching import answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges
+from cfa_tool.data.matching import (answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges,
+                                    chosen_columns)
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.non_answers import beyond_scale, non_answer_caution
 from cfa_tool.data.descriptives import few_category_note
@@ -205,13 +206,15 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
                            text_columns: tuple[str, ...] = (), items=None,
                            names_row: int | None = None, names_option: Option = Option.NAMES_ROW,
                            first_data_row: int | None = None, name_the_file: bool = False, rename=None,
-                           rename_option: Option = Option.RENAME
+                           rename_option: Option = Option.RENAME, chosen: dict[str, str] | None = None
                            ) -> tuple[Spec, LoadedData, list[str]]:
     """The model and the data read for it, as every command that reads rows reads each of its files; no-answer
     words and labels are read as missing in ``items`` only (None: the model's items), never in a group, id or design
     column; ``names_option``: the option that gave ``names_row`` (replicate's validation file has its own);
     ``name_the_file``: the row filters' notes name the file (one of several files filtered alike); ``rename``:
-    columns read under new names (the option --rename, data.renamed_columns), before anything looks at the names."""
+    columns read under new names (the option --rename, data.renamed_columns), before anything looks at the names;
+    ``chosen``: the columns the run chooses for other roles (data.matching.chosen_columns), which may not share a
+    factor's name (a column that does and that the run does not read is named in a note)."""
     keep = keep_option(keep)
     spec = load_spec(model)
     halves = [k for k in keep if isinstance(k, RandomHalf)]
@@ -235,7 +238,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         notes.append(loaded.row_filters[-1].note())
     frame, cautions, filters = loaded.frame, loaded.cautions, loaded.row_filters
     notes += [f"{loaded.source}: {note}" for note in filter_notes] if name_the_file else filter_notes
-    check_columns(spec, columns, loaded.source, loaded.column_hint())
+    notes += check_columns(spec, columns, loaded.source, loaded.column_hint(), chosen)
     frame, coding_notes = code_answer_words(spec, frame, loaded.source,  # 'answers' statements: words as codes
                                             missing_codes=missing_codes_option(missing_codes))
     notes += coding_notes
@@ -457,7 +460,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             moments, notes = _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor)
         else:
             moments, notes = read_summary_file(data)
-        check_columns(spec, list(moments.names), moments.source)
+        notes = list(notes) + list(check_columns(spec, list(moments.names), moments.source))
         if fit_options.missing_helpers:
             raise OptionError(f"summary statistics hold no rows, so missing-data helpers ({Option.MISSING_HELPERS}), "
                               f"which enter the likelihood of the rows with gaps, cannot apply; give the raw data")
@@ -476,7 +479,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     spec, loaded, notes = read_inputs_with_notes(spec, data, sheet, missing_codes, keep,
                                                  (id_column,) if isinstance(id_column, str) else (), names_row=names_row,
                                                  first_data_row=first_data_row, rename=rename,
-                                                 items=spec.observed_names + helpers if helpers else None)
+                                                 items=spec.observed_names + helpers if helpers else None,
+                                                 chosen=chosen_columns(group, id_column, design,
+                                                                       fit_options.missing_helpers))
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
     if id_column is not None:
@@ -1799,7 +1804,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         check_counting_rule(spec, build_parameter_table(spec))
         return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0, {}, None,
                            analysed=moments.analysed)
-    spec, loaded, notes = read_inputs_with_notes(model, data, **read_options)
+    spec, loaded, notes = read_inputs_with_notes(model, data, **read_options,
+                                                 chosen=chosen_columns(group, design=design))
     frame, source = loaded.frame, loaded.source
     loaded = with_design_weights(analysed_odd_values(loaded, spec, group), design, spec, group)
     if design is not None:
