@@ -10,19 +10,16 @@ from cfa_tool.data.odd_values import code_like
 from cfa_tool.input_files import base_name
 
 
-def check_columns(spec: Spec, columns: list[str], data_source: str, sheet_hint: str = "") -> None:
-    """Every observed indicator must be a column; no factor may share a column's name.  ``sheet_hint``: which
-    sheet of a workbook of several was read (``LoadedData.sheet_hint``), said when a variable is not found."""
+def check_columns(spec: Spec, columns: list[str], data_source: str, sheet_hint: str = "",
+                  chosen: dict[str, str] | None = None) -> tuple[str, ...]:
+    """Every observed indicator must be a column; a column that shares a factor's name is left unused, with a note
+    (a precomputed 'comfort' score beside the items of factor comfort: :func:`factor_named_columns`), unless the
+    run would read it (an error).  ``sheet_hint``: which sheet of a workbook of several was read
+    (``LoadedData.sheet_hint``), said when a variable is not found; ``chosen``: the columns the run chooses for
+    another role (column -> the role's words, 'the group column'), :func:`chosen_columns`.  Returns the notes."""
+    notes = factor_named_columns(spec, columns, data_source, chosen)
     available = set(columns)
     data_name = base_name(data_source)
-    for factor in spec.factors:
-        if factor.name.text in available:
-            loc = factor.name.location
-            raise ModelError(
-                f"'{factor.name}' is declared as a factor but is also a column of {data_name}; give the factor another name",
-                loc,
-                spec.source_line(loc),
-            )
     for name in spec.observed_names:
         if name not in available:
             loc = spec.first_mention(name)
@@ -34,6 +31,54 @@ def check_columns(spec: Spec, columns: list[str], data_source: str, sheet_hint: 
                 loc,
                 spec.source_line(loc),
             )
+    return notes
+
+
+def chosen_columns(group: str | None = None, id_column: str | None = None, design=None,
+                   helpers=()) -> dict[str, str]:
+    """The columns a run chooses for a role other than an item, by name: {column: 'the group column', ...}
+    (``design``: data.sample_design.DesignColumns; ``helpers``: the missing-data helpers)."""
+    out = {name: f"the {what} column" for what, name in (design.names if design is not None else ())}
+    out.update({name: "a missing-data helper" for name in helpers or ()})
+    if isinstance(id_column, str):
+        out[id_column] = "the id column"
+    if isinstance(group, str):
+        out[group] = "the group column"
+    return out
+
+
+def factor_named_columns(spec: Spec, columns, data_source: str, chosen: dict[str, str] | None = None) -> tuple[str, ...]:
+    """The columns of the data that share a factor's name (hostile trial s13: a precomputed 'comfort' total beside
+    the items of factor comfort was refused though the model never reads it): a note for each that the run does
+    not read ('the column 'comfort' in survey.csv is not used: the model's factor has the same name'); a
+    :class:`ModelError` at the factor's name when the run would read it, since the name would then mean two
+    things: the factor is also named as an indicator of another factor (where the column's name reads as the
+    factor), or the column is chosen for another role (``chosen``: column -> the role's words)."""
+    available = set(columns)
+    data_name = base_name(data_source)
+    indicators = {ind.text: f.name.text for f in spec.factors for ind in f.indicators}
+    notes = []
+    for factor in spec.factors:
+        name = factor.name.text
+        if name not in available:
+            continue
+        loc = factor.name.location
+        if name in indicators:
+            why = (f"and the model names it as an indicator of '{indicators[name]}' (read there as the factor, not "
+                   f"the column)")
+        elif chosen and name in chosen:
+            why = f"chosen as {chosen[name]}"
+        else:
+            notes.append(f"the column '{printable(name)}' in {data_name} is not used: the model's factor has the same "
+                         f"name")
+            continue
+        raise ModelError(
+            f"'{factor.name}' is declared as a factor but is also a column of {data_name}, {why}; give the factor "
+            f"another name",
+            loc,
+            spec.source_line(loc),
+        )
+    return tuple(notes)
 
 
 def _spaces_only(name: str, guess: str) -> str:
@@ -181,7 +226,7 @@ def _summary_row_first(frame, spec: Spec, data_name: str, strays: set[int], scal
     from cfa_tool.data.moments import row_numbers
     import numpy as np
 
-    from cfa_tool.data.odd_values import OddKind, odd_values
+    from cfa_tool.data.odd_values import OddKind, naming_cell, odd_values
 
     rows = row_numbers(frame)
     found = [o for o in odd_values(frame, spec.observed_names, rows)
@@ -191,26 +236,13 @@ def _summary_row_first(frame, spec: Spec, data_name: str, strays: set[int], scal
         return
     odd = found[0]
     position = int(np.flatnonzero(np.asarray(rows) == odd.rows[0])[0])
-    named = _naming_cell(frame, spec, position)
+    named = naming_cell(frame, spec.observed_names, position)
     keep = f" ({Option.KEEP.given(f'{printable(named[0])} != {printable(named[1])}')})" if named else ""
     more = f" (and {len(found) - 1} more such rows)" if len(found) > 1 else ""
     raise DataError(f"{odd.caution(data_name)}{more} Its values lie outside the scale {scale} that a 'reversed' "
                     f"statement of the model declares, so the model cannot be fitted with it. What to try: delete "
                     f"the row from the file, or leave it out with a row filter{keep}; its values are not "
                     f"missing-value codes.")
-
-
-def _naming_cell(frame, spec: Spec, position: int) -> tuple[str, str] | None:
-    """The first column outside the model whose cell at ``position`` is text that no other row holds ('resp_id',
-    'Total'), or None: a row filter can leave that row out by it."""
-    for column in frame.columns:
-        if column in spec.observed_names:
-            continue
-        value = frame[column].iloc[position]
-        if isinstance(value, str) and value.strip() and "'" not in value and '"' not in value \
-                and int((frame[column] == value).sum()) == 1:
-            return str(column), value.strip()
-    return None
 
 
 def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict | None = None,

@@ -15,12 +15,22 @@ normal data, the bundled demo data and Holzinger & Swineford 1939):
   give such values;
 * **outside the answer scale**: in an item answered on a scale of whole numbers (the other answers fill a run of
   at most :data:`MAX_SCALE_POINTS` consecutive whole numbers, such as 1 to 5), a few cells (together at most
-  :data:`FEW_SHARE` of the column's answers) that lie at least two steps beyond the run's end (12 or 7 beside
-  1 to 5; a 6 might be the scale's own top answer), when the scale's end next to them is a common answer (at
-  least :data:`FEW_SHARE` of the answers): a scale that ends there, not a thinning tail of counts.  Measures with
-  many different values (reaction times, incomes, counts of many sizes) form no such run and are never judged so;
+  :data:`FEW_SHARE` of the column's answers) whose value is separated from the rest of the item's answers by a
+  gap (at least two steps beyond the run's end: 12 or 7 beside 1 to 5; a 6 might be the scale's own top answer),
+  when the scale's end next to them is a common answer (at least :data:`FEW_SHARE` of the answers: a scale that
+  ends there, not a thinning tail of counts), AND that lies beyond the range the other items of the same scale
+  use: the runs of the other columns screened with the same lowest or the same highest answer (1 to 5 beside 1 to
+  5, 0 to 10 beside 0 to 8).  A skewed 0-to-10 or 1-to-7 item whose second-highest answer no one chose is so left
+  alone when the other items of its scale reach its top answer (review s13); a column with no other item of its
+  scale is not judged by this rule (nothing says where its scale ends; a scale a 'reversed' statement declares
+  is judged by the model's own check, data.matching.check_declared_ranges).  Common practice of data screening
+  (a value outside the range the questionnaire's items use is a keying error), written as this project's rule,
+  not a published test.  Measures with many different values (reaction times, incomes, counts of many sizes)
+  form no such run and are never judged so;
 * **a row of sums or means**: a row whose values equal, in every item column it answers (three or more), the
-  sums (to within 0.5) or the means (to within 0.005, two decimals) of the other rows' answers.
+  sums (to within 0.5, and beyond the range of the other answers in at least half of those columns, as sums of
+  ten or more answers of one sign lie: small answers of data centred at zero are near their sums too) or the means
+  (to within 0.005, two decimals) of the other rows' answers.
 
 Values are judged from the most extreme inwards, so that -99 and -9 in one column are both found; each
 judgement needs at least ten other answers.
@@ -102,16 +112,33 @@ class OddValues:
                     f"{self.naming.of(len(self.rows))} {_listed(self.rows)}), outside the answer "
                     f"scale of the other answers ({_number(low)} to {_number(high)}), analysed as an answer: a typing "
                     f"error?")
+        guess = ("a totals or means row, or a typing error?" if self.kind is OddKind.FAR_BEYOND
+                 else "a totals or means row of a spreadsheet?")
+        return f"{self._row_holds(name)}: {guess}"
+
+    def _row_holds(self, name: str) -> str:
+        """What one row holds, as a caution or an error names it: 'Row 482 of survey.csv holds the sums of the
+        other rows' answers in 12 item columns (on_time 1500, short_wait 1509, accurate_info 1545 and 9 more)'."""
+        low, high = self.others
         shown = ", ".join(f"{printable(c)} {_number(v)}" for c, v in zip(self.columns[:SHOWN], self.values[:SHOWN]))
         more = f" and {len(self.columns) - SHOWN} more" if len(self.columns) > SHOWN else ""
         what = {OddKind.FAR_BEYOND: f"values far beyond every other row's answers ({_number(low)} to {_number(high)})",
                 OddKind.SUMS_ROW: "the sums of the other rows' answers",
                 OddKind.MEANS_ROW: "the means of the other rows' answers"}[self.kind]
-        guess = ("a totals or means row, or a typing error?" if self.kind is OddKind.FAR_BEYOND
-                 else "a totals or means row of a spreadsheet?")
         row = self.naming.one_row(self.rows[0])
         return (f"{row[0].upper()}{row[1:]} of {name} holds {what} in {len(self.columns)} item "
-                f"column{'s' if len(self.columns) != 1 else ''} ({shown}{more}): {guess}")
+                f"column{'s' if len(self.columns) != 1 else ''} ({shown}{more})")
+
+    def totals_refusal(self, source: str, naming: tuple[str, str] | None = None) -> str:
+        """The one-line error of a totals row among the rows analysed (kind SUMS_ROW): the file, the row and what it
+        holds, and how to leave it out: by a row filter on the text cell that names it (``naming``: column and
+        value, :func:`naming_cell`) when it has one."""
+        holder = "data frame" if self.naming is RowNaming.INDEX_LABEL else "file"
+        keep = (f" ({Option.KEEP.given(f'{printable(naming[0])} != {printable(naming[1])}')})" if naming
+                else f" ({Option.KEEP})")
+        return (f"{self._row_holds(base_name(source))}: a spreadsheet's totals row, not anyone's answers (analysed "
+                f"as answers, that one row would decide the results). What to try: delete "
+                f"{self.naming.one_row(self.rows[0])} from the {holder}, or leave it out with a row filter{keep}.")
 
     def kept_words(self) -> str:
         """The finding in the words of a methods section, for a run that analysed the values as the file holds them:
@@ -229,14 +256,24 @@ def _row_findings(X: np.ndarray, clean: np.ndarray, base: np.ndarray, far: np.nd
 def _outside_scales(X: np.ndarray, apart: np.ndarray, named: set, names: list[str],
                     numbers: np.ndarray) -> tuple[OddValues, ...]:
     """The values outside the answer scale of their item (see the module's rules), one finding for each value and
-    scale, naming every column that holds it and its rows; values the other rules name (``named``: (column,
-    value)) are left to them.  Only the columns ``apart`` are looked at (:func:`_may_stand_out`: an extreme at
+    scale, naming every column that holds it and its rows: separated from the item's own answers by a gap
+    (:func:`_outside_scale`) and beyond the range that the answer runs of the other columns of the same scale
+    (the same lowest or highest answer) use; values the other rules name (``named``: (column, value)) are left to
+    them.  Only the columns ``apart`` are looked at (:func:`_may_stand_out`: an extreme at
     least two steps beyond the next value), so that ordinary data cost nothing more."""
     found: dict[tuple[float, float, float], list[tuple[int, np.ndarray]]] = {}
+    runs: dict[int, tuple[float, float] | None] = {}  # each column's answer run, found when first needed
     for j in apart:
         for value, low, high in _outside_scale(X[:, j]):
-            if (j, value) not in named:
-                found.setdefault((value, low, high), []).append((j, X[:, j] == value))
+            if (j, value) in named:
+                continue
+            for k in range(X.shape[1]):
+                if k != j and k not in runs:
+                    runs[k] = _answer_run(X[:, k])
+            scale = [r for k, r in runs.items() if k != j and r is not None and (r[0] == low or r[1] == high)]
+            if not scale or min(r[0] for r in scale) <= value <= max(r[1] for r in scale):
+                continue  # no other item of its scale, or one that uses the value: not beyond the scale's range
+            found.setdefault((value, low, high), []).append((j, X[:, j] == value))
     out = []
     for (value, low, high), held in sorted(found.items(), key=lambda kv: -sum(int(c.sum()) for _, c in kv[1])):
         cells = np.column_stack([c for _, c in held])
@@ -247,15 +284,40 @@ def _outside_scales(X: np.ndarray, apart: np.ndarray, named: set, names: list[st
 
 
 def _outside_scale(x: np.ndarray) -> list[tuple[float, float, float]]:
-    """(value, the scale's lowest and highest answer) of each value of one column outside its answer scale: the
-    longest run of consecutive whole numbers among its values (at most MAX_SCALE_POINTS; the one with more answers
-    of two as long), holding all but at most FEW_SHARE of the answers; a value at least two steps beyond its end,
-    that end given in at least FEW_SHARE of the answers."""
+    """(value, the scale's lowest and highest answer) of each value of one column separated from its answer run by
+    a gap (:func:`_run_of`): a value at least two steps beyond the run's end, that end given in at least FEW_SHARE
+    of the answers.  Whether the value also lies beyond the range the other items of its scale use is
+    :func:`_outside_scales`' judgement."""
+    found = _run_of(x)
+    if found is None:
+        return []
+    x, values, counts, first, last = found
+    low, high = float(values[first]), float(values[last])
+    out = []
+    for k, value in enumerate(values):
+        end = first if value < low else last if value > high else None
+        if end is None or abs(value - values[end]) < 2 or counts[end] < max(2.0, FEW_SHARE * len(x)):
+            continue
+        out.append((float(value), low, high))
+    return out
+
+
+def _answer_run(x: np.ndarray) -> tuple[float, float] | None:
+    """The lowest and highest answer of a column's answer run (:func:`_run_of`), or None when it has none."""
+    found = _run_of(x)
+    return None if found is None else (float(found[1][found[3]]), float(found[1][found[4]]))
+
+
+def _run_of(x: np.ndarray):
+    """A column's answer run: the longest run of consecutive whole numbers among its values (at most
+    MAX_SCALE_POINTS; the one with more answers of two as long), holding all but at most FEW_SHARE of the answers
+    and at least MIN_OTHERS of them, as (answers, distinct values, their counts, the run's first and last
+    position among the values); None when there is none (a measure of many values, too few answers)."""
     x = x[np.isfinite(x)]
     few = max(1.0, FEW_SHARE * len(x))
     values, counts = np.unique(x, return_counts=True)
     if len(values) > MAX_SCALE_POINTS + few:  # a measure of many values (the common case of numbers apart)
-        return []
+        return None
     whole = values == np.round(values)
     best = None  # (length, answers, first, last) of the longest run
     start = 0
@@ -267,18 +329,24 @@ def _outside_scale(x: np.ndarray) -> list[tuple[float, float, float]]:
                     best = run
             start = k
     if best is None or not 2 <= best[0] <= MAX_SCALE_POINTS:
-        return []
+        return None
     _, inside, first, last = best
     if len(x) - inside > few or inside < MIN_OTHERS:
-        return []
-    low, high = float(values[first]), float(values[last])
-    out = []
-    for k, value in enumerate(values):
-        end = first if value < low else last if value > high else None
-        if end is None or abs(value - values[end]) < 2 or counts[end] < max(2.0, FEW_SHARE * len(x)):
+        return None
+    return x, values, counts, first, last
+
+
+def naming_cell(frame: pd.DataFrame, items, position: int) -> tuple[str, str] | None:
+    """The first column outside ``items`` whose cell at ``position`` (a place among ``frame``'s rows) is text that no
+    other row holds ('rider_id', 'Total'), or None: a row filter can leave that row out by it."""
+    for column in frame.columns:
+        if column in items:
             continue
-        out.append((float(value), low, high))
-    return out
+        value = frame[column].iloc[position]
+        if isinstance(value, str) and value.strip() and "'" not in value and '"' not in value \
+                and int((frame[column] == value).sum()) == 1:
+            return str(column), value.strip()
+    return None
 
 
 def code_like(value: float) -> bool:
@@ -369,11 +437,26 @@ def _summary_rows(X: np.ndarray, base: np.ndarray) -> dict[int, OddKind]:
         if not len(rows):
             return {}
     out: dict[int, OddKind] = {}
-    for r, summed in zip(rows, as_sum):
+    for r, summed, meaned in zip(rows, as_sum, as_mean):
         js = np.flatnonzero(np.isfinite(X[r]))
-        if any((np.delete(X[:, j], r) != X[r, j]).all() for j in js):
-            out[int(r)] = OddKind.SUMS_ROW if summed else OddKind.MEANS_ROW
+        if not any((np.delete(X[:, j], r) != X[r, j]).all() for j in js):
+            continue
+        if summed and not _beyond_the_others(X[r, js], np.delete(base[:, js], r, axis=0)):
+            summed = False  # sums inside the other answers' range: answers near zero, not a totals row
+            if not meaned:
+                continue
+        out[int(r)] = OddKind.SUMS_ROW if summed else OddKind.MEANS_ROW
     return out
+
+
+def _beyond_the_others(row: np.ndarray, others: np.ndarray) -> bool:
+    """Whether ``row`` lies beyond the range of the ``others``' answers (below the lowest or above the highest) in at
+    least half of its columns: a totals row of ten or more answers of one sign does, answers near zero of data
+    centred at zero (whose sums are near zero too, within SUM_TOLERANCE of a row of small answers) do not."""
+    answered = np.isfinite(others)
+    low = np.min(others, axis=0, initial=np.inf, where=answered)
+    high = np.max(others, axis=0, initial=-np.inf, where=answered)
+    return 2 * int(((row < low) | (row > high)).sum()) >= len(row)
 
 
 def _others(values: np.ndarray) -> tuple[float, float]:

@@ -17,7 +17,8 @@ from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_
 from cfa_tool.data.groups import split_moments
 from cfa_tool.data.kept_rows import RowNaming, named_by_index_label, row_naming, unfinished_rows_note
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
-from cfa_tool.data.matching import answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges
+from cfa_tool.data.matching import (answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges,
+                                    chosen_columns)
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.non_answers import beyond_scale, non_answer_caution
 from cfa_tool.data.descriptives import few_category_note
@@ -205,13 +206,15 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
                            text_columns: tuple[str, ...] = (), items=None,
                            names_row: int | None = None, names_option: Option = Option.NAMES_ROW,
                            first_data_row: int | None = None, name_the_file: bool = False, rename=None,
-                           rename_option: Option = Option.RENAME
+                           rename_option: Option = Option.RENAME, chosen: dict[str, str] | None = None
                            ) -> tuple[Spec, LoadedData, list[str]]:
     """The model and the data read for it, as every command that reads rows reads each of its files; no-answer
     words and labels are read as missing in ``items`` only (None: the model's items), never in a group, id or design
     column; ``names_option``: the option that gave ``names_row`` (replicate's validation file has its own);
     ``name_the_file``: the row filters' notes name the file (one of several files filtered alike); ``rename``:
-    columns read under new names (the option --rename, data.renamed_columns), before anything looks at the names."""
+    columns read under new names (the option --rename, data.renamed_columns), before anything looks at the names;
+    ``chosen``: the columns the run chooses for other roles (data.matching.chosen_columns), which may not share a
+    factor's name (a column that does and that the run does not read is named in a note)."""
     keep = keep_option(keep)
     spec = load_spec(model)
     halves = [k for k in keep if isinstance(k, RandomHalf)]
@@ -238,7 +241,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     unfinished = unfinished_rows_note(frame, loaded.source)
     if unfinished:
         notes.append(unfinished)
-    check_columns(spec, columns, loaded.source, loaded.column_hint())
+    notes += check_columns(spec, columns, loaded.source, loaded.column_hint(), chosen)
     frame, coding_notes = code_answer_words(spec, frame, loaded.source,  # 'answers' statements: words as codes
                                             missing_codes=missing_codes_option(missing_codes))
     notes += coding_notes
@@ -460,7 +463,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             moments, notes = _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor)
         else:
             moments, notes = read_summary_file(data)
-        check_columns(spec, list(moments.names), moments.source)
+        notes = list(notes) + list(check_columns(spec, list(moments.names), moments.source))
         if fit_options.missing_helpers:
             raise OptionError(f"summary statistics hold no rows, so missing-data helpers ({Option.MISSING_HELPERS}), "
                               f"which enter the likelihood of the rows with gaps, cannot apply; give the raw data")
@@ -479,7 +482,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     spec, loaded, notes = read_inputs_with_notes(spec, data, sheet, missing_codes, keep,
                                                  (id_column,) if isinstance(id_column, str) else (), names_row=names_row,
                                                  first_data_row=first_data_row, rename=rename,
-                                                 items=spec.observed_names + helpers if helpers else None)
+                                                 items=spec.observed_names + helpers if helpers else None,
+                                                 chosen=chosen_columns(group, id_column, design,
+                                                                       fit_options.missing_helpers))
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
     if id_column is not None:
@@ -615,12 +620,15 @@ def weighted_out_problems(loaded: LoadedData, group: str | None, design: DesignC
                     f"report says why."),)
 
 
-def odd_value_problems(loaded: LoadedData, group: str | None = None, design: DesignColumns | None = None) -> tuple:
+def odd_value_problems(loaded: LoadedData, group: str | None = None, design: DesignColumns | None = None,
+                       helpers: tuple[str, ...] = ()) -> tuple:
     """Values in the item columns that look like no answers (a missing-value code, a totals row), and those the
     file marks as no answer and that were read as missing (data.non_answers), as cautions that come first in
     every view (assessment.admissibility.Problem); with a ``group`` column, the groups the sampling ``design``'s
     weights leave out (:func:`weighted_out_problems`) and its labels that differ only in case
-    (:func:`group_case_problems`) first."""
+    (:func:`group_case_problems`) first.  ``helpers``: the missing-data helpers, whose cells read as missing are
+    named in the same caution as the items' (they enter the likelihood as items do; review s13: they were in the
+    methods text only)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     if group is not None or (design is not None and (design.cluster or design.strata)):
@@ -630,10 +638,10 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
                 + (group_case_problems(loaded.frame, group) if group is not None else ())
                 + tuple(p for part, unit, name in design_columns if name is not None
                         for p in group_case_problems(loaded.frame, name, part, unit))
-                + odd_value_problems(loaded))
+                + odd_value_problems(loaded, helpers=helpers))
 
     marked = non_answer_caution(loaded.non_answers, loaded.source,
-                                loaded.items.names if loaded.items is not None else None)
+                                tuple(loaded.items.names) + tuple(helpers) if loaded.items is not None else None)
     # a code already named as labelled beyond the scale of the same items is not named again as a missing-value code
     from cfa_tool.data.non_answers import BeyondScale
     from cfa_tool.data.odd_values import OddKind
@@ -681,14 +689,17 @@ def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answe
     """``frame`` as loaded data holding the values among the columns ``names`` that look like no answers, and
     those of ``non_answers`` (``LoadedData.non_answers``, read as missing) in them, for the commands that read
     their data without :func:`read_inputs_with_notes` (replicate, explore): their cautions
-    (:func:`odd_value_problems`) and :func:`odd_values_named` then work as for every other command."""
-    return LoadedData(frame, source, odd_values=odd_values(frame, tuple(names), row_numbers(frame)),
-                      non_answers=tuple(f for f in non_answers if f.column in set(names)), cautions=cautions)
+    (:func:`odd_value_problems`) and :func:`odd_values_named` then work as for every other command, and a totals
+    row among them is refused as every other command refuses it (:func:`refuse_totals_rows`)."""
+    return refuse_totals_rows(LoadedData(frame, source, odd_values=odd_values(frame, tuple(names), row_numbers(frame)),
+                                         non_answers=tuple(f for f in non_answers if f.column in set(names)),
+                                         cautions=cautions))
 
 
 def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | None = None,
                   design: DesignColumns | None = None, ids: dict | None = None, names: tuple[str, ...] | None = None,
-                  coverage: dict | None = None, n_obs: int | None = None, where: str = "") -> tuple:
+                  coverage: dict | None = None, n_obs: int | None = None, where: str = "",
+                  helpers: tuple[str, ...] = ()) -> tuple:
     """The cautions on the data that come first in every view, composed here once for every command (fit, check,
     compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: what the row filters did to
     the sample (pipeline.row_filter_cautions: a selection on a model item, a label several codes carry); rows that are copies of
@@ -699,7 +710,8 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     (:func:`odd_value_problems`); items answered by few rows (``coverage``: item -> share of the ``n_obs`` rows
     analysed answering it) and nearly constant items (:func:`few_answers_problems`) among ``names`` (the model's
     items by default).  The data are not refused: the user may know better.  ``where``: which of several files
-    filtered alike the row filters' cautions are about (replicate's ' on the calibration data (spring.csv)')."""
+    filtered alike the row filters' cautions are about (replicate's ' on the calibration data (spring.csv)');
+    ``helpers``: the missing-data helpers, whose values read as missing are named with the items' ones."""
     from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 
     names = names if names is not None else (spec.observed_names if spec is not None else ())
@@ -707,7 +719,7 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})
-    found += odd_value_problems(loaded, group, design) + few_answers_problems(names, coverage or {}, n_obs, loaded,
+    found += odd_value_problems(loaded, group, design, helpers) + few_answers_problems(names, coverage or {}, n_obs, loaded,
                                                                               group)
     return tuple(dict.fromkeys(found))  # each once
 
@@ -718,8 +730,9 @@ def with_odd_values(result, loaded: LoadedData, group: str | None = None, spec: 
     cautions about its data (:func:`data_problems`, the few answers judged by its own coverage) before its own,
     each once (scores of the fitted file, say)."""
     coverage = (getattr(result, "missing_data", None) or {}).get("coverage", {})
+    helpers = tuple(getattr(getattr(result, "method", None), "helpers", None) or ())  # read as the items are
     found = tuple(p for p in data_problems(loaded, spec, group, design, ids, tuple(getattr(result, "observed", ()) or ()),
-                                           coverage, getattr(result, "n_obs", None))
+                                           coverage, getattr(result, "n_obs", None), helpers=helpers)
                   if p not in result.problems)
     from cfa_tool.assessment.admissibility import solution_first
 
@@ -979,13 +992,31 @@ def _nearly_constant_problems(names: tuple[str, ...], loaded: LoadedData | None,
 
 def analysed_odd_values(loaded: LoadedData, spec: Spec, group: str | None) -> LoadedData:
     """``loaded`` with the values that look like no answers among the rows analysed: with groups, the rows with a
-    group label (a totals row without one is left out, and named in a note)."""
+    group label (a totals row without one is left out, and named in a note); a totals row among them is refused
+    (:func:`refuse_totals_rows`)."""
     if group is None or not isinstance(group, str) or group not in loaded.frame.columns or not loaded.odd_values:
-        return loaded
+        return refuse_totals_rows(loaded)
     analysed = _labelled(loaded.frame, group)
     if len(analysed) == len(loaded.frame):
+        return refuse_totals_rows(loaded)
+    return refuse_totals_rows(replace(loaded, odd_values=_screened_items(loaded, analysed, spec)))
+
+
+def refuse_totals_rows(loaded: LoadedData) -> LoadedData:
+    """``loaded``, unless a row it analyses holds the sums of the other rows' answers in every item column it
+    answers (data.odd_values: a spreadsheet's totals row): that is bad input, refused with a one-line data error
+    naming the file and the row and how to leave it out (exit 2; hostile trial s13: the fit stopped with exit 3,
+    "the model cannot be estimated", naming the row only as a likely cause).  Called where the rows analysed are
+    known, before any estimation: by :func:`analysed_odd_values` and on entering :func:`odd_values_named` (a means
+    row, which moves the estimates little, stays a caution)."""
+    from cfa_tool.data.odd_values import OddKind, naming_cell
+
+    odd = next((o for o in loaded.odd_values if o.kind is OddKind.SUMS_ROW), None)
+    if odd is None:
         return loaded
-    return replace(loaded, odd_values=_screened_items(loaded, analysed, spec))
+    at = np.flatnonzero(np.asarray(row_numbers(loaded.frame)) == odd.rows[0])
+    named = naming_cell(loaded.frame, odd.columns, int(at[0])) if len(at) else None
+    raise DataError(odd.totals_refusal(loaded.source, named))
 
 
 @contextmanager
@@ -993,7 +1024,9 @@ def odd_values_named(loaded: LoadedData):
     """An estimation that fails on data holding values that look like no answers says so first: they are the
     likelier cause than the iterations or the identification the failure's own advice names; a data error about a
     row that the reading found to look like a row of totals or means (a fractional answer of an ordinal item in it)
-    says that first, with the way to leave the row out."""
+    says that first, with the way to leave the row out.  A totals row among the rows is refused on entering
+    (:func:`refuse_totals_rows`)."""
+    refuse_totals_rows(loaded)
     try:
         yield
     except RowDataError as exc:  # a data row the reading already found to look like no one's answers: said first
@@ -1007,10 +1040,15 @@ def odd_values_named(loaded: LoadedData):
     except EstimationError as exc:
         if not loaded.odd_values:
             raise
-        first = loaded.odd_values[0]
+        from cfa_tool.data.odd_values import OddKind
+
+        # a row far beyond the others in several item columns (a spreadsheet's COUNT or totals row of other rows)
+        # is bad input, the likelier cause of the failure: a data error (exit 2), that row named first
+        row = next((o for o in loaded.odd_values if o.kind is OddKind.FAR_BEYOND and len(o.columns) > 1), None)
+        first = row or loaded.odd_values[0]
         more = f" (and {len(loaded.odd_values) - 1} more such findings)" if len(loaded.odd_values) > 1 else ""
-        raise EstimationError(f"{first.caution(loaded.source)}{more} What to try first: {first.advice()} "
-                              f"Then: {exc}") from None
+        raise (DataError if row is not None else EstimationError)(
+            f"{first.caution(loaded.source)}{more} What to try first: {first.advice()} Then: {exc}") from None
 
 
 def named_cases(result: FitResult, ids: dict) -> FitResult:
@@ -1776,7 +1814,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         check_counting_rule(spec, build_parameter_table(spec))
         return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0, {}, None,
                            analysed=moments.analysed)
-    spec, loaded, notes = read_inputs_with_notes(model, data, **read_options)
+    spec, loaded, notes = read_inputs_with_notes(model, data, **read_options,
+                                                 chosen=chosen_columns(group, design=design))
     frame, source = loaded.frame, loaded.source
     loaded = with_design_weights(analysed_odd_values(loaded, spec, group), design, spec, group)
     if design is not None:

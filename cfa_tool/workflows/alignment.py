@@ -614,6 +614,7 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
     ``flag_level``: level of the tests that flag non-invariant loadings and intercepts; ``trials``: Monte Carlo
     replications of the trustworthiness check (0 leaves it out), with ``seed``."""
     from cfa_tool.numerics.threads import blas_threads_for
+    from cfa_tool.data.matching import chosen_columns
     from cfa_tool.pipeline.inputs import (analysed_odd_values, continuous_only, odd_values_named, read_inputs_with_notes,
                                           with_odd_values)
 
@@ -624,7 +625,7 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
     trials = check.whole_number("the number of Monte Carlo trials", trials, 0, check.MAX_REPLICATIONS)
     seed = check.seed(seed)
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,
-                                                 rename=rename)
+                                                 rename=rename, chosen=chosen_columns(group))
     frame, source = loaded.frame, loaded.source
     notes = list(notes)
     spec = configural_spec(continuous_only(spec, "align"))

@@ -49,6 +49,7 @@ from cfa_tool.assessment.admissibility import counted_problems, replicated_probl
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, model_structure, moments_from_rows, replicate_fits
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary, refuse_lone_strata
 from cfa_tool.method import MissingData, WeightKind
+from cfa_tool.data.matching import chosen_columns
 from cfa_tool.pipeline.inputs import (_fit_rows, converged, design_test, moments_for, odd_values_named,
                                       ordinal_items_of, read_inputs_with_notes, refit_missing_handling, with_design,
                                       with_odd_values, without_exploratory_blocks)
@@ -557,13 +558,13 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     resamples draw whole clusters within strata.  Ordinal items (an 'ordinal' statement, or ``ordinal`` and
     ``ordinal_estimator`` as for ``fit``) are fitted by least squares, and each resample is refitted so."""
     replications, seed = bootstrap_options(replications, seed, workers)
+    design = design_columns(weights, cluster, strata, weight_kind)
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,
-                                                 rename=rename)
+                                                 rename=rename, chosen=chosen_columns(design=design))
     frame, source = loaded.frame, loaded.source
     one_group_only(spec, "the bootstrap resamples one group's rows")
     without_exploratory_blocks(spec, "bootstrap", "it resamples the parameters, and a block's rotated loadings are "
                                                   "not among them")
-    design = design_columns(weights, cluster, strata, weight_kind)
     if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:
         if missing is not None:  # the resamples are refitted from pairwise present rows, as the ordinal fit's default
             raise OptionError(f"the bootstrap of ordinal items keeps the rows with missing answers (each correlation "

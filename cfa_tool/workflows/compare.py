@@ -18,7 +18,7 @@ from cfa_tool.assessment.admissibility import solution_first
 from cfa_tool.data.answer_words import (code_answer_words, coding_json, refuse_different_codings,
                                         refuse_for_summary_statistics)
 from cfa_tool.data.labels import label_notes
-from cfa_tool.data.matching import check_columns
+from cfa_tool.data.matching import check_columns, chosen_columns
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary, design_weights
@@ -145,7 +145,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     refuse_different_codings(specs, names)
     _, loaded, notes = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep,
                                               items={x for spec in specs for x in spec.observed_names}, names_row=names_row, first_data_row=first_data_row,
-                                              rename=rename)
+                                              rename=rename, chosen=chosen_columns(group, design=design))
     used = sorted({x for spec in specs for x in spec.observed_names})
     if design is not None:  # the weights parsed once, as fit parses them, for the check and the groups weighted out
         loaded = replace(loaded, weights=design_weights(loaded.frame, design, tuple(used), group, loaded.source))
@@ -153,7 +153,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     at = np.arange(len(frame))  # each compared row's place among the rows read, where its parsed weight is
     coded = set(specs[0].observed_names)  # items of the later models only, each once: their answer words as codes
     for spec in specs[1:]:
-        check_columns(spec, list(frame.columns), source, loaded.sheet_hint())
+        named = check_columns(spec, list(frame.columns), source, loaded.sheet_hint(), chosen_columns(group, design=design))
+        notes = list(notes) + [n for n in named if n not in notes]
         frame, coding_notes = code_answer_words(spec, frame, source, tuple(x for x in spec.observed_names if x not in coded),
                                                 missing_codes=missing_codes_option(missing_codes))  # as fit reads them
         coded |= set(spec.observed_names)

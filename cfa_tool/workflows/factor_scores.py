@@ -682,9 +682,12 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     if not isinstance(standard_errors, bool):
         raise OptionError("standard_errors must be True or False")
     fit_options = api.make_options(options, SCORES_KEYWORDS)
+    design = design_columns(weights, cluster, strata, weight_kind)
     spec, loaded, notes = api.read_inputs_with_notes(model, data, sheet, missing_codes, keep,
                                                      (id_column,) if isinstance(id_column, str) else (),
-                                                     names_row=names_row, first_data_row=first_data_row, rename=rename)
+                                                     names_row=names_row, first_data_row=first_data_row, rename=rename,
+                                                     chosen=api.chosen_columns(group, id_column, design,
+                                                                               fit_options.missing_helpers))
     api.without_exploratory_blocks(spec, "scores", "its factors' scores would be those of the unrotated block")
     frame, source = loaded.frame, loaded.source
     read_frame = _rows_as_read(loaded)
@@ -696,7 +699,6 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     ordinal_items = api.ordinal_items_of(spec, ordinal)
     if ordinal_items:
         chosen = _ordinal_methods(methods, chosen, standard_errors, "")
-    design = design_columns(weights, cluster, strata, weight_kind)
     # the weights parsed once, as fit parses them: for the fit, the groups weighted out and the rows scored from
     loaded = api.with_design_weights(api.analysed_odd_values(loaded, spec, group), design, spec, group)
     with api.odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
@@ -922,7 +924,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     carried = tuple(c for c in result.data.missing_codes if c not in given)  # the earlier fit's, read so here too
     spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, given + carried, keep,
                                                      (id_column,) if isinstance(id_column, str) else (),
-                                                     names_row=names_row, first_data_row=first_data_row, rename=rename)
+                                                     names_row=names_row, first_data_row=first_data_row, rename=rename,
+                                                     chosen=api.chosen_columns(result.group_column, id_column))
     frame, source = loaded.frame, loaded.source
     read_frame = _rows_as_read(loaded)
     if not len(read_frame):

@@ -66,7 +66,8 @@ import pandas as pd
 from cfa_tool.data.halves import draw_halves
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.pipeline.inputs import (_described, data_problems, load_spec, make_options, odd_values_named,
-                                      read_inputs_with_notes, refit_missing_handling, with_row_filters)
+                                      read_inputs_with_notes, refit_missing_handling, refuse_totals_rows,
+                                      with_row_filters)
 from cfa_tool.assessment.admissibility import inadmissible_words
 from cfa_tool.data.answer_words import coding_json, coding_record
 from cfa_tool.data.matching import check_columns
@@ -575,6 +576,8 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                                              rename=validation_rename, rename_option=Option.VALIDATION_RENAME)[1:])
     (cal_frame, cal_source), (val_frame, val_source) = [(loaded.frame, loaded.source) for loaded in read]
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
+    for each in read:  # a totals row in either file is refused (the estimation failures name the first file's)
+        refuse_totals_rows(each)
     with odd_values_named(next((s for s in read if s.odd_values), read[0])):
         if ordinal_items:
             cal_moments = _ordinal_moments(spec, cal_frame, cal_source, ordinal_items, pairwise)

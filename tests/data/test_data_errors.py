@@ -78,10 +78,27 @@ def test_singular_covariance_names_the_columns():
 
 
 def test_factor_named_like_a_column():
+    # hostile trial s13: a column that shares a factor's name (a precomputed total) and that the run does not read is
+    # left unused, with a note; where the run would read it, the name means two things and is refused
     data = _frame()
-    data["f"] = 1.0
-    with pytest.raises(ModelError, match="'f' is declared as a factor but is also a column"):
-        cfa_tool.fit(MODEL, data)
+    data["f"] = data[["a", "b", "c"]].sum(axis=1)  # the factor's items summed, as a file may hold them
+    result = cfa_tool.fit(MODEL, data)
+    assert "the column 'f' in <data frame> is not used: the model's factor has the same name" in result.warnings
+    assert result.observed == ("a", "b", "c") and result.n_obs == len(data)
+    plain = cfa_tool.fit(MODEL, data.drop(columns="f"))  # the same fit without the column (the reference)
+    assert [e.estimate for e in result.estimates] == [e.estimate for e in plain.estimates]
+    data["g"] = np.arange(len(data)) % 2
+    for role, keywords in (("the group column", {"group": "f"}), ("the id column", {"id_column": "f"}),
+                           ("the weights column", {"weights": "f"}), ("a missing-data helper", {"missing_helpers": "f"})):
+        with pytest.raises(ModelError, match=f"'f' is declared as a factor but is also a column of <data frame>, "
+                                             f"chosen as {role}; give the factor another name"):
+            cfa_tool.fit(MODEL, data, **keywords)
+    with pytest.raises(ModelError, match="'f' is declared as a factor but is also a column of <data frame>, and the "
+                                         "model names it as an indicator of 'top'"):
+        cfa_tool.fit(MODEL + "factor h: a2, b2, c2\nfactor k: a3, b3, c3\nfactor top: f, h, k\n",
+                     data.assign(a2=data["a"], b2=data["b"], c2=data["c"], a3=data["a"], b3=data["b"], c3=data["c"]))
+    with pytest.raises(ModelError, match="chosen as the group column"):
+        cfa_tool.check(MODEL, data, group="f")
 
 
 def test_unknown_column_suggests_a_near_name():

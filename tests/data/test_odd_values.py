@@ -218,3 +218,61 @@ def test_measures_of_many_values_and_thinning_counts_are_not_judged_by_a_scale()
         alarms += [(seed, o.kind, o.columns) for o in odd_values(frame, list(frame.columns))
                    if o.kind is OddKind.OUTSIDE_SCALE]
     assert alarms == []
+
+
+def _skewed_ten(seed: int, n: int = 300, p: int = 5) -> pd.DataFrame:
+    """Seeded answers on 0 to 10 to ``p`` items of one factor, the first skewed: most answers low, no one choosing
+    9, a few (1%) choosing 10, as a reviewer's data had them (review s13)."""
+    rng = np.random.default_rng(seed)
+    factor = rng.standard_normal((n, 1))
+    items = np.clip(np.round(5 + 2.0 * factor + 1.5 * rng.standard_normal((n, p))), 0, 10)
+    skewed = np.clip(np.round(2 + 2.0 * np.abs(factor[:, 0] + rng.standard_normal(n))), 0, 8)
+    skewed[rng.choice(n, 3, replace=False)] = 10
+    items[:, 0] = skewed
+    return pd.DataFrame(items, columns=[f"t{k + 1}" for k in range(p)])
+
+
+def test_a_skewed_item_whose_second_highest_answer_no_one_chose_is_no_typing_error():
+    """Review s13: the outside-the-scale caution named a 10 of a skewed 0-to-10 item whose 9 no one chose; its other
+    items reach 10, so 10 is an answer of the scale (the rule: a gap in the item's own answers AND beyond the range
+    the other items of its scale use; common practice of data screening)."""
+    frame = _skewed_ten(1)
+    first = frame["t1"]
+    assert 9 not in set(first) and int((first == 10).sum()) == 3 and int((first == 8).sum()) >= 6  # pandas' counts
+    assert all(frame[c].max() == 10 for c in frame.columns[1:])  # the other items use the scale's top answer
+    assert [o for o in odd_values(frame, list(frame.columns)) if o.kind is OddKind.OUTSIDE_SCALE] == []
+    # a 1-to-7 item whose 6 no one chose, beside items that use 7
+    seven = _likert(9, 300, 4).assign(x1=lambda f: f["x1"]).astype(float)
+    seven.loc[seven.index[:40], ["x2", "x3", "x4"]] = 7.0  # the other items reach 7 (and 6, 5)
+    seven.loc[seven.index[40:60], ["x2", "x3", "x4"]] = 6.0
+    seven.loc[seven.index[[5, 99]], "x1"] = 7.0  # x1: 1 to 5, then 7
+    assert 6 not in set(seven["x1"])
+    assert [o for o in odd_values(seven, list(seven.columns)) if o.kind is OddKind.OUTSIDE_SCALE] == []
+
+
+def test_a_twelve_among_answers_one_to_five_is_still_named():
+    frame = _likert(10)
+    frame.loc[[8, 120], "x3"] = 12  # rows 9 and 121
+    found = [o for o in odd_values(frame, list(frame.columns)) if o.kind is OddKind.OUTSIDE_SCALE]
+    assert [(o.columns, o.values, o.rows) for o in found] == [(("x3",), (12.0,), (9, 121))]
+    # the same 12 in a skewed 0-to-10 item's data lies beyond its scale too
+    ten = _skewed_ten(2)
+    ten.loc[[4], "t3"] = 12  # row 5; t3's answers otherwise 0 to 10
+    found = [o for o in odd_values(ten, list(ten.columns)) if o.kind is OddKind.OUTSIDE_SCALE]
+    assert [(o.columns, o.values, o.rows) for o in found] == [(("t3",), (12.0,), (5,))]
+
+
+def test_small_answers_of_data_centred_at_zero_are_no_totals_row():
+    """Each column centred at zero (as researchers centre or standardise data) sums to zero, so a row of answers
+    within 0.25 of zero in every column lay within the sums rule's 0.5 of the other rows' sums and was named a
+    totals row (since s14 a totals row is refused): a totals row also lies beyond the other answers' range."""
+    rng = np.random.default_rng(11)
+    X = rng.standard_normal((500, 3))
+    frame = pd.DataFrame(X - X.mean(axis=0), columns=["z1", "z2", "z3"])  # numpy's centring
+    near = int((frame.abs() <= 0.25).all(axis=1).sum())  # rows within the tolerance of the sums (pandas' count)
+    assert near >= 1  # the seed gives such rows
+    assert [o for o in odd_values(frame, list(frame.columns)) if o.kind is OddKind.SUMS_ROW] == []
+    # a true totals row under the same data is still found
+    scaled = frame + 3.0  # answers around 3, all positive
+    totals = pd.concat([scaled, scaled.sum().to_frame().T], ignore_index=True)
+    assert [(o.kind, o.rows) for o in odd_values(totals, list(totals.columns))] == [(OddKind.SUMS_ROW, (501,))]

@@ -89,3 +89,24 @@ def test_words_of_no_answer_in_a_helper_are_said_in_the_methods_text(frame, tmp_
     result = cfa_tool.fit(MODEL, path, missing_helpers="age")
     assert [(f.column, f.value, len(f.rows)) for f in result.data.non_answers] == [("age", "don't know", 2)]
     assert "treated as missing ('don't know' in age)" in " ".join(methods_paragraph(result).split())
+
+
+def test_words_of_no_answer_in_a_helper_are_among_the_cautions(frame, tmp_path):  # noqa: F811
+    # review s13: a helper's "don't know" read as missing was in the methods text but not among the cautions that come
+    # first, where the items' are named (odd_value_problems named the model's items only); the same caution now names
+    # both, and the same rule reads them (data.non_answers)
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    out = frame[["y1", "y2", "y3", "y4", "age"]].astype(object)
+    out.loc[out.index[[2, 7]], "age"] = "don't know"
+    out.loc[out.index[[4]], "y2"] = "don't know"
+    path = tmp_path / "answers.csv"
+    out.to_csv(path, index=False)
+    result = cfa_tool.fit(MODEL, path, missing_helpers="age")
+    read = [p for p in result.problems if p.kind is ProblemKind.VALUES_READ_AS_MISSING]
+    assert len(read) == 1  # one caution, the items' and the helper's cells together
+    said = " ".join(read[0].explanation.split())
+    assert "3 cells" in said and "'don't know' (3 cells: y2 1, age 2)" in said  # counted by construction above
+    # without the helper, its column is no part of the analysis: its words are read as no one's answers, unnamed
+    plain = cfa_tool.fit(MODEL, path.with_name("answers.csv"), missing_helpers=None)
+    assert all("age" not in p.explanation for p in plain.problems)
