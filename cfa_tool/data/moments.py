@@ -385,9 +385,10 @@ def _check_combinations(corr: np.ndarray, names: tuple[str, ...], source: str, a
 
 
 def file_rows_index(numbers) -> pd.Index:
-    """The index a reader gives the rows it read: each row's number in the file (a sheet's row, a text file's line
-    on which the row starts, an SPSS or Stata case) less one, so that :func:`row_numbers` (index + 1, as for a data
-    frame's own 0-based rows) names every row as the file shows it, blank rows and header rows counted."""
+    """The index a reader gives the rows it read: each row's number in the file as a spreadsheet shows it (a sheet's
+    row, a text file's record: one row per record however many text lines its quoted cells span, data.readers.
+    TextRows; an SPSS or Stata case) less one, so that :func:`row_numbers` (index + 1, as for a data frame's own
+    0-based rows) names every row as the file shows it, blank rows and header rows counted."""
     return pd.Index(np.asarray(numbers, dtype=np.int64) - 1)
 
 
