@@ -93,6 +93,12 @@ def row_words(number: int, lines: Mapping[int, int] | None = None, naming: RowNa
     return naming.one_row(number) + line_words(number, lines)
 
 
+def row_of(frame: pd.DataFrame | pd.Series, number: int) -> str:
+    """One row of ``frame`` by its number (data.moments.row_numbers) in the words of its naming, with its text line
+    when it starts on a line of another number: 'row 12', 'row 501 (text line 575)', 'index label 11'."""
+    return row_words(number, text_lines(frame), row_naming(frame))
+
+
 def rows_listed(numbers, shown: int = 5, ids=(), naming: RowNaming = RowNaming.FILE_ROW,
                 lines: Mapping[int, int] | None = None) -> str:
     """Rows named by their numbers (data.moments.row_numbers), the first ``shown`` of them, each with its id when
@@ -112,7 +118,7 @@ def cell_words(frame: pd.DataFrame | pd.Series, column: str, row: int) -> str:
     data.moments.row_numbers gives it, the sheet's own), 'row 425' otherwise ('row 501 (text line 575)' in a text file
     whose quoted cells hold line breaks), 'index label 424' in a data frame."""
     letter = frame.attrs.get(SHEET_COLUMNS, {}).get(column)
-    return row_words(row, text_lines(frame), row_naming(frame)) + (f", cell {letter}{row}" if letter else "")
+    return row_of(frame, row) + (f", cell {letter}{row}" if letter else "")
 
 
 def rows_described(frame: pd.DataFrame) -> str:

@@ -165,3 +165,23 @@ def test_header_rows_and_the_first_row_of_data_count_records(rider_demo, rider_m
     with pytest.raises(DataError, match=r"row 3 \(text line 4\) under the column names looks like a further header "
                                         r"row .* skip it with first_data_row=4"):  # row 3 read: the ids' row
         cfa_tool.fit(rider_model, str(path), first_data_row=3)
+
+
+def test_a_row_that_answers_nothing_is_named_by_its_row_and_line(rider_demo, rider_model, tmp_path):
+    """fit's note and check's summary on a row left out for answering no model variable name both numbers."""
+    path = tmp_path / "export.csv"
+    empty = 301
+    data = rider_demo.copy()
+    data.loc[empty, ITEMS] = np.nan
+    data["comment"] = ["" if k % 7 else f"bus late again\nroute {k}\n\nplease fix" for k in range(len(data))]
+    data.to_csv(path, index=False)  # pandas' writer quotes the comments with their line breaks
+    text = path.read_text(encoding="utf-8")
+    sheet = _spreadsheet_rows(path)
+    row = int(np.flatnonzero(sheet[ITEMS].isna().all(axis=1).to_numpy())[0]) + 2
+    line = _text_line(text, data["rider_id"][empty])
+    assert row == empty + 2 and line > row
+    fitted = cfa_tool.fit(rider_model, str(path))
+    assert [w for w in fitted.warnings if w.endswith(f"answered none of the model variables and was left out (row "
+                                                     f"{row} (text line {line}))")]
+    assert f"1 with no answer to any model variable (row {row} (text line {line}))." in \
+        " ".join(cfa_tool.check(rider_model, str(path)).summary().split())
