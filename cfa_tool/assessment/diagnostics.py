@@ -31,7 +31,7 @@ from cfa_tool.numerics.plain import clean
 
 @dataclass(frozen=True)
 class CaseDiagnostic:
-    row: int  # the row's number in the file (a sheet's row, a text file's line: data.moments.row_numbers)
+    row: int  # the row's number in the file as a spreadsheet shows it (data.moments.row_numbers)
     mahalanobis: float
     p_value: float
     chi_square_share: float

@@ -232,7 +232,7 @@ def add_halves_file(parser, asked: str) -> None:
     """The option that saves which rows went to which random half (``asked``: what makes the halves)."""
     parser.add_argument(HALVES_FILE, metavar="FILE.csv",
                         help=f"with {asked}: write which rows went to which half, a CSV of the rows' numbers (as the "
-                             f"file numbers them: a sheet's rows, a text file's lines) and the half; an existing file is "
+                             f"file numbers them, as a spreadsheet shows it) and the half; an existing file is "
                              f"never replaced")
 
 

@@ -34,13 +34,13 @@ def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
     """--sheet, --missing-codes and (``filters``) --keep."""
     p.add_argument("--sheet", metavar="NAME", help="sheet of an Excel workbook (default: the first)")
     p.add_argument("--names-row", metavar="N", type=row_number, default=None,
-                   help="the row of a sheet (or line of a text file) that holds the column names, when rows above it "
-                        "hold other headings such as question texts; those rows are not read (default: the first row "
-                        "with values)")
+                   help="the row (of a sheet, or of a text file as a spreadsheet shows it) that holds the column "
+                        "names, when rows above it hold other headings such as question texts; those rows are not "
+                        "read (default: the first row with values)")
     p.add_argument("--first-data-row", metavar="N", type=first_row_of_data, default=None,
-                   help="the row of a sheet (or line of a text file) where the answers start, when rows between it and "
-                        "the column names hold other headings such as question texts; those rows are not read "
-                        "(default: the row under the column names)")
+                   help="the row (of a sheet, or of a text file as a spreadsheet shows it) where the answers start, "
+                        "when rows between it and the column names hold other headings such as question texts; those "
+                        "rows are not read (default: the row under the column names)")
     p.add_argument("--missing-codes", metavar="LIST", type=_codes, default=(),
                    help="comma-separated values that mean 'no answer', e.g. -99,999")
     p.add_argument("--rename", metavar="OLD=NEW", action="append", default=[],

@@ -19,10 +19,10 @@ def add_parser(sub) -> None:
     add_halves_file(rep, "--data")
     O.add_data_options(rep)
     rep.add_argument("--validation-names-row", metavar="N", type=O.row_number, default=None,
-                     help="the row (or line) of the --validation file that holds its column names; --names-row gives "
+                     help="the row of the --validation file that holds its column names; --names-row gives "
                           "that of the --calibration file (or of --data), so each file is read as it is laid out")
     rep.add_argument("--validation-first-data-row", metavar="N", type=O.first_row_of_data, default=None,
-                     help="the row (or line) of the --validation file where its answers start; --first-data-row gives "
+                     help="the row of the --validation file where its answers start; --first-data-row gives "
                           "that of the --calibration file (or of --data)")
     rep.add_argument("--validation-rename", metavar="OLD=NEW", action="append", default=[],
                      help="read a column of the --validation file under another name, as --rename does for the "

@@ -13,7 +13,7 @@ import pandas as pd
 
 from dataclasses import replace
 
-from cfa_tool.data.kept_rows import row_naming
+from cfa_tool.data.kept_rows import row_naming, row_words, text_lines
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.missing_codes import missing_codes_note
 from cfa_tool.data.non_answers import says_no_answer
@@ -142,8 +142,10 @@ def _check_codes_of_answers(coding: AnswerCoding, no_answer: set[float]) -> None
 
 
 def _first_row(column: pd.Series, value: object, rows: np.ndarray) -> str:
-    """The first row holding ``value``, named as ``column``'s rows are (data.kept_rows.RowNaming): 'row 12'."""
-    return row_naming(column).one_row(int(rows[int(np.flatnonzero(column.to_numpy(dtype=object) == value)[0])]))
+    """The first row holding ``value``, named as ``column``'s rows are (data.kept_rows.RowNaming): 'row 12', 'row 501
+    (text line 575)'."""
+    row = int(rows[int(np.flatnonzero(column.to_numpy(dtype=object) == value)[0])])
+    return row_words(row, text_lines(column), row_naming(column))
 
 
 def _cell_error(source: str, item: str, column: pd.Series, value: object, wrong: str, coding: AnswerCoding,

@@ -4,6 +4,7 @@ use for them."""
 from __future__ import annotations
 
 import enum
+from collections.abc import Mapping
 
 import pandas as pd
 
@@ -17,6 +18,11 @@ KEPT_BY = "kept_by_row_filters"
 #: ({column name: 'E'}), set by data.readers: a message about a cell names it as the sheet does ('cell E425')
 SHEET_COLUMNS = "sheet_columns"
 
+#: the key of DataFrame.attrs that keeps, for a delimited text file whose records span text lines (line breaks
+#: inside quoted cells), the text line of each row whose number differs from it ({row: line}), set by data.readers:
+#: rows are numbered as a spreadsheet shows the file (one per record), and a message names the line beside them
+TEXT_LINES = "text_lines"
+
 
 #: the key of DataFrame.attrs that says how the frame's rows are named (a :class:`RowNaming`; a file's rows when
 #: absent), set by :func:`named_by_index_label`
@@ -24,15 +30,15 @@ ROW_NAMING = "row_naming"
 
 
 #: the key beside a row's number in JSON (the case rows' "row") that says what the number is: a
-#: ``RowNaming.json_word``, 'file_row' (the row of the file: a sheet's row, a text file's line) or 'index_label' (the
+#: ``RowNaming.json_word``, 'file_row' (the row of the file as a spreadsheet shows it) or 'index_label' (the
 #: label of a data frame's index)
 ROW_NAMED_BY = "row_named_by"
 
 
 class RowNaming(enum.Enum):
-    """How messages and reports name a row of the data, declared once: a file's row by its number in the file (a
-    sheet's row, a text file's line), a data frame's row by its index label (the label pandas shows and the scores
-    table keeps), never by a count of our own."""
+    """How messages and reports name a row of the data, declared once: a file's row by its number in the file as a
+    spreadsheet shows it (a sheet's row, a text file's record), a data frame's row by its index label (the label
+    pandas shows and the scores table keeps), never by a count of our own."""
 
     FILE_ROW = ("row", "rows", "Row", "file_row")
     INDEX_LABEL = ("index label", "index labels", "Index label", "index_label")
@@ -69,13 +75,39 @@ def named_by_index_label(frame: pd.DataFrame) -> pd.DataFrame:
     return frame
 
 
-def rows_listed(numbers, shown: int = 5, ids=(), naming: RowNaming = RowNaming.FILE_ROW) -> str:
+def text_lines(frame: pd.DataFrame | pd.Series) -> Mapping[int, int]:
+    """The text lines of ``frame``'s rows that start on a line of another number (:data:`TEXT_LINES`; empty for
+    a sheet, a data frame or a text file without line breaks inside quotes)."""
+    return frame.attrs.get(TEXT_LINES) or {}
+
+
+def line_words(number: int, lines: Mapping[int, int] | None) -> str:
+    """' (text line 575)' beside row 501 of a text file whose row 501 starts on line 575; '' otherwise."""
+    line = (lines or {}).get(number)
+    return f" (text line {line})" if line is not None and line != number else ""
+
+
+def row_words(number: int, lines: Mapping[int, int] | None = None, naming: RowNaming = RowNaming.FILE_ROW) -> str:
+    """One row by its number, with its text line when it starts on a line of another number (``lines``:
+    :func:`text_lines`): 'row 501 (text line 575)', 'row 12', 'index label 11'."""
+    return naming.one_row(number) + line_words(number, lines)
+
+
+def row_of(frame: pd.DataFrame | pd.Series, number: int) -> str:
+    """One row of ``frame`` by its number (data.moments.row_numbers) in the words of its naming, with its text line
+    when it starts on a line of another number: 'row 12', 'row 501 (text line 575)', 'index label 11'."""
+    return row_words(number, text_lines(frame), row_naming(frame))
+
+
+def rows_listed(numbers, shown: int = 5, ids=(), naming: RowNaming = RowNaming.FILE_ROW,
+                lines: Mapping[int, int] | None = None) -> str:
     """Rows named by their numbers (data.moments.row_numbers), the first ``shown`` of them, each with its id when
-    ``ids`` gives one (one per row, None where a row has none), in the words of ``naming``: 'row 711 ('Total
-    responses: 1204')', 'rows 152, 154, 424, 709, 710 and 3 more', 'index labels 151, 153'."""
+    ``ids`` gives one (one per row, None where a row has none) and its text line when it starts on a line of another
+    number (``lines``: :func:`text_lines`), in the words of ``naming``: 'row 711 ('Total responses: 1204')', 'rows
+    152, 154, 424, 709, 710 and 3 more', 'row 501 (text line 575)', 'index labels 151, 153'."""
     numbers = [int(n) for n in numbers]
     ids = list(ids) if len(ids) == len(numbers) else [None] * len(numbers)
-    listed = ", ".join(str(n) + (f" ('{printable(str(i))[:40]}')" if i is not None else "")
+    listed = ", ".join(str(n) + line_words(n, lines) + (f" ('{printable(str(i))[:40]}')" if i is not None else "")
                        for n, i in zip(numbers[:shown], ids))
     more = f" and {len(numbers) - shown} more" if len(numbers) > shown else ""
     return f"{naming.of(len(numbers))} {listed}{more}"
@@ -83,9 +115,10 @@ def rows_listed(numbers, shown: int = 5, ids=(), naming: RowNaming = RowNaming.F
 
 def cell_words(frame: pd.DataFrame | pd.Series, column: str, row: int) -> str:
     """Where a cell is, for a message: 'row 425, cell E425' for a sheet's table (``row``: the number of the row as
-    data.moments.row_numbers gives it, the sheet's own), 'row 425' otherwise, 'index label 424' in a data frame."""
+    data.moments.row_numbers gives it, the sheet's own), 'row 425' otherwise ('row 501 (text line 575)' in a text file
+    whose quoted cells hold line breaks), 'index label 424' in a data frame."""
     letter = frame.attrs.get(SHEET_COLUMNS, {}).get(column)
-    return row_naming(frame).one_row(row) + (f", cell {letter}{row}" if letter else "")
+    return row_of(frame, row) + (f", cell {letter}{row}" if letter else "")
 
 
 def rows_described(frame: pd.DataFrame) -> str:

@@ -7,13 +7,14 @@ normal-theory ML fitting (Bollen 1989, ch. 4).
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass, field
+from collections.abc import Mapping
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 import pandas as pd
 
 from cfa_tool.data.answer_scales import MOST_WORDS_SHOWN, distinct_words, stray_text, suggested_statement
-from cfa_tool.data.kept_rows import ROW_NAMING, RowNaming, cell_words, row_naming
+from cfa_tool.data.kept_rows import ROW_NAMING, RowNaming, cell_words, row_naming, text_lines
 from cfa_tool.errors import DataError, EstimationError, printable
 from cfa_tool.options import Option
 from cfa_tool.method import MissingData
@@ -44,6 +45,8 @@ class SampleMoments:
     unanswered_ids: tuple = field(default=(), repr=False, compare=False)
     #: how the row numbers above name rows (data.kept_rows.RowNaming: a file's rows, a data frame's index labels)
     row_naming: RowNaming = field(default=RowNaming.FILE_ROW, repr=False, compare=False)
+    #: the text lines of a text file's rows that start on a line of another number (data.kept_rows.text_lines)
+    text_lines: Mapping[int, int] = field(default_factory=dict, repr=False, compare=False)
 
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
@@ -385,9 +388,10 @@ def _check_combinations(corr: np.ndarray, names: tuple[str, ...], source: str, a
 
 
 def file_rows_index(numbers) -> pd.Index:
-    """The index a reader gives the rows it read: each row's number in the file (a sheet's row, a text file's line
-    on which the row starts, an SPSS or Stata case) less one, so that :func:`row_numbers` (index + 1, as for a data
-    frame's own 0-based rows) names every row as the file shows it, blank rows and header rows counted."""
+    """The index a reader gives the rows it read: each row's number in the file as a spreadsheet shows it (a sheet's
+    row, a text file's record: one row per record however many text lines its quoted cells span, data.readers.
+    TextRows; an SPSS or Stata case) less one, so that :func:`row_numbers` (index + 1, as for a data frame's own
+    0-based rows) names every row as the file shows it, blank rows and header rows counted."""
     return pd.Index(np.asarray(numbers, dtype=np.int64) - 1)
 
 
@@ -421,8 +425,9 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     w = pd.to_numeric(frame[weights]).to_numpy(dtype=float) if weights is not None else None
     p = values.shape[1]
     if missing == MissingData.FULL_INFORMATION:  # the member or its word
-        return _incomplete_moments(values, names, source, file_source, group, len(frame), w, row_numbers(frame),
-                                   row_naming(frame))
+        found = _incomplete_moments(values, names, source, file_source, group, len(frame), w, row_numbers(frame),
+                                    row_naming(frame))
+        return replace(found, text_lines=text_lines(frame)) if text_lines(frame) else found
     complete = None if finite else ~np.isnan(values).any(axis=1)  # checked finite: every row is complete
     every_row = complete is None or bool(complete.all())
     data = values if every_row else values[complete]
@@ -446,7 +451,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     _check_moments(cov, means, names, source)
     numbers = row_numbers(frame) if every_row else row_numbers(frame)[complete]
     return SampleMoments(tuple(names), cov, means, n, len(frame), len(frame) - n, file_source, group, data, numbers,
-                         row_naming=row_naming(frame))
+                         row_naming=row_naming(frame), text_lines=text_lines(frame))
 
 
 def moments_with_gaps(values: np.ndarray, names: tuple[str, ...], source: str,

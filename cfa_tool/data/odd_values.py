@@ -45,7 +45,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.descriptives import answer_extremes
-from cfa_tool.data.kept_rows import RowNaming, row_naming
+from cfa_tool.data.kept_rows import RowNaming, row_naming, row_words, rows_listed, text_lines
 from cfa_tool.data.moments import item_values
 from cfa_tool.errors import printable
 from cfa_tool.input_files import base_name
@@ -86,6 +86,9 @@ class OddValues:
     answers: int
     others: tuple[float, float]  # lowest and highest of the other answers (over the columns named)
     naming: RowNaming = RowNaming.FILE_ROW  # how ``rows`` name the rows (data.kept_rows.RowNaming)
+    #: (row, text line) of those ``rows`` of a text file that start on a line of another number (quoted line breaks
+    #: above them: data.kept_rows.text_lines), which the caution names beside the row
+    lines: tuple[tuple[int, int], ...] = ()
     #: what the columns are in the analysis, as the caution names them: the model's items, or the missing-data
     #: helpers, which enter the likelihood as items do and are screened alike (pipeline.inputs.with_helper_codes)
     role: str = "item"
@@ -100,8 +103,7 @@ class OddValues:
             where = (f"The {self.role} column {printable(self.columns[0])} of {name} holds" if len(self.columns) == 1
                      else f"{len(self.columns)} {self.role} columns of {name} ({_listed(self.columns)}) hold")
             return (f"{where} the value "
-                    f"{value} ({self.answers} answers in {len(self.rows)} {rows}: {self.naming.of(len(self.rows))} "
-                    f"{_listed(self.rows)}), "
+                    f"{value} ({self.answers} answers in {len(self.rows)} {rows}: {self._rows_named()}), "
                     f"far outside the other answers ({_number(low)} to {_number(high)}): a missing-value code read "
                     f"as an answer?")
         if self.kind is OddKind.OUTSIDE_SCALE:
@@ -109,7 +111,7 @@ class OddValues:
             where = (f"The item column {printable(self.columns[0])} of {name} holds" if len(self.columns) == 1 else
                      f"{len(self.columns)} item columns of {name} ({_listed(self.columns)}) hold")
             return (f"{where} the value {value} ({self.answers} answer{'s' if self.answers != 1 else ''} in "
-                    f"{self.naming.of(len(self.rows))} {_listed(self.rows)}), outside the answer "
+                    f"{self._rows_named()}), outside the answer "
                     f"scale of the other answers ({_number(low)} to {_number(high)}), analysed as an answer: a typing "
                     f"error?")
         guess = ("a totals or means row, or a typing error?" if self.kind is OddKind.FAR_BEYOND
@@ -125,7 +127,7 @@ class OddValues:
         what = {OddKind.FAR_BEYOND: f"values far beyond every other row's answers ({_number(low)} to {_number(high)})",
                 OddKind.SUMS_ROW: "the sums of the other rows' answers",
                 OddKind.MEANS_ROW: "the means of the other rows' answers"}[self.kind]
-        row = self.naming.one_row(self.rows[0])
+        row = self._first_row()
         return (f"{row[0].upper()}{row[1:]} of {name} holds {what} in {len(self.columns)} item "
                 f"column{'s' if len(self.columns) != 1 else ''} ({shown}{more})")
 
@@ -155,11 +157,11 @@ class OddValues:
                     f"({self.answers} answer{'s' if self.answers != 1 else ''}), outside the answer scale of the other "
                     f"answers ({_number(low)} to {_number(high)}): perhaps a typing error")
         if self.kind is OddKind.FAR_BEYOND:
-            return (f"{self.naming.one_row(self.rows[0])}, with values far beyond every other row's answers ({_number(low)} to "
+            return (f"{self._first_row()}, with values far beyond every other row's answers ({_number(low)} to "
                     f"{_number(high)}) in {len(self.columns)} item column{'s' if len(self.columns) != 1 else ''}: "
                     f"perhaps a totals row or a typing error")
         which = "sums" if self.kind is OddKind.SUMS_ROW else "means"
-        return (f"{self.naming.one_row(self.rows[0])}, whose values equal the {which} of the other rows' answers in every item "
+        return (f"{self._first_row()}, whose values equal the {which} of the other rows' answers in every item "
                 f"column it answers ({len(self.columns)}): perhaps a {'totals' if which == 'sums' else 'means'} row")
 
     def advice(self) -> str:
@@ -173,8 +175,15 @@ class OddValues:
                     f"{_number(self.values[0])} means 'no answer', give "
                     f"{Option.MISSING_CODES.given(_number(self.values[0]))}.")
         holder = "data frame" if self.naming is RowNaming.INDEX_LABEL else "file"
-        return (f"Delete {self.naming.one_row(self.rows[0])} from the {holder} (or leave it out with a row filter, "
+        return (f"Delete {self._first_row()} from the {holder} (or leave it out with a row filter, "
                 f"{Option.KEEP}) if it holds no one's answers; otherwise check those answers.")
+
+    def _rows_named(self) -> str:
+        """'rows 302, 355 and 2 more', each row with its text line where it differs ('row 302 (text line 340)')."""
+        return rows_listed(self.rows, SHOWN, naming=self.naming, lines=dict(self.lines))
+
+    def _first_row(self) -> str:
+        return row_words(self.rows[0], dict(self.lines), self.naming)
 
     def to_dict(self) -> dict:
         return {"kind": self.kind.value, "columns": list(self.columns), "values": list(self.values),
@@ -188,6 +197,9 @@ def odd_values(frame: pd.DataFrame, columns: tuple[str, ...] | list[str],
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # values near the float limit judge as inf
         found = _odd_values(frame, columns, row_numbers, values)
     naming = row_naming(frame)
+    lines = text_lines(frame)
+    if lines:  # a text file whose quoted cells hold line breaks: the rows' text lines named beside them
+        found = tuple(replace(o, lines=tuple((r, lines[r]) for r in o.rows if r in lines)) for o in found)
     return found if naming is RowNaming.FILE_ROW else tuple(replace(o, naming=naming) for o in found)
 
 

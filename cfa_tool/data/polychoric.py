@@ -38,7 +38,7 @@ from cfa_tool.numerics import distributions as dist
 
 from cfa_tool.data.answer_words import CODED_BY_STATEMENT, answers_statement
 from cfa_tool.data.descriptives import rare_answer_limit
-from cfa_tool.data.kept_rows import row_naming
+from cfa_tool.data.kept_rows import row_of
 from cfa_tool.data.moments import numeric_columns, row_numbers
 from cfa_tool.data.odd_values import code_like
 from cfa_tool.data.sample_design import DesignColumns, RowDesign, row_design
@@ -496,7 +496,7 @@ def check_whole_answers(values: np.ndarray, frame: pd.DataFrame, names: tuple[st
     more = f" (and {others} other fractional {'answer' if others == 1 else 'answers'})" if others else ""
     number = int(row_numbers(frame)[row])
     raise RowDataError(f"{source}{where}: ordinal item '{printable(names[j])}' has the answer {values[row, j]:g} in "
-                       f"{row_naming(frame).one_row(number)}{more}; the answers of an ordinal item are category codes (whole numbers): "
+                       f"{row_of(frame, number)}{more}; the answers of an ordinal item are category codes (whole numbers): "
                        f"correct the value, or analyse the item as continuous", number)
 
 

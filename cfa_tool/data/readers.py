@@ -23,7 +23,8 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.kept_rows import SHEET_COLUMNS, row_naming, rows_listed
+from cfa_tool.data.kept_rows import (SHEET_COLUMNS, TEXT_LINES, line_words, row_naming, row_words, rows_listed,
+                                     text_lines)
 from cfa_tool.data.missing_codes import apply_missing_codes
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, says_no_answer, written_non_answers
@@ -112,12 +113,12 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     named 'N/A' stays a group).  None (no model yet): every column but ``text_columns``.  ``listed``: each item's
     words that the model's 'answers' statements code, answers whatever they say.  ``filters``: the row filters the
     caller applies next (data.filters.RowFilter), which the notes do not suggest again.  ``names_row``: the row (of a
-    sheet) or line (of a text file) that holds the column names, the rows above it not read (a survey platform's
+    sheet, or of a text file as a spreadsheet shows it: one per record) that holds the column names, the rows above it not read (a survey platform's
     question texts above the item codes), given by ``names_option`` (the option every message about the row of names
-    names: replicate's validation file has its own).  ``first_data_row``: the row (or line) where the rows of data
+    names: replicate's validation file has its own).  ``first_data_row``: the row where the rows of data
     start, the rows between it and the column names not read (question texts under the item codes), given by
-    :func:`first_data_option` of ``names_option``.  The frame's index numbers its rows as the file does (a sheet's rows, a
-    text file's lines: data.moments.file_rows_index); rows with no value in any column are left out with a note.
+    :func:`first_data_option` of ``names_option``.  The frame's index numbers its rows as a spreadsheet shows the file (a
+    sheet's rows, a text file's records: data.moments.file_rows_index); rows with no value in any column are left out with a note.
     ``renames`` (data.renamed_columns, given by ``renames_option``): columns read under new names, renamed as soon as
     the names are read; ``items``, ``text_columns`` and ``listed`` name the columns by their new names."""
     path = Path(path)
@@ -169,11 +170,10 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     if suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _numbers_from_text(loaded, text_columns)
     loaded = with_no_answers_read(loaded, missing_codes, path, text_columns, items, listed, filters)
-    if names_row is not None:
-        word = "row" if suffix in EXCEL_SUFFIXES else "line"
-        loaded = replace(loaded, names_row_hint=f"; its column names were read from {word} {names_row}, as "
-                                                f"{names_option.given(names_row)} asks: give the {word} that holds the "
-                                                f"model's names, or leave the option out if the first {word} does")
+    if names_row is not None:  # (a row of a sheet, or of a text file as a spreadsheet shows it)
+        loaded = replace(loaded, names_row_hint=f"; its column names were read from row {names_row}, as "
+                                                f"{names_option.given(names_row)} asks: give the row that holds the "
+                                                f"model's names, or leave the option out if the first row does")
     return loaded
 
 
@@ -377,10 +377,10 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     if first is None:
         raise DataError(f"{where} is empty")
     if names_row is not None:
-        first = _names_row_start(names_row, len(rows), first, where, "row", names_option)
+        first = _names_row_start(names_row, len(rows), first, where, names_option)
         if not any(v not in (None, "") for v in rows[first]):
             raise DataError(f"{where}: row {names_row}, named by {names_option}, is empty")
-        notes.append(_names_row_note(where, names_row, "row", names_option))
+        notes.append(_names_row_note(where, names_row, names_option))
     rows = rows[first:]  # empty rows above the header
     title = None if names_row is not None else _title_above_header(rows)
     if title is not None:
@@ -391,7 +391,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     data_start = first + 2  # the sheet's row of the first row of data
     between: list[tuple[int, tuple]] = []  # the rows a first row of data leaves unread, with their sheet rows
     if first_data_row is not None:
-        data_start = _first_data_start(first_data_row, first + 1, len(rows) + first, where, "row", names_option, notes)
+        data_start = _first_data_start(first_data_row, first + 1, len(rows) + first, where, names_option, notes)
         between = list(enumerate(rows[1:data_start - first - 1], start=first + 2))
         rows = rows[:1] + rows[data_start - first - 1:]
     merged = [str(rng) for rng in ws.merged_cells.ranges if rng.min_row == first + 1]
@@ -447,7 +447,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     _check_header_rows(frame, where, False, items=items, header_row=first + 1, names_option=names_option,
                        listed=listed)
     unread = _skipped_answers(frame, [(k, list(r[skipped:skipped + width])) for k, r in between], items, (), False,
-                              where, "row", data_start, first_data_option(names_option)) if between else None
+                              where, data_start, first_data_option(names_option)) if between else None
     if unread is not None and hidden_out is not None:
         hidden_out.append(unread)
     if row_names:
@@ -565,11 +565,10 @@ SHOWN_ROWS = 5  # rows a caution lists before 'and N more'
 class SkippedAnswers:
     """Rows that a first row of data (--first-data-row) left unread though they look like the rows of answers below
     them (a mistyped row number): named first, since they change what is analysed.  ``rows``: their rows (of a
-    sheet) or lines (of a text file); ``start``: the row where the answers seem to start (the first of them, when
-    every row from it to ``first_data_row`` looks so), else None."""
+    sheet, or of a text file as a spreadsheet shows it); ``start``: the row where the answers seem to start (the
+    first of them, when every row from it to ``first_data_row`` looks so), else None."""
 
     where: str  # the file (and sheet) as messages name it
-    word: str  # 'row' (a sheet) or 'line' (a text file)
     rows: tuple[int, ...]
     first_data_row: int
     option: Option
@@ -578,9 +577,9 @@ class SkippedAnswers:
     def caution(self, source: str) -> str:
         several = len(self.rows) > 1
         first, last = self.rows[0], self.rows[-1]
-        shown = (f"{self.word} {first}" if not several else f"{self.word}s {first}-{last}"
+        shown = (f"row {first}" if not several else f"rows {first}-{last}"
                  if last - first == len(self.rows) - 1 else
-                 f"{self.word}s " + ", ".join(str(r) for r in self.rows[:SHOWN_ROWS])
+                 "rows " + ", ".join(str(r) for r in self.rows[:SHOWN_ROWS])
                  + (f" and {len(self.rows) - SHOWN_ROWS} more" if len(self.rows) > SHOWN_ROWS else ""))
         return (f"{base_name(self.where)}: {shown}, left unread by {self.option.given(self.first_data_row)}, "
                 f"{'hold' if several else 'holds'} answers like the rows read (in every item column that "
@@ -589,14 +588,14 @@ class SkippedAnswers:
 
     def advice(self) -> str:
         if self.start is not None:
-            return (f"If the answers start at {self.word} {self.start}, give "
+            return (f"If the answers start at row {self.start}, give "
                     f"{self.option.given(self.start)}; if those rows are rightly left out, nothing.")
-        return (f"Give the {self.word} where the answers start with {self.option}; if those rows are rightly left "
+        return (f"Give the row where the answers start with {self.option}; if those rows are rightly left "
                 f"out, nothing.")
 
 
 def _skipped_answers(frame: pd.DataFrame, between: list[tuple[int, list]], items, text_columns, decimal_comma: bool,
-                     where: str, word: str, first_data_row: int, option: Option) -> SkippedAnswers | None:
+                     where: str, first_data_row: int, option: Option) -> SkippedAnswers | None:
     """The rows ``between`` ((row, cells aligned with ``frame``'s columns)), which a first row of data left unread,
     that look like the rows of answers read (``frame``): in every item column (``items``; None: every column but
     ``text_columns``) that holds answers (numbers, or a few words each given several times) and that the row fills,
@@ -642,7 +641,7 @@ def _skipped_answers(frame: pd.DataFrame, between: list[tuple[int, list]], items
         return None
     numbers = [row for row, _ in between]
     start = found[0] if numbers[numbers.index(found[0]):] == found else None
-    return SkippedAnswers(where, word, tuple(found), first_data_row, option, start)
+    return SkippedAnswers(where, tuple(found), first_data_row, option, start)
 
 
 def _filter_kept(ws, header: list, skipped: int) -> str | None:
@@ -812,7 +811,8 @@ class TextReading:
     encoding: TextEncoding
     separator: str
     decimal: str
-    names_line: int  # the line of the column names; rows are named by the line they start on
+    names_line: int  # the text line of the column names
+    names_row: int = 0  # their row as a spreadsheet shows the file (one per record), by which rows are numbered
 
     def plain(self) -> bool:
         """UTF-8 text with commas between fields and decimal points, the reading every note would otherwise repeat
@@ -823,12 +823,13 @@ class TextReading:
         separator = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "vertical bars ('|')"}[self.separator]
         mark = "commas" if self.decimal == "," else "points"
         return (f"read as {self.encoding.value} text, fields separated by {separator}, decimals written with {mark}; "
-                f"the column names are on line {self.names_line}, and rows are named by the line of the file they "
-                f"start on")
+                f"the column names are in row {self.names_row or self.names_line}"
+                + (f" (text line {self.names_line})" if self.names_row and self.names_row != self.names_line else "")
+                + ", and rows are numbered as a spreadsheet shows the file (one row per record)")
 
     def to_dict(self) -> dict:
         return {"encoding": self.encoding.value, "separator": self.separator, "decimal_mark": self.decimal,
-                "names_line": self.names_line}
+                "names_line": self.names_line, "names_row": self.names_row or self.names_line}
 
 
 def _records(text: str, delimiter: str, limit: int | None = None, delimiters_only: bool = False):
@@ -851,6 +852,68 @@ def _records(text: str, delimiter: str, limit: int | None = None, delimiters_onl
                 if limit <= 0:
                     return
         line = reader.line_num + 1
+
+
+@dataclass(frozen=True, eq=False)
+class TextRows:
+    """Where the rows of a delimited text file are, numbered as a spreadsheet shows the file: one row per record
+    (a quoted cell's line breaks start no row), the header and any rows above the data counted, a blank line a row
+    of its own.  For a file without line breaks inside quotes a row's number is its line's."""
+
+    starts: np.ndarray  # starts[k]: the text line (1-based) on which row k + 1 starts
+    lines: int  # how many text lines the file has
+
+    @property
+    def count(self) -> int:
+        """How many rows the file has."""
+        return len(self.starts)
+
+    @property
+    def same_as_lines(self) -> bool:
+        """Whether every row is one text line (no record spans lines)."""
+        return not len(self.starts) or int(self.starts[-1]) == len(self.starts)
+
+    def rows(self, lines) -> np.ndarray:
+        """The row of the record that starts on (or spans) each of ``lines``."""
+        return np.searchsorted(self.starts, np.asarray(lines, dtype=np.int64), side="right")
+
+    def row(self, line: int) -> int:
+        return int(self.rows([line])[0])
+
+    def line(self, row: int) -> int:
+        """The text line on which ``row`` starts (``row`` from 1 to :attr:`count`)."""
+        return int(self.starts[row - 1])
+
+    def words(self, row: int) -> str:
+        """'row 501', and where the row starts on another text line, 'row 501 (text line 575)'."""
+        return row_words(row, {row: self.line(row)} if 1 <= row <= self.count else None)
+
+    def differing(self, rows) -> dict[int, int]:
+        """{row: its text line} of those of ``rows`` that start on a line of another number (:data:`TEXT_LINES`)."""
+        if self.same_as_lines:
+            return {}
+        rows = np.asarray(rows, dtype=np.int64)
+        lines = self.starts[rows - 1]
+        other = lines != rows
+        return dict(zip(rows[other].tolist(), lines[other].tolist()))
+
+
+def text_rows(text: str, delimiter: str) -> TextRows:
+    """The rows of a delimited file's ``text`` (:class:`TextRows`); a record the csv module cannot read ends the
+    search, each line after it counted a row (the field-count check names its line)."""
+    total = line_count(text)
+    if '"' not in text:  # no quoted field, so no line break inside one: every line is a row
+        return TextRows(np.arange(1, total + 1, dtype=np.int64), total)
+    reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
+    starts, line = [], 1
+    try:
+        for _ in reader:
+            starts.append(line)
+            line = reader.line_num + 1
+    except csv.Error:
+        pass
+    starts.extend(range(line, total + 1))
+    return TextRows(np.asarray(starts, dtype=np.int64), total)
 
 
 def _delimiter(text: str) -> str:
@@ -941,13 +1004,14 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
                text_columns: tuple[str, ...] = (), items=None, names_row: int | None = None,
                reading: list | None = None, names_option: Option = Option.NAMES_ROW, listed=None,
                first_data_row: int | None = None, cautions: list | None = None) -> pd.DataFrame:
-    """A delimited text file as a DataFrame, its rows indexed by their lines (data.moments.file_rows_index).
+    """A delimited text file as a DataFrame, its rows indexed by their rows as a spreadsheet shows the file, one per
+    record (:class:`TextRows`, data.moments.file_rows_index; a text line in a message about a malformed line).
     ``notes`` receives what was done to read it that the report should mention (empty fields dropped at the ends
     of rows, a row-name column); ``row_names`` receives the row-name column's values (a Series of text) when the
-    file has one; ``names_row``: the line of the column names (the lines above it are not read), given by
+    file has one; ``names_row``: the row of the column names (the rows above it are not read), given by
     ``names_option``; ``reading``
-    receives how the text was read (:class:`TextReading`); ``first_data_row``: the line where the rows of data start,
-    the lines between it and the column names not read; ``cautions`` receives those lines when they look like the
+    receives how the text was read (:class:`TextReading`); ``first_data_row``: the row where the rows of data start,
+    the rows between it and the column names not read; ``cautions`` receives those rows when they look like the
     rows of answers below them (:class:`SkippedAnswers`)."""
     path = Path(path)
     raw = input_bytes(path, "data file", DataError, MAX_TEXT_BYTES)
@@ -960,18 +1024,21 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     first = next(_records(text, delimiter, limit=1), None)
     if first is None:
         raise DataError(f"data file '{path}' is empty")
+    rows = text_rows(text, delimiter)  # rows as a spreadsheet shows the file: one per record
     if names_row is not None:
-        lines_in_file = line_count(text)
-        start = _names_row_start(names_row, lines_in_file, first[0] - 1, str(path), "line", names_option) + 1
+        start_row = _names_row_start(names_row, rows.count, rows.row(first[0]) - 1, str(path), names_option) + 1
+        start = rows.line(start_row)
         first = next(((line, fields) for line, fields in _records(text, delimiter) if line >= start), None)
         if first is None or first[0] != start:
-            raise DataError(f"{path}: line {start}, named by {names_option}, is empty")
+            raise DataError(f"{path}: {rows.words(start_row)}, named by {names_option}, is empty")
         if notes is not None:
-            notes.append(_names_row_note(str(path), start, "line", names_option))
+            notes.append(_names_row_note(str(path), start_row, names_option))
     header_line, header = first
-    between: list[tuple[int, list[str]]] = []  # the lines a first row of data leaves unread
+    header_row = rows.row(header_line)
+    between: list[tuple[int, list[str]]] = []  # the rows a first row of data leaves unread
     if first_data_row is not None:
-        text = _skip_to_data(text, delimiter, header_line, first_data_row, str(path), names_option, notes, between)
+        text = _skip_to_data(text, delimiter, header_line, first_data_row, str(path), names_option, notes, between,
+                             rows)
     header = [h.strip() for h in header]
     trailing = 0
     while len(header) > 1 and not header[-1]:  # a delimiter at the end of the header line
@@ -981,15 +1048,16 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     named_by = _named_by(names_row, names_option)
     for position, name in enumerate(header, start=1):
         if not name and not (position == 1 and has_row_names):
-            raise DataError(f"{path}: line {header_line}: column {position} of the header{named_by} has no name")
+            raise DataError(f"{path}: {rows.words(header_row)}: column {position} of the header{named_by} has no "
+                            f"name")
     _check_duplicates(header, str(path), named_by)
-    lines: list[int] = []  # the line each row starts on: messages name rows by it
+    lines: list[int] = []  # the line each row starts on (messages about a malformed line name it)
     body = text[_offset_of_line(text, header_line):]  # from the header line on, cut out once
     widest = _check_field_counts(body, delimiter, len(header), len(header) + trailing, path, header_line,
                                  lines, names_option)
     decimal = _decimal_mark(body, delimiter)
     if reading is not None:
-        reading.append(TextReading(encoding, delimiter, decimal, header_line))
+        reading.append(TextReading(encoding, delimiter, decimal, header_line, header_row))
     try:
         frame = pd.read_csv(
             io.StringIO(body),
@@ -1013,12 +1081,16 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     if len(frame) == 0:
         raise DataError(f"data file '{path}' has a header but no rows of data")
     if len(lines) == len(frame):  # (always: the records counted as the table parser reads them)
-        frame.index = file_rows_index(lines)
+        numbers = rows.rows(lines)  # each row's number as a spreadsheet shows the file, not its text line
+        frame.index = file_rows_index(numbers)
+        if not rows.same_as_lines:
+            frame.attrs[TEXT_LINES] = rows.differing(numbers)
+            if notes is not None:
+                notes.append(_spanning_note(path, rows))
     frame = blank_text_as_missing(frame, text_columns, MISSING_MARKERS, decimal == ",")  # 'NA ' is 'NA'
     raw = _RawCells(body, delimiter, widest, len(header), frame.index)
-    _check_header_rows(frame, str(path), decimal == ",", text_columns, items, header_line, names_option, listed)
-    unread = _skipped_answers(frame, between, items, text_columns, decimal == ",", str(path), "line",
-                              int(first_data_row), first_data_option(names_option)) if between else None
+    _check_header_rows(frame, str(path), decimal == ",", text_columns, items, header_row, names_option, listed)
+    unread = _skipped_answers(frame, between, items, text_columns, decimal == ",", str(path), int(first_data_row), first_data_option(names_option)) if between else None
     if unread is not None and cautions is not None:
         cautions.append(unread)
     if decimal == ",":
@@ -1038,76 +1110,91 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     return frame
 
 
-def _names_row_start(names_row, rows: int, first: int, where: str, word: str,
+def _names_row_start(names_row, rows: int, first: int, where: str,
                      option: Option = Option.NAMES_ROW) -> int:
     """The 0-based position of the row ``option`` (--names-row) names (``rows``: how many the file has; ``first``:
     the first that is not empty), or an error when it cannot apply."""
     if isinstance(names_row, bool) or not isinstance(names_row, (int, np.integer)) or names_row < 1:
-        raise DataError(f"the row of column names ({option}) must be a {word} number (1 or more), not "
+        raise DataError(f"the row of column names ({option}) must be a row number (1 or more), not "
                         f"{printable(repr(names_row))[:40]}")
     if names_row > rows:
-        raise DataError(f"{where} has {rows} {word}s, so {word} {names_row} ({option}) cannot hold the column names")
+        raise DataError(f"{where} has {rows} rows, so row {names_row} ({option}) cannot hold the column names")
     if names_row - 1 < first:
-        raise DataError(f"{where}: {word} {names_row} ({option}) is empty; the first {word} with values is "
+        raise DataError(f"{where}: row {names_row} ({option}) is empty; the first row with values is "
                         f"{first + 1}")
     return int(names_row) - 1
 
 
-def _first_data_start(first_data_row, names_row: int, last: int, where: str, word: str, names_option: Option,
+def _first_data_start(first_data_row, names_row: int, last: int, where: str, names_option: Option,
                       notes: list[str] | None) -> int:
-    """The row (of a sheet; ``word``: 'row') or line (of a text file) where the rows of data start, as
+    """The row (of a sheet, or of a text file as a spreadsheet shows it) where the rows of data start, as
     :func:`first_data_option` of ``names_option`` names it (``names_row``: the row of the column names; ``last``: the
     file's last row), or an error when it cannot apply; the rows between the two are named in one note."""
     option = first_data_option(names_option)
     if isinstance(first_data_row, bool) or not isinstance(first_data_row, (int, np.integer)) or first_data_row < 1:
-        raise DataError(f"the first row of data ({option}) must be a {word} number (1 or more), not "
+        raise DataError(f"the first row of data ({option}) must be a row number (1 or more), not "
                         f"{printable(repr(first_data_row))[:40]}")
     first_data_row = int(first_data_row)
     if first_data_row <= names_row:
-        raise DataError(f"{where}: {word} {first_data_row} ({option.given(first_data_row)}) is not below the column "
-                        f"names, which are in {word} {names_row}; give the {word} where the answers start")
+        raise DataError(f"{where}: row {first_data_row} ({option.given(first_data_row)}) is not below the column "
+                        f"names, which are in row {names_row}; give the row where the answers start")
     if first_data_row > last:
-        raise DataError(f"{where} has {last} {word}s, so {word} {first_data_row} ({option.given(first_data_row)}) "
-                        f"cannot be the first {word} of data")
+        raise DataError(f"{where} has {last} rows, so row {first_data_row} ({option.given(first_data_row)}) "
+                        f"cannot be the first row of data")
     if first_data_row > names_row + 1 and notes is not None:
-        notes.append(_skipped_note(where, word, names_row, names_row + 1, first_data_row, option))
+        notes.append(_skipped_note(where, names_row, names_row + 1, first_data_row, option))
     return first_data_row
 
 
-def _skipped_note(where: str, word: str, names_row: int, skipped: int, first_data_row: int, option: Option) -> str:
+def _skipped_note(where: str, names_row: int, skipped: int, first_data_row: int, option: Option) -> str:
     """The note naming the rows from ``skipped`` to the one before ``first_data_row``, which ``option`` left unread."""
-    between = (f"{word} {skipped} was" if first_data_row == skipped + 1 else
-               f"{word}s {skipped}-{first_data_row - 1} were")
-    return (f"{where}: {between} not read as data (between the column names in {word} {names_row} and the first "
-            f"{word} of data, {first_data_row}, as {option.given(first_data_row)} asks)")
+    between = (f"row {skipped} was" if first_data_row == skipped + 1 else
+               f"rows {skipped}-{first_data_row - 1} were")
+    return (f"{where}: {between} not read as data (between the column names in row {names_row} and the first "
+            f"row of data, {first_data_row}, as {option.given(first_data_row)} asks)")
 
 
 def _skip_to_data(text: str, delimiter: str, header_line: int, first_data_row, where: str, names_option: Option,
-                  notes: list[str] | None, between: list | None = None) -> str:
-    """``text`` with the lines between the header (on ``header_line``) and ``first_data_row`` left empty, so that
-    they are not read and every other line keeps its number; an error when no record starts on that line.
-    ``between`` receives the records left unread: (line, fields)."""
-    start = _first_data_start(first_data_row, header_line, line_count(text), where, "line", names_option, None)
+                  notes: list[str] | None, between: list | None = None, rows: TextRows | None = None) -> str:
+    """``text`` with the lines between the header (on ``header_line``) and the row ``first_data_row`` (a row as a
+    spreadsheet shows the file, ``rows``) left empty, so that they are not read and every other line keeps its
+    number; an error when no record starts on that row.  ``between`` receives the records left unread: (row,
+    fields)."""
+    rows = rows if rows is not None else text_rows(text, delimiter)
+    header_row = rows.row(header_line)
+    start_row = _first_data_start(first_data_row, header_row, rows.count, where, names_option, None)
+    start = rows.line(start_row)
     records = [(line, fields) for line, fields in _records(text, delimiter, delimiters_only=True) if line > header_line]
     after = [line for line, _ in records]
     if between is not None:
-        between.extend((line, fields) for line, fields in records if line < start)
+        between.extend((rows.row(line), fields) for line, fields in records if line < start)
     if start not in after:
-        raise DataError(f"{where}: line {start} ({first_data_option(names_option).given(start)}) starts no row of "
-                        f"data (it is empty, or inside a quoted field of the line above)")
+        raise DataError(f"{where}: {rows.words(start_row)} ({first_data_option(names_option).given(start_row)}) "
+                        f"starts no row of data (it is empty)")
     if after[0] == start:  # (a header whose quoted names span lines ends on the line above)
         return text
     if notes is not None:
-        notes.append(_skipped_note(where, "line", header_line, after[0], start, first_data_option(names_option)))
+        notes.append(_skipped_note(where, header_row, rows.row(after[0]), start_row,
+                                   first_data_option(names_option)))
     begin, end = _offset_of_line(text, after[0]), _offset_of_line(text, start)
     return text[:begin] + "\n" * (start - after[0]) + text[end:]
 
 
-def _names_row_note(where: str, names_row: int, word: str, option: Option = Option.NAMES_ROW) -> str:
+def _spanning_note(path, rows: TextRows) -> str:
+    """The note of a delimited file whose quoted cells hold line breaks: its rows are numbered as a spreadsheet shows
+    it, one per record, so a row's number is not its text line."""
+    spanning = int((np.diff(np.append(rows.starts, rows.lines + 1)) > 1).sum())
+    last = rows.count
+    return (f"{path}: {spanning} {'row spans' if spanning == 1 else 'rows span'} several text lines (line breaks "
+            f"inside quoted cells), so rows are numbered as a spreadsheet shows the file, one per record (row {last} "
+            f"is text line {rows.line(last)}); messages give a row's text line beside it where the two differ")
+
+
+def _names_row_note(where: str, names_row: int, option: Option = Option.NAMES_ROW) -> str:
     """The note of a table whose column names were read from a later row (``option``: --names-row)."""
-    above = "" if names_row == 1 else (f"; {word} 1 above it was not read" if names_row == 2 else
-                                        f"; {word}s 1-{names_row - 1} above it were not read")
-    return f"{where}: the column names were read from {word} {names_row}, as {option.flag} asks{above}"
+    above = "" if names_row == 1 else ("; row 1 above it was not read" if names_row == 2 else
+                                        f"; rows 1-{names_row - 1} above it were not read")
+    return f"{where}: the column names were read from row {names_row}, as {option.flag} asks{above}"
 
 
 def drop_blank_rows(frame: pd.DataFrame, where: str) -> tuple[pd.DataFrame, tuple[str, ...]]:
@@ -1127,8 +1214,9 @@ def drop_blank_rows(frame: pd.DataFrame, where: str) -> tuple[pd.DataFrame, tupl
         return frame, ()  # the readers' own message: a header but no rows of data
     numbers = row_numbers(frame)[blank]
     one = len(numbers) == 1
+    listed = rows_listed(numbers, naming=row_naming(frame), lines=text_lines(frame))
     note = (f"{where}: {len(numbers)} {'row' if one else 'rows'} with no value in any column "
-            f"{'was' if one else 'were'} skipped ({rows_listed(numbers, naming=row_naming(frame))})")
+            f"{'was' if one else 'were'} skipped ({listed})")
     return frame[~blank], (note,)
 
 
@@ -1206,6 +1294,7 @@ def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, tex
     # the example: the longest text of a column of answers recorded as words (a question), else of numbers
     lead, position = max(leads, key=lambda found: (found[1] in word_leads, len(str(frame.iloc[0, found[1]]))))
     numbers = row_numbers(frame)[:lead + 1]
+    lines = text_lines(frame)  # a text file's rows that start on a line of another number
     if items:
         for k in range(lead):
             cells = [str(v).strip() for v in frame.iloc[k].tolist() if isinstance(v, str)]
@@ -1213,18 +1302,21 @@ def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, tex
             if len(hits) >= min(2, len(wanted)):
                 shown = ", ".join(f"'{printable(h)}'" for h in hits[:3]) + (", ..." if len(hits) > 3 else "")
                 above = f"the column names of row {header_row}" if header_row is not None else "the column names"
-                raise DataError(f"{where}: row {numbers[k]} holds the model's variable names ({shown}) under "
+                raise DataError(f"{where}: {row_words(numbers[k], lines)} holds the model's variable names ({shown}) under "
                                 f"{above}, as survey platforms export question texts above their codes; read the "
                                 f"column names from that row with {names_option.given(numbers[k])} (the rows above it are then "
                                 f"not read)")
     example = printable(str(frame.iloc[0, position]).strip())[:60]
-    rows = f"row {numbers[0]}" if lead == 1 else f"rows {numbers[0]}-{numbers[lead - 1]}"
+    rows = row_words(numbers[0], lines) if lead == 1 else f"rows {numbers[0]}-{numbers[lead - 1]}" + (
+        f" (text lines {lines.get(numbers[0], numbers[0])}-{lines.get(numbers[lead], numbers[lead]) - 1})"
+        if numbers[0] in lines or numbers[lead] in lines else "")
     look = "looks like a further header row" if lead == 1 else "look like further header rows"
     held = "answers" if position in word_leads else "numbers"
     raise DataError(f"{where}: {rows} under the column names {look} (text such as '{example}' in every column "
                     f"that holds {held} below {'it' if lead == 1 else 'them'}), as survey platforms export question "
                     f"texts and import ids; skip {'it' if lead == 1 else 'them'} with "
-                    f"{first_data_option(names_option).given(numbers[lead])}, the row where the answers start, or "
+                    f"{first_data_option(names_option).given(numbers[lead])}, the row where the answers start"
+                    f"{line_words(numbers[lead], lines)}, or "
                     f"delete {'it' if lead == 1 else 'them'} in a copy of the file")
 
 
@@ -1287,7 +1379,8 @@ def _check_decimal_points(frame: pd.DataFrame, where: str, text_columns=()) -> N
         row = row_numbers(cells)[points.to_numpy().argmax()]
         example = cells[commas].iloc[0]
         raise DataError(f"{where}: column '{printable(frame.columns[position])}' holds "
-                        f"'{printable(cells[first])}' in row {row}, written with a '.', while the file writes "
+                        f"'{printable(cells[first])}' in {row_words(row, text_lines(frame))}, written with a '.', "
+                        f"while the file writes "
                         f"decimals with commas (such as '{printable(example)}'); write the decimals of that row with "
                         f"commas, as the others are (and numbers without thousands separators)")
 
@@ -1420,12 +1513,13 @@ def _check_dotted_thousands(frame: pd.DataFrame, raw: _RawCells, header: list[st
             continue
         first = int(dotted.to_numpy().argmax())
         rows = row_numbers(cells)
-        example = f"'{printable(cells.iloc[first])}' in row {rows[first]}"
+        example = f"'{printable(cells.iloc[first])}' in {row_words(rows[first], text_lines(frame))}"
         whole = cells.str.fullmatch(r"[+-]?\d+") & (pd.to_numeric(cells.where(~dotted), errors="coerce").abs() >= 100)
         if whole.any():
             big = int(whole.to_numpy().argmax())
             raise DataError(f"{path}: column '{printable(name)}' holds {example} beside whole numbers such as "
-                            f"'{printable(cells.iloc[big])}' (row {rows[big]}); in a file with decimal commas the '.' "
+                            f"'{printable(cells.iloc[big])}' ({row_words(rows[big], text_lines(frame))}); in a file "
+                            f"with decimal commas the '.' "
                             f"may separate thousands ({cells.iloc[first].replace('.', '')}) or mark decimals, so the "
                             f"values cannot be read; write the numbers without thousands separators")
         if commas and notes is not None:

@@ -14,7 +14,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.kept_rows import row_naming
+from cfa_tool.data.kept_rows import row_of
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.options import Option
 from cfa_tool.method import MissingData, WeightKind
@@ -373,7 +373,7 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
         if name is not None:
             absent = frame[name].isna().to_numpy()
             if absent.any():
-                raise DataError(f"{source}: column '{printable(name)}', {row_naming(frame).one_row(rows[np.argmax(absent)])}: no {what} "
+                raise DataError(f"{source}: column '{printable(name)}', {row_of(frame, rows[np.argmax(absent)])}: no {what} "
                                 f"given; every row needs one (a row filter, {Option.KEEP}, can leave such rows out)")
     if columns.cluster is not None and columns.strata is not None:
         pairs = pd.DataFrame({columns.cluster: _labels(frame[columns.cluster]),

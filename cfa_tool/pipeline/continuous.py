@@ -343,7 +343,8 @@ def listwise_line(dropped: int, read: int, analysed: int, where: str = "") -> st
 def rows_left_out(groups, missing: MissingData | None,
                   instead: str = FULL_INFORMATION_INSTEAD) -> tuple[tuple[Problem, ...], list[str]]:
     """(cautions, notes) on the rows a fit left out, from ``groups``: (label or None, rows left out, rows read,
-    rows analysed[, the row numbers of the rows that answer nothing[, their ids[, how they name rows]]]) of each group;
+    rows analysed[, the row numbers of the rows that answer nothing[, their ids[, how they name rows[, their text
+    lines (data.kept_rows.text_lines)]]]]) of each group;
     listwise deletion by :func:`listwise_problem` (or, for few rows, :func:`listwise_line`), otherwise (full-information ML, pairwise
     present rows) the rows that answered none of the model variables, in a note naming the first of them."""
     cautions: list[Problem] = []
@@ -362,7 +363,8 @@ def rows_left_out(groups, missing: MissingData | None,
             rows = named[0] if named and named[0] is not None and len(named[0]) == dropped else ()
             ids = named[1] if len(named) > 1 else ()
             naming = named[2] if len(named) > 2 else RowNaming.FILE_ROW
-            listed = f" ({rows_listed(rows, ids=ids, naming=naming)})" if len(rows) else ""
+            lines = named[3] if len(named) > 3 else None  # a text file's rows on lines of other numbers
+            listed = f" ({rows_listed(rows, ids=ids, naming=naming, lines=lines)})" if len(rows) else ""
             notes.append(f"{dropped} of {read} {'row' if read == 1 else 'rows'}{where} answered none of the model "
                          f"variables and {'was' if dropped == 1 else 'were'} left out{listed}")
     return tuple(cautions), notes
@@ -389,7 +391,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                                                                            layout)
 
     left_out, warnings = rows_left_out([(label, m.rows_dropped, m.rows_read, m.n_obs, m.unanswered_rows,
-                                         m.unanswered_ids, m.row_naming) for label, m in groups],
+                                         m.unanswered_ids, m.row_naming, m.text_lines) for label, m in groups],
                                        options.missing)  # cautions first in every view, notes among the warnings
     # with helpers, the rows that answer no item but a helper (inputs.with_helpers keeps them)
     helpers_only = ([int((~a).sum()) for a in est.auxiliary.answered] if est.auxiliary is not None

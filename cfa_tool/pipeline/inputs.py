@@ -15,7 +15,8 @@ import pandas as pd
 
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.groups import split_moments
-from cfa_tool.data.kept_rows import RowNaming, named_by_index_label, row_naming, unfinished_rows_note
+from cfa_tool.data.kept_rows import (RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
+                                     unfinished_rows_note)
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
 from cfa_tool.data.matching import (answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges,
                                     chosen_columns)
@@ -788,10 +789,8 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     if found.longest_run() < COPIED_RUN_OF_ANSWERS_ALONE and not _identifying_column(
             frame, described | {found.numbering}, len(found)):
         return ()
-    naming = row_naming(frame)
-
     def row(r: int) -> str:
-        return naming.one_row(r) + (f" ({printable(ids[r])})" if ids.get(r) is not None else "")
+        return row_of(frame, r) + (f" ({printable(ids[r])})" if ids.get(r) is not None else "")
 
     n = len(found)
     pairs = "; ".join(f"{row(c)} repeats {row(o)}" for c, o in list(zip(found.copies, found.originals))[:COPIED_ROWS_SHOWN])
@@ -835,6 +834,8 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
     if found is None:
         return ()
 
+    lines = text_lines(frame)
+
     def listed(which: list[int], skipped: bool = False) -> str:
         """The rows by row number or index label (and id); ``skipped``: say of a row that left reverse-worded items out how
         many of them it answered."""
@@ -843,7 +844,8 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
             said = [printable(ids[r])] if ids.get(r) is not None else []
             if skipped and found.reversed_answered[k] < found.reversed_items:
                 said.append(f"{found.reversed_answered[k]} of the {found.reversed_items} reverse-worded items answered")
-            return f"{r} ({'; '.join(said)})" if said else str(r)
+            number = f"{r}{line_words(r, lines)}"  # a text file's row on a line of another number: both
+            return f"{number} ({'; '.join(said)})" if said else number
         shown = [one_row(k) for k in which[:SAME_ANSWER_ROWS_SHOWN]]
         more = len(which) - len(shown)
         return f"{row_naming(frame).of(len(which))} {', '.join(shown)}" + (f" and {more} more" if more else "")
@@ -1883,5 +1885,5 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        group_parameters=tuple(group_parameter_counts(table)) if labels and not ordinal_items else (),
                        zero_weight=len(loaded.frame) - len(frame),
                        empty_rows=tuple(int(r) for r in row_numbers(answered)[unanswered]),
-                       row_naming=row_naming(frame))
+                       row_naming=row_naming(frame), text_lines=dict(text_lines(frame)))
 

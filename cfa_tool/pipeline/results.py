@@ -115,6 +115,8 @@ class CheckResult(Presentable):
     empty_rows: tuple[int, ...] = ()
     #: how the rows are named (data.kept_rows.RowNaming: a file's row numbers, a data frame's index labels)
     row_naming: RowNaming = RowNaming.FILE_ROW
+    #: the text lines of a text file's rows that start on a line of another number (data.kept_rows.text_lines)
+    text_lines: dict[int, int] = field(default_factory=dict, compare=False)
 
     @property
     def admissible(self) -> bool:
@@ -149,7 +151,8 @@ class CheckResult(Presentable):
         lines.append(f"Rows: {read} {self.complete} complete{odd}, {self.with_gaps} with missing answers "
                      f"({'used through pairwise present rows for ordinal items' if self.ordinal else 'used by full-information ML'}, "
                      f"the default), {self.empty} with no answer to any model variable"
-                     + (f" ({rows_listed(self.empty_rows, naming=self.row_naming)})." if self.empty_rows else "."))
+                     + (f" ({rows_listed(self.empty_rows, naming=self.row_naming, lines=self.text_lines)})."
+                        if self.empty_rows else "."))
         if self.counted is not None:
             read, complete, gaps, empty = (f"{v:,.10g}" for v in self.counted)
             lines.append(f"Rows counted by their frequency weights, as the fit counts them: {read} read, {complete} "

@@ -23,7 +23,7 @@ from cfa_tool.options import Interface, Option, interface
 from cfa_tool.exploration import (CountNote, CountRule, Exploration, ExploreSettings, ExtractionMethod, RotationMethod,
                                   RotationSpec, explore_correlations, from_ordinal_moments, from_sample_moments)
 from cfa_tool.data.answer_words import coding_json, coding_record
-from cfa_tool.data.kept_rows import row_naming
+from cfa_tool.data.kept_rows import row_of
 from cfa_tool.exploration.choices import Placement
 from cfa_tool.exploration.draft import answers_statement, model_name
 from cfa_tool.exploration.factor_count import CLOSE_RMSEA, FitStep, fit_sequence
@@ -351,7 +351,7 @@ def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: t
     said = f" Left out as dates or times: {listed(dates)}." if dates else ""
     if text and codings:
         general = next((c for c in codings if not c.items), None)
-        unlisted = [printable(c) + (f" ('{printable(cell)}' in {row_naming(frame).one_row(row)})" if cell is not None else "")
+        unlisted = [printable(c) + (f" ('{printable(cell)}' in {row_of(frame, row)})" if cell is not None else "")
                     for c in text[:10] for cell, row in [_first_unlisted(frame[c], general)]]
         said += (f" Left out as text holding none of the answers file's words ({Option.ANSWERS}): "
                  + ", ".join(unlisted) + (f" and {len(text) - 10} more" if len(text) > 10 else "") + ".")
@@ -504,7 +504,7 @@ def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str
                                 f"{cell_words(column, name, row)}) among numbers; correct the cell, or leave it empty "
                                 f"for no answer")
             statement = suggested_statement(values)
-            where = (f"{source}: column '{printable(name)}' holds words ('{shown}' in {row_naming(column).one_row(row)}), "
+            where = (f"{source}: column '{printable(name)}' holds words ('{shown}' in {row_of(column, row)}), "
                      f"and explore analyses numbers")
             if codings:
                 raise DataError(f"{where}: add the column to an 'answers' statement of the answers file "
@@ -760,12 +760,13 @@ def _correlations(frame, names, source, ordinal_items, notes):
 def _empty_rows_note(frame: pd.DataFrame, empty: np.ndarray) -> str:
     """The note on the rows (``empty``: a mask of ``frame``'s rows) that answered none of the items, named as the
     file numbers them (data.kept_rows.rows_listed), as fit names them."""
-    from cfa_tool.data.kept_rows import row_naming, rows_listed
+    from cfa_tool.data.kept_rows import row_naming, rows_listed, text_lines
     from cfa_tool.data.moments import row_numbers
 
     n = int(empty.sum())
+    listed = rows_listed(row_numbers(frame)[empty], naming=row_naming(frame), lines=text_lines(frame))
     return (f"{n} of {len(frame)} {'row' if len(frame) == 1 else 'rows'} answered none of the items and "
-            f"{'was' if n == 1 else 'were'} left out ({rows_listed(row_numbers(frame)[empty], naming=row_naming(frame))}).")
+            f"{'was' if n == 1 else 'were'} left out ({listed}).")
 
 
 def _confirm(exploration: Exploration, halves, seed: int, source: str, statements: tuple[str, ...]) -> SplitHalves:

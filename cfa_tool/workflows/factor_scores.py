@@ -221,9 +221,10 @@ def _in_file_order(table: pd.DataFrame, data, names_row: int | None = None) -> p
     trial s11: a blank sheet row dropped from the scores file shifted every later score onto the row above when
     the file was pasted beside the sheet), and for each row between the column names (``names_row``, else the
     first row) and the first row of answers (--first-data-row: a row of question texts; hostile tester s13: without
-    them every score sat one respondent off).  A file's rows are indexed by their place in the file
-    (data.moments.file_rows_index: the row's number less one), so a gap in the index is a row not read; a data
-    frame's scores keep its own index (they join to its rows)."""
+    them every score sat one respondent off).  A file's rows are indexed by their place in the file as a spreadsheet
+    shows it (data.moments.file_rows_index: the row's number less one; a text file's record, not its text line, so
+    a quoted cell's line breaks add no line: new-user trial s14), so a gap in the index is a row not read and line k
+    of the scores file is row k of the file; a data frame's scores keep its own index (they join to its rows)."""
     if isinstance(data, pd.DataFrame) or not len(table) or not pd.api.types.is_integer_dtype(table.index):
         return table
     index = table.index

@@ -72,7 +72,7 @@ from cfa_tool.assessment.admissibility import inadmissible_words
 from cfa_tool.data.answer_words import coding_json, coding_record
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.readers import sheet_of_each
-from cfa_tool.data.kept_rows import row_naming
+from cfa_tool.data.kept_rows import row_of
 from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments, row_numbers, sample_moments
 from cfa_tool import options as check
@@ -485,7 +485,7 @@ def _same_categories(calibration, validation, frame: pd.DataFrame) -> None:
         first = int(row_numbers(frame)[np.argmax(where)])
         raise DataError(f"{validation.source}: ordinal item '{printable(name)}' has the answer"
                         f"{'s' if len(new) > 1 else ''} {', '.join(f'{c:g}' for c in new)} ({int(where.sum())} rows, the "
-                        f"first in {row_naming(frame).one_row(first)}), which the calibration sample {calibration.source} never had (its "
+                        f"first in {row_of(frame, first)}), which the calibration sample {calibration.source} never had (its "
                         f"categories: {', '.join(f'{c:g}' for c in seen)}); the two samples' answer scales differ, so "
                         f"the calibration estimates cannot be carried over: recode the answers alike in both files or "
                         f"leave those rows out")

@@ -106,9 +106,9 @@ def test_a_text_file_keeps_its_line_numbers(tmp_path):
     _text_file(path, frame)
     loaded = read_data(path, first_data_row=3)
     assert len(loaded.frame) == N
-    assert list(row_numbers(loaded.frame)) == list(range(3, N + 3))  # line k + 3 of the file holds row k written
+    assert list(row_numbers(loaded.frame)) == list(range(3, N + 3))  # row (and line) k + 3 of the file holds row k written
     assert loaded.frame["Response ID"].tolist() == frame["Response ID"].tolist()
-    assert any("line 2 was not read as data" in note for note in loaded.notes)
+    assert any("row 2 was not read as data" in note for note in loaded.notes)
 
 
 def test_scores_file_scores_no_row_of_question_texts(tmp_path):
@@ -136,9 +136,9 @@ def test_a_first_row_of_data_that_cannot_apply(tmp_path):
     _text_file(text, frame)
     with pytest.raises(DataError, match=r"row 1 \(first_data_row=1\) is not below the column names, which are in row 1"):
         cfa_tool.check(MODEL + CODED, book, first_data_row=1)
-    with pytest.raises(DataError, match=rf"has {N + 2} lines, so line {N + 5} \(first_data_row={N + 5}\) cannot be"):
+    with pytest.raises(DataError, match=rf"has {N + 2} rows, so row {N + 5} \(first_data_row={N + 5}\) cannot be"):
         cfa_tool.check(MODEL + CODED, text, first_data_row=N + 5)
-    with pytest.raises(DataError, match=r"line 4 \(first_data_row=4\) is not below the column names, which are in line "
+    with pytest.raises(DataError, match=r"row 4 \(first_data_row=4\) is not below the column names, which are in row "
                                         r"4"):
         cfa_tool.check(MODEL + CODED, text, names_row=4, first_data_row=4)
     with pytest.raises(OptionError, match=r"a first row of data \(first_data_row=\.\.\.\) is read from a file"):
@@ -185,7 +185,7 @@ def test_a_mistyped_first_row_of_data_that_skips_answers_is_a_caution(tmp_path):
     book, text = tmp_path / "riders.xlsx", tmp_path / "riders.csv"
     _workbook(book, frame)
     _text_file(text, frame)
-    for path, word, where in ((book, "row", "riders.xlsx (sheet 'Sheet')"), (text, "line", "riders.csv")):
+    for path, word, where in ((book, "row", "riders.xlsx (sheet 'Sheet')"), (text, "row", "riders.csv")):
         fitted = cfa_tool.fit(MODEL + CODED, path, first_data_row=5)
         assert fitted.n_obs == len(frame) - 2  # pandas: the rows written, less the two skipped
         cautions = [p for p in fitted.problems if "left unread by first_data_row=5" in p.explanation]
@@ -201,7 +201,7 @@ def test_a_mistyped_first_row_of_data_that_skips_answers_is_a_caution(tmp_path):
 
 
 def test_skipped_rows_of_numbers_are_named_on_the_command_line(tmp_path, rider_demo, rider_model, capsys):
-    """The rider demo's numbers under one row of question texts, read with --first-data-row 6: lines 3-5 (three
+    """The rider demo's numbers under one row of question texts, read with --first-data-row 6: rows 3-5 (three
     respondents) are named first; the question row stays quiet."""
     from tests.conftest import run_cli
 
@@ -215,7 +215,7 @@ def test_skipped_rows_of_numbers_are_named_on_the_command_line(tmp_path, rider_d
 
     result = json.loads(out)
     said = [p["explanation"] for p in result["problems"] if "left unread" in p["explanation"]]
-    assert said == ["riders.csv: lines 3-5, left unread by --first-data-row 6, hold answers like the rows read (in "
+    assert said == ["riders.csv: rows 3-5, left unread by --first-data-row 6, hold answers like the rows read (in "
                     "every item column that they fill, a number or an answer the other rows give), so 3 rows of "
                     "answers are not analysed."]
     assert result["n_obs"] == len(rider_demo) - 3  # pandas' count of the rows written, less three
