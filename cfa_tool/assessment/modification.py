@@ -291,12 +291,18 @@ def modification_indices(model: StructuredModel, theta: np.ndarray, likelihood: 
                          factor: ScaledFactor | None = None) -> ModificationIndices:
     """Score tests of every zero parameter that could be freed (``mats`` and ``factor``: as :func:`score_tests` takes
     them)."""
+    return score_tests(model, theta, likelihood, *model_candidates(model, exogenous), mats=mats, factor=factor)
+
+
+def model_candidates(model: StructuredModel, exogenous: tuple[str, ...]) -> tuple[list, list]:
+    """Each group's candidate entries (:func:`candidate_entries`) and their layouts: fixed by the model, built at its
+    first fit and kept for its refits."""
     table = model.table
-    key = ("modification candidates", exogenous)  # fixed by the model: built at its first fit, kept for its refits
+    key = ("modification candidates", exogenous)
     if key not in model.derived:
         candidates = [candidate_entries(table, exogenous, g) for g in range(table.n_groups)]
         model.derived[key] = candidates, [candidate_layout(c, model.p, model.m) for c in candidates]
-    return score_tests(model, theta, likelihood, *model.derived[key], mats=mats, factor=factor)
+    return model.derived[key]
 
 
 def helper_modification_indices(model: StructuredModel, joint, theta: np.ndarray, likelihood,
@@ -306,10 +312,7 @@ def helper_modification_indices(model: StructuredModel, joint, theta: np.ndarray
     fit's, ``mats`` each group's matrices of the model (not the joint ones).  The score and information of a
     candidate are those of the joint likelihood, the helpers' means and covariances free beside the model's
     parameters (Sorbom 1989's statistic with the patterns-fixed information of full-information ML)."""
-    table = model.table
-    candidates = [candidate_entries(table, exogenous, g) for g in range(table.n_groups)]
-    layouts = [candidate_layout(c, model.p, model.m) for c in candidates]
-    return score_tests(model, theta, likelihood, candidates, layouts, mats, joint=joint)
+    return score_tests(model, theta, likelihood, *model_candidates(model, exogenous), mats, joint=joint)
 
 
 def equality_score_tests(model: StructuredModel, theta: np.ndarray, likelihood: Objective,

@@ -44,6 +44,15 @@ def _p(p: float) -> str:
     return f"p {p_phrase(p)}"
 
 
+def mcar_score_tests(paper: bool = False) -> str:
+    """What score tests of a full-information fit of rows with gaps rest on, in one wording for every view (the note
+    under a fit's modification indices, the invariance report's note, the methods text): the information with the
+    patterns of answers held fixed, the expected one, valid when answers are missing completely at random (Kenward &
+    Molenberghs 1998); ``paper``: the citation as the methods text writes it."""
+    return ("rest on the information with the patterns of answers held fixed, which holds when answers are missing "
+            f"completely at random (Kenward & Molenberghs{', ' if paper else ' '}1998)")
+
+
 def _name(name) -> str:
     """An item, factor, group or column as the model language writes it, in double quotes unless a plain word
     (language.names.written_name), so that names holding commas or full stops do not run together in a list."""
@@ -1291,8 +1300,7 @@ def invariance_paragraph(result, levels) -> str:
     if result.freed:  # the search's guide, as the table of freed parameters and the JSON name it
         # with rows with gaps, normal-theory score tests rest on the expected information: the assumption the report's
         # note and the JSON name is the paper's too (review s13)
-        assumed = (", which with rows with gaps rest on the expected information and so assume answers missing "
-                   "completely at random (Kenward & Molenberghs, 1998)" if result.score_tests_assume_mcar else "")
+        assumed = f", which with rows with gaps {mcar_score_tests(paper=True)}" if result.score_tests_assume_mcar else ""
         parts.append(f"The partial-invariance search was guided by {result.score_tests.phrase}{assumed}.")
     problems = _step_problems(steps)
     if problems:  # problems first: before any step reads as held

@@ -252,7 +252,7 @@ def _prorated_sentence(result, sums) -> str:
     """What the item-score precision table says of prorated scores: each row's own SEM is that of the sum of the
     items it answered, SD √(1 − ω) of their sum under the fitted model (Lord & Novick 1968; scoring.quality
     .answered_sum_sems), scaled as the score is; the range of the prorated rows' SEMs, per factor."""
-    where = ("the _sem columns of the file" if result.standard_errors else
+    where = ("in the file's _sem columns" if result.standard_errors else
              f"written to the file (_sem columns) with {Option.STANDARD_ERRORS}")
     said = (f"A prorated score rests on the items the row answered, and its own SEM is that of their sum, SD × "
             f"√(1 − ω) of that sum under the fitted model, scaled as the score is (times J/a for a sum prorated from a "
@@ -395,7 +395,7 @@ def sum_table(result, k: int) -> ReportTable | None:
         return None
     rho = dict(zip(q.factors, q.determinacy))
     if not hasattr(q, "methods"):  # ordinal items: the sum of the answers' codes (Green & Yang 2009)
-        rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), _sum_omega(s), unit(s.validity),
+        rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), _sum_omega(s), _sum_validity(s),
                  unit(rho[s.factor])] for s in q.sums]
         return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(q),
                       [("Factor", "l"), ("Items", "r"), ("Reversed", "l"), ("Sum omega", "r"),
@@ -407,7 +407,7 @@ def sum_table(result, k: int) -> ReportTable | None:
                       "agreement with the factor. Sum's r: the sum's correlation with the factor under the fitted "
                       "model; score's r: the posterior-mean score's in these data (the square root of its reliability "
                       "in the quality table); the two show what the simpler score loses." + _one_item_sentence(result.fit))
-    rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), _sum_omega(s), unit(s.validity),
+    rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), _sum_omega(s), _sum_validity(s),
              unit(rho[s.factor])] for s in q.sums]
     return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(q),
                   [("Factor", "l"), ("Items", "r"), ("Reversed", "l"), ("Sum omega", "r"), ("Sum's r", "r"),
@@ -421,6 +421,12 @@ def sum_table(result, k: int) -> ReportTable | None:
 def _sum_omega(s) -> str:
     """A keyed sum's omega cell (scoring.quality.SumScore), '—' for a sum of one item, which has none."""
     return "—" if s.omega != s.omega else unit(s.omega)
+
+
+def _sum_validity(s) -> str:
+    """A keyed sum's correlation with its factor, '—' where its omega is (a sum of one item: the correlation is the
+    square root of the reliability the fixed error variance assumes, and would restate it; review s14)."""
+    return "—" if s.omega != s.omega else unit(s.validity)
 
 
 def _unscored_counts(factors, counts) -> str:
@@ -498,7 +504,7 @@ def scores_report(result):
     return Report(ResultKind.SCORES, f"Factor scores: {result.fit.model_name}", scores_notice(result),
                   tuple(header_lines(result)) + tuple(caution_lines(result)), tuple(score_tables(result)),
                   tuple(result.notes) + tuple(item_sum_notes(result)), (SCORES_CAUTION, HIGH_STAKES_NOTE),
-                  problem_table=T.problem_table(result.fit), warnings=tuple(warnings(result)))
+                  problem_table=scores_problem_table(result), warnings=tuple(warnings(result)))
 
 
 def scores_notice(result):
@@ -508,8 +514,27 @@ def scores_notice(result):
     user scoring staff for feedback found it on the last page)."""
     notice = T.problem_notice(result.fit)
     precision = tuple(precision_cautions(result))
-    if not precision:
-        return notice
     if notice is None:
-        return T.ProblemNotice(SCORES_PRECISION_HEADING, precision, False)
-    return T.ProblemNotice(notice.heading, notice.lines + precision, notice.inadmissible)
+        return T.ProblemNotice(SCORES_PRECISION_HEADING, precision, False) if precision else None
+    heading = notice.heading if notice.inadmissible else SCORES_PRECISION_HEADING  # the scores' report: one heading
+    return T.ProblemNotice(heading, notice.lines + precision, notice.inadmissible)
+
+
+def scores_problem_table(result) -> ReportTable | None:
+    """The first box of :func:`scores_notice` as a table for the data files (--tables): the fit's and the scored rows'
+    problems (tables.problem_table), then one row per precision caution, under the box's heading (review s14: the
+    precision cautions were missing from problems.csv whenever the fit had a problem)."""
+    notice = scores_notice(result)
+    if notice is None:
+        return None
+    table = T.problem_table(result.fit)
+    said = precision_cautions(result)
+    extra = [["scores less reliable than decisions about individuals need", "no", "", None, "", line,
+              "use the scores to compare groups and for research, not for decisions about one person"]
+             for line in said]
+    columns = [("Problem", "l"), ("Makes it inadmissible", "l"), ("Parameters", "l"), ("Value", "r"), ("Group", "l"),
+               ("Explanation", "l"), ("What to try", "l")]
+    rows = ([list(r) for r in table.rows] if table is not None else []) + [[c if c is not None else "" for c in r]
+                                                                          for r in extra]
+    values = ([list(v) for v in table.values] if table is not None else []) + extra
+    return _table("problems", notice.heading, columns, rows, values=([c for c, _ in columns], values))

@@ -17,6 +17,7 @@ from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
 from cfa_tool.reporting.numbers import (fit_index_text, guide_text, missing, num, p_phrase, p_value, short, unit,
                                         word_list)
+from cfa_tool.reporting.paragraph import mcar_score_tests
 from cfa_tool.reporting.remedies import Remedy
 
 GUIDE_NOTE = (
@@ -712,11 +713,14 @@ def _completely_at_random_note(result) -> str:
             f"p {p_phrase(test.p_value)}{f' ({each})' if each else ''}.{verdict} {READING}")
 
 
-#: what the modification indices of a full-information fit of rows with gaps assume (the note under their table)
-FULL_INFORMATION_SCORE_TESTS = (
-    "With rows with gaps the indices rest on the information with the patterns of answers held fixed, which holds "
-    "when answers are missing completely at random (Kenward & Molenberghs 1998); freeing a parameter and comparing "
-    "the two fits ('cfa-tool compare') tests it when they are missing at random.")
+def full_information_score_tests(helpers: bool) -> str:
+    """What the modification indices of a full-information fit of rows with gaps assume (the note under their
+    table), and the test that asks less: the likelihood-ratio difference of the fits with and without the parameter
+    (compare; with missing-data helpers, which compare does not take, two fits with the same helpers)."""
+    way = ("refitting with the parameter freed and the same missing-data helpers and taking the difference of the two "
+           "chi-squares tests it" if helpers else
+           "freeing a parameter and comparing the two fits ('cfa-tool compare') tests it")
+    return f"With rows with gaps the indices {mcar_score_tests()}; {way} when they are missing at random."
 
 
 def modification_table(result, group: int | None = None, limit: int = 10) -> ReportTable | None:
@@ -761,7 +765,7 @@ def modification_table(result, group: int | None = None, limit: int = 10) -> Rep
                  "expected change is a linear approximation that fails this far from the current estimate, so only a "
                  "refit shows the value the parameter would take.")
     if result.method.missing is MissingData.FULL_INFORMATION and not result.method.ordinal:
-        note += f" {FULL_INFORMATION_SCORE_TESTS}"
+        note += f" {full_information_score_tests(bool(result.method.helpers))}"
     note += (" Freeing parameters because of large modification indices capitalises on chance; a model changed that "
              "way needs confirmation in new data.")
     values = [[m.kind, names_text(m.variables), m.group or "", m.index, m.expected_change, m.standardized_expected_change]

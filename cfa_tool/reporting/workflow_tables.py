@@ -18,6 +18,7 @@ from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod,
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, comparison_paragraph, design_sentence,
+                                          mcar_score_tests,
                                           invariance_paragraph, replication_paragraph)
 from cfa_tool.reporting.numbers import (fit_index_text, guides_text, missing, num, p_phrase, p_value, short, signed, unit,
                                         word_list)
@@ -484,8 +485,7 @@ def _score_tests_mcar_note(result) -> list[str]:
     shown = result.freed or any(not s.holds and s.culprits for s in result.steps)
     if not (shown and result.score_tests_assume_mcar):
         return []
-    return [f"With rows with gaps, the normal-theory score tests rest on the expected information, which holds when "
-            f"answers are missing completely at random (Kenward & Molenberghs 1998); robust score tests "
+    return [f"With rows with gaps, the normal-theory score tests {mcar_score_tests()}; robust score tests "
             f"({Option.ROBUST}) take the observed information, which holds when they are missing at random."]
 
 

@@ -1602,7 +1602,7 @@ def _without_own_answers(answered: np.ndarray, values: dict, chosen, factors) ->
             for name, n in zip(factors, total) if n]
     if not said:
         return ()
-    return (Problem(ProblemKind.SCORED_WITHOUT_OWN_ANSWERS, (), float(total.sum()), "; ".join(said) + ".",
+    return (Problem(ProblemKind.SCORED_WITHOUT_OWN_ANSWERS, (), None, "; ".join(said) + ".",
                     "treat such a score as a prediction from the row's other answers, not as a measure of the factor "
                     "for that person: leave it out of any report to the person, or score the rows' own items only "
                     "(item sums or means leave it empty)."),)

@@ -57,6 +57,11 @@ def test_the_three_tables_print_one_omega_and_a_one_item_sum_has_none(hs_data):
     assert printed["textual"] == (unit(mcdonald),) * 3
     # before: the sums table printed .779 for visual's one item while the quality table left the cell empty
     assert printed["visual"] == ("—", None, "—")
+    # nor its correlation with the factor, the square root of that reliability (review s14: .883 beside the dash)
+    from cfa_tool.reporting.score_report import sum_table
+
+    row = next(r for r in sum_table(result, 0).rows if r[0] == "visual")
+    assert row[4] == "—"
     (summary,) = result.item_sums
     (quality,) = result.quality
     assert all(any(s is q for q in quality.sums) for s in summary.sums)  # the same objects, not a second computation

@@ -106,3 +106,18 @@ def test_scores_from_a_saved_fit_of_a_one_item_factor_say_it_too(tmp_path, hs_da
     out = capsys.readouterr()
     assert code == 0, out.err
     assert "visual: measured by one item, whose error variance the model fixes" in " ".join(out.out.split())
+
+
+def test_the_problems_table_of_the_scores_holds_what_the_first_box_says(hs_data):
+    """--tables' problems.csv of a scores run: the rows scored without their factor's items and the precision caution
+    both, under the box's heading (review s14: the precision caution was missing whenever another problem was
+    there)."""
+    data = hs_data.copy()
+    data.loc[data.index[3], ["x1", "x2", "x3"]] = np.nan
+    report = scores_report(cfa_tool.scores(
+        "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n", data))
+    table = report.problem_table
+    assert table.title == report.notice.heading == "Check before using these scores"
+    assert [row[0] for row in table.rows] == ["scores without the factor's own answers",
+                                              "scores less reliable than decisions about individuals need"]
+    assert [row[5] for row in table.rows][1] == report.notice.lines[1]

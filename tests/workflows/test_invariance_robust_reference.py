@@ -484,16 +484,16 @@ def test_the_normal_theory_score_tests_with_gaps_say_what_they_assume():
     it, nor do normal-theory ones on complete rows."""
     from cfa_tool.reporting.workflow_tables import invariance_report
 
-    said = "the normal-theory score tests rest on the expected information, which holds when answers are missing " \
-           "completely at random"
+    said = "the normal-theory score tests rest on the information with the patterns of answers held fixed, which " \
+           "holds when answers are missing completely at random"
     gaps = invariance(THREE_FACTORS, _with_gaps(), "school", partial="auto")
     assert gaps.score_tests_assume_mcar and gaps.to_dict()["score_tests"]["assume_missing_completely_at_random"]
     assert said in " ".join(str(invariance_report(gaps)).split())
     robust = invariance(THREE_FACTORS, _with_gaps(), "school", partial="auto", test="robust")
     complete = invariance(THREE_FACTORS, holzinger_swineford(), "school", partial="auto", missing="full-information")
     # the methods paragraph says it too, when the search freed something (review s13)
-    in_paper = ("which with rows with gaps rest on the expected information and so assume answers missing completely "
-                "at random")
+    in_paper = ("which with rows with gaps rest on the information with the patterns of answers held fixed, which "
+                "holds when answers are missing completely at random (Kenward & Molenberghs, 1998)")
     assert gaps.freed and in_paper in " ".join(invariance_report(gaps).paragraph.split())
     for result in (robust, complete):
         assert not result.score_tests_assume_mcar
