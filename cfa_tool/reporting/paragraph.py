@@ -833,12 +833,25 @@ def _stated(result) -> bool:
     return not result.parameter_labels
 
 
+def _stated_discrepancy(result) -> str:
+    """The discrepancy a model fixing every parameter was tested by: the one its estimator minimises (for ordinal
+    items least squares on the polychoric correlations, review s14: the text said maximum likelihood)."""
+    method = result.method
+    if method.ordinal:
+        kind, aside = _correlation_kinds(result)
+        extra = " and polyserial" if method.items is Items.MIXED else ""
+        statistics = "thresholds and " if method.thresholds else ""
+        return (f"the {method.weighting.label} least-squares discrepancy from the {statistics}{kind}{extra} "
+                f"correlations{aside}")
+    return ("the full-information maximum-likelihood discrepancy" if method.full_information else
+            "the maximum-likelihood discrepancy")
+
+
 def _estimated_by(result, groups: str) -> str:
     """'was estimated by maximum likelihood, with standard errors from ...'; for a model fixing every parameter,
     what was done instead (review s13: the text said estimated, with standard errors, where nothing was)."""
     if _stated(result):
-        base = ("the full-information maximum-likelihood discrepancy" if result.method.full_information else
-                "the maximum-likelihood discrepancy")
+        base = _stated_discrepancy(result)
         return (f"with every parameter fixed at a stated value was tested against the data{groups} by {base}, so "
                 f"nothing was estimated and no standard errors apply")
     return f"was estimated{groups} by {_estimator_phrase(result)}"
