@@ -847,6 +847,22 @@ def _stated_discrepancy(result) -> str:
             "the maximum-likelihood discrepancy")
 
 
+def _stated_groups_sentence(result, d) -> str:
+    """What holds across the groups of a model fixing every parameter: each parameter at its stated value in every
+    group, the same in each or, where an 'in group' statement gave a group its own, different (review s14: the text
+    said the parameters were estimated separately in each group, with no invariance constraints)."""
+    values: dict[tuple, set[float]] = {}
+    for r in result.estimates:
+        values.setdefault((r.kind, r.variables), set()).add(r.estimate)
+    differ = [key for key, held in values.items() if len(held) > 1]
+    if not differ:
+        return ("Every parameter was fixed at the same stated value in every group, so the groups were held to one "
+                "model (each parameter equal across groups).")
+    named = [parameter_words(kind, tuple(names), None, d.indicators, quoted=True) for kind, names in differ]
+    return (f"Every parameter was fixed at a stated value in every group, the same value in each group except "
+            f"{_list(named)}, stated differently for different groups.")
+
+
 def _estimated_by(result, groups: str) -> str:
     """'was estimated by maximum likelihood, with standard errors from ...'; for a model fixing every parameter,
     what was done instead (review s13: the text said estimated, with standard errors, where nothing was)."""
@@ -877,6 +893,8 @@ def methods_paragraph(result) -> str:
         if d.invariant:
             parts.append(f"Held equal across groups: {_list(equality_words(d.invariant))}" + (
                 f", except {_list([_parameter(r, d) for r in d.noninvariant])}" if d.noninvariant else "") + ".")
+        elif result.multigroup and _stated(result):  # nothing estimated: the stated values are what holds
+            parts.append(_stated_groups_sentence(result, d))
         elif result.multigroup:  # a reviewer must not take the groups' estimates for invariant ones
             parts.append("No invariance constraints were imposed: the parameters were estimated separately in each "
                          "group, with the same pattern in every group" + (
