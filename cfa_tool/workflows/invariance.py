@@ -973,9 +973,10 @@ def _ref_names(candidate: ModificationIndex) -> tuple[str, ...]:
 
 
 def ref_kind(kind: str) -> str:
-    """The word a model statement names a parameter kind by (residual variances and covariances as variance(x),
-    covariance(x, y))."""
-    return {"residual_variance": "variance", "residual_covariance": "covariance"}.get(kind, kind)
+    """The word a model statement names a parameter kind by (residual and factor variances and covariances as
+    variance(x), covariance(x, y))."""
+    return {"residual_variance": "variance", "residual_covariance": "covariance", "factor_variance": "variance",
+            "factor_covariance": "covariance"}.get(kind, kind)
 
 
 def _may_free(candidate: ModificationIndex, exceptions: list[ParameterRef], spec: Spec, kinds: tuple[str, ...]) -> bool:
