@@ -812,10 +812,16 @@ def _latent_response_sentence(result) -> str:
         return ""
 
     def state(kind: str, group: str, value: float) -> str:
+        """'fixed at 1', 'estimated', or with the items whose own value departs from that (a 'fix' the model file
+        states: review s14, where 'partly estimated' stood for residual variances that were all fixed)."""
         own = [r for r in result.estimates if r.kind == kind and r.group == group and r.variables[0] in items]
-        if all(not r.free and r.estimate == value for r in own):
-            return f"fixed at {value:g}"
-        return "estimated" if all(r.free for r in own) else "partly estimated"
+        fixed = [r for r in own if not r.free]
+        if len(fixed) == len(own):
+            apart = [f"{_name(r.variables[0])}'s at {r.estimate:g}" for r in fixed if r.estimate != value]
+            return f"fixed at {value:g}" + (f" ({_list(apart)})" if apart else "")
+        if not fixed:
+            return "estimated"
+        return f"estimated (except {_list([f'{_name(r.variables[0])} fixed at {r.estimate:g}' for r in fixed])})"
 
     patterns: dict[tuple[str, str], list[str]] = {}
     for g in result.groups:

@@ -84,3 +84,15 @@ def test_a_fully_fixed_ordinal_model_names_the_least_squares_discrepancy():
     assert ("with every parameter fixed at a stated value was tested against the data by the diagonally weighted "
             "least-squares discrepancy from the polychoric correlations, so nothing was estimated") in text
     assert "maximum-likelihood" not in text
+
+
+def test_the_methods_text_says_which_residual_variances_a_fit_in_groups_fixed():
+    # every residual variance fixed (at 1 by the identification, a1's at 0.3 by the file): it said "partly estimated"
+    data = _answers(600, groups=True)
+    text = " ".join(methods_paragraph(cfa_tool.fit(ITEMS + "fix variance(a1) = 0.3\n", data, ordinal="all",
+                                                   group="grp")).split())
+    assert ("had intercepts fixed at 0 and residual variances fixed at 1 (a1's at 0.3) in every group") in text
+    held = " ".join(methods_paragraph(cfa_tool.fit(ITEMS + "fix variance(a1) = 0.3\ninvariance thresholds\n", data,
+                                                   ordinal="all", group="grp")).split())
+    assert "residual variances estimated (except a1 fixed at 0.3) in south" in held
+    assert "partly estimated" not in text + held
