@@ -117,6 +117,23 @@ def refuse_set_residual_variances(spec: Spec) -> None:
                      f"statement (fix or start the loadings instead)", ref.location, spec.source_line(ref.location))
 
 
+def refuse_fixed_residual_variances_in_ladder(spec: Spec, ordinal_items) -> None:
+    """The invariance ladder of ordinal items sets their latent responses' residual variances itself (1 in the first
+    group, and in every group while the item's thresholds may differ; estimated in the other groups once thresholds
+    are held equal, and held equal at the strict level; Wu & Estabrook 2016): a 'fix' of one would hold it equal
+    across groups from the thresholds step on, so that step would test a constraint of the strict step unsaid (its
+    df one more, strict's one fewer).  An error naming the line."""
+    found = [(word, r) for word, r in _residual_variance_statements(spec) if word == "fix" and r.names[0] in ordinal_items]
+    if not found:
+        return
+    ref = found[0][1]
+    raise ModelError(f"'fix {ref}': the invariance ladder sets the residual variances of the ordinal items' latent "
+                     f"responses itself (1 in the first group and wherever the thresholds may differ, estimated in the "
+                     f"other groups once the thresholds are held equal, held equal at the strict step; Wu & Estabrook "
+                     f"2016): a fixed value would hold it equal across groups from the thresholds step on, testing part "
+                     f"of the strict step there; remove the statement", ref.location, spec.source_line(ref.location))
+
+
 def ordinal_spec(spec: Spec) -> tuple[Spec, set[str]]:
     """The model a one-group ordinal fit estimates: the residual variances of the latent responses fixed
     (they are not parameters: the latent responses have unit variance), and the items whose residual

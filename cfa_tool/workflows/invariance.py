@@ -373,6 +373,9 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             fit_options = design_test(fit_options, design)
     gaps = False  # rows with gaps fitted by full-information ML
     if ordinal_items:
+        from cfa_tool.pipeline.ordinal import refuse_fixed_residual_variances_in_ladder
+
+        refuse_fixed_residual_variances_in_ladder(spec, ordinal_items)
         pairwise = check_ordinal_options(fit_options)
         if rule is not DecisionRule.DIFFERENCE_TEST:
             raise OptionError("with ordinal items the fit indices of each step come from its own adjusted statistic and "

@@ -96,3 +96,12 @@ def test_the_methods_text_says_which_residual_variances_a_fit_in_groups_fixed():
                                                    ordinal="all", group="grp")).split())
     assert "residual variances estimated (except a1 fixed at 0.3) in south" in held
     assert "partly estimated" not in text + held
+
+
+def test_the_invariance_ladder_refuses_a_fixed_residual_variance_of_an_ordinal_item():
+    # the ladder frees the later groups' residual variances once thresholds are held equal; a fix held a1's equal
+    # across groups from the thresholds step on (its df 9 where 8, strict's 3 where 4), a strict constraint unsaid
+    with pytest.raises(ModelError, match=r"'fix variance\(a1\)': the invariance ladder sets the residual variances "
+                                         r"of the ordinal items' latent responses itself") as caught:
+        cfa_tool.invariance(ITEMS + "fix variance(a1) = 0.3\n", _answers(600, groups=True), "grp", ordinal="all")
+    assert caught.value.location.line == 2
