@@ -698,13 +698,22 @@ def refuse_inadmissible_saved_fit(payload: dict, problems: tuple[Problem, ...], 
     it, simulation and power simulation from it as a population.  Exit 2 (:class:`OptionError`): the run estimates
     no model, and the saved file is an input it cannot use; exit 3 stays for a model that a run cannot estimate.
     ``purpose`` ends the message: 'no factor scores are computed with it'."""
-    first = next((p for p in problems if p.kind.inadmissible), None)
     flagged = payload.get("admissible", True) is False or payload.get("converged", True) is False
+    refuse_inadmissible_fit(problems, source, purpose, flagged)
+
+
+def refuse_inadmissible_fit(problems, source: str, purpose: str, flagged: bool = False,
+                            remedy: str = "use that result") -> None:
+    """The one refusal of a fitted solution that is not admissible as the values of something else (a population
+    for simulated samples, the model of factor scores), whether the fit was saved (:func:`refuse_inadmissible_saved_fit`)
+    or made by the same run (the cutoffs' population): exit 2 (:class:`OptionError`), the first serious problem
+    named; ``flagged``: the fit says it is not admissible where no problem is listed."""
+    first = next((p for p in problems if p.kind.inadmissible), None)
     if first is None and not flagged:
         return
     why = f" (it has {first.phrase()})" if first is not None else ""
     raise OptionError(f"{source}: the fitted solution is not admissible{why}, so {purpose}; fit a model whose solution "
-                      f"is admissible and use that result")
+                      f"is admissible and {remedy}")
 
 
 def poor_fit_problems(read) -> tuple[Problem, ...]:

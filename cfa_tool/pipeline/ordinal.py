@@ -25,7 +25,7 @@ from cfa_tool.assessment.modification import (ModificationIndices, candidate_arr
                                                collected_indices, least_squares_score_tests)
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
-from cfa_tool.errors import CfaError, OptionError
+from cfa_tool.errors import CfaError, ModelError, OptionError
 from cfa_tool.estimation.least_squares import MixedLeastSquares, OrdinalLeastSquares, group_statistics
 from cfa_tool.estimation.strategy import Alternative, search
 from cfa_tool.inference.adjusted import (AdjustedTest, adjusted_fit, adjusted_from_traces, adjusted_test, residual_traces,
@@ -90,17 +90,57 @@ def _modification_rows(candidates: list[list], mi: np.ndarray, epc: np.ndarray, 
 # ---------------------------------------------------------------- one group
 
 
+def _residual_variance_statements(spec: Spec):
+    """Each (statement word, reference) of the model file that names an item's residual variance: 'fix', 'free',
+    'start', 'bound' and 'equal', in the order written."""
+    observed = set(spec.observed_names)
+    named = ([("fix", r) for s in spec.fixed for r in s.refs] + [("free", r) for r in spec.freed]
+             + [("start", r) for s in spec.starts for r in s.refs] + [("bound", r) for s in spec.bounds for r in s.refs]
+             + [("equal", r) for group in spec.equal for r in group])
+    found = [(word, r) for word, r in named if r.kind == "variance" and r.names[0] in observed]
+    return sorted(found, key=lambda wr: (wr[1].location.line, wr[1].location.column))
+
+
+def refuse_set_residual_variances(spec: Spec) -> None:
+    """A one-group ordinal fit analyses every item in the correlation metric of its latent response (the delta
+    parameterization: each latent response has variance 1; Muthén & Asparouhov 2002), so an item's residual variance
+    is 1 minus the variance its factors explain and no statement can fix, free, start, bound or equate it: the first
+    such statement is an error naming its line (it would otherwise be ignored while the report repeated it)."""
+    found = _residual_variance_statements(spec)
+    if not found:
+        return
+    word, ref = found[0]
+    item = ref.names[0]
+    raise ModelError(f"'{word} {ref}': the residual variance of '{item}' cannot be set in an ordinal fit of one group: "
+                     f"every latent response has variance 1 there (the delta parameterization), so an item's residual "
+                     f"variance follows from its loadings as 1 minus the variance its factors explain; remove the "
+                     f"statement (fix or start the loadings instead)", ref.location, spec.source_line(ref.location))
+
+
+def refuse_fixed_residual_variances_in_ladder(spec: Spec, ordinal_items) -> None:
+    """The invariance ladder of ordinal items sets their latent responses' residual variances itself (1 in the first
+    group, and in every group while the item's thresholds may differ; estimated in the other groups once thresholds
+    are held equal, and held equal at the strict level; Wu & Estabrook 2016): a 'fix' of one would hold it equal
+    across groups from the thresholds step on, so that step would test a constraint of the strict step unsaid (its
+    df one more, strict's one fewer).  An error naming the line."""
+    found = [(word, r) for word, r in _residual_variance_statements(spec) if word == "fix" and r.names[0] in ordinal_items]
+    if not found:
+        return
+    ref = found[0][1]
+    raise ModelError(f"'fix {ref}': the invariance ladder sets the residual variances of the ordinal items' latent "
+                     f"responses itself (1 in the first group and wherever the thresholds may differ, estimated in the "
+                     f"other groups once the thresholds are held equal, held equal at the strict step; Wu & Estabrook "
+                     f"2016): a fixed value would hold it equal across groups from the thresholds step on, testing part "
+                     f"of the strict step there; remove the statement", ref.location, spec.source_line(ref.location))
+
+
 def ordinal_spec(spec: Spec) -> tuple[Spec, set[str]]:
     """The model a one-group ordinal fit estimates: the residual variances of the latent responses fixed
     (they are not parameters: the latent responses have unit variance), and the items whose residual
-    variance follows from that."""
-    user_fixed = {r.key() for s in spec.fixed for r in s.refs}
-    for setting in spec.starts + tuple(spec.bounds):
-        for ref in setting.refs:
-            if ref.kind == "variance" and ref.names[0] in spec.observed_names:
-                raise OptionError(f"{ref}: residual variances of ordinal items are not parameters (the latent responses have unit variance)")
-    refs = tuple(ParameterRef("variance", (x,), spec.first_mention(x)) for x in spec.observed_names
-                 if ("variance", (x,)) not in user_fixed)
+    variance follows from that.  A statement on an item's residual variance is an error
+    (:func:`refuse_set_residual_variances`)."""
+    refuse_set_residual_variances(spec)
+    refs = tuple(ParameterRef("variance", (x,), spec.first_mention(x)) for x in spec.observed_names)
     derived_items = {r.names[0] for r in refs}  # residual variances that follow from unit latent-response variances
     return dc_replace(spec, fixed=spec.fixed + ((ValueSetting(refs, 1.0),) if refs else ())), derived_items
 

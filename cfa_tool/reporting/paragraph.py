@@ -833,10 +833,16 @@ def _latent_response_sentence(result) -> str:
         return ""
 
     def state(kind: str, group: str, value: float) -> str:
+        """'fixed at 1', 'estimated', or with the items whose own value departs from that (a 'fix' the model file
+        states: review s14, where 'partly estimated' stood for residual variances that were all fixed)."""
         own = [r for r in result.estimates if r.kind == kind and r.group == group and r.variables[0] in items]
-        if all(not r.free and r.estimate == value for r in own):
-            return f"fixed at {value:g}"
-        return "estimated" if all(r.free for r in own) else "partly estimated"
+        fixed = [r for r in own if not r.free]
+        if len(fixed) == len(own):
+            apart = [f"{_name(r.variables[0])}'s at {r.estimate:g}" for r in fixed if r.estimate != value]
+            return f"fixed at {value:g}" + (f" ({_list(apart)})" if apart else "")
+        if not fixed:
+            return "estimated"
+        return f"estimated (except {_list([f'{_name(r.variables[0])} fixed at {r.estimate:g}' for r in fixed])})"
 
     patterns: dict[tuple[str, str], list[str]] = {}
     for g in result.groups:
@@ -854,12 +860,41 @@ def _stated(result) -> bool:
     return not result.parameter_labels
 
 
+def _stated_discrepancy(result) -> str:
+    """The discrepancy a model fixing every parameter was tested by: the one its estimator minimises (for ordinal
+    items least squares on the polychoric correlations, review s14: the text said maximum likelihood)."""
+    method = result.method
+    if method.ordinal:
+        kind, aside = _correlation_kinds(result)
+        extra = " and polyserial" if method.items is Items.MIXED else ""
+        statistics = "thresholds and " if method.thresholds else ""
+        return (f"the {method.weighting.label} least-squares discrepancy from the {statistics}{kind}{extra} "
+                f"correlations{aside}")
+    return ("the full-information maximum-likelihood discrepancy" if method.full_information else
+            "the maximum-likelihood discrepancy")
+
+
+def _stated_groups_sentence(result, d) -> str:
+    """What holds across the groups of a model fixing every parameter: each parameter at its stated value in every
+    group, the same in each or, where an 'in group' statement gave a group its own, different (review s14: the text
+    said the parameters were estimated separately in each group, with no invariance constraints)."""
+    values: dict[tuple, set[float]] = {}
+    for r in result.estimates:
+        values.setdefault((r.kind, r.variables), set()).add(r.estimate)
+    differ = [key for key, held in values.items() if len(held) > 1]
+    if not differ:
+        return ("Every parameter was fixed at the same stated value in every group, so the groups were held to one "
+                "model (each parameter equal across groups).")
+    named = [parameter_words(kind, tuple(names), None, d.indicators, quoted=True) for kind, names in differ]
+    return (f"Every parameter was fixed at a stated value in every group, the same value in each group except "
+            f"{_list(named)}, stated differently for different groups.")
+
+
 def _estimated_by(result, groups: str) -> str:
     """'was estimated by maximum likelihood, with standard errors from ...'; for a model fixing every parameter,
     what was done instead (review s13: the text said estimated, with standard errors, where nothing was)."""
     if _stated(result):
-        base = ("the full-information maximum-likelihood discrepancy" if result.method.full_information else
-                "the maximum-likelihood discrepancy")
+        base = _stated_discrepancy(result)
         return (f"with every parameter fixed at a stated value was tested against the data{groups} by {base}, so "
                 f"nothing was estimated and no standard errors apply")
     return f"was estimated{groups} by {_estimator_phrase(result)}"
@@ -886,6 +921,8 @@ def methods_paragraph(result) -> str:
         if d.invariant:
             parts.append(f"Held equal across groups: {_list(equality_words(d.invariant))}" + (
                 f", except {_list([_parameter(r, d) for r in d.noninvariant])}" if d.noninvariant else "") + ".")
+        elif result.multigroup and _stated(result):  # nothing estimated: the stated values are what holds
+            parts.append(_stated_groups_sentence(result, d))
         elif result.multigroup:  # a reviewer must not take the groups' estimates for invariant ones
             parts.append("No invariance constraints were imposed: the parameters were estimated separately in each "
                          "group, with the same pattern in every group" + (

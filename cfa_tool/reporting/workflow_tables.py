@@ -933,11 +933,15 @@ def cutoffs_report(cut) -> Report:
                                     in zip(cut.inadmissible, (cut.converged_correct, cut.converged_misspecified),
                                            ("fitted model", "misspecified model"))],
                                    "samples", "the distributions the cutoffs come from")
+    # the samples whose solutions are not admissible: in the first box, as power-simulation says its replications'
+    notice = _fit_notice(result)
+    if kept:
+        notice = replace(notice, lines=notice.lines + (kept,)) if notice is not None else _notice([], [kept])
     # the fit's notes on its rows (rows left out, rows with gaps) first, beside the notes on the estimation
-    return Report(ResultKind.CUTOFFS, f"Model-specific fit cutoffs for {result.model_name}", _fit_notice(result), lines,
+    return Report(ResultKind.CUTOFFS, f"Model-specific fit cutoffs for {result.model_name}", notice, lines,
                   (table,), tuple(notes), ("These cutoffs hold for this model, sample size and kind of misspecification "
                                            "only; they are guides, not laws.", HIGH_STAKES_NOTE),
-                  warnings=tuple(result.warnings) + ((kept,) if kept else ()) + ((few,) if few else ()))
+                  warnings=tuple(result.warnings) + ((few,) if few else ()))
 
 
 #: how a fit index on either side of a simulated cutoff reads (McNeish & Wolf 2023): the cutoff is a value that most

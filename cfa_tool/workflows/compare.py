@@ -18,7 +18,7 @@ from cfa_tool.assessment.admissibility import solution_first
 from cfa_tool.data.answer_words import (code_answer_words, coding_json, refuse_different_codings,
                                         refuse_for_summary_statistics)
 from cfa_tool.data.labels import label_notes
-from cfa_tool.data.matching import check_columns, chosen_columns
+from cfa_tool.data.matching import check_columns, check_declared_ranges, chosen_columns
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary, design_weights
@@ -159,6 +159,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                                                 missing_codes=missing_codes_option(missing_codes))  # as fit reads them
         coded |= set(spec.observed_names)
         notes = list(notes) + coding_notes
+        check_declared_ranges(spec, frame, source, loaded.value_labels)  # every model's 'reversed ... on' scale
     without_group = 0
     if group is not None and group in frame.columns:  # rows without a group value: left out, and said
         has_group = frame[group].notna().to_numpy()

@@ -34,7 +34,7 @@ from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.method import MissingData
-from cfa_tool.assessment.admissibility import counted_problems, replicated_problems
+from cfa_tool.assessment.admissibility import counted_problems, refuse_inadmissible_fit, replicated_problems
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, model_structure, moments_from_rows, replicate_fits
 from cfa_tool.pipeline.inputs import (_fit_rows, converged, odd_values_named, ordinal_items_of, read_inputs_with_notes,
                                       refit_missing_handling, with_odd_values)
@@ -199,6 +199,15 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
     samples take."""
     if result.multigroup or not result.converged or result.fit is None:
         raise OptionError("model-specific cutoffs need a converged single-group fit")
+    if result.fit.df == 0:  # it reproduces any data: every sample's CFI is 1 and its SRMR 0, misspecified or not
+        raise OptionError(f"{spec.source}: the model has no degrees of freedom (as many free parameters as "
+                          f"statistics), so it reproduces any data and has no fit to judge: no sample size or cutoff "
+                          f"can tell it from a misspecified one; cutoffs apply to a model with degrees of freedom")
+    # the samples are drawn from the fitted model: an impossible solution is no population (the rule of
+    # power-simulation and simulate for a saved fit, in the same words)
+    refuse_inadmissible_fit(result.problems, f"{spec.source} fitted to {result.data.source}",
+                            "it cannot serve as a population",
+                            remedy="simulate its cutoffs")
     replications, seed = cutoff_options(replications, seed, workers)
     n = result.n_obs
     seeds = np.random.SeedSequence(seed)

@@ -196,6 +196,42 @@ def _fixed_differences(spec: Spec, population: GroupPopulation) -> None:
         raise ModelError(message, ref.location, spec.source_line(ref.location))
 
 
+def _scaled_alike(spec: Spec, labels: tuple[str, ...], configural: Spec) -> None:
+    """An error at the 'in group' statement that scales a factor differently in some group (another marker, or its
+    variance instead of a loading): the factor is then not on the same metric in every group (the words of the
+    invariance report's methods text), so the loadings the metric step holds equal are in different units, and a
+    population difference in them is partly the scales' difference, which no step can test: the plan would report a
+    false-alarm rate where the groups differ (hostile tester s14)."""
+    from cfa_tool.model.description import describe
+    from cfa_tool.model.parameters import build_parameter_table
+
+    d = describe(configural, build_parameter_table(configural, labels))
+    if not d.group_scales:
+        return
+    first = {s.factor: s for s in d.scales}
+    factor, how = next((s.factor, [(label, t) for label, scales in d.group_scales for t in scales
+                                   if t.factor == s.factor]) for s in d.scales
+                       if any(t.factor == s.factor and t != s for _, scales in d.group_scales for t in scales))
+
+    def words(scale) -> str:
+        if scale.method == "marker":
+            return f"by the loading of {scale.marker}"
+        return {"variance": "by its variance", "effects": "by effects coding"}.get(scale.method,
+                                                                                  "by a value the model fixes")
+
+    ways = "; ".join(f"{words(t)} in group '{label}'" for label, t in how)
+    settings = ([r for r in spec.freed] + [r for s in spec.fixed for r in s.refs])
+    ref = next((r for r in settings if r.group is not None and r.names[0] == factor
+                and r.kind in ("loading", "variance")), None)
+    location = ref.location if ref is not None else None
+    raise ModelError(f"factor '{factor}' is scaled differently in different groups ({ways}), so it is not on the same "
+                     f"metric in every group: the loadings the metric step holds equal are in different units, and a "
+                     f"difference between the groups' loadings cannot be told from the scales' difference, so no step "
+                     f"tests it; scale '{factor}' alike in every group ({words(first[factor])}) and give a difference "
+                     f"in a loading with 'in group NAME: start loading(...) = VALUE'", location,
+                     spec.source_line(location))
+
+
 def _fit_ladder(ladder: tuple[tuple[str, Spec], ...], groups: list, alpha: float | None) -> list:
     """Each level's (estimation, result, difference test against the level before or None), fitted and tested
     as the invariance command fits and tests them (:class:`~cfa_tool.workflows.invariance.NormalLadder`); the
@@ -313,7 +349,9 @@ def invariance_power(model, group_sizes, replications: int = 500, seed: int = 1,
             raise OptionError(f"{sum(design):,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} "
                               f"values per simulated data set; plan with smaller groups")
     ladder = _ladder_of(spec, highest_level)
-    population = group_population(spec, labels, spec_of_level(spec, LEVELS[0][1], spec.noninvariant))
+    configural = spec_of_level(spec, LEVELS[0][1], spec.noninvariant)
+    population = group_population(spec, labels, configural)  # first: it names a group the sizes do not give
+    _scaled_alike(spec, labels, configural)
     _fixed_differences(spec, population)
     _differences_tested(spec, population, highest_level)
     truth = [_population_steps(population, ladder, design) for design in designs]

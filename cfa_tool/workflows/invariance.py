@@ -374,6 +374,9 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             fit_options = design_test(fit_options, design)
     gaps = False  # rows with gaps fitted by full-information ML
     if ordinal_items:
+        from cfa_tool.pipeline.ordinal import refuse_fixed_residual_variances_in_ladder
+
+        refuse_fixed_residual_variances_in_ladder(spec, ordinal_items)
         pairwise = check_ordinal_options(fit_options)
         if rule is not DecisionRule.DIFFERENCE_TEST:
             raise OptionError("with ordinal items the fit indices of each step come from its own adjusted statistic and "
@@ -972,9 +975,10 @@ def _ref_names(candidate: ModificationIndex) -> tuple[str, ...]:
 
 
 def ref_kind(kind: str) -> str:
-    """The word a model statement names a parameter kind by (residual variances and covariances as variance(x),
-    covariance(x, y))."""
-    return {"residual_variance": "variance", "residual_covariance": "covariance"}.get(kind, kind)
+    """The word a model statement names a parameter kind by (residual and factor variances and covariances as
+    variance(x), covariance(x, y))."""
+    return {"residual_variance": "variance", "residual_covariance": "covariance", "factor_variance": "variance",
+            "factor_covariance": "covariance"}.get(kind, kind)
 
 
 def _may_free(candidate: ModificationIndex, exceptions: list[ParameterRef], spec: Spec, kinds: tuple[str, ...]) -> bool:

@@ -173,9 +173,10 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
     one-group ordinal model (the latent responses' residual variances follow from their unit variances), whose
     population values are the population's on the latent responses' scale."""
     from cfa_tool.model.parameters import build_parameter_table
-    from cfa_tool.pipeline.ordinal import ordinal_spec
+    from cfa_tool.pipeline.ordinal import ordinal_spec, refuse_set_residual_variances
     from cfa_tool.workflows.ordinal_resampling import OrdinalFitting, simulated_fit
 
+    refuse_set_residual_variances(spec)  # the statement's line first, before the variances it makes differ from 1
     variances = np.diag(population.sigma)
     if np.abs(variances - 1.0).max() > 1e-6:
         k = int(np.argmax(np.abs(variances - 1.0)))

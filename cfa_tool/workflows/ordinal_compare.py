@@ -21,7 +21,7 @@ from cfa_tool.assessment.admissibility import ProblemKind, not_identified
 from cfa_tool.errors import NotIdentified, OptionError, estimation_of
 from cfa_tool.estimation.optimizer import minimise
 from cfa_tool.method import DifferenceMethod
-from cfa_tool.pipeline.ordinal import assess_ordinal_groups, estimate_ordinal_groups, ordinal_difference
+from cfa_tool.pipeline.ordinal import assess_ordinal_groups, refuse_set_residual_variances, estimate_ordinal_groups, ordinal_difference
 from cfa_tool.workflows.nesting import NESTING_TOLERANCE, DifferenceTest, same_degrees_of_freedom
 
 
@@ -41,7 +41,8 @@ def fit_ordinal_models(specs, complete, source, group, reference_group, fit_opti
                           "correlations are the data); give every model the same indicators")
     estimations, results = [], []
     for spec in specs:
-        if group is None:
+        if group is None:  # one group: the rule of 'fit' (pipeline.ordinal.ordinal_spec), whatever the estimator here
+            refuse_set_residual_variances(spec)
             groups = [(None, ordinal_design_covariance(ordinal_moments(complete, spec.observed_names, source,
                                                                         frozenset(items - ordinal_items), design=design,
                                                                         pairwise=pairwise)))]

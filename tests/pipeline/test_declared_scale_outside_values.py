@@ -40,3 +40,19 @@ def test_the_declared_scale_holds_also_for_the_rows_with_a_group_label():
     declared = cfa_tool.fit(MODEL + "reversed on_time on 1 to 7\n", data, group="district")
     assert _outside(declared) == []
     assert len(_outside(cfa_tool.fit(MODEL, data, group="district"))) == 1
+
+
+def test_compare_checks_every_models_declared_scale():
+    # the demo's answers run 1 to 5: a second model declaring short_wait on 1 to 4 was not checked (only the first
+    # model's scales were), so the comparison ran and its methods text repeated the wrong scale (hostile tester s14)
+    import pandas as pd
+    import pytest
+
+    from cfa_tool.errors import ModelError
+
+    data = pd.read_csv(resource_dir("demo") / "rider_survey.csv")
+    assert data["short_wait"].max() == 5
+    narrow = MODEL + "reversed short_wait on 1 to 4\n"
+    for models in ([MODEL, narrow], [narrow, MODEL]):
+        with pytest.raises(ModelError, match="holds answers outside the scale 1 to 4 declared here: 'short_wait' 5"):
+            cfa_tool.compare(models, data)

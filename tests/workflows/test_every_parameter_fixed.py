@@ -100,3 +100,20 @@ def test_the_bootstrap_of_a_fully_fixed_model_says_there_is_nothing_to_interval(
     assert not [t for t in report.tables if t.key == "bootstrap_intervals"]
     assert any(line.startswith("The model fixes every parameter, so there are no estimates to give intervals for")
                for line in report.lines)
+
+
+def test_the_methods_text_of_fully_fixed_groups_says_what_holds_across_them():
+    # nothing was estimated, so "the parameters were estimated separately in each group" with "no invariance
+    # constraints" was false: every parameter holds its stated value in every group (hostile tester s14)
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    data = _answers(400).assign(grp=np.where(np.arange(400) < 200, "north", "south"))
+    stated = POPULATION + ("fix intercept(a1), intercept(a2), intercept(a3), intercept(a4) = 0\nfix mean(f) = 0\n")
+    text = " ".join(methods_paragraph(cfa_tool.fit(stated, data, group="grp")).split())
+    assert ("Every parameter was fixed at the same stated value in every group, so the groups were held to one model "
+            "(each parameter equal across groups).") in text
+    assert "No invariance constraints" not in text and "estimated separately" not in text
+    apart = " ".join(methods_paragraph(cfa_tool.fit(stated + "in group south: fix intercept(a2) = 0.3\n", data,
+                                                    group="grp")).split())
+    assert ("Every parameter was fixed at a stated value in every group, the same value in each group except the "
+            "intercept of a2, stated differently for different groups.") in apart

@@ -586,22 +586,54 @@ def test_bootstrap_workers_judge_admissibility_as_one_process_does():
 
 
 def test_cutoffs_count_samples_whose_solution_is_not_admissible():
-    # a fit whose residual variance of y4 is held at its bound of zero: the samples drawn from the fitted model have
-    # that parameter on the boundary, where an estimate lands on the bound in about half of the samples (Self &
-    # Liang 1987); a fit calls such a solution not admissible, and the cutoffs' report now says how many samples so
-    from cfa_tool.assessment.admissibility import ProblemKind
+    # an item whose residual variance is estimated near zero (.020, admissible; the seed-1 rows of the population of
+    # _near_zero_rows): in samples of N = 80 drawn from the fitted model its estimate falls below zero in a share near
+    # Phi(-estimate / SE) (the estimate's asymptotic normal distribution, by scipy); a fit calls such a solution not
+    # admissible, and the cutoffs' report says how many samples so, in its first box as power-simulation says its
+    # replications' (hostile tester s14: it was a plain note)
+    from scipy import stats
+
     from cfa_tool.reporting.reports import report_of
 
-    model, data = NEAR_ZERO_MODEL, _near_zero_rows()
-    cut = cfa_tool.cutoffs(model + "bound variance(y4) >= 0\n", data, replications=100, seed=2, workers=1)
-    assert any(p.kind is ProblemKind.ON_BOUND for p in cut.fit.problems)
+    data = simulate(parse_model(NEAR_ZERO_MODEL + "start variance(f) = 0.9\nstart loading(f, y2), loading(f, y3) = 0.7\n"
+                                "start loading(f, y4) = 1\nstart variance(y4) = 0.05\n"
+                                "start variance(y1), variance(y2), variance(y3) = 0.5\n"), 80, seed=1).frame
+    cut = cfa_tool.cutoffs(NEAR_ZERO_MODEL, data, replications=100, seed=2, workers=1)
+    assert cut.fit.admissible
+    y4 = next(r for r in cut.fit.estimates if r.kind == "residual_variance" and r.variables == ("y4",))
+    assert 0 < y4.estimate < 0.05
     (count, named), _ = cut.inadmissible
-    assert count / cut.converged_correct == pytest.approx(0.5, abs=0.15)  # 4 binomial SDs of 100 samples
-    assert named == f"the residual variance of y4 held at a bound in {count}"
-    assert any(w.startswith(f"{count} of the {cut.converged_correct} converged samples from the fitted model")
-               for w in report_of(cut).warnings)
+    expected = stats.norm.cdf(-y4.estimate / y4.se)  # about .34
+    assert count / cut.converged_correct == pytest.approx(expected, abs=0.2)  # 4 binomial SDs of 100 samples
+    assert named == f"negative residual variance (the residual variance of y4) in {count}"
+    report = report_of(cut)
+    said = (f"{count} of the {cut.converged_correct} converged samples from the fitted model (negative residual "
+            f"variance (the residual variance of y4) in {count}) have a solution that is not admissible")
+    assert report.notice is not None and any(line.startswith(said) for line in report.notice.lines)
+    assert not any("not admissible" in w for w in report.warnings)
     assert " ".join(cut.summary(width=400).split()).count("not admissible, as a single fit would judge it") == 1
     assert cut.to_dict()["result"]["inadmissible_correct"] == count
+
+
+def test_cutoffs_refuse_a_fitted_population_that_is_not_admissible():
+    # the fitted model is the population the samples are drawn from: one whose residual variance of y4 is held at
+    # its bound of zero (or negative) is no population, as power-simulation --population-from refuses it, in the
+    # same words (hostile tester s14: cutoffs simulated from it)
+    model, data = NEAR_ZERO_MODEL, _near_zero_rows()
+    words = (r"the fitted solution is not admissible \(it has {}\), so it cannot serve as a population; fit a model "
+             r"whose solution is admissible and simulate its cutoffs")
+    with pytest.raises(OptionError, match=words.format(r"a negative residual variance of y4 \(-0.07\)")):
+        cfa_tool.cutoffs(model, data, replications=20, seed=2, workers=1)
+    with pytest.raises(OptionError, match=words.format(r"the residual variance of y4 held at a bound")):
+        cfa_tool.cutoffs(model + "bound variance(y4) >= 0\n", data, replications=20, seed=2, workers=1)
+
+
+def test_cutoffs_of_a_model_without_degrees_of_freedom_are_refused():
+    # three items on one factor: 0 df, so every sample's CFI is 1 and SRMR 0 whatever the population, and no N can
+    # separate the two (hostile tester s14: it simulated up to 16 times N and advised more data)
+    data = _near_zero_rows()
+    with pytest.raises(OptionError, match="the model has no degrees of freedom .* has no fit to judge"):
+        cfa_tool.cutoffs("factor f: y1, y2, y3\n", data, replications=20, seed=2, workers=1)
 
 
 def test_ordinal_power_simulation_counts_estimates_held_at_a_bound():
