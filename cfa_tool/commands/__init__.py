@@ -19,8 +19,11 @@ MODULES = {name: f"cfa_tool.commands.{name.replace('-', '_')}" for name in (
 def add_parsers(sub, command: str | None = None) -> None:
     """Every command's subparser, or only ``command``'s when it names one (a run needs no other; an unknown
     word, help or nothing gets them all, so that the help and the error list every command)."""
+    from cfa_tool.commands.options import refuse_missing_helpers
+
     for module in ([MODULES[command]] if command in MODULES else MODULES.values()):
         import_module(module).add_parser(sub)
+    refuse_missing_helpers(sub)
 
 
 def handles(command: str | None) -> bool:

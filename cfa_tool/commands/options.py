@@ -156,6 +156,52 @@ def design_args(args: argparse.Namespace) -> dict:
     return {"weights": args.weights, "weight_kind": args.weight_kind, "cluster": args.cluster, "strata": args.strata}
 
 
+#: the reading options (:func:`add_data_options`) as the workflows' keywords, each with its value when not given
+READING_DEFAULTS = {"sheet": None, "names_row": None, "first_data_row": None, "missing_codes": (), "keep": [],
+                    "rename": []}
+
+
+def reading_args(args: argparse.Namespace) -> dict:
+    """How the command line asks the data file to be read, as the workflows' keywords: the sheet, the rows of names
+    and of the first data, the missing-value codes, the renamed columns and the rows kept (the --keep filters, then
+    the half of --half: commands.common.kept_rows).  A command without these options (demo) reads with the
+    :data:`READING_DEFAULTS`."""
+    from cfa_tool.commands.common import kept_rows
+
+    given = {name: getattr(args, name, default) for name, default in READING_DEFAULTS.items()}
+    return given | {"keep": kept_rows(args)}
+
+
+#: replicate's options that read the --validation file, each with the option that reads --data instead
+VALIDATION_READING = (("validation_names_row", "--validation-names-row", "names the row of column names of",
+                       "the row of --data is given with --names-row"),
+                      ("validation_rename", "--validation-rename", "renames columns of",
+                       "the columns of --data are renamed with --rename"),
+                      ("validation_first_data_row", "--validation-first-data-row", "names the first row of data of",
+                       "that of --data is given with --first-data-row"))
+
+
+def refuse_validation_reading(args: argparse.Namespace) -> None:
+    """replicate's options that read the --validation file, given without one: an error naming the option to use."""
+    for dest, option, does, instead in VALIDATION_READING:
+        if getattr(args, dest) not in (None, []) and not args.validation:
+            raise OptionError(f"{option} {does} the --validation file, and no --validation file is given; {instead}")
+
+
+#: the commands that carry missing-data helpers (auxiliary variables) into their fits
+MISSING_HELPERS_COMMANDS = frozenset({"fit"})
+
+
+def refuse_missing_helpers(sub) -> None:
+    """--missing-helpers (auxiliary variables in the full-information likelihood) on every command of ``sub`` (the
+    subparsers) that does not carry them into its fits (:data:`MISSING_HELPERS_COMMANDS`): a one-line error, never
+    ignored."""
+    for name, parser in sub.choices.items():
+        if name not in MISSING_HELPERS_COMMANDS:
+            parser.add_argument("--missing-helpers", action=CannotApply, dest="_refused_missing_helpers",
+                                why="missing-data helpers (auxiliary variables) are offered by fit only so far")
+
+
 def add_run_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--seed", type=int, default=1, help="random seed (default 1); the same seed gives the same result")
     p.add_argument("--workers", type=int, help="local processes (default: one per core)")
