@@ -31,4 +31,10 @@ def handles(command: str | None) -> bool:
 
 
 def run(args: argparse.Namespace) -> int:
-    return import_module(MODULES[args.command]).run(args)
+    """Run the command of ``args``, the words of --missing-codes read as no answer throughout its run
+    (data.non_answers.also_no_answer)."""
+    from cfa_tool.commands.options import no_answer_words
+    from cfa_tool.data.non_answers import also_no_answer
+
+    with also_no_answer(no_answer_words(args)):
+        return import_module(MODULES[args.command]).run(args)

@@ -14,12 +14,18 @@ researcher can see and undo the reading (by another label in a copy of the file)
 The words are the project's own list of the phrases survey files commonly use for non-answers (common practice
 of survey data management, not a published standard); a label counts when, in lower case and with punctuation
 and extra spaces ignored, it is one of the phrases or several joined by '/', ',' or 'or' ("don't know / refused").
+A run adds its own words (those a researcher gives with --missing-codes, such as 'Ne sait pas': :func:`also_no_answer`),
+read and named exactly as the listed ones.  Two marks are compared as written, not as words: '#NULL!' (what a
+statistics package writes into a spreadsheet for a system-missing value) and a lone '-'.
 """
 
 from __future__ import annotations
 
+import contextlib
+import contextvars
 import enum
 import re
+from collections.abc import Iterator
 from dataclasses import dataclass
 
 import numpy as np
@@ -52,26 +58,75 @@ MIDDLE_PHRASES = frozenset({"not sure", "unsure", "no opinion", "can t say", "ca
 
 SHOWN = 6  # columns a caution names before 'and N more'
 
+#: cells that say no answer by a mark, not a word (compared as written, spaces at the ends aside): '#NULL!', which a
+#: statistics package writes into a spreadsheet export for a system-missing value, and a lone dash
+NON_ANSWER_MARKS = frozenset({"#NULL!", "-"})
+
 
 def _plain(text: str) -> str:
     """Lower case; apostrophes, punctuation and runs of spaces as one space."""
     return " ".join(re.sub(r"[^\w]+", " ", text.lower().replace("_", " ")).split())
 
 
+@dataclass(frozen=True)
+class RunWords:
+    """The words a run adds to :data:`NON_ANSWER_PHRASES` (--missing-codes 'Ne sait pas'): as given, and as
+    compared (:func:`_plain`)."""
+
+    given: tuple[str, ...] = ()
+    phrases: frozenset[str] = frozenset()
+
+
+_RUN_WORDS: contextvars.ContextVar[RunWords] = contextvars.ContextVar("cfa_tool_no_answer_words", default=RunWords())
+
+
+@contextlib.contextmanager
+def also_no_answer(words: tuple[str, ...]) -> Iterator[None]:
+    """Within: ``words`` (a run's words of no answer, given with --missing-codes) say no answer as the listed phrases
+    do, in cells and value labels alike (:func:`says_no_answer`), and are read, counted and named as they are."""
+    token = _RUN_WORDS.set(RunWords(tuple(words), frozenset(_plain(w) for w in words) - {""}))
+    try:
+        yield
+    finally:
+        _RUN_WORDS.reset(token)
+
+
+def run_words() -> tuple[str, ...]:
+    """The words of no answer this run adds (:func:`also_no_answer`), as given."""
+    return _RUN_WORDS.get().given
+
+
 def says_no_answer(text, explained: bool = False) -> bool:
-    """Whether a value label or a cell's text says the value is not an answer: one of the phrases as a whole
-    ('N/A', 'DK/NA'), or several joined by '/', ',', ';', '&' or 'or' ("Don't know / refused").  Phrases are
-    compared as whole words, so 'Not at all', 'Never' or 'missing my bus' are answers.  ``explained`` (value
-    labels): a phrase followed, after such a separator, by words that explain it ('Not applicable / never ride')."""
+    """Whether a value label or a cell's text says the value is not an answer: one of the phrases (or of the run's
+    own words, :func:`also_no_answer`) as a whole ('N/A', 'DK/NA'), one of the :data:`NON_ANSWER_MARKS`, or several
+    phrases joined by '/', ',', ';', '&' or 'or' ("Don't know / refused").  Phrases are compared as whole words, so
+    'Not at all', 'Never' or 'missing my bus' are answers.  ``explained`` (value labels): a phrase followed, after
+    such a separator, by words that explain it ('Not applicable / never ride')."""
     if not isinstance(text, str) or not text.strip():
         return False
-    if _plain(text) in NON_ANSWER_PHRASES:
+    if text.strip() in NON_ANSWER_MARKS:
+        return True
+    own = _RUN_WORDS.get().phrases
+    phrases = NON_ANSWER_PHRASES | own if own else NON_ANSWER_PHRASES
+    if _plain(text) in phrases:
         return True
     parts = [_plain(p) for p in re.split(r"[/,;&]|\bor\b", text.lower())]
     parts = [p for p in parts if p]
     if not parts:
         return False
-    return all(p in NON_ANSWER_PHRASES for p in parts) or (explained and len(parts) > 1 and parts[0] in NON_ANSWER_PHRASES)
+    return all(p in phrases for p in parts) or (explained and len(parts) > 1 and parts[0] in phrases)
+
+
+def unused_run_words(found: tuple["NonAnswer", ...]) -> tuple[str, ...]:
+    """The run's words of no answer (:func:`also_no_answer`) that no value read as no answer (``found``: cells and
+    value labels of the items) says, as a mistyped word would leave them."""
+    said = set()
+    for f in found:
+        for text in (f.value, f.label):
+            if isinstance(text, str):
+                said.add(_plain(text))
+                said.update(_plain(p) for p in re.split(r"[/,;&]|\bor\b", text.lower()))
+    return tuple(w for w in run_words() if _plain(w) not in said)
 
 
 class NonAnswerKind(enum.Enum):
@@ -290,8 +345,10 @@ def written_non_answers(frame: pd.DataFrame, keep_text: tuple[str, ...] = (),
         said = [v for v in distinct if says_no_answer(v) and answer_key(v) not in coded]  # distinct texts
         if said and any(number(v.strip()) is None for v in distinct if v not in said):
             # a column of words (answers recorded as words, group labels): a middle answer such as 'Not sure' is
-            # one of its answers, never read as missing (an 'answers' statement codes it)
-            said = [v for v in said if _plain(v) not in MIDDLE_PHRASES]
+            # one of its answers, never read as missing (an 'answers' statement codes it), unless the run's own
+            # words (--missing-codes) say it is no answer
+            own = _RUN_WORDS.get().phrases
+            said = [v for v in said if _plain(v) not in MIDDLE_PHRASES or _plain(v) in own]
         if not said:
             continue
         texts = series.isin(said).to_numpy(dtype=bool)
