@@ -45,20 +45,21 @@ class _Once(argparse.Action):
     def __call__(self, parser, namespace, values, option_string=None):
         seen = namespace.__dict__.setdefault("_given_options", set())
         if self.dest in seen:
-            parser.error(f"{option_string} is given twice; give it once" + _second_time_hint(parser, self.dest))
+            parser.error(f"{option_string} is given twice; give it once" + _second_time_hint(namespace, self.dest))
         seen.add(self.dest)
         setattr(namespace, self.dest, values)
 
 
-def _second_time_hint(parser: argparse.ArgumentParser, dest: str) -> str:
+def _second_time_hint(namespace: argparse.Namespace, dest: str) -> str:
     """What to do instead of giving an option twice: several missing codes go in one list; samples in two data
-    files go in one file with a column naming each row's sample (the commands that take groups), or are compared
-    by 'replicate'."""
+    files go in one file with a column naming each row's sample (the commands that take groups: their parser set the
+    group column's value, given or not, on ``namespace`` before reading the command line), or are compared by
+    'replicate'."""
     if dest == "missing_codes":
         return " (several values go in one comma-separated list)"
     if dest != "data":
         return ""
-    grouped = Option.GROUP_COLUMN.flag in parser._option_string_actions
+    grouped = Option.GROUP_COLUMN.keyword in vars(namespace)
     together = (f"to analyse samples from two files together, put their rows in one file with a column naming each "
                 f"row's sample and give that column with {Option.GROUP_COLUMN.flag}; " if grouped else "")
     return f" ({together}to test a model fitted on one file in another, use '{PROG} replicate')"
@@ -74,19 +75,7 @@ def build_parser(command: str | None = None) -> argparse.ArgumentParser:
     from cfa_tool import commands
 
     commands.add_parsers(sub, command)  # one module per command (cfa_tool/commands/)
-    _refuse_missing_helpers(sub)
     return parser
-
-
-def _refuse_missing_helpers(sub) -> None:
-    """--missing-helpers (auxiliary variables in the full-information likelihood) on any command but fit: a
-    one-line error, never ignored (the other commands do not carry the helpers into their fits yet)."""
-    from cfa_tool.commands.options import CannotApply
-
-    for name, parser in sub.choices.items():
-        if name != "fit":
-            parser.add_argument("--missing-helpers", action=CannotApply, dest="_refused_missing_helpers",
-                                why="missing-data helpers (auxiliary variables) are offered by fit only so far")
 
 
 def _version() -> str:

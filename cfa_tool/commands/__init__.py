@@ -19,8 +19,11 @@ MODULES = {name: f"cfa_tool.commands.{name.replace('-', '_')}" for name in (
 def add_parsers(sub, command: str | None = None) -> None:
     """Every command's subparser, or only ``command``'s when it names one (a run needs no other; an unknown
     word, help or nothing gets them all, so that the help and the error list every command)."""
+    from cfa_tool.commands.options import refuse_missing_helpers
+
     for module in ([MODULES[command]] if command in MODULES else MODULES.values()):
         import_module(module).add_parser(sub)
+    refuse_missing_helpers(sub)
 
 
 def handles(command: str | None) -> bool:
@@ -28,4 +31,10 @@ def handles(command: str | None) -> bool:
 
 
 def run(args: argparse.Namespace) -> int:
-    return import_module(MODULES[args.command]).run(args)
+    """Run the command of ``args``, the words of --missing-codes read as no answer throughout its run
+    (data.non_answers.also_no_answer)."""
+    from cfa_tool.commands.options import no_answer_words
+    from cfa_tool.data.non_answers import also_no_answer
+
+    with also_no_answer(no_answer_words(args)):
+        return import_module(MODULES[args.command]).run(args)

@@ -49,6 +49,6 @@ def run(args: argparse.Namespace) -> int:
                           "or the other")
     result = align(Path(args.model), args.data, args.group, reference_group=args.reference_group,
                    reference_mean=args.reference_mean, flag_level=args.flag_level, trials=args.trials, seed=1 if args.seed is None else args.seed,
-                   sheet=args.sheet, names_row=args.names_row, first_data_row=args.first_data_row, missing_codes=args.missing_codes, keep=args.keep, rename=args.rename, missing=args.missing,
+                   **O.reading_args(args), missing=args.missing,
                    max_iterations=args.max_iterations)
     return emit_report(args, result, [args.model, args.data])

@@ -24,7 +24,6 @@ def run(args: argparse.Namespace) -> int:
     check_output(args, inputs_of(args))
     with progress(args.command) as advance:
         result = bootstrap(Path(args.model), args.data, args.replications, args.seed, workers=args.workers,
-                           scheduler=args.scheduler, progress=advance, sheet=args.sheet, names_row=args.names_row, first_data_row=args.first_data_row,
-                           missing_codes=args.missing_codes, keep=args.keep, rename=args.rename, ordinal=O.ordinal_arg(args.ordinal),
+                           scheduler=args.scheduler, progress=advance, **O.reading_args(args), ordinal=O.ordinal_arg(args.ordinal),
                            ordinal_estimator=args.ordinal_estimator, missing=args.missing, **O.design_args(args))
     return emit(args, result)

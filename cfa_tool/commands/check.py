@@ -6,7 +6,7 @@ import argparse
 from pathlib import Path
 
 from cfa_tool.commands import options as O
-from cfa_tool.commands.common import add_half_option, add_report_options, kept_rows, check_output, emit, inputs_of
+from cfa_tool.commands.common import add_half_option, add_report_options, check_output, emit, inputs_of
 
 
 def add_parser(sub) -> None:
@@ -25,6 +25,5 @@ def run(args: argparse.Namespace) -> int:
     from cfa_tool.pipeline.inputs import check
 
     check_output(args, inputs_of(args))
-    found = check(Path(args.model), args.data, group=args.group, sheet=args.sheet, names_row=args.names_row, first_data_row=args.first_data_row, missing_codes=args.missing_codes,
-                  keep=kept_rows(args), rename=args.rename, **O.design_args(args))
+    found = check(Path(args.model), args.data, group=args.group, **O.reading_args(args), **O.design_args(args))
     return emit(args, found)

@@ -27,6 +27,6 @@ def run(args: argparse.Namespace) -> int:
 
     check_output(args, inputs_of(args))
     result = compare([Path(m) for m in args.models], args.data, group=args.group, reference_group=args.reference_group,
-                     test=O.fit_test(args), missing=args.missing, sheet=args.sheet, names_row=args.names_row, first_data_row=args.first_data_row, missing_codes=args.missing_codes, keep=args.keep, rename=args.rename,
+                     test=O.fit_test(args), missing=args.missing, **O.reading_args(args),
                      ordinal=O.ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator, **O.design_args(args))
     return emit(args, result)

@@ -15,9 +15,8 @@ def add_parser(sub) -> None:
 def run(args: argparse.Namespace) -> int:
     from cfa_tool.resources import resource_dir
 
-    args.group = args.reference_group = args.sheet = args.names_row = args.first_data_row = None
+    args.group = args.reference_group = None  # read as fit reads a file without the reading options (options.reading_args)
     args.weights = args.weight_kind = args.cluster = args.strata = None
-    args.missing_codes, args.keep, args.rename = (), [], []
     args.model = str(resource_dir("models") / "rider_three_factors.cfa")
     args.data = str(resource_dir("demo") / "rider_survey.csv")
     return fit.run(args)

@@ -66,7 +66,7 @@ def run(args: argparse.Namespace) -> int:
     rotation = args.rotation or ("target" if args.target else "quartimin")
     result = explore(args.data, items=args.items, factors=args.factors, rotation=rotation,
                      extraction=args.extraction, ordinal=O.ordinal_arg(args.ordinal), split=args.split,
-                     sheet=args.sheet, names_row=args.names_row, first_data_row=args.first_data_row, missing_codes=args.missing_codes, keep=args.keep, rename=args.rename,
+                     **O.reading_args(args),
                      replications=args.replications, seed=args.seed, target=args.target, answers=args.answers)
     files = [("--draft", result.draft_text, f"Draft model written to {args.draft}")] if args.draft else []
     if result.split is not None:

@@ -6,7 +6,7 @@ import argparse
 from pathlib import Path
 
 from cfa_tool.commands import options as O
-from cfa_tool.commands.common import add_half_option, add_report_options, kept_rows, check_output, diagram_files, emit, inputs_of
+from cfa_tool.commands.common import add_half_option, add_report_options, check_output, diagram_files, emit, inputs_of
 from cfa_tool.method import Information
 
 
@@ -57,8 +57,8 @@ def run(args: argparse.Namespace) -> int:
 
     check_output(args, inputs_of(args))
     # a model file is a path, never model text (cfa_tool.pipeline.inputs.load_spec reads a Path as a file)
-    result = fit(Path(args.model), args.data, group=args.group, reference_group=args.reference_group, sheet=args.sheet, names_row=args.names_row, first_data_row=args.first_data_row,
-                 missing_codes=args.missing_codes, keep=kept_rows(args), rename=args.rename, information=args.information,
+    result = fit(Path(args.model), args.data, group=args.group, reference_group=args.reference_group,
+                 **O.reading_args(args), information=args.information,
                  mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations,
                  test=O.fit_test(args), missing=args.missing, ordinal=O.ordinal_arg(args.ordinal),
                  ordinal_estimator=args.ordinal_estimator, id_column=getattr(args, "id", None), **O.design_args(args),

@@ -35,9 +35,8 @@ def run(args: argparse.Namespace) -> int:
     check_output(args, inputs_of(args))
     with progress("invariance: fits") as advance:
         result = invariance(Path(args.model), args.data, args.group, reference_group=args.reference_group,
-                            partial=args.partial, alpha=args.alpha, decide_by=args.decide_by, sheet=args.sheet, names_row=args.names_row, first_data_row=args.first_data_row,
-                            test=O.fit_test(args),
-                            missing_codes=args.missing_codes, keep=args.keep, rename=args.rename, ordinal=O.ordinal_arg(args.ordinal),
+                            partial=args.partial, alpha=args.alpha, decide_by=args.decide_by, test=O.fit_test(args),
+                            ordinal=O.ordinal_arg(args.ordinal),
                             ordinal_estimator=args.ordinal_estimator, missing=args.missing, progress=advance,
-                            **O.design_args(args))
+                            **O.reading_args(args), **O.design_args(args))
     return emit(args, result)

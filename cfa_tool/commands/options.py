@@ -42,7 +42,10 @@ def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
                         "when rows between it and the column names hold other headings such as question texts; those "
                         "rows are not read (default: the row under the column names)")
     p.add_argument("--missing-codes", metavar="LIST", type=_codes, default=(),
-                   help="comma-separated values that mean 'no answer', e.g. -99,999")
+                   help="comma-separated values that mean 'no answer' in the model's items: numbers (codes), e.g. "
+                        "-99,999, and words, e.g. '-99,Ne sait pas', read as no answer, counted and named as the words "
+                        "the tool knows (refused, don't know, N/A) are; a word that holds a comma goes in double "
+                        "quotes: '-99,\"No, not asked\"'")
     p.add_argument("--rename", metavar="OLD=NEW", action="append", default=[],
                    help="read the column OLD of the data file under the name NEW, e.g. SL3r=SL3_r, before anything "
                         "else looks at the names (the model and every option that names a column); several "
@@ -71,18 +74,28 @@ def _row_of_file(text: str, least: int, what: str) -> int:
     return value
 
 
-def _codes(text: str) -> tuple[float, ...]:
+def _codes(text: str) -> tuple[float | str, ...]:
+    """--missing-codes split at its commas (a value in double quotes may hold commas, as in a CSV line): each value a
+    number (a code) or a word, which must hold a letter (a mistyped number such as '9 9' is an error)."""
+    import csv
+
     from cfa_tool.numbers import number
 
-    codes = [number(t) for t in text.split(",") if t.strip()]
-    if not codes or any(c is None for c in codes):
-        from cfa_tool.data.readers import MISSING_MARKERS
-
+    values = [v.strip() for v in next(csv.reader([text], skipinitialspace=True), []) if v.strip()]
+    codes = [number(v) if number(v) is not None else v for v in values]
+    wrong = [v for v in codes if isinstance(v, str) and not any(c.isalpha() for c in v)]
+    if not codes or wrong:
         raise argparse.ArgumentTypeError(
-            f"missing codes must be numbers separated by commas, not '{text}' (cells written as "
-            f"{', '.join(MISSING_MARKERS[:-1])} or {MISSING_MARKERS[-1]} are read as no answer without this option; "
-            f"other words that mean no answer: replace them with empty cells in a copy of the file)")
+            f"missing codes must be numbers or words separated by commas, not '{text}'"
+            + (f" ('{wrong[0]}' is neither)" if wrong else "")
+            + "; a word that holds a comma goes in double quotes")
     return tuple(codes)
+
+
+def no_answer_words(args: argparse.Namespace) -> tuple[str, ...]:
+    """The words given with --missing-codes ('Ne sait pas'), which the run reads as no answer beside the words the
+    tool knows (data.non_answers.also_no_answer); the numbers are codes (:func:`reading_args`)."""
+    return tuple(v for v in getattr(args, "missing_codes", ()) if isinstance(v, str))
 
 
 GROUP_NOW = "name the column whose values are the groups with --group-column COLUMN"
@@ -154,6 +167,54 @@ def refuse_design_options(p: argparse.ArgumentParser, why: str) -> None:
 
 def design_args(args: argparse.Namespace) -> dict:
     return {"weights": args.weights, "weight_kind": args.weight_kind, "cluster": args.cluster, "strata": args.strata}
+
+
+#: the reading options (:func:`add_data_options`) as the workflows' keywords, each with its value when not given
+READING_DEFAULTS = {"sheet": None, "names_row": None, "first_data_row": None, "missing_codes": (), "keep": [],
+                    "rename": []}
+
+
+def reading_args(args: argparse.Namespace) -> dict:
+    """How the command line asks the data file to be read, as the workflows' keywords: the sheet, the rows of names
+    and of the first data, the missing-value codes, the renamed columns and the rows kept (the --keep filters, then
+    the half of --half: commands.common.kept_rows); of --missing-codes the numbers (its words:
+    :func:`no_answer_words`).  A command without these options (demo) reads with the
+    :data:`READING_DEFAULTS`."""
+    from cfa_tool.commands.common import kept_rows
+
+    given = {name: getattr(args, name, default) for name, default in READING_DEFAULTS.items()}
+    codes = tuple(v for v in given["missing_codes"] if not isinstance(v, str))  # the words: no_answer_words
+    return given | {"missing_codes": codes, "keep": kept_rows(args)}
+
+
+#: replicate's options that read the --validation file, each with the option that reads --data instead
+VALIDATION_READING = (("validation_names_row", "--validation-names-row", "names the row of column names of",
+                       "the row of --data is given with --names-row"),
+                      ("validation_rename", "--validation-rename", "renames columns of",
+                       "the columns of --data are renamed with --rename"),
+                      ("validation_first_data_row", "--validation-first-data-row", "names the first row of data of",
+                       "that of --data is given with --first-data-row"))
+
+
+def refuse_validation_reading(args: argparse.Namespace) -> None:
+    """replicate's options that read the --validation file, given without one: an error naming the option to use."""
+    for dest, option, does, instead in VALIDATION_READING:
+        if getattr(args, dest) not in (None, []) and not args.validation:
+            raise OptionError(f"{option} {does} the --validation file, and no --validation file is given; {instead}")
+
+
+#: the commands that carry missing-data helpers (auxiliary variables) into their fits
+MISSING_HELPERS_COMMANDS = frozenset({"fit"})
+
+
+def refuse_missing_helpers(sub) -> None:
+    """--missing-helpers (auxiliary variables in the full-information likelihood) on every command of ``sub`` (the
+    subparsers) that does not carry them into its fits (:data:`MISSING_HELPERS_COMMANDS`): a one-line error, never
+    ignored."""
+    for name, parser in sub.choices.items():
+        if name not in MISSING_HELPERS_COMMANDS:
+            parser.add_argument("--missing-helpers", action=CannotApply, dest="_refused_missing_helpers",
+                                why="missing-data helpers (auxiliary variables) are offered by fit only so far")
 
 
 def add_run_options(p: argparse.ArgumentParser) -> None:

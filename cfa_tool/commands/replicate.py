@@ -44,19 +44,9 @@ def run(args: argparse.Namespace) -> int:
     model = Path(args.model)
     if args.data and (args.calibration or args.validation):
         raise OptionError("give either --data (split-half) or --calibration and --validation, not both")
-    if args.validation_names_row is not None and not args.validation:
-        raise OptionError("--validation-names-row names the row of column names of the --validation file, and no "
-                          "--validation file is given; the row of --data is given with --names-row")
-    if args.validation_rename and not args.validation:
-        raise OptionError("--validation-rename renames columns of the --validation file, and no --validation file is "
-                          "given; the columns of --data are renamed with --rename")
-    if args.validation_first_data_row is not None and not args.validation:
-        raise OptionError("--validation-first-data-row names the first row of data of the --validation file, and no "
-                          "--validation file is given; that of --data is given with --first-data-row")
+    O.refuse_validation_reading(args)
     ordinal = {"ordinal": O.ordinal_arg(args.ordinal), "ordinal_estimator": args.ordinal_estimator,
-               "missing": args.missing, "sheet": args.sheet, "missing_codes": args.missing_codes,
-               "names_row": args.names_row, "first_data_row": args.first_data_row, "keep": args.keep,
-               "rename": args.rename}
+               "missing": args.missing, **O.reading_args(args)}
     if args.halves_file and not args.data:
         raise OptionError("--halves-file saves the random halves of one data file (--data), and --calibration and "
                           "--validation are not split")

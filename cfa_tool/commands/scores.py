@@ -84,13 +84,12 @@ def run(args: argparse.Namespace) -> int:
                 raise OptionError(f"{option} is about fitting the model, and with --from-fit the parameters come from "
                                   f"the earlier fit (its groups too), so it cannot apply; remove it")
         result = score_with_saved_fit(Path(args.model), args.from_fit, args.data, methods=_methods(args.method),
-                                      standard_errors=args.standard_errors, id_column=args.id, sheet=args.sheet, names_row=args.names_row, first_data_row=args.first_data_row,
-                                      missing_codes=args.missing_codes, keep=args.keep, rename=args.rename,
+                                      standard_errors=args.standard_errors, id_column=args.id, **O.reading_args(args),
                                       least_answered=args.least_answered)
     else:
         result = scores(Path(args.model), args.data, methods=_methods(args.method), standard_errors=args.standard_errors,
-                        id_column=args.id, group=args.group, reference_group=args.reference_group, sheet=args.sheet, names_row=args.names_row, first_data_row=args.first_data_row,
-                        missing_codes=args.missing_codes, keep=args.keep, rename=args.rename, ordinal=O.ordinal_arg(args.ordinal),
+                        id_column=args.id, group=args.group, reference_group=args.reference_group,
+                        **O.reading_args(args), ordinal=O.ordinal_arg(args.ordinal),
                         ordinal_estimator=args.ordinal_estimator, missing=args.missing,
                         max_iterations=args.max_iterations, least_answered=args.least_answered, **O.design_args(args))
     from cfa_tool.reporting.score_report import rows_scored

@@ -16,7 +16,7 @@ from dataclasses import replace
 from cfa_tool.data.kept_rows import row_naming, row_words, text_lines
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.missing_codes import missing_codes_note
-from cfa_tool.data.non_answers import says_no_answer
+from cfa_tool.data.non_answers import run_words, says_no_answer
 from cfa_tool.errors import DataError, Location, ModelError, OptionError, character_names, printable
 from cfa_tool.options import Option
 from cfa_tool.language.spec import AnswerCoding, AnswerWord, Name, Spec, answer_key
@@ -131,7 +131,16 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
 
 def _check_codes_of_answers(coding: AnswerCoding, no_answer: set[float]) -> None:
     """A code given with --missing-codes may stand for a word that means no answer ('Don't know' = 9), never for an
-    answer: '--missing-codes 5' with '"Always" = 5' would read every 'Always' as no answer."""
+    answer: '--missing-codes 5' with '"Always" = 5' would read every 'Always' as no answer.  A word given with
+    --missing-codes cannot be one the statement codes either (one of the two would be ignored)."""
+    given = {answer_key(w): w for w in run_words()}
+    coded = [a for a in coding.answers if a.word is not None and answer_key(a.word) in given]
+    if coded:  # a word of --missing-codes that the statement gives a code: one or the other, never silently
+        a = coded[0]
+        raise OptionError(f"{Option.MISSING_CODES.given(given[answer_key(a.word)])} reads '{printable(a.word)}' as no "
+                          f"answer, and {coding.origin} codes it as the answer {a.code:g}: leave it out of "
+                          f"{Option.MISSING_CODES} to analyse it as an answer, or out of the statement to read it as "
+                          f"no answer")
     answers = [a for a in coding.answers if a.code in no_answer and a.word is not None and not says_no_answer(a.word)]
     if answers:
         a = answers[0]

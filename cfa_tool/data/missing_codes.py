@@ -20,8 +20,8 @@ def missing_codes_note(source: str | Path, codes, read_as_none: list[tuple[str, 
     """What --missing-codes (``codes``) did in the data file ``source``: how many cells of which columns
     (``read_as_none``: (column, cells) pairs) were read as no answer, or that no cell holds any of the codes, as a
     mistyped code would leave it.  ``where``: which cells were looked at when not those of numbers ('of the items
-    coded by an 'answers' statement')."""
-    given = ", ".join(f"{c:g}" if isinstance(c, (int, float)) else printable(str(c)) for c in codes)
+    coded by an 'answers' statement'); ``codes`` may be words (--missing-codes 'Ne sait pas'), shown in quotes."""
+    given = ", ".join(f"{c:g}" if isinstance(c, (int, float)) else f"'{printable(str(c))}'" for c in codes)
     name = base_name(source)
     if not read_as_none:
         return f"{name}: no cell {where or 'of numbers'} holds any of the codes given with {Option.MISSING_CODES} ({given})"
@@ -30,6 +30,24 @@ def missing_codes_note(source: str | Path, codes, read_as_none: list[tuple[str, 
         f" and {len(read_as_none) - NAMED_COLUMNS} more column{'s' if len(read_as_none) - NAMED_COLUMNS != 1 else ''}" if len(read_as_none) > NAMED_COLUMNS else "")
     return (f"{name}: {total} {'cell' if total == 1 else 'cells'} {where + ' ' if where else ''}holding a code given "
             f"with {Option.MISSING_CODES} ({given}) {'was' if total == 1 else 'were'} read as no answer ({shown})")
+
+
+def words_given(words: list[str]) -> str:
+    """--missing-codes with ``words`` as a shell takes it: the list written as a CSV line (a word holding a comma in
+    double quotes, as the option reads it), words alike but for case once, the whole in double quotes when it holds
+    spaces or quotes: --missing-codes "Ne sait pas,\\"No, not asked\\""."""
+    import csv
+    import io
+
+    unique: dict[str, str] = {}
+    for word in words:
+        unique.setdefault(word.strip().casefold(), word.strip())
+    line = io.StringIO()
+    csv.writer(line, lineterminator="").writerow(unique.values())
+    text = line.getvalue()
+    if any(c.isspace() or c in "\"'\\$`" for c in text):
+        text = '"' + "".join("\\" + c if c in '"\\$`' else c for c in text) + '"'
+    return f"{Option.MISSING_CODES} {text}"
 
 
 def apply_missing_codes(frame: pd.DataFrame, codes, source: str | Path, items: Collection[str] | None = None,

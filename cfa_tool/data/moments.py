@@ -202,8 +202,19 @@ def stray_words(names, columns: list[pd.Series], source: str) -> None:
     raise DataError(f"{source}: {total} cells of {len(columns_with)} column{'s' if len(columns_with) != 1 else ''} "
                     f"({shown}) hold text among numbers: {listed}{more}; the first is '{printable(text[:40])}' in "
                     f"column '{printable(name)}', {where}. Correct those cells, or, if "
-                    f"{'the word means' if len(words) == 1 else 'the words mean'} no answer, leave them empty in a "
-                    f"copy of the file")
+                    f"{'the word means' if len(words) == 1 else 'the words mean'} no answer, "
+                    + _no_answer_advice([w for w, _ in words]))
+
+
+def _no_answer_advice(words: list[str], cells: str = "them") -> str:
+    """How to read words among numbers as no answer: on the command line, give them with --missing-codes
+    (data.missing_codes.words_given); in Python, leave the ``cells`` ('it': one) empty."""
+    from cfa_tool.data.missing_codes import words_given
+    from cfa_tool.options import Interface, interface
+
+    if interface() is not Interface.COMMAND_LINE:
+        return f"leave {cells} empty in a copy of the file"
+    return f"give {'it' if len(words) == 1 else 'them'} with {words_given(words[:STRAY_WORDS_SHOWN])}"
 
 
 def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
@@ -238,8 +249,8 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
             shown = printable(text if len(text) <= 40 else text[:37] + "...")
             if stray_text(values):  # a slip among numbers, not a column of words
                 raise DataError(f"{source}: column '{printable(name)}' holds text ('{shown}' in "
-                                f"{cell_words(column, name, numbers[row])}) among numbers; correct the cell, or leave "
-                                f"it empty for no answer")
+                                f"{cell_words(column, name, numbers[row])}) among numbers; correct the cell, or, if "
+                                f"the word means no answer, " + _no_answer_advice([text], "it"))
             raise DataError(f"{source}: column '{printable(name)}' is used as an indicator but holds text ('{shown}' in "
                             f"{cell_words(column, name, numbers[row])}); indicators must be numbers: {_recoding(text)}"
                             + _statement_hint(values))

@@ -14,12 +14,18 @@ researcher can see and undo the reading (by another label in a copy of the file)
 The words are the project's own list of the phrases survey files commonly use for non-answers (common practice
 of survey data management, not a published standard); a label counts when, in lower case and with punctuation
 and extra spaces ignored, it is one of the phrases or several joined by '/', ',' or 'or' ("don't know / refused").
+A run adds its own words (those a researcher gives with --missing-codes, such as 'Ne sait pas': :func:`also_no_answer`),
+read and named exactly as the listed ones.  Two marks are compared as written, not as words: '#NULL!' (what a
+statistics package writes into a spreadsheet for a system-missing value) and a lone '-'.
 """
 
 from __future__ import annotations
 
+import contextlib
+import contextvars
 import enum
 import re
+from collections.abc import Iterator
 from dataclasses import dataclass
 
 import numpy as np
@@ -52,26 +58,75 @@ MIDDLE_PHRASES = frozenset({"not sure", "unsure", "no opinion", "can t say", "ca
 
 SHOWN = 6  # columns a caution names before 'and N more'
 
+#: cells that say no answer by a mark, not a word (compared as written, spaces at the ends aside): '#NULL!', which a
+#: statistics package writes into a spreadsheet export for a system-missing value, and a lone dash
+NON_ANSWER_MARKS = frozenset({"#NULL!", "-"})
+
 
 def _plain(text: str) -> str:
     """Lower case; apostrophes, punctuation and runs of spaces as one space."""
     return " ".join(re.sub(r"[^\w]+", " ", text.lower().replace("_", " ")).split())
 
 
+@dataclass(frozen=True)
+class RunWords:
+    """The words a run adds to :data:`NON_ANSWER_PHRASES` (--missing-codes 'Ne sait pas'): as given, and as
+    compared (:func:`_plain`)."""
+
+    given: tuple[str, ...] = ()
+    phrases: frozenset[str] = frozenset()
+
+
+_RUN_WORDS: contextvars.ContextVar[RunWords] = contextvars.ContextVar("cfa_tool_no_answer_words", default=RunWords())
+
+
+@contextlib.contextmanager
+def also_no_answer(words: tuple[str, ...]) -> Iterator[None]:
+    """Within: ``words`` (a run's words of no answer, given with --missing-codes) say no answer as the listed phrases
+    do, in cells and value labels alike (:func:`says_no_answer`), and are read, counted and named as they are."""
+    token = _RUN_WORDS.set(RunWords(tuple(words), frozenset(_plain(w) for w in words) - {""}))
+    try:
+        yield
+    finally:
+        _RUN_WORDS.reset(token)
+
+
+def run_words() -> tuple[str, ...]:
+    """The words of no answer this run adds (:func:`also_no_answer`), as given."""
+    return _RUN_WORDS.get().given
+
+
 def says_no_answer(text, explained: bool = False) -> bool:
-    """Whether a value label or a cell's text says the value is not an answer: one of the phrases as a whole
-    ('N/A', 'DK/NA'), or several joined by '/', ',', ';', '&' or 'or' ("Don't know / refused").  Phrases are
-    compared as whole words, so 'Not at all', 'Never' or 'missing my bus' are answers.  ``explained`` (value
-    labels): a phrase followed, after such a separator, by words that explain it ('Not applicable / never ride')."""
+    """Whether a value label or a cell's text says the value is not an answer: one of the phrases (or of the run's
+    own words, :func:`also_no_answer`) as a whole ('N/A', 'DK/NA'), one of the :data:`NON_ANSWER_MARKS`, or several
+    phrases joined by '/', ',', ';', '&' or 'or' ("Don't know / refused").  Phrases are compared as whole words, so
+    'Not at all', 'Never' or 'missing my bus' are answers.  ``explained`` (value labels): a phrase followed, after
+    such a separator, by words that explain it ('Not applicable / never ride')."""
     if not isinstance(text, str) or not text.strip():
         return False
-    if _plain(text) in NON_ANSWER_PHRASES:
+    if text.strip() in NON_ANSWER_MARKS:
+        return True
+    own = _RUN_WORDS.get().phrases
+    phrases = NON_ANSWER_PHRASES | own if own else NON_ANSWER_PHRASES
+    if _plain(text) in phrases:
         return True
     parts = [_plain(p) for p in re.split(r"[/,;&]|\bor\b", text.lower())]
     parts = [p for p in parts if p]
     if not parts:
         return False
-    return all(p in NON_ANSWER_PHRASES for p in parts) or (explained and len(parts) > 1 and parts[0] in NON_ANSWER_PHRASES)
+    return all(p in phrases for p in parts) or (explained and len(parts) > 1 and parts[0] in phrases)
+
+
+def unused_run_words(found: tuple["NonAnswer", ...]) -> tuple[str, ...]:
+    """The run's words of no answer (:func:`also_no_answer`) that no value read as no answer (``found``: cells and
+    value labels of the items) says, as a mistyped word would leave them."""
+    said = set()
+    for f in found:
+        for text in (f.value, f.label):
+            if isinstance(text, str):
+                said.add(_plain(text))
+                said.update(_plain(p) for p in re.split(r"[/,;&]|\bor\b", text.lower()))
+    return tuple(w for w in run_words() if _plain(w) not in said)
 
 
 class NonAnswerKind(enum.Enum):
@@ -85,7 +140,8 @@ class NonAnswerKind(enum.Enum):
 @dataclass(frozen=True)
 class NonAnswer:
     """One code (or text) of one column that the file marks as no answer, read as missing: ``rows`` are the
-    row numbers (as the file numbers them) of its cells."""
+    index labels of the frame's rows holding it (a file's row numbers less one: data.moments.file_rows_index), so
+    that they are found again after row filters (:func:`rows_lost`)."""
 
     kind: NonAnswerKind
     column: str
@@ -127,8 +183,7 @@ def labelled_non_answers(frame: pd.DataFrame, value_labels: dict, skip: tuple[fl
         for code, text in sorted(codes.items()):
             cells = values == (code if numeric else code.strip())
             if cells.any():
-                found.append(NonAnswer(NonAnswerKind.LABELLED, column, code, text,
-                                       tuple(int(r) for r in np.flatnonzero(cells) + 1)))
+                found.append(NonAnswer(NonAnswerKind.LABELLED, column, code, text, tuple(frame.index[cells].tolist())))
                 hit |= cells
         if hit.any():
             if out is frame:
@@ -253,7 +308,7 @@ def declared_missing(frame: pd.DataFrame, ranges: dict, value_labels: dict) -> t
                 same = cells & (values == value)
                 key = float(value) if numeric else str(value)
                 found.append(NonAnswer(NonAnswerKind.DECLARED, column, key, labels.get(key),
-                                       tuple(int(r) for r in np.flatnonzero(same) + 1)))
+                                       tuple(frame.index[same].tolist())))
             hit |= cells
         if hit.any():
             if out is frame:
@@ -290,8 +345,10 @@ def written_non_answers(frame: pd.DataFrame, keep_text: tuple[str, ...] = (),
         said = [v for v in distinct if says_no_answer(v) and answer_key(v) not in coded]  # distinct texts
         if said and any(number(v.strip()) is None for v in distinct if v not in said):
             # a column of words (answers recorded as words, group labels): a middle answer such as 'Not sure' is
-            # one of its answers, never read as missing (an 'answers' statement codes it)
-            said = [v for v in said if _plain(v) not in MIDDLE_PHRASES]
+            # one of its answers, never read as missing (an 'answers' statement codes it), unless the run's own
+            # words (--missing-codes) say it is no answer
+            own = _RUN_WORDS.get().phrases
+            said = [v for v in said if _plain(v) not in MIDDLE_PHRASES or _plain(v) in own]
         if not said:
             continue
         texts = series.isin(said).to_numpy(dtype=bool)
@@ -300,8 +357,7 @@ def written_non_answers(frame: pd.DataFrame, keep_text: tuple[str, ...] = (),
         numbers = pd.to_numeric(stripped.where(~texts), errors="coerce").astype(float)
         for text in sorted({v.strip() for v in said}):
             cells = (stripped == text).to_numpy(dtype=bool)
-            found.append(NonAnswer(NonAnswerKind.WRITTEN, column, text, None,
-                                   tuple(int(r) for r in np.flatnonzero(cells) + 1)))
+            found.append(NonAnswer(NonAnswerKind.WRITTEN, column, text, None, tuple(frame.index[cells].tolist())))
         if out is frame:
             out = frame.copy()
         # a column of numbers with those cells empty; one that holds other text keeps it (its reader names the cell)
@@ -345,10 +401,9 @@ def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | No
     return f"values the data file marks as no answer were treated as missing ({shown})"
 
 
-def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items=None) -> tuple[str, str] | None:
-    """The caution (one line) and its advice naming the values of the model's ``items`` (None: of every column
-    in ``found``) that the file marks as no answer and that were read as missing: each code with its label, the
-    items and their cells; None if none."""
+def _said(found: tuple[NonAnswer, ...], source: str, items=None) -> tuple[str, str] | None:
+    """What was read as no answer in the model's ``items`` (None: every column in ``found``), one sentence: each
+    code with its label, the items and their cells; and how to undo it.  None if nothing."""
     mine = [f for f in found if items is None or f.column in set(items)]
     if not mine:
         return None
@@ -369,11 +424,50 @@ def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items=None) ->
                                       (NonAnswerKind.DECLARED, "declares as missing values"),
                                       (NonAnswerKind.WRITTEN, "writes as no answer")) if k in kinds)
     held = "text that says no answer" if frame else f"values that the file {how}"
-    caution = (f"{total} cell{'s' if total != 1 else ''} of the items in {name} hold {held}, "
-               f"read as missing, not as answers: {'; '.join(parts)}.")
+    said = (f"{total} cell{'s' if total != 1 else ''} of the items in {name} hold {held}, "
+            f"read as missing, not as answers: {'; '.join(parts)}.")
     undo = "; ".join(w for k, w in ((NonAnswerKind.LABELLED, "give its code another value label"),
                                      (NonAnswerKind.DECLARED, "remove its declaration as a missing value"),
                                      (NonAnswerKind.WRITTEN, "write the answer's number in the cell")) if k in kinds)
-    advice = (f"Nothing, if they are not answers: they are left out as empty cells are. To analyse one as an "
-              f"answer, {undo}, in a copy of the {'data frame' if frame else 'file'}.")
-    return caution, advice
+    return said, f"To analyse one as an answer, {undo}, in a copy of the {'data frame' if frame else 'file'}."
+
+
+def non_answer_note(found: tuple[NonAnswer, ...], source: str, items=None) -> str | None:
+    """The note of the data summary on what was read as no answer in the model's ``items`` (every view shows a
+    reader's notes): what, where and how many cells, and how to undo it; None if nothing.  Whether rows leave the
+    analysis because of it is :func:`non_answer_caution`'s to say."""
+    said = _said(found, source, items)
+    return None if said is None else f"{said[0][:-1]}. {said[1][:-1]}"
+
+
+def rows_lost(found: tuple[NonAnswer, ...], frame: pd.DataFrame, items, listwise: bool) -> int:
+    """The rows of ``frame`` (the rows analysed, after any row filter; index labels as the reader gave them) that
+    hold a value read as no answer (``found``) in the ``items`` and leave the analysis: with ``listwise`` deletion
+    every such row (it has a gap), else those left with no answer to any item."""
+    names = [x for x in items if x in frame.columns]
+    marked = np.zeros(len(frame), dtype=bool)
+    for f in found:
+        if f.column in names:
+            marked |= frame.index.isin(f.rows)
+    if not marked.any() or not names:
+        return 0
+    gaps = frame[names].isna().to_numpy()
+    return int((marked & (gaps.any(axis=1) if listwise else gaps.all(axis=1))).sum())
+
+
+def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items, frame: pd.DataFrame,
+                       listwise: bool = False) -> tuple[str, str] | None:
+    """The one rule that makes values read as no answer (the data summary's note, :func:`non_answer_note`) a
+    caution first in every view: when rows leave the analysis because of them (:func:`rows_lost`: ``listwise``
+    deletion, or a row left with no answer to any item), the caution (one line) says how many rows and what was
+    read, with its advice; None when every row stays (full information keeps a row with gaps)."""
+    said = _said(found, source, items)
+    lost = rows_lost(found, frame, items, listwise) if said is not None else 0
+    if not lost:
+        return None
+    why = ("listwise deletion leaves out every row with a gap" if listwise else
+           "no answer to any item was left in them")
+    caution = (f"{lost} row{'s' if lost != 1 else ''} left the analysis because values read as no answer emptied "
+               f"{'their cells' if lost != 1 else 'its cells'} ({why}). {said[0]}")
+    keep = f" To use the rows' other answers, leave out {Option.INCOMPLETE_ROWS.given('listwise')}." if listwise else ""
+    return caution, f"Nothing, if they are not answers. {said[1]}{keep}"

@@ -25,9 +25,10 @@ import pandas as pd
 
 from cfa_tool.data.kept_rows import (SHEET_COLUMNS, TEXT_LINES, line_words, row_naming, row_words, rows_listed,
                                      text_lines)
-from cfa_tool.data.missing_codes import apply_missing_codes
+from cfa_tool.data.missing_codes import apply_missing_codes, missing_codes_note
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
-from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, says_no_answer, written_non_answers
+from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, non_answer_note, run_words, \
+    says_no_answer, unused_run_words, written_non_answers
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
 from cfa_tool.errors import DataError, printable
 from cfa_tool.options import Option
@@ -201,6 +202,12 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
                                            tuple(missing_codes))
     if frame is not loaded.frame:
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
+    read_as_none = non_answer_note(loaded.non_answers, str(where), mine)  # a note; rows lost: a caution too
+    if read_as_none:
+        code_notes = tuple(code_notes) + (read_as_none,)
+    unused = unused_run_words(written + labelled) if run_words() else ()
+    if unused:  # the words of --missing-codes that no item holds: said as a code that no cell holds is
+        code_notes = tuple(code_notes) + (missing_codes_note(where, unused, [], "of the items"),)
     if code_notes:
         loaded = replace(loaded, notes=loaded.notes + tuple(code_notes))
     return loaded

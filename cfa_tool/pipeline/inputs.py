@@ -622,9 +622,10 @@ def weighted_out_problems(loaded: LoadedData, group: str | None, design: DesignC
 
 
 def odd_value_problems(loaded: LoadedData, group: str | None = None, design: DesignColumns | None = None,
-                       helpers: tuple[str, ...] = ()) -> tuple:
+                       helpers: tuple[str, ...] = (), listwise: bool = False) -> tuple:
     """Values in the item columns that look like no answers (a missing-value code, a totals row), and those the
-    file marks as no answer and that were read as missing (data.non_answers), as cautions that come first in
+    file marks as no answer and that were read as missing when rows leave the analysis because of them
+    (data.non_answers.non_answer_caution; ``listwise``: rows with gaps are left out), as cautions that come first in
     every view (assessment.admissibility.Problem); with a ``group`` column, the groups the sampling ``design``'s
     weights leave out (:func:`weighted_out_problems`) and its labels that differ only in case
     (:func:`group_case_problems`) first.  ``helpers``: the missing-data helpers, whose cells read as missing are
@@ -639,10 +640,10 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
                 + (group_case_problems(loaded.frame, group) if group is not None else ())
                 + tuple(p for part, unit, name in design_columns if name is not None
                         for p in group_case_problems(loaded.frame, name, part, unit))
-                + odd_value_problems(loaded, helpers=helpers))
+                + odd_value_problems(loaded, helpers=helpers, listwise=listwise))
 
-    marked = non_answer_caution(loaded.non_answers, loaded.source,
-                                tuple(loaded.items.names) + tuple(helpers) if loaded.items is not None else None)
+    items = (tuple(loaded.items.names) + tuple(helpers)) if loaded.items is not None else tuple(loaded.frame.columns)
+    marked = non_answer_caution(loaded.non_answers, loaded.source, items, loaded.frame, listwise)
     # a code already named as labelled beyond the scale of the same items is not named again as a missing-value code
     from cfa_tool.data.non_answers import BeyondScale
     from cfa_tool.data.odd_values import OddKind
@@ -700,7 +701,7 @@ def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answe
 def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | None = None,
                   design: DesignColumns | None = None, ids: dict | None = None, names: tuple[str, ...] | None = None,
                   coverage: dict | None = None, n_obs: int | None = None, where: str = "",
-                  helpers: tuple[str, ...] = ()) -> tuple:
+                  helpers: tuple[str, ...] = (), listwise: bool = False) -> tuple:
     """The cautions on the data that come first in every view, composed here once for every command (fit, check,
     compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: what the row filters did to
     the sample (pipeline.row_filter_cautions: a selection on a model item, a label several codes carry); rows that are copies of
@@ -710,9 +711,10 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     items; the groups the weights leave out, group labels differing by case and values that look like no answers
     (:func:`odd_value_problems`); items answered by few rows (``coverage``: item -> share of the ``n_obs`` rows
     analysed answering it) and nearly constant items (:func:`few_answers_problems`) among ``names`` (the model's
-    items by default).  The data are not refused: the user may know better.  ``where``: which of several files
-    filtered alike the row filters' cautions are about (replicate's ' on the calibration data (spring.csv)');
-    ``helpers``: the missing-data helpers, whose values read as missing are named with the items' ones."""
+    items by default).  ``listwise``: rows with gaps leave the analysis.  The data are not refused: the user may
+    know better.  ``where``: which of several files filtered alike the row filters' cautions are about (replicate's
+    ' on the calibration data (spring.csv)'); ``helpers``: the missing-data helpers, whose values read as missing are
+    named with the items' ones."""
     from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 
     names = names if names is not None else (spec.observed_names if spec is not None else ())
@@ -720,7 +722,7 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})
-    found += odd_value_problems(loaded, group, design, helpers) + few_answers_problems(names, coverage or {}, n_obs, loaded,
+    found += odd_value_problems(loaded, group, design, helpers, listwise) + few_answers_problems(names, coverage or {}, n_obs, loaded,
                                                                               group)
     return tuple(dict.fromkeys(found))  # each once
 
@@ -732,8 +734,9 @@ def with_odd_values(result, loaded: LoadedData, group: str | None = None, spec: 
     each once (scores of the fitted file, say)."""
     coverage = (getattr(result, "missing_data", None) or {}).get("coverage", {})
     helpers = tuple(getattr(getattr(result, "method", None), "helpers", None) or ())  # read as the items are
+    listwise = getattr(getattr(result, "method", None), "missing", None) is MissingData.LISTWISE
     found = tuple(p for p in data_problems(loaded, spec, group, design, ids, tuple(getattr(result, "observed", ()) or ()),
-                                           coverage, getattr(result, "n_obs", None), helpers=helpers)
+                                           coverage, getattr(result, "n_obs", None), helpers=helpers, listwise=listwise)
                   if p not in result.problems)
     from cfa_tool.assessment.admissibility import solution_first
 

@@ -259,7 +259,7 @@ def _with_data_problems(found: Comparison, loaded, specs, group, design, dropped
     for r, spec in zip(found.results, specs):
         coverage = (r.missing_data or {}).get("coverage", {})
         own = data_problems(loaded, spec, group, design, names=tuple(spec.observed_names), coverage=coverage,
-                            n_obs=r.n_obs)
+                            n_obs=r.n_obs, listwise=found.missing is MissingData.LISTWISE and not pairwise)
         found_all += own
         results.append(replace(r, problems=solution_first(tuple(p for p in own if p not in r.problems)
                                                           + tuple(r.problems))))

@@ -359,7 +359,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     # values that look like no answers, among the rows with a group label: first among the cautions
     # the weights parsed once, as fit parses them, for the check of the design and the groups weighted out
     analysed = with_design_weights(analysed_odd_values(loaded, spec, group), design, spec, group)
-    found = data_problems(analysed, spec, group, design)  # as fit gives them
+    found = data_problems(analysed, spec, group, design,  # as fit gives them
+                          listwise=fit_options.missing is MissingData.LISTWISE)
     data_cautions = tuple(p.line() for p in found)
     if spec.invariant:
         where = spec.equalities_location

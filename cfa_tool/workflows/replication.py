@@ -593,8 +593,10 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                      for p in _left_out(r.data.rows_dropped, r.data.rows_read, source, r.method.missing, ordinal_items))
     # each file's row filters kept with its fit (the methods paragraph names them) and its cautions naming the file:
     # the two files' range restrictions read alike, and one left out as a repeat, without it
-    found = tuple(dict.fromkeys(p for s, which in zip(read, ("calibration", "validation"))
-                                for p in data_problems(s, spec, where=f" on the {which} data ({s.source})")))
+    found = tuple(dict.fromkeys(p for s, which, r in zip(read, ("calibration", "validation"),
+                                                         (result.calibration_result, result.loose))
+                                for p in data_problems(s, spec, where=f" on the {which} data ({s.source})",
+                                                       listwise=r.method.missing is MissingData.LISTWISE)))
     cal, loose = with_row_filters(result.calibration_result, read[0]), with_row_filters(result.loose, read[1])
     rows = tuple(replace(r, in_file=fitted.data.rows_in_file) for r, fitted in zip(result.rows, (cal, loose)))
     return replace(result, calibration_result=cal, loose=loose, rows=rows, data_problems=found + left_out,
@@ -642,7 +644,7 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
                      *halves, filters=loaded.row_filters,
                      rows_in_file=len(loaded.read_frame) if loaded.read_frame is not None else None)
     # the rows left out before the split (the halves hold complete rows only): fit's caution, after the data's
-    problems = data_problems(loaded, spec) + _left_out(len(frame) - split, len(frame), source,
+    problems = data_problems(loaded, spec, listwise=rows.complete_only) + _left_out(len(frame) - split, len(frame), source,
                                                        MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
     return tuple(replace(rep, data_problems=problems, split=rows, notes=notes, answer_coding=coding_record(spec))
                  for rep in pair)

@@ -112,8 +112,9 @@ def test_spss_text_items_with_labelled_text_codes(rider_demo, rider_model, tmp_p
     result = cfa_tool.fit(rider_model, str(path))
     assert result.n_obs == len(data)  # 471 complete rows of the demo; the cells of '9' are gaps, kept by FIML
     assert result.missing_data["coverage"]["clean"] == pytest.approx(1 - len(rows) / len(data))
-    first = result.problems[0]
-    assert "Don't know" in first.explanation and f"clean {len(rows)}" in first.explanation
+    # no row lost (full information keeps the rows): a note, not a caution (s14)
+    [first] = [w for w in result.warnings if "read as missing, not as answers" in w]
+    assert "Don't know" in first and f"clean {len(rows)}" in first
     from cfa_tool.reporting.tables import label_tables
 
     table = {row[0]: row[1] for row in label_tables(result)[-1].rows}
@@ -151,7 +152,8 @@ def test_stata_code_labelled_na_is_read_as_missing(rider_demo, rider_model, tmp_
     path = tmp_path / "riders.dta"
     data.to_stata(path, write_index=False, value_labels=labels, version=118)
     result = cfa_tool.fit(rider_model, str(path))
-    assert "'N/A'" in result.problems[0].explanation and "clean 24" in result.problems[0].explanation  # rows 1, 21, ... 461
+    [said] = [w for w in result.warnings if "read as missing, not as answers" in w]  # a note: no row lost (s14)
+    assert "'N/A'" in said and "clean 24" in said  # rows 1, 21, ... 461
     assert np.nanmax(read_data(path).frame["clean"]) == 5
 
 
@@ -194,7 +196,7 @@ def test_a_no_answer_label_on_a_text_code_is_read_as_missing():
     frame = pd.DataFrame({"mode": ["a", "x", "b", "c", " x", "a"]})
     out, found = labelled_non_answers(frame, {"mode": {"a": "bus", "b": "tram", "c": "ferry", "x": "Don't know"}})
     assert out["mode"].isna().tolist() == [False, True, False, False, True, False]
-    assert [(f.value, f.rows) for f in found] == [("x", (2, 5))]
+    assert [(f.value, f.rows) for f in found] == [("x", (1, 4))]  # the frame's index labels
     assert frame["mode"].notna().all()  # the frame given is left as it was
 
 

@@ -3,7 +3,7 @@ the caution on values the file writes as no answer and in the methods paragraph'
 
 from __future__ import annotations
 
-from cfa_tool.data.non_answers import SHOWN, BRIEF, NonAnswer, NonAnswerKind, non_answer_caution, non_answer_clause
+from cfa_tool.data.non_answers import SHOWN, BRIEF, NonAnswer, NonAnswerKind, non_answer_clause, non_answer_note
 
 
 def _found(columns: int) -> tuple[NonAnswer, ...]:
@@ -11,9 +11,9 @@ def _found(columns: int) -> tuple[NonAnswer, ...]:
 
 
 def test_one_more_item_in_the_singular():
-    caution, _ = non_answer_caution(_found(SHOWN + 1), "survey.csv")
-    assert caution.endswith(f"q{SHOWN - 1} 1 and 1 more item).")
-    caution, _ = non_answer_caution(_found(SHOWN + 2), "survey.csv")
-    assert caution.endswith(f"q{SHOWN - 1} 1 and 2 more items).")
+    note = non_answer_note(_found(SHOWN + 1), "survey.csv")
+    assert f"q{SHOWN - 1} 1 and 1 more item). To analyse" in note
+    note = non_answer_note(_found(SHOWN + 2), "survey.csv")
+    assert f"q{SHOWN - 1} 1 and 2 more items). To analyse" in note
     assert non_answer_clause(_found(BRIEF + 1)).endswith("q2 and 1 more item)")
     assert non_answer_clause(_found(BRIEF + 4)).endswith("q2 and 4 more items)")

@@ -76,6 +76,15 @@ def test_answers_are_not_non_answers(text):
     assert not says_no_answer(text)
 
 
+def _read_note(result) -> str:
+    """The data summary's note on the values read as no answer (data.non_answers.non_answer_note): a note, not a
+    caution, when every row stays in the analysis (the lead's decision, s14)."""
+    notes = getattr(result, "warnings", None) or getattr(result, "notes", ())
+    assert not any(p.kind is ProblemKind.VALUES_READ_AS_MISSING for p in result.problems)
+    [note] = [n for n in notes if " of the items in " in n and "read as missing, not as answers" in n]
+    return note
+
+
 def test_stata_codes_labelled_as_non_answers_are_read_as_missing_and_said_first(tmp_path, answers, coded):
     import pyreadstat
 
@@ -88,12 +97,11 @@ def test_stata_codes_labelled_as_non_answers_are_read_as_missing_and_said_first(
     assert sum(n for _, n in counted["c2"]) == int(coded["c2"].isin([0, 1, 2, 3]).sum()) == 400 - 3
     same = cfa_tool.fit(MODEL, _blanked(answers))
     assert result.fit.chi_square == pytest.approx(same.fit.chi_square, rel=1e-10)
-    first = result.problems[0]
-    assert first.kind is ProblemKind.VALUES_READ_AS_MISSING
-    assert first.explanation == (
+    first = _read_note(result)
+    assert first == (
         "7 cells of the items in riders.dta hold values that the file labels as no answer, read as missing, not as "
-        "answers: 8 'refused' (3 cells: c2 1, s1 1, s3 1); 9 'Not asked' (4 cells: c2 2, c3 1, s2 1).")
-    assert first.advice.endswith("To analyse one as an answer, give its code another value label, in a copy of the file.")
+        "answers: 8 'refused' (3 cells: c2 1, s1 1, s3 1); 9 'Not asked' (4 cells: c2 2, c3 1, s2 1). To analyse one "
+        "as an answer, give its code another value label, in a copy of the file")
     assert result.admissible
     from cfa_tool.reporting.paragraph import methods_paragraph
 
@@ -102,7 +110,7 @@ def test_stata_codes_labelled_as_non_answers_are_read_as_missing_and_said_first(
             "9 'Not asked' in c2, c3 and s2)") in " ".join(methods_paragraph(result).split())
     # the check says so as the fit does
     checked = cfa_tool.check(MODEL, path)
-    assert checked.problems[0].explanation == first.explanation
+    assert _read_note(checked) == first
     from cfa_tool.reporting.workflow_tables import check_report
 
     coverage = check_report(checked).tables[0]  # read as missing, so not 'counted as an answer here'
@@ -115,7 +123,7 @@ def test_a_code_given_as_missing_is_not_named_again(tmp_path, coded):
     path = tmp_path / "riders.dta"
     pyreadstat.write_dta(coded, str(path), variable_value_labels=_labels())
     result = cfa_tool.check(MODEL, path, missing_codes=[8])
-    assert result.problems[0].explanation.endswith(": 9 'Not asked' (4 cells: c2 2, c3 1, s2 1).")
+    assert ": 9 'Not asked' (4 cells: c2 2, c3 1, s2 1). To analyse" in _read_note(result)
 
 
 def test_spss_user_missing_values_are_honoured_and_said(tmp_path, answers, coded):
@@ -126,7 +134,7 @@ def test_spss_user_missing_values_are_honoured_and_said(tmp_path, answers, coded
                          missing_ranges={c: [8, 9] for c in ITEMS})
     result = cfa_tool.fit(MODEL, path)
     assert result.fit.chi_square == pytest.approx(cfa_tool.fit(MODEL, _blanked(answers)).fit.chi_square, rel=1e-10)
-    assert result.problems[0].explanation.startswith(
+    assert _read_note(result).startswith(
         "7 cells of the items in riders.sav hold values that the file declares as missing values, read as missing, "
         "not as answers: 8 (3 cells: c2 1, s1 1, s3 1); 9 (4 cells: c2 2, c3 1, s2 1)")
 
@@ -140,11 +148,11 @@ def test_stata_missing_values_of_their_own_kind_are_said(tmp_path, answers):
     path = tmp_path / "riders.dta"
     pyreadstat.write_dta(data, str(path), missing_user_values={"c2": ["a"], "s1": ["b"]},
                          variable_value_labels={"c2": {**SCALE, "a": "refused"}, "s1": {**SCALE, "b": "not asked"}})
-    first = cfa_tool.check(MODEL, path).problems[0]
-    assert first.explanation == (
+    first = _read_note(cfa_tool.check(MODEL, path))
+    assert first == (
         "3 cells of the items in riders.dta hold values that the file declares as missing values, read as missing, "
-        "not as answers: .a 'refused' (1 cell: c2 1); .b 'not asked' (2 cells: s1 2).")
-    assert first.advice.endswith("remove its declaration as a missing value, in a copy of the file.")
+        "not as answers: .a 'refused' (1 cell: c2 1); .b 'not asked' (2 cells: s1 2). To analyse one as an answer, "
+        "remove its declaration as a missing value, in a copy of the file")
 
 
 def test_a_labelled_code_outside_a_declared_scale_gets_missing_codes_never_a_wider_scale(tmp_path, answers):
@@ -180,10 +188,10 @@ def test_text_cells_that_say_no_answer_are_read_as_missing_and_codes_then_apply(
     path = tmp_path / "riders.csv"
     text.to_csv(path, index=False)
     result = cfa_tool.check(MODEL + "reversed c2 on 0 to 3\n", path, missing_codes=[9])
-    # after the rows that gave one answer throughout, which fit names first too (pipeline.inputs.data_problems)
-    [read] = [p for p in result.problems if p.kind is ProblemKind.VALUES_READ_AS_MISSING]
-    assert [p.kind for p in result.problems[:2]] == [ProblemKind.SAME_ANSWER_ROWS, ProblemKind.VALUES_READ_AS_MISSING]
-    assert read.explanation == (
+    # the rows that gave one answer throughout are a caution; the values read as no answer, which leave no row out
+    # (full information keeps the rows with gaps), a note
+    assert result.problems[0].kind is ProblemKind.SAME_ANSWER_ROWS
+    assert _read_note(result).startswith(
         "3 cells of the items in riders.csv hold values that the file writes as no answer, read as missing, not as "
         "answers: 'refused' (2 cells: c2 1, s3 1); 'Don't know' (1 cell: s1 1).")
     assert result.complete == len(answers) - 4
@@ -200,7 +208,7 @@ def test_an_excel_cell_that_says_no_answer_is_read_as_missing(tmp_path, answers)
     path = tmp_path / "riders.xlsx"
     data.to_excel(path, index=False)
     result = cfa_tool.check(MODEL, path)
-    assert result.problems[0].explanation.endswith("'Refused' (1 cell: s1 1).")
+    assert "'Refused' (1 cell: s1 1). To analyse" in _read_note(result)
 
 
 def test_codes_read_as_value_labels_are_said_only_for_the_group_column(tmp_path, answers):
@@ -269,7 +277,7 @@ def test_not_sure_between_the_answers_is_an_answer_and_beyond_them_is_none(tmp_p
     coded.loc[[4, 9], "c1"] = 9
     pyreadstat.write_dta(coded, str(beyond), variable_value_labels={c: {**SCALE, 9: "Not sure"} for c in ITEMS})
     read = cfa_tool.fit(MODEL, beyond)
-    assert read.problems[0].kind is ProblemKind.VALUES_READ_AS_MISSING and "9 'Not sure'" in read.problems[0].explanation
+    assert "9 'Not sure'" in _read_note(read)
 
 
 def test_a_labelled_code_beyond_the_scale_of_many_items_is_one_caution_naming_them(tmp_path, answers):

@@ -1,8 +1,8 @@
 """'N/A' read as no answer, in a file and in a data frame.  In a file the markers of an empty cell ('NA', 'N/A', as R
 and spreadsheets write gaps) are a note, as pandas' ``read_csv`` reads them as gaps by default (the lead's decision,
 s13: a caution on every R export with gaps would be noise that trains readers to skip cautions); in a data frame the
-same text means the frame was built without that reading, which is a caution worded for a frame (review s12: it
-said 'the file writes').  The reference is pandas' own reading of the same cells: the cells named are the cells
+same text means the frame was built without that reading, which is a note worded for a frame (review s12: it
+said 'the file writes'), a caution only when rows leave the analysis because of it (s14).  The reference is pandas' own reading of the same cells: the cells named are the cells
 pandas leaves empty."""
 
 from __future__ import annotations
@@ -27,16 +27,19 @@ def _gappy(tmp_path, marker: str):
 
 
 @pytest.mark.parametrize("marker", ["N/A", "n/a", "NA"])
-def test_a_marker_of_no_answer_is_a_note_in_a_file_and_a_caution_in_a_frame(marker, tmp_path):
+def test_a_marker_of_no_answer_is_a_note_in_a_file_and_in_a_frame(marker, tmp_path):
     path, as_frame = _gappy(tmp_path, marker)
     gaps = int(pd.read_csv(path)[["on_time", "clean"]].isna().to_numpy().sum())  # pandas' reading: the reference
     from_file, from_frame = cfa_tool.fit(MODEL, path), cfa_tool.fit(MODEL, as_frame)
     assert not [p for p in from_file.problems if "no answer" in p.explanation]
     assert [w for w in from_file.warnings if "cells written as" in w]  # the file's note
-    said = [p for p in from_frame.problems if "no answer" in p.explanation]
-    assert len(said) == 1 and f"'{marker}' ({gaps} cells: on_time 2, clean 1)" in said[0].explanation
-    assert said[0].explanation.startswith(f"{gaps} cells of the items in the data frame hold text that says no answer")
-    assert "the file" not in said[0].explanation and said[0].advice.endswith("in a copy of the data frame.")
+    # no row leaves the analysis because of them (full information keeps the rows): a note of the frame's own, not a
+    # caution (the lead's decision, s14)
+    assert not [p for p in from_frame.problems if "no answer" in p.explanation]
+    said = [w for w in from_frame.warnings if "says no answer" in w]
+    assert len(said) == 1 and f"'{marker}' ({gaps} cells: on_time 2, clean 1)" in said[0]
+    assert said[0].startswith(f"{gaps} cells of the items in the data frame hold text that says no answer")
+    assert "the file" not in said[0] and said[0].endswith("in a copy of the data frame")
     assert from_file.fit.chi_square == pytest.approx(from_frame.fit.chi_square, rel=1e-10)
 
 

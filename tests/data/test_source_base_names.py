@@ -9,7 +9,7 @@ import pandas as pd
 import pytest
 
 from cfa_tool.data.matching import check_columns
-from cfa_tool.data.non_answers import NonAnswer, NonAnswerKind, non_answer_caution
+from cfa_tool.data.non_answers import NonAnswer, NonAnswerKind, non_answer_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.errors import ModelError
 from cfa_tool.input_files import base_name
@@ -36,6 +36,6 @@ def test_every_message_naming_the_data_file_uses_its_base_name(path):
     frame = pd.DataFrame(np.clip(np.round(3 + rng.standard_normal((60, 3))), 1, 5), columns=["q1", "q2", "q3"])
     frame.loc[[2, 7], "q2"] = -99  # a missing-value code read as answers
     caution = odd_values(frame, ["q1", "q2", "q3"])[0].caution(path)
-    refused = non_answer_caution((NonAnswer(NonAnswerKind.LABELLED, "q1", 8.0, "refused", (4,)),), path)
-    for text in (str(unknown.value), caution, refused[0]):
+    refused = non_answer_note((NonAnswer(NonAnswerKind.LABELLED, "q1", 8.0, "refused", (4,)),), path)
+    for text in (str(unknown.value), caution, refused):
         assert "riders.csv" in text and "surveys" not in text, text

@@ -28,9 +28,12 @@ def test_several_stray_words_are_counted_and_named(cells, rider_demo, rider_mode
     assert (f"survey.csv: 4 cells of 3 columns ('on_time', 'clean', 'helpful') hold text among numbers: 'Ne sait pas' "
             f"({said[0]} cells), 'Sans avis' ({said[1]} cell); the first is 'Ne sait pas' in column 'on_time', row 49"
             ) in err  # the file's row 49: the header is row 1
-    assert "if the words mean no answer, leave them empty" in err
+    assert 'if the words mean no answer, give them with --missing-codes "Ne sait pas,Sans avis"' in err
     one = rider_demo.astype(object)
     one.loc[47, "on_time"] = "Ne sait pas"
     one.to_csv(data, index=False)
     code, _, err = run_cli(["check", model, "--data", data], capsys)
     assert code == 2 and "column 'on_time' holds text ('Ne sait pas' in row 49) among numbers" in err
+    assert 'if the word means no answer, give it with --missing-codes "Ne sait pas"' in err
+    code, _, err = run_cli(["check", model, "--data", data, "--missing-codes", "Ne sait pas"], capsys)
+    assert code == 0, err  # the advice followed: the cell read as no answer
