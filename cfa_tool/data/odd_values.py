@@ -350,13 +350,17 @@ def _run_of(x: np.ndarray):
 
 def naming_cell(frame: pd.DataFrame, items, position: int) -> tuple[str, str] | None:
     """The first column outside ``items`` whose cell at ``position`` (a place among ``frame``'s rows) is text that no
-    other row holds ('rider_id', 'Total'), or None: a row filter can leave that row out by it."""
+    other row holds ('rider_id', 'Total') and that has a value in every other row, or None: a row filter '!=' on it
+    leaves that row out and keeps every other (an empty cell meets no comparison, so a column empty elsewhere would
+    leave out the rows it was meant to keep; review s14: a 'note' column kept 1 of 481 rows)."""
     for column in frame.columns:
         if column in items:
             continue
-        value = frame[column].iloc[position]
+        cells = frame[column]
+        value = cells.iloc[position]
         if isinstance(value, str) and value.strip() and "'" not in value and '"' not in value \
-                and int((frame[column] == value).sum()) == 1:
+                and int((cells == value).sum()) == 1 and bool(cells.notna().all()) \
+                and not cells.astype(str).str.strip().eq("").any():
             return str(column), value.strip()
     return None
 
@@ -422,6 +426,19 @@ def _peeled(x: np.ndarray) -> list[tuple[float, bool, float]]:
 
 
 def _summary_rows(X: np.ndarray, base: np.ndarray) -> dict[int, OddKind]:
+    """:func:`_summary_rows_once`, and when it finds means rows, again with them out of the other rows' sums: a
+    totals row above or below a means row is then the sum of the other rows (review s14: a 'Total' row beside a
+    'Mean' row was off by the means and not found)."""
+    found = _summary_rows_once(X, base)
+    means = [r for r, kind in found.items() if kind is OddKind.MEANS_ROW]
+    if means:
+        trimmed = np.array(base, dtype=float)
+        trimmed[means] = np.nan
+        found.update({r: kind for r, kind in _summary_rows_once(X, trimmed).items() if kind is OddKind.SUMS_ROW})
+    return found
+
+
+def _summary_rows_once(X: np.ndarray, base: np.ndarray) -> dict[int, OddKind]:
     """Rows of ``X`` whose answers equal the sums or the means of the other rows' answers in ``base`` (``X`` without
     the values far beyond) in every item column they answer (three or more), with a value no other row gives in
     its column.  Column by column on the rows still in question, so that large files cost little."""

@@ -115,3 +115,38 @@ def test_a_failed_estimation_with_a_row_far_beyond_is_a_data_error():
     with pytest.raises(EstimationError):  # a means row is not why a fit fails: still the estimation's error, exit 3
         with odd_values_named(LoadedData(frame, "val.csv", odd_values=(means,))):
             raise EstimationError("the information matrix is singular")
+
+
+def test_a_totals_row_beside_a_means_row_is_refused(rider_demo, rider_model, tmp_path):
+    """'Total' and 'Mean' rows at the end (pandas' column sums and means of the answers): the totals row is the sum
+    of the other answers once the means row is set aside (review s14: off by the means, it was not found, and compare
+    and explore analysed it)."""
+    items = list(rider_demo.columns[2:])
+    sums = rider_demo[items].sum().to_frame().T
+    means = rider_demo[items].mean().to_frame().T
+    for row, name in ((sums, "Total"), (means, "Mean")):
+        row.insert(0, "rider_id", name)
+        row.insert(1, "district", "")
+    path = tmp_path / "both.csv"
+    pd.concat([rider_demo, sums, means], ignore_index=True).to_csv(path, index=False)
+    with pytest.raises(DataError, match=r"Row 482 of both.csv holds the sums of the other rows' answers"):
+        cfa_tool.fit(rider_model, str(path))
+    with pytest.raises(DataError, match=r"Row 482 of both.csv holds the sums"):
+        cfa_tool.compare([rider_model, rider_model], str(path))
+
+
+def test_the_row_filter_suggested_keeps_every_other_row(rider_demo, rider_model, tmp_path):
+    """A text column empty in other rows ('note': one row says 'called back') cannot leave the totals row out: an
+    empty cell meets no comparison, so 'note != Total' would keep 1 of 481 rows (review s14); the advice names a
+    column with a value in every row, or none."""
+    data = _with_totals(rider_demo)
+    data["rider_id"] = data["rider_id"].where(data["rider_id"] == "Total", "")
+    data["note"] = ""
+    data.loc[10, "note"] = "called back"
+    data.loc[len(data) - 1, "note"] = "Total"
+    path = tmp_path / "noted.csv"
+    data.to_csv(path, index=False)
+    with pytest.raises(DataError) as found:
+        cfa_tool.fit(rider_model, str(path))
+    assert "note != Total" not in str(found.value) and "rider_id != Total" not in str(found.value)
+    assert str(found.value).endswith("or leave it out with a row filter (keep=...).")
