@@ -970,6 +970,7 @@ def _check_field_counts(text: str, delimiter: str, named: int, width: int, path:
             column = next(k for k in range(named, n) if fields[k].strip()) + 1
             raise DataError(f"{path}: line {line} has a value in column {column}, which has no name in the header "
                             f"({_header_taken(f'line {header_line}', names_option)})")
+        _check_quoted_rows(line, fields, delimiter, named, path)  # a stray quote before its field count (review s14)
         others = [d for d in _DELIMITERS if d != delimiter and d in delimiter.join(fields)]
         hint = (f"; the line holds '{_shown_delimiter(others[0])}', while the header is separated by "
                 f"'{_shown_delimiter(delimiter)}'") if others and n == 1 else ""
@@ -980,6 +981,24 @@ def _check_field_counts(text: str, delimiter: str, named: int, width: int, path:
     if previous is not None:
         _check_quoted_rows(*previous, delimiter, named, path)
     return widest
+
+
+def _looks_like_a_row(line: str, delimiter: str, named: int) -> bool:
+    """A line inside a quoted value that holds a row of data: the separators of a whole row, and numbers in at least
+    half of its fields (a comment of several lines with commas between words is no row; review s14)."""
+    fields = line.split(delimiter)
+    if len(fields) < named:
+        return False
+    numbers = sum(1 for f in fields if f.strip() and _is_number(f.strip()))
+    return numbers * 2 >= len(fields)
+
+
+def _is_number(text: str) -> bool:
+    try:
+        float(text.replace(",", "."))
+    except ValueError:
+        return False
+    return True
 
 
 def _check_quoted_rows(line: int, fields: list[str], delimiter: str, named: int, path: Path) -> None:
@@ -993,8 +1012,8 @@ def _check_quoted_rows(line: int, fields: list[str], delimiter: str, named: int,
     for column, value in enumerate(fields, start=1):
         if "\n" not in value:
             continue
-        parts = value.split("\n")
-        rows = sum(1 for part in parts[1:] if part.count(delimiter) >= named - 1)
+        parts = value.rstrip("\r\n").split("\n")  # (a quote left open to the end: the file's last line break)
+        rows = sum(1 for part in parts[1:] if _looks_like_a_row(part, delimiter, named))
         if rows:
             raise DataError(f"{path}: line {line}, column {column}: a quoted value runs over {len(parts)} lines, to "
                             f"line {line + len(parts) - 1}, and holds {rows} line{'s' if rows > 1 else ''} with the "

@@ -48,3 +48,37 @@ def test_comments_of_several_lines_are_read_as_they_are(tmp_path):
     path.write_text(_rows(120, lambda k: "late, crowded,\nbut fine" if k % 7 == 0 else "ok"))
     result = cfa_tool.fit(MODEL, str(path))
     assert result.n_obs == 120 == len(list(csv.reader(io.StringIO(path.read_text())))) - 1
+
+
+def test_a_quoted_comment_with_as_many_commas_as_a_row_is_read(tmp_path):
+    """Four columns and a properly quoted comment of several lines with three commas on a line ('late, dirty, cold,
+    rude'): words, not a row of data, so the file is read as the csv module reads it (review s14: refused)."""
+    rng = np.random.default_rng(4)
+    out = io.StringIO()
+    writer = csv.writer(out, lineterminator="\n")
+    writer.writerow(["x1", "x2", "x3", "comment"])
+    f = rng.normal(size=200)
+    for k in range(200):
+        writer.writerow([*np.round(0.8 * f[k] + 0.6 * rng.normal(size=3), 2),
+                         "bus was\nlate, dirty, cold, rude\nagain" if k % 9 == 0 else "ok"])
+    path = tmp_path / "legit.csv"
+    path.write_text(out.getvalue())
+    assert cfa_tool.fit("factor f: x1, x2, x3\n", str(path)).n_obs == 200
+
+
+def test_a_stray_quote_in_a_middle_column_or_left_open_is_named(tmp_path):
+    """A quote opened in the second column (the field count would be wrong, and was said first) and one left open to
+    the end of the file (the line it runs to is the last, not one beyond; review s14)."""
+    lines = _rows(60, lambda k: "ok").splitlines()
+    middle = lines[:]
+    cells = middle[20].split(",")
+    cells[1] = '"' + cells[1]
+    middle[20] = ",".join(cells)
+    (tmp_path / "middle.csv").write_text("\n".join(middle) + "\n")
+    with pytest.raises(DataError, match=r"middle.csv: line 21, column 2: a quoted value runs over 41 lines, to line 61"):
+        cfa_tool.fit(MODEL, str(tmp_path / "middle.csv"))
+    open_end = lines[:]
+    open_end[10] = open_end[10][: -len("ok")] + '"bus was late'
+    (tmp_path / "open.csv").write_text("\n".join(open_end) + "\n")
+    with pytest.raises(DataError, match=r"open.csv: line 11, column 6: a quoted value runs over 51 lines, to line 61,"):
+        cfa_tool.fit(MODEL, str(tmp_path / "open.csv"))
