@@ -19,10 +19,10 @@ normal data, the bundled demo data and Holzinger & Swineford 1939):
   gap (at least two steps beyond the run's end: 12 or 7 beside 1 to 5; a 6 might be the scale's own top answer),
   when the scale's end next to them is a common answer (at least :data:`FEW_SHARE` of the answers: a scale that
   ends there, not a thinning tail of counts), AND that lies beyond the range the other items of the same scale
-  use: the runs of the other columns screened with the same lowest or the same highest answer (1 to 5 beside 1 to
-  5, 0 to 10 beside 0 to 8).  A skewed 0-to-10 or 1-to-7 item whose second-highest answer no one chose is so left
-  alone when the other items of its scale reach its top answer (review s13); a column with no other item of its
-  scale is not judged by this rule (nothing says where its scale ends; a scale a 'reversed' statement declares
+  use: the runs of the other columns screened with the same lowest and the same highest answer (1 to 5 beside 1
+  to 5; a 1-to-7 item beside them is of another scale and hides nothing, review s14).  A skewed 0-to-10 or 1-to-7
+  item whose second-highest answer no one chose is so left alone: its run (0 to 8) is no other item's, so it has
+  no other item of its scale (review s13); a column with no other item of its scale is not judged by this rule (nothing says where its scale ends; a scale a 'reversed' statement declares
   is judged by the model's own check, data.matching.check_declared_ranges).  Common practice of data screening
   (a value outside the range the questionnaire's items use is a keying error), written as this project's rule,
   not a published test.  Measures with many different values (reaction times, incomes, counts of many sizes)
@@ -270,7 +270,7 @@ def _outside_scales(X: np.ndarray, apart: np.ndarray, named: set, names: list[st
     """The values outside the answer scale of their item (see the module's rules), one finding for each value and
     scale, naming every column that holds it and its rows: separated from the item's own answers by a gap
     (:func:`_outside_scale`) and beyond the range that the answer runs of the other columns of the same scale
-    (the same lowest or highest answer) use; values the other rules name (``named``: (column, value)) are left to
+    (the same lowest and highest answer) use; values the other rules name (``named``: (column, value)) are left to
     them.  Only the columns ``apart`` are looked at (:func:`_may_stand_out`: an extreme at
     least two steps beyond the next value), so that ordinary data cost nothing more."""
     found: dict[tuple[float, float, float], list[tuple[int, np.ndarray]]] = {}
@@ -282,7 +282,9 @@ def _outside_scales(X: np.ndarray, apart: np.ndarray, named: set, names: list[st
             for k in range(X.shape[1]):
                 if k != j and k not in runs:
                     runs[k] = _answer_run(X[:, k])
-            scale = [r for k, r in runs.items() if k != j and r is not None and (r[0] == low or r[1] == high)]
+            # the same scale: the same lowest and highest answer (one shared end let a 1-7 item hide a 7 typed
+            # among 1-5 answers; review s14)
+            scale = [r for k, r in runs.items() if k != j and r is not None and r[0] == low and r[1] == high]
             if not scale or min(r[0] for r in scale) <= value <= max(r[1] for r in scale):
                 continue  # no other item of its scale, or one that uses the value: not beyond the scale's range
             found.setdefault((value, low, high), []).append((j, X[:, j] == value))

@@ -276,3 +276,16 @@ def test_small_answers_of_data_centred_at_zero_are_no_totals_row():
     scaled = frame + 3.0  # answers around 3, all positive
     totals = pd.concat([scaled, scaled.sum().to_frame().T], ignore_index=True)
     assert [(o.kind, o.rows) for o in odd_values(totals, list(totals.columns))] == [(OddKind.SUMS_ROW, (501,))]
+
+
+def test_a_seven_among_one_to_five_answers_is_named_beside_an_item_on_one_to_seven():
+    """A 7 typed twice into a 1-to-5 item is named though another item runs 1 to 7: that item shares the lowest answer
+    only, so it is of another scale and hides nothing (review s14: a shared end made the 7 look like an answer of
+    the scale)."""
+    frame = _likert(3, 300, 4).astype(float)
+    frame.loc[[5, 9], "x1"] = 7
+    rng = np.random.default_rng(0)
+    frame["wide"] = np.clip(np.round(frame["x2"] * 1.5 - 0.5 + rng.normal(0, 0.5, len(frame))), 1, 7)
+    assert frame["wide"].min() == 1 and frame["wide"].max() == 7  # pandas: the other item runs 1 to 7
+    found = [o for o in odd_values(frame, list(frame.columns)) if o.kind is OddKind.OUTSIDE_SCALE]
+    assert [(o.columns, o.values[0]) for o in found] == [(("x1",), 7.0)]
