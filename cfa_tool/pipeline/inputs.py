@@ -242,6 +242,9 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     unfinished = unfinished_rows_note(frame, loaded.source)
     if unfinished:
         notes.append(unfinished)
+    # a row filter reads its column too (review s14: a filter on a factor-named total was said to leave it unused)
+    chosen = {**{f.column: f"the column of the row filter '{f}'" for f in filters if f.column is not None},
+              **(chosen or {})}
     notes += check_columns(spec, columns, loaded.source, loaded.column_hint(), chosen)
     frame, coding_notes = code_answer_words(spec, frame, loaded.source,  # 'answers' statements: words as codes
                                             missing_codes=missing_codes_option(missing_codes))

@@ -50,3 +50,20 @@ def test_a_column_the_run_would_read_is_refused(option, role, files, capsys):
     assert code == 2
     assert err.startswith(f"cfa-tool: {model}:5:8: 'comfort' is declared as a factor but is also a column of "
                           f"survey.csv, chosen as {role}; give the factor another name")
+
+
+def test_a_factor_named_column_that_a_row_filter_reads_is_refused(rider_demo, tmp_path):
+    """--keep 'comfort >= 10' on a column named like the factor comfort reads that column: refused as the other roles
+    are, not said to be unused while the filter selects rows on it (review s14)."""
+    import pytest
+
+    import cfa_tool
+    from cfa_tool.errors import ModelError
+
+    data = rider_demo.copy()
+    data["comfort"] = data[["seat_available", "clean", "temperature", "room_to_stand"]].sum(axis=1)
+    path = tmp_path / "with_total.csv"
+    data.to_csv(path, index=False)
+    model = "factor comfort: seat_available, clean, temperature, room_to_stand\n"
+    with pytest.raises(ModelError, match=r"chosen as the column of the row filter 'comfort >= 10'"):
+        cfa_tool.fit(model, str(path), keep="comfort >= 10")
