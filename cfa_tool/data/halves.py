@@ -209,7 +209,7 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str,
                         f"as it was when the halves were drawn), not those of {source}: give the data file the halves "
                         f"were drawn from; if that file was corrected since, write the halves again from it (cfa-tool "
                         f"explore --split {saved.seed} --halves-file NEW.csv draws the same halves from as many rows)")
-    if (sheet or "") != saved.sheet:
+    if (sheet or "") != saved.sheet and _sheet_read(data, sheet) != _sheet_read(data, saved.sheet):
         drawn = f"the sheet '{printable(saved.sheet)}'" if saved.sheet else "the first sheet (no sheet asked for)"
         asked = f"the sheet '{printable(sheet)}'" if sheet else "the first sheet (no sheet asked for)"
         raise DataError(f"{shown} holds the halves of {drawn} of '{printable(saved.data_file)}', and this run reads "
@@ -245,3 +245,16 @@ def _check_drawn(saved: SavedHalves, shown: str) -> None:
     raise DataError(f"{shown}: its halves are not those seed {saved.seed} draws from its {len(order)} rows (edited by "
                     f"hand, or written with another seed): a half is analysed only as drawn; write the halves again "
                     f"(cfa-tool explore --split SEED --halves-file NEW.csv)")
+
+
+def _sheet_read(data, sheet: str | None) -> str:
+    """The sheet a run reads of a workbook: the one asked for, else the first (review s14: halves drawn without
+    --sheet were refused for --sheet naming that same first sheet); '' for other files."""
+    if sheet:
+        return sheet
+    if not isinstance(data, (str, Path)) or Path(data).suffix.lower() not in (".xlsx", ".xlsm", ".xls"):
+        return ""
+    try:
+        return str(pd.ExcelFile(data).sheet_names[0])
+    except (OSError, ValueError, ImportError):
+        return ""

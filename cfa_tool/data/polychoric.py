@@ -459,8 +459,8 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         gaps = pairwise and not present.all()
         raise DataError(f"{source}{where}: the polychoric correlation matrix is not positive definite; "
                         + (f"categories answered by very few rows: {_rare_listed(rare)} (merge such a category with "
-                           f"its neighbour: an 'answers' statement in the model file may give two words one code, or "
-                           f"a copy of the data may recode it; or leave the item out"
+                           f"its neighbour in a copy of the data (answers recorded as words: an 'answers' statement "
+                           f"in the model file may give two words one code); or leave the item out"
                            + (f"; or leave this group out with a row filter ({Option.KEEP})" if where else "") + ")"
                            if rare else
                            "some items may be near duplicates or some categories nearly empty")

@@ -145,10 +145,17 @@ def test_halves_of_another_sheet_are_refused(tmp_path, capsys):
     code, _, err = _run(["fit", model, "--data", book, "--sheet", "Wave2", "--half", halves, "confirmation"], capsys)
     assert code == 2 and "holds the halves of the sheet 'Wave1' of 'waves.xlsx', and this run reads the sheet 'Wave2'" \
         in err
+    # Wave1 is the first sheet: a run without --sheet reads it, and is the same sheet (review s14: it was refused)
     code, _, err = _run(["fit", model, "--data", book, "--half", halves, "confirmation"], capsys)
-    assert code == 2 and "this run reads the first sheet (no sheet asked for)" in err
+    assert code == 0, err
     code, out, err = _run(["fit", model, "--data", book, "--sheet", "Wave1", "--half", halves, "confirmation"], capsys)
     assert code == 0, err
+    second = tmp_path / "second.csv"
+    code, _, err = _run(["explore", "--data", book, "--sheet", "Wave2", "--items", "x1..x9", "--factors", 3,
+                         "--split", 5, "--halves-file", second], capsys)
+    assert code == 0, err
+    code, _, err = _run(["fit", model, "--data", book, "--half", second, "confirmation"], capsys)
+    assert code == 2 and "holds the halves of the sheet 'Wave2'" in err and "the first sheet (no sheet asked for)" in err
 
 
 def test_a_halves_file_that_is_a_folder_or_a_workbook_is_said_so(tmp_path, capsys):
