@@ -62,9 +62,16 @@ def _name(name) -> str:
 def _group_names(groups) -> list[str]:
     """The groups' labels written alike: every one in double quotes when any needs them (a label with spaces or
     punctuation), so that a list of groups does not quote some and not others (new user s14)."""
-    written = [_name(g.label) for g in groups]
-    if any(w.startswith('"') for w in written):
-        return [w if w.startswith('"') else f'"{w}"' for w in written]
+    labels = [g.label for g in groups]
+    return [_group_label(label, labels) for label in labels]
+
+
+def _group_label(label, labels) -> str:
+    """One group's label as :func:`_group_names` writes it among ``labels`` (every label of the fit), wherever the
+    paragraph names it: in double quotes when any label needs them (review s14: 'Group east' after '"east"')."""
+    written = _name(label)
+    if not written.startswith('"') and any(_name(x).startswith('"') for x in labels):
+        return f'"{written}"'
     return written
 
 
@@ -555,7 +562,9 @@ def _pairs_by_group(result) -> str:
     ranges = [(g.label, g.data.pair_range) for g in result.groups] if result.multigroup else []
     if not ranges or any(r is None for _, r in ranges):
         return ""
-    return " over the groups and " + _list([f"{low} to {high} in {_name(label)}" for label, (low, high) in ranges])
+    labels = [label for label, _ in ranges]
+    return " over the groups and " + _list([f"{low} to {high} in {_group_label(label, labels)}"
+                                            for label, (low, high) in ranges])
 
 
 def _filtered(data, file: str = "the data file") -> str:
@@ -817,11 +826,12 @@ def _factor_means_sentence(result) -> str:
     every = {r.variables[0] for r in means}
     if len(at_zero) == len(labels):
         return "The factor means were fixed at zero in every group."
-    parts = [f"fixed at zero in {_names(at_zero)}"] if at_zero else []
+    parts = [f"fixed at zero in {_list([_group_label(g, labels) for g in at_zero])}"] if at_zero else []
     whole = [g for g in labels if estimated[g] and set(estimated[g]) == every]
     if whole:
-        parts.append(f"estimated in {_names(whole)}")
-    parts += [f"estimated for {_names(estimated[g])} in {_name(g)}" for g in labels if estimated[g] and g not in whole]
+        parts.append(f"estimated in {_list([_group_label(g, labels) for g in whole])}")
+    parts += [f"estimated for {_names(estimated[g])} in {_group_label(g, labels)}" for g in labels
+              if estimated[g] and g not in whole]
     return f"The factor means were {_list(parts)}." if parts else ""
 
 
@@ -1112,7 +1122,7 @@ def comparison_paragraph(comparison) -> str:
     else:
         of = f"of {_count(counts[0], 'indicator')} each, not all the same items,"
     groups = (f" in {_count(len(first.groups), 'group')} defined by {_name(first.group_column)}"
-              f" ({_names([g.label for g in first.groups])})" if first.multigroup else "")
+              f" ({_list(_group_names(first.groups))})" if first.multigroup else "")
     matrix = _matrix_sentence(first, "The models were")
     same = "summary statistics" if matrix else "rows"
     parts = [f"{_capital(_count(len(names), 'model'))} {of} were compared on the same {same} "
@@ -1280,7 +1290,8 @@ def _small_groups(result) -> str:
     small = [p for p in result.problems if p.kind is ProblemKind.SMALL_GROUP]
     if not small:
         return ""
-    named = _list([f"{_name(p.group)} ({p.value:g} rows)" for p in small])
+    labels = [g.label for g in result.groups] if getattr(result, "groups", None) else [p.group for p in small]
+    named = _list([f"{_group_label(p.group, labels)} ({p.value:g} rows)" for p in small])
     one = len(small) == 1
     return (f"{'Group' if one else 'Groups'} {named} had fewer rows than the free parameters of {'its' if one else 'their'}"
             f" model, so {'its' if one else 'their'} estimates, and every comparison with the other groups, rest on "
@@ -1388,7 +1399,8 @@ def invariance_paragraph(result, levels) -> str:
                      f"that did not hold, so {'they compare' if len(conditional) > 1 else 'it compares'} models "
                      f"already rejected.")
     if result.latent_differences:
-        diffs = "; ".join(f"{_name(x.factor)} in {_name(x.group)}, {num(x.mean, 2)} (SE = {num(x.se, 2)}, {_p(x.p_value)}, "
+        diffs = "; ".join(f"{_name(x.factor)} in {_group_label(x.group, result.groups)}, {num(x.mean, 2)} "
+                          f"(SE = {num(x.se, 2)}, {_p(x.p_value)}, "
                           f"d = {num(x.standardized, 2)})" for x in result.latent_differences)
         scalar = next(k for k, s in enumerate(steps) if s.level == "scalar")
         basis = _basis(steps, scalar)

@@ -50,7 +50,7 @@ def test_the_latent_differences_are_those_of_the_report(partial_ladder):
     text = _text(partial_ladder)
     assert 'Latent mean differences from the partially invariant scalar model, against "Grant-White"' in text
     for d in partial_ladder.latent_differences:
-        assert f"{d.factor} in {d.group}, {d.mean:.2f} (SE = {d.se:.2f}" in text.replace("-0.00", "0.00")
+        assert f"{d.factor} in \"{d.group}\", {d.mean:.2f} (SE = {d.se:.2f}" in text.replace("-0.00", "0.00")  # quoted alike (s14)
 
 
 def test_every_step_figure_is_the_step_test(partial_ladder):

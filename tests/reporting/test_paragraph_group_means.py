@@ -37,7 +37,7 @@ def test_with_equal_intercepts_the_other_groups_means_are_estimated():
                           reference_group="Pasteur")
     assert _means(result) == {"Pasteur": {False}, "Grant-White": {True}}
     text = _flat(methods_paragraph(result))
-    assert 'The factor means were fixed at zero in Pasteur and estimated in "Grant-White".' in text
+    assert 'The factor means were fixed at zero in "Pasteur" and estimated in "Grant-White".' in text
 
 
 def test_a_fit_of_one_group_says_nothing_of_factor_means():

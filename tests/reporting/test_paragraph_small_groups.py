@@ -20,7 +20,7 @@ def test_the_invariance_paragraph_names_a_group_smaller_than_its_model(hs_data):
     data = pd.concat([hs_data[hs_data["school"] == first].iloc[:28], hs_data[hs_data["school"] != first]])
     ladder = cfa_tool.invariance(THREE, data, "school")
     text = " ".join(invariance_report(ladder).paragraph.split())
-    said = (f"Group {first} (28 rows) had fewer rows than the free parameters of its model, so its estimates, and "
+    said = (f"Group \"{first}\" (28 rows) had fewer rows than the free parameters of its model, so its estimates, and "
             f"every comparison with the other groups, rest on too few answers.")
     assert said in text
     result = re.search(r"The configural model (held|did not hold)", text)
