@@ -156,7 +156,8 @@ class NormalLikelihood:
         """(d, H_ct, h) of group g's candidate entries for score tests, one triple per chunk of candidates
         (``chunks``: their :class:`~cfa_tool.model.rank_two.EntryBasis`, made when used): gradient,
         cross-information with theta and own information, all of this group's discrepancy (unweighted).
-        What every chunk reads (K, Q and the model's columns of K) is made once."""
+        What every chunk reads (K, Q and the model's columns of K) is made once, and the chunks' cross-information is
+        made in the same arrays each time: read (or copy) a chunk's H_ct before asking for the next."""
         out = self._rank_two(theta, g, with_information=False)
         if out is None:
             return
@@ -166,8 +167,11 @@ class NormalLikelihood:
         model = self._basis[g]
         columns = model_columns(model, K)
         J = None if self.model.identity_J[g] else self._J[g]
+        chunks = tuple(chunks)
+        rows = max((len(cand.u) for cand in chunks), default=0)
+        buffers = tuple(np.empty((rows, len(model.u))) for _ in range(3))
         for cand in chunks:
-            d, H_ce, h = candidate_blocks(cand, model, K, Q, Vm, a, columns)
+            d, H_ce, h = candidate_blocks(cand, model, K, Q, Vm, a, columns, buffers)
             yield d, (H_ce if J is None else H_ce @ J), h
 
     def _evaluate(self, theta: np.ndarray, with_information: bool) -> Evaluation | None:
