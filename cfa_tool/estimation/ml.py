@@ -21,6 +21,11 @@ from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term
                                      second_derivative_contraction)
 
 
+#: the size (numbers) from which the score tests' blocks of candidates are made in arrays reused from chunk to chunk
+#: (model.rank_two.candidate_blocks); smaller ones are new arrays, with fewer numpy calls
+REUSED_BLOCK = 1 << 15
+
+
 class SingularMoments(ValueError):
     """A sample covariance matrix that is not positive definite (a resample or simulated data set
     with too few distinct rows); data read from files are checked before this can happen."""
@@ -157,7 +162,8 @@ class NormalLikelihood:
         (``chunks``: their :class:`~cfa_tool.model.rank_two.EntryBasis`, made when used): gradient,
         cross-information with theta and own information, all of this group's discrepancy (unweighted).
         What every chunk reads (K, Q and the model's columns of K) is made once, and the chunks' cross-information is
-        made in the same arrays each time: read (or copy) a chunk's H_ct before asking for the next."""
+        made in the same arrays each time when large (:data:`REUSED_BLOCK`): read (or copy) a chunk's H_ct before
+        asking for the next."""
         out = self._rank_two(theta, g, with_information=False)
         if out is None:
             return
@@ -169,7 +175,8 @@ class NormalLikelihood:
         J = None if self.model.identity_J[g] else self._J[g]
         chunks = tuple(chunks)
         rows = max((len(cand.u) for cand in chunks), default=0)
-        buffers = tuple(np.empty((rows, len(model.u))) for _ in range(3))
+        buffers = (tuple(np.empty((rows, len(model.u))) for _ in range(3)) if rows * len(model.u) >= REUSED_BLOCK
+                   else None)
         for cand in chunks:
             d, H_ce, h = candidate_blocks(cand, model, K, Q, Vm, a, columns, buffers)
             yield d, (H_ce if J is None else H_ce @ J), h

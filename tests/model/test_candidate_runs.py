@@ -10,8 +10,10 @@ from dataclasses import replace
 
 import numpy as np
 import pandas as pd
+import pytest
 
 from cfa_tool.assessment.modification import candidate_entries
+from cfa_tool.estimation import ml
 from cfa_tool.language.parser import parse_model
 from cfa_tool.model.implied import entry_derivatives
 from cfa_tool.model.parameters import MATRIX_CODES
@@ -36,7 +38,8 @@ def _blocks(likelihood, theta, bases):
     return [tuple(np.array(x, copy=True) for x in block) for block in likelihood.candidate_scores(theta, 0, bases)]
 
 
-def test_blocks_in_runs_are_the_gathered_blocks_and_the_trace_formula(hs_data: pd.DataFrame):
+@pytest.mark.parametrize("reused", [False, True])
+def test_blocks_in_runs_are_the_gathered_blocks_and_the_trace_formula(hs_data: pd.DataFrame, monkeypatch, reused: bool):
     spec = parse_model(THREE_FACTORS)
     groups, _ = moments_for(spec, hs_data, "data")
     est = estimate(spec, groups, FitOptions())
@@ -50,7 +53,10 @@ def test_blocks_in_runs_are_the_gathered_blocks_and_the_trace_formula(hs_data: p
     in_runs = [replace(b, runs=row_runs(b.u, b.v, shortest=2)) for b in gathered]
     assert sum(r[2] >= 0 for b in in_runs for r in b.runs) >= 8
 
-    by_runs, by_rows = _blocks(likelihood, theta, in_runs), _blocks(likelihood, theta, gathered)
+    by_rows = _blocks(likelihood, theta, gathered)  # nine items: small blocks, new arrays
+    if reused:  # the arrays reused from chunk to chunk, as for large models
+        monkeypatch.setattr(ml, "REUSED_BLOCK", 0)
+    by_runs = _blocks(likelihood, theta, in_runs)
     for run_block, row_block in zip(by_runs, by_rows):
         for a, b in zip(run_block, row_block):
             assert a.tobytes() == b.tobytes()  # the same numbers to the bit, signs of zeros too
