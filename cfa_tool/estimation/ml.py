@@ -21,8 +21,9 @@ from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term
                                      second_derivative_contraction)
 
 
-#: the size (numbers) from which the score tests' blocks of candidates are made in arrays reused from chunk to chunk
-#: (model.rank_two.candidate_blocks); smaller ones are new arrays, with fewer numpy calls
+#: the size (numbers) from which the score tests' blocks of candidates are made in arrays reused from chunk to chunk,
+#: reading runs of an item's residual covariances as slices (model.rank_two.candidate_blocks); smaller blocks are
+#: gathered into new arrays, with fewer numpy calls (at 30 items the runs' calls cost more than they save)
 REUSED_BLOCK = 1 << 15
 
 

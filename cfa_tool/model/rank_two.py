@@ -184,15 +184,16 @@ def candidate_blocks(cand: EntryBasis, model: EntryBasis, K: np.ndarray, Q: np.n
     """For candidate entries (not parameters of the model): their gradient d, their cross-information
     with the model's entries H_ce and their own information h (the diagonal), as in the formulas above.
     ``Vm`` is V' m (the mean part of the gradient), None without a mean structure; ``columns`` is
-    :func:`model_columns` of the model's entries.  ``buffers``: three arrays of at least as many rows as candidates
-    and one column per model entry, in which H_ce is made (it is the first one's leading rows), for large blocks
-    reused from chunk to chunk: memory in use and in the processor's caches, where new arrays are fresh memory."""
+    :func:`model_columns` of the model's entries.  ``buffers``, for large blocks: three arrays of at least as many
+    rows as candidates and one column per model entry, reused from chunk to chunk (memory in use and in the
+    processor's caches, where new arrays are fresh memory), in which H_ce is made (the first one's leading rows),
+    reading runs (:func:`row_runs`) as slices."""
     uc, vc, cc = cand.u, cand.v, cand.c
     Ku, Kv = columns  # K is symmetric, so K[u_c, u_e] = Ku[u_c]: whole rows gathered
     d = 2.0 * cc * Q[uc, vc]
     # 2 c_e c_c (K[u_c, u_e] K[v_c, v_e] + K[u_c, v_e] K[v_c, u_e]); c_c is 1 for every off-diagonal entry (all but
     # equality tests of variances): powers of two, exact in any order
-    if buffers is None and not cand.runs:  # small blocks: rows gathered into new arrays, the fewest numpy calls
+    if buffers is None:  # small blocks: rows gathered into new arrays, the fewest numpy calls
         H = np.take(Ku, uc, axis=0)
         H *= np.take(Kv, vc, axis=0)
         other = np.take(Kv, uc, axis=0)
@@ -212,13 +213,14 @@ def candidate_blocks(cand: EntryBasis, model: EntryBasis, K: np.ndarray, Q: np.n
 
 
 def _products_in_runs(cand: EntryBasis, Ku: np.ndarray, Kv: np.ndarray,
-                      buffers: tuple[np.ndarray, np.ndarray, np.ndarray] | None) -> np.ndarray:
-    """Ku[u_c] Kv[v_c] + Kv[u_c] Ku[v_c] for :func:`candidate_blocks`, made in ``buffers`` (new arrays with None):
-    a run of one u and consecutive v (an item's residual covariances, :func:`row_runs`) reads slices of Ku and Kv,
-    not gathered rows, and each run's two products are summed while its rows are in the processor's cache."""
+                      buffers: tuple[np.ndarray, np.ndarray, np.ndarray]) -> np.ndarray:
+    """Ku[u_c] Kv[v_c] + Kv[u_c] Ku[v_c] for :func:`candidate_blocks`, made in ``buffers``: a run of one u and
+    consecutive v (an item's residual covariances, :func:`row_runs`) reads slices of Ku and Kv, not gathered rows (a
+    few numpy calls for the run, which pay for long rows: large models), and each run's two products are summed
+    while its rows are in the processor's cache."""
     uc, vc = cand.u, cand.v
-    n, width = len(uc), Ku.shape[1]
-    H, other, spare = (np.empty((n, width)) for _ in range(3)) if buffers is None else (b[:n] for b in buffers)
+    n = len(uc)
+    H, other, spare = (b[:n] for b in buffers)
     for start, stop, u, v in cand.runs or ((0, n, -1, -1),):
         rows, second = H[start:stop], other[: stop - start]
         if u >= 0:

@@ -38,8 +38,9 @@ def _blocks(likelihood, theta, bases):
     return [tuple(np.array(x, copy=True) for x in block) for block in likelihood.candidate_scores(theta, 0, bases)]
 
 
-@pytest.mark.parametrize("reused", [False, True])
-def test_blocks_in_runs_are_the_gathered_blocks_and_the_trace_formula(hs_data: pd.DataFrame, monkeypatch, reused: bool):
+@pytest.mark.parametrize("shortest", [2, 100])
+def test_blocks_in_runs_are_the_gathered_blocks_and_the_trace_formula(hs_data: pd.DataFrame, monkeypatch,
+                                                                      shortest: int):
     spec = parse_model(THREE_FACTORS)
     groups, _ = moments_for(spec, hs_data, "data")
     est = estimate(spec, groups, FitOptions())
@@ -50,12 +51,11 @@ def test_blocks_in_runs_are_the_gathered_blocks_and_the_trace_formula(hs_data: p
     chunks = [slice(0, 20), slice(20, 41), slice(41, len(entries))]  # runs cut by the chunks' edges too
     gathered = [entry_basis(codes[sl], rows[sl], cols[sl], model.p, model.m, with_pairs=False) for sl in chunks]
     assert all(b.runs == () for b in gathered)  # nine items: no run of SHORTEST_RUN entries
-    in_runs = [replace(b, runs=row_runs(b.u, b.v, shortest=2)) for b in gathered]
-    assert sum(r[2] >= 0 for b in in_runs for r in b.runs) >= 8
+    in_runs = [replace(b, runs=row_runs(b.u, b.v, shortest=shortest)) for b in gathered]
+    assert sum(r[2] >= 0 for b in in_runs for r in b.runs) >= (8 if shortest == 2 else 0)
 
-    by_rows = _blocks(likelihood, theta, gathered)  # nine items: small blocks, new arrays
-    if reused:  # the arrays reused from chunk to chunk, as for large models
-        monkeypatch.setattr(ml, "REUSED_BLOCK", 0)
+    by_rows = _blocks(likelihood, theta, gathered)  # nine items: small blocks, rows gathered into new arrays
+    monkeypatch.setattr(ml, "REUSED_BLOCK", 0)  # as for large models: arrays reused from chunk to chunk, and runs
     by_runs = _blocks(likelihood, theta, in_runs)
     for run_block, row_block in zip(by_runs, by_rows):
         for a, b in zip(run_block, row_block):
