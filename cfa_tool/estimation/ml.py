@@ -23,8 +23,9 @@ from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term
 
 #: the size (numbers) from which the score tests' blocks of candidates are made in arrays reused from chunk to chunk,
 #: reading runs of an item's residual covariances as slices (model.rank_two.candidate_blocks); smaller blocks are
-#: gathered into new arrays, with fewer numpy calls (at 30 items the runs' calls cost more than they save)
-REUSED_BLOCK = 1 << 15
+#: gathered into new arrays, with fewer numpy calls (at 30 items the runs' calls cost more than they save, at 60
+#: items, 256 x 129 numbers, they gained nothing measurable; at 120 items, 256 x 306, a fifth of the blocks' time)
+REUSED_BLOCK = 1 << 16
 
 
 class SingularMoments(ValueError):
