@@ -214,8 +214,9 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
     for g, weight, mats, blocks in parts:
         d, h_cc, h_ct = [], [], []
         for d_part, H_ct, h_cc_part in blocks:
-            if weight != 1.0:  # one group: nothing to weigh
-                d_part, H_ct, h_cc_part = weight * d_part, weight * H_ct, weight * h_cc_part
+            if weight != 1.0:  # one group: nothing to weigh (H_ct, made for this loop, weighed in place)
+                d_part, h_cc_part = weight * d_part, weight * h_cc_part
+                H_ct *= weight
             d.append(d_part)
             h_cc.append(h_cc_part)
             h_ct.append(forms(H_ct.T, overwrite=True))  # H_ct is this loop's own

@@ -21,6 +21,13 @@ from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term
                                      second_derivative_contraction)
 
 
+#: the size (numbers) from which the score tests' blocks of candidates are made in arrays reused from chunk to chunk,
+#: reading runs of an item's residual covariances as slices (model.rank_two.candidate_blocks); smaller blocks are
+#: gathered into new arrays, with fewer numpy calls (at 30 items the runs' calls cost more than they save, at 60
+#: items, 256 x 129 numbers, they gained nothing measurable; at 120 items, 256 x 306, a fifth of the blocks' time)
+REUSED_BLOCK = 1 << 16
+
+
 class SingularMoments(ValueError):
     """A sample covariance matrix that is not positive definite (a resample or simulated data set
     with too few distinct rows); data read from files are checked before this can happen."""
@@ -156,7 +163,9 @@ class NormalLikelihood:
         """(d, H_ct, h) of group g's candidate entries for score tests, one triple per chunk of candidates
         (``chunks``: their :class:`~cfa_tool.model.rank_two.EntryBasis`, made when used): gradient,
         cross-information with theta and own information, all of this group's discrepancy (unweighted).
-        What every chunk reads (K, Q and the model's columns of K) is made once."""
+        What every chunk reads (K, Q and the model's columns of K) is made once, and the chunks' cross-information is
+        made in the same arrays each time when large (:data:`REUSED_BLOCK`): read (or copy) a chunk's H_ct before
+        asking for the next."""
         out = self._rank_two(theta, g, with_information=False)
         if out is None:
             return
@@ -166,8 +175,12 @@ class NormalLikelihood:
         model = self._basis[g]
         columns = model_columns(model, K)
         J = None if self.model.identity_J[g] else self._J[g]
+        chunks = tuple(chunks)
+        rows = max((len(cand.u) for cand in chunks), default=0)
+        buffers = (tuple(np.empty((rows, len(model.u))) for _ in range(3)) if rows * len(model.u) >= REUSED_BLOCK
+                   else None)
         for cand in chunks:
-            d, H_ce, h = candidate_blocks(cand, model, K, Q, Vm, a, columns)
+            d, H_ce, h = candidate_blocks(cand, model, K, Q, Vm, a, columns, buffers)
             yield d, (H_ce if J is None else H_ce @ J), h
 
     def _evaluate(self, theta: np.ndarray, with_information: bool) -> Evaluation | None:

@@ -46,6 +46,9 @@ class EntryBasis:
     vu: np.ndarray
     ww: np.ndarray
     cc: np.ndarray  # outer(c, c)
+    #: candidates only (:func:`row_runs`): (start, stop, u, first v) of each run of entries with one u and consecutive
+    #: v, u = -1 for the rows between runs; empty when there is no long run
+    runs: tuple[tuple[int, int, int, int], ...] = ()
 
 
 def entry_basis(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, p: int, m: int, with_pairs: bool = True) -> EntryBasis:
@@ -81,7 +84,39 @@ def entry_basis(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, p: int, m
         return a[:, None] * nb + b[None, :] if with_pairs else np.zeros((0, 0), dtype=int)
 
     return EntryBasis(u, v, w, c, mean_from_a, mean_one, pairs(u, u), pairs(v, v), pairs(u, v), pairs(v, u), pairs(w, w),
-                      np.outer(c, c) if with_pairs else np.zeros((0, 0)))
+                      np.outer(c, c) if with_pairs else np.zeros((0, 0)), () if with_pairs else row_runs(u, v))
+
+
+#: the fewest entries of a run that :func:`candidate_blocks` reads as slices of K's columns rather than gathers (a run
+#: costs a few numpy calls; a gathered row four copies of a row)
+SHORTEST_RUN = 16
+
+
+def row_runs(u: np.ndarray, v: np.ndarray, shortest: int = SHORTEST_RUN) -> tuple[tuple[int, int, int, int], ...]:
+    """(start, stop, u, first v) of each run of at least ``shortest`` consecutive entries with one u and consecutive
+    v (the residual covariances (i, j) of one item i, j = 0, 1, ..., i - 1), and (start, stop, -1, -1) for the
+    entries between runs; empty when there is no such run."""
+    n = len(u)
+    if n < shortest:
+        return ()
+    breaks = np.flatnonzero((u[1:] != u[:-1]) | (v[1:] != v[:-1] + 1)) + 1
+    starts = np.concatenate(([0], breaks)).tolist()
+    stops = np.concatenate((breaks, [n])).tolist()
+    runs: list[tuple[int, int, int, int]] = []
+    loose = None  # where the entries not in a run began
+    for start, stop in zip(starts, stops):
+        if stop - start < shortest:
+            loose = start if loose is None else loose
+            continue
+        if loose is not None:
+            runs.append((loose, start, -1, -1))
+            loose = None
+        runs.append((start, stop, int(u[start]), int(v[start])))
+    if not any(r[2] >= 0 for r in runs):
+        return ()
+    if loose is not None:
+        runs.append((loose, n, -1, -1))
+    return tuple(runs)
 
 
 def basis_vectors(mats, means: bool) -> tuple[np.ndarray, np.ndarray]:
@@ -143,22 +178,29 @@ def model_columns(model: EntryBasis, K: np.ndarray) -> tuple[np.ndarray, np.ndar
 
 
 def candidate_blocks(cand: EntryBasis, model: EntryBasis, K: np.ndarray, Q: np.ndarray, Vm: np.ndarray | None,
-                     a: np.ndarray, columns: tuple[np.ndarray, np.ndarray]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+                     a: np.ndarray, columns: tuple[np.ndarray, np.ndarray],
+                     buffers: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None
+                     ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """For candidate entries (not parameters of the model): their gradient d, their cross-information
     with the model's entries H_ce and their own information h (the diagonal), as in the formulas above.
     ``Vm`` is V' m (the mean part of the gradient), None without a mean structure; ``columns`` is
-    :func:`model_columns` of the model's entries."""
+    :func:`model_columns` of the model's entries.  ``buffers``, for large blocks: three arrays of at least as many
+    rows as candidates and one column per model entry, reused from chunk to chunk (memory in use and in the
+    processor's caches, where new arrays are fresh memory), in which H_ce is made (the first one's leading rows),
+    reading runs (:func:`row_runs`) as slices."""
     uc, vc, cc = cand.u, cand.v, cand.c
     Ku, Kv = columns  # K is symmetric, so K[u_c, u_e] = Ku[u_c]: whole rows gathered
     d = 2.0 * cc * Q[uc, vc]
     # 2 c_e c_c (K[u_c, u_e] K[v_c, v_e] + K[u_c, v_e] K[v_c, u_e]); c_c is 1 for every off-diagonal entry (all but
-    # equality tests of variances): powers of two, exact in any order.  Rows gathered and multiplied in place: four
-    # arrays of the block's size made, not six
-    H = np.take(Ku, uc, axis=0)
-    H *= np.take(Kv, vc, axis=0)
-    other = np.take(Kv, uc, axis=0)
-    other *= np.take(Ku, vc, axis=0)
-    H += other
+    # equality tests of variances): powers of two, exact in any order
+    if buffers is None:  # small blocks: rows gathered into new arrays, the fewest numpy calls
+        H = np.take(Ku, uc, axis=0)
+        H *= np.take(Kv, vc, axis=0)
+        other = np.take(Kv, uc, axis=0)
+        other *= np.take(Ku, vc, axis=0)
+        H += other
+    else:
+        H = _products_in_runs(cand, Ku, Kv, buffers)
     if not (cc == 1.0).all():
         H *= cc[:, None]
     h = 2.0 * cc**2 * (K[uc, uc] * K[vc, vc] + K[uc, vc] ** 2)
@@ -168,6 +210,30 @@ def candidate_blocks(cand: EntryBasis, model: EntryBasis, K: np.ndarray, Q: np.n
         H += 2.0 * np.outer(sc, se) * K[np.ix_(cand.w, model.w)]
         h = h + 2.0 * sc**2 * K[cand.w, cand.w]
     return d, H, h
+
+
+def _products_in_runs(cand: EntryBasis, Ku: np.ndarray, Kv: np.ndarray,
+                      buffers: tuple[np.ndarray, np.ndarray, np.ndarray]) -> np.ndarray:
+    """Ku[u_c] Kv[v_c] + Kv[u_c] Ku[v_c] for :func:`candidate_blocks`, made in ``buffers``: a run of one u and
+    consecutive v (an item's residual covariances, :func:`row_runs`) reads slices of Ku and Kv, not gathered rows (a
+    few numpy calls for the run, which pay for long rows: large models), and each run's two products are summed
+    while its rows are in the processor's cache."""
+    uc, vc = cand.u, cand.v
+    n = len(uc)
+    H, other, spare = (b[:n] for b in buffers)
+    for start, stop, u, v in cand.runs or ((0, n, -1, -1),):
+        rows, second = H[start:stop], other[: stop - start]
+        if u >= 0:
+            np.multiply(Ku[u], Kv[v:v + stop - start], out=rows)
+            np.multiply(Kv[u], Ku[v:v + stop - start], out=second)
+        else:  # mode "clip" gathers straight into the given array (the default mode copies through a new one)
+            rows_u, rows_v, into = uc[start:stop], vc[start:stop], spare[: stop - start]
+            np.take(Ku, rows_u, axis=0, out=rows, mode="clip")
+            rows *= np.take(Kv, rows_v, axis=0, out=into, mode="clip")
+            np.multiply(np.take(Kv, rows_u, axis=0, out=second, mode="clip"),
+                        np.take(Ku, rows_v, axis=0, out=into, mode="clip"), out=second)
+        rows += second
+    return H
 
 
 @dataclass(frozen=True)
