@@ -132,11 +132,9 @@ def quality_table(result, k: int) -> ReportTable:
         note = ("Determinacy: the correlation of the regression scores with their factor (Grice 2001). Then the "
                 "reliability of each method's scores (Corr.-preserving: correlation-preserving scores): the squared correlation of "
                 "the score with its factor (Beauducel 2011). Values "
-                "under the fitted model with every item answered. Written to the file: "
-                + word_list(METHOD_LABELS[m] for m in LINEAR_METHODS if m in result.methods)
-                + (f"; shown for comparison, not written (ask for them with {Option.SCORE_METHODS}): "
-                   + word_list(unwritten) if (unwritten := [METHOD_LABELS[m] for m in LINEAR_METHODS
-                                                             if m not in result.methods]) else "") + "."
+                "under the fitted model with every item answered. "
+                + _written_words([METHOD_LABELS[m] for m in LINEAR_METHODS if m in result.methods],
+                                 [METHOD_LABELS[m] for m in LINEAR_METHODS if m not in result.methods])
                 + (" Item sum ω: the reliability of each factor's keyed item sum (and of the item mean, its multiple), "
                    "omega (McDonald 1999) as the fit gives it, the share of the sum's variance due to the factor; for "
                    "items that load on one factor only it is the squared correlation of the sum with the factor, as "
@@ -387,6 +385,16 @@ def correlation_table(result, k: int) -> ReportTable | None:
                   "The factors' correlations, then those of each method's scores (Corr.-preserving: correlation-preserving "
                   "scores), under the fitted model. Regression scores as a rule overstate the factors' correlations; "
                   "correlation-preserving scores keep them (Grice 2001; ten Berge et al. 1999).")
+
+
+def _written_words(written: list[str], unwritten: list[str]) -> str:
+    """Which methods' scores the file holds and which the table shows only for comparison (hostile s14: with item
+    sums alone the note read 'Written to the file: ; shown for comparison')."""
+    said = f"Written to the file: {word_list(written)}" if written else "No factor-score method is written to the file"
+    if unwritten:
+        said += (f"; shown for comparison{'' if written else ' only'}, not written (ask for them with "
+                 f"{Option.SCORE_METHODS}): {word_list(unwritten)}")
+    return said + "."
 
 
 def sum_table(result, k: int) -> ReportTable | None:

@@ -121,3 +121,13 @@ def test_the_problems_table_of_the_scores_holds_what_the_first_box_says(hs_data)
     assert [row[0] for row in table.rows] == ["scores without the factor's own answers",
                                               "scores less reliable than decisions about individuals need"]
     assert [row[5] for row in table.rows][1] == report.notice.lines[1]
+
+
+def test_the_quality_note_says_no_factor_score_method_was_written_with_item_sums_alone(rider_demo, rider_model):
+    """--method item-sum,item-mean: the quality table's note read 'Written to the file: ; shown for comparison'
+    (hostile s14)."""
+    result = cfa_tool.scores(rider_model, rider_demo, methods=["item-sum", "item-mean"])
+    note = " ".join(next(t for t in scores_report(result).tables if t.title.startswith("Quality")).note.split())
+    assert "Written to the file: ;" not in note
+    assert "No factor-score method is written to the file; shown for comparison only, not written" in note
+    assert "regression, Bartlett, and correlation-preserving." in note
