@@ -436,7 +436,8 @@ def _summary_rows(X: np.ndarray, base: np.ndarray) -> dict[int, OddKind]:
     if means:
         trimmed = np.array(base, dtype=float)
         trimmed[means] = np.nan
-        found.update({r: kind for r, kind in _summary_rows_once(X, trimmed).items() if kind is OddKind.SUMS_ROW})
+        found.update({r: kind for r, kind in _summary_rows_once(X, trimmed).items()
+                      if kind is OddKind.SUMS_ROW and r not in found})  # a means row stays one
     return found
 
 

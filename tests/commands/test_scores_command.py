@@ -93,9 +93,9 @@ def test_rows_with_gaps_are_scored_from_their_answers_and_empty_rows_are_kept_an
     scores = written[[f"{f}_regression" for f in FACTORS]].to_numpy()
     assert np.isnan(scores[5]).all()
     assert [u for u in result["unscored"] if u["reason"] == "no answers on the model's items"][0]["rows"]["visual"] == 1
-    # said before the tables (a warning), and marked in the output: row 7 answered no visual item, so its
-    # visual_items_answered is 0; counted by hand from the gaps made above
-    assert any("answered none of the items of visual" in n for n in result["warnings"])
+    # said first (a caution of the rows scored, s14; a warning before), and marked in the output: row 7 answered no
+    # visual item, so its visual_items_answered is 0; counted by hand from the gaps made above
+    assert any("answered none of the items of visual" in p["explanation"] for p in result["fit"]["problems"])
     answered = (~np.isnan(values)).reshape(len(values), 3, 3).sum(axis=2)  # x1-x3, x4-x6, x7-x9
     np.testing.assert_array_equal(written[[f"{f}_items_answered" for f in FACTORS]].to_numpy(), answered)
     assert answered[7, 0] == 0
