@@ -107,9 +107,9 @@ class StackedNormal:
         _, _, _, sigma = self._sigma(theta)
         factor, ok = _cholesky(sigma)
         logdet = 2.0 * np.log(np.abs(np.diagonal(factor, axis1=1, axis2=2))).sum(axis=1)
-        # tr(S Sigma^-1) = ||F^-1 S^1/2||^2 is not cheaper than a solve at these sizes: solve Sigma X = S by the
-        # factors (the identity's where Sigma is not positive definite)
-        trace = np.trace(_cholesky_solve(factor, self.S[rows]), axis1=1, axis2=2)
+        # tr(S Sigma^-1) = ||F^-1 S^1/2||^2 is not cheaper than a solve at these sizes: solve Sigma X = S
+        trace = np.trace(np.linalg.solve(np.where(ok[:, None, None], sigma, np.eye(self.p)), self.S[rows]),
+                         axis1=1, axis2=2)
         out = logdet + trace - self.logdet_S[rows] - self.p
         return np.where(ok & np.isfinite(out), out, np.inf)
 
@@ -136,9 +136,11 @@ class StackedNormal:
         ``hessian_out`` (None: no Hessian)."""
         L, P, LP, sigma = self._sigma(theta)
         R, p, m = len(theta), self.p, self.m
-        factor, ok = _cholesky(sigma)  # the identity's factor where Sigma is not positive definite
+        factor, ok = _cholesky(sigma)
+        if not ok.all():
+            sigma = np.where(ok[:, None, None], sigma, np.eye(p))
         logdet = 2.0 * np.log(np.abs(np.diagonal(factor, axis1=1, axis2=2))).sum(axis=1)
-        inverse = _cholesky_solve(factor, np.broadcast_to(np.eye(p), sigma.shape))
+        inverse = np.linalg.inv(sigma)
         inverse = 0.5 * (inverse + np.swapaxes(inverse, 1, 2))
         S = self.S[rows]
         SI = S @ inverse
@@ -371,46 +373,26 @@ def _cholesky(A: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 def _solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = True, negated: bool = False
            ) -> tuple[np.ndarray, np.ndarray]:
     """Solutions of H_r x_r = b_r (with ``negated``, of H_r x_r = -b_r) for a stack of symmetric matrices scaled
-    to unit diagonal, as numerics.linalg.scaled_solve solves one: by the Cholesky factors of those that are
-    positive definite, and (without ``positive_definite``) by LU for the others that are nonsingular; which were
-    found is returned too, and the solutions not found are NaN.  Stacks are passed whole when every matrix is
+    to unit diagonal (as numerics.linalg.scaled_solve does for one), and which of them were found: with
+    ``positive_definite`` only those of positive definite H_r (checked by a Cholesky factorisation), otherwise
+    those of nonsingular H_r; the solutions not found are NaN.  Stacks are passed whole when every matrix is
     wanted (no copies)."""
     if negated:
         b = -b
     d = 1.0 / np.sqrt(np.maximum(np.abs(np.diagonal(H, axis1=1, axis2=2)), 1e-300))
     scaled = H * (d[:, :, None] * d[:, None, :])
-    factor, ok = _cholesky(scaled)
-    with np.errstate(invalid="ignore", over="ignore", divide="ignore", under="ignore"):
-        x = _cholesky_solve(factor, d * b) * d
-        x[~ok] = np.nan
-        rest = ~ok & np.isfinite(scaled).all(axis=(1, 2))
-        if not positive_definite and rest.any():  # numpy's stacked LU kernel (behind np.linalg.solve): NaN for a
-            # singular matrix, not an error
-            left, right = scaled[rest], (d * b)[rest][:, :, None]
-            x[rest] = _stacked(lambda: _umath_linalg.solve(left, right, signature="dd->d"), np.linalg.solve, left,
-                               right)[:, :, 0] * d[rest]
-            ok = ok | rest
+    if positive_definite:
+        ok = _cholesky(scaled)[1]
+    else:
+        ok = np.isfinite(scaled).all(axis=(1, 2))
+    x = np.full_like(b, np.nan)
+    if ok.any():  # numpy's stacked LU kernel (behind np.linalg.solve): NaN for a singular matrix, not an error
+        left, right, scale = _kept(ok, scaled, d * b, d)
+        right = right[:, :, None]
+        with np.errstate(invalid="ignore", over="ignore", divide="ignore", under="ignore"):
+            x[ok] = _stacked(lambda: _umath_linalg.solve(left, right, signature="dd->d"), np.linalg.solve, left,
+                             right)[:, :, 0] * scale
     return x, ok & np.isfinite(x).all(axis=1)
-
-
-def _cholesky_solve(factor: np.ndarray, b: np.ndarray) -> np.ndarray:
-    """x_r with F_r F_r' x_r = b_r for a stack of lower triangular F (R, n, n) and b (R, n) or (R, n, k): a forward
-    then a backward substitution (Golub & Van Loan 2013, algorithms 3.1.3 and 3.1.4, column versions), each column
-    a computation for the whole stack (numpy has no stacked triangular solve; LAPACK's LU, called one matrix at a
-    time, cost several times more at these sizes)."""
-    x = np.array(b, dtype=float, copy=True)
-    columns = x if x.ndim == 3 else x[:, :, None]  # a view: the substitutions write into x
-    n = x.shape[1]
-    diagonal = np.diagonal(factor, axis1=1, axis2=2)[:, :, None]
-    for j in range(n):  # F y = b
-        columns[:, j] /= diagonal[:, j]
-        if j + 1 < n:
-            columns[:, j + 1:] -= factor[:, j + 1:, j, None] * columns[:, j, None]
-    for j in range(n - 1, -1, -1):  # F' x = y: row j of F' is column j of F
-        columns[:, j] /= diagonal[:, j]
-        if j:
-            columns[:, :j] -= factor[:, j, :j, None] * columns[:, j, None]
-    return x
 
 
 def _stacked(kernel, one, *stacks: np.ndarray) -> np.ndarray:

@@ -149,29 +149,6 @@ def test_stack_factorisations_mark_the_matrices_that_fail_and_solve_the_others_a
             np.testing.assert_allclose(x[r], np.linalg.solve(A[r], b[r]), rtol=1e-9)
 
 
-def test_stacked_cholesky_substitutions_solve_as_scipy_does_one_matrix_at_a_time():
-    """The forward and backward substitutions through a stack of Cholesky factors (the stacked search's solves, the
-    inverse of Sigma and tr(S Sigma^-1)) against scipy.linalg.cho_solve, one matrix at a time, for vectors and for
-    matrices of right-hand sides."""
-    from scipy.linalg import cho_solve
-
-    from cfa_tool.estimation.stacked import _cholesky, _cholesky_solve
-
-    rng = np.random.default_rng(8)
-    A = rng.normal(size=(9, 7, 20))
-    A = A @ np.swapaxes(A, 1, 2)
-    b, B = rng.normal(size=(9, 7)), rng.normal(size=(9, 7, 3))
-    factor, ok = _cholesky(A)
-    assert ok.all()
-    x, X = _cholesky_solve(factor, b), _cholesky_solve(factor, B)
-    for r in range(9):
-        np.testing.assert_allclose(x[r], cho_solve((factor[r], True), b[r]),
-                                   rtol=1e-10)
-        np.testing.assert_allclose(X[r], cho_solve((factor[r], True), B[r]), rtol=1e-10)
-        np.testing.assert_allclose(A[r] @ X[r], B[r], rtol=1e-9, atol=1e-9)
-    assert np.array_equal(_cholesky_solve(factor, B[:, :, 1]), X[:, :, 1])  # a column alone: the same numbers
-
-
 def test_the_one_matrix_fallback_gives_what_the_stacked_kernels_give(monkeypatch):
     # the stacked kernels are numpy internals: without them the factors and solutions come one matrix at a time
     import cfa_tool.estimation.stacked as stacked
