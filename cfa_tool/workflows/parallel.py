@@ -71,7 +71,8 @@ def _run_locally(fn: Callable, batches: list[list], workers: int, progress) -> l
     blas_libraries()  # found here once: forked workers inherit the list (numerics.threads)
     finished = False
     with one_blas_thread():  # set before the workers are forked: they start with one thread and set nothing
-        pool = ProcessPoolExecutor(max_workers=workers - 1, initializer=one_blas_thread_from_now)
+        # no more workers than batches they could take (a pool forks all its processes at the first batch)
+        pool = ProcessPoolExecutor(max_workers=min(workers - 1, len(batches) - 1), initializer=one_blas_thread_from_now)
         try:
             pending = {pool.submit(fn, batch): k for k, batch in enumerate(batches[:-1])}
             reported = set()

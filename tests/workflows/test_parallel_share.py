@@ -67,3 +67,22 @@ def test_blas_threads_are_one_while_computing_and_restored_after():
     assert before and all(n == 2 for n in before)
     assert all(c and all(n == 1 for n in c) for c in counts), counts  # this process's share and the worker's
     assert after == before
+
+
+def test_no_more_worker_processes_than_batches_they_could_take(monkeypatch):
+    # a pool forks all its processes at the first batch: with 4 processes asked for and 2 batches, this process takes
+    # one and a single worker the other
+    import cfa_tool.workflows.parallel as parallel
+
+    sizes = []
+    real = parallel.ProcessPoolExecutor
+
+    def recording(max_workers, **kwargs):
+        sizes.append(max_workers)
+        return real(max_workers=max_workers, **kwargs)
+
+    monkeypatch.setattr(parallel, "ProcessPoolExecutor", recording)
+    out = run_tasks(_square_with_pid, list(range(10)), workers=4, chunk=5, batched=True)
+    assert [value for value, _ in out] == [x * x for x in range(10)] and sizes == [1]
+    run_tasks(_square_with_pid, list(range(40)), workers=4, chunk=5, batched=True)
+    assert sizes == [1, 3]
