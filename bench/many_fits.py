@@ -1,4 +1,4 @@
-"""Workflows that fit one model many times, on all cores (local worker processes, one BLAS thread each).
+"""Workflows that fit one model many times, on all cores (this process and local worker processes, one BLAS thread each).
 
     python bench/many_fits.py                 # about a minute on an idle two-core machine
     python bench/many_fits.py --quick         # 200 bootstrap refits, 3 sample sizes of 100 replications
@@ -14,8 +14,9 @@
   watch; with no cutoff separating the populations at N = 301, the search for the N that would adds four
   more samples of 200, 1,200 fits in all).
 
-Each line names the worker processes and BLAS threads the workflows ran with: the workers are counted and their
-BLAS libraries asked for their threads from inside the workers (threadpoolctl), not taken from the settings.
+Each line names the processes and BLAS threads the workflows ran with: with several, this process computes batches
+beside ``workers - 1`` worker processes (workflows.parallel); the processes that computed are counted and their
+BLAS libraries asked for their threads from inside them (threadpoolctl), not taken from the settings.
 
 Writes bench/results/many_fits.json and many_fits.md.
 """
@@ -49,19 +50,20 @@ def _worker_threads(_task) -> tuple[int, tuple[int, ...]]:
 
     from cfa_tool.numerics.threads import blas_libraries
 
-    time.sleep(0.05)  # long enough that every worker of the pool takes some of the tasks
+    time.sleep(0.05)  # long enough that every process takes some of the tasks
     return os.getpid(), tuple(lib.num_threads for lib in blas_libraries())
 
 
 def workers_and_threads() -> dict:
-    """How many worker processes the workflows' pool starts and the BLAS threads each runs, read inside them."""
+    """How many processes compute the workflows' batches (this one and its workers) and the BLAS threads each runs,
+    read inside them."""
     from cfa_tool.workflows.parallel import default_workers, run_tasks
 
     workers = default_workers()
     if workers <= 1:
-        return {"worker_processes": 0, "blas_threads_per_process": sorted({n for n in _worker_threads(0)[1]})}
+        return {"computing_processes": 1, "blas_threads_per_process": sorted({n for n in _worker_threads(0)[1]})}
     seen = run_tasks(_worker_threads, list(range(8 * workers)), workers, chunk=1)
-    return {"worker_processes": len({pid for pid, _ in seen}),
+    return {"computing_processes": len({pid for pid, _ in seen}),
             "blas_threads_per_process": sorted({n for _, threads in seen for n in threads})}
 
 
@@ -76,7 +78,9 @@ def main() -> None:
     refits = 200 if args.quick else 1000
     pool = workers_and_threads()
     threads = "/".join(map(str, pool["blas_threads_per_process"]))
-    where = (f"{pool['worker_processes']} worker processes, {threads} BLAS thread(s) each" if pool["worker_processes"]
+    helpers = pool["computing_processes"] - 1
+    where = (f"{helpers + 1} processes (this one and {helpers} worker{'s' if helpers > 1 else ''}), "
+             f"{threads} BLAS thread(s) each" if helpers
              else f"one process, {threads} BLAS thread(s)")
     print(pool, flush=True)
     first = cfa_tool.fit(model, hs)  # imports and the model's layout, as in a session that has fitted it once
@@ -116,7 +120,7 @@ def main() -> None:
     lines = ["| case | seconds | target (s) |", "| --- | ---: | ---: |"]
     lines += [f"| {r['case']} | {r['seconds']:.2f} | {'-' if r['target_s'] is None else format(r['target_s'], 'g')} |"
               for r in rows]
-    lines.append(f"\nWorker processes: {pool['worker_processes']} (0: one process), BLAS threads in each: "
+    lines.append(f"\nProcesses computing: {pool['computing_processes']} (this one and its workers), BLAS threads in each: "
                  f"{', '.join(map(str, pool['blas_threads_per_process']))}.")
     (out / "many_fits.md").write_text("\n".join(lines) + "\n")
     print("\n".join(lines))

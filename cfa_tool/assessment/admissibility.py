@@ -551,14 +551,67 @@ def replicated_problems(table: ParameterTable, model, thetas: np.ndarray,
     is judged by (:func:`solution_problems`: negative variances, correlations beyond +/-1, matrices that are not
     positive definite, estimates held at a bound; without standard errors, which a replication need not have): per
     row, the problems that make it inadmissible in the words of :func:`replicated_problem_words` (empty: admissible).
-    Power simulations, bootstraps and simulated cutoffs count them with these words."""
-    out = []
-    for theta in np.atleast_2d(thetas):
+    Power simulations, bootstraps and simulated cutoffs count them with these words.  Only the rows that
+    :func:`could_have_problems` cannot clear are judged one at a time; the others are admissible by that rule."""
+    thetas = np.atleast_2d(thetas)
+    out: list[tuple[str, ...]] = [()] * len(thetas)
+    for r in np.flatnonzero(could_have_problems(table, model, thetas, standardized_loadings)).tolist():
+        theta = thetas[r]
         mats = [model.matrices(theta, g) for g in range(table.n_groups)]
         with np.errstate(all="ignore"):
             found = solution_problems(table, mats, theta, None, True, "", 0, standardized_loadings)
-        out.append(inadmissible_words(found))
+        out[r] = inadmissible_words(found)
     return tuple(out)
+
+
+CLEAR = 1e-8  # how far inside the admissible region a replicated solution must lie to be cleared without a closer look
+
+
+def could_have_problems(table: ParameterTable, model, thetas: np.ndarray, standardized_loadings: bool = True
+                        ) -> np.ndarray:
+    """For each row of ``thetas`` (R, q), False where :func:`solution_problems` (without standard errors) can find
+    nothing, judged for the whole stack at once, True where it must look (a screen: the rows it flags are judged one
+    at a time, so it may flag rows that turn out admissible, never clear one that is not).  A row is cleared when
+    every value is finite; every residual and factor variance is positive; the factors' correlation matrix and the
+    residuals' correlation matrix have smallest eigenvalues above :data:`CLEAR` (positive definite, so every
+    correlation is inside +/-1: a 2 x 2 principal submatrix's eigenvalues are 1 +/- r, and a principal submatrix's
+    smallest eigenvalue is at least the whole matrix's, Cauchy's interlacing theorem; Horn & Johnson 2013, 4.3.28);
+    every standardized loading is below 1 - :data:`CLEAR` in size (when they are judged); and no free parameter is
+    within 1e-8 (relative) of a bound.  The margins stand far above the rounding by which these stacked
+    computations can differ from :func:`matrix_problems`' one-matrix ones."""
+    thetas = np.atleast_2d(np.asarray(thetas, dtype=float))
+    flagged = ~np.isfinite(thetas).all(axis=1)
+    with np.errstate(all="ignore"):
+        for g in range(table.n_groups):
+            mats = model.matrices(np.where(flagged[:, None], 0.0, thetas), g)  # rows already flagged: any value
+            t_diag = np.diagonal(mats.T, axis1=1, axis2=2)
+            flagged |= (t_diag <= 0).any(axis=1) | (np.diagonal(mats.P, axis1=1, axis2=2) < 0).any(axis=1)
+            phi = mats.latent_covariance()
+            d = np.diagonal(phi, axis1=1, axis2=2)
+            flagged |= ~np.isfinite(phi).all(axis=(1, 2)) | (d <= 0).any(axis=1)
+            flagged |= _smallest_eigenvalue(phi, d, flagged) <= CLEAR
+            flagged |= _smallest_eigenvalue(mats.T, t_diag, flagged) <= CLEAR
+            if standardized_loadings:
+                total = np.diagonal(mats.implied_covariance(), axis1=1, axis2=2)
+                std = mats.L * np.sqrt(np.abs(d))[:, None, :] / np.sqrt(np.abs(total))[:, :, None]
+                flagged |= ~(np.abs(std) < 1.0 - CLEAR).all(axis=(1, 2))
+        if table.derived("admissibility labels", _labels_of).bounded:  # as bound_problems finds them
+            for limit in (table.lower, table.upper):
+                flagged |= (np.isfinite(limit) & (np.abs(thetas - limit) <= 1e-8 * np.maximum(1.0, np.abs(limit)))).any(axis=1)
+    return flagged
+
+
+def _smallest_eigenvalue(matrix: np.ndarray, diagonal: np.ndarray, skipped: np.ndarray) -> np.ndarray:
+    """The smallest eigenvalue of each matrix of the stack scaled to unit diagonal (its correlation matrix), with
+    ``diagonal`` its diagonal: 1 for a matrix of one row and for the ``skipped`` ones (already flagged: their
+    scaling may not exist), -inf where the scaled matrix is not finite."""
+    if matrix.shape[-1] < 2:
+        return np.ones(len(matrix))
+    scale = 1.0 / np.sqrt(np.where(skipped[:, None], 1.0, diagonal))
+    corr = matrix * scale[:, :, None] * scale[:, None, :]
+    finite = np.isfinite(corr).all(axis=(1, 2))
+    out = np.linalg.eigvalsh(np.where((skipped | ~finite)[:, None, None], np.eye(matrix.shape[-1]), corr))[:, 0]
+    return np.where(finite | skipped, out, -np.inf)
 
 
 def inadmissible_words(problems: Iterable[Problem]) -> tuple[str, ...]:

@@ -8,7 +8,8 @@ Where threads are set (one rule, so that they never oversubscribe the cores):
 * a fit (its data moments, estimation and report) of up to :data:`SMALL_MODEL` items runs with one BLAS thread;
 * worker processes of bootstraps, cutoffs and power simulations (``workflows.parallel``) run with one
   thread each, the parallelism being across processes (:func:`one_blas_thread_from_now`, with the libraries
-  the parent process found: a forked worker does not search for them again).
+  the parent process found: a forked worker does not search for them again), and so does the parent process
+  while it computes its share beside them (:func:`one_blas_thread`).
 """
 
 from __future__ import annotations
@@ -24,6 +25,12 @@ def blas_threads_for(p: int):
     (nothing changes for larger ones)."""
     if p > SMALL_MODEL:
         return contextlib.nullcontext()
+    return _OneBlasThread(blas_libraries())
+
+
+def one_blas_thread():
+    """A context in which this process's BLAS libraries run one thread (a parent process computing beside its
+    worker processes), back to their numbers after it."""
     return _OneBlasThread(blas_libraries())
 
 
@@ -54,13 +61,21 @@ class _OneBlasThread:
                 lib.set_num_threads(n)
 
 
-@lru_cache(maxsize=1)
 def blas_libraries() -> tuple:
     """The BLAS libraries loaded in this process (threadpoolctl finds them, once: the search reads every
     loaded library and costs milliseconds).  numpy is imported first: its BLAS is the one the fits use, and a
-    search made before it is loaded would find none and be kept, leaving every later limit without effect."""
+    search made before it is loaded would find none and be kept, leaving every later limit without effect.
+    scipy's wheels bring their own BLAS, loaded with scipy.linalg: a search made before that is made again once
+    it is loaded, or that library would keep its threads (in worker processes too)."""
+    import sys
+
     import numpy  # noqa: F401
 
+    return _found_libraries("scipy.linalg" in sys.modules)
+
+
+@lru_cache(maxsize=2)
+def _found_libraries(with_scipy: bool) -> tuple:
     from threadpoolctl import ThreadpoolController
 
     return tuple(lib for lib in ThreadpoolController().lib_controllers if lib.user_api == "blas")

@@ -1,16 +1,23 @@
 """Run many independent replications: in local processes by default, or on a Dask
 cluster when a scheduler address is given.  Each task carries its own seed, so
-results do not depend on where or in which order tasks run."""
+results do not depend on where or in which order tasks run.
+
+With ``workers`` processes, this process is one of them: it starts ``workers - 1`` worker processes, which take
+the batches of tasks from the front of the list, and computes batches from the back itself until the two meet
+(a batch not yet handed to a worker is taken back), so that no process waits while another has batches left, and
+one worker process fewer is started (a bootstrap of 1,000 resamples of a small model is two batches: one for
+this process, one for its worker)."""
 
 from __future__ import annotations
 
 import os
-from concurrent.futures import ProcessPoolExecutor
+from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
+from functools import partial
 from typing import Callable, Sequence
 
 from cfa_tool import options as check
 from cfa_tool.errors import OptionError
-from cfa_tool.numerics.threads import blas_libraries, one_blas_thread_from_now
+from cfa_tool.numerics.threads import blas_libraries, one_blas_thread, one_blas_thread_from_now
 
 
 REFITS_TOGETHER = 500  # replications a workflow fits together (pipeline.continuous.replicate_fits): enough to
@@ -52,15 +59,53 @@ def run_tasks(fn: Callable, tasks: Sequence, workers: int | None = None, schedul
             if progress:
                 progress(len(batch))
         return out
-    out = []
+    return _run_locally(fn if batched else partial(_run_batch, fn), batches, workers, progress)
+
+
+def _run_locally(fn: Callable, batches: list[list], workers: int, progress) -> list:
+    """fn(batch) of every batch (each a list of results), joined in order, on this process and ``workers - 1``
+    worker processes: the workers take batches from the front, this process from the back (taking back a batch
+    the pool has not yet handed to a worker), all with one BLAS thread.  ``progress`` is called from this thread
+    only, as this process finishes a batch and as it collects the workers'."""
+    results: list = [None] * len(batches)
     blas_libraries()  # found here once: forked workers inherit the list (numerics.threads)
-    with ProcessPoolExecutor(max_workers=workers, initializer=one_blas_thread_from_now) as pool:
-        done = pool.map(fn, batches) if batched else pool.map(_run_batch, [fn] * len(batches), batches)
-        for results in done:
-            out.extend(results)
-            if progress:
-                progress(len(results))
-    return out
+    finished = False
+    with one_blas_thread():  # set before the workers are forked: they start with one thread and set nothing
+        # no more workers than batches they could take (a pool forks all its processes at the first batch)
+        pool = ProcessPoolExecutor(max_workers=min(workers - 1, len(batches) - 1), initializer=one_blas_thread_from_now)
+        try:
+            pending = {pool.submit(fn, batch): k for k, batch in enumerate(batches[:-1])}
+            reported = set()
+
+            def report(done) -> None:
+                for future in done:
+                    if future not in reported:
+                        reported.add(future)
+                        results[pending[future]] = future.result()  # a worker's error is raised here
+                        if progress:
+                            progress(len(results[pending[future]]))
+
+            mine = len(batches) - 1
+            while True:
+                results[mine] = fn(batches[mine])
+                if progress:
+                    progress(len(results[mine]))
+                report([f for f in pending if f.done()])
+                taken = next((f for f, k in pending.items() if k == mine - 1), None)
+                if taken is None or not taken.cancel():  # the workers have it (or have done it)
+                    break
+                del pending[taken]
+                mine -= 1
+            left = set(pending) - reported
+            while left:
+                done, left = wait(left, return_when=FIRST_COMPLETED)
+                report(done)
+            finished = True
+        finally:
+            # with every result in hand, the workers exit while this process goes on (the pool's own thread
+            # joins them); after an error, the batches not started are dropped and the running ones awaited
+            pool.shutdown(wait=not finished, cancel_futures=True)
+    return [r for batch in results for r in batch]
 
 
 def _progress_function(progress):
