@@ -70,8 +70,11 @@ def run(args: argparse.Namespace) -> int:
                      replications=args.replications, seed=args.seed, target=args.target, answers=args.answers)
     files = [("--draft", result.draft_text, f"Draft model written to {args.draft}")] if args.draft else []
     if result.split is not None:
-        files += halves_file(args, [("exploration", result.split.exploration_rows),
-                                    ("confirmation", result.split.confirmation_rows)], result.split.seed)
+        from cfa_tool.data.halves import EXPLORE_HALVES
+
+        first, second = EXPLORE_HALVES
+        files += halves_file(args, [(first, result.split.exploration_rows),
+                                    (second, result.split.confirmation_rows)], result.split.seed)
         if files[-1:] and files[-1][0] == HALVES_FILE:  # the way to fit an edited draft on the confirmation half
             import shlex
 

@@ -62,6 +62,9 @@ def run(args: argparse.Namespace) -> int:
     else:
         raise OptionError("give --calibration and --validation files, or --data FILE to split one data set in two halves")
     split = pair[0].split
-    halves = halves_file(args, [("A", split.half_a), ("B", split.half_b)],
+    from cfa_tool.data.halves import REPLICATE_HALVES
+
+    first, second = REPLICATE_HALVES
+    halves = halves_file(args, [(first, split.half_a), (second, split.half_b)],
                          1 if args.seed is None else args.seed) if split is not None else []
     return emit(args, Replications(tuple(pair)), halves)

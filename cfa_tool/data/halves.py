@@ -23,6 +23,7 @@ import pandas as pd
 
 from cfa_tool.data.kept_rows import KEPT_BY, row_naming, rows_listed
 from cfa_tool.data.moments import row_numbers
+from cfa_tool.data.readers import sheet_read
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.options import Option
 
@@ -31,7 +32,18 @@ HALVES_COLUMNS = ("row", "half", "seed", "data_file", "data_sha256", "sheet")
 
 
 #: the names of the two halves as the commands write them, the first drawn first (explore --split; replicate --data)
-DRAWN_HALVES = (("exploration", "confirmation"), ("A", "B"))
+EXPLORE_HALVES = ("exploration", "confirmation")
+REPLICATE_HALVES = ("A", "B")
+DRAWN_HALVES = (EXPLORE_HALVES, REPLICATE_HALVES)
+
+
+def redraw_words(names, seed: str | int = "SEED") -> str:
+    """How to write the halves again: with the command that drew halves of these ``names`` (review s14: a replicate
+    file was told to rerun explore, whose halves have other names and are drawn from every row, not the complete
+    ones)."""
+    if tuple(names) == REPLICATE_HALVES or set(names) == set(REPLICATE_HALVES):
+        return f"cfa-tool replicate MODEL --data FILE --seed {seed} --halves-file NEW.csv"
+    return f"cfa-tool explore --split {seed} --halves-file NEW.csv"
 
 
 def draw_halves(count: int, seed: int) -> tuple[np.ndarray, np.ndarray]:
@@ -207,9 +219,9 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str,
     if fingerprint(data) != saved.data_sha256:
         raise DataError(f"{shown} holds the halves of a data file with other contents ('{printable(saved.data_file)}' "
                         f"as it was when the halves were drawn), not those of {source}: give the data file the halves "
-                        f"were drawn from; if that file was corrected since, write the halves again from it (cfa-tool "
-                        f"explore --split {saved.seed} --halves-file NEW.csv draws the same halves from as many rows)")
-    if (sheet or "") != saved.sheet and _sheet_read(data, sheet) != _sheet_read(data, saved.sheet):
+                        f"were drawn from; if that file was corrected since, write the halves again from it "
+                        f"({redraw_words(saved.names(), saved.seed)} draws the same halves from as many rows)")
+    if (sheet or "") != saved.sheet and sheet_read(data, sheet) != sheet_read(data, saved.sheet):
         drawn = f"the sheet '{printable(saved.sheet)}'" if saved.sheet else "the first sheet (no sheet asked for)"
         asked = f"the sheet '{printable(sheet)}'" if sheet else "the first sheet (no sheet asked for)"
         raise DataError(f"{shown} holds the halves of {drawn} of '{printable(saved.data_file)}', and this run reads "
@@ -244,17 +256,4 @@ def _check_drawn(saved: SavedHalves, shown: str) -> None:
         return
     raise DataError(f"{shown}: its halves are not those seed {saved.seed} draws from its {len(order)} rows (edited by "
                     f"hand, or written with another seed): a half is analysed only as drawn; write the halves again "
-                    f"(cfa-tool explore --split SEED --halves-file NEW.csv)")
-
-
-def _sheet_read(data, sheet: str | None) -> str:
-    """The sheet a run reads of a workbook: the one asked for, else the first (review s14: halves drawn without
-    --sheet were refused for --sheet naming that same first sheet); '' for other files."""
-    if sheet:
-        return sheet
-    if not isinstance(data, (str, Path)) or Path(data).suffix.lower() not in (".xlsx", ".xlsm", ".xls"):
-        return ""
-    try:
-        return str(pd.ExcelFile(data).sheet_names[0])
-    except (OSError, ValueError, ImportError):
-        return ""
+                    f"({redraw_words(saved.names())})")

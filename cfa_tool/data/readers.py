@@ -359,7 +359,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
         raise DataError(f"the sheet must be given by its name (text), not {type(sheet).__name__}")
     hidden = [n for n in names if getattr(book[n], "sheet_state", "visible") != "visible"]  # hidden, very hidden
     if sheet is None:  # the first sheet the workbook shows: a hidden one is an old draft or a lookup table
-        ws = book[next((n for n in names if n not in hidden), names[0])]
+        ws = book[_first_shown(names, hidden)]
     elif sheet in names:
         ws = book[sheet]
     else:
@@ -989,16 +989,8 @@ def _looks_like_a_row(line: str, delimiter: str, named: int) -> bool:
     fields = line.split(delimiter)
     if len(fields) < named:
         return False
-    numbers = sum(1 for f in fields if f.strip() and _is_number(f.strip()))
+    numbers = sum(1 for f in fields if f.strip() and (number(f) is not None or number(f, True) is not None))
     return numbers * 2 >= len(fields)
-
-
-def _is_number(text: str) -> bool:
-    try:
-        float(text.replace(",", "."))
-    except ValueError:
-        return False
-    return True
 
 
 def _check_quoted_rows(line: int, fields: list[str], delimiter: str, named: int, path: Path) -> None:
@@ -1574,3 +1566,28 @@ def _offset_of_line(text: str, line: int) -> int:
             return len(text)
         offset = nl + (2 if text.startswith("\r\n", nl) else 1)
     return offset
+
+
+def _first_shown(names: list[str], hidden: list[str]) -> str:
+    """The sheet a workbook read without a sheet named gives: the first it shows (a hidden one is an old draft or a
+    lookup table), else its first."""
+    return next((n for n in names if n not in hidden), names[0])
+
+
+def sheet_read(path, sheet: str | None) -> str:
+    """The sheet a run reads of the data file ``path``: the one asked for, else the workbook's first shown sheet by
+    the reader's own rule (:func:`_first_shown`); '' for a file that is no workbook or cannot be opened (its reading
+    says why).  Halves files record the sheet they were drawn from by it (data.halves)."""
+    if sheet:
+        return sheet
+    if not isinstance(path, (str, Path)) or Path(path).suffix.lower() not in EXCEL_SUFFIXES:
+        return ""
+    try:
+        import openpyxl
+
+        book = openpyxl.load_workbook(path, read_only=True)
+        names = book.sheetnames
+        hidden = [n for n in names if getattr(book[n], "sheet_state", "visible") != "visible"]
+        return _first_shown(names, hidden)
+    except Exception:  # noqa: BLE001 - openpyxl raises many kinds for damaged files; the reader names the problem
+        return ""
