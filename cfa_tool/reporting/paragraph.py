@@ -1150,6 +1150,10 @@ def comparison_paragraph(comparison) -> str:
         if r.converged and not r.admissible:
             found = _list([p.phrase(quoted=True) for p in r.problems if p.kind.inadmissible])
             parts.append(f"The solution of {label[name]} was not admissible ({found}): its fit is not evidence for it.")
+    small = _small_groups(max(results, key=lambda r: sum(p.kind is ProblemKind.SMALL_GROUP for p in r.problems)))
+    # the same rows in every model: the caution of the model with the most such groups (review s14)
+    if small:
+        parts.append(small)
     parts.append(f"Fit{statistic}: " + "; ".join(f"{label[name]}, {_fit_figures(r)}" for name, r in zip(names, results)) + ".")
     for name, r in zip(names, results):
         weak = _weak_factor_sentence(r, f"The solution of {label[name]}") if r.converged else ""
@@ -1323,7 +1327,7 @@ def invariance_paragraph(result, levels) -> str:
         shape = _shape(first, d)
         parts.append(f"The configural model had {_structure(d, shape).rstrip(',')}, with the same pattern in every "
                      f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
-                     f"{_name(result.groups[0])} were fixed at zero.")
+                     f"{_group_label(result.groups[0], result.groups)} were fixed at zero.")
         parts += _scale_sentences(d, getattr(result, "data_problems", ()))
         departures = _departures(d, shape)
         if departures:

@@ -972,12 +972,25 @@ def keying_sentence(rows) -> str:
     return f"Computed for keyed sums; reversed for scoring ({why}): {'; '.join(lists)}. "
 
 
+def _fixed_alike(result) -> bool:
+    """Whether a model fixing every parameter states each item's loading and intercept (threshold) alike in every
+    group (review s14: such a model was said not to assume scalar invariance)."""
+    values: dict[tuple, set] = {}
+    for e in result.estimates:
+        if e.kind in ("loading", "intercept", "threshold"):
+            values.setdefault((e.kind, tuple(e.variables)), set()).add(float(e.estimate))
+    return bool(values) and all(len(v) == 1 for v in values.values())
+
+
 def _sums_across_groups(result, rows) -> str:
     """Whether the groups' sum-score means can be compared: only when the items' loadings and intercepts (for
     ordinal items, thresholds) are equal across groups, scalar invariance (Meredith 1993; Steinmetz 2013 shows how
     unequal intercepts bias observed-mean comparisons; both recalled from memory).  Names the items whose parameters this fit leaves free to
     differ, or says that the fit holds none equal."""
     shared = _shared(result)
+    if not result.parameter_labels and _fixed_alike(result):  # every parameter stated, the same in every group
+        return ("The model fixes every item's loading and intercept at the same value in every group, so under it "
+                "the groups' sum means can be compared; whether it holds is its test of fit.")
     if not shared:
         return ("The groups' sum means can be compared only if the items' loadings and intercepts are equal across "
                 "groups (scalar invariance), which this model does not assume: test it first (the invariance "

@@ -102,3 +102,16 @@ def test_a_comparison_says_the_reverse_keyed_items_once_when_every_model_declare
     text = " ".join(comparison_paragraph(comparison).split())
     assert text.count("declared reverse-keyed") == 1
     assert "In every model, the items x2 and x5 were declared reverse-keyed" in text
+
+
+def test_a_comparison_names_a_group_smaller_than_its_model(hs_data):
+    """compare in groups with a group of 28 rows: the paragraph says it before the fit (review s14: the terminal said
+    it twice, the paragraph never)."""
+    from cfa_tool.reporting.paragraph import comparison_paragraph
+
+    first = hs_data["school"].unique()[0]
+    data = pd.concat([hs_data[hs_data["school"] == first].iloc[:28], hs_data[hs_data["school"] != first]])
+    comparison = cfa_tool.compare([THREE, THREE + "invariance metric\n"], data, group="school")
+    text = " ".join(comparison_paragraph(comparison).split())
+    said = f'Group "{first}" (28 rows) had fewer rows than the free parameters of its model'
+    assert said in text and text.index(said) < text.index("Fit:")

@@ -117,3 +117,17 @@ def test_the_methods_text_of_fully_fixed_groups_says_what_holds_across_them():
                                                     group="grp")).split())
     assert ("Every parameter was fixed at a stated value in every group, the same value in each group except the "
             "intercept of a2, stated differently for different groups.") in apart
+
+
+def test_the_sums_of_fully_fixed_groups_are_not_said_to_lack_scalar_invariance():
+    """Every loading and intercept stated alike in both groups: the reliability note on the groups' sum means says
+    they can be compared under the model, not that it 'does not assume' scalar invariance (re-check s14)."""
+    from cfa_tool.reporting.tables import _sums_across_groups
+
+    data = _answers(400).assign(grp=np.where(np.arange(400) < 200, "north", "south"))
+    stated = POPULATION + ("fix intercept(a1), intercept(a2), intercept(a3), intercept(a4) = 0\nfix mean(f) = 0\n")
+    alike = _sums_across_groups(cfa_tool.fit(stated, data, group="grp"), [])
+    assert alike.startswith("The model fixes every item's loading and intercept at the same value in every group")
+    apart = _sums_across_groups(cfa_tool.fit(stated + "in group south: fix intercept(a2) = 0.3\n", data, group="grp"),
+                                [])
+    assert not apart.startswith("The model fixes every item's loading")
