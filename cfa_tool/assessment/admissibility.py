@@ -119,6 +119,9 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the rows scored: a factor score of a row that answered none of the factor's items,
     # which rests on the other factors' items alone (through the factors' correlations)
     SCORED_WITHOUT_OWN_ANSWERS = ("scores without the factor's own answers", "scored without its items", False)
+    # not of the solution but of the scores: their reliability below what decisions about individuals usually need
+    SCORES_LESS_RELIABLE = ("scores less reliable than decisions about individuals need", "less reliable scores",
+                            False)
     # not of a solution but of the rows a check screened: gaps that leave full-information ML's saturated model
     # without an estimate (pairs of items no row answers together, or too few answers together), which a fit stops at
     # (assessment.missingness.sparse_answers_problem)
@@ -304,6 +307,7 @@ class Problem:
             K.UNKNOWN_GROUPS_SCORED: "rows in groups the earlier fit does not have, which get no scores",
             K.ANSWERS_BEYOND_FITTED: "answers outside the range of the rows the earlier fit analysed",
             K.SCORED_WITHOUT_OWN_ANSWERS: "factor scores of rows that answered none of the factor's items",
+            K.SCORES_LESS_RELIABLE: "scores less reliable than decisions about individuals usually need",
             K.SPARSE_ANSWERS: "rows with gaps that answer too few items together for the saturated model of "
                               "full-information ML",
             K.COPIED_ROWS: f"{v.split('.')[0]} rows identical in every column to earlier rows (kept in the analysis)",

@@ -19,6 +19,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 from itertools import chain
 
 import numpy as np
@@ -30,6 +31,9 @@ from cfa_tool.estimation.objective import Objective
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import MATRIX_CODES, ParameterTable
 from cfa_tool.model.rank_two import EntryBasis, entry_basis
+
+if TYPE_CHECKING:  # the joint model of missing-data helpers (estimation.auxiliary), for the type hints only
+    from cfa_tool.estimation.auxiliary import AuxiliaryLikelihood, JointModel
 
 
 @dataclass(frozen=True)
@@ -189,7 +193,7 @@ def candidate_layout(cands: list[Candidate], p: int, m: int) -> CandidateLayout:
 
 def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]],
                 layouts: list[CandidateLayout] | None = None, mats: list | None = None,
-                factor: ScaledFactor | None = None, joint=None) -> ModificationIndices:
+                factor: ScaledFactor | None = None, joint: "JointModel | None" = None) -> ModificationIndices:
     """MI and EPC for each group's candidate entries (``candidates[g]``; ``layouts[g]`` their
     :func:`candidate_layout`, made here when not given); ``mats``: each group's model matrices at theta when the
     caller has them (their implied moments computed once); ``factor``: with complete data, the
@@ -306,8 +310,9 @@ def model_candidates(model: StructuredModel, exogenous: tuple[str, ...]) -> tupl
     return model.derived[key]
 
 
-def helper_modification_indices(model: StructuredModel, joint, theta: np.ndarray, likelihood,
-                                exogenous: tuple[str, ...], mats: list) -> ModificationIndices:
+def helper_modification_indices(model: StructuredModel, joint: "JointModel", theta: np.ndarray,
+                                likelihood: "AuxiliaryLikelihood", exogenous: tuple[str, ...],
+                                mats: list) -> ModificationIndices:
     """Score tests of every zero parameter that could be freed, in the fit with missing-data helpers (Graham 2003's
     saturated correlates): ``joint`` is its estimation.auxiliary.JointModel, ``theta`` and ``likelihood`` the joint
     fit's, ``mats`` each group's matrices of the model (not the joint ones).  The score and information of a

@@ -206,6 +206,14 @@ def stray_words(names, columns: list[pd.Series], source: str) -> None:
                     + _no_answer_advice([w for w, _ in words]))
 
 
+def stray_word_message(source: str, name: str, shown: str, where: str, word: str) -> str:
+    """The one message of a word typed among a column's numbers (a slip, data.answer_scales.stray_text): which
+    cell, and the two ways on (correct it, or read the word as no answer), for every command (re-read s14: explore
+    said 'leave it empty' where fit gave the option)."""
+    return (f"{source}: column '{printable(name)}' holds text ('{shown}' in {where}) among numbers; correct the cell, "
+            f"or, if the word means no answer, " + _no_answer_advice([word], "it"))
+
+
 def _no_answer_advice(words: list[str], cells: str = "them") -> str:
     """How to read words among numbers as no answer: on the command line, give them with --missing-codes
     (data.missing_codes.words_given); in Python, leave the ``cells`` ('it': one) empty."""
@@ -248,9 +256,7 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
                 raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
             shown = printable(text if len(text) <= 40 else text[:37] + "...")
             if stray_text(values):  # a slip among numbers, not a column of words
-                raise DataError(f"{source}: column '{printable(name)}' holds text ('{shown}' in "
-                                f"{cell_words(column, name, numbers[row])}) among numbers; correct the cell, or, if "
-                                f"the word means no answer, " + _no_answer_advice([text], "it"))
+                raise DataError(stray_word_message(source, name, shown, cell_words(column, name, numbers[row]), text))
             raise DataError(f"{source}: column '{printable(name)}' is used as an indicator but holds text ('{shown}' in "
                             f"{cell_words(column, name, numbers[row])}); indicators must be numbers: {_recoding(text)}"
                             + _statement_hint(values))

@@ -725,11 +725,12 @@ def _unreached_sentence(d, problems) -> str:
             f"of the keyed sums depend on the scale declared (their spread, correlations and omega do not).")
 
 
-def _scale_sentences(d, problems=()) -> list[str]:
+def _scale_sentences(d, problems=(), keys_said: bool = False) -> list[str]:
     """The items declared reverse-keyed (with the ends of their declared scale that no answer reached, among
-    ``problems``), then how each factor got its scale (what the declaration changed in it)."""
-    found = [_reverse_keyed_sentence(d), _unreached_sentence(d, problems), _scale_sentence(d) if d.scales else "",
-             _method_scale_sentence(d)]
+    ``problems``; ``keys_said``: said already, for every model of a comparison), then how each factor got its scale
+    (what the declaration changed in it)."""
+    found = ["" if keys_said else _reverse_keyed_sentence(d), _unreached_sentence(d, problems),
+             _scale_sentence(d) if d.scales else "", _method_scale_sentence(d)]
     return [sentence for sentence in found if sentence]
 
 
@@ -1049,10 +1050,7 @@ def _model_sentences(name: str, result, keys_said: bool = False) -> str:
     if d is None:
         return f"{name} had {_count(len(result.observed), 'indicator')}."
     shape = _shape(result, d)
-    scales = _scale_sentences(d, result.problems)
-    if keys_said and d.reverse_keyed:
-        scales = [x for x in scales if x != _reverse_keyed_sentence(d)]
-    parts = [f"{name} had {_structure(d, shape).rstrip(',')}."] + scales
+    parts = [f"{name} had {_structure(d, shape).rstrip(',')}."] + _scale_sentences(d, result.problems, keys_said)
     departures = _departures(d, shape)
     if departures:
         parts.append(departures.replace("The model also included", f"{name} also included", 1))

@@ -3,6 +3,8 @@ writer draws.  Problems of the fitted solution come first."""
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.remedies import Remedy
 from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
@@ -515,34 +517,31 @@ def scores_report(result):
                   problem_table=scores_problem_table(result), warnings=tuple(warnings(result)))
 
 
-def scores_notice(result):
+def scores_notice(result) -> T.ProblemNotice | None:
     """What the scores' report shows first: the fit's problems and the rows scored (workflows.factor_scores), then the
     factors whose scores are less reliable than decisions about individuals usually need (:func:`precision_cautions`):
     scores are made to be read one person at a time, so their precision is a caution first, not a note last (a new
-    user scoring staff for feedback found it on the last page)."""
-    notice = T.problem_notice(result.fit)
-    precision = tuple(precision_cautions(result))
-    if notice is None:
-        return T.ProblemNotice(SCORES_PRECISION_HEADING, precision, False) if precision else None
-    heading = notice.heading if notice.inadmissible else SCORES_PRECISION_HEADING  # the scores' report: one heading
-    return T.ProblemNotice(heading, notice.lines + precision, notice.inadmissible)
+    user scoring staff for feedback found it on the last page); under one heading of the scores' own."""
+    notice = T.problem_notice(_with_precision_problems(result))
+    if notice is None or notice.inadmissible:
+        return notice
+    return T.ProblemNotice(SCORES_PRECISION_HEADING, notice.lines, False)
 
 
 def scores_problem_table(result) -> ReportTable | None:
-    """The first box of :func:`scores_notice` as a table for the data files (--tables): the fit's and the scored rows'
-    problems (tables.problem_table), then one row per precision caution, under the box's heading (review s14: the
-    precision cautions were missing from problems.csv whenever the fit had a problem)."""
-    notice = scores_notice(result)
-    if notice is None:
-        return None
-    table = T.problem_table(result.fit)
-    said = precision_cautions(result)
-    extra = [["scores less reliable than decisions about individuals need", "no", "", None, "", line,
-              "use the scores to compare groups and for research, not for decisions about one person"]
-             for line in said]
-    columns = [("Problem", "l"), ("Makes it inadmissible", "l"), ("Parameters", "l"), ("Value", "r"), ("Group", "l"),
-               ("Explanation", "l"), ("What to try", "l")]
-    rows = ([list(r) for r in table.rows] if table is not None else []) + [[c if c is not None else "" for c in r]
-                                                                          for r in extra]
-    values = ([list(v) for v in table.values] if table is not None else []) + extra
-    return _table("problems", notice.heading, columns, rows, values=([c for c, _ in columns], values))
+    """The first box of :func:`scores_notice` as a table for the data files (--tables), by tables.problem_table's one
+    layout, under the box's heading (review s14: the precision cautions were missing from problems.csv whenever the
+    fit had a problem)."""
+    table = T.problem_table(_with_precision_problems(result))
+    return None if table is None else replace(table, title=scores_notice(result).heading)
+
+
+def _with_precision_problems(result):
+    """The fit with the scores' precision cautions among its problems (assessment.admissibility.ProblemKind
+    .SCORES_LESS_RELIABLE), for the views of the scores' report alone."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    said = tuple(Problem(ProblemKind.SCORES_LESS_RELIABLE, (), None, line,
+                         "use the scores to compare groups and for research, not for decisions about one person.")
+                 for line in precision_cautions(result))
+    return replace(result.fit, problems=tuple(result.fit.problems) + said) if said else result.fit

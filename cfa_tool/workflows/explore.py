@@ -16,6 +16,8 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.halves import draw_halves
+from cfa_tool.data.kept_rows import FINISHED_COLUMNS
+from cfa_tool.data.moments import stray_word_message
 from cfa_tool.assessment.admissibility import sample_size_problems
 from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 from cfa_tool.errors import DataError, OptionError, printable
@@ -319,7 +321,7 @@ COLUMN_ROLE_WORDS = {
     # who answered (new-user trial s11: a clinic's age column was explored as an item)
     "the respondents' particulars": ("age", "sex", "gender", "dob", "birthyear"),
     # the records a survey platform adds to an export: how far and how long a respondent answered, where from
-    "survey records": ("progress", "finished", "duration", "latitude", "longitude", "locationlatitude",
+    "survey records": ("progress", *FINISHED_COLUMNS, "duration", "latitude", "longitude", "locationlatitude",
                        "locationlongitude"),
 }
 _ROLE_OF_WORD = {word: role for role, words in COLUMN_ROLE_WORDS.items() for word in words}
@@ -500,9 +502,7 @@ def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str
                 continue
             shown = printable(cell.strip() if len(cell.strip()) <= 40 else cell.strip()[:37] + "...")
             if stray_text(values):  # a slip among numbers, as fit reads it (data.answer_scales.stray_text)
-                raise DataError(f"{source}: column '{printable(name)}' holds text ('{shown}' in "
-                                f"{cell_words(column, name, row)}) among numbers; correct the cell, or leave it empty "
-                                f"for no answer")
+                raise DataError(stray_word_message(source, name, shown, cell_words(column, name, row), cell.strip()))
             statement = suggested_statement(values)
             where = (f"{source}: column '{printable(name)}' holds words ('{shown}' in {row_of(column, row)}), "
                      f"and explore analyses numbers")

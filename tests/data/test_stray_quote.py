@@ -9,6 +9,7 @@ import csv
 import io
 
 import numpy as np
+import pandas as pd
 import pytest
 
 import cfa_tool
@@ -82,3 +83,21 @@ def test_a_stray_quote_in_a_middle_column_or_left_open_is_named(tmp_path):
     (tmp_path / "open.csv").write_text("\n".join(open_end) + "\n")
     with pytest.raises(DataError, match=r"open.csv: line 11, column 6: a quoted value runs over 51 lines, to line 61,"):
         cfa_tool.fit(MODEL, str(tmp_path / "open.csv"))
+
+
+def test_explore_and_fit_say_the_same_of_a_word_among_numbers(tmp_path):
+    """One message for a word typed among a column's numbers (re-read s14: explore said 'leave it empty for no answer'
+    where fit named the option that reads the word as no answer)."""
+    frame = pd.read_csv(io.StringIO(_rows(120, lambda k: "ok")))
+    frame["q2"] = frame["q2"].astype(object)
+    frame.loc[7, "q2"] = "abc"
+    path = tmp_path / "word.csv"
+    frame.to_csv(path, index=False)
+    said = []
+    for run in (lambda: cfa_tool.fit(MODEL, str(path)), lambda: cfa_tool.explore(str(path), items=["q1", "q2", "q3",
+                                                                                                   "q4"], factors=1)):
+        with pytest.raises(DataError) as found:
+            run()
+        said.append(str(found.value))
+    assert "holds text ('abc' in row 9) among numbers; correct the cell, or, if the word means no answer" in said[0]
+    assert said[0] == said[1]
