@@ -86,3 +86,22 @@ def test_no_more_worker_processes_than_batches_they_could_take(monkeypatch):
     assert [value for value, _ in out] == [x * x for x in range(10)] and sizes == [1]
     run_tasks(_square_with_pid, list(range(40)), workers=4, chunk=5, batched=True)
     assert sizes == [1, 3]
+
+
+def test_the_objects_are_unfrozen_after_the_pool():
+    """The pool freezes this process's objects while its workers are forked and run (gc.freeze: a collection in a
+    forked worker would copy every inherited page) and unfreezes them when it is done, also after an error."""
+    import gc
+
+    from cfa_tool.workflows.parallel import run_tasks
+
+    before = gc.get_freeze_count()
+    assert run_tasks(abs, list(range(-60, 0)), workers=2, chunk=10) == list(range(60, 0, -1))
+    assert gc.get_freeze_count() == before
+    with pytest.raises(ZeroDivisionError):
+        run_tasks(_inverse, [1, 2, 0, 4] * 10, workers=2, chunk=5)
+    assert gc.get_freeze_count() == before
+
+
+def _inverse(x):
+    return 1 / x
