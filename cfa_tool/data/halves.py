@@ -37,7 +37,7 @@ REPLICATE_HALVES = ("A", "B")
 DRAWN_HALVES = (EXPLORE_HALVES, REPLICATE_HALVES)
 
 
-def redraw_words(names, seed: str | int = "SEED") -> str:
+def redraw_words(names: "tuple[str, ...] | list[str]", seed: str | int = "SEED") -> str:
     """How to write the halves again: with the command that drew halves of these ``names`` (review s14: a replicate
     file was told to rerun explore, whose halves have other names and are drawn from every row, not the complete
     ones)."""

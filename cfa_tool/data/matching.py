@@ -224,19 +224,15 @@ def _summary_row_first(frame, spec: Spec, data_name: str, strays: set[int], scal
     would then report as codes of no answer.  The advice leaves the row out, by a row filter on a text cell that
     names it (its 'Total' in the id column) when it has one."""
     from cfa_tool.data.moments import row_numbers
-    import numpy as np
+    from cfa_tool.data.odd_values import OddKind, odd_values, row_naming_cell
 
-    from cfa_tool.data.odd_values import OddKind, naming_cell, odd_values
-
-    rows = row_numbers(frame)
-    found = [o for o in odd_values(frame, spec.observed_names, rows)
+    found = [o for o in odd_values(frame, spec.observed_names, row_numbers(frame))
              if o.kind in (OddKind.SUMS_ROW, OddKind.MEANS_ROW)]
     summary = {int(r) for o in found for r in o.rows}
     if not found or not strays <= summary:
         return
     odd = found[0]
-    position = int(np.flatnonzero(np.asarray(rows) == odd.rows[0])[0])
-    named = naming_cell(frame, spec.observed_names, position)
+    named = row_naming_cell(frame, odd, spec.observed_names)
     keep = f" ({Option.KEEP.given(f'{printable(named[0])} != {printable(named[1])}')})" if named else ""
     more = f" (and {len(found) - 1} more such rows)" if len(found) > 1 else ""
     raise DataError(f"{odd.caution(data_name)}{more} Its values lie outside the scale {scale} that a 'reversed' "

@@ -350,6 +350,15 @@ def _run_of(x: np.ndarray):
     return x, values, counts, first, last
 
 
+def row_naming_cell(frame: pd.DataFrame, odd: "OddValues", items) -> tuple[str, str] | None:
+    """:func:`naming_cell` of the first row ``odd`` names, found among ``frame``'s rows by its number (None when the
+    frame no longer holds it): the one way a refusal of a totals or means row suggests a row filter."""
+    from cfa_tool.data.moments import row_numbers
+
+    at = np.flatnonzero(np.asarray(row_numbers(frame)) == odd.rows[0])
+    return naming_cell(frame, items, int(at[0])) if len(at) else None
+
+
 def naming_cell(frame: pd.DataFrame, items, position: int) -> tuple[str, str] | None:
     """The first column outside ``items`` whose cell at ``position`` (a place among ``frame``'s rows) is text that no
     other row holds ('rider_id', 'Total') and that has a value in every other row, or None: a row filter '!=' on it

@@ -1574,7 +1574,7 @@ def _first_shown(names: list[str], hidden: list[str]) -> str:
     return next((n for n in names if n not in hidden), names[0])
 
 
-def sheet_read(path, sheet: str | None) -> str:
+def sheet_read(path: object, sheet: str | None) -> str:
     """The sheet a run reads of the data file ``path``: the one asked for, else the workbook's first shown sheet by
     the reader's own rule (:func:`_first_shown`); '' for a file that is no workbook or cannot be opened (its reading
     says why).  Halves files record the sheet they were drawn from by it (data.halves)."""

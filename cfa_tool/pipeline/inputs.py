@@ -1017,14 +1017,12 @@ def refuse_totals_rows(loaded: LoadedData) -> LoadedData:
     "the model cannot be estimated", naming the row only as a likely cause).  Called where the rows analysed are
     known, before any estimation: by :func:`analysed_odd_values` and on entering :func:`odd_values_named` (a means
     row, which moves the estimates little, stays a caution)."""
-    from cfa_tool.data.odd_values import OddKind, naming_cell
+    from cfa_tool.data.odd_values import OddKind, row_naming_cell
 
     odd = next((o for o in loaded.odd_values if o.kind is OddKind.SUMS_ROW), None)
     if odd is None:
         return loaded
-    at = np.flatnonzero(np.asarray(row_numbers(loaded.frame)) == odd.rows[0])
-    named = naming_cell(loaded.frame, odd.columns, int(at[0])) if len(at) else None
-    raise DataError(odd.totals_refusal(loaded.source, named))
+    raise DataError(odd.totals_refusal(loaded.source, row_naming_cell(loaded.frame, odd, odd.columns)))
 
 
 @contextmanager

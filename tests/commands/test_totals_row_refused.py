@@ -150,3 +150,17 @@ def test_the_row_filter_suggested_keeps_every_other_row(rider_demo, rider_model,
         cfa_tool.fit(rider_model, str(path))
     assert "note != Total" not in str(found.value) and "rider_id != Total" not in str(found.value)
     assert str(found.value).endswith("or leave it out with a row filter (keep=...).")
+
+
+def test_a_totals_row_outside_a_declared_scale_is_refused_with_a_filter_that_keeps_the_rest(rider_demo, rider_model,
+                                                                                          tmp_path):
+    """The declared scale's route ('reversed ITEM on 1 to 5', data.matching) names the totals row with the same
+    row filter rule as every command's refusal (odd_values.row_naming_cell, re-read s14)."""
+    path = tmp_path / "declared.csv"
+    _with_totals(rider_demo).to_csv(path, index=False)
+    item = rider_demo.columns[2]
+    with pytest.raises(DataError) as found:
+        cfa_tool.fit(rider_model + f"reversed {item} on 1 to 5\n", str(path))
+    said = str(found.value)
+    assert said.startswith("Row 482 of declared.csv holds the sums of the other rows' answers")
+    assert "the model cannot be fitted with it" in said and "keep=['rider_id != Total']" in said
