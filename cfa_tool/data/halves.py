@@ -41,7 +41,7 @@ def redraw_words(names: "tuple[str, ...] | list[str]", seed: str | int = "SEED")
     """How to write the halves again: with the command that drew halves of these ``names`` (review s14: a replicate
     file was told to rerun explore, whose halves have other names and are drawn from every row, not the complete
     ones)."""
-    if tuple(names) == REPLICATE_HALVES or set(names) == set(REPLICATE_HALVES):
+    if set(names) == set(REPLICATE_HALVES):
         return f"cfa-tool replicate MODEL --data FILE --seed {seed} --halves-file NEW.csv"
     return f"cfa-tool explore --split {seed} --halves-file NEW.csv"
 

@@ -10,6 +10,7 @@ this process, one for its worker)."""
 
 from __future__ import annotations
 
+import contextlib
 import gc
 import os
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
@@ -71,20 +72,8 @@ def _run_locally(fn: Callable, batches: list[list], workers: int, progress) -> l
     results: list = [None] * len(batches)
     blas_libraries()  # found here once: forked workers inherit the list (numerics.threads)
     finished = False
-    # this process's objects frozen while the workers are forked and run: a collection in a forked worker would
-    # otherwise touch every object it inherited and copy their memory pages (the fork's copy-on-write; Python's gc
-    # documentation, gc.freeze), measured at 0.17 s of a 0.31 s bootstrap of case 1 once a collection fell in the
-    # worker (lead, s14: 0.14 s with the freeze); unfrozen when the pool is done
-    gc.freeze()
-    try:
-        return _run_frozen(fn, batches, workers, progress, results, finished)
-    finally:
-        gc.unfreeze()
-
-
-def _run_frozen(fn: Callable, batches: list[list], workers: int, progress, results: list, finished: bool) -> list:
-    """:func:`_run_locally`'s pool, with this process's objects frozen (gc.freeze)."""
-    with one_blas_thread():  # set before the workers are forked: they start with one thread and set nothing
+    # BLAS set before the workers are forked: they start with one thread and set nothing
+    with _objects_frozen(), one_blas_thread():
         # no more workers than batches they could take (a pool forks all its processes at the first batch)
         pool = ProcessPoolExecutor(max_workers=min(workers - 1, len(batches) - 1), initializer=one_blas_thread_from_now)
         try:
@@ -120,6 +109,19 @@ def _run_frozen(fn: Callable, batches: list[list], workers: int, progress, resul
             # joins them); after an error, the batches not started are dropped and the running ones awaited
             pool.shutdown(wait=not finished, cancel_futures=True)
     return [r for batch in results for r in batch]
+
+
+@contextlib.contextmanager
+def _objects_frozen():
+    """This process's objects frozen (gc.freeze) while a pool's workers are forked and run, unfrozen after: a
+    collection in a forked worker would otherwise touch every object it inherited and copy their memory pages (the
+    fork's copy-on-write; Python's gc documentation, gc.freeze), measured at 0.17 s of a 0.31 s bootstrap of case 1
+    once a collection fell in the worker (lead, s14: 0.14 s with the freeze)."""
+    gc.freeze()
+    try:
+        yield
+    finally:
+        gc.unfreeze()
 
 
 def _progress_function(progress):
