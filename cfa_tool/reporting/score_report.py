@@ -152,8 +152,7 @@ def quality_table(result, k: int) -> ReportTable:
 def _omega_cell(sums, factor: str) -> str:
     """The item sum's omega of ``factor`` in the quality table: the one value of the sums' table
     (scoring.quality.SumScore, read through the item sums' summary), '—' where it has none."""
-    omega = dict(zip(sums.factors, sums.omega)).get(factor, float("nan"))
-    return "—" if omega != omega else unit(omega)
+    return _or_dash(dict(zip(sums.factors, sums.omega)).get(factor, float("nan")))
 
 
 def _precision_of(result, q) -> tuple[ScoreMethod | None, tuple]:
@@ -430,13 +429,18 @@ def sum_table(result, k: int) -> ReportTable | None:
 
 def _sum_omega(s) -> str:
     """A keyed sum's omega cell (scoring.quality.SumScore), '—' for a sum of one item, which has none."""
-    return "—" if s.omega != s.omega else unit(s.omega)
+    return _or_dash(s.omega)
 
 
 def _sum_validity(s) -> str:
     """A keyed sum's correlation with its factor, '—' where its omega is (a sum of one item: the correlation is the
     square root of the reliability the fixed error variance assumes, and would restate it; review s14)."""
-    return "—" if s.omega != s.omega else unit(s.validity)
+    return _or_dash(s.validity if s.omega == s.omega else float("nan"))
+
+
+def _or_dash(value: float) -> str:
+    """A value below 1 as the tables print it (reporting.numbers.unit), '—' where there is none (NaN)."""
+    return "—" if value != value else unit(value)
 
 
 def _unscored_counts(factors, counts) -> str:
@@ -532,8 +536,9 @@ def scores_problem_table(result) -> ReportTable | None:
     """The first box of :func:`scores_notice` as a table for the data files (--tables), by tables.problem_table's one
     layout, under the box's heading (review s14: the precision cautions were missing from problems.csv whenever the
     fit had a problem)."""
-    table = T.problem_table(_with_precision_problems(result))
-    return None if table is None else replace(table, title=scores_notice(result).heading)
+    fit = _with_precision_problems(result)
+    table = T.problem_table(fit)
+    return table if table is None or not fit.admissible else replace(table, title=SCORES_PRECISION_HEADING)
 
 
 def _with_precision_problems(result):
