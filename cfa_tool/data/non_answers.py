@@ -13,7 +13,7 @@ researcher can see and undo the reading (by another label in a copy of the file)
 
 The words are the project's own list of the phrases survey files commonly use for non-answers (common practice
 of survey data management, not a published standard); a label counts when, in lower case and with punctuation
-and extra spaces ignored, it is one of the phrases or several joined by '/', ',' or 'or' ("don't know / refused").
+and extra spaces ignored, it is one of the phrases or several joined by '/', ',', ';', '&' or 'or' ("don't know / refused").
 A run adds its own words (those a researcher gives with --missing-codes, such as 'Ne sait pas': :func:`also_no_answer`),
 read and named exactly as the listed ones.  Two marks are compared as written, not as words: '#NULL!' (what a
 statistics package writes into a spreadsheet for a system-missing value) and a lone '-'.
@@ -110,11 +110,15 @@ def says_no_answer(text, explained: bool = False) -> bool:
     phrases = NON_ANSWER_PHRASES | own if own else NON_ANSWER_PHRASES
     if _plain(text) in phrases:
         return True
-    parts = [_plain(p) for p in re.split(r"[/,;&]|\bor\b", text.lower())]
-    parts = [p for p in parts if p]
+    parts = [p for p in _parts(text) if p]
     if not parts:
         return False
     return all(p in phrases for p in parts) or (explained and len(parts) > 1 and parts[0] in phrases)
+
+
+def _parts(text: str) -> list[str]:
+    """The phrases of ``text`` joined by '/', ',', ';', '&' or 'or', each as :func:`_plain` reads it."""
+    return [_plain(p) for p in re.split(r"[/,;&]|\bor\b", text.lower())]
 
 
 def unused_run_words(found: tuple["NonAnswer", ...]) -> tuple[str, ...]:
@@ -125,7 +129,7 @@ def unused_run_words(found: tuple["NonAnswer", ...]) -> tuple[str, ...]:
         for text in (f.value, f.label):
             if isinstance(text, str):
                 said.add(_plain(text))
-                said.update(_plain(p) for p in re.split(r"[/,;&]|\bor\b", text.lower()))
+                said.update(_parts(text))
     return tuple(w for w in run_words() if _plain(w) not in said)
 
 

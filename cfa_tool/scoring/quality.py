@@ -331,10 +331,10 @@ def answered_sum_sems(model: ScoringModel | OrdinalScoringModel, sums: Sequence[
     answered = np.asarray(answered, dtype=bool)
     out = {}
     for s in sums:
-        f = base.factors.index(s.factor)
-        member = np.flatnonzero(keys[:, f])
         if not np.isfinite(s.omega):
             continue
+        f = base.factors.index(s.factor)
+        member = np.flatnonzero(keys[:, f])
         patterns, which = np.unique(answered[:, member], axis=0, return_inverse=True)
         found = np.full(len(patterns), np.nan)
         for k, pattern in enumerate(patterns):

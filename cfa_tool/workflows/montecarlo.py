@@ -173,10 +173,10 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
     one-group ordinal model (the latent responses' residual variances follow from their unit variances), whose
     population values are the population's on the latent responses' scale."""
     from cfa_tool.model.parameters import build_parameter_table
-    from cfa_tool.pipeline.ordinal import ordinal_spec, refuse_set_residual_variances
+    from cfa_tool.pipeline.ordinal import ordinal_spec
     from cfa_tool.workflows.ordinal_resampling import OrdinalFitting, simulated_fit
 
-    refuse_set_residual_variances(spec)  # the statement's line first, before the variances it makes differ from 1
+    ordinal = ordinal_spec(spec)[0]  # refuses a statement setting a residual variance first, naming its line
     variances = np.diag(population.sigma)
     if np.abs(variances - 1.0).max() > 1e-6:
         k = int(np.argmax(np.abs(variances - 1.0)))
@@ -187,7 +187,7 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
                               f"result of an ordinal fit of these items (a fit with {check.Option.ORDINAL}), or leave "
                               f"out {check.Option.CATEGORIES} for the power of the continuous model")
         raise OptionError(scale.format("given") + "; change the 'start' values")
-    table = build_parameter_table(ordinal_spec(spec)[0])
+    table = build_parameter_table(ordinal)
     value_of = {(v["kind"], tuple(v["variables"])): v["value"] for v in population.values()}
     entry_of = {}  # each free parameter through an entry that is that parameter alone
     for par in table.parameters:
