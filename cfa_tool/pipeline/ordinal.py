@@ -102,8 +102,8 @@ def _residual_variance_statements(spec: Spec):
 
 
 def refuse_set_residual_variances(spec: Spec) -> None:
-    """A one-group ordinal fit analyses every item in the correlation metric of its latent response (the delta
-    parameterization: each latent response has variance 1; Muthén & Asparouhov 2002), so an item's residual variance
+    """A one-group ordinal fit analyses every item in the correlation metric of its latent response (each latent
+    response has variance 1; Muthén & Asparouhov 2002), so an item's residual variance
     is 1 minus the variance its factors explain and no statement can fix, free, start, bound or equate it: the first
     such statement is an error naming its line (it would otherwise be ignored while the report repeated it)."""
     found = _residual_variance_statements(spec)
@@ -112,7 +112,7 @@ def refuse_set_residual_variances(spec: Spec) -> None:
     word, ref = found[0]
     item = ref.names[0]
     raise ModelError(f"'{word} {ref}': the residual variance of '{item}' cannot be set in an ordinal fit of one group: "
-                     f"every latent response has variance 1 there (the delta parameterization), so an item's residual "
+                     f"every latent response has variance 1 there (the correlation metric), so an item's residual "
                      f"variance follows from its loadings as 1 minus the variance its factors explain; remove the "
                      f"statement (fix or start the loadings instead)", ref.location, spec.source_line(ref.location))
 

@@ -124,11 +124,11 @@ def test_the_modification_index_with_gaps_is_raos_score_statistic(frame, helpers
     ours = {(m.kind, m.variables): m.index for m in result.modification_indices}
     rao, log_likelihood = _rao(frame, ["y1", "y2", "y3", "y4", *helpers])
     assert result.fit.log_likelihood == pytest.approx(log_likelihood, rel=1e-8)  # the same estimates
-    assert rao > 10  # the covariance the data were drawn with
+    assert rao > 10  # the covariance the data were drawn with (0.25 at N = 500; a floor of this test's design)
     assert ours[("residual_covariance", ("y1", "y2"))] == pytest.approx(rao, rel=1e-5)
 
 
-def test_helpers_change_the_modification_indices(frame):
+def test_helpers_change_the_modification_indices(frame):  # the outside check is Rao's statistic, above
     without = {(m.kind, m.variables): m.index for m in cfa_tool.fit(MODEL, frame).modification_indices}
     with_helper = {(m.kind, m.variables): m.index
                    for m in cfa_tool.fit(MODEL, frame, missing_helpers="age").modification_indices}

@@ -61,6 +61,8 @@ def test_the_screen_clears_only_rows_the_single_fit_rule_finds_nothing_in(name, 
         table, model, thetas, standardized_loadings=False)
     flagged = could_have_problems(table, model, thetas)
     assert not any(expected[r] for r in np.flatnonzero(~flagged))
+    # floors of this test's own design (not outside values): the perturbations must put problems in some rows,
+    # and around admissible estimates a screen that cleared almost nothing would save nothing
     assert sum(1 for words in expected if words) > 20  # the perturbed rows do hold problems
     if not expected[0]:  # estimates that are admissible: the screen clears many rows around them
         assert np.mean(~flagged) > 0.3

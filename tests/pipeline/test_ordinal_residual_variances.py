@@ -1,5 +1,5 @@
 """An ordinal item's residual variance in a fit of one group follows from its latent response's unit variance (the
-delta parameterization: 1 minus the variance its factors explain), so a statement on it cannot apply.  Before
+correlation metric; Muthén & Asparouhov 2002: 1 minus the variance its factors explain), so a statement on it cannot apply.  Before
 (hostile tester s14), 'fix variance(a1) = 0.3' was silently ignored: the same chi-square and df as without it, the
 table printing 0.300 beside an R-squared that implied 0.58, and the methods text saying it was fixed; 'equal' was
 ignored alike.  Every command that fits one group of ordinal items refuses it now, naming the line.  With groups
@@ -40,7 +40,7 @@ def _answers(n: int = 400, groups: bool = False) -> pd.DataFrame:
 def test_a_statement_on_an_ordinal_items_residual_variance_is_an_error_at_its_line(statement, word, column):
     with pytest.raises(ModelError, match=rf"'{word} variance\(a\d\)': the residual variance of 'a\d' cannot be set in "
                                          r"an ordinal fit of one group: every latent response has variance 1 there "
-                                         r"\(the delta parameterization\)") as caught:
+                                         r"\(the correlation metric\)") as caught:
         cfa_tool.fit(ITEMS + statement + "\n", _answers(), ordinal="all")
     assert (caught.value.location.line, caught.value.location.column) == (2, column)
 

@@ -39,7 +39,8 @@ def test_the_fit_paragraph_names_a_sample_smaller_than_its_model(hs_data):
 
 def test_a_change_that_rounds_to_zero_keeps_its_direction():
     """ΔCFI of -0.0002 (the restricted model fits worse) printed '+.000' in a table and the methods text (new user
-    s14): the sign of the direction stays, and no change at all has none."""
+    s14): the sign of the direction stays, and no change at all has none (no leading zero for values bounded by 1:
+    journal style, APA Publication Manual 7th ed., recalled from memory; the signs are this project's rule)."""
     from cfa_tool.reporting.numbers import signed
 
     assert signed(-0.0002) == "-.000"
