@@ -102,19 +102,25 @@ def _residual_variance_statements(spec: Spec):
 
 
 def refuse_set_residual_variances(spec: Spec) -> None:
-    """A one-group ordinal fit analyses every item in the correlation metric of its latent response (each latent
-    response has variance 1; Muthén & Asparouhov 2002), so an item's residual variance
-    is 1 minus the variance its factors explain and no statement can fix, free, start, bound or equate it: the first
-    such statement is an error naming its line (it would otherwise be ignored while the report repeated it)."""
+    """The one rule on residual variances of a model with ordinal items in one group, read by every command that fits
+    such items (fit, compare, replicate, bootstrap, cutoffs, scores: by :func:`ordinal_spec` or directly) or draws them
+    (simulate and power-simulation, through ``workflows.simulation.with_categories``).  A one-group ordinal fit
+    analyses every item in the correlation metric of its latent response (each latent response has variance 1;
+    Muthén & Asparouhov 2002), and a simulation cuts each ordinal item's latent response at its thresholds after
+    standardizing it, so an item's residual variance is 1 minus the variance its factors explain and no statement can
+    fix, free, start, bound or equate it: the first such statement is an error naming its line (a fit would otherwise
+    ignore it while the report repeated it; a simulation would change the item's standardized loading while its
+    population table showed a value on a scale the answers do not have)."""
     found = _residual_variance_statements(spec)
     if not found:
         return
     word, ref = found[0]
     item = ref.names[0]
-    raise ModelError(f"'{word} {ref}': the residual variance of '{item}' cannot be set in an ordinal fit of one group: "
-                     f"every latent response has variance 1 there (the correlation metric), so an item's residual "
-                     f"variance follows from its loadings as 1 minus the variance its factors explain; remove the "
-                     f"statement (fix or start the loadings instead)", ref.location, spec.source_line(ref.location))
+    raise ModelError(f"'{word} {ref}': the residual variance of '{item}' cannot be set with ordinal items in one "
+                     f"group: every latent response has variance 1 there (the correlation metric, in which the "
+                     f"thresholds cut it), so an item's residual variance follows from its loadings as 1 minus the "
+                     f"variance its factors explain; remove the statement (fix or start the loadings instead)",
+                     ref.location, spec.source_line(ref.location))
 
 
 def refuse_fixed_residual_variances_in_ladder(spec: Spec, ordinal_items) -> None:

@@ -176,7 +176,7 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
     from cfa_tool.pipeline.ordinal import ordinal_spec
     from cfa_tool.workflows.ordinal_resampling import OrdinalFitting, simulated_fit
 
-    ordinal = ordinal_spec(spec)[0]  # refuses a statement setting a residual variance first, naming its line
+    ordinal = ordinal_spec(spec)[0]  # (a statement setting a residual variance was refused by with_categories)
     variances = np.diag(population.sigma)
     if np.abs(variances - 1.0).max() > 1e-6:
         k = int(np.argmax(np.abs(variances - 1.0)))

@@ -77,10 +77,15 @@ def required_sample_size(df: int, rmsea_null: float, rmsea_alt: float, power: fl
 
 def model_degrees_of_freedom(spec) -> tuple[int, int]:
     """(degrees of freedom, indicators) of a model's covariance structure in one group:
-    p(p + 1)/2 - q (Joreskog 1969)."""
+    p(p + 1)/2 - q (Joreskog 1969).  With ordinal items a statement on a residual variance is an error at its line,
+    as the ordinal fit would refuse it (:func:`cfa_tool.pipeline.ordinal.refuse_set_residual_variances`): a fixed
+    one would add a degree of freedom to a model that is never fitted."""
     from cfa_tool.model.parameters import build_parameter_table, one_group_only
+    from cfa_tool.pipeline.ordinal import refuse_set_residual_variances
 
     one_group_only(spec, "the power of the RMSEA test is computed for one group's model")
+    if spec.ordinal:
+        refuse_set_residual_variances(spec)
     table = build_parameter_table(spec)
     return table.p * (table.p + 1) // 2 - table.n_free, table.p
 

@@ -576,7 +576,9 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
     of categories must agree), so an 'ordinal' statement needs no --categories for them, and a number of categories
     that differs from the statement's is an error.  ``simulate`` writes every such item as the statement's words,
     ordinal or not; a ``command`` that fits the samples (power-simulation) treats items the model does not declare
-    ordinal as continuous, which answers in a few categories are not: such an item is an error naming the statement."""
+    ordinal as continuous, which answers in a few categories are not: such an item is an error naming the statement.
+    With any item cut, a statement on a residual variance is an error at its line
+    (:func:`cfa_tool.pipeline.ordinal.refuse_set_residual_variances`, the rule of the ordinal fit)."""
     from dataclasses import replace
 
     declared = [x.text for x in spec.ordinal]
@@ -625,6 +627,10 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
                                          f"statement's categories, or remove the statement for the power of "
                                          f"continuous answers")
         thresholds[x] = equal_thresholds(len(codes))  # simulate writes the statement's words
+    if thresholds:  # ordinal items in one group: the one rule of every command that fits or draws them
+        from cfa_tool.pipeline.ordinal import refuse_set_residual_variances
+
+        refuse_set_residual_variances(spec)
     if set(thresholds) == set(population.thresholds or ()):  # nothing cut beyond the earlier fit's items
         return population
     return replace(population, thresholds={x: thresholds[x] for x in population.observed if x in thresholds},

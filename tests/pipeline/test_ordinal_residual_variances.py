@@ -38,9 +38,9 @@ def _answers(n: int = 400, groups: bool = False) -> pd.DataFrame:
     ("free variance(a2)", "free", 6),
 ])
 def test_a_statement_on_an_ordinal_items_residual_variance_is_an_error_at_its_line(statement, word, column):
-    with pytest.raises(ModelError, match=rf"'{word} variance\(a\d\)': the residual variance of 'a\d' cannot be set in "
-                                         r"an ordinal fit of one group: every latent response has variance 1 there "
-                                         r"\(the correlation metric\)") as caught:
+    with pytest.raises(ModelError, match=rf"'{word} variance\(a\d\)': the residual variance of 'a\d' cannot be set "
+                                         r"with ordinal items in one group: every latent response has variance 1 "
+                                         r"there \(the correlation metric") as caught:
         cfa_tool.fit(ITEMS + statement + "\n", _answers(), ordinal="all")
     assert (caught.value.location.line, caught.value.location.column) == (2, column)
 
@@ -60,6 +60,48 @@ def test_compare_replicate_and_power_simulation_refuse_it_alike():
         cfa_tool.power_simulation(population + "start variance(a1) = 0.51\n", 100, replications=20, workers=1,
                                   categories=5)
     assert caught.value.location.line == 4
+
+
+@pytest.mark.parametrize("statement, word, column", [
+    ("fix variance(a1) = 0.3", "fix", 5),
+    ("start variance(a1) = 0.3", "start", 7),
+    ("bound variance(a1) >= 0.1", "bound", 7),
+    ("equal variance(a1), variance(a2)", "equal", 7),
+    ("free variance(a2)", "free", 6),
+])
+@pytest.mark.parametrize("ordinal", ["ordinal a1, a2, a3, a4\n", 'answers "Low" = 1, "Mid" = 2, "High" = 3\n', ""])
+def test_simulate_refuses_it_as_the_fit_does(statement, word, column, ordinal):
+    # simulate cut the latent response at its thresholds after standardizing it, so 'fix variance(a1) = 0.3' made a1's
+    # standardized loading .79 (.7 / sqrt(.49 + .3)) while the population table said 0.3 on a scale the answers do
+    # not have, and the fit of the rows refused the same model file (session note s14).  Ordinal items by an
+    # 'ordinal' statement, by an 'answers' statement (written as its words) or by a number of categories alike.
+    categories = None if ordinal.startswith("answers") else 4
+    lines = ITEMS.count("\n") + ordinal.count("\n")
+    with pytest.raises(ModelError, match=rf"'{word} variance\(a\d\)': the residual variance of 'a\d' cannot be set "
+                                         r"with ordinal items in one group") as caught:
+        cfa_tool.simulate(ITEMS + ordinal + statement + "\n", 100, categories=categories)
+    assert (caught.value.location.line, caught.value.location.column) == (lines + 1, column)
+
+
+def test_simulate_keeps_a_residual_variance_of_continuous_items():
+    # no item cut: the statement is the population's residual variance (loading .7, factor variance 1)
+    simulated = cfa_tool.simulate(ITEMS + "fix variance(a1) = 0.3\n", 50_000, seed=3)
+    value = {(v["kind"], tuple(v["variables"])): v["value"] for v in simulated.population.values()}
+    assert value[("residual_variance", ("a1",))] == 0.3
+    # a1 is the marker (loading 1): its variance is the factor's variance plus .3 (Bollen 1989, ch. 7)
+    assert simulated.frame["a1"].var() == pytest.approx(value[("factor_variance", ("f",))] + 0.3, rel=0.03)
+
+
+def test_the_rmsea_power_plan_of_an_ordinal_model_refuses_it():
+    # 'power' gave 4 degrees of freedom (a fixed residual variance one more) for a model the ordinal fit refuses
+    from cfa_tool.language.parser import parse_model
+    from cfa_tool.workflows.power import model_degrees_of_freedom
+
+    assert model_degrees_of_freedom(parse_model(ITEMS + "ordinal a1, a2, a3, a4\n")) == (2, 4)  # 10 - 8, by hand
+    assert model_degrees_of_freedom(parse_model(ITEMS + "fix variance(a1) = 0.3\n")) == (3, 4)  # continuous: kept
+    with pytest.raises(ModelError, match=r"'fix variance\(a1\)': the residual variance of 'a1' cannot be set") as caught:
+        model_degrees_of_freedom(parse_model(ITEMS + "ordinal a1, a2, a3, a4\nfix variance(a1) = 0.3\n"))
+    assert caught.value.location.line == 3
 
 
 def test_with_groups_a_fixed_residual_variance_is_a_constraint_and_is_kept():
