@@ -27,6 +27,7 @@ each factor points the way of the items not declared reversed.
 from __future__ import annotations
 
 from dataclasses import dataclass, replace
+from enum import Enum
 from functools import cached_property
 from typing import Callable
 
@@ -41,6 +42,23 @@ from cfa_tool.language.spec import (GROUP_EQUALITY_WORDS, INVARIANCE_CLASSES, IN
                                     equality_words, fix_sets_scale)
 
 MATRIX_CODES = {"L": 0, "B": 1, "P": 2, "T": 3, "N": 4, "M": 5, "K": 6}
+
+
+class Unapplied(Enum):
+    """A statement that names a parameter which is not free where it names it (:func:`build_parameter_table`
+    refuses it): how the error names the statement ('so a start value on it has no effect'), what its advice removes
+    ('remove the start value'), and whether that advice may add that the invariance command reads the statement at a
+    later step of its ladder (a start on a factor mean fixed at 0 in every group: the ladder frees that mean once the
+    intercepts are held equal)."""
+
+    START = ("a start value", "start value", True)
+    BOUND = ("a bound", "bound", False)
+    NONINVARIANT = ("'noninvariant'", "'noninvariant' statement", False)
+
+    def __init__(self, phrase: str, removed: str, read_at_ladder_step: bool) -> None:
+        self.phrase = phrase
+        self.removed = removed
+        self.read_at_ladder_step = read_at_ladder_step
 
 
 @dataclass(frozen=True)
@@ -416,24 +434,25 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         keys = [(g, *ref.key()) for g in groups_of(ref)]
         return all(entries[k]["fixed"] is not None and entries[k]["origin"] == "scale" for k in keys)
 
-    def no_effect(ref: ParameterRef, word: str) -> ModelError:
+    def no_effect(ref: ParameterRef, statement: Unapplied) -> ModelError:
         factor = ref.names[0]
         freed = (f"in group {written_name(ref.group)}: free {replace(ref, group=None)}" if ref.group is not None
                  else f"free {ref}")  # a statement as the model language writes it
         how = (f"free it ('{freed}'; the next indicator then sets the scale) or scale '{factor}' another way"
                if ref.kind == "loading" else f"scale '{factor}' by a marker instead ('scale {written_name(factor)} by marker')")
-        return _fail(spec, f"{ref} is fixed to set the scale of '{factor}', so {word} on it has no effect; {how}", ref)
+        return _fail(spec, f"{ref} is fixed to set the scale of '{factor}', so {statement.phrase} on it has no effect; "
+                           f"{how}", ref)
 
-    def cannot_apply(ref: ParameterRef, word: str) -> ModelError | None:
-        """The error for a start value or a bound (``word``) on a parameter that is not free in any group the
-        statement names (fixed by a 'fix', by a factor's scale, through a tie to a fixed parameter, or given by
-        effects coding), or None when the statement applies somewhere."""
+    def cannot_apply(ref: ParameterRef, statement: Unapplied) -> ModelError | None:
+        """The error for a start value, a bound or an exemption (``statement``) on a parameter that is not free in
+        any group the statement names (fixed by a 'fix', by a factor's scale, through a tie to a fixed parameter, or
+        given by effects coding), or None when the statement applies somewhere."""
         keys = [(g, *ref.key()) for g in groups_of(ref)]
         reasons = [_why_not_free(spec, k, entries, effects, fixed_by, tied_to, multi, group_labels) for k in keys]
         if any(r is None for r in reasons):
             return None
         if scale_fixed_everywhere(ref) and ref.names[0] in lat_ix:  # a factor's (not an ordinal item's) scale
-            return no_effect(ref, word)  # the advice names the scale's other ways
+            return no_effect(ref, statement)  # the advice names the scale's other ways
         # the tie is named where there is one (a group's mean held equal to the first group's names the tie)
         at = next((i for i, k in enumerate(keys) if k in tied_to), 0)
         first_key, why = keys[at], reasons[at]
@@ -443,24 +462,23 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         if multi and ref.group is None and not everywhere:
             why = f"fixed in every group (in group {group_labels[first_key[0]]}: {why})"
         how = (" (the invariance command reads it at the step that holds the intercepts equal)"
-               if everywhere and word == "a start value" else "")
-        removed = word.removeprefix("a ") if word.startswith("a ") else f"{word} statement"
-        return _fail(spec, f"{ref} is {why}, so {word} on it has no effect; remove the {removed}"
+               if everywhere and statement.read_at_ladder_step else "")
+        return _fail(spec, f"{ref} is {why}, so {statement.phrase} on it has no effect; remove the {statement.removed}"
                            f"{' or the tie' if first_key in tied_to else ''}{how}", ref)
 
     for setting in spec.starts:
         for ref in setting.refs:
-            error = cannot_apply(ref, "a start value")
+            error = cannot_apply(ref, Unapplied.START)
             if error is not None:
                 raise error
     for bound in spec.bounds:
         for ref in bound.refs:
-            error = cannot_apply(ref, "a bound")
+            error = cannot_apply(ref, Unapplied.BOUND)
             if error is not None:
                 raise error
     for ref in spec.noninvariant:
         if ref.kind != "threshold" and scale_fixed_everywhere(ref):
-            raise cannot_apply(ref, "'noninvariant'")
+            raise cannot_apply(ref, Unapplied.NONINVARIANT)
 
     start = np.full(n_free, np.nan)
     for k, value in _start_values(spec, groups_of, free_index, multi).items():

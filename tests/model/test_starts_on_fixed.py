@@ -131,3 +131,18 @@ def test_noninvariant_on_an_ordinal_items_fixed_latent_response_says_why_as_a_st
     assert (f"{kind}(a) is fixed in every group (in group north: {fixed}), so 'noninvariant' on it has no effect; "
             f"remove the 'noninvariant' statement") in str(info.value)
     assert "marker" not in str(info.value)
+
+
+@pytest.mark.parametrize("statement, advice", [
+    ("start mean(f) = 0.3", "so a start value on it has no effect; remove the start value (the invariance command "
+                            "reads it at the step that holds the intercepts equal)"),
+    ("bound mean(f) >= 0", "so a bound on it has no effect; remove the bound"),
+])
+def test_the_advice_follows_the_statement_refused(statement, advice):
+    """The advice is the refused statement's (model.parameters.Unapplied), chosen where the statement is known, not
+    read back from the first word of its phrase: only a start on a factor mean fixed at 0 in every group is read by
+    the invariance ladder at a later step (test_a_start_on_a_factor_mean_is_not_refused_at_a_ladder_step)."""
+    with pytest.raises(ModelError) as info:
+        build_parameter_table(parse_model(F + statement + "\n", "m.cfa"), GROUPS)
+    message = str(info.value).splitlines()[0]
+    assert message.endswith(advice)
