@@ -228,7 +228,7 @@ def inputs_of(args: argparse.Namespace) -> list[str]:
 HALVES_FILE = "--halves-file"
 
 
-def add_halves_file(parser, asked: str) -> None:
+def add_halves_file(parser: argparse.ArgumentParser, asked: str) -> None:
     """The option that saves which rows went to which random half (``asked``: what makes the halves)."""
     parser.add_argument(HALVES_FILE, metavar="FILE.csv",
                         help=f"with {asked}: write which rows went to which half, a CSV of the rows' numbers (as the "

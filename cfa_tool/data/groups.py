@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from enum import Enum
+from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
@@ -13,6 +14,9 @@ from cfa_tool.suggest import close_names
 from cfa_tool.data.moments import SampleMoments, sample_moments
 from cfa_tool.errors import DataError, OptionError, check_rows_counted, printable
 from cfa_tool.method import MissingData
+
+if TYPE_CHECKING:
+    from cfa_tool.data.sample_design import DesignColumns
 
 
 MAX_GROUPS = 100  # a multi-group fit estimates every parameter in each group
@@ -123,7 +127,8 @@ def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], sour
 
 def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,
                           reference: str | None = None, pairwise: bool = False,
-                          design=None, continuous: frozenset[str] = frozenset()) -> tuple[list[tuple[str, object]], int]:
+                          design: DesignColumns | None = None,
+                          continuous: frozenset[str] = frozenset()) -> tuple[list[tuple[str, object]], int]:
     """Per-group thresholds and polychoric correlations, every group on the same categories (``pairwise``:
     from every answer; ``design``: weighted, sampling weights rescaled within each group; ``continuous``: items
     analysed beside the ordinal ones, with their means and variances; see

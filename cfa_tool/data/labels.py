@@ -9,6 +9,7 @@ row filters agree.
 from __future__ import annotations
 
 import unicodedata
+from collections.abc import Iterable
 from typing import TYPE_CHECKING
 
 from cfa_tool.errors import printable
@@ -42,14 +43,14 @@ def merged_labels(values) -> list[tuple[str, list[tuple[str, int]]]]:
     return [(label, sorted(texts.items())) for label, texts in raw.items() if len(texts) > 1 or label in trimmed]
 
 
-def case_variants(values) -> list[list[tuple[str, int]]]:
+def case_variants(values: Iterable[object]) -> list[list[tuple[str, int]]]:
     """Labels (as :func:`label_text` reads them) that differ only in upper and lower case ('north', 'North'), each
     with its number of cells: [[(label, cells), ...], ...].  They stay different groups, since only the user knows
     whether they are one."""
     return [sorted(found) for _, found in sorted(_by_case(values).items()) if len(found) > 1]
 
 
-def other_case(values, label: str) -> tuple[tuple[str, int], ...]:
+def other_case(values: Iterable[object], label: str) -> tuple[tuple[str, int], ...]:
     """The labels among ``values`` (as :func:`label_text` reads them) that differ from ``label`` only in upper and
     lower case, each with its number of cells: (('North', 63),) for 'north'; the rule of :func:`case_variants` for
     one label (a row filter's text)."""

@@ -7,7 +7,7 @@ normal-theory ML fitting (Bollen 1989, ch. 4).
 from __future__ import annotations
 
 import re
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field, replace
 
 import numpy as np
@@ -166,7 +166,7 @@ def _copied(columns: list[pd.Series], rows: int) -> np.ndarray:
 STRAY_WORDS_SHOWN = 5
 
 
-def stray_words(names, columns: list[pd.Series], source: str) -> None:
+def stray_words(names: Sequence[str], columns: list[pd.Series], source: str) -> None:
     """Text cells among numbers (data.answer_scales.stray_text: slips, not answers recorded as words) in several
     cells of the columns ``names``: one error counting them and naming each different word with its cells and the
     first cell, rather than the first cell alone (new-user trial s13, U4: 'Ne sait pas' in 11 cells of 9 items, of
@@ -404,7 +404,7 @@ def _check_combinations(corr: np.ndarray, names: tuple[str, ...], source: str, a
         )
 
 
-def file_rows_index(numbers) -> pd.Index:
+def file_rows_index(numbers: Sequence[int] | np.ndarray) -> pd.Index:
     """The index a reader gives the rows it read: each row's number in the file as a spreadsheet shows it (a sheet's
     row, a text file's record: one row per record however many text lines its quoted cells span, data.readers.
     TextRows; an SPSS or Stata case) less one, so that :func:`row_numbers` (index + 1, as for a data frame's own

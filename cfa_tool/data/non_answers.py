@@ -25,7 +25,7 @@ import contextlib
 import contextvars
 import enum
 import re
-from collections.abc import Iterator
+from collections.abc import Iterable, Iterator
 from dataclasses import dataclass
 
 import numpy as np
@@ -96,7 +96,7 @@ def run_words() -> tuple[str, ...]:
     return _RUN_WORDS.get().given
 
 
-def says_no_answer(text, explained: bool = False) -> bool:
+def says_no_answer(text: object, explained: bool = False) -> bool:
     """Whether a value label or a cell's text says the value is not an answer: one of the phrases (or of the run's
     own words, :func:`also_no_answer`) as a whole ('N/A', 'DK/NA'), one of the :data:`NON_ANSWER_MARKS`, or several
     phrases joined by '/', ',', ';', '&' or 'or' ("Don't know / refused").  Phrases are compared as whole words, so
@@ -436,7 +436,7 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None) -> tuple[str, s
     return said, f"To analyse one as an answer, {undo}, in a copy of the {'data frame' if frame else 'file'}."
 
 
-def non_answer_note(found: tuple[NonAnswer, ...], source: str, items=None) -> str | None:
+def non_answer_note(found: tuple[NonAnswer, ...], source: str, items: Iterable[str] | None = None) -> str | None:
     """The note of the data summary on what was read as no answer in the model's ``items`` (every view shows a
     reader's notes): what, where and how many cells, and how to undo it; None if nothing.  Whether rows leave the
     analysis because of it is :func:`non_answer_caution`'s to say."""
@@ -444,7 +444,7 @@ def non_answer_note(found: tuple[NonAnswer, ...], source: str, items=None) -> st
     return None if said is None else f"{said[0][:-1]}. {said[1][:-1]}"
 
 
-def rows_lost(found: tuple[NonAnswer, ...], frame: pd.DataFrame, items, listwise: bool) -> int:
+def rows_lost(found: tuple[NonAnswer, ...], frame: pd.DataFrame, items: Iterable[str], listwise: bool) -> int:
     """The rows of ``frame`` (the rows analysed, after any row filter; index labels as the reader gave them) that
     hold a value read as no answer (``found``) in the ``items`` and leave the analysis: with ``listwise`` deletion
     every such row (it has a gap), else those left with no answer to any item."""
@@ -459,7 +459,7 @@ def rows_lost(found: tuple[NonAnswer, ...], frame: pd.DataFrame, items, listwise
     return int((marked & (gaps.any(axis=1) if listwise else gaps.all(axis=1))).sum())
 
 
-def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items, frame: pd.DataFrame,
+def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items: Iterable[str] | None, frame: pd.DataFrame,
                        listwise: bool = False) -> tuple[str, str] | None:
     """The one rule that makes values read as no answer (the data summary's note, :func:`non_answer_note`) a
     caution first in every view: when rows leave the analysis because of them (:func:`rows_lost`: ``listwise``

@@ -6,7 +6,7 @@ filters, ordinal items), and every report says which column of which file was re
 from __future__ import annotations
 
 import unicodedata
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
 import pandas as pd
@@ -14,6 +14,11 @@ import pandas as pd
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.options import Option
 from cfa_tool.suggest import close_names
+
+
+#: What a rename option takes (:func:`column_renames`): a mapping {'OLD': 'NEW'}, text 'OLD=NEW' (several separated by
+#: commas), a list of such texts, or None (no column renamed)
+ColumnRenames = Mapping[str, str] | str | Sequence[str] | None
 
 
 @dataclass(frozen=True)
@@ -36,7 +41,7 @@ def _composed(name: str) -> str:
     return unicodedata.normalize("NFC", name)
 
 
-def column_renames(value, option: Option = Option.RENAME) -> tuple[ColumnRename, ...]:
+def column_renames(value: ColumnRenames, option: Option = Option.RENAME) -> tuple[ColumnRename, ...]:
     """The renames an option asks for: a mapping {'OLD': 'NEW'} (Python), or text 'OLD=NEW', several separated by
     commas, or a list of such texts (the command line, where the option is repeatable); a name holding a comma or
     '=' in double quotes.  An :class:`OptionError` naming ``option`` for anything else, for a pair without '=' and

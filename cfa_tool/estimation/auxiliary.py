@@ -28,12 +28,18 @@ Omega's lower triangle by rows).
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
 import numpy as np
 
 from cfa_tool.data.patterns import PatternData
 from cfa_tool.estimation.fiml import MissingDataLikelihood, model_second_order
 from cfa_tool.model.implied import ModelMatrices, StructuredModel
+
+if TYPE_CHECKING:
+    from cfa_tool.estimation.ml import GroupMoments
 
 
 def _joint_directions(p: int, r: int, observed_variances: bool) -> tuple[np.ndarray, np.ndarray]:
@@ -201,7 +207,8 @@ class _BaselineLikelihood(MissingDataLikelihood):
         return None
 
 
-def auxiliary_baseline(patterns: list[PatternData], groups, p: int, r: int, max_iterations: int = 500
+def auxiliary_baseline(patterns: list[PatternData], groups: Sequence[GroupMoments], p: int, r: int,
+                       max_iterations: int = 500
                        ) -> tuple[float, int] | None:
     """(chi-square, df) of the baseline model with auxiliaries (Savalei & Bentler 2009; module docstring): in each
     group the items uncorrelated with each other, every mean and variance and every covariance that involves an

@@ -38,6 +38,9 @@ With a sampling design, B is the design-based meat of cfa_tool.inference.design
 
 from __future__ import annotations
 
+from collections.abc import Sequence
+from typing import TYPE_CHECKING
+
 import numpy as np
 
 from cfa_tool.data.em import weighted_available_moments
@@ -47,6 +50,10 @@ from cfa_tool.inference.design import design_meat
 from cfa_tool.inference.robust import vech_indices
 from cfa_tool.inference.standard_errors import observed_information
 from cfa_tool.numerics.linalg import scaled_inverse
+
+if TYPE_CHECKING:
+    from cfa_tool.data.sample_design import RowDesign
+    from cfa_tool.model.implied import ModelMatrices
 
 
 def _moment_directions(p: int) -> tuple[np.ndarray, np.ndarray]:
@@ -75,14 +82,14 @@ def moment_scores(data: PatternData, mu: np.ndarray, sigma: np.ndarray) -> np.nd
     return np.hstack([-2.0 * u, (A_patterns[:, I, J][data.index] - u[:, I] * u[:, J]) * scale])
 
 
-def scores_meat(data: PatternData, mu: np.ndarray, sigma: np.ndarray, design) -> np.ndarray:
+def scores_meat(data: PatternData, mu: np.ndarray, sigma: np.ndarray, design: RowDesign | None) -> np.ndarray:
     """B of the module docstring: the mean outer product of the rows' scores in beta at (mu, Sigma)
     (:func:`moment_scores`), or with a sampling ``design`` its design-based meat (inference.design, Asparouhov
     2005)."""
     return design_meat(moment_scores(data, mu, sigma), design)
 
 
-def group_meat(likelihood: MissingDataLikelihood, g: int, mats) -> np.ndarray:
+def group_meat(likelihood: MissingDataLikelihood, g: int, mats: ModelMatrices) -> np.ndarray:
     """Group g's B (:func:`scores_meat`) at the model's implied moments ``mats`` (its matrices at theta)."""
     return scores_meat(likelihood.patterns[g], mats.implied_mean(), mats.implied_covariance(),
                        likelihood.groups[g].design)
@@ -107,7 +114,8 @@ def _model_directions(likelihood: MissingDataLikelihood, theta: np.ndarray, g: i
     return np.hstack([d_mu, d_sigma[:, I, J]]).T  # (k, q)
 
 
-def robust_missing(likelihood: MissingDataLikelihood, theta: np.ndarray, saturated, df: int, base_df: int | None,
+def robust_missing(likelihood: MissingDataLikelihood, theta: np.ndarray,
+                   saturated: Sequence[tuple[np.ndarray, np.ndarray]], df: int, base_df: int | None,
                    ) -> tuple[np.ndarray, float, float]:
     """(Huber-White covariance of theta, scaling factor of the model, scaling factor of the baseline), the
     factors (sat - model) / (2 df) from the trace terms summed over groups; ``base_df`` None: the baseline's

@@ -11,6 +11,7 @@ robust score tests.
 
 from __future__ import annotations
 
+from collections.abc import Collection
 from dataclasses import dataclass
 from dataclasses import replace as dc_replace
 
@@ -38,7 +39,7 @@ from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
-from cfa_tool.pipeline.continuous import PAIRWISE_INSTEAD, estimate_rows, listwise_line, listwise_problem
+from cfa_tool.pipeline.continuous import FitOptions, PAIRWISE_INSTEAD, estimate_rows, listwise_line, listwise_problem
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.pipeline.results import DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
@@ -123,7 +124,7 @@ def refuse_set_residual_variances(spec: Spec) -> None:
                      ref.location, spec.source_line(ref.location))
 
 
-def refuse_fixed_residual_variances_in_ladder(spec: Spec, ordinal_items) -> None:
+def refuse_fixed_residual_variances_in_ladder(spec: Spec, ordinal_items: Collection[str]) -> None:
     """The invariance ladder of ordinal items sets their latent responses' residual variances itself (1 in the first
     group, and in every group while the item's thresholds may differ; estimated in the other groups once thresholds
     are held equal, and held equal at the strict level; Wu & Estabrook 2016): a 'fix' of one would hold it equal
@@ -498,7 +499,7 @@ def ordinal_difference(restricted: OrdinalEstimation, general: OrdinalEstimation
     return adjusted_from_traces(max(diff, 0.0), restricted.df - general.df, *traces)
 
 
-def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, options, group_column: str,
+def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, options: FitOptions, group_column: str,
                           method: Weighting | str = Weighting.DIAGONAL, modification: bool = True) -> FitResult:
     """Robust standard errors, adjusted tests, indices and score tests of a multi-group ordinal fit."""
     method = _check_method(method)

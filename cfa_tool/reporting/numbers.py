@@ -76,7 +76,7 @@ def p_phrase(p) -> str:
     return text if text.startswith(("<", ">")) else f"= {text}"
 
 
-def signed(value, digits: int = 3, beside: float | None = None) -> str:
+def signed(value: float | None, digits: int = 3, beside: float | None = None) -> str:
     """A change bounded by 1 in size with its sign and without its leading zero (+.026, -.035); ``beside`` as for
     :func:`unit`.  A change that rounds to zero keeps the sign of its direction (-.000 for -0.0002: the restricted
     model fits worse, if by less than the digits show), and no change at all has none (.000)."""

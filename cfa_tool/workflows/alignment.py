@@ -48,6 +48,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.groups import reference_rule
+from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
 from cfa_tool.language.spec import ScaleSetting, Spec
@@ -605,7 +606,7 @@ class _Layout:
 def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str, *, reference_group: str | None = None,
           reference_mean: str | ReferenceMean = ReferenceMean.ZERO, flag_level: float = ALIGNMENT_FLAG_LEVEL,
           trials: int = ALIGNMENT_TRIALS, seed: int = 1, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
-          keep: tuple[str, ...] | list[str] = (), rename=None, missing: str | None = None,
+          keep: tuple[str, ...] | list[str] = (), rename: ColumnRenames = None, missing: str | None = None,
           max_iterations: int = 500) -> AlignmentResult:
     """Group factor means and variances under approximate invariance by alignment (Asparouhov & Muthén 2014),
     from the configural model fitted with every factor's mean 0 and variance 1 in every group.

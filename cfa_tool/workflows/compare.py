@@ -21,6 +21,7 @@ from cfa_tool.data.labels import label_notes
 from cfa_tool.data.matching import check_columns, check_declared_ranges, chosen_columns
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.odd_values import odd_values
+from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary, design_weights
 from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import EstimationError, NotIdentified, OptionError, estimation_of
@@ -102,9 +103,9 @@ class Comparison(Presentable):
 
 def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, group: str | None = None,
             reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
-            keep: tuple[str, ...] | list[str] = (), rename=None, ordinal: str | list[str] | None = None,
+            keep: tuple[str, ...] | list[str] = (), rename: ColumnRenames = None, ordinal: str | list[str] | None = None,
             ordinal_estimator: str | None = None, weights: str | None = None, cluster: str | None = None,
-            strata: str | None = None, weight_kind: str | None = None, **options) -> Comparison:
+            strata: str | None = None, weight_kind: str | None = None, **options: object) -> Comparison:
     """Fit every model to the same rows and test each nested pair.
 
     Rows with gaps are kept as ``fit`` keeps them: with missing answers every model is fitted by

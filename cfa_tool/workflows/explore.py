@@ -8,6 +8,7 @@ that the confirmation half played no part in choosing the model.
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from pathlib import Path
 
 from dataclasses import dataclass, field
@@ -18,6 +19,7 @@ import pandas as pd
 from cfa_tool.data.halves import draw_halves
 from cfa_tool.data.kept_rows import FINISHED_COLUMNS
 from cfa_tool.data.moments import stray_word_message
+from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.assessment.admissibility import sample_size_problems
 from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 from cfa_tool.errors import DataError, OptionError, printable
@@ -577,11 +579,14 @@ def _factor_choice(factors) -> int | None:
     return factors
 
 
-def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = RotationMethod.QUARTIMIN,
-            extraction: str | ExtractionMethod = ExtractionMethod.MAXIMUM_LIKELIHOOD, ordinal=None,
-            split: int | None = None, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None, missing_codes=(),
-            keep=(), rename=None, replications: int = 100, seed: int = 0, threshold: float = 0.30, target=None,
-            answers=None) -> ExploreResult:
+def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[str, ...] | None = None,
+            factors: int | str | None = None, rotation: str | RotationMethod = RotationMethod.QUARTIMIN,
+            extraction: str | ExtractionMethod = ExtractionMethod.MAXIMUM_LIKELIHOOD,
+            ordinal: str | list[str] | None = None, split: int | None = None, sheet: str | None = None,
+            names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
+            keep: tuple[str, ...] | list[str] = (), rename: ColumnRenames = None, replications: int = 100, seed: int = 0,
+            threshold: float = 0.30, target: np.ndarray | Sequence[Sequence[float]] | str | Path | None = None,
+            answers: str | Path | None = None) -> ExploreResult:
     """How many factors, an exploratory solution and a draft model file for ``items`` of ``data``.
 
     ``items``: column names, or text 'a, b, c' with 'q1..q9' for a numbered range, counted as a model file counts

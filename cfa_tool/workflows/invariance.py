@@ -12,6 +12,7 @@ practice, not tests.
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, replace
 from pathlib import Path
 
@@ -20,6 +21,7 @@ import pandas as pd
 
 from cfa_tool.data.answer_words import coding_json
 from cfa_tool.data.groups import reference_rule
+from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.options import own_keywords
 from cfa_tool.data.matching import chosen_columns
 from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_category_notes,
@@ -322,11 +324,11 @@ class InvarianceResult(Presentable):
 def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
                reference_group: str | None = None, partial: str = "none", alpha: float | None = None,
                sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
-               rename=None,
+               rename: ColumnRenames = None,
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None,
                decide_by: str | DecisionRule = DecisionRule.DIFFERENCE_TEST, weights: str | None = None,
                cluster: str | None = None, strata: str | None = None, weight_kind: str | None = None,
-               progress=None, **options) -> InvarianceResult:
+               progress: Callable[..., None] | None = None, **options: object) -> InvarianceResult:
     """Fit the invariance ladder; with ``partial='auto'`` free the likeliest culprits until each step holds.
     ``decide_by`` names how each step is judged (:class:`DecisionRule`).  A sampling design (``weights``,
     ``cluster``, ``strata``, ``weight_kind``, as for ``fit``) weights every step, whose difference tests are

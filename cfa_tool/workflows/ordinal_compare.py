@@ -12,9 +12,12 @@ Asparouhov & Muthén 2006).
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import replace
+from typing import TYPE_CHECKING
 
 import numpy as np
+import pandas as pd
 
 from cfa_tool.data.polychoric import ordinal_moments
 from cfa_tool.assessment.admissibility import ProblemKind, not_identified
@@ -24,9 +27,19 @@ from cfa_tool.method import DifferenceMethod
 from cfa_tool.pipeline.ordinal import assess_ordinal_groups, refuse_set_residual_variances, estimate_ordinal_groups, ordinal_difference
 from cfa_tool.workflows.nesting import NESTING_TOLERANCE, DifferenceTest, same_degrees_of_freedom
 
+if TYPE_CHECKING:
+    from cfa_tool.data.sample_design import DesignColumns
+    from cfa_tool.language.spec import Spec
+    from cfa_tool.method import Weighting
+    from cfa_tool.pipeline.continuous import FitOptions
+    from cfa_tool.pipeline.ordinal import OrdinalEstimation
+    from cfa_tool.pipeline.results import FitResult
 
-def fit_ordinal_models(specs, complete, source, group, reference_group, fit_options, ordinal_items, method,
-                       design=None, pairwise: bool = False):
+
+def fit_ordinal_models(specs: Sequence[Spec], complete: pd.DataFrame, source: str, group: str | None,
+                       reference_group: str | None, fit_options: FitOptions, ordinal_items: set[str],
+                       method: Weighting | str, design: DesignColumns | None = None,
+                       pairwise: bool = False) -> tuple[list[OrdinalEstimation], list[FitResult]]:
     """(estimations, results) of every model on the same rows (weighted, with design-based standard errors and
     tests, under a sampling ``design``: its DesignColumns, already checked); ``pairwise``: each statistic from
     the rows that answered its items (pairwise present rows), otherwise the rows are complete ones."""

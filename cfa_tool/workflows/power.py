@@ -17,6 +17,7 @@ from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
 from cfa_tool.errors import OptionError
+from cfa_tool.language.spec import Spec
 from cfa_tool.views import Presentable
 
 TESTS = {  # name: (eps0, eps_a), the conventions of MacCallum, Browne & Sugawara (1996)
@@ -75,7 +76,7 @@ def required_sample_size(df: int, rmsea_null: float, rmsea_alt: float, power: fl
     return hi
 
 
-def model_degrees_of_freedom(spec) -> tuple[int, int]:
+def model_degrees_of_freedom(spec: Spec) -> tuple[int, int]:
     """(degrees of freedom, indicators) of a model's covariance structure in one group:
     p(p + 1)/2 - q (Joreskog 1969).  With ordinal items a statement on a residual variance is an error at its line,
     as the ordinal fit would refuse it (:func:`cfa_tool.pipeline.ordinal.refuse_set_residual_variances`): a fixed
