@@ -9,7 +9,12 @@ Bollen-Stine (1992) p-value of the chi-square test resamples rows transformed
 so that the model holds exactly, Y = (X - m) S^-1/2 Sigma^1/2 + m, and counts
 the bootstrap chi-squares at least as large as the observed one.
 Replications that do not converge are counted and reported, never dropped
-silently.  Resamples are refitted together, in batches (pipeline.continuous.replicate_fits);
+silently.  Converged resamples whose solution is not admissible (a negative variance, an estimate held at a
+bound...) are counted, named and kept in the intervals, and a fit that is not admissible is bootstrapped with its
+problems first in every view: the interval of a negative error variance says whether zero lies within sampling
+error of it or a misspecified model is the likelier cause (Chen, Bollen, Paxton, Curran & Kirby 2001; Kolenikov &
+Bollen 2012), and intervals of the admissible resamples alone would condition the bootstrap distribution on
+admissibility, putting that interval above zero whatever the data say.  Resamples are refitted together, in batches (pipeline.continuous.replicate_fits);
 each resample's draw comes from its own seed, so the results do not depend on the batches or
 the worker processes.
 
