@@ -18,6 +18,14 @@ from cfa_tool.errors import ModelError
 from cfa_tool.reporting.paragraph import methods_paragraph
 
 ITEMS = "factor f: a1, a2, a3, a4\n"
+# each statement on a residual variance, the word the error quotes and the statement's column
+STATEMENTS = [
+    ("fix variance(a1) = 0.3", "fix", 5),
+    ("start variance(a1) = 0.3", "start", 7),
+    ("bound variance(a1) >= 0.1", "bound", 7),
+    ("equal variance(a1), variance(a2)", "equal", 7),
+    ("free variance(a2)", "free", 6),
+]
 
 
 def _answers(n: int = 400, groups: bool = False) -> pd.DataFrame:
@@ -30,13 +38,7 @@ def _answers(n: int = 400, groups: bool = False) -> pd.DataFrame:
     return frame
 
 
-@pytest.mark.parametrize("statement, word, column", [
-    ("fix variance(a1) = 0.3", "fix", 5),
-    ("start variance(a1) = 0.3", "start", 7),
-    ("bound variance(a1) >= 0.1", "bound", 7),
-    ("equal variance(a1), variance(a2)", "equal", 7),
-    ("free variance(a2)", "free", 6),
-])
+@pytest.mark.parametrize("statement, word, column", STATEMENTS)
 def test_a_statement_on_an_ordinal_items_residual_variance_is_an_error_at_its_line(statement, word, column):
     with pytest.raises(ModelError, match=rf"'{word} variance\(a\d\)': the residual variance of 'a\d' cannot be set "
                                          r"with ordinal items in one group: every latent response has variance 1 "
@@ -62,13 +64,7 @@ def test_compare_replicate_and_power_simulation_refuse_it_alike():
     assert caught.value.location.line == 4
 
 
-@pytest.mark.parametrize("statement, word, column", [
-    ("fix variance(a1) = 0.3", "fix", 5),
-    ("start variance(a1) = 0.3", "start", 7),
-    ("bound variance(a1) >= 0.1", "bound", 7),
-    ("equal variance(a1), variance(a2)", "equal", 7),
-    ("free variance(a2)", "free", 6),
-])
+@pytest.mark.parametrize("statement, word, column", STATEMENTS)
 @pytest.mark.parametrize("ordinal", ["ordinal a1, a2, a3, a4\n", 'answers "Low" = 1, "Mid" = 2, "High" = 3\n', ""])
 def test_simulate_refuses_it_as_the_fit_does(statement, word, column, ordinal):
     # simulate cut the latent response at its thresholds after standardizing it, so 'fix variance(a1) = 0.3' made a1's
