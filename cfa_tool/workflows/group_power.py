@@ -13,7 +13,7 @@ before it, are fitted to the population moments themselves.
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Mapping
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, replace
 from pathlib import Path
 from enum import Enum
@@ -313,7 +313,7 @@ def approximate_power(df: int, noncentrality: float, alpha: float) -> float:
     return float(dist.ncx2_sf(dist.chi2_ppf(1 - alpha, df), df, noncentrality)) if noncentrality > 0 else alpha
 
 
-def invariance_power(model: str | Path | Spec, group_sizes: str | Mapping[str, int | list[int]], replications: int = 500,
+def invariance_power(model: str | Path | Spec, group_sizes: str | Mapping[str, int | Sequence[int]], replications: int = 500,
                      seed: int = 1, alpha: float = 0.05, workers: int | None = None, scheduler: str | None = None,
                      progress: Callable[..., None] | None = None,
                      highest_level: str = DEFAULT_HIGHEST) -> InvariancePower:
