@@ -16,7 +16,8 @@ from cfa_tool.options import Option
 NAMED_COLUMNS = 8
 
 
-def missing_codes_note(source: str | Path, codes: Collection[float | str], read_as_none: list[tuple[str, int]], where: str = "") -> str:
+def missing_codes_note(source: str | Path, codes: Collection[float | str], read_as_none: list[tuple[str, int]],
+                       where: str = "") -> str:
     """What --missing-codes (``codes``) did in the data file ``source``: how many cells of which columns
     (``read_as_none``: (column, cells) pairs) were read as no answer, or that no cell holds any of the codes, as a
     mistyped code would leave it.  ``where``: which cells were looked at when not those of numbers ('of the items

@@ -14,7 +14,8 @@ bound...) are counted, named and kept in the intervals, and a fit that is not ad
 problems first in every view: the interval of a negative error variance says whether zero lies within sampling
 error of it or a misspecified model is the likelier cause (Chen, Bollen, Paxton, Curran & Kirby 2001; Kolenikov &
 Bollen 2012), and intervals of the admissible resamples alone would condition the bootstrap distribution on
-admissibility, putting that interval above zero whatever the data say.  Resamples are refitted together, in batches (pipeline.continuous.replicate_fits);
+admissibility, putting that interval above zero whatever the data say.
+Resamples are refitted together, in batches (pipeline.continuous.replicate_fits);
 each resample's draw comes from its own seed, so the results do not depend on the batches or
 the worker processes.
 

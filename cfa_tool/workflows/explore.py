@@ -584,8 +584,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
             extraction: str | ExtractionMethod = ExtractionMethod.MAXIMUM_LIKELIHOOD,
             ordinal: str | list[str] | None = None, split: int | None = None, sheet: str | None = None,
             names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
-            keep: tuple[str, ...] | list[str] = (), rename: ColumnRenames = None, replications: int = 100, seed: int = 0,
-            threshold: float = 0.30, target: np.ndarray | Sequence[Sequence[float]] | str | Path | None = None,
+            keep: tuple[str, ...] | list[str] = (), rename: ColumnRenames = None, replications: int = 100,
+            seed: int = 0, threshold: float = 0.30, target: np.ndarray | Sequence[Sequence[float]] | str | Path | None = None,
             answers: str | Path | None = None) -> ExploreResult:
     """How many factors, an exploratory solution and a draft model file for ``items`` of ``data``.
 

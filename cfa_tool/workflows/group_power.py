@@ -313,9 +313,9 @@ def approximate_power(df: int, noncentrality: float, alpha: float) -> float:
     return float(dist.ncx2_sf(dist.chi2_ppf(1 - alpha, df), df, noncentrality)) if noncentrality > 0 else alpha
 
 
-def invariance_power(model: str | Path | Spec, group_sizes: str | Mapping[str, int | Sequence[int]], replications: int = 500,
-                     seed: int = 1, alpha: float = 0.05, workers: int | None = None, scheduler: str | None = None,
-                     progress: Callable[..., None] | None = None,
+def invariance_power(model: str | Path | Spec, group_sizes: str | Mapping[str, int | Sequence[int]],
+                     replications: int = 500, seed: int = 1, alpha: float = 0.05, workers: int | None = None,
+                     scheduler: str | None = None, progress: Callable[..., None] | None = None,
                      highest_level: str = DEFAULT_HIGHEST) -> InvariancePower:
     """Monte Carlo power of the invariance ladder for groups of the given sizes (``group_sizes``: text such as
     'north=300,south=200', 'north=100/200,south=100/200' for several designs, or a dict), from the model's
