@@ -456,7 +456,8 @@ def _read_as_missing(data) -> str:
     if codes:
         clauses.append(f"the code{'s' if len(codes) > 1 else ''} {_list(codes)}, declared to mean no answer, "
                        f"{'were' if len(codes) > 1 else 'was'} treated as missing")
-    marked = non_answer_clause(getattr(data, "non_answers", ()), source=getattr(data, "source", None))
+    marked = non_answer_clause(getattr(data, "non_answers", ()), source=getattr(data, "source", None),
+                               model_items=tuple(getattr(data, "variables", ())))
     if marked:
         clauses.append(marked)
     return "; ".join(clauses)
