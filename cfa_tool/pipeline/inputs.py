@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import os
+from typing import TYPE_CHECKING
 from collections import Counter
 from contextlib import contextmanager
 from dataclasses import replace
@@ -12,6 +13,9 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
+
+if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports it where it makes one)
+    from cfa_tool.assessment.admissibility import Problem
 
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.groups import split_moments
@@ -1084,7 +1088,7 @@ def with_rows_read(result: FitResult, loaded: LoadedData) -> FitResult:
                                         without_group=len(loaded.frame) - result.data.rows_read))
 
 
-def without_group_problem(without: int, read: int, group: str | None) -> "Problem | None":
+def without_group_problem(without: int, read: int, group: str | None) -> Problem | None:
     """The caution on rows left out for having no value in the group column, first in every view as listwise
     deletion's is (the same share, :data:`~cfa_tool.pipeline.continuous.LISTWISE_WARNING_SHARE`: hostile tester
     s15 had 192 of 480 rows left out in a note); None for fewer."""
