@@ -411,8 +411,10 @@ def check_table_folder(option: str, folder: str | Path, files: dict[str, str],
 def write_table_folder(option: str, folder: str | Path, files: dict[str, str],
                        inputs: list[str | Path | None]) -> tuple[str, ...]:
     """Write ``files`` (name -> text) into ``folder``; nothing is written unless every file can be.  Returns the
-    names of the files an earlier run of this tool wrote there (changed since or not) that this run did not write: they
-    are left in place (never removed: this run did not create them), and the caller says so."""
+    names of the tables (CSV and LaTeX files) an earlier run of this tool wrote there (changed since or not) that this
+    run did not write: they are left in place (never removed: this run did not create them), and the caller says so.
+    Other files the tool wrote there (a fit's JSON, HTML or Word report: a folder of tables may be a project's
+    folder) are not tables of another report (hostile tester s15)."""
     path = Path(folder)
     check_table_folder(option, folder, files, inputs)
     try:
@@ -425,7 +427,8 @@ def write_table_folder(option: str, folder: str | Path, files: dict[str, str],
         _replace_atomically(path / name, data, option)
         written[name] = _checksum(data)
     earlier = _record(path, written, option)  # the record as written, read once
-    return tuple(sorted(name for name in earlier if name not in files and (path / name).is_file()))
+    return tuple(sorted(name for name in earlier if name not in files and Path(name).suffix.lower() in TABLE_SUFFIXES
+                        and (path / name).is_file()))
 
 
 def _checksum(data: bytes) -> str:

@@ -140,9 +140,9 @@ def few_category_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[str,
     return tuple(name for name in candidates if name not in constant)
 
 
-def few_category_note(values: np.ndarray, names: tuple[str, ...]) -> str | None:
-    """The note of a fit that treats items of few answer categories as continuous (None when none are)."""
-    few = few_category_items(values, names)
+def few_category_note(few: tuple[str, ...], names: tuple[str, ...]) -> str | None:
+    """The note of a fit that treats ``few`` (:func:`few_category_items` of the items ``names``) as continuous (None
+    when there are none)."""
     if not few:
         return None
     listed = ", ".join(few[:8]) + (f" and {len(few) - 8} more" if len(few) > 8 else "")

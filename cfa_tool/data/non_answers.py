@@ -386,19 +386,29 @@ def _brief(names: list[str], noun: str) -> str:
     return shown[0] if len(shown) == 1 else f"{', '.join(shown[:-1])} and {shown[-1]}"
 
 
-def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | None = None) -> str:
+def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | None = None,
+                      model_items: tuple[str, ...] = ()) -> str:
     """The values of the model's ``items`` (None: of every column in ``found``) that the file marks as no answer and
     that were read as missing, in a clause of a methods paragraph: each value (with its label) and the items holding
     it, briefly: values the data file marks as no answer were treated as missing (8 'refused' in q1, q2, q3 and 2
-    more items; 'don't know' in q4); '' when there are none.  ``source``: the data's source, whose words name a data
+    more items; 'don't know' in q4), or 'in all 20 items' when a value is in every one of more than a few
+    ``model_items`` (the model's items); '' when there are none.  ``source``: the data's source, whose words name a data
     frame as one ('the data frame holds')."""
     mine = [f for f in found if items is None or f.column in set(items)]
     if not mine:
         return ""
     columns: dict[str, list[str]] = {}
     for f in mine:
-        columns.setdefault(f.shown(), []).append(printable(f.column))
-    values = [f"{value} in {_brief(list(dict.fromkeys(names)), 'item')}" for value, names in columns.items()]
+        columns.setdefault(f.shown(), []).append(f.column)
+    every = set(model_items) if len(model_items) > BRIEF else None  # 'in all 20 items', not 'and 17 more'
+
+    def held_in(names: list[str]) -> str:
+        names = list(dict.fromkeys(names))
+        if every is not None and set(names) == every:
+            return f"all {len(names)} items"
+        return _brief([printable(n) for n in names], "item")
+
+    values = [f"{value} in {held_in(names)}" for value, names in columns.items()]
     shown = "; ".join(values[:BRIEF]) + (f"; and {_more(len(values) - BRIEF, 'value')}" if len(values) > BRIEF else "")
     if source == DATA_FRAME:
         return f"text cells of the data frame that say no answer were treated as missing ({shown})"

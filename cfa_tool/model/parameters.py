@@ -34,7 +34,7 @@ from typing import Callable
 import numpy as np
 
 from cfa_tool.suggest import close_names
-from cfa_tool.errors import ModelError, OptionError
+from cfa_tool.errors import ModelError, OptionError, printable
 from cfa_tool.options import Option
 from cfa_tool.language.checks import all_refs, exogenous_factors
 from cfa_tool.language.names import reference_text, written_name
@@ -527,8 +527,10 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         )
     for array in (start, lower, upper):
         array.setflags(write=False)  # tables are shared between fits of the same model
-    return ParameterTable(observed, latent, tuple(parameters), n_free, start, lower, upper, tuple(free_labels),
-                          group_labels, means, multi, reverse_keyed)
+    table = ParameterTable(observed, latent, tuple(parameters), n_free, start, lower, upper, tuple(free_labels),
+                           group_labels, means, multi, reverse_keyed)
+    fixed_values_possible(spec, table)  # no estimate can mend impossible fixed values: refused at their statement
+    return table
 
 
 def _start_values(spec: Spec, groups_of, free_index, multi: bool) -> dict[int, float]:
@@ -839,3 +841,168 @@ def marker_of(candidates: list[tuple], reverse_keyed: set[str]) -> tuple[tuple, 
     marker-variable scaling does (Bollen 1989, ch. 7)."""
     keyed = [k for k in candidates if k[-1][1] not in reverse_keyed]
     return (keyed[0], 1.0) if keyed else (candidates[0], -1.0)
+
+
+# The values a model file gives ('fix' statements, and 'start' statements where they describe a population): every
+# population covariance matrix is positive semi-definite, so its variances are at least 0, its correlations within
+# +/-1, and so is every principal submatrix (Horn & Johnson 2013, Observation 7.1.2).  Values that break this are
+# refused at their statements: by every fit for the fixed values (:func:`fixed_values_possible`), which no estimate
+# can change, and by simulate and the power and cutoff workflows for the population they draw from (fixed and start
+# values).
+
+def fixed_values_possible(spec: Spec, table: ParameterTable) -> None:
+    """An error at the statement when the model's fixed values alone make every group's covariance matrix impossible
+    (a fixed correlation beyond +/-1, fixed factor or residual correlations that cannot hold together): no estimate
+    can mend them, and a fit would fail to start or report the user's own value as a finding (hostile tester s15).
+    Without a fixed covariance nothing can be impossible here (negative fixed variances are refused by the
+    language's checks), so most models are not looked at."""
+    if not any(r.kind == "covariance" for s in spec.fixed for r in s.refs):
+        return
+    values = given_entries(table, starts=False)
+    for g in range(table.n_groups):
+        label = table.groups[g] if table.multigroup else None
+        given_values_possible(spec, table, values, g, label, starts=False)
+        impossible_fixed_values(table, spec.source, starts=False, group=g)
+
+
+def as_written(par) -> str:
+    """A parameter as a model file's 'fix' statement names it: variance(a2), covariance(f1, f2), loading(f1, a3)."""
+    word = {"factor_variance": "variance", "residual_variance": "variance", "factor_covariance": "covariance",
+            "residual_covariance": "covariance"}.get(par.kind, par.kind)
+    return reference_text(word, par.variables)
+
+
+def _correlation(value: float) -> str:
+    return f"{value:.2f}".replace("0.", ".", 1)
+
+
+def _values(how: str) -> str:
+    return "fixed values" if how == "fixed at" else "start values"
+
+
+def _settings_for(spec: Spec, label: str | None, starts: bool = True) -> dict[tuple, tuple]:
+    """The 'start' (unless not ``starts``) and 'fix' statements that set a variance or covariance of group ``label``
+    (None: a model of one group): (kind, variables) as the parameter table keys them -> (reference, value, how it was
+    given); a statement for the group overrides one for every group (and a 'fix' a 'start', as the parameter table
+    takes them)."""
+    latent = set(spec.factor_names)
+    found: dict[tuple, tuple] = {}
+    for how, settings in (("given the start value", spec.starts if starts else ()), ("fixed at", spec.fixed)):
+        for ref in sorted((r for s in settings for r in s.refs if r.kind in ("variance", "covariance")
+                           and r.group in (None, label)), key=lambda r: r.group is not None):
+            value = next(s.value for s in settings if ref in s.refs)
+            level = "factor" if ref.names[0] in latent else "residual"
+            names = ref.names if ref.kind == "covariance" else ref.names[:1]
+            found[(f"{level}_{ref.kind}", tuple(names))] = (ref, value, how)
+    return found
+
+
+def given_values_possible(spec: Spec, table: ParameterTable, values: np.ndarray, group: int = 0,
+                          label: str | None = None, starts: bool = True) -> None:
+    """An error at the 'start' or 'fix' statement (file, line and column, as a model error shows them) whose value
+    makes the population of group ``label`` (None: of a model of one group) impossible, with the parameter and the
+    value: a variance below zero, or a covariance larger than the product of the two standard deviations that
+    population has (a correlation beyond +/-1; Horn & Johnson 2013, Observation 7.1.2).  ``values``: every table
+    entry's value (StructuredModel.entry_values), of which group ``group``'s are read."""
+    entry = {(par.kind, par.variables): float(v) for par, v in zip(table.parameters, values) if par.group == group}
+    settings = _settings_for(spec, label, starts)
+    whose = "" if label is None else f" of group '{printable(label)}'"
+
+    def fail(ref, how: str, words: str) -> ModelError:
+        where = "" if label is None or ref.group is not None else f" (a value for every group, here group '{label}')"
+        return ModelError(f"the {_values(how)} make the population covariance matrix{whose} impossible: {ref}{where} "
+                          f"is {how} {words}", ref.location, spec.source_line(ref.location))
+
+    for (kind, names), (ref, value, how) in settings.items():
+        if kind.endswith("_variance") and value < 0:
+            raise fail(ref, how, f"{value:g}, and a variance cannot be negative")
+    for (kind, names), (ref, value, how) in settings.items():
+        if not kind.endswith("_covariance"):
+            continue
+        variance = kind.replace("covariance", "variance")
+        a, b = names
+        va, vb = entry.get((variance, (a,))), entry.get((variance, (b,)))
+        covariance = entry.get((kind, (a, b)), entry.get((kind, (b, a))))
+        if va is None or vb is None or covariance is None or not va >= 0 or not vb >= 0 or np.isnan(covariance):
+            continue  # a value not given yet (NaN), or a negative variance said above
+        bound = np.sqrt(va * vb)
+        if abs(covariance) > bound * (1 + 1e-9):
+            correlation = f", a correlation of {covariance / bound:.2f}" if bound > 0 else ""
+            raise fail(ref, how, f"{value:g}, beyond what the variances of {a} ({va:.3g}) and {b} ({vb:.3g}) allow"
+                                 f"{correlation}")
+
+
+def given_entries(table: ParameterTable, starts: bool = True) -> np.ndarray:
+    """Each table entry's value as the model file gives it ('fix' and, unless not ``starts``, 'start' statements, the
+    values that set the factors' scales), NaN where the file gives none."""
+    values = np.full(len(table.parameters), np.nan)
+    for i, par in enumerate(table.parameters):
+        if not par.free:
+            values[i] = par.offset
+        elif starts and len(par.terms) == 1:
+            index, coefficient = par.terms[0]
+            values[i] = par.offset + coefficient * table.start[index]
+    return values
+
+
+def impossible_fixed_values(table: ParameterTable, source: str, starts: bool = True, group: int = 0) -> None:
+    """An error (the model file is the bad input) when the values the model file gives ('fix' and 'start'
+    statements, and the values that set each factor's scale) cannot belong to any population: a variance below
+    zero, or covariances whose correlations (with both variances given too) lie beyond +/-1 or cannot hold together
+    (their correlation matrix is not positive definite).  A covariance matrix is positive semi-definite, so each
+    of its variances is at least 0, each correlation within +/-1, and so is every principal submatrix (Horn &
+    Johnson 2013, Observation 7.1.2)."""
+    given: dict[tuple, tuple[float, str, object]] = {}  # (kind, variables) -> (value, how it was given, parameter)
+    for par in table.parameters:
+        if par.group != group:
+            continue
+        if not par.free:
+            given[(par.kind, par.variables)] = (par.offset, "fixed at", par)
+        elif starts and len(par.terms) == 1 and not np.isnan(table.start[par.terms[0][0]]):  # a 'start' statement
+            index, coefficient = par.terms[0]
+            value = par.offset + coefficient * table.start[index]
+            given[(par.kind, par.variables)] = (value, "given the start value", par)
+    for value, how, par in given.values():
+        if par.kind in ("factor_variance", "residual_variance") and value < 0:
+            raise ModelError(f"{source}: the {_values(how)} make the population covariance matrix impossible: "
+                             f"{as_written(par)} is {how} {value:g}, and a variance cannot be negative")
+    for kind, names in (("factor", table.latent), ("residual", table.observed)):
+        variance = {x: given[(f"{kind}_variance", (x,))][0] for x in names if (f"{kind}_variance", (x,)) in given}
+        pairs = {}
+        for (k, variables), (value, how, par) in given.items():
+            a, b = variables[0], variables[-1]
+            if k == f"{kind}_covariance" and a in variance and b in variance:
+                pairs[frozenset((a, b))] = (value, how, par)
+        for value, how, par in pairs.values():
+            a, b = par.variables
+            if abs(value) > np.sqrt(variance[a] * variance[b]) * (1 + 1e-9):  # zero variances: a zero covariance only
+                raise ModelError(f"{source}: the {_values(how)} make the population covariance matrix impossible: "
+                                 f"{as_written(par)} is {how} {value:g}, beyond what the variances of {a} and {b} "
+                                 f"allow (a correlation beyond +/-1)")
+        # the largest set of these variables whose covariances are all given: it must be positive definite
+        members = sorted({x for pair in pairs for x in pair}, key=list(names).index)
+        while len(members) > 2:
+            lacking = [sum(frozenset((x, y)) not in pairs for y in members if y != x) for x in members]
+            if not any(lacking):
+                break
+            members.pop(int(np.argmax(lacking)))
+        if len(members) < 3:
+            continue
+        sd = np.sqrt([variance[x] for x in members])
+        corr = np.eye(len(members))
+        for i in range(len(members)):
+            for j in range(i):
+                corr[i, j] = corr[j, i] = pairs[frozenset((members[i], members[j]))][0] / (sd[i] * sd[j])
+        # a population to draw rows from needs a positive definite matrix; a fit's fixed values only need one that
+        # some population has: correlations fixed at 1 (factors merged, as a test of their distinctness does) are a
+        # singular matrix, not an impossible one
+        smallest = np.linalg.eigvalsh(corr)[0]
+        if smallest <= 0 if starts else smallest < -1e-9:
+            values = [f"{_correlation(corr[i, j])} ({members[i]} with {members[j]})"  # each pair with its value
+                      for i in range(len(members)) for j in range(i + 1, len(members))]
+            what = "factor correlations" if kind == "factor" else "residual correlations"
+            hows = {pairs[frozenset((members[i], members[j]))][1] for i in range(len(members)) for j in range(i)}
+            how = "fixed at" if hows == {"fixed at"} else "given as"
+            raise ModelError(f"{source}: the {what} {how} {', '.join(values[:-1])} and {values[-1]} "
+                             f"cannot hold together (their matrix is not positive {'' if starts else 'semi-'}definite), so "
+                             f"no population has them; change the values")

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import os
+from typing import TYPE_CHECKING
 from collections import Counter
 from contextlib import contextmanager
 from dataclasses import replace
@@ -13,6 +14,9 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports it where it makes one)
+    from cfa_tool.assessment.admissibility import Problem
+
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.groups import split_moments
 from cfa_tool.data.kept_rows import (RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
@@ -22,7 +26,7 @@ from cfa_tool.data.matching import (answer_range_notes, check_codes_off_scales, 
                                     chosen_columns)
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.non_answers import beyond_scale, non_answer_caution
-from cfa_tool.data.descriptives import few_category_note
+from cfa_tool.data.descriptives import few_category_items, few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.halves import RandomHalf, half_kept
@@ -372,7 +376,7 @@ def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None 
             refuse_shared_clusters(frame, design, group, source, "full-information ML (rows with missing answers; "
                                    "--incomplete-rows listwise keeps complete rows only)")
         groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing, weights)
-        notes = _no_group_notes(no_group, group) + label_notes(frame, group)
+        notes = _no_group_notes(no_group, group, len(frame)) + label_notes(frame, group)
     if design is not None:
         groups = apply_design(groups, frame, group, spec.observed_names, source, design, missing)
     return groups, notes
@@ -384,8 +388,10 @@ def _check_group_column(spec: Spec, group: str) -> None:
         raise OptionError(f"'{group}' is an indicator in the model and cannot also be the group column")
 
 
-def _no_group_notes(no_group: int, group: str) -> list[str]:
-    if not no_group:
+def _no_group_notes(no_group: int, group: str, read: int) -> list[str]:
+    """The note on the ``no_group`` of ``read`` rows left out for having no value in the group column, unless
+    :func:`without_group_problem` cautions about them (first in every view: the caution says it)."""
+    if not no_group or without_group_problem(no_group, read, group) is not None:
         return []
     return [f"{no_group} {'row has' if no_group == 1 else 'rows have'} no value in the group column '{group}' and "
             f"{'was' if no_group == 1 else 'were'} left out"]
@@ -727,6 +733,9 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})
     found += odd_value_problems(loaded, group, design, helpers, listwise) + few_answers_problems(names, coverage or {}, n_obs, loaded,
                                                                               group)
+    if group is not None and group in loaded.frame.columns:  # rows without a group label: the rule of _labelled
+        without = without_group_problem(int(loaded.frame[group].isna().sum()), len(loaded.frame), group)
+        found += (without,) if without is not None else ()
     return tuple(dict.fromkeys(found))  # each once
 
 
@@ -1079,6 +1088,22 @@ def with_rows_read(result: FitResult, loaded: LoadedData) -> FitResult:
                                         without_group=len(loaded.frame) - result.data.rows_read))
 
 
+def without_group_problem(without: int, read: int, group: str | None) -> Problem | None:
+    """The caution on rows left out for having no value in the group column, first in every view as listwise
+    deletion's is (the same share, :data:`~cfa_tool.pipeline.continuous.LISTWISE_WARNING_SHARE`: hostile tester
+    s15 had 192 of 480 rows left out in a note); None for fewer."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.pipeline.continuous import LISTWISE_WARNING_SHARE
+
+    if group is None or without <= LISTWISE_WARNING_SHARE * read:
+        return None
+    return Problem(ProblemKind.ROWS_LEFT_OUT, (), float(without),
+                   f"{without} of {read} rows ({100 * without / read:.0f}%) have no value in the group column "
+                   f"'{group}' and were left out, and the rows left out may differ from those kept.",
+                   "find out why they have no group: give rows that belong to a group its label, and say in the "
+                   "report why the others were left out.")
+
+
 def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
              design: DesignColumns | None = None, ids: pd.Series | None = None) -> FitResult:
     """The fit of rows of raw data (after reading, filters and model checks), its data summary naming the
@@ -1139,7 +1164,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
         helpers_can_apply(fit_options, frame, spec.observed_names, group, values)
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group, values)
     notes = missing_notes + notes
-    notes += few_category_notes(frame, spec.observed_names, values)
+    few, few_note = few_categories(frame, spec.observed_names, values)
+    notes += few_note
     if design is not None:
         fit_options = design_test(fit_options, design)
     # EM on thousands of rows: one thread beats several on small p; the moments and the fit in one context (the
@@ -1167,7 +1193,7 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     return replace(result, warnings=tuple(notes) + result.warnings,  # with _described's description: one replace
                    missing_data=summary if summary is not None and (summary["n_patterns"] > 1
                                                                     or not all(summary["coverage"].values())) else None,
-                   labels=_file_labels(loaded, spec), data=_with_coding(result.data, spec),
+                   labels=_file_labels(loaded, spec), data=replace(_with_coding(result.data, spec), few_categories=few),
                    description=_description(spec, group_labels, None if group_labels is None else ()))
 
 
@@ -1539,14 +1565,22 @@ def continuous_only(spec: Spec, command: str) -> Spec:
     return spec
 
 
-def few_category_notes(frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarray | None = None) -> list[str]:
-    """For a command that treats ``names`` as continuous: the note on items of few answer categories
+def few_categories(frame: pd.DataFrame, names: tuple[str, ...],
+                   values: np.ndarray | None = None) -> tuple[tuple[str, ...], list[str]]:
+    """For a command that treats ``names`` as continuous: the items of few answer categories
+    (data.descriptives.few_category_items), which the methods paragraph names, and the note on them
     (data.descriptives.few_category_note), empty when there are none (``values``: the items taken out already)."""
     values = item_values(frame, names) if values is None else values
     if values is None:  # not plain numbers: the reading of the items names what is wrong
-        return []
-    note = few_category_note(values, names)
-    return [note] if note else []
+        return (), []
+    few = few_category_items(values, names)
+    note = few_category_note(few, names)
+    return few, [note] if note else []
+
+
+def few_category_notes(frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarray | None = None) -> list[str]:
+    """The note of :func:`few_categories` alone."""
+    return few_categories(frame, names, values)[1]
 
 
 def refit_missing_handling(frame: pd.DataFrame, names: tuple[str, ...], missing) -> tuple[MissingData, list[str]]:
@@ -1602,7 +1636,7 @@ def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, ref
     groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group, pairwise,
                                              design, continuous)
     groups = [(label, ordinal_design_covariance(m)) for label, m in groups]
-    return groups, _no_group_notes(no_group, group) + label_notes(frame, group)
+    return groups, _no_group_notes(no_group, group, len(frame)) + label_notes(frame, group)
 
 
 def ordinal_estimator_option(method: str | None, ordinal_items, declared_by: str | None = None) -> str:
@@ -1784,7 +1818,7 @@ def _rows_answering(parts: list[tuple[str | None, np.ndarray]], without: int, fr
     counted = [(label, SimpleNamespace(n_obs=len(values))) for label, values in parts]
     if group is None:
         return counted, []
-    return counted, _no_group_notes(without, group) + label_notes(frame, group)
+    return counted, _no_group_notes(without, group, len(frame)) + label_notes(frame, group)
 
 
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,

@@ -242,6 +242,9 @@ class DataSummary:
     # with missing-data helpers: the rows analysed (in n_obs) that answer no item but a helper, which enter the
     # helpers' part of the joint likelihood (estimation.auxiliary)
     helpers_only: int = 0
+    # items of at most a few answer categories analysed as continuous (data.descriptives.few_category_items): the
+    # methods paragraph says so
+    few_categories: tuple[str, ...] = ()
 
     def __post_init__(self) -> None:
         """No count of rows is negative and none exceeds the rows read (errors.check_rows_counted): a report of
@@ -296,6 +299,8 @@ class DataSummary:
             out["rows_without_group"] = self.without_group
         if self.helpers_only:
             out["rows_answering_only_helpers"] = self.helpers_only
+        if self.few_categories:
+            out["few_categories_analysed_as_continuous"] = list(self.few_categories)
         if self.answer_coding:
             from cfa_tool.data.answer_words import coding_json
 

@@ -23,6 +23,7 @@ from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_fac
 from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.non_answers import non_answer_clause
 from cfa_tool.data.answer_words import coding_described
+from cfa_tool.data.descriptives import FEW_CATEGORIES
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.names import written_name
 from cfa_tool.language.spec import equality_words
@@ -456,7 +457,8 @@ def _read_as_missing(data) -> str:
     if codes:
         clauses.append(f"the code{'s' if len(codes) > 1 else ''} {_list(codes)}, declared to mean no answer, "
                        f"{'were' if len(codes) > 1 else 'was'} treated as missing")
-    marked = non_answer_clause(getattr(data, "non_answers", ()), source=getattr(data, "source", None))
+    marked = non_answer_clause(getattr(data, "non_answers", ()), source=getattr(data, "source", None),
+                               model_items=tuple(getattr(data, "variables", ())))
     if marked:
         clauses.append(marked)
     return "; ".join(clauses)
@@ -630,6 +632,25 @@ def _without_group_clause(count: int, read: int, column: str | None) -> str:
     where = f" ({_name(column)})" if column else ""
     return (f"; {count} of {read} row{'s' if read != 1 else ''} had no value in the group column{where} and "
             f"{'was' if count == 1 else 'were'} left out")
+def few_categories_sentence(results) -> str:
+    """That items of at most FEW_CATEGORIES answer categories were analysed as continuous (the fit's note says so;
+    the methods text must too, since it describes the model fitted: new-user trial s15), with the preference for
+    ordered categories (Rhemtulla, Brosseau-Liard & Savalei 2012), over the items of ``results`` (the fits of one
+    text: a fit, the models compared, the steps of a ladder); empty when there are none."""
+    items = tuple(dict.fromkeys(x for r in results for x in r.data.variables))
+    found = {x for r in results for x in getattr(r.data, "few_categories", ())}
+    few = tuple(x for x in items if x in found)
+    if not few:
+        return ""
+    every = len(few) == len(items)
+    which = (f"all {len(few)} items" if every and len(few) > 2 else "both items" if every and len(few) == 2
+             else f"the item {_name(few[0])}" if len(few) == 1 else f"{len(few)} of the {len(items)} items "
+             f"({_names(few)})")
+    return (f"The answers to {which} had at most {WORDS[FEW_CATEGORIES]} categories and were analysed as continuous; "
+            f"with so few categories, analysing them as ordered categories is usually preferred (Rhemtulla, "
+            f"Brosseau-Liard, & Savalei, 2012).")
+
+
 def answer_coding_sentence(data) -> str:
     """How answers recorded as words were coded (the model's 'answers' statements), e.g. 'Answers recorded as words
     were coded 1 (Strongly disagree) to 5 (Strongly agree).', naming the items when a statement coded only some of
@@ -946,6 +967,9 @@ def methods_paragraph(result) -> str:
     matrix = _matrix_sentence(result)
     if matrix:  # right after the sentence naming the estimation and N
         parts.insert(1, matrix)
+    few = few_categories_sentence([result])
+    if few:
+        parts.insert(1, few)
     coding = answer_coding_sentence(result.data)
     if coding:
         parts.insert(1, coding)
@@ -1130,6 +1154,9 @@ def comparison_paragraph(comparison) -> str:
     coding = answer_coding_sentence(first.data)  # the models read the answers one way (workflows.compare)
     if coding:
         parts.append(coding)
+    few = few_categories_sentence(results)
+    if few:
+        parts.append(few)
     renamed = renamed_sentence(first.data)  # the models read one file
     if renamed:
         parts.append(renamed)
@@ -1336,6 +1363,9 @@ def invariance_paragraph(result, levels) -> str:
     coding = answer_coding_sentence(first.data)
     if coding:
         parts.append(coding)
+    few = few_categories_sentence([first])  # every step fits the same items
+    if few:
+        parts.append(few)
     renamed = renamed_sentence(first.data)
     if renamed:
         parts.append(renamed)

@@ -47,6 +47,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.assessment.admissibility import refuse_inadmissible_fit
 from cfa_tool.data.groups import reference_rule
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool import options as check
@@ -678,6 +679,11 @@ def _align(spec: Spec, frame: pd.DataFrame, source: str, group: str, reference_g
                                       max_iterations))
     trust = None
     if trials:
+        # the check draws samples from the aligned solution: an impossible one is no population (the rule of cutoffs,
+        # simulate and power-simulation, in the same words; hostile tester s15)
+        refuse_inadmissible_fit(configural.problems, f"{spec.source} fitted to {source}",
+                                "the Monte Carlo check cannot draw samples from it",
+                                remedy=f"run the check, or leave the check out ({check.option_in_both('--trials 0', 'trials=0')})")
         trust = trust_check(spec, est, layout, sizes.astype(int), variant, factors, trials, seed, max_iterations)
     if len(labels) == 2:
         notes.append("alignment is made for many groups; with two groups, the invariance command tests scalar "

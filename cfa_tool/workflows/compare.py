@@ -8,7 +8,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import (_described, _no_group_notes, choose_missing_handling, design_test, few_category_notes, load_spec, make_options, moments_for,
+from cfa_tool.pipeline.inputs import (_described, _no_group_notes, choose_missing_handling, design_test, few_categories, load_spec, make_options, moments_for,
                                       missing_codes_option, of_summary_statistics,
                                       data_problems, odd_values_named, reference_group_applies, reference_note,
                                       with_missing_reading,
@@ -166,12 +166,13 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         has_group = frame[group].notna().to_numpy()
         without_group = int((~has_group).sum())
         frame, at = frame.loc[has_group], at[has_group]
-        notes = list(notes) + _no_group_notes(without_group, group)
+        notes = list(notes) + _no_group_notes(without_group, group, len(has_group))
     # values that look like no answers in any model's items, among the rows compared: first in the report, and
     # named first when a fit fails
     loaded = replace(loaded, odd_values=odd_values(frame, used, row_numbers(frame)))
     with odd_values_named(loaded):
         pairwise = False
+        few: tuple[str, ...] = ()  # items of few answer categories analysed as continuous
         if ordinal_items:
             if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test is FitTest.YUAN_BENTLER:
                 raise OptionError("ordinal items are compared on every answer (pairwise present rows, as fit uses them) or "
@@ -180,7 +181,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             pairwise = fit_options.missing is not MissingData.LISTWISE
         else:
             fit_options, missing_notes = choose_missing_handling(fit_options, frame, tuple(used), None)
-            notes = list(missing_notes) + few_category_notes(frame, tuple(used)) + list(notes)
+            few, few_note = few_categories(frame, tuple(used))
+            notes = list(missing_notes) + few_note + list(notes)
         if fit_options.missing is MissingData.FULL_INFORMATION or pairwise:  # the rows every model can use: some answers
             answers = [frame[list(spec.observed_names)].notna().to_numpy().any(axis=1) for spec in specs]
             kept = np.logical_and.reduce(answers)
@@ -216,6 +218,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                     result = unestimated(spec, groups, fit_options, group, failure)
             result = with_missing_reading(_described(result, spec, tuple(label for label, _ in groups)
                                                      if group is not None else None), loaded, missing_codes)
+            mine = tuple(x for x in few if x in spec.observed_names)  # the methods text names them
+            result = replace(result, data=replace(result.data, few_categories=mine)) if mine else result
             results.append(with_design(result, design_summary(complete, design, [m for _, m in groups]))
                            if design is not None else result)
         reference_group_applies(results, reference_group)

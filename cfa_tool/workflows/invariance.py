@@ -24,7 +24,7 @@ from cfa_tool.data.groups import reference_rule
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.options import own_keywords
 from cfa_tool.data.matching import chosen_columns
-from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_category_notes,
+from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_categories,
                                       make_options, moments_for, data_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
                                       with_design_weights, with_missing_reading, with_rows_read)
@@ -387,6 +387,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                               f"({check.Option.DECIDE_BY.given('difference-test')})")
         groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise, design)
         notes = list(read_notes) + list(notes)
+        few: tuple[str, ...] = ()  # items of few answer categories analysed as continuous: none here
         ladder = OrdinalLadder(ordinal_estimator,
                                design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
         from cfa_tool.pipeline.ordinal import threshold_counts
@@ -399,7 +400,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         gaps = (fit_options.missing is MissingData.FULL_INFORMATION
                 and bool(frame[list(spec.observed_names)].isna().to_numpy().any()))
         groups, notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design=design)
-        notes = list(missing_notes) + few_category_notes(frame, spec.observed_names) + list(read_notes) + list(notes)
+        few, few_note = few_categories(frame, spec.observed_names)
+        notes = list(missing_notes) + few_note + list(read_notes) + list(notes)
         ladder = NormalLadder(design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
     labels = tuple(label for label, _ in groups)
     reference = reference_rule(frame, group, reference_group)  # the rule moments_for followed (data.groups)
@@ -489,6 +491,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         srmr_change = (result.fit.srmr - previous[1].fit.srmr) if previous is not None else None
         # the description of exactly the model fitted at this step, for the methods paragraph
         result = _described(result, level_spec, labels, ordinal_items)
+        if few:  # the methods text names them
+            result = replace(result, data=replace(result.data, few_categories=few))
         steps.append(InvarianceStep(level, result, test, holds, culprits, conditional, full[0], full[1], full[2],
                                     tuple(freed_here), stopped if partial != "none" and kinds else "", srmr_change,
                                     tuple(r for r in spec.noninvariant if _exempts_a_class_of(r, classes))))

@@ -29,9 +29,9 @@ from cfa_tool.numerics import distributions as dist
 from cfa_tool import options as check
 from cfa_tool.errors import ModelError, OptionError, printable
 from cfa_tool.language.spec import Spec
-from cfa_tool.language.names import reference_text
 from cfa_tool.model.implied import ModelMatrices, StructuredModel
-from cfa_tool.model.parameters import ParameterTable, build_parameter_table
+from cfa_tool.model.parameters import (ParameterTable, as_written, given_entries, build_parameter_table,
+                                      given_values_possible, impossible_fixed_values)
 from cfa_tool.views import Presentable
 
 #: Defaults on the standardized metric
@@ -303,144 +303,6 @@ def _fitted_means(model: StructuredModel, theta: np.ndarray, saved, payload: dic
     return means, ItemMeans.SAMPLE_MEANS
 
 
-def _as_written(par) -> str:
-    """A parameter as a model file's 'fix' statement names it: variance(a2), covariance(f1, f2), loading(f1, a3)."""
-    word = {"factor_variance": "variance", "residual_variance": "variance", "factor_covariance": "covariance",
-            "residual_covariance": "covariance"}.get(par.kind, par.kind)
-    return reference_text(word, par.variables)
-
-
-def _correlation(value: float) -> str:
-    return f"{value:.2f}".replace("0.", ".", 1)
-
-
-def _values(how: str) -> str:
-    return "fixed values" if how == "fixed at" else "start values"
-
-
-def _settings_for(spec: Spec, label: str | None) -> dict[tuple, tuple]:
-    """The 'start' and 'fix' statements that set a variance or covariance of group ``label`` (None: a model of one
-    group): (kind, variables) as the parameter table keys them -> (reference, value, how it was given); a statement
-    for the group overrides one for every group (and a 'fix' a 'start', as the parameter table takes them)."""
-    latent = set(spec.factor_names)
-    found: dict[tuple, tuple] = {}
-    for how, settings in (("given the start value", spec.starts), ("fixed at", spec.fixed)):
-        for ref in sorted((r for s in settings for r in s.refs if r.kind in ("variance", "covariance")
-                           and r.group in (None, label)), key=lambda r: r.group is not None):
-            value = next(s.value for s in settings if ref in s.refs)
-            level = "factor" if ref.names[0] in latent else "residual"
-            names = ref.names if ref.kind == "covariance" else ref.names[:1]
-            found[(f"{level}_{ref.kind}", tuple(names))] = (ref, value, how)
-    return found
-
-
-def given_values_possible(spec: Spec, table: ParameterTable, values: np.ndarray, group: int = 0,
-                          label: str | None = None) -> None:
-    """An error at the 'start' or 'fix' statement (file, line and column, as a model error shows them) whose value
-    makes the population of group ``label`` (None: of a model of one group) impossible, with the parameter and the
-    value: a variance below zero, or a covariance larger than the product of the two standard deviations that
-    population has (a correlation beyond +/-1; Horn & Johnson 2013, Observation 7.1.2).  ``values``: every table
-    entry's value (StructuredModel.entry_values), of which group ``group``'s are read."""
-    entry = {(par.kind, par.variables): float(v) for par, v in zip(table.parameters, values) if par.group == group}
-    settings = _settings_for(spec, label)
-    whose = "" if label is None else f" of group '{printable(label)}'"
-
-    def fail(ref, how: str, words: str) -> ModelError:
-        where = "" if label is None or ref.group is not None else f" (a value for every group, here group '{label}')"
-        return ModelError(f"the {_values(how)} make the population covariance matrix{whose} impossible: {ref}{where} "
-                          f"is {how} {words}", ref.location, spec.source_line(ref.location))
-
-    for (kind, names), (ref, value, how) in settings.items():
-        if kind.endswith("_variance") and value < 0:
-            raise fail(ref, how, f"{value:g}, and a variance cannot be negative")
-    for (kind, names), (ref, value, how) in settings.items():
-        if not kind.endswith("_covariance"):
-            continue
-        variance = kind.replace("covariance", "variance")
-        a, b = names
-        va, vb = entry.get((variance, (a,))), entry.get((variance, (b,)))
-        covariance = entry.get((kind, (a, b)), entry.get((kind, (b, a))))
-        if va is None or vb is None or covariance is None or not va >= 0 or not vb >= 0 or np.isnan(covariance):
-            continue  # a value not given yet (NaN), or a negative variance said above
-        bound = np.sqrt(va * vb)
-        if abs(covariance) > bound * (1 + 1e-9):
-            correlation = f", a correlation of {covariance / bound:.2f}" if bound > 0 else ""
-            raise fail(ref, how, f"{value:g}, beyond what the variances of {a} ({va:.3g}) and {b} ({vb:.3g}) allow"
-                                 f"{correlation}")
-
-
-def _given_entries(table: ParameterTable) -> np.ndarray:
-    """Each table entry's value as the model file gives it ('fix' and 'start' statements, the values that set the
-    factors' scales), NaN where the file gives none."""
-    values = np.full(len(table.parameters), np.nan)
-    for i, par in enumerate(table.parameters):
-        if not par.free:
-            values[i] = par.offset
-        elif len(par.terms) == 1:
-            index, coefficient = par.terms[0]
-            values[i] = par.offset + coefficient * table.start[index]
-    return values
-
-
-def impossible_fixed_values(table: ParameterTable, source: str) -> None:
-    """An error (the model file is the bad input) when the values the model file gives ('fix' and 'start'
-    statements, and the values that set each factor's scale) cannot belong to any population: a variance below
-    zero, or covariances whose correlations (with both variances given too) lie beyond +/-1 or cannot hold together
-    (their correlation matrix is not positive definite).  A covariance matrix is positive semi-definite, so each
-    of its variances is at least 0, each correlation within +/-1, and so is every principal submatrix (Horn &
-    Johnson 2013, Observation 7.1.2)."""
-    given: dict[tuple, tuple[float, str, object]] = {}  # (kind, variables) -> (value, how it was given, parameter)
-    for par in table.parameters:
-        if par.group != 0:
-            continue
-        if not par.free:
-            given[(par.kind, par.variables)] = (par.offset, "fixed at", par)
-        elif len(par.terms) == 1 and not np.isnan(table.start[par.terms[0][0]]):  # a 'start' statement
-            index, coefficient = par.terms[0]
-            value = par.offset + coefficient * table.start[index]
-            given[(par.kind, par.variables)] = (value, "given the start value", par)
-    for value, how, par in given.values():
-        if par.kind in ("factor_variance", "residual_variance") and value < 0:
-            raise ModelError(f"{source}: the {_values(how)} make the population covariance matrix impossible: "
-                             f"{_as_written(par)} is {how} {value:g}, and a variance cannot be negative")
-    for kind, names in (("factor", table.latent), ("residual", table.observed)):
-        variance = {x: given[(f"{kind}_variance", (x,))][0] for x in names if (f"{kind}_variance", (x,)) in given}
-        pairs = {}
-        for (k, variables), (value, how, par) in given.items():
-            a, b = variables[0], variables[-1]
-            if k == f"{kind}_covariance" and a in variance and b in variance:
-                pairs[frozenset((a, b))] = (value, how, par)
-        for value, how, par in pairs.values():
-            a, b = par.variables
-            if variance[a] == 0 or variance[b] == 0 or abs(value) > np.sqrt(variance[a] * variance[b]):
-                raise ModelError(f"{source}: the {_values(how)} make the population covariance matrix impossible: "
-                                 f"{_as_written(par)} is {how} {value:g}, beyond what the variances of {a} and {b} "
-                                 f"allow (a correlation beyond +/-1)")
-        # the largest set of these variables whose covariances are all given: it must be positive definite
-        members = sorted({x for pair in pairs for x in pair}, key=list(names).index)
-        while len(members) > 2:
-            lacking = [sum(frozenset((x, y)) not in pairs for y in members if y != x) for x in members]
-            if not any(lacking):
-                break
-            members.pop(int(np.argmax(lacking)))
-        if len(members) < 3:
-            continue
-        sd = np.sqrt([variance[x] for x in members])
-        corr = np.eye(len(members))
-        for i in range(len(members)):
-            for j in range(i):
-                corr[i, j] = corr[j, i] = pairs[frozenset((members[i], members[j]))][0] / (sd[i] * sd[j])
-        if np.linalg.eigvalsh(corr)[0] <= 0:
-            values = [f"{_correlation(corr[i, j])} ({members[i]} with {members[j]})"  # each pair with its value
-                      for i in range(len(members)) for j in range(i + 1, len(members))]
-            what = "factor correlations" if kind == "factor" else "residual correlations"
-            hows = {pairs[frozenset((members[i], members[j]))][1] for i in range(len(members)) for j in range(i)}
-            how = "fixed at" if hows == {"fixed at"} else "given as"
-            raise ModelError(f"{source}: the {what} {how} {', '.join(values[:-1])} and {values[-1]} "
-                             f"cannot hold together (their matrix is not positive definite), so "
-                             f"no population has them; change the values")
-
-
 def population_from_spec(spec: Spec, fitted=None) -> Population:
     """The population of ``spec``: its 'start' and 'fix' values with standardized defaults beside them, or,
     with ``fitted`` (a fit result, its JSON dict or the JSON file), the estimates of that earlier fit."""
@@ -452,7 +314,7 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
     one_group_only(spec, "the simulation draws rows of one group")
     table = build_parameter_table(spec)
     model = StructuredModel(table)
-    given_values_possible(spec, table, _given_entries(table))  # at their statements, before any default
+    given_values_possible(spec, table, given_entries(table))  # at their statements, before any default
     impossible_fixed_values(table, spec.source)
     given = table.start.copy()
     kind_of: dict[int, str] = {}
@@ -464,7 +326,7 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
     moments = SampleMoments(table.observed, target, np.zeros(table.p), n, n, 0, "<population>")
     est = estimate(spec, [(None, moments)], FitOptions(diagnostics=False, modification_indices=False))
     if not est.converged:
-        written = [f"{_as_written(par)} = {par.offset:g}" for par in table.parameters
+        written = [f"{as_written(par)} = {par.offset:g}" for par in table.parameters
                    if par.group == 0 and not par.free and par.origin == "user"]
         if written:  # values the file gives that no population near the standardized defaults can hold
             raise ModelError(f"{spec.source}: no population near the standardized defaults (loadings .7, factor "

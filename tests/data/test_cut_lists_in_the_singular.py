@@ -17,3 +17,12 @@ def test_one_more_item_in_the_singular():
     assert f"q{SHOWN - 1} 1 and 2 more items). To analyse" in note
     assert non_answer_clause(_found(BRIEF + 1)).endswith("q2 and 1 more item)")
     assert non_answer_clause(_found(BRIEF + 4)).endswith("q2 and 4 more items)")
+
+
+def test_a_value_in_every_item_is_said_so():
+    """New-user trial s15 (12): "8 'don't know' in joy1, joy2, joy3 and 17 more items" meant every one of the 20 items;
+    the methods clause says 'in all 20 items' then, and keeps the short list when some item lacks it."""
+    items = tuple(f"q{i}" for i in range(20))
+    assert non_answer_clause(_found(20), model_items=items).endswith("'Don't know' in all 20 items)")
+    assert non_answer_clause(_found(19), model_items=items).endswith("q2 and 16 more items)")
+    assert non_answer_clause(_found(BRIEF), model_items=items[:BRIEF]).endswith("q0, q1 and q2)")  # a short list named

@@ -453,3 +453,18 @@ def test_a_tables_folder_lists_its_tables_and_names_an_earlier_runs_left_behind(
 def first_title_of(terminal: str) -> str:
     """The report's title as the terminal shows it (its first line that is not part of a problem box)."""
     return next(line.strip() for line in terminal.splitlines() if line.strip() and line.strip()[0] not in "┏┃┗╭│╰")
+
+
+def test_an_earlier_fits_json_and_html_in_a_tables_folder_are_not_called_tables(tmp_path):
+    # hostile tester s15 (08): a project folder holding an earlier fit's JSON and HTML (the files 'scores --from-fit'
+    # and 'report' read) got "they belong to another report: delete them"; 'report r.json --tables .' said so of its
+    # own input.  Only tables (CSV, LaTeX) an earlier run left there are named.
+    first = run("fit", str(MODEL), "--data", str(DATA), "--json", str(tmp_path / "first.json"), "--html",
+                str(tmp_path / "first.html"))
+    assert first.returncode == 0, first.stderr
+    second = run("fit", str(MODEL), "--data", str(DATA), "--keep", "district = north", "--tables", str(tmp_path))
+    assert second.returncode == 0, second.stderr
+    assert "also holds" not in second.stdout and "delete" not in second.stdout
+    again = run("report", str(tmp_path / "first.json"), "--tables", str(tmp_path))
+    assert again.returncode == 0, again.stderr
+    assert "also holds" not in again.stdout and "delete" not in again.stdout
