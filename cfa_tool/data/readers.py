@@ -62,6 +62,9 @@ class LoadedData:
     items: ItemColumns | None = None
     #: a workbook of several sheets read without a sheet named: every sheet's name, the one read first
     sheets: tuple[str, ...] = ()
+    #: the sheet of a workbook that was read (the one asked for, else the first shown: :func:`sheet_read`); '' for
+    #: another file.  A halves file records it, and a half read back is checked by it (data.halves)
+    sheet_read: str = ""
     #: values the file itself marks as no answer (data.non_answers.NonAnswer), read as missing on reading
     non_answers: tuple = ()
     #: what reading found that every view names first, though the rows are analysed as the file holds them:
@@ -144,7 +147,8 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden, names_in_file(renames, items), names_row,
                                         names_option, _listed_in_file(renames, listed), first_data_row), str(path),
                             notes=tuple(notes), row_names=names[0] if names else None, cautions=tuple(hidden),
-                            sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else ())
+                            sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else (),
+                            sheet_read=sheets[0] if sheets else "")
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _read_labelled(path)
     elif suffix in (".xls",):

@@ -139,7 +139,7 @@ def test_halves_of_another_sheet_are_refused(tmp_path, capsys):
     code, _, err = _run(["explore", "--data", book, "--sheet", "Wave1", "--items", "x1..x9", "--factors", 3,
                          "--split", 5, "--halves-file", halves], capsys)
     assert code == 0, err
-    assert set(pd.read_csv(halves)["sheet"]) == {"Wave1"}
+    assert set(pd.read_csv(halves)["sheet_read"]) == {"Wave1"}
     model = tmp_path / "m.cfa"
     model.write_text(EDITED)
     code, _, err = _run(["fit", model, "--data", book, "--sheet", "Wave2", "--half", halves, "confirmation"], capsys)
@@ -155,7 +155,8 @@ def test_halves_of_another_sheet_are_refused(tmp_path, capsys):
                          "--split", 5, "--halves-file", second], capsys)
     assert code == 0, err
     code, _, err = _run(["fit", model, "--data", book, "--half", second, "confirmation"], capsys)
-    assert code == 2 and "holds the halves of the sheet 'Wave2'" in err and "the first sheet (no sheet asked for)" in err
+    assert code == 2 and ("holds the halves of the sheet 'Wave2' of 'waves.xlsx', and this run reads the sheet "
+                          "'Wave1' (the first sheet; no sheet asked for): give --sheet Wave2") in err
 
 
 def test_a_halves_file_that_is_a_folder_or_a_workbook_is_said_so(tmp_path, capsys):
