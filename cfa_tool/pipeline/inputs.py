@@ -1022,12 +1022,12 @@ def refuse_totals_rows(loaded: LoadedData) -> LoadedData:
     "the model cannot be estimated", naming the row only as a likely cause).  Called where the rows analysed are
     known, before any estimation: by :func:`analysed_odd_values` and on entering :func:`odd_values_named` (a means
     row, which moves the estimates little, stays a caution)."""
-    from cfa_tool.data.odd_values import OddKind, row_naming_cell
+    from cfa_tool.data.odd_values import OddKind
 
     odd = next((o for o in loaded.odd_values if o.kind is OddKind.SUMS_ROW), None)
     if odd is None:
         return loaded
-    raise DataError(odd.totals_refusal(loaded.source, row_naming_cell(loaded.frame, odd, odd.columns)))
+    raise DataError(odd.totals_refusal(loaded.source, loaded.frame))
 
 
 @contextmanager
