@@ -19,6 +19,7 @@ import cfa_tool
 from cfa_tool.data.halves import RandomHalf, draw_halves, halves_text
 from cfa_tool.errors import DataError
 from cfa_tool.reporting.paragraph import methods_paragraph
+from tests.commands.test_fit_one_half import two_waves
 from tests.commands.test_halves_file import _run
 from tests.conftest import DATASETS
 
@@ -124,11 +125,7 @@ def test_the_sheet_read_is_recorded_and_old_halves_files_keep_working(tmp_path, 
     """The halves file records the sheet read (the first shown when none is asked for), and a half read back is
     checked by it without opening the workbook again; a file written before s15 (its last column the sheet asked
     for, 'sheet') is read as it was."""
-    hs = pd.read_csv(HS_FILE)
-    book = tmp_path / "waves.xlsx"
-    with pd.ExcelWriter(book) as writer:
-        hs.to_excel(writer, sheet_name="Wave1", index=False)
-        hs.iloc[::-1].to_excel(writer, sheet_name="Wave2", index=False)
+    book = two_waves(tmp_path)
     halves = tmp_path / "halves.csv"
     code, _, err = _run(["explore", "--data", book, "--items", "x1..x9", "--factors", 3, "--split", 5,
                          "--replications", 5, "--halves-file", halves], capsys)
