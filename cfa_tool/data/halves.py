@@ -3,13 +3,14 @@
 The halves file is the one record of which rows went to which half: one line per row split, ``row,half,seed,
 data_file,data_sha256,sheet_read`` (the row's number as the data file numbers them, data.moments.row_numbers; the
 half's name; the seed that drew the halves; the data file's name and the SHA-256 of its bytes; the sheet of a workbook
-that was read, data.readers.sheet_read, empty for another file).  Files written before s15 have ``sheet`` in its place,
-the sheet asked for (empty when none was), and are read back as they were.  The halves are drawn by one rule (:func:`draw_halves`), so the seed and the rows split say which
-half each row is in, and a file whose halves are not those is refused (edited by hand, or of another seed).  A half of it is analysed by
-choosing it among the row selections (``--half FILE.csv NAME``, ``keep=[RandomHalf('FILE.csv', 'NAME')]``): the rows
-are read from the data file itself, never from a copy, and the halves file is checked against that file first: the
-same contents (the checksum), and the same rows split (the rows the data file holds after the row filters are those
-the halves file lists, no more and no fewer), else a refusal that says which.  Halves drawn from the rows with an
+that was read, data.readers.sheet_read, empty for another file).  Files written before s15 have ``sheet`` in its
+place, the sheet asked for (empty when none was), and are read back as they were.  The halves are drawn by one rule
+(:func:`draw_halves`), so the seed and the rows split say which half each row is in, and a file whose halves are not
+those is refused (edited by hand, or of another seed).  A half of it is analysed by choosing it among the row
+selections (``--half FILE.csv NAME``, ``keep=[RandomHalf('FILE.csv', 'NAME')]``): the rows are read from the data
+file itself, never from a copy, and the halves file is checked against that file first: the same contents (the
+checksum) and sheet, and the same rows split (the rows the data file holds after the row filters are those the
+halves file lists, no more and no fewer), else a refusal that says which.  Halves drawn from the rows with an
 answer to every model variable (replicate --data with --incomplete-rows listwise) leave out the rows with gaps: read
 back with the model's items, they are those rows when the run leaves rows with gaps out too, and refused, naming the
 handling of rows with gaps, when it keeps them."""
@@ -252,9 +253,9 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet:
     drawn = saved.sheet_drawn(data)
     if drawn != read:
         sheet_words = f"the sheet '{printable(read)}'" + ("" if sheet else " (the first sheet; no sheet asked for)")
-        raise DataError(f"{shown} holds the halves of the sheet '{printable(drawn)}' of '{printable(saved.data_file)}', "
-                        f"and this run reads {sheet_words}: give {Option.SHEET.given(drawn)}, as the run that "
-                        f"drew them")
+        raise DataError(f"{shown} holds the halves of the sheet '{printable(drawn)}' of "
+                        f"'{printable(saved.data_file)}', and this run reads {sheet_words}: give "
+                        f"{Option.SHEET.given(drawn)}, as the run that drew them")
     numbers = row_numbers(frame)
     naming = row_naming(frame)
     absent = np.setdiff1d(saved.rows, numbers)

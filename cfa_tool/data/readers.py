@@ -843,10 +843,16 @@ class TextReading:
                 "names_line": self.names_line, "names_row": self.names_row}
 
 
-def _records(text: str, delimiter: str, limit: int | None = None, delimiters_only: bool = False):
-    """(line number, fields) of each record that is not blank; quoted fields may span lines.  ``delimiters_only``:
-    also the records of empty fields only (';;;'), which the table parser reads as rows of empty cells (it skips
-    lines that are empty or hold only spaces, as this does)."""
+def _filled(fields: list[str], delimiters_only: bool = False) -> bool:
+    """Whether a record is not blank: a value in some field, or with ``delimiters_only``, fields that are all empty
+    (';;;'), which the table parser reads as a row of empty cells (it skips lines that are empty or hold only spaces,
+    as this does)."""
+    return bool(fields) and (any(f.strip() for f in fields) or (delimiters_only and len(fields) > 1))
+
+
+def _records(text: str, delimiter: str, limit: int):
+    """(line number, fields) of the first ``limit`` records that are not blank (:func:`_filled`), read no further:
+    the sample a separator is judged by (:func:`_delimiter`); :class:`TextRecords` holds them all."""
     reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
     line = 1
     while True:
@@ -856,12 +862,11 @@ def _records(text: str, delimiter: str, limit: int | None = None, delimiters_onl
             return
         except csv.Error as exc:
             raise DataError(f"line {reader.line_num}: {exc}") from None
-        if fields and (any(f.strip() for f in fields) or (delimiters_only and len(fields) > 1)):
+        if _filled(fields):
             yield line, fields
-            if limit is not None:
-                limit -= 1
-                if limit <= 0:
-                    return
+            limit -= 1
+            if limit <= 0:
+                return
         line = reader.line_num + 1
 
 
@@ -878,11 +883,10 @@ class TextRecords:
     error: tuple[int, str] | None = None
 
     def read(self, delimiters_only: bool = False, after: int = 0):
-        """(line number, fields) of each record that is not blank and starts after the line ``after``, as
-        :func:`_records` yields them (``delimiters_only``: also the records of empty fields only); the csv module's
-        error, where it stopped, once the records before it are read."""
+        """(line number, fields) of each record that is not blank (:func:`_filled`) and starts after the line
+        ``after``; the csv module's error, where it stopped, once the records before it are read."""
         for line, fields in self.records:
-            if line > after and fields and (any(f.strip() for f in fields) or (delimiters_only and len(fields) > 1)):
+            if line > after and _filled(fields, delimiters_only):
                 yield line, fields
         if self.error is not None:
             raise DataError(f"line {self.error[0]}: {self.error[1]}")
