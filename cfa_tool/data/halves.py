@@ -108,8 +108,8 @@ class HalfRows:
         return (f"Only the rows of the {self.name} half (seed {self.seed}) of {self.halves_file} are analysed: "
                 f"{self.rows} of the {self.split} rows split at random into two halves" + (
                     f", those with an answer to every model variable ({self.with_gaps} "
-                    f"{'row' if self.with_gaps == 1 else 'rows'} with gaps left out before the split)"
-                    if self.with_gaps else ""))
+                    f"{'row' if self.with_gaps == 1 else 'rows'} with gaps left out before the split, as "
+                    f"{Option.INCOMPLETE_ROWS.given('listwise')} leaves them out)" if self.with_gaps else ""))
 
     def in_words(self) -> str:
         """'the row fell in the confirmation half of two random halves (seed 17; listed in halves.csv)', after

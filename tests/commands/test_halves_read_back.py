@@ -63,7 +63,7 @@ def test_halves_of_the_complete_rows_read_back_when_rows_with_gaps_are_left_out(
     assert half.fit.chi_square == pytest.approx(pair[0].calibration_result.fit.chi_square, rel=1e-9)
     note = next(n for n in half.warnings if "half (seed 3)" in n)
     assert ("133 of the 265 rows split at random into two halves, those with an answer to every model variable "
-            "(34 rows with gaps left out before the split)") in note
+            "(34 rows with gaps left out before the split, as missing='listwise' leaves them out)") in note
     assert "two random halves of the rows with an answer to every model variable (seed 3" in \
         " ".join(methods_paragraph(half).split())
 
@@ -78,7 +78,9 @@ def test_halves_of_the_complete_rows_read_back_when_rows_with_gaps_are_left_out(
         cfa_tool.fit(MODEL, str(data), keep=RandomHalf(str(halves), "A"), missing="full-information")
     # check describes the rows of the half: all complete, the note says how they were drawn
     found = cfa_tool.check(MODEL, str(data), keep=RandomHalf(str(halves), "B"))
-    assert found.rows == 265 - 133 and any("34 rows with gaps left out before the split" in n for n in found.notes)
+    assert found.rows == 265 - 133
+    assert any("34 rows with gaps left out before the split, as missing='listwise' leaves them out" in n
+               for n in found.notes)
 
 
 def test_halves_of_every_row_with_an_answer_read_back_under_either_handling(gaps, capsys):
