@@ -273,8 +273,9 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet:
         which = (f"it lists {rows_listed(absent, naming=naming)}, not among them" if len(absent) else
                  f"it leaves out {rows_listed(unlisted, naming=naming)}")
         raise DataError(f"{shown} split {len(saved.rows)} rows, and {source} holds {len(numbers)}{kept}; {which}: the "
-                        f"halves are of another selection of rows; give the {Option.SHEET}, {Option.NAMES_ROW}, "
-                        f"{Option.FIRST_DATA_ROW} and {Option.KEEP} of the run that drew them")
+                        f"halves are of another selection of rows; give the {Option.NAMES_ROW}, "
+                        f"{Option.FIRST_DATA_ROW} and {Option.KEEP} of the run that drew them (this run reads their "
+                        f"sheet)")
     mask = np.isin(numbers, saved.rows[np.asarray(saved.halves) == choice.name])
     chosen = frame[mask]
     half = HalfRows(shown, choice.name, saved.seed, int(mask.sum()), len(saved.rows),

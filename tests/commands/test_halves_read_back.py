@@ -119,7 +119,8 @@ def test_explore_halves_of_every_row_read_back_under_either_handling(gaps, capsy
     fewer.write_text(halves_text([("exploration", tuple(rows[first])), ("confirmation", tuple(rows[second]))], 4,
                                  data))
     with pytest.raises(DataError, match=r"split 300 rows, and .* holds 301; it leaves out row 3: the halves are of "
-                                        r"another selection of rows"):
+                                        r"another selection of rows; give the names_row=\.\.\., first_data_row="
+                                        r"\.\.\. and keep=\.\.\. of the run that drew them \(this run reads their sheet\)$"):
         cfa_tool.fit(MODEL, str(data), keep=RandomHalf(str(fewer), "confirmation"), missing="listwise")
 
 
