@@ -1,14 +1,19 @@
 """Random halves saved in a file (explore --split, replicate --data, with --halves-file) and one of them read back.
 
 The halves file is the one record of which rows went to which half: one line per row split, ``row,half,seed,
-data_file,data_sha256,sheet`` (the row's number as the data file numbers them, data.moments.row_numbers; the half's
-name; the seed that drew the halves; the data file's name and the SHA-256 of its bytes; the sheet asked for, empty
-when none was).  The halves are drawn by one rule (:func:`draw_halves`), so the seed and the rows split say which
-half each row is in, and a file whose halves are not those is refused (edited by hand, or of another seed).  A half of it is analysed by
-choosing it among the row selections (``--half FILE.csv NAME``, ``keep=[RandomHalf('FILE.csv', 'NAME')]``): the rows
-are read from the data file itself, never from a copy, and the halves file is checked against that file first: the
-same contents (the checksum), and the same rows split (the rows the data file holds after the row filters are those
-the halves file lists, no more and no fewer), else a refusal that says which."""
+data_file,data_sha256,sheet_read`` (the row's number as the data file numbers them, data.moments.row_numbers; the
+half's name; the seed that drew the halves; the data file's name and the SHA-256 of its bytes; the sheet of a workbook
+that was read, data.readers.sheet_read, empty for another file).  Files written before s15 have ``sheet`` in its
+place, the sheet asked for (empty when none was), and are read back as they were.  The halves are drawn by one rule
+(:func:`draw_halves`), so the seed and the rows split say which half each row is in, and a file whose halves are not
+those is refused (edited by hand, or of another seed).  A half of it is analysed by choosing it among the row
+selections (``--half FILE.csv NAME``, ``keep=[RandomHalf('FILE.csv', 'NAME')]``): the rows are read from the data
+file itself, never from a copy, and the halves file is checked against that file first: the same contents (the
+checksum) and sheet, and the same rows split (the rows the data file holds after the row filters are those the
+halves file lists, no more and no fewer), else a refusal that says which.  Halves drawn from the rows with an
+answer to every model variable (replicate --data with --incomplete-rows listwise) leave out the rows with gaps: read
+back with the model's items, they are those rows when the run leaves rows with gaps out too, and refused, naming the
+handling of rows with gaps, when it keeps them."""
 
 from __future__ import annotations
 
@@ -28,7 +33,9 @@ from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.options import Option
 
 #: the columns of a halves file, in order
-HALVES_COLUMNS = ("row", "half", "seed", "data_file", "data_sha256", "sheet")
+HALVES_COLUMNS = ("row", "half", "seed", "data_file", "data_sha256", "sheet_read")
+#: those of a halves file written before s15, whose last column is the sheet asked for (empty when none was)
+SHEET_ASKED_COLUMNS = HALVES_COLUMNS[:5] + ("sheet",)
 
 
 #: the names of the two halves as the commands write them, the first drawn first (explore --split; replicate --data)
@@ -74,6 +81,9 @@ class HalfRows:
     seed: int
     rows: int  # the half's rows
     split: int  # the rows split into the halves
+    #: the rows with gaps left out before the split (replicate --incomplete-rows listwise): the halves are those of
+    #: the rows with an answer to every model variable (data.halves.half_kept)
+    with_gaps: int = 0
     column = None  # no column of the data file chose the rows
     operator = "="
     empty = 0
@@ -96,12 +106,16 @@ class HalfRows:
     def note(self) -> str:
         """The note of a report: which rows were analysed."""
         return (f"Only the rows of the {self.name} half (seed {self.seed}) of {self.halves_file} are analysed: "
-                f"{self.rows} of the {self.split} rows split at random into two halves")
+                f"{self.rows} of the {self.split} rows split at random into two halves" + (
+                    f", those with an answer to every model variable ({self.with_gaps} "
+                    f"{'row' if self.with_gaps == 1 else 'rows'} with gaps left out before the split, as "
+                    f"{Option.INCOMPLETE_ROWS.given('listwise')} leaves them out)" if self.with_gaps else ""))
 
     def in_words(self) -> str:
         """'the row fell in the confirmation half of two random halves (seed 17; listed in halves.csv)', after
         'those where' in a methods section, which gives the rows analysed and those in the file."""
-        return (f"the row fell in the {self.name} half of two random halves (seed {self.seed}; listed in "
+        rows = " of the rows with an answer to every model variable" if self.with_gaps else ""
+        return (f"the row fell in the {self.name} half of two random halves{rows} (seed {self.seed}; listed in "
                 f"{self.halves_file})")
 
 
@@ -119,9 +133,10 @@ def fingerprint(path) -> str:
 def halves_text(halves: list[tuple[str, tuple[int, ...]]], seed: int, data, sheet: str | None = None) -> str:
     """The halves file: one line per row split, in the order of the rows (``halves``: each half's name and its rows'
     numbers, data.moments.row_numbers, the first half first), each with the seed, the data file's name and checksum
-    and the sheet asked for."""
+    and the sheet read (``sheet``: the one asked for; data.readers.sheet_read)."""
     name = Path(data).name if isinstance(data, (str, Path)) else ""
     sums = fingerprint(data)
+    sheet = sheet_read(data, sheet)
     out = io.StringIO()
     writer = csv.writer(out, lineterminator="\n")
     writer.writerow(HALVES_COLUMNS)
@@ -133,7 +148,8 @@ def halves_text(halves: list[tuple[str, tuple[int, ...]]], seed: int, data, shee
 @dataclass(frozen=True)
 class SavedHalves:
     """A halves file as read: the rows' numbers and their halves (in the file's order), the seed, the data file's
-    name and checksum."""
+    name and checksum, and the sheet read (``sheet``; in a file written before s15, the sheet asked for:
+    ``sheet_asked``)."""
 
     path: str
     rows: np.ndarray
@@ -142,6 +158,12 @@ class SavedHalves:
     data_file: str
     data_sha256: str
     sheet: str = ""
+    sheet_asked: bool = False
+
+    def sheet_drawn(self, data) -> str:
+        """The sheet of ``data`` the halves were drawn from: the one recorded, or in a file written before s15, the
+        sheet its run read of the sheet asked for (the workbook opened to learn it, data.readers.sheet_read)."""
+        return sheet_read(data, self.sheet) if self.sheet_asked else self.sheet
 
     def names(self) -> tuple[str, ...]:
         return tuple(dict.fromkeys(self.halves))
@@ -162,8 +184,9 @@ def read_halves(path) -> SavedHalves:
     except OSError as exc:
         raise DataError(f"{shown}: cannot read the halves file ({printable(exc.strerror or 'unreadable')})") from None
     lines = list(csv.reader(io.StringIO(text)))
-    if not lines or tuple(c.strip() for c in lines[0]) != HALVES_COLUMNS:
-        earlier = bool(lines) and tuple(c.strip() for c in lines[0]) in (HALVES_COLUMNS[:2], HALVES_COLUMNS[:5])
+    header = tuple(c.strip() for c in lines[0]) if lines else ()
+    if header not in (HALVES_COLUMNS, SHEET_ASKED_COLUMNS):
+        earlier = header in (HALVES_COLUMNS[:2], HALVES_COLUMNS[:5])
         raise DataError(f"{shown}, line 1: " + (
             "a halves file of an earlier version, without the seed, the data file's checksum or the sheet that a half "
             "is checked by; write the halves again (cfa-tool explore --split SEED --halves-file NEW.csv draws the same "
@@ -198,15 +221,21 @@ def read_halves(path) -> SavedHalves:
     if not rows:
         raise DataError(f"{shown}: the halves file lists no rows")
     name, sums, sheet = data.pop()
-    return SavedHalves(str(path), np.asarray(rows, dtype=np.int64), tuple(halves), seeds.pop(), name, sums, sheet)
+    return SavedHalves(str(path), np.asarray(rows, dtype=np.int64), tuple(halves), seeds.pop(), name, sums, sheet,
+                       header == SHEET_ASKED_COLUMNS)
 
 
-def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str,
-              sheet: str | None = None) -> tuple[pd.DataFrame, HalfRows]:
-    """The rows of ``frame`` (the data file's rows after the row filters; ``sheet`` the sheet asked for) in the half
-    ``choice`` names, and the half as found; a refusal when the halves file is not that of these rows: drawn from a
-    file of other contents (the checksum) or another sheet, naming rows the data do not hold, or leaving rows of the
-    data out (another selection of rows), or halves that its seed does not draw from its rows (edited by hand)."""
+def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet: str | None = None, read: str = "",
+              items: tuple[str, ...] = (), keeps_gaps: bool | None = None) -> tuple[pd.DataFrame, HalfRows]:
+    """The rows of ``frame`` (the data file's rows after the row filters; ``sheet`` the sheet asked for and ``read``
+    the sheet read, data.readers.LoadedData.sheet_read) in the half ``choice`` names, and the half as found; a
+    refusal when the halves file is not that of these rows: drawn from a file of other contents (the checksum) or
+    another sheet, naming rows the data do not hold, or leaving rows of the data out (another selection of rows), or
+    halves that its seed does not draw from its rows (edited by hand).  Rows left out that miss some answers to the
+    model's ``items`` while every row split has them all are the rows with gaps that replicate --incomplete-rows
+    listwise leaves out before it splits: the half is read when the run leaves them out too (``keeps_gaps`` False)
+    or does not fit (None: check describes the rows), and refused, naming the handling of rows with gaps, when it
+    keeps them (True)."""
     saved = read_halves(choice.path)
     shown = printable(str(choice.path))
     _check_drawn(saved, shown)
@@ -221,27 +250,57 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str,
                         f"as it was when the halves were drawn), not those of {source}: give the data file the halves "
                         f"were drawn from; if that file was corrected since, write the halves again from it "
                         f"({redraw_words(saved.names(), saved.seed)} draws the same halves from as many rows)")
-    if (sheet or "") != saved.sheet and sheet_read(data, sheet) != sheet_read(data, saved.sheet):
-        drawn = f"the sheet '{printable(saved.sheet)}'" if saved.sheet else "the first sheet (no sheet asked for)"
-        asked = f"the sheet '{printable(sheet)}'" if sheet else "the first sheet (no sheet asked for)"
-        raise DataError(f"{shown} holds the halves of {drawn} of '{printable(saved.data_file)}', and this run reads "
-                        f"{asked}: give the {Option.SHEET} of the run that drew them")
+    drawn = saved.sheet_drawn(data)
+    if drawn != read:
+        sheet_words = f"the sheet '{printable(read)}'" + ("" if sheet else " (the first sheet; no sheet asked for)")
+        raise DataError(f"{shown} holds the halves of the sheet '{printable(drawn)}' of "
+                        f"'{printable(saved.data_file)}', and this run reads {sheet_words}: give "
+                        f"{Option.SHEET.given(drawn)}, as the run that drew them")
     numbers = row_numbers(frame)
     naming = row_naming(frame)
     absent = np.setdiff1d(saved.rows, numbers)
     unlisted = np.setdiff1d(numbers, saved.rows)
-    if len(absent) or len(unlisted):
+    with_gaps = _rows_with_gaps(frame, numbers, unlisted, items) if len(unlisted) and not len(absent) else None
+    if with_gaps is not None and len(with_gaps) and keeps_gaps:
+        listwise = Option.INCOMPLETE_ROWS.given("listwise")
+        raise DataError(f"{shown} split the {len(saved.rows)} rows of {source} with an answer to every model "
+                        f"variable: it leaves out {rows_listed(with_gaps, naming=naming)}, which miss some answers, "
+                        f"as {listwise} leaves them out, and this run keeps the rows with gaps; give {listwise} to "
+                        f"analyse the half as it was drawn, or draw halves of every row with an answer "
+                        f"({redraw_words(saved.names(), saved.seed)}, without {listwise})")
+    if (len(absent) or len(unlisted)) and with_gaps is None:
         kept = " after the row filters" if frame.attrs.get(KEPT_BY) else ""
         which = (f"it lists {rows_listed(absent, naming=naming)}, not among them" if len(absent) else
                  f"it leaves out {rows_listed(unlisted, naming=naming)}")
         raise DataError(f"{shown} split {len(saved.rows)} rows, and {source} holds {len(numbers)}{kept}; {which}: the "
-                        f"halves are of another selection of rows; give the {Option.SHEET}, {Option.NAMES_ROW}, "
-                        f"{Option.FIRST_DATA_ROW} and {Option.KEEP} of the run that drew them")
+                        f"halves are of another selection of rows; give the {Option.NAMES_ROW}, "
+                        f"{Option.FIRST_DATA_ROW} and {Option.KEEP} of the run that drew them (this run reads their "
+                        f"sheet)")
     mask = np.isin(numbers, saved.rows[np.asarray(saved.halves) == choice.name])
     chosen = frame[mask]
-    half = HalfRows(shown, choice.name, saved.seed, int(mask.sum()), len(numbers))
+    half = HalfRows(shown, choice.name, saved.seed, int(mask.sum()), len(saved.rows),
+                    len(with_gaps) if with_gaps is not None else 0)
     chosen.attrs[KEPT_BY] = tuple(frame.attrs.get(KEPT_BY, ())) + (half.text,)
     return chosen, half
+
+
+def _rows_with_gaps(frame: pd.DataFrame, numbers: np.ndarray, unlisted: np.ndarray,
+                    items: tuple[str, ...]) -> np.ndarray | None:
+    """The numbers of the ``unlisted`` rows (those of ``frame`` a halves file leaves out) that miss some answers to
+    ``items`` but not all, when the halves are those of the rows with an answer to every item (every row split has
+    them all, every row left out misses one; rows without any answer, which no fit analyses, may be left out too):
+    none when only rows without any answer are left out (replicate draws halves of the rows with an answer); None
+    when the rows left out are not so explained (or an item is not among the columns)."""
+    if not items or not all(item in frame.columns for item in items):
+        return None
+    missing = frame[list(items)].isna().to_numpy()
+    some, every = missing.any(axis=1), missing.all(axis=1)
+    left = np.isin(numbers, unlisted)
+    if every[left].all():
+        return np.asarray(numbers)[:0]
+    if some[~left].any() or not some[left].all():
+        return None
+    return np.asarray(numbers)[left & ~every]
 
 
 def _check_drawn(saved: SavedHalves, shown: str) -> None:

@@ -183,9 +183,8 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
         for v in sorted(set(values[outside].tolist())):
             found.setdefault(keying, []).append((name, v, rows[values == v], labels.get(v)))
     if found:
-        first = next(iter(found))
-        _summary_row_first(frame, spec, data_name, {int(r) for stray in found.values() for *_, where, _ in stray
-                                                    for r in where}, f"{first.minimum:g} to {first.maximum:g}")
+        _summary_row_first(frame, spec, data_source, {int(r) for stray in found.values() for *_, where, _ in stray
+                                                      for r in where})
     for keying, stray in found.items():
         shown = []
         for name, v, where, label in stray[:6]:
@@ -217,28 +216,17 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
         )
 
 
-def _summary_row_first(frame, spec: Spec, data_name: str, strays: set[int], scale: str) -> None:
-    """A data error naming a spreadsheet's totals or means row (data.odd_values: its values equal the other rows'
-    sums or means) when every answer outside a declared scale is in such rows (new-user trial s13, U2): the
-    scale's check would otherwise advise giving the column sums as --missing-codes, which the methods paragraph
-    would then report as codes of no answer.  The advice leaves the row out, by a row filter on a text cell that
-    names it (its 'Total' in the id column) when it has one."""
+def _summary_row_first(frame, spec: Spec, data_source: str, strays: set[int]) -> None:
+    """The refusal of a spreadsheet's totals row (data.odd_values: its values equal the other rows' sums) when every
+    answer outside a declared scale is in such rows (new-user trial s13, U2), in the words every command refuses it
+    with (OddValues.totals_refusal): the scale's check would otherwise advise giving the column sums as
+    --missing-codes, which the methods paragraph would then report as codes of no answer."""
     from cfa_tool.data.moments import row_numbers
-    from cfa_tool.data.odd_values import OddKind, odd_values, row_naming_cell
+    from cfa_tool.data.odd_values import OddKind, odd_values
 
-    found = [o for o in odd_values(frame, spec.observed_names, row_numbers(frame))
-             if o.kind in (OddKind.SUMS_ROW, OddKind.MEANS_ROW)]
-    summary = {int(r) for o in found for r in o.rows}
-    if not found or not strays <= summary:
-        return
-    odd = found[0]
-    named = row_naming_cell(frame, odd, spec.observed_names)
-    keep = f" ({Option.KEEP.given(f'{printable(named[0])} != {printable(named[1])}')})" if named else ""
-    more = f" (and {len(found) - 1} more such rows)" if len(found) > 1 else ""
-    raise DataError(f"{odd.caution(data_name)}{more} Its values lie outside the scale {scale} that a 'reversed' "
-                    f"statement of the model declares, so the model cannot be fitted with it. What to try: delete "
-                    f"the row from the file, or leave it out with a row filter{keep}; its values are not "
-                    f"missing-value codes.")
+    found = [o for o in odd_values(frame, spec.observed_names, row_numbers(frame)) if o.kind is OddKind.SUMS_ROW]
+    if found and strays <= {int(r) for o in found for r in o.rows}:
+        raise DataError(found[0].totals_refusal(data_source, frame))
 
 
 def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict | None = None,

@@ -131,10 +131,12 @@ class OddValues:
         return (f"{row[0].upper()}{row[1:]} of {name} holds {what} in {len(self.columns)} item "
                 f"column{'s' if len(self.columns) != 1 else ''} ({shown}{more})")
 
-    def totals_refusal(self, source: str, naming: tuple[str, str] | None = None) -> str:
-        """The one-line error of a totals row among the rows analysed (kind SUMS_ROW): the file, the row and what it
-        holds, and how to leave it out: by a row filter on the text cell that names it (``naming``: column and
-        value, :func:`naming_cell`) when it has one."""
+    def totals_refusal(self, source: str, frame: pd.DataFrame) -> str:
+        """The one-line error of a totals row (kind SUMS_ROW) among ``frame``'s rows, the one message of every
+        route that refuses it (pipeline.inputs.refuse_totals_rows; data.matching, where its sums lie outside a
+        declared scale): the file, the row and what it holds, and how to leave it out: by a row filter on the text
+        cell that names it (:func:`row_naming_cell`), which keeps every other row, when it has one."""
+        naming = row_naming_cell(frame, self, self.columns)
         holder = "data frame" if self.naming is RowNaming.INDEX_LABEL else "file"
         keep = (f" ({Option.KEEP.given(f'{printable(naming[0])} != {printable(naming[1])}')})" if naming
                 else f" ({Option.KEEP})")

@@ -62,6 +62,9 @@ class LoadedData:
     items: ItemColumns | None = None
     #: a workbook of several sheets read without a sheet named: every sheet's name, the one read first
     sheets: tuple[str, ...] = ()
+    #: the sheet of a workbook that was read (the one asked for, else the first shown: :func:`sheet_read`); '' for
+    #: another file.  A halves file records it, and a half read back is checked by it (data.halves)
+    sheet_read: str = ""
     #: values the file itself marks as no answer (data.non_answers.NonAnswer), read as missing on reading
     non_answers: tuple = ()
     #: what reading found that every view names first, though the rows are analysed as the file holds them:
@@ -144,7 +147,8 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden, names_in_file(renames, items), names_row,
                                         names_option, _listed_in_file(renames, listed), first_data_row), str(path),
                             notes=tuple(notes), row_names=names[0] if names else None, cautions=tuple(hidden),
-                            sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else ())
+                            sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else (),
+                            sheet_read=sheets[0] if sheets else "")
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _read_labelled(path)
     elif suffix in (".xls",):
@@ -819,7 +823,7 @@ class TextReading:
     separator: str
     decimal: str
     names_line: int  # the text line of the column names
-    names_row: int = 0  # their row as a spreadsheet shows the file (one per record), by which rows are numbered
+    names_row: int  # their row as a spreadsheet shows the file (one per record), by which rows are numbered
 
     def plain(self) -> bool:
         """UTF-8 text with commas between fields and decimal points, the reading every note would otherwise repeat
@@ -830,19 +834,25 @@ class TextReading:
         separator = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "vertical bars ('|')"}[self.separator]
         mark = "commas" if self.decimal == "," else "points"
         return (f"read as {self.encoding.value} text, fields separated by {separator}, decimals written with {mark}; "
-                f"the column names are in row {self.names_row or self.names_line}"
-                + (f" (text line {self.names_line})" if self.names_row and self.names_row != self.names_line else "")
+                f"the column names are in row {self.names_row}"
+                + (f" (text line {self.names_line})" if self.names_row != self.names_line else "")
                 + ", and rows are numbered as a spreadsheet shows the file (one row per record)")
 
     def to_dict(self) -> dict:
         return {"encoding": self.encoding.value, "separator": self.separator, "decimal_mark": self.decimal,
-                "names_line": self.names_line, "names_row": self.names_row or self.names_line}
+                "names_line": self.names_line, "names_row": self.names_row}
 
 
-def _records(text: str, delimiter: str, limit: int | None = None, delimiters_only: bool = False):
-    """(line number, fields) of each record that is not blank; quoted fields may span lines.  ``delimiters_only``:
-    also the records of empty fields only (';;;'), which the table parser reads as rows of empty cells (it skips
-    lines that are empty or hold only spaces, as this does)."""
+def _filled(fields: list[str], delimiters_only: bool = False) -> bool:
+    """Whether a record is not blank: a value in some field, or with ``delimiters_only``, fields that are all empty
+    (';;;'), which the table parser reads as a row of empty cells (it skips lines that are empty or hold only spaces,
+    as this does)."""
+    return bool(fields) and (any(f.strip() for f in fields) or (delimiters_only and len(fields) > 1))
+
+
+def _records(text: str, delimiter: str, limit: int):
+    """(line number, fields) of the first ``limit`` records that are not blank (:func:`_filled`), read no further:
+    the sample a separator is judged by (:func:`_delimiter`); :class:`TextRecords` holds them all."""
     reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
     line = 1
     while True:
@@ -852,13 +862,48 @@ def _records(text: str, delimiter: str, limit: int | None = None, delimiters_onl
             return
         except csv.Error as exc:
             raise DataError(f"line {reader.line_num}: {exc}") from None
-        if fields and (any(f.strip() for f in fields) or (delimiters_only and len(fields) > 1)):
+        if _filled(fields):
             yield line, fields
-            if limit is not None:
-                limit -= 1
-                if limit <= 0:
-                    return
+            limit -= 1
+            if limit <= 0:
+                return
         line = reader.line_num + 1
+
+
+@dataclass(frozen=True, eq=False)
+class TextRecords:
+    """Every record of a delimited file's text as the csv module reads it, in one pass (quoted fields may span
+    lines), each with the text line it starts on, a blank line a record without fields: the one reading of the text
+    that the rows' numbers (:func:`text_rows`), the header, the rows a first row of data skips and the field counts
+    (:func:`_check_field_counts`) are found in.  ``error``: the line and the csv module's words where it stopped on
+    a record it cannot read (``end``: the line after the last record read)."""
+
+    records: list[tuple[int, list[str]]]
+    end: int
+    error: tuple[int, str] | None = None
+
+    def read(self, delimiters_only: bool = False, after: int = 0):
+        """(line number, fields) of each record that is not blank (:func:`_filled`) and starts after the line
+        ``after``; the csv module's error, where it stopped, once the records before it are read."""
+        for line, fields in self.records:
+            if line > after and _filled(fields, delimiters_only):
+                yield line, fields
+        if self.error is not None:
+            raise DataError(f"line {self.error[0]}: {self.error[1]}")
+
+
+def text_records(text: str, delimiter: str) -> TextRecords:
+    """The :class:`TextRecords` of a delimited file's ``text``."""
+    reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
+    records: list[tuple[int, list[str]]] = []
+    line = 1
+    try:
+        for fields in reader:
+            records.append((line, fields))
+            line = reader.line_num + 1
+    except csv.Error as exc:
+        return TextRecords(records, line, (reader.line_num, str(exc)))
+    return TextRecords(records, line)
 
 
 @dataclass(frozen=True, eq=False)
@@ -905,21 +950,16 @@ class TextRows:
         return dict(zip(rows[other].tolist(), lines[other].tolist()))
 
 
-def text_rows(text: str, delimiter: str) -> TextRows:
-    """The rows of a delimited file's ``text`` (:class:`TextRows`); a record the csv module cannot read ends the
-    search, each line after it counted a row (the field-count check names its line)."""
+def text_rows(text: str, delimiter: str, records: TextRecords | None = None) -> TextRows:
+    """The rows of a delimited file's ``text`` (:class:`TextRows`), from its ``records`` (:func:`text_records`, read
+    here when not given); a record the csv module cannot read ends the search, each line after it counted a row
+    (the field-count check names its line)."""
     total = line_count(text)
     if '"' not in text:  # no quoted field, so no line break inside one: every line is a row
         return TextRows(np.arange(1, total + 1, dtype=np.int64), total)
-    reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
-    starts, line = [], 1
-    try:
-        for _ in reader:
-            starts.append(line)
-            line = reader.line_num + 1
-    except csv.Error:
-        pass
-    starts.extend(range(line, total + 1))
+    records = records if records is not None else text_records(text, delimiter)
+    starts = [line for line, _ in records.records]
+    starts.extend(range(records.end, total + 1))
     return TextRows(np.asarray(starts, dtype=np.int64), total)
 
 
@@ -945,19 +985,20 @@ def _delimiter(text: str) -> str:
     return best
 
 
-def _check_field_counts(text: str, delimiter: str, named: int, width: int, path: Path, header_line: int = 1,
-                        lines: list[int] | None = None, names_option: Option = Option.NAMES_ROW) -> int:
-    """Every data record must have a field for each of the ``named`` columns and no values beyond
-    them.  Empty fields after them (a delimiter at the end of each line, as some programs write
-    them; ``width`` fields in the header line) are accepted.  Returns the largest number of fields
-    in a record; ``lines`` receives the line on which each record the table parser reads as a row starts."""
+def _check_field_counts(records: TextRecords, delimiter: str, named: int, width: int, path: Path,
+                        header_line: int = 1, lines: list[int] | None = None,
+                        names_option: Option = Option.NAMES_ROW, data_line: int = 0) -> int:
+    """Every data record (those of ``records`` after the header on ``header_line``, from the line ``data_line`` on)
+    must have a field for each of the ``named`` columns and no values beyond them.  Empty fields after them (a
+    delimiter at the end of each line, as some programs write them; ``width`` fields in the header line) are
+    accepted.  Returns the largest number of fields in a record; ``lines`` receives the line on which each record
+    the table parser reads as a row starts."""
     widest = width
-    records = _records(text, delimiter, delimiters_only=True)  # (``text`` starts at the header line)
-    next(records, None)  # the header
     previous = None
-    for line, fields in records:
+    for line, fields in records.read(delimiters_only=True, after=header_line):
+        if line < data_line:  # a row between the header and the first row of data, not read
+            continue
         n = len(fields)
-        line += header_line - 1
         if lines is not None:
             lines.append(line)
         if previous is not None and line - previous[0] > 1:  # the record before ran over several lines
@@ -1039,14 +1080,15 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     if "\x00" in text:
         raise DataError(f"data file '{path}' is not a text file (it contains NUL bytes); save it as CSV")
     delimiter = _delimiter(text)
-    first = next(_records(text, delimiter, limit=1), None)
+    records = text_records(text, delimiter)  # the one reading of the records
+    first = next(records.read(), None)
     if first is None:
         raise DataError(f"data file '{path}' is empty")
-    rows = text_rows(text, delimiter)  # rows as a spreadsheet shows the file: one per record
+    rows = text_rows(text, delimiter, records)  # rows as a spreadsheet shows the file: one per record
     if names_row is not None:
         start_row = _names_row_start(names_row, rows.count, rows.row(first[0]) - 1, str(path), names_option) + 1
         start = rows.line(start_row)
-        first = next(((line, fields) for line, fields in _records(text, delimiter) if line >= start), None)
+        first = next(records.read(after=start - 1), None)
         if first is None or first[0] != start:
             raise DataError(f"{path}: {rows.words(start_row)}, named by {names_option}, is empty")
         if notes is not None:
@@ -1054,9 +1096,10 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     header_line, header = first
     header_row = rows.row(header_line)
     between: list[tuple[int, list[str]]] = []  # the rows a first row of data leaves unread
+    data_line = 0  # the line where the rows of data start (0: below the header)
     if first_data_row is not None:
-        text = _skip_to_data(text, delimiter, header_line, first_data_row, str(path), names_option, notes, between,
-                             rows)
+        text, data_line = _skip_to_data(text, records, header_line, first_data_row, str(path), names_option, notes,
+                                        between, rows)
     header = [h.strip() for h in header]
     trailing = 0
     while len(header) > 1 and not header[-1]:  # a delimiter at the end of the header line
@@ -1071,8 +1114,8 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     _check_duplicates(header, str(path), named_by)
     lines: list[int] = []  # the line each row starts on (messages about a malformed line name it)
     body = text[_offset_of_line(text, header_line):]  # from the header line on, cut out once
-    widest = _check_field_counts(body, delimiter, len(header), len(header) + trailing, path, header_line,
-                                 lines, names_option)
+    widest = _check_field_counts(records, delimiter, len(header), len(header) + trailing, path, header_line,
+                                 lines, names_option, data_line)
     decimal = _decimal_mark(body, delimiter)
     if reading is not None:
         reading.append(TextReading(encoding, delimiter, decimal, header_line, header_row))
@@ -1172,30 +1215,28 @@ def _skipped_note(where: str, names_row: int, skipped: int, first_data_row: int,
             f"row of data, {first_data_row}, as {option.given(first_data_row)} asks)")
 
 
-def _skip_to_data(text: str, delimiter: str, header_line: int, first_data_row, where: str, names_option: Option,
-                  notes: list[str] | None, between: list | None = None, rows: TextRows | None = None) -> str:
-    """``text`` with the lines between the header (on ``header_line``) and the row ``first_data_row`` (a row as a
-    spreadsheet shows the file, ``rows``) left empty, so that they are not read and every other line keeps its
-    number; an error when no record starts on that row.  ``between`` receives the records left unread: (row,
-    fields)."""
-    rows = rows if rows is not None else text_rows(text, delimiter)
+def _skip_to_data(text: str, records: TextRecords, header_line: int, first_data_row, where: str,
+                  names_option: Option, notes: list[str] | None, between: list, rows: TextRows) -> tuple[str, int]:
+    """``text`` (read as ``records``, :func:`text_records`; its rows ``rows``) with the lines between the header (on
+    ``header_line``) and the row ``first_data_row`` (a row as a spreadsheet shows the file) left empty, so that they
+    are not read and every other line keeps its number, and the line where that row starts; an error when no record
+    starts on that row.  ``between`` receives the records left unread: (row, fields)."""
     header_row = rows.row(header_line)
     start_row = _first_data_start(first_data_row, header_row, rows.count, where, names_option, None)
     start = rows.line(start_row)
-    records = [(line, fields) for line, fields in _records(text, delimiter, delimiters_only=True) if line > header_line]
-    after = [line for line, _ in records]
-    if between is not None:
-        between.extend((rows.row(line), fields) for line, fields in records if line < start)
+    after_header = list(records.read(delimiters_only=True, after=header_line))
+    after = [line for line, _ in after_header]
+    between.extend((rows.row(line), fields) for line, fields in after_header if line < start)
     if start not in after:
         raise DataError(f"{where}: {rows.words(start_row)} ({first_data_option(names_option).given(start_row)}) "
                         f"starts no row of data (it is empty)")
     if after[0] == start:  # (a header whose quoted names span lines ends on the line above)
-        return text
+        return text, start
     if notes is not None:
         notes.append(_skipped_note(where, header_row, rows.row(after[0]), start_row,
                                    first_data_option(names_option)))
     begin, end = _offset_of_line(text, after[0]), _offset_of_line(text, start)
-    return text[:begin] + "\n" * (start - after[0]) + text[end:]
+    return text[:begin] + "\n" * (start - after[0]) + text[end:], start
 
 
 def _spanning_note(path, rows: TextRows) -> str:

@@ -211,15 +211,17 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
                            text_columns: tuple[str, ...] = (), items=None,
                            names_row: int | None = None, names_option: Option = Option.NAMES_ROW,
                            first_data_row: int | None = None, name_the_file: bool = False, rename=None,
-                           rename_option: Option = Option.RENAME, chosen: dict[str, str] | None = None
-                           ) -> tuple[Spec, LoadedData, list[str]]:
+                           rename_option: Option = Option.RENAME, chosen: dict[str, str] | None = None,
+                           keeps_gaps: bool | None = None) -> tuple[Spec, LoadedData, list[str]]:
     """The model and the data read for it, as every command that reads rows reads each of its files; no-answer
     words and labels are read as missing in ``items`` only (None: the model's items), never in a group, id or design
     column; ``names_option``: the option that gave ``names_row`` (replicate's validation file has its own);
     ``name_the_file``: the row filters' notes name the file (one of several files filtered alike); ``rename``:
     columns read under new names (the option --rename, data.renamed_columns), before anything looks at the names;
     ``chosen``: the columns the run chooses for other roles (data.matching.chosen_columns), which may not share a
-    factor's name (a column that does and that the run does not read is named in a note)."""
+    factor's name (a column that does and that the run does not read is named in a note); ``keeps_gaps``: whether the
+    fit keeps rows with gaps (None: no fit says), by which a half of halves of the complete rows is read or refused
+    (data.halves.half_kept)."""
     keep = keep_option(keep)
     spec = load_spec(model)
     halves = [k for k in keep if isinstance(k, RandomHalf)]
@@ -239,7 +241,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     notes: list[str] = list(loaded.notes)
     loaded, filter_notes = rows_kept(replace(loaded, frame=frame) if frame is not loaded.frame else loaded, filters)
     if halves:  # the halves were drawn from the rows the filters kept
-        loaded = half_of(loaded, halves[0], data, sheet)
+        loaded = half_of(loaded, halves[0], data, sheet, spec.observed_names, keeps_gaps)
         notes.append(loaded.row_filters[-1].note())
     frame, cautions, filters = loaded.frame, loaded.cautions, loaded.row_filters
     notes += [f"{loaded.source}: {note}" for note in filter_notes] if name_the_file else filter_notes
@@ -319,10 +321,12 @@ def rows_kept(loaded: LoadedData, filters) -> tuple[LoadedData, list[str]]:
                    row_filters=tuple(filters)), notes
 
 
-def half_of(loaded: LoadedData, choice: RandomHalf, data, sheet: str | None = None) -> LoadedData:
+def half_of(loaded: LoadedData, choice: RandomHalf, data, sheet: str | None = None, items: tuple[str, ...] = (),
+            keeps_gaps: bool | None = None) -> LoadedData:
     """``loaded`` with only the rows of one half of a halves file (data.halves.half_kept, checked against the data
-    file ``data`` and the ``sheet`` asked for), the half joining the row filters that the reports name."""
-    frame, half = half_kept(loaded.frame, choice, data, loaded.source, sheet)
+    file ``data``, the ``sheet`` asked for and the sheet read, and the model's ``items`` with the handling of rows
+    with gaps), the half joining the row filters that the reports name."""
+    frame, half = half_kept(loaded.frame, choice, data, loaded.source, sheet, loaded.sheet_read, items, keeps_gaps)
     return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame),
                    read_frame=loaded.read_frame if loaded.read_frame is not None else loaded.frame,
                    row_filters=tuple(loaded.row_filters) + (half,))
@@ -494,7 +498,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                                                  first_data_row=first_data_row, rename=rename,
                                                  items=spec.observed_names + helpers if helpers else None,
                                                  chosen=chosen_columns(group, id_column, design,
-                                                                       fit_options.missing_helpers))
+                                                                       fit_options.missing_helpers),
+                                                 keeps_gaps=fit_options.missing is not MissingData.LISTWISE)
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
     if id_column is not None:
@@ -1026,12 +1031,12 @@ def refuse_totals_rows(loaded: LoadedData) -> LoadedData:
     "the model cannot be estimated", naming the row only as a likely cause).  Called where the rows analysed are
     known, before any estimation: by :func:`analysed_odd_values` and on entering :func:`odd_values_named` (a means
     row, which moves the estimates little, stays a caution)."""
-    from cfa_tool.data.odd_values import OddKind, row_naming_cell
+    from cfa_tool.data.odd_values import OddKind
 
     odd = next((o for o in loaded.odd_values if o.kind is OddKind.SUMS_ROW), None)
     if odd is None:
         return loaded
-    raise DataError(odd.totals_refusal(loaded.source, row_naming_cell(loaded.frame, odd, odd.columns)))
+    raise DataError(odd.totals_refusal(loaded.source, loaded.frame))
 
 
 @contextmanager

@@ -126,20 +126,26 @@ def test_halves_edited_by_hand_or_of_another_seed_are_refused(explored, tmp_path
         assert len(err.strip().splitlines()) == 1 and path.read_bytes() == before
 
 
+def two_waves(folder):
+    """A workbook of two sheets: Wave1, the Holzinger & Swineford rows, and Wave2, the same rows reordered."""
+    hs = pd.read_csv(HS_FILE)
+    book = folder / "waves.xlsx"
+    with pd.ExcelWriter(book) as writer:
+        hs.to_excel(writer, sheet_name="Wave1", index=False)
+        hs.iloc[::-1].to_excel(writer, sheet_name="Wave2", index=False)
+    return book
+
+
 def test_halves_of_another_sheet_are_refused(tmp_path, capsys):
     """explore --sheet Wave1 --split, then fit --sheet Wave2 --half: the workbook's checksum is the same, so the halves
     file names the sheet it was drawn from and another sheet is refused (a hostile tester's finding: the second
     sheet's rows, the same riders reordered, were fitted as the confirmation half)."""
-    hs = pd.read_csv(HS_FILE)
-    book = tmp_path / "waves.xlsx"
-    with pd.ExcelWriter(book) as writer:
-        hs.to_excel(writer, sheet_name="Wave1", index=False)
-        hs.iloc[::-1].to_excel(writer, sheet_name="Wave2", index=False)
+    book = two_waves(tmp_path)
     halves = tmp_path / "halves.csv"
     code, _, err = _run(["explore", "--data", book, "--sheet", "Wave1", "--items", "x1..x9", "--factors", 3,
                          "--split", 5, "--halves-file", halves], capsys)
     assert code == 0, err
-    assert set(pd.read_csv(halves)["sheet"]) == {"Wave1"}
+    assert set(pd.read_csv(halves)["sheet_read"]) == {"Wave1"}
     model = tmp_path / "m.cfa"
     model.write_text(EDITED)
     code, _, err = _run(["fit", model, "--data", book, "--sheet", "Wave2", "--half", halves, "confirmation"], capsys)
@@ -155,7 +161,8 @@ def test_halves_of_another_sheet_are_refused(tmp_path, capsys):
                          "--split", 5, "--halves-file", second], capsys)
     assert code == 0, err
     code, _, err = _run(["fit", model, "--data", book, "--half", second, "confirmation"], capsys)
-    assert code == 2 and "holds the halves of the sheet 'Wave2'" in err and "the first sheet (no sheet asked for)" in err
+    assert code == 2 and ("holds the halves of the sheet 'Wave2' of 'waves.xlsx', and this run reads the sheet "
+                          "'Wave1' (the first sheet; no sheet asked for): give --sheet Wave2") in err
 
 
 def test_a_halves_file_that_is_a_folder_or_a_workbook_is_said_so(tmp_path, capsys):

@@ -35,8 +35,8 @@ def test_both_commands_save_the_same_halves_and_the_rows_refit_as_reported(tmp_p
     assert code == 0, err
     assert f"The rows of each half written to {explored}" in out
     halves = pd.read_csv(explored)
-    assert list(halves.columns) == ["row", "half", "seed", "data_file", "data_sha256", "sheet"]
-    assert halves["sheet"].isna().all()  # no sheet asked for (a text file)
+    assert list(halves.columns) == ["row", "half", "seed", "data_file", "data_sha256", "sheet_read"]
+    assert halves["sheet_read"].isna().all()  # no sheet read (a text file)
     assert set(halves["seed"]) == {5} and set(halves["data_file"]) == {HS_FILE.name}
     assert set(halves["data_sha256"]) == {hashlib.sha256(HS_FILE.read_bytes()).hexdigest()}  # hashlib: Python's own
     assert halves["row"].tolist() == list(range(2, 303))  # every row once, in the order of the file (by its line)

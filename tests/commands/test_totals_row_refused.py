@@ -152,15 +152,27 @@ def test_the_row_filter_suggested_keeps_every_other_row(rider_demo, rider_model,
     assert str(found.value).endswith("or leave it out with a row filter (keep=...).")
 
 
-def test_a_totals_row_outside_a_declared_scale_is_refused_with_a_filter_that_keeps_the_rest(rider_demo, rider_model,
-                                                                                          tmp_path):
-    """The declared scale's route ('reversed ITEM on 1 to 5', data.matching) names the totals row with the same
-    row filter rule as every command's refusal (odd_values.row_naming_cell, re-read s14)."""
+def test_a_totals_row_outside_a_declared_scale_is_refused_in_the_words_of_every_command(rider_demo, rider_model,
+                                                                                       tmp_path, capsys):
+    """The declared scale's route ('reversed ITEM on 1 to 5', data.matching, which meets the totals row first) refuses
+    it with the one message every command gives (OddValues.totals_refusal; s15: it had a message of its own): exit 2,
+    the file, the row and the row filter that keeps every other row, or none when no cell names the row."""
     path = tmp_path / "declared.csv"
     _with_totals(rider_demo).to_csv(path, index=False)
+    unnamed = tmp_path / "unnamed.csv"
+    _with_totals(rider_demo).assign(rider_id="").to_csv(unnamed, index=False)
     item = rider_demo.columns[2]
-    with pytest.raises(DataError) as found:
+    model, declared = tmp_path / "m.cfa", tmp_path / "declared.cfa"
+    model.write_text(rider_model)
+    declared.write_text(rider_model + f"reversed {item} on 1 to 5\n")
+    for data, keep in ((path, '(--keep "rider_id != Total").'), (unnamed, "(--keep).")):
+        said = []
+        for each in (model, declared):
+            code, _, err = run_cli(["fit", each, "--data", data], capsys)
+            assert code == 2 and err.strip().count("\n") == 0
+            said.append(err)
+        assert said[0] == said[1]
+        assert said[1].startswith(f"cfa-tool: Row 482 of {data.name} holds the sums of the other rows' answers")
+        assert said[1].strip().endswith(f"delete row 482 from the file, or leave it out with a row filter {keep}")
+    with pytest.raises(DataError, match=r"leave it out with a row filter \(keep=\['rider_id != Total'\]\)"):
         cfa_tool.fit(rider_model + f"reversed {item} on 1 to 5\n", str(path))
-    said = str(found.value)
-    assert said.startswith("Row 482 of declared.csv holds the sums of the other rows' answers")
-    assert "the model cannot be fitted with it" in said and "keep=['rider_id != Total']" in said

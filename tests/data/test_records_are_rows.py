@@ -185,3 +185,50 @@ def test_a_row_that_answers_nothing_is_named_by_its_row_and_line(rider_demo, rid
                                                      f"{row} (text line {line}))")]
     assert f"1 with no answer to any model variable (row {row} (text line {line}))." in \
         " ".join(cfa_tool.check(rider_model, str(path)).summary().split())
+
+
+def test_a_quoted_file_is_read_once_by_the_csv_module(rider_demo, tmp_path, monkeypatch):
+    """The rows' numbers, the header, the rows a first row of data skips and the field counts come from one reading
+    of the records (s15: the rows' numbers and the field counts each read the whole file): the csv module yields
+    each record once, beside the few records the separator is guessed from (50 per separator tried)."""
+    import cfa_tool.data.readers as readers
+
+    path = tmp_path / "export.csv"
+    text = _export(rider_demo, path)
+    records = sum(1 for _ in csv.reader(text.splitlines(keepends=True)))  # the csv module's own count
+    yielded = []
+    real = csv.reader
+
+    class Counted:  # csv.reader, each record it yields counted
+        def __init__(self, *args, **kwargs):
+            self.reader = real(*args, **kwargs)
+
+        def __iter__(self):
+            return self
+
+        def __next__(self):
+            fields = next(self.reader)
+            yielded.append(fields)
+            return fields
+
+        @property
+        def line_num(self):
+            return self.reader.line_num
+
+    monkeypatch.setattr(readers.csv, "reader", Counted)
+    loaded = read_data(path, names_row=1, first_data_row=3)
+    assert len(loaded.frame) == len(rider_demo) - 1  # the first record of data left unread
+    guessed = sum(1 for d in ",;\t|" if d in text) * 50
+    assert records <= len(yielded) <= records + guessed
+
+
+def test_a_record_the_csv_module_cannot_read_is_named_by_its_text_line(rider_demo, tmp_path):
+    """A quote left open before a value longer than the csv module's field limit (131072 characters): the error
+    names the text line where the record starts, counted from the top of the file, not from the column names
+    (s15: a title line above them made it one less)."""
+    path = tmp_path / "long.csv"
+    lines = rider_demo.to_csv(index=False).splitlines()
+    lines[31] += ',"' + "x" * 200_000  # data record 31, text line 33 below the title
+    path.write_text("Rider survey\n" + "\n".join(lines) + "\n")
+    with pytest.raises(DataError, match=r"^line 33: field larger than field limit"):
+        read_data(path, names_row=2)

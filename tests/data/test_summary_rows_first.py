@@ -38,7 +38,7 @@ def test_a_totals_row_is_named_before_the_declared_scale(rider_demo, rider_model
     assert code == 2
     row = len(totals) + 1  # the file's row: the header is row 1
     assert err.startswith(f"cfa-tool: Row {row} of survey.csv holds the sums of the other rows' answers")
-    assert "outside the scale 1 to 5 that a 'reversed' statement" in err
+    assert "a spreadsheet's totals row, not anyone's answers" in err  # the words every command refuses it with (s15)
     assert '--keep "rider_id != Total"' in err and "--missing-codes" not in err
     # left out as advised, the data are read
     code, _, _ = run_cli(["check", model, "--data", data, "--keep", "rider_id != Total"], capsys)
