@@ -14,7 +14,7 @@ import pytest
 
 import cfa_tool
 from cfa_tool.assessment.admissibility import ProblemKind
-from cfa_tool.data.non_answers import between_answers, labelled_non_answers
+from cfa_tool.data.non_answers import labelled_non_answers
 from cfa_tool.resources import resource_dir
 
 SCALE = {1.0: "Strongly disagree", 2.0: "Disagree", 4.0: "Agree", 5.0: "Strongly agree"}
@@ -47,6 +47,8 @@ def test_a_code_between_labelled_answers_is_an_answer_in_either_order_of_words(m
 
 
 def test_the_answers_around_a_code_may_be_labelled_or_answered():
+    from cfa_tool.data.non_answers import between_answers
+
     # no label but the midpoint's: the answers 1, 2, 4 and 5 in the cells make 3 a code between answers
     assert between_answers(3.0, {3.0: "Don't know", 9.0: "Refused"}, present=[1.0, 2.0, 3.0, 4.0, 5.0, 9.0])
     # beyond the answers: no answer, labelled or answered

@@ -11,7 +11,6 @@ import pytest
 
 import cfa_tool
 from cfa_tool.cli import main
-from cfa_tool.data.labels import refuse_moved_labels
 from cfa_tool.errors import DataError
 from cfa_tool.resources import resource_dir
 
@@ -37,6 +36,8 @@ def samples(tmp_path_factory):
 
 
 def test_labels_on_other_codes_are_refused_with_the_recoding():
+    from cfa_tool.data.labels import refuse_moved_labels
+
     message = "val.sav: the value label 'Strongly agree' of q1 is code 1 here but code 5 in the fit's data (cal.sav)"
     with pytest.raises(DataError, match="recode q1 in a copy of val.sav .1 as 5, 2 as 4, 4 as 2, 5 as 1.") as caught:
         refuse_moved_labels({"values": {"q1": {"1.0": "Strongly disagree", "5.0": "Strongly agree", "4.0": "Agree",
