@@ -143,7 +143,7 @@ class CodeOnAnswer:
                 f"{base_name(source)} labels '{printable(self.label)}', an answer between the other answers "
                 f"({self.scale[0]:g} to {self.scale[1]:g}) of {len(self.columns) if many else 'the'} "
                 f"item{'s' if many else ''} holding it: {cells} cell{'s' if cells != 1 else ''} ({listed}) in {rows} "
-                f"row{'s' if rows != 1 else ''} became gaps, analysed as if those rows had not answered, not as "
+                f"row{'s' if rows != 1 else ''} became gaps, analysed as missing answers, not as "
                 f"'{printable(self.label)}'.")
 
     def advice(self) -> str:
