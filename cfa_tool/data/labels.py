@@ -226,7 +226,8 @@ def refuse_moved_labels(fitted: dict | None, value_labels: dict, items, source: 
     {'values': {item: {code: label}}}, codes as numbers or as text); ``value_labels``: the scored file's.  An item
     labelled on both sides with one label text (as :func:`label_text` reads it, case aside) on different codes is
     a DataError naming the item, the label, both codes and the recoding that gives each label the fit's code; labels
-    missing on one side, or carried by several codes, say nothing."""
+    missing on one side, carried by several codes, or saying no answer (read as missing on both sides: 8 'Refused'
+    there, 9 'Refused' here; data.non_answers.says_no_answer), say nothing."""
     from cfa_tool.errors import DataError
     from cfa_tool.input_files import base_name
 
@@ -255,12 +256,15 @@ def refuse_moved_labels(fitted: dict | None, value_labels: dict, items, source: 
 
 def _codes_by_label(labels: dict | None) -> dict[str, tuple[str, float]]:
     """{label as compared (:func:`label_text`, case aside): (label, code)} of one item's numeric codes whose label no
-    other code carries; codes written as text ('1.0', as a fit's JSON keeps them) read as numbers."""
+    other code carries and does not say no answer; codes written as text ('1.0', as a fit's JSON keeps them) read as
+    numbers."""
+    from cfa_tool.data.non_answers import says_no_answer
     from cfa_tool.numbers import number
 
     found: dict[str, list[tuple[str, float]]] = {}
     for code, text in (labels or {}).items():
         value = number(code) if isinstance(code, str) else code
-        if isinstance(value, (int, float)) and not isinstance(value, bool) and isinstance(text, str) and text.strip():
+        if isinstance(value, (int, float)) and not isinstance(value, bool) and isinstance(text, str) and text.strip() \
+                and not says_no_answer(text, explained=True):
             found.setdefault(label_text(text).casefold(), []).append((text, float(value)))
     return {key: codes[0] for key, codes in found.items() if len(codes) == 1}

@@ -49,6 +49,8 @@ def test_labels_on_other_codes_are_refused_with_the_recoding():
     refuse_moved_labels({"values": {"q1": FORWARD}}, {}, ["q1"], "val.sav", "cal.sav")
     refuse_moved_labels({"values": {"q1": FORWARD}}, {"q1": {**FORWARD, 9.0: "Refused"}}, ["q1"], "val.sav", "c.sav")
     refuse_moved_labels({"values": {"q1": {1.0: "x", 2.0: "x"}}}, {"q1": {3.0: "x"}}, ["q1"], "val.sav", "c.sav")
+    refuse_moved_labels({"values": {"q1": {**FORWARD, 8.0: "Refused"}}}, {"q1": {**FORWARD, 9.0: "Refused"}}, ["q1"],
+                        "val.sav", "c.sav")
 
 
 def test_scores_with_a_saved_fit_refuse_data_coded_the_other_way(samples, tmp_path, capsys):
