@@ -173,6 +173,8 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         labels = (value_labels or {}).get(f.column)
         by_label = ""
         shared: tuple[tuple[str, int], ...] = ()
+        if labels and isinstance(f.value, float):
+            _refuse_label_of_other_code(f, column, labels, source)
         if labels and not isinstance(f.value, float) and f.operator in ("=", "!="):
             shared = _codes_of_label(column, labels, f.value)
             column = column.map(lambda v: labels.get(v, v) if pd.notna(v) else v)  # codes -> their labels
@@ -235,6 +237,46 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         frame.attrs[KEPT_BY] = tuple(f.text for f in filters)  # follows the frame through selections and groups
     return frame, notes, tuple(counted)
 
+
+
+def _refuse_label_of_other_code(f: RowFilter, column: pd.Series, labels: dict, source: str) -> None:
+    """Refuse a row filter whose number is a value label of another code of its column (grade coded 1 to 5 with the
+    labels '6' to '10', which the groups and reports show: 'grade != 6'), which a filter compares with the codes: the
+    error names both readings, the code it would match and the label's code, and how to write each (hostile trial
+    s15, finding 4).  Text labels ('north') are compared with the labels as before."""
+    value = f.value
+    others = sorted(float(code) for code, text in labels.items()
+                    if isinstance(code, (int, float)) and float(code) != value and isinstance(text, str)
+                    and number(text.strip()) == value)
+    if not others:
+        return
+    code = others[0]
+    name = printable(f.column)
+    shown = label_text(value)
+
+    def rows(n: int) -> str:
+        return f"{n} row{'s' if n != 1 else ''}"
+
+    held = int((column == value).sum())
+    own = labels.get(value)
+    as_code = f"the code {shown} ({rows(held) if held else 'no row holds it'})"
+    if isinstance(own, str) and number(own.strip()) is None:
+        write_code = f"to compare with the code {shown}, write its label: '{name} {f.operator} \"{printable(own)}\"'"
+    elif held:
+        write_code = f"the code {shown} has no label of its own to compare with: give it one in a copy of the file"
+    else:
+        write_code = ""
+    label_rows = int((column == code).sum())
+    as_label = f"the value label '{shown}' of code {label_text(code)} ({rows(label_rows)})"
+    if f.operator in ("=", "!="):
+        write_label = (f"to compare with the label, write its code: '{name} {f.operator} {label_text(code)}' (or the "
+                       f"label in quotes: '{name} {f.operator} \"{shown}\"')")
+    else:
+        write_label = (f"to compare with the label, write the code it labels: '{name} {f.operator} "
+                       f"{label_text(code)}', if the codes run in the order of their labels")
+    raise OptionError(f"row filter '{printable(f)}': in {source}, '{name}' holds codes with value labels, and "
+                      f"{shown} could mean {as_code} or {as_label}, which the groups and reports show; "
+                      f"{write_label}" + (f"; {write_code}" if write_code else ""))
 
 
 def _codes_of_label(column: pd.Series, labels: dict, value) -> tuple[tuple[str, int], ...]:

@@ -218,3 +218,54 @@ def ordered_labels(labels, frame, column: str) -> list[str]:
         return coded + sorted(rest, key=number)
     return coded + sorted(rest)
 
+
+
+def refuse_moved_labels(fitted: dict | None, value_labels: dict, items, source: str, fit_source: str) -> None:
+    """Refuse to score data whose value labels sit on other codes than in the data of the fit that scores them
+    (hostile trial s15, finding 3: 1 = 'Strongly agree' in the file scored, 1 = 'Strongly disagree' in the fit's
+    data, every score of the wrong sign).  ``fitted``: the fit's labels (FitResult.labels, or 'labels' of its JSON:
+    {'values': {item: {code: label}}}, codes as numbers or as text); ``value_labels``: the scored file's.  An item
+    labelled on both sides with one label text (as :func:`label_text` reads it, case aside) on different codes is
+    a DataError naming the item, the label, both codes and the recoding that gives each label the fit's code; labels
+    missing on one side, carried by several codes, or saying no answer (read as missing on both sides: 8 'Refused'
+    there, 9 'Refused' here; data.non_answers.says_no_answer), say nothing."""
+    from cfa_tool.errors import DataError
+    from cfa_tool.input_files import base_name
+
+    theirs = (fitted or {}).get("values") or {}
+    moved: list[tuple[str, list[tuple[str, float, float]]]] = []
+    for item in items:
+        here, there = _codes_by_label(value_labels.get(item)), _codes_by_label(theirs.get(item))
+        pairs = [(label, code, there[key][1]) for key, (label, code) in here.items()
+                 if key in there and there[key][1] != code]
+        if pairs:
+            moved.append((item, sorted(pairs, key=lambda p: p[1])))
+    if not moved:
+        return
+    item, pairs = moved[0]
+    label, code, their_code = pairs[0]
+    recode = ", ".join(f"{c:g} as {t:g}" for _, c, t in pairs)
+    others = [printable(i) for i, _ in moved[1:]]
+    more = (f"; {len(others)} more item{'s' if len(others) != 1 else ''} ({', '.join(others[:5])}"
+            f"{' and more' if len(others) > 5 else ''}) {'has' if len(others) == 1 else 'have'} labels on other "
+            f"codes too") if others else ""
+    raise DataError(f"{base_name(source)}: the value label '{printable(label)}' of {printable(item)} is code {code:g} "
+                    f"here but code {their_code:g} in the fit's data ({base_name(fit_source)}), so its answers would "
+                    f"be scored as other answers{more}; recode {printable(item)} in a copy of {base_name(source)} "
+                    f"({recode}) so that each label has the fit's code, then score it")
+
+
+def _codes_by_label(labels: dict | None) -> dict[str, tuple[str, float]]:
+    """{label as compared (:func:`label_text`, case aside): (label, code)} of one item's numeric codes whose label no
+    other code carries and does not say no answer; codes written as text ('1.0', as a fit's JSON keeps them) read as
+    numbers."""
+    from cfa_tool.data.non_answers import says_no_answer
+    from cfa_tool.numbers import number
+
+    found: dict[str, list[tuple[str, float]]] = {}
+    for code, text in (labels or {}).items():
+        value = number(code) if isinstance(code, str) else code
+        if isinstance(value, (int, float)) and not isinstance(value, bool) and isinstance(text, str) and text.strip() \
+                and not says_no_answer(text, explained=True):
+            found.setdefault(label_text(text).casefold(), []).append((text, float(value)))
+    return {key: codes[0] for key, codes in found.items() if len(codes) == 1}

@@ -1,11 +1,15 @@
 """The one note of what --missing-codes read as no answer: the reader's count of cells of numbers (data/readers.py)
-and the count among answers recorded as words (data/answer_words.py) are both written by :func:`missing_codes_note`."""
+and the count among answers recorded as words (data/answer_words.py) are both written by :func:`missing_codes_note`;
+and the caution, first in every view, when a code given is one the data file labels as an answer between the items'
+other answers (:class:`CodeOnAnswer`)."""
 
 from __future__ import annotations
 
 from collections.abc import Collection
+from dataclasses import dataclass, replace
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 
 from cfa_tool.errors import printable
@@ -101,3 +105,82 @@ def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int]], filt
               f"{Option.KEEP.given(f'{printable(str(open_[0][0]))} != {open_[0][1]:g}')}" if open_ else "")
     return (f"{base_name(source)}: {Option.MISSING_CODES} applies to the model's items; other columns keep such a value as "
             f"it is ({shown}{more}){advice}")
+
+
+#: items and row numbers the caution of a code given for a labelled answer names before 'and N more'
+SHOWN = 6
+
+
+@dataclass(frozen=True)
+class CodeOnAnswer:
+    """A code given with --missing-codes that the data file labels as an answer between other answers of the items
+    ``columns`` (data.non_answers.between_answers: 3 'Neutral' between 2 'Disagree' and 4 'Agree'): its cells were
+    read as no answer, as the researcher asked, and every view says so first, naming the label, the items, the cells
+    and rows it turned into gaps (a researcher may mean it: the caution says what it did).  ``rows``: the row
+    numbers (data.moments.row_numbers) of its cells in each column; ``scale``: the lowest and highest of the items'
+    other answers."""
+
+    value: float
+    label: str
+    columns: tuple[str, ...]
+    rows: tuple[tuple[int, ...], ...]  # one tuple per column
+    scale: tuple[float, float]
+    #: the kind of problem every view files it under (assessment.admissibility.ProblemKind's value)
+    problem_kind: str = "labelled answers given as missing codes"
+
+    def among(self, kept) -> CodeOnAnswer | None:
+        """The cells in the rows that row filters kept (``kept``: row numbers), or None when they kept none."""
+        held = [(c, tuple(r for r in rows if r in kept)) for c, rows in zip(self.columns, self.rows)]
+        held = [(c, rows) for c, rows in held if rows]
+        return replace(self, columns=tuple(c for c, _ in held), rows=tuple(r for _, r in held)) if held else None
+
+    def caution(self, source: str) -> str:
+        cells = sum(len(r) for r in self.rows)
+        rows = len(set().union(*self.rows))
+        each = [f"{printable(str(c))} {len(r)}" for c, r in zip(self.columns, self.rows)]
+        listed = ", ".join(each[:SHOWN]) + (f" and {len(each) - SHOWN} more" if len(each) > SHOWN else "")
+        many = len(self.columns) != 1
+        return (f"{Option.MISSING_CODES.given(f'{self.value:g}')} read as no answer the code {self.value:g}, which "
+                f"{base_name(source)} labels '{printable(self.label)}', an answer between the other answers "
+                f"({self.scale[0]:g} to {self.scale[1]:g}) of {len(self.columns) if many else 'the'} "
+                f"item{'s' if many else ''} holding it: {cells} cell{'s' if cells != 1 else ''} ({listed}) in {rows} "
+                f"row{'s' if rows != 1 else ''} became gaps, analysed as missing answers, not as "
+                f"'{printable(self.label)}'.")
+
+    def advice(self) -> str:
+        return (f"If '{printable(self.label)}' is an answer, leave {self.value:g} out of {Option.MISSING_CODES}; if "
+                f"these items' {self.value:g} means no answer, nothing.")
+
+
+def codes_on_answers(frame: pd.DataFrame, codes, value_labels: dict, items: Collection[str] | None,
+                     rows: np.ndarray) -> tuple[CodeOnAnswer, ...]:
+    """The codes given with --missing-codes (``codes``) that the data file labels (``value_labels``) as an answer
+    between the other answers of the item columns ``items`` (None: every column) holding them, by the one rule of a
+    labelled code on the answer scale (data.non_answers.between_answers); ``frame``: the rows before the codes are
+    read as no answer; ``rows``: its row numbers (data.moments.row_numbers).  One for each code, label and scale,
+    naming every item that holds it."""
+    from cfa_tool.data.non_answers import between_answers, says_no_answer
+
+    numeric_codes = tuple(float(c) for c in codes if isinstance(c, (int, float)) and not isinstance(c, bool))
+    if not numeric_codes or not value_labels:
+        return ()
+    mine = None if items is None else {str(x) for x in items}
+    found: dict[tuple, list] = {}
+    for column, labels in value_labels.items():
+        if column not in frame.columns or (mine is not None and str(column) not in mine) \
+                or not pd.api.types.is_numeric_dtype(frame[column]):
+            continue
+        values = frame[column].to_numpy(dtype=float, na_value=np.nan)
+        present = [v for v in np.unique(values[np.isfinite(values)]).tolist() if v not in numeric_codes]
+        for code in numeric_codes:
+            text = labels.get(code)
+            cells = values == code
+            if not isinstance(text, str) or says_no_answer(text, explained=True) or not cells.any() \
+                    or not between_answers(code, labels, present, numeric_codes):
+                continue
+            answers = [float(k) for k, v in labels.items() if isinstance(k, float) and k not in numeric_codes
+                       and not says_no_answer(v, explained=True)] + present
+            found.setdefault((code, text, min(answers), max(answers)), []).append(
+                (column, tuple(int(r) for r in rows[cells])))
+    return tuple(CodeOnAnswer(code, text, tuple(c for c, _ in held), tuple(r for _, r in held), (low, high))
+                 for (code, text, low, high), held in found.items())

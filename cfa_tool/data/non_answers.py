@@ -50,9 +50,9 @@ NON_ANSWER_PHRASES = frozenset({
     "rather not say", "not stated", "no data", "question not asked",
 })
 
-#: phrases that some answer scales use for their middle answer ("Agree / Not sure / Disagree"): a code so labelled
-#: is no answer only when it stands beyond the scale's other labelled answers (9 'Not sure' after 1-5), never when
-#: it lies between them (3 'Not sure' between 1 'Disagree' and 5 'Agree' is an answer, and is analysed as one)
+#: phrases that some answer scales use for their middle answer ("Agree / Not sure / Disagree"): a column of answers
+#: written as words keeps a cell so written as an answer (:func:`written_non_answers`); a labelled code is judged by
+#: where it lies, whatever its words (:func:`between_answers`)
 MIDDLE_PHRASES = frozenset({"not sure", "unsure", "no opinion", "can t say", "cannot say", "can not say", "can t tell",
                             "cannot tell"})
 
@@ -100,8 +100,9 @@ def says_no_answer(text: object, explained: bool = False) -> bool:
     """Whether a value label or a cell's text says the value is not an answer: one of the phrases (or of the run's
     own words, :func:`also_no_answer`) as a whole ('N/A', 'DK/NA'), one of the :data:`NON_ANSWER_MARKS`, or several
     phrases joined by '/', ',', ';', '&' or 'or' ("Don't know / refused").  Phrases are compared as whole words, so
-    'Not at all', 'Never' or 'missing my bus' are answers.  ``explained`` (value labels): a phrase followed, after
-    such a separator, by words that explain it ('Not applicable / never ride')."""
+    'Not at all', 'Never' or 'missing my bus' are answers.  ``explained`` (value labels): a phrase joined by such a
+    separator to words that explain it, before or after them ('Not applicable / never ride', 'Neutral / not sure':
+    the order of the words does not decide; where the code lies does, :func:`between_answers`)."""
     if not isinstance(text, str) or not text.strip():
         return False
     if text.strip() in NON_ANSWER_MARKS:
@@ -113,7 +114,7 @@ def says_no_answer(text: object, explained: bool = False) -> bool:
     parts = [p for p in _parts(text) if p]
     if not parts:
         return False
-    return all(p in phrases for p in parts) or (explained and len(parts) > 1 and parts[0] in phrases)
+    return all(p in phrases for p in parts) or (explained and len(parts) > 1 and any(p in phrases for p in parts))
 
 
 def _parts(text: str) -> list[str]:
@@ -167,22 +168,24 @@ def labelled_non_answers(frame: pd.DataFrame, value_labels: dict, skip: tuple[fl
                          ) -> tuple[pd.DataFrame, tuple[NonAnswer, ...]]:
     """``frame`` with the codes whose value label says no answer read as missing (numeric columns, and text
     variables with labelled text codes), and what was read so; codes in ``skip`` (given as missing codes already)
-    are left to them."""
+    are left to them, and a code between the item's answers (:func:`between_answers`) stays an answer whatever its
+    label says (:func:`answers_labelled_like_none` names it)."""
     found: list[NonAnswer] = []
     out = frame
     for column, labels in value_labels.items():
         if column not in frame.columns:
             continue
         numeric = pd.api.types.is_numeric_dtype(frame[column])
-        codes = {code: text for code, text in labels.items()
-                 if isinstance(code, float if numeric else str) and code not in skip
-                 and says_no_answer(text, explained=True) and not (numeric and _middle_answer(code, text, labels))}
-        if not codes:
-            continue
         if numeric:
             values = frame[column].to_numpy(dtype=float, na_value=np.nan)
+            codes = _labelled_none(labels, values, skip)[0]
         else:  # a text variable: its cells as written, compared without spaces at their ends
-            values = np.array([v.strip() if isinstance(v, str) else None for v in frame[column]], dtype=object)
+            codes = {code: text for code, text in labels.items()
+                     if isinstance(code, str) and code not in skip and says_no_answer(text, explained=True)}
+            values = np.array([v.strip() if isinstance(v, str) else None for v in frame[column]], dtype=object) \
+                if codes else None
+        if not codes:
+            continue
         hit = np.zeros(len(values), dtype=bool)
         for code, text in sorted(codes.items()):
             cells = values == (code if numeric else code.strip())
@@ -196,14 +199,79 @@ def labelled_non_answers(frame: pd.DataFrame, value_labels: dict, skip: tuple[fl
     return out, tuple(found)
 
 
-def _middle_answer(code: float, text: str, labels: dict) -> bool:
-    """Whether a code labelled with a :data:`MIDDLE_PHRASES` phrase lies between the lowest and highest of the
-    other labelled answers, and so is an answer of the scale."""
-    if _plain(text) not in MIDDLE_PHRASES:
-        return False
-    answers = [float(k) for k, v in labels.items() if isinstance(k, (int, float)) and k != code
+def _labelled_none(labels: dict, values: np.ndarray, skip=()) -> tuple[dict, dict]:
+    """The numeric codes of one item whose value label says no answer (``labels``; ``values``: the item's cells;
+    codes in ``skip`` aside), split by :func:`between_answers`: ({code: label} read as no answer, {code: label}
+    between the item's answers and so kept as answers)."""
+    said = {code: text for code, text in labels.items()
+            if isinstance(code, float) and code not in skip and says_no_answer(text, explained=True)}
+    if not said:
+        return {}, {}
+    present = np.unique(values[np.isfinite(values)]).tolist()
+    kept = {code: text for code, text in said.items() if between_answers(code, labels, present, skip)}
+    return {c: t for c, t in said.items() if c not in kept}, kept
+
+
+def between_answers(code: float, labels: dict, present=(), skip=()) -> bool:
+    """Whether ``code`` lies between the answers of an item: a lower and a higher code are answers, either
+    labelled so (a value label, ``labels``, that does not say no answer) or answered (a value ``present`` in the
+    item without a label; a lone 9, 99, 999 aside, which data programs write for no answer, as the nines of
+    data.odd_values.code_like: its negative codes are answers of scales such as -2 to 2 here); codes in ``skip`` (given as missing codes) are no answers.  The one rule of a labelled code on the
+    answer scale: such a code is an answer whatever its label's words or their order ('Not sure / neutral' and
+    'Neutral / not sure' alike, :func:`labelled_non_answers`), and a missing code given for it is said first
+    (data.missing_codes.codes_on_answers); codes outside the answers (8, 9, 99, -1) labelled as no answer stay no
+    answer.  The project's own rule (a code labelled as the midpoint of a scale is analysed as an answer unless the
+    researcher says otherwise), not a published one."""
+    answers = [float(k) for k, v in labels.items() if isinstance(k, (int, float)) and not isinstance(k, bool)
                and not says_no_answer(v, explained=True)]
-    return len(answers) >= 2 and min(answers) < code < max(answers)
+    answers += [float(v) for v in present if v not in labels and not _nines(float(v))]
+    answers = [a for a in answers if a not in skip and a != code]
+    return any(a < code for a in answers) and any(a > code for a in answers)
+
+
+def _nines(value: float) -> bool:
+    """9, 99, 999, ...: codes data programs write for no answer (a stray one is no answer of the scale)."""
+    return value > 0 and value.is_integer() and set(str(int(value))) == {"9"}
+
+
+@dataclass(frozen=True)
+class LabelledAnswer:
+    """A code of one or more items whose value label reads like no answer but that lies between their answers
+    (:func:`between_answers`), so analysed as an answer: ``cells`` counts its cells in each of ``columns``."""
+
+    value: float
+    label: str
+    columns: tuple[str, ...]
+    cells: tuple[int, ...]
+
+    def note(self, source: str, given: tuple = ()) -> str:
+        """The note: where, how many cells, and how to read the code as no answer (``given``: the codes the run
+        gives with --missing-codes already, which the advice keeps)."""
+        listed = ", ".join(f"{printable(c)} {n}" for c, n in zip(self.columns[:SHOWN], self.cells[:SHOWN]))
+        more = f" and {_more(len(self.columns) - SHOWN, 'item')}" if len(self.columns) > SHOWN else ""
+        total = sum(self.cells)
+        codes = [f"{c:g}" for c in given if isinstance(c, (int, float))] + [f"{self.value:g}"]
+        return (f"{base_name(source)}: {self.value:g} '{printable(self.label)}' lies between other answers of the "
+                f"item{'s' if len(self.columns) != 1 else ''} and was analysed as an answer ({total} "
+                f"cell{'s' if total != 1 else ''}: {listed}{more}), though its label reads like no answer; to read it "
+                f"as no answer, give {Option.MISSING_CODES.given(','.join(codes))}")
+
+
+def answers_labelled_like_none(frame: pd.DataFrame, value_labels: dict, skip: tuple = ()) -> tuple[LabelledAnswer, ...]:
+    """The codes of ``frame``'s numeric columns labelled like no answer (``value_labels``) that lie between the
+    columns' answers and that cells hold, kept as answers by :func:`labelled_non_answers` (the same rule,
+    :func:`between_answers`); one for each code and label, naming every column holding it."""
+    found: dict[tuple, list[tuple[str, int]]] = {}
+    for column, labels in value_labels.items():
+        if column not in frame.columns or not pd.api.types.is_numeric_dtype(frame[column]):
+            continue
+        values = frame[column].to_numpy(dtype=float, na_value=np.nan)
+        for code, text in sorted(_labelled_none(labels, values, skip)[1].items()):
+            cells = int((values == code).sum())
+            if cells:
+                found.setdefault((code, text), []).append((column, cells))
+    return tuple(LabelledAnswer(code, text, tuple(c for c, _ in held), tuple(n for _, n in held))
+                 for (code, text), held in found.items())
 
 
 def unlabelled_extra_codes(column: np.ndarray, labels: dict) -> list[tuple[float, str]]:

@@ -25,10 +25,10 @@ import pandas as pd
 
 from cfa_tool.data.kept_rows import (SHEET_COLUMNS, TEXT_LINES, line_words, row_naming, row_words, rows_listed,
                                      text_lines)
-from cfa_tool.data.missing_codes import apply_missing_codes, missing_codes_note
+from cfa_tool.data.missing_codes import apply_missing_codes, codes_on_answers, missing_codes_note
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
-from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, non_answer_note, run_words, \
-    says_no_answer, unused_run_words, written_non_answers
+from cfa_tool.data.non_answers import answers_labelled_like_none, declared_missing, labelled_non_answers, \
+    non_answer_note, run_words, says_no_answer, unused_run_words, written_non_answers
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
 from cfa_tool.errors import DataError, printable
 from cfa_tool.options import Option
@@ -201,14 +201,19 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     mine = None if items is None else {str(x) for x in items}
     as_written = tuple(text_columns) if mine is None else tuple(c for c in loaded.frame.columns if str(c) not in mine)
     frame, written = written_non_answers(loaded.frame, as_written, listed)  # before the codes: 'refused' made a column text
+    item_labels = {c: v for c, v in loaded.value_labels.items() if c not in as_written}
+    on_answers = codes_on_answers(frame, missing_codes, item_labels, mine, row_numbers(frame)) if item_labels else ()
     frame, code_notes = apply_missing_codes(frame, missing_codes, where, mine, filters)  # in the items only
-    frame, labelled = labelled_non_answers(frame, {c: v for c, v in loaded.value_labels.items() if c not in as_written},
-                                           tuple(missing_codes))
+    frame, labelled = labelled_non_answers(frame, item_labels, tuple(missing_codes))
     if frame is not loaded.frame:
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
+    if on_answers:
+        loaded = replace(loaded, cautions=loaded.cautions + on_answers)
     read_as_none = non_answer_note(loaded.non_answers, str(where), mine)  # a note; rows lost: a caution too
     if read_as_none:
         code_notes = tuple(code_notes) + (read_as_none,)
+    code_notes = tuple(code_notes) + tuple(a.note(str(where), tuple(missing_codes))  # answers whose label reads like none
+                                           for a in answers_labelled_like_none(frame, item_labels, tuple(missing_codes)))
     unused = unused_run_words(written + labelled) if run_words() else ()
     if unused:  # the words of --missing-codes that no item holds: said as a code that no cell holds is
         code_notes = tuple(code_notes) + (missing_codes_note(where, unused, [], "of the items"),)

@@ -928,6 +928,10 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                                                      names_row=names_row, first_data_row=first_data_row, rename=rename,
                                                      chosen=api.chosen_columns(result.group_column, id_column))
     frame, source = loaded.frame, loaded.source
+    from cfa_tool.data.labels import refuse_moved_labels  # answers coded otherwise than in the fit's data: refused
+
+    refuse_moved_labels(getattr(result, "labels", None) or getattr(result, "payload", {}).get("labels"),
+                        loaded.value_labels, spec.observed_names, source, result.data.source)
     read_frame = _rows_as_read(loaded)
     if not len(read_frame):
         raise DataError(f"{source} has no rows to score")
