@@ -351,7 +351,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         raise OptionError(f"alpha is the level of the difference tests and of the partial search's score tests, which "
                           f"the fit-change rule without a partial search does not use; give alpha with "
                           f"{check.Option.DECIDE_BY.given('difference-test')}, "
-                          f"{check.Option.DECIDE_BY.given('both')} or a partial search (--partial auto)")
+                          f"{check.Option.DECIDE_BY.given('both')} or a partial search ({check.Option.PARTIAL.given('auto')})")
     alpha = check.probability("alpha (the level of the difference tests and of the partial search's score tests)",
                               0.05 if alpha is None else alpha)
     fit_options = replace(make_options(options, INVARIANCE_KEYWORDS), diagnostics=False)
