@@ -18,7 +18,7 @@ def add_parser(sub) -> None:
     O.add_group_options(inv, required=True)
     inv.add_argument("--partial", choices=("none", "auto"), default="none",
                      help="'auto': when a step fails, free the constraint with the largest score test until it holds")
-    inv.add_argument("--alpha", type=float, default=None, help="level of the chi-square difference tests (default .05)")
+    inv.add_argument("--alpha", type=float, default=None, help="level of the chi-square difference tests and of the partial search's score tests (default .05)")
     inv.add_argument("--decide-by", choices=tuple(m.value for m in DecisionRule), default="difference-test",
                      help="how each step is judged: the chi-square difference test (default), the change in CFI, RMSEA "
                           "and SRMR against common-practice guides, or both")

@@ -541,7 +541,10 @@ def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]
         for name, empty in by_item.items():
             items.setdefault(name, [])
             items[name] = sorted(set(items[name]) | set(empty))
-    mergeable = {name: empty for name, empty in items.items() if len(seen[name])}
+    # an item answered alike by a whole group has one category in common (or none): merged into it, the item would be
+    # constant in every group (hostile tester s15), so only dropping it or leaving the group out remains
+    mergeable = {name: empty for name, empty in items.items() if len(seen[name]) > 1}
+    constant = [name for name in items if len(seen[name]) <= 1]
     worded = {name: empty for name, empty in mergeable.items()
               if any(word is not None for word, _, _ in coded.get(name, ()))}
     beyond = sorted({v for name, empty in items.items() for v in empty if name not in worded  # a word's code is real
@@ -570,15 +573,21 @@ def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]
                     f"{'the item' if len(worded) == 1 else 'each item'}'s own (the report then says which words share "
                     f"a code): {statements}")
     recoded = {name: empty for name, empty in mergeable.items() if name not in worded}
+    alike = (f"{_quoted(constant)} {'has' if len(constant) == 1 else 'have'} at most one answer that every group "
+             f"gave, so merging {'its' if len(constant) == 1 else 'their'} categories would leave "
+             f"{'it' if len(constant) == 1 else 'them'} with one answer everywhere") if constant else ""
     if recoded:
         recode = " and ".join(f"'{printable(name)}' ({_merged_into(empty, seen[name])})" for name, empty in recoded.items())
         ways.append(f"{first}in a copy of the data file, recode {recode} in every group")
     elif first:
         ways.append(first.removesuffix("; if real, "))
+    rest = (f"drop {'the item' if one_item else 'those items'} from the model, or leave "
+            f"{'this group' if one_group else 'those groups'} out with a row filter ({Option.KEEP})")
+    if not ways:  # every item answered alike by a group: merging cannot help
+        return DataError(f"{said}; thresholds cannot be compared across groups with an empty category, and {alike}: "
+                         f"{rest}")
     return DataError(f"{said}; thresholds cannot be compared across groups with an empty category. The tool does not "
-                     f"merge categories on its own: {'; '.join(ways)}; or drop "
-                     f"{'the item' if one_item else 'those items'} from the model, or leave "
-                     f"{'this group' if one_group else 'those groups'} out with a row filter ({Option.KEEP})")
+                     f"merge categories on its own: {'; '.join(ways)}{f' ({alike})' if alike else ''}; or {rest}")
 
 
 def _quoted(names) -> str:

@@ -1231,8 +1231,13 @@ def label_tables(result) -> list[ReportTable]:
     if values:
         # codes are numbers, or text in a text variable ('a'), or Stata's '.a'
         rows = [[k, "; ".join(f"{label_text(code)} = {text}" for code, text in v.items())] for k, v in values.items()]
+        shared: dict[str, list[str]] = {}  # variables labelled alike share one line (new-user trial s15: twenty
+        for name, codes in rows:  # identical lines for twenty items); the data files keep one row per variable
+            shared.setdefault(codes, []).append(name)
+        shown = [[", ".join(names) + (f" ({len(names)} variables)" if len(names) > 3 else ""), codes]
+                 for codes, names in shared.items()]
         out.append(_table("value_labels", "Labels of the values (from the data file)",
-                          [("Variable", "l"), ("Codes", "l")], rows))
+                          [("Variable", "l"), ("Codes", "l")], shown, values=(["Variable", "Codes"], rows)))
     return out
 
 

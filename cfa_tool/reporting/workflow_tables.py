@@ -571,7 +571,8 @@ def invariance_report(result) -> Report:
                    f.score] for f in result.freed]
         columns = [("Level", "l"), ("Parameter", "l")] + ([("Pointed to by group", "l")] if many else []) + [
             ("Score test", "r")]
-        note = (f"Score tests: {result.score_tests.phrase}, each compared with chi-square(1) at the steps' level."
+        note = (f"Score tests: {result.score_tests.phrase}, each compared with chi-square(1) at alpha = "
+                f"{unit(result.alpha, 3).rstrip('0')}, the level the search stops at."
 
                 + (" Each freed parameter is freed in every group: its equality across the groups is dropped, so it "
                    "may differ between any of them; 'Pointed to by group' names the group whose constraint had the "

@@ -348,11 +348,14 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     if partial not in PARTIAL_CHOICES:
         raise OptionError(f"partial must be one of {', '.join(PARTIAL_CHOICES)}, not '{partial}'")
     rule = check.choice(DecisionRule, decide_by, "the decision rule")
-    if alpha is not None and rule is DecisionRule.FIT_CHANGE:
-        raise OptionError(f"alpha is the level of the difference tests, which the fit-change rule does not use; give "
-                          f"alpha only with {check.Option.DECIDE_BY.given('difference-test')} or "
-                          f"{check.Option.DECIDE_BY.given('both')}")
-    alpha = check.probability("alpha (the level of the difference tests)", 0.05 if alpha is None else alpha)
+    if alpha is not None and rule is DecisionRule.FIT_CHANGE and partial == "none":
+        # the partial search's score tests use it under every rule (hostile tester s15: refused while the search used it)
+        raise OptionError(f"alpha is the level of the difference tests and of the partial search's score tests, which "
+                          f"the fit-change rule without a partial search does not use; give alpha with "
+                          f"{check.Option.DECIDE_BY.given('difference-test')}, "
+                          f"{check.Option.DECIDE_BY.given('both')} or a partial search ({check.Option.PARTIAL.given('auto')})")
+    alpha = check.probability("alpha (the level of the difference tests and of the partial search's score tests)",
+                              0.05 if alpha is None else alpha)
     fit_options = replace(make_options(options, INVARIANCE_KEYWORDS), diagnostics=False)
     design = design_columns(weights, cluster, strata, weight_kind)
     spec, loaded, read_notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,

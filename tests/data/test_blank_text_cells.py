@@ -218,3 +218,19 @@ def test_blank_cells_of_every_kind_of_text_column_in_a_data_frame():
     assert frame["district"].tolist() == ["north", " ", "south"]  # the caller's frame is not changed
     clean = frame.drop(columns=["district", "lists", "q2", "q3"])
     assert blank_text_as_missing(clean) is clean
+
+
+def test_variables_labelled_alike_share_one_line_of_the_label_table(rider_demo, rider_model, tmp_path):
+    """New-user trial s15 (16): twenty items labelled alike made twenty identical lines; they share one line that
+    names them, while the table's data (CSV) keep one row per variable."""
+    from cfa_tool.reporting.tables import label_tables
+
+    items = _items(rider_demo)
+    labels = {c: {1: "Strongly disagree", 2: "Disagree", 3: "Neither", 4: "Agree", 5: "Strongly agree"} for c in items}
+    labels["clean"] = {**labels["clean"], 9: "Don't know"}
+    path = tmp_path / "riders.sav"
+    pyreadstat.write_sav(rider_demo.dropna(), str(path), variable_value_labels=labels)
+    table = label_tables(cfa_tool.fit(rider_model, str(path)))[-1]
+    others = [c for c in items if c != "clean"]
+    assert [row[0] for row in table.rows] == [", ".join(others) + f" ({len(others)} variables)", "clean"]
+    assert [row[0] for row in table.values] == list(items)

@@ -86,14 +86,14 @@ def test_the_suggested_option_names_items_as_the_option_reads_them(tmp_path):
     # quotes for the shell.  The suggested value is checked by giving it to the fit.
     import shlex
 
-    from cfa_tool.data.descriptives import few_category_note
+    from cfa_tool.data.descriptives import few_category_items, few_category_note
 
     rng = np.random.default_rng(1)
     f = rng.normal(size=400)
     names = ["I could find a seat, most days", "b", "c"]
     data = pd.DataFrame({x: np.digitize(0.8 * f + rng.normal(size=400) * 0.6, [-1, 0, 1]) + 1.0 for x in names})
     data["e"] = 0.8 * f + rng.normal(size=400) * 0.6
-    note = few_category_note(data.to_numpy(), tuple(data.columns))
+    note = few_category_note(few_category_items(data.to_numpy(), tuple(data.columns)), tuple(data.columns))
     suggested = shlex.split(note.split("--ordinal ", 1)[1].split("; from Python, ", 1)[0])[0]
     assert suggested == '"I could find a seat, most days",b,c'
     from cfa_tool.cli import main

@@ -111,7 +111,7 @@ def test_decision_rule_is_checked_and_named(tmp_path):
 
 
 def test_alpha_with_the_change_in_fit_rule_and_ordinal_change_in_fit_are_errors():
-    with pytest.raises(OptionError, match="which the fit-change rule does not use"):
+    with pytest.raises(OptionError, match="the fit-change rule without a partial search does not use"):
         invariance(MODEL, groups_data(1), "grp", decide_by="fit-change", alpha=0.01)
     data = groups_data(1)
     for item in [f"y{i}" for i in range(1, 7)]:
