@@ -192,11 +192,14 @@ def rows_per_parameter(rows: Sequence[float], free: Sequence[int], groups: Seque
                        uncounted: int = 0) -> tuple[RowsPerParameter, ...]:
     """The sample (``groups`` None; ``rows`` and ``free`` then hold one number each) or the groups of several
     (``groups`` their labels, ``rows`` and ``free`` one number per group) below :data:`ROWS_PER_PARAMETER` rows per
-    free parameter of their model (a model without free parameters is below nothing).  Each group of several is
-    judged on its own model's parameters, those its rows estimate (a parameter held equal across groups counts in
-    each), the count the fit's table and the check state: in a multi-group model each group's rows estimate their own
-    covariance structure and item means (Sorbom 1974, recalled from memory), so the rule of one sample applies to
-    each group, and every group below it is named, large or small."""
+    free parameter of their model (a model without free parameters is below nothing).  Which groups are named: each
+    group of several is judged on its own model's parameters, those its rows estimate (a parameter held equal across
+    groups counts in each; its item intercepts too, as the fit's table and the check count them), because in a
+    multi-group model each group's rows estimate their own covariance structure and means (Sorbom 1974, recalled
+    from memory); so every group below the rule is named with its figures, large or small (departments of 165 to 260
+    people under a 54-parameter model are 3.0 to 4.8 rows per parameter, and the note says those figures, not that
+    the groups are small).  The rule is a rule of thumb, common practice, not a finding (see
+    :data:`ROWS_PER_PARAMETER`)."""
     several = groups is not None
     return tuple(RowsPerParameter(n, q, label, 0 if several else uncounted)
                  for label, n, q in zip(groups if several else (None,), rows, free)

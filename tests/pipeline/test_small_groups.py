@@ -78,5 +78,5 @@ def test_a_fit_that_fails_in_a_small_group_says_so_first(hs_data):
 
     data = hs_data.reset_index(drop=True)[ITEMS + ["school"]].copy()
     data.loc[data.index[data.school == "Pasteur"][:29], "school"] = "Annex"  # 29 rows: the search does not converge
-    with pytest.raises(EstimationError, match=r"^Group Annex: 29 rows for the 30 free parameters.*did not converge"):
+    with pytest.raises(EstimationError, match=r"^Group \"Annex\": 29 rows for the 30 free parameters.*did not converge"):
         cfa_tool.fit(THREE_FACTORS, data, group="school")
