@@ -13,13 +13,14 @@ explanation and what the researcher can try; every view shows them first.
 from __future__ import annotations
 
 import enum
+import math
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
 import numpy as np
 
 from cfa_tool.errors import OptionError, printable
-from cfa_tool.language.names import reference_text, written_name
+from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.model.description import label_words, split_label
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.model.parameters import ParameterTable
@@ -137,59 +138,121 @@ DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.SMALL_EFFECTI
                              ProblemKind.FREQUENCY_WEIGHTS_LARGE})
 
 
-#: rows per free parameter a common rule of thumb asks for (Bentler & Chou 1987, recalled from memory: at least 5,
-#: better 10); a note below it, not a cutoff of its own
+#: rows per free parameter a common rule of thumb asks for (Bentler & Chou 1987, recalled from memory: as low as 5
+#: under normal theory when loadings are large and factors have many items, better 10); a note below it, not a cutoff
+#: of its own.  It is common practice, not a finding: simulation studies (Jackson 2003; Wolf, Harrington, Clark &
+#: Miller 2013, both recalled from memory) found the rows a model needs to depend more on its loadings, its items
+#: per factor and the whole N than on this ratio.
 ROWS_PER_PARAMETER = 5
 #: the rule in words, in the cautions of a small sample and of a small group alike
 ROWS_RULE = (f"a common rule of thumb (Bentler & Chou 1987) asks for at least {ROWS_PER_PARAMETER} rows "
              f"per parameter; a convention, not a law")
 
 
+@dataclass(frozen=True)
+class RowsPerParameter:
+    """The facts of the rule of rows per parameter for the sample (``group`` None) or one group of several: its rows,
+    its model's free parameters as the rule counts them (:func:`counted_parameters`, :func:`group_parameter_counts`)
+    and, for one group, the item means a full-information fit estimates beside them and the count leaves out
+    (``uncounted``).  The one record that the report's caution and note and the methods paragraph each only word."""
+
+    rows: float
+    parameters: int
+    group: str | None = None
+    uncounted: int = 0
+
+    @property
+    def per_parameter(self) -> float:
+        """Rows per free parameter."""
+        return self.rows / self.parameters
+
+    def ratio(self) -> str:
+        """Rows per parameter to one decimal, cut rather than rounded, so that 104 rows for 21 parameters (4.95)
+        read '4.9', not the '5.0' the rule asks for."""
+        return f"{math.floor(self.per_parameter * 10) / 10:.1f}"
+
+    @property
+    def fewer_rows_than_parameters(self) -> bool:
+        """Below one row per parameter: the caution that opens every view (else, below the rule, a note)."""
+        return self.rows < self.parameters
+
+    def figures(self) -> str:
+        """'165 rows for 54 parameters, 3.1 per parameter': the figures, plainly."""
+        return f"{self.rows:g} rows for {self.parameters} parameters, {self.ratio()} per parameter"
+
+    def besides(self) -> str:
+        """The item means a one-group count leaves out, named (' (not counting the 9 item means that
+        full-information ML estimates beside them)'); '' without."""
+        n = self.uncounted
+        return (f" (not counting the {n} item mean{'s' if n != 1 else ''} that full-information ML estimates beside "
+                f"{'them' if n != 1 else 'it'})" if n else "")
+
+    def to_dict(self) -> dict:
+        return {"rows": self.rows, "parameters": self.parameters, "group": self.group, "uncounted": self.uncounted}
+
+
+def rows_per_parameter(rows: Sequence[float], free: Sequence[int], groups: Sequence[str] | None = None,
+                       uncounted: int = 0) -> tuple[RowsPerParameter, ...]:
+    """The sample (``groups`` None; ``rows`` and ``free`` then hold one number each) or the groups of several
+    (``groups`` their labels, ``rows`` and ``free`` one number per group) below :data:`ROWS_PER_PARAMETER` rows per
+    free parameter of their model (a model without free parameters is below nothing).  Which groups are named: each
+    group of several is judged on its own model's parameters, those its rows estimate (a parameter held equal across
+    groups counts in each; its item intercepts too, as the fit's table and the check count them), because in a
+    multi-group model each group's rows estimate their own covariance structure and means (Sorbom 1974, recalled
+    from memory); so every group below the rule is named with its figures, large or small (departments of 165 to 260
+    people under a 54-parameter model are 3.0 to 4.8 rows per parameter, and the note says those figures, not that
+    the groups are small).  The rule is a rule of thumb, common practice, not a finding (see
+    :data:`ROWS_PER_PARAMETER`)."""
+    several = groups is not None
+    return tuple(RowsPerParameter(n, q, label, 0 if several else uncounted)
+                 for label, n, q in zip(groups if several else (None,), rows, free)
+                 if q > 0 and n < ROWS_PER_PARAMETER * q)
+
+
 def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Sequence[str] | None = None,
                          uncounted: int = 0) -> tuple[tuple["Problem", ...], tuple[str, ...]]:
-    """The one rule of rows per parameter, for the whole sample (``groups`` None; ``rows`` and ``free`` then hold one
-    number each) and for each group of several (``groups`` their labels; ``rows`` and ``free`` one number per group):
-    a caution (first in every view) for a sample or group with fewer rows than its model's free parameters, and a
-    note naming those with fewer than :data:`ROWS_PER_PARAMETER` rows per parameter (a common rule of thumb;
-    Bentler & Chou 1987, recalled from memory: a convention, not a law).  ``free`` counts the model's parameters the
-    same way whatever the estimator (:func:`counted_parameters`); ``uncounted``: the item means a one-group fit
-    estimates beside them and the count leaves out, named so that the count agrees with the fit's table of free
-    parameters.  Returns (problems, notes)."""
+    """The one rule of rows per parameter (:func:`rows_per_parameter`) in the report's words: a caution (first in
+    every view) for a sample or group with fewer rows than its model's free parameters, and a note naming those with
+    fewer than :data:`ROWS_PER_PARAMETER` rows per parameter (a common rule of thumb; Bentler & Chou 1987, recalled
+    from memory: a convention, not a law), with their figures.  ``free`` counts the model's parameters the same way
+    whatever the estimator (:func:`counted_parameters`); ``uncounted``: the item means a one-group fit estimates
+    beside them and the count leaves out, named so that the count agrees with the fit's table of free parameters.
+    Returns (problems, notes)."""
     several = groups is not None
-    besides = (f" (not counting the {uncounted} item mean{'s' if uncounted != 1 else ''} that full-information ML "
-               f"estimates beside {'them' if uncounted != 1 else 'it'})" if uncounted and not several else "")
-    problems, noted = [], []
-    for label, n, q in zip(groups if several else (None,), rows, free):
-        if q <= 0 or n >= ROWS_PER_PARAMETER * q:
-            continue
-        if n >= q:
-            noted.append((label, n, q))
-            continue
-        whose = "this group's model" if several else "the model"
-        also = "its estimates, and every comparison with the other groups," if several else "every estimate and fit index"
-        problems.append(Problem(
-            ProblemKind.SMALL_GROUP if several else ProblemKind.SMALL_SAMPLE, (), float(n),
-            f"{n:g} rows for the {q} free parameters of {whose}{besides}: {also} rest{'' if several else 's'} on too few "
-            f"answers" + ("" if several else ", and a CFI of 1 or a TLI above 1 then says little about fit")
-            + f" (fewer rows than parameters; {ROWS_RULE}).",
-            "gather more rows for this group, join it with a similar group by recoding the group column, or leave it "
-            f"out with a row filter ({Option.KEEP})." if several else
-            "gather more rows, or fit a smaller model (fewer items or factors); do not judge this fit against the guide "
-            "values of the fit indices.", label))
+    below = rows_per_parameter(rows, free, groups, uncounted)
+    problems = tuple(_small_sample_problem(facts, several) for facts in below if facts.fewer_rows_than_parameters)
+    noted = [facts for facts in below if not facts.fewer_rows_than_parameters]
     if not noted:
-        return tuple(problems), ()
+        return problems, ()
     if not several:
-        (_, n, q), = noted
-        return tuple(problems), (f"{n:g} rows for the {q} free parameters of the model{besides}, fewer than "
-                                 f"{ROWS_PER_PARAMETER} "
-                                 f"per parameter ({ROWS_RULE}): with fewer rows per parameter, estimates and fit "
-                                 f"indices vary more from sample to sample",)
-    each = [f"{printable(str(label))} ({n:g} rows for {q} parameters)" for label, n, q in noted]
+        (facts,) = noted
+        return problems, (f"{facts.rows:g} rows for the {facts.parameters} free parameters of the model"
+                          f"{facts.besides()}, fewer than {ROWS_PER_PARAMETER} per parameter ({facts.ratio()} per "
+                          f"parameter; {ROWS_RULE}): with fewer rows per parameter, estimates and fit indices vary "
+                          f"more from sample to sample",)
+    labels = tuple(groups)
+    each = [f"{written_group(f.group, labels)} ({f.figures()})" for f in noted]
     listed = each[0] if len(each) == 1 else f"{', '.join(each[:-1])} and {each[-1]}"
-    return tuple(problems), (f"group{'s' if len(each) > 1 else ''} {listed}: fewer than {ROWS_PER_PARAMETER} rows per "
-                             f"free parameter of the group's model ({ROWS_RULE}): with fewer rows per parameter, a "
-                             f"group's estimates, and every comparison with the other groups, vary more from sample to "
-                             f"sample",)
+    return problems, (f"group{'s' if len(each) > 1 else ''} {listed}: fewer than {ROWS_PER_PARAMETER} rows per "
+                      f"free parameter of the group's model ({ROWS_RULE}): with fewer rows per parameter, a "
+                      f"group's estimates, and every comparison with the other groups, vary more from sample to "
+                      f"sample",)
+
+
+def _small_sample_problem(facts: RowsPerParameter, several: bool) -> "Problem":
+    """The caution of a sample or group with fewer rows than its model's free parameters, in the report's words."""
+    whose = "this group's model" if several else "the model"
+    also = "its estimates, and every comparison with the other groups," if several else "every estimate and fit index"
+    return Problem(
+        ProblemKind.SMALL_GROUP if several else ProblemKind.SMALL_SAMPLE, (), float(facts.rows),
+        f"{facts.rows:g} rows for the {facts.parameters} free parameters of {whose}{facts.besides()}: {also} "
+        f"rest{'' if several else 's'} on too few answers"
+        + ("" if several else ", and a CFI of 1 or a TLI above 1 then says little about fit")
+        + f" (fewer rows than parameters; {ROWS_RULE}).",
+        "gather more rows for this group, join it with a similar group by recoding the group column, or leave it "
+        f"out with a row filter ({Option.KEEP})." if several else
+        "gather more rows, or fit a smaller model (fewer items or factors); do not judge this fit against the guide "
+        "values of the fit indices.", facts.group, facts)
 
 
 def counted_parameters(free: int, labels: Iterable[str]) -> int:
@@ -246,11 +309,16 @@ class Problem:
     explanation: str
     advice: str
     group: str | None = None
+    # the facts of a sample or group with fewer rows than its model's parameters (SMALL_SAMPLE, SMALL_GROUP), which
+    # the methods paragraph words in its own voice
+    rows_per_parameter: RowsPerParameter | None = None
 
     def to_dict(self) -> dict:
         value = None if self.value is None or not np.isfinite(self.value) else float(self.value)
+        facts = {} if self.rows_per_parameter is None else {"rows_per_parameter": self.rows_per_parameter.to_dict()}
         return {"kind": self.kind.value, "inadmissible": self.kind.inadmissible, "parameters": list(self.parameters),
-                "parameters_in_words": list(self.parameter_words()), "value": value, "group": self.group, "explanation": self.explanation, "advice": self.advice}
+                "parameters_in_words": list(self.parameter_words()), "value": value, "group": self.group,
+                "explanation": self.explanation, "advice": self.advice} | facts
 
     def parameter_words(self) -> tuple[str, ...]:
         """The parameters in plain words ('the loading of helpful on courtesy in group north')."""
@@ -260,10 +328,11 @@ class Problem:
         """The problem as the views list it: the explanation, then what to try."""
         return f"{self.explanation} What to try: {self.advice}"
 
-    def phrase(self, quoted: bool = False) -> str:
+    def phrase(self, quoted: bool = False, groups: Sequence[str] = ()) -> str:
         """The problem in the words of a methods paragraph, e.g. 'a negative residual variance of x9 (-1.02)';
-        ``quoted`` writes its names and group in double quotes unless plain (language.names.written_name), for the
-        paragraph's lists, in which a name's commas would run into the list's."""
+        ``quoted`` writes its names in double quotes unless plain (language.names.written_name), for the paragraph's
+        lists, in which a name's commas would run into the list's; ``quoted`` or ``groups`` (the fit's labels) write
+        its group as every text names a group among them (language.names.written_group)."""
         written = written_name if quoted else str
         names = tuple(written(n) for n in _names(self.parameters[0])) if self.parameters else ()
         v = f"{self.value:.2f}" if self.value is not None and np.isfinite(self.value) else ""
@@ -278,7 +347,8 @@ class Problem:
             K.FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE: "a factor covariance matrix that is not positive definite",
             K.RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE: "a residual covariance matrix that is not positive definite",
             K.STANDARDIZED_LOADING_ABOVE_ONE: f"a standardized loading of {names[-1] if names else ''} above 1 ({v})",
-            K.ON_BOUND: f"{', '.join(label_words(label, quoted=quoted) for label in self.parameters)} held at a bound",
+            K.ON_BOUND: f"{', '.join(label_words(label, quoted=quoted, groups=tuple(groups)) for label in self.parameters)} "
+                        f"held at a bound",
             K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
             K.SMALL_EFFECTIVE_SAMPLE: f"very uneven weights (Kish's effective sample size {v})",
@@ -321,7 +391,8 @@ class Problem:
             K.FACTOR_POINTS_AGAINST_ITEMS: f"factor {', '.join(names)} pointing against its items (a higher score "
                                            f"means less of what most of them ask)",
         }[self.kind]
-        return text + (f" in group {written(self.group)}" if self.group is not None else "")
+        where = written_group(self.group, groups) if quoted or groups else str(self.group)
+        return text + (f" in group {where}" if self.group is not None else "")
 
     def touches(self, kind: str, variables: tuple[str, ...], group: str | None = None) -> bool:
         """Whether the parameter ``kind(variables)`` (of ``group``) is one of this problem's.  Covariances
@@ -749,7 +820,8 @@ def listed_problems(listed: list, source: str) -> tuple[Problem, ...]:
     """The problems a saved result lists (the 'problems' of a fit in its JSON) as :class:`Problem` values."""
     try:
         return tuple(Problem(ProblemKind(q["kind"]), tuple(q["parameters"]), q["value"], q["explanation"],
-                             q["advice"], q["group"]) for q in listed)
+                             q["advice"], q["group"], RowsPerParameter(**q["rows_per_parameter"])
+                             if q.get("rows_per_parameter") is not None else None) for q in listed)
     except (ValueError, KeyError, TypeError):
         raise OptionError(f"{source}: its list of problems is incomplete or changed by hand; {AGAIN}") from None
 

@@ -32,6 +32,21 @@ def written_name(name: str) -> str:
     return name if plain(name) or not writable(name) else f'"{name}"'
 
 
+def written_group(label: str, labels: Sequence[str] = ()) -> str:
+    """A group's label as a sentence names it among ``labels`` (every group label of the fit): the one rule of every
+    text that names groups ('in group north', 'groups "2" and "3"').  As :func:`written_name` writes it, and in double
+    quotes when any of ``labels`` needs them, so that one text neither writes 'east' in one place and '"east"' in
+    another nor quotes some groups of a list and not others (new user s14); a label the model language cannot write
+    (it holds a double quote or a line break) in single quotes, so that its own double quotes are not read as the
+    quoting.  Without ``labels``: the label alone decides."""
+    label = str(label)
+    if not writable(label):
+        return f"'{label}'"
+    if not plain(label) or any(not plain(str(x)) for x in labels):
+        return f'"{label}"'
+    return label
+
+
 def names_text(names) -> str:
     """Several names as a list of the model language writes them: ``a, "b c"``."""
     return ", ".join(written_name(n) for n in names)

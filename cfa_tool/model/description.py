@@ -13,7 +13,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from cfa_tool.language.checks import exogenous_factors
-from cfa_tool.language.names import read_reference, written_name
+from cfa_tool.language.names import read_reference, written_group, written_name
 from cfa_tool.language.spec import Spec, equality_words
 from cfa_tool.model.parameters import ParameterTable
 
@@ -66,6 +66,9 @@ class ModelDescription:
     group_scales: tuple[tuple[str, tuple[FactorScale, ...]], ...] = ()
     # the items each 'reversed' statement declares reverse-keyed, with the lowest and highest answer of their scale
     reverse_keyed: tuple[tuple[tuple[str, ...], float, float], ...] = ()
+    # the group labels of a model fitted in groups (empty for one group): the texts that name a group write it among
+    # them (language.names.written_group)
+    groups: tuple[str, ...] = ()
 
     def to_dict(self) -> dict:
         keyed = {"reverse_keyed": [{"items": list(items), "lowest": lo, "highest": hi}
@@ -103,21 +106,21 @@ def split_label(label: str) -> tuple[str, tuple[str, ...], str | None]:
 
 def parameter_words(kind: str, names: tuple[str, ...], group: str | None = None,
                     observed: tuple[str, ...] | frozenset | None = None, article: bool = True,
-                    quoted: bool = False) -> str:
+                    quoted: bool = False, groups: tuple[str, ...] = ()) -> str:
     """A parameter in the words a researcher uses: 'the loading of helpful on courtesy', 'the residual variance
     of temperature', 'the covariance of factors F1 and F2', '... in group north'.  ``kind`` is a parameter
     table kind (factor_variance, residual_covariance, ...) or a model file's (variance, covariance: then
     ``observed`` tells an item's residual from a factor; without it they stay 'variance' and 'covariance');
-    ``article`` False leaves out the leading 'the' (a table cell); ``quoted`` writes the names and the group as
-    the model language writes them (:func:`cfa_tool.language.names.written_name`: in double quotes unless plain),
-    for the lists of a methods paragraph, where a name's commas would run into the list's.  The one place that
+    ``article`` False leaves out the leading 'the' (a table cell); ``quoted`` writes the names as the model language
+    writes them (:func:`cfa_tool.language.names.written_name`: in double quotes unless plain), for the lists of a
+    methods paragraph, where a name's commas would run into the list's; ``quoted`` or ``groups`` (the fit's labels)
+    write the group as every text names a group among them (:func:`cfa_tool.language.names.written_group`).  The one place that
     turns parameters into words."""
     if kind in ("variance", "covariance") and observed is not None:
         kind = ("residual_" if names and names[0] in observed else "factor_") + kind
     if quoted:
-        names, group = tuple(written_name(n) for n in names[:1]) + (
-            (names[1],) if kind == "threshold" and len(names) == 2 else tuple(written_name(n) for n in names[1:])), (
-            None if group is None else written_name(group))
+        names = tuple(written_name(n) for n in names[:1]) + (
+            (names[1],) if kind == "threshold" and len(names) == 2 else tuple(written_name(n) for n in names[1:]))
     pair = " and ".join(names)
     if kind == "loading" and len(names) == 2:
         text = f"loading of {names[1]} on {names[0]}"
@@ -132,16 +135,18 @@ def parameter_words(kind: str, names: tuple[str, ...], group: str | None = None,
                 "intercept": f"intercept of {pair}",
                 "mean": f"mean of {pair}",
                 "threshold": f"thresholds of {pair}"}.get(kind, f"{kind.replace('_', ' ')} of {pair}")
-    return ("the " if article else "") + text + (f" in group {group}" if group is not None else "")
+    if group is not None:
+        text += f" in group {written_group(group, groups) if quoted or groups else group}"
+    return ("the " if article else "") + text
 
 
 def label_words(label: str, article: bool = True, observed: tuple[str, ...] | frozenset | None = None,
-                quoted: bool = False) -> str:
+                quoted: bool = False, groups: tuple[str, ...] = ()) -> str:
     """A machine label ('residual_variance(x9) [north]') in words ('the residual variance of x9 in group north');
     ``observed``: the model's items, for labels in a model file's words ('variance(x9)'); ``quoted`` as in
-    :func:`parameter_words`."""
+    :func:`parameter_words`, ``groups`` too."""
     kind, names, group = split_label(label)
-    return parameter_words(kind, names, group, observed=observed, article=article, quoted=quoted)
+    return parameter_words(kind, names, group, observed=observed, article=article, quoted=quoted, groups=groups)
 
 
 def _ref_dict(ref: tuple) -> dict:
@@ -201,6 +206,7 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
         method_factors=tuple(n.text for n in spec.method),
         exploratory=tuple((b.factor_names, b.item_names, b.rotation.text) for b in spec.exploratory),
         reverse_keyed=tuple((tuple(i.text for i in k.items), k.minimum, k.maximum) for k in spec.reversed),
+        groups=tuple(table.groups) if table.multigroup else (),
     )
 
 

@@ -1525,9 +1525,13 @@ def converged(result: FitResult) -> FitResult:
     """``result`` if its estimation converged; otherwise the EstimationError that says why."""
     if not result.converged:
         from cfa_tool.assessment.admissibility import ProblemKind
+        from cfa_tool.language.names import written_group
 
-        # a group with fewer rows than its model's parameters: the likeliest cause, said first
-        small = "".join(f"group {p.group}: {p.explanation} " for p in result.problems if p.kind is ProblemKind.SMALL_GROUP)
+        # a group with fewer rows than its model's parameters: the likeliest cause, said first (its label by the rule
+        # of every text)
+        labels = tuple(g.label for g in result.groups) if result.multigroup else ()
+        small = "".join(f"group {written_group(p.group, labels)}: {p.explanation} " for p in result.problems
+                        if p.kind is ProblemKind.SMALL_GROUP)
         raise EstimationError(f"{small[:1].upper()}{small[1:]}the estimation did not converge: {result.message}")
     return result
 

@@ -25,7 +25,7 @@ from cfa_tool.data.non_answers import non_answer_clause
 from cfa_tool.data.answer_words import coding_described
 from cfa_tool.data.descriptives import FEW_CATEGORIES
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
-from cfa_tool.language.names import written_name
+from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.numbers import fit_index_text, guides_text, num, p_phrase, signed, unit
@@ -61,19 +61,22 @@ def _name(name) -> str:
 
 
 def _group_names(groups) -> list[str]:
-    """The groups' labels written alike: every one in double quotes when any needs them (a label with spaces or
-    punctuation), so that a list of groups does not quote some and not others (new user s14)."""
+    """The groups' labels written alike by the one rule (language.names.written_group): every one in double quotes
+    when any needs them, so that a list of groups does not quote some and not others (new user s14)."""
     labels = [g.label for g in groups]
-    return [_group_label(label, labels) for label in labels]
+    return [written_group(label, labels) for label in labels]
 
 
-def _group_label(label, labels) -> str:
-    """One group's label as :func:`_group_names` writes it among ``labels`` (every label of the fit), wherever the
-    paragraph names it: in double quotes when any label needs them (review s14: 'Group east' after '"east"')."""
-    written = _name(label)
-    if not written.startswith('"') and any(_name(x).startswith('"') for x in labels):
-        return f'"{written}"'
-    return written
+def group_labels(result) -> tuple[str, ...]:
+    """The group labels of a fit in groups (empty for one group), among which every text names each group
+    (language.names.written_group)."""
+    return tuple(g.label for g in result.groups) if getattr(result, "multigroup", False) else ()
+
+
+def _phrase(problem, result) -> str:
+    """A problem of ``result`` in the paragraph's words: its names quoted as the model language writes them, its
+    group named among the fit's groups (language.names.written_group)."""
+    return problem.phrase(quoted=True, groups=group_labels(result))
 
 
 def _names(names) -> str:
@@ -262,7 +265,7 @@ def _parameter(ref: tuple, d) -> str:
     kind, names, group = ref
     if kind == "variance" and names and any(s.factor == names[0] and s.below_higher_order for s in d.scales):
         kind = "disturbance_variance"
-    return parameter_words(kind, tuple(names), group, d.indicators, quoted=True)
+    return parameter_words(kind, tuple(names), group, d.indicators, quoted=True, groups=d.groups)
 
 
 def _scale_sentence(d) -> str:
@@ -273,7 +276,7 @@ def _scale_sentence(d) -> str:
     sentences = [_scales_in_words(shared, d.scales)] if shared else []
     for label, scales in d.group_scales:
         words = _scales_in_words([s for s in scales if s not in shared], scales)
-        sentences.append(f"In group {_name(label)}, {words[:1].lower()}{words[1:]}")
+        sentences.append(f"In group {written_group(label, d.groups)}, {words[:1].lower()}{words[1:]}")
     different = [s.factor for s in d.scales if s not in shared]
     sentences.append(f"Scaled differently in different groups, {_names(different)} "
                      f"{'are' if len(different) > 1 else 'is'} not on the same metric in every group.")
@@ -565,7 +568,7 @@ def _pairs_by_group(result) -> str:
     if not ranges or any(r is None for _, r in ranges):
         return ""
     labels = [label for label, _ in ranges]
-    return " over the groups and " + _list([f"{low} to {high} in {_group_label(label, labels)}"
+    return " over the groups and " + _list([f"{low} to {high} in {written_group(label, labels)}"
                                             for label, (low, high) in ranges])
 
 
@@ -710,8 +713,8 @@ def _method_items(result, factor: str) -> list[str]:
 def _weak_factor_sentence(result, subject: str) -> str:
     """Sentences on the method factors of ``result`` that carry next to nothing and on factors that point against
     their items ('' when there are none)."""
-    weak = [p.phrase(quoted=True) for p in result.problems if p.kind is ProblemKind.WEAK_METHOD_FACTOR]
-    turned = [p.phrase(quoted=True) for p in result.problems if p.kind is ProblemKind.FACTOR_POINTS_AGAINST_ITEMS]
+    weak = [_phrase(p, result) for p in result.problems if p.kind is ProblemKind.WEAK_METHOD_FACTOR]
+    turned = [_phrase(p, result) for p in result.problems if p.kind is ProblemKind.FACTOR_POINTS_AGAINST_ITEMS]
     parts = []
     if weak:
         parts.append(f"{subject} has {_list(weak)} (a common-practice guide for negligible loadings): its items share "
@@ -790,7 +793,7 @@ def _negative_count(rows, groups: list) -> str:
     counts = [sum(r.group == g for r in negative) for g in groups]
     if len(set(counts)) == 1:
         return f"{counts[0]} negative in each group"
-    return "negative: " + _list([f"{n} in {g}" for n, g in zip(counts, groups)])
+    return "negative: " + _list([f"{n} in {written_group(g, groups)}" for n, g in zip(counts, groups)])
 
 
 def _reliability_sentence(result) -> str:
@@ -842,17 +845,17 @@ def _factor_means_sentence(result) -> str:
     means = [r for r in result.estimates if r.kind == "mean"]
     if not result.multigroup or not means:
         return ""
-    labels = [g.label for g in result.groups]
+    labels = group_labels(result)
     at_zero = [g for g in labels if all(not r.free and r.estimate == 0.0 for r in means if r.group == g)]
     estimated = {g: [r.variables[0] for r in means if r.group == g and r.free] for g in labels}
     every = {r.variables[0] for r in means}
     if len(at_zero) == len(labels):
         return "The factor means were fixed at zero in every group."
-    parts = [f"fixed at zero in {_list([_group_label(g, labels) for g in at_zero])}"] if at_zero else []
+    parts = [f"fixed at zero in {_list([written_group(g, labels) for g in at_zero])}"] if at_zero else []
     whole = [g for g in labels if estimated[g] and set(estimated[g]) == every]
     if whole:
-        parts.append(f"estimated in {_list([_group_label(g, labels) for g in whole])}")
-    parts += [f"estimated for {_names(estimated[g])} in {_group_label(g, labels)}" for g in labels
+        parts.append(f"estimated in {_list([written_group(g, labels) for g in whole])}")
+    parts += [f"estimated for {_names(estimated[g])} in {written_group(g, labels)}" for g in labels
               if estimated[g] and g not in whole]
     return f"The factor means were {_list(parts)}." if parts else ""
 
@@ -988,7 +991,7 @@ def methods_paragraph(result) -> str:
     inadmissible = not result.admissible
     if inadmissible:
         serious = [p for p in result.problems if p.kind.inadmissible]
-        named = [p.phrase(quoted=True) for p in serious]
+        named = [_phrase(p, result) for p in serious]
         if all(p.kind is ProblemKind.ON_BOUND for p in serious):
             parts.append(f"The solution lies on a boundary ({_list(named)}): the unrestricted estimate would lie beyond "
                          f"the bound, so the solution is not admissible as it stands, and standard errors and tests "
@@ -1010,7 +1013,7 @@ def methods_paragraph(result) -> str:
     loadings = [r.standardized for r in item_loadings]
     second = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] not in result.observed]
     blocks = getattr(result, "exploratory", ())
-    groups = [g.label for g in result.groups] if result.multigroup else []
+    groups = group_labels(result)
     # with groups the rows are every group's: the range spans them, and the count of negative ones is per group
     across = f" across the {_count(len(groups), 'group')}" if groups else ""
     if loadings:
@@ -1173,7 +1176,7 @@ def comparison_paragraph(comparison) -> str:
     statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
     for name, r in zip(names, results):  # problems first: before the figures a reader might take as support
         if r.converged and not r.admissible:
-            found = _list([p.phrase(quoted=True) for p in r.problems if p.kind.inadmissible])
+            found = _list([_phrase(p, r) for p in r.problems if p.kind.inadmissible])
             parts.append(f"The solution of {label[name]} was not admissible ({found}): its fit is not evidence for it.")
     small = _small_groups(max(results, key=lambda r: sum(p.kind is ProblemKind.SMALL_GROUP for p in r.problems)))
     # the same rows in every model: the caution of the model with the most such groups (review s14)
@@ -1300,7 +1303,7 @@ def _step_problems(steps) -> str:
         if not step.result.converged:
             clauses.append(f"the estimation of the {step.level} model did not converge")
         elif not step.result.admissible:
-            found = _list([p.phrase(quoted=True) for p in step.result.problems if p.kind.inadmissible])
+            found = _list([_phrase(p, step.result) for p in step.result.problems if p.kind.inadmissible])
             clauses.append(f"the solution of the {step.level} model was not admissible ({found})")
     if not clauses:
         return ""
@@ -1310,21 +1313,27 @@ def _step_problems(steps) -> str:
 
 
 def _small_groups(result) -> str:
-    """The groups with fewer rows than their model's free parameters (ProblemKind.SMALL_GROUP), or the sample with
-    fewer rows than the model's (SMALL_SAMPLE): the caution that opens the report, in one sentence ('' when none)."""
-    if any(p.kind is ProblemKind.SMALL_SAMPLE for p in result.problems):
-        n = next(p.value for p in result.problems if p.kind is ProblemKind.SMALL_SAMPLE)
-        return (f"The sample had fewer rows ({n:g}) than the model's free parameters, so every estimate and fit index "
-                f"rests on too few answers.")
-    small = [p for p in result.problems if p.kind is ProblemKind.SMALL_GROUP]
+    """The sample or the groups with fewer rows than their model's free parameters (ProblemKind.SMALL_SAMPLE,
+    SMALL_GROUP): the caution that opens the report, worded for the paper from the same facts
+    (assessment.admissibility.RowsPerParameter), in one sentence ('' when none)."""
+    small = [p.rows_per_parameter for p in result.problems
+             if p.kind in (ProblemKind.SMALL_SAMPLE, ProblemKind.SMALL_GROUP) and p.rows_per_parameter is not None]
     if not small:
         return ""
-    labels = [g.label for g in result.groups] if getattr(result, "groups", None) else [p.group for p in small]
-    named = _list([f"{_group_label(p.group, labels)} ({p.value:g} rows)" for p in small])
-    one = len(small) == 1
-    return (f"{'Group' if one else 'Groups'} {named} had fewer rows than the free parameters of {'its' if one else 'their'}"
-            f" model, so {'its' if one else 'their'} estimates, and every comparison with the other groups, rest on "
-            f"too few answers.")
+    if small[0].group is None:
+        (facts,) = small
+        return (f"The sample had {facts.rows:g} rows for the {facts.parameters} free parameters of the model"
+                f"{facts.besides()}, fewer rows than parameters, so every estimate and fit index rests on too few "
+                f"answers.")
+    labels = group_labels(result) or tuple(f.group for f in small)
+    if len(small) == 1:
+        (facts,) = small
+        return (f"Group {written_group(facts.group, labels)} had {facts.rows:g} rows for the {facts.parameters} free "
+                f"parameters of its model, so its estimates, and every comparison with the other groups, rest on too "
+                f"few answers.")
+    named = _list([f"{written_group(f.group, labels)} ({f.rows:g} rows for {f.parameters} parameters)" for f in small])
+    return (f"Groups {named} had fewer rows than the free parameters of their model, so their estimates, and every "
+            f"comparison with the other groups, rest on too few answers.")
 
 
 def invariance_paragraph(result, levels) -> str:
@@ -1352,7 +1361,7 @@ def invariance_paragraph(result, levels) -> str:
         shape = _shape(first, d)
         parts.append(f"The configural model had {_structure(d, shape).rstrip(',')}, with the same pattern in every "
                      f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
-                     f"{_group_label(result.groups[0], result.groups)} were fixed at zero.")
+                     f"{written_group(result.groups[0], result.groups)} were fixed at zero.")
         parts += _scale_sentences(d, getattr(result, "data_problems", ()))
         departures = _departures(d, shape)
         if departures:
@@ -1409,7 +1418,7 @@ def invariance_paragraph(result, levels) -> str:
             with_all = (f"{CHI}({full.df_difference}) = {full.chi_square_difference:.2f}, {_p(full.p_value)}"
                         if full is not None and not full.not_computed else "no difference statistic")
             if step.full_result is not None and step.full_result.converged and not step.full_result.admissible:
-                found = _list([p.phrase(quoted=True) for p in step.full_result.problems if p.kind.inadmissible])
+                found = _list([_phrase(p, step.full_result) for p in step.full_result.problems if p.kind.inadmissible])
                 with_all += f"; its solution was not admissible: {found}"
             freed = _list([parameter_words(f.kind, f.variables, quoted=True) for f in step.freed])
             state = ("still did not hold" if not step.holds and step.result.admissible else
@@ -1431,7 +1440,7 @@ def invariance_paragraph(result, levels) -> str:
                      f"that did not hold, so {'they compare' if len(conditional) > 1 else 'it compares'} models "
                      f"already rejected.")
     if result.latent_differences:
-        diffs = "; ".join(f"{_name(x.factor)} in {_group_label(x.group, result.groups)}, {num(x.mean, 2)} "
+        diffs = "; ".join(f"{_name(x.factor)} in {written_group(x.group, result.groups)}, {num(x.mean, 2)} "
                           f"(SE = {num(x.se, 2)}, {_p(x.p_value)}, "
                           f"d = {num(x.standardized, 2)})" for x in result.latent_differences)
         scalar = next(k for k, s in enumerate(steps) if s.level == "scalar")
@@ -1439,7 +1448,7 @@ def invariance_paragraph(result, levels) -> str:
         source = (f"atent mean differences from the "
                   f"{'partially invariant ' if any(s.partly_equal for s in steps if s.level != 'strict') else ''}"
                   f"scalar model")
-        against = f"against {_name(result.groups[0])} (d: over the pooled latent standard deviation): {diffs}."
+        against = f"against {written_group(result.groups[0], result.groups)} (d: over the pooled latent standard deviation): {diffs}."
         parts.append(f"Resting on {basis}, the l{source} cannot be read as established; {against}" if basis else
                      f"L{source}, {against}")
         totals = list(dict.fromkeys(x.factor for x in result.latent_differences if x.total))
@@ -1517,7 +1526,7 @@ def _replication_sentences(rep, lead: str, test: bool = True) -> list[str]:
     parts = []
     for name, result in (("calibration", rep.calibration_result), ("validation", rep.loose)):
         if result.converged and not result.admissible:
-            found = _list([p.phrase(quoted=True) for p in result.problems if p.kind.inadmissible])
+            found = _list([_phrase(p, result) for p in result.problems if p.kind.inadmissible])
             parts.append(f"{lead}the solution in the {name} sample was not admissible ({found}): its estimates and "
                          f"fit do not describe a population.")
     statistic = f" (the {rep.calibration_result.robust.test.label} statistic and robust indices)" \

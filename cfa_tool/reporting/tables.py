@@ -12,12 +12,12 @@ from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST, MissingData, WeightKind
-from cfa_tool.language.names import names_text
+from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
 from cfa_tool.reporting.numbers import (fit_index_text, guide_text, missing, num, p_phrase, p_value, short, unit,
                                         word_list)
-from cfa_tool.reporting.paragraph import mcar_score_tests
+from cfa_tool.reporting.paragraph import group_labels, mcar_score_tests
 from cfa_tool.reporting.remedies import Remedy
 
 GUIDE_NOTE = (
@@ -132,12 +132,19 @@ CAUTION = "Check before interpreting this solution"
 DATA_CAUTION = "Check the data before fitting"  # a check's cautions: nothing was fitted
 
 
+def _in_group(result, label: str | None) -> str:
+    """' in group north' as the notes of ``result`` name one of its groups (language.names.written_group, the rule
+    of every text); '' without one."""
+    return f" in group {written_group(label, group_labels(result))}" if label is not None else ""
+
+
 def problem_notice(result) -> ProblemNotice | None:
     """The problems of ``result``'s solution as a heading and one line per problem (None when there are none)."""
     problems = solution_first(getattr(result, "problems", ()))
     if not problems:
         return None
-    lines = tuple((f"Group {p.group}: " if p.group is not None else "") + p.line() for p in problems)
+    lines = tuple((f"Group {written_group(p.group, group_labels(result))}: " if p.group is not None else "") + p.line()
+                  for p in problems)
     inadmissible = not result.admissible
     return ProblemNotice(NOT_ADMISSIBLE if inadmissible else CAUTION, lines, inadmissible)
 
@@ -700,7 +707,7 @@ def _completely_at_random_note(result) -> str:
         design = columns is not None and (columns.kind is not WeightKind.FREQUENCY or columns.cluster is not None
                                           or columns.strata is not None)
         return f" {NOT_WITH_DESIGN}" if result.method.full_information and design else ""
-    each = "; ".join(f"group {label}: chi-square {d2:.2f} on {df} df, p {p_phrase(p)}"
+    each = "; ".join(f"group {written_group(label, [g[0] for g in test.groups])}: chi-square {d2:.2f} on {df} df, p {p_phrase(p)}"
                      for label, d2, df, p in test.groups if df > 0)
     verdict = ("" if test.p_value >= 0.05 else " The rows with different gaps differ in their answers: the answers "
                "are not missing completely at random.")
@@ -742,11 +749,12 @@ def modification_table(result, group: int | None = None, limit: int = 10) -> Rep
             return None
         # computed, none at the threshold: said, so that the section does not silently vanish
         largest = max(mine(computed), key=lambda m: m.index)
-        name = parameter_words(largest.kind, tuple(largest.variables), None if label else largest.group, article=False)
+        name = parameter_words(largest.kind, tuple(largest.variables), None if label else largest.group, article=False,
+                               groups=group_labels(result))
         return _table(key, f"Largest modification indices (at least {result.mi_threshold:g}; none)",
                       [("Parameter that could be freed", "l"), ("Index", "r")],
                       [[f"none reaches {result.mi_threshold:g}; the largest: {name}", num(largest.index, 2)]],
-                      f"No parameter that could be freed{f' in group {label}' if label is not None else ''} has a modification index of at least "
+                      f"No parameter that could be freed{_in_group(result, label)} has a modification index of at least "
                       f"{result.mi_threshold:g}: freeing any one of them alone would not improve the fit by that "
                       f"much.", values=(["Kind", "Variables", "Group", "Index"],
                                         [[largest.kind, names_text(largest.variables), largest.group or "",
@@ -755,7 +763,8 @@ def modification_table(result, group: int | None = None, limit: int = 10) -> Rep
     title = f"Largest modification indices (at least {result.mi_threshold:g}; {len(shown)} of {len(rows)} shown)"
     body = []
     for m in shown:  # parameters in words, as every table names them (the group in the section's heading)
-        body.append([parameter_words(m.kind, tuple(m.variables), None if label else m.group, article=False),
+        body.append([parameter_words(m.kind, tuple(m.variables), None if label else m.group, article=False,
+                                     groups=group_labels(result)),
                      num(m.index, 2), num(m.expected_change), num(m.standardized_expected_change)])
     note = ("Standardized: for loadings on the fully standardized metric; for residual covariances on the residual "
             "correlation metric (the expected change over the two residual standard deviations).")
@@ -1197,8 +1206,7 @@ def category_table(result, group: int = 0) -> ReportTable | None:
             ends |= {v for v, c in (cats[0], cats[-1]) if c == 1}  # the lowest or highest answer: a stray value?
         rows.append([name] + [f"{count[v]} ({100 * count[v] / total:.0f}%)" if v in count else "" for v in codes])
         values.append([name] + [count.get(v) for v in codes])
-    label = result.groups[group].label
-    where = f" in group {label}" if label is not None else ""
+    where = _in_group(result, result.groups[group].label)
     weights = _weights_column(result)
     stray = ",".join(f"{v:g}" for v in sorted(ends))
     lonely = ("" if not single else
@@ -1282,7 +1290,7 @@ def correlation_table(result, group: int = 0) -> ReportTable | None:
     S = g.sample_covariance
     sd = np.sqrt(np.clip(np.diag(S), 1e-300, None))
     r = S / np.outer(sd, sd)
-    where = f" in group {g.label}" if g.label is not None else ""
+    where = _in_group(result, g.label)
     pairs = g.data.pair_range
     rows_used = (f"N = {pairs[0]} to {pairs[1]} per pair" if pairs is not None and pairs[0] < pairs[1]
                  else f"N = {g.data.n_obs}" if pairs is None else f"N = {pairs[0]}")
@@ -1335,7 +1343,7 @@ def normality_lines(result) -> list[str]:
         n = g.normality
         if n is None:
             continue
-        where = f" in group {g.label}" if g.label is not None else ""
+        where = _in_group(result, g.label)
         line = (f"Multivariate normality{where} (Mardia 1970): skewness {n.skewness:.3f}, chi-square {n.skewness_chi_square:.2f} "
                 f"on {n.skewness_df} df, p {p_phrase(n.skewness_p_value)}; kurtosis {n.kurtosis:.3f} "
                 f"(normal: {n.kurtosis_expected:g}), z = {n.kurtosis_z:.2f}, p {p_phrase(n.kurtosis_p_value)}.")

@@ -38,6 +38,7 @@ from cfa_tool.numerics.linalg import scaled_inverse
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
 from cfa_tool.pipeline.continuous import FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, assess, estimate, rows_left_out
+from cfa_tool.language.names import written_group
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
@@ -435,7 +436,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 why = next((p for p in result.problems if p.kind is not ProblemKind.SMALL_GROUP), None)
                 reason = (f" ({result.message}). {why.advice}" if why is not None else f" ({result.message})")
                 if not steps:  # nothing to report without a configural model; a group too small for it first
-                    small = tuple(f"Group {p.group}: {p.explanation}" for p in result.problems
+                    small = tuple(f"Group {written_group(p.group, labels)}: {p.explanation}" for p in result.problems
                                   if p.kind is ProblemKind.SMALL_GROUP)
                     raise EstimationError(" ".join(data_cautions + small
                                                    + (f"the configural model did not converge{reason}",)))
@@ -534,7 +535,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         full_result = step.full_result
         if step.partial and full_result is not None and full_result.converged and not full_result.admissible:
             impossible.insert(0, f"the {step.level} model with every equality held has a solution that is not admissible ("
-                               + "; ".join(p.phrase() for p in full_result.problems if p.kind.inadmissible)
+                               + "; ".join(p.phrase(groups=labels) for p in full_result.problems if p.kind.inadmissible)
                                + "); the partial search then freed "
                                + ", ".join(parameter_words(f.kind, f.variables, f.group) for f in step.freed)
                                + ": read the freed parameters as a way around an impossible solution, not as evidence "
@@ -542,11 +543,12 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     inadmissible = [s for s in steps if s.result.converged and not s.result.admissible]
     for step in reversed(inadmissible):  # problems first: an impossible solution outranks every other note
         impossible.insert(0, f"the {step.level} model's solution is not admissible ("
-                           + "; ".join(p.phrase() for p in step.result.problems if p.kind.inadmissible)
+                           + "; ".join(p.phrase(groups=labels) for p in step.result.problems if p.kind.inadmissible)
                            + "): its fit and its difference test cannot show that invariance holds")
     differences, latent_note, not_estimated = latent_differences(steps)
     # groups with fewer rows than their configural model's free parameters: every step's comparison rests on them
-    small = tuple(f"Group {p.group}: {p.line()}" for p in steps[0].result.problems if p.kind is ProblemKind.SMALL_GROUP)
+    small = tuple(f"Group {written_group(p.group, labels)}: {p.line()}" for p in steps[0].result.problems
+                  if p.kind is ProblemKind.SMALL_GROUP)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
                             tuple(impossible) + data_cautions + small + tuple(warnings), rule,
                             differences, latent_note, not_estimated, tuple(notes), found, reference, gaps)

@@ -32,7 +32,7 @@ def test_a_group_smaller_than_its_model_is_named_first(three_schools):
     # after the problems that make the solution not admissible, before every other caution
     first = [p for p in result.problems if p.kind.inadmissible]
     assert result.problems[len(first)] is small[0]
-    assert T.problem_notice(result).lines[len(first)].startswith("Group Annex: 28 rows")
+    assert T.problem_notice(result).lines[len(first)].startswith('Group "Annex": 28 rows')
     # groups of 145 and 128 rows get no caution, nor does anything without groups
     assert not any(p.kind is ProblemKind.SMALL_GROUP for p in cfa_tool.fit(THREE_FACTORS, three_schools).problems)
 
@@ -45,7 +45,8 @@ def test_each_group_below_five_rows_per_parameter_gets_the_samples_note(three_sc
     result = cfa_tool.fit(THREE_FACTORS, three_schools, group="school")
     said = [w for w in result.warnings if "rows per free parameter of the group's model" in w]
     assert len(said) == 1 and said[0].startswith(
-        "groups Grant-White (145 rows for 30 parameters) and Pasteur (128 rows for 30 parameters): fewer than 5 rows")
+        'groups "Grant-White" (145 rows for 30 parameters, 4.8 per parameter) and "Pasteur" (128 rows for 30 '
+        'parameters, 4.2 per parameter): fewer than 5 rows')
     assert "Annex" not in said[0]  # its caution says more
     assert [n for n in cfa_tool.check(THREE_FACTORS, three_schools, group="school").notes if n == said[0]]
 
@@ -67,9 +68,9 @@ def test_invariance_names_the_small_group_first(three_schools):
     # the data above a negative variance), the small group right after it
     assert result.warnings[0].startswith("the configural model's solution is not admissible (a negative residual "
                                          "variance of x1")
-    assert result.warnings[1].startswith("Group Annex: 28 rows for the 30 free parameters")
+    assert result.warnings[1].startswith('Group "Annex": 28 rows for the 30 free parameters')
     # and the groups below 5 rows per parameter of the configural model get the fit's note
-    assert [n for n in result.notes if n.startswith("groups Grant-White (145 rows for 30 parameters) and Pasteur")]
+    assert [n for n in result.notes if n.startswith('groups "Grant-White" (145 rows for 30 parameters, 4.8 per parameter) and')]
 
 
 def test_a_fit_that_fails_in_a_small_group_says_so_first(hs_data):
@@ -77,5 +78,5 @@ def test_a_fit_that_fails_in_a_small_group_says_so_first(hs_data):
 
     data = hs_data.reset_index(drop=True)[ITEMS + ["school"]].copy()
     data.loc[data.index[data.school == "Pasteur"][:29], "school"] = "Annex"  # 29 rows: the search does not converge
-    with pytest.raises(EstimationError, match=r"^Group Annex: 29 rows for the 30 free parameters.*did not converge"):
+    with pytest.raises(EstimationError, match=r"^Group \"Annex\": 29 rows for the 30 free parameters.*did not converge"):
         cfa_tool.fit(THREE_FACTORS, data, group="school")

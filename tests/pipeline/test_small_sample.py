@@ -23,8 +23,8 @@ def test_the_rule_by_hand():
     # groups by the same rule: a caution for the group below its parameters, one note naming those below 5 per parameter
     problems, notes = sample_size_problems((20, 21, 104, 105), (21, 21, 21, 21), ("a", "b", "c", "d"))
     assert [(p.kind, p.group) for p in problems] == [(ProblemKind.SMALL_GROUP, "a")]
-    assert len(notes) == 1 and notes[0].startswith("groups b (21 rows for 21 parameters) and c (104 rows for 21 "
-                                                   "parameters): fewer than 5 rows per free parameter")
+    assert len(notes) == 1 and notes[0].startswith("groups b (21 rows for 21 parameters, 1.0 per parameter) and c (104 rows for 21 "
+                                                   "parameters, 4.9 per parameter): fewer than 5 rows per free parameter")
     assert "rule of thumb" in notes[0] and "not a law" in notes[0] and "'d'" not in notes[0]
 
 
