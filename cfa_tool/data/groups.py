@@ -143,7 +143,9 @@ class SmallGroup:
     def rows_words(self) -> str:
         """'9 rows with any answer', '1 complete row'."""
         kind = "complete row" if self.complete_only else "row"
-        return f"{self.rows:,} {kind}{'' if self.rows == 1 else 's'}{'' if self.complete_only else ' with any answer'}"
+        count = f"{self.rows:,}" if self.rows else "no"
+        return f"{count} {kind}{'' if self.rows == 1 or not self.rows else 's'}" + (
+            "" if self.complete_only else " with any answer")
 
 
 class SmallGroupsError(DataError):
@@ -161,11 +163,13 @@ def too_small_groups(labels: list[str], values: list[np.ndarray], missing: Missi
     """The groups (``labels``, each with its model variables' ``values``) with no more usable rows than variables:
     complete rows with listwise deletion, rows with any answer with full-information ML (the rows each analysis
     uses).  A covariance matrix of p variables from n <= p rows is singular, so such a group cannot be analysed at
-    all (a factor analysis needs far more rows)."""
+    all (a factor analysis needs far more rows).  A group without any answer is left to the moments' own message."""
     complete_only = missing != MissingData.FULL_INFORMATION
     found = []
     for label, v in zip(labels, values):
         gaps = np.isnan(v)
+        if gaps.all():  # no answer at all in the group: the moments say so in their own words
+            continue
         n = int((~gaps.any(axis=1)).sum() if complete_only else (~gaps.all(axis=1)).sum())
         if n <= v.shape[1]:
             found.append(SmallGroup(label, n, v.shape[1], complete_only))
@@ -203,11 +207,12 @@ def small_group_words(small: tuple[SmallGroup, ...], frame: pd.DataFrame, column
     group.  ``grouped``: the rows of ``frame`` with a group label; ``named`` False: one group, which the words
     beside them name (a check's caution of that group)."""
     one = len(small) == 1
+    only = "only " if small[0].rows else ""
     if one and not named:
-        said = f"only {small[0].rows_words()} for the model's {small[0].variables} variables"
+        said = f"{only}{small[0].rows_words()} for the model's {small[0].variables} variables"
     elif one:
-        said = (f"group '{printable(small[0].label)}' of '{printable(column)}' has only {small[0].rows_words()} for the "
-                f"model's {small[0].variables} variables")
+        said = (f"group '{printable(small[0].label)}' of '{printable(column)}' has {only}{small[0].rows_words()} for "
+                f"the model's {small[0].variables} variables")
     else:
         listed = ", ".join(f"'{printable(g.label)}' ({g.rows_words()})" for g in small[:-1])
         said = (f"groups {listed} and '{printable(small[-1].label)}' ({small[-1].rows_words()}) of "

@@ -157,3 +157,17 @@ def test_a_filter_holding_double_quotes_is_given_in_single_quotes_as_a_shell_rea
     for text in ('gender != "another / prefers to describe"', '"wave 2" != 1', "site != far west"):
         (back,) = shlex.split(_quoted(text))  # Python's shell-like splitter, not the tool's
         assert back == text
+
+
+def test_a_group_without_a_complete_row_is_said_so_and_one_without_any_answer_keeps_its_own_words():
+    from cfa_tool import fit
+
+    frame = pd.DataFrame(_answers(310, 5), columns=ITEMS)
+    frame["site"] = ["north"] * 150 + ["south"] * 150 + ["east"] * 10
+    frame.loc[frame.index[-10:], "q1"] = np.nan  # every row of 'east' misses q1
+    with pytest.raises(DataError, match=r"group 'east' of 'site' has no complete row for the model's 6 variables, "
+                                        r"and a group needs more rows than variables .*keep=\['site != east'\]"):
+        fit(MODEL, frame, group="site", missing="listwise")
+    frame.loc[frame.index[-10:], ITEMS] = np.nan  # no answer at all: the moments' own message
+    with pytest.raises(DataError, match=r"group 'east' of site\): no row answers any of the model's 6 variables"):
+        fit(MODEL, frame, group="site", missing="listwise")
