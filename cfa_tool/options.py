@@ -232,8 +232,11 @@ def _name_in_list(name: object) -> str:
 
 
 def _quoted(text: str) -> str:
-    """A value as typed in a shell: in double quotes when it holds a space."""
-    return f'"{text}"' if any(c.isspace() for c in text) and not text.startswith(('"', "'")) else text
+    """A value as typed in a shell: in double quotes when it holds a space (in single quotes when it holds a double
+    quote and no single one: a row filter 'gender != "another / prefers to describe"')."""
+    if not any(c.isspace() for c in text) or (len(text) > 1 and text[0] == text[-1] and text[0] in "\"'"):
+        return text  # no space, or already quoted
+    return f"'{text}'" if '"' in text and "'" not in text else f'"{text}"'
 
 
 def _numbers(text: str) -> bool:

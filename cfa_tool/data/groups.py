@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import re
+from dataclasses import dataclass
 from enum import Enum
 from typing import TYPE_CHECKING
 
@@ -11,9 +13,10 @@ import pandas as pd
 from cfa_tool.data.labels import code_order, label_text, ordered_labels
 from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names
-from cfa_tool.data.moments import SampleMoments, sample_moments
+from cfa_tool.data.moments import SampleMoments, numeric_columns, sample_moments
 from cfa_tool.errors import DataError, OptionError, check_rows_counted, printable
 from cfa_tool.method import MissingData
+from cfa_tool.options import Option
 
 if TYPE_CHECKING:
     from cfa_tool.data.sample_design import DesignColumns
@@ -118,11 +121,124 @@ def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], sour
     """Per-group moments (reference group first) and the number of rows without a group value;
     ``weights`` a column of row weights (see :func:`sample_moments`)."""
     parts, without = group_rows(frame, column, source, reference)
-    out = [(label, sample_moments(part, names, source, group=f"'{label}' of {column}", missing=missing,
-                                  weights=weights)) for label, part in parts]
+    where = [f"'{label}' of {column}" for label, _ in parts]
+    values = [numeric_columns(part, names, f"{source} (group {group})") for (_, part), group in zip(parts, where)]
+    small = too_small_groups([label for label, _ in parts], values, missing)
+    if small:
+        refuse_small_groups(small, frame, column, source, sum(len(p) for _, p in parts))
+    out = [(label, sample_moments(part, names, source, group=group, missing=missing, weights=weights, values=v))
+           for (label, part), group, v in zip(parts, where, values)]
     # each row in one group at most (errors.check_rows_counted)
     check_rows_counted(sum(m.rows_read for _, m in out) + without, len(frame), f"the groups of column '{column}'")
     return out, without
+
+
+@dataclass(frozen=True)
+class SmallGroup:
+    """A group whose rows the analysis can use (``rows``: complete rows, or with full-information ML rows with any
+    answer, as ``complete_only`` says) are no more than its ``variables``: its covariance matrix cannot be
+    estimated."""
+
+    label: str
+    rows: int
+    variables: int
+    complete_only: bool
+
+    def rows_words(self) -> str:
+        """'9 rows with any answer', '1 complete row'."""
+        kind = "complete row" if self.complete_only else "row"
+        count = f"{self.rows:,}" if self.rows else "no"
+        return f"{count} {kind}{'' if self.rows == 1 or not self.rows else 's'}" + (
+            "" if self.complete_only else " with any answer")
+
+
+class SmallGroupsError(DataError):
+    """The refusal of groups too small to analyse (:func:`refuse_small_groups`), holding them (``groups``) and each
+    one's (what, remedy) words (``words``), so that a check can report them among its findings instead of stopping."""
+
+    def __init__(self, message: str, groups: tuple[SmallGroup, ...], words: tuple[tuple[str, str], ...]):
+        super().__init__(message)
+        self.groups = groups
+        self.words = words
+
+
+def too_small_groups(labels: list[str], values: list[np.ndarray], missing: MissingData | str = MissingData.LISTWISE
+                     ) -> tuple[SmallGroup, ...]:
+    """The groups (``labels``, each with its model variables' ``values``) with no more usable rows than variables:
+    complete rows with listwise deletion, rows with any answer with full-information ML (the rows each analysis
+    uses).  A covariance matrix of p variables from n <= p rows is singular, so such a group cannot be analysed at
+    all (a factor analysis needs far more rows).  A group without any answer is left to the moments' own message."""
+    complete_only = missing != MissingData.FULL_INFORMATION
+    found = []
+    for label, v in zip(labels, values):
+        gaps = np.isnan(v)
+        if gaps.all():  # no answer at all in the group: the moments say so in their own words
+            continue
+        n = int((~gaps.any(axis=1)).sum() if complete_only else (~gaps.all(axis=1)).sum())
+        if n <= v.shape[1]:
+            found.append(SmallGroup(label, n, v.shape[1], complete_only))
+    return tuple(found)
+
+
+_PLAIN_COLUMN = re.compile(r'[^\s=!<>"\']+')
+
+
+def leaving_out(column: str, label: str) -> str | None:
+    """The row filter (data.filters) that leaves out the rows of group ``label`` of ``column``:
+    'gender != "another / prefers to describe"', 'region != north' (the label as the groups are named: a labelled
+    column's filter compares with its labels, as a filter on its codes would with the codes); None when the names'
+    quotes leave no way to write it, or the column is none of the file's (a name that cannot be printed)."""
+    if printable(column) != column or printable(label) != label:
+        return None
+    if _PLAIN_COLUMN.fullmatch(column):
+        name = column
+    elif '"' not in column:
+        name = f'"{column}"'
+    else:
+        return None
+    if _PLAIN_COLUMN.fullmatch(label):
+        return f"{name} != {label}"
+    for quote in ('"', "'"):
+        if quote not in label:
+            return f"{name} != {quote}{label}{quote}"
+    return None
+
+
+def small_group_words(small: tuple[SmallGroup, ...], frame: pd.DataFrame, column: str, grouped: int,
+                      named: bool = True) -> tuple[str, str]:
+    """(what, remedy) of groups too small to analyse (:func:`too_small_groups`) in a refusal's or a check's words: the
+    groups, their rows and the rule; the exact row filter that leaves them out, then joining each with a similar
+    group.  ``grouped``: the rows of ``frame`` with a group label; ``named`` False: one group, which the words
+    beside them name (a check's caution of that group)."""
+    one = len(small) == 1
+    only = "only " if small[0].rows else ""
+    if one and not named:
+        said = f"{only}{small[0].rows_words()} for the model's {small[0].variables} variables"
+    elif one:
+        said = (f"group '{printable(small[0].label)}' of '{printable(column)}' has {only}{small[0].rows_words()} for "
+                f"the model's {small[0].variables} variables")
+    else:
+        listed = ", ".join(f"'{printable(g.label)}' ({g.rows_words()})" for g in small[:-1])
+        said = (f"groups {listed} and '{printable(small[-1].label)}' ({small[-1].rows_words()}) of "
+                f"'{printable(column)}' have too few rows for the model's {small[0].variables} variables")
+    filters = [leaving_out(column, g.label) for g in small]
+    keys = frame[column].map(lambda v: None if pd.isna(v) else label_text(v))
+    kept = grouped - int(keys.isin([g.label for g in small]).sum())
+    them = "it" if one else "them"
+    leave = (f"leave {them} out with {Option.KEEP.given([printable(f) for f in filters])}" if all(filters) else
+             f"leave {them} out with a row filter ({Option.KEEP}) on '{printable(column)}'")
+    return (f"{said}, and a group needs more rows than variables (a factor analysis far more)",
+            f"{leave} (the other groups' {kept:,} rows stay), or join {'it' if one else 'each'} with a similar group "
+            f"by recoding '{printable(column)}' in a copy of the data file")
+
+
+def refuse_small_groups(small: tuple[SmallGroup, ...], frame: pd.DataFrame, column: str, source: str,
+                        grouped: int) -> None:
+    """Raise the one-line refusal of groups too small to analyse (:func:`small_group_words`), holding each group's
+    own words for a check's findings."""
+    said, remedy = small_group_words(small, frame, column, grouped)
+    raise SmallGroupsError(f"{source}: {said}: {remedy}", small,
+                           tuple(small_group_words((g,), frame, column, grouped, named=False) for g in small))
 
 
 def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,
@@ -140,7 +256,7 @@ def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ..
     levels = shared_levels(parts, names, source, pairwise, continuous)  # (a continuous item's are not used)
     # every empty category of every group and item in one message (not one per run)
     empty_categories_in_groups(parts, [f" (group '{label}' of {column})" for label in labels], names, source, levels,
-                               pairwise, continuous)
+                               pairwise, continuous, [leaving_out(column, label) for label in labels])
     out = [(label, ordinal_moments(part, names, source, continuous, levels=levels,
                                    where=f" (group '{label}' of {column})", pairwise=pairwise, design=design))
            for label, part in zip(labels, parts)]

@@ -500,19 +500,55 @@ def check_whole_answers(values: np.ndarray, frame: pd.DataFrame, names: tuple[st
                        f"correct the value, or analyse the item as continuous", number)
 
 
+@dataclass(frozen=True)
+class EmptyCategoryCosts:
+    """How much of the data each way past empty categories in groups keeps, to offer those that keep the most first:
+    the answers each changes or leaves out (the groups' rows left out, the answers recoded into their nearest
+    category in every group, the items' answers dropped from the model), and the row filters that leave those
+    groups out (None where a group's filter cannot be written)."""
+
+    rows_left_out: int
+    answers_left_out: int
+    answers_recoded: int
+    answers_dropped: int
+    filters: tuple[str | None, ...]
+
+
+def _costs(values: list[np.ndarray], wheres: list[str], filters: list[str | None], names: tuple[str, ...],
+           found: dict[str, dict[str, list[float]]]) -> EmptyCategoryCosts:
+    """:class:`EmptyCategoryCosts` of the empty categories ``found`` (by group ``where``), from each group's
+    ``values`` (the rows analysed)."""
+    empty: dict[str, set] = {}
+    for by_item in found.values():
+        for name, categories in by_item.items():
+            empty.setdefault(name, set()).update(categories)
+    columns = [names.index(name) for name in empty]
+    left = [v for v, where in zip(values, wheres) if where in found]
+    return EmptyCategoryCosts(
+        sum(len(v) for v in left), sum(int((~np.isnan(v)).sum()) for v in left),
+        sum(int(np.isin(v[:, names.index(name)], list(categories)).sum()) for v in values
+            for name, categories in empty.items()),
+        sum(int((~np.isnan(v[:, columns])).sum()) for v in values),
+        tuple(f for f, where in zip(filters, wheres) if where in found))
+
+
 def empty_categories_in_groups(frames: list[pd.DataFrame], wheres: list[str], names: tuple[str, ...], source: str,
                                levels: dict[str, tuple[float, ...]], pairwise: bool = False,
-                               continuous: frozenset[str] = frozenset()) -> None:
+                               continuous: frozenset[str] = frozenset(),
+                               filters: list[str | None] | None = None) -> None:
     """A :class:`DataError` naming, in one message, every group (``wheres``: ' (group ...)' of each frame) and
     ordinal item in which some of the categories ``levels`` that other groups used were answered by no one, among
     the rows analysed (every answer with ``pairwise``, the complete rows otherwise); nothing when every group used
-    every category."""
+    every category.  ``filters``: the row filter that leaves out each group (data.groups.leaving_out); with them the
+    ways past the empty categories are offered by how much of the data they keep, the exact filter given."""
     found: dict[str, dict[str, list[float]]] = {}
     answered_everywhere: dict[str, set] = {}
+    analysed = []
     for frame, where in zip(frames, wheres):
         values = numeric_columns(frame, names, source)
         if not pairwise:
             values = values[~np.isnan(values).any(axis=1)]
+        analysed.append(values)
         for j, name in enumerate(names):
             if name in continuous:
                 continue
@@ -523,12 +559,13 @@ def empty_categories_in_groups(frames: list[pd.DataFrame], wheres: list[str], na
             if empty and seen:
                 found.setdefault(where, {})[name] = empty
     if found:
+        costs = _costs(analysed, wheres, filters, names, found) if filters is not None else None
         raise _empty_categories_error(source, found, {name: np.array(sorted(v)) for name, v in answered_everywhere.items()},
-                                      frames[0].attrs.get(CODED_BY_STATEMENT, {}) if frames else {})
+                                      frames[0].attrs.get(CODED_BY_STATEMENT, {}) if frames else {}, costs)
 
 
 def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]], seen: dict,
-                            coded: dict | None = None) -> DataError:
+                            coded: dict | None = None, costs: EmptyCategoryCosts | None = None) -> DataError:
     """The one message of every empty category: ``found`` maps each group's ' (group ...)' to its items' empty
     categories, ``seen`` each item's categories answered in every group (what an empty one is recoded as), ``coded``
     the items whose answers are words an 'answers' statement coded (data.answer_words.CODED_BY_STATEMENT): for
@@ -581,13 +618,34 @@ def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]
         ways.append(f"{first}in a copy of the data file, recode {recode} in every group")
     elif first:
         ways.append(first.removesuffix("; if real, "))
-    rest = (f"drop {'the item' if one_item else 'those items'} from the model, or leave "
-            f"{'this group' if one_group else 'those groups'} out with a row filter ({Option.KEEP})")
-    if not ways:  # every item answered alike by a group: merging cannot help
-        return DataError(f"{said}; thresholds cannot be compared across groups with an empty category, and {alike}: "
-                         f"{rest}")
+    drop = f"drop {'the item' if one_item else 'those items'} from the model"
+    group = "this group" if one_group else "those groups"
+    why = f" ({alike})" if alike else ""  # items one group answered alike: merging would not help them
+    if costs is None:
+        if not ways:
+            return DataError(f"{said}; thresholds cannot be compared across groups with an empty category, and "
+                             f"{alike}: {drop}, or leave {group} out with a row filter ({Option.KEEP})")
+        return DataError(f"{said}; thresholds cannot be compared across groups with an empty category. The tool does "
+                         f"not merge categories on its own{why}: {'; '.join(ways)}; or {drop}, or leave {group} out "
+                         f"with a row filter ({Option.KEEP})")
+    leave = (f"leave {group} out with {Option.KEEP.given([printable(f) for f in costs.filters])}"
+             if all(costs.filters) else f"leave {group} out with a row filter ({Option.KEEP})")
+    # (answers changed or left out, a code that may mean no answer first, words)
+    offered = [(costs.answers_recoded, not first, " ".join(ways) if len(ways) == 1 else f"{ways[0]} (and {ways[1]})",
+                f" ({_answers(costs.answers_recoded)} recoded)")] if ways else []
+    offered += [(costs.answers_left_out, True, leave,
+                 f" ({costs.rows_left_out:,} row{'' if costs.rows_left_out == 1 else 's'}, "
+                 f"{_answers(costs.answers_left_out)} left out)"),
+                (costs.answers_dropped, True, drop, f" ({_answers(costs.answers_dropped)} left out)")]
+    offered.sort(key=lambda way: (way[1], way[0]))  # stable: recoding first where they keep as much
+    listed = [f"{text}{cost}" for _, _, text, cost in offered]
     return DataError(f"{said}; thresholds cannot be compared across groups with an empty category. The tool does not "
-                     f"merge categories on its own: {'; '.join(ways)}{f' ({alike})' if alike else ''}; or {rest}")
+                     f"merge categories on its own{why}; the ways that keep the most answers first: "
+                     f"{'; '.join(listed[:-1])}; or {listed[-1]}")
+
+
+def _answers(n: int) -> str:
+    return f"{n:,} answer{'' if n == 1 else 's'}"
 
 
 def _quoted(names) -> str:

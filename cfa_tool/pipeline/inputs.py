@@ -18,7 +18,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
     from cfa_tool.assessment.admissibility import Problem
 
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
-from cfa_tool.data.groups import split_moments
+from cfa_tool.data.groups import SmallGroupsError, split_moments
 from cfa_tool.data.kept_rows import (RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
                                      unfinished_rows_note)
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
@@ -1821,14 +1821,28 @@ def _sparse_answers(spec: Spec, parts: list[tuple[str | None, np.ndarray]], sour
 
 
 def _rows_answering(parts: list[tuple[str | None, np.ndarray]], without: int, frame: pd.DataFrame,
-                    group: str | None) -> tuple[list[tuple[str | None, SimpleNamespace]], list[str]]:
-    """Each group's rows that answer some model item (``parts`` and ``without``: :func:`_group_parts`), for a check
-    whose saturated model cannot be estimated (:func:`_sparse_answers`): (label, an object with ``n_obs``) as
-    :func:`moments_for` gives moments, and its notes on rows without a group label."""
-    counted = [(label, SimpleNamespace(n_obs=len(values))) for label, values in parts]
+                    group: str | None, complete_only: bool = False
+                    ) -> tuple[list[tuple[str | None, SimpleNamespace]], list[str]]:
+    """Each group's rows that answer some model item (``complete_only``: every one; ``parts`` and ``without``:
+    :func:`_group_parts`), for a check whose moments cannot be estimated (:func:`_sparse_answers`, a group too small
+    to analyse): (label, an object with ``n_obs``) as :func:`moments_for` gives moments, and its notes on rows
+    without a group label."""
+    counted = [(label, SimpleNamespace(n_obs=int((~np.isnan(values).any(axis=1)).sum()) if complete_only
+                                       else len(values))) for label, values in parts]
     if group is None:
         return counted, []
     return counted, _no_group_notes(without, group, len(frame)) + label_notes(frame, group)
+
+
+def _small_group_problems(refused: SmallGroupsError) -> tuple:
+    """A check's findings of the groups a fit refuses as too small to analyse (data.groups.refuse_small_groups):
+    one caution per group, its words and remedy (the exact row filter first) as the refusal gives them."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    return tuple(Problem(ProblemKind.SMALL_GROUP, (), float(g.rows),
+                         f"{said[:1].upper()}{said[1:]}: a fit with this group stops here.",
+                         f"{remedy[:1].upper()}{remedy[1:]}.", g.label)
+                 for g, (said, remedy) in zip(refused.groups, refused.words))
 
 
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,
@@ -1881,10 +1895,15 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
             ordinal_moments(frame, spec.observed_names, source,
                             frozenset(x for x in spec.observed_names if x not in ordinal_items), pairwise=True)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
-    sparse = ()
+    sparse, too_small = (), ()
     try:  # the saturated (EM) moments once; where they cannot be estimated, whether the gaps are why
         groups, group_notes = moments_for(spec, frame, source, group, reference_group, missing=options.missing,
                                           design=design)
+    except SmallGroupsError as refused:  # a fit stops there; a check names those groups among its findings
+        parts, without = _group_parts(spec, frame, source, group, reference_group)
+        groups, group_notes = _rows_answering(parts, without, frame, group,
+                                              complete_only=options.missing is not MissingData.FULL_INFORMATION)
+        too_small = _small_group_problems(refused)
     except (DataError, EstimationError):
         if options.missing is not MissingData.FULL_INFORMATION or design is not None:
             raise
@@ -1902,6 +1921,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     # by the fit)
     small, small_notes = ((), ()) if ordinal_items else group_size_problems(table, [m.n_obs for _, m in groups]) \
         if labels else one_sample_size_problems(groups[0][1].n_obs, table.n_free, table.free_labels)
+    named = {p.group for p in too_small}  # those groups' rows per parameter: their caution says more
+    small = too_small + tuple(p for p in small if p.group not in named)
     notes += small_notes
     sample_design = design_summary(frame, design, [m for _, m in groups]) if design is not None else None
     answered = _labelled(frame, group)[list(spec.observed_names)].notna()

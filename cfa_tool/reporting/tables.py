@@ -548,7 +548,12 @@ def _estimates_table(result, kind: str, key: str, title: str, rows: list, note: 
     if kind in ("residual_covariance", "threshold"):
         cols.append(({"threshold": "Between answers"}.get(kind, "With"), "l"))
     between = _threshold_answers(result, rows[0].group) if kind == "threshold" else {}
-    cols += [("Estimate", "r"), ("SE", "r"), ("95% CI", "r"), ("p", "r"), ("Std.", "r")]
+    # thresholds of latent responses with variance 1 (the first group; every group before their residual variances
+    # are freed) are standardized already: a Std. column would repeat the estimates, so it is left out and said
+    repeated = kind == "threshold" and _same_values([r.standardized for r in rows], [r.estimate for r in rows])
+    if repeated:
+        note = " ".join(filter(None, [note, STANDARDIZED_THRESHOLDS_NOTE]))
+    cols += [("Estimate", "r"), ("SE", "r"), ("95% CI", "r"), ("p", "r")] + ([] if repeated else [("Std.", "r")])
     marks = [row_problem(result, kind, r.variables, r.group) for r in rows]
     shared = _shared(result) if any(r.free for r in rows) else frozenset()
     if shared and kind == "threshold":  # an item's thresholds are held equal or freed together: said in words
@@ -571,8 +576,8 @@ def _estimates_table(result, kind: str, key: str, title: str, rows: list, note: 
             shown = names[0] if names[0] != previous else ""
             previous = names[0]
             names = [shown, between.get(r.variables, f"step {names[1]}")]
-        cells = names + [num(r.estimate), num(r.se) if r.free else "fixed", _interval(*r.ci95), p_value(r.p_value),
-                         num(r.standardized, 2)]
+        cells = names + [num(r.estimate), num(r.se) if r.free else "fixed", _interval(*r.ci95), p_value(r.p_value)] \
+            + ([] if repeated else [num(r.standardized, 2)])
         if shared:
             cells.append(_equal_word(r, shared))
         if any(marks):
@@ -584,6 +589,19 @@ def _estimates_table(result, kind: str, key: str, title: str, rows: list, note: 
         [EQUAL_COLUMN] if shared else []) + (["Problem"] if any(marks) else [])
     return _table(key, title, cols, body, note, flagged=tuple(i for i, m in enumerate(marks) if m),
                   values=(value_columns, numbers))
+
+
+#: why a table of thresholds has no Std. column (:func:`_estimates_table`)
+STANDARDIZED_THRESHOLDS_NOTE = ("The latent responses have variance 1 here, so these thresholds are standardized "
+                                "already: their standardized values are the estimates, and no Std. column repeats "
+                                "them.")
+
+
+def _same_values(a, b) -> bool:
+    """Whether two lists of numbers are equal value by value (to rounding in the last digits; missing values
+    alike)."""
+    x, y = np.asarray(a, dtype=float), np.asarray(b, dtype=float)
+    return bool(len(x)) and bool(np.allclose(x, y, rtol=1e-9, atol=1e-12, equal_nan=True))
 
 
 def _coded_words(result, items) -> str:
@@ -601,14 +619,18 @@ def _coded_words(result, items) -> str:
 
 def _threshold_answers(result, label) -> dict[tuple[str, str], str]:
     """(item, step) -> the two answers a threshold lies between ('2 and 3'; the words of an 'answers' statement
-    when the model gives them), from the answers the item's rows gave in the group ``label``: an item whose rows
-    never gave its lowest answer has its first threshold between its second and third answer codes, so thresholds
-    of the same step number can lie between different answers (a new-user trial compared them by step)."""
+    when the model gives them, else the value labels of the data file, 'never and sometimes'), from the answers the
+    item's rows gave in the group ``label``: an item whose rows never gave its lowest answer has its first threshold
+    between its second and third answer codes, so thresholds of the same step number can lie between different
+    answers (a new-user trial compared them by step)."""
     data = next((g.data for g in result.groups if g.label == label), None)
     if data is None or not data.categories:
         return {}
-    words = {(item, code): word for items, answers in result.data.answer_coding for item in items
-             for word, _, code in answers if word is not None}
+    labelled = (result.labels or {}).get("values", {})
+    words = {(item, float(code)): str(text).strip() for item, codes in labelled.items()
+             for code, text in codes.items() if _code_number(code) is not None and str(text).strip()}
+    words.update({(item, code): word for items, answers in result.data.answer_coding for item in items
+                  for word, _, code in answers if word is not None})
     out = {}
     for item, cats in zip(data.variables, data.categories):
         codes = [v for v, _ in cats]
@@ -616,6 +638,14 @@ def _threshold_answers(result, label) -> dict[tuple[str, str], str]:
             low, high = (words.get((item, c), f"{c:g}") for c in (codes[k], codes[k + 1]))
             out[(item, str(k + 1))] = f"{low} and {high}"
     return out
+
+
+def _code_number(code) -> float | None:
+    """A value label's code as a number (the answers' codes), or None for a text code."""
+    try:
+        return float(code)
+    except (TypeError, ValueError):
+        return None
 
 
 def residual_table(result, group: int = 0) -> ReportTable | None:

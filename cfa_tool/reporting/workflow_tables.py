@@ -975,17 +975,28 @@ def power_report(result) -> Report:
     table = _table("power", "Power and sample size", [("", "l"), ("Value", "r")], [r[:2] for r in rows],
                    f"Note: {result.note}." if result.note else None,
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
-    notes = [POWER_ASSUMES] + ([POWER_ORDINAL] if result.ordinal else [])
+    notes = [power_assumptions()] + ([POWER_ORDINAL] if result.ordinal else [])
     return Report(ResultKind.POWER, "Power of the RMSEA test (MacCallum, Browne & Sugawara 1996)", None, (), (table,),
                   tuple(notes), ("RMSEA values of close and not-close fit are conventions, not laws.",))
 
 
-#: what the RMSEA power of MacCallum, Browne & Sugawara (1996) assumes, and what to do when the study differs
-POWER_ASSUMES = ("This power is that of the normal-theory likelihood-ratio test for independent, equally weighted rows "
-                 "answered in full by normally distributed data. A sampling design (clusters or uneven weights make the "
-                 "effective sample size smaller), missing answers and non-normal data lower it, and neither this plan nor "
-                 "power-simulation models them: count on more rows than shown (with a design, common practice multiplies "
-                 "the N shown by the expected design effect).")
+def power_assumptions() -> str:
+    """What the RMSEA power of MacCallum, Browne & Sugawara (1996) assumes, what lowers it, and what power-simulation
+    models instead (ordinal answers; not missing answers, a sampling design or skewed continuous answers), with the
+    options as the caller writes them."""
+    from cfa_tool.options import Option
+
+    return ("This power is that of the normal-theory likelihood-ratio test for independent, equally weighted rows "
+            "answered in full by normally distributed data. A sampling design (clusters or uneven weights make the "
+            "effective sample size smaller), missing answers and non-normal data lower it, and this plan models none "
+            "of them: count on more rows than shown (with a design, common practice multiplies the N shown by the "
+            "expected design effect). For answers on a few categories (4-point items, say), power-simulation "
+            "simulates ordinal answers, cut from normal latent responses at the thresholds of an earlier ordinal fit "
+            f"({Option.POPULATION_FROM.given('fit.json')}) or into equally likely categories "
+            f"({Option.CATEGORIES.given(4)}), and fits them as an ordinal fit does; it simulates no missing "
+            "answers, sampling design or skewed continuous answers either.")
+
+
 POWER_ORDINAL = ("The model declares ordinal items, whose fits use the adjusted test of least squares on polychoric "
                  "correlations, not the test planned here: power-simulation simulates ordinal answers and fits them as "
                  "the fit does (the power, bias and coverage of each parameter, and how often the adjusted test rejects "

@@ -340,6 +340,32 @@ def column_role(name: str) -> str | None:
     return None
 
 
+def unlike_the_items(frame: pd.DataFrame, columns) -> tuple[list[tuple[str, float, float]], tuple[float, float] | None]:
+    """The columns among ``columns`` (of numbers) whose values look like a grouping or a record rather than answers:
+    few whole values (at most data.polychoric.MAX_CATEGORIES), none as low as the answer scale that most of
+    ``columns`` share begins (the lowest and highest value more than half of them hold, such as 1 to 4) and most of
+    them above its end: a grade of 5 to 9 among items answered 1 to 4, a year, an age in years.  A column that
+    reaches the scale's low end stays an item (answered 0 to 10 or 1 to 7 among items of 1 to 5), as does one
+    mostly on the scale (2 to 6).  Returns [(column, lowest, highest)] and the shared scale (None when no scale is
+    shared by most columns: then no column is left out by this rule)."""
+    from collections import Counter
+
+    from cfa_tool.data.polychoric import MAX_CATEGORIES
+
+    distinct = {}
+    for c in columns:
+        values = np.unique(pd.to_numeric(frame[c], errors="coerce").dropna().to_numpy(dtype=float))
+        if len(values) and np.all(values == np.round(values)):
+            distinct[c] = values
+    shared = Counter((float(v[0]), float(v[-1])) for v in distinct.values()).most_common(1)
+    if not shared or shared[0][1] * 2 <= len(columns):
+        return [], None
+    (low, high), _ = shared[0]
+    found = [(c, float(v[0]), float(v[-1])) for c, v in distinct.items() if len(v) <= MAX_CATEGORIES
+             and v[0] > low and 2 * int((v > high).sum()) > len(v)]
+    return found, (low, high)
+
+
 def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: tuple = ()) -> str:
     """The columns left out because they hold text (answers written as words among them: 'yes'/'no'), named, with
     the way to explore them (new-user trial: six yes/no items left out without a word): an answers file
@@ -444,7 +470,9 @@ def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str
     coded = [c for c in labelled_codes(frame, first.value_labels) if c in numeric and c not in ids + roles
              and own_labels(c, first.value_labels)]
     worded = _word_columns(frame, numeric, codings)
-    chosen = tuple(c for c in columns if c in worded or (c in numeric and c not in ids + roles + coded))
+    unlike, scale = unlike_the_items(frame, [c for c in numeric if c not in ids + roles + coded])
+    records = [c for c, _, _ in unlike]
+    chosen = tuple(c for c in columns if c in worded or (c in numeric and c not in ids + roles + coded + records))
     if codings and not worded:
         raise OptionError(f"no column of {source} holds only the words of the answers file's statements "
                           f"({Option.ANSWERS}); name the items with {Option.ITEMS} to see which cells differ")
@@ -459,6 +487,10 @@ def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str
             + (" Left out by their names, as columns of the sampling design, ids, groups, the respondents' "
                "particulars or the survey's records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
                + f" (name them in {Option.ITEMS} to explore them)." if roles else "")
+            + (f" Left out as groupings or records rather than answers (a few whole values, most of them above the "
+               f"{scale[0]:g} to {scale[1]:g} that most columns hold, as a grade or a year would be): "
+               + ", ".join(f"{printable(c)} ({low:g} to {high:g})" for c, low, high in unlike)
+               + f" (name them in {Option.ITEMS} to explore them)." if unlike else "")
             + _text_columns_phrase(frame, numeric + worded, codings))
     return chosen, note, worded
 

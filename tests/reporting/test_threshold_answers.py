@@ -51,3 +51,28 @@ def test_the_words_of_an_answers_statement_name_the_answers(data):
     assert [row[1] for row in _threshold_table(result).rows[:2]] == ["sometimes and often", "often and always"]
     categories = T.category_table(result)
     assert "Codes of the answer words: 1 never, 2 sometimes, 3 often, 4 always." in categories.note
+
+
+def test_the_value_labels_of_the_data_file_name_the_answers(data, tmp_path):
+    # new-user trial s15: an SPSS file labelling 1..4 never .. always had thresholds 'between answers 1 and 2'
+    pyreadstat = pytest.importorskip("pyreadstat")
+    labels = {1: "never", 2: "sometimes", 3: "often", 4: "always"}
+    pyreadstat.write_sav(data.astype(float), str(tmp_path / "answers.sav"),
+                         variable_value_labels={item: labels for item in ("y1", "y2", "y3", "y4")})
+    result = cfa_tool.fit(MODEL, tmp_path / "answers.sav", ordinal="all")
+    table = _threshold_table(result)
+    assert [row[1] for row in table.rows[:5]] == ["sometimes and often", "often and always", "never and sometimes",
+                                                  "sometimes and often", "often and always"]
+
+
+def test_a_std_column_that_would_repeat_the_estimates_is_left_out_and_said(data):
+    # one group: the latent responses have variance 1, so a threshold's standardized value (tau / sd of the latent
+    # response) is the threshold itself
+    result = cfa_tool.fit(MODEL, data, ordinal="all")
+    table = _threshold_table(result)
+    thresholds = [e for e in result.estimates if e.kind == "threshold"]
+    assert all(e.standardized == pytest.approx(e.estimate, abs=1e-12) for e in thresholds)
+    assert "Std." not in table.columns and "Estimate" in table.columns
+    assert "no Std. column repeats them" in table.note
+    assert "Standardized" in table.value_columns  # the data-file version keeps every number
+    assert T._same_values([0.1, np.nan], [0.1, np.nan]) and not T._same_values([0.1, 0.2], [0.1, 0.25])

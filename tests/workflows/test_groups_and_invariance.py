@@ -154,5 +154,6 @@ def test_group_column_problems(hs_data):
         cfa_tool.fit(THREE_FACTORS, hs_data.assign(one="all"), group="one")
     tiny = hs_data.copy()
     tiny.loc[tiny.index[:3], "school"] = "tiny"
-    with pytest.raises(DataError, match="group 'tiny' of school.*3 complete rows for 9 variables"):
+    with pytest.raises(DataError, match="group 'tiny' of 'school' has only 3 complete rows for the model's 9 variables.*leave it out with "
+                       r"keep=\['school != tiny'\]"):
         cfa_tool.fit(THREE_FACTORS, tiny, group="school")

@@ -450,7 +450,11 @@ def test_a_default_population_value_held_at_the_models_own_bound_is_refused():
 def test_the_power_report_says_what_the_plan_assumes_and_what_ordinal_items_change(tmp_path):
     # new-user trial: 'power' of a model whose items are all ordinal, fitted under a cluster design, gave the
     # normal-theory plan without a word about either
-    from cfa_tool.reporting.workflow_tables import POWER_ASSUMES, POWER_ORDINAL
+    from cfa_tool.options import on_command_line
+    from cfa_tool.reporting.workflow_tables import POWER_ORDINAL, power_assumptions
+
+    with on_command_line():
+        POWER_ASSUMES = power_assumptions()
 
     model = tmp_path / "m.cfa"
     model.write_text("factor f: a, b, c, d\nordinal a, b, c, d\n")
@@ -461,6 +465,13 @@ def test_the_power_report_says_what_the_plan_assumes_and_what_ordinal_items_chan
     model.write_text("factor f: a, b, c, d\n")
     said = " ".join(run("power", str(model), "--n", "300").stdout.split())
     assert " ".join(POWER_ASSUMES.split()) in said and "declares ordinal items" not in said
+    # new-user trial s15: the note said power-simulation does not model non-normal data, yet it simulates ordinal
+    # answers (from an ordinal fit's thresholds, or equally likely categories) and fits them as an ordinal fit does
+    assert "nor power-simulation models them" not in said
+    assert ("power-simulation simulates ordinal answers, cut from normal latent responses at the thresholds of an "
+            "earlier ordinal fit (--population-from fit.json) or into equally likely categories (--categories 4)") \
+        in said
+    assert "population='fit.json'" in power_assumptions() and "categories=4" in power_assumptions()  # from Python
 
 
 def test_too_few_resamples_or_samples_bring_a_caution(hs_data):
