@@ -27,10 +27,10 @@ from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
-from cfa_tool.scoring.item_sums import ItemSumRule
+from cfa_tool.scoring.item_sums import ItemSumRule, ItemSums
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_METHODS, ScoreMethod, Unscored
 from cfa_tool.scoring.quality import (Precision, ScoreQuality, SumScore, answered_sum_sems, item_sum_precision,
-                                      mixed_sums, ordinal_sum_quality, sum_quality)
+                                      ordinal_sum_quality, sum_quality)
 
 
 class NotScored(Enum):
@@ -366,8 +366,8 @@ class ItemSumSummary:
     # scoring.quality.Precision of each summed factor's item sum and mean written (their standard error of
     # measurement, from the sum's SD under the fitted model and its omega)
     precision: tuple[Precision, ...] = ()
-    #: summed factors whose sum adds continuous items' values to ordinal answers' codes: no reliability or SEM
-    #: (scoring.quality.mixed_sums)
+    #: summed factors whose sum adds continuous items' values to ordinal answers' codes: no reliability or SEM (the
+    #: keyed sums that scoring.quality.ordinal_sum_quality left out)
     mixed: tuple[str, ...] = ()
     #: (factor, method, least, largest, rows): the standard errors of measurement of the prorated rows' item sums (or
     #: means, when no sum is written), from the items each answered (_item_sum_sems)
@@ -410,13 +410,12 @@ class _ItemParts:
         return [j for j, why in enumerate(self.not_summed) if why is None]
 
 
-def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSumRule, categories=None,
-                mixed: tuple[str, ...] = ()) -> _ItemParts:
+def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSumRule, categories=None) -> _ItemParts:
     """One group's :class:`_ItemParts` (``model``: its ScoringModel; ``fit_data``: the fit's DataSummary, whose
     answer ranges give the scale of a reverse-keyed item no statement gives one; ``sums``: the group's keyed sums'
-    quality (scoring.quality.SumScore); ``categories``: ordinal items' answer values in the fitted rows, item by
-    item, which give that scale when the fit keeps no answer ranges; ``mixed``: the factors whose sum mixes
-    continuous and ordinal items, scoring.quality.mixed_sums)."""
+    quality (scoring.quality.SumScore), which leaves out a factor whose sum mixes continuous and ordinal items
+    (scoring.quality.ordinal_sum_quality); ``categories``: ordinal items' answer values in the fitted rows, item by
+    item, which give that scale when the fit keeps no answer ranges)."""
     from cfa_tool.scoring.quality import sum_keys
 
     keys = sum_keys(model, _declared(spec))
@@ -458,7 +457,7 @@ def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSum
                              tuple(s for s in sums if s.factor in names),
                              tuple(reversals), tuple((f, why) for f, why in zip(model.factors, not_summed)
                                                      if why is not None), shared,
-                             mixed=tuple(f for f in names if f in mixed))
+                             mixed=tuple(f for f in names if f not in {s.factor for s in sums}))
     return _ItemParts(keys, lowest, highest, not_summed, summary)
 
 
@@ -487,37 +486,34 @@ def _score_group(model, rows: np.ndarray, chosen, ordinal: bool,
     base = model.base if ordinal else model
     sums = item_sums(rows, parts.keys, parts.lowest, parts.highest, parts.not_summed, base.factors,
                      parts.summary.rule)
-    sum_sem, mean_sem = _item_sum_sems(model, parts, rows, sums.sums)
+    sum_sem, mean_sem = _item_sum_sems(model, parts, rows, sums)
     for meth, values, sem in ((ScoreMethod.ITEM_SUM, sums.sums, sum_sem), (ScoreMethod.ITEM_MEAN, sums.means, mean_sem)):
         if meth in chosen:
             out[meth] = (values, sem, sums.unscored)
     summed = parts.summed
     first = next(m for m in ITEM_METHODS if m in chosen)
-    values, sem = out[first][0], out[first][1]
-    prorated = np.isfinite(values) & ((~np.isnan(rows)).astype(float) @ (parts.keys != 0) < (parts.keys != 0).sum(axis=0))
+    sem = out[first][1]
     spread = []
     for j in summed:
-        found = sem[prorated[:, j] & np.isfinite(sem[:, j]), j]
+        found = sem[sums.prorated_rows[:, j] & np.isfinite(sem[:, j]), j]
         if len(found):
             spread.append((base.factors[j], first, float(found.min()), float(found.max()), len(found)))
     return out, tuple(int(sums.prorated[j]) for j in summed), tuple(spread)
 
 
-def _item_sum_sems(model, parts: _ItemParts, rows: np.ndarray, sums: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def _item_sum_sems(model, parts: _ItemParts, rows: np.ndarray, sums: ItemSums) -> tuple[np.ndarray, np.ndarray]:
     """(n, m) each row's standard error of measurement of its item sum and of its item mean (NaN where it has no
     sum, or its sum no omega): the SEM of the sum of the items the row answered (scoring.quality.answered_sum_sems),
-    times J/a for the sum prorated from a of the factor's J items, divided by a for the mean."""
-    answered = ~np.isnan(rows)
-    found = answered_sum_sems(model, parts.summary.sums, parts.keys, answered)
-    member = parts.keys != 0
-    count = answered.astype(float) @ member
-    sum_sem, mean_sem = np.full(sums.shape, np.nan), np.full(sums.shape, np.nan)
-    factors = (model.base if hasattr(model, "base") else model).factors
+    times J/a for the sum prorated from a of the factor's J items, divided by a for the mean (a: the count
+    ``sums`` holds)."""
+    found = answered_sum_sems(model, parts.summary.sums, parts.keys, ~np.isnan(rows))
+    items = (parts.keys != 0).sum(axis=0)
+    sum_sem, mean_sem = np.full(sums.sums.shape, np.nan), np.full(sums.sums.shape, np.nan)
     for name, sem in found.items():
-        f = factors.index(name)
-        has = np.isfinite(sums[:, f])
-        a = count[has, f]
-        sum_sem[has, f] = sem[has] * member[:, f].sum() / a
+        f = sums.factors.index(name)
+        has = np.isfinite(sums.sums[:, f])
+        a = sums.answered[has, f]
+        sum_sem[has, f] = sem[has] * items[f] / a
         mean_sem[has, f] = sem[has] / a
     return sum_sem, mean_sem
 
@@ -796,8 +792,7 @@ def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group
     for model_g, label, sums_g in zip(models, labels, sums):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(rows))
         parts = None if rule is None else _item_parts(model_g.base if ordinal else model_g, spec, fit.data, sums_g,
-                                                       rule, model_g.categories if ordinal else None,
-                                                       mixed_sums(model_g, _declared(spec)) if ordinal else ())
+                                                       rule, model_g.categories if ordinal else None)
         prorated: tuple = ()
         spread: tuple = ()
         if len(sel):
