@@ -541,7 +541,7 @@ class FitResult(Presentable):
     def scores(self, data, **options):
         """Factor scores of the rows of ``data`` (other data as well) with this fit's parameters; ``options``:
         ``methods``, ``standard_errors``, ``id_column``, ``sheet``, ``missing_codes``, ``keep``,
-        ``rename`` (see cfa_tool.workflows.factor_scores.score_with_fit)."""
+        ``rename``, ``least_answered``, ``unanswered_factors`` (see cfa_tool.workflows.factor_scores.score_with_fit)."""
         return scorer()(self, data, **options)
 
 
