@@ -991,9 +991,15 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 
-    given = api.missing_codes_option(missing_codes)
-    carried = tuple(c for c in result.data.missing_codes if c not in given)  # the earlier fit's, read so here too
-    spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, given + carried, keep,
+    from cfa_tool.data.missing_codes import codes_shown
+    from cfa_tool.data.non_answers import run_words
+
+    given, words = api.missing_values_option(missing_codes)
+    # the earlier fit's codes and words of no answer, read so here too (words alike but for case are one word)
+    known = {w.casefold() for w in words + run_words()}
+    carried = tuple(c for c in result.data.missing_codes if c not in given) + tuple(
+        w for w in result.data.no_answer_words if w.casefold() not in known)
+    spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, given + words + carried, keep,
                                                      (id_column,) if isinstance(id_column, str) else (),
                                                      names_row=names_row, first_data_row=first_data_row, rename=rename,
                                                      chosen=api.chosen_columns(result.group_column, id_column))
@@ -1009,9 +1015,9 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     ids = row_ids(read_frame, source, id_column, result.observed, group, loaded.row_names)
     if carried:
         one = len(carried) == 1
-        notes.insert(0, f"{'The value' if one else 'The values'} {', '.join(f'{c:g}' for c in carried)} in {source} "
+        notes.insert(0, f"{'The value' if one else 'The values'} {codes_shown(carried)} in {source} "
                         f"{'was' if one else 'were'} read as no answer, as the earlier fit read {'it' if one else 'them'} "
-                        f"(its missing-value codes)")
+                        f"(its missing-value codes and words of no answer)")
     # the cautions about the scored file computed on it, first; the earlier fit's own said to be about the fit
     own = api.odd_value_problems(api.analysed_odd_values(loaded, spec, group), group) + api.same_answer_problems(
         api._labelled(frame, group) if group is not None else frame, spec, ids_by_row_number(ids, read_frame),
@@ -1155,6 +1161,7 @@ def read_saved_fit(path) -> SavedFit:
     an estimate that is not a number) is named in an error."""
     from cfa_tool.assessment.admissibility import saved_fit_problems
     from cfa_tool.data.answer_words import coding_from_json
+    from cfa_tool.data.missing_codes import codes_and_words
     from cfa_tool.input_files import input_json
     from cfa_tool.model.saved_estimates import saved_fit_payload, saved_rows
     from cfa_tool.pipeline.results import DataSummary
@@ -1178,7 +1185,8 @@ def read_saved_fit(path) -> SavedFit:
                               tuple(d["variables"]), means,
                               tuple(float(v) for v in d["sds"]) if d["sds"] is not None else (float("nan"),) * len(means),
                               categories=categories if counts else (), not_given=not_given,
-                              missing_codes=tuple(float(v) for v in d.get("missing_codes", ())),
+                              missing_codes=codes_and_words(d.get("missing_codes", ()))[0],
+                              no_answer_words=codes_and_words(d.get("no_answer_words", ()))[1],
                               ranges=tuple((float(d["answer_ranges"][x][0]), float(d["answer_ranges"][x][1]))
                                            for x in d["variables"]) if d.get("answer_ranges") else (),
                               answer_coding=coding_from_json(d.get("answer_coding"), source))
