@@ -1685,10 +1685,12 @@ def _without_own_answers(answered: np.ndarray, values: dict, chosen, factors,
         rows = "; ".join(f"{n} {'row' if n == 1 else 'rows'} answered none of the items of {name}" for name, n in counted)
         names = [answered_column(name) for name, _ in counted]
         columns = ", ".join(names[:-1]) + " and " + names[-1] if len(names) > 1 else names[0]
-        text = (f"{rows}: these scores, predictions from the other factors' items alone, are left empty, as asked; "
-                f"{columns} mark{'s' if len(counted) == 1 else ''} the rows with 0, and {WHY_NOT_SCORED_COLUMN} says "
-                f"'{NotScored.FACTOR_LEFT_EMPTY.value}'.")
-        advice = ("report these people's other scores only; to write the prediction from their other answers instead "
+        one = len(counted) == 1 and counted[0][1] == 1
+        text = (f"{rows}: {'this score, a prediction' if one else 'these scores, predictions'} from the other "
+                f"factors' items alone, {'is' if one else 'are'} left empty, as asked; {columns} "
+                f"mark{'s' if len(counted) == 1 else ''} {'the row' if one else 'the rows'} with 0, and "
+                f"{WHY_NOT_SCORED_COLUMN} says '{NotScored.FACTOR_LEFT_EMPTY.value}'.")
+        advice = ("report the other scores of these rows only; to write the prediction from the other answers instead "
                   "(for research, not for the person), give "
                   f"{Option.UNANSWERED_FACTORS.given(UnansweredFactor.PREDICT.value)}.")
         return (Problem(ProblemKind.FACTOR_SCORES_LEFT_EMPTY, (), None, text, advice),)
