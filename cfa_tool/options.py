@@ -183,6 +183,7 @@ class Option(enum.Enum):
     SCORE_METHODS = ("--method", "methods", None, True)
     MISSING_HELPERS = ("--missing-helpers", "missing_helpers", None, True)
     LEAST_ANSWERED = ("--least-answered", "least_answered")
+    UNANSWERED_FACTORS = ("--unanswered-factors", "unanswered_factors")  # scores: a factor a row answered no item of
     STANDARD_ERRORS = ("--standard-errors", "standard_errors", True)  # scores' standard errors (and item sums' SEMs)
     DATA = ("--data", "data")
     ITEMS = ("--items", "items")  # explore's items

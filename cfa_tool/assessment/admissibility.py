@@ -123,6 +123,8 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the rows scored: a factor score of a row that answered none of the factor's items,
     # which rests on the other factors' items alone (through the factors' correlations)
     SCORED_WITHOUT_OWN_ANSWERS = ("scores without the factor's own answers", "scored without its items", False)
+    # the same rows' scores of such a factor left empty, as asked (scoring.methods.UnansweredFactor.LEAVE_EMPTY)
+    FACTOR_SCORES_LEFT_EMPTY = ("factor scores left empty: none of the factor's items answered", "left empty", False)
     # not of the solution but of the scores: their reliability below what decisions about individuals usually need
     SCORES_LESS_RELIABLE = ("scores less reliable than decisions about individuals need", "less reliable scores",
                             False)
@@ -382,6 +384,8 @@ class Problem:
             K.UNKNOWN_GROUPS_SCORED: "rows in groups the earlier fit does not have, which get no scores",
             K.ANSWERS_BEYOND_FITTED: "answers outside the range of the rows the earlier fit analysed",
             K.SCORED_WITHOUT_OWN_ANSWERS: "factor scores of rows that answered none of the factor's items",
+            K.FACTOR_SCORES_LEFT_EMPTY: "factor scores left empty, as asked, for rows that answered none of the "
+                                        "factor's items",
             K.SCORES_LESS_RELIABLE: "scores less reliable than decisions about individuals usually need",
             K.SPARSE_ANSWERS: "rows with gaps that answer too few items together for the saturated model of "
                               "full-information ML",

@@ -76,14 +76,19 @@ def _row_of_file(text: str, least: int, what: str) -> int:
 
 def _codes(text: str) -> tuple[float | str, ...]:
     """--missing-codes split at its commas (a value in double quotes may hold commas, as in a CSV line): each value a
-    number (a code) or a word, which must hold a letter (a mistyped number such as '9 9' is an error)."""
+    number (a code) or a word, which must hold a letter (a mistyped number such as '9 9' is an error), by the rule
+    Python's ``missing_codes=`` follows too (data.missing_codes.missing_value)."""
     import csv
 
-    from cfa_tool.numbers import number
+    from cfa_tool.data.missing_codes import missing_value
 
     values = [v.strip() for v in next(csv.reader([text], skipinitialspace=True), []) if v.strip()]
-    codes = [number(v) if number(v) is not None else v for v in values]
-    wrong = [v for v in codes if isinstance(v, str) and not any(c.isalpha() for c in v)]
+    codes, wrong = [], []
+    for v in values:
+        try:
+            codes.append(missing_value(v))
+        except ValueError:
+            wrong.append(v)
     if not codes or wrong:
         raise argparse.ArgumentTypeError(
             f"missing codes must be numbers or words separated by commas, not '{text}'"

@@ -11,6 +11,8 @@ from cfa_tool.commands.common import add_report_options, check_files, emit_repor
 
 def add_parser(sub) -> None:
 
+    from cfa_tool.scoring.methods import UnansweredFactor
+
     p = sub.add_parser("scores", help="fit a model and write factor scores of every row, with their quality")
     p.add_argument("model", metavar="MODEL", help="model file")
     p.add_argument("--data", required=True, metavar="FILE", help="data file (rows of answers)")
@@ -19,7 +21,8 @@ def add_parser(sub) -> None:
                         "every run: the id (--id or the file's row names, when given), each factor's score by each "
                         "method (with its standard error when asked for), each factor's items answered, "
                         "same_answer_to_every_item (1 for a row that gave one answer to every item, reversed ones "
-                        "included; empty without a 'reversed' statement) and why_not_scored (empty for rows scored)")
+                        "included; empty without a 'reversed' statement) and why_not_scored (empty for rows scored "
+                        "in full)")
     p.add_argument("--method", metavar="LIST",
                    help="comma-separated: regression (default), bartlett, correlation-preserving, item-sum, item-mean "
                         "(the keyed sum or mean of each factor's items, reverse-keyed items reversed); ordinal items "
@@ -29,6 +32,10 @@ def add_parser(sub) -> None:
                    help="item sums and means: the least share of a factor's items a row must answer, its sum then "
                         "prorated from the answered ones (default 0.5, common practice); a row that answered fewer "
                         "gets empty cells")
+    p.add_argument("--unanswered-factors", choices=[u.value for u in UnansweredFactor], metavar="WHAT",
+                   help="what to do with a regression score or posterior mean of a factor a row answered none of the "
+                        "items of, a prediction from its other answers: predict (default; a caution says which rows "
+                        "have one) or leave-empty (the cell empty, why_not_scored saying why)")
     p.add_argument("--standard-errors", action="store_true",
                    help="also write each score's standard error (for regression scores the posterior standard deviation; "
                         "for item sums and means, _sem, their standard error of measurement from the items the row "
@@ -85,13 +92,15 @@ def run(args: argparse.Namespace) -> int:
                                   f"the earlier fit (its groups too), so it cannot apply; remove it")
         result = score_with_saved_fit(Path(args.model), args.from_fit, args.data, methods=_methods(args.method),
                                       standard_errors=args.standard_errors, id_column=args.id, **O.reading_args(args),
-                                      least_answered=args.least_answered)
+                                      least_answered=args.least_answered,
+                                      unanswered_factors=args.unanswered_factors)
     else:
         result = scores(Path(args.model), args.data, methods=_methods(args.method), standard_errors=args.standard_errors,
                         id_column=args.id, group=args.group, reference_group=args.reference_group,
                         **O.reading_args(args), ordinal=O.ordinal_arg(args.ordinal),
                         ordinal_estimator=args.ordinal_estimator, missing=args.missing,
-                        max_iterations=args.max_iterations, least_answered=args.least_answered, **O.design_args(args))
+                        max_iterations=args.max_iterations, least_answered=args.least_answered,
+                        unanswered_factors=args.unanswered_factors, **O.design_args(args))
     from cfa_tool.reporting.score_report import rows_scored
     from cfa_tool.workflows.factor_scores import WHY_NOT_SCORED_COLUMN
 

@@ -20,13 +20,47 @@ from cfa_tool.options import Option
 NAMED_COLUMNS = 8
 
 
+def missing_value(value: object) -> float | str:
+    """One value given with --missing-codes (the command line's text split at its commas) or ``missing_codes=`` (a
+    Python list), by the one rule of both: a number, or text that reads as one ('-99'), is a code, read as no answer
+    in the cells of numbers; a word ('Ne sait pas', text holding a letter) joins the words of no answer for the run
+    (data.non_answers.also_no_answer), read, counted and named as the listed phrases are.  Anything else (a mistyped
+    number such as '9 9', True, None) is a ValueError saying what was given."""
+    import numbers as kinds
+
+    from cfa_tool.numbers import number
+
+    if isinstance(value, kinds.Real) and not isinstance(value, bool):
+        return float(value)
+    if isinstance(value, str):
+        read = number(value)
+        if read is not None:
+            return read
+        if any(c.isalpha() for c in value):
+            return value.strip()
+    shown = f"'{printable(value)}'" if isinstance(value, str) else printable(repr(value))[:60]
+    raise ValueError(f"{shown} is neither a number nor a word")
+
+
+def codes_and_words(values) -> tuple[tuple[float, ...], tuple[str, ...]]:
+    """The values given as missing codes (:func:`missing_value` each), split into the numeric codes and the words,
+    each in the order given."""
+    read = [missing_value(v) for v in values]
+    return (tuple(v for v in read if not isinstance(v, str)), tuple(v for v in read if isinstance(v, str)))
+
+
+def codes_shown(codes) -> str:
+    """Missing codes as the notes show them: numbers as written (9, -99), words in quotes ('Ne sait pas')."""
+    return ", ".join(f"{c:g}" if isinstance(c, (int, float)) else f"'{printable(str(c))}'" for c in codes)
+
+
 def missing_codes_note(source: str | Path, codes: Collection[float | str], read_as_none: list[tuple[str, int]],
                        where: str = "") -> str:
     """What --missing-codes (``codes``) did in the data file ``source``: how many cells of which columns
     (``read_as_none``: (column, cells) pairs) were read as no answer, or that no cell holds any of the codes, as a
     mistyped code would leave it.  ``where``: which cells were looked at when not those of numbers ('of the items
     coded by an 'answers' statement'); ``codes`` may be words (--missing-codes 'Ne sait pas'), shown in quotes."""
-    given = ", ".join(f"{c:g}" if isinstance(c, (int, float)) else f"'{printable(str(c))}'" for c in codes)
+    given = codes_shown(codes)
     name = base_name(source)
     if not read_as_none:
         return f"{name}: no cell {where or 'of numbers'} holds any of the codes given with {Option.MISSING_CODES} ({given})"
@@ -40,13 +74,18 @@ def missing_codes_note(source: str | Path, codes: Collection[float | str], read_
 def words_given(words: list[str]) -> str:
     """--missing-codes with ``words`` as a shell takes it: the list written as a CSV line (a word holding a comma in
     double quotes, as the option reads it), words alike but for case once, the whole in double quotes when it holds
-    spaces or quotes: --missing-codes "Ne sait pas,\\"No, not asked\\""."""
+    spaces or quotes: --missing-codes "Ne sait pas,\\"No, not asked\\""; in Python, the list of words as
+    ``missing_codes=`` takes it (the one rule of both, :func:`missing_value`): missing_codes=['Ne sait pas']."""
     import csv
     import io
+
+    from cfa_tool.options import Interface, interface
 
     unique: dict[str, str] = {}
     for word in words:
         unique.setdefault(word.strip().casefold(), word.strip())
+    if interface() is not Interface.COMMAND_LINE:
+        return f"{Option.MISSING_CODES.keyword}={list(unique.values())!r}"
     line = io.StringIO()
     csv.writer(line, lineterminator="").writerow(unique.values())
     text = line.getvalue()

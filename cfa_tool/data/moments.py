@@ -211,17 +211,14 @@ def stray_word_message(source: str, name: str, shown: str, where: str, word: str
     cell, and the two ways on (correct it, or read the word as no answer), for every command (re-read s14: explore
     said 'leave it empty' where fit gave the option)."""
     return (f"{source}: column '{printable(name)}' holds text ('{shown}' in {where}) among numbers; correct the cell, "
-            f"or, if the word means no answer, " + _no_answer_advice([word], "it"))
+            f"or, if the word means no answer, " + _no_answer_advice([word]))
 
 
-def _no_answer_advice(words: list[str], cells: str = "them") -> str:
-    """How to read words among numbers as no answer: on the command line, give them with --missing-codes
-    (data.missing_codes.words_given); in Python, leave the ``cells`` ('it': one) empty."""
+def _no_answer_advice(words: list[str]) -> str:
+    """How to read words among numbers as no answer: give them with --missing-codes on the command line, with
+    missing_codes= in Python (data.missing_codes.words_given)."""
     from cfa_tool.data.missing_codes import words_given
-    from cfa_tool.options import Interface, interface
 
-    if interface() is not Interface.COMMAND_LINE:
-        return f"leave {cells} empty in a copy of the file"
     return f"give {'it' if len(words) == 1 else 'them'} with {words_given(words[:STRAY_WORDS_SHOWN])}"
 
 

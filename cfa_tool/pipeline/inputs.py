@@ -25,7 +25,7 @@ from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled
 from cfa_tool.data.matching import (answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges,
                                     chosen_columns)
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
-from cfa_tool.data.non_answers import beyond_scale, non_answer_caution
+from cfa_tool.data.non_answers import also_no_answer, beyond_scale, non_answer_caution, run_words
 from cfa_tool.data.descriptives import few_category_items, few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
@@ -104,20 +104,27 @@ def summary_source(data) -> bool:
     return suffix == SUMMARY_SUFFIX or (suffix == ".csv" and holds_summary(data))
 
 
-def missing_codes_option(codes) -> tuple[float, ...]:
-    """Values that mean 'no answer': a list of numbers, or one number."""
+def missing_values_option(codes) -> tuple[tuple[float, ...], tuple[str, ...]]:
+    """``missing_codes=`` as (codes, words): values that mean 'no answer', a list of them or one, each a number (a
+    code) or a word of no answer for the run, by the command line's rule (data.missing_codes.missing_value)."""
+    from cfa_tool.data.missing_codes import codes_and_words
+
     if codes is None:
-        return ()
-    if isinstance(codes, (int, float)) and not isinstance(codes, bool):
+        return (), ()
+    if isinstance(codes, (int, float, str)) and not isinstance(codes, bool):
         codes = (codes,)
-    if isinstance(codes, (str, bytes)) or not hasattr(codes, "__iter__"):
-        raise OptionError(f"missing_codes must be a list of numbers, not {type(codes).__name__}")
-    out = []
-    for code in codes:
-        if isinstance(code, bool) or not isinstance(code, (int, float, np.integer, np.floating)):
-            raise OptionError(f"missing_codes must hold numbers only, not {code!r}"[:120])
-        out.append(float(code))
-    return tuple(out)
+    if isinstance(codes, bytes) or not hasattr(codes, "__iter__"):
+        raise OptionError(f"missing_codes must be a list of numbers and words, not {type(codes).__name__}")
+    try:
+        return codes_and_words(codes)
+    except ValueError as error:
+        raise OptionError(f"missing_codes must hold numbers (codes) and words (of no answer): {error}"[:200]) from None
+
+
+def missing_codes_option(codes) -> tuple[float, ...]:
+    """The numbers of ``missing_codes=`` (:func:`missing_values_option`; its words are read as no answer where the
+    data are read, :func:`read_inputs_with_notes`)."""
+    return missing_values_option(codes)[0]
 
 
 def of_summary_statistics(result, moments, notes) -> object:
@@ -222,6 +229,12 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     factor's name (a column that does and that the run does not read is named in a note); ``keeps_gaps``: whether the
     fit keeps rows with gaps (None: no fit says), by which a half of halves of the complete rows is read or refused
     (data.halves.half_kept)."""
+    words = missing_values_option(missing_codes)[1]
+    if words:  # words given in Python: read as no answer as the command line's are (commands.run)
+        with also_no_answer(run_words() + words):
+            return read_inputs_with_notes(model, data, sheet, missing_codes_option(missing_codes), keep, text_columns,
+                                          items, names_row, names_option, first_data_row, name_the_file, rename,
+                                          rename_option, chosen, keeps_gaps)
     keep = keep_option(keep)
     spec = load_spec(model)
     halves = [k for k in keep if isinstance(k, RandomHalf)]
@@ -579,14 +592,18 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
         result = replace(result, data=replace(result.data, reading=loaded.reading))
     if row_naming(loaded.frame) is not RowNaming.FILE_ROW:
         result = replace(result, data=replace(result.data, row_naming=row_naming(loaded.frame)))
-    codes = missing_codes_option(missing_codes)
+    codes, words = missing_values_option(missing_codes)
+    # the words of no answer too, given in Python or on the command line (there, the run's words): scoring other data
+    # with the fit reads them so too
+    words = tuple(dict.fromkeys(words + run_words()))
     # the missing-data helpers' cells read as missing too: they enter the likelihood as the items do (review s13)
     items = set(result.observed) | set(getattr(result.method, "helpers", None) or ())
     marked = tuple(f for f in loaded.non_answers if f.column in items)
     odd = tuple(o for o in loaded.odd_values if items.intersection(o.columns))
-    if not codes and not marked and not odd:
+    if not codes and not words and not marked and not odd:
         return result
-    return replace(result, data=replace(result.data, missing_codes=codes, non_answers=marked, odd_values=odd))
+    return replace(result, data=replace(result.data, missing_codes=codes, no_answer_words=words, non_answers=marked,
+                                        odd_values=odd))
 
 
 def _id_can_apply(spec: Spec, ordinal, fit_options: FitOptions) -> None:

@@ -217,6 +217,9 @@ class DataSummary:
     not_given: tuple = ()
     # values read as no answer (--missing-codes), which scoring other data with this fit reads so too
     missing_codes: tuple[float, ...] = ()
+    # the words of no answer the run added (--missing-codes 'Ne sait pas', data.non_answers.also_no_answer), which
+    # scoring other data with this fit reads so too (the values read so are named by ``non_answers``)
+    no_answer_words: tuple[str, ...] = ()
     # values of the model's items that the data file itself marks as no answer, read as missing
     # (data.non_answers.NonAnswer): the methods paragraph names them
     non_answers: tuple = ()
@@ -289,6 +292,8 @@ class DataSummary:
             out["not_given"] = [g.value for g in self.not_given]
         if self.missing_codes:
             out["missing_codes"] = list(self.missing_codes)
+        if self.no_answer_words:
+            out["no_answer_words"] = list(self.no_answer_words)
         if self.reading is not None:
             out["reading"] = self.reading.to_dict()
         if self.renamed:
@@ -546,7 +551,7 @@ class FitResult(Presentable):
     def scores(self, data, **options):
         """Factor scores of the rows of ``data`` (other data as well) with this fit's parameters; ``options``:
         ``methods``, ``standard_errors``, ``id_column``, ``sheet``, ``missing_codes``, ``keep``,
-        ``rename`` (see cfa_tool.workflows.factor_scores.score_with_fit)."""
+        ``rename``, ``least_answered``, ``unanswered_factors`` (see cfa_tool.workflows.factor_scores.score_with_fit)."""
         return scorer()(self, data, **options)
 
 

@@ -195,12 +195,26 @@ def precision_table(result, k: int) -> ReportTable | None:
     sds = ", ".join(f"{p.factor} {num(p.scale_sd, 2)}" for p in found)
     first += (f"Scores, SEs and bands are in each factor's units as the model scales it (the factor's standard "
               f"deviation: {sds}). ")
+    first += _left_empty_sentence(result, method)
     note = (first + f"SE: the typical distance of a score from the person's factor value; 95% band: "
             f"±1.96 SE about a score (normal approximation); real difference: the smallest difference between two "
             f"people's scores that exceeds chance at the 5% level, 1.96 × √2 × SE (Gulliksen 1950). SDs: divided by "
             f"the factor's standard deviation." + _one_item_sentence(result.fit))  # (Gulliksen: scoring.quality)
     return _table(f"score_precision_{k}", "How precise is one person's score?" + _where(q), cols, rows, note,
                   values=([c for c, _ in cols], values))
+
+
+def _left_empty_sentence(result, method: ScoreMethod) -> str:
+    """What the precision table says of the cells of ``method`` left empty for rows that answered none of a
+    factor's items (workflows.factor_scores, UnansweredFactor.LEAVE_EMPTY), with their count per factor in the
+    whole file (the unscored table's count); '' when none was."""
+    counts = next((c for r, m, c in result.unscored if r == Unscored.LEFT_EMPTY.value and m == method.value), None)
+    if counts is None or not any(counts):
+        return ""
+    several = " (all groups together)" if len(result.quality) > 1 else ""
+    return (f"Left empty, as asked ({Option.UNANSWERED_FACTORS.given(result.unanswered.value)}): the "
+            f"{METHOD_LABELS[method]} scores of rows that answered none of the factor's items, "
+            f"{_unscored_counts(result.factors, counts)}{several}; no figure here is about them. ")
 
 
 def item_sum_precision_table(result, k: int) -> ReportTable | None:

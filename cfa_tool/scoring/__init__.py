@@ -14,7 +14,8 @@ The modules are pure functions on one group's fitted matrices:
 
 from cfa_tool.scoring.item_sums import ItemSumRule, ItemSums, item_sums
 from cfa_tool.scoring.linear import LinearScorer, ScoreBlock, row_blocks, score_blocks, score_groups, score_rows
-from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_METHODS, ScoreMethod, Unscored
+from cfa_tool.scoring.methods import (DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_METHODS, ScoreMethod, UnansweredFactor,
+                                      Unscored)
 from cfa_tool.scoring.model import (OrdinalScoringModel, ScoringModel, one_group_ordinal_inputs, ordinal_score_inputs,
                                     items_answered, score_inputs, scoring_model)
 from cfa_tool.scoring.ordinal import EapScorer, PosteriorScores, eap_blocks, eap_scores
@@ -22,6 +23,6 @@ from cfa_tool.scoring.quality import ScoreQuality, score_quality
 
 __all__ = ["DETERMINACY_CAUTION", "EapScorer", "ITEM_METHODS", "ItemSumRule", "ItemSums", "LINEAR_METHODS",
            "LinearScorer", "OrdinalScoringModel", "PosteriorScores", "ScoreBlock", "ScoreMethod", "ScoreQuality",
-           "ScoringModel", "Unscored", "eap_blocks", "eap_scores", "item_sums", "one_group_ordinal_inputs",
-           "ordinal_score_inputs", "row_blocks", "score_blocks", "score_groups", "score_inputs", "score_quality",
+           "ScoringModel", "UnansweredFactor", "Unscored", "eap_blocks", "eap_scores", "item_sums",
+           "one_group_ordinal_inputs", "ordinal_score_inputs", "row_blocks", "score_blocks", "score_groups", "score_inputs", "score_quality",
            "score_rows", "scoring_model", "items_answered"]

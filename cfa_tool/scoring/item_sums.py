@@ -53,14 +53,21 @@ class ItemSumRule:
 
 @dataclass(frozen=True, eq=False)
 class ItemSums:
-    """Each row's item sum and item mean of each factor (NaN where there is none), with the counts of rows prorated
-    and left without one (by reason)."""
+    """Each row's item sum and item mean of each factor (NaN where there is none), with how many of the factor's
+    items each row answered, which rows are prorated, and the rows left without one (by reason): counted here once,
+    for the standard errors of measurement and the report to read."""
 
     factors: tuple[str, ...]
     sums: np.ndarray  # (n, m)
     means: np.ndarray  # (n, m)
-    prorated: np.ndarray  # (m,) rows whose sum is prorated from some of the factor's items
+    answered: np.ndarray  # (n, m) how many of the factor's items (keys nonzero) each row answered: a
+    prorated_rows: np.ndarray  # (n, m) bool: the row has a sum prorated from some (not all) of the factor's items
     unscored: dict  # Unscored -> (m,) rows without a sum or mean for that reason
+
+    @property
+    def prorated(self) -> np.ndarray:
+        """(m,) the rows whose sum is prorated from some of the factor's items."""
+        return self.prorated_rows.sum(axis=0).astype(np.int64)
 
 
 def item_sums(rows: np.ndarray, keys: np.ndarray, lowest: np.ndarray, highest: np.ndarray, not_summed: list,
@@ -101,5 +108,4 @@ def item_sums(rows: np.ndarray, keys: np.ndarray, lowest: np.ndarray, highest: n
     few = (~enough & anything[:, None] & summed).sum(axis=0).astype(np.int64)
     if few.any():
         unscored[Unscored.TOO_FEW_ITEMS_ANSWERED] = few
-    prorated = (enough & (count < items)).sum(axis=0).astype(np.int64)
-    return ItemSums(tuple(factors), sums, means, prorated, unscored)
+    return ItemSums(tuple(factors), sums, means, count, enough & (count < items), unscored)

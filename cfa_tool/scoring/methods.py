@@ -30,6 +30,9 @@ class ScoreMethod(Enum):
 LINEAR_METHODS = (ScoreMethod.REGRESSION, ScoreMethod.BARTLETT, ScoreMethod.CORRELATION_PRESERVING)
 #: scale scores computed from the answers alone, keyed and checked by the fitted model (not factor scores)
 ITEM_METHODS = (ScoreMethod.ITEM_SUM, ScoreMethod.ITEM_MEAN)
+#: the methods that score a factor a row answered none of the items of, from its other answers (the posterior mean
+#: exists whatever is answered); Bartlett and correlation-preserving scores need the factor's own items, item sums too
+PREDICTING_METHODS = (ScoreMethod.REGRESSION, ScoreMethod.EXPECTED_A_POSTERIORI)
 
 
 class Unscored(Enum):
@@ -47,6 +50,21 @@ class Unscored(Enum):
     NOT_ITEMS_ALONE = "an item sum or mean is only for a factor measured by its own items alone"
     #: item sums and means: a method factor describes a way of answering (wording, acquiescence), not a trait
     NOT_A_TRAIT = "a method factor describes a way of answering, not a trait, and has no item sum or mean"
+    #: the row answered none of the factor's items, and its score of the factor (a prediction from its other answers)
+    #: was asked to be left empty (:attr:`UnansweredFactor.LEAVE_EMPTY`)
+    LEFT_EMPTY = "none of the factor's items answered: its prediction from the other answers left empty, as asked"
+
+
+class UnansweredFactor(Enum):
+    """What to do with a factor whose items a row answered none of (directly or through the factors below it).  A
+    regression score or posterior mean of it still exists, a prediction from the row's other answers through the
+    factors' correlations (Thurstone 1935; Bock & Aitkin 1981), which a report to the person could mistake for a
+    measure of that factor."""
+
+    #: write the prediction (the default: it keeps the data), with a caution first that says which rows have one
+    PREDICT = "predict"
+    #: leave the cell empty, counted as :attr:`Unscored.LEFT_EMPTY` and said in the file's why_not_scored column
+    LEAVE_EMPTY = "leave-empty"
 
 
 def rows_without_answers(answered, m: int) -> dict:

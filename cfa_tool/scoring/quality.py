@@ -281,8 +281,10 @@ def item_sum_precision(sums: Sequence[SumScore], methods: Sequence[ScoreMethod])
 
 def ordinal_sum_quality(model: OrdinalScoringModel, declared: Collection[str] | None = None) -> tuple[SumScore, ...]:
     """Each factor's keyed sum of ordinal answers with its reliability and variance (Green & Yang 2009); sums that
-    would take in a continuous item beside the ordinal ones are left out (:func:`mixed_sums`).  Validity: the sum's
-    correlation with its factor under the model (assessment.ordinal_reliability)."""
+    would take in a continuous item beside the ordinal ones are left out: the model gives the spread of a sum of
+    answers' codes from the thresholds, not of such a mixture (a keyed factor without a SumScore here is one, which
+    the item sums' summary reads as such).  Validity: the sum's correlation with its factor under the model
+    (assessment.ordinal_reliability)."""
     base = model.base
     sigma = checked_covariance(base)
     keys = sum_keys(base, declared)
@@ -321,8 +323,9 @@ def answered_sum_sems(model: ScoringModel | OrdinalScoringModel, sums: Sequence[
     ``sums`` that have an omega: SEM = SD_A sqrt(1 - omega_A) (Lord & Novick 1968), SD_A the spread under the fitted
     model of the sum of the answered items A and omega_A its reliability (McDonald 1999 from the fitted loadings,
     Green & Yang 2009 for ordinal answers' codes), computed once per pattern of answered items; NaN for a row that
-    answered none of them.  With every item answered it is the SEM of :func:`item_sum_precision`; a prorated sum,
-    J/a times the sum of the a answered items, has J/a times it, and an item mean 1/a times it."""
+    answered none of them.  With every item answered it is the SEM of :func:`item_sum_precision`, from the
+    :class:`SumScore`'s own SD and omega; a prorated sum, J/a times the sum of the a answered items, has J/a times
+    it, and an item mean 1/a times it."""
     ordinal = isinstance(model, OrdinalScoringModel)
     base = model.base if ordinal else model
     sigma = checked_covariance(base)
@@ -341,6 +344,9 @@ def answered_sum_sems(model: ScoringModel | OrdinalScoringModel, sums: Sequence[
             idx = member[pattern]
             if not len(idx):
                 continue
+            if pattern.all():  # every item answered: the keyed sum's own figures, computed once (SumScore)
+                found[k] = s.sd * np.sqrt(max(1.0 - s.omega, 0.0))
+                continue
             if ordinal:
                 omega, variance = _ordinal_sum_parts(model, sigma, mean, idx, f, keys[:, f])
             else:
@@ -350,15 +356,6 @@ def answered_sum_sems(model: ScoringModel | OrdinalScoringModel, sums: Sequence[
             found[k] = np.sqrt(max(variance * (1.0 - omega), 0.0))
         out[s.factor] = found[np.ravel(which)]
     return out
-
-
-def mixed_sums(model: OrdinalScoringModel, declared: Collection[str] | None = None) -> tuple[str, ...]:
-    """The factors whose keyed sum adds continuous items' values to ordinal answers' codes: the model gives the
-    spread of a sum of answers' codes from the thresholds (Green & Yang 2009), not of such a mixture, so these sums
-    get no reliability or standard error of measurement (:func:`ordinal_sum_quality` leaves them out)."""
-    keys = sum_keys(model.base, declared)
-    return tuple(name for f, name in enumerate(model.base.factors)
-                 if keys[:, f].any() and _ordinal_sum_items(model, keys[:, f]) is None)
 
 
 def score_quality(model: ScoringModel, methods: tuple[ScoreMethod, ...] = LINEAR_METHODS,

@@ -27,10 +27,11 @@ from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
-from cfa_tool.scoring.item_sums import ItemSumRule
-from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_METHODS, ScoreMethod, Unscored
+from cfa_tool.scoring.item_sums import ItemSumRule, ItemSums
+from cfa_tool.scoring.methods import (DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_METHODS, PREDICTING_METHODS,
+                                      ScoreMethod, UnansweredFactor, Unscored)
 from cfa_tool.scoring.quality import (Precision, ScoreQuality, SumScore, answered_sum_sems, item_sum_precision,
-                                      mixed_sums, ordinal_sum_quality, sum_quality)
+                                      ordinal_sum_quality, sum_quality)
 
 
 class NotScored(Enum):
@@ -44,17 +45,26 @@ class NotScored(Enum):
     NO_GROUP = "no group"
     UNKNOWN_GROUP = "group not in the fit"
     TOO_FEW_ANSWERS = "too few answers"  # answers, but too few for any score asked for (an item sum's least share)
+    #: a line with scores, some of whose cells are empty because the row answered none of a factor's items and
+    #: that score was asked to be left empty (UnansweredFactor.LEAVE_EMPTY; the _items_answered columns say which)
+    FACTOR_LEFT_EMPTY = "a factor's items unanswered"
 
     @property
     def reason(self) -> str:
         return _REASONS[self]
+
+    @property
+    def whole_line(self) -> bool:
+        """Whether the reason leaves the line without any score (all but :attr:`FACTOR_LEFT_EMPTY`)."""
+        return self is not NotScored.FACTOR_LEFT_EMPTY
 
 
 _REASONS = {NotScored.FILTERED: "left out by a row filter (--keep)", NotScored.BLANK: "a blank row of the file",
             NotScored.ABOVE_ANSWERS: "a row above the first row of answers (--first-data-row)",
             NotScored.NO_ANSWERS: Unscored.NO_ANSWERS.value, NotScored.NO_GROUP: "no value in the group column",
             NotScored.UNKNOWN_GROUP: "a group the fit does not have",
-            NotScored.TOO_FEW_ANSWERS: "too few answers for any score asked for"}
+            NotScored.TOO_FEW_ANSWERS: "too few answers for any score asked for",
+            NotScored.FACTOR_LEFT_EMPTY: Unscored.LEFT_EMPTY.value}
 
 #: the reasons a whole row has no score that the scoring of each group does not count (its rows are not scored)
 _ROWS_LEFT_OUT = (NotScored.FILTERED, NotScored.NO_GROUP, NotScored.UNKNOWN_GROUP)
@@ -123,6 +133,45 @@ def item_rule(chosen, least_answered) -> ItemSumRule | None:
         return ItemSumRule()
     return ItemSumRule(real_number(f"the least share answered ({Option.LEAST_ANSWERED})", least_answered, 0.0, 1.0,
                                    open_low=True))
+
+
+def unanswered_option(value, chosen) -> UnansweredFactor:
+    """What to do with a factor a row answered none of the items of (``value``: a word of :class:`UnansweredFactor`
+    or a member; None: predict, the default, which keeps the data).  Only regression scores and posterior means
+    score such a factor, so the option cannot apply without one of them among the methods ``chosen``."""
+    from cfa_tool.options import choice
+
+    if value is None:
+        return UnansweredFactor.PREDICT
+    found = choice(UnansweredFactor, value, str(Option.UNANSWERED_FACTORS))
+    if not any(m in PREDICTING_METHODS for m in chosen):
+        raise OptionError(f"{Option.UNANSWERED_FACTORS} says what to do with a regression score or posterior mean of "
+                          f"a factor a row answered none of the items of, and none is written (item sums and means, "
+                          f"Bartlett and correlation-preserving scores leave such a cell empty), so it cannot apply; "
+                          f"remove it")
+    return found
+
+
+def _left_empty(answered: np.ndarray, values: dict, errors: dict, chosen, unanswered: UnansweredFactor,
+                counts: dict) -> tuple[dict, dict, np.ndarray]:
+    """(scores, standard errors, (n,) whether the row has a cell left empty) as the file writes them: with
+    :attr:`UnansweredFactor.LEAVE_EMPTY`, each regression score or posterior mean of a factor the row answered none
+    of the items of (``answered``: :func:`_items_answered`) emptied and counted into ``counts`` as
+    :attr:`Unscored.LEFT_EMPTY`; with predict, ``values`` and ``errors`` as they are.  The scores that remain are
+    those of the prediction, cell for cell."""
+    rows = np.zeros(len(answered), dtype=bool)
+    if unanswered is UnansweredFactor.PREDICT:
+        return values, errors, rows
+    values, errors = dict(values), dict(errors)
+    for meth in (m for m in chosen if m in PREDICTING_METHODS):
+        empty = (answered == 0) & ~np.isnan(values[meth])
+        if not empty.any():
+            continue
+        values[meth] = np.where(empty, np.nan, values[meth])
+        errors[meth] = np.where(empty, np.nan, errors[meth])
+        counts[(Unscored.LEFT_EMPTY.value, meth.value)] = empty.sum(axis=0).astype(np.int64)
+        rows |= empty.any(axis=1)
+    return values, errors, rows
 
 
 def _refuse_id_named_as(id_name: str | None, written, what: str = "a column") -> None:
@@ -263,14 +312,18 @@ def _count_rows_left_out(reasons: pd.Series, chosen, m: int, counts: dict) -> No
                 counts[(why.reason, meth.value)] = np.full(m, number)
 
 
-def _with_why_not_scored(table: pd.DataFrame, id_name, score_columns: list[str], reasons: pd.Series) -> pd.DataFrame:
+def _with_why_not_scored(table: pd.DataFrame, id_name, score_columns: list[str], reasons: pd.Series,
+                         left_empty: pd.Series | None = None) -> pd.DataFrame:
     """``table`` (the scores in file order, blank rows of the file as empty lines) with :data:`WHY_NOT_SCORED_COLUMN`
     last, saying why a line has no score at all (:class:`NotScored`; ``reasons``: :func:`_row_reasons`), so that a
-    line left empty is told apart from a person with no answers when the file is merged back; empty on the lines
-    scored, and on every line when each has a score (written all the same: the file's columns never vary)."""
+    line left empty is told apart from a person with no answers when the file is merged back, or why a line with
+    scores has a factor's cells left empty (``left_empty``: per row read, :func:`_left_empty`); empty on the lines
+    scored in full, and on every line when each is (written all the same: the file's columns never vary)."""
     _refuse_id_named_as(id_name, (WHY_NOT_SCORED_COLUMN,))
     scored = table[score_columns].notna().any(axis=1).to_numpy()
-    if scored.all():
+    partly = (np.zeros(len(table), dtype=bool) if left_empty is None else
+              left_empty.reindex(table.index, fill_value=False).to_numpy(dtype=bool))
+    if scored.all() and not partly.any():
         return table.assign(**{WHY_NOT_SCORED_COLUMN: pd.Series([None] * len(table), index=table.index, dtype=object)})
     known = table.index.isin(reasons.index)
     why = np.full(len(table), None, dtype=object)
@@ -280,6 +333,7 @@ def _with_why_not_scored(table: pd.DataFrame, id_name, score_columns: list[str],
         why[~known & (table.index < reasons.index.min())] = NotScored.ABOVE_ANSWERS
     why[scored] = None
     why[~scored & pd.isna(why)] = NotScored.TOO_FEW_ANSWERS
+    why[scored & partly] = NotScored.FACTOR_LEFT_EMPTY
     return table.assign(**{WHY_NOT_SCORED_COLUMN: [None if w is None else w.value for w in why]})
 
 
@@ -366,8 +420,8 @@ class ItemSumSummary:
     # scoring.quality.Precision of each summed factor's item sum and mean written (their standard error of
     # measurement, from the sum's SD under the fitted model and its omega)
     precision: tuple[Precision, ...] = ()
-    #: summed factors whose sum adds continuous items' values to ordinal answers' codes: no reliability or SEM
-    #: (scoring.quality.mixed_sums)
+    #: summed factors whose sum adds continuous items' values to ordinal answers' codes: no reliability or SEM (the
+    #: keyed sums that scoring.quality.ordinal_sum_quality left out)
     mixed: tuple[str, ...] = ()
     #: (factor, method, least, largest, rows): the standard errors of measurement of the prorated rows' item sums (or
     #: means, when no sum is written), from the items each answered (_item_sum_sems)
@@ -410,13 +464,12 @@ class _ItemParts:
         return [j for j, why in enumerate(self.not_summed) if why is None]
 
 
-def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSumRule, categories=None,
-                mixed: tuple[str, ...] = ()) -> _ItemParts:
+def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSumRule, categories=None) -> _ItemParts:
     """One group's :class:`_ItemParts` (``model``: its ScoringModel; ``fit_data``: the fit's DataSummary, whose
     answer ranges give the scale of a reverse-keyed item no statement gives one; ``sums``: the group's keyed sums'
-    quality (scoring.quality.SumScore); ``categories``: ordinal items' answer values in the fitted rows, item by
-    item, which give that scale when the fit keeps no answer ranges; ``mixed``: the factors whose sum mixes
-    continuous and ordinal items, scoring.quality.mixed_sums)."""
+    quality (scoring.quality.SumScore), which leaves out a factor whose sum mixes continuous and ordinal items
+    (scoring.quality.ordinal_sum_quality); ``categories``: ordinal items' answer values in the fitted rows, item by
+    item, which give that scale when the fit keeps no answer ranges)."""
     from cfa_tool.scoring.quality import sum_keys
 
     keys = sum_keys(model, _declared(spec))
@@ -458,7 +511,7 @@ def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSum
                              tuple(s for s in sums if s.factor in names),
                              tuple(reversals), tuple((f, why) for f, why in zip(model.factors, not_summed)
                                                      if why is not None), shared,
-                             mixed=tuple(f for f in names if f in mixed))
+                             mixed=tuple(f for f in names if f not in {s.factor for s in sums}))
     return _ItemParts(keys, lowest, highest, not_summed, summary)
 
 
@@ -487,37 +540,34 @@ def _score_group(model, rows: np.ndarray, chosen, ordinal: bool,
     base = model.base if ordinal else model
     sums = item_sums(rows, parts.keys, parts.lowest, parts.highest, parts.not_summed, base.factors,
                      parts.summary.rule)
-    sum_sem, mean_sem = _item_sum_sems(model, parts, rows, sums.sums)
+    sum_sem, mean_sem = _item_sum_sems(model, parts, rows, sums)
     for meth, values, sem in ((ScoreMethod.ITEM_SUM, sums.sums, sum_sem), (ScoreMethod.ITEM_MEAN, sums.means, mean_sem)):
         if meth in chosen:
             out[meth] = (values, sem, sums.unscored)
     summed = parts.summed
     first = next(m for m in ITEM_METHODS if m in chosen)
-    values, sem = out[first][0], out[first][1]
-    prorated = np.isfinite(values) & ((~np.isnan(rows)).astype(float) @ (parts.keys != 0) < (parts.keys != 0).sum(axis=0))
+    sem = out[first][1]
     spread = []
     for j in summed:
-        found = sem[prorated[:, j] & np.isfinite(sem[:, j]), j]
+        found = sem[sums.prorated_rows[:, j] & np.isfinite(sem[:, j]), j]
         if len(found):
             spread.append((base.factors[j], first, float(found.min()), float(found.max()), len(found)))
     return out, tuple(int(sums.prorated[j]) for j in summed), tuple(spread)
 
 
-def _item_sum_sems(model, parts: _ItemParts, rows: np.ndarray, sums: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def _item_sum_sems(model, parts: _ItemParts, rows: np.ndarray, sums: ItemSums) -> tuple[np.ndarray, np.ndarray]:
     """(n, m) each row's standard error of measurement of its item sum and of its item mean (NaN where it has no
     sum, or its sum no omega): the SEM of the sum of the items the row answered (scoring.quality.answered_sum_sems),
-    times J/a for the sum prorated from a of the factor's J items, divided by a for the mean."""
-    answered = ~np.isnan(rows)
-    found = answered_sum_sems(model, parts.summary.sums, parts.keys, answered)
-    member = parts.keys != 0
-    count = answered.astype(float) @ member
-    sum_sem, mean_sem = np.full(sums.shape, np.nan), np.full(sums.shape, np.nan)
-    factors = (model.base if hasattr(model, "base") else model).factors
+    times J/a for the sum prorated from a of the factor's J items, divided by a for the mean (a: the count
+    ``sums`` holds)."""
+    found = answered_sum_sems(model, parts.summary.sums, parts.keys, ~np.isnan(rows))
+    items = (parts.keys != 0).sum(axis=0)
+    sum_sem, mean_sem = np.full(sums.sums.shape, np.nan), np.full(sums.sums.shape, np.nan)
     for name, sem in found.items():
-        f = factors.index(name)
-        has = np.isfinite(sums[:, f])
-        a = count[has, f]
-        sum_sem[has, f] = sem[has] * member[:, f].sum() / a
+        f = sums.factors.index(name)
+        has = np.isfinite(sums.sums[:, f])
+        a = sums.answered[has, f]
+        sum_sem[has, f] = sem[has] * items[f] / a
         mean_sem[has, f] = sem[has] / a
     return sum_sem, mean_sem
 
@@ -582,6 +632,8 @@ class ScoreResult(Presentable):
     warnings: tuple[str, ...] = ()
     # item sums and means (methods item-sum, item-mean): one summary per group, empty when neither is written
     item_sums: tuple[ItemSumSummary, ...] = ()
+    #: what was done with a factor a row answered none of the items of (its prediction written, or left empty)
+    unanswered: UnansweredFactor = UnansweredFactor.PREDICT
 
     @property
     def rows(self) -> int:
@@ -597,6 +649,15 @@ class ScoreResult(Presentable):
     @property
     def not_scored(self) -> dict[NotScored, int]:
         """The lines without any score, by reason (:data:`WHY_NOT_SCORED_COLUMN`), in :class:`NotScored` order."""
+        return {why: n for why, n in self._reasons_written().items() if why.whole_line}
+
+    @property
+    def lines_left_partly_empty(self) -> int:
+        """Lines with scores whose cells of a factor the row answered none of the items of were left empty, as asked
+        (:attr:`NotScored.FACTOR_LEFT_EMPTY`)."""
+        return self._reasons_written().get(NotScored.FACTOR_LEFT_EMPTY, 0)
+
+    def _reasons_written(self) -> dict[NotScored, int]:
         if WHY_NOT_SCORED_COLUMN not in self.table.columns:
             return {}
         counts = self.table[WHY_NOT_SCORED_COLUMN].value_counts()
@@ -617,6 +678,8 @@ class ScoreResult(Presentable):
             "rows": self.rows,
             "rows_scored": self.rows_scored,
             "rows_not_scored": {why.value: n for why, n in self.not_scored.items()},
+            "unanswered_factors": self.unanswered.value,
+            "rows_with_a_factor_left_empty": self.lines_left_partly_empty,
             "methods": [m.value for m in self.methods],
             "factors": list(self.factors),
             "id_column": self.id_name,
@@ -650,7 +713,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
            group: str | None = None, reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None,
            first_data_row: int | None = None, missing_codes=(), keep=(), rename=None, ordinal=None, ordinal_estimator: str | None = None, weights: str | None = None,
            cluster: str | None = None, strata: str | None = None, weight_kind: str | None = None,
-           least_answered: float | None = None, **options) -> ScoreResult:
+           least_answered: float | None = None, unanswered_factors=None, **options) -> ScoreResult:
     """Fit ``model`` to ``data`` (as :func:`cfa_tool.fit` does, same options) and score every row.
 
     ``methods``: 'regression' (Thurstone 1935; the default), 'bartlett' (Bartlett 1937),
@@ -660,6 +723,9 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     means beside it when asked for).
     ``least_answered``: the least share of a factor's items a row must answer for an item sum or mean (default .5,
     common practice); only with item sums or means.
+    ``unanswered_factors``: what to do with a regression score or posterior mean of a factor a row answered none of
+    the items of, a prediction from its other answers: 'predict' (the default; a caution first says which rows have
+    one) or 'leave-empty' (the cell empty, the file's why_not_scored column and the report saying why).
     ``standard_errors``: also write each score's standard error (root mean squared error about the
     factor given the row's answered items; for regression scores the posterior standard deviation).
     ``id_column``: a column written first to name each row (never analysed); without it, the file's
@@ -700,6 +766,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     ordinal_items = api.ordinal_items_of(spec, ordinal)
     if ordinal_items:
         chosen = _ordinal_methods(methods, chosen, standard_errors, "")
+    unanswered = unanswered_option(unanswered_factors, chosen)
     # the weights parsed once, as fit parses them: for the fit, the groups weighted out and the rows scored from
     loaded = api.with_design_weights(api.analysed_odd_values(loaded, spec, group), design, spec, group)
     with api.odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
@@ -741,12 +808,14 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
 
     answered = _items_answered(models[0].base if ordinal_items else models[0], rows,
                                position.loc[kept].to_numpy(), len(read_index))
-    id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors,
+    written, written_errors, left = _left_empty(answered, values, errors, chosen, unanswered, counts)
+    id_name, columns = _score_columns(ids, id_column, chosen, factors, written, written_errors,
                                       bool(standard_errors or ordinal_items), answered)
     columns = _with_same_answer_column(columns, id_name, spec, items, rows, position.loc[kept].to_numpy(),
                                        len(read_index))
     table = _in_file_order(pd.DataFrame(columns, index=read_index), data, names_row)  # a frame's own index: joins
-    table = _with_why_not_scored(table, id_name, score_columns(chosen, factors), reasons)
+    table = _with_why_not_scored(table, id_name, score_columns(chosen, factors), reasons,
+                                 pd.Series(left, index=read_index))
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
                                spec, answered, sums) if ordinal_items else _linear_quality(models, spec, sums)
     result = _with_repeated_ids(result, ids, id_column)
@@ -755,7 +824,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     if ids is not None and id_column is None:
         extra.insert(0, f"The first column holds the row names of {source} (its first column, which has no name in "
                         f"the header); give {Option.ID_COLUMN.given('COLUMN')} to name the rows by another column.")
-    own = _without_own_answers(answered, values, chosen, factors)
+    own = _without_own_answers(answered, values, chosen, factors, unanswered)
     if own:
         result = replace(result, problems=tuple(own) + tuple(result.problems))
     unweighted = len(frame) - len(fitted_rows)  # weight 0: not in the fit, yet scored like every row
@@ -766,7 +835,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality), unscored,
                        bool(standard_errors or ordinal_items), tuple(extra),
-                       warnings=tuple(centred_in_each_group(result.estimates)), item_sums=summaries)
+                       warnings=tuple(centred_in_each_group(result.estimates)), item_sums=summaries,
+                       unanswered=unanswered)
 
 
 def _with_repeated_ids(result, ids, id_column):
@@ -796,8 +866,7 @@ def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group
     for model_g, label, sums_g in zip(models, labels, sums):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(rows))
         parts = None if rule is None else _item_parts(model_g.base if ordinal else model_g, spec, fit.data, sums_g,
-                                                       rule, model_g.categories if ordinal else None,
-                                                       mixed_sums(model_g, _declared(spec)) if ordinal else ())
+                                                       rule, model_g.categories if ordinal else None)
         prorated: tuple = ()
         spread: tuple = ()
         if len(sel):
@@ -894,7 +963,7 @@ def refuse_unknown_scale(data, what: str) -> None:
 def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,
                    sheet: str | None = None, missing_codes=(), keep=(), names_row: int | None = None,
                    least_answered: float | None = None, first_data_row: int | None = None,
-                   rename=None) -> ScoreResult:
+                   rename=None, unanswered_factors=None) -> ScoreResult:
     """Scores of the rows of ``data`` with the parameters of an earlier fit (``result``): a scale calibrated in one
     sample scores another.  With groups, ``data`` needs the fit's group column, and each row is scored with its
     group's parameters (a row of a group the fit does not have gets no scores).  The quality figures are those of
@@ -909,21 +978,28 @@ def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bo
                                   "the fit result given", "no factor scores are computed with it")
     chosen = _saved_methods(methods, result.method.ordinal, standard_errors)
     rule = item_rule(chosen, least_answered)
+    unanswered = unanswered_option(unanswered_factors, chosen)
     models, labels = models_of_fit(result)
     return _score_other_data(result, _spec_of(result), models, labels, data, chosen, standard_errors, id_column, sheet,
-                             missing_codes, keep, names_row, first_data_row, rule, rename)
+                             missing_codes, keep, names_row, first_data_row, rule, rename, unanswered)
 
 
 def _score_other_data(result, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
                       keep, names_row=None, first_data_row=None, rule: ItemSumRule | None = None,
-                      rename=None) -> ScoreResult:
+                      rename=None, unanswered: UnansweredFactor = UnansweredFactor.PREDICT) -> ScoreResult:
     """Rows of ``data`` scored with the given models (one per group of the earlier fit ``result``)."""
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 
-    given = api.missing_codes_option(missing_codes)
-    carried = tuple(c for c in result.data.missing_codes if c not in given)  # the earlier fit's, read so here too
-    spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, given + carried, keep,
+    from cfa_tool.data.missing_codes import codes_shown
+    from cfa_tool.data.non_answers import run_words
+
+    given, words = api.missing_values_option(missing_codes)
+    # the earlier fit's codes and words of no answer, read so here too (words alike but for case are one word)
+    known = {w.casefold() for w in words + run_words()}
+    carried = tuple(c for c in result.data.missing_codes if c not in given) + tuple(
+        w for w in result.data.no_answer_words if w.casefold() not in known)
+    spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, given + words + carried, keep,
                                                      (id_column,) if isinstance(id_column, str) else (),
                                                      names_row=names_row, first_data_row=first_data_row, rename=rename,
                                                      chosen=api.chosen_columns(result.group_column, id_column))
@@ -943,9 +1019,9 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     ids = row_ids(read_frame, source, id_column, result.observed, group, loaded.row_names)
     if carried:
         one = len(carried) == 1
-        notes.insert(0, f"{'The value' if one else 'The values'} {', '.join(f'{c:g}' for c in carried)} in {source} "
+        notes.insert(0, f"{'The value' if one else 'The values'} {codes_shown(carried)} in {source} "
                         f"{'was' if one else 'were'} read as no answer, as the earlier fit read {'it' if one else 'them'} "
-                        f"(its missing-value codes)")
+                        f"(its missing-value codes and words of no answer)")
     # the cautions about the scored file computed on it, first; the earlier fit's own said to be about the fit
     own = api.odd_value_problems(api.analysed_odd_values(loaded, spec, group), group) + api.same_answer_problems(
         api._labelled(frame, group) if group is not None else frame, spec, ids_by_row_number(ids, read_frame),
@@ -977,13 +1053,14 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     factors = base.factors
     with_errors = bool(standard_errors or ordinal)  # a posterior mean always comes with its posterior SD
     answered = _items_answered(base, rows, position.loc[frame.index].to_numpy(), n)
-    id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, with_errors, answered)
+    written, written_errors, left = _left_empty(answered, values, errors, chosen, unanswered, counts)
+    id_name, columns = _score_columns(ids, id_column, chosen, factors, written, written_errors, with_errors, answered)
     columns = _with_same_answer_column(columns, id_name, spec, base.items, rows, position.loc[frame.index].to_numpy(), n)
     warnings = centred_in_each_group(result.estimates)
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     # first in every view, before the fit's own (the rows scored are this run's data)
-    scored_problems = list(_without_own_answers(answered, values, chosen, factors))
+    scored_problems = list(_without_own_answers(answered, values, chosen, factors, unanswered))
     if unknown_groups:
         scored_problems.append(Problem(ProblemKind.UNKNOWN_GROUPS_SCORED, (), None, unknown_groups + ".",
                                        "write each row's group as the fit's data wrote it, or fit the model to "
@@ -1014,9 +1091,9 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                         f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
     table = _with_why_not_scored(_in_file_order(pd.DataFrame(columns, index=read_frame.index), data, names_row), id_name,
-                                 score_columns(chosen, factors), reasons)
+                                 score_columns(chosen, factors), reasons, pd.Series(left, index=read_frame.index))
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
-                       unscored, with_errors, tuple(notes), source, tuple(warnings), summaries)
+                       unscored, with_errors, tuple(notes), source, tuple(warnings), summaries, unanswered)
 
 
 def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: str,
@@ -1088,6 +1165,7 @@ def read_saved_fit(path) -> SavedFit:
     an estimate that is not a number) is named in an error."""
     from cfa_tool.assessment.admissibility import saved_fit_problems
     from cfa_tool.data.answer_words import coding_from_json
+    from cfa_tool.data.missing_codes import codes_and_words
     from cfa_tool.input_files import input_json
     from cfa_tool.model.saved_estimates import saved_fit_payload, saved_rows
     from cfa_tool.pipeline.results import DataSummary
@@ -1111,7 +1189,8 @@ def read_saved_fit(path) -> SavedFit:
                               tuple(d["variables"]), means,
                               tuple(float(v) for v in d["sds"]) if d["sds"] is not None else (float("nan"),) * len(means),
                               categories=categories if counts else (), not_given=not_given,
-                              missing_codes=tuple(float(v) for v in d.get("missing_codes", ())),
+                              missing_codes=codes_and_words(d.get("missing_codes", ()))[0],
+                              no_answer_words=codes_and_words(d.get("no_answer_words", ()))[1],
                               ranges=tuple((float(d["answer_ranges"][x][0]), float(d["answer_ranges"][x][1]))
                                            for x in d["variables"]) if d.get("answer_ranges") else (),
                               answer_coding=coding_from_json(d.get("answer_coding"), source))
@@ -1350,7 +1429,7 @@ def ordinal_models_of_estimates(spec, rows, data, labels: tuple[str, ...] | None
 def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_errors: bool = False,
                          id_column: str | None = None, sheet: str | None = None, missing_codes=(), keep=(),
                          names_row: int | None = None, least_answered: float | None = None,
-                         first_data_row: int | None = None, rename=None) -> ScoreResult:
+                         first_data_row: int | None = None, rename=None, unanswered_factors=None) -> ScoreResult:
     """Scores of the rows of ``data`` with the parameters of a fit saved as JSON (``fit --json``) of ``model``."""
     from cfa_tool.assessment.admissibility import refuse_inadmissible_saved_fit
     from cfa_tool.data.answer_words import with_saved_coding
@@ -1366,9 +1445,10 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
     spec = with_saved_coding(given, saved.data.answer_coding, saved.source)  # the fit's coding
     chosen = _saved_methods(methods, bool(saved.payload.get("ordinal_items")), standard_errors)
     rule = item_rule(chosen, least_answered)
+    unanswered = unanswered_option(unanswered_factors, chosen)
     models, labels = models_of_saved_fit(spec, saved)
     return _score_other_data(saved, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
-                             keep, names_row, first_data_row, rule, rename)
+                             keep, names_row, first_data_row, rule, rename, unanswered)
 
 
 def _spec_of(result: FitResult):
@@ -1587,26 +1667,43 @@ def centred_in_each_group(estimates) -> list[str]:
             f"that group's own units."]
 
 
-def _without_own_answers(answered: np.ndarray, values: dict, chosen, factors) -> tuple:
-    """The caution, first in every view, on rows that answered none of a factor's items and still have a factor score
-    of it (``answered``: :func:`_items_answered`; ``values``: each method's scores at the same places): such a score
-    rests on the other factors' items alone, a prediction a report to the person could mistake for their own
-    (a new user scoring staff for feedback found 63 such scores said only in a note).  Item sums and means leave
-    such cells empty, and Bartlett and correlation-preserving scores as a rule too (the unscored table counts them),
-    so only the cells a factor-score method filled are counted.  () when there are none."""
+def _without_own_answers(answered: np.ndarray, values: dict, chosen, factors,
+                         unanswered: UnansweredFactor = UnansweredFactor.PREDICT) -> tuple:
+    """The caution, first in every view, on rows that answered none of a factor's items and have a factor score of it
+    (``answered``: :func:`_items_answered`; ``values``: each method's scores at the same places, before
+    :func:`_left_empty`): such a score rests on the other factors' items alone, a prediction a report to the person
+    could mistake for their own (a new user scoring staff for feedback found 63 such scores said only in a note).
+    Item sums and means leave such cells empty, and Bartlett and correlation-preserving scores as a rule too (the
+    unscored table counts them), so only the cells a factor-score method filled are counted; with ``unanswered``
+    leave-empty, they are the cells left empty, and the caution says so.  () when there are none."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     scored = np.zeros(answered.shape, dtype=bool)
     for meth in factor_methods(chosen):
         scored |= ~np.isnan(values[meth])
     total = ((answered == 0) & scored).sum(axis=0)
-    said = [f"{int(n)} {'row' if n == 1 else 'rows'} answered none of the items of {name}, and "
+    counted = [(name, int(n)) for name, n in zip(factors, total) if n]
+    if not counted:
+        return ()
+    if unanswered is UnansweredFactor.LEAVE_EMPTY:
+        rows = "; ".join(f"{n} {'row' if n == 1 else 'rows'} answered none of the items of {name}" for name, n in counted)
+        names = [answered_column(name) for name, _ in counted]
+        columns = ", ".join(names[:-1]) + " and " + names[-1] if len(names) > 1 else names[0]
+        one = len(counted) == 1 and counted[0][1] == 1
+        text = (f"{rows}: {'this score, a prediction' if one else 'these scores, predictions'} from the other "
+                f"factors' items alone, {'is' if one else 'are'} left empty, as asked; {columns} "
+                f"mark{'s' if len(counted) == 1 else ''} {'the row' if one else 'the rows'} with 0, and "
+                f"{WHY_NOT_SCORED_COLUMN} says '{NotScored.FACTOR_LEFT_EMPTY.value}'.")
+        advice = ("report the other scores of these rows only; to write the prediction from the other answers instead "
+                  "(for research, not for the person), give "
+                  f"{Option.UNANSWERED_FACTORS.given(UnansweredFactor.PREDICT.value)}.")
+        return (Problem(ProblemKind.FACTOR_SCORES_LEFT_EMPTY, (), None, text, advice),)
+    said = [f"{n} {'row' if n == 1 else 'rows'} answered none of the items of {name}, and "
             f"{'its' if n == 1 else 'their'} score of {name} rests on the other factors' items alone (through the "
             f"factors' correlations); the column {answered_column(name)} marks {'it' if n == 1 else 'them'} with 0"
-            for name, n in zip(factors, total) if n]
-    if not said:
-        return ()
-    return (Problem(ProblemKind.SCORED_WITHOUT_OWN_ANSWERS, (), None, "; ".join(said) + ".",
-                    "treat such a score as a prediction from the row's other answers, not as a measure of the factor "
-                    "for that person: leave it out of any report to the person, or score the rows' own items only "
-                    "(item sums or means leave it empty)."),)
+            for name, n in counted]
+    advice = ("treat such a score as a prediction from the row's other answers, not as a measure of the factor for "
+              "that person: leave it out of any report to the person (give "
+              f"{Option.UNANSWERED_FACTORS.given(UnansweredFactor.LEAVE_EMPTY.value)} to leave such cells empty), or "
+              "score the rows' own items only (item sums or means leave it empty).")
+    return (Problem(ProblemKind.SCORED_WITHOUT_OWN_ANSWERS, (), None, "; ".join(said) + ".", advice),)

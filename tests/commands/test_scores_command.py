@@ -466,3 +466,24 @@ def test_rows_above_the_first_row_of_answers_keep_their_lines(tmp_path, model_fi
     assert scored[1].endswith(",above the answers") and set(scored[1].removesuffix("above the answers")) <= {","}
     assert scored[2:] == plain[1:]
     assert "keeps its line" in " ".join(out.split())
+
+
+def test_unanswered_factors_leave_empty_on_the_command_line(tmp_path, model_file, capsys):
+    # rows that answered none of visual's items: their visual scores left empty, the line saying why
+    data = pd.read_csv(HS_FILE)
+    data.loc[data.index[[2, 5]], ["x1", "x2", "x3"]] = np.nan
+    path = tmp_path / "blanked.csv"
+    data.to_csv(path, index=False)
+    out = tmp_path / "scores.csv"
+    code, _, err = _run(["scores", model_file, "--data", path, "--output", out, "--unanswered-factors", "leave-empty",
+                         "--json", tmp_path / "scores.json"], capsys)
+    assert code == 0, err
+    written = pd.read_csv(out)
+    assert written["visual_regression"].iloc[[2, 5]].isna().all() and written["visual_regression"].notna().sum() == 299
+    assert written["why_not_scored"].iloc[[2, 5]].tolist() == ["a factor's items unanswered"] * 2
+    result = json.loads((tmp_path / "scores.json").read_text())
+    assert result["unanswered_factors"] == "leave-empty" and result["rows_with_a_factor_left_empty"] == 2
+    assert any("--unanswered-factors predict" in p["advice"] for p in result["fit"]["problems"])
+    code, _, err = _run(["scores", model_file, "--data", path, "--output", tmp_path / "s2.csv", "--method", "item-sum",
+                         "--unanswered-factors", "predict"], capsys)
+    assert code == 2 and "--unanswered-factors says what to do" in err and "Traceback" not in err

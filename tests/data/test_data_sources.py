@@ -521,8 +521,10 @@ def test_python_options_of_the_wrong_type(hs_items):
     coded.loc[0, "x1"] = -99
     result = cfa_tool.fit(THREE_FACTORS, coded, missing_codes=-99, missing="listwise")
     assert result.n_obs == 300
-    with pytest.raises(OptionError, match="missing_codes must be a list of numbers"):
-        cfa_tool.fit(THREE_FACTORS, coded, missing_codes="-99")
+    # text that reads as a number is that code, as on the command line (scores-s15: one rule for both)
+    assert cfa_tool.fit(THREE_FACTORS, coded, missing_codes="-99", missing="listwise").n_obs == 300
+    with pytest.raises(OptionError, match="missing_codes must be a list of numbers and words, not object"):
+        cfa_tool.fit(THREE_FACTORS, coded, missing_codes=object())
 
 
 @pytest.mark.parametrize("column, words", [

@@ -112,3 +112,63 @@ def test_null_marks_of_a_spreadsheet_export_are_no_answer(answers, tmp_path):
     assert result["fit"]["chi_square"] == pytest.approx(reference["fit"]["chi_square"], rel=1e-9)
     said = json.dumps(result)
     assert "'#NULL!' (2 cells: q1 2)" in said and "'-' (1 cell: q3 1)" in said
+
+
+#: the cells of the tests below: words of no answer and a numeric code
+WORDS_AND_CODE = {(4, "q1"): "Ne sait pas", (10, "q2"): "ne sait pas", (20, "q3"): "No, not asked", (30, "q4"): -99}
+
+
+def test_python_takes_the_words_by_the_command_lines_rule(answers, tmp_path):
+    # scores-s15: missing_codes= took numbers only ('missing_codes must hold numbers only'), the command line words too
+    import cfa_tool
+    from cfa_tool.data.missing_codes import missing_value
+    from cfa_tool.errors import OptionError
+
+    model, written, empty = _files(tmp_path, answers, WORDS_AND_CODE)
+    given = ["-99", "Ne sait pas", "No, not asked"]
+    result = cfa_tool.fit(model, written, missing_codes=given)
+    reference = _fit([model, "--data", empty], tmp_path, "empty")  # the reference: those cells left empty
+    assert result.fit.chi_square == pytest.approx(reference["fit"]["chi_square"], rel=1e-9)
+    on_line = _fit([model, "--data", written, "--missing-codes", '-99,Ne sait pas,"No, not asked"'], tmp_path, "line")
+    # counted and named alike, each naming the option as its caller wrote it
+    assert json.dumps(result.to_dict()["warnings"]).replace("missing_codes=...", "--missing-codes") == json.dumps(
+        on_line["warnings"])
+    # one rule: each value read as the command line reads the text of the same value
+    assert [missing_value(v) for v in given] == [-99.0, "Ne sait pas", "No, not asked"]
+    assert result.data.missing_codes == (-99.0,) and result.data.no_answer_words == ("Ne sait pas", "No, not asked")
+    assert on_line["data"]["missing_codes"] == [-99.0]
+    assert on_line["data"]["no_answer_words"] == ["Ne sait pas", "No, not asked"]
+    for wrong in (["9 9"], [None], True):
+        with pytest.raises(OptionError, match="missing_codes must"):
+            cfa_tool.fit(model, written, missing_codes=wrong)
+    # without the words, Python's refusal of the text names the keyword that reads them
+    from cfa_tool.errors import DataError
+
+    with pytest.raises(DataError, match=r"give them with missing_codes=\['Ne sait pas', 'No, not asked'\]"):
+        cfa_tool.fit(model, written, missing_codes=[-99])
+
+
+def test_scores_with_an_earlier_fit_read_its_words_as_it_did(answers, tmp_path, capsys):
+    # scores --from-fit kept the fit's numeric codes only: a word the fit read as no answer was text among numbers
+    import cfa_tool
+
+    model, written, empty = _files(tmp_path, answers, WORDS_AND_CODE)
+    fitted = tmp_path / "fit.json"
+    assert cli.main(["fit", model, "--data", written, "--missing-codes", '-99,Ne sait pas,"No, not asked"', "--json",
+                     str(fitted)]) == 0
+    out = tmp_path / "scores.csv"
+    assert cli.main(["scores", model, "--data", written, "--from-fit", str(fitted), "--output", str(out),
+                     "--json", str(tmp_path / "scores.json")]) == 0, capsys.readouterr().err
+    scored = pd.read_csv(out)
+    assert scored["rider_items_answered"].iloc[[4, 10, 20, 30]].tolist() == [3, 3, 3, 3]
+    notes = json.loads((tmp_path / "scores.json").read_text())["notes"]
+    assert any("The values -99, 'Ne sait pas', 'No, not asked' in" in n and "as the earlier fit read them" in n
+               for n in notes)
+    # the same scores as the file with those cells empty, scored with that fit
+    reference = tmp_path / "reference.csv"
+    assert cli.main(["scores", model, "--data", empty, "--from-fit", str(fitted), "--output", str(reference)]) == 0
+    np.testing.assert_allclose(scored["rider_regression"], pd.read_csv(reference)["rider_regression"], rtol=1e-12)
+    # a fit in Python keeps them too, for scoring with it
+    result = cfa_tool.fit(model, written, missing_codes=["Ne sait pas", "No, not asked", -99])
+    again = result.scores(written)
+    np.testing.assert_allclose(again.table["rider_regression"], scored["rider_regression"], rtol=1e-9)

@@ -76,6 +76,10 @@ def test_sums_and_means_match_pandas_arithmetic(share):
         np.testing.assert_allclose(found.sums[complete.to_numpy(), f], plain[complete].to_numpy())
         enough = answered >= np.ceil(share * len(items))
         assert found.prorated[f] == int((enough & ~complete & (answered > 0)).sum())
+        # the per-row counts and the prorated rows, held once for the standard errors of measurement (re-read s14:
+        # they were counted here and again in the workflow), against pandas' count of answered cells
+        np.testing.assert_array_equal(found.answered[:, f], answered.to_numpy())
+        np.testing.assert_array_equal(found.prorated_rows[:, f], (enough & ~complete & (answered > 0)).to_numpy())
         few = int((~enough & (answered > 0) & FRAME.notna().any(axis=1)).sum())
         assert found.unscored.get(Unscored.TOO_FEW_ITEMS_ANSWERED, np.zeros(2))[f] == few
     assert found.unscored[Unscored.NO_ANSWERS].tolist() == [1, 1]  # the last row answered nothing
