@@ -6,7 +6,7 @@ from __future__ import annotations
 import numpy as np
 
 from cfa_tool.estimation.optimizer import Outcome
-from cfa_tool.language.names import reference_text, written_name
+from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.estimation.strategy import Restart, Search
 from cfa_tool.options import Option
 
@@ -48,7 +48,7 @@ def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, l
         parts.append("a restart with every factor's variance fixed at 1 did not converge either")
     elif found.restart is Restart.UNSCALABLE:
         bad = found.unscalable
-        where = f" in group '{bad.group}'" if bad.group is not None else ""
+        where = f" in group {written_group(bad.group)}" if bad.group is not None else ""  # the one rule of group names
         if bad.indicator is not None:
             parts.append(f"with every factor's variance fixed at 1 the model converged, but there the marker "
                          f"'{bad.indicator}' of factor '{bad.factor}'{where} has a loading of about zero, so it cannot "

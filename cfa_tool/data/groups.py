@@ -87,14 +87,17 @@ def default_reference(frame: pd.DataFrame, column: str, labels: list[str]) -> tu
     return labels[0], ReferenceRule.FIRST_LABEL
 
 
-def reference_words(label: str, rule: ReferenceRule) -> str:
+def reference_words(label: str, rule: ReferenceRule, labels=()) -> str:
     """The reference group and why, as every report says it beside the group's name: "north, the first label in
-    sorted order; choose another with --reference-group" (a group chosen by the user: its name alone)."""
+    sorted order; choose another with --reference-group" (a group chosen by the user: its name alone), the label
+    written by the one rule of group names among ``labels`` (every group's; language.names.written_group)."""
+    from cfa_tool.language.names import written_group
     from cfa_tool.options import Option
 
+    written = written_group(label, labels)
     if rule is ReferenceRule.GIVEN:
-        return label
-    return f"{label}, {rule.phrase}; choose another with {Option.REFERENCE_GROUP}"
+        return written
+    return f"{written}, {rule.phrase}; choose another with {Option.REFERENCE_GROUP}"
 
 
 def reference_rule(frame: pd.DataFrame, column: str, reference: str | None = None) -> ReferenceRule:

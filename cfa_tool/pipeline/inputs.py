@@ -575,7 +575,7 @@ def reference_note(results, frame: pd.DataFrame, group: str | None, reference_gr
     from cfa_tool.data.groups import reference_rule, reference_words
 
     return [f"the reference group (its factor means fixed at zero, the other groups' means differences from it) is "
-            f"{reference_words(results[0].groups[0].label, reference_rule(frame, group))}"]
+            f"{reference_words(results[0].groups[0].label, reference_rule(frame, group), [g.label for g in results[0].groups])}"]
 
 
 def with_missing_reading(result, loaded: LoadedData, missing_codes=()):

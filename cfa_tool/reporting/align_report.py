@@ -4,6 +4,7 @@ drawn in the terminal, HTML and Markdown.  Problems of the configural solution a
 from __future__ import annotations
 
 from cfa_tool.data.groups import reference_words
+from cfa_tool.language.names import written_group
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.numbers import num, p_value, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable, _table
@@ -21,8 +22,8 @@ CLOSING_CAUTIONS = (ALIGNMENT_CAUTION, GUIDE_NOTE, HIGH_STAKES_NOTE)
 def _reference(result) -> str:
     """The reference group and why it is (data.groups.reference_words)."""
     if result.reference_rule is None:
-        return result.reference_group
-    return reference_words(result.reference_group, result.reference_rule)
+        return written_group(result.reference_group, result.groups)
+    return reference_words(result.reference_group, result.reference_rule, result.groups)
 
 
 def title(result) -> str:

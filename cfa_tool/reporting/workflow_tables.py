@@ -11,7 +11,7 @@ from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, ProblemKind, des
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.data.groups import reference_words
-from cfa_tool.language.names import names_text
+from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod, FitTest, MissingData
@@ -610,9 +610,12 @@ def invariance_report(result) -> Report:
                                                                 poor_fit=False, small_groups=False)))
     notice = None if not warnings else ProblemNotice(SOME_NOT_ADMISSIBLE if inadmissible else CHECK_SOLUTIONS, warnings,
                                                      inadmissible)
-    lines = ("Reference group (factor means fixed at zero): " + (result.groups[0] if result.reference_rule is None else
-                                                               reference_words(result.groups[0], result.reference_rule)),
-             f"{first.n_obs} rows analysed ({', '.join(f'{g.label}: {g.data.n_obs}' for g in first.groups)}); "
+    labels = tuple(result.groups)
+    lines = ("Reference group (factor means fixed at zero): " + (
+                 written_group(result.groups[0], labels) if result.reference_rule is None else
+                 reference_words(result.groups[0], result.reference_rule, labels)),
+             f"{first.n_obs} rows analysed "
+             f"({', '.join(f'{written_group(g.label, labels)}: {g.data.n_obs}' for g in first.groups)}); "
              f"estimation: {first.estimator}",
              *_design_lines(first),
              f"Each step after the configural one is judged by "
