@@ -53,6 +53,9 @@ class RowFilter:
     #: 'district = north'), each with its rows before the filter (set by apply_filters): a filter matches text exactly,
     #: so it treats them as other values, which a caution says (as the group column's caution does)
     other_case: tuple[tuple[str, int], ...] = ()
+    #: the value label the file gives the code compared (set by apply_filters for a number compared with = or != in
+    #: a column with value labels): a methods section names the group by its label, not by a bare code
+    label: str | None = None
 
     def __str__(self) -> str:
         return self.text
@@ -66,6 +69,8 @@ class RowFilter:
         1' (the column as the model language writes names: language.names.written_name); with the rows it left out
         for an empty cell first: 'mode was not bus (54 rows with no value of mode left out)'."""
         value = f"{self.value:g}" if isinstance(self.value, float) else str(self.value)
+        if self.label is not None:  # 'gender was not 3 ("another / prefers to describe")' (new-user trial s15)
+            value += f' ("{self.label}")'
         return f"{written_name(self.column)} {_OPERATOR_WORDS[self.operator]} {value}" + (
             f" ({self.empty_words()} left out)" if self.empty else "")
 
@@ -223,8 +228,12 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
             absent = (f"; no row has '{printable(label_text(f.value))}' in '{printable(f.column)}' (values present: "
                       f"{_present(values, target)})" + (_case_hint(cased) if isinstance(target, str) else ""))
         before = len(frame)
+        named = None  # the label of the code compared, for the methods section's words
+        if labels and isinstance(f.value, float) and f.operator in ("=", "!="):
+            named = next((str(text) for code, text in labels.items()
+                          if _number_or_nan(code) == f.value and str(text).strip()), None)
         f = replace(f, empty=int(column.isna().sum()), dropped=int((~keep & column.notna()).sum()), shared=shared,
-                    other_case=cased)
+                    other_case=cased, label=named)
         counted.append(f)
         frame = frame.loc[keep.to_numpy()]
         emptied = (f"left out {f.empty_words()} (an empty cell meets no comparison, '!=' included), and "
