@@ -24,6 +24,7 @@ from cfa_tool.model.description import label_words, split_label
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.model.parameters import ParameterTable
 from cfa_tool.model.saved_estimates import AGAIN, SavedRow
+from cfa_tool.note_parts import Text
 from cfa_tool.numerics.linalg import cholesky_log_det
 from cfa_tool.options import Option
 
@@ -241,21 +242,21 @@ class Problem:
     parameters: tuple[str, ...]
     value: float | None
     explanation: str
-    advice: str
+    advice: Text  # words, or a Note whose command the views whose reader runs the program show (note_parts)
     group: str | None = None
 
     def to_dict(self) -> dict:
         value = None if self.value is None or not np.isfinite(self.value) else float(self.value)
         return {"kind": self.kind.value, "inadmissible": self.kind.inadmissible, "parameters": list(self.parameters),
-                "parameters_in_words": list(self.parameter_words()), "value": value, "group": self.group, "explanation": self.explanation, "advice": self.advice}
+                "parameters_in_words": list(self.parameter_words()), "value": value, "group": self.group, "explanation": self.explanation, "advice": str(self.advice)}
 
     def parameter_words(self) -> tuple[str, ...]:
         """The parameters in plain words ('the loading of helpful on courtesy in group north')."""
         return tuple(label_words(label) for label in self.parameters)
 
-    def line(self) -> str:
+    def line(self) -> Text:
         """The problem as the views list it: the explanation, then what to try."""
-        return f"{self.explanation} What to try: {self.advice}"
+        return self.explanation + " What to try: " + self.advice
 
     def phrase(self, quoted: bool = False) -> str:
         """The problem in the words of a methods paragraph, e.g. 'a negative residual variance of x9 (-1.02)';

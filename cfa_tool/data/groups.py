@@ -13,6 +13,7 @@ from cfa_tool.suggest import close_names
 from cfa_tool.data.moments import SampleMoments, sample_moments
 from cfa_tool.errors import DataError, OptionError, check_rows_counted, printable
 from cfa_tool.method import MissingData
+from cfa_tool.note_parts import Command, Note
 
 
 MAX_GROUPS = 100  # a multi-group fit estimates every parameter in each group
@@ -80,14 +81,15 @@ def default_reference(frame: pd.DataFrame, column: str, labels: list[str]) -> tu
     return labels[0], ReferenceRule.FIRST_LABEL
 
 
-def reference_words(label: str, rule: ReferenceRule) -> str:
+def reference_words(label: str, rule: ReferenceRule) -> str | Note:
     """The reference group and why, as every report says it beside the group's name: "north, the first label in
-    sorted order; choose another with --reference-group" (a group chosen by the user: its name alone)."""
+    sorted order", with, for the program's user, "; choose another with --reference-group" (a Note: a manuscript
+    leaves the command out); a group chosen by the user: its name alone."""
     from cfa_tool.options import Option
 
     if rule is ReferenceRule.GIVEN:
         return label
-    return f"{label}, {rule.phrase}; choose another with {Option.REFERENCE_GROUP}"
+    return Note((f"{label}, {rule.phrase}", Command(f"; choose another with {Option.REFERENCE_GROUP}")))
 
 
 def reference_rule(frame: pd.DataFrame, column: str, reference: str | None = None) -> ReferenceRule:

@@ -6,6 +6,7 @@ from __future__ import annotations
 from dataclasses import replace
 
 from cfa_tool.reporting import tables as T
+from cfa_tool.note_parts import WORDS, said
 from cfa_tool.reporting.remedies import Remedy
 from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.options import Option
@@ -489,9 +490,10 @@ def warnings(result) -> list[str]:
     # the fit's note on reading the fit indices of ordinal items: the scores' report shows none
     fitted = [w for w in result.fit.warnings if w != ORDINAL_NOTE]
     if result.scored_source:
-        # the fit's advice named its own options; scoring other data takes none of them
+        # the fit's advice named its own options; scoring other data takes none of them (a fit read from its JSON
+        # holds its warnings as text, with the option in it)
         option = f" ({Remedy.COMPLETE_ROWS.option})"
-        fitted = [ABOUT_THE_FIT + w.replace(option, "") for w in fitted]
+        fitted = [ABOUT_THE_FIT + said(w, WORDS).replace(option, "") for w in fitted]
     return list(result.warnings) + _guessed_scales(result) + fitted
 
 

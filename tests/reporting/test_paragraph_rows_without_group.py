@@ -44,7 +44,7 @@ def test_the_comparison_says_it_too(hs_data):
     text = " ".join(report.paragraph.split())
     assert f"{without} of {len(data)} rows had no value in the group column (school) and were left out" in text
     assert "answered none of some model's variables" not in text
-    assert any(f"{without} rows have no value in the group column 'school'" in n for n in comparison.notes)
+    assert any(f"{without} rows have no value in the group column 'school'" in str(n) for n in comparison.notes)
 
 
 def test_the_invariance_paragraph_says_it_too(hs_data):
