@@ -1058,16 +1058,20 @@ def montecarlo_report(result) -> Report:
              _percent(p.relative_bias), _percent(p.se_bias)] for p in result.parameters]
     values = [[label_words(p.label, article=False, observed=result.observed or None), p.power, p.coverage, p.relative_bias,
                p.se_bias] for p in result.parameters]
+    population = _population_of(result)
+    # the population's table by reference (each view names it as it names its tables: 'Table 2' in Word); a result
+    # read back without it has none to point to
+    where = (Note(("Population values are in ", TableReference(population[0].key), "; mean estimates and SDs in "
+                   "the JSON result.")) if population else "Mean estimates and SDs are in the JSON result.")
     table = _table("parameters", "Per parameter", [("Parameter", "l"), ("Power", "r"), ("Coverage", "r"),
                                                    ("Estimate bias %", "r"), ("SE bias %", "r")], rows,
                    f"Power: share of replications in which the parameter differs from zero at alpha {unit(result.alpha, 2)}; "
                    f"coverage: share of 95% Wald intervals that hold the population value (nominal 95%); bias: mean "
-                   f"estimate (or mean SE) against the population value (or the SD of the estimates). Population values "
-                   f"are in the table below; mean estimates and SDs in the JSON result.",
+                   f"estimate (or mean SE) against the population value (or the SD of the estimates). " + where,
                    values=(["Parameter", "Power", "Coverage", "Estimate relative bias", "SE relative bias"], values))
     return Report(ResultKind.POWER_SIMULATION,
                   f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
-                  _notice([], _inadmissible_cautions([result])), tuple(lines), (table, *_population_of(result)),
+                  _notice([], _inadmissible_cautions([result])), tuple(lines), (table, *population),
                   warnings=few_replications(result.replications))
 
 

@@ -122,3 +122,26 @@ def test_a_note_is_said_as_each_view_says_it():
     assert Note.from_dict(json.loads(json.dumps(note.to_dict()))) == note
     assert str("x " + note + " y") == "x see a table of this report; choose another with --this. y"
     assert said("plain words", WORDS) == "plain words"
+
+
+def test_a_power_simulation_names_its_population_table_as_each_view_names_tables():
+    # its note said "the table below" in every view; Word numbers its tables, and a result read back without its
+    # population has no such table
+    from dataclasses import replace
+
+    from cfa_tool.language import parse_model
+    from cfa_tool.reporting.workflow_tables import montecarlo_report
+    from cfa_tool.workflows.montecarlo import monte_carlo_power
+    from tests.workflows.test_planning_and_resampling import POPULATION
+
+    result = monte_carlo_power(parse_model(POPULATION), 100, replications=5, seed=4, workers=1)
+    report = montecarlo_report(result)
+    keys = [t.key for t in report.tables]
+    note = report.tables[0].note
+    (reference,) = [p for p in note.parts if isinstance(p, TableReference)]
+    population = report.tables[keys.index(reference.key)]
+    assert population is not report.tables[0]
+    assert f"Population values are in Table {keys.index(reference.key) + 1};" in _word_text(report_docx(report, 72))
+    assert f'Population values are in the table "{population.title}";' in _flat(report_text(report, 3000))
+    bare = montecarlo_report(replace(result, population=None))
+    assert len(bare.tables) == 1 and bare.tables[0].note.endswith("Mean estimates and SDs are in the JSON result.")
