@@ -85,6 +85,11 @@ class Note:
     def __str__(self) -> str:  # as the program's user reads it (what a result's JSON holds)
         return self.said(RUNNING)
 
+    def __contains__(self, text: str) -> bool:
+        """Whether ``text`` is among the words as the program's user reads them (str(note)): where a line is searched
+        for words, a Note is searched as plain text is."""
+        return text in str(self)
+
     def __add__(self, other: "str | Note") -> "Note":
         return Note(self.parts + (other.parts if isinstance(other, Note) else (other,)))
 
