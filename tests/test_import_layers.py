@@ -18,8 +18,8 @@ PACKAGE = Path(__file__).resolve().parents[1] / "cfa_tool"
 
 # (layer, the modules and subpackages in it); a name covers the module and everything below it
 LAYERS: tuple[tuple[str, tuple[str, ...]], ...] = (
-    ("shared numerics and errors", ("numerics", "errors", "version", "method", "views", "options", "numbers", "suggest",
-                                    "resources", "input_files")),
+    ("shared numerics and errors", ("numerics", "errors", "version", "method", "views", "options", "note_parts",
+                                    "numbers", "suggest", "resources", "input_files")),
     ("language", ("language",)),
     ("data", ("data",)),
     ("model", ("model",)),

@@ -25,6 +25,7 @@ from cfa_tool.model.description import label_words, split_label
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.model.parameters import ParameterTable
 from cfa_tool.model.saved_estimates import AGAIN, SavedRow
+from cfa_tool.note_parts import Text
 from cfa_tool.numerics.linalg import cholesky_log_det
 from cfa_tool.options import Option
 
@@ -309,7 +310,7 @@ class Problem:
     parameters: tuple[str, ...]
     value: float | None
     explanation: str
-    advice: str
+    advice: Text  # words, or a Note whose command the views whose reader runs the program show (note_parts)
     group: str | None = None
     # the facts of a sample or group with fewer rows than its model's parameters (SMALL_SAMPLE, SMALL_GROUP), which
     # the methods paragraph words in its own voice
@@ -320,15 +321,15 @@ class Problem:
         facts = {} if self.rows_per_parameter is None else {"rows_per_parameter": self.rows_per_parameter.to_dict()}
         return {"kind": self.kind.value, "inadmissible": self.kind.inadmissible, "parameters": list(self.parameters),
                 "parameters_in_words": list(self.parameter_words()), "value": value, "group": self.group,
-                "explanation": self.explanation, "advice": self.advice} | facts
+                "explanation": self.explanation, "advice": str(self.advice)} | facts
 
     def parameter_words(self) -> tuple[str, ...]:
         """The parameters in plain words ('the loading of helpful on courtesy in group north')."""
         return tuple(label_words(label) for label in self.parameters)
 
-    def line(self) -> str:
+    def line(self) -> Text:
         """The problem as the views list it: the explanation, then what to try."""
-        return f"{self.explanation} What to try: {self.advice}"
+        return self.explanation + " What to try: " + self.advice
 
     def phrase(self, quoted: bool = False, groups: Sequence[str] = ()) -> str:
         """The problem in the words of a methods paragraph, e.g. 'a negative residual variance of x9 (-1.02)';

@@ -18,6 +18,8 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
+from cfa_tool.note_parts import Command, Note
+
 from cfa_tool.numerics import distributions as dist
 
 if TYPE_CHECKING:
@@ -27,12 +29,13 @@ if TYPE_CHECKING:
 #: the test's name in every view (table note, methods paragraph)
 TEST_NAME = "Little's (1988) test of answers missing completely at random"
 #: what the test cannot show and what the fit needs instead, in every view that gives the test
-READING = ("A non-significant test does not show that the answers are missing completely at random: it compares "
-           "only the items analysed across the patterns of gaps, and missingness that goes with other variables "
-           "(age, say) can escape it. Full-information ML needs only that answers are missing at random given the "
-           "variables in its likelihood: the items analysed, and any auxiliary variables given with "
-           "--missing-helpers (from Python, missing_helpers=[...]), which enter the likelihood beside the model "
-           "without changing it (Graham 2003); a variable that goes with the missingness belongs there.")
+READING = Note(("A non-significant test does not show that the answers are missing completely at random: it compares "
+                "only the items analysed across the patterns of gaps, and missingness that goes with other variables "
+                "(age, say) can escape it. Full-information ML needs only that answers are missing at random given "
+                "the variables in its likelihood: the items analysed, and any auxiliary variables",
+                Command(" given with --missing-helpers (from Python, missing_helpers=[...])"),
+                ", which enter the likelihood beside the model without changing it (Graham 2003); a variable that "
+                "goes with the missingness belongs there."))
 #: what a fit of the complete rows only assumes, and where the test is given instead
 LISTWISE_NEEDS = ("Leaving out the rows with gaps assumes that the answers are missing completely "
                   f"at random; {TEST_NAME} is given with full-information ML, the default when answers are missing.")

@@ -16,6 +16,7 @@ from cfa_tool.suggest import close_names
 from cfa_tool.data.moments import SampleMoments, numeric_columns, sample_moments
 from cfa_tool.errors import DataError, OptionError, check_rows_counted, printable
 from cfa_tool.method import MissingData
+from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 
 if TYPE_CHECKING:
@@ -87,17 +88,18 @@ def default_reference(frame: pd.DataFrame, column: str, labels: list[str]) -> tu
     return labels[0], ReferenceRule.FIRST_LABEL
 
 
-def reference_words(label: str, rule: ReferenceRule, labels=()) -> str:
+def reference_words(label: str, rule: ReferenceRule, labels=()) -> str | Note:
     """The reference group and why, as every report says it beside the group's name: "north, the first label in
-    sorted order; choose another with --reference-group" (a group chosen by the user: its name alone), the label
-    written by the one rule of group names among ``labels`` (every group's; language.names.written_group)."""
+    sorted order", with, for the program's user, "; choose another with --reference-group" (a Note: a manuscript
+    leaves the command out); a group chosen by the user: its name alone.  The label is written by the one rule of
+    group names among ``labels`` (every group's; language.names.written_group)."""
     from cfa_tool.language.names import written_group
     from cfa_tool.options import Option
 
     written = written_group(label, labels)
     if rule is ReferenceRule.GIVEN:
         return written
-    return f"{written}, {rule.phrase}; choose another with {Option.REFERENCE_GROUP}"
+    return Note((f"{written}, {rule.phrase}", Command(f"; choose another with {Option.REFERENCE_GROUP}")))
 
 
 def reference_rule(frame: pd.DataFrame, column: str, reference: str | None = None) -> ReferenceRule:

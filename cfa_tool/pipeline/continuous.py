@@ -39,6 +39,7 @@ from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
+from cfa_tool.note_parts import Command, Note
 from cfa_tool.numerics.linalg import scaled_factor
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.options import Option
@@ -316,12 +317,13 @@ def unestimated(spec: Spec, moments: SampleMoments | list[tuple[str | None, Samp
 
 
 #: what keeps the rows listwise deletion leaves out, by the kind of items
-FULL_INFORMATION_INSTEAD = "full-information ML (--incomplete-rows full-information)"
-PAIRWISE_INSTEAD = "pairwise present rows (the default for ordinal items, without --incomplete-rows listwise)"
+FULL_INFORMATION_INSTEAD = Note(("full-information ML", Command(" (--incomplete-rows full-information)")))
+PAIRWISE_INSTEAD = Note(("pairwise present rows (the default for ordinal items",
+                         Command(", without --incomplete-rows listwise"), ")"))
 
 
 def listwise_problem(dropped: int, read: int, where: str = "",
-                     instead: str = FULL_INFORMATION_INSTEAD) -> Problem | None:
+                     instead: Note = FULL_INFORMATION_INSTEAD) -> Problem | None:
     """The caution on rows that listwise deletion left out for a missing answer, first in every view of every
     command: more than :data:`LISTWISE_WARNING_SHARE` of the rows read, whose loss may bias the estimates unless the
     answers are missing completely at random (Little & Rubin 2002); None for fewer.  ``instead`` names what would
@@ -331,7 +333,7 @@ def listwise_problem(dropped: int, read: int, where: str = "",
     return Problem(ProblemKind.ROWS_LEFT_OUT, (), float(dropped),
                    f"Listwise deletion left out {dropped} of {read} rows{where} ({100 * dropped / read:.0f}%) because "
                    f"they miss an answer on a model variable, and the rows left out may differ from those kept.",
-                   f"{instead} would use every answer they have.")
+                   instead + " would use every answer they have.")
 
 
 def listwise_line(dropped: int, read: int, analysed: int, where: str = "") -> str:
@@ -341,7 +343,7 @@ def listwise_line(dropped: int, read: int, analysed: int, where: str = "") -> st
 
 
 def rows_left_out(groups, missing: MissingData | None,
-                  instead: str = FULL_INFORMATION_INSTEAD) -> tuple[tuple[Problem, ...], list[str]]:
+                  instead: Note = FULL_INFORMATION_INSTEAD) -> tuple[tuple[Problem, ...], list[str]]:
     """(cautions, notes) on the rows a fit left out, from ``groups``: (label or None, rows left out, rows read,
     rows analysed[, the row numbers of the rows that answer nothing[, their ids[, how they name rows[, their text
     lines (data.kept_rows.text_lines)]]]]) of each group;

@@ -39,6 +39,7 @@ from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_desi
 from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, holds_summary, pasted_matrix, read_summary_file,
                                          summary_in_other_text, summary_moments)
 from cfa_tool import options as opt
+from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option, option_in_both, own_keywords
 from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, check_rows_counted, printable
 from cfa_tool.input_files import DATA_FRAME
@@ -574,8 +575,9 @@ def reference_note(results, frame: pd.DataFrame, group: str | None, reference_gr
         return []
     from cfa_tool.data.groups import reference_rule, reference_words
 
-    return [f"the reference group (its factor means fixed at zero, the other groups' means differences from it) is "
-            f"{reference_words(results[0].groups[0].label, reference_rule(frame, group), [g.label for g in results[0].groups])}"]
+    return ["the reference group (its factor means fixed at zero, the other groups' means differences from it) is "
+            + reference_words(results[0].groups[0].label, reference_rule(frame, group),
+                              [g.label for g in results[0].groups])]
 
 
 def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
@@ -1498,9 +1500,10 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
         raise OptionError(f"{gaps} rows have missing answers on model variables, so the fit uses full-information ML, "
                           f"whose robust test is Yuan-Bentler ({Option.ROBUST} chooses it); for the Satorra-Bentler test "
                           f"of the complete rows only, choose {Option.INCOMPLETE_ROWS.given('listwise')}")
-    note = (f"{gaps} of {rows} rows miss some answers on model variables; every answer is used by "
-            f"full-information ML (the default when answers are missing; a fit of the complete rows only "
-            f"(--incomplete-rows listwise) would leave those rows out)" + ("; the robust test with full-information ML is the Yuan-Bentler one" if robust else ""))
+    note = Note((f"{gaps} of {rows} rows miss some answers on model variables; every answer is used by "
+                 f"full-information ML (the default when answers are missing; a fit of the complete rows only",
+                 Command(" (--incomplete-rows listwise)"), " would leave those rows out)"
+                 + ("; the robust test with full-information ML is the Yuan-Bentler one" if robust else "")))
     return replace(fit_options, missing=MissingData.FULL_INFORMATION), [note]
 
 

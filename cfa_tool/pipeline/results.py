@@ -174,7 +174,7 @@ class CheckResult(Presentable):
             return {"valid": True, "source": self.source, "factors": list(self.spec.factor_names),
                     "indicators": list(self.spec.observed_names), "n_obs": self.rows,
                     "matrix_analysed": self.analysed.name.lower(), "rows": None, "coverage": None,
-                    "problems": [p.to_dict() for p in self.problems], "notes": list(self.notes)}
+                    "problems": [p.to_dict() for p in self.problems], "notes": [str(x) for x in self.notes]}
         return {"valid": True, "source": self.source, "factors": list(self.spec.factor_names),
                 "indicators": list(self.spec.observed_names), "rows": self.rows, "complete_rows": self.complete,
                 "rows_with_gaps": self.with_gaps, "rows_without_answers": self.empty,
@@ -190,7 +190,7 @@ class CheckResult(Presentable):
                 "problems": [p.to_dict() for p in self.problems],
                 "rows_counted_by_frequency_weights": None if self.counted is None else dict(zip(
                     ("read", "complete", "with_gaps", "without_answers"), self.counted)),
-                "notes": list(self.notes)}
+                "notes": [str(x) for x in self.notes]}
 
 
 @dataclass(frozen=True)
@@ -545,7 +545,7 @@ class FitResult(Presentable):
         if self.exploratory:
             out["exploratory_blocks"] = [block.to_dict() for block in self.exploratory]
         out["modification_indices"] = self.reported_modification_indices().dicts()
-        out["warnings"] = list(self.warnings)
+        out["warnings"] = [str(w) for w in self.warnings]  # a Note as its reader reads it
         return out
 
     def scores(self, data, **options):

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 from cfa_tool.data.groups import reference_words
 from cfa_tool.language.names import written_group
+from cfa_tool.note_parts import Text
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.numbers import num, p_value, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable, _table
@@ -19,7 +20,7 @@ ALIGNMENT_CAUTION = (
 CLOSING_CAUTIONS = (ALIGNMENT_CAUTION, GUIDE_NOTE, HIGH_STAKES_NOTE)
 
 
-def _reference(result) -> str:
+def _reference(result) -> Text:
     """The reference group and why it is (data.groups.reference_words)."""
     if result.reference_rule is None:
         return written_group(result.reference_group, result.groups)
@@ -43,7 +44,7 @@ def header_lines(result) -> list[str]:
              f"Data: {fit.data.source}; {total} rows in {len(result.groups)} groups of {result.group_column} "
              f"(smallest {min(result.sizes)}, largest {max(result.sizes)})"
              + (f", {T.selection_phrase(fit.data)}" if fit.data.row_filters else ""),
-             f"Reference group: {_reference(result)}; {result.reference_mean.phrase}",
+             "Reference group: " + _reference(result) + f"; {result.reference_mean.phrase}",
              f"Configural model (every factor's mean 0 and variance 1 in every group), {fit.estimator}: {_fit_words(fit)}",
              f"Alignment (Asparouhov & Muthén 2014): total simplicity loss f(x) = sqrt(sqrt(x^2 + {EPSILON:g})) over every "
              f"pair of groups, weighted by sqrt(N1 N2), for every loading and intercept",

@@ -11,6 +11,7 @@ from dataclasses import dataclass, field, replace
 from functools import cached_property
 from typing import Callable
 
+from cfa_tool.note_parts import Note, Text, read, saved
 from cfa_tool.reporting.tables import ProblemNotice, ReportTable
 
 
@@ -22,9 +23,12 @@ WARNINGS = "Notes and warnings on the data and the estimation"  # the heading of
 _PLAIN_FIRST_WORD = re.compile(r"[a-z]+(?=[ ,;(]|$)")
 
 
-def sentence(line: str) -> str:
+def sentence(line: Text) -> Text:
     """A notice's line as a sentence: starting with a capital when its first word is a plain lower-case word.
     Every line of a report's notices passes here (:class:`Report`), whichever part of the tool made it."""
+    if isinstance(line, Note):
+        first = line.parts[0] if line.parts else ""
+        return line.capitalised() if isinstance(first, str) and _PLAIN_FIRST_WORD.match(first) else line
     return line[0].upper() + line[1:] if _PLAIN_FIRST_WORD.match(line) else line
 
 
@@ -99,17 +103,19 @@ class Report:
     kind: ResultKind
     title: str
     notice: ProblemNotice | None  # problems of a solution: first in every view
-    lines: tuple[str, ...]  # what was done and on what data, under the title
+    # the lines below are words, or Notes (cfa_tool.note_parts): advice with the command apart, references to a table,
+    # which each view writes its own way
+    lines: tuple[Text, ...]  # what was done and on what data, under the title
     tables: tuple[ReportTable, ...]
-    notes: tuple[str, ...] = ()  # after the tables
-    cautions: tuple[str, ...] = ()  # last, in every view
+    notes: tuple[Text, ...] = ()  # after the tables
+    cautions: tuple[Text, ...] = ()  # last, in every view
     paragraph: str | None = None  # the methods-and-results paragraph for a paper, under PARAGRAPH_HEADING
     figures: tuple[Figure, ...] = ()
     # the problems as a table for data files, when the solution's problems have more to say than the notice's
     # lines (parameters, values, advice)
     problem_table: ReportTable | None = None
     # cautions about the data and the estimation (rows left out, codes read as missing): right under the lines
-    warnings: tuple[str, ...] = ()
+    warnings: tuple[Text, ...] = ()
     listings: tuple[Listing, ...] = ()
 
     def __post_init__(self) -> None:
@@ -120,24 +126,26 @@ class Report:
             object.__setattr__(self, "notice", replace(self.notice, lines=tuple(sentence(x) for x in self.notice.lines)))
 
     def to_dict(self) -> dict:
-        notice = None if self.notice is None else {"heading": self.notice.heading, "lines": list(self.notice.lines),
+        notice = None if self.notice is None else {"heading": self.notice.heading,
+                                                   "lines": [saved(x) for x in self.notice.lines],
                                                    "inadmissible": self.notice.inadmissible}
-        return {"kind": self.kind.value, "title": self.title, "notice": notice, "lines": list(self.lines),
-                "tables": [t.to_dict() for t in self.tables], "notes": list(self.notes), "cautions": list(self.cautions),
+        return {"kind": self.kind.value, "title": self.title, "notice": notice, "lines": [saved(x) for x in self.lines],
+                "tables": [t.to_dict() for t in self.tables], "notes": [saved(x) for x in self.notes],
+                "cautions": [saved(x) for x in self.cautions],
                 "paragraph": self.paragraph, "figures": [{"title": f.title, "svg": f.svg, "note": f.note}
                                                          for f in self.figures],
                 "problem_table": None if self.problem_table is None else self.problem_table.to_dict(),
-                "warnings": list(self.warnings), "listings": [{"title": x.title, "text": x.text} for x in self.listings]}
+                "warnings": [saved(x) for x in self.warnings], "listings": [{"title": x.title, "text": x.text} for x in self.listings]}
 
     @classmethod
     def from_dict(cls, d: dict) -> "Report":
         n = d.get("notice")
-        notice = None if n is None else ProblemNotice(str(n["heading"]), tuple(map(str, n["lines"])),
+        notice = None if n is None else ProblemNotice(str(n["heading"]), tuple(map(read, n["lines"])),
                                                       bool(n["inadmissible"]))
-        return cls(ResultKind(d["kind"]), str(d["title"]), notice, tuple(map(str, d["lines"])),
-                   tuple(ReportTable.from_dict(t) for t in d["tables"]), tuple(map(str, d.get("notes", ()))),
-                   tuple(map(str, d.get("cautions", ()))), d.get("paragraph"),
+        return cls(ResultKind(d["kind"]), str(d["title"]), notice, tuple(map(read, d["lines"])),
+                   tuple(ReportTable.from_dict(t) for t in d["tables"]), tuple(map(read, d.get("notes", ()))),
+                   tuple(map(read, d.get("cautions", ()))), d.get("paragraph"),
                    tuple(Figure(str(f["title"]), drawn(str(f["svg"]), str(f.get("note", "")))) for f in d.get("figures", ())),
                    None if d.get("problem_table") is None else ReportTable.from_dict(d["problem_table"]),
-                   tuple(map(str, d.get("warnings", ()))),
+                   tuple(map(read, d.get("warnings", ()))),
                    tuple(Listing(str(x["title"]), str(x["text"])) for x in d.get("listings", ())))

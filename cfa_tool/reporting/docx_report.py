@@ -21,6 +21,7 @@ from docx.oxml.ns import qn
 from docx.shared import Emu, Inches, Pt, RGBColor
 
 from cfa_tool.errors import printable
+from cfa_tool.note_parts import WORDS, View, numbered, said
 from cfa_tool.reporting.column_parts import column_parts, label_columns
 from cfa_tool.reporting.diagram import MIN_FIGURE_TEXT  # the smallest lettering of a figure in print
 from cfa_tool.reporting.picture import (DEFAULT_DPI, page_fit, png_converter, smallest_text, svg_size, svg_strips,
@@ -33,7 +34,7 @@ FAINT_GREY = RGBColor(0x99, 0x99, 0x99)
 PROBLEM_RED = RGBColor(0xB3, 0x26, 0x1E)
 FONT = "Times New Roman"
 NO_PICTURE = ("The path diagram is not included: making a picture for Word needs the rsvg-convert program "
-              "(Debian package librsvg2-bin). Write it with --diagram as SVG instead.")
+              "(Debian package librsvg2-bin); the diagram can be written as an SVG file instead.")
 
 
 def _rule(cell, edge: str, size: int = 8) -> None:
@@ -388,7 +389,7 @@ def _square(table: ReportTable) -> bool:
     return all(cells == sorted(cells, reverse=True) for cells in filled)
 
 
-def _add_table(document, table: ReportTable, number: int) -> None:
+def _add_table(document, table: ReportTable, number: int, view: View = WORDS) -> None:
     table = T.without_ids(table)  # a document for a manuscript: no respondents' ids
     layout = table_layout(document, table)
     _set_orientation(document, layout.landscape)
@@ -413,14 +414,15 @@ def _add_table(document, table: ReportTable, number: int) -> None:
         _grid(document, table, columns, widths, size, padding, kept)
         if k < len(parts) - 1:
             document.add_paragraph()
-    note = " ".join(text for text in (table.note, layout.key, T.HEAT_LEGEND if table.heat else "") if text)
+    note = " ".join(text for text in (said(table.note or "", view), layout.key, T.HEAT_LEGEND if table.heat else "")
+                    if text)
     if note:
         _note(document, note)
     else:
         document.add_paragraph()
 
 
-def _document(title: str, notice) -> Document:
+def _document(title: str, notice, view: View = WORDS) -> Document:
     """A document with the problems first, then the title."""
     document = Document()
     style = document.styles["Normal"]
@@ -432,7 +434,7 @@ def _document(title: str, notice) -> Document:
         run.bold = True
         run.font.color.rgb = PROBLEM_RED
         for line in notice.lines:
-            document.add_paragraph(printable(line), style="List Bullet")
+            document.add_paragraph(printable(said(line, view)), style="List Bullet")
     document.add_heading(printable(title), level=1)
     return document
 
@@ -446,16 +448,18 @@ def _saved(document) -> bytes:
 def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
     """Any command's report (cfa_tool.reporting.document.Report) as a .docx file's bytes: the problems first,
     what was done, the methods paragraph, the numbered tables with their notes, the figures, the notes and the
-    cautions."""
-    document = _document(report.title, report.notice)
+    cautions.  A note's advice is said without the command that takes it (a manuscript's reader runs nothing),
+    and a table it refers to is named by its number (cfa_tool.note_parts)."""
+    view = numbered(report.tables)
+    document = _document(report.title, report.notice, view)
     for line in report.lines:
-        document.add_paragraph(printable(line))
+        document.add_paragraph(printable(said(line, view)))
     if report.warnings:
         heading = document.add_paragraph()
         heading.add_run(WARNINGS).bold = True
         heading.paragraph_format.keep_with_next = True
         for line in report.warnings:
-            document.add_paragraph(printable(line), style="List Bullet")
+            document.add_paragraph(printable(said(line, view)), style="List Bullet")
     if report.paragraph:
         document.add_heading(PARAGRAPH_HEADING, level=2)
         document.add_paragraph(typeset(report.paragraph))
@@ -489,7 +493,7 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
             _set_orientation(document, table_layout(document, table).landscape)
             document.add_heading(printable(table.section), level=2).paragraph_format.keep_with_next = True
         section = table.section
-        _add_table(document, table, number)
+        _add_table(document, table, number, view)
     if report.listings or report.notes or report.cautions:
         _set_orientation(document, landscape=False)
     for listing in report.listings:
@@ -503,9 +507,9 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
     if report.notes:
         document.add_heading("Notes", level=2)
         for line in report.notes:
-            document.add_paragraph(printable(line), style="List Bullet")
+            document.add_paragraph(printable(said(line, view)), style="List Bullet")
     if report.cautions:
         document.add_heading("Cautions", level=2)
         for line in report.cautions:
-            document.add_paragraph(printable(line))
+            document.add_paragraph(printable(said(line, view)))
     return _saved(document)

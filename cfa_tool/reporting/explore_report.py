@@ -8,6 +8,7 @@ import numpy as np
 from cfa_tool.exploration.choices import FitStatistic
 from cfa_tool.exploration.rotation import ORIENTATION_RULE
 from cfa_tool.language.names import names_text
+from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import html_text as esc
@@ -171,13 +172,15 @@ def solution_line(result) -> str:
     return f"The {ex.factors}-factor solution: {test}, SRMR {unit(f.srmr)}.{rotation}"
 
 
-def same_data_caution() -> str:
-    """The caution of an exploration without random halves, naming the option as the caller writes it."""
-    return ("The draft model was chosen from these data; fitted to the same data its fit looks better than it is. Fit "
-            f"it to other data, or explore one random half and fit the draft on the other ({Option.SPLIT}, a seed).")
+def same_data_caution() -> Note:
+    """The caution of an exploration without random halves, naming the option as the caller writes it for the
+    program's user (a manuscript leaves it out: note_parts)."""
+    return Note(("The draft model was chosen from these data; fitted to the same data its fit looks better than it is. "
+                 "Fit it to other data, or explore one random half and fit the draft on the other",
+                 Command(f" ({Option.SPLIT}, a seed)"), "."))
 
 
-def split_lines(result) -> list[str]:
+def split_lines(result) -> list[Text]:
     s = result.split
     if s is None:
         return [same_data_caution()]

@@ -8,6 +8,7 @@ import re
 from dataclasses import replace
 from functools import partial
 
+from cfa_tool.note_parts import joined
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Figure, Listing, Report, ResultKind, in_section
 from cfa_tool.reporting.paragraph import methods_paragraph
@@ -24,7 +25,7 @@ def fit_tables(result) -> list[ReportTable]:
     if result.fit is not None and result.converged:
         fit = T.fit_table(result)
         extra = [*T.normality_lines(result), T.local_fit_line(result)]
-        fit = replace(fit, note=" ".join([fit.note or "", *(line for line in extra if line)]).strip())
+        fit = replace(fit, note=joined([fit.note, *extra]))
         out += in_section("Fit", [fit, T.group_table(result) if result.multigroup else None])
     for g, group in enumerate(result.groups):
         heading = "Estimates" + (f", group {group.label} (N = {group.data.n_obs})" if result.multigroup else "")

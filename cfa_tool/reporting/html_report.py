@@ -9,6 +9,7 @@ from cfa_tool.reporting.diagram import MIN_FIGURE_TEXT
 from cfa_tool.reporting.picture import smallest_text, svg_size
 from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS
 from cfa_tool.reporting.escape import html_text as esc
+from cfa_tool.note_parts import RUNNING, View, said, titled
 from cfa_tool.reporting.tables import ReportTable
 
 CSS = """
@@ -70,7 +71,7 @@ def _heat(text: str) -> str:
     return "" if colour is None else f' style="background:{colour}"'
 
 
-def table_html(table: ReportTable) -> str:
+def table_html(table: ReportTable, view: View = RUNNING) -> str:
     head = "".join(f'<th class="{a}">{esc(c)}</th>' for c, a in zip(table.columns, table.align))
     faint = set(table.faint)
     body = "".join(('<tr class="problem">' if k in table.flagged else "<tr>")
@@ -78,7 +79,7 @@ def table_html(table: ReportTable) -> str:
                              f'{_heat(v) if table.heat and a == "r" else ""}>{esc(v)}</td>'
                              for j, (v, a) in enumerate(zip(row, table.align))) + "</tr>"
                    for k, row in enumerate(table.rows))
-    note = " ".join(text for text in (table.note, T.HEAT_LEGEND if table.heat else "") if text)
+    note = " ".join(text for text in (said(table.note or "", view), T.HEAT_LEGEND if table.heat else "") if text)
     note = f'<p class="note">{esc(note)}</p>' if note else ""
     matrix = ' class="matrix"' if table.matrix else ""  # a matrix of the items: compact cells
     html = (f'<table id="{esc(table.key)}"{matrix}><caption>{esc(table.title)}</caption><thead><tr>{head}</tr></thead>'
@@ -87,25 +88,28 @@ def table_html(table: ReportTable) -> str:
     return (f'<div class="wide">{html}</div>' if table.matrix else html) + note
 
 
-def notice_html(notice: T.ProblemNotice | None) -> str:
+def notice_html(notice: T.ProblemNotice | None, view: View = RUNNING) -> str:
     if notice is None:
         return ""
     cls = "problems" if notice.inadmissible else "problems caution-only"
-    items = "".join(f"<li>{esc(line)}</li>" for line in notice.lines)
+    items = "".join(f"<li>{esc(said(line, view))}</li>" for line in notice.lines)
     return f'<div class="{cls}" id="problems" role="alert"><h2>{esc(notice.heading)}</h2><ul>{items}</ul></div>'
 
 
 def report_html_fragment(report, heading: bool = False) -> str:
     """Any command's report (cfa_tool.reporting.document.Report) as an HTML fragment (also what notebooks show):
     the problems first, then (with ``heading``) the title, what was done, the tables, the notes and the cautions.
-    Pictures are images of their SVG (a data address), so that nothing in a saved result can run as a script."""
+    Pictures are images of their SVG (a data address), so that nothing in a saved result can run as a script.  A
+    note's advice names its command (the reader runs the program), and a table it refers to is named by its title
+    (cfa_tool.note_parts)."""
     import base64
 
-    parts = [notice_html(report.notice)] + ([f"<h1>{esc(report.title)}</h1>"] if heading else [])
-    parts += [f'<p class="note">{esc(line)}</p>' for line in report.lines]
+    view = titled(report.tables)
+    parts = [notice_html(report.notice, view)] + ([f"<h1>{esc(report.title)}</h1>"] if heading else [])
+    parts += [f'<p class="note">{esc(said(line, view))}</p>' for line in report.lines]
     if report.warnings:
         parts.append(f'<div class="caution" id="warnings"><strong>{esc(WARNINGS)}</strong><ul class="warnings">'
-                     + "".join(f"<li>{esc(w)}</li>" for w in report.warnings) + "</ul></div>")
+                     + "".join(f"<li>{esc(said(w, view))}</li>" for w in report.warnings) + "</ul></div>")
     if report.paragraph:
         parts += [f"<h2>{PARAGRAPH_HEADING}</h2>", f'<p class="summary" id="methods-paragraph">{esc(report.paragraph)}</p>']
     for figure in report.figures:
@@ -120,13 +124,13 @@ def report_html_fragment(report, heading: bool = False) -> str:
         if table.section and table.section != section:
             parts.append(f"<h2>{esc(table.section)}</h2>")
         section = table.section
-        parts.append(table_html(table))
+        parts.append(table_html(table, view))
     for listing in report.listings:
         lines = "\n".join(esc(line) for line in listing.text.split("\n"))  # its line breaks kept, other controls shown
         parts += [f"<h2>{esc(listing.title)}</h2>", f"<pre>{lines}</pre>"]
     if report.notes:
-        parts.append('<ul class="warnings">' + "".join(f"<li>{esc(w)}</li>" for w in report.notes) + "</ul>")
-    parts += [f'<p class="caution">{esc(c)}</p>' for c in report.cautions]
+        parts.append('<ul class="warnings">' + "".join(f"<li>{esc(said(w, view))}</li>" for w in report.notes) + "</ul>")
+    parts += [f'<p class="caution">{esc(said(c, view))}</p>' for c in report.cautions]
     return "\n".join(p for p in parts if p)
 
 

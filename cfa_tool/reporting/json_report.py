@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import json
 
+from cfa_tool.note_parts import Note
 from cfa_tool.numerics.plain import clean
 from cfa_tool.version import __version__
 
@@ -20,4 +21,12 @@ def to_json(result, report=None) -> str:
     payload.update(clean(result.to_dict()))
     payload["command"] = kind_of(result).value
     payload["report"] = (report if report is not None else report_of(result)).to_dict()
-    return json.dumps(payload, indent=2, allow_nan=False) + "\n"
+    return json.dumps(payload, indent=2, allow_nan=False, default=_text) + "\n"
+
+
+def _text(value: object) -> str:
+    """A line of a result's own (a warning that gives advice, cfa_tool.note_parts.Note) as its reader reads it,
+    with the command; the saved report keeps its parts apart."""
+    if isinstance(value, Note):
+        return str(value)
+    raise TypeError(f"{type(value).__name__} is not JSON")

@@ -1,12 +1,13 @@
-"""What a researcher can do next, said once: in words, with the command-line option that does it after them.
-Every view of a report shows the same advice (its reader is the researcher who runs the command); the methods
-paragraph, written for a paper, gives no advice and names no option.  A report that gives advice names a
-:class:`Remedy`."""
+"""What a researcher can do next, said once: in words, with the command-line option that does it after them as a
+part of its own (cfa_tool.note_parts.Command), which the views whose reader runs the program show and a manuscript
+(the Word file) leaves out; the methods paragraph, written for a paper, gives no advice and names no option.  A
+report that gives advice names a :class:`Remedy`."""
 
 from __future__ import annotations
 
 import enum
 
+from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import option_in_both
 
 
@@ -26,6 +27,6 @@ class Remedy(enum.Enum):
         """The option and the keyword (:func:`cfa_tool.options.option_in_both`)."""
         return option_in_both(self.option, self.keyword)
 
-    def said(self) -> str:
-        """The words, followed by the option and the keyword in parentheses."""
-        return f"{self.words} ({self.named})"
+    def said(self) -> Note:
+        """The words, followed (for the program's user) by the option and the keyword in parentheses."""
+        return Note((self.words, Command(f" ({self.named})")))

@@ -6,6 +6,7 @@ from __future__ import annotations
 from dataclasses import replace
 
 from cfa_tool.reporting import tables as T
+from cfa_tool.note_parts import WORDS, Command, Note, Text, said
 from cfa_tool.reporting.remedies import Remedy
 from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.options import Option
@@ -402,14 +403,14 @@ def correlation_table(result, k: int) -> ReportTable | None:
                   "correlation-preserving scores keep them (Grice 2001; ten Berge et al. 1999).")
 
 
-def _written_words(written: list[str], unwritten: list[str]) -> str:
+def _written_words(written: list[str], unwritten: list[str]) -> Text:
     """Which methods' scores the file holds and which the table shows only for comparison (hostile s14: with item
     sums alone the note read 'Written to the file: ; shown for comparison')."""
-    said = f"Written to the file: {word_list(written)}" if written else "No factor-score method is written to the file"
-    if unwritten:
-        said += (f"; shown for comparison{'' if written else ' only'}, not written (ask for them with "
-                 f"{Option.SCORE_METHODS}): {word_list(unwritten)}")
-    return said + "."
+    words = f"Written to the file: {word_list(written)}" if written else "No factor-score method is written to the file"
+    if unwritten:  # the option for the program's user, apart (a manuscript leaves it out: note_parts)
+        return Note((f"{words}; shown for comparison{'' if written else ' only'}, not written",
+                     Command(f" (ask for them with {Option.SCORE_METHODS})"), f": {word_list(unwritten)}."))
+    return words + "."
 
 
 def sum_table(result, k: int) -> ReportTable | None:
@@ -503,9 +504,10 @@ def warnings(result) -> list[str]:
     # the fit's note on reading the fit indices of ordinal items: the scores' report shows none
     fitted = [w for w in result.fit.warnings if w != ORDINAL_NOTE]
     if result.scored_source:
-        # the fit's advice named its own options; scoring other data takes none of them
+        # the fit's advice named its own options; scoring other data takes none of them (a fit read from its JSON
+        # holds its warnings as text, with the option in it)
         option = f" ({Remedy.COMPLETE_ROWS.option})"
-        fitted = [ABOUT_THE_FIT + w.replace(option, "") for w in fitted]
+        fitted = [ABOUT_THE_FIT + said(w, WORDS).replace(option, "") for w in fitted]
     return list(result.warnings) + _guessed_scales(result) + fitted
 
 

@@ -12,6 +12,7 @@ from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST, MissingData, WeightKind
+from cfa_tool.note_parts import Text, read, said, saved
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
@@ -55,7 +56,7 @@ class ReportTable:
     columns: tuple[str, ...]
     align: tuple[str, ...]  # "l" or "r" per column
     rows: tuple[tuple[str, ...], ...]
-    note: str | None = None
+    note: Text | None = None  # words, or a Note whose commands and table references each view writes its own way
     flagged: tuple[int, ...] = ()  # rows that show a problem of the solution (marked in every format)
     # the same content as numbers, for data files (CSV), where a cell such as '< .001' or '[.04, .09]' would be
     # text: None when every text cell already reads as a number
@@ -70,7 +71,7 @@ class ReportTable:
     def to_dict(self) -> dict:
         """The table as JSON holds it (a saved result carries its report: see reporting.document)."""
         return {"key": self.key, "title": self.title, "columns": list(self.columns), "align": list(self.align),
-                "rows": [list(r) for r in self.rows], "note": self.note, "flagged": list(self.flagged),
+                "rows": [list(r) for r in self.rows], "note": None if self.note is None else saved(self.note), "flagged": list(self.flagged),
                 "value_columns": None if self.value_columns is None else list(self.value_columns),
                 "values": None if self.values is None else [[_plain(v) for v in row] for row in self.values],
                 "faint": [list(f) for f in self.faint], "section": self.section, "heat": self.heat,
@@ -81,7 +82,8 @@ class ReportTable:
         """A saved table, checked to be whole (a ValueError when a row, the alignment or a marked cell does not
         fit its columns, as after editing by hand)."""
         table = cls(str(d["key"]), str(d["title"]), tuple(map(str, d["columns"])), tuple(map(str, d["align"])),
-                    tuple(tuple(map(str, r)) for r in d["rows"]), d.get("note"), tuple(map(int, d.get("flagged", ()))),
+                    tuple(tuple(map(str, r)) for r in d["rows"]), None if d.get("note") is None else read(d["note"]),
+                    tuple(map(int, d.get("flagged", ()))),
                     None if d.get("value_columns") is None else tuple(map(str, d["value_columns"])),
                     None if d.get("values") is None else tuple(tuple(r) for r in d["values"]),
                     tuple((int(i), int(j)) for i, j in d.get("faint", ())), str(d.get("section", "")),
@@ -94,7 +96,6 @@ class ReportTable:
                 or any(not (0 <= i < len(table.rows) and 0 <= j < width) for i, j in table.faint)
                 or (table.values is not None and (table.value_columns is None or any(
                     len(r) != len(table.value_columns) for r in table.values)))
-                or (table.note is not None and not isinstance(table.note, str))
                 or (table.ids_column is not None and not 0 <= table.ids_column < width)):
             raise ValueError("a table that does not fit its columns")
         return table
@@ -111,7 +112,7 @@ def _plain(value):
     return value
 
 
-def _table(key: str, title: str, columns: list[tuple[str, str]], rows: list[list[str]], note: str | None = None,
+def _table(key: str, title: str, columns: list[tuple[str, str]], rows: list[list[str]], note: Text | None = None,
            flagged: tuple[int, ...] = (), values: tuple[list[str], list[list]] | None = None) -> ReportTable:
     return ReportTable(key, title, tuple(c for c, _ in columns), tuple(a for _, a in columns),
                        tuple(tuple(r) for r in rows), note, flagged,
@@ -123,7 +124,7 @@ class ProblemNotice:
     """What every view of a result shows before anything else when the solution has problems."""
 
     heading: str
-    lines: tuple[str, ...]
+    lines: tuple[Text, ...]  # words, or Notes (cfa_tool.note_parts) with advice each view writes its own way
     inadmissible: bool
 
 
@@ -156,9 +157,9 @@ def problem_table(result) -> ReportTable | None:
         return None
     problems = solution_first(result.problems)
     rows = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()),
-             "" if p.value is None else num(p.value), p.group or "", p.explanation, p.advice] for p in problems]
+             "" if p.value is None else num(p.value), p.group or "", p.explanation, said(p.advice)] for p in problems]
     values = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()), p.value, p.group or "",
-               p.explanation, p.advice] for p in problems]
+               p.explanation, said(p.advice)] for p in problems]
     columns = [("Problem", "l"), ("Makes it inadmissible", "l"), ("Parameters", "l"), ("Value", "r"), ("Group", "l"),
                ("Explanation", "l"), ("What to try", "l")]
     return _table("problems", notice.heading, columns, rows, values=([c for c, _ in columns], values))
@@ -720,12 +721,12 @@ def missing_table(result) -> ReportTable | None:
     weights = summary.get("counted_by_weights")
     if weights:
         note += f". Rows are counted by their frequency weights ('{weights}'), as N is"
-    note += "." + _completely_at_random_note(result)
+    note = note + "." + _completely_at_random_note(result)
     return _table("missing", "Missing answers",
                   [("Items not answered", "l"), ("Rows, weighted" if weights else "Rows", "r")], rows, note)
 
 
-def _completely_at_random_note(result) -> str:
+def _completely_at_random_note(result) -> Text:
     """Little's test of the fit's rows with gaps (full-information ML), with what it cannot show; '' without it."""
     from cfa_tool.assessment.missingness import LISTWISE_NEEDS, NOT_WITH_DESIGN, READING, TEST_NAME
 
@@ -747,7 +748,7 @@ def _completely_at_random_note(result) -> str:
               if test.groups and pooled is not None and pooled != test.patterns
               else f"{test.patterns} patterns{', the groups added up' if test.groups else ''}")
     return (f" {TEST_NAME} (from the saturated model's EM estimates, over {within}): chi-square {test.chi_square:.2f} on {test.df} df, "
-            f"p {p_phrase(test.p_value)}{f' ({each})' if each else ''}.{verdict} {READING}")
+            f"p {p_phrase(test.p_value)}{f' ({each})' if each else ''}.{verdict} " + READING)
 
 
 def full_information_score_tests(helpers: bool) -> str:
@@ -1366,7 +1367,7 @@ def heat_colour(text: str) -> str | None:
     return "#" + "".join(f"{round(255 + (c - 255) * strength):02x}" for c in full)
 
 
-def normality_lines(result) -> list[str]:
+def normality_lines(result) -> list[Text]:
     """The multivariate normality tests (or why there are none), with the remedy in words and its option."""
     lines = []
     for g in result.groups:
@@ -1378,21 +1379,25 @@ def normality_lines(result) -> list[str]:
                 f"on {n.skewness_df} df, p {p_phrase(n.skewness_p_value)}; kurtosis {n.kurtosis:.3f} "
                 f"(normal: {n.kurtosis_expected:g}), z = {n.kurtosis_z:.2f}, p {p_phrase(n.kurtosis_p_value)}.")
         if (n.skewness_p_value < 0.05 or n.kurtosis_p_value < 0.05) and result.robust is None:
-            line += f" The data depart from normality: consider {Remedy.ROBUST.said()}."
+            line = line + " The data depart from normality: consider " + Remedy.ROBUST.said() + "."
         design = getattr(result, "design", None)
         if design is not None and design.columns.weights is not None:
             line += (" These tests count each row as often as its frequency weight, as the fit does."
                      if design.columns.kind is WeightKind.FREQUENCY else
                      " These tests describe the rows as they are, unweighted.")
         lines.append(line)
-    if not lines and result.method.full_information and not result.method.ordinal:
+    if not lines and result.method.full_information and not result.method.ordinal and result.method.helpers:
+        # with missing-data helpers a fit of the complete rows only and the robust test are refused: neither advised
+        lines.append("Mardia's tests of multivariate normality need complete rows, so with full-information ML they "
+                     "are not computed.")
+    elif not lines and result.method.full_information and not result.method.ordinal:
         # said, not silently left out: both need every row complete
-        guarded = (f", and {Remedy.ROBUST.said()} guard the test and the standard errors against non-normal answers "
-                   f"either way" if result.robust is None else
+        guarded = (", and " + Remedy.ROBUST.said() + " guard the test and the standard errors against non-normal "
+                   "answers either way" if result.robust is None else
                    "; the scaled test and robust standard errors of this fit guard against non-normal answers either "
                    "way")  # advice never asks for what the fit already does
         lines.append("Mardia's tests of multivariate normality need complete rows, so with full-information ML they "
-                     f"are not computed; {Remedy.COMPLETE_ROWS.said()} gives them for those rows{guarded}.")
+                     "are not computed; " + Remedy.COMPLETE_ROWS.said() + " gives them for those rows" + guarded + ".")
     return lines
 
 

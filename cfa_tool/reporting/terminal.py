@@ -12,6 +12,7 @@ from rich.table import Table
 from rich.text import Text
 
 from cfa_tool.errors import printable
+from cfa_tool.note_parts import RUNNING, View, said, titled
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.column_parts import column_parts, label_columns
 from cfa_tool.reporting.document import WARNINGS
@@ -44,15 +45,16 @@ def _table(title: str, columns: list[tuple[str, str]]) -> Table:
     return table
 
 
-def rich_table(report: ReportTable) -> Group:
+def rich_table(report: ReportTable, view: View = RUNNING) -> Group:
     """The table with its title above and its note below, both wrapped at the terminal's width (as part of
     the table they would wrap at the table's width, a narrow column of words under a narrow table).  A table
     wider than the terminal first wraps its widest text columns (long item names) and its number columns'
     headings; what still does not fit is shown in parts of whole columns, each with the first column again: a
-    number is never broken across lines (a residual '-.02' printed as '-.0' above '2' reads as another number)."""
+    number is never broken across lines (a residual '-.02' printed as '-.0' above '2' reads as another number).
+    The note's advice names its command, and a table it refers to is named as ``view`` names it."""
     parts = [Text(printable(report.title), style="bold"), _ColumnParts(report)]  # (Text is not escaped otherwise)
     if report.note:
-        parts += [Text(printable(report.note, keep_newlines=True), style="dim"), Text("")]
+        parts += [Text(printable(said(report.note, view), keep_newlines=True), style="dim"), Text("")]
     return Group(*parts)
 
 
@@ -168,25 +170,27 @@ def _bullets(lines) -> Table:
     return grid
 
 
-def problem_panel(notice: T.ProblemNotice) -> Panel:
+def problem_panel(notice: T.ProblemNotice, view: View = RUNNING) -> Panel:
     """The boxed problems section that comes before any table."""
-    body = Text("\n".join(f"- {line}" for line in notice.lines))
+    body = Text("\n".join(f"- {said(line, view)}" for line in notice.lines))
     return Panel(body, title=Text(notice.heading, style="bold"), title_align="left",
                  border_style="red" if notice.inadmissible else "yellow", box=box.HEAVY if notice.inadmissible else box.ROUNDED)
 
 
 def render_report(report, console: Console) -> None:
     """Any command's report (cfa_tool.reporting.document.Report): the problems first, then what was done, the
-    tables, the notes and the cautions."""
+    tables, the notes and the cautions.  A note's advice names its command (the reader runs the program), and a
+    table it refers to is named by its title (cfa_tool.note_parts)."""
+    view = titled(report.tables)
     if report.notice is not None:
-        console.print(problem_panel(report.notice))
+        console.print(problem_panel(report.notice, view))
         console.print()
     console.print(Text(report.title, style="bold underline"))
     for line in report.lines:
-        console.print(line)
+        console.print(said(line, view))
     if report.warnings:
         console.print(Text(WARNINGS, style="bold"))
-        console.print(_bullets(report.warnings))
+        console.print(_bullets([said(line, view) for line in report.warnings]))
     if report.paragraph:
         console.print()
         console.print(report.paragraph)
@@ -199,7 +203,7 @@ def render_report(report, console: Console) -> None:
             console.print(Text(table.section, style="bold reverse"))
         section = table.section
         left_out = T.terminal_matrix_left_out(table)
-        console.print(rich_table(table) if left_out is None else Text(left_out, style="dim"))
+        console.print(rich_table(table, view) if left_out is None else Text(left_out, style="dim"))
         if left_out is not None:
             console.print()
     for listing in report.listings:
@@ -209,9 +213,9 @@ def render_report(report, console: Console) -> None:
         text = "\n".join(listing_lines(printable(listing.text, keep_newlines=True), console.width))
         console.print(Text(text))  # (a line that cannot break so, a name wider than the terminal, wraps there)
     for line in report.notes:
-        console.print(line)
+        console.print(said(line, view))
     for line in report.cautions:
-        console.print(Text(line, style="italic"))
+        console.print(Text(said(line, view), style="italic"))
 
 
 def _outside_quotes(line: str, wanted: str) -> list[int]:

@@ -8,6 +8,7 @@ import io
 
 import numpy as np
 
+from cfa_tool.note_parts import RUNNING, WORDS, View, said, titled
 from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import latex_text, markdown_text
@@ -15,7 +16,7 @@ from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS
 from cfa_tool.reporting.tables import ReportTable
 
 
-def markdown_table(table: ReportTable) -> str:
+def markdown_table(table: ReportTable, view: View = RUNNING) -> str:
     def cell(text: str) -> str:
         return markdown_text(text) if text else ""
 
@@ -26,7 +27,7 @@ def markdown_table(table: ReportTable) -> str:
     lines += ["| " + " | ".join(f"*{cell(v)}*" if (k, j) in faint and v else cell(v) for j, v in enumerate(row)) + " |"
               for k, row in enumerate(table.rows)]
     if table.note:
-        lines += ["", f"*{markdown_text(table.note)}*"]
+        lines += ["", f"*{markdown_text(said(table.note, view))}*"]
     return "\n".join(lines) + "\n"
 
 
@@ -74,7 +75,8 @@ def latex_spec(table: ReportTable) -> str:
                    for j, a in enumerate(table.align))
 
 
-def latex_table(table: ReportTable) -> str:
+def latex_table(table: ReportTable, view: View = WORDS) -> str:
+    """A table for a manuscript (booktabs): its note's advice without the command that takes it."""
     spec = latex_spec(table)
     lines = [
         "\\begin{table}[ht]", "\\centering", f"\\caption{{{latex_text(table.title)}}}",
@@ -84,27 +86,30 @@ def latex_table(table: ReportTable) -> str:
     lines += [" & ".join(latex_text(v) for v in row) + " \\\\" for row in table.rows]
     lines += ["\\bottomrule", "\\end{tabular}"]
     if table.note:
-        lines.append(f"\\par\\small {latex_text(table.note)}")
+        lines.append(f"\\par\\small {latex_text(said(table.note, view))}")
     lines.append("\\end{table}")
     return "\n".join(lines) + "\n"
 
 
 def notice_table(notice: T.ProblemNotice) -> ReportTable:
     """The problems that every view shows first, as a table for data files (where no notice can go)."""
-    return ReportTable("problems", notice.heading, ("Problem",), ("l",), tuple((line,) for line in notice.lines))
+    return ReportTable("problems", notice.heading, ("Problem",), ("l",), tuple((said(line),) for line in notice.lines))
 
 
 def report_markdown(report) -> str:
-    """Any command's report (cfa_tool.reporting.document.Report) as Markdown: the problems first."""
+    """Any command's report (cfa_tool.reporting.document.Report) as Markdown: the problems first.  A note's advice
+    names its command (the reader runs the program), and a table it refers to is named by its title
+    (cfa_tool.note_parts)."""
+    view = titled(report.tables)
     parts = []
     if report.notice is not None:
-        parts += [f"## {markdown_text(report.notice.heading)}", ""] + [f"- {markdown_text(line)}"
+        parts += [f"## {markdown_text(report.notice.heading)}", ""] + [f"- {markdown_text(said(line, view))}"
                                                                         for line in report.notice.lines] + [""]
     parts += [f"# {markdown_text(report.title)}", ""]
     if report.lines:
-        parts += [markdown_text(line) + "  " for line in report.lines] + [""]
+        parts += [markdown_text(said(line, view)) + "  " for line in report.lines] + [""]
     if report.warnings:
-        parts += [f"**{WARNINGS}**", ""] + [f"- {markdown_text(w)}" for w in report.warnings] + [""]
+        parts += [f"**{WARNINGS}**", ""] + [f"- {markdown_text(said(w, view))}" for w in report.warnings] + [""]
     if report.paragraph:
         parts += [f"## {PARAGRAPH_HEADING}", "", markdown_text(report.paragraph), ""]
     for figure in report.figures:  # an image of its SVG (a data address): nothing in it can run
@@ -116,14 +121,14 @@ def report_markdown(report) -> str:
         if table.section and table.section != section:
             parts += [f"## {markdown_text(table.section)}", ""]
         section = table.section
-        parts.append(markdown_table(table))
+        parts.append(markdown_table(table, view))
     for listing in report.listings:  # escaped line by line (a code block would pass markup to lenient readers)
         lines = [markdown_text(line) if line.strip() else "" for line in listing.text.rstrip("\n").split("\n")]
         parts += [f"## {markdown_text(listing.title)}", "", "  \n".join(lines).replace("  \n  \n", "\n\n"), ""]
     if report.notes:
-        parts += ["## Notes", ""] + [f"- {markdown_text(w)}" for w in report.notes] + [""]
+        parts += ["## Notes", ""] + [f"- {markdown_text(said(w, view))}" for w in report.notes] + [""]
     if report.cautions:
-        parts += ["## Cautions", ""] + [markdown_text(c) + "\n" for c in report.cautions]
+        parts += ["## Cautions", ""] + [markdown_text(said(c, view)) + "\n" for c in report.cautions]
     return "\n".join(parts)
 
 
@@ -132,12 +137,13 @@ def report_table_files(report) -> dict[str, str]:
     problems = report.problem_table or (notice_table(report.notice) if report.notice is not None else None)
     tables = ([problems] if problems is not None else []) + list(report.tables)
     files = {}
+    manuscript = titled(tables, commands=False)  # a LaTeX table goes into a manuscript: advice without commands
     for table in tables:
         files[f"{table.key}.csv"] = csv_table(table)
-        files[f"{table.key}.tex"] = latex_table(table)
+        files[f"{table.key}.tex"] = latex_table(table, manuscript)
     # which table is in which file, and of what report (hostile trial s11: the CSV files carry no title, and tables
     # of two models in one folder could not be told apart)
-    files[TABLE_CONTENTS] = "\n".join([report.title, *report.lines, ""] + [
+    files[TABLE_CONTENTS] = "\n".join([report.title, *map(said, report.lines), ""] + [
         f"{table.key}.csv, {table.key}.tex: {table.title}" for table in tables]) + "\n"
     return files
 

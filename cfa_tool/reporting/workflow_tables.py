@@ -14,6 +14,7 @@ from cfa_tool.data.groups import reference_words
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
+from cfa_tool.note_parts import Command, Note, TableReference, Text
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
@@ -204,12 +205,13 @@ BOUNDARY_CAUTION = ("values on the boundary of what the general model allows, so
                     "Wittenboer 2006)")
 
 
-def boundary_note(tests, first: bool = True) -> str:
+def boundary_note(tests, explained: str | None = None) -> Text:
     """The note under a difference-test table whose restricted model sits on the boundary: what lies there, why the
     printed p-values are not exact, and the mixture's p-value when one parameter lies there.  The why, and the
-    mixture's distribution, are said in full under the ``first`` such table of a comparison only; the later tables
-    name what lies on their boundary, their own p-values and where the why is said (new-user trial: five one-row
-    tables repeated the same five lines)."""
+    mixture's distribution, are said in full under the first such table of a comparison only; the later tables
+    name what lies on their boundary, their own p-values and the table whose note says the why (``explained``, its
+    key: each view names it as it names its tables; new-user trial: five one-row tables repeated the same five
+    lines)."""
     what = "; ".join(tests[0].boundary)
     mixture = [t for t in tests if not missing(t.boundary_p_value)]
     shown = "p-value" if sum(not t.not_computed for t in tests) == 1 else "p-values"
@@ -217,16 +219,16 @@ def boundary_note(tests, first: bool = True) -> str:
         found = ", ".join(f"p {p_phrase(t.boundary_p_value)} for the {t.method}" for t in mixture)
         approximate = " (for the scaled differences as an approximation)" if len(mixture) > 1 else ""
         read = f": read {'that' if len(mixture) == 1 else 'those'}, not the {shown} marked *."
-        if not first:
-            return (f"* On the boundary: {what} (see the note under the first table of difference tests). The 50:50 "
-                    f"mixture gives {found}{approximate}{read}")
+        if explained is not None:
+            return Note((f"* On the boundary: {what} (see the note under ", TableReference(explained),
+                         f"). The 50:50 mixture gives {found}{approximate}{read}"))
         reading = (f"With one parameter on the boundary the difference follows the 50:50 mixture of chi-square "
                    f"distributions with {mixture[0].df_difference - 1} and {mixture[0].df_difference} df (Self & Liang "
                    f"1987; Stram & Lee 1994), which gives {found}{approximate}{read}")
     else:
-        if not first:
-            return (f"* On the boundary: {what} (see the note under the first table of difference tests). No exact "
-                    f"p-value: read the {shown} marked * as rough.")
+        if explained is not None:
+            return Note((f"* On the boundary: {what} (see the note under ", TableReference(explained),
+                         f"). No exact p-value: read the {shown} marked * as rough."))
         reading = ("Its distribution depends on the model here (several parameters on the boundary, or loadings that the "
                    "restricted model leaves undefined), so no exact p-value is given: read the "
                    f"{shown} marked * as rough, and weigh the models also by their fit indices, AIC and BIC.")
@@ -287,8 +289,9 @@ def comparison_report(comparison) -> Report:
     for t in comparison.tests:
         pairs.setdefault((t.restricted, t.general), []).append(t)
     notes = []
-    said = False  # the boundary's why said in full under the first table on the boundary, referred to after
+    explained = None  # the key of the first table on the boundary, whose note says the why in full: referred to after
     for k, ((restricted, general), found) in enumerate(pairs.items()):  # one small table per nested pair
+        key = f"difference_tests_{k + 1}"
         rows, values = [], []
         boundary = found[0].boundary
         for t in found:
@@ -302,12 +305,11 @@ def comparison_report(comparison) -> Report:
                            None if t.not_computed else t.p_value, t.delta_cfi, t.delta_rmsea, t.not_computed,
                            "; ".join(t.boundary), None if missing(t.boundary_p_value) else t.boundary_p_value])
         if boundary:  # the why once, in the first such caution; the later ones name what lies on their boundary
-            said = any(BOUNDARY_CAUTION in c for c in cautions)
             cautions.append(f"{restricted} against {general}: the restricted model has {'; '.join(boundary)}: "
                             + ("values on the boundary too, so read the p-values of this comparison as approximate "
-                               "as well." if said else
-                               f"{BOUNDARY_CAUTION}; read the p-values of this comparison as approximate (see the "
-                               f"note under its table)."))
+                               "as well." if explained is not None else
+                               Note((f"{BOUNDARY_CAUTION}; read the p-values of this comparison as approximate (see "
+                                     f"the note under ", TableReference(key), ")."))))
         columns = [("Test", "l"), ("Difference (df)", "r"), ("p", "r"), ("\u0394CFI", "r"), ("\u0394RMSEA", "r")]
         value_names = ["Test", "Chi-square difference", "df difference", "p", "\u0394CFI", "\u0394RMSEA",
                        "Not computed because", "On the boundary", "p, one parameter on the boundary"]
@@ -315,10 +317,10 @@ def comparison_report(comparison) -> Report:
             columns, rows = columns[:3], [row[:3] for row in rows]
             value_names = value_names[:4] + value_names[6:]
             values = [row[:4] + row[6:] for row in values]
-        tables.append(_table(f"difference_tests_{k + 1}", f"{restricted} (restricted) against {general}: difference tests",
-                             columns, rows, boundary_note(found, first=not said) if boundary else None,
+        tables.append(_table(key, f"{restricted} (restricted) against {general}: difference tests",
+                             columns, rows, boundary_note(found, explained) if boundary else None,
                              values=(value_names, values)))
-        said = said or bool(boundary)
+        explained = key if boundary and explained is None else explained
     for n in comparison.not_nested:
         advice = " Compare them by AIC and BIC (lower is better)." if n.information_criteria else ""
         notes.append(f"Not tested: {n.first} and {n.second}: {n.reason}.{advice}")
@@ -431,7 +433,7 @@ def _step_label(step, inherited: bool = False) -> str:
     return f"{step.level} (partial)" if step.declared or inherited else step.level
 
 
-def _misfit_sources(step, result) -> str:
+def _misfit_sources(step, result) -> Text:
     """The score tests of a step that did not hold: only those significant at the steps' level are named as likely
     sources (a score test is a chi-square(1) statistic; Sörbom 1989), or the note says none is; with two groups
     a parameter's difference is between them, not in one; a step the search did not run at points to the two
@@ -458,10 +460,10 @@ def _misfit_sources(step, result) -> str:
                 f"the largest: {words(top)}, {top.index:.2f}), so these data point to no single equality as the "
                 f"source of its misfit.")
     if not step.stopped and significant:  # no search was asked for: how to test partial invariance
-        text += (f" To test partial invariance, free the equalities named: let the search choose them "
-                 f"({Option.PARTIAL.given('auto')}) or declare each in the model file "
-                 f"('noninvariant {search_exemption(significant[0])}'); a freed equality chosen from these data needs "
-                 f"confirmation in new data.")
+        text = text + Note((" To test partial invariance, free the equalities named: let the search choose them",
+                            Command(f" ({Option.PARTIAL.given('auto')})"), " or declare each in the model file "
+                            f"('noninvariant {search_exemption(significant[0])}'); a freed equality chosen from these "
+                            f"data needs confirmation in new data."))
     return text
 
 
@@ -1071,16 +1073,20 @@ def montecarlo_report(result) -> Report:
              _percent(p.relative_bias), _percent(p.se_bias)] for p in result.parameters]
     values = [[label_words(p.label, article=False, observed=result.observed or None), p.power, p.coverage, p.relative_bias,
                p.se_bias] for p in result.parameters]
+    population = _population_of(result)
+    # the population's table by reference (each view names it as it names its tables: 'Table 2' in Word); a result
+    # read back without it has none to point to
+    where = (Note(("Population values are in ", TableReference(population[0].key), "; mean estimates and SDs in "
+                   "the JSON result.")) if population else "Mean estimates and SDs are in the JSON result.")
     table = _table("parameters", "Per parameter", [("Parameter", "l"), ("Power", "r"), ("Coverage", "r"),
                                                    ("Estimate bias %", "r"), ("SE bias %", "r")], rows,
                    f"Power: share of replications in which the parameter differs from zero at alpha {unit(result.alpha, 2)}; "
                    f"coverage: share of 95% Wald intervals that hold the population value (nominal 95%); bias: mean "
-                   f"estimate (or mean SE) against the population value (or the SD of the estimates). Population values "
-                   f"are in the table below; mean estimates and SDs in the JSON result.",
+                   f"estimate (or mean SE) against the population value (or the SD of the estimates). " + where,
                    values=(["Parameter", "Power", "Coverage", "Estimate relative bias", "SE relative bias"], values))
     return Report(ResultKind.POWER_SIMULATION,
                   f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
-                  _notice([], _inadmissible_cautions([result])), tuple(lines), (table, *_population_of(result)),
+                  _notice([], _inadmissible_cautions([result])), tuple(lines), (table, *population),
                   warnings=few_replications(result.replications))
 
 

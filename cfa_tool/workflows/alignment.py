@@ -564,8 +564,8 @@ class AlignmentResult(Presentable):
 
     def to_dict(self) -> dict:
         return {
-            "warnings": list(self.warnings),
-            "notes": list(self.notes),
+            "warnings": [str(w) for w in self.warnings],
+            "notes": [str(x) for x in self.notes],
             "method": "alignment (Asparouhov & Muthén 2014)",
             "group_column": self.group_column,
             "groups": [{"group": g, "rows": n} for g, n in zip(self.groups, self.sizes)],

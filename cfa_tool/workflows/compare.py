@@ -76,7 +76,7 @@ class Comparison(Presentable):
             "rows_dropped": self.rows_dropped,
             "rows_without_group": self.without_group,
             "incomplete_rows": self.missing.value,
-            "notes": list(self.notes),
+            "notes": [str(x) for x in self.notes],
             "group_column": self.results[0].group_column if self.results[0].multigroup else None,
             "groups": [g.label for g in self.results[0].groups] if self.results[0].multigroup else [],
             "models": [

@@ -221,7 +221,7 @@ class ExploreResult(Presentable):
                                       "factor": ex.draft.factor_names[p.factor], "loading": p.loading}
                                      for p in ex.draft.placements]},
             "split": self.split.to_dict() if self.split is not None else None,
-            "notes": list(self.notes),
+            "notes": [str(x) for x in self.notes],
         }
         return clean(out)
 

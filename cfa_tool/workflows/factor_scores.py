@@ -691,8 +691,8 @@ class ScoreResult(Presentable):
             "quality": [q.to_dict() for q in self.quality],
             "determinacy_caution": DETERMINACY_CAUTION,
             "low_determinacy": list(self.low_determinacy),
-            "warnings": list(self.warnings),
-            "notes": list(self.notes),
+            "warnings": [str(w) for w in self.warnings],
+            "notes": [str(x) for x in self.notes],
             **({"item_sums": [g.to_dict() for g in self.item_sums]} if self.item_sums else {}),
             "fit": self.fit.to_dict(),
         }

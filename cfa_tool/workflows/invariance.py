@@ -285,9 +285,9 @@ class InvarianceResult(Presentable):
     def to_dict(self) -> dict:
         data = self._data_dict()
         return {
-            "warnings": list(self.warnings),
+            "warnings": [str(w) for w in self.warnings],
             "data_problems": [p.to_dict() for p in self.data_problems],
-            "notes": list(self.notes),
+            "notes": [str(x) for x in self.notes],
             "group_column": self.group_column,
             "reference_group": self.groups[0],
             "reference_group_chosen_by": self.reference_rule.value if self.reference_rule is not None else None,

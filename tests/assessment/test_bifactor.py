@@ -143,9 +143,9 @@ def test_the_normality_note_does_not_ask_for_the_robust_test_a_fit_already_has()
     data = _data(600)
     data.iloc[::7, 2] = np.nan  # incomplete rows: full-information ML
     robust = cfa_tool.fit(BIFACTOR, data, test="robust")
-    line = " ".join(normality_lines(robust))
+    line = " ".join(map(str, normality_lines(robust)))
     assert "--robust" not in line and "of this fit guard against non-normal answers" in line
-    plain = " ".join(normality_lines(cfa_tool.fit(BIFACTOR, data)))
+    plain = " ".join(map(str, normality_lines(cfa_tool.fit(BIFACTOR, data))))
     assert "--robust" in plain
 
 

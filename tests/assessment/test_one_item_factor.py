@@ -63,4 +63,4 @@ def test_every_note_finds_one_item_factors_by_one_detector_and_says_it_in_one_wo
     saved.write_text(json.dumps(result.to_dict() | {"tool": "cfa-tool", "version": __version__}))
     for scored in (cfa_tool.scores(model, hs_data), score_with_saved_fit(model_file, saved, hs_data)):
         quality = next(t for t in scores_report(scored).tables if t.title.startswith("Quality of the scores"))
-        assert fact.format("determinacy, reliability and precision") + "." in quality.note
+        assert fact.format("determinacy, reliability and precision") + "." in str(quality.note)

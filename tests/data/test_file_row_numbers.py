@@ -99,7 +99,7 @@ def test_blank_rows_and_a_footer_count_alike_in_the_file_and_a_data_frame(rider_
         assert result.data.rows_read == len(rider_demo) + 1  # the answers and the footer; no blank row
         assert result.n_obs == len(rider_demo)
         gaps = [w for w in result.warnings if "miss some answers" in w]
-        assert gaps and gaps[0].startswith(f"{gaps_by_pandas} of {len(rider_demo) + 1} rows")
+        assert gaps and str(gaps[0]).startswith(f"{gaps_by_pandas} of {len(rider_demo) + 1} rows")
         blank = [w for w in result.warnings if "with no value in any column" in w]
         assert blank and blank[0].count(",") >= 4  # the rows are named
     assert checked.with_gaps == gaps_by_pandas and checked.empty == 1 and checked.empty_rows == (footer_row,)
@@ -108,7 +108,7 @@ def test_blank_rows_and_a_footer_count_alike_in_the_file_and_a_data_frame(rider_
     assert file_notes == [f"1 of {len(rider_demo) + 1} rows answered none of the model variables and was left out "
                           f"(row {footer_row})"]
     with_ids = cfa_tool.fit(rider_model, str(path), id_column="rider_id")  # the footer's text is its id
-    assert any(w.endswith(f"left out (row {footer_row} ('{FOOTER}'))") for w in with_ids.warnings)
+    assert any(str(w).endswith(f"left out (row {footer_row} ('{FOOTER}'))") for w in with_ids.warnings)
     blank_rows = next(w for w in from_file.warnings if "with no value in any column" in w)
     assert f"rows {rows[40] + 1}, {rows[40] + 2}, {rows[41] + 1}, {rows[41] + 2}, {rows[200] + 1} and 3 more" in blank_rows
     # the same coverage in both methods paragraphs

@@ -33,7 +33,7 @@ def test_a_group_column_keeps_a_value_given_as_a_missing_code(answers, tmp_path)
         fitted = cfa_tool.fit(MODEL, data, group="grade", missing_codes=[9])
         assert [g.label for g in fitted.groups] == ["6", "7", "8", "9"]
         assert fitted.data.rows_read == 400
-        notes = " ".join(fitted.warnings)
+        notes = " ".join(map(str, fitted.warnings))
         assert "3 cells holding a code given with missing_codes=... (9) were read as no answer (a2 3)" in notes
         assert ("missing_codes=... applies to the model's items; other columns keep such a value as it is ('grade' "
                 "holds 9 in 100 rows)") in notes and "keep=['grade != 9']" in notes  # as a Python call writes it
@@ -55,7 +55,7 @@ def test_the_note_suggests_a_row_filter_only_when_none_given_leaves_those_rows_o
     answers.drop(columns="b3").to_csv(path, index=False)
     model = "factor a: a1..a3\nfactor b: b1, b2\n"
     for data in (path, answers.drop(columns="b3")):
-        notes = " ".join(cfa_tool.fit(model, data, missing_codes=[9], keep=list(keep)).warnings)
+        notes = " ".join(map(str, cfa_tool.fit(model, data, missing_codes=[9], keep=list(keep)).warnings))
         assert "other columns keep such a value as it is ('grade' holds 9 in 100 rows)" in notes
         # a Python caller reads the keyword it writes (Option.KEEP.given)
         assert ("to leave those rows out, give a row filter such as keep=['grade != 9']" in notes) is suggested

@@ -181,7 +181,7 @@ def test_a_row_that_answers_nothing_is_named_by_its_row_and_line(rider_demo, rid
     line = _text_line(text, data["rider_id"][empty])
     assert row == empty + 2 and line > row
     fitted = cfa_tool.fit(rider_model, str(path))
-    assert [w for w in fitted.warnings if w.endswith(f"answered none of the model variables and was left out (row "
+    assert [w for w in fitted.warnings if str(w).endswith(f"answered none of the model variables and was left out (row "
                                                      f"{row} (text line {line}))")]
     assert f"1 with no answer to any model variable (row {row} (text line {line}))." in \
         " ".join(cfa_tool.check(rider_model, str(path)).summary().split())

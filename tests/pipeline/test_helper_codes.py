@@ -43,14 +43,14 @@ def test_missing_codes_apply_to_helpers(coded):
     given = cfa_tool.fit(MODEL, coded, missing_helpers="age", missing_codes=[-99])
     emptied = cfa_tool.fit(MODEL, coded.replace({"age": {-99.0: np.nan}}), missing_helpers="age")  # the reference
     assert np.allclose([e.estimate for e in given.estimates], [e.estimate for e in emptied.estimates], atol=1e-8)
-    said = " ".join(given.warnings)
+    said = " ".join(map(str, given.warnings))
     codes = int((coded["age"] == -99).sum())
     assert f"{codes} cells holding a code given with" in said and f"(age {codes})" in said
     assert "no cell of numbers holds" not in said and "other columns keep such a value" not in said
     assert not any(p.explanation.startswith("The missing-data helper column") for p in given.problems)
     # without helpers the column is no part of the analysis and keeps its values, as before
     plain = cfa_tool.fit(MODEL, coded, missing_codes=[-99])
-    assert "other columns keep such a value as it is ('age' holds -99" in " ".join(plain.warnings)
+    assert "other columns keep such a value as it is ('age' holds -99" in " ".join(map(str, plain.warnings))
 
 
 def test_a_helper_of_dates_or_true_false_is_refused_as_a_helper(coded, tmp_path, capsys):

@@ -124,7 +124,7 @@ def test_rows_answering_only_the_helper_are_analysed_as_the_joint_likelihood_has
             f"through it" in text)
     nothing = int(frame[ITEMS + ["a"]].isna().all(axis=1).sum())  # the reader skips rows with no value at all
     assert nothing and result.data.rows_read == len(frame) - nothing
-    assert any(w.startswith(f"{only_helper} of {len(rows)} rows answer none of the model's items but a missing-data "
+    assert any(str(w).startswith(f"{only_helper} of {len(rows)} rows answer none of the model's items but a missing-data "
                             f"helper: they are analysed") for w in result.warnings)
 
 

@@ -36,7 +36,7 @@ def test_one_missing_cell_does_not_change_the_count(hs_data):
     result = cfa_tool.fit(THREE_FACTORS, data)
     assert result.method.missing.name == "FULL_INFORMATION"
     assert not any(p.kind is ProblemKind.SMALL_SAMPLE for p in result.problems)
-    said = [w for w in result.warnings if w.startswith("22 rows for the 21 free parameters of the model (not counting "
+    said = [w for w in result.warnings if str(w).startswith("22 rows for the 21 free parameters of the model (not counting "
                                                        "the 9 item means that full-information ML estimates beside "
                                                        "them), fewer than 5")]
     assert said and said[0] in cfa_tool.check(THREE_FACTORS, data).notes  # check says what the fit says

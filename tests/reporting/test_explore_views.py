@@ -99,7 +99,7 @@ def test_the_draft_model_printed_in_a_narrow_terminal_is_the_same_model(shown):
     printed = report_text(report, width=80).splitlines()
     assert max(len(line) for line in result.draft_text.splitlines()) <= 78  # the draft file's own lines fit a terminal
     start = printed.index("Draft model") + 1
-    end = next(k for k in range(start, len(printed)) if printed[k].startswith(report.notes[0][:30]))  # the next part
+    end = next(k for k in range(start, len(printed)) if printed[k].startswith(str(report.notes[0])[:30]))  # the next part
     listing = printed[start:end]
     assert max(len(line) for line in printed) <= 80
     copied = "\n".join(listing)

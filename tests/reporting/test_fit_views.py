@@ -16,6 +16,7 @@ from docx.oxml.ns import qn
 
 import cfa_tool
 from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.note_parts import RUNNING, WORDS, said
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import WARNINGS, sentence
 from cfa_tool.reporting.docx_report import report_docx
@@ -90,16 +91,18 @@ def _word_text(data: bytes) -> str:
     return " ".join(out)
 
 
-def _markers(report) -> list[str]:
-    """What every view shows, in order: the problems, the title, the warnings, the sections and the tables."""
-    out = [report.notice.heading, *report.notice.lines, report.title, WARNINGS, *report.warnings]
+def _markers(report, view=RUNNING) -> list[str]:
+    """What every view shows, in order: the problems, the title, the warnings, the sections and the tables; the
+    lines as ``view`` says them (a manuscript's without the commands of their advice)."""
+    out = [report.notice.heading, *(said(x, view) for x in report.notice.lines), report.title, WARNINGS,
+           *(said(x, view) for x in report.warnings)]
     section = ""
     for table in report.tables:
         if table.section and table.section != section:
             out.append(table.section)
         section = table.section
         out.append(table.title)
-    return out + [listing.title for listing in report.listings] + list(report.cautions)
+    return out + [listing.title for listing in report.listings] + [said(x, view) for x in report.cautions]
 
 
 def _in_order(text: str, markers: list[str]) -> None:
@@ -112,14 +115,13 @@ def _in_order(text: str, markers: list[str]) -> None:
 
 def test_every_view_of_a_fit_shows_the_same_notices_and_tables_in_the_same_order(troubled):
     report = fit_report(troubled)
-    markers = _markers(report)
     views = {"terminal": report_text(report, 100), "summary": troubled.summary(100),
              "notebook": _html_text(troubled._repr_html_()), "HTML": _html_text(report_html(report)),
              "Markdown": report_markdown(report), "Word": _word_text(report_docx(report, 72))}
     for name, text in views.items():
         text = _plain(html.unescape(text) if name in ("notebook", "HTML", "Markdown") else text).removeprefix("## ")
         assert text.startswith(_plain(T.NOT_ADMISSIBLE)), name  # the problems before anything else
-        _in_order(text, markers)
+        _in_order(text, _markers(report, WORDS if name == "Word" else RUNNING))
     assert views["terminal"] == views["summary"]
 
 
@@ -134,21 +136,21 @@ def test_the_data_cautions_come_first_in_the_caution_box(troubled):
         listwise = text.index("Listwise deletion left out 45 of 301 rows")  # (as a sentence: document.sentence)
         assert listwise < text.index(report.title) < text.index(first_table)
         assert text.count("Listwise deletion left out 45 of 301 rows") == 1  # not again among the notes
-    assert any(line.startswith("Listwise deletion left out 45") for line in report.notice.lines)
+    assert any(said(line).startswith("Listwise deletion left out 45") for line in report.notice.lines)
     assert any(p["kind"] == ProblemKind.ROWS_LEFT_OUT.value for p in troubled.to_dict()["problems"])
 
 
 def test_the_word_report_holds_the_normality_tests_and_the_warnings(troubled):
     texts = [_plain(p.text) for p in docx.Document(io.BytesIO(report_docx(fit_report(troubled), 72))).paragraphs]
     [normality] = T.normality_lines(troubled)
-    assert any(_plain(normality) in t for t in texts)  # under the fit table, in its note
-    assert _plain(sentence(troubled.warnings[0])) in texts
+    assert any(_plain(said(normality, WORDS)) in t for t in texts)  # under the fit table, in its note
+    assert _plain(said(sentence(troubled.warnings[0]), WORDS)) in texts
     assert WARNINGS in texts
 
 
 def test_the_methods_paragraph_names_no_option_where_the_advice_does(troubled):
     report = fit_report(troubled)
-    assert "--robust" in report.tables[[t.key for t in report.tables].index("fit")].note
+    assert "--robust" in said(report.tables[[t.key for t in report.tables].index("fit")].note)
     assert "--" not in report.paragraph
     assert not re.search(r"--[a-z]", report_markdown(report).split("## Summary for a paper")[1].split("##")[0])
 

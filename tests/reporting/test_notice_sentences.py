@@ -72,7 +72,7 @@ def test_a_fit_and_a_report_saved_before_show_their_warnings_as_sentences(hs_dat
     result = cfa_tool.fit("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\n", data, missing="listwise")
     # the rows left out listwise: a caution written as a sentence (pipeline.continuous.listwise_problem), in the box
     report = fit_report(result)
-    assert report.notice.lines[0].startswith("Listwise deletion")
+    assert str(report.notice.lines[0]).startswith("Listwise deletion")
     assert "Listwise deletion" in report_text(report) and "listwise deletion" not in report_text(report)
     saved = report.to_dict()
     saved["warnings"] = ["listwise deletion left out 40 rows"]  # as a report saved before held it

@@ -79,7 +79,7 @@ def test_values_the_file_marks_as_no_answer_are_named_with_their_items(tmp_path)
     clause = "values the data file marks as no answer were treated as missing ('refused' in x1 and x5; 'don't know' in x5)"
     assert clause in _flat(methods_paragraph(result))
     assert not any(p.kind is ProblemKind.VALUES_READ_AS_MISSING for p in result.problems)  # no row lost: a note
-    assert any("'refused' (2 cells: x1 1, x5 1); 'don't know' (1 cell: x5 1)" in n for n in result.warnings)
+    assert any("'refused' (2 cells: x1 1, x5 1); 'don't know' (1 cell: x5 1)" in str(n) for n in result.warnings)
 
 
 def test_many_items_are_named_briefly(tmp_path):

@@ -51,5 +51,5 @@ def test_the_scores_report_cites_without_a_working_marker(hs_data):
     from cfa_tool.reporting.score_report import scores_report
 
     report = scores_report(cfa_tool.scores(THREE_FACTORS, hs_data))
-    notes = " ".join(t.note or "" for t in report.tables)
+    notes = " ".join(str(t.note or "") for t in report.tables)
     assert "(Gulliksen 1950)" in notes and "recalled from memory" not in notes

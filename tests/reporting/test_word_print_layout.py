@@ -4,6 +4,7 @@ notes that apply to the fit, and manuscript text in words rather than command-li
 
 from __future__ import annotations
 
+import html
 import io
 
 import docx
@@ -19,7 +20,9 @@ from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.docx_report import BODY_SIZE, WIDE_SIZE, report_docx, typeset
 from cfa_tool.reporting.fit_document import fit_report
 from cfa_tool.reporting.html_report import report_html
+from cfa_tool.note_parts import WORDS, Command, said
 from cfa_tool.reporting.remedies import Remedy
+from cfa_tool.reporting.terminal import report_text
 from cfa_tool.reporting.tables import ReportTable
 from cfa_tool.reporting.fit_document import fit_report, fit_tables
 from cfa_tool.reporting.text_formats import report_markdown
@@ -208,20 +211,27 @@ def test_no_ordinal_note_under_a_continuous_fit_in_any_format(rider, word):
     assert not any(ORDINAL_WORDS in p.text.lower() for p in word.paragraphs)
 
 
-def test_every_view_gives_the_option_of_a_remedy_and_the_methods_paragraph_none(rider, word):
-    # one report for every view: advice names the option after the words wherever it is read (the reader of the
-    # HTML or Word report is the researcher who runs the command); the methods paragraph, for a paper, names none
-    lines = T.normality_lines(rider)
-    assert len(lines) == 1
-    for remedy in (Remedy.COMPLETE_ROWS, Remedy.ROBUST):
-        assert f"{remedy.words} ({remedy.option}; from Python, {remedy.keyword})" in lines[0]
+def test_a_remedy_names_its_option_where_the_reader_runs_the_program_and_the_word_file_its_words_only(rider, word):
+    # one report model: the remedy's option is a part of the note of its own (note_parts.Command); the terminal,
+    # Markdown and HTML views show it after the words, the Word file (a manuscript: its reader runs nothing) keeps the
+    # words and leaves the option out; the methods paragraph, for a paper, names none
+    [line] = T.normality_lines(rider)
+    assert [p.text for p in line.parts if isinstance(p, Command)] == [
+        f" ({remedy.option}; from Python, {remedy.keyword})" for remedy in (Remedy.COMPLETE_ROWS, Remedy.ROBUST)]
     report = fit_report(rider)
-    assert lines[0] in next(t for t in report.tables if t.key == "fit").note  # under the fit table, in every view
+    note = next(t for t in report.tables if t.key == "fit").note  # under the fit table, in every view
+    assert said(line) in said(note) and said(line, WORDS) in said(note, WORDS)
     assert "--" not in report.paragraph
+    shown = " ".join(report_text(report, 2000).split())
+    for remedy in (Remedy.COMPLETE_ROWS, Remedy.ROBUST):
+        assert f"{remedy.words} ({remedy.option}; from Python, {remedy.keyword})" in shown
+        assert f"{remedy.words} ({remedy.option}; from Python, {remedy.keyword})" in html.unescape(report_html(report))
     texts = [p.text for p in word.paragraphs]
     method = texts[texts.index("Summary for a paper") + 1]
     assert "--" not in method and method.startswith("A confirmatory factor analysis")
-    assert any(f"({Remedy.COMPLETE_ROWS.option})" in t for t in texts)
+    assert not any(Remedy.COMPLETE_ROWS.option in t or "from Python" in t for t in texts)
+    assert any(f"{Remedy.COMPLETE_ROWS.words} gives them for those rows, and {Remedy.ROBUST.words} guard the test"
+               in t for t in texts)
 
 
 def test_a_matrix_column_is_as_wide_as_its_cells_with_true_minus_signs_and_its_properties_are_in_order():

@@ -128,7 +128,7 @@ def test_the_quality_note_says_no_factor_score_method_was_written_with_item_sums
     """--method item-sum,item-mean: the quality table's note read 'Written to the file: ; shown for comparison'
     (hostile s14)."""
     result = cfa_tool.scores(rider_model, rider_demo, methods=["item-sum", "item-mean"])
-    note = " ".join(next(t for t in scores_report(result).tables if t.title.startswith("Quality")).note.split())
+    note = " ".join(str(next(t for t in scores_report(result).tables if t.title.startswith("Quality")).note).split())
     assert "Written to the file: ;" not in note
     assert "No factor-score method is written to the file; shown for comparison only, not written" in note
     assert "regression, Bartlett, and correlation-preserving." in note

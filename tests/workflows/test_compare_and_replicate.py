@@ -369,8 +369,8 @@ def test_every_command_with_row_filters_says_so(hs_data):
                cfa_tool.cutoffs(THREE_FACTORS, hs_data, replications=20, keep=keep)]
     for result in results:
         report = report_of(result)
-        text = " ".join([*report.lines, *report.warnings, *report.notes,
-                         *(report.notice.lines if report.notice else ())])
+        text = " ".join(map(str, [*report.lines, *report.warnings, *report.notes,
+                                  *(report.notice.lines if report.notice else ())]))
         assert said in text or said[:1].upper() + said[1:] in text, type(result).__name__  # a note starts capitalised
 
 

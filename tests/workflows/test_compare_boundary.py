@@ -11,10 +11,14 @@ import pandas as pd
 import pytest
 from scipy import stats
 
+from cfa_tool.note_parts import WORDS, TableReference, said
+from cfa_tool.reporting.docx_report import report_docx
 from cfa_tool.reporting.numbers import missing, p_phrase
+from cfa_tool.reporting.terminal import report_text
 from cfa_tool.reporting.workflow_tables import comparison_report
 from cfa_tool.workflows.compare import compare
 from tests.conftest import simulate_cfa
+from tests.reporting.test_advice_views import _word_text
 
 TWO = "factor a: y1, y2, y3\nfactor b: y4, y5, y6\n"
 ONE = "factor g: y1, y2, y3, y4, y5, y6\n"
@@ -49,7 +53,7 @@ def test_two_factors_merged_into_one_get_the_mixture_p_value(data):
     first = comparison.tests[0]
     assert "50:50 mixture" in table.note and "Self & Liang 1987" in table.note
     assert f"p {p_phrase(first.boundary_p_value)} for the likelihood ratio" in table.note
-    assert any("merged into g" in line and "Stoel" in line for line in report.notice.lines)
+    assert any("merged into g" in str(line) and "Stoel" in str(line) for line in report.notice.lines)
     out = first.to_dict()
     assert out["boundary"] == list(first.boundary) and out["boundary_p_value"] == pytest.approx(first.boundary_p_value)
 
@@ -165,9 +169,9 @@ def test_the_notes_on_the_data_come_first_as_in_fit(data, tmp_path):
     gaps.loc[[3, 8], "y1"] = np.nan
     comparison = compare([ONE, TWO], gaps)
     report = comparison_report(comparison)
-    assert comparison.notes and any("miss some answers" in n for n in comparison.notes)
-    assert [w.rstrip(".") for w in report.warnings] == [n.rstrip(".") for n in comparison.notes]
-    assert not any("miss some answers" in n for n in report.notes)
+    assert comparison.notes and any("miss some answers" in str(n) for n in comparison.notes)
+    assert [str(w).rstrip(".") for w in report.warnings] == [str(n).rstrip(".") for n in comparison.notes]
+    assert not any("miss some answers" in str(n) for n in report.notes)
 
 
 @pytest.mark.parametrize("bounded_first", [False, True])
@@ -227,17 +231,27 @@ def test_the_boundary_is_explained_once_under_several_tables(data):
     report = comparison_report(comparison)
     tables = [t for t in report.tables if t.key.startswith("difference_tests")]
     assert len(tables) == 3 and all(t.note for t in tables)
-    explained = [t for t in tables if BOUNDARY_CAUTION in t.note]
+    explained = [t for t in tables if BOUNDARY_CAUTION in said(t.note)]
     assert explained == tables[:1]  # the why, once, under the first table
+    # the later notes refer to that table by its key, and each view names it as it names its tables: the Word file
+    # by its number (compare's Word note said "the first table of difference tests" beside numbered tables)
+    number = report.tables.index(tables[0]) + 1
+    word = _word_text(report_docx(report, 72))
+    terminal = " ".join(report_text(report, 3000).split())
     for table, found in zip(tables, [[t for t in comparison.tests if (t.restricted, t.general) == pair]
                                      for pair in dict.fromkeys((t.restricted, t.general) for t in comparison.tests)]):
-        assert table.note.startswith(f"* On the boundary: {'; '.join(found[0].boundary)}")  # each names its own
+        note = said(table.note)
+        assert note.startswith(f"* On the boundary: {'; '.join(found[0].boundary)}")  # each names its own
         if table is not tables[0]:
-            assert "see the note under the first table of difference tests" in table.note
+            assert TableReference(tables[0].key) in table.note.parts
+            assert said(table.note, WORDS).split(" (see ")[0] in word
+            assert "first table of difference tests" not in note
         for t in found:  # each table keeps its own mixture p-values
             if not missing(t.boundary_p_value):
-                assert f"p {p_phrase(t.boundary_p_value)} for the {t.method}" in table.note
-    assert sum(len(t.note) for t in tables[1:]) < 2 * len(tables[0].note)
+                assert f"p {p_phrase(t.boundary_p_value)} for the {t.method}" in note
+    assert word.count(f"(see the note under Table {number})") == len(tables)  # and the first caution's
+    assert terminal.count(f'(see the note under the table "{tables[0].title}")') == len(tables)
+    assert sum(len(said(t.note)) for t in tables[1:]) < 2 * len(said(tables[0].note))
 
 
 def test_the_cautions_of_several_models_are_headed_for_several_solutions(data):
@@ -260,7 +274,7 @@ def test_the_caution_box_explains_the_boundary_once(data):
 
     general = TWO + "factor m: y2, y3, y5, y6\nmethod m\nuncorrelated m, a\nuncorrelated m, b\nscale m by variance\n"
     report = comparison_report(compare([ONE, TWO, general], data))
-    lines = [line for line in report.notice.lines if "the restricted model has" in line]
+    lines = [said(line) for line in report.notice.lines if "the restricted model has" in said(line)]
     assert len(lines) >= 2
     assert sum(BOUNDARY_CAUTION in line for line in lines) == 1 and BOUNDARY_CAUTION in lines[0]
     assert all("read the p-values of this comparison as approximate" in line for line in lines)

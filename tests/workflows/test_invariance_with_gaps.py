@@ -89,10 +89,10 @@ def test_rows_left_out_listwise_are_said_first_as_fit_says_them(holes):
         assert dropped > 0.05 * len(rows)  # the share over which fit cautions (LISTWISE_WARNING_SHARE)
         line = (f"Listwise deletion left out {dropped} of {len(rows)} rows in group '{school}' "
                 f"({100 * dropped / len(rows):.0f}%) because they miss an answer on a model variable")
-        assert any(w.startswith(line) for w in ladder.warnings), ladder.warnings
+        assert any(str(w).startswith(line) for w in ladder.warnings), ladder.warnings
         assert any(p.explanation.startswith(line) for p in grouped.problems)  # the same words as fit's
     # first among the cautions about the ladder's steps (only the data's own cautions come before it)
-    assert ladder.warnings[0].startswith("Listwise deletion left out")
+    assert str(ladder.warnings[0]).startswith("Listwise deletion left out")
     # a small share is a note, as in fit
     few = holzinger_swineford()[["school", *[f"x{i}" for i in range(1, 10)]]].copy()
     few.loc[[3, 200], "x4"] = np.nan  # one row of each school (rows 3 and 200 are in different schools)
@@ -110,7 +110,7 @@ def test_ordinal_rows_left_out_listwise_are_a_caution_naming_pairwise_rows(holes
         data[column] = np.digitize(data[column], np.nanquantile(data[column], [0.25, 0.5, 0.75])).astype(float)
         data.loc[holes[column].isna(), column] = np.nan
     ladder = invariance(THREE_FACTORS, data, "school", ordinal="all", missing="listwise")
-    assert ladder.warnings[0].startswith("Listwise deletion left out")
+    assert str(ladder.warnings[0]).startswith("Listwise deletion left out")
     assert "pairwise present rows (the default for ordinal items" in ladder.warnings[0]
 
 

@@ -533,7 +533,7 @@ def test_the_cutoff_reading_says_what_a_simulated_cutoff_means_and_rows_left_out
     left_out = int(data["x4"].isna().sum())
     cut = cfa_tool.cutoffs(THREE_FACTORS, data, replications=30, seed=2, workers=1, missing="listwise")
     report = report_of(cut)
-    assert report.notice.lines[0].startswith(f"Listwise deletion left out {left_out} of {len(data)} rows")
+    assert str(report.notice.lines[0]).startswith(f"Listwise deletion left out {left_out} of {len(data)} rows")
     assert not any(f"left out {left_out} of" in note for note in report.notes)
     readings = {(c.index.upper(), f"{100 * c.level:.0f}%"): c for c in cut.cutoffs}
     checked = 0

@@ -1,0 +1,156 @@
+"""A line of a report that each view writes its own way (:class:`Note`): words for every reader, and apart from
+them what the program's user runs (:class:`Command`: an option, with its Python keyword) and references to a table
+of the report (:class:`TableReference`, by its key).  A view says the line as its reader reads it (:class:`View`):
+the terminal, text and HTML views give the command and name a table by its title; a manuscript (the Word file)
+leaves the command out, or says it in words where the line needs them, and names a table by its number.  Any
+part of the tool that writes a line giving advice makes it a Note; a plain line stays text."""
+
+from __future__ import annotations
+
+from collections.abc import Iterable, Mapping
+from dataclasses import dataclass, field
+
+
+@dataclass(frozen=True)
+class Command:
+    """What the program's user runs to take a piece of advice, as that reader reads it (" (--robust; from Python,
+    test='robust')", its spaces and brackets included); ``words``: the same for a reader who runs nothing, where the
+    line is incomplete without it (a manuscript's), else nothing."""
+
+    text: str
+    words: str = ""
+
+
+@dataclass(frozen=True)
+class TableReference:
+    """A table of the same report, by its key: each view names it as it names its tables ('Table 2' in Word, the
+    table's title where tables have no numbers)."""
+
+    key: str
+
+
+Part = str | Command | TableReference
+
+
+@dataclass(frozen=True)
+class View:
+    """How a view writes a :class:`Note`: with the commands (its reader runs the program) or without (a
+    manuscript's), and each table's name in it by key."""
+
+    commands: bool
+    tables: Mapping[str, str] = field(default_factory=dict)
+
+    def name(self, reference: TableReference) -> str:
+        """The referred table's name in this view; a table the report does not hold (a saved report changed by
+        hand) as 'a table of this report'."""
+        return self.tables.get(reference.key, "a table of this report")
+
+
+#: the view of a reader who runs the program (the terminal, text and HTML reports, the JSON result), tables by key
+RUNNING = View(commands=True)
+#: the view of a reader who runs nothing (a manuscript's), tables by key
+WORDS = View(commands=False)
+
+
+def titled(tables, commands: bool = True) -> View:
+    """The view of a reader who runs the program (without ``commands``: who runs nothing), naming each of
+    ``tables`` (ReportTable) by its title in quotes."""
+    return View(commands, {t.key: f'the table "{t.title}"' for t in tables})
+
+
+def numbered(tables) -> View:
+    """The view of a manuscript: no commands, each of ``tables`` named by its number in order ('Table 2')."""
+    return View(False, {t.key: f"Table {k}" for k, t in enumerate(tables, start=1)})
+
+
+@dataclass(frozen=True)
+class Note:
+    """A line of words with parts that each view writes its own way (see the module)."""
+
+    parts: tuple[Part, ...]
+
+    def __post_init__(self) -> None:  # words next to words as one part, no empty part: one Note for one line
+        parts: list[Part] = []
+        for p in self.parts:
+            if isinstance(p, str) and parts and isinstance(parts[-1], str):
+                parts[-1] += p
+            elif p != "":
+                parts.append(p)
+        object.__setattr__(self, "parts", tuple(parts))
+
+    def said(self, view: View) -> str:
+        return "".join(p if isinstance(p, str) else view.name(p) if isinstance(p, TableReference) else
+                       p.text if view.commands else p.words for p in self.parts)
+
+    def __str__(self) -> str:  # as the program's user reads it (what a result's JSON holds)
+        return self.said(RUNNING)
+
+    def __contains__(self, text: str) -> bool:
+        """Whether ``text`` is among the words as the program's user reads them (str(note)): where a line is searched
+        for words, a Note is searched as plain text is."""
+        return text in str(self)
+
+    def __add__(self, other: "str | Note") -> "Note":
+        return Note(self.parts + (other.parts if isinstance(other, Note) else (other,)))
+
+    def __radd__(self, other: str) -> "Note":
+        return Note((other,) + self.parts)
+
+    def capitalised(self) -> "Note":
+        """The line with the first letter of its first words in capitals."""
+        first = self.parts[0] if self.parts else ""
+        if not isinstance(first, str) or not first:
+            return self
+        return Note((first[0].upper() + first[1:],) + self.parts[1:])
+
+    def to_dict(self) -> dict:
+        return {"parts": [p if isinstance(p, str) else {"table": p.key} if isinstance(p, TableReference) else
+                          {"command": p.text, "words": p.words} for p in self.parts]}
+
+    @classmethod
+    def from_dict(cls, d: dict) -> "Note":
+        """A saved Note; a ValueError for a part that is none of the three."""
+        parts: list[Part] = []
+        for p in d["parts"]:
+            if isinstance(p, str):
+                parts.append(p)
+            elif isinstance(p, dict) and isinstance(p.get("table"), str):
+                parts.append(TableReference(p["table"]))
+            elif isinstance(p, dict) and isinstance(p.get("command"), str):
+                parts.append(Command(p["command"], str(p.get("words", ""))))
+            else:
+                raise ValueError("a part of a note that is neither words, a command nor a table")
+        return cls(tuple(parts))
+
+
+Text = str | Note  # a line of a report: plain words, or words with parts each view writes its own way
+
+
+def said(text: Text, view: View = RUNNING) -> str:
+    """``text`` as ``view`` writes it."""
+    return text if isinstance(text, str) else text.said(view)
+
+
+def joined(texts: Iterable[Text | None], between: str = " ") -> Text:
+    """The texts that are not empty, one after another with ``between``: a Note when any is one."""
+    kept = [t for t in texts if t]
+    if not any(isinstance(t, Note) for t in kept):
+        return between.join(kept)  # type: ignore[arg-type]
+    out = Note(())
+    for k, t in enumerate(kept):
+        out = out + (between if k else "") + t
+    return out
+
+
+def saved(text: Text) -> str | dict:
+    """``text`` as a saved report holds it."""
+    return text if isinstance(text, str) else text.to_dict()
+
+
+def read(value: object) -> Text:
+    """A saved line: text, or a Note saved as a dict (a ValueError for anything else)."""
+    if isinstance(value, str):
+        return value
+    if isinstance(value, dict):
+        return Note.from_dict(value)
+    raise ValueError("a line of a report that is neither text nor a note")
