@@ -13,6 +13,6 @@ def test_reference_and_rows_lines_quote_the_labels_alike():
     data = holzinger_swineford()
     data["school"] = data["school"].map({"Pasteur": "Pasteur, east", "Grant-White": "Grant"})
     report = invariance_report(cfa_tool.invariance(THREE_FACTORS, data, "school"))
-    text = " ".join(report.lines)
+    text = " ".join(str(line) for line in report.lines)
     assert 'Reference group (factor means fixed at zero): "Grant", the first label in sorted order' in text
     assert '("Grant": 145, "Pasteur, east": 156)' in text
