@@ -1,0 +1,85 @@
+"""The shortcuts of assessment/reliability.py give what the rules they stand for give, to the bit:
+
+* ``item_keys`` without a 'reversed' statement and with no loading below zero returns at once what the sign rule
+  computes (the rule is written out here as the module's docstring states it: the signs of the loadings, each
+  factor's majority, ties broken by the sum of its loadings);
+* the loadings' pattern is laid out once per pattern (``_pattern_layout``): two models of the same item and factor
+  names but different patterns never share a layout, and a result read from the kept layout is the one computed
+  with the layout made anew.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from cfa_tool.assessment import reliability as R
+from cfa_tool.model.implied import ModelMatrices
+
+
+def sign_rule(G: np.ndarray, member: np.ndarray):
+    """The keys by the signs of the loadings, written out (module docstring of assessment/reliability.py)."""
+    signs = np.where(G < 0, -1.0, 1.0)
+    vote, tie_break = (signs * member).sum(axis=0), (G * member).sum(axis=0)
+    direction = np.where(np.where(vote == 0, tie_break, vote) < 0, -1.0, 1.0)
+    return signs * direction * member, direction, (vote == 0) & member.any(axis=0)
+
+
+def same_bits(a: np.ndarray, b: np.ndarray) -> bool:
+    return a.dtype == b.dtype and a.shape == b.shape and a.tobytes() == b.tobytes()
+
+
+@pytest.mark.parametrize("seed", range(40))
+def test_keys_of_loadings_none_below_zero_are_the_sign_rules(seed):
+    rng = np.random.default_rng(seed)
+    p, m = rng.integers(1, 12), rng.integers(1, 5)
+    member = rng.random((p, m)) < 0.5
+    member[:, rng.integers(m)] = False  # a factor that reaches no item
+    G = np.where(rng.random((p, m)) < 0.8, rng.random((p, m)), 0.0) * member
+    if seed % 5 == 0:
+        G[0, 0] = np.nan  # NaN is not below zero either
+    for got, expected in zip(R.item_keys(G, member, tuple(f"x{i}" for i in range(p)), None), sign_rule(G, member)):
+        assert same_bits(got, expected)
+
+
+def test_keys_with_a_loading_below_zero_still_follow_the_rule():
+    G = np.array([[0.7, 0.0], [-0.6, 0.0], [0.5, 0.0], [0.0, -0.4], [0.0, -0.3]])
+    member = G != 0
+    K, direction, split = R.item_keys(G, member, ("a", "b", "c", "d", "e"), None)
+    assert K[:, 0].tolist() == [1.0, -1.0, 1.0, 0.0, 0.0]  # 'b' reversed: against the majority of its factor
+    assert K[3:, 1].tolist() == [1.0, 1.0] and direction.tolist() == [1.0, -1.0] and not split.any()
+    for got, expected in zip((K, direction, split), sign_rule(G, member)):
+        assert same_bits(got, expected)
+
+
+def matrices(L: np.ndarray) -> ModelMatrices:
+    p, m = L.shape
+    P = np.full((m, m), 0.3) + 0.7 * np.eye(m)
+    T = np.diag(1.0 - (L @ P * L).sum(axis=1) + 0.2)
+    return ModelMatrices(L, np.zeros((m, m)), P, T, np.zeros(p), np.zeros(m))
+
+
+def plain(out) -> list:
+    factors, htmt = out
+    return [repr(r) for r in factors] + [repr(h) for h in htmt]
+
+
+def test_a_kept_layout_gives_what_a_new_one_gives_and_patterns_never_share_one():
+    names, factors = tuple(f"x{i}" for i in range(6)), ("f", "g")
+    simple = np.zeros((6, 2))
+    simple[:3, 0], simple[3:, 1] = [0.7, 0.6, 0.5], [0.8, 0.7, 0.6]
+    crossed = simple.copy()
+    crossed[2, 1] = 0.3  # the same names, another pattern: x2 loads on both factors
+    S = matrices(simple).implied_covariance() + 0.01 * np.eye(6)
+    results = {}
+    for name, L in (("simple", simple), ("crossed", crossed)):
+        R._pattern_layout.cache_clear()
+        new = plain(R.reliability(matrices(L), names, factors, S, np.zeros(6), n_obs=500))
+        kept = plain(R.reliability(matrices(L), names, factors, S, np.zeros(6), n_obs=500))
+        assert kept == new
+        results[name] = new
+    # both patterns now in the cache, read alternately
+    for name, L in (("simple", simple), ("crossed", crossed), ("simple", simple)):
+        assert plain(R.reliability(matrices(L), names, factors, S, np.zeros(6), n_obs=500)) == results[name]
+    assert results["simple"] != results["crossed"]
+    assert R.reliability(matrices(crossed), names, factors, S)[0][1].items == ("x2", "x3", "x4", "x5")
