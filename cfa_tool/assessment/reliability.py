@@ -54,6 +54,7 @@ import numpy as np
 from cfa_tool.assessment.method_factors import bifactor_parts, uncorrelated_pairs
 from cfa_tool.language.names import reference_text
 from cfa_tool.model.implied import ModelMatrices
+from cfa_tool.numerics.plain import clean
 from cfa_tool.numerics.records import quick_init
 
 
@@ -121,6 +122,52 @@ class FactorReliability:
         d["item_total"] = dict(zip(own, self.item_total))
         d["against_keying"] = list(self.against_keying)
         return d
+
+
+_PLAIN = frozenset((str, int, bool, type(None)))
+
+
+def _names(values: tuple) -> list:
+    """A tuple of names as the JSON's list (clean's for anything but text)."""
+    out = list(values)
+    return out if all(type(v) is str for v in out) else clean(out)
+
+
+def factor_dicts(factors) -> list[dict]:
+    """The rows as JSON: what ``clean(r.to_dict())`` (numerics.plain.clean) gives for each FactorReliability, built in
+    one pass over its fields, in their order: finite Python floats and plain values as they are, NaN and infinities
+    None, names as lists, the flags only when they warn, the bifactor fields only in a bifactor structure."""
+    out = []
+    for r in factors:
+        d = {}
+        for key, value in vars(r).items():
+            kind = type(value)
+            if kind is float:
+                d[key] = value if value - value == 0.0 else None
+            elif key in _NAMES:
+                d[key] = _names(value)
+            elif key == "keying":
+                d[key] = value.value
+            elif key == "item_total":
+                totals = dict(zip(r.items[: len(value)], value))
+                plain = all(type(v) is float and v - v == 0.0 for v in value)
+                d[key] = totals if plain else clean(totals)
+            elif key in _FLAGS:
+                if value:
+                    d[key] = value if kind in _PLAIN else clean(value)
+            elif key == "bifactor":
+                if value is not None:
+                    d[key], d["shares_items_with"] = value.value, _names(r.shares_items_with)
+            elif key == "shares_items_with":
+                continue
+            else:
+                d[key] = value if kind in _PLAIN else clean(value)
+        out.append(d)
+    return out
+
+
+_NAMES = frozenset(("items", "reversed", "against_keying"))
+_FLAGS = frozenset(("points_against", "evenly_split"))
 
 
 @quick_init

@@ -13,6 +13,7 @@ from cfa_tool.assessment.diagnostics import case_dicts
 from cfa_tool.assessment.fit_indices import FitIndices, IndicesToRead
 from cfa_tool.assessment.modification import ModificationIndices
 from cfa_tool.assessment.normality import Normality
+from cfa_tool.assessment.reliability import factor_dicts
 from cfa_tool.data.kept_rows import RowNaming, rows_listed
 from cfa_tool.errors import EstimationError, check_rows_counted
 from cfa_tool.language.names import names_text
@@ -330,7 +331,7 @@ class GroupResult:
     latent_covariance: np.ndarray | None = field(repr=False, default=None)
 
     def reliability_dict(self) -> dict:
-        return {"factors": [clean(r.to_dict()) for r in self.reliability], "htmt": [clean(h.to_dict()) for h in self.htmt]}
+        return {"factors": factor_dicts(self.reliability), "htmt": [clean(h.to_dict()) for h in self.htmt]}
 
 
     def diagnostics_dict(self, naming: RowNaming = RowNaming.FILE_ROW) -> dict:

@@ -83,3 +83,27 @@ def test_a_kept_layout_gives_what_a_new_one_gives_and_patterns_never_share_one()
         assert plain(R.reliability(matrices(L), names, factors, S, np.zeros(6), n_obs=500)) == results[name]
     assert results["simple"] != results["crossed"]
     assert R.reliability(matrices(crossed), names, factors, S)[0][1].items == ("x2", "x3", "x4", "x5")
+
+
+def test_factor_rows_as_json_are_clean_of_their_dictionaries():
+    """factor_dicts gives what numerics.plain.clean(r.to_dict()) gives, key order and types included."""
+    nan, inf = float("nan"), float("inf")
+    rows = [
+        R.FactorReliability("visual", ("x1", "x2", "x3"), "first-order", 0.61, 0.62, None, 0.63, 0.37, 0.63, 0.46, True,
+                            sum_score_mean=14.5, sum_score_sd=3.1, item_total=(0.4, 0.5, 0.45)),
+        R.FactorReliability("g", ("x1", "x2", "x4"), "higher-order", nan, inf, -inf, None, None, None, None, None,
+                            ("x2",), R.Keying.DECLARED, None, None, (), ("x1",), np.float64(0.71),
+                            points_against=True, evenly_split=True),
+        R.FactorReliability("s", ("x1", "x2"), "first-order", np.float64(0.5), 0.6, 0.5, None, 0.4, nan, -inf, False,
+                            item_total=(np.float64(0.3), nan), bifactor=R.BifactorPart.SPECIFIC,
+                            shares_items_with=("g",)),
+        R.FactorReliability("one", ("x9",), "first-order", nan, nan, None, None, None, None, None, None),
+    ]
+    from cfa_tool.numerics.plain import clean
+
+    expected = [clean(r.to_dict()) for r in rows]
+    got = R.factor_dicts(rows)
+    assert [list(d) for d in got] == [list(d) for d in expected]
+    for g, e in zip(got, expected):
+        for key in e:
+            assert type(g[key]) is type(e[key]) and repr(g[key]) == repr(e[key]), key
