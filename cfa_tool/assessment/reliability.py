@@ -54,7 +54,7 @@ import numpy as np
 from cfa_tool.assessment.method_factors import bifactor_parts, uncorrelated_pairs
 from cfa_tool.language.names import reference_text
 from cfa_tool.model.implied import ModelMatrices
-from cfa_tool.numerics.plain import clean
+from cfa_tool.numerics.plain import PLAIN_TYPES, clean
 from cfa_tool.numerics.records import quick_init
 
 
@@ -124,9 +124,6 @@ class FactorReliability:
         return d
 
 
-_PLAIN = frozenset((str, int, bool, type(None)))
-
-
 def _names(values: tuple) -> list:
     """A tuple of names as the JSON's list (clean's for anything but text)."""
     out = list(values)
@@ -154,14 +151,14 @@ def factor_dicts(factors) -> list[dict]:
                 d[key] = totals if plain else clean(totals)
             elif key in _FLAGS:
                 if value:
-                    d[key] = value if kind in _PLAIN else clean(value)
+                    d[key] = value if kind in PLAIN_TYPES else clean(value)
             elif key == "bifactor":
                 if value is not None:
                     d[key], d["shares_items_with"] = value.value, _names(r.shares_items_with)
             elif key == "shares_items_with":
                 continue
             else:
-                d[key] = value if kind in _PLAIN else clean(value)
+                d[key] = value if kind in PLAIN_TYPES else clean(value)
         out.append(d)
     return out
 

@@ -107,3 +107,27 @@ def test_factor_rows_as_json_are_clean_of_their_dictionaries():
     for g, e in zip(got, expected):
         for key in e:
             assert type(g[key]) is type(e[key]) and repr(g[key]) == repr(e[key]), key
+
+
+def test_clean_list_is_clean_of_the_list():
+    from cfa_tool.numerics.plain import clean, clean_list
+
+    nan, inf = float("nan"), float("inf")
+    for values in [(), (1.5, 2.5), (1.5, nan), (inf, 2.0), (1, 2, 3), ("a", "b"), (1.5, 2), (2, 1.5), (np.float64(1.5),),
+                   (1.5, np.float64(2.5)), (np.int64(3), 4), (None, 1.5), (True, 2.0), (1e308, 1e308)]:
+        got, expected = clean_list(values), clean(list(values))
+        assert [(type(v), repr(v)) for v in got] == [(type(v), repr(v)) for v in expected], values
+
+
+def test_the_data_block_is_clean_of_its_dictionary():
+    """DataSummary.to_dict cleans each value as clean() of the whole dictionary would (NaN, numpy numbers)."""
+    from cfa_tool.numerics.plain import clean
+    from cfa_tool.pipeline.results import DataSummary
+
+    summary = DataSummary("file.csv", 10, np.int64(2), 8, ("a", "b"), (1.5, float("nan")), (np.float64(0.5), 0.7),
+                          (8, 7), (0.1, float("inf")), (0.2, 0.3), ranges=((1.0, 5.0), (1, 5)))
+    d = summary.to_dict()
+    assert list(d) == ["source", "rows_read", "rows_dropped", "n_obs", "variables", "means", "sds", "sd_divisor",
+                       "answered", "skewness", "excess_kurtosis", "answer_ranges"]
+    assert repr(d) == repr(clean(d)) and type(d["rows_dropped"]) is int and d["means"] == [1.5, None]
+    assert d["skewness"] == [0.1, None] and type(d["sds"][0]) is float and d["answer_ranges"]["b"] == [1, 5]
