@@ -6,13 +6,14 @@ A frozen dataclass's generated ``__init__`` stores each field through ``object._
 default report builds a few dozen such records (case diagnostics, reliability rows), so :func:`quick_init`
 gives a frozen dataclass an ``__init__`` that writes its fields into the instance's ``__dict__`` directly,
 in the order of the fields, as unpickling does: the same instance (fields, their order, equality, repr,
-``dataclasses.replace``, frozen afterwards), built in about 4,700 instructions.
+``dataclasses.replace``, frozen afterwards).  No code is generated (the package runs no exec): positional
+values, the defaults after them added, go in at once; keywords are arranged in the fields' order first.
 """
 
 from __future__ import annotations
 
 import dataclasses
-import keyword
+import inspect
 
 _MISSING = dataclasses.MISSING
 
@@ -31,18 +32,41 @@ def quick_init(cls: type) -> type:
     fields = dataclasses.fields(cls)
     if pseudo or any(not f.init or f.kw_only or f.default_factory is not _MISSING for f in fields):
         raise TypeError(f"quick_init: {cls.__name__} has a field the plain __init__ does not cover")
-    names = [f.name for f in fields]
-    if "self" in names or "_fields" in names or any(keyword.iskeyword(n) or n.startswith("_default_") for n in names):
-        raise TypeError(f"quick_init: {cls.__name__} has a field name the plain __init__ cannot take")
-    defaults = {f"_default_{f.name}": f.default for f in fields if f.default is not _MISSING}
-    signature = ", ".join(["self"] + [f.name if f.default is _MISSING else f"{f.name}=_default_{f.name}" for f in fields])
-    body = "".join(f"    _fields[{name!r}] = {name}\n" for name in names)
-    source = f"def __init__({signature}):\n    _fields = self.__dict__\n{body}"
-    namespace: dict = dict(defaults)
-    exec(source, namespace)  # noqa: S102 - the source is made above from the class's own field names
-    init = namespace["__init__"]
-    init.__qualname__ = f"{cls.__qualname__}.__init__"
-    init.__module__ = cls.__module__
-    init.__doc__ = cls.__init__.__doc__
-    cls.__init__ = init
+    names = tuple(f.name for f in fields)
+    defaults = {f.name: f.default for f in fields if f.default is not _MISSING}
+    count = len(names)
+    signature = inspect.signature(cls.__init__)  # the generated one's, kept for introspection
+
+    def arranged(args: tuple, kwargs: dict) -> tuple:
+        """Every field's value in the fields' order, or the TypeError the generated __init__ raises."""
+        if len(args) > count:
+            raise TypeError(f"{cls.__name__}.__init__() takes {count + 1} positional arguments but "
+                            f"{len(args) + 1} were given")
+        given = dict(zip(names, args))
+        for key, value in kwargs.items():
+            if key not in defaults and key not in names:
+                raise TypeError(f"{cls.__name__}.__init__() got an unexpected keyword argument '{key}'")
+            if key in given:
+                raise TypeError(f"{cls.__name__}.__init__() got multiple values for argument '{key}'")
+            given[key] = value
+        missing = [n for n in names if n not in given and n not in defaults]
+        if missing:
+            raise TypeError(f"{cls.__name__}.__init__() missing required arguments: {', '.join(missing)}")
+        return tuple(given[n] if n in given else defaults[n] for n in names)
+
+    # the defaults of the fields after the first k, for every k from which all fields have one
+    tails = {k: tuple(defaults[n] for n in names[k:]) for k in range(count + 1)
+             if all(n in defaults for n in names[k:])}
+
+    def __init__(self, *args, **kwargs):
+        if kwargs or len(args) not in tails:
+            args = arranged(args, kwargs)
+        else:
+            args += tails[len(args)]
+        self.__dict__.update(zip(names, args))
+
+    __init__.__qualname__ = f"{cls.__qualname__}.__init__"
+    __init__.__module__ = cls.__module__
+    __init__.__signature__ = signature
+    cls.__init__ = __init__
     return cls
