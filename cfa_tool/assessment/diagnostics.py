@@ -27,10 +27,8 @@ from cfa_tool.data.kept_rows import ROW_NAMED_BY, RowNaming
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.linalg import spd_inverse
 from cfa_tool.numerics.plain import clean
-from cfa_tool.numerics.records import quick_init
 
 
-@quick_init
 @dataclass(frozen=True)
 class CaseDiagnostic:
     row: int  # the row's number in the file as a spreadsheet shows it (data.moments.row_numbers)

@@ -22,10 +22,8 @@ import numpy as np
 from scipy.linalg import blas, lapack, solve_triangular
 
 from cfa_tool.numerics import distributions as dist
-from cfa_tool.numerics.records import quick_init
 
 
-@quick_init
 @dataclass(frozen=True)
 class Normality:
     skewness: float
@@ -46,7 +44,6 @@ GRAM_ROWS = 128  # rows per block of the Gram matrix: its blocks stay in the pro
 # and N = 1,000 than blocks of a thousand rows; process time, one BLAS thread)
 
 
-@quick_init
 @dataclass(frozen=True, eq=False)
 class Whitened:
     """Rows whitened by their covariance matrix S = L L' (divisor N), shared by Mardia's tests and the case

@@ -55,7 +55,6 @@ from cfa_tool.assessment.method_factors import bifactor_parts, uncorrelated_pair
 from cfa_tool.language.names import reference_text
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.numerics.plain import PLAIN_TYPES, clean
-from cfa_tool.numerics.records import quick_init
 
 
 class BifactorPart(Enum):
@@ -72,7 +71,6 @@ class Keying(Enum):
     DECLARED = "declared"
 
 
-@quick_init
 @dataclass(frozen=True)
 class FactorReliability:
     factor: str
@@ -167,7 +165,6 @@ _NAMES = frozenset(("items", "reversed", "against_keying"))
 _FLAGS = frozenset(("points_against", "evenly_split"))
 
 
-@quick_init
 @dataclass(frozen=True)
 class Htmt:
     first: str
