@@ -73,8 +73,8 @@ def case_dicts(cases, naming: RowNaming = RowNaming.FILE_ROW) -> list[dict]:
 
 
 def normalized_residuals(S: np.ndarray, sigma: np.ndarray, n_obs: int) -> np.ndarray:
-    d = np.diag(sigma)
-    scale = np.sqrt((np.outer(d, d) + sigma**2) / n_obs)
+    d = sigma.diagonal()
+    scale = np.sqrt((d[:, None] * d + sigma**2) / n_obs)  # sigma_ii sigma_jj: numpy.outer's products, without its wrapper
     return (S - sigma) / scale
 
 
@@ -104,8 +104,9 @@ def case_diagnostics(rows: np.ndarray, sigma: np.ndarray, row_numbers: np.ndarra
         share = share * frequencies
     chosen = np.concatenate([largest_first(d_sample, top), largest_first(share, top)])
     numbers = (chosen + 1 if row_numbers is None else row_numbers[chosen]).tolist()
-    found = [CaseDiagnostic(*values) for values in zip(numbers, d_sample[chosen].tolist(),
-                                                       dist.chi2_sf(d_sample[chosen], p).tolist(), share[chosen].tolist())]
+    distances = d_sample[chosen]
+    found = [CaseDiagnostic(*values) for values in zip(numbers, distances.tolist(), dist.chi2_sf(distances, p).tolist(),
+                                                       share[chosen].tolist())]
     shown = len(found) // 2  # the rows shown: p-values only for them
     return found[:shown], found[shown:]
 

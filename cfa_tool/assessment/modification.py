@@ -123,9 +123,15 @@ def collected_indices(candidates: list[list[Candidate]], labels: tuple[str | Non
                       expected_change: np.ndarray, standardized: np.ndarray, keep: np.ndarray) -> ModificationIndices:
     """The rows of every group's candidates (``candidates[g]``, whose statistics are ``index`` etc. in that order, group
     after group) for which ``keep`` holds, largest index first (ties in the candidates' order)."""
-    group = np.repeat(np.arange(len(candidates)), [len(c) for c in candidates])
-    kept = np.flatnonzero(keep)
-    order = kept[descending_order(index[kept])]
+    if len(candidates) == 1:  # one group: every row's group is the first
+        group = np.zeros(len(candidates[0]), dtype=np.intp)
+    else:
+        group = np.repeat(np.arange(len(candidates)), [len(c) for c in candidates])
+    if keep.all():  # every row kept: the order of them all
+        order = descending_order(index)
+    else:
+        kept = np.flatnonzero(keep)
+        order = kept[descending_order(index[kept])]
     return ModificationIndices(tuple(chain.from_iterable(candidates)), tuple(labels), order, group[order], index[order],
                                expected_change[order], standardized[order])
 CHUNK = 256  # candidates whose derivatives are held in memory at once
@@ -205,7 +211,8 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
     if mats is None:
         mats = [model.matrices(theta, g) for g in range(table.n_groups)]
     if hasattr(likelihood, "candidate_scores"):  # complete data: every block from rank-two derivatives, in chunks
-        H_tt = likelihood.evaluate(theta).information
+        # the information itself only when the caller has not factorised it (the forms below read the factor alone)
+        H_tt = likelihood.evaluate(theta).information if factor is None else None
         # made when used: one chunk's block of the information held at a time
         parts = [(g, weight, mats[g], likelihood.candidate_scores(theta, g, layouts[g].bases))
                  for g, weight in enumerate(likelihood.weights) if candidates[g]]
@@ -227,10 +234,13 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
         d, h_cc = _joined(d), _joined(h_cc)
         h = h_cc - _joined(h_ct)
         ok = h > 1e-10 * np.maximum(h_cc, 1e-300)
-        mi = np.where(ok, 0.5 * n * d**2 / np.where(ok, h, 1.0), np.nan)
-        epc = np.where(ok, -d / np.where(ok, h, 1.0), np.nan)
+        if ok.all():  # every candidate's information positive (the usual case): the same quotients without the masks
+            mi, epc = 0.5 * n * d**2 / h, -d / h
+        else:
+            mi = np.where(ok, 0.5 * n * d**2 / np.where(ok, h, 1.0), np.nan)
+            epc = np.where(ok, -d / np.where(ok, h, 1.0), np.nan)
         lay = layouts[g]
-        std_epc, _ = standardize_entries(mats, lay.codes, lay.rows, lay.cols, epc, lay.standardization)
+        std_epc, _ = standardize_entries(mats, lay.codes, lay.rows, lay.cols, epc, lay.standardization, latent=False)
         columns.append((mi, epc, std_epc, ok))
     labels = tuple(table.groups) if table.multigroup else (None,) * table.n_groups
     if not columns:

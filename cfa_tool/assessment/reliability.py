@@ -43,15 +43,18 @@ covariance, Theta the residual covariances and k the keys:
 
 from __future__ import annotations
 
+import math
 from collections.abc import Collection
 from dataclasses import dataclass
 from enum import Enum
+from functools import lru_cache
 
 import numpy as np
 
 from cfa_tool.assessment.method_factors import bifactor_parts, uncorrelated_pairs
 from cfa_tool.language.names import reference_text
 from cfa_tool.model.implied import ModelMatrices
+from cfa_tool.numerics.plain import PLAIN_TYPES, clean
 
 
 class BifactorPart(Enum):
@@ -119,6 +122,49 @@ class FactorReliability:
         return d
 
 
+def _names(values: tuple) -> list:
+    """A tuple of names as the JSON's list (clean's for anything but text)."""
+    out = list(values)
+    return out if all(type(v) is str for v in out) else clean(out)
+
+
+def factor_dicts(factors) -> list[dict]:
+    """The rows as JSON: what ``clean(r.to_dict())`` (numerics.plain.clean) gives for each FactorReliability, built in
+    one pass over its fields, in their order: finite Python floats and plain values as they are, NaN and infinities
+    None, names as lists, the flags only when they warn, the bifactor fields only in a bifactor structure."""
+    out = []
+    for r in factors:
+        d = {}
+        for key, value in vars(r).items():
+            kind = type(value)
+            if kind is float:
+                d[key] = value if value - value == 0.0 else None
+            elif key in _NAMES:
+                d[key] = _names(value)
+            elif key == "keying":
+                d[key] = value.value
+            elif key == "item_total":
+                totals = dict(zip(r.items[: len(value)], value))
+                plain = all(type(v) is float and v - v == 0.0 for v in value)
+                d[key] = totals if plain else clean(totals)
+            elif key in _FLAGS:
+                if value:
+                    d[key] = value if kind in PLAIN_TYPES else clean(value)
+            elif key == "bifactor":
+                if value is not None:
+                    d[key], d["shares_items_with"] = value.value, _names(r.shares_items_with)
+            elif key == "shares_items_with":
+                continue
+            else:
+                d[key] = value if kind in PLAIN_TYPES else clean(value)
+        out.append(d)
+    return out
+
+
+_NAMES = frozenset(("items", "reversed", "against_keying"))
+_FLAGS = frozenset(("points_against", "evenly_split"))
+
+
 @dataclass(frozen=True)
 class Htmt:
     first: str
@@ -135,7 +181,7 @@ class Htmt:
 def item_keys(G: np.ndarray, member: np.ndarray, observed: tuple[str, ...],
               declared: Collection[str] | None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """The one rule that keys the items of every keyed sum (reliability here, sum scores in scoring/quality.py):
-    (K, direction).  K (p, m): item i's key for factor j, 0 where ``member`` (the items that measure j, directly
+    (K, direction, split).  K (p, m): item i's key for factor j, 0 where ``member`` (the items that measure j, directly
     or through the factors below it) is False.
 
     With a 'reversed' statement (``declared``: the items it names) the keys are the declaration's: -1 for a
@@ -144,7 +190,14 @@ def item_keys(G: np.ndarray, member: np.ndarray, observed: tuple[str, ...],
     sum of the loadings) is reversed.  ``direction`` (m): +1 where the factor points the keyed way (most keyed
     items load positively), -1 where it points against its keys; ``split`` (m): True where half of a factor's
     items point each way, so that no majority gives its direction."""
-    signs = np.where(G < 0, -1.0, 1.0)
+    below = G < 0
+    if declared is None and not below.any():  # no loading below zero (the usual case): what the rule below gives
+        # then, to the bit, without its arithmetic: every sign +1, so K is the members times 1.0, a factor's vote is its
+        # count of items (a factor reaching none: a vote and tie-break of 0), every factor points the keyed way and none
+        # is split
+        m = member.shape[1]
+        return member.astype(float), np.ones(m), np.zeros(m, dtype=bool)
+    signs = np.where(below, -1.0, 1.0)
     if declared is None:  # every key +1: the products below without them (multiplying by 1.0 changes no bit)
         vote, tie_break = (signs * member).sum(axis=0), (G * member).sum(axis=0)
     else:
@@ -170,6 +223,61 @@ def cronbach_alpha(S: np.ndarray, keys: np.ndarray | None = None) -> float:
         return float("nan")
     total = S.sum() if keys is None else float(keys @ S @ keys)
     return float(n / (n - 1) * (1.0 - np.trace(S) / total))
+
+
+@dataclass(frozen=True, eq=False)
+class _Layout:
+    """What :func:`reliability` reads from the loadings' pattern alone (which items each factor reaches and which load
+    on it directly, which factors are higher-order): the same for every fit of a model, so it is made once per pattern
+    (:func:`_layout`).  Arrays are read-only."""
+
+    counts: np.ndarray  # items loading directly on each factor
+    counts_l: list[int]
+    several: np.ndarray  # counts > 1
+    alpha_ratio: np.ndarray  # counts / (counts - 1) (1 for fewer than two items), alpha's factor n / (n - 1)
+    pairs: np.ndarray  # counts (counts - 1): the ordered pairs of a factor's own items
+    higher_l: list[bool]
+    first_order: list[int]  # factors reaching items, not higher-order, not method factors
+    compared: np.ndarray  # (m, m): factor j is compared with first-order factor k (outside bifactor structures)
+    compared_l: list[bool]
+    member_l: list[list[int]]  # per factor, the items it reaches
+    direct_l: list[list[int]]  # per factor, the items loading on it directly
+    names: tuple[tuple[str, ...], ...]  # per factor, the names of the items it reaches
+    cross_loading: bool  # some item loads on two factors that are not higher-order (a bifactor structure is possible)
+
+
+def _layout(direct: np.ndarray, member: np.ndarray, higher: np.ndarray, observed: tuple[str, ...],
+            latent: tuple[str, ...], not_traits: frozenset[str]) -> _Layout:
+    """:class:`_Layout` of a pattern, made once per pattern (the arrays' bytes, with the names, are the key)."""
+    same = member is direct
+    return _pattern_layout(direct.shape, direct.tobytes(), None if same else member.tobytes(), higher.tobytes(),
+                           observed, latent, not_traits)
+
+
+@lru_cache(maxsize=64)
+def _pattern_layout(shape: tuple[int, int], direct_bytes: bytes, member_bytes: bytes | None, higher_bytes: bytes,
+                    observed: tuple[str, ...], latent: tuple[str, ...], not_traits: frozenset[str]) -> _Layout:
+    p, m = shape
+    direct = np.frombuffer(direct_bytes, dtype=bool).reshape(p, m)
+    member = direct if member_bytes is None else np.frombuffer(member_bytes, dtype=bool).reshape(p, m)
+    higher = np.frombuffer(higher_bytes, dtype=bool)
+    counts = direct.sum(axis=0)
+    reached, higher_l = member.any(axis=0).tolist(), higher.tolist()
+    first_order = [j for j in range(m) if reached[j] and not higher_l[j] and latent[j] not in not_traits]
+    others = np.zeros(m, dtype=bool)
+    others[first_order] = True
+    compared = others[None, :] & ~np.eye(m, dtype=bool)
+    member_l = [c.nonzero()[0].tolist() for c in member.T]
+    direct_l = member_l if member_bytes is None else [c.nonzero()[0].tolist() for c in direct.T]
+    arrays = dict(counts=counts, several=counts > 1, alpha_ratio=counts / np.maximum(counts - 1, 1),
+                  pairs=counts * (counts - 1), compared=compared)
+    for a in arrays.values():
+        a.setflags(write=False)
+    return _Layout(counts_l=counts.tolist(), higher_l=higher_l, first_order=first_order,
+                   compared_l=compared.any(axis=1).tolist(), member_l=member_l, direct_l=direct_l,
+                   names=tuple(tuple([observed[i] for i in items]) for items in member_l),
+                   cross_loading=bool((direct[:, ~higher] if higher.any() else direct).sum(axis=1).max() > 1),
+                   **arrays)
 
 
 def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[str, ...], S: np.ndarray | None,
@@ -201,6 +309,8 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     else:  # G is L (so every item the loadings reach is one of direct's) and B is zero: no higher-order factor
         member, higher = direct, np.zeros(m, dtype=bool)
     K, direction, split = item_keys(G, member, observed, declared)
+    layout = _layout(direct, member, higher, observed, latent, not_traits)
+    first_order, compared = layout.first_order, layout.compared
     if declared is None:
         against = None
     else:
@@ -215,39 +325,35 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         sd_lat = np.sqrt(np.maximum(phi.diagonal(), 1e-300))
         sd_obs = np.sqrt(np.maximum(sigma.diagonal(), 1e-300))
         corr_lat = phi / (sd_lat[:, None] * sd_lat)
-        Kd = K * direct  # keys of each first-order factor's own items
+        Kd = K if member is direct else K * direct  # keys of each first-order factor's own items (K itself, zeros
+        # and their signs too, when the factors reach only the items loading on them)
         lam = L * sd_lat / sd_obs[:, None]  # standardized loadings (0 where an item does not load)
         err = direct.T.astype(float) @ (theta.diagonal() / sd_obs**2)  # standardized residual variances, summed
         keyed_sum = np.einsum("ij,ij->j", Kd, lam)
         lam_squares = (lam**2).sum(axis=0)
         cr = keyed_sum**2 / (keyed_sum**2 + err)
         ave = lam_squares / (lam_squares + err)
-        counts = direct.sum(axis=0)
-        reached, higher_l = member.any(axis=0).tolist(), higher.tolist()
-        first_order = [j for j in range(m) if reached[j] and not higher_l[j] and latent[j] not in not_traits]
-        general, shared = _bifactor(direct, corr_lat, higher, observed, latent, not_traits)
+        general, shared = (_bifactor(direct, corr_lat, higher, observed, latent, not_traits) if layout.cross_loading
+                           else (set(), {}))  # no item on two factors: no bifactor structure (the usual case)
         # per factor, as lists read in the loop below: the largest |correlation| with another first-order factor
         # (-inf with none) and whether sqrt(AVE) exceeds it (Fornell-Larcker); a bifactor model's general and
         # specific factors are not compared (the module docstring)
-        others = np.zeros(m, dtype=bool)
-        others[first_order] = True
-        compared = others[None, :] & ~np.eye(m, dtype=bool)
         apart = None  # a general factor and its specific ones (none outside bifactor models)
+        compared_l = layout.compared_l
         if shared:
             apart = np.zeros((m, m), dtype=bool)
             index = {name: j for j, name in enumerate(latent)}
             for a, sharing in shared.items():
                 apart[index[a], [index[b] for b in sharing]] = True
-            compared &= ~apart
+            compared = compared & ~apart
+            compared_l = compared.any(axis=1).tolist()
         largest_a = np.where(compared, np.abs(corr_lat), -np.inf).max(axis=1)
         largest_l, holds_l = largest_a.tolist(), (np.sqrt(ave) > largest_a).tolist()
-        compared_l = compared.any(axis=1).tolist()
         if S is not None:
             SK = S @ Kd
             keyed_totals = np.einsum("ij,ij->j", Kd, SK)  # k'S k over each factor's own items
             s_ii = S.diagonal()
-            alpha = np.where(counts > 1, counts / np.maximum(counts - 1, 1) * (1.0 - direct.T @ s_ii / keyed_totals),
-                             np.nan)
+            alpha = np.where(layout.several, layout.alpha_ratio * (1.0 - direct.T @ s_ii / keyed_totals), np.nan)
             # the keyed sum's SD and each item's corrected item-total correlation (_sum_score_spread), every factor
             sd_l = np.sqrt(keyed_totals * (n_obs / (n_obs - 1) if n_obs and n_obs > 1 else 1.0)).tolist()
             with_rest = K * SK - s_ii[:, None]  # cov(k_i x_i, T - k_i x_i) with T the keyed sum
@@ -259,24 +365,22 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
             sd_items = np.sqrt(s_ii)
             R = S / (sd_items[:, None] * sd_items)
             keyed_r = Kd.T @ R @ Kd
-            mono_l = ((keyed_r.diagonal() - direct.T @ R.diagonal()) / (counts * (counts - 1))).tolist()
+            mono_l = ((keyed_r.diagonal() - direct.T @ R.diagonal()) / layout.pairs).tolist()
             keyed_r_l = keyed_r.tolist()
     keying = Keying.SIGNS if declared is None else Keying.DECLARED
-    member_l = [c.nonzero()[0].tolist() for c in member.T]
-    direct_l = member_l if member is direct else [c.nonzero()[0].tolist() for c in direct.T]
+    member_l, direct_l, higher_l, counts_l = layout.member_l, layout.direct_l, layout.higher_l, layout.counts_l
     negative = (K < 0).T.tolist()  # by factor, then item
     against_l = against.T.tolist() if against is not None else None
     omega_l, omega_total_l, cr_l, ave_l = omega.tolist(), omega_total.tolist(), cr.tolist(), ave.tolist()
     # a factor split evenly has no majority to point against (its tie-break only orders the keys)
     turned_l, tied_l = ((direction < 0) & ~split).tolist(), split.tolist()
-    counts_l = counts.tolist()
     reported_sums = S is not None and sum_scores
     results = []
     for j, name in enumerate(latent):
         items = member_l[j]
         if not items or name in not_traits:
             continue
-        names = tuple([observed[i] for i in items])
+        names = layout.names[j]
         turned_j = negative[j]
         reversed_items = tuple([observed[i] for i in items if turned_j[i]])
         against_items = () if against_l is None else tuple([observed[i] for i in items if against_l[j][i]])
@@ -328,7 +432,7 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
                 hetero = keyed_r_l[a][b] / (counts_l[a] * counts_l[b])
                 mono_a, mono_b = mono_l[a], mono_l[b]
                 if mono_a > 0 and mono_b > 0:
-                    htmt.append(Htmt(latent[a], latent[b], float(abs(hetero) / np.sqrt(mono_a * mono_b))))
+                    htmt.append(Htmt(latent[a], latent[b], abs(hetero) / math.sqrt(mono_a * mono_b)))
                 else:
                     weak = [latent[f] for f, value in ((a, mono_a), (b, mono_b)) if value <= 0]
                     htmt.append(Htmt(latent[a], latent[b], None, f"the keyed items of {' and '.join(weak)} do not "
@@ -341,7 +445,8 @@ def _bifactor(direct: np.ndarray, corr_lat: np.ndarray, higher: np.ndarray, obse
     """(general factors, the factors sharing items with each factor of a bifactor structure) by the one rule of
     assessment/method_factors.bifactor_parts, from the loadings' pattern and the factors' zero correlations."""
     m = len(latent)
-    if not (np.count_nonzero(direct[:, ~np.asarray(higher, dtype=bool)], axis=1) > 1).any():
+    higher = np.asarray(higher, dtype=bool)
+    if (direct[:, ~higher] if higher.any() else direct).sum(axis=1).max() < 2:
         return set(), {}  # no item on two factors: no bifactor structure (the usual case, at once)
     loadings = {latent[j]: {observed[i] for i in np.nonzero(direct[:, j])[0]} for j in range(m) if not higher[j]}
     parts = bifactor_parts(loadings, not_traits, uncorrelated_pairs(latent, corr_lat))

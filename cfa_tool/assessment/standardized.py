@@ -65,10 +65,12 @@ def _pool(mats: ModelMatrices) -> np.ndarray:
 
 
 def standardize_entries(mats: ModelMatrices, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray,
-                        values: np.ndarray, layout: Standardization | None = None) -> tuple[np.ndarray, np.ndarray]:
+                        values: np.ndarray, layout: Standardization | None = None,
+                        latent: bool = True) -> tuple[np.ndarray, np.ndarray | None]:
     """(fully standardized, latent-standardized) value of each matrix entry; with stacked matrices and
     values (a leading axis of replications), stacked results.  ``layout``: :func:`standardization` of the
-    entries when the caller keeps it (thresholds stay as they are: their item is not known here)."""
+    entries when the caller keeps it (thresholds stay as they are: their item is not known here); ``latent``:
+    False when the caller reads only the fully standardized values (the latent-standardized ones are then None)."""
     if layout is None:
         layout = standardization(codes, rows, cols, *mats.L.shape[-2:])
     pool = _pool(mats)
@@ -81,6 +83,8 @@ def standardize_entries(mats: ModelMatrices, codes: np.ndarray, rows: np.ndarray
     full = values * pool[..., layout.num] / den
     if len(r):
         full[..., r] = np.where(positive, full[..., r], np.nan)
+    if not latent:
+        return full, None
     lat = values * pool[..., layout.lat_num] / pool[..., layout.lat_den]
     lat[..., layout.shared] = full[..., layout.shared]
     return full, lat

@@ -139,7 +139,8 @@ class NormalLikelihood:
         return None if state is None else (state[1].sigma_inv, state[1].log_det)
 
     def _rank_two(self, theta: np.ndarray, g: int, with_information: bool = True):
-        """(mats, parts, gradient and information over the group's active entries, K, Q) or None."""
+        """(mats, parts, gradient and information over the group's active entries, K, Q, V, a) or None (V and a:
+        :func:`~cfa_tool.model.rank_two.basis_vectors` of the matrices, kept for the score tests)."""
         state = self._group_state(theta, g)
         if state is None:
             return None
@@ -152,7 +153,7 @@ class NormalLikelihood:
         for kept in (g_e, H_e):  # shared by every caller at this point (see _evaluate)
             if kept is not None:
                 kept.setflags(write=False)
-        state[2] = (mats, parts, g_e, H_e, K, Q)
+        state[2] = (mats, parts, g_e, H_e, K, Q, V, a)
         return state[2]
 
     def evaluate(self, theta: np.ndarray) -> Evaluation | None:
@@ -169,8 +170,7 @@ class NormalLikelihood:
         out = self._rank_two(theta, g, with_information=False)
         if out is None:
             return
-        mats, parts, _, _, K, Q = out
-        V, a = basis_vectors(mats, self.means)
+        mats, parts, _, _, K, Q, V, a = out
         Vm = V.T @ parts.mean_gradient if parts.mean_gradient is not None else None
         model = self._basis[g]
         columns = model_columns(model, K)
@@ -197,7 +197,7 @@ class NormalLikelihood:
             out = self._rank_two(theta, g, with_information)
             if out is None:
                 return None
-            _, parts, g_e, H_e, _, _ = out
+            _, parts, g_e, H_e, *_ = out
             value += w * parts.value
             if self.model.identity_J[g]:
                 gradient += w * g_e
@@ -231,7 +231,7 @@ class NormalLikelihood:
         out = self._rank_two(theta, 0)
         if out is None:
             return None
-        mats, parts, _, expected, K, Q = out
+        mats, parts, _, expected, K, Q, _, _ = out
         cross = cross_term(self._basis[0], K, Q)
         p, m = model.p, model.m  # Q = V' M V with V = [I, C', L] holds M L in its first rows
         second = second_derivative_contraction(model.second_orders[0], parts.M, mats.L, mats.P, Q[:p, p + m:])

@@ -8,6 +8,8 @@ from scipy import special
 
 
 def chi2_sf(x, df):
+    if type(x) is float:  # one statistic: max() in place of numpy's (the same number, NaN kept, without an array)
+        return special.chdtrc(df, max(x, 0.0))
     return special.chdtrc(df, np.maximum(x, 0.0))
 
 
@@ -50,6 +52,8 @@ def norm_cdf(x):
 
 
 def norm_sf(x):
+    if type(x) is float:  # one statistic: without the array
+        return special.ndtr(-x)
     return special.ndtr(-np.asarray(x, dtype=float))
 
 

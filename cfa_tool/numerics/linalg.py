@@ -127,14 +127,15 @@ def scaled_factor(H: np.ndarray) -> ScaledFactor | None:
     return ScaledFactor(d, inverse) if info == 0 else None
 
 
-def inverse_quadratic_forms(H: np.ndarray, factor: ScaledFactor | None = None):
+def inverse_quadratic_forms(H: np.ndarray | None, factor: ScaledFactor | None = None):
     """A function of B giving b_k' H^-1 b_k for every column b_k of B, from one Cholesky factorisation
-    of the Jacobi-scaled H (``factor``, :func:`scaled_factor` of H, when the caller has made it): H = F F' for
+    of the Jacobi-scaled H (``factor``, :func:`scaled_factor` of H, when the caller has made it; H itself may then
+    be None, as only the factor is read): H = F F' for
     F = D^-1 L, and the forms are the squared column norms of F^-1 B = L^-1 D B (one triangular product with
     L^-1 D, made once; B not scaled first); the general solve when H is not positive definite.
     ``forms(B, overwrite=True)`` may overwrite B (a Fortran-ordered B, such as the transpose of a C-ordered
     array, is then multiplied in place)."""
-    if H.size == 0:
+    if (factor.inverse if H is None else H).size == 0:
         return lambda B, overwrite=False: np.zeros(B.shape[1])
     if factor is None:
         factor = scaled_factor(H)

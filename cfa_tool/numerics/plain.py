@@ -8,7 +8,7 @@ import math
 import numpy as np
 
 
-_PLAIN = frozenset((str, int, bool, type(None)))
+PLAIN_TYPES = frozenset((str, int, bool, type(None)))  # JSON's own values: clean passes them as they are
 
 
 def clean(value):
@@ -17,13 +17,13 @@ def clean(value):
     kind = type(value)
     if kind is float:
         return value if math.isfinite(value) else None
-    if kind in _PLAIN:
+    if kind in PLAIN_TYPES:
         return value
     if kind is list and value and type(value[0]) is float:
         if all(type(v) is float for v in value) and math.isfinite(sum(value)):  # a NaN or infinity makes the sum one
             return list(value)
         return [clean(v) for v in value]
-    if (kind is list or kind is tuple) and all(type(v) in _PLAIN for v in value):  # names, counts: copied as they are
+    if (kind is list or kind is tuple) and all(type(v) in PLAIN_TYPES for v in value):  # names, counts: copied as they are
         return list(value)
     if kind is dict:  # plain values cleaned in place of a call per value (to_dict builds hundreds of these)
         out = {}
@@ -31,7 +31,7 @@ def clean(value):
             kind = type(v)
             if kind is float:
                 out[k] = v if v - v == 0.0 else None  # not 0 (NaN) for NaN and infinities
-            elif kind in _PLAIN:
+            elif kind in PLAIN_TYPES:
                 out[k] = v
             else:
                 out[k] = clean(v)
@@ -46,6 +46,17 @@ def clean(value):
     if isinstance(value, dict):
         return {k: clean(v) for k, v in value.items()}
     return value
+
+
+def clean_list(values) -> list:
+    """``clean(list(values))``, copied once: a list of Python floats whose sum is finite, or of plain values (text,
+    whole numbers, truth values, None), as it is; floats with a NaN or an infinity as None; anything else by clean."""
+    out = list(values)
+    if out and type(out[0]) is float and all(type(v) is float for v in out):
+        return out if math.isfinite(sum(out)) else [v if v - v == 0.0 else None for v in out]
+    if all(type(v) in PLAIN_TYPES for v in out):
+        return out
+    return clean(out)
 
 
 def plain_array(values: np.ndarray) -> list:

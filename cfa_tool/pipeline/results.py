@@ -13,11 +13,12 @@ from cfa_tool.assessment.diagnostics import case_dicts
 from cfa_tool.assessment.fit_indices import FitIndices, IndicesToRead
 from cfa_tool.assessment.modification import ModificationIndices
 from cfa_tool.assessment.normality import Normality
+from cfa_tool.assessment.reliability import factor_dicts
 from cfa_tool.data.kept_rows import RowNaming, rows_listed
 from cfa_tool.errors import EstimationError, check_rows_counted
 from cfa_tool.language.names import names_text
 from cfa_tool.method import FitMethod
-from cfa_tool.numerics.plain import clean, plain_array
+from cfa_tool.numerics.plain import clean, clean_list, plain_array
 from cfa_tool.views import Presentable, scorer
 
 if TYPE_CHECKING:  # the robust test's module is imported by the fits that compute one
@@ -269,50 +270,52 @@ class DataSummary:
         correlation matrix alone), as ``means`` are; summary statistics hold no rows, so their ``rows_read`` and
         ``rows_dropped`` are null (N is ``n_obs``, as given in the file)."""
         rows = self.analysed is None
+        # each value as clean() (numerics.plain) makes it, the lists of numbers checked at once (clean_list)
         out = {
-            "source": self.source,
-            "rows_read": self.rows_read if rows else None,
-            "rows_dropped": self.rows_dropped if rows else None,
-            "n_obs": self.n_obs,
-            "variables": list(self.variables),
-            "means": None if any(g.value == "means" for g in self.not_given) else list(self.means),
-            "sds": None if any(g.value == "standard_deviations" for g in self.not_given) else list(self.sds),
+            "source": clean(self.source),
+            "rows_read": clean(self.rows_read) if rows else None,
+            "rows_dropped": clean(self.rows_dropped) if rows else None,
+            "n_obs": clean(self.n_obs),
+            "variables": clean_list(self.variables),
+            "means": None if any(g.value == "means" for g in self.not_given) else clean_list(self.means),
+            "sds": None if any(g.value == "standard_deviations" for g in self.not_given) else clean_list(self.sds),
             "sd_divisor": "N",
         }
         if self.skewness:
-            out.update(answered=list(self.answered), skewness=list(self.skewness), excess_kurtosis=list(self.kurtosis))
+            out.update(answered=clean_list(self.answered), skewness=clean_list(self.skewness),
+                       excess_kurtosis=clean_list(self.kurtosis))
         if self.categories:
-            out["category_counts"] = {name: [{"value": v, "rows": c} for v, c in cats]
-                                      for name, cats in zip(self.variables, self.categories)}
+            out["category_counts"] = clean({name: [{"value": v, "rows": c} for v, c in cats]
+                                            for name, cats in zip(self.variables, self.categories)})
         if self.pair_rows:
-            out["pair_rows"] = [{"items": [a, b], "rows": c} for a, b, c in self.pair_rows]
+            out["pair_rows"] = clean([{"items": [a, b], "rows": c} for a, b, c in self.pair_rows])
         if self.row_filters:
-            out.update(row_filters=[f.text for f in self.row_filters], rows_in_file=self.rows_in_file)
+            out.update(row_filters=clean([f.text for f in self.row_filters]), rows_in_file=clean(self.rows_in_file))
         if self.not_given:
-            out["not_given"] = [g.value for g in self.not_given]
+            out["not_given"] = clean([g.value for g in self.not_given])
         if self.missing_codes:
-            out["missing_codes"] = list(self.missing_codes)
+            out["missing_codes"] = clean(list(self.missing_codes))
         if self.no_answer_words:
             out["no_answer_words"] = list(self.no_answer_words)
         if self.reading is not None:
-            out["reading"] = self.reading.to_dict()
+            out["reading"] = clean(self.reading.to_dict())
         if self.renamed:
-            out["renamed_columns"] = [r.to_dict() for r in self.renamed]
+            out["renamed_columns"] = clean([r.to_dict() for r in self.renamed])
         if self.analysed is not None:
-            out["matrix_analysed"] = self.analysed.name.lower()
+            out["matrix_analysed"] = clean(self.analysed.name.lower())
         if self.without_group:
-            out["rows_without_group"] = self.without_group
+            out["rows_without_group"] = clean(self.without_group)
         if self.helpers_only:
-            out["rows_answering_only_helpers"] = self.helpers_only
+            out["rows_answering_only_helpers"] = clean(self.helpers_only)
         if self.few_categories:
             out["few_categories_analysed_as_continuous"] = list(self.few_categories)
         if self.answer_coding:
             from cfa_tool.data.answer_words import coding_json
 
-            out["answer_coding"] = coding_json(self.answer_coding)
+            out["answer_coding"] = clean(coding_json(self.answer_coding))
         if self.ranges:
-            out["answer_ranges"] = {name: list(r) for name, r in zip(self.variables, self.ranges)}
-        return clean(out)
+            out["answer_ranges"] = {name: clean_list(r) for name, r in zip(self.variables, self.ranges)}
+        return out
 
 
 @dataclass(frozen=True, eq=False)
@@ -340,7 +343,7 @@ class GroupResult:
     latent_covariance: np.ndarray | None = field(repr=False, default=None)
 
     def reliability_dict(self) -> dict:
-        return {"factors": [clean(r.to_dict()) for r in self.reliability], "htmt": [clean(h.to_dict()) for h in self.htmt]}
+        return {"factors": factor_dicts(self.reliability), "htmt": [clean(h.to_dict()) for h in self.htmt]}
 
 
     def diagnostics_dict(self, naming: RowNaming = RowNaming.FILE_ROW) -> dict:
