@@ -11,17 +11,37 @@ from collections.abc import Sequence
 def column_parts(widths: Sequence[float], room: float, labels: int = 1) -> list[list[int]]:
     """The columns of each part, the first ``labels`` (label) columns included in every part: all columns in one
     part when they fit in ``room`` (or nothing is left beside the labels but one column), else the other columns
-    in order, as many to a part as fit beside the label columns (at least one each)."""
+    in order, as many to a part as fit beside the label columns (at least one each); when that leaves a lone column
+    for the last part, the parts are made as even as the fewest parts allow (filled in turn up to the narrowest width
+    that needs no more parts), so that no 'continued' part holds one column a fuller part left over (new-user trial
+    s15: a 20-item matrix's continued table of one cell)."""
     labels = max(1, min(labels, len(widths) - 1))
     if len(widths) <= labels + 1 or sum(widths) <= room:
         return [list(range(len(widths)))]
     kept = sum(widths[:labels])
-    groups: list[list[int]] = []
-    for j in range(labels, len(widths)):
-        if groups and kept + sum(widths[i] for i in groups[-1]) + widths[j] <= room:
-            groups[-1].append(j)
+    others = list(range(labels, len(widths)))
+
+    def filled(width: float) -> list[list[int]]:  # in turn, as many to a part as fit within ``width`` beside the labels
+        groups: list[list[int]] = []
+        for j in others:
+            if groups and sum(widths[i] for i in groups[-1]) + widths[j] <= width:
+                groups[-1].append(j)
+            else:
+                groups.append([j])
+        return groups
+
+    fewest = filled(room - kept)
+    if len(fewest[-1]) > 1:  # the parts as full as they go, the numbers of a row together where they fit
+        return [[*range(labels), *g] for g in fewest]
+    low, high = max(widths[j] for j in others), room - kept  # the narrowest part that keeps as few parts
+    for _ in range(40):
+        middle = (low + high) / 2
+        if len(filled(middle)) <= len(fewest):
+            high = middle
         else:
-            groups.append([j])
+            low = middle
+    even = filled(high)
+    groups = even if len(even) <= len(fewest) else fewest
     return [[*range(labels), *g] for g in groups]
 
 

@@ -205,13 +205,14 @@ BOUNDARY_CAUTION = ("values on the boundary of what the general model allows, so
                     "Wittenboer 2006)")
 
 
-def boundary_note(tests, explained: str | None = None) -> Text:
+def boundary_note(tests, explained: str | None = None, criteria: bool = True) -> Text:
     """The note under a difference-test table whose restricted model sits on the boundary: what lies there, why the
     printed p-values are not exact, and the mixture's p-value when one parameter lies there.  The why, and the
     mixture's distribution, are said in full under the first such table of a comparison only; the later tables
     name what lies on their boundary, their own p-values and the table whose note says the why (``explained``, its
     key: each view names it as it names its tables; new-user trial: five one-row tables repeated the same five
-    lines)."""
+    lines); ``criteria``: the models have AIC and BIC to weigh them by (not for least-squares fits of ordinal items
+    or fits under sampling weights: new-user trial s15 was told to weigh what the table showed as 'not defined')."""
     what = "; ".join(tests[0].boundary)
     mixture = [t for t in tests if not missing(t.boundary_p_value)]
     shown = "p-value" if sum(not t.not_computed for t in tests) == 1 else "p-values"
@@ -231,12 +232,15 @@ def boundary_note(tests, explained: str | None = None) -> Text:
                          f"). No exact p-value: read the {shown} marked * as rough."))
         reading = ("Its distribution depends on the model here (several parameters on the boundary, or loadings that the "
                    "restricted model leaves undefined), so no exact p-value is given: read the "
-                   f"{shown} marked * as rough, and weigh the models also by their fit indices, AIC and BIC.")
+                   f"{shown} marked * as rough, and weigh the models also by their fit indices"
+                   f"{', AIC and BIC' if criteria else ''}.")
     return f"* On the boundary: {what}: {BOUNDARY_CAUTION}. {reading}"
 
 
 def comparison_report(comparison) -> Report:
     named = list(zip(comparison.names, comparison.results))
+    criteria = all(r.fit is not None and not missing(r.fit.aic) and not missing(r.fit.bic)
+                   for r in comparison.results)  # what the fit table shows as defined
     ordinal = comparison.results[0].method.ordinal
     problems = _failed_lines(named) + _problem_lines(named)
     fitted = [(name, r) for name, r in named if r.converged and r.fit is not None]
@@ -318,7 +322,7 @@ def comparison_report(comparison) -> Report:
             value_names = value_names[:4] + value_names[6:]
             values = [row[:4] + row[6:] for row in values]
         tables.append(_table(key, f"{restricted} (restricted) against {general}: difference tests",
-                             columns, rows, boundary_note(found, explained) if boundary else None,
+                             columns, rows, boundary_note(found, explained, criteria) if boundary else None,
                              values=(value_names, values)))
         explained = key if boundary and explained is None else explained
     for n in comparison.not_nested:
