@@ -146,7 +146,7 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
                             notes=tuple(notes), row_names=names[0] if names else None, cautions=tuple(hidden),
                             sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else ())
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
-        loaded = _read_labelled(path)
+        loaded = _with_case_filter(_read_labelled(path))
     elif suffix in (".xls",):
         raise DataError(f"'{path}' is an old-style Excel file; save it as .xlsx or CSV")
     else:
@@ -760,6 +760,15 @@ def _read_labelled(path: Path) -> LoadedData:
             ranges[column] = [{"lo": t, "hi": t} for t in tagged.values()]
     frame, declared = declared_missing(frame, ranges, values)
     return LoadedData(frame, str(path), labels, values, non_answers=declared)
+
+
+def _with_case_filter(loaded: LoadedData) -> LoadedData:
+    """``loaded`` (an SPSS or Stata file) with its case filter variable among the cautions, when it has one
+    (data.labels.filter_variable: the rows it does not select are analysed, but named first)."""
+    from cfa_tool.data.labels import filter_variable
+
+    found = filter_variable(loaded.frame, loaded.variable_labels, loaded.value_labels)
+    return replace(loaded, cautions=loaded.cautions + (found,)) if found is not None else loaded
 
 
 def _check_duplicates(header: list[str], where: str, named_by: str = "") -> None:

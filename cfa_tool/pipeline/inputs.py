@@ -26,6 +26,7 @@ from cfa_tool.data.descriptives import few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.halves import RandomHalf, half_kept
+from cfa_tool.data.labels import FilterVariable
 from cfa_tool.data.readers import (HiddenRows, LoadedData, blank_text_as_missing, drop_blank_rows,
                                    first_data_option, read_data, with_no_answers_read)
 from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame, renamed_hint
@@ -327,7 +328,8 @@ def half_of(loaded: LoadedData, choice: RandomHalf, data, sheet: str | None = No
 def kept_cautions(cautions: tuple, frame: pd.DataFrame) -> tuple:
     """``LoadedData.cautions`` of the rows row filters kept in ``frame``: rows a workbook hides count when kept."""
     kept = set(row_numbers(frame).tolist())
-    return tuple(c for c in (c.among(kept) if isinstance(c, HiddenRows) else c for c in cautions) if c)
+    return tuple(c for c in (c.among(kept) if isinstance(c, (HiddenRows, FilterVariable)) else c for c in cautions)
+                 if c)
 
 
 def _codes_as_labels(frame: pd.DataFrame, value_labels: dict, items) -> pd.DataFrame:
