@@ -451,6 +451,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     frame.attrs[SHEET_COLUMNS] = {name: get_column_letter(skipped + k + 1) for k, name in enumerate(header) if name}
     if marked:
         frame.attrs[MARKED] = {header[k]: counted for k, counted in marked.items()}
+    _check_repeated_header(frame, where, first + 1)
     _check_header_rows(frame, where, False, items=items, header_row=first + 1, names_option=names_option,
                        listed=listed)
     unread = _skipped_answers(frame, [(k, list(r[skipped:skipped + width])) for k, r in between], items, (), False,
@@ -1116,6 +1117,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
                 notes.append(_spanning_note(path, rows))
     frame = blank_text_as_missing(frame, text_columns, MISSING_MARKERS, decimal == ",")  # 'NA ' is 'NA'
     raw = _RawCells(body, delimiter, widest, len(header), frame.index)
+    _check_repeated_header(frame, str(path), header_row)
     _check_header_rows(frame, str(path), decimal == ",", text_columns, items, header_row, names_option, listed)
     unread = _skipped_answers(frame, between, items, text_columns, decimal == ",", str(path), int(first_data_row), first_data_option(names_option)) if between else None
     if unread is not None and cautions is not None:
@@ -1260,6 +1262,34 @@ def _as_numbers(column: pd.Series, decimal_comma: bool) -> pd.Series:
 
 MAX_HEADER_ROWS = 3  # further header rows a survey platform writes under the column names (question texts, ids)
 MAX_ANSWER_WORDS = 30  # a column of answers recorded as words holds at most this many different words
+
+
+def _check_repeated_header(frame: pd.DataFrame, where: str, header_row: int) -> None:
+    """A row of data whose cells repeat the column names (at least two, and half of its filled cells, each in its own
+    column) is refused (review s15, hostile case 03): the file holds two tables one under the other (two waves on
+    one sheet) or was joined from files that each had a header (``cat``); read as answers, its names were advised
+    as no-answer words and both tables were then analysed as one sample.  ``header_row``: the row of the column
+    names, which the message names."""
+    matched = np.zeros(len(frame), dtype=int)
+    filled = np.zeros(len(frame), dtype=int)
+    for column in frame.columns:
+        cells = frame[column]
+        present = cells.notna().to_numpy()
+        filled += present
+        if column is None or pd.api.types.is_numeric_dtype(cells):
+            continue
+        matched += (cells == str(column)).to_numpy(dtype=bool, na_value=False)
+    repeats = np.flatnonzero((matched >= 2) & (2 * matched >= filled))
+    if not len(repeats):
+        return
+    rows = row_numbers(frame)[repeats]
+    more = f" (and {rows_listed(rows[1:], 3)})" if len(rows) > 1 else ""
+    raise DataError(f"{where}: {row_words(int(rows[0]), text_lines(frame), row_naming(frame))}{more} repeats the "
+                    f"column names of row {header_row} ({int(matched[repeats[0]])} of them), so the file holds two tables one under "
+                    f"the other (or was joined from files that each had a header row). What to try: if the rows below "
+                    f"it are the same sample, delete that row (and any title above it); if they are another sample (a "
+                    f"second wave, another group), save each table in a file of its own, or keep them together with "
+                    f"a column saying which table each row came from")
 
 
 def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, text_columns=(), items=None,
