@@ -451,6 +451,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     frame.attrs[SHEET_COLUMNS] = {name: get_column_letter(skipped + k + 1) for k, name in enumerate(header) if name}
     if marked:
         frame.attrs[MARKED] = {header[k]: counted for k, counted in marked.items()}
+    _check_formula_errors(frame, where, items)
     _check_repeated_header(frame, where, first + 1)
     _check_header_rows(frame, where, False, items=items, header_row=first + 1, names_option=names_option,
                        listed=listed)
@@ -650,6 +651,41 @@ def _skipped_answers(frame: pd.DataFrame, between: list[tuple[int, list]], items
     numbers = [row for row, _ in between]
     start = found[0] if numbers[numbers.index(found[0]):] == found else None
     return SkippedAnswers(where, tuple(found), first_data_row, option, start)
+
+
+#: the error values a spreadsheet shows in a cell whose formula failed ('#N/A', 'not available', is read as no answer
+#: with MISSING_MARKERS; '#NULL!' is no answer too: statistics packages write it for a missing value in the
+#: spreadsheets they export, data.non_answers.NON_ANSWER_MARKS)
+FORMULA_ERRORS = frozenset(("#DIV/0!", "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#SPILL!", "#CALC!"))
+
+
+def _check_formula_errors(frame: pd.DataFrame, where: str, items) -> None:
+    """Cells of the item columns (``items``; None: every column) that hold a spreadsheet's formula error
+    (:data:`FORMULA_ERRORS`: a formula that failed, '#DIV/0!'), in a workbook or a table it saved as text, are
+    refused, naming the first by its row and column (and cell of a sheet): they are no answers of any scale and no
+    word of no answer, but a computation to correct at its source (review s15, hostile case 11: they were offered an
+    'answers' statement)."""
+    wanted = None if items is None else {str(x) for x in items}
+    found: list[tuple[int, str, str]] = []  # (position, column, value)
+    for column in frame.columns:
+        if column is None or (wanted is not None and str(column) not in wanted) or \
+                pd.api.types.is_numeric_dtype(frame[column]):
+            continue
+        hit = frame[column].isin(FORMULA_ERRORS).to_numpy()
+        found += [(int(k), str(column), str(frame[column].iloc[k])) for k in np.flatnonzero(hit)]
+    if not found:
+        return
+    found.sort()
+    at, column, value = found[0]
+    row = int(row_numbers(frame)[at])
+    letter = (frame.attrs.get(SHEET_COLUMNS) or {}).get(column)
+    cell = f", cell {letter}{row}" if letter else ""
+    kinds = ", ".join(dict.fromkeys(v for _, _, v in found))
+    more = f" ({len(found)} cells of the items hold such errors: {kinds})" if len(found) > 1 else ""
+    raise DataError(f"{where}: {row_words(row, text_lines(frame), row_naming(frame))}, column "
+                    f"'{printable(column)}'{cell} holds the spreadsheet formula error {value}{more}: a formula that "
+                    f"failed, not an answer; fix the formulas in the workbook, or clear those cells if they hold no "
+                    f"answer, and save it again")
 
 
 def _filter_kept(ws, header: list, skipped: int) -> str | None:
@@ -1117,6 +1153,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
                 notes.append(_spanning_note(path, rows))
     frame = blank_text_as_missing(frame, text_columns, MISSING_MARKERS, decimal == ",")  # 'NA ' is 'NA'
     raw = _RawCells(body, delimiter, widest, len(header), frame.index)
+    _check_formula_errors(frame, str(path), items)
     _check_repeated_header(frame, str(path), header_row)
     _check_header_rows(frame, str(path), decimal == ",", text_columns, items, header_row, names_option, listed)
     unread = _skipped_answers(frame, between, items, text_columns, decimal == ",", str(path), int(first_data_row), first_data_option(names_option)) if between else None
