@@ -401,10 +401,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
         data_start = _first_data_start(first_data_row, first + 1, len(rows) + first, where, names_option, notes)
         between = list(enumerate(rows[1:data_start - first - 1], start=first + 2))
         rows = rows[:1] + rows[data_start - first - 1:]
-    merged = [str(rng) for rng in ws.merged_cells.ranges if rng.min_row == first + 1]
-    if merged:
-        raise DataError(f"{where}: the header row has merged cells ({merged[0]}); "
-                        f"give every column its own name in one header row")
+    _check_merged_header(ws, where, rows, first, items, names_option)
     # columns empty in every row (the table starts further right, as in column B) are no part of the table
     skipped = next((k for k in range(max(map(len, rows), default=0))
                     if any(k < len(r) and r[k] not in (None, "") for r in rows)), 0)
@@ -719,6 +716,37 @@ def _sheet_note(path: Path, read: str, names: list[str], hidden: list[str], name
     else:
         how = f"the first sheet; name another with {Option.SHEET}"
     return f"{path}: the sheet '{printable(read)}' was analysed, {how}; the workbook also has {listed}"
+
+
+MERGED_HEADER_LOOK = 5  # rows under a header of merged cells looked at for the column names
+
+
+def _check_merged_header(ws, where: str, rows: list, first: int, items, names_option: Option) -> None:
+    """A header row (sheet row ``first`` + 1; ``rows`` from it on) with merged cells is refused, naming every merged
+    range with its text (section headings over groups of items, 'C1:F1 Punctuality'), and, when a row below it holds
+    the column names (the model's item names, ``items``; without them a row naming every column, all text), the
+    option that reads the names from that row (review s15, hostile case 14: one range of three was named, and
+    nothing pointed to --names-row)."""
+    merged = sorted((rng for rng in ws.merged_cells.ranges if rng.min_row == first + 1),
+                    key=lambda rng: rng.min_col)
+    if not merged:
+        return
+    shown = ", ".join(f"{rng.coord}" + (f" '{printable(str(value))[:40]}'" if value not in (None, "") else "")
+                      for rng in merged for value in (ws.cell(rng.min_row, rng.min_col).value,))
+    wanted = None if items is None else {str(x) for x in items}
+    below = None
+    for k, row in enumerate(rows[1:MERGED_HEADER_LOOK + 1], start=first + 2):
+        cells = [v for v in row if v not in (None, "")]
+        names = {str(v).strip() for v in cells}
+        if wanted is not None and wanted and wanted <= names or wanted is None and len(cells) >= 2 and \
+                len(cells) >= len([v for v in rows[0] if v not in (None, "")]) and all(isinstance(v, str) for v in cells):
+            below = k
+            break
+    held = "the model's item names" if wanted else "the column names"
+    advice = (f"row {below} holds {held}: read them from it with {names_option.given(below)}" if below is not None
+              else "give every column its own name in one header row")
+    raise DataError(f"{where}: the header row {first + 1} has merged cells ({shown}), headings over several columns "
+                    f"rather than one name for each; {advice}")
 
 
 def _check_merged_answers(ws, where: str, header: list, body_row: int, skipped: int) -> None:
