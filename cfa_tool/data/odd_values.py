@@ -331,8 +331,9 @@ def _statistic_of(X: np.ndarray, r: int, s: int, stats: _ColumnTotals) -> tuple[
 
 
 def _statistic_labels(frame: pd.DataFrame, columns, most: int) -> dict[int, tuple[str, str, str]]:
-    """Row position -> (column, text, what the row holds in words) of the last ``most`` rows whose cell in a column outside ``columns`` names a
-    statistic (:data:`STATISTIC_LABELS`) that no other row of the column holds ('N' of a district column is a
+    """Row position -> (column, text, what the row holds in words) of the last ``most`` rows whose cell in a column
+    outside ``columns`` names a statistic (:data:`STATISTIC_LABELS`) that no other row of the column holds ('N' of
+    a district column is a
     district)."""
     out: dict[int, tuple[str, str, str]] = {}
     items = set(columns)
@@ -368,11 +369,12 @@ def _block_findings(X: np.ndarray, frame: pd.DataFrame, columns, row_numbers, s:
             found.append(OddValues(OddKind.SUMS_ROW if summed else OddKind.MEANS_ROW, tuple(names[j] for j in js),
                                    tuple(float(X[r, j]) for j in js), (int(numbers[r]),), len(js), _others(X[:s, js])))
     if block and not means_alone:
-        js = np.flatnonzero(np.isfinite(X[[r for r, _, _ in block]]).any(axis=0))
+        answered = np.isfinite(X[[r for r, _, _ in block]])
+        js = np.flatnonzero(answered.any(axis=0))
         first = block[0][0]
-        found.append(OddValues(OddKind.SUMMARY_BLOCK, tuple(names[j] for j in js), tuple(float(X[first, j]) for j in js),
-                               tuple(int(numbers[r]) for r, _, _ in block), int(np.isfinite(X[[r for r, _, _ in block]]).sum()),
-                               _others(X[:s, js]), holds=tuple(w for _, w, _ in block),
+        found.append(OddValues(OddKind.SUMMARY_BLOCK, tuple(names[j] for j in js),
+                               tuple(float(X[first, j]) for j in js), tuple(int(numbers[r]) for r, _, _ in block),
+                               int(answered.sum()), _others(X[:s, js]), holds=tuple(w for _, w, _ in block),
                                labels=tuple(_filter_cell(frame, label) for _, _, label in block)))
     return tuple(found)
 
@@ -395,8 +397,9 @@ def _block_caution(odd: OddValues, name: str) -> str:
     rows = odd._rows_named()
     count = len(odd.rows)
     holds = _joined([h for h in dict.fromkeys(odd.holds)])
+    columns = f"{len(odd.columns)} item column{'s' if len(odd.columns) != 1 else ''}"
     return (f"{rows[0].upper()}{rows[1:]} of {name}{texts} {'holds' if count == 1 else 'hold'} {holds} of the rows "
-            f"above {'it' if count == 1 else 'them'} in {len(odd.columns)} item column{'s' if len(odd.columns) != 1 else ''}, "
+            f"above {'it' if count == 1 else 'them'} in {columns}, "
             f"not anyone's answers, and {'was' if count == 1 else 'were'} analysed as {count} "
             f"respondent{'s' if count != 1 else ''}: a summary block under the data?")
 

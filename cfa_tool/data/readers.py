@@ -23,6 +23,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.case_filter import filter_variable
 from cfa_tool.data.kept_rows import (SHEET_COLUMNS, TEXT_LINES, line_words, row_naming, row_words, rows_listed,
                                      text_lines)
 from cfa_tool.data.missing_codes import apply_missing_codes, missing_codes_note
@@ -735,11 +736,12 @@ def _check_merged_header(ws, where: str, rows: list, first: int, items, names_op
                       for rng in merged for value in (ws.cell(rng.min_row, rng.min_col).value,))
     wanted = None if items is None else {str(x) for x in items}
     below = None
+    headings = len([v for v in rows[0] if v not in (None, "")])
     for k, row in enumerate(rows[1:MERGED_HEADER_LOOK + 1], start=first + 2):
         cells = [v for v in row if v not in (None, "")]
         names = {str(v).strip() for v in cells}
         if wanted is not None and wanted and wanted <= names or wanted is None and len(cells) >= 2 and \
-                len(cells) >= len([v for v in rows[0] if v not in (None, "")]) and all(isinstance(v, str) for v in cells):
+                len(cells) >= headings and all(isinstance(v, str) for v in cells):
             below = k
             break
     held = "the model's item names" if wanted else "the column names"
@@ -829,9 +831,7 @@ def _read_labelled(path: Path) -> LoadedData:
 
 def _with_case_filter(loaded: LoadedData) -> LoadedData:
     """``loaded`` (an SPSS or Stata file) with its case filter variable among the cautions, when it has one
-    (data.labels.filter_variable: the rows it does not select are analysed, but named first)."""
-    from cfa_tool.data.labels import filter_variable
-
+    (data.case_filter.filter_variable: the rows it does not select are analysed, but named first)."""
     found = filter_variable(loaded.frame, loaded.variable_labels, loaded.value_labels)
     return replace(loaded, cautions=loaded.cautions + (found,)) if found is not None else loaded
 
@@ -1350,11 +1350,11 @@ def _check_repeated_header(frame: pd.DataFrame, where: str, header_row: int) -> 
     rows = row_numbers(frame)[repeats]
     more = f" (and {rows_listed(rows[1:], 3)})" if len(rows) > 1 else ""
     raise DataError(f"{where}: {row_words(int(rows[0]), text_lines(frame), row_naming(frame))}{more} repeats the "
-                    f"column names of row {header_row} ({int(matched[repeats[0]])} of them), so the file holds two tables one under "
-                    f"the other (or was joined from files that each had a header row). What to try: if the rows below "
-                    f"it are the same sample, delete that row (and any title above it); if they are another sample (a "
-                    f"second wave, another group), save each table in a file of its own, or keep them together with "
-                    f"a column saying which table each row came from")
+                    f"column names of row {header_row} ({int(matched[repeats[0]])} of them), so the file holds two "
+                    f"tables one under the other (or was joined from files that each had a header row). What to "
+                    f"try: if the rows below it are the same sample, delete that row (and any title above it); if "
+                    f"they are another sample (a second wave, another group), save each table in a file of its own, "
+                    f"or keep them together with a column saying which table each row came from")
 
 
 def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, text_columns=(), items=None,

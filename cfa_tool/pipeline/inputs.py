@@ -26,7 +26,7 @@ from cfa_tool.data.descriptives import few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.halves import RandomHalf, half_kept
-from cfa_tool.data.labels import FilterVariable
+from cfa_tool.data.case_filter import FilterVariable
 from cfa_tool.data.readers import (HiddenRows, LoadedData, blank_text_as_missing, drop_blank_rows,
                                    first_data_option, read_data, with_no_answers_read)
 from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame, renamed_hint

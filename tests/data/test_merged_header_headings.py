@@ -9,7 +9,7 @@ from __future__ import annotations
 import pandas as pd
 import pytest
 
-from tests.conftest import run_cli
+from tests.conftest import fit_refused, run_cli
 
 
 def _headed(frame: pd.DataFrame, path, names: bool = True):
@@ -29,10 +29,8 @@ def _headed(frame: pd.DataFrame, path, names: bool = True):
 def test_every_merged_heading_is_named_and_the_row_of_item_names_suggested(rider_demo, rider_model, tmp_path, capsys):
     path = tmp_path / "m.xlsx"
     _headed(rider_demo, path)
+    err = fit_refused(rider_model, path, tmp_path, capsys)
     model = tmp_path / "m.cfa"
-    model.write_text(rider_model)
-    code, _, err = run_cli(["fit", model, "--data", path], capsys)
-    assert code == 2 and len(err.strip().splitlines()) == 1
     assert ("the header row 1 has merged cells (C1:F1 'Punctuality', G1:J1 'Comfort', K1:N1 'Courtesy')"
             in err)
     assert err.rstrip().endswith("row 2 holds the model's item names: read them from it with --names-row 2")
@@ -43,7 +41,5 @@ def test_every_merged_heading_is_named_and_the_row_of_item_names_suggested(rider
 def test_without_a_row_of_names_below_the_headings_no_option_is_suggested(rider_demo, rider_model, tmp_path, capsys):
     path = tmp_path / "m.xlsx"
     _headed(rider_demo, path, names=False)
-    model = tmp_path / "m.cfa"
-    model.write_text(rider_model)
-    code, _, err = run_cli(["fit", model, "--data", path], capsys)
-    assert code == 2 and "--names-row" not in err and "give every column its own name in one header row" in err
+    err = fit_refused(rider_model, path, tmp_path, capsys)
+    assert "--names-row" not in err and "give every column its own name in one header row" in err

@@ -11,7 +11,7 @@ import pytest
 
 from cfa_tool.data.readers import read_data
 from cfa_tool.errors import DataError
-from tests.conftest import run_cli
+from tests.conftest import fit_refused
 
 
 def test_two_csv_files_joined_with_their_headers_are_refused_naming_the_row(rider_demo, rider_model, tmp_path, capsys):
@@ -20,10 +20,7 @@ def test_two_csv_files_joined_with_their_headers_are_refused_naming_the_row(ride
     rider_demo.iloc[240:].to_csv(second, index=False)
     both = tmp_path / "both.csv"
     both.write_bytes(first.read_bytes() + second.read_bytes())  # as 'cat w1.csv w2.csv > both.csv' joins them
-    model = tmp_path / "m.cfa"
-    model.write_text(rider_model)
-    code, _, err = run_cli(["fit", model, "--data", both], capsys)
-    assert code == 2 and len(err.strip().splitlines()) == 1
+    err = fit_refused(rider_model, both, tmp_path, capsys)
     assert err.startswith(f"cfa-tool: {both}: row 242 repeats the column names of row 1 (14 of them), so the file "
                           f"holds two tables")
     assert "--missing-codes" not in err and "text among numbers" not in err

@@ -57,8 +57,9 @@ def test_an_unlabelled_block_of_means_and_standard_deviations_is_found_by_its_va
         (OddKind.SUMMARY_BLOCK, (len(rider_demo) + 1, len(rider_demo) + 2), ("the means", "the standard deviations"))]
     # through the Python interface, the rows are named by their index labels
     fit = cfa_tool.fit(rider_model, block)
-    assert fit.problems[0].explanation.startswith(f"Index labels {len(rider_demo)}, {len(rider_demo) + 1} of <data "
-                                                  f"frame> hold the means and the standard deviations of the rows above")
+    first = fit.problems[0].explanation
+    assert first.startswith(f"Index labels {len(rider_demo)}, {len(rider_demo) + 1} of <data frame> hold the means "
+                            f"and the standard deviations of the rows above")
 
 
 def test_no_block_in_ordinary_data(rider_demo):
