@@ -40,6 +40,7 @@ from __future__ import annotations
 
 import enum
 from dataclasses import dataclass, replace
+from functools import cached_property
 
 import numpy as np
 import pandas as pd
@@ -262,7 +263,11 @@ def _summary_block(frame: pd.DataFrame, columns, row_numbers, X) -> tuple[tuple[
     if X is None:  # some item column holds text: refused where it is read
         return (), n
     labels = _statistic_labels(frame, columns, most)
-    stats = _ColumnTotals(X)
+    stats = _ColumnTotals(X, n - most)
+    last = X[n - 1][np.isfinite(X[n - 1])]
+    if n - 1 not in labels and (len(last) < 3 or np.all(last == np.round(last)) and not (
+            X[n - 1] > stats.top).any()):
+        return (), n  # the last row is a respondent's whole-number answers: no block (the common case)
     for k in range(most, 0, -1):
         s = n - k
         held = []
@@ -282,16 +287,34 @@ class _ColumnTotals:
     """Counts, sums and sums of squares (about each column's mean, Chan, Golub & LeVeque 1983's shifted sums) of the
     item columns, from which the statistics of the rows above a block are the whole columns' minus the block's."""
 
-    def __init__(self, X: np.ndarray) -> None:
+    def __init__(self, X: np.ndarray, first: int) -> None:
         self.X = X
         self.finite = np.isfinite(X)
-        self.counts = self.finite.sum(axis=0)
-        self.sums = np.where(self.finite, X, 0.0).sum(axis=0)
-        self.shift = np.where(self.counts > 0, self.sums / np.maximum(self.counts, 1), 0.0)
+        #: the highest answer of each column above row position ``first`` (where a block can start): a row of whole
+        #: numbers none of which lies above it holds no counts of answers or sums (:func:`_statistic_of`)
+        self.top = np.max(X[:first], axis=0, initial=-np.inf, where=self.finite[:first])
         self._squares = None
+        self._above: dict[int, dict[str, np.ndarray]] = {}
+
+    @cached_property
+    def counts(self) -> np.ndarray:
+        return self.finite.sum(axis=0)
+
+    @cached_property
+    def sums(self) -> np.ndarray:
+        return np.where(self.finite, self.X, 0.0).sum(axis=0)
+
+    @cached_property
+    def shift(self) -> np.ndarray:
+        return np.where(self.counts > 0, self.sums / np.maximum(self.counts, 1), 0.0)
 
     def above(self, s: int) -> dict[str, np.ndarray]:
-        """The statistics of the rows above row position ``s``."""
+        """The statistics of the rows above row position ``s`` (each position computed once)."""
+        if s not in self._above:
+            self._above[s] = self._statistics(s)
+        return self._above[s]
+
+    def _statistics(self, s: int) -> dict[str, np.ndarray]:
         tail = self.finite[s:]
         counts = self.counts - tail.sum(axis=0)
         sums = self.sums - np.where(tail, self.X[s:], 0.0).sum(axis=0)
@@ -316,6 +339,8 @@ def _statistic_of(X: np.ndarray, r: int, s: int, stats: _ColumnTotals) -> tuple[
     places = next((k for k in range(7) if np.all(np.abs(row * 10 ** k - np.round(row * 10 ** k)) < 1e-6)), None)
     if places is None:
         return None
+    if places == 0 and not (row > stats.top[js]).any():
+        return None  # whole numbers within the answers: no counts of answers, no sums (the common case)
     tolerance = 0.5 * 10.0 ** -places + 1e-9
     for words, values in stats.above(s).items():
         whole = words in ("the counts of answers", "the sums")
@@ -342,8 +367,7 @@ def _statistic_labels(frame: pd.DataFrame, columns, most: int) -> dict[int, tupl
         if column in items or pd.api.types.is_numeric_dtype(frame[column]):
             continue
         cells = frame[column]
-        for r in range(n - most, n):
-            value = cells.iloc[r]
+        for r, value in enumerate(cells.iloc[n - most:].tolist(), start=n - most):
             if r in out or not isinstance(value, str):
                 continue
             key = " ".join(value.split()).strip(".:").strip().lower()
