@@ -217,4 +217,3 @@ def ordered_labels(labels, frame, column: str) -> list[str]:
         return coded + sorted(rest, key=number)
     return coded + sorted(rest)
 
-
