@@ -52,6 +52,16 @@ def run_cli(argv, capsys) -> tuple[int, str, str]:
     return code, out.out, out.err
 
 
+def fit_refused(model_text: str, data, tmp_path, capsys) -> str:
+    """The one-line error of ``fit`` of ``model_text`` on the file ``data`` run on the command line, asserted to exit
+    with 2 (bad input) on one line."""
+    model = tmp_path / "m.cfa"
+    model.write_text(model_text)
+    code, _, err = run_cli(["fit", model, "--data", data], capsys)
+    assert code == 2 and len(err.strip().splitlines()) == 1, err
+    return err
+
+
 def holzinger_swineford() -> pd.DataFrame:
     """Holzinger & Swineford (1939): 301 pupils, ability tests x1..x9, two schools."""
     return pd.read_csv(DATASETS / "holzinger_swineford_1939.csv", index_col=0)

@@ -40,6 +40,7 @@ from __future__ import annotations
 
 import enum
 from dataclasses import dataclass, replace
+from functools import cached_property
 
 import numpy as np
 import pandas as pd
@@ -70,6 +71,7 @@ class OddKind(enum.Enum):
     FAR_BEYOND = "far beyond the other rows"
     SUMS_ROW = "row of sums"
     MEANS_ROW = "row of means"
+    SUMMARY_BLOCK = "rows of column statistics"
 
 
 @dataclass(frozen=True)
@@ -92,6 +94,10 @@ class OddValues:
     #: what the columns are in the analysis, as the caution names them: the model's items, or the missing-data
     #: helpers, which enter the likelihood as items do and are screened alike (pipeline.inputs.with_helper_codes)
     role: str = "item"
+    #: a summary block (kind SUMMARY_BLOCK): what each of its ``rows`` holds, in words ('the means', 'Min'), and the
+    #: text cell that names it ((column, text), or None)
+    holds: tuple[str, ...] = ()
+    labels: tuple[tuple[str, str] | None, ...] = ()
 
     def caution(self, source: str) -> str:
         """The one line a report shows first: the columns, the value, how many rows and which."""
@@ -114,6 +120,8 @@ class OddValues:
                     f"{self._rows_named()}), outside the answer "
                     f"scale of the other answers ({_number(low)} to {_number(high)}), analysed as an answer: a typing "
                     f"error?")
+        if self.kind is OddKind.SUMMARY_BLOCK:
+            return _block_caution(self, name)
         guess = ("a totals or means row, or a typing error?" if self.kind is OddKind.FAR_BEYOND
                  else "a totals or means row of a spreadsheet?")
         return f"{self._row_holds(name)}: {guess}"
@@ -162,6 +170,9 @@ class OddValues:
             return (f"{self._first_row()}, with values far beyond every other row's answers ({_number(low)} to "
                     f"{_number(high)}) in {len(self.columns)} item column{'s' if len(self.columns) != 1 else ''}: "
                     f"perhaps a totals row or a typing error")
+        if self.kind is OddKind.SUMMARY_BLOCK:
+            return (f"{self._rows_named()}, which hold {_listed(self.holds)} of the rows above them in the item "
+                    f"columns: perhaps a summary block under the data")
         which = "sums" if self.kind is OddKind.SUMS_ROW else "means"
         return (f"{self._first_row()}, whose values equal the {which} of the other rows' answers in every item "
                 f"column it answers ({len(self.columns)}): perhaps a {'totals' if which == 'sums' else 'means'} row")
@@ -177,6 +188,8 @@ class OddValues:
                     f"{_number(self.values[0])} means 'no answer', give "
                     f"{Option.MISSING_CODES.given(_number(self.values[0]))}.")
         holder = "data frame" if self.naming is RowNaming.INDEX_LABEL else "file"
+        if self.kind is OddKind.SUMMARY_BLOCK:
+            return _block_advice(self, holder)
         return (f"Delete {self._first_row()} from the {holder} (or leave it out with a row filter, "
                 f"{Option.KEEP}) if it holds no one's answers; otherwise check those answers.")
 
@@ -188,21 +201,248 @@ class OddValues:
         return row_words(self.rows[0], dict(self.lines), self.naming)
 
     def to_dict(self) -> dict:
-        return {"kind": self.kind.value, "columns": list(self.columns), "values": list(self.values),
-                "rows": list(self.rows), "answers": self.answers}
+        out = {"kind": self.kind.value, "columns": list(self.columns), "values": list(self.values),
+               "rows": list(self.rows), "answers": self.answers}
+        if self.kind is OddKind.SUMMARY_BLOCK:
+            out["holds"] = list(self.holds)
+        return out
 
 
 def odd_values(frame: pd.DataFrame, columns: tuple[str, ...] | list[str],
                row_numbers: np.ndarray | None = None, values: np.ndarray | None = None) -> tuple[OddValues, ...]:
-    """What in ``columns`` of ``frame`` looks like no answers (see the module's rules), codes first.  ``values``:
-    the columns' ``data.moments.item_values`` when already taken out of ``frame``."""
+    """What in ``columns`` of ``frame`` looks like no answers (see the module's rules), a summary block under the
+    data first (:func:`summary_block`), then codes.  ``values``: the columns' ``data.moments.item_values`` when
+    already taken out of ``frame``."""
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # values near the float limit judge as inf
-        found = _odd_values(frame, columns, row_numbers, values)
+        block, above = _summary_block(frame, columns, row_numbers, values)
+        if block:  # the other rules judge the rows above the block, against them alone
+            numbers = np.arange(1, len(frame) + 1) if row_numbers is None else np.asarray(row_numbers)
+            found = block + _odd_values(frame.iloc[:above], columns, numbers[:above],
+                                        None if values is None else values[:above])
+        else:
+            found = _odd_values(frame, columns, row_numbers, values)
     naming = row_naming(frame)
     lines = text_lines(frame)
     if lines:  # a text file whose quoted cells hold line breaks: the rows' text lines named beside them
         found = tuple(replace(o, lines=tuple((r, lines[r]) for r in o.rows if r in lines)) for o in found)
     return found if naming is RowNaming.FILE_ROW else tuple(replace(o, naming=naming) for o in found)
+
+
+#: the text of a cell outside the items that names a row of column statistics (in lower case, without spaces, dots
+#: and colons at its ends), and what such a row holds, in words
+STATISTIC_LABELS = {
+    **dict.fromkeys(("mean", "means", "average", "avg"), "the means"),
+    **dict.fromkeys(("sd", "s.d", "std", "stdev", "std dev", "std. dev", "std. deviation", "std deviation",
+                     "standard deviation", "standard deviations", "st. dev", "st dev"), "the standard deviations"),
+    **dict.fromkeys(("n", "count", "counts", "valid n", "number of answers"), "the counts of answers"),
+    **dict.fromkeys(("total", "totals", "sum", "sums"), "the sums"),
+    **dict.fromkeys(("min", "minimum"), "the lowest answers"),
+    **dict.fromkeys(("max", "maximum"), "the highest answers"),
+    **dict.fromkeys(("median",), "the medians"),
+    **dict.fromkeys(("variance", "var"), "the variances"),
+}
+MAX_BLOCK_ROWS = 10  # rows of a summary block under the data
+
+
+def _summary_block(frame: pd.DataFrame, columns, row_numbers, X) -> tuple[tuple[OddValues, ...], int]:
+    """A summary block under the data (review s15): the last rows of ``frame`` (at most :data:`MAX_BLOCK_ROWS`),
+    each of them named by a cell outside ``columns`` that says mean, SD, N, total, min or max (:data:`STATISTIC_LABELS`,
+    a text no other row of its column holds) or holding, in every item column it answers (three or more), the
+    means, standard deviations (divisor n - 1 or n), counts of answers or sums of the rows above the block (to within
+    half a unit of the last decimal the row writes: 0.005 for two decimals; a row of whole numbers only as counts
+    or sums, the sums beyond the range of the other answers as :func:`_beyond_the_others` asks).  One rule for the
+    whole block, judged against the rows above it, so that a Mean row under which an SD and an N row stand is
+    found as a Mean row alone is.  The project's own screening rule (common practice of data cleaning, not a
+    published test).  Returns the findings (one for the block; a row of sums among them a SUMS_ROW finding of its
+    own, which is refused as every totals row is) and the number of rows above the block (``len(frame)`` when
+    there is none)."""
+    n = len(frame)
+    most = min(MAX_BLOCK_ROWS, n - MIN_OTHERS - 1)
+    if most < 1 or not len(columns):
+        return (), n
+    if X is None:
+        X = item_values(frame, columns)
+    if X is None:  # some item column holds text: refused where it is read
+        return (), n
+    labels = _statistic_labels(frame, columns, most)
+    stats = _ColumnTotals(X, n - most)
+    last = X[n - 1][np.isfinite(X[n - 1])]
+    if n - 1 not in labels and (len(last) < 3 or np.all(last == np.round(last)) and not (
+            X[n - 1] > stats.top).any()):
+        return (), n  # the last row is a respondent's whole-number answers: no block (the common case)
+    for k in range(most, 0, -1):
+        s = n - k
+        held = []
+        for r in range(s, n):
+            what = labels.get(r)
+            matched = _statistic_of(X, r, s, stats)
+            if matched is None and what is None:
+                break
+            words, summed = matched or (what[2], False)
+            held.append((r, words, summed, matched is not None, what[:2] if what else None))
+        else:
+            return _block_findings(X, frame, columns, row_numbers, s, held), s
+    return (), n
+
+
+class _ColumnTotals:
+    """Counts, sums and sums of squares (about each column's mean, Chan, Golub & LeVeque 1983's shifted sums) of the
+    item columns, from which the statistics of the rows above a block are the whole columns' minus the block's."""
+
+    def __init__(self, X: np.ndarray, first: int) -> None:
+        self.X = X
+        self.finite = np.isfinite(X)
+        #: the highest answer of each column above row position ``first`` (where a block can start): a row of whole
+        #: numbers none of which lies above it holds no counts of answers or sums (:func:`_statistic_of`)
+        self.top = np.max(X[:first], axis=0, initial=-np.inf, where=self.finite[:first])
+        self._squares = None
+        self._above: dict[int, dict[str, np.ndarray]] = {}
+
+    @cached_property
+    def counts(self) -> np.ndarray:
+        return self.finite.sum(axis=0)
+
+    @cached_property
+    def sums(self) -> np.ndarray:
+        return np.where(self.finite, self.X, 0.0).sum(axis=0)
+
+    @cached_property
+    def shift(self) -> np.ndarray:
+        return np.where(self.counts > 0, self.sums / np.maximum(self.counts, 1), 0.0)
+
+    def above(self, s: int) -> dict[str, np.ndarray]:
+        """The statistics of the rows above row position ``s`` (each position computed once)."""
+        if s not in self._above:
+            self._above[s] = self._statistics(s)
+        return self._above[s]
+
+    def _statistics(self, s: int) -> dict[str, np.ndarray]:
+        tail = self.finite[s:]
+        counts = self.counts - tail.sum(axis=0)
+        sums = self.sums - np.where(tail, self.X[s:], 0.0).sum(axis=0)
+        if self._squares is None:
+            self._squares = (np.where(self.finite, self.X - self.shift, 0.0) ** 2).sum(axis=0)
+        shifted = sums - counts * self.shift
+        squares = self._squares - (np.where(tail, self.X[s:] - self.shift, 0.0) ** 2).sum(axis=0)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            deviations = np.maximum(squares - shifted ** 2 / counts, 0.0)
+            return {"the counts of answers": counts.astype(float), "the sums": sums, "the means": sums / counts,
+                    "the standard deviations": np.sqrt(deviations / (counts - 1)),
+                    "the standard deviations (divisor n)": np.sqrt(deviations / counts)}
+
+
+def _statistic_of(X: np.ndarray, r: int, s: int, stats: _ColumnTotals) -> tuple[str, bool] | None:
+    """What row position ``r`` of ``X`` holds when its values equal, in every column it answers (three or more),
+    one statistic of the rows above position ``s`` (see :func:`_summary_block`): (its words, whether sums), or None."""
+    js = np.flatnonzero(np.isfinite(X[r]))
+    if len(js) < 3:
+        return None
+    row = X[r, js]
+    places = next((k for k in range(7) if np.all(np.abs(row * 10 ** k - np.round(row * 10 ** k)) < 1e-6)), None)
+    if places is None:
+        return None
+    if places == 0 and not (row > stats.top[js]).any():
+        return None  # whole numbers within the answers: no counts of answers, no sums (the common case)
+    tolerance = 0.5 * 10.0 ** -places + 1e-9
+    for words, values in stats.above(s).items():
+        whole = words in ("the counts of answers", "the sums")
+        if whole != (places == 0):
+            continue
+        if np.all(np.abs(row - values[js]) <= tolerance):
+            if words == "the sums" and not _beyond_the_others(row, X[:s, js]):
+                continue
+            if not whole and not any((X[:s, j] != X[r, j]).all() for j in js):
+                continue  # means an answer of every column repeats: a respondent's answers, as the means row rule
+            return words.replace(" (divisor n)", ""), words == "the sums"
+    return None
+
+
+def _statistic_labels(frame: pd.DataFrame, columns, most: int) -> dict[int, tuple[str, str, str]]:
+    """Row position -> (column, text, what the row holds in words) of the last ``most`` rows whose cell in a column
+    outside ``columns`` names a statistic (:data:`STATISTIC_LABELS`) that no other row of the column holds ('N' of
+    a district column is a
+    district)."""
+    out: dict[int, tuple[str, str, str]] = {}
+    items = set(columns)
+    n = len(frame)
+    for column in frame.columns:
+        if column in items or pd.api.types.is_numeric_dtype(frame[column]):
+            continue
+        cells = frame[column]
+        for r, value in enumerate(cells.iloc[n - most:].tolist(), start=n - most):
+            if r in out or not isinstance(value, str):
+                continue
+            key = " ".join(value.split()).strip(".:").strip().lower()
+            if key in STATISTIC_LABELS and int((cells == value).sum()) == 1:
+                out[r] = (str(column), value.strip(), STATISTIC_LABELS[key])
+    return out
+
+
+def _block_findings(X: np.ndarray, frame: pd.DataFrame, columns, row_numbers, s: int, held) -> tuple[OddValues, ...]:
+    """The findings of a summary block from row position ``s`` on (``held``: (position, what it holds in words,
+    whether sums, whether found by its values, label cell) of each row): a row found by its values to hold the sums
+    is a SUMS_ROW finding (refused, as every totals row is), a block of one row found by its values to hold the means
+    a MEANS_ROW finding (as before blocks were judged), the rest one SUMMARY_BLOCK finding naming every row."""
+    numbers = np.arange(1, len(frame) + 1) if row_numbers is None else np.asarray(row_numbers)
+    names = list(columns)
+    found: list[OddValues] = []
+    block = [(r, words, label) for r, words, summed, _, label in held if not summed]
+    means_alone = len(block) == 1 and block[0][1] == "the means" and any(
+        by_values for r, _, summed, by_values, _ in held if r == block[0][0])
+    for r, words, summed, by_values, label in held:
+        if summed or means_alone and r == block[0][0]:
+            js = np.flatnonzero(np.isfinite(X[r]))
+            found.append(OddValues(OddKind.SUMS_ROW if summed else OddKind.MEANS_ROW, tuple(names[j] for j in js),
+                                   tuple(float(X[r, j]) for j in js), (int(numbers[r]),), len(js), _others(X[:s, js])))
+    if block and not means_alone:
+        answered = np.isfinite(X[[r for r, _, _ in block]])
+        js = np.flatnonzero(answered.any(axis=0))
+        first = block[0][0]
+        found.append(OddValues(OddKind.SUMMARY_BLOCK, tuple(names[j] for j in js),
+                               tuple(float(X[first, j]) for j in js), tuple(int(numbers[r]) for r, _, _ in block),
+                               int(answered.sum()), _others(X[:s, js]), holds=tuple(w for _, w, _ in block),
+                               labels=tuple(_filter_cell(frame, label) for _, _, label in block)))
+    return tuple(found)
+
+
+def _filter_cell(frame: pd.DataFrame, label: tuple[str, str] | None) -> tuple[str, str] | None:
+    """``label`` (column, text) when a row filter '!=' on it keeps every other row (the column has a value in
+    every row, and the text holds no quote: :func:`naming_cell`'s conditions), else None."""
+    if label is None or "'" in label[1] or '"' in label[1]:
+        return None
+    cells = frame[label[0]]
+    return label if bool(cells.notna().all()) and not cells.astype(str).str.strip().eq("").any() else None
+
+
+def _block_caution(odd: OddValues, name: str) -> str:
+    """'Rows 483, 484 and 485 of survey.xlsx ('Mean', 'SD', 'N') hold the means, the standard deviations and the
+    counts of answers of the rows above them in 12 item columns, not anyone's answers, and were analysed as 3
+    respondents: a summary block under the data?'"""
+    named = [label[1] for label in odd.labels if label is not None]
+    texts = f" ({', '.join(repr(printable(t)) for t in named)})" if len(named) == len(odd.rows) else ""
+    rows = odd._rows_named()
+    count = len(odd.rows)
+    holds = _joined([h for h in dict.fromkeys(odd.holds)])
+    columns = f"{len(odd.columns)} item column{'s' if len(odd.columns) != 1 else ''}"
+    return (f"{rows[0].upper()}{rows[1:]} of {name}{texts} {'holds' if count == 1 else 'hold'} {holds} of the rows "
+            f"above {'it' if count == 1 else 'them'} in {columns}, "
+            f"not anyone's answers, and {'was' if count == 1 else 'were'} analysed as {count} "
+            f"respondent{'s' if count != 1 else ''}: a summary block under the data?")
+
+
+def _block_advice(odd: OddValues, holder: str) -> str:
+    labels = [label for label in odd.labels if label is not None]
+    if len(labels) == len(odd.rows) and len({c for c, _ in labels}) == 1:
+        keep = Option.KEEP.given([f"{printable(c)} != {printable(t)}" for c, t in labels])
+    else:
+        keep = str(Option.KEEP)
+    them = "it" if len(odd.rows) == 1 else "them"
+    return (f"Delete {odd._rows_named()} from the {holder}, or leave {them} out with a row filter ({keep}); "
+            f"statistics of the answers are no respondent's answers.")
+
+
+def _joined(items: list[str]) -> str:
+    return items[0] if len(items) == 1 else f"{', '.join(items[:-1])} and {items[-1]}"
 
 
 def _odd_values(frame: pd.DataFrame, columns, row_numbers, X) -> tuple[OddValues, ...]:

@@ -23,6 +23,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.case_filter import filter_variable
 from cfa_tool.data.kept_rows import (SHEET_COLUMNS, TEXT_LINES, line_words, row_naming, row_words, rows_listed,
                                      text_lines)
 from cfa_tool.data.missing_codes import apply_missing_codes, codes_on_answers, missing_codes_note
@@ -150,7 +151,7 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
                             sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else (),
                             sheet_read=sheets[0] if sheets else "")
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
-        loaded = _read_labelled(path)
+        loaded = _with_case_filter(_read_labelled(path))
     elif suffix in (".xls",):
         raise DataError(f"'{path}' is an old-style Excel file; save it as .xlsx or CSV")
     else:
@@ -410,10 +411,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
         data_start = _first_data_start(first_data_row, first + 1, len(rows) + first, where, names_option, notes)
         between = list(enumerate(rows[1:data_start - first - 1], start=first + 2))
         rows = rows[:1] + rows[data_start - first - 1:]
-    merged = [str(rng) for rng in ws.merged_cells.ranges if rng.min_row == first + 1]
-    if merged:
-        raise DataError(f"{where}: the header row has merged cells ({merged[0]}); "
-                        f"give every column its own name in one header row")
+    _check_merged_header(ws, where, rows, first, items, names_option)
     # columns empty in every row (the table starts further right, as in column B) are no part of the table
     skipped = next((k for k in range(max(map(len, rows), default=0))
                     if any(k < len(r) and r[k] not in (None, "") for r in rows)), 0)
@@ -460,6 +458,8 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     frame.attrs[SHEET_COLUMNS] = {name: get_column_letter(skipped + k + 1) for k, name in enumerate(header) if name}
     if marked:
         frame.attrs[MARKED] = {header[k]: counted for k, counted in marked.items()}
+    _check_formula_errors(frame, where, items)
+    _check_repeated_header(frame, where, first + 1)
     _check_header_rows(frame, where, False, items=items, header_row=first + 1, names_option=names_option,
                        listed=listed)
     unread = _skipped_answers(frame, [(k, list(r[skipped:skipped + width])) for k, r in between], items, (), False,
@@ -660,6 +660,41 @@ def _skipped_answers(frame: pd.DataFrame, between: list[tuple[int, list]], items
     return SkippedAnswers(where, tuple(found), first_data_row, option, start)
 
 
+#: the error values a spreadsheet shows in a cell whose formula failed ('#N/A', 'not available', is read as no answer
+#: with MISSING_MARKERS; '#NULL!' is no answer too: statistics packages write it for a missing value in the
+#: spreadsheets they export, data.non_answers.NON_ANSWER_MARKS)
+FORMULA_ERRORS = frozenset(("#DIV/0!", "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#SPILL!", "#CALC!"))
+
+
+def _check_formula_errors(frame: pd.DataFrame, where: str, items) -> None:
+    """Cells of the item columns (``items``; None: every column) that hold a spreadsheet's formula error
+    (:data:`FORMULA_ERRORS`: a formula that failed, '#DIV/0!'), in a workbook or a table it saved as text, are
+    refused, naming the first by its row and column (and cell of a sheet): they are no answers of any scale and no
+    word of no answer, but a computation to correct at its source (review s15, hostile case 11: they were offered an
+    'answers' statement)."""
+    wanted = None if items is None else {str(x) for x in items}
+    found: list[tuple[int, str, str]] = []  # (position, column, value)
+    for column in frame.columns:
+        if column is None or (wanted is not None and str(column) not in wanted) or \
+                pd.api.types.is_numeric_dtype(frame[column]):
+            continue
+        hit = frame[column].isin(FORMULA_ERRORS).to_numpy()
+        found += [(int(k), str(column), str(frame[column].iloc[k])) for k in np.flatnonzero(hit)]
+    if not found:
+        return
+    found.sort()
+    at, column, value = found[0]
+    row = int(row_numbers(frame)[at])
+    letter = (frame.attrs.get(SHEET_COLUMNS) or {}).get(column)
+    cell = f", cell {letter}{row}" if letter else ""
+    kinds = ", ".join(dict.fromkeys(v for _, _, v in found))
+    more = f" ({len(found)} cells of the items hold such errors: {kinds})" if len(found) > 1 else ""
+    raise DataError(f"{where}: {row_words(row, text_lines(frame), row_naming(frame))}, column "
+                    f"'{printable(column)}'{cell} holds the spreadsheet formula error {value}{more}: a formula that "
+                    f"failed, not an answer; fix the formulas in the workbook, or clear those cells if they hold no "
+                    f"answer, and save it again")
+
+
 def _filter_kept(ws, header: list, skipped: int) -> str | None:
     """The --keep filter equal to a sheet's filter when it keeps one value of one column ('district == \'north\''),
     else None."""
@@ -691,6 +726,38 @@ def _sheet_note(path: Path, read: str, names: list[str], hidden: list[str], name
     else:
         how = f"the first sheet; name another with {Option.SHEET}"
     return f"{path}: the sheet '{printable(read)}' was analysed, {how}; the workbook also has {listed}"
+
+
+MERGED_HEADER_LOOK = 5  # rows under a header of merged cells looked at for the column names
+
+
+def _check_merged_header(ws, where: str, rows: list, first: int, items, names_option: Option) -> None:
+    """A header row (sheet row ``first`` + 1; ``rows`` from it on) with merged cells is refused, naming every merged
+    range with its text (section headings over groups of items, 'C1:F1 Punctuality'), and, when a row below it holds
+    the column names (the model's item names, ``items``; without them a row naming every column, all text), the
+    option that reads the names from that row (review s15, hostile case 14: one range of three was named, and
+    nothing pointed to --names-row)."""
+    merged = sorted((rng for rng in ws.merged_cells.ranges if rng.min_row == first + 1),
+                    key=lambda rng: rng.min_col)
+    if not merged:
+        return
+    shown = ", ".join(f"{rng.coord}" + (f" '{printable(str(value))[:40]}'" if value not in (None, "") else "")
+                      for rng in merged for value in (ws.cell(rng.min_row, rng.min_col).value,))
+    wanted = None if items is None else {str(x) for x in items}
+    below = None
+    headings = len([v for v in rows[0] if v not in (None, "")])
+    for k, row in enumerate(rows[1:MERGED_HEADER_LOOK + 1], start=first + 2):
+        cells = [v for v in row if v not in (None, "")]
+        names = {str(v).strip() for v in cells}
+        if wanted is not None and wanted and wanted <= names or wanted is None and len(cells) >= 2 and \
+                len(cells) >= headings and all(isinstance(v, str) for v in cells):
+            below = k
+            break
+    held = "the model's item names" if wanted else "the column names"
+    advice = (f"row {below} holds {held}: read them from it with {names_option.given(below)}" if below is not None
+              else "give every column its own name in one header row")
+    raise DataError(f"{where}: the header row {first + 1} has merged cells ({shown}), headings over several columns "
+                    f"rather than one name for each; {advice}")
 
 
 def _check_merged_answers(ws, where: str, header: list, body_row: int, skipped: int) -> None:
@@ -769,6 +836,13 @@ def _read_labelled(path: Path) -> LoadedData:
             ranges[column] = [{"lo": t, "hi": t} for t in tagged.values()]
     frame, declared = declared_missing(frame, ranges, values)
     return LoadedData(frame, str(path), labels, values, non_answers=declared)
+
+
+def _with_case_filter(loaded: LoadedData) -> LoadedData:
+    """``loaded`` (an SPSS or Stata file) with its case filter variable among the cautions, when it has one
+    (data.case_filter.filter_variable: the rows it does not select are analysed, but named first)."""
+    found = filter_variable(loaded.frame, loaded.variable_labels, loaded.value_labels)
+    return replace(loaded, cautions=loaded.cautions + (found,)) if found is not None else loaded
 
 
 def _check_duplicates(header: list[str], where: str, named_by: str = "") -> None:
@@ -1155,6 +1229,8 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
                 notes.append(_spanning_note(path, rows))
     frame = blank_text_as_missing(frame, text_columns, MISSING_MARKERS, decimal == ",")  # 'NA ' is 'NA'
     raw = _RawCells(body, delimiter, widest, len(header), frame.index)
+    _check_formula_errors(frame, str(path), items)
+    _check_repeated_header(frame, str(path), header_row)
     _check_header_rows(frame, str(path), decimal == ",", text_columns, items, header_row, names_option, listed)
     unread = _skipped_answers(frame, between, items, text_columns, decimal == ",", str(path), int(first_data_row), first_data_option(names_option)) if between else None
     if unread is not None and cautions is not None:
@@ -1297,6 +1373,34 @@ def _as_numbers(column: pd.Series, decimal_comma: bool) -> pd.Series:
 
 MAX_HEADER_ROWS = 3  # further header rows a survey platform writes under the column names (question texts, ids)
 MAX_ANSWER_WORDS = 30  # a column of answers recorded as words holds at most this many different words
+
+
+def _check_repeated_header(frame: pd.DataFrame, where: str, header_row: int) -> None:
+    """A row of data whose cells repeat the column names (at least two, and half of its filled cells, each in its own
+    column) is refused (review s15, hostile case 03): the file holds two tables one under the other (two waves on
+    one sheet) or was joined from files that each had a header (``cat``); read as answers, its names were advised
+    as no-answer words and both tables were then analysed as one sample.  ``header_row``: the row of the column
+    names, which the message names."""
+    matched = np.zeros(len(frame), dtype=int)
+    filled = np.zeros(len(frame), dtype=int)
+    for column in frame.columns:
+        cells = frame[column]
+        present = cells.notna().to_numpy()
+        filled += present
+        if column is None or pd.api.types.is_numeric_dtype(cells):
+            continue
+        matched += (cells == str(column)).to_numpy(dtype=bool, na_value=False)
+    repeats = np.flatnonzero((matched >= 2) & (2 * matched >= filled))
+    if not len(repeats):
+        return
+    rows = row_numbers(frame)[repeats]
+    more = f" (and {rows_listed(rows[1:], 3)})" if len(rows) > 1 else ""
+    raise DataError(f"{where}: {row_words(int(rows[0]), text_lines(frame), row_naming(frame))}{more} repeats the "
+                    f"column names of row {header_row} ({int(matched[repeats[0]])} of them), so the file holds two "
+                    f"tables one under the other (or was joined from files that each had a header row). What to "
+                    f"try: if the rows below it are the same sample, delete that row (and any title above it); if "
+                    f"they are another sample (a second wave, another group), save each table in a file of its own, "
+                    f"or keep them together with a column saying which table each row came from")
 
 
 def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, text_columns=(), items=None,

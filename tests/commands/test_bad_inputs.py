@@ -92,7 +92,7 @@ def test_excel_file_with_a_merged_header(corpus, capsys):
     book.save(corpus / "data" / "merged.xlsx")
     before = _snapshot(corpus)
     code, _, err = _run(["fit", "models/good.cfa", "--data", "data/merged.xlsx", "--json", "out.json"], capsys)
-    _check(code, err, 2, ["merged.xlsx", "merged cells (A1:C1)"], before, corpus)
+    _check(code, err, 2, ["merged.xlsx", "merged cells (A1:C1 'Items')"], before, corpus)
 
 
 def test_values_far_apart_in_scale_are_handled(corpus, capsys):

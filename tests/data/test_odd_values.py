@@ -67,7 +67,9 @@ def test_a_totals_row_under_the_demo_data_is_named_by_its_row():
     totals = frame[items].count().to_frame().T  # a spreadsheet's COUNT row, as in the new user's file
     frame = pd.concat([frame, totals], ignore_index=True)
     found = odd_values(frame, items)
-    assert [(o.kind, o.rows) for o in found] == [(OddKind.FAR_BEYOND, (len(frame),))]
+    # the counts of answers of the rows above it (pandas' count): a summary row, said as such (review s15)
+    assert [(o.kind, o.rows, o.holds) for o in found] == [(OddKind.SUMMARY_BLOCK, (len(frame),),
+                                                            ("the counts of answers",))]
     assert found[0].columns == tuple(items) and "Delete row" in found[0].advice()
 
 

@@ -58,8 +58,9 @@ def test_a_means_row_kept_by_a_filter_is_a_caution_first(rider_demo, rider_model
     kept = cfa_tool.fit(rider_model, means, keep="district != south")
     assert kept.n_obs == int((rider_demo["district"] != "south").sum()) + 1  # the means row is analysed ...
     first = kept.problems[0]
-    assert first.explanation.startswith(f"Index label {len(rider_demo)} of <data frame> holds the means of the "
-                                        f"other rows' answers in {len(items)} item columns")  # ... and said first
+    # ... and said first: among the kept rows its label 'Average' names it (review s15: a summary row by its label)
+    assert first.explanation.startswith(f"Index label {len(rider_demo)} of <data frame> ('Average') holds the means "
+                                        f"of the rows above it in {len(items)} item columns")
     # a filter that leaves the row out says nothing of it
     plain = cfa_tool.fit(rider_model, means, keep="district = north")
     assert not any("means of the other rows" in p.explanation for p in plain.problems)
