@@ -521,3 +521,33 @@ def test_the_high_stakes_caution_says_what_flagging_people_needs(hs_data):
     for view in (result.summary(), result._repr_html_(), report_markdown(report)):
         assert "sensitivity and specificity" in " ".join(view.split())
     assert " ".join(result.summary().split()).count(flat[:60]) == 1
+
+
+def test_a_long_scoring_says_so_on_a_terminal_and_nowhere_else(tmp_path, capsys, monkeypatch):
+    """New user s15: 'scores --ordinal all' took 43 s with no word.  Before a scoring of posterior means expected to
+    take LONG_SCORING seconds or more, one line on standard error when it is a terminal, never in the report or the
+    files; the estimate counts rows x quadrature points x items (the points as the rule built has them)."""
+    import sys
+
+    from cfa_tool.scoring import ordinal
+    from cfa_tool.scoring.quadrature import default_rule, default_rule_size
+
+    for dimension in (1, 2, 3, 4):
+        assert default_rule_size(dimension) == len(default_rule(dimension).points)
+    rng = np.random.default_rng(23)
+    n = 300
+    eta = rng.normal(size=n)
+    latent = np.outer(eta, [0.8, 0.7, 0.6, 0.75]) + rng.normal(size=(n, 4)) * 0.6
+    frame = pd.DataFrame(np.searchsorted([-1.0, 0.0, 1.0], latent) + 1, columns=["q1", "q2", "q3", "q4"])
+    frame.to_csv(tmp_path / "ordinal.csv", index=False)
+    (tmp_path / "one.cfa").write_text("factor f: q1..q4\n")
+    line = "Scoring 300 rows by posterior means over 1 factor (about 0 s)..."
+    monkeypatch.setattr(ordinal, "LONG_SCORING", 0.0)  # this small scoring counts as long
+    argv = ["scores", tmp_path / "one.cfa", "--data", tmp_path / "ordinal.csv", "--ordinal", "all"]
+    code, text, err = _run(argv + ["--output", tmp_path / "a.csv", "--json", tmp_path / "a.json"], capsys)
+    assert code == 0 and line not in err and "Scoring 300" not in text  # standard error is no terminal: silence
+    monkeypatch.setattr(sys.stderr, "isatty", lambda: True, raising=False)
+    code, text, err = _run(argv + ["--output", tmp_path / "b.csv", "--json", tmp_path / "b.json"], capsys)
+    assert code == 0 and err.count(line) == 1
+    assert "Scoring 300" not in text and "Scoring 300" not in (tmp_path / "b.json").read_text()
+    assert (tmp_path / "a.csv").read_bytes() == (tmp_path / "b.csv").read_bytes()
