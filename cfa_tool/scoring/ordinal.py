@@ -112,7 +112,8 @@ class EapScorer:
             answered = codes[:, j] >= 0
             if not answered.any():
                 continue
-            rows = np.flatnonzero(answered)
+            # every row answered the item (the usual case): whole arrays, no copy of eta (n, K, r) per item
+            rows = slice(None) if answered.all() else np.flatnonzero(answered)
             predictor = self.nu[j] + eta[rows] @ self.loadings[j]  # (k, K)
             if self.continuous[j]:
                 resid = (z[rows, j][:, None] - predictor) / self.sd[j]
