@@ -19,18 +19,28 @@ from cfa_tool.scoring.methods import (DETERMINACY_CAUTION, INDIVIDUAL_DECISIONS,
 
 SCORES_CAUTION = (
     "Factor scores are estimates, not the factors themselves: with the same data, other equally valid scores exist.")
-def flagging_caution() -> str:
+def flagging_caution(result) -> str:
     """What flagging people by their scores needs, beside the high-stakes caution (new user s15: a school
-    psychologist flagging pupils for a follow-up talk found no word on cut scores or on comparing groups).  The general
-    source is the Standards for Educational and Psychological Testing (AERA, APA & NCME 2014); the 95% band around the
-    cut (1.96 standard errors, the normal distribution's 97.5% point) is common practice."""
+    psychologist flagging pupils for a follow-up talk found no word on cut scores or on comparing groups), with where
+    the run's rows have their standard error.  The general source is the Standards for Educational and Psychological
+    Testing (AERA, APA & NCME 2014); the 95% band around the cut (1.96 standard errors, the normal distribution's 97.5%
+    point) is common practice."""
     return ("Flagging people by their scores (for a follow-up talk, a referral) needs a cut score set and validated "
             "for that purpose: a record of how it was chosen and of its sensitivity and specificity against an outside "
             "criterion. A score near the cut is uncertain: within about 1.96 times the row's standard error of the cut "
-            f"(an item sum's: its standard error of measurement; written with {Option.STANDARD_ERRORS}), a flag is "
-            "not sure (a 95% band, common practice). Comparing people of different groups (gender, grade) needs the "
-            "measurement invariance across those groups tested first (Standards for Educational and Psychological "
-            "Testing, AERA, APA & NCME 2014).")
+            f"({_where_errors(result)}), a flag is not sure (a 95% band, common practice). Comparing people of "
+            "different groups (gender, grade) needs the measurement invariance across those groups tested first "
+            "(Standards for Educational and Psychological Testing, AERA, APA & NCME 2014).")
+
+
+def _where_errors(result) -> str:
+    """Where the scores file has each row's standard error, or how to have it written."""
+    if ScoreMethod.EXPECTED_A_POSTERIORI in result.methods:
+        return "its posterior standard deviation, in the file's _posterior_sd columns"
+    sem = "an item sum's or mean's: its standard error of measurement"
+    if result.standard_errors:
+        return f"in the file's _se columns; {sem}, _sem"
+    return f"written with {Option.STANDARD_ERRORS}; {sem}"
 
 METHOD_LABELS = {ScoreMethod.REGRESSION: "regression", ScoreMethod.BARTLETT: "Bartlett",
                  ScoreMethod.CORRELATION_PRESERVING: "correlation-preserving",
@@ -565,7 +575,7 @@ def scores_report(result):
 
     return Report(ResultKind.SCORES, f"Factor scores: {result.fit.model_name}", scores_notice(result),
                   tuple(header_lines(result)) + tuple(caution_lines(result)), tuple(score_tables(result)),
-                  tuple(result.notes) + tuple(item_sum_notes(result)), (SCORES_CAUTION, HIGH_STAKES_NOTE, flagging_caution()),
+                  tuple(result.notes) + tuple(item_sum_notes(result)), (SCORES_CAUTION, HIGH_STAKES_NOTE, flagging_caution(result)),
                   problem_table=scores_problem_table(result), warnings=tuple(warnings(result)))
 
 

@@ -214,6 +214,8 @@ def test_ordinal_items_get_posterior_means_and_standard_deviations(tmp_path, cap
     code, text, err = _run(["scores", model, "--data", data, "--output", out, "--ordinal", "all"], capsys)
     assert code == 0, err
     written = pd.read_csv(out)
+    # the flagging caution's band around a cut points at the file's own standard errors (written without asking)
+    assert "the cut (its posterior standard deviation, in the file's _posterior_sd columns)" in text
     assert list(written.columns) == ["f_posterior_mean", "f_posterior_sd", "f_items_answered",
                                      "same_answer_to_every_item", "why_not_scored"]
     s = written["f_posterior_mean"]
@@ -510,11 +512,11 @@ def test_the_high_stakes_caution_says_what_flagging_people_needs(hs_data):
     assert round(float(norm.ppf(0.975)), 2) == 1.96
     result = cfa_tool.scores(THREE_FACTORS, hs_data, methods="regression", id_column="id")
     report = scores_report(result)
-    caution = flagging_caution()
+    caution = flagging_caution(result)
     # one place: beside the high-stakes caution, last in every view
     assert report.cautions[-2:] == (HIGH_STAKES_NOTE, caution)
     for words in ("cut score set and validated", "sensitivity and specificity against an outside criterion",
-                  "1.96 times the row's standard error", "standard_errors=True", "common practice",
+                  "1.96 times the row's standard error", "written with standard_errors=True", "common practice",
                   "measurement invariance", "AERA, APA & NCME 2014"):
         assert words in caution
     flat = " ".join(caution.split())
