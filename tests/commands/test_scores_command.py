@@ -215,7 +215,7 @@ def test_ordinal_items_get_posterior_means_and_standard_deviations(tmp_path, cap
     assert code == 0, err
     written = pd.read_csv(out)
     # the flagging caution's band around a cut points at the file's own standard errors (written without asking)
-    assert "the cut (its posterior standard deviation, in the file's _posterior_sd columns)" in text
+    assert "the cut (its posterior standard deviation, in the file's _posterior_sd columns)" in " ".join(text.split())
     assert list(written.columns) == ["f_posterior_mean", "f_posterior_sd", "f_items_answered",
                                      "same_answer_to_every_item", "why_not_scored"]
     s = written["f_posterior_mean"]
