@@ -75,6 +75,16 @@ def _methods(text: str | None):
     return words
 
 
+def _announcer():
+    """Where a long scoring says it is starting: one line on standard error when that is a terminal (never into the
+    report or the files); None (silence) otherwise."""
+    import sys
+
+    if not sys.stderr.isatty():
+        return None
+    return lambda line: print(line, file=sys.stderr, flush=True)
+
+
 def run(args: argparse.Namespace) -> int:
     from pathlib import Path
 
@@ -93,14 +103,15 @@ def run(args: argparse.Namespace) -> int:
         result = score_with_saved_fit(Path(args.model), args.from_fit, args.data, methods=_methods(args.method),
                                       standard_errors=args.standard_errors, id_column=args.id, **O.reading_args(args),
                                       least_answered=args.least_answered,
-                                      unanswered_factors=args.unanswered_factors)
+                                      unanswered_factors=args.unanswered_factors, announce=_announcer())
     else:
         result = scores(Path(args.model), args.data, methods=_methods(args.method), standard_errors=args.standard_errors,
                         id_column=args.id, group=args.group, reference_group=args.reference_group,
                         **O.reading_args(args), ordinal=O.ordinal_arg(args.ordinal),
                         ordinal_estimator=args.ordinal_estimator, missing=args.missing,
                         max_iterations=args.max_iterations, least_answered=args.least_answered,
-                        unanswered_factors=args.unanswered_factors, **O.design_args(args))
+                        unanswered_factors=args.unanswered_factors, announce=_announcer(),
+                        **O.design_args(args))
     from cfa_tool.reporting.score_report import rows_scored
     from cfa_tool.workflows.factor_scores import WHY_NOT_SCORED_COLUMN
 

@@ -10,16 +10,38 @@ from cfa_tool.note_parts import WORDS, Command, Note, Text, said
 from cfa_tool.reporting.remedies import Remedy
 from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.options import Option
+from cfa_tool.language.names import written_group
 from cfa_tool.reporting.numbers import num, unit, word_list
+from cfa_tool.reporting.paragraph import group_labels
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
 from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT, SAME_ANSWER_COLUMN, WHY_NOT_SCORED_COLUMN, factor_methods
 from cfa_tool.scoring.methods import (DETERMINACY_CAUTION, INDIVIDUAL_DECISIONS, ITEM_METHODS, LINEAR_METHODS,
                                       ScoreMethod, Unscored)
 
 SCORES_CAUTION = (
-    "Factor scores are estimates, not the factors themselves: with the same data, other equally valid scores exist. "
-    "Scores for decisions about individuals (selection, diagnosis, placement) need evidence of validity for that use "
-    "and professional judgement.")
+    "Factor scores are estimates, not the factors themselves: with the same data, other equally valid scores exist.")
+def flagging_caution(result) -> str:
+    """What flagging people by their scores needs, beside the high-stakes caution (new user s15: a school
+    psychologist flagging pupils for a follow-up talk found no word on cut scores or on comparing groups), with where
+    the run's rows have their standard error.  The general source is the Standards for Educational and Psychological
+    Testing (AERA, APA & NCME 2014); the 95% band around the cut (1.96 standard errors, the normal distribution's 97.5%
+    point) is common practice."""
+    return ("Flagging people by their scores (for a follow-up talk, a referral) needs a cut score set and validated "
+            "for that purpose: a record of how it was chosen and of its sensitivity and specificity against an outside "
+            "criterion. A score near the cut is uncertain: within about 1.96 times the row's standard error of the cut "
+            f"({_where_errors(result)}), a flag is not sure (a 95% band, common practice). Comparing people of "
+            "different groups (gender, grade) needs the measurement invariance across those groups tested first "
+            "(Standards for Educational and Psychological Testing, AERA, APA & NCME 2014).")
+
+
+def _where_errors(result) -> str:
+    """Where the scores file has each row's standard error, or how to have it written."""
+    if ScoreMethod.EXPECTED_A_POSTERIORI in result.methods:
+        return "its posterior standard deviation, in the file's _posterior_sd columns"
+    sem = "an item sum's or mean's: its standard error of measurement"
+    if result.standard_errors:
+        return f"in the file's _se columns; {sem}, _sem"
+    return f"written with {Option.STANDARD_ERRORS}; {sem}"
 
 METHOD_LABELS = {ScoreMethod.REGRESSION: "regression", ScoreMethod.BARTLETT: "Bartlett",
                  ScoreMethod.CORRELATION_PRESERVING: "correlation-preserving",
@@ -32,8 +54,14 @@ METHOD_COLUMNS = {ScoreMethod.REGRESSION: "Regression", ScoreMethod.BARTLETT: "B
                   ScoreMethod.CORRELATION_PRESERVING: "Corr.-preserving"}
 
 
-def _where(q) -> str:
-    return f" (group {q.group})" if q.group is not None else ""
+def _group(result, label) -> str:
+    """A group's label as the scores' report names it: among the fit's groups, by the one rule
+    (language.names.written_group)."""
+    return written_group(label, group_labels(result.fit))
+
+
+def _where(result, q) -> str:
+    return f" (group {_group(result, q.group)})" if q.group is not None else ""
 
 
 def header_lines(result) -> list[str]:
@@ -87,7 +115,7 @@ def caution_lines(result) -> list[str]:
     for q in result.quality:
         for name, rho, low in zip(q.factors, q.determinacy, q.low_determinacy):
             if low:
-                lines.append(f"The determinacy of {name}{_where(q)} is {unit(rho, 2, DETERMINACY_CAUTION)}, below {unit(DETERMINACY_CAUTION, 2)} "
+                lines.append(f"The determinacy of {name}{_where(result, q)} is {unit(rho, 2, DETERMINACY_CAUTION)}, below {unit(DETERMINACY_CAUTION, 2)} "
                              f"(common practice, no single source): its scores should not be used for decisions about "
                              f"individuals.")
     return lines
@@ -145,7 +173,7 @@ def quality_table(result, k: int) -> ReportTable:
                    "fewer items is less reliable); — where a factor has no item sum or its sum none (one item)."
                    if sums is not None else "")
                 + _one_item_sentence(result.fit))
-    title = "Quality of the scores" + _where(q) + ("" if ordinal else ": determinacy, and reliability by method")
+    title = "Quality of the scores" + _where(result, q) + ("" if ordinal else ": determinacy, and reliability by method")
     return _table(f"score_quality_{k}", title, cols, rows, note,
                   flagged=tuple(i for i, low in enumerate(q.low_determinacy) if low))
 
@@ -201,7 +229,7 @@ def precision_table(result, k: int) -> ReportTable | None:
             f"±1.96 SE about a score (normal approximation); real difference: the smallest difference between two "
             f"people's scores that exceeds chance at the 5% level, 1.96 × √2 × SE (Gulliksen 1950). SDs: divided by "
             f"the factor's standard deviation." + _one_item_sentence(result.fit))  # (Gulliksen: scoring.quality)
-    return _table(f"score_precision_{k}", "How precise is one person's score?" + _where(q), cols, rows, note,
+    return _table(f"score_precision_{k}", "How precise is one person's score?" + _where(result, q), cols, rows, note,
                   values=([c for c, _ in cols], values))
 
 
@@ -258,7 +286,7 @@ def item_sum_precision_table(result, k: int) -> ReportTable | None:
             f"about a score (normal approximation); real difference: the smallest difference between two people's "
             f"scores that exceeds chance at the 5% level, 1.96 × √2 × SEM (Gulliksen 1950). "
             + _prorated_sentence(result, sums))
-    return _table(f"item_sum_precision_{k}", "How precise is one person's item score?" + _where(q), cols, rows,
+    return _table(f"item_sum_precision_{k}", "How precise is one person's item score?" + _where(result, q), cols, rows,
                   note, values=([c for c, _ in cols], values))
 
 
@@ -300,7 +328,7 @@ def precision_cautions(result) -> list[str]:
         low = [f"{factor} {unit(rel, 2, INDIVIDUAL_DECISIONS)}" + (f" (95% band about ±{num(band, 2)} SD of the factor)" if band is not None
                                              else "") for factor, rel, band in found if rel < INDIVIDUAL_DECISIONS]
         if low:
-            lines.append(f"The reliability of the {words}{_where(q)} is below the {unit(INDIVIDUAL_DECISIONS, 2)} that "
+            lines.append(f"The reliability of the {words}{_where(result, q)} is below the {unit(INDIVIDUAL_DECISIONS, 2)} that "
                          f"decisions about individuals usually need (Nunnally & Bernstein 1994; common practice): "
                          f"{', '.join(low)}.")
     return lines
@@ -322,7 +350,7 @@ def _item_sum_cautions(result, q) -> list[str]:
            if w == w and w < INDIVIDUAL_DECISIONS]
     if not low:
         return []
-    return [f"The reliability (omega) of the item sums and means{_where(q)} is below the "
+    return [f"The reliability (omega) of the item sums and means{_where(result, q)} is below the "
             f"{unit(INDIVIDUAL_DECISIONS, 2)} that decisions about individuals usually need (Nunnally & Bernstein 1994; "
             f"common practice): {', '.join(low)}."]
 
@@ -351,13 +379,13 @@ def item_sum_notes(result) -> list[str]:
     few = next((c for r, m, c in result.unscored if r == Unscored.TOO_FEW_ITEMS_ANSWERED.value and m == one.value),
                (0,) * len(result.factors))
     several = len(result.item_sums) > 1
-    prorated = "; ".join((f"group {g.group}: " if several else "") + (_listed_counts(g.factors, g.prorated) or "none")
+    prorated = "; ".join((f"group {_group(result, g.group)}: " if several else "") + (_listed_counts(g.factors, g.prorated) or "none")
                          for g in result.item_sums)
     lines.append(f"Rows whose item sums and means rest on some of a factor's items (prorated): {prorated}. Rows "
-                 f"left empty for answering too few "
+                 f"left empty for answering fewer than {share_words(rule.least_share)} "
                  f"of a factor's items: {_listed_counts(result.factors, few) or 'none'}.")
     for g in result.item_sums:
-        where = f" in group {g.group}" if g.group is not None else ""
+        where = f" in group {_group(result, g.group)}" if g.group is not None else ""
         if g.reversals:
             turned = "; ".join(f"{r.item} on {r.factor}, on {r.lowest:g} to {r.highest:g} ({r.source.value})"
                                for r in g.reversals)
@@ -385,7 +413,7 @@ def correlation_table(result, k: int) -> ReportTable | None:
             return None
         rows = [[q.factors[j], q.factors[i], unit(q.factor_correlations[i, j]), unit(q.score_correlations[i, j])]
                 for i in range(len(q.factors)) for j in range(i)]
-        return _table(f"score_correlations_{k}", "Correlations of the scores beside the factors' correlations" + _where(q),
+        return _table(f"score_correlations_{k}", "Correlations of the scores beside the factors' correlations" + _where(result, q),
                       [("Factor", "l"), ("With", "l"), ("Factors", "r"), ("Posterior means", "r")], rows,
                       "The factors' correlations under the fitted model, then those of the posterior-mean scores of "
                       "the rows scored on every factor. Posterior means shrink towards the mean, by more for rows "
@@ -395,7 +423,7 @@ def correlation_table(result, k: int) -> ReportTable | None:
         for j in range(i):
             rows.append([q.factors[j], q.factors[i], unit(q.factor_correlations[i, j])]
                         + [unit(m.score_correlations[i, j]) for m in q.methods])
-    return _table(f"score_correlations_{k}", "Correlations of the scores beside the factors' correlations" + _where(q),
+    return _table(f"score_correlations_{k}", "Correlations of the scores beside the factors' correlations" + _where(result, q),
                   [("Factor", "l"), ("With", "l"), ("Factors", "r")]
                   + [(METHOD_COLUMNS[m.method], "r") for m in q.methods], rows,
                   "The factors' correlations, then those of each method's scores (Corr.-preserving: correlation-preserving "
@@ -421,7 +449,7 @@ def sum_table(result, k: int) -> ReportTable | None:
     if not hasattr(q, "methods"):  # ordinal items: the sum of the answers' codes (Green & Yang 2009)
         rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), _sum_omega(s), _sum_validity(s),
                  unit(rho[s.factor])] for s in q.sums]
-        return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(q),
+        return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(result, q),
                       [("Factor", "l"), ("Items", "r"), ("Reversed", "l"), ("Sum omega", "r"),
                        ("Sum's r", "r"), ("Score's r", "r")], rows,
                       "The unit-weighted sum of the answers' codes of each factor's items (reversed: the "
@@ -433,7 +461,7 @@ def sum_table(result, k: int) -> ReportTable | None:
                       "in the quality table); the two show what the simpler score loses." + _one_item_sentence(result.fit))
     rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), _sum_omega(s), _sum_validity(s),
              unit(rho[s.factor])] for s in q.sums]
-    return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(q),
+    return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(result, q),
                   [("Factor", "l"), ("Items", "r"), ("Reversed", "l"), ("Sum omega", "r"), ("Sum's r", "r"),
                    ("Score's r", "r")], rows,
                   "The unit-weighted sum of each factor's items (reversed: the reverse-keyed items, reversed in the "
@@ -466,6 +494,21 @@ def _unscored_counts(factors, counts) -> str:
     return ", ".join(f"{f} {c}" for f, c in zip(factors, counts) if c)
 
 
+def share_words(share: float) -> str:
+    """A least share in plain words: 'half' for .5, else a percentage ('60%')."""
+    return "half" if share == 0.5 else f"{share:.0%}".replace(".0%", "%")
+
+
+def reason_words(result, reason: str) -> str:
+    """Why a cell is empty in plain words: the item sums' reason names the share the run used ('answered fewer than
+    half of the factor's items (the least share, --least-answered 0.5)'; new user s15: the rule's own jargon)."""
+    if reason != Unscored.TOO_FEW_ITEMS_ANSWERED.value or not result.item_sums:
+        return reason
+    share = result.item_sums[0].rule.least_share
+    return (f"answered fewer than {share_words(share)} of the factor's items (the least share, "
+            f"{Option.LEAST_ANSWERED.given(share)})")
+
+
 def unscored_table(result) -> ReportTable | None:
     """Why cells of the scores file are empty: one row for each reason and method, the method and the rows each
     factor lost in one cell, so that a row of the table stays whole in one table at 80 columns (two columns are
@@ -474,9 +517,10 @@ def unscored_table(result) -> ReportTable | None:
         return None
     labels = [METHOD_LABELS.get(next((m for m in ScoreMethod if m.value == method), None), method)
               for _, method, _ in result.unscored]
-    rows = [[reason, f"{label}: {_unscored_counts(result.factors, counts)}"]
+    rows = [[reason_words(result, reason), f"{label}: {_unscored_counts(result.factors, counts)}"]
             for (reason, _, counts), label in zip(result.unscored, labels)]
-    values = [[reason, label, *counts] for (reason, _, counts), label in zip(result.unscored, labels)]
+    values = [[reason_words(result, reason), label, *counts]
+              for (reason, _, counts), label in zip(result.unscored, labels)]
     return _table("unscored", "Rows without scores (empty cells), by reason",
                   [("Reason", "l"), ("Method: rows without a score", "l")], rows,
                   "These rows stay in the file, in their place, with empty cells; a row without any score says "
@@ -533,7 +577,7 @@ def scores_report(result):
 
     return Report(ResultKind.SCORES, f"Factor scores: {result.fit.model_name}", scores_notice(result),
                   tuple(header_lines(result)) + tuple(caution_lines(result)), tuple(score_tables(result)),
-                  tuple(result.notes) + tuple(item_sum_notes(result)), (SCORES_CAUTION, HIGH_STAKES_NOTE),
+                  tuple(result.notes) + tuple(item_sum_notes(result)), (SCORES_CAUTION, HIGH_STAKES_NOTE, flagging_caution(result)),
                   problem_table=scores_problem_table(result), warnings=tuple(warnings(result)))
 
 

@@ -44,8 +44,9 @@ class Unscored(Enum):
     HIGHER_ORDER = "the method does not apply to a factor measured only through other factors"
     #: the row's answers do not reach every factor that the method scores jointly
     TOO_FEW_ANSWERS = "the answered items do not measure every factor the method scores jointly"
-    #: item sums and means: the row answered fewer of the factor's items than the least share the rule asks for
-    TOO_FEW_ITEMS_ANSWERED = "fewer of the factor's items answered than the item sum's least share"
+    #: item sums and means: the row answered fewer of the factor's items than the least share the rule asks for (the
+    #: report names the share: reporting.score_report.reason_words)
+    TOO_FEW_ITEMS_ANSWERED = "answered fewer of the factor's items than the least share"
     #: item sums and means exist only for a factor measured by items alone (none through factors below it)
     NOT_ITEMS_ALONE = "an item sum or mean is only for a factor measured by its own items alone"
     #: item sums and means: a method factor describes a way of answering (wording, acquiescence), not a trait

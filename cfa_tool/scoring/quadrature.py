@@ -62,6 +62,13 @@ def sobol_rule(dimension: int, log2_points: int = SOBOL_POINTS_LOG2, seed: int =
     return Rule(RuleKind.QUASI_MONTE_CARLO, u, np.full(len(u), -np.log(len(u))))
 
 
+def default_rule_size(dimension: int) -> int:
+    """The number of points of :func:`default_rule` over ``dimension`` factors, without building it."""
+    if dimension < 1:
+        raise ValueError("there is nothing to integrate over")
+    return GAUSS_HERMITE_POINTS[dimension] ** dimension if dimension <= 3 else 2 ** SOBOL_POINTS_LOG2
+
+
 def default_rule(dimension: int, points: int | None = None) -> Rule:
     """Gauss-Hermite for 1-3 dimensions (``points`` per coordinate, default GAUSS_HERMITE_POINTS),
     scrambled Sobol points beyond."""

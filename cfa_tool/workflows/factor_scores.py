@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import dataclasses
 from dataclasses import dataclass, field, replace
+from collections.abc import Callable
 from enum import Enum
 from pathlib import Path
 
@@ -713,7 +714,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
            group: str | None = None, reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None,
            first_data_row: int | None = None, missing_codes=(), keep=(), rename=None, ordinal=None, ordinal_estimator: str | None = None, weights: str | None = None,
            cluster: str | None = None, strata: str | None = None, weight_kind: str | None = None,
-           least_answered: float | None = None, unanswered_factors=None, **options) -> ScoreResult:
+           least_answered: float | None = None, unanswered_factors=None,
+           announce: Callable[[str], None] | None = None, **options) -> ScoreResult:
     """Fit ``model`` to ``data`` (as :func:`cfa_tool.fit` does, same options) and score every row.
 
     ``methods``: 'regression' (Thurstone 1935; the default), 'bartlett' (Bartlett 1937),
@@ -726,6 +728,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     ``unanswered_factors``: what to do with a regression score or posterior mean of a factor a row answered none of
     the items of, a prediction from its other answers: 'predict' (the default; a caution first says which rows have
     one) or 'leave-empty' (the cell empty, the file's why_not_scored column and the report saying why).
+    ``announce``: given one line before a scoring of posterior means expected to take several seconds starts (the
+    command line writes it on standard error when that is a terminal); never part of the result.
     ``standard_errors``: also write each score's standard error (root mean squared error about the
     factor given the row's answered items; for regression scores the posterior standard deviation).
     ``id_column``: a column written first to name each row (never analysed); without it, the file's
@@ -802,7 +806,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     position = pd.Series(np.arange(len(read_index)), index=read_index)
     sums = _sum_scores(models, spec, bool(ordinal_items))
     summaries = _score_each_group(models, labels, spec, result, rule, rows, group_of_row, group, chosen,
-                                  bool(ordinal_items), position.loc[kept].to_numpy(), values, errors, counts, sums)
+                                  bool(ordinal_items), position.loc[kept].to_numpy(), values, errors, counts, sums,
+                                  announce)
     reasons = _row_reasons(read_index, kept, rows, group_of_row, group, labels)
     _count_rows_left_out(reasons, chosen, m, counts)
 
@@ -856,12 +861,19 @@ def _with_repeated_ids(result, ids, id_column):
 
 def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group, chosen, ordinal: bool,
                       places: np.ndarray, values: dict, errors: dict, counts: dict,
-                      sums: list) -> tuple[ItemSumSummary, ...]:
+                      sums: list, announce: Callable[[str], None] | None = None) -> tuple[ItemSumSummary, ...]:
     """Every row of each group scored by each chosen method into ``values`` and ``errors`` (rows read, at
     ``places``: the place of each row of ``rows`` among them), the rows without a score counted into ``counts``
     by (reason, method); the summary of each group's item sums and means (none when ``rule`` is None), whose
-    reliability and spread are the group's keyed sums' quality ``sums[g]`` (:func:`_sum_scores`)."""
+    reliability and spread are the group's keyed sums' quality ``sums[g]`` (:func:`_sum_scores`).  ``announce`` is
+    given the line that says a long scoring of posterior means is starting (scoring.ordinal.scoring_announcement)."""
     m = values[chosen[0]].shape[1]
+    if announce is not None and ordinal and factor_methods(chosen):
+        from cfa_tool.scoring.ordinal import scoring_announcement
+
+        line = scoring_announcement(models[0], len(rows))
+        if line is not None:
+            announce(line)
     summaries = []
     for model_g, label, sums_g in zip(models, labels, sums):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(rows))
@@ -986,7 +998,8 @@ def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bo
 
 def _score_other_data(result, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
                       keep, names_row=None, first_data_row=None, rule: ItemSumRule | None = None,
-                      rename=None, unanswered: UnansweredFactor = UnansweredFactor.PREDICT) -> ScoreResult:
+                      rename=None, unanswered: UnansweredFactor = UnansweredFactor.PREDICT,
+                      announce: Callable[[str], None] | None = None) -> ScoreResult:
     """Rows of ``data`` scored with the given models (one per group of the earlier fit ``result``)."""
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
@@ -1047,7 +1060,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     counts: dict = {}
     sums = _sum_scores(models, spec, ordinal)
     summaries = _score_each_group(models, labels, spec, result, rule, rows, group_of_row, group, chosen, ordinal,
-                                  position.loc[frame.index].to_numpy(), values, errors, counts, sums)
+                                  position.loc[frame.index].to_numpy(), values, errors, counts, sums, announce)
     reasons = _row_reasons(read_frame.index, frame.index, rows, group_of_row, group, labels)
     _count_rows_left_out(reasons, chosen, m, counts)
     factors = base.factors
@@ -1429,8 +1442,10 @@ def ordinal_models_of_estimates(spec, rows, data, labels: tuple[str, ...] | None
 def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_errors: bool = False,
                          id_column: str | None = None, sheet: str | None = None, missing_codes=(), keep=(),
                          names_row: int | None = None, least_answered: float | None = None,
-                         first_data_row: int | None = None, rename=None, unanswered_factors=None) -> ScoreResult:
-    """Scores of the rows of ``data`` with the parameters of a fit saved as JSON (``fit --json``) of ``model``."""
+                         first_data_row: int | None = None, rename=None, unanswered_factors=None,
+                         announce: Callable[[str], None] | None = None) -> ScoreResult:
+    """Scores of the rows of ``data`` with the parameters of a fit saved as JSON (``fit --json``) of ``model``
+    (``announce``: as :func:`scores` has it)."""
     from cfa_tool.assessment.admissibility import refuse_inadmissible_saved_fit
     from cfa_tool.data.answer_words import with_saved_coding
     from cfa_tool.pipeline import inputs as api
@@ -1448,7 +1463,7 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
     unanswered = unanswered_option(unanswered_factors, chosen)
     models, labels = models_of_saved_fit(spec, saved)
     return _score_other_data(saved, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
-                             keep, names_row, first_data_row, rule, rename, unanswered)
+                             keep, names_row, first_data_row, rule, rename, unanswered, announce)
 
 
 def _spec_of(result: FitResult):

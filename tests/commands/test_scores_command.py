@@ -196,7 +196,7 @@ def test_quality_in_the_json_and_the_caution_below_80(tmp_path, model_file, caps
     preserving = next(m for m in quality["methods"] if m["method"] == "correlation-preserving")
     np.testing.assert_allclose(preserving["score_correlations"], quality["factor_correlations"], atol=1e-8)
     assert [s["factor"] for s in quality["sums"]] == FACTORS
-    assert "decisions about individuals" in text
+    assert "used for decisions about people" in text  # the high-stakes caution (reporting.tables.HIGH_STAKES_NOTE)
 
 
 def test_ordinal_items_get_posterior_means_and_standard_deviations(tmp_path, capsys):
@@ -214,6 +214,8 @@ def test_ordinal_items_get_posterior_means_and_standard_deviations(tmp_path, cap
     code, text, err = _run(["scores", model, "--data", data, "--output", out, "--ordinal", "all"], capsys)
     assert code == 0, err
     written = pd.read_csv(out)
+    # the flagging caution's band around a cut points at the file's own standard errors (written without asking)
+    assert "the cut (its posterior standard deviation, in the file's _posterior_sd columns)" in " ".join(text.split())
     assert list(written.columns) == ["f_posterior_mean", "f_posterior_sd", "f_items_answered",
                                      "same_answer_to_every_item", "why_not_scored"]
     s = written["f_posterior_mean"]
@@ -239,7 +241,11 @@ def test_python_entry_point_with_groups(hs_data):
     assert result.table.iloc[:, -2:].isna().all().all()  # nothing to say: no 'reversed' statement, every row scored
     assert [q.group for q in result.quality] == ["Grant-White", "Pasteur"]  # one quality record per group
     assert result.to_dict()["methods"] == ["bartlett"] and result.to_dict()["fit"]["group_column"] == "school"
-    assert "Quality of the scores (group Pasteur)" in result.summary()
+    # groups named by the one rule (language.names.written_group): 'Grant-White' needs quotes, so every group has them
+    from cfa_tool.language.names import written_group
+    assert written_group("Pasteur", ("Grant-White", "Pasteur")) == '"Pasteur"'
+    assert 'Quality of the scores (group "Pasteur")' in result.summary()
+    assert 'Quality of the scores (group "Grant-White")' in result.summary()
     assert "<table" in result._repr_html_()
     # a configural fit (free intercepts, factor means 0) reproduces each group's item means, so each group's
     # linear scores alpha + W'(x - mu) average to alpha = 0 in that group: each row used its own group's parameters
@@ -487,3 +493,63 @@ def test_unanswered_factors_leave_empty_on_the_command_line(tmp_path, model_file
     code, _, err = _run(["scores", model_file, "--data", path, "--output", tmp_path / "s2.csv", "--method", "item-sum",
                          "--unanswered-factors", "predict"], capsys)
     assert code == 2 and "--unanswered-factors says what to do" in err and "Traceback" not in err
+
+
+def test_the_high_stakes_caution_says_what_flagging_people_needs(hs_data):
+    """New user s15 (a school psychologist flagging pupils for a follow-up talk): the scores' report names, where the
+    high-stakes caution is and in every view, what such a use needs: a cut score validated for the purpose
+    (sensitivity and specificity against an outside criterion), the uncertainty of a score near the cut (a band of
+    1.96 standard errors: the normal distribution's 97.5% point, scipy.stats.norm.ppf(.975) = 1.95996...; the 95% band
+    is common practice) and invariance tested before groups are compared; the Standards for Educational and
+    Psychological Testing (AERA, APA & NCME 2014) as the general source."""
+    from scipy.stats import norm
+
+    import cfa_tool
+    from cfa_tool.reporting.text_formats import report_markdown
+    from cfa_tool.reporting.score_report import flagging_caution, scores_report
+    from cfa_tool.reporting.tables import HIGH_STAKES_NOTE
+
+    assert round(float(norm.ppf(0.975)), 2) == 1.96
+    result = cfa_tool.scores(THREE_FACTORS, hs_data, methods="regression", id_column="id")
+    report = scores_report(result)
+    caution = flagging_caution(result)
+    # one place: beside the high-stakes caution, last in every view
+    assert report.cautions[-2:] == (HIGH_STAKES_NOTE, caution)
+    for words in ("cut score set and validated", "sensitivity and specificity against an outside criterion",
+                  "1.96 times the row's standard error", "written with standard_errors=True", "common practice",
+                  "measurement invariance", "AERA, APA & NCME 2014"):
+        assert words in caution
+    flat = " ".join(caution.split())
+    for view in (result.summary(), result._repr_html_(), report_markdown(report)):
+        assert "sensitivity and specificity" in " ".join(view.split())
+    assert " ".join(result.summary().split()).count(flat[:60]) == 1
+
+
+def test_a_long_scoring_says_so_on_a_terminal_and_nowhere_else(tmp_path, capsys, monkeypatch):
+    """New user s15: 'scores --ordinal all' took 43 s with no word.  Before a scoring of posterior means expected to
+    take LONG_SCORING seconds or more, one line on standard error when it is a terminal, never in the report or the
+    files; the estimate counts rows x quadrature points x items (the points as the rule built has them)."""
+    import sys
+
+    from cfa_tool.scoring import ordinal
+    from cfa_tool.scoring.quadrature import default_rule, default_rule_size
+
+    for dimension in (1, 2, 3, 4):
+        assert default_rule_size(dimension) == len(default_rule(dimension).points)
+    rng = np.random.default_rng(23)
+    n = 300
+    eta = rng.normal(size=n)
+    latent = np.outer(eta, [0.8, 0.7, 0.6, 0.75]) + rng.normal(size=(n, 4)) * 0.6
+    frame = pd.DataFrame(np.searchsorted([-1.0, 0.0, 1.0], latent) + 1, columns=["q1", "q2", "q3", "q4"])
+    frame.to_csv(tmp_path / "ordinal.csv", index=False)
+    (tmp_path / "one.cfa").write_text("factor f: q1..q4\n")
+    line = "Scoring 300 rows by posterior means over 1 factor (about 0 s)..."
+    monkeypatch.setattr(ordinal, "LONG_SCORING", 0.0)  # this small scoring counts as long
+    argv = ["scores", tmp_path / "one.cfa", "--data", tmp_path / "ordinal.csv", "--ordinal", "all"]
+    code, text, err = _run(argv + ["--output", tmp_path / "a.csv", "--json", tmp_path / "a.json"], capsys)
+    assert code == 0 and line not in err and "Scoring 300" not in text  # standard error is no terminal: silence
+    monkeypatch.setattr(sys.stderr, "isatty", lambda: True, raising=False)
+    code, text, err = _run(argv + ["--output", tmp_path / "b.csv", "--json", tmp_path / "b.json"], capsys)
+    assert code == 0 and err.count(line) == 1
+    assert "Scoring 300" not in text and "Scoring 300" not in (tmp_path / "b.json").read_text()
+    assert (tmp_path / "a.csv").read_bytes() == (tmp_path / "b.csv").read_bytes()
