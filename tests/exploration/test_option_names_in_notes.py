@@ -35,7 +35,9 @@ def test_the_note_on_the_items_chosen_by_default_names_the_flag_on_the_command_l
     written = json.loads(js.read_text())
     note = _item_note(written["notes"])
     assert "which --items can change" in note and "items=..." not in note
-    assert any("(--split, a seed)" in n for n in written["report"]["notes"])
+    from cfa_tool.note_parts import read, said
+
+    assert any("(--split, a seed)" in said(read(n)) for n in written["report"]["notes"])  # saved with its parts
 
 
 @pytest.fixture()

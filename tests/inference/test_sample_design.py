@@ -614,7 +614,7 @@ def test_a_frequency_weighted_fit_reports_the_repeated_rows_normality(hs_data):
     plain = cfa_tool.fit(THREE_FACTORS, hs_data.loc[hs_data.index.repeat(counts)].reset_index(drop=True))
     a, b = weighted.groups[0].normality, plain.groups[0].normality
     assert (a.skewness_chi_square, a.kurtosis_z) == pytest.approx((b.skewness_chi_square, b.kurtosis_z), rel=1e-9)
-    assert normality_lines(weighted)[0].endswith("count each row as often as its frequency weight, as the fit does.")
+    assert str(normality_lines(weighted)[0]).endswith("count each row as often as its frequency weight, as the fit does.")
 
 
 def test_bootstrap_with_few_clusters_says_its_intervals_are_rough(hs_data):
