@@ -269,7 +269,7 @@ def _refuse_label_of_other_code(f: RowFilter, column: pd.Series, labels: dict, s
     held = int((column == value).sum())
     own = labels.get(value)
     as_code = f"the code {shown} ({rows(held) if held else 'no row holds it'})"
-    if isinstance(own, str) and number(own.strip()) is None:
+    if isinstance(own, str) and own.strip():  # its label in quotes compares labels, a number-like one too (recheck s15)
         write_code = f"to compare with the code {shown}, write its label: '{name} {f.operator} \"{printable(own)}\"'"
     elif held:
         write_code = f"the code {shown} has no label of its own to compare with: give it one in a copy of the file"

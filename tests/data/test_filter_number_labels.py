@@ -88,3 +88,14 @@ def test_the_command_line_refuses_it_in_one_line_and_writes_nothing(tmp_path, ca
     err = capsys.readouterr().err
     assert code == 2 and not out.exists() and len(err.strip().splitlines()) == 1
     assert "to compare with the label, write its code: 'grade != 1'" in err
+
+
+def test_a_code_whose_own_label_is_a_number_is_written_by_that_label():
+    """Re-check s15 (R2): codes 1-5 labelled '2'-'6': 'grade != 3' was refused with 'the code 3 has no label of its own
+    to compare with', while its label '4' in quotes keeps the rows wanted."""
+    labels = {1.0: "2", 2.0: "3", 3.0: "4", 4.0: "5", 5.0: "6"}
+    message = _refusal("grade != 3", labels)
+    assert "to compare with the code 3, write its label: 'grade != \"4\"'" in message
+    assert "has no label of its own" not in message
+    kept, _, _ = apply_filters(_frame(), [parse_filter('grade != "4"')], "g.sav", {"grade": labels})
+    assert list(kept["grade"]) == [1.0, 2.0, 4.0, 5.0, 1.0, 2.0]
