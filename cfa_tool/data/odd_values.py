@@ -242,6 +242,9 @@ STATISTIC_LABELS = {
     **dict.fromkeys(("variance", "var"), "the variances"),
 }
 MAX_BLOCK_ROWS = 10  # rows of a summary block under the data
+#: the statistics whose rows hold whole answers within the scale as a respondent's row does (a labelled row of them is
+#: taken by its label); a row labelled with another ('N', 'SD') whose values are such answers is a respondent's
+ANSWER_LIKE = ("the lowest answers", "the highest answers", "the medians")
 
 
 def _summary_block(frame: pd.DataFrame, columns, row_numbers, X) -> tuple[tuple[OddValues, ...], int]:
@@ -278,8 +281,8 @@ def _summary_block(frame: pd.DataFrame, columns, row_numbers, X) -> tuple[tuple[
         for r in range(s, n):
             what = labels.get(r)
             matched = _statistic_of(X, r, s, stats)
-            if matched is None and what is None:
-                break
+            if matched is None and (what is None or what[2] not in ANSWER_LIKE and stats.like_answers(r)):
+                break  # a row labelled 'N' or 'SD' whose values are answers: a respondent's id (re-check s15)
             words, summed = matched or (what[2], False)
             held.append((r, words, summed, matched is not None, what[:2] if what else None))
         else:
@@ -326,6 +329,7 @@ class _ColumnTotals:
         #: the highest answer of each column above row position ``first`` (where a block can start): a row of whole
         #: numbers none of which lies above it holds no counts of answers or sums (:func:`_statistic_of`)
         self.top = np.max(X[:first], axis=0, initial=-np.inf, where=self.finite[:first])
+        self.bottom = np.min(X[:first], axis=0, initial=np.inf, where=self.finite[:first])
         self._above: dict[int, dict[str, np.ndarray]] = {}
 
     @cached_property
@@ -345,6 +349,14 @@ class _ColumnTotals:
         if s not in self._above:
             self._above[s] = self._statistics(s)
         return self._above[s]
+
+    def like_answers(self, r: int) -> bool:
+        """Whether row position ``r`` holds whole numbers within the answers of the rows above (three or more), as a
+        respondent's row does: no summary of them, whatever a label beside it says."""
+        answered = self.finite[r]
+        row = self.X[r, answered]
+        return bool(len(row) >= 3 and np.all(row == np.round(row)) and np.all(row <= self.top[answered])
+                    and np.all(row >= self.bottom[answered]))
 
     @cached_property
     def squares(self) -> np.ndarray:

@@ -74,3 +74,19 @@ def test_no_block_in_ordinary_data(rider_demo):
     normal = pd.DataFrame(rng.normal(size=(400, 6)).round(2), columns=[f"x{k}" for k in range(6)])
     normal.insert(0, "id", [f"P{k}" for k in range(400)])
     assert odd_values(normal, list(normal.columns[1:])) == ()
+
+
+def test_a_respondent_whose_id_reads_n_or_sd_is_no_summary_row():
+    """Re-check s15 (R1): the last rider's id 'N' (or 'SD', 'Mean', 'Total') with ordinary answers 1-5 was called a
+    row of the counts of answers and the user told to delete it; a label whose statistic cannot be whole answers
+    within the scale needs values that are not a respondent's."""
+    import cfa_tool
+    from cfa_tool.resources import resource_dir
+
+    model = (resource_dir("models") / "rider_three_factors.cfa").read_text()
+    for label in ("N", "SD", "Mean", "Total"):
+        data = pd.read_csv(resource_dir("demo") / "rider_survey.csv")
+        data["rider_id"] = data["rider_id"].astype(str)
+        data.loc[len(data) - 1, "rider_id"] = label
+        result = cfa_tool.fit(model, data)
+        assert not result.data.odd_values and result.n_obs == len(data), label
