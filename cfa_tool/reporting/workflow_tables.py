@@ -628,7 +628,8 @@ def invariance_report(result) -> Report:
              f"{result.rule.description.replace('alpha', unit(result.alpha, 2))}.")
     from cfa_tool.workflows.invariance import LEVELS, ORDINAL_LEVELS
 
-    return Report(ResultKind.INVARIANCE, f"Measurement invariance across {result.group_column} ({', '.join(result.groups)})",
+    return Report(ResultKind.INVARIANCE, f"Measurement invariance across {result.group_column} "
+                  f"({', '.join(written_group(g, result.groups) for g in result.groups)})",
                   notice, lines, tuple(tables), tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE),
                   invariance_paragraph(result, ORDINAL_LEVELS if ordinal else LEVELS),
                   warnings=tuple(getattr(result, "notes", ())))

@@ -685,7 +685,8 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str, tuple[
                      f"in each group and take up any difference), so it is not estimated.")
     which = "the partially invariant scalar model" if any(s.partly_equal for s in steps if s.level != "strict") \
         else "the scalar model"
-    return tuple(out), (f"From {which}: each group's factor means against the reference group {reference} (whose means "
+    return tuple(out), (f"From {which}: each group's factor means against the reference group "
+                        f"{written_group(reference, labels)} (whose means "
                         f"are fixed at 0); d: the mean over the pooled latent standard deviation of the group and the reference group; "
                         f"Var. ratio: the group's factor variance over the reference group's."
                         + ("" if steps[0].holds else " The configural model misfits, so read them with caution."

@@ -16,3 +16,7 @@ def test_reference_and_rows_lines_quote_the_labels_alike():
     text = " ".join(str(line) for line in report.lines)
     assert 'Reference group (factor means fixed at zero): "Grant", the first label in sorted order' in text
     assert '("Grant": 145, "Pasteur, east": 156)' in text
+    assert report.title.endswith('across school ("Grant", "Pasteur, east")')  # re-check s15 (R6): the title too
+    [means] = [t for t in report.tables if "reference group" in str(t.note or "")] or [None]
+    if means is not None:  # the latent means' note (when the scalar step holds)
+        assert 'against the reference group "Grant"' in str(means.note)
