@@ -862,7 +862,16 @@ def fixed_values_possible(spec: Spec, table: ParameterTable) -> None:
     for g in range(table.n_groups):
         label = table.groups[g] if table.multigroup else None
         given_values_possible(spec, table, values, g, label, starts=False)
-        impossible_fixed_values(table, spec.source, starts=False, group=g)
+        try:
+            impossible_fixed_values(table, spec.source, starts=False, group=g)
+        except ModelError as failure:  # correlations that cannot hold together: at the first statement fixing one
+            ref = next((r for setting in spec.fixed for r in setting.refs if r.kind == "covariance"
+                        and f"({r.names[0]} with {r.names[-1]})" in failure.message
+                        or r.kind == "covariance" and f"({r.names[-1]} with {r.names[0]})" in failure.message), None)
+            if ref is None or failure.location is not None:
+                raise
+            message = failure.message.removeprefix(f"{spec.source}: ")  # the location names the file
+            raise ModelError(message, ref.location, spec.source_line(ref.location)) from None
 
 
 def as_written(par) -> str:

@@ -23,8 +23,9 @@ def test_impossible_fixed_correlations_are_refused_at_fit():
     text = (THREE + "fix covariance(visual, textual) = 0.95\nfix covariance(visual, speed) = 0.95\n"
             "fix covariance(textual, speed) = -0.5\n")
     assert np.linalg.det(np.array([[1, .95, .95], [.95, 1, -.5], [.95, -.5, 1]])) < 0
-    with pytest.raises(ModelError, match=r"cannot hold together \(their matrix is not positive semi-definite\)"):
+    with pytest.raises(ModelError, match=r"cannot hold together \(their matrix is not positive semi-definite\)") as npd:
         cfa_tool.fit(text, data)
+    assert npd.value.location.line == 5  # the first statement of the set (re-check s15, R8: no line was named)
     with pytest.raises(ModelError, match=r"covariance\(visual, textual\) is fixed at 1.3, beyond") as raised:
         cfa_tool.fit(THREE + "fix covariance(visual, textual) = 1.3\n", data)
     assert raised.value.location.line == 5  # the statement's line
