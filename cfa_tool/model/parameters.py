@@ -862,16 +862,7 @@ def fixed_values_possible(spec: Spec, table: ParameterTable) -> None:
     for g in range(table.n_groups):
         label = table.groups[g] if table.multigroup else None
         given_values_possible(spec, table, values, g, label, starts=False)
-        try:
-            impossible_fixed_values(table, spec.source, starts=False, group=g)
-        except ModelError as failure:  # correlations that cannot hold together: at the first statement fixing one
-            ref = next((r for setting in spec.fixed for r in setting.refs if r.kind == "covariance"
-                        and f"({r.names[0]} with {r.names[-1]})" in failure.message
-                        or r.kind == "covariance" and f"({r.names[-1]} with {r.names[0]})" in failure.message), None)
-            if ref is None or failure.location is not None:
-                raise
-            message = failure.message.removeprefix(f"{spec.source}: ")  # the location names the file
-            raise ModelError(message, ref.location, spec.source_line(ref.location)) from None
+        impossible_fixed_values(table, spec.source, starts=False, group=g, spec=spec)
 
 
 def as_written(par) -> str:
@@ -954,13 +945,15 @@ def given_entries(table: ParameterTable, starts: bool = True) -> np.ndarray:
     return values
 
 
-def impossible_fixed_values(table: ParameterTable, source: str, starts: bool = True, group: int = 0) -> None:
+def impossible_fixed_values(table: ParameterTable, source: str, starts: bool = True, group: int = 0,
+                            spec: Spec | None = None) -> None:
     """An error (the model file is the bad input) when the values the model file gives ('fix' and 'start'
     statements, and the values that set each factor's scale) cannot belong to any population: a variance below
     zero, or covariances whose correlations (with both variances given too) lie beyond +/-1 or cannot hold together
     (their correlation matrix is not positive definite).  A covariance matrix is positive semi-definite, so each
     of its variances is at least 0, each correlation within +/-1, and so is every principal submatrix (Horn &
-    Johnson 2013, Observation 7.1.2)."""
+    Johnson 2013, Observation 7.1.2).  With ``spec``, correlations that cannot hold together are refused at the first
+    statement that fixes one of them (re-check s15: the file alone was named)."""
     given: dict[tuple, tuple[float, str, object]] = {}  # (kind, variables) -> (value, how it was given, parameter)
     for par in table.parameters:
         if par.group != group:
@@ -1012,6 +1005,12 @@ def impossible_fixed_values(table: ParameterTable, source: str, starts: bool = T
             what = "factor correlations" if kind == "factor" else "residual correlations"
             hows = {pairs[frozenset((members[i], members[j]))][1] for i in range(len(members)) for j in range(i)}
             how = "fixed at" if hows == {"fixed at"} else "given as"
-            raise ModelError(f"{source}: the {what} {how} {', '.join(values[:-1])} and {values[-1]} "
-                             f"cannot hold together (their matrix is not positive {'' if starts else 'semi-'}definite), so "
-                             f"no population has them; change the values")
+            said = (f"the {what} {how} {', '.join(values[:-1])} and {values[-1]} cannot hold together (their "
+                    f"matrix is not positive {'' if starts else 'semi-'}definite), so no population has them; change "
+                    f"the values")
+            statements = (tuple(spec.starts) if starts else ()) + tuple(spec.fixed) if spec is not None else ()
+            ref = next((r for setting in statements for r in setting.refs if r.kind == "covariance"
+                        and frozenset(r.names) in pairs and set(r.names) <= set(members)), None)
+            if ref is None:
+                raise ModelError(f"{source}: {said}")
+            raise ModelError(said, ref.location, spec.source_line(ref.location))
