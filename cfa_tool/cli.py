@@ -161,13 +161,10 @@ def _main(argv: list[str] | None) -> int:
 
 def np_quiet():
     """numpy's floating-point warnings off for the run (numpy is imported only when needed)."""
-    if "numpy" not in sys.modules:
-        try:
-            import numpy
-        except ImportError:  # pragma: no cover - a declared dependency
-            return contextlib.nullcontext()
-    import numpy
-
+    try:
+        import numpy
+    except ImportError:  # pragma: no cover - a declared dependency
+        return contextlib.nullcontext()
     return numpy.errstate(all="ignore")
 
 

@@ -34,7 +34,7 @@ from typing import Callable
 import numpy as np
 
 from cfa_tool.suggest import close_names
-from cfa_tool.errors import ModelError, OptionError, printable
+from cfa_tool.errors import ModelError, printable
 from cfa_tool.options import Option
 from cfa_tool.language.checks import all_refs, exogenous_factors
 from cfa_tool.language.names import reference_text, written_name

@@ -248,7 +248,7 @@ def ordinal_score_inputs(estimation, groups: list) -> tuple[OrdinalScoringModel,
 
     ``groups``: the ``(label, OrdinalMoments)`` list it was estimated from (for the categories).
     """
-    table, model, theta = estimation.table, estimation.model, estimation.theta
+    model, theta = estimation.model, estimation.theta
     return tuple(group_ordinal_model(model, theta, g, label, moments.categories) for g, (label, moments) in enumerate(groups))
 
 

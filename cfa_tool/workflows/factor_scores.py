@@ -1502,7 +1502,7 @@ def _outside_fitted_ranges(data, items, rows: np.ndarray, source: str) -> tuple[
     return (f"{source} holds answers outside the range of the rows the earlier fit analysed: {listed}. Scores of such "
             f"answers extrapolate the fit, and if the files code the answers differently (0 to 4 against 1 to 5, "
             f"say) every score is shifted.", "check that both files code the answers alike, and recode one as the "
-            f"other before scoring.")
+            "other before scoring.")
 
 
 def _unknown_groups(group_of_row: np.ndarray, labels, group: str, source: str) -> str | None:
