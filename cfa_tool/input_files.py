@@ -11,7 +11,10 @@ from __future__ import annotations
 
 import errno
 import os
+import re
 import stat
+from collections.abc import Sequence
+from dataclasses import dataclass
 from pathlib import Path
 
 from cfa_tool.errors import UserInputError, printable
@@ -161,6 +164,46 @@ def line_count(text: str) -> int:
     LF, CR LF or CR; a last line without its end counts), without copying or splitting the text."""
     ends = text.count("\n") + text.count("\r") - text.count("\r\n")
     return ends + (1 if text and not text.endswith(("\n", "\r")) else 0)
+
+
+#: characters that word processors, PDF and web pages leave in pasted text and that editors and Python's
+#: ``str.splitlines`` show or take as a line break, while the program's text files end their lines at LF (CR LF, CR)
+#: only; a form feed is plain space between words, but ends the line of a comment in an editor that breaks pages
+_HIDDEN_LINE_BREAKS = re.compile("[\v\x1c-\x1e\x85\u2028\u2029]")
+_COMMENT_FORM_FEED = re.compile("#[^\f]*(\f)")
+_BREAK_NAMES = {"\v": "a vertical tab", "\f": "a form feed", "\x1c": "a file separator (U+001C)",
+                "\x1d": "a group separator (U+001D)", "\x1e": "a record separator (U+001E)",
+                "\x85": "a next-line character (U+0085)", "\u2028": "a line separator (U+2028)",
+                "\u2029": "a paragraph separator (U+2029)"}
+
+
+@dataclass(frozen=True)
+class HiddenLineBreak:
+    """A character that looks like a line break but is not one, at ``line`` and ``column`` (1-based)."""
+
+    line: int
+    column: int
+    char: str
+    in_comment: bool
+
+    def message(self) -> str:
+        """What is wrong and what to do, in one sentence (the caller adds the place)."""
+        return (f"{_BREAK_NAMES[self.char]} looks like a line break but is not one: whatever follows it on this line "
+                f"would be read as part of the same {'comment' if self.in_comment else 'line'}; replace it with a "
+                f"plain line break (Enter)")
+
+
+def hidden_line_break(lines: Sequence[str]) -> HiddenLineBreak | None:
+    """The first character of ``lines`` (split at LF, :func:`text_lines`) that editors show as a line break but the
+    file's reader does not (U+2028 LINE SEPARATOR and the others of :data:`_HIDDEN_LINE_BREAKS`; a form feed inside a
+    '#' comment), or None.  Inside a comment such a character hides the statement or row after it in the comment:
+    the file would be read without it, with no word."""
+    for number, line in enumerate(lines, 1):
+        found = _HIDDEN_LINE_BREAKS.search(line) or _COMMENT_FORM_FEED.search(line)
+        if found is not None:
+            start = found.start(found.lastindex or 0)
+            return HiddenLineBreak(number, start + 1, line[start], "#" in line[:start])
+    return None
 
 
 def text_lines(text: str) -> list[str]:

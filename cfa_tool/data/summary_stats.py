@@ -33,7 +33,7 @@ import pandas as pd
 from cfa_tool.data.moments import LARGEST_VALUE, SMALLEST_SPREAD, SampleMoments, _check_moments
 from cfa_tool import options as check
 from cfa_tool.errors import DataError, printable
-from cfa_tool.input_files import DATA_FRAME, input_text, normalise_line_ends, text_lines, utf16_text
+from cfa_tool.input_files import DATA_FRAME, hidden_line_break, input_text, normalise_line_ends, text_lines, utf16_text
 from cfa_tool.numbers import number, whole_number
 from cfa_tool.options import MAX_OBSERVATIONS
 
@@ -121,6 +121,9 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
     """Parse a summary-statistics file into moments (divisor N) and notes for the report."""
     path = Path(path)
     lines = text_lines(normalise_line_ends(_text(path)))
+    hidden = hidden_line_break(lines)
+    if hidden is not None:
+        raise DataError(f"{path}:{hidden.line}:{hidden.column}: {hidden.message()}")
     content = [(k, line) for k, line in enumerate(lines, start=1) if line.strip() and not line.lstrip().startswith("#")]
     if not content:
         raise DataError(f"{path}: the file is empty; {NEW_FORM}")

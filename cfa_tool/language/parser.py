@@ -20,7 +20,7 @@ from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput
 
 from cfa_tool.suggest import close_names, dotted_span
 from cfa_tool.errors import Location, ModelError, character_names, printable
-from cfa_tool.input_files import input_bytes, normalise_line_ends, text_lines, utf16_text
+from cfa_tool.input_files import hidden_line_break, input_bytes, normalise_line_ends, text_lines, utf16_text
 from cfa_tool.language.spec import (
     GROUP_EQUALITY_WORDS,
     INVARIANCE_LEVELS,
@@ -125,6 +125,7 @@ def _tree(text: str, source: str, what: str = "the model text") -> tuple[Tree, _
         raise ModelError(f"{what} contains a NUL character; is this a binary file?", Location(source, 1, 1))
     text = normalise_line_ends(text)
     lines = tuple(text_lines(text))
+    _refuse_hidden_line_breaks(lines, source)
     if not text.endswith("\n"):
         text += "\n"
     try:
@@ -169,6 +170,14 @@ def _word_at(lines: tuple[str, ...], line: int, column: int) -> str:
     while end < len(text) and (text[end].isalnum() or text[end] == "_"):
         end += 1
     return text[start:end][:80]
+
+
+def _refuse_hidden_line_breaks(lines: tuple[str, ...], source: str) -> None:
+    """A character that looks like a line break but is not one refused at its line and column
+    (:func:`cfa_tool.input_files.hidden_line_break`)."""
+    found = hidden_line_break(lines)
+    if found is not None:
+        raise ModelError(found.message(), Location(source, found.line, found.column))
 
 
 def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> ModelError:
