@@ -243,7 +243,7 @@ def resampled_rows(design, rng: np.random.Generator) -> np.ndarray:
 
 
 def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.ndarray,
-                     design=None) -> tuple[np.ndarray, np.ndarray]:
+                     design=None, full_information: bool | None = None) -> tuple[np.ndarray, np.ndarray]:
     """Each row's empirical influence on every table entry, unstandardized and fully standardized
     ((N, E) arrays).
 
@@ -257,7 +257,8 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     weight (rescaled to mean one) and the rows of a cluster are summed: one value per cluster.  A record
     of frequency weight k without clusters is k identical rows: its value is each row's influence, which
     :func:`acceleration` counts k times.
-    Rows with gaps (``rows`` holding NaN): the full-information estimate's influence
+    Rows with gaps (``rows`` holding NaN), or a full-information fit of complete rows (``full_information``; None:
+    whether ``rows`` have gaps), whose item means are parameters too: the full-information estimate's influence
     (:func:`full_information_influence`), under a design weighted and summed within clusters as above.
     Entries are affine in theta; standardized values follow by the chain rule, their
     derivatives taken by central differences of the closed-form standardization."""
@@ -265,7 +266,7 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     from cfa_tool.pipeline.continuous import estimate
 
     w = design.weights if design is not None else None
-    gaps = bool(np.isnan(rows).any())
+    gaps = bool(np.isnan(rows).any()) if full_information is None else full_information
     options = FitOptions(diagnostics=False, missing=MissingData.FULL_INFORMATION if gaps else None)
     kind = design.kind if design is not None else WeightKind.SAMPLING
     est = estimate(spec, [(None, moments_from_rows(rows, names, weights=w, full_information=gaps, weight_kind=kind))],
@@ -462,7 +463,7 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     standardized = np.array([d[2] for d in ok])
     accel_values = accel_std = None
     if bca:
-        influence, influence_std = influence_values(spec, moments_rows, names, start, design)
+        influence, influence_std = influence_values(spec, moments_rows, names, start, design, gaps)
         counts, strata = _row_counts(design), unit_strata(design)
         accel_values, accel_std = acceleration(influence, counts, strata), acceleration(influence_std, counts, strata)
     intervals = _intervals(result, values, standardized, accel_values, accel_std)
