@@ -492,12 +492,20 @@ def _lowest_coverage(result) -> float | None:
     return min(sum(counts) for counts in zip(*answered)) / result.n_obs
 
 
+#: full-information ML of rows without a missing answer (asked for, or chosen by a robust test of it): the complete-data
+#: likelihood with the item means estimated, so no assumption about missing answers enters (Enders 2010, ch. 4)
+_NOTHING_MISSING = ("no answer on the model's variables was missing, so full-information estimation was the ordinary "
+                    "maximum likelihood fit of the complete data, with the item means estimated")
+
+
 def _sample_phrase(result) -> str:
     data = result.data
     text = f"N = {result.n_obs}" + _filtered(data)
     full_information = result.method.full_information
     low = _lowest_coverage(result) if full_information else None
-    if low is not None:
+    if low is not None and low >= 1.0:  # asked for on complete rows: nothing was missing, nothing was assumed
+        text += f"; {_NOTHING_MISSING}"
+    elif low is not None:
         floor = math.floor(1000 * low) / 10  # never rounded up: 99.96% is not 'every row'
         text += (f"; every answer of every row was used, including rows with missing answers{_FULL_INFORMATION_ASSUMPTION}"
                  f"; each item was answered in at least {floor:g}% of the rows")
@@ -1107,7 +1115,9 @@ def _fit_figures(result) -> str:
 def _comparison_rows(comparison) -> str:
     """The rows every model of a comparison was fitted to, and how rows with gaps were handled."""
     n, dropped = comparison.n_obs, comparison.rows_dropped
-    if comparison.missing is MissingData.FULL_INFORMATION:
+    if comparison.missing is MissingData.FULL_INFORMATION and (_lowest_coverage(comparison.results[0]) or 0) >= 1.0:
+        how = _NOTHING_MISSING
+    elif comparison.missing is MissingData.FULL_INFORMATION:
         how = "every answer of every row was used, including rows with missing answers" + _FULL_INFORMATION_ASSUMPTION
     elif comparison.missing is MissingData.PAIRWISE:
         how = ("every answer was used: each item's thresholds from the rows that answered it and each correlation "
