@@ -341,12 +341,49 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
         theta = _defaults_beside_given(table, model, theta, np.isnan(given), target,
                                        standardized_entries(table, model, est.theta))
     beyond_bounds(spec, table, theta, given)
+    _defaults_held_apart(spec, table, model, theta, given)
     given_values_possible(spec, table, model.entry_values(theta))  # a covariance beside the variances it met
     sigma = model.implied(theta)
     if log_det_pd(sigma) is None:  # not positive definite, or not finite
         raise OptionError("the population values imply a covariance matrix that is not positive definite or not finite "
                           "(check the model's fixed and start values for impossible ones)")
     return Population(spec, table, theta, sigma, tuple(defaulted))
+
+
+def _defaults_held_apart(spec: Spec, table: ParameterTable, model: StructuredModel, theta: np.ndarray,
+                         given: np.ndarray) -> None:
+    """Refuse a default population whose loadings an 'equal' statement keeps from their standardized defaults: a
+    reverse-keyed item's loading (default -.7) held equal to a plainly keyed one's (+.7) can only be met halfway, at
+    0, and a simulation from it would draw items that do not measure their factor while the population table calls
+    the value the default.  A defaulted loading whose standardized population value has the other sign than its
+    default, or less than half its size, is named with the 'equal' statement that holds it."""
+    codes, rows, cols = table.entry_arrays()
+    per_item = np.bincount(rows[codes == 0], minlength=table.p)
+    reversed_items = frozenset(spec.reverse_keyed)
+    std = standardized_entries(table, model, theta)
+    for e, par in enumerate(table.parameters):
+        if codes[e] != 0 or not par.free or len(par.terms) != 1 or not np.isnan(given[par.terms[0][0]]):
+            continue
+        item = table.observed[rows[e]]
+        default = (-1.0 if item in reversed_items else 1.0) * STANDARDIZED_LOADING / np.sqrt(per_item[rows[e]])
+        if std[e] * default > 0 and abs(std[e]) >= 0.5 * abs(default):
+            continue
+        key = ("loading", tuple(par.variables))
+        held = next((refs for refs in spec.equal if any(ref.key() == key for ref in refs)), None)
+        if held is None:
+            continue
+        ref = next(ref for ref in held if ref.key() == key)
+        raise ModelError(
+            f"the default population values cannot hold here: this 'equal' statement holds {ref} (default "
+            f"{_decimal(default)}{', a reverse-keyed item' if item in reversed_items else ''}) equal to "
+            f"{', '.join(str(other) for other in held if other is not ref)}, whose default differs, so the simulated "
+            f"loading would be {_decimal(std[e])} (standardized), not a default; give their common population value "
+            f"with a 'start' statement", held[0].location, spec.source_line(held[0].location))
+
+
+def _decimal(value: float) -> str:
+    """-.70, .35: a standardized value as the population table writes it."""
+    return f"{value:.2f}".replace("0.", ".", 1)
 
 
 def _bound_words(lower: float | None, upper: float | None) -> str:
