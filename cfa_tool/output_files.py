@@ -43,6 +43,7 @@ STDOUT = "-"
 RECORD = ".cfa-tool-files.json"
 OLD_RECORD = ".cfa-tool-tables.json"  # the record of earlier versions (table folders only), read and replaced
 TABLE_SUFFIXES = (".csv", ".tex")  # what a table folder receives
+TABLE_CONTENTS = "contents.txt"  # the list of a table folder's tables, written beside them
 _RECORD_MARK = "cfa-tool table folder"  # the record's mark (its first versions recorded table folders only)
 
 #: Filesystems whose files are the kernel's, not the user's.
@@ -235,7 +236,7 @@ def check_outputs(outputs: list[tuple[str, str | None]], inputs: list[str | Path
             if str(real) == inside:
                 raise OptionError(f"{option} and {other} name the same path ('{shown(folder)}'): one would make it a "
                                   f"folder of tables, the other a file; give each its own name")
-            if str(real.parent) == inside and (real.suffix.lower() in TABLE_SUFFIXES or real.name == RECORD):
+            if str(real.parent) == inside and (real.suffix.lower() in TABLE_SUFFIXES or real.name in (RECORD, TABLE_CONTENTS)):
                 raise OptionError(f"{other} writes '{shown(target.given)}' into the {option} folder, where the tables "
                                   f"go; give it another name or place")
     return targets

@@ -131,7 +131,7 @@ def write_tables(args: argparse.Namespace, files: dict[str, str], inputs: list[s
         return []
     from cfa_tool.output_files import write_table_folder
 
-    from cfa_tool.reporting.text_formats import TABLE_CONTENTS
+    from cfa_tool.output_files import TABLE_CONTENTS
 
     earlier = write_table_folder("--tables", args.tables, files, [i for i in inputs if i])
     said = [f"Tables written to {args.tables}/ as CSV and LaTeX ({TABLE_CONTENTS} lists them)"]

@@ -10,6 +10,7 @@ import numpy as np
 
 from cfa_tool.note_parts import RUNNING, WORDS, View, said, titled
 from cfa_tool.numerics.plain import csv_cell
+from cfa_tool.output_files import TABLE_CONTENTS
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import latex_text, markdown_text
 from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS
@@ -149,4 +150,3 @@ def report_table_files(report) -> dict[str, str]:
 
 
 #: the file of a --tables folder that lists its tables with their titles and the report they belong to
-TABLE_CONTENTS = "contents.txt"
