@@ -11,6 +11,7 @@ import atexit
 import contextlib
 import gc
 import os
+import signal
 import sys
 import warnings
 
@@ -101,6 +102,16 @@ def main(argv: list[str] | None = None) -> int:
     return _main(argv)
 
 
+class Terminated(KeyboardInterrupt):
+    """The process was sent a termination signal (SIGTERM: what 'timeout', a batch scheduler's time limit and 'kill'
+    send): stopped as Ctrl-C stops it, through every clean-up a KeyboardInterrupt runs (worker processes ended,
+    unfinished outputs removed), exit 143 (128 + 15, the shell's code for it)."""
+
+
+def _terminated(signum, frame) -> None:
+    raise Terminated()
+
+
 def program() -> int:
     """The program (``cfa-tool``, ``python -m cfa_tool``): :func:`main` on its own arguments, then the end of the
     process without the interpreter's teardown.  Freeing every module and object one by one (numpy, pandas, scipy,
@@ -109,6 +120,7 @@ def program() -> int:
     in a cycle is flushed and closed; 55 million of the 174), the functions registered with :mod:`atexit` run,
     standard output and error flushed.  With another thread still running, or output that cannot be flushed, the
     process ends as usual (returns the exit code)."""
+    signal.signal(signal.SIGTERM, _terminated)  # a stop that cleans up, as Ctrl-C's does
     code = main()
     threading = sys.modules.get("threading")
     if threading is not None and threading.active_count() > 1:
@@ -142,9 +154,10 @@ def _main(argv: list[str] | None) -> int:
     except CfaError as exc:
         _report_error(exc)
         return exc.exit_code
-    except KeyboardInterrupt:
-        print(f"{PROG}: interrupted", file=sys.stderr)
-        return 130
+    except KeyboardInterrupt as exc:
+        print(f"{PROG}: {'stopped by a termination signal' if isinstance(exc, Terminated) else 'interrupted'}",
+              file=sys.stderr)
+        return 143 if isinstance(exc, Terminated) else 130
     except BrokenPipeError:  # the reader of standard output stopped early (e.g. '| head'): nothing more to say
         try:
             os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())

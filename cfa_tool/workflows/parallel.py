@@ -13,6 +13,7 @@ from __future__ import annotations
 import contextlib
 import gc
 import os
+import signal
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 from functools import partial
 from typing import Callable, Sequence
@@ -75,7 +76,7 @@ def _run_locally(fn: Callable, batches: list[list], workers: int, progress) -> l
     # BLAS set before the workers are forked: they start with one thread and set nothing
     with _objects_frozen(), one_blas_thread():
         # no more workers than batches they could take (a pool forks all its processes at the first batch)
-        pool = ProcessPoolExecutor(max_workers=min(workers - 1, len(batches) - 1), initializer=one_blas_thread_from_now)
+        pool = ProcessPoolExecutor(max_workers=min(workers - 1, len(batches) - 1), initializer=_worker_start)
         try:
             pending = {pool.submit(fn, batch): k for k, batch in enumerate(batches[:-1])}
             reported = set()
@@ -106,9 +107,28 @@ def _run_locally(fn: Callable, batches: list[list], workers: int, progress) -> l
             finished = True
         finally:
             # with every result in hand, the workers exit while this process goes on (the pool's own thread
-            # joins them); after an error, the batches not started are dropped and the running ones awaited
+            # joins them); after an error or a stop (Ctrl-C, or a termination signal sent to this process alone,
+            # as 'timeout', a batch scheduler's time limit and 'kill' send it), the batches not started are
+            # dropped and the running ones stopped, so that no worker is left behind running or asleep
+            if not finished:
+                _stop_workers(pool)
             pool.shutdown(wait=not finished, cancel_futures=True)
     return [r for batch in results for r in batch]
+
+
+def _worker_start() -> None:
+    """A worker process's start: one BLAS thread, and a termination signal ends it at once (the default), whatever
+    the command line set for its own process (cli.program turns it into a stop that cleans up)."""
+    signal.signal(signal.SIGTERM, signal.SIG_DFL)
+    one_blas_thread_from_now()
+
+
+def _stop_workers(pool: ProcessPoolExecutor) -> None:
+    """End the pool's worker processes now (a stopped run waits for none of their batches).  The standard library
+    gives no public way before Python 3.14 (Executor.terminate_workers); its table of processes is used."""
+    for process in list((getattr(pool, "_processes", None) or {}).values()):
+        with contextlib.suppress(Exception):
+            process.terminate()
 
 
 @contextlib.contextmanager
