@@ -121,18 +121,31 @@ def program() -> int:
     standard output and error flushed.  With another thread still running, or output that cannot be flushed, the
     process ends as usual (returns the exit code)."""
     signal.signal(signal.SIGTERM, _terminated)  # a stop that cleans up, as Ctrl-C's does
-    code = main()
-    threading = sys.modules.get("threading")
-    if threading is not None and threading.active_count() > 1:
-        return code
-    gc.collect()
-    atexit._run_exitfuncs()  # noqa: SLF001 - the interpreter's own exit step, run here before leaving without it
     try:
-        sys.stdout.flush()
-        sys.stderr.flush()
-    except (OSError, ValueError, AttributeError):  # a closed pipe or stream, or none: the usual exit, as before
+        code = main()
+    except KeyboardInterrupt as exc:  # a stop while the arguments were read, before the run's own handling
+        return _stopped(exc)
+    try:
+        threading = sys.modules.get("threading")
+        if threading is not None and threading.active_count() > 1:
+            return code
+        gc.collect()
+        atexit._run_exitfuncs()  # noqa: SLF001 - the interpreter's own exit step, run here before leaving without it
+        try:
+            sys.stdout.flush()
+            sys.stderr.flush()
+        except (OSError, ValueError, AttributeError):  # a closed pipe or stream, or none: the usual exit, as before
+            return code
+    except KeyboardInterrupt:  # a stop once the run's work is done and said: its own exit code, no traceback
         return code
     os._exit(code)
+
+
+def _stopped(exc: KeyboardInterrupt) -> int:
+    """Ctrl-C or a termination signal said in one line; the shell's exit code for it (130, or 143 for SIGTERM)."""
+    print(f"{PROG}: {'stopped by a termination signal' if isinstance(exc, Terminated) else 'interrupted'}",
+          file=sys.stderr)
+    return 143 if isinstance(exc, Terminated) else 130
 
 
 def _main(argv: list[str] | None) -> int:
@@ -155,9 +168,7 @@ def _main(argv: list[str] | None) -> int:
         _report_error(exc)
         return exc.exit_code
     except KeyboardInterrupt as exc:
-        print(f"{PROG}: {'stopped by a termination signal' if isinstance(exc, Terminated) else 'interrupted'}",
-              file=sys.stderr)
-        return 143 if isinstance(exc, Terminated) else 130
+        return _stopped(exc)
     except BrokenPipeError:  # the reader of standard output stopped early (e.g. '| head'): nothing more to say
         try:
             os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
