@@ -41,7 +41,8 @@ def saved_fit_payload(payload: object, source: str, marked: bool = True) -> dict
     a saved fit gives (scores --from-fit, simulate and power-simulation --population-from), naming ``source``."""
     if (not isinstance(payload, dict) or not isinstance(payload.get("estimates"), list)
             or marked and payload.get("tool") != "cfa-tool"):
-        raise OptionError(f"{source} is not the JSON result of a fit by cfa-tool (fit --json)")
+        raise OptionError(f"{source} is not the JSON result of a fit by cfa-tool (fit --json, or a fit result's "
+                          f"to_dict() saved as JSON)")
     if payload.get("tool") == "cfa-tool":  # a file fit --json wrote (a fit result's to_dict() names no version)
         check_written_version(payload, source)
     return payload

@@ -72,6 +72,9 @@ def report_of(result: object) -> Report:
 
 def saved_report(payload: object, source: str) -> Report:
     """The report a saved JSON result carries; a one-line error naming ``source`` when it is not one."""
+    if isinstance(payload, dict) and "tool" not in payload and isinstance(payload.get("estimates"), list):
+        raise OptionError(f"{source}: a result's to_dict() saved from Python holds no report to render; write the "
+                          f"file with the command's --json option")
     if not isinstance(payload, dict) or payload.get("tool") != "cfa-tool":
         raise OptionError(f"{source}: not a result written by cfa-tool (the file of a command's --json option)")
     check_written_version(payload, source)

@@ -1184,7 +1184,8 @@ def read_saved_fit(path) -> SavedFit:
     from cfa_tool.pipeline.results import DataSummary
 
     source = f"'{printable(str(path))}'"
-    payload = saved_fit_payload(input_json(Path(path), "fit result", OptionError), source)
+    # one rule with simulate's and power-simulation's --population-from: a fit's to_dict() saved from Python serves too
+    payload = saved_fit_payload(input_json(Path(path), "fit result", OptionError), source, marked=False)
     rows = saved_rows(payload["estimates"], source)  # the estimate rows, read here once
     # the estimates themselves judged as a fresh fit is, whatever the file's flag and problems say
     problems = saved_fit_problems(payload, rows, source)

@@ -279,7 +279,28 @@ def test_a_json_file_that_is_not_a_saved_fit_is_refused_in_one_wording(tmp_path,
         code, _, err = _run(argv, capsys)
         assert code == 2
         errors.add(err.strip())
-    assert errors == {f"cfa-tool: '{path}' is not the JSON result of a fit by cfa-tool (fit --json)"}
+    assert errors == {f"cfa-tool: '{path}' is not the JSON result of a fit by cfa-tool (fit --json, or a fit "
+                      f"result's to_dict() saved as JSON)"}
+
+
+def test_a_fit_saved_from_python_is_taken_by_every_reader_of_saved_fits(tmp_path, hs_data, capsys):
+    """A hostile trial (sixteenth round, case 11): json.dump(result.to_dict()) was taken by simulate's
+    --population-from but refused by scores --from-fit.  One rule: the scores from it equal those from the file
+    fit --json wrote (to the byte), and report, which renders a saved report, says that to_dict() holds none."""
+    import cfa_tool
+
+    model = tmp_path / "m.cfa"
+    model.write_text(THREE_FACTORS)
+    saved, marked = tmp_path / "py.json", tmp_path / "cli.json"
+    saved.write_text(json.dumps(cfa_tool.fit(model, hs_data).to_dict()))
+    assert _run(["fit", model, "--data", HS_FILE, "--json", marked], capsys)[0] == 0
+    for source, out in ((saved, "a.csv"), (marked, "b.csv")):
+        code, _, err = _run(["scores", model, "--data", HS_FILE, "--from-fit", source, "--output", tmp_path / out],
+                            capsys)
+        assert code == 0, err
+    assert (tmp_path / "a.csv").read_bytes() == (tmp_path / "b.csv").read_bytes()
+    code, _, err = _run(["report", saved, "--html", tmp_path / "r.html"], capsys)
+    assert code == 2 and "to_dict() saved from Python holds no report" in err
 
 
 def test_scores_refuse_a_model_file_whose_reversed_items_differ_from_the_fit(tmp_path, capsys):
