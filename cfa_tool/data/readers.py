@@ -458,7 +458,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     frame.attrs[SHEET_COLUMNS] = {name: get_column_letter(skipped + k + 1) for k, name in enumerate(header) if name}
     if marked:
         frame.attrs[MARKED] = {header[k]: counted for k, counted in marked.items()}
-    _check_formula_errors(frame, where, items)
+    _check_formula_errors(frame, where, items, _typed_errors(frame, ws))
     _check_repeated_header(frame, where, first + 1)
     _check_header_rows(frame, where, False, items=items, header_row=first + 1, names_option=names_option,
                        listed=listed)
@@ -660,18 +660,38 @@ def _skipped_answers(frame: pd.DataFrame, between: list[tuple[int, list]], items
     return SkippedAnswers(where, tuple(found), first_data_row, option, start)
 
 
-#: the error values a spreadsheet shows in a cell whose formula failed ('#N/A', 'not available', is read as no answer
-#: with MISSING_MARKERS; '#NULL!' is no answer too: statistics packages write it for a missing value in the
-#: spreadsheets they export, data.non_answers.NON_ANSWER_MARKS)
+#: the error values a spreadsheet shows in a cell whose formula failed, refused as text or as a workbook's error
+#: cell ('#N/A', 'not available', is read as no answer with MISSING_MARKERS)
 FORMULA_ERRORS = frozenset(("#DIV/0!", "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#SPILL!", "#CALC!"))
+#: error values refused only in a cell the workbook types as an error (a failed formula: a range intersection that
+#: is empty); as text, in a delimited file or a text cell, '#NULL!' is a statistics package's mark of a
+#: system-missing value in the tables it exports, read as no answer (data.non_answers.NON_ANSWER_MARKS)
+TYPED_ERRORS = frozenset(("#NULL!",))
 
 
-def _check_formula_errors(frame: pd.DataFrame, where: str, items) -> None:
+def _typed_errors(frame: pd.DataFrame, ws) -> frozenset[tuple[int, str]]:
+    """The cells of a sheet's ``frame`` (index: the sheet's rows less one; ``frame.attrs[SHEET_COLUMNS]``: each
+    column's letter) holding one of :data:`TYPED_ERRORS` that the workbook types as an error (openpyxl's data type
+    'e', as a spreadsheet program saves a failed formula's value), as (row label, column); text cells are left out."""
+    letters = frame.attrs.get(SHEET_COLUMNS) or {}
+    found = set()
+    for column in frame.columns:
+        if column not in letters or pd.api.types.is_numeric_dtype(frame[column]):
+            continue
+        for label in frame.index[frame[column].isin(TYPED_ERRORS).to_numpy()]:
+            if ws[f"{letters[column]}{int(label) + 1}"].data_type == "e":
+                found.add((label, column))
+    return frozenset(found)
+
+
+def _check_formula_errors(frame: pd.DataFrame, where: str, items, typed: frozenset = frozenset()) -> None:
     """Cells of the item columns (``items``; None: every column) that hold a spreadsheet's formula error
-    (:data:`FORMULA_ERRORS`: a formula that failed, '#DIV/0!'), in a workbook or a table it saved as text, are
-    refused, naming the first by its row and column (and cell of a sheet): they are no answers of any scale and no
-    word of no answer, but a computation to correct at its source (review s15, hostile case 11: they were offered an
-    'answers' statement)."""
+    (:data:`FORMULA_ERRORS`: a formula that failed, '#DIV/0!'), in a workbook or a table it saved as text, and the
+    cells ``typed`` ((row label, column): a workbook's error cells holding one of :data:`TYPED_ERRORS`,
+    :func:`_typed_errors`), are refused, naming the first by its row and column (and cell of a sheet): they are no
+    answers of any scale and no word of no answer, but a computation to correct at its source (review s15, hostile
+    case 11: they were offered an 'answers' statement; re-check s15, R7: a '#NULL!' error cell was read as no
+    answer)."""
     wanted = None if items is None else {str(x) for x in items}
     found: list[tuple[int, str, str]] = []  # (position, column, value)
     for column in frame.columns:
@@ -679,6 +699,9 @@ def _check_formula_errors(frame: pd.DataFrame, where: str, items) -> None:
                 pd.api.types.is_numeric_dtype(frame[column]):
             continue
         hit = frame[column].isin(FORMULA_ERRORS).to_numpy()
+        labels = [label for label, name in typed if name == column]
+        if labels:
+            hit = hit | frame.index.isin(labels)
         found += [(int(k), str(column), str(frame[column].iloc[k])) for k in np.flatnonzero(hit)]
     if not found:
         return
