@@ -183,7 +183,13 @@ def read_halves(path) -> SavedHalves:
                         f"the CSV file --halves-file wrote)") from None
     except OSError as exc:
         raise DataError(f"{shown}: cannot read the halves file ({printable(exc.strerror or 'unreadable')})") from None
-    lines = list(csv.reader(io.StringIO(text)))
+    reader = csv.reader(io.StringIO(text, newline=""))
+    try:
+        lines = list(reader)
+    except csv.Error:  # a value longer than the csv module's limit: a quote never closed, or not a halves file
+        raise DataError(f"{shown}, line {reader.line_num}: not a halves file (a value of more than "
+                        f"{csv.field_size_limit():,} characters, or a quote (\") never closed); a halves file is the "
+                        f"CSV file --halves-file wrote, and is read as it wrote it") from None
     header = tuple(c.strip() for c in lines[0]) if lines else ()
     if header not in (HALVES_COLUMNS, SHEET_ASKED_COLUMNS):
         earlier = header in (HALVES_COLUMNS[:2], HALVES_COLUMNS[:5])
