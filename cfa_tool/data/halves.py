@@ -13,7 +13,9 @@ checksum) and sheet, and the same rows split (the rows the data file holds after
 halves file lists, no more and no fewer), else a refusal that says which.  Halves drawn from the rows with an
 answer to every model variable (replicate --data with --incomplete-rows listwise) leave out the rows with gaps: read
 back with the model's items, they are those rows when the run leaves rows with gaps out too, and refused, naming the
-handling of rows with gaps, when it keeps them."""
+handling of rows with gaps, when it keeps them: one rule for every workflow that fits the rows it reads (fit, compare,
+invariance, align, bootstrap, cutoffs, scores, replicate: pipeline.inputs.keeps_rows_with_gaps, every handling but
+listwise keeps them), whose notes then say the rows with gaps were left out before the split."""
 
 from __future__ import annotations
 

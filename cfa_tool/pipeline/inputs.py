@@ -186,6 +186,20 @@ def read_inputs(model: str | Path | Spec, data: pd.DataFrame | str | Path, sheet
     return spec, loaded.frame, loaded.source
 
 
+def keeps_rows_with_gaps(missing) -> bool:
+    """Whether a run whose handling of rows with missing answers is ``missing`` (MissingData, its words as given in
+    Python, or None: the default, full-information ML or pairwise present rows) keeps the rows with gaps: every
+    handling but listwise.  The one rule by which every workflow given a half of halves drawn from the complete rows
+    reads it (a run that leaves the rows with gaps out, whose notes say it) or refuses it (data.halves.half_kept);
+    a handling that cannot be read counts as keeping them, and the workflow names it on its own."""
+    if isinstance(missing, str):
+        try:
+            missing = MissingData.parse(missing, "the handling of rows with missing answers")
+        except OptionError:
+            return True
+    return missing is not MissingData.LISTWISE
+
+
 def keep_option(keep) -> list:
     """Row selections: one filter as text (or one half of a halves file, data.halves.RandomHalf), or a list of
     them."""
@@ -514,7 +528,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                                                  items=spec.observed_names + helpers if helpers else None,
                                                  chosen=chosen_columns(group, id_column, design,
                                                                        fit_options.missing_helpers),
-                                                 keeps_gaps=fit_options.missing is not MissingData.LISTWISE)
+                                                 keeps_gaps=keeps_rows_with_gaps(fit_options.missing))
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
     if id_column is not None:
