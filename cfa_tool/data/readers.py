@@ -343,7 +343,8 @@ def _renamed(loaded: LoadedData, renames: tuple[ColumnRename, ...], option: Opti
     its variable and value labels and the column-keyed notes of reading, with a note naming each rename."""
     if not renames:
         return loaded
-    frame = renamed_frame(loaded.frame, renames, loaded.source, option, (SHEET_COLUMNS, MARKED, SPELLINGS))
+    frame = renamed_frame(loaded.frame, renames, loaded.source, option, (SHEET_COLUMNS, MARKED, SPELLINGS,
+                                                                         MEASURE_LEVELS))
     names = {r.old: r.new for r in renames}
     return replace(loaded, frame=frame, renamed=renames,
                    variable_labels={names.get(k, k): v for k, v in loaded.variable_labels.items()},
@@ -858,6 +859,9 @@ def _read_labelled(path: Path) -> LoadedData:
             values[column] = {tagged.get(k, k) if isinstance(k, str) else k: v for k, v in values.get(column, {}).items()}
             ranges[column] = [{"lo": t, "hi": t} for t in tagged.values()]
     frame, declared = declared_missing(frame, ranges, values)
+    measures = read_measure_levels(getattr(meta, "variable_measure", None))
+    if measures:  # kept with the frame, through row filters and copies, for the notes on items and groups
+        frame.attrs[MEASURE_LEVELS] = measures
     return LoadedData(frame, str(path), labels, values, non_answers=declared)
 
 
@@ -913,6 +917,32 @@ def _reads_as_text(head: bytes) -> bool:
     except UnicodeDecodeError:
         text = head.decode("cp1252", errors="replace")
     return bool(text.strip()) and all(c.isprintable() or c in "\r\n\t" for c in text[:-4])
+
+
+class MeasureLevel(Enum):
+    """The measure level an SPSS file gives a variable (pyreadstat's ``variable_measure``; 'unknown' is not kept):
+    a hint of what its values are, not a fact, since SPSS sets one on its own when nobody does (by the number of
+    different values of a numeric variable, as recalled from memory of its data editor)."""
+
+    NOMINAL = "nominal"  # categories without an order
+    ORDINAL = "ordinal"  # ordered categories
+    SCALE = "scale"  # amounts
+
+
+#: the key of DataFrame.attrs that keeps each column's :class:`MeasureLevel` as an SPSS file gives it ({column: level})
+MEASURE_LEVELS = "measure_levels"
+
+
+def measure_levels(frame: pd.DataFrame) -> dict[str, MeasureLevel]:
+    """The measure level of each column of ``frame`` that its SPSS file gives one ({} for another file)."""
+    return frame.attrs.get(MEASURE_LEVELS) or {}
+
+
+def read_measure_levels(measures: dict | None) -> dict[str, MeasureLevel]:
+    """The measure levels of an SPSS file's variables (pyreadstat's ``variable_measure``), those it leaves unknown
+    left out."""
+    known = {level.value: level for level in MeasureLevel}
+    return {str(name): known[str(level)] for name, level in (measures or {}).items() if str(level) in known}
 
 
 def _with_case_filter(loaded: LoadedData) -> LoadedData:

@@ -21,7 +21,7 @@ from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_
 from cfa_tool.data.groups import SmallGroupsError, split_moments
 from cfa_tool.data.kept_rows import (RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
                                      unfinished_rows_note)
-from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
+from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes, nominal_items_note
 from cfa_tool.data.matching import (answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges,
                                     chosen_columns)
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
@@ -280,6 +280,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     chosen = {**{f.column: f"the column of the row filter '{f}'" for f in filters if f.column is not None},
               **(chosen or {})}
     notes += check_columns(spec, columns, loaded.source, loaded.column_hint(), chosen)
+    notes += nominal_items_note(frame, spec.observed_names, loaded.source)  # an SPSS file's measure levels
     frame, coding_notes = code_answer_words(spec, frame, loaded.source,  # 'answers' statements: words as codes
                                             missing_codes=missing_codes_option(missing_codes))
     notes += coding_notes
