@@ -1099,18 +1099,19 @@ def _unreadable_record(where: str, text: str, delimiter: str, start: int, stop: 
     limit is a quote opened in a cell and never closed (the rest of the file read as one value) when the record's
     first line leaves a quote open, else a value far longer than any answer."""
     first = _line_text(text, start)
+    where = f"{where}: " if where else ""
     if "field limit" not in str(error):
-        return f"{where}: line {start}: the file cannot be read as a table ({printable(str(error))})"
+        return f"{where}line {start}: the file cannot be read as a table ({printable(str(error))})"
     limit = csv.field_size_limit()
     column = _open_quote(first, delimiter)
     if column is not None:
         to = f", to line {stop}" if stop > start else ""
-        return (f"{where}: line {start}, column {column}: a quoted value opened there (\"...) runs on for more than "
+        return (f"{where}line {start}, column {column}: a quoted value opened there (\"...) runs on for more than "
                 f"{limit:,} characters{to} without its closing quote, so the rows after it are read as one value; "
                 f"close the quote, or remove it (a quote inside a quoted value is written twice, \"\")")
     fields = first.split(delimiter)
     column = max(range(len(fields)), key=lambda k: len(fields[k])) + 1
-    return (f"{where}: line {start}, column {column} holds a value of more than {limit:,} characters, far longer "
+    return (f"{where}line {start}, column {column} holds a value of more than {limit:,} characters, far longer "
             f"than an answer: if the file separates its fields by another character than "
             f"'{_shown_delimiter(delimiter)}' (the one read), save it again as CSV; else shorten that cell")
 
