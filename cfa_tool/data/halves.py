@@ -13,7 +13,9 @@ checksum) and sheet, and the same rows split (the rows the data file holds after
 halves file lists, no more and no fewer), else a refusal that says which.  Halves drawn from the rows with an
 answer to every model variable (replicate --data with --incomplete-rows listwise) leave out the rows with gaps: read
 back with the model's items, they are those rows when the run leaves rows with gaps out too, and refused, naming the
-handling of rows with gaps, when it keeps them."""
+handling of rows with gaps, when it keeps them: one rule for every workflow that fits the rows it reads (fit, compare,
+invariance, align, bootstrap, cutoffs, scores, replicate: pipeline.inputs.keeps_rows_with_gaps, every handling but
+listwise keeps them), whose notes then say the rows with gaps were left out before the split."""
 
 from __future__ import annotations
 
@@ -183,7 +185,13 @@ def read_halves(path) -> SavedHalves:
                         f"the CSV file --halves-file wrote)") from None
     except OSError as exc:
         raise DataError(f"{shown}: cannot read the halves file ({printable(exc.strerror or 'unreadable')})") from None
-    lines = list(csv.reader(io.StringIO(text)))
+    reader = csv.reader(io.StringIO(text, newline=""))
+    try:
+        lines = list(reader)
+    except csv.Error:  # a value longer than the csv module's limit: a quote never closed, or not a halves file
+        raise DataError(f"{shown}, line {reader.line_num}: not a halves file (a value of more than "
+                        f"{csv.field_size_limit():,} characters, or a quote (\") never closed); a halves file is the "
+                        f"CSV file --halves-file wrote, and is read as it wrote it") from None
     header = tuple(c.strip() for c in lines[0]) if lines else ()
     if header not in (HALVES_COLUMNS, SHEET_ASKED_COLUMNS):
         earlier = header in (HALVES_COLUMNS[:2], HALVES_COLUMNS[:5])

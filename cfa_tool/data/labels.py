@@ -100,7 +100,7 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
     if alone:
         notes.append(f"in the {part} column '{printable(column)}', labels written with spaces at their ends or in "
                      f"another Unicode form were read without them: {_listed(alone, shown)}")
-    from cfa_tool.data.readers import MARKED
+    from cfa_tool.data.readers import MARKED, MeasureLevel, measure_levels
 
     marked = frame.attrs.get(MARKED, {}).get(column)
     if marked:  # 'N/A' read as no answer: a marker of missing data, or the name of a group?
@@ -108,6 +108,12 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
         notes.append(f"in the {part} column '{printable(column)}', cells written as {listed} were read as no answer, "
                      f"so their rows have no {unit}; if such a marker names a {unit}, write it as a word (such as 'not "
                      f"applicable') in a copy of the file")
+    if part == "group" and not coded and measure_levels(frame).get(column) is MeasureLevel.SCALE:
+        count = values.nunique()
+        notes.append(f"the group column '{printable(column)}' is measured as a scale (amounts) in the SPSS file and "
+                     f"has no value labels: each of its {count} different values is a group of its own; if its values "
+                     f"are amounts (an age, a count), make a column of the groups meant (such as ranges of values) in "
+                     f"a copy of the file")
     said = no_answer_labels(values)
     if said:
         named = [f"'{printable(label)}' ({n} row{'s' if n != 1 else ''})" for label, n in said[:shown]]
@@ -122,6 +128,26 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
                      f"answer are read as missing in item columns only); if such rows have no {unit}, leave them out "
                      f"with a row filter such as {Option.KEEP.given(filter_text)}")
     return notes
+
+
+def nominal_items_note(frame: "pd.DataFrame", items, source: str) -> list[str]:
+    """The note naming the model's items that the SPSS file measures as nominal (categories without an order) while
+    it measures other items as ordinal or scale: the model analyses every item's codes as ordered answers, so an item
+    of unordered categories among them (a district code) is no answer on a scale.  Items all nominal say nothing
+    (SPSS sets that level on its own for numeric columns of few values)."""
+    from cfa_tool.data.readers import MeasureLevel, measure_levels
+
+    levels = measure_levels(frame)
+    nominal = [x for x in items if levels.get(x) is MeasureLevel.NOMINAL]
+    others = sorted({levels[x].value for x in items if x in levels and levels[x] is not MeasureLevel.NOMINAL})
+    if not nominal or not others:
+        return []
+    one = len(nominal) == 1
+    named = ", ".join(f"'{printable(x)}'" for x in nominal)
+    return [f"{source}: the SPSS file measures the item{'' if one else 's'} {named} as nominal (categories without "
+            f"an order) and the other items as {' or '.join(others)}; the model analyses every item's codes as "
+            f"ordered answers: check that {'its' if one else 'their'} codes are answers on the scale of the others, "
+            f"or leave {'it' if one else 'them'} out of the model"]
 
 
 def no_answer_labels(values) -> list[tuple[str, int]]:

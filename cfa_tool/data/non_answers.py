@@ -59,7 +59,8 @@ MIDDLE_PHRASES = frozenset({"not sure", "unsure", "no opinion", "can t say", "ca
 SHOWN = 6  # columns a caution names before 'and N more'
 
 #: cells that say no answer by a mark, not a word (compared as written, spaces at the ends aside): '#NULL!', which a
-#: statistics package writes into a spreadsheet export for a system-missing value, and a lone dash
+#: statistics package writes into a spreadsheet export for a system-missing value (as text: a workbook's error cell
+#: of it is a failed formula, refused by data.readers.TYPED_ERRORS), and a lone dash
 NON_ANSWER_MARKS = frozenset({"#NULL!", "-"})
 
 

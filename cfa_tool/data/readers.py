@@ -343,7 +343,8 @@ def _renamed(loaded: LoadedData, renames: tuple[ColumnRename, ...], option: Opti
     its variable and value labels and the column-keyed notes of reading, with a note naming each rename."""
     if not renames:
         return loaded
-    frame = renamed_frame(loaded.frame, renames, loaded.source, option, (SHEET_COLUMNS, MARKED, SPELLINGS))
+    frame = renamed_frame(loaded.frame, renames, loaded.source, option, (SHEET_COLUMNS, MARKED, SPELLINGS,
+                                                                         MEASURE_LEVELS))
     names = {r.old: r.new for r in renames}
     return replace(loaded, frame=frame, renamed=renames,
                    variable_labels={names.get(k, k): v for k, v in loaded.variable_labels.items()},
@@ -363,7 +364,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     try:
         book = openpyxl.load_workbook(path, read_only=False, data_only=True)
     except Exception as exc:  # openpyxl raises many kinds for damaged files
-        raise DataError(f"'{path}' cannot be read as an Excel workbook ({type(exc).__name__})") from None
+        raise DataError(_unreadable_file(path, "an Excel workbook", type(exc).__name__)) from None
     names = book.sheetnames
     if sheet is not None and not isinstance(sheet, str):
         raise DataError(f"the sheet must be given by its name (text), not {type(sheet).__name__}")
@@ -458,7 +459,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     frame.attrs[SHEET_COLUMNS] = {name: get_column_letter(skipped + k + 1) for k, name in enumerate(header) if name}
     if marked:
         frame.attrs[MARKED] = {header[k]: counted for k, counted in marked.items()}
-    _check_formula_errors(frame, where, items)
+    _check_formula_errors(frame, where, items, _typed_errors(frame, ws))
     _check_repeated_header(frame, where, first + 1)
     _check_header_rows(frame, where, False, items=items, header_row=first + 1, names_option=names_option,
                        listed=listed)
@@ -660,18 +661,38 @@ def _skipped_answers(frame: pd.DataFrame, between: list[tuple[int, list]], items
     return SkippedAnswers(where, tuple(found), first_data_row, option, start)
 
 
-#: the error values a spreadsheet shows in a cell whose formula failed ('#N/A', 'not available', is read as no answer
-#: with MISSING_MARKERS; '#NULL!' is no answer too: statistics packages write it for a missing value in the
-#: spreadsheets they export, data.non_answers.NON_ANSWER_MARKS)
+#: the error values a spreadsheet shows in a cell whose formula failed, refused as text or as a workbook's error
+#: cell ('#N/A', 'not available', is read as no answer with MISSING_MARKERS)
 FORMULA_ERRORS = frozenset(("#DIV/0!", "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#SPILL!", "#CALC!"))
+#: error values refused only in a cell the workbook types as an error (a failed formula: a range intersection that
+#: is empty); as text, in a delimited file or a text cell, '#NULL!' is a statistics package's mark of a
+#: system-missing value in the tables it exports, read as no answer (data.non_answers.NON_ANSWER_MARKS)
+TYPED_ERRORS = frozenset(("#NULL!",))
 
 
-def _check_formula_errors(frame: pd.DataFrame, where: str, items) -> None:
+def _typed_errors(frame: pd.DataFrame, ws) -> frozenset[tuple[int, str]]:
+    """The cells of a sheet's ``frame`` (index: the sheet's rows less one; ``frame.attrs[SHEET_COLUMNS]``: each
+    column's letter) holding one of :data:`TYPED_ERRORS` that the workbook types as an error (openpyxl's data type
+    'e', as a spreadsheet program saves a failed formula's value), as (row label, column); text cells are left out."""
+    letters = frame.attrs.get(SHEET_COLUMNS) or {}
+    found = set()
+    for column in frame.columns:
+        if column not in letters or pd.api.types.is_numeric_dtype(frame[column]):
+            continue
+        for label in frame.index[frame[column].isin(TYPED_ERRORS).to_numpy()]:
+            if ws[f"{letters[column]}{int(label) + 1}"].data_type == "e":
+                found.add((label, column))
+    return frozenset(found)
+
+
+def _check_formula_errors(frame: pd.DataFrame, where: str, items, typed: frozenset = frozenset()) -> None:
     """Cells of the item columns (``items``; None: every column) that hold a spreadsheet's formula error
-    (:data:`FORMULA_ERRORS`: a formula that failed, '#DIV/0!'), in a workbook or a table it saved as text, are
-    refused, naming the first by its row and column (and cell of a sheet): they are no answers of any scale and no
-    word of no answer, but a computation to correct at its source (review s15, hostile case 11: they were offered an
-    'answers' statement)."""
+    (:data:`FORMULA_ERRORS`: a formula that failed, '#DIV/0!'), in a workbook or a table it saved as text, and the
+    cells ``typed`` ((row label, column): a workbook's error cells holding one of :data:`TYPED_ERRORS`,
+    :func:`_typed_errors`), are refused, naming the first by its row and column (and cell of a sheet): they are no
+    answers of any scale and no word of no answer, but a computation to correct at its source (review s15, hostile
+    case 11: they were offered an 'answers' statement; re-check s15, R7: a '#NULL!' error cell was read as no
+    answer)."""
     wanted = None if items is None else {str(x) for x in items}
     found: list[tuple[int, str, str]] = []  # (position, column, value)
     for column in frame.columns:
@@ -679,6 +700,9 @@ def _check_formula_errors(frame: pd.DataFrame, where: str, items) -> None:
                 pd.api.types.is_numeric_dtype(frame[column]):
             continue
         hit = frame[column].isin(FORMULA_ERRORS).to_numpy()
+        labels = [label for label, name in typed if name == column]
+        if labels:
+            hit = hit | frame.index.isin(labels)
         found += [(int(k), str(column), str(frame[column].iloc[k])) for k in np.flatnonzero(hit)]
     if not found:
         return
@@ -821,7 +845,7 @@ def _read_labelled(path: Path) -> LoadedData:
     try:  # declared missing values are read as values, then as missing by data.non_answers, which names them
         frame, meta = reader(str(path), **({} if suffix == ".por" else {"user_missing": True}))
     except Exception as exc:  # pyreadstat raises its own error types
-        raise DataError(f"'{path}' cannot be read as a {'Stata' if suffix == '.dta' else 'SPSS'} file ({exc})") from None
+        raise DataError(_unreadable_file(path, "a Stata file" if suffix == ".dta" else "an SPSS file", str(exc))) from None
     if frame.shape[0] == 0:
         raise DataError(f"data file '{path}' has variables but no rows of data")
     labels = {k: v for k, v in (meta.column_names_to_labels or {}).items() if v}
@@ -835,7 +859,90 @@ def _read_labelled(path: Path) -> LoadedData:
             values[column] = {tagged.get(k, k) if isinstance(k, str) else k: v for k, v in values.get(column, {}).items()}
             ranges[column] = [{"lo": t, "hi": t} for t in tagged.values()]
     frame, declared = declared_missing(frame, ranges, values)
+    measures = read_measure_levels(getattr(meta, "variable_measure", None))
+    if measures:  # kept with the frame, through row filters and copies, for the notes on items and groups
+        frame.attrs[MEASURE_LEVELS] = measures
     return LoadedData(frame, str(path), labels, values, non_answers=declared)
+
+
+#: how each kind of binary file starts (its signature): a workbook is a zip archive; an SPSS file '$FL2' ('$FL3'
+#: compressed); a Stata file of format 117 on '<stata_dta>', of an older format a byte of its number (102 to 115)
+_SIGNATURES = {".xlsx": (b"PK\x03\x04",), ".xlsm": (b"PK\x03\x04",), ".sav": (b"$FL2", b"$FL3"), ".zsav": (b"$FL3",),
+               ".dta": (b"<stata_dta>",) + tuple(bytes([k]) for k in range(102, 116))}
+_OLD_OFFICE = b"\xd0\xcf\x11\xe0"  # an old binary Office file (.xls), or a workbook encrypted by a password
+
+
+def _unreadable_file(path: Path, kind: str, why: str) -> str:
+    """The one-line message of a binary data file its reader cannot open (``kind``: 'an Excel workbook', 'an SPSS
+    file'...; ``why``: the reader's words or error type), saying what the file is instead, judged by how it starts
+    (:data:`_SIGNATURES`): text, an old or password-protected Office file, another kind of file, or one of the
+    right kind cut short or saved in a version the reader does not know; and what to do."""
+    suffix = path.suffix.lower()
+    try:
+        with open(path, "rb") as f:
+            head = f.read(4096)
+    except OSError:
+        head = b""
+    save = "save it again from the program that made it" + (" as .xlsx" if suffix in EXCEL_SUFFIXES else "") + \
+        ", or as CSV"
+    signatures = _SIGNATURES.get(suffix)
+    if signatures is not None and not head.startswith(signatures):
+        if head.startswith(_OLD_OFFICE):
+            what = "an old-style Excel file (.xls) or a workbook protected by a password"
+        elif b"\x00" not in head and utf16_text(head) is None and _reads_as_text(head):
+            return (f"'{path}' is not {kind} but text; if it is a table with its values separated by commas (CSV), "
+                    f"give it the ending .csv; else {save}")
+        else:
+            what = "another kind of file (it does not start as one)"
+        return f"'{path}' is not {kind} but {what}; {save}"
+    if suffix == ".dta" and "version" in why.lower():
+        release = re.search(rb"<release>(\d+)</release>", head)
+        number = release.group(1).decode() if release else str(head[0]) if head else "?"
+        return (f"'{path}' is a Stata file of format {number}, which this reader does not know; save it from Stata "
+                f"in an older format, or as CSV")
+    if "expected number of rows" in why or "Unable to read" in why or why in ("BadZipFile", "EOFError"):
+        return (f"'{path}' is {kind} cut short or damaged (as after an interrupted copy or download); copy it "
+                f"again, or {save}")
+    if why == "KeyError" and suffix in EXCEL_SUFFIXES:
+        return (f"'{path}' is a zip archive but holds no Excel workbook (another kind of file named {suffix}, such "
+                f"as an OpenDocument sheet); {save}")
+    return f"'{path}' cannot be read as {kind} ({printable(why)}); {save}"
+
+
+def _reads_as_text(head: bytes) -> bool:
+    """Whether the first bytes of a file read as text (UTF-8 or a Western code page, no control characters but
+    line ends and tabs)."""
+    try:
+        text = head.decode("utf-8")
+    except UnicodeDecodeError:
+        text = head.decode("cp1252", errors="replace")
+    return bool(text.strip()) and all(c.isprintable() or c in "\r\n\t" for c in text[:-4])
+
+
+class MeasureLevel(Enum):
+    """The measure level an SPSS file gives a variable (pyreadstat's ``variable_measure``; 'unknown' is not kept):
+    a hint of what its values are, not a fact, since SPSS sets one on its own when nobody does (by the number of
+    different values of a numeric variable, as recalled from memory of its data editor)."""
+
+    NOMINAL = "nominal"  # categories without an order
+    ORDINAL = "ordinal"  # ordered categories
+    SCALE = "scale"  # amounts
+
+
+#: the key of DataFrame.attrs that keeps each column's :class:`MeasureLevel` as an SPSS file gives it ({column: level})
+MEASURE_LEVELS = "measure_levels"
+
+
+def measure_levels(frame: pd.DataFrame) -> dict[str, MeasureLevel]:
+    """The measure level of each column of ``frame`` that its SPSS file gives one ({} for another file)."""
+    return frame.attrs.get(MEASURE_LEVELS) or {}
+
+
+def read_measure_levels(measures: dict | None) -> dict[str, MeasureLevel]:
+    """The measure levels of an SPSS file's variables (pyreadstat's ``variable_measure``), those it leaves unknown
+    left out."""
+    known = {level.value: level for level in MeasureLevel}
+    return {str(name): known[str(level)] for name, level in (measures or {}).items() if str(level) in known}
 
 
 def _with_case_filter(loaded: LoadedData) -> LoadedData:
@@ -954,12 +1061,13 @@ class TextRecords:
     """Every record of a delimited file's text as the csv module reads it, in one pass (quoted fields may span
     lines), each with the text line it starts on, a blank line a record without fields: the one reading of the text
     that the rows' numbers (:func:`text_rows`), the header, the rows a first row of data skips and the field counts
-    (:func:`_check_field_counts`) are found in.  ``error``: the line and the csv module's words where it stopped on
-    a record it cannot read (``end``: the line after the last record read)."""
+    (:func:`_check_field_counts`) are found in.  ``error``: the message naming the file, the line and what to do
+    where the csv module stopped on a record it cannot read (:func:`_unreadable_record`; ``end``: the line after the
+    last record read)."""
 
     records: list[tuple[int, list[str]]]
     end: int
-    error: tuple[int, str] | None = None
+    error: str | None = None
 
     def read(self, delimiters_only: bool = False, after: int = 0):
         """(line number, fields) of each record that is not blank (:func:`_filled`) and starts after the line
@@ -968,11 +1076,11 @@ class TextRecords:
             if line > after and _filled(fields, delimiters_only):
                 yield line, fields
         if self.error is not None:
-            raise DataError(f"line {self.error[0]}: {self.error[1]}")
+            raise DataError(self.error)
 
 
-def text_records(text: str, delimiter: str) -> TextRecords:
-    """The :class:`TextRecords` of a delimited file's ``text``."""
+def text_records(text: str, delimiter: str, where: str = "") -> TextRecords:
+    """The :class:`TextRecords` of a delimited file's ``text`` (``where``: the file, which an error names)."""
     reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
     records: list[tuple[int, list[str]]] = []
     line = 1
@@ -981,8 +1089,62 @@ def text_records(text: str, delimiter: str) -> TextRecords:
             records.append((line, fields))
             line = reader.line_num + 1
     except csv.Error as exc:
-        return TextRecords(records, line, (reader.line_num, str(exc)))
+        return TextRecords(records, line, _unreadable_record(where, text, delimiter, line, reader.line_num, exc))
     return TextRecords(records, line)
+
+
+def _unreadable_record(where: str, text: str, delimiter: str, start: int, stop: int, error: csv.Error) -> str:
+    """The one-line message of a record of ``text`` starting on the line ``start`` that the csv module stopped
+    reading on the line ``stop``: the file, the line and column, and what to do.  A field longer than the module's
+    limit is a quote opened in a cell and never closed (the rest of the file read as one value) when the record's
+    first line leaves a quote open, else a value far longer than any answer."""
+    first = _line_text(text, start)
+    where = f"{where}: " if where else ""
+    if "field limit" not in str(error):
+        return f"{where}line {start}: the file cannot be read as a table ({printable(str(error))})"
+    limit = csv.field_size_limit()
+    column = _open_quote(first, delimiter)
+    if column is not None:
+        to = f", to line {stop}" if stop > start else ""
+        return (f"{where}line {start}, column {column}: a quoted value opened there (\"...) runs on for more than "
+                f"{limit:,} characters{to} without its closing quote, so the rows after it are read as one value; "
+                f"close the quote, or remove it (a quote inside a quoted value is written twice, \"\")")
+    fields = first.split(delimiter)
+    column = max(range(len(fields)), key=lambda k: len(fields[k])) + 1
+    return (f"{where}line {start}, column {column} holds a value of more than {limit:,} characters, far longer "
+            f"than an answer: if the file separates its fields by another character than "
+            f"'{_shown_delimiter(delimiter)}' (the one read), save it again as CSV; else shorten that cell")
+
+
+def _line_text(text: str, line: int) -> str:
+    """The 1-based ``line`` of ``text`` (lines end at LF, CR LF or CR), without its end."""
+    begin = _offset_of_line(text, line)
+    ends = [i for i in (text.find("\n", begin), text.find("\r", begin)) if i >= 0]
+    return text[begin:min(ends)] if ends else text[begin:]
+
+
+def _open_quote(line: str, delimiter: str) -> int | None:
+    """The 1-based column of the field of ``line`` (a record's first line) whose quote is still open at the end of
+    the line, read as the csv module reads quotes (a quote opens a quoted field only at the field's start, and
+    two quotes inside it are one); None when every quote closes."""
+    column, quoted, at_start, k = 1, False, True, 0
+    while k < len(line):
+        c = line[k]
+        if quoted:
+            if c == '"':
+                if line.startswith('""', k):
+                    k += 1
+                else:
+                    quoted = False
+        elif c == delimiter:
+            column, at_start = column + 1, True
+            k += 1
+            continue
+        elif c == '"' and at_start:
+            quoted = True
+        at_start = False
+        k += 1
+    return column if quoted else None
 
 
 @dataclass(frozen=True, eq=False)
@@ -1157,9 +1319,11 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
         raise DataError(f"data file '{path}' is empty")
     text, encoding = decoded_table(raw)
     if "\x00" in text:
-        raise DataError(f"data file '{path}' is not a text file (it contains NUL bytes); save it as CSV")
+        line = text.count("\n", 0, text.index("\x00")) + 1
+        raise DataError(f"data file '{path}' is not a text file (it contains NUL bytes, the first on line {line}); "
+                        f"save it as CSV")
     delimiter = _delimiter(text)
-    records = text_records(text, delimiter)  # the one reading of the records
+    records = text_records(text, delimiter, str(path))  # the one reading of the records
     first = next(records.read(), None)
     if first is None:
         raise DataError(f"data file '{path}' is empty")

@@ -21,7 +21,7 @@ from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_
 from cfa_tool.data.groups import SmallGroupsError, split_moments
 from cfa_tool.data.kept_rows import (RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
                                      unfinished_rows_note)
-from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
+from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes, nominal_items_note
 from cfa_tool.data.matching import (answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges,
                                     chosen_columns)
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
@@ -186,6 +186,20 @@ def read_inputs(model: str | Path | Spec, data: pd.DataFrame | str | Path, sheet
     return spec, loaded.frame, loaded.source
 
 
+def keeps_rows_with_gaps(missing) -> bool:
+    """Whether a run whose handling of rows with missing answers is ``missing`` (MissingData, its words as given in
+    Python, or None: the default, full-information ML or pairwise present rows) keeps the rows with gaps: every
+    handling but listwise.  The one rule by which every workflow given a half of halves drawn from the complete rows
+    reads it (a run that leaves the rows with gaps out, whose notes say it) or refuses it (data.halves.half_kept);
+    a handling that cannot be read counts as keeping them, and the workflow names it on its own."""
+    if isinstance(missing, str):
+        try:
+            missing = MissingData.parse(missing, "the handling of rows with missing answers")
+        except OptionError:
+            return True
+    return missing is not MissingData.LISTWISE
+
+
 def keep_option(keep) -> list:
     """Row selections: one filter as text (or one half of a halves file, data.halves.RandomHalf), or a list of
     them."""
@@ -266,6 +280,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     chosen = {**{f.column: f"the column of the row filter '{f}'" for f in filters if f.column is not None},
               **(chosen or {})}
     notes += check_columns(spec, columns, loaded.source, loaded.column_hint(), chosen)
+    notes += nominal_items_note(frame, spec.observed_names, loaded.source)  # an SPSS file's measure levels
     frame, coding_notes = code_answer_words(spec, frame, loaded.source,  # 'answers' statements: words as codes
                                             missing_codes=missing_codes_option(missing_codes))
     notes += coding_notes
@@ -514,7 +529,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                                                  items=spec.observed_names + helpers if helpers else None,
                                                  chosen=chosen_columns(group, id_column, design,
                                                                        fit_options.missing_helpers),
-                                                 keeps_gaps=fit_options.missing is not MissingData.LISTWISE)
+                                                 keeps_gaps=keeps_rows_with_gaps(fit_options.missing))
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
     if id_column is not None:

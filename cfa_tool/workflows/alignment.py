@@ -617,7 +617,8 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
     replications of the trustworthiness check (0 leaves it out), with ``seed``."""
     from cfa_tool.numerics.threads import blas_threads_for
     from cfa_tool.data.matching import chosen_columns
-    from cfa_tool.pipeline.inputs import (analysed_odd_values, continuous_only, odd_values_named, read_inputs_with_notes,
+    from cfa_tool.pipeline.inputs import (analysed_odd_values, continuous_only, keeps_rows_with_gaps, odd_values_named,
+                                          read_inputs_with_notes,
                                           with_odd_values)
 
     if not isinstance(group, str):
@@ -627,7 +628,8 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
     trials = check.whole_number("the number of Monte Carlo trials", trials, 0, check.MAX_REPLICATIONS)
     seed = check.seed(seed)
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,
-                                                 rename=rename, chosen=chosen_columns(group))
+                                                 rename=rename, chosen=chosen_columns(group),
+                                                 keeps_gaps=keeps_rows_with_gaps(missing))
     frame, source = loaded.frame, loaded.source
     notes = list(notes)
     spec = configural_spec(continuous_only(spec, "align"))

@@ -56,7 +56,7 @@ from cfa_tool.pipeline.continuous import FitOptions, fit_moments, model_structur
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary, refuse_lone_strata
 from cfa_tool.method import MissingData, WeightKind
 from cfa_tool.data.matching import chosen_columns
-from cfa_tool.pipeline.inputs import (_fit_rows, converged, design_test, moments_for, odd_values_named,
+from cfa_tool.pipeline.inputs import (_fit_rows, converged, keeps_rows_with_gaps, design_test, moments_for, odd_values_named,
                                       ordinal_items_of, read_inputs_with_notes, refit_missing_handling, with_design,
                                       with_odd_values, without_exploratory_blocks)
 from cfa_tool.pipeline.results import FitResult, clean
@@ -567,7 +567,8 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     replications, seed = bootstrap_options(replications, seed, workers)
     design = design_columns(weights, cluster, strata, weight_kind)
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,
-                                                 rename=rename, chosen=chosen_columns(design=design))
+                                                 rename=rename, chosen=chosen_columns(design=design),
+                                                 keeps_gaps=keeps_rows_with_gaps(missing))
     frame, source = loaded.frame, loaded.source
     one_group_only(spec, "the bootstrap resamples one group's rows")
     without_exploratory_blocks(spec, "bootstrap", "it resamples the parameters, and a block's rotated loadings are "

@@ -8,7 +8,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import (_described, _no_group_notes, choose_missing_handling, design_test, few_categories, load_spec, make_options, moments_for,
+from cfa_tool.pipeline.inputs import (_described, _no_group_notes, choose_missing_handling, design_test, few_categories, keeps_rows_with_gaps, load_spec, make_options, moments_for,
                                       missing_codes_option, of_summary_statistics,
                                       data_problems, odd_values_named, reference_group_applies, reference_note,
                                       with_missing_reading,
@@ -146,7 +146,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     refuse_different_codings(specs, names)
     _, loaded, notes = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep,
                                               items={x for spec in specs for x in spec.observed_names}, names_row=names_row, first_data_row=first_data_row,
-                                              rename=rename, chosen=chosen_columns(group, design=design))
+                                              rename=rename, chosen=chosen_columns(group, design=design),
+                                              keeps_gaps=keeps_rows_with_gaps(fit_options.missing))
     used = sorted({x for spec in specs for x in spec.observed_names})
     if design is not None:  # the weights parsed once, as fit parses them, for the check and the groups weighted out
         loaded = replace(loaded, weights=design_weights(loaded.frame, design, tuple(used), group, loaded.source))

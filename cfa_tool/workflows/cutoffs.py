@@ -36,7 +36,7 @@ from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.method import MissingData
 from cfa_tool.assessment.admissibility import counted_problems, refuse_inadmissible_fit, replicated_problems
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, model_structure, moments_from_rows, replicate_fits
-from cfa_tool.pipeline.inputs import (_fit_rows, converged, odd_values_named, ordinal_items_of, read_inputs_with_notes,
+from cfa_tool.pipeline.inputs import (_fit_rows, converged, keeps_rows_with_gaps, odd_values_named, ordinal_items_of, read_inputs_with_notes,
                                       refit_missing_handling, with_odd_values)
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
@@ -353,7 +353,7 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
     the adjusted indices the fit reports."""
     replications, seed = cutoff_options(replications, seed, workers)
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,
-                                                 rename=rename)
+                                                 rename=rename, keeps_gaps=keeps_rows_with_gaps(missing))
     frame, source = loaded.frame, loaded.source
     one_group_only(spec, "the cutoffs are simulated for one group's model")
     if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:

@@ -758,7 +758,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                                      (id_column,) if isinstance(id_column, str) else (),
                                                      names_row=names_row, first_data_row=first_data_row, rename=rename,
                                                      chosen=api.chosen_columns(group, id_column, design,
-                                                                               fit_options.missing_helpers))
+                                                                               fit_options.missing_helpers),
+                                                     keeps_gaps=api.keeps_rows_with_gaps(fit_options.missing))
     api.without_exploratory_blocks(spec, "scores", "its factors' scores would be those of the unrotated block")
     frame, source = loaded.frame, loaded.source
     read_frame = _rows_as_read(loaded)

@@ -24,7 +24,7 @@ from cfa_tool.data.groups import reference_rule
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.options import own_keywords
 from cfa_tool.data.matching import chosen_columns
-from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_categories,
+from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_categories, keeps_rows_with_gaps,
                                       make_options, moments_for, data_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
                                       with_design_weights, with_missing_reading, with_rows_read)
@@ -360,7 +360,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     fit_options = replace(make_options(options, INVARIANCE_KEYWORDS), diagnostics=False)
     design = design_columns(weights, cluster, strata, weight_kind)
     spec, loaded, read_notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,
-                                                 rename=rename, chosen=chosen_columns(group, design=design))
+                                                 rename=rename, chosen=chosen_columns(group, design=design),
+                                                 keeps_gaps=keeps_rows_with_gaps(fit_options.missing))
     frame, source = loaded.frame, loaded.source
     # values that look like no answers, among the rows with a group label: first among the cautions
     # the weights parsed once, as fit parses them, for the check of the design and the groups weighted out

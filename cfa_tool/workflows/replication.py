@@ -65,7 +65,7 @@ import pandas as pd
 
 from cfa_tool.data.halves import draw_halves
 from cfa_tool.model.parameters import one_group_only
-from cfa_tool.pipeline.inputs import (_described, data_problems, load_spec, make_options, odd_values_named,
+from cfa_tool.pipeline.inputs import (_described, data_problems, keeps_rows_with_gaps, load_spec, make_options, odd_values_named,
                                       read_inputs_with_notes, refit_missing_handling, refuse_totals_rows,
                                       with_row_filters)
 from cfa_tool.assessment.admissibility import inadmissible_words
@@ -568,12 +568,15 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     # each file read as fit reads its data (row filters, declared scales, answer words, codes as labels, values
     # that look like no answers): a hostile trial found replicate analysing answers beyond a declared scale that fit
     # refuses; the row filters apply to each file, their notes naming it
+    gaps = keeps_rows_with_gaps(missing)  # a half of halves of the complete rows only when they are left out
     read, notes = zip(read_inputs_with_notes(spec, calibration, sheets[0], missing_codes, keep, names_row=names_row,
-                                             first_data_row=first_data_row, name_the_file=True, rename=rename)[1:],
+                                             first_data_row=first_data_row, name_the_file=True, rename=rename,
+                                             keeps_gaps=gaps)[1:],
                       read_inputs_with_notes(spec, validation, sheets[1], missing_codes, keep,
                                              names_row=validation_names_row, names_option=Option.VALIDATION_NAMES_ROW,
                                              first_data_row=validation_first_data_row, name_the_file=True,
-                                             rename=validation_rename, rename_option=Option.VALIDATION_RENAME)[1:])
+                                             rename=validation_rename, rename_option=Option.VALIDATION_RENAME,
+                                             keeps_gaps=gaps)[1:])
     (cal_frame, cal_source), (val_frame, val_source) = [(loaded.frame, loaded.source) for loaded in read]
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
     for each in read:  # a totals row in either file is refused (the estimation failures name the first file's)
@@ -634,7 +637,8 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
                                                      options if missing is None else {**options, "missing": missing},
                                                      SPLIT_HALF_KEYWORDS)
     _, loaded, notes = read_inputs_with_notes(spec, data, sheet, missing_codes, keep, names_row=names_row,
-                                              first_data_row=first_data_row, rename=rename)  # as fit reads it
+                                              first_data_row=first_data_row, rename=rename,
+                                              keeps_gaps=keeps_rows_with_gaps(missing))  # as fit reads it
     notes = tuple(notes)
     frame, source = loaded.frame, loaded.source
     with odd_values_named(loaded):
