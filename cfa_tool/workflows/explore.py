@@ -163,8 +163,8 @@ class ExploreResult(Presentable):
             else:
                 lines.append(NOTE_WORDS[note])
         if self.requested is not None and self.requested != count.recommended:
-            lines.append(f"The solution below has {self.requested} factors, as asked, not the {count.recommended} "
-                         f"recommended.")
+            lines.append(f"The solution below has {self.requested} factor{'s' if self.requested != 1 else ''}, as "
+                         f"asked, not the {count.recommended} recommended.")
         return lines
 
     def to_dict(self) -> dict:
@@ -513,6 +513,18 @@ def _refuse_too_few(chosen: tuple[str, ...], scan, codings: tuple) -> None:
     raise DataError(f"{scan.source}: {found}, and an exploratory factor analysis needs at least 3 items" + hint)
 
 
+def _refuse_too_few_named(chosen: tuple[str, ...]) -> None:
+    """The error when the items named are too few for a factor: a factor of one or two items alone is not
+    identified (Bollen 1989, ch. 7: the three-indicator rule), so an exploratory factor analysis needs at least three
+    items for each factor."""
+    if len(chosen) >= 3:
+        return
+    named = " and ".join(f"'{printable(c)}'" for c in chosen)
+    raise OptionError(f"{Option.ITEMS} names {'one item' if len(chosen) == 1 else 'two items'} ({named}), too few "
+                      f"for a factor: an exploratory factor analysis needs at least three items for each factor; name "
+                      f"more items")
+
+
 def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str, codings: tuple) -> None:
     """An item named in --items that holds words no answers file codes: an error naming the column, the cell and
     what explore takes (an answers file, with the statement the words suggest); cells holding digits or other
@@ -612,7 +624,7 @@ def _factor_choice(factors) -> int | None:
 
 
 def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[str, ...] | None = None,
-            factors: int | str | None = None, rotation: str | RotationMethod = RotationMethod.QUARTIMIN,
+            factors: int | str | None = None, rotation: str | RotationMethod | None = None,
             extraction: str | ExtractionMethod = ExtractionMethod.MAXIMUM_LIKELIHOOD,
             ordinal: str | list[str] | None = None, split: int | None = None, sheet: str | None = None,
             names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
@@ -627,7 +639,9 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     or groups, see :func:`column_role`); ``factors``: a whole number, or None / 'auto' for the recommended number; ``rotation``:
     varimax, quartimin (default), oblimin, geomin, promax, target (with ``target``: a matrix with NaN where
     unspecified, or the path of a target file, exploration.target_file, whose columns give the number of
-    factors) or none; ``extraction``: maximum-likelihood (default) or least-squares; ``ordinal``: 'all' or
+    factors) or none; None (the default) is quartimin, or target rotation with a ``target``; a rotation turns several
+    factors, so one chosen with one factor asked for is an error, and one chosen when the rules recommend one factor
+    is not applied, with a note first saying so; ``extraction``: maximum-likelihood (default) or least-squares; ``ordinal``: 'all' or
     items to analyse by polychoric correlations (ranges such as 'item1..item9' among them); ``split``: a seed: explore one random half of the rows and fit
     the draft model on the other; ``replications`` and ``seed``: of parallel analysis and the rotation's random
     starts; ``threshold``: the loading at which an item counts on a factor in the draft model; ``answers``: the
@@ -654,6 +668,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         raise OptionError(f"{source}: the column name '{next(c for c in columns if columns.count(c) > 1)}' appears twice")
     chosen = item_names(items, columns, source)
     by_default = chosen is None
+    if not by_default:
+        _refuse_too_few_named(chosen)
     item_note = None
     if by_default:
         chosen, item_note, worded = _default_items(scan, columns, codings)
@@ -678,6 +694,9 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
                      + " Check that no other column (age, grade, a code) is among the items.")
         _refuse_too_few(chosen, scan, codings)
     requested = _factor_choice(factors)
+    chosen_rotation = rotation is not None or target is not None  # the caller's choice, not the default
+    if rotation is None:
+        rotation = RotationMethod.TARGET if target is not None else RotationMethod.QUARTIMIN
     rotation_method = options.choice(RotationMethod, rotation, "the rotation")
     extraction_method = options.choice(ExtractionMethod, extraction, "the extraction")
     if rotation_method is RotationMethod.TARGET and target is None:
@@ -700,6 +719,9 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
             raise OptionError(f"{Option.FACTORS.given(requested)} asks for {requested} factors, and the target file "
                               f"{target_file.source} has "
                               f"{len(target_file.factors)} factor columns")
+    turning = chosen_rotation and rotation_method is not RotationMethod.NONE
+    if turning and requested == 1:
+        _refuse_rotation_of_one_factor(rotation_method, target_file)
     ordinal_items = _ordinal_items(ordinal, chosen)
     # values that look like no answers among the rows read (both halves of a split): first in every view
     # and items answered alike by all rows but a few, as fit names them (pipeline.inputs.few_answers_problems)
@@ -722,6 +744,10 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
                                seed=seed, count=True, threshold=threshold,
                                factor_names=target_file.factors if target_file is not None else None)
     exploration = explore_correlations(correlations, settings)
+    if turning and exploration.factors == 1:  # the rules chose one factor: the rotation asked for cannot apply
+        notes.insert(0, f"No rotation: the rules for the number of factors recommend one factor, and a rotation turns "
+                        f"several factors towards a simpler pattern; the {rotation_method.value} rotation asked for "
+                        f"does not apply, and the loadings shown are the one factor's, unrotated.")
     sample_problems, sample_notes = sample_size_problems([exploration.data.n_obs],
                                                          [exploratory_parameters(len(names), exploration.factors)])
     notes.extend(sample_notes)
@@ -741,6 +767,19 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         split_result = _confirm(exploration, halves, split, source, statements)
     return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
                          sorted_items(exploration), sample_problems + data_problems, statements, coding_record(spec))
+
+
+def _refuse_rotation_of_one_factor(method: RotationMethod, target_file) -> None:
+    """The error of a rotation chosen for one factor (an option that cannot apply): a rotation turns several factors,
+    and one factor's loadings are the same under every rotation."""
+    if target_file is not None:
+        raise OptionError(f"{target_file.source}: the target file has one factor column, and a target rotation turns "
+                          f"several factors (one factor's loadings are the same under every rotation); explore one "
+                          f"factor without {Option.TARGET}, or give the target file a column for each factor")
+    raise OptionError(f"{Option.ROTATION.given(method.value)} turns several factors, and {Option.FACTORS.given(1)} "
+                      f"asks for one (its loadings are the same under every rotation); leave out {Option.ROTATION}"
+                      + (f" and {Option.TARGET}" if method is RotationMethod.TARGET else "")
+                      + f", or ask for more factors")
 
 
 def exploratory_parameters(items: int, factors: int) -> int:
