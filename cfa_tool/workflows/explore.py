@@ -340,14 +340,24 @@ def column_role(name: str) -> str | None:
     return None
 
 
+#: a column whose values look like a grouping or a record (unlike_the_items) stays an item when it correlates this
+#: much (in absolute value) with one of the items: it varies with the answers, as an answer on a wider scale does
+#: (a 0-10 'recommend' question among items of 1 to 5), while a grade, a year or a school's number has no such
+#: relation.  A rule of thumb of this project: .30 is the loading commonly taken as salient, the draft's threshold
+#: (exploration.draft.DEFAULT_THRESHOLD), not a published cutoff for this purpose
+RELATED_TO_THE_ITEMS = 0.30
+
+
 def unlike_the_items(frame: pd.DataFrame, columns) -> tuple[list[tuple[str, float, float]], tuple[float, float] | None]:
-    """The columns among ``columns`` (of numbers) whose values look like a grouping or a record rather than answers:
-    few whole values (at most data.polychoric.MAX_CATEGORIES), none as low as the answer scale that most of
-    ``columns`` share begins (the lowest and highest value more than half of them hold, such as 1 to 4) and most of
-    them above its end: a grade of 5 to 9 among items answered 1 to 4, a year, an age in years.  A column that
-    reaches the scale's low end stays an item (answered 0 to 10 or 1 to 7 among items of 1 to 5), as does one
-    mostly on the scale (2 to 6).  Returns [(column, lowest, highest)] and the shared scale (None when no scale is
-    shared by most columns: then no column is left out by this rule)."""
+    """The columns among ``columns`` (of numbers) that look like a grouping or a record rather than answers: few
+    whole values (at most data.polychoric.MAX_CATEGORIES), none as low as the answer scale that most of ``columns``
+    share begins (the lowest and highest value more than half of them hold, such as 1 to 4) and most of them above
+    its end, and no relation to the items (no correlation of RELATED_TO_THE_ITEMS or more, in absolute value, with
+    any of the other columns, each from the rows that answered both): a grade of 5 to 9 among items answered 1 to 4,
+    a year, a school's number.  A column that reaches the scale's low end stays an item (answered 0 to 10 or 1 to 7
+    among items of 1 to 5), as does one mostly on the scale (2 to 6) and one whose answers go with the items' (a
+    0-10 'recommend' question answered 3 to 10).  Returns [(column, lowest, highest)] and the shared scale (None
+    when no scale is shared by most columns: then no column is left out by this rule)."""
     from collections import Counter
 
     from cfa_tool.data.polychoric import MAX_CATEGORIES
@@ -363,7 +373,33 @@ def unlike_the_items(frame: pd.DataFrame, columns) -> tuple[list[tuple[str, floa
     (low, high), _ = shared[0]
     found = [(c, float(v[0]), float(v[-1])) for c, v in distinct.items() if len(v) <= MAX_CATEGORIES
              and v[0] > low and 2 * int((v > high).sum()) > len(v)]
+    if found:
+        items = [c for c in columns if c not in {f[0] for f in found}]
+        related = _largest_correlations(frame, [f[0] for f in found], items)
+        found = [f for f, r in zip(found, related) if not r >= RELATED_TO_THE_ITEMS]
     return found, (low, high)
+
+
+def _largest_correlations(frame: pd.DataFrame, columns: list[str], items: list[str]) -> np.ndarray:
+    """For each of ``columns``, its largest absolute Pearson correlation with one of ``items``, each from the rows
+    that answered both (NaN when there is none: a constant column, or fewer than three rows in common)."""
+    x = frame[columns].apply(pd.to_numeric, errors="coerce").to_numpy(dtype=float)
+    y = frame[items].apply(pd.to_numeric, errors="coerce").to_numpy(dtype=float)
+    out = np.full(len(columns), np.nan)
+    if not items:
+        return out
+    for j in range(len(columns)):
+        both = np.isfinite(x[:, [j]]) & np.isfinite(y)  # rows x items: the pairs' rows
+        n = both.sum(axis=0)
+        xs, ys = np.where(both, x[:, [j]], 0.0), np.where(both, y, 0.0)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            mx, my = xs.sum(axis=0) / n, ys.sum(axis=0) / n
+            dx, dy = np.where(both, xs - mx, 0.0), np.where(both, ys - my, 0.0)
+            r = (dx * dy).sum(axis=0) / np.sqrt((dx * dx).sum(axis=0) * (dy * dy).sum(axis=0))
+        r = np.where(n >= 3, r, np.nan)
+        if np.isfinite(r).any():
+            out[j] = np.nanmax(np.abs(r))
+    return out
 
 
 def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: tuple = ()) -> str:
@@ -488,7 +524,8 @@ def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str
                "particulars or the survey's records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
                + f" (name them in {Option.ITEMS} to explore them)." if roles else "")
             + (f" Left out as groupings or records rather than answers (a few whole values, most of them above the "
-               f"{scale[0]:g} to {scale[1]:g} that most columns hold, as a grade or a year would be): "
+               f"{scale[0]:g} to {scale[1]:g} that most columns hold, and no correlation of "
+               f"{RELATED_TO_THE_ITEMS:.2f} or more with any item, as a grade or a year would be): "
                + ", ".join(f"{printable(c)} ({low:g} to {high:g})" for c, low, high in unlike)
                + f" (name them in {Option.ITEMS} to explore them)." if unlike else "")
             + _text_columns_phrase(frame, numeric + worded, codings))
