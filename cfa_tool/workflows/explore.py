@@ -100,6 +100,9 @@ class ExploreResult(Presentable):
     #: the answers file's statements for the draft model's items (the draft reads the data file as explore did)
     answer_statements: tuple[str, ...] = ()
     answer_coding: tuple = ()  # how answers recorded as words were coded (data.answer_words.coding_record)
+    #: the items of at most data.descriptives.FEW_CATEGORIES answer categories analysed as continuous (a note says
+    #: what that does to the loadings and how to explore them by polychoric correlations)
+    few_categories: tuple[str, ...] = ()
 
     @property
     def factors(self) -> int:
@@ -175,7 +178,8 @@ class ExploreResult(Presentable):
             "problems": self.problems(),
             "data_problems": [p.to_dict() for p in self.data_problems],
             "data": {"source": self.source, "rows_read": self.rows_read, "rows_used": ex.data.n_obs,
-                     "correlations": ex.data.kind.value, "answer_coding": coding_json(self.answer_coding)},
+                     "correlations": ex.data.kind.value, "answer_coding": coding_json(self.answer_coding),
+                     "few_categories_analysed_as_continuous": list(self.few_categories)},
             "items": list(self.items),
             "factor_count": {
                 "recommended": count.recommended,
@@ -776,6 +780,9 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         frame = explored
     names = tuple(chosen)
     correlations = _correlations(frame, names, source, ordinal_items, notes)
+    few = _few_categories(frame, names, ordinal_items, source)
+    if few:
+        notes.append(few_categories_note(few, names, ordinal_items))
     settings = ExploreSettings(factors=requested, extraction=extraction_method,
                                rotation=RotationSpec(rotation_method, target=target), replications=replications,
                                seed=seed, count=True, threshold=threshold,
@@ -803,7 +810,50 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     if halves is not None:
         split_result = _confirm(exploration, halves, split, source, statements)
     return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
-                         sorted_items(exploration), sample_problems + data_problems, statements, coding_record(spec))
+                         sorted_items(exploration), sample_problems + data_problems, statements, coding_record(spec),
+                         few)
+
+
+def _few_categories(frame: pd.DataFrame, names: tuple[str, ...], ordinal_items: tuple[str, ...],
+                    source: str) -> tuple[str, ...]:
+    """The items analysed as continuous whose answers take at most FEW_CATEGORIES whole values (the rule a fit
+    names them by: data.descriptives.few_category_items)."""
+    from cfa_tool.data.descriptives import few_category_items
+    from cfa_tool.data.moments import _numeric_rows
+
+    continuous = tuple(x for x in names if x not in ordinal_items)
+    return few_category_items(_numeric_rows(frame, continuous, source), continuous) if continuous else ()
+
+
+def few_categories_note(few: tuple[str, ...], names: tuple[str, ...], ordinal_items: tuple[str, ...] = ()) -> str:
+    """The note of an exploration that analyses ``few`` (of the items ``names``), answered in at most FEW_CATEGORIES
+    categories, as continuous: what its correlations then are, what that does to the loadings, and the option that
+    analyses them by polychoric correlations (with the items ``ordinal_items`` analysed so already).  Four categories, not five: treating answers as continuous does about
+    as well as treating them as ordered categories from five categories on, and understates the loadings below
+    that (Rhemtulla, Brosseau-Liard & Savalei 2012, recalled from memory; the rule fit's note uses,
+    data.descriptives.FEW_CATEGORIES)."""
+    from cfa_tool.data.descriptives import FEW_CATEGORIES
+    from cfa_tool.language.names import written_name
+
+    listed = ", ".join(printable(x) for x in few[:8]) + (f" and {len(few) - 8} more" if len(few) > 8 else "")
+    subject = (f"All {len(names)} items ({listed}) have" if len(few) == len(names) else
+               f"{len(few)} of the {len(names)} items ({listed}) {'has' if len(few) == 1 else 'have'}")
+    ordinal = tuple(x for x in names if x in few or x in ordinal_items)  # those of the option, in the items' order
+    if len(ordinal) == len(names):
+        option = Option.ORDINAL.given("all")
+    elif interface() is Interface.COMMAND_LINE:
+        option = Option.ORDINAL.given(",".join(written_name(x) for x in ordinal))
+    else:
+        option = Option.ORDINAL.given(list(ordinal))
+    how = ("explore's correlations of these answers are Pearson correlations, which treat them as continuous"
+           if not ordinal_items else
+           "explore treats these answers as continuous (Pearson correlations among them, polyserial ones with the "
+           "items analysed as ordinal)")
+    return (f"{subject} at most {FEW_CATEGORIES} answer categories, and {how}: with so few categories these "
+            f"correlations, and with them the loadings and communalities, tend to come out smaller than those of the "
+            f"responses behind the answers, so that items can seem weaker than they are "
+            f"(Rhemtulla, Brosseau-Liard & Savalei 2012). Polychoric correlations estimate the correlations of those "
+            f"responses: {option} explores the items by them.")
 
 
 def _refuse_rotation_of_one_factor(method: RotationMethod, target_file) -> None:
