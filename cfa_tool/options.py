@@ -190,6 +190,7 @@ class Option(enum.Enum):
     ANSWERS = ("--answers", "answers")  # explore's answers file
     FACTORS = ("--factors", "factors")  # explore's number of factors
     TARGET = ("--target", "target")  # explore's target of rotation
+    ROTATION = ("--rotation", "rotation")  # explore's rotation
     SPLIT = ("--split", "split")  # explore's seed of the random halves
     SIMULATED_MISSING = ("--missing", "missing")  # simulate's share of answers removed at random
     RENAME = ("--rename", "rename", None, True)

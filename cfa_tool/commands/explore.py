@@ -24,7 +24,8 @@ def add_parser(sub) -> None:
     p.add_argument("--rotation", default=None,
                    choices=("quartimin", "oblimin", "geomin", "promax", "varimax", "target", "none"),
                    help="quartimin (default), oblimin, geomin, promax: correlated factors; varimax: uncorrelated; "
-                        "target: towards --target; none")
+                        "target: towards --target; none (a rotation turns several factors: with --factors 1 it is an "
+                        "error, and when the rules recommend one factor it is not applied, with a note)")
     p.add_argument("--target", metavar="FILE",
                    help="target rotation towards this CSV file: first line 'item,' then the factor names; one line per "
                         "item, 0 where its loading is aimed at zero, empty where free (implies --rotation target)")
@@ -63,8 +64,7 @@ def run(args: argparse.Namespace) -> int:
                (HALVES_FILE, args.halves_file)]
     check_files(args, outputs, [args.data] + [f for f in (args.target, args.answers) if f],
                 never_replaced=("--draft", HALVES_FILE))
-    rotation = args.rotation or ("target" if args.target else "quartimin")
-    result = explore(args.data, items=args.items, factors=args.factors, rotation=rotation,
+    result = explore(args.data, items=args.items, factors=args.factors, rotation=args.rotation,
                      extraction=args.extraction, ordinal=O.ordinal_arg(args.ordinal), split=args.split,
                      **O.reading_args(args),
                      replications=args.replications, seed=args.seed, target=args.target, answers=args.answers)

@@ -81,7 +81,7 @@ def _checked(settings: ExploreSettings, p: int) -> ExploreSettings:
 def describe(exploration_settings: ExploreSettings, data: CorrelationInput, factors: int) -> str:
     """One line naming what was done, for the draft model's first comment."""
     rotation = exploration_settings.rotation
-    turned = ("no rotation" if rotation.method is RotationMethod.NONE or factors == 1
+    turned = ("no rotation" if rotation.method is RotationMethod.NONE
               else f"{rotation.method.value} rotation ({'oblique' if rotation.oblique else 'orthogonal'})")
     kind = {CorrelationKind.PEARSON: "Pearson", CorrelationKind.POLYCHORIC: "polychoric"}[data.kind]
     return (f"{exploration_settings.extraction.value} extraction of {factors} factor{'s' if factors != 1 else ''} "
@@ -89,7 +89,8 @@ def describe(exploration_settings: ExploreSettings, data: CorrelationInput, fact
 
 
 def explore_correlations(data: CorrelationInput, settings: ExploreSettings = ExploreSettings()) -> Exploration:
-    """Count (when asked), extract, rotate, standard errors, draft model."""
+    """Count (when asked), extract, rotate, standard errors, draft model.  A solution of one factor is not rotated
+    (``settings`` as returned say so), whatever rotation ``settings`` name: a rotation turns several factors."""
     from cfa_tool.numerics.threads import blas_threads_for
 
     settings = _checked(settings, data.p)
@@ -97,6 +98,10 @@ def explore_correlations(data: CorrelationInput, settings: ExploreSettings = Exp
         count = count_factors(data, settings.replications, settings.seed) if settings.count else None
         factors = settings.factors if settings.factors is not None else count.recommended
         settings = replace(settings, factors=factors)
+        if factors == 1 and settings.rotation.method is not RotationMethod.NONE:
+            # a rotation turns several factors: one factor's loadings are the same under every rotation, so the
+            # settings as run say none (the report and the draft describe what was done)
+            settings = replace(settings, rotation=RotationSpec(RotationMethod.NONE, seed=settings.seed).checked())
         fitted = count.fit_of(factors) if count is not None else None
         if fitted is not None and settings.extraction is ExtractionMethod.MAXIMUM_LIKELIHOOD:
             solution = fitted.solution

@@ -38,9 +38,15 @@ def header_lines(result) -> list[str]:
     kind = "polychoric" if ex.data.kind.value == "polychoric" else "Pearson"
     return [f"Data: {result.source}; {ex.data.n_obs} rows analysed{half} of {result.rows_read} read",
             f"Items ({len(result.items)}): {names_text(result.items)}",  # as --items takes them: commas stay inside
-            f"{ex.settings.extraction.value} extraction from the {kind} correlations; "
-            f"{ex.rotated.spec.method.value} rotation" + (" (oblique: the factors may correlate)" if ex.rotated.oblique
-                                                          else " (orthogonal: uncorrelated factors)")]
+            f"{ex.settings.extraction.value} extraction from the {kind} correlations; " + rotation_phrase(ex)]
+
+
+def rotation_phrase(ex) -> str:
+    """The rotation as run: none for one factor (a rotation turns several factors), whatever was asked."""
+    if ex.rotated.spec.method.value == "none":
+        return "no rotation (one factor)" if ex.factors == 1 else "no rotation (the factors as extracted, uncorrelated)"
+    return f"{ex.rotated.spec.method.value} rotation" + (" (oblique: the factors may correlate)" if ex.rotated.oblique
+                                                         else " (orthogonal: uncorrelated factors)")
 
 
 def count_table(result) -> ReportTable:

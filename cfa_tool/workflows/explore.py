@@ -100,6 +100,9 @@ class ExploreResult(Presentable):
     #: the answers file's statements for the draft model's items (the draft reads the data file as explore did)
     answer_statements: tuple[str, ...] = ()
     answer_coding: tuple = ()  # how answers recorded as words were coded (data.answer_words.coding_record)
+    #: the items of at most data.descriptives.FEW_CATEGORIES answer categories analysed as continuous (a note says
+    #: what that does to the loadings and how to explore them by polychoric correlations)
+    few_categories: tuple[str, ...] = ()
 
     @property
     def factors(self) -> int:
@@ -163,8 +166,8 @@ class ExploreResult(Presentable):
             else:
                 lines.append(NOTE_WORDS[note])
         if self.requested is not None and self.requested != count.recommended:
-            lines.append(f"The solution below has {self.requested} factors, as asked, not the {count.recommended} "
-                         f"recommended.")
+            lines.append(f"The solution below has {self.requested} factor{'s' if self.requested != 1 else ''}, as "
+                         f"asked, not the {count.recommended} recommended.")
         return lines
 
     def to_dict(self) -> dict:
@@ -175,7 +178,8 @@ class ExploreResult(Presentable):
             "problems": self.problems(),
             "data_problems": [p.to_dict() for p in self.data_problems],
             "data": {"source": self.source, "rows_read": self.rows_read, "rows_used": ex.data.n_obs,
-                     "correlations": ex.data.kind.value, "answer_coding": coding_json(self.answer_coding)},
+                     "correlations": ex.data.kind.value, "answer_coding": coding_json(self.answer_coding),
+                     "few_categories_analysed_as_continuous": list(self.few_categories)},
             "items": list(self.items),
             "factor_count": {
                 "recommended": count.recommended,
@@ -340,14 +344,24 @@ def column_role(name: str) -> str | None:
     return None
 
 
+#: a column whose values look like a grouping or a record (unlike_the_items) stays an item when it correlates this
+#: much (in absolute value) with one of the items: it varies with the answers, as an answer on a wider scale does
+#: (a 0-10 'recommend' question among items of 1 to 5), while a grade, a year or a school's number has no such
+#: relation.  A rule of thumb of this project: .30 is the loading commonly taken as salient, the draft's threshold
+#: (exploration.draft.DEFAULT_THRESHOLD), not a published cutoff for this purpose
+RELATED_TO_THE_ITEMS = 0.30
+
+
 def unlike_the_items(frame: pd.DataFrame, columns) -> tuple[list[tuple[str, float, float]], tuple[float, float] | None]:
-    """The columns among ``columns`` (of numbers) whose values look like a grouping or a record rather than answers:
-    few whole values (at most data.polychoric.MAX_CATEGORIES), none as low as the answer scale that most of
-    ``columns`` share begins (the lowest and highest value more than half of them hold, such as 1 to 4) and most of
-    them above its end: a grade of 5 to 9 among items answered 1 to 4, a year, an age in years.  A column that
-    reaches the scale's low end stays an item (answered 0 to 10 or 1 to 7 among items of 1 to 5), as does one
-    mostly on the scale (2 to 6).  Returns [(column, lowest, highest)] and the shared scale (None when no scale is
-    shared by most columns: then no column is left out by this rule)."""
+    """The columns among ``columns`` (of numbers) that look like a grouping or a record rather than answers: few
+    whole values (at most data.polychoric.MAX_CATEGORIES), none as low as the answer scale that most of ``columns``
+    share begins (the lowest and highest value more than half of them hold, such as 1 to 4) and most of them above
+    its end, and no relation to the items (no correlation of RELATED_TO_THE_ITEMS or more, in absolute value, with
+    any of the other columns, each from the rows that answered both): a grade of 5 to 9 among items answered 1 to 4,
+    a year, a school's number.  A column that reaches the scale's low end stays an item (answered 0 to 10 or 1 to 7
+    among items of 1 to 5), as does one mostly on the scale (2 to 6) and one whose answers go with the items' (a
+    0-10 'recommend' question answered 3 to 10).  Returns [(column, lowest, highest)] and the shared scale (None
+    when no scale is shared by most columns: then no column is left out by this rule)."""
     from collections import Counter
 
     from cfa_tool.data.polychoric import MAX_CATEGORIES
@@ -363,7 +377,33 @@ def unlike_the_items(frame: pd.DataFrame, columns) -> tuple[list[tuple[str, floa
     (low, high), _ = shared[0]
     found = [(c, float(v[0]), float(v[-1])) for c, v in distinct.items() if len(v) <= MAX_CATEGORIES
              and v[0] > low and 2 * int((v > high).sum()) > len(v)]
+    if found:
+        items = [c for c in columns if c not in {f[0] for f in found}]
+        related = _largest_correlations(frame, [f[0] for f in found], items)
+        found = [f for f, r in zip(found, related) if not r >= RELATED_TO_THE_ITEMS]
     return found, (low, high)
+
+
+def _largest_correlations(frame: pd.DataFrame, columns: list[str], items: list[str]) -> np.ndarray:
+    """For each of ``columns``, its largest absolute Pearson correlation with one of ``items``, each from the rows
+    that answered both (NaN when there is none: a constant column, or fewer than three rows in common)."""
+    x = frame[columns].apply(pd.to_numeric, errors="coerce").to_numpy(dtype=float)
+    y = frame[items].apply(pd.to_numeric, errors="coerce").to_numpy(dtype=float)
+    out = np.full(len(columns), np.nan)
+    if not items:
+        return out
+    for j in range(len(columns)):
+        both = np.isfinite(x[:, [j]]) & np.isfinite(y)  # rows x items: the pairs' rows
+        n = both.sum(axis=0)
+        xs, ys = np.where(both, x[:, [j]], 0.0), np.where(both, y, 0.0)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            mx, my = xs.sum(axis=0) / n, ys.sum(axis=0) / n
+            dx, dy = np.where(both, xs - mx, 0.0), np.where(both, ys - my, 0.0)
+            r = (dx * dy).sum(axis=0) / np.sqrt((dx * dx).sum(axis=0) * (dy * dy).sum(axis=0))
+        r = np.where(n >= 3, r, np.nan)
+        if np.isfinite(r).any():
+            out[j] = np.nanmax(np.abs(r))
+    return out
 
 
 def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: tuple = ()) -> str:
@@ -488,7 +528,8 @@ def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str
                "particulars or the survey's records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
                + f" (name them in {Option.ITEMS} to explore them)." if roles else "")
             + (f" Left out as groupings or records rather than answers (a few whole values, most of them above the "
-               f"{scale[0]:g} to {scale[1]:g} that most columns hold, as a grade or a year would be): "
+               f"{scale[0]:g} to {scale[1]:g} that most columns hold, and no correlation of "
+               f"{RELATED_TO_THE_ITEMS:.2f} or more with any item, as a grade or a year would be): "
                + ", ".join(f"{printable(c)} ({low:g} to {high:g})" for c, low, high in unlike)
                + f" (name them in {Option.ITEMS} to explore them)." if unlike else "")
             + _text_columns_phrase(frame, numeric + worded, codings))
@@ -511,6 +552,18 @@ def _refuse_too_few(chosen: tuple[str, ...], scan, codings: tuple) -> None:
         if text:
             hint += "; " + _answers_file_hint(frame, text)
     raise DataError(f"{scan.source}: {found}, and an exploratory factor analysis needs at least 3 items" + hint)
+
+
+def _refuse_too_few_named(chosen: tuple[str, ...]) -> None:
+    """The error when the items named are too few for a factor: a factor of one or two items alone is not
+    identified (Bollen 1989, ch. 7: the three-indicator rule), so an exploratory factor analysis needs at least three
+    items for each factor."""
+    if len(chosen) >= 3:
+        return
+    named = " and ".join(f"'{printable(c)}'" for c in chosen)
+    raise OptionError(f"{Option.ITEMS} names {'one item' if len(chosen) == 1 else 'two items'} ({named}), too few "
+                      f"for a factor: an exploratory factor analysis needs at least three items for each factor; name "
+                      f"more items")
 
 
 def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str, codings: tuple) -> None:
@@ -612,7 +665,7 @@ def _factor_choice(factors) -> int | None:
 
 
 def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[str, ...] | None = None,
-            factors: int | str | None = None, rotation: str | RotationMethod = RotationMethod.QUARTIMIN,
+            factors: int | str | None = None, rotation: str | RotationMethod | None = None,
             extraction: str | ExtractionMethod = ExtractionMethod.MAXIMUM_LIKELIHOOD,
             ordinal: str | list[str] | None = None, split: int | None = None, sheet: str | None = None,
             names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
@@ -627,7 +680,9 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     or groups, see :func:`column_role`); ``factors``: a whole number, or None / 'auto' for the recommended number; ``rotation``:
     varimax, quartimin (default), oblimin, geomin, promax, target (with ``target``: a matrix with NaN where
     unspecified, or the path of a target file, exploration.target_file, whose columns give the number of
-    factors) or none; ``extraction``: maximum-likelihood (default) or least-squares; ``ordinal``: 'all' or
+    factors) or none; None (the default) is quartimin, or target rotation with a ``target``; a rotation turns several
+    factors, so one chosen with one factor asked for is an error, and one chosen when the rules recommend one factor
+    is not applied, with a note first saying so; ``extraction``: maximum-likelihood (default) or least-squares; ``ordinal``: 'all' or
     items to analyse by polychoric correlations (ranges such as 'item1..item9' among them); ``split``: a seed: explore one random half of the rows and fit
     the draft model on the other; ``replications`` and ``seed``: of parallel analysis and the rotation's random
     starts; ``threshold``: the loading at which an item counts on a factor in the draft model; ``answers``: the
@@ -654,6 +709,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         raise OptionError(f"{source}: the column name '{next(c for c in columns if columns.count(c) > 1)}' appears twice")
     chosen = item_names(items, columns, source)
     by_default = chosen is None
+    if not by_default:
+        _refuse_too_few_named(chosen)
     item_note = None
     if by_default:
         chosen, item_note, worded = _default_items(scan, columns, codings)
@@ -678,6 +735,9 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
                      + " Check that no other column (age, grade, a code) is among the items.")
         _refuse_too_few(chosen, scan, codings)
     requested = _factor_choice(factors)
+    chosen_rotation = rotation is not None or target is not None  # the caller's choice, not the default
+    if rotation is None:
+        rotation = RotationMethod.TARGET if target is not None else RotationMethod.QUARTIMIN
     rotation_method = options.choice(RotationMethod, rotation, "the rotation")
     extraction_method = options.choice(ExtractionMethod, extraction, "the extraction")
     if rotation_method is RotationMethod.TARGET and target is None:
@@ -700,6 +760,9 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
             raise OptionError(f"{Option.FACTORS.given(requested)} asks for {requested} factors, and the target file "
                               f"{target_file.source} has "
                               f"{len(target_file.factors)} factor columns")
+    turning = chosen_rotation and rotation_method is not RotationMethod.NONE
+    if turning and requested == 1:
+        _refuse_rotation_of_one_factor(rotation_method, target_file)
     ordinal_items = _ordinal_items(ordinal, chosen)
     # values that look like no answers among the rows read (both halves of a split): first in every view
     # and items answered alike by all rows but a few, as fit names them (pipeline.inputs.few_answers_problems)
@@ -717,11 +780,18 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         frame = explored
     names = tuple(chosen)
     correlations = _correlations(frame, names, source, ordinal_items, notes)
+    few = _few_categories(frame, names, ordinal_items, source)
+    if few:
+        notes.append(few_categories_note(few, names, ordinal_items))
     settings = ExploreSettings(factors=requested, extraction=extraction_method,
                                rotation=RotationSpec(rotation_method, target=target), replications=replications,
                                seed=seed, count=True, threshold=threshold,
                                factor_names=target_file.factors if target_file is not None else None)
     exploration = explore_correlations(correlations, settings)
+    if turning and exploration.factors == 1:  # the rules chose one factor: the rotation asked for cannot apply
+        notes.insert(0, f"No rotation: the rules for the number of factors recommend one factor, and a rotation turns "
+                        f"several factors towards a simpler pattern; the {rotation_method.value} rotation asked for "
+                        f"does not apply, and the loadings shown are the one factor's, unrotated.")
     sample_problems, sample_notes = sample_size_problems([exploration.data.n_obs],
                                                          [exploratory_parameters(len(names), exploration.factors)])
     notes.extend(sample_notes)
@@ -740,7 +810,63 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     if halves is not None:
         split_result = _confirm(exploration, halves, split, source, statements)
     return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
-                         sorted_items(exploration), sample_problems + data_problems, statements, coding_record(spec))
+                         sorted_items(exploration), sample_problems + data_problems, statements, coding_record(spec),
+                         few)
+
+
+def _few_categories(frame: pd.DataFrame, names: tuple[str, ...], ordinal_items: tuple[str, ...],
+                    source: str) -> tuple[str, ...]:
+    """The items analysed as continuous whose answers take at most FEW_CATEGORIES whole values (the rule a fit
+    names them by: data.descriptives.few_category_items)."""
+    from cfa_tool.data.descriptives import few_category_items
+    from cfa_tool.data.moments import _numeric_rows
+
+    continuous = tuple(x for x in names if x not in ordinal_items)
+    return few_category_items(_numeric_rows(frame, continuous, source), continuous) if continuous else ()
+
+
+def few_categories_note(few: tuple[str, ...], names: tuple[str, ...], ordinal_items: tuple[str, ...] = ()) -> str:
+    """The note of an exploration that analyses ``few`` (of the items ``names``), answered in at most FEW_CATEGORIES
+    categories, as continuous: what its correlations then are, what that does to the loadings, and the option that
+    analyses them by polychoric correlations (with the items ``ordinal_items`` analysed so already).  Four categories, not five: treating answers as continuous does about
+    as well as treating them as ordered categories from five categories on, and understates the loadings below
+    that (Rhemtulla, Brosseau-Liard & Savalei 2012, recalled from memory; the rule fit's note uses,
+    data.descriptives.FEW_CATEGORIES)."""
+    from cfa_tool.data.descriptives import FEW_CATEGORIES
+    from cfa_tool.language.names import written_name
+
+    listed = ", ".join(printable(x) for x in few[:8]) + (f" and {len(few) - 8} more" if len(few) > 8 else "")
+    subject = (f"All {len(names)} items ({listed}) have" if len(few) == len(names) else
+               f"{len(few)} of the {len(names)} items ({listed}) {'has' if len(few) == 1 else 'have'}")
+    ordinal = tuple(x for x in names if x in few or x in ordinal_items)  # those of the option, in the items' order
+    if len(ordinal) == len(names):
+        option = Option.ORDINAL.given("all")
+    elif interface() is Interface.COMMAND_LINE:
+        option = Option.ORDINAL.given(",".join(written_name(x) for x in ordinal))
+    else:
+        option = Option.ORDINAL.given(list(ordinal))
+    how = ("explore's correlations of these answers are Pearson correlations, which treat them as continuous"
+           if not ordinal_items else
+           "explore treats these answers as continuous (Pearson correlations among them, polyserial ones with the "
+           "items analysed as ordinal)")
+    return (f"{subject} at most {FEW_CATEGORIES} answer categories, and {how}: with so few categories these "
+            f"correlations, and with them the loadings and communalities, tend to come out smaller than those of the "
+            f"responses behind the answers, so that items can seem weaker than they are "
+            f"(Rhemtulla, Brosseau-Liard & Savalei 2012). Polychoric correlations estimate the correlations of those "
+            f"responses: {option} explores the items by them.")
+
+
+def _refuse_rotation_of_one_factor(method: RotationMethod, target_file) -> None:
+    """The error of a rotation chosen for one factor (an option that cannot apply): a rotation turns several factors,
+    and one factor's loadings are the same under every rotation."""
+    if target_file is not None:
+        raise OptionError(f"{target_file.source}: the target file has one factor column, and a target rotation turns "
+                          f"several factors (one factor's loadings are the same under every rotation); explore one "
+                          f"factor without {Option.TARGET}, or give the target file a column for each factor")
+    raise OptionError(f"{Option.ROTATION.given(method.value)} turns several factors, and {Option.FACTORS.given(1)} "
+                      f"asks for one (its loadings are the same under every rotation); leave out {Option.ROTATION}"
+                      + (f" and {Option.TARGET}" if method is RotationMethod.TARGET else "")
+                      + f", or ask for more factors")
 
 
 def exploratory_parameters(items: int, factors: int) -> int:
