@@ -866,7 +866,7 @@ def _refuse_rotation_of_one_factor(method: RotationMethod, target_file) -> None:
     raise OptionError(f"{Option.ROTATION.given(method.value)} turns several factors, and {Option.FACTORS.given(1)} "
                       f"asks for one (its loadings are the same under every rotation); leave out {Option.ROTATION}"
                       + (f" and {Option.TARGET}" if method is RotationMethod.TARGET else "")
-                      + f", or ask for more factors")
+                      + ", or ask for more factors")
 
 
 def exploratory_parameters(items: int, factors: int) -> int:
