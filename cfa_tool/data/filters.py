@@ -169,6 +169,14 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
 
     notes = []
     counted = []
+    given: dict[tuple, RowFilter] = {}
+    for f in filters:  # a filter given twice keeps the same rows: a slip for another filter (an option that adds nothing)
+        key = (f.column, f.operator, f.value)
+        if key in given:
+            raise OptionError(f"row filter '{printable(f)}' is given twice"
+                              + (f" (also as '{printable(given[key])}')" if str(given[key]) != str(f) else "")
+                              + "; give it once (or give the other filter you meant)")
+        given[key] = f
     for f in filters:
         if f.column not in frame.columns:
             guess = close_names(f.column, [str(c) for c in frame.columns])
