@@ -21,7 +21,7 @@ def add_parser(sub) -> None:
     O.add_renamed(p, "--group", O.GROUP_NOW)
     p.add_argument("--reference-group", metavar="LABEL",
                    help="group whose factor variances are 1 and, unless its means are estimated, means 0 (default: "
-                        "the first label in sorted order)")
+                        f"{O.DEFAULT_REFERENCE})")
     p.add_argument("--reference-mean", choices=ReferenceMean.words(), default=ReferenceMean.ZERO.value,
                    help="the reference group's factor means: 'zero' (default), or 'estimated' from the non-invariance "
                         "of the loadings")

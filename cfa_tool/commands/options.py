@@ -104,6 +104,9 @@ def no_answer_words(args: argparse.Namespace) -> tuple[str, ...]:
 
 
 GROUP_NOW = "name the column whose values are the groups with --group-column COLUMN"
+#: the default reference group in --help, as data.groups.default_reference chooses it
+DEFAULT_REFERENCE = ("a categorical column's first category; of codes with value labels, the lowest code's group; "
+                     "otherwise the first label in sorted order, numbers by value")
 
 
 def add_group_options(p: argparse.ArgumentParser, required: bool) -> None:
@@ -112,7 +115,7 @@ def add_group_options(p: argparse.ArgumentParser, required: bool) -> None:
                         "and factor means")
     add_renamed(p, "--group", GROUP_NOW)
     p.add_argument("--reference-group", metavar="LABEL",
-                   help="group whose factor means are fixed at zero (default: the first label in sorted order)")
+                   help=f"group whose factor means are fixed at zero (default: {DEFAULT_REFERENCE})")
 
 
 def add_test_option(p: argparse.ArgumentParser) -> None:

@@ -210,6 +210,10 @@ def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> 
             message += f"; {CONTINUES}"
         if _name_goes_on(exc, lines, line, column):
             message += f"; {QUOTE_HINT}, and names in a list are separated by commas"
+        written = lines[line - 1].split("#", 1)[0].strip() if 1 <= line <= len(lines) else ""
+        if written.split(" ", 1)[0] == "reversed" and "ON" in set(exc.accepts or exc.expected):
+            message += (f"; a 'reversed' statement ends with the scale's lowest and highest possible answers, as in "
+                        f"'{clip(written, 60)} on 1 to 5' for answers from 1 to 5")
     else:  # pragma: no cover - Lark has no other public kinds
         message = "the model text cannot be read here"
     source_line = lines[line - 1] if 1 <= line <= len(lines) else None

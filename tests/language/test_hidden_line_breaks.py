@@ -65,3 +65,10 @@ def test_the_model_file_is_refused_by_fit_too(tmp_path: Path):
     model.write_text(MODEL + "# note\u2028covary a, d\n", encoding="utf-8")
     with pytest.raises(ModelError):
         fit(model, data)
+
+
+def test_a_reversed_statement_without_its_scale_shows_the_whole_form():
+    """A new user (sixteenth round) wrote 'reversed sq3, df2, ds4' and read only "expected 'on'"."""
+    with pytest.raises(ModelError) as err:
+        parse_model(MODEL + "reversed a, e\n", source="m.cfa")
+    assert "'reversed a, e on 1 to 5' for answers from 1 to 5" in str(err.value)
