@@ -512,6 +512,7 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None) -> tuple[str, s
         by_value.setdefault((f.kind, f.value, f.label if f.kind is NonAnswerKind.LABELLED else None), []).append(f)
     parts = []
     for group in by_value.values():
+        group = sorted(group, key=lambda f: -len(f.rows))  # the items most affected first (those past SHOWN: fewest)
         cells = sum(len(f.rows) for f in group)
         listed = ", ".join(f"{printable(f.column)} {len(f.rows)}" for f in group[:SHOWN])
         more = f" and {_more(len(group) - SHOWN, 'item')}" if len(group) > SHOWN else ""
