@@ -1270,8 +1270,31 @@ def check_report(found) -> Report:
     notice = T.problem_notice(found)
     if notice is not None:
         notice = ProblemNotice(T.DATA_CAUTION, notice.lines, False)
+    if found.refusals:  # what stops an ordinal fit: every one, before the cautions
+        notice = ProblemNotice(STOPS_ORDINAL_FIT.format(n=len(found.refusals), s="s" if len(found.refusals) > 1 else ""),
+                               tuple(found.refusals) + (notice.lines if notice is not None else ()), True)
     # summary statistics hold no rows, so no share of rows answering
-    return Report(ResultKind.CHECK, "Model check", notice, tuple(lines), (table,) if found.coverage else ())
+    return Report(ResultKind.CHECK, "Model check", notice, tuple(lines),
+                  ((table,) if found.coverage else ()) + _answer_tables(found))
+
+
+#: the heading of a check's notice when the data stop an ordinal fit (each refusal a line, then the cautions)
+STOPS_ORDINAL_FIT = "{n} problem{s} in the data stop an ordinal fit: fix each before fitting"
+
+
+def _answer_tables(found) -> tuple[ReportTable, ...]:
+    """A check's tables of answers per category (data.answer_counts), one per group, with the items not shown named:
+    those of more different answers than an ordinal item may have, or of answers that are not whole numbers."""
+    if not found.answers:
+        return ()
+    several = len(found.answers) > 1
+    shown = set(found.answers[0].items)
+    others = [x for x in found.spec.observed_names if x not in shown]
+    left = (f" Not shown: {', '.join(others)} (more different answers than an ordinal item may have, or answers that "
+            f"are not whole numbers)." if others else "")
+    return tuple(T.answer_table(a, f"categories_{k}", f" in group {written_group(a.group, tuple(found.groups))}" if several else "", groups=several,
+                                analysed=" (rows with an answer, before any fit)", after=left)
+                 for k, a in enumerate(found.answers))
 
 
 BUILDERS = {ResultKind.COMPARE: comparison_report, ResultKind.INVARIANCE: invariance_report,
