@@ -34,7 +34,9 @@ def run(args: argparse.Namespace) -> int:
                   **O.reading_args(args), **O.design_args(args))
     emit(args, found)
     if found.refusals:  # listed in the report, each with its place; the exit code says the data cannot be fitted
-        print(f"cfa-tool: {printable(found.source)}: {len(found.refusals)} problem{'s' if len(found.refusals) > 1 else ''} in the "
-              f"data stop an ordinal fit (listed first in the report)", file=sys.stderr)
+        from cfa_tool.reporting.workflow_tables import stops_ordinal_fit
+
+        print(f"cfa-tool: {printable(found.source)}: {stops_ordinal_fit(len(found.refusals))} (listed first in the "
+              f"report)", file=sys.stderr)
         return DataError.exit_code
     return 0

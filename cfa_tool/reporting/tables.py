@@ -12,7 +12,7 @@ from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST, MissingData, WeightKind
-from cfa_tool.note_parts import Text, read, said, saved
+from cfa_tool.note_parts import Note, TableReference, Text, read, said, saved
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
@@ -1203,9 +1203,9 @@ def _weights_column(result) -> str | None:
     return design.columns.weights if design is not None else None
 
 
-def category_table(result, group: int = 0) -> ReportTable | None:
-    """Ordinal items of a fit: how many rows gave each answer (with the share), per item, in the one table of answers
-    per category (:func:`answer_table`) that ``check`` shows before the fit."""
+def fit_answer_counts(result, group: int = 0):
+    """The answers per category (data.answer_counts.AnswerCounts) of a fit's ordinal items in group ``group``, from
+    the counts the fit kept; None without ordinal items."""
     from cfa_tool.data.answer_counts import AnswerCounts
 
     d = result.groups[group].data
@@ -1217,14 +1217,45 @@ def category_table(result, group: int = 0) -> ReportTable | None:
     scale = tuple(tuple(v for v in codes if cats[0][0] <= v <= cats[-1][0]) for _, cats in shown)
     names = tuple(name for name, _ in shown)
     labels = fit_answer_labels(result, names)
-    answers = AnswerCounts(result.groups[group].label, names, codes, counts, scale,
-                           tuple(tuple((v, labels[name][v]) for v in codes if v in labels.get(name, {}))
-                                 for name in names))
+    return AnswerCounts(result.groups[group].label, names, codes, counts, scale,
+                        tuple(tuple((v, labels[name][v]) for v in codes if v in labels.get(name, {})) for name in names))
+
+
+def category_table(result, group: int = 0) -> ReportTable | None:
+    """Ordinal items of a fit: how many rows gave each answer (with the share), per item, in the one table of answers
+    per category (:func:`answer_table`) that ``check`` shows before the fit."""
+    answers = fit_answer_counts(result, group)
+    if answers is None:
+        return None
     weights = _weights_column(result)
     return answer_table(answers, f"categories_{group}", _in_group(result, answers.group), groups=result.multigroup,
                         analysed=" (rows analysed" + ("" if weights is None else ", each counted once: unweighted")
                         + ")", after="" if weights is None else
                         f" Rows are counted once each, unweighted; the thresholds use the shares weighted by {weights}.")
+
+
+def few_answers_warning(result) -> Note | None:
+    """A caution among an ordinal fit's first lines when some category of an item was given by few rows
+    (data.answer_counts.AnswerCounts.sparse), naming them, with the table of answers per category where they are
+    marked; None when there are none.  The table itself stays with the data, where a methods reader looks for the
+    items' distributions; what it finds wrong comes first, as every problem does."""
+    found, key = [], None
+    for g in range(len(result.groups)):
+        answers = fit_answer_counts(result, g)
+        if answers is None:
+            continue
+        where = _in_group(result, answers.group)
+        cells = [f"{name} {v:g} ({c} row{'' if c == 1 else 's'}){where}" for i, name in enumerate(answers.items)
+                 for j, (v, c) in enumerate(zip(answers.codes, answers.counts[i])) if answers.sparse(i, j)]
+        if cells and key is None:
+            key = f"categories_{g}"
+        found += cells
+    if not found:
+        return None
+    return Note((f"Categories of ordinal items given by few rows (fewer than 5, or 1% of the item's answers when that "
+                 f"is more: a rule of thumb of this project): {_listed(found)}; a threshold next to such a category "
+                 f"rests on those few answers and is unstable; check those answers first (marked '{FEW_ANSWERS_MARK}' "
+                 f"in ", TableReference(key), ")."))
 
 
 def fit_answer_labels(result, items=None) -> dict[str, dict[float, str]]:

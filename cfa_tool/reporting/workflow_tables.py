@@ -1271,15 +1271,17 @@ def check_report(found) -> Report:
     if notice is not None:
         notice = ProblemNotice(T.DATA_CAUTION, notice.lines, False)
     if found.refusals:  # what stops an ordinal fit: every one, before the cautions
-        notice = ProblemNotice(STOPS_ORDINAL_FIT.format(n=len(found.refusals), s="s" if len(found.refusals) > 1 else ""),
+        notice = ProblemNotice(f"{stops_ordinal_fit(len(found.refusals))}: fix each before fitting",
                                tuple(found.refusals) + (notice.lines if notice is not None else ()), True)
     # summary statistics hold no rows, so no share of rows answering
     return Report(ResultKind.CHECK, "Model check", notice, tuple(lines),
                   ((table,) if found.coverage else ()) + _answer_tables(found))
 
 
-#: the heading of a check's notice when the data stop an ordinal fit (each refusal a line, then the cautions)
-STOPS_ORDINAL_FIT = "{n} problem{s} in the data stop an ordinal fit: fix each before fitting"
+def stops_ordinal_fit(n: int) -> str:
+    """The heading of a check's notice when the data stop an ordinal fit (each of the ``n`` refusals a line, then the
+    cautions), and the words of its exit's one line."""
+    return f"{n} problem{' in the data stops' if n == 1 else 's in the data stop'} an ordinal fit"
 
 
 def _answer_tables(found) -> tuple[ReportTable, ...]:
