@@ -1284,7 +1284,7 @@ def answer_table(answers, key: str, where: str = "", groups: bool = False, analy
     ``analysed``: the title's words on the rows counted; ``after``: the note's last words."""
     codes = answers.codes
     shared = _shared_labels(answers)
-    rows, values, flagged, few, none = [], [], [], [], []
+    rows, values, flagged, few, none, ends = [], [], [], [], [], set()
     for i, name in enumerate(answers.items):
         total = answers.answered(i) or 1
         cells = []
@@ -1299,6 +1299,8 @@ def answer_table(answers, key: str, where: str = "", groups: bool = False, analy
                 cells.append(f"{c} ({100 * c / total:.0f}%)" + (f" {FEW_ANSWERS_MARK}" if answers.sparse(i, j) else ""))
                 if answers.sparse(i, j):
                     few.append(f"{name} {v:g} ({c} row{'' if c == 1 else 's'})")
+                    if v in (answers.scale[i][0], answers.scale[i][-1]):  # the lowest or highest answer: a stray value?
+                        ends.add(v)
         if answers.flagged(i):
             flagged.append(len(rows))
         rows.append([name, *cells])
@@ -1316,9 +1318,12 @@ def answer_table(answers, key: str, where: str = "", groups: bool = False, analy
                  + (", in any group" if groups else "") + ") that no row gave"
                  + ("; an ordinal fit of the groups stops there, since thresholds are compared across groups"
                     if groups else "; an ordinal fit estimates no threshold for it") + f" ({_listed(none)}).")
+    stray = ",".join(f"{v:g}" for v in sorted(ends))
     if few or none:
-        note += (" Check such an answer first: a typing error or a code for no answer can be given as missing; a real "
-                 "answer's category can be merged with its neighbour's in a copy of the data file.")
+        note += (" Check such an answer first: "
+                 + (f"if {stray.replace(',', ' or ')} is a typing error or a code for no answer, give --missing-codes "
+                    f"{stray}; " if ends else "a typing error or a code for no answer can be given as missing; ")
+                 + "a real answer's category can be merged with its neighbour's in a copy of the data file.")
     columns = [("Item", "l")] + [(f"{v:g} {shared[v]}" if shared else f"{v:g}", "r") for v in codes]
     return _table(key, f"Answers per category{where}{analysed}", columns, rows, note + after,
                   flagged=tuple(flagged), values=(["Item"] + [f"Answer {v:g} rows" for v in codes], values))
