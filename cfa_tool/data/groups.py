@@ -276,3 +276,44 @@ def pooled(moments: list[SampleMoments]) -> tuple[np.ndarray, np.ndarray]:
     cov = sum(m.n_obs * m.covariance for m in moments) / n
     mean = sum(m.n_obs * m.means for m in moments) / n
     return cov, mean
+
+
+def ordinal_refusals(frame: pd.DataFrame, names: tuple[str, ...], source: str,
+                     continuous: frozenset[str] = frozenset(), column: str | None = None,
+                     reference: str | None = None, pairwise: bool = True) -> tuple[str, ...]:
+    """Every refusal of the ordinal items' answers that a fit stops at first, each with its place, for a check to
+    list them all at once (a researcher should not fix one at a time): fractional answers, item by item (the first
+    row of each); an item of a single category or of more categories than an ordinal item may have; and, with groups
+    (``column``), the categories other groups used that a group left empty (one finding naming them all, with the
+    ways past them).  Among the rows a fit analyses: every answer with ``pairwise``, else the complete rows.  Empty
+    when the fit would pass these checks (its correlations can still fail it)."""
+    from cfa_tool.data.polychoric import category_count_refusal, check_whole_answers, empty_categories_in_groups
+
+    ordinal = [j for j, name in enumerate(names) if name not in continuous]
+    values = numeric_columns(frame, names, source)
+    found, whole = [], []
+    for j in ordinal:
+        try:
+            check_whole_answers(values[:, [j]], frame, (names[j],), source)
+            whole.append(j)
+        except DataError as refused:
+            found.append(str(refused))
+    analysed = values if pairwise else values[~np.isnan(values).any(axis=1)]
+    levels = {}
+    for j in whole:
+        column_values = analysed[:, j]
+        levels[names[j]] = tuple(float(v) for v in np.unique(column_values[~np.isnan(column_values)]))
+        refused = category_count_refusal(source, "", names[j], levels[names[j]]) if levels[names[j]] else None
+        if refused is not None:
+            found.append(refused)
+    if column is not None and levels:  # the groups' categories, of the items whose answers can be categories
+        skipped = frozenset(name for name in names if name not in levels)  # continuous, or refused above
+        split, _ = group_rows(frame, column, source, reference)
+        labels = [label for label, _ in split]
+        try:
+            empty_categories_in_groups([part for _, part in split], [f" (group '{label}' of {column})" for label in labels],
+                                       names, source, levels, pairwise, skipped,
+                                       [leaving_out(column, label) for label in labels])
+        except DataError as refused:
+            found.append(str(refused))
+    return tuple(found)

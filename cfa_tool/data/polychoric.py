@@ -378,11 +378,9 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                                               frame.attrs.get(CODED_BY_STATEMENT, {}))
         else:
             item_levels = seen
-        if len(item_levels) < 2:
-            raise DataError(f"{source}{where}: ordinal item '{name}' has a single category ({item_levels[0]:g}); it needs at least two")
-        if len(item_levels) > MAX_CATEGORIES:
-            raise DataError(f"{source}{where}: ordinal item '{name}' has {len(item_levels)} categories; with more than "
-                            f"{MAX_CATEGORIES} treat it as continuous")
+        refused = category_count_refusal(source, where, name, item_levels)
+        if refused is not None:
+            raise DataError(refused)
         levels_j = item_levels
         codes[rows_j, j] = np.searchsorted(levels_j, x)
         counts = np.bincount(codes[rows_j, j], weights=None if w is None else w[rows_j], minlength=len(levels_j))
@@ -471,6 +469,17 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                           R, gamma, codes, means, sds, frozenset(continuous), joint_gamma,
                           pair_counts if pairwise else None, rows_design,
                           joint if rows_design is not None else None, mixed_gamma)
+
+
+def category_count_refusal(source: str, where: str, name: str, levels) -> str | None:
+    """Why the ordinal item ``name`` with the categories ``levels`` cannot be fitted (a single category, or more than
+    :data:`MAX_CATEGORIES`), with its place; None when its number of categories can be."""
+    if len(levels) < 2:
+        return f"{source}{where}: ordinal item '{name}' has a single category ({levels[0]:g}); it needs at least two"
+    if len(levels) > MAX_CATEGORIES:
+        return (f"{source}{where}: ordinal item '{name}' has {len(levels)} categories; with more than "
+                f"{MAX_CATEGORIES} treat it as continuous")
+    return None
 
 
 def _rare_listed(rare: list[tuple[str, float, int]]) -> str:

@@ -1883,12 +1883,15 @@ def _small_group_problems(refused: SmallGroupsError) -> tuple:
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,
           sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None,
           missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), rename=None, reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
-          strata: str | None = None, weight_kind: str | None = None) -> CheckResult:
+          strata: str | None = None, weight_kind: str | None = None, ordinal=None) -> CheckResult:
     """Parse and validate a model against data without fitting it; the result says how many rows
     are complete, how many have gaps (kept by default) and each item's
     coverage.  A sampling design (``weights``, ``cluster``, ``strata``, ``weight_kind``, as for :func:`fit`) is
     checked as the fit checks it and stated: the sum of the weights, Kish's effective sample size, the
-    clusters and strata, with the caution a fit would give about too few clusters."""
+    clusters and strata, with the caution a fit would give about too few clusters.  ``ordinal`` ('all' or item
+    names, as for :func:`fit`) checks those items as an ordinal fit would, beside those the model declares ordinal;
+    every refusal of their answers that such a fit stops at first is listed (``refusals``), and for ordinal items or
+    items of few answer categories the answers per category of every item (``answers``, per group)."""
     from cfa_tool.assessment.admissibility import group_parameter_counts, group_size_problems, one_sample_size_problems
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
@@ -1906,7 +1909,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         if reference_group is not None:
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
         spec = load_spec(model)
-        refuse_ordinal_for_summary(spec, None, None)
+        refuse_ordinal_for_summary(spec, ordinal, None)
         refuse_for_summary_statistics(spec, f"'{data}'")
         moments, _ = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
@@ -1920,8 +1923,17 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     if design is not None:
         frame, design_notes = check_design(frame, design, spec.observed_names, group, source, loaded.weights)
         notes += design_notes
-    ordinal_items = ordinal_items_of(spec, None)
-    if ordinal_items:  # the same data checks as the fit (categories, empty cells in groups, duplicates)
+    ordinal_items = ordinal_items_of(spec, ordinal)
+    refusals = ()
+    if ordinal_items:  # every refusal of the answers' categories at once, then the fit's other data checks
+        from cfa_tool.data.groups import ordinal_refusals
+
+        if group is not None:
+            _check_group_column(spec, group)
+        refusals = ordinal_refusals(frame, spec.observed_names, source,
+                                    frozenset(x for x in spec.observed_names if x not in ordinal_items), group,
+                                    reference_group)
+    if ordinal_items and not refusals:  # the same data checks as the fit (correlations, duplicates)
         if group is not None:
             ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise=True)
         else:
@@ -1989,5 +2001,30 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        group_parameters=tuple(group_parameter_counts(table)) if labels and not ordinal_items else (),
                        zero_weight=len(loaded.frame) - len(frame),
                        empty_rows=tuple(int(r) for r in row_numbers(answered)[unanswered]),
-                       row_naming=row_naming(frame), text_lines=dict(text_lines(frame)))
+                       row_naming=row_naming(frame), text_lines=dict(text_lines(frame)),
+                       answers=_answers_per_category(spec, frame, source, group, reference_group, ordinal_items,
+                                                     loaded),
+                       refusals=refusals)
+
+
+def _answers_per_category(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,
+                          reference_group: str | None, ordinal_items: set[str], loaded: LoadedData) -> tuple:
+    """A check's answers per category (data.answer_counts) of every item whose answers are few whole numbers (at
+    most as many as an ordinal item may have), in each group, when some item is ordinal or has few answer
+    categories (data.descriptives.few_category_items); () otherwise.  The categories are named by the data file's
+    value labels, or by the words an 'answers' statement codes."""
+    from cfa_tool.data.answer_counts import answer_counts, category_items
+    from cfa_tool.data.answer_words import CODED_BY_STATEMENT
+    from cfa_tool.data.polychoric import MAX_CATEGORIES
+
+    parts, _ = _group_parts(spec, frame, source, group, reference_group)
+    values = np.vstack([v for _, v in parts]) if parts else np.zeros((0, len(spec.observed_names)))
+    if not ordinal_items and not few_category_items(values, spec.observed_names):
+        return ()
+    items = category_items(values, spec.observed_names, MAX_CATEGORIES)
+    labels = {name: dict(codes) for name, codes in loaded.value_labels.items() if name in items}
+    for name, coded in frame.attrs.get(CODED_BY_STATEMENT, {}).items():
+        if name in items:
+            labels[name] = {code: word for word, _, code in coded if word is not None}
+    return answer_counts(parts, spec.observed_names, items, labels) if items else ()
 

@@ -118,6 +118,11 @@ class CheckResult(Presentable):
     row_naming: RowNaming = RowNaming.FILE_ROW
     #: the text lines of a text file's rows that start on a line of another number (data.kept_rows.text_lines)
     text_lines: dict[int, int] = field(default_factory=dict, compare=False)
+    #: the answers per category of the items of few answer categories (data.answer_counts.AnswerCounts), one per
+    #: group (one without groups); () when no item is ordinal or of few categories
+    answers: tuple = ()
+    #: what stops an ordinal fit of these data, each refusal with its place, all of them (a fit stops at the first)
+    refusals: tuple[str, ...] = ()
 
     @property
     def admissible(self) -> bool:
@@ -191,7 +196,9 @@ class CheckResult(Presentable):
                 "problems": [p.to_dict() for p in self.problems],
                 "rows_counted_by_frequency_weights": None if self.counted is None else dict(zip(
                     ("read", "complete", "with_gaps", "without_answers"), self.counted)),
-                "notes": [str(x) for x in self.notes]}
+                "notes": [str(x) for x in self.notes],
+                "stops_an_ordinal_fit": list(self.refusals),
+                "answers_per_category": [a.to_dict() for a in self.answers]}
 
 
 @dataclass(frozen=True)

@@ -95,7 +95,8 @@ def fit_report(result) -> Report:
     as written and the cautions."""
     d = result.data
     lines = (f"Model file: {result.model_source}", f"Data: {d.source}; {T.rows_phrase(d, getattr(result, 'design', None))}", T.status_line(result))
-    warnings = (tuple(result.warnings) + _two_factor_higher_order(result)
+    few = T.few_answers_warning(result)  # categories of ordinal items given by few rows: first, with the table named
+    warnings = (tuple(result.warnings) + (() if few is None else (few,)) + _two_factor_higher_order(result)
                 + (() if result.converged else (NOT_CONVERGED,)))
     figures = tuple(Figure("Path diagram of the fitted model" + ("" if g.label is None else f", group {g.label}")
                            + " (standardized values)", partial(_path_diagram, result, k))

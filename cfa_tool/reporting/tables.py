@@ -12,7 +12,7 @@ from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST, MissingData, WeightKind
-from cfa_tool.note_parts import Text, read, said, saved
+from cfa_tool.note_parts import Note, TableReference, Text, read, said, saved
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
@@ -605,19 +605,6 @@ def _same_values(a, b) -> bool:
     return bool(len(x)) and bool(np.allclose(x, y, rtol=1e-9, atol=1e-12, equal_nan=True))
 
 
-def _coded_words(result, items) -> str:
-    """The words the model's 'answers' statements code among ``items`` (' Codes of the answers: 1 Never, ...'),
-    each statement's items named when they are not all of them; '' without such statements."""
-    parts = []
-    for covered, answers in result.data.answer_coding:
-        mine = [x for x in items if x in set(covered)]
-        listed = ", ".join(f"{code:g} {word}" for word, _, code in sorted(answers, key=lambda a: a[2])
-                           if word is not None)
-        if mine and listed:
-            parts.append(listed + ("" if len(mine) == len(items) else f" ({', '.join(mine)})"))
-    return f" Codes of the answer words: {'; '.join(parts)}." if parts else ""
-
-
 def _threshold_answers(result, label) -> dict[tuple[str, str], str]:
     """(item, step) -> the two answers a threshold lies between ('2 and 3'; the words of an 'answers' statement
     when the model gives them, else the value labels of the data file, 'never and sometimes'), from the answers the
@@ -627,11 +614,8 @@ def _threshold_answers(result, label) -> dict[tuple[str, str], str]:
     data = next((g.data for g in result.groups if g.label == label), None)
     if data is None or not data.categories:
         return {}
-    labelled = (result.labels or {}).get("values", {})
-    words = {(item, float(code)): str(text).strip() for item, codes in labelled.items()
-             for code, text in codes.items() if _code_number(code) is not None and str(text).strip()}
-    words.update({(item, code): word for items, answers in result.data.answer_coding for item in items
-                  for word, _, code in answers if word is not None})
+    words = {(item, code): word for item, labelled in fit_answer_labels(result).items()
+             for code, word in labelled.items()}
     out = {}
     for item, cats in zip(data.variables, data.categories):
         codes = [v for v, _ in cats]
@@ -1219,43 +1203,157 @@ def _weights_column(result) -> str | None:
     return design.columns.weights if design is not None else None
 
 
-def category_table(result, group: int = 0) -> ReportTable | None:
-    """Ordinal items: how many rows gave each answer (with the share), per item."""
+def fit_answer_counts(result, group: int = 0):
+    """The answers per category (data.answer_counts.AnswerCounts) of a fit's ordinal items in group ``group``, from
+    the counts the fit kept; None without ordinal items."""
+    from cfa_tool.data.answer_counts import AnswerCounts
+
     d = result.groups[group].data
     if not d.categories or not any(d.categories):
         return None
-    codes = sorted({v for cats in d.categories for v, _ in cats})  # the columns: the answer codes themselves
-    rows, values, single, flagged, ends = [], [], [], [], set()
-    for name, cats in zip(d.variables, d.categories):
-        if not cats:
-            continue
-        total = sum(c for _, c in cats) or 1
-        count = dict(cats)
-        if 1 in count.values():  # a category of one answer: the item's row is flagged
-            flagged.append(len(rows))
-            single += [f"{name} {v:g}" for v, c in cats if c == 1]
-            ends |= {v for v, c in (cats[0], cats[-1]) if c == 1}  # the lowest or highest answer: a stray value?
-        rows.append([name] + [f"{count[v]} ({100 * count[v] / total:.0f}%)" if v in count else "" for v in codes])
-        values.append([name] + [count.get(v) for v in codes])
-    where = _in_group(result, result.groups[group].label)
+    shown = [(name, cats) for name, cats in zip(d.variables, d.categories) if cats]
+    codes = tuple(sorted({v for _, cats in shown for v, _ in cats}))  # the columns: the answer codes themselves
+    counts = tuple(tuple(dict(cats).get(v, 0) for v in codes) for _, cats in shown)
+    scale = tuple(tuple(v for v in codes if cats[0][0] <= v <= cats[-1][0]) for _, cats in shown)
+    names = tuple(name for name, _ in shown)
+    labels = fit_answer_labels(result, names)
+    return AnswerCounts(result.groups[group].label, names, codes, counts, scale,
+                        tuple(tuple((v, labels[name][v]) for v in codes if v in labels.get(name, {})) for name in names))
+
+
+def category_table(result, group: int = 0) -> ReportTable | None:
+    """Ordinal items of a fit: how many rows gave each answer (with the share), per item, in the one table of answers
+    per category (:func:`answer_table`) that ``check`` shows before the fit."""
+    answers = fit_answer_counts(result, group)
+    if answers is None:
+        return None
     weights = _weights_column(result)
+    return answer_table(answers, f"categories_{group}", _in_group(result, answers.group), groups=result.multigroup,
+                        analysed=" (rows analysed" + ("" if weights is None else ", each counted once: unweighted")
+                        + ")", after="" if weights is None else
+                        f" Rows are counted once each, unweighted; the thresholds use the shares weighted by {weights}.")
+
+
+def few_answers_warning(result) -> Note | None:
+    """A caution among an ordinal fit's first lines when some category of an item was given by few rows
+    (data.answer_counts.AnswerCounts.sparse), naming them, with the table of answers per category where they are
+    marked; None when there are none.  The table itself stays with the data, where a methods reader looks for the
+    items' distributions; what it finds wrong comes first, as every problem does."""
+    found, key = [], None
+    for g in range(len(result.groups)):
+        answers = fit_answer_counts(result, g)
+        if answers is None:
+            continue
+        where = _in_group(result, answers.group)
+        cells = [f"{name} {v:g} ({c} row{'' if c == 1 else 's'}){where}" for i, name in enumerate(answers.items)
+                 for j, (v, c) in enumerate(zip(answers.codes, answers.counts[i])) if answers.sparse(i, j)]
+        if cells and key is None:
+            key = f"categories_{g}"
+        found += cells
+    if not found:
+        return None
+    return Note((f"Categories of ordinal items given by few rows (fewer than 5, or 1% of the item's answers when that "
+                 f"is more: a rule of thumb of this project): {_listed(found)}; a threshold next to such a category "
+                 f"rests on those few answers and is unstable; check those answers first (marked '{FEW_ANSWERS_MARK}' "
+                 f"in ", TableReference(key), ")."))
+
+
+def fit_answer_labels(result, items=None) -> dict[str, dict[float, str]]:
+    """item -> {code: words} of a fit's answers (of ``items``, or of every item): the data file's value labels, or
+    the words its 'answers' statements code, which take their place."""
+    out: dict[str, dict[float, str]] = {}
+    for item, codes in ((result.labels or {}).get("values") or {}).items():
+        out[item] = {_code_number(code): str(text).strip() for code, text in codes.items()
+                     if _code_number(code) is not None and str(text).strip()}
+    for covered, answers in result.data.answer_coding:
+        for item in covered:
+            out[item] = {code: word for word, _, code in answers if word is not None}
+    return {item: words for item, words in out.items() if words and (items is None or item in items)}
+
+
+#: the marks of the cells of a table of answers per category (:func:`answer_table`)
+NO_ANSWER_MARK, FEW_ANSWERS_MARK = "none", "few"
+
+
+def answer_table(answers, key: str, where: str = "", groups: bool = False, analysed: str = "",
+                 after: str = "") -> ReportTable:
+    """The table of answers per category of ``answers`` (data.answer_counts.AnswerCounts): one row per item, one
+    column per answer code (headed by its label when every item labels it alike), each cell the rows giving it and
+    their share, an empty category marked 'none' and one given by few rows 'few', the items with either flagged.
+    ``where``: ' in group x'; ``groups``: the rows come in groups (an empty category then stops an ordinal fit);
+    ``analysed``: the title's words on the rows counted; ``after``: the note's last words."""
+    codes = answers.codes
+    shared = _shared_labels(answers)
+    rows, values, flagged, few, none, ends = [], [], [], [], [], set()
+    for i, name in enumerate(answers.items):
+        total = answers.answered(i) or 1
+        cells = []
+        for j, v in enumerate(codes):
+            c = answers.counts[i][j]
+            if answers.empty(i, j):
+                cells.append(NO_ANSWER_MARK)
+                none.append(f"{name} {v:g}")
+            elif c == 0:
+                cells.append("")
+            else:
+                cells.append(f"{c} ({100 * c / total:.0f}%)" + (f" {FEW_ANSWERS_MARK}" if answers.sparse(i, j) else ""))
+                if answers.sparse(i, j):
+                    few.append(f"{name} {v:g} ({c} row{'' if c == 1 else 's'})")
+                    if v in (answers.scale[i][0], answers.scale[i][-1]):  # the lowest or highest answer: a stray value?
+                        ends.add(v)
+        if answers.flagged(i):
+            flagged.append(len(rows))
+        rows.append([name, *cells])
+        values.append([name, *[c if c or v in answers.scale[i] else None for v, c in zip(codes, answers.counts[i])]])
+    note = ("Each column is an answer code" + (" and its label" if shared else "") + "; each cell: the rows giving it "
+            "and their share of the item's answers; an empty cell: a code outside the item's answers.")
+    if not shared:
+        note += _labels_note(answers)
+    if few:
+        note += (f" {FEW_ANSWERS_MARK}: fewer than 5 rows, or 1% of the item's answers when that is more (a rule of "
+                 f"thumb of this project, not a published cutoff): a threshold next to such a category rests on those "
+                 f"few answers and is unstable ({_listed(few)}).")
+    if none:
+        note += (f" {NO_ANSWER_MARK}: a category of the item's scale (between its lowest and highest answer"
+                 + (", in any group" if groups else "") + ") that no row gave"
+                 + ("; an ordinal fit of the groups stops there, since thresholds are compared across groups"
+                    if groups else "; an ordinal fit estimates no threshold for it") + f" ({_listed(none)}).")
     stray = ",".join(f"{v:g}" for v in sorted(ends))
-    lonely = ("" if not single else
-              f" Answered by one row only: {', '.join(single)}; a threshold next to such a category rests on that one "
-              f"answer and is unstable. Check the answer first"
-              + (f": if {stray.replace(',', ' or ')} is a typing error or a code for no answer, give --missing-codes "
-                 f"{stray}; a real answer's category can be merged with its neighbour's in a copy of the data file."
-                 if ends else "; a real answer's category can be merged with its neighbour's in a copy of the data file."))
-    return _table(f"categories_{group}", f"Answers per category{where} (rows analysed"
-                  + ("" if weights is None else ", each counted once: unweighted") + ")",
-                  [("Item", "l")] + [(f"{v:g}", "r") for v in codes], rows,
-                  "Each column is an answer code; each cell: the rows giving it and their share. An empty cell: a "
-                  "code the item's rows never gave (no threshold is estimated for it)." + _coded_words(result, d.variables)
-                  + lonely + (
-                      "" if weights is None else
-                      f" Rows are counted once each, unweighted; the thresholds use the shares weighted by {weights}."),
-                  flagged=tuple(flagged),
-                  values=(["Item"] + [f"Answer {v:g} rows" for v in codes], values))
+    if few or none:
+        note += (" Check such an answer first: "
+                 + (f"if {stray.replace(',', ' or ')} is a typing error or a code for no answer, give --missing-codes "
+                    f"{stray}; " if ends else "a typing error or a code for no answer can be given as missing; ")
+                 + "a real answer's category can be merged with its neighbour's in a copy of the data file.")
+    columns = [("Item", "l")] + [(f"{v:g} {shared[v]}" if shared else f"{v:g}", "r") for v in codes]
+    return _table(key, f"Answers per category{where}{analysed}", columns, rows, note + after,
+                  flagged=tuple(flagged), values=(["Item"] + [f"Answer {v:g} rows" for v in codes], values))
+
+
+def _shared_labels(answers) -> dict[float, str]:
+    """code -> label when every item labels every code of the table alike; {} otherwise."""
+    if not answers.labels or not all(answers.labels):
+        return {}
+    first = dict(answers.labels[0])
+    if set(first) != set(answers.codes) or any(dict(x) != first for x in answers.labels):
+        return {}
+    return first
+
+
+def _labels_note(answers) -> str:
+    """The labels of the answer codes, items labelled alike on one line (' Labels: 1 never, 2 often (a, b); ...')."""
+    lines: dict[str, list[str]] = {}
+    for name, labelled in zip(answers.items, answers.labels):
+        if labelled:
+            lines.setdefault(", ".join(f"{v:g} {text}" for v, text in labelled), []).append(name)
+    if not lines:
+        return ""
+    whole = len(lines) == 1 and len(next(iter(lines.values()))) == len(answers.items)
+    return " Labels of the answers: " + "; ".join(
+        text + ("" if whole else f" ({', '.join(names)})") for text, names in lines.items()) + "."
+
+
+def _listed(found: list[str], most: int = 8) -> str:
+    return ", ".join(found[:most]) + (f" and {len(found) - most} more" if len(found) > most else "")
 
 
 def label_tables(result) -> list[ReportTable]:

@@ -15,7 +15,7 @@ from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
 from cfa_tool.note_parts import Command, Note, TableReference, Text
-from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod, FitTest, MissingData
+from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANGE_WHY, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, comparison_paragraph, design_sentence,
@@ -205,14 +205,34 @@ BOUNDARY_CAUTION = ("values on the boundary of what the general model allows, so
                     "Wittenboer 2006)")
 
 
-def boundary_note(tests, explained: str | None = None, criteria: bool = True) -> Text:
+def ordinal_decision_note(boundary: bool) -> str:
+    """The one statement of what decides between nested models of ordinal items, and how rough each part is: the
+    adjusted difference test (Satorra & Bentler 2001; Asparouhov & Muthén 2006), rough when the restricted model lies
+    on the general one's boundary (``boundary``); each model's own fit indices, which describe each model; and their
+    changes, which are no test for ordinal fits (method.ORDINAL_FIT_CHANGE_WHY).  Compare's boundary note refers here
+    rather than advise on its own (re-check s15, R5: the two notes sent the reader to each other)."""
+    test = ("the adjusted difference test (Satorra & Bentler 2001; Asparouhov & Muthén 2006) is the one test of the "
+            "restricted model against the general one")
+    if boundary:
+        test += (", but with values on the boundary (marked *) its p-value is rough: one far from the level tested at "
+                 "says more than one near it (a reading of common practice, not an exact rule)")
+    return (f"Deciding between nested models of ordinal items{', and how rough each part is' if boundary else ''}: "
+            f"{test}. Each model's own CFI, RMSEA and SRMR describe how well that model fits, read against the guide "
+            f"values (conventions, not laws); their changes between the models are no test: {ORDINAL_FIT_CHANGE_WHY}."
+            + (" So weigh the rough test together with each model's own fit and with what the restriction means for "
+               "the theory; neither decides alone." if boundary else ""))
+
+
+def boundary_note(tests, explained: str | None = None, criteria: bool = True, ordinal: bool = False) -> Text:
     """The note under a difference-test table whose restricted model sits on the boundary: what lies there, why the
     printed p-values are not exact, and the mixture's p-value when one parameter lies there.  The why, and the
     mixture's distribution, are said in full under the first such table of a comparison only; the later tables
     name what lies on their boundary, their own p-values and the table whose note says the why (``explained``, its
     key: each view names it as it names its tables; new-user trial: five one-row tables repeated the same five
     lines); ``criteria``: the models have AIC and BIC to weigh them by (not for least-squares fits of ordinal items
-    or fits under sampling weights: new-user trial s15 was told to weigh what the table showed as 'not defined')."""
+    or fits under sampling weights: new-user trial s15 was told to weigh what the table showed as 'not defined');
+    ``ordinal``: models of ordinal items, whose changes in fit indices are no test: what else decides is the one
+    statement after the tables (:func:`ordinal_decision_note`), referred to here."""
     what = "; ".join(tests[0].boundary)
     mixture = [t for t in tests if not missing(t.boundary_p_value)]
     shown = "p-value" if sum(not t.not_computed for t in tests) == 1 else "p-values"
@@ -230,10 +250,11 @@ def boundary_note(tests, explained: str | None = None, criteria: bool = True) ->
         if explained is not None:
             return Note((f"* On the boundary: {what} (see the note under ", TableReference(explained),
                          f"). No exact p-value: read the {shown} marked * as rough."))
+        weigh = ("; what else decides between these models, and how rough each part is: the note after the tables"
+                 if ordinal else f", and weigh the models also by their fit indices{', AIC and BIC' if criteria else ''}")
         reading = ("Its distribution depends on the model here (several parameters on the boundary, or loadings that the "
                    "restricted model leaves undefined), so no exact p-value is given: read the "
-                   f"{shown} marked * as rough, and weigh the models also by their fit indices"
-                   f"{', AIC and BIC' if criteria else ''}.")
+                   f"{shown} marked * as rough{weigh}.")
     return f"* On the boundary: {what}: {BOUNDARY_CAUTION}. {reading}"
 
 
@@ -322,14 +343,14 @@ def comparison_report(comparison) -> Report:
             value_names = value_names[:4] + value_names[6:]
             values = [row[:4] + row[6:] for row in values]
         tables.append(_table(key, f"{restricted} (restricted) against {general}: difference tests",
-                             columns, rows, boundary_note(found, explained, criteria) if boundary else None,
+                             columns, rows, boundary_note(found, explained, criteria, ordinal) if boundary else None,
                              values=(value_names, values)))
         explained = key if boundary and explained is None else explained
     for n in comparison.not_nested:
         advice = " Compare them by AIC and BIC (lower is better)." if n.information_criteria else ""
         notes.append(f"Not tested: {n.first} and {n.second}: {n.reason}.{advice}")
     if comparison.tests:
-        notes.append(f"{ORDINAL_FIT_CHANGE[0].upper()}{ORDINAL_FIT_CHANGE[1:]}." if ordinal
+        notes.append(ordinal_decision_note(any(t.boundary for t in comparison.tests)) if ordinal
                      else CHANGE_GUIDES if comparison.change_guides_apply else CHANGES_DESCRIBED)
     # the notes on the data and the estimation (answers outside a scale, codes read as labels) come under the lines,
     # first, as fit and invariance give them
@@ -1249,8 +1270,33 @@ def check_report(found) -> Report:
     notice = T.problem_notice(found)
     if notice is not None:
         notice = ProblemNotice(T.DATA_CAUTION, notice.lines, False)
+    if found.refusals:  # what stops an ordinal fit: every one, before the cautions
+        notice = ProblemNotice(f"{stops_ordinal_fit(len(found.refusals))}: fix each before fitting",
+                               tuple(found.refusals) + (notice.lines if notice is not None else ()), True)
     # summary statistics hold no rows, so no share of rows answering
-    return Report(ResultKind.CHECK, "Model check", notice, tuple(lines), (table,) if found.coverage else ())
+    return Report(ResultKind.CHECK, "Model check", notice, tuple(lines),
+                  ((table,) if found.coverage else ()) + _answer_tables(found))
+
+
+def stops_ordinal_fit(n: int) -> str:
+    """The heading of a check's notice when the data stop an ordinal fit (each of the ``n`` refusals a line, then the
+    cautions), and the words of its exit's one line."""
+    return f"{n} problem{' in the data stops' if n == 1 else 's in the data stop'} an ordinal fit"
+
+
+def _answer_tables(found) -> tuple[ReportTable, ...]:
+    """A check's tables of answers per category (data.answer_counts), one per group, with the items not shown named:
+    those of more different answers than an ordinal item may have, or of answers that are not whole numbers."""
+    if not found.answers:
+        return ()
+    several = len(found.answers) > 1
+    shown = set(found.answers[0].items)
+    others = [x for x in found.spec.observed_names if x not in shown]
+    left = (f" Not shown: {', '.join(others)} (more different answers than an ordinal item may have, or answers that "
+            f"are not whole numbers)." if others else "")
+    return tuple(T.answer_table(a, f"categories_{k}", f" in group {written_group(a.group, tuple(found.groups))}" if several else "", groups=several,
+                                analysed=" (rows with an answer, before any fit)", after=left)
+                 for k, a in enumerate(found.answers))
 
 
 BUILDERS = {ResultKind.COMPARE: comparison_report, ResultKind.INVARIANCE: invariance_report,

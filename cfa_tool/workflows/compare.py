@@ -31,7 +31,7 @@ from cfa_tool.pipeline.continuous import (FULL_INFORMATION_INSTEAD, PAIRWISE_INS
                                           full_information_likelihood, listwise_problem, model_structure,
                                           ordered_moments, unestimated)
 from cfa_tool.language.spec import Spec, with_ordinal_levels
-from cfa_tool.method import ORDINAL_FIT_CHANGE, FitTest, MissingData
+from cfa_tool.method import ORDINAL_FIT_CHANGE_WHY, FitTest, MissingData
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.nesting import (DifferenceTest, boundary_of, difference_test, is_nested,
                                        scaled_difference_tests, scaling_at_restricted)
@@ -89,7 +89,7 @@ class Comparison(Presentable):
             ],
             "tests": [t.to_dict() for t in self.tests],
             # ordinal fits: the tests' delta_cfi and delta_rmsea are null, and why
-            "fit_index_changes_left_out": ORDINAL_FIT_CHANGE if self.results[0].method.ordinal else None,
+            "fit_index_changes_left_out": ORDINAL_FIT_CHANGE_WHY if self.results[0].method.ordinal else None,
             "change_guides_apply": self.change_guides_apply,
             "design": self.results[0].design.to_dict() if self.results[0].design is not None else None,
             "not_nested": [dict(first=n.first, second=n.second, reason=n.reason,

@@ -235,7 +235,7 @@ def test_an_answer_given_once_at_the_end_of_the_scale_gets_missing_codes_first(a
     data = answers.copy()
     data.loc[140, "c1"] = -1
     table = category_table(cfa_tool.fit(MODEL, data))
-    assert "Answered by one row only: c1 -1" in table.note
+    assert "unstable (c1 -1 (1 row))" in table.note  # marked 'few': fewer than 5 rows (the project's rule of thumb)
     assert "if -1 is a typing error or a code for no answer, give --missing-codes -1;" in table.note
 
 

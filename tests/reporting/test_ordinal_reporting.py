@@ -141,5 +141,14 @@ def test_answer_columns_are_codes_and_a_category_of_one_answer_is_named():
     row_a, row_b = table.values[0], table.values[1]
     assert row_a[1] is None and row_b[1] == 1  # a never answered 0; b once
     assert list(row_b[2:]) == [int((answers[:, 1] == v).sum()) or None for v in (1, 2, 3, 4, 5)]
-    assert "Answered by one row only: b 0; a threshold next to such a category rests on that one answer" in table.note
+    # a category of one answer: marked 'few' (fewer than 5 rows, the project's rule of thumb) and named in the note
+    assert table.rows[1][1] == "1 (0%) few" and "unstable (b 0 (1 row))" in table.note
+    # and it comes first, among the fit's warnings, naming the table where it is marked (in every view by its name)
+    from cfa_tool.reporting.fit_document import fit_report
+
+    fitted = cfa_tool.fit("factor f: a, b, c, d\n", data, ordinal="all")
+    (few,) = [w for w in fit_report(fitted).warnings if "given by few rows" in str(w)]
+    assert "b 0 (1 row)" in str(few) and any(getattr(p, "key", None) == "categories_0" for p in few.parts)
+    assert not any("given by few rows" in str(w) for w in fit_report(
+        cfa_tool.fit("factor f: a, b, c, d\n", data.replace(0.0, 1.0), ordinal="all")).warnings)
     assert 1 in table.flagged

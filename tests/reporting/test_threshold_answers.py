@@ -50,7 +50,8 @@ def test_the_words_of_an_answers_statement_name_the_answers(data):
     result = cfa_tool.fit(MODEL + WORDS, words, ordinal="all")
     assert [row[1] for row in _threshold_table(result).rows[:2]] == ["sometimes and often", "often and always"]
     categories = T.category_table(result)
-    assert "Codes of the answer words: 1 never, 2 sometimes, 3 often, 4 always." in categories.note
+    # the words head the answers' columns, as the value labels of a data file do
+    assert categories.columns == ("Item", "1 never", "2 sometimes", "3 often", "4 always")
 
 
 def test_the_value_labels_of_the_data_file_name_the_answers(data, tmp_path):

@@ -1,0 +1,96 @@
+"""How many rows gave each answer to each item of few answer categories, in the whole sample or in each group: what a
+researcher reads before an ordinal fit (which categories are empty, which answered by so few rows that a threshold
+beside them rests on those few answers), shown by ``check`` and by the ordinal fit's report from this one count."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from cfa_tool.data.descriptives import rare_answer_limit
+
+
+@dataclass(frozen=True)
+class AnswerCounts:
+    """The rows giving each answer code (``codes``, ascending: the table's columns) to each item (``items``), in the
+    group ``group`` (None: the whole sample).  ``counts[i][j]``: rows of item i that gave code j; ``scale[i]``: the
+    codes of item i's scale, from its lowest to its highest answer in any group (a code there that no row of this
+    group gave is an empty category; outside it the item has no such answer); ``labels[i]``: (code, words) of item i
+    from the data file's value labels or the model's 'answers' statements."""
+
+    group: str | None
+    items: tuple[str, ...]
+    codes: tuple[float, ...]
+    counts: tuple[tuple[int, ...], ...]
+    scale: tuple[tuple[float, ...], ...]
+    labels: tuple[tuple[tuple[float, str], ...], ...] = ()
+
+    def answered(self, i: int) -> int:
+        """Rows that answered item ``i``."""
+        return sum(self.counts[i])
+
+    def empty(self, i: int, j: int) -> bool:
+        """Code ``j`` is on item ``i``'s scale but no row here gave it."""
+        return self.counts[i][j] == 0 and self.codes[j] in self.scale[i]
+
+    def sparse(self, i: int, j: int) -> bool:
+        """Code ``j`` of item ``i`` was given by fewer rows than :func:`data.descriptives.rare_answer_limit` of the
+        item's answers (fewer than 5, or than 1% of them when that is more: a rule of thumb of this project, not a
+        published cutoff), but by some."""
+        return 0 < self.counts[i][j] < rare_answer_limit(self.answered(i))
+
+    def flagged(self, i: int) -> bool:
+        """Item ``i`` has an empty or a sparse category."""
+        return any(self.empty(i, j) or self.sparse(i, j) for j in range(len(self.codes)))
+
+    def to_dict(self) -> dict:
+        return {"group": self.group, "codes": list(self.codes),
+                "items": {name: {f"{code:g}": count for code, count, in_scale in
+                                 zip(self.codes, counts, [c in scale for c in self.codes]) if in_scale or count}
+                          for name, counts, scale in zip(self.items, self.counts, self.scale)}}
+
+
+def category_items(values: np.ndarray, names: tuple[str, ...], most: int) -> tuple[str, ...]:
+    """The items (columns of ``values``, gaps NaN) whose answers are whole numbers of at most ``most`` different
+    values: those a table of answers per category can show (the others are measured on a finer scale)."""
+    out = []
+    for j, name in enumerate(names):
+        column = values[:, j]
+        column = column[np.isfinite(column)]
+        if len(column) and (column == np.round(column)).all() and len(np.unique(column)) <= most:
+            out.append(name)
+    return tuple(out)
+
+
+def answer_counts(parts: list[tuple[str | None, np.ndarray]], names: tuple[str, ...], items: tuple[str, ...],
+                  labels: dict[str, dict] | None = None) -> tuple[AnswerCounts, ...]:
+    """The :class:`AnswerCounts` of ``items`` in each part of the rows (``parts``: (group label or None, the values
+    of ``names`` in its rows, gaps NaN)), every part on the same columns: the codes any part gave to any of the
+    items.  An item's scale runs from its lowest to its highest answer over all parts, so that a category one group
+    never gave while another did shows as empty.  ``labels``: item -> {code: words} (value labels of the file, or
+    the words of 'answers' statements)."""
+    labels = labels or {}
+    columns = [names.index(x) for x in items]
+    seen = [np.concatenate([v[:, j][np.isfinite(v[:, j])] for _, v in parts]) for j in columns]
+    codes = np.unique(np.concatenate(seen)) if seen else np.zeros(0)
+    scale = tuple(tuple(float(c) for c in codes if len(s) and s.min() <= c <= s.max()) for s in seen)
+    named = tuple(tuple((float(c), str(labels[x][key])) for c in codes for key in _keys(labels.get(x, {}), c))
+                  for x in items)
+    out = []
+    for label, values in parts:
+        counts = []
+        for j in columns:
+            column = values[:, j]
+            found = column[np.isfinite(column)]
+            counts.append(tuple(int(n) for n in (found[:, None] == codes[None, :]).sum(axis=0)))
+        out.append(AnswerCounts(label, tuple(items), tuple(float(c) for c in codes), tuple(counts), scale, named))
+    return tuple(out)
+
+
+def _keys(item_labels: dict, code: float) -> list:
+    """The key of ``code`` among an item's value labels (a float, an int or its text), as a list of at most one."""
+    for key in (code, int(code) if float(code).is_integer() else code, f"{code:g}"):
+        if key in item_labels:
+            return [key]
+    return []
