@@ -476,6 +476,31 @@ def moments_with_gaps(values: np.ndarray, names: tuple[str, ...], source: str,
     return _incomplete_moments(values, tuple(names), source, source, None, len(values), weights)
 
 
+#: the fewest answers an item needs in a sample or group analysed by full-information ML: its intercept, loading and
+#: residual variance there rest on its answers, and two answers fit the intercept and loading exactly, leaving nothing
+#: for the residual variance (the information matrix is singular: hostile trial s16, case 12); an item with several
+#: loadings needs more, which the fit's identification check finds
+MIN_ANSWERS = 3
+
+
+def too_few_answers(name: str, answers: int, source: str, group: str | None = None,
+                    numbers: np.ndarray | None = None, naming: RowNaming = RowNaming.FILE_ROW) -> str:
+    """The one-line refusal of an item answered fewer than :data:`MIN_ANSWERS` times in a sample or group (``group``:
+    its words, '\'south\' of district', with ``source`` naming it already), naming the item, its answers and
+    their rows (``numbers``)."""
+    from cfa_tool.data.kept_rows import rows_listed
+
+    said = "no answer" if not answers else f"only {answers} answer{'s' if answers != 1 else ''}"
+    rows = f" ({rows_listed(numbers, naming=naming)})" if answers and numbers is not None else ""
+    where = " in this group" if group is not None else ""
+    remedy = (f"take the item out of the model, leave this group out with a row filter ({Option.KEEP}), or join it "
+              f"with another group by recoding the group column" if group is not None
+              else "take the item out of the model, or analyse rows that answer it")
+    return (f"{source}: '{printable(name)}' has {said}{where}{rows}; full-information ML needs at least "
+            f"{MIN_ANSWERS} answers of an item{where} to estimate its intercept, loading and residual variance there "
+            f"(two answers fit the intercept and loading exactly and leave nothing for the residual variance): {remedy}")
+
+
 def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int,
                         weights: np.ndarray | None = None, numbers: np.ndarray | None = None,
                         naming: RowNaming = RowNaming.FILE_ROW) -> SampleMoments:
@@ -489,8 +514,10 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
         raise DataError(f"{source}: {n} row{'' if n == 1 else 's'} with any answer for {p} variables; the analysis needs more rows than variables")
     counts = (~np.isnan(data)).sum(axis=0)
     for j, c in enumerate(counts):
-        if c < 2:
-            raise DataError(f"{source}: column '{names[j]}' has {c} answers; each variable needs at least two")
+        if c < MIN_ANSWERS:
+            raise DataError(too_few_answers(names[j], int(c), source, group,
+                                            None if numbers is None else numbers[answered][~np.isnan(data[:, j])],
+                                            naming))
     observed = ~np.isnan(data)
     together = observed.astype(float).T @ observed.astype(float)
     i, j = np.unravel_index(np.argmin(together), together.shape)
