@@ -541,6 +541,20 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
                         f"given") from None
     except EstimationError as error:
         complete = int(observed.all(axis=1).sum())
+        sparse = pairs_answered_together(observed, names)
+        if sparse:  # the likely cause: a pair's covariance from a few rows (hostile trial s16, case 06)
+            a, b, both = sparse[0]
+            i, j = list(names).index(a), list(names).index(b)
+            if numbers is not None and both:
+                from cfa_tool.data.kept_rows import rows_listed
+
+                both = f"{both} ({rows_listed(numbers[answered][observed[:, i] & observed[:, j]], naming=naming)})"
+            more = f" ({len(sparse) - 1} more such pair{'s' if len(sparse) > 2 else ''})" if len(sparse) > 1 else ""
+            raise EstimationError(
+                f"{source}: {error}; only {both} of its {n} rows answer both '{printable(a)}' and '{printable(b)}'"
+                f"{more}, so their covariance rests on those rows (fewer than a tenth of the rows: a rule of thumb of "
+                f"this project). What to try: take one of the two items out of the model, or analyse rows that "
+                f"answer both") from None
         remedy = (f"leave this group out with a row filter ({Option.KEEP}), join it with another group by recoding the group "
                   "column, or analyse fewer items" if group is not None
                   else "analyse fewer items, or gather rows that answer more of them")
@@ -550,6 +564,30 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
     return SampleMoments(tuple(names), sigma, mu, n, rows_read, rows_read - n, file_source, group, data,
                          numbers[answered] if numbers is not None else None,
                          unanswered_rows=numbers[~answered] if numbers is not None else None, row_naming=naming)
+
+
+#: a pair of items answered together by fewer than this share of the rows analysed has its correlation (with
+#: full-information ML its covariance) resting on those rows alone: the share below which an item's answers are
+#: called few (pipeline.inputs.FEW_ANSWERS_SHARE), held to pairs, a rule of thumb of this project, not a published
+#: cutoff (a correlation from 3 rows of 471 could be anything from -1 to 1)
+FEW_TOGETHER_SHARE = 0.10
+
+
+def pairs_answered_together(answered: np.ndarray, names: Sequence[str], share: float = FEW_TOGETHER_SHARE,
+                            skip: Sequence[str] = ()) -> list[tuple[str, str, int]]:
+    """The pairs of items that fewer than ``share`` of the rows (``answered``: rows x items, True where answered)
+    answer together, each as (item, item, rows answering both), fewest first, in the items' order among equals;
+    pairs with an item of ``skip`` (items said to be answered by few rows, named before their pairs) are left
+    out."""
+    answered = np.asarray(answered, dtype=bool)
+    if not len(answered) or answered.all():
+        return []
+    together = answered.T.astype(np.int64) @ answered.astype(np.int64)  # rows answering both (diagonal: each)
+    line = share * len(answered)
+    left = set(skip)
+    found = [(names[i], names[j], int(together[i, j])) for i in range(len(names)) for j in range(i + 1, len(names))
+             if together[i, j] < line and names[i] not in left and names[j] not in left]
+    return sorted(found, key=lambda t: t[2])
 
 
 def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20,

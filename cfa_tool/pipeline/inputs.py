@@ -992,8 +992,9 @@ def few_answers_problems(names: tuple[str, ...], coverage: dict, n_obs: int | No
     if group is not None and loaded is not None and group in loaded.frame.columns:
         return (() if listwise else _few_answers_in_groups(names, loaded, group)) + constant
     few = {x: share for x, share in coverage.items() if share < FEW_ANSWERS_SHARE}
+    together = () if listwise or loaded is None else _few_together_problems(names, loaded, None, tuple(few))
     if not few or not n_obs:
-        return constant
+        return together + constant
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     n = n_obs
@@ -1005,7 +1006,57 @@ def few_answers_problems(names: tuple[str, ...], coverage: dict, n_obs: int | No
                     f"variance, covariances and loading rest on those answers alone, and can drive the fit indices.",
                     f"leave {'it' if one else 'them'} out of the model, or check why so few rows answer "
                     f"{'it' if one else 'them'} (a question put to a few respondents only, an import that lost answers)."),
-            ) + constant
+            ) + together + constant
+
+
+def _few_together_problems(names: tuple[str, ...], loaded: LoadedData, group: str | None,
+                           few: tuple[str, ...] = (), label: str | None = None) -> tuple:
+    """The caution on pairs of items answered together by fewer than data.moments.FEW_TOGETHER_SHARE of the rows
+    analysed (the rows of ``loaded`` with a model item answered; with ``label``, those of that group of ``group``):
+    their correlation (a polychoric one, or with full-information ML the covariance) rests on those rows alone,
+    however many answer each item (hostile trial s16, case 06: 3 of 471 rows answered both clean and temperature,
+    said only inside a note).  Pairs with an item of ``few`` (answered by few rows, said by its own caution) are
+    left out.  One caution naming each pair, its rows answering both and, for the fewest, those rows."""
+    from cfa_tool.data.kept_rows import rows_listed
+    from cfa_tool.data.moments import FEW_TOGETHER_SHARE, pairs_answered_together
+
+    names = tuple(names)
+    frame = _labelled(loaded.frame, group)
+    if label is not None:
+        from cfa_tool.data.groups import group_keys
+
+        frame = frame.loc[(group_keys(frame[group]) == label).to_numpy()]
+    values = loaded.items.of(frame, names) if loaded.items is not None else None
+    if values is None:
+        values = item_values(frame, names)
+    if values is None or len(names) < 2:  # not plain numbers: the reading of the items names what is wrong
+        return ()
+    answered = ~np.isnan(values)
+    rows = answered.any(axis=1)
+    found = pairs_answered_together(answered[rows], names, FEW_TOGETHER_SHARE, few)
+    if not found:
+        return ()
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    n = int(rows.sum())
+    a, b, both = found[0]
+    i, j = names.index(a), names.index(b)
+    which = row_numbers(frame)[rows & answered[:, i] & answered[:, j]]
+    first = f"'{printable(a)}' and '{printable(b)}' ({both} of {n} rows" + (
+        f": {rows_listed(which, naming=row_naming(frame))})" if both else ")")
+    others = "; ".join(f"'{printable(x)}' and '{printable(y)}' ({k} of {n} rows)" for x, y, k in found[1:5]) + (
+        f"; and {len(found) - 5} more" if len(found) > 5 else "")
+    one = len(found) == 1
+    whose = "this group's rows" if label is not None else "the rows"
+    return (Problem(
+        ProblemKind.FEW_ANSWERED_TOGETHER, (), both / n,
+        f"Few of {whose} answer both items of {'the pair' if one else 'the pairs'} {first}"
+        f"{'; ' + others if others else ''}: {'its' if one else 'each'} correlation rests on those rows alone, "
+        f"whatever each item's own answers, and can drive the fit indices (fewer than a tenth of the rows: a rule "
+        f"of thumb of this project, not a published cutoff).",
+        f"take one item of {'the pair' if one else 'each pair'} out of the model, or check why so few rows answer "
+        f"both (questions put to different respondents, as in a split-ballot survey or a routing error).",
+        group=label),)
 
 
 def _few_answers_in_groups(names: tuple[str, ...], loaded: LoadedData, group: str) -> tuple:
@@ -1029,7 +1080,7 @@ def _few_answers_in_groups(names: tuple[str, ...], loaded: LoadedData, group: st
     answered = ~np.isnan(values)
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
-    found = []
+    found, few_items = [], {}
     for label in labels:
         mine = answered[(keys == label) & answered.any(axis=1)]
         n = len(mine)
@@ -1039,6 +1090,7 @@ def _few_answers_in_groups(names: tuple[str, ...], loaded: LoadedData, group: st
         few = [(names[j], int(c)) for j, c in enumerate(counts) if c < FEW_ANSWERS_SHARE * n]
         if not few:
             continue
+        few_items[label] = tuple(x for x, _ in few)
         one = len(few) == 1
         listed = ", ".join(f"'{printable(x)}' ({c} of {n} rows)" for x, c in few[:5]) + (
             f" and {len(few) - 5} more" if len(few) > 5 else "")
@@ -1050,6 +1102,8 @@ def _few_answers_in_groups(names: tuple[str, ...], loaded: LoadedData, group: st
             f"leave {'it' if one else 'them'} out of the model, or the group out with a row filter ({Option.KEEP}), or "
             f"check why so few of the group's rows answer {'it' if one else 'them'} (a question put to some groups "
             f"only, an import that lost answers).", group=label))
+    for label in labels:  # then the pairs answered together by few of a group's rows, without the items said
+        found.extend(_few_together_problems(names, loaded, group, few_items.get(label, ()), label))
     return tuple(found)
 
 
