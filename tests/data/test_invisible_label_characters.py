@@ -7,6 +7,7 @@ that differ by format characters that change what is drawn are refused; row filt
 from __future__ import annotations
 
 import unicodedata
+from pathlib import Path
 
 import numpy as np
 import pandas as pd
@@ -16,17 +17,16 @@ import cfa_tool
 from cfa_tool.data.labels import label_notes, label_text
 from cfa_tool.errors import DataError
 
-MODEL = "factor f: y1, y2, y3, y4\n"
+ROOT = Path(__file__).resolve().parents[2]
+DATA = ROOT / "demo" / "rider_survey.csv"  # invented rider survey, simulated with a fixed seed
+MODEL = "factor f: on_time, short_wait, accurate_info, easy_transfer\n"
 
 
 @pytest.fixture(scope="module")
 def rows() -> pd.DataFrame:
-    """300 simulated rows (seed 16) of one factor's four items: 'north' the odd rows, 'south' the even ones."""
-    rng = np.random.default_rng(16)
-    f = rng.normal(size=300)
-    frame = pd.DataFrame({f"y{j}": np.round(0.8 * f + rng.normal(scale=0.6, size=300), 2) for j in range(1, 5)})
-    frame["city"] = np.where(np.arange(300) % 2 == 1, "north", "south").astype(object)
-    return frame
+    """The demo's first 300 complete rows, in two cities: 'north' the odd rows, 'south' the even ones."""
+    frame = pd.read_csv(DATA).dropna().head(300).reset_index(drop=True)
+    return frame.assign(city=np.where(np.arange(300) % 2 == 1, "north", "south").astype(object))
 
 
 def with_label(rows: pd.DataFrame, written: str, every: int = 3) -> pd.DataFrame:
