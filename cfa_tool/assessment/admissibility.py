@@ -75,6 +75,9 @@ class ProblemKind(enum.Enum):
                              False)
     # not of the solution but of the data: an item answered by few of the rows (pipeline.inputs.with_odd_values)
     FEW_ANSWERS = ("item answered by few rows", "answered by few rows", False)
+    # not of the solution but of the data: a pair of items answered together by few of the rows, whose correlation
+    # rests on those rows (pipeline.inputs.few_answers_problems)
+    FEW_ANSWERED_TOGETHER = ("pair of items answered together by few rows", "answered together by few rows", False)
     # not of the solution but of the data: an item answered alike by all rows but a few (the same rule, extended:
     # its variance rests on those rows; pipeline.inputs.few_answers_problems)
     NEARLY_CONSTANT = ("item answered alike by nearly every row", "nearly constant", False)
@@ -366,6 +369,7 @@ class Problem:
             K.VALUES_READ_AS_MISSING: "values that the data file marks as no answer (by their value labels, as declared "
                                       "missing values, or as text such as 'refused') were treated as missing",
             K.FEW_ANSWERS: "items answered by few of the rows",
+            K.FEW_ANSWERED_TOGETHER: "pairs of items answered together by few of the rows",
             K.ROWS_LEFT_OUT: f"{v.split('.')[0]} rows left out listwise for a missing answer",
             K.SCALE_ENDS_UNREACHED: "a scale declared for reverse-keyed items whose ends no answer reaches",
             K.NEARLY_CONSTANT: "items answered alike by all rows but a few",

@@ -17,7 +17,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.kept_rows import KEPT_BY, cell_words, row_naming
-from cfa_tool.data.labels import label_text, other_case, shared_labels
+from cfa_tool.data.labels import label_text, listed_labels, merged_labels, other_case, shared_labels
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.options import Option
@@ -229,6 +229,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
             if target.casefold() in ("true", "false") and values.isin(("TRUE", "FALSE")).any():
                 target = target.upper()  # a TRUE/FALSE cell as a spreadsheet shows it, whatever the case typed
         keep = OPERATOR_TESTS[f.operator](values, target) & column.notna()
+        read_as = _written_otherwise(column, values, target) if f.operator in ("=", "!=") else ""
         # labels differing from a text compared only in case: a filter matches text exactly (data.labels' rule)
         cased = other_case(values.dropna(), target) if f.operator in ("=", "!=") and isinstance(target, str) else ()
         absent = ""
@@ -246,7 +247,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         frame = frame.loc[keep.to_numpy()]
         emptied = (f"left out {f.empty_words()} (an empty cell meets no comparison, '!=' included), and "
                    if f.empty else "")
-        notes.append(f"row filter '{f}'{by_label} {emptied}kept {len(frame)} of {before} rows{absent}")
+        notes.append(f"row filter '{f}'{by_label} {emptied}kept {len(frame)} of {before} rows{absent}{read_as}")
         if len(frame) == 0:
             raise DataError(f"{source}: no row is left after the row filter '{printable(f)}'{absent}")
     if filters:
@@ -329,6 +330,22 @@ def _case_hint(alike: tuple[tuple[str, int], ...]) -> str:
     return ("; a row filter matches text exactly, upper and lower case included (unlike the words of an 'answers' "
             "statement)" + (f": write {' or '.join(repr(printable(a)) for a, _ in alike)} as the data have it"
                             if alike else ""))
+
+
+def _written_otherwise(column: pd.Series, values: pd.Series, target) -> str:
+    """'; cells written with spaces ... compared as their label: 'north' (80 rows) and 'north\\u200b' (160 rows;
+    U+200B ZERO WIDTH SPACE) as 'north'': the text
+    cells of ``column`` that the one rule of labels (data.labels.label_text) reads as ``target`` though written with
+    spaces at their ends, invisible format characters or in another Unicode form, as the groups' notes name them;
+    '' when there are none."""
+    if not isinstance(target, str):
+        return ""
+    text = np.fromiter((isinstance(v, str) for v in column), dtype=bool, count=len(column))
+    found = merged_labels(column[(values == target).to_numpy() & text])
+    if not found:
+        return ""
+    return (f"; cells written with spaces at their ends, invisible format characters or in another Unicode form were "
+            f"compared as their label: {listed_labels(found)}")
 
 
 def _cell_label(value) -> str:

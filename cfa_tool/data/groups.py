@@ -10,7 +10,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.labels import code_order, label_text, ordered_labels
+from cfa_tool.data.labels import code_order, label_text, listed_labels, merged_labels, ordered_labels
 from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names
 from cfa_tool.data.moments import SampleMoments, numeric_columns, sample_moments
@@ -34,14 +34,19 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
         hint = renamed_hint(frame, column) or (f"; did you mean '{guess[0]}'?" if guess else "")
         raise OptionError(f"{source}: there is no group column '{printable(column)}'{hint}")
     values = frame[column].dropna()
-    labels = ordered_labels({label_text(v) for v in values}, frame, column)
+    labels = ordered_labels({label_text(v) for v in values} - {""}, frame, column)  # "": no group (group_keys)
+    refuse_look_alike_labels(values, column, source)
     if len(labels) > MAX_GROUPS:
         raise OptionError(f"{source}: the group column '{printable(column)}' has {len(labels):,} different values; a "
                           f"multi-group fit estimates the model in each group, at most {MAX_GROUPS} of them (is it the "
                           f"right column? an identifier of classes or persons is not a grouping for invariance)")
     if len(labels) < 2:
         only = f" ('{labels[0]}')" if labels else ""
-        raise DataError(f"{source}: the group column '{column}' has only {len(labels)} group{only}; a multi-group analysis needs at least two")
+        merged = [texts for _, texts in merged_labels(values) if len(texts) > 1]
+        read = (f" (labels that differ only by spaces at their ends, by invisible format characters or by Unicode form "
+                f"are one group: {listed_labels([(labels[0], merged[0])])})") if merged and labels else ""
+        raise DataError(f"{source}: the group column '{column}' has only {len(labels)} group{only}{read}; a "
+                        f"multi-group analysis needs at least two")
     if reference is None:
         reference, _ = default_reference(frame, column, labels)
     else:
@@ -53,6 +58,30 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
     labels.remove(reference)
     labels.insert(0, reference)  # the reference group first, the others in the order of their labels
     return labels
+
+
+def refuse_look_alike_labels(values: pd.Series, column: str, source: str) -> None:
+    """Refuse group labels that differ only by format characters that are drawn or change what is drawn
+    (data.labels.look_alike_labels: a joiner between Persian letters, a right-to-left override), which the one rule
+    of labels (data.labels.label_text) neither reads as one group (they look different) nor may leave as two groups
+    named alike: a one-line error naming the column, the labels with those characters spelled out and named, and
+    their rows."""
+    import unicodedata
+
+    from cfa_tool.data.labels import look_alike_labels, spelled_out
+
+    alike = look_alike_labels(values)
+    if not alike:
+        return
+    found = alike[0]
+    listed = " and ".join(f"'{spelled_out(label)}' ({n:,} row{'s' if n != 1 else ''})" for label, n in found)
+    marks = dict.fromkeys(ch for label, _ in found for ch in label if unicodedata.category(ch) == "Cf")
+    named = ", ".join(f"U+{ord(ch):04X} {unicodedata.name(ch, 'UNNAMED CHARACTER')}" for ch in marks)
+    more = f" ({len(alike) - 1} more such set{'s' if len(alike) > 2 else ''} of labels)" if len(alike) > 1 else ""
+    raise DataError(f"{source}: in the group column '{printable(column)}', the labels {listed} differ only by "
+                    f"format characters that change how the text is drawn ({named}){more}, so they are not read as "
+                    f"one group; if they are one group write them alike, if two give them different letters, in a "
+                    f"copy of the data file")
 
 
 class ReferenceRule(Enum):
@@ -116,8 +145,15 @@ def group_rows(frame: pd.DataFrame, column: str, source: str, reference: str | N
     """Each group's rows of ``frame`` as (label, rows), the reference group first (:func:`group_labels`), and the
     number of rows without a group label: the one split of the rows by a group column."""
     labels = group_labels(frame, column, source, reference)
-    keys = frame[column].map(lambda v: None if pd.isna(v) else label_text(v))
+    keys = group_keys(frame[column])
     return [(label, frame.loc[(keys == label).to_numpy()]) for label in labels], int(keys.isna().sum())
+
+
+def group_keys(cells: pd.Series) -> pd.Series:
+    """Each cell of a group column as its group's label (data.labels.label_text), None for an empty cell and for a
+    cell of spaces and invisible format characters alone (a zero-width space), which the data file's reader leaves
+    as text but shows as empty as a cell of spaces, which it reads as empty."""
+    return cells.map(lambda v: None if pd.isna(v) else (label_text(v) or None))
 
 
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,
@@ -227,7 +263,7 @@ def small_group_words(small: tuple[SmallGroup, ...], frame: pd.DataFrame, column
         said = (f"groups {listed} and '{printable(small[-1].label)}' ({small[-1].rows_words()}) of "
                 f"'{printable(column)}' have too few rows for the model's {small[0].variables} variables")
     filters = [leaving_out(column, g.label) for g in small]
-    keys = frame[column].map(lambda v: None if pd.isna(v) else label_text(v))
+    keys = group_keys(frame[column])
     kept = grouped - int(keys.isin([g.label for g in small]).sum())
     them = "it" if one else "them"
     leave = (f"leave {them} out with {Option.KEEP.given([printable(f) for f in filters])}" if all(filters) else

@@ -1,9 +1,10 @@
 """Text labels from data cells (group, cluster and stratum labels, filter values), read the way people mean them.
 
-'north' and 'north ' with a trailing space, or 'cafe' with an accent stored in two Unicode
-forms, look the same on screen and are the same group to the researcher; whole numbers
-stored as floats (2.0) are the label 2.  One function makes every such label, so groups and
-row filters agree.
+'north' and 'north ' with a trailing space, 'north' with an invisible zero-width space (U+200B) copied from a web
+form, or 'cafe' with an accent stored in two Unicode forms, look the same on screen and are the same group to the
+researcher; whole numbers stored as floats (2.0) are the label 2.  One function makes every such label
+(:func:`label_text`), so groups, cluster and stratum labels and row filters agree, and the notes
+(:func:`label_notes`) say the same rule.
 """
 
 from __future__ import annotations
@@ -19,18 +20,81 @@ if TYPE_CHECKING:
     import pandas as pd
 
 
+#: format characters (Unicode category Cf) that are drawn as signs, not invisible: the prepended concatenation marks
+#: (Unicode's PropList.txt, Prepended_Concatenation_Mark: the Arabic number sign U+0600 and its kin); a label keeps them
+DRAWN_FORMAT = frozenset("\u0600\u0601\u0602\u0603\u0604\u0605\u06dd\u070f\u0890\u0891\u08e2\U000110bd\U000110cd")
+#: format characters that change how the characters beside them are drawn: the joiners U+200C and U+200D (the joined
+#: or separate forms of Arabic and Indic letters, emoji sequences), the direction marks and controls (the order of
+#: right-to-left text), the tags (flag emoji).  Beside plain ASCII text they change nothing drawn and are read as the
+#: other invisible characters are; in a label with other characters a label keeps them
+SHAPING_FORMAT = frozenset("\u200c\u200d\u200e\u200f\u061c\u202a\u202b\u202c\u2066\u2067\u2068\u2069") | frozenset(
+    chr(c) for c in [0xE0001, *range(0xE0020, 0xE0080)])
+#: direction overrides, which reverse even plain ASCII text ('north' drawn as 'htron'): a label always keeps them
+OVERRIDES = frozenset("\u202d\u202e")
+
+
 def label_text(value) -> str:
-    """A cell as a label: whole-number floats without '.0', text without spaces at its ends and in
-    Unicode's composed form (NFC)."""
+    """A cell as a label, by the one rule of every label (groups, clusters, strata, row filters' values): whole-number
+    floats without '.0'; text without its invisible format characters (Unicode category Cf: a zero-width space
+    U+200B, a soft hyphen U+00AD, a byte-order mark U+FEFF, a left-to-right mark U+200E...), then without spaces at
+    its ends (a no-break space too), in Unicode's composed form (NFC; Unicode Standard Annex #15).  Format characters
+    that are drawn or change what is drawn stay (:data:`DRAWN_FORMAT`, :data:`OVERRIDES`, and :data:`SHAPING_FORMAT`
+    in a label with other characters than plain ASCII): labels that differ only by them look different, and
+    :func:`look_alike_labels` finds them."""
     if isinstance(value, float) and value.is_integer():
         return str(int(value))
-    return unicodedata.normalize("NFC", str(value).strip())
+    text = str(value)
+    if not text.isascii():
+        text = _without_invisible(text)
+    return unicodedata.normalize("NFC", text.strip())
+
+
+def _without_invisible(text: str) -> str:
+    """``text`` without the format characters :func:`label_text` removes."""
+    if not any(unicodedata.category(ch) == "Cf" for ch in text):
+        return text
+    kept = DRAWN_FORMAT | OVERRIDES
+    rest = "".join(ch for ch in text if unicodedata.category(ch) != "Cf")
+    if not rest.isascii():
+        kept = kept | SHAPING_FORMAT
+    return "".join(ch for ch in text if unicodedata.category(ch) != "Cf" or ch in kept)
+
+
+def invisible_characters(text: str) -> str:
+    """The format characters that :func:`label_text` removes from ``text``, each once in order of first sight."""
+    read = _without_invisible(text)
+    if read == text:
+        return ""
+    kept = set(read)
+    return "".join(dict.fromkeys(ch for ch in text if unicodedata.category(ch) == "Cf" and ch not in kept))
+
+
+def spelled_out(text: str) -> str:
+    """``text`` for a message, its control and format characters written as escapes ('north\\u200b'): printable, with
+    the invisible format characters (Unicode category Cf) shown too."""
+    return "".join(f"\\u{ord(ch):04x}" if unicodedata.category(ch) == "Cf" and ord(ch) <= 0xFFFF
+                   else f"\\U{ord(ch):08x}" if unicodedata.category(ch) == "Cf" else ch for ch in printable(text))
+
+
+def look_alike_labels(values) -> list[list[tuple[str, int]]]:
+    """Labels (as :func:`label_text` reads ``values``) that differ only by format characters a label keeps because
+    they are drawn or change what is drawn (a joiner between Persian letters, a right-to-left override): [[(label,
+    cells), ...], ...], each list of two labels or more.  Read as one they would join labels that look different;
+    kept apart they would split what may be one group; only the user knows."""
+    from collections import Counter
+
+    by_letters: dict[str, list[tuple[str, int]]] = {}
+    for label, n in Counter(label_text(v) for v in values).items():
+        bare = "".join(ch for ch in label if unicodedata.category(ch) != "Cf")
+        by_letters.setdefault(bare, []).append((label, n))
+    return [sorted(found) for _, found in sorted(by_letters.items()) if len(found) > 1]
 
 
 def merged_labels(values) -> list[tuple[str, list[tuple[str, int]]]]:
     """Labels read from cells written otherwise (for a note): several different raw texts read as one label
-    ('north' and 'north '), or text cells with spaces at their ends or in another Unicode form read without them
-    ('manager ' as 'manager'), each raw text with its number of cells: [(label, [(raw text, cells), ...])]."""
+    ('north' and 'north ', 'north' and 'north' with a zero-width space), or text cells with spaces at their ends,
+    invisible format characters or in another Unicode form read without them ('manager ' as 'manager'), each raw
+    text with its number of cells: [(label, [(raw text, cells), ...])] (:func:`label_text`'s rule)."""
     from collections import Counter
 
     raw: dict[str, Counter] = {}
@@ -69,7 +133,9 @@ def _by_case(values) -> dict[str, list[tuple[str, int]]]:
 
 def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "group", unit: str = "group") -> list[str]:
     """Notes on how the labels of ``column`` were read: a column of codes read as their value labels (SPSS, Stata),
-    and labels that differed only by spaces at their ends or Unicode form and were read as one: of the group column (every command with groups gives it through
+    and labels that differed only by spaces at their ends, invisible format characters or Unicode form and were read
+    as one (:func:`label_text`), each raw text with its rows and the invisible characters named (U+200B ZERO WIDTH
+    SPACE): of the group column (every command with groups gives it through
     :func:`cfa_tool.pipeline.inputs.moments_for` or :func:`cfa_tool.pipeline.inputs.ordinal_groups`), or with
     ``part`` and ``unit`` of a cluster or strata column (cfa_tool.data.sample_design)."""
     values = frame[column].dropna()
@@ -89,17 +155,28 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
     spelled = spelled_labels(frame, column, values)
     if spelled:
         notes.append(f"in the {part} column '{printable(column)}', numbers written in different ways were read as one "
-                     f"{unit}: {_listed(spelled, shown)}"
+                     f"{unit}: {listed_labels(spelled, shown)}"
                      f" (if they are different groups, give them labels that are not plain numbers, such as 'D01')")
     found = merged_labels(values)
+    blank = [texts for label, texts in found if not label]
+    if blank and part == "group":  # cells that look empty are no group (data.groups.group_keys)
+        cells = sum(n for texts in blank for _, n in texts)
+        named = dict.fromkeys(f"U+{ord(ch):04X} {unicodedata.name(ch, 'UNNAMED CHARACTER')}"
+                              for texts in blank for text, _ in texts for ch in invisible_characters(text))
+        notes.append(f"in the {part} column '{printable(column)}', {cells} cell{'s' if cells != 1 else ''} holding "
+                     f"only invisible format characters ({', '.join(named)}) or spaces look empty and were read as "
+                     f"no value, so their rows have no {unit}")
+        found = [(label, texts) for label, texts in found if label]
     merged = [(label, texts) for label, texts in found if len(texts) > 1]
     if merged:
-        notes.append(f"in the {part} column '{printable(column)}', labels that differ only by spaces at their ends or "
-                     f"by Unicode form were read as one {unit}: {_listed(merged, shown)}")
+        notes.append(f"in the {part} column '{printable(column)}', labels that differ only by spaces at their ends, "
+                     f"by invisible format characters or by Unicode form were read as one {unit}: "
+                     f"{listed_labels(merged, shown)}")
     alone = [(label, texts) for label, texts in found if len(texts) == 1]
     if alone:
-        notes.append(f"in the {part} column '{printable(column)}', labels written with spaces at their ends or in "
-                     f"another Unicode form were read without them: {_listed(alone, shown)}")
+        notes.append(f"in the {part} column '{printable(column)}', labels written with spaces at their ends, with "
+                     f"invisible format characters or in another Unicode form were read without them: "
+                     f"{listed_labels(alone, shown)}")
     from cfa_tool.data.readers import MARKED, MeasureLevel, measure_levels
 
     marked = frame.attrs.get(MARKED, {}).get(column)
@@ -173,13 +250,19 @@ def spelled_labels(frame: pd.DataFrame, column: str, values) -> list[tuple[str, 
     return [(label_text(float(value)), list(texts)) for value, texts in sorted(spellings.items()) if value in present]
 
 
-def _listed(merged: list[tuple[str, list]], shown: int) -> str:
+def listed_labels(merged: list[tuple[str, list]], shown: int = 5) -> str:
     """"'north' (120 rows) and 'north ' (30 rows) as 'north'; ...": each label's raw texts, with their rows when
-    counted ((text, rows) pairs, :func:`merged_labels`)."""
+    counted ((text, rows) pairs, :func:`merged_labels`), invisible format characters spelled out and named
+    ("'north\\u200b' (30 rows; U+200B ZERO WIDTH SPACE)")."""
+    def named(text: str) -> str:
+        found = invisible_characters(text)
+        return "".join(f"; U+{ord(ch):04X} {unicodedata.name(ch, 'UNNAMED CHARACTER')}" for ch in found)
+
     def written(text) -> str:
         if isinstance(text, tuple):
-            return f"{printable(text[0])!r} ({text[1]} row{'s' if text[1] != 1 else ''})"
-        return repr(printable(text))
+            said = f"{text[1]} row{'s' if text[1] != 1 else ''}{named(str(text[0]))}"
+            return f"'{spelled_out(str(text[0]))}' ({said})"
+        return f"'{spelled_out(str(text))}'"
 
     listed = "; ".join(f"{' and '.join(written(t) for t in texts)} as '{printable(label)}'"
                        for label, texts in merged[:shown])

@@ -476,6 +476,31 @@ def moments_with_gaps(values: np.ndarray, names: tuple[str, ...], source: str,
     return _incomplete_moments(values, tuple(names), source, source, None, len(values), weights)
 
 
+#: the fewest answers an item needs in a sample or group analysed by full-information ML: its intercept, loading and
+#: residual variance there rest on its answers, and two answers fit the intercept and loading exactly, leaving nothing
+#: for the residual variance (the information matrix is singular: hostile trial s16, case 12); an item with several
+#: loadings needs more, which the fit's identification check finds
+MIN_ANSWERS = 3
+
+
+def too_few_answers(name: str, answers: int, source: str, group: str | None = None,
+                    numbers: np.ndarray | None = None, naming: RowNaming = RowNaming.FILE_ROW) -> str:
+    """The one-line refusal of an item answered fewer than :data:`MIN_ANSWERS` times in a sample or group (``group``:
+    its words, '\'south\' of district', with ``source`` naming it already), naming the item, its answers and
+    their rows (``numbers``)."""
+    from cfa_tool.data.kept_rows import rows_listed
+
+    said = "no answer" if not answers else f"only {answers} answer{'s' if answers != 1 else ''}"
+    rows = f" ({rows_listed(numbers, naming=naming)})" if answers and numbers is not None else ""
+    where = " in this group" if group is not None else ""
+    remedy = (f"take the item out of the model, leave this group out with a row filter ({Option.KEEP}), or join it "
+              f"with another group by recoding the group column" if group is not None
+              else "take the item out of the model, or analyse rows that answer it")
+    return (f"{source}: '{printable(name)}' has {said}{where}{rows}; full-information ML needs at least "
+            f"{MIN_ANSWERS} answers of an item{where} to estimate its intercept, loading and residual variance there "
+            f"(two answers fit the intercept and loading exactly and leave nothing for the residual variance): {remedy}")
+
+
 def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int,
                         weights: np.ndarray | None = None, numbers: np.ndarray | None = None,
                         naming: RowNaming = RowNaming.FILE_ROW) -> SampleMoments:
@@ -489,8 +514,10 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
         raise DataError(f"{source}: {n} row{'' if n == 1 else 's'} with any answer for {p} variables; the analysis needs more rows than variables")
     counts = (~np.isnan(data)).sum(axis=0)
     for j, c in enumerate(counts):
-        if c < 2:
-            raise DataError(f"{source}: column '{names[j]}' has {c} answers; each variable needs at least two")
+        if c < MIN_ANSWERS:
+            raise DataError(too_few_answers(names[j], int(c), source, group,
+                                            None if numbers is None else numbers[answered][~np.isnan(data[:, j])],
+                                            naming))
     observed = ~np.isnan(data)
     together = observed.astype(float).T @ observed.astype(float)
     i, j = np.unravel_index(np.argmin(together), together.shape)
@@ -514,6 +541,20 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
                         f"given") from None
     except EstimationError as error:
         complete = int(observed.all(axis=1).sum())
+        sparse = pairs_answered_together(observed, names)
+        if sparse:  # the likely cause: a pair's covariance from a few rows (hostile trial s16, case 06)
+            a, b, both = sparse[0]
+            i, j = list(names).index(a), list(names).index(b)
+            if numbers is not None and both:
+                from cfa_tool.data.kept_rows import rows_listed
+
+                both = f"{both} ({rows_listed(numbers[answered][observed[:, i] & observed[:, j]], naming=naming)})"
+            more = f" ({len(sparse) - 1} more such pair{'s' if len(sparse) > 2 else ''})" if len(sparse) > 1 else ""
+            raise EstimationError(
+                f"{source}: {error}; only {both} of its {n} rows answer both '{printable(a)}' and '{printable(b)}'"
+                f"{more}, so their covariance rests on those rows (fewer than a tenth of the rows: a rule of thumb of "
+                f"this project). What to try: take one of the two items out of the model, or analyse rows that "
+                f"answer both") from None
         remedy = (f"leave this group out with a row filter ({Option.KEEP}), join it with another group by recoding the group "
                   "column, or analyse fewer items" if group is not None
                   else "analyse fewer items, or gather rows that answer more of them")
@@ -523,6 +564,30 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
     return SampleMoments(tuple(names), sigma, mu, n, rows_read, rows_read - n, file_source, group, data,
                          numbers[answered] if numbers is not None else None,
                          unanswered_rows=numbers[~answered] if numbers is not None else None, row_naming=naming)
+
+
+#: a pair of items answered together by fewer than this share of the rows analysed has its correlation (with
+#: full-information ML its covariance) resting on those rows alone: the share below which an item's answers are
+#: called few (pipeline.inputs.FEW_ANSWERS_SHARE), held to pairs, a rule of thumb of this project, not a published
+#: cutoff (a correlation from 3 rows of 471 could be anything from -1 to 1)
+FEW_TOGETHER_SHARE = 0.10
+
+
+def pairs_answered_together(answered: np.ndarray, names: Sequence[str], share: float = FEW_TOGETHER_SHARE,
+                            skip: Sequence[str] = ()) -> list[tuple[str, str, int]]:
+    """The pairs of items that fewer than ``share`` of the rows (``answered``: rows x items, True where answered)
+    answer together, each as (item, item, rows answering both), fewest first, in the items' order among equals;
+    pairs with an item of ``skip`` (items said to be answered by few rows, named before their pairs) are left
+    out."""
+    answered = np.asarray(answered, dtype=bool)
+    if not len(answered) or answered.all():
+        return []
+    together = answered.T.astype(np.int64) @ answered.astype(np.int64)  # rows answering both (diagonal: each)
+    line = share * len(answered)
+    left = set(skip)
+    found = [(names[i], names[j], int(together[i, j])) for i in range(len(names)) for j in range(i + 1, len(names))
+             if together[i, j] < line and names[i] not in left and names[j] not in left]
+    return sorted(found, key=lambda t: t[2])
 
 
 def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20,

@@ -772,9 +772,10 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})
     found += odd_value_problems(loaded, group, design, helpers, listwise) + few_answers_problems(names, coverage or {}, n_obs, loaded,
-                                                                              group)
+                                                                              group, listwise)
     if group is not None and group in loaded.frame.columns:  # rows without a group label: the rule of _labelled
-        without = without_group_problem(int(loaded.frame[group].isna().sum()), len(loaded.frame), group)
+        without = without_group_problem(len(loaded.frame) - len(_labelled(loaded.frame, group)), len(loaded.frame),
+                                        group)
         found += (without,) if without is not None else ()
     return tuple(dict.fromkeys(found))  # each once
 
@@ -992,17 +993,23 @@ FEW_ANSWERS_SHARE = 0.10
 
 
 def few_answers_problems(names: tuple[str, ...], coverage: dict, n_obs: int | None, loaded: LoadedData | None = None,
-                         group: str | None = None) -> tuple:
+                         group: str | None = None, listwise: bool = False) -> tuple:
     """Cautions naming the items whose variance rests on few rows: those answered by fewer than
     :data:`FEW_ANSWERS_SHARE` of the rows analysed (the result's missing-data coverage; an item answered by 5 of 480
-    rows can drive the fit indices alone), and, from the rows of ``loaded`` analysed (with a ``group`` column, those
-    with a label), those answered alike by all rows but a few (data.descriptives.nearly_constant_items: the few
-    rows set the size and the sign of the item's loading, and so whether the keyed sums reverse it).  ``names``:
-    the items; ``coverage``: item -> share of the ``n_obs`` rows analysed answering it."""
+    rows can drive the fit indices alone), with a ``group`` column judged in each group (:func:`_few_answers_in_groups`:
+    a group estimates its own loading, intercept and variance of the item, so 3 answers of a group's 230 rows rest on
+    those 3 however many other groups answer it), and, from the rows of ``loaded`` analysed (with a ``group``
+    column, those with a label), those answered alike by all rows but a few (data.descriptives.nearly_constant_items:
+    the few rows set the size and the sign of the item's loading, and so whether the keyed sums reverse it).
+    ``names``: the items; ``coverage``: item -> share of the ``n_obs`` rows analysed answering it; ``listwise``:
+    rows with gaps leave the analysis, so every item is answered by every row analysed."""
     constant = _nearly_constant_problems(names, loaded, group)
+    if group is not None and loaded is not None and group in loaded.frame.columns:
+        return (() if listwise else _few_answers_in_groups(names, loaded, group)) + constant
     few = {x: share for x, share in coverage.items() if share < FEW_ANSWERS_SHARE}
+    together = () if listwise or loaded is None else _few_together_problems(names, loaded, None, tuple(few))
     if not few or not n_obs:
-        return constant
+        return together + constant
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     n = n_obs
@@ -1014,7 +1021,105 @@ def few_answers_problems(names: tuple[str, ...], coverage: dict, n_obs: int | No
                     f"variance, covariances and loading rest on those answers alone, and can drive the fit indices.",
                     f"leave {'it' if one else 'them'} out of the model, or check why so few rows answer "
                     f"{'it' if one else 'them'} (a question put to a few respondents only, an import that lost answers)."),
-            ) + constant
+            ) + together + constant
+
+
+def _few_together_problems(names: tuple[str, ...], loaded: LoadedData, group: str | None,
+                           few: tuple[str, ...] = (), label: str | None = None) -> tuple:
+    """The caution on pairs of items answered together by fewer than data.moments.FEW_TOGETHER_SHARE of the rows
+    analysed (the rows of ``loaded`` with a model item answered; with ``label``, those of that group of ``group``):
+    their correlation (a polychoric one, or with full-information ML the covariance) rests on those rows alone,
+    however many answer each item (hostile trial s16, case 06: 3 of 471 rows answered both clean and temperature,
+    said only inside a note).  Pairs with an item of ``few`` (answered by few rows, said by its own caution) are
+    left out.  One caution naming each pair, its rows answering both and, for the fewest, those rows."""
+    from cfa_tool.data.kept_rows import rows_listed
+    from cfa_tool.data.moments import FEW_TOGETHER_SHARE, pairs_answered_together
+
+    names = tuple(names)
+    frame = _labelled(loaded.frame, group)
+    if label is not None:
+        from cfa_tool.data.groups import group_keys
+
+        frame = frame.loc[(group_keys(frame[group]) == label).to_numpy()]
+    values = loaded.items.of(frame, names) if loaded.items is not None else None
+    if values is None:
+        values = item_values(frame, names)
+    if values is None or len(names) < 2:  # not plain numbers: the reading of the items names what is wrong
+        return ()
+    answered = ~np.isnan(values)
+    rows = answered.any(axis=1)
+    found = pairs_answered_together(answered[rows], names, FEW_TOGETHER_SHARE, few)
+    if not found:
+        return ()
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    n = int(rows.sum())
+    a, b, both = found[0]
+    i, j = names.index(a), names.index(b)
+    which = row_numbers(frame)[rows & answered[:, i] & answered[:, j]]
+    first = f"'{printable(a)}' and '{printable(b)}' ({both} of {n} rows" + (
+        f": {rows_listed(which, naming=row_naming(frame))})" if both else ")")
+    others = "; ".join(f"'{printable(x)}' and '{printable(y)}' ({k} of {n} rows)" for x, y, k in found[1:5]) + (
+        f"; and {len(found) - 5} more" if len(found) > 5 else "")
+    one = len(found) == 1
+    whose = "this group's rows" if label is not None else "the rows"
+    return (Problem(
+        ProblemKind.FEW_ANSWERED_TOGETHER, (), both / n,
+        f"Few of {whose} answer both items of {'the pair' if one else 'the pairs'} {first}"
+        f"{'; ' + others if others else ''}: {'its' if one else 'each'} correlation rests on those rows alone, "
+        f"whatever each item's own answers, and can drive the fit indices (fewer than a tenth of the rows: a rule "
+        f"of thumb of this project, not a published cutoff).",
+        f"take one item of {'the pair' if one else 'each pair'} out of the model, or check why so few rows answer "
+        f"both (questions put to different respondents, as in a split-ballot survey or a routing error).",
+        group=label),)
+
+
+def _few_answers_in_groups(names: tuple[str, ...], loaded: LoadedData, group: str) -> tuple:
+    """The caution of :func:`few_answers_problems` judged in each group: per group (in the order of its labels), the
+    items answered by fewer than :data:`FEW_ANSWERS_SHARE` of the group's rows analysed (its rows with a model item
+    answered, as full-information ML analyses them), one caution per group naming the group, each item and its
+    answers (hostile trial s16, case 12: 3 of south's 230 rows answered 'clean', and the pooled share, 52.7%, said
+    nothing)."""
+    from cfa_tool.data.groups import group_keys
+    from cfa_tool.data.labels import ordered_labels
+
+    names = tuple(names)
+    frame = _labelled(loaded.frame, group)
+    values = loaded.items.of(frame, names) if loaded.items is not None else None
+    if values is None:
+        values = item_values(frame, names)
+    if values is None or not names:  # not plain numbers: the reading of the items names what is wrong
+        return ()
+    keys = group_keys(frame[group]).to_numpy(object)
+    labels = ordered_labels({k for k in keys if k is not None}, frame, group)
+    answered = ~np.isnan(values)
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    found, few_items = [], {}
+    for label in labels:
+        mine = answered[(keys == label) & answered.any(axis=1)]
+        n = len(mine)
+        if not n:
+            continue
+        counts = mine.sum(axis=0)
+        few = [(names[j], int(c)) for j, c in enumerate(counts) if c < FEW_ANSWERS_SHARE * n]
+        if not few:
+            continue
+        few_items[label] = tuple(x for x, _ in few)
+        one = len(few) == 1
+        listed = ", ".join(f"'{printable(x)}' ({c} of {n} rows)" for x, c in few[:5]) + (
+            f" and {len(few) - 5} more" if len(few) > 5 else "")
+        found.append(Problem(  # the views name the group first ('Group south: '), and the JSON its 'group'
+            ProblemKind.FEW_ANSWERS, (), min(c / n for _, c in few),
+            f"Few of this group's rows answer {'the item' if one else 'the items'} {listed}: the group's "
+            f"estimates of {'its' if one else 'their'} loading, intercept and variance rest "
+            f"on those answers alone, whatever the other groups answered, and can drive the fit indices.",
+            f"leave {'it' if one else 'them'} out of the model, or the group out with a row filter ({Option.KEEP}), or "
+            f"check why so few of the group's rows answer {'it' if one else 'them'} (a question put to some groups "
+            f"only, an import that lost answers).", group=label))
+    for label in labels:  # then the pairs answered together by few of a group's rows, without the items said
+        found.extend(_few_together_problems(names, loaded, group, few_items.get(label, ()), label))
+    return tuple(found)
 
 
 def _nearly_constant_problems(names: tuple[str, ...], loaded: LoadedData | None, group: str | None) -> tuple:
@@ -1258,7 +1363,9 @@ def _labelled(frame: pd.DataFrame, group: str | None) -> pd.DataFrame:
     """The rows analysed: with groups, those with a group label (the others are left out, with a note)."""
     if group is None or group not in frame.columns:
         return frame
-    labelled = frame[group].notna().to_numpy()
+    from cfa_tool.data.groups import group_keys
+
+    labelled = group_keys(frame[group]).notna().to_numpy()  # a cell of invisible characters alone has no label
     return frame if labelled.all() else frame.loc[labelled]
 
 

@@ -12,7 +12,8 @@ from cfa_tool.errors import OptionError
 from cfa_tool.data.labels import label_notes
 
 MODEL = "factor f: y1, y2, y3, y4\n"
-NOTE = "labels that differ only by spaces at their ends or by Unicode form were read as one group"
+NOTE = ("labels that differ only by spaces at their ends, by invisible format characters or by Unicode form were read "
+        "as one group")
 
 
 @pytest.fixture(scope="module")
@@ -86,8 +87,9 @@ def test_cluster_and_stratum_labels_are_read_as_group_labels_are(spaced):
     assert [r.se for r in b.estimates] == pytest.approx([r.se for r in a.estimates], rel=1e-12, nan_ok=True)
     notes = [w for w in b.warnings if "were read as one" in w]
     assert len(notes) == 2
-    assert notes[0].startswith("in the cluster column 'school', labels that differ only by spaces at their ends or by "
-                               "Unicode form were read as one cluster: 's0' (12 rows) and 's0 ' (3 rows) as 's0'")
+    assert notes[0].startswith("in the cluster column 'school', labels that differ only by spaces at their ends, by "
+                               "invisible format characters or by Unicode form were read as one cluster: 's0' (12 "
+                               "rows) and 's0 ' (3 rows) as 's0'")
     # (rows 0, 210 and 420 of the 15 of cluster s0 are multiples of 7)
     assert notes[1].startswith("in the strata column 'region'") and "were read as one stratum" in notes[1]
 
@@ -166,8 +168,8 @@ def test_a_label_written_with_spaces_alone_is_named_with_its_rows(spaced):
     roles = spaced.assign(area=np.where(np.arange(450) % 3 == 0, "manager ", np.where(np.arange(450) % 3 == 1,
                                                                                       "Manager", "staff")))
     written = int((roles["area"] == "manager ").sum())  # pandas, from the cells written
-    said = (f"in the group column 'area', labels written with spaces at their ends or in another Unicode form were "
-            f"read without them: 'manager ' ({written} rows) as 'manager'")
+    said = (f"in the group column 'area', labels written with spaces at their ends, with invisible format characters "
+            f"or in another Unicode form were read without them: 'manager ' ({written} rows) as 'manager'")
     assert label_notes(roles, "area") == [said]
     fitted = cfa_tool.fit(MODEL, roles, group="area")
     assert [g.label for g in fitted.groups] == ["Manager", "manager", "staff"]

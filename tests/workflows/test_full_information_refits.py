@@ -128,7 +128,7 @@ def test_resamples_whose_saturated_model_cannot_be_estimated_are_counted_apart(g
 
     start = cfa_tool.fit(TWO_FACTORS, gappy).theta
     rows = gappy.to_numpy().copy()
-    rows[4:, 5] = np.nan  # y6 answered by few rows: many resamples hold fewer than two of its answers
+    rows[4:, 5] = np.nan  # y6 answered by few rows: many resamples hold fewer than the three answers an item needs
     rows = rows[~np.isnan(rows).all(axis=1)]
     spec = parse_model(TWO_FACTORS)
     draws = _replicate([(spec, rows, NAMES, seed, start, None, True, True) for seed in range(6)])

@@ -1,0 +1,91 @@
+"""An item that one group almost never answered is judged in that group: a caution first naming the group, the item
+and its answers, and, under three answers, a one-line refusal naming them (hostile trial s16, case 12: 'clean'
+answered by 3 of south's 230 rows gave no caution, the pooled coverage being 52.7%; by 2, an exit-3 identification
+message naming unrelated courtesy and punctuality loadings)."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.errors import DataError
+from tests.commands.test_cli import run
+
+ROOT = Path(__file__).resolve().parents[2]
+DATA = ROOT / "demo" / "rider_survey.csv"  # invented rider survey, simulated with a fixed seed
+MODEL = ROOT / "models" / "rider_three_factors.cfa"
+
+
+def south_answering(k: int) -> pd.DataFrame:
+    """The demo data with 'clean' answered by the first ``k`` rows of district south only there."""
+    frame = pd.read_csv(DATA)
+    south = frame.index[frame["district"] == "south"]
+    frame.loc[south[k:], "clean"] = np.nan
+    return frame
+
+
+def test_an_item_almost_unanswered_in_one_group_is_named_first_with_its_group():
+    frame = south_answering(3)
+    # the counts from pandas, not the project: south's rows with any model item answered, and its answers of clean
+    south = frame[frame["district"] == "south"]
+    items = [c for c in frame.columns if c not in ("rider_id", "district")]  # the model's 12 items
+    assert len(items) == 12
+    rows = int(south[items].notna().any(axis=1).sum())
+    answers = int(south["clean"].notna().sum())
+    assert (answers, rows) == (3, 230)
+    assert frame["clean"].notna().mean() > 0.5  # pooled over the groups the item looks well answered
+    result = cfa_tool.fit(MODEL, frame, group="district")
+    first = result.problems[0]
+    assert first.kind is ProblemKind.FEW_ANSWERS and first.group == "south"
+    assert first.explanation.startswith(f"Few of this group's rows answer the item 'clean' ({answers} of {rows} rows)")
+    assert sum(p.kind is ProblemKind.FEW_ANSWERS for p in result.problems) == 1  # north answered it: nothing there
+    assert result.to_dict()["problems"][0]["group"] == "south"
+    checked = cfa_tool.check(MODEL, frame, group="district")
+    assert any(p.kind is ProblemKind.FEW_ANSWERS and p.group == "south" for p in checked.problems)
+    # a tenth of the group's rows is the line (FEW_ANSWERS_SHARE, a rule of thumb of this project): 23 of 230 answers
+    # are no caution, 22 are
+    assert not any(p.kind is ProblemKind.FEW_ANSWERS for p in cfa_tool.fit(MODEL, south_answering(23),
+                                                                            group="district").problems)
+    assert any(p.kind is ProblemKind.FEW_ANSWERS for p in cfa_tool.fit(MODEL, south_answering(22),
+                                                                        group="district").problems)
+
+
+def test_the_report_says_it_before_the_title(tmp_path):
+    path = tmp_path / "south3.csv"
+    south_answering(3).to_csv(path, index=False)
+    done = run("fit", str(MODEL), "--data", str(path), "--group-column", "district")
+    assert done.returncode == 0, done.stderr
+    title = done.stdout.index("Rider experience")
+    said = done.stdout.index("Few of this group's rows answer the item 'clean'")
+    assert said < title and "Group south" in done.stdout[:said]
+
+
+@pytest.mark.parametrize("k", [1, 2])
+def test_fewer_than_three_answers_in_a_group_are_refused_naming_the_item_and_the_group(tmp_path, k):
+    frame = south_answering(k)
+    with pytest.raises(DataError) as refused:
+        cfa_tool.fit(MODEL, frame, group="district")
+    text = str(refused.value)
+    south = frame.index[frame["district"] == "south"]
+    rows = ", ".join(str(i) for i in south[:k])  # a data frame's rows are named by their index labels
+    assert f"(group 'south' of district): 'clean' has only {k} answer" in text
+    assert f"in this group ({'index label' if k == 1 else 'index labels'} {rows})" in text
+    path = tmp_path / "south.csv"
+    frame.to_csv(path, index=False)
+    done = run("fit", str(MODEL), "--data", str(path), "--group-column", "district")
+    assert done.returncode == 2 and "not identified" not in done.stderr
+    assert f"south.csv (group 'south' of district): 'clean' has only {k} answer" in done.stderr
+    assert f"({'row' if k == 1 else 'rows'} {', '.join(str(i + 2) for i in south[:k])})" in done.stderr  # the file's rows, its names row 1
+    assert len(done.stderr.strip().splitlines()) == 1
+
+
+def test_two_answers_in_one_sample_are_refused_too():
+    frame = pd.read_csv(DATA)
+    frame.loc[frame.index[2:], "clean"] = np.nan
+    with pytest.raises(DataError, match=r"'clean' has only 2 answers \(index labels 0, 1\); full-information ML needs at least 3"):
+        cfa_tool.fit(MODEL, frame)
