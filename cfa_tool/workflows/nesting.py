@@ -264,7 +264,9 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
                                       delta_rmsea, f"its scaling correction is not positive ({cd:.3f}), so the "
                                       "difference cannot be scaled" + (
                                           "" if method is DifferenceMethod.SATORRA_BENTLER_2010 else
-                                          ", which can happen with this version in small samples; " + (
+                                          ": this version's correction can be negative, in small samples or "
+                                          "when the restricted model is far from the data (Satorra & Bentler "
+                                          "2010); " + (
                                               "read the strictly positive version" if general_scaling_at_restricted
                                               is not None else "the strictly positive version is not available "
                                                                "either"))))
