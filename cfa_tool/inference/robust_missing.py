@@ -115,7 +115,7 @@ def _model_directions(likelihood: MissingDataLikelihood, theta: np.ndarray, g: i
 
 
 def scaling_at(likelihood: MissingDataLikelihood, theta: np.ndarray,
-               saturated: Sequence[tuple[np.ndarray, np.ndarray]], df: int) -> tuple[float, float]:
+               saturated: Sequence[tuple[np.ndarray, np.ndarray]], df: int) -> float:
     """The scaling factor tr(U Gamma) / (2 df) in the form Satorra & Bentler (2010) evaluate it for the strictly
     positive scaled difference, at a point that need not be the model's estimates (a general model at a restricted
     model's estimates): Gamma = H_s^-1 B_s H_s^-1 of the data, from the rows at the saturated (EM) moments
@@ -128,20 +128,19 @@ def scaling_at(likelihood: MissingDataLikelihood, theta: np.ndarray,
     models whose moments meet at their points share W and Gamma, so that df0 c0 - df1 c1 = tr((U0 - U1) Gamma) / 2
     is not negative whenever D'WD of the larger model is positive definite (U0 - U1 is then a projection in the
     metric W; Satorra & Bentler 2010).  With complete rows and the model reproducing the sample moments, W is the
-    normal-theory weight and the factor is the complete-data one (cfa_tool.inference.robust).  Returns (the factor,
-    the smallest eigenvalue of D'WD scaled to unit diagonal); the factor is NaN when that eigenvalue is not
-    positive (NaN too when some Sigma_oo is not positive definite)."""
+    normal-theory weight and the factor is the complete-data one (cfa_tool.inference.robust).  NaN when D'WD, scaled
+    to unit diagonal, has no positive smallest eigenvalue, or some Sigma_oo is not positive definite."""
     q = len(theta)
     information, meat = np.zeros((q, q)), np.zeros((q, q))
     trace_w_gamma = 0.0
+    d_sigma, d_mu = _moment_directions(likelihood.p)
     for g, (w, data) in enumerate(zip(likelihood.weights, likelihood.patterns)):
-        d_sigma, d_mu = _moment_directions(likelihood.p)
         mu_s, sigma_s = saturated[g]
         H_s = moment_hessian(data, mu_s, sigma_s, d_sigma, d_mu)
         mats = likelihood.model.matrices(theta, g)
         W = moment_hessian(data, mats.implied_mean(), mats.implied_covariance(), d_sigma, d_mu)
         if H_s is None or W is None:
-            return float("nan"), float("nan")
+            return float("nan")
         inverse_s = scaled_inverse(H_s)
         gamma = inverse_s @ scores_meat(data, mu_s, sigma_s, likelihood.groups[g].design) @ inverse_s
         D = _model_directions(likelihood, theta, g)
@@ -152,12 +151,11 @@ def scaling_at(likelihood: MissingDataLikelihood, theta: np.ndarray,
     information = 0.5 * (information + information.T)
     diagonal = np.diag(information)
     if not np.all(diagonal > 0):
-        return float("nan"), float(diagonal.min())
+        return float("nan")
     scale = 1.0 / np.sqrt(diagonal)  # unit diagonal: eigenvalues free of the parameters' units
-    smallest = float(np.linalg.eigvalsh(information * np.outer(scale, scale))[0])
-    if not smallest > 1e-10:
-        return float("nan"), smallest
-    return (trace_w_gamma - float(np.sum(scaled_inverse(information) * meat.T))) / (2.0 * df), smallest
+    if not np.linalg.eigvalsh(information * np.outer(scale, scale))[0] > 1e-10:
+        return float("nan")
+    return (trace_w_gamma - float(np.sum(scaled_inverse(information) * meat.T))) / (2.0 * df)
 
 
 def robust_missing(likelihood: MissingDataLikelihood, theta: np.ndarray,

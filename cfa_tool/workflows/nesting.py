@@ -274,7 +274,7 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
 
 
 def scaled_difference(restricted: FitResult, general: FitResult, general_estimation: Estimation, restricted_name: str,
-                      general_name: str, restricted_estimation: Estimation | None = None) -> DifferenceTest:
+                      general_name: str, restricted_estimation: Estimation) -> DifferenceTest:
     """The one difference test of two nested fits that carry a robust test (the invariance ladder's steps, the
     replication's test of one solution): the scaled difference (Satorra & Bentler 2001), or its strictly positive
     version (Satorra & Bentler 2010, the general model's scaling factor at the restricted estimates from
@@ -288,7 +288,7 @@ def scaled_difference(restricted: FitResult, general: FitResult, general_estimat
         return scaled
     at = scaling_at_restricted(restricted, general_estimation.table, general_estimation.model,
                                general_estimation.likelihood, general_estimation.theta, general.fit.df,
-                               restricted_estimation.likelihood if restricted_estimation is not None else None)
+                               restricted_estimation.likelihood)
     positive = (scaled_difference_tests(restricted, general, restricted_name, general_name, at.general,
                                         restricted_scaling=at.restricted)[-1]
                 if at.general is not None else None)
@@ -309,8 +309,9 @@ def scaling_at_restricted(restricted: FitResult, table, model, likelihood, start
     the moments, means included, their patterns), the restricted one on ``restricted_likelihood`` (the restricted
     model's own, required then) -- the fit's bread, the observed information in the parameters, holds a term in the
     score that is not zero for the general model there, and with it c_d came out negative for nested models.
-    ``start``: the general model's estimates.  ``general`` None when the general model has no degrees of freedom, M10 does not reproduce the restricted model's
-    moments or the information there is not positive definite (``why_not`` says which)."""
+    ``start``: the general model's estimates.  ``general`` None when the general model has no degrees of freedom,
+    M10 does not reproduce the restricted model's moments or the information there is not positive definite
+    (``why_not`` says which)."""
     from cfa_tool.estimation.ml import NormalLikelihood
     from cfa_tool.estimation.strategy import search
     from cfa_tool.inference.robust import robust_parts
@@ -325,11 +326,14 @@ def scaling_at_restricted(restricted: FitResult, table, model, likelihood, start
         return PositiveScaling(why_not=NO_M10)
     if likelihood.complete_data:
         return PositiveScaling(robust_parts(model, found.theta, likelihood)[1] / df)
+    if restricted_likelihood is None:
+        raise ValueError("rows with gaps: the restricted model's own likelihood is needed for its factor")
+
     def saturated(on) -> list:  # each likelihood's own EM moments, in its own order of the variables
         return [(gm.mean, gm.covariance) for gm in on.groups]
 
-    general, _ = scaling_at(likelihood, found.theta, saturated(likelihood), df)
-    own, _ = scaling_at(restricted_likelihood, restricted.theta, saturated(restricted_likelihood), restricted.fit.df)
+    general = scaling_at(likelihood, found.theta, saturated(likelihood), df)
+    own = scaling_at(restricted_likelihood, restricted.theta, saturated(restricted_likelihood), restricted.fit.df)
     if not (np.isfinite(general) and np.isfinite(own)):
         return PositiveScaling(why_not=NO_POSITIVE_INFORMATION)
     return PositiveScaling(general, own)
