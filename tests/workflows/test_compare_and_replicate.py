@@ -507,3 +507,23 @@ def test_uncorrelated_against_correlated_factors_with_gaps_gets_every_scaled_tes
     assert at.general > 0 and at.restricted > 0
     text = " ".join(comparison_report(result).paragraph.split())
     assert "check that the models are nested" not in text and "not computed" not in text
+
+
+def test_a_strictly_positive_difference_that_cannot_be_computed_says_the_true_reason(hs_data, monkeypatch):
+    # when the rows' observed information at the restricted estimates is not positive definite in the general model's
+    # parameters (forced here), the 2010 row says so, and neither the table's notes nor the paragraph blames the
+    # models' nesting (a new-user trial was told to "check that the models are nested" of two nested models)
+    from cfa_tool.inference import robust_missing
+    from cfa_tool.reporting.workflow_tables import comparison_report
+    from cfa_tool.workflows.nesting import NO_POSITIVE_INFORMATION
+
+    data = hs_data[[f"x{k}" for k in range(1, 10)]].copy()
+    data.loc[np.random.default_rng(3).random(len(data)) < 0.2, "x4"] = np.nan
+    monkeypatch.setattr(robust_missing, "scaling_at", lambda *a: float("nan"))
+    result = compare([THREE_FACTORS + "uncorrelated visual, textual, speed\n", THREE_FACTORS], data, test="robust")
+    positive = {t.method.value: t for t in result.tests}["Satorra-Bentler 2010 strictly positive scaled difference"]
+    assert positive.not_computed == NO_POSITIVE_INFORMATION
+    report = comparison_report(result)
+    words = " ".join([report.paragraph, *map(str, report.notes)])
+    assert "nested" not in words.replace("Nested models (found numerically", "")
+    assert "was not computed: the rows' observed information at the restricted model's estimates" in report.paragraph
