@@ -114,6 +114,50 @@ def _model_directions(likelihood: MissingDataLikelihood, theta: np.ndarray, g: i
     return np.hstack([d_mu, d_sigma[:, I, J]]).T  # (k, q)
 
 
+def scaling_at(likelihood: MissingDataLikelihood, theta: np.ndarray,
+               saturated: Sequence[tuple[np.ndarray, np.ndarray]], df: int) -> float:
+    """The scaling factor tr(U Gamma) / (2 df) in the form Satorra & Bentler (2010) evaluate it for the strictly
+    positive scaled difference, at a point that need not be the model's estimates (a general model at a restricted
+    model's estimates): Gamma = H_s^-1 B_s H_s^-1 of the data, from the rows at the saturated (EM) moments
+    ``saturated`` as the fit's factor takes it, and U = W - W D (D'WD)^-1 D'W at the model's moments at ``theta``,
+    W the rows' observed information in beta = (mu, vech Sigma) there (patterns fixed, means included: the
+    information the fit uses, :func:`cfa_tool.estimation.fiml.moment_hessian`) and D = d beta / d theta; groups
+    summed as the fit sums them.  The fit's own factor takes the observed information in theta as its bread, which
+    holds the score times the second derivatives of beta(theta): not zero for a general model away from its own
+    estimates, where it can make the information indefinite and two nested models' factors disordered.  Here two
+    models whose moments meet at their points share W and Gamma, so that df0 c0 - df1 c1 = tr((U0 - U1) Gamma) / 2
+    is not negative whenever D'WD of the larger model is positive definite (U0 - U1 is then a projection in the
+    metric W; Satorra & Bentler 2010).  With complete rows and the model reproducing the sample moments, W is the
+    normal-theory weight and the factor is the complete-data one (cfa_tool.inference.robust).  NaN when D'WD, scaled
+    to unit diagonal, has no positive smallest eigenvalue, or some Sigma_oo is not positive definite."""
+    q = len(theta)
+    information, meat = np.zeros((q, q)), np.zeros((q, q))
+    trace_w_gamma = 0.0
+    d_sigma, d_mu = _moment_directions(likelihood.p)
+    for g, (w, data) in enumerate(zip(likelihood.weights, likelihood.patterns)):
+        mu_s, sigma_s = saturated[g]
+        H_s = moment_hessian(data, mu_s, sigma_s, d_sigma, d_mu)
+        mats = likelihood.model.matrices(theta, g)
+        W = moment_hessian(data, mats.implied_mean(), mats.implied_covariance(), d_sigma, d_mu)
+        if H_s is None or W is None:
+            return float("nan")
+        inverse_s = scaled_inverse(H_s)
+        gamma = inverse_s @ scores_meat(data, mu_s, sigma_s, likelihood.groups[g].design) @ inverse_s
+        D = _model_directions(likelihood, theta, g)
+        WD = W @ D
+        information += w * D.T @ WD
+        meat += w * WD.T @ gamma @ WD
+        trace_w_gamma += float(np.sum(W * gamma))
+    information = 0.5 * (information + information.T)
+    diagonal = np.diag(information)
+    if not np.all(diagonal > 0):
+        return float("nan")
+    scale = 1.0 / np.sqrt(diagonal)  # unit diagonal: eigenvalues free of the parameters' units
+    if not np.linalg.eigvalsh(information * np.outer(scale, scale))[0] > 1e-10:
+        return float("nan")
+    return (trace_w_gamma - float(np.sum(scaled_inverse(information) * meat.T))) / (2.0 * df)
+
+
 def robust_missing(likelihood: MissingDataLikelihood, theta: np.ndarray,
                    saturated: Sequence[tuple[np.ndarray, np.ndarray]], df: int, base_df: int | None,
                    ) -> tuple[np.ndarray, float, float]:

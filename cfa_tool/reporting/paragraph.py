@@ -1216,8 +1216,11 @@ def comparison_paragraph(comparison) -> str:
               sorted(missed, key=lambda m: _PREFERRED.index(m[0]))]
     for (restricted, general), found in pairs.items():
         pair = f"{label[restricted]} against {label[general]}"
-        if not shown[(restricted, general)]:
-            parts.append(f"For {pair} no difference statistic could be computed ({found[0].not_computed}).")
+        if not shown[(restricted, general)]:  # why each was not is said above; the changes in fit stay descriptions
+            t = sorted(found, key=lambda t: _PREFERRED.index(t.method))[0]
+            changes = ("" if first.method.ordinal or math.isnan(t.delta_cfi) else
+                       f"; \u0394CFI = {signed(t.delta_cfi)}, \u0394RMSEA = {signed(t.delta_rmsea)}")
+            parts.append(f"For {pair} no difference statistic could be computed{changes}.")
             continue
         t = shown[(restricted, general)][0]
         which = f", {t.method}" if len(methods) > 1 else ""

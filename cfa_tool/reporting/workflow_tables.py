@@ -235,7 +235,15 @@ def boundary_note(tests, explained: str | None = None, criteria: bool = True, or
     statement after the tables (:func:`ordinal_decision_note`), referred to here."""
     what = "; ".join(tests[0].boundary)
     mixture = [t for t in tests if not missing(t.boundary_p_value)]
-    shown = "p-value" if sum(not t.not_computed for t in tests) == 1 else "p-values"
+    computed = sum(not t.not_computed for t in tests)
+    shown = "p-value" if computed == 1 else "p-values"
+    if not computed:  # no p-value in the table, so none is marked: the boundary said, and what is left to weigh
+        weigh = f"weigh the models by their fit indices{', AIC and BIC' if criteria else ''}"
+        if explained is not None:
+            return Note((f"On the boundary: {what} (see the note under ", TableReference(explained),
+                         f"). No difference test could be computed here: {weigh}."))
+        return (f"On the boundary: {what}: {BOUNDARY_CAUTION}. No difference test could be computed here: "
+                f"{weigh}.")
     if mixture:
         found = ", ".join(f"p {p_phrase(t.boundary_p_value)} for the {t.method}" for t in mixture)
         approximate = " (for the scaled differences as an approximation)" if len(mixture) > 1 else ""
@@ -320,8 +328,9 @@ def comparison_report(comparison) -> Report:
         rows, values = [], []
         boundary = found[0].boundary
         for t in found:
-            if t.not_computed:
-                rows.append([t.method, f"not computed ({t.df_difference})", "", "", ""])
+            if t.not_computed:  # the changes in fit indices describe the two fits, with or without a statistic
+                rows.append([t.method, f"not computed ({t.df_difference})", "", signed(t.delta_cfi),
+                             signed(t.delta_rmsea)])
                 notes.append(f"{t.method}: not computed: {t.not_computed}.")
             else:
                 rows.append([t.method, f"{t.chi_square_difference:.3f} ({t.df_difference})",
@@ -330,11 +339,14 @@ def comparison_report(comparison) -> Report:
                            None if t.not_computed else t.p_value, t.delta_cfi, t.delta_rmsea, t.not_computed,
                            "; ".join(t.boundary), None if missing(t.boundary_p_value) else t.boundary_p_value])
         if boundary:  # the why once, in the first such caution; the later ones name what lies on their boundary
+            computed = any(not t.not_computed for t in found)  # no p-value to read as approximate otherwise
+            read = ("read the p-values of this comparison as approximate" if computed
+                    else "no difference test of this comparison could be computed")
             cautions.append(f"{restricted} against {general}: the restricted model has {'; '.join(boundary)}: "
-                            + ("values on the boundary too, so read the p-values of this comparison as approximate "
-                               "as well." if explained is not None else
-                               Note((f"{BOUNDARY_CAUTION}; read the p-values of this comparison as approximate (see "
-                                     f"the note under ", TableReference(key), ")."))))
+                            + (("values on the boundary too, so read the p-values of this comparison as approximate "
+                                "as well." if computed else f"values on the boundary too; {read}.")
+                               if explained is not None else
+                               Note((f"{BOUNDARY_CAUTION}; {read} (see the note under ", TableReference(key), ")."))))
         columns = [("Test", "l"), ("Difference (df)", "r"), ("p", "r"), ("\u0394CFI", "r"), ("\u0394RMSEA", "r")]
         value_names = ["Test", "Chi-square difference", "df difference", "p", "\u0394CFI", "\u0394RMSEA",
                        "Not computed because", "On the boundary", "p, one parameter on the boundary"]

@@ -316,6 +316,14 @@ def _compare_summary(specs, names, path, fit_options, group) -> Comparison:
 
 
 def _pairwise_tests(specs, names, results, data_groups) -> tuple[list[DifferenceTest], list[NotNested]]:
+    def structure(k: int):
+        """Model k's parameter table, index arrays and likelihood on its rows, laid out as its fit was."""
+        labels = tuple(label for label, _ in data_groups[k]) if results[k].multigroup else None
+        fiml = results[k].method.full_information
+        table, model = model_structure(specs[k], labels, fiml)
+        moments = [ordered_moments(m, table.observed) for _, m in data_groups[k]]
+        return table, model, full_information_likelihood(model, moments) if fiml else NormalLikelihood(model, moments)
+
     def test_pair(a: int, b: int) -> tuple[list[DifferenceTest], str]:
         nested, reason, m10 = is_nested(results[a], specs[b], results[b])
         if not nested:
@@ -323,24 +331,17 @@ def _pairwise_tests(specs, names, results, data_groups) -> tuple[list[Difference
         tests = [difference_test(results[a], results[b], names[a], names[b])]
         if results[a].robust is not None and results[b].robust is not None:
             general = results[b]
-            labels = tuple(label for label, _ in data_groups[b]) if general.multigroup else None
             fiml = general.method.full_information
-            table, model = model_structure(specs[b], labels, fiml)
-            moments = [ordered_moments(m, table.observed) for _, m in data_groups[b]]
-            likelihood = full_information_likelihood(model, moments) if fiml else NormalLikelihood(model, moments)
+            table, model, likelihood = structure(b)
             # the nesting check fitted M10 already in the complete-data layout: its estimates start the search there
             start = m10.theta if not fiml and len(m10.theta) == table.n_free else general.theta
-            c10 = scaling_at_restricted(results[a], table, model, likelihood, start, general.fit.df)
-            tests.extend(scaled_difference_tests(results[a], general, names[a], names[b], c10,
-                                                 NO_M10 if c10 is None and general.fit.df > 0 else ""))
+            at = scaling_at_restricted(results[a], table, model, likelihood, start, general.fit.df,
+                                       structure(a)[2] if fiml else None)
+            tests.extend(scaled_difference_tests(results[a], general, names[a], names[b], at.general, at.why_not,
+                                                 restricted_scaling=at.restricted))
         return tests, ""
 
     return _each_pair(names, results, test_pair, specs, likelihood=True)
-
-
-#: why the strictly positive scaled difference is missing for a nested pair
-NO_M10 = ("the general model could not be fitted to the restricted model's implied moments, so its scaling factor "
-          "there is not defined")
 
 
 def _each_pair(names, results, test_pair, specs, likelihood: bool) -> tuple[list[DifferenceTest], list[NotNested]]:

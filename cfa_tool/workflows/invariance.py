@@ -811,7 +811,7 @@ class NormalLadder:
         or its strictly positive version (Satorra & Bentler 2010) when the 2001 correction is not positive; the
         likelihood-ratio difference without a robust test (or when neither scaled version can be computed)."""
         general_est, general = previous
-        return scaled_difference(result, general, general_est, level, previous_level)
+        return scaled_difference(result, general, general_est, level, previous_level, est)
 
     def constraint_tests(self, est, kinds, robust: bool = False):
         """Score tests of the step's equalities: with a robust (or design-based) test, Satorra's (1989) generalized

@@ -10,6 +10,8 @@ from __future__ import annotations
 from dataclasses import dataclass, replace
 from typing import Callable
 
+import numpy as np
+
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool.data.moments import SampleMoments
@@ -201,14 +203,39 @@ PSEUDO_LIKELIHOOD = ("under the sampling design the likelihood is a weighted pse
                      "difference")
 
 
+@dataclass(frozen=True)
+class PositiveScaling:
+    """The scaling factors of the strictly positive scaled difference (Satorra & Bentler 2010), both at the
+    restricted model's estimates: ``general`` the general model's there (c10; None when not defined, and
+    ``why_not`` says why unless the general model has no degrees of freedom), ``restricted`` the restricted
+    model's computed as that one is (None: its fit's own factor, which with complete rows is computed so)."""
+
+    general: float | None = None
+    restricted: float | None = None
+    why_not: str = ""
+
+
+#: why the strictly positive scaled difference is missing for a nested pair: the general model does not reproduce
+#: the restricted model's implied moments by the search (M10)
+NO_M10 = ("the general model could not be fitted to the restricted model's implied moments, so its scaling factor "
+          "there is not defined")
+#: ... or the rows' observed information there is not positive definite in the general model's parameters
+NO_POSITIVE_INFORMATION = ("the rows' observed information at the restricted model's estimates is not positive "
+                           "definite in the general model's parameters, so the general model's scaling factor there "
+                           "is not defined")
+
+
 def scaled_difference_tests(restricted: FitResult, general: FitResult, restricted_name: str, general_name: str,
-                            general_scaling_at_restricted: float | None, without_positive: str = "") -> list[DifferenceTest]:
+                            general_scaling_at_restricted: float | None, without_positive: str = "",
+                            restricted_scaling: float | None = None) -> list[DifferenceTest]:
     """Scaled difference tests for Satorra-Bentler fits.
 
     2001: c_d = (df0 c0 - df1 c1) / (df0 - df1), T_d = (T0 - T1) / c_d (Satorra & Bentler 2001),
     which can be negative; 2010: c1 replaced by the general model's scaling factor evaluated at
     the restricted model's estimates, which keeps c_d positive (Satorra & Bentler 2010).  ``without_positive``:
-    why that factor is not at hand (the 2010 row then says so).
+    why that factor is not at hand (the 2010 row then says so).  ``restricted_scaling``: c0 of the 2010 version
+    computed at the same point and with the same information as that factor (full-information ML:
+    :func:`scaling_at_restricted`); None: the restricted fit's own.
     """
     r, g = restricted.fit, general.fit
     rr, gr = restricted.robust, general.robust
@@ -216,8 +243,10 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
     out = []
     delta_cfi = rr.cfi_robust - gr.cfi_robust
     delta_rmsea = rr.rmsea_robust - gr.rmsea_robust
-    for method, c1 in ((DifferenceMethod.SATORRA_BENTLER_2001, gr.scaling_factor),
-                       (DifferenceMethod.SATORRA_BENTLER_2010, general_scaling_at_restricted)):
+    for method, c0, c1 in ((DifferenceMethod.SATORRA_BENTLER_2001, rr.scaling_factor, gr.scaling_factor),
+                           (DifferenceMethod.SATORRA_BENTLER_2010,
+                            rr.scaling_factor if restricted_scaling is None else restricted_scaling,
+                            general_scaling_at_restricted)):
         if c1 is None:
             if method is DifferenceMethod.SATORRA_BENTLER_2010:
                 out.append(DifferenceTest(restricted_name, general_name, float("nan"), ddf, float("nan"), method,
@@ -225,17 +254,19 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
                                           "of freedom, so its scaling factor at the restricted model's estimates is not "
                                           "defined"))
             continue
-        cd = (r.df * rr.scaling_factor - g.df * c1) / ddf
+        cd = (r.df * c0 - g.df * c1) / ddf
         if cd > 0:
             diff = (r.chi_square - g.chi_square) / cd
             out.append(DifferenceTest(restricted_name, general_name, diff, ddf, float(dist.chi2_sf(max(diff, 0.0), ddf)),
                                       method, delta_cfi, delta_rmsea))
         else:
             out.append(DifferenceTest(restricted_name, general_name, float("nan"), ddf, float("nan"), method, delta_cfi,
-                                      delta_rmsea, f"its scaling correction is not positive ({cd:.3f}), " + (
-                                          "which should not happen with this version: check that the models are "
-                                          "nested" if method is DifferenceMethod.SATORRA_BENTLER_2010 else
-                                          "which can happen with this version in small samples; " + (
+                                      delta_rmsea, f"its scaling correction is not positive ({cd:.3f}), so the "
+                                      "difference cannot be scaled" + (
+                                          "" if method is DifferenceMethod.SATORRA_BENTLER_2010 else
+                                          ": this version's correction can be negative, in small samples or "
+                                          "when the restricted model is far from the data (Satorra & Bentler "
+                                          "2010); " + (
                                               "read the strictly positive version" if general_scaling_at_restricted
                                               is not None else "the strictly positive version is not available "
                                                                "either"))))
@@ -243,50 +274,69 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
 
 
 def scaled_difference(restricted: FitResult, general: FitResult, general_estimation: Estimation, restricted_name: str,
-                      general_name: str) -> DifferenceTest:
+                      general_name: str, restricted_estimation: Estimation) -> DifferenceTest:
     """The one difference test of two nested fits that carry a robust test (the invariance ladder's steps, the
     replication's test of one solution): the scaled difference (Satorra & Bentler 2001), or its strictly positive
     version (Satorra & Bentler 2010, the general model's scaling factor at the restricted estimates from
-    ``general_estimation``) when the 2001 correction is not positive; the likelihood-ratio difference without a
-    robust test (or when neither scaled version can be computed)."""
+    ``general_estimation``; with rows with gaps both factors from the two estimations, :func:`scaling_at_restricted`)
+    when the 2001 correction is not positive; the likelihood-ratio difference without a robust test (or when neither
+    scaled version can be computed)."""
     if restricted.robust is None or general.robust is None:
         return difference_test(restricted, general, restricted_name, general_name)
     scaled = scaled_difference_tests(restricted, general, restricted_name, general_name, None)[0]
     if not scaled.not_computed:
         return scaled
-    c10 = scaling_at_restricted(restricted, general_estimation.table, general_estimation.model,
-                                general_estimation.likelihood, general_estimation.theta, general.fit.df)
-    positive = (scaled_difference_tests(restricted, general, restricted_name, general_name, c10)[-1]
-                if c10 is not None else None)
+    at = scaling_at_restricted(restricted, general_estimation.table, general_estimation.model,
+                               general_estimation.likelihood, general_estimation.theta, general.fit.df,
+                               restricted_estimation.likelihood)
+    positive = (scaled_difference_tests(restricted, general, restricted_name, general_name, at.general,
+                                        restricted_scaling=at.restricted)[-1]
+                if at.general is not None else None)
     if positive is not None and not positive.not_computed:
         return positive
     return difference_test(restricted, general, restricted_name, general_name)
 
 
-def scaling_at_restricted(restricted: FitResult, table, model, likelihood, start, df: int) -> float | None:
-    """The general model's scaling factor at the restricted model's estimates, for the strictly positive scaled
-    difference (Satorra & Bentler 2010): the general model (``table``, ``model``) is fitted to the restricted
-    model's implied moments, which it reproduces when the two are nested (M10), and its scaling factor is computed
-    there on the general fit's own ``likelihood`` (its rows, design and missing-data patterns): tr(U Gamma) / df
-    for complete rows (Satorra & Bentler 1994), the Yuan-Bentler (2000) factor for rows with gaps.  ``start``: the
-    general model's estimates.  None when the general model has no degrees of freedom or M10 does not reproduce
-    the restricted model's moments."""
+def scaling_at_restricted(restricted: FitResult, table, model, likelihood, start, df: int,
+                          restricted_likelihood=None) -> PositiveScaling:
+    """The scaling factors of the strictly positive scaled difference (Satorra & Bentler 2010) at the restricted
+    model's estimates: the general model (``table``, ``model``) is fitted to the restricted model's implied moments,
+    which it reproduces when the two are nested (M10), and its scaling factor is computed there on the general fit's
+    own ``likelihood`` (its rows, design and missing-data patterns).  Complete rows: tr(U Gamma) / df with U at M10
+    (Satorra & Bentler 1994), the restricted fit's own factor being computed so at its estimates.  Rows with gaps
+    (full-information ML, the Yuan-Bentler (2000) factor): both factors are computed at the one point with one
+    information and one Gamma, the data's (inference.robust_missing.scaling_at: the rows' observed information in
+    the moments, means included, their patterns), the restricted one on ``restricted_likelihood`` (the restricted
+    model's own, required then) -- the fit's bread, the observed information in the parameters, holds a term in the
+    score that is not zero for the general model there, and with it c_d came out negative for nested models.
+    ``start``: the general model's estimates.  ``general`` None when the general model has no degrees of freedom,
+    M10 does not reproduce the restricted model's moments or the information there is not positive definite
+    (``why_not`` says which)."""
     from cfa_tool.estimation.ml import NormalLikelihood
     from cfa_tool.estimation.strategy import search
     from cfa_tool.inference.robust import robust_parts
-    from cfa_tool.inference.robust_missing import robust_missing
+    from cfa_tool.inference.robust_missing import scaling_at
     from cfa_tool.pipeline.continuous import ordered_moments
 
     if df <= 0:
-        return None
+        return PositiveScaling()
     implied = NormalLikelihood(model, [ordered_moments(m, table.observed) for _, m in implied_moments(restricted)])
     found = search(implied, table, start, 500).result
     if not found.converged or found.value > NESTING_TOLERANCE:
-        return None
+        return PositiveScaling(why_not=NO_M10)
     if likelihood.complete_data:
-        return robust_parts(model, found.theta, likelihood)[1] / df
-    saturated = [(gm.mean, gm.covariance) for gm in likelihood.groups]
-    return robust_missing(likelihood, found.theta, saturated, df, None)[1]
+        return PositiveScaling(robust_parts(model, found.theta, likelihood)[1] / df)
+    if restricted_likelihood is None:
+        raise ValueError("rows with gaps: the restricted model's own likelihood is needed for its factor")
+
+    def saturated(on) -> list:  # each likelihood's own EM moments, in its own order of the variables
+        return [(gm.mean, gm.covariance) for gm in on.groups]
+
+    general = scaling_at(likelihood, found.theta, saturated(likelihood), df)
+    own = scaling_at(restricted_likelihood, restricted.theta, saturated(restricted_likelihood), restricted.fit.df)
+    if not (np.isfinite(general) and np.isfinite(own)):
+        return PositiveScaling(why_not=NO_POSITIVE_INFORMATION)
+    return PositiveScaling(general, own)
 
 
 def same_degrees_of_freedom(first: FitResult, second: FitResult, reproduces: Callable[[], bool]) -> str:

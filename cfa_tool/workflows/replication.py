@@ -326,7 +326,7 @@ def _scaled_same_solution(spec: Spec, calibration: SampleMoments, validation: Sa
         with estimation_of(f"the two samples, {name}"), blas_threads_for(len(spec.observed_names)):
             est = estimate(model, groups, fit_options)
             fits.append((est, assess(model, groups, est, fit_options, "sample")))
-    (own_est, own), (_, one) = fits
+    (own_est, own), (one_est, one) = fits
     if not (own.converged and one.converged):
         return _not_tested("the two-sample fit with the robust test did not converge ("
                            + "; ".join(f"{name}: {r.message}" for name, r in ((OWN_SOLUTIONS, own), (ONE_SOLUTION, one))
@@ -335,7 +335,7 @@ def _scaled_same_solution(spec: Spec, calibration: SampleMoments, validation: Sa
     if impossible is not None:
         return impossible
     # as the likelihood-ratio test of one solution, no change in fit indices: the test is what is read
-    return replace(scaled_difference(one, own, own_est, ONE_SOLUTION, OWN_SOLUTIONS), delta_cfi=float("nan"),
+    return replace(scaled_difference(one, own, own_est, ONE_SOLUTION, OWN_SOLUTIONS, one_est), delta_cfi=float("nan"),
                    delta_rmsea=float("nan"))
 
 

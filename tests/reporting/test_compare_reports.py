@@ -136,3 +136,79 @@ def test_non_nested_weighted_models_are_not_said_to_be_compared_by_aic_and_bic(h
     report = comparison_report(plain)
     assert any("Compare them by AIC and BIC" in note for note in report.notes)
     assert "compared by AIC and BIC" in report.paragraph
+
+
+def _views(report) -> dict[str, str]:
+    """Every view of a report as plain text: terminal, Markdown, HTML and Word (one report model rendered to each)."""
+    import html
+
+    from cfa_tool.reporting.docx_report import report_docx
+    from cfa_tool.reporting.html_report import report_html
+    from cfa_tool.reporting.text_formats import report_markdown
+    from tests.reporting.test_fit_views import _html_text, _word_text
+
+    views = {"terminal": report_text(report, width=200), "Markdown": html.unescape(report_markdown(report)),
+             "HTML": html.unescape(_html_text(report_html(report))), "Word": _word_text(report_docx(report, 72))}
+    plain = {"\\": "", "\u2502": " ", "|": " ", "\u2212": "-"}  # escapes, table and box rules, Word's minus sign
+    return {name: " ".join(text.translate(str.maketrans(plain)).split()) for name, text in views.items()}
+
+
+def test_a_pair_without_any_statistic_shows_its_changes_in_fit_and_marks_no_p_value(hs_data):
+    # a new-user trial (design, every difference test not computed): the paragraph said the changes in CFI and RMSEA
+    # "are reported as descriptions only" but the table left them blank while the JSON had them (-.427 / -.431), and
+    # the note said "read the p-values marked *" with nothing marked.  The changes describe the two fits (each
+    # test's delta_cfi and delta_rmsea in the JSON): every view shows them, and no note reads marks that are not there
+    import dataclasses
+
+    from cfa_tool.reporting.numbers import signed
+    from cfa_tool.workflows.nesting import PSEUDO_LIKELIHOOD
+
+    one = "factor g: x1..x9\n"
+    found = compare([one, THREE], hs_data, test="robust")
+    assert found.tests[0].boundary  # three factors merged into one: their correlations at 1
+    reasons = [PSEUDO_LIKELIHOOD, "its scaling correction is not positive (-0.159), so the difference cannot be scaled",
+               "the general model's scaling factor at the restricted model's estimates is not defined"]
+    none = dataclasses.replace(found, tests=tuple(
+        dataclasses.replace(t, chi_square_difference=float("nan"), p_value=float("nan"), not_computed=why)
+        for t, why in zip(found.tests, reasons)))
+    report = comparison_report(none)
+    tests = none.to_dict()["tests"]
+    assert [t["delta_cfi"] for t in tests] == [t.delta_cfi for t in none.tests] and len(tests) == 3
+    table = report.tables[1]
+    assert [list(row[3:]) for row in table.rows] == [[signed(t["delta_cfi"]), signed(t["delta_rmsea"])] for t in tests]
+    assert all(row[2] == "" for row in table.rows)  # no p-value, so none marked
+    for name, text in _views(report).items():
+        assert "marked *" not in text, name
+        assert "On the boundary: factors visual, textual and speed merged into g" in text, name
+        assert "No difference test could be computed here: weigh the models by their fit indices, AIC and BIC" in text
+        assert "no difference test of this comparison could be computed" in text, name
+        for t in tests:
+            assert f"not computed ({t['df_difference']}) {signed(t['delta_cfi'])} {signed(t['delta_rmsea'])}" in text, name
+    paragraph = report.paragraph
+    preferred = tests[2]  # the strictly positive version's changes: the robust indices', as the table's row
+    assert (f"For Model 1 against Model 2 no difference statistic could be computed; \u0394CFI = "
+            f"{signed(preferred['delta_cfi'])}, \u0394RMSEA = {signed(preferred['delta_rmsea'])}.") in paragraph
+    assert "Changes in CFI and RMSEA are reported as descriptions only" in paragraph
+    assert "check that" not in paragraph and "read the" not in paragraph  # the tool's advice stays out of a paper
+
+
+def test_a_design_comparison_marks_the_p_values_its_note_reads(hs_data):
+    # the same trial's pair under a sampling design (weights, clusters): the plain difference is no test there, the
+    # scaled ones are; a p-value marked * in the table is what the boundary note reads, in every view
+    import numpy as np
+
+    data = hs_data.copy()
+    rng = np.random.default_rng(5)
+    data["household"] = np.repeat(np.arange(len(data) // 2 + 1), 2)[: len(data)]
+    data["weight"] = rng.uniform(0.5, 2.0, len(data))
+    found = compare(["factor g: x1..x9\n", THREE], data, weights="weight", cluster="household")
+    tests = {t.method.value: t for t in found.tests}
+    assert tests["likelihood ratio"].not_computed and not tests["Satorra-Bentler 2010 strictly positive scaled "
+                                                                   "difference"].not_computed
+    report = comparison_report(found)
+    marked = [row for row in report.tables[1].rows if row[2].endswith(" *")]
+    assert len(marked) == sum(not t.not_computed for t in found.tests) >= 1
+    for row in report.tables[1].rows:  # every row's changes in fit, computed or not
+        assert row[3] and row[4]
+    for name, text in _views(report).items():
+        assert ("read the p-values marked *" in text or "read the p-value marked *" in text), name

@@ -6,6 +6,7 @@ import json
 
 import numpy as np
 import pytest
+import pandas as pd
 
 import cfa_tool
 from cfa_tool.errors import OptionError
@@ -208,13 +209,11 @@ def test_rows_with_gaps_are_kept_by_full_information_as_fit_keeps_them(hs_data):
     assert listwise.missing.value == "listwise" and listwise.n_obs == int(data[[f"x{k}" for k in range(1, 10)]].notna().all(axis=1).sum())
 
 
-def _hand_scaling_at(rows, saturated_mean, saturated_cov, mu, sigma, moments_of, theta, df):
-    """The Yuan-Bentler (2000) scaling factor written out row by row, for the check below:
-    f_i = log|S_oo| + r_o' S_oo^-1 r_o; scores d f_i / d(mu, vec Sigma) through the duplication matrix;
-    H the observed information (second derivatives of the mean of f_i: in beta = (mu, vech Sigma) by central
-    differences of the mean score; in theta H_beta chained through D = d beta / d theta plus the mean score times
-    the second differences of beta(theta), exact for the polynomial ``moments_of`` up to rounding), B the mean
-    outer product of the scores; c = [tr(H_s^-1 B_s) - tr(H^-1 D'BD)] / (2 df)."""
+def _hand_scaling_pieces(rows, saturated_mean, saturated_cov, mu, sigma):
+    """The Yuan-Bentler (2000) pieces written out row by row, for the checks below: f_i = log|S_oo| + r_o' S_oo^-1 r_o;
+    scores d f_i / d(mu, vech Sigma) through the duplication matrix; the observed information in beta = (mu, vech
+    Sigma) by central differences of the mean score; B the mean outer product of the scores.  Returns (W at (mu,
+    sigma), Gamma = H_s^-1 B_s H_s^-1 at the saturated moments, the rows' scores there, the vech pairs)."""
     p = rows.shape[1]
     pairs = [(i, j) for j in range(p) for i in range(j, p)]
     dup = np.zeros((p * p, len(pairs)))  # vec(Sigma) = dup @ vech(Sigma)
@@ -232,78 +231,102 @@ def _hand_scaling_at(rows, saturated_mean, saturated_cov, mu, sigma, moments_of,
             scores.append(np.concatenate([-2.0 * u, dup.T @ (M - np.outer(u, u)).ravel()]))
         return np.array(scores)
 
-    def pieces(beta, h=1e-5):
-        S_ = scores_at(beta)
+    def information(beta, h=1e-5):
         H = np.column_stack([(scores_at(beta + h * e).mean(axis=0) - scores_at(beta - h * e).mean(axis=0)) / (2 * h)
                              for e in np.eye(len(beta))])
-        return 0.5 * (H + H.T), S_.T @ S_ / len(rows), S_
+        return 0.5 * (H + H.T)
 
-    def vech_moments(t):
-        m, S = moments_of(t)
-        return np.concatenate([m, [S[i, j] for i, j in pairs]])
-
-    h = 1e-6
-    D = np.column_stack([(vech_moments(theta + h * e) - vech_moments(theta - h * e)) / (2 * h)
-                         for e in np.eye(len(theta))])
-    H_s, B_s, s_scores = pieces(np.concatenate([saturated_mean, saturated_cov[tuple(np.array(pairs).T)]]))
-    beta = np.concatenate([mu, sigma[tuple(np.array(pairs).T)]])
-    H_beta, B, _ = pieces(beta)
-    mean_score = scores_at(beta).mean(axis=0)
-    q, k = len(theta), 1e-3
-    second = np.zeros((q, q))  # mean score times d2 beta / d theta_a d theta_b (central second differences)
-    for a in range(q):
-        for b in range(q):
-            ea, eb = k * np.eye(q)[a], k * np.eye(q)[b]
-            d2 = (vech_moments(theta + ea + eb) - vech_moments(theta + ea - eb) - vech_moments(theta - ea + eb)
-                  + vech_moments(theta - ea - eb)) / (4 * k * k)
-            second[a, b] = mean_score @ d2
-    bread = np.linalg.inv(D.T @ H_beta @ D + second)
-    return (np.trace(np.linalg.solve(H_s, B_s)) - np.trace(bread @ D.T @ B @ D)) / (2 * df), s_scores
+    vech = tuple(np.array(pairs).T)
+    saturated = np.concatenate([saturated_mean, saturated_cov[vech]])
+    s_scores = scores_at(saturated)
+    H_s = information(saturated)
+    gamma = np.linalg.solve(H_s, np.linalg.solve(H_s, s_scores.T @ s_scores / len(rows)).T)
+    return information(np.concatenate([mu, sigma[vech]])), gamma, s_scores, pairs
 
 
-def test_robust_comparison_with_gaps_gives_the_strictly_positive_version(hs_data):
-    # Satorra & Bentler (2010) with the incomplete-data scaling factor of Yuan & Bentler (2000): the general
-    # model's factor at the restricted model's estimates, checked against the formula written out row by row
+def _hand_scaling_at(W, gamma, D, df):
+    """c = tr(U Gamma) / (2 df), U = W - W D (D'WD)^-1 D'W (Satorra & Bentler 2010's U at one point; the 2 for f_i
+    being twice a row's negative log-likelihood)."""
+    U = W - W @ D @ np.linalg.solve(D.T @ W @ D, D.T @ W)
+    return np.trace(U @ gamma) / (2 * df)
+
+
+# the general model written by hand: marker loadings, factor covariances (phi's lower triangle by rows: t[6:12],
+# visual-textual t[7], visual-speed t[9], textual-speed t[10]), residual variances, intercepts
+def _three_factor_moments(t):
+    lam = np.zeros((9, 3))
+    lam[[0, 3, 6], [0, 1, 2]] = 1.0
+    lam[[1, 2, 4, 5, 7, 8], [0, 0, 1, 1, 2, 2]] = t[:6]
+    phi = np.zeros((3, 3))
+    phi[np.tril_indices(3)] = t[6:12]
+    phi = phi + np.tril(phi, -1).T
+    return t[21:30], lam @ phi @ lam.T + np.diag(t[12:21])
+
+
+@pytest.mark.parametrize("restriction, fixed", [("fix covariance(visual, speed) = 0.2\n", {9: 0.2}),
+                                                ("uncorrelated visual, textual, speed\n", {7: 0.0, 9: 0.0, 10: 0.0})])
+def test_robust_comparison_with_gaps_gives_the_strictly_positive_version(hs_data, restriction, fixed):
+    # Satorra & Bentler (2010) with the incomplete-data scaling of Yuan & Bentler (2000): both models' factors at the
+    # restricted model's estimates, U from the rows' observed information there, Gamma the data's; checked against
+    # the formula written out row by row with the general model written by hand.  Before, the general model's factor
+    # took the fit's observed information in its parameters at that point, which holds the score times the second
+    # derivatives of the moments: the uncorrelated model gave 25.5 here against 46.1 by hand, and on a survey
+    # (test below) a negative correction blamed on the models' nesting
     from scipy.optimize import least_squares
 
     data = hs_data[[f"x{k}" for k in range(1, 10)]].copy()
     rng = np.random.default_rng(3)
     data.loc[rng.random(len(data)) < 0.2, "x4"] = np.nan
     data.loc[rng.random(len(data)) < 0.1, "x8"] = np.nan
-    restricted_text = THREE_FACTORS + "fix covariance(visual, speed) = 0.2\n"
-    result = compare([restricted_text, THREE_FACTORS], data, test="robust")
+    result = compare([THREE_FACTORS + restriction, THREE_FACTORS], data, test="robust")
     assert all(r.robust.test.value == "yuan-bentler" for r in result.results)
-    tests = {t.method.value if hasattr(t.method, "value") else t.method: t for t in result.tests}
+    tests = {t.method.value: t for t in result.tests}
     assert len(tests) == 3 and not any(t.not_computed for t in result.tests)
     restricted, general = result.results
 
-    # the general model written by hand: marker loadings, factor covariances, residual variances, intercepts
-    def moments_of(t):
-        lam = np.zeros((9, 3))
-        lam[[0, 3, 6], [0, 1, 2]] = 1.0
-        lam[[1, 2, 4, 5, 7, 8], [0, 0, 1, 1, 2, 2]] = t[:6]
-        phi = np.zeros((3, 3))
-        phi[np.tril_indices(3)] = t[6:12]
-        phi = phi + np.tril(phi, -1).T
-        return t[21:30], lam @ phi @ lam.T + np.diag(t[12:21])
-
     group = restricted.groups[0]
     mu_r, sigma_r = group.implied_mean, group.implied_covariance
-    start = np.concatenate([np.ones(6), [0.8, 0.4, 0.9, 0.2, 0.2, 0.4], np.full(9, 0.5), np.zeros(9)])
-    fitted = least_squares(lambda t: np.concatenate([moments_of(t)[0] - mu_r,
-                                                     (moments_of(t)[1] - sigma_r)[np.tril_indices(9)]]),
+    free = [k for k in range(30) if k not in fixed]
+
+    def full(t_free):
+        t = np.zeros(30)
+        t[free] = t_free
+        t[list(fixed)] = list(fixed.values())
+        return t
+
+    start = np.concatenate([np.ones(6), [0.8, 0.4, 0.9, 0.2, 0.2, 0.4], np.full(9, 0.5), np.zeros(9)])[free]
+    fitted = least_squares(lambda t: np.concatenate([_three_factor_moments(full(t))[0] - mu_r,
+                                                     (_three_factor_moments(full(t))[1] - sigma_r)[np.tril_indices(9)]]),
                            start, xtol=1e-14, ftol=1e-14, gtol=1e-14)
-    assert np.max(np.abs(fitted.fun)) < 1e-9  # the general model reproduces the restricted one's moments (M10)
+    assert np.max(np.abs(fitted.fun)) < 1e-9  # the restricted model's estimates in the general model's parameters
     saturated = general.groups[0]
-    rows = data.to_numpy(float)
-    expected, scores = _hand_scaling_at(rows, saturated.sample_mean, saturated.sample_covariance, mu_r, sigma_r,
-                                        moments_of, fitted.x, general.fit.df)
+    W, gamma, scores, pairs = _hand_scaling_pieces(data.to_numpy(float), saturated.sample_mean,
+                                                   saturated.sample_covariance, mu_r, sigma_r)
     assert np.abs(scores.mean(axis=0)).max() < 1e-6  # the EM moments solve the saturated score equations
+
+    def vech_moments(t):
+        m, S = _three_factor_moments(t)
+        return np.concatenate([m, [S[i, j] for i, j in pairs]])
+
+    theta = full(fitted.x)
+    D10 = np.column_stack([(vech_moments(theta + 1e-6 * e) - vech_moments(theta - 1e-6 * e)) / 2e-6
+                           for e in np.eye(30)])
+    c0 = _hand_scaling_at(W, gamma, D10[:, free], restricted.fit.df)  # the restricted model: its free columns
+    c10 = _hand_scaling_at(W, gamma, D10, general.fit.df)
+    ddf = restricted.fit.df - general.fit.df
+    difference = restricted.fit.chi_square - general.fit.chi_square
     positive = tests["Satorra-Bentler 2010 strictly positive scaled difference"]
-    cd = (restricted.fit.chi_square - general.fit.chi_square) / positive.chi_square_difference
-    c10 = (restricted.fit.df * restricted.robust.scaling_factor - positive.df_difference * cd) / general.fit.df
-    assert cd > 0 and positive.df_difference == 1
-    assert c10 == pytest.approx(expected, rel=1e-6)
+    cd = (restricted.fit.df * c0 - general.fit.df * c10) / ddf
+    assert cd > 0 and positive.df_difference == ddf == len(fixed)
+    assert positive.chi_square_difference == pytest.approx(difference / cd, rel=1e-5)
+    # the 2001 version from the two fits' own factors (Satorra & Bentler 2001), by hand
+    first = tests["Satorra-Bentler 2001 scaled difference"]
+    cd_2001 = (restricted.fit.df * restricted.robust.scaling_factor
+               - general.fit.df * general.robust.scaling_factor) / ddf
+    assert first.chi_square_difference == pytest.approx(difference / cd_2001, rel=1e-10)
+    from scipy.stats import chi2
+
+    assert positive.p_value == pytest.approx(chi2.sf(difference / cd, ddf), rel=1e-4)
 
 
 @pytest.mark.parametrize("command", ["bootstrap", "cutoffs", "replicate"])
@@ -403,3 +426,104 @@ def test_models_of_one_title_are_told_apart_by_their_files(hs_data, tmp_path):
     result = compare([tmp_path / "plain.cfa", tmp_path / "fixed.cfa"], hs_data)
     assert result.names == ("Holzinger-Swineford, three abilities (plain)",
                             "Holzinger-Swineford, three abilities (fixed)")
+
+
+def test_complete_rows_the_moments_reproduce_give_the_complete_data_factors_by_full_information(hs_data, monkeypatch):
+    # where complete rows make full-information ML the ordinary fit with means and the restricted model reproduces
+    # the sample moments (the rows transformed so that their means and covariance, divisor N, are its implied
+    # ones), the rows' observed information is the normal-theory weight: both factors of the strictly positive
+    # difference (Satorra & Bentler 2010) must then be the complete-data ones, tr(U Gamma) / df with Browne's (1984)
+    # Gamma (cfa_tool.inference.robust), and so must each fit's own factor
+    from cfa_tool.workflows import compare as compare_module
+
+    restricted_text = THREE_FACTORS + "uncorrelated visual, textual, speed\n"
+    items = [f"x{k}" for k in range(1, 10)]
+    rows = hs_data[items].to_numpy(float)
+    implied = cfa_tool.fit(restricted_text, hs_data).groups[0]
+    centred = rows - rows.mean(axis=0)
+    to_white = np.linalg.inv(np.linalg.cholesky(centred.T @ centred / len(rows)))
+    moved = centred @ to_white.T @ np.linalg.cholesky(implied.implied_covariance).T + implied.sample_mean
+    data = pd.DataFrame(moved, columns=items)
+    assert np.allclose(np.cov(moved.T, bias=True), implied.implied_covariance, atol=1e-10)
+
+    found = []
+    original = compare_module.scaling_at_restricted
+    monkeypatch.setattr(compare_module, "scaling_at_restricted", lambda *a: found.append(original(*a)) or found[-1])
+    ordinary = compare([restricted_text, THREE_FACTORS], data, test="robust")
+    full = compare([restricted_text, THREE_FACTORS], data, test="robust", missing="full-information")
+    assert [r.robust.test.value for r in ordinary.results + full.results] == ["satorra-bentler"] * 2 + ["yuan-bentler"] * 2
+    assert ordinary.results[0].fit.chi_square < 1e-8 and full.results[0].fit.chi_square < 1e-8
+    for mine, theirs in zip(full.results, ordinary.results):
+        assert mine.robust.scaling_factor == pytest.approx(theirs.robust.scaling_factor, rel=1e-6)
+    complete, incomplete = found
+    assert complete.restricted is None  # complete rows: the restricted fit's own factor
+    assert incomplete.general == pytest.approx(complete.general, rel=1e-6)
+    assert incomplete.restricted == pytest.approx(ordinary.results[0].robust.scaling_factor, rel=1e-6)
+
+
+def _rider_survey(seed: int, n: int = 900) -> pd.DataFrame:
+    """An invented rider survey (a fictional city transit agency): three correlated views of the service, riders of
+    one household sharing part of them, five answer categories, answers missing more often among older riders
+    (missing at random).  Simulated for the test, as a new-user trial's survey was shaped."""
+    rng = np.random.default_rng(seed)
+    household = np.repeat(np.arange(n // 2 + 1), 2)[:n]
+    shared = rng.normal(0, .4, (n // 2 + 1, 3))[household]
+    age = rng.integers(18, 90, n)
+    phi = np.array([[1, .5, .35], [.5, 1, .45], [.35, .45, 1]])
+    views = rng.multivariate_normal(np.zeros(3), phi, n) + shared
+    answers = {}
+    for f in range(3):
+        for j in range(5):
+            loading = rng.uniform(.6, .85)
+            y = loading * views[:, f] + np.sqrt(1 - loading ** 2) * rng.normal(size=n)
+            answers[f"q{5 * f + j + 1}"] = np.searchsorted(np.quantile(y, [.1, .3, .6, .85]), y) + 1.0
+    return pd.DataFrame(answers).mask(rng.uniform(size=(n, 15)) < (0.03 + 0.10 * (age - 18) / 72)[:, None])
+
+
+def test_uncorrelated_against_correlated_factors_with_gaps_gets_every_scaled_test(monkeypatch):
+    # a new-user trial: compare --robust on rows with gaps, uncorrelated against correlated factors (nested), gave a
+    # negative 2010 "strictly positive" correction (-4.135) and told the user to check that the models are nested.
+    # This survey gave -0.556 before the fix.  Both factors of the 2010 version at the restricted estimates share the
+    # rows' observed information and Gamma, so the correction is df0 c0 - df1 c10 = tr((U0 - U1) Gamma) / 2 >= 0
+    # (Satorra & Bentler 2010): checked here from the factors themselves, with U from the pieces the tool computes
+    from cfa_tool.workflows import compare as compare_module
+    from cfa_tool.reporting.workflow_tables import comparison_report
+
+    model = "factor comfort: q1..q5\nfactor reliability: q6..q10\nfactor staff: q11..q15\n"
+    found = []
+    original = compare_module.scaling_at_restricted
+    monkeypatch.setattr(compare_module, "scaling_at_restricted", lambda *a: found.append(original(*a)) or found[-1])
+    result = compare([model + "uncorrelated comfort, reliability, staff\n", model], _rider_survey(1), test="robust")
+    restricted, general = result.results
+    assert restricted.robust.test.value == "yuan-bentler" and result.missing.value == "full-information"
+    tests = {t.method.value: t for t in result.tests}
+    assert not any(t.not_computed for t in result.tests) and len(tests) == 3
+    (at,) = found
+    correction = (restricted.fit.df * at.restricted - general.fit.df * at.general) / 3
+    assert correction > 0
+    positive = tests["Satorra-Bentler 2010 strictly positive scaled difference"]
+    assert positive.chi_square_difference == pytest.approx(
+        (restricted.fit.chi_square - general.fit.chi_square) / correction, rel=1e-10)
+    assert at.general > 0 and at.restricted > 0
+    text = " ".join(comparison_report(result).paragraph.split())
+    assert "check that the models are nested" not in text and "not computed" not in text
+
+
+def test_a_strictly_positive_difference_that_cannot_be_computed_says_the_true_reason(hs_data, monkeypatch):
+    # when the rows' observed information at the restricted estimates is not positive definite in the general model's
+    # parameters (forced here), the 2010 row says so, and neither the table's notes nor the paragraph blames the
+    # models' nesting (a new-user trial was told to "check that the models are nested" of two nested models)
+    from cfa_tool.inference import robust_missing
+    from cfa_tool.reporting.workflow_tables import comparison_report
+    from cfa_tool.workflows.nesting import NO_POSITIVE_INFORMATION
+
+    data = hs_data[[f"x{k}" for k in range(1, 10)]].copy()
+    data.loc[np.random.default_rng(3).random(len(data)) < 0.2, "x4"] = np.nan
+    monkeypatch.setattr(robust_missing, "scaling_at", lambda *a: float("nan"))
+    result = compare([THREE_FACTORS + "uncorrelated visual, textual, speed\n", THREE_FACTORS], data, test="robust")
+    positive = {t.method.value: t for t in result.tests}["Satorra-Bentler 2010 strictly positive scaled difference"]
+    assert positive.not_computed == NO_POSITIVE_INFORMATION
+    report = comparison_report(result)
+    words = " ".join([report.paragraph, *map(str, report.notes)])
+    assert "nested" not in words.replace("Nested models (found numerically", "")
+    assert "was not computed: the rows' observed information at the restricted model's estimates" in report.paragraph

@@ -55,10 +55,10 @@ def test_a_step_whose_2001_correction_is_not_positive_reads_the_strictly_positiv
 
     original = ladder_module.scaled_difference_tests
 
-    def negative_2001(restricted, general, restricted_name, general_name, c10, why=""):
+    def negative_2001(restricted, general, restricted_name, general_name, c10, why="", **positive):
         if c10 is None:
             general = dataclasses.replace(general, robust=dataclasses.replace(general.robust, scaling_factor=50.0))
-        return original(restricted, general, restricted_name, general_name, c10, why)
+        return original(restricted, general, restricted_name, general_name, c10, why, **positive)
 
     monkeypatch.setattr(ladder_module, "scaled_difference_tests", negative_2001)
     ladder = invariance(THREE_FACTORS, holes, "school", test="robust")
