@@ -674,9 +674,11 @@ def _check_formula_errors(frame: pd.DataFrame, where: str, items) -> None:
     'answers' statement)."""
     wanted = None if items is None else {str(x) for x in items}
     found: list[tuple[int, str, str]] = []  # (position, column, value)
-    for column in frame.columns:
+    # columns of numbers hold no error text: the dtypes read at once (data.moments.column_dtypes), each column taken
+    # out only when it may hold text (a column each cost more than the whole check of a 15-column file)
+    for column, dtype in zip(frame.columns.tolist(), column_dtypes(frame)):
         if column is None or (wanted is not None and str(column) not in wanted) or \
-                pd.api.types.is_numeric_dtype(frame[column]):
+                pd.api.types.is_numeric_dtype(dtype):
             continue
         hit = frame[column].isin(FORMULA_ERRORS).to_numpy()
         found += [(int(k), str(column), str(frame[column].iloc[k])) for k in np.flatnonzero(hit)]
@@ -1381,6 +1383,11 @@ def _check_repeated_header(frame: pd.DataFrame, where: str, header_row: int) -> 
     one sheet) or was joined from files that each had a header (``cat``); read as answers, its names were advised
     as no-answer words and both tables were then analysed as one sample.  ``header_row``: the row of the column
     names, which the message names."""
+    names = frame.columns.tolist()
+    texts = [k for k, dtype in enumerate(column_dtypes(frame))
+             if names[k] is not None and not pd.api.types.is_numeric_dtype(dtype)]
+    if len(texts) < 2:
+        return  # a row repeats the names of two columns or more, and only columns of text can hold a name
     matched = np.zeros(len(frame), dtype=int)
     filled = np.zeros(len(frame), dtype=int)
     for column in frame.columns:
