@@ -100,23 +100,42 @@ class ModificationIndices(Sequence):
                                    self.expected_change[keep], self.standardized_expected_change[keep])
 
     def reported(self, threshold: float, top: int | None) -> ModificationIndices:
-        """The rows of at least ``threshold``, at most the ``top`` largest (all with None)."""
-        shown = self.where(self.index >= threshold)
-        return shown.where(slice(None, top)) if top is not None else shown
+        """The rows of at least ``threshold``, at most the ``top`` largest (all with None): these rows themselves
+        when every row is reported."""
+        shown = self._shown(threshold, top)
+        return self if isinstance(shown, slice) and shown.stop == len(self) else self.where(shown)
+
+    def reported_dicts(self, threshold: float, top: int | None) -> list[dict]:
+        """:meth:`dicts` of :meth:`reported`'s rows, read from these rows' columns (no record of them built)."""
+        return self.dicts(self._shown(threshold, top))
+
+    def _shown(self, threshold: float, top: int | None) -> slice | np.ndarray:
+        """The positions of :meth:`reported`'s rows: the first ones when the rows are largest first (as
+        :func:`collected_indices` orders them, NaN last), otherwise each row of at least ``threshold`` in turn."""
+        keep = self.index >= threshold
+        count = int(keep.sum())
+        if keep[:count].all():  # largest first: the rows of at least the threshold are the first ``count``
+            return slice(0, count if top is None else min(count, top))
+        return np.flatnonzero(keep)[:top]
 
     def without(self, names: frozenset[str]) -> ModificationIndices:
         """The rows naming none of ``names``."""
         return self.where(np.array([names.isdisjoint(self.candidates[r][1]) for r in self.rows.tolist()], dtype=bool))
 
-    def dicts(self) -> list[dict]:
-        """The rows as JSON-ready dictionaries (what ``ModificationIndex.to_dict`` gives, NaN and infinities as None)."""
+    def dicts(self, shown: slice | np.ndarray = slice(None)) -> list[dict]:
+        """The rows (those at the positions ``shown``) as JSON-ready dictionaries (what ``ModificationIndex.to_dict``
+        gives, NaN and infinities as None)."""
         columns = [c.tolist() if np.isfinite(c).all() else [v if v - v == 0.0 else None for v in c.tolist()]
-                   for c in (self.index, self.expected_change, self.standardized_expected_change)]
+                   for c in (self.index[shown], self.expected_change[shown], self.standardized_expected_change[shown])]
         candidates, labels = self.candidates, self.labels
         return [{"kind": c[0], "variables": list(c[1]), "group": labels[g], "index": mi, "expected_change": epc,
                  "standardized_expected_change": std}
-                for c, g, mi, epc, std in zip(map(candidates.__getitem__, self.rows.tolist()), self.groups.tolist(),
-                                              *columns)]
+                for c, g, mi, epc, std in zip(map(candidates.__getitem__, self.rows[shown].tolist()),
+                                              self.groups[shown].tolist(), *columns)]
+
+
+#: the modification indices of a fit that computed none (every such fit shares it: its columns are empty)
+NO_INDICES = ModificationIndices()
 
 
 def collected_indices(candidates: list[list[Candidate]], labels: tuple[str | None, ...], index: np.ndarray,

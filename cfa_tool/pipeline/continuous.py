@@ -20,7 +20,7 @@ from cfa_tool.assessment.diagnostics import case_diagnostics, incomplete_case_di
 from cfa_tool.assessment.fit_indices import (baseline_chi_square, cfi_value, fit_indices, normal_theory_parts,
                                              rmsea_value, srmr, srmr_value)
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
-from cfa_tool.assessment.modification import ModificationIndices, helper_modification_indices, modification_indices
+from cfa_tool.assessment.modification import NO_INDICES, helper_modification_indices, modification_indices
 from cfa_tool.assessment.normality import Whitened, mardia, whitened_rows
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
@@ -403,7 +403,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     fit = None
     robust = None
     inference = None
-    mis = ModificationIndices()
+    mis = NO_INDICES
     robust_wanted = options.test is FitTest.SATORRA_BENTLER
     yuan_bentler = options.test is FitTest.YUAN_BENTLER
     if robust_wanted and any(gm.rows is None for gm in likelihood.groups):

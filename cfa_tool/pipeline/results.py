@@ -547,7 +547,7 @@ class FitResult(Presentable):
                              "values": {k: {str(code): text for code, text in v.items()} for k, v in self.labels["values"].items()}}
         if self.exploratory:
             out["exploratory_blocks"] = [block.to_dict() for block in self.exploratory]
-        out["modification_indices"] = self.reported_modification_indices().dicts()
+        out["modification_indices"] = self.modification_indices.reported_dicts(self.mi_threshold, self.mi_top)
         out["warnings"] = [str(w) for w in self.warnings]  # a Note as its reader reads it
         return out
 
