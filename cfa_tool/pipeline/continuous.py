@@ -669,11 +669,11 @@ def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: n
             whitened = whitened_rows(gm.rows, (gm.mean, gm.covariance))
         unusual, influential = case_diagnostics(gm.rows, sigma, m.row_numbers, whitened=whitened, inverse=inverse,
                                                 frequencies=frequencies)
-        out.update(unusual_cases=tuple(unusual), influential_cases=tuple(influential))
+        out.update(unusual_cases=unusual, influential_cases=influential)
     elif gap_rows is not None:  # full-information ML: distances on the items each row answered
         unusual, influential = incomplete_case_diagnostics(gap_rows, mats.implied_mean(), sigma, (gm.mean, gm.covariance),
                                                            m.row_numbers, frequencies=_row_weights(gm))
-        out.update(unusual_cases=tuple(unusual), influential_cases=tuple(influential))
+        out.update(unusual_cases=unusual, influential_cases=influential)
     return out
 
 

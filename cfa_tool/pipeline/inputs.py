@@ -1112,9 +1112,9 @@ def named_cases(result: FitResult, ids: dict) -> FitResult:
     """The result with each case diagnostic named by its row's id (unchanged without ids)."""
     if not ids:
         return result
-    groups = tuple(replace(g, unusual_cases=tuple(replace(c, id=ids.get(c.row)) for c in g.unusual_cases),
-                           influential_cases=tuple(replace(c, id=ids.get(c.row)) for c in g.influential_cases))
-                   for g in result.groups)
+    groups = tuple(replace(g, unusual_cases=g.unusual_cases.named(ids) if g.unusual_cases else g.unusual_cases,
+                           influential_cases=g.influential_cases.named(ids) if g.influential_cases else
+                           g.influential_cases) for g in result.groups)
     return replace(result, groups=groups)
 
 
