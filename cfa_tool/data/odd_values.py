@@ -47,7 +47,7 @@ import pandas as pd
 
 from cfa_tool.data.descriptives import answer_extremes
 from cfa_tool.data.kept_rows import RowNaming, row_naming, row_words, rows_listed, text_lines
-from cfa_tool.data.moments import column_dtypes, item_values
+from cfa_tool.data.moments import column_dtypes, item_values, stored_column
 from cfa_tool.errors import printable
 from cfa_tool.input_files import base_name
 from cfa_tool.language.names import written_name
@@ -437,15 +437,14 @@ def _statistic_labels(frame: pd.DataFrame, columns, most: int) -> dict[int, tupl
     items = set(columns)
     n = len(frame)
     names = frame.columns.tolist()  # the dtypes from the frame's store (data.moments.column_dtypes: no Series built)
-    texts = [names[k] for k, kind in enumerate(column_dtypes(frame))
-             if kind.kind not in "biufcmM" and names[k] not in items]
-    for column in texts:  # columns of numbers hold no label (read from the dtypes at once: a column each is slow)
-        cells = frame[column]
-        for r, value in enumerate(cells.to_numpy()[n - most:].tolist(), start=n - most):
+    texts = [k for k, kind in enumerate(column_dtypes(frame)) if kind.kind not in "biufcmM" and names[k] not in items]
+    for position in texts:  # columns of numbers hold no label (read from the dtypes at once: a column each is slow)
+        column = names[position]
+        for r, value in enumerate(stored_column(frame, position)[n - most:].tolist(), start=n - most):
             if r in out or not isinstance(value, str):
                 continue
             key = " ".join(value.split()).strip(".:").strip().lower()
-            if key in STATISTIC_LABELS and int((cells == value).sum()) == 1:
+            if key in STATISTIC_LABELS and int((frame[column] == value).sum()) == 1:
                 out[r] = (str(column), value.strip(), STATISTIC_LABELS[key])
     return out
 

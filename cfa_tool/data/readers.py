@@ -1346,9 +1346,13 @@ def drop_blank_rows(frame: pd.DataFrame, where: str) -> tuple[pd.DataFrame, tupl
     a footer such as 'Total responses: 1204') is kept; the analysis names it if it answers no model variable."""
     if frame.shape[1] == 0 or len(frame) == 0:
         return frame, ()
+    dtypes = column_dtypes(frame)  # read at once (data.moments.column_dtypes); a column of numpy whole numbers or
+    if any(isinstance(d, np.dtype) and d.kind in "iub" for d in dtypes):  # truth values has a value in every row
+        return frame, ()
     blank = None
-    for _, column in frame.items():  # column by column: a column without gaps (an id) ends the search at once
-        empty = column.isna().to_numpy()
+    for position, dtype in enumerate(dtypes):  # column by column: a column without gaps ends the search at once
+        empty = (np.isnan(stored_column(frame, position)) if isinstance(dtype, np.dtype) and dtype.kind == "f"
+                 else frame.iloc[:, position].isna().to_numpy())  # numpy floats: their gaps are NaN, as isna says
         blank = empty if blank is None else blank & empty
         if not blank.any():
             return frame, ()

@@ -132,3 +132,18 @@ def test_the_case_shortcut_never_hides_labels_that_differ_only_in_case():
         column = pd.Series(cells)
         if not inputs._may_differ_by_case(column):
             assert case_variants(column) == [], cells
+
+
+def test_blank_rows_are_found_as_before_and_none_sought_beside_a_column_of_whole_numbers(hs_data, monkeypatch):
+    """A column of numpy whole numbers (an id) has a value in every row: no row is blank, and no column is taken out
+    to look; rows empty in every column of floats and text are still left out and named."""
+    looked = []
+    original = pd.Series.isna
+    monkeypatch.setattr(pd.Series, "isna", lambda self: looked.append(self.name) or original(self))
+    assert readers.drop_blank_rows(hs_data, "a data frame")[1] == ()
+    assert looked == []
+    frame = hs_data.drop(columns=["id"]).astype({"sex": float, "ageyr": float, "agemo": float, "grade": float})
+    frame.loc[frame.index[[4, 9]], :] = np.nan
+    kept, note = readers.drop_blank_rows(frame, "a data frame")
+    assert len(kept) == len(frame) - 2 and note and "2 rows with no value in any column were skipped" in note[0]
+    assert kept.equals(frame[frame.notna().any(axis=1)])
