@@ -18,11 +18,11 @@
 
 from __future__ import annotations
 
-from collections.abc import Sequence
 from dataclasses import dataclass, replace
 
 import numpy as np
 
+from cfa_tool.assessment.held_rows import HeldRows
 from cfa_tool.assessment.normality import Whitened, whitened_rows
 from cfa_tool.data.kept_rows import ROW_NAMED_BY, RowNaming
 from cfa_tool.numerics import distributions as dist
@@ -52,13 +52,12 @@ class CaseDiagnostic:
         return out
 
 
-@dataclass(frozen=True)
-class Cases(Sequence):
-    """Case diagnostics held as columns, one value per row in each (as ModificationIndices holds its rows): a row,
-    :class:`CaseDiagnostic`, is built when it is read.  A frozen record per row cost four times a plain one to build
-    (CPython 3.11 stores each field through ``object.__setattr__``), and a fit builds twenty rows that mostly only
-    its JSON reads.  ``id``, ``answered`` and ``model_mahalanobis``: None when no row has one (each row's value,
-    None among them, otherwise)."""
+@dataclass(frozen=True, eq=False)
+class Cases(HeldRows):
+    """Case diagnostics held as columns, one value per row in each (assessment.held_rows, as ModificationIndices
+    holds its rows): a row, :class:`CaseDiagnostic`, is built when it is read (a fit has twenty, which mostly only
+    its JSON reads, from the columns: :func:`case_dicts`).  ``id``, ``answered`` and ``model_mahalanobis``: None when
+    no row has one (each row's value, None among them, otherwise)."""
 
     rows: tuple[int, ...] = ()
     mahalanobis: tuple[float, ...] = ()
@@ -67,22 +66,6 @@ class Cases(Sequence):
     id: tuple[str | None, ...] | None = None
     answered: tuple[int | None, ...] | None = None
     model_mahalanobis: tuple[float | None, ...] | None = None
-
-    def __len__(self) -> int:
-        return len(self.rows)
-
-    def __getitem__(self, k):
-        if isinstance(k, slice):
-            return tuple(self._row(j) for j in range(len(self))[k])
-        return self._row(range(len(self))[k])
-
-    def __iter__(self):
-        return (self._row(j) for j in range(len(self)))
-
-    def __eq__(self, other) -> bool:
-        return tuple(self) == tuple(other) if isinstance(other, Sequence) else NotImplemented
-
-    __hash__ = None
 
     def _row(self, j: int) -> CaseDiagnostic:
         return CaseDiagnostic(self.rows[j], self.mahalanobis[j], self.p_value[j], self.chi_square_share[j],

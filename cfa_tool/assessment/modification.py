@@ -17,7 +17,6 @@ the latter, gamma is a deviation of that group's value from the common one
 
 from __future__ import annotations
 
-from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 from itertools import chain
@@ -25,6 +24,7 @@ from itertools import chain
 import numpy as np
 
 from cfa_tool.assessment.diagnostics import descending_order
+from cfa_tool.assessment.held_rows import HeldRows
 from cfa_tool.assessment.standardized import Standardization, standardization, standardize_entries
 from cfa_tool.numerics.linalg import ScaledFactor, inverse_quadratic_forms, scaled_inverse
 from cfa_tool.estimation.objective import Objective
@@ -60,7 +60,7 @@ Candidate = tuple[str, tuple[str, ...], str, int, int]  # kind, variables, matri
 
 
 @dataclass(frozen=True, eq=False)
-class ModificationIndices(Sequence):
+class ModificationIndices(HeldRows):
     """Every modification index of a fit, largest first, held as columns (a fit at 240 items has tens of thousands):
     a row, :class:`ModificationIndex`, is built when it is read.  ``rows[k]`` is the position of row k among
     ``candidates`` (every group's candidate entries in turn), ``groups[k]`` its group's position in ``labels``."""
@@ -72,22 +72,6 @@ class ModificationIndices(Sequence):
     index: np.ndarray = field(default_factory=lambda: np.zeros(0))
     expected_change: np.ndarray = field(default_factory=lambda: np.zeros(0))
     standardized_expected_change: np.ndarray = field(default_factory=lambda: np.zeros(0))
-
-    def __len__(self) -> int:
-        return len(self.rows)
-
-    def __getitem__(self, k):
-        if isinstance(k, slice):
-            return tuple(self._row(j) for j in range(len(self))[k])
-        return self._row(range(len(self))[k])
-
-    def __iter__(self):
-        return (self._row(j) for j in range(len(self)))
-
-    def __eq__(self, other) -> bool:
-        return tuple(self) == tuple(other) if isinstance(other, Sequence) else NotImplemented
-
-    __hash__ = None
 
     def _row(self, j: int) -> ModificationIndex:
         kind, variables, *_ = self.candidates[self.rows[j]]
