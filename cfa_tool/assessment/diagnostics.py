@@ -18,10 +18,11 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
+from cfa_tool.assessment.held_rows import HeldRows
 from cfa_tool.assessment.normality import Whitened, whitened_rows
 from cfa_tool.data.kept_rows import ROW_NAMED_BY, RowNaming
 from cfa_tool.numerics import distributions as dist
@@ -51,23 +52,53 @@ class CaseDiagnostic:
         return out
 
 
-def case_dicts(cases, naming: RowNaming = RowNaming.FILE_ROW) -> list[dict]:
-    """The rows as JSON: what ``clean(case.to_dict(naming))`` (numerics.plain.clean) gives for each, built at once;
-    a row whose numbers are all finite Python floats (its row an int, its id text or None) needs no cleaning."""
+@dataclass(frozen=True, eq=False)
+class Cases(HeldRows):
+    """Case diagnostics held as columns, one value per row in each (assessment.held_rows, as ModificationIndices
+    holds its rows): a row, :class:`CaseDiagnostic`, is built when it is read (a fit has twenty, which mostly only
+    its JSON reads, from the columns: :func:`case_dicts`).  ``id``, ``answered`` and ``model_mahalanobis``: None when
+    no row has one (each row's value, None among them, otherwise)."""
+
+    rows: tuple[int, ...] = ()
+    mahalanobis: tuple[float, ...] = ()
+    p_value: tuple[float, ...] = ()
+    chi_square_share: tuple[float, ...] = ()
+    id: tuple[str | None, ...] | None = None
+    answered: tuple[int | None, ...] | None = None
+    model_mahalanobis: tuple[float | None, ...] | None = None
+
+    def _row(self, j: int) -> CaseDiagnostic:
+        return CaseDiagnostic(self.rows[j], self.mahalanobis[j], self.p_value[j], self.chi_square_share[j],
+                              None if self.id is None else self.id[j],
+                              None if self.answered is None else self.answered[j],
+                              None if self.model_mahalanobis is None else self.model_mahalanobis[j])
+
+    def named(self, ids: dict) -> Cases:
+        """The rows, each named by its id (``ids``: row -> id; None for a row without one)."""
+        return replace(self, id=tuple(ids.get(r) for r in self.rows))
+
+
+def case_dicts(cases: Cases | tuple, naming: RowNaming = RowNaming.FILE_ROW) -> list[dict]:
+    """The rows as JSON: what ``clean(case.to_dict(naming))`` (numerics.plain.clean) gives for each, built at once
+    from the columns (``()``: a fit without case diagnostics); a row whose numbers are all finite Python floats (its
+    row an int, its id text or None) needs no cleaning."""
+    if not cases:
+        return []
     word = naming.json_word
+    none = (None,) * len(cases)
     out = []
-    for c in cases:
-        row, id_, m, p, s = c.row, c.id, c.mahalanobis, c.p_value, c.chi_square_share
+    for row, id_, m, p, s, answered, model in zip(cases.rows, cases.id or none, cases.mahalanobis, cases.p_value,
+                                                  cases.chi_square_share, cases.answered or none,
+                                                  cases.model_mahalanobis or none):
         d = {"row": row, ROW_NAMED_BY: word}
         if id_ is not None:
             d["id"] = id_
         d["mahalanobis"], d["p_value"], d["chi_square_share"] = m, p, s
         plain = (type(row) is int and (id_ is None or type(id_) is str) and type(m) is float and type(p) is float
                  and type(s) is float and m - m == 0.0 and p - p == 0.0 and s - s == 0.0)
-        if c.answered is not None:
-            d["answered"], d["model_mahalanobis"] = c.answered, c.model_mahalanobis
-            plain = plain and type(c.answered) is int and type(c.model_mahalanobis) is float and (
-                c.model_mahalanobis - c.model_mahalanobis == 0.0)
+        if answered is not None:
+            d["answered"], d["model_mahalanobis"] = answered, model
+            plain = plain and type(answered) is int and type(model) is float and model - model == 0.0
         out.append(d if plain else clean(d))
     return out
 
@@ -81,7 +112,7 @@ def normalized_residuals(S: np.ndarray, sigma: np.ndarray, n_obs: int) -> np.nda
 def case_diagnostics(rows: np.ndarray, sigma: np.ndarray, row_numbers: np.ndarray | None, top: int = 10,
                      whitened: Whitened | None = None,
                      inverse: tuple[np.ndarray, float] | None = None,
-                     frequencies: np.ndarray | None = None) -> tuple[list[CaseDiagnostic], list[CaseDiagnostic]]:
+                     frequencies: np.ndarray | None = None) -> tuple[Cases, Cases]:
     """(rows with the largest Mahalanobis distances, rows with the largest shares of chi-square);
     ``whitened`` is :func:`~cfa_tool.assessment.normality.whitened_rows` of the rows (their distances from the
     centroid and the centred rows) and ``inverse`` (Sigma^-1, log|Sigma|) when the caller has them (the estimation's
@@ -105,10 +136,9 @@ def case_diagnostics(rows: np.ndarray, sigma: np.ndarray, row_numbers: np.ndarra
     chosen = np.concatenate([largest_first(d_sample, top), largest_first(share, top)])
     numbers = (chosen + 1 if row_numbers is None else row_numbers[chosen]).tolist()
     distances = d_sample[chosen]
-    found = [CaseDiagnostic(*values) for values in zip(numbers, distances.tolist(), dist.chi2_sf(distances, p).tolist(),
-                                                       share[chosen].tolist())]
-    shown = len(found) // 2  # the rows shown: p-values only for them
-    return found[:shown], found[shown:]
+    found = (numbers, distances.tolist(), dist.chi2_sf(distances, p).tolist(), share[chosen].tolist())
+    shown = len(numbers) // 2  # the rows shown: p-values only for them
+    return Cases(*(tuple(c[:shown]) for c in found)), Cases(*(tuple(c[shown:]) for c in found))
 
 
 #: values from which :func:`descending_order` tries numpy's default sort first (below it the stable sort is about as
@@ -163,7 +193,7 @@ def _answered_distances(rows: np.ndarray, patterns: tuple[np.ndarray, np.ndarray
 def incomplete_case_diagnostics(rows: np.ndarray, mean: np.ndarray, sigma: np.ndarray,
                                 saturated: tuple[np.ndarray, np.ndarray], row_numbers: np.ndarray | None,
                                 top: int = 10,
-                                frequencies: np.ndarray | None = None) -> tuple[list[CaseDiagnostic], list[CaseDiagnostic]]:
+                                frequencies: np.ndarray | None = None) -> tuple[Cases, Cases]:
     """The case diagnostics of rows with gaps (NaN for a missing answer; every row answers some item) under
     full-information ML: (rows least likely under the saturated moments, by the p-value of their distance on
     chi-square with as many df as items answered; rows with the largest shares of the chi-square).  ``mean`` and
@@ -183,8 +213,11 @@ def incomplete_case_diagnostics(rows: np.ndarray, mean: np.ndarray, sigma: np.nd
     p_values = dist.chi2_sf(d_saturated, answered)
     chosen = np.concatenate([np.lexsort((-d_saturated, p_values))[:top], np.argsort(-share, kind="stable")[:top]])
     numbers = (chosen + 1 if row_numbers is None else row_numbers[chosen]).tolist()
-    found = [CaseDiagnostic(row, d, p, s, None, k, dm) for row, d, p, s, k, dm in zip(
-        numbers, d_saturated[chosen].tolist(), p_values[chosen].tolist(), share[chosen].tolist(),
-        answered[chosen].tolist(), d_model[chosen].tolist())]
-    shown = len(found) // 2
-    return found[:shown], found[shown:]
+    found = (numbers, d_saturated[chosen].tolist(), p_values[chosen].tolist(), share[chosen].tolist(), None,
+             answered[chosen].tolist(), d_model[chosen].tolist())
+    shown = len(numbers) // 2
+
+    def part(sl: slice) -> Cases:
+        return Cases(*(None if c is None else tuple(c[sl]) for c in found))
+
+    return part(slice(None, shown)), part(slice(shown, None))

@@ -17,7 +17,6 @@ the latter, gamma is a deviation of that group's value from the common one
 
 from __future__ import annotations
 
-from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 from itertools import chain
@@ -25,6 +24,7 @@ from itertools import chain
 import numpy as np
 
 from cfa_tool.assessment.diagnostics import descending_order
+from cfa_tool.assessment.held_rows import HeldRows
 from cfa_tool.assessment.standardized import Standardization, standardization, standardize_entries
 from cfa_tool.numerics.linalg import ScaledFactor, inverse_quadratic_forms, scaled_inverse
 from cfa_tool.estimation.objective import Objective
@@ -60,7 +60,7 @@ Candidate = tuple[str, tuple[str, ...], str, int, int]  # kind, variables, matri
 
 
 @dataclass(frozen=True, eq=False)
-class ModificationIndices(Sequence):
+class ModificationIndices(HeldRows):
     """Every modification index of a fit, largest first, held as columns (a fit at 240 items has tens of thousands):
     a row, :class:`ModificationIndex`, is built when it is read.  ``rows[k]`` is the position of row k among
     ``candidates`` (every group's candidate entries in turn), ``groups[k]`` its group's position in ``labels``."""
@@ -73,22 +73,6 @@ class ModificationIndices(Sequence):
     expected_change: np.ndarray = field(default_factory=lambda: np.zeros(0))
     standardized_expected_change: np.ndarray = field(default_factory=lambda: np.zeros(0))
 
-    def __len__(self) -> int:
-        return len(self.rows)
-
-    def __getitem__(self, k):
-        if isinstance(k, slice):
-            return tuple(self._row(j) for j in range(len(self))[k])
-        return self._row(range(len(self))[k])
-
-    def __iter__(self):
-        return (self._row(j) for j in range(len(self)))
-
-    def __eq__(self, other) -> bool:
-        return tuple(self) == tuple(other) if isinstance(other, Sequence) else NotImplemented
-
-    __hash__ = None
-
     def _row(self, j: int) -> ModificationIndex:
         kind, variables, *_ = self.candidates[self.rows[j]]
         return ModificationIndex(kind, variables, float(self.index[j]), float(self.expected_change[j]),
@@ -100,23 +84,42 @@ class ModificationIndices(Sequence):
                                    self.expected_change[keep], self.standardized_expected_change[keep])
 
     def reported(self, threshold: float, top: int | None) -> ModificationIndices:
-        """The rows of at least ``threshold``, at most the ``top`` largest (all with None)."""
-        shown = self.where(self.index >= threshold)
-        return shown.where(slice(None, top)) if top is not None else shown
+        """The rows of at least ``threshold``, at most the ``top`` largest (all with None): these rows themselves
+        when every row is reported."""
+        shown = self._shown(threshold, top)
+        return self if isinstance(shown, slice) and shown.stop == len(self) else self.where(shown)
+
+    def reported_dicts(self, threshold: float, top: int | None) -> list[dict]:
+        """:meth:`dicts` of :meth:`reported`'s rows, read from these rows' columns (no record of them built)."""
+        return self.dicts(self._shown(threshold, top))
+
+    def _shown(self, threshold: float, top: int | None) -> slice | np.ndarray:
+        """The positions of :meth:`reported`'s rows: the first ones when the rows are largest first (as
+        :func:`collected_indices` orders them, NaN last), otherwise each row of at least ``threshold`` in turn."""
+        keep = self.index >= threshold
+        count = int(keep.sum())
+        if keep[:count].all():  # largest first: the rows of at least the threshold are the first ``count``
+            return slice(0, count if top is None else min(count, top))
+        return np.flatnonzero(keep)[:top]
 
     def without(self, names: frozenset[str]) -> ModificationIndices:
         """The rows naming none of ``names``."""
         return self.where(np.array([names.isdisjoint(self.candidates[r][1]) for r in self.rows.tolist()], dtype=bool))
 
-    def dicts(self) -> list[dict]:
-        """The rows as JSON-ready dictionaries (what ``ModificationIndex.to_dict`` gives, NaN and infinities as None)."""
+    def dicts(self, shown: slice | np.ndarray = slice(None)) -> list[dict]:
+        """The rows (those at the positions ``shown``) as JSON-ready dictionaries (what ``ModificationIndex.to_dict``
+        gives, NaN and infinities as None)."""
         columns = [c.tolist() if np.isfinite(c).all() else [v if v - v == 0.0 else None for v in c.tolist()]
-                   for c in (self.index, self.expected_change, self.standardized_expected_change)]
+                   for c in (self.index[shown], self.expected_change[shown], self.standardized_expected_change[shown])]
         candidates, labels = self.candidates, self.labels
         return [{"kind": c[0], "variables": list(c[1]), "group": labels[g], "index": mi, "expected_change": epc,
                  "standardized_expected_change": std}
-                for c, g, mi, epc, std in zip(map(candidates.__getitem__, self.rows.tolist()), self.groups.tolist(),
-                                              *columns)]
+                for c, g, mi, epc, std in zip(map(candidates.__getitem__, self.rows[shown].tolist()),
+                                              self.groups[shown].tolist(), *columns)]
+
+
+#: the modification indices of a fit that computed none (every such fit shares it: its columns are empty)
+NO_INDICES = ModificationIndices()
 
 
 def collected_indices(candidates: list[list[Candidate]], labels: tuple[str | None, ...], index: np.ndarray,

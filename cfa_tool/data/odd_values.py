@@ -47,7 +47,7 @@ import pandas as pd
 
 from cfa_tool.data.descriptives import answer_extremes
 from cfa_tool.data.kept_rows import RowNaming, row_naming, row_words, rows_listed, text_lines
-from cfa_tool.data.moments import item_values
+from cfa_tool.data.moments import column_dtypes, item_values, stored_column
 from cfa_tool.errors import printable
 from cfa_tool.input_files import base_name
 from cfa_tool.language.names import written_name
@@ -273,8 +273,11 @@ def _summary_block(frame: pd.DataFrame, columns, row_numbers, X) -> tuple[tuple[
     if n - 1 not in labels and (len(last) < 3 or np.all(last == np.round(last)) and not (
             X[n - 1] > stats.top).any()):
         return (), n  # the last row is a respondent's whole-number answers: no block (the common case)
+    if not labels and _decimal_places(last) is None:
+        return (), n  # without labels every row of a block, the last one too, is found by its values, and values of
+        # more than six decimals are no statistic :func:`_statistic_of` finds (a respondent's answers of many decimals)
     if not labels and not _may_open_a_block(X, n - most, stats):
-        return (), n  # no row that could open a block: a respondent's answers of many decimals (the common case)
+        return (), n  # no row that could open a block: a respondent's answers of a few decimals
     for k in range(most, 0, -1):
         s = n - k
         held = []
@@ -325,12 +328,22 @@ class _ColumnTotals:
 
     def __init__(self, X: np.ndarray, first: int) -> None:
         self.X = X
-        self.finite = np.isfinite(X)
-        #: the highest answer of each column above row position ``first`` (where a block can start): a row of whole
-        #: numbers none of which lies above it holds no counts of answers or sums (:func:`_statistic_of`)
-        self.top = np.max(X[:first], axis=0, initial=-np.inf, where=self.finite[:first])
-        self.bottom = np.min(X[:first], axis=0, initial=np.inf, where=self.finite[:first])
+        self.first = first
         self._above: dict[int, dict[str, np.ndarray]] = {}
+
+    @cached_property
+    def finite(self) -> np.ndarray:
+        return np.isfinite(self.X)
+
+    @cached_property
+    def top(self) -> np.ndarray:
+        """The highest answer of each column above row position ``first`` (where a block can start): a row of whole
+        numbers none of which lies above it holds no counts of answers or sums (:func:`_statistic_of`)."""
+        return np.max(self.X[:self.first], axis=0, initial=-np.inf, where=self.finite[:self.first])
+
+    @cached_property
+    def bottom(self) -> np.ndarray:
+        return np.min(self.X[:self.first], axis=0, initial=np.inf, where=self.finite[:self.first])
 
     @cached_property
     def counts(self) -> np.ndarray:
@@ -383,7 +396,7 @@ def _statistic_of(X: np.ndarray, r: int, s: int, stats: _ColumnTotals) -> tuple[
     if len(js) < 3:
         return None
     row = X[r, js]
-    places = next((k for k in range(7) if np.all(np.abs(row * 10 ** k - np.round(row * 10 ** k)) < 1e-6)), None)
+    places = _decimal_places(row)
     if places is None:
         return None
     if places == 0 and not (row > stats.top[js]).any():
@@ -402,6 +415,19 @@ def _statistic_of(X: np.ndarray, r: int, s: int, stats: _ColumnTotals) -> tuple[
     return None
 
 
+#: the powers of ten by which a row of statistics written with 0 to 6 decimals gives whole numbers
+POWERS = np.array([1.0, 10.0, 100.0, 1e3, 1e4, 1e5, 1e6])
+
+
+def _decimal_places(row: np.ndarray) -> int | None:
+    """The fewest decimals, 0 to 6, with which every value of ``row`` is written (each value times the power of ten
+    within 1e-6 of a whole number), or None: how many decimals a row of statistics was written with, every power
+    tried at once."""
+    scaled = row[:, None] * POWERS
+    written = (np.abs(scaled - np.round(scaled)) < 1e-6).all(axis=0)
+    return int(written.argmax()) if written.any() else None
+
+
 def _statistic_labels(frame: pd.DataFrame, columns, most: int) -> dict[int, tuple[str, str, str]]:
     """Row position -> (column, text, what the row holds in words) of the last ``most`` rows whose cell in a column
     outside ``columns`` names a statistic (:data:`STATISTIC_LABELS`) that no other row of the column holds ('N' of
@@ -410,14 +436,15 @@ def _statistic_labels(frame: pd.DataFrame, columns, most: int) -> dict[int, tupl
     out: dict[int, tuple[str, str, str]] = {}
     items = set(columns)
     n = len(frame)
-    texts = [column for column, kind in frame.dtypes.items() if column not in items and kind.kind not in "biufcmM"]
-    for column in texts:  # columns of numbers hold no label (read from the dtypes at once: a column each is slow)
-        cells = frame[column]
-        for r, value in enumerate(cells.to_numpy()[n - most:].tolist(), start=n - most):
+    names = frame.columns.tolist()  # the dtypes from the frame's store (data.moments.column_dtypes: no Series built)
+    texts = [k for k, kind in enumerate(column_dtypes(frame)) if kind.kind not in "biufcmM" and names[k] not in items]
+    for position in texts:  # columns of numbers hold no label (read from the dtypes at once: a column each is slow)
+        column = names[position]
+        for r, value in enumerate(stored_column(frame, position)[n - most:].tolist(), start=n - most):
             if r in out or not isinstance(value, str):
                 continue
             key = " ".join(value.split()).strip(".:").strip().lower()
-            if key in STATISTIC_LABELS and int((cells == value).sum()) == 1:
+            if key in STATISTIC_LABELS and int((frame[column] == value).sum()) == 1:
                 out[r] = (str(column), value.strip(), STATISTIC_LABELS[key])
     return out
 

@@ -695,9 +695,11 @@ def _check_formula_errors(frame: pd.DataFrame, where: str, items, typed: frozens
     answer)."""
     wanted = None if items is None else {str(x) for x in items}
     found: list[tuple[int, str, str]] = []  # (position, column, value)
-    for column in frame.columns:
+    # columns of numbers hold no error text: the dtypes read at once (data.moments.column_dtypes), each column taken
+    # out only when it may hold text (a column each cost more than the whole check of a 15-column file)
+    for column, dtype in zip(frame.columns.tolist(), column_dtypes(frame)):
         if column is None or (wanted is not None and str(column) not in wanted) or \
-                pd.api.types.is_numeric_dtype(frame[column]):
+                pd.api.types.is_numeric_dtype(dtype):
             continue
         hit = frame[column].isin(FORMULA_ERRORS).to_numpy()
         labels = [label for label, name in typed if name == column]
@@ -1508,9 +1510,13 @@ def drop_blank_rows(frame: pd.DataFrame, where: str) -> tuple[pd.DataFrame, tupl
     a footer such as 'Total responses: 1204') is kept; the analysis names it if it answers no model variable."""
     if frame.shape[1] == 0 or len(frame) == 0:
         return frame, ()
+    dtypes = column_dtypes(frame)  # read at once (data.moments.column_dtypes); a column of numpy whole numbers or
+    if any(isinstance(d, np.dtype) and d.kind in "iub" for d in dtypes):  # truth values has a value in every row
+        return frame, ()
     blank = None
-    for _, column in frame.items():  # column by column: a column without gaps (an id) ends the search at once
-        empty = column.isna().to_numpy()
+    for position, dtype in enumerate(dtypes):  # column by column: a column without gaps ends the search at once
+        empty = (np.isnan(stored_column(frame, position)) if isinstance(dtype, np.dtype) and dtype.kind == "f"
+                 else frame.iloc[:, position].isna().to_numpy())  # numpy floats: their gaps are NaN, as isna says
         blank = empty if blank is None else blank & empty
         if not blank.any():
             return frame, ()
@@ -1545,6 +1551,11 @@ def _check_repeated_header(frame: pd.DataFrame, where: str, header_row: int) -> 
     one sheet) or was joined from files that each had a header (``cat``); read as answers, its names were advised
     as no-answer words and both tables were then analysed as one sample.  ``header_row``: the row of the column
     names, which the message names."""
+    names = frame.columns.tolist()
+    texts = [k for k, dtype in enumerate(column_dtypes(frame))
+             if names[k] is not None and not pd.api.types.is_numeric_dtype(dtype)]
+    if len(texts) < 2:
+        return  # a row repeats the names of two columns or more, and only columns of text can hold a name
     matched = np.zeros(len(frame), dtype=int)
     filled = np.zeros(len(frame), dtype=int)
     for column in frame.columns:

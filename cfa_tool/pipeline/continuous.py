@@ -20,7 +20,7 @@ from cfa_tool.assessment.diagnostics import case_diagnostics, incomplete_case_di
 from cfa_tool.assessment.fit_indices import (baseline_chi_square, cfi_value, fit_indices, normal_theory_parts,
                                              rmsea_value, srmr, srmr_value)
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
-from cfa_tool.assessment.modification import ModificationIndices, helper_modification_indices, modification_indices
+from cfa_tool.assessment.modification import NO_INDICES, helper_modification_indices, modification_indices
 from cfa_tool.assessment.normality import Whitened, mardia, whitened_rows
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
@@ -403,7 +403,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     fit = None
     robust = None
     inference = None
-    mis = ModificationIndices()
+    mis = NO_INDICES
     robust_wanted = options.test is FitTest.SATORRA_BENTLER
     yuan_bentler = options.test is FitTest.YUAN_BENTLER
     if robust_wanted and any(gm.rows is None for gm in likelihood.groups):
@@ -669,11 +669,11 @@ def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: n
             whitened = whitened_rows(gm.rows, (gm.mean, gm.covariance))
         unusual, influential = case_diagnostics(gm.rows, sigma, m.row_numbers, whitened=whitened, inverse=inverse,
                                                 frequencies=frequencies)
-        out.update(unusual_cases=tuple(unusual), influential_cases=tuple(influential))
+        out.update(unusual_cases=unusual, influential_cases=influential)
     elif gap_rows is not None:  # full-information ML: distances on the items each row answered
         unusual, influential = incomplete_case_diagnostics(gap_rows, mats.implied_mean(), sigma, (gm.mean, gm.covariance),
                                                            m.row_numbers, frequencies=_row_weights(gm))
-        out.update(unusual_cases=tuple(unusual), influential_cases=tuple(influential))
+        out.update(unusual_cases=unusual, influential_cases=influential)
     return out
 
 

@@ -44,7 +44,7 @@ from cfa_tool.options import Option, option_in_both, own_keywords
 from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, check_rows_counted, printable
 from cfa_tool.input_files import DATA_FRAME
 from cfa_tool.numerics.threads import blas_threads_for
-from cfa_tool.pipeline.continuous import FitOptions, fit_moments
+from cfa_tool.pipeline.continuous import LISTWISE_WARNING_SHARE, FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import ADJUSTED_TEST, FitTest, MissingData, WeightKind, Weighting
@@ -717,7 +717,10 @@ def group_case_problems(frame: pd.DataFrame, group: str, part: str = "group",
 
     if group not in frame.columns:
         return ()
-    found = case_variants(frame[group].dropna())
+    labels = frame[group].dropna()
+    if not _may_differ_by_case(labels):
+        return ()
+    found = case_variants(labels)
     if not found:
         return ()
     listed = "; ".join(" and ".join(f"'{printable(label)}' ({n} row{'s' if n != 1 else ''})" for label, n in variants)
@@ -733,6 +736,20 @@ def group_case_problems(frame: pd.DataFrame, group: str, part: str = "group",
 
 
 CASE_VARIANTS_SHOWN = 5  # sets of labels differing only in case that a caution names before 'and N more'
+
+
+def _may_differ_by_case(cells: pd.Series) -> bool:
+    """Whether some labels of ``cells`` (a column's cells, gaps left out) can differ only in upper and lower case
+    (data.labels.case_variants), judged without reading every cell as a label: numbers and truth values have labels
+    without two such (digits, a point, 'e' and 'inf'; 'True' and 'False'), and a column of text only when two of its
+    distinct texts read so; any other column is left to case_variants."""
+    if cells.dtype.kind in "biuf":
+        return False
+    values = cells.tolist()
+    if set(map(type, values)) != {str}:
+        return True
+    labels = {label_text(v) for v in set(values)}
+    return len({label.casefold() for label in labels}) < len(labels)
 
 
 def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answers: tuple = (),
@@ -1215,9 +1232,9 @@ def named_cases(result: FitResult, ids: dict) -> FitResult:
     """The result with each case diagnostic named by its row's id (unchanged without ids)."""
     if not ids:
         return result
-    groups = tuple(replace(g, unusual_cases=tuple(replace(c, id=ids.get(c.row)) for c in g.unusual_cases),
-                           influential_cases=tuple(replace(c, id=ids.get(c.row)) for c in g.influential_cases))
-                   for g in result.groups)
+    groups = tuple(replace(g, unusual_cases=g.unusual_cases.named(ids) if g.unusual_cases else g.unusual_cases,
+                           influential_cases=g.influential_cases.named(ids) if g.influential_cases else
+                           g.influential_cases) for g in result.groups)
     return replace(result, groups=groups)
 
 
@@ -1237,11 +1254,10 @@ def without_group_problem(without: int, read: int, group: str | None) -> Problem
     """The caution on rows left out for having no value in the group column, first in every view as listwise
     deletion's is (the same share, :data:`~cfa_tool.pipeline.continuous.LISTWISE_WARNING_SHARE`: hostile tester
     s15 had 192 of 480 rows left out in a note); None for fewer."""
-    from cfa_tool.assessment.admissibility import Problem, ProblemKind
-    from cfa_tool.pipeline.continuous import LISTWISE_WARNING_SHARE
-
     if group is None or without <= LISTWISE_WARNING_SHARE * read:
         return None
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
     return Problem(ProblemKind.ROWS_LEFT_OUT, (), float(without),
                    f"{without} of {read} rows ({100 * without / read:.0f}%) have no value in the group column "
                    f"'{group}' and were left out, and the rows left out may differ from those kept.",

@@ -9,7 +9,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from cfa_tool.assessment.admissibility import solution_first
-from cfa_tool.assessment.diagnostics import case_dicts
+from cfa_tool.assessment.diagnostics import Cases, case_dicts
 from cfa_tool.assessment.fit_indices import FitIndices, IndicesToRead
 from cfa_tool.assessment.modification import ModificationIndices
 from cfa_tool.assessment.normality import Normality
@@ -343,8 +343,8 @@ class GroupResult:
     reliability: tuple = ()  # FactorReliability per factor
     htmt: tuple = ()  # Htmt per pair of first-order factors
     normalized_residuals: np.ndarray | None = field(repr=False, default=None)
-    unusual_cases: tuple = ()  # CaseDiagnostic, largest Mahalanobis distances
-    influential_cases: tuple = ()  # CaseDiagnostic, largest shares of the chi-square
+    unusual_cases: Cases | tuple = ()  # assessment.diagnostics.Cases, largest Mahalanobis distances (() without)
+    influential_cases: Cases | tuple = ()  # the same, largest shares of the chi-square
     # the factors' model-implied (total) covariance matrix, in the order of FitResult.latent: with higher-order
     # factors it differs from the factor (co)variance parameters, which are then disturbance (co)variances
     latent_covariance: np.ndarray | None = field(repr=False, default=None)
@@ -554,7 +554,7 @@ class FitResult(Presentable):
                              "values": {k: {str(code): text for code, text in v.items()} for k, v in self.labels["values"].items()}}
         if self.exploratory:
             out["exploratory_blocks"] = [block.to_dict() for block in self.exploratory]
-        out["modification_indices"] = self.reported_modification_indices().dicts()
+        out["modification_indices"] = self.modification_indices.reported_dicts(self.mi_threshold, self.mi_top)
         out["warnings"] = [str(w) for w in self.warnings]  # a Note as its reader reads it
         return out
 

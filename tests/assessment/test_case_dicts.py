@@ -7,7 +7,7 @@ import math
 import numpy as np
 import pytest
 
-from cfa_tool.assessment.diagnostics import CaseDiagnostic, case_dicts
+from cfa_tool.assessment.diagnostics import CaseDiagnostic, Cases, case_dicts
 from cfa_tool.data.kept_rows import RowNaming
 from cfa_tool.numerics.plain import clean
 
@@ -29,6 +29,12 @@ def _cases(rng):
     return out
 
 
+def _columns(rows) -> Cases:
+    """The rows held as columns, as a fit holds them (assessment.diagnostics.Cases)."""
+    return Cases(*(tuple(getattr(c, name) for c in rows) for name in
+                   ("row", "mahalanobis", "p_value", "chi_square_share", "id", "answered", "model_mahalanobis")))
+
+
 def _same(a, b):
     if type(a) is not type(b):
         return False
@@ -42,7 +48,9 @@ def _same(a, b):
 @pytest.mark.parametrize("naming", list(RowNaming))
 def test_case_rows_as_json_are_those_of_each_row_cleaned(naming):
     cases = _cases(np.random.default_rng(5))
-    built, expected = case_dicts(cases, naming), [clean(c.to_dict(naming)) for c in cases]
+    held = _columns(cases)
+    assert list(held) == cases  # each row read back from the columns is the row
+    built, expected = case_dicts(held, naming), [clean(c.to_dict(naming)) for c in cases]
     assert len(built) == len(expected) == 300
     assert all(_same(a, b) for a, b in zip(built, expected))
     assert any(None in d.values() for d in built)  # the draws hold NaN and infinities
