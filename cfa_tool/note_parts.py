@@ -142,6 +142,11 @@ def joined(texts: Iterable[Text | None], between: str = " ") -> Text:
     return out
 
 
+def capitalised(text: Text) -> Text:
+    """``text`` with the first letter of its first words in capitals."""
+    return text.capitalised() if isinstance(text, Note) else text[:1].upper() + text[1:]
+
+
 def saved(text: Text) -> str | dict:
     """``text`` as a saved report holds it."""
     return text if isinstance(text, str) else text.to_dict()

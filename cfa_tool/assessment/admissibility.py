@@ -309,7 +309,7 @@ class Problem:
     kind: ProblemKind
     parameters: tuple[str, ...]
     value: float | None
-    explanation: str
+    explanation: Text  # words, or a Note naming an option the user gave (a data file's codes of no answer)
     advice: Text  # words, or a Note whose command the views whose reader runs the program show (note_parts)
     group: str | None = None
     # the facts of a sample or group with fewer rows than its model's parameters (SMALL_SAMPLE, SMALL_GROUP), which
@@ -321,7 +321,7 @@ class Problem:
         facts = {} if self.rows_per_parameter is None else {"rows_per_parameter": self.rows_per_parameter.to_dict()}
         return {"kind": self.kind.value, "inadmissible": self.kind.inadmissible, "parameters": list(self.parameters),
                 "parameters_in_words": list(self.parameter_words()), "value": value, "group": self.group,
-                "explanation": self.explanation, "advice": str(self.advice)} | facts
+                "explanation": str(self.explanation), "advice": str(self.advice)} | facts
 
     def parameter_words(self) -> tuple[str, ...]:
         """The parameters in plain words ('the loading of helpful on courtesy in group north')."""

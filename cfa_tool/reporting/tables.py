@@ -157,9 +157,9 @@ def problem_table(result) -> ReportTable | None:
         return None
     problems = solution_first(result.problems)
     rows = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()),
-             "" if p.value is None else num(p.value), p.group or "", p.explanation, said(p.advice)] for p in problems]
+             "" if p.value is None else num(p.value), p.group or "", said(p.explanation), said(p.advice)] for p in problems]
     values = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()), p.value, p.group or "",
-               p.explanation, said(p.advice)] for p in problems]
+               said(p.explanation), said(p.advice)] for p in problems]
     columns = [("Problem", "l"), ("Makes it inadmissible", "l"), ("Parameters", "l"), ("Value", "r"), ("Group", "l"),
                ("Explanation", "l"), ("What to try", "l")]
     return _table("problems", notice.heading, columns, rows, values=([c for c, _ in columns], values))

@@ -92,11 +92,11 @@ def test_a_missing_code_on_a_labelled_answer_is_a_caution_first(tmp_path, rider)
     threes = data[items] == 3
     cells, rows = int(threes.sum().sum()), int(threes.any(axis=1).sum())
     assert (cells, rows) == (2250, 475)  # counted by pandas from the CSV file
-    assert first.explanation.startswith(
+    assert str(first.explanation).startswith(
         "missing_codes=[3] read as no answer the code 3, which riders.sav labels 'Neutral', an answer between the "
         f"other answers (1 to 5) of 12 items holding it: {cells} cells (on_time {int(threes.on_time.sum())}, ")
     assert f") in {rows} rows became gaps" in first.explanation
-    assert first.advice.startswith("If 'Neutral' is an answer, leave 3 out of missing_codes")
+    assert str(first.advice).startswith("If 'Neutral' is an answer, leave 3 out of missing_codes")
     # after a row filter, the cells and rows of the rows kept
     north = data.district == "north"
     kept = cfa_tool.fit(model, path, missing_codes=[3], keep=["district = north"])
