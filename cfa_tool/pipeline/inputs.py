@@ -925,7 +925,8 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
                                                    scored_only else
                     Note((f"fit again without {'it' if one else 'them'} (a row filter on an id column",
                           Command(f", {option_in_both('--keep', 'keep=[...]')}"),
-                          f"; or deleting {'it' if one else 'them'} from a copy of the file) and compare the results.")))),)
+                          f"; or deleting {'it' if one else 'them'} from a copy of the file) and compare the "
+                          f"results.")))),)
 
 
 def scale_ends_problems(frame: pd.DataFrame, spec: Spec) -> tuple:

@@ -302,7 +302,8 @@ def _prorated_sentence(result, sums) -> Text:
                            "not written in this run's scores file"),)))
     said = (f"A prorated score rests on the items the row answered, and its own SEM is that of their sum, SD × "
             f"√(1 − ω) of that sum under the fitted model, scaled as the score is (times J/a for a sum prorated from a "
-            f"of J items, divided by a for a mean), as a rule larger than the figure above: each row's is " + where + ".")
+            f"of J items, divided by a for a mean), as a rule larger than the figure above: each row's is "
+            + where + ".")
     if sums.prorated_sem:
         said += " Prorated rows here: " + "; ".join(
             f"{f} {n} {'row' if n == 1 else 'rows'}, {METHOD_LABELS[m]} SEM "
