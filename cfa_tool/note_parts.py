@@ -86,8 +86,10 @@ class Note:
         return self.said(RUNNING)
 
     def __contains__(self, text: str) -> bool:
-        """Whether ``text`` is among the words as the program's user reads them (str(note)): where a line is searched
-        for words, a Note is searched as plain text is."""
+        """Whether ``text`` is among the words as the program's user reads them (str(note)): where a test searches a
+        line for words, a Note is searched as plain text is.  The tool itself decides nothing by a note's words (a
+        choice is made from the facts the note was written from; tests/reporting/test_word_names_no_option.py runs
+        every command that writes a Word file with this refused)."""
         return text in str(self)
 
     def __add__(self, other: "str | Note") -> "Note":
@@ -140,6 +142,11 @@ def joined(texts: Iterable[Text | None], between: str = " ") -> Text:
     for k, t in enumerate(kept):
         out = out + (between if k else "") + t
     return out
+
+
+def capitalised(text: Text) -> Text:
+    """``text`` with the first letter of its first words in capitals."""
+    return text.capitalised() if isinstance(text, Note) else text[:1].upper() + text[1:]
 
 
 def saved(text: Text) -> str | dict:

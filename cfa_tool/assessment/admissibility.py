@@ -25,7 +25,7 @@ from cfa_tool.model.description import label_words, split_label
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.model.parameters import ParameterTable
 from cfa_tool.model.saved_estimates import AGAIN, SavedRow
-from cfa_tool.note_parts import Text
+from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.numerics.linalg import cholesky_log_det
 from cfa_tool.options import Option
 
@@ -255,8 +255,8 @@ def _small_sample_problem(facts: RowsPerParameter, several: bool) -> "Problem":
         f"rest{'' if several else 's'} on too few answers"
         + ("" if several else ", and a CFI of 1 or a TLI above 1 then says little about fit")
         + f" (fewer rows than parameters; {ROWS_RULE}).",
-        "gather more rows for this group, join it with a similar group by recoding the group column, or leave it "
-        f"out with a row filter ({Option.KEEP})." if several else
+        Note(("gather more rows for this group, join it with a similar group by recoding the group column, or leave "
+              "it out with a row filter", Command(f" ({Option.KEEP})"), ".")) if several else
         "gather more rows, or fit a smaller model (fewer items or factors); do not judge this fit against the guide "
         "values of the fit indices.", facts.group, facts)
 
@@ -312,7 +312,7 @@ class Problem:
     kind: ProblemKind
     parameters: tuple[str, ...]
     value: float | None
-    explanation: str
+    explanation: Text  # words, or a Note naming an option the user gave (a data file's codes of no answer)
     advice: Text  # words, or a Note whose command the views whose reader runs the program show (note_parts)
     group: str | None = None
     # the facts of a sample or group with fewer rows than its model's parameters (SMALL_SAMPLE, SMALL_GROUP), which
@@ -324,7 +324,7 @@ class Problem:
         facts = {} if self.rows_per_parameter is None else {"rows_per_parameter": self.rows_per_parameter.to_dict()}
         return {"kind": self.kind.value, "inadmissible": self.kind.inadmissible, "parameters": list(self.parameters),
                 "parameters_in_words": list(self.parameter_words()), "value": value, "group": self.group,
-                "explanation": self.explanation, "advice": str(self.advice)} | facts
+                "explanation": str(self.explanation), "advice": str(self.advice)} | facts
 
     def parameter_words(self) -> tuple[str, ...]:
         """The parameters in plain words ('the loading of helpful on courtesy in group north')."""
@@ -597,9 +597,10 @@ def failure_words(result) -> str:
             else "did not converge")
 
 
-def not_converged(message: str, max_iterations: int) -> Problem:
+def not_converged(message: Text, max_iterations: int) -> Problem:
     return Problem(ProblemKind.NOT_CONVERGED, (), None,
-                   f"The estimation did not converge ({message}); no estimate, fit index or test of it can be interpreted.",
+                   "The estimation did not converge (" + message + "); no estimate, fit index or test of it can be "
+                   "interpreted.",
                    f"Check the model for the problems named, give start values closer to the expected solution, or raise "
                    f"the iteration limit (now {max_iterations}).")
 

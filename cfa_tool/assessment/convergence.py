@@ -8,6 +8,7 @@ import numpy as np
 from cfa_tool.estimation.optimizer import Outcome
 from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.estimation.strategy import Restart, Search
+from cfa_tool.note_parts import Command, Note, Text, joined
 from cfa_tool.options import Option
 
 IDENTIFICATION_HINT = ("check that every factor is identified (three or more items with clear loadings, or two items "
@@ -15,10 +16,11 @@ IDENTIFICATION_HINT = ("check that every factor is identified (three or more ite
 
 
 def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, lower: np.ndarray | None = None,
-                           upper: np.ndarray | None = None) -> str:
+                           upper: np.ndarray | None = None) -> Text:
     """One paragraph for a search that did not converge; ``labels`` name the free parameters and ``limit``
     is the iteration limit in force; ``lower`` and ``upper``: the free parameters' bounds (the model file's
-    'bound' statements), so that a search that ended against a bound says so."""
+    'bound' statements), so that a search that ended against a bound says so.  The option that raises the limit
+    apart (note_parts.Command): a manuscript's reader runs nothing."""
     result = found.result
     used = result.iterations
     outcome = Outcome.ITERATION_LIMIT if used >= limit and result.outcome is not Outcome.BAD_START else result.outcome
@@ -37,7 +39,7 @@ def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, l
         if indices:
             names = [labels[k] for k in indices]
             parts.append(f"{_and_list(names)} {words}")
-    advice = []
+    advice: list[Text] = []
     held = _held_at_bounds(result.theta, labels, lower, upper)
     if held:
         parts.append(f"{_and_list(held)} {'was' if len(held) == 1 else 'were'} held at the model file's "
@@ -67,10 +69,10 @@ def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, l
         advice.append("write 'scale latent by variance'")
     if not advice:
         if outcome is Outcome.ITERATION_LIMIT:
-            advice.append(f"raise the limit ({Option.MAX_ITERATIONS})")
+            advice.append(Note(("raise the limit", Command(f" ({Option.MAX_ITERATIONS})"))))
         advice.append(IDENTIFICATION_HINT)
         advice.append("give start values near the expected solution ('start ...')")
-    return "; ".join(parts) + ". What to try: " + _or_list(advice)
+    return "; ".join(parts) + ". What to try: " + _or_list(advice)  # type: ignore[operator]
 
 
 def _iterations(n: int) -> str:
@@ -81,8 +83,8 @@ def _and_list(words: list[str]) -> str:
     return words[0] if len(words) == 1 else ", ".join(words[:-1]) + " and " + words[-1]
 
 
-def _or_list(words: list[str]) -> str:
-    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + ", or " + words[-1]
+def _or_list(words: list[Text]) -> Text:
+    return words[0] if len(words) == 1 else joined(words[:-1], ", ") + ", or " + words[-1]  # type: ignore[operator]
 
 
 def _held_at_bounds(theta, labels: tuple[str, ...], lower, upper) -> list[str]:

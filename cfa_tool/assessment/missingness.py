@@ -140,8 +140,10 @@ def sparse_answers_problem(values: np.ndarray, names: tuple[str, ...], failure: 
         value = float(together[i, j])
     from cfa_tool.options import Option
 
-    advice = (f"analyse fewer items ({'one of each pair never answered together' if pairs else 'those answered together by few rows'}), "
-              f"or gather rows that answer them together; leaving out the rows with gaps "
-              f"({Option.INCOMPLETE_ROWS.given('listwise')}) would keep {complete} complete row{'s' if complete != 1 else ''}"
-              + (f"; or leave the group out with a row filter ({Option.KEEP})" if group is not None else ""))
+    which = "one of each pair never answered together" if pairs else "those answered together by few rows"
+    advice = Note((f"analyse fewer items ({which}), or gather rows that answer them together; leaving out the rows "
+                   f"with gaps",
+                   Command(f" ({Option.INCOMPLETE_ROWS.given('listwise')})"),
+                   f" would keep {complete} complete row{'s' if complete != 1 else ''}")) + (
+        Note(("; or leave the group out with a row filter", Command(f" ({Option.KEEP})"))) if group is not None else "")
     return Problem(ProblemKind.SPARSE_ANSWERS, (), value, said, advice, group)

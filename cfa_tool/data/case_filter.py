@@ -10,6 +10,7 @@ import pandas as pd
 
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import printable
+from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 
 
@@ -50,9 +51,12 @@ class FilterVariable:
                 f"(row{'s' if len(self.rows) != 1 else ''} {shown}){left} were analysed with the selected rows, as "
                 f"the file holds them.")
 
-    def advice(self) -> str:
-        return (f"To analyse only the selected rows, as the filter did, give "
-                f"{Option.KEEP.given(printable(self.keep()))}; to analyse every row, leave the caution be.")
+    def advice(self) -> Note:
+        """What to try, the row filter apart (note_parts.Command): a manuscript's reader runs nothing."""
+        return Note(("To analyse only the selected rows, as the filter did, ",
+                     Command(f"give {Option.KEEP.given(printable(self.keep()))}",
+                             f"keep the rows where {printable(self.keep())}"),
+                     "; to analyse every row, leave the caution be."))
 
     def to_dict(self) -> dict:
         return {"column": self.column, "label": self.label, "rows": list(self.rows), "of": self.of,

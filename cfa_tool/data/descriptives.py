@@ -8,6 +8,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.language.names import written_name
+from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import option_in_both
 
 
@@ -140,7 +141,7 @@ def few_category_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[str,
     return tuple(name for name in candidates if name not in constant)
 
 
-def few_category_note(few: tuple[str, ...], names: tuple[str, ...]) -> str | None:
+def few_category_note(few: tuple[str, ...], names: tuple[str, ...]) -> Note | None:
     """The note of a fit that treats ``few`` (:func:`few_category_items` of the items ``names``) as continuous (None
     when there are none)."""
     if not few:
@@ -149,8 +150,9 @@ def few_category_note(few: tuple[str, ...], names: tuple[str, ...]) -> str | Non
     which = "all" if len(few) == len(names) else ",".join(written_name(x) for x in few)
     if which != "all" and which != ",".join(few):  # names written in double quotes: the list in single quotes
         which = f"'{which}'"
-    return (f"{len(few)} of the {len(names)} items ({listed}) have at most {FEW_CATEGORIES} answer categories and are "
-            f"analysed here as continuous by maximum likelihood; with so few categories loadings tend to come out "
-            f"too small and the fit to be misjudged, and analysing the answers as ordered categories is usually "
-            f"preferred (Rhemtulla, Brosseau-Liard & Savalei 2012): "
-            f"{option_in_both(f'--ordinal {which}', 'ordinal=' + repr('all' if which == 'all' else list(few)))}")
+    return Note((f"{len(few)} of the {len(names)} items ({listed}) have at most {FEW_CATEGORIES} answer categories "
+                 f"and are analysed here as continuous by maximum likelihood; with so few categories loadings tend to "
+                 f"come out too small and the fit to be misjudged, and analysing the answers as ordered categories is "
+                 f"usually preferred (Rhemtulla, Brosseau-Liard & Savalei 2012)",
+                 Command(": " + option_in_both(f"--ordinal {which}",
+                                               "ordinal=" + repr("all" if which == "all" else list(few))))))

@@ -32,6 +32,7 @@ from cfa_tool.data.kept_rows import KEPT_BY, row_naming, rows_listed
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.readers import sheet_read
 from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
 
 #: the columns of a halves file, in order
@@ -105,13 +106,14 @@ class HalfRows:
     def __str__(self) -> str:
         return self.text
 
-    def note(self) -> str:
-        """The note of a report: which rows were analysed."""
+    def note(self) -> Text:
+        """The note of a report: which rows were analysed (the option apart, note_parts.Command)."""
         return (f"Only the rows of the {self.name} half (seed {self.seed}) of {self.halves_file} are analysed: "
                 f"{self.rows} of the {self.split} rows split at random into two halves" + (
-                    f", those with an answer to every model variable ({self.with_gaps} "
-                    f"{'row' if self.with_gaps == 1 else 'rows'} with gaps left out before the split, as "
-                    f"{Option.INCOMPLETE_ROWS.given('listwise')} leaves them out)" if self.with_gaps else ""))
+                    Note((f", those with an answer to every model variable ({self.with_gaps} "
+                          f"{'row' if self.with_gaps == 1 else 'rows'} with gaps left out before the split",
+                          Command(f", as {Option.INCOMPLETE_ROWS.given('listwise')} leaves them out"), ")"))
+                    if self.with_gaps else ""))
 
     def in_words(self) -> str:
         """'the row fell in the confirmation half of two random halves (seed 17; listed in halves.csv)', after

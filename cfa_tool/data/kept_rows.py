@@ -9,6 +9,7 @@ from collections.abc import Mapping
 import pandas as pd
 
 from cfa_tool.errors import printable
+from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 
 #: the key of DataFrame.attrs that names the row filters a frame's rows were kept by (set by data.filters)
@@ -136,7 +137,7 @@ _FINISHED_VALUES = {"true": True, "1": True, "yes": True, "1.0": True, "false": 
                     "0.0": False}
 
 
-def unfinished_rows_note(frame: pd.DataFrame, source: str) -> str | None:
+def unfinished_rows_note(frame: pd.DataFrame, source: str) -> Note | None:
     """A note when a survey export's 'Finished' column (FINISHED_COLUMNS) marks some of the rows analysed as not
     finished: they are analysed with the answers they gave, and a row filter leaves them out (a new user had to
     decide alone: 69 unfinished, partly answered responses were fitted without a word).  None otherwise."""
@@ -150,6 +151,7 @@ def unfinished_rows_note(frame: pd.DataFrame, source: str) -> str | None:
         return None
     finished = next(str(v).strip() for v, ok in zip(values.dropna(), read) if ok)
     unfinished = int((~read.astype(bool)).sum())
-    return (f"{source}: the column '{printable(str(column))}' marks {unfinished} of the {len(frame)} rows as not "
-            f"finished: they are analysed with the answers they gave; to leave them out, "
-            f"{Option.KEEP.given(f'{column} = {finished}')}")
+    return Note((f"{source}: the column '{printable(str(column))}' marks {unfinished} of the {len(frame)} rows as not "
+                 f"finished: they are analysed with the answers they gave; to leave them out, ",
+                 Command(Option.KEEP.given(f"{column} = {finished}"),
+                         f"keep only the rows where {printable(str(column))} = {finished}")))

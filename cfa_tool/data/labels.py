@@ -14,6 +14,7 @@ from collections.abc import Iterable
 from typing import TYPE_CHECKING
 
 from cfa_tool.errors import printable
+from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
 
 if TYPE_CHECKING:
@@ -131,7 +132,7 @@ def _by_case(values) -> dict[str, list[tuple[str, int]]]:
     return by_fold
 
 
-def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "group", unit: str = "group") -> list[str]:
+def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "group", unit: str = "group") -> list[Text]:
     """Notes on how the labels of ``column`` were read: a column of codes read as their value labels (SPSS, Stata),
     and labels that differed only by spaces at their ends, invisible format characters or Unicode form and were read
     as one (:func:`label_text`), each raw text with its rows and the invisible characters named (U+200B ZERO WIDTH
@@ -203,7 +204,7 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
                      f"like no answer, yet {'was' if len(said) == 1 else 'were'} kept as "
                      f"{f'a {unit}' if len(said) == 1 else f'{unit}s'} of {'its' if len(said) == 1 else 'their'} own (words that say no "
                      f"answer are read as missing in item columns only); if such rows have no {unit}, leave them out "
-                     f"with a row filter such as {Option.KEEP.given(filter_text)}")
+                     f"with a row filter" + Note((Command(f" such as {Option.KEEP.given(filter_text)}"),)))
     return notes
 
 

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import DataError, ModelError, OptionError, character_names, printable
+from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 from cfa_tool.language.spec import Spec
 from cfa_tool.data.odd_values import code_like
@@ -229,6 +230,11 @@ def _summary_row_first(frame, spec: Spec, data_source: str, strays: set[int]) ->
         raise DataError(found[0].totals_refusal(data_source, frame))
 
 
+def _read_as_none(value: float) -> Note:
+    """Advice to read ``value`` as no answer, the option apart (note_parts.Command): a manuscript runs nothing."""
+    return Note((Command(f"give {Option.MISSING_CODES.given(f'{value:g}')}", f"read {value:g} as no answer"),))
+
+
 def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict | None = None,
                        values=None) -> list[str]:
     """Answers that look impossible without being refused, named first in every view (column, value, rows):
@@ -280,14 +286,14 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
                 out.append(f"{data_name}: '{x}' has the answer {v:g} ({listed(column == v)}), outside the scale "
                            f"{low:g} to {high:g} that the 'reversed' statement declares for the items of {factor}; "
                            f"so many of its answers lie outside that it is read as answered on another scale; if "
-                           f"{v:g} is a typing error or means 'no answer', give {Option.MISSING_CODES.given(f'{v:g}')}")
+                           f"{v:g} is a typing error or means 'no answer', " + _read_as_none(v))
             continue
         known = {float(k) for k in labels.get(x) or () if isinstance(k, (int, float))}
         if known:
             for v in sorted(set(column[answered].tolist()) - known):
                 out.append(f"{data_name}: '{x}' has the value {v:g} ({listed(column == v)}), which has no value "
                            f"label, while its other values are labelled; if it is a typing error or means 'no "
-                           f"answer', give {Option.MISSING_CODES.given(f'{v:g}')} (or correct it in a copy of the file)")
+                           f"answer', " + _read_as_none(v) + " (or correct it in a copy of the file)")
     return out
 
 

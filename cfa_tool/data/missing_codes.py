@@ -14,6 +14,7 @@ import pandas as pd
 
 from cfa_tool.errors import printable
 from cfa_tool.input_files import base_name
+from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 
 #: the columns a note names before it counts the rest
@@ -55,20 +56,23 @@ def codes_shown(codes) -> str:
 
 
 def missing_codes_note(source: str | Path, codes: Collection[float | str], read_as_none: list[tuple[str, int]],
-                       where: str = "") -> str:
+                       where: str = "") -> Note:
     """What --missing-codes (``codes``) did in the data file ``source``: how many cells of which columns
     (``read_as_none``: (column, cells) pairs) were read as no answer, or that no cell holds any of the codes, as a
     mistyped code would leave it.  ``where``: which cells were looked at when not those of numbers ('of the items
-    coded by an 'answers' statement'); ``codes`` may be words (--missing-codes 'Ne sait pas'), shown in quotes."""
+    coded by an 'answers' statement'); ``codes`` may be words (--missing-codes 'Ne sait pas'), shown in quotes.
+    The option apart (note_parts.Command): a manuscript says 'given as codes of no answer'."""
     given = codes_shown(codes)
     name = base_name(source)
+    with_option = Command(f" with {Option.MISSING_CODES}", " as codes of no answer")
     if not read_as_none:
-        return f"{name}: no cell {where or 'of numbers'} holds any of the codes given with {Option.MISSING_CODES} ({given})"
+        return Note((f"{name}: no cell {where or 'of numbers'} holds any of the codes given", with_option,
+                     f" ({given})"))
     total = sum(n for _, n in read_as_none)
     shown = ", ".join(f"{printable(str(column))} {n}" for column, n in read_as_none[:NAMED_COLUMNS]) + (
         f" and {len(read_as_none) - NAMED_COLUMNS} more column{'s' if len(read_as_none) - NAMED_COLUMNS != 1 else ''}" if len(read_as_none) > NAMED_COLUMNS else "")
-    return (f"{name}: {total} {'cell' if total == 1 else 'cells'} {where + ' ' if where else ''}holding a code given "
-            f"with {Option.MISSING_CODES} ({given}) {'was' if total == 1 else 'were'} read as no answer ({shown})")
+    return Note((f"{name}: {total} {'cell' if total == 1 else 'cells'} {where + ' ' if where else ''}holding a code "
+                 f"given", with_option, f" ({given}) {'was' if total == 1 else 'were'} read as no answer ({shown})"))
 
 
 def words_given(words: list[str]) -> str:
@@ -133,17 +137,18 @@ def _left_out(column: str, code: float, filters: Collection) -> bool:
                for f in filters)
 
 
-def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int]], filters: Collection = ()) -> str:
+def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int]], filters: Collection = ()) -> Note:
     """The note on codes given with --missing-codes that columns other than the items hold and keep as values, with
     a row filter that would leave those rows out when none given (``filters``) does already."""
     shown = "; ".join(f"'{printable(str(column))}' holds {code:g} in {cells} {'row' if cells == 1 else 'rows'}"
                       for column, code, cells in kept[:NAMED_COLUMNS])
     more = f" and {len(kept) - NAMED_COLUMNS} more" if len(kept) > NAMED_COLUMNS else ""
     open_ = [(column, code) for column, code, _ in kept if not _left_out(column, code, filters)]
-    advice = (f"; to leave those rows out, give a row filter such as "
-              f"{Option.KEEP.given(f'{printable(str(open_[0][0]))} != {open_[0][1]:g}')}" if open_ else "")
-    return (f"{base_name(source)}: {Option.MISSING_CODES} applies to the model's items; other columns keep such a value as "
-            f"it is ({shown}{more}){advice}")
+    kept_rows = f"{printable(str(open_[0][0]))} != {open_[0][1]:g}" if open_ else ""
+    advice = ("; to leave those rows out, ", Command(f"give a row filter such as {Option.KEEP.given(kept_rows)}",
+                                                      f"keep only the rows where {kept_rows}")) if open_ else ()
+    return Note((f"{base_name(source)}: ", Command(f"{Option.MISSING_CODES} applies", "the codes of no answer apply"),
+                 f" to the model's items; other columns keep such a value as it is ({shown}{more})") + advice)
 
 
 #: items and row numbers the caution of a code given for a labelled answer names before 'and N more'
@@ -173,22 +178,28 @@ class CodeOnAnswer:
         held = [(c, rows) for c, rows in held if rows]
         return replace(self, columns=tuple(c for c, _ in held), rows=tuple(r for _, r in held)) if held else None
 
-    def caution(self, source: str) -> str:
+    def caution(self, source: str) -> Note:
+        """The finding, the option apart (note_parts.Command): a manuscript says 'given as a code of no answer'."""
         cells = sum(len(r) for r in self.rows)
         rows = len(set().union(*self.rows))
         each = [f"{printable(str(c))} {len(r)}" for c, r in zip(self.columns, self.rows)]
         listed = ", ".join(each[:SHOWN]) + (f" and {len(each) - SHOWN} more" if len(each) > SHOWN else "")
         many = len(self.columns) != 1
-        return (f"{Option.MISSING_CODES.given(f'{self.value:g}')} read as no answer the code {self.value:g}, which "
-                f"{base_name(source)} labels '{printable(self.label)}', an answer between the other answers "
-                f"({self.scale[0]:g} to {self.scale[1]:g}) of {len(self.columns) if many else 'the'} "
-                f"item{'s' if many else ''} holding it: {cells} cell{'s' if cells != 1 else ''} ({listed}) in {rows} "
-                f"row{'s' if rows != 1 else ''} became gaps, analysed as missing answers, not as "
-                f"'{printable(self.label)}'.")
+        name = base_name(source)
+        return Note((
+            Command(f"{Option.MISSING_CODES.given(f'{self.value:g}')} read as no answer the code {self.value:g}, which "
+                    f"{name} labels", f"The code {self.value:g}, given as a code of no answer, was read as no answer; "
+                    f"{name} labels it"),
+            f" '{printable(self.label)}', an answer between the other answers "
+            f"({self.scale[0]:g} to {self.scale[1]:g}) of {len(self.columns) if many else 'the'} "
+            f"item{'s' if many else ''} holding it: {cells} cell{'s' if cells != 1 else ''} ({listed}) in {rows} "
+            f"row{'s' if rows != 1 else ''} became gaps, analysed as missing answers, not as "
+            f"'{printable(self.label)}'."))
 
-    def advice(self) -> str:
-        return (f"If '{printable(self.label)}' is an answer, leave {self.value:g} out of {Option.MISSING_CODES}; if "
-                f"these items' {self.value:g} means no answer, nothing.")
+    def advice(self) -> Note:
+        return Note((f"If '{printable(self.label)}' is an answer, leave {self.value:g} out of ",
+                     Command(f"{Option.MISSING_CODES}", "the codes of no answer"),
+                     f"; if these items' {self.value:g} means no answer, nothing."))
 
 
 def codes_on_answers(frame: pd.DataFrame, codes, value_labels: dict, items: Collection[str] | None,

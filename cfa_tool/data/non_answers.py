@@ -35,6 +35,7 @@ from cfa_tool.language.spec import answer_key
 from cfa_tool.errors import DataError, printable
 from cfa_tool.numbers import number
 from cfa_tool.input_files import DATA_FRAME, base_name
+from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
 
 #: phrases that say a value is not an answer (compared after :func:`_plain`): one vocabulary for labels and cells
@@ -245,17 +246,17 @@ class LabelledAnswer:
     columns: tuple[str, ...]
     cells: tuple[int, ...]
 
-    def note(self, source: str, given: tuple = ()) -> str:
+    def note(self, source: str, given: tuple = ()) -> Note:
         """The note: where, how many cells, and how to read the code as no answer (``given``: the codes the run
-        gives with --missing-codes already, which the advice keeps)."""
+        gives with --missing-codes already, which the advice keeps), the option apart (note_parts.Command)."""
         listed = ", ".join(f"{printable(c)} {n}" for c, n in zip(self.columns[:SHOWN], self.cells[:SHOWN]))
         more = f" and {_more(len(self.columns) - SHOWN, 'item')}" if len(self.columns) > SHOWN else ""
         total = sum(self.cells)
         codes = [f"{c:g}" for c in given if isinstance(c, (int, float))] + [f"{self.value:g}"]
-        return (f"{base_name(source)}: {self.value:g} '{printable(self.label)}' lies between other answers of the "
-                f"item{'s' if len(self.columns) != 1 else ''} and was analysed as an answer ({total} "
-                f"cell{'s' if total != 1 else ''}: {listed}{more}), though its label reads like no answer; to read it "
-                f"as no answer, give {Option.MISSING_CODES.given(','.join(codes))}")
+        return Note((f"{base_name(source)}: {self.value:g} '{printable(self.label)}' lies between other answers of "
+                     f"the item{'s' if len(self.columns) != 1 else ''} and was analysed as an answer ({total} "
+                     f"cell{'s' if total != 1 else ''}: {listed}{more}), though its label reads like no answer",
+                     Command(f"; to read it as no answer, give {Option.MISSING_CODES.given(','.join(codes))}")))
 
 
 def answers_labelled_like_none(frame: pd.DataFrame, value_labels: dict, skip: tuple = ()) -> tuple[LabelledAnswer, ...]:
@@ -331,9 +332,10 @@ class BeyondScale:
                      f"'{printable(self.label)}' ({cells} cells: {listed}), beyond their other labelled answers")
         return f"{where} ({self.scale[0]:g} to {self.scale[1]:g}), analysed as an answer: a code of no answer?"
 
-    def advice(self) -> str:
-        return (f"If {self.value:g} '{printable(self.label)}' is not an answer on the scale, give "
-                f"{Option.MISSING_CODES.given(f'{self.value:g}')}; if it is, nothing.")
+    def advice(self) -> Note:
+        return Note((f"If {self.value:g} '{printable(self.label)}' is not an answer on the scale, ",
+                     Command(f"give {Option.MISSING_CODES.given(f'{self.value:g}')}", "read it as no answer"),
+                     "; if it is, nothing."))
 
 
 def beyond_scale(frame: pd.DataFrame, names, value_labels: dict, rows: np.ndarray) -> tuple[BeyondScale, ...]:
@@ -555,7 +557,7 @@ def rows_lost(found: tuple[NonAnswer, ...], frame: pd.DataFrame, items: Iterable
 
 
 def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items: Iterable[str] | None, frame: pd.DataFrame,
-                       listwise: bool = False) -> tuple[str, str] | None:
+                       listwise: bool = False) -> tuple[str, Text] | None:
     """The one rule that makes values read as no answer (the data summary's note, :func:`non_answer_note`) a
     caution first in every view: when rows leave the analysis because of them (:func:`rows_lost`: ``listwise``
     deletion, or a row left with no answer to any item), the caution (one line) says how many rows and what was
@@ -568,5 +570,7 @@ def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items: Iterabl
            "no answer to any item was left in them")
     caution = (f"{lost} row{'s' if lost != 1 else ''} left the analysis because values read as no answer emptied "
                f"{'their cells' if lost != 1 else 'its cells'} ({why}). {said[0]}")
-    keep = f" To use the rows' other answers, leave out {Option.INCOMPLETE_ROWS.given('listwise')}." if listwise else ""
-    return caution, f"Nothing, if they are not answers. {said[1]}{keep}"
+    keep = (Note((" To use the rows' other answers, ", Command(f"leave out {Option.INCOMPLETE_ROWS.given('listwise')}",
+                                                               "fit them by full-information ML"), "."))
+            if listwise else "")
+    return caution, f"Nothing, if they are not answers. {said[1]}" + keep

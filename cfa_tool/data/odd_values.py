@@ -51,6 +51,7 @@ from cfa_tool.data.moments import column_dtypes, item_values, stored_column
 from cfa_tool.errors import printable
 from cfa_tool.input_files import base_name
 from cfa_tool.language.names import written_name
+from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 
 MIN_OTHERS = 10  # answers a judgement needs besides the value judged
@@ -177,21 +178,21 @@ class OddValues:
         return (f"{self._first_row()}, whose values equal the {which} of the other rows' answers in every item "
                 f"column it answers ({len(self.columns)}): perhaps a {'totals' if which == 'sums' else 'means'} row")
 
-    def advice(self) -> str:
+    def advice(self) -> Note:
+        """What to try, the option apart (note_parts.Command): a manuscript's reader runs nothing."""
+        value = _number(self.values[0]) if self.values else ""
+        code = Command(f"give {Option.MISSING_CODES.given(value)}", f"read {value} as no answer")
         if self.kind is OddKind.MISSING_CODE:
-            return (f"If {_number(self.values[0])} means 'no answer', give "
-                    f"{Option.MISSING_CODES.given(_number(self.values[0]))} "
-                    f"(or correct those answers in the file).")
+            return Note((f"If {value} means 'no answer', ", code, " (or correct those answers in the file)."))
         if self.kind is OddKind.OUTSIDE_SCALE:
             holder = "data frame" if self.naming is RowNaming.INDEX_LABEL else "file"
-            return (f"Check those answers: correct a typing error in a copy of the {holder}, or, if "
-                    f"{_number(self.values[0])} means 'no answer', give "
-                    f"{Option.MISSING_CODES.given(_number(self.values[0]))}.")
+            return Note((f"Check those answers: correct a typing error in a copy of the {holder}, or, if {value} "
+                         f"means 'no answer', ", code, "."))
         holder = "data frame" if self.naming is RowNaming.INDEX_LABEL else "file"
         if self.kind is OddKind.SUMMARY_BLOCK:
             return _block_advice(self, holder)
-        return (f"Delete {self._first_row()} from the {holder} (or leave it out with a row filter, "
-                f"{Option.KEEP}) if it holds no one's answers; otherwise check those answers.")
+        return Note((f"Delete {self._first_row()} from the {holder} (or leave it out with a row filter",
+                     Command(f", {Option.KEEP}"), ") if it holds no one's answers; otherwise check those answers."))
 
     def _rows_named(self) -> str:
         """'rows 302, 355 and 2 more', each row with its text line where it differs ('row 302 (text line 340)')."""
@@ -501,15 +502,15 @@ def _block_caution(odd: OddValues, name: str) -> str:
             f"respondent{'s' if count != 1 else ''}: a summary block under the data?")
 
 
-def _block_advice(odd: OddValues, holder: str) -> str:
+def _block_advice(odd: OddValues, holder: str) -> Note:
     labels = [label for label in odd.labels if label is not None]
     if len(labels) == len(odd.rows) and len({c for c, _ in labels}) == 1:
         keep = Option.KEEP.given([f"{printable(c)} != {printable(t)}" for c, t in labels])
     else:
         keep = str(Option.KEEP)
     them = "it" if len(odd.rows) == 1 else "them"
-    return (f"Delete {odd._rows_named()} from the {holder}, or leave {them} out with a row filter ({keep}); "
-            f"statistics of the answers are no respondent's answers.")
+    return Note((f"Delete {odd._rows_named()} from the {holder}, or leave {them} out with a row filter",
+                 Command(f" ({keep})"), "; statistics of the answers are no respondent's answers."))
 
 
 def _joined(items: list[str]) -> str:

@@ -32,6 +32,7 @@ from cfa_tool.data.non_answers import answers_labelled_like_none, declared_missi
     non_answer_note, run_words, says_no_answer, unused_run_words, written_non_answers
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
 from cfa_tool.errors import DataError, printable
+from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 from cfa_tool.input_files import base_name, check_input_path, input_bytes, line_count, utf16_text
 from cfa_tool.numbers import number
@@ -507,10 +508,12 @@ class HiddenRows:
                 f"(row{'s' if len(self.rows) != 1 else ''} {shown}){left} were analysed with the others, as the "
                 f"file holds them.")
 
-    def advice(self) -> str:
+    def advice(self) -> Note:
+        """What to try, the row filter apart (note_parts.Command): a manuscript's reader runs nothing."""
         keep = f" (here {Option.KEEP.given(printable(self.keep))})" if self.keep else ""
-        return (f"If the hidden rows are not to be analysed, leave them out with a row filter ({Option.KEEP}) on the "
-                f"column the workbook's filter uses{keep}, or delete them from a copy of the file.")
+        return Note(("If the hidden rows are not to be analysed, leave them out with a row filter",
+                     Command(f" ({Option.KEEP})"), " on the column the workbook's filter uses", Command(keep),
+                     ", or delete them from a copy of the file."))
 
     def to_dict(self) -> dict:
         return {"sheet": self.sheet, "rows": list(self.rows), "of": self.of, "filtered": self.filtered,
@@ -567,9 +570,10 @@ class OtherSheets:
         return (f"{name}: only the sheet '{printable(self.read)}' was analysed, and the workbook's {other} {listed} "
                 f"{'holds' if len(self.sheets) == 1 else 'hold'} columns named as every item of the model too.")
 
-    def advice(self) -> str:
-        return (f"If the data are split over the sheets, put their rows in one sheet (or one CSV file) in a copy of "
-                f"the workbook; to analyse another sheet, name it with {Option.SHEET}.")
+    def advice(self) -> Note:
+        return Note(("If the data are split over the sheets, put their rows in one sheet (or one CSV file) in a copy "
+                     "of the workbook; to analyse another sheet, ", Command(f"name it with {Option.SHEET}",
+                                                                            "analyse it by name"), "."))
 
     def to_dict(self) -> dict:
         return {"sheet_read": self.read, "other_sheets_with_items": list(self.sheets)}
@@ -741,17 +745,20 @@ def _filter_kept(ws, header: list, skipped: int) -> str | None:
     return f"{name} == {shown}" if name.isidentifier() else None
 
 
-def _sheet_note(path: Path, read: str, names: list[str], hidden: list[str], named: bool) -> str:
-    """Which sheet of a workbook of several was analysed, and which sheets the workbook hides."""
+def _sheet_note(path: Path, read: str, names: list[str], hidden: list[str], named: bool) -> Note:
+    """Which sheet of a workbook of several was analysed, and which sheets the workbook hides (the option that names
+    a sheet apart, note_parts.Command: a manuscript's reader runs nothing)."""
     others = [n for n in names if n != read]
     listed = ", ".join(f"'{printable(n)}'" + (" (hidden)" if n in hidden else "") for n in others)
     if named:
-        how = f"as named with {Option.SHEET}" + ("; the workbook hides this sheet" if read in hidden else "")
+        how: tuple = (Command(f"as named with {Option.SHEET}", "as named"),
+                      "; the workbook hides this sheet" if read in hidden else "")
     elif hidden and names.index(read) > 0:
-        how = f"the first sheet the workbook shows (hidden sheets are not read unless named with {Option.SHEET})"
+        how = ("the first sheet the workbook shows (hidden sheets are not read unless named",
+               Command(f" with {Option.SHEET}"), ")")
     else:
-        how = f"the first sheet; name another with {Option.SHEET}"
-    return f"{path}: the sheet '{printable(read)}' was analysed, {how}; the workbook also has {listed}"
+        how = ("the first sheet", Command(f"; name another with {Option.SHEET}"))
+    return Note((f"{path}: the sheet '{printable(read)}' was analysed, ", *how, f"; the workbook also has {listed}"))
 
 
 MERGED_HEADER_LOOK = 5  # rows under a header of merged cells looked at for the column names

@@ -12,6 +12,7 @@ from dataclasses import dataclass
 import pandas as pd
 
 from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 from cfa_tool.suggest import close_names
 
@@ -155,12 +156,13 @@ def names_in_file(renames: tuple[ColumnRename, ...], names) -> tuple[str, ...] |
     return tuple(old.get(str(n), n) for n in names)
 
 
-def rename_note(renames: tuple[ColumnRename, ...], source: str, option: Option = Option.RENAME) -> str:
-    """The note every report gives: "data.csv: column 'SL3r' read as 'SL3_r' (--rename SL3r=SL3_r)"."""
+def rename_note(renames: tuple[ColumnRename, ...], source: str, option: Option = Option.RENAME) -> Note:
+    """The note every report gives: "data.csv: column 'SL3r' read as 'SL3_r' (--rename SL3r=SL3_r)", the option
+    apart (note_parts.Command: a manuscript's reader runs nothing)."""
     several = len(renames) > 1
-    return (f"{source}: column{'s' if several else ''} "
-            + ", ".join(f"'{printable(r.old)}' read as '{printable(r.new)}'" for r in renames)
-            + f" ({option.given({r.old: r.new for r in renames})})")
+    return Note((f"{source}: column{'s' if several else ''} "
+                 + ", ".join(f"'{printable(r.old)}' read as '{printable(r.new)}'" for r in renames),
+                 Command(f" ({option.given({r.old: r.new for r in renames})})")))
 
 
 def rename_sentence(renames: tuple[ColumnRename, ...], source: str) -> str:

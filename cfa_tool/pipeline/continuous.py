@@ -39,7 +39,7 @@ from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
-from cfa_tool.note_parts import Command, Note
+from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.numerics.linalg import scaled_factor
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.options import Option
@@ -146,7 +146,7 @@ class Estimation:
     value: float
     converged: bool
     iterations: int
-    message: str
+    message: Text  # 'converged', or why not: words, or a Note whose option a manuscript leaves out
     # with missing-data helpers: the joint fit of items and helpers (estimation.auxiliary.AuxiliaryFit), of which
     # theta and value above are the model's part and the joint discrepancy; likelihood is then the model's alone
     auxiliary: AuxiliaryFit | None = None
@@ -257,9 +257,10 @@ def _estimate_with_helpers(spec: Spec, groups: list[tuple[str | None, SampleMome
                      hessian=likelihood.observed_hessian)
     iterations = first.iterations + found.iterations
     message = ("converged" if found.converged else
-               f"the fit with the missing-data helpers {', '.join(helpers)} did not converge in {iterations} iterations "
-               f"(the model without them did); the helpers may go with the items too closely (a helper that nearly "
-               f"repeats an item), or the iteration limit ({Option.MAX_ITERATIONS}) may be too low")
+               Note((f"the fit with the missing-data helpers {', '.join(helpers)} did not converge in {iterations} "
+                     f"iterations (the model without them did); the helpers may go with the items too closely (a "
+                     f"helper that nearly repeats an item), or the iteration limit",
+                     Command(f" ({Option.MAX_ITERATIONS})", f" ({options.max_iterations})"), " may be too low")))
     return Estimation(table, model, items, found.theta[: joint_model.q].copy(), found.value, found.converged,
                       iterations, message, AuxiliaryFit(helpers, likelihood, found.theta, tuple(items_saturated),
                                                         tuple(answered)))

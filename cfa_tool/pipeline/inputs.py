@@ -878,9 +878,10 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
                     f"{numbering} to an earlier row: {pairs}{more}. If they are copies (a file appended to itself, "
                     f"rows pasted twice), each is counted as another respondent, so N is too large, the standard "
                     f"errors too small and the chi-square too large.",
-                    f"delete the copies in a copy of the data file and analyse that, or leave them out with "
-                    f"{Option.KEEP} on a column that tells them apart{example}; if they are different respondents "
-                    f"who answered alike, nothing needs to change."),)
+                    Note(("delete the copies in a copy of the data file and analyse that, or leave them out with ",
+                          Command(f"{Option.KEEP}", "a row filter"), f" on a column that tells them apart",
+                          Command(example), "; if they are different respondents who answered alike, nothing needs "
+                          "to change."))),)
 
 
 SAME_ANSWER_ROWS_SHOWN = 10  # rows a caution about same-answer rows names before 'and N more'
@@ -955,9 +956,10 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
                     f"check {'this row' if one else 'these rows'} in the data; if {'it was' if one else 'they were'} "
                     f"not answered with care, " + (f"leave {'its' if one else 'their'} scores out of what follows." if
                                                    scored_only else
-                    f"fit again without {'it' if one else 'them'} (a row filter on an id column, "
-                    f"{option_in_both('--keep', 'keep=[...]')}; or deleting {'it' if one else 'them'} from a copy of the "
-                    f"file) and compare the results.")),)
+                    Note((f"fit again without {'it' if one else 'them'} (a row filter on an id column",
+                          Command(f", {option_in_both('--keep', 'keep=[...]')}"),
+                          f"; or deleting {'it' if one else 'them'} from a copy of the file) and compare the "
+                          f"results.")))),)
 
 
 def scale_ends_problems(frame: pd.DataFrame, spec: Spec) -> tuple:
@@ -1410,15 +1412,18 @@ def design_problems(design, free: int) -> tuple:
     caution = design.caution(free)
     if caution:  # the standard errors and tests themselves are in doubt
         problems += (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.clusters), caution,
-                             "read the p-values with caution, or fit without --cluster and say that rows are nested in "
-                             "clusters."),)
+                             Note(("read the p-values with caution, or fit without ",
+                                   Command(f"{Option.CLUSTER}", "the clusters"),
+                                   " and say that rows are nested in clusters."))),)
     counts = design.frequency_caution()
     if counts:  # N itself is in doubt: first
         problems = (Problem(ProblemKind.FREQUENCY_WEIGHTS_LARGE, (), float(design.sum_of_weights), counts,
-                            f"if they are expansion or other sampling weights, leave out "
-                            f"{Option.WEIGHT_KIND.given(WeightKind.FREQUENCY.value)}: weights are read as sampling "
-                            f"weights by default, rescaled to the rows, with sandwich standard errors; if every row "
-                            f"really stands for that many identical respondents, nothing needs to change."),) + problems
+                            Note(("if they are expansion or other sampling weights, ",
+                                  Command(f"leave out {Option.WEIGHT_KIND.given(WeightKind.FREQUENCY.value)}",
+                                          "fit again with them read as sampling weights"),
+                                  ": weights are read as sampling weights by default, rescaled to the rows, with "
+                                  "sandwich standard errors; if every row really stands for that many identical "
+                                  "respondents, nothing needs to change."))),) + problems
     uneven = design.weight_caution()
     if uneven:
         problems += (Problem(ProblemKind.SMALL_EFFECTIVE_SAMPLE, (), round(float(design.effective_n), 1), uneven,

@@ -39,6 +39,7 @@ from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
+from cfa_tool.note_parts import Text
 from cfa_tool.pipeline.continuous import FitOptions, PAIRWISE_INSTEAD, estimate_rows, listwise_line, listwise_problem
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.pipeline.results import DataSummary, EstimateRow, FitResult, GroupResult, fit_result
@@ -378,7 +379,7 @@ class OrdinalEstimation:
     value: float
     converged: bool
     iterations: int
-    message: str
+    message: Text  # 'converged', or why not (a Note whose option a manuscript leaves out)
 
     @property
     def statistic(self) -> float:

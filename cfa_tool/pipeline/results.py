@@ -18,6 +18,7 @@ from cfa_tool.data.kept_rows import RowNaming, rows_listed
 from cfa_tool.errors import EstimationError, check_rows_counted
 from cfa_tool.language.names import names_text
 from cfa_tool.method import FitMethod
+from cfa_tool.note_parts import Text
 from cfa_tool.numerics.plain import clean, clean_list, plain_array
 from cfa_tool.views import Presentable, scorer
 
@@ -381,7 +382,7 @@ class FitResult(Presentable):
     method: FitMethod  # the same, typed: what code reads
     converged: bool
     iterations: int
-    message: str
+    message: Text  # 'converged', or why not (a Note whose option a manuscript leaves out)
     n_obs: int
     data: DataSummary
     observed: tuple[str, ...]
@@ -581,7 +582,7 @@ def held_equal_entries(table) -> frozenset[tuple]:
                      if len(groups) > 1 for g in groups)
 
 
-def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, message: str, theta: np.ndarray | None,
+def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, message: Text, theta: np.ndarray | None,
                n_obs: int, data: DataSummary, observed: tuple[str, ...], latent: tuple[str, ...], fit: FitIndices | None,
                robust: RobustFit | None, estimates, modification_indices, groups, warnings, options,
                group_column: str | None = None, problems: tuple = (), parameter_covariance: np.ndarray | None = None,

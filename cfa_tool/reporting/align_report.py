@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from cfa_tool.data.groups import reference_words
 from cfa_tool.language.names import written_group
-from cfa_tool.note_parts import Text
+from cfa_tool.note_parts import Text, capitalised
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.numbers import num, p_value, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable, _table
@@ -62,8 +62,8 @@ def _fit_words(fit) -> str:
             f"SRMR {unit(f.srmr)}")
 
 
-def caution_lines(result) -> list[str]:
-    return [w[:1].upper() + w[1:] + "." for w in result.warnings]
+def caution_lines(result) -> list[Text]:
+    return [capitalised(w) + "." for w in result.warnings]
 
 
 def means_table(result, k: int) -> ReportTable:
@@ -219,8 +219,8 @@ def alignment_tables(result) -> list[ReportTable]:
     return out
 
 
-def notes(result) -> list[str]:
-    out = [n[:1].upper() + n[1:] + "." for n in result.notes] + list(result.configural.warnings)
+def notes(result) -> list[Text]:
+    out = [capitalised(n) + "." for n in result.notes] + list(result.configural.warnings)
     if result.check is None:
         out.append("The Monte Carlo check of the aligned means was not run (0 trials).")
     return out

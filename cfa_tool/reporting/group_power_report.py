@@ -8,6 +8,7 @@ import math
 from dataclasses import replace
 
 from cfa_tool.model.description import parameter_words
+from cfa_tool.note_parts import joined
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.numbers import num, unit, word_list
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, _table
@@ -117,8 +118,8 @@ def invariance_power_report(result) -> Report:
                                        d.value, d.reference_value] for d in result.population.differences])))
     line, population = population_parts(shared)
     tables.append(replace(population, title="Population values shared by the groups",
-                          note=f"{line} Intercepts and factor means are 0 unless a statement gives them. "
-                               f"{population.note}"))
+                          note=joined((line, "Intercepts and factor means are 0 unless a statement gives them.",
+                                       population.note))))
     cautions = [HIGH_STAKES_NOTE]
     if any(s.role is StepRole.AFTER_MISFIT for d in result.designs for s in d.steps):
         cautions.insert(0, AFTER_MISFIT_CAUTION)

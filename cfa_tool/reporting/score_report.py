@@ -6,7 +6,7 @@ from __future__ import annotations
 from dataclasses import replace
 
 from cfa_tool.reporting import tables as T
-from cfa_tool.note_parts import WORDS, Command, Note, Text, said
+from cfa_tool.note_parts import WORDS, Command, Note, Text, joined, said
 from cfa_tool.reporting.remedies import Remedy
 from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.options import Option
@@ -14,13 +14,14 @@ from cfa_tool.language.names import written_group
 from cfa_tool.reporting.numbers import num, unit, word_list
 from cfa_tool.reporting.paragraph import group_labels
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
-from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT, SAME_ANSWER_COLUMN, WHY_NOT_SCORED_COLUMN, factor_methods
+from cfa_tool.workflows.factor_scores import (ABOUT_THE_FIT, SAME_ANSWER_COLUMN, WHY_NOT_SCORED_COLUMN, NotScored,
+                                             factor_methods)
 from cfa_tool.scoring.methods import (DETERMINACY_CAUTION, INDIVIDUAL_DECISIONS, ITEM_METHODS, LINEAR_METHODS,
                                       ScoreMethod, Unscored)
 
 SCORES_CAUTION = (
     "Factor scores are estimates, not the factors themselves: with the same data, other equally valid scores exist.")
-def flagging_caution(result) -> str:
+def flagging_caution(result) -> Text:
     """What flagging people by their scores needs, beside the high-stakes caution (new user s15: a school
     psychologist flagging pupils for a follow-up talk found no word on cut scores or on comparing groups), with where
     the run's rows have their standard error.  The general source is the Standards for Educational and Psychological
@@ -29,19 +30,21 @@ def flagging_caution(result) -> str:
     return ("Flagging people by their scores (for a follow-up talk, a referral) needs a cut score set and validated "
             "for that purpose: a record of how it was chosen and of its sensitivity and specificity against an outside "
             "criterion. A score near the cut is uncertain: within about 1.96 times the row's standard error of the cut "
-            f"({_where_errors(result)}), a flag is not sure (a 95% band, common practice). Comparing people of "
+            "(" + _where_errors(result) + "), a flag is not sure (a 95% band, common practice). Comparing people of "
             "different groups (gender, grade) needs the measurement invariance across those groups tested first "
             "(Standards for Educational and Psychological Testing, AERA, APA & NCME 2014).")
 
 
-def _where_errors(result) -> str:
-    """Where the scores file has each row's standard error, or how to have it written."""
+def _where_errors(result) -> Text:
+    """Where the scores file has each row's standard error, or how to have it written (the option apart: a
+    manuscript's reader runs nothing)."""
     if ScoreMethod.EXPECTED_A_POSTERIORI in result.methods:
         return "its posterior standard deviation, in the file's _posterior_sd columns"
     sem = "an item sum's or mean's: its standard error of measurement"
     if result.standard_errors:
         return f"in the file's _se columns; {sem}, _sem"
-    return f"written with {Option.STANDARD_ERRORS}; {sem}"
+    return Note((Command(f"written with {Option.STANDARD_ERRORS}", "not written in this run's scores file"),
+                 f"; {sem}"))
 
 METHOD_LABELS = {ScoreMethod.REGRESSION: "regression", ScoreMethod.BARTLETT: "Bartlett",
                  ScoreMethod.CORRELATION_PRESERVING: "correlation-preserving",
@@ -233,7 +236,7 @@ def precision_table(result, k: int) -> ReportTable | None:
                   values=([c for c, _ in cols], values))
 
 
-def _left_empty_sentence(result, method: ScoreMethod) -> str:
+def _left_empty_sentence(result, method: ScoreMethod) -> Text:
     """What the precision table says of the cells of ``method`` left empty for rows that answered none of a
     factor's items (workflows.factor_scores, UnansweredFactor.LEAVE_EMPTY), with their count per factor in the
     whole file (the unscored table's count); '' when none was."""
@@ -241,9 +244,9 @@ def _left_empty_sentence(result, method: ScoreMethod) -> str:
     if counts is None or not any(counts):
         return ""
     several = " (all groups together)" if len(result.quality) > 1 else ""
-    return (f"Left empty, as asked ({Option.UNANSWERED_FACTORS.given(result.unanswered.value)}): the "
-            f"{METHOD_LABELS[method]} scores of rows that answered none of the factor's items, "
-            f"{_unscored_counts(result.factors, counts)}{several}; no figure here is about them. ")
+    return Note(("Left empty, as asked", Command(f" ({Option.UNANSWERED_FACTORS.given(result.unanswered.value)})"),
+                 f": the {METHOD_LABELS[method]} scores of rows that answered none of the factor's items, "
+                 f"{_unscored_counts(result.factors, counts)}{several}; no figure here is about them. "))
 
 
 def item_sum_precision_table(result, k: int) -> ReportTable | None:
@@ -290,15 +293,17 @@ def item_sum_precision_table(result, k: int) -> ReportTable | None:
                   note, values=([c for c, _ in cols], values))
 
 
-def _prorated_sentence(result, sums) -> str:
+def _prorated_sentence(result, sums) -> Text:
     """What the item-score precision table says of prorated scores: each row's own SEM is that of the sum of the
     items it answered, SD √(1 − ω) of their sum under the fitted model (Lord & Novick 1968; scoring.quality
     .answered_sum_sems), scaled as the score is; the range of the prorated rows' SEMs, per factor."""
     where = ("in the file's _sem columns" if result.standard_errors else
-             f"written to the file (_sem columns) with {Option.STANDARD_ERRORS}")
+             Note((Command(f"written to the file (_sem columns) with {Option.STANDARD_ERRORS}",
+                           "not written in this run's scores file"),)))
     said = (f"A prorated score rests on the items the row answered, and its own SEM is that of their sum, SD × "
             f"√(1 − ω) of that sum under the fitted model, scaled as the score is (times J/a for a sum prorated from a "
-            f"of J items, divided by a for a mean), as a rule larger than the figure above: each row's is {where}.")
+            f"of J items, divided by a for a mean), as a rule larger than the figure above: each row's is "
+            + where + ".")
     if sums.prorated_sem:
         said += " Prorated rows here: " + "; ".join(
             f"{f} {n} {'row' if n == 1 else 'rows'}, {METHOD_LABELS[m]} SEM "
@@ -359,7 +364,7 @@ def _listed_counts(factors, counts) -> str:
     return ", ".join(f"{f} {n}" for f, n in zip(factors, counts) if n)
 
 
-def item_sum_notes(result) -> list[str]:
+def item_sum_notes(result) -> list[Text]:
     """What the item sums and means are and how they were made, in every view: the missing-answers rule and how many
     rows were prorated or left empty, the items reversed and on which scale, items counted on several factors, and
     the factors without a sum."""
@@ -368,13 +373,14 @@ def item_sum_notes(result) -> list[str]:
     rule = result.item_sums[0].rule
     share = f"{rule.least_share:.0%}".replace(".0%", "%")
     written = word_list(METHOD_LABELS[m] for m in ITEM_METHODS if m in result.methods)
-    lines = [f"Item sums and means ({written}): each factor's own items, each reverse-keyed item reversed as lowest + "
-             f"highest answer - x, by the keys of the fit's reliability; a row that answered at least {share} of a "
-             f"factor's items gets the mean of its answered keyed items (the item mean), and that mean times the "
-             f"number of items (the item sum, prorated); a row that answered fewer gets empty cells ("
-             + ("the common-practice default, no single source; " if rule.default else "")
-             + f"set by {Option.LEAST_ANSWERED}). They are not factor scores: every item weighs the same, whatever "
-               f"its loading."]
+    lines: list[Text] = [Note((
+        f"Item sums and means ({written}): each factor's own items, each reverse-keyed item reversed as lowest + "
+        f"highest answer - x, by the keys of the fit's reliability; a row that answered at least {share} of a "
+        f"factor's items gets the mean of its answered keyed items (the item mean), and that mean times the "
+        f"number of items (the item sum, prorated); a row that answered fewer gets empty cells ("
+        + ("the common-practice default, no single source; " if rule.default else ""),
+        Command(f"set by {Option.LEAST_ANSWERED}", "a setting of the run"),
+        "). They are not factor scores: every item weighs the same, whatever its loading."))]
     one = next(m for m in ITEM_METHODS if m in result.methods)  # the sum and the mean leave the same cells empty
     few = next((c for r, m, c in result.unscored if r == Unscored.TOO_FEW_ITEMS_ANSWERED.value and m == one.value),
                (0,) * len(result.factors))
@@ -501,12 +507,24 @@ def share_words(share: float) -> str:
 
 def reason_words(result, reason: str) -> str:
     """Why a cell is empty in plain words: the item sums' reason names the share the run used ('answered fewer than
-    half of the factor's items (the least share, --least-answered 0.5)'; new user s15: the rule's own jargon)."""
+    half of the factor's items'; new user s15: the rule's own jargon); the option that sets it is in the table's
+    note (:func:`least_share_sentence`), which a manuscript says without it."""
+    not_scored = next((why for why in NotScored if why.reason == reason), None)
+    if not_scored is not None:
+        return not_scored.words  # a row filter's, a first data row's: the option the user gave needs no repeating
     if reason != Unscored.TOO_FEW_ITEMS_ANSWERED.value or not result.item_sums:
         return reason
+    return f"answered fewer than {share_words(result.item_sums[0].rule.least_share)} of the factor's items"
+
+
+def least_share_sentence(result) -> Note | None:
+    """The unscored table's sentence on the least share of its items a row must answer for a factor's item sum and
+    mean, with the option that sets it apart (note_parts.Command); None when no row was left empty for it."""
+    if not result.item_sums or not any(r == Unscored.TOO_FEW_ITEMS_ANSWERED.value for r, _, _ in result.unscored):
+        return None
     share = result.item_sums[0].rule.least_share
-    return (f"answered fewer than {share_words(share)} of the factor's items (the least share, "
-            f"{Option.LEAST_ANSWERED.given(share)})")
+    return Note((f"The least share of a factor's items a row must answer for its item sum and mean: "
+                 f"{share_words(share)}", Command(f" ({Option.LEAST_ANSWERED.given(share)})"), "."))
 
 
 def unscored_table(result) -> ReportTable | None:
@@ -523,8 +541,8 @@ def unscored_table(result) -> ReportTable | None:
               for (reason, _, counts), label in zip(result.unscored, labels)]
     return _table("unscored", "Rows without scores (empty cells), by reason",
                   [("Reason", "l"), ("Method: rows without a score", "l")], rows,
-                  "These rows stay in the file, in their place, with empty cells; a row without any score says "
-                  f"why in the column {WHY_NOT_SCORED_COLUMN}.",
+                  joined(("These rows stay in the file, in their place, with empty cells; a row without any score "
+                          f"says why in the column {WHY_NOT_SCORED_COLUMN}.", least_share_sentence(result))),
                   values=(["Reason", "Method", *result.factors], values))
 
 

@@ -12,7 +12,7 @@ from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST, MissingData, WeightKind
-from cfa_tool.note_parts import Note, TableReference, Text, read, said, saved
+from cfa_tool.note_parts import Command, Note, TableReference, Text, read, said, saved
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
@@ -157,9 +157,9 @@ def problem_table(result) -> ReportTable | None:
         return None
     problems = solution_first(result.problems)
     rows = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()),
-             "" if p.value is None else num(p.value), p.group or "", p.explanation, said(p.advice)] for p in problems]
+             "" if p.value is None else num(p.value), p.group or "", said(p.explanation), said(p.advice)] for p in problems]
     values = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()), p.value, p.group or "",
-               p.explanation, said(p.advice)] for p in problems]
+               said(p.explanation), said(p.advice)] for p in problems]
     columns = [("Problem", "l"), ("Makes it inadmissible", "l"), ("Parameters", "l"), ("Value", "r"), ("Group", "l"),
                ("Explanation", "l"), ("What to try", "l")]
     return _table("problems", notice.heading, columns, rows, values=([c for c, _ in columns], values))
@@ -1434,14 +1434,15 @@ def correlation_table(result, group: int = 0) -> ReportTable | None:
                         " ".join(said) or None)
 
 
-def matrices_left_out(result) -> str | None:
-    """Where the item matrices (correlations, residual correlations) are left out of every view, and why."""
+def matrices_left_out(result) -> Note | None:
+    """Where the item matrices (correlations, residual correlations) are left out of every view, and why (the
+    option that writes the JSON result apart: a manuscript's reader runs nothing)."""
     items = len(result.observed)
     if items <= MAX_MATRIX:
         return None
-    return (f"The correlations of the items and the residual correlations are not shown as tables: {items} items "
-            f"are more than the {MAX_MATRIX} a matrix stays readable with. The JSON result (--json) holds the "
-            f"residual correlations; the largest is named under the fit.")
+    return Note((f"The correlations of the items and the residual correlations are not shown as tables: {items} items "
+                 f"are more than the {MAX_MATRIX} a matrix stays readable with. The JSON result", Command(" (--json)"),
+                 " holds the residual correlations; the largest is named under the fit."))
 
 
 def terminal_matrix_left_out(table: ReportTable) -> str | None:
@@ -1507,9 +1508,10 @@ def local_fit_line(result) -> str | None:
     return f"Local fit: the largest residual correlation is between {a} and {b}: {unit(r, 2)}."
 
 
-def status_line(result) -> str:
-    status = f"converged in {result.iterations} iterations" if result.converged else f"DID NOT CONVERGE ({result.message})"
-    return f"Estimation: {result.estimator}, {status}"
+def status_line(result) -> Text:
+    status = (f"converged in {result.iterations} iterations" if result.converged else
+              "DID NOT CONVERGE (" + result.message + ")")
+    return f"Estimation: {result.estimator}, " + status
 
 
 # ---------------------------------------------------------------- exploratory blocks

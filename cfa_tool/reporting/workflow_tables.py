@@ -14,7 +14,7 @@ from cfa_tool.data.groups import reference_words
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
-from cfa_tool.note_parts import Command, Note, TableReference, Text
+from cfa_tool.note_parts import Command, Note, TableReference, Text, joined
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANGE_WHY, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
@@ -50,7 +50,7 @@ def _problem_lines(named_results) -> list[str]:
             for name, r in named_results if r.converged and not r.admissible]
 
 
-def _failed_lines(named_results) -> list[str]:
+def _failed_lines(named_results) -> list[Text]:
     """One line per model that could not be estimated, with the problems that say why first (fewer rows than free
     parameters, a group smaller than its model), as fit names them when it stops: problems first in every view."""
     lines = []
@@ -58,11 +58,11 @@ def _failed_lines(named_results) -> list[str]:
         if r.converged:
             continue
         failure = next((p for p in r.problems if p.kind in (ProblemKind.NOT_CONVERGED, ProblemKind.NOT_IDENTIFIED)), None)
-        advice = f" What to try: {failure.advice}" if failure is not None else ""
+        advice = " What to try: " + failure.advice if failure is not None else ""
         why = (r.message if failure is not None and failure.kind is ProblemKind.NOT_IDENTIFIED else
-               f"its estimation did not converge ({r.message})")
-        lines.append(f"{name} could not be estimated: {why}; nothing of it is a result, and no model is tested "
-                     f"against it.{advice}")
+               "its estimation did not converge (" + r.message + ")")
+        lines.append(f"{name} could not be estimated: " + why + "; nothing of it is a result, and no model is tested "
+                     "against it." + advice)
         lines += [f"{name}: " + (f"group {p.group}: " if p.group is not None else "") + p.line() for p in r.problems
                   if p.kind in (ProblemKind.SMALL_SAMPLE, ProblemKind.SMALL_GROUP)]
     return lines
@@ -518,14 +518,15 @@ def _declared_note(steps) -> str:
             f"steps marked partial hold every other equality of their level.")
 
 
-def _score_tests_mcar_note(result) -> list[str]:
+def _score_tests_mcar_note(result) -> list[Text]:
     """What the normal-theory score tests of the steps assume with full-information ML and rows with gaps, when the
     report shows some (InvarianceResult.score_tests_assume_mcar)."""
     shown = result.freed or any(not s.holds and s.culprits for s in result.steps)
     if not (shown and result.score_tests_assume_mcar):
         return []
-    return [f"With rows with gaps, the normal-theory score tests {mcar_score_tests()}; robust score tests "
-            f"({Option.ROBUST}) take the observed information, which holds when they are missing at random."]
+    return [Note((f"With rows with gaps, the normal-theory score tests {mcar_score_tests()}; robust score tests",
+                  Command(f" ({Option.ROBUST})"), " take the observed information, which holds when they are missing "
+                  "at random."))]
 
 
 def invariance_report(result) -> Report:
@@ -1023,21 +1024,21 @@ def power_report(result) -> Report:
                   tuple(notes), ("RMSEA values of close and not-close fit are conventions, not laws.",))
 
 
-def power_assumptions() -> str:
+def power_assumptions() -> Note:
     """What the RMSEA power of MacCallum, Browne & Sugawara (1996) assumes, what lowers it, and what power-simulation
     models instead (ordinal answers; not missing answers, a sampling design or skewed continuous answers), with the
     options as the caller writes them."""
     from cfa_tool.options import Option
 
-    return ("This power is that of the normal-theory likelihood-ratio test for independent, equally weighted rows "
+    return Note(("This power is that of the normal-theory likelihood-ratio test for independent, equally weighted rows "
             "answered in full by normally distributed data. A sampling design (clusters or uneven weights make the "
             "effective sample size smaller), missing answers and non-normal data lower it, and this plan models none "
             "of them: count on more rows than shown (with a design, common practice multiplies the N shown by the "
             "expected design effect). For answers on a few categories (4-point items, say), power-simulation "
-            "simulates ordinal answers, cut from normal latent responses at the thresholds of an earlier ordinal fit "
-            f"({Option.POPULATION_FROM.given('fit.json')}) or into equally likely categories "
-            f"({Option.CATEGORIES.given(4)}), and fits them as an ordinal fit does; it simulates no missing "
-            "answers, sampling design or skewed continuous answers either.")
+            "simulates ordinal answers, cut from normal latent responses at the thresholds of an earlier ordinal fit",
+            Command(f" ({Option.POPULATION_FROM.given('fit.json')})"), " or into equally likely categories",
+            Command(f" ({Option.CATEGORIES.given(4)})"), ", and fits them as an ordinal fit does; it simulates no "
+            "missing answers, sampling design or skewed continuous answers either."))
 
 
 POWER_ORDINAL = ("The model declares ordinal items, whose fits use the adjusted test of least squares on polychoric "
@@ -1072,7 +1073,7 @@ def _inadmissible_cautions(results) -> tuple[str, ...]:
     return (said,) if said else ()
 
 
-def not_carried_line(not_carried, power: bool = True) -> list[str]:
+def not_carried_line(not_carried, power: bool = True) -> list[Text]:
     """What an earlier fit's data had that simulated rows do not: said beside what was simulated (``power``: the
     report gives power and coverage figures of such samples; without it, simulated data only)."""
     if not not_carried:
@@ -1082,7 +1083,8 @@ def not_carried_line(not_carried, power: bool = True) -> list[str]:
     if power:
         return [f"{said}, so the figures are those of such a sample (with a design effect or missing answers, power "
                 f"is lower)."]
-    return [f"{said} ({Option.SIMULATED_MISSING} removes a share of the answers completely at random)."]
+    return [Note((said, Command(f" ({Option.SIMULATED_MISSING} removes a share of the answers completely at random)"),
+                  "."))]
 
 
 def few_replications(replications: int) -> tuple[str, ...]:
@@ -1133,7 +1135,7 @@ def _population_of(result) -> tuple[ReportTable, ...]:
     if getattr(result, "population", None) is None:
         return ()
     line, table = population_parts(result.population)
-    return (replace(table, note=f"{line} {table.note}"),)
+    return (replace(table, note=joined((line, table.note))),)
 
 
 def power_curve_report(curve) -> Report:
@@ -1218,7 +1220,7 @@ def _worded_lines(simulated) -> list[str]:
     return lines
 
 
-def population_parts(population) -> tuple[str, ReportTable]:
+def population_parts(population) -> tuple[Text, ReportTable]:
     """Where a population's values come from (a sentence) and the table of every value, fixed ones included: what
     simulate and power-simulation drew their samples from."""
     from cfa_tool.workflows.simulation import ValueSource
@@ -1226,8 +1228,9 @@ def population_parts(population) -> tuple[str, ReportTable]:
     entries = population.values()
     if population.fitted_from is not None:
         line = (f"Every value is an estimate of the earlier fit in {population.fitted_from}"
-                + (f" but the thresholds, which cut equally likely categories (as many as {Option.CATEGORIES} or the "
-                   f"'answers' statement gives)" if population.equal_categories else "") + "; the items' means are "
+                + (Note((" but the thresholds, which cut equally likely categories (as many as ",
+                         Command(f"{Option.CATEGORIES}", "asked for"), " or the 'answers' statement gives)"))
+                   if population.equal_categories else "") + "; the items' means are "
                 f"{population.means_from.value}"
                 + (", and its values are in standard-deviation units (a correlation matrix without standard "
                    "deviations)" if population.standard_units else "")
@@ -1274,8 +1277,9 @@ def check_report(found) -> Report:
 
     lines = found.summary().splitlines()
     rows = [[name, "100%" if share >= 1 else _percent_below_all(share)] for name, share in found.coverage.items()]
-    counted = ("A value that looks like no answer (named above) counts as an answer here, as the fit would count it; "
-               f"marked as missing ({Option.MISSING_CODES}, or an empty cell), it would not."
+    counted = (Note(("A value that looks like no answer (named above) counts as an answer here, as the fit would "
+                     "count it; marked as missing (", Command(f"{Option.MISSING_CODES}", "a code of no answer"),
+                     ", or an empty cell), it would not."))
                if any(p.kind is ProblemKind.VALUES_NOT_ANSWERS for p in found.problems) else None)
     table = _table("coverage", "Share of rows answering each model variable", [("Variable", "l"), ("Answered", "r")],
                    rows, counted, values=(["Variable", "Share answering"], [[k, v] for k, v in found.coverage.items()]))

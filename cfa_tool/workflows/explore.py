@@ -23,6 +23,7 @@ from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.assessment.admissibility import sample_size_problems
 from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Interface, Option, interface
 from cfa_tool.exploration import (CountNote, CountRule, Exploration, ExploreSettings, ExtractionMethod, RotationMethod,
                                   RotationSpec, explore_correlations, from_ordinal_moments, from_sample_moments)
@@ -406,7 +407,7 @@ def _largest_correlations(frame: pd.DataFrame, columns: list[str], items: list[s
     return out
 
 
-def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: tuple = ()) -> str:
+def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: tuple = ()) -> Text:
     """The columns left out because they hold text (answers written as words among them: 'yes'/'no'), named, with
     the way to explore them (new-user trial: six yes/no items left out without a word): an answers file
     (--answers); with one given, the first cell of each that is not among its words; columns of dates or times
@@ -423,21 +424,23 @@ def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: t
         general = next((c for c in codings if not c.items), None)
         unlisted = [printable(c) + (f" ('{printable(cell)}' in {row_of(frame, row)})" if cell is not None else "")
                     for c in text[:10] for cell, row in [_first_unlisted(frame[c], general)]]
-        said += (f" Left out as text holding none of the answers file's words ({Option.ANSWERS}): "
+        said += (Note((" Left out as text holding none of the answers file's words", Command(f" ({Option.ANSWERS})"),
+                       ": "))
                  + ", ".join(unlisted) + (f" and {len(text) - 10} more" if len(text) > 10 else "") + ".")
     elif text:
-        said += f" Left out as text (not numbers): {listed(text)}; {_answers_file_hint(frame, text)}."
+        said += f" Left out as text (not numbers): {listed(text)}; " + _answers_file_hint(frame, text) + "."
     return said
 
 
-def _answers_file_hint(frame: pd.DataFrame, text: list) -> str:
+def _answers_file_hint(frame: pd.DataFrame, text: list) -> Note:
     """How answers recorded as words are explored (an answers file), with the statement the words of the text
     columns ``text`` suggest when they come from a common scale (data.answer_scales.suggested_statement)."""
     from cfa_tool.data.answer_scales import suggested_statement
 
     statement = next((s for s in (suggested_statement(frame[c].to_numpy(dtype=object)) for c in text) if s), None)
-    return (f"answers recorded as words (yes/no, agree) are explored with an answers file "
-            f"({Option.ANSWERS.given('FILE')}) whose 'answers' statement gives each word its code" + (f", such as the line: {statement}" if statement else ""))
+    return Note(("answers recorded as words (yes/no, agree) are explored with an answers file",
+                 Command(f" ({Option.ANSWERS.given('FILE')})"), " whose 'answers' statement gives each word its code"
+                 + (f", such as the line: {statement}" if statement else "")))
 
 
 def _first_unlisted(column: pd.Series, coding) -> tuple[object, int | None]:
@@ -517,21 +520,22 @@ def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str
         raise OptionError(f"no column of {source} holds only the words of the answers file's statements "
                           f"({Option.ANSWERS}); name the items with {Option.ITEMS} to see which cells differ")
     said = f"every column of {source} that holds numbers" + (" or the words of the answers file" if worded else "")
-    note = (f"Items: {said} ({len(chosen)}), which {Option.ITEMS} can change."
+    name_them = Command(f" (name them in {Option.ITEMS} to explore them)")  # a manuscript's reader runs nothing
+    note = (Note((f"Items: {said} ({len(chosen)})", Command(f", which {Option.ITEMS} can change"), "."))
             + (f" Left out as row numbers or ids (every value a different whole number): "
                f"{', '.join(printable(c) for c in ids)}." if ids else "")
             + (f" Left out as codes of categories (every value has a value label of its own, as a "
                f"department's do; the items share their answer scale's labels): "
-               f"{', '.join(printable(c) for c in coded)} (name them in {Option.ITEMS} to explore them)."
+               + Note((f"{', '.join(printable(c) for c in coded)}", name_them, "."))
                if coded else "")
             + (" Left out by their names, as columns of the sampling design, ids, groups, the respondents' "
                "particulars or the survey's records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
-               + f" (name them in {Option.ITEMS} to explore them)." if roles else "")
+               + Note((name_them, ".")) if roles else "")
             + (f" Left out as groupings or records rather than answers (a few whole values, most of them above the "
                f"{scale[0]:g} to {scale[1]:g} that most columns hold, and no correlation of "
                f"{RELATED_TO_THE_ITEMS:.2f} or more with any item, as a grade or a year would be): "
                + ", ".join(f"{printable(c)} ({low:g} to {high:g})" for c, low, high in unlike)
-               + f" (name them in {Option.ITEMS} to explore them)." if unlike else "")
+               + Note((name_them, ".")) if unlike else "")
             + _text_columns_phrase(frame, numeric + worded, codings))
     return chosen, note, worded
 
@@ -551,7 +555,7 @@ def _refuse_too_few(chosen: tuple[str, ...], scan, codings: tuple) -> None:
                 and frame[c].notna().any()]
         if text:
             hint += "; " + _answers_file_hint(frame, text)
-    raise DataError(f"{scan.source}: {found}, and an exploratory factor analysis needs at least 3 items" + hint)
+    raise DataError(f"{scan.source}: {found}, and an exploratory factor analysis needs at least 3 items{hint}")
 
 
 def _refuse_too_few_named(chosen: tuple[str, ...]) -> None:

@@ -24,6 +24,7 @@ from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
 from cfa_tool.data.summary_stats import NotGiven
 from cfa_tool.errors import DataError, EstimationError, OptionError, printable
+from cfa_tool.note_parts import Command, Note
 from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.pipeline.results import FitResult, clean
@@ -52,7 +53,15 @@ class NotScored(Enum):
 
     @property
     def reason(self) -> str:
-        return _REASONS[self]
+        """The reason the scores file's table of empty cells and the JSON result give: its words, with the option
+        that made the line so on the command line ('left out by a row filter (--keep)')."""
+        words, option = _REASONS[self]
+        return f"{words} ({option.flag})" if option is not None else words
+
+    @property
+    def words(self) -> str:
+        """The reason without the option (a manuscript's reader runs nothing): 'left out by a row filter'."""
+        return _REASONS[self][0]
 
     @property
     def whole_line(self) -> bool:
@@ -60,12 +69,13 @@ class NotScored(Enum):
         return self is not NotScored.FACTOR_LEFT_EMPTY
 
 
-_REASONS = {NotScored.FILTERED: "left out by a row filter (--keep)", NotScored.BLANK: "a blank row of the file",
-            NotScored.ABOVE_ANSWERS: "a row above the first row of answers (--first-data-row)",
-            NotScored.NO_ANSWERS: Unscored.NO_ANSWERS.value, NotScored.NO_GROUP: "no value in the group column",
-            NotScored.UNKNOWN_GROUP: "a group the fit does not have",
-            NotScored.TOO_FEW_ANSWERS: "too few answers for any score asked for",
-            NotScored.FACTOR_LEFT_EMPTY: Unscored.LEFT_EMPTY.value}
+_REASONS: dict[NotScored, tuple[str, Option | None]] = {
+    NotScored.FILTERED: ("left out by a row filter", Option.KEEP), NotScored.BLANK: ("a blank row of the file", None),
+    NotScored.ABOVE_ANSWERS: ("a row above the first row of answers", Option.FIRST_DATA_ROW),
+    NotScored.NO_ANSWERS: (Unscored.NO_ANSWERS.value, None), NotScored.NO_GROUP: ("no value in the group column", None),
+    NotScored.UNKNOWN_GROUP: ("a group the fit does not have", None),
+    NotScored.TOO_FEW_ANSWERS: ("too few answers for any score asked for", None),
+    NotScored.FACTOR_LEFT_EMPTY: (Unscored.LEFT_EMPTY.value, None)}
 
 #: the reasons a whole row has no score that the scoring of each group does not count (its rows are not scored)
 _ROWS_LEFT_OUT = (NotScored.FILTERED, NotScored.NO_GROUP, NotScored.UNKNOWN_GROUP)
@@ -828,8 +838,9 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     extra = duplicate_note(ids, "id column" if id_column is not None else "row names", False) + _partly_answered(
         models[0].base if ordinal_items else models[0], answered, chosen, errors)
     if ids is not None and id_column is None:
-        extra.insert(0, f"The first column holds the row names of {source} (its first column, which has no name in "
-                        f"the header); give {Option.ID_COLUMN.given('COLUMN')} to name the rows by another column.")
+        extra.insert(0, Note((f"The first column holds the row names of {source} (its first column, which has no "
+                              f"name in the header)", Command(f"; give {Option.ID_COLUMN.given('COLUMN')} to name the "
+                                                              "rows by another column"), ".")))
     own = _without_own_answers(answered, values, chosen, factors, unanswered)
     if own:
         result = replace(result, problems=tuple(own) + tuple(result.problems))
@@ -856,8 +867,9 @@ def _with_repeated_ids(result, ids, id_column):
         return result
     return replace(result, problems=(Problem(
         ProblemKind.REPEATED_IDS_SCORED, (), None, said + ": a merge of the scores file by id would match them with "
-        "the wrong rows.", "give each row an id of its own in a copy of the data file, or name the rows by another "
-        f"column ({Option.ID_COLUMN.given('COLUMN')})."),) + tuple(result.problems))
+        "the wrong rows.", Note(("give each row an id of its own in a copy of the data file, or name the rows by "
+                                 "another column", Command(f" ({Option.ID_COLUMN.given('COLUMN')})"), "."))),)
+        + tuple(result.problems))
 
 
 def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group, chosen, ordinal: bool,
@@ -1711,16 +1723,18 @@ def _without_own_answers(answered: np.ndarray, values: dict, chosen, factors,
                 f"factors' items alone, {'is' if one else 'are'} left empty, as asked; {columns} "
                 f"mark{'s' if len(counted) == 1 else ''} {'the row' if one else 'the rows'} with 0, and "
                 f"{WHY_NOT_SCORED_COLUMN} says '{NotScored.FACTOR_LEFT_EMPTY.value}'.")
-        advice = ("report the other scores of these rows only; to write the prediction from the other answers instead "
-                  "(for research, not for the person), give "
-                  f"{Option.UNANSWERED_FACTORS.given(UnansweredFactor.PREDICT.value)}.")
+        advice = Note(("report the other scores of these rows only; to write the prediction from the other answers "
+                       "instead (for research, not for the person), ",
+                       Command(f"give {Option.UNANSWERED_FACTORS.given(UnansweredFactor.PREDICT.value)}",
+                               "score them again asking for it"), "."))
         return (Problem(ProblemKind.FACTOR_SCORES_LEFT_EMPTY, (), None, text, advice),)
     said = [f"{n} {'row' if n == 1 else 'rows'} answered none of the items of {name}, and "
             f"{'its' if n == 1 else 'their'} score of {name} rests on the other factors' items alone (through the "
             f"factors' correlations); the column {answered_column(name)} marks {'it' if n == 1 else 'them'} with 0"
             for name, n in counted]
-    advice = ("treat such a score as a prediction from the row's other answers, not as a measure of the factor for "
-              "that person: leave it out of any report to the person (give "
-              f"{Option.UNANSWERED_FACTORS.given(UnansweredFactor.LEAVE_EMPTY.value)} to leave such cells empty), or "
-              "score the rows' own items only (item sums or means leave it empty).")
+    advice = Note(("treat such a score as a prediction from the row's other answers, not as a measure of the factor "
+                   "for that person: leave it out of any report to the person",
+                   Command(f" (give {Option.UNANSWERED_FACTORS.given(UnansweredFactor.LEAVE_EMPTY.value)} to leave "
+                           "such cells empty)", " (the scores can be written with such cells empty)"),
+                   ", or score the rows' own items only (item sums or means leave it empty)."))
     return (Problem(ProblemKind.SCORED_WITHOUT_OWN_ANSWERS, (), None, "; ".join(said) + ".", advice),)

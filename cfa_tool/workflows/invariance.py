@@ -435,14 +435,14 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                                              analysed, missing_codes), loaded)
             if not result.converged:
                 why = next((p for p in result.problems if p.kind is not ProblemKind.SMALL_GROUP), None)
-                reason = (f" ({result.message}). {why.advice}" if why is not None else f" ({result.message})")
+                reason = " (" + result.message + (")." + " " + why.advice if why is not None else ")")
                 if not steps:  # nothing to report without a configural model; a group too small for it first
                     small = tuple(f"Group {written_group(p.group, labels)}: {p.explanation}" for p in result.problems
                                   if p.kind is ProblemKind.SMALL_GROUP)
-                    raise EstimationError(" ".join(data_cautions + small
-                                                   + (f"the configural model did not converge{reason}",)))
+                    raise EstimationError(" ".join(map(str, data_cautions + small
+                                                       + ("the configural model did not converge" + reason,))))
                 steps.append(InvarianceStep(level, result, None, False, ()))
-                stopped = (f"the {level} model did not converge{reason}; the ladder stops there"
+                stopped = (f"the {level} model did not converge" + reason + "; the ladder stops there"
                            + (", and the partial search could not run at this step" if partial != "none" else ""))
                 left_out, left_notes = _rows_left_out(steps[0].result)
                 return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,

@@ -184,7 +184,7 @@ def test_an_id_column_is_not_taken_for_an_item(hs_data):
 
     result = explore(hs_data, factors=3)
     assert "id" not in result.to_dict()["items"]
-    note = next(n for n in result.notes if n.startswith("Items:"))
+    note = next(str(n) for n in result.notes if str(n).startswith("Items:"))
     assert "Left out as row numbers or ids (every value a different whole number): id." in note
 
 
@@ -199,7 +199,7 @@ def test_design_id_and_group_columns_are_not_taken_for_items_and_are_named(hs_da
     result = explore(data[[f"x{i}" for i in range(1, 10)] + ["final_weight", "psu", "grp"]], factors=3,
                      replications=10)
     assert result.to_dict()["items"] == [f"x{i}" for i in range(1, 10)]
-    note = next(n for n in result.notes if n.startswith("Items:"))
+    note = next(str(n) for n in result.notes if str(n).startswith("Items:"))
     assert ("Left out by their names, as columns of the sampling design, ids, groups, the respondents' particulars or "
             "the survey's records rather than answers: final_weight (weights), psu (clusters), grp (groups) (name them "
             "in items=... to explore them).") in note

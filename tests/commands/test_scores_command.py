@@ -512,9 +512,9 @@ def test_the_high_stakes_caution_says_what_flagging_people_needs(hs_data):
     assert round(float(norm.ppf(0.975)), 2) == 1.96
     result = cfa_tool.scores(THREE_FACTORS, hs_data, methods="regression", id_column="id")
     report = scores_report(result)
-    caution = flagging_caution(result)
+    caution = str(flagging_caution(result))
     # one place: beside the high-stakes caution, last in every view
-    assert report.cautions[-2:] == (HIGH_STAKES_NOTE, caution)
+    assert report.cautions[-2:] == (HIGH_STAKES_NOTE, flagging_caution(result))
     for words in ("cut score set and validated", "sensitivity and specificity against an outside criterion",
                   "1.96 times the row's standard error", "written with standard_errors=True", "common practice",
                   "measurement invariance", "AERA, APA & NCME 2014"):

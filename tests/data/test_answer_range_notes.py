@@ -47,7 +47,7 @@ def test_a_partner_answered_mostly_outside_the_declared_scale_is_read_as_on_anot
     doubled = answers.assign(a2=answers["a2"] * 2)
     assert ((doubled["a2"] < 1) | (doubled["a2"] > 5)).mean() > 0.2
     result = cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", doubled)
-    named = [w for w in result.warnings if "outside the scale 1 to 5" in w]
+    named = [str(w) for w in result.warnings if "outside the scale 1 to 5" in w]
     assert [w.split(" (")[0] for w in named] == [f"<data frame>: 'a2' has the answer {v}" for v in (0, 6, 8, 10)]
     assert all("read as answered on another scale" in w for w in named)
     assert named[0].endswith("if 0 is a typing error or means 'no answer', give missing_codes=[0]")  # the keyword: a Python call
@@ -60,7 +60,7 @@ def test_values_without_a_value_label_are_named(tmp_path, answers):
     path = tmp_path / "labelled.sav"
     pyreadstat.write_sav(answers, str(path), variable_value_labels={c: scale for c in ITEMS})
     result = cfa_tool.fit(MODEL, path)
-    named = [w for w in result.warnings if "has no value label" in w]
+    named = [str(w) for w in result.warnings if "has no value label" in w]
     assert named == [
         "labelled.sav: 'a2' has the value 0 (rows 10, 20), which has no value label, while its other values are "
         "labelled; if it is a typing error or means 'no answer', give missing_codes=[0] (or correct it in a copy of "
@@ -90,7 +90,7 @@ def test_declared_scale_and_value_labels_together_name_each_answer_once(tmp_path
     path = tmp_path / "labelled.sav"
     pyreadstat.write_sav(doubled, str(path), variable_value_labels={c: scale for c in ITEMS})
     result = cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", path)
-    named = [w for w in result.warnings if "outside the scale" in w or "has no value label" in w]
+    named = [str(w) for w in result.warnings if "outside the scale" in w or "has no value label" in w]
     assert [w.split(" (")[0] for w in named] == [
         *(f"labelled.sav: 'a2' has the answer {v}" for v in (0, 6, 8, 10)), "labelled.sav: 'b3' has the value 9"]
     plain = cfa_tool.fit(MODEL, answers)
@@ -109,7 +109,7 @@ def test_items_that_are_not_all_numbers_are_judged_one_by_one(answers):
     mixed = doubled.astype({"a3": object})
     mixed.loc[0, "a3"] = "n/a"
     notes = answer_range_notes(spec, mixed, "<data frame>")
-    assert [n.split(" (")[0] for n in notes] == [f"<data frame>: 'a2' has the answer {v}" for v in (0, 6, 8, 10)]
+    assert [str(n).split(" (")[0] for n in notes] == [f"<data frame>: 'a2' has the answer {v}" for v in (0, 6, 8, 10)]
     assert notes == answer_range_notes(spec, doubled, "<data frame>", values=doubled[ITEMS].to_numpy(dtype=float))
 
 

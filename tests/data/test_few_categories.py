@@ -27,7 +27,7 @@ def test_items_of_four_categories_are_named_with_the_remedy():
     data.loc[::7, "y2"] = np.nan  # gaps do not count as a category
     assert all(len(np.unique(data[c].dropna())) == 4 for c in data)
     result = cfa_tool.fit(MODEL, data)
-    (note,) = [w for w in result.warnings if "answer categories" in w]
+    (note,) = [str(w) for w in result.warnings if "answer categories" in w]
     assert note.startswith("4 of the 4 items (y1, y2, y3, y4) have at most 4 answer categories") and \
         note.endswith("--ordinal all; from Python, ordinal='all'")  # the option and the keyword, for either reader
     assert not [w for w in cfa_tool.fit(MODEL, data, ordinal="all").warnings if "answer categories" in w]
@@ -94,7 +94,7 @@ def test_the_suggested_option_names_items_as_the_option_reads_them(tmp_path):
     data = pd.DataFrame({x: np.digitize(0.8 * f + rng.normal(size=400) * 0.6, [-1, 0, 1]) + 1.0 for x in names})
     data["e"] = 0.8 * f + rng.normal(size=400) * 0.6
     note = few_category_note(few_category_items(data.to_numpy(), tuple(data.columns)), tuple(data.columns))
-    suggested = shlex.split(note.split("--ordinal ", 1)[1].split("; from Python, ", 1)[0])[0]
+    suggested = shlex.split(str(note).split("--ordinal ", 1)[1].split("; from Python, ", 1)[0])[0]
     assert suggested == '"I could find a seat, most days",b,c'
     from cfa_tool.cli import main
 

@@ -69,7 +69,7 @@ def test_a_midpoint_whose_label_reads_like_no_answer_is_analysed_with_a_note(tmp
         result = cfa_tool.fit(model, _sav(tmp_path, data, items, middle))
         assert result.fit.chi_square == pytest.approx(plain.fit.chi_square, rel=1e-9)
         assert result.n_obs == plain.n_obs
-        [note] = [n for n in result.warnings if "lies between other answers" in n]
+        [note] = [str(n) for n in result.warnings if "lies between other answers" in n]
         assert note.startswith(f"riders.sav: 3 '{middle}' lies between other answers of the items and was analysed "
                                f"as an answer ({threes} cells: on_time {int((data.on_time == 3).sum())}, ")
         assert note.endswith("though its label reads like no answer; to read it as no answer, give missing_codes=[3]")
@@ -92,11 +92,11 @@ def test_a_missing_code_on_a_labelled_answer_is_a_caution_first(tmp_path, rider)
     threes = data[items] == 3
     cells, rows = int(threes.sum().sum()), int(threes.any(axis=1).sum())
     assert (cells, rows) == (2250, 475)  # counted by pandas from the CSV file
-    assert first.explanation.startswith(
+    assert str(first.explanation).startswith(
         "missing_codes=[3] read as no answer the code 3, which riders.sav labels 'Neutral', an answer between the "
         f"other answers (1 to 5) of 12 items holding it: {cells} cells (on_time {int(threes.on_time.sum())}, ")
     assert f") in {rows} rows became gaps" in first.explanation
-    assert first.advice.startswith("If 'Neutral' is an answer, leave 3 out of missing_codes")
+    assert str(first.advice).startswith("If 'Neutral' is an answer, leave 3 out of missing_codes")
     # after a row filter, the cells and rows of the rows kept
     north = data.district == "north"
     kept = cfa_tool.fit(model, path, missing_codes=[3], keep=["district = north"])

@@ -72,5 +72,5 @@ def test_the_suggested_row_filter_is_written_as_the_caller_writes_options(answer
     assert main(["check", str(model), "--data", str(path), "--group-column", "grade", "--missing-codes", "9"]) == 0
     said = capsys.readouterr().out
     assert 'give a row filter such as --keep "grade != 9"' in " ".join(said.split())
-    notes = " ".join(cfa_tool.check(MODEL, path, group="grade", missing_codes=[9]).notes)
+    notes = " ".join(map(str, cfa_tool.check(MODEL, path, group="grade", missing_codes=[9]).notes))
     assert "give a row filter such as keep=['grade != 9']" in notes and "--keep" not in notes

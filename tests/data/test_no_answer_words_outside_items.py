@@ -45,7 +45,7 @@ def test_a_group_named_like_no_answer_keeps_its_rows_and_is_named(tmp_path, answ
     assert not [p for p in checked.problems if p.kind is ProblemKind.VALUES_READ_AS_MISSING]  # no row lost: a note
     assert any(n.endswith("'Not applicable' (1 cell: c2 1). To analyse one as an answer, write the answer's number in "
                           "the cell, in a copy of the file") for n in checked.notes)
-    said = [n for n in checked.notes if "read like no answer" in n]
+    said = [str(n) for n in checked.notes if "read like no answer" in n]
     assert said == ["in the group column 'line', 'Not applicable' (100 rows) and 'Unsure' (100 rows) read like no "
                     "answer, yet were kept as groups of their own (words that say no answer are read as missing in "
                     "item columns only); if such rows have no group, leave them out with a row filter such as "

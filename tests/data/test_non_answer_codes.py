@@ -252,11 +252,11 @@ def test_missing_codes_say_how_many_cells_they_read_as_no_answer(tmp_path):
     path = tmp_path / "coded.csv"
     data.to_csv(path, index=False)
     result = cfa_tool.fit("factor f: a1, a2, a3, a4\n", path, missing_codes=[-9, 99])
-    said = [w for w in result.warnings if "missing_codes=" in w]  # the keyword: a Python call
+    said = [str(w) for w in result.warnings if "missing_codes=" in str(w)]  # the keyword: a Python call
     assert said == ["coded.csv: 3 cells holding a code given with missing_codes=... (-9, 99) were read as no answer "
                     "(a1 2, a3 1)"]
     none = cfa_tool.fit("factor f: a1, a2, a3, a4\n", path, missing_codes=[-99])
-    assert "coded.csv: no cell of numbers holds any of the codes given with missing_codes=... (-99)" in none.warnings
+    assert "coded.csv: no cell of numbers holds any of the codes given with missing_codes=... (-99)" in map(str, none.warnings)
 
 
 def test_not_sure_between_the_answers_is_an_answer_and_beyond_them_is_none(tmp_path, answers):
@@ -297,4 +297,4 @@ def test_a_labelled_code_beyond_the_scale_of_many_items_is_one_caution_naming_th
     assert named[0].explanation == (
         "4 items of riders.sav hold the code 9 labelled 'Other' (7 cells: c1 2, c3 1, s1 3, s2 1), beyond their other "
         "labelled answers (0 to 3), analysed as an answer: a code of no answer?")
-    assert named[0].advice.startswith("If 9 'Other' is not an answer on the scale, give missing_codes=[9]")
+    assert str(named[0].advice).startswith("If 9 'Other' is not an answer on the scale, give missing_codes=[9]")

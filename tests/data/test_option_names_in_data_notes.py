@@ -23,7 +23,7 @@ def _with_code(tmp_path):
 def test_missing_code_advice_and_notes_name_the_keyword_in_python(tmp_path):
     frame, _ = _with_code(tmp_path)
     result = cfa_tool.fit(MODEL, frame, missing_codes=[77])
-    said = " ".join([p.explanation + " " + p.advice for p in result.problems] + list(map(str, result.warnings)))
+    said = " ".join([f"{p.explanation} {p.advice}" for p in result.problems] + list(map(str, result.warnings)))
     assert "missing_codes=[-99]" in said  # the odd value's advice
     assert "codes given with missing_codes=" in said  # the note that no cell holds 77
     assert "--missing-codes" not in said

@@ -71,7 +71,7 @@ def test_explore_leaves_out_a_constant_column_and_platform_records(riders, tmp_p
     data.to_csv(path, index=False)
     result = cfa_tool.explore(str(path), factors=2, replications=5)
     assert list(result.items) == list(riders.columns)
-    note = next(n for n in result.notes if n.startswith("Items:"))
+    note = next(str(n) for n in result.notes if str(n).startswith("Items:"))
     assert "Left out as constant (one value in every row, which says nothing of the other answers): form." in note
     assert "Progress (survey records)" in note and "Duration (in seconds) (survey records)" in note
     assert "Finished (survey records)" in note

@@ -123,7 +123,7 @@ def test_explore_on_too_few_rows_says_so_first(hs_data):
     assert "Bentler & Chou 1987" in few.problems()[0] and "a convention, not a law" in few.problems()[0]
     some = cfa_tool.explore(hs_data[list(ITEMS)].iloc[:60], factors=3)  # 60 rows: at least 33, fewer than 5 * 33
     assert not any("free parameters" in p for p in some.problems())
-    assert any(n.startswith("60 rows for the 33 free parameters of the model, fewer than 5 per parameter")
+    assert any(str(n).startswith("60 rows for the 33 free parameters of the model, fewer than 5 per parameter")
                for n in some.notes), some.notes
     full = cfa_tool.explore(hs_data[list(ITEMS)], factors=3)  # 301 rows: more than 5 * 33
     assert not any("free parameters" in p for p in full.problems() + list(full.notes))

@@ -18,7 +18,7 @@ RIDER = resource_dir("demo") / "rider_survey.csv"
 
 
 def _item_note(notes) -> str:
-    return next(n for n in notes if n.startswith("Items: "))
+    return next(str(n) for n in notes if str(n).startswith("Items: "))
 
 
 def test_the_note_on_the_items_chosen_by_default_names_the_keyword_from_python():

@@ -327,7 +327,7 @@ def test_few_clusters_bring_their_caution_to_compare_and_invariance_first(hs_dat
     ladder = invariance(THREE_FACTORS, data, "school", cluster="unit")
     report = invariance_report(ladder)
     text = report_text(report)
-    assert report.notice.lines[0].startswith(
+    assert str(report.notice.lines[0]).startswith(
         "The configural model (the model with the most free parameters; the metric model, the scalar model, and the "
         "strict model too): Only 12 clusters in 'unit', no more than the 60 free parameters")  # first: before verdicts
     assert text.index("Only 12 clusters") < text.index("Measurement invariance")

@@ -32,7 +32,7 @@ def test_a_group_smaller_than_its_model_is_named_first(three_schools):
     # after the problems that make the solution not admissible, before every other caution
     first = [p for p in result.problems if p.kind.inadmissible]
     assert result.problems[len(first)] is small[0]
-    assert T.problem_notice(result).lines[len(first)].startswith('Group "Annex": 28 rows')
+    assert str(T.problem_notice(result).lines[len(first)]).startswith('Group "Annex": 28 rows')
     # groups of 145 and 128 rows get no caution, nor does anything without groups
     assert not any(p.kind is ProblemKind.SMALL_GROUP for p in cfa_tool.fit(THREE_FACTORS, three_schools).problems)
 

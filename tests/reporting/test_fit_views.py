@@ -194,7 +194,7 @@ def test_a_matrix_of_more_items_than_a_terminal_shows_is_in_the_files_and_said_i
     assert not report.notes  # not left out of the files
     # beyond MAX_MATRIX items no view shows the matrices, and the report says so and where the values are
     wide = type("Wide", (), {"observed": tuple(f"q{k}" for k in range(T.MAX_MATRIX + 1))})()
-    assert T.matrices_left_out(wide).startswith(f"The correlations of the items and the residual correlations are not "
+    assert str(T.matrices_left_out(wide)).startswith(f"The correlations of the items and the residual correlations are not "
                                                 f"shown as tables: {T.MAX_MATRIX + 1} items")
     assert T.matrices_left_out(result) is None
 

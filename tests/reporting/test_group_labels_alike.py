@@ -56,7 +56,7 @@ def test_the_small_group_caution_and_the_paper_word_the_same_facts():
     [small] = [p for p in result.problems if p.kind is ProblemKind.SMALL_GROUP]
     assert small.rows_per_parameter == RowsPerParameter(15, 19, "north")  # 19 by hand (module docstring)
     assert small.explanation.startswith("15 rows for the 19 free parameters of this group's model")
-    assert any(line.startswith('Group "north": 15 rows for the 19 free parameters')
+    assert any(str(line).startswith('Group "north": 15 rows for the 19 free parameters')
                for line in problem_notice(result).lines)
     text = " ".join(methods_paragraph(result).split())
     assert ('Group "north" had 15 rows for the 19 free parameters of its model, so its estimates, and every '

@@ -192,7 +192,7 @@ def test_an_item_on_two_factors_counts_in_both_sums_and_the_report_says_so():
     np.testing.assert_allclose(result.table["visual_item_sum"], data[["x1", "x2", "x3", "x9"]].sum(axis=1))
     np.testing.assert_allclose(result.table["speed_item_sum"], data[["x7", "x8", "x9"]].sum(axis=1))
     assert result.item_sums[0].shared == (("x9", ("visual", "speed")),)
-    notes = " ".join(scores_report(result).notes)
+    notes = " ".join(map(str, scores_report(result).notes))
     assert "Items counted in the item sum of each factor they load on: x9 (visual, speed)" in notes
 
 

@@ -131,9 +131,9 @@ def test_cells_read_as_no_answer_are_said_in_one_shape_by_the_reader_and_the_cod
     # (the keyword as a Python call writes it: the notes name the option from the one vocabulary of options)
     listed = "(q1 1, q2 1, q3 1, q4 1, q5 1, q6 1, q7 1, q8 1 and 2 more columns)"
     assert ("numbers.csv: 10 cells holding a code given with missing_codes=... (-99) were read as no answer "
-            + listed) in read.warnings
+            + listed) in map(str, read.warnings)
     assert ("words.csv: 10 cells of the items coded by an 'answers' statement holding a code given with "
-            "missing_codes=... (-99) were read as no answer " + listed) in coded.warnings
+            "missing_codes=... (-99) were read as no answer " + listed) in map(str, coded.warnings)
 
 
 def test_simulate_writes_the_statements_words_which_read_back_through_it(tmp_path):

@@ -454,7 +454,7 @@ def test_the_power_report_says_what_the_plan_assumes_and_what_ordinal_items_chan
     from cfa_tool.reporting.workflow_tables import POWER_ORDINAL, power_assumptions
 
     with on_command_line():
-        POWER_ASSUMES = power_assumptions()
+        POWER_ASSUMES = str(power_assumptions())
 
     model = tmp_path / "m.cfa"
     model.write_text("factor f: a, b, c, d\nordinal a, b, c, d\n")
