@@ -524,8 +524,8 @@ def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str
     note = (Note((f"Items: {said} ({len(chosen)})", Command(f", which {Option.ITEMS} can change"), "."))
             + (f" Left out as row numbers or ids (every value a different whole number): "
                f"{', '.join(printable(c) for c in ids)}." if ids else "")
-            + (f" Left out as codes of categories (every value has a value label of its own, as a "
-               f"department's do; the items share their answer scale's labels): "
+            + (" Left out as codes of categories (every value has a value label of its own, as a "
+               "department's do; the items share their answer scale's labels): "
                + Note((f"{', '.join(printable(c) for c in coded)}", name_them, "."))
                if coded else "")
             + (" Left out by their names, as columns of the sampling design, ids, groups, the respondents' "
