@@ -829,7 +829,7 @@ def _few_categories(frame: pd.DataFrame, names: tuple[str, ...], ordinal_items: 
     return few_category_items(_numeric_rows(frame, continuous, source), continuous) if continuous else ()
 
 
-def few_categories_note(few: tuple[str, ...], names: tuple[str, ...], ordinal_items: tuple[str, ...] = ()) -> str:
+def few_categories_note(few: tuple[str, ...], names: tuple[str, ...], ordinal_items: tuple[str, ...] = ()) -> Note:
     """The note of an exploration that analyses ``few`` (of the items ``names``), answered in at most FEW_CATEGORIES
     categories, as continuous: what its correlations then are, what that does to the loadings, and the option that
     analyses them by polychoric correlations (with the items ``ordinal_items`` analysed so already).  Four categories, not five: treating answers as continuous does about
@@ -853,11 +853,11 @@ def few_categories_note(few: tuple[str, ...], names: tuple[str, ...], ordinal_it
            if not ordinal_items else
            "explore treats these answers as continuous (Pearson correlations among them, polyserial ones with the "
            "items analysed as ordinal)")
-    return (f"{subject} at most {FEW_CATEGORIES} answer categories, and {how}: with so few categories these "
-            f"correlations, and with them the loadings and communalities, tend to come out smaller than those of the "
-            f"responses behind the answers, so that items can seem weaker than they are "
-            f"(Rhemtulla, Brosseau-Liard & Savalei 2012). Polychoric correlations estimate the correlations of those "
-            f"responses: {option} explores the items by them.")
+    return Note((f"{subject} at most {FEW_CATEGORIES} answer categories, and {how}: with so few categories these "
+                 f"correlations, and with them the loadings and communalities, tend to come out smaller than those of "
+                 f"the responses behind the answers, so that items can seem weaker than they are (Rhemtulla, "
+                 f"Brosseau-Liard & Savalei 2012). Polychoric correlations estimate the correlations of those "
+                 f"responses", Command(f": {option} explores the items by them"), "."))
 
 
 def _refuse_rotation_of_one_factor(method: RotationMethod, target_file) -> None:

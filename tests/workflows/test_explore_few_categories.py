@@ -38,7 +38,7 @@ FOUR = [-0.8, 0.2, 1.0]  # four categories, skewed
 
 
 def _note(result) -> list[str]:
-    return [n for n in result.notes if "answer categories" in n]
+    return [str(n) for n in result.notes if "answer categories" in str(n)]  # a note with its advice, as text
 
 
 def test_four_category_items_get_a_note_naming_the_pearson_correlations_and_the_ordinal_option(tmp_path, capsys):
