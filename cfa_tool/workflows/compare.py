@@ -24,7 +24,7 @@ from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary, design_weights
 from cfa_tool.data.summary_stats import read_summary_file
-from cfa_tool.errors import EstimationError, NotIdentified, OptionError, estimation_of
+from cfa_tool.errors import EstimationError, NotIdentified, OptionError, estimation_of, printable
 from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.pipeline.continuous import (FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, fit_moments,
@@ -127,6 +127,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     fit_options = replace(make_options(options, COMPARE_KEYWORDS), diagnostics=False)
     design = design_columns(weights, cluster, strata, weight_kind)
     specs = [load_spec(m) for m in models]
+    _no_model_twice(specs)
     names = _unique_names(specs)
     _same_item_types(specs, names, [ordinal_items_of(spec, ordinal) for spec in specs])
     ordinal_items = set().union(*(ordinal_items_of(spec, ordinal) for spec in specs))
@@ -433,6 +434,20 @@ def _named(spec: Spec, name: str) -> str:
     """A model as the comparison calls it, with its file when the name is its title."""
     source = Path(spec.source).name
     return f"'{name}'" if Path(spec.source).stem == name or not spec.source else f"'{name}' ({source})"
+
+
+def _no_model_twice(specs: list[Spec]) -> None:
+    """Refuse a model given twice (the same file, or files of the same text): its comparison with itself tests
+    nothing and reads as 'probably equivalent models', a slip for another model (hostile tester, sixteenth round)."""
+    seen: dict[str, Spec] = {}
+    for spec in specs:
+        text = "\n".join(line.rstrip() for line in spec.text.strip().splitlines())
+        if text in seen:
+            first = seen[text]
+            where = (f"'{printable(first.source)}' is given twice" if first.source == spec.source else
+                     f"'{printable(first.source)}' and '{printable(spec.source)}' hold the same model text")
+            raise OptionError(f"{where}: a model compared with itself tests nothing; give the other model you meant")
+        seen[text] = spec
 
 
 def _unique_names(specs: list[Spec]) -> list[str]:

@@ -56,7 +56,8 @@ def test_an_ordinal_model_not_identified_is_reported_among_the_others(rider_mode
 def test_no_ordinal_model_estimated_stops_with_exit_3(rider_model, tmp_path, capsys):
     _models(tmp_path, rider_model)
     result = tmp_path / "c.json"
-    code, out, err = run_cli(["compare", tmp_path / "pair.cfa", tmp_path / "pair.cfa", "--data", DATA,
+    (tmp_path / "pair2.cfa").write_text((tmp_path / "pair.cfa").read_text().replace("With a pair factor", "Another"))
+    code, out, err = run_cli(["compare", tmp_path / "pair.cfa", tmp_path / "pair2.cfa", "--data", DATA,
                               "--ordinal", "all", "--json", result], capsys)
     assert code == 3 and err.count("\n") == 1 and not result.exists(), err
     assert "no model could be estimated" in err and "not identified" in err
