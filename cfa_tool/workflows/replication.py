@@ -160,7 +160,7 @@ class Replication(Presentable):
 
         return clean({
             "data_problems": [p.to_dict() for p in self.data_problems],
-            "notes": list(self.notes),
+            "notes": [str(x) for x in self.notes],
             **({"answer_coding": coding_json(self.answer_coding)} if self.answer_coding else {}),
             "split": self.split.to_dict() if self.split is not None else None,
             "calibration": {"data": self.calibration, "n_obs": self.calibration_result.n_obs,

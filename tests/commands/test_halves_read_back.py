@@ -25,6 +25,7 @@ from tests.conftest import DATASETS
 
 HS_FILE = DATASETS / "holzinger_swineford_1939.csv"
 MODEL = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+TWIN = MODEL + "covary x1, x4\n"  # a second model: compare refuses a model compared with itself
 ITEMS = [f"x{k}" for k in range(1, 10)]
 
 
@@ -169,7 +170,7 @@ def test_the_sheet_read_is_recorded_and_old_halves_files_keep_working(tmp_path, 
 #: every Python workflow that fits the rows it reads, called on a half (``keep``) with a handling of rows with gaps
 #: (``missing``: None, the default, keeps them); replications as few as each allows
 WORKFLOWS = {
-    "compare": lambda data, keep, missing: cfa_tool.compare([MODEL, MODEL], data, keep=keep, missing=missing),
+    "compare": lambda data, keep, missing: cfa_tool.compare([MODEL, TWIN], data, keep=keep, missing=missing),
     "invariance": lambda data, keep, missing: cfa_tool.invariance(MODEL, data, group="school", keep=keep,
                                                                   missing=missing),
     "align": lambda data, keep, missing: cfa_tool.align(MODEL, data, group="school", keep=keep, missing=missing,
@@ -201,6 +202,6 @@ def test_a_workflow_given_the_half_fits_the_rows_pandas_selects(gaps, capsys):
     folder, data, frame = gaps
     halves = _complete_halves(gaps, capsys, "complete.csv")[1]
     direct = cfa_tool.fit(MODEL, frame.iloc[_saved_rows(halves, "A") - 2])  # pandas' selection of the saved rows
-    compared = cfa_tool.compare([MODEL, MODEL], str(data), keep=[RandomHalf(str(halves), "A")], missing="listwise")
+    compared = cfa_tool.compare([MODEL, TWIN], str(data), keep=[RandomHalf(str(halves), "A")], missing="listwise")
     assert compared.results[0].n_obs == direct.n_obs == 133
     assert compared.results[0].fit.chi_square == pytest.approx(direct.fit.chi_square, rel=1e-9)

@@ -132,7 +132,7 @@ def test_a_totals_row_beside_a_means_row_is_refused(rider_demo, rider_model, tmp
     with pytest.raises(DataError, match=r"Row 482 of both.csv holds the sums of the other rows' answers"):
         cfa_tool.fit(rider_model, str(path))
     with pytest.raises(DataError, match=r"Row 482 of both.csv holds the sums"):
-        cfa_tool.compare([rider_model, rider_model], str(path))
+        cfa_tool.compare([rider_model, rider_model + "\ncovary on_time, clean\n"], str(path))
 
 
 def test_the_row_filter_suggested_keeps_every_other_row(rider_demo, rider_model, tmp_path):

@@ -13,7 +13,7 @@ from tests.conftest import THREE_FACTORS
 CALLS = {
     "fit": lambda data, **kw: cfa_tool.fit(THREE_FACTORS, data, **kw),
     "check": lambda data, **kw: cfa_tool.check(THREE_FACTORS, data, **kw),
-    "compare": lambda data, **kw: cfa_tool.compare([THREE_FACTORS, THREE_FACTORS], data, **kw),
+    "compare": lambda data, **kw: cfa_tool.compare([THREE_FACTORS, THREE_FACTORS + "covary x1, x4\n"], data, **kw),
     "scores": lambda data, **kw: cfa_tool.scores(THREE_FACTORS, data, **kw),
 }
 

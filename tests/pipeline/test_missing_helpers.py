@@ -96,7 +96,7 @@ def test_frequency_weights_count_as_repeated_rows(frame):
 
 @pytest.mark.parametrize("call", [
     lambda f: cfa_tool.scores(MODEL, f, missing_helpers="age"),
-    lambda f: cfa_tool.compare([MODEL, MODEL], f, missing_helpers="age"),
+    lambda f: cfa_tool.compare([MODEL, MODEL + "covary y1, y2\n"], f, missing_helpers="age"),
     lambda f: cfa_tool.invariance(MODEL, f, group="district", missing_helpers="age"),
 ], ids=["scores", "compare", "invariance"])
 def test_the_python_functions_other_than_fit_refuse_them(frame, call):

@@ -30,7 +30,7 @@ def test_many_rows_without_a_group_are_a_caution_first():
     assert not any("no value in the group column" in w for w in result.warnings)  # said once, first
     ladder = cfa_tool.invariance(MODEL, data, "district")
     assert any(p.explanation.startswith(CAUTION) for p in ladder.data_problems)
-    compared = cfa_tool.compare([MODEL, MODEL], data, group="district")
+    compared = cfa_tool.compare([MODEL, MODEL + "\ncovary on_time, clean\n"], data, group="district")
     assert any(p.explanation.startswith(CAUTION) for p in compared.problems)
 
 
