@@ -71,12 +71,19 @@ def _heat(text: str) -> str:
     return "" if colour is None else f' style="background:{colour}"'
 
 
+def _indent(text: str) -> str:
+    """A cell's leading spaces (a row under the one above it: '  p', '  90% interval') as its indent: HTML collapses
+    spaces, and the row would read as one of its own (new-user trial s16)."""
+    spaces = len(text) - len(text.lstrip(" "))
+    return f' style="padding-left:{0.35 + 0.5 * spaces:g}em"' if spaces else ""
+
+
 def table_html(table: ReportTable, view: View = RUNNING) -> str:
     head = "".join(f'<th class="{a}">{esc(c)}</th>' for c, a in zip(table.columns, table.align))
     faint = set(table.faint)
     body = "".join(('<tr class="problem">' if k in table.flagged else "<tr>")
                    + "".join(f'<td class="{a}{" faint" if (k, j) in faint else ""}"'
-                             f'{_heat(v) if table.heat and a == "r" else ""}>{esc(v)}</td>'
+                             f'{_heat(v) if table.heat and a == "r" else _indent(v)}>{esc(v.lstrip(" "))}</td>'
                              for j, (v, a) in enumerate(zip(row, table.align))) + "</tr>"
                    for k, row in enumerate(table.rows))
     note = " ".join(text for text in (said(table.note or "", view), T.HEAT_LEGEND if table.heat else "") if text)
