@@ -483,6 +483,9 @@ def _lowest_coverage(result) -> float | None:
     """The smallest share of the rows that answered an item: from the fit's missing-data summary, or, for a fit
     without one (the steps of an invariance ladder), from the rows answering each item in each group (None when
     neither is at hand)."""
+    if result.multigroup and result.groups and all(g.data.answered and g.data.n_obs for g in result.groups):
+        # each group judged on its own rows: an item nearly unanswered in one group hides in a pooled share
+        return min(min(g.data.answered) / g.data.n_obs for g in result.groups)
     if result.missing_data is not None:
         coverage = result.missing_data.get("coverage", {})
         return min(coverage.values()) if coverage else 1.0
@@ -508,7 +511,8 @@ def _sample_phrase(result) -> str:
     elif low is not None:
         floor = math.floor(1000 * low) / 10  # never rounded up: 99.96% is not 'every row'
         text += (f"; every answer of every row was used, including rows with missing answers{_FULL_INFORMATION_ASSUMPTION}"
-                 f"; each item was answered in at least {floor:g}% of the rows")
+                 f"; each item was answered in at least {floor:g}% of "
+                 f"{'each group' + chr(39) + 's rows' if result.multigroup else 'the rows'}")
     pairs = data.pair_range
     if _pairs_with_gaps(result):
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
