@@ -419,18 +419,30 @@ def shared_cluster(frame: pd.DataFrame, columns: DesignColumns, group: str | Non
 
 
 def refuse_shared_clusters(frame: pd.DataFrame, columns: DesignColumns | None, group: str | None, source: str,
-                           estimation: str) -> None:
+                           estimation: str, complete_rows: bool = False) -> None:
     """A one-line error when groups share clusters (domains of one cluster sample) under an ``estimation`` (e.g.
-    'full-information ML') whose design-based errors are computed group by group."""
+    'full-information ML') whose design-based errors are computed group by group, with the routes that do run: the
+    weights and strata without the clusters (what that gives up said), each group alone with its clusters, and with
+    ``complete_rows`` the complete rows only (what that assumes said).  Never the refused route itself."""
     if columns is None:
         return
     cluster = shared_cluster(frame, columns, group)
     if cluster is not None:
+        kept = " and ".join(f"the {what}" for what, name in (("weights", columns.weights), ("strata", columns.strata))
+                            if name is not None)
+        without = (f"leave out {Option.CLUSTER} to keep {kept} (the groups are then taken as independent samples, and "
+                   f"the standard errors and tests leave out that rows of one cluster answer alike, so they come out "
+                   f"too small when they do)" if kept else
+                   f"leave out {Option.CLUSTER} (the standard errors and tests then leave out that rows of one cluster "
+                   f"answer alike, so they come out too small when they do)")
+        listwise = (f", or analyse the complete rows only ({Option.INCOMPLETE_ROWS.given('listwise')}; groups that "
+                    f"share clusters are analysed so), which assumes answers missing completely at random and leaves "
+                    f"out every row with a gap" if complete_rows else "")
         raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' has rows in "
-                        f"more than one group of '{printable(group)}'; groups that share clusters (domains of one "
-                        f"sample) are analysed with their clusters by continuous maximum likelihood with complete "
-                        f"rows, not yet by {estimation}: fit each group alone with its clusters "
-                        f"({Option.KEEP.given(f'{printable(group)} = ...')}), or group by a column that clusters nest in")
+                        f"more than one group of '{printable(group)}' (the groups share clusters: domains of one "
+                        f"sample), and {estimation} does not yet take clusters shared by groups into account: {without}, "
+                        f"or fit each group "
+                        f"alone with its clusters ({Option.KEEP.given(f'{printable(group)} = ...')}){listwise}")
 
 
 def refuse_lone_strata(design: RowDesign, columns: DesignColumns, source: str, why: str) -> None:

@@ -35,7 +35,7 @@ from cfa_tool.data.readers import (LoadedData, blank_text_as_missing, drop_blank
 from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame, renamed_hint
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
-                                         design_weights, refuse_shared_clusters)
+                                         design_weights, refuse_shared_clusters, shared_cluster)
 from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, holds_summary, pasted_matrix, read_summary_file,
                                          summary_in_other_text, summary_moments)
 from cfa_tool import options as opt
@@ -392,8 +392,8 @@ def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None 
     else:
         _check_group_column(spec, group)
         if missing == MissingData.FULL_INFORMATION:
-            refuse_shared_clusters(frame, design, group, source, "full-information ML (rows with missing answers; "
-                                   "--incomplete-rows listwise keeps complete rows only)")
+            refuse_shared_clusters(frame, design, group, source, "full-information ML (rows with missing answers)",
+                                   complete_rows=True)
         groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing, weights)
         notes = _no_group_notes(no_group, group, len(frame)) + label_notes(frame, group)
     if design is not None:
@@ -656,7 +656,7 @@ def weighted_out_problems(loaded: LoadedData, group: str | None, design: DesignC
 
 
 def odd_value_problems(loaded: LoadedData, group: str | None = None, design: DesignColumns | None = None,
-                       helpers: tuple[str, ...] = (), listwise: bool = False) -> tuple:
+                       helpers: tuple[str, ...] = (), listwise: bool = False, shared_clusters: bool = False) -> tuple:
     """Values in the item columns that look like no answers (a missing-value code, a totals row), and those the
     file marks as no answer and that were read as missing when rows leave the analysis because of them
     (data.non_answers.non_answer_caution; ``listwise``: rows with gaps are left out), as cautions that come first in
@@ -674,10 +674,11 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
                 + (group_case_problems(loaded.frame, group) if group is not None else ())
                 + tuple(p for part, unit, name in design_columns if name is not None
                         for p in group_case_problems(loaded.frame, name, part, unit))
-                + odd_value_problems(loaded, helpers=helpers, listwise=listwise))
+                + odd_value_problems(loaded, helpers=helpers, listwise=listwise, shared_clusters=listwise and (
+                    design is not None and shared_cluster(loaded.frame, design, group) is not None)))
 
     items = (tuple(loaded.items.names) + tuple(helpers)) if loaded.items is not None else tuple(loaded.frame.columns)
-    marked = non_answer_caution(loaded.non_answers, loaded.source, items, loaded.frame, listwise)
+    marked = non_answer_caution(loaded.non_answers, loaded.source, items, loaded.frame, listwise, shared_clusters)
     # a code already named as labelled beyond the scale of the same items is not named again as a missing-value code
     from cfa_tool.data.non_answers import BeyondScale
     from cfa_tool.data.odd_values import OddKind

@@ -444,6 +444,15 @@ def _capital(text: str) -> str:
 _PAIRWISE_ASSUMPTION = f", which assumes that {MISSING_COMPLETELY_AT_RANDOM}, Little & Rubin, 2002"
 #: new-user trial s11: the fit and invariance paragraphs said every answer was used without the assumption it rests on
 _FULL_INFORMATION_ASSUMPTION = f", which assumes that {MISSING_AT_RANDOM}, Little & Rubin, 2002"
+#: what listwise deletion assumes (the same assumption as pairwise present rows, said of the rows left out)
+_LISTWISE_ASSUMPTION = _PAIRWISE_ASSUMPTION
+
+
+def _listwise_clause(dropped: int, read: int, kept: int) -> str:
+    """The rows listwise deletion left out and kept, with what it assumes (Little & Rubin, 2002), inside the
+    parentheses of the rows' phrase (new-user trial s16: the text said only how many were excluded)."""
+    return (f"; listwise deletion excluded {dropped} of {read} rows for missing answers and kept the {kept} complete "
+            f"{'row' if kept == 1 else 'rows'}{_LISTWISE_ASSUMPTION}")
 
 
 def _pairs_with_gaps(result) -> bool:
@@ -524,7 +533,7 @@ def _sample_phrase(result) -> str:
             text += (f"; {dropped} of {data.rows_read} rows answered no model variable{neither} and "
                      f"{'was' if dropped == 1 else 'were'} left out")
         else:
-            text += f"; {dropped} of {data.rows_read} rows with missing answers were excluded listwise"
+            text += _listwise_clause(dropped, data.rows_read, data.rows_read - data.rows_dropped)
     if without_group:
         text += _without_group_clause(without_group, data.rows_read, result.group_column)
     return text

@@ -424,7 +424,7 @@ def test_a_cluster_across_groups_of_ordinal_items_is_an_error(hs_data):
     data[ITEMS] = data[ITEMS].round().clip(1, 6)
     with pytest.raises(DataError, match="has rows in more than one group of 'school'") as raised:
         cfa_tool.fit(THREE_FACTORS, data, group="school", cluster="unit", ordinal="all")
-    assert "not yet by the least-squares fit of ordinal items" in str(raised.value)
+    assert "the least-squares fit of ordinal items does not yet take clusters shared by groups" in str(raised.value)
     # what to do next (new-user trial: languages crossing neighbourhoods left the user without a way on)
     assert "fit each group alone with its clusters (keep=['school = ...'])" in str(raised.value)
 
