@@ -208,6 +208,25 @@ class SampleDesign:
         return text + (f" Standard errors are sandwich estimates from the rows' score contributions over {spread}, and "
                        f"the chi-square is scaled accordingly.") + after
 
+    def score_test_text(self) -> str | None:
+        """What the modification indices of a continuous maximum-likelihood fit under this design are: the normal-theory
+        score tests of the weighted likelihood (pipeline.continuous: assessment.modification.score_tests on the
+        weighted moments), which take the rows as independent and equally informative; design-based ones would divide
+        each by the design effect of its score, usually above 1 with clusters and uneven weights (Satorra's 1989
+        generalized score test).  None for frequency weights alone, which are repeated rows."""
+        c = self.columns
+        if not c.robust:
+            return None
+        parts = [what for what, there in (("sampling weights", c.weights is not None and c.kind is WeightKind.SAMPLING),
+                                          ("clusters", c.cluster is not None), ("strata", c.strata is not None))
+                 if there]
+        said = parts[0] if len(parts) == 1 else ", ".join(parts[:-1]) + " and " + parts[-1]
+        return (f"These indices do not take the sampling design ({said}) into account: they are score tests of the "
+                f"weighted likelihood that take the rows as independent, and are usually larger than design-based "
+                f"tests would be (Satorra's 1989 generalized score test), more so the more the rows of one cluster "
+                f"answer alike or the more uneven the weights. Judge a parameter they point to by its design-based "
+                f"test: refit with it freed and read its z, whose standard error takes the design into account.")
+
     def lone_text(self) -> str:
         """What was done with strata of a single sampling unit (empty when there are none)."""
         if not self.lone_strata:
