@@ -1188,7 +1188,7 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
         design_test(fit_options, design)
     if fit_options.missing_helpers:
         helpers_can_apply(fit_options, frame, spec.observed_names, group, values)
-    fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group, values)
+    fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group, values, design)
     notes = missing_notes + notes
     few, few_note = few_categories(frame, spec.observed_names, values)
     notes += few_note
@@ -1332,9 +1332,12 @@ def check_helper_columns(helpers: tuple[str, ...], frame: pd.DataFrame, source: 
     if design is not None and design.robust:
         from cfa_tool.pipeline.continuous import HELPERS_NOT_ROBUST
 
-        raise OptionError(f"missing-data helpers ({Option.MISSING_HELPERS}) are not offered with sampling weights, "
-                          f"clusters or strata, whose standard errors are robust ones: {HELPERS_NOT_ROBUST}; frequency "
-                          f"weights ({Option.WEIGHT_KIND.given('frequency')}) are")
+        raise OptionError(f"missing-data helpers ({Option.MISSING_HELPERS}) cannot be used with sampling weights, "
+                          f"clusters or strata, whose standard errors are robust ones: {HELPERS_NOT_ROBUST}. To fit "
+                          f"with the design, leave out {Option.MISSING_HELPERS} (answers are then assumed missing at "
+                          f"random given the items only); to use the helpers, leave out the design (the standard errors "
+                          f"then take the rows as independent and equally weighted). Frequency weights "
+                          f"({Option.WEIGHT_KIND.given('frequency')}) can be used with helpers.")
 
 
 def helper_columns(spec: Spec, helpers) -> tuple[str, ...]:
@@ -1480,9 +1483,12 @@ def rows_with_gaps(frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarr
 
 
 def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, ...],
-                            group: str | None, values: np.ndarray | None = None) -> tuple[object, list[str]]:
+                            group: str | None, values: np.ndarray | None = None,
+                            design: DesignColumns | None = None) -> tuple[object, list[str]]:
     """Rows with missing answers are kept by default: full-information ML when a model variable has
-    a gap, listwise deletion only when asked for (or when nothing is missing, where the two agree)."""
+    a gap, listwise deletion only when asked for (or when nothing is missing, where the two agree).  Under a
+    ``design`` whose errors are robust ones the note adds that missing-data helpers cannot be used with it
+    (:func:`check_helper_columns`), so what full-information ML assumes rests on the items alone."""
     if fit_options.missing is not None:
         return fit_options, []
     if fit_options.test is FitTest.YUAN_BENTLER:  # the robust test of full-information ML
@@ -1505,6 +1511,10 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
                  f"full-information ML (the default when answers are missing; a fit of the complete rows only",
                  Command(" (--incomplete-rows listwise)"), " would leave those rows out)"
                  + ("; the robust test with full-information ML is the Yuan-Bentler one" if robust else "")))
+    if design is not None and design.robust and not fit_options.missing_helpers:
+        note += Note(("; missing-data helpers (auxiliary variables that predict the gaps", Command(f", {Option.MISSING_HELPERS}"),
+                      ") cannot be used with sampling weights, clusters or strata, so answers are assumed missing at "
+                      "random given the items only"))
     return replace(fit_options, missing=MissingData.FULL_INFORMATION), [note]
 
 

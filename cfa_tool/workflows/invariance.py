@@ -400,7 +400,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         ordinal_items = threshold_counts(groups[0][1])
     else:
         # rows with gaps are kept (full-information ML), as 'fit' keeps them, unless listwise is asked for
-        fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
+        fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group,
+                                                             design=design)
         gaps = (fit_options.missing is MissingData.FULL_INFORMATION
                 and bool(frame[list(spec.observed_names)].isna().to_numpy().any()))
         groups, notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design=design)
