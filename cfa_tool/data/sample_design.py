@@ -132,6 +132,9 @@ class SampleDesign:
     # group, when the groups are independent samples); their unit is centred at the mean of all units' sums
     lone_strata: tuple[str, ...] = ()
     shared_clusters: bool = False  # the groups share clusters: domains of one cluster sample
+    # strata with rows of more than one group, when the groups are taken as independent samples (not sharing
+    # clusters): each group's part of such a stratum is a stratum of its own in the design-based errors
+    shared_strata: tuple[str, ...] = ()
 
     def to_dict(self) -> dict:
         c = self.columns
@@ -142,6 +145,7 @@ class SampleDesign:
                 "groups": (None if not self.group_rows else
                            "domains sharing clusters" if self.shared_clusters else "independent samples"),
                 "strata_with_a_single_unit": list(self.lone_strata),
+                "strata_shared_by_groups": list(self.shared_strata),
                 "single_unit_centred_at": "the mean of all units' sums" if self.lone_strata else None}
 
     def sentence(self, full_information: bool = False, ordinal: bool = False,
@@ -185,8 +189,12 @@ class SampleDesign:
                       "cluster's sums gather the contributions of its rows in every group, so the groups' estimates "
                       "are correlated through their clusters (Binder 1983).")
         elif self.group_rows and (c.cluster or c.strata):
-            after += (" The groups are taken as independent samples" + (", each with its own clusters" if c.cluster else "")
-                      + (", each group's part of a stratum a stratum of its own" if c.strata else "") + ".")
+            after += (" The groups were taken as independent samples" + (", each with its own clusters" if c.cluster
+                                                                          else "")
+                      + ("" if not c.strata else
+                         "; each group's rows within a stratum were treated as a stratum of their own"
+                         if self.shared_strata else ", each with its own strata") + ".")
+            # groups that share strata: shared_strata_caution follows among the design's cautions
         lone = self.lone_text()
         if lone:
             after += f" {lone[0].upper()}{lone[1:]}."
@@ -226,6 +234,25 @@ class SampleDesign:
                 f"tests would be (Satorra's 1989 generalized score test), more so the more the rows of one cluster "
                 f"answer alike or the more uneven the weights. Judge a parameter they point to by its design-based "
                 f"test: refit with it freed and read its z, whose standard error takes the design into account.")
+
+    def shared_strata_caution(self) -> str | None:
+        """Why the design-based errors of groups taken as independent samples rest on an assumption when the groups
+        have rows in the same strata (None otherwise): each group's part of a stratum is centred as a stratum of its
+        own, which treats the groups' numbers of rows in each stratum as fixed by the design; groups drawn together
+        (domains of one sample: a characteristic such as the form's language, not a part of the sampling) have
+        random sizes within strata, and rows of different groups in one household or other cluster answer alike,
+        both left out (Binder 1983 for domains of a stratified sample; Lumley 2010)."""
+        if not self.shared_strata or not self.group_rows or self.shared_clusters:
+            return None
+        count = len(self.shared_strata)
+        which = ", ".join(f"'{name}'" for name in self.shared_strata[:LONE_STRATA_NAMED]) + (
+            f" and {count - LONE_STRATA_NAMED} more" if count > LONE_STRATA_NAMED else "")
+        return (f"The groups share {count} {'stratum' if count == 1 else 'strata'} of '{self.columns.strata}' "
+                f"({which}), and the standard errors and tests treat each group's rows in a stratum as drawn apart, as "
+                f"if the design had fixed how many rows of each group each stratum holds. If the groups were drawn "
+                f"together (one sample, the groups a characteristic of its rows), their sizes within strata were not "
+                f"fixed (usually a small difference), and rows of different groups in one household or other cluster "
+                f"may answer alike, which standard errors without the clusters leave out: they are then too small.")
 
     def lone_text(self) -> str:
         """What was done with strata of a single sampling unit (empty when there are none)."""
@@ -609,7 +636,11 @@ def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list) -
         clusters, lone = len(joint.cluster_names), joint.lone_strata()
     else:
         lone = tuple(dict.fromkeys(name for d in designs for name in d.lone_strata()))
-    return SampleDesign(columns, rows, total, kish, clusters, strata, group_rows, lone, shared)
+    across: tuple[str, ...] = ()
+    if len(designs) > 1 and columns.strata is not None and not shared:
+        named = [set(_named(np.unique(d.strata), d.strata_names)) for d in designs]
+        across = tuple(sorted(name for name in set().union(*named) if sum(name in n for n in named) > 1))
+    return SampleDesign(columns, rows, total, kish, clusters, strata, group_rows, lone, shared, across)
 
 
 

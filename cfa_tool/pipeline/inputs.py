@@ -1282,6 +1282,14 @@ def design_problems(design, free: int) -> tuple:
                             f"{Option.WEIGHT_KIND.given(WeightKind.FREQUENCY.value)}: weights are read as sampling "
                             f"weights by default, rescaled to the rows, with sandwich standard errors; if every row "
                             f"really stands for that many identical respondents, nothing needs to change."),) + problems
+    across = design.shared_strata_caution()
+    if across:
+        problems += (Problem(ProblemKind.GROUPS_SHARE_STRATA, (), float(len(design.shared_strata)), across,
+                             f"if rows of the groups share households or other clusters, give them with "
+                             f"{Option.CLUSTER}: groups that share clusters are then analysed as domains of one sample "
+                             f"(with complete rows only, {Option.INCOMPLETE_ROWS.given('listwise')}, when rows have "
+                             f"gaps); otherwise say in the report that the groups were treated as drawn apart within "
+                             f"strata."),)
     uneven = design.weight_caution()
     if uneven:
         problems += (Problem(ProblemKind.SMALL_EFFECTIVE_SAMPLE, (), round(float(design.effective_n), 1), uneven,

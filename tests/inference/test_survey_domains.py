@@ -345,7 +345,7 @@ def test_ordinal_groups_with_clusters_of_their_own_are_independent_samples():
     result = cfa_tool.fit((folder / "models" / "good.cfa").read_text(), data, group="site", cluster="unit",
                           ordinal="all")
     assert not result.design.shared_clusters and result.design.clusters == 60
-    assert "The groups are taken as independent samples, each with its own clusters." in result.design.sentence(
+    assert "The groups were taken as independent samples, each with its own clusters." in result.design.sentence(
         ordinal=True)
 
 
@@ -354,3 +354,32 @@ def test_check_names_a_lone_stratum_as_the_fit_would(hs_data):
     checked = cfa_tool.check(ONE_FACTOR, data, cluster="unit", strata="st")
     assert checked.design.lone_strata == ("edge",)
     assert any("a single cluster ('edge')" in note for note in checked.notes)
+
+
+def test_groups_that_share_strata_are_said_to_be_treated_as_drawn_apart(hs_data):
+    # new-user trial s16: "The groups are taken as independent samples, each group's part of a stratum a stratum of
+    # its own." had no verb, and stated as fact an assumption that is false for groups drawn in the same districts
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    data = _domains(hs_data, strata=True)  # both schools in every stratum (counted below by pandas)
+    shared = sorted(str(s) for s, n in data.groupby("st")["school"].nunique().items() if n > 1)
+    assert shared == ["0", "1", "2"]
+    result = cfa_tool.fit(ONE_FACTOR, data, group="school", weights="w", strata="st")
+    sentence = result.design.sentence()
+    assert ("The groups were taken as independent samples; each group's rows within a stratum were treated as a "
+            "stratum of their own.") in sentence
+    assert list(result.design.shared_strata) == shared and result.design.to_dict()["strata_shared_by_groups"] == shared
+    caution = [p for p in result.problems if p.kind.name == "GROUPS_SHARE_STRATA"]
+    assert len(caution) == 1 and result.problems.index(caution[0]) == 0  # first
+    assert "The groups share 3 strata of 'st' ('0', '1', '2')" in caution[0].explanation
+    assert "as if the design had fixed how many rows of each group each stratum holds" in caution[0].explanation
+    assert "--cluster" in str(caution[0].advice) or "cluster=..." in str(caution[0].advice)
+    assert "The groups share 3 strata" in " ".join(methods_paragraph(result).split())
+    # strata that each lie within one group: no caution, and the sentence says so
+    own = data.assign(st=data["school"].astype(str) + data["st"].astype(str))
+    apart = cfa_tool.fit(ONE_FACTOR, own, group="school", weights="w", strata="st")
+    assert "The groups were taken as independent samples, each with its own strata." in apart.design.sentence()
+    assert not apart.design.shared_strata and not any(p.kind.name == "GROUPS_SHARE_STRATA" for p in apart.problems)
+    # groups that share clusters are domains of one sample: their sentence says so, with no such caution
+    domains = cfa_tool.fit(ONE_FACTOR, data, group="school", weights="w", cluster="unit", strata="st")
+    assert domains.design.shared_clusters and not any(p.kind.name == "GROUPS_SHARE_STRATA" for p in domains.problems)
