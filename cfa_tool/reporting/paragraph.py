@@ -1570,8 +1570,8 @@ def replication_paragraph(replications) -> str:
     by = estimator if other == estimator else f"{estimator} (in the validation sample by {other})"
     if first.split is not None:
         rows = first.split
-        parts = [f"The replication of {model} was examined in two random halves of {rows.split} of the {rows.in_file} "
-                 f"rows of one data file{rows.kept_words()}: each half served once as the calibration sample, where the model was "
+        parts = [f"The replication of {model} was examined in two random halves, drawn row by row, of {rows.split} of "
+                 f"the {rows.in_file} rows of one data file{rows.kept_words()}: each half served once as the calibration sample, where the model was "
                  f"estimated by {by}, and once as the validation sample, where it was refitted (double "
                  f"cross-validation; Cudeck & Browne, 1983), and whether one solution holds in both halves was "
                  f"tested once (the same two halves either way); half A: {_sample_rows_phrase(first.rows[0])}; half B: "

@@ -791,13 +791,14 @@ ORDINAL_BOOTSTRAP = ("Ordinal items: each resample gets its own thresholds and p
 
 def _split_sentence(rows) -> str:
     """Which rows of the file random halves were drawn from (workflows.replication.SplitRows)."""
+    clusters = f" {rows.ROW_BY_ROW[0].upper()}{rows.ROW_BY_ROW[1:]}."
     if rows.split >= rows.in_file:
         return (f"The {rows.split} rows {f'{rows.kept_words()[1:]}' if rows.filters else 'of the file'} were split at "
-                f"random into two halves.")
+                f"random into two halves.{clusters}")
     why = ("they miss some answers, and the halves hold complete rows only" if rows.complete_only else
            "they answer none of the model's items")
     return (f"{rows.split} of the {rows.in_file} rows{rows.kept_words()} were split at random into two halves; the other "
-            f"{rows.in_file - rows.split} were left out before the split ({why}).")
+            f"{rows.in_file - rows.split} were left out before the split ({why}).{clusters}")
 
 
 def _left_out(result) -> str:
