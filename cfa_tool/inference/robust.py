@@ -50,6 +50,13 @@ class RobustFit:
     # the scale-shifted form (Asparouhov & Muthén 2010): statistic = scale * chi-square + shift (None otherwise)
     scale: float | None = None
     shift: float | None = None
+    #: the scaling comes from the design-based covariance of a sampling design (pipeline.inputs.with_design)
+    design: bool = False
+
+    @property
+    def label(self) -> str:
+        """The statistic's name in tables and notes (method.FitTest.design_label)."""
+        return self.test.design_label(self.design)
 
     @property
     def pieces(self) -> tuple[tuple[str, float], ...]:
@@ -67,7 +74,7 @@ class RobustFit:
             d["mean_adjusted_scaling"] = d.pop("scaling_factor")
             del d["baseline_scaling_factor"]
         d["rmsea_robust_ci90"] = list(self.rmsea_robust_ci90)
-        return {"method": self.test.label, **d}
+        return {"method": self.label, **d}
 
 
 def vech_indices(p: int) -> tuple[np.ndarray, np.ndarray]:

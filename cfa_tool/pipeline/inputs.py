@@ -1257,9 +1257,10 @@ def design_test(fit_options, design: DesignColumns):
         raise OptionError("with sampling weights, clusters or strata the standard errors are sandwich ones, so the "
                           f"information they come from ({Option.STANDARD_ERRORS_FROM}) cannot be chosen; remove that "
                           f"option")
-    if fit_options.test is FitTest.NORMAL:  # resolved for the rows as --robust is (FitOptions, assess)
-        return replace(fit_options, test=FitTest.ROBUST)
-    return fit_options
+    if fit_options.test is not FitTest.NORMAL:  # hostile trial s16: accepted, where '--ordinal all --robust' is refused
+        raise OptionError(f"with sampling weights, clusters or strata the standard errors are already sandwich ones and "
+                          f"the test a design-based scaled one, so {Option.ROBUST} cannot apply; remove it")
+    return replace(fit_options, test=FitTest.ROBUST)  # resolved for the rows as --robust is (FitOptions, assess)
 
 
 def design_problems(design, free: int) -> tuple:
@@ -1310,8 +1311,11 @@ def with_design(result: FitResult, design) -> FitResult:
         # a weighted log-likelihood is a pseudo-likelihood: information criteria built on it would mislead
         fit = replace(fit, log_likelihood=None, aic=None, bic=None, sabic=None)
     # the sandwich's middle is summed by cluster: the method says so, and the status line follows from it
-    method = replace(result.method, clustered=design.columns.cluster is not None)
-    return replace(result, design=design, fit=fit, method=method, warnings=warnings,
+    method = replace(result.method, clustered=design.columns.cluster is not None,
+                     design_based=design.columns.robust and not result.method.ordinal)
+    robust = (replace(result.robust, design=True) if result.robust is not None and method.design_based
+              else result.robust)  # its scaled test is a design-based one, and named so in every view
+    return replace(result, design=design, fit=fit, method=method, warnings=warnings, robust=robust,
                    estimator=f"{method.sentence(len(result.groups))}; {design.status()}", problems=problems)
 
 

@@ -233,9 +233,9 @@ def fit_rows(result) -> list[FitRow]:
     else:
         rlow, rhigh = r.rmsea_robust_ci90
         label, text, guide = _correction_row(r)
-        rows = [_row(f"Scaled chi-square ({r.test.label})", f"{r.chi_square_scaled:.3f} on {r.df} df, "
+        rows = [_row(f"Scaled chi-square ({r.label})", f"{r.chi_square_scaled:.3f} on {r.df} df, "
                      f"p {p_phrase(r.p_value_scaled)}", "the test to read for these data",
-                     (f"Scaled chi-square ({r.test.label})", r.chi_square_scaled, r.df, r.p_value_scaled)),
+                     (f"Scaled chi-square ({r.label})", r.chi_square_scaled, r.df, r.p_value_scaled)),
                 _row(label, text, guide, *[(name.capitalize(), value) for name, value in r.pieces]),
                 _row("Robust CFI / TLI", f"{fit_index_text('cfi', r.cfi_robust)} / {fit_index_text('tli', r.tli_robust)}",
                      guide_text("cfi"),

@@ -563,7 +563,7 @@ def invariance_report(result) -> Report:
                     any(step.conditional for step in result.steps))) if shown) or None,
                values=(["Level", "Chi-square difference", "df difference", "p", *delta_values, "Holds"], step_values)),
     ]
-    tests = sorted({step.result.robust.test.label for step in result.steps if step.result.robust is not None})
+    tests = sorted({step.result.robust.label for step in result.steps if step.result.robust is not None})
     scaled_note = (f"Chi-square, CFI and RMSEA of each level are the scaled statistic and robust indices "
                    f"({', '.join(tests)}), and each difference test is the scaled difference of those statistics "
                    f"(Satorra & Bentler 2001){_other_differences(result.steps)}.")
@@ -843,7 +843,7 @@ def bootstrap_report(boot) -> Report:
                      f"({boot.bollen_stine_converged} converged resamples; normal-theory p {p_value(result.fit.p_value)}).")
     elif boot.bollen_stine_not_computed:
         robust = result.robust
-        test = (f"{robust.test.label} statistic (p {p_value(robust.p_value_scaled)})" if robust is not None
+        test = (f"{robust.label} statistic (p {p_value(robust.p_value_scaled)})" if robust is not None
                 else f"chi-square (p {p_value(result.fit.p_value)})")
         lines.append(f"No Bollen-Stine p-value: {boot.bollen_stine_not_computed}; the test of fit remains the fit's "
                      f"{test}.")

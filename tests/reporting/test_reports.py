@@ -232,7 +232,7 @@ def test_methods_paragraph_states_missing_data_handling_and_groups(hs_data):
     assert "full-information maximum likelihood" in full and "including rows with missing answers" in full
     listwise = methods_paragraph(cfa_tool.fit(HS_BASE, holes, missing="listwise"))
     # new-user trial s16: the rows kept and what listwise deletion assumes (Little & Rubin 2002)
-    assert ("listwise deletion excluded 30 of 301 rows for missing answers and kept the 271 complete rows, which "
+    assert ("the 271 complete rows were analysed and 30 of 301 rows with missing answers excluded listwise, which "
             "assumes that answers are missing completely at random, Little & Rubin, 2002" in " ".join(listwise.split()))
     assert "N = 271" in listwise
     grouped = methods_paragraph(cfa_tool.fit(HS_BASE + "invariance metric\n", hs_data, group="school"))
