@@ -228,12 +228,8 @@ class SampleDesign:
         parts = [what for what, there in (("sampling weights", c.weights is not None and c.kind is WeightKind.SAMPLING),
                                           ("clusters", c.cluster is not None), ("strata", c.strata is not None))
                  if there]
-        said = parts[0] if len(parts) == 1 else ", ".join(parts[:-1]) + " and " + parts[-1]
-        return (f"These indices do not take the sampling design ({said}) into account: they are score tests of the "
-                f"weighted likelihood that take the rows as independent, and are usually larger than design-based "
-                f"tests would be (Satorra's 1989 generalized score test), more so the more the rows of one cluster "
-                f"answer alike or the more uneven the weights. Judge a parameter they point to by its design-based "
-                f"test: refit with it freed and read its z, whose standard error takes the design into account.")
+        return SCORE_TESTS_WITHOUT_DESIGN.format(parts[0] if len(parts) == 1 else
+                                                 ", ".join(parts[:-1]) + " and " + parts[-1])
 
     def shared_strata_caution(self) -> str | None:
         """Why the design-based errors of groups taken as independent samples rest on an assumption when the groups
@@ -334,6 +330,13 @@ class SampleDesign:
                 f"clusters (common practice).")
 
 
+#: the first note under the modification indices of a fit under a sampling design (SampleDesign.score_test_text)
+SCORE_TESTS_WITHOUT_DESIGN = (
+    "These indices do not take the sampling design ({}) into account: they are score tests of the weighted likelihood "
+    "that take the rows as independent, and are usually larger than design-based tests would be (Satorra's 1989 "
+    "generalized score test), more so the more the rows of one cluster answer alike or the more uneven the weights. "
+    "Judge a parameter they point to by its design-based test: refit with it freed and read its z, whose standard "
+    "error takes the design into account.")
 #: strata with a single unit named in the methods paragraph and the caution (the rest counted)
 LONE_STRATA_NAMED = 5
 #: Kish's effective sample size below this share of the rows (a design effect of the weighting, n / n_eff = 1 + CV^2 of
@@ -447,7 +450,8 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
                             f"each; fit without that group ({Option.KEEP}) or without the cluster column")
     from cfa_tool.data.labels import label_notes
 
-    for part, unit, name in (("cluster", "cluster", columns.cluster), ("strata", "stratum", columns.strata)):
+    for part, unit, name in (("cluster", ("cluster", "clusters"), columns.cluster),
+                             ("strata", ("stratum", "strata"), columns.strata)):
         if name is not None:
             notes += label_notes(frame, name, part=part, unit=unit)
     return frame, notes
@@ -558,7 +562,8 @@ def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.
         fraction = values != np.round(values)
         if fraction.any():
             raise DataError(f"{where} {rows[np.argmax(fraction)]}: frequency weights count rows and must be whole "
-                            f"numbers, not {values[np.argmax(fraction)]:g} (for sampling weights leave out the kind)")
+                            f"numbers, not {float(values[np.argmax(fraction)])!r} (for sampling weights leave out the "
+                            f"kind)")  # the value as given: ':g' showed 2.0000000001 as 2 (hostile trial s16)
         if values.sum() > MAX_FREQUENCY_TOTAL:
             raise DataError(f"{source}: the frequency weights in column '{printable(name)}' count {values.sum():.3g} rows, "
                             f"more than the {MAX_FREQUENCY_TOTAL:,.0f} the tool computes with")
@@ -566,12 +571,25 @@ def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.
         raise DataError(f"{source}: the sampling weights in column '{printable(name)}' reach {values.max():.3g}, outside "
                         f"the range the tool computes with ({WEIGHT_RANGE[0]:g} to {WEIGHT_RANGE[1]:g}); sampling weights "
                         f"count only relative to each other, so divide the column by its mean")
+    elif values.max(initial=0.0) > 0:
+        relative = values / values.max()  # Kish's (1965) effective sample size, free of the weights' scale
+        effective = relative.sum() ** 2 / (relative @ relative)
+        if effective < FEWEST_EFFECTIVE_ROWS:  # hostile trial s16: blamed an item as constant instead
+            top = int(np.argmax(values))
+            raise DataError(f"{source}: the sampling weights in column '{printable(name)}' put almost all the weight on "
+                            f"{'one row' if effective < 1.5 else 'a few rows'} (row {rows[top]} has weight "
+                            f"{float(values[top])!r}; Kish's effective sample size {effective:.2f} of {len(values)} rows), "
+                            f"so the weighted answers have next to no spread; check that it is the right column and "
+                            f"that its weights are on one scale")
     return values
 
 
 #: the largest sampling weight must lie in this range (the weights are rescaled, but sums of squares of far
 #: smaller or larger numbers leave the range of floating-point numbers)
 WEIGHT_RANGE = (1e-100, 1e100)
+#: sampling weights whose Kish effective sample size is below this many rows leave weighted covariances with no spread
+#: to speak of (one row carrying the weight): refused, naming the weights (a rule of this tool)
+FEWEST_EFFECTIVE_ROWS = 2.0
 #: frequency weights may count at most this many rows (fit indices of larger N are not computed reliably)
 MAX_FREQUENCY_TOTAL = 1e9
 

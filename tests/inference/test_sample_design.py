@@ -642,3 +642,18 @@ def test_check_and_the_data_line_count_rows_by_their_frequency_weights(hs_data):
     assert fitted.n_obs == total
     text = " ".join(fitted.summary().split())
     assert f"{total:,.0f} rows analysed, counted by their frequency weights (k), of 301 read" in text
+
+
+def test_a_strata_column_of_labelled_codes_names_its_strata_not_stratums(hs_data):
+    # new-user trial s16: "its stratums are named by those labels" in every view; the plural is the design's own word
+    from cfa_tool.data.labels import CODED_LABELS
+    from cfa_tool.data.sample_design import DesignColumns, check_design
+
+    data = hs_data.assign(unit=np.arange(len(hs_data)) // 5,
+                          st=np.where(np.arange(len(hs_data)) // 5 % 2 == 0, "Ashvale", "Brindlemoor"))
+    data.attrs[CODED_LABELS] = {"st": {"1": "Ashvale", "2": "Brindlemoor"},
+                                "unit": {str(k): f"home {k}" for k in range(61)}}
+    _, notes = check_design(data, DesignColumns(None, "unit", "st"), tuple(ITEMS), None, "data")
+    said = " ".join(notes)
+    assert "The strata column 'st'".lower()[4:] in said.lower() and "its strata are named by those labels" in said
+    assert "its clusters are named by those labels" in said and "stratums" not in said
