@@ -58,6 +58,13 @@ class RobustFit:
         """The statistic's name in tables and notes (method.FitTest.design_label)."""
         return self.test.design_label(self.design)
 
+    def statistic(self, plural: bool = False) -> str:
+        """The statistic in running text: 'Yuan-Bentler statistic', or under a design 'design-based statistic
+        (Yuan-Bentler scaling)'."""
+        noun = "statistics" if plural else "statistic"
+        return (f"design-based {noun} ({self.test.label} scaling)" if self.design and self.label != self.test.label
+                else f"{self.test.label} {noun}")
+
     @property
     def pieces(self) -> tuple[tuple[str, float], ...]:
         """(name, value) of what turns the chi-square into the statistic, named as ``test.pieces`` names them."""

@@ -1185,7 +1185,7 @@ def comparison_paragraph(comparison) -> str:
         parts.append(f"In every model, {said[:1].lower()}{said[1:]}")
     parts += [_model_sentences(f"{label[name]} ({name})", r, keys_said) for name, r in zip(names, results)]
     parts += _design_sentences(list(results))
-    statistic = f" (the {first.robust.label} statistic and robust indices)" if first.robust is not None else ""
+    statistic = f" (the {first.robust.statistic()} and robust indices)" if first.robust is not None else ""
     for name, r in zip(names, results):  # problems first: before the figures a reader might take as support
         if r.converged and not r.admissible:
             found = _list([_phrase(p, r) for p in r.problems if p.kind.inadmissible])
@@ -1207,7 +1207,7 @@ def comparison_paragraph(comparison) -> str:
     methods = sorted({found[0].method for found in shown.values() if found}, key=_PREFERRED.index)
     if methods:
         fits = ("" if first.method.ordinal or first.robust is None else
-                f" of the {first.robust.label} statistics")
+                f" of the {first.robust.statistic(plural=True)}")
         parts.append(f"Nested models (found numerically: the general model reproduces the restricted model's implied "
                      f"{'thresholds and correlations' if first.method.ordinal else 'moments'}; Bentler & Satorra, 2010) "
                      f"were compared by {_list([m.phrase for m in methods])}{fits}"
@@ -1541,7 +1541,7 @@ def _replication_sentences(rep, lead: str, test: bool = True) -> list[str]:
             found = _list([_phrase(p, result) for p in result.problems if p.kind.inadmissible])
             parts.append(f"{lead}the solution in the {name} sample was not admissible ({found}): its estimates and "
                          f"fit do not describe a population.")
-    statistic = f" (the {rep.calibration_result.robust.label} statistic and robust indices)" \
+    statistic = f" (the {rep.calibration_result.robust.statistic()} and robust indices)" \
         if rep.adjusted and rep.calibration_result.robust is not None else ""
     parts.append(f"{lead}fit{statistic} in the calibration sample, {_fit_figures(rep.calibration_result)}; in the "
                  f"validation sample, {_fit_figures(rep.loose)}.")

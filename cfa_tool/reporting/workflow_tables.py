@@ -843,7 +843,7 @@ def bootstrap_report(boot) -> Report:
                      f"({boot.bollen_stine_converged} converged resamples; normal-theory p {p_value(result.fit.p_value)}).")
     elif boot.bollen_stine_not_computed:
         robust = result.robust
-        test = (f"{robust.label} statistic (p {p_value(robust.p_value_scaled)})" if robust is not None
+        test = (f"{robust.statistic()} (p {p_value(robust.p_value_scaled)})" if robust is not None
                 else f"chi-square (p {p_value(result.fit.p_value)})")
         lines.append(f"No Bollen-Stine p-value: {boot.bollen_stine_not_computed}; the test of fit remains the fit's "
                      f"{test}.")
