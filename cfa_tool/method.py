@@ -97,6 +97,27 @@ class FitTest(Choice):
     # complete rows, Yuan-Bentler with full-information ML, the adjusted test of least squares for ordinal items
     ROBUST = ("robust", "robust", "a robust test", True)
 
+    def design_label(self, design: bool) -> str:
+        """The scaled test's name in tables and notes: under a sampling design (``design``) the scaling is computed
+        from the design-based covariance of the sample moments or the rows' scores (cfa_tool.inference.design), a
+        design-based scaled test (new-user trial s16: it was called Yuan-Bentler or Satorra-Bentler alone)."""
+        if not design or self not in (FitTest.SATORRA_BENTLER, FitTest.YUAN_BENTLER):
+            return self.label
+        return f"design-based, {self.label} scaling"
+
+    def design_phrase(self, design: bool) -> str:
+        """The scaled test in the words of a methods paragraph, with its source; under a sampling design, Satorra and
+        Bentler's (1994) scaling with the design-based covariance of the sample moments (pseudo-maximum likelihood;
+        Muthén & Satorra 1995) or, with full-information ML, Yuan and Bentler's (2000) with the design-based
+        covariance of the rows' scores (Asparouhov 2005)."""
+        if not design or self not in (FitTest.SATORRA_BENTLER, FitTest.YUAN_BENTLER):
+            return f"the {self.label} scaled test"
+        if self is FitTest.SATORRA_BENTLER:
+            return ("a design-based scaled test (the Satorra-Bentler scaling with the design-based covariance of the "
+                    "sample moments; Muthén & Satorra, 1995)")
+        return ("a design-based scaled test (the Yuan-Bentler scaling with the design-based covariance of the rows' "
+                "scores; Asparouhov, 2005)")
+
     def for_rows(self, missing: "MissingData | None") -> "FitTest":
         """The robust test resolved for how rows with gaps are handled (other tests unchanged)."""
         if self is not FitTest.ROBUST:
@@ -200,6 +221,8 @@ class FitMethod:
     items: Items = Items.CONTINUOUS
     thresholds: bool = False  # ordinal items: thresholds are parameters (the form used with groups)
     clustered: bool = False  # robust standard errors from per-cluster sums of the rows' scores (a sampling design)
+    #: the sandwich and the scaled test are design-based (sampling weights, clusters or strata)
+    design_based: bool = False
     #: full-information ML only: the columns beside the model in its likelihood (auxiliary variables in Graham's
     #: 2003 saturated-correlates form, estimation/auxiliary.py)
     helpers: tuple[str, ...] = ()
@@ -235,10 +258,10 @@ class FitMethod:
             return f"{self.weighting.label} least squares on polychoric correlations (ordinal items{extra}), {errors}"
         text = self.estimator.label
         if self.test is FitTest.SATORRA_BENTLER:
-            text += (" with Satorra-Bentler scaled test and "
+            text += (f" with {self._scaled_test()} and "
                      + ("cluster-robust standard errors" if self.clustered else "robust standard errors"))
         elif self.test is FitTest.YUAN_BENTLER:
-            text += (" with Yuan-Bentler scaled test and "
+            text += (f" with {self._scaled_test()} and "
                      + ("cluster-robust standard errors" if self.clustered else "robust (Huber-White) standard errors")
                      + f" from the {self.bread.label}")
         if self.full_information:
@@ -249,10 +272,18 @@ class FitMethod:
             text += f", standard errors from the {self.information.label}"
         return text
 
+    def _scaled_test(self) -> str:
+        """The scaled test in the status line: 'Yuan-Bentler scaled test', or under a sampling design 'design-based
+        scaled test (Yuan-Bentler scaling)' (:meth:`FitTest.design_label`)."""
+        if self.design_based:
+            return f"design-based scaled test ({self.test.label} scaling)"
+        return f"{self.test.label} scaled test"
+
     def to_dict(self) -> dict:
         return {"estimator": self.estimator.value, "test": self.test.value, "information": self.information.value,
                 "missing": self.missing.value, "weighting": self.weighting.value if self.weighting else None,
                 "items": self.items.value, "thresholds_as_parameters": self.thresholds, "clustered": self.clustered,
+                "design_based": self.design_based,
                 "missing_helpers": list(self.helpers)}
 
 

@@ -62,6 +62,8 @@ class ProblemKind(enum.Enum):
     SMALL_EFFECTIVE_SAMPLE = ("small effective sample", "small effective sample", False)
     # frequency weights that make N many times the rows: likely expansion (sampling) weights read as counts
     FREQUENCY_WEIGHTS_LARGE = ("frequency weights far above the rows", "weights count many rows", False)
+    # groups with rows in the same strata, their design-based errors computed as if each group were drawn apart
+    GROUPS_SHARE_STRATA = ("groups share strata", "groups share strata", False)
     # not of the solution but of the data: values in item columns that look like no answers (data.odd_values)
     VALUES_NOT_ANSWERS = ("values that look like no answers", "values that look like no answers", False)
     # values the data file itself marks as no answer, read as missing (data.non_answers): said, not a problem
@@ -141,7 +143,7 @@ class ProblemKind(enum.Enum):
 #: problems not of the solution but of the sampling design it was fitted under (the methods paragraph states them
 #: beside the design)
 DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.SMALL_EFFECTIVE_SAMPLE,
-                             ProblemKind.FREQUENCY_WEIGHTS_LARGE})
+                             ProblemKind.FREQUENCY_WEIGHTS_LARGE, ProblemKind.GROUPS_SHARE_STRATA})
 
 
 #: rows per free parameter a common rule of thumb asks for (Bentler & Chou 1987, recalled from memory: as low as 5
@@ -360,6 +362,8 @@ class Problem:
             K.SMALL_EFFECTIVE_SAMPLE: f"very uneven weights (Kish's effective sample size {v})",
             K.FREQUENCY_WEIGHTS_LARGE: f"frequency weights counting {v.split('.')[0]} rows, far more than the rows "
                                        f"analysed (expansion weights read as counts?)",
+            K.GROUPS_SHARE_STRATA: "groups sharing strata, whose standard errors treat each group as drawn apart "
+                                   "within each stratum",
             K.SMALL_SAMPLE: f"fewer rows ({v.split('.')[0]}) than free parameters of the model",
             K.GROUP_LABELS_BY_CASE: "group labels that differ only in upper and lower case, analysed as different "
                                     "groups",

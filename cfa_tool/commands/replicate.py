@@ -10,7 +10,14 @@ from cfa_tool.commands.common import add_halves_file, add_report_options, check_
 
 
 def add_parser(sub) -> None:
-    rep = sub.add_parser("replicate", help="check that a model replicates in new data (or in random halves of one data set)")
+    rep = sub.add_parser("replicate", help="check that a model replicates in new data (or in random halves of one data set)",
+                         epilog="Sampling designs: replicate takes no weights, clusters or strata (--weights, --cluster "
+                                "and --strata are refused); its test of one solution and cross-validation index take "
+                                "the rows as independent and equally weighted, and --data is split row by row, so rows "
+                                "of one household, school or other cluster can fall in both halves. For rows that come "
+                                "in clusters, split the file by cluster and give the parts as --calibration and "
+                                "--validation; for a weighted or stratified sample, fit each sample with 'fit' and its "
+                                "design options.")
     rep.add_argument("model", metavar="MODEL", help="model file")
     rep.add_argument("--calibration", metavar="FILE", help="data the model is estimated in")
     rep.add_argument("--validation", metavar="FILE", help="new data the estimates are checked in")
@@ -29,10 +36,12 @@ def add_parser(sub) -> None:
                           "--calibration file (or --data): each file's columns are renamed by its own option")
     O.add_ordinal_options(rep)
     O.add_incomplete_rows_option(rep, O.REFITS_AS_THE_FIT)
-    O.refuse_design_options(rep, "replicate's test of one solution and cross-validation index compare the discrepancies of "
-                                 "independent, equally weighted rows (and the random halves would split clusters), so "
-                                 "they would mislead under a sampling design; fit each sample with 'fit' and its design "
-                                 "options instead")
+    O.refuse_design_options(rep, "replicate compares samples of independent, equally weighted rows (two files, or one "
+                                 "file split at random row by row) and takes no weights, clusters or strata: its test "
+                                 "of one solution and cross-validation index would mislead under a sampling design; "
+                                 "fit each sample with 'fit' and its design options instead, or, for rows that come in "
+                                 "clusters, split the file by cluster and give the parts as --calibration and "
+                                 "--validation")
     add_report_options(rep)
 
 

@@ -132,13 +132,16 @@ def _by_case(values) -> dict[str, list[tuple[str, int]]]:
     return by_fold
 
 
-def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "group", unit: str = "group") -> list[Text]:
+def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "group",
+                unit: str | tuple[str, str] = "group") -> list[Text]:
     """Notes on how the labels of ``column`` were read: a column of codes read as their value labels (SPSS, Stata),
     and labels that differed only by spaces at their ends, invisible format characters or Unicode form and were read
     as one (:func:`label_text`), each raw text with its rows and the invisible characters named (U+200B ZERO WIDTH
     SPACE): of the group column (every command with groups gives it through
     :func:`cfa_tool.pipeline.inputs.moments_for` or :func:`cfa_tool.pipeline.inputs.ordinal_groups`), or with
-    ``part`` and ``unit`` of a cluster or strata column (cfa_tool.data.sample_design)."""
+    ``part`` and ``unit`` of a cluster or strata column (cfa_tool.data.sample_design); ``unit``: one word, or (one,
+    several) where the plural is not the word with an 's' ('stratum', 'strata')."""
+    unit, units = unit if isinstance(unit, tuple) else (unit, f"{unit}s")
     values = frame[column].dropna()
     notes = []
     coded = code_order(frame, column)
@@ -146,18 +149,18 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
         pairs = list(coded.items())
         listed = ", ".join(f"{printable(code)} as '{printable(label)}'" for code, label in pairs[:shown])
         notes.append(f"the {part} column '{printable(column)}' holds codes with value labels in the data file; its "
-                     f"{unit}s are named by those labels ({listed}"
+                     f"{units} are named by those labels ({listed}"
                      + (f" and {len(pairs) - shown} more" if len(pairs) > shown else "") + ")")
         for label, codes in shared_labels(coded):
             said = ", ".join(printable(c) for c in codes[:-1]) + f" and {printable(codes[-1])}"
             notes.append(f"in the {part} column '{printable(column)}', codes {said} carry the same value label "
-                         f"'{printable(label)}' and were read as one {unit}; if they are different {unit}s, give them "
+                         f"'{printable(label)}' and were read as one {unit}; if they are different {units}, give them "
                          f"different value labels in the data file")
     spelled = spelled_labels(frame, column, values)
     if spelled:
         notes.append(f"in the {part} column '{printable(column)}', numbers written in different ways were read as one "
                      f"{unit}: {listed_labels(spelled, shown)}"
-                     f" (if they are different groups, give them labels that are not plain numbers, such as 'D01')")
+                     f" (if they are different {units}, give them labels that are not plain numbers, such as 'D01')")
     found = merged_labels(values)
     blank = [texts for label, texts in found if not label]
     if blank and part == "group":  # cells that look empty are no group (data.groups.group_keys)
@@ -202,7 +205,7 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
         filter_text = f"{printable(column)} != '{first}'"
         notes.append(f"in the {part} column '{printable(column)}', {listed}{more} read{'s' if len(said) == 1 else ''} "
                      f"like no answer, yet {'was' if len(said) == 1 else 'were'} kept as "
-                     f"{f'a {unit}' if len(said) == 1 else f'{unit}s'} of {'its' if len(said) == 1 else 'their'} own (words that say no "
+                     f"{f'a {unit}' if len(said) == 1 else units} of {'its' if len(said) == 1 else 'their'} own (words that say no "
                      f"answer are read as missing in item columns only); if such rows have no {unit}, leave them out "
                      f"with a row filter" + Note((Command(f" such as {Option.KEEP.given(filter_text)}"),)))
     return notes

@@ -132,6 +132,9 @@ class SampleDesign:
     # group, when the groups are independent samples); their unit is centred at the mean of all units' sums
     lone_strata: tuple[str, ...] = ()
     shared_clusters: bool = False  # the groups share clusters: domains of one cluster sample
+    # strata with rows of more than one group, when the groups are taken as independent samples (not sharing
+    # clusters): each group's part of such a stratum is a stratum of its own in the design-based errors
+    shared_strata: tuple[str, ...] = ()
 
     def to_dict(self) -> dict:
         c = self.columns
@@ -142,6 +145,7 @@ class SampleDesign:
                 "groups": (None if not self.group_rows else
                            "domains sharing clusters" if self.shared_clusters else "independent samples"),
                 "strata_with_a_single_unit": list(self.lone_strata),
+                "strata_shared_by_groups": list(self.shared_strata),
                 "single_unit_centred_at": "the mean of all units' sums" if self.lone_strata else None}
 
     def sentence(self, full_information: bool = False, ordinal: bool = False,
@@ -185,8 +189,12 @@ class SampleDesign:
                       "cluster's sums gather the contributions of its rows in every group, so the groups' estimates "
                       "are correlated through their clusters (Binder 1983).")
         elif self.group_rows and (c.cluster or c.strata):
-            after += (" The groups are taken as independent samples" + (", each with its own clusters" if c.cluster else "")
-                      + (", each group's part of a stratum a stratum of its own" if c.strata else "") + ".")
+            after += (" The groups were taken as independent samples" + (", each with its own clusters" if c.cluster
+                                                                          else "")
+                      + ("" if not c.strata else
+                         "; each group's rows within a stratum were treated as a stratum of their own"
+                         if self.shared_strata else ", each with its own strata") + ".")
+            # groups that share strata: shared_strata_caution follows among the design's cautions
         lone = self.lone_text()
         if lone:
             after += f" {lone[0].upper()}{lone[1:]}."
@@ -207,6 +215,40 @@ class SampleDesign:
                            f"estimating equations) over {spread}.") + after
         return text + (f" Standard errors are sandwich estimates from the rows' score contributions over {spread}, and "
                        f"the chi-square is scaled accordingly.") + after
+
+    def score_test_text(self) -> str | None:
+        """What the modification indices of a continuous maximum-likelihood fit under this design are: the normal-theory
+        score tests of the weighted likelihood (pipeline.continuous: assessment.modification.score_tests on the
+        weighted moments), which take the rows as independent and equally informative; design-based ones would divide
+        each by the design effect of its score, usually above 1 with clusters and uneven weights (Satorra's 1989
+        generalized score test).  None for frequency weights alone, which are repeated rows."""
+        c = self.columns
+        if not c.robust:
+            return None
+        parts = [what for what, there in (("sampling weights", c.weights is not None and c.kind is WeightKind.SAMPLING),
+                                          ("clusters", c.cluster is not None), ("strata", c.strata is not None))
+                 if there]
+        return SCORE_TESTS_WITHOUT_DESIGN.format(parts[0] if len(parts) == 1 else
+                                                 ", ".join(parts[:-1]) + " and " + parts[-1])
+
+    def shared_strata_caution(self) -> str | None:
+        """Why the design-based errors of groups taken as independent samples rest on an assumption when the groups
+        have rows in the same strata (None otherwise): each group's part of a stratum is centred as a stratum of its
+        own, which treats the groups' numbers of rows in each stratum as fixed by the design; groups drawn together
+        (domains of one sample: a characteristic such as the form's language, not a part of the sampling) have
+        random sizes within strata, and rows of different groups in one household or other cluster answer alike,
+        both left out (Binder 1983 for domains of a stratified sample; Lumley 2010)."""
+        if not self.shared_strata or not self.group_rows or self.shared_clusters:
+            return None
+        count = len(self.shared_strata)
+        which = ", ".join(f"'{name}'" for name in self.shared_strata[:LONE_STRATA_NAMED]) + (
+            f" and {count - LONE_STRATA_NAMED} more" if count > LONE_STRATA_NAMED else "")
+        return (f"The groups share {count} {'stratum' if count == 1 else 'strata'} of '{self.columns.strata}' "
+                f"({which}), and the standard errors and tests treat each group's rows in a stratum as drawn apart, as "
+                f"if the design had fixed how many rows of each group each stratum holds. If the groups were drawn "
+                f"together (one sample, the groups a characteristic of its rows), their sizes within strata were not "
+                f"fixed (usually a small difference), and rows of different groups in one household or other cluster "
+                f"may answer alike, which standard errors without the clusters leave out: they are then too small.")
 
     def lone_text(self) -> str:
         """What was done with strata of a single sampling unit (empty when there are none)."""
@@ -288,6 +330,13 @@ class SampleDesign:
                 f"clusters (common practice).")
 
 
+#: the first note under the modification indices of a fit under a sampling design (SampleDesign.score_test_text)
+SCORE_TESTS_WITHOUT_DESIGN = (
+    "These indices do not take the sampling design ({}) into account: they are score tests of the weighted likelihood "
+    "that take the rows as independent, and are usually larger than design-based tests would be (Satorra's 1989 "
+    "generalized score test), more so the more the rows of one cluster answer alike or the more uneven the weights. "
+    "Judge a parameter they point to by its design-based test: refit with it freed and read its z, whose standard "
+    "error takes the design into account.")
 #: strata with a single unit named in the methods paragraph and the caution (the rest counted)
 LONE_STRATA_NAMED = 5
 #: Kish's effective sample size below this share of the rows (a design effect of the weighting, n / n_eff = 1 + CV^2 of
@@ -401,7 +450,8 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
                             f"each; fit without that group ({Option.KEEP}) or without the cluster column")
     from cfa_tool.data.labels import label_notes
 
-    for part, unit, name in (("cluster", "cluster", columns.cluster), ("strata", "stratum", columns.strata)):
+    for part, unit, name in (("cluster", ("cluster", "clusters"), columns.cluster),
+                             ("strata", ("stratum", "strata"), columns.strata)):
         if name is not None:
             notes += label_notes(frame, name, part=part, unit=unit)
     return frame, notes
@@ -419,18 +469,30 @@ def shared_cluster(frame: pd.DataFrame, columns: DesignColumns, group: str | Non
 
 
 def refuse_shared_clusters(frame: pd.DataFrame, columns: DesignColumns | None, group: str | None, source: str,
-                           estimation: str) -> None:
+                           estimation: str, complete_rows: bool = False) -> None:
     """A one-line error when groups share clusters (domains of one cluster sample) under an ``estimation`` (e.g.
-    'full-information ML') whose design-based errors are computed group by group."""
+    'full-information ML') whose design-based errors are computed group by group, with the routes that do run: the
+    weights and strata without the clusters (what that gives up said), each group alone with its clusters, and with
+    ``complete_rows`` the complete rows only (what that assumes said).  Never the refused route itself."""
     if columns is None:
         return
     cluster = shared_cluster(frame, columns, group)
     if cluster is not None:
+        kept = " and ".join(f"the {what}" for what, name in (("weights", columns.weights), ("strata", columns.strata))
+                            if name is not None)
+        without = (f"leave out {Option.CLUSTER} to keep {kept} (the groups are then taken as independent samples, and "
+                   f"the standard errors and tests leave out that rows of one cluster answer alike, so they come out "
+                   f"too small when they do)" if kept else
+                   f"leave out {Option.CLUSTER} (the standard errors and tests then leave out that rows of one cluster "
+                   f"answer alike, so they come out too small when they do)")
+        listwise = (f", or analyse the complete rows only ({Option.INCOMPLETE_ROWS.given('listwise')}; groups that "
+                    f"share clusters are analysed so), which assumes answers missing completely at random and leaves "
+                    f"out every row with a gap" if complete_rows else "")
         raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' has rows in "
-                        f"more than one group of '{printable(group)}'; groups that share clusters (domains of one "
-                        f"sample) are analysed with their clusters by continuous maximum likelihood with complete "
-                        f"rows, not yet by {estimation}: fit each group alone with its clusters "
-                        f"({Option.KEEP.given(f'{printable(group)} = ...')}), or group by a column that clusters nest in")
+                        f"more than one group of '{printable(group)}' (the groups share clusters: domains of one "
+                        f"sample), and {estimation} does not yet take clusters shared by groups into account: {without}, "
+                        f"or fit each group "
+                        f"alone with its clusters ({Option.KEEP.given(f'{printable(group)} = ...')}){listwise}")
 
 
 def refuse_lone_strata(design: RowDesign, columns: DesignColumns, source: str, why: str) -> None:
@@ -500,7 +562,8 @@ def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.
         fraction = values != np.round(values)
         if fraction.any():
             raise DataError(f"{where} {rows[np.argmax(fraction)]}: frequency weights count rows and must be whole "
-                            f"numbers, not {values[np.argmax(fraction)]:g} (for sampling weights leave out the kind)")
+                            f"numbers, not {float(values[np.argmax(fraction)])!r} (for sampling weights leave out the "
+                            f"kind)")  # the value as given: ':g' showed 2.0000000001 as 2 (hostile trial s16)
         if values.sum() > MAX_FREQUENCY_TOTAL:
             raise DataError(f"{source}: the frequency weights in column '{printable(name)}' count {values.sum():.3g} rows, "
                             f"more than the {MAX_FREQUENCY_TOTAL:,.0f} the tool computes with")
@@ -508,12 +571,25 @@ def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.
         raise DataError(f"{source}: the sampling weights in column '{printable(name)}' reach {values.max():.3g}, outside "
                         f"the range the tool computes with ({WEIGHT_RANGE[0]:g} to {WEIGHT_RANGE[1]:g}); sampling weights "
                         f"count only relative to each other, so divide the column by its mean")
+    elif values.max(initial=0.0) > 0:
+        relative = values / values.max()  # Kish's (1965) effective sample size, free of the weights' scale
+        effective = relative.sum() ** 2 / (relative @ relative)
+        if effective < FEWEST_EFFECTIVE_ROWS:  # hostile trial s16: blamed an item as constant instead
+            top = int(np.argmax(values))
+            raise DataError(f"{source}: the sampling weights in column '{printable(name)}' put almost all the weight on "
+                            f"{'one row' if effective < 1.5 else 'a few rows'} (row {rows[top]} has weight "
+                            f"{float(values[top])!r}; Kish's effective sample size {effective:.2f} of {len(values)} rows), "
+                            f"so the weighted answers have next to no spread; check that it is the right column and "
+                            f"that its weights are on one scale")
     return values
 
 
 #: the largest sampling weight must lie in this range (the weights are rescaled, but sums of squares of far
 #: smaller or larger numbers leave the range of floating-point numbers)
 WEIGHT_RANGE = (1e-100, 1e100)
+#: sampling weights whose Kish effective sample size is below this many rows leave weighted covariances with no spread
+#: to speak of (one row carrying the weight): refused, naming the weights (a rule of this tool)
+FEWEST_EFFECTIVE_ROWS = 2.0
 #: frequency weights may count at most this many rows (fit indices of larger N are not computed reliably)
 MAX_FREQUENCY_TOTAL = 1e9
 
@@ -578,7 +654,11 @@ def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list) -
         clusters, lone = len(joint.cluster_names), joint.lone_strata()
     else:
         lone = tuple(dict.fromkeys(name for d in designs for name in d.lone_strata()))
-    return SampleDesign(columns, rows, total, kish, clusters, strata, group_rows, lone, shared)
+    across: tuple[str, ...] = ()
+    if len(designs) > 1 and columns.strata is not None and not shared:
+        named = [set(_named(np.unique(d.strata), d.strata_names)) for d in designs]
+        across = tuple(sorted(name for name in set().union(*named) if sum(name in n for n in named) > 1))
+    return SampleDesign(columns, rows, total, kish, clusters, strata, group_rows, lone, shared, across)
 
 
 

@@ -50,6 +50,20 @@ class RobustFit:
     # the scale-shifted form (Asparouhov & Muthén 2010): statistic = scale * chi-square + shift (None otherwise)
     scale: float | None = None
     shift: float | None = None
+    #: the scaling comes from the design-based covariance of a sampling design (pipeline.inputs.with_design)
+    design: bool = False
+
+    @property
+    def label(self) -> str:
+        """The statistic's name in tables and notes (method.FitTest.design_label)."""
+        return self.test.design_label(self.design)
+
+    def statistic(self, plural: bool = False) -> str:
+        """The statistic in running text: 'Yuan-Bentler statistic', or under a design 'design-based statistic
+        (Yuan-Bentler scaling)'."""
+        noun = "statistics" if plural else "statistic"
+        return (f"design-based {noun} ({self.test.label} scaling)" if self.design and self.label != self.test.label
+                else f"{self.test.label} {noun}")
 
     @property
     def pieces(self) -> tuple[tuple[str, float], ...]:
@@ -67,7 +81,7 @@ class RobustFit:
             d["mean_adjusted_scaling"] = d.pop("scaling_factor")
             del d["baseline_scaling_factor"]
         d["rmsea_robust_ci90"] = list(self.rmsea_robust_ci90)
-        return {"method": self.test.label, **d}
+        return {"method": self.label, **d}
 
 
 def vech_indices(p: int) -> tuple[np.ndarray, np.ndarray]:

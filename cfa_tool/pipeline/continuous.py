@@ -28,6 +28,7 @@ from cfa_tool.assessment.standardized import r_squared, standardization, standar
 from cfa_tool.data.kept_rows import RowNaming, rows_listed
 from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments, moments_with_gaps
+from cfa_tool.data.sample_design import shared_clusters
 from cfa_tool.errors import CfaError, NotIdentified, OptionError
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
 from cfa_tool.estimation.strategy import Alternative, search
@@ -321,6 +322,18 @@ def unestimated(spec: Spec, moments: SampleMoments | list[tuple[str | None, Samp
 FULL_INFORMATION_INSTEAD = Note(("full-information ML", Command(" (--incomplete-rows full-information)")))
 PAIRWISE_INSTEAD = Note(("pairwise present rows (the default for ordinal items",
                          Command(", without --incomplete-rows listwise"), ")"))
+#: what keeps them when the groups share clusters, which full-information ML cannot yet take into account
+#: (data.sample_design.refuse_shared_clusters): never the route that is refused (new-user trial s16)
+CLUSTERS_LEFT_OUT_INSTEAD = Note(("full-information ML without the clusters",
+                                  Command(" (leave out --cluster and --incomplete-rows listwise)"),
+                                  ", whose standard errors and tests then leave out that rows of one cluster answer "
+                                  "alike,"))
+
+
+def gaps_instead(shared_clusters: bool) -> Note:
+    """What would use every answer of the rows listwise deletion left out: full-information ML, without the
+    clusters when the groups share them."""
+    return CLUSTERS_LEFT_OUT_INSTEAD if shared_clusters else FULL_INFORMATION_INSTEAD
 
 
 def listwise_problem(dropped: int, read: int, where: str = "",
@@ -395,7 +408,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
 
     left_out, warnings = rows_left_out([(label, m.rows_dropped, m.rows_read, m.n_obs, m.unanswered_rows,
                                          m.unanswered_ids, m.row_naming, m.text_lines) for label, m in groups],
-                                       options.missing)  # cautions first in every view, notes among the warnings
+                                       options.missing, gaps_instead(len(groups) > 1 and shared_clusters(
+                                           [m.design for _, m in groups])))  # cautions first in every view, notes among the warnings
     # with helpers, the rows that answer no item but a helper (inputs.with_helpers keeps them)
     helpers_only = ([int((~a).sum()) for a in est.auxiliary.answered] if est.auxiliary is not None
                     else [0] * len(groups))

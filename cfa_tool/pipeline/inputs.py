@@ -35,7 +35,7 @@ from cfa_tool.data.readers import (LoadedData, blank_text_as_missing, drop_blank
 from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame, renamed_hint
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
-                                         design_weights, refuse_shared_clusters)
+                                         design_weights, refuse_shared_clusters, shared_cluster)
 from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, holds_summary, pasted_matrix, read_summary_file,
                                          summary_in_other_text, summary_moments)
 from cfa_tool import options as opt
@@ -407,8 +407,8 @@ def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None 
     else:
         _check_group_column(spec, group)
         if missing == MissingData.FULL_INFORMATION:
-            refuse_shared_clusters(frame, design, group, source, "full-information ML (rows with missing answers; "
-                                   "--incomplete-rows listwise keeps complete rows only)")
+            refuse_shared_clusters(frame, design, group, source, "full-information ML (rows with missing answers)",
+                                   complete_rows=True)
         groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing, weights)
         notes = _no_group_notes(no_group, group, len(frame)) + label_notes(frame, group)
     if design is not None:
@@ -671,7 +671,7 @@ def weighted_out_problems(loaded: LoadedData, group: str | None, design: DesignC
 
 
 def odd_value_problems(loaded: LoadedData, group: str | None = None, design: DesignColumns | None = None,
-                       helpers: tuple[str, ...] = (), listwise: bool = False) -> tuple:
+                       helpers: tuple[str, ...] = (), listwise: bool = False, shared_clusters: bool = False) -> tuple:
     """Values in the item columns that look like no answers (a missing-value code, a totals row), and those the
     file marks as no answer and that were read as missing when rows leave the analysis because of them
     (data.non_answers.non_answer_caution; ``listwise``: rows with gaps are left out), as cautions that come first in
@@ -689,10 +689,11 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
                 + (group_case_problems(loaded.frame, group) if group is not None else ())
                 + tuple(p for part, unit, name in design_columns if name is not None
                         for p in group_case_problems(loaded.frame, name, part, unit))
-                + odd_value_problems(loaded, helpers=helpers, listwise=listwise))
+                + odd_value_problems(loaded, helpers=helpers, listwise=listwise, shared_clusters=listwise and (
+                    design is not None and shared_cluster(loaded.frame, design, group) is not None)))
 
     items = (tuple(loaded.items.names) + tuple(helpers)) if loaded.items is not None else tuple(loaded.frame.columns)
-    marked = non_answer_caution(loaded.non_answers, loaded.source, items, loaded.frame, listwise)
+    marked = non_answer_caution(loaded.non_answers, loaded.source, items, loaded.frame, listwise, shared_clusters)
     # a code already named as labelled beyond the scale of the same items is not named again as a missing-value code
     from cfa_tool.data.non_answers import BeyondScale
     from cfa_tool.data.odd_values import OddKind
@@ -879,7 +880,7 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
                     f"rows pasted twice), each is counted as another respondent, so N is too large, the standard "
                     f"errors too small and the chi-square too large.",
                     Note(("delete the copies in a copy of the data file and analyse that, or leave them out with ",
-                          Command(f"{Option.KEEP}", "a row filter"), f" on a column that tells them apart",
+                          Command(f"{Option.KEEP}", "a row filter"), " on a column that tells them apart",
                           Command(example), "; if they are different respondents who answered alike, nothing needs "
                           "to change."))),)
 
@@ -1325,7 +1326,7 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
         design_test(fit_options, design)
     if fit_options.missing_helpers:
         helpers_can_apply(fit_options, frame, spec.observed_names, group, values)
-    fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group, values)
+    fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group, values, design)
     notes = missing_notes + notes
     few, few_note = few_categories(frame, spec.observed_names, values)
     notes += few_note
@@ -1396,9 +1397,10 @@ def design_test(fit_options, design: DesignColumns):
         raise OptionError("with sampling weights, clusters or strata the standard errors are sandwich ones, so the "
                           f"information they come from ({Option.STANDARD_ERRORS_FROM}) cannot be chosen; remove that "
                           f"option")
-    if fit_options.test is FitTest.NORMAL:  # resolved for the rows as --robust is (FitOptions, assess)
-        return replace(fit_options, test=FitTest.ROBUST)
-    return fit_options
+    if fit_options.test is not FitTest.NORMAL:  # hostile trial s16: accepted, where '--ordinal all --robust' is refused
+        raise OptionError(f"with sampling weights, clusters or strata the standard errors are already sandwich ones and "
+                          f"the test a design-based scaled one, so {Option.ROBUST} cannot apply; remove it")
+    return replace(fit_options, test=FitTest.ROBUST)  # resolved for the rows as --robust is (FitOptions, assess)
 
 
 def design_problems(design, free: int) -> tuple:
@@ -1424,6 +1426,16 @@ def design_problems(design, free: int) -> tuple:
                                   ": weights are read as sampling weights by default, rescaled to the rows, with "
                                   "sandwich standard errors; if every row really stands for that many identical "
                                   "respondents, nothing needs to change."))),) + problems
+    across = design.shared_strata_caution()
+    if across:
+        problems += (Problem(ProblemKind.GROUPS_SHARE_STRATA, (), float(len(design.shared_strata)), across,
+                             Note(("if rows of the groups share households or other clusters, ",
+                                   Command(f"give them with {Option.CLUSTER}", "give those clusters too"),
+                                   ": groups that share clusters are then analysed as domains of one sample (with "
+                                   "complete rows only when rows have gaps",
+                                   Command(f", {Option.INCOMPLETE_ROWS.given('listwise')}"),
+                                   "); otherwise say in the report that the groups were treated as drawn apart "
+                                   "within strata."))),)
     uneven = design.weight_caution()
     if uneven:
         problems += (Problem(ProblemKind.SMALL_EFFECTIVE_SAMPLE, (), round(float(design.effective_n), 1), uneven,
@@ -1444,8 +1456,11 @@ def with_design(result: FitResult, design) -> FitResult:
         # a weighted log-likelihood is a pseudo-likelihood: information criteria built on it would mislead
         fit = replace(fit, log_likelihood=None, aic=None, bic=None, sabic=None)
     # the sandwich's middle is summed by cluster: the method says so, and the status line follows from it
-    method = replace(result.method, clustered=design.columns.cluster is not None)
-    return replace(result, design=design, fit=fit, method=method, warnings=warnings,
+    method = replace(result.method, clustered=design.columns.cluster is not None,
+                     design_based=design.columns.robust and not result.method.ordinal)
+    robust = (replace(result.robust, design=True) if result.robust is not None and method.design_based
+              else result.robust)  # its scaled test is a design-based one, and named so in every view
+    return replace(result, design=design, fit=fit, method=method, warnings=warnings, robust=robust,
                    estimator=f"{method.sentence(len(result.groups))}; {design.status()}", problems=problems)
 
 
@@ -1474,9 +1489,12 @@ def check_helper_columns(helpers: tuple[str, ...], frame: pd.DataFrame, source: 
     if design is not None and design.robust:
         from cfa_tool.pipeline.continuous import HELPERS_NOT_ROBUST
 
-        raise OptionError(f"missing-data helpers ({Option.MISSING_HELPERS}) are not offered with sampling weights, "
-                          f"clusters or strata, whose standard errors are robust ones: {HELPERS_NOT_ROBUST}; frequency "
-                          f"weights ({Option.WEIGHT_KIND.given('frequency')}) are")
+        raise OptionError(f"missing-data helpers ({Option.MISSING_HELPERS}) cannot be used with sampling weights, "
+                          f"clusters or strata, whose standard errors are robust ones: {HELPERS_NOT_ROBUST}. To fit "
+                          f"with the design, leave out {Option.MISSING_HELPERS} (answers are then assumed missing at "
+                          f"random given the items only); to use the helpers, leave out the design (the standard errors "
+                          f"then take the rows as independent and equally weighted). Frequency weights "
+                          f"({Option.WEIGHT_KIND.given('frequency')}) can be used with helpers.")
 
 
 def helper_columns(spec: Spec, helpers) -> tuple[str, ...]:
@@ -1622,9 +1640,12 @@ def rows_with_gaps(frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarr
 
 
 def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, ...],
-                            group: str | None, values: np.ndarray | None = None) -> tuple[object, list[str]]:
+                            group: str | None, values: np.ndarray | None = None,
+                            design: DesignColumns | None = None) -> tuple[object, list[str]]:
     """Rows with missing answers are kept by default: full-information ML when a model variable has
-    a gap, listwise deletion only when asked for (or when nothing is missing, where the two agree)."""
+    a gap, listwise deletion only when asked for (or when nothing is missing, where the two agree).  Under a
+    ``design`` whose errors are robust ones the note adds that missing-data helpers cannot be used with it
+    (:func:`check_helper_columns`), so what full-information ML assumes rests on the items alone."""
     if fit_options.missing is not None:
         return fit_options, []
     if fit_options.test is FitTest.YUAN_BENTLER:  # the robust test of full-information ML
@@ -1647,6 +1668,10 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
                  f"full-information ML (the default when answers are missing; a fit of the complete rows only",
                  Command(" (--incomplete-rows listwise)"), " would leave those rows out)"
                  + ("; the robust test with full-information ML is the Yuan-Bentler one" if robust else "")))
+    if design is not None and design.robust and not fit_options.missing_helpers:
+        note += Note(("; missing-data helpers (auxiliary variables that predict the gaps", Command(f", {Option.MISSING_HELPERS}"),
+                      ") cannot be used with sampling weights, clusters or strata, so answers are assumed missing at "
+                      "random given the items only"))
     return replace(fit_options, missing=MissingData.FULL_INFORMATION), [note]
 
 

@@ -134,17 +134,20 @@ def _estimator_phrase(result) -> str:
                 f"items{moments}, with robust standard errors")
     base = "full-information maximum likelihood" if method.full_information else "maximum likelihood"
     if result.robust is not None:
-        test = "Yuan-Bentler" if method.full_information else "Satorra-Bentler"
+        test = (FitTest.YUAN_BENTLER if method.full_information else FitTest.SATORRA_BENTLER).design_phrase(
+            result.robust.design)
         bread = "" if method.bread is None else f" whose sandwich is built on the {method.bread.label}"
-        return f"{base} with the {test} scaled test and robust standard errors{bread}"
+        return f"{base} with {test} and robust standard errors{bread}"
     if method.information in (Information.EXPECTED, Information.OBSERVED):  # where the standard errors come from
         return f"{base}, with standard errors from the {method.information.label}"
     return base
 
 
-def _test_phrase(test: FitTest) -> str:
+def _test_phrase(test: FitTest, design: bool = False) -> str:
     if test is FitTest.SCALE_SHIFTED:
         return test.phrase
+    if design:  # a design-based scaling (method.FitTest.design_label)
+        return f"design-based scaled chi-square test ({test.label} scaling)"
     return f"{test.label} scaled chi-square test"
 
 
@@ -444,6 +447,15 @@ def _capital(text: str) -> str:
 _PAIRWISE_ASSUMPTION = f", which assumes that {MISSING_COMPLETELY_AT_RANDOM}, Little & Rubin, 2002"
 #: new-user trial s11: the fit and invariance paragraphs said every answer was used without the assumption it rests on
 _FULL_INFORMATION_ASSUMPTION = f", which assumes that {MISSING_AT_RANDOM}, Little & Rubin, 2002"
+#: what listwise deletion assumes (the same assumption as pairwise present rows, said of the rows left out)
+_LISTWISE_ASSUMPTION = _PAIRWISE_ASSUMPTION
+
+
+def _listwise_clause(dropped: int, read: int, kept: int) -> str:
+    """The rows listwise deletion left out and kept, with what it assumes (Little & Rubin, 2002), inside the
+    parentheses of the rows' phrase (new-user trial s16: the text said only how many were excluded)."""
+    return (f"; the {kept} complete {'row was' if kept == 1 else 'rows were'} analysed and {dropped} of {read} rows "
+            f"with missing answers excluded listwise{_LISTWISE_ASSUMPTION}")
 
 
 def _pairs_with_gaps(result) -> bool:
@@ -536,7 +548,7 @@ def _sample_phrase(result) -> str:
             text += (f"; {dropped} of {data.rows_read} rows answered no model variable{neither} and "
                      f"{'was' if dropped == 1 else 'were'} left out")
         else:
-            text += f"; {dropped} of {data.rows_read} rows with missing answers were excluded listwise"
+            text += _listwise_clause(dropped, data.rows_read, data.rows_read - data.rows_dropped)
     if without_group:
         text += _without_group_clause(without_group, data.rows_read, result.group_column)
     return text
@@ -707,7 +719,7 @@ def _fit_sentence(result) -> str:
         r = result.robust
         rl, rh = r.rmsea_robust_ci90
         pieces = ", ".join(f"{name} {value:.3f}" for name, value in r.pieces)
-        return (f"The {_test_phrase(r.test)} gave {CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)} "
+        return (f"The {_test_phrase(r.test, r.design)} gave {CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)} "
                 f"({pieces}); robust CFI = {fit_index_text('cfi', r.cfi_robust)}, robust TLI = "
                 f"{fit_index_text('tli', r.tli_robust)}, robust RMSEA = {fit_index_text('rmsea', r.rmsea_robust)}, 90% CI [{unit(rl)}, {unit(rh)}], "
                 f"SRMR = {fit_index_text('srmr', f.srmr)}.")
@@ -1187,7 +1199,7 @@ def comparison_paragraph(comparison) -> str:
         parts.append(f"In every model, {said[:1].lower()}{said[1:]}")
     parts += [_model_sentences(f"{label[name]} ({name})", r, keys_said) for name, r in zip(names, results)]
     parts += _design_sentences(list(results))
-    statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
+    statistic = f" (the {first.robust.statistic()} and robust indices)" if first.robust is not None else ""
     for name, r in zip(names, results):  # problems first: before the figures a reader might take as support
         if r.converged and not r.admissible:
             found = _list([_phrase(p, r) for p in r.problems if p.kind.inadmissible])
@@ -1209,7 +1221,7 @@ def comparison_paragraph(comparison) -> str:
     methods = sorted({found[0].method for found in shown.values() if found}, key=_PREFERRED.index)
     if methods:
         fits = ("" if first.method.ordinal or first.robust is None else
-                f" of the {first.robust.test.label} statistics")
+                f" of the {first.robust.statistic(plural=True)}")
         parts.append(f"Nested models (found numerically: the general model reproduces the restricted model's implied "
                      f"{'thresholds and correlations' if first.method.ordinal else 'moments'}; Bentler & Satorra, 2010) "
                      f"were compared by {_list([m.phrase for m in methods])}{fits}"
@@ -1546,7 +1558,7 @@ def _replication_sentences(rep, lead: str, test: bool = True) -> list[str]:
             found = _list([_phrase(p, result) for p in result.problems if p.kind.inadmissible])
             parts.append(f"{lead}the solution in the {name} sample was not admissible ({found}): its estimates and "
                          f"fit do not describe a population.")
-    statistic = f" (the {rep.calibration_result.robust.test.label} statistic and robust indices)" \
+    statistic = f" (the {rep.calibration_result.robust.statistic()} and robust indices)" \
         if rep.adjusted and rep.calibration_result.robust is not None else ""
     parts.append(f"{lead}fit{statistic} in the calibration sample, {_fit_figures(rep.calibration_result)}; in the "
                  f"validation sample, {_fit_figures(rep.loose)}.")
@@ -1578,8 +1590,8 @@ def replication_paragraph(replications) -> str:
     by = estimator if other == estimator else f"{estimator} (in the validation sample by {other})"
     if first.split is not None:
         rows = first.split
-        parts = [f"The replication of {model} was examined in two random halves of {rows.split} of the {rows.in_file} "
-                 f"rows of one data file{rows.kept_words()}: each half served once as the calibration sample, where the model was "
+        parts = [f"The replication of {model} was examined in two random halves, drawn row by row, of {rows.split} of "
+                 f"the {rows.in_file} rows of one data file{rows.kept_words()}: each half served once as the calibration sample, where the model was "
                  f"estimated by {by}, and once as the validation sample, where it was refitted (double "
                  f"cross-validation; Cudeck & Browne, 1983), and whether one solution holds in both halves was "
                  f"tested once (the same two halves either way); half A: {_sample_rows_phrase(first.rows[0])}; half B: "

@@ -233,9 +233,9 @@ def fit_rows(result) -> list[FitRow]:
     else:
         rlow, rhigh = r.rmsea_robust_ci90
         label, text, guide = _correction_row(r)
-        rows = [_row(f"Scaled chi-square ({r.test.label})", f"{r.chi_square_scaled:.3f} on {r.df} df, "
+        rows = [_row(f"Scaled chi-square ({r.label})", f"{r.chi_square_scaled:.3f} on {r.df} df, "
                      f"p {p_phrase(r.p_value_scaled)}", "the test to read for these data",
-                     (f"Scaled chi-square ({r.test.label})", r.chi_square_scaled, r.df, r.p_value_scaled)),
+                     (f"Scaled chi-square ({r.label})", r.chi_square_scaled, r.df, r.p_value_scaled)),
                 _row(label, text, guide, *[(name.capitalize(), value) for name, value in r.pieces]),
                 _row("Robust CFI / TLI", f"{fit_index_text('cfi', r.cfi_robust)} / {fit_index_text('tli', r.tli_robust)}",
                      guide_text("cfi"),
@@ -781,8 +781,13 @@ def modification_table(result, group: int | None = None, limit: int = 10) -> Rep
         body.append([parameter_words(m.kind, tuple(m.variables), None if label else m.group, article=False,
                                      groups=group_labels(result)),
                      num(m.index, 2), num(m.expected_change), num(m.standardized_expected_change)])
-    note = ("Standardized: for loadings on the fully standardized metric; for residual covariances on the residual "
-            "correlation metric (the expected change over the two residual standard deviations).")
+    # under a sampling design, first: the indices leave the design out (new-user trial s16); ordinal fits' score
+    # tests are the robust ones of least squares, which take it in
+    design = (result.design.score_test_text() if getattr(result, "design", None) is not None
+              and not result.method.ordinal else None)
+    note = ((design + " " if design else "")
+            + "Standardized: for loadings on the fully standardized metric; for residual covariances on the residual "
+              "correlation metric (the expected change over the two residual standard deviations).")
     beyond = [m for m in shown if m.kind == "residual_covariance" and abs(m.standardized_expected_change) > 1]
     if beyond:
         note += (f" {len(beyond)} expected residual correlation{'s are' if len(beyond) > 1 else ' is'} beyond +/-1: the "

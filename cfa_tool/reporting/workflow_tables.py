@@ -597,7 +597,7 @@ def invariance_report(result) -> Report:
                     any(step.conditional for step in result.steps))) if shown) or None,
                values=(["Level", "Chi-square difference", "df difference", "p", *delta_values, "Holds"], step_values)),
     ]
-    tests = sorted({step.result.robust.test.label for step in result.steps if step.result.robust is not None})
+    tests = sorted({step.result.robust.label for step in result.steps if step.result.robust is not None})
     scaled_note = (f"Chi-square, CFI and RMSEA of each level are the scaled statistic and robust indices "
                    f"({', '.join(tests)}), and each difference test is the scaled difference of those statistics "
                    f"(Satorra & Bentler 2001){_other_differences(result.steps)}.")
@@ -825,13 +825,14 @@ ORDINAL_BOOTSTRAP = ("Ordinal items: each resample gets its own thresholds and p
 
 def _split_sentence(rows) -> str:
     """Which rows of the file random halves were drawn from (workflows.replication.SplitRows)."""
+    clusters = f" {rows.ROW_BY_ROW[0].upper()}{rows.ROW_BY_ROW[1:]}."
     if rows.split >= rows.in_file:
         return (f"The {rows.split} rows {f'{rows.kept_words()[1:]}' if rows.filters else 'of the file'} were split at "
-                f"random into two halves.")
+                f"random into two halves.{clusters}")
     why = ("they miss some answers, and the halves hold complete rows only" if rows.complete_only else
            "they answer none of the model's items")
     return (f"{rows.split} of the {rows.in_file} rows{rows.kept_words()} were split at random into two halves; the other "
-            f"{rows.in_file - rows.split} were left out before the split ({why}).")
+            f"{rows.in_file - rows.split} were left out before the split ({why}).{clusters}")
 
 
 def _left_out(result) -> str:
@@ -876,7 +877,7 @@ def bootstrap_report(boot) -> Report:
                      f"({boot.bollen_stine_converged} converged resamples; normal-theory p {p_value(result.fit.p_value)}).")
     elif boot.bollen_stine_not_computed:
         robust = result.robust
-        test = (f"{robust.test.label} statistic (p {p_value(robust.p_value_scaled)})" if robust is not None
+        test = (f"{robust.statistic()} (p {p_value(robust.p_value_scaled)})" if robust is not None
                 else f"chi-square (p {p_value(result.fit.p_value)})")
         lines.append(f"No Bollen-Stine p-value: {boot.bollen_stine_not_computed}; the test of fit remains the fit's "
                      f"{test}.")

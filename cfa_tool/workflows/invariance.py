@@ -37,7 +37,7 @@ from cfa_tool.assessment.modification import ModificationIndex, ModificationIndi
 from cfa_tool.numerics.linalg import scaled_inverse
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
-from cfa_tool.pipeline.continuous import FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, assess, estimate, rows_left_out
+from cfa_tool.pipeline.continuous import PAIRWISE_INSTEAD, assess, estimate, gaps_instead, rows_left_out
 from cfa_tool.language.names import written_group
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
@@ -401,7 +401,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         ordinal_items = threshold_counts(groups[0][1])
     else:
         # rows with gaps are kept (full-information ML), as 'fit' keeps them, unless listwise is asked for
-        fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
+        fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group,
+                                                             design=design)
         gaps = (fit_options.missing is MissingData.FULL_INFORMATION
                 and bool(frame[list(spec.observed_names)].isna().to_numpy().any()))
         groups, notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design=design)
@@ -566,7 +567,8 @@ def _rows_left_out(configural: FitResult) -> tuple[list[str], list[str]]:
     cautions, notes = rows_left_out([(g.label, g.data.rows_dropped, g.data.rows_read, g.data.n_obs)
                                      for g in configural.groups],
                                     configural.method.missing,
-                                    PAIRWISE_INSTEAD if configural.method.ordinal else FULL_INFORMATION_INSTEAD)
+                                    PAIRWISE_INSTEAD if configural.method.ordinal else
+                                    gaps_instead(configural.design is not None and configural.design.shared_clusters))
     return [p.line() for p in cautions], notes
 
 

@@ -683,6 +683,13 @@ class SplitRows:
                        row_filters=[f.text for f in self.filters])
         return out
 
+    #: how random halves are drawn, and what that means for rows that come in clusters (new-user trial s16: halves
+    #: split households without a word); the split sentence of the report and the methods paragraph say it
+    ROW_BY_ROW = ("the halves are drawn row by row, so rows of one household, school or other cluster can fall in both "
+                  "halves, which then look more alike than independent samples would, and the test of one solution and "
+                  "the cross-validation index take the rows as independent; with such data, split the file by cluster "
+                  "and give the two parts as calibration and validation samples")
+
     def kept_words(self) -> str:
         """' kept by the row filter 'Finished = True' (of the 900 rows in the file)': the rows the filters chose
         before the split ('' without filters)."""

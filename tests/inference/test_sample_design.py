@@ -424,7 +424,7 @@ def test_a_cluster_across_groups_of_ordinal_items_is_an_error(hs_data):
     data[ITEMS] = data[ITEMS].round().clip(1, 6)
     with pytest.raises(DataError, match="has rows in more than one group of 'school'") as raised:
         cfa_tool.fit(THREE_FACTORS, data, group="school", cluster="unit", ordinal="all")
-    assert "not yet by the least-squares fit of ordinal items" in str(raised.value)
+    assert "the least-squares fit of ordinal items does not yet take clusters shared by groups" in str(raised.value)
     # what to do next (new-user trial: languages crossing neighbourhoods left the user without a way on)
     assert "fit each group alone with its clusters (keep=['school = ...'])" in str(raised.value)
 
@@ -642,3 +642,18 @@ def test_check_and_the_data_line_count_rows_by_their_frequency_weights(hs_data):
     assert fitted.n_obs == total
     text = " ".join(fitted.summary().split())
     assert f"{total:,.0f} rows analysed, counted by their frequency weights (k), of 301 read" in text
+
+
+def test_a_strata_column_of_labelled_codes_names_its_strata_not_stratums(hs_data):
+    # new-user trial s16: "its stratums are named by those labels" in every view; the plural is the design's own word
+    from cfa_tool.data.labels import CODED_LABELS
+    from cfa_tool.data.sample_design import DesignColumns, check_design
+
+    data = hs_data.assign(unit=np.arange(len(hs_data)) // 5,
+                          st=np.where(np.arange(len(hs_data)) // 5 % 2 == 0, "Ashvale", "Brindlemoor"))
+    data.attrs[CODED_LABELS] = {"st": {"1": "Ashvale", "2": "Brindlemoor"},
+                                "unit": {str(k): f"home {k}" for k in range(61)}}
+    _, notes = check_design(data, DesignColumns(None, "unit", "st"), tuple(ITEMS), None, "data")
+    said = " ".join(notes)
+    assert "The strata column 'st'".lower()[4:] in said.lower() and "its strata are named by those labels" in said
+    assert "its clusters are named by those labels" in said and "stratums" not in said

@@ -184,11 +184,50 @@ def test_a_group_with_a_single_cluster_of_its_own_is_an_error(hs_data):
 def test_groups_sharing_clusters_are_refused_with_full_information(hs_data):
     data = _domains(hs_data)
     data.loc[data.index[::7], "x2"] = np.nan
-    with pytest.raises(DataError, match="not yet by full-information ML") as raised:
-        cfa_tool.fit(ONE_FACTOR, data, group="school", cluster="unit")
-    assert "--incomplete-rows listwise" in str(raised.value) and "cluster '" in str(raised.value)
-    listwise = cfa_tool.fit(ONE_FACTOR, data, group="school", cluster="unit", missing="listwise")
+    with pytest.raises(DataError, match="full-information ML .* does not yet take clusters shared by groups") as raised:
+        cfa_tool.fit(ONE_FACTOR, data, group="school", cluster="unit", weights="w")
+    said = str(raised.value)
+    # the routes that run, each with what it gives up or assumes (new-user trial s16: the listwise route then advised
+    # the refused one)
+    assert "cluster '" in said and "leave out cluster=... to keep the weights" in said
+    assert "too small" in said and "missing='listwise'" in said and "missing completely at random" in said
+    listwise = cfa_tool.fit(ONE_FACTOR, data, group="school", cluster="unit", missing="listwise", weights="w")
     assert listwise.design.shared_clusters
+    # the route the refusal gives first runs: the weights kept, the clusters left out, every answer used
+    without = cfa_tool.fit(ONE_FACTOR, data, group="school", weights="w")
+    assert without.method.full_information
+
+
+def test_the_listwise_route_of_groups_sharing_clusters_never_advises_the_refused_one(hs_data, tmp_path):
+    # new-user trial s16: the caution on the rows listwise deletion left out advised full-information ML, which these
+    # groups' clusters refuse; it names the route that runs (without the clusters) and what that gives up
+    data = _domains(hs_data)
+    data.loc[data.index[::2], "x2"] = np.nan  # half the rows have a gap: the caution comes first
+    fitted = cfa_tool.fit(ONE_FACTOR, data, group="school", cluster="unit", missing="listwise", weights="w")
+    left = [p for p in fitted.problems if p.kind.name == "ROWS_LEFT_OUT"]
+    assert len(left) == 2
+    for problem in left:
+        advice = str(problem.advice)
+        assert "without the clusters" in advice and "leave out --cluster" in advice
+        assert "--incomplete-rows full-information" not in advice
+    from cfa_tool.workflows.invariance import invariance
+
+    ladder = invariance(ONE_FACTOR, data, group="school", cluster="unit", missing="listwise", weights="w")
+    assert ladder.steps[0].result.design.shared_clusters
+    cautions = [c for c in ladder.warnings if "Listwise deletion left out" in c]
+    assert cautions and all("without the clusters" in c for c in cautions)
+    assert not any("--incomplete-rows full-information" in c for c in ladder.warnings)
+    # the caution on cells read as no answer ('refused') advises the same route
+    words = data.assign(x2=data["x2"].astype(object).where(data["x2"].notna(), "refused"))
+    path = tmp_path / "refused.csv"
+    words.to_csv(path, index=False)
+    read = cfa_tool.fit(ONE_FACTOR, path, group="school", cluster="unit", missing="listwise", weights="w")
+    marked = [str(p.advice) for p in read.problems if p.kind.name == "VALUES_READ_AS_MISSING"]
+    assert len(marked) == 1 and "leave out missing='listwise' and cluster=..." in marked[0]
+    # groups that do not share clusters keep the plain advice
+    own = data.assign(unit=data["school"].astype(str) + data["unit"].astype(str))
+    plain = cfa_tool.fit(ONE_FACTOR, own, group="school", cluster="unit", missing="listwise", weights="w")
+    assert all("without the clusters" not in str(p.advice) for p in plain.problems if p.kind.name == "ROWS_LEFT_OUT")
 
 
 def test_an_invariance_ladder_of_groups_sharing_clusters(hs_data):
@@ -306,7 +345,7 @@ def test_ordinal_groups_with_clusters_of_their_own_are_independent_samples():
     result = cfa_tool.fit((folder / "models" / "good.cfa").read_text(), data, group="site", cluster="unit",
                           ordinal="all")
     assert not result.design.shared_clusters and result.design.clusters == 60
-    assert "The groups are taken as independent samples, each with its own clusters." in result.design.sentence(
+    assert "The groups were taken as independent samples, each with its own clusters." in result.design.sentence(
         ordinal=True)
 
 
@@ -315,3 +354,32 @@ def test_check_names_a_lone_stratum_as_the_fit_would(hs_data):
     checked = cfa_tool.check(ONE_FACTOR, data, cluster="unit", strata="st")
     assert checked.design.lone_strata == ("edge",)
     assert any("a single cluster ('edge')" in note for note in checked.notes)
+
+
+def test_groups_that_share_strata_are_said_to_be_treated_as_drawn_apart(hs_data):
+    # new-user trial s16: "The groups are taken as independent samples, each group's part of a stratum a stratum of
+    # its own." had no verb, and stated as fact an assumption that is false for groups drawn in the same districts
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    data = _domains(hs_data, strata=True)  # both schools in every stratum (counted below by pandas)
+    shared = sorted(str(s) for s, n in data.groupby("st")["school"].nunique().items() if n > 1)
+    assert shared == ["0", "1", "2"]
+    result = cfa_tool.fit(ONE_FACTOR, data, group="school", weights="w", strata="st")
+    sentence = result.design.sentence()
+    assert ("The groups were taken as independent samples; each group's rows within a stratum were treated as a "
+            "stratum of their own.") in sentence
+    assert list(result.design.shared_strata) == shared and result.design.to_dict()["strata_shared_by_groups"] == shared
+    caution = [p for p in result.problems if p.kind.name == "GROUPS_SHARE_STRATA"]
+    assert len(caution) == 1 and result.problems.index(caution[0]) == 0  # first
+    assert "The groups share 3 strata of 'st' ('0', '1', '2')" in caution[0].explanation
+    assert "as if the design had fixed how many rows of each group each stratum holds" in caution[0].explanation
+    assert "--cluster" in str(caution[0].advice) or "cluster=..." in str(caution[0].advice)
+    assert "The groups share 3 strata" in " ".join(methods_paragraph(result).split())
+    # strata that each lie within one group: no caution, and the sentence says so
+    own = data.assign(st=data["school"].astype(str) + data["st"].astype(str))
+    apart = cfa_tool.fit(ONE_FACTOR, own, group="school", weights="w", strata="st")
+    assert "The groups were taken as independent samples, each with its own strata." in apart.design.sentence()
+    assert not apart.design.shared_strata and not any(p.kind.name == "GROUPS_SHARE_STRATA" for p in apart.problems)
+    # groups that share clusters are domains of one sample: their sentence says so, with no such caution
+    domains = cfa_tool.fit(ONE_FACTOR, data, group="school", weights="w", cluster="unit", strata="st")
+    assert domains.design.shared_clusters and not any(p.kind.name == "GROUPS_SHARE_STRATA" for p in domains.problems)

@@ -94,6 +94,25 @@ def test_frequency_weights_count_as_repeated_rows(frame):
     assert weighted.fit.chi_square == pytest.approx(plain.fit.chi_square, abs=1e-6)
 
 
+def test_a_design_fit_says_that_helpers_cannot_join_it(frame):
+    """New-user trial s16: the refusal of helpers under a design ended mid-sentence, and the design fit never said
+    that the helpers it refuses leave the missing-at-random assumption resting on the items alone."""
+    with pytest.raises(OptionError) as raised:
+        cfa_tool.fit(MODEL, frame.assign(w=1 + frame["count"] / 2), missing_helpers="age", weights="w")
+    said = str(raised.value)
+    assert said.endswith("Frequency weights (weight_kind='frequency') can be used with helpers.")
+    assert "To fit with the design, leave out missing_helpers=..." in said and "leave out the design" in said
+    for design in ({"weights": "w"}, {"cluster": "unit"}):
+        fitted = cfa_tool.fit(MODEL, frame.assign(w=1 + frame["count"] / 2, unit=np.arange(len(frame)) // 4), **design)
+        assert fitted.method.full_information
+        note = [str(w) for w in fitted.warnings if "miss some answers" in str(w)]
+        assert len(note) == 1 and note[0].endswith("cannot be used with sampling weights, clusters or strata, so "
+                                                   "answers are assumed missing at random given the items only")
+    # frequency weights take helpers: no such words
+    counted = cfa_tool.fit(MODEL, frame, weights="count", weight_kind="frequency")
+    assert not any("helpers" in str(w) for w in counted.warnings if "miss some answers" in str(w))
+
+
 @pytest.mark.parametrize("call", [
     lambda f: cfa_tool.scores(MODEL, f, missing_helpers="age"),
     lambda f: cfa_tool.compare([MODEL, MODEL + "covary y1, y2\n"], f, missing_helpers="age"),

@@ -31,7 +31,8 @@ def test_the_fit_paragraph_gives_the_reason_rows_were_left_out(hs_data):
     listwise = cfa_tool.fit(THREE_FACTORS, data, group="school", missing="listwise")
     gaps = int((data["school"].notna() & data["x2"].isna()).sum())
     text = " ".join(methods_paragraph(listwise).split())
-    assert f"{gaps} of {len(data)} rows with missing answers were excluded listwise" in text
+    assert (f"the {len(data) - gaps - without} complete rows were analysed and {gaps} of {len(data)} rows with "
+            f"missing answers excluded listwise" in text)
     assert f"{without} of {len(data)} rows had no value in the group column (school)" in text
 
 

@@ -231,7 +231,10 @@ def test_methods_paragraph_states_missing_data_handling_and_groups(hs_data):
     full = methods_paragraph(cfa_tool.fit(HS_BASE, holes))
     assert "full-information maximum likelihood" in full and "including rows with missing answers" in full
     listwise = methods_paragraph(cfa_tool.fit(HS_BASE, holes, missing="listwise"))
-    assert "30 of 301 rows with missing answers were excluded listwise" in listwise and "N = 271" in listwise
+    # new-user trial s16: the rows kept and what listwise deletion assumes (Little & Rubin 2002)
+    assert ("the 271 complete rows were analysed and 30 of 301 rows with missing answers excluded listwise, which "
+            "assumes that answers are missing completely at random, Little & Rubin, 2002" in " ".join(listwise.split()))
+    assert "N = 271" in listwise
     grouped = methods_paragraph(cfa_tool.fit(HS_BASE + "invariance metric\n", hs_data, group="school"))
     # the group sizes of Holzinger & Swineford (1939): 156 pupils of the Pasteur school, 145 of Grant-White
     assert 'in two groups defined by school ("Grant-White", n = 145; "Pasteur", n = 156)' in " ".join(grouped.split())

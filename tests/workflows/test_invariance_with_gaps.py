@@ -129,7 +129,8 @@ def test_rows_without_a_group_label_are_counted_as_fit_counts_them(holes):
     assert (configural.data.rows_read, configural.data.without_group) == (len(data), 7)
     assert configural.data.rows_dropped == grouped.data.rows_dropped == dropped + 7
     text = " ".join(ladder.summary().split())
-    assert f"{dropped} of {len(data)} rows with missing answers were excluded listwise" in text
+    assert (f"the {len(data) - dropped - 7} complete rows were analysed and {dropped} of {len(data)} rows with missing "
+            f"answers excluded listwise, which assumes that answers are missing completely at random" in text)
     assert f"7 of {len(data)} rows had no value in the group column (school) and were left out" in text
     assert f"7 of {len(data)} rows had no value in the group column (school)" in methods_paragraph(grouped)
 
