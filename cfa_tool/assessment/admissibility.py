@@ -19,7 +19,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.errors import OptionError, printable
+from cfa_tool.errors import OptionError
 from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.model.description import label_words, split_label
 from cfa_tool.model.implied import ModelMatrices

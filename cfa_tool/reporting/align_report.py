@@ -79,7 +79,7 @@ def means_table(result, k: int) -> ReportTable:
             + ("mean and variance are fixed (no standard error)." if result.reference_mean is ReferenceMean.ZERO
                else "variance is fixed at 1 (no standard error).")
             + f" Non-invariant: the group's share of flagged loadings and intercepts of {factor.factor}'s items"
-            + (f" (with two groups a flagged parameter differs between them, so it counts in both)."
+            + (" (with two groups a flagged parameter differs between them, so it counts in both)."
                if len(result.groups) == 2 else "."))
     values = (["group", "rows", "mean", "mean_se", "variance", "variance_se", "noninvariant_share"],
               [[g.group, g.rows, g.mean, g.mean_se, g.variance, g.variance_se, shares[g.group]] for g in factor.groups])

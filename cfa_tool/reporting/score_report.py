@@ -228,10 +228,10 @@ def precision_table(result, k: int) -> ReportTable | None:
     first += (f"Scores, SEs and bands are in each factor's units as the model scales it (the factor's standard "
               f"deviation: {sds}). ")
     first += _left_empty_sentence(result, method)
-    note = (first + f"SE: the typical distance of a score from the person's factor value; 95% band: "
-            f"±1.96 SE about a score (normal approximation); real difference: the smallest difference between two "
-            f"people's scores that exceeds chance at the 5% level, 1.96 × √2 × SE (Gulliksen 1950). SDs: divided by "
-            f"the factor's standard deviation." + _one_item_sentence(result.fit))  # (Gulliksen: scoring.quality)
+    note = (first + "SE: the typical distance of a score from the person's factor value; 95% band: "
+            "±1.96 SE about a score (normal approximation); real difference: the smallest difference between two "
+            "people's scores that exceeds chance at the 5% level, 1.96 × √2 × SE (Gulliksen 1950). SDs: divided by "
+            "the factor's standard deviation." + _one_item_sentence(result.fit))  # (Gulliksen: scoring.quality)
     return _table(f"score_precision_{k}", "How precise is one person's score?" + _where(result, q), cols, rows, note,
                   values=([c for c, _ in cols], values))
 
@@ -300,9 +300,9 @@ def _prorated_sentence(result, sums) -> Text:
     where = ("in the file's _sem columns" if result.standard_errors else
              Note((Command(f"written to the file (_sem columns) with {Option.STANDARD_ERRORS}",
                            "not written in this run's scores file"),)))
-    said = (f"A prorated score rests on the items the row answered, and its own SEM is that of their sum, SD × "
-            f"√(1 − ω) of that sum under the fitted model, scaled as the score is (times J/a for a sum prorated from a "
-            f"of J items, divided by a for a mean), as a rule larger than the figure above: each row's is "
+    said = ("A prorated score rests on the items the row answered, and its own SEM is that of their sum, SD × "
+            "√(1 − ω) of that sum under the fitted model, scaled as the score is (times J/a for a sum prorated from a "
+            "of J items, divided by a for a mean), as a rule larger than the figure above: each row's is "
             + where + ".")
     if sums.prorated_sem:
         said += " Prorated rows here: " + "; ".join(

@@ -63,9 +63,9 @@ def test_a_decomposed_label_with_a_zero_width_space_is_read_without_both(rows):
     messy = rows.assign(city=np.where(rows["city"] == "north", nfd, "south"))
     fitted = cfa_tool.fit(MODEL, messy, group="city")
     assert [g.label for g in fitted.groups] == ["caf\u00e9", "south"]  # composed (NFC) and without U+200B
-    assert (f"in the group column 'city', labels written with spaces at their ends, with invisible format characters "
-            f"or in another Unicode form were read without them: 'cafe\u0301\\u200b' (150 rows; U+200B ZERO WIDTH "
-            f"SPACE) as 'caf\u00e9'") in fitted.warnings
+    assert ("in the group column 'city', labels written with spaces at their ends, with invisible format characters "
+            "or in another Unicode form were read without them: 'cafe\u0301\\u200b' (150 rows; U+200B ZERO WIDTH "
+            "SPACE) as 'caf\u00e9'") in fitted.warnings
 
 
 def test_invariance_and_a_reference_group_read_labels_by_the_same_rule(rows):
