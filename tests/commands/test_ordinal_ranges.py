@@ -63,7 +63,7 @@ def test_a_range_that_names_no_items_is_an_error(given, words):
 
 
 @pytest.mark.parametrize("command", [
-    ["fit", MODEL], ["compare", MODEL, MODEL], ["invariance", MODEL, "--group-column", "site"],
+    ["fit", MODEL], ["compare", MODEL, str(CORPUS / "models" / "good_twin.cfa")], ["invariance", MODEL, "--group-column", "site"],
     ["replicate", MODEL, "--seed", "1"], ["bootstrap", MODEL], ["scores", MODEL, "--output", "scores.csv"],
     ["cutoffs", MODEL], ["explore", "--items", "q1..q6"],
 ])
