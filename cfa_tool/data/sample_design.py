@@ -135,6 +135,11 @@ class SampleDesign:
     # strata with rows of more than one group, when the groups are taken as independent samples (not sharing
     # clusters): each group's part of such a stratum is a stratum of its own in the design-based errors
     shared_strata: tuple[str, ...] = ()
+    # groups taken as independent samples: each group's label, clusters and Kish's effective sample size (each group's
+    # estimates and their standard errors rest on its own rows, so each is judged on its own; re-check s16)
+    group_labels: tuple[str, ...] = ()
+    group_clusters: tuple[int, ...] = ()
+    group_effective: tuple[float, ...] = ()
 
     def to_dict(self) -> dict:
         c = self.columns
@@ -293,14 +298,29 @@ class SampleDesign:
         weighting, 1 + CV^2 of the weights (Kish 1992), above 2 (None otherwise).  How many rows a fit has for its
         parameters is another rule, the same with and without weights (assessment.admissibility)."""
         if (self.columns.weights is None or self.columns.kind is not WeightKind.SAMPLING or self.effective_n is None
-                or not self.rows or self.effective_n >= UNEVEN_WEIGHTS_SHARE * self.rows):
+                or not self.rows):
             return None
+        share_fine = self.effective_n >= UNEVEN_WEIGHTS_SHARE * self.rows
         share = self.effective_n / self.rows
-        return (f"The weights in '{self.columns.weights}' are very uneven: the {self.rows} rows count as about "
+        return self._uneven_in_a_group() if share_fine else (
+                f"The weights in '{self.columns.weights}' are very uneven: the {self.rows} rows count as about "
                 f"{self.effective_n:.1f} (Kish's effective sample size, {share:.0%} of the rows; below half of them is "
                 f"taken as very uneven, a rule of thumb of survey practice, not a law), so the estimates rest mostly "
                 f"on the heavily weighted rows and their standard errors are as large as those of a sample of about "
                 f"{self.effective_n:.0f} rows.")
+
+    def _uneven_in_a_group(self) -> str | None:
+        """The uneven-weights caution of the groups whose own rows count as fewer than half (Kish's effective sample
+        size of each group, whose estimates rest on its rows alone), when the sample's do not; None when none."""
+        few = [(label, n, k) for label, n, k in zip(self.group_labels, self.group_rows, self.group_effective)
+               if n and k < UNEVEN_WEIGHTS_SHARE * n]
+        if not few:
+            return None
+        listed = "; ".join(f"group '{label}': its {n} rows count as about {k:.1f}" for label, n, k in few)
+        return (f"The weights in '{self.columns.weights}' are very uneven within a group ({listed}; Kish's effective "
+                f"sample size of each group's rows, below half of them taken as very uneven, a rule of thumb of "
+                f"survey practice, not a law): that group's estimates rest mostly on its heavily weighted rows, and "
+                f"their standard errors are as large as those of a sample of that many rows.")
 
     def frequency_caution(self) -> str | None:
         """Why frequency weights that make N more than :data:`EXPANSION_RATIO` times the rows look like survey
@@ -320,8 +340,17 @@ class SampleDesign:
         """Why cluster-robust standard errors are in doubt with this few clusters (None with enough of them): too
         optimistic below about 30-50 clusters (common practice), and singular with no more clusters than free
         parameters (the clusters' score sums then span too few dimensions)."""
-        if self.clusters is None or self.clusters >= SMALL_NUMBER_OF_CLUSTERS:
+        if self.clusters is None:
             return None
+        if self.clusters >= SMALL_NUMBER_OF_CLUSTERS:
+            few = [(label, k) for label, k in zip(self.group_labels, self.group_clusters) if k < SMALL_NUMBER_OF_CLUSTERS]
+            if not few:
+                return None
+            listed = ", ".join(f"'{label}' ({k})" for label, k in few)
+            return (f"Few clusters of '{self.columns.cluster}' in group{'s' if len(few) > 1 else ''} {listed}: each "
+                    f"group's estimates and their cluster-robust standard errors rest on its own clusters, which are "
+                    f"too optimistic with fewer than about 30-50 clusters (common practice), and mean little with no "
+                    f"more clusters than the group's free parameters.")
         where = f"Only {self.clusters} clusters in '{self.columns.cluster}'"
         if self.clusters <= free_parameters:
             return (f"{where}, no more than the {free_parameters} free parameters: the cluster-robust covariance of "
@@ -635,9 +664,10 @@ def with_row_design(moments, design: RowDesign):
     return replace(moments, n_obs=n_obs, design=design)
 
 
-def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list) -> SampleDesign:
+def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list, labels=()) -> SampleDesign:
     """The design as the report states it, over the rows analysed in every group (``moments``: each group's
-    SampleMoments or OrdinalMoments, carrying its RowDesign)."""
+    SampleMoments or OrdinalMoments, carrying its RowDesign; ``labels``: the groups' labels, for the cautions that
+    judge each group of independent samples on its own clusters and weights)."""
     rows = sum(len(m.design.weights) for m in moments)
     total = square = None
     if columns.weights is not None:
@@ -658,7 +688,13 @@ def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list) -
     if len(designs) > 1 and columns.strata is not None and not shared:
         named = [set(_named(np.unique(d.strata), d.strata_names)) for d in designs]
         across = tuple(sorted(name for name in set().union(*named) if sum(name in n for n in named) > 1))
-    return SampleDesign(columns, rows, total, kish, clusters, strata, group_rows, lone, shared, across)
+    labels = tuple(str(x) for x in labels) if len(moments) > 1 and len(labels) == len(moments) else ()
+    per_clusters = (tuple(len(np.unique(d.clusters)) for d in designs) if labels and columns.cluster and not shared
+                    else ())
+    per_effective = (tuple(float(d.given[0] ** 2 / d.given[1]) if d.given[1] else 0.0 for d in designs)
+                     if labels and columns.weights is not None and columns.kind is WeightKind.SAMPLING else ())
+    return SampleDesign(columns, rows, total, kish, clusters, strata, group_rows, lone, shared, across, labels,
+                        per_clusters, per_effective)
 
 
 

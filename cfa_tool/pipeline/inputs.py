@@ -1347,7 +1347,7 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                       if m.unanswered_rows is not None and len(m.unanswered_rows) else (label, m) for label, m in groups]
         result = converged(fit_moments(spec, groups, fit_options, group_column=group))
     if design is not None:
-        result = with_design(result, design_summary(frame, design, [m for _, m in groups]))
+        result = with_design(result, design_summary(frame, design, [m for _, m in groups], [g for g, _ in groups]))
     analysed = _labelled(frame, group)
     every_row_complete = (sum(m.n_obs for _, m in groups) == len(analysed)
                           and not any(m.rows is not None and np.isnan(m.rows).any() for _, m in groups))
@@ -1747,7 +1747,7 @@ def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: se
         result = ordinal_fitting.fit_ordinal_groups(spec, groups, fit_options, method, group)
         result = replace(result, warnings=tuple(notes) + result.warnings)
     if design is not None and result.converged:
-        result = with_design(result, design_summary(frame, design, [m for _, m in groups]))
+        result = with_design(result, design_summary(frame, design, [m for _, m in groups], [g for g, _ in groups]))
     return result
 
 
@@ -2124,7 +2124,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     named = {p.group for p in too_small}  # those groups' rows per parameter: their caution says more
     small = too_small + tuple(p for p in small if p.group not in named)
     notes += small_notes
-    sample_design = design_summary(frame, design, [m for _, m in groups]) if design is not None else None
+    sample_design = design_summary(frame, design, [m for _, m in groups], [g for g, _ in groups]) if design is not None else None
     answered = _labelled(frame, group)[list(spec.observed_names)].notna()
     every_item = answered.all(axis=1).to_numpy()
     # complete rows that are complete only by values that look like no answers (the cautions' rows)

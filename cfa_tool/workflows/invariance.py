@@ -394,7 +394,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         notes = list(read_notes) + list(notes)
         few: tuple[str, ...] = ()  # items of few answer categories analysed as continuous: none here
         ladder = OrdinalLadder(ordinal_estimator,
-                               design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
+                               design_summary(frame, design, [m for _, m in groups], [g for g, _ in groups]) if design is not None else None)
         from cfa_tool.pipeline.ordinal import threshold_counts
 
         # the items' numbers of thresholds decide which of their residual variances are free (model.parameters)
@@ -408,7 +408,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         groups, notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design=design)
         few, few_note = few_categories(frame, spec.observed_names)
         notes = list(missing_notes) + few_note + list(read_notes) + list(notes)
-        ladder = NormalLadder(design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
+        ladder = NormalLadder(design_summary(frame, design, [m for _, m in groups], [g for g, _ in groups]) if design is not None else None)
     labels = tuple(label for label, _ in groups)
     reference = reference_rule(frame, group, reference_group)  # the rule moments_for followed (data.groups)
     threads = blas_threads_for(len(spec.observed_names))  # the fits' matrices are small: one BLAS thread (numerics.threads)
