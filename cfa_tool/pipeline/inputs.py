@@ -1667,7 +1667,9 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
     note = Note((f"{gaps} of {rows} rows miss some answers on model variables; every answer is used by "
                  f"full-information ML (the default when answers are missing; a fit of the complete rows only",
                  Command(" (--incomplete-rows listwise)"), " would leave those rows out)"
-                 + ("; the robust test with full-information ML is the Yuan-Bentler one" if robust else "")))
+                 + (("; under the sampling design the test is design-based, with the Yuan-Bentler scaling of "
+                     "full-information ML" if design is not None and design.robust else
+                     "; the robust test with full-information ML is the Yuan-Bentler one") if robust else "")))
     if design is not None and design.robust and not fit_options.missing_helpers:
         note += Note(("; missing-data helpers (auxiliary variables that predict the gaps", Command(f", {Option.MISSING_HELPERS}"),
                       ") cannot be used with sampling weights, clusters or strata, so answers are assumed missing at "

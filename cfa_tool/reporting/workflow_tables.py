@@ -137,9 +137,10 @@ _COMPARISON_VALUES = ("Admissible", "Free parameters", "Chi-square", "df", "p", 
                       "RMSEA 90% lower", "RMSEA 90% upper", "SRMR", "AIC", "BIC")
 
 
-def _robust_rows(test) -> tuple[str, ...]:
-    """The rows of a robust test in the comparison table; its pieces named as the fit's table names them."""
-    return (f"Scaled chi-square ({test.label})", f"  {test.correction}", "  p", "Robust CFI", "Robust TLI",
+def _robust_rows(test, label: str | None = None) -> tuple[str, ...]:
+    """The rows of a robust test in the comparison table; its pieces named as the fit's table names them (``label``:
+    the statistic's name, design-based under a sampling design, as RobustFit.label gives it)."""
+    return (f"Scaled chi-square ({label or test.label})", f"  {test.correction}", "  p", "Robust CFI", "Robust TLI",
             "Robust RMSEA", "  90% interval")
 
 
@@ -304,9 +305,10 @@ def comparison_report(comparison) -> Report:
     lines = (rows_line, *_comparison_group_lines(comparison), *_design_lines(comparison.results[0]))
     # one column per model, one row per index: readable in 80 columns for the usual two to four models
     # every model of a comparison has the same robust test (or none): the estimator and rows are shared
-    test = next((r.robust.test for r in comparison.results if r.robust is not None), None)
+    robust = next((r.robust for r in comparison.results if r.robust is not None), None)
+    test = robust.test if robust is not None else None
     cells = [_comparison_cells(r, test) for r in comparison.results]
-    labels = _COMPARISON_ROWS + (_robust_rows(test) if test is not None else ())
+    labels = _COMPARISON_ROWS + (_robust_rows(test, robust.label) if test is not None else ())
     value_labels = _COMPARISON_VALUES + (_robust_values(test) if test is not None else ())
     if test is not None:  # the figures to read first, the unadjusted ones after SRMR, marked (as in fit's table)
         order, labels = _robust_first(labels, len(_COMPARISON_ROWS))

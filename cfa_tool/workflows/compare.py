@@ -182,7 +182,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                                   f"ML and its Yuan-Bentler test are for continuous items")
             pairwise = fit_options.missing is not MissingData.LISTWISE
         else:
-            fit_options, missing_notes = choose_missing_handling(fit_options, frame, tuple(used), None)
+            fit_options, missing_notes = choose_missing_handling(fit_options, frame, tuple(used), None, design=design)
             few, few_note = few_categories(frame, tuple(used))
             notes = list(missing_notes) + few_note + list(notes)
         if fit_options.missing is MissingData.FULL_INFORMATION or pairwise:  # the rows every model can use: some answers

@@ -63,3 +63,19 @@ def test_without_a_design_the_tests_keep_their_names(hs_data):
     counted = cfa_tool.fit(ONE_FACTOR, _design(hs_data).assign(c=1 + np.arange(301) % 2), weights="c",
                            weight_kind="frequency")
     assert counted.robust is None or not counted.robust.design
+
+
+def test_compare_names_the_design_based_test_in_its_table_and_notes(hs_data):
+    """Re-check s16 (N6): compare's table still said 'Scaled chi-square (Yuan-Bentler)' under a design, and its note
+    on rows with gaps 'the robust test with full-information ML is the Yuan-Bentler one'."""
+    from cfa_tool.reporting.reports import report_of
+
+    compared = cfa_tool.compare([ONE_FACTOR, ONE_FACTOR + "covary x1, x2\n"], _design(hs_data, gaps=True), weights="w",
+                                cluster="unit")
+    report = report_of(compared)
+    rows = [str(row[0]) for table in report.tables for row in table.rows]
+    assert "Scaled chi-square (design-based, Yuan-Bentler scaling)" in rows
+    assert "Scaled chi-square (Yuan-Bentler)" not in rows
+    notes = " ".join(str(w) for w in compared.notes)
+    assert "the robust test with full-information ML is the Yuan-Bentler one" not in notes
+    assert "under the sampling design the test is design-based" in notes
