@@ -735,14 +735,17 @@ def _completely_at_random_note(result) -> Text:
             f"p {p_phrase(test.p_value)}{f' ({each})' if each else ''}.{verdict} " + READING)
 
 
-def full_information_score_tests(helpers: bool) -> str:
+def full_information_score_tests(helpers: bool) -> Text:
     """What the modification indices of a full-information fit of rows with gaps assume (the note under their
     table), and the test that asks less: the likelihood-ratio difference of the fits with and without the parameter
     (compare; with missing-data helpers, which compare does not take, two fits with the same helpers)."""
-    way = ("refitting with the parameter freed and the same missing-data helpers and taking the difference of the two "
-           "chi-squares tests it" if helpers else
-           "freeing a parameter and comparing the two fits ('cfa-tool compare') tests it")
-    return f"With rows with gaps the indices {mcar_score_tests()}; {way} when they are missing at random."
+    said = f"With rows with gaps the indices {mcar_score_tests()}; "
+    if helpers:
+        return (said + "refitting with the parameter freed and the same missing-data helpers and taking the difference "
+                "of the two chi-squares tests it when they are missing at random.")
+    # the command's name is advice to the program's user: the Word file says the test in words (advice-s16's rule)
+    return Note((said + "freeing a parameter and comparing the two fits", Command(" ('cfa-tool compare')"),
+                 " tests it when they are missing at random."))
 
 
 def modification_table(result, group: int | None = None, limit: int = 10) -> ReportTable | None:
@@ -794,7 +797,7 @@ def modification_table(result, group: int | None = None, limit: int = 10) -> Rep
                  "expected change is a linear approximation that fails this far from the current estimate, so only a "
                  "refit shows the value the parameter would take.")
     if result.method.missing is MissingData.FULL_INFORMATION and not result.method.ordinal:
-        note += f" {full_information_score_tests(bool(result.method.helpers))}"
+        note += " " + full_information_score_tests(bool(result.method.helpers))
     note += (" Freeing parameters because of large modification indices capitalises on chance; a model changed that "
              "way needs confirmation in new data.")
     values = [[m.kind, names_text(m.variables), m.group or "", m.index, m.expected_change, m.standardized_expected_change]

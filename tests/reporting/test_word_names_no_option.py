@@ -137,3 +137,23 @@ def test_the_scores_report_says_its_options_in_words_in_word(files):
                           ("written with --standard-errors;", "not written in this run's scores file;")):
         assert option in said and words in word, (option, words)
     assert "answered fewer than 90% of the factor's items" in word
+
+
+def test_the_word_file_names_no_command_in_the_modification_note(tmp_path):
+    """Re-check s16 (N3): every full-information fit's Word file said "comparing the two fits ('cfa-tool compare')
+    tests it": a command name, advice to the program's user, which the terminal keeps."""
+    from pathlib import Path
+
+    import cfa_tool
+    from cfa_tool.reporting.docx_report import report_docx
+    from cfa_tool.reporting.reports import report_of
+    from cfa_tool.reporting.terminal import report_text
+
+    root = Path(__file__).resolve().parents[2]
+    result = cfa_tool.fit(root / "models" / "rider_three_factors.cfa", root / "demo" / "rider_survey.csv")
+    report = report_of(result)
+    document = docx.Document(io.BytesIO(report_docx(report)))
+    text = " ".join([p.text for p in document.paragraphs]
+                    + [c.text for t in document.tables for r in t.rows for c in r.cells])
+    assert "comparing the two fits tests it" in text and "cfa-tool compare" not in text
+    assert "('cfa-tool compare')" in " ".join(report_text(report).split())
