@@ -295,32 +295,52 @@ class SampleDesign:
     def weight_caution(self) -> str | None:
         """Why estimates and tests lean on few rows when the sampling weights are uneven: Kish's effective sample size
         (sum w)^2 / sum w^2 (Kish 1965) below :data:`UNEVEN_WEIGHTS_SHARE` of the rows, i.e. a design effect of the
-        weighting, 1 + CV^2 of the weights (Kish 1992), above 2 (None otherwise).  How many rows a fit has for its
+        weighting, 1 + CV^2 of the weights (Kish 1992), above 2; when the sample's is not, that of each group of
+        independent samples, whose estimates rest on its own rows (None otherwise).  How many rows a fit has for its
         parameters is another rule, the same with and without weights (assessment.admissibility)."""
         if (self.columns.weights is None or self.columns.kind is not WeightKind.SAMPLING or self.effective_n is None
                 or not self.rows):
             return None
-        share_fine = self.effective_n >= UNEVEN_WEIGHTS_SHARE * self.rows
-        share = self.effective_n / self.rows
-        return self._uneven_in_a_group() if share_fine else (
-                f"The weights in '{self.columns.weights}' are very uneven: the {self.rows} rows count as about "
-                f"{self.effective_n:.1f} (Kish's effective sample size, {share:.0%} of the rows; below half of them is "
-                f"taken as very uneven, a rule of thumb of survey practice, not a law), so the estimates rest mostly "
-                f"on the heavily weighted rows and their standard errors are as large as those of a sample of about "
-                f"{self.effective_n:.0f} rows.")
+        if self.effective_n >= UNEVEN_WEIGHTS_SHARE * self.rows:
+            few = self._uneven_groups()
+            if not few:
+                return None
+            listed = "; ".join(f"group '{label}': its {n} rows count as about {k:.1f}" for label, n, k in few)
+            return (f"The weights in '{self.columns.weights}' are very uneven within a group ({listed}; Kish's "
+                    f"effective sample size of each group's rows, below half of them taken as very uneven, a rule of "
+                    f"thumb of survey practice, not a law): that group's estimates rest mostly on its heavily weighted "
+                    f"rows, and their standard errors are as large as those of a sample of that many rows.")
+        return (f"The weights in '{self.columns.weights}' are very uneven: the {self.rows} rows count as about "
+                f"{self.effective_n:.1f} (Kish's effective sample size, {self.effective_n / self.rows:.0%} of the rows; "
+                f"below half of them is taken as very uneven, a rule of thumb of survey practice, not a law), so the "
+                f"estimates rest mostly on the heavily weighted rows and their standard errors are as large as those "
+                f"of a sample of about {self.effective_n:.0f} rows.")
 
-    def _uneven_in_a_group(self) -> str | None:
-        """The uneven-weights caution of the groups whose own rows count as fewer than half (Kish's effective sample
-        size of each group, whose estimates rest on its rows alone), when the sample's do not; None when none."""
-        few = [(label, n, k) for label, n, k in zip(self.group_labels, self.group_rows, self.group_effective)
-               if n and k < UNEVEN_WEIGHTS_SHARE * n]
-        if not few:
-            return None
-        listed = "; ".join(f"group '{label}': its {n} rows count as about {k:.1f}" for label, n, k in few)
-        return (f"The weights in '{self.columns.weights}' are very uneven within a group ({listed}; Kish's effective "
-                f"sample size of each group's rows, below half of them taken as very uneven, a rule of thumb of "
-                f"survey practice, not a law): that group's estimates rest mostly on its heavily weighted rows, and "
-                f"their standard errors are as large as those of a sample of that many rows.")
+    def _uneven_groups(self) -> list[tuple[str, int, float]]:
+        """(label, rows, Kish's effective sample size) of each group whose own rows count as fewer than
+        :data:`UNEVEN_WEIGHTS_SHARE` of them."""
+        return [(label, n, k) for label, n, k in zip(self.group_labels, self.group_rows, self.group_effective)
+                if n and k < UNEVEN_WEIGHTS_SHARE * n]
+
+    def _few_cluster_groups(self) -> list[tuple[str, int]]:
+        """(label, clusters) of each group of independent samples with fewer than SMALL_NUMBER_OF_CLUSTERS clusters."""
+        return [(label, k) for label, k in zip(self.group_labels, self.group_clusters) if k < SMALL_NUMBER_OF_CLUSTERS]
+
+    @property
+    def judged_effective_n(self) -> float | None:
+        """The effective sample size :meth:`weight_caution` speaks of: the sample's, or the smallest of the groups it
+        names when the sample's is not below the rule."""
+        few = self._uneven_groups() if self.effective_n is not None and self.rows and \
+            self.effective_n >= UNEVEN_WEIGHTS_SHARE * self.rows else []
+        return min(k for _, _, k in few) if few else self.effective_n
+
+    @property
+    def judged_clusters(self) -> int | None:
+        """The number of clusters :meth:`caution` speaks of: the sample's, or the fewest of the groups it names when
+        the sample has enough of them."""
+        few = self._few_cluster_groups() if self.clusters is not None and self.clusters >= SMALL_NUMBER_OF_CLUSTERS \
+            else []
+        return min(k for _, k in few) if few else self.clusters
 
     def frequency_caution(self) -> str | None:
         """Why frequency weights that make N more than :data:`EXPANSION_RATIO` times the rows look like survey
@@ -343,7 +363,7 @@ class SampleDesign:
         if self.clusters is None:
             return None
         if self.clusters >= SMALL_NUMBER_OF_CLUSTERS:
-            few = [(label, k) for label, k in zip(self.group_labels, self.group_clusters) if k < SMALL_NUMBER_OF_CLUSTERS]
+            few = self._few_cluster_groups()
             if not few:
                 return None
             listed = ", ".join(f"'{label}' ({k})" for label, k in few)

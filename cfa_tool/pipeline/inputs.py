@@ -1413,7 +1413,7 @@ def design_problems(design, free: int) -> tuple:
     problems: tuple = ()
     caution = design.caution(free)
     if caution:  # the standard errors and tests themselves are in doubt
-        problems += (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.clusters), caution,
+        problems += (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.judged_clusters), caution,
                              Note(("read the p-values with caution, or fit without ",
                                    Command(f"{Option.CLUSTER}", "the clusters"),
                                    " and say that rows are nested in clusters."))),)
@@ -1438,7 +1438,7 @@ def design_problems(design, free: int) -> tuple:
                                    "within strata."))),)
     uneven = design.weight_caution()
     if uneven:
-        problems += (Problem(ProblemKind.SMALL_EFFECTIVE_SAMPLE, (), round(float(design.effective_n), 1), uneven,
+        problems += (Problem(ProblemKind.SMALL_EFFECTIVE_SAMPLE, (), round(float(design.judged_effective_n), 1), uneven,
                              "check the weights (a few rows may carry most of them), trim extreme weights by the survey's "
                              "rules, or report the unweighted fit beside the weighted one."),)
     return problems

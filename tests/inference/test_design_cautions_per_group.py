@@ -29,6 +29,7 @@ def test_a_group_of_few_clusters_is_a_caution(rows):
     result = fit(MODEL, data, group="district", cluster="hh")
     (few,) = [p for p in result.problems if p.kind is ProblemKind.FEW_CLUSTERS]
     assert "group 'south' (3)" in str(few.explanation)
+    assert few.value == 3  # the group's clusters, not the sample's 185
 
 
 def test_enough_clusters_in_every_group_say_nothing(rows):
@@ -50,3 +51,4 @@ def test_weights_uneven_within_one_group_are_a_caution(rows):
     result = fit(MODEL, data, group="district", weights="w")
     (uneven,) = [p for p in result.problems if p.kind is ProblemKind.SMALL_EFFECTIVE_SAMPLE]
     assert f"group 'south': its {len(south)} rows count as about {kish['south']:.1f}" in str(uneven.explanation)
+    assert uneven.value == round(kish["south"], 1)  # the group's, not the sample's
