@@ -872,7 +872,8 @@ def as_written(par) -> str:
     return reference_text(word, par.variables)
 
 
-def _correlation(value: float) -> str:
+def two_decimals(value: float) -> str:
+    """A standardized value (a correlation, a standardized loading) to two decimals without the leading zero: '-.70'."""
     return f"{value:.2f}".replace("0.", ".", 1)
 
 
@@ -1000,7 +1001,7 @@ def impossible_fixed_values(table: ParameterTable, source: str, starts: bool = T
         # singular matrix, not an impossible one
         smallest = np.linalg.eigvalsh(corr)[0]
         if smallest <= 0 if starts else smallest < -1e-9:
-            values = [f"{_correlation(corr[i, j])} ({members[i]} with {members[j]})"  # each pair with its value
+            values = [f"{two_decimals(corr[i, j])} ({members[i]} with {members[j]})"  # each pair with its value
                       for i in range(len(members)) for j in range(i + 1, len(members))]
             what = "factor correlations" if kind == "factor" else "residual correlations"
             hows = {pairs[frozenset((members[i], members[j]))][1] for i in range(len(members)) for j in range(i)}
