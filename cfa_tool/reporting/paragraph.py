@@ -522,9 +522,9 @@ def _sample_phrase(result) -> str:
         text += f"; {_NOTHING_MISSING}"
     elif low is not None:
         floor = math.floor(1000 * low) / 10  # never rounded up: 99.96% is not 'every row'
+        rows = "each group's rows" if result.multigroup else "the rows"  # _lowest_coverage judges each group apart
         text += (f"; every answer of every row was used, including rows with missing answers{_FULL_INFORMATION_ASSUMPTION}"
-                 f"; each item was answered in at least {floor:g}% of "
-                 f"{'each group' + chr(39) + 's rows' if result.multigroup else 'the rows'}")
+                 f"; each item was answered in at least {floor:g}% of {rows}")
     pairs = data.pair_range
     if _pairs_with_gaps(result):
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
