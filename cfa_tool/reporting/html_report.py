@@ -72,9 +72,9 @@ def _heat(text: str) -> str:
 
 
 def _indent(text: str) -> str:
-    """A cell's leading spaces (a row under the one above it: '  p', '  90% interval') as its indent: HTML collapses
-    spaces, and the row would read as one of its own (new-user trial s16)."""
-    spaces = len(text) - len(text.lstrip(" "))
+    """A cell's indent (tables.indented) as its padding: HTML collapses spaces, and the row would read as one of its
+    own (new-user trial s16)."""
+    spaces = T.indented(text)[0]
     return f' style="padding-left:{0.35 + 0.5 * spaces:g}em"' if spaces else ""
 
 
@@ -83,7 +83,7 @@ def table_html(table: ReportTable, view: View = RUNNING) -> str:
     faint = set(table.faint)
     body = "".join(('<tr class="problem">' if k in table.flagged else "<tr>")
                    + "".join(f'<td class="{a}{" faint" if (k, j) in faint else ""}"'
-                             f'{_heat(v) if table.heat and a == "r" else _indent(v)}>{esc(v.lstrip(" "))}</td>'
+                             f'{_heat(v) if table.heat and a == "r" else _indent(v)}>{esc(T.indented(v)[1])}</td>'
                              for j, (v, a) in enumerate(zip(row, table.align))) + "</tr>"
                    for k, row in enumerate(table.rows))
     note = " ".join(text for text in (said(table.note or "", view), T.HEAT_LEGEND if table.heat else "") if text)

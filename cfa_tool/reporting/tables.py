@@ -177,6 +177,14 @@ def row_problem(result, kind: str, variables: tuple[str, ...], group: str | None
 UNADJUSTED = "unadjusted"
 
 
+def indented(cell: str) -> tuple[int, str]:
+    """A cell's indent and its words: a row that belongs to the one above it is written with leading spaces ('  p',
+    '  90% interval'), which each view shows as it can (HTML as padding, Markdown as no-break spaces, where plain
+    spaces collapse)."""
+    words = cell.lstrip(" ")
+    return len(cell) - len(words), words
+
+
 def unadjusted_label(label: str) -> str:
     """'RMSEA [90% interval]' -> 'RMSEA (unadjusted) [90% interval]'."""
     cut = label.find(" [")

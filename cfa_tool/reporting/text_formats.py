@@ -19,9 +19,8 @@ from cfa_tool.reporting.tables import ReportTable
 
 def markdown_table(table: ReportTable, view: View = RUNNING) -> str:
     def cell(text: str) -> str:
-        # a sub-row's leading spaces ('  p') as no-break spaces: a Markdown table's cells lose plain ones
-        spaces = len(text) - len(text.lstrip(" "))
-        return "\u00a0" * spaces + markdown_text(text[spaces:]) if text else ""
+        spaces, words = T.indented(text)  # as no-break spaces: a Markdown table's cells lose plain ones
+        return "\u00a0" * spaces + markdown_text(words) if text else ""
 
     lines = [f"**{markdown_text(table.title)}**", "",
              "| " + " | ".join(cell(c) or " " for c in table.columns) + " |",
