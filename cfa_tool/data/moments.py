@@ -582,12 +582,15 @@ def pairs_answered_together(answered: np.ndarray, names: Sequence[str], share: f
     answered = np.asarray(answered, dtype=bool)
     if not len(answered) or answered.all():
         return []
-    together = answered.T.astype(np.int64) @ answered.astype(np.int64)  # rows answering both (diagonal: each)
-    line = share * len(answered)
-    left = set(skip)
-    found = [(names[i], names[j], int(together[i, j])) for i in range(len(names)) for j in range(i + 1, len(names))
-             if together[i, j] < line and names[i] not in left and names[j] not in left]
-    return sorted(found, key=lambda t: t[2])
+    as_float = answered.astype(float)  # counts below 2**53 are exact in floats, and the product is BLAS's
+    together = as_float.T @ as_float  # rows answering both (diagonal: each)
+    left = np.array([name in set(skip) for name in names], dtype=bool)
+    i, j = np.triu_indices(len(names), 1)  # the pairs in the items' order
+    keep = (together[i, j] < share * len(answered)) & ~left[i] & ~left[j]
+    i, j = i[keep], j[keep]
+    counts = together[i, j]
+    order = np.argsort(counts, kind="stable")  # fewest first, the items' order among equals
+    return [(names[i[k]], names[j[k]], int(counts[k])) for k in order]
 
 
 def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20,
