@@ -356,7 +356,9 @@ def _defaults_held_apart(spec: Spec, table: ParameterTable, model: StructuredMod
     reverse-keyed item's loading (default -.7) held equal to a plainly keyed one's (+.7) can only be met halfway, at
     0, and a simulation from it would draw items that do not measure their factor while the population table calls
     the value the default.  A defaulted loading whose standardized population value has the other sign than its
-    default, or less than half its size, is named with the 'equal' statement that holds it."""
+    default, or less than half its size (a line of this project, not a published one: equal loadings of one sign but
+    of items on different numbers of factors meet near their defaults, well above it), is named with the 'equal'
+    statement that holds it."""
     codes, rows, cols = table.entry_arrays()
     per_item = np.bincount(rows[codes == 0], minlength=table.p)
     reversed_items = frozenset(spec.reverse_keyed)
