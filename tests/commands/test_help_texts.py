@@ -3,10 +3,13 @@
 from __future__ import annotations
 
 import argparse
+from pathlib import Path
 
 import pytest
 
 from cfa_tool.cli import build_parser
+
+DOCS = Path(__file__).resolve().parents[2] / "docs"
 
 
 def _commands() -> dict[str, argparse.ArgumentParser]:
@@ -27,15 +30,14 @@ def test_help_of_every_command_is_printed(name):
         assert "every refit treats the rows as the fit does" in " ".join(text.split())
 
 
-def test_the_readme_names_the_commands_that_take_workers_as_the_parsers_do():
+def test_the_docs_name_the_commands_that_take_workers_as_the_parsers_do():
     # a hostile trial: the README said 'simulation commands take --workers' and 'align' (which simulates its
-    # Monte Carlo check) rejected it. The README's sentence is read and held against each parser's options.
+    # Monte Carlo check) rejected it. The sentence, now in docs/commands.md, is read and held against each parser's
+    # options.
     import re
 
-    from cfa_tool.resources import resource_dir
-
-    readme = (resource_dir("models").parent / "README.md").read_text()
-    sentence = next(line for line in readme.splitlines() if "`--workers N`" in line)
+    page = (DOCS / "commands.md").read_text(encoding="utf-8")
+    sentence = next(line for line in page.splitlines() if "`--workers N`" in line)
     with_workers, seed_only = sentence.split("`--workers N`")[0], sentence.split("take `--seed N` only")[0]
     listed = set(re.findall(r"`([a-z-]+)`", with_workers.split("take")[0]))
     alone = set(re.findall(r"`([a-z-]+)`", seed_only.split(";")[-1]))
@@ -46,19 +48,17 @@ def test_the_readme_names_the_commands_that_take_workers_as_the_parsers_do():
     assert alone == seeded - takes
 
 
-def test_the_readme_data_files_section_names_options_the_fit_takes_and_filters_that_parse():
-    # the data-files paragraph, split into sections with headings: every option it names is an option of 'fit'
-    # (the command the section describes), each value written beside one is one the option takes, and each
-    # --keep example is a row filter that parses
+def test_the_data_files_page_names_options_the_fit_takes_and_filters_that_parse():
+    # the data-files page (the README's section until the reference pages), in sections with headings: every
+    # option it names is an option of 'fit' (the command the page describes), each value written beside one is one
+    # the option takes, and each --keep example is a row filter that parses
     import re
 
     from cfa_tool.cli import build_parser
     from cfa_tool.data.filters import parse_filter
-    from cfa_tool.resources import resource_dir
 
-    readme = (resource_dir("models").parent / "README.md").read_text(encoding="utf-8")
-    section = readme.split("### Data files\n", 1)[1].split("\n### ", 1)[0]
-    headings = re.findall(r"^#### (.+)$", section, re.M)
+    section = (DOCS / "data-files.md").read_text(encoding="utf-8")
+    headings = re.findall(r"^## (.+)$", section, re.M)
     assert headings[:3] == ["Reading files", "Encodings", "Excel workbooks"] and len(headings) >= 8
     fit = _commands()["fit"]
     written = re.findall(r"`(--[a-z-]+)(?: ([^`]+))?`", section)
