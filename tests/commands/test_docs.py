@@ -120,6 +120,28 @@ def test_the_readme_table_has_every_command_once_and_the_report_options_as_said(
         assert has == (set(said) - {"--json"} if name == "report" else set(said)), name
 
 
+def test_the_reports_page_names_the_commands_that_write_report_files():
+    page = " ".join((ROOT / "docs" / "reports.md").read_text(encoding="utf-8").split())
+    assert "Report files, on `fit` and `demo`:" in page
+    listed, options = page.split("Every other command (", 1)[1].split(") takes ", 1)
+    named = re.findall(r"`([a-z-]+)`", listed)
+    said = re.findall(r"`(--[a-z]+)", options.split(" too:", 1)[0])
+    assert said == ["--json", "--html", "--markdown", "--docx", "--tables"]
+    assert sorted(named) == sorted(set(_commands()) - {"fit", "demo", "report"})
+    for name in named:
+        assert set(said) <= set(_commands()[name]._option_string_actions), name  # noqa: SLF001
+
+
+def test_the_python_page_names_a_function_for_every_command_but_two():
+    import cfa_tool
+
+    page = " ".join((ROOT / "docs" / "python.md").read_text(encoding="utf-8").split())
+    assert "Every command but `demo` and `report` is a function of the `cfa_tool` package" in page
+    for name in set(_commands()) - {"demo", "report"}:
+        assert name.replace("-", "_") in cfa_tool.__all__ and callable(getattr(cfa_tool, name.replace("-", "_")))
+    assert "invariance_power" in cfa_tool.__all__
+
+
 def test_the_readmes_first_model_fits_the_demo_and_its_mistake_reads_as_shown(tmp_path, capsys):
     # the README's first model is the demo's three-factor model; the model language page's mistake is what the
     # command prints for that model with 'on_time' misspelt on its line 4
@@ -160,4 +182,5 @@ def test_the_summary_statistics_example_reads_as_said(tmp_path):
     path.write_text(example, encoding="utf-8")
     model = "factor visual: x1, x2, x3\nfactor verbal: x4, x5, x6\n"
     result = cfa_tool.fit(model, path, diagnostics=False, modification_indices=False)
-    assert result.n_obs == 301 and result.fit.df == 8  # 21 moments less 13 free parameters
+    assert result.n_obs == 301 and result.fit.df == 8  # 21 variances and covariances less 13 free parameters
+
