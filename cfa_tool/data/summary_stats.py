@@ -64,6 +64,9 @@ MAX_SUMMARY_BYTES = 50_000_000
 KINDS = ("covariance", "correlation")
 EXTRA_ROWS = ("n", "sd", "mean", "divisor")
 SUMMARY_SUFFIX = ".stats"
+#: where the layout of a summary-statistics file is shown, named by messages that advise writing one (the page of the
+#: reference in the repository; tests/commands/test_docs.py holds that it is there)
+LAYOUT_PAGE = "docs/summary-statistics.md"
 #: which files summary statistics are read from, in the words of a message about a matrix in another kind of file
 SUMMARY_FORMATS = f"summary statistics are read from comma-separated .csv files and {SUMMARY_SUFFIX} files only"
 #: the keyword lines of the first version of the format, recognised only to say how to write the file now
@@ -396,8 +399,8 @@ def pasted_matrix(frame: pd.DataFrame, row_names: pd.Series | None, items, sourc
     raise DataError(f"{source} looks like a {kind} matrix, not rows of answers: its rows are named as its columns "
                     f"{span}, {shown}; to fit it as "
                     f"summary statistics write '{kind}' in its first cell (now {corner}) and add a row 'n' with "
-                    f"the number of observations after the matrix{rename} (the README's section on summary "
-                    f"statistics shows the layout)")
+                    f"the number of observations after the matrix{rename} (the reference page on summary "
+                    f"statistics, {LAYOUT_PAGE}, shows the layout)")
 
 
 def _unnamed_matrix(frame: pd.DataFrame, items: list[str], source: str) -> None:
@@ -424,7 +427,8 @@ def _unnamed_matrix(frame: pd.DataFrame, items: list[str], source: str) -> None:
     raise DataError(f"{source} looks like a {kind} matrix saved without its row names, not rows of answers: as many "
                     f"rows as columns {span}, {shown}; to fit it as summary statistics add a first column that names "
                     f"each row as its column, with '{kind}' in its first cell, and a row 'n' with the number of "
-                    f"observations after the matrix (the README's section on summary statistics shows the layout)")
+                    f"observations after the matrix (the reference page on summary statistics, {LAYOUT_PAGE}, "
+                    f"shows the layout)")
 
 
 def _api_advice(kind: str) -> str:

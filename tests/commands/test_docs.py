@@ -184,3 +184,21 @@ def test_the_summary_statistics_example_reads_as_said(tmp_path):
     result = cfa_tool.fit(model, path, diagnostics=False, modification_indices=False)
     assert result.n_obs == 301 and result.fit.df == 8  # 21 variances and covariances less 13 free parameters
 
+
+def test_the_advice_to_write_a_summary_statistics_file_names_the_page_that_shows_it(tmp_path, capsys):
+    # a matrix saved without its row names (pandas' DataFrame.cov().to_csv(index=False)) is refused with the advice
+    # to write it as summary statistics; the page the advice names exists and shows the layout (it named the
+    # README's section, which the README no longer has)
+    import pandas as pd
+
+    from cfa_tool.data.summary_stats import LAYOUT_PAGE
+
+    rows = pd.read_csv(ROOT / "demo" / "rider_survey.csv")
+    items = ["on_time", "short_wait", "accurate_info", "easy_transfer"]
+    rows[items].cov().to_csv(tmp_path / "cov.csv", index=False)
+    (tmp_path / "m.cfa").write_text("factor punctuality: " + ", ".join(items) + "\n", encoding="utf-8")
+    assert main(["fit", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "cov.csv")]) == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert f"(the reference page on summary statistics, {LAYOUT_PAGE}, shows the layout)" in err
+    page = (ROOT / LAYOUT_PAGE).read_text(encoding="utf-8")
+    assert page.startswith("# Summary statistics") and "\ncorrelation,x1,x2,x3,x4,x5,x6\nx1,1\n" in page
