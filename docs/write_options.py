@@ -24,16 +24,11 @@ error, never another option; an option that takes one value given twice is an er
 """
 
 
-def _commands() -> dict[str, argparse.ArgumentParser]:
-    parser = build_parser()
-    sub = next(a for a in parser._actions if isinstance(a, argparse._SubParsersAction))  # noqa: SLF001
-    return dict(sub.choices)
-
-
-def _summaries() -> dict[str, str]:
-    parser = build_parser()
-    sub = next(a for a in parser._actions if isinstance(a, argparse._SubParsersAction))  # noqa: SLF001
-    return {choice.dest: choice.help for choice in sub._choices_actions}  # noqa: SLF001
+def _commands() -> list[tuple[str, argparse.ArgumentParser, str]]:
+    """Each command's name, parser and one-line summary, in the order of `cfa-tool --help`."""
+    sub = next(a for a in build_parser()._actions if isinstance(a, argparse._SubParsersAction))  # noqa: SLF001
+    summaries = {choice.dest: choice.help for choice in sub._choices_actions}  # noqa: SLF001
+    return [(name, parser, summaries[name]) for name, parser in sub.choices.items()]
 
 
 def _cell(text: str) -> str:
@@ -46,13 +41,15 @@ def _invocation(formatter: argparse.HelpFormatter, action: argparse.Action) -> s
 
 
 def command_section(name: str, parser: argparse.ArgumentParser, summary: str) -> str:
-    """One command: its one-line summary, how it is called, and a table of its options (hidden ones, which only
-    answer an option of earlier versions with an error, left out)."""
+    """One command: its one-line summary, how it is called, and a table of its options (hidden ones left out: they
+    only answer with an error, as options of earlier versions and options a command cannot take do)."""
     formatter = parser._get_formatter()  # noqa: SLF001
-    shown = [a for a in parser._actions if a.help != argparse.SUPPRESS and not isinstance(a, argparse._HelpAction)]  # noqa: SLF001
+    shown = [a for a in parser._actions  # noqa: SLF001
+             if a.help != argparse.SUPPRESS and not isinstance(a, argparse._HelpAction)]  # noqa: SLF001
     positional = [a for a in shown if not a.option_strings]
     required = [a for a in shown if a.option_strings and a.required]
-    call = " ".join([PROG, name, *(_invocation(formatter, a) for a in positional),
+    # positionals as the usage line writes them ('MODEL [MODEL ...]'), then the options a call needs
+    call = " ".join([PROG, name, *(formatter._format_args(a, a.dest) for a in positional),  # noqa: SLF001
                      *(_invocation(formatter, a) for a in required)])
     lines = [f"## {name}", "", f"{summary[0].upper()}{summary[1:]}.", "", f"`{call}`", ""]
     if shown:
@@ -66,9 +63,9 @@ def command_section(name: str, parser: argparse.ArgumentParser, summary: str) ->
 
 def options_markdown() -> str:
     """The whole page, commands in the order of `cfa-tool --help`."""
-    summaries = _summaries()
-    index = ", ".join(f"[{name}](#{name})" for name in _commands())
-    sections = [command_section(name, parser, summaries[name]) for name, parser in _commands().items()]
+    commands = _commands()
+    index = ", ".join(f"[{name}](#{name})" for name, _, _ in commands)
+    sections = [command_section(name, parser, summary) for name, parser, summary in commands]
     return "\n".join([HEADER, f"Commands: {index}.", "", *sections]).rstrip("\n") + "\n"
 
 
