@@ -276,11 +276,11 @@ def _rows_as_read(loaded) -> pd.DataFrame:
     return read
 
 
-def _in_file_order(table: pd.DataFrame, data, names_row: int | None = None) -> pd.DataFrame:
+def _in_file_order(table: pd.DataFrame, data, names_row: int = 1) -> pd.DataFrame:
     """The scores of a file's rows with an empty line for each blank row the reader skipped between them (hostile
     trial s11: a blank sheet row dropped from the scores file shifted every later score onto the row above when
-    the file was pasted beside the sheet), and for each row between the column names (``names_row``, else the
-    first row) and the first row of answers (--first-data-row: a row of question texts; hostile tester s13: without
+    the file was pasted beside the sheet), and for each row between the column names (``names_row``: the row they
+    were read from, data.readers.LoadedData.names_row_read, below a title or empty rows too) and the first row of answers (--first-data-row: a row of question texts; hostile tester s13: without
     them every score sat one respondent off).  A file's rows are indexed by their place in the file as a spreadsheet
     shows it (data.moments.file_rows_index: the row's number less one; a text file's record, not its text line, so
     a quoted cell's line breaks add no line: new-user trial s14), so a gap in the index is a row not read and line k
@@ -290,7 +290,7 @@ def _in_file_order(table: pd.DataFrame, data, names_row: int | None = None) -> p
     index = table.index
     if not index.is_monotonic_increasing:
         return table
-    first = min(index[0], names_row or 1)  # the row just below the names: index = its number - 1 = the names' row
+    first = min(index[0], names_row)  # the row just below the names: index = its number - 1 = the names' row
     if index[-1] - first + 1 > len(index):
         return table.reindex(pd.RangeIndex(first, index[-1] + 1))
     return table
@@ -829,7 +829,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                       bool(standard_errors or ordinal_items), answered)
     columns = _with_same_answer_column(columns, id_name, spec, items, rows, position.loc[kept].to_numpy(),
                                        len(read_index))
-    table = _in_file_order(pd.DataFrame(columns, index=read_index), data, names_row)  # a frame's own index: joins
+    table = _in_file_order(pd.DataFrame(columns, index=read_index), data, loaded.names_row_read)  # a frame's own index: joins
     table = _with_why_not_scored(table, id_name, score_columns(chosen, factors), reasons,
                                  pd.Series(left, index=read_index))
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
@@ -1116,7 +1116,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
-    table = _with_why_not_scored(_in_file_order(pd.DataFrame(columns, index=read_frame.index), data, names_row), id_name,
+    table = _with_why_not_scored(_in_file_order(pd.DataFrame(columns, index=read_frame.index), data,
+                                                  loaded.names_row_read), id_name,
                                  score_columns(chosen, factors), reasons, pd.Series(left, index=read_frame.index))
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
                        unscored, with_errors, tuple(notes), source, tuple(warnings), summaries, unanswered)
