@@ -34,6 +34,9 @@ ROW_NAMING = "row_naming"
 #: ``RowNaming.json_word``, 'file_row' (the row of the file as a spreadsheet shows it) or 'index_label' (the
 #: label of a data frame's index)
 ROW_NAMED_BY = "row_named_by"
+#: the name under which the file's row names (a first column without a name in the header) are written beside the
+#: scores and compared by a row filter ('row_name != E1165'), a column of the file of that name aside
+ROW_NAMES_COLUMN = "row_name"
 
 
 class RowNaming(enum.Enum):

@@ -345,7 +345,8 @@ def rows_kept(loaded: LoadedData, filters) -> tuple[LoadedData, list[str]]:
     unchanged without filters."""
     if not filters:
         return loaded, []
-    frame, notes, filters = apply_filters(loaded.frame, list(filters), loaded.source, loaded.value_labels)
+    frame, notes, filters = apply_filters(loaded.frame, list(filters), loaded.source, loaded.value_labels,
+                                          loaded.row_names)
     return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame), read_frame=loaded.frame,
                    row_filters=tuple(filters)), notes
 

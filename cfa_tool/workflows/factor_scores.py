@@ -19,7 +19,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.kept_rows import RowNaming, row_naming
+from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, row_naming
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
 from cfa_tool.data.summary_stats import NotGiven
@@ -94,7 +94,7 @@ _SUMMARY_ROW = {NotGiven.MEANS: "mean", NotGiven.STANDARD_DEVIATIONS: "sd"}
 ABOUT_THE_FIT = "About the fit (not the scored data): "
 
 #: the header of the id column when the file's row names name the rows
-ROW_NAME_HEADER = "row_name"
+ROW_NAME_HEADER = ROW_NAMES_COLUMN
 
 #: the words --method takes, one per linear method and item score (ordinal items have one method: the posterior mean)
 METHOD_WORDS = {m.value: m for m in LINEAR_METHODS + ITEM_METHODS}
