@@ -47,6 +47,24 @@ def row_ids(frame: pd.DataFrame, source: str, id_column: str | None, model_varia
     return values.map(_text).rename(None)
 
 
+def id_like_column(frame: pd.DataFrame, skip) -> str | None:
+    """The first column of ``frame`` (the rows as read) outside ``skip`` (the model's variables, the group and design
+    columns) that could name the rows: a value in every row, no two alike, and no fractions (a code or a name, not a
+    measurement); None when none does or the frame has fewer than two rows."""
+    if len(frame) < 2:
+        return None
+    for name in frame.columns:
+        if name in skip:
+            continue
+        values = frame[name]
+        if values.isna().any() or not values.is_unique:
+            continue
+        if values.dtype.kind == "f" and not np.all(np.mod(values.to_numpy(), 1) == 0):
+            continue
+        return str(name)
+    return None
+
+
 def ids_by_row_number(ids: pd.Series | None, frame: pd.DataFrame) -> dict[int, str | None]:
     """Data-row number (as the case diagnostics count them) -> id."""
     if ids is None:

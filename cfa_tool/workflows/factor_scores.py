@@ -841,6 +841,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         extra.insert(0, Note((f"The first column holds the row names of {source} (its first column, which has no "
                               f"name in the header)", Command(f"; give {Option.ID_COLUMN.given('COLUMN')} to name the "
                                                               "rows by another column"), ".")))
+    elif ids is None and not isinstance(data, pd.DataFrame):
+        extra[:0] = _id_column_note(read_frame, source, spec, group, design)
     own = _without_own_answers(answered, values, chosen, factors, unanswered)
     if own:
         result = replace(result, problems=tuple(own) + tuple(result.problems))
@@ -854,6 +856,21 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                        bool(standard_errors or ordinal_items), tuple(extra),
                        warnings=tuple(centred_in_each_group(result.estimates)), item_sums=summaries,
                        unanswered=unanswered)
+
+
+def _id_column_note(read_frame: pd.DataFrame, source: str, spec, group, design) -> list[Note]:
+    """When no column names the rows in the scores file: a column of ``read_frame`` that could (data.row_ids.
+    id_like_column), named with the option that writes it beside the scores (new-user trial s17: a survey
+    platform's file with an employee code in every row gave scores matched back to people by position only)."""
+    from cfa_tool.data.row_ids import id_like_column
+
+    skip = set(spec.observed_names) | {group} | {name for _, name in (design.names if design is not None else ())}
+    column = id_like_column(read_frame, skip)
+    if column is None:
+        return []
+    return [Note((f"No column names the rows in the scores file, whose lines follow the rows of {source} in order; "
+                  f"the column '{printable(column)}' holds a different value in every row and could name them",
+                  Command(f" ({Option.ID_COLUMN.given(column)})"), "."))]
 
 
 def _with_repeated_ids(result, ids, id_column):
@@ -1101,6 +1118,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     result = _with_repeated_ids(result, ids, id_column)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names", False) \
         + _partly_answered(base, answered, chosen, errors)
+    if ids is None and not isinstance(data, pd.DataFrame):
+        notes[:0] = _id_column_note(read_frame, source, spec, group, None)
     if group is not None:
         from cfa_tool.data.labels import label_notes
 

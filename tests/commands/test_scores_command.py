@@ -593,3 +593,28 @@ def test_a_long_scoring_says_so_on_a_terminal_and_nowhere_else(tmp_path, capsys,
     assert code == 0 and err.count(line) == 1
     assert "Scoring 300" not in text and "Scoring 300" not in (tmp_path / "b.json").read_text()
     assert (tmp_path / "a.csv").read_bytes() == (tmp_path / "b.csv").read_bytes()
+
+
+@pytest.mark.parametrize("from_fit", [False, True])
+def test_a_column_that_could_name_the_rows_is_suggested_when_none_does(tmp_path, model_file, capsys, from_fit):
+    # new-user trial s17: a survey platform's CSV with an employee code in every row gave a scores file without any
+    # id and a report silent about --id, so the scores could be matched back to people only by position.  Check: the
+    # code column is named with the option, a column with repeats or gaps is not, and with --id nothing is said.
+    raw = pd.read_csv(HS_FILE)[["school"] + ITEMS]  # no row names, no id column
+    coded = raw.assign(code=[f"C{k:04d}" for k in range(len(raw))], site=["a", "b"] * (len(raw) // 2) + ["a"])
+    coded.to_csv(tmp_path / "coded.csv", index=False)
+    extra = []
+    if from_fit:
+        assert _run(["fit", model_file, "--data", tmp_path / "coded.csv", "--json", tmp_path / "fit.json"],
+                    capsys)[0] == 0
+        extra = ["--from-fit", tmp_path / "fit.json"]
+    code, out, _ = _run(["scores", model_file, "--data", tmp_path / "coded.csv", "--output", tmp_path / "a.csv"]
+                        + extra, capsys)
+    assert code == 0
+    said = " ".join(out.split())
+    assert "the column 'code' holds a different value in every row and could name them (--id code)" in said
+    assert "'site'" not in said
+    code, out, _ = _run(["scores", model_file, "--data", tmp_path / "coded.csv", "--id", "code", "--output",
+                         tmp_path / "b.csv"] + extra, capsys)
+    assert code == 0 and "could name them" not in " ".join(out.split())
+    assert (tmp_path / "b.csv").read_text().splitlines()[1].startswith("C0000,")
