@@ -2166,7 +2166,20 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        row_naming=row_naming(frame), text_lines=dict(text_lines(frame)),
                        answers=_answers_per_category(spec, frame, source, group, reference_group, ordinal_items,
                                                      loaded),
-                       refusals=refusals)
+                       refusals=refusals, group_coverage=_group_coverage(spec, frame, source, group, reference_group))
+
+
+def _group_coverage(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,
+                    reference_group: str | None) -> tuple[tuple[str, float], ...]:
+    """Each group's share of the model variables' cells its rows answered (data.groups splits the rows, as a fit
+    does), in the groups' order; () without groups."""
+    if group is None:
+        return ()
+    from cfa_tool.data.groups import group_rows
+
+    split, _ = group_rows(frame, group, source, reference_group)
+    items = list(spec.observed_names)
+    return tuple((str(label), float(part[items].notna().to_numpy().mean())) for label, part in split if len(part))
 
 
 def _answers_per_category(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,
