@@ -1,9 +1,10 @@
 """A line of a report that each view writes its own way (:class:`Note`): words for every reader, and apart from
-them what the program's user runs (:class:`Command`: an option, with its Python keyword) and references to a table
-of the report (:class:`TableReference`, by its key).  A view says the line as its reader reads it (:class:`View`):
-the terminal, text and HTML views give the command and name a table by its title; a manuscript (the Word file)
-leaves the command out, or says it in words where the line needs them, and names a table by its number.  Any
-part of the tool that writes a line giving advice makes it a Note; a plain line stays text."""
+them what the program's user runs (:class:`Command`: an option, with its Python keyword), references to a table
+of the report (:class:`TableReference`, by its key) and respondents' ids beside row numbers (:class:`RowId`).  A
+view says the line as its reader reads it (:class:`View`): the terminal, text and HTML views give the command and
+the ids and name a table by its title; a manuscript (the Word file) leaves the command out, or says it in words
+where the line needs them, names rows by their numbers alone and a table by its number.  Any part of the tool that
+writes a line giving advice or naming respondents makes it a Note; a plain line stays text."""
 
 from __future__ import annotations
 
@@ -29,13 +30,21 @@ class TableReference:
     key: str
 
 
-Part = str | Command | TableReference
+@dataclass(frozen=True)
+class RowId:
+    """A respondent's id beside the number of a row the line names (" ('E1165')"): the program's user reads it to
+    find the row; a manuscript leaves it out (its rows named by number alone), as it leaves out the ids column."""
+
+    text: str
+
+
+Part = str | Command | TableReference | RowId
 
 
 @dataclass(frozen=True)
 class View:
-    """How a view writes a :class:`Note`: with the commands (its reader runs the program) or without (a
-    manuscript's), and each table's name in it by key."""
+    """How a view writes a :class:`Note`: with the commands and respondents' ids (its reader runs the program) or
+    without (a manuscript's), and each table's name in it by key."""
 
     commands: bool
     tables: Mapping[str, str] = field(default_factory=dict)
@@ -80,6 +89,7 @@ class Note:
 
     def said(self, view: View) -> str:
         return "".join(p if isinstance(p, str) else view.name(p) if isinstance(p, TableReference) else
+                       (p.text if view.commands else "") if isinstance(p, RowId) else
                        p.text if view.commands else p.words for p in self.parts)
 
     def __str__(self) -> str:  # as the program's user reads it (what a result's JSON holds)
@@ -107,6 +117,7 @@ class Note:
 
     def to_dict(self) -> dict:
         return {"parts": [p if isinstance(p, str) else {"table": p.key} if isinstance(p, TableReference) else
+                          {"id": p.text} if isinstance(p, RowId) else
                           {"command": p.text, "words": p.words} for p in self.parts]}
 
     @classmethod
@@ -120,8 +131,10 @@ class Note:
                 parts.append(TableReference(p["table"]))
             elif isinstance(p, dict) and isinstance(p.get("command"), str):
                 parts.append(Command(p["command"], str(p.get("words", ""))))
+            elif isinstance(p, dict) and isinstance(p.get("id"), str):
+                parts.append(RowId(p["id"]))
             else:
-                raise ValueError("a part of a note that is neither words, a command nor a table")
+                raise ValueError("a part of a note that is neither words, a command, a table nor a row's id")
         return cls(tuple(parts))
 
 

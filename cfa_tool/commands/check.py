@@ -7,7 +7,7 @@ import sys
 from pathlib import Path
 
 from cfa_tool.commands import options as O
-from cfa_tool.commands.common import add_half_option, add_report_options, check_output, emit, inputs_of
+from cfa_tool.commands.common import add_report_options, check_output, emit, inputs_of
 from cfa_tool.errors import DataError, printable
 
 
@@ -20,7 +20,6 @@ def add_parser(sub) -> None:
     check.add_argument("--ordinal", metavar="ITEMS",
                        help="'all' or comma-separated items to check as an ordinal fit would (their categories, in "
                             "each group); every problem that would stop that fit is listed, then the exit code is 2")
-    add_half_option(check)
     O.add_design_options(check, "checked and stated as the fit would use it: the sum of the weights, Kish's effective "
                                 "sample size, the clusters and strata, and a caution when clusters are too few")
     add_report_options(check)

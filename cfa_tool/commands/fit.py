@@ -6,7 +6,7 @@ import argparse
 from pathlib import Path
 
 from cfa_tool.commands import options as O
-from cfa_tool.commands.common import add_half_option, add_report_options, check_output, diagram_files, emit, inputs_of
+from cfa_tool.commands.common import add_report_options, check_output, diagram_files, emit, inputs_of
 from cfa_tool.method import Information
 
 
@@ -15,7 +15,6 @@ def add_parser(sub) -> None:
     O.add_model_and_data(fit, "data file: CSV/TSV, Excel .xlsx, SPSS .sav/.por, Stata .dta, or a summary-statistics "
                               "CSV (covariance or correlation matrix)")
     O.add_data_options(fit)
-    add_half_option(fit)
     O.add_group_options(fit, required=False)
     add_fit_outputs(fit)
     fit.add_argument("--id", metavar="COLUMN", help="column that names each row (never analysed): the case tables and the "

@@ -31,7 +31,9 @@ def add_model_and_data(p: argparse.ArgumentParser, data_help: str = "data file")
 
 
 def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
-    """--sheet, --missing-codes and (``filters``) --keep."""
+    """--sheet, --missing-codes and (``filters``) --keep and --half: every command that selects rows can analyse one
+    half of a halves file (new-user trial s17: only fit and check took --half, so a rival model was compared on
+    every row, the exploration half included)."""
     p.add_argument("--sheet", metavar="NAME", help="sheet of an Excel workbook (default: the first)")
     p.add_argument("--names-row", metavar="N", type=row_number, default=None,
                    help="the row (of a sheet, or of a text file as a spreadsheet shows it) that holds the column "
@@ -53,6 +55,9 @@ def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
     if filters:
         p.add_argument("--keep", metavar="FILTER", action="append", default=[],
                        help="keep only rows that meet COLUMN OPERATOR VALUE, e.g. 'district = north' (repeatable)")
+        from cfa_tool.commands.common import add_half_option
+
+        add_half_option(p)
 
 
 def row_number(text: str) -> int:

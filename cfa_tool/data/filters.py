@@ -16,7 +16,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.kept_rows import KEPT_BY, cell_words, row_naming
+from cfa_tool.data.kept_rows import KEPT_BY, ROW_NAMES_COLUMN, cell_words, row_naming
 from cfa_tool.data.labels import label_text, listed_labels, merged_labels, other_case, shared_labels
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import DataError, OptionError, printable
@@ -158,13 +158,16 @@ def _first_text(column: pd.Series, numeric: pd.Series) -> str:
 
 
 def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
-                  value_labels: dict[str, dict] | None = None
+                  value_labels: dict[str, dict] | None = None, row_names: pd.Series | None = None
                   ) -> tuple[pd.DataFrame, list[str], tuple[RowFilter, ...]]:
     """Keep the rows that meet every filter; notes say how many each filter left out, first those it left out for an
     empty cell (which meets no comparison, '!=' included: what it holds is unknown).  Text is compared as labels are
     read everywhere (spaces at the ends and Unicode forms ignored); a text value compared with a column of codes that
     carry value labels (SPSS, Stata) is compared with the codes' labels.  Returns the kept rows, the notes and the
-    filters with the rows each left out for an empty cell (:attr:`RowFilter.empty`)."""
+    filters with the rows each left out for an empty cell (:attr:`RowFilter.empty`).  ``row_names``: the file's row
+    names (a first column without a name, on ``frame``'s index), which a filter compares as the column
+    data.kept_rows.ROW_NAMES_COLUMN when the file has no column of that name (new-user trial s17: the rows a caution
+    named by their row names could not be filtered out without editing the file)."""
     from dataclasses import replace
 
     notes = []
@@ -178,11 +181,13 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
                               + "; give it once (or give the other filter you meant)")
         given[key] = f
     for f in filters:
-        if f.column not in frame.columns:
-            guess = close_names(f.column, [str(c) for c in frame.columns])
+        by_row_names = f.column == ROW_NAMES_COLUMN and row_names is not None and f.column not in frame.columns
+        if f.column not in frame.columns and not by_row_names:
+            named = [str(c) for c in frame.columns] + ([ROW_NAMES_COLUMN] if row_names is not None else [])
+            guess = close_names(f.column, named)
             hint = renamed_hint(frame, f.column) or (f"; did you mean '{guess[0]}'?" if guess else "")
             raise OptionError(f"row filter '{printable(f)}': {source} has no column '{printable(f.column)}'{hint}")
-        column = frame[f.column]
+        column = row_names.reindex(frame.index).rename(f.column) if by_row_names else frame[f.column]
         labels = (value_labels or {}).get(f.column)
         by_label = ""
         shared: tuple[tuple[str, int], ...] = ()

@@ -9,7 +9,7 @@ from collections.abc import Mapping
 import pandas as pd
 
 from cfa_tool.errors import printable
-from cfa_tool.note_parts import Command, Note
+from cfa_tool.note_parts import Command, Note, RowId, Text
 from cfa_tool.options import Option
 
 #: the key of DataFrame.attrs that names the row filters a frame's rows were kept by (set by data.filters)
@@ -34,6 +34,9 @@ ROW_NAMING = "row_naming"
 #: ``RowNaming.json_word``, 'file_row' (the row of the file as a spreadsheet shows it) or 'index_label' (the
 #: label of a data frame's index)
 ROW_NAMED_BY = "row_named_by"
+#: the name under which the file's row names (a first column without a name in the header) are written beside the
+#: scores and compared by a row filter ('row_name != E1165'), a column of the file of that name aside
+ROW_NAMES_COLUMN = "row_name"
 
 
 class RowNaming(enum.Enum):
@@ -101,17 +104,21 @@ def row_of(frame: pd.DataFrame | pd.Series, number: int) -> str:
 
 
 def rows_listed(numbers, shown: int = 5, ids=(), naming: RowNaming = RowNaming.FILE_ROW,
-                lines: Mapping[int, int] | None = None) -> str:
+                lines: Mapping[int, int] | None = None) -> Text:
     """Rows named by their numbers (data.moments.row_numbers), the first ``shown`` of them, each with its id when
-    ``ids`` gives one (one per row, None where a row has none) and its text line when it starts on a line of another
-    number (``lines``: :func:`text_lines`), in the words of ``naming``: 'row 711 ('Total responses: 1204')', 'rows
-    152, 154, 424, 709, 710 and 3 more', 'row 501 (text line 575)', 'index labels 151, 153'."""
+    ``ids`` gives one (one per row, None where a row has none; a note_parts.RowId, which a manuscript leaves out) and
+    its text line when it starts on a line of another number (``lines``: :func:`text_lines`), in the words of
+    ``naming``: 'row 711 ('Total responses: 1204')', 'rows 152, 154, 424, 709, 710 and 3 more', 'row 501 (text line
+    575)', 'index labels 151, 153'."""
     numbers = [int(n) for n in numbers]
     ids = list(ids) if len(ids) == len(numbers) else [None] * len(numbers)
-    listed = ", ".join(str(n) + line_words(n, lines) + (f" ('{printable(str(i))[:40]}')" if i is not None else "")
-                       for n, i in zip(numbers[:shown], ids))
-    more = f" and {len(numbers) - shown} more" if len(numbers) > shown else ""
-    return f"{naming.of(len(numbers))} {listed}{more}"
+    parts: list = [f"{naming.of(len(numbers))} "]
+    for k, (n, i) in enumerate(zip(numbers[:shown], ids)):
+        parts += [", " if k else "", str(n) + line_words(n, lines)] + ([RowId(f" ('{printable(str(i))[:40]}')")]
+                                                                        if i is not None else [])
+    parts.append(f" and {len(numbers) - shown} more" if len(numbers) > shown else "")
+    listed = Note(tuple(parts))
+    return listed if any(isinstance(p, RowId) for p in listed.parts) else str(listed)
 
 
 def cell_words(frame: pd.DataFrame | pd.Series, column: str, row: int) -> str:

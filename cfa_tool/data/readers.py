@@ -77,6 +77,9 @@ class LoadedData:
     #: where an option (--names-row) said the column names are, in the words of a message about a missing column
     #: ('' when the first row with values held them)
     names_row_hint: str = ""
+    #: the row of the file (as a spreadsheet shows it, from 1) the column names were read from: 1 unless rows above
+    #: them were left unread (--names-row, a title row, empty rows); a scores file's header sits beside it
+    names_row_read: int = 1
     #: columns read under new names (data.renamed_columns.ColumnRename: --rename), which every report names
     renamed: tuple = ()
     #: the sampling design's weights of ``frame``'s rows, parsed once (data.sample_design.design_weights) for every
@@ -146,11 +149,12 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         names: list[pd.Series] = []
         sheets: list[str] = []
         hidden: list = []
+        header: list[int] = []
         loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden, names_in_file(renames, items), names_row,
-                                        names_option, _listed_in_file(renames, listed), first_data_row), str(path),
-                            notes=tuple(notes), row_names=names[0] if names else None, cautions=tuple(hidden),
+                                        names_option, _listed_in_file(renames, listed), first_data_row, header),
+                            str(path), notes=tuple(notes), row_names=names[0] if names else None, cautions=tuple(hidden),
                             sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else (),
-                            sheet_read=sheets[0] if sheets else "")
+                            sheet_read=sheets[0] if sheets else "", names_row_read=header[0])
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _with_case_filter(_read_labelled(path))
     elif suffix in (".xls",):
@@ -160,11 +164,12 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         names = []
         reading: list[TextReading] = []
         unread: list = []
+        header = []
         loaded = LoadedData(read_table(path, notes, names, names_in_file(renames, text_columns),
                                        names_in_file(renames, items), names_row, reading, names_option,
-                                       _listed_in_file(renames, listed), first_data_row, unread), str(path),
+                                       _listed_in_file(renames, listed), first_data_row, unread, header), str(path),
                             notes=tuple(notes), row_names=names[0] if names else None,
-                            reading=reading[0] if reading else None, cautions=tuple(unread))
+                            reading=reading[0] if reading else None, cautions=tuple(unread), names_row_read=header[0])
         if loaded.reading is not None and not loaded.reading.plain():  # said when it is not plain UTF-8 with commas
             loaded = replace(loaded, notes=(f"{path}: {loaded.reading.words()}",) + loaded.notes)
     loaded = _renamed(_composed_names(loaded), renames, renames_option)
@@ -356,7 +361,7 @@ def _renamed(loaded: LoadedData, renames: tuple[ColumnRename, ...], option: Opti
 def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list | None = None,
                 sheets_out: list | None = None, hidden_out: list | None = None, items=None,
                 names_row: int | None = None, names_option: Option = Option.NAMES_ROW, listed=None,
-                first_data_row: int | None = None) -> pd.DataFrame:
+                first_data_row: int | None = None, header_out: list | None = None) -> pd.DataFrame:
     try:
         import openpyxl
         from openpyxl.utils import get_column_letter
@@ -407,6 +412,8 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
                      f"which were read from row {first + 2}")
         first += 1
         rows = rows[1:]
+    if header_out is not None:
+        header_out.append(first + 1)
     data_start = first + 2  # the sheet's row of the first row of data
     between: list[tuple[int, tuple]] = []  # the rows a first row of data leaves unread, with their sheet rows
     if first_data_row is not None:
@@ -1312,7 +1319,8 @@ def _shown_delimiter(d: str) -> str:
 def read_table(path: str | Path, notes: list[str] | None = None, row_names: list | None = None,
                text_columns: tuple[str, ...] = (), items=None, names_row: int | None = None,
                reading: list | None = None, names_option: Option = Option.NAMES_ROW, listed=None,
-               first_data_row: int | None = None, cautions: list | None = None) -> pd.DataFrame:
+               first_data_row: int | None = None, cautions: list | None = None,
+               header_out: list | None = None) -> pd.DataFrame:
     """A delimited text file as a DataFrame, its rows indexed by their rows as a spreadsheet shows the file, one per
     record (:class:`TextRows`, data.moments.file_rows_index; a text line in a message about a malformed line).
     ``notes`` receives what was done to read it that the report should mention (empty fields dropped at the ends
@@ -1347,6 +1355,8 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
             notes.append(_names_row_note(str(path), start_row, names_option))
     header_line, header = first
     header_row = rows.row(header_line)
+    if header_out is not None:
+        header_out.append(header_row)
     between: list[tuple[int, list[str]]] = []  # the rows a first row of data leaves unread
     data_line = 0  # the line where the rows of data start (0: below the header)
     if first_data_row is not None:

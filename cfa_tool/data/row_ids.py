@@ -13,6 +13,7 @@ import pandas as pd
 from cfa_tool.errors import OptionError, printable
 from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names
+from cfa_tool.note_parts import Note, RowId, Text
 
 
 def _text(value) -> str | None:
@@ -46,6 +47,24 @@ def row_ids(frame: pd.DataFrame, source: str, id_column: str | None, model_varia
     return values.map(_text).rename(None)
 
 
+def id_like_column(frame: pd.DataFrame, skip) -> str | None:
+    """The first column of ``frame`` (the rows as read) outside ``skip`` (the model's variables, the group and design
+    columns) that could name the rows: a value in every row, no two alike, and no fractions (a code or a name, not a
+    measurement); None when none does or the frame has fewer than two rows."""
+    if len(frame) < 2:
+        return None
+    for name in frame.columns:
+        if name in skip:
+            continue
+        values = frame[name]
+        if values.isna().any() or not values.is_unique:
+            continue
+        if values.dtype.kind == "f" and not np.all(np.mod(values.to_numpy(), 1) == 0):
+            continue
+        return str(name)
+    return None
+
+
 def ids_by_row_number(ids: pd.Series | None, frame: pd.DataFrame) -> dict[int, str | None]:
     """Data-row number (as the case diagnostics count them) -> id."""
     if ids is None:
@@ -55,7 +74,7 @@ def ids_by_row_number(ids: pd.Series | None, frame: pd.DataFrame) -> dict[int, s
     return dict(zip(row_numbers(frame).tolist(), ids.tolist()))
 
 
-def repeated_ids(ids: pd.Series | None, what: str) -> str | None:
+def repeated_ids(ids: pd.Series | None, what: str) -> Note | None:
     """The sentence on rows that repeat an id of an earlier row (the ids then do not name one row each); None when
     none does."""
     if ids is None:
@@ -64,12 +83,13 @@ def repeated_ids(ids: pd.Series | None, what: str) -> str | None:
     repeated = present[present.duplicated()]
     if not len(repeated):
         return None
-    return (f"{what}: {len(repeated)} row{'s' if len(repeated) != 1 else ''} repeat{'' if len(repeated) != 1 else 's'} "
-            f"an id used by an earlier row (e.g. '{printable(str(repeated.iloc[0]))[:40]}'), so those ids do not name "
-            f"one row each")
+    return Note((f"{what}: {len(repeated)} row{'s' if len(repeated) != 1 else ''} "
+                 f"repeat{'' if len(repeated) != 1 else 's'} an id used by an earlier row",
+                 RowId(f" (e.g. '{printable(str(repeated.iloc[0]))[:40]}')"),  # the id apart: a manuscript leaves it out
+                 ", so those ids do not name one row each"))
 
 
-def duplicate_note(ids: pd.Series | None, what: str, repeats: bool = True) -> list[str]:
+def duplicate_note(ids: pd.Series | None, what: str, repeats: bool = True) -> list[Text]:
     """A note when ids repeat (unless ``repeats`` is False: a command that says it first) or are missing (they
     then do not name one row each)."""
     if ids is None:

@@ -380,9 +380,9 @@ def rows_left_out(groups, missing: MissingData | None,
             ids = named[1] if len(named) > 1 else ()
             naming = named[2] if len(named) > 2 else RowNaming.FILE_ROW
             lines = named[3] if len(named) > 3 else None  # a text file's rows on lines of other numbers
-            listed = f" ({rows_listed(rows, ids=ids, naming=naming, lines=lines)})" if len(rows) else ""
+            listed = " (" + rows_listed(rows, ids=ids, naming=naming, lines=lines) + ")" if len(rows) else ""
             notes.append(f"{dropped} of {read} {'row' if read == 1 else 'rows'}{where} answered none of the model "
-                         f"variables and {'was' if dropped == 1 else 'were'} left out{listed}")
+                         f"variables and {'was' if dropped == 1 else 'were'} left out" + listed)
     return tuple(cautions), notes
 
 

@@ -39,7 +39,7 @@ from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_desi
 from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, holds_summary, pasted_matrix, read_summary_file,
                                          summary_in_other_text, summary_moments)
 from cfa_tool import options as opt
-from cfa_tool.note_parts import Command, Note
+from cfa_tool.note_parts import Command, Note, RowId, Text, joined
 from cfa_tool.options import Option, option_in_both, own_keywords
 from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, check_rows_counted, printable
 from cfa_tool.input_files import DATA_FRAME
@@ -345,7 +345,8 @@ def rows_kept(loaded: LoadedData, filters) -> tuple[LoadedData, list[str]]:
     unchanged without filters."""
     if not filters:
         return loaded, []
-    frame, notes, filters = apply_filters(loaded.frame, list(filters), loaded.source, loaded.value_labels)
+    frame, notes, filters = apply_filters(loaded.frame, list(filters), loaded.source, loaded.value_labels,
+                                          loaded.row_names)
     return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame), read_frame=loaded.frame,
                    row_filters=tuple(filters)), notes
 
@@ -863,11 +864,12 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     if found.longest_run() < COPIED_RUN_OF_ANSWERS_ALONE and not _identifying_column(
             frame, described | {found.numbering}, len(found)):
         return ()
-    def row(r: int) -> str:
-        return row_of(frame, r) + (f" ({printable(ids[r])})" if ids.get(r) is not None else "")
+    def row(r: int) -> Text:  # the id apart: a manuscript names rows by number alone (note_parts.RowId)
+        return row_of(frame, r) + (Note((RowId(f" ({printable(ids[r])})"),)) if ids.get(r) is not None else "")
 
     n = len(found)
-    pairs = "; ".join(f"{row(c)} repeats {row(o)}" for c, o in list(zip(found.copies, found.originals))[:COPIED_ROWS_SHOWN])
+    pairs = joined([row(c) + " repeats " + row(o) for c, o in list(zip(found.copies, found.originals))[:COPIED_ROWS_SHOWN]],
+                   "; ")
     more = f"; and {n - COPIED_ROWS_SHOWN} more" if n > COPIED_ROWS_SHOWN else ""
     numbering = f" but the row-number column '{printable(found.numbering)}'" if found.numbering else ""
     example = ""
@@ -876,7 +878,7 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
         example = f" (here {Option.KEEP.given(f'{printable(found.numbering)} < {label_text(first)}')})"
     return (Problem(ProblemKind.COPIED_ROWS, (), float(n),
                     f"{n} of the {len(frame)} rows analysed {'is' if n == 1 else 'are'} identical in every column"
-                    f"{numbering} to an earlier row: {pairs}{more}. If they are copies (a file appended to itself, "
+                    f"{numbering} to an earlier row: " + pairs + f"{more}. If they are copies (a file appended to itself, "
                     f"rows pasted twice), each is counted as another respondent, so N is too large, the standard "
                     f"errors too small and the chi-square too large.",
                     Note(("delete the copies in a copy of the data file and analyse that, or leave them out with ",
@@ -914,16 +916,20 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
     def listed(which: list[int], skipped: bool = False) -> str:
         """The rows by row number or index label (and id); ``skipped``: say of a row that left reverse-worded items out how
         many of them it answered."""
-        def one_row(k: int) -> str:
+        def one_row(k: int) -> Text:  # the id apart: a manuscript names rows by number alone (note_parts.RowId)
             r = found.rows[k]
-            said = [printable(ids[r])] if ids.get(r) is not None else []
-            if skipped and found.reversed_answered[k] < found.reversed_items:
-                said.append(f"{found.reversed_answered[k]} of the {found.reversed_items} reverse-worded items answered")
             number = f"{r}{line_words(r, lines)}"  # a text file's row on a line of another number: both
-            return f"{number} ({'; '.join(said)})" if said else number
+            answered = (f"{found.reversed_answered[k]} of the {found.reversed_items} reverse-worded items answered"
+                        if skipped and found.reversed_answered[k] < found.reversed_items else "")
+            if ids.get(r) is None:
+                return f"{number} ({answered})" if answered else number
+            if not answered:
+                return Note((number, RowId(f" ({printable(ids[r])})")))
+            return Note((f"{number} (", RowId(f"{printable(ids[r])}; "), f"{answered})"))
         shown = [one_row(k) for k in which[:SAME_ANSWER_ROWS_SHOWN]]
         more = len(which) - len(shown)
-        return f"{row_naming(frame).of(len(which))} {', '.join(shown)}" + (f" and {more} more" if more else "")
+        return joined([f"{row_naming(frame).of(len(which))} ", joined(shown, ", "),
+                       f" and {more} more" if more else ""], "")
 
     def gave(which: list[int]) -> str:
         answers = sorted({found.answers[k] for k in which})
@@ -941,18 +947,19 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
         # what each row answered: a row that skipped a reverse-worded item is not said to have answered it
         every = all(found.reversed_answered[k] == found.reversed_items for k in against)
         included = f"the {found.reversed_items} reverse-worded items included" if every else "reverse-worded items included"
-        parts.append(f"{rows_gave(against, gave(against))}, {included} ({listed(against, skipped=True)}): agreeing alike with an "
-                     f"item and its reversal suggests careless responding (a long string of identical answers; Johnson "
-                     f"2005, Curran 2016).")
+        parts.append(f"{rows_gave(against, gave(against))}, {included} (" + listed(against, skipped=True)
+                     + "): agreeing alike with an item and its reversal suggests careless responding (a long string of "
+                       "identical answers; Johnson 2005, Curran 2016).")
     if middle:
         one = len(middle) == 1
-        parts.append(f"{rows_gave(middle, gave(middle))} ({listed(middle)}): the middle of the scale, which reversing "
-                     f"leaves unchanged, so {'it agrees' if one else 'they agree'} with the reverse-worded items, but a "
-                     f"long string of identical answers can still mean careless responding (Johnson 2005, Curran 2016).")
+        parts.append(f"{rows_gave(middle, gave(middle))} (" + listed(middle)
+                     + f"): the middle of the scale, which reversing leaves unchanged, so "
+                       f"{'it agrees' if one else 'they agree'} with the reverse-worded items, but a long string of "
+                       f"identical answers can still mean careless responding (Johnson 2005, Curran 2016).")
     n = len(found.rows)
     one = n == 1
     return (Problem(ProblemKind.SAME_ANSWER_ROWS, (), float(n),
-                    " ".join(parts) + (f" {'It is' if one else 'They are'} scored like every row." if scored_only else
+                    joined(parts) + (f" {'It is' if one else 'They are'} scored like every row." if scored_only else
                                        f" {'It is' if one else 'They are'} kept in this analysis."),
                     f"check {'this row' if one else 'these rows'} in the data; if {'it was' if one else 'they were'} "
                     f"not answered with care, " + (f"leave {'its' if one else 'their'} scores out of what follows." if
@@ -2159,7 +2166,20 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        row_naming=row_naming(frame), text_lines=dict(text_lines(frame)),
                        answers=_answers_per_category(spec, frame, source, group, reference_group, ordinal_items,
                                                      loaded),
-                       refusals=refusals)
+                       refusals=refusals, group_coverage=_group_coverage(spec, frame, source, group, reference_group))
+
+
+def _group_coverage(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,
+                    reference_group: str | None) -> tuple[tuple[str, float], ...]:
+    """Each group's share of the model variables' cells its rows answered (data.groups splits the rows, as a fit
+    does), in the groups' order; () without groups."""
+    if group is None:
+        return ()
+    from cfa_tool.data.groups import group_rows
+
+    split, _ = group_rows(frame, group, source, reference_group)
+    items = list(spec.observed_names)
+    return tuple((str(label), float(part[items].notna().to_numpy().mean())) for label, part in split if len(part))
 
 
 def _answers_per_category(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,

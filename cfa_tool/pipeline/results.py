@@ -124,6 +124,9 @@ class CheckResult(Presentable):
     answers: tuple = ()
     #: what stops an ordinal fit of these data, each refusal with its place, all of them (a fit stops at the first)
     refusals: tuple[str, ...] = ()
+    #: each group's share of the model variables' cells its rows answered, (label, share) in the groups' order; ()
+    #: without groups
+    group_coverage: tuple[tuple[str, float], ...] = ()
 
     @property
     def admissible(self) -> bool:
@@ -169,6 +172,10 @@ class CheckResult(Presentable):
             rest = "; every other item 100%" if len(low) < len(self.coverage) else ""
             lines.append("Coverage (share of rows answering): " + ", ".join(f"{k} {_percent_below_all(v)}" for v, k in low[:10])
                          + (f", and {len(low) - 10} more below 100%" if len(low) > 10 else "") + rest + ".")
+        if len(self.group_coverage) > 1:  # new-user trial s17: a department's gaps (87% against 96%) shown nowhere
+            shares = sorted(self.group_coverage, key=lambda g: g[1])
+            lines.append("Share of the model variables' answers given, by group (lowest first): " + ", ".join(
+                f"{g} {'100%' if v >= 1 else _percent_below_all(v)}" for g, v in shares) + ".")
         if self.design is not None:
             lines.append(self.design.status()[0].upper() + self.design.status()[1:] + "; "
                          + ("sandwich standard errors and a scaled test in the fit" if self.design.columns.robust else
@@ -189,6 +196,7 @@ class CheckResult(Presentable):
                 "complete_rows_by_values_not_answers": self.complete_by_odd_values, "coverage": dict(self.coverage),
                 "groups": list(self.groups) if self.groups else None,
                 "group_rows": dict(zip(self.groups, self.group_rows)) if self.groups and self.group_rows else None,
+                "group_coverage": dict(self.group_coverage) if self.group_coverage else None,
                 "group_free_parameters": (dict(zip(self.groups, self.group_parameters))
                                           if self.groups and self.group_parameters else None),
                 "design": self.design.to_dict() if self.design is not None else None, "caution": self.caution,

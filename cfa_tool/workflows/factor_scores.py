@@ -19,7 +19,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.kept_rows import RowNaming, row_naming
+from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, row_naming
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
 from cfa_tool.data.summary_stats import NotGiven
@@ -94,7 +94,7 @@ _SUMMARY_ROW = {NotGiven.MEANS: "mean", NotGiven.STANDARD_DEVIATIONS: "sd"}
 ABOUT_THE_FIT = "About the fit (not the scored data): "
 
 #: the header of the id column when the file's row names name the rows
-ROW_NAME_HEADER = "row_name"
+ROW_NAME_HEADER = ROW_NAMES_COLUMN
 
 #: the words --method takes, one per linear method and item score (ordinal items have one method: the posterior mean)
 METHOD_WORDS = {m.value: m for m in LINEAR_METHODS + ITEM_METHODS}
@@ -276,11 +276,11 @@ def _rows_as_read(loaded) -> pd.DataFrame:
     return read
 
 
-def _in_file_order(table: pd.DataFrame, data, names_row: int | None = None) -> pd.DataFrame:
+def _in_file_order(table: pd.DataFrame, data, names_row: int = 1) -> pd.DataFrame:
     """The scores of a file's rows with an empty line for each blank row the reader skipped between them (hostile
     trial s11: a blank sheet row dropped from the scores file shifted every later score onto the row above when
-    the file was pasted beside the sheet), and for each row between the column names (``names_row``, else the
-    first row) and the first row of answers (--first-data-row: a row of question texts; hostile tester s13: without
+    the file was pasted beside the sheet), and for each row between the column names (``names_row``: the row they
+    were read from, data.readers.LoadedData.names_row_read, below a title or empty rows too) and the first row of answers (--first-data-row: a row of question texts; hostile tester s13: without
     them every score sat one respondent off).  A file's rows are indexed by their place in the file as a spreadsheet
     shows it (data.moments.file_rows_index: the row's number less one; a text file's record, not its text line, so
     a quoted cell's line breaks add no line: new-user trial s14), so a gap in the index is a row not read and line k
@@ -290,7 +290,7 @@ def _in_file_order(table: pd.DataFrame, data, names_row: int | None = None) -> p
     index = table.index
     if not index.is_monotonic_increasing:
         return table
-    first = min(index[0], names_row or 1)  # the row just below the names: index = its number - 1 = the names' row
+    first = min(index[0], names_row)  # the row just below the names: index = its number - 1 = the names' row
     if index[-1] - first + 1 > len(index):
         return table.reindex(pd.RangeIndex(first, index[-1] + 1))
     return table
@@ -829,7 +829,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                       bool(standard_errors or ordinal_items), answered)
     columns = _with_same_answer_column(columns, id_name, spec, items, rows, position.loc[kept].to_numpy(),
                                        len(read_index))
-    table = _in_file_order(pd.DataFrame(columns, index=read_index), data, names_row)  # a frame's own index: joins
+    table = _in_file_order(pd.DataFrame(columns, index=read_index), data, loaded.names_row_read)  # a frame's own index: joins
     table = _with_why_not_scored(table, id_name, score_columns(chosen, factors), reasons,
                                  pd.Series(left, index=read_index))
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
@@ -841,6 +841,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         extra.insert(0, Note((f"The first column holds the row names of {source} (its first column, which has no "
                               f"name in the header)", Command(f"; give {Option.ID_COLUMN.given('COLUMN')} to name the "
                                                               "rows by another column"), ".")))
+    elif ids is None and not isinstance(data, pd.DataFrame):
+        extra[:0] = _id_column_note(read_frame, source, spec, group, design)
     own = _without_own_answers(answered, values, chosen, factors, unanswered)
     if own:
         result = replace(result, problems=tuple(own) + tuple(result.problems))
@@ -854,6 +856,21 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                        bool(standard_errors or ordinal_items), tuple(extra),
                        warnings=tuple(centred_in_each_group(result.estimates)), item_sums=summaries,
                        unanswered=unanswered)
+
+
+def _id_column_note(read_frame: pd.DataFrame, source: str, spec, group, design) -> list[Note]:
+    """When no column names the rows in the scores file: a column of ``read_frame`` that could (data.row_ids.
+    id_like_column), named with the option that writes it beside the scores (new-user trial s17: a survey
+    platform's file with an employee code in every row gave scores matched back to people by position only)."""
+    from cfa_tool.data.row_ids import id_like_column
+
+    skip = set(spec.observed_names) | {group} | {name for _, name in (design.names if design is not None else ())}
+    column = id_like_column(read_frame, skip)
+    if column is None:
+        return []
+    return [Note((f"No column names the rows in the scores file, whose lines follow the rows of {source} in order; "
+                  f"the column '{printable(column)}' holds a different value in every row and could name them",
+                  Command(f" ({Option.ID_COLUMN.given(column)})"), "."))]
 
 
 def _with_repeated_ids(result, ids, id_column):
@@ -1101,6 +1118,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     result = _with_repeated_ids(result, ids, id_column)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names", False) \
         + _partly_answered(base, answered, chosen, errors)
+    if ids is None and not isinstance(data, pd.DataFrame):
+        notes[:0] = _id_column_note(read_frame, source, spec, group, None)
     if group is not None:
         from cfa_tool.data.labels import label_notes
 
@@ -1116,7 +1135,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
-    table = _with_why_not_scored(_in_file_order(pd.DataFrame(columns, index=read_frame.index), data, names_row), id_name,
+    table = _with_why_not_scored(_in_file_order(pd.DataFrame(columns, index=read_frame.index), data,
+                                                  loaded.names_row_read), id_name,
                                  score_columns(chosen, factors), reasons, pd.Series(left, index=read_frame.index))
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
                        unscored, with_errors, tuple(notes), source, tuple(warnings), summaries, unanswered)

@@ -56,8 +56,9 @@ RUNS = {
                          lambda: _pair(cfa_tool.split_half(MODEL, "rider.csv", seed=4))),
     "explore": (["explore", "--data", "rider.csv", "--items", RIDER_ITEMS, "--replications", "5"],
                 lambda: cfa_tool.explore("rider.csv", items=RIDER_ITEMS, replications=5).to_dict()),
-    "scores": (["scores", MODEL, "--data", "rider.csv", "--output", "scores.csv"],
-               lambda: cfa_tool.scores(MODEL, "rider.csv").to_dict()),
+    # the rows named by their ids (without, a note names rider_id with the option as each interface writes it)
+    "scores": (["scores", MODEL, "--data", "rider.csv", "--id", "rider_id", "--output", "scores.csv"],
+               lambda: cfa_tool.scores(MODEL, "rider.csv", id_column="rider_id").to_dict()),
     "simulate": (["simulate", MODEL, "--n", "50", "--output", "simulated.csv"],
                  lambda: cfa_tool.simulate(cfa_tool.parse_model(Path(MODEL).read_text()), 50).to_dict()),
     "power-simulation": (["power-simulation", MODEL, "--n", "200", "--replications", "3", "--workers", "1"],

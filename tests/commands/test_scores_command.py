@@ -446,6 +446,46 @@ def test_a_blank_row_of_the_file_keeps_an_empty_line_so_the_scores_line_up(tmp_p
     assert all(line.endswith(",") for line in others) and others == plain[1:]
 
 
+@pytest.mark.parametrize("above", ["title", "empty sheet rows", "empty text lines"])
+@pytest.mark.parametrize("from_fit", [False, True])
+def test_rows_above_the_column_names_get_no_line_and_are_not_counted(tmp_path, model_file, capsys, from_fit, above):
+    # new-user trial s17: a workbook with a title row above the column names gave a scores file whose line 2 was
+    # empty ('above the answers', beside the names' row) and 'Scores of 600 of the 601 rows ... the 1 without any
+    # score': read as an employee left unscored, and a merge by position one row off.  The scores file's header sits
+    # beside the row the names were read from, as for a file whose names are on its first row.  Check: the same
+    # lines as the scores of the plain file, and every row counted as scored.
+    import openpyxl
+
+    raw = pd.read_csv(HS_FILE)
+    raw.to_csv(tmp_path / "plain.csv", index=False)
+    if above == "empty text lines":
+        data = tmp_path / "above.csv"
+        data.write_text("\n\n" + (tmp_path / "plain.csv").read_text())
+    else:
+        book = openpyxl.Workbook()
+        sheet = book.active
+        sheet.append(["Ability tests, raw scores"] if above == "title" else [])
+        if above != "title":
+            sheet.append([])
+        sheet.append(list(raw.columns))
+        for row in raw.itertuples(index=False):
+            sheet.append(list(row))
+        data = tmp_path / "above.xlsx"
+        book.save(data)
+    extra = []
+    if from_fit:
+        assert _run(["fit", model_file, "--data", tmp_path / "plain.csv", "--json", tmp_path / "fit.json"],
+                    capsys)[0] == 0
+        extra = ["--from-fit", tmp_path / "fit.json"]
+    code, out, _ = _run(["scores", model_file, "--data", data, "--output", tmp_path / "a.csv"] + extra, capsys)
+    assert code == 0
+    assert _run(["scores", model_file, "--data", tmp_path / "plain.csv", "--output", tmp_path / "p.csv"] + extra,
+                capsys)[0] == 0
+    assert (tmp_path / "a.csv").read_text().splitlines() == (tmp_path / "p.csv").read_text().splitlines()
+    said = " ".join(out.split())
+    assert f"Scores of {len(raw)} rows written" in said and "without any score" not in said
+
+
 @pytest.mark.parametrize("from_fit", [False, True])
 def test_rows_above_the_first_row_of_answers_keep_their_lines(tmp_path, model_file, capsys, from_fit):
     # hostile tester s13: a survey export with question texts on line 2 (--first-data-row 3) gave scores whose line 2
@@ -553,3 +593,28 @@ def test_a_long_scoring_says_so_on_a_terminal_and_nowhere_else(tmp_path, capsys,
     assert code == 0 and err.count(line) == 1
     assert "Scoring 300" not in text and "Scoring 300" not in (tmp_path / "b.json").read_text()
     assert (tmp_path / "a.csv").read_bytes() == (tmp_path / "b.csv").read_bytes()
+
+
+@pytest.mark.parametrize("from_fit", [False, True])
+def test_a_column_that_could_name_the_rows_is_suggested_when_none_does(tmp_path, model_file, capsys, from_fit):
+    # new-user trial s17: a survey platform's CSV with an employee code in every row gave a scores file without any
+    # id and a report silent about --id, so the scores could be matched back to people only by position.  Check: the
+    # code column is named with the option, a column with repeats or gaps is not, and with --id nothing is said.
+    raw = pd.read_csv(HS_FILE)[["school"] + ITEMS]  # no row names, no id column
+    coded = raw.assign(code=[f"C{k:04d}" for k in range(len(raw))], site=["a", "b"] * (len(raw) // 2) + ["a"])
+    coded.to_csv(tmp_path / "coded.csv", index=False)
+    extra = []
+    if from_fit:
+        assert _run(["fit", model_file, "--data", tmp_path / "coded.csv", "--json", tmp_path / "fit.json"],
+                    capsys)[0] == 0
+        extra = ["--from-fit", tmp_path / "fit.json"]
+    code, out, _ = _run(["scores", model_file, "--data", tmp_path / "coded.csv", "--output", tmp_path / "a.csv"]
+                        + extra, capsys)
+    assert code == 0
+    said = " ".join(out.split())
+    assert "the column 'code' holds a different value in every row and could name them (--id code)" in said
+    assert "'site'" not in said
+    code, out, _ = _run(["scores", model_file, "--data", tmp_path / "coded.csv", "--id", "code", "--output",
+                         tmp_path / "b.csv"] + extra, capsys)
+    assert code == 0 and "could name them" not in " ".join(out.split())
+    assert (tmp_path / "b.csv").read_text().splitlines()[1].startswith("C0000,")

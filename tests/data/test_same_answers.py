@@ -94,7 +94,7 @@ def test_the_middle_answer_is_its_own_reversal_and_skipped_items_are_not_counted
     frame.loc[3, items] = 3.0  # row 4: the middle answer throughout
     frame.loc[7, items] = 4.0  # row 8: 4 throughout, but b3 (reversed) left blank
     frame.loc[7, "b3"] = np.nan
-    text = cfa_tool.fit(MODEL + REVERSED, frame, id_column="respondent").problems[0].explanation
+    text = str(cfa_tool.fit(MODEL + REVERSED, frame, id_column="respondent").problems[0].explanation)
     said_of_row_4 = text[text.index("P004"):]
     assert "1 row gave the answer 4" in text and "agreeing alike" in text.split("P004")[0]
     assert "agreeing alike" not in said_of_row_4 and "middle of the scale" in said_of_row_4
@@ -147,11 +147,11 @@ def test_scores_of_other_data_name_that_files_rows_and_say_which_are_the_fits(sa
     same = [p for p in scored.fit.problems if p.kind is ProblemKind.SAME_ANSWER_ROWS]
     own = same[0]
     assert own.value == 1.0 and "index label 2 (P003)" in own.explanation and "scored like every row" in own.explanation
-    assert not own.explanation.startswith(ABOUT_THE_FIT) and "fit again" not in own.advice
+    assert not str(own.explanation).startswith(ABOUT_THE_FIT) and "fit again" not in own.advice
     # the earlier fit's rows are still said, as the fit's
-    assert [p.explanation.startswith(ABOUT_THE_FIT) for p in same[1:]] == [True]
+    assert [str(p.explanation).startswith(ABOUT_THE_FIT) for p in same[1:]] == [True]
     assert "index labels 6 (P007), 40 (P041)" in same[1].explanation
-    assert all(p.explanation.startswith(ABOUT_THE_FIT) for p in scored.fit.problems[1:])
+    assert all(str(p.explanation).startswith(ABOUT_THE_FIT) for p in scored.fit.problems[1:])
     assert not np.isnan(scored.table.iloc[2, 1])  # scored like every row
     # the scores file marks the row (a plain column, 1 or 0), the scored file's own rows only
     assert scored.table["same_answer_to_every_item"].tolist() == [1 if k == 2 else 0 for k in range(50)]
