@@ -127,9 +127,10 @@ def add_test_option(p: argparse.ArgumentParser) -> None:
                               "data and is named in the report)")
 
 
-def fit_test(args: argparse.Namespace) -> FitTest:
-    """The test the command line asks for: a robust one with --robust, else the normal-theory test."""
-    return FitTest.ROBUST if args.robust else FitTest.NORMAL
+def fit_test(args: argparse.Namespace) -> FitTest | None:
+    """The test the command line asks for: a robust one with --robust, else None (not chosen: the normal-theory test,
+    or under a sampling design the design-based scaled one; pipeline.inputs.design_test)."""
+    return FitTest.ROBUST if args.robust else None
 
 
 def add_resampling_parser(sub, name: str, help_text: str, replications: int, what: str) -> argparse.ArgumentParser:
