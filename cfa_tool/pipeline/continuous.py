@@ -21,6 +21,7 @@ from cfa_tool.assessment.fit_indices import (baseline_chi_square, cfi_value, fit
                                              rmsea_value, srmr, srmr_value)
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
 from cfa_tool.assessment.modification import NO_INDICES, helper_modification_indices, modification_indices
+from cfa_tool.assessment.robust_scores import robust_score_tests, sampling_design
 from cfa_tool.assessment.normality import Whitened, mardia, whitened_rows
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
@@ -487,6 +488,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         inference = wald_inference(values, model.J, cov_theta)
         if options.modification_indices and est.auxiliary is None:
             mis = modification_indices(model, theta, likelihood, exogenous_factors(spec), mats, factor)
+            if options.test.robust and sampling_design(likelihood):  # design-based score tests (Satorra 1989)
+                mis = robust_score_tests(mis, model, theta, likelihood)
         elif options.modification_indices:  # the joint likelihood's score tests, the helpers' parameters free
             joint = est.auxiliary
             mis = helper_modification_indices(model, joint.likelihood.model, joint.theta, joint.likelihood,
