@@ -168,9 +168,10 @@ class CannotApply(argparse.Action):
         parser.error(f"{option_string} cannot apply: {self.why}")
 
 
-def refuse_design_options(p: argparse.ArgumentParser, why: str) -> None:
-    """The sampling design's options on a command to which a design cannot apply: each an error saying ``why``."""
-    for option in ("--weights", "--weight-kind", "--cluster", "--strata"):
+def refuse_design_options(p: argparse.ArgumentParser, why: str,
+                          options: tuple[str, ...] = ("--weights", "--weight-kind", "--cluster", "--strata")) -> None:
+    """The sampling design's ``options`` on a command to which they cannot apply: each an error saying ``why``."""
+    for option in options:
         p.add_argument(option, action=CannotApply, dest=f"_refused_{option.strip('-').replace('-', '_')}", why=why)
 
 

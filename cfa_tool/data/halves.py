@@ -65,6 +65,28 @@ def draw_halves(count: int, seed: int) -> tuple[np.ndarray, np.ndarray]:
     return np.sort(order[:first]), np.sort(order[first:])
 
 
+def draw_cluster_halves(units: np.ndarray, strata: np.ndarray | None, seed: int) -> tuple[np.ndarray, np.ndarray]:
+    """The positions (in the rows' order) of two random halves drawn unit by unit, every row of a unit in one half:
+    ``units`` each row's integer code of its cluster (or the rows' positions, np.arange, for halves of rows within
+    strata), ``strata`` each row's integer code of its stratum (None: one stratum).  In the order of the strata's
+    codes, each stratum's units are put in a random order (numpy's default generator seeded with ``seed``, one
+    permutation per stratum in turn) and the first half of them go to the first half; a stratum of an odd number of
+    units gives its extra unit to the first half, the next such stratum to the second, and so on in turn, so that
+    neither half collects them.  With one stratum and one row per unit these are :func:`draw_halves`'s halves (the
+    same permutation of the same count): the rule of replicate --data with --cluster or --strata."""
+    rng = np.random.default_rng(seed)
+    strata = np.zeros(len(units), dtype=np.int64) if strata is None else np.asarray(strata)
+    first = np.zeros(len(units), dtype=bool)
+    extra_first = True
+    for stratum in np.unique(strata):
+        inside = strata == stratum
+        order = rng.permutation(np.unique(units[inside]))
+        take = len(order) // 2 + (len(order) % 2 if extra_first else 0)
+        extra_first ^= bool(len(order) % 2)
+        first |= inside & np.isin(units, order[:take])
+    return np.flatnonzero(first), np.flatnonzero(~first)
+
+
 @dataclass(frozen=True)
 class RandomHalf:
     """The choice of one half of a halves file: ``path`` the file, ``name`` the half ('confirmation')."""
