@@ -65,10 +65,6 @@ def run(args: argparse.Namespace) -> int:
                           "--validation are not split")
     drawn_by = {"cluster": args.cluster, "strata": args.strata}
     if args.data:
-        if args.halves_file and (args.cluster or args.strata):
-            raise OptionError("--halves-file records halves drawn row by row, which --half checks by drawing them again "
-                              "from the seed; halves drawn by --cluster or --strata cannot be recorded yet: leave out "
-                              "--halves-file (the report names the seed, and the same seed draws the same halves)")
         pair = split_half(model, args.data, seed=1 if args.seed is None else args.seed, **drawn_by, **ordinal)
     elif args.cluster or args.strata:
         raise OptionError(f"{'--cluster' if args.cluster else '--strata'} draws the random halves of --data by "
@@ -87,5 +83,5 @@ def run(args: argparse.Namespace) -> int:
 
     first, second = REPLICATE_HALVES
     halves = halves_file(args, [(first, split.half_a), (second, split.half_b)],
-                         1 if args.seed is None else args.seed) if split is not None else []
+                         1 if args.seed is None else args.seed, split.drawn_by()) if split is not None else []
     return emit(args, Replications(tuple(pair)), halves)

@@ -648,13 +648,13 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     notes = tuple(notes)
     frame, source = loaded.frame, loaded.source
     with odd_values_named(loaded):
-        pair, halves, units = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, design,
+        pair, halves, units, labels = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, design,
                                           **options)
     split = pair[0].calibration_result.n_obs + pair[0].loose.n_obs
     rows = SplitRows(split, len(frame), split < len(frame.dropna(subset=list(spec.observed_names), how="all")),
                      *halves, filters=loaded.row_filters,
                      rows_in_file=len(loaded.read_frame) if loaded.read_frame is not None else None,
-                     cluster=cluster, strata=strata, units=units)
+                     cluster=cluster, strata=strata, units=units, labels=labels)
     # the rows left out before the split (the halves hold complete rows only): fit's caution, after the data's
     problems = data_problems(loaded, spec, listwise=rows.complete_only) + _left_out(len(frame) - split, len(frame), source,
                                                        MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
@@ -689,6 +689,9 @@ class SplitRows:
     strata: str | None = None
     #: the clusters (the strata's rows without clusters) in half A and in half B; () when drawn row by row
     units: tuple[int, ...] = ()
+    #: each row's number, cluster and stratum as read ('' for a column not given), when drawn by them: what a halves
+    #: file records to draw the halves again (data.halves.DrawnBy)
+    labels: tuple[tuple[int, str, str], ...] = field(default=(), repr=False)
 
     def to_dict(self) -> dict:
         out = {"rows_split": self.split, "rows_in_file": self.in_file, "complete_rows_only": self.complete_only,
@@ -698,6 +701,15 @@ class SplitRows:
             out.update(rows_kept_by_filters=self.in_file, rows_in_file=self.rows_in_file,
                        row_filters=[f.text for f in self.filters])
         return out
+
+    def drawn_by(self):
+        """The columns and labels the halves were drawn by, for a halves file (data.halves.DrawnBy); None when drawn
+        row by row."""
+        from cfa_tool.data.halves import DrawnBy
+
+        if self.cluster is None and self.strata is None:
+            return None
+        return DrawnBy(self.cluster, self.strata, {row: (c, h) for row, c, h in self.labels})
 
     @property
     def drawn_phrase(self) -> str:
@@ -761,11 +773,12 @@ def _split_design(cluster: str | None, strata: str | None):
 
 
 def _drawn(complete: pd.DataFrame, design, spec: Spec, source: str, seed: int
-           ) -> tuple[np.ndarray, np.ndarray, tuple[int, ...]]:
+           ) -> tuple[np.ndarray, np.ndarray, tuple[int, ...], tuple[tuple[int, str, str], ...]]:
     """The positions of halves A and B among the rows ``complete`` (data.halves: row by row without a ``design``,
-    else by its clusters within its strata), and the clusters in each half (() without clusters)."""
+    else by its clusters within its strata), the clusters in each half (() without clusters), and each row's number,
+    cluster and stratum as read ('' for a column not given; () without a design), which a halves file records."""
     if design is None:
-        return *draw_halves(len(complete), seed), ()
+        return *draw_halves(len(complete), seed), (), ()
     from cfa_tool.data.sample_design import check_design, row_design
 
     if design.cluster is not None and design.cluster in complete.columns:
@@ -787,15 +800,19 @@ def _drawn(complete: pd.DataFrame, design, spec: Spec, source: str, seed: int
         raise DataError(f"{source}: halves drawn {by} hold {len(first)} and {len(second)} rows, and each needs at least "
                         f"{least} for {len(spec.observed_names)} variables (large clusters or strata of few rows); "
                         f"split the file into two samples by hand and give them as calibration and validation samples")
-    return first, second, counts
+    named = [np.asarray(names, dtype=object)[codes_of] if codes_of is not None else np.full(len(checked), "", dtype=object)
+             for codes_of, names in ((codes.clusters, codes.cluster_names), (codes.strata, codes.strata_names))]
+    labels = tuple((int(r), str(c), str(h)) for r, c, h in zip(row_numbers(checked), *named))
+    return first, second, counts, labels
 
 
 def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal_items, method, missing,
                 pairwise: bool = False, design=None, **options
-                ) -> tuple[tuple[Replication, Replication], tuple[tuple[int, ...], ...], tuple[int, ...]]:
+                ) -> tuple[tuple[Replication, Replication], tuple, tuple[int, ...], tuple]:
     """The halves of the rows fit would analyse: with gaps kept (full-information ML, or ordinal items' pairwise
     rows), every row with an answer; else the complete rows; drawn by the clusters within the strata of ``design``
-    when given (:func:`_drawn`).  Also the row numbers of halves A and B and the clusters in each."""
+    when given (:func:`_drawn`).  Also the row numbers of halves A and B, the clusters in each and each row's
+    cluster and stratum (:func:`_drawn`)."""
     handling = MissingData.LISTWISE
     if not ordinal_items:
         handling, _ = refit_missing_handling(frame, spec.observed_names, missing)
@@ -808,7 +825,7 @@ def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal
     if len(complete) < 4 * len(spec.observed_names):
         raise DataError(f"{source}: {len(complete)} {kind} are too few to split into two halves for "
                         f"{len(spec.observed_names)} variables")
-    first, second, units = _drawn(complete, design, spec, source, seed)  # half A takes the odd row, as explore's does
+    first, second, units, labels = _drawn(complete, design, spec, source, seed)  # half A takes the odd row, as explore's does
     a = complete.iloc[first]
     b = complete.iloc[second]
     rows = (tuple(int(v) for v in row_numbers(a)), tuple(int(v) for v in row_numbers(b)))
@@ -819,10 +836,10 @@ def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal
                                   **options)
         # one test of one solution for both directions: the same two halves (not fitted twice)
         second = replace(replicate_ordinal(spec, mb, ma, method, "", **options), same_solution=first.same_solution)
-        return (first, second), rows, units
+        return (first, second), rows, units, labels
     ma = sample_moments(a, spec.observed_names, f"{source} (half A, seed {seed})", missing=handling)
     mb = sample_moments(b, spec.observed_names, f"{source} (half B, seed {seed})", missing=handling)
 
     first = replicate_moments(spec, ma, mb, **options)
     # one test of one solution for both directions: the same two halves (not fitted twice)
-    return (first, replicate_moments(spec, mb, ma, first.same_solution, **options)), rows, units
+    return (first, replicate_moments(spec, mb, ma, first.same_solution, **options)), rows, units, labels

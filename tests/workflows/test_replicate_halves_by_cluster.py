@@ -12,7 +12,9 @@ import numpy as np
 import pytest
 
 from cfa_tool.data.halves import draw_cluster_halves, draw_halves
-from cfa_tool.errors import OptionError
+import cfa_tool
+from cfa_tool.data.halves import RandomHalf
+from cfa_tool.errors import DataError, OptionError
 from cfa_tool.reporting.paragraph import replication_paragraph
 from cfa_tool.workflows.replication import Replications, split_half
 from tests.conftest import THREE_FACTORS, run_cli
@@ -119,11 +121,40 @@ def test_the_command_line_draws_by_cluster_and_refuses_what_cannot_apply(cluster
         run_cli(["replicate", str(model), "--data", str(data), "--weights", "ageyr"], capsys)
     err = capsys.readouterr().err
     assert parsed.value.code == 2 and "--weights cannot apply" in err and len(err.strip().splitlines()) == 1, err
-    for argv, words in (
-            (["--calibration", str(data), "--validation", str(data), "--cluster", "unit"],
-             "--calibration and --validation are split already"),
-            (["--data", str(data), "--cluster", "unit", "--halves-file", str(tmp_path / "h.csv")],
-             "cannot be recorded yet")):
-        code, _, err = run_cli(["replicate", str(model), *argv], capsys)
-        assert code == 2 and words in err and len(err.strip().splitlines()) == 1, err
-    assert not (tmp_path / "h.csv").exists()
+    code, _, err = run_cli(["replicate", str(model), "--calibration", str(data), "--validation", str(data),
+                            "--cluster", "unit"], capsys)
+    assert code == 2 and "--calibration and --validation are split already" in err
+    assert len(err.strip().splitlines()) == 1, err
+
+
+def test_halves_drawn_by_cluster_are_saved_and_read_back_as_drawn(clustered, tmp_path, capsys):
+    # the halves file records each row's cluster and stratum, by which --half draws the halves again to check them;
+    # the half read back is the rows replicate's calibration fit of half A analysed
+    import pandas as pd
+
+    model, data, halves = tmp_path / "m.cfa", tmp_path / "d.csv", tmp_path / "h.csv"
+    model.write_text(THREE_FACTORS)
+    clustered.to_csv(data, index=False)
+    out = tmp_path / "r.json"
+    code, _, err = run_cli(["replicate", str(model), "--data", str(data), "--cluster", "unit", "--strata", "school",
+                            "--seed", "5", "--halves-file", str(halves), "--json", str(out)], capsys)
+    assert code == 0, err
+    saved = pd.read_csv(halves, keep_default_na=False)
+    assert list(saved.columns[-4:]) == ["cluster_column", "cluster", "strata_column", "stratum"]
+    assert (saved.groupby("cluster")["half"].nunique() == 1).all()  # every cluster in one half
+    units = dict(zip(range(2, len(clustered) + 2), clustered["unit"]))  # file rows: the header is row 1
+    assert all(units[r] == c for r, c in zip(saved["row"], saved["cluster"]))
+    half_a = cfa_tool.fit(THREE_FACTORS, str(data), keep=[RandomHalf(str(halves), "A")])
+    written = json.loads(out.read_text())
+    assert half_a.n_obs == int((saved["half"] == "A").sum())
+    assert half_a.fit.chi_square == pytest.approx(written["replications"][0]["calibration"]["fit"]["chi_square"],
+                                                  rel=1e-10)
+    edited = saved.copy()  # two rows of one cluster moved to the other half: not as drawn
+    row = edited.index[edited["cluster"] == edited["cluster"].iloc[0]]
+    edited.loc[row, "half"] = edited.loc[row, "half"].map({"A": "B", "B": "A"})
+    edited.to_csv(tmp_path / "edited.csv", index=False)
+    with pytest.raises(DataError, match="its halves are not those seed 5 draws from its 301 rows") as refused:
+        cfa_tool.fit(THREE_FACTORS, str(data), keep=[RandomHalf(str(tmp_path / "edited.csv"), "A")])
+    assert "--cluster unit --strata school" in str(refused.value)
+    with pytest.raises(DataError, match="holds halves drawn by the column 'unit', which"):  # read under another name
+        cfa_tool.fit(THREE_FACTORS, str(data), rename={"unit": "household"}, keep=[RandomHalf(str(halves), "A")])
