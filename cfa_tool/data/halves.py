@@ -6,7 +6,10 @@ half's name; the seed that drew the halves; the data file's name and the SHA-256
 that was read, data.readers.sheet_read, empty for another file).  Files written before s15 have ``sheet`` in its
 place, the sheet asked for (empty when none was), and are read back as they were.  The halves are drawn by one rule
 (:func:`draw_halves`), so the seed and the rows split say which half each row is in, and a file whose halves are not
-those is refused (edited by hand, or of another seed).  A half of it is analysed by choosing it among the row
+those is refused (edited by hand, or of another seed).  Halves drawn by cluster within strata (replicate --data
+--cluster/--strata, :func:`draw_cluster_halves`) add four columns, ``cluster_column,cluster,strata_column,stratum``
+(the columns and each row's labels as read), by which they are drawn again to check them, and which must be those the
+run reading a half finds in the data.  A half of it is analysed by choosing it among the row
 selections (``--half FILE.csv NAME``, ``keep=[RandomHalf('FILE.csv', 'NAME')]``): the rows are read from the data
 file itself, never from a copy, and the halves file is checked against that file first: the same contents (the
 checksum) and sheet, and the same rows split (the rows the data file holds after the row filters are those the
