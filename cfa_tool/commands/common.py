@@ -237,15 +237,16 @@ def add_halves_file(parser: argparse.ArgumentParser, asked: str) -> None:
 
 
 def halves_file(args: argparse.Namespace, halves: list[tuple[str, tuple[int, ...]]],
-                seed: int) -> list[tuple[str, object, str]]:
+                seed: int, drawn_by=None) -> list[tuple[str, object, str]]:
     """(option, content, message) of --halves-file when asked (data.halves.halves_text: one line per row split, in
     the order of the rows, with the ``seed`` and the data file's name and checksum; ``halves``: each half's name and
-    its rows' numbers, data.moments.row_numbers)."""
+    its rows' numbers, data.moments.row_numbers; ``drawn_by``: the clusters and strata they were drawn by,
+    data.halves.DrawnBy)."""
     if not getattr(args, "halves_file", None):
         return []
     from cfa_tool.data.halves import halves_text
 
-    return [(HALVES_FILE, halves_text(halves, seed, args.data, getattr(args, "sheet", None)),
+    return [(HALVES_FILE, halves_text(halves, seed, args.data, getattr(args, "sheet", None), drawn_by),
              f"The rows of each half written to {args.halves_file}")]
 
 

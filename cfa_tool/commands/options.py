@@ -132,9 +132,10 @@ def add_test_option(p: argparse.ArgumentParser) -> None:
                               "data and is named in the report)")
 
 
-def fit_test(args: argparse.Namespace) -> FitTest:
-    """The test the command line asks for: a robust one with --robust, else the normal-theory test."""
-    return FitTest.ROBUST if args.robust else FitTest.NORMAL
+def fit_test(args: argparse.Namespace) -> FitTest | None:
+    """The test the command line asks for: a robust one with --robust, else None (not chosen: the normal-theory test,
+    or under a sampling design the design-based scaled one; pipeline.inputs.design_test)."""
+    return FitTest.ROBUST if args.robust else None
 
 
 def add_resampling_parser(sub, name: str, help_text: str, replications: int, what: str) -> argparse.ArgumentParser:
@@ -172,9 +173,10 @@ class CannotApply(argparse.Action):
         parser.error(f"{option_string} cannot apply: {self.why}")
 
 
-def refuse_design_options(p: argparse.ArgumentParser, why: str) -> None:
-    """The sampling design's options on a command to which a design cannot apply: each an error saying ``why``."""
-    for option in ("--weights", "--weight-kind", "--cluster", "--strata"):
+def refuse_design_options(p: argparse.ArgumentParser, why: str,
+                          options: tuple[str, ...] = ("--weights", "--weight-kind", "--cluster", "--strata")) -> None:
+    """The sampling design's ``options`` on a command to which they cannot apply: each an error saying ``why``."""
+    for option in options:
         p.add_argument(option, action=CannotApply, dest=f"_refused_{option.strip('-').replace('-', '_')}", why=why)
 
 

@@ -11,13 +11,13 @@ from cfa_tool.commands.common import add_halves_file, add_report_options, check_
 
 def add_parser(sub) -> None:
     rep = sub.add_parser("replicate", help="check that a model replicates in new data (or in random halves of one data set)",
-                         epilog="Sampling designs: replicate takes no weights, clusters or strata (--weights, --cluster "
-                                "and --strata are refused); its test of one solution and cross-validation index take "
-                                "the rows as independent and equally weighted, and --data is split row by row, so rows "
-                                "of one household, school or other cluster can fall in both halves. For rows that come "
-                                "in clusters, split the file by cluster and give the parts as --calibration and "
-                                "--validation; for a weighted or stratified sample, fit each sample with 'fit' and its "
-                                "design options.")
+                         epilog="Sampling designs: replicate takes no weights (--weights is refused); its test of "
+                                "one solution and cross-validation index take the rows as independent and equally "
+                                "weighted. --data is split row by row, so rows of one household, school or other "
+                                "cluster can fall in both halves, unless --cluster names each row's cluster: whole "
+                                "clusters then go to each half (within each stratum of --strata), and the report says "
+                                "that the rows within each half are still taken as independent. For a weighted "
+                                "sample, fit each sample with 'fit' and its design options.")
     rep.add_argument("model", metavar="MODEL", help="model file")
     rep.add_argument("--calibration", metavar="FILE", help="data the model is estimated in")
     rep.add_argument("--validation", metavar="FILE", help="new data the estimates are checked in")
@@ -36,12 +36,16 @@ def add_parser(sub) -> None:
                           "--calibration file (or --data): each file's columns are renamed by its own option")
     O.add_ordinal_options(rep)
     O.add_incomplete_rows_option(rep, O.REFITS_AS_THE_FIT)
-    O.refuse_design_options(rep, "replicate compares samples of independent, equally weighted rows (two files, or one "
-                                 "file split at random row by row) and takes no weights, clusters or strata: its test "
-                                 "of one solution and cross-validation index would mislead under a sampling design; "
-                                 "fit each sample with 'fit' and its design options instead, or, for rows that come in "
-                                 "clusters, split the file by cluster and give the parts as --calibration and "
-                                 "--validation")
+    rep.add_argument("--cluster", metavar="COLUMN",
+                     help="with --data: column naming each row's cluster (household, school); the halves are drawn "
+                          "cluster by cluster, every row of a cluster in one half")
+    rep.add_argument("--strata", metavar="COLUMN",
+                     help="with --data: column naming each row's stratum; the halves are drawn within each stratum "
+                          "(its clusters with --cluster, else its rows)")
+    O.refuse_design_options(rep, "replicate compares samples of independent, equally weighted rows and takes no "
+                                 "weights: its test of one solution and cross-validation index would mislead under "
+                                 "sampling weights; fit each sample with 'fit' and its design options instead",
+                            ("--weights", "--weight-kind"))
     add_report_options(rep)
 
 
@@ -59,8 +63,12 @@ def run(args: argparse.Namespace) -> int:
     if args.halves_file and not args.data:
         raise OptionError("--halves-file saves the random halves of one data file (--data), and --calibration and "
                           "--validation are not split")
+    drawn_by = {"cluster": args.cluster, "strata": args.strata}
     if args.data:
-        pair = split_half(model, args.data, seed=1 if args.seed is None else args.seed, **ordinal)
+        pair = split_half(model, args.data, seed=1 if args.seed is None else args.seed, **drawn_by, **ordinal)
+    elif args.cluster or args.strata:
+        raise OptionError(f"{'--cluster' if args.cluster else '--strata'} draws the random halves of --data by "
+                          f"cluster; --calibration and --validation are split already: leave it out")
     elif args.seed is not None:
         raise OptionError("--seed sets the random split of --data into halves; --calibration and --validation are "
                           "split already: leave --seed out")
@@ -75,5 +83,5 @@ def run(args: argparse.Namespace) -> int:
 
     first, second = REPLICATE_HALVES
     halves = halves_file(args, [(first, split.half_a), (second, split.half_b)],
-                         1 if args.seed is None else args.seed) if split is not None else []
+                         1 if args.seed is None else args.seed, split.drawn_by()) if split is not None else []
     return emit(args, Replications(tuple(pair)), halves)

@@ -6,7 +6,10 @@ half's name; the seed that drew the halves; the data file's name and the SHA-256
 that was read, data.readers.sheet_read, empty for another file).  Files written before s15 have ``sheet`` in its
 place, the sheet asked for (empty when none was), and are read back as they were.  The halves are drawn by one rule
 (:func:`draw_halves`), so the seed and the rows split say which half each row is in, and a file whose halves are not
-those is refused (edited by hand, or of another seed).  A half of it is analysed by choosing it among the row
+those is refused (edited by hand, or of another seed).  Halves drawn by cluster within strata (replicate --data
+--cluster/--strata, :func:`draw_cluster_halves`) add four columns, ``cluster_column,cluster,strata_column,stratum``
+(the columns and each row's labels as read), by which they are drawn again to check them, and which must be those the
+run reading a half finds in the data.  A half of it is analysed by choosing it among the row
 selections (``--half FILE.csv NAME``, ``keep=[RandomHalf('FILE.csv', 'NAME')]``): the rows are read from the data
 file itself, never from a copy, and the halves file is checked against that file first: the same contents (the
 checksum) and sheet, and the same rows split (the rows the data file holds after the row filters are those the
@@ -39,6 +42,9 @@ from cfa_tool.options import Option
 HALVES_COLUMNS = ("row", "half", "seed", "data_file", "data_sha256", "sheet_read")
 #: those of a halves file written before s15, whose last column is the sheet asked for (empty when none was)
 SHEET_ASKED_COLUMNS = HALVES_COLUMNS[:5] + ("sheet",)
+#: those of halves drawn by cluster within strata (replicate --data --cluster/--strata, s17): each row's cluster and
+#: stratum as the run read them, and the columns they came from, by which the halves are drawn again to check them
+DRAWN_BY_COLUMNS = HALVES_COLUMNS + ("cluster_column", "cluster", "strata_column", "stratum")
 
 
 #: the names of the two halves as the commands write them, the first drawn first (explore --split; replicate --data)
@@ -47,12 +53,15 @@ REPLICATE_HALVES = ("A", "B")
 DRAWN_HALVES = (EXPLORE_HALVES, REPLICATE_HALVES)
 
 
-def redraw_words(names: "tuple[str, ...] | list[str]", seed: str | int = "SEED") -> str:
+def redraw_words(names: "tuple[str, ...] | list[str]", seed: str | int = "SEED", cluster: str = "",
+                 strata: str = "") -> str:
     """How to write the halves again: with the command that drew halves of these ``names`` (review s14: a replicate
     file was told to rerun explore, whose halves have other names and are drawn from every row, not the complete
-    ones)."""
+    ones), by the ``cluster`` and ``strata`` columns they were drawn by."""
     if set(names) == set(REPLICATE_HALVES):
-        return f"cfa-tool replicate MODEL --data FILE --seed {seed} --halves-file NEW.csv"
+        by = "".join(f" {flag} {_shell_word(name)}" for flag, name in (("--cluster", cluster), ("--strata", strata))
+                     if name)
+        return f"cfa-tool replicate MODEL --data FILE --seed {seed}{by} --halves-file NEW.csv"
     return f"cfa-tool explore --split {seed} --halves-file NEW.csv"
 
 
@@ -63,6 +72,32 @@ def draw_halves(count: int, seed: int) -> tuple[np.ndarray, np.ndarray]:
     order = np.random.default_rng(seed).permutation(count)
     first = (count + 1) // 2
     return np.sort(order[:first]), np.sort(order[first:])
+
+
+def _shell_word(text: str) -> str:
+    return f'"{text}"' if not text or any(c.isspace() or c in "'\"$`" for c in text) else text
+
+
+def draw_cluster_halves(units: np.ndarray, strata: np.ndarray | None, seed: int) -> tuple[np.ndarray, np.ndarray]:
+    """The positions (in the rows' order) of two random halves drawn unit by unit, every row of a unit in one half:
+    ``units`` each row's integer code of its cluster (or the rows' positions, np.arange, for halves of rows within
+    strata), ``strata`` each row's integer code of its stratum (None: one stratum).  In the order of the strata's
+    codes, each stratum's units are put in a random order (numpy's default generator seeded with ``seed``, one
+    permutation per stratum in turn) and the first half of them go to the first half; a stratum of an odd number of
+    units gives its extra unit to the first half, the next such stratum to the second, and so on in turn, so that
+    neither half collects them.  With one stratum and one row per unit these are :func:`draw_halves`'s halves (the
+    same permutation of the same count): the rule of replicate --data with --cluster or --strata."""
+    rng = np.random.default_rng(seed)
+    strata = np.zeros(len(units), dtype=np.int64) if strata is None else np.asarray(strata)
+    first = np.zeros(len(units), dtype=bool)
+    extra_first = True
+    for stratum in np.unique(strata):
+        inside = strata == stratum
+        order = rng.permutation(np.unique(units[inside]))
+        take = len(order) // 2 + (len(order) % 2 if extra_first else 0)
+        extra_first ^= bool(len(order) % 2)
+        first |= inside & np.isin(units, order[:take])
+    return np.flatnonzero(first), np.flatnonzero(~first)
 
 
 @dataclass(frozen=True)
@@ -134,18 +169,34 @@ def fingerprint(path) -> str:
     return digest.hexdigest()
 
 
-def halves_text(halves: list[tuple[str, tuple[int, ...]]], seed: int, data, sheet: str | None = None) -> str:
+@dataclass(frozen=True)
+class DrawnBy:
+    """The columns halves were drawn by (:func:`draw_cluster_halves`) and each row's cluster and stratum as read
+    (``labels``: row number -> (cluster, stratum), '' for a column not given)."""
+
+    cluster: str | None
+    strata: str | None
+    labels: dict
+
+
+def halves_text(halves: list[tuple[str, tuple[int, ...]]], seed: int, data, sheet: str | None = None,
+                drawn_by: DrawnBy | None = None) -> str:
     """The halves file: one line per row split, in the order of the rows (``halves``: each half's name and its rows'
     numbers, data.moments.row_numbers, the first half first), each with the seed, the data file's name and checksum
-    and the sheet read (``sheet``: the one asked for; data.readers.sheet_read)."""
+    and the sheet read (``sheet``: the one asked for; data.readers.sheet_read); halves drawn by cluster within strata
+    (``drawn_by``) add the columns and each row's cluster and stratum (:data:`DRAWN_BY_COLUMNS`)."""
     name = Path(data).name if isinstance(data, (str, Path)) else ""
     sums = fingerprint(data)
     sheet = sheet_read(data, sheet)
     out = io.StringIO()
     writer = csv.writer(out, lineterminator="\n")
-    writer.writerow(HALVES_COLUMNS)
+    writer.writerow(HALVES_COLUMNS if drawn_by is None else DRAWN_BY_COLUMNS)
     for row, half in sorted((row, half) for half, numbers in halves for row in numbers):
-        writer.writerow((row, half, seed, name, sums, sheet or ""))
+        line = (row, half, seed, name, sums, sheet or "")
+        if drawn_by is not None:
+            cluster, stratum = drawn_by.labels[row]
+            line += (drawn_by.cluster or "", cluster, drawn_by.strata or "", stratum)
+        writer.writerow(line)
     return out.getvalue()
 
 
@@ -163,6 +214,11 @@ class SavedHalves:
     data_sha256: str
     sheet: str = ""
     sheet_asked: bool = False
+    #: halves drawn by cluster within strata: the columns ('' when not given) and each row's cluster and stratum
+    cluster_column: str = ""
+    strata_column: str = ""
+    clusters: tuple[str, ...] = ()
+    strata: tuple[str, ...] = ()
 
     def sheet_drawn(self, data) -> str:
         """The sheet of ``data`` the halves were drawn from: the one recorded, or in a file written before s15, the
@@ -195,7 +251,7 @@ def read_halves(path) -> SavedHalves:
                         f"{csv.field_size_limit():,} characters, or a quote (\") never closed); a halves file is the "
                         f"CSV file --halves-file wrote, and is read as it wrote it") from None
     header = tuple(c.strip() for c in lines[0]) if lines else ()
-    if header not in (HALVES_COLUMNS, SHEET_ASKED_COLUMNS):
+    if header not in (HALVES_COLUMNS, SHEET_ASKED_COLUMNS, DRAWN_BY_COLUMNS):
         earlier = header in (HALVES_COLUMNS[:2], HALVES_COLUMNS[:5])
         raise DataError(f"{shown}, line 1: " + (
             "a halves file of an earlier version, without the seed, the data file's checksum or the sheet that a half "
@@ -203,14 +259,20 @@ def read_halves(path) -> SavedHalves:
             "halves from as many rows)" if earlier else
             f"not a halves file (its first line must be '{','.join(HALVES_COLUMNS)}', as explore --split and "
             f"replicate --data write it with --halves-file)"))
-    rows, halves, seeds, data, lines_of = [], [], set(), set(), {}
+    rows, halves, seeds, data, lines_of, drawn, units = [], [], set(), set(), {}, set(), []
     for number, cells in enumerate(lines[1:], start=2):
         if not any(c.strip() for c in cells):
             continue
-        if len(cells) != len(HALVES_COLUMNS):
-            raise DataError(f"{shown}, line {number}: {len(cells)} values, and a halves file has "
-                            f"{len(HALVES_COLUMNS)} ({', '.join(HALVES_COLUMNS)})")
-        row, half, seed, name, sums, sheet = (c.strip() for c in cells)
+        if len(cells) != len(header):
+            raise DataError(f"{shown}, line {number}: {len(cells)} values, and a halves file of these columns has "
+                            f"{len(header)} ({', '.join(header)})")
+        row, half, seed, name, sums, sheet = (c.strip() for c in cells[:6])
+        if header == DRAWN_BY_COLUMNS:  # the labels as the run read them (data.labels.label_text: no spaces at ends)
+            drawn.add((cells[6].strip(), cells[8].strip()))
+            units.append((cells[7].strip(), cells[9].strip()))
+            if len(drawn) > 1:
+                raise DataError(f"{shown}, line {number}: other cluster or strata columns than the lines above; a "
+                                f"halves file holds the halves of one split")
         if not row.isdigit() or int(row) < 1:
             raise DataError(f"{shown}, line {number}, column row: '{printable(row)}' is not a row number")
         if not half:
@@ -231,8 +293,10 @@ def read_halves(path) -> SavedHalves:
     if not rows:
         raise DataError(f"{shown}: the halves file lists no rows")
     name, sums, sheet = data.pop()
+    cluster_column, strata_column = drawn.pop() if drawn else ("", "")
     return SavedHalves(str(path), np.asarray(rows, dtype=np.int64), tuple(halves), seeds.pop(), name, sums, sheet,
-                       header == SHEET_ASKED_COLUMNS)
+                       header == SHEET_ASKED_COLUMNS, cluster_column, strata_column,
+                       tuple(u[0] for u in units), tuple(u[1] for u in units))
 
 
 def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet: str | None = None, read: str = "",
@@ -259,7 +323,7 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet:
         raise DataError(f"{shown} holds the halves of a data file with other contents ('{printable(saved.data_file)}' "
                         f"as it was when the halves were drawn), not those of {source}: give the data file the halves "
                         f"were drawn from; if that file was corrected since, write the halves again from it "
-                        f"({redraw_words(saved.names(), saved.seed)} draws the same halves from as many rows)")
+                        f"({redraw_words(saved.names(), saved.seed, saved.cluster_column, saved.strata_column)} draws the same halves from as many rows)")
     drawn = saved.sheet_drawn(data)
     if drawn != read:
         sheet_words = f"the sheet '{printable(read)}'" + ("" if sheet else " (the first sheet; no sheet asked for)")
@@ -277,7 +341,7 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet:
                         f"variable: it leaves out {rows_listed(with_gaps, naming=naming)}, which miss some answers, "
                         f"as {listwise} leaves them out, and this run keeps the rows with gaps; give {listwise} to "
                         f"analyse the half as it was drawn, or draw halves of every row with an answer "
-                        f"({redraw_words(saved.names(), saved.seed)}, without {listwise})")
+                        f"({redraw_words(saved.names(), saved.seed, saved.cluster_column, saved.strata_column)}, without {listwise})")
     if (len(absent) or len(unlisted)) and with_gaps is None:
         kept = " after the row filters" if frame.attrs.get(KEPT_BY) else ""
         which = (f"it lists {rows_listed(absent, naming=naming)}, not among them" if len(absent) else
@@ -286,12 +350,34 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet:
                         f"halves are of another selection of rows; give the {Option.NAMES_ROW}, "
                         f"{Option.FIRST_DATA_ROW} and {Option.KEEP} of the run that drew them (this run reads their "
                         f"sheet)")
+    _check_labels(saved, frame, numbers, shown, source)
     mask = np.isin(numbers, saved.rows[np.asarray(saved.halves) == choice.name])
     chosen = frame[mask]
     half = HalfRows(shown, choice.name, saved.seed, int(mask.sum()), len(saved.rows),
                     len(with_gaps) if with_gaps is not None else 0)
     chosen.attrs[KEPT_BY] = tuple(frame.attrs.get(KEPT_BY, ())) + (half.text,)
     return chosen, half
+
+
+def _check_labels(saved: SavedHalves, frame: pd.DataFrame, numbers: np.ndarray, shown: str, source: str) -> None:
+    """A refusal when halves drawn by cluster within strata name other clusters or strata for their rows than the
+    data's columns hold (the columns renamed or missing in this run, or edited labels): the halves were drawn by those
+    labels, and are checked by them (:func:`_check_drawn`)."""
+    from cfa_tool.data.labels import label_text
+
+    for column, recorded in ((saved.cluster_column, saved.clusters), (saved.strata_column, saved.strata)):
+        if not column:
+            continue
+        if column not in frame.columns:
+            raise DataError(f"{shown} holds halves drawn by the column '{printable(column)}', which {source} does not "
+                            f"hold as this run reads it; give the {Option.RENAME} of the run that drew them")
+        labels = dict(zip(numbers.tolist(), (label_text(v) if pd.notna(v) else "" for v in frame[column])))
+        for row, label in zip(saved.rows.tolist(), recorded):
+            if row in labels and labels[row] != label:
+                raise DataError(f"{shown}: row {row} was drawn in '{printable(label)}' of column "
+                                f"'{printable(column)}', and {source} gives '{printable(labels[row])}' there; a half is "
+                                f"analysed only as drawn: write the halves again "
+                                f"({redraw_words(saved.names(), saved.seed, saved.cluster_column, saved.strata_column)})")
 
 
 def _rows_with_gaps(frame: pd.DataFrame, numbers: np.ndarray, unlisted: np.ndarray,
@@ -319,10 +405,16 @@ def _check_drawn(saved: SavedHalves, shown: str) -> None:
     as rows it was not."""
     order = np.argsort(saved.rows, kind="stable")
     halves = np.asarray(saved.halves)[order]
-    first, second = draw_halves(len(order), saved.seed)
+    if saved.cluster_column or saved.strata_column:  # codes by first appearance in the rows' order, as the run drew
+        units = (pd.factorize(np.asarray(saved.clusters, dtype=object)[order])[0] if saved.cluster_column
+                 else np.arange(len(order)))
+        strata = pd.factorize(np.asarray(saved.strata, dtype=object)[order])[0] if saved.strata_column else None
+        first, second = draw_cluster_halves(units, strata, saved.seed)
+    else:
+        first, second = draw_halves(len(order), saved.seed)
     named = next((pair for pair in DRAWN_HALVES if set(saved.names()) == set(pair)), None)
     if named is not None and np.all(halves[first] == named[0]) and np.all(halves[second] == named[1]):
         return
     raise DataError(f"{shown}: its halves are not those seed {saved.seed} draws from its {len(order)} rows (edited by "
                     f"hand, or written with another seed): a half is analysed only as drawn; write the halves again "
-                    f"({redraw_words(saved.names())})")
+                    f"({redraw_words(saved.names(), cluster=saved.cluster_column, strata=saved.strata_column)})")

@@ -222,18 +222,17 @@ class SampleDesign:
                        f"the chi-square is scaled accordingly.") + after
 
     def score_test_text(self) -> str | None:
-        """What the modification indices of a continuous maximum-likelihood fit under this design are: the normal-theory
-        score tests of the weighted likelihood (pipeline.continuous: assessment.modification.score_tests on the
-        weighted moments), which take the rows as independent and equally informative; design-based ones would divide
-        each by the design effect of its score, usually above 1 with clusters and uneven weights (Satorra's 1989
-        generalized score test).  None for frequency weights alone, which are repeated rows."""
+        """What the modification indices of a continuous maximum-likelihood fit under this design are: design-based
+        score tests (pipeline.continuous: assessment.robust_scores.robust_score_tests, Satorra's 1989 generalized
+        score test with the design-based meat; s17, where s16 gave the normal-theory ones with a note that they left
+        the design out).  None for frequency weights alone, which are repeated rows."""
         c = self.columns
         if not c.robust:
             return None
         parts = [what for what, there in (("sampling weights", c.weights is not None and c.kind is WeightKind.SAMPLING),
                                           ("clusters", c.cluster is not None), ("strata", c.strata is not None))
                  if there]
-        return SCORE_TESTS_WITHOUT_DESIGN.format(parts[0] if len(parts) == 1 else
+        return SCORE_TESTS_BY_DESIGN.format(parts[0] if len(parts) == 1 else
                                                  ", ".join(parts[:-1]) + " and " + parts[-1])
 
     def shared_strata_caution(self) -> str | None:
@@ -380,12 +379,10 @@ class SampleDesign:
 
 
 #: the first note under the modification indices of a fit under a sampling design (SampleDesign.score_test_text)
-SCORE_TESTS_WITHOUT_DESIGN = (
-    "These indices do not take the sampling design ({}) into account: they are score tests of the weighted likelihood "
-    "that take the rows as independent, and are usually larger than design-based tests would be (Satorra's 1989 "
-    "generalized score test), more so the more the rows of one cluster answer alike or the more uneven the weights. "
-    "Judge a parameter they point to by its design-based test: refit with it freed and read its z, whose standard "
-    "error takes the design into account.")
+SCORE_TESTS_BY_DESIGN = (
+    "These indices take the sampling design ({}) into account: each is a design-based score test (Satorra's 1989 "
+    "generalized score test), the squared score of the parameter over its variance estimated under the design, as the "
+    "standard errors and the scaled test are; the expected changes are those of the weighted likelihood.")
 #: strata with a single unit named in the methods paragraph and the caution (the rest counted)
 LONE_STRATA_NAMED = 5
 #: Kish's effective sample size below this share of the rows (a design effect of the weighting, n / n_eff = 1 + CV^2 of

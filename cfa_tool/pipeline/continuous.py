@@ -6,7 +6,7 @@ itself.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 from functools import lru_cache
 from typing import TYPE_CHECKING
 
@@ -21,6 +21,7 @@ from cfa_tool.assessment.fit_indices import (baseline_chi_square, cfi_value, fit
                                              rmsea_value, srmr, srmr_value)
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
 from cfa_tool.assessment.modification import NO_INDICES, helper_modification_indices, modification_indices
+from cfa_tool.assessment.robust_scores import robust_score_tests, sampling_design
 from cfa_tool.assessment.normality import Whitened, mardia, whitened_rows
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
@@ -62,7 +63,9 @@ class FitOptions:
     mi_threshold: float = DEFAULT_MI_THRESHOLD
     mi_top: int | None = None
     max_iterations: int = 500
-    test: FitTest = FitTest.NORMAL
+    # the test of fit; None (not chosen) is the normal-theory test, and under a sampling design the design-based scaled
+    # one (pipeline.inputs.design_test)
+    test: FitTest | None = None
     diagnostics: bool = True  # Mardia's tests, reliability, normalized residuals, case diagnostics
     modification_indices: bool = True  # (workflows and loops that refit many times turn these off)
     # rows with missing answers: full information or listwise; None lets cfa_tool.fit decide from the
@@ -71,9 +74,15 @@ class FitOptions:
     # columns beside the model in the full-information likelihood (auxiliary variables, Graham 2003:
     # estimation/auxiliary.py); full-information ML only
     missing_helpers: tuple[str, ...] = ()
+    # whether the caller chose the test (False: the default above, the tool's choice), so that a test that cannot apply
+    # (the normal-theory one under a sampling design or to ordinal items) is refused, never replaced; kept as it is by
+    # dataclasses.replace, and set from ``test`` when not given
+    test_chosen: bool | None = field(default=None, metadata={"keyword": False})  # not a keyword of the public functions
 
     def __post_init__(self) -> None:
-        object.__setattr__(self, "test", FitTest.parse(self.test, "test"))
+        if self.test_chosen is None:
+            object.__setattr__(self, "test_chosen", self.test is not None)
+        object.__setattr__(self, "test", FitTest.NORMAL if self.test is None else FitTest.parse(self.test, "test"))
         if self.information is not None:
             object.__setattr__(self, "information", Information.parse(self.information, "information"))
         if self.information is not None and self.test is not FitTest.NORMAL:
@@ -479,6 +488,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         inference = wald_inference(values, model.J, cov_theta)
         if options.modification_indices and est.auxiliary is None:
             mis = modification_indices(model, theta, likelihood, exogenous_factors(spec), mats, factor)
+            if options.test.robust and sampling_design(likelihood):  # design-based score tests (Satorra 1989)
+                mis = robust_score_tests(mis, model, theta, likelihood)
         elif options.modification_indices:  # the joint likelihood's score tests, the helpers' parameters free
             joint = est.auxiliary
             mis = helper_modification_indices(model, joint.likelihood.model, joint.theta, joint.likelihood,

@@ -1397,16 +1397,24 @@ def _labelled(frame: pd.DataFrame, group: str | None) -> pd.DataFrame:
 
 def design_test(fit_options, design: DesignColumns):
     """Under sampling weights or clusters the standard errors are sandwich ones and the test a scaled one
-    (Muthén & Satorra 1995; Asparouhov 2005): the robust test of the estimator replaces the normal-theory one."""
+    (Muthén & Satorra 1995; Asparouhov 2005): the design-based scaled test is the test when none was chosen, and a
+    test or an information chosen is refused, never replaced (the normal-theory test takes the rows as independent and
+    equally weighted, which they are not)."""
     if not design.robust:
         return fit_options
     if fit_options.information is not None:
         raise OptionError("with sampling weights, clusters or strata the standard errors are sandwich ones, so the "
                           f"information they come from ({Option.STANDARD_ERRORS_FROM}) cannot be chosen; remove that "
                           f"option")
+    if fit_options.test_chosen and fit_options.test is FitTest.NORMAL:  # it was replaced by the scaled test (s17)
+        raise OptionError(f"with sampling weights, clusters or strata the normal-theory test is not valid (it takes the "
+                          f"rows as independent and equally weighted): the test is the design-based scaled one, with "
+                          f"sandwich standard errors; leave out {Option.ROBUST.given(FitTest.NORMAL.value)}, or leave "
+                          f"out the design for a fit of unweighted, independent rows")
     if fit_options.test is not FitTest.NORMAL:  # hostile trial s16: accepted, where '--ordinal all --robust' is refused
+        chosen = Option.ROBUST if fit_options.test is FitTest.ROBUST else Option.ROBUST.given(fit_options.test.value)
         raise OptionError(f"with sampling weights, clusters or strata the standard errors are already sandwich ones and "
-                          f"the test a design-based scaled one, so {Option.ROBUST} cannot apply; remove it")
+                          f"the test a design-based scaled one, so {chosen} cannot apply; remove it")
     return replace(fit_options, test=FitTest.ROBUST)  # resolved for the rows as --robust is (FitOptions, assess)
 
 
@@ -1814,6 +1822,10 @@ def check_ordinal_options(fit_options) -> bool:
     if fit_options.test is FitTest.ROBUST:
         raise OptionError(f"ordinal items always get robust (sandwich) standard errors and the {ADJUSTED_TEST} test "
                           f"from the least-squares fit, so {Option.ROBUST} cannot apply; remove it")
+    if fit_options.test_chosen and fit_options.test is FitTest.NORMAL:  # it was replaced by the adjusted test (s17)
+        raise OptionError(f"ordinal items are fitted by least squares on polychoric correlations, whose test is the "
+                          f"{ADJUSTED_TEST} one, with robust (sandwich) standard errors: the normal-theory test of "
+                          f"maximum likelihood cannot apply; leave out {Option.ROBUST.given(FitTest.NORMAL.value)}")
     if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test is not FitTest.NORMAL:
         raise OptionError(f"ordinal items use every answer through pairwise present rows (or only the complete rows with "
                           f"{Option.INCOMPLETE_ROWS.given('listwise')}) and their own adjusted test; full-information ML and the "
@@ -1959,7 +1971,7 @@ def make_options(options: dict, own: tuple[str, ...] = (), helpers: bool = False
         raise OptionError(f"missing-data helpers ({Option.MISSING_HELPERS}) are offered by fit only so far; leave "
                           f"them out here")
 
-    known = [f.name for f in fields(FitOptions)]
+    known = [f.name for f in fields(FitOptions) if f.metadata.get("keyword", True)]
     unknown = next((k for k in options if k not in known), None)
     if unknown is not None:
         near = close_names(str(unknown), [*own, *known])

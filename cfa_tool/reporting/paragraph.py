@@ -1590,7 +1590,7 @@ def replication_paragraph(replications) -> str:
     by = estimator if other == estimator else f"{estimator} (in the validation sample by {other})"
     if first.split is not None:
         rows = first.split
-        parts = [f"The replication of {model} was examined in two random halves, drawn row by row, of {rows.split} of "
+        parts = [f"The replication of {model} was examined in two random halves, {rows.drawn_phrase}, of {rows.split} of "
                  f"the {rows.in_file} rows of one data file{rows.kept_words()}: each half served once as the calibration sample, where the model was "
                  f"estimated by {by}, and once as the validation sample, where it was refitted (double "
                  f"cross-validation; Cudeck & Browne, 1983), and whether one solution holds in both halves was "
@@ -1602,6 +1602,7 @@ def replication_paragraph(replications) -> str:
                  f"validation sample ({_sample_rows_phrase(first.rows[1], first.loose.data, first.validation)}), each "
                  f"time by {by}."] if first.rows else []
     if first.split is not None:  # the filters chose the rows of the file before the split
+        parts.append(first.split.independence_sentence())  # halves drawn by cluster: the rows within each half
         parts.append(range_restriction_sentence(first.split.filters, result.observed, _factor_items(result)))
     else:
         parts += [range_restriction_sentence(r.data.row_filters, r.observed, _factor_items(r), f"in the {name} sample, ")

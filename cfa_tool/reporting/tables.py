@@ -792,8 +792,8 @@ def modification_table(result, group: int | None = None, limit: int = 10) -> Rep
         body.append([parameter_words(m.kind, tuple(m.variables), None if label else m.group, article=False,
                                      groups=group_labels(result)),
                      num(m.index, 2), num(m.expected_change), num(m.standardized_expected_change)])
-    # under a sampling design, first: the indices leave the design out (new-user trial s16); ordinal fits' score
-    # tests are the robust ones of least squares, which take it in
+    # under a sampling design, first: the indices are design-based score tests (s17; s16 said they left the design
+    # out); ordinal fits' score tests are the robust ones of least squares, which take it in
     design = (result.design.score_test_text() if getattr(result, "design", None) is not None
               and not result.method.ordinal else None)
     note = ((design + " " if design else "")
@@ -804,7 +804,8 @@ def modification_table(result, group: int | None = None, limit: int = 10) -> Rep
         note += (f" {len(beyond)} expected residual correlation{'s are' if len(beyond) > 1 else ' is'} beyond +/-1: the "
                  "expected change is a linear approximation that fails this far from the current estimate, so only a "
                  "refit shows the value the parameter would take.")
-    if result.method.missing is MissingData.FULL_INFORMATION and not result.method.ordinal:
+    if result.method.missing is MissingData.FULL_INFORMATION and not result.method.ordinal and not design:
+        # (design-based score tests take the observed information, as the robust standard errors: no MCAR to assume)
         note += " " + full_information_score_tests(bool(result.method.helpers))
     note += (" Freeing parameters because of large modification indices capitalises on chance; a model changed that "
              "way needs confirmation in new data.")

@@ -827,7 +827,8 @@ ORDINAL_BOOTSTRAP = ("Ordinal items: each resample gets its own thresholds and p
 
 def _split_sentence(rows) -> str:
     """Which rows of the file random halves were drawn from (workflows.replication.SplitRows)."""
-    clusters = f" {rows.ROW_BY_ROW[0].upper()}{rows.ROW_BY_ROW[1:]}."
+    drawn = rows.how_drawn()  # row by row, or cluster by cluster within strata (workflows.replication.SplitRows)
+    clusters = f" {drawn[0].upper()}{drawn[1:]}."
     if rows.split >= rows.in_file:
         return (f"The {rows.split} rows {f'{rows.kept_words()[1:]}' if rows.filters else 'of the file'} were split at "
                 f"random into two halves.{clusters}")

@@ -33,8 +33,8 @@ from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.model.description import parameter_words
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.plain import journal_decimal
-from cfa_tool.assessment.modification import ModificationIndex, ModificationIndices, equality_score_tests
-from cfa_tool.numerics.linalg import scaled_inverse
+from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
+from cfa_tool.assessment.robust_scores import robust_score_tests
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
 from cfa_tool.pipeline.continuous import PAIRWISE_INSTEAD, assess, estimate, gaps_instead, rows_left_out
@@ -858,85 +858,6 @@ class OrdinalLadder:
         table = est.table
         return ordinal_score_tests(est, [constrained_entries(table, kinds, g) + _pinned_entries(table, kinds, g)
                                          for g in range(table.n_groups)])
-
-
-def robust_score_tests(found: ModificationIndices, model, theta: np.ndarray, likelihood) -> ModificationIndices:
-    """The normal-theory score tests ``found`` (assessment.modification) made robust to non-normal data and to a
-    sampling design: Satorra's (1989) generalized score test, the score statistic over the robust (sandwich)
-    variance of the score instead of its normal-theory variance.  For a constraint gamma (a group's deviation from
-    the common value) with information A and meat B of the model enlarged by gamma (both at the restricted
-    estimates), the efficient score is s_gamma - A_gt A_tt^-1 s_theta (s_gamma itself at the estimates, where
-    s_theta = 0); its robust variance is L B L', L = (-A_gt A_tt^-1, 1).  The normal-theory statistic divides the
-    same score by h = A_gg - A_gt A_tt^-1 A_tg of its own information (Sörbom 1989), so the robust statistic is the
-    normal-theory one times h / (L B L'), h from the index's information and L from the bread (times 2 for rows
-    with gaps, whose meat is twice the information under normality; Yuan & Bentler 2000).  With complete rows A and
-    B are those of inference.robust (Satorra & Bentler 1994: A = Delta' V Delta, B = Delta' V Gamma V Delta, over
-    the groups' stacked moments under their design), A both the index's information and the bread.  With rows with
-    gaps (full-information ML) B is the meat of the rows' scores in the saturated moments (inference.robust_missing)
-    and the bread is the observed information in the moments (MissingDataLikelihood.moment_hessian), as the robust
-    standard errors and the Yuan-Bentler test take the observed information (valid when answers are missing at
-    random, not only completely at random; Kenward & Molenberghs 1998), while h is that of the index's own
-    information (the patterns' expected information, MissingDataLikelihood.group_parts).  The expected changes stay
-    as they are."""
-    if not len(found):
-        return found
-    index = found.index * _score_variance_ratio(model, theta, likelihood, found)
-    kept = np.flatnonzero(np.isfinite(index))  # a robust variance that is not positive: no test, as score_tests
-    order = kept[np.argsort(-index[kept], kind="stable")]
-    return ModificationIndices(found.candidates, found.labels, found.rows[order], found.groups[order], index[order],
-                               found.expected_change[order], found.standardized_expected_change[order])
-
-
-def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: ModificationIndices) -> np.ndarray:
-    """h / (L B L') of :func:`robust_score_tests` for each row of ``found`` (NaN where the robust variance is not
-    positive)."""
-    from cfa_tool.assessment.modification import candidate_arrays
-    from cfa_tool.model.implied import entry_derivatives
-    from cfa_tool.inference.robust import _group_blocks, moments_meat, vech_indices
-
-    q, k = len(theta), len(found)
-    I, J = vech_indices(model.p)
-    complete = likelihood.complete_data
-    information = np.zeros((q + k, q + k))  # the index's own: h comes from it
-    bread = information if complete else np.zeros((q + k, q + k))  # L comes from it
-    meat = np.zeros((q + k, q + k))
-    weighted = []
-    omega = moments_meat(likelihood, likelihood.means) if complete else None
-    for g, w in enumerate(likelihood.weights):
-        mats = model.matrices(theta, g)
-        mine = np.flatnonzero(found.groups == g)
-        c_sigma, c_mu = entry_derivatives(mats, *candidate_arrays([found.candidates[r] for r in found.rows[mine]]))
-        if complete:  # (means,) vech: the layout of inference.robust
-            delta, V = _group_blocks(model, theta, likelihood, g)
-            extra = np.vstack([c_mu.T, c_sigma[:, I, J].T]) if likelihood.means else c_sigma[:, I, J].T
-        else:  # means, vech: the layout of inference.robust_missing
-            from cfa_tool.inference.robust_missing import _model_directions, _moment_directions, group_meat
-
-            delta = _model_directions(likelihood, theta, g)
-            extra = np.vstack([c_mu.T, c_sigma[:, I, J].T])
-            directions = _moment_directions(model.p)
-            V = likelihood.group_parts(theta, g).information(*directions)  # the patterns' expected information
-            observed = likelihood.moment_hessian(theta, g, *directions)
-        X = np.zeros((delta.shape[0], q + k))
-        X[:, :q] = delta
-        X[:, q + mine] = extra
-        VX = V @ X
-        information += w * X.T @ VX
-        if complete:
-            weighted.append(w * VX)
-        else:
-            bread += w * X.T @ observed @ X
-            meat += w * X.T @ group_meat(likelihood, g, mats) @ X  # inference.robust_missing's per-group B
-    if complete:
-        meat = omega.middle(weighted)
-    K = information[q:, :q] @ scaled_inverse(information[:q, :q])  # A_gt A_tt^-1 of the index's information
-    normal = np.diag(information)[q:] - np.einsum("cq,cq->c", K, information[q:, :q])
-    if not complete:  # L from the observed information
-        K = bread[q:, :q] @ scaled_inverse(bread[:q, :q])
-    robust = (np.diag(meat)[q:] - 2.0 * np.einsum("cq,cq->c", K, meat[q:, :q])
-              + np.einsum("cq,cq->c", K @ meat[:q, :q], K))
-    ratio = normal / np.where(robust > 0, robust, np.nan)
-    return ratio if complete else 2.0 * ratio
 
 
 def _pinned_entries(table, kinds: tuple[str, ...], group: int) -> list:

@@ -63,14 +63,14 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.halves import draw_halves
+from cfa_tool.data.halves import draw_cluster_halves, draw_halves
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.pipeline.inputs import (_described, data_problems, keeps_rows_with_gaps, load_spec, make_options, odd_values_named,
                                       read_inputs_with_notes, refit_missing_handling, refuse_totals_rows,
                                       with_row_filters)
 from cfa_tool.assessment.admissibility import inadmissible_words
 from cfa_tool.data.answer_words import coding_json, coding_record
-from cfa_tool.data.matching import check_columns
+from cfa_tool.data.matching import check_columns, chosen_columns
 from cfa_tool.data.readers import sheet_of_each
 from cfa_tool.data.kept_rows import row_of
 from cfa_tool.data.groups import pooled
@@ -625,12 +625,17 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
                sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
                first_data_row: int | None = None, keep: tuple[str, ...] | list[str] = (), rename=None,
-               **options) -> tuple[Replication, Replication]:
+               cluster: str | None = None, strata: str | None = None, **options) -> tuple[Replication, Replication]:
     """Random halves A and B (seeded) of the rows analysed (with continuous items and gaps, every row with an
     answer, as fit keeps them; else the complete rows): calibrate on A and validate on B, then the reverse.
     ``keep``: row filters ('Finished = True'), applied before the split, as for ``fit``: the halves are drawn from
-    the rows they keep."""
+    the rows they keep.  ``cluster``: a column naming each row's cluster (household, school): the halves are drawn
+    cluster by cluster, whole clusters to each half, so that the halves are independent samples of clusters;
+    ``strata``: a column naming each row's stratum, the halves drawn within each stratum (its clusters, or its rows
+    without ``cluster``; data.halves.draw_cluster_halves).  The fits within each half still take its rows as
+    independent, and the reports say so."""
     seed = check.seed(seed)
+    design = _split_design(cluster, strata)
     spec = load_spec(model)
     one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
@@ -638,15 +643,18 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
                                                      SPLIT_HALF_KEYWORDS)
     _, loaded, notes = read_inputs_with_notes(spec, data, sheet, missing_codes, keep, names_row=names_row,
                                               first_data_row=first_data_row, rename=rename,
+                                              chosen=chosen_columns(design=design),
                                               keeps_gaps=keeps_rows_with_gaps(missing))  # as fit reads it
     notes = tuple(notes)
     frame, source = loaded.frame, loaded.source
     with odd_values_named(loaded):
-        pair, halves = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, **options)
+        pair, halves, units, labels = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, design,
+                                          **options)
     split = pair[0].calibration_result.n_obs + pair[0].loose.n_obs
     rows = SplitRows(split, len(frame), split < len(frame.dropna(subset=list(spec.observed_names), how="all")),
                      *halves, filters=loaded.row_filters,
-                     rows_in_file=len(loaded.read_frame) if loaded.read_frame is not None else None)
+                     rows_in_file=len(loaded.read_frame) if loaded.read_frame is not None else None,
+                     cluster=cluster, strata=strata, units=units, labels=labels)
     # the rows left out before the split (the halves hold complete rows only): fit's caution, after the data's
     problems = data_problems(loaded, spec, listwise=rows.complete_only) + _left_out(len(frame) - split, len(frame), source,
                                                        MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
@@ -675,20 +683,74 @@ class SplitRows:
     #: held before them (None without filters)
     filters: tuple = ()
     rows_in_file: int | None = None
+    #: the columns the halves were drawn by (data.halves.draw_cluster_halves): whole clusters of ``cluster`` to each
+    #: half, within each stratum of ``strata``; both None: row by row
+    cluster: str | None = None
+    strata: str | None = None
+    #: the clusters (the strata's rows without clusters) in half A and in half B; () when drawn row by row
+    units: tuple[int, ...] = ()
+    #: each row's number, cluster and stratum as read ('' for a column not given), when drawn by them: what a halves
+    #: file records to draw the halves again (data.halves.DrawnBy)
+    labels: tuple[tuple[int, str, str], ...] = field(default=(), repr=False)
 
     def to_dict(self) -> dict:
-        out = {"rows_split": self.split, "rows_in_file": self.in_file, "complete_rows_only": self.complete_only}
+        out = {"rows_split": self.split, "rows_in_file": self.in_file, "complete_rows_only": self.complete_only,
+               "drawn": self.drawn_phrase, "cluster_column": self.cluster, "strata_column": self.strata,
+               "clusters_per_half": list(self.units) if self.cluster is not None else None}
         if self.filters:
             out.update(rows_kept_by_filters=self.in_file, rows_in_file=self.rows_in_file,
                        row_filters=[f.text for f in self.filters])
         return out
 
+    def drawn_by(self):
+        """The columns and labels the halves were drawn by, for a halves file (data.halves.DrawnBy); None when drawn
+        row by row."""
+        from cfa_tool.data.halves import DrawnBy
+
+        if self.cluster is None and self.strata is None:
+            return None
+        return DrawnBy(self.cluster, self.strata, {row: (c, h) for row, c, h in self.labels})
+
+    @property
+    def drawn_phrase(self) -> str:
+        """How the halves were drawn, after 'two random halves, ' in a methods paragraph: 'drawn row by row', 'drawn
+        cluster by cluster (whole clusters of school to each half, within the strata of region)'."""
+        within = f"within the strata of {self.strata}"
+        if self.cluster is not None:
+            return (f"drawn cluster by cluster (whole clusters of {self.cluster} to each half"
+                    + (f", {within})" if self.strata is not None else ")"))
+        return "drawn row by row" + (f" {within}" if self.strata is not None else "")
+
+    def independence_sentence(self) -> str:
+        """What halves drawn by cluster still assume, a sentence of the methods paragraph ('' for halves drawn row by
+        row, whose phrase says so)."""
+        if self.cluster is None:
+            return ""
+        return (f"Every row of a cluster was in one half ({self.units[0]} clusters in half A, {self.units[1]} in half "
+                f"B), so the halves were independent samples of clusters; within each half the rows were taken as "
+                f"independent, so the test of one solution is too liberal if rows of one cluster answer alike.")
+
+    def how_drawn(self) -> str:
+        """How the halves were drawn and what that means for rows that come in clusters, in the words of the split
+        sentence of the report (and of the methods paragraph's caveat)."""
+        if self.cluster is None:
+            words = self.ROW_BY_ROW
+            if self.strata is not None:
+                words = words.replace("drawn row by row", f"drawn row by row within each stratum of {self.strata}", 1)
+            return words
+        within = f" within each stratum of {self.strata}" if self.strata is not None else ""
+        return (f"the halves are drawn cluster by cluster{within}: every row of a cluster of {self.cluster} is in one "
+                f"half ({self.units[0]} clusters in half A, {self.units[1]} in half B), so the halves are independent "
+                f"samples of clusters; within each half the fits, the test of one solution and the cross-validation "
+                f"index still take the rows as independent, so the test's p-value comes out too small when rows of one "
+                f"cluster answer alike")
+
     #: how random halves are drawn, and what that means for rows that come in clusters (new-user trial s16: halves
     #: split households without a word); the split sentence of the report and the methods paragraph say it
     ROW_BY_ROW = ("the halves are drawn row by row, so rows of one household, school or other cluster can fall in both "
                   "halves, which then look more alike than independent samples would, and the test of one solution and "
-                  "the cross-validation index take the rows as independent; with such data, split the file by cluster "
-                  "and give the two parts as calibration and validation samples")
+                  "the cross-validation index take the rows as independent; with such data, draw the halves cluster by "
+                  "cluster from the column that names each row's cluster")
 
     def kept_words(self) -> str:
         """' kept by the row filter 'Finished = True' (of the 900 rows in the file)': the rows the filters chose
@@ -700,10 +762,57 @@ class SplitRows:
                 f"{self.rows_in_file} rows in the file)")
 
 
+def _split_design(cluster: str | None, strata: str | None):
+    """The design columns the halves are drawn by (data.sample_design.DesignColumns without weights), or None."""
+    from cfa_tool.data.sample_design import DesignColumns
+
+    for name, value in (("cluster", cluster), ("strata", strata)):
+        if value is not None and (not isinstance(value, str) or not value.strip()):
+            raise OptionError(f"{name} must name a column of the data, not {value!r}")
+    return DesignColumns(None, cluster, strata) if cluster is not None or strata is not None else None
+
+
+def _drawn(complete: pd.DataFrame, design, spec: Spec, source: str, seed: int
+           ) -> tuple[np.ndarray, np.ndarray, tuple[int, ...], tuple[tuple[int, str, str], ...]]:
+    """The positions of halves A and B among the rows ``complete`` (data.halves: row by row without a ``design``,
+    else by its clusters within its strata), the clusters in each half (() without clusters), and each row's number,
+    cluster and stratum as read ('' for a column not given; () without a design), which a halves file records."""
+    if design is None:
+        return *draw_halves(len(complete), seed), (), ()
+    from cfa_tool.data.sample_design import check_design, row_design
+
+    if design.cluster is not None and design.cluster in complete.columns:
+        from cfa_tool.data.labels import label_text
+
+        named = pd.unique(complete[design.cluster].dropna().map(label_text))
+        if len(named) < 2:
+            raise DataError(f"{source}: column '{printable(design.cluster)}' names a single cluster among the rows split, "
+                            f"and halves drawn cluster by cluster need at least two; remove {Option.CLUSTER} or give "
+                            f"the right column")
+    checked, _ = check_design(complete, design, spec.observed_names, None, source)  # names, labels, nesting
+    codes = row_design(checked, design, np.ones(len(checked), dtype=bool))
+    units = codes.clusters if codes.clusters is not None else np.arange(len(checked))
+    first, second = draw_cluster_halves(units, codes.strata, seed)
+    counts = (len(np.unique(units[first])), len(np.unique(units[second]))) if codes.clusters is not None else ()
+    least = 2 * len(spec.observed_names)
+    if min(len(first), len(second)) < least:
+        by = f"cluster of {design.cluster}" if design.cluster is not None else f"stratum of {design.strata}"
+        raise DataError(f"{source}: halves drawn {by} hold {len(first)} and {len(second)} rows, and each needs at least "
+                        f"{least} for {len(spec.observed_names)} variables (large clusters or strata of few rows); "
+                        f"split the file into two samples by hand and give them as calibration and validation samples")
+    named = [np.asarray(names, dtype=object)[codes_of] if codes_of is not None else np.full(len(checked), "", dtype=object)
+             for codes_of, names in ((codes.clusters, codes.cluster_names), (codes.strata, codes.strata_names))]
+    labels = tuple((int(r), str(c), str(h)) for r, c, h in zip(row_numbers(checked), *named))
+    return first, second, counts, labels
+
+
 def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal_items, method, missing,
-                pairwise: bool = False, **options) -> tuple[tuple[Replication, Replication], tuple[tuple[int, ...], ...]]:
+                pairwise: bool = False, design=None, **options
+                ) -> tuple[tuple[Replication, Replication], tuple, tuple[int, ...], tuple]:
     """The halves of the rows fit would analyse: with gaps kept (full-information ML, or ordinal items' pairwise
-    rows), every row with an answer; else the complete rows.  Also the row numbers of halves A and B."""
+    rows), every row with an answer; else the complete rows; drawn by the clusters within the strata of ``design``
+    when given (:func:`_drawn`).  Also the row numbers of halves A and B, the clusters in each and each row's
+    cluster and stratum (:func:`_drawn`)."""
     handling = MissingData.LISTWISE
     if not ordinal_items:
         handling, _ = refit_missing_handling(frame, spec.observed_names, missing)
@@ -716,7 +825,7 @@ def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal
     if len(complete) < 4 * len(spec.observed_names):
         raise DataError(f"{source}: {len(complete)} {kind} are too few to split into two halves for "
                         f"{len(spec.observed_names)} variables")
-    first, second = draw_halves(len(complete), seed)  # half A takes the odd row, as explore's exploration half does
+    first, second, units, labels = _drawn(complete, design, spec, source, seed)  # half A takes the odd row, as explore's does
     a = complete.iloc[first]
     b = complete.iloc[second]
     rows = (tuple(int(v) for v in row_numbers(a)), tuple(int(v) for v in row_numbers(b)))
@@ -727,10 +836,10 @@ def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal
                                   **options)
         # one test of one solution for both directions: the same two halves (not fitted twice)
         second = replace(replicate_ordinal(spec, mb, ma, method, "", **options), same_solution=first.same_solution)
-        return (first, second), rows
+        return (first, second), rows, units, labels
     ma = sample_moments(a, spec.observed_names, f"{source} (half A, seed {seed})", missing=handling)
     mb = sample_moments(b, spec.observed_names, f"{source} (half B, seed {seed})", missing=handling)
 
     first = replicate_moments(spec, ma, mb, **options)
     # one test of one solution for both directions: the same two halves (not fitted twice)
-    return (first, replicate_moments(spec, mb, ma, first.same_solution, **options)), rows
+    return (first, replicate_moments(spec, mb, ma, first.same_solution, **options)), rows, units, labels

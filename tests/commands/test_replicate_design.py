@@ -1,7 +1,8 @@
 """replicate and sampling designs (new-user trial s16): random halves are drawn row by row, which splits clusters
 such as households between the halves, and the report said nothing of it; ``replicate --weights`` pointed to a help
 that did not mention weights.  The report and the methods text say how the halves are drawn and what to do with rows
-that come in clusters; the refusal and the help say what replicate takes."""
+that come in clusters (since s17: draw them by cluster, tests/workflows/test_replicate_halves_by_cluster.py); the
+refusal of weights and the help say what replicate takes."""
 
 from __future__ import annotations
 
@@ -20,12 +21,12 @@ def test_the_split_says_that_halves_are_drawn_row_by_row(hs_data):
     first = report_of(Replications(pair)).lines[0]
     assert first.startswith("The 301 rows of the file were split at random into two halves. The halves are drawn row "
                             "by row, so rows of one household, school or other cluster can fall in both halves")
-    assert "split the file by cluster and give the two parts as calibration and validation samples" in first
+    assert "draw the halves cluster by cluster from the column that names each row's cluster" in first
     assert "two random halves, drawn row by row, of 301 of the 301 rows" in " ".join(replication_paragraph(
         Replications(pair)).split())
 
 
-@pytest.mark.parametrize("option", [["--weights", "w"], ["--cluster", "school"], ["--strata", "school"]])
+@pytest.mark.parametrize("option", [["--weights", "w"], ["--weight-kind", "frequency"]])
 def test_replicate_says_what_it_takes_when_given_a_design(option, tmp_path, capsys):
     model = tmp_path / "m.cfa"
     model.write_text(THREE_FACTORS)
@@ -34,10 +35,10 @@ def test_replicate_says_what_it_takes_when_given_a_design(option, tmp_path, caps
     assert raised.value.code == 2
     said = capsys.readouterr().err
     assert said.count("\n") == 1 and f"{option[0]} cannot apply: replicate compares samples of independent" in said
-    assert "takes no weights, clusters or strata" in said and "split the file by cluster" in said
+    assert "takes no weights" in said and "fit each sample with 'fit' and its design options" in said
     # the help it points to says so too
     with pytest.raises(SystemExit):
         main(["replicate", "--help"])
     shown = " ".join(capsys.readouterr().out.split())
-    assert "Sampling designs: replicate takes no weights, clusters or strata" in shown
-    assert "split the file by cluster and give the parts as --calibration and --validation" in shown
+    assert "Sampling designs: replicate takes no weights (--weights is refused)" in shown
+    assert "unless --cluster names each row's cluster: whole clusters then go to each half" in shown

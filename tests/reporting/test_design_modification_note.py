@@ -1,8 +1,8 @@
-"""Modification indices under a sampling design (new-user trial s16): they are the normal-theory score tests of the
-weighted likelihood, and the first note under their table says that they leave the design out and are usually
-larger than design-based tests; checked here against Satorra's (1989) generalized score test as the invariance
-ladder computes it (workflows.invariance.robust_score_tests), on Holzinger & Swineford (1939) rows given a shared
-effect within invented clusters of six."""
+"""Modification indices under a sampling design: since s17 the design-based score tests (Satorra's 1989 generalized
+score test, assessment.robust_scores.robust_score_tests; tests/assessment/test_design_score_tests.py checks them), and
+the first note under their table says so (new-user trial s16 found normal-theory ones without a word); the
+normal-theory score tests of the weighted likelihood, which the design-based ones replaced, are larger with clustered
+answers, on Holzinger & Swineford (1939) rows given a shared effect within invented clusters of six."""
 
 from __future__ import annotations
 
@@ -24,15 +24,14 @@ def _clustered(hs_data):
     return data.assign(unit=unit, w=rng.uniform(0.5, 2, n), st=unit % 3, count=1 + np.arange(n) % 3)
 
 
-def test_the_indices_under_a_design_say_first_that_they_leave_it_out(hs_data):
+def test_the_indices_under_a_design_say_first_that_they_take_it_in(hs_data):
     data = _clustered(hs_data)
     fitted = cfa_tool.fit(THREE_FACTORS, data, weights="w", cluster="unit", strata="st", mi_threshold=0)
     note = modification_table(fitted).note
-    assert note.startswith("These indices do not take the sampling design (sampling weights, clusters and strata) "
-                           "into account")
-    assert "usually larger than design-based tests" in note and "refit with it freed" in note
+    assert note.startswith("These indices take the sampling design (sampling weights, clusters and strata) into "
+                           "account: each is a design-based score test")
     only = modification_table(cfa_tool.fit(THREE_FACTORS, data, cluster="unit", mi_threshold=0)).note
-    assert only.startswith("These indices do not take the sampling design (clusters) into account")
+    assert only.startswith("These indices take the sampling design (clusters) into account")
     # frequency weights are repeated rows: their score tests are the ordinary ones, and so is a fit without a design
     for plain in (cfa_tool.fit(THREE_FACTORS, data, weights="count", weight_kind="frequency", mi_threshold=0),
                   cfa_tool.fit(THREE_FACTORS, data, mi_threshold=0)):
@@ -40,14 +39,14 @@ def test_the_indices_under_a_design_say_first_that_they_leave_it_out(hs_data):
 
 
 def test_the_plain_indices_are_larger_than_the_design_based_score_tests(hs_data):
-    # what the note claims, against Satorra's (1989) generalized score test over the design-based meat
+    # why they were replaced: the weighted likelihood's normal-theory indices against Satorra's (1989) generalized score test over the design-based meat
     from cfa_tool.assessment.modification import modification_indices
     from cfa_tool.data.sample_design import DesignColumns, check_design
     from cfa_tool.language.checks import exogenous_factors
     from cfa_tool.language.parser import parse_model
     from cfa_tool.pipeline.continuous import FitOptions, estimate
     from cfa_tool.pipeline.inputs import moments_for
-    from cfa_tool.workflows.invariance import robust_score_tests
+    from cfa_tool.assessment.robust_scores import robust_score_tests
 
     spec = parse_model(THREE_FACTORS)
     columns = DesignColumns("w", "unit", None)
