@@ -476,18 +476,43 @@ def moments_with_gaps(values: np.ndarray, names: tuple[str, ...], source: str,
     return _incomplete_moments(values, tuple(names), source, source, None, len(values), weights)
 
 
-#: the fewest answers an item needs in a sample or group analysed by full-information ML: its intercept, loading and
-#: residual variance there rest on its answers, and two answers fit the intercept and loading exactly, leaving nothing
-#: for the residual variance (the information matrix is singular: hostile trial s16, case 12); an item with several
-#: loadings needs more, which the fit's identification check finds
+#: the fewest answers an item needs in a sample or group analysed by full-information ML whatever the model's size:
+#: its intercept, loading and residual variance there rest on its answers, and two answers fit the intercept and
+#: loading exactly, leaving nothing for the residual variance (the information matrix is singular: hostile trial s16,
+#: case 12); :func:`fewest_answers` raises it to one more than the variables analysed
 MIN_ANSWERS = 3
 
 
+def fewest_answers(variables: int) -> int:
+    """The fewest answers of an item that full-information ML accepts in a sample or group of ``variables`` variables
+    analysed: more than the variables, and at least :data:`MIN_ANSWERS`.  The saturated model, which the chi-square
+    compares the model with, holds the item's distribution given the other ``variables - 1``; it rests on the rows
+    that answer the item alone, and when they answer the others a regression on ``variables - 1`` items with an
+    intercept fits ``variables`` or fewer answers exactly (answers in general position), so the item's residual
+    variance given the others goes to zero and the likelihood has no maximum (the factored likelihood of Little &
+    Rubin 2002, ch. 7: the others' part and the item's regression on them; recalled from memory).  The EM iterations
+    may still stop at a point that is no maximum (re-check s17, N1: 3 answers of a group's 'clean' under the
+    12-item model gave a fit, reported as if it were one; 3 of a four-item group an identification failure naming
+    other parameters)."""
+    return max(MIN_ANSWERS, variables + 1)
+
+
+class TooFewAnswers(DataError):
+    """The refusal of an item answered fewer than :func:`fewest_answers` times (:func:`too_few_answers` its words),
+    holding the item (``item``), its answers (``answers``) and the variables analysed (``variables``), so that a
+    check can report it among its findings instead of stopping."""
+
+    def __init__(self, message: str, item: str, answers: int, variables: int):
+        super().__init__(message)
+        self.item, self.answers, self.variables = item, answers, variables
+
+
 def too_few_answers(name: str, answers: int, source: str, group: str | None = None,
-                    numbers: np.ndarray | None = None, naming: RowNaming = RowNaming.FILE_ROW) -> str:
-    """The one-line refusal of an item answered fewer than :data:`MIN_ANSWERS` times in a sample or group (``group``:
-    its words, '\'south\' of district', with ``source`` naming it already), naming the item, its answers and
-    their rows (``numbers``)."""
+                    numbers: np.ndarray | None = None, naming: RowNaming = RowNaming.FILE_ROW,
+                    variables: int = MIN_ANSWERS - 1) -> str:
+    """The one-line refusal of an item answered fewer than :func:`fewest_answers` times in a sample or group of
+    ``variables`` variables analysed (``group``: its words, '\'south\' of district', with ``source`` naming it
+    already), naming the item, its answers and their rows (``numbers``)."""
     from cfa_tool.data.kept_rows import rows_listed
 
     said = "no answer" if not answers else f"only {answers} answer{'s' if answers != 1 else ''}"
@@ -496,9 +521,16 @@ def too_few_answers(name: str, answers: int, source: str, group: str | None = No
     remedy = (f"take the item out of the model, leave this group out with a row filter ({Option.KEEP}), or join it "
               f"with another group by recoding the group column" if group is not None
               else "take the item out of the model, or analyse rows that answer it")
+    fewest = fewest_answers(variables)
+    if fewest == MIN_ANSWERS:
+        why = ("to estimate its intercept, loading and residual variance there (two answers fit the intercept and "
+               "loading exactly and leave nothing for the residual variance)")
+    else:
+        why = (f", more than the {variables} variables analysed: with fewer, a regression of the item on the other "
+               f"{variables - 1} can fit its answers exactly, and the likelihood of the saturated model, which the "
+               f"chi-square compares the model with, has no maximum")
     return (f"{source}: '{printable(name)}' has {said}{where}{rows}; full-information ML needs at least "
-            f"{MIN_ANSWERS} answers of an item{where} to estimate its intercept, loading and residual variance there "
-            f"(two answers fit the intercept and loading exactly and leave nothing for the residual variance): {remedy}")
+            f"{fewest} answers of an item{where}{'' if why.startswith(',') else ' '}{why}: {remedy}")
 
 
 def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int,
@@ -514,10 +546,10 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
         raise DataError(f"{source}: {n} row{'' if n == 1 else 's'} with any answer for {p} variables; the analysis needs more rows than variables")
     counts = (~np.isnan(data)).sum(axis=0)
     for j, c in enumerate(counts):
-        if c < MIN_ANSWERS:
-            raise DataError(too_few_answers(names[j], int(c), source, group,
-                                            None if numbers is None else numbers[answered][~np.isnan(data[:, j])],
-                                            naming))
+        if c < fewest_answers(p):
+            raise TooFewAnswers(too_few_answers(names[j], int(c), source, group,
+                                                None if numbers is None else numbers[answered][~np.isnan(data[:, j])],
+                                                naming, p), names[j], int(c), p)
     observed = ~np.isnan(data)
     together = observed.astype(float).T @ observed.astype(float)
     i, j = np.unravel_index(np.argmin(together), together.shape)

@@ -1991,7 +1991,7 @@ def _sparse_answers(spec: Spec, parts: list[tuple[str | None, np.ndarray]], sour
     estimated (or its failure has another cause, which the moments then report as a fit would).  Asked only when
     the moments could not be estimated (:func:`check`), so that every group that fails is named."""
     from cfa_tool.assessment.missingness import never_together, sparse_answers_problem
-    from cfa_tool.data.moments import moments_with_gaps
+    from cfa_tool.data.moments import TooFewAnswers, moments_with_gaps
 
     found = []
     for label, values in parts:
@@ -2005,6 +2005,11 @@ def _sparse_answers(spec: Spec, parts: list[tuple[str | None, np.ndarray]], sour
         except EstimationError:  # the EM iterations found no maximum (the answers given together are too few)
             found.append(sparse_answers_problem(values, spec.observed_names, "its EM iterations found no maximum of "
                                                 "the likelihood", label))
+        except TooFewAnswers as few:  # an item answered by no more rows than the variables (data.moments.fewest_answers)
+            found.append(sparse_answers_problem(
+                values, spec.observed_names, f"only {few.answers} row{'s' if few.answers != 1 else ''} answer "
+                f"'{printable(few.item)}', and it needs more answers than the {few.variables} variables analysed",
+                label))
         except DataError:  # another cause (a constant item, an exact combination): the moments name it, as for a fit
             continue
     return tuple(found)
