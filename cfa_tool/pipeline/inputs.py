@@ -21,7 +21,8 @@ from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_
 from cfa_tool.data.groups import SmallGroupsError, split_moments
 from cfa_tool.data.kept_rows import (RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
                                      unfinished_rows_note)
-from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes, nominal_items_note
+from cfa_tool.data.labels import (CODED_LABELS, label_notes, label_text, labelled_codes, nominal_items_note,
+                                  refuse_container_cells)
 from cfa_tool.data.matching import (answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges,
                                     chosen_columns)
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
@@ -267,6 +268,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     if not all(type(c) is str for c in labels):  # column labels as text (a renamed copy only when needed)
         frame = frame.set_axis(columns, axis=1)
     notes: list[str] = list(loaded.notes)
+    # a list or a dict in a group, design, id or filter column: refused as in an item column (re-check s17, N7)
+    refuse_container_cells(frame, [*(chosen or {}), *(f.column for f in filters if f.column is not None)])
     loaded, filter_notes = rows_kept(replace(loaded, frame=frame) if frame is not loaded.frame else loaded, filters)
     if halves:  # the halves were drawn from the rows the filters kept
         loaded = half_of(loaded, halves[0], data, sheet, spec.observed_names, keeps_gaps)
