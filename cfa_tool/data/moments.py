@@ -379,9 +379,11 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
     _check_combinations(cov / np.outer(sds, sds), names, source)
 
 
-def _check_combinations(corr: np.ndarray, names: tuple[str, ...], source: str, among: str = "") -> None:
+def _check_combinations(corr: np.ndarray, names: tuple[str, ...], source: str, among: str = "",
+                        cause: str = "") -> None:
     """Columns that are exact linear combinations of each other (a singular correlation matrix ``corr``) are an error
-    that names them; ``among`` says which rows the matrix is of, when not all."""
+    that names them; ``among`` says which rows the matrix is of, when not all; ``cause``, when given, the likelier
+    cause and what to try, instead of an exact combination of items ('one is the sum of others')."""
     # a column that is an exact combination of earlier ones has (next to) no variance left given them
     found = cholesky_log_det(corr)
     if found is not None and found[0].diagonal().min() ** 2 > 1e-8:
@@ -397,7 +399,7 @@ def _check_combinations(corr: np.ndarray, names: tuple[str, ...], source: str, a
         involved = [names[j] for j in np.argsort(-weights) if weights[j] > 0.1]
         raise DataError(
             f"{source}: the covariance matrix is singular: the columns {', '.join(repr(v) for v in involved)} are exact linear "
-            f"combinations of each other{among} (for example one is the sum of others); drop one of them"
+            f"combinations of each other{among}" + (cause or " (for example one is the sum of others); drop one of them")
         )
 
 
@@ -564,7 +566,8 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
         spread = whole.std(axis=0)
         if spread.min() > 0:
             _check_combinations(np.corrcoef(whole, rowvar=False), names, source,
-                                f" in the {len(whole)} rows that answer all {p} items")
+                                f" in the {len(whole)} rows that answer all {p} items",
+                                _few_rows_cause(counts, names, n, group))
     try:
         mu, sigma, _ = em_saturated(pattern_data(data, weights[answered] if weights is not None else None))
     except SingularCovariance as singular:  # a constant item or an exact combination: name them as complete rows do
@@ -596,6 +599,22 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
     return SampleMoments(tuple(names), sigma, mu, n, rows_read, rows_read - n, file_source, group, data,
                          numbers[answered] if numbers is not None else None,
                          unanswered_rows=numbers[~answered] if numbers is not None else None, row_naming=naming)
+
+
+def _few_rows_cause(counts: np.ndarray, names, rows: int, group) -> str:
+    """Why the rows that answer every item can be exact combinations of each other by chance: the least answered
+    item (``counts``: each item's answers among the ``rows`` analysed) answered by fewer than
+    :data:`FEW_TOGETHER_SHARE` of them leaves few such rows, whose few distinct answers line up easily (re-check
+    s17, N1: 5 of a group's 230 rows answered an item, and the refusal read as if items were sums of others); ''
+    otherwise."""
+    j = int(np.argmin(counts))
+    if counts[j] >= FEW_TOGETHER_SHARE * rows:
+        return ""
+    where = " in this group" if group is not None else ""
+    leave = (f", leave this group out with a row filter ({Option.KEEP})" if group is not None else "")
+    return (f", which so few rows can be by chance: only {int(counts[j])} of the {rows:,} rows{where} answer "
+            f"'{printable(names[j])}' (fewer than a tenth: a rule of thumb of this project). What to try: take "
+            f"'{printable(names[j])}' out of the model{leave}, or analyse rows that answer it")
 
 
 #: a pair of items answered together by fewer than this share of the rows analysed has its correlation (with

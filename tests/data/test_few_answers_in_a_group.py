@@ -138,3 +138,19 @@ def test_no_more_answers_than_variables_in_one_sample_are_refused_too():
     frame.loc[frame.index[12:], "clean"] = np.nan
     with pytest.raises(DataError, match=r"'clean' has only 12 answers .*; full-information ML needs at least 13"):
         cfa_tool.fit(MODEL, frame)
+
+
+def test_complete_rows_few_because_of_one_item_are_not_called_sums_of_others():
+    """5 answers of 'easy_transfer' in south (one more than the four items: accepted) leave 5 complete rows, whose
+    answers on a five-point scale happen to be exact combinations of each other (the rows drawn below, the re-check's
+    repro): the refusal names the few answers of that item as the likely cause, not items that sum others."""
+    frame = pd.read_csv(DATA)
+    south = frame.index[frame["district"] == "south"]
+    keep = np.random.default_rng(0).choice(south, 5, replace=False)
+    frame.loc[south.difference(keep), "easy_transfer"] = np.nan
+    with pytest.raises(DataError) as refused:
+        cfa_tool.fit(ONE_FACTOR, frame, group="district")
+    text = str(refused.value)
+    assert "in the 5 rows that answer all 4 items, which so few rows can be by chance" in text
+    assert "only 5 of the 230 rows in this group answer 'easy_transfer'" in text  # south's 230 rows, 5 kept above
+    assert "sum of others" not in text and "take 'easy_transfer' out of the model" in text
