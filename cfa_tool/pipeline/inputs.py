@@ -2125,8 +2125,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         if options.missing is not MissingData.FULL_INFORMATION or design is not None:
             raise
         parts, without = _group_parts(spec, frame, source, group, reference_group)
-        sparse = _sparse_answers(spec, parts, source)
-        if not sparse:  # another cause (a constant item, an exact combination): reported as a fit reports it
+        # an ordinal fit keeps rows with gaps pairwise (its moments checked above): no saturated model to estimate
+        sparse = () if ordinal_items else _sparse_answers(spec, parts, source)
+        if not sparse and not ordinal_items:  # another cause (a constant item, an exact combination): as a fit says it
             raise
         # the rows are reported, with the caution that a fit of them stops (no saturated model to estimate)
         groups, group_notes = _rows_answering(parts, without, frame, group)
