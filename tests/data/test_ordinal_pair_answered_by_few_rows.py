@@ -63,27 +63,31 @@ def test_the_pair_its_group_and_its_rows_are_named(tmp_path, answers, said):
     assert len(done.stderr.strip().splitlines()) == 1 and not out.exists()
 
 
-def test_listwise_deletion_is_offered_with_the_complete_rows_it_keeps():
-    """Without a pair answered by few rows, a correlation matrix that is not positive definite with gaps is still
-    offered listwise deletion, now with the number of complete rows it keeps: three pairs answered by different rows
-    (300 each) at correlations .9, .9 and -.9, which no one correlation matrix has, and 40 complete rows."""
-    from cfa_tool.data.polychoric import ordinal_moments
-
-    rng = np.random.default_rng(3)
+def three_pairs(seed: int, complete: int) -> pd.DataFrame:
+    """Three ordinal items whose pairs are answered by different rows (300 each) at correlations .9, .9 and -.9,
+    which no one correlation matrix has, and ``complete`` rows answering all three (independent answers)."""
+    rng = np.random.default_rng(seed)
     cuts = np.array([-1.0, -0.3, 0.3, 1.0])
 
     def pair(rho: float) -> np.ndarray:
         z = rng.multivariate_normal([0, 0], [[1, rho], [rho, 1]], size=300)
         return np.searchsorted(cuts, z).astype(float) + 1
 
-    codes = np.full((940, 3), np.nan)
+    codes = np.full((900 + complete, 3), np.nan)
     codes[:300, [0, 1]] = pair(0.9)
     codes[300:600, [1, 2]] = pair(0.9)
     codes[600:900, [0, 2]] = pair(-0.9)
-    codes[900:] = np.searchsorted(cuts, rng.normal(size=(40, 3))) + 1
-    frame = pd.DataFrame(codes, columns=["a", "b", "c"])
+    codes[900:] = np.searchsorted(cuts, rng.normal(size=(complete, 3))) + 1
+    return pd.DataFrame(codes, columns=["a", "b", "c"])
+
+
+def test_listwise_deletion_is_offered_with_the_complete_rows_it_keeps():
+    """Without a pair answered by few rows, a correlation matrix that is not positive definite with gaps is still
+    offered listwise deletion, now with the number of complete rows it keeps."""
+    from cfa_tool.data.polychoric import ordinal_moments
+
     with pytest.raises(DataError) as refused:
-        ordinal_moments(frame, ("a", "b", "c"), "<data frame>", pairwise=True)
+        ordinal_moments(three_pairs(3, 40), ("a", "b", "c"), "<data frame>", pairwise=True)
     text = str(refused.value)
     assert "not positive definite" in text and "rows analysed answer both" not in text
     assert "uses the 40 complete rows only" in text  # the 40 rows given every answer above
@@ -92,20 +96,8 @@ def test_listwise_deletion_is_offered_with_the_complete_rows_it_keeps():
 def test_listwise_deletion_is_not_offered_when_it_keeps_too_few_rows():
     from cfa_tool.data.polychoric import ordinal_moments
 
-    rng = np.random.default_rng(4)
-    cuts = np.array([-1.0, -0.3, 0.3, 1.0])
-
-    def pair(rho: float) -> np.ndarray:
-        z = rng.multivariate_normal([0, 0], [[1, rho], [rho, 1]], size=300)
-        return np.searchsorted(cuts, z).astype(float) + 1
-
-    codes = np.full((900, 3), np.nan)
-    codes[:300, [0, 1]] = pair(0.9)
-    codes[300:600, [1, 2]] = pair(0.9)
-    codes[600:900, [0, 2]] = pair(-0.9)
-    frame = pd.DataFrame(codes, columns=["a", "b", "c"])  # no complete row: listwise deletion keeps nothing
-    with pytest.raises(DataError) as refused:
-        ordinal_moments(frame, ("a", "b", "c"), "<data frame>", pairwise=True)
+    with pytest.raises(DataError) as refused:  # no complete row: listwise deletion keeps nothing
+        ordinal_moments(three_pairs(4, 0), ("a", "b", "c"), "<data frame>", pairwise=True)
     assert "not positive definite" in str(refused.value) and "listwise" not in str(refused.value)
 
 
