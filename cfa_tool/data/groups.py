@@ -136,7 +136,7 @@ def reference_rule(frame: pd.DataFrame, column: str, reference: str | None = Non
     :func:`default_reference` chose it."""
     if reference is not None:
         return ReferenceRule.GIVEN
-    present = list(dict.fromkeys(label_text(v) for v in frame[column].dropna().unique()))
+    present = [label for label in dict.fromkeys(group_keys(frame[column].dropna())) if label is not None]
     return default_reference(frame, column, present)[1]  # the branch the choice took, by the one rule
 
 

@@ -50,6 +50,25 @@ def label_text(value) -> str:
     return unicodedata.normalize("NFC", text.strip())
 
 
+def refuse_container_cells(frame: "pd.DataFrame", columns) -> None:
+    """Refuse a cell holding a list, a dict, a set or an array (what a data frame built in Python may hold, never a
+    file's cell) in any of ``columns`` of ``frame`` that it has: the group, cluster, strata, weights, id and row
+    filter columns, by the rule of the item columns (data.non_answers, which refuses them in the items): one line
+    naming the column and the row.  Such a cell is no label (a group named "['north']"), no weight, and no cluster
+    (a TypeError from hashing it, re-check s17, N7)."""
+    import numpy as np
+
+    from cfa_tool.data.non_answers import _refuse_containers  # the one rule and message of item columns
+
+    containers = (list, dict, set, np.ndarray)
+    for column in dict.fromkeys(columns):
+        if column not in frame.columns or frame[column].dtype != object:
+            continue
+        series = frame[column]
+        if any(isinstance(v, containers) for v in series.tolist()):
+            _refuse_containers(series, column)
+
+
 def _without_invisible(text: str) -> str:
     """``text`` without the format characters :func:`label_text` removes."""
     if not any(unicodedata.category(ch) == "Cf" for ch in text):

@@ -379,9 +379,11 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
     _check_combinations(cov / np.outer(sds, sds), names, source)
 
 
-def _check_combinations(corr: np.ndarray, names: tuple[str, ...], source: str, among: str = "") -> None:
+def _check_combinations(corr: np.ndarray, names: tuple[str, ...], source: str, among: str = "",
+                        cause: str = "") -> None:
     """Columns that are exact linear combinations of each other (a singular correlation matrix ``corr``) are an error
-    that names them; ``among`` says which rows the matrix is of, when not all."""
+    that names them; ``among`` says which rows the matrix is of, when not all; ``cause``, when given, the likelier
+    cause and what to try, instead of an exact combination of items ('one is the sum of others')."""
     # a column that is an exact combination of earlier ones has (next to) no variance left given them
     found = cholesky_log_det(corr)
     if found is not None and found[0].diagonal().min() ** 2 > 1e-8:
@@ -397,7 +399,7 @@ def _check_combinations(corr: np.ndarray, names: tuple[str, ...], source: str, a
         involved = [names[j] for j in np.argsort(-weights) if weights[j] > 0.1]
         raise DataError(
             f"{source}: the covariance matrix is singular: the columns {', '.join(repr(v) for v in involved)} are exact linear "
-            f"combinations of each other{among} (for example one is the sum of others); drop one of them"
+            f"combinations of each other{among}" + (cause or " (for example one is the sum of others); drop one of them")
         )
 
 
@@ -476,18 +478,43 @@ def moments_with_gaps(values: np.ndarray, names: tuple[str, ...], source: str,
     return _incomplete_moments(values, tuple(names), source, source, None, len(values), weights)
 
 
-#: the fewest answers an item needs in a sample or group analysed by full-information ML: its intercept, loading and
-#: residual variance there rest on its answers, and two answers fit the intercept and loading exactly, leaving nothing
-#: for the residual variance (the information matrix is singular: hostile trial s16, case 12); an item with several
-#: loadings needs more, which the fit's identification check finds
+#: the fewest answers an item needs in a sample or group analysed by full-information ML whatever the model's size:
+#: its intercept, loading and residual variance there rest on its answers, and two answers fit the intercept and
+#: loading exactly, leaving nothing for the residual variance (the information matrix is singular: hostile trial s16,
+#: case 12); :func:`fewest_answers` raises it to one more than the variables analysed
 MIN_ANSWERS = 3
 
 
+def fewest_answers(variables: int) -> int:
+    """The fewest answers of an item that full-information ML accepts in a sample or group of ``variables`` variables
+    analysed: more than the variables, and at least :data:`MIN_ANSWERS`.  The saturated model, which the chi-square
+    compares the model with, holds the item's distribution given the other ``variables - 1``; it rests on the rows
+    that answer the item alone, and when they answer the others a regression on ``variables - 1`` items with an
+    intercept fits ``variables`` or fewer answers exactly (answers in general position), so the item's residual
+    variance given the others goes to zero and the likelihood has no maximum (the factored likelihood of Little &
+    Rubin 2002, ch. 7: the others' part and the item's regression on them; recalled from memory).  The EM iterations
+    may still stop at a point that is no maximum (re-check s17, N1: 3 answers of a group's 'clean' under the
+    12-item model gave a fit, reported as if it were one; 3 of a four-item group an identification failure naming
+    other parameters)."""
+    return max(MIN_ANSWERS, variables + 1)
+
+
+class TooFewAnswers(DataError):
+    """The refusal of an item answered fewer than :func:`fewest_answers` times (:func:`too_few_answers` its words),
+    holding the item (``item``), its answers (``answers``) and the variables analysed (``variables``), so that a
+    check can report it among its findings instead of stopping."""
+
+    def __init__(self, message: str, item: str, answers: int, variables: int):
+        super().__init__(message)
+        self.item, self.answers, self.variables = item, answers, variables
+
+
 def too_few_answers(name: str, answers: int, source: str, group: str | None = None,
-                    numbers: np.ndarray | None = None, naming: RowNaming = RowNaming.FILE_ROW) -> str:
-    """The one-line refusal of an item answered fewer than :data:`MIN_ANSWERS` times in a sample or group (``group``:
-    its words, '\'south\' of district', with ``source`` naming it already), naming the item, its answers and
-    their rows (``numbers``)."""
+                    numbers: np.ndarray | None = None, naming: RowNaming = RowNaming.FILE_ROW,
+                    variables: int = MIN_ANSWERS - 1) -> str:
+    """The one-line refusal of an item answered fewer than :func:`fewest_answers` times in a sample or group of
+    ``variables`` variables analysed (``group``: its words, '\'south\' of district', with ``source`` naming it
+    already), naming the item, its answers and their rows (``numbers``)."""
     from cfa_tool.data.kept_rows import rows_listed
 
     said = "no answer" if not answers else f"only {answers} answer{'s' if answers != 1 else ''}"
@@ -496,9 +523,16 @@ def too_few_answers(name: str, answers: int, source: str, group: str | None = No
     remedy = (f"take the item out of the model, leave this group out with a row filter ({Option.KEEP}), or join it "
               f"with another group by recoding the group column" if group is not None
               else "take the item out of the model, or analyse rows that answer it")
+    fewest = fewest_answers(variables)
+    if fewest == MIN_ANSWERS:
+        why = ("to estimate its intercept, loading and residual variance there (two answers fit the intercept and "
+               "loading exactly and leave nothing for the residual variance)")
+    else:
+        why = (f", more than the {variables} variables analysed: with fewer, a regression of the item on the other "
+               f"{variables - 1} can fit its answers exactly, and the likelihood of the saturated model, which the "
+               f"chi-square compares the model with, has no maximum")
     return (f"{source}: '{printable(name)}' has {said}{where}{rows}; full-information ML needs at least "
-            f"{MIN_ANSWERS} answers of an item{where} to estimate its intercept, loading and residual variance there "
-            f"(two answers fit the intercept and loading exactly and leave nothing for the residual variance): {remedy}")
+            f"{fewest} answers of an item{where}{'' if why.startswith(',') else ' '}{why}: {remedy}")
 
 
 def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int,
@@ -514,10 +548,10 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
         raise DataError(f"{source}: {n} row{'' if n == 1 else 's'} with any answer for {p} variables; the analysis needs more rows than variables")
     counts = (~np.isnan(data)).sum(axis=0)
     for j, c in enumerate(counts):
-        if c < MIN_ANSWERS:
-            raise DataError(too_few_answers(names[j], int(c), source, group,
-                                            None if numbers is None else numbers[answered][~np.isnan(data[:, j])],
-                                            naming))
+        if c < fewest_answers(p):
+            raise TooFewAnswers(too_few_answers(names[j], int(c), source, group,
+                                                None if numbers is None else numbers[answered][~np.isnan(data[:, j])],
+                                                naming, p), names[j], int(c), p)
     observed = ~np.isnan(data)
     together = observed.astype(float).T @ observed.astype(float)
     i, j = np.unravel_index(np.argmin(together), together.shape)
@@ -532,7 +566,8 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
         spread = whole.std(axis=0)
         if spread.min() > 0:
             _check_combinations(np.corrcoef(whole, rowvar=False), names, source,
-                                f" in the {len(whole)} rows that answer all {p} items")
+                                f" in the {len(whole)} rows that answer all {p} items",
+                                _few_rows_cause(counts, names, n, group))
     try:
         mu, sigma, _ = em_saturated(pattern_data(data, weights[answered] if weights is not None else None))
     except SingularCovariance as singular:  # a constant item or an exact combination: name them as complete rows do
@@ -564,6 +599,22 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
     return SampleMoments(tuple(names), sigma, mu, n, rows_read, rows_read - n, file_source, group, data,
                          numbers[answered] if numbers is not None else None,
                          unanswered_rows=numbers[~answered] if numbers is not None else None, row_naming=naming)
+
+
+def _few_rows_cause(counts: np.ndarray, names, rows: int, group) -> str:
+    """Why the rows that answer every item can be exact combinations of each other by chance: the least answered
+    item (``counts``: each item's answers among the ``rows`` analysed) answered by fewer than
+    :data:`FEW_TOGETHER_SHARE` of them leaves few such rows, whose few distinct answers line up easily (re-check
+    s17, N1: 5 of a group's 230 rows answered an item, and the refusal read as if items were sums of others); ''
+    otherwise."""
+    j = int(np.argmin(counts))
+    if counts[j] >= FEW_TOGETHER_SHARE * rows:
+        return ""
+    where = " in this group" if group is not None else ""
+    leave = (f", leave this group out with a row filter ({Option.KEEP})" if group is not None else "")
+    return (f", which so few rows can be by chance: only {int(counts[j])} of the {rows:,} rows{where} answer "
+            f"'{printable(names[j])}' (fewer than a tenth: a rule of thumb of this project). What to try: take "
+            f"'{printable(names[j])}' out of the model{leave}, or analyse rows that answer it")
 
 
 #: a pair of items answered together by fewer than this share of the rows analysed has its correlation (with

@@ -447,14 +447,24 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         if mean_if:  # the same influence functions, with those of the continuous items' means and variances
             mixed = np.hstack(threshold_if + [np.column_stack(mean_if), np.column_stack(variance_if), influence])
             mixed_gamma = mixed.T @ mixed / n
+    sparse = _sparse_pair_words(frame, keep, present, names, pair_counts) if pairwise else None
     near = np.abs(R - np.eye(p)) > NEAR_DUPLICATE
     if near.any():
         i, j = np.argwhere(np.tril(near, -1))[0]
+        if sparse is not None and sparse.pair == {names[i], names[j]}:  # two rows agreeing are no near duplicates
+            raise DataError(f"{source}{where}: items '{printable(names[j])}' and '{printable(names[i])}' correlate "
+                            f"{R[i, j]:.4f}, yet {sparse.words}, which says nothing of answers given alike"
+                            f"{sparse.remedy(bool(where))}")
         raise DataError(f"{source}{where}: items '{printable(names[j])}' and '{printable(names[i])}' correlate "
                         f"{R[i, j]:.4f}: they give (nearly) the same answers, so one adds nothing and the correlation "
                         f"matrix is singular; drop one of them")
+    if np.linalg.eigvalsh(R)[0] <= 1e-8 and sparse is not None:  # the likely cause: a pair's correlation from few rows
+        raise DataError(f"{source}{where}: the polychoric correlation matrix is not positive definite: "
+                        f"{sparse.words}, and need not fit with the other correlations, each from other rows"
+                        f"{sparse.remedy(bool(where))}")
     if np.linalg.eigvalsh(R)[0] <= 1e-8:
-        gaps = pairwise and not present.all()
+        complete = int(present.all(axis=1).sum())
+        gaps = pairwise and not present.all() and complete > p  # listwise deletion keeps enough rows to work
         raise DataError(f"{source}{where}: the polychoric correlation matrix is not positive definite; "
                         + (f"categories answered by very few rows: {_rare_listed(rare)} (merge such a category with "
                            f"its neighbour in a copy of the data (answers recorded as words: an 'answers' statement "
@@ -463,12 +473,54 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                            if rare else
                            "some items may be near duplicates or some categories nearly empty")
                         + ("; with missing answers, correlations from different rows need not fit together "
-                           f"({Option.INCOMPLETE_ROWS.given('listwise')} uses the complete rows only)" if gaps else ""))
+                           f"({Option.INCOMPLETE_ROWS.given('listwise')} uses the {complete:,} complete rows only)"
+                           if gaps else ""))
     n_obs = int(round(total)) if design is not None and design.kind is WeightKind.FREQUENCY else n
     return OrdinalMoments(tuple(names), n_obs, len(frame), len(frame) - n, source, tuple(categories), tuple(thresholds),
                           R, gamma, codes, means, sds, frozenset(continuous), joint_gamma,
                           pair_counts if pairwise else None, rows_design,
                           joint if rows_design is not None else None, mixed_gamma)
+
+
+@dataclass(frozen=True)
+class _SparsePair:
+    """The pair of ordinal items answered together by the fewest rows, when fewer than
+    data.moments.FEW_TOGETHER_SHARE of the rows analysed answer it (pairwise present rows): its words in a refusal."""
+
+    pair: set
+    words: str
+    first: str
+    second: str
+
+    def remedy(self, in_group: bool) -> str:
+        """What works: one item out, the group out, or rows that answer both (listwise deletion would keep at most
+        the few rows that answer both, so it is not offered)."""
+        group = f", leave this group out with a row filter ({Option.KEEP})" if in_group else ""
+        return (f". What to try: take '{self.first}' or '{self.second}' out of the model{group}, or analyse rows "
+                f"that answer both")
+
+
+def _sparse_pair_words(frame: pd.DataFrame, keep: np.ndarray, present: np.ndarray, names: tuple[str, ...],
+                       pair_counts: np.ndarray) -> _SparsePair | None:
+    """The pair of items fewest of the rows analysed (``present``: those rows x items, answered or not; ``keep``:
+    which rows of ``frame`` they are) answer together, when fewer than data.moments.FEW_TOGETHER_SHARE of them do
+    (re-check s17, N2: 2 of a group's 230 rows answered both items of a pair, and the refusal blamed nearly empty
+    categories and offered listwise deletion, which leaves those 2 rows); None otherwise."""
+    from cfa_tool.data.kept_rows import row_naming, rows_listed
+    from cfa_tool.data.moments import pairs_answered_together
+
+    found = pairs_answered_together(present, names)
+    if not found:
+        return None
+    a, b, both = found[0]
+    i, j = names.index(a), names.index(b)
+    rows = row_numbers(frame)[keep][present[:, i] & present[:, j]]
+    more = f" ({len(found) - 1} more such pair{'s' if len(found) > 2 else ''})" if len(found) > 1 else ""
+    first, second = printable(a), printable(b)
+    words = (f"only {both} ({rows_listed(rows, naming=row_naming(frame))}) of the {len(present):,} rows analysed "
+             f"answer both '{first}' and '{second}'{more}, so their correlation rests on those rows (fewer than a "
+             f"tenth of the rows: a rule of thumb of this project)")
+    return _SparsePair({a, b}, words, first, second)
 
 
 def category_count_refusal(source: str, where: str, name: str, levels) -> str | None:

@@ -466,10 +466,14 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             # a group weighted out is a caution of the fit, first (pipeline.inputs.odd_value_problems)
     for what, name in (("cluster", columns.cluster), ("stratum", columns.strata)):
         if name is not None:
-            absent = frame[name].isna().to_numpy()
+            absent = _labels(frame[name]).isna().to_numpy()
             if absent.any():
-                raise DataError(f"{source}: column '{printable(name)}', {row_of(frame, rows[np.argmax(absent)])}: no {what} "
-                                f"given; every row needs one (a row filter, {Option.KEEP}, can leave such rows out)")
+                first = int(np.argmax(absent))
+                cell = frame[name].iloc[first]
+                looks = "" if pd.isna(cell) else f" (the cell holds only {_blank_words(str(cell))}, so it looks empty)"
+                raise DataError(f"{source}: column '{printable(name)}', {row_of(frame, rows[first])}: no {what} "
+                                f"given{looks}; every row needs one (a row filter, {Option.KEEP}, can leave such rows "
+                                f"out)")
     if columns.cluster is not None and columns.strata is not None:
         pairs = pd.DataFrame({columns.cluster: _labels(frame[columns.cluster]),
                               columns.strata: _labels(frame[columns.strata])}).drop_duplicates()
@@ -486,7 +490,7 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
                             f"about 30 or more to be trusted); remove the cluster column or give the right one")
     if columns.cluster is not None and group is not None and shared_cluster(frame, columns, group) is None:
         # the groups are independent samples, each with its own clusters: each group needs two of them
-        labelled = frame.loc[frame[group].notna()]
+        labelled = frame.loc[_labels(frame[group]).notna().to_numpy()]  # rows with a group (a blank label is none)
         per_group = _labels(labelled[columns.cluster]).groupby(_labels(labelled[group]).to_numpy()).nunique()
         single = per_group[per_group < 2]
         if len(single):
@@ -507,7 +511,7 @@ def shared_cluster(frame: pd.DataFrame, columns: DesignColumns, group: str | Non
     """The first cluster with rows in more than one group (None when every cluster lies within one group)."""
     if columns.cluster is None or group is None:
         return None
-    labelled = frame.loc[frame[group].notna()]
+    labelled = frame.loc[_labels(frame[group]).notna().to_numpy()]  # rows with a group (a blank label is none)
     pairs = pd.DataFrame({columns.cluster: _labels(labelled[columns.cluster]),
                           group: _labels(labelled[group])}).drop_duplicates()
     shared = pairs[columns.cluster].duplicated()
@@ -572,10 +576,26 @@ def weighted_out_words(gone: list[tuple[str, int]], group: str, weights: str) ->
 
 def _labels(column: pd.Series) -> pd.Series:
     """A column of cluster, stratum or group names read as labels are read everywhere (spaces at the ends and
-    Unicode forms ignored; cfa_tool.data.labels), missing values kept missing."""
+    Unicode forms ignored; cfa_tool.data.labels), missing values kept missing, and a cell of spaces and invisible
+    format characters alone (a zero-width space) missing too, as a group column reads it (data.groups.group_keys:
+    the data file's reader reads a cell of spaces as empty and leaves the other as text; re-check s17, G1: a
+    cluster named '')."""
     from cfa_tool.data.labels import label_text
 
-    return column.map({v: label_text(v) for v in pd.unique(column.dropna())})  # each different name once
+    return column.map({v: label_text(v) or None for v in pd.unique(column.dropna())})  # each different name once
+
+
+def _blank_words(text: str) -> str:
+    """What a cell that reads as no label holds: 'spaces', 'invisible format characters (U+200B ZERO WIDTH SPACE)'."""
+    import unicodedata
+
+    from cfa_tool.data.labels import invisible_characters
+
+    found = invisible_characters(text)
+    if not found:
+        return "spaces"
+    named = ", ".join(f"U+{ord(ch):04X} {unicodedata.name(ch, 'UNNAMED CHARACTER')}" for ch in found)
+    return f"invisible format characters ({named})" + (" and spaces" if text.strip(found) else "")
 
 
 def _data_rows(frame: pd.DataFrame) -> np.ndarray:

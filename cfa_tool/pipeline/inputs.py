@@ -21,7 +21,8 @@ from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_
 from cfa_tool.data.groups import SmallGroupsError, split_moments
 from cfa_tool.data.kept_rows import (RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
                                      unfinished_rows_note)
-from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes, nominal_items_note
+from cfa_tool.data.labels import (CODED_LABELS, label_notes, label_text, labelled_codes, nominal_items_note,
+                                  refuse_container_cells)
 from cfa_tool.data.matching import (answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges,
                                     chosen_columns)
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
@@ -267,6 +268,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     if not all(type(c) is str for c in labels):  # column labels as text (a renamed copy only when needed)
         frame = frame.set_axis(columns, axis=1)
     notes: list[str] = list(loaded.notes)
+    # a list or a dict in a group, design, id or filter column: refused as in an item column (re-check s17, N7)
+    refuse_container_cells(frame, [*(chosen or {}), *(f.column for f in filters if f.column is not None)])
     loaded, filter_notes = rows_kept(replace(loaded, frame=frame) if frame is not loaded.frame else loaded, filters)
     if halves:  # the halves were drawn from the rows the filters kept
         loaded = half_of(loaded, halves[0], data, sheet, spec.observed_names, keeps_gaps)
@@ -856,7 +859,7 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     if block is None and items:
         block = item_values(frame, tuple(items))
     elif block is not None and frame is not loaded.frame:
-        block = block[loaded.frame[group].notna().to_numpy()]  # the rows _labelled keeps
+        block = block[_has_group(loaded.frame, group)]  # the rows _labelled keeps
     found = copied_rows(frame, row_numbers(frame), block)
     if found is None:
         return ()
@@ -1389,10 +1392,17 @@ def _labelled(frame: pd.DataFrame, group: str | None) -> pd.DataFrame:
     """The rows analysed: with groups, those with a group label (the others are left out, with a note)."""
     if group is None or group not in frame.columns:
         return frame
+    labelled = _has_group(frame, group)
+    return frame if labelled.all() else frame.loc[labelled]
+
+
+def _has_group(frame: pd.DataFrame, group: str) -> np.ndarray:
+    """Which rows of ``frame`` have a label in the group column, by the one rule of groups (data.groups.group_keys:
+    a cell of invisible characters alone has none; re-check s17: such a row's gaps chose full-information ML for
+    complete rows analysed)."""
     from cfa_tool.data.groups import group_keys
 
-    labelled = group_keys(frame[group]).notna().to_numpy()  # a cell of invisible characters alone has no label
-    return frame if labelled.all() else frame.loc[labelled]
+    return group_keys(frame[group]).notna().to_numpy()
 
 
 def design_test(fit_options, design: DesignColumns):
@@ -1575,7 +1585,7 @@ def helpers_can_apply(fit_options, frame: pd.DataFrame, names: tuple[str, ...], 
     that answers no item but a helper counts: it enters the helpers' part of the likelihood (:func:`with_helpers`)."""
     gap = analysed_gaps(fit_options, frame, names, values)
     if group is not None and group in frame.columns:
-        gap &= frame[group].notna().to_numpy()
+        gap &= _has_group(frame, group)
     if not gap.any():
         raise OptionError(f"the model's items have no missing answers in the rows analysed, so missing-data helpers "
                           f"({Option.MISSING_HELPERS}) change nothing: with complete rows the estimates, standard "
@@ -1669,7 +1679,7 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
     gap = analysed_gaps(fit_options, frame, names, values)
     rows = len(frame)
     if group is not None and group in frame.columns:
-        labelled = frame[group].notna().to_numpy()
+        labelled = _has_group(frame, group)
         gap &= labelled
         rows = int(labelled.sum())
     gaps = int(gap.sum())
@@ -2010,7 +2020,7 @@ def _sparse_answers(spec: Spec, parts: list[tuple[str | None, np.ndarray]], sour
     estimated (or its failure has another cause, which the moments then report as a fit would).  Asked only when
     the moments could not be estimated (:func:`check`), so that every group that fails is named."""
     from cfa_tool.assessment.missingness import never_together, sparse_answers_problem
-    from cfa_tool.data.moments import moments_with_gaps
+    from cfa_tool.data.moments import TooFewAnswers, moments_with_gaps
 
     found = []
     for label, values in parts:
@@ -2024,6 +2034,11 @@ def _sparse_answers(spec: Spec, parts: list[tuple[str | None, np.ndarray]], sour
         except EstimationError:  # the EM iterations found no maximum (the answers given together are too few)
             found.append(sparse_answers_problem(values, spec.observed_names, "its EM iterations found no maximum of "
                                                 "the likelihood", label))
+        except TooFewAnswers as few:  # an item answered by no more rows than the variables (data.moments.fewest_answers)
+            found.append(sparse_answers_problem(
+                values, spec.observed_names, f"only {few.answers} row{'s' if few.answers != 1 else ''} answer "
+                f"'{printable(few.item)}', and it needs more answers than the {few.variables} variables analysed",
+                label))
         except DataError:  # another cause (a constant item, an exact combination): the moments name it, as for a fit
             continue
     return tuple(found)
@@ -2129,8 +2144,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         if options.missing is not MissingData.FULL_INFORMATION or design is not None:
             raise
         parts, without = _group_parts(spec, frame, source, group, reference_group)
-        sparse = _sparse_answers(spec, parts, source)
-        if not sparse:  # another cause (a constant item, an exact combination): reported as a fit reports it
+        # an ordinal fit keeps rows with gaps pairwise (its moments checked above): no saturated model to estimate
+        sparse = () if ordinal_items else _sparse_answers(spec, parts, source)
+        if not sparse and not ordinal_items:  # another cause (a constant item, an exact combination): as a fit says it
             raise
         # the rows are reported, with the caution that a fit of them stops (no saturated model to estimate)
         groups, group_notes = _rows_answering(parts, without, frame, group)

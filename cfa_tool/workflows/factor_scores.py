@@ -1565,9 +1565,11 @@ def _unknown_groups(group_of_row: np.ndarray, labels, group: str, source: str) -
 
 
 def _group_keys(frame: pd.DataFrame, group: str) -> np.ndarray:
-    from cfa_tool.data.labels import label_text
+    """Each row's group by the one rule the fit reads its groups by (data.groups.group_keys: a cell of spaces or
+    invisible format characters alone is no group, not a group named ''; re-check s17, G2)."""
+    from cfa_tool.data.groups import group_keys
 
-    return frame[group].map(lambda v: None if pd.isna(v) else label_text(v)).to_numpy(object)
+    return group_keys(frame[group]).to_numpy(object)
 
 
 @dataclass(frozen=True)

@@ -15,7 +15,7 @@ import pytest
 import cfa_tool
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.cli import main
-from cfa_tool.errors import DataError, EstimationError
+from cfa_tool.errors import DataError
 
 
 def _never_together() -> pd.DataFrame:
@@ -51,11 +51,14 @@ def test_a_pair_never_answered_together_is_a_caution_of_check_and_stops_the_fit(
 
 def test_answers_too_sparse_for_em_are_a_caution_with_the_least_answered_pair(tmp_path, capsys):
     data = _one_pair_per_row()
-    with pytest.raises(EstimationError, match="saturated model"):
+    # each item answered by 5 rows, by construction: no more than the 6 variables (data.moments.fewest_answers; re-check
+    # s17), a data problem (exit 2) named before estimation
+    with pytest.raises(DataError, match="'x1' has only 5 answers .*needs at least 7 answers"):
         cfa_tool.fit("factor f: x1..x6\n", data)
     found = cfa_tool.check("factor f: x1..x6\n", data)
     sparse, = [p for p in found.problems if p.kind is ProblemKind.SPARSE_ANSWERS]
     assert sparse.value == 1  # each pair answered together by one row, by construction
+    assert "(only 5 rows answer 'x1', and it needs more answers than the 6 variables analysed)" in sparse.explanation
     assert ("the fewest rows answering a pair of items are 1 ('x1' and 'x2'), and 0 of the 15 rows answer all 6 "
             "items") in sparse.explanation
     path, model = tmp_path / "pairs.csv", tmp_path / "m.cfa"
