@@ -345,44 +345,78 @@ def column_role(name: str) -> str | None:
     return None
 
 
-#: a column whose values look like a grouping or a record (unlike_the_items) stays an item when it correlates this
-#: much (in absolute value) with one of the items: it varies with the answers, as an answer on a wider scale does
-#: (a 0-10 'recommend' question among items of 1 to 5), while a grade, a year or a school's number has no such
-#: relation.  A rule of thumb of this project: .30 is the loading commonly taken as salient, the draft's threshold
+#: a column whose values are not answers on the items' scale (unlike_the_items: a grouping or a record, a count of
+#: years, an amount) stays an item when it correlates this much (in absolute value) with one of the items: it varies
+#: with the answers, as an answer on a wider scale does (a 0-10 'recommend' question among items of 1 to 5), while a
+#: grade, a year, a school's number or the years someone has worked somewhere has no such relation.  A rule of thumb
+#: of this project: .30 is the loading commonly taken as salient, the draft's threshold
 #: (exploration.draft.DEFAULT_THRESHOLD), not a published cutoff for this purpose
 RELATED_TO_THE_ITEMS = 0.30
 
 
-def unlike_the_items(frame: pd.DataFrame, columns) -> tuple[list[tuple[str, float, float]], tuple[float, float] | None]:
-    """The columns among ``columns`` (of numbers) that look like a grouping or a record rather than answers: few
-    whole values (at most data.polychoric.MAX_CATEGORIES), none as low as the answer scale that most of ``columns``
-    share begins (the lowest and highest value more than half of them hold, such as 1 to 4) and most of them above
-    its end, and no relation to the items (no correlation of RELATED_TO_THE_ITEMS or more, in absolute value, with
-    any of the other columns, each from the rows that answered both): a grade of 5 to 9 among items answered 1 to 4,
-    a year, a school's number.  A column that reaches the scale's low end stays an item (answered 0 to 10 or 1 to 7
-    among items of 1 to 5), as does one mostly on the scale (2 to 6) and one whose answers go with the items' (a
-    0-10 'recommend' question answered 3 to 10).  Returns [(column, lowest, highest)] and the shared scale (None
-    when no scale is shared by most columns: then no column is left out by this rule)."""
+@dataclass(frozen=True)
+class UnlikeTheItems:
+    """The columns that unlike_the_items finds are not answers on the scale most columns share: ``groupings``
+    [(column, lowest, highest)], a few whole values above the scale (a grade, a year, a school's number);
+    ``off_scale`` [(column, lowest, highest, fractions)], values no answer on the scale takes (mostly fractions, with
+    ``fractions`` True, or far more whole values over a far wider range: years of service, an income); ``scale``,
+    the lowest and highest value most columns hold, or None when no scale is shared (nothing is then left out)."""
+
+    groupings: tuple[tuple[str, float, float], ...] = ()
+    off_scale: tuple[tuple[str, float, float, bool], ...] = ()
+    scale: tuple[float, float] | None = None
+
+    @property
+    def columns(self) -> tuple[str, ...]:
+        return tuple(f[0] for f in self.groupings) + tuple(f[0] for f in self.off_scale)
+
+
+def unlike_the_items(frame: pd.DataFrame, columns, others=()) -> UnlikeTheItems:
+    """The columns among ``columns`` (of numbers) whose values are not answers on the answer scale that most of
+    ``columns`` share (the lowest and highest whole value more than half of them hold, such as 1 to 4), and that have
+    no relation to the items (no correlation of RELATED_TO_THE_ITEMS or more, in absolute value, with any of the
+    other columns or of ``others``, further item columns such as answers recorded as words, each correlation from
+    the rows that answered both).  Two kinds: groupings or records, few whole values (at most
+    data.polychoric.MAX_CATEGORIES), none as low as the scale begins and most of them above its end (a grade of 5 to
+    9 among items answered 1 to 4, a year, a school's number); and values off the scale, most of the answered cells
+    fractions (years of service as 0.5 to 30.0), or more whole values than MAX_CATEGORIES over a range more than twice
+    the scale's (an income, a year of birth).  A column that reaches the scale's low end with few whole values stays
+    an item (answered 0 to 10 or 1 to 7 among items of 1 to 5), as does one mostly on the scale (2 to 6), an item
+    with a few missing-value codes such as 99 among its answers (few whole values), one with a fraction in some cells,
+    and one whose answers go with the items' (a 0-10 'recommend' question answered 3 to 10)."""
     from collections import Counter
 
     from cfa_tool.data.polychoric import MAX_CATEGORIES
 
-    distinct = {}
-    for c in columns:
-        values = np.unique(pd.to_numeric(frame[c], errors="coerce").dropna().to_numpy(dtype=float))
-        if len(values) and np.all(values == np.round(values)):
-            distinct[c] = values
-    shared = Counter((float(v[0]), float(v[-1])) for v in distinct.values()).most_common(1)
+    values = {c: pd.to_numeric(frame[c], errors="coerce").dropna().to_numpy(dtype=float) for c in columns}
+    distinct = {c: np.unique(v) for c, v in values.items()}
+    whole = {c: v for c, v in distinct.items() if len(v) and np.all(v == np.round(v))}
+    shared = Counter((float(v[0]), float(v[-1])) for v in whole.values()).most_common(1)
     if not shared or shared[0][1] * 2 <= len(columns):
-        return [], None
+        return UnlikeTheItems()
     (low, high), _ = shared[0]
-    found = [(c, float(v[0]), float(v[-1])) for c, v in distinct.items() if len(v) <= MAX_CATEGORIES
-             and v[0] > low and 2 * int((v > high).sum()) > len(v)]
+    groupings = [(c, float(v[0]), float(v[-1])) for c, v in whole.items() if len(v) <= MAX_CATEGORIES
+                 and v[0] > low and 2 * int((v > high).sum()) > len(v)]
+    off_scale = []
+    for c, v in distinct.items():
+        if len(v) < 2 or c in {f[0] for f in groupings}:
+            continue
+        fractions = 2 * int((values[c] != np.round(values[c])).sum()) > len(values[c])
+        wide = len(v) > MAX_CATEGORIES and v[-1] - v[0] > 2 * (high - low)
+        if fractions or wide:
+            off_scale.append((c, float(v[0]), float(v[-1]), bool(fractions)))
+    found = [f[0] for f in groupings] + [f[0] for f in off_scale]
     if found:
-        items = [c for c in columns if c not in {f[0] for f in found}]
-        related = _largest_correlations(frame, [f[0] for f in found], items)
-        found = [f for f, r in zip(found, related) if not r >= RELATED_TO_THE_ITEMS]
-    return found, (low, high)
+        items = [c for c in columns if c not in found] + [c for c in others if c not in found]
+        related = dict(zip(found, _largest_correlations(frame, found, items)))
+        groupings = [f for f in groupings if not related[f[0]] >= RELATED_TO_THE_ITEMS]
+        off_scale = [f for f in off_scale if not related[f[0]] >= RELATED_TO_THE_ITEMS]
+    return UnlikeTheItems(tuple(groupings), tuple(off_scale), (low, high))
+
+
+def _count_values(column: pd.Series) -> int:
+    """How many different numbers a column holds (its cells read as numbers, gaps aside)."""
+    return int(pd.to_numeric(column, errors="coerce").dropna().nunique())
 
 
 def _largest_correlations(frame: pd.DataFrame, columns: list[str], items: list[str]) -> np.ndarray:
@@ -503,7 +537,8 @@ def _word_columns(frame: pd.DataFrame, numeric: tuple[str, ...], codings: tuple)
 
 def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str, ...], str, tuple[str, ...]]:
     """The items explored by default (every column holding numbers, or the words of the answers file, except row
-    numbers, ids, codes of categories and columns named for another part) and the note that says which and why."""
+    numbers, ids, codes of categories, columns named for another part and columns whose values are not answers on
+    the items' scale, unlike_the_items) and the note that says which and why."""
     from cfa_tool.data.labels import labelled_codes, own_labels
 
     frame, source = first.frame.set_axis(columns, axis=1), first.source
@@ -513,8 +548,8 @@ def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str
     coded = [c for c in labelled_codes(frame, first.value_labels) if c in numeric and c not in ids + roles
              and own_labels(c, first.value_labels)]
     worded = _word_columns(frame, numeric, codings)
-    unlike, scale = unlike_the_items(frame, [c for c in numeric if c not in ids + roles + coded])
-    records = [c for c, _, _ in unlike]
+    unlike = unlike_the_items(frame, [c for c in numeric if c not in ids + roles + coded], worded)
+    records = list(unlike.columns)
     chosen = tuple(c for c in columns if c in worded or (c in numeric and c not in ids + roles + coded + records))
     if codings and not worded:
         raise OptionError(f"no column of {source} holds only the words of the answers file's statements "
@@ -532,10 +567,18 @@ def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str
                "particulars or the survey's records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
                + Note((name_them, ".")) if roles else "")
             + (f" Left out as groupings or records rather than answers (a few whole values, most of them above the "
-               f"{scale[0]:g} to {scale[1]:g} that most columns hold, and no correlation of "
+               f"{unlike.scale[0]:g} to {unlike.scale[1]:g} that most columns hold, and no correlation of "
                f"{RELATED_TO_THE_ITEMS:.2f} or more with any item, as a grade or a year would be): "
-               + ", ".join(f"{printable(c)} ({low:g} to {high:g})" for c, low, high in unlike)
-               + Note((name_them, ".")) if unlike else "")
+               + ", ".join(f"{printable(c)} ({low:g} to {high:g})" for c, low, high in unlike.groupings)
+               + Note((name_them, ".")) if unlike.groupings else "")
+            + (f" Left out as measures rather than answers on the {unlike.scale[0]:g} to {unlike.scale[1]:g} scale "
+               f"that most columns hold (mostly fractions, or far more values over a far wider range, and no "
+               f"correlation of {RELATED_TO_THE_ITEMS:.2f} or more with any item, as years of service or an income "
+               f"would be): "
+               + ", ".join(f"{printable(c)} ({low:.10g} to {high:.10g}, "
+                           + ("mostly fractions)" if fractions else f"{_count_values(frame[c])} different values)")
+                           for c, low, high, fractions in unlike.off_scale)
+               + Note((name_them, ".")) if unlike.off_scale else "")
             + _text_columns_phrase(frame, numeric + worded, codings))
     return chosen, note, worded
 
@@ -681,7 +724,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     ``items``: column names, or text 'a, b, c' with 'q1..q9' for a numbered range, counted as a model file counts
     it (default: every column that
     holds numbers, except row numbers or ids and columns whose names say they are weights, clusters, strata, ids
-    or groups, see :func:`column_role`); ``factors``: a whole number, or None / 'auto' for the recommended number; ``rotation``:
+    or groups, see :func:`column_role`, and columns whose values are not answers on the scale most columns share and
+    that correlate with no item, see :func:`unlike_the_items`); ``factors``: a whole number, or None / 'auto' for the recommended number; ``rotation``:
     varimax, quartimin (default), oblimin, geomin, promax, target (with ``target``: a matrix with NaN where
     unspecified, or the path of a target file, exploration.target_file, whose columns give the number of
     factors) or none; None (the default) is quartimin, or target rotation with a ``target``; a rotation turns several

@@ -46,12 +46,13 @@ def test_an_item_partly_on_the_scale_stays_and_no_shared_scale_leaves_nothing_ou
     frame = _survey(200)
     frame["r9"] = np.resize(np.arange(0, 11), 200).astype(float)  # 0..10: reaches the scale's low end
     frame["r10"] = np.resize(np.arange(2, 7), 200).astype(float)  # 2..6: mostly on the scale
-    found, scale = unlike_the_items(frame, ITEMS + ["r9", "r10", "grade"])
-    assert scale == (1.0, 5.0) and found == [("grade", 5.0, 9.0)]
+    found = unlike_the_items(frame, ITEMS + ["r9", "r10", "grade"])
+    assert found.scale == (1.0, 5.0) and found.groupings == (("grade", 5.0, 9.0),) and found.off_scale == ()
     # continuous columns (no whole values) share no scale: nothing is left out by their values
-    assert unlike_the_items(frame.assign(r1=frame.r1 + 0.5, r2=frame.r2 + 0.25, r3=frame.r3 + 0.1,
+    none = unlike_the_items(frame.assign(r1=frame.r1 + 0.5, r2=frame.r2 + 0.25, r3=frame.r3 + 0.1,
                                          r4=frame.r4 + 0.3, r5=frame.r5 + 0.3),
-                            ["r1", "r2", "r3", "r4", "r5", "grade", "r6"]) == ([], None)
+                            ["r1", "r2", "r3", "r4", "r5", "grade", "r6"])
+    assert none.columns == () and none.scale is None
 
 
 def _with_recommend(frame: pd.DataFrame, seed: int = 2) -> pd.DataFrame:
@@ -67,8 +68,8 @@ def test_a_wider_scaled_answer_that_goes_with_the_items_stays_an_item():
     values = np.unique(frame["recommend"])
     assert values.min() > 1 and 2 * (values > 5).sum() > len(values)  # the values alone look like a grade's
     assert frame[ITEMS].corrwith(frame["recommend"]).abs().max() >= 0.30  # pandas: it goes with the items
-    found, scale = unlike_the_items(frame, ITEMS + ["recommend", "grade", "year", "wave"])
-    assert scale == (1.0, 5.0) and [c for c, _, _ in found] == ["grade", "year"]
+    found = unlike_the_items(frame, ITEMS + ["recommend", "grade", "year", "wave"])
+    assert found.scale == (1.0, 5.0) and found.columns == ("grade", "year")
     result = explore(frame, factors=2, replications=10)
     assert "recommend" in result.items and "grade" not in result.items and "year" not in result.items
 
@@ -81,8 +82,7 @@ def test_a_grade_weakly_related_to_the_answers_and_a_school_number_are_still_lef
     frame["school"] = rng.integers(101, 113, len(frame)).astype(float)  # twelve schools numbered 101 to 112
     strongest = frame[ITEMS].corrwith(frame["grade"]).abs().max()
     assert 0.1 < strongest < 0.30
-    found, _ = unlike_the_items(frame, ITEMS + ["grade", "school"])
-    assert [c for c, _, _ in found] == ["grade", "school"]
+    assert unlike_the_items(frame, ITEMS + ["grade", "school"]).columns == ("grade", "school")
 
 
 def test_the_correlations_the_rule_reads_are_pairwise_pearson_correlations():
