@@ -17,8 +17,9 @@ def add_parser(sub) -> None:
     p.add_argument("--items", metavar="NAMES",
                    help="comma-separated columns to explore; item1..item9 is a range counted as a model file counts it "
                         "(q1..q9 is q1, q2, ..., q9, whatever the order of the columns) "
-                        "(default: every column that holds numbers, except ids and columns named as weights, "
-                        "clusters, strata or groups; the report names those left out)")
+                        "(default: every column that holds numbers, except ids, columns named as weights, "
+                        "clusters, strata or groups, and columns unlike the items that correlate with none of them, "
+                        "such as years of service; the report names those left out)")
     p.add_argument("--factors", metavar="K", default="auto",
                    help="number of factors, or 'auto' for the recommended number (default auto)")
     p.add_argument("--rotation", default=None,
