@@ -24,6 +24,7 @@ from __future__ import annotations
 import contextlib
 import contextvars
 import enum
+import functools
 import re
 from collections.abc import Iterable, Iterator
 from dataclasses import dataclass
@@ -104,12 +105,21 @@ def says_no_answer(text: object, explained: bool = False) -> bool:
     phrases joined by '/', ',', ';', '&' or 'or' ("Don't know / refused").  Phrases are compared as whole words, so
     'Not at all', 'Never' or 'missing my bus' are answers.  ``explained`` (value labels): a phrase joined by such a
     separator to words that explain it, before or after them ('Not applicable / never ride', 'Neutral / not sure':
-    the order of the words does not decide; where the code lies does, :func:`between_answers`)."""
-    if not isinstance(text, str) or not text.strip():
+    the order of the words does not decide; where the code lies does, :func:`between_answers`).  Each text is read
+    once per run's words (:func:`_says`): the rules read an item's labels again for each of its codes."""
+    if not isinstance(text, str):
+        return False
+    return _says(text, explained, _RUN_WORDS.get().phrases)
+
+
+@functools.lru_cache(maxsize=4096)
+def _says(text: str, explained: bool, own: frozenset[str]) -> bool:
+    """:func:`says_no_answer` of a text with the run's words ``own``: a pure function of its arguments, kept for the
+    last few thousand texts (a file's labels and distinct cells), as the parsed model texts are."""
+    if not text.strip():
         return False
     if text.strip() in NON_ANSWER_MARKS:
         return True
-    own = _RUN_WORDS.get().phrases
     phrases = NON_ANSWER_PHRASES | own if own else NON_ANSWER_PHRASES
     if _plain(text) in phrases:
         return True
@@ -177,14 +187,15 @@ def labelled_non_answers(frame: pd.DataFrame, value_labels: dict, skip: tuple[fl
     for column, labels in value_labels.items():
         if column not in frame.columns:
             continue
-        numeric = pd.api.types.is_numeric_dtype(frame[column])
+        series = frame[column]
+        numeric = pd.api.types.is_numeric_dtype(series.dtype)
         if numeric:
-            values = frame[column].to_numpy(dtype=float, na_value=np.nan)
+            values = series.to_numpy(dtype=float, na_value=np.nan)
             codes = _labelled_none(labels, values, skip)[0]
         else:  # a text variable: its cells as written, compared without spaces at their ends
             codes = {code: text for code, text in labels.items()
                      if isinstance(code, str) and code not in skip and says_no_answer(text, explained=True)}
-            values = np.array([v.strip() if isinstance(v, str) else None for v in frame[column]], dtype=object) \
+            values = np.array([v.strip() if isinstance(v, str) else None for v in series], dtype=object) \
                 if codes else None
         if not codes:
             continue
@@ -197,7 +208,12 @@ def labelled_non_answers(frame: pd.DataFrame, value_labels: dict, skip: tuple[fl
         if hit.any():
             if out is frame:
                 out = frame.copy()
-            out[column] = frame[column].where(~hit)
+            if isinstance(series.dtype, np.dtype) and (series.dtype == np.float64 or series.dtype.kind in "iu"):
+                # numpy float64 or whole numbers: the cells' floats with NaN in the hits, what Series.where gives
+                # (float64), without its alignment
+                out[column] = np.where(hit, np.nan, values)
+            else:
+                out[column] = series.where(~hit)
     return out, tuple(found)
 
 
