@@ -25,6 +25,7 @@ import contextlib
 import contextvars
 import enum
 import functools
+import math
 import re
 from collections.abc import Iterable, Iterator
 from dataclasses import dataclass
@@ -299,17 +300,26 @@ def unlabelled_extra_codes(column: np.ndarray, labels: dict) -> list[tuple[float
     scale whose end labels mirror each other (1 'Strongly disagree' ... 5 'Strongly agree') while its own label
     shares no word with the far end (6 'Something else').  A rule of thumb of this project (common practice of
     reading survey codebooks), used for a caution only: the values are analysed as they are.  [(code, label)]."""
-    coded = sorted((float(k), v) for k, v in labels.items()
+    return [(code, text) for code, text in _scale_ends_apart(tuple(labels.items()), _RUN_WORDS.get().phrases)
+            if math.isfinite(code) and bool((column == code).any())]  # given in the item
+
+
+@functools.lru_cache(maxsize=256)
+def _scale_ends_apart(labels: tuple, own: frozenset[str]) -> tuple[tuple[float, str], ...]:
+    """The labelled codes at the ends of an item's scale that :func:`unlabelled_extra_codes` names when given, from
+    the item's labels alone (``labels``: their items; ``own``: the run's words of no answer, which decide which
+    labels say no answer): items of one questionnaire share their labels, so each set is judged once (the last few
+    hundred kept)."""
+    coded = sorted((float(k), v) for k, v in labels
                    if isinstance(k, (int, float)) and not says_no_answer(v, explained=True))
     if len(coded) < 4:  # too few labels to speak of a scale of answers
-        return []
-    present = set(column[np.isfinite(column)].tolist())
+        return ()
     out = []
     for k in (0, len(coded) - 1):
         code, text = coded[k]
         others = coded[1:] if k == 0 else coded[:-1]
         steps = np.diff([c for c, _ in others])
-        if code not in present or not (steps > 0).all() or not np.allclose(steps, steps[0]):
+        if not (steps > 0).all() or not np.allclose(steps, steps[0]):
             continue
         gap = abs(code - (others[0][0] if k == 0 else others[-1][0]))
         words = [set(_plain(t).split()) for t in (text, others[0][1], others[-1][1])]
@@ -317,7 +327,7 @@ def unlabelled_extra_codes(column: np.ndarray, labels: dict) -> list[tuple[float
         mirrored = bool(words[1] & words[2])
         if gap > steps[0] + 1e-9 or (mirrored and not words[0] & far):
             out.append((code, text))
-    return out
+    return tuple(out)
 
 
 @dataclass(frozen=True)

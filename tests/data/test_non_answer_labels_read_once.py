@@ -69,3 +69,43 @@ def test_the_codes_read_as_missing_are_what_series_where_gives(dtype):
     pd.testing.assert_frame_equal(out, expected)
     assert [(f.column, f.value, f.rows) for f in found] == [("q1", 9.0, (1, 4))]
     assert frame["q1"].tolist() == cells  # the caller's frame unchanged
+
+
+def _beyond_written_out(column: np.ndarray, labels: dict) -> list[tuple[float, str]]:
+    """The rule of codes beyond an item's scale (non_answers.unlabelled_extra_codes) written out item by item, as it
+    read before its labels' part was kept per set of labels: the reference of the test below."""
+    coded = sorted((float(k), v) for k, v in labels.items()
+                   if isinstance(k, (int, float)) and not says_no_answer(v, explained=True))
+    if len(coded) < 4:
+        return []
+    present = set(column[np.isfinite(column)].tolist())
+    out = []
+    for k in (0, len(coded) - 1):
+        code, text = coded[k]
+        others = coded[1:] if k == 0 else coded[:-1]
+        steps = np.diff([c for c, _ in others])
+        if code not in present or not (steps > 0).all() or not np.allclose(steps, steps[0]):
+            continue
+        gap = abs(code - (others[0][0] if k == 0 else others[-1][0]))
+        words = [set(non_answers._plain(t).split()) for t in (text, others[0][1], others[-1][1])]
+        far = words[2] if k == 0 else words[1]
+        if gap > steps[0] + 1e-9 or (bool(words[1] & words[2]) and not words[0] & far):
+            out.append((code, text))
+    return out
+
+
+def test_codes_beyond_the_scale_are_those_of_the_rule_written_out():
+    rng = np.random.default_rng(31)
+    words = ["Strongly disagree", "Disagree", "Agree", "Strongly agree", "Other", "Refused", "Ne sait pas", "Never",
+             "Always", "Something else", "Not applicable", "Sometimes"]
+    found = 0
+    for case in range(3000):
+        codes = rng.choice([-1.0, 0.0, 1.0, 2.0, 3.0, 4.0, 5.0, 6.0, 8.0, 9.0, 99.0, np.inf], size=rng.integers(2, 8),
+                           replace=False)
+        labels = {float(c): str(rng.choice(words)) for c in codes}
+        column = rng.choice(np.append(codes, np.nan), size=rng.integers(1, 40))
+        with also_no_answer(("Ne sait pas",) if case % 2 else ()):
+            got = non_answers.unlabelled_extra_codes(column, labels)
+            assert got == _beyond_written_out(column, labels), (labels, column)
+        found += bool(got)
+    assert found > 100  # the rule names codes in many of the cases, not in all
