@@ -1384,7 +1384,16 @@ def _labelled(frame: pd.DataFrame, group: str | None) -> pd.DataFrame:
         return frame
     from cfa_tool.data.groups import group_keys
 
-    labelled = group_keys(frame[group]).notna().to_numpy()  # a cell of invisible characters alone has no label
+    cells = frame[group]
+    try:  # each distinct cell read once by the rule of group_keys (the analyses call this several times per fit)
+        distinct = pd.Series(cells.dropna().unique(), dtype=object)
+    except TypeError:  # an unhashable cell (a list in a data frame built in Python): every cell read
+        labelled = group_keys(cells).notna().to_numpy()
+    else:  # a cell of invisible characters alone has no label (only texts can be such cells: compared exactly)
+        unlabelled = distinct[group_keys(distinct).isna().to_numpy()]
+        labelled = cells.notna().to_numpy()
+        if len(unlabelled):
+            labelled = labelled & ~cells.isin(unlabelled.tolist()).to_numpy()
     return frame if labelled.all() else frame.loc[labelled]
 
 
