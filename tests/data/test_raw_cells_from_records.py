@@ -68,3 +68,18 @@ def test_the_cells_from_the_records_are_the_table_parsers(tmp_path, monkeypatch,
                                            by_parser.iloc[:, position])
         compared += 1
     assert compared > 150  # most generated files are tables
+
+
+def test_the_cell_scans_find_what_the_alternation_found():
+    # data.readers._found_in_cells: the pattern at the text's start or after a line break or a delimiter, against the
+    # search it replaced, '(?:^|[,;\t|])' before the pattern (re.MULTILINE), on random texts of delimiters, line
+    # breaks, quotes, spaces, markers and numbers
+    import re
+
+    rng = random.Random(5)
+    pieces = ["NA", "N/A", ".", ",", ";", "\t", "|", "\n", "\r", '"', " ", "1", "01", "1.0", "x", "nan", "a", "+0"]
+    for cell in (readers._MARKER, readers._SPELLED_NUMBER):
+        before = re.compile(r"(?:^|[,;\t|])" + cell[0].pattern, re.MULTILINE)
+        for _ in range(10_000):
+            text = "".join(rng.choice(pieces) for _ in range(rng.randint(0, 14)))
+            assert readers._found_in_cells(cell, text) == (before.search(text) is not None), repr(text)
