@@ -10,7 +10,7 @@ shared machine (wall-clock times here vary by up to 2x between runs).
     python bench/instructions.py --call csv --fits 30       # case 1 read from its CSV file (every column) and fitted
     python bench/instructions.py --call spss --fits 30      # the rider survey read from an SPSS file and fitted
 
-Runs the fit 10 and 10 + ``--fits`` (default 1000) times under ``valgrind --tool=callgrind`` in two
+Runs the fit 10 (``--base``) and 10 + ``--fits`` (default 1000) times under ``valgrind --tool=callgrind`` in two
 processes and reports the difference divided by ``--fits``, so that start-up (imports, the first fit)
 cancels out.  One BLAS thread, as the tool uses for models of this size.  Instruction counts weigh Python-level work more heavily than
 wall time does, so use them to compare versions of the code, and the timings in run.py for the ratios.
@@ -83,6 +83,9 @@ def main() -> None:
                              "model on an SPSS file of its answers (value labels, a 'Refused' code), read at each fit")
     parser.add_argument("--items", type=int, default=9, help="9: Holzinger-Swineford (case 1); 30, 60...: run.py's simulated models")
     parser.add_argument("--fits", type=int, default=1000)
+    parser.add_argument("--base", type=int, default=10,
+                        help="fits in the first process (default 10), whose count is taken from the second's: fewer "
+                             "for slow calls (an SPSS file's full-information fit) on a loaded machine")
     parser.add_argument("--all-columns", action="store_true",
                         help="case 1 with every column of the Holzinger-Swineford data (the school's name, a text column, "
                              "among them), as bench/default_call.py fits it; by default the nine items alone")
@@ -108,7 +111,7 @@ def main() -> None:
             text, _, frame = simulated(args.items, args.items // 10, 1000, args.items)
             frame.to_csv(data, index=False)
             model.write_text(text)
-        runs = {n: count(n, script, data, model, args.call) for n in (10, 10 + args.fits)}
+        runs = {n: count(n, script, data, model, args.call) for n in (args.base, args.base + args.fits)}
         totals = {}
         for n, proc in runs.items():
             _, err = proc.communicate()
@@ -120,7 +123,8 @@ def main() -> None:
             if args.items == 9 else f"{args.items} items")
     case = "the rider survey (SPSS file)" if args.call == "spss" else case
     what = "bootstrap refit" if args.call == "bootstrap" else "fit"
-    print(f"{case}, {args.call} call: {(totals[10 + args.fits] - totals[10]) / args.fits:,.0f} instructions per {what}")
+    print(f"{case}, {args.call} call: {(totals[args.base + args.fits] - totals[args.base]) / args.fits:,.0f} "
+          f"instructions per {what}")
 
 
 if __name__ == "__main__":
