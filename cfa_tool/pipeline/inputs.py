@@ -1383,17 +1383,20 @@ def _labelled(frame: pd.DataFrame, group: str | None) -> pd.DataFrame:
     if group is None or group not in frame.columns:
         return frame
     from cfa_tool.data.groups import group_keys
+    from cfa_tool.data.labels import label_text
 
     cells = frame[group]
+    values = cells.to_numpy()
+    labelled = ~pd.isna(values)
     try:  # each distinct cell read once by the rule of group_keys (the analyses call this several times per fit)
-        distinct = pd.Series(cells.dropna().unique(), dtype=object)
+        distinct = pd.unique(values[labelled])
     except TypeError:  # an unhashable cell (a list in a data frame built in Python): every cell read
         labelled = group_keys(cells).notna().to_numpy()
-    else:  # a cell of invisible characters alone has no label (only texts can be such cells: compared exactly)
-        unlabelled = distinct[group_keys(distinct).isna().to_numpy()]
-        labelled = cells.notna().to_numpy()
-        if len(unlabelled):
-            labelled = labelled & ~cells.isin(unlabelled.tolist()).to_numpy()
+    else:  # a cell of invisible characters alone has no label (group_keys: label_text gives ''); only texts can be
+        # such cells, so they are compared exactly
+        unlabelled = {v for v in distinct if not label_text(v)}
+        if unlabelled:
+            labelled &= np.array([not (isinstance(v, str) and v in unlabelled) for v in values], dtype=bool)
     return frame if labelled.all() else frame.loc[labelled]
 
 

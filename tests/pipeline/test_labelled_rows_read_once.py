@@ -8,7 +8,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data import groups
+from cfa_tool.data import groups, labels
 from cfa_tool.data.groups import group_keys
 from cfa_tool.pipeline.inputs import _labelled
 
@@ -29,8 +29,9 @@ def test_the_rows_with_a_group_label_are_those_of_the_rule_cell_by_cell():
 
 def test_each_distinct_cell_is_read_once(monkeypatch):
     read = []
-    label_text = groups.label_text
-    monkeypatch.setattr(groups, "label_text", lambda v: read.append(v) or label_text(v))
+    label_text = labels.label_text
+    for module in (groups, labels):  # the rule's one reading of a cell, wherever it is called from
+        monkeypatch.setattr(module, "label_text", lambda v: read.append(v) or label_text(v))
     frame = pd.DataFrame({"site": ["north", "south", "\u200b"] * 100, "q1": np.arange(300.0)})
     assert len(_labelled(frame, "site")) == 200  # the cells of an invisible character alone have no label
     assert len(read) == 3  # before: 300, at each call
