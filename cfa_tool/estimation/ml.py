@@ -219,10 +219,11 @@ class NormalLikelihood:
     def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
         """Second derivatives of F in closed form, summed over groups with the weights N_g / N, for models
         without higher-order factors (None otherwise, and where some Sigma is not positive definite).  Per group,
-        with S = Sigma, D = dSigma, M = Sigma^-1 (Sigma - S - d d') Sigma^-1, m = -2 Sigma^-1 d:
+        with W = Sigma^-1, D = dSigma, M = W (Sigma - S - d d') W (S the sample covariance, d = m_g - mu) and
+        m = -2 W d:
 
-            F_ab = tr(S^-1 D_a S^-1 D_b) - 2 tr(S^-1 D_b M D_a) + tr(M D_ab)
-                   + 2 dmu_a' S^-1 dmu_b + 2 d' S^-1 D_a S^-1 dmu_b + 2 d' S^-1 D_b S^-1 dmu_a + m' dmu_ab
+            F_ab = tr(W D_a W D_b) - 2 tr(W D_b M D_a) + tr(M D_ab)
+                   + 2 dmu_a' W dmu_b + 2 d' W D_a W dmu_b + 2 d' W D_b W dmu_a + m' dmu_ab
 
         (the terms in mu only with a mean structure, Sorbom 1974's discrepancy differentiated twice; the same
         terms as :meth:`cfa_tool.estimation.fiml.MissingDataLikelihood.observed_hessian` for one pattern without
@@ -239,7 +240,10 @@ class NormalLikelihood:
             if not self.model.identity_J[g]:
                 J = self._J[g]
                 H = J.T @ H @ J
-            total = H if len(self.weights) == 1 else weight * H if total is None else total + weight * H
+            if len(self.weights) == 1:  # one group: its own (weight 1), as before groups were summed
+                total = H
+            else:
+                total = weight * H if total is None else total + weight * H
         return 0.5 * (total + total.T)
 
     def _group_hessian(self, theta: np.ndarray, g: int) -> np.ndarray | None:
@@ -254,7 +258,7 @@ class NormalLikelihood:
         second = second_derivative_contraction(model.second_orders[g], parts.M, mats.L, mats.P, Q[:p, p + m:])
         H = expected - cross - cross.T + second
         if parts.mean_gradient is not None:
-            # 2 d' S^-1 D_a S^-1 dmu_b = -c_a s_b (Vm[u_a] K[v_a, w_b] + Vm[v_a] K[u_a, w_b]), Vm = V' m
+            # 2 d' W D_a W dmu_b = -c_a s_b (Vm[u_a] K[v_a, w_b] + Vm[v_a] K[u_a, w_b]), Vm = V' m
             Vm = V.T @ parts.mean_gradient
             s = mean_coefficients(basis, a)
             mixed = ((basis.c * Vm[basis.u])[:, None] * K[np.ix_(basis.v, basis.w)]
