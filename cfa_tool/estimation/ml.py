@@ -219,7 +219,7 @@ class NormalLikelihood:
     def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
         """Second derivatives of F in closed form, summed over groups with the weights N_g / N, for models
         without higher-order factors (None otherwise, and where some Sigma is not positive definite).  Per group,
-        with W = Sigma^-1, D = dSigma, M = W (Sigma - S - d d') W (S the sample covariance, d = m_g - mu) and
+        with W = Sigma^-1, D = dSigma, M = W (Sigma - S - d d') W (S and xbar the sample covariance and means, d = xbar - mu) and
         m = -2 W d:
 
             F_ab = tr(W D_a W D_b) - 2 tr(W D_b M D_a) + tr(M D_ab)
