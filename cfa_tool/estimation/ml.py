@@ -219,8 +219,8 @@ class NormalLikelihood:
     def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
         """Second derivatives of F in closed form, summed over groups with the weights N_g / N, for models
         without higher-order factors (None otherwise, and where some Sigma is not positive definite).  Per group,
-        with W = Sigma^-1, D = dSigma, M = W (Sigma - S - d d') W (S and xbar the sample covariance and means, d = xbar - mu) and
-        m = -2 W d:
+        with W = Sigma^-1, D = dSigma, d = xbar - mu, M = W (Sigma - S - d d') W and m = -2 W d (S and xbar the
+        sample covariance and means):
 
             F_ab = tr(W D_a W D_b) - 2 tr(W D_b M D_a) + tr(M D_ab)
                    + 2 dmu_a' W dmu_b + 2 d' W D_a W dmu_b + 2 d' W D_b W dmu_a + m' dmu_ab
