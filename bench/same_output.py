@@ -9,6 +9,12 @@ items) plus a model with groups, one with gaps in the data (full-information est
 items, and keeps ``fit(...).to_dict()`` of each.  The comparison is exact: the same keys in the same order,
 the same types, the same numbers to the last bit (NaN equal to NaN), the same text.  A change made for
 speed must leave every one of them as it was.
+
+    python bench/same_output.py --compare /tmp/before.pickle /tmp/after.pickle --near 1e-6
+
+also counts, case by case, the numbers that differ by more than 1e-6 times the larger of the two or 1 (relative above
+1, absolute below): for a change that moves where the search stops (a closed-form Hessian in place of differences of
+the gradient), which no exact comparison can pass.  The exact count is still printed, and still sets the exit status.
 """
 
 from __future__ import annotations
@@ -74,10 +80,30 @@ def differences(a, b, where: str = "") -> list[str]:
     return [] if a == b else [f"{where}: {a!r} against {b!r}"]
 
 
+def beyond(found: list[str], near: float) -> dict[str, int]:
+    """Per case, how many of the exact comparison's differences ``found`` are not two numbers within ``near`` times the
+    larger of their magnitudes or 1 (a difference of another kind, a type or a text, always counts)."""
+    counts: dict[str, int] = {}
+    for line in found:
+        case = line.split("/")[1]
+        counts.setdefault(case, 0)
+        where, _, values = line.rpartition(": ")
+        first, _, second = values.partition(" against ")
+        try:
+            a, b = float(first), float(second)
+        except ValueError:
+            counts[case] += 1
+            continue
+        if not abs(a - b) <= near * max(abs(a), abs(b), 1.0):
+            counts[case] += 1
+    return counts
+
+
 def main() -> None:
     parser = argparse.ArgumentParser()
     parser.add_argument("--write", type=Path)
     parser.add_argument("--compare", type=Path, nargs=2)
+    parser.add_argument("--near", type=float, help="also count, per case, differences beyond this share (see above)")
     args = parser.parse_args()
     if args.write:
         import cfa_tool
@@ -90,6 +116,10 @@ def main() -> None:
         for line in found[:40]:
             print(line)
         print(f"{len(before)} cases, {len(found)} differences")
+        if args.near is not None:
+            for case, n in beyond(found, args.near).items():
+                exact = sum(line.split("/")[1] == case for line in found)
+                print(f"{case}: {exact} differences, {n} of them beyond {args.near:g} of the larger number or 1")
         raise SystemExit(1 if found else 0)
 
 

@@ -24,6 +24,8 @@ from __future__ import annotations
 import contextlib
 import contextvars
 import enum
+import functools
+import math
 import re
 from collections.abc import Iterable, Iterator
 from dataclasses import dataclass
@@ -104,12 +106,21 @@ def says_no_answer(text: object, explained: bool = False) -> bool:
     phrases joined by '/', ',', ';', '&' or 'or' ("Don't know / refused").  Phrases are compared as whole words, so
     'Not at all', 'Never' or 'missing my bus' are answers.  ``explained`` (value labels): a phrase joined by such a
     separator to words that explain it, before or after them ('Not applicable / never ride', 'Neutral / not sure':
-    the order of the words does not decide; where the code lies does, :func:`between_answers`)."""
-    if not isinstance(text, str) or not text.strip():
+    the order of the words does not decide; where the code lies does, :func:`between_answers`).  Each text is read
+    once per run's words (:func:`_says`): the rules read an item's labels again for each of its codes."""
+    if not isinstance(text, str):
+        return False
+    return _says(text, explained, _RUN_WORDS.get().phrases)
+
+
+@functools.lru_cache(maxsize=4096)
+def _says(text: str, explained: bool, own: frozenset[str]) -> bool:
+    """:func:`says_no_answer` of a text with the run's words ``own``: a pure function of its arguments, kept for the
+    last few thousand texts (a file's labels and distinct cells), as the parsed model texts are."""
+    if not text.strip():
         return False
     if text.strip() in NON_ANSWER_MARKS:
         return True
-    own = _RUN_WORDS.get().phrases
     phrases = NON_ANSWER_PHRASES | own if own else NON_ANSWER_PHRASES
     if _plain(text) in phrases:
         return True
@@ -177,14 +188,15 @@ def labelled_non_answers(frame: pd.DataFrame, value_labels: dict, skip: tuple[fl
     for column, labels in value_labels.items():
         if column not in frame.columns:
             continue
-        numeric = pd.api.types.is_numeric_dtype(frame[column])
+        series = frame[column]
+        numeric = pd.api.types.is_numeric_dtype(series.dtype)
         if numeric:
-            values = frame[column].to_numpy(dtype=float, na_value=np.nan)
+            values = series.to_numpy(dtype=float, na_value=np.nan)
             codes = _labelled_none(labels, values, skip)[0]
         else:  # a text variable: its cells as written, compared without spaces at their ends
             codes = {code: text for code, text in labels.items()
                      if isinstance(code, str) and code not in skip and says_no_answer(text, explained=True)}
-            values = np.array([v.strip() if isinstance(v, str) else None for v in frame[column]], dtype=object) \
+            values = np.array([v.strip() if isinstance(v, str) else None for v in series], dtype=object) \
                 if codes else None
         if not codes:
             continue
@@ -197,7 +209,12 @@ def labelled_non_answers(frame: pd.DataFrame, value_labels: dict, skip: tuple[fl
         if hit.any():
             if out is frame:
                 out = frame.copy()
-            out[column] = frame[column].where(~hit)
+            if isinstance(series.dtype, np.dtype) and (series.dtype == np.float64 or series.dtype.kind in "iu"):
+                # numpy float64 or whole numbers: the cells' floats with NaN in the hits, what Series.where gives
+                # (float64), without its alignment
+                out[column] = np.where(hit, np.nan, values)
+            else:
+                out[column] = series.where(~hit)
     return out, tuple(found)
 
 
@@ -283,17 +300,26 @@ def unlabelled_extra_codes(column: np.ndarray, labels: dict) -> list[tuple[float
     scale whose end labels mirror each other (1 'Strongly disagree' ... 5 'Strongly agree') while its own label
     shares no word with the far end (6 'Something else').  A rule of thumb of this project (common practice of
     reading survey codebooks), used for a caution only: the values are analysed as they are.  [(code, label)]."""
-    coded = sorted((float(k), v) for k, v in labels.items()
+    return [(code, text) for code, text in _scale_ends_apart(tuple(labels.items()), _RUN_WORDS.get().phrases)
+            if math.isfinite(code) and bool((column == code).any())]  # given in the item
+
+
+@functools.lru_cache(maxsize=256)
+def _scale_ends_apart(labels: tuple, own: frozenset[str]) -> tuple[tuple[float, str], ...]:
+    """The labelled codes at the ends of an item's scale that :func:`unlabelled_extra_codes` names when given, from
+    the item's labels alone (``labels``: their items; ``own``: the run's words of no answer, which decide which
+    labels say no answer): items of one questionnaire share their labels, so each set is judged once (the last few
+    hundred kept)."""
+    coded = sorted((float(k), v) for k, v in labels
                    if isinstance(k, (int, float)) and not says_no_answer(v, explained=True))
     if len(coded) < 4:  # too few labels to speak of a scale of answers
-        return []
-    present = set(column[np.isfinite(column)].tolist())
+        return ()
     out = []
     for k in (0, len(coded) - 1):
         code, text = coded[k]
         others = coded[1:] if k == 0 else coded[:-1]
         steps = np.diff([c for c, _ in others])
-        if code not in present or not (steps > 0).all() or not np.allclose(steps, steps[0]):
+        if not (steps > 0).all() or not np.allclose(steps, steps[0]):
             continue
         gap = abs(code - (others[0][0] if k == 0 else others[-1][0]))
         words = [set(_plain(t).split()) for t in (text, others[0][1], others[-1][1])]
@@ -301,7 +327,7 @@ def unlabelled_extra_codes(column: np.ndarray, labels: dict) -> list[tuple[float
         mirrored = bool(words[1] & words[2])
         if gap > steps[0] + 1e-9 or (mirrored and not words[0] & far):
             out.append((code, text))
-    return out
+    return tuple(out)
 
 
 @dataclass(frozen=True)

@@ -20,7 +20,7 @@ from __future__ import annotations
 import numpy as np
 
 from cfa_tool.estimation.objective import Evaluation
-from cfa_tool.model.rank_two import second_derivative_contraction
+from cfa_tool.model.rank_two import mean_second_derivatives, second_derivative_contraction
 from cfa_tool.data.em import weighted_available_moments
 from cfa_tool.data.patterns import PatternData, embedded_inverse, missing_groups
 from cfa_tool.model.implied import StructuredModel
@@ -281,7 +281,7 @@ def model_second_order(model: StructuredModel, g: int, mats, M: np.ndarray, mean
     1991), M and m the gradient's parts in Sigma and mu."""
     codes, rows, cols = model._codes[g], model._rows[g], model._cols[g]
     second = second_derivative_contraction(model.all_second_orders[g], M, mats.L, mats.P)
-    second += _mean_second_derivatives(codes, rows, cols, mean_gradient)
+    second += mean_second_derivatives(codes, rows, cols, mean_gradient)
     J = model._J[g]
     return J.T @ second @ J
 
@@ -311,20 +311,6 @@ def _trace_contract(G: np.ndarray, x_sigma: np.ndarray, y_sigma: np.ndarray) -> 
     kx, p, _ = x_sigma.shape
     T = (x_sigma.reshape(kx, p * p) @ G).reshape(kx, p, p)  # (a, i, e) = sum_jc D_a[j, c] X_ij Y_ce
     return T.reshape(kx, -1) @ y_sigma.transpose(0, 2, 1).reshape(len(y_sigma), -1).T
-
-
-def _mean_second_derivatives(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, mean_gradient: np.ndarray) -> np.ndarray:
-    """m' d2mu / de de' for pairs of entries: mu = N + L M (no higher-order factors) has d2mu / dL_ij dM_j = e_i."""
-    E = len(codes)
-    out = np.zeros((E, E))
-    loads = np.flatnonzero(codes == 0)
-    means = np.flatnonzero(codes == 5)
-    if len(loads) and len(means):
-        match = cols[loads][:, None] == rows[means][None, :]
-        block = match * mean_gradient[rows[loads]][:, None]
-        out[np.ix_(loads, means)] = block
-        out[np.ix_(means, loads)] = block.T
-    return out
 
 
 def _row_blocks(rows: np.ndarray, weights: np.ndarray):

@@ -17,8 +17,8 @@ import numpy as np
 from cfa_tool.estimation.objective import Evaluation
 from cfa_tool.numerics.linalg import sample_log_det, spd_inverse
 from cfa_tool.model.implied import StructuredModel
-from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term, gradient_and_information, model_columns,
-                                     second_derivative_contraction)
+from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term, gradient_and_information, mean_coefficients,
+                                     mean_second_derivatives, model_columns, second_derivative_contraction)
 
 
 #: the size (numbers) from which the score tests' blocks of candidates are made in arrays reused from chunk to chunk,
@@ -217,26 +217,53 @@ class NormalLikelihood:
         return np.full(len(theta), np.nan) if ev is None else ev.gradient
 
     def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
-        """Second derivatives of F in closed form, for one group without a mean structure or
-        higher-order factors (None otherwise):
+        """Second derivatives of F in closed form, summed over groups with the weights N_g / N, for models
+        without higher-order factors (None otherwise, and where some Sigma is not positive definite).  Per group,
+        with W = Sigma^-1, D = dSigma, d = xbar - mu, M = W (Sigma - S - d d') W and m = -2 W d (S and xbar the
+        sample covariance and means):
 
-            F_ab = tr(S^-1 D_a S^-1 D_b) - 2 tr(S^-1 D_b M D_a) + tr(M D_ab)
+            F_ab = tr(W D_a W D_b) - 2 tr(W D_b M D_a) + tr(M D_ab)
+                   + 2 dmu_a' W dmu_b + 2 d' W D_a W dmu_b + 2 d' W D_b W dmu_a + m' dmu_ab
 
-        with S = Sigma, D = dSigma, M = Sigma^-1 (Sigma - S) Sigma^-1; the last term is
-        nonzero only for pairs of loadings (2 M_ik Phi_jl) and loading-factor covariance
-        pairs (Neudecker & Satorra 1991 give the general second derivatives)."""
-        model = self.model
-        if len(self.groups) != 1 or self.means or model.higher_order:
+        (the terms in mu only with a mean structure, Sorbom 1974's discrepancy differentiated twice; the same
+        terms as :meth:`cfa_tool.estimation.fiml.MissingDataLikelihood.observed_hessian` for one pattern without
+        gaps).  The second derivatives D_ab are nonzero only for pairs of loadings (2 M_ik Phi_jl) and
+        loading-factor covariance pairs, dmu_ab only for a loading and its factor's mean (Neudecker & Satorra 1991
+        give the general second derivatives); the traces are gathers from K and Q (:mod:`cfa_tool.model.rank_two`)."""
+        if self.model.higher_order:
             return None
-        out = self._rank_two(theta, 0)
+        total = None
+        for g, weight in enumerate(self.weights):
+            H = self._group_hessian(theta, g)
+            if H is None:
+                return None
+            if not self.model.identity_J[g]:
+                J = self._J[g]
+                H = J.T @ H @ J
+            if len(self.weights) == 1:  # one group: its own (weight 1), as before groups were summed
+                total = H
+            else:
+                total = weight * H if total is None else total + weight * H
+        return 0.5 * (total + total.T)
+
+    def _group_hessian(self, theta: np.ndarray, g: int) -> np.ndarray | None:
+        """Group g's second derivatives (:meth:`observed_hessian`) over its active entries, unweighted."""
+        out = self._rank_two(theta, g)
         if out is None:
             return None
-        mats, parts, _, expected, K, Q, _, _ = out
-        cross = cross_term(self._basis[0], K, Q)
+        model, basis = self.model, self._basis[g]
+        mats, parts, _, expected, K, Q, V, a = out
+        cross = cross_term(basis, K, Q)
         p, m = model.p, model.m  # Q = V' M V with V = [I, C', L] holds M L in its first rows
-        second = second_derivative_contraction(model.second_orders[0], parts.M, mats.L, mats.P, Q[:p, p + m:])
+        second = second_derivative_contraction(model.second_orders[g], parts.M, mats.L, mats.P, Q[:p, p + m:])
         H = expected - cross - cross.T + second
-        if not model.identity_J[0]:
-            J = self._J[0]
-            H = J.T @ H @ J
-        return 0.5 * (H + H.T)
+        if parts.mean_gradient is not None:
+            # 2 d' W D_a W dmu_b = -c_a s_b (Vm[u_a] K[v_a, w_b] + Vm[v_a] K[u_a, w_b]), Vm = V' m
+            Vm = V.T @ parts.mean_gradient
+            s = mean_coefficients(basis, a)
+            mixed = ((basis.c * Vm[basis.u])[:, None] * K[np.ix_(basis.v, basis.w)]
+                     + (basis.c * Vm[basis.v])[:, None] * K[np.ix_(basis.u, basis.w)]) * -s
+            active = model.active[g]
+            H += mixed + mixed.T + mean_second_derivatives(model._codes[g][active], model._rows[g][active],
+                                                           model._cols[g][active], parts.mean_gradient)
+        return H

@@ -288,3 +288,17 @@ def second_derivative_contraction(layout: SecondOrderLayout, M: np.ndarray, L: n
         out[layout.load_cov] = term
         out[layout.cov_load] = term
     return out.reshape(layout.size, layout.size)
+
+
+def mean_second_derivatives(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, mean_gradient: np.ndarray) -> np.ndarray:
+    """m' d2mu / de de' for pairs of entries: mu = N + L M (no higher-order factors) has d2mu / dL_ij dM_j = e_i."""
+    E = len(codes)
+    out = np.zeros((E, E))
+    loads = np.flatnonzero(codes == 0)
+    means = np.flatnonzero(codes == 5)
+    if len(loads) and len(means):
+        match = cols[loads][:, None] == rows[means][None, :]
+        block = match * mean_gradient[rows[loads]][:, None]
+        out[np.ix_(loads, means)] = block
+        out[np.ix_(means, loads)] = block.T
+    return out

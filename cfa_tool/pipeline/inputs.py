@@ -1401,8 +1401,21 @@ def _has_group(frame: pd.DataFrame, group: str) -> np.ndarray:
     a cell of invisible characters alone has none; re-check s17: such a row's gaps chose full-information ML for
     complete rows analysed)."""
     from cfa_tool.data.groups import group_keys
+    from cfa_tool.data.labels import label_text
 
-    return group_keys(frame[group]).notna().to_numpy()
+    cells = frame[group]
+    values = cells.to_numpy()
+    labelled = ~pd.isna(values)
+    try:  # each distinct cell read once by the rule of group_keys (the analyses call this several times per fit)
+        distinct = pd.unique(values[labelled])
+    except TypeError:  # an unhashable cell (a list in a data frame built in Python): every cell read
+        labelled = group_keys(cells).notna().to_numpy()
+    else:  # a cell of invisible characters alone has no label (group_keys: label_text gives ''); only texts can be
+        # such cells, so they are compared exactly
+        unlabelled = {v for v in distinct if not label_text(v)}
+        if unlabelled:
+            labelled &= np.array([not (isinstance(v, str) and v in unlabelled) for v in values], dtype=bool)
+    return labelled
 
 
 def design_test(fit_options, design: DesignColumns):

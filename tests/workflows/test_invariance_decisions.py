@@ -147,7 +147,12 @@ def test_no_latent_mean_for_a_factor_with_fewer_than_two_equal_items():
     data.loc[data["grp"] == "g2", "y5"] += 0.3
     data.loc[data["grp"] == "g2", "y6"] -= 0.8
     result = invariance(MODEL, data, "grp", partial="auto")
-    assert sorted(f.variables[0] for f in result.freed) == ["y5", "y6"]
+    # y6's intercept first; then y4's and y5's score tests are equal (133.74 in this tool's run): with h's mean free and
+    # one of its two intercepts left free, the two models are one model (the same fit, the mean and the intercepts
+    # moved together), so which one the search names is decided by rounding (y5 before the closed-form grouped
+    # Hessian of speed-s17, y4 after, their scores 2e-5 apart in 134)
+    freed = sorted(f.variables[0] for f in result.freed)
+    assert freed in (["y4", "y6"], ["y5", "y6"]) and result.freed[0].variables == ("y6",)
     assert {d.factor for d in result.latent_differences} == {"f"}
     assert "None for h: fewer than two of its items keep equal loadings and intercepts" in result.latent_note
     # every column of the table is explained in its note (the variance ratio was not)
