@@ -306,9 +306,11 @@ def scaling_at_restricted(restricted: FitResult, table, model, likelihood, start
     (Satorra & Bentler 1994), the restricted fit's own factor being computed so at its estimates.  Rows with gaps
     (full-information ML, the Yuan-Bentler (2000) factor): both factors are computed at the one point with one
     information and one Gamma, the data's (inference.robust_missing.scaling_at: the rows' observed information in
-    the moments, means included, their patterns), the restricted one on ``restricted_likelihood`` (the restricted
-    model's own, required then) -- the fit's bread, the observed information in the parameters, holds a term in the
-    score that is not zero for the general model there, and with it c_d came out negative for nested models.
+    the moments at the saturated ones, means included, their patterns), the restricted one on
+    ``restricted_likelihood`` (the restricted model's own, required then) -- the fit's bread, the observed
+    information in the parameters, holds a term in the score that is not zero for the general model there, and with
+    it c_d came out negative for nested models; the observed information at the restricted model's moments holds
+    one in the residuals, and with it c_d fell far below 1 on normal rows when the restricted model fitted badly.
     ``start``: the general model's estimates.  ``general`` None when the general model has no degrees of freedom,
     M10 does not reproduce the restricted model's moments or the information there is not positive definite
     (``why_not`` says which)."""
