@@ -1317,8 +1317,8 @@ def stops_ordinal_fit(n: int) -> str:
 
 
 def _answer_tables(found) -> tuple[ReportTable, ...]:
-    """A check's tables of answers per category (data.answer_counts), one per group, with the items not shown named:
-    those of more different answers than an ordinal item may have, or of answers that are not whole numbers."""
+    """A check's table of answers per category (data.answer_counts), every group in it, with the items not shown
+    named: those of more different answers than an ordinal item may have, or of answers that are not whole numbers."""
     if not found.answers:
         return ()
     several = len(found.answers) > 1
@@ -1326,9 +1326,9 @@ def _answer_tables(found) -> tuple[ReportTable, ...]:
     others = [x for x in found.spec.observed_names if x not in shown]
     left = (f" Not shown: {', '.join(others)} (more different answers than an ordinal item may have, or answers that "
             f"are not whole numbers)." if others else "")
-    return tuple(T.answer_table(a, f"categories_{k}", f" in group {written_group(a.group, tuple(found.groups))}" if several else "", groups=several,
-                                analysed=" (rows with an answer, before any fit)", after=left)
-                 for k, a in enumerate(found.answers))
+    names = tuple(written_group(a.group, tuple(found.groups)) for a in found.answers) if several else ()
+    return (T.answer_table(found.answers, T.CATEGORY_TABLE, " in each group" if several else "", groups=several,
+                           analysed=" (rows with an answer, before any fit)", after=left, group_names=names),)
 
 
 BUILDERS = {ResultKind.COMPARE: comparison_report, ResultKind.INVARIANCE: invariance_report,
