@@ -155,4 +155,12 @@ def few_category_note(few: tuple[str, ...], names: tuple[str, ...]) -> Note | No
                  f"come out too small and the fit to be misjudged, and analysing the answers as ordered categories is "
                  f"usually preferred (Rhemtulla, Brosseau-Liard & Savalei 2012)",
                  Command(": " + option_in_both(f"--ordinal {which}",
-                                               "ordinal=" + repr("all" if which == "all" else list(few))))))
+                                               "ordinal=" + repr("all" if which == "all" else list(few)))),
+                 Command(ANSWERS_PER_CATEGORY)))
+
+
+#: where a fit that analyses items of few categories as continuous (and so shows no table of their answers) sends
+#: its reader for the rows giving each answer: check's table (data.answer_counts), before any fit
+ANSWERS_PER_CATEGORY = (". The check command shows how many rows gave each answer to each item, empty and rare "
+                        "categories marked: "
+                        + option_in_both("cfa-tool check MODEL --data FILE", "cfa_tool.check(model, data)"))

@@ -40,9 +40,9 @@ def fit_tables(result) -> list[ReportTable]:
                               of_group(result, g, [T.modification_table(result, g)]))
     else:
         out += in_section("Modification indices", [T.modification_table(result)])
-    data = [T.item_table(result)]
+    data = [T.item_table(result), T.category_table(result)]  # the answers per category: one table, every group in it
     for g in range(len(result.groups)):
-        data += of_group(result, g, [T.category_table(result, g), T.correlation_table(result, g)])
+        data += of_group(result, g, [T.correlation_table(result, g)])
     out += in_section("Data", data + T.label_tables(result))
     return out
 

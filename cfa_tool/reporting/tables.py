@@ -14,6 +14,7 @@ from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST, MissingData, WeightKind
 from cfa_tool.note_parts import Command, Note, TableReference, Text, read, said, saved
 from cfa_tool.language.names import names_text, written_group
+from cfa_tool.options import option_in_both
 from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
 from cfa_tool.reporting.numbers import (fit_index_text, guide_text, missing, num, p_phrase, p_value, short, unit,
@@ -1238,17 +1239,24 @@ def fit_answer_counts(result, group: int = 0):
                         tuple(tuple((v, labels[name][v]) for v in codes if v in labels.get(name, {})) for name in names))
 
 
-def category_table(result, group: int = 0) -> ReportTable | None:
+def category_table(result) -> ReportTable | None:
     """Ordinal items of a fit: how many rows gave each answer (with the share), per item, in the one table of answers
-    per category (:func:`answer_table`) that ``check`` shows before the fit."""
-    answers = fit_answer_counts(result, group)
-    if answers is None:
+    per category (:func:`answer_table`) that ``check`` shows before the fit; every group in that one table."""
+    found = [a for a in (fit_answer_counts(result, g) for g in range(len(result.groups))) if a is not None]
+    if not found:
         return None
     weights = _weights_column(result)
-    return answer_table(answers, f"categories_{group}", _in_group(result, answers.group), groups=result.multigroup,
+    labels = group_labels(result)
+    return answer_table(tuple(found), CATEGORY_TABLE, " in each group" if len(found) > 1 else "",
+                        groups=result.multigroup, group_names=tuple(written_group(a.group, labels) for a in found)
+                        if result.multigroup else (),
                         analysed=" (rows analysed" + ("" if weights is None else ", each counted once: unweighted")
                         + ")", after="" if weights is None else
                         f" Rows are counted once each, unweighted; the thresholds use the shares weighted by {weights}.")
+
+
+#: the key of a report's table of answers per category (one table, every group in it)
+CATEGORY_TABLE = "categories"
 
 
 def few_answers_warning(result) -> Note | None:
@@ -1265,7 +1273,7 @@ def few_answers_warning(result) -> Note | None:
         cells = [f"{name} {v:g} ({c} row{'' if c == 1 else 's'}){where}" for i, name in enumerate(answers.items)
                  for j, (v, c) in enumerate(zip(answers.codes, answers.counts[i])) if answers.sparse(i, j)]
         if cells and key is None:
-            key = f"categories_{g}"
+            key = CATEGORY_TABLE
         found += cells
     if not found:
         return None
@@ -1293,39 +1301,54 @@ NO_ANSWER_MARK, FEW_ANSWERS_MARK = "none", "few"
 
 
 def answer_table(answers, key: str, where: str = "", groups: bool = False, analysed: str = "",
-                 after: str = "") -> ReportTable:
-    """The table of answers per category of ``answers`` (data.answer_counts.AnswerCounts): one row per item, one
-    column per answer code (headed by its label when every item labels it alike), each cell the rows giving it and
-    their share, an empty category marked 'none' and one given by few rows 'few', the items with either flagged.
-    ``where``: ' in group x'; ``groups``: the rows come in groups (an empty category then stops an ordinal fit);
-    ``analysed``: the title's words on the rows counted; ``after``: the note's last words."""
-    codes = answers.codes
-    shared = _shared_labels(answers)
+                 after: str = "", group_names: tuple[str, ...] = ()) -> ReportTable:
+    """The table of answers per category of ``answers`` (data.answer_counts.AnswerCounts, or one per group): one row
+    per item, one column per answer code (headed by its label when every item labels it alike), each cell the rows
+    giving it and their share, an empty category marked 'none' and one given by few rows 'few', the items with either
+    flagged.  Several groups make one table, a column naming the group on its first item's row (as a group's rows
+    are grouped), so that fourteen groups read as one table and not fourteen (review s17); ``group_names``: each
+    group as the note's sentences write it (language.names.written_group).  ``where``: the title's words on where the rows come from; ``groups``: the rows
+    come in groups (an empty category then stops an ordinal fit); ``analysed``: the title's words on the rows
+    counted; ``after``: the note's last words."""
+    parts = (answers,) if not isinstance(answers, (tuple, list)) else tuple(answers)
+    several = len(parts) > 1
+    names = tuple(group_names) or tuple(str(a.group) for a in parts)
+    codes = tuple(sorted({v for a in parts for v in a.codes}))
+    shared = _shared_labels(parts[0])
+    if any(_shared_labels(a) != shared for a in parts[1:]) or (shared and set(shared) != set(codes)):
+        shared = {}
     rows, values, flagged, few, none, ends = [], [], [], [], [], set()
-    for i, name in enumerate(answers.items):
-        total = answers.answered(i) or 1
-        cells = []
-        for j, v in enumerate(codes):
-            c = answers.counts[i][j]
-            if answers.empty(i, j):
-                cells.append(NO_ANSWER_MARK)
-                none.append(f"{name} {v:g}")
-            elif c == 0:
-                cells.append("")
-            else:
-                cells.append(f"{c} ({100 * c / total:.0f}%)" + (f" {FEW_ANSWERS_MARK}" if answers.sparse(i, j) else ""))
-                if answers.sparse(i, j):
-                    few.append(f"{name} {v:g} ({c} row{'' if c == 1 else 's'})")
-                    if v in (answers.scale[i][0], answers.scale[i][-1]):  # the lowest or highest answer: a stray value?
-                        ends.add(v)
-        if answers.flagged(i):
-            flagged.append(len(rows))
-        rows.append([name, *cells])
-        values.append([name, *[c if c or v in answers.scale[i] else None for v, c in zip(codes, answers.counts[i])]])
+    for a, group in zip(parts, names):
+        in_group = f" in group {group}" if several else ""
+        for i, name in enumerate(a.items):
+            total = a.answered(i) or 1
+            cells, counts = [], []
+            for v in codes:
+                j = a.codes.index(v) if v in a.codes else None  # a code of another group only: outside this item's
+                c = 0 if j is None else a.counts[i][j]
+                counts.append(c if c or (j is not None and v in a.scale[i]) else None)
+                if j is not None and a.empty(i, j):
+                    cells.append(NO_ANSWER_MARK)
+                    none.append(f"{name} {v:g}{in_group}")
+                elif c == 0:
+                    cells.append("")
+                else:
+                    sparse = a.sparse(i, j)
+                    cells.append(f"{c} ({100 * c / total:.0f}%)" + (f" {FEW_ANSWERS_MARK}" if sparse else ""))
+                    if sparse:
+                        few.append(f"{name} {v:g}{in_group} ({c} row{'' if c == 1 else 's'})")
+                        if v in (a.scale[i][0], a.scale[i][-1]):  # the lowest or highest answer: a stray value?
+                            ends.add(v)
+            if a.flagged(i):
+                flagged.append(len(rows))
+            first = [str(a.group) if i == 0 else ""] if several else []  # a cell holds the label as it is
+            rows.append([*first, name, *cells])
+            values.append([*([a.group] if several else []), name, *counts])  # the label itself, for data files
     note = ("Each column is an answer code" + (" and its label" if shared else "") + "; each cell: the rows giving it "
-            "and their share of the item's answers; an empty cell: a code outside the item's answers.")
+            "and their share of the item's answers" + ("" if not several else " in its group")
+            + "; an empty cell: a code outside the item's answers.")
     if not shared:
-        note += _labels_note(answers)
+        note += _labels_note(parts[0])
     if few:
         note += (f" {FEW_ANSWERS_MARK}: fewer than 5 rows, or 1% of the item's answers when that is more (a rule of "
                  f"thumb of this project, not a published cutoff): a threshold next to such a category rests on those "
@@ -1335,15 +1358,24 @@ def answer_table(answers, key: str, where: str = "", groups: bool = False, analy
                  + (", in any group" if groups else "") + ") that no row gave"
                  + ("; an ordinal fit of the groups stops there, since thresholds are compared across groups"
                     if groups else "; an ordinal fit estimates no threshold for it") + f" ({_listed(none)}).")
-    stray = ",".join(f"{v:g}" for v in sorted(ends))
-    if few or none:
-        note += (" Check such an answer first: "
-                 + (f"if {stray.replace(',', ' or ')} is a typing error or a code for no answer, give --missing-codes "
-                    f"{stray}; " if ends else "a typing error or a code for no answer can be given as missing; ")
-                 + "a real answer's category can be merged with its neighbour's in a copy of the data file.")
-    columns = [("Item", "l")] + [(f"{v:g} {shared[v]}" if shared else f"{v:g}", "r") for v in codes]
-    return _table(key, f"Answers per category{where}{analysed}", columns, rows, note + after,
-                  flagged=tuple(flagged), values=(["Item"] + [f"Answer {v:g} rows" for v in codes], values))
+    text: Text = note
+    if few or none:  # the option that reads a stray code as no answer is a command part: a manuscript names none
+        stray = [f"{v:g}" for v in sorted(ends)]
+        missing_as = "a typing error or a code for no answer can be given as missing; "
+        text = Note((note + " Check such an answer first: ",
+                     Command(f"if {' or '.join(stray)} is a typing error or a code for no answer, give "
+                             + option_in_both(f"--missing-codes {','.join(stray)}",
+                                              f"missing_codes=[{', '.join(stray)}]") + "; ", missing_as)
+                     if ends else missing_as,
+                     "a real answer's category can be merged with its neighbour's in a copy of the data file."
+                     + after))
+    else:
+        text = note + after
+    columns = ([("Group", "l")] if several else []) + [("Item", "l")] + [
+        (f"{v:g} {shared[v]}" if shared else f"{v:g}", "r") for v in codes]
+    value_columns = (["Group"] if several else []) + ["Item"] + [f"Answer {v:g} rows" for v in codes]
+    return _table(key, f"Answers per category{where}{analysed}", columns, rows, text, flagged=tuple(flagged),
+                  values=(value_columns, values))
 
 
 def _shared_labels(answers) -> dict[float, str]:

@@ -267,6 +267,14 @@ def boundary_note(tests, explained: str | None = None, criteria: bool = True, or
     return f"* On the boundary: {what}: {BOUNDARY_CAUTION}. {reading}"
 
 
+#: which difference test of a comparison with a robust test to read (the one its methods paragraph reports)
+READ_POSITIVE = (f"Which difference test to read: the {DifferenceMethod.SATORRA_BENTLER_2010}, as the methods paragraph "
+                 f"does. It carries the robust test's correction for rows that are not normal, and its correction "
+                 f"cannot be negative; the 2001 version's, a difference of the two fits' factors, is unstable on few df "
+                 f"and can be negative (Satorra & Bentler 2010); the likelihood-ratio difference holds for normal "
+                 f"rows of a simple random sample only.")
+
+
 def comparison_report(comparison) -> Report:
     named = list(zip(comparison.names, comparison.results))
     criteria = all(r.fit is not None and not missing(r.fit.aic) and not missing(r.fit.bic)
@@ -337,6 +345,9 @@ def comparison_report(comparison) -> Report:
             else:
                 rows.append([t.method, f"{t.chi_square_difference:.3f} ({t.df_difference})",
                              p_value(t.p_value) + (" *" if boundary else ""), signed(t.delta_cfi), signed(t.delta_rmsea)])
+                if t.scaled_by:  # the factors and correction a scaled difference took, as computed (nesting._scaled_by)
+                    pair = f" ({restricted} against {general})" if len(pairs) > 1 else ""
+                    notes.append(f"{t.method}{pair}: {t.scaled_by}.")
             values.append([t.method, None if t.not_computed else t.chi_square_difference, t.df_difference,
                            None if t.not_computed else t.p_value, t.delta_cfi, t.delta_rmsea, t.not_computed,
                            "; ".join(t.boundary), None if missing(t.boundary_p_value) else t.boundary_p_value])
@@ -360,6 +371,8 @@ def comparison_report(comparison) -> Report:
                              columns, rows, boundary_note(found, explained, criteria, ordinal) if boundary else None,
                              values=(value_names, values)))
         explained = key if boundary and explained is None else explained
+    if any(t.method is DifferenceMethod.SATORRA_BENTLER_2010 and not t.not_computed for t in comparison.tests):
+        notes.append(READ_POSITIVE)
     for n in comparison.not_nested:
         advice = " Compare them by AIC and BIC (lower is better)." if n.information_criteria else ""
         notes.append(f"Not tested: {n.first} and {n.second}: {n.reason}.{advice}")
@@ -1305,8 +1318,8 @@ def stops_ordinal_fit(n: int) -> str:
 
 
 def _answer_tables(found) -> tuple[ReportTable, ...]:
-    """A check's tables of answers per category (data.answer_counts), one per group, with the items not shown named:
-    those of more different answers than an ordinal item may have, or of answers that are not whole numbers."""
+    """A check's table of answers per category (data.answer_counts), every group in it, with the items not shown
+    named: those of more different answers than an ordinal item may have, or of answers that are not whole numbers."""
     if not found.answers:
         return ()
     several = len(found.answers) > 1
@@ -1314,9 +1327,9 @@ def _answer_tables(found) -> tuple[ReportTable, ...]:
     others = [x for x in found.spec.observed_names if x not in shown]
     left = (f" Not shown: {', '.join(others)} (more different answers than an ordinal item may have, or answers that "
             f"are not whole numbers)." if others else "")
-    return tuple(T.answer_table(a, f"categories_{k}", f" in group {written_group(a.group, tuple(found.groups))}" if several else "", groups=several,
-                                analysed=" (rows with an answer, before any fit)", after=left)
-                 for k, a in enumerate(found.answers))
+    names = tuple(written_group(a.group, tuple(found.groups)) for a in found.answers) if several else ()
+    return (T.answer_table(found.answers, T.CATEGORY_TABLE, " in each group" if several else "", groups=several,
+                           analysed=" (rows with an answer, before any fit)", after=left, group_names=names),)
 
 
 BUILDERS = {ResultKind.COMPARE: comparison_report, ResultKind.INVARIANCE: invariance_report,

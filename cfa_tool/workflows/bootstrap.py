@@ -574,16 +574,15 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     without_exploratory_blocks(spec, "bootstrap", "it resamples the parameters, and a block's rotated loadings are "
                                                   "not among them")
     if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:
-        if missing is not None:  # the resamples are refitted from pairwise present rows, as the ordinal fit's default
-            raise OptionError(f"the bootstrap of ordinal items keeps the rows with missing answers (each correlation "
-                              f"from the rows that answered both items, in the fit and in every resample), so "
-                              f"{check.Option.INCOMPLETE_ROWS} cannot apply; leave it out")
         if design is not None:
             raise OptionError(f"{ORDINAL_DESIGN}, so the {design.names[0][0]} column '{design.names[0][1]}' cannot "
                               f"apply; leave out the design")
+        # the rows as fit takes them: every answer (pairwise present rows) by default, the complete rows with
+        # missing='listwise' (a half of halves drawn from the complete rows is read so: data.halves.half_kept), in
+        # the fit and in every resample (ordinal_resampling.analysed_rows); full-information ML refused as fit does
         with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
-            result = with_odd_values(_fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator),
-                                     loaded, None, spec)
+            result = with_odd_values(_fit_rows(spec, loaded, notes, None, None, FitOptions(missing=missing), ordinal,
+                                               ordinal_estimator), loaded, None, spec)
         return bootstrap_fit(result, spec, numeric_columns(frame, result.observed, source), replications, seed,
                              bollen_stine, False, workers, scheduler, progress)
     if design is not None:

@@ -358,7 +358,9 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
     one_group_only(spec, "the cutoffs are simulated for one group's model")
     if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:
         with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
-            result = _fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator)
+            # the rows as fit takes them: pairwise present rows by default, the complete rows with missing='listwise'
+            # (given before, it was left unused), full-information ML refused as fit refuses it
+            result = _fit_rows(spec, loaded, notes, None, None, FitOptions(missing=missing), ordinal, ordinal_estimator)
         return fit_cutoffs(spec, with_odd_values(result, loaded, None, spec), replications, seed, workers, scheduler, progress)
     handling, missing_notes = refit_missing_handling(frame, spec.observed_names, missing)
     moments = sample_moments(frame, spec.observed_names, source, missing=handling)

@@ -17,7 +17,7 @@ from cfa_tool.numerics import distributions as dist
 from cfa_tool.data.moments import SampleMoments
 from cfa_tool.pipeline.continuous import Estimation, FitOptions, estimate
 from cfa_tool.language.spec import Spec
-from cfa_tool.method import DifferenceMethod
+from cfa_tool.method import DifferenceMethod, FitTest
 from cfa_tool.pipeline.results import FitResult, clean
 
 NESTING_TOLERANCE = 1e-7  # minimum discrepancy below which the implied moments count as reproduced
@@ -40,10 +40,16 @@ class DifferenceTest:
     # p from the 50:50 mixture of chi-square(df - 1) and chi-square(df) when exactly one parameter lies on the
     # boundary (Self & Liang 1987); NaN otherwise
     boundary_p_value: float = float("nan")
+    # a scaled difference: the two scaling factors its correction took (the restricted model's, the general
+    # model's), the correction c_d, and how they were computed, in words (NaN and '' otherwise)
+    scaling_factors: tuple[float, float] = (float("nan"), float("nan"))
+    correction: float = float("nan")
+    scaled_by: str = ""
 
     def to_dict(self) -> dict:
         out = clean(dict(self.__dict__))
         out["not_computed"] = self.not_computed or None
+        out["scaled_by"] = self.scaled_by or None
         return out
 
 
@@ -258,7 +264,9 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
         if cd > 0:
             diff = (r.chi_square - g.chi_square) / cd
             out.append(DifferenceTest(restricted_name, general_name, diff, ddf, float(dist.chi2_sf(max(diff, 0.0), ddf)),
-                                      method, delta_cfi, delta_rmsea))
+                                      method, delta_cfi, delta_rmsea, scaling_factors=(float(c0), float(c1)),
+                                      correction=float(cd), scaled_by=_scaled_by(method, rr, c0, c1, cd,
+                                                                                 restricted_scaling is not None)))
         else:
             out.append(DifferenceTest(restricted_name, general_name, float("nan"), ddf, float("nan"), method, delta_cfi,
                                       delta_rmsea, f"its scaling correction is not positive ({cd:.3f}), so the "
@@ -271,6 +279,44 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
                                               is not None else "the strictly positive version is not available "
                                                                "either"))))
     return out
+
+
+def _scaled_by(method: DifferenceMethod, robust, c0: float, c1: float, cd: float, recomputed: bool) -> str:
+    """How a scaled difference was scaled, in words, with its factors and correction (its row's note in every view and
+    the JSON's ``scaled_by``): the fits' own factors, as their table shows them, for the 2001 version (Satorra &
+    Bentler 2001); for the 2010 version the general model's at the restricted model's estimates beside the
+    restricted fit's own, or (``recomputed``, full-information ML) both computed alike there with the rows' observed
+    information at the saturated moments (inference.robust_missing.scaling_at), the restricted one then not its
+    fit's own.  The Yuan-Bentler factors of full-information fits rest on the observed information, the
+    Satorra-Bentler ones on the expected: on complete rows the two differ where a model does not fit the data."""
+    label = robust.label
+    information = "observed" if robust.test is FitTest.YUAN_BENTLER else "expected"
+    if method is DifferenceMethod.SATORRA_BENTLER_2001:
+        text = (f"correction {cd:.3f} from the two fits' own scaling factors, {c0:.3f} and {c1:.3f} ({label}, on the "
+                f"{information} information)")
+        if robust.test is FitTest.YUAN_BENTLER:
+            text += ("; on complete rows the Satorra-Bentler factors, on the expected information, differ from these "
+                     "where a model does not fit the data")
+    elif recomputed:
+        text = (f"correction {cd:.3f} from two scaling factors computed alike at the restricted model's estimates "
+                f"({label}, on the rows' observed information at the saturated moments): the restricted model's "
+                f"{c0:.3f} (its fit's own is {robust.scaling_factor:.3f}) and the general model's {c1:.3f}")
+    else:
+        text = (f"correction {cd:.3f} from the restricted fit's own scaling factor, {c0:.3f}, and the general model's "
+                f"at the restricted model's estimates, {c1:.3f} ({label}, on the {information} information at the "
+                f"restricted model's implied moments)")
+    if cd < WELL_BELOW_ONE:
+        text += (f"; a correction below 1 makes the scaled difference larger than the unscaled one (here "
+                 f"{1 / cd:.1f} times it): the rows vary less than normal rows in what the restriction tests (lighter "
+                 f"tails than normal, or strata), or the correction is imprecise"
+                 + (" (a difference of two factors, unstable on few df; Satorra & Bentler 2010)"
+                    if method is DifferenceMethod.SATORRA_BENTLER_2001 else ""))
+    return text
+
+
+#: a correction of a scaled difference below which its note says why the scaled difference exceeds the unscaled one
+#: (this project's line, not a published one: normal rows give about 1)
+WELL_BELOW_ONE = 0.8
 
 
 def scaled_difference(restricted: FitResult, general: FitResult, general_estimation: Estimation, restricted_name: str,
@@ -306,9 +352,11 @@ def scaling_at_restricted(restricted: FitResult, table, model, likelihood, start
     (Satorra & Bentler 1994), the restricted fit's own factor being computed so at its estimates.  Rows with gaps
     (full-information ML, the Yuan-Bentler (2000) factor): both factors are computed at the one point with one
     information and one Gamma, the data's (inference.robust_missing.scaling_at: the rows' observed information in
-    the moments, means included, their patterns), the restricted one on ``restricted_likelihood`` (the restricted
-    model's own, required then) -- the fit's bread, the observed information in the parameters, holds a term in the
-    score that is not zero for the general model there, and with it c_d came out negative for nested models.
+    the moments at the saturated ones, means included, their patterns), the restricted one on
+    ``restricted_likelihood`` (the restricted model's own, required then) -- the fit's bread, the observed
+    information in the parameters, holds a term in the score that is not zero for the general model there, and with
+    it c_d came out negative for nested models; the observed information at the restricted model's moments holds
+    one in the residuals, and with it c_d fell far below 1 on normal rows when the restricted model fitted badly.
     ``start``: the general model's estimates.  ``general`` None when the general model has no degrees of freedom,
     M10 does not reproduce the restricted model's moments or the information there is not positive definite
     (``why_not`` says which)."""

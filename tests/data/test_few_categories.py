@@ -29,8 +29,30 @@ def test_items_of_four_categories_are_named_with_the_remedy():
     result = cfa_tool.fit(MODEL, data)
     (note,) = [str(w) for w in result.warnings if "answer categories" in w]
     assert note.startswith("4 of the 4 items (y1, y2, y3, y4) have at most 4 answer categories") and \
-        note.endswith("--ordinal all; from Python, ordinal='all'")  # the option and the keyword, for either reader
+        "(Rhemtulla, Brosseau-Liard & Savalei 2012): --ordinal all; from Python, ordinal='all'. " in note  # either reader
     assert not [w for w in cfa_tool.fit(MODEL, data, ordinal="all").warnings if "answer categories" in w]
+
+
+def test_the_note_sends_the_reader_to_checks_answers_per_category_and_that_route_runs():
+    # review s17: a fit of items of few categories as continuous shows no table of their answers (the ordinal fit's
+    # report does); its note names check, which shows the rows giving each answer (data.answer_counts), in words a
+    # manuscript leaves out (note_parts.Command).  Check values: the answers counted by pandas' value_counts
+    from cfa_tool.note_parts import WORDS, Command
+
+    data = _answers(4)
+    data.loc[::7, "y2"] = np.nan
+    (note,) = [w for w in cfa_tool.fit(MODEL, data).warnings if "answer categories" in w]
+    assert str(note).endswith(". The check command shows how many rows gave each answer to each item, empty and rare "
+                              "categories marked: cfa-tool check MODEL --data FILE; from Python, "
+                              "cfa_tool.check(model, data)")
+    assert any(isinstance(p, Command) and "cfa_tool.check(model, data)" in p.text for p in note.parts)
+    assert "check" not in note.said(WORDS)  # the Word file names no command
+    found = cfa_tool.check(MODEL, data)  # the route the note names, taken
+    (counts,) = found.answers
+    assert counts.items == ("y1", "y2", "y3", "y4")
+    for i, item in enumerate(counts.items):
+        expected = data[item].value_counts()
+        assert counts.counts[i] == tuple(int(expected.get(code, 0)) for code in counts.codes)
 
 
 def test_five_categories_or_measures_bring_no_note():

@@ -31,8 +31,11 @@ def test_robust_statistics_appear_in_the_comparison_table(hs_data):
 def test_a_scaled_difference_that_cannot_be_computed_says_why():
     # Satorra & Bentler (2001): c_d = (df0 c0 - df1 c1) / (df0 - df1); with c0 = 1.0, df0 = 10, c1 = 2.0, df1 = 8
     # c_d = (10 - 16) / 2 = -3 < 0, so the 2001 statistic does not exist
+    from cfa_tool.method import FitTest
+
     fit = lambda chi, df: SimpleNamespace(chi_square=chi, df=df)  # noqa: E731
-    robust = lambda c: SimpleNamespace(scaling_factor=c, cfi_robust=0.9, rmsea_robust=0.05)  # noqa: E731
+    robust = lambda c: SimpleNamespace(scaling_factor=c, cfi_robust=0.9, rmsea_robust=0.05,  # noqa: E731
+                                       test=FitTest.SATORRA_BENTLER, label="Satorra-Bentler")
     restricted = SimpleNamespace(fit=fit(30.0, 10), robust=robust(1.0))
     general = SimpleNamespace(fit=fit(20.0, 8), robust=robust(2.0))
     first, second = scaled_difference_tests(restricted, general, "a", "b", general_scaling_at_restricted=1.1)
@@ -40,6 +43,11 @@ def test_a_scaled_difference_that_cannot_be_computed_says_why():
     assert first.to_dict()["not_computed"] == first.not_computed
     # the 2010 version with c1 = 1.1: c_d = (10 - 8.8) / 2 = .6, T_d = 10 / .6
     assert second.not_computed == "" and second.chi_square_difference == pytest.approx(10 / 0.6)
+    # a correction well below 1 says why the scaled difference exceeds the unscaled one, and by how much (1 / .6)
+    assert second.correction == pytest.approx(0.6) and second.scaling_factors == (1.0, 1.1)
+    assert ("correction 0.600 from the restricted fit's own scaling factor, 1.000, and the general model's at the "
+            "restricted model's estimates, 1.100" in second.scaled_by)
+    assert "larger than the unscaled one (here 1.7 times it)" in second.scaled_by
 
 
 def test_standardized_expected_change_of_a_residual_covariance_is_a_residual_correlation(hs_data):

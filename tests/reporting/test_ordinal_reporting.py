@@ -148,7 +148,7 @@ def test_answer_columns_are_codes_and_a_category_of_one_answer_is_named():
 
     fitted = cfa_tool.fit("factor f: a, b, c, d\n", data, ordinal="all")
     (few,) = [w for w in fit_report(fitted).warnings if "given by few rows" in str(w)]
-    assert "b 0 (1 row)" in str(few) and any(getattr(p, "key", None) == "categories_0" for p in few.parts)
+    assert "b 0 (1 row)" in str(few) and any(getattr(p, "key", None) == "categories" for p in few.parts)
     assert not any("given by few rows" in str(w) for w in fit_report(
         cfa_tool.fit("factor f: a, b, c, d\n", data.replace(0.0, 1.0), ordinal="all")).warnings)
     assert 1 in table.flagged

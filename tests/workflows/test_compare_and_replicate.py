@@ -210,11 +210,12 @@ def test_rows_with_gaps_are_kept_by_full_information_as_fit_keeps_them(hs_data):
     assert listwise.missing.value == "listwise" and listwise.n_obs == int(data[[f"x{k}" for k in range(1, 10)]].notna().all(axis=1).sum())
 
 
-def _hand_scaling_pieces(rows, saturated_mean, saturated_cov, mu, sigma):
+def _hand_scaling_pieces(rows, saturated_mean, saturated_cov):
     """The Yuan-Bentler (2000) pieces written out row by row, for the checks below: f_i = log|S_oo| + r_o' S_oo^-1 r_o;
     scores d f_i / d(mu, vech Sigma) through the duplication matrix; the observed information in beta = (mu, vech
-    Sigma) by central differences of the mean score; B the mean outer product of the scores.  Returns (W at (mu,
-    sigma), Gamma = H_s^-1 B_s H_s^-1 at the saturated moments, the rows' scores there, the vech pairs)."""
+    Sigma) by central differences of the mean score; B the mean outer product of the scores.  Returns (W = H_s, the
+    observed information at the saturated moments, Gamma = H_s^-1 B_s H_s^-1 there, the rows' scores there, the
+    vech pairs)."""
     p = rows.shape[1]
     pairs = [(i, j) for j in range(p) for i in range(j, p)]
     dup = np.zeros((p * p, len(pairs)))  # vec(Sigma) = dup @ vech(Sigma)
@@ -242,7 +243,7 @@ def _hand_scaling_pieces(rows, saturated_mean, saturated_cov, mu, sigma):
     s_scores = scores_at(saturated)
     H_s = information(saturated)
     gamma = np.linalg.solve(H_s, np.linalg.solve(H_s, s_scores.T @ s_scores / len(rows)).T)
-    return information(np.concatenate([mu, sigma[vech]])), gamma, s_scores, pairs
+    return H_s, gamma, s_scores, pairs
 
 
 def _hand_scaling_at(W, gamma, D, df):
@@ -268,8 +269,10 @@ def _three_factor_moments(t):
                                                 ("uncorrelated visual, textual, speed\n", {7: 0.0, 9: 0.0, 10: 0.0})])
 def test_robust_comparison_with_gaps_gives_the_strictly_positive_version(hs_data, restriction, fixed):
     # Satorra & Bentler (2010) with the incomplete-data scaling of Yuan & Bentler (2000): both models' factors at the
-    # restricted model's estimates, U from the rows' observed information there, Gamma the data's; checked against
-    # the formula written out row by row with the general model written by hand.  Before, the general model's factor
+    # restricted model's estimates (D there), U from the rows' observed information at the saturated moments (W), Gamma
+    # the data's; checked against the formula written out row by row with the general model written by hand.  W was
+    # the observed information at the restricted model's moments before this session, which a badly fitting model
+    # turns far from the data's (tests/inference/test_scaled_difference_by_hand.py).  Before, the general model's factor
     # took the fit's observed information in its parameters at that point, which holds the score times the second
     # derivatives of the moments: the uncorrelated model gave 25.5 here against 46.1 by hand, and on a survey
     # (test below) a negative correction blamed on the models' nesting
@@ -302,7 +305,7 @@ def test_robust_comparison_with_gaps_gives_the_strictly_positive_version(hs_data
     assert np.max(np.abs(fitted.fun)) < 1e-9  # the restricted model's estimates in the general model's parameters
     saturated = general.groups[0]
     W, gamma, scores, pairs = _hand_scaling_pieces(data.to_numpy(float), saturated.sample_mean,
-                                                   saturated.sample_covariance, mu_r, sigma_r)
+                                                   saturated.sample_covariance)
     assert np.abs(scores.mean(axis=0)).max() < 1e-6  # the EM moments solve the saturated score equations
 
     def vech_moments(t):

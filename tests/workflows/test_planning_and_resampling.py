@@ -499,9 +499,11 @@ def test_sample_sizes_are_tabled_from_the_smallest_whatever_the_order_typed():
         options.sample_sizes("200,50,50")
 
 
-def test_the_ordinal_bootstrap_refuses_a_way_of_handling_gaps_it_would_not_use(tmp_path, capsys):
-    """The ordinal bootstrap fits and refits from pairwise present rows; a choice of how rows with gaps are handled
-    was silently ignored: an error naming the option as the caller wrote it."""
+def test_the_ordinal_bootstrap_handles_gaps_as_fit_does(tmp_path, capsys):
+    """The ordinal bootstrap fits and refits from pairwise present rows by default; a choice of how rows with gaps
+    are handled was once silently ignored, then refused (s16), which left the advice to read a half of the complete
+    rows with missing='listwise' no route that ran (s17): now it takes the complete rows as fit does, and refuses
+    full-information ML as fit does, naming the option as the caller wrote it."""
     import cfa_tool
     from cfa_tool.cli import main
     from cfa_tool.errors import OptionError
@@ -512,13 +514,17 @@ def test_the_ordinal_bootstrap_refuses_a_way_of_handling_gaps_it_would_not_use(t
     for x in [f"x{i}" for i in range(1, 10)]:
         ordinal[x] = np.digitize(data[x], np.quantile(data[x], [0.25, 0.5, 0.75]))
     ordinal.loc[[3, 7], "x2"] = np.nan
-    with pytest.raises(OptionError, match=r"so missing=\.\.\. cannot apply"):
-        cfa_tool.bootstrap(THREE_FACTORS, ordinal, ordinal="all", missing="listwise", replications=10)
+    done = cfa_tool.bootstrap(THREE_FACTORS, ordinal, ordinal="all", missing="listwise", replications=10)
+    assert done.fit.n_obs == len(ordinal) - 2 and done.fit.method.missing.value == "listwise"
+    with pytest.raises(OptionError, match=r"or only the complete rows with missing='listwise'"):
+        cfa_tool.bootstrap(THREE_FACTORS, ordinal, ordinal="all", missing="full-information", replications=10)
     ordinal.to_csv(tmp_path / "o.csv", index=False)
     (tmp_path / "m.cfa").write_text(THREE_FACTORS)
     assert main(["bootstrap", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "o.csv"), "--ordinal", "all",
-                 "--incomplete-rows", "listwise", "--replications", "10"]) == 2
-    assert "so --incomplete-rows cannot apply" in capsys.readouterr().err
+                 "--incomplete-rows", "listwise", "--replications", "10"]) == 0
+    assert main(["bootstrap", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "o.csv"), "--ordinal", "all",
+                 "--incomplete-rows", "full-information", "--replications", "10"]) == 2
+    assert "or only the complete rows with --incomplete-rows listwise" in capsys.readouterr().err
 
 
 def test_the_cutoff_reading_says_what_a_simulated_cutoff_means_and_rows_left_out_come_first(hs_data):
