@@ -94,7 +94,7 @@ def invariance_power_report(result) -> Report:
                    f"Share rejecting: share of the replications whose every model converged in which the difference "
                    f"test rejected the step at alpha {unit(result.alpha, 2)}: the power when the step's equalities do "
                    f"not hold in the population, the false-alarm rate when they do (nominal "
-                   f"{unit(result.alpha, 2)}). MC SE: its Monte Carlo standard error, sqrt(p(1 - p)/R). Approximation: "
+                   f"{unit(result.alpha, 2)}). MC SE: its Monte Carlo standard error, \u221a(p(1 \u2212 p)/R). Approximation: "
                    f"the rejection probability of the noncentral chi-square whose noncentrality is N times the rise in "
                    f"the minimum discrepancy when the step's model and the one before are fitted to the population "
                    f"itself (Satorra & Saris 1985); none after a step the population already misfits, where it "
