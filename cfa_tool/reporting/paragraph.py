@@ -28,6 +28,7 @@ from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
+from cfa_tool.note_parts import WORDS as MANUSCRIPT, said as said_in  # ('said' names sentences here)
 from cfa_tool.reporting.numbers import fit_index_text, guides_text, num, p_phrase, signed, unit
 from cfa_tool.reporting.numbers import word_list as _list
 
@@ -1228,7 +1229,8 @@ def comparison_paragraph(comparison) -> str:
                      + ("; the difference of two full-information fits is a likelihood-ratio test when answers are "
                         "missing at random (Little & Rubin, 2002)." if first.method.full_information else "."))
     missed = {(t.method, t.not_computed) for t in comparison.tests if t.not_computed}
-    parts += [f"{_capital(method.phrase)} was not computed: {reason.split(';')[0]}." for method, reason in
+    # the whole reason (new user s17: it was cut at its first ';'), as a manuscript says it (no option)
+    parts += [f"{_capital(method.phrase)} was not computed: {said_in(reason, MANUSCRIPT)}." for method, reason in
               sorted(missed, key=lambda m: _PREFERRED.index(m[0]))]
     for (restricted, general), found in pairs.items():
         pair = f"{label[restricted]} against {label[general]}"
@@ -1538,7 +1540,8 @@ def _one_solution_sentence(rep) -> str:
     t = rep.same_solution
     free = "thresholds" if rep.adjusted else "intercepts"
     if t.not_computed:
-        return (f"Whether one solution holds in both samples was not tested ({t.not_computed}); the cross-validation "
+        return (f"Whether one solution holds in both samples was not tested ({said_in(t.not_computed, MANUSCRIPT)}); "
+                f"the cross-validation "
                 f"index alone describes the replication.")
     held = ("loading, error covariance and factor variance and covariance" if rep.adjusted else
             "loading, error variance and covariance and factor variance and covariance")

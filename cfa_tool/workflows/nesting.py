@@ -18,6 +18,7 @@ from cfa_tool.data.moments import SampleMoments
 from cfa_tool.pipeline.continuous import Estimation, FitOptions, estimate
 from cfa_tool.language.spec import Spec
 from cfa_tool.method import DifferenceMethod
+from cfa_tool.note_parts import Text
 from cfa_tool.pipeline.results import FitResult, clean
 
 NESTING_TOLERANCE = 1e-7  # minimum discrepancy below which the implied moments count as reproduced
@@ -33,7 +34,8 @@ class DifferenceTest:
     method: DifferenceMethod
     delta_cfi: float
     delta_rmsea: float
-    not_computed: str = ""  # why the statistic could not be computed ('' when it was)
+    # why the statistic could not be computed ('' when it was): words, or a Note whose option a manuscript leaves out
+    not_computed: Text = ""
     # what the restricted model fixes on the boundary of the general model's space (in words; empty when nothing):
     # the difference then does not follow the chi-square distribution of ``p_value``
     boundary: tuple[str, ...] = ()
@@ -43,7 +45,7 @@ class DifferenceTest:
 
     def to_dict(self) -> dict:
         out = clean(dict(self.__dict__))
-        out["not_computed"] = self.not_computed or None
+        out["not_computed"] = str(self.not_computed) or None  # a Note as its reader reads it
         return out
 
 
