@@ -12,7 +12,7 @@ from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.options import Option
 from cfa_tool.language.names import written_group
 from cfa_tool.reporting.numbers import num, unit, word_list
-from cfa_tool.reporting.paragraph import group_labels
+from cfa_tool.reporting.paragraph import group_labels, scores_paragraph
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
 from cfa_tool.workflows.factor_scores import (ABOUT_THE_FIT, SAME_ANSWER_COLUMN, WHY_NOT_SCORED_COLUMN, NotScored,
                                              factor_methods)
@@ -596,7 +596,8 @@ def scores_report(result):
     return Report(ResultKind.SCORES, f"Factor scores: {result.fit.model_name}", scores_notice(result),
                   tuple(header_lines(result)) + tuple(caution_lines(result)), tuple(score_tables(result)),
                   tuple(result.notes) + tuple(item_sum_notes(result)), (SCORES_CAUTION, HIGH_STAKES_NOTE, flagging_caution(result)),
-                  problem_table=scores_problem_table(result), warnings=tuple(warnings(result)))
+                  paragraph=scores_paragraph(result), problem_table=scores_problem_table(result),
+                  warnings=tuple(warnings(result)))
 
 
 def scores_notice(result) -> T.ProblemNotice | None:
