@@ -1092,10 +1092,10 @@ def sum_score_table(result, group: int = 0) -> ReportTable | None:
     note = (f"The sum of each factor's items with reverse-keyed items reversed. Mean, SD (divisor N - 1) and "
             f"item-rest r come from the item means and covariances the fit analysed: {moments_source(result, group)}.")
     if any(r.sum_score_mean is None for r in rows):
-        note += (" A mean is shown once the answer scale of the reversed items is known: declare it with "
-                 "'reversed ITEMS on LOWEST to HIGHEST'.")
+        note += Note((" A mean is shown once the answer scale of the reversed items is known: declare it in the model",
+                      Command(" with 'reversed ITEMS on LOWEST to HIGHEST'"), "."))
     if result.multigroup:
-        note = f"{_sums_across_groups(result, rows)} {note}"
+        note = _sums_across_groups(result, rows) + " " + note  # (a Note stays one: no f-string)
     values = [[r.factor, len(r.items), ", ".join(r.reversed), r.sum_score_mean, r.sum_score_sd,
                min(r.item_total) if r.item_total else None] for r in rows]
     columns = [("Factor", "l"), ("Items", "r"), ("Reversed for scoring", "l"), ("Mean", "r"), ("SD", "r"),

@@ -58,3 +58,25 @@ def test_items_scored_in_reverse_as_declared_are_named_without_the_statement(tmp
     assert "reversed for scoring (as the model declares): comfort: clean." in word
     assert "reversed for scoring (as the model declares in its 'reversed' statement): comfort: clean." in terminal
     assert not [s for s in SYNTAX if s in word]
+
+
+def test_the_advice_of_a_search_that_did_not_converge_says_its_statements_in_words():
+    # the message of an estimation that did not converge comes first in every view, the Word file's too: its advice
+    # names the model file's statements only where the reader edits the model file
+    import numpy as np
+
+    from cfa_tool.assessment.convergence import nonconvergence_message
+    from cfa_tool.estimation.optimizer import OptimizerResult, Outcome
+    from cfa_tool.estimation.strategy import Restart, Search
+    from cfa_tool.note_parts import WORDS, said
+
+    stopped = OptimizerResult(np.zeros(2), 1.0, np.ones(2), 40, Outcome.STALLED)
+    for found, statement, words in (
+            (Search(stopped, Restart.NOT_CONFIRMED), "write 'scale latent by variance'",
+             "fix every factor's variance at 1"),
+            (Search(stopped), "give start values near the expected solution ('start ...')",
+             "or give start values near the expected solution")):
+        message = nonconvergence_message(found, ("a", "b"), 500)
+        assert statement in str(message)
+        manuscript = said(message, WORDS)
+        assert manuscript.endswith(words) and not [s for s in SYNTAX if s in manuscript], manuscript
