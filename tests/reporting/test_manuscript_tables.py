@@ -86,3 +86,16 @@ def test_a_group_whose_factor_means_are_estimated_keeps_its_table():
     assert "Factor means, group Grant-White" in titles and "Factor means, group Pasteur" not in titles
     pasteur = next(t for t in report_of(result).tables if t.title == "Intercepts, group Pasteur")
     assert "The means of visual, textual, and speed are fixed at 0 in this group (not estimated)" in pasteur.note
+
+
+def test_the_keyed_sums_note_says_the_scale_is_declared_in_the_model_in_words(reversed_fit):
+    # 'clean' loads against its factor and no statement gives its answer scale: no mean of the keyed sum, and the
+    # note says how to have one; the model statement only where the reader edits the model file
+    from cfa_tool.reporting.terminal import report_text
+
+    report = report_of(reversed_fit)
+    text, _ = _word(report)
+    terminal = " ".join(report_text(report, 120).replace("│", " ").split())
+    assert "the answer scale of the reversed items is known: declare it in the model." in " ".join(text.split())
+    assert "'reversed ITEMS on LOWEST to HIGHEST'" not in text
+    assert "declare it in the model with 'reversed ITEMS on LOWEST to HIGHEST'." in terminal
