@@ -80,3 +80,18 @@ def test_the_advice_of_a_search_that_did_not_converge_says_its_statements_in_wor
         assert statement in str(message)
         manuscript = said(message, WORDS)
         assert manuscript.endswith(words) and not [s for s in SYNTAX if s in manuscript], manuscript
+
+
+def test_a_declared_scale_no_answer_reaches_is_said_in_words_in_word(tmp_path):
+    # the caution first in every view (tests/data/test_same_answers.py has the hostile trial): the statement and its
+    # line only where the reader edits the model file
+    data = pd.read_csv(resource_dir("demo") / "rider_survey.csv")
+    data["clean"] = 6 - data["clean"]
+    data.to_csv(tmp_path / "reversed.csv", index=False)
+    model = (resource_dir("models") / "rider_three_factors.cfa").read_text() + "reversed clean on 1 to 7\n"
+    report = report_of(cfa_tool.fit(model, tmp_path / "reversed.csv"))
+    word, terminal = _word(report), _flat(report_text(report, 120))
+    assert "The model declares answers from 1 to 7 for clean, but no answer of the items it covers reaches 7" in word
+    assert "declare the questionnaire's own lowest and highest answers (on 1 to 5 if that is the scale)" in word
+    assert not [s for s in SYNTAX if s in word] and "on line" not in word
+    assert "The model (its 'reversed' statement on line 7) declares answers from 1 to 7 for clean" in terminal
