@@ -1093,6 +1093,18 @@ def methods_paragraph(result) -> str:
     return " ".join(parts)
 
 
+#: each scoring method's name in the scores' report and paragraph
+METHOD_LABELS = {ScoreMethod.REGRESSION: "regression", ScoreMethod.BARTLETT: "Bartlett",
+                 ScoreMethod.CORRELATION_PRESERVING: "correlation-preserving",
+                 ScoreMethod.EXPECTED_A_POSTERIORI: "posterior mean", ScoreMethod.ITEM_SUM: "item sum",
+                 ScoreMethod.ITEM_MEAN: "item mean"}
+
+
+def share_words(share: float) -> str:
+    """A least share in plain words: 'half' for .5, else a percentage ('60%')."""
+    return "half" if share == 0.5 else f"{share:.0%}".replace(".0%", "%")
+
+
 #: how the scores' paragraph names each scoring method, with its authors (scoring.methods.ScoreMethod)
 SCORE_METHOD_WORDS = {
     ScoreMethod.REGRESSION: "regression scores (the posterior mean of the factors given the answers; Thurstone, 1935)",
@@ -1154,7 +1166,6 @@ def scores_paragraph(result) -> str:
     none of whose items a row answered predicted from the other answers or left empty; item sums prorated by the
     least share), the rows without a score, and the scores' determinacy (Grice, 2001) and reliability (Beauducel,
     2011; omega of the item sums, McDonald, 1999; the posterior means' reliability in the data)."""
-    from cfa_tool.reporting.score_report import METHOD_LABELS, share_words  # (the scores' report imports this module)
     from cfa_tool.workflows.factor_scores import NotScored
 
     fit = result.fit
@@ -1364,7 +1375,8 @@ def comparison_paragraph(comparison) -> str:
                      + ("; the difference of two full-information fits is a likelihood-ratio test when answers are "
                         "missing at random (Little & Rubin, 2002)." if first.method.full_information else "."))
     missed = {(t.method, t.not_computed) for t in comparison.tests if t.not_computed}
-    # the whole reason (new user s17: it was cut at its first ';'), as a manuscript says it (no option)
+    # the whole reason (new user s17: it was cut at its first ';'), as a manuscript says it (no option), without the
+    # advice to the reader of the tables (nesting.DifferenceTest.advice)
     parts += [f"{_capital(method.phrase)} was not computed: {said_in(reason, MANUSCRIPT)}." for method, reason in
               sorted(missed, key=lambda m: _PREFERRED.index(m[0]))]
     for (restricted, general), found in pairs.items():

@@ -12,7 +12,7 @@ from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.options import Option
 from cfa_tool.language.names import written_group
 from cfa_tool.reporting.numbers import num, unit, word_list
-from cfa_tool.reporting.paragraph import group_labels, scores_paragraph
+from cfa_tool.reporting.paragraph import METHOD_LABELS, group_labels, scores_paragraph, share_words
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
 from cfa_tool.workflows.factor_scores import (ABOUT_THE_FIT, SAME_ANSWER_COLUMN, WHY_NOT_SCORED_COLUMN, NotScored,
                                              factor_methods)
@@ -46,10 +46,6 @@ def _where_errors(result) -> Text:
     return Note((Command(f"written with {Option.STANDARD_ERRORS}", "not written in this run's scores file"),
                  f"; {sem}"))
 
-METHOD_LABELS = {ScoreMethod.REGRESSION: "regression", ScoreMethod.BARTLETT: "Bartlett",
-                 ScoreMethod.CORRELATION_PRESERVING: "correlation-preserving",
-                 ScoreMethod.EXPECTED_A_POSTERIORI: "posterior mean", ScoreMethod.ITEM_SUM: "item sum",
-                 ScoreMethod.ITEM_MEAN: "item mean"}
 
 
 #: short column headers (the notes name the methods in full)
@@ -498,11 +494,6 @@ def _unscored_counts(factors, counts) -> str:
     if len(set(counts)) == 1 and len(factors) > 1:
         return f"{counts[0]} for each factor"
     return ", ".join(f"{f} {c}" for f, c in zip(factors, counts) if c)
-
-
-def share_words(share: float) -> str:
-    """A least share in plain words: 'half' for .5, else a percentage ('60%')."""
-    return "half" if share == 0.5 else f"{share:.0%}".replace(".0%", "%")
 
 
 def reason_words(result, reason: str) -> str:

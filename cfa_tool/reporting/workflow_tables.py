@@ -333,7 +333,8 @@ def comparison_report(comparison) -> Report:
             if t.not_computed:  # the changes in fit indices describe the two fits, with or without a statistic
                 rows.append([t.method, f"not computed ({t.df_difference})", "", signed(t.delta_cfi),
                              signed(t.delta_rmsea)])
-                notes.append(f"{t.method}: not computed: " + t.not_computed + ".")
+                notes.append(f"{t.method}: not computed: " + t.not_computed + (f"; {t.advice}" if t.advice else "")
+                             + ".")
             else:
                 rows.append([t.method, f"{t.chi_square_difference:.3f} ({t.df_difference})",
                              p_value(t.p_value) + (" *" if boundary else ""), signed(t.delta_cfi), signed(t.delta_rmsea)])

@@ -42,6 +42,9 @@ class DifferenceTest:
     # p from the 50:50 mixture of chi-square(df - 1) and chi-square(df) when exactly one parameter lies on the
     # boundary (Self & Liang 1987); NaN otherwise
     boundary_p_value: float = float("nan")
+    # what the reader of the report's tables reads instead when the statistic was not computed ('read the scaled
+    # difference'), apart from the reason: a methods paragraph gives the whole reason and leaves the advice out
+    advice: str = ""
 
     def to_dict(self) -> dict:
         out = clean(dict(self.__dict__))
@@ -182,7 +185,7 @@ def difference_test(restricted: FitResult, general: FitResult, restricted_name: 
     design = getattr(general, "design", None)
     if design is not None and design.columns.robust:  # a weighted (pseudo-) likelihood or clustered rows: no test
         return DifferenceTest(restricted_name, general_name, diff, ddf, float("nan"), DifferenceMethod.LIKELIHOOD_RATIO,
-                              r.cfi - g.cfi, r.rmsea - g.rmsea, PSEUDO_LIKELIHOOD)
+                              r.cfi - g.cfi, r.rmsea - g.rmsea, PSEUDO_LIKELIHOOD, advice="read the scaled difference")
     return likelihood_ratio_difference(r.chi_square, r.df, g.chi_square, g.df, restricted_name, general_name,
                                        r.cfi - g.cfi, r.rmsea - g.rmsea)
 
@@ -201,8 +204,7 @@ def likelihood_ratio_difference(chi_restricted: float, df_restricted: int, chi_g
 
 #: why the plain likelihood-ratio difference is not a test under a sampling design
 PSEUDO_LIKELIHOOD = ("under the sampling design the likelihood is a weighted pseudo-likelihood (or the rows are not "
-                     "independent), so the plain difference does not follow a chi-square distribution; read the scaled "
-                     "difference")
+                     "independent), so the plain difference does not follow a chi-square distribution")
 
 
 @dataclass(frozen=True)
@@ -262,16 +264,17 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
             out.append(DifferenceTest(restricted_name, general_name, diff, ddf, float(dist.chi2_sf(max(diff, 0.0), ddf)),
                                       method, delta_cfi, delta_rmsea))
         else:
+            first = method is not DifferenceMethod.SATORRA_BENTLER_2010
             out.append(DifferenceTest(restricted_name, general_name, float("nan"), ddf, float("nan"), method, delta_cfi,
                                       delta_rmsea, f"its scaling correction is not positive ({cd:.3f}), so the "
                                       "difference cannot be scaled" + (
-                                          "" if method is DifferenceMethod.SATORRA_BENTLER_2010 else
+                                          "" if not first else
                                           ": this version's correction can be negative, in small samples or "
                                           "when the restricted model is far from the data (Satorra & Bentler "
-                                          "2010); " + (
-                                              "read the strictly positive version" if general_scaling_at_restricted
-                                              is not None else "the strictly positive version is not available "
-                                                               "either"))))
+                                          "2010)" + ("" if general_scaling_at_restricted is not None else
+                                                     "; the strictly positive version is not available either")),
+                                      advice="read the strictly positive version" if first and
+                                      general_scaling_at_restricted is not None else ""))
     return out
 
 

@@ -65,11 +65,21 @@ def test_a_test_of_one_solution_that_did_not_converge_names_no_option_in_a_manus
     assert "max_iterations" not in replication_paragraph(replication)
 
 
-def test_compare_says_the_whole_reason_a_difference_was_not_computed(hs_data):
+def test_compare_says_the_whole_reason_a_difference_was_not_computed_and_no_advice(hs_data):
     moved = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\nfix covariance(visual, speed) = 0\n"
     weights = np.random.default_rng(17).uniform(0.5, 2, len(hs_data))
     found = compare([moved, THREE_FACTORS], hs_data.assign(w=weights), weights="w")
-    assert PSEUDO_LIKELIHOOD in [t.not_computed for t in found.tests]
-    assert ";" in PSEUDO_LIKELIHOOD  # the reason has a part after its first ';'
+    plain = next(t for t in found.tests if t.not_computed)
+    assert plain.not_computed == PSEUDO_LIKELIHOOD and plain.advice == "read the scaled difference"
     paragraph = " ".join(comparison_paragraph(found).split())
-    assert f"was not computed: {PSEUDO_LIKELIHOOD}." in paragraph
+    assert f"was not computed: {PSEUDO_LIKELIHOOD}." in paragraph and "read the" not in paragraph
+    notes = " ".join(str(n) for n in report_of(found).notes)
+    assert f"not computed: {PSEUDO_LIKELIHOOD}; read the scaled difference." in notes  # the tables' reader reads it
+    # a reason with a second clause after ';' (the 2001 scaled difference whose correction is not positive, with no
+    # strictly positive version either, nesting.scaled_difference_tests): given whole
+    reason = ("its scaling correction is not positive (-0.159), so the difference cannot be scaled: this version's "
+              "correction can be negative, in small samples or when the restricted model is far from the data "
+              "(Satorra & Bentler 2010); the strictly positive version is not available either")
+    cut = dataclasses.replace(found, tests=tuple(dataclasses.replace(t, not_computed=reason, advice="")
+                                                 if t is plain else t for t in found.tests))
+    assert f"was not computed: {reason}." in " ".join(comparison_paragraph(cut).split())
