@@ -30,7 +30,6 @@ from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
-from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, PREDICTING_METHODS, ScoreMethod, UnansweredFactor
 from cfa_tool.note_parts import WORDS as MANUSCRIPT, said as said_in  # ('said' names sentences here)
 from cfa_tool.reporting.numbers import fit_index_text, guides_text, num, p_phrase, signed, unit
 from cfa_tool.reporting.numbers import word_list as _list
@@ -1093,32 +1092,6 @@ def methods_paragraph(result) -> str:
     return " ".join(parts)
 
 
-#: each scoring method's name in the scores' report and paragraph
-METHOD_LABELS = {ScoreMethod.REGRESSION: "regression", ScoreMethod.BARTLETT: "Bartlett",
-                 ScoreMethod.CORRELATION_PRESERVING: "correlation-preserving",
-                 ScoreMethod.EXPECTED_A_POSTERIORI: "posterior mean", ScoreMethod.ITEM_SUM: "item sum",
-                 ScoreMethod.ITEM_MEAN: "item mean"}
-
-
-def share_words(share: float) -> str:
-    """A least share in plain words: 'half' for .5, else a percentage ('60%')."""
-    return "half" if share == 0.5 else f"{share:.0%}".replace(".0%", "%")
-
-
-#: how the scores' paragraph names each scoring method, with its authors (scoring.methods.ScoreMethod)
-SCORE_METHOD_WORDS = {
-    ScoreMethod.REGRESSION: "regression scores (the posterior mean of the factors given the answers; Thurstone, 1935)",
-    ScoreMethod.BARTLETT: "Bartlett scores (weighted least squares with the residual variances as weights; Bartlett, "
-                          "1937)",
-    ScoreMethod.CORRELATION_PRESERVING: "correlation-preserving scores (ten Berge, Krijnen, Wansbeek, & Shapiro, 1999)",
-    ScoreMethod.EXPECTED_A_POSTERIORI: "posterior means of the factors over the latent-response model (expected a "
-                                       "posteriori scores; Bock & Aitkin, 1981)",
-    ScoreMethod.ITEM_SUM: "keyed item sums (each factor's own items, reverse-keyed items reversed as lowest + highest "
-                          "answer \u2212 x)",
-    ScoreMethod.ITEM_MEAN: "keyed item means (the keyed item sum over the number of items)",
-}
-
-
 def _values_of(factors, values) -> str:
     """'.93 for punctuality, .88 for comfort, and .90 for courtesy' (values missing for a factor left out)."""
     return _list([f"{unit(v, 2)} for {_name(f)}" for f, v in zip(factors, values) if not math.isnan(v)])
@@ -1166,6 +1139,10 @@ def scores_paragraph(result) -> str:
     none of whose items a row answered predicted from the other answers or left empty; item sums prorated by the
     least share), the rows without a score, and the scores' determinacy (Grice, 2001) and reliability (Beauducel,
     2011; omega of the item sums, McDonald, 1999; the posterior means' reliability in the data)."""
+    # (the scoring modules load here, not with a fit's report: the command's cold start)
+    from cfa_tool.reporting.score_words import METHOD_LABELS, SCORE_METHOD_WORDS, share_words
+    from cfa_tool.scoring.methods import (DETERMINACY_CAUTION, ITEM_METHODS, PREDICTING_METHODS, ScoreMethod,
+                                          UnansweredFactor)
     from cfa_tool.workflows.factor_scores import NotScored
 
     fit = result.fit

@@ -12,7 +12,8 @@ from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.options import Option
 from cfa_tool.language.names import written_group
 from cfa_tool.reporting.numbers import num, unit, word_list
-from cfa_tool.reporting.paragraph import METHOD_LABELS, group_labels, scores_paragraph, share_words
+from cfa_tool.reporting.paragraph import group_labels, scores_paragraph
+from cfa_tool.reporting.score_words import METHOD_LABELS, share_words
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
 from cfa_tool.workflows.factor_scores import (ABOUT_THE_FIT, SAME_ANSWER_COLUMN, WHY_NOT_SCORED_COLUMN, NotScored,
                                              factor_methods)
