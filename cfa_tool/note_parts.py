@@ -1,10 +1,11 @@
 """A line of a report that each view writes its own way (:class:`Note`): words for every reader, and apart from
-them what the program's user runs (:class:`Command`: an option, with its Python keyword), references to a table
-of the report (:class:`TableReference`, by its key) and respondents' ids beside row numbers (:class:`RowId`).  A
-view says the line as its reader reads it (:class:`View`): the terminal, text and HTML views give the command and
-the ids and name a table by its title; a manuscript (the Word file) leaves the command out, or says it in words
-where the line needs them, names rows by their numbers alone and a table by its number.  Any part of the tool that
-writes a line giving advice or naming respondents makes it a Note; a plain line stays text."""
+them what the program's user runs or writes (:class:`Command`: an option, with its Python keyword, or a statement of
+the model file), references to a table of the report (:class:`TableReference`, by its key) and respondents' ids
+beside row numbers (:class:`RowId`).  A view says the line as its reader reads it (:class:`View`): the terminal,
+text and HTML views give the command and the ids and name a table by its title; a manuscript (the Word file) leaves
+the command out, or says it in words where the line needs them, names rows by their numbers alone and a table by its
+number.  Any part of the tool that writes a line giving advice or naming respondents makes it a Note; a plain line
+stays text."""
 
 from __future__ import annotations
 
@@ -14,9 +15,10 @@ from dataclasses import dataclass, field
 
 @dataclass(frozen=True)
 class Command:
-    """What the program's user runs to take a piece of advice, as that reader reads it (" (--robust; from Python,
-    test='robust')", its spaces and brackets included); ``words``: the same for a reader who runs nothing, where the
-    line is incomplete without it (a manuscript's), else nothing."""
+    """What the program's user runs or writes to take a piece of advice, as that reader reads it (" (--robust; from
+    Python, test='robust')", or a statement of the model language, " ('scale latent by variance')", its spaces and
+    brackets included); ``words``: the same for a reader who runs nothing and edits no model file, where the line is
+    incomplete without it (a manuscript's: "the factor's variance fixed at 1"), else nothing."""
 
     text: str
     words: str = ""

@@ -19,8 +19,9 @@ def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, l
                            upper: np.ndarray | None = None) -> Text:
     """One paragraph for a search that did not converge; ``labels`` name the free parameters and ``limit``
     is the iteration limit in force; ``lower`` and ``upper``: the free parameters' bounds (the model file's
-    'bound' statements), so that a search that ended against a bound says so.  The option that raises the limit
-    apart (note_parts.Command): a manuscript's reader runs nothing."""
+    'bound' statements), so that a search that ended against a bound says so.  The option that raises the limit and
+    the model file's statements apart (note_parts.Command): a manuscript's reader runs nothing and edits no model
+    file."""
     result = found.result
     used = result.iterations
     outcome = Outcome.ITERATION_LIMIT if used >= limit and result.outcome is not Outcome.BAD_START else result.outcome
@@ -56,22 +57,24 @@ def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, l
                          f"'{bad.indicator}' of factor '{bad.factor}'{where} has a loading of about zero, so it cannot "
                          f"set the factor's scale")
             freed = reference_text("loading", (bad.factor, bad.indicator))
-            advice.append(f"let another indicator set the scale of '{bad.factor}' ('free {freed}' makes the next one "
-                          f"the marker) or write 'scale latent by variance'")
+            advice.append(Note((f"let another indicator set the scale of '{bad.factor}'",
+                                Command(f" ('free {freed}' makes the next one the marker)"), " or ",
+                                Command("write 'scale latent by variance'", "fix every factor's variance at 1"))))
         else:
             parts.append(f"with every factor's variance fixed at 1 the model converged, but there the loadings of "
                          f"factor '{bad.factor}'{where} sum to about zero (items keyed in opposite directions), so "
                          f"effects coding cannot set its scale")
-            advice.append(f"scale '{bad.factor}' by its variance ('scale {written_name(bad.factor)} by variance')")
+            advice.append(Note((f"scale '{bad.factor}' by its variance",
+                                Command(f" ('scale {written_name(bad.factor)} by variance')"))))
     elif found.restart is Restart.NOT_CONFIRMED:
         parts.append("with every factor's variance fixed at 1 the model converged, but the search in the model's own "
                      "scaling did not confirm that minimum")
-        advice.append("write 'scale latent by variance'")
+        advice.append(Note((Command("write 'scale latent by variance'", "fix every factor's variance at 1"),)))
     if not advice:
         if outcome is Outcome.ITERATION_LIMIT:
             advice.append(Note(("raise the limit", Command(f" ({Option.MAX_ITERATIONS})"))))
         advice.append(IDENTIFICATION_HINT)
-        advice.append("give start values near the expected solution ('start ...')")
+        advice.append(Note(("give start values near the expected solution", Command(" ('start ...')"))))
     return "; ".join(parts) + ". What to try: " + _or_list(advice)  # type: ignore[operator]
 
 

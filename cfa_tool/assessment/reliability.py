@@ -54,6 +54,7 @@ import numpy as np
 from cfa_tool.assessment.method_factors import bifactor_parts, uncorrelated_pairs
 from cfa_tool.language.names import reference_text
 from cfa_tool.model.implied import ModelMatrices
+from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.numerics.plain import PLAIN_TYPES, clean
 
 
@@ -474,7 +475,14 @@ def _sum_score_mean(means: list[float], reversed_: list[bool], items: list[int],
     return total
 
 
-def keying_warnings(factors: list[FactorReliability] | tuple, prefix: str = "") -> list[str]:
+#: the model file's statement of reverse-keyed items, apart from the words (note_parts.Command): the program's user
+#: edits the model file, a manuscript's reader does not
+REVERSED_STATEMENT = " (its 'reversed' statement)"
+#: ... and how a 'reversed' statement declares items, as advice to the program's user gives it
+DECLARE_REVERSED = " with 'reversed ... on LOWEST to HIGHEST'"
+
+
+def keying_warnings(factors: list[FactorReliability] | tuple, prefix: str = "") -> list[Text]:
     """Where the declared keying contradicts the signs of the estimated loadings, and factors that point
     against their items (so that every correlation, mean difference and score of theirs reads the wrong way)."""
     out = []
@@ -485,18 +493,19 @@ def keying_warnings(factors: list[FactorReliability] | tuple, prefix: str = "") 
         if r.points_against or (r.evenly_split and r.keying is not Keying.DECLARED):
             continue  # pointing against: a problem of the solution, not a note (keying_problems)
         if r.evenly_split:
-            out.append(f"{prefix}factor '{r.factor}': half of its items load against the keying the 'reversed' "
-                       f"statement declares, so no majority tells which way it points; check the statement and how "
-                       f"the answers were coded")
+            out.append(Note((f"{prefix}factor '{r.factor}': half of its items load against the keying the model "
+                             f"declares", Command(REVERSED_STATEMENT), ", so no majority tells which way it points; "
+                             "check the declared keying and how the answers were coded")))
             continue
         if r.against_keying:
             names = ", ".join(f"'{x}'" for x in r.against_keying)
-            out.append(f"{prefix}factor '{r.factor}': the loadings of {names} point the other way from what the "
-                       f"'reversed' statement implies; check the keying and how the answers were coded")
+            out.append(Note((f"{prefix}factor '{r.factor}': the loadings of {names} point the other way from the "
+                             f"keying the model declares", Command(REVERSED_STATEMENT), "; check the keying and how "
+                             "the answers were coded")))
     return out
 
 
-def _split_warning(split: list[FactorReliability], prefix: str) -> str:
+def _split_warning(split: list[FactorReliability], prefix: str) -> Note:
     """The caution for the factors half of whose items load each way (``evenly_split``) with no 'reversed'
     statement: one sentence for all of them, each factor's two halves named."""
     def halves(r: FactorReliability) -> str:
@@ -504,33 +513,36 @@ def _split_warning(split: list[FactorReliability], prefix: str) -> str:
 
     if len(split) == 1:
         r = split[0]
-        return (f"{prefix}factor '{r.factor}': half of its items load each way ({halves(r)}), so the data cannot "
-                f"tell which way it points: its direction follows its marker, and its correlations, mean differences "
-                f"and scores may read the wrong way; declare the items worded against the trait with 'reversed ... "
-                f"on LOWEST to HIGHEST', which orients the factor by its other items and keys the sums")
+        return Note((f"{prefix}factor '{r.factor}': half of its items load each way ({halves(r)}), so the data "
+                     f"cannot tell which way it points: its direction follows its marker, and its correlations, mean "
+                     f"differences and scores may read the wrong way; declare the items worded against the trait as "
+                     f"scored in reverse", Command(DECLARE_REVERSED), ", which orients the factor by its other items "
+                     "and keys the sums"))
     named = ", ".join(f"'{r.factor}'" for r in split[:-1]) + f" and '{split[-1].factor}'"
-    return (f"{prefix}factors {named}: half of each one's items load each way "
-            f"({'; '.join(f'{r.factor}: {halves(r)}' for r in split)}), so the data cannot tell which way each "
-            f"points: its direction follows its marker, and its correlations, mean differences and scores may read "
-            f"the wrong way; declare the items worded against the trait with 'reversed ... on LOWEST to HIGHEST', "
-            f"which orients each factor by its other items and keys the sums")
+    return Note((f"{prefix}factors {named}: half of each one's items load each way "
+                 f"({'; '.join(f'{r.factor}: {halves(r)}' for r in split)}), so the data cannot tell which way each "
+                 f"points: its direction follows its marker, and its correlations, mean differences and scores may "
+                 f"read the wrong way; declare the items worded against the trait as scored in reverse",
+                 Command(DECLARE_REVERSED), ", which orients each factor by its other items and keys the sums"))
 
 
-def _turned_warning(r: FactorReliability) -> tuple[str, str]:
-    """(what is wrong, what to try) for a factor that points against its items (``points_against``)."""
+def _turned_warning(r: FactorReliability) -> tuple[str, Text]:
+    """(what is wrong, what to try) for a factor that points against its items (``points_against``); the model
+    file's statements apart from the advice's words (note_parts.Command)."""
     with_keys = [x for x in r.items if x not in r.reversed]  # the items whose answers rise with the factor
     if r.keying is Keying.DECLARED:
         return (f"Factor '{r.factor}' points against its items: the items not declared reversed load negatively, so "
                 f"a higher '{r.factor}' means less of what they ask, and its correlations, mean differences and scores "
                 f"read the wrong way.",
-                "fix the loading of an item not declared reversed at 1 as its marker (the automatic marker does so), "
-                "or check the 'reversed' statement.")
+                Note(("fix the loading of an item not declared reversed at 1 as its marker (the automatic marker "
+                      "does so), or check the keying the model declares", Command(REVERSED_STATEMENT), ".")))
     few = ", ".join(r.reversed)
     one = len(r.reversed) == 1
     return (f"Factor '{r.factor}' points the way of {few}, against most of its items ({', '.join(with_keys)} load "
             f"negatively), so a higher '{r.factor}' means lower answers on most of its items.",
-            f"if {few} {'is' if one else 'are'} worded against the trait, declare {'it' if one else 'them'} with "
-            f"'reversed {few} on LOWEST to HIGHEST', which orients the factor by its other items and keys the sums.")
+            Note((f"if {few} {'is' if one else 'are'} worded against the trait, declare {'it' if one else 'them'} "
+                  f"as scored in reverse", Command(f" with 'reversed {few} on LOWEST to HIGHEST'"), ", which orients "
+                  "the factor by its other items and keys the sums.")))
 
 
 def keying_problems(groups) -> list:

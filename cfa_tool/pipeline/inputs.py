@@ -1007,13 +1007,16 @@ def scale_ends_problems(frame: pd.DataFrame, spec: Spec) -> tuple:
                   f"the keyed sums would be the same on {low:g} to {high:g}")
         out.append(Problem(
             ProblemKind.SCALE_ENDS_UNREACHED, (), float(len(unreached)),
-            f"The 'reversed' statement on line {keying.location.line} declares answers from {keying.minimum:g} to "
-            f"{keying.maximum:g} for {reversed_items}, but no answer of the items it covers reaches "
-            f"{' or '.join(unreached)}: they run from {low:g} to {high:g} in {len(values)} rows. A reversed answer x "
-            f"counts as {keying.minimum + keying.maximum:g} - x in the keyed sums; {effect}.",
-            f"give the questionnaire's own lowest and highest answers in the 'reversed' statement (on {low:g} to "
-            f"{high:g} if that is the scale); if the scale really runs from {keying.minimum:g} to {keying.maximum:g}, "
-            f"the keyed sums are right as they are."))
+            # the model file's statement apart (note_parts.Command): a manuscript's reader edits no model file
+            Note(("The model", Command(f" (its 'reversed' statement on line {keying.location.line})"),
+                  f" declares answers from {keying.minimum:g} to {keying.maximum:g} for {reversed_items}, but no answer "
+                  f"of the items it covers reaches {' or '.join(unreached)}: they run from {low:g} to {high:g} in "
+                  f"{len(values)} rows. A reversed answer x counts as {keying.minimum + keying.maximum:g} - x in the "
+                  f"keyed sums; {effect}.")),
+            Note(("declare the questionnaire's own lowest and highest answers",
+                  Command(" in the 'reversed' statement"), f" (on {low:g} to {high:g} if that is the scale); if the "
+                  f"scale really runs from {keying.minimum:g} to {keying.maximum:g}, the keyed sums are right as they "
+                  f"are."))))
     return tuple(out)
 
 

@@ -46,8 +46,8 @@ def header_lines(result) -> list[str]:
              + (f", {T.selection_phrase(fit.data)}" if fit.data.row_filters else ""),
              "Reference group: " + _reference(result) + f"; {result.reference_mean.phrase}",
              f"Configural model (every factor's mean 0 and variance 1 in every group), {fit.estimator}: {_fit_words(fit)}",
-             f"Alignment (Asparouhov & Muthén 2014): total simplicity loss f(x) = sqrt(sqrt(x^2 + {EPSILON:g})) over every "
-             f"pair of groups, weighted by sqrt(N1 N2), for every loading and intercept",
+             f"Alignment (Asparouhov & Muthén 2014): total simplicity loss f(x) = \u221a\u221a(x\u00b2 + {EPSILON:g}) over "
+             f"every pair of groups, weighted by \u221a(N1 N2), for every loading and intercept",
              f"Standard errors: {STANDARD_ERRORS}",
              f"Non-invariant loadings and intercepts: {_percent(result.noninvariant_share)} of all, flagged at level "
              f"{unit(result.flag_level, 3)}"]

@@ -43,7 +43,7 @@ import textwrap
 from dataclasses import dataclass, field
 
 from cfa_tool.reporting.escape import html_text as esc
-from cfa_tool.reporting.numbers import unit
+from cfa_tool.reporting.numbers import printed, unit
 
 ROW_GAP = 130
 BOX_H = 34
@@ -98,6 +98,13 @@ def item_labels(result) -> dict[str, str]:
 
 #: the short labels' letters, the first one no name of the model takes (I1, I2, ...; then item1, ...; then Q1, ...)
 LABEL_PREFIXES = ("I", "item", "Q", "V")
+
+
+def _value(value: float) -> str:
+    """A standardized value as the drawing writes it: two decimals without the leading zero (reporting.numbers.unit,
+    as the tables), set by the printed views' one rule (reporting.numbers.printed: '\u2212.63', as the Word file's and
+    the HTML page's tables print it)."""
+    return printed(unit(value, 2))
 
 
 def _box_width(name: str) -> float:
@@ -581,7 +588,7 @@ def _draw(result, group: int) -> Drawing:
             r = next(r for r in rows if r.kind == kind and r.variables == variables)
             bad = flagged(kind, variables) or loadings and result.groups[group].r_squared.get(variables[1], 0.0) > 1.0
             parts.append(_label(MARGIN + _entry_width(entries, lay.text) * (k // per), y + 20 + 16 * (k % per),
-                                _entry_text(entry, unit(r.standardized, 2), lay.text), size=LIST_SIZE, anchor="start",
+                                _entry_text(entry, _value(r.standardized), lay.text), size=LIST_SIZE, anchor="start",
                                 cls="listed-loading" if loadings else "listed-correlation", problem=bad))
         y += 18 + 16 * per + 10
     # loadings: an item's home factor first, so that a cross-loading's value moves along its line if it would
@@ -599,7 +606,7 @@ def _draw(result, group: int) -> Drawing:
                          f'V{y2:.1f}" fill="none" stroke="#333" stroke-width="1.3"{dashed} marker-end="url(#head)"/>')
             drawn.add(Drawn.ROUTED_LOADING)
             drawn.update({Drawn.FIXED_LOADING} if not r.free else set())
-            text = unit(r.standardized, 2)
+            text = _value(r.standardized)
             lx, ly = _free_spot([(x2 - 6 - TEXT_EM * SMALLEST_TEXT * len(text) / 2, lane - 4)], text, placed)
             impossible = result.groups[group].r_squared.get(target, 0.0) > 1.0
             parts.append(_label(lx, ly, text, problem=impossible or flagged(r.kind, r.variables)))
@@ -615,7 +622,7 @@ def _draw(result, group: int) -> Drawing:
             drawn.add(Drawn.FIXED_LOADING)
         parts.append(f'<line class="loading" x1="{x1:.1f}" y1="{y1:.1f}" x2="{x2:.1f}" y2="{y2:.1f}" stroke="#333" '
                      f'stroke-width="1.3"{dashed} marker-end="url(#head)"/>')
-        text = unit(r.standardized, 2)
+        text = _value(r.standardized)
         shares = (0.8, 0.9, 0.7, 0.6) if from_below else (0.72, 0.6, 0.84, 0.5, 0.4)
         lx, ly = _free_spot([(x1 + k * (x2 - x1), y1 + k * (y2 - y1) + 4) for k in shares], text, placed)
         impossible = result.groups[group].r_squared.get(target, 0.0) > 1.0  # R-squared above 1
@@ -636,7 +643,7 @@ def _draw(result, group: int) -> Drawing:
             parts.append(_arc(xa, ya, xb, yb, y + bend * 2, "covariance", bad))
             drawn.add(Drawn.ARC)
             label_y = (ya + yb) / 4 + (y + bend * 2) / 2 + (14 if below else -4)  # apex of the curve
-            parts.append(_label((xa + xb) / 2, label_y, unit(r.standardized, 2), problem=bad))
+            parts.append(_label((xa + xb) / 2, label_y, _value(r.standardized), problem=bad))
         elif r.kind == "residual_covariance" and lay.band_of[r.variables[0]] == lay.band_of[r.variables[1]]:
             a, b = r.variables
             (xa, _), (xb, _) = sorted((_residual_centre(a, lay), _residual_centre(b, lay)))
@@ -645,7 +652,7 @@ def _draw(result, group: int) -> Drawing:
             bad = flagged(r.kind, r.variables)
             parts.append(_arc(xa, y, xb, y, y + drop * 2, "residual-covariance", bad))
             drawn.add(Drawn.ARC)
-            parts.append(_label((xa + xb) / 2, y + drop + 4, unit(r.standardized, 2), problem=bad))  # on the arc's lowest point
+            parts.append(_label((xa + xb) / 2, y + drop + 4, _value(r.standardized), problem=bad))  # on the arc's lowest point
     # the items of a factor that go on in a later band: named over them, their loadings listed above
     for f, items in lay.continued:
         x = (lay.centre[items[0]] + lay.centre[items[-1]]) / 2
@@ -672,7 +679,7 @@ def _draw(result, group: int) -> Drawing:
             drawn.add(Drawn.DISTURBANCE)
             parts.append(f'<line x1="{cx - RESIDUAL_R:.1f}" y1="{cy:.1f}" x2="{centre[f] + rx:.1f}" y2="{cy:.1f}" '
                          f'stroke="#333" marker-end="url(#head)"/>')
-            parts.append(_label(cx, cy - RESIDUAL_R - 5, unit(r.standardized, 2), problem=bad))
+            parts.append(_label(cx, cy - RESIDUAL_R - 5, _value(r.standardized), problem=bad))
     # indicators and their residuals
     for name in lay.order:
         w, top = lay.widths[name], y_of[name]
@@ -692,7 +699,7 @@ def _draw(result, group: int) -> Drawing:
                          f'stroke="#333" marker-end="url(#head)"/>')
         resid = next((r for r in rows if r.kind == "residual_variance" and r.variables[0] == name), None)
         if resid is not None:
-            text = unit(resid.standardized, 2)
+            text = _value(resid.standardized)
             if lay.side_residuals:
                 parts.append(_label(cx, cy - RESIDUAL_R - 5, text, problem=bad))
             else:

@@ -27,6 +27,7 @@ from cfa_tool.reporting.diagram import MIN_FIGURE_TEXT  # the smallest lettering
 from cfa_tool.reporting.picture import (DEFAULT_DPI, page_fit, png_converter, smallest_text, svg_size, svg_strips,
                                        svg_to_png)
 from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS
+from cfa_tool.reporting.numbers import printed
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.tables import ReportTable
 
@@ -48,12 +49,11 @@ def _rule(cell, edge: str, size: int = 8) -> None:
 
 
 # Typesetting for print (what a journal's production editor expects): a number or an interval is never broken
-# across lines.  A minus sign is the true minus (U+2212, after which no line breaks, where a hyphen-minus lets
-# '-' end a line); the spaces inside an interval and inside a numeric cell are non-breaking; numeric cells do
+# across lines.  Minus signs and relations are set by the printed views' one rule (reporting.numbers.printed: the
+# true minus, U+2212, after which no line breaks, where a hyphen-minus lets '-' end a line; '\u2265' for '>='); the spaces inside an interval and inside a numeric cell are non-breaking; numeric cells do
 # not wrap (w:noWrap).  Tables wider than the text are set as table_layout says: a matrix of the items first with
 # its rows numbered and a key, in smaller type on a portrait page, then on a landscape page, and when even that is
 # too narrow, in parts of whole columns with the label column again (as the terminal does).
-MINUS = re.compile(r"(?<![\w.\u2212])-(?=[\d.])")  # a hyphen before a number that is not inside a word
 INTERVAL = re.compile(r"\[[^\[\]]*\]")
 RELATION = re.compile(r"(?<=\S) ([=<>\u2264\u2265]) (?=[\d.\u2212-])")  # 'p = .186', 'N = 900': kept on one line
 NO_BREAK_SPACE = "\u00a0"
@@ -69,7 +69,7 @@ def typeset(text: str, numeric: bool = False) -> str:
     ('p = .186') and, in a numeric cell, all its spaces non-breaking, so that no line break splits a number, an
     interval or a statistic from its value."""
     text = printable(text)  # control characters shown as escapes: XML allows none
-    text = RELATION.sub(f"{NO_BREAK_SPACE}\\1{NO_BREAK_SPACE}", MINUS.sub("\u2212", text))
+    text = RELATION.sub(f"{NO_BREAK_SPACE}\\1{NO_BREAK_SPACE}", printed(text))
     if numeric:
         return text.replace(" ", NO_BREAK_SPACE)
     return INTERVAL.sub(lambda m: m.group(0).replace(" ", NO_BREAK_SPACE), text)
@@ -258,7 +258,7 @@ def _caption(document, label: str, title: str, keep: bool = True) -> None:
     number.add_run(label).bold = True
     number.paragraph_format.space_after = Pt(0)
     name = document.add_paragraph()
-    name.add_run(printable(title)).italic = True
+    name.add_run(printable(printed(title))).italic = True  # the printed views' signs (reporting.numbers.printed)
     # the caption stays on the page of what it names
     number.paragraph_format.keep_with_next = True
     name.paragraph_format.keep_with_next = keep

@@ -39,7 +39,7 @@ _LATEX = {
     "\u00b2": r"\textsuperscript{2}", "\u03c7": r"$\chi$", "\u2265": r"$\geq$", "\u2264": r"$\leq$",
     "\u2212": r"$-$", "\u2013": "--", "\u2014": "---", "\u00b1": r"$\pm$", "\u2026": r"\dots{}",
     "\u03b1": r"$\alpha$", "\u03c9": r"$\omega$", "\u0394": r"$\Delta$", "\u00d7": r"$\times$",
-    "\u03bb": r"$\lambda$", "\u03c1": r"$\rho$", "\u00a0": "~",
+    "\u03bb": r"$\lambda$", "\u03c1": r"$\rho$", "\u00a0": "~", "\u221a": r"$\surd$",
 }
 
 

@@ -59,8 +59,6 @@ def of_group(result, g: int, tables) -> list[ReportTable]:
     def titled(title: str) -> str:
         if named.search(title):  # the title names its group already
             return title
-        if title.endswith("?"):  # a question asks about the group: 'Are the factors distinct in group A?'
-            return f"{title[:-1]} in group {label}?"
         return f"{title}, group {label}"
 
     return [replace(t, title=titled(t.title)) for t in tables]

@@ -8,7 +8,7 @@ import math
 from dataclasses import replace
 
 from cfa_tool.model.description import parameter_words
-from cfa_tool.note_parts import joined
+from cfa_tool.note_parts import Command, Note, joined
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.numbers import num, unit, word_list
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, _table
@@ -64,8 +64,10 @@ def invariance_power_report(result) -> Report:
     named = result.population.named_groups()
     unnamed = [label for label in labels if label not in named]
     if named and unnamed:  # groups of the sizes that no 'in group' statement names: said, so a misspelling shows
-        lines.append(f"No 'in group' statement names {word_list(unnamed)}: "
-                     f"{'their populations are' if len(unnamed) > 1 else 'its population is'} the shared one.")
+        lines.append(Note((f"The model gives no values of its own to {word_list(unnamed)}",
+                           Command(" (no 'in group' statement names them)" if len(unnamed) > 1 else
+                                   " (no 'in group' statement names it)"),
+                           f": {'their populations are' if len(unnamed) > 1 else 'its population is'} the shared one.")))
     declared = result.population.spec.noninvariant
     if declared:  # partial invariance declared in the model file: the ladder leaves these free
         observed = frozenset(result.population.observed)
@@ -94,7 +96,7 @@ def invariance_power_report(result) -> Report:
                    f"Share rejecting: share of the replications whose every model converged in which the difference "
                    f"test rejected the step at alpha {unit(result.alpha, 2)}: the power when the step's equalities do "
                    f"not hold in the population, the false-alarm rate when they do (nominal "
-                   f"{unit(result.alpha, 2)}). MC SE: its Monte Carlo standard error, sqrt(p(1 - p)/R). Approximation: "
+                   f"{unit(result.alpha, 2)}). MC SE: its Monte Carlo standard error, \u221a(p(1 \u2212 p)/R). Approximation: "
                    f"the rejection probability of the noncentral chi-square whose noncentrality is N times the rise in "
                    f"the minimum discrepancy when the step's model and the one before are fitted to the population "
                    f"itself (Satorra & Saris 1985); none after a step the population already misfits, where it "
@@ -118,7 +120,7 @@ def invariance_power_report(result) -> Report:
                                        d.value, d.reference_value] for d in result.population.differences])))
     line, population = population_parts(shared)
     tables.append(replace(population, title="Population values shared by the groups",
-                          note=joined((line, "Intercepts and factor means are 0 unless a statement gives them.",
+                          note=joined((line, "Intercepts and factor means are 0 unless the model gives them.",
                                        population.note))))
     cautions = [HIGH_STAKES_NOTE]
     if any(s.role is StepRole.AFTER_MISFIT for d in result.designs for s in d.steps):

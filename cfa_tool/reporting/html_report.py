@@ -9,6 +9,7 @@ from cfa_tool.reporting.diagram import MIN_FIGURE_TEXT
 from cfa_tool.reporting.picture import smallest_text, svg_size
 from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS
 from cfa_tool.reporting.escape import html_text as esc
+from cfa_tool.reporting.numbers import printed
 from cfa_tool.note_parts import RUNNING, View, said, titled
 from cfa_tool.reporting.tables import ReportTable
 
@@ -66,6 +67,13 @@ def landscape_figure(svg: str) -> bool:
     return size is not None and size < MIN_FIGURE_TEXT
 
 
+def _set(text: str) -> str:
+    """A table's text (its title, header, cells and note), the methods paragraph and a figure's note as the page
+    prints them: by the printed views' one typographic rule (reporting.numbers.printed: the true minus, '\u2265' for
+    '>='), as the Word file sets the same parts; escaped.  The model file's listing is shown as written."""
+    return esc(printed(text))
+
+
 def _heat(text: str) -> str:
     colour = T.heat_colour(text)
     return "" if colour is None else f' style="background:{colour}"'
@@ -79,17 +87,17 @@ def _indent(text: str) -> str:
 
 
 def table_html(table: ReportTable, view: View = RUNNING) -> str:
-    head = "".join(f'<th class="{a}">{esc(c)}</th>' for c, a in zip(table.columns, table.align))
+    head = "".join(f'<th class="{a}">{_set(c)}</th>' for c, a in zip(table.columns, table.align))
     faint = set(table.faint)
     body = "".join(('<tr class="problem">' if k in table.flagged else "<tr>")
                    + "".join(f'<td class="{a}{" faint" if (k, j) in faint else ""}"'
-                             f'{_heat(v) if table.heat and a == "r" else _indent(v)}>{esc(T.indented(v)[1])}</td>'
+                             f'{_heat(v) if table.heat and a == "r" else _indent(v)}>{_set(T.indented(v)[1])}</td>'
                              for j, (v, a) in enumerate(zip(row, table.align))) + "</tr>"
                    for k, row in enumerate(table.rows))
     note = " ".join(text for text in (said(table.note or "", view), T.HEAT_LEGEND if table.heat else "") if text)
-    note = f'<p class="note">{esc(note)}</p>' if note else ""
+    note = f'<p class="note">{_set(note)}</p>' if note else ""
     matrix = ' class="matrix"' if table.matrix else ""  # a matrix of the items: compact cells
-    html = (f'<table id="{esc(table.key)}"{matrix}><caption>{esc(table.title)}</caption><thead><tr>{head}</tr></thead>'
+    html = (f'<table id="{esc(table.key)}"{matrix}><caption>{_set(table.title)}</caption><thead><tr>{head}</tr></thead>'
             f"<tbody>{body}</tbody></table>")
     # a matrix scrolls inside its own box on screen (its item column kept in view) and prints on a landscape page
     return (f'<div class="wide">{html}</div>' if table.matrix else html) + note
@@ -118,14 +126,14 @@ def report_html_fragment(report, heading: bool = False) -> str:
         parts.append(f'<div class="caution" id="warnings"><strong>{esc(WARNINGS)}</strong><ul class="warnings">'
                      + "".join(f"<li>{esc(said(w, view))}</li>" for w in report.warnings) + "</ul></div>")
     if report.paragraph:
-        parts += [f"<h2>{PARAGRAPH_HEADING}</h2>", f'<p class="summary" id="methods-paragraph">{esc(report.paragraph)}</p>']
+        parts += [f"<h2>{PARAGRAPH_HEADING}</h2>", f'<p class="summary" id="methods-paragraph">{_set(report.paragraph)}</p>']
     for figure in report.figures:
         data = base64.b64encode(figure.svg.encode("utf-8")).decode("ascii")
         wide = " landscape" if landscape_figure(figure.svg) else ""  # printed on a landscape page, as wide tables
         parts += [f'<figure class="diagram{wide}"><figcaption>{esc(figure.title)}</figcaption>'
                   f'<img alt="{esc(figure.title)}" src="data:image/svg+xml;base64,{data}"></figure>']
         if figure.note:
-            parts.append(f'<p class="note">{esc(figure.note)}</p>')
+            parts.append(f'<p class="note">{_set(figure.note)}</p>')
     section = ""
     for table in report.tables:
         if table.section and table.section != section:

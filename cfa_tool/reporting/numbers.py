@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+import re
 
 from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.numerics.plain import decimals_beside
@@ -49,12 +50,29 @@ def fit_index_text(index: str, value, digits: int = 3) -> str:
     return index_text(value, digits, FIT_GUIDES[index].value)
 
 
+# The one typographic rule of the views a reader prints (the Word file, the HTML page, the path diagram that both
+# show): a minus sign before a number is the true minus (U+2212, which is as wide as a plus and after which no line
+# breaks, where a hyphen-minus is narrower and may end a line), and a relation written with two characters before a
+# number is its mathematical sign ('>= .95' as '\u2265 .95').  Values are formatted once, with the plain hyphen-minus
+# (:func:`unit`, :func:`num`): the terminal, Markdown and the data files (CSV, where '\u2212.63' would not read as a
+# number) keep them so, and the printed views pass their text through :func:`printed`.
+_MINUS = re.compile(r"(?<![\w.\u2212])-(?=[\d.])")  # a hyphen before a number that is not inside a word
+_RELATION = re.compile(r"(?<![<>=!])([<>])=(?=\s?[\d.\u2212-])")  # '>= .95', '(RMSEA <= .05)'
+PRINTED_RELATIONS = {">": "\u2265", "<": "\u2264"}
+
+
+def printed(text: str) -> str:
+    """``text`` as a printed view sets it (the rule above): '-.63' as '\u2212.63', '>= .95' as '\u2265 .95'."""
+    return _RELATION.sub(lambda m: PRINTED_RELATIONS[m.group(1)], _MINUS.sub("\u2212", text))
+
+
 def guide_text(index: str, signs: bool = False) -> str:
     """A fit index's guide as the reports print it: '>= .95', '<= .06' (assessment.fit_indices.FIT_GUIDES);
-    ``signs``: with the mathematical signs ('\u2265 .95'), as a paragraph for a journal writes it."""
+    ``signs``: with the mathematical signs ('\u2265 .95') of the printed views' rule (:func:`printed`), as a
+    paragraph for a journal writes it in every view."""
     guide = FIT_GUIDES[index]
-    relation = {">=": "\u2265", "<=": "\u2264"}[guide.relation] if signs else guide.relation
-    return f"{relation} {short(guide.value)}"
+    text = f"{guide.relation} {short(guide.value)}"
+    return printed(text) if signs else text
 
 
 def guides_text(indices, signs: bool = False) -> str:

@@ -16,6 +16,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+import numpy as np
+
 from cfa_tool.method import (MISSING_AT_RANDOM, MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
 from cfa_tool.assessment.admissibility import ProblemKind, design_cautions, failure_words
@@ -28,6 +30,7 @@ from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
+from cfa_tool.note_parts import WORDS as MANUSCRIPT, said as said_in  # ('said' names sentences here)
 from cfa_tool.reporting.numbers import fit_index_text, guides_text, num, p_phrase, signed, unit
 from cfa_tool.reporting.numbers import word_list as _list
 
@@ -1089,6 +1092,127 @@ def methods_paragraph(result) -> str:
     return " ".join(parts)
 
 
+def _values_of(factors, values) -> str:
+    """'.93 for punctuality, .88 for comfort, and .90 for courtesy' (values missing for a factor left out)."""
+    return _list([f"{unit(v, 2)} for {_name(f)}" for f, v in zip(factors, values) if not math.isnan(v)])
+
+
+def _items_of_factors(fit) -> dict[str, set[str]]:
+    """Each factor's items, directly or through the factors below it, from the fit's loading rows (a saved fit's
+    too)."""
+    below: dict[str, set[str]] = {}
+    for r in fit.estimates:
+        if r.kind == "loading":
+            below.setdefault(r.variables[0], set()).add(r.variables[1])
+
+    def items(f: str, seen: frozenset = frozenset()) -> set[str]:
+        out: set[str] = set()
+        for x in below.get(f, ()):
+            out |= items(x, seen | {f}) if x in below and x not in seen else ({x} if x not in below else set())
+        return out
+
+    return {f: items(f) for f in below}
+
+
+def _scored_with_gaps(result) -> tuple[int, int]:
+    """(rows scored that missed some answers of a factor, rows scored that answered none of some factor's items but
+    answered others), from the scores file's items-answered columns (workflows.factor_scores.answered_column)."""
+    from cfa_tool.workflows.factor_scores import answered_column
+
+    items = _items_of_factors(result.fit)
+    columns = [(answered_column(f), len(items.get(f, ()))) for f in result.factors
+               if answered_column(f) in result.table.columns and items.get(f)]
+    if not columns:
+        return 0, 0
+    answered = np.column_stack([result.table[c].to_numpy(dtype=float) for c, _ in columns])
+    total = np.array([n for _, n in columns], dtype=float)
+    scored = np.isfinite(answered).all(axis=1) & (np.nansum(answered, axis=1) > 0)
+    gaps = scored & (answered < total).any(axis=1)
+    none = scored & (answered == 0).any(axis=1)
+    return int(gaps.sum()), int(none.sum())
+
+
+def scores_paragraph(result) -> str:
+    """The methods paragraph of factor scores (workflows.factor_scores.ScoreResult): the fit's own paragraph (the
+    fit above, or the saved one's), then how the scores were computed, from the result's typed fields: each method
+    with its authors, whose parameters, how rows with missing answers were scored (the items answered; a factor
+    none of whose items a row answered predicted from the other answers or left empty; item sums prorated by the
+    least share), the rows without a score, and the scores' determinacy (Grice, 2001) and reliability (Beauducel,
+    2011; omega of the item sums, McDonald, 1999; the posterior means' reliability in the data)."""
+    # (the scoring modules load here, not with a fit's report: the command's cold start)
+    from cfa_tool.reporting.score_words import METHOD_LABELS, SCORE_METHOD_WORDS, share_words
+    from cfa_tool.scoring.methods import (DETERMINACY_CAUTION, ITEM_METHODS, PREDICTING_METHODS, ScoreMethod,
+                                          UnansweredFactor)
+    from cfa_tool.workflows.factor_scores import NotScored
+
+    fit = result.fit
+    saved = getattr(fit, "payload", None)
+    if saved is None:
+        parts = [methods_paragraph(fit)]
+    else:  # an earlier fit read from its JSON result: its own paragraph, as that report gave it
+        earlier = (saved.get("report") or {}).get("paragraph")
+        parts = [earlier] if earlier else []
+    grouped = len(result.quality) > 1
+    whose = "each group's own estimated parameters" if grouped else "the estimated parameters"
+    methods = _list([SCORE_METHOD_WORDS[m] for m in result.methods])
+    if result.scored_source:
+        parts.append(f"With {whose} of that fit (to {_count(fit.n_obs, 'row')}), the rows of {result.scored_source} "
+                     f"were scored on {_count(len(result.factors), 'factor')} as {methods}.")
+    else:
+        parts.append(f"Each row's scores on the {_count(len(result.factors), 'factor')} were computed from {whose} "
+                     f"as {methods}.")
+    gaps, none = _scored_with_gaps(result)
+    factor_methods = [m for m in result.methods if m not in ITEM_METHODS]
+    if gaps and factor_methods:
+        said = (f"The {_count(gaps, 'row')} with missing answers {'was' if gaps == 1 else 'were'} scored from the "
+                f"items {'it' if gaps == 1 else 'they'} answered")
+        predicting = [m for m in factor_methods if m in PREDICTING_METHODS]
+        if none and predicting and result.unanswered is UnansweredFactor.PREDICT:
+            said += (f"; where a row answered none of a factor's items, its {_list([METHOD_LABELS[m] for m in predicting])} "
+                     f"score of that factor is a prediction from its other answers through the factors' correlations, "
+                     f"not a measurement of it")
+        elif none and result.unanswered is UnansweredFactor.LEAVE_EMPTY:
+            said += "; where a row answered none of a factor's items, its score of that factor was left empty"
+        parts.append(said + ".")
+    written = _list([METHOD_LABELS[m] + "s" for m in ITEM_METHODS if m in result.methods])  # 'item sums'
+    if result.item_sums:
+        rule = result.item_sums[0].rule
+        parts.append(f"{_capital(written)} were computed for rows that answered at least "
+                     f"{share_words(rule.least_share)} of a factor's items"
+                     + (" (a common-practice rule, no single source)" if rule.default else "")
+                     + (", prorated from the items answered (the mean of the answered keyed items times the number of "
+                        "items)" if ScoreMethod.ITEM_SUM in result.methods else
+                        ", as the mean of the keyed items answered") + "; rows that answered fewer have none.")
+    empty = {why: n for why, n in result.not_scored.items()}
+    if empty:
+        parts.append(f"Of the {result.rows} rows in the data, {WORDS.get(sum(empty.values()), sum(empty.values()))} "
+                     f"{'has' if sum(empty.values()) == 1 else 'have'} no score ("
+                     + "; ".join(f"{why.words}: {n}" for why, n in empty.items() if isinstance(why, NotScored)) + ").")
+    for q in result.quality:
+        where = f" in group {written_group(q.group, group_labels(fit))}" if grouped and q.group is not None else ""
+        if hasattr(q, "methods"):
+            parts.append(f"With every item answered, the determinacy of the factors{where} (the correlation of the "
+                         f"regression scores with their factor; Grice, 2001) was {_values_of(q.factors, q.determinacy)}.")
+            shown = [m for m in q.methods if m.method in result.methods and m.method is not ScoreMethod.REGRESSION]
+            for m in shown:
+                parts.append(f"The reliability of the {METHOD_LABELS[m.method]} scores{where} (their squared "
+                             f"correlation with the factor; Beauducel, 2011) was {_values_of(m.factors, m.reliability)}.")
+        else:
+            parts.append(f"The reliability of the posterior means{where} in these data (their variance over that "
+                         f"variance plus the mean posterior variance) was {_values_of(q.factors, q.reliability)}.")
+        sums = next((g for g in result.item_sums if g.group == q.group), None)
+        # the fit's paragraph above gives the same omega of the keyed sums (the item sums' reliability is the fit's)
+        in_fit = saved is None and not fit.multigroup and bool(_reliability_sentence(fit))
+        if sums is not None and not in_fit and any(not math.isnan(w) for w in sums.omega):
+            parts.append(f"The reliability of the keyed {written}{where} of rows that answered every item, omega "
+                         f"(McDonald, 1999), was {_values_of(sums.factors, sums.omega)}.")
+    low = list(result.low_determinacy)
+    if low:
+        parts.append(f"The scores of {_names(low)} fall below a determinacy of {unit(DETERMINACY_CAUTION, 2)} (common "
+                     f"practice) and are not suited to decisions about individuals.")
+    return " ".join(p for p in parts if p)
+
+
 #: which of a pair's difference tests a comparison's paragraph reports: the one to read for the fits' test
 _PREFERRED = (DifferenceMethod.SCALE_SHIFTED, DifferenceMethod.SATORRA_BENTLER_2010,
               DifferenceMethod.SATORRA_BENTLER_2001, DifferenceMethod.LIKELIHOOD_RATIO)
@@ -1228,7 +1352,9 @@ def comparison_paragraph(comparison) -> str:
                      + ("; the difference of two full-information fits is a likelihood-ratio test when answers are "
                         "missing at random (Little & Rubin, 2002)." if first.method.full_information else "."))
     missed = {(t.method, t.not_computed) for t in comparison.tests if t.not_computed}
-    parts += [f"{_capital(method.phrase)} was not computed: {reason.split(';')[0]}." for method, reason in
+    # the whole reason (new user s17: it was cut at its first ';'), as a manuscript says it (no option), without the
+    # advice to the reader of the tables (nesting.DifferenceTest.advice)
+    parts += [f"{_capital(method.phrase)} was not computed: {said_in(reason, MANUSCRIPT)}." for method, reason in
               sorted(missed, key=lambda m: _PREFERRED.index(m[0]))]
     for (restricted, general), found in pairs.items():
         pair = f"{label[restricted]} against {label[general]}"
@@ -1538,7 +1664,8 @@ def _one_solution_sentence(rep) -> str:
     t = rep.same_solution
     free = "thresholds" if rep.adjusted else "intercepts"
     if t.not_computed:
-        return (f"Whether one solution holds in both samples was not tested ({t.not_computed}); the cross-validation "
+        return (f"Whether one solution holds in both samples was not tested ({said_in(t.not_computed, MANUSCRIPT)}); "
+                f"the cross-validation "
                 f"index alone describes the replication.")
     held = ("loading, error covariance and factor variance and covariance" if rep.adjusted else
             "loading, error variance and covariance and factor variance and covariance")

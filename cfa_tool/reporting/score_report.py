@@ -12,7 +12,8 @@ from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.options import Option
 from cfa_tool.language.names import written_group
 from cfa_tool.reporting.numbers import num, unit, word_list
-from cfa_tool.reporting.paragraph import group_labels
+from cfa_tool.reporting.paragraph import group_labels, scores_paragraph
+from cfa_tool.reporting.score_words import METHOD_LABELS, share_words
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
 from cfa_tool.workflows.factor_scores import (ABOUT_THE_FIT, SAME_ANSWER_COLUMN, WHY_NOT_SCORED_COLUMN, NotScored,
                                              factor_methods)
@@ -46,10 +47,6 @@ def _where_errors(result) -> Text:
     return Note((Command(f"written with {Option.STANDARD_ERRORS}", "not written in this run's scores file"),
                  f"; {sem}"))
 
-METHOD_LABELS = {ScoreMethod.REGRESSION: "regression", ScoreMethod.BARTLETT: "Bartlett",
-                 ScoreMethod.CORRELATION_PRESERVING: "correlation-preserving",
-                 ScoreMethod.EXPECTED_A_POSTERIORI: "posterior mean", ScoreMethod.ITEM_SUM: "item sum",
-                 ScoreMethod.ITEM_MEAN: "item mean"}
 
 
 #: short column headers (the notes name the methods in full)
@@ -232,7 +229,7 @@ def precision_table(result, k: int) -> ReportTable | None:
             "±1.96 SE about a score (normal approximation); real difference: the smallest difference between two "
             "people's scores that exceeds chance at the 5% level, 1.96 × √2 × SE (Gulliksen 1950). SDs: divided by "
             "the factor's standard deviation." + _one_item_sentence(result.fit))  # (Gulliksen: scoring.quality)
-    return _table(f"score_precision_{k}", "How precise is one person's score?" + _where(result, q), cols, rows, note,
+    return _table(f"score_precision_{k}", "Precision of one person's score" + _where(result, q), cols, rows, note,
                   values=([c for c, _ in cols], values))
 
 
@@ -289,7 +286,7 @@ def item_sum_precision_table(result, k: int) -> ReportTable | None:
             f"about a score (normal approximation); real difference: the smallest difference between two people's "
             f"scores that exceeds chance at the 5% level, 1.96 × √2 × SEM (Gulliksen 1950). "
             + _prorated_sentence(result, sums))
-    return _table(f"item_sum_precision_{k}", "How precise is one person's item score?" + _where(result, q), cols, rows,
+    return _table(f"item_sum_precision_{k}", "Precision of one person's item score" + _where(result, q), cols, rows,
                   note, values=([c for c, _ in cols], values))
 
 
@@ -302,7 +299,7 @@ def _prorated_sentence(result, sums) -> Text:
                            "not written in this run's scores file"),)))
     said = ("A prorated score rests on the items the row answered, and its own SEM is that of their sum, SD × "
             "√(1 − ω) of that sum under the fitted model, scaled as the score is (times J/a for a sum prorated from a "
-            "of J items, divided by a for a mean), as a rule larger than the figure above: each row's is "
+            "of J items, divided by a for a mean), as a rule larger than the figure above. Each row's own SEM is "
             + where + ".")
     if sums.prorated_sem:
         said += " Prorated rows here: " + "; ".join(
@@ -500,11 +497,6 @@ def _unscored_counts(factors, counts) -> str:
     return ", ".join(f"{f} {c}" for f, c in zip(factors, counts) if c)
 
 
-def share_words(share: float) -> str:
-    """A least share in plain words: 'half' for .5, else a percentage ('60%')."""
-    return "half" if share == 0.5 else f"{share:.0%}".replace(".0%", "%")
-
-
 def reason_words(result, reason: str) -> str:
     """Why a cell is empty in plain words: the item sums' reason names the share the run used ('answered fewer than
     half of the factor's items'; new user s15: the rule's own jargon); the option that sets it is in the table's
@@ -559,7 +551,7 @@ def score_tables(result) -> list[ReportTable]:
 
 
 
-def warnings(result) -> list[str]:
+def warnings(result) -> list[Text]:
     """What the report says before its tables: the cautions about the rows' scores first (rows in a group the fit
     does not have, rows scored without an answer to a factor's items), then the fit's warnings (said to be about
     the fit when other data are scored)."""
@@ -573,7 +565,7 @@ def warnings(result) -> list[str]:
     return list(result.warnings) + _guessed_scales(result) + fitted
 
 
-def _guessed_scales(result) -> list[str]:
+def _guessed_scales(result) -> list[Text]:
     """The caution for item sums that reverse an item on the lowest and highest answers the fitted rows gave, which
     no statement declares: a scale whose extreme answer nobody gave would shift every sum with that item."""
     from cfa_tool.workflows.factor_scores import ScaleSource
@@ -582,10 +574,10 @@ def _guessed_scales(result) -> list[str]:
     if not guessed:
         return []
     listed = ", ".join(f"{x} ({r.lowest:g} to {r.highest:g})" for x, r in guessed.items())
-    return [f"The item sums and means reverse {listed} on the lowest and highest answers of the rows the model was "
-            f"fitted to, as no statement declares the answer scale; if the scale runs wider than these answers, every "
-            f"sum with {'this item' if len(guessed) == 1 else 'these items'} is shifted: declare the scale with "
-            f"'reversed ITEM on LOWEST to HIGHEST' in the model file."]
+    return [Note((f"The item sums and means reverse {listed} on the lowest and highest answers of the rows the model "
+                  f"was fitted to, as the model does not declare the answer scale; if the scale runs wider than these "
+                  f"answers, every sum with {'this item' if len(guessed) == 1 else 'these items'} is shifted: declare "
+                  f"the scale", Command(" with 'reversed ITEM on LOWEST to HIGHEST'"), " in the model file."))]
 
 
 def scores_report(result):
@@ -596,7 +588,8 @@ def scores_report(result):
     return Report(ResultKind.SCORES, f"Factor scores: {result.fit.model_name}", scores_notice(result),
                   tuple(header_lines(result)) + tuple(caution_lines(result)), tuple(score_tables(result)),
                   tuple(result.notes) + tuple(item_sum_notes(result)), (SCORES_CAUTION, HIGH_STAKES_NOTE, flagging_caution(result)),
-                  problem_table=scores_problem_table(result), warnings=tuple(warnings(result)))
+                  paragraph=scores_paragraph(result), problem_table=scores_problem_table(result),
+                  warnings=tuple(warnings(result)))
 
 
 def scores_notice(result) -> T.ProblemNotice | None:

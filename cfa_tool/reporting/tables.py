@@ -477,19 +477,35 @@ def estimate_tables(result, group: int = 0) -> list[ReportTable]:
     matrix = _factor_matrix(result, group)
     if matrix is not None:
         tables.append(matrix)
+    means = [r for r in result.estimates if r.kind == "mean" and r.group == label and r.variables[0] not in lower]
+    # factor means that are all fixed at 0 hold nothing estimated: no table of zeros, one sentence under the
+    # intercepts (new user s17: a manuscript's 'Factor means' table of fixed zeros)
+    zero_means = bool(means) and all(not r.free and r.estimate == 0.0 for r in means)
     for kind, title in KIND_TITLES.items():
         if kind in ("loading", "factor_variance", "factor_covariance", "residual_variance"):
             continue
         rows = [r for r in result.estimates if r.kind == kind and r.group == label]
         if kind == "mean":  # a factor explained by a higher-order factor has no mean parameter: an intercept
-            parts = [(kind, title, [r for r in rows if r.variables[0] not in lower], None),
+            parts = [(kind, title, [] if zero_means else means, None),
                      ("factor_intercept", DISTURBANCE_INTERCEPTS, [r for r in rows if r.variables[0] in lower],
                       DISTURBANCE_INTERCEPTS_NOTE)]
+        elif kind == "intercept" and zero_means:
+            parts = [(kind, title, rows, zero_means_note([r.variables[0] for r in means], label is not None))]
         else:
             parts = [(kind, title, rows, None)]
         tables.extend(_estimates_table(result, kind, key + suffix, heading, chosen, note)
                       for key, heading, chosen, note in parts if chosen)
     return tables
+
+
+def zero_means_note(factors: list[str], grouped: bool) -> str:
+    """What the intercepts' table says when every factor mean of a group is fixed at 0, in place of a table of zeros:
+    the factors named (a factor below a higher-order factor has an intercept, not a mean, which its own table shows);
+    ``grouped``: the fit has groups, and this is one group's."""
+    many = len(factors) > 1
+    return (f"The mean{'s' if many else ''} of {word_list(factors)} {'are' if many else 'is'} fixed at 0"
+            f"{' in this group' if grouped else ''} (not estimated), so no table shows "
+            f"{'them' if many else 'it'}.")
 
 
 #: the means table's rows for factors that indicate a higher-order factor: intercepts, not means (Bollen 1989)
@@ -819,7 +835,7 @@ def modification_table(result, group: int | None = None, limit: int = 10) -> Rep
 
 
 def reliability_table(result, group: int = 0) -> ReportTable | None:
-    """How reliable are the scale scores: omega (hierarchical for a higher-order factor), omega total, alpha
+    """The reliability of the scale scores: omega (hierarchical for a higher-order factor), omega total, alpha
     and composite reliability, per factor; for ordinal items these describe the latent responses, and the omega
     of the answers' sum (Green & Yang 2009) stands beside them."""
     rows = result.groups[group].reliability
@@ -871,7 +887,7 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
     if methods:
         note += (f" Method factors ({', '.join(methods)}) stand for a way of answering, not a trait: they get no "
                  f"coefficients and take no part in the Fornell-Larcker and HTMT comparisons.")
-    title = "How reliable are the scale scores?" + (" (ordinal: sum omega for the answers' sum, the others for the "
+    title = "Reliability of the scale scores" + (" (ordinal: sum omega for the answers' sum, the others for the "
                                                      "latent responses)" if ordinal else "")
     return _table(f"reliability_{group}", title, columns, body, _unusable(result) + note,
                   _all_if_unusable(result, body), values=(names, values))
@@ -903,7 +919,7 @@ def _all_if_unusable(result, body) -> tuple[int, ...]:
 
 
 def distinct_table(result, group: int = 0) -> ReportTable | None:
-    """Are the factors distinct: per pair of trait factors their correlation (with its interval when the
+    """Whether the factors are distinct: per pair of trait factors their correlation (with its interval when the
     factors are scaled by their variances), the heterotrait-monotrait ratio and the Fornell-Larcker comparison.
     Left out, with a note: a bifactor model's general factor with its specific factors, and pairs whose correlation
     the model fixes (at any value: 'uncorrelated', or a covariance fixed at 0 or between factors of fixed
@@ -954,10 +970,10 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
             numbers.append([a, b, r, lo, hi, None if h is None else h.ratio, ave_a, ave_b, "yes" if holds else "no"])
     note = ("HTMT: heterotrait-monotrait ratio of the keyed items, in absolute value (Henseler, Ringle & Sarstedt "
             "2015); common practice reads values above .85 (or .90) as a sign that two factors are not distinct. "
-            "sqrt(AVE) > |r|: both factors' average variance extracted exceeds their squared correlation (Fornell & "
+            "\u221aAVE > |r|: both factors' average variance extracted exceeds their squared correlation (Fornell & "
             "Larcker 1981).")
     columns = [("Factor", "l"), ("Factor", "l"), ("r", "r"), ("95% CI", "r"), ("HTMT", "r"), ("AVE", "r"),
-               ("sqrt(AVE) > |r|", "l")]
+               ("\u221aAVE > |r|", "l")]
     if not any(row[3] for row in body):  # no interval to show (fixed correlations, or factors scaled otherwise)
         columns.pop(3)
         body = [row[:3] + row[4:] for row in body]
@@ -980,38 +996,47 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
                  f"are distinct.")
     if not body:
         return None
-    return _table(f"distinct_{group}", "Are the factors distinct?", columns, body, _unusable(result) + note,
+    return _table(f"distinct_{group}", "Distinctness of the factors: correlations, HTMT and AVE", columns, body, _unusable(result) + note,
                   _all_if_unusable(result, body),
                   values=(["Factor", "Factor", "r", "95% CI lower", "95% CI upper", "HTMT", "AVE (first)", "AVE (second)",
                            "sqrt(AVE) > |r|"], numbers))
 
 
-def _no_interval_reasons(other_scale: set[str], implied: bool) -> str:
+def _no_interval_reasons(other_scale: set[str], implied: bool) -> Text:
     """Why no correlation of the distinct table has an interval: a higher-order factor implies them, or some factors
     are scaled otherwise than by their variances (the only case the advice to scale by variance fits, so that it
-    never asks for what the model already does); the correlations the model fixes are left out of the table."""
-    parts = []
+    never asks for what the model already does); the correlations the model fixes are left out of the table.  The
+    model file's statement apart (note_parts.Command): a manuscript says it in words."""
     if implied:
-        parts.append("the correlations of factors below a higher-order factor are implied by it, not parameters")
-    elif other_scale:
-        parts.append(f"a correlation is a parameter of the model only when both factors are scaled by their variances "
-                     f"('scale latent by variance'), and {word_list(sorted(other_scale))} "
-                     f"{'are' if len(other_scale) > 1 else 'is'} scaled otherwise")
-    return "; ".join(parts) + "." if parts else "none of these correlations is a parameter of the model."
+        return "the correlations of factors below a higher-order factor are implied by it, not parameters."
+    if other_scale:
+        return Note(("a correlation is a parameter of the model only when both factors are scaled by their variances",
+                     Command(SCALE_BY_VARIANCE), f", and {word_list(sorted(other_scale))} "
+                     f"{'are' if len(other_scale) > 1 else 'is'} scaled otherwise."))
+    return "none of these correlations is a parameter of the model."
 
 
-def keying_sentence(rows) -> str:
-    """Which items every coefficient treats as reversed, and why."""
+#: the model file's statement that scales every factor by its variance, as a note gives it to the program's user (a
+#: manuscript's note says 'scaled by their variances' and needs no more)
+SCALE_BY_VARIANCE = " ('scale latent by variance')"
+#: the model file's statement of reverse-keyed items, as a note names it to the program's user
+REVERSED_STATEMENT = " (its 'reversed' statement)"
+
+
+def keying_sentence(rows) -> Text:
+    """Which items every coefficient treats as reversed, and why; the model file's statement apart
+    (note_parts.Command), which a manuscript leaves out."""
     lists = [f"{r.factor}: {', '.join(r.reversed)}" for r in rows if r.reversed]
     declared = any(r.keying is Keying.DECLARED for r in rows)
     if not lists:
-        return ("Every item is keyed as the 'reversed' statement says: none is reversed. " if declared else
+        return (Note(("Every item is keyed as the model declares", Command(REVERSED_STATEMENT),
+                      ": none is scored in reverse. ")) if declared else
                 "Every item loads in its factor's direction, so none is reversed for scoring. ")
-    why = ("as the 'reversed' statement declares" if declared else
+    why = (Note(("as the model declares", Command(" in its 'reversed' statement"))) if declared else
            "their loadings have the sign opposite to most items of their factor"
            + ("; where half of a factor's items load each way, opposite to the half with the larger loadings"
               if any(r.evenly_split for r in rows) else ""))
-    return f"Computed for keyed sums; reversed for scoring ({why}): {'; '.join(lists)}. "
+    return "Computed for keyed sums; reversed for scoring (" + why + f"): {'; '.join(lists)}. "
 
 
 def _fixed_alike(result) -> bool:
@@ -1069,10 +1094,10 @@ def sum_score_table(result, group: int = 0) -> ReportTable | None:
     note = (f"The sum of each factor's items with reverse-keyed items reversed. Mean, SD (divisor N - 1) and "
             f"item-rest r come from the item means and covariances the fit analysed: {moments_source(result, group)}.")
     if any(r.sum_score_mean is None for r in rows):
-        note += (" A mean is shown once the answer scale of the reversed items is known: declare it with "
-                 "'reversed ITEMS on LOWEST to HIGHEST'.")
+        note += Note((" A mean is shown once the answer scale of the reversed items is known: declare it in the model",
+                      Command(" with 'reversed ITEMS on LOWEST to HIGHEST'"), "."))
     if result.multigroup:
-        note = f"{_sums_across_groups(result, rows)} {note}"
+        note = _sums_across_groups(result, rows) + " " + note  # (a Note stays one: no f-string)
     values = [[r.factor, len(r.items), ", ".join(r.reversed), r.sum_score_mean, r.sum_score_sd,
                min(r.item_total) if r.item_total else None] for r in rows]
     columns = [("Factor", "l"), ("Items", "r"), ("Reversed for scoring", "l"), ("Mean", "r"), ("SD", "r"),

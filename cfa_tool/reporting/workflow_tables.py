@@ -341,7 +341,8 @@ def comparison_report(comparison) -> Report:
             if t.not_computed:  # the changes in fit indices describe the two fits, with or without a statistic
                 rows.append([t.method, f"not computed ({t.df_difference})", "", signed(t.delta_cfi),
                              signed(t.delta_rmsea)])
-                notes.append(f"{t.method}: not computed: {t.not_computed}.")
+                notes.append(f"{t.method}: not computed: " + t.not_computed + (f"; {t.advice}" if t.advice else "")
+                             + ".")
             else:
                 rows.append([t.method, f"{t.chi_square_difference:.3f} ({t.df_difference})",
                              p_value(t.p_value) + (" *" if boundary else ""), signed(t.delta_cfi), signed(t.delta_rmsea)])
@@ -349,7 +350,7 @@ def comparison_report(comparison) -> Report:
                     pair = f" ({restricted} against {general})" if len(pairs) > 1 else ""
                     notes.append(f"{t.method}{pair}: {t.scaled_by}.")
             values.append([t.method, None if t.not_computed else t.chi_square_difference, t.df_difference,
-                           None if t.not_computed else t.p_value, t.delta_cfi, t.delta_rmsea, t.not_computed,
+                           None if t.not_computed else t.p_value, t.delta_cfi, t.delta_rmsea, str(t.not_computed),
                            "; ".join(t.boundary), None if missing(t.boundary_p_value) else t.boundary_p_value])
         if boundary:  # the why once, in the first such caution; the later ones name what lies on their boundary
             computed = any(not t.not_computed for t in found)  # no p-value to read as approximate otherwise
@@ -731,7 +732,7 @@ def replication_report(replications) -> Report:
             rows.append([SAME_SOLUTION_ROW, "not tested", "", "", "", ""])
             values.append([f"{SAME_SOLUTION_ROW} (not tested)", total, None, None, None, None, None])
             notes.append(f"{rep.calibration} and {rep.validation}: one solution for both samples was not tested: "
-                         f"{same.not_computed}; the cross-validation index is descriptive only.")
+                         + same.not_computed + "; the cross-validation index is descriptive only.")
         else:
             rows.append([SAME_SOLUTION_ROW, f"{same.chi_square_difference:.3f}", str(same.df_difference),
                          p_value(same.p_value), "", ""])

@@ -18,6 +18,7 @@ from cfa_tool.data.moments import SampleMoments
 from cfa_tool.pipeline.continuous import Estimation, FitOptions, estimate
 from cfa_tool.language.spec import Spec
 from cfa_tool.method import DifferenceMethod, FitTest
+from cfa_tool.note_parts import Text
 from cfa_tool.pipeline.results import FitResult, clean
 
 NESTING_TOLERANCE = 1e-7  # minimum discrepancy below which the implied moments count as reproduced
@@ -33,7 +34,8 @@ class DifferenceTest:
     method: DifferenceMethod
     delta_cfi: float
     delta_rmsea: float
-    not_computed: str = ""  # why the statistic could not be computed ('' when it was)
+    # why the statistic could not be computed ('' when it was): words, or a Note whose option a manuscript leaves out
+    not_computed: Text = ""
     # what the restricted model fixes on the boundary of the general model's space (in words; empty when nothing):
     # the difference then does not follow the chi-square distribution of ``p_value``
     boundary: tuple[str, ...] = ()
@@ -45,10 +47,13 @@ class DifferenceTest:
     scaling_factors: tuple[float, float] = (float("nan"), float("nan"))
     correction: float = float("nan")
     scaled_by: str = ""
+    # what the reader of the report's tables reads instead when the statistic was not computed ('read the scaled
+    # difference'), apart from the reason: a methods paragraph gives the whole reason and leaves the advice out
+    advice: str = ""
 
     def to_dict(self) -> dict:
         out = clean(dict(self.__dict__))
-        out["not_computed"] = self.not_computed or None
+        out["not_computed"] = str(self.not_computed) or None  # a Note as its reader reads it
         out["scaled_by"] = self.scaled_by or None
         return out
 
@@ -186,7 +191,7 @@ def difference_test(restricted: FitResult, general: FitResult, restricted_name: 
     design = getattr(general, "design", None)
     if design is not None and design.columns.robust:  # a weighted (pseudo-) likelihood or clustered rows: no test
         return DifferenceTest(restricted_name, general_name, diff, ddf, float("nan"), DifferenceMethod.LIKELIHOOD_RATIO,
-                              r.cfi - g.cfi, r.rmsea - g.rmsea, PSEUDO_LIKELIHOOD)
+                              r.cfi - g.cfi, r.rmsea - g.rmsea, PSEUDO_LIKELIHOOD, advice="read the scaled difference")
     return likelihood_ratio_difference(r.chi_square, r.df, g.chi_square, g.df, restricted_name, general_name,
                                        r.cfi - g.cfi, r.rmsea - g.rmsea)
 
@@ -205,8 +210,7 @@ def likelihood_ratio_difference(chi_restricted: float, df_restricted: int, chi_g
 
 #: why the plain likelihood-ratio difference is not a test under a sampling design
 PSEUDO_LIKELIHOOD = ("under the sampling design the likelihood is a weighted pseudo-likelihood (or the rows are not "
-                     "independent), so the plain difference does not follow a chi-square distribution; read the scaled "
-                     "difference")
+                     "independent), so the plain difference does not follow a chi-square distribution")
 
 
 @dataclass(frozen=True)
@@ -268,16 +272,17 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
                                       correction=float(cd), scaled_by=_scaled_by(method, rr, c0, c1, cd,
                                                                                  restricted_scaling is not None)))
         else:
+            first = method is not DifferenceMethod.SATORRA_BENTLER_2010
             out.append(DifferenceTest(restricted_name, general_name, float("nan"), ddf, float("nan"), method, delta_cfi,
                                       delta_rmsea, f"its scaling correction is not positive ({cd:.3f}), so the "
                                       "difference cannot be scaled" + (
-                                          "" if method is DifferenceMethod.SATORRA_BENTLER_2010 else
+                                          "" if not first else
                                           ": this version's correction can be negative, in small samples or "
                                           "when the restricted model is far from the data (Satorra & Bentler "
-                                          "2010); " + (
-                                              "read the strictly positive version" if general_scaling_at_restricted
-                                              is not None else "the strictly positive version is not available "
-                                                               "either"))))
+                                          "2010)" + ("" if general_scaling_at_restricted is not None else
+                                                     "; the strictly positive version is not available either")),
+                                      advice="read the strictly positive version" if first and
+                                      general_scaling_at_restricted is not None else ""))
     return out
 
 

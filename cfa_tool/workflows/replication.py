@@ -84,6 +84,7 @@ from cfa_tool.pipeline.continuous import (FULL_INFORMATION_INSTEAD, PAIRWISE_INS
                                           listwise_problem)
 from cfa_tool.language.spec import Spec
 from cfa_tool.method import DifferenceMethod, FitTest, MissingData, Weighting
+from cfa_tool.note_parts import Text, joined
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.workflows.nesting import DifferenceTest, likelihood_ratio_difference, scaled_difference
@@ -219,7 +220,7 @@ def _one_solution_spec(spec: Spec) -> Spec:
     return replace(spec, invariant=SAME_SOLUTION_CLASSES, noninvariant=())
 
 
-def _not_tested(why: str) -> DifferenceTest:
+def _not_tested(why: Text) -> DifferenceTest:
     nan = float("nan")
     return DifferenceTest(ONE_SOLUTION, OWN_SOLUTIONS, nan, 0, nan, DifferenceMethod.LIKELIHOOD_RATIO, nan, nan, why)
 
@@ -299,14 +300,14 @@ def _same_solution(spec: Spec, calibration: SampleMoments, validation: SampleMom
         with estimation_of("the two samples pooled"):
             chi, df, pooled = pooled_chi_square(spec, (calibration, validation), fit_options)
         if not pooled.converged:
-            return _not_tested(f"the model did not converge in the two samples pooled ({pooled.message})")
+            return _not_tested("the model did not converge in the two samples pooled (" + pooled.message + ")")
         return _impossible(((JOINT, pooled),)) or _likelihood_ratio(chi, df, (cal, loose))
     fit_options = replace(make_options({**options, "missing": MissingData.FULL_INFORMATION}), diagnostics=False)
     with estimation_of("the two samples with one solution"):
         both = fit_moments(_one_solution_spec(spec), [("calibration", calibration), ("validation", validation)],
                            fit_options, "sample")
     if not both.converged:
-        return _not_tested(f"the two-sample model with one solution did not converge ({both.message})")
+        return _not_tested("the two-sample model with one solution did not converge (" + both.message + ")")
     return _impossible(((JOINT, both),)) or _likelihood_ratio(both.fit.chi_square, both.fit.df, (cal, loose))
 
 
@@ -329,8 +330,8 @@ def _scaled_same_solution(spec: Spec, calibration: SampleMoments, validation: Sa
     (own_est, own), (one_est, one) = fits
     if not (own.converged and one.converged):
         return _not_tested("the two-sample fit with the robust test did not converge ("
-                           + "; ".join(f"{name}: {r.message}" for name, r in ((OWN_SOLUTIONS, own), (ONE_SOLUTION, one))
-                                       if not r.converged) + ")")
+                           + joined([name + ": " + r.message for name, r in ((OWN_SOLUTIONS, own), (ONE_SOLUTION, one))
+                                     if not r.converged], "; ") + ")")
     impossible = _impossible(((JOINT, one),))
     if impossible is not None:
         return impossible

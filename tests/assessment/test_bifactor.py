@@ -39,7 +39,7 @@ def bifactor_fit():
 
 
 def _text(table) -> str:
-    return " ".join((table.note or "").split())
+    return " ".join(str(table.note or "").split())  # a Note as the terminal says it
 
 
 def test_the_one_rule_recognises_a_general_factor_only_when_it_is_uncorrelated_with_its_specific_factors():

@@ -24,13 +24,13 @@ def test_a_one_item_factor_gets_no_coefficients_and_its_item_a_factor(hs_data):
     assert one.fornell_larcker_holds is None
     assert 0 < by_factor["textual"].omega < 1  # the factor with three items keeps its coefficients
     words = " ".join(report_text(report_of(result)).split())
-    table = words[words.index("How reliable are the scale scores?"):]
+    table = words[words.index("Reliability of the scale scores"):]
     assert table.index("visual 1 textual 3") < table.index(
         "visual: measured by one item, whose error variance the model fixes, so its reliability coefficients restate "
         "that fixed value (Bollen 1989, ch. 7), not evidence from the data; no coefficients are shown, and it takes no "
         "part in the Fornell-Larcker comparison.")
     assert "1.000" not in table[:table.index("textual 3")]
-    assert "Are the factors distinct?" not in words  # one trait factor with an AVE left: nothing to compare
+    assert "Distinctness of the factors: correlations, HTMT and AVE" not in words  # one trait factor with an AVE left: nothing to compare
     items = words[words.index("Items: descriptive statistics"):]
     assert "x1 301" in items and items.index("visual") < items.index("textual")
 
@@ -55,7 +55,7 @@ def test_every_note_finds_one_item_factors_by_one_detector_and_says_it_in_one_wo
     assert [r.factor for r in result.groups[0].reliability if len(r.items) == 1] == ["visual", "speed"]
     fact = ("visual, speed: measured by one item, whose error variance the model fixes, so their {} restate that "
             "fixed value (Bollen 1989, ch. 7), not evidence from the data")
-    reliability = next(t for t in report_of(result).tables if t.title.startswith("How reliable"))
+    reliability = next(t for t in report_of(result).tables if t.title.startswith("Reliability of the scale scores"))
     assert fact.format("reliability coefficients") + "; no coefficients are shown, and they take no part" \
         in reliability.note
     model_file, saved = tmp_path / "m.cfa", tmp_path / "fit.json"

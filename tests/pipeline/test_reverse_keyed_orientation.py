@@ -151,7 +151,8 @@ def test_a_factor_whose_items_split_evenly_is_named():
     result = cfa_tool.fit("factor k: d1..d4\n", rows)
     said = [w for w in result.warnings if "half of its items load each way" in w]
     assert len(said) == 1 and "factor 'k': half of its items load each way" in said[0]
-    assert "declare the items worded against the trait with 'reversed" in said[0]
+    # the statement apart (note_parts.Command): the terminal gives it, a manuscript says it in words
+    assert "declare the items worded against the trait as scored in reverse with 'reversed" in said[0]
     (r,) = [r for r in result.groups[0].reliability if r.factor == "k"]
     assert r.evenly_split and r.to_dict()["evenly_split"] is True
     text = " ".join(result.summary().split())
@@ -182,7 +183,7 @@ def test_several_split_factors_share_one_caution_that_names_each_ones_halves():
     names = ["d1", "d2", "d3", "d4", "e1", "e2", "e3", "e4"]
     rows = simulate_cfa(L, np.eye(2), np.diag(np.full(8, 0.51)), 800, 31, names)
     result = cfa_tool.fit("factor k: d1..d4\nfactor m: e1..e4\n", rows)
-    said = [w for w in result.warnings if "load each way" in w]
+    said = [str(w) for w in result.warnings if "load each way" in w]  # a Note (its statement apart) as said
     assert len(said) == 1 and said[0].startswith("factors 'k' and 'm': half of each one's items load each way")
     for r in result.groups[0].reliability:
         rest = [x for x in r.items if x not in r.reversed]

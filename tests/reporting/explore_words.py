@@ -62,7 +62,10 @@ class _Visible(HTMLParser):
 def html_words(page: str) -> set[str]:
     parser = _Visible()
     parser.feed(page)
-    return words(" ".join(parser.parts).replace("\\n", " "))  # (the former page showed the draft's line ends so)
+    # (the former page showed the draft's line ends so; it wrote a minus sign and a relation as the terminal does,
+    # where the page now prints them by the printed views' rule, reporting.numbers.printed: read back as before)
+    text = " ".join(parser.parts).replace("\\n", " ").replace("\u2212", "-")
+    return words(text) | words(text.replace("\u2265", ">=").replace("\u2264", "<="))
 
 
 def markdown_words(text: str) -> set[str]:

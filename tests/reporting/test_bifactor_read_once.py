@@ -29,7 +29,7 @@ CORRELATED = BUNDLED.replace("uncorrelated experience, punctuality, comfort, cou
 
 
 def _flat(text: str) -> str:
-    return " ".join(text.split())
+    return " ".join(str(text).split())  # (a note with a model statement apart is a Note: as the terminal says it)
 
 
 @pytest.fixture(scope="module")

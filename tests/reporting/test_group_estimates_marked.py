@@ -36,7 +36,7 @@ def test_each_group_table_names_its_group_and_no_two_share_a_title(partial):
         assert f"group {label}" in t.title, (t.section, t.title)
     titles = [t.title for t in report.tables]
     assert len(titles) == len(set(titles))  # before: 'Factor visual (scale: ...)' twice, the group nowhere in it
-    assert "How reliable are the scale scores in group Pasteur?" in titles
+    assert "Reliability of the scale scores, group Pasteur" in titles
 
 
 def test_the_parameters_held_equal_are_those_the_model_declares(partial):

@@ -96,7 +96,10 @@ def test_the_intercepts_of_factors_under_a_higher_order_factor_are_not_called_me
     report = fit_report(result)
     means = [t for t in report.tables if t.title.startswith("Factor means")]
     intercepts = [t for t in report.tables if t.title.startswith(DISTURBANCE_INTERCEPTS)]
-    assert [[row[0] for row in t.rows] for t in means] == [["g"], ["g"]]
+    # g's mean is fixed at 0 in both groups: no table of fixed zeros (new user s17), a sentence under the intercepts
+    assert means == []
+    assert [t.note.startswith("The mean of g is fixed at 0 in this group (not estimated), so no table shows it.")
+            for t in report.tables if t.title.startswith("Intercepts,")] == [True] * 2
     assert [[row[0] for row in t.rows] for t in intercepts] == [["visual", "textual", "speed"]] * 2
     pasteur = {r.variables[0]: r.estimate for r in result.estimates if r.kind == "mean" and r.group == "Pasteur"}
     assert pasteur["g"] == 0.0 and pasteur["textual"] != 0.0  # free in the second group: the table shows them
@@ -107,7 +110,7 @@ def test_the_intercepts_of_factors_under_a_higher_order_factor_are_not_called_me
         text = _plain(text)
         first = text.index(DISTURBANCE_INTERCEPTS)
         assert _plain(DISTURBANCE_INTERCEPTS_NOTE) in text[first:], name
-        assert text.index("Factor means") < first, name  # each group's means table, then its intercepts
+        assert "Factor means" not in text, name  # g's means are fixed at 0 in each group: no table of zeros
 
 
 def test_compare_names_an_inadmissible_solution_before_the_fit_figures(hs_data):

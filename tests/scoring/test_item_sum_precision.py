@@ -53,7 +53,7 @@ def test_item_sums_and_means_have_their_standard_error_of_measurement(hs_data):
         assert mean.standard_error == pytest.approx(sem / len(items), rel=1e-6)
         assert mean.scale_sd == pytest.approx(sd / len(items), rel=1e-6)
     # the report's table, in every view, and the JSON
-    table = next(t for t in scores_report(result).tables if t.title == "How precise is one person's item score?")
+    table = next(t for t in scores_report(result).tables if t.title == "Precision of one person's item score")
     sd, omega, sem = _congeneric(result, "visual", FACTORS["visual"])
     assert table.rows[0] == ("visual", "item sum", "3", f"{omega:.3f}".lstrip("0"), f"{sd:.2f}", f"{sem:.2f}",
                              f"±{Z95 * sem:.2f}", f"{Z95 * np.sqrt(2) * sem:.2f}")
@@ -64,7 +64,7 @@ def test_item_sums_and_means_have_their_standard_error_of_measurement(hs_data):
 
 def test_an_item_mean_alone_has_its_table_in_the_answer_scale(hs_data):
     result = cfa_tool.scores(THREE_FACTORS, hs_data, methods="item-mean")
-    table = next(t for t in scores_report(result).tables if t.title == "How precise is one person's item score?")
+    table = next(t for t in scores_report(result).tables if t.title == "Precision of one person's item score")
     sd, _, sem = _congeneric(result, "speed", FACTORS["speed"])
     assert table.columns[:2] == ("Factor", "Items")  # one method: no column naming it
     row = next(r for r in table.rows if r[0] == "speed")

@@ -30,7 +30,7 @@ ONE_ITEM = "factor visual: x1\nfix variance(x1) = 0.3\nfactor textual: x4, x5, x
 def _tables(result) -> dict:
     found = {}
     for t in scores_report(result).tables:
-        for key, start in (("quality", "Quality of the scores"), ("precision", "How precise is one person's item"),
+        for key, start in (("quality", "Quality of the scores"), ("precision", "Precision of one person's item"),
                            ("sums", "Keyed sum scores")):
             if t.title.startswith(start):
                 found[key] = t

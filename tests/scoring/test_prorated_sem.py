@@ -41,10 +41,10 @@ def test_a_prorated_sum_has_the_sem_of_the_items_it_answered(hs_data):
     # a row that answered every item has the precision table's SEM
     (full,) = [p for p in result.item_sums[0].precision if p.factor == "visual" and p.method.value == "item-sum"]
     assert table["visual_item_sum_sem"].iloc[0] == pytest.approx(full.standard_error, rel=1e-9)
-    note = next(t for t in scores_report(result).tables if t.title == "How precise is one person's item score?").note
+    note = next(t for t in scores_report(result).tables if t.title == "Precision of one person's item score").note
     low, high = sorted(3 / 2 * np.sqrt(theta[a] + theta[b]) for a, b in (("x1", "x3"), ("x2", "x3")))
     assert f"Prorated rows here: visual 2 rows, item sum SEM {low:.2f} to {high:.2f}." in note
-    assert "each row's is in the file's _sem columns" in note
+    assert "Each row's own SEM is in the file's _sem columns" in note
     assert result.to_dict()["item_sums"][0]["prorated_standard_errors_of_measurement"] == [
         {"factor": "visual", "method": "item-sum", "least": pytest.approx(low), "largest": pytest.approx(high), "rows": 2}]
 

@@ -33,7 +33,7 @@ def test_standard_error_band_and_smallest_difference_by_hand(hs_data):
     # the regression score's reliability is 1 - SE^2 / Phi (its squared correlation with the factor)
     assert p.reliability == pytest.approx(1 - se**2 / phi, rel=1e-8)
     report = scores_report(result)
-    table = next(t for t in report.tables if t.title.startswith("How precise"))
+    table = next(t for t in report.tables if t.title.startswith("Precision of one person"))
     assert table.rows[0][:3] == ("visual", f"{se:.2f}", f"±{1.959964 * se:.2f}")
     # three items of a reliability below .90: a caution first, in the box read before the scores (new user s14:
     # it came last, after the tables), not among the closing cautions
@@ -57,7 +57,7 @@ def test_the_precision_table_is_of_the_first_method_written(hs_data):
     se = np.sqrt(1.0 / (lam @ (lam / theta)))
     (p,) = precision_of(q, ScoreMethod.BARTLETT)
     assert p.standard_error == pytest.approx(se, rel=1e-8)
-    table = next(t for t in scores_report(result).tables if t.title.startswith("How precise"))
+    table = next(t for t in scores_report(result).tables if t.title.startswith("Precision of one person"))
     assert table.rows[0][:2] == ("visual", f"{se:.2f}") and "For Bartlett scores" in table.note
     assert [d["method"] for d in q.to_dict()["precision"]] == ["regression", "bartlett", "correlation-preserving"]
 
@@ -80,7 +80,7 @@ def test_a_factor_of_one_item_is_said_to_restate_its_fixed_error_variance(hs_dat
     # not evidence; both tables say so (Bollen 1989, ch. 7, on single indicators; the chapter recalled from memory)
     result = cfa_tool.scores("factor visual: x1\nfix variance(x1) = 0\nfactor textual: x4, x5, x6\n", hs_data)
     report = scores_report(result)
-    for title in ("Quality of the scores", "How precise"):
+    for title in ("Quality of the scores", "Precision of one person"):
         table = next(t for t in report.tables if t.title.startswith(title))
         assert ("visual: measured by one item, whose error variance the model fixes, so its determinacy, "
                 "reliability and precision restate that fixed value") in table.note

@@ -85,14 +85,14 @@ def test_the_caution_and_the_precision_table_count_what_was_left_empty(blanked):
     assert not [p for p in empty.fit.problems if p.kind is ProblemKind.SCORED_WITHOUT_OWN_ANSWERS]
     report = scores_report(empty)
     assert any("answered none of the items of visual" in line for line in report.notice.lines)
-    (precision,) = [t for t in report.tables if t.title.startswith("How precise is one person's score")]
+    (precision,) = [t for t in report.tables if t.title.startswith("Precision of one person's score")]
     assert ("Left empty, as asked (unanswered_factors='leave-empty'): the regression scores of rows that answered "
             "none of the factor's items, visual 2, textual 1;") in precision.note
     # the default: the scores are written, the caution says what they rest on and how to leave them empty
     kept = cfa_tool.scores(THREE_FACTORS, blanked)
     (said,) = [p for p in kept.fit.problems if p.kind is ProblemKind.SCORED_WITHOUT_OWN_ANSWERS]
     assert "unanswered_factors='leave-empty'" in said.advice
-    (precision,) = [t for t in scores_report(kept).tables if t.title.startswith("How precise is one person's score")]
+    (precision,) = [t for t in scores_report(kept).tables if t.title.startswith("Precision of one person's score")]
     assert "Left empty" not in precision.note
 
 

@@ -131,7 +131,13 @@ def test_a_step_after_a_misfitting_step_is_said_to_be_neither():
 
     report = report_of(result)
     assert [row[1] for row in report.tables[0].rows] == ["power", "rejection rate after a misfitting step"]
-    assert "No 'in group' statement names north: its population is the shared one." in report.lines
+    # the model statement apart (note_parts.Command): the Word file says it in words
+    from cfa_tool.note_parts import WORDS, said
+
+    assert ("The model gives no values of its own to north (no 'in group' statement names it): its population is the "
+            "shared one.") in [str(line) for line in report.lines]
+    assert ("The model gives no values of its own to north: its population is the shared one."
+            in [said(line, WORDS) for line in report.lines])
     assert any("neither a power nor a false-alarm rate" in c for c in report.cautions)
     assert report.tables[1].rows[0][:2] == ("loading of x3 on f", "south")
     # review s11: no noncentral approximation after a misfitting step (it does not hold there), and the note says the
