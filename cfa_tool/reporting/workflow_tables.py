@@ -1204,6 +1204,8 @@ def population_report(simulated) -> Report:
 def _worded_lines(simulated) -> list[str]:
     """Which simulated items were written as the words of the model's 'answers' statements, and how."""
     from cfa_tool.data.answer_words import coding_described
+    from cfa_tool.errors import printable
+    from cfa_tool.workflows.simulation import written_answers
 
     worded = getattr(simulated, "worded", ())
     spec = simulated.population.spec
@@ -1215,11 +1217,15 @@ def _worded_lines(simulated) -> list[str]:
             continue
         which = "Every item is" if len(items) == len(spec.observed_names) else \
             f"{len(items)} item{'s are' if len(items) > 1 else ' is'} ({names_text(items)})"
-        described = coding_described(tuple((a.word, a.number, a.code) for a in coding.answers if a.word is not None))
+        written = written_answers(coding)
         how = ("cut into equally likely categories" if simulated.population.equal_categories else
                "cut at the fitted thresholds where the earlier fit has them, else into equally likely categories")
-        lines.append(f"{which} written as the words of {coding.origin}, {described} (the latent responses {how}), "
-                     f"so the file reads back with the same model file.")
+        if all(word is not None for word, _, _ in written):
+            said = f"written as the words of {coding.origin}, {coding_described(written)}"
+        else:  # numbers listed beside the words: each code written as the answer listed first with it
+            said = (f"written in the {len(written)} answer categories of {coding.origin}, each as the answer it lists "
+                    f"first with that code ({', '.join(printable(w) if w is not None else f'{n:g}' for w, n, _ in written)})")
+        lines.append(f"{which} {said} (the latent responses {how}), so the file reads back with the same model file.")
     return lines
 
 
