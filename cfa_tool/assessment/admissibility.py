@@ -88,6 +88,11 @@ class ProblemKind(enum.Enum):
     # a factor whose loadings mostly run against its items' keying (assessment.reliability.keying_problems): its
     # correlations, mean differences and scores read the wrong way
     FACTOR_POINTS_AGAINST_ITEMS = ("factor points against its items", "points against its items", False)
+    # a 'reversed' statement that the loadings' signs contradict (assessment.reliability.keying_problems): items
+    # declared reversed that load with the factor's other items, or items not declared that load against them (a
+    # typing error in the statement, or answers coded the other way), so the factor's keyed sum adds items running
+    # against each other and its omega and alpha describe no scale
+    KEYING_AGAINST_LOADINGS = ("'reversed' statement contradicted by the loadings", "against the 'reversed' statement", False)
     # not of the solution but of the data: rows that gave one answer to every item, reverse-worded ones included
     # (data.same_answers), kept in the analysis
     SAME_ANSWER_ROWS = ("same answer to every item", "same answer throughout", False)
@@ -344,6 +349,7 @@ class Problem:
         written = written_name if quoted else str
         names = tuple(written(n) for n in _names(self.parameters[0])) if self.parameters else ()
         v = f"{self.value:.2f}" if self.value is not None and np.isfinite(self.value) else ""
+        keyed = [written(_names(label)[-1]) for label in self.parameters]  # the items of loadings, for their kinds
         K = ProblemKind
         text = {
             K.NOT_CONVERGED: "the estimation did not converge",
@@ -386,6 +392,8 @@ class Problem:
                                         "items' other answers, whose answers were treated as missing",
             K.FILTER_LABELS_BY_CASE: "a row filter whose text the column also holds in other upper and lower case, "
                                      "which it treated as another value",
+            K.KEYING_AGAINST_LOADINGS: f"a 'reversed' statement contradicted by the loadings of {', '.join(keyed)} "
+                                       f"on {names[0] if names else ''}",
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",
             K.SMALL_GROUP: f"fewer rows ({v.split('.')[0]}) than free parameters of the group's model",
