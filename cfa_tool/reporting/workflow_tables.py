@@ -1023,8 +1023,35 @@ def power_report(result) -> Report:
                    f"Note: {result.note}." if result.note else None,
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
     notes = [power_assumptions()] + ([POWER_ORDINAL] if result.ordinal else [])
-    return Report(ResultKind.POWER, "Power of the RMSEA test (MacCallum, Browne & Sugawara 1996)", None, (), (table,),
-                  tuple(notes), ("RMSEA values of close and not-close fit are conventions, not laws.",))
+    below = getattr(result, "below_rows_rule", ())
+    notice = ProblemNotice(POWER_CAUTION, (rows_rule_caution(result),), False) if below else None
+    return Report(ResultKind.POWER, "Power of the RMSEA test (MacCallum, Browne & Sugawara 1996)", notice, (),
+                  (table,), tuple(notes), ("RMSEA values of close and not-close fit are conventions, not laws.",))
+
+
+POWER_CAUTION = "Check before planning with this sample size"
+
+
+def rows_rule_caution(result) -> Note:
+    """The caution, first, of an RMSEA power plan whose sample sizes are below the rule of rows per free parameter
+    of the model (workflows.power.PowerResult.below_rows_rule, assessment.admissibility.rows_per_parameter): the
+    test's N is not what the model's estimates need, and a power simulation of the model gives that."""
+    from cfa_tool.assessment.admissibility import ROWS_PER_PARAMETER, ROWS_RULE
+
+    below = result.below_rows_rule
+    one = len(below) == 1
+    enough = ROWS_PER_PARAMETER * below[0].parameters
+    sizes = [f"{f.rows:g}" for f in below] + [str(enough)]
+    return Note((f"{' and '.join(f'N = {f.rows:g}' for f in below)} {'is' if one else 'are'} judged by the RMSEA "
+                 f"test of {result.test} fit alone, not by what estimating the model needs: "
+                 f"{'; '.join(f.figures() for f in below)}, fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; "
+                 f"{enough} rows here); this plan says nothing of how precisely the loadings, variances and "
+                 f"correlations are estimated at {'that N' if one else 'those sizes'}. What to try: plan the N with a "
+                 f"power simulation of the model, which gives each parameter's power, bias and coverage at each sample "
+                 f"size",
+                 Command(f" ('cfa-tool power-simulation MODEL --n {','.join(sizes)}'; from Python, "
+                         f"power_simulation(model, [{', '.join(sizes)}]))", f" ({' and '.join(sizes)} rows, say)"),
+                 "."))
 
 
 def power_assumptions() -> Note:
