@@ -1364,7 +1364,7 @@ def _small_groups(result) -> str:
     if len(small) == 1:
         (facts,) = small
         return (f"Group {written_group(facts.group, labels)} had {facts.rows:g} rows for the {facts.parameters} free "
-                f"parameters of its model, so its estimates, and every comparison with the other groups, rest on too "
+                f"parameters of its model{facts.besides()}, so its estimates, and every comparison with the other groups, rest on too "
                 f"few answers.")
     named = _list([f"{written_group(f.group, labels)} ({f.rows:g} rows for {f.parameters} parameters)" for f in small])
     return (f"Groups {named} had fewer rows than the free parameters of their model, so their estimates, and every "
