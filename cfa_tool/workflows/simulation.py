@@ -503,7 +503,9 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
                 raise _coding_error(spec, x, f"the earlier fit in {population.fitted_from} has "
                                              f"{len(thresholds[x]) + 1} answer categories of '{printable(x)}', and "
                                              f"{{origin}} lists {len(codes)} codes for it; give the model file the "
-                                             f"fit was made with")
+                                             f"fit was made with (if it is that file, the fit's rows answered only "
+                                             f"{len(thresholds[x]) + 1} of those codes, and the fit gives no "
+                                             f"thresholds for the others)")
         cut = set(thresholds)
     else:
         if categories is None:

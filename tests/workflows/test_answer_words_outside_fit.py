@@ -244,3 +244,18 @@ def test_power_simulation_and_a_population_from_an_ordinal_fit_take_the_mixed_st
     fitted = cfa_tool.fit(MIXED + ordinal, tmp_path / "mixed.csv")
     drawn = simulate(MIXED + ordinal, 200, seed=3, population=fitted).frame
     assert set(drawn["seat"].astype(int)) <= {1, 2, 3, 4, 5} and drawn["seat"].nunique() == 5
+
+
+def test_a_fit_whose_rows_left_a_code_unanswered_is_refused_saying_so(tmp_path):
+    from cfa_tool.errors import ModelError
+    from cfa_tool.workflows.simulation import simulate
+
+    ordinal = "ordinal " + ", ".join(ITEMS) + "\n"
+    data = _answers()
+    data.loc[data["seat"] == 1, "seat"] = 2  # no row answers 1: the fit has 4 categories of seat, the statement 5
+    data.to_csv(tmp_path / "no_ones.csv", index=False)
+    fitted = cfa_tool.fit(MIXED + ordinal, tmp_path / "no_ones.csv")
+    with pytest.raises(ModelError, match="has 4 answer categories of 'seat', and the 'answers' statement on line 3 "
+                                         "lists 5 codes for it; give the model file the fit was made with \\(if it is "
+                                         "that file, the fit's rows answered only 4 of those codes"):
+        simulate(MIXED + ordinal, 100, seed=3, population=fitted)
