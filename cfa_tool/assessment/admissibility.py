@@ -88,6 +88,11 @@ class ProblemKind(enum.Enum):
     # a factor whose loadings mostly run against its items' keying (assessment.reliability.keying_problems): its
     # correlations, mean differences and scores read the wrong way
     FACTOR_POINTS_AGAINST_ITEMS = ("factor points against its items", "points against its items", False)
+    # a 'reversed' statement that the loadings' signs contradict (assessment.reliability.keying_problems): items
+    # declared reversed that load with the factor's other items, or items not declared that load against them (a
+    # typing error in the statement, or answers coded the other way), so the factor's keyed sum adds items running
+    # against each other and its omega and alpha describe no scale
+    KEYING_AGAINST_LOADINGS = ("declared keying contradicted by the loadings", "against the declared keying", False)
     # not of the solution but of the data: rows that gave one answer to every item, reverse-worded ones included
     # (data.same_answers), kept in the analysis
     SAME_ANSWER_ROWS = ("same answer to every item", "same answer throughout", False)
@@ -190,8 +195,11 @@ class RowsPerParameter:
 
     def besides(self) -> str:
         """The item means a one-group count leaves out, named (' (not counting the 9 item means that
-        full-information ML estimates beside them)'); '' without."""
+        full-information ML estimates beside them)'), or a group's item intercepts (' (not counting its 9 item
+        intercepts)'); '' without."""
         n = self.uncounted
+        if n and self.group is not None:
+            return f" (not counting its {n} item intercept{'s' if n != 1 else ''})"
         return (f" (not counting the {n} item mean{'s' if n != 1 else ''} that full-information ML estimates beside "
                 f"{'them' if n != 1 else 'it'})" if n else "")
 
@@ -200,25 +208,29 @@ class RowsPerParameter:
 
 
 def rows_per_parameter(rows: Sequence[float], free: Sequence[int], groups: Sequence[str] | None = None,
-                       uncounted: int = 0) -> tuple[RowsPerParameter, ...]:
+                       uncounted: int | Sequence[int] = 0) -> tuple[RowsPerParameter, ...]:
     """The sample (``groups`` None; ``rows`` and ``free`` then hold one number each) or the groups of several
     (``groups`` their labels, ``rows`` and ``free`` one number per group) below :data:`ROWS_PER_PARAMETER` rows per
     free parameter of their model (a model without free parameters is below nothing).  Which groups are named: each
     group of several is judged on its own model's parameters, those its rows estimate (a parameter held equal across
-    groups counts in each; its item intercepts too, as the fit's table and the check count them), because in a
-    multi-group model each group's rows estimate their own covariance structure and means (Sorbom 1974, recalled
-    from memory); so every group below the rule is named with its figures, large or small (departments of 165 to 260
-    people under a 54-parameter model are 3.0 to 4.8 rows per parameter, and the note says those figures, not that
-    the groups are small).  The rule is a rule of thumb, common practice, not a finding (see
+    groups counts in each), because in a multi-group model each group's rows estimate their own covariance structure
+    and means (Sorbom 1974, recalled from memory); so every group below the rule is named with its figures, large or
+    small (departments of 165 to 260 people under a 54-parameter model are 3.0 to 4.8 rows per parameter, and the
+    note says those figures, not that the groups are small).  The counts leave out the item means, in one group and
+    in each of several alike (:func:`counted_parameters`, :func:`counted_group_parameters`): the same rows under the
+    same model are judged alike whether they are a sample or a group (new-user trial s17: a group of 311 rows was
+    below the rule and a sample of 300 rows was not); ``uncounted``: the means left out, one number for the sample
+    or one per group, which the note names.  The rule is a rule of thumb, common practice, not a finding (see
     :data:`ROWS_PER_PARAMETER`)."""
     several = groups is not None
-    return tuple(RowsPerParameter(n, q, label, 0 if several else uncounted)
-                 for label, n, q in zip(groups if several else (None,), rows, free)
+    left_out = tuple(uncounted) if isinstance(uncounted, Sequence) else (uncounted,) * len(rows)
+    return tuple(RowsPerParameter(n, q, label, u)
+                 for label, n, q, u in zip(groups if several else (None,), rows, free, left_out)
                  if q > 0 and n < ROWS_PER_PARAMETER * q)
 
 
 def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Sequence[str] | None = None,
-                         uncounted: int = 0) -> tuple[tuple["Problem", ...], tuple[str, ...]]:
+                         uncounted: int | Sequence[int] = 0) -> tuple[tuple["Problem", ...], tuple[str, ...]]:
     """The one rule of rows per parameter (:func:`rows_per_parameter`) in the report's words: a caution (first in
     every view) for a sample or group with fewer rows than its model's free parameters, and a note naming those with
     fewer than :data:`ROWS_PER_PARAMETER` rows per parameter (a common rule of thumb; Bentler & Chou 1987, recalled
@@ -241,8 +253,11 @@ def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Seq
     labels = tuple(groups)
     each = [f"{written_group(f.group, labels)} ({f.figures()})" for f in noted]
     listed = each[0] if len(each) == 1 else f"{', '.join(each[:-1])} and {each[-1]}"
+    means = {f.uncounted for f in noted}
+    besides = (f", not counting its {means.pop()} item intercepts" if len(means) == 1 and 0 not in means else
+               ", not counting its item intercepts" if 0 not in means else "")
     return problems, (f"group{'s' if len(each) > 1 else ''} {listed}: fewer than {ROWS_PER_PARAMETER} rows per "
-                      f"free parameter of the group's model ({ROWS_RULE}): with fewer rows per parameter, a "
+                      f"free parameter of the group's model{besides} ({ROWS_RULE}): with fewer rows per parameter, a "
                       f"group's estimates, and every comparison with the other groups, vary more from sample to "
                       f"sample",)
 
@@ -344,6 +359,7 @@ class Problem:
         written = written_name if quoted else str
         names = tuple(written(n) for n in _names(self.parameters[0])) if self.parameters else ()
         v = f"{self.value:.2f}" if self.value is not None and np.isfinite(self.value) else ""
+        keyed = [written(_names(label)[-1]) for label in self.parameters]  # the items of loadings, for their kinds
         K = ProblemKind
         text = {
             K.NOT_CONVERGED: "the estimation did not converge",
@@ -386,6 +402,8 @@ class Problem:
                                         "items' other answers, whose answers were treated as missing",
             K.FILTER_LABELS_BY_CASE: "a row filter whose text the column also holds in other upper and lower case, "
                                      "which it treated as another value",
+            K.KEYING_AGAINST_LOADINGS: f"a declared keying of reverse-scored items contradicted by the loadings of "
+                                       f"{', '.join(keyed)} on {names[0] if names else ''}",
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",
             K.SMALL_GROUP: f"fewer rows ({v.split('.')[0]}) than free parameters of the group's model",
@@ -440,13 +458,27 @@ def group_parameter_counts(table: ParameterTable) -> list[int]:
     return [len(u) for u in used]
 
 
+def counted_group_parameters(table: ParameterTable) -> tuple[list[int], list[int]]:
+    """(the free parameters of each group's model as the rule of rows per parameter counts them, the item intercepts
+    it leaves out): :func:`group_parameter_counts` less the group's item intercepts, as :func:`counted_parameters`
+    leaves out a one-group model's item means (the item means of each group's rows, which the intercepts, free or
+    held equal, reproduce beside the covariance structure)."""
+    whole = group_parameter_counts(table)
+    means: list[set[int]] = [set() for _ in range(table.n_groups)]
+    for par in table.parameters:
+        if par.kind == "intercept":
+            means[par.group].update(index for index, _ in par.terms)
+    return [n - len(m) for n, m in zip(whole, means)], [len(m) for m in means]
+
+
 def group_size_problems(table: ParameterTable, rows: Sequence[float]) -> tuple[tuple[Problem, ...], tuple[str, ...]]:
     """:func:`sample_size_problems` for each group of a model of several (``rows``, one per group, as the fit counts
-    them; the parameters of :func:`group_parameter_counts`); ((), ()) for one group, which the fit's result weighs
+    them; the parameters of :func:`counted_group_parameters`); ((), ()) for one group, which the fit's result weighs
     as a whole (pipeline.results.fit_result)."""
     if not table.multigroup:
         return (), ()
-    return sample_size_problems(rows, group_parameter_counts(table), table.groups)
+    counted, means = counted_group_parameters(table)
+    return sample_size_problems(rows, counted, table.groups, means)
 
 
 HEYWOOD_ADVICE = ("Look for what the model leaves out near it (a residual covariance or cross-loading the modification "

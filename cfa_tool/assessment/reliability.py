@@ -483,26 +483,47 @@ DECLARE_REVERSED = " with 'reversed ... on LOWEST to HIGHEST'"
 
 
 def keying_warnings(factors: list[FactorReliability] | tuple, prefix: str = "") -> list[Text]:
-    """Where the declared keying contradicts the signs of the estimated loadings, and factors that point
-    against their items (so that every correlation, mean difference and score of theirs reads the wrong way)."""
+    """Notes on factors half of whose items load each way (no majority tells which way they point).  Where the
+    declared keying contradicts the loadings' signs, and factors that point against their items, are problems of
+    the solution, first in every view (:func:`keying_problems`)."""
     out = []
     split = [r for r in factors if r.evenly_split and not r.points_against and r.keying is not Keying.DECLARED]
     if split:  # one caution for all such factors: the advice is the same for each
         out.append(_split_warning(split, prefix))
     for r in factors:
-        if r.points_against or (r.evenly_split and r.keying is not Keying.DECLARED):
-            continue  # pointing against: a problem of the solution, not a note (keying_problems)
+        if r.points_against or (r.evenly_split and r.keying is not Keying.DECLARED) or miskeyed(r):
+            continue  # pointing against, or keyed against the loadings: problems of the solution (keying_problems)
         if r.evenly_split:
             out.append(Note((f"{prefix}factor '{r.factor}': half of its items load against the keying the model "
                              f"declares", Command(REVERSED_STATEMENT), ", so no majority tells which way it points; "
                              "check the declared keying and how the answers were coded")))
-            continue
-        if r.against_keying:
-            names = ", ".join(f"'{x}'" for x in r.against_keying)
-            out.append(Note((f"{prefix}factor '{r.factor}': the loadings of {names} point the other way from the "
-                             f"keying the model declares", Command(REVERSED_STATEMENT), "; check the keying and how "
-                             "the answers were coded")))
     return out
+
+
+def miskeyed(r: FactorReliability) -> bool:
+    """Whether the loadings of some of the factor's items contradict the keying a 'reversed' statement declares
+    (``against_keying``), the factor itself pointing the way of most of its items (else ``points_against`` says
+    more, and half each way has no majority to judge by)."""
+    return bool(r.against_keying) and not r.points_against and not r.evenly_split
+
+
+def _miskeyed_warning(r: FactorReliability) -> tuple[Note, Note]:
+    """(what is wrong, what to try) for a factor whose loadings contradict the declared keying (:func:`miskeyed`):
+    its keyed sum adds items that run against each other, so its omega and alpha describe no scale.  The model
+    file's statement apart (note_parts.Command): a manuscript says it in words."""
+    declared = [x for x in r.against_keying if x in r.reversed]  # declared reversed, loading with the others
+    undeclared = [x for x in r.against_keying if x not in r.reversed]  # loading against the others, not declared
+    said = "; ".join(part for part in (
+        f"{', '.join(declared)} {'is' if len(declared) == 1 else 'are'} declared reversed but load"
+        f"{'s' if len(declared) == 1 else ''} the way of the factor's other items" if declared else "",
+        f"{', '.join(undeclared)} load{'s' if len(undeclared) == 1 else ''} against the factor's other items but "
+        f"{'is' if len(undeclared) == 1 else 'are'} not declared reversed" if undeclared else "") if part)
+    return (Note((f"The loadings of {', '.join(repr(x) for x in r.against_keying)} on factor '{r.factor}' point the "
+                  f"other way from the keying the model declares", Command(REVERSED_STATEMENT),
+                  f": {said}; the factor's keyed sum adds items that run against each other, so its reliability "
+                  f"(omega, alpha) and its sum scores describe no scale.")),
+            Note(("check the declared keying", Command(REVERSED_STATEMENT), " for a typing error (an item named in "
+                  "place of another) and how the answers were coded, then fit again.")))
 
 
 def _split_warning(split: list[FactorReliability], prefix: str) -> Note:
@@ -547,7 +568,9 @@ def _turned_warning(r: FactorReliability) -> tuple[str, Text]:
 
 def keying_problems(groups) -> list:
     """A caution, first in every view, for each factor of each group (``groups``: GroupResult, with their
-    reliability rows) that points against its items."""
+    reliability rows) that points against its items, or whose loadings contradict the keying a 'reversed' statement
+    declares (new-user trial s17: a typing error in the statement gave omega .14 in a paste-ready paragraph, the
+    contradiction only among the notes)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     out = []
@@ -556,5 +579,10 @@ def keying_problems(groups) -> list:
             if r.points_against:
                 explanation, advice = _turned_warning(r)
                 out.append(Problem(ProblemKind.FACTOR_POINTS_AGAINST_ITEMS, (reference_text("factor_variance", (r.factor,)),), None,
+                                   explanation, advice, g.label if len(groups) > 1 else None))
+            elif miskeyed(r):
+                explanation, advice = _miskeyed_warning(r)
+                out.append(Problem(ProblemKind.KEYING_AGAINST_LOADINGS,
+                                   tuple(reference_text("loading", (r.factor, x)) for x in r.against_keying), None,
                                    explanation, advice, g.label if len(groups) > 1 else None))
     return out

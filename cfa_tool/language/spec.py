@@ -207,6 +207,12 @@ class AnswerCoding:
     def codes_by_number(self) -> dict[float, float]:
         return {a.number: a.code for a in self.answers if a.number is not None}
 
+    def codes(self) -> tuple[float, ...]:
+        """The distinct codes the statement gives, lowest first: the values a column it covers can hold once read
+        (data.answer_words reads every cell as the code of its word or of its number, words and numbers alike), so
+        the item's answer categories.  ``answers 1 = 1, ..., 7 = 7, "agree" = 6`` gives seven, not the one word's."""
+        return tuple(sorted({a.code for a in self.answers}))
+
 
 
 #: The rotations an exploratory block may name (gradient-projection criteria; see exploration.rotation).

@@ -22,7 +22,7 @@ from cfa_tool.method import (MISSING_AT_RANDOM, MISSING_COMPLETELY_AT_RANDOM, Di
                               Weighting)
 from cfa_tool.assessment.admissibility import ProblemKind, design_cautions, failure_words
 from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors, uncorrelated_pairs
-from cfa_tool.assessment.reliability import BifactorPart, Keying
+from cfa_tool.assessment.reliability import BifactorPart, Keying, miskeyed
 from cfa_tool.data.non_answers import non_answer_clause
 from cfa_tool.data.answer_words import coding_described
 from cfa_tool.data.descriptives import FEW_CATEGORIES
@@ -742,6 +742,7 @@ def _weak_factor_sentence(result, subject: str) -> str:
     their items ('' when there are none)."""
     weak = [_phrase(p, result) for p in result.problems if p.kind is ProblemKind.WEAK_METHOD_FACTOR]
     turned = [_phrase(p, result) for p in result.problems if p.kind is ProblemKind.FACTOR_POINTS_AGAINST_ITEMS]
+    keyed_against = [_phrase(p, result) for p in result.problems if p.kind is ProblemKind.KEYING_AGAINST_LOADINGS]
     parts = []
     if weak:
         parts.append(f"{subject} has {_list(weak)} (a common-practice guide for negligible loadings): its items share "
@@ -749,6 +750,9 @@ def _weak_factor_sentence(result, subject: str) -> str:
     if turned:
         parts.append(f"{subject} has {_list(turned)}: its correlations, mean differences and scores read the wrong "
                      f"way.")
+    if keyed_against:  # a typing error in the statement, or answers coded the other way (new user s17)
+        parts.append(f"{subject} has {_list(keyed_against)}: the keyed sum adds items that run against each other, so "
+                     f"its reliability is not reported here.")
     return " ".join(parts)
 
 
@@ -830,7 +834,9 @@ def _reliability_sentence(result) -> str:
     groups the coefficients differ by group and stay in the report's tables.  '' when none was computed."""
     if result.multigroup or not result.groups:
         return ""
-    rows = list(result.groups[0].reliability)
+    # a factor whose loadings contradict the declared keying: its sum's coefficients describe no scale, and the
+    # solution's sentence on the problem says so (_weak_factor_sentence)
+    rows = [r for r in result.groups[0].reliability if not miskeyed(r)]
 
     def shown(value) -> bool:
         return value is not None and math.isfinite(value)
@@ -1484,7 +1490,7 @@ def _small_groups(result) -> str:
     if len(small) == 1:
         (facts,) = small
         return (f"Group {written_group(facts.group, labels)} had {facts.rows:g} rows for the {facts.parameters} free "
-                f"parameters of its model, so its estimates, and every comparison with the other groups, rest on too "
+                f"parameters of its model{facts.besides()}, so its estimates, and every comparison with the other groups, rest on too "
                 f"few answers.")
     named = _list([f"{written_group(f.group, labels)} ({f.rows:g} rows for {f.parameters} parameters)" for f in small])
     return (f"Groups {named} had fewer rows than the free parameters of their model, so their estimates, and every "

@@ -1038,8 +1038,35 @@ def power_report(result) -> Report:
                    f"Note: {result.note}." if result.note else None,
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
     notes = [power_assumptions()] + ([POWER_ORDINAL] if result.ordinal else [])
-    return Report(ResultKind.POWER, "Power of the RMSEA test (MacCallum, Browne & Sugawara 1996)", None, (), (table,),
-                  tuple(notes), ("RMSEA values of close and not-close fit are conventions, not laws.",))
+    below = getattr(result, "below_rows_rule", ())
+    notice = ProblemNotice(POWER_CAUTION, (rows_rule_caution(result),), False) if below else None
+    return Report(ResultKind.POWER, "Power of the RMSEA test (MacCallum, Browne & Sugawara 1996)", notice, (),
+                  (table,), tuple(notes), ("RMSEA values of close and not-close fit are conventions, not laws.",))
+
+
+POWER_CAUTION = "Check before planning with this sample size"
+
+
+def rows_rule_caution(result) -> Note:
+    """The caution, first, of an RMSEA power plan whose sample sizes are below the rule of rows per free parameter
+    of the model (workflows.power.PowerResult.below_rows_rule, assessment.admissibility.rows_per_parameter): the
+    test's N is not what the model's estimates need, and a power simulation of the model gives that."""
+    from cfa_tool.assessment.admissibility import ROWS_PER_PARAMETER, ROWS_RULE
+
+    below = result.below_rows_rule
+    one = len(below) == 1
+    enough = ROWS_PER_PARAMETER * below[0].parameters
+    sizes = [f"{f.rows:g}" for f in below] + [str(enough)]
+    return Note((f"{' and '.join(f'N = {f.rows:g}' for f in below)} {'is' if one else 'are'} judged by the RMSEA "
+                 f"test of {result.test} fit alone, not by what estimating the model needs: "
+                 f"{'; '.join(f.figures() for f in below)}, fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; "
+                 f"{enough} rows here); this plan says nothing of how precisely the loadings, variances and "
+                 f"correlations are estimated at {'that N' if one else 'those sizes'}. What to try: plan the N with a "
+                 f"power simulation of the model, which gives each parameter's power, bias and coverage at each sample "
+                 f"size",
+                 Command(f" ('cfa-tool power-simulation MODEL --n {','.join(sizes)}'; from Python, "
+                         f"power_simulation(model, [{', '.join(sizes)}]))", f" ({' and '.join(sizes)} rows, say)"),
+                 "."))
 
 
 def power_assumptions() -> Note:
@@ -1219,6 +1246,8 @@ def population_report(simulated) -> Report:
 def _worded_lines(simulated) -> list[str]:
     """Which simulated items were written as the words of the model's 'answers' statements, and how."""
     from cfa_tool.data.answer_words import coding_described
+    from cfa_tool.errors import printable
+    from cfa_tool.workflows.simulation import written_answers
 
     worded = getattr(simulated, "worded", ())
     spec = simulated.population.spec
@@ -1230,11 +1259,15 @@ def _worded_lines(simulated) -> list[str]:
             continue
         which = "Every item is" if len(items) == len(spec.observed_names) else \
             f"{len(items)} item{'s are' if len(items) > 1 else ' is'} ({names_text(items)})"
-        described = coding_described(tuple((a.word, a.number, a.code) for a in coding.answers if a.word is not None))
+        written = written_answers(coding)
         how = ("cut into equally likely categories" if simulated.population.equal_categories else
                "cut at the fitted thresholds where the earlier fit has them, else into equally likely categories")
-        lines.append(f"{which} written as the words of {coding.origin}, {described} (the latent responses {how}), "
-                     f"so the file reads back with the same model file.")
+        if all(word is not None for word, _, _ in written):
+            said = f"written as the words of {coding.origin}, {coding_described(written)}"
+        else:  # numbers listed beside the words: each code written as the answer listed first with it
+            said = (f"written in the {len(written)} answer categories of {coding.origin}, each as the answer it lists "
+                    f"first with that code ({', '.join(printable(w) if w is not None else f'{n:g}' for w, n, _ in written)})")
+        lines.append(f"{which} {said} (the latent responses {how}), so the file reads back with the same model file.")
     return lines
 
 

@@ -503,8 +503,8 @@ def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSum
             if item in declared:
                 (low, high), source = declared[item], ScaleSource.DECLARED
             elif item in codings:
-                codes = [a.code for a in codings[item].answers]
-                (low, high), source = (min(codes), max(codes)), ScaleSource.CODED
+                codes = codings[item].codes()
+                (low, high), source = (codes[0], codes[-1]), ScaleSource.CODED
             elif item in observed:
                 (low, high), source = observed[item], ScaleSource.OBSERVED
             else:

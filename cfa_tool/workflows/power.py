@@ -13,6 +13,7 @@ from __future__ import annotations
 
 from dataclasses import asdict, dataclass
 
+from cfa_tool.assessment.admissibility import RowsPerParameter, rows_per_parameter
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
@@ -40,6 +41,10 @@ class PowerResult(Presentable):
     target_power: float
     note: str | None = None  # when the test's own answer is below what the model needs
     ordinal: bool = False  # the model declares ordinal items, whose fits use another test than the one planned here
+    #: the sample sizes shown (the smallest N, then the N asked about) below the rule of rows per free parameter of
+    #: the model (assessment.admissibility.rows_per_parameter), when the model's variables are known: the test's N
+    #: is not what estimating the model needs, which the report says first
+    below_rows_rule: tuple[RowsPerParameter, ...] = ()
 
     def to_dict(self) -> dict:
         return asdict(self)
@@ -95,7 +100,10 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
          rmsea_null: float | None = None, rmsea_alt: float | None = None, variables: int | None = None,
          ordinal: bool = False) -> PowerResult:
     """Power of the RMSEA test at ``n_obs`` and the smallest N reaching ``target_power``; with the model's
-    number of ``variables``, that N is never below what estimating the model needs (more rows than variables).
+    number of ``variables``, that N is never below what estimating the model needs (more rows than variables), and
+    the sample sizes shown are judged by the rule of rows per free parameter every fit applies (its free parameters
+    p(p + 1)/2 - df, the covariance structure's; assessment.admissibility.rows_per_parameter): the test's N says
+    nothing of how precisely the model's parameters are estimated (new-user trial s17: N = 96 for 46 parameters).
     ``ordinal``: the model declares ordinal items (the report then says the plan is for the normal-theory test)."""
     if test not in TESTS:
         raise OptionError(f"test must be one of {', '.join(TESTS)}, not '{test}'")
@@ -115,4 +123,9 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
                 f"rows than that to be estimated at all (and a factor analysis far more); N = {variables + 2} is shown "
                 f"as the least possible")
         required = variables + 2
-    return PowerResult(test, df, eps0, epsa, alpha, n_obs, power, required, target_power, note, ordinal)
+    below: tuple[RowsPerParameter, ...] = ()
+    if variables is not None:
+        free = variables * (variables + 1) // 2 - df
+        below = tuple(facts for n in dict.fromkeys((required, n_obs)) if n is not None
+                      for facts in rows_per_parameter((n,), (free,)))
+    return PowerResult(test, df, eps0, epsa, alpha, n_obs, power, required, target_power, note, ordinal, below)

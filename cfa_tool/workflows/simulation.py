@@ -450,11 +450,20 @@ def equal_thresholds(categories: int) -> np.ndarray:
 
 
 def answer_categories(spec: Spec) -> dict[str, tuple[float, ...]]:
-    """Each item an 'answers' statement covers -> the codes of the words the statement lists, lowest first: the
-    item's answer categories (numbers listed beside the words, such as '9 = 9', are codes a column may hold among the
-    words, not answers of the scale, and are left out)."""
-    return {x: tuple(sorted({a.code for a in c.answers if a.word is not None}))
-            for x, c in spec.answer_codings().items()}
+    """Each item an 'answers' statement covers -> its answer categories, the distinct codes the statement gives
+    (language.spec.AnswerCoding.codes: the values a fit reads from such a column, numbers listed beside the words
+    included)."""
+    return {x: c.codes() for x, c in spec.answer_codings().items()}
+
+
+def written_answers(coding) -> tuple[tuple[str | None, float | None, float], ...]:
+    """How simulate writes the categories of an 'answers' statement (``coding``): each code, lowest first, as the
+    answer the statement lists first with that code, a word or a number, as (word, number, code) triples; the file
+    then reads back through the same statement."""
+    first: dict[float, tuple[str | None, float | None, float]] = {}
+    for a in coding.answers:
+        first.setdefault(a.code, (a.word, a.number, a.code))
+    return tuple(first[code] for code in coding.codes())
 
 
 def _coding_error(spec: Spec, item: str, what: str) -> ModelError:
@@ -471,7 +480,7 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
     Items an 'answers' statement covers are answers in its categories (:func:`answer_categories`): cut into as many
     equally likely categories as it lists codes (an ordinal item of an earlier fit keeps its thresholds, whose number
     of categories must agree), so an 'ordinal' statement needs no --categories for them, and a number of categories
-    that differs from the statement's is an error.  ``simulate`` writes every such item as the statement's words,
+    that differs from the statement's is an error.  ``simulate`` writes every such item as the statement's answers,
     ordinal or not; a ``command`` that fits the samples (power-simulation) treats items the model does not declare
     ordinal as continuous, which answers in a few categories are not: such an item is an error naming the statement.
     With any item cut, a statement on a residual variance is an error at its line
@@ -494,7 +503,9 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
                 raise _coding_error(spec, x, f"the earlier fit in {population.fitted_from} has "
                                              f"{len(thresholds[x]) + 1} answer categories of '{printable(x)}', and "
                                              f"{{origin}} lists {len(codes)} codes for it; give the model file the "
-                                             f"fit was made with")
+                                             f"fit was made with (if it is that file, the fit's rows answered only "
+                                             f"{len(thresholds[x]) + 1} of those codes, and the fit gives no "
+                                             f"thresholds for the others)")
         cut = set(thresholds)
     else:
         if categories is None:
@@ -523,7 +534,7 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
                                          f"statement, or {check.Option.CATEGORIES.given(len(codes))}) to simulate answers in the "
                                          f"statement's categories, or remove the statement for the power of "
                                          f"continuous answers")
-        thresholds[x] = equal_thresholds(len(codes))  # simulate writes the statement's words
+        thresholds[x] = equal_thresholds(len(codes))  # simulate writes the statement's answers
     if thresholds:  # ordinal items in one group: the one rule of every command that fits or draws them
         from cfa_tool.pipeline.ordinal import refuse_set_residual_variances
 
@@ -535,17 +546,15 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
 
 
 def written_as_words(frame: pd.DataFrame, spec: Spec, observed: tuple[str, ...]) -> pd.DataFrame:
-    """Simulated answers (categories 1..k) of the items an 'answers' statement covers, as the statement's words: the
-    c-th lowest code's first word, so the file reads back through the same statement (data.answer_words)."""
+    """Simulated answers (categories 1..k) of the items an 'answers' statement covers, as the statement's answers:
+    the c-th lowest code as :func:`written_answers` writes it, so the file reads back through the same statement
+    (data.answer_words)."""
     codings = spec.answer_codings()
     for x in observed:
         if x not in codings:
             continue
-        words: dict[float, str] = {}
-        for answer in codings[x].answers:
-            if answer.word is not None:
-                words.setdefault(answer.code, answer.word)
-        by_category = {c + 1: words[code] for c, code in enumerate(sorted(words))}
+        by_category = {c + 1: word if word is not None else (int(number) if number == int(number) else number)
+                       for c, (word, number, _) in enumerate(written_answers(codings[x]))}
         frame[x] = frame[x].map(lambda v: by_category.get(int(v)) if pd.notna(v) else None).astype(object)
     return frame
 

@@ -7,7 +7,9 @@ quoted by the list's rule).  The small-sample caution and note are worded from o
 
 Parameter counts by hand: two factors of three items (tests.workflows.test_invariance_decisions.MODEL) in groups,
 4 free loadings + 6 residual variances + 2 factor variances + 1 covariance + 6 intercepts = 19 per group (factor
-means fixed at zero), as the existing scaling test counts them (2 x (27 moments - 19 parameters) = 16 df)."""
+means fixed at zero), as the existing scaling test counts them (2 x (27 moments - 19 parameters) = 16 df); the rule
+of rows per parameter counts 13 of them, leaving out the 6 intercepts as a one-group fit leaves out its item means
+(new-user trial s17)."""
 
 from __future__ import annotations
 
@@ -44,25 +46,26 @@ def test_a_fit_names_odd_group_labels_alike_in_every_sentence():
     assert 'In group "north", the scale of f' in text  # plain on its own, quoted beside '2' and 'men, 40+'
     assert 'The variance of factor f in group "men, 40+" was fixed at 1.' in text
     assert "In group 2," not in text and "in group north" not in text
-    # the note on few rows per parameter: the same rule, and the figures plainly (30 / 19 = 1.58, cut to 1.5)
+    # the note on few rows per parameter: the same rule, and the figures plainly (30 / 13 = 2.31, cut to 2.3)
     [note] = [w for w in result.warnings if "rows per free parameter" in w]
-    assert note.startswith('group "north" (30 rows for 19 parameters, 1.5 per parameter): fewer than 5 rows per')
+    assert note.startswith('group "north" (30 rows for 13 parameters, 2.3 per parameter): fewer than 5 rows per')
     summary = result.summary()
     assert 'Multivariate normality in group "2" (Mardia 1970)' in summary  # a table's note, by the same rule
 
 
 def test_the_small_group_caution_and_the_paper_word_the_same_facts():
-    result = cfa_tool.fit(MODEL, _odd_groups(15), group="grp")
+    result = cfa_tool.fit(MODEL, _odd_groups(12), group="grp")
     [small] = [p for p in result.problems if p.kind is ProblemKind.SMALL_GROUP]
-    assert small.rows_per_parameter == RowsPerParameter(15, 19, "north")  # 19 by hand (module docstring)
-    assert small.explanation.startswith("15 rows for the 19 free parameters of this group's model")
-    assert any(str(line).startswith('Group "north": 15 rows for the 19 free parameters')
+    assert small.rows_per_parameter == RowsPerParameter(12, 13, "north", 6)  # 13 by hand (module docstring)
+    assert small.explanation.startswith("12 rows for the 13 free parameters of this group's model (not counting its 6 "
+                                        "item intercepts)")
+    assert any(str(line).startswith('Group "north": 12 rows for the 13 free parameters')
                for line in problem_notice(result).lines)
     text = " ".join(methods_paragraph(result).split())
-    assert ('Group "north" had 15 rows for the 19 free parameters of its model, so its estimates, and every '
-            'comparison with the other groups, rest on too few answers.') in text
+    assert ('Group "north" had 12 rows for the 13 free parameters of its model (not counting its 6 item intercepts), '
+            'so its estimates, and every comparison with the other groups, rest on too few answers.') in text
     # the facts travel with a saved result's problems
-    assert small.to_dict()["rows_per_parameter"] == {"rows": 15.0, "parameters": 19, "group": "north", "uncounted": 0}
+    assert small.to_dict()["rows_per_parameter"] == {"rows": 12.0, "parameters": 13, "group": "north", "uncounted": 6}
 
 
 def test_rows_per_parameter_are_cut_not_rounded_up_to_the_rule():

@@ -197,3 +197,65 @@ def test_errors_naming_the_statement_quote_names_with_braces_as_written():
     with pytest.raises(ModelError, match=r"categories=4 cuts 'a\{1\}' into 4 categories, and the 'answers' "
                                          r"statement on line 2 lists 3 codes for it"):
         simulate(model, 50, categories=4)
+
+
+# A column mixing numbers and a few typed words needs a statement listing the numbers with their codes beside the
+# words (new-user trial s17, finding 1): its answer categories are the statement's distinct codes, five here, as the
+# fit reads them, not the two codes of the words.
+MIXED = PLAIN + 'answers 1 = 1, 2 = 2, 3 = 3, 4 = 4, 5 = 5, "Agree" = 4, "Strongly agree" = 5\n'
+
+
+def test_a_statement_of_numbers_and_words_gives_its_distinct_codes_as_categories_to_simulate(tmp_path):
+    from cfa_tool.workflows.simulation import answer_categories, simulate
+
+    assert answer_categories(cfa_tool.parse_model(MIXED))["seat"] == (1.0, 2.0, 3.0, 4.0, 5.0)
+    # reference: the same population cut into five equally likely categories as numbers (--categories 5); before,
+    # every item came out as 'Agree' or 'Strongly agree' (two categories)
+    mixed = simulate(MIXED, 300, seed=4).frame
+    numbers = simulate(PLAIN, 300, seed=4, categories=5).frame
+    assert (mixed.astype(int) == numbers.astype(int)).all().all()
+    path, out = tmp_path / "simulated.csv", tmp_path / "sim.json"
+    (tmp_path / "m.cfa").write_text(MIXED)
+    assert main(["simulate", str(tmp_path / "m.cfa"), "--n", "300", "--seed", "4", "--output", str(path), "--json",
+                 str(out)]) == 0
+    assert any("written in the 5 answer categories of the 'answers' statement on line 3, each as the answer it lists "
+               "first with that code (1, 2, 3, 4, 5)" in line for line in json.loads(out.read_text())["report"]["lines"])
+    back = cfa_tool.fit(MIXED, path)  # the file reads back through the same statement, as the numbers do
+    numbers.to_csv(tmp_path / "numbers.csv", index=False)
+    assert abs(back.fit.chi_square - cfa_tool.fit(PLAIN, tmp_path / "numbers.csv").fit.chi_square) < 1e-10
+
+
+def test_power_simulation_and_a_population_from_an_ordinal_fit_take_the_mixed_statements_categories(tmp_path):
+    from cfa_tool.workflows.montecarlo import monte_carlo_power
+    from cfa_tool.workflows.simulation import simulate
+
+    ordinal = "ordinal " + ", ".join(ITEMS) + "\n"
+    # reference: the same ordinal model without the statement, cut into five categories by --categories 5 (before:
+    # "--categories 5 cuts 'seat' into 5 categories, and the 'answers' statement ... lists 2 codes for it")
+    stated = monte_carlo_power(MIXED + ordinal, 200, replications=3, seed=2, workers=1, categories=5)
+    given = monte_carlo_power(PLAIN + ordinal, 200, replications=3, seed=2, workers=1, categories=5)
+    assert [p.mean_estimate for p in stated.parameters] == [p.mean_estimate for p in given.parameters]
+    # an ordinal fit of a file mixing numbers and words, made with this very statement, is a population for it
+    # (before: "the earlier fit ... has 5 answer categories of 'seat', and the 'answers' statement ... lists 2 codes")
+    data = _answers()
+    data[list(ITEMS)] = data[list(ITEMS)].astype(object)
+    data.loc[data["seat"] == 5, "seat"] = "Strongly agree"
+    data.to_csv(tmp_path / "mixed.csv", index=False)
+    fitted = cfa_tool.fit(MIXED + ordinal, tmp_path / "mixed.csv")
+    drawn = simulate(MIXED + ordinal, 200, seed=3, population=fitted).frame
+    assert set(drawn["seat"].astype(int)) <= {1, 2, 3, 4, 5} and drawn["seat"].nunique() == 5
+
+
+def test_a_fit_whose_rows_left_a_code_unanswered_is_refused_saying_so(tmp_path):
+    from cfa_tool.errors import ModelError
+    from cfa_tool.workflows.simulation import simulate
+
+    ordinal = "ordinal " + ", ".join(ITEMS) + "\n"
+    data = _answers()
+    data.loc[data["seat"] == 1, "seat"] = 2  # no row answers 1: the fit has 4 categories of seat, the statement 5
+    data.to_csv(tmp_path / "no_ones.csv", index=False)
+    fitted = cfa_tool.fit(MIXED + ordinal, tmp_path / "no_ones.csv")
+    with pytest.raises(ModelError, match="has 4 answer categories of 'seat', and the 'answers' statement on line 3 "
+                                         "lists 5 codes for it; give the model file the fit was made with \\(if it is "
+                                         "that file, the fit's rows answered only 4 of those codes"):
+        simulate(MIXED + ordinal, 100, seed=3, population=fitted)
