@@ -40,9 +40,12 @@ def test_a_declared_keying_the_loadings_contradict_is_said_in_words_in_word():
     report = report_of(result)
     word, terminal, page = _word(report), _flat(report_text(report, 120)), _flat(report_html(report))
     assert not [s for s in SYNTAX if s in word], [s for s in SYNTAX if s in word]
-    # the caution on the keying: words for the manuscript, the statement for the program's user
-    assert "point the other way from the keying the model declares; check the keying" in word
-    assert "point the other way from the keying the model declares (its 'reversed' statement); check" in terminal
+    # the keying contradicted by the loadings, a problem first (new-user trial s17): words for the manuscript, the
+    # statement for the program's user
+    assert "point the other way from the keying the model declares: clean" in word
+    assert "check the declared keying for a typing error" in word
+    assert "point the other way from the keying the model declares (its 'reversed' statement): clean" in terminal
+    assert "check the declared keying (its 'reversed' statement) for a typing error" in terminal
     # the distinct table's note: the scaling in words, the statement where the user edits the model
     assert "scaled by their variances, and comfort, courtesy, and punctuality are scaled otherwise" in word
     for view in (terminal, page.replace("&#x27;", "'")):
