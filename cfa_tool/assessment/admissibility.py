@@ -119,9 +119,9 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the data: a workbook read without a sheet named whose other sheets hold the model's
     # items too (data.readers.OtherSheets): only one sheet of a survey split over sheets was analysed
     OTHER_SHEETS_WITH_ITEMS = ("other sheets with the model's items", "other sheets hold the items", False)
-    # not of the solution but of the data: a code given with --missing-codes that the data file labels as an answer
-    # between the items' other answers (data.missing_codes.CodeOnAnswer): its answers were read as gaps
-    ANSWERS_GIVEN_AS_MISSING = ("labelled answers given as missing codes", "answers read as gaps", False)
+    # not of the solution but of the data: a code given with --missing-codes that lies between the items' other
+    # answers, labelled or not (data.missing_codes.CodeOnAnswer): its answers were read as gaps
+    ANSWERS_GIVEN_AS_MISSING = ("answers given as missing codes", "answers read as gaps", False)
     UNKNOWN_GROUPS_SCORED = ("rows in groups the fit does not have", "groups the fit lacks", False)
     # not of the solution but of the rows scored: ids that name several rows, in a file meant to be merged by id
     REPEATED_IDS_SCORED = ("ids that name several rows", "repeated ids", False)

@@ -204,7 +204,7 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     as_written = tuple(text_columns) if mine is None else tuple(c for c in loaded.frame.columns if str(c) not in mine)
     frame, written = written_non_answers(loaded.frame, as_written, listed)  # before the codes: 'refused' made a column text
     item_labels = {c: v for c, v in loaded.value_labels.items() if c not in as_written}
-    on_answers = codes_on_answers(frame, missing_codes, item_labels, mine, row_numbers(frame)) if item_labels else ()
+    on_answers = codes_on_answers(frame, missing_codes, item_labels, mine, row_numbers(frame)) if missing_codes else ()
     frame, code_notes = apply_missing_codes(frame, missing_codes, where, mine, filters)  # in the items only
     frame, labelled = labelled_non_answers(frame, item_labels, tuple(missing_codes))
     if frame is not loaded.frame:
