@@ -26,17 +26,26 @@ def missing_value(value: object) -> float | str:
     Python list), by the one rule of both: a number, or text that reads as one ('-99'), is a code, read as no answer
     in the cells of numbers; a word ('Ne sait pas', text holding a letter) joins the words of no answer for the run
     (data.non_answers.also_no_answer), read, counted and named as the listed phrases are.  Anything else (a mistyped
-    number such as '9 9', True, None) is a ValueError saying what was given."""
+    number such as '9 9', True, None) is a ValueError saying what was given, and so is NaN, as a number
+    (float('nan'), which counted empty cells as coded) or written ('nan', which no cell was found to hold), and an
+    infinity: no cell holds such a code, and an empty cell is no answer already (hostile trial s17, finding 8)."""
+    import math
     import numbers as kinds
 
     from cfa_tool.numbers import number
 
     if isinstance(value, kinds.Real) and not isinstance(value, bool):
+        if not math.isfinite(float(value)):
+            raise ValueError(f"{printable(repr(value))[:60]} is no code a cell can hold (an empty cell is no answer "
+                             f"already); leave it out")
         return float(value)
     if isinstance(value, str):
         read = number(value)
         if read is not None:
             return read
+        if value.strip().casefold() in ("nan", "inf", "-inf", "+inf", "infinity", "-infinity", "+infinity"):
+            raise ValueError(f"'{printable(value.strip())}' is no code a cell can hold (an empty cell is no answer "
+                             f"already); leave it out")
         if any(c.isalpha() for c in value):
             return value.strip()
     shown = f"'{printable(value)}'" if isinstance(value, str) else printable(repr(value))[:60]
