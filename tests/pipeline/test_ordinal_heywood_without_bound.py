@@ -19,6 +19,7 @@ import cfa_tool
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.cli import main
 from cfa_tool.errors import NotIdentified, UnboundedSolution
+from tests.heywood_data import ITEMS, heywood_draws
 
 MODEL = "factor a: x1, x2, x3\nfactor b: y1, y2, y3\n"
 
@@ -26,14 +27,7 @@ MODEL = "factor a: x1, x2, x3\nfactor b: y1, y2, y3\n"
 @pytest.fixture(scope="module")
 def answers() -> pd.DataFrame:
     rng = np.random.default_rng(1)
-    R = np.eye(6)
-    R[0, 1] = R[1, 0] = R[0, 2] = R[2, 0] = .8
-    R[1, 2] = R[2, 1] = .5
-    R[3:, 3:] = .49
-    np.fill_diagonal(R, 1.0)
-    R[:3, 3:] = R[3:, :3] = .3
-    latent = rng.multivariate_normal(np.zeros(6), R, size=400)
-    frame = pd.DataFrame(np.digitize(latent, [-1.5, -.5, .5, 1.5]) + 1, columns=["x1", "x2", "x3", "y1", "y2", "y3"])
+    frame = pd.DataFrame(np.digitize(heywood_draws(rng), [-1.5, -.5, .5, 1.5]) + 1, columns=ITEMS)
     frame["g"] = np.where(rng.random(400) < .5, "a", "b")
     return frame
 

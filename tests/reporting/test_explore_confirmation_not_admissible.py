@@ -15,18 +15,11 @@ import cfa_tool
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.reports import report_of
 from cfa_tool.reporting.text_formats import report_markdown
+from tests.heywood_data import ITEMS, heywood_draws
 
 
 def test_a_confirmation_fit_not_admissible_is_headed_so_and_comes_first():
-    rng = np.random.default_rng(1)
-    R = np.eye(6)
-    R[0, 1] = R[1, 0] = R[0, 2] = R[2, 0] = .8
-    R[1, 2] = R[2, 1] = .5
-    R[3:, 3:] = .49
-    np.fill_diagonal(R, 1.0)
-    R[:3, 3:] = R[3:, :3] = .3
-    data = pd.DataFrame(rng.multivariate_normal(np.zeros(6), R, size=400).round(4),
-                        columns=["x1", "x2", "x3", "y1", "y2", "y3"])
+    data = pd.DataFrame(heywood_draws(np.random.default_rng(1)).round(4), columns=ITEMS)
     result = cfa_tool.explore(data, factors=2, split=3)
     confirmation = result.split.confirmation
     assert not confirmation.admissible  # the case this test is about (a negative residual variance)
