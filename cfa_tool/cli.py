@@ -9,6 +9,7 @@ from __future__ import annotations
 import argparse
 import atexit
 import contextlib
+import errno
 import gc
 import os
 import signal
@@ -134,7 +135,9 @@ def program() -> int:
         try:
             sys.stdout.flush()
             sys.stderr.flush()
-        except (OSError, ValueError, AttributeError):  # a closed pipe or stream, or none: the usual exit, as before
+        except OSError as exc:  # a report still buffered that a full disk refuses: said, exit 2 (not 0)
+            return _output_failed(exc) if exc.errno in UNWRITABLE_OUTPUT else code
+        except (ValueError, AttributeError):  # a closed pipe or stream, or none: the usual exit, as before
             return code
     except KeyboardInterrupt:  # a stop once the run's work is done and said: its own exit code, no traceback
         return code
@@ -175,12 +178,39 @@ def _main(argv: list[str] | None) -> int:
         except (OSError, ValueError):  # pragma: no cover - no real standard output (tests)
             pass
         return 141
+    except OSError as exc:
+        if exc.errno not in UNWRITABLE_OUTPUT:
+            return _internal_error(exc)
+        return _output_failed(exc)
     except Exception as exc:  # a bug in the tool, not the user's fault
-        if os.environ.get("CFA_TOOL_DEBUG"):
-            raise
-        print(f"{PROG}: internal error: {type(exc).__name__}: {printable(str(exc)[:300])} (please report this; set "
-              f"CFA_TOOL_DEBUG=1 for details)", file=sys.stderr)
-        return 1
+        return _internal_error(exc)
+
+
+def _internal_error(exc: Exception) -> int:
+    """A bug in the tool, not the user's fault: one line, exit 1 (``CFA_TOOL_DEBUG=1`` shows the traceback)."""
+    if os.environ.get("CFA_TOOL_DEBUG"):
+        raise exc
+    print(f"{PROG}: internal error: {type(exc).__name__}: {printable(str(exc)[:300])} (please report this; set "
+          f"CFA_TOOL_DEBUG=1 for details)", file=sys.stderr)
+    return 1
+
+
+#: what a write to standard output that the system refuses sets errno to: a full disk or quota, a file grown past
+#: its limit, a device error (output redirected to a full disk, or to /dev/full)
+UNWRITABLE_OUTPUT = frozenset(getattr(errno, name) for name in ("ENOSPC", "EDQUOT", "EFBIG", "EIO")
+                              if hasattr(errno, name))
+
+
+def _output_failed(exc: OSError) -> int:
+    """Standard output that could not be written (a full disk: ``> /dev/full``): one line, exit 2, as an output file
+    that cannot be written gets (output_files: '--json: cannot write ...'), never an 'internal error' (hostile trial
+    s17, finding 9).  The files asked for were written before the report, and stay."""
+    try:
+        sys.stdout = open(os.devnull, "w")  # the rest of the report, and the exit's flush, go nowhere
+    except OSError:  # pragma: no cover - no null device
+        pass
+    print(f"{PROG}: cannot write the report to standard output ({exc.strerror or exc})", file=sys.stderr)
+    return 2
 
 
 def np_quiet():

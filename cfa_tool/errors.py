@@ -150,6 +150,18 @@ class NotIdentified(EstimationError):
         super().__init__(message)
 
 
+class UnboundedSolution(EstimationError):
+    """A least-squares solution of ordinal items with thresholds (latent responses' residual variances held at 1) that
+    the data drive to an item's residual variance of zero and estimates without bound: in the metric of correlations
+    they ask for a negative residual variance (a Heywood case), so there are no finite estimates, and the singular
+    information says nothing of identification.  ``parameters``: the free parameters that grow, as the parameter
+    table labels them."""
+
+    def __init__(self, message: str, parameters: tuple[str, ...] = ()):
+        self.parameters = tuple(parameters)
+        super().__init__(message)
+
+
 @contextmanager
 def estimation_of(what: str):
     """Name which model or sample an estimation failure belongs to, when a command fits several:

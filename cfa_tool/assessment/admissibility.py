@@ -44,6 +44,9 @@ class ProblemKind(enum.Enum):
     NOT_CONVERGED = ("not converged", "not converged", True)
     # the information matrix is singular at the solution: no unique estimates (a workflow reporting several models)
     NOT_IDENTIFIED = ("not identified", "not identified", True)
+    # a Heywood case that drives the estimates without bound (errors.UnboundedSolution: ordinal items with thresholds,
+    # whose residual variances are held at 1): no finite solution (a workflow reporting several models)
+    UNBOUNDED_HEYWOOD = ("Heywood case without finite estimates", "not admissible: no finite estimates", True)
     NEGATIVE_RESIDUAL_VARIANCE = ("negative residual variance", "negative variance: impossible", True)
     NEGATIVE_FACTOR_VARIANCE = ("negative factor variance", "negative variance: impossible", True)
     FACTOR_CORRELATION_BEYOND_ONE = ("factor correlation beyond +/-1", "correlation beyond +/-1: impossible", True)
@@ -124,9 +127,9 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the data: a workbook read without a sheet named whose other sheets hold the model's
     # items too (data.readers.OtherSheets): only one sheet of a survey split over sheets was analysed
     OTHER_SHEETS_WITH_ITEMS = ("other sheets with the model's items", "other sheets hold the items", False)
-    # not of the solution but of the data: a code given with --missing-codes that the data file labels as an answer
-    # between the items' other answers (data.missing_codes.CodeOnAnswer): its answers were read as gaps
-    ANSWERS_GIVEN_AS_MISSING = ("labelled answers given as missing codes", "answers read as gaps", False)
+    # not of the solution but of the data: a code given with --missing-codes that lies between the items' other
+    # answers, labelled or not (data.missing_codes.CodeOnAnswer): its answers were read as gaps
+    ANSWERS_GIVEN_AS_MISSING = ("answers given as missing codes", "answers read as gaps", False)
     UNKNOWN_GROUPS_SCORED = ("rows in groups the fit does not have", "groups the fit lacks", False)
     # not of the solution but of the rows scored: ids that name several rows, in a file meant to be merged by id
     REPEATED_IDS_SCORED = ("ids that name several rows", "repeated ids", False)
@@ -627,8 +630,31 @@ def not_identified(parameters: tuple[str, ...]) -> Problem:
                    "correlation with another factor).")
 
 
+def unbounded_heywood(failure) -> Problem:
+    """A solution driven without bound by a Heywood case (``failure``: errors.UnboundedSolution, whose words name the
+    item, the group and the estimates that grow), reported as a model that could not be estimated, with the advice
+    a negative residual variance gets: not as a model the data do not identify."""
+    text = str(failure)
+    return Problem(ProblemKind.UNBOUNDED_HEYWOOD, tuple(failure.parameters), None,
+                   _capital(text.split("; look for")[0]) + ".", HEYWOOD_ADVICE)
+
+
+def estimation_failure(failure) -> Problem:
+    """The problem of a model whose assessment stopped on ``failure`` (errors.NotIdentified or
+    errors.UnboundedSolution), for a workflow that reports it among models that could be estimated."""
+    from cfa_tool.errors import UnboundedSolution
+
+    return unbounded_heywood(failure) if isinstance(failure, UnboundedSolution) else not_identified(failure.parameters)
+
+
+#: the problems of a model that could not be estimated whose words say why (the rest: its search did not converge)
+WHY_NOT_ESTIMATED = (ProblemKind.NOT_IDENTIFIED, ProblemKind.UNBOUNDED_HEYWOOD)
+
+
 def failure_words(result) -> str:
     """Why a result could not be estimated, in the few words a table cell or a paragraph shows."""
+    if any(p.kind is ProblemKind.UNBOUNDED_HEYWOOD for p in result.problems):
+        return "not admissible (Heywood case)"
     return ("not identified" if any(p.kind is ProblemKind.NOT_IDENTIFIED for p in result.problems)
             else "did not converge")
 

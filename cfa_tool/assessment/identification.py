@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from cfa_tool.errors import ModelError, NotIdentified
+from cfa_tool.errors import ModelError, NotIdentified, UnboundedSolution
 from cfa_tool.language.names import written_name
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.parameters import ParameterTable
@@ -81,3 +81,43 @@ def _clearly_full_rank(factor: ScaledFactor | None) -> bool:
         return False
     bound = float(np.vdot(factor.inverse, factor.inverse))  # ||L^-1||_F^2 >= 1 / lambda_min
     return np.isfinite(bound) and 1.0 / bound > 1e-9 * max(len(factor.inverse), 1)
+
+
+#: the share of a latent response's variance left to its residual below which a solution whose information is
+#: singular is read as one driven to a Heywood case (the project's own bound, not a published one: at an admissible
+#: solution an item that its factors explain to R-squared 0.999 is rare and, with a singular information, the
+#: estimates are seen to grow without bound)
+UNBOUNDED_RESIDUAL_SHARE = 1e-3
+
+
+def check_bounded_responses(mats, observed: tuple[str, ...], groups: tuple, labels: tuple[str, ...],
+                            theta: np.ndarray) -> None:
+    """Raise :class:`~cfa_tool.errors.UnboundedSolution` when a latent response's residual variance is a share below
+    :data:`UNBOUNDED_RESIDUAL_SHARE` of its implied variance in some group (``mats``: each group's model matrices,
+    ``groups``: their labels, None for one group): with residual variances held at 1 (thresholds as parameters, the
+    metric of Wu & Estabrook 2016), a solution the data push towards a negative residual variance in the metric of
+    correlations (a Heywood case) has loadings and factor variances that grow without bound, and its singular
+    information is the sign of that, not of a model the data do not identify.  Called when the information is
+    singular (:func:`check_information_rank`); ``labels``, ``theta``: the free parameters, the largest named."""
+    worst = None
+    for g, m in enumerate(mats):
+        total = np.diag(m.implied_covariance())
+        share = np.diag(m.T) / np.where(total > 0, total, np.nan)
+        j = int(np.nanargmin(share)) if np.isfinite(share).any() else None
+        if j is not None and share[j] < UNBOUNDED_RESIDUAL_SHARE and (worst is None or share[j] < worst[0]):
+            worst = (float(share[j]), j, g)
+    if worst is None:
+        return
+    share, j, g = worst
+    where = f" in group {groups[g]}" if groups[g] is not None else ""
+    grown = [k for k in np.argsort(-np.abs(theta)).tolist()[:3] if abs(theta[k]) > 100]
+    shown = ", ".join(f"{labels[k]} {theta[k]:.3g}" for k in grown)
+    raise UnboundedSolution(
+        f"the solution is not admissible: the factors explain all of {observed[j]}'s latent response{where} (its "
+        f"residual's share of the variance goes to zero, {share:.1e}"
+        + (f", while the estimates grow without bound: {shown}" if shown else "")
+        + "), the data asking for a negative residual variance, impossible for real data (a Heywood case), so no "
+        "estimate or test of it can be given; look for what the model leaves out near it (a residual covariance or "
+        "cross-loading), for outlying rows, and whether the sample is small for the model; do not simply fix the "
+        "value at a boundary to hide the problem",
+        tuple(labels[k] for k in grown))

@@ -92,12 +92,12 @@ def _codes(text: str) -> tuple[float | str, ...]:
     for v in values:
         try:
             codes.append(missing_value(v))
-        except ValueError:
-            wrong.append(v)
+        except ValueError as error:  # the one rule's words: neither a number nor a word, or NaN
+            wrong.append(str(error))
     if not codes or wrong:
         raise argparse.ArgumentTypeError(
             f"missing codes must be numbers or words separated by commas, not '{text}'"
-            + (f" ('{wrong[0]}' is neither)" if wrong else "")
+            + (f" ({wrong[0]})" if wrong else "")
             + "; a word that holds a comma goes in double quotes")
     return tuple(codes)
 

@@ -22,14 +22,14 @@ def add_parser(sub) -> None:
 
 def run(args: argparse.Namespace) -> int:
     from cfa_tool.language.parser import read_model_file
-    from cfa_tool.reporting.text_formats import csv_cell
     from cfa_tool.workflows.simulation import simulate
 
     check_output(args, inputs_of(args))
     simulated = simulate(read_model_file(args.model), args.n, args.seed, args.categories, args.missing,
                          args.population_from)
     frame = simulated.frame
-    guarded = frame.set_axis([csv_cell(c) for c in frame.columns], axis=1)  # a name spreadsheets would run
-    rows = ("--output", guarded.to_csv(index=False, na_rep=""),
+    # the model's names as written, never given the formula guard of report tables: the file is read back with the
+    # same model file (a name '-a' written "'-a" was no column of it; hostile trial s17, finding 3's neighbour)
+    rows = ("--output", frame.to_csv(index=False, na_rep=""),
             f"{len(frame)} rows of {frame.shape[1]} variables written to {args.output} (seed {args.seed})")
     return emit_report(args, simulated, inputs_of(args), first=[rows])

@@ -46,12 +46,20 @@ class RowNaming(enum.Enum):
 
     FILE_ROW = ("row", "rows", "Row", "file_row")
     INDEX_LABEL = ("index label", "index labels", "Index label", "index_label")
+    # a data frame whose index repeats labels (pd.concat without ignore_index) or is not of whole numbers (text ids):
+    # its rows by their position, counted from 1 (frame.iloc[position - 1]), never called rows of a file
+    POSITION = ("row at position", "rows at positions", "Position", "position")
 
     def __init__(self, one: str, several: str, heading: str, json_word: str) -> None:
         self.one = one
         self.several = several
         self.heading = heading  # a table column's heading
         self.json_word = json_word  # the value of ROW_NAMED_BY beside a row in JSON
+
+    @property
+    def holder(self) -> str:
+        """What holds the rows, as advice names it: 'file', or 'data frame'."""
+        return "file" if self is RowNaming.FILE_ROW else "data frame"
 
     def of(self, count: int) -> str:
         """The word for ``count`` rows: 'row' / 'rows', 'index label' / 'index labels'."""
@@ -70,12 +78,13 @@ def row_naming(frame: pd.DataFrame | pd.Series) -> RowNaming:
 
 def named_by_index_label(frame: pd.DataFrame) -> pd.DataFrame:
     """A data frame given by a Python caller, its rows named by their index labels (data.moments.row_numbers gives
-    the labels themselves) when the index holds distinct whole numbers; a frame indexed otherwise (by text, say)
-    keeps rows named by their positions, counted from 1."""
+    the labels themselves) when the index holds distinct whole numbers; a frame indexed otherwise (by text, or with
+    labels repeated, as pd.concat without ignore_index leaves them) has its rows named by their positions, counted
+    from 1, and called so (:attr:`RowNaming.POSITION`), never rows of a file (hostile trial s17, finding 7)."""
     index = frame.index
-    if len(index) and pd.api.types.is_integer_dtype(index) and index.is_unique:
-        frame = frame.copy(deep=False)  # the caller's frame keeps its attrs
-        frame.attrs[ROW_NAMING] = RowNaming.INDEX_LABEL
+    frame = frame.copy(deep=False)  # the caller's frame keeps its attrs
+    frame.attrs[ROW_NAMING] = (RowNaming.INDEX_LABEL if len(index) and pd.api.types.is_integer_dtype(index)
+                               and index.is_unique else RowNaming.POSITION)
     return frame
 
 

@@ -11,6 +11,30 @@ from cfa_tool.data.odd_values import code_like
 from cfa_tool.input_files import base_name
 
 
+def refuse_name_twins(columns: list[str], source: str) -> None:
+    """Refuse two columns whose names differ only by what cannot be seen, by the one rule of labels
+    (data.labels.label_text: spaces at their ends, invisible format characters such as a zero-width space U+200B, a
+    byte-order mark or a soft hyphen, another Unicode form of the same letters): 'clean' and U+200B 'clean' look the
+    same in every program, so which one a model's name means cannot be told (hostile trial s17, finding 5: the exact
+    one was taken without a word, while twins differing by a trailing space were refused).  The same name twice is
+    refused too."""
+    from cfa_tool.data.labels import label_text
+
+    seen: dict[str, str] = {}
+    for name in columns:
+        key = label_text(name)
+        if key not in seen:
+            seen[key] = name
+            continue
+        other = seen[key]
+        if other == name:
+            raise OptionError(f"{source}: the column name '{printable(name)}' appears more than once")
+        marks = character_names(name, other) or character_names(other, name)
+        raise OptionError(f"{source}: the column names '{printable(other)}' and '{printable(name)}' look the same "
+                          f"(they differ only by invisible characters{marks}, spaces at their ends or Unicode form), "
+                          f"so which one is meant cannot be told; rename one of them in the data")
+
+
 def check_columns(spec: Spec, columns: list[str], data_source: str, sheet_hint: str = "",
                   chosen: dict[str, str] | None = None) -> tuple[str, ...]:
     """Every observed indicator must be a column; a column that shares a factor's name is left unused, with a note

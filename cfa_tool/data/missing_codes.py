@@ -26,17 +26,26 @@ def missing_value(value: object) -> float | str:
     Python list), by the one rule of both: a number, or text that reads as one ('-99'), is a code, read as no answer
     in the cells of numbers; a word ('Ne sait pas', text holding a letter) joins the words of no answer for the run
     (data.non_answers.also_no_answer), read, counted and named as the listed phrases are.  Anything else (a mistyped
-    number such as '9 9', True, None) is a ValueError saying what was given."""
+    number such as '9 9', True, None) is a ValueError saying what was given, and so is NaN, as a number
+    (float('nan'), which counted empty cells as coded) or written ('nan', which no cell was found to hold), and an
+    infinity: no cell holds such a code, and an empty cell is no answer already (hostile trial s17, finding 8)."""
+    import math
     import numbers as kinds
 
     from cfa_tool.numbers import number
 
     if isinstance(value, kinds.Real) and not isinstance(value, bool):
+        if not math.isfinite(float(value)):
+            raise ValueError(f"{printable(repr(value))[:60]} is no code a cell can hold (an empty cell is no answer "
+                             f"already); leave it out")
         return float(value)
     if isinstance(value, str):
         read = number(value)
         if read is not None:
             return read
+        if value.strip().casefold() in ("nan", "inf", "-inf", "+inf", "infinity", "-infinity", "+infinity"):
+            raise ValueError(f"'{printable(value.strip())}' is no code a cell can hold (an empty cell is no answer "
+                             f"already); leave it out")
         if any(c.isalpha() for c in value):
             return value.strip()
     shown = f"'{printable(value)}'" if isinstance(value, str) else printable(repr(value))[:60]
@@ -157,20 +166,22 @@ SHOWN = 6
 
 @dataclass(frozen=True)
 class CodeOnAnswer:
-    """A code given with --missing-codes that the data file labels as an answer between other answers of the items
-    ``columns`` (data.non_answers.between_answers: 3 'Neutral' between 2 'Disagree' and 4 'Agree'): its cells were
-    read as no answer, as the researcher asked, and every view says so first, naming the label, the items, the cells
-    and rows it turned into gaps (a researcher may mean it: the caution says what it did).  ``rows``: the row
-    numbers (data.moments.row_numbers) of its cells in each column; ``scale``: the lowest and highest of the items'
-    other answers."""
+    """A code given with --missing-codes that lies between other answers of the items ``columns``
+    (data.non_answers.between_answers: 3 'Neutral' between 2 'Disagree' and 4 'Agree' of a labelled file, or an
+    unlabelled 3 between the 1s and 2s and the 4s and 5s the items were answered with, in a text file or a data
+    frame): its cells were read as no answer, as the researcher asked, and every view says so first, naming the
+    label (``label``; None when the file labels none), the items, the cells and rows it turned into gaps (a
+    researcher may mean it: the caution says what it did; gaps made of an answer are missing because of their own
+    value, which full-information ML does not assume).  ``rows``: the row numbers (data.moments.row_numbers) of its
+    cells in each column; ``scale``: the lowest and highest of the items' other answers."""
 
     value: float
-    label: str
+    label: str | None
     columns: tuple[str, ...]
     rows: tuple[tuple[int, ...], ...]  # one tuple per column
     scale: tuple[float, float]
     #: the kind of problem every view files it under (assessment.admissibility.ProblemKind's value)
-    problem_kind: str = "labelled answers given as missing codes"
+    problem_kind: str = "answers given as missing codes"
 
     def among(self, kept) -> CodeOnAnswer | None:
         """The cells in the rows that row filters kept (``kept``: row numbers), or None when they kept none."""
@@ -186,46 +197,60 @@ class CodeOnAnswer:
         listed = ", ".join(each[:SHOWN]) + (f" and {len(each) - SHOWN} more" if len(each) > SHOWN else "")
         many = len(self.columns) != 1
         name = base_name(source)
-        return Note((
-            Command(f"{Option.MISSING_CODES.given(f'{self.value:g}')} read as no answer the code {self.value:g}, which "
-                    f"{name} labels", f"The code {self.value:g}, given as a code of no answer, was read as no answer; "
-                    f"{name} labels it"),
-            f" '{printable(self.label)}', an answer between the other answers "
-            f"({self.scale[0]:g} to {self.scale[1]:g}) of {len(self.columns) if many else 'the'} "
-            f"item{'s' if many else ''} holding it: {cells} cell{'s' if cells != 1 else ''} ({listed}) in {rows} "
-            f"row{'s' if rows != 1 else ''} became gaps, analysed as missing answers, not as "
-            f"'{printable(self.label)}'."))
+        given = Option.MISSING_CODES.given(f'{self.value:g}')
+        if self.label is None:  # an unlabelled code, an answer by its place among the answers given
+            opening = (Command(f"{given} read as no answer the code {self.value:g}, which lies in {name}",
+                               f"The code {self.value:g}, given as a code of no answer, was read as no answer; in "
+                               f"{name} it lies"),
+                       f" between the other answers ({self.scale[0]:g} to {self.scale[1]:g})")
+            instead = f"as the answer {self.value:g}"
+        else:
+            opening = (Command(f"{given} read as no answer the code {self.value:g}, which {name} labels",
+                               f"The code {self.value:g}, given as a code of no answer, was read as no answer; "
+                               f"{name} labels it"),
+                       f" '{printable(self.label)}', an answer between the other answers "
+                       f"({self.scale[0]:g} to {self.scale[1]:g})")
+            instead = f"as '{printable(self.label)}'"
+        return Note(opening + (
+            f" of {len(self.columns) if many else 'the'} item{'s' if many else ''} holding it: {cells} "
+            f"cell{'s' if cells != 1 else ''} ({listed}) in {rows} row{'s' if rows != 1 else ''} became gaps, "
+            f"analysed as missing answers, not {instead}.",))
 
     def advice(self) -> Note:
-        return Note((f"If '{printable(self.label)}' is an answer, leave {self.value:g} out of ",
+        answer = f"{self.value:g}" if self.label is None else f"'{printable(self.label)}'"
+        return Note((f"If {answer} is an answer, leave {self.value:g} out of ",
                      Command(f"{Option.MISSING_CODES}", "the codes of no answer"),
-                     f"; if these items' {self.value:g} means no answer, nothing."))
+                     f"; if these items' {self.value:g} means no answer, nothing (gaps so made are missing because "
+                     f"of their own value, which full-information ML does not assume)."))
 
 
 def codes_on_answers(frame: pd.DataFrame, codes, value_labels: dict, items: Collection[str] | None,
                      rows: np.ndarray) -> tuple[CodeOnAnswer, ...]:
-    """The codes given with --missing-codes (``codes``) that the data file labels (``value_labels``) as an answer
-    between the other answers of the item columns ``items`` (None: every column) holding them, by the one rule of a
-    labelled code on the answer scale (data.non_answers.between_answers); ``frame``: the rows before the codes are
-    read as no answer; ``rows``: its row numbers (data.moments.row_numbers).  One for each code, label and scale,
-    naming every item that holds it."""
+    """The codes given with --missing-codes (``codes``) that lie between the other answers of the item columns
+    ``items`` (None: every column) holding them, by the one rule of a code on the answer scale
+    (data.non_answers.between_answers): answers labelled so by the data file (``value_labels``) or answered (a lower
+    and a higher value the item holds), whether the code itself is labelled (3 'Neutral') or not (a text file's 3
+    among answers 1 to 5); a code the file labels as no answer (8 'Don't know' between answers) is the file's word
+    and said by its own note.  ``frame``: the rows before the codes are read as no answer; ``rows``: its row
+    numbers (data.moments.row_numbers).  One for each code, label and scale, naming every item that holds it."""
     from cfa_tool.data.non_answers import between_answers, says_no_answer
 
     numeric_codes = tuple(float(c) for c in codes if isinstance(c, (int, float)) and not isinstance(c, bool))
-    if not numeric_codes or not value_labels:
+    if not numeric_codes:
         return ()
     mine = None if items is None else {str(x) for x in items}
     found: dict[tuple, list] = {}
-    for column, labels in value_labels.items():
-        if column not in frame.columns or (mine is not None and str(column) not in mine) \
-                or not pd.api.types.is_numeric_dtype(frame[column]):
+    for column in frame.columns:
+        if (mine is not None and str(column) not in mine) or not pd.api.types.is_numeric_dtype(frame[column]):
             continue
+        labels = value_labels.get(column, {})
         values = frame[column].to_numpy(dtype=float, na_value=np.nan)
         present = [v for v in np.unique(values[np.isfinite(values)]).tolist() if v not in numeric_codes]
         for code in numeric_codes:
             text = labels.get(code)
+            text = text if isinstance(text, str) else None
             cells = values == code
-            if not isinstance(text, str) or says_no_answer(text, explained=True) or not cells.any() \
+            if (text is not None and says_no_answer(text, explained=True)) or not cells.any() \
                     or not between_answers(code, labels, present, numeric_codes):
                 continue
             answers = [float(k) for k, v in labels.items() if isinstance(k, float) and k not in numeric_codes

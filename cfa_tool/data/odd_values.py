@@ -146,7 +146,7 @@ class OddValues:
         declared scale): the file, the row and what it holds, and how to leave it out: by a row filter on the text
         cell that names it (:func:`row_naming_cell`), which keeps every other row, when it has one."""
         naming = row_naming_cell(frame, self, self.columns)
-        holder = "data frame" if self.naming is RowNaming.INDEX_LABEL else "file"
+        holder = self.naming.holder
         keep = (f" ({Option.KEEP.given(f'{printable(naming[0])} != {printable(naming[1])}')})" if naming
                 else f" ({Option.KEEP})")
         return (f"{self._row_holds(base_name(source))}: a spreadsheet's totals row, not anyone's answers (analysed "
@@ -185,10 +185,10 @@ class OddValues:
         if self.kind is OddKind.MISSING_CODE:
             return Note((f"If {value} means 'no answer', ", code, " (or correct those answers in the file)."))
         if self.kind is OddKind.OUTSIDE_SCALE:
-            holder = "data frame" if self.naming is RowNaming.INDEX_LABEL else "file"
+            holder = self.naming.holder
             return Note((f"Check those answers: correct a typing error in a copy of the {holder}, or, if {value} "
                          f"means 'no answer', ", code, "."))
-        holder = "data frame" if self.naming is RowNaming.INDEX_LABEL else "file"
+        holder = self.naming.holder
         if self.kind is OddKind.SUMMARY_BLOCK:
             return _block_advice(self, holder)
         return Note((f"Delete {self._first_row()} from the {holder} (or leave it out with a row filter",

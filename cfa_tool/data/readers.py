@@ -209,7 +209,7 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     as_written = tuple(text_columns) if mine is None else tuple(c for c in loaded.frame.columns if str(c) not in mine)
     frame, written = written_non_answers(loaded.frame, as_written, listed)  # before the codes: 'refused' made a column text
     item_labels = {c: v for c, v in loaded.value_labels.items() if c not in as_written}
-    on_answers = codes_on_answers(frame, missing_codes, item_labels, mine, row_numbers(frame)) if item_labels else ()
+    on_answers = codes_on_answers(frame, missing_codes, item_labels, mine, row_numbers(frame)) if missing_codes else ()
     frame, code_notes = apply_missing_codes(frame, missing_codes, where, mine, filters)  # in the items only
     frame, labelled = labelled_non_answers(frame, item_labels, tuple(missing_codes))
     if frame is not loaded.frame:
@@ -1750,10 +1750,14 @@ def _check_decimal_points(frame: pd.DataFrame, where: str, text_columns=()) -> N
 
 
 def _decimal_mark(text: str, delimiter: str) -> str:
-    """',' with semicolons (as spreadsheets in decimal-comma locales write CSV), and with tabs when the numbers
-    are written with decimal commas and never with points (their 'Unicode text' export); '.' otherwise."""
+    """',' with semicolons (as spreadsheets in decimal-comma locales write CSV) unless the numbers are written with
+    decimal points and never with commas ('3.5;4.5': read, and said, with points; a point before exactly three digits
+    alone, '1.234', may separate thousands and leaves the comma, :func:`_check_dotted_thousands`), and with tabs when
+    the numbers are written with decimal commas and never with points (their 'Unicode text' export); '.' otherwise."""
     if delimiter == ";":
-        return ","
+        sample = text[:200_000]
+        points = re.search(r"\d\.(?!\d{3}(?!\d))\d", sample) is not None  # a point not before exactly three digits
+        return "." if points and not re.search(r"\d,\d", sample) else ","
     if delimiter == "\t":
         sample = text[:200_000]
         if re.search(r"\d,\d", sample) and not re.search(r"\d\.\d", sample):
@@ -1931,10 +1935,13 @@ def _check_dotted_thousands(frame: pd.DataFrame, raw: _RawCells, header: list[st
                             f"with decimal commas the '.' "
                             f"may separate thousands ({cells.iloc[first].replace('.', '')}) or mark decimals, so the "
                             f"values cannot be read; write the numbers without thousands separators")
-        if commas and notes is not None:
+        # said also when the file writes no other decimals but the column holds whole numbers beside (a lone '1.234'
+        # among answers 1 to 5); a column written alike throughout ('4.000', '3.000') says nothing
+        if notes is not None and (commas or (~dotted & cells.str.fullmatch(r"[+-]?\d+").fillna(False)).any()):
             notes.append(f"{path}: column '{printable(name)}' was read with '.' as the decimal point ({example}), "
-                         f"though the file writes other decimals with commas; if its '.' separates thousands, write "
-                         f"the numbers without it")
+                         f"though the file " + ("writes other decimals with commas" if commas else
+                                                "is read with decimal commas and writes no other decimals")
+                         + "; if its '.' separates thousands, write the numbers without it")
 
 
 def _split_row_names(frame: pd.DataFrame, out: list | None) -> pd.DataFrame:

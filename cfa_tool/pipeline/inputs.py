@@ -23,7 +23,7 @@ from cfa_tool.data.kept_rows import (RowNaming, line_words, named_by_index_label
                                      unfinished_rows_note)
 from cfa_tool.data.labels import (CODED_LABELS, label_notes, label_text, labelled_codes, nominal_items_note,
                                   refuse_container_cells)
-from cfa_tool.data.matching import (answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges,
+from cfa_tool.data.matching import (answer_range_notes, refuse_name_twins, check_codes_off_scales, check_columns, check_declared_ranges,
                                     chosen_columns)
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.non_answers import also_no_answer, beyond_scale, non_answer_caution, run_words
@@ -262,9 +262,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     frame = loaded.frame
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
     columns = [c if type(c) is str else str(c) for c in labels]
-    if len(set(columns)) != len(columns):
-        dup = next(c for c in columns if columns.count(c) > 1)
-        raise OptionError(f"{loaded.source}: the column name '{dup}' appears more than once")
+    refuse_name_twins(columns, loaded.source)  # the same name twice, or twins that look the same
     if not all(type(c) is str for c in labels):  # column labels as text (a renamed copy only when needed)
         frame = frame.set_axis(columns, axis=1)
     notes: list[str] = list(loaded.notes)

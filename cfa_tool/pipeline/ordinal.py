@@ -20,13 +20,13 @@ import numpy as np
 from cfa_tool.assessment.admissibility import group_size_problems, solution_problems
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.fit_indices import fit_indices, srmr
-from cfa_tool.assessment.identification import check_information_rank
+from cfa_tool.assessment.identification import check_bounded_responses, check_information_rank
 from cfa_tool.assessment.ordinal_reliability import with_observed_sum_omega
 from cfa_tool.assessment.modification import (ModificationIndices, candidate_arrays, candidate_entries,
                                                collected_indices, least_squares_score_tests)
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
-from cfa_tool.errors import CfaError, ModelError, OptionError
+from cfa_tool.errors import CfaError, ModelError, NotIdentified, OptionError
 from cfa_tool.estimation.least_squares import MixedLeastSquares, OrdinalLeastSquares, group_statistics
 from cfa_tool.estimation.strategy import Alternative, search
 from cfa_tool.inference.adjusted import (AdjustedTest, adjusted_fit, adjusted_from_traces, adjusted_test, residual_traces,
@@ -535,7 +535,12 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
     srmrs = [None] * G
     if est.converged:
         D, e, w, gamma = obj.stacked(theta)
-        check_information_rank(D @ (D.T * w[:, None]), table.free_labels)
+        try:
+            check_information_rank(D @ (D.T * w[:, None]), table.free_labels)
+        except NotIdentified:  # a Heywood case drives the estimates without bound: said so, not 'not identified'
+            check_bounded_responses(mats, table.observed, tuple(label for label, _ in groups) if table.multigroup
+                                    else (None,) * G, table.free_labels, theta)
+            raise
         slices = obj.group_slices()
         cov_theta = robust_covariance(D, w, gamma, n, slices)
         inference = wald_inference(values, model.J, cov_theta)

@@ -289,9 +289,12 @@ def explore_report(result):
     notice = problem_notice(result)
     confirmation = result.split.confirmation if result.split is not None else None
     second = T.problem_notice(confirmation) if confirmation is not None else None
-    if second is not None:
-        lines = (notice.lines if notice is not None else ()) + tuple(f"Confirmation half: {x}" for x in second.lines)
-        notice = T.ProblemNotice(notice.heading if notice is not None else second.heading, lines,
+    if second is not None:  # a confirmation fit that is not admissible: first, under the heading every fit's has
+        # (tables.problem_notice, the one rule), never under the exploration's softer one (hostile trial s17, finding 4)
+        own = notice.lines if notice is not None else ()
+        theirs = tuple(f"Confirmation half: {x}" for x in second.lines)
+        lines = theirs + own if second.inadmissible else own + theirs
+        notice = T.ProblemNotice(second.heading if second.inadmissible or notice is None else notice.heading, lines,
                                  second.inadmissible or notice is not None)
     lines = tuple(header_lines(result)) + tuple(result.reasons()) + (solution_line(result),)
     count, solution = explore_tables(result)

@@ -7,7 +7,7 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
-from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, ProblemKind, design_cautions, failure_words,
+from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATED, ProblemKind, design_cautions, failure_words,
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.data.groups import reference_words
@@ -57,9 +57,11 @@ def _failed_lines(named_results) -> list[Text]:
     for name, r in named_results:
         if r.converged:
             continue
-        failure = next((p for p in r.problems if p.kind in (ProblemKind.NOT_CONVERGED, ProblemKind.NOT_IDENTIFIED)), None)
+        failure = next((p for p in r.problems if p.kind in (ProblemKind.NOT_CONVERGED,) + WHY_NOT_ESTIMATED), None)
         advice = " What to try: " + failure.advice if failure is not None else ""
-        why = (r.message if failure is not None and failure.kind is ProblemKind.NOT_IDENTIFIED else
+        why = (failure.explanation[0].lower() + failure.explanation[1:].rstrip(".")
+               if failure is not None and failure.kind is ProblemKind.UNBOUNDED_HEYWOOD else
+               r.message if failure is not None and failure.kind is ProblemKind.NOT_IDENTIFIED else
                "its estimation did not converge (" + r.message + ")")
         lines.append(f"{name} could not be estimated: " + why + "; nothing of it is a result, and no model is tested "
                      "against it." + advice)

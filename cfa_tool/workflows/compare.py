@@ -239,12 +239,12 @@ def _some_estimated(found: Comparison) -> Comparison:
     first); otherwise the EstimationError that says why of each, as fit stops on a model it cannot estimate."""
     if any(r.converged for r in found.results):
         return found
-    from cfa_tool.assessment.admissibility import ProblemKind
+    from cfa_tool.assessment.admissibility import WHY_NOT_ESTIMATED, ProblemKind
 
     def why(r: FitResult) -> str:
         small = "".join(f"{p.explanation} " for p in r.problems
                         if p.kind in (ProblemKind.SMALL_SAMPLE, ProblemKind.SMALL_GROUP))
-        identified = not any(p.kind is ProblemKind.NOT_IDENTIFIED for p in r.problems)
+        identified = not any(p.kind in WHY_NOT_ESTIMATED for p in r.problems)
         return small + (f"the estimation did not converge ({r.message})" if identified else r.message)
 
     raise EstimationError("no model could be estimated, so nothing is compared: " + "; ".join(

@@ -25,7 +25,6 @@ from cfa_tool.data.sample_design import check_design, design_columns
 from cfa_tool.data.summary_stats import NotGiven
 from cfa_tool.errors import DataError, EstimationError, OptionError, printable
 from cfa_tool.note_parts import Command, Note
-from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
@@ -709,11 +708,11 @@ class ScoreResult(Presentable):
         }
 
     def csv(self) -> str:
-        """The scores as CSV text: full precision, empty cells where there is no score."""
-        guarded = self.table.set_axis([csv_cell(c) for c in self.table.columns], axis=1)
-        if self.id_name is not None:
-            guarded.iloc[:, 0] = guarded.iloc[:, 0].map(lambda v: None if v is None or pd.isna(v) else csv_cell(v))
-        return guarded.to_csv(index=False, na_rep="", float_format="%.10g", lineterminator="\n")
+        """The scores as CSV text: full precision, empty cells where there is no score, every id and column name as
+        written in the data (a file of rows merged back by its ids: '-A12' stays '-A12', never given the
+        spreadsheet-formula guard of report tables, reporting.text_formats, which would change the key; hostile
+        trial s17, finding 3)."""
+        return self.table.to_csv(index=False, na_rep="", float_format="%.10g", lineterminator="\n")
 
 
     def __str__(self) -> str:

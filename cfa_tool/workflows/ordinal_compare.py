@@ -20,8 +20,8 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.polychoric import ordinal_moments
-from cfa_tool.assessment.admissibility import ProblemKind, not_identified
-from cfa_tool.errors import NotIdentified, OptionError, estimation_of
+from cfa_tool.assessment.admissibility import ProblemKind, estimation_failure
+from cfa_tool.errors import NotIdentified, OptionError, UnboundedSolution, estimation_of
 from cfa_tool.estimation.optimizer import minimise
 from cfa_tool.method import DifferenceMethod
 from cfa_tool.pipeline.ordinal import assess_ordinal_groups, refuse_set_residual_variances, estimate_ordinal_groups, ordinal_difference
@@ -68,7 +68,8 @@ def fit_ordinal_models(specs: Sequence[Spec], complete: pd.DataFrame, source: st
                 est = replace(est, table=_one_group_table(est.table))
             try:
                 result = assess_ordinal_groups(spec, groups, est, fit_options, group, method, modification=False)
-            except NotIdentified as failure:  # reported among the others, as compare of continuous items does
+            except (NotIdentified, UnboundedSolution) as failure:  # reported among the others, as compare of
+                # continuous items does
                 result = _unidentified(spec, groups, est, fit_options, group, method, failure)
         estimations.append(est)
         if group is None and result.fit is not None:
@@ -91,12 +92,13 @@ def _one_group_table(table):
     return replace(table, multigroup=False)
 
 
-def _unidentified(spec, groups, est, fit_options, group, method, failure: NotIdentified):
-    """A model the data do not identify (``failure``: the rank check's error) as a result that could not be
-    estimated, that problem first, as pipeline.continuous.unestimated makes it for continuous items."""
+def _unidentified(spec, groups, est, fit_options, group, method, failure: NotIdentified | UnboundedSolution):
+    """A model the data do not identify, or one a Heywood case drives without bound (``failure``: the rank check's
+    error), as a result that could not be estimated, that problem first, as pipeline.continuous.unestimated makes it
+    for continuous items."""
     result = assess_ordinal_groups(spec, groups, replace(est, converged=False, message=str(failure)), fit_options,
                                    group, method, modification=False)
-    return replace(result, problems=tuple(not_identified(failure.parameters) if p.kind is ProblemKind.NOT_CONVERGED
+    return replace(result, problems=tuple(estimation_failure(failure) if p.kind is ProblemKind.NOT_CONVERGED
                                           else p for p in result.problems))
 
 

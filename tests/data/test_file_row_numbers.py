@@ -235,7 +235,7 @@ def test_rows_that_answer_nothing_are_named_by_their_ids_whatever_the_frame_inde
     ids = frame["rider_id"].iloc[[3, 7]].tolist()
     result = cfa_tool.fit(rider_model, frame, id_column="rider_id")
     note = next(w for w in result.warnings if "answered none of the model variables" in w)
-    assert f"rows 4 ('{ids[0]}'), 8 ('{ids[1]}')" in note
+    assert f"rows at positions 4 ('{ids[0]}'), 8 ('{ids[1]}')" in note  # positions, not a file's rows (hostile s17, 7)
 
 
 def _texts_above_codes(frame: pd.DataFrame, path) -> None:

@@ -83,7 +83,7 @@ def test_a_frame_not_indexed_by_whole_numbers_keeps_rows_named_by_position(rider
     frame.index = [f"r{k}" for k in range(len(frame))]
     frame.loc["r3", ITEMS] = np.nan
     note = next(w for w in cfa_tool.fit(rider_model, frame).warnings if "answered none of the model variables" in w)
-    assert note.endswith("left out (row 4)")
+    assert note.endswith("left out (row at position 4)")  # said as a position, not a file's row (hostile s17, 7)
 
 
 def test_the_json_case_rows_say_what_their_row_numbers_count(indexed, rider_model, tmp_path, capsys):
