@@ -54,6 +54,14 @@ def test_row_order_and_the_id_column_are_kept(tmp_path, model_file, capsys):
     np.testing.assert_array_equal(named.iloc[:, 1:].to_numpy(), written.iloc[:, 1:].to_numpy())
 
 
+def _fit_first(model_file, data, tmp_path, capsys, from_fit: bool) -> list:
+    """The options that score with the saved JSON of a fit of ``data`` (written here) when ``from_fit``, else none."""
+    if not from_fit:
+        return []
+    assert _run(["fit", model_file, "--data", data, "--json", tmp_path / "fit.json"], capsys)[0] == 0
+    return ["--from-fit", tmp_path / "fit.json"]
+
+
 def _estimates(result: dict) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """Loadings, factor covariance, residual covariance and intercepts from the fit in the JSON."""
     L, phi, theta, nu = np.zeros((9, 3)), np.zeros((3, 3)), np.zeros((9, 9)), np.zeros(9)
@@ -427,11 +435,7 @@ def test_a_blank_row_of_the_file_keeps_an_empty_line_so_the_scores_line_up(tmp_p
         sheet.append(list(row))
     book.save(tmp_path / "blank.xlsx")
     raw.to_excel(tmp_path / "plain.xlsx", index=False)
-    extra = []
-    if from_fit:
-        assert _run(["fit", model_file, "--data", tmp_path / "plain.xlsx", "--json", tmp_path / "fit.json"],
-                    capsys)[0] == 0
-        extra = ["--from-fit", tmp_path / "fit.json"]
+    extra = _fit_first(model_file, tmp_path / "plain.xlsx", tmp_path, capsys, from_fit)
     assert _run(["scores", model_file, "--data", tmp_path / "blank.xlsx", "--output", tmp_path / "b.csv"] + extra,
                 capsys)[0] == 0
     assert _run(["scores", model_file, "--data", tmp_path / "plain.xlsx", "--output", tmp_path / "p.csv"] + extra,
@@ -472,11 +476,7 @@ def test_rows_above_the_column_names_get_no_line_and_are_not_counted(tmp_path, m
             sheet.append(list(row))
         data = tmp_path / "above.xlsx"
         book.save(data)
-    extra = []
-    if from_fit:
-        assert _run(["fit", model_file, "--data", tmp_path / "plain.csv", "--json", tmp_path / "fit.json"],
-                    capsys)[0] == 0
-        extra = ["--from-fit", tmp_path / "fit.json"]
+    extra = _fit_first(model_file, tmp_path / "plain.csv", tmp_path, capsys, from_fit)
     code, out, _ = _run(["scores", model_file, "--data", data, "--output", tmp_path / "a.csv"] + extra, capsys)
     assert code == 0
     assert _run(["scores", model_file, "--data", tmp_path / "plain.csv", "--output", tmp_path / "p.csv"] + extra,
@@ -497,10 +497,7 @@ def test_rows_above_the_first_row_of_answers_keep_their_lines(tmp_path, model_fi
     text = lines.read_text().splitlines()
     questions = ",".join(f'"Question {k}"' for k in range(len(raw.columns)))
     (tmp_path / "questions.csv").write_text("\n".join([text[0], questions] + text[1:]) + "\n")
-    extra = []
-    if from_fit:
-        assert _run(["fit", model_file, "--data", lines, "--json", tmp_path / "fit.json"], capsys)[0] == 0
-        extra = ["--from-fit", tmp_path / "fit.json"]
+    extra = _fit_first(model_file, lines, tmp_path, capsys, from_fit)
     code, out, _ = _run(["scores", model_file, "--data", tmp_path / "questions.csv", "--first-data-row", "3",
                          "--output", tmp_path / "q.csv"] + extra, capsys)
     assert code == 0
@@ -603,11 +600,7 @@ def test_a_column_that_could_name_the_rows_is_suggested_when_none_does(tmp_path,
     raw = pd.read_csv(HS_FILE)[["school"] + ITEMS]  # no row names, no id column
     coded = raw.assign(code=[f"C{k:04d}" for k in range(len(raw))], site=["a", "b"] * (len(raw) // 2) + ["a"])
     coded.to_csv(tmp_path / "coded.csv", index=False)
-    extra = []
-    if from_fit:
-        assert _run(["fit", model_file, "--data", tmp_path / "coded.csv", "--json", tmp_path / "fit.json"],
-                    capsys)[0] == 0
-        extra = ["--from-fit", tmp_path / "fit.json"]
+    extra = _fit_first(model_file, tmp_path / "coded.csv", tmp_path, capsys, from_fit)
     code, out, _ = _run(["scores", model_file, "--data", tmp_path / "coded.csv", "--output", tmp_path / "a.csv"]
                         + extra, capsys)
     assert code == 0
