@@ -56,8 +56,10 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
     q, k = len(theta), len(found)
     I, J = vech_indices(model.p)
     complete = likelihood.complete_data
-    information = np.zeros((q + k, q + k))  # the index's own: h comes from it
-    bread = information if complete else np.zeros((q + k, q + k))  # L comes from it
+    # of the index's own information (h comes from it) only its columns of theta and the candidates' diagonal enter
+    cross = np.zeros((q + k, q))
+    diagonal = np.zeros(k)
+    bread = None if complete else np.zeros((q + k, q + k))  # L comes from it (with complete rows: the information)
     meat = np.zeros((q + k, q + k))
     weighted = []
     if complete and sandwich is None:
@@ -81,7 +83,8 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
         X[:, :q] = delta
         X[:, q + mine] = extra
         VX = V @ X
-        information += w * X.T @ VX
+        cross += w * (X.T @ VX[:, :q])
+        diagonal += w * np.einsum("ic,ic->c", X[:, q:], VX[:, q:])
         if complete:
             weighted.append(w * VX)
         else:
@@ -89,8 +92,8 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
             meat += w * X.T @ group_meat(likelihood, g, mats) @ X  # inference.robust_missing's per-group B
     if complete:
         meat = sandwich.omega.middle(weighted)
-    K = information[q:, :q] @ scaled_inverse(information[:q, :q])  # A_gt A_tt^-1 of the index's information
-    normal = np.diag(information)[q:] - np.einsum("cq,cq->c", K, information[q:, :q])
+    K = cross[q:] @ scaled_inverse(cross[:q])  # A_gt A_tt^-1 of the index's information
+    normal = diagonal - np.einsum("cq,cq->c", K, cross[q:])
     if not complete:  # L from the observed information
         K = bread[q:, :q] @ scaled_inverse(bread[:q, :q])
     robust = (np.diag(meat)[q:] - 2.0 * np.einsum("cq,cq->c", K, meat[q:, :q])
