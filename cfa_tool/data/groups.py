@@ -162,10 +162,10 @@ def group_keys(cells: pd.Series) -> pd.Series:
     if not len(cells) or cells.dtype.kind not in "fiubO":
         return cells.map(key)
     distinct, places = distinct_cells(cells)
-    held = np.empty(len(distinct), dtype=object)
-    held[:] = distinct
-    keys = pd.Series(held, dtype=object).map(key)  # the type pandas gives the labels, as mapping every cell gave
-    return keys.iloc[places].set_axis(cells.index).rename(cells.name)
+    keys = np.empty(len(distinct), dtype=object)
+    keys[:] = [key(v) for v in distinct]
+    # the constructor infers the labels' type as Series.map does (text, or object when no cell has a label)
+    return pd.Series(keys[places], index=cells.index, name=cells.name).__finalize__(cells)
 
 
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,

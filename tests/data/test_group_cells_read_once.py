@@ -88,7 +88,9 @@ def test_distinct_cells_give_what_the_rule_gives_cell_by_cell(kind):
     for _ in range(60):
         cells = _column(rng, kind, int(rng.integers(0, 40)))
         cells.index = rng.permutation(len(cells)) + 10  # an index that is not the positions
+        cells.attrs["source"] = "data.csv"  # what a reader may keep on a column
         pd.testing.assert_series_equal(group_keys(cells), _old_keys(cells))
+        assert group_keys(cells).attrs == _old_keys(cells).attrs
         present = cells.dropna()
         assert L.merged_labels(present) == _old_merged(present)
         assert L.look_alike_labels(present) == _old_look_alike(present)
