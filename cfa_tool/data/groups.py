@@ -154,12 +154,13 @@ def group_keys(cells: pd.Series) -> pd.Series:
     """Each cell of a group column as its group's label (data.labels.label_text), None for an empty cell and for a
     cell of spaces and invisible format characters alone (a zero-width space), which the data file's reader leaves
     as text but shows as empty as a cell of spaces, which it reads as empty.  Each distinct cell is read once
-    (data.labels.distinct_cells) where the column holds numbers or Python objects; other columns (categories, dates)
-    cell by cell, as pandas hands them."""
+    (data.labels.distinct_cells) where the column holds numbers, text (pandas' 'str') or Python objects; other columns
+    (categories, nullable types, dates) cell by cell by Series.map, whose result keeps their kind."""
     def key(v):
         return None if pd.isna(v) else (label_text(v) or None)
 
-    if not len(cells) or cells.dtype.kind not in "fiubO":
+    if not len(cells) or not ((isinstance(cells.dtype, np.dtype) and cells.dtype.kind in "fiubO")
+                              or cells.dtype == "str"):
         return cells.map(key)
     distinct, places = distinct_cells(cells)
     keys = np.empty(len(distinct), dtype=object)

@@ -56,13 +56,14 @@ def distinct_cells(values) -> tuple[list, "np.ndarray"]:
     them: (cells, places), ``values[i]`` alike ``cells[places[i]]``, the cells in order of first sight.  Cells are
     alike when of one type with one text (``str``): all that :func:`label_text` and the notes on labels read of a
     cell, so a rule applied to the distinct cells gives what it gives cell by cell (1 and True, or 0.0 and -0.0,
-    which a hash table takes as one value, stay apart).  Columns of text alone and of numbers (without -0.0) are
-    read by pandas' hash table; others cell by cell."""
+    which a hash table takes as one value, stay apart).  Columns of text alone and of numpy's numbers (without -0.0)
+    are read by pandas' hash table; others cell by cell as iterating them gives the cells."""
     import numpy as np
     import pandas as pd
 
     array = None
-    if isinstance(values, (pd.Series, np.ndarray)) and values.dtype.kind in "fiubO":
+    if isinstance(values, (pd.Series, np.ndarray)) and values.dtype.kind in "fiubO" and (
+            isinstance(values.dtype, np.dtype) or values.dtype == "str"):  # not pandas' nullable types: pd.NA is a cell
         array = values.to_numpy() if isinstance(values, pd.Series) else values
         if array.ndim != 1 or (array.dtype.kind == "O" and pd.api.types.infer_dtype(array, skipna=False) != "string") \
                 or (array.dtype.kind == "f" and bool(np.any(np.signbit(array) & (array == 0)))):

@@ -65,6 +65,11 @@ def _column(rng: np.random.Generator, kind: str, n: int) -> pd.Series:
         cells = [None if r < 0.2 else np.nan if r < 0.3 else np.str_(TEXTS[k]) if r < 0.5 else TEXTS[k]
                  for r, k in zip(rng.random(n), rng.integers(0, len(TEXTS), n))]
         return pd.Series(cells, dtype=object)
+    if kind in ("pandas text", "categories", "nullable text"):  # pandas' own types: 'str' is how pandas 3 reads text
+        cells = [None if r < 0.2 else TEXTS[k] for r, k in zip(rng.random(n), rng.integers(0, len(TEXTS), n))]
+        return pd.Series(cells, dtype={"pandas text": "str", "categories": "category", "nullable text": "string"}[kind])
+    if kind == "nullable numbers":
+        return pd.Series(rng.choice([1.0, 2.0, 2.5, np.nan], n)).astype("Float64")
     if kind == "floats":
         return pd.Series(rng.choice([1.0, 2.0, 2.5, np.nan, 0.0, 1e20, -3.0], n))
     if kind == "floats with -0.0":
@@ -79,7 +84,8 @@ def _column(rng: np.random.Generator, kind: str, n: int) -> pd.Series:
     return pd.Series([pool[k] for k in rng.integers(0, len(pool), n)], dtype=object)
 
 
-KINDS = ["text", "text with gaps", "floats", "floats with -0.0", "integers", "truth values", "mixed objects"]
+KINDS = ["text", "text with gaps", "floats", "floats with -0.0", "integers", "truth values", "mixed objects",
+         "pandas text", "categories", "nullable text", "nullable numbers"]
 
 
 @pytest.mark.parametrize("kind", KINDS)
