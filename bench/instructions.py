@@ -9,6 +9,7 @@ shared machine (wall-clock times here vary by up to 2x between runs).
     python bench/instructions.py --call grouped --fits 30   # case 1 by school (two groups), every column, default call
     python bench/instructions.py --call csv --fits 30       # case 1 read from its CSV file (every column) and fitted
     python bench/instructions.py --call spss --fits 30      # the rider survey read from an SPSS file and fitted
+    python bench/instructions.py --call design --items 30 --fits 10 --base 1   # 1,000 rows in 50 clusters, cluster=
 
 Runs the fit 10 (``--base``) and 10 + ``--fits`` (default 1000) times under ``valgrind --tool=callgrind`` in two
 processes and reports the difference divided by ``--fits``, so that start-up (imports, the first fit)
@@ -43,6 +44,8 @@ for _ in range(int(sys.argv[1]) if call != "bootstrap" else 0):
         cfa_tool.fit(model, data, diagnostics=False, modification_indices=False)
     elif call == "grouped":
         cfa_tool.fit(model, data, group="school").to_dict()
+    elif call == "design":
+        cfa_tool.fit(model, data, cluster="cluster").to_dict()
     else:
         cfa_tool.fit(model, data).to_dict()
 """
@@ -75,12 +78,14 @@ def count(fits: int, script: Path, data: Path, model: Path, call: str) -> subpro
 
 def main() -> None:
     parser = argparse.ArgumentParser()
-    parser.add_argument("--call", choices=["lean", "default", "bootstrap", "grouped", "csv", "spss"], default="lean",
+    parser.add_argument("--call", choices=["lean", "default", "bootstrap", "grouped", "csv", "spss", "design"], default="lean",
                         help="lean: no modification indices or diagnostics; default: the full report and to_dict(); "
                              "bootstrap: a bootstrap of 10 and of 10 + --fits resamples (percentile intervals, one process); "
                              "grouped: the default call with group='school' (every column); csv: the default call on "
                              "the CSV file (every column), read at each fit; spss: the rider survey's three-factor "
-                             "model on an SPSS file of its answers (value labels, a 'Refused' code), read at each fit")
+                             "model on an SPSS file of its answers (value labels, a 'Refused' code), read at each fit; "
+                             "design: the default call with cluster='cluster' on a simulated model of --items items "
+                             "(1,000 rows in 50 clusters, bench/same_output.py's design case)")
     parser.add_argument("--items", type=int, default=9, help="9: Holzinger-Swineford (case 1); 30, 60...: run.py's simulated models")
     parser.add_argument("--fits", type=int, default=1000)
     parser.add_argument("--base", type=int, default=10,
@@ -109,6 +114,10 @@ def main() -> None:
             from run import simulated
 
             text, _, frame = simulated(args.items, args.items // 10, 1000, args.items)
+            if args.call == "design":  # the clusters of bench/same_output.py's design case
+                import numpy as np
+
+                frame["cluster"] = np.random.default_rng(5).integers(0, 50, len(frame))
             frame.to_csv(data, index=False)
             model.write_text(text)
         runs = {n: count(n, script, data, model, args.call) for n in (args.base, args.base + args.fits)}

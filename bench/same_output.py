@@ -5,8 +5,9 @@
     python bench/same_output.py --compare /tmp/before.pickle /tmp/after.pickle
 
 Fits the cases of bench/default_call.py (Holzinger-Swineford with every column, 30, 60 and 120 simulated
-items) plus a model with groups, one with gaps in the data (full-information estimation) and one of ordinal
-items, and keeps ``fit(...).to_dict()`` of each.  The comparison is exact: the same keys in the same order,
+items) plus a model with groups, one with gaps in the data (full-information estimation), one of ordinal
+items and three under a sampling design (30 simulated items in 50 clusters; Holzinger-Swineford by school with
+sampling weights and clusters within each school, and with clusters the schools share), and keeps ``fit(...).to_dict()`` of each.  The comparison is exact: the same keys in the same order,
 the same types, the same numbers to the last bit (NaN equal to NaN), the same text.  A change made for
 speed must leave every one of them as it was.
 
@@ -57,7 +58,26 @@ def cases() -> dict[str, dict]:
     model = (ROOT / "models" / "rider_three_factors.cfa").read_text()
     out["rider survey, ordinal"] = cfa_tool.fit(model, rider, ordinal="all").to_dict()
     out["rider survey, continuous"] = cfa_tool.fit(model, rider).to_dict()
+    out.update(design_cases(hs))
     return out
+
+
+def design_cases(hs: pd.DataFrame) -> dict[str, dict]:
+    """Fits under a sampling design (the design-based standard errors, scaled test and score tests): invented
+    clusters and weights, drawn with fixed seeds."""
+    import cfa_tool
+
+    text, _, data = simulated(30, 3, 1000, 30)
+    data["cluster"] = np.random.default_rng(5).integers(0, 50, len(data))
+    rng = np.random.default_rng(7)
+    within = hs.assign(w=rng.lognormal(0, 0.4, len(hs)),
+                       cluster=hs["school"].astype(str) + "-" + rng.integers(0, 12, len(hs)).astype(str))
+    shared = hs.assign(cluster=rng.integers(0, 15, len(hs)))
+    return {"simulated, 30 items, 50 clusters": cfa_tool.fit(text, data, cluster="cluster").to_dict(),
+            "Holzinger-Swineford by school, weights and clusters in each school":
+                cfa_tool.fit(HS_MODEL, within, group="school", weights="w", cluster="cluster").to_dict(),
+            "Holzinger-Swineford by school, clusters the schools share":
+                cfa_tool.fit(HS_MODEL, shared, group="school", cluster="cluster").to_dict()}
 
 
 def differences(a, b, where: str = "") -> list[str]:

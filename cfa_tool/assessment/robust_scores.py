@@ -16,7 +16,8 @@ from cfa_tool.assessment.modification import ModificationIndices
 from cfa_tool.numerics.linalg import scaled_inverse
 
 
-def robust_score_tests(found: ModificationIndices, model, theta: np.ndarray, likelihood) -> ModificationIndices:
+def robust_score_tests(found: ModificationIndices, model, theta: np.ndarray, likelihood,
+                       sandwich=None) -> ModificationIndices:
     """The normal-theory score tests ``found`` (assessment.modification) made robust to non-normal data and to a
     sampling design: Satorra's (1989) generalized score test, the score statistic over the robust (sandwich)
     variance of the score instead of its normal-theory variance.  For a constraint gamma (a group's deviation from
@@ -33,37 +34,42 @@ def robust_score_tests(found: ModificationIndices, model, theta: np.ndarray, lik
     standard errors and the Yuan-Bentler test take the observed information (valid when answers are missing at
     random, not only completely at random; Kenward & Molenberghs 1998), while h is that of the index's own
     information (the patterns' expected information, MissingDataLikelihood.group_parts).  The expected changes stay
-    as they are."""
+    as they are.  ``sandwich``: with complete rows, the fit's inference.robust.moment_sandwich at ``theta`` (Omega
+    and each group's Delta and V, shared with its robust standard errors and test; made here when not given)."""
     if not len(found):
         return found
-    index = found.index * _score_variance_ratio(model, theta, likelihood, found)
+    index = found.index * _score_variance_ratio(model, theta, likelihood, found, sandwich)
     kept = np.flatnonzero(np.isfinite(index))  # a robust variance that is not positive: no test, as score_tests
     order = kept[np.argsort(-index[kept], kind="stable")]
     return ModificationIndices(found.candidates, found.labels, found.rows[order], found.groups[order], index[order],
                                found.expected_change[order], found.standardized_expected_change[order])
 
 
-def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: ModificationIndices) -> np.ndarray:
+def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: ModificationIndices,
+                          sandwich=None) -> np.ndarray:
     """h / (L B L') of :func:`robust_score_tests` for each row of ``found`` (NaN where the robust variance is not
     positive)."""
     from cfa_tool.assessment.modification import candidate_arrays
     from cfa_tool.model.implied import entry_derivatives
-    from cfa_tool.inference.robust import _group_blocks, moments_meat, vech_indices
+    from cfa_tool.inference.robust import moment_sandwich, vech_indices
 
     q, k = len(theta), len(found)
     I, J = vech_indices(model.p)
     complete = likelihood.complete_data
-    information = np.zeros((q + k, q + k))  # the index's own: h comes from it
-    bread = information if complete else np.zeros((q + k, q + k))  # L comes from it
+    # of the index's own information (h comes from it) only its columns of theta and the candidates' diagonal enter
+    cross = np.zeros((q + k, q))
+    diagonal = np.zeros(k)
+    bread = None if complete else np.zeros((q + k, q + k))  # L comes from it (with complete rows: the information)
     meat = np.zeros((q + k, q + k))
     weighted = []
-    omega = moments_meat(likelihood, likelihood.means) if complete else None
+    if complete and sandwich is None:
+        sandwich = moment_sandwich(model, theta, likelihood)
     for g, w in enumerate(likelihood.weights):
         mats = model.matrices(theta, g)
         mine = np.flatnonzero(found.groups == g)
         c_sigma, c_mu = entry_derivatives(mats, *candidate_arrays([found.candidates[r] for r in found.rows[mine]]))
         if complete:  # (means,) vech: the layout of inference.robust
-            delta, V = _group_blocks(model, theta, likelihood, g)
+            delta, V = sandwich.blocks[g]
             extra = np.vstack([c_mu.T, c_sigma[:, I, J].T]) if likelihood.means else c_sigma[:, I, J].T
         else:  # means, vech: the layout of inference.robust_missing
             from cfa_tool.inference.robust_missing import _model_directions, _moment_directions, group_meat
@@ -77,16 +83,17 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
         X[:, :q] = delta
         X[:, q + mine] = extra
         VX = V @ X
-        information += w * X.T @ VX
+        cross += w * (X.T @ VX[:, :q])
+        diagonal += w * np.einsum("ic,ic->c", X[:, q:], VX[:, q:])
         if complete:
             weighted.append(w * VX)
         else:
             bread += w * X.T @ observed @ X
             meat += w * X.T @ group_meat(likelihood, g, mats) @ X  # inference.robust_missing's per-group B
     if complete:
-        meat = omega.middle(weighted)
-    K = information[q:, :q] @ scaled_inverse(information[:q, :q])  # A_gt A_tt^-1 of the index's information
-    normal = np.diag(information)[q:] - np.einsum("cq,cq->c", K, information[q:, :q])
+        meat = sandwich.omega.middle(weighted)
+    K = cross[q:] @ scaled_inverse(cross[:q])  # A_gt A_tt^-1 of the index's information
+    normal = diagonal - np.einsum("cq,cq->c", K, cross[q:])
     if not complete:  # L from the observed information
         K = bread[q:, :q] @ scaled_inverse(bread[:q, :q])
     robust = (np.diag(meat)[q:] - 2.0 * np.einsum("cq,cq->c", K, meat[q:, :q])

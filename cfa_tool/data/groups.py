@@ -10,7 +10,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.labels import code_order, label_text, listed_labels, merged_labels, ordered_labels
+from cfa_tool.data.labels import code_order, distinct_cells, label_text, listed_labels, merged_labels, ordered_labels
 from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names
 from cfa_tool.data.moments import SampleMoments, numeric_columns, sample_moments
@@ -34,7 +34,8 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
         hint = renamed_hint(frame, column) or (f"; did you mean '{guess[0]}'?" if guess else "")
         raise OptionError(f"{source}: there is no group column '{printable(column)}'{hint}")
     values = frame[column].dropna()
-    labels = ordered_labels({label_text(v) for v in values} - {""}, frame, column)  # "": no group (group_keys)
+    labels = ordered_labels({label_text(v) for v in distinct_cells(values)[0]} - {""}, frame,  # each distinct cell once
+                            column)  # "": no group (group_keys)
     refuse_look_alike_labels(values, column, source)
     if len(labels) > MAX_GROUPS:
         raise OptionError(f"{source}: the group column '{printable(column)}' has {len(labels):,} different values; a "
@@ -152,8 +153,20 @@ def group_rows(frame: pd.DataFrame, column: str, source: str, reference: str | N
 def group_keys(cells: pd.Series) -> pd.Series:
     """Each cell of a group column as its group's label (data.labels.label_text), None for an empty cell and for a
     cell of spaces and invisible format characters alone (a zero-width space), which the data file's reader leaves
-    as text but shows as empty as a cell of spaces, which it reads as empty."""
-    return cells.map(lambda v: None if pd.isna(v) else (label_text(v) or None))
+    as text but shows as empty as a cell of spaces, which it reads as empty.  Each distinct cell is read once
+    (data.labels.distinct_cells) where the column holds numbers, text (pandas' 'str') or Python objects; other columns
+    (categories, nullable types, dates) cell by cell by Series.map, whose result keeps their kind."""
+    def key(v):
+        return None if pd.isna(v) else (label_text(v) or None)
+
+    if not len(cells) or not ((isinstance(cells.dtype, np.dtype) and cells.dtype.kind in "fiubO")
+                              or cells.dtype == "str"):
+        return cells.map(key)
+    distinct, places = distinct_cells(cells)
+    keys = np.empty(len(distinct), dtype=object)
+    keys[:] = [key(v) for v in distinct]
+    # the constructor infers the labels' type as Series.map does (text, or object when no cell has a label)
+    return pd.Series(keys[places], index=cells.index, name=cells.name).__finalize__(cells)
 
 
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,

@@ -18,6 +18,7 @@ from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
 
 if TYPE_CHECKING:
+    import numpy as np
     import pandas as pd
 
 
@@ -48,6 +49,48 @@ def label_text(value) -> str:
     if not text.isascii():
         text = _without_invisible(text)
     return unicodedata.normalize("NFC", text.strip())
+
+
+def distinct_cells(values) -> tuple[list, "np.ndarray"]:
+    """Each distinct cell of ``values`` (a column's cells, in their order) once, and the place of every cell's among
+    them: (cells, places), ``values[i]`` alike ``cells[places[i]]``, the cells in order of first sight.  Cells are
+    alike when of one type with one text (``str``): all that :func:`label_text` and the notes on labels read of a
+    cell, so a rule applied to the distinct cells gives what it gives cell by cell (1 and True, or 0.0 and -0.0,
+    which a hash table takes as one value, stay apart).  Columns of text alone and of numpy's numbers (without -0.0)
+    are read by pandas' hash table; others cell by cell as iterating them gives the cells."""
+    import numpy as np
+    import pandas as pd
+
+    array = None
+    if isinstance(values, (pd.Series, np.ndarray)) and values.dtype.kind in "fiubO" and (
+            isinstance(values.dtype, np.dtype) or values.dtype == "str"):  # not pandas' nullable types: pd.NA is a cell
+        array = values.to_numpy() if isinstance(values, pd.Series) else values
+        if array.ndim != 1 or (array.dtype.kind == "O" and pd.api.types.infer_dtype(array, skipna=False) != "string") \
+                or (array.dtype.kind == "f" and bool(np.any(np.signbit(array) & (array == 0)))):
+            array = None
+    if array is not None:
+        places, uniques = pd.factorize(array, use_na_sentinel=False)  # NaN, the one missing value of numbers: a cell
+        cells = np.asarray(uniques, dtype=object).tolist() if array.dtype.kind != "O" else list(uniques)
+        return cells, places.astype(np.intp, copy=False)
+    index: dict = {}
+    cells = []
+    places = np.empty(len(values), dtype=np.intp)
+    for i, v in enumerate(values):
+        key = (type(v), str(v))
+        k = index.get(key)
+        if k is None:
+            k = index[key] = len(cells)
+            cells.append(v)
+        places[i] = k
+    return cells, places
+
+
+def cell_counts(values) -> list[tuple[object, int]]:
+    """Each distinct cell of ``values`` (:func:`distinct_cells`) with its number of cells, in order of first sight."""
+    import numpy as np
+
+    cells, places = distinct_cells(values)
+    return list(zip(cells, np.bincount(places, minlength=len(cells)).tolist()))
 
 
 def refuse_container_cells(frame: "pd.DataFrame", columns) -> None:
@@ -104,7 +147,10 @@ def look_alike_labels(values) -> list[list[tuple[str, int]]]:
     from collections import Counter
 
     by_letters: dict[str, list[tuple[str, int]]] = {}
-    for label, n in Counter(label_text(v) for v in values).items():
+    labels: Counter = Counter()
+    for v, n in cell_counts(values):  # each distinct cell read once
+        labels[label_text(v)] += n
+    for label, n in labels.items():
         bare = "".join(ch for ch in label if unicodedata.category(ch) != "Cf")
         by_letters.setdefault(bare, []).append((label, n))
     return [sorted(found) for _, found in sorted(by_letters.items()) if len(found) > 1]
@@ -119,9 +165,9 @@ def merged_labels(values) -> list[tuple[str, list[tuple[str, int]]]]:
 
     raw: dict[str, Counter] = {}
     trimmed = set()
-    for v in values:
+    for v, n in cell_counts(values):  # each distinct cell read once
         label = label_text(v)
-        raw.setdefault(label, Counter())[str(v)] += 1
+        raw.setdefault(label, Counter())[str(v)] += n
         if isinstance(v, str) and v != label:
             trimmed.add(label)
     return [(label, sorted(texts.items())) for label, texts in raw.items() if len(texts) > 1 or label in trimmed]
@@ -146,7 +192,10 @@ def _by_case(values) -> dict[str, list[tuple[str, int]]]:
     from collections import Counter
 
     by_fold: dict[str, list[tuple[str, int]]] = {}
-    for label, n in Counter(label_text(v) for v in values).items():
+    labels: Counter = Counter()
+    for v, n in cell_counts(values):  # each distinct cell read once
+        labels[label_text(v)] += n
+    for label, n in labels.items():
         by_fold.setdefault(label.casefold(), []).append((label, n))
     return by_fold
 
@@ -257,7 +306,10 @@ def no_answer_labels(values) -> list[tuple[str, int]]:
 
     from cfa_tool.data.non_answers import says_no_answer
 
-    counts = Counter(label_text(v) for v in values if isinstance(v, str))
+    counts: Counter = Counter()
+    for v, n in cell_counts(values):  # each distinct cell read once
+        if isinstance(v, str):
+            counts[label_text(v)] += n
     return [(label, n) for label, n in counts.items() if says_no_answer(label)]
 
 

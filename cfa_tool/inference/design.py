@@ -79,9 +79,9 @@ class GroupsMeat:
     total: float
     shared: bool
 
-    def block(self, g: int) -> np.ndarray:
-        """Omega_gg."""
-        z = self.sums[g]
+    def block(self, g: int, start: int = 0) -> np.ndarray:
+        """Omega_gg, or its part from moment ``start`` on (the covariances' part, after the means)."""
+        z = self.sums[g][:, start:] if start else self.sums[g]
         return (z * self.factors[g][:, None]).T @ z / self.total
 
     def middle(self, mats: list[np.ndarray]) -> np.ndarray:

@@ -128,17 +128,41 @@ def moments_meat(likelihood: NormalLikelihood, with_means: bool) -> GroupsMeat:
     return groups_meat([moment_contributions(g.rows, g.design, with_means) for g in groups], [g.design for g in groups])
 
 
-def robust_parts(model: StructuredModel, theta: np.ndarray, likelihood: NormalLikelihood) -> tuple[np.ndarray, float]:
+@dataclass(frozen=True)
+class MomentSandwich:
+    """What the robust statistics of one fit share, made once at its estimates (:func:`moment_sandwich`): Omega of
+    the groups' stacked moments (:func:`moments_meat`, with the means when the model has a mean structure) and each
+    group's (Delta, V) (:func:`_group_blocks`).  The sandwich covariance and tr(U Omega) (:func:`robust_parts`), the
+    baseline's tr(U Omega) (:func:`baseline_trace`) and the generalized score tests
+    (assessment.robust_scores.robust_score_tests) read the same numbers."""
+
+    omega: GroupsMeat
+    blocks: tuple[tuple[np.ndarray, np.ndarray], ...]
+    with_means: bool
+
+
+def moment_sandwich(model: StructuredModel, theta: np.ndarray, likelihood: NormalLikelihood) -> MomentSandwich:
+    """The :class:`MomentSandwich` of a complete-data fit at ``theta``."""
+    return MomentSandwich(moments_meat(likelihood, likelihood.means),
+                          tuple(_group_blocks(model, theta, likelihood, g) for g in range(len(likelihood.groups))),
+                          likelihood.means)
+
+
+def robust_parts(model: StructuredModel, theta: np.ndarray, likelihood: NormalLikelihood,
+                 sandwich: MomentSandwich | None = None) -> tuple[np.ndarray, float]:
     """(robust covariance of theta, tr(U Omega)) of the groups' stacked moments, W = blockdiag(w_g V_g): the
     meat sum_gh w_g w_h Delta_g' V_g Omega_gh V_h Delta_h, whose blocks between groups are zero for independent
-    samples (then sum_g w_g Delta_g' V_g Gamma_g V_g Delta_g)."""
+    samples (then sum_g w_g Delta_g' V_g Gamma_g V_g Delta_g); ``sandwich`` the fit's :func:`moment_sandwich` at
+    ``theta`` (made here when not given)."""
     q = len(theta)
     bread = np.zeros((q, q))
     trace_vg = 0.0
-    omega = moments_meat(likelihood, likelihood.means)
+    if sandwich is None:
+        sandwich = moment_sandwich(model, theta, likelihood)
+    omega = sandwich.omega
     weighted = []
     for g, w in enumerate(likelihood.weights):
-        delta, V = _group_blocks(model, theta, likelihood, g)
+        delta, V = sandwich.blocks[g]
         VD = V @ delta
         bread += w * delta.T @ VD
         weighted.append(w * VD)
@@ -150,11 +174,15 @@ def robust_parts(model: StructuredModel, theta: np.ndarray, likelihood: NormalLi
     return cov, trace_ug
 
 
-def baseline_trace(likelihood: NormalLikelihood) -> float:
+def baseline_trace(likelihood: NormalLikelihood, sandwich: MomentSandwich | None = None) -> float:
     """tr(U Omega) of the independence model (diagonal Sigma = diag S; means saturated): its parameters are each
-    group's own, so only the groups' own blocks of Omega enter."""
+    group's own, so only the groups' own blocks of Omega enter, and of them the covariances' part (a saturated
+    mean is its own moment: its rows and columns leave tr(U Omega) unchanged).  ``sandwich`` the fit's
+    :func:`moment_sandwich`, whose Omega holds that part (after the means' rows when the model has a mean
+    structure: the moments' contributions are centred column by column, so the part is the same numbers); made
+    here, without the means, when not given."""
     total = 0.0
-    omega = moments_meat(likelihood, False)
+    omega = moments_meat(likelihood, False) if sandwich is None else sandwich.omega
     for k, (g, w) in enumerate(zip(likelihood.groups, likelihood.weights)):
         p = len(g.covariance)
         d = np.diag(g.covariance)
@@ -163,7 +191,7 @@ def baseline_trace(likelihood: NormalLikelihood) -> float:
         V = normal_weight(sigma_inv)
         delta = (I == J)[:, None] * (I[:, None] == np.arange(p)[None, :])  # d vech(Sigma) / d sigma_ii
         delta = delta.astype(float)
-        gamma = w * omega.block(k)
+        gamma = w * omega.block(k, p if sandwich is not None and sandwich.with_means else 0)
         VD = V @ delta
         bread = delta.T @ VD
         inv = np.linalg.inv(bread)

@@ -458,11 +458,13 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                           baseline_chi_square=base_chi, baseline_df=base_df, n_obs=n_total, n_free=table.n_free,
                           srmr=overall_srmr, groups=table.n_groups, log_likelihood=loglik)
         if robust_wanted or yuan_bentler:
-            from cfa_tool.inference.robust import baseline_trace, robust_fit, robust_parts
+            from cfa_tool.inference.robust import baseline_trace, moment_sandwich, robust_fit, robust_parts
+        sandwich = None  # Omega and each group's Delta and V at the estimates: made once, read by every robust part
         if robust_wanted:
-            cov_theta, trace_ug = robust_parts(model, theta, likelihood)
+            sandwich = moment_sandwich(model, theta, likelihood)
+            cov_theta, trace_ug = robust_parts(model, theta, likelihood, sandwich)
             robust = robust_fit(fit.chi_square, fit.df, trace_ug, fit.baseline_chi_square, fit.baseline_df,
-                                baseline_trace(likelihood), n_total, table.n_groups)
+                                baseline_trace(likelihood, sandwich), n_total, table.n_groups)
         elif yuan_bentler:
             from cfa_tool.inference.robust_missing import robust_missing
 
@@ -489,7 +491,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         if options.modification_indices and est.auxiliary is None:
             mis = modification_indices(model, theta, likelihood, exogenous_factors(spec), mats, factor)
             if options.test.robust and sampling_design(likelihood):  # design-based score tests (Satorra 1989)
-                mis = robust_score_tests(mis, model, theta, likelihood)
+                mis = robust_score_tests(mis, model, theta, likelihood, sandwich)
         elif options.modification_indices:  # the joint likelihood's score tests, the helpers' parameters free
             joint = est.auxiliary
             mis = helper_modification_indices(model, joint.likelihood.model, joint.theta, joint.likelihood,
