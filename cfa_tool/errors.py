@@ -37,6 +37,13 @@ def printable(text: object, keep_newlines: bool = False) -> str:
     return _UNPRINTABLE.sub(escape, value)
 
 
+def clipped(text: object, width: int) -> str:
+    """:func:`printable` ``text`` in at most ``width`` characters, a cut one ending in '…' so that a reader sees it
+    was cut (re-check s17: a workbook's title quoted to its 60th character, 'Meridian Cons', read as the whole)."""
+    shown = printable(text)
+    return shown if len(shown) <= width else shown[: width - 1] + "…"
+
+
 def character_names(text: str, beside: str = "") -> str:
     """Words naming the characters of ``text`` beyond plain ASCII that ``beside`` does not hold, by their Unicode
     code points and names (' (U+0441 CYRILLIC SMALL LETTER ES)'), or '': a look-alike letter or an invisible

@@ -8,7 +8,7 @@ from collections.abc import Mapping
 
 import pandas as pd
 
-from cfa_tool.errors import printable
+from cfa_tool.errors import clipped, printable
 from cfa_tool.note_parts import Command, Note, RowId, Text
 from cfa_tool.options import Option
 
@@ -123,7 +123,7 @@ def rows_listed(numbers, shown: int = 5, ids=(), naming: RowNaming = RowNaming.F
     ids = list(ids) if len(ids) == len(numbers) else [None] * len(numbers)
     parts: list = [f"{naming.of(len(numbers))} "]
     for k, (n, i) in enumerate(zip(numbers[:shown], ids)):
-        parts += [", " if k else "", str(n) + line_words(n, lines)] + ([RowId(f" ('{printable(str(i))[:40]}')")]
+        parts += [", " if k else "", str(n) + line_words(n, lines)] + ([RowId(f" ('{clipped(str(i), 40)}')")]
                                                                         if i is not None else [])
     parts.append(f" and {len(numbers) - shown} more" if len(numbers) > shown else "")
     listed = Note(tuple(parts))

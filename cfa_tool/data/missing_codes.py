@@ -12,7 +12,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.errors import printable
+from cfa_tool.errors import clipped, printable
 from cfa_tool.input_files import base_name
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
@@ -36,7 +36,7 @@ def missing_value(value: object) -> float | str:
 
     if isinstance(value, kinds.Real) and not isinstance(value, bool):
         if not math.isfinite(float(value)):
-            raise ValueError(f"{printable(repr(value))[:60]} is no code a cell can hold (an empty cell is no answer "
+            raise ValueError(f"{clipped(repr(value), 60)} is no code a cell can hold (an empty cell is no answer "
                              f"already); leave it out")
         return float(value)
     if isinstance(value, str):
@@ -48,7 +48,7 @@ def missing_value(value: object) -> float | str:
                              f"already); leave it out")
         if any(c.isalpha() for c in value):
             return value.strip()
-    shown = f"'{printable(value)}'" if isinstance(value, str) else printable(repr(value))[:60]
+    shown = f"'{printable(value)}'" if isinstance(value, str) else clipped(repr(value), 60)
     raise ValueError(f"{shown} is neither a number nor a word")
 
 

@@ -34,7 +34,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.language.spec import answer_key
-from cfa_tool.errors import DataError, printable
+from cfa_tool.errors import DataError, clipped, printable
 from cfa_tool.numbers import number
 from cfa_tool.input_files import DATA_FRAME, base_name
 from cfa_tool.note_parts import Command, Note, Text
@@ -430,7 +430,7 @@ def _refuse_containers(series: pd.Series, column) -> None:
     k = next(k for k, v in enumerate(values) if isinstance(v, (list, dict, set, np.ndarray)))
     kind = type(values[k]).__name__
     raise DataError(f"{DATA_FRAME}: column '{printable(str(column))}', index label {printable(repr(series.index[k]))}: "
-                    f"holds a {kind} ({printable(repr(values[k]))[:40]}); a cell must hold one number or one word: "
+                    f"holds a {kind} ({clipped(repr(values[k]), 40)}); a cell must hold one number or one word: "
                     f"unpack the {kind} into its own columns or rows first")
 
 

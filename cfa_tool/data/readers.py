@@ -31,7 +31,7 @@ from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, s
 from cfa_tool.data.non_answers import answers_labelled_like_none, declared_missing, labelled_non_answers, \
     non_answer_note, run_words, says_no_answer, unused_run_words, written_non_answers
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
-from cfa_tool.errors import DataError, printable
+from cfa_tool.errors import DataError, clipped, printable
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 from cfa_tool.input_files import base_name, check_input_path, input_bytes, line_count, utf16_text
@@ -408,7 +408,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     rows = rows[first:]  # empty rows above the header
     title = None if names_row is not None else _title_above_header(rows)
     if title is not None:
-        notes.append(f"{where}: row {first + 1} holds a title ('{printable(title)[:60]}') above the column names, "
+        notes.append(f"{where}: row {first + 1} holds a title ('{clipped(title, 60)}') above the column names, "
                      f"which were read from row {first + 2}")
         first += 1
         rows = rows[1:]
@@ -781,7 +781,7 @@ def _check_merged_header(ws, where: str, rows: list, first: int, items, names_op
                     key=lambda rng: rng.min_col)
     if not merged:
         return
-    shown = ", ".join(f"{rng.coord}" + (f" '{printable(str(value))[:40]}'" if value not in (None, "") else "")
+    shown = ", ".join(f"{rng.coord}" + (f" '{clipped(str(value), 40)}'" if value not in (None, "") else "")
                       for rng in merged for value in (ws.cell(rng.min_row, rng.min_col).value,))
     wanted = None if items is None else {str(x) for x in items}
     below = None
@@ -1445,7 +1445,7 @@ def _names_row_start(names_row, rows: int, first: int, where: str,
     the first that is not empty), or an error when it cannot apply."""
     if isinstance(names_row, bool) or not isinstance(names_row, (int, np.integer)) or names_row < 1:
         raise DataError(f"the row of column names ({option}) must be a row number (1 or more), not "
-                        f"{printable(repr(names_row))[:40]}")
+                        f"{clipped(repr(names_row), 40)}")
     if names_row > rows:
         raise DataError(f"{where} has {rows} rows, so row {names_row} ({option}) cannot hold the column names")
     if names_row - 1 < first:
@@ -1462,7 +1462,7 @@ def _first_data_start(first_data_row, names_row: int, last: int, where: str, nam
     option = first_data_option(names_option)
     if isinstance(first_data_row, bool) or not isinstance(first_data_row, (int, np.integer)) or first_data_row < 1:
         raise DataError(f"the first row of data ({option}) must be a row number (1 or more), not "
-                        f"{printable(repr(first_data_row))[:40]}")
+                        f"{clipped(repr(first_data_row), 40)}")
     first_data_row = int(first_data_row)
     if first_data_row <= names_row:
         raise DataError(f"{where}: row {first_data_row} ({option.given(first_data_row)}) is not below the column "
@@ -1670,7 +1670,7 @@ def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, tex
                                 f"{above}, as survey platforms export question texts above their codes; read the "
                                 f"column names from that row with {names_option.given(numbers[k])} (the rows above it are then "
                                 f"not read)")
-    example = printable(str(frame.iloc[0, position]).strip())[:60]
+    example = clipped(str(frame.iloc[0, position]).strip(), 60)
     rows = row_words(numbers[0], lines) if lead == 1 else f"rows {numbers[0]}-{numbers[lead - 1]}" + (
         f" (text lines {lines.get(numbers[0], numbers[0])}-{lines.get(numbers[lead], numbers[lead]) - 1})"
         if numbers[0] in lines or numbers[lead] in lines else "")

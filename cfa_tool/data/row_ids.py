@@ -10,7 +10,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from cfa_tool.errors import OptionError, printable
+from cfa_tool.errors import OptionError, clipped, printable
 from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names
 from cfa_tool.note_parts import Note, RowId, Text
@@ -85,7 +85,7 @@ def repeated_ids(ids: pd.Series | None, what: str) -> Note | None:
         return None
     return Note((f"{what}: {len(repeated)} row{'s' if len(repeated) != 1 else ''} "
                  f"repeat{'' if len(repeated) != 1 else 's'} an id used by an earlier row",
-                 RowId(f" (e.g. '{printable(str(repeated.iloc[0]))[:40]}')"),  # the id apart: a manuscript leaves it out
+                 RowId(f" (e.g. '{clipped(str(repeated.iloc[0]), 40)}')"),  # the id apart: a manuscript leaves it out
                  ", so those ids do not name one row each"))
 
 

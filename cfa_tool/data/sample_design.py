@@ -15,7 +15,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.kept_rows import row_of
-from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.options import Option
 from cfa_tool.method import MissingData, WeightKind
 from cfa_tool.data.renamed_columns import renamed_hint
@@ -618,7 +618,7 @@ def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.
     values = pd.to_numeric(column, errors="coerce").to_numpy(dtype=float)
     text = np.isnan(values) & frame[name].notna().to_numpy()
     if text.any():
-        raise DataError(f"{where} {rows[np.argmax(text)]}: '{printable(str(column.iloc[np.argmax(text)]))[:40]}' "
+        raise DataError(f"{where} {rows[np.argmax(text)]}: '{clipped(str(column.iloc[np.argmax(text)]), 40)}' "
                         f"is not a number")
     for bad, what in ((np.isnan(values), f"no weight (every row needs one; leave such rows out with {Option.KEEP})"),
                       (np.isinf(values), "an infinite weight"), (values < 0, "a negative weight")):

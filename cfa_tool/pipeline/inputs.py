@@ -42,7 +42,8 @@ from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, holds_summary, pasted_m
 from cfa_tool import options as opt
 from cfa_tool.note_parts import Command, Note, RowId, Text, joined
 from cfa_tool.options import Option, option_in_both, own_keywords
-from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, check_rows_counted, printable
+from cfa_tool.errors import (DataError, EstimationError, ModelError, OptionError, RowDataError,
+                             check_rows_counted, clipped, printable)
 from cfa_tool.input_files import DATA_FRAME
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import LISTWISE_WARNING_SHARE, FitOptions, fit_moments
@@ -1580,7 +1581,7 @@ def helper_not_numbers(column: pd.Series, name: str, source: str, frame: pd.Data
         return
     position = int(np.flatnonzero(odd.to_numpy())[0])
     value = column.iloc[position]
-    shown = ("TRUE" if value else "FALSE") if isinstance(value, (bool, np.bool_)) else printable(str(value))[:40]
+    shown = ("TRUE" if value else "FALSE") if isinstance(value, (bool, np.bool_)) else clipped(str(value), 40)
     more = int(odd.sum()) - 1
     cells = f", and {more} more such cell{'s' if more != 1 else ''}" if more else ""
     where = cell_words(frame, column.name, int(row_numbers(frame)[position]))

@@ -206,7 +206,7 @@ def test_diagram_draws_the_rotated_salient_loadings(geomin_fit):
     salient = block.standardized[np.abs(block.standardized) >= BLOCK_LOADING_DRAWN]
     assert len(salient) == 10  # nine items on their own factor, and x9 on a second (the .37 cross-loading)
     for value in salient:
-        assert f">{unit(value, 2)}</text>" in svg
+        assert f">{unit(value, 2).replace('-', chr(0x2212))}</text>" in svg  # the printed minus sign (U+2212)
     assert "rotated loadings of .30 or more" in report_html(fit_report(geomin_fit))
 
 
