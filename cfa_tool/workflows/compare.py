@@ -27,7 +27,7 @@ from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import EstimationError, NotIdentified, OptionError, estimation_of, printable
 from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.estimation.ml import NormalLikelihood
-from cfa_tool.pipeline.continuous import (FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, fit_moments,
+from cfa_tool.pipeline.continuous import (fit_moments, full_information_instead, pairwise_instead,
                                           full_information_likelihood, listwise_problem, model_structure,
                                           ordered_moments, unestimated)
 from cfa_tool.language.spec import Spec, with_ordinal_levels
@@ -272,7 +272,7 @@ def _with_data_problems(found: Comparison, loaded, specs, group, design, dropped
                                                           + tuple(r.problems))))
     if found.missing is not MissingData.FULL_INFORMATION and not pairwise and dropped:  # after the data's, as in fit
         left = listwise_problem(dropped, found.n_obs + dropped, " from every model",
-                                PAIRWISE_INSTEAD if ordinal else FULL_INFORMATION_INSTEAD)
+                                pairwise_instead() if ordinal else full_information_instead())
         found_all += [left] if left is not None else []
     return replace(found, results=tuple(results), problems=tuple(dict.fromkeys(found_all)))
 
