@@ -327,6 +327,16 @@ def unestimated(spec: Spec, moments: SampleMoments | list[tuple[str | None, Samp
                                           else p for p in result.problems))
 
 
+def scaled_test_problem(robust) -> Problem:
+    """The caution on a robust test whose scaling factor is not positive (inference.robust.robust_fit): what could
+    not be computed and why, and what the report still gives."""
+    explanation = robust.not_computed[0].upper() + robust.not_computed[1:] + "."
+    return Problem(ProblemKind.SCALED_TEST_NOT_COMPUTED, (), float(robust.scaling_factor), explanation,
+                   "The robust standard errors do not use it and are given. Judge the fit by the SRMR and the residual "
+                   "correlations, and read the normal-theory chi-square, which assumes normally distributed answers, "
+                   "with caution; more rows make the estimate steadier.")
+
+
 def full_information_instead() -> Note:
     """What keeps the rows listwise deletion leaves out of a fit of continuous items: full-information ML, its option
     named as the caller writes it (options.on_command_line; built per run, never once at import)."""
@@ -509,6 +519,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     warnings.extend(small_notes)
     problems = left_out + small + tuple(solution_problems(
         table, mats, theta, cov_theta if est.converged else None, est.converged, est.message, options.max_iterations))
+    if robust is not None and robust.not_computed:  # a scaling factor that is not positive: said first, not NaN alone
+        problems += (scaled_test_problem(robust),)
 
     estimates = estimate_rows(table, values, inference, standardized, factors_standardized)
 
