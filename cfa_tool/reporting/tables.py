@@ -1492,7 +1492,8 @@ def matrices_left_out(result) -> Note | None:
     if items <= MAX_MATRIX:
         return None
     return Note((f"The correlations of the items and the residual correlations are not shown as tables: {items} items "
-                 f"are more than the {MAX_MATRIX} a matrix stays readable with. The JSON result", Command(" (--json)"),
+                 f"are more than the {MAX_MATRIX} a matrix stays readable with. The JSON result",
+                 Command(f" ({option_in_both('--json', 'result.to_dict()')})"),
                  " holds the residual correlations; the largest is named under the fit."))
 
 
