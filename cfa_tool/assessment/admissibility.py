@@ -146,6 +146,9 @@ class ProblemKind(enum.Enum):
     # without an estimate (pairs of items no row answers together, or too few answers together), which a fit stops at
     # (assessment.missingness.sparse_answers_problem)
     SPARSE_ANSWERS = ("answers too sparse for full-information ML", "too few answers together", False)
+    # not of the solution but of its test: a scaling factor of the robust test that is not positive, so the scaled
+    # statistic (or the robust CFI and TLI) cannot be computed (inference.robust.robust_fit)
+    SCALED_TEST_NOT_COMPUTED = ("scaled test not computed", "no scaled test", False)
 
 
 #: problems not of the solution but of the sampling design it was fitted under (the methods paragraph states them

@@ -36,7 +36,7 @@ from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.readers import sheet_read
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.note_parts import Command, Note, Text
-from cfa_tool.options import Option
+from cfa_tool.options import Interface, Option, interface
 
 #: the columns of a halves file, in order
 HALVES_COLUMNS = ("row", "half", "seed", "data_file", "data_sha256", "sheet_read")
@@ -54,15 +54,28 @@ DRAWN_HALVES = (EXPLORE_HALVES, REPLICATE_HALVES)
 
 
 def redraw_words(names: "tuple[str, ...] | list[str]", seed: str | int = "SEED", cluster: str = "",
-                 strata: str = "") -> str:
+                 strata: str = "", every_row: bool = False) -> str:
     """How to write the halves again: with the command that drew halves of these ``names`` (review s14: a replicate
     file was told to rerun explore, whose halves have other names and are drawn from every row, not the complete
-    ones), by the ``cluster`` and ``strata`` columns they were drawn by."""
+    ones), by the ``cluster`` and ``strata`` columns they were drawn by; ``every_row``: of every row with an answer,
+    without leaving out the rows with gaps.  Said as the caller runs things (options.on_command_line): a Python
+    caller reads the function that uses the same halves, then the command that writes their file, which only the
+    command line writes (the command last: messages go on after it)."""
     if set(names) == set(REPLICATE_HALVES):
         by = "".join(f" {flag} {_shell_word(name)}" for flag, name in (("--cluster", cluster), ("--strata", strata))
                      if name)
-        return f"cfa-tool replicate MODEL --data FILE --seed {seed}{by} --halves-file NEW.csv"
-    return f"cfa-tool explore --split {seed} --halves-file NEW.csv"
+        command = f"cfa-tool replicate MODEL --data FILE --seed {seed}{by} --halves-file NEW.csv"
+        keywords = "".join(f", {word}={name!r}" for word, name in (("cluster", cluster), ("strata", strata)) if name)
+        function = f"split_half(model, data, seed={seed}{keywords})"
+    else:
+        command = f"cfa-tool explore --split {seed} --halves-file NEW.csv"
+        function = f"explore(data, split={seed})"
+    if every_row:
+        command += f", without {Option.INCOMPLETE_ROWS.flag} listwise"
+        function += f", without {Option.INCOMPLETE_ROWS.keyword}='listwise',"
+    if interface() is Interface.COMMAND_LINE:
+        return command
+    return f"from Python, {function} uses the same halves without a file; on the command line, {command}"
 
 
 def draw_halves(count: int, seed: int) -> tuple[np.ndarray, np.ndarray]:
@@ -255,7 +268,7 @@ def read_halves(path) -> SavedHalves:
         earlier = header in (HALVES_COLUMNS[:2], HALVES_COLUMNS[:5])
         raise DataError(f"{shown}, line 1: " + (
             "a halves file of an earlier version, without the seed, the data file's checksum or the sheet that a half "
-            "is checked by; write the halves again (cfa-tool explore --split SEED --halves-file NEW.csv draws the same "
+            f"is checked by; write the halves again ({redraw_words(EXPLORE_HALVES)} draws the same "
             "halves from as many rows)" if earlier else
             f"not a halves file (its first line must be '{','.join(HALVES_COLUMNS)}', as explore --split and "
             f"replicate --data write it with --halves-file)"))
@@ -341,7 +354,7 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet:
                         f"variable: it leaves out {rows_listed(with_gaps, naming=naming)}, which miss some answers, "
                         f"as {listwise} leaves them out, and this run keeps the rows with gaps; give {listwise} to "
                         f"analyse the half as it was drawn, or draw halves of every row with an answer "
-                        f"({redraw_words(saved.names(), saved.seed, saved.cluster_column, saved.strata_column)}, without {listwise})")
+                        f"({redraw_words(saved.names(), saved.seed, saved.cluster_column, saved.strata_column, True)})")
     if (len(absent) or len(unlisted)) and with_gaps is None:
         kept = " after the row filters" if frame.attrs.get(KEPT_BY) else ""
         which = (f"it lists {rows_listed(absent, naming=naming)}, not among them" if len(absent) else

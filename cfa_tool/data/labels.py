@@ -99,17 +99,14 @@ def refuse_container_cells(frame: "pd.DataFrame", columns) -> None:
     filter columns, by the rule of the item columns (data.non_answers, which refuses them in the items): one line
     naming the column and the row.  Such a cell is no label (a group named "['north']"), no weight, and no cluster
     (a TypeError from hashing it, re-check s17, N7)."""
-    import numpy as np
+    from cfa_tool.data.non_answers import CONTAINERS, refuse_containers  # the one rule and message of item columns
 
-    from cfa_tool.data.non_answers import _refuse_containers  # the one rule and message of item columns
-
-    containers = (list, dict, set, np.ndarray)
     for column in dict.fromkeys(columns):
         if column not in frame.columns or frame[column].dtype != object:
             continue
         series = frame[column]
-        if any(isinstance(v, containers) for v in series.tolist()):
-            _refuse_containers(series, column)
+        if any(isinstance(v, CONTAINERS) for v in series.tolist()):
+            refuse_containers(series, column)
 
 
 def _without_invisible(text: str) -> str:

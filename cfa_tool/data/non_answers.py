@@ -422,12 +422,16 @@ def declared_missing(frame: pd.DataFrame, ranges: dict, value_labels: dict) -> t
     return out, tuple(found)
 
 
-def _refuse_containers(series: pd.Series, column) -> None:
+#: what a data frame built in Python may hold in a cell that is neither a number nor a word (never a file's cell)
+CONTAINERS = (list, dict, set, np.ndarray)
+
+
+def refuse_containers(series: pd.Series, column) -> None:
     """The first cell of an item column that holds a container (a list, a dict, a set, an array: what a data frame
     built in Python may hold, never a file's cell) refused, naming the column and the row by its index label: such
     a cell is neither a number nor a word, and no reading of it would be the researcher's."""
     values = series.tolist()
-    k = next(k for k, v in enumerate(values) if isinstance(v, (list, dict, set, np.ndarray)))
+    k = next(k for k, v in enumerate(values) if isinstance(v, CONTAINERS))
     kind = type(values[k]).__name__
     raise DataError(f"{DATA_FRAME}: column '{printable(str(column))}', index label {printable(repr(series.index[k]))}: "
                     f"holds a {kind} ({clipped(repr(values[k]), 40)}); a cell must hold one number or one word: "
@@ -456,7 +460,7 @@ def written_non_answers(frame: pd.DataFrame, keep_text: tuple[str, ...] = (),
         try:
             distinct = [v for v in series.dropna().unique() if isinstance(v, str)]
         except TypeError:  # an unhashable cell (a list, a dict, a set in a data frame built in Python)
-            _refuse_containers(series, column)
+            refuse_containers(series, column)
         coded = (listed or {}).get(column, frozenset())
         said = [v for v in distinct if says_no_answer(v) and answer_key(v) not in coded]  # distinct texts
         if said and any(number(v.strip()) is None for v in distinct if v not in said):

@@ -52,6 +52,9 @@ class RobustFit:
     shift: float | None = None
     #: the scaling comes from the design-based covariance of a sampling design (pipeline.inputs.with_design)
     design: bool = False
+    #: why the scaled statistic could not be computed (empty: it was): a scaling factor that is not positive
+    #: (:func:`robust_fit`), whose statistic, p-value and robust indices are then NaN and the reports say why
+    not_computed: str = ""
 
     @property
     def label(self) -> str:
@@ -81,6 +84,8 @@ class RobustFit:
             d["mean_adjusted_scaling"] = d.pop("scaling_factor")
             del d["baseline_scaling_factor"]
         d["rmsea_robust_ci90"] = list(self.rmsea_robust_ci90)
+        if not self.not_computed:
+            del d["not_computed"]
         return {"method": self.label, **d}
 
 
@@ -202,14 +207,20 @@ def baseline_trace(likelihood: NormalLikelihood, sandwich: MomentSandwich | None
 def robust_fit(chi_square: float, df: int, trace_ug: float, base_chi: float, base_df: int, base_trace: float,
                n_obs: int, n_groups: int, test: FitTest = FitTest.SATORRA_BENTLER) -> RobustFit:
     """Scaled statistic T / c, c = tr(U Gamma) / df, and robust indices from the noncentrality T - c df
-    (Brosseau-Liard, Savalei & Li 2012; Brosseau-Liard & Savalei 2014)."""
+    (Brosseau-Liard, Savalei & Li 2012; Brosseau-Liard & Savalei 2014).  tr(U Gamma) is a trace of a product of
+    estimated matrices, and nothing keeps the estimate positive (with rows with gaps the bread is the observed
+    information, and heavy-tailed answers in a few hundred rows can drive it to or below zero: re-check s17); a
+    scaling factor (of the model's or the baseline model's statistic) that is not positive scales nothing, so the
+    statistic, its p-value and the robust indices that need it are NaN and ``not_computed`` says why."""
     c = trace_ug / df if df > 0 else float("nan")
     cb = base_trace / base_df
-    scaled = chi_square / c if df > 0 else float("nan")
-    lam = max(chi_square - c * df, 0.0)
-    lam_b = max(base_chi - cb * base_df, 0.0)
-    low, high = rmsea_interval(scaled, df, n_obs, n_groups)
-    scale = np.sqrt(c) if df > 0 else float("nan")
+    not_computed = _not_positive(c, cb, test) if df > 0 else ""
+    usable = df > 0 and c > 0 and np.isfinite(c)
+    scaled = chi_square / c if usable else float("nan")
+    lam = max(chi_square - c * df, 0.0) if usable else float("nan")
+    lam_b = max(base_chi - cb * base_df, 0.0) if cb > 0 and np.isfinite(cb) else float("nan")
+    low, high = rmsea_interval(scaled, df, n_obs, n_groups) if usable else (float("nan"), float("nan"))
+    scale = np.sqrt(c) if usable else float("nan")
     return RobustFit(
         test=test,
         scaling_factor=float(c),
@@ -217,9 +228,25 @@ def robust_fit(chi_square: float, df: int, trace_ug: float, base_chi: float, bas
         df=df,
         p_value_scaled=float(dist.chi2_sf(scaled, df)) if df > 0 else float("nan"),
         baseline_scaling_factor=float(cb),
-        baseline_chi_square_scaled=float(base_chi / cb),
-        cfi_robust=cfi_from(lam, lam_b),
-        tli_robust=tli_from(lam, df, lam_b, base_df),
+        baseline_chi_square_scaled=float(base_chi / cb) if cb > 0 and np.isfinite(cb) else float("nan"),
+        cfi_robust=cfi_from(lam, lam_b) if np.isfinite(lam) and np.isfinite(lam_b) else float("nan"),
+        tli_robust=tli_from(lam, df, lam_b, base_df) if np.isfinite(lam) and np.isfinite(lam_b) else float("nan"),
         rmsea_robust=rmsea_from(lam, df, n_obs, n_groups),
         rmsea_robust_ci90=(float(low * scale), float(high * scale)),
+        not_computed=not_computed,
     )
+
+
+def _not_positive(c: float, cb: float, test: FitTest) -> str:
+    """Why a scaled statistic cannot be computed from scaling factors ``c`` (the model's) and ``cb`` (the baseline
+    model's), in a researcher's words; empty when both are positive."""
+    bad = [f"{what} scaling factor came out {value:.3g}" for what, value in (("the model's", c), ("the baseline "
+           "model's", cb)) if not (value > 0 and np.isfinite(value))]
+    if not bad:
+        return ""
+    what = (f"the {test.label} scaled test could not be computed" if not (c > 0 and np.isfinite(c)) else
+            f"the robust CFI and TLI could not be computed (the {test.label} scaled test could)")
+    return (f"{what}: {' and '.join(bad)}, and a scaling factor is an "
+            f"estimated average of eigenvalues that must be positive; its estimate from these rows is not (heavy-tailed "
+            f"answers in few rows, or answers missing in patterns that carry little information, can drive it below "
+            f"zero)")

@@ -327,32 +327,48 @@ def unestimated(spec: Spec, moments: SampleMoments | list[tuple[str | None, Samp
                                           else p for p in result.problems))
 
 
-#: what keeps the rows listwise deletion leaves out, by the kind of items
-FULL_INFORMATION_INSTEAD = Note(("full-information ML", Command(" (--incomplete-rows full-information)")))
-PAIRWISE_INSTEAD = Note(("pairwise present rows (the default for ordinal items",
-                         Command(", without --incomplete-rows listwise"), ")"))
-#: what keeps them when the groups share clusters, which full-information ML cannot yet take into account
-#: (data.sample_design.refuse_shared_clusters): never the route that is refused (new-user trial s16)
-CLUSTERS_LEFT_OUT_INSTEAD = Note(("full-information ML without the clusters",
-                                  Command(" (leave out --cluster and --incomplete-rows listwise)"),
-                                  ", whose standard errors and tests then leave out that rows of one cluster answer "
-                                  "alike,"))
+def scaled_test_problem(robust) -> Problem:
+    """The caution on a robust test whose scaling factor is not positive (inference.robust.robust_fit): what could
+    not be computed and why, and what the report still gives."""
+    explanation = robust.not_computed[0].upper() + robust.not_computed[1:] + "."
+    return Problem(ProblemKind.SCALED_TEST_NOT_COMPUTED, (), float(robust.scaling_factor), explanation,
+                   "The robust standard errors do not use it and are given. Judge the fit by the SRMR and the residual "
+                   "correlations, and read the normal-theory chi-square, which assumes normally distributed answers, "
+                   "with caution; more rows make the estimate steadier.")
+
+
+def full_information_instead() -> Note:
+    """What keeps the rows listwise deletion leaves out of a fit of continuous items: full-information ML, its option
+    named as the caller writes it (options.on_command_line; built per run, never once at import)."""
+    return Note(("full-information ML", Command(f" ({Option.INCOMPLETE_ROWS.given('full-information')})")))
+
+
+def pairwise_instead() -> Note:
+    """What keeps them for ordinal items: pairwise present rows, the default."""
+    return Note(("pairwise present rows (the default for ordinal items",
+                 Command(f", without {Option.INCOMPLETE_ROWS.given('listwise')}"), ")"))
 
 
 def gaps_instead(shared_clusters: bool) -> Note:
     """What would use every answer of the rows listwise deletion left out: full-information ML, without the
-    clusters when the groups share them."""
-    return CLUSTERS_LEFT_OUT_INSTEAD if shared_clusters else FULL_INFORMATION_INSTEAD
+    clusters when the groups share them, which full-information ML cannot yet take into account
+    (data.sample_design.refuse_shared_clusters): never the route that is refused (new-user trial s16)."""
+    if not shared_clusters:
+        return full_information_instead()
+    return Note(("full-information ML without the clusters",
+                 Command(f" (leave out {Option.CLUSTER} and {Option.INCOMPLETE_ROWS.given('listwise')})"),
+                 ", whose standard errors and tests then leave out that rows of one cluster answer alike,"))
 
 
 def listwise_problem(dropped: int, read: int, where: str = "",
-                     instead: Note = FULL_INFORMATION_INSTEAD) -> Problem | None:
+                     instead: Note | None = None) -> Problem | None:
     """The caution on rows that listwise deletion left out for a missing answer, first in every view of every
     command: more than :data:`LISTWISE_WARNING_SHARE` of the rows read, whose loss may bias the estimates unless the
     answers are missing completely at random (Little & Rubin 2002); None for fewer.  ``instead`` names what would
-    use every answer they have."""
+    use every answer they have (None: :func:`full_information_instead`)."""
     if dropped <= LISTWISE_WARNING_SHARE * read:
         return None
+    instead = full_information_instead() if instead is None else instead
     return Problem(ProblemKind.ROWS_LEFT_OUT, (), float(dropped),
                    f"Listwise deletion left out {dropped} of {read} rows{where} ({100 * dropped / read:.0f}%) because "
                    f"they miss an answer on a model variable, and the rows left out may differ from those kept.",
@@ -366,7 +382,7 @@ def listwise_line(dropped: int, read: int, analysed: int, where: str = "") -> st
 
 
 def rows_left_out(groups, missing: MissingData | None,
-                  instead: Note = FULL_INFORMATION_INSTEAD) -> tuple[tuple[Problem, ...], list[str]]:
+                  instead: Note | None = None) -> tuple[tuple[Problem, ...], list[str]]:
     """(cautions, notes) on the rows a fit left out, from ``groups``: (label or None, rows left out, rows read,
     rows analysed[, the row numbers of the rows that answer nothing[, their ids[, how they name rows[, their text
     lines (data.kept_rows.text_lines)]]]]) of each group;
@@ -505,6 +521,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     warnings.extend(small_notes)
     problems = left_out + small + tuple(solution_problems(
         table, mats, theta, cov_theta if est.converged else None, est.converged, est.message, options.max_iterations))
+    if robust is not None and robust.not_computed:  # a scaling factor that is not positive: said first, not NaN alone
+        problems += (scaled_test_problem(robust),)
 
     estimates = estimate_rows(table, values, inference, standardized, factors_standardized)
 

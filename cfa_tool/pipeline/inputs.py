@@ -858,7 +858,7 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     if block is None and items:
         block = item_values(frame, tuple(items))
     elif block is not None and frame is not loaded.frame:
-        block = block[_has_group(loaded.frame, group)]  # the rows _labelled keeps
+        block = block[has_group(loaded.frame, group)]  # the rows _labelled keeps
     found = copied_rows(frame, row_numbers(frame), block)
     if found is None:
         return ()
@@ -1394,11 +1394,11 @@ def _labelled(frame: pd.DataFrame, group: str | None) -> pd.DataFrame:
     """The rows analysed: with groups, those with a group label (the others are left out, with a note)."""
     if group is None or group not in frame.columns:
         return frame
-    labelled = _has_group(frame, group)
+    labelled = has_group(frame, group)
     return frame if labelled.all() else frame.loc[labelled]
 
 
-def _has_group(frame: pd.DataFrame, group: str) -> np.ndarray:
+def has_group(frame: pd.DataFrame, group: str) -> np.ndarray:
     """Which rows of ``frame`` have a label in the group column, by the one rule of groups (data.groups.group_keys:
     a cell of invisible characters alone has none; re-check s17: such a row's gaps chose full-information ML for
     complete rows analysed)."""
@@ -1600,7 +1600,7 @@ def helpers_can_apply(fit_options, frame: pd.DataFrame, names: tuple[str, ...], 
     that answers no item but a helper counts: it enters the helpers' part of the likelihood (:func:`with_helpers`)."""
     gap = analysed_gaps(fit_options, frame, names, values)
     if group is not None and group in frame.columns:
-        gap &= _has_group(frame, group)
+        gap &= has_group(frame, group)
     if not gap.any():
         raise OptionError(f"the model's items have no missing answers in the rows analysed, so missing-data helpers "
                           f"({Option.MISSING_HELPERS}) change nothing: with complete rows the estimates, standard "
@@ -1694,7 +1694,7 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
     gap = analysed_gaps(fit_options, frame, names, values)
     rows = len(frame)
     if group is not None and group in frame.columns:
-        labelled = _has_group(frame, group)
+        labelled = has_group(frame, group)
         gap &= labelled
         rows = int(labelled.sum())
     gaps = int(gap.sum())
@@ -1706,7 +1706,7 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
                           f"of the complete rows only, choose {Option.INCOMPLETE_ROWS.given('listwise')}")
     note = Note((f"{gaps} of {rows} rows miss some answers on model variables; every answer is used by "
                  f"full-information ML (the default when answers are missing; a fit of the complete rows only",
-                 Command(" (--incomplete-rows listwise)"), " would leave those rows out)"
+                 Command(f" ({Option.INCOMPLETE_ROWS.given('listwise')})"), " would leave those rows out)"
                  + (("; under the sampling design the test is design-based, with the Yuan-Bentler scaling of "
                      "full-information ML" if design is not None and design.robust else
                      "; the robust test with full-information ML is the Yuan-Bentler one") if robust else "")))

@@ -40,7 +40,7 @@ from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
 from cfa_tool.note_parts import Text
-from cfa_tool.pipeline.continuous import FitOptions, PAIRWISE_INSTEAD, estimate_rows, listwise_line, listwise_problem
+from cfa_tool.pipeline.continuous import FitOptions, estimate_rows, pairwise_instead, listwise_line, listwise_problem
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.pipeline.results import DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
@@ -180,7 +180,7 @@ def _left_out(moments, where: str = "") -> tuple:
     view; () with pairwise present rows or few rows left out (:func:`_rows_notes` then says them)."""
     if moments.pairwise or not moments.rows_dropped:
         return ()
-    found = listwise_problem(moments.rows_dropped, moments.rows_read, where, PAIRWISE_INSTEAD)
+    found = listwise_problem(moments.rows_dropped, moments.rows_read, where, pairwise_instead())
     return (found,) if found is not None else ()
 
 

@@ -31,7 +31,7 @@ from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
 from cfa_tool.note_parts import WORDS as MANUSCRIPT, said as said_in  # ('said' names sentences here)
-from cfa_tool.reporting.numbers import fit_index_text, guides_text, num, p_phrase, signed, unit
+from cfa_tool.reporting.numbers import fit_index_text, guides_text, missing, num, p_phrase, signed, unit
 from cfa_tool.reporting.numbers import word_list as _list
 
 CHI = "\u03c7\u00b2"
@@ -718,6 +718,10 @@ def _fit_sentence(result) -> str:
     if f.df == 0:
         return ("The model is just-identified (0 degrees of freedom): it reproduces the observed covariances exactly, "
                 "so its fit could not be tested.")
+    if result.robust is not None and missing(result.robust.chi_square_scaled):  # a scaling factor not positive
+        return (f"The {_test_phrase(result.robust.test, result.robust.design)} could not be computed, as the estimate "
+                f"of its scaling factor was not positive; the normal-theory test gave {CHI}({f.df}) = "
+                f"{f.chi_square:.2f}, {_p(f.p_value)}, and SRMR = {fit_index_text('srmr', f.srmr)}.")
     if result.robust is not None:
         r = result.robust
         rl, rh = r.rmsea_robust_ci90
@@ -1249,6 +1253,9 @@ def _fit_figures(result) -> str:
         return failure_words(result)
     if f.df == 0:
         return "was just-identified (0 df), so its fit could not be tested"
+    if r is not None and missing(r.chi_square_scaled):  # a scaling factor not positive (inference.robust.robust_fit)
+        return (f"had no scaled test (its scaling factor's estimate was not positive); normal-theory {CHI}({f.df}) = "
+                f"{f.chi_square:.2f}, {_p(f.p_value)}, SRMR = {fit_index_text('srmr', f.srmr)}")
     if r is not None:
         low, high = r.rmsea_robust_ci90
         return (f"{CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)}, robust CFI = {fit_index_text('cfi', r.cfi_robust)}, "

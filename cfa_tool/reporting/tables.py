@@ -243,7 +243,9 @@ def fit_rows(result) -> list[FitRow]:
         rlow, rhigh = r.rmsea_robust_ci90
         label, text, guide = _correction_row(r)
         rows = [_row(f"Scaled chi-square ({r.label})", f"{r.chi_square_scaled:.3f} on {r.df} df, "
-                     f"p {p_phrase(r.p_value_scaled)}", "the test to read for these data",
+                     f"p {p_phrase(r.p_value_scaled)}" if not missing(r.chi_square_scaled) else
+                     "not computed: its scaling factor is not positive (see the caution first)",
+                     "the test to read for these data" if not missing(r.chi_square_scaled) else "",
                      (f"Scaled chi-square ({r.label})", r.chi_square_scaled, r.df, r.p_value_scaled)),
                 _row(label, text, guide, *[(name.capitalize(), value) for name, value in r.pieces]),
                 _row("Robust CFI / TLI", f"{fit_index_text('cfi', r.cfi_robust)} / {fit_index_text('tli', r.tli_robust)}",
@@ -1515,7 +1517,8 @@ def matrices_left_out(result) -> Note | None:
     if items <= MAX_MATRIX:
         return None
     return Note((f"The correlations of the items and the residual correlations are not shown as tables: {items} items "
-                 f"are more than the {MAX_MATRIX} a matrix stays readable with. The JSON result", Command(" (--json)"),
+                 f"are more than the {MAX_MATRIX} a matrix stays readable with. The JSON result",
+                 Command(f" ({option_in_both('--json', 'result.to_dict()')})"),
                  " holds the residual correlations; the largest is named under the fit."))
 
 

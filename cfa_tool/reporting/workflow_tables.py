@@ -637,6 +637,7 @@ def invariance_report(result) -> Report:
                    "largest score test." if many else ""))
         tables.append(_table("freed", "Parameters freed by the partial-invariance search", columns, rows, note,
                              values=([c for c, _ in columns], values)))
+        notes.extend(_equal_tests_note(f) for f in result.freed if f.equal_tests)
     declared = _declared_note(result.steps)
     if declared:
         notes.append(declared)
@@ -839,6 +840,17 @@ ORDINAL_BOOTSTRAP = ("Ordinal items: each resample gets its own thresholds and p
                      "by {estimator}. Only the parameters are bootstrapped, by percentile intervals: BCa's acceleration "
                      "and the Bollen-Stine bootstrap of the test are built for continuous rows and have no counterpart "
                      "for ordinal answers, so the test of fit remains the fit's adjusted one.")
+
+
+def _equal_tests_note(freed) -> str:
+    """Why the search freed one of parameters whose score tests were equal (workflows.invariance.EQUAL_SCORE_TESTS):
+    freeing any of them gives the same fit, and the first in the model's order was freed, so rounding never chose."""
+    chosen = parameter_words(freed.kind, freed.variables)
+    others = word_list([parameter_words(k, v) for k, v in freed.equal_tests])
+    either = "either" if len(freed.equal_tests) == 1 else "any"
+    return (f"At the {freed.level} step the score tests of {chosen} and {others} were equal ({num(freed.score, 2)}): "
+            f"freeing {either} of them fits the same, so the search freed the first in the model's order, {chosen}; "
+            f"{others} could be freed instead.")
 
 
 def _split_sentence(rows) -> str:

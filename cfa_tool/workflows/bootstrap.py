@@ -418,15 +418,24 @@ def bollen_stine_rows(rows: np.ndarray, sigma: np.ndarray, weights: np.ndarray |
     return dev @ transform + mean
 
 
+#: why BCa intervals asked for cannot be given for ordinal items (the report of an ordinal bootstrap says it too:
+#: reporting.workflow_tables.ORDINAL_BOOTSTRAP)
+BCA_ORDINAL = ("BCa intervals take their acceleration from each row's influence on the maximum likelihood estimates "
+               "of continuous items, which has no counterpart for ordinal answers fitted by least squares, so they "
+               "cannot be given here; leave out bca=True (the percentile intervals are given)")
+
+
 def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int = 1000, seed: int = 1,
-                  bollen_stine: bool | None = None, bca: bool = True, workers: int | None = None, scheduler: str | None = None,
-                  progress=None, design=None) -> BootstrapResult:
+                  bollen_stine: bool | None = None, bca: bool | None = None, workers: int | None = None,
+                  scheduler: str | None = None, progress=None, design=None) -> BootstrapResult:
     """Bootstrap a converged single-group fit of ``rows`` (columns in the model's order; with gaps for a
     full-information fit, each resample then refitted so); ``design``
     the rows' data.sample_design.RowDesign, if any (clusters resampled, weights kept).  ``bollen_stine``: the
     Bollen-Stine p-value (None: where it applies, that is for continuous items).  A fit of ordinal items is
     bootstrapped by refitting each resample with its own thresholds and polychoric correlations (``rows`` then
-    hold the answers, with gaps where the fit kept them), with percentile intervals only."""
+    hold the answers, with gaps where the fit kept them), with percentile intervals only.  ``bca``: BCa intervals
+    beside the percentile ones (None: where they apply, that is for continuous items; asked for with ordinal items,
+    an error, never dropped silently)."""
     if result.multigroup:
         raise OptionError("the bootstrap works on single-group fits")
     if not result.converged:
@@ -438,7 +447,10 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
         if bollen_stine is True:
             raise OptionError("the Bollen-Stine bootstrap of the test transforms continuous rows so that the model "
                               "holds exactly, which has no counterpart for ordinal answers; leave it out")
+        if bca is True:
+            raise OptionError(BCA_ORDINAL)
         return _bootstrap_ordinal(result, spec, rows, replications, seed, workers, scheduler, progress)
+    bca = bca is not False  # where they apply (continuous items), BCa intervals unless left out
     gaps = result.method.missing is MissingData.FULL_INFORMATION
     not_computed = None
     if gaps:
@@ -555,7 +567,7 @@ def _bca(draws: np.ndarray, point: float, a: float, level: float = 0.95) -> tupl
 
 
 def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 1000, seed: int = 1,
-              bollen_stine: bool | None = None, bca: bool = True, workers: int | None = None, scheduler: str | None = None,
+              bollen_stine: bool | None = None, bca: bool | None = None, workers: int | None = None, scheduler: str | None = None,
               progress=None, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
               keep: tuple[str, ...] | list[str] = (), rename=None, weights: str | None = None, cluster: str | None = None,
               strata: str | None = None, weight_kind: str | None = None, ordinal: str | list[str] | None = None,
@@ -563,7 +575,9 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     """Fit the model, then bootstrap it: the result holds the fit (``.fit``) and its bootstrap.  A sampling design (``weights``,
     ``cluster``, ``strata``, ``weight_kind``, as for ``fit``) weights the fit and every resample, and the
     resamples draw whole clusters within strata.  Ordinal items (an 'ordinal' statement, or ``ordinal`` and
-    ``ordinal_estimator`` as for ``fit``) are fitted by least squares, and each resample is refitted so."""
+    ``ordinal_estimator`` as for ``fit``) are fitted by least squares, and each resample is refitted so, with
+    percentile intervals only (``bca``: BCa intervals too, None where they apply: for continuous items; asked for
+    with ordinal items, an error)."""
     replications, seed = bootstrap_options(replications, seed, workers)
     design = design_columns(weights, cluster, strata, weight_kind)
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,
@@ -584,7 +598,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
             result = with_odd_values(_fit_rows(spec, loaded, notes, None, None, FitOptions(missing=missing), ordinal,
                                                ordinal_estimator), loaded, None, spec)
         return bootstrap_fit(result, spec, numeric_columns(frame, result.observed, source), replications, seed,
-                             bollen_stine, False, workers, scheduler, progress)
+                             bollen_stine, bca, workers, scheduler, progress)
     if design is not None:
         frame, design_notes = check_design(frame, design, spec.observed_names, None, source)
         notes = list(notes) + design_notes

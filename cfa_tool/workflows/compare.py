@@ -8,7 +8,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import (_described, _no_group_notes, choose_missing_handling, design_test, few_categories, keeps_rows_with_gaps, load_spec, make_options, moments_for,
+from cfa_tool.pipeline.inputs import (_described, _no_group_notes, choose_missing_handling, has_group, design_test, few_categories, keeps_rows_with_gaps, load_spec, make_options, moments_for,
                                       missing_codes_option, of_summary_statistics,
                                       data_problems, odd_values_named, reference_group_applies, reference_note,
                                       with_missing_reading,
@@ -27,7 +27,7 @@ from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import EstimationError, NotIdentified, OptionError, estimation_of, printable
 from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.estimation.ml import NormalLikelihood
-from cfa_tool.pipeline.continuous import (FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, fit_moments,
+from cfa_tool.pipeline.continuous import (fit_moments, full_information_instead, pairwise_instead,
                                           full_information_likelihood, listwise_problem, model_structure,
                                           ordered_moments, unestimated)
 from cfa_tool.language.spec import Spec, with_ordinal_levels
@@ -165,10 +165,12 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         check_declared_ranges(spec, frame, source, loaded.value_labels)  # every model's 'reversed ... on' scale
     without_group = 0
     if group is not None and group in frame.columns:  # rows without a group value: left out, and said
-        has_group = frame[group].notna().to_numpy()
-        without_group = int((~has_group).sum())
-        frame, at = frame.loc[has_group], at[has_group]
-        notes = list(notes) + _no_group_notes(without_group, group, len(has_group))
+        labelled = has_group(frame, group)  # the one rule of groups: a cell of invisible characters alone has none
+        without_group = int((~labelled).sum())
+        frame, at = frame.loc[labelled], at[labelled]
+        # the labels' notes of the rows read, as fit gives them (pipeline.inputs.moments_for): a cell of invisible
+        # characters alone is named there, its row among those without a group
+        notes = list(notes) + _no_group_notes(without_group, group, len(labelled)) + label_notes(loaded.frame, group)
     # values that look like no answers in any model's items, among the rows compared: first in the report, and
     # named first when a fit fails
     loaded = replace(loaded, odd_values=odd_values(frame, used, row_numbers(frame)))
@@ -192,8 +194,6 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             kept = frame[used].notna().to_numpy().all(axis=1)
         complete, at = frame.loc[kept], at[kept]
         dropped = len(loaded.frame) - len(complete) - without_group  # rows with missing answers (or none)
-        if group is not None:
-            notes = list(notes) + label_notes(complete, group)
         if design is not None:
             complete, design_notes = check_design(complete, design, tuple(used), group, source,
                                                   loaded.weights[at] if loaded.weights is not None else None)
@@ -272,7 +272,7 @@ def _with_data_problems(found: Comparison, loaded, specs, group, design, dropped
                                                           + tuple(r.problems))))
     if found.missing is not MissingData.FULL_INFORMATION and not pairwise and dropped:  # after the data's, as in fit
         left = listwise_problem(dropped, found.n_obs + dropped, " from every model",
-                                PAIRWISE_INSTEAD if ordinal else FULL_INFORMATION_INSTEAD)
+                                pairwise_instead() if ordinal else full_information_instead())
         found_all += [left] if left is not None else []
     return replace(found, results=tuple(results), problems=tuple(dict.fromkeys(found_all)))
 

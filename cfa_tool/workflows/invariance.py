@@ -37,7 +37,7 @@ from cfa_tool.assessment.modification import ModificationIndex, equality_score_t
 from cfa_tool.assessment.robust_scores import robust_score_tests
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
-from cfa_tool.pipeline.continuous import PAIRWISE_INSTEAD, assess, estimate, gaps_instead, rows_left_out
+from cfa_tool.pipeline.continuous import assess, estimate, gaps_instead, pairwise_instead, rows_left_out
 from cfa_tool.language.names import written_group
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
@@ -123,6 +123,12 @@ class ScoreTests(Choice):
                      "generalized score test of Satorra 1989)", False)
 
 
+#: score tests within this share of each other (relative) are equal: two freeings that give the same model (an
+#: intercept of either of a factor's two items while its mean is free) have equal tests but for rounding, which
+#: must not choose between them (a rule of this program: rounding errors of the tests are near 1e-12 of them)
+EQUAL_SCORE_TESTS = 1e-6
+
+
 @dataclass(frozen=True)
 class FreedParameter:
     level: str
@@ -130,10 +136,14 @@ class FreedParameter:
     variables: tuple[str, ...]
     group: str | None
     score: float
+    #: (kind, variables) of the parameters whose score tests equalled this one's (EQUAL_SCORE_TESTS): freeing one of
+    #: them instead would fit as well; this one was freed as the first of them in the model's order
+    equal_tests: tuple[tuple[str, tuple[str, ...]], ...] = ()
 
     def to_dict(self) -> dict:
         return clean({"level": self.level, "kind": self.kind, "variables": list(self.variables), "group": self.group,
-                      "score_test": self.score})
+                      "score_test": self.score,
+                      "equal_score_tests": [{"kind": k, "variables": list(v)} for k, v in self.equal_tests]})
 
 
 @dataclass(frozen=True, eq=False)
@@ -486,9 +496,10 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 progress(1)
             if stopped:
                 break
-            top = culprits[0]
+            top, equal = _first_of_equal(culprits, est.table)
             exceptions.append(search_exemption(top))
-            freed_here.append(FreedParameter(level, top.kind, _ref_names(top), top.group, top.index))
+            freed_here.append(FreedParameter(level, top.kind, _ref_names(top), top.group, top.index,
+                                             tuple((c.kind, _ref_names(c)) for c in equal)))
             start = None
         freed.extend(freed_here)
         if not steps:  # groups below the rule of rows per parameter of the configural model: the fit's note
@@ -567,7 +578,7 @@ def _rows_left_out(configural: FitResult) -> tuple[list[str], list[str]]:
     cautions, notes = rows_left_out([(g.label, g.data.rows_dropped, g.data.rows_read, g.data.n_obs)
                                      for g in configural.groups],
                                     configural.method.missing,
-                                    PAIRWISE_INSTEAD if configural.method.ordinal else
+                                    pairwise_instead() if configural.method.ordinal else
                                     gaps_instead(configural.design is not None and configural.design.shared_clusters))
     return [p.line() for p in cautions], notes
 
@@ -885,6 +896,28 @@ def search_exemption(candidate: ModificationIndex) -> ParameterRef:
     """The exemption the partial search makes of a score test: no line of the model file (the search chose it), so
     no error about it can point at the researcher's file."""
     return ParameterRef(ref_kind(candidate.kind), _ref_names(candidate), None)
+
+
+def _first_of_equal(culprits: tuple[ModificationIndex, ...], table) -> tuple[ModificationIndex,
+                                                                             tuple[ModificationIndex, ...]]:
+    """The parameter the search frees from ``culprits`` (largest score test first), and the others whose tests equal
+    its (:data:`EQUAL_SCORE_TESTS`; each parameter once, whichever group points to it): of equal tests, the first in
+    the model's order (the parameter table's, as the model file declares them), so that rounding, which differs
+    between machines, never chooses."""
+    largest = culprits[0].index
+    equal: dict[tuple, ModificationIndex] = {}
+    for c in culprits:
+        if abs(c.index - largest) > EQUAL_SCORE_TESTS * max(abs(largest), 1.0):
+            break
+        equal.setdefault((c.kind, _ref_names(c)), c)  # the largest of a parameter's groups first
+    if len(equal) == 1:
+        return culprits[0], ()
+    order = {}
+    for k, par in enumerate(table.parameters):
+        order.setdefault((par.kind, par.variables), k)
+        order.setdefault((par.kind, par.variables[:1]), k)  # a threshold: its item
+    ranked = sorted(equal.values(), key=lambda c: order.get((c.kind, _ref_names(c)), len(order)))
+    return ranked[0], tuple(ranked[1:])
 
 
 def _buildable_first(culprits: tuple[ModificationIndex, ...], spec: Spec, classes: tuple[str, ...],

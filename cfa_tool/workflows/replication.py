@@ -80,7 +80,7 @@ from cfa_tool.options import Option, own_keywords
 from cfa_tool.errors import DataError, EstimationError, OptionError, estimation_of, printable
 from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.numerics.threads import blas_threads_for
-from cfa_tool.pipeline.continuous import (FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, assess, estimate, fit_moments,
+from cfa_tool.pipeline.continuous import (assess, estimate, fit_moments, full_information_instead, pairwise_instead,
                                           listwise_problem)
 from cfa_tool.language.spec import Spec
 from cfa_tool.method import DifferenceMethod, FitTest, MissingData, Weighting
@@ -618,7 +618,8 @@ def _left_out(dropped: int, read: int, source: str, missing, ordinal_items) -> t
     as fit gives it) when ``missing`` is listwise; () otherwise or for few rows."""
     if missing is not MissingData.LISTWISE or not dropped:
         return ()
-    found = listwise_problem(dropped, read, f" of {source}", PAIRWISE_INSTEAD if ordinal_items else FULL_INFORMATION_INSTEAD)
+    found = listwise_problem(dropped, read, f" of {source}",
+                             pairwise_instead() if ordinal_items else full_information_instead())
     return (found,) if found is not None else ()
 
 

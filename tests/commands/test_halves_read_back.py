@@ -88,8 +88,12 @@ def test_halves_of_the_complete_rows_read_back_when_rows_with_gaps_are_left_out(
             f"20, 29, 38 and 29 more, which miss some answers, as --incomplete-rows listwise leaves them out, and this "
             f"run keeps the rows with gaps; give --incomplete-rows listwise") in err
     assert "replicate MODEL --data FILE --seed 3 --halves-file NEW.csv, without --incomplete-rows listwise" in err
-    with pytest.raises(DataError, match=r"this run keeps the rows with gaps; give missing='listwise'"):
+    with pytest.raises(DataError, match=r"this run keeps the rows with gaps; give missing='listwise'") as refused:
         cfa_tool.fit(MODEL, str(data), keep=RandomHalf(str(halves), "A"), missing="full-information")
+    # a Python caller is told the function that uses the same halves, and that the command line writes their file
+    assert ("(from Python, split_half(model, data, seed=3), without missing='listwise', uses the same halves without "
+            "a file; on the command line, cfa-tool replicate MODEL --data FILE --seed 3 --halves-file NEW.csv, "
+            "without --incomplete-rows listwise)") in str(refused.value)
     # check describes the rows of the half: all complete, the note says how they were drawn
     found = cfa_tool.check(MODEL, str(data), keep=RandomHalf(str(halves), "B"))
     assert found.rows == 265 - 133

@@ -1,5 +1,6 @@
 """README: a Python result's ``to_dict()`` is what the command's ``--json`` writes, less the JSON's wrapper (the
-tool's name and version, the ``command`` that wrote it and its ``report``).  For each command with a Python
+tool's name and version, the ``command`` that wrote it and its ``report``), when made as the command makes it
+(options.on_command_line: the notes name an option as the caller writes it, --incomplete-rows or missing=...).  For each command with a Python
 function that takes the same inputs, the two are compared key for key (a hostile trial found replicate's
 to_dict() flat while its JSON nested the result under ``replications``).  ``power`` is left out: its Python
 function plans from degrees of freedom, not from a model file.
@@ -16,6 +17,7 @@ import pytest
 
 import cfa_tool
 from cfa_tool.cli import main
+from cfa_tool.options import on_command_line
 from cfa_tool.resources import resource_dir
 
 RIDER_ITEMS = "on_time,short_wait,accurate_info,easy_transfer,seat_available,clean,temperature,room_to_stand,greeting,helpful,respectful,clear_answers"  # explore's items (ranges count numbered names, and these have none)
@@ -80,4 +82,6 @@ def test_the_json_is_the_python_results_to_dict(folder, run, monkeypatch, capsys
     assert written["command"] == command[0]
     for key in WRAPPER:
         written.pop(key)
-    assert json.loads(json.dumps(python(), allow_nan=False)) == written
+    with on_command_line():  # as the command runs it: notes name options as the command line writes them
+        made = python()
+    assert json.loads(json.dumps(made, allow_nan=False)) == written

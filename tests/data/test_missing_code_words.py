@@ -131,8 +131,8 @@ def test_python_takes_the_words_by_the_command_lines_rule(answers, tmp_path):
     assert result.fit.chi_square == pytest.approx(reference["fit"]["chi_square"], rel=1e-9)
     on_line = _fit([model, "--data", written, "--missing-codes", '-99,Ne sait pas,"No, not asked"'], tmp_path, "line")
     # counted and named alike, each naming the option as its caller wrote it
-    assert json.dumps(result.to_dict()["warnings"]).replace("missing_codes=...", "--missing-codes") == json.dumps(
-        on_line["warnings"])
+    assert json.dumps(result.to_dict()["warnings"]).replace("missing_codes=...", "--missing-codes").replace(
+        "missing='listwise'", "--incomplete-rows listwise") == json.dumps(on_line["warnings"])
     # one rule: each value read as the command line reads the text of the same value
     assert [missing_value(v) for v in given] == [-99.0, "Ne sait pas", "No, not asked"]
     assert result.data.missing_codes == (-99.0,) and result.data.no_answer_words == ("Ne sait pas", "No, not asked")

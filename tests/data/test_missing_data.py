@@ -325,8 +325,15 @@ def test_a_constant_or_collinear_item_with_gaps_is_named_not_a_traceback(hs_hole
 
 
 def test_a_fit_with_gaps_names_its_own_way_to_complete_rows(hs_holes):
-    # fit has --incomplete-rows, so its note names it (scores from an earlier fit drop it: see the scores tests)
+    # fit has --incomplete-rows, so its note names it (scores from an earlier fit drop it: see the scores tests), as
+    # the caller writes it: missing='listwise' from Python, the flag on the command line
     result = cfa_tool.fit(THREE_FACTORS, hs_holes)
+    assert any("a fit of the complete rows only (missing='listwise') would leave those rows out" in w
+               for w in result.warnings)
+    from cfa_tool.options import on_command_line
+
+    with on_command_line():
+        result = cfa_tool.fit(THREE_FACTORS, hs_holes)
     assert any("a fit of the complete rows only (--incomplete-rows listwise) would leave those rows out" in w
                for w in result.warnings)
 

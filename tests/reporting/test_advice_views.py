@@ -16,6 +16,7 @@ import pandas as pd
 import pytest
 
 import cfa_tool
+from cfa_tool.options import on_command_line
 from cfa_tool.note_parts import WORDS, Command, Note, TableReference, View, numbered, said, titled
 from cfa_tool.reporting.document import Report
 from cfa_tool.reporting.docx_report import report_docx
@@ -47,12 +48,18 @@ def fits():
     x1 removed: full-information ML would keep them; their answers depart from normality: the robust test), the demo's
     rows with gaps fitted by full-information ML (a fit of the complete rows only would leave them out; Mardia's
     tests need complete rows; auxiliary variables enter the likelihood as missing-data helpers), and the same with a
-    helper (an invented age column, fixed seed)."""
+    helper (an invented age column, fixed seed); fitted as the command line fits, whose options the advice names
+    (options.on_command_line)."""
     data = holzinger_swineford()
     data.loc[data.index[:40], "x1"] = np.nan
     demo = pd.read_csv(resource_dir("demo") / "rider_survey.csv")
     model = (resource_dir("models") / "rider_three_factors.cfa").read_text()
     aged = demo.assign(age=np.random.default_rng(15).integers(18, 80, len(demo)))
+    with on_command_line():
+        return _fits(data, demo, model, aged)
+
+
+def _fits(data, demo, model, aged):
     return {"listwise": (cfa_tool.fit(THREE_FACTORS, data, missing="listwise"),
                          ("--incomplete-rows full-information", "--robust; from Python, test='robust'")),
             "gaps": (cfa_tool.fit(model, demo),

@@ -197,6 +197,8 @@ def test_a_matrix_of_more_items_than_a_terminal_shows_is_in_the_files_and_said_i
     wide = type("Wide", (), {"observed": tuple(f"q{k}" for k in range(T.MAX_MATRIX + 1))})()
     assert str(T.matrices_left_out(wide)).startswith(f"The correlations of the items and the residual correlations are not "
                                                 f"shown as tables: {T.MAX_MATRIX + 1} items")
+    # the JSON result named for the command line and for Python alike (advice round s17: '--json' alone)
+    assert "The JSON result (--json; from Python, result.to_dict()) holds" in str(T.matrices_left_out(wide))
     assert T.matrices_left_out(result) is None
 
 

@@ -104,6 +104,13 @@ def test_bootstrap_refuses_what_cannot_apply_to_ordinal_items():
     data = simulate(ONE, 200, seed=2, categories=3).frame
     with pytest.raises(OptionError, match="Bollen-Stine"):
         bootstrap(ONE, data, replications=10, bollen_stine=True, workers=1)
+    # BCa intervals asked for are refused, never dropped silently (advice round s17); by default (where they apply)
+    # the percentile intervals alone, which the report says (reporting.workflow_tables.ORDINAL_BOOTSTRAP)
+    with pytest.raises(OptionError, match="BCa intervals .* cannot be given here; leave out bca=True"):
+        bootstrap(ONE, data, replications=10, bca=True, workers=1)
+    by_default = bootstrap(ONE, data, replications=10, seed=2, workers=1)
+    assert by_default.intervals and all(np.isnan(i.bca).all() for i in by_default.intervals)
+    assert "Only the parameters are bootstrapped, by percentile intervals" in str(by_default)
     data["site"] = np.arange(len(data)) % 20
     with pytest.raises(OptionError, match="the bootstrap of ordinal items does not take a sampling design yet"):
         bootstrap(ONE, data, replications=10, cluster="site", workers=1)
