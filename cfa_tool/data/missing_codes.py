@@ -36,20 +36,26 @@ def missing_value(value: object) -> float | str:
 
     if isinstance(value, kinds.Real) and not isinstance(value, bool):
         if not math.isfinite(float(value)):
-            raise ValueError(f"{clipped(repr(value), 60)} is no code a cell can hold (an empty cell is no answer "
-                             f"already); leave it out")
+            raise ValueError(_no_code(clipped(repr(value), 60), math.isnan(float(value))))
         return float(value)
     if isinstance(value, str):
         read = number(value)
         if read is not None:
             return read
         if value.strip().casefold() in ("nan", "inf", "-inf", "+inf", "infinity", "-infinity", "+infinity"):
-            raise ValueError(f"'{printable(value.strip())}' is no code a cell can hold (an empty cell is no answer "
-                             f"already); leave it out")
+            raise ValueError(_no_code(f"'{printable(value.strip())}'", value.strip().casefold() == "nan"))
         if any(c.isalpha() for c in value):
             return value.strip()
     shown = f"'{printable(value)}'" if isinstance(value, str) else clipped(repr(value), 60)
     raise ValueError(f"{shown} is neither a number nor a word")
+
+
+def _no_code(shown: str, not_a_number: bool) -> str:
+    """The refusal of NaN (an empty cell is no answer already) or an infinity (no cell of answers holds one) given as a
+    code of no answer (re-check s17: an infinity was refused with NaN's reason)."""
+    why = ("an empty cell is no answer already" if not_a_number else
+           "a code of no answer is a finite number, such as -99 or 999")
+    return f"{shown} is no code a cell can hold ({why}); leave it out"
 
 
 def codes_and_words(values) -> tuple[tuple[float, ...], tuple[str, ...]]:
