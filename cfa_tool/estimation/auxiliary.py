@@ -264,8 +264,8 @@ class AuxiliaryFit:
         return joint.n_total * joint.weights[g] * joint.group_discrepancy(self.theta, g)
 
     def observed_hessian(self) -> np.ndarray | None:
-        """The joint observed information (second derivatives of F) at the estimates in closed form, None with
-        higher-order factors.  The model's standard errors are its block of the inverse (the helpers' parameters
+        """The joint observed information (second derivatives of F) at the estimates in closed form (with
+        higher-order factors too).  The model's standard errors are its block of the inverse (the helpers' parameters
         estimated alongside, not held fixed; Kenward & Molenberghs 1998 for the observed information with answers
         missing at random)."""
         return self.likelihood.observed_hessian(self.theta)

@@ -20,7 +20,7 @@ from __future__ import annotations
 import numpy as np
 
 from cfa_tool.estimation.objective import Evaluation
-from cfa_tool.model.rank_two import mean_second_derivatives, second_derivative_contraction
+from cfa_tool.model.rank_two import mean_second_derivatives, path_second_derivatives, second_derivative_contraction
 from cfa_tool.data.em import weighted_available_moments
 from cfa_tool.data.patterns import PatternData, embedded_inverse, missing_groups
 from cfa_tool.model.implied import StructuredModel
@@ -194,7 +194,7 @@ class MissingDataLikelihood:
         return Evaluation(value, gradient, information)
 
     def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
-        """Second derivatives of F in closed form (no higher-order factors; None otherwise).
+        """Second derivatives of F in closed form (None where some Sigma_oo is not positive definite).
 
         Differentiating the gradient (module docstring) once more, per pattern k and summed with w_k:
             H_ab = sum_k w_k [-tr(A D_a A D_b) + 2 tr(A D_a (A T A) D_b) + 2 d'A D_a A dmu_b
@@ -209,8 +209,6 @@ class MissingDataLikelihood:
             if state is None:
                 return None
             mats, A, w, ATA, M, Ad, mean_gradient = state
-            if mats.B.any():
-                return None
             H = first_order_hessian(A, w, ATA, Ad, *self._jacobian(theta, g))
             total += w_group * (H + self._second_order(g, mats, M, mean_gradient))
         return 0.5 * (total + total.T)
@@ -276,12 +274,15 @@ def first_order_hessian(A: np.ndarray, w: np.ndarray, ATA: np.ndarray, Ad: np.nd
 
 
 def model_second_order(model: StructuredModel, g: int, mats, M: np.ndarray, mean_gradient: np.ndarray) -> np.ndarray:
-    """tr(M D_ab) + m' dmu_ab in the model's parameters (no higher-order factors): the term of
-    :meth:`MissingDataLikelihood.observed_hessian` in the second derivatives of Sigma and mu (Neudecker & Satorra
-    1991), M and m the gradient's parts in Sigma and mu."""
+    """tr(M D_ab) + m' dmu_ab in the model's parameters: the term of :meth:`MissingDataLikelihood.observed_hessian`
+    in the second derivatives of Sigma and mu (Neudecker & Satorra 1991; with higher-order factors
+    :func:`~cfa_tool.model.rank_two.path_second_derivatives`), M and m the gradient's parts in Sigma and mu."""
     codes, rows, cols = model._codes[g], model._rows[g], model._cols[g]
-    second = second_derivative_contraction(model.all_second_orders[g], M, mats.L, mats.P)
-    second += mean_second_derivatives(codes, rows, cols, mean_gradient)
+    if model.higher_order:
+        second = path_second_derivatives(codes, rows, cols, M, mats, mean_gradient)
+    else:
+        second = second_derivative_contraction(model.all_second_orders[g], M, mats.L, mats.P)
+        second += mean_second_derivatives(codes, rows, cols, mean_gradient)
     J = model._J[g]
     return J.T @ second @ J
 

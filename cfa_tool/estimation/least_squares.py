@@ -34,7 +34,8 @@ from scipy.linalg import block_diag
 
 from cfa_tool.estimation.objective import Evaluation
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
-from cfa_tool.model.rank_two import SecondOrderLayout, basis_vectors, second_derivative_contraction, second_order_layout
+from cfa_tool.model.rank_two import (SecondOrderLayout, basis_vectors, path_second_derivatives, second_derivative_contraction,
+                                     second_order_layout)
 
 
 @dataclass(frozen=True, eq=False)
@@ -257,16 +258,15 @@ class OrdinalLeastSquares:
         return total
 
     def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
-        """Second derivatives of F in closed form, for models without higher-order factors (None otherwise;
-        thresholds as parameters: :meth:`_threshold_hessian`).  For latent responses of unit variance:
+        """Second derivatives of F in closed form (thresholds as parameters: :meth:`_threshold_hessian`).  For
+        latent responses of unit variance:
 
             H = sum_g (N_g/N) [2 D W D' - 2 tr(M d2Sigma / dtheta dtheta')],   M_ij = M_ji = w_k e_k / 2
 
         for the pair k = (i, j), e = s - sigma the residuals; the second derivatives of Sigma are those
-        of maximum likelihood (Neudecker & Satorra 1991; :func:`cfa_tool.model.rank_two.second_derivative_contraction`)."""
+        of maximum likelihood (Neudecker & Satorra 1991; :func:`cfa_tool.model.rank_two.second_derivative_contraction`,
+        with higher-order factors :func:`~cfa_tool.model.rank_two.path_second_derivatives`)."""
         model = self.model
-        if model.higher_order:
-            return None
         if self.thresholds:
             return self._threshold_hessian(theta)
         q = len(theta)
@@ -277,7 +277,12 @@ class OrdinalLeastSquares:
             M = np.zeros((model.p, model.p))
             M[self.pairs] = half
             M[self.pairs[1], self.pairs[0]] = half
-            second = second_derivative_contraction(model.second_orders[g], M, mats.L, mats.P)
+            if model.higher_order:
+                active = model.active[g]
+                second = path_second_derivatives(model._codes[g][active], model._rows[g][active],
+                                                 model._cols[g][active], M, mats)
+            else:
+                second = second_derivative_contraction(model.second_orders[g], M, mats.L, mats.P)
             if not model.identity_J[g]:
                 J = model.active_J[g]
                 second = J.T @ second @ J
@@ -286,7 +291,7 @@ class OrdinalLeastSquares:
         return 0.5 * (H + H.T)
 
     def _threshold_hessian(self, theta: np.ndarray) -> np.ndarray | None:
-        """The exact Hessian of F with thresholds as parameters (no higher-order factors), or None outside
+        """The exact Hessian of F with thresholds as parameters, or None outside
         the region where F is defined.  With c = (N_g/N) W_g e_g and D_g = d sigma_g / d theta,
 
             H = sum_g [2 (N_g/N) D_g W_g D_g' - 2 sum_k c_k d2 sigma_k / dtheta dtheta'],
@@ -300,7 +305,8 @@ class OrdinalLeastSquares:
             sum_a (df/da) d2a + sum_ab (d2f/da db) da db',
 
         a = Sigma_ij, v_i, mu_j, tau.  The first sum contracts the second derivatives of Sigma = L P L' + T
-        with a symmetric matrix M (Neudecker & Satorra 1991; :func:`second_derivative_contraction`) and
+        with a symmetric matrix M (Neudecker & Satorra 1991; :func:`second_derivative_contraction`, with
+        higher-order factors :func:`path_second_derivatives`, which takes the means' terms too) and
         those of mu = N + L M (d2 mu_i / dL_if dM_f = 1) with a vector m.  In the second only
         products with dv are not zero (tau is linear in theta, Sigma_ij and mu_j enter linearly), so it is
         Z dV' + dV Z' + dV B dV' for dV = d diag(Sigma) / dtheta, with, from the partial derivatives of tau~
@@ -336,9 +342,12 @@ class OrdinalLeastSquares:
             M[np.diag_indices(p)] = (-(np.bincount(i, half, p) + np.bincount(j, half, p)) / (2.0 * var)
                                      - np.bincount(it, c_thr * dev, p) / (2.0 * var * sd))
             m = -np.bincount(it, c_thr, p) / sd
-            second = second_derivative_contraction(part.second_order, M, mats.L, mats.P)
-            np.add.at(second, (part.mean_loading, part.mean_mean), m[part.mean_item])
-            np.add.at(second, (part.mean_mean, part.mean_loading), m[part.mean_item])
+            if self.model.higher_order:
+                second = path_second_derivatives(part.codes, part.rows, part.cols, M, mats, m)
+            else:
+                second = second_derivative_contraction(part.second_order, M, mats.L, mats.P)
+                np.add.at(second, (part.mean_loading, part.mean_mean), m[part.mean_item])
+                np.add.at(second, (part.mean_mean, part.mean_loading), m[part.mean_item])
             curvature = part.Jt @ second @ part.Jt.T
             # second derivatives of the statistics with respect to the moments, weighted by c
             d_var = np.diagonal(d_sigma, axis1=1, axis2=2)

@@ -18,7 +18,8 @@ from cfa_tool.estimation.objective import Evaluation
 from cfa_tool.numerics.linalg import sample_log_det, spd_inverse
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term, gradient_and_information, mean_coefficients,
-                                     mean_second_derivatives, model_columns, second_derivative_contraction)
+                                     mean_second_derivatives, model_columns, path_second_derivatives,
+                                     second_derivative_contraction)
 
 
 #: the size (numbers) from which the score tests' blocks of candidates are made in arrays reused from chunk to chunk,
@@ -217,8 +218,8 @@ class NormalLikelihood:
         return np.full(len(theta), np.nan) if ev is None else ev.gradient
 
     def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
-        """Second derivatives of F in closed form, summed over groups with the weights N_g / N, for models
-        without higher-order factors (None otherwise, and where some Sigma is not positive definite).  Per group,
+        """Second derivatives of F in closed form, summed over groups with the weights N_g / N (None where some
+        Sigma is not positive definite).  Per group,
         with W = Sigma^-1, D = dSigma, d = xbar - mu, M = W (Sigma - S - d d') W and m = -2 W d (S and xbar the
         sample covariance and means):
 
@@ -229,9 +230,9 @@ class NormalLikelihood:
         terms as :meth:`cfa_tool.estimation.fiml.MissingDataLikelihood.observed_hessian` for one pattern without
         gaps).  The second derivatives D_ab are nonzero only for pairs of loadings (2 M_ik Phi_jl) and
         loading-factor covariance pairs, dmu_ab only for a loading and its factor's mean (Neudecker & Satorra 1991
-        give the general second derivatives); the traces are gathers from K and Q (:mod:`cfa_tool.model.rank_two`)."""
-        if self.model.higher_order:
-            return None
+        give the general second derivatives); the traces are gathers from K and Q (:mod:`cfa_tool.model.rank_two`).
+        With higher-order factors the pairs with a path between factors have terms too
+        (:func:`~cfa_tool.model.rank_two.path_second_derivatives`)."""
         total = None
         for g, weight in enumerate(self.weights):
             H = self._group_hessian(theta, g)
@@ -255,7 +256,12 @@ class NormalLikelihood:
         mats, parts, _, expected, K, Q, V, a = out
         cross = cross_term(basis, K, Q)
         p, m = model.p, model.m  # Q = V' M V with V = [I, C', L] holds M L in its first rows
-        second = second_derivative_contraction(model.second_orders[g], parts.M, mats.L, mats.P, Q[:p, p + m:])
+        active = model.active[g]
+        if model.higher_order:
+            second = path_second_derivatives(model._codes[g][active], model._rows[g][active], model._cols[g][active],
+                                             parts.M, mats, parts.mean_gradient)
+        else:
+            second = second_derivative_contraction(model.second_orders[g], parts.M, mats.L, mats.P, Q[:p, p + m:])
         H = expected - cross - cross.T + second
         if parts.mean_gradient is not None:
             # 2 d' W D_a W dmu_b = -c_a s_b (Vm[u_a] K[v_a, w_b] + Vm[v_a] K[u_a, w_b]), Vm = V' m
@@ -263,7 +269,8 @@ class NormalLikelihood:
             s = mean_coefficients(basis, a)
             mixed = ((basis.c * Vm[basis.u])[:, None] * K[np.ix_(basis.v, basis.w)]
                      + (basis.c * Vm[basis.v])[:, None] * K[np.ix_(basis.u, basis.w)]) * -s
-            active = model.active[g]
-            H += mixed + mixed.T + mean_second_derivatives(model._codes[g][active], model._rows[g][active],
-                                                           model._cols[g][active], parts.mean_gradient)
+            H += mixed + mixed.T
+            if not model.higher_order:  # with paths, in path_second_derivatives
+                H += mean_second_derivatives(model._codes[g][active], model._rows[g][active], model._cols[g][active],
+                                             parts.mean_gradient)
         return H

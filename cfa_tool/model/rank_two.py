@@ -302,3 +302,64 @@ def mean_second_derivatives(codes: np.ndarray, rows: np.ndarray, cols: np.ndarra
         out[np.ix_(loads, means)] = block
         out[np.ix_(means, loads)] = block.T
     return out
+
+
+def path_second_derivatives(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, M: np.ndarray, mats,
+                            mean_gradient: np.ndarray | None = None) -> np.ndarray:
+    """tr(M d2Sigma / de de') + m' d2mu / de de' for all pairs of the listed entries of a model with paths between
+    factors (higher-order factors: Sigma = G P G' + T, mu = N + G a, G = L A, A = (I - B)^-1, a = A M_f, the factor
+    means M_f), M symmetric and m = ``mean_gradient`` (None without a mean structure).
+
+    The second differential of tr(M Sigma) + m' mu in directions 1 and 2 (Neudecker & Satorra 1991's rules, with
+    dA = A dB A) is, with X = dL + G dB (dG = X A) and Phi = A P A',
+
+        2 tr(M X1 Phi X2') + 2 tr(M X2 A dB1 Phi L') + 2 tr(M X1 A dB2 Phi L')
+        + 2 tr(M X1 A dP2 G') + 2 tr(M X2 A dP1 G')
+        + m' X2 A dB1 a + m' X1 A dB2 a + m' X1 A dM2 + m' X2 A dM1.
+
+    For a loading L[i, j], X = e_i e_j'; for a path B[k, l], X = g_k e_l' (g_k the k-th column of G): each is
+    x e_c' with x a column of U = [I, G], so every term is a product of entries of S = U' M U, A, Phi and a.  Without
+    paths (A = I) this gives :func:`second_derivative_contraction` and :func:`mean_second_derivatives`."""
+    p, m = mats.L.shape
+    A, G = mats.A, mats.G
+    E = len(codes)
+    out = np.zeros((E, E))
+    x = np.flatnonzero((codes == 0) | (codes == 1))  # entries with an X: loadings and paths
+    if len(x) == 0:
+        return out
+    u = np.where(codes[x] == 0, rows[x], p + rows[x])  # x = U[:, u]
+    c = cols[x]
+    U = np.hstack((np.eye(p), G))
+    MU = M @ U
+    S = U.T @ MU  # (p + m) x (p + m)
+    Z = S[p:]  # G' M U, m x (p + m)
+    Phi = A @ mats.P @ A.T
+    # 2 tr(M X1 Phi X2') = 2 Phi[c1, c2] S[u1, u2]
+    block = 2.0 * Phi[np.ix_(c, c)] * S[np.ix_(u, u)]
+    paths = np.flatnonzero(codes[x] == 1)
+    mean_u = None if mean_gradient is None else U.T @ mean_gradient
+    if len(paths):
+        k, l = rows[x][paths], cols[x][paths]
+        Y = A @ mats.P @ Z  # Phi L' M U = A P G' M U
+        # 2 tr(M X2 A dB1 Phi L') for a path 1 = B[k, l]: 2 A[c2, k] Y[l, u2]
+        T = 2.0 * A[np.ix_(c, k)].T * Y[np.ix_(l, u)]
+        if mean_u is not None:  # m' X2 A dB1 a = (m' x2) A[c2, k] a[l]
+            a = A @ mats.M
+            T += A[np.ix_(c, k)].T * (a[l][:, None] * mean_u[u][None, :])
+        block[paths] += T
+        block[:, paths] += T.T
+    out[np.ix_(x, x)] = block
+    cov = np.flatnonzero(codes == 2)
+    if len(cov):
+        k, l = rows[cov], cols[cov]
+        half = np.where(k == l, 0.5, 1.0)
+        # 2 tr(M X1 A dP2 G') with dP2 = e_k e_l' + e_l e_k' (once on the diagonal)
+        term = 2.0 * half * (A[np.ix_(c, k)] * Z[np.ix_(l, u)].T + A[np.ix_(c, l)] * Z[np.ix_(k, u)].T)
+        out[np.ix_(x, cov)] = term
+        out[np.ix_(cov, x)] = term.T
+    means = np.flatnonzero(codes == 5)
+    if len(means) and mean_u is not None:
+        term = mean_u[u][:, None] * A[np.ix_(c, rows[means])]  # m' X1 A dM2 = (m' x1) A[c1, j]
+        out[np.ix_(x, means)] = term
+        out[np.ix_(means, x)] = term.T
+    return out
