@@ -414,7 +414,19 @@ def design_weights(frame: pd.DataFrame, columns: DesignColumns, model_variables:
     the design's column names: what :func:`check_design` and the caution about groups weighted out
     (pipeline.inputs.weighted_out_problems) then read instead of parsing the column again."""
     _check_names(frame, columns, model_variables, group, source)
-    return _weights(frame, columns, source, _data_rows(frame)) if columns.weights is not None else None
+    if columns.weights is None:
+        return None
+    return _weights(frame, columns, source, _data_rows(frame), lambda: answering_nothing(frame, model_variables))
+
+
+def answering_nothing(frame: pd.DataFrame, model_variables: tuple[str, ...]) -> np.ndarray:
+    """Per row, whether it answers none of the model variables (a spreadsheet's notes line under the data, a row of
+    separators): the estimation leaves such a row out whatever it holds, so its weight, cluster or stratum may be
+    missing."""
+    present = [name for name in model_variables if name in frame.columns]
+    if not present:
+        return np.zeros(len(frame), dtype=bool)
+    return frame[present].isna().all(axis=1).to_numpy()
 
 
 def _check_names(frame: pd.DataFrame, columns: DesignColumns, model_variables: tuple[str, ...], group: str | None,
@@ -445,10 +457,15 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
     _check_names(frame, columns, model_variables, group, source)
     rows = _data_rows(frame)
     notes: list[str] = []
+    w = None
     if columns.weights is not None:
-        w = weights if weights is not None else _weights(frame, columns, source, rows)
+        w = weights if weights is not None else _weights(frame, columns, source, rows,
+                                                         lambda: answering_nothing(frame, model_variables))
         if len(w) != len(frame):
             raise ValueError("the weights given are not those of the frame's rows")
+    frame, rows, w, silent_notes = _without_silent_rows(frame, rows, w, columns, model_variables)
+    notes += silent_notes
+    if w is not None:
         zero = w == 0
         if zero.all():
             raise DataError(f"{source}: every weight in column '{printable(columns.weights)}' is zero, so no row counts")
@@ -604,7 +621,39 @@ def _data_rows(frame: pd.DataFrame) -> np.ndarray:
     return row_numbers(frame)
 
 
-def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.ndarray) -> np.ndarray:
+def _without_silent_rows(frame: pd.DataFrame, rows: np.ndarray, w: np.ndarray | None, columns: DesignColumns,
+                         model_variables: tuple[str, ...]) -> tuple[pd.DataFrame, np.ndarray, np.ndarray | None, list[str]]:
+    """The rows that answer no model variable and lack a weight, cluster or stratum (:func:`answering_nothing`: a
+    notes line under the data) left out, with a note naming them; a row that answers something and lacks one stays,
+    for the checks' error.  (frame, rows, weights, notes), unchanged when there is none."""
+    lacking = np.zeros(len(frame), dtype=bool) if w is None else np.isnan(w)  # only silent rows get no weight
+    missing_parts = ["weight"] if lacking.any() else []
+    silent = None
+    for what, name in (("cluster", columns.cluster), ("stratum", columns.strata)):
+        if name is None:
+            continue
+        absent = _labels(frame[name]).isna().to_numpy()
+        if absent.any():
+            silent = answering_nothing(frame, model_variables) if silent is None else silent
+            if (absent & silent).any():
+                lacking |= absent & silent
+                missing_parts.append(what)
+    if not lacking.any():
+        return frame, rows, w, []
+    count = int(lacking.sum())
+    named = (f"row {rows[lacking][0]}" if count == 1 else f"{count} rows (the first row {rows[lacking][0]})")
+    note = (f"{named} {'answers' if count == 1 else 'answer'} no model variable and {'has' if count == 1 else 'have'} "
+            f"no {' or '.join(missing_parts)}, so {'it was' if count == 1 else 'they were'} left out (a notes line "
+            f"under the data, perhaps)")
+    keep = ~lacking
+    return frame.loc[keep], rows[keep], (None if w is None else w[keep]), [note]
+
+
+def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.ndarray,
+             answering_nothing_of=None) -> np.ndarray:
+    """The weights column parsed and checked; a row without a weight is an error unless it answers no model
+    variable (``answering_nothing_of``: a function giving :func:`answering_nothing` of the frame's rows, called only
+    when some weight is missing), whose weight stays NaN for :func:`check_design` to leave it out."""
     name = columns.weights
     where = f"{source}: weights column '{printable(name)}', row"
     column = frame[name]
@@ -620,10 +669,26 @@ def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.
     if text.any():
         raise DataError(f"{where} {rows[np.argmax(text)]}: '{clipped(str(column.iloc[np.argmax(text)]), 40)}' "
                         f"is not a number")
-    for bad, what in ((np.isnan(values), f"no weight (every row needs one; leave such rows out with {Option.KEEP})"),
+    valid = ~np.isnan(values)
+    unweighted = ~valid
+    if unweighted.any() and answering_nothing_of is not None:
+        unweighted &= ~answering_nothing_of()
+    for bad, what in ((unweighted, f"no weight (every row that answers an item needs one; leave such rows out with "
+                                   f"{Option.KEEP})"),
                       (np.isinf(values), "an infinite weight"), (values < 0, "a negative weight")):
         if bad.any():
             raise DataError(f"{where} {rows[np.argmax(bad)]}: {what}")
+    if valid.all():
+        _check_weight_values(values, rows, columns, source, name, where)
+    else:  # rows that answer nothing and have no weight, left out by check_design: the checks read the others
+        _check_weight_values(values[valid], rows[valid], columns, source, name, where)
+    return values
+
+
+def _check_weight_values(values: np.ndarray, rows: np.ndarray, columns: DesignColumns, source: str, name: str,
+                         where: str) -> None:
+    """The checks of the weights given: whole numbers for frequency weights, a range the tool computes with, and
+    enough spread (Kish's effective sample size)."""
     if columns.kind is WeightKind.FREQUENCY:
         fraction = values != np.round(values)
         if fraction.any():
@@ -647,7 +712,6 @@ def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.
                             f"{float(values[top])!r}; Kish's effective sample size {effective:.2f} of {len(values)} rows), "
                             f"so the weighted answers have next to no spread; check that it is the right column and "
                             f"that its weights are on one scale")
-    return values
 
 
 #: the largest sampling weight must lie in this range (the weights are rescaled, but sums of squares of far

@@ -299,10 +299,11 @@ def comparison_report(comparison) -> Report:
     full_information = comparison.missing is MissingData.FULL_INFORMATION
     pairwise = comparison.missing is MissingData.PAIRWISE
     if full_information or pairwise:
-        left = (f"{comparison.rows_dropped} rows answering none of some model's variables left out" if
-                comparison.rows_dropped else "no row left out for missing answers")
-        if comparison.without_group:
-            left += f"; {comparison.without_group} rows without a value in the group column left out"
+        dropped, without = comparison.rows_dropped, comparison.without_group
+        left = (f"{dropped} {'row' if dropped == 1 else 'rows'} answering none of some model's variables left out" if
+                dropped else "no row left out for missing answers")
+        if without:
+            left += f"; {without} {'row' if without == 1 else 'rows'} without a value in the group column left out"
         how = ("every answer used: each correlation from the rows that answered both items" if pairwise else
                "by full-information ML, rows with missing answers included")
         rows_line = f"All models fitted to the same {comparison.n_obs} rows, {how} ({left})."

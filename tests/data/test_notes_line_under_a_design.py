@@ -1,0 +1,56 @@
+"""A spreadsheet export's notes line under the data (text in the id column, every other cell empty) answers no model
+variable, so every estimation leaves it out; under a sampling design it has no weight, cluster or stratum either,
+which must not refuse the file (new-user trial s18: 'row 1202: no weight (every row needs one ...)' stopped every
+weighted run).  The fit with the line equals the fit of the file without it, and a note names the row; a row that
+answers an item and has no weight is still refused."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.errors import DataError
+
+MODEL = "factor f: a1, a2, a3, a4\n"
+
+
+def _files(tmp_path, ordinal: bool = False):
+    rng = np.random.default_rng(2)
+    n = 300
+    trait = rng.normal(size=n)
+    items = np.column_stack([0.7 * trait + 0.7 * rng.normal(size=n) for _ in range(4)])
+    if ordinal:
+        items = np.digitize(items, [-1.0, 0.0, 1.0]) + 1
+    frame = pd.DataFrame({"id": [f"S-{i:03d}" for i in range(n)]}).join(
+        pd.DataFrame(np.round(items, 2), columns=["a1", "a2", "a3", "a4"]))
+    frame["school"] = rng.integers(0, 30, n)
+    frame["weight"] = rng.uniform(0.5, 2.0, n).round(3)
+    without, with_line = tmp_path / "without.csv", tmp_path / "with_line.csv"
+    frame.to_csv(without, index=False)
+    with_line.write_text(without.read_text() + "Notes: exported by hand,,,,,,\n")
+    return without, with_line
+
+
+@pytest.mark.parametrize("design", [{"weights": "weight"}, {"cluster": "school"},
+                                    {"weights": "weight", "cluster": "school"}])
+@pytest.mark.parametrize("estimation", [{}, {"ordinal": "all"}])
+def test_a_notes_line_under_the_data_is_left_out_with_a_note(tmp_path, design, estimation):
+    without, with_line = _files(tmp_path, ordinal=bool(estimation))
+    clean = cfa_tool.fit(MODEL, without, **design, **estimation)
+    noted = cfa_tool.fit(MODEL, with_line, **design, **estimation)
+    assert [r.estimate for r in noted.estimates] == [r.estimate for r in clean.estimates]
+    assert noted.fit.chi_square == clean.fit.chi_square
+    lacking = " or ".join(w for w, k in (("weight", "weights"), ("cluster", "cluster")) if k in design)
+    assert (f"row 302 answers no model variable and has no {lacking}, so it was left out"
+            in " ".join(str(w) for w in noted.warnings))
+
+
+def test_a_row_that_answers_an_item_still_needs_its_weight(tmp_path):
+    without, _ = _files(tmp_path)
+    frame = pd.read_csv(without)
+    frame.loc[7, "weight"] = np.nan
+    frame.to_csv(without, index=False)
+    with pytest.raises(DataError, match="row 9: no weight"):
+        cfa_tool.fit(MODEL, without, weights="weight")
