@@ -371,7 +371,7 @@ class UnlikeTheItems:
         return tuple(f[0] for f in self.groupings) + tuple(f[0] for f in self.off_scale)
 
 
-def unlike_the_items(frame: pd.DataFrame, columns, others=()) -> UnlikeTheItems:
+def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float, ...] = ()) -> UnlikeTheItems:
     """The columns among ``columns`` (of numbers) whose values are not answers on the answer scale that most of
     ``columns`` share (the lowest and highest whole value more than half of them hold, such as 1 to 4), and that have
     no relation to the items (no correlation of RELATED_TO_THE_ITEMS or more, in absolute value, with any of the
@@ -383,7 +383,9 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=()) -> UnlikeTheItems:
     the scale's (an income, a year of birth).  A column that reaches the scale's low end with few whole values stays
     an item (answered 0 to 10 or 1 to 7 among items of 1 to 5), as does one mostly on the scale (2 to 6), an item
     with a few missing-value codes such as 99 among its answers (few whole values), one with a fraction in some cells,
-    and one whose answers go with the items' (a 0-10 'recommend' question answered 3 to 10)."""
+    and one whose answers go with the items' (a 0-10 'recommend' question answered 3 to 10).  ``codes``: the missing-value
+    codes given (--missing-codes), which the scale and the correlations leave out (the answers 1 to 4 with codes 8
+    and 9 are on a scale of 1 to 4, so that a grade of 7 to 9 is not taken for an item whose 8 and 9 are no answer)."""
     from collections import Counter
 
     from cfa_tool.data.polychoric import MAX_CATEGORIES
@@ -391,7 +393,8 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=()) -> UnlikeTheItems:
     values = {c: pd.to_numeric(frame[c], errors="coerce").dropna().to_numpy(dtype=float) for c in columns}
     distinct = {c: np.unique(v) for c, v in values.items()}
     whole = {c: v for c, v in distinct.items() if len(v) and np.all(v == np.round(v))}
-    shared = Counter((float(v[0]), float(v[-1])) for v in whole.values()).most_common(1)
+    answers = {c: np.setdiff1d(v, codes) if codes else v for c, v in whole.items()}
+    shared = Counter((float(v[0]), float(v[-1])) for v in answers.values() if len(v)).most_common(1)
     if not shared or shared[0][1] * 2 <= len(columns):
         return UnlikeTheItems()
     (low, high), _ = shared[0]
@@ -408,7 +411,9 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=()) -> UnlikeTheItems:
     found = [f[0] for f in groupings] + [f[0] for f in off_scale]
     if found:
         items = [c for c in columns if c not in found] + [c for c in others if c not in found]
-        related = dict(zip(found, _largest_correlations(frame, found, items)))
+        answered = frame if not codes else frame[items].apply(pd.to_numeric, errors="coerce").mask(
+            lambda cells: cells.isin(codes)).join(frame[found])  # the items' codes of no answer are no answers
+        related = dict(zip(found, _largest_correlations(answered, found, items)))
         groupings = [f for f in groupings if not related[f[0]] >= RELATED_TO_THE_ITEMS]
         off_scale = [f for f in off_scale if not related[f[0]] >= RELATED_TO_THE_ITEMS]
     return UnlikeTheItems(tuple(groupings), tuple(off_scale), (low, high))
@@ -535,7 +540,8 @@ def _word_columns(frame: pd.DataFrame, numeric: tuple[str, ...], codings: tuple)
     return tuple(out)
 
 
-def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str, ...], str, tuple[str, ...]]:
+def _default_items(first, columns: list[str], codings: tuple, codes: tuple[float, ...] = ()
+                   ) -> tuple[tuple[str, ...], str, tuple[str, ...]]:
     """The items explored by default (every column holding numbers, or the words of the answers file, except row
     numbers, ids, codes of categories, columns named for another part and columns whose values are not answers on
     the items' scale, unlike_the_items) and the note that says which and why."""
@@ -548,7 +554,7 @@ def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str
     coded = [c for c in labelled_codes(frame, first.value_labels) if c in numeric and c not in ids + roles
              and own_labels(c, first.value_labels)]
     worded = _word_columns(frame, numeric, codings)
-    unlike = unlike_the_items(frame, [c for c in numeric if c not in ids + roles + coded], worded)
+    unlike = unlike_the_items(frame, [c for c in numeric if c not in ids + roles + coded], worded, codes)
     records = list(unlike.columns)
     chosen = tuple(c for c in columns if c in worded or (c in numeric and c not in ids + roles + coded + records))
     if codings and not worded:
@@ -761,7 +767,7 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         _refuse_too_few_named(chosen)
     item_note = None
     if by_default:
-        chosen, item_note, worded = _default_items(scan, columns, codings)
+        chosen, item_note, worded = _default_items(scan, columns, codings, api.missing_values_option(missing_codes)[0])
         _refuse_too_few(chosen, scan, codings)
     spec = _explored_spec(chosen, codings, answers, worded if by_default else None)
     if not by_default:

@@ -102,3 +102,29 @@ def test_the_correlations_are_read_against_the_items_typed_partly_as_words_too()
     assert frame[numeric].corrwith(frame["commute_km"]).abs().max() < 0.30  # pandas
     assert [f[0] for f in unlike_the_items(frame, numeric + ["commute_km"]).off_scale] == ["commute_km"]
     assert unlike_the_items(frame, numeric + ["commute_km"], worded).off_scale == ()
+
+
+def _school_survey(n: int = 500, seed: int = 18) -> pd.DataFrame:
+    """Eight items answered 1 to 4 under two factors, about 5% of the cells coded 8 ('don't know') or 9 ('no
+    answer'), and the students' grade, 7 to 9, unrelated to the answers."""
+    rng = np.random.default_rng(seed)
+    eta = rng.multivariate_normal([0, 0], [[1, .4], [.4, 1]], size=n)
+    frame = pd.DataFrame({"grade": rng.integers(7, 10, n)})
+    for k in range(8):
+        x = np.clip(np.round(2.5 + 0.9 * (0.7 * eta[:, k // 4] + 0.7 * rng.standard_normal(n))), 1, 4)
+        x[rng.random(n) < 0.05] = rng.choice([8, 9])
+        frame[f"b{k + 1}"] = x
+    return frame
+
+
+def test_a_grade_is_not_taken_for_an_item_whose_missing_codes_empty_it():
+    # new-user trial s18 (03): with --missing-codes 8,9 explore took grade (7 to 9) for an item on a scale of 1 to 9
+    # (the codes among the items' answers), emptied its 8s and 9s as 'no answer' and called it constant
+    frame = _school_survey()
+    result = explore(frame, missing_codes=(8, 9), factors=2, replications=10)
+    assert list(result.items) == [f"b{k}" for k in range(1, 9)]
+    notes = " ".join(str(n) for n in result.notes)
+    assert ("Left out as groupings or records rather than answers (a few whole values, most of them above the 1 to 4 "
+            "that most columns hold, and no correlation of 0.30 or more with any item, as a grade or a year would "
+            "be): grade (7 to 9)") in notes
+    assert "constant" not in notes and "(grade " not in notes
