@@ -73,14 +73,15 @@ class _ColumnParts:
             report = keyed[0]
             whole = _widths(report)
         narrow = _widths(report, wrapped_headings=True)
+        floors = _unbroken_widths(report)
         labels = label_columns(report.align, whole, room, report.rows)
-        for k, columns in enumerate(column_parts(_wrapped(narrow, report.align, room), room, labels)):
+        for k, columns in enumerate(column_parts(_wrapped(narrow, report.align, room, floors), room, labels)):
             if k:
                 yield Text(f"({printable(report.title)}, continued)", style="dim")
             # each part's text as wide as the room beside its own number columns allows, their headings wrapped
             # between words where the room is short
             part = dict(zip(columns, _wrapped([narrow[j] for j in columns], tuple(report.align[j] for j in columns),
-                                              room)))
+                                              room, [floors[j] for j in columns])))
             for j in sorted(columns, key=lambda j: whole[j] - part[j]):  # headings whole while the room lasts
                 if report.align[j] == "r" and sum(part.values()) - part[j] + whole[j] <= room:
                     part[j] = whole[j]
@@ -125,13 +126,24 @@ def _widths(report: ReportTable, wrapped_headings: bool = False) -> list[float]:
 
 
 LEAST_TEXT = 16  # characters a text column keeps when it is narrowed to wrap (or its own width, when less)
+#: the longest word (an item's name such as belonging_school_engagement_01, which Stata allows to 32 characters) a
+#: text column keeps whole when narrowed: a name broken after '_0' reads as two names; longer words are folded
+LONGEST_UNBROKEN = 40
 
 
-def _wrapped(widths: list[float], align: tuple[str, ...], room: int) -> list[float]:
+def _unbroken_widths(report: ReportTable) -> list[float]:
+    """Each text column's least width when narrowed to wrap: its longest word (up to ``LONGEST_UNBROKEN``
+    characters) and its padding, so that wrapping breaks its cells between words; 0 for number columns."""
+    return [max([min(len(word), LONGEST_UNBROKEN) for row in report.rows for word in row[j].split()] or [0])
+            + CELL_PADDING if align == "l" else 0 for j, align in enumerate(report.align)]
+
+
+def _wrapped(widths: list[float], align: tuple[str, ...], room: int, floors: list[float] | None = None) -> list[float]:
     """The widths with the widest text columns narrowed, their text to wrap, so that the number columns fit
     beside them in one part: when the table is wider than ``room``, the text columns share what the number
     columns leave (at least a third of the room), the widest cut to one width and the narrower kept whole,
-    none narrower than ``LEAST_TEXT``."""
+    none narrower than ``LEAST_TEXT`` nor than its ``floors`` entry (:func:`_unbroken_widths`: its longest word,
+    an item's name kept whole; the parts of whole columns then take what does not fit)."""
     if sum(widths) <= room:
         return widths
     text = sorted((widths[j] for j, a in enumerate(align) if a == "l"), reverse=True)
@@ -146,7 +158,8 @@ def _wrapped(widths: list[float], align: tuple[str, ...], room: int) -> list[flo
             cap = level
             break
     cap = max(int(cap), LEAST_TEXT + CELL_PADDING)
-    return [min(w, cap) if a == "l" else w for w, a in zip(widths, align)]
+    floors = floors or [0] * len(widths)
+    return [max(min(w, cap), min(w, floor)) if a == "l" else w for w, a, floor in zip(widths, align, floors)]
 
 
 def _key(entries: tuple[tuple[str, str], ...]) -> Table:

@@ -251,3 +251,24 @@ def test_short_labels_never_take_a_name_of_the_model():
     assert labels["I3"] == "item2"
     plain = item_labels(SimpleNamespace(observed=observed[:1] + ("x2", "x3"), latent=("f",)))
     assert list(plain.values()) == ["I1", "I2", "I3"]
+
+
+def test_a_long_one_word_item_name_is_never_broken_in_a_terminal_table():
+    # new-user trial s18 (14): item names of 28 to 30 characters (Stata allows 32) were folded mid-name in 80 columns,
+    # 'belonging_school_engagement_0' above '1', which reads as two items; the name column now keeps its longest word
+    # whole, and what does not fit beside it goes to a part of whole columns
+    from rich.console import Console
+
+    from cfa_tool.reporting.terminal import rich_table
+
+    names = [f"belonging_{facet}_{k:02d}" for facet in ("teacher_support", "school_engagement") for k in (1, 2)]
+    heads = ("Item", "1 Strongly disagree", "2 Disagree", "3 Agree", "4 Strongly agree")
+    table = T.ReportTable("t", "Answers per category", heads, ("l", "r", "r", "r", "r"),
+                          tuple((name, "130 (11%)", "325 (29%)", "437 (39%)", "243 (21%)") for name in names))
+    buffer = io.StringIO()
+    Console(file=buffer, width=80, no_color=True).print(rich_table(table))
+    text = buffer.getvalue()
+    assert max(len(line) for line in text.split("\n")) <= 80
+    rows = [line.split()[0] for line in text.split("\n") if line.startswith(" belonging")]
+    assert rows and set(rows) == set(names)  # every row starts with a whole name, in every part
+    assert all(re.search(r"\d+ \(\d+%\)", line) for line in text.split("\n") if line.startswith(" belonging"))
