@@ -100,7 +100,7 @@ class FitOptions:
 
         object.__setattr__(self, "mi_threshold", check.real_number("the modification-index threshold", self.mi_threshold, 0.0))
         if self.mi_top is not None:
-            object.__setattr__(self, "mi_top", check.whole_number("the number of modification indices to show", self.mi_top, 0))
+            object.__setattr__(self, "mi_top", check.whole_number("the number of modification indices to show", self.mi_top, 1))
         object.__setattr__(self, "max_iterations",
                            check.whole_number("the iteration limit", self.max_iterations, 1, check.MAX_ITERATIONS))
         object.__setattr__(self, "missing_helpers", helper_names(self.missing_helpers))

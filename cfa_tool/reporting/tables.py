@@ -805,7 +805,8 @@ def modification_table(result, group: int | None = None, limit: int = 10) -> Rep
                                         [[largest.kind, names_text(largest.variables), largest.group or "",
                                           largest.index]]))
     shown = rows[:limit] if result.mi_top is None else rows
-    title = f"Largest modification indices (at least {result.mi_threshold:g}; {len(shown)} of {len(rows)} shown)"
+    reaching = rows if result.mi_top is None else mine(result.modification_indices.reported(result.mi_threshold, None))
+    title = f"Largest modification indices (at least {result.mi_threshold:g}; {len(shown)} of {len(reaching)} shown)"
     body = []
     for m in shown:  # parameters in words, as every table names them (the group in the section's heading)
         body.append([parameter_words(m.kind, tuple(m.variables), None if label else m.group, article=False,
