@@ -118,9 +118,11 @@ def _check_size(spec: Spec) -> None:
 def _check_scaling(spec: Spec) -> None:
     """Every factor a 'scale' statement names must be a factor of the model; a factor named by two
     'scale' statements, or named by one and scaled by the model's own fix of its loading or variance,
-    gets two scales: an error, never a silent choice."""
+    gets two scales: an error, never a silent choice; so is 'scale latent by ...' given twice.  A statement naming a
+    factor takes precedence over 'scale latent by ...' in either order (Spec.scaling_of)."""
     factors = set(spec.factor_names)
     named: dict[str, object] = {}
+    every = None  # the first 'scale latent by ...' statement
     fixed_scale: dict[str, object] = {}
     block = spec.exploratory_factors  # their zeros fix the block's orientation, not a scale
     for setting in spec.fixed:
@@ -132,6 +134,11 @@ def _check_scaling(spec: Spec) -> None:
                 fixed_scale.setdefault(ref.names[0], ref)
     for setting in spec.scaling:
         if not setting.factors:  # 'scale latent by ...': every factor outside exploratory blocks
+            if every is not None:
+                raise _fail(spec, f"'scale latent by ...' is given twice (the first, 'by {every.method}', on line "
+                                  f"{every.location.line}); give one scale for every factor, and name a factor in a "
+                                  f"'scale' statement of its own to scale it otherwise", setting.location)
+            every = setting
             if "latent" in factors:
                 raise _fail(spec, f"'latent' is both a factor of this model and the word for every factor in 'scale "
                                   f"latent by {setting.method}'; to scale the factor latent alone write it in double "
@@ -389,20 +396,26 @@ def _check_contradictions(spec: Spec) -> None:
         for ref in bound.refs:
             if _gkey(ref) in fixed:
                 raise _fail(spec, f"{ref} is fixed, so a bound on it has no effect; remove one of the two", ref.location)
-    lower: dict[tuple, float] = {}
-    upper: dict[tuple, float] = {}
+    lower: dict[tuple, tuple[float, ParameterRef]] = {}
+    upper: dict[tuple, tuple[float, ParameterRef]] = {}
     for bound in spec.bounds:
         for ref in bound.refs:
             key = _gkey(ref)
-            if bound.lower is not None:
-                lower[key] = bound.lower
-            if bound.upper is not None:
-                upper[key] = bound.upper
+            # a second bound on the same side, as a second fix or start, is an error naming the first's line (the fit
+            # kept the last one and the methods paragraph stated both)
+            for side, value, word in ((lower, bound.lower, "at least"), (upper, bound.upper, "at most")):
+                if value is None:
+                    continue
+                if key in side and side[key][0] != value:
+                    raise _fail(spec, f"{ref} is bounded to {word} {value:g} here but to {word} {side[key][0]:g} on line "
+                                      f"{side[key][1].location.line}; give it one bound on each side", ref.location)
+                side[key] = (value, ref)
             if ref.kind == "variance" and bound.upper is not None and bound.upper < 0:
                 raise _fail(spec, f"{ref} is bounded to at most {bound.upper:g}, but a variance cannot be negative",
                             ref.location)
-            if key in lower and key in upper and lower[key] > upper[key]:
-                raise _fail(spec, f"the bounds on {ref} leave no room: at least {lower[key]:g} and at most {upper[key]:g}", ref.location)
+            if key in lower and key in upper and lower[key][0] > upper[key][0]:
+                raise _fail(spec, f"the bounds on {ref} leave no room: at least {lower[key][0]:g} and at most "
+                                  f"{upper[key][0]:g}", ref.location)
     for group in spec.equal:
         values = {fixed[_gkey(r)][0] for r in group if _gkey(r) in fixed}
         if len(values) > 1:

@@ -354,12 +354,15 @@ class Spec:
         return self.lines[location.line - 1]
 
     def scaling_of(self, factor: str) -> str:
-        """The scaling method that applies to ``factor`` (last statement wins)."""
-        method = "marker"
+        """The scaling method that applies to ``factor``: a 'scale' statement naming it, else 'scale latent by ...',
+        else the marker (language.checks allows each at most once, so no order decides)."""
+        every = "marker"
         for setting in self.scaling:
-            if not setting.factors or any(f.text == factor for f in setting.factors):
-                method = setting.method
-        return method
+            if any(f.text == factor for f in setting.factors):
+                return setting.method
+            if not setting.factors:
+                every = setting.method
+        return every
 
 
 def with_ordinal_levels(spec: "Spec", ordinal_items) -> "Spec":

@@ -168,6 +168,12 @@ def _error(text: str) -> ModelError:
         ("factor f: a, b, c\nfix variance(a) = 1\nstart variance(a) = 2\n", 3, 7, "start value for it has no effect"),
         ("factor f: a, b, c\nfix variance(a) = 1\nbound variance(a) >= 0\n", 3, 7, "bound on it has no effect"),
         ("factor f: a, b, c\nbound variance(a) >= 2\nbound variance(a) <= 1\n", 3, 7, "leave no room"),
+        # hostile trial s18 (07, 01): a second bound on one side was kept silently (the paragraph stated both); a second
+        # 'scale latent' silently replaced the first and a factor's own scale statement given before it
+        ("factor f: a, b, c\nbound variance(a) >= 0.1\nbound variance(a) >= 0.6\n", 3, 7,
+         "variance(a) is bounded to at least 0.6 here but to at least 0.1 on line 2; give it one bound on each side"),
+        ("factor f: a, b, c\nscale latent by effects\nscale latent by variance\n", 3, 1,
+         "'scale latent by ...' is given twice (the first, 'by effects', on line 2)"),
         # hostile trial 8: 'fix variance(f) = -1' reached the estimation (exit 3, "starting values ... not positive
         # definite") instead of naming the line
         ("factor f: a, b, c\nfix variance(f) = -1\n", 2, 5, "variance(f) is fixed to -1, but a variance cannot be "
@@ -382,3 +388,11 @@ def test_an_answers_file_is_read_as_a_model_file_is(tmp_path):
         assert words in info.value.message
         assert (info.value.location.line, info.value.location.column) == (line, column)
     assert "the model text contains a NUL character" in _error("factor f: a, b, c\x00\n").message
+
+
+def test_a_factors_own_scale_statement_holds_before_or_after_scale_latent():
+    # hostile trial s18 (01): 'scale a by effects' then 'scale latent by variance' scaled a by its variance
+    for text in ("factor a: x1, x2, x3\nfactor b: y1, y2, y3\nscale a by effects\nscale latent by variance\n",
+                 "factor a: x1, x2, x3\nfactor b: y1, y2, y3\nscale latent by variance\nscale a by effects\n"):
+        spec = parse_model(text)
+        assert (spec.scaling_of("a"), spec.scaling_of("b")) == ("effects", "variance")
