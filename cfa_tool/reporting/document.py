@@ -78,7 +78,11 @@ class Figure:
 
 
 def drawn(svg: str, note: str = "") -> Callable[[], tuple[str, str]]:
-    """The ``draw`` of a :class:`Figure` whose picture is already made (read from a saved result)."""
+    """The ``draw`` of a :class:`Figure` whose picture is already made (read from a saved result): a drawing of this
+    tool, whose root gives its size (ValueError otherwise, as for any part of a saved report changed by hand)."""
+    from cfa_tool.reporting.picture import svg_size
+
+    svg_size(svg)
     return lambda: (svg, note)
 
 

@@ -111,8 +111,12 @@ _BREAKS = re.compile(r'<svg[^>]*?\sdata-breaks="([0-9. ]+)"')
 
 
 def svg_size(svg: str) -> tuple[float, float]:
-    """The width and height of an SVG drawing of this tool, in user units, from its root element."""
-    return float(_SVG_WIDTH.search(svg).group(1)), float(_SVG_HEIGHT.search(svg).group(1))
+    """The width and height of an SVG drawing of this tool, in user units, from its root element; ValueError when
+    the root gives none (a drawing changed by hand in a saved result: reporting.reports.saved_report says so)."""
+    width, height = _SVG_WIDTH.search(svg), _SVG_HEIGHT.search(svg)
+    if width is None or height is None:
+        raise ValueError("the drawing's root element gives no width and height")
+    return float(width.group(1)), float(height.group(1))
 
 
 def svg_strips(svg: str, most: float) -> list[str]:

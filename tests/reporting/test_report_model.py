@@ -322,3 +322,19 @@ def test_a_saved_report_edited_out_of_shape_is_a_one_line_error(tmp_path, capsys
     saved.write_text(json.dumps(payload))
     code, out, err = _run(["report", saved], capsys)
     assert code == 2 and "incomplete or changed by hand" in _error_line(err) and out == ""
+
+
+def test_a_saved_drawing_edited_without_its_size_is_a_one_line_error(tmp_path, capsys, hs_data):
+    # hostile trial s18 (04): a figure's SVG without width and height on its root gave 'internal error: AttributeError'
+    data = tmp_path / "hs.csv"
+    hs_data.to_csv(data, index=False)
+    (tmp_path / "a.cfa").write_text(THREE)
+    saved = tmp_path / "fit.json"
+    code, _, err = _run(["fit", tmp_path / "a.cfa", "--data", data, "--json", saved], capsys)
+    assert code == 0, err
+    payload = json.loads(saved.read_text())
+    payload["report"]["figures"][0]["svg"] = '<svg xmlns="http://www.w3.org/2000/svg"><text>x</text></svg>'
+    saved.write_text(json.dumps(payload))
+    for view in ("--html", "--docx"):
+        code, out, err = _run(["report", saved, view, tmp_path / f"out{view[2:]}"], capsys)
+        assert code == 2 and "incomplete or changed by hand" in _error_line(err), err
