@@ -120,12 +120,14 @@ def parameter_words(kind: str, names: tuple[str, ...], group: str | None = None,
         kind = ("residual_" if names and names[0] in observed else "factor_") + kind
     if quoted:
         names = tuple(written_name(n) for n in names[:1]) + (
-            (names[1],) if kind == "threshold" and len(names) == 2 else tuple(written_name(n) for n in names[1:]))
-    pair = " and ".join(names)
+            tuple(names[1:]) if kind == "threshold" else tuple(written_name(n) for n in names[1:]))
+    pair = " and ".join(map(str, names))
     if kind == "loading" and len(names) == 2:
         text = f"loading of {names[1]} on {names[0]}"
     elif kind == "threshold" and len(names) == 2:
         text, article = f"threshold {names[1]} of {names[0]}", False
+    elif kind == "threshold" and len(names) > 2:  # several thresholds of one item: (item, 1, 2, 3)
+        text, article = f"thresholds {', '.join(map(str, names[1:-1]))} and {names[-1]} of {names[0]}", False
     else:
         text = {"factor_variance": f"variance of factor {pair}",
                 "disturbance_variance": f"disturbance variance of factor {pair}",  # below a higher-order factor
