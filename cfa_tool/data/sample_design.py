@@ -472,8 +472,9 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
         if zero.any():
             before = frame
             frame = frame.loc[~zero]
-            notes.append(f"{int(zero.sum())} rows have weight 0 in '{columns.weights}' and were left out of the "
-                         f"estimation")
+            count = int(zero.sum())
+            notes.append(f"{count} {'row has' if count == 1 else 'rows have'} weight 0 in '{columns.weights}' and "
+                         f"{'was' if count == 1 else 'were'} left out of the estimation")
             rows = rows[~zero]
             gone, left = groups_weighted_out(before, columns.weights, group, w)
             if gone and len(left) < 2:  # the multi-group analysis cannot run: the weights, not the labels, are why

@@ -226,7 +226,7 @@ def test_words_that_said_a_little_more_or_less_than_happened(tmp_path, model_fil
     code, text, err = _run(["scores", model_file, "--data", rows, "--output", scores, "--weights", "w"], capsys)
     assert code == 0, err
     flat = " ".join(text.split())
-    assert "weight 0 in 'w' and were left out of the estimation" in flat and "The row of weight 0 is scored" in flat
+    assert "1 row has weight 0 in 'w' and was left out of the estimation" in flat and "The row of weight 0 is scored" in flat
     assert not pd.read_csv(scores).iloc[5, 1:-2].isna().any()  # that row has its scores (nothing in the last two)
     before = scores.read_bytes()
     code, _, err = _run(["simulate", model_file, "--n", 5, "--output", scores], capsys)

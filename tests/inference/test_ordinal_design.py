@@ -296,7 +296,7 @@ def test_check_states_the_design_as_the_fit_uses_it(survey):
     fitted = cfa_tool.fit(ONE_FACTOR, survey.loc[survey.index != 0], weights="w", cluster="unit", strata="stratum")
     assert found.design.to_dict() == fitted.design.to_dict()
     text = found.summary()
-    assert "Design: sampling weights (w; sum" in text and "1 rows have weight 0 in 'w' and were left out" in text
+    assert "Design: sampling weights (w; sum" in text and "1 row has weight 0 in 'w' and was left out" in text
     assert found.to_dict()["design"]["clusters"] == 80 and found.caution is None
     few = cfa_tool.check(ONE_FACTOR, survey.assign(unit=survey["unit"] // 8), cluster="unit")
     # the fit's caution, in the check's caution box as in the fit's (not in its body a second time)
