@@ -16,6 +16,7 @@ import enum
 import math
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 
@@ -24,10 +25,12 @@ from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.model.description import label_words, split_label
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.model.parameters import ParameterTable
-from cfa_tool.model.saved_estimates import AGAIN, SavedRow
 from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.numerics.linalg import cholesky_log_det
 from cfa_tool.options import Option
+
+if TYPE_CHECKING:  # a saved fit's estimate rows, for the hints only (a fit that reads none does not import them)
+    from cfa_tool.model.saved_estimates import SavedRow
 
 
 class ProblemKind(enum.Enum):
@@ -898,6 +901,8 @@ def listed_problems(listed: list, source: str) -> tuple[Problem, ...]:
                              q["advice"], q["group"], RowsPerParameter(**q["rows_per_parameter"])
                              if q.get("rows_per_parameter") is not None else None) for q in listed)
     except (ValueError, KeyError, TypeError):
+        from cfa_tool.model.saved_estimates import AGAIN
+
         raise OptionError(f"{source}: its list of problems is incomplete or changed by hand; {AGAIN}") from None
 
 

@@ -32,6 +32,7 @@ from cfa_tool.numerics.plain import clean
 
 @dataclass(frozen=True)
 class CaseDiagnostic:
+    """One row's contribution to misfit: its Mahalanobis distance, p-value and share of the chi-square."""
     row: int  # the row's number in the file as a spreadsheet shows it (data.moments.row_numbers)
     mahalanobis: float
     p_value: float

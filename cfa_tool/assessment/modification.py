@@ -38,6 +38,7 @@ if TYPE_CHECKING:  # the joint model of missing-data helpers (estimation.auxilia
 
 @dataclass(frozen=True)
 class ModificationIndex:
+    """The score test of freeing one fixed parameter, with the parameter's expected change."""
     kind: str
     variables: tuple[str, ...]
     index: float

@@ -26,6 +26,7 @@ from cfa_tool.numerics import distributions as dist
 
 @dataclass(frozen=True)
 class Normality:
+    """Mardia's (1970) multivariate skewness and kurtosis, each with its test."""
     skewness: float
     skewness_chi_square: float
     skewness_df: int

@@ -74,6 +74,7 @@ class Keying(Enum):
 
 @dataclass(frozen=True)
 class FactorReliability:
+    """One factor's reliability and validity figures (omega, composite reliability, AVE, alpha)."""
     factor: str
     items: tuple[str, ...]
     level: str  # "first-order" or "higher-order"
@@ -168,6 +169,7 @@ _FLAGS = frozenset(("points_against", "evenly_split"))
 
 @dataclass(frozen=True)
 class Htmt:
+    """The heterotrait-monotrait ratio of one pair of factors (Henseler, Ringle & Sarstedt 2015)."""
     first: str
     second: str
     ratio: float | None  # None when the ratio is not defined for this pair

@@ -265,10 +265,12 @@ def add_half_option(parser) -> None:
 def kept_rows(args: argparse.Namespace) -> list:
     """The row selections of the command line: the --keep filters, then the half of --half (drawn from the rows the
     filters keep)."""
+    keep, half = list(getattr(args, "keep", None) or []), getattr(args, "half", None)
+    if not half:  # (a run without --half does not import the halves' module)
+        return keep
     from cfa_tool.data.halves import RandomHalf
 
-    half = getattr(args, "half", None)
-    return list(getattr(args, "keep", None) or []) + ([RandomHalf(*half)] if half else [])
+    return keep + [RandomHalf(*half)]
 
 
 def check_output(args: argparse.Namespace, inputs: list[str]) -> dict:

@@ -14,6 +14,7 @@ from cfa_tool.options import option_in_both
 
 @dataclass(frozen=True)
 class ItemShape:
+    """Per item: the rows answering it, its skewness and its excess kurtosis."""
     answered: tuple[int, ...]  # rows with an answer, per item
     skewness: tuple[float, ...]  # g1 = m3 / m2^(3/2)
     kurtosis: tuple[float, ...]  # excess kurtosis g2 = m4 / m2^2 - 3

@@ -35,6 +35,7 @@ _PATTERN = re.compile(r'^\s*(?:"(?P<quoted>[^"]+)"|(?P<plain>[^\s=!<>"]+))\s*(?P
 
 @dataclass(frozen=True)
 class RowFilter:
+    """One row filter as parsed from its text, with what it left out once applied."""
     column: str
     operator: str
     value: object

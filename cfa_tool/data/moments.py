@@ -24,6 +24,7 @@ from cfa_tool.numerics.linalg import cholesky_log_det
 
 @dataclass(frozen=True)
 class SampleMoments:
+    """The covariances and means of the rows analysed (one group), with how many were read and left out."""
     names: tuple[str, ...]
     covariance: np.ndarray
     means: np.ndarray

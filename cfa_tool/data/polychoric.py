@@ -52,6 +52,7 @@ MAX_CATEGORIES = 15
 
 @dataclass(frozen=True, eq=False)
 class OrdinalMoments:
+    """Ordinal items' thresholds, polychoric correlations and their asymptotic covariance."""
     names: tuple[str, ...]
     n_obs: int
     rows_read: int

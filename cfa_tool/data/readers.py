@@ -45,6 +45,7 @@ _DELIMITERS = ",;\t|"
 
 @dataclass(frozen=True, eq=False)
 class LoadedData:
+    """A data file as read: its rows, labels, and what reading and filtering it did."""
     frame: pd.DataFrame
     source: str
     variable_labels: dict[str, str] = field(default_factory=dict)

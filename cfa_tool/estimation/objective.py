@@ -21,6 +21,7 @@ from cfa_tool.model.implied import StructuredModel
 
 @dataclass(frozen=True)
 class Evaluation:
+    """An objective's value, gradient and expected information at one point."""
     value: float
     gradient: np.ndarray
     information: np.ndarray  # expected second derivatives of F (scoring's Hessian), symmetric positive semi-definite

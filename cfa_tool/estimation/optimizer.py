@@ -64,6 +64,7 @@ class Drift:
 
 @dataclass(frozen=True)
 class OptimizerResult:
+    """Where a search ended: the estimates, the objective there and how the search ended."""
     theta: np.ndarray
     value: float
     gradient: np.ndarray

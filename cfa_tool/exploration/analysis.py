@@ -42,6 +42,7 @@ class ExploreSettings:
 
 @dataclass(frozen=True, eq=False)
 class Exploration:
+    """An exploratory factor analysis: the factor count, the solution, its rotation and a draft model."""
     data: CorrelationInput
     settings: ExploreSettings  # as run: every choice filled in
     count: FactorCount | None

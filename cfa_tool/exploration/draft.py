@@ -31,6 +31,7 @@ _LINE = 78
 
 @dataclass(frozen=True)
 class ItemPlacement:
+    """Where the draft model places one item, and why."""
     item: str
     placement: Placement
     factor: int  # factor of the largest absolute loading (0-based, in the solution's order)
@@ -40,6 +41,7 @@ class ItemPlacement:
 
 @dataclass(frozen=True)
 class DraftModel:
+    """A model text drafted from a rotated solution, with each item's placement."""
     text: str
     factor_names: tuple[str, ...]  # one per factor of the solution
     written: tuple[bool, ...]  # whether each factor became a statement (False: too few items, left as a comment)

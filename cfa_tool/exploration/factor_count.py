@@ -56,6 +56,7 @@ _CHUNK_CELLS = 4_000_000  # random matrices per batch: about 32 MB of doubles
 
 @dataclass(frozen=True, eq=False)
 class ParallelAnalysis:
+    """Horn's (1965) parallel analysis: observed eigenvalues against random ones."""
     replications: int
     seed: int
     percentile: float
@@ -84,6 +85,7 @@ class AveragePartial:
 
 @dataclass(frozen=True)
 class FitStep:
+    """The solution with one number of factors."""
     factors: int
     solution: FactorSolution
 
@@ -94,12 +96,14 @@ class FitStep:
 
 @dataclass(frozen=True)
 class CountSuggestion:
+    """The number of factors one rule suggests."""
     rule: CountRule
     factors: int | None  # None: the rule found no count within the range tried
 
 
 @dataclass(frozen=True, eq=False)
 class FactorCount:
+    """Every rule's number of factors and the recommended one."""
     recommended: int
     suggestions: tuple[CountSuggestion, ...]  # every rule's count, the three combined ones first
     combined: tuple[CountRule, ...]  # the rules whose median is the recommendation

@@ -32,6 +32,7 @@ FIRST_WORD = "item"
 
 @dataclass(frozen=True, eq=False)
 class TargetFile:
+    """A target file of target rotation as read: each item's target loadings."""
     source: str
     factors: tuple[str, ...]
     rows: dict  # item -> tuple of floats (NaN for free)

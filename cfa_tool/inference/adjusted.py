@@ -25,6 +25,7 @@ from cfa_tool.numerics.linalg import scaled_inverse
 
 @dataclass(frozen=True)
 class AdjustedTest:
+    """The mean-and-variance adjusted and scale-shifted tests of a least-squares fit."""
     statistic: float  # N F
     df: int
     scale_shifted: float

@@ -19,6 +19,7 @@ from cfa_tool.numerics.linalg import ScaledFactor, difference_hessian, scaled_in
 
 @dataclass(frozen=True)
 class Inference:
+    """Wald inference of the free parameters: standard errors, z, p-values and confidence intervals."""
     se: np.ndarray
     z: np.ndarray
     p_value: np.ndarray

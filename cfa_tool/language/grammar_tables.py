@@ -8,6 +8,10 @@ SHA-256 of the grammar text and the lark version that built it; the tables are u
 edited grammar or another lark version falls back to building them (correct, only slower).
 ``tests/language/test_grammar_tables.py`` rebuilds the tables and compares them.
 
+lark numbers the table's tokens and states in an order that changes with Python's string hashing (a new order in
+every process); the file numbers them by one rule of its own (:func:`_numbered`), so that writing it again from the
+same grammar with the same lark gives the same file, byte for byte.
+
 Regenerate after editing the grammar or upgrading lark (from the repository's top folder):
 
     python grammar/write_tables.py
@@ -17,6 +21,7 @@ from __future__ import annotations
 
 import hashlib
 import json
+from collections import deque
 from pathlib import Path
 
 import lark
@@ -63,10 +68,54 @@ def _untagged(obj: dict):
     return obj
 
 
+_SHIFT = 0  # lark's serialised actions: (0, the state shifted to) or (1, the rule reduced by)
+
+
+def _numbered(table: dict) -> dict:
+    """lark's serialised LALR table (``tokens``: number -> name; ``states``: state -> {token number: action}) with
+    numbers that do not depend on Python's string hashing: tokens numbered in the order of their names, states in
+    the order a breadth-first walk from the start states meets them, each state's actions in token order.  The
+    table reads the same text the same way: only the numbers change."""
+    names = table["tokens"]
+    token = {old: new for new, old in enumerate(sorted(names, key=names.__getitem__))}
+    states, number, queue = table["states"], {}, deque()
+
+    def meet(state: int) -> None:
+        if state not in number:
+            number[state] = len(number)
+            queue.append(state)
+
+    for start in sorted(table["start_states"]):
+        meet(table["start_states"][start])
+    while queue:
+        for old in sorted(states[queue[0]], key=token.__getitem__):
+            kind, target = states[queue[0]][old]
+            if kind == _SHIFT:
+                meet(target)
+        queue.popleft()
+    for state in sorted(states):  # (an LALR table has no state its start states do not reach)
+        meet(state)
+    return {
+        "tokens": {token[old]: names[old] for old in sorted(names, key=token.__getitem__)},
+        "states": {number[state]: {token[old]: (kind, number[target] if kind == _SHIFT else target)
+                                   for old, (kind, target) in sorted(states[state].items(),
+                                                                     key=lambda item: token[item[0]])}
+                   for state in sorted(states, key=number.__getitem__)},
+        "start_states": {name: number[state] for name, state in sorted(table["start_states"].items())},
+        "end_states": {name: number[state] for name, state in sorted(table["end_states"].items())},
+    }
+
+
 def serialised_parser(parser: Lark) -> dict:
-    """The parser as lark serialises it (what ``Lark.load`` reads back)."""
+    """The parser as lark serialises it (what ``Lark.load`` reads back), its LALR table numbered by
+    :func:`_numbered`."""
     data, memo = parser.memo_serialize([TerminalDef, Rule])
-    return {"data": data, "memo": memo}
+    frontend = data["parser"]
+    table = frontend["parser"]
+    if not {"tokens", "states", "start_states", "end_states"} <= set(table):  # another lark: as it serialises it
+        return {"data": data, "memo": memo}
+    table = {**table, **_numbered(table)}
+    return {"data": {**data, "parser": {**frontend, "parser": table}}, "memo": memo}
 
 
 def tables_text(grammar: str) -> str:

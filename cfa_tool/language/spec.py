@@ -72,6 +72,7 @@ def fix_sets_scale(kind: str, value: float) -> bool:
 
 @dataclass(frozen=True)
 class Name:
+    """A name as the model text writes it, with where it stands."""
     text: str
     location: Location
 
@@ -101,6 +102,7 @@ class ParameterRef:
 
 @dataclass(frozen=True)
 class Factor:
+    """A factor statement: the factor's name and its indicators."""
     name: Name
     indicators: tuple[Name, ...]
 
@@ -126,6 +128,7 @@ class ValueSetting:
 
 @dataclass(frozen=True)
 class BoundSetting:
+    """A statement of lower and upper bounds on parameters."""
     refs: tuple[ParameterRef, ...]
     lower: float | None
     upper: float | None

@@ -20,6 +20,7 @@ from cfa_tool.model.parameters import ParameterTable
 
 @dataclass(frozen=True)
 class FactorScale:
+    """How one factor's scale is set."""
     factor: str
     method: str  # "marker", "variance", "effects", "fixed by the model" (a fix the model file states)
     marker: str | None = None  # the indicator whose loading is fixed, for marker scaling
@@ -40,6 +41,7 @@ class FactorScale:
 
 @dataclass(frozen=True)
 class ModelDescription:
+    """What exactly was fitted, in the terms of a methods section."""
     first_order: tuple[str, ...]
     higher_order: tuple[tuple[str, tuple[str, ...]], ...]  # (factor, the factors it explains)
     indicators: tuple[str, ...]

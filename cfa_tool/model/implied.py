@@ -26,6 +26,7 @@ from cfa_tool.model.rank_two import entry_basis, second_order_layout
 
 @dataclass(frozen=True)
 class ModelMatrices:
+    """The model matrices of one group at one parameter vector."""
     L: np.ndarray
     B: np.ndarray
     P: np.ndarray

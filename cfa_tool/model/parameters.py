@@ -86,6 +86,7 @@ class Parameter:
 
 @dataclass(frozen=True)
 class ParameterTable:
+    """Which matrix entries of which group are free, fixed or tied, and the free parameters' starts and bounds."""
     observed: tuple[str, ...]
     latent: tuple[str, ...]
     parameters: tuple[Parameter, ...]

@@ -57,6 +57,7 @@ LISTWISE_WARNING_SHARE = 0.05  # more rows lost than this to listwise deletion: 
 
 @dataclass(frozen=True)
 class FitOptions:
+    """How a model is fitted and what the fit computes beside the estimates."""
     # source of the standard errors: None means the estimator's own (expected information for complete
     # data, observed information with full-information ML); robust tests use the sandwich
     information: Information | None = None

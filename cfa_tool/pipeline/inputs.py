@@ -16,6 +16,7 @@ import pandas as pd
 
 if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports it where it makes one)
     from cfa_tool.assessment.admissibility import Problem
+    from cfa_tool.data.halves import RandomHalf
 
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.groups import SmallGroupsError, split_moments
@@ -30,7 +31,6 @@ from cfa_tool.data.non_answers import also_no_answer, beyond_scale, non_answer_c
 from cfa_tool.data.descriptives import few_category_items, few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
-from cfa_tool.data.halves import RandomHalf, half_kept
 from cfa_tool.data.readers import (LoadedData, blank_text_as_missing, drop_blank_rows,
                                    first_data_option, read_data, with_no_answers_read)
 from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame, renamed_hint
@@ -207,11 +207,21 @@ def keep_option(keep) -> list:
     them."""
     if keep is None:
         return []
-    if isinstance(keep, (str, RandomHalf)):
+    if isinstance(keep, (list, tuple)):
+        return list(keep)
+    if isinstance(keep, str) or _halves([keep]):
         return [keep]
-    if not isinstance(keep, (list, tuple)):
-        raise OptionError(f"keep must be a row filter (text) or a list of them, not {type(keep).__name__}")
-    return list(keep)
+    raise OptionError(f"keep must be a row filter (text) or a list of them, not {type(keep).__name__}")
+
+
+def _halves(keep: list) -> list:
+    """The halves of halves files (data.halves.RandomHalf) among the row selections ``keep``: filters are text, so
+    that a run given none of anything else does not import the halves' module."""
+    if all(isinstance(k, str) for k in keep):
+        return []
+    from cfa_tool.data.halves import RandomHalf
+
+    return [k for k in keep if isinstance(k, RandomHalf)]
 
 
 def load_data_for(spec: Spec, data, sheet=None, missing_codes=(), text_columns: tuple[str, ...] = (),
@@ -254,10 +264,10 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
                                           rename_option, chosen, keeps_gaps)
     keep = keep_option(keep)
     spec = load_spec(model)
-    halves = [k for k in keep if isinstance(k, RandomHalf)]
+    halves = _halves(keep)
     if len(halves) > 1:
         raise OptionError(f"one half of a halves file at a time, not {len(halves)} ({', '.join(f'{h.name} of {h.path}' for h in halves)})")
-    filters = [parse_filter(k) for k in keep if not isinstance(k, RandomHalf)]
+    filters = [parse_filter(k) for k in keep if all(k is not h for h in halves)]
     loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters, names_row, names_option,
                            first_data_row, rename, rename_option)
     frame = loaded.frame
@@ -358,6 +368,8 @@ def half_of(loaded: LoadedData, choice: RandomHalf, data, sheet: str | None = No
     """``loaded`` with only the rows of one half of a halves file (data.halves.half_kept, checked against the data
     file ``data``, the ``sheet`` asked for and the sheet read, and the model's ``items`` with the handling of rows
     with gaps), the half joining the row filters that the reports name."""
+    from cfa_tool.data.halves import half_kept
+
     frame, half = half_kept(loaded.frame, choice, data, loaded.source, sheet, loaded.sheet_read, items, keeps_gaps)
     return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame),
                    read_frame=loaded.read_frame if loaded.read_frame is not None else loaded.frame,

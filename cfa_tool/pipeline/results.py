@@ -31,6 +31,7 @@ DEFAULT_MI_THRESHOLD = 3.84  # chi-square(1) critical value at alpha = .05
 
 @dataclass(frozen=True)
 class EstimateRow:
+    """One parameter's estimate with its standard error, test, interval and standardized values."""
     kind: str
     variables: tuple[str, ...]
     free: bool
@@ -212,6 +213,7 @@ class CheckResult(Presentable):
 
 @dataclass(frozen=True)
 class DataSummary:
+    """The data a fit analysed: rows read and left out, and each item's summary."""
     source: str
     rows_read: int
     rows_dropped: int
@@ -383,6 +385,7 @@ class GroupResult:
 
 @dataclass(frozen=True, eq=False)
 class FitResult(Presentable):
+    """Everything one fit found, as every view shows it."""
     model_name: str
     model_source: str
     model_text: str

@@ -52,6 +52,7 @@ KIND_TITLES = {
 
 @dataclass(frozen=True)
 class ReportTable:
+    """One table of a report as plain data: title, columns, rows of text and its note."""
     key: str
     title: str
     columns: tuple[str, ...]

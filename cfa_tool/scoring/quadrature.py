@@ -32,6 +32,7 @@ SOBOL_SEED = 20261202
 
 @dataclass(frozen=True, eq=False)
 class Rule:
+    """A quadrature rule: its points and the logarithms of their weights."""
     kind: RuleKind
     points: np.ndarray  # (K, r)
     log_weights: np.ndarray  # (K,)

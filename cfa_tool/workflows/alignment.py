@@ -242,6 +242,7 @@ def loss_cross_derivatives(problem: FactorProblem, z: np.ndarray) -> np.ndarray:
 
 @dataclass(frozen=True)
 class Minimum:
+    """Where the alignment loss's search ended."""
     z: np.ndarray
     loss: float
     converged: bool
@@ -464,6 +465,7 @@ class ParameterInvariance:
 
 @dataclass(frozen=True)
 class FactorAlignment:
+    """One factor aligned across the groups."""
     factor: str
     items: tuple[str, ...]
     loss: float  # the total simplicity loss at the minimum, with the weights sqrt(N_g N_h)
@@ -511,6 +513,7 @@ class FactorCheck:
 
 @dataclass(frozen=True)
 class TrustCheck:
+    """The Monte Carlo check of the aligned means."""
     trials: int
     completed: int  # trials whose every group converged
     seed: int
@@ -523,6 +526,7 @@ class TrustCheck:
 
 @dataclass(frozen=True, eq=False)
 class AlignmentResult(Presentable):
+    """Group means and variances across many groups by alignment."""
     configural: FitResult
     group_column: str
     groups: tuple[str, ...]  # the reference group first

@@ -74,6 +74,7 @@ BOLLEN_STINE_WITH_GAPS = ("the Bollen-Stine bootstrap resamples rows transformed
 
 @dataclass(frozen=True)
 class BootInterval:
+    """One parameter's bootstrap intervals and standard error."""
     kind: str
     variables: tuple[str, ...]
     scale: str  # "unstandardized" or "standardized"

@@ -40,6 +40,7 @@ from cfa_tool.views import Presentable
 
 @dataclass(frozen=True)
 class NotNested:
+    """A pair of models that are not nested, and why."""
     first: str
     second: str
     reason: str
@@ -49,6 +50,7 @@ class NotNested:
 
 @dataclass(frozen=True, eq=False)
 class Comparison(Presentable):
+    """Several models fitted to the same rows and compared."""
     names: tuple[str, ...]
     results: tuple[FitResult, ...]
     tests: tuple[DifferenceTest, ...]

@@ -52,6 +52,7 @@ INDICES = ("cfi", "rmsea", "srmr")
 
 @dataclass(frozen=True)
 class Cutoff:
+    """One fit index's simulated cutoff at one level."""
     index: str
     level: float
     cutoff: float | None  # None: the distributions overlap too much at this level

@@ -85,6 +85,7 @@ class SplitHalves:
 
 @dataclass(frozen=True, eq=False)
 class ExploreResult(Presentable):
+    """An exploratory analysis of a data file's items, with its draft model."""
     source: str
     items: tuple[str, ...]
     rows_read: int

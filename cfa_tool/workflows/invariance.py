@@ -131,6 +131,7 @@ EQUAL_SCORE_TESTS = 1e-6
 
 @dataclass(frozen=True)
 class FreedParameter:
+    """A parameter freed by the partial-invariance search."""
     level: str
     kind: str
     variables: tuple[str, ...]
@@ -148,6 +149,7 @@ class FreedParameter:
 
 @dataclass(frozen=True, eq=False)
 class InvarianceStep:
+    """One step of the invariance ladder and its test against the step before."""
     level: str
     result: FitResult
     versus_previous: DifferenceTest | None
@@ -253,6 +255,7 @@ class LatentDifference:
 
 @dataclass(frozen=True, eq=False)
 class InvarianceResult(Presentable):
+    """The invariance ladder across groups."""
     group_column: str
     groups: tuple[str, ...]
     steps: tuple[InvarianceStep, ...]

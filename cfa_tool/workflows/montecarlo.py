@@ -27,6 +27,7 @@ from cfa_tool.views import Presentable
 
 @dataclass(frozen=True)
 class ParameterPower:
+    """One parameter's bias, coverage and power over the simulated samples."""
     label: str
     population: float
     mean_estimate: float
@@ -47,6 +48,7 @@ class ParameterPower:
 
 @dataclass(frozen=True)
 class MonteCarloPower(Presentable):
+    """Power by Monte Carlo simulation of the model."""
     n_obs: int
     replications: int
     converged: int

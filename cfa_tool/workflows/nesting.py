@@ -26,6 +26,7 @@ NESTING_TOLERANCE = 1e-7  # minimum discrepancy below which the implied moments 
 
 @dataclass(frozen=True)
 class DifferenceTest:
+    """The chi-square difference test of a restricted model against a general one."""
     restricted: str
     general: str
     chi_square_difference: float

@@ -30,6 +30,7 @@ TESTS = {  # name: (eps0, eps_a), the conventions of MacCallum, Browne & Sugawar
 
 @dataclass(frozen=True)
 class PowerResult(Presentable):
+    """The power of a test of fit by the RMSEA (MacCallum, Browne & Sugawara 1996)."""
     test: str
     df: int
     rmsea_null: float

@@ -124,6 +124,7 @@ def sample_rows(moments, result: FitResult) -> SampleRows:
 
 @dataclass(frozen=True, eq=False)
 class Replication(Presentable):
+    """A model's fit in a calibration sample replicated in a validation sample."""
     calibration: str
     validation: str
     calibration_result: FitResult

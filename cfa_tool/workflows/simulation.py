@@ -62,6 +62,7 @@ class ValueSource(Enum):
 
 @dataclass(frozen=True, eq=False)
 class Population:
+    """A model's population values, from which samples are simulated."""
     spec: Spec
     table: ParameterTable
     theta: np.ndarray

@@ -52,6 +52,10 @@ def test_a_fit_from_the_command_line_imports_only_what_its_report_uses(tmp_path)
     for module in ("estimation.fiml", "estimation.stacked", "inference.robust", "inference.design", "data.em",
                    "data.patterns"):
         assert f"cfa_tool.{module}" not in loaded, module
+    # nor the halves of halves files (--half) or a saved fit's estimate rows: their dataclasses cost every start
+    # (bench/README.md, "Eighteenth round: the cold start")
+    for module in ("data.halves", "model.saved_estimates"):
+        assert f"cfa_tool.{module}" not in loaded, module
     assert "cfa_tool.reporting.terminal" in loaded  # (what the report was drawn with)
     assert threshold == cli.COLLECT_EVERY
 
