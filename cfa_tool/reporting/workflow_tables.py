@@ -76,11 +76,13 @@ def _caution_lines(named_results, poor_fit: bool = True, small_groups: bool = Tr
     carries next to nothing, a standardized loading above 1, fewer rows than free parameters in the sample or a
     group, a fit poor by common bounds, unless ``poor_fit`` is False: an invariance test judges its configural
     model's fit by its own guides; groups smaller than their model unless ``small_groups`` is False: an invariance
-    result says them once among its own cautions), each once, named by its model; a robust test whose scaling
-    factor is not positive (its figures are dashes in the tables).  ``only``: these kinds alone (an invariance
-    ladder's later steps: what their own fits could not compute)."""
+    result says them once among its own cautions), each once, named by its model; a keying of reverse-scored items
+    that the loadings contradict, or a factor pointing against its items (assessment.reliability.keying_problems),
+    and a robust test whose scaling factor is not positive (its figures are dashes in the tables).  ``only``: these
+    kinds alone (an invariance ladder's later steps: what their own fits could not compute)."""
     kinds = only if only is not None else (
         ProblemKind.WEAK_METHOD_FACTOR, ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE, ProblemKind.SMALL_SAMPLE,
+        ProblemKind.KEYING_AGAINST_LOADINGS, ProblemKind.FACTOR_POINTS_AGAINST_ITEMS,
         ProblemKind.SCALED_TEST_NOT_COMPUTED) + (
         (ProblemKind.SMALL_GROUP,) if small_groups else ()) + ((ProblemKind.POOR_FIT,) if poor_fit else ())
     lines: list[str] = []

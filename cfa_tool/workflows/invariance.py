@@ -443,10 +443,14 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 progress(0, 1)
             # exemptions apply from the level that holds their class equal
             level_spec = spec_of_level(spec, classes, exceptions)
+            # the configural model with its reliability, so that the keying its loadings contradict is a problem of its
+            # solution, first in the ladder as in fit (assessment.reliability.keying_problems); the later steps, their
+            # loadings held equal (and refitted often by the partial search), without
+            assessed = fit_options if steps else replace(fit_options, reliability=True)
             with threads:
                 est = ladder.estimate(level_spec, groups, fit_options, start)
                 # rows without a group label count as read, as fit counts them (the methods paragraph)
-                result = with_rows_read(with_missing_reading(ladder.assess(level_spec, groups, est, fit_options, group),
+                result = with_rows_read(with_missing_reading(ladder.assess(level_spec, groups, est, assessed, group),
                                                              analysed, missing_codes), loaded)
             if not result.converged:
                 why = next((p for p in result.problems if p.kind is not ProblemKind.SMALL_GROUP), None)
