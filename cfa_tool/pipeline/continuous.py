@@ -79,6 +79,10 @@ class FitOptions:
     # (the normal-theory one under a sampling design or to ordinal items) is refused, never replaced; kept as it is by
     # dataclasses.replace, and set from ``test`` when not given
     test_chosen: bool | None = field(default=None, metadata={"keyword": False})  # not a keyword of the public functions
+    # the factors' reliability without the other diagnostics, so that the keying the loadings contradict is a problem
+    # of the solution as in fit (assessment.reliability.keying_problems): for workflows that report their models'
+    # problems (compare, the invariance ladder's configural model); not a keyword of the public functions
+    reliability: bool = field(default=False, metadata={"keyword": False})
 
     def __post_init__(self) -> None:
         if self.test_chosen is None:
@@ -550,10 +554,12 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 latent_covariance=mats[g].latent_covariance(),
                 normality=mardia(gm.rows, whitened, _frequency_weights(gm)) if whitened is not None else None,
                 **_group_diagnostics(mats[g], table, gm, _answering_items(m, est.auxiliary.answered[g])
-                                     if est.auxiliary is not None else m, sigma, est.converged and options.diagnostics,
+                                     if est.auxiliary is not None else m, sigma,
+                                     est.converged and (options.diagnostics or options.reliability),
                                      spec.reverse_keyed or None, spec.method_factors | spec.exploratory_factors, whitened,
                                      likelihood.sigma_inverse(theta, g) if hasattr(likelihood, "sigma_inverse") else None,
-                                     likelihood.patterns[g].rows if hasattr(likelihood, "patterns") else None),
+                                     likelihood.patterns[g].rows if hasattr(likelihood, "patterns") else None,
+                                     reliability_only=not options.diagnostics),
             )
         )
     for g, result in enumerate(group_results):
@@ -699,8 +705,10 @@ def estimate_rows(table: ParameterTable, values: np.ndarray, inference, standard
 def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: np.ndarray, wanted: bool,
                        declared: dict[str, tuple[float, float]] | None, not_traits: frozenset[str] = frozenset(),
                        whitened: Whitened | None = None,
-                       inverse: tuple[np.ndarray, float] | None = None, gap_rows: np.ndarray | None = None) -> dict:
-    """Reliability, normalized residuals and case diagnostics of one group (skipped by workflows that refit often);
+                       inverse: tuple[np.ndarray, float] | None = None, gap_rows: np.ndarray | None = None,
+                       reliability_only: bool = False) -> dict:
+    """Reliability, normalized residuals and case diagnostics of one group (skipped by workflows that refit often;
+    ``reliability_only``: the reliability alone, FitOptions.reliability);
     ``gap_rows``: under full-information ML, the group's rows with their gaps (NaN), in the order of its row numbers;
     ``declared``: the reverse-keyed items of a 'reversed' statement, if any; ``whitened`` and ``inverse``: the
     whitened rows and (Sigma^-1, log|Sigma|), shared with Mardia's tests and the estimation."""
@@ -708,6 +716,8 @@ def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: n
         return {}
     factors, htmt = reliability(mats, table.observed, table.latent, gm.covariance, gm.mean, declared, gm.n_obs,
                                 not_traits=not_traits)
+    if reliability_only:
+        return {"reliability": tuple(factors), "htmt": tuple(htmt)}
     out = {"reliability": tuple(factors), "htmt": tuple(htmt),
            "normalized_residuals": normalized_residuals(gm.covariance, sigma, gm.n_obs)}
     if gm.rows is not None and not np.isnan(gm.rows).any():

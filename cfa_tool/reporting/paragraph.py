@@ -1258,7 +1258,9 @@ def _fit_figures(result) -> str:
                 f"{f.chi_square:.2f}, {_p(f.p_value)}, SRMR = {fit_index_text('srmr', f.srmr)}")
     if r is not None:
         low, high = r.rmsea_robust_ci90
-        return (f"{CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)}, robust CFI = {fit_index_text('cfi', r.cfi_robust)}, "
+        cfi = ("not computed (the baseline model's scaling factor was not positive)"
+               if r.not_computed and missing(r.cfi_robust) else fit_index_text('cfi', r.cfi_robust))
+        return (f"{CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)}, robust CFI = {cfi}, "
                 f"robust RMSEA = {fit_index_text('rmsea', r.rmsea_robust)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {fit_index_text('srmr', f.srmr)}")
     low, high = f.rmsea_ci90
     return (f"{CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {fit_index_text('cfi', f.cfi)}, RMSEA = {fit_index_text('rmsea', f.rmsea)}, "
@@ -1358,6 +1360,7 @@ def comparison_paragraph(comparison) -> str:
     methods = sorted({found[0].method for found in shown.values() if found}, key=_PREFERRED.index)
     if methods:
         fits = ("" if first.method.ordinal or first.robust is None else
+                " of the normal-theory chi-squares" if methods == [DifferenceMethod.LIKELIHOOD_RATIO] else
                 f" of the {first.robust.statistic(plural=True)}")
         parts.append(f"Nested models (found numerically: the general model reproduces the restricted model's implied "
                      f"{'thresholds and correlations' if first.method.ordinal else 'moments'}; Bentler & Satorra, 2010) "
@@ -1374,14 +1377,14 @@ def comparison_paragraph(comparison) -> str:
         if not shown[(restricted, general)]:  # why each was not is said above; the changes in fit stay descriptions
             t = sorted(found, key=lambda t: _PREFERRED.index(t.method))[0]
             changes = ("" if first.method.ordinal or math.isnan(t.delta_cfi) else
-                       f"; \u0394CFI = {signed(t.delta_cfi)}, \u0394RMSEA = {signed(t.delta_rmsea)}")
+                       f"; {_change('CFI', t.delta_cfi)}, {_change('RMSEA', t.delta_rmsea)}")
             parts.append(f"For {pair} no difference statistic could be computed{changes}.")
             continue
         t = shown[(restricted, general)][0]
         which = f", {t.method}" if len(methods) > 1 else ""
         sentence = (f"{pair}: {CHI}({t.df_difference}) = {t.chi_square_difference:.2f}, {_p(t.p_value)}{which}"
                     + ("." if first.method.ordinal else
-                       f"; \u0394CFI = {signed(t.delta_cfi)}, \u0394RMSEA = {signed(t.delta_rmsea)}."))
+                       f"; {_change('CFI', t.delta_cfi)}, {_change('RMSEA', t.delta_rmsea)}."))
         if t.boundary:
             sentence += (f" Because {label[restricted]} has {_list(list(t.boundary))}, values on the boundary of the "
                          f"parameter space of {label[general]}, the difference does not follow the usual chi-square "
@@ -1426,12 +1429,17 @@ def _step_figures(step) -> str:
     if not step.result.method.ordinal:  # the adjusted indices of ordinal fits are not compared between models
         from cfa_tool.workflows.invariance import CFI_GUIDE, RMSEA_GUIDE, SRMR_GUIDE, SRMR_GUIDE_LATER
 
-        text += (f", \u0394CFI = {signed(t.delta_cfi, beside=CFI_GUIDE)}, "
-                 f"\u0394RMSEA = {signed(t.delta_rmsea, beside=RMSEA_GUIDE)}")
+        text += f", {_change('CFI', t.delta_cfi, CFI_GUIDE)}, {_change('RMSEA', t.delta_rmsea, RMSEA_GUIDE)}"
         if step.delta_srmr is not None:
             text += (f", \u0394SRMR = "
                      f"{signed(step.delta_srmr, beside=SRMR_GUIDE.get(step.level, SRMR_GUIDE_LATER))}")
     return text
+
+
+def _change(index: str, value: float, guide: float | None = None) -> str:
+    """A change in a fit index in a sentence: '\u0394CFI = +.002', or 'no \u0394CFI' when a robust index it needs
+    was not computed (a scaling factor not positive: inference.robust.robust_fit), never an empty place."""
+    return f"no \u0394{index}" if missing(value) else f"\u0394{index} = {signed(value, beside=guide)}"
 
 
 def _held(step, basis: str = "") -> str:
@@ -1444,6 +1452,8 @@ def _held(step, basis: str = "") -> str:
         return "did not hold: its solution was not admissible"
     if step.untested:
         return "was not tested: its model adds no equality to the step before"
+    if getattr(step, "unjudged", ""):  # the robust figures its rule reads were not computed
+        return f"could not be judged: {step.unjudged}"
     if step.holds and basis:
         return f"cannot be read as held, though it met its test: it rests on {basis}"
     return "held" if step.holds else "did not hold"

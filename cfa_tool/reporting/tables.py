@@ -216,6 +216,33 @@ def _row(label: str, text: str, guide: str, *values: tuple) -> FitRow:
 
 JUST_IDENTIFIED = "the model is just-identified: it reproduces the data exactly, so its fit cannot be tested"
 
+#: a table cell of a figure that was not computed (a robust test whose scaling factor is not positive), explained in
+#: the table's note: never 'nan' and never an empty place that reads as a figure left out
+NOT_COMPUTED = "\u2014"
+
+
+#: the fit table's words for a robust index not computed (its scaled test's or its baseline's scaling factor not
+#: positive), which the caution first explains
+NOT_COMPUTED_HERE = "not computed (see the caution first)"
+
+
+def robust_cell(robust, value, text: str) -> str:
+    """A robust figure's cell: ``text`` (the value formatted), or :data:`NOT_COMPUTED` when the value is missing
+    because ``robust``'s scaling factor (or its baseline model's) is not positive (inference.robust.robust_fit)."""
+    return NOT_COMPUTED if missing(value) and getattr(robust, "not_computed", "") else text
+
+
+def not_computed_words(robust) -> str:
+    """What of a robust test was not computed and why, in a few words for a table's note ('' when all was): the
+    caution first in every view says it in full (pipeline.continuous.scaled_test_problem)."""
+    if robust is None or not robust.not_computed:
+        return ""
+    if missing(robust.chi_square_scaled):
+        return (f"the scaled test, its p-value and the robust indices: its scaling factor "
+                f"({num(robust.scaling_factor, 3)}) is not positive")
+    return (f"the robust CFI and TLI: the baseline model's scaling factor ({num(robust.baseline_scaling_factor, 3)}) "
+            f"is not positive")
+
 
 def fit_rows(result) -> list[FitRow]:
     """The lines of the fit table in the order of every view: with a robust test, its figures first, then SRMR,
@@ -249,11 +276,13 @@ def fit_rows(result) -> list[FitRow]:
                      "the test to read for these data" if not missing(r.chi_square_scaled) else "",
                      (f"Scaled chi-square ({r.label})", r.chi_square_scaled, r.df, r.p_value_scaled)),
                 _row(label, text, guide, *[(name.capitalize(), value) for name, value in r.pieces]),
-                _row("Robust CFI / TLI", f"{fit_index_text('cfi', r.cfi_robust)} / {fit_index_text('tli', r.tli_robust)}",
+                _row("Robust CFI / TLI", NOT_COMPUTED_HERE if missing(r.cfi_robust) and r.not_computed else
+                     f"{fit_index_text('cfi', r.cfi_robust)} / {fit_index_text('tli', r.tli_robust)}",
                      guide_text("cfi"),
                      ("Robust CFI", r.cfi_robust), ("Robust TLI", r.tli_robust)),
-                _row("Robust RMSEA [90% interval]", f"{fit_index_text('rmsea', r.rmsea_robust)} [{unit(rlow)}, "
-                     f"{unit(rhigh)}]", guide_text("rmsea"), ("Robust RMSEA", r.rmsea_robust, None, None, rlow, rhigh)),
+                _row("Robust RMSEA [90% interval]", NOT_COMPUTED_HERE if missing(r.rmsea_robust) and r.not_computed else
+                     f"{fit_index_text('rmsea', r.rmsea_robust)} [{unit(rlow)}, {unit(rhigh)}]", guide_text("rmsea"),
+                     ("Robust RMSEA", r.rmsea_robust, None, None, rlow, rhigh)),
                 srmr] + [row.unadjusted() for row in plain if f.df > 0]
     rows.append(_row("Baseline (independence) chi-square", f"{f.baseline_chi_square:.3f} on {f.baseline_df} df", "",
                      ("Baseline (independence) chi-square", f.baseline_chi_square, f.baseline_df)))

@@ -70,13 +70,20 @@ def _failed_lines(named_results) -> list[Text]:
     return lines
 
 
-def _caution_lines(named_results, poor_fit: bool = True, small_groups: bool = True) -> list[str]:
+def _caution_lines(named_results, poor_fit: bool = True, small_groups: bool = True,
+                   only: tuple[ProblemKind, ...] | None = None) -> list[str]:
     """One line per caution about a solution that is admissible but needs care in reading (a method factor that
     carries next to nothing, a standardized loading above 1, fewer rows than free parameters in the sample or a
     group, a fit poor by common bounds, unless ``poor_fit`` is False: an invariance test judges its configural
     model's fit by its own guides; groups smaller than their model unless ``small_groups`` is False: an invariance
-    result says them once among its own cautions), each once, named by its model."""
-    kinds = (ProblemKind.WEAK_METHOD_FACTOR, ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE, ProblemKind.SMALL_SAMPLE) + (
+    result says them once among its own cautions), each once, named by its model; a keying of reverse-scored items
+    that the loadings contradict, or a factor pointing against its items (assessment.reliability.keying_problems),
+    and a robust test whose scaling factor is not positive (its figures are dashes in the tables).  ``only``: these
+    kinds alone (an invariance ladder's later steps: what their own fits could not compute)."""
+    kinds = only if only is not None else (
+        ProblemKind.WEAK_METHOD_FACTOR, ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE, ProblemKind.SMALL_SAMPLE,
+        ProblemKind.KEYING_AGAINST_LOADINGS, ProblemKind.FACTOR_POINTS_AGAINST_ITEMS,
+        ProblemKind.SCALED_TEST_NOT_COMPUTED) + (
         (ProblemKind.SMALL_GROUP,) if small_groups else ()) + ((ProblemKind.POOR_FIT,) if poor_fit else ())
     lines: list[str] = []
     for name, r in named_results:
@@ -185,11 +192,39 @@ def _comparison_cells(r, test) -> tuple[list[str], list]:
             values += [None] * len(_robust_values(test))
         else:
             rl, rh = rb.rmsea_robust_ci90
-            cells += [f"{rb.chi_square_scaled:.3f}", T.correction_text(rb), p_value(rb.p_value_scaled),
-                      unit(rb.cfi_robust), unit(rb.tli_robust), unit(rb.rmsea_robust), f"[{unit(rl)}, {unit(rh)}]"]
+            cell = T.robust_cell  # a figure not computed: a dash, which the table's note explains
+            cells += [cell(rb, rb.chi_square_scaled, num(rb.chi_square_scaled)), T.correction_text(rb),
+                      cell(rb, rb.p_value_scaled, p_value(rb.p_value_scaled)), cell(rb, rb.cfi_robust, unit(rb.cfi_robust)),
+                      cell(rb, rb.tli_robust, unit(rb.tli_robust)), cell(rb, rb.rmsea_robust, unit(rb.rmsea_robust)),
+                      cell(rb, rl, f"[{unit(rl)}, {unit(rh)}]")]
             values += [rb.chi_square_scaled, *(value for _, value in rb.pieces), rb.p_value_scaled, rb.cfi_robust,
                        rb.tli_robust, rb.rmsea_robust, rl, rh]
     return cells, values
+
+
+def not_computed_note(named_results) -> str | None:
+    """The note of a table with cells of robust figures not computed (:data:`tables.NOT_COMPUTED`): whose and why, in
+    a few words (each fit's caution, first, says it in full); None when every figure was computed."""
+    said = [f"{name}: {T.not_computed_words(r.robust)}" for name, r in named_results
+            if r.converged and T.not_computed_words(r.robust)]
+    if not said:
+        return None
+    return f"{T.NOT_COMPUTED} not computed: " + "; ".join(said) + " (see the caution first)."
+
+
+def _change(value: float, dashes: str | None) -> str:
+    """A change in a fit index between two fits: signed, or a dash when it is missing because a robust index was not
+    computed (``dashes``: the note of the fit table that says whose; None when all were)."""
+    return T.NOT_COMPUTED if missing(value) and dashes is not None else signed(value)
+
+
+def _changes_note(rows, dashes: str | None, ordinal: bool) -> Note | None:
+    """The note of a difference-test table whose changes in robust indices are dashes: they need a robust index that
+    was not computed (the fit table's note says whose)."""
+    if dashes is None or ordinal or not any(T.NOT_COMPUTED in row[3:] for row in rows):
+        return None
+    return Note((f"{T.NOT_COMPUTED} in \u0394CFI or \u0394RMSEA: a robust index of a model was not computed (see the "
+                 f"note under ", TableReference("model_fit"), ")."))
 
 
 def _information_criterion(value) -> str:
@@ -328,8 +363,9 @@ def comparison_report(comparison) -> Report:
     rows = [[label, *[c[0][k] for c in cells]] for k, label in enumerate(labels)]
     bad = any(r.converged and not r.admissible for r in comparison.results)
     value_columns = ["Model", *value_labels]
+    dashes = not_computed_note(named)
     tables = [_table("model_fit", "Fit of each model", [("", "l")] + [(name, "r") for name in comparison.names], rows,
-                     flagged=(0,) if bad else (),
+                     dashes, flagged=(0,) if bad else (),
                      values=(value_columns, [[name, *c[1]] for name, c in zip(comparison.names, cells)]))]
     pairs: dict[tuple[str, str], list] = {}
     for t in comparison.tests:
@@ -342,13 +378,14 @@ def comparison_report(comparison) -> Report:
         boundary = found[0].boundary
         for t in found:
             if t.not_computed:  # the changes in fit indices describe the two fits, with or without a statistic
-                rows.append([t.method, f"not computed ({t.df_difference})", "", signed(t.delta_cfi),
-                             signed(t.delta_rmsea)])
+                rows.append([t.method, f"not computed ({t.df_difference})", "", _change(t.delta_cfi, dashes),
+                             _change(t.delta_rmsea, dashes)])
                 notes.append(f"{t.method}: not computed: " + t.not_computed + (f"; {t.advice}" if t.advice else "")
                              + ".")
             else:
                 rows.append([t.method, f"{t.chi_square_difference:.3f} ({t.df_difference})",
-                             p_value(t.p_value) + (" *" if boundary else ""), signed(t.delta_cfi), signed(t.delta_rmsea)])
+                             p_value(t.p_value) + (" *" if boundary else ""), _change(t.delta_cfi, dashes),
+                             _change(t.delta_rmsea, dashes)])
                 if t.scaled_by:  # the factors and correction a scaled difference took, as computed (nesting._scaled_by)
                     pair = f" ({restricted} against {general})" if len(pairs) > 1 else ""
                     notes.append(f"{t.method}{pair}: {t.scaled_by}.")
@@ -372,7 +409,8 @@ def comparison_report(comparison) -> Report:
             value_names = value_names[:4] + value_names[6:]
             values = [row[:4] + row[6:] for row in values]
         tables.append(_table(key, f"{restricted} (restricted) against {general}: difference tests",
-                             columns, rows, boundary_note(found, explained, criteria, ordinal) if boundary else None,
+                             columns, rows, joined((boundary_note(found, explained, criteria, ordinal) if boundary
+                                                    else None, _changes_note(rows, dashes, ordinal))) or None,
                              values=(value_names, values)))
         explained = key if boundary and explained is None else explained
     if any(t.method is DifferenceMethod.SATORRA_BENTLER_2010 and not t.not_computed for t in comparison.tests):
@@ -397,9 +435,12 @@ def _level_fit_cells(result, adjusted: bool) -> tuple[list[str], list]:
     fit, robust = result.fit, result.robust
     if fit is None or not result.converged:
         return ["did not converge", "", "", "", ""], [None] * 6
-    if adjusted and robust is not None:  # ordinal items: the adjusted statistic and robust indices
-        return ([f"{robust.chi_square_scaled:.2f} ({robust.df})", p_value(robust.p_value_scaled),
-                 fit_index_text("cfi", robust.cfi_robust), fit_index_text("rmsea", robust.rmsea_robust),
+    if adjusted and robust is not None:  # the scaled (ordinal items: adjusted) statistic and robust indices
+        cell = T.robust_cell  # a figure not computed: a dash, which the table's note explains
+        return ([cell(robust, robust.chi_square_scaled, f"{robust.chi_square_scaled:.2f} ({robust.df})"),
+                 cell(robust, robust.p_value_scaled, p_value(robust.p_value_scaled)),
+                 cell(robust, robust.cfi_robust, fit_index_text("cfi", robust.cfi_robust)),
+                 cell(robust, robust.rmsea_robust, fit_index_text("rmsea", robust.rmsea_robust)),
                  fit_index_text("srmr", fit.srmr)],
                 [robust.chi_square_scaled, robust.df, robust.p_value_scaled, robust.cfi_robust, robust.rmsea_robust,
                  fit.srmr])
@@ -408,12 +449,16 @@ def _level_fit_cells(result, adjusted: bool) -> tuple[list[str], list]:
             [fit.chi_square, fit.df, fit.p_value, fit.cfi, fit.rmsea, fit.srmr])
 
 
-def _step_cells(t, delta_srmr, level: str) -> tuple[list[str], list]:
-    """A step's difference test and changes in fit, each change printed on the side of its guide it lies on."""
+def _step_cells(t, delta_srmr, level: str, dashes: bool = False) -> tuple[list[str], list]:
+    """A step's difference test and changes in fit, each change printed on the side of its guide it lies on;
+    ``dashes``: a change missing because a robust index was not computed is a dash (the table's note says so)."""
     from cfa_tool.workflows.invariance import CFI_GUIDE, RMSEA_GUIDE, SRMR_GUIDE, SRMR_GUIDE_LATER
 
+    def change(value, guide) -> str:
+        return T.NOT_COMPUTED if dashes and missing(value) else signed(value, beside=guide)
+
     return ([f"{t.chi_square_difference:.2f} ({t.df_difference})", p_value(t.p_value),
-             signed(t.delta_cfi, beside=CFI_GUIDE), signed(t.delta_rmsea, beside=RMSEA_GUIDE),
+             change(t.delta_cfi, CFI_GUIDE), change(t.delta_rmsea, RMSEA_GUIDE),
              "" if delta_srmr is None else signed(delta_srmr, beside=SRMR_GUIDE.get(level, SRMR_GUIDE_LATER))],
             [t.chi_square_difference, t.df_difference, t.p_value, t.delta_cfi, t.delta_rmsea, delta_srmr])
 
@@ -432,12 +477,29 @@ ADJUSTED_NOTE = (f"Ordinal items: chi-square, CFI and RMSEA come from the {FitTe
 
 
 def _other_differences(steps) -> str:
-    """The steps of a robust ladder whose difference is not the 2001 scaled one, and why (for the scaled note)."""
-    def levels(method) -> list[str]:
-        return [s.level for s in steps if s.versus_previous is not None and s.versus_previous.method is method]
+    """The steps of a robust ladder whose difference is not the 2001 scaled one, and why (for the scaled note): its
+    correction not positive, or a scaling factor of one of the two fits not positive (that fit's scaled test not
+    computed: inference.robust.robust_fit), which no difference is scaled by."""
+    def unscaled(k: int) -> list[str]:  # the models of step k and the one before whose scaled test was not computed
+        return [s.level for s in steps[k - 1:k + 1] if s.result.robust is not None
+                and missing(s.result.robust.chi_square_scaled)]
+
+    def levels(method, factor: bool) -> list[str]:
+        return [s.level for k, s in enumerate(steps) if s.versus_previous is not None
+                and s.versus_previous.method is method and bool(unscaled(k)) is factor]
 
     out = ""
-    positive, plain = levels(DifferenceMethod.SATORRA_BENTLER_2010), levels(DifferenceMethod.LIKELIHOOD_RATIO)
+    for k, s in enumerate(steps):
+        if s.versus_previous is not None and s.versus_previous.method is not DifferenceMethod.SATORRA_BENTLER_2001 \
+                and unscaled(k):
+            given = ("the strictly positive version (Satorra & Bentler 2010), whose factors are computed at the "
+                     "restricted model's estimates," if s.versus_previous.method is DifferenceMethod.SATORRA_BENTLER_2010
+                     else "the unscaled likelihood-ratio difference")
+            out += (f"; at the {s.level} step the scaling factor of the {word_list(unscaled(k))} model"
+                    f"{'s' if len(unscaled(k)) > 1 else ''} is not positive (its scaled test not computed), so "
+                    f"{given} is given")
+    positive = levels(DifferenceMethod.SATORRA_BENTLER_2010, False)
+    plain = levels(DifferenceMethod.LIKELIHOOD_RATIO, False)
     if positive:
         out += (f"; at the {word_list(positive)} step{'s' if len(positive) > 1 else ''} its correction was not "
                 f"positive, so the strictly positive version (Satorra & Bentler 2010) is given")
@@ -451,6 +513,8 @@ INADMISSIBLE_VERDICT_NOTE = ("'inadmissible': the step's solution is not admissi
                              "does not hold: it cannot show that invariance holds, whatever its fit.")
 
 
+#: a step whose rule reads robust figures that were not computed (workflows.invariance.unjudged): it does not hold
+NOT_JUDGED = "not judged"
 #: a step that met its test but rests on a step that did not hold, did not converge or is not admissible
 TEST_MET = "test met"
 TEST_MET_NOTE = (f"'{TEST_MET}': the step met its test but rests on a step that did not hold, whose estimation did "
@@ -576,6 +640,10 @@ def invariance_report(result) -> Report:
     levels, level_values, flagged = [], [], []
     steps, step_values = [], []
     adjusted = any(step.result.robust is not None for step in result.steps)
+    named_levels = [(f"the {step.level} model{' with every equality' if step.partial else ''}", step.full_result)
+                    for step in result.steps if step.partial and step.full_result is not None]
+    named_levels += [(f"the {step.level} model", step.result) for step in result.steps]
+    dashes = not_computed_note(named_levels)  # robust figures not computed: dashes, said under the levels' table
     for k, step in enumerate(result.steps):
         inherited = any(s.freed for s in result.steps[:k])
         label = _step_label(step, inherited)
@@ -589,7 +657,7 @@ def invariance_report(result) -> Report:
             if step.full_test is not None:
                 before = result.steps[result.steps.index(step) - 1].result
                 srmr = step.full_result.fit.srmr - before.fit.srmr
-                cells, values = _step_cells(step.full_test, srmr, step.level)
+                cells, values = _step_cells(step.full_test, srmr, step.level, dashes is not None)
                 steps.append([f"{step.level} ({first_fit})", *cells, _verdict(step.full_holds, step.full_result)])
                 step_values.append([f"{step.level} ({first_fit})", *values, _verdict(step.full_holds, step.full_result)])
         cells, values = _level_fit_cells(step.result, adjusted)
@@ -597,11 +665,12 @@ def invariance_report(result) -> Report:
         level_values.append([label, *values, _admissible_cell(step.result)])
         if step.result.converged and not step.result.admissible:
             flagged.append(len(levels) - 1)
-        verdict = ("not tested (0 df)" if step.untested else TEST_MET if step.holds and
-                   unsound_basis(result.steps, k) is not None else _verdict(step.holds, step.result)) \
+        verdict = ("not tested (0 df)" if step.untested else NOT_JUDGED if step.unjudged and step.result.admissible
+                   else TEST_MET if step.holds and unsound_basis(result.steps, k) is not None
+                   else _verdict(step.holds, step.result)) \
             + (" *" if step.conditional else "")
         if step.versus_previous is not None:
-            cells, values = _step_cells(step.versus_previous, step.delta_srmr, step.level)
+            cells, values = _step_cells(step.versus_previous, step.delta_srmr, step.level, dashes is not None)
             steps.append([label, *cells, verdict])
             step_values.append([label, *values, verdict])
         else:
@@ -623,17 +692,22 @@ def invariance_report(result) -> Report:
         _table("levels", "Fit of each level", [("Level", "l"),
                                                 ("Scaled chi-square (df)" if adjusted else "Chi-square (df)", "r"),
                                                 ("p", "r"), ("CFI", "r"), ("RMSEA", "r"), ("SRMR", "r"),
-                                                ("Admissible", "l")], levels,
+                                                ("Admissible", "l")], levels, dashes,
                flagged=tuple(flagged),
                values=(["Level", "Chi-square", "df", "p", "CFI", "RMSEA", "SRMR", "Admissible"], level_values)),
         _table("steps", "Each step against the one before",
                [("Level", "l"), (difference, "r"), ("p", "r"), *delta_columns, ("Holds", "l")], steps,
-               " ".join(note for note, shown in (
+               joined(note for note, shown in (
                    (INADMISSIBLE_VERDICT_NOTE, any(not s.result.admissible for s in result.steps)),
                    (TEST_MET_NOTE, any(s.holds and unsound_basis(result.steps, k) is not None
                                        for k, s in enumerate(result.steps))),
+                   *((f"'{NOT_JUDGED}': the {s.level} {'model' if s.versus_previous is None else 'step'}: "
+                      f"{s.unjudged}.", True) for s in result.steps if s.unjudged and s.result.admissible),
                    ("* tested after a step that did not hold: the comparison is between models already rejected.",
-                    any(step.conditional for step in result.steps))) if shown) or None,
+                    any(step.conditional for step in result.steps)),
+                   (Note((f"{T.NOT_COMPUTED} in \u0394CFI or \u0394RMSEA: a robust index of a level was not computed "
+                          f"(see the note under ", TableReference("levels"), ").")),
+                    any(T.NOT_COMPUTED in row[3:5] for row in steps) and not ordinal)) if shown) or None,
                values=(["Level", "Chi-square difference", "df difference", "p", *delta_values, "Holds"], step_values)),
     ]
     tests = sorted({step.result.robust.label for step in result.steps if step.result.robust is not None})
@@ -687,7 +761,10 @@ def invariance_report(result) -> Report:
     # the design's caution first: it doubts every step's test, the verdicts among the warnings included
     warnings = (tuple(_design_caution_lines([(f"the {s.level} model", s.result) for s in result.steps]))
                 + tuple(result.warnings) + tuple(_caution_lines([(f"the {result.steps[0].level} model", first)],
-                                                                poor_fit=False, small_groups=False)))
+                                                                poor_fit=False, small_groups=False))
+                # a later step's robust test that could not be computed: its dashes in the tables, said first
+                + tuple(_caution_lines([(name, r) for name, r in named_levels if r is not first],
+                                       only=(ProblemKind.SCALED_TEST_NOT_COMPUTED,))))
     notice = None if not warnings else ProblemNotice(SOME_NOT_ADMISSIBLE if inadmissible else CHECK_SOLUTIONS, warnings,
                                                      inadmissible)
     labels = tuple(result.groups)

@@ -126,7 +126,9 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     models = list(models)
     if len(models) < 2:
         raise OptionError("comparing needs at least two models")
-    fit_options = replace(make_options(options, COMPARE_KEYWORDS), diagnostics=False)
+    # each model's reliability, so that the keying its loadings contradict is a problem of its solution, first, as in
+    # fit (assessment.reliability.keying_problems); not the other diagnostics
+    fit_options = replace(make_options(options, COMPARE_KEYWORDS), diagnostics=False, reliability=True)
     design = design_columns(weights, cluster, strata, weight_kind)
     specs = [load_spec(m) for m in models]
     _no_model_twice(specs)

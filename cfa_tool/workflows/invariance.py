@@ -167,6 +167,9 @@ class InvarianceStep:
     # 'noninvariant' statements of the model file that exempt a parameter held equal at this step: the step
     # is partial invariance by the researcher's declaration
     declared: tuple[ParameterRef, ...] = ()
+    #: why the step could not be judged by its rule ('' when it could): the robust figures the rule reads were not
+    #: computed, a scaling factor not being positive (:func:`unjudged`); such a step does not hold
+    unjudged: str = ""
 
     @property
     def untested(self) -> bool:
@@ -205,6 +208,7 @@ class InvarianceStep:
             "tested": not self.untested,
             "judged_by": "its own fit (CFI, RMSEA and SRMR guide values)" if self.versus_previous is None
             else "the difference test against the step before",
+            "not_judged_because": self.unjudged or None,
             "conditional_on_a_rejected_step": self.conditional,
             "partial": self.partly_equal,
             "freed": [f.to_dict() for f in self.freed],
@@ -442,10 +446,14 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 progress(0, 1)
             # exemptions apply from the level that holds their class equal
             level_spec = spec_of_level(spec, classes, exceptions)
+            # the configural model with its reliability, so that the keying its loadings contradict is a problem of its
+            # solution, first in the ladder as in fit (assessment.reliability.keying_problems); the later steps, their
+            # loadings held equal (and refitted often by the partial search), without
+            assessed = fit_options if steps else replace(fit_options, reliability=True)
             with threads:
                 est = ladder.estimate(level_spec, groups, fit_options, start)
                 # rows without a group label count as read, as fit counts them (the methods paragraph)
-                result = with_rows_read(with_missing_reading(ladder.assess(level_spec, groups, est, fit_options, group),
+                result = with_rows_read(with_missing_reading(ladder.assess(level_spec, groups, est, assessed, group),
                                                              analysed, missing_codes), loaded)
             if not result.converged:
                 why = next((p for p in result.problems if p.kind is not ProblemKind.SMALL_GROUP), None)
@@ -468,7 +476,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             # an inadmissible solution (negative variances, ...) cannot show that invariance holds, whatever its fit;
             # the search goes on (a misfitting equality can itself push a variance below zero)
             untested = test is not None and test.df_difference == 0
-            holds = result.admissible and not untested and (
+            not_judged = unjudged(rule, (level, result), (steps[-1].level, previous[1]) if previous is not None else None)
+            holds = result.admissible and not untested and not not_judged and (
                 configural_fits(result) if test is None else _step_holds(rule, test, alpha, result, previous[1], level))
             if full is None:
                 full = (result, test, holds)
@@ -515,11 +524,16 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             result = replace(result, data=replace(result.data, few_categories=few))
         steps.append(InvarianceStep(level, result, test, holds, culprits, conditional, full[0], full[1], full[2],
                                     tuple(freed_here), stopped if partial != "none" and kinds else "", srmr_change,
-                                    tuple(r for r in spec.noninvariant if _exempts_a_class_of(r, classes))))
+                                    tuple(r for r in spec.noninvariant if _exempts_a_class_of(r, classes)),
+                                    not_judged))
         previous = (est, result)
         start = est.theta
     warnings = []
-    if not steps[0].holds and steps[0].result.admissible:
+    if steps[0].unjudged and steps[0].result.admissible:
+        warnings.insert(0, f"the configural model could not be judged by the guide values: {steps[0].unjudged}; the "
+                           f"later steps are marked as conditional on it: judge its fit by the SRMR and the residual "
+                           f"correlations (fit it on its own) before reading them")
+    elif not steps[0].holds and steps[0].result.admissible:
         fit = _fit_values(steps[0].result)
         warnings.insert(0, "the configural model does not fit by the guide values (" + _judged(fit) + "): every "
             "later step compares models that already "
@@ -527,7 +541,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             "group alone and read the modification indices and residuals), then test invariance")
     elif any(s.conditional for s in steps):
         first = next(s for s in steps if not s.holds)
-        why = "was not admissible" if not first.result.admissible else "did not hold"
+        why = ("was not admissible" if not first.result.admissible else
+               f"could not be judged ({first.unjudged})" if first.unjudged else "did not hold")
         warnings.insert(0, f"the {first.level} step {why}, so the steps after it compare models that already fail "
                            f"it; they are marked as conditional on a rejected step")
     if freed:
@@ -706,7 +721,9 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str, tuple[
                         f"{written_group(reference, labels)} (whose means "
                         f"are fixed at 0); d: the mean over the pooled latent standard deviation of the group and the reference group; "
                         f"Var. ratio: the group's factor variance over the reference group's."
-                        + ("" if steps[0].holds else " The configural model misfits, so read them with caution."
+                        + ("" if steps[0].holds else " The configural model could not be judged by the guide values, "
+                           "so read them with caution." if steps[0].unjudged and steps[0].result.admissible else
+                           " The configural model misfits, so read them with caution."
                            if steps[0].result.admissible else " The configural model's solution is not admissible, so "
                            "read them with caution.")
                         + withheld), tuple(fixed_means)
@@ -786,6 +803,26 @@ def _fit_values(result: FitResult) -> dict[str, float]:
     if robust is not None:
         return {"cfi": robust.cfi_robust, "rmsea": robust.rmsea_robust, "srmr": fit.srmr}
     return {"cfi": fit.cfi, "rmsea": fit.rmsea, "srmr": fit.srmr}
+
+
+def unjudged(rule: DecisionRule, step: tuple[str, FitResult], before: tuple[str, FitResult] | None) -> str:
+    """Why a step (``step``: its level and fit; ``before``: the step before, None for the configural model) cannot be
+    judged by ``rule`` ('' when it can): the configural model by its CFI and RMSEA, a later step under the fit-change
+    rule (alone or with the test) by the changes in them, which are robust figures with a robust test; when the
+    robust test's scaling factor (or its baseline model's) is not positive they were not computed
+    (inference.robust.robust_fit), and a step is never judged on a figure that does not exist (the comparisons of a
+    missing number are all false, which read as 'misfits')."""
+    fits = [step] if before is None else [before, step] if rule is not DecisionRule.DIFFERENCE_TEST else []
+    missing = [level for level, r in fits if r.converged and r.robust is not None and r.robust.not_computed
+               and not all(np.isfinite(_fit_values(r)[k]) for k in ("cfi", "rmsea"))]
+    if not missing:
+        return ""
+    why = "a scaling factor of the robust test is not positive"
+    if before is None:
+        return f"its robust CFI and RMSEA were not computed ({why})"
+    levels = " and ".join(f"the {level} model" for level in missing)
+    return (f"the changes in robust CFI and RMSEA it is judged by need those of {levels}, which were not computed "
+            f"({why})")
 
 
 def configural_fits(result: FitResult) -> bool:

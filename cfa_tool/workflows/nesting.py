@@ -265,6 +265,13 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
                                           "of freedom, so its scaling factor at the restricted model's estimates is not "
                                           "defined"))
             continue
+        first = method is DifferenceMethod.SATORRA_BENTLER_2001
+        unusable = _not_positive_factor(((restricted_name, c0, first or restricted_scaling is None),
+                                         (general_name, c1, first)))
+        if unusable:  # a factor that is not positive scales nothing (inference.robust.robust_fit): said first
+            out.append(DifferenceTest(restricted_name, general_name, float("nan"), ddf, float("nan"), method, delta_cfi,
+                                      delta_rmsea, unusable))
+            continue
         cd = (r.df * c0 - g.df * c1) / ddf
         if cd > 0:
             diff = (r.chi_square - g.chi_square) / cd
@@ -285,6 +292,28 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
                                       advice="read the strictly positive version" if first and
                                       general_scaling_at_restricted is not None else ""))
     return out
+
+
+AT_RESTRICTED = " at the restricted model's estimates"
+
+
+def _not_positive_factor(factors) -> str:
+    """Why a scaled difference cannot be scaled by the factors it takes, '' when they are all positive.
+    ``factors``: (model's name, factor, whether it is that fit's own) of the restricted and the general model; a
+    factor not a fit's own is computed at the restricted model's estimates (the 2010 version).  A scaling factor is
+    an estimated average of eigenvalues that must be positive, and one that is not scales nothing
+    (inference.robust.robust_fit), whatever the sign of the correction made from it (Satorra & Bentler 2001: a general
+    model's factor below zero made the correction positive, and the 'scaled' difference a number from nothing)."""
+    bad = [(name, c, own) for name, c, own in factors if not (c is not None and np.isfinite(c) and c > 0)]
+    if not bad:
+        return ""
+    said = " and ".join(f"{name}{'' if own else AT_RESTRICTED} ({c:.3g})" for name, c, own in bad)
+    one = len(bad) == 1
+    own_test = [name for name, _, own in bad if own]
+    return (f"the scaling factor{'' if one else 's'} of {said} {'is' if one else 'are'} not positive, so the "
+            f"difference cannot be scaled (a scaling factor is an estimated average of eigenvalues that must be "
+            f"positive" + (f"; the scaled test of {' and '.join(own_test)} was not computed either" if own_test else "")
+            + ")")
 
 
 def _scaled_by(method: DifferenceMethod, robust, c0: float, c1: float, cd: float, recomputed: bool) -> str:

@@ -256,15 +256,19 @@ def _likelihood_ratio(chi_equal: float, df_equal: int, separate: tuple[FitResult
                                        sum(r.fit.df for r in separate), ONE_SOLUTION, OWN_SOLUTIONS)
 
 
-def pooled_chi_square(spec: Spec, samples: tuple[SampleMoments, SampleMoments], options) -> tuple[float, int, FitResult]:
+def pooled_chi_square(spec: Spec, samples: tuple[SampleMoments, SampleMoments],
+                      options) -> tuple[float, int | None, FitResult]:
     """(chi-square, df, fit to S_pooled) of the two-sample model with one covariance structure for complete rows:
     N F(S_pooled, Sigma_hat) + sum_g n_g (log|S_pooled| - log|S_g|), Sigma_hat the one-sample fit to S_pooled
-    (derived in the module docstring), on 2 p(p+1)/2 - q df."""
+    (derived in the module docstring), on 2 p(p+1)/2 - q df.  A fit to S_pooled that did not converge has no
+    Sigma_hat and no df: (NaN, None, that fit), whose message says why."""
     names = samples[0].names
     ordered = [_in_order(m, names) for m in samples]
     N = sum(m.n_obs for m in ordered)
     S, means = pooled(ordered)  # the means are not used by the covariance structure
     fit = fit_moments(spec, SampleMoments(names, S, means, N, N, 0, "the two samples pooled"), options)
+    if not fit.converged:  # no estimates and no fit indices to read (fit.fit is None)
+        return float("nan"), None, fit
     order = [fit.observed.index(x) for x in names]
     log_det = log_det_pd(S)
     chi = N * discrepancy(S, fit.implied_covariance[np.ix_(order, order)]) + \

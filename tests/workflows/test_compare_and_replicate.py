@@ -531,3 +531,24 @@ def test_a_strictly_positive_difference_that_cannot_be_computed_says_the_true_re
     words = " ".join([report.paragraph, *map(str, report.notes)])
     assert "nested" not in words.replace("Nested models (found numerically", "")
     assert "was not computed: the rows' observed information at the restricted model's estimates" in report.paragraph
+
+
+def test_models_of_other_items_with_gaps_in_one_are_not_tested_on_rows_of_their_own(hs_data):
+    # compare-s18: two models whose difference would rest on different rows -- listwise deletion on an item only one
+    # model uses, or full-information ML over different items -- are not tested, fit index differences and AIC/BIC
+    # included: every model is fitted to the same rows (complete on every model's items, or answering some of each
+    # model's items), and models of different items describe different data, which the reason says
+    data = hs_data.copy()
+    data.loc[data.index[:5], "x9"] = np.nan  # gaps only in the item the second model alone uses
+    models = ["factor f: x1..x3\nfactor g: x4..x8\n", "factor f: x1..x3\nfactor g: x4..x6\nfactor h: x7..x9\n"]
+    for missing in ("listwise", "full-information"):
+        result = compare(models, data, missing=missing)
+        assert not result.tests
+        [refused] = result.not_nested
+        assert refused.reason.startswith("the models use different variables (x9 only in")
+        assert "no test, fit index difference, AIC or BIC compares them" in refused.reason
+        assert not refused.information_criteria
+        assert len({r.n_obs for r in result.results}) == 1  # one set of rows for both models
+        assert result.n_obs == (296 if missing == "listwise" else 301)
+        text = " ".join(str(result).split())
+        assert "Compare them by AIC and BIC" not in text
