@@ -17,13 +17,14 @@ _WHOLE = re.compile(r"[+-]?[0-9]+")
 def number(text: str, decimal_comma: bool = False) -> float | None:
     """The number that ``text`` writes in plain ASCII digits (an optional sign, digits with one
     decimal point, an optional exponent), or None.  With ``decimal_comma`` a comma is the decimal
-    point.  Infinite results (1e400) are returned as infinities for the caller to reject."""
+    point.  Infinite results (1e400) are returned as infinities for the caller to reject; '-0' is 0 (a fix at '-0'
+    was reported as 'fixed at -0'; hostile trial s18)."""
     text = text.strip()
     if decimal_comma:
         text = text.replace(",", ".", 1) if text.count(",") == 1 and "." not in text else text
     if not _NUMBER.fullmatch(text):
         return None
-    return float(text)
+    return float(text) + 0.0
 
 
 def whole_number(text: str) -> int | None:

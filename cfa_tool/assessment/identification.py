@@ -13,9 +13,21 @@ from cfa_tool.model.parameters import ParameterTable
 from cfa_tool.numerics.linalg import ScaledFactor, scaled_factor
 
 
+#: what a model of 0 degrees of freedom is, in every view that says it (the fit's table, check's summary)
+JUST_IDENTIFIED = "the model is just-identified: it reproduces the data exactly, so its fit cannot be tested"
+
+
+def moments_count(table: ParameterTable) -> int:
+    """The variances and covariances (and means, with a mean structure) of the indicators, in every group: what a
+    model of continuous items is fitted to, so that its degrees of freedom are this count less its free parameters
+    (Bollen 1989, ch. 4)."""
+    p = table.p
+    return table.n_groups * (p * (p + 1) // 2 + (p if table.mean_structure else 0))
+
+
 def check_counting_rule(spec: Spec, table: ParameterTable) -> None:
     p, G = table.p, table.n_groups
-    moments = G * (p * (p + 1) // 2 + (p if table.mean_structure else 0))
+    moments = moments_count(table)
     if table.n_free > moments:
         what = "variances and covariances" + (" and means" if table.mean_structure else "")
         per = f" in {G} groups" if G > 1 else ""

@@ -689,7 +689,7 @@ class _Builder:
         value = float(token.children[0] if isinstance(token, Tree) else token)
         if value != value or value in (float("inf"), float("-inf")):
             raise self.error("the number must be finite", token)
-        return value
+        return value + 0.0  # '-0' is 0 (the methods paragraph said 'fixed at -0'; hostile trial s18)
 
     def scale(self, stmt: Tree) -> ScaleSetting:
         target, method_node = stmt.children

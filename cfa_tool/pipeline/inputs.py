@@ -2109,7 +2109,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     every refusal of their answers that such a fit stops at first is listed (``refusals``), and for ordinal items or
     items of few answer categories the answers per category of every item (``answers``, per group)."""
     from cfa_tool.assessment.admissibility import group_parameter_counts, group_size_problems, one_sample_size_problems
-    from cfa_tool.assessment.identification import check_counting_rule
+    from cfa_tool.assessment.identification import check_counting_rule, moments_count
     from cfa_tool.model.parameters import build_parameter_table
 
     opt.group_column(group)
@@ -2221,7 +2221,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        row_naming=row_naming(frame), text_lines=dict(text_lines(frame)),
                        answers=_answers_per_category(spec, frame, source, group, reference_group, ordinal_items,
                                                      loaded),
-                       refusals=refusals, group_coverage=_group_coverage(spec, frame, source, group, reference_group))
+                       refusals=refusals, group_coverage=_group_coverage(spec, frame, source, group, reference_group),
+                       degrees_of_freedom=None if ordinal_items else moments_count(table) - table.n_free)
 
 
 def _group_coverage(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,

@@ -11,6 +11,7 @@ import numpy as np
 from cfa_tool.assessment.admissibility import solution_first
 from cfa_tool.assessment.diagnostics import Cases, case_dicts
 from cfa_tool.assessment.fit_indices import FitIndices, IndicesToRead
+from cfa_tool.assessment.identification import JUST_IDENTIFIED
 from cfa_tool.assessment.modification import ModificationIndices
 from cfa_tool.assessment.normality import Normality
 from cfa_tool.assessment.reliability import factor_dicts
@@ -128,6 +129,9 @@ class CheckResult(Presentable):
     #: each group's share of the model variables' cells its rows answered, (label, share) in the groups' order; ()
     #: without groups
     group_coverage: tuple[tuple[str, float], ...] = ()
+    #: the model's degrees of freedom for continuous items (variances, covariances and means less the free
+    #: parameters; assessment.identification.moments_count); None for ordinal items, whose fit counts thresholds too
+    degrees_of_freedom: int | None = None
 
     @property
     def admissible(self) -> bool:
@@ -136,8 +140,11 @@ class CheckResult(Presentable):
     def summary(self) -> str:
         spec = self.spec
         # the design's cautions (too few clusters, uneven weights) are among ``problems``, first as in the fit's views
+        df = self.degrees_of_freedom
         lines = [f"The model is valid: {len(spec.factors)} factor{'s' if len(spec.factors) != 1 else ''}, "
-                 f"{len(spec.observed_names)} indicators, all found in {self.source}."]
+                 f"{len(spec.observed_names)} indicators, all found in {self.source}"
+                 + ("." if df is None else f"; {df} degree{'s' if df != 1 else ''} of freedom."
+                    if df else f"; 0 degrees of freedom: {JUST_IDENTIFIED}.")]
         if self.groups and self.group_rows:
             lines.append(f"Groups: {len(self.groups)} (" + ", ".join(
                 f"{g}: {n} row{'s' if n != 1 else ''}" for g, n in zip(self.groups, self.group_rows))
@@ -191,7 +198,8 @@ class CheckResult(Presentable):
                     "matrix_analysed": self.analysed.name.lower(), "rows": None, "coverage": None,
                     "problems": [p.to_dict() for p in self.problems], "notes": [str(x) for x in self.notes]}
         return {"valid": True, "source": self.source, "factors": list(self.spec.factor_names),
-                "indicators": list(self.spec.observed_names), "rows": self.rows, "complete_rows": self.complete,
+                "indicators": list(self.spec.observed_names), "degrees_of_freedom": self.degrees_of_freedom,
+                "rows": self.rows, "complete_rows": self.complete,
                 "rows_with_gaps": self.with_gaps, "rows_without_answers": self.empty,
                 "rows_without_answers_at": list(self.empty_rows),
                 "complete_rows_by_values_not_answers": self.complete_by_odd_values, "coverage": dict(self.coverage),

@@ -8,6 +8,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from cfa_tool.assessment.admissibility import solution_first
+from cfa_tool.assessment.identification import JUST_IDENTIFIED
 from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
@@ -214,7 +215,6 @@ def _row(label: str, text: str, guide: str, *values: tuple) -> FitRow:
     return FitRow(label, text, guide, tuple(tuple(v) + (None,) * (6 - len(v)) for v in values))
 
 
-JUST_IDENTIFIED = "the model is just-identified: it reproduces the data exactly, so its fit cannot be tested"
 
 #: a table cell of a figure that was not computed (a robust test whose scaling factor is not positive), explained in
 #: the table's note: never 'nan' and never an empty place that reads as a figure left out

@@ -396,3 +396,17 @@ def test_a_factors_own_scale_statement_holds_before_or_after_scale_latent():
                  "factor a: x1, x2, x3\nfactor b: y1, y2, y3\nscale latent by variance\nscale a by effects\n"):
         spec = parse_model(text)
         assert (spec.scaling_of("a"), spec.scaling_of("b")) == ("effects", "variance")
+
+
+def test_minus_zero_is_zero():
+    # hostile trial s18 (minor): 'fix covariance(a, b) = -0' was reported as 'fixed at -0', and '--mi-threshold -0' as
+    # 'at least -0'
+    import math
+
+    from cfa_tool import options
+    from cfa_tool.numbers import number
+
+    spec = parse_model("factor f: a, b, c, d\ncovary a, b\nfix covariance(a, b) = -0\n")
+    value = spec.fixed[0].value
+    assert value == 0 and math.copysign(1.0, value) == 1.0 and f"{value:g}" == "0"
+    assert f"{options.real_number('the threshold', -0.0, 0.0):g}" == "0" and f"{number('-0'):g}" == "0"
