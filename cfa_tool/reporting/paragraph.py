@@ -908,7 +908,19 @@ def _latent_response_sentence(result) -> str:
         """'fixed at 1', 'estimated', or with the items whose own value departs from that (a 'fix' the model file
         states: review s14, where 'partly estimated' stood for residual variances that were all fixed)."""
         own = [r for r in result.estimates if r.kind == kind and r.group == group and r.variables[0] in items]
+        # a latent response held at variance 1 instead (its residual variance derived: pipeline.ordinal)
+        held = [r for r in own if r.origin == "derived"]
+        own = [r for r in own if r.origin != "derived"]
         fixed = [r for r in own if not r.free]
+        if held:
+            instead = (f"{_names([r.variables[0] for r in held])}: the latent response's variance at 1 instead, its "
+                       f"residual variance following from the loadings")
+            if not own:
+                return "following from latent-response variances fixed at 1"
+            return state_of(own, fixed, value) + f" ({instead})"
+        return state_of(own, fixed, value)
+
+    def state_of(own: list, fixed: list, value: float) -> str:
         if len(fixed) == len(own):
             apart = [f"{_name(r.variables[0])}'s at {r.estimate:g}" for r in fixed if r.estimate != value]
             return f"fixed at {value:g}" + (f" ({_list(apart)})" if apart else "")

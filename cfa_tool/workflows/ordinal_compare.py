@@ -63,7 +63,9 @@ def fit_ordinal_models(specs: Sequence[Spec], complete: pd.DataFrame, source: st
             groups, _ = ordinal_groups(spec, complete, source, group, reference_group, ordinal_items, pairwise,
                                        design=design)
         with estimation_of(f"model {spec.title or spec.source}"):
-            est = estimate_ordinal_groups(spec, groups, fit_options, method)
+            # one group: every latent response at variance 1, the correlation metric 'fit' identifies them by (the
+            # same estimates, a Heywood case among them)
+            est = estimate_ordinal_groups(spec, groups, fit_options, method, correlation_metric=group is None)
             if group is None:  # one group: no group in its parameters' words (it said 'in group all')
                 est = replace(est, table=_one_group_table(est.table))
             try:
