@@ -450,7 +450,8 @@ def _heywood_responses(objective: OrdinalLeastSquares, theta: np.ndarray) -> np.
         total = np.diag(mats.implied_covariance())
         with np.errstate(divide="ignore", invalid="ignore"):
             share = np.diag(mats.T) / total
-        out.append(np.isfinite(share) & (share < UNBOUNDED_RESIDUAL_SHARE))
+        held = objective.unit_variances[g] if objective.unit_variances is not None else False
+        out.append(np.isfinite(share) & (share >= 0) & (share < UNBOUNDED_RESIDUAL_SHARE) & ~held)
     return np.array(out)
 
 
@@ -576,13 +577,15 @@ def ordinal_difference(restricted: OrdinalEstimation, general: OrdinalEstimation
     estimates (Satorra 2000; Asparouhov & Muthén 2006).  ``general_derivatives``: the general
     model's derivatives there, with the statistics in the restricted model's order; by default
     the general model's parameters are found from the restricted model's matrix entries, which
-    the two share when they differ only in constraints (the invariance ladder)."""
+    the two share when they differ only in constraints (the invariance ladder), read in the restricted model's metric
+    (its latent responses held at variance 1, if any: ``estimate_ordinal_groups``)."""
     D0, _, w, gamma = restricted.objective.stacked(restricted.theta)
     if general_derivatives is None:
         entries = restricted.model.entry_values(restricted.theta)
         J = general.model.J  # of full column rank: the normal equations give the least-squares solution
         theta1 = np.linalg.solve(J.T @ J, J.T @ (entries - general.model.offset))
-        general_derivatives = general.objective.stacked(theta1)[0]
+        general_objective = general.objective.with_unit_variances(restricted.objective.unit_variances)
+        general_derivatives = general_objective.stacked(theta1)[0]
     # U_d = U_restricted - U_general: the weights W cancel
     traces = residual_traces(w, gamma, [(1.0, D0), (-1.0, general_derivatives)], False,
                              restricted.objective.group_slices())
