@@ -109,3 +109,37 @@ def test_compare_estimates_it_as_fit_does(answers, tmp_path, capsys):
         assert model["fit"]["chi_square"] == pytest.approx(alone.fit.chi_square, rel=1e-7)
         assert model["robust"]["chi_square_scaled"] == pytest.approx(alone.robust.chi_square_scaled, rel=1e-7)
         assert model["fit"]["n_free_parameters"] == alone.fit.n_free_parameters
+
+
+def test_the_ladders_differences_read_both_models_in_one_metric(answers):
+    # the invariance ladder's difference test finds the general model's derivatives from the restricted model's
+    # matrix entries; where one of the two holds x1's latent response at variance 1 and the other does not, they must
+    # be read in the restricted model's metric.  Checked against the other route to the same statistic, the general
+    # model fitted to the restricted model's implied thresholds and correlations (Bentler & Satorra 2010), which
+    # reads each model in its own metric: the two agree (with the general model read in its own metric instead, the
+    # first difference was 15.38 against 11.38)
+    from dataclasses import replace
+
+    from cfa_tool.data.groups import split_ordinal_moments
+    from cfa_tool.language import parse_model
+    from cfa_tool.pipeline.continuous import FitOptions
+    from cfa_tool.pipeline.ordinal import estimate_ordinal_groups, ordinal_difference
+    from cfa_tool.workflows.invariance import ORDINAL_LEVELS
+    from cfa_tool.workflows.ordinal_compare import _general_at_restricted
+
+    groups, _ = split_ordinal_moments(answers, "g", tuple(ITEMS), "simulated")
+    spec = parse_model(MODEL)
+    steps = [estimate_ordinal_groups(replace(spec, invariant=tuple(classes)), groups, FitOptions())
+             for _, classes, _ in ORDINAL_LEVELS[:4]]
+    held = [s.objective.unit_variances is not None for s in steps]
+    assert held[0] and not held[1] and held[2]  # configural and metric held at variance 1, thresholds not
+    for general, restricted in zip(steps, steps[1:]):
+        ladder = ordinal_difference(restricted, general)
+        opt, target, order = _general_at_restricted(restricted, general)
+        assert opt.value < 1e-3  # reproduces them (the search of one step ends at its iteration limit, 7e-5 away)
+        back = np.empty_like(order)
+        back[order] = np.arange(len(order))
+        columns = np.concatenate([g * len(order) + back for g in range(2)])
+        route = ordinal_difference(restricted, general, target.stacked(opt.theta)[0][:, columns])
+        assert ladder.df == route.df
+        assert ladder.scale_shifted == pytest.approx(route.scale_shifted, rel=0.01)
