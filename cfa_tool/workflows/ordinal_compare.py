@@ -72,7 +72,7 @@ def fit_ordinal_models(specs: Sequence[Spec], complete: pd.DataFrame, source: st
                 result = assess_ordinal_groups(spec, groups, est, fit_options, group, method, modification=False)
             except (NotIdentified, UnboundedSolution) as failure:  # reported among the others, as compare of
                 # continuous items does
-                result = _unidentified(spec, groups, est, fit_options, group, method, failure)
+                result = unestimated_ordinal_result(spec, groups, est, fit_options, group, method, failure)
         estimations.append(est)
         if group is None and result.fit is not None:
             # 'fit' of one group estimates the thresholds in a first step and does not count them, nor (beside
@@ -94,10 +94,11 @@ def _one_group_table(table):
     return replace(table, multigroup=False)
 
 
-def _unidentified(spec, groups, est, fit_options, group, method, failure: NotIdentified | UnboundedSolution):
+def unestimated_ordinal_result(spec, groups, est, fit_options, group, method,
+                               failure: NotIdentified | UnboundedSolution) -> FitResult:
     """A model the data do not identify, or one a Heywood case drives without bound (``failure``: the rank check's
     error), as a result that could not be estimated, that problem first, as pipeline.continuous.unestimated makes it
-    for continuous items."""
+    for continuous items (compare's models, the invariance ladder's steps)."""
     result = assess_ordinal_groups(spec, groups, replace(est, converged=False, message=str(failure)), fit_options,
                                    group, method, modification=False)
     return replace(result, problems=tuple(estimation_failure(failure) if p.kind is ProblemKind.NOT_CONVERGED

@@ -143,3 +143,25 @@ def test_the_ladders_differences_read_both_models_in_one_metric(answers):
         route = ordinal_difference(restricted, general, target.stacked(opt.theta)[0][:, columns])
         assert ladder.df == route.df
         assert ladder.scale_shifted == pytest.approx(route.scale_shifted, rel=0.01)
+
+
+def test_invariance_reports_the_steps_it_estimates_and_names_the_one_it_cannot(answers):
+    # configural to scalar reach x1's negative residual variance in group b (the configural one is that of group b's
+    # own fit); the strict step holds residual variances equal across groups, a constraint and not a choice of scale,
+    # so it keeps residual variances of 1, whose estimates grow without bound: that step could not be estimated, said
+    # so first with its reason, and the ladder stops there with the steps before it reported (before: exit 3, nothing)
+    from cfa_tool.workflows.invariance import invariance
+
+    found = invariance(MODEL, answers, "g", ordinal="all")
+    levels = [s.level for s in found.steps]
+    assert levels == ["configural", "thresholds", "metric", "scalar", "strict"]
+    configural = found.steps[0].result
+    alone = cfa_tool.fit(MODEL, answers[answers.g == "b"], ordinal="all")
+    std = next(r.standardized for r in configural.estimates
+               if r.kind == "residual_variance" and r.variables == ("x1",) and r.group == "b")
+    assert std == pytest.approx(_residual(alone, "x1"), abs=1e-5) and std < 0
+    assert all(s.result.converged for s in found.steps[:4]) and not found.steps[4].result.converged
+    assert ProblemKind.UNBOUNDED_HEYWOOD in {p.kind for p in found.steps[4].result.problems}
+    first = str(found.warnings[0])
+    assert first.startswith("the strict model could not be estimated: the solution is not admissible")
+    assert "Heywood" in first and "did not converge" not in first
