@@ -249,16 +249,27 @@ def ordinal_score_inputs(estimation, groups: list) -> tuple[OrdinalScoringModel,
     ``groups``: the ``(label, OrdinalMoments)`` list it was estimated from (for the categories).
     """
     model, theta = estimation.model, estimation.theta
-    return tuple(group_ordinal_model(model, theta, g, label, moments.categories) for g, (label, moments) in enumerate(groups))
+    held = getattr(getattr(estimation, "objective", None), "unit_variances", None)
+    return tuple(group_ordinal_model(model, theta, g, label, moments.categories, None if held is None else held[g])
+                 for g, (label, moments) in enumerate(groups))
 
 
 def group_ordinal_model(model, theta: np.ndarray, g: int, label: str | None,
-                        categories: tuple[tuple[float, ...], ...]) -> OrdinalScoringModel:
+                        categories: tuple[tuple[float, ...], ...],
+                        held: np.ndarray | None = None) -> OrdinalScoringModel:
     """Group g's :class:`OrdinalScoringModel` of a fit with thresholds as parameters (``model`` a StructuredModel,
     ``categories`` each item's answer values in the model's item order, empty for a continuous item, which
-    keeps its own metric)."""
+    keeps its own metric; ``held``: the items whose latent response the fit held at variance 1, their residual
+    variance 1 minus their common variance: pipeline.ordinal.estimate_ordinal_groups)."""
     table = model.table
     mats = model.matrices(theta, g)
+    if held is not None and np.any(held):
+        from dataclasses import replace
+
+        T = mats.T.copy()
+        common = np.diag(mats.implied_covariance()) - np.diag(mats.T)
+        T[held, held] = 1.0 - common[held]
+        mats = replace(mats, T=T)
     ends = np.cumsum([max(len(c) - 1, 0) for c in categories])
     thresholds = tuple(np.split(model.thresholds(theta, g), ends[:-1]))
     return OrdinalScoringModel(scoring_model(mats, table.observed, table.latent, label), thresholds, categories)

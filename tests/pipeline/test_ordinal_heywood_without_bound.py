@@ -165,3 +165,49 @@ def test_invariance_reports_the_steps_it_estimates_and_names_the_one_it_cannot(a
     first = str(found.warnings[0])
     assert first.startswith("the strict model could not be estimated: the solution is not admissible")
     assert "Heywood" in first and "did not converge" not in first
+
+
+def test_scoring_reads_a_held_latent_response_in_its_metric(answers):
+    # a latent response held at variance 1 scores with the residual variance the fit reports (1 minus its common
+    # variance), not the 1 its table fixes: the scoring model's latent response has variance 1 (the diagonal of
+    # Sigma = L Phi L' + Theta); group a, where x1's residual variance stays positive (group b's is negative, which
+    # scoring refuses)
+    from cfa_tool.data.groups import split_ordinal_moments
+    from cfa_tool.language import parse_model
+    from cfa_tool.pipeline.continuous import FitOptions
+    from cfa_tool.pipeline.ordinal import estimate_ordinal_groups
+    from cfa_tool.scoring.model import group_ordinal_model
+
+    groups, _ = split_ordinal_moments(answers, "g", tuple(ITEMS), "simulated")
+    est = estimate_ordinal_groups(parse_model(MODEL), groups, FitOptions())
+    held = est.objective.unit_variances
+    assert held is not None and held[0][0]  # x1 in group a
+    base = group_ordinal_model(est.model, est.theta, 0, "a", groups[0][1].categories, held[0]).base
+    variance = np.diag(base.loadings @ base.factor_covariance @ base.loadings.T + base.residual_covariance)
+    assert variance[0] == pytest.approx(1.0)
+    reported = est.objective.unit_variance_matrices(est.theta, 0).T[0, 0]
+    assert base.residual_covariance[0, 0] == pytest.approx(reported) and 0 < reported < 1
+
+
+def test_a_saved_fit_with_held_latent_responses_is_read_in_its_metric(answers):
+    # the saved estimates of a fit with groups carry x1's residual variances as 1 minus its common variance where the
+    # fit held its latent response at variance 1: read back on the model, they are that fit (not "another scale"),
+    # and the latent responses are held again; a residual variance that is neither 1 nor that is another model's
+    from cfa_tool.errors import EstimationError, OptionError
+    from cfa_tool.language import parse_model
+    from cfa_tool.model.saved_estimates import saved_rows
+    from cfa_tool.workflows.factor_scores import ordinal_models_of_estimates
+
+    both = cfa_tool.fit(MODEL, answers, ordinal="all", group="g")
+    rows = [{"kind": r.kind, "variables": list(r.variables), "group": r.group, "estimate": r.estimate}
+            for r in both.estimates]
+    labels = ("a", "b")
+    # read as that fit: group b's x1 then has its negative residual variance, which scoring refuses (with the 1 of
+    # the table it would have scored without a word)
+    with pytest.raises(EstimationError, match="residual variance of zero or less"):
+        ordinal_models_of_estimates(parse_model(MODEL), saved_rows(rows, "f.json"), both.data, labels, "f.json")
+    at = next(i for i, r in enumerate(rows) if r["kind"] == "residual_variance" and r["variables"] == ["x1"]
+              and r["group"] == "a")
+    rows[at]["estimate"] += 0.05
+    with pytest.raises(OptionError, match="is not of the model"):
+        ordinal_models_of_estimates(parse_model(MODEL), saved_rows(rows, "f.json"), both.data, labels, "f.json")
