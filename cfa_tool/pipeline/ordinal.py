@@ -420,9 +420,11 @@ def _scale_only_residuals(objective: OrdinalLeastSquares, table: ParameterTable,
     codes, rows, cols = table.entry_arrays()
     group_of = table.group_array()
     fixed_one = np.array([not par.free and par.matrix == "T" and par.row == par.col for par in table.parameters])
+    out = np.zeros((table.n_groups, table.p), dtype=bool)
+    if any(objective.statistics(theta, g) is None for g in range(table.n_groups)):
+        return out  # no statistics there (an implied variance not positive): nothing is known to be a scale only
     D, *_ = objective.stacked(theta)  # (q, statistics)
     slices = objective.group_slices()
-    out = np.zeros((table.n_groups, table.p), dtype=bool)
     continuous = set(getattr(objective, "continuous", ()))
     for e in np.flatnonzero(fixed_one):
         g, j = int(group_of[e]), int(rows[e])
