@@ -139,13 +139,7 @@ class OrdinalLeastSquares:
         variance 1 (``unit_variances``) is 1 minus its common variance, so that its latent response has variance 1
         (Muthén & Asparouhov 2002's correlation metric); the others as the parameters give them."""
         mats = self.model.matrices(theta, g)
-        if self.unit_variances is None or not self.unit_variances[g].any():
-            return mats
-        unit = self.unit_variances[g]
-        T = mats.T.copy()
-        common = np.diag(mats.implied_covariance()) - np.diag(mats.T)
-        T[unit, unit] = 1.0 - common[unit]
-        return replace(mats, T=T)
+        return mats if self.unit_variances is None else mats.with_unit_variances(self.unit_variances[g])
 
     # -- model statistics and their derivatives
     def _latent_moments(self, theta: np.ndarray, g: int):

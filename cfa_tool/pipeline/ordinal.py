@@ -232,10 +232,7 @@ def _first_step_thresholds(moments, order: list[int]) -> tuple[EstimateRow, ...]
 def unit_variance_matrices(mats):
     """A one-group ordinal model's matrices with each latent response's residual variance 1 - its common variance,
     so that every latent response has variance 1 (what ``ordinal_spec`` fixes at 1 while estimating)."""
-    p = mats.T.shape[0]
-    T = mats.T.copy()
-    T[np.diag_indices(p)] = 1.0 - np.diag(mats.implied_covariance() - mats.T)
-    return dc_replace(mats, T=T)
+    return mats.with_unit_variances()
 
 
 def _pairs_in_order(moments, observed: tuple[str, ...]) -> tuple[list[int], list[int]]:

@@ -233,12 +233,7 @@ class OrdinalScoringModel:
 def standardized_latent_responses(mats: ModelMatrices) -> ModelMatrices:
     """The matrices of a one-group ordinal fit with each latent response's residual variance set so
     that its total variance is 1 (1 - common variance), as that fit identifies them."""
-    from dataclasses import replace
-
-    common = np.diag(mats.implied_covariance() - mats.T)
-    T = mats.T.copy()
-    T[np.diag_indices_from(T)] = 1.0 - common
-    return replace(mats, T=T)
+    return mats.with_unit_variances()
 
 
 def ordinal_score_inputs(estimation, groups: list) -> tuple[OrdinalScoringModel, ...]:
@@ -263,13 +258,8 @@ def group_ordinal_model(model, theta: np.ndarray, g: int, label: str | None,
     variance 1 minus their common variance: pipeline.ordinal.estimate_ordinal_groups)."""
     table = model.table
     mats = model.matrices(theta, g)
-    if held is not None and np.any(held):
-        from dataclasses import replace
-
-        T = mats.T.copy()
-        common = np.diag(mats.implied_covariance()) - np.diag(mats.T)
-        T[held, held] = 1.0 - common[held]
-        mats = replace(mats, T=T)
+    if held is not None:
+        mats = mats.with_unit_variances(held)
     ends = np.cumsum([max(len(c) - 1, 0) for c in categories])
     thresholds = tuple(np.split(model.thresholds(theta, g), ends[:-1]))
     return OrdinalScoringModel(scoring_model(mats, table.observed, table.latent, label), thresholds, categories)
