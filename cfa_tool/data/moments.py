@@ -73,7 +73,14 @@ def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) ->
         if kind == "c":
             raise DataError(f"{source}: column '{printable(name)}' holds complex numbers; indicators must be real numbers")
         columns.append(_object_column(column, name, source))
-    return np.column_stack(columns) if columns else np.zeros((len(frame), 0))
+    return _positive_zero(np.column_stack(columns)) if columns else np.zeros((len(frame), 0))
+
+
+def _positive_zero(values: np.ndarray) -> np.ndarray:
+    """``values`` (a fresh array) with every negative zero made 0: a cell '-0' or '-0.0' is the answer 0, and a
+    category code or any number shown from it must not read "-0"."""
+    values[values == 0] = 0.0
+    return values
 
 
 def item_values(frame: pd.DataFrame, names: tuple[str, ...] | list[str]) -> np.ndarray | None:
@@ -96,8 +103,8 @@ def item_values(frame: pd.DataFrame, names: tuple[str, ...] | list[str]) -> np.n
         values = np.empty((len(frame), len(arrays)), order="F")
         for j, array in enumerate(arrays):
             values[:, j] = array
-        return values
-    return _copied([frame.iloc[:, j] for j in where], len(frame))
+        return _positive_zero(values)
+    return _positive_zero(_copied([frame.iloc[:, j] for j in where], len(frame)))
 
 
 def _stored_columns(frame: pd.DataFrame, where: list[int]) -> list:
@@ -138,7 +145,7 @@ def _values_one_by_one(frame: pd.DataFrame, names) -> np.ndarray | None:
         return None
     if not all(isinstance(c, pd.Series) and c.dtype.kind in "iuf" for c in selected):
         return None
-    return _copied(selected, len(frame))
+    return _positive_zero(_copied(selected, len(frame)))
 
 
 @dataclass(frozen=True, eq=False)

@@ -99,10 +99,15 @@ class OrdinalLeastSquares:
     ``thresholds``: the model statistics are standardized thresholds and correlations (thresholds
     as parameters); otherwise correlations of latent responses of unit variance."""
 
-    def __init__(self, model: StructuredModel, groups: list[GroupStatistics], thresholds: bool):
+    def __init__(self, model: StructuredModel, groups: list[GroupStatistics], thresholds: bool,
+                 unit_variances: tuple[np.ndarray, ...] | None = None):
         self.model = model
         self.groups = groups
         self.thresholds = thresholds
+        # per group, the items whose latent response has variance 1 (the correlation metric, its residual variance
+        # following as 1 minus its common variance) rather than residual variance 1: see unit_variance_matrices
+        self.unit_variances = (tuple(np.asarray(u, dtype=bool) for u in unit_variances)
+                               if unit_variances is not None and any(np.any(u) for u in unit_variances) else None)
         self.pairs = np.tril_indices(model.p, -1)
         self.n_total = sum(g.n_obs for g in groups)
         self.weights = [g.n_obs / self.n_total for g in groups]
@@ -122,23 +127,40 @@ class OrdinalLeastSquares:
         """The same objective for other statistics of the same shape (weights and Gamma kept), e.g. the
         statistics another model implies (the nesting check of Bentler & Satorra 2010)."""
         return OrdinalLeastSquares(self.model, [replace(g, values=np.asarray(v, dtype=float))
-                                                for g, v in zip(self.groups, values)], self.thresholds)
+                                                for g, v in zip(self.groups, values)], self.thresholds,
+                                   self.unit_variances)
+
+    def with_unit_variances(self, unit_variances: tuple[np.ndarray, ...] | None) -> OrdinalLeastSquares:
+        """The same objective with other items' latent responses held at variance 1 (the same model in another
+        metric where that variance only sets the scale)."""
+        return OrdinalLeastSquares(self.model, self.groups, self.thresholds, unit_variances)
+
+    def unit_variance_matrices(self, theta: np.ndarray, g: int):
+        """Group g's model matrices as this objective reads them: the residual variance of each item held at
+        variance 1 (``unit_variances``) is 1 minus its common variance, so that its latent response has variance 1
+        (Muthén & Asparouhov 2002's correlation metric); the others as the parameters give them."""
+        mats = self.model.matrices(theta, g)
+        return mats if self.unit_variances is None else mats.with_unit_variances(self.unit_variances[g])
 
     # -- model statistics and their derivatives
     def _latent_moments(self, theta: np.ndarray, g: int):
-        """(matrices, Sigma, its diagonal, mu, thresholds) of group g's latent responses; None when some
-        implied variance is not positive."""
+        """(matrices, Sigma, its diagonal as the statistics read it, mu, thresholds, the items held at variance 1 or
+        None) of group g's latent responses; None when some implied variance is not positive."""
         mats = self.model.matrices(theta, g)
         sigma = mats.implied_covariance()
         if not self.thresholds:  # the residual variances are not parameters: the pairs are all there is
-            return mats, sigma, None, None, None
+            return mats, sigma, None, None, None, None
         var = np.diag(sigma)
+        unit = None
+        if self.unit_variances is not None and self.unit_variances[g].any():
+            unit = self.unit_variances[g]
+            var = np.where(unit, 1.0, var)
         if np.any(var <= 0) or not np.all(np.isfinite(var)):
             return None
-        return mats, sigma, var, mats.implied_mean(), self.model.thresholds(theta, g)
+        return mats, sigma, var, mats.implied_mean(), self.model.thresholds(theta, g), unit
 
     def _statistics(self, moments) -> np.ndarray:
-        _, sigma, var, mu, tau = moments
+        _, sigma, var, mu, tau, _ = moments
         i, j = self.pairs
         if not self.thresholds:
             return sigma[i, j]
@@ -152,17 +174,25 @@ class OrdinalLeastSquares:
 
     def _transform(self, moments, d_sigma: np.ndarray, d_mu: np.ndarray, d_tau: np.ndarray) -> np.ndarray:
         """Derivatives of the statistics from those of Sigma, mu and tau: (k, statistics)."""
-        _, sigma, var, mu, tau = moments
+        _, sigma, var, mu, tau, _ = moments
         i, j = self.pairs
         if not self.thresholds:
             return d_sigma[:, i, j]
         sd = np.sqrt(var)
         it = self.item_of
-        d_var = np.diagonal(d_sigma, axis1=1, axis2=2)
+        d_var = self._variance_derivatives(moments, d_sigma)
         d_thr = (d_tau - d_mu[:, it]) / sd[it] - ((tau - mu[it]) / (2.0 * sd[it] ** 3)) * d_var[:, it]
         rho = sigma[i, j] / (sd[i] * sd[j])
         d_rho = d_sigma[:, i, j] / (sd[i] * sd[j]) - 0.5 * rho * (d_var[:, i] / var[i] + d_var[:, j] / var[j])
         return np.hstack([d_thr, d_rho])
+
+    @staticmethod
+    def _variance_derivatives(moments, d_sigma: np.ndarray) -> np.ndarray:
+        """d diag(Sigma) / d theta as the statistics read it, (k, p): zero for the items whose latent response is
+        held at variance 1 (their variance does not move)."""
+        d_var = np.diagonal(d_sigma, axis1=1, axis2=2)
+        unit = moments[5]
+        return d_var if unit is None else np.where(unit[None, :], 0.0, d_var)
 
     def _jacobian(self, theta: np.ndarray, g: int, moments) -> np.ndarray:
         """d sigma_g / d theta, shape (q, statistics)."""
@@ -315,8 +345,9 @@ class OrdinalLeastSquares:
             Z_i = -sum_j c_ij dSigma_ij / (2 v_i s_i s_j) - sum_k(i) c_k (dtau_k - dmu_i) / (2 v_i^3/2),
             B_ij = c_ij rho_ij / (4 v_i v_j),  B_ii = sum_j 3 c_ij rho_ij / (4 v_i^2) + sum_k(i) 3 c_k d_k / (4 v_i^5/2),
 
-        s = sqrt(v), d_k = tau_k - mu_i, k(i) the thresholds of item i.  Checked against differences of
-        the analytic gradient in tests/estimation/test_threshold_hessian.py."""
+        s = sqrt(v), d_k = tau_k - mu_i, k(i) the thresholds of item i.  An item held at variance 1
+        (``unit_variances``) has v_i = 1 whatever theta: its dv and its term of M are zero.  Checked against
+        differences of the analytic gradient in tests/estimation/test_threshold_hessian.py."""
         q = len(theta)
         H = np.zeros((q, q))
         i, j = self.pairs
@@ -326,7 +357,7 @@ class OrdinalLeastSquares:
             moments = self._latent_moments(theta, g)
             if moments is None:
                 return None
-            mats, sigma, var, mu, tau = moments
+            mats, sigma, var, mu, tau, _ = moments
             part = self._parts[g]
             d_sigma, d_mu, d_tau = self._moment_derivatives(mats, part)
             D = self._transform(moments, d_sigma, d_mu, d_tau)
@@ -341,6 +372,8 @@ class OrdinalLeastSquares:
             half = c_rho * rho
             M[np.diag_indices(p)] = (-(np.bincount(i, half, p) + np.bincount(j, half, p)) / (2.0 * var)
                                      - np.bincount(it, c_thr * dev, p) / (2.0 * var * sd))
+            if moments[5] is not None:  # a variance held at 1 does not move: no term in its second derivatives
+                M[moments[5], moments[5]] = 0.0
             m = -np.bincount(it, c_thr, p) / sd
             if self.model.higher_order:
                 second = path_second_derivatives(part.codes, part.rows, part.cols, M, mats, m)
@@ -350,7 +383,7 @@ class OrdinalLeastSquares:
                 np.add.at(second, (part.mean_mean, part.mean_loading), m[part.mean_item])
             curvature = part.Jt @ second @ part.Jt.T
             # second derivatives of the statistics with respect to the moments, weighted by c
-            d_var = np.diagonal(d_sigma, axis1=1, axis2=2)
+            d_var = self._variance_derivatives(moments, d_sigma)
             A = np.zeros((p, p))
             A[i, j] = -c_rho / (2.0 * var[i] * sd[i] * sd[j])
             A[j, i] = -c_rho / (2.0 * var[j] * sd[i] * sd[j])
@@ -397,16 +430,21 @@ class MixedLeastSquares(OrdinalLeastSquares):
     Sigma_jj): polychoric, polyserial and Pearson correlations in the data.  Statistics per group:
     (thresholds, means of the continuous items, their variances, correlations)."""
 
-    def __init__(self, model: StructuredModel, groups: list[GroupStatistics], continuous: np.ndarray):
-        super().__init__(model, groups, thresholds=True)
+    def __init__(self, model: StructuredModel, groups: list[GroupStatistics], continuous: np.ndarray,
+                 unit_variances: tuple[np.ndarray, ...] | None = None):
+        super().__init__(model, groups, thresholds=True, unit_variances=unit_variances)
         self.continuous = np.asarray(continuous, dtype=int)
 
     def with_targets(self, values: list[np.ndarray]) -> MixedLeastSquares:
         return MixedLeastSquares(self.model, [replace(g, values=np.asarray(v, dtype=float))
-                                              for g, v in zip(self.groups, values)], self.continuous)
+                                              for g, v in zip(self.groups, values)], self.continuous,
+                                 self.unit_variances)
+
+    def with_unit_variances(self, unit_variances: tuple[np.ndarray, ...] | None) -> MixedLeastSquares:
+        return MixedLeastSquares(self.model, self.groups, self.continuous, unit_variances)
 
     def _statistics(self, moments) -> np.ndarray:
-        _, sigma, var, mu, _ = moments
+        _, sigma, var, mu, _, _ = moments
         base = super()._statistics(moments)
         K, c = self.n_thresholds, self.continuous
         return np.concatenate([base[:K], mu[c], var[c], base[K:]])

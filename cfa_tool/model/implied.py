@@ -65,6 +65,20 @@ class ModelMatrices:
     def latent_means(self) -> np.ndarray:
         return self.A @ self.M
 
+    def with_unit_variances(self, held: np.ndarray | None = None) -> ModelMatrices:
+        """The same matrices with the residual variance of each item in ``held`` (a mask over the items; every item
+        when None) 1 minus the variance its factors explain, so that its latent response has variance 1: the
+        correlation metric of ordinal items (Muthén & Asparouhov 2002), the one rule for every view of it."""
+        from dataclasses import replace
+
+        held = np.ones(self.T.shape[0], dtype=bool) if held is None else np.asarray(held, dtype=bool)
+        if not held.any():
+            return self
+        T = self.T.copy()
+        common = np.diag(self.implied_covariance()) - np.diag(self.T)
+        T[held, held] = 1.0 - common[held]
+        return replace(self, T=T)
+
     def implied_covariance(self) -> np.ndarray:
         """Sigma = G P G' + T (read-only; computed once)."""
         return self._implied_covariance

@@ -2149,14 +2149,15 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         refusals = ordinal_refusals(frame, spec.observed_names, source,
                                     frozenset(x for x in spec.observed_names if x not in ordinal_items), group,
                                     reference_group)
-    if ordinal_items and not refusals:  # the same data checks as the fit (correlations, duplicates)
+    if ordinal_items and not refusals:  # the same data checks as the fit (correlations, duplicates, the design's)
         if group is not None:
-            ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise=True)
+            ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise=True, design=design)
         else:
             from cfa_tool.data.polychoric import ordinal_moments
 
             ordinal_moments(frame, spec.observed_names, source,
-                            frozenset(x for x in spec.observed_names if x not in ordinal_items), pairwise=True)
+                            frozenset(x for x in spec.observed_names if x not in ordinal_items), pairwise=True,
+                            design=design)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
     sparse, too_small = (), ()
     try:  # the saturated (EM) moments once; where they cannot be estimated, whether the gaps are why

@@ -232,10 +232,7 @@ def _first_step_thresholds(moments, order: list[int]) -> tuple[EstimateRow, ...]
 def unit_variance_matrices(mats):
     """A one-group ordinal model's matrices with each latent response's residual variance 1 - its common variance,
     so that every latent response has variance 1 (what ``ordinal_spec`` fixes at 1 while estimating)."""
-    p = mats.T.shape[0]
-    T = mats.T.copy()
-    T[np.diag_indices(p)] = 1.0 - np.diag(mats.implied_covariance() - mats.T)
-    return dc_replace(mats, T=T)
+    return mats.with_unit_variances()
 
 
 def _pairs_in_order(moments, observed: tuple[str, ...]) -> tuple[list[int], list[int]]:
@@ -403,18 +400,73 @@ def threshold_counts(moments) -> dict[str, int]:
     return {x: len(t) for x, t in zip(moments.names, moments.thresholds) if x not in moments.continuous}
 
 
-def _objective(model: StructuredModel, statistics: list, continuous: np.ndarray) -> OrdinalLeastSquares:
+def _objective(model: StructuredModel, statistics: list, continuous: np.ndarray,
+               unit_variances: tuple[np.ndarray, ...] | None = None) -> OrdinalLeastSquares:
     """Least squares with thresholds as parameters; beside continuous items their means and variances too."""
     if len(continuous):
-        return MixedLeastSquares(model, statistics, continuous)
-    return OrdinalLeastSquares(model, statistics, thresholds=True)
+        return MixedLeastSquares(model, statistics, continuous, unit_variances)
+    return OrdinalLeastSquares(model, statistics, thresholds=True, unit_variances=unit_variances)
+
+
+def _scale_only_residuals(objective: OrdinalLeastSquares, table: ParameterTable, theta: np.ndarray) -> np.ndarray:
+    """Per group and item, whether the item's residual variance there is fixed at 1 only to set the scale of its
+    latent response (the identification of Wu & Estabrook 2016), so that holding the latent response's variance at
+    1 instead is the same model in another metric: the residual variance, were it free, would move the statistics
+    only along directions the free parameters move them already (its column of derivatives lies in their span, at
+    ``theta``).  Not so where it carries a constraint, e.g. equal across groups at the strict step."""
+    codes, rows, cols = table.entry_arrays()
+    group_of = table.group_array()
+    fixed_one = np.array([not par.free and par.matrix == "T" and par.row == par.col for par in table.parameters])
+    out = np.zeros((table.n_groups, table.p), dtype=bool)
+    if any(objective.statistics(theta, g) is None for g in range(table.n_groups)):
+        return out  # no statistics there (an implied variance not positive): nothing is known to be a scale only
+    D, *_ = objective.stacked(theta)  # (q, statistics)
+    slices = objective.group_slices()
+    continuous = set(getattr(objective, "continuous", ()))
+    for e in np.flatnonzero(fixed_one):
+        g, j = int(group_of[e]), int(rows[e])
+        if j in continuous:
+            continue
+        column = np.zeros(D.shape[1])
+        column[slices[g]] = objective.entry_jacobian(theta, g, codes[[e]], rows[[e]], cols[[e]])[0]
+        size = float(np.linalg.norm(column))
+        if size == 0.0:
+            continue
+        coef, *_ = np.linalg.lstsq(D.T, column, rcond=None)
+        out[g, j] = float(np.linalg.norm(D.T @ coef - column)) <= 1e-6 * size
+    return out
+
+
+def _heywood_responses(objective: OrdinalLeastSquares, theta: np.ndarray) -> np.ndarray:
+    """Per group and item, whether the latent response's residual is a share of its variance below
+    UNBOUNDED_RESIDUAL_SHARE at ``theta`` (a search driven towards a negative residual variance in the correlation
+    metric, which residual variances held at 1 cannot reach but only approach without bound)."""
+    from cfa_tool.assessment.identification import UNBOUNDED_RESIDUAL_SHARE
+
+    out = []
+    for g in range(objective.model.n_groups):
+        mats = objective.unit_variance_matrices(theta, g)
+        total = np.diag(mats.implied_covariance())
+        with np.errstate(divide="ignore", invalid="ignore"):
+            share = np.diag(mats.T) / total
+        held = objective.unit_variances[g] if objective.unit_variances is not None else False
+        out.append(np.isfinite(share) & (share >= 0) & (share < UNBOUNDED_RESIDUAL_SHARE) & ~held)
+    return np.array(out)
 
 
 def estimate_ordinal_groups(spec: Spec, groups: list, options, method: Weighting | str = Weighting.DIAGONAL,
-                            start: np.ndarray | None = None) -> OrdinalEstimation:
+                            start: np.ndarray | None = None, correlation_metric: bool = False) -> OrdinalEstimation:
     """Build the multi-group ordinal model and minimise its least-squares discrepancy.  Continuous items
     beside the ordinal ones keep their metric in every group (their means and variances are statistics, their
-    intercepts and residual variances parameters; :class:`~cfa_tool.estimation.least_squares.MixedLeastSquares`)."""
+    intercepts and residual variances parameters; :class:`~cfa_tool.estimation.least_squares.MixedLeastSquares`).
+
+    The latent responses are identified by residual variances of 1 (Wu & Estabrook 2016), which cannot reach a
+    solution with a negative residual variance in the correlation metric (a Heywood case): the search only
+    approaches it as the estimates grow without bound.  Where it does and the residual variance at 1 only sets the
+    scale, the model is fitted again with those latent responses at variance 1 (the same model in the correlation
+    metric of a one-group fit, Muthén & Asparouhov 2002), which reaches the solution: an estimate with its problem
+    shown, as ``fit`` of one group gives it.  ``correlation_metric``: every ordinal item's latent response at
+    variance 1 from the start (one group, as that fit identifies it: the same estimates)."""
     method = _check_method(method)
     labels = tuple(label for label, _ in groups)
     observed = spec.observed_names
@@ -443,21 +495,59 @@ def estimate_ordinal_groups(spec: Spec, groups: list, options, method: Weighting
         location[continuous] = sum(w * m.means[continuous] for w, m in zip(weights, moments))
     S = R * np.outer(scale, scale)
 
-    def variance_scaled_problem() -> Alternative | None:
+    def variance_scaled_problem(unit_variances=None) -> Alternative | None:
         try:
             alt_table = build_parameter_table(variance_scaled(spec, table), labels, ordinal=n_thresholds)
         except CfaError:  # e.g. a freed factor variance, which variance scaling would fix
             return None
         alt_model = StructuredModel(alt_table)
-        return Alternative(alt_table, alt_model, _objective(alt_model, statistics, continuous),
+        return Alternative(alt_table, alt_model, _objective(alt_model, statistics, continuous, unit_variances),
                            starting_values(alt_table, S, location, thresholds=tau))
 
+    usual_start = starting_values(table, S, location, thresholds=tau)
     if start is None or len(start) != table.n_free:
-        start = starting_values(table, S, location, thresholds=tau)
-    found = search(objective, table, start, options.max_iterations, variance_scaled_problem)
+        start = usual_start
+    if correlation_metric:
+        unit = np.ones((len(groups), len(observed)), dtype=bool)
+        unit[:, continuous] = False
+        objective = objective.with_unit_variances(tuple(unit))
+    found = search(objective, table, start, options.max_iterations,
+                   lambda: variance_scaled_problem(objective.unit_variances))
     opt = found.result
+    if not correlation_metric:
+        heywood = _heywood_responses(objective, opt.theta)
+        if heywood.any():
+            # the item's scale is set where its residual variance is fixed at 1 (in the first group, say), and its
+            # residual may be driven to zero in another group where it is free: its latent response at variance 1
+            # wherever that residual variance only sets the scale
+            unit = heywood.any(axis=0)[None, :] & _scale_only_residuals(objective, table, usual_start)
+            if unit.any():  # fitted again in the correlation metric of those latent responses
+                again = objective.with_unit_variances(tuple(unit))
+                refit = search(again, table, usual_start, options.max_iterations,
+                               lambda: variance_scaled_problem(again.unit_variances))
+                if refit.result.converged:
+                    objective, found, opt = again, refit, refit.result
     message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper)
     return OrdinalEstimation(table, model, objective, opt.theta, opt.value, opt.converged, opt.iterations, message)
+
+
+def _unit_variance_entries(table: ParameterTable, unit_variances: tuple[np.ndarray, ...] | None) -> frozenset[int]:
+    """The residual-variance entries of the items whose latent responses are held at variance 1 (they follow
+    from the other estimates, as in a one-group fit)."""
+    if unit_variances is None:
+        return frozenset()
+    return frozenset(e for e, par in enumerate(table.parameters)
+                     if par.matrix == "T" and par.row == par.col and unit_variances[par.group][par.row])
+
+
+def _unit_variance_note(table: ParameterTable, unit_variances: tuple[np.ndarray, ...]) -> str:
+    """What the metric of a multi-group ordinal fit is where latent responses were held at variance 1."""
+    held = "; ".join(f"{', '.join(table.observed[j] for j in np.flatnonzero(u))} in group {table.groups[g]}"
+                     for g, u in enumerate(unit_variances) if u.any())
+    return (f"Latent responses held at variance 1 rather than residual variance 1 (the same model in the correlation "
+            f"metric of a one-group fit): {held}. With residual variance 1 the estimates grew without bound towards a "
+            f"negative residual variance, which this metric reaches; such a residual variance follows as 1 minus the "
+            f"variance the factors explain, and the item's loadings are in that metric")
 
 
 def ordinal_score_tests(est: OrdinalEstimation, candidates: list[list]) -> ModificationIndices:
@@ -486,13 +576,15 @@ def ordinal_difference(restricted: OrdinalEstimation, general: OrdinalEstimation
     estimates (Satorra 2000; Asparouhov & Muthén 2006).  ``general_derivatives``: the general
     model's derivatives there, with the statistics in the restricted model's order; by default
     the general model's parameters are found from the restricted model's matrix entries, which
-    the two share when they differ only in constraints (the invariance ladder)."""
+    the two share when they differ only in constraints (the invariance ladder), read in the restricted model's metric
+    (its latent responses held at variance 1, if any: ``estimate_ordinal_groups``)."""
     D0, _, w, gamma = restricted.objective.stacked(restricted.theta)
     if general_derivatives is None:
         entries = restricted.model.entry_values(restricted.theta)
         J = general.model.J  # of full column rank: the normal equations give the least-squares solution
         theta1 = np.linalg.solve(J.T @ J, J.T @ (entries - general.model.offset))
-        general_derivatives = general.objective.stacked(theta1)[0]
+        general_objective = general.objective.with_unit_variances(restricted.objective.unit_variances)
+        general_derivatives = general_objective.stacked(theta1)[0]
     # U_d = U_restricted - U_general: the weights W cancel
     traces = residual_traces(w, gamma, [(1.0, D0), (-1.0, general_derivatives)], False,
                              restricted.objective.group_slices())
@@ -514,7 +606,10 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
     codes, rows, cols = table.entry_arrays()
     group_of = table.group_array()
     standardized, factors_standardized = np.full(len(values), np.nan), np.full(len(values), np.nan)
-    mats = [model.matrices(theta, g) for g in range(G)]
+    mats = [obj.unit_variance_matrices(theta, g) for g in range(G)]
+    derived = _unit_variance_entries(table, obj.unit_variances)
+    for e in derived:  # residual variances that follow from latent responses held at variance 1
+        values[e] = mats[group_of[e]].T[rows[e], rows[e]]
     for g in range(G):
         sel = group_of == g
         standardized[sel], factors_standardized[sel] = standardize_entries(mats[g], codes[sel], rows[sel], cols[sel],
@@ -570,6 +665,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
             exo = exogenous_factors(spec)
             modification_rows = ordinal_score_tests(est, [candidate_entries(table, exo, g) for g in range(G)])
         warnings.append(GROUPS_NOTE)
+        if obj.unit_variances is not None and table.multigroup:
+            warnings.append(_unit_variance_note(table, obj.unit_variances))
         if moments[0].continuous:
             warnings.append(MIXED_GROUPS_NOTE)
         warnings.append(ORDINAL_NOTE)
@@ -578,7 +675,7 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
     left_out = sum((_left_out(m, f" in group {label}") for (label, _), m in zip(groups, moments)), ())
     problems = left_out + small + tuple(solution_problems(
         table, list(mats), theta, cov_theta if est.converged else None, est.converged, est.message, options.max_iterations))
-    estimates = estimate_rows(table, values, inference, standardized, factors_standardized)
+    estimates = estimate_rows(table, values, inference, standardized, factors_standardized, derived)
     group_results = []
     for g, (lab, m) in enumerate(groups):
         mg = moments[g]

@@ -908,7 +908,19 @@ def _latent_response_sentence(result) -> str:
         """'fixed at 1', 'estimated', or with the items whose own value departs from that (a 'fix' the model file
         states: review s14, where 'partly estimated' stood for residual variances that were all fixed)."""
         own = [r for r in result.estimates if r.kind == kind and r.group == group and r.variables[0] in items]
+        # a latent response held at variance 1 instead (its residual variance derived: pipeline.ordinal)
+        held = [r for r in own if r.origin == "derived"]
+        own = [r for r in own if r.origin != "derived"]
         fixed = [r for r in own if not r.free]
+        if held:
+            instead = (f"{_names([r.variables[0] for r in held])}: the latent response's variance at 1 instead, its "
+                       f"residual variance following from the loadings")
+            if not own:
+                return "following from latent-response variances fixed at 1"
+            return state_of(own, fixed, value) + f" ({instead})"
+        return state_of(own, fixed, value)
+
+    def state_of(own: list, fixed: list, value: float) -> str:
         if len(fixed) == len(own):
             apart = [f"{_name(r.variables[0])}'s at {r.estimate:g}" for r in fixed if r.estimate != value]
             return f"fixed at {value:g}" + (f" ({_list(apart)})" if apart else "")
@@ -1447,7 +1459,8 @@ def _held(step, basis: str = "") -> str:
     inadmissible solution says so, and a step that met its test but rests on a step that did not hold
     (``basis``: that step in words) is not called held."""
     if not step.result.converged:
-        return "could not be judged: its estimation did not converge"
+        return "could not be judged: " + ("it could not be estimated" if _not_estimated(step.result)
+                                          else "its estimation did not converge")
     if not step.result.admissible:
         return "did not hold: its solution was not admissible"
     if step.untested:
@@ -1468,9 +1481,23 @@ def _basis(steps, k: int) -> str:
     failed = unsound_basis(steps, k)
     if failed is None:
         return ""
-    why = ("did not converge" if not failed.result.converged else "was not admissible" if not failed.result.admissible
+    why = (("could not be estimated" if _not_estimated(failed.result) else "did not converge")
+           if not failed.result.converged else "was not admissible" if not failed.result.admissible
            else "was not tested" if failed.untested else "did not hold")
     return f"the {failed.level} step, which {why}"
+
+
+def _not_estimated(result) -> str:
+    """Why a result could not be estimated, in a few words, when its problems say it (a Heywood case driving the
+    estimates without bound, a model the data do not identify); '' for a search that did not converge."""
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    kinds = {p.kind for p in result.problems}
+    if ProblemKind.UNBOUNDED_HEYWOOD in kinds:
+        return "a Heywood case: the estimates grow without bound"
+    if ProblemKind.NOT_IDENTIFIED in kinds:
+        return "not identified with these data"
+    return ""
 
 
 def _step_problems(steps) -> str:
@@ -1478,7 +1505,9 @@ def _step_problems(steps) -> str:
     comes before any step's result ('' when there are none)."""
     clauses = []
     for step in steps:
-        if not step.result.converged:
+        if not step.result.converged and _not_estimated(step.result):
+            clauses.append(f"the {step.level} model could not be estimated ({_not_estimated(step.result)})")
+        elif not step.result.converged:
             clauses.append(f"the estimation of the {step.level} model did not converge")
         elif not step.result.admissible:
             found = _list([_phrase(p, step.result) for p in step.result.problems if p.kind.inadmissible])

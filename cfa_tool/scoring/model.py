@@ -233,12 +233,7 @@ class OrdinalScoringModel:
 def standardized_latent_responses(mats: ModelMatrices) -> ModelMatrices:
     """The matrices of a one-group ordinal fit with each latent response's residual variance set so
     that its total variance is 1 (1 - common variance), as that fit identifies them."""
-    from dataclasses import replace
-
-    common = np.diag(mats.implied_covariance() - mats.T)
-    T = mats.T.copy()
-    T[np.diag_indices_from(T)] = 1.0 - common
-    return replace(mats, T=T)
+    return mats.with_unit_variances()
 
 
 def ordinal_score_inputs(estimation, groups: list) -> tuple[OrdinalScoringModel, ...]:
@@ -249,16 +244,22 @@ def ordinal_score_inputs(estimation, groups: list) -> tuple[OrdinalScoringModel,
     ``groups``: the ``(label, OrdinalMoments)`` list it was estimated from (for the categories).
     """
     model, theta = estimation.model, estimation.theta
-    return tuple(group_ordinal_model(model, theta, g, label, moments.categories) for g, (label, moments) in enumerate(groups))
+    held = getattr(getattr(estimation, "objective", None), "unit_variances", None)
+    return tuple(group_ordinal_model(model, theta, g, label, moments.categories, None if held is None else held[g])
+                 for g, (label, moments) in enumerate(groups))
 
 
 def group_ordinal_model(model, theta: np.ndarray, g: int, label: str | None,
-                        categories: tuple[tuple[float, ...], ...]) -> OrdinalScoringModel:
+                        categories: tuple[tuple[float, ...], ...],
+                        held: np.ndarray | None = None) -> OrdinalScoringModel:
     """Group g's :class:`OrdinalScoringModel` of a fit with thresholds as parameters (``model`` a StructuredModel,
     ``categories`` each item's answer values in the model's item order, empty for a continuous item, which
-    keeps its own metric)."""
+    keeps its own metric; ``held``: the items whose latent response the fit held at variance 1, their residual
+    variance 1 minus their common variance: pipeline.ordinal.estimate_ordinal_groups)."""
     table = model.table
     mats = model.matrices(theta, g)
+    if held is not None:
+        mats = mats.with_unit_variances(held)
     ends = np.cumsum([max(len(c) - 1, 0) for c in categories])
     thresholds = tuple(np.split(model.thresholds(theta, g), ends[:-1]))
     return OrdinalScoringModel(scoring_model(mats, table.observed, table.latent, label), thresholds, categories)

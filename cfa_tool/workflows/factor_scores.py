@@ -1447,9 +1447,15 @@ def ordinal_models_of_estimates(spec, rows, data, labels: tuple[str, ...] | None
     if labels is not None:
         table = build_parameter_table(spec, labels, ordinal={x: len(c) - 1 for x, c in categories.items() if c})
         model = StructuredModel(table)
-        theta = values_on_model(rows, table, source, spec.source).theta
+        # a residual variance the identification fixes at 1 is saved as 1 minus the common variance where the fit
+        # held that latent response at variance 1 instead (pipeline.ordinal.estimate_ordinal_groups)
+        scale = frozenset(e for e, par in enumerate(table.parameters) if par.kind == "residual_variance"
+                          and not par.free and par.origin == "scale" and categories.get(par.variables[0]))
+        saved = values_on_model(rows, table, source, spec.source, derived=scale)
+        held = _held_latent_responses(model, saved, scale, another)
         in_order = tuple(categories[x] for x in table.observed)
-        return [group_ordinal_model(model, theta, g, label, in_order) for g, label in enumerate(labels)], list(labels)
+        return ([group_ordinal_model(model, saved.theta, g, label, in_order, held[g]) for g, label in enumerate(labels)],
+                list(labels))
     fixed_spec, derived_items = ordinal_spec(spec)
     table = build_parameter_table(fixed_spec)
     derived = frozenset(e for e, par in enumerate(table.parameters)
@@ -1470,6 +1476,25 @@ def ordinal_models_of_estimates(spec, rows, data, labels: tuple[str, ...] | None
                                     [categories[x] for x in table.observed],
                                     np.asarray(data.means)[order], np.asarray(data.sds)[order])
     return [model], [None]
+
+
+def _held_latent_responses(model, saved, scale: frozenset, another: str) -> np.ndarray:
+    """Per group and item, whether a saved multi-group ordinal fit held the latent response at variance 1 (its
+    residual variance saved as 1 minus its common variance) rather than its residual variance at 1 (``scale``: the
+    entries of those residual variances); a value that is neither is a fit of another model."""
+    table = model.table
+    held = np.zeros((table.n_groups, table.p), dtype=bool)
+    for e in scale:
+        par = table.parameters[e]
+        value = saved.values[e]
+        if abs(value - par.offset) <= 1e-8 * (1.0 + abs(value)):
+            continue
+        mats = model.matrices(saved.theta, par.group)
+        common = mats.implied_covariance()[par.row, par.row] - mats.T[par.row, par.row]
+        if abs(common + value - 1.0) > 1e-6:
+            raise OptionError(another)
+        held[par.group, par.row] = True
+    return held
 
 
 def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_errors: bool = False,
@@ -1603,7 +1628,7 @@ def _linear_models(spec, frame, source, group, reference_group, fit_options, res
 def _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, result, design=None):
     from cfa_tool.method import MissingData
     from cfa_tool.pipeline import inputs as api
-    from cfa_tool.scoring.model import one_group_ordinal_inputs, ordinal_score_inputs
+    from cfa_tool.scoring.model import one_group_ordinal_inputs
 
     pairwise = result.method.missing is MissingData.PAIRWISE  # the thresholds the fit used
 
@@ -1622,12 +1647,21 @@ def _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, 
     from cfa_tool.model.parameters import build_parameter_table
     from cfa_tool.pipeline.ordinal import threshold_counts
 
+    from cfa_tool.scoring.model import group_ordinal_model
+
     groups, _ = api.ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise, design)
     labels = tuple(label for label, _ in groups)
     table = build_parameter_table(spec, labels, ordinal=threshold_counts(groups[0][1]))
     if table.n_free != len(result.theta):
         raise AssertionError("the fitted parameters do not match the model's table")
-    return list(ordinal_score_inputs(_Fitted(table, StructuredModel(table), result.theta), groups)), list(labels)
+    # the latent responses the fit held at variance 1 (their residual variances derived, not fixed at 1)
+    held = np.zeros((len(labels), table.p), dtype=bool)
+    for row in result.estimates:
+        if row.kind == "residual_variance" and row.origin == "derived" and row.group in labels:
+            held[labels.index(row.group), table.observed.index(row.variables[0])] = True
+    model = StructuredModel(table)
+    return ([group_ordinal_model(model, result.theta, g, label, m.categories, held[g])
+             for g, (label, m) in enumerate(groups)], list(labels))
 
 
 def _linear_quality(models, spec, sums: list) -> list[ScoreQuality]:

@@ -28,7 +28,7 @@ from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ord
                                       make_options, moments_for, data_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
                                       with_design_weights, with_missing_reading, with_rows_read)
-from cfa_tool.assessment.admissibility import ProblemKind, group_size_problems
+from cfa_tool.assessment.admissibility import WHY_NOT_ESTIMATED, ProblemKind, group_size_problems
 from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.model.description import parameter_words
 from cfa_tool.numerics import distributions as dist
@@ -464,7 +464,11 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                     raise EstimationError(" ".join(map(str, data_cautions + small
                                                        + ("the configural model did not converge" + reason,))))
                 steps.append(InvarianceStep(level, result, None, False, ()))
-                stopped = (f"the {level} model did not converge" + reason + "; the ladder stops there"
+                if why is not None and why.kind in WHY_NOT_ESTIMATED:  # its words say why (a Heywood case, ...)
+                    reason = ": " + why.explanation[0].lower() + why.explanation[1:].rstrip(".") + ". " + why.advice.rstrip(".")
+                stopped = (f"the {level} model " + ("could not be estimated" if why is not None and why.kind
+                                                     in WHY_NOT_ESTIMATED else "did not converge")
+                           + reason + "; the ladder stops there"
                            + (", and the partial search could not run at this step" if partial != "none" else ""))
                 left_out, left_notes = _rows_left_out(steps[0].result)
                 return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
@@ -888,9 +892,15 @@ class OrdinalLadder:
         return estimate_ordinal_groups(spec, groups, options, self.method, start)
 
     def assess(self, spec, groups, est, options, group_column):
+        from cfa_tool.errors import NotIdentified, UnboundedSolution
         from cfa_tool.pipeline.ordinal import assess_ordinal_groups
+        from cfa_tool.workflows.ordinal_compare import unestimated_ordinal_result
 
-        result = assess_ordinal_groups(spec, groups, est, options, group_column, self.method, modification=False)
+        try:
+            result = assess_ordinal_groups(spec, groups, est, options, group_column, self.method, modification=False)
+        except (NotIdentified, UnboundedSolution) as failure:  # the step could not be estimated: the ladder stops
+            # there with the steps before it reported, as compare reports such a model among the others
+            return unestimated_ordinal_result(spec, groups, est, options, group_column, self.method, failure)
         return with_design(result, self.design) if self.design is not None and result.converged else result
 
     def difference(self, est, result, previous, level, previous_level) -> DifferenceTest:

@@ -63,26 +63,44 @@ def fit_ordinal_models(specs: Sequence[Spec], complete: pd.DataFrame, source: st
             groups, _ = ordinal_groups(spec, complete, source, group, reference_group, ordinal_items, pairwise,
                                        design=design)
         with estimation_of(f"model {spec.title or spec.source}"):
-            est = estimate_ordinal_groups(spec, groups, fit_options, method)
+            # one group: every latent response at variance 1, the correlation metric 'fit' identifies them by (the
+            # same estimates, a Heywood case among them)
+            est = estimate_ordinal_groups(spec, groups, fit_options, method, correlation_metric=group is None)
             if group is None:  # one group: no group in its parameters' words (it said 'in group all')
                 est = replace(est, table=_one_group_table(est.table))
             try:
                 result = assess_ordinal_groups(spec, groups, est, fit_options, group, method, modification=False)
             except (NotIdentified, UnboundedSolution) as failure:  # reported among the others, as compare of
                 # continuous items does
-                result = _unidentified(spec, groups, est, fit_options, group, method, failure)
+                result = unestimated_ordinal_result(spec, groups, est, fit_options, group, method, failure)
         estimations.append(est)
-        if group is None and result.fit is not None:
+        if group is None:
             # 'fit' of one group estimates the thresholds in a first step and does not count them, nor (beside
-            # continuous items) their intercepts and residual variances, which that fit does not estimate: count alike
+            # continuous items) their intercepts and residual variances, which that fit does not estimate: count alike,
+            # in the fit's statistics and in the rule of rows per parameter (which counted them: 59 for fit's 15)
             saturated = len({par.terms[0][0] for par in est.table.parameters if par.free and (
                 par.kind == "threshold" or (par.kind in ("intercept", "residual_variance")
                                             and par.variables[0] not in ordinal_items))})
-            result = replace(result, fit=replace(result.fit, n_free_parameters=result.fit.n_free_parameters - saturated))
+            if result.fit is not None:
+                result = replace(result, fit=replace(result.fit,
+                                                     n_free_parameters=result.fit.n_free_parameters - saturated))
+            result = _counted_as_fit(result, est.table.n_free, est.table.n_free - saturated, groups[0][1].n_obs)
         if design is not None and result.converged:
             result = with_design(result, design_summary(complete, design, [m for _, m in groups], [g for g, _ in groups]))
         results.append(result)
     return estimations, results
+
+
+def _counted_as_fit(result: FitResult, counted: int, free: int, rows: int) -> FitResult:
+    """``result`` with the caution and note of the rule of rows per parameter made for ``free`` parameters, as 'fit' of
+    one group counts them, instead of those pipeline.results.fit_result made for ``counted`` (the thresholds too)."""
+    from cfa_tool.assessment.admissibility import ProblemKind, one_sample_size_problems, solution_first
+
+    _, made = one_sample_size_problems(rows, counted, ())
+    small, notes = one_sample_size_problems(rows, free, ())
+    kept = tuple(p for p in result.problems if p.kind is not ProblemKind.SMALL_SAMPLE)
+    warnings = tuple(w for w in result.warnings if w not in made) + notes
+    return replace(result, problems=solution_first(small + kept), warnings=warnings)
 
 
 def _one_group_table(table):
@@ -92,10 +110,11 @@ def _one_group_table(table):
     return replace(table, multigroup=False)
 
 
-def _unidentified(spec, groups, est, fit_options, group, method, failure: NotIdentified | UnboundedSolution):
+def unestimated_ordinal_result(spec, groups, est, fit_options, group, method,
+                               failure: NotIdentified | UnboundedSolution) -> FitResult:
     """A model the data do not identify, or one a Heywood case drives without bound (``failure``: the rank check's
     error), as a result that could not be estimated, that problem first, as pipeline.continuous.unestimated makes it
-    for continuous items."""
+    for continuous items (compare's models, the invariance ladder's steps)."""
     result = assess_ordinal_groups(spec, groups, replace(est, converged=False, message=str(failure)), fit_options,
                                    group, method, modification=False)
     return replace(result, problems=tuple(estimation_failure(failure) if p.kind is ProblemKind.NOT_CONVERGED

@@ -160,3 +160,29 @@ def test_the_fit_ends_at_the_minimum():
     assert np.abs(obj.gradient(x)).max() < 1e-12
     assert 0.0 <= obj.value(est.theta) - obj.value(x) < 1e-14
     np.testing.assert_allclose(est.theta, x, rtol=0, atol=1e-5)
+
+
+def test_latent_responses_held_at_variance_one_have_exact_derivatives():
+    # some items' latent responses at variance 1 (their residual variance following; pipeline.ordinal's refit of a
+    # Heywood case): the Jacobian and the closed-form Hessian still equal central differences (Nocedal & Wright
+    # 2006, sec. 8.1), and the statistics of those items do not depend on their residual variance's entry
+    est = _fit(TWO_FACTORS + "invariance metric\n")
+    unit = np.zeros((2, 7), dtype=bool)
+    unit[0, [0, 3]] = unit[1, [0, 5]] = True
+    obj = est.objective.with_unit_variances(tuple(unit))
+    point = _away(est.theta)
+    h = 1e-6
+    for g in range(2):
+        numeric = np.array([(obj.statistics(point + h * e, g) - obj.statistics(point - h * e, g)) / (2 * h)
+                            for e in np.eye(len(point))])
+        np.testing.assert_allclose(obj.jacobian(point, g), numeric, rtol=0, atol=1e-8)
+        # standardized thresholds of item y1 are its thresholds less its mean: variance 1
+        mu = obj.model.matrices(point, g).implied_mean()
+        tau = obj.model.thresholds(point, g)[obj.item_of == 0]
+        first = obj.statistics(point, g)[:obj.n_thresholds][obj.item_of == 0]
+        if unit[g, 0]:
+            np.testing.assert_allclose(first, tau - mu[0], rtol=0, atol=1e-12)
+        assert np.diag(obj.unit_variance_matrices(point, g).implied_covariance())[unit[g]] == pytest.approx(1.0)
+    numeric = np.array([(obj.gradient(point + h * e) - obj.gradient(point - h * e)) / (2 * h)
+                        for e in np.eye(len(point))])
+    np.testing.assert_allclose(obj.observed_hessian(point), numeric, rtol=0, atol=1e-7 * np.abs(numeric).max())
