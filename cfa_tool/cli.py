@@ -16,7 +16,7 @@ import signal
 import sys
 import warnings
 
-from cfa_tool.errors import CfaError, ModelError, printable
+from cfa_tool.errors import CfaError, ModelError, clipped, printable
 from cfa_tool.options import Option, on_command_line
 
 PROG = "cfa-tool"
@@ -232,7 +232,7 @@ def _internal_error(exc: Exception) -> int:
     """A bug in the tool, not the user's fault: one line, exit 1 (``CFA_TOOL_DEBUG=1`` shows the traceback)."""
     if os.environ.get("CFA_TOOL_DEBUG"):
         raise exc
-    _say_error(f"{PROG}: internal error: {type(exc).__name__}: {printable(str(exc)[:300])} (please report this; set "
+    _say_error(f"{PROG}: internal error: {type(exc).__name__}: {clipped(str(exc), 300)} (please report this; set "
                f"CFA_TOOL_DEBUG=1 for details)")
     return 1
 
