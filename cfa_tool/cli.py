@@ -16,7 +16,7 @@ import signal
 import sys
 import warnings
 
-from cfa_tool.errors import CfaError, ModelError, printable
+from cfa_tool.errors import CfaError, ModelError, clipped, printable
 from cfa_tool.options import Option, on_command_line
 
 PROG = "cfa-tool"
@@ -39,6 +39,35 @@ class _Parser(argparse.ArgumentParser):
         if kwargs.get("action") is None and args and str(args[0]).startswith("--"):
             kwargs["action"] = _Once
         return super().add_argument(*args, **kwargs)
+
+    def _print_message(self, message: str, file=None, what: str = "the help") -> None:
+        """argparse's one writer of the help, the version and the one-line errors, which swallows a write the
+        system refuses: the help sent to a full disk ('--help > /dev/full') was lost with exit 0 and no word
+        (re-check s17, finding 06).  Written and flushed here; standard output that refuses ``what`` ends the run
+        as a report it refuses does (:func:`_unwritten`: one line, exit 2), and an error line that standard error
+        refuses ends it with the error's exit code, 2, with nothing more to say."""
+        if not message:
+            return
+        file = file or sys.stderr  # argparse's rule: with no standard output at all, the help on standard error
+        if file is None:  # neither stream: nowhere to write, nowhere to say so
+            return
+        try:
+            file.write(message)
+            file.flush()
+        except OSError as exc:
+            raise SystemExit(_unwritten(exc, what) if file is sys.stdout else 2) from None
+
+
+class _Version(argparse.Action):
+    """``--version``: the version on standard output, written as the help is (:meth:`_Parser._print_message`)."""
+
+    def __init__(self, option_strings, dest=argparse.SUPPRESS, default=argparse.SUPPRESS,
+                 help="show program's version number and exit"):
+        super().__init__(option_strings, dest=dest, default=default, nargs=0, help=help)
+
+    def __call__(self, parser, namespace, values, option_string=None):
+        parser._print_message(_version() + "\n", sys.stdout, "the version")
+        parser.exit()
 
 
 class _Once(argparse.Action):
@@ -72,7 +101,7 @@ def build_parser(command: str | None = None) -> argparse.ArgumentParser:
     modules and options would only add to the start)."""
     parser = _Parser(prog=PROG, description="Confirmatory factor analysis: fit a model file to a data set.",
                      allow_abbrev=False)
-    parser.add_argument("--version", action="version", version=_version())
+    parser.add_argument("--version", action=_Version)
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     from cfa_tool import commands
 
@@ -119,26 +148,33 @@ def program() -> int:
     the tool: about 950 modules) took 6 % of a ``fit``'s instructions (174 of 2,813 million), memory the system
     takes back at once anyway.  What an exit must do is still done first: cyclic garbage collected (a file object
     in a cycle is flushed and closed; 55 million of the 174), the functions registered with :mod:`atexit` run,
-    standard output and error flushed.  With another thread still running, or output that cannot be flushed, the
-    process ends as usual (returns the exit code)."""
+    standard output and error flushed (what a full disk refuses ends the run with exit 2, not 0).  With another
+    thread still running, or output that cannot be flushed for another reason, the process ends as usual (returns
+    the exit code)."""
     signal.signal(signal.SIGTERM, _terminated)  # a stop that cleans up, as Ctrl-C's does
     try:
         code = main()
     except KeyboardInterrupt as exc:  # a stop while the arguments were read, before the run's own handling
         return _stopped(exc)
+    except SystemExit as exc:  # the parser's end: the help, the version or a mistake said, flushed as a run's output
+        code = exc.code if isinstance(exc.code, int) else 0 if exc.code is None else 1
     try:
         threading = sys.modules.get("threading")
         if threading is not None and threading.active_count() > 1:
             return code
         gc.collect()
         atexit._run_exitfuncs()  # noqa: SLF001 - the interpreter's own exit step, run here before leaving without it
-        try:
-            sys.stdout.flush()
-            sys.stderr.flush()
-        except OSError as exc:  # a report still buffered that a full disk refuses: said, exit 2 (not 0)
-            return _output_failed(exc) if exc.errno in UNWRITABLE_OUTPUT else code
-        except (ValueError, AttributeError):  # a closed pipe or stream, or none: the usual exit, as before
-            return code
+        for stream in (sys.stdout, sys.stderr):
+            try:
+                stream.flush()
+            except OSError as exc:
+                if exc.errno not in UNWRITABLE_OUTPUT:  # a closed pipe: the usual exit, as before
+                    return code
+                # a report still buffered that a full disk refuses: said, exit 2 (not 0); lines standard error
+                # refuses (and the saying of the report's): lost, and the exit code says so alone
+                code = _output_failed(exc) if stream is sys.stdout else code or 2
+            except (ValueError, AttributeError):  # a closed stream, or none: the usual exit, as before
+                return code
     except KeyboardInterrupt:  # a stop once the run's work is done and said: its own exit code, no traceback
         return code
     os._exit(code)
@@ -146,8 +182,7 @@ def program() -> int:
 
 def _stopped(exc: KeyboardInterrupt) -> int:
     """Ctrl-C or a termination signal said in one line; the shell's exit code for it (130, or 143 for SIGTERM)."""
-    print(f"{PROG}: {'stopped by a termination signal' if isinstance(exc, Terminated) else 'interrupted'}",
-          file=sys.stderr)
+    _say_error(f"{PROG}: {'stopped by a termination signal' if isinstance(exc, Terminated) else 'interrupted'}")
     return 143 if isinstance(exc, Terminated) else 130
 
 
@@ -172,26 +207,33 @@ def _main(argv: list[str] | None) -> int:
         return exc.exit_code
     except KeyboardInterrupt as exc:
         return _stopped(exc)
-    except BrokenPipeError:  # the reader of standard output stopped early (e.g. '| head'): nothing more to say
-        try:
-            os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
-        except (OSError, ValueError):  # pragma: no cover - no real standard output (tests)
-            pass
-        return 141
     except OSError as exc:
-        if exc.errno not in UNWRITABLE_OUTPUT:
-            return _internal_error(exc)
-        return _output_failed(exc)
+        return _unwritten(exc)
     except Exception as exc:  # a bug in the tool, not the user's fault
         return _internal_error(exc)
+
+
+def _unwritten(exc: OSError, what: str = "the report") -> int:
+    """The exit code of a run stopped by ``exc``, the refusal of a write to standard output (of ``what``): 141 for a
+    reader that stopped early ('| head': nothing more to say); one line and exit 2 for a full disk
+    (:func:`_output_failed`); any other error of the system is the tool's (exit 1)."""
+    if isinstance(exc, BrokenPipeError):
+        try:
+            os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        except (OSError, ValueError, AttributeError):  # pragma: no cover - no real standard output (tests)
+            pass
+        return 141
+    if exc.errno not in UNWRITABLE_OUTPUT:
+        return _internal_error(exc)
+    return _output_failed(exc, what)
 
 
 def _internal_error(exc: Exception) -> int:
     """A bug in the tool, not the user's fault: one line, exit 1 (``CFA_TOOL_DEBUG=1`` shows the traceback)."""
     if os.environ.get("CFA_TOOL_DEBUG"):
         raise exc
-    print(f"{PROG}: internal error: {type(exc).__name__}: {printable(str(exc)[:300])} (please report this; set "
-          f"CFA_TOOL_DEBUG=1 for details)", file=sys.stderr)
+    _say_error(f"{PROG}: internal error: {type(exc).__name__}: {clipped(str(exc), 300)} (please report this; set "
+               f"CFA_TOOL_DEBUG=1 for details)")
     return 1
 
 
@@ -201,16 +243,28 @@ UNWRITABLE_OUTPUT = frozenset(getattr(errno, name) for name in ("ENOSPC", "EDQUO
                               if hasattr(errno, name))
 
 
-def _output_failed(exc: OSError) -> int:
+def _output_failed(exc: OSError, what: str = "the report") -> int:
     """Standard output that could not be written (a full disk: ``> /dev/full``): one line, exit 2, as an output file
     that cannot be written gets (output_files: '--json: cannot write ...'), never an 'internal error' (hostile trial
-    s17, finding 9).  The files asked for were written before the report, and stay."""
+    s17, finding 9).  The files asked for were written before the report, and stay.  The line is said when standard
+    error can take it (exit 2 either way: a full standard error is where it failed, or the line is lost too)."""
     try:
         sys.stdout = open(os.devnull, "w")  # the rest of the report, and the exit's flush, go nowhere
     except OSError:  # pragma: no cover - no null device
         pass
-    print(f"{PROG}: cannot write the report to standard output ({exc.strerror or exc})", file=sys.stderr)
+    _say_error(f"{PROG}: cannot write {what} to standard output ({exc.strerror or exc})")
     return 2
+
+
+def _say_error(line: str) -> None:
+    """``line`` on standard error, when it can take it: a full disk there (``2> /dev/full``) loses the line but
+    changes no exit code, which then says alone that the run failed."""
+    if sys.stderr is None:  # no standard error at all (print would write to standard output)
+        return
+    try:
+        print(line, file=sys.stderr, flush=True)
+    except (OSError, ValueError):  # full or closed
+        pass
 
 
 def np_quiet():
@@ -226,12 +280,10 @@ def _report_error(exc: CfaError) -> None:
     """One line (control characters from names and values shown escaped, so nothing in a user's
     file can split the line or reach the terminal), plus the model line with a caret."""
     if isinstance(exc, ModelError):
-        print(f"{PROG}: {printable(exc.one_line())}", file=sys.stderr)
         excerpt = exc.excerpt()
-        if excerpt:
-            print(excerpt, file=sys.stderr)
+        _say_error(f"{PROG}: {printable(exc.one_line())}" + (f"\n{excerpt}" if excerpt else ""))
     else:
-        print(f"{PROG}: {printable(exc)}", file=sys.stderr)
+        _say_error(f"{PROG}: {printable(exc)}")
 
 
 def _run(args: argparse.Namespace) -> int:

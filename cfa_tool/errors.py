@@ -44,6 +44,14 @@ def clipped(text: object, width: int) -> str:
     return shown if len(shown) <= width else shown[: width - 1] + "…"
 
 
+def shown_path(path: object) -> str:
+    """A file's path for a one-line message: :func:`printable`, and one longer than 200 characters cut in its
+    middle, its first 120 and last 60 characters around '…' (the folders near the root and the file's own name
+    both seen; '…' marks the cut as :func:`clipped` does)."""
+    text = printable(str(path))
+    return text if len(text) <= 200 else text[:120] + "…" + text[-60:]
+
+
 def character_names(text: str, beside: str = "") -> str:
     """Words naming the characters of ``text`` beyond plain ASCII that ``beside`` does not hold, by their Unicode
     code points and names (' (U+0441 CYRILLIC SMALL LETTER ES)'), or '': a look-alike letter or an invisible
@@ -103,10 +111,10 @@ class ModelError(UserInputError):
         start = max(0, self.location.column - 1)
         head = printable(line[:start])
         tail = printable(line[start:])
-        if len(head) > 60:  # a long line is shown around the place, as '...' + about 100 characters + '...'
-            head = "..." + head[-57:]
+        if len(head) > 60:  # a long line is shown around the place, as '…' + about 120 characters + '…'
+            head = "…" + head[-59:]
         if len(tail) > 60:
-            tail = tail[:57] + "..."
+            tail = clipped(tail, 60)
         return f"    {head}{tail}\n    {' ' * len(head)}^"
 
 

@@ -17,12 +17,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
-from cfa_tool.errors import UserInputError, printable
-
-
-def _short(path: str | Path) -> str:
-    text = printable(str(path))
-    return text if len(text) <= 200 else text[:120] + "..." + text[-60:]
+from cfa_tool.errors import UserInputError, shown_path
 
 
 #: how messages and results name data given as a data frame from Python (LoadedData.source), not a file
@@ -44,22 +39,22 @@ def check_input_path(path: str | Path, what: str, error: type[UserInputError],
     try:
         st = path.stat()
     except FileNotFoundError:
-        raise error(f"{what} '{_short(path)}' does not exist") from None
+        raise error(f"{what} '{shown_path(path)}' does not exist") from None
     except NotADirectoryError:
-        raise error(f"{what} '{_short(path)}' does not exist (a part of the path is a file, not a folder)") from None
+        raise error(f"{what} '{shown_path(path)}' does not exist (a part of the path is a file, not a folder)") from None
     except PermissionError:
-        raise error(f"{what} '{_short(path)}' cannot be read (permission denied)") from None
+        raise error(f"{what} '{shown_path(path)}' cannot be read (permission denied)") from None
     except OSError as exc:
         if exc.errno == errno.ENAMETOOLONG:
-            raise error(f"{what} '{_short(path)}': the name is too long for the file system "
+            raise error(f"{what} '{shown_path(path)}': the name is too long for the file system "
                         f"(at most 255 characters per folder or file name)") from None
-        raise error(f"{what} '{_short(path)}' cannot be opened ({exc.strerror or exc})") from None
+        raise error(f"{what} '{shown_path(path)}' cannot be opened ({exc.strerror or exc})") from None
     except ValueError:  # a NUL character in the path
-        raise error(f"{what} '{_short(path)}': the name holds a NUL character") from None
+        raise error(f"{what} '{shown_path(path)}': the name holds a NUL character") from None
     if stat.S_ISDIR(st.st_mode):
-        raise error(f"'{_short(path)}' is a folder, not a {what}")
+        raise error(f"'{shown_path(path)}' is a folder, not a {what}")
     if regular_only and not stat.S_ISREG(st.st_mode):
-        raise error(f"'{_short(path)}' is not a regular file (a device or a pipe); save the {what} as a file")
+        raise error(f"'{shown_path(path)}' is not a regular file (a device or a pipe); save the {what} as a file")
     return st
 
 
@@ -69,22 +64,22 @@ def input_bytes(path: str | Path, what: str, error: type[UserInputError], limit:
     path = Path(path)
     st = check_input_path(path, what, error)
     if stat.S_ISREG(st.st_mode) and st.st_size > limit:
-        raise error(f"{what} '{_short(path)}' is {st.st_size:,} bytes; a {what} is at most {limit:,} bytes")
+        raise error(f"{what} '{shown_path(path)}' is {st.st_size:,} bytes; a {what} is at most {limit:,} bytes")
     try:
         if stat.S_ISFIFO(st.st_mode):
             data = _read_pipe(path, limit)
             if not data:
-                raise error(f"no program wrote to the named pipe '{_short(path)}' (given as {what}); start the writer "
+                raise error(f"no program wrote to the named pipe '{shown_path(path)}' (given as {what}); start the writer "
                             f"first")
         else:
             with open(path, "rb") as handle:
                 data = handle.read(limit + 1)
     except PermissionError:
-        raise error(f"{what} '{_short(path)}' cannot be read (permission denied)") from None
+        raise error(f"{what} '{shown_path(path)}' cannot be read (permission denied)") from None
     except OSError as exc:
-        raise error(f"{what} '{_short(path)}' cannot be read ({exc.strerror or exc})") from None
+        raise error(f"{what} '{shown_path(path)}' cannot be read ({exc.strerror or exc})") from None
     if len(data) > limit:
-        raise error(f"{what} '{_short(path)}' holds more than {limit:,} bytes; a {what} is at most {limit:,} bytes")
+        raise error(f"{what} '{shown_path(path)}' holds more than {limit:,} bytes; a {what} is at most {limit:,} bytes")
     return data
 
 
@@ -108,9 +103,9 @@ def input_text(path: str | Path, what: str, error: type[UserInputError], limit: 
         try:
             text = raw.decode("utf-8-sig")
         except UnicodeDecodeError:
-            raise error(f"{what} '{_short(Path(path))}' is not UTF-8 text") from None
+            raise error(f"{what} '{shown_path(Path(path))}' is not UTF-8 text") from None
     if "\x00" in text:
-        raise error(f"{what} '{_short(Path(path))}' is not a text file (it contains NUL bytes)")
+        raise error(f"{what} '{shown_path(Path(path))}' is not a text file (it contains NUL bytes)")
     return text
 
 
@@ -128,10 +123,10 @@ def input_json(path: str | Path, what: str, error: type[UserInputError], limit: 
     try:
         return json.loads(text)
     except json.JSONDecodeError as exc:
-        raise error(f"{what} '{_short(Path(path))}' is not JSON (line {exc.lineno}, column {exc.colno}: "
+        raise error(f"{what} '{shown_path(Path(path))}' is not JSON (line {exc.lineno}, column {exc.colno}: "
                     f"{exc.msg})") from None
     except (ValueError, RecursionError):  # numbers too long to read, nesting too deep
-        raise error(f"{what} '{_short(Path(path))}' is not JSON that can be read (numbers too long or nesting too "
+        raise error(f"{what} '{shown_path(Path(path))}' is not JSON that can be read (numbers too long or nesting too "
                     f"deep)") from None
 
 

@@ -12,7 +12,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from enum import Enum
 
-from cfa_tool.errors import OptionError, printable
+from cfa_tool.errors import OptionError, clipped
 
 
 class Choice(str, Enum):
@@ -41,8 +41,7 @@ class Choice(str, Enum):
             for member in cls:
                 if member.offered and member.value == value:
                     return member
-        shown = printable(str(value))
-        raise OptionError(f"{what} must be one of {', '.join(cls.words())}, not '{shown}'")
+        raise OptionError(f"{what} must be one of {', '.join(cls.words())}, not '{clipped(value, 40)}'")
 
     def __str__(self) -> str:
         return self.value

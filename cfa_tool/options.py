@@ -14,7 +14,7 @@ import math
 import numbers
 from collections.abc import Iterator
 
-from cfa_tool.errors import OptionError, printable
+from cfa_tool.errors import OptionError, clipped
 
 #: Upper limits that keep a run within reach of one computer; far above real use.
 MAX_REPLICATIONS = 1_000_000
@@ -27,8 +27,7 @@ MAX_CATEGORIES = 100
 
 
 def _shown(value: object) -> str:
-    text = printable(repr(value) if isinstance(value, str) else value)
-    return text if len(text) <= 40 else text[:37] + "..."
+    return clipped(repr(value) if isinstance(value, str) else value, 40)
 
 
 def choice(kind, value: object, name: str):

@@ -36,7 +36,7 @@ import sys
 from dataclasses import dataclass
 from pathlib import Path
 
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import OptionError, shown_path
 
 STDOUT = "-"
 #: in every folder the tool writes into: the files it wrote there and their checksums
@@ -100,14 +100,6 @@ def filesystem_type(path: Path) -> str | None:
     return None
 
 
-def shown(path: str | Path) -> str:
-    """A path for a one-line message: control characters escaped, overlong paths shortened."""
-    from cfa_tool.errors import printable
-
-    text = printable(str(path))
-    return text if len(text) <= 200 else text[:120] + "..." + text[-60:]
-
-
 def _is_standard_output(path: Path) -> bool:
     """Whether ``path`` is the very file standard output writes to (/dev/stdout, /proc/self/fd/1, or a
     file the shell redirected standard output to)."""
@@ -133,38 +125,38 @@ def check_target(option: str, given: str) -> Target:
     except FileNotFoundError:
         st = None
     except OSError as exc:
-        raise OptionError(f"{option}: cannot use '{shown(given)}' as an output file ({exc.strerror or exc})") from None
+        raise OptionError(f"{option}: cannot use '{shown_path(given)}' as an output file ({exc.strerror or exc})") from None
     if st is not None:
         if stat.S_ISDIR(st.st_mode):
-            raise OptionError(f"{option}: '{shown(given)}' is a folder; give a file name")
+            raise OptionError(f"{option}: '{shown_path(given)}' is a folder; give a file name")
         if _special(st.st_mode):
             if not os.access(path, os.W_OK):
-                raise OptionError(f"{option}: '{shown(given)}' cannot be written (permission denied)")
+                raise OptionError(f"{option}: '{shown_path(given)}' cannot be written (permission denied)")
             if stat.S_ISFIFO(st.st_mode):
                 return Target(option, given, True, _open_pipe(option, given))
             return Target(option, given, True)
         if not stat.S_ISREG(st.st_mode):
-            raise OptionError(f"{option}: '{shown(given)}' is not a regular file; give a file name")
+            raise OptionError(f"{option}: '{shown_path(given)}' is not a regular file; give a file name")
     real = Path(os.path.realpath(path))
     if real.name in (RECORD, OLD_RECORD):
-        raise OptionError(f"{option}: '{shown(given)}' is the tool's record of the files it wrote; give another name")
+        raise OptionError(f"{option}: '{shown_path(given)}' is the tool's record of the files it wrote; give another name")
     folder = real.parent
     if not folder.is_dir():
         if os.path.islink(path):  # a link to a file in a folder that does not exist: the link's target is named
-            raise OptionError(f"{option}: cannot write '{shown(given)}': it is a symbolic link to "
-                              f"'{shown(os.readlink(path))}', whose folder '{shown(folder)}' does not exist; give the "
+            raise OptionError(f"{option}: cannot write '{shown_path(given)}': it is a symbolic link to "
+                              f"'{shown_path(os.readlink(path))}', whose folder '{shown_path(folder)}' does not exist; give the "
                               f"file's own name or remove the link")
-        raise OptionError(f"{option}: cannot write '{shown(given)}': the folder '{shown(path.parent)}' does not exist")
+        raise OptionError(f"{option}: cannot write '{shown_path(given)}': the folder '{shown_path(path.parent)}' does not exist")
     kind = filesystem_type(folder)
     if kind in PSEUDO_FILESYSTEMS:
-        raise OptionError(f"{option}: '{shown(given)}' is on the system's {kind} filesystem, not a place for files; "
+        raise OptionError(f"{option}: '{shown_path(given)}' is on the system's {kind} filesystem, not a place for files; "
                           f"choose another folder")
     if not os.access(folder, os.W_OK | os.X_OK):
-        raise OptionError(f"{option}: cannot write '{shown(given)}': the folder '{shown(folder)}' is not writable")
+        raise OptionError(f"{option}: cannot write '{shown_path(given)}': the folder '{shown_path(folder)}' is not writable")
     if st is not None and not os.access(real, os.W_OK):
-        raise OptionError(f"{option}: cannot write '{shown(given)}': the file is read-only")
+        raise OptionError(f"{option}: cannot write '{shown_path(given)}': the file is read-only")
     if len(real.name.encode("utf-8", "surrogateescape")) > 255:
-        raise OptionError(f"{option}: the file name '{shown(real.name)}' is longer than 255 bytes")
+        raise OptionError(f"{option}: the file name '{shown_path(real.name)}' is longer than 255 bytes")
     return Target(option, given, False)
 
 
@@ -177,9 +169,9 @@ def _open_pipe(option: str, given: str) -> int:
         fd = os.open(given, os.O_WRONLY | os.O_NONBLOCK)
     except OSError as exc:
         if exc.errno == errno.ENXIO:
-            raise OptionError(f"{option}: no program is reading from the named pipe '{shown(given)}'; start the reader "
+            raise OptionError(f"{option}: no program is reading from the named pipe '{shown_path(given)}'; start the reader "
                               f"first") from None
-        raise OptionError(f"{option}: cannot open the named pipe '{shown(given)}' ({exc.strerror or exc})") from None
+        raise OptionError(f"{option}: cannot open the named pipe '{shown_path(given)}' ({exc.strerror or exc})") from None
     fcntl.fcntl(fd, fcntl.F_SETFL, fcntl.fcntl(fd, fcntl.F_GETFL) & ~os.O_NONBLOCK)
     return fd
 
@@ -209,15 +201,15 @@ def check_outputs(outputs: list[tuple[str, str | None]], inputs: list[str | Path
         else:
             ident = _identity(Path(given))
             if ident is not None and ident in input_ids and not target.direct:
-                raise OptionError(f"{option}: refusing to write to '{shown(given)}': it is the input file "
-                                  f"'{shown(input_ids[ident])}'")
+                raise OptionError(f"{option}: refusing to write to '{shown_path(given)}': it is the input file "
+                                  f"'{shown_path(input_ids[ident])}'")
             if option in new_only:
                 target = targets[option] = check_new_file(target)
             else:
                 check_replaceable(target)
             key = ident if ident is not None else os.path.realpath(given)
         if key in seen and not (key == STDOUT or target.direct):
-            raise OptionError(f"{option} and {seen[key]} name the same file ('{shown(given)}'); give each output its own file")
+            raise OptionError(f"{option} and {seen[key]} name the same file ('{shown_path(given)}'); give each output its own file")
         if key == STDOUT and key in seen:
             raise OptionError(f"{option} and {seen[key]} both write to standard output; only one can")
         seen[key] = option
@@ -234,10 +226,10 @@ def check_outputs(outputs: list[tuple[str, str | None]], inputs: list[str | Path
                 continue
             real = Path(os.path.realpath(target.given))
             if str(real) == inside:
-                raise OptionError(f"{option} and {other} name the same path ('{shown(folder)}'): one would make it a "
+                raise OptionError(f"{option} and {other} name the same path ('{shown_path(folder)}'): one would make it a "
                                   f"folder of tables, the other a file; give each its own name")
             if str(real.parent) == inside and (real.suffix.lower() in TABLE_SUFFIXES or real.name in (RECORD, TABLE_CONTENTS)):
-                raise OptionError(f"{other} writes '{shown(target.given)}' into the {option} folder, where the tables "
+                raise OptionError(f"{other} writes '{shown_path(target.given)}' into the {option} folder, where the tables "
                                   f"go; give it another name or place")
     return targets
 
@@ -264,7 +256,7 @@ def check_new_file(target: Target) -> Target:
     if target.is_stdout or target.direct:
         return target
     if os.path.lexists(target.given):
-        raise OptionError(f"{target.option}: '{shown(target.given)}' exists, and this output never replaces a file; "
+        raise OptionError(f"{target.option}: '{shown_path(target.given)}' exists, and this output never replaces a file; "
                           f"choose a new name or move that file")
     return replace(target, new_only=True)
 
@@ -274,22 +266,22 @@ def check_folder(option: str, folder: str) -> None:
         raise OptionError(f"{option}: the folder name is empty or holds a NUL character")
     path = Path(folder)
     if path.exists() and not path.is_dir():
-        raise OptionError(f"{option}: '{shown(folder)}' is a file; give a folder for the tables")
+        raise OptionError(f"{option}: '{shown_path(folder)}' is a file; give a folder for the tables")
     if not path.exists() and path.is_symlink():
-        raise OptionError(f"{option}: '{shown(folder)}' is a symbolic link to '{shown(os.readlink(path))}', which does "
+        raise OptionError(f"{option}: '{shown_path(folder)}' is a symbolic link to '{shown_path(os.readlink(path))}', which does "
                           f"not exist; give an existing folder or a new folder's name")
     # a new folder is made in an existing one, never with its parents (as a file is written into an existing folder)
     existing = path if path.is_dir() else path.absolute().parent
     if not existing.exists():
-        raise OptionError(f"{option}: cannot create the folder '{shown(folder)}': the folder "
-                          f"'{shown(path.parent)}' does not exist")
+        raise OptionError(f"{option}: cannot create the folder '{shown_path(folder)}': the folder "
+                          f"'{shown_path(path.parent)}' does not exist")
     if not existing.is_dir():
-        raise OptionError(f"{option}: cannot create the folder '{shown(folder)}': '{shown(path.parent)}' is a file")
+        raise OptionError(f"{option}: cannot create the folder '{shown_path(folder)}': '{shown_path(path.parent)}' is a file")
     kind = filesystem_type(Path(os.path.realpath(existing)))
     if kind in PSEUDO_FILESYSTEMS:
-        raise OptionError(f"{option}: '{shown(folder)}' is on the system's {kind} filesystem, not a place for files")
+        raise OptionError(f"{option}: '{shown_path(folder)}' is on the system's {kind} filesystem, not a place for files")
     if not os.access(existing, os.W_OK | os.X_OK):
-        raise OptionError(f"{option}: cannot write into '{shown(existing)}': the folder is not writable")
+        raise OptionError(f"{option}: cannot write into '{shown_path(existing)}': the folder is not writable")
 
 
 def write_file(target: Target | str | Path, content: str | bytes) -> None:
@@ -308,7 +300,7 @@ def write_file(target: Target | str | Path, content: str | bytes) -> None:
             with (os.fdopen(target.pipe, "wb") if target.pipe is not None else open(target.given, "wb")) as handle:
                 handle.write(data)
         except OSError as exc:
-            raise OptionError(f"{target.option}: cannot write '{shown(target.given)}' ({exc.strerror or exc})") from None
+            raise OptionError(f"{target.option}: cannot write '{shown_path(target.given)}' ({exc.strerror or exc})") from None
         return
     real = Path(os.path.realpath(target.given))
     _replace_atomically(real, data, target.option, target.new_only)
@@ -323,10 +315,10 @@ def check_replaceable(target: Target) -> None:
     real = Path(os.path.realpath(target.given))
     if real.is_file() and not _written_here(real, target.option):
         if os.path.islink(target.given):
-            raise OptionError(f"{target.option}: '{shown(target.given)}' is a symbolic link to '{shown(real)}', which "
+            raise OptionError(f"{target.option}: '{shown_path(target.given)}' is a symbolic link to '{shown_path(real)}', which "
                               f"was not written by cfa-tool (or was changed since), so it is not replaced; choose "
                               f"another name, or remove the link")
-        raise OptionError(f"{target.option}: '{shown(target.given)}' exists and was not written by cfa-tool (or was "
+        raise OptionError(f"{target.option}: '{shown_path(target.given)}' exists and was not written by cfa-tool (or was "
                           f"changed since), so it is not replaced; choose another name, or move or delete that file")
 
 
@@ -365,7 +357,7 @@ def _replace_atomically(real: Path, data: bytes, option: str, new_only: bool = F
     try:
         fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666 if mode is None else 0o600)
     except OSError as exc:
-        raise OptionError(f"{option}: cannot write into '{shown(folder)}' ({exc.strerror or exc})") from None
+        raise OptionError(f"{option}: cannot write into '{shown_path(folder)}' ({exc.strerror or exc})") from None
     try:
         with os.fdopen(fd, "wb") as handle:
             handle.write(data)
@@ -375,7 +367,7 @@ def _replace_atomically(real: Path, data: bytes, option: str, new_only: bool = F
             try:
                 os.link(tmp, real)
             except FileExistsError:
-                raise OptionError(f"{option}: '{shown(real)}' was created by another program during the run, and "
+                raise OptionError(f"{option}: '{shown_path(real)}' was created by another program during the run, and "
                                   f"this output never replaces a file; nothing was written there") from None
             os.unlink(tmp)
         else:
@@ -386,7 +378,7 @@ def _replace_atomically(real: Path, data: bytes, option: str, new_only: bool = F
         except OSError:
             pass
         if isinstance(exc, OSError):
-            raise OptionError(f"{option}: cannot write '{shown(real)}' ({exc.strerror or exc})") from None
+            raise OptionError(f"{option}: cannot write '{shown_path(real)}' ({exc.strerror or exc})") from None
         raise
 
 
@@ -399,13 +391,13 @@ def check_table_folder(option: str, folder: str | Path, files: dict[str, str],
     for name in files:
         existing = path / name
         if existing.is_symlink() or (existing.exists() and not existing.is_file()):
-            raise OptionError(f"{option}: '{shown(existing)}' exists and is not a plain file; choose another folder")
+            raise OptionError(f"{option}: '{shown_path(existing)}' exists and is not a plain file; choose another folder")
         if not existing.exists():
             continue
         if _identity(existing) in input_ids:
-            raise OptionError(f"{option}: refusing to write '{shown(existing)}': it is an input file")
+            raise OptionError(f"{option}: refusing to write '{shown_path(existing)}': it is an input file")
         if not _written_here(existing, option):
-            raise OptionError(f"{option}: '{shown(existing)}' exists and was not written by cfa-tool (or was changed since); "
+            raise OptionError(f"{option}: '{shown_path(existing)}' exists and was not written by cfa-tool (or was changed since); "
                               f"choose an empty folder, or move that file")
 
 
@@ -421,7 +413,7 @@ def write_table_folder(option: str, folder: str | Path, files: dict[str, str],
     try:
         path.mkdir(exist_ok=True)
     except OSError as exc:
-        raise OptionError(f"{option}: cannot create the folder '{shown(folder)}' ({exc.strerror or exc})") from None
+        raise OptionError(f"{option}: cannot create the folder '{shown_path(folder)}' ({exc.strerror or exc})") from None
     written = {}
     for name, text in files.items():
         data = text.encode("utf-8")
@@ -447,5 +439,5 @@ def _read_record(folder: Path, option: str) -> dict[str, str]:
             raise ValueError
         return {str(k): str(v) for k, v in content["files"].items()}
     except (OSError, ValueError, AttributeError, KeyError, TypeError):
-        raise OptionError(f"{option}: '{shown(record)}' exists but is not this tool's record of the files it wrote; "
+        raise OptionError(f"{option}: '{shown_path(record)}' exists but is not this tool's record of the files it wrote; "
                           f"choose another folder") from None

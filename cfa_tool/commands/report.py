@@ -27,11 +27,11 @@ def read_result(path: str) -> object:
 
 
 def run(args: argparse.Namespace) -> int:
-    from cfa_tool.output_files import shown
+    from cfa_tool.errors import shown_path
     from cfa_tool.reporting.reports import saved_report
 
     check_files(args, [], [args.result])  # never the result file itself, never a file the run did not create
-    report = saved_report(read_result(args.result), shown(args.result))
+    report = saved_report(read_result(args.result), shown_path(args.result))
     picture_resolution(args, bool(args.docx) and bool(report.figures), "give --docx, or leave --dpi out"
                        if report.figures else "this result has none to draw; leave --dpi out")
     if args.docx and report.figures:

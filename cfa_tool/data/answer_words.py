@@ -17,7 +17,7 @@ from cfa_tool.data.kept_rows import row_naming, row_words, text_lines
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.missing_codes import missing_codes_note
 from cfa_tool.data.non_answers import run_words, says_no_answer
-from cfa_tool.errors import DataError, Location, ModelError, OptionError, character_names, printable
+from cfa_tool.errors import DataError, Location, ModelError, OptionError, character_names, clipped, printable
 from cfa_tool.options import Option
 from cfa_tool.language.spec import AnswerCoding, AnswerWord, Name, Spec, answer_key
 from cfa_tool.numbers import number as strict_number
@@ -25,8 +25,7 @@ from cfa_tool.numbers import number as strict_number
 def _shown(value: object) -> str:
     if isinstance(value, (int, float, np.integer, np.floating)) and not isinstance(value, (bool, np.bool_)):
         return f"{float(value):g}"
-    text = str(value).strip()
-    return printable(text if len(text) <= 40 else text[:37] + "...")
+    return clipped(str(value).strip(), 40)
 
 
 def _listed(coding: AnswerCoding) -> str:

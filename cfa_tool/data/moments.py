@@ -15,7 +15,7 @@ import pandas as pd
 
 from cfa_tool.data.answer_scales import MOST_WORDS_SHOWN, distinct_words, stray_text, suggested_statement
 from cfa_tool.data.kept_rows import ROW_NAMING, RowNaming, cell_words, row_naming, text_lines
-from cfa_tool.errors import DataError, EstimationError, printable
+from cfa_tool.errors import DataError, EstimationError, clipped, printable
 from cfa_tool.options import Option
 from cfa_tool.method import MissingData
 from cfa_tool.numbers import number as strict_number
@@ -202,13 +202,13 @@ def stray_words(names: Sequence[str], columns: list[pd.Series], source: str) -> 
         return
     name, column, k, text = first
     words = sorted(found.items(), key=lambda item: (-item[1], item[0]))
-    listed = ", ".join(f"'{printable(w[:40])}' ({n} cell{'s' if n != 1 else ''})" for w, n in words[:STRAY_WORDS_SHOWN])
+    listed = ", ".join(f"'{clipped(w, 40)}' ({n} cell{'s' if n != 1 else ''})" for w, n in words[:STRAY_WORDS_SHOWN])
     more = f" and {len(words) - STRAY_WORDS_SHOWN} more" if len(words) > STRAY_WORDS_SHOWN else ""
     shown = ", ".join(f"'{printable(c)}'" for c in columns_with[:STRAY_WORDS_SHOWN]) + (
         f" and {len(columns_with) - STRAY_WORDS_SHOWN} more" if len(columns_with) > STRAY_WORDS_SHOWN else "")
     where = cell_words(column, name, row_numbers(column)[k])
     raise DataError(f"{source}: {total} cells of {len(columns_with)} column{'s' if len(columns_with) != 1 else ''} "
-                    f"({shown}) hold text among numbers: {listed}{more}; the first is '{printable(text[:40])}' in "
+                    f"({shown}) hold text among numbers: {listed}{more}; the first is '{clipped(text, 40)}' in "
                     f"column '{printable(name)}', {where}. Correct those cells, or, if "
                     f"{'the word means' if len(words) == 1 else 'the words mean'} no answer, "
                     + _no_answer_advice([w for w, _ in words]))
@@ -259,7 +259,7 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
         if number is None:
             if text.lower() in ("true", "false"):
                 raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
-            shown = printable(text if len(text) <= 40 else text[:37] + "...")
+            shown = clipped(text, 40)
             if stray_text(values):  # a slip among numbers, not a column of words
                 raise DataError(stray_word_message(source, name, shown, cell_words(column, name, numbers[row]), text))
             raise DataError(f"{source}: column '{printable(name)}' is used as an indicator but holds text ('{shown}' in "

@@ -32,7 +32,7 @@ import pandas as pd
 
 from cfa_tool.data.moments import LARGEST_VALUE, SMALLEST_SPREAD, SampleMoments, _check_moments
 from cfa_tool import options as check
-from cfa_tool.errors import DataError, printable
+from cfa_tool.errors import DataError, clipped, printable
 from cfa_tool.input_files import DATA_FRAME, hidden_line_break, input_text, normalise_line_ends, text_lines, utf16_text
 from cfa_tool.numbers import number, whole_number
 from cfa_tool.options import MAX_OBSERVATIONS
@@ -184,7 +184,7 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
     n_cells, n_line = extra["n"]
     n_text = n_cells[0] if n_cells else ""
     if len(n_cells) != 1 or whole_number(n_text) is None or whole_number(n_text) < 1 or len(n_text) > 13:
-        shown = printable(",".join(n_cells) if len(",".join(n_cells)) <= 20 else ",".join(n_cells)[:17] + "...")
+        shown = clipped(",".join(n_cells), 20)
         raise DataError(f"{path}:{n_line}: the number of observations must be one whole number from 1 to "
                         f"{MAX_OBSERVATIONS:,}, not '{shown}'")
     n_obs = int(n_text)

@@ -13,6 +13,8 @@ from __future__ import annotations
 import re
 from collections.abc import Callable, Sequence
 
+from cfa_tool.errors import clipped
+
 _PLAIN = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")  # the grammar's NAME (grammar/model.lark)
 
 
@@ -172,10 +174,10 @@ def range_names(first: str, last: str, fail: Callable[[str], Exception]) -> list
     model file's lists, ``--ordinal``): the two ends are one name but for one number, counted up ('item1..item9',
     'mood1_t2..mood5_t2'; a number written with leading zeros keeps its width, 'q01..q12').  ``fail(message)``
     is the error to raise for a range that cannot be counted."""
-    clipped = f"'{clip(first)}..{clip(last)}'"
+    shown = f"'{clipped(first, 40)}..{clipped(last, 40)}'"
     prefix, low, high, suffix = _counted_part(first, last, fail)
     if max(len(low), len(high)) > 9:
-        raise fail(f"the numbers of the range {clipped} are too long (at most 9 digits)")
+        raise fail(f"the numbers of the range {shown} are too long (at most 9 digits)")
     lo, hi = int(low), int(high)
     if lo > hi:
         raise fail(f"the range '{first}..{last}' counts down; write the smaller number first")
@@ -183,12 +185,6 @@ def range_names(first: str, last: str, fail: Callable[[str], Exception]) -> list
         raise fail(f"the range '{first}..{last}' names {hi - lo + 1:,} variables; a range names at most {MAX_RANGE:,}")
     width = len(low) if low.startswith("0") else 0
     return [f"{prefix}{str(i).zfill(width)}{suffix}" for i in range(lo, hi + 1)]
-
-
-def clip(text: object, width: int = 40) -> str:
-    """Text shortened to ``width`` characters for a message."""
-    text = str(text)
-    return text if len(text) <= width else text[: width - 3] + "..."
 
 
 def _counted_part(first: str, last: str, fail: Callable[[str], Exception]) -> tuple[str, str, str, str]:

@@ -19,7 +19,7 @@ from lark import Lark, Token, Tree
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
 from cfa_tool.suggest import close_names, dotted_span
-from cfa_tool.errors import Location, ModelError, character_names, printable
+from cfa_tool.errors import Location, ModelError, character_names, clipped, printable
 from cfa_tool.input_files import hidden_line_break, input_bytes, normalise_line_ends, text_lines, utf16_text
 from cfa_tool.language.spec import (
     GROUP_EQUALITY_WORDS,
@@ -43,7 +43,7 @@ from cfa_tool.language.spec import (
     ValueSetting,
 )
 from cfa_tool.language.grammar_tables import model_parser
-from cfa_tool.language.names import clip, range_names
+from cfa_tool.language.names import range_names
 
 STATEMENT_WORDS = ("name", "factor", "covary", "uncorrelated", "fix", "free", "equal", "start", "bound", "scale", "in",
                    "invariance", "noninvariant", "ordinal", "reversed", "method", "exploratory", "near", "answers")
@@ -169,7 +169,7 @@ def _word_at(lines: tuple[str, ...], line: int, column: int) -> str:
         start -= 1
     while end < len(text) and (text[end].isalnum() or text[end] == "_"):
         end += 1
-    return text[start:end][:80]
+    return text[start:end]
 
 
 def _refuse_hidden_line_breaks(lines: tuple[str, ...], source: str) -> None:
@@ -196,7 +196,7 @@ def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> 
             message += ' (use double quotes for quoted names and titles)'
         if char.isalpha():  # a letter beyond A-Z: plain names are ASCII
             word = _word_at(lines, line, column)
-            message += f'; a name with letters beyond A-Z is written in double quotes: "{printable(word)}"'
+            message += f'; a name with letters beyond A-Z is written in double quotes: "{clipped(word, 80)}"'
         span = _dashed_span_at(lines, line, column)
         if exc.char == "\\" and 1 <= line <= len(lines) and not lines[line - 1][column:].strip():
             message = f"a backslash does not continue a line in a model file; {CONTINUES}"
@@ -213,7 +213,7 @@ def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> 
         written = lines[line - 1].split("#", 1)[0].strip() if 1 <= line <= len(lines) else ""
         if written.split(" ", 1)[0] == "reversed" and "ON" in set(exc.accepts or exc.expected):
             message += (f"; a 'reversed' statement ends with the scale's lowest and highest possible answers, as in "
-                        f"'{clip(written, 60)} on 1 to 5' for answers from 1 to 5")
+                        f"'{clipped(written, 60)} on 1 to 5' for answers from 1 to 5")
     else:  # pragma: no cover - Lark has no other public kinds
         message = "the model text cannot be read here"
     source_line = lines[line - 1] if 1 <= line <= len(lines) else None
@@ -239,7 +239,7 @@ def _continuation_message(exc: UnexpectedToken, lines: tuple[str, ...], line: in
         return f"line {line} starts with a comma; {CONTINUES}: move it to the end of line {before}"
     if (exc.token.type in ("NAME", "STRING") and not close_names(str(exc.token), STATEMENT_WORDS)
             and _LIST_LINE.match(text) and not lines[before - 1].split("#", 1)[0].rstrip().endswith(",")):
-        return (f"unknown statement '{clip(exc.token)}'; if line {line} goes on with the list of line {before}, end "
+        return (f"unknown statement '{clipped(exc.token, 40)}'; if line {line} goes on with the list of line {before}, end "
                 f"line {before} with a comma ({CONTINUES})")
     return None
 
@@ -273,7 +273,7 @@ def _dashed_span_at(lines: tuple[str, ...], line: int, column: int) -> str | Non
 
 def _unexpected_token_message(exc: UnexpectedToken) -> str:
     token = exc.token
-    shown = "the end of the line" if token.type == "_NL" else f"'{clip(token)}'"
+    shown = "the end of the line" if token.type == "_NL" else f"'{clipped(token, 40)}'"
     expected = sorted(exc.accepts or exc.expected)
     words = [_terminal_word(name) for name in expected]
     if "'factor'" in words:  # the parser wanted a new statement

@@ -22,7 +22,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import OptionError, clipped
 from cfa_tool.version import check_written_version
 from cfa_tool.model.description import parameter_words
 from cfa_tool.model.parameters import ParameterTable
@@ -76,8 +76,7 @@ def _is_number(value) -> bool:
 
 
 def _shown(value) -> str:
-    text = json.dumps(value, allow_nan=True)
-    return text if len(text) <= 30 else text[:27] + "..."
+    return clipped(json.dumps(value, allow_nan=True), 30)
 
 
 def saved_rows(rows, source: str) -> tuple[SavedRow, ...]:

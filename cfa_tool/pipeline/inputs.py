@@ -121,7 +121,8 @@ def missing_values_option(codes) -> tuple[tuple[float, ...], tuple[str, ...]]:
     try:
         return codes_and_words(codes)
     except ValueError as error:
-        raise OptionError(f"missing_codes must hold numbers (codes) and words (of no answer): {error}"[:200]) from None
+        raise OptionError(clipped(f"missing_codes must hold numbers (codes) and words (of no answer): {error}",
+                                  200)) from None
 
 
 def missing_codes_option(codes) -> tuple[float, ...]:

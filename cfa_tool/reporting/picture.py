@@ -10,7 +10,7 @@ import tempfile
 from enum import Enum
 from pathlib import Path
 
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import OptionError, clipped
 
 DEFAULT_DPI = 300  # print resolution journals ask for (common practice)
 SVG_DPI = 96  # the CSS pixel: SVG user units are drawn at this resolution
@@ -72,7 +72,7 @@ def _convert(svg: str, kind: PictureFormat, dpi: int) -> bytes:
         done = subprocess.run([converter, "--format", kind.name.lower(), *size, "--background-color", "white",
                                "-o", str(out), str(source)], capture_output=True, text=True)
         if done.returncode != 0 or not out.exists():
-            raise OptionError(f"the SVG-to-{kind.name} converter failed: {done.stderr.strip()[:200]}")
+            raise OptionError(f"the SVG-to-{kind.name} converter failed: {clipped(done.stderr.strip(), 200)}")
         return out.read_bytes()
 
 

@@ -22,7 +22,7 @@ from cfa_tool.data.moments import stray_word_message
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.assessment.admissibility import sample_size_problems
 from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
-from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Interface, Option, interface
 from cfa_tool.exploration import (CountNote, CountRule, Exploration, ExploreSettings, ExtractionMethod, RotationMethod,
@@ -641,7 +641,7 @@ def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str
             if not (isinstance(cell, str) and cell.strip() and strict_number(cell.strip()) is None
                     and not any(ch.isdigit() for ch in cell) and cell.strip().lower() not in ("true", "false")):
                 continue
-            shown = printable(cell.strip() if len(cell.strip()) <= 40 else cell.strip()[:37] + "...")
+            shown = clipped(cell.strip(), 40)
             if stray_text(values):  # a slip among numbers, as fit reads it (data.answer_scales.stray_text)
                 raise DataError(stray_word_message(source, name, shown, cell_words(column, name, row), cell.strip()))
             statement = suggested_statement(values)

@@ -17,7 +17,7 @@ from cfa_tool.assessment.admissibility import RowsPerParameter, rows_per_paramet
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import OptionError, clipped
 from cfa_tool.language.spec import Spec
 from cfa_tool.views import Presentable
 
@@ -107,7 +107,7 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
     nothing of how precisely the model's parameters are estimated (new-user trial s17: N = 96 for 46 parameters).
     ``ordinal``: the model declares ordinal items (the report then says the plan is for the normal-theory test)."""
     if test not in TESTS:
-        raise OptionError(f"test must be one of {', '.join(TESTS)}, not '{test}'")
+        raise OptionError(f"test must be one of {', '.join(TESTS)}, not '{clipped(test, 40)}'")
     df = check.whole_number("the degrees of freedom", df, 1, 10**7)
     if n_obs is not None:
         n_obs = check.observations(n_obs, "the sample size", minimum=2)
