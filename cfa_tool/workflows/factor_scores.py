@@ -794,7 +794,9 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                   f"run 'fit' to see its problems")
     # the data's cautions as fit gives them (rows that gave one answer to every item, reverse-worded ones included,
     # named by their ids: scored like every row)
+    fitted_problems = result.problems
     result = api.with_odd_values(result, loaded, group, spec, design, ids_by_row_number(ids, read_frame))
+    data_cautions = tuple(p for p in result.problems if p not in fitted_problems)
     chosen_by = api.reference_note(result, frame, group, reference_group)  # as fit names the reference group
     if chosen_by:
         result = replace(result, warnings=tuple(result.warnings) + tuple(chosen_by))
@@ -844,7 +846,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         extra[:0] = _id_column_note(read_frame, source, spec, group, design)
     own = _without_own_answers(answered, values, chosen, factors, unanswered)
     if own:
-        result = replace(result, problems=tuple(own) + tuple(result.problems))
+        result = _after_data_cautions(result, data_cautions, own)
     unweighted = len(frame) - len(fitted_rows)  # weight 0: not in the fit, yet scored like every row
     if unweighted:
         which = "The row of weight 0 is" if unweighted == 1 else f"The {unweighted} rows of weight 0 are"
@@ -870,6 +872,19 @@ def _id_column_note(read_frame: pd.DataFrame, source: str, spec, group, design) 
     return [Note((f"No column names the rows in the scores file, whose lines follow the rows of {source} in order; "
                   f"the column '{printable(column)}' holds a different value in every row and could name them",
                   Command(f" ({Option.ID_COLUMN.given(column)})"), "."))]
+
+
+def _after_data_cautions(result, data_cautions, scored) -> FitResult:
+    """``result`` with the cautions on the rows ``scored`` placed as a fit places its own problems
+    (pipeline.inputs.with_odd_values): after the cautions on the data (``data_cautions``, among ``result``'s
+    problems), which may be their cause (a code of --missing-codes that empties answers before the rows left
+    without a factor's answers: re-check s17, finding 08), before the rest; an impossible solution first
+    (assessment.admissibility.solution_first)."""
+    from cfa_tool.assessment.admissibility import solution_first
+
+    first = tuple(p for p in result.problems if p in data_cautions)
+    rest = tuple(p for p in result.problems if p not in data_cautions)
+    return replace(result, problems=solution_first(first + tuple(scored) + rest))
 
 
 def _with_repeated_ids(result, ids, id_column):
@@ -1113,7 +1128,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
             text, advice = outside
             scored_problems.append(Problem(ProblemKind.ANSWERS_BEYOND_FITTED, (), None, text, advice))
     if scored_problems:
-        result = replace(result, problems=tuple(scored_problems) + tuple(result.problems))
+        result = _after_data_cautions(result, own, scored_problems)
     result = _with_repeated_ids(result, ids, id_column)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names", False) \
         + _partly_answered(base, answered, chosen, errors)
