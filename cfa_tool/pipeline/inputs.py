@@ -167,7 +167,9 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         frame = renamed_frame(frame, renames, DATA_FRAME, rename_option)
         frame, blank = drop_blank_rows(frame, DATA_FRAME)  # as the readers leave them out
         renamed = (rename_note(renames, DATA_FRAME, rename_option),) if renames else ()
-        return with_no_answers_read(LoadedData(frame, DATA_FRAME, notes=renamed + blank, renamed=renames),
+        by_position = row_naming(frame) is RowNaming.POSITION  # indexed by position: the caller's labels kept
+        return with_no_answers_read(LoadedData(frame, DATA_FRAME, notes=renamed + blank, renamed=renames,
+                                               frame_index=data.index if by_position else None),
                                     missing_codes, DATA_FRAME, text_columns, items, listed,
                                     filters)  # as a file's cells are read
     if isinstance(data, (str, Path)):

@@ -19,7 +19,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, row_naming
+from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, caller_labels, row_naming
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
 from cfa_tool.data.summary_stats import NotGiven
@@ -773,7 +773,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     frame, source = loaded.frame, loaded.source
     read_frame = _rows_as_read(loaded)
     read_index = read_frame.index
-    if not read_index.is_unique:
+    if not caller_labels(read_index, loaded.frame_index).is_unique:
         raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index) so "
                           "that every row can be scored in its place")
     ids = row_ids(read_frame, source, id_column, spec.observed_names, group, loaded.row_names)
@@ -833,6 +833,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     table = _in_file_order(pd.DataFrame(columns, index=read_index), data, loaded.names_row_read)  # a frame's own index: joins
     table = _with_why_not_scored(table, id_name, score_columns(chosen, factors), reasons,
                                  pd.Series(left, index=read_index))
+    table.index = caller_labels(table.index, loaded.frame_index)
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
                                spec, answered, sums) if ordinal_items else _linear_quality(models, spec, sums)
     result = _with_repeated_ids(result, ids, id_column)
@@ -1068,7 +1069,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     read_frame = _rows_as_read(loaded)
     if not len(read_frame):
         raise DataError(f"{source} has no rows to score")
-    if not read_frame.index.is_unique:
+    if not caller_labels(read_frame.index, loaded.frame_index).is_unique:
         raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index)")
     group = result.group_column
     if group is not None and group not in read_frame.columns:
@@ -1152,6 +1153,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     table = _with_why_not_scored(_in_file_order(pd.DataFrame(columns, index=read_frame.index), data,
                                                   loaded.names_row_read), id_name,
                                  score_columns(chosen, factors), reasons, pd.Series(left, index=read_frame.index))
+    table.index = caller_labels(table.index, loaded.frame_index)
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
                        unscored, with_errors, tuple(notes), source, tuple(warnings), summaries, unanswered)
 
