@@ -137,7 +137,7 @@ def reference_rule(frame: pd.DataFrame, column: str, reference: str | None = Non
     :func:`default_reference` chose it."""
     if reference is not None:
         return ReferenceRule.GIVEN
-    present = [label for label in dict.fromkeys(group_keys(frame[column].dropna())) if label is not None]
+    present = [label for label in dict.fromkeys(group_keys(frame[column].dropna())) if not pd.isna(label)]
     return default_reference(frame, column, present)[1]  # the branch the choice took, by the one rule
 
 
@@ -151,9 +151,12 @@ def group_rows(frame: pd.DataFrame, column: str, source: str, reference: str | N
 
 
 def group_keys(cells: pd.Series) -> pd.Series:
-    """Each cell of a group column as its group's label (data.labels.label_text), None for an empty cell and for a
+    """Each cell of a group column as its group's label (data.labels.label_text), missing for an empty cell and for a
     cell of spaces and invisible format characters alone (a zero-width space), which the data file's reader leaves
-    as text but shows as empty as a cell of spaces, which it reads as empty.  Each distinct cell is read once
+    as text but shows as empty as a cell of spaces, which it reads as empty.  Missing is the missing value of the
+    result's type (NaN in a column of text, pd.NA in pandas' 'string'), never None: test it with pd.isna or
+    Series.isna, not ``is None`` (re-check s17: a scored file's empty group cells were counted as a group the fit
+    lacks).  Each distinct cell is read once
     (data.labels.distinct_cells) where the column holds numbers, text (pandas' 'str') or Python objects; other columns
     (categories, nullable types, dates) cell by cell by Series.map, whose result keeps their kind."""
     def key(v):

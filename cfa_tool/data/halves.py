@@ -376,7 +376,7 @@ def _check_labels(saved: SavedHalves, frame: pd.DataFrame, numbers: np.ndarray, 
     """A refusal when halves drawn by cluster within strata name other clusters or strata for their rows than the
     data's columns hold (the columns renamed or missing in this run, or edited labels): the halves were drawn by those
     labels, and are checked by them (:func:`_check_drawn`)."""
-    from cfa_tool.data.labels import label_text
+    from cfa_tool.data.groups import group_keys
 
     for column, recorded in ((saved.cluster_column, saved.clusters), (saved.strata_column, saved.strata)):
         if not column:
@@ -384,7 +384,8 @@ def _check_labels(saved: SavedHalves, frame: pd.DataFrame, numbers: np.ndarray, 
         if column not in frame.columns:
             raise DataError(f"{shown} holds halves drawn by the column '{printable(column)}', which {source} does not "
                             f"hold as this run reads it; give the {Option.RENAME} of the run that drew them")
-        labels = dict(zip(numbers.tolist(), (label_text(v) if pd.notna(v) else "" for v in frame[column])))
+        # as the design read them when the halves were drawn (data.sample_design: each distinct cell once)
+        labels = dict(zip(numbers.tolist(), group_keys(frame[column]).astype(object).fillna("").tolist()))
         for row, label in zip(saved.rows.tolist(), recorded):
             if row in labels and labels[row] != label:
                 raise DataError(f"{shown}: row {row} was drawn in '{printable(label)}' of column "

@@ -1125,7 +1125,7 @@ def _few_answers_in_groups(names: tuple[str, ...], loaded: LoadedData, group: st
     if values is None or not names:  # not plain numbers: the reading of the items names what is wrong
         return ()
     keys = group_keys(frame[group]).to_numpy(object)
-    labels = ordered_labels({k for k in keys if k is not None}, frame, group)
+    labels = ordered_labels({k for k in keys if not pd.isna(k)}, frame, group)  # missing: no group (group_keys)
     answered = ~np.isnan(values)
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 

@@ -1562,7 +1562,7 @@ def _unknown_groups(group_of_row: np.ndarray, labels, group: str, source: str) -
     from cfa_tool.suggest import close_names
 
     known = set(labels)
-    given = pd.Series([v for v in group_of_row if v is not None and v not in known], dtype=object)
+    given = pd.Series([v for v in group_of_row if not pd.isna(v) and v not in known], dtype=object)  # (group_keys)
     if given.empty:
         return None
     counts = given.value_counts()
@@ -1575,7 +1575,7 @@ def _unknown_groups(group_of_row: np.ndarray, labels, group: str, source: str) -
     fitted = ", ".join(f"'{printable(x)}'" for x in labels)
     text = (f"{int(counts.sum())} rows of {source} are in groups of '{printable(group)}' that the earlier fit does not "
             f"have: {', '.join(shown)}{more}; the fit's groups are {fitted}, and a label must match one as written")
-    if not any(v in known for v in group_of_row if v is not None):
+    if not any(v in known for v in group_of_row if not pd.isna(v)):
         raise OptionError(f"no row of {source} can be scored: {text}")
     return text + "; those rows get no scores"  # (a caution first: ProblemKind.UNKNOWN_GROUPS_SCORED)
 

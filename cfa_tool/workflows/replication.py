@@ -784,9 +784,10 @@ def _drawn(complete: pd.DataFrame, design, spec: Spec, source: str, seed: int
     from cfa_tool.data.sample_design import check_design, row_design
 
     if design.cluster is not None and design.cluster in complete.columns:
-        from cfa_tool.data.labels import label_text
+        from cfa_tool.data.groups import group_keys
 
-        named = pd.unique(complete[design.cluster].dropna().map(label_text))
+        # the clusters as the design reads them (each distinct cell once, by type and text; a blank cell is none)
+        named = pd.unique(group_keys(complete[design.cluster]).dropna())
         if len(named) < 2:
             raise DataError(f"{source}: column '{printable(design.cluster)}' names a single cluster among the rows split, "
                             f"and halves drawn cluster by cluster need at least two; remove {Option.CLUSTER} or give "
