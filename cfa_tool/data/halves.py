@@ -127,7 +127,7 @@ def drawn_halves(frame: pd.DataFrame, cluster: str | None, strata: str | None, i
 
     if cluster is None and strata is None:
         return *draw_halves(len(frame), seed), (), None
-    from cfa_tool.data.groups import group_keys
+    from cfa_tool.data.labels import group_keys
     from cfa_tool.data.sample_design import DesignColumns, check_design, row_design
 
     design = DesignColumns(None, cluster, strata)
@@ -416,7 +416,7 @@ def _check_labels(saved: SavedHalves, frame: pd.DataFrame, numbers: np.ndarray, 
     """A refusal when halves drawn by cluster within strata name other clusters or strata for their rows than the
     data's columns hold (the columns renamed or missing in this run, or edited labels): the halves were drawn by those
     labels, and are checked by them (:func:`_check_drawn`)."""
-    from cfa_tool.data.groups import group_keys
+    from cfa_tool.data.labels import group_keys
 
     for column, recorded in ((saved.cluster_column, saved.clusters), (saved.strata_column, saved.strata)):
         if not column:

@@ -579,10 +579,10 @@ def _labels(column: pd.Series) -> pd.Series:
     Unicode forms ignored; cfa_tool.data.labels), missing values kept missing, and a cell of spaces and invisible
     format characters alone (a zero-width space) missing too, as a group column reads it (data.groups.group_keys:
     the data file's reader reads a cell of spaces as empty and leaves the other as text; re-check s17, G1: a
-    cluster named ''): by the one rule of groups (data.groups.group_keys), each distinct cell read once as cells
+    cluster named ''): by the one rule of groups (data.labels.group_keys), each distinct cell read once as cells
     alike by type and text (data.labels.distinct_cells), so that True and 1 of a column of Python objects stay two
     clusters named as the data have them (a mapping keyed by the cells took them as one, named 'True')."""
-    from cfa_tool.data.groups import group_keys
+    from cfa_tool.data.labels import group_keys
 
     return group_keys(column)
 

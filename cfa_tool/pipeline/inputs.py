@@ -18,7 +18,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
     from cfa_tool.assessment.admissibility import Problem
 
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
-from cfa_tool.data.groups import SmallGroupsError, split_moments
+from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
 from cfa_tool.data.kept_rows import (RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
                                      unfinished_rows_note)
 from cfa_tool.data.labels import (CODED_LABELS, label_notes, label_text, labelled_codes, nominal_items_note,
@@ -1398,28 +1398,6 @@ def _labelled(frame: pd.DataFrame, group: str | None) -> pd.DataFrame:
         return frame
     labelled = has_group(frame, group)
     return frame if labelled.all() else frame.loc[labelled]
-
-
-def has_group(frame: pd.DataFrame, group: str) -> np.ndarray:
-    """Which rows of ``frame`` have a label in the group column, by the one rule of groups (data.groups.group_keys:
-    a cell of invisible characters alone has none; re-check s17: such a row's gaps chose full-information ML for
-    complete rows analysed)."""
-    from cfa_tool.data.groups import group_keys
-    from cfa_tool.data.labels import label_text
-
-    cells = frame[group]
-    values = cells.to_numpy()
-    labelled = ~pd.isna(values)
-    try:  # each distinct cell read once by the rule of group_keys (the analyses call this several times per fit)
-        distinct = pd.unique(values[labelled])
-    except TypeError:  # an unhashable cell (a list in a data frame built in Python): every cell read
-        labelled = group_keys(cells).notna().to_numpy()
-    else:  # a cell of invisible characters alone has no label (group_keys: label_text gives ''); only texts can be
-        # such cells, so they are compared exactly
-        unlabelled = {v for v in distinct if not label_text(v)}
-        if unlabelled:
-            labelled &= np.array([not (isinstance(v, str) and v in unlabelled) for v in values], dtype=bool)
-    return labelled
 
 
 def design_test(fit_options, design: DesignColumns):
