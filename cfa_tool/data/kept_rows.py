@@ -86,6 +86,8 @@ def named_by_index_label(frame: pd.DataFrame) -> pd.DataFrame:
     caller gave it when row filters, blank rows left out or groups take rows away (a count of the rows kept named
     another row: re-check s17); :func:`caller_labels` gives the caller's own labels back where they are written
     beside the rows (a scores table)."""
+    if ROW_NAMING in frame.attrs:  # rows this tool read and named already (explore's confirmation half): kept so
+        return frame
     index = frame.index
     frame = frame.copy(deep=False)  # the caller's frame keeps its attrs and its index
     naming = (RowNaming.INDEX_LABEL if len(index) and pd.api.types.is_integer_dtype(index) and index.is_unique

@@ -19,7 +19,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.halves import drawn_halves
-from cfa_tool.data.kept_rows import FINISHED_COLUMNS
+from cfa_tool.data.kept_rows import FINISHED_COLUMNS, ROW_NAMING, row_naming
 from cfa_tool.data.moments import stray_word_message
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.assessment.admissibility import sample_size_problems
@@ -889,6 +889,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
                                                       "split the file into two samples by hand, explore one and fit "
                                                       "the draft model on the other")
         explored, confirming = frame.iloc[first], frame.iloc[second]
+        # fitted as a data frame, its rows named as explore read them (a file's rows, not index labels one less)
+        confirming.attrs[ROW_NAMING] = row_naming(frame)
         halves = (tuple(int(v) for v in numbers[first]), tuple(int(v) for v in numbers[second]), confirming)
         design_split = dict(cluster=cluster, strata=strata, units=units, drawn_by=drawn_by)
         frame = explored
