@@ -46,12 +46,7 @@ def add_parser(sub) -> None:
     p.add_argument("--seed", type=int, default=0, help="seed of parallel analysis and of the rotation's random starts "
                                                        "(default 0)")
     O.add_data_options(p)
-    p.add_argument("--cluster", metavar="COLUMN",
-                   help="with --split: column naming each row's cluster (household, school); the halves are drawn "
-                        "cluster by cluster, every row of a cluster in one half, as replicate --data draws them")
-    p.add_argument("--strata", metavar="COLUMN",
-                   help="with --split: column naming each row's stratum; the halves are drawn within each stratum "
-                        "(its clusters with --cluster, else its rows)")
+    O.add_halves_design_options(p, "--split", ", as replicate --data draws them")
     O.refuse_design_options(p, "explore analyses the unweighted correlations of independent rows (columns named as "
                                "weights, clusters or strata are left out of its default items); fit the draft model "
                                "with 'fit' and the design options", ("--weights", "--weight-kind"))
