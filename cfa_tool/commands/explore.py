@@ -46,9 +46,10 @@ def add_parser(sub) -> None:
     p.add_argument("--seed", type=int, default=0, help="seed of parallel analysis and of the rotation's random starts "
                                                        "(default 0)")
     O.add_data_options(p)
+    O.add_halves_design_options(p, "--split", ", as replicate --data draws them")
     O.refuse_design_options(p, "explore analyses the unweighted correlations of independent rows (columns named as "
                                "weights, clusters or strata are left out of its default items); fit the draft model "
-                               "with 'fit' and the design options")
+                               "with 'fit' and the design options", ("--weights", "--weight-kind"))
     add_report_options(p)
 
 
@@ -68,14 +69,16 @@ def run(args: argparse.Namespace) -> int:
     result = explore(args.data, items=args.items, factors=args.factors, rotation=args.rotation,
                      extraction=args.extraction, ordinal=O.ordinal_arg(args.ordinal), split=args.split,
                      **O.reading_args(args),
-                     replications=args.replications, seed=args.seed, target=args.target, answers=args.answers)
+                     replications=args.replications, seed=args.seed, target=args.target, answers=args.answers,
+                     cluster=args.cluster, strata=args.strata)
     files = [("--draft", result.draft_text, f"Draft model written to {args.draft}")] if args.draft else []
     if result.split is not None:
         from cfa_tool.data.halves import EXPLORE_HALVES
 
         first, second = EXPLORE_HALVES
         files += halves_file(args, [(first, result.split.exploration_rows),
-                                    (second, result.split.confirmation_rows)], result.split.seed)
+                                    (second, result.split.confirmation_rows)], result.split.seed,
+                            result.split.drawn_by)
         if files[-1:] and files[-1][0] == HALVES_FILE:  # the way to fit an edited draft on the confirmation half
             import shlex
 

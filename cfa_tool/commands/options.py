@@ -232,6 +232,18 @@ def refuse_missing_helpers(sub) -> None:
                                 why="missing-data helpers (auxiliary variables) are offered by fit only so far")
 
 
+def add_halves_design_options(p: argparse.ArgumentParser, split: str, same: str = "") -> None:
+    """--cluster and --strata of a command that splits its rows into random halves by the option ``split`` (replicate
+    --data, explore --split): the halves drawn by the one rule of every split (data.halves.drawn_halves); ``same``:
+    words after the cluster's help ('as replicate --data draws them')."""
+    p.add_argument("--cluster", metavar="COLUMN",
+                   help=f"with {split}: column naming each row's cluster (household, school); the halves are drawn "
+                        f"cluster by cluster, every row of a cluster in one half{same}")
+    p.add_argument("--strata", metavar="COLUMN",
+                   help=f"with {split}: column naming each row's stratum; the halves are drawn within each stratum "
+                        f"(its clusters with --cluster, else its rows)")
+
+
 def add_run_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--seed", type=int, default=1, help="random seed (default 1); the same seed gives the same result")
     p.add_argument("--workers", type=int, help="local processes (default: one per core)")

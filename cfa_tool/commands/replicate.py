@@ -36,12 +36,7 @@ def add_parser(sub) -> None:
                           "--calibration file (or --data): each file's columns are renamed by its own option")
     O.add_ordinal_options(rep)
     O.add_incomplete_rows_option(rep, O.REFITS_AS_THE_FIT)
-    rep.add_argument("--cluster", metavar="COLUMN",
-                     help="with --data: column naming each row's cluster (household, school); the halves are drawn "
-                          "cluster by cluster, every row of a cluster in one half")
-    rep.add_argument("--strata", metavar="COLUMN",
-                     help="with --data: column naming each row's stratum; the halves are drawn within each stratum "
-                          "(its clusters with --cluster, else its rows)")
+    O.add_halves_design_options(rep, "--data")
     O.refuse_design_options(rep, "replicate compares samples of independent, equally weighted rows and takes no "
                                  "weights: its test of one solution and cross-validation index would mislead under "
                                  "sampling weights; fit each sample with 'fit' and its design options instead",

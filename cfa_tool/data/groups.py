@@ -10,7 +10,8 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.labels import code_order, distinct_cells, label_text, listed_labels, merged_labels, ordered_labels
+from cfa_tool.data.labels import (code_order, distinct_cells, group_keys, label_text, listed_labels, merged_labels,
+                                  ordered_labels)
 from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names
 from cfa_tool.data.moments import SampleMoments, numeric_columns, sample_moments
@@ -137,7 +138,7 @@ def reference_rule(frame: pd.DataFrame, column: str, reference: str | None = Non
     :func:`default_reference` chose it."""
     if reference is not None:
         return ReferenceRule.GIVEN
-    present = [label for label in dict.fromkeys(group_keys(frame[column].dropna())) if label is not None]
+    present = [label for label in dict.fromkeys(group_keys(frame[column].dropna())) if not pd.isna(label)]
     return default_reference(frame, column, present)[1]  # the branch the choice took, by the one rule
 
 
@@ -150,23 +151,23 @@ def group_rows(frame: pd.DataFrame, column: str, source: str, reference: str | N
     return [(label, frame.loc[(keys == label).to_numpy()]) for label in labels], int(keys.isna().sum())
 
 
-def group_keys(cells: pd.Series) -> pd.Series:
-    """Each cell of a group column as its group's label (data.labels.label_text), None for an empty cell and for a
-    cell of spaces and invisible format characters alone (a zero-width space), which the data file's reader leaves
-    as text but shows as empty as a cell of spaces, which it reads as empty.  Each distinct cell is read once
-    (data.labels.distinct_cells) where the column holds numbers, text (pandas' 'str') or Python objects; other columns
-    (categories, nullable types, dates) cell by cell by Series.map, whose result keeps their kind."""
-    def key(v):
-        return None if pd.isna(v) else (label_text(v) or None)
-
-    if not len(cells) or not ((isinstance(cells.dtype, np.dtype) and cells.dtype.kind in "fiubO")
-                              or cells.dtype == "str"):
-        return cells.map(key)
-    distinct, places = distinct_cells(cells)
-    keys = np.empty(len(distinct), dtype=object)
-    keys[:] = [key(v) for v in distinct]
-    # the constructor infers the labels' type as Series.map does (text, or object when no cell has a label)
-    return pd.Series(keys[places], index=cells.index, name=cells.name).__finalize__(cells)
+def has_group(frame: pd.DataFrame, group: str) -> np.ndarray:
+    """Which rows of ``frame`` have a label in the group column, by the one rule of groups (:func:`group_keys`: a cell
+    of invisible characters alone has none; re-check s17: such a row's gaps chose full-information ML for complete
+    rows analysed), beside that rule here, below every command that asks it."""
+    cells = frame[group]
+    values = cells.to_numpy()
+    labelled = ~pd.isna(values)
+    try:  # each distinct cell read once by the rule of group_keys (the analyses call this several times per fit)
+        distinct = pd.unique(values[labelled])
+    except TypeError:  # an unhashable cell (a list in a data frame built in Python): every cell read
+        labelled = group_keys(cells).notna().to_numpy()
+    else:  # a cell of invisible characters alone has no label (group_keys: label_text gives ''); only texts can be
+        # such cells, so they are compared exactly
+        unlabelled = {v for v in distinct if not label_text(v)}
+        if unlabelled:
+            labelled &= np.array([not (isinstance(v, str) and v in unlabelled) for v in values], dtype=bool)
+    return labelled
 
 
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,

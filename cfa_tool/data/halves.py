@@ -113,6 +113,46 @@ def draw_cluster_halves(units: np.ndarray, strata: np.ndarray | None, seed: int)
     return np.flatnonzero(first), np.flatnonzero(~first)
 
 
+def drawn_halves(frame: pd.DataFrame, cluster: str | None, strata: str | None, items: tuple[str, ...], source: str,
+                 seed: int, by_hand: str) -> tuple[np.ndarray, np.ndarray, tuple[int, ...], DrawnBy | None]:
+    """The random halves of the rows of ``frame``, the one rule of every split (replicate --data, explore --split):
+    their positions, row by row (:func:`draw_halves`) without ``cluster`` or ``strata``, else whole clusters of the
+    column ``cluster`` (or rows) within each stratum of ``strata`` (:func:`draw_cluster_halves`), the clusters and
+    strata read as the sampling design reads them (data.sample_design: checked, each distinct cell once); the
+    clusters in each half (() without clusters); and the columns and each row's cluster and stratum a halves file
+    records (None without them).  ``items``: the variables analysed, which need at least twice their number of rows
+    in each half (``by_hand``: what to do instead, when they do not have them)."""
+    from cfa_tool.errors import DataError, printable
+    from cfa_tool.options import Option
+
+    if cluster is None and strata is None:
+        return *draw_halves(len(frame), seed), (), None
+    from cfa_tool.data.labels import group_keys
+    from cfa_tool.data.sample_design import DesignColumns, check_design, row_design
+
+    design = DesignColumns(None, cluster, strata)
+    if cluster is not None and cluster in frame.columns:
+        # the clusters as the design reads them (each distinct cell once, by type and text; a blank cell is none)
+        if len(pd.unique(group_keys(frame[cluster]).dropna())) < 2:
+            raise DataError(f"{source}: column '{printable(cluster)}' names a single cluster among the rows split, "
+                            f"and halves drawn cluster by cluster need at least two; remove {Option.CLUSTER} or give "
+                            f"the right column")
+    checked, _ = check_design(frame, design, tuple(items), None, source)  # names, labels, nesting
+    codes = row_design(checked, design, np.ones(len(checked), dtype=bool))
+    units = codes.clusters if codes.clusters is not None else np.arange(len(checked))
+    first, second = draw_cluster_halves(units, codes.strata, seed)
+    counts = (len(np.unique(units[first])), len(np.unique(units[second]))) if codes.clusters is not None else ()
+    least = 2 * len(items)
+    if min(len(first), len(second)) < least:
+        by = f"cluster of {cluster}" if cluster is not None else f"stratum of {strata}"
+        raise DataError(f"{source}: halves drawn {by} hold {len(first)} and {len(second)} rows, and each needs at least "
+                        f"{least} for {len(items)} variables (large clusters or strata of few rows); {by_hand}")
+    named = [np.asarray(names, dtype=object)[codes_of] if codes_of is not None else np.full(len(checked), "", dtype=object)
+             for codes_of, names in ((codes.clusters, codes.cluster_names), (codes.strata, codes.strata_names))]
+    labels = {int(r): (str(c), str(h)) for r, c, h in zip(row_numbers(checked), *named)}
+    return first, second, counts, DrawnBy(cluster, strata, labels)
+
+
 @dataclass(frozen=True)
 class RandomHalf:
     """The choice of one half of a halves file: ``path`` the file, ``name`` the half ('confirmation')."""
@@ -376,7 +416,7 @@ def _check_labels(saved: SavedHalves, frame: pd.DataFrame, numbers: np.ndarray, 
     """A refusal when halves drawn by cluster within strata name other clusters or strata for their rows than the
     data's columns hold (the columns renamed or missing in this run, or edited labels): the halves were drawn by those
     labels, and are checked by them (:func:`_check_drawn`)."""
-    from cfa_tool.data.labels import label_text
+    from cfa_tool.data.labels import group_keys
 
     for column, recorded in ((saved.cluster_column, saved.clusters), (saved.strata_column, saved.strata)):
         if not column:
@@ -384,7 +424,8 @@ def _check_labels(saved: SavedHalves, frame: pd.DataFrame, numbers: np.ndarray, 
         if column not in frame.columns:
             raise DataError(f"{shown} holds halves drawn by the column '{printable(column)}', which {source} does not "
                             f"hold as this run reads it; give the {Option.RENAME} of the run that drew them")
-        labels = dict(zip(numbers.tolist(), (label_text(v) if pd.notna(v) else "" for v in frame[column])))
+        # as the design read them when the halves were drawn (data.sample_design: each distinct cell once)
+        labels = dict(zip(numbers.tolist(), group_keys(frame[column]).astype(object).fillna("").tolist()))
         for row, label in zip(saved.rows.tolist(), recorded):
             if row in labels and labels[row] != label:
                 raise DataError(f"{shown}: row {row} was drawn in '{printable(label)}' of column "

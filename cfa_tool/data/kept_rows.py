@@ -6,6 +6,7 @@ from __future__ import annotations
 import enum
 from collections.abc import Mapping
 
+import numpy as np
 import pandas as pd
 
 from cfa_tool.errors import clipped, printable
@@ -80,12 +81,28 @@ def named_by_index_label(frame: pd.DataFrame) -> pd.DataFrame:
     """A data frame given by a Python caller, its rows named by their index labels (data.moments.row_numbers gives
     the labels themselves) when the index holds distinct whole numbers; a frame indexed otherwise (by text, or with
     labels repeated, as pd.concat without ignore_index leaves them) has its rows named by their positions, counted
-    from 1, and called so (:attr:`RowNaming.POSITION`), never rows of a file (hostile trial s17, finding 7)."""
+    from 1, and called so (:attr:`RowNaming.POSITION`), never rows of a file (hostile trial s17, finding 7).  Such a
+    frame is indexed by its rows' positions (0-based) while it is analysed, so that a row keeps the position the
+    caller gave it when row filters, blank rows left out or groups take rows away (a count of the rows kept named
+    another row: re-check s17); :func:`caller_labels` gives the caller's own labels back where they are written
+    beside the rows (a scores table)."""
+    if ROW_NAMING in frame.attrs:  # rows this tool read and named already (explore's confirmation half): kept so
+        return frame
     index = frame.index
-    frame = frame.copy(deep=False)  # the caller's frame keeps its attrs
-    frame.attrs[ROW_NAMING] = (RowNaming.INDEX_LABEL if len(index) and pd.api.types.is_integer_dtype(index)
-                               and index.is_unique else RowNaming.POSITION)
+    frame = frame.copy(deep=False)  # the caller's frame keeps its attrs and its index
+    naming = (RowNaming.INDEX_LABEL if len(index) and pd.api.types.is_integer_dtype(index) and index.is_unique
+              else RowNaming.POSITION)
+    if naming is RowNaming.POSITION:
+        frame.index = pd.RangeIndex(len(frame))
+    frame.attrs[ROW_NAMING] = naming
     return frame
+
+
+def caller_labels(index: pd.Index, caller: pd.Index | None) -> pd.Index:
+    """The caller's own index labels of the rows at ``index`` of a frame :func:`named_by_index_label` indexed by
+    position (``caller``: the index of the frame the caller gave, None when the frame kept it), for what is written
+    beside the rows and joins to the caller's frame; ``index`` itself otherwise."""
+    return index if caller is None else caller.take(np.asarray(index, dtype=np.int64))
 
 
 def text_lines(frame: pd.DataFrame | pd.Series) -> Mapping[int, int]:

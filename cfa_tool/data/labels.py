@@ -85,6 +85,32 @@ def distinct_cells(values) -> tuple[list, "np.ndarray"]:
     return cells, places
 
 
+def group_keys(cells: pd.Series) -> pd.Series:
+    """Each cell of a group column as its group's label (data.labels.label_text), missing for an empty cell and for a
+    cell of spaces and invisible format characters alone (a zero-width space), which the data file's reader leaves
+    as text but shows as empty as a cell of spaces, which it reads as empty.  Missing is the missing value of the
+    result's type (NaN in a column of text, pd.NA in pandas' 'string'), never None: test it with pd.isna or
+    Series.isna, not ``is None`` (re-check s17: a scored file's empty group cells were counted as a group the fit
+    lacks).  Each distinct cell is read once
+    (data.labels.distinct_cells) where the column holds numbers, text (pandas' 'str') or Python objects; other columns
+    (categories, nullable types, dates) cell by cell by Series.map, whose result keeps their kind.  The one rule of
+    groups (data.groups), and of the sampling design's clusters and strata (data.sample_design)."""
+    import numpy as np
+    import pandas as pd
+
+    def key(v):
+        return None if pd.isna(v) else (label_text(v) or None)
+
+    if not len(cells) or not ((isinstance(cells.dtype, np.dtype) and cells.dtype.kind in "fiubO")
+                              or cells.dtype == "str"):
+        return cells.map(key)
+    distinct, places = distinct_cells(cells)
+    keys = np.empty(len(distinct), dtype=object)
+    keys[:] = [key(v) for v in distinct]
+    # the constructor infers the labels' type as Series.map does (text, or object when no cell has a label)
+    return pd.Series(keys[places], index=cells.index, name=cells.name).__finalize__(cells)
+
+
 def cell_counts(values) -> list[tuple[object, int]]:
     """Each distinct cell of ``values`` (:func:`distinct_cells`) with its number of cells, in order of first sight."""
     import numpy as np

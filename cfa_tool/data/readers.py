@@ -83,6 +83,10 @@ class LoadedData:
     names_row_read: int = 1
     #: columns read under new names (data.renamed_columns.ColumnRename: --rename), which every report names
     renamed: tuple = ()
+    #: a data frame's own index when its rows are named by position (data.kept_rows.RowNaming.POSITION: labels
+    #: repeated or not whole numbers), which ``frame`` replaces by the rows' positions (data.kept_rows.
+    #: named_by_index_label); None for a file and for a frame that keeps its index
+    frame_index: pd.Index | None = None
     #: the sampling design's weights of ``frame``'s rows, parsed once (data.sample_design.design_weights) for every
     #: reader of them; None without weights or before they are parsed
     weights: np.ndarray | None = None

@@ -597,10 +597,12 @@ def _labels(column: pd.Series) -> pd.Series:
     Unicode forms ignored; cfa_tool.data.labels), missing values kept missing, and a cell of spaces and invisible
     format characters alone (a zero-width space) missing too, as a group column reads it (data.groups.group_keys:
     the data file's reader reads a cell of spaces as empty and leaves the other as text; re-check s17, G1: a
-    cluster named '')."""
-    from cfa_tool.data.labels import label_text
+    cluster named ''): by the one rule of groups (data.labels.group_keys), each distinct cell read once as cells
+    alike by type and text (data.labels.distinct_cells), so that True and 1 of a column of Python objects stay two
+    clusters named as the data have them (a mapping keyed by the cells took them as one, named 'True')."""
+    from cfa_tool.data.labels import group_keys
 
-    return column.map({v: label_text(v) or None for v in pd.unique(column.dropna())})  # each different name once
+    return group_keys(column)
 
 
 def _blank_words(text: str) -> str:

@@ -19,7 +19,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
     from cfa_tool.data.halves import RandomHalf
 
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
-from cfa_tool.data.groups import SmallGroupsError, split_moments
+from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
 from cfa_tool.data.kept_rows import (RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
                                      unfinished_rows_note)
 from cfa_tool.data.labels import (CODED_LABELS, label_notes, label_text, labelled_codes, nominal_items_note,
@@ -168,7 +168,9 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         frame = renamed_frame(frame, renames, DATA_FRAME, rename_option)
         frame, blank = drop_blank_rows(frame, DATA_FRAME)  # as the readers leave them out
         renamed = (rename_note(renames, DATA_FRAME, rename_option),) if renames else ()
-        return with_no_answers_read(LoadedData(frame, DATA_FRAME, notes=renamed + blank, renamed=renames),
+        by_position = row_naming(frame) is RowNaming.POSITION  # indexed by position: the caller's labels kept
+        return with_no_answers_read(LoadedData(frame, DATA_FRAME, notes=renamed + blank, renamed=renames,
+                                               frame_index=data.index if by_position else None),
                                     missing_codes, DATA_FRAME, text_columns, items, listed,
                                     filters)  # as a file's cells are read
     if isinstance(data, (str, Path)):
@@ -1136,7 +1138,7 @@ def _few_answers_in_groups(names: tuple[str, ...], loaded: LoadedData, group: st
     if values is None or not names:  # not plain numbers: the reading of the items names what is wrong
         return ()
     keys = group_keys(frame[group]).to_numpy(object)
-    labels = ordered_labels({k for k in keys if k is not None}, frame, group)
+    labels = ordered_labels({k for k in keys if not pd.isna(k)}, frame, group)  # missing: no group (group_keys)
     answered = ~np.isnan(values)
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
@@ -1409,28 +1411,6 @@ def _labelled(frame: pd.DataFrame, group: str | None) -> pd.DataFrame:
         return frame
     labelled = has_group(frame, group)
     return frame if labelled.all() else frame.loc[labelled]
-
-
-def has_group(frame: pd.DataFrame, group: str) -> np.ndarray:
-    """Which rows of ``frame`` have a label in the group column, by the one rule of groups (data.groups.group_keys:
-    a cell of invisible characters alone has none; re-check s17: such a row's gaps chose full-information ML for
-    complete rows analysed)."""
-    from cfa_tool.data.groups import group_keys
-    from cfa_tool.data.labels import label_text
-
-    cells = frame[group]
-    values = cells.to_numpy()
-    labelled = ~pd.isna(values)
-    try:  # each distinct cell read once by the rule of group_keys (the analyses call this several times per fit)
-        distinct = pd.unique(values[labelled])
-    except TypeError:  # an unhashable cell (a list in a data frame built in Python): every cell read
-        labelled = group_keys(cells).notna().to_numpy()
-    else:  # a cell of invisible characters alone has no label (group_keys: label_text gives ''); only texts can be
-        # such cells, so they are compared exactly
-        unlabelled = {v for v in distinct if not label_text(v)}
-        if unlabelled:
-            labelled &= np.array([not (isinstance(v, str) and v in unlabelled) for v in values], dtype=bool)
-    return labelled
 
 
 def design_test(fit_options, design: DesignColumns):

@@ -11,13 +11,15 @@ from __future__ import annotations
 from collections.abc import Sequence
 from pathlib import Path
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
+
+import enum
 
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.halves import draw_halves
-from cfa_tool.data.kept_rows import FINISHED_COLUMNS
+from cfa_tool.data.halves import drawn_halves
+from cfa_tool.data.kept_rows import FINISHED_COLUMNS, ROW_NAMING, row_naming
 from cfa_tool.data.moments import stray_word_message
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.assessment.admissibility import sample_size_problems
@@ -74,13 +76,36 @@ class SplitHalves:
     confirmation_rows: tuple[int, ...]
     confirmation: FitResult | None  # the draft model fitted on the confirmation half (None: no usable draft)
     note: str | None = None  # why there is no confirmation fit
+    #: the columns the halves were drawn by, as replicate --data draws them (data.halves.drawn_halves): whole clusters
+    #: of ``cluster`` to each half, within each stratum of ``strata``; both None: row by row
+    cluster: str | None = None
+    strata: str | None = None
+    #: the clusters in the exploration half and in the confirmation half; () without clusters
+    units: tuple[int, ...] = ()
+    #: each row's cluster and stratum as read, which a halves file records (data.halves.DrawnBy); None row by row
+    drawn_by: object = field(default=None, repr=False)
+
+    def how_drawn(self) -> str:
+        """How the halves were drawn when by clusters or strata, a sentence of the report ('' row by row)."""
+        within = f" within each stratum of {self.strata}" if self.strata is not None else ""
+        if self.cluster is not None:
+            return (f"The halves were drawn cluster by cluster{within}: every row of a cluster of {self.cluster} is in "
+                    f"one half ({_clusters(self.units[0])} in the exploration half, {self.units[1]} in the "
+                    f"confirmation half); within each half the rows are still taken as independent.")
+        return f"The halves were drawn row by row{within}." if self.strata is not None else ""
 
     def to_dict(self) -> dict:
         return {"seed": self.seed, "exploration_rows": list(self.exploration_rows),
                 "confirmation_rows": list(self.confirmation_rows),
                 "confirmation_half_used_to_choose_the_model": False,
+                "cluster_column": self.cluster, "strata_column": self.strata,
+                "clusters_per_half": list(self.units) if self.cluster is not None else None,
                 "confirmation": self.confirmation.to_dict() if self.confirmation is not None else None,
                 "note": self.note}
+
+
+def _clusters(count: int) -> str:
+    return f"{count} cluster{'' if count == 1 else 's'}"
 
 
 @dataclass(frozen=True, eq=False)
@@ -105,6 +130,9 @@ class ExploreResult(Presentable):
     #: the items of at most data.descriptives.FEW_CATEGORIES answer categories analysed as continuous (a note says
     #: what that does to the loadings and how to explore them by polychoric correlations)
     few_categories: tuple[str, ...] = ()
+    #: the columns of numbers left out of the items explored by default, each with why (:class:`LeftOut`): the items'
+    #: note says them in words; () when the items were named
+    left_out: tuple[tuple[str, LeftOut], ...] = ()
 
     @property
     def factors(self) -> int:
@@ -183,6 +211,7 @@ class ExploreResult(Presentable):
                      "correlations": ex.data.kind.value, "answer_coding": coding_json(self.answer_coding),
                      "few_categories_analysed_as_continuous": list(self.few_categories)},
             "items": list(self.items),
+            "items_left_out": [{"column": c, "reason": why.value} for c, why in self.left_out],
             "factor_count": {
                 "recommended": count.recommended,
                 "factors_used": ex.factors,
@@ -541,15 +570,34 @@ def _word_columns(frame: pd.DataFrame, numeric: tuple[str, ...], codings: tuple)
     return tuple(out)
 
 
-def _default_items(first, columns: list[str], codings: tuple, codes: tuple[float, ...] = ()
-                   ) -> tuple[tuple[str, ...], str, tuple[str, ...]]:
+class LeftOut(enum.Enum):
+    """Why a column of numbers is not among the items explored by default (each said in the items' note and listed in
+    the JSON result, ``items_left_out``)."""
+
+    ROW_IDS = "row numbers or ids"
+    CATEGORY_CODES = "codes of categories"
+    NAMED_FOR_ANOTHER_PART = "named for another part"
+    GROUPING_OR_RECORD = "grouping or record"
+    MEASURE_OFF_THE_SCALE = "measure off the answer scale"
+    CONSTANT = "constant"
+    HALVES_DESIGN = "cluster or strata of the halves"
+
+
+def _default_items(first, columns: list[str], codings: tuple, design: tuple[str, ...] = (),
+                   codes: tuple[float, ...] = ()
+                   ) -> tuple[tuple[str, ...], str, tuple[str, ...], tuple[tuple[str, LeftOut], ...]]:
     """The items explored by default (every column holding numbers, or the words of the answers file, except row
     numbers, ids, codes of categories, columns named for another part and columns whose values are not answers on
-    the items' scale, unlike_the_items) and the note that says which and why."""
+    the items' scale, unlike_the_items), the note that says which and why, the columns of the answers file's words,
+    and the columns of numbers left out with why (:class:`LeftOut`); ``design``: the cluster and strata columns the
+    halves of a split are drawn by, never items; ``codes``: the missing-value codes given, which the answer scale leaves
+    out (:func:`unlike_the_items`)."""
     from cfa_tool.data.labels import labelled_codes, own_labels
 
     frame, source = first.frame.set_axis(columns, axis=1), first.source
     numeric = _numeric_columns(frame)
+    drawn_by = tuple(c for c in design if c in frame.columns)  # named as such, whatever they hold
+    numeric = tuple(c for c in numeric if c not in design)
     ids = [c for c in numeric if _looks_like_row_ids(frame[c])]
     roles = [c for c in numeric if c not in ids and column_role(c) is not None]
     coded = [c for c in labelled_codes(frame, first.value_labels) if c in numeric and c not in ids + roles
@@ -586,8 +634,14 @@ def _default_items(first, columns: list[str], codings: tuple, codes: tuple[float
                            + ("mostly fractions)" if fractions else f"{_count_values(frame[c])} different values)")
                            for c, low, high, fractions in unlike.off_scale)
                + Note((name_them, ".")) if unlike.off_scale else "")
-            + _text_columns_phrase(frame, numeric + worded, codings))
-    return chosen, note, worded
+            + (f" Left out as the columns the halves are drawn by: {', '.join(printable(c) for c in drawn_by)}."
+               if drawn_by else "")
+            + _text_columns_phrase(frame, tuple(numeric) + tuple(worded) + drawn_by, codings))
+    left_out = (tuple((c, LeftOut.HALVES_DESIGN) for c in drawn_by) + tuple((c, LeftOut.ROW_IDS) for c in ids) + tuple((c, LeftOut.CATEGORY_CODES) for c in coded)
+                + tuple((c, LeftOut.NAMED_FOR_ANOTHER_PART) for c in roles)
+                + tuple((c, LeftOut.GROUPING_OR_RECORD) for c, _, _ in unlike.groupings)
+                + tuple((c, LeftOut.MEASURE_OFF_THE_SCALE) for c, _, _, _ in unlike.off_scale))
+    return chosen, note, worded, left_out
 
 
 def _refuse_too_few(chosen: tuple[str, ...], scan, codings: tuple) -> None:
@@ -725,7 +779,7 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
             names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
             keep: tuple[str, ...] | list[str] = (), rename: ColumnRenames = None, replications: int = 100,
             seed: int = 0, threshold: float = 0.30, target: np.ndarray | Sequence[Sequence[float]] | str | Path | None = None,
-            answers: str | Path | None = None) -> ExploreResult:
+            answers: str | Path | None = None, cluster: str | None = None, strata: str | None = None) -> ExploreResult:
     """How many factors, an exploratory solution and a draft model file for ``items`` of ``data``.
 
     ``items``: column names, or text 'a, b, c' with 'q1..q9' for a numbered range, counted as a model file counts
@@ -744,6 +798,9 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     path of an answers file, whose 'answers' statements (as a model file writes them) code answers recorded as
     words; the draft model carries them.  The data are read for the items as fit reads them for a model's;
     ``rename`` reads columns under new names ({'SL3r': 'SL3_r'}) before ``items`` and the rest name them.
+    ``cluster`` and ``strata``, with ``split``: the halves are drawn as replicate draws them (data.halves.drawn_halves),
+    whole clusters of the column ``cluster`` to each half, within each stratum of ``strata``; those columns are never
+    items.
     """
     from cfa_tool import options
     from cfa_tool.pipeline import inputs as api
@@ -753,6 +810,10 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         raise OptionError(f"'{data}' holds summary statistics; explore needs the rows of answers (a correlation "
                           f"matrix alone can be explored from Python: 'from cfa_tool.exploration import "
                           f"explore_correlations, from_correlations')")
+    if split is None and (cluster is not None or strata is not None):
+        given = Option.CLUSTER if cluster is not None else Option.STRATA
+        raise OptionError(f"{given} draws the random halves of {Option.SPLIT} by cluster, and this run explores every "
+                          f"row: give {Option.SPLIT.given('SEED')} or leave {given} out")
     codings = _answer_codings(answers)
     # a first reading names the columns and chooses the default items; the data are then read for those items as
     # fit reads them for a model's (pipeline.inputs.read_inputs_with_notes): --missing-codes and words or labels
@@ -768,7 +829,9 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         _refuse_too_few_named(chosen)
     item_note = None
     if by_default:
-        chosen, item_note, worded = _default_items(scan, columns, codings, api.missing_values_option(missing_codes)[0])
+        chosen, item_note, worded, left_out = _default_items(scan, columns, codings,
+                                                             tuple(c for c in (cluster, strata) if c is not None),
+                                                             api.missing_values_option(missing_codes)[0])
         _refuse_too_few(chosen, scan, codings)
     spec = _explored_spec(chosen, codings, answers, worded if by_default else None)
     if not by_default:
@@ -785,6 +848,7 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     if by_default:
         constant = [c for c in chosen if frame[c].nunique(dropna=True) <= 1]
         chosen = tuple(c for c in chosen if c not in constant)
+        left_out += tuple((c, LeftOut.CONSTANT) for c in constant)
         notes.append(item_note + (f" Left out as constant (one value in every row, which says nothing of the other "
                                   f"answers): {', '.join(printable(c) for c in constant)}." if constant else "")
                      + " Check that no other column (age, grade, a code) is among the items.")
@@ -829,9 +893,15 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     if split is not None:
         split = options.seed(split)
         numbers = row_numbers(frame)
-        first, second = draw_halves(len(frame), split)  # the one rule, which a halves file is checked by
+        # the one rule of every split (replicate --data's too), which a halves file is checked by
+        first, second, units, drawn_by = drawn_halves(frame, cluster, strata, tuple(chosen), source, split,
+                                                      "split the file into two samples by hand, explore one and fit "
+                                                      "the draft model on the other")
         explored, confirming = frame.iloc[first], frame.iloc[second]
+        # fitted as a data frame, its rows named as explore read them (a file's rows, not index labels one less)
+        confirming.attrs[ROW_NAMING] = row_naming(frame)
         halves = (tuple(int(v) for v in numbers[first]), tuple(int(v) for v in numbers[second]), confirming)
+        design_split = dict(cluster=cluster, strata=strata, units=units, drawn_by=drawn_by)
         frame = explored
     names = tuple(chosen)
     correlations = _correlations(frame, names, source, ordinal_items, notes)
@@ -863,10 +933,10 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     statements = tuple(answer_lines(spec, drafted))
     split_result = None
     if halves is not None:
-        split_result = _confirm(exploration, halves, split, source, statements)
+        split_result = replace(_confirm(exploration, halves, split, source, statements), **design_split)
     return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
                          sorted_items(exploration), sample_problems + data_problems, statements, coding_record(spec),
-                         few)
+                         few, left_out if by_default else ())
 
 
 def _few_categories(frame: pd.DataFrame, names: tuple[str, ...], ordinal_items: tuple[str, ...],

@@ -19,7 +19,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, row_naming
+from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, caller_labels, row_naming
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
 from cfa_tool.data.summary_stats import NotGiven
@@ -773,7 +773,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     frame, source = loaded.frame, loaded.source
     read_frame = _rows_as_read(loaded)
     read_index = read_frame.index
-    if not read_index.is_unique:
+    if not caller_labels(read_index, loaded.frame_index).is_unique:
         raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index) so "
                           "that every row can be scored in its place")
     ids = row_ids(read_frame, source, id_column, spec.observed_names, group, loaded.row_names)
@@ -794,7 +794,9 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                   f"run 'fit' to see its problems")
     # the data's cautions as fit gives them (rows that gave one answer to every item, reverse-worded ones included,
     # named by their ids: scored like every row)
+    fitted_problems = result.problems
     result = api.with_odd_values(result, loaded, group, spec, design, ids_by_row_number(ids, read_frame))
+    data_cautions = tuple(p for p in result.problems if p not in fitted_problems)
     chosen_by = api.reference_note(result, frame, group, reference_group)  # as fit names the reference group
     if chosen_by:
         result = replace(result, warnings=tuple(result.warnings) + tuple(chosen_by))
@@ -831,6 +833,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     table = _in_file_order(pd.DataFrame(columns, index=read_index), data, loaded.names_row_read)  # a frame's own index: joins
     table = _with_why_not_scored(table, id_name, score_columns(chosen, factors), reasons,
                                  pd.Series(left, index=read_index))
+    table.index = caller_labels(table.index, loaded.frame_index)
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
                                spec, answered, sums) if ordinal_items else _linear_quality(models, spec, sums)
     result = _with_repeated_ids(result, ids, id_column)
@@ -844,7 +847,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         extra[:0] = _id_column_note(read_frame, source, spec, group, design)
     own = _without_own_answers(answered, values, chosen, factors, unanswered)
     if own:
-        result = replace(result, problems=tuple(own) + tuple(result.problems))
+        result = _after_data_cautions(result, data_cautions, own)
     unweighted = len(frame) - len(fitted_rows)  # weight 0: not in the fit, yet scored like every row
     if unweighted:
         which = "The row of weight 0 is" if unweighted == 1 else f"The {unweighted} rows of weight 0 are"
@@ -870,6 +873,19 @@ def _id_column_note(read_frame: pd.DataFrame, source: str, spec, group, design) 
     return [Note((f"No column names the rows in the scores file, whose lines follow the rows of {source} in order; "
                   f"the column '{printable(column)}' holds a different value in every row and could name them",
                   Command(f" ({Option.ID_COLUMN.given(column)})"), "."))]
+
+
+def _after_data_cautions(result, data_cautions, scored) -> FitResult:
+    """``result`` with the cautions on the rows ``scored`` placed as a fit places its own problems
+    (pipeline.inputs.with_odd_values): after the cautions on the data (``data_cautions``, among ``result``'s
+    problems), which may be their cause (a code of --missing-codes that empties answers before the rows left
+    without a factor's answers: re-check s17, finding 08), before the rest; an impossible solution first
+    (assessment.admissibility.solution_first)."""
+    from cfa_tool.assessment.admissibility import solution_first
+
+    first = tuple(p for p in result.problems if p in data_cautions)
+    rest = tuple(p for p in result.problems if p not in data_cautions)
+    return replace(result, problems=solution_first(first + tuple(scored) + rest))
 
 
 def _with_repeated_ids(result, ids, id_column):
@@ -1053,7 +1069,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     read_frame = _rows_as_read(loaded)
     if not len(read_frame):
         raise DataError(f"{source} has no rows to score")
-    if not read_frame.index.is_unique:
+    if not caller_labels(read_frame.index, loaded.frame_index).is_unique:
         raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index)")
     group = result.group_column
     if group is not None and group not in read_frame.columns:
@@ -1113,7 +1129,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
             text, advice = outside
             scored_problems.append(Problem(ProblemKind.ANSWERS_BEYOND_FITTED, (), None, text, advice))
     if scored_problems:
-        result = replace(result, problems=tuple(scored_problems) + tuple(result.problems))
+        result = _after_data_cautions(result, own, scored_problems)
     result = _with_repeated_ids(result, ids, id_column)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names", False) \
         + _partly_answered(base, answered, chosen, errors)
@@ -1137,6 +1153,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     table = _with_why_not_scored(_in_file_order(pd.DataFrame(columns, index=read_frame.index), data,
                                                   loaded.names_row_read), id_name,
                                  score_columns(chosen, factors), reasons, pd.Series(left, index=read_frame.index))
+    table.index = caller_labels(table.index, loaded.frame_index)
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
                        unscored, with_errors, tuple(notes), source, tuple(warnings), summaries, unanswered)
 
@@ -1570,7 +1587,7 @@ def _unknown_groups(group_of_row: np.ndarray, labels, group: str, source: str) -
     from cfa_tool.suggest import close_names
 
     known = set(labels)
-    given = pd.Series([v for v in group_of_row if v is not None and v not in known], dtype=object)
+    given = pd.Series([v for v in group_of_row if not pd.isna(v) and v not in known], dtype=object)  # (group_keys)
     if given.empty:
         return None
     counts = given.value_counts()
@@ -1583,7 +1600,7 @@ def _unknown_groups(group_of_row: np.ndarray, labels, group: str, source: str) -
     fitted = ", ".join(f"'{printable(x)}'" for x in labels)
     text = (f"{int(counts.sum())} rows of {source} are in groups of '{printable(group)}' that the earlier fit does not "
             f"have: {', '.join(shown)}{more}; the fit's groups are {fitted}, and a label must match one as written")
-    if not any(v in known for v in group_of_row if v is not None):
+    if not any(v in known for v in group_of_row if not pd.isna(v)):
         raise OptionError(f"no row of {source} can be scored: {text}")
     return text + "; those rows get no scores"  # (a caution first: ProblemKind.UNKNOWN_GROUPS_SCORED)
 

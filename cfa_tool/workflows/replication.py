@@ -63,7 +63,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.halves import draw_cluster_halves, draw_halves
+from cfa_tool.data.halves import drawn_halves
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.pipeline.inputs import (_described, data_problems, keeps_rows_with_gaps, load_spec, make_options, odd_values_named,
                                       read_inputs_with_notes, refit_missing_handling, refuse_totals_rows,
@@ -779,47 +779,13 @@ def _split_design(cluster: str | None, strata: str | None):
     return DesignColumns(None, cluster, strata) if cluster is not None or strata is not None else None
 
 
-def _drawn(complete: pd.DataFrame, design, spec: Spec, source: str, seed: int
-           ) -> tuple[np.ndarray, np.ndarray, tuple[int, ...], tuple[tuple[int, str, str], ...]]:
-    """The positions of halves A and B among the rows ``complete`` (data.halves: row by row without a ``design``,
-    else by its clusters within its strata), the clusters in each half (() without clusters), and each row's number,
-    cluster and stratum as read ('' for a column not given; () without a design), which a halves file records."""
-    if design is None:
-        return *draw_halves(len(complete), seed), (), ()
-    from cfa_tool.data.sample_design import check_design, row_design
-
-    if design.cluster is not None and design.cluster in complete.columns:
-        from cfa_tool.data.labels import label_text
-
-        named = pd.unique(complete[design.cluster].dropna().map(label_text))
-        if len(named) < 2:
-            raise DataError(f"{source}: column '{printable(design.cluster)}' names a single cluster among the rows split, "
-                            f"and halves drawn cluster by cluster need at least two; remove {Option.CLUSTER} or give "
-                            f"the right column")
-    checked, _ = check_design(complete, design, spec.observed_names, None, source)  # names, labels, nesting
-    codes = row_design(checked, design, np.ones(len(checked), dtype=bool))
-    units = codes.clusters if codes.clusters is not None else np.arange(len(checked))
-    first, second = draw_cluster_halves(units, codes.strata, seed)
-    counts = (len(np.unique(units[first])), len(np.unique(units[second]))) if codes.clusters is not None else ()
-    least = 2 * len(spec.observed_names)
-    if min(len(first), len(second)) < least:
-        by = f"cluster of {design.cluster}" if design.cluster is not None else f"stratum of {design.strata}"
-        raise DataError(f"{source}: halves drawn {by} hold {len(first)} and {len(second)} rows, and each needs at least "
-                        f"{least} for {len(spec.observed_names)} variables (large clusters or strata of few rows); "
-                        f"split the file into two samples by hand and give them as calibration and validation samples")
-    named = [np.asarray(names, dtype=object)[codes_of] if codes_of is not None else np.full(len(checked), "", dtype=object)
-             for codes_of, names in ((codes.clusters, codes.cluster_names), (codes.strata, codes.strata_names))]
-    labels = tuple((int(r), str(c), str(h)) for r, c, h in zip(row_numbers(checked), *named))
-    return first, second, counts, labels
-
-
 def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal_items, method, missing,
                 pairwise: bool = False, design=None, **options
                 ) -> tuple[tuple[Replication, Replication], tuple, tuple[int, ...], tuple]:
     """The halves of the rows fit would analyse: with gaps kept (full-information ML, or ordinal items' pairwise
     rows), every row with an answer; else the complete rows; drawn by the clusters within the strata of ``design``
-    when given (:func:`_drawn`).  Also the row numbers of halves A and B, the clusters in each and each row's
-    cluster and stratum (:func:`_drawn`)."""
+    when given (data.halves.drawn_halves).  Also the row numbers of halves A and B, the clusters in each and each row's
+    cluster and stratum (data.halves.drawn_halves)."""
     handling = MissingData.LISTWISE
     if not ordinal_items:
         handling, _ = refit_missing_handling(frame, spec.observed_names, missing)
@@ -832,7 +798,12 @@ def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal
     if len(complete) < 4 * len(spec.observed_names):
         raise DataError(f"{source}: {len(complete)} {kind} are too few to split into two halves for "
                         f"{len(spec.observed_names)} variables")
-    first, second, units, labels = _drawn(complete, design, spec, source, seed)  # half A takes the odd row, as explore's does
+    # half A takes the odd row, as explore's does: the one rule of every split (data.halves.drawn_halves)
+    first, second, units, drawn = drawn_halves(
+        complete, design.cluster if design is not None else None, design.strata if design is not None else None,
+        spec.observed_names, source, seed, "split the file into two samples by hand and give them as calibration and "
+                                           "validation samples")
+    labels = tuple((row, c, h) for row, (c, h) in drawn.labels.items()) if drawn is not None else ()
     a = complete.iloc[first]
     b = complete.iloc[second]
     rows = (tuple(int(v) for v in row_numbers(a)), tuple(int(v) for v in row_numbers(b)))

@@ -262,7 +262,10 @@ def test_rows_in_groups_the_fit_does_not_have_are_said_first_and_none_scored_is_
     code, text, err = _run(["scores", model_file, "--data", tmp_path / "some.csv", "--from-fit", saved, "--output", out,
                             "--json", js], capsys)
     assert code == 0, err
-    first = json.loads(js.read_text())["problems"][0]  # a caution first in every view
+    # cautions first in every view: the scored file's labels differing in case (the cause), then the rows they leave
+    # in groups the fit does not have (its consequence), as a fit puts its data's cautions before the rest
+    cause, first = json.loads(js.read_text())["problems"][:2]
+    assert cause["kind"] == "group labels differing only in case" and "'pasteur' (10 rows)" in cause["explanation"]
     assert first["kind"] == "rows in groups the fit does not have"
     assert "10 rows of" in first["explanation"] and "'pasteur' (10 rows; the fit has 'Pasteur')" in first["explanation"]
     assert text.index("Check before using these scores") < text.index("Scores of")
