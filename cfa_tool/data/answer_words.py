@@ -181,12 +181,13 @@ def _listed_answers(coding: AnswerCoding) -> tuple:
     return tuple((a.word, a.number, a.code) for a in coding.answers)
 
 
-def coding_described(answers: tuple, scale: bool = True) -> str:
+def coding_described(answers: tuple, span: tuple[float, float] | None = None) -> str:
     """(word, number, code) triples in words: '1 (Strongly disagree) to 5 (Strongly agree)' when the codes are
     distinct whole numbers one apart, else each code with its answers ('0 (No), 1 (Yes, Often)'); numbers listed as
     their own code (a file mixing words and numbers) are said apart: '...; the numbers 0 to 4 kept their values', and
-    the words beside them each with its code ('3 (Don't know), 4 (Agree), 5 (Strongly agree)'), never as a range
-    (``scale`` False), which would read as the scale's ends."""
+    the words beside them as a range only where their codes reach both ends of the numbers' ``span``, else each with
+    its code ('3 (Don't know), 4 (Agree), 5 (Strongly agree)'), since '3 (Don't know) to 5 (Strongly agree)' would
+    read as the scale's ends."""
     kept = sorted(number for word, number, code in answers if word is None and number == code)
     by_code: dict[float, list[str]] = {}
     for word, number, code in answers:
@@ -198,10 +199,10 @@ def coding_described(answers: tuple, scale: bool = True) -> str:
                    f"the numbers {kept[0]:g} to {kept[-1]:g} kept their values"
                    if kept == [kept[0] + k for k in range(len(kept))] else
                    f"the numbers {', '.join(f'{k:g}' for k in kept)} kept their values")
-        return f"{coding_described(tuple(a for a in answers if not (a[0] is None and a[1] == a[2])), False)}; {numbers}" \
+        return f"{coding_described(tuple(a for a in answers if not (a[0] is None and a[1] == a[2])), (kept[0], kept[-1]))}; {numbers}" \
             if by_code else numbers
     codes = sorted(by_code)
-    run = scale and len(codes) > 2 and all(len(by_code[c]) == 1 for c in codes) and codes == [codes[0] + k for k in range(len(codes))]
+    run = (span is None or codes[0] <= span[0] and codes[-1] >= span[1]) and len(codes) > 2 and all(len(by_code[c]) == 1 for c in codes) and codes == [codes[0] + k for k in range(len(codes))]
     if run:
         return f"{codes[0]:g} ({by_code[codes[0]][0]}) to {codes[-1]:g} ({by_code[codes[-1]][0]})"
     return ", ".join(f"{c:g} ({', '.join(by_code[c])})" for c in codes)
