@@ -350,7 +350,12 @@ class Problem:
         facts = {} if self.rows_per_parameter is None else {"rows_per_parameter": self.rows_per_parameter.to_dict()}
         return {"kind": self.kind.value, "inadmissible": self.kind.inadmissible, "parameters": list(self.parameters),
                 "parameters_in_words": list(self.parameter_words()), "value": value, "group": self.group,
-                "explanation": str(self.explanation), "advice": str(self.advice)} | facts
+                "explanation": str(self.explanation), "advice": str(self.advice)} | facts | {
+                    # the words with their commands apart, so that a view of a saved fit (scores from it) writes them
+                    # as a fresh fit's views do: a manuscript without options and statements of the model file
+                    f"{name}_parts": text.to_dict()["parts"] for name, text in (("explanation", self.explanation),
+                                                                               ("advice", self.advice))
+                    if isinstance(text, Note)}
 
     def parameter_words(self) -> tuple[str, ...]:
         """The parameters in plain words ('the loading of helpful on courtesy in group north')."""
@@ -897,13 +902,24 @@ def saved_fit_problems(payload: dict, rows: tuple[SavedRow, ...], source: str) -
 def listed_problems(listed: list, source: str) -> tuple[Problem, ...]:
     """The problems a saved result lists (the 'problems' of a fit in its JSON) as :class:`Problem` values."""
     try:
-        return tuple(Problem(ProblemKind(q["kind"]), tuple(q["parameters"]), q["value"], q["explanation"],
-                             q["advice"], q["group"], RowsPerParameter(**q["rows_per_parameter"])
+        return tuple(Problem(ProblemKind(q["kind"]), tuple(q["parameters"]), q["value"], _parted(q, "explanation"),
+                             _parted(q, "advice"), q["group"], RowsPerParameter(**q["rows_per_parameter"])
                              if q.get("rows_per_parameter") is not None else None) for q in listed)
     except (ValueError, KeyError, TypeError):
         from cfa_tool.model.saved_estimates import AGAIN
 
         raise OptionError(f"{source}: its list of problems is incomplete or changed by hand; {AGAIN}") from None
+
+
+def _parted(saved: dict, name: str):
+    """A saved problem's explanation or advice: the Note its parts make (``name``_parts, written since the views of a
+    saved fit say its commands each their own way), else the text as saved; a ValueError when neither is there."""
+    parts = saved.get(f"{name}_parts")
+    if isinstance(parts, list):
+        note = Note.from_dict({"parts": parts})
+        if str(note) == saved[name]:  # the parts of these words, not of words changed by hand
+            return note
+    return saved[name]
 
 
 def refuse_inadmissible_saved_fit(payload: dict, problems: tuple[Problem, ...], source: str, purpose: str) -> None:

@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 import contextlib
 import sys
+from dataclasses import replace
 from pathlib import Path
 
 from cfa_tool.errors import OptionError, printable
@@ -179,7 +180,7 @@ def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
     itself, such as simulated rows) and write them, then show the report (:func:`show`)."""
     from cfa_tool.reporting.reports import report_of
 
-    report = report_of(result)
+    report = replace(report_of(result), files=named_files(args, inputs))
     files = list(first)
     if getattr(args, "json", None):
         from cfa_tool.reporting.json_report import to_json
@@ -189,6 +190,14 @@ def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
     tables = table_files(args, report, inputs)
     show(args, report, write_reports(args, files) + write_tables(args, tables, inputs))
     return 0
+
+
+def named_files(args: argparse.Namespace, inputs: list[str | None]) -> tuple[str, ...]:
+    """The paths of the user's files a report may name, as given and as the tool writes them (``inputs``, the
+    command's outputs): the views written for others name them by file name (reporting.document.by_file_name)."""
+    given = [*inputs, *(getattr(args, attribute, None) for _, attribute in REPORT_FILES),
+             getattr(args, "halves_file", None), getattr(args, "tables", None)]
+    return tuple(dict.fromkeys(p for g in given if isinstance(g, str) and g and g != "-" for p in (g, str(Path(g)))))
 
 
 def progress(label: str):

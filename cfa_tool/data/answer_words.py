@@ -19,6 +19,7 @@ from cfa_tool.data.missing_codes import missing_codes_note
 from cfa_tool.data.non_answers import run_words, says_no_answer
 from cfa_tool.errors import DataError, Location, ModelError, OptionError, character_names, clipped, printable
 from cfa_tool.options import Option
+from cfa_tool.note_parts import Command, Note
 from cfa_tool.language.spec import AnswerCoding, AnswerWord, Name, Spec, answer_key
 from cfa_tool.numbers import number as strict_number
 
@@ -70,7 +71,7 @@ def answers_statement(answers, items: tuple[str, ...] | None = None) -> str:
 
 def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
                       only: tuple[str, ...] | None = None,
-                      missing_codes: tuple[float, ...] = ()) -> tuple[pd.DataFrame, list[str]]:
+                      missing_codes: tuple[float, ...] = ()) -> tuple[pd.DataFrame, list[Note]]:
     """``frame`` with the items its 'answers' statements cover (of them, those in ``only`` when given) coded as
     numbers (a copy; the caller's frame is not changed), and one note per statement saying how the answers were
     coded and, if so, which words share a code.  ``missing_codes`` (--missing-codes) mean no answer in these items
@@ -124,7 +125,7 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
     notes = answer_notes(spec, tuple(codings))
     if read_as_none:
         notes.append(missing_codes_note(source, missing_codes, read_as_none,
-                                        "of the items coded by an 'answers' statement"))
+                                        "of the items whose answer words the model codes"))
     return frame, notes
 
 
@@ -179,10 +180,13 @@ def _listed_answers(coding: AnswerCoding) -> tuple:
     return tuple((a.word, a.number, a.code) for a in coding.answers)
 
 
-def coding_described(answers: tuple) -> str:
+def coding_described(answers: tuple, span: tuple[float, float] | None = None) -> str:
     """(word, number, code) triples in words: '1 (Strongly disagree) to 5 (Strongly agree)' when the codes are
     distinct whole numbers one apart, else each code with its answers ('0 (No), 1 (Yes, Often)'); numbers listed as
-    their own code (a file mixing words and numbers) are said apart: '...; the numbers 0 to 4 kept their values'."""
+    their own code (a file mixing words and numbers) are said apart: '...; the numbers 0 to 4 kept their values', and
+    the words beside them as a range only where their codes reach both ends of the numbers' ``span``, else each with
+    its code ('3 (Don't know), 4 (Agree), 5 (Strongly agree)'), since '3 (Don't know) to 5 (Strongly agree)' would
+    read as the scale's ends."""
     kept = sorted(number for word, number, code in answers if word is None and number == code)
     by_code: dict[float, list[str]] = {}
     for word, number, code in answers:
@@ -194,45 +198,64 @@ def coding_described(answers: tuple) -> str:
                    f"the numbers {kept[0]:g} to {kept[-1]:g} kept their values"
                    if kept == [kept[0] + k for k in range(len(kept))] else
                    f"the numbers {', '.join(f'{k:g}' for k in kept)} kept their values")
-        return f"{coding_described(tuple(a for a in answers if not (a[0] is None and a[1] == a[2])))}; {numbers}" \
+        return f"{coding_described(tuple(a for a in answers if not (a[0] is None and a[1] == a[2])), (kept[0], kept[-1]))}; {numbers}" \
             if by_code else numbers
     codes = sorted(by_code)
-    run = len(codes) > 2 and all(len(by_code[c]) == 1 for c in codes) and codes == [codes[0] + k for k in range(len(codes))]
+    run = (span is None or codes[0] <= span[0] and codes[-1] >= span[1]) and len(codes) > 2 and all(len(by_code[c]) == 1 for c in codes) and codes == [codes[0] + k for k in range(len(codes))]
     if run:
         return f"{codes[0]:g} ({by_code[codes[0]][0]}) to {codes[-1]:g} ({by_code[codes[-1]][0]})"
     return ", ".join(f"{c:g} ({', '.join(by_code[c])})" for c in codes)
 
 
-def answer_notes(spec: Spec, coded: tuple[str, ...] | None = None) -> list[str]:
-    """How the answers recorded as words were coded, one note per 'answers' statement in use (and the words that
-    share a code, which are analysed as one answer); ``coded``: the items coded, when not all the statements cover."""
+def _origin(coding: AnswerCoding, text: str, words: str = "") -> Command:
+    """Where ``coding`` was stated, inside ``text`` ('{}' marks it), for the reader who edits the model file (the
+    statement and its line, or the earlier fit's file); ``words``: what a manuscript says instead (nothing: a coding
+    of the analysis needs no source there).  A manuscript names no statement of the model language and no line of a
+    file its reader never sees (re-check s17, 03)."""
+    return Command(text.format(coding.origin), words)
+
+
+def answer_notes(spec: Spec, coded: tuple[str, ...] | None = None) -> list[Note]:
+    """How the answers recorded as words were coded: one note per 'answers' statement in use, which also names the
+    answers that share a code and so are analysed as one (words, or numbers the statement recodes; a number listed as
+    its own code is not among them: the note says those numbers kept their values, so a word coded 6 beside the
+    number 6 is said once, re-check s17, 04), and a note for each word that usually means no answer which the
+    statement codes as an answer; ``coded``: the items coded, when not all the statements cover."""
     codings = spec.answer_codings()
     if coded is not None:
         codings = {x: c for x, c in codings.items() if x in coded}
-    notes = []
+    notes: list[Note] = []
     for coding in spec.answers:
         items = [x for x, c in codings.items() if c is coding]
         if not items:
             continue
         which = "every item" if len(items) == len(spec.observed_names) else \
             f"{len(items)} item{'s' if len(items) > 1 else ''} ({', '.join(printable(x) for x in items)})"
-        notes.append(f"answers recorded as words were coded {coding_described(_listed_answers(coding))} in {which}, as {coding.origin} says")
         by_code: dict[float, list[str]] = {}
         for answer in coding.answers:
-            by_code.setdefault(answer.code, []).append(answer.shown)
+            if not (answer.word is None and answer.number == answer.code):  # a number kept as itself: said apart
+                by_code.setdefault(answer.code, []).append(answer.shown)
         shared = [f"{' and '.join(repr(printable(w)) for w in words)} share the code {code:g}"
                   for code, words in by_code.items() if len(words) > 1]
-        if shared:
-            notes.append(f"the answers {'; '.join(shared)} ({coding.origin}), so each "
-                         f"{'set' if any(len(w) > 2 for w in by_code.values()) else 'pair'} is analysed as one answer"
-                         if len(shared) > 1 else
-                         f"the answers {shared[0]} ({coding.origin}), so they are analysed as one answer")
+        one = ("" if not shared else
+               f"; {shared[0]}, so they are analysed as one answer" if len(shared) == 1 else
+               f"; {'; '.join(shared)}, so each {'set' if any(len(w) > 2 for w in by_code.values()) else 'pair'} "
+               f"is analysed as one answer")
+        notes.append(Note((f"answers recorded as words in {which} were coded {coding_described(_listed_answers(coding))}"
+                           f"{one}", _origin(coding, " ({})", _carried_words(coding)))))
         for answer in coding.answers:  # the statement decides: such a word is an answer, and the report says so
             if answer.word is not None and says_no_answer(answer.word):
-                notes.append(f"'{printable(answer.word)}', a word that usually means no answer, is analysed as the "
-                             f"answer {answer.code:g} because {coding.origin} codes it so (leave it out of the "
-                             f"statement to read it as no answer)")
+                notes.append(Note((f"'{printable(answer.word)}', a word that usually means no answer, is analysed as "
+                                   f"the answer {answer.code:g}", _origin(
+                                       coding, " because {} codes it so (leave it out of the statement to read it as "
+                                               "no answer)" if coding.carried_from is None else
+                                       " because {} codes it so", _carried_words(coding)))))
     return notes
+
+
+def _carried_words(coding: AnswerCoding) -> str:
+    """A manuscript's words for a coding carried from an earlier fit (scores of other data): that fit, by no path."""
+    return " (as in the earlier fit)" if coding.carried_from is not None else ""
 
 
 def coding_record(spec: Spec) -> tuple:

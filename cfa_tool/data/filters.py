@@ -333,8 +333,8 @@ def _case_hint(alike: tuple[tuple[str, int], ...]) -> str:
     """How a row filter matches text, said when no row has the text: exactly, upper and lower case included (unlike
     the words of an 'answers' statement, which ignore case), with the labels present that differ only in case
     (``alike``: data.labels.other_case)."""
-    return ("; a row filter matches text exactly, upper and lower case included (unlike the words of an 'answers' "
-            "statement)" + (f": write {' or '.join(repr(printable(a)) for a, _ in alike)} as the data have it"
+    return ("; a row filter matches text exactly, upper and lower case included (unlike the answer words a model "
+            "file codes)" + (f": write {' or '.join(repr(printable(a)) for a, _ in alike)} as the data have it"
                             if alike else ""))
 
 

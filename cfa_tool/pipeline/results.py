@@ -138,6 +138,11 @@ class CheckResult(Presentable):
         return True  # nothing was fitted: its problems are cautions about the data
 
     def summary(self) -> str:
+        return "\n".join(str(line) for line in self.summary_lines())
+
+    def summary_lines(self) -> list:
+        """The lines of :meth:`summary`, each note as it was made (a note_parts.Note keeps its commands apart, which
+        each view writes its own way: the Word file names no option and no statement of the model file)."""
         spec = self.spec
         # the design's cautions (too few clusters, uneven weights) are among ``problems``, first as in the fit's views
         df = self.degrees_of_freedom
@@ -155,8 +160,8 @@ class CheckResult(Presentable):
         if self.analysed is not None:
             lines.append(f"Data: summary statistics, {self.analysed.value}, with N = {self.rows} as given in the file; "
                          f"it holds no rows of answers, so there are no row counts or coverage.")
-            lines.extend(f"Note: {note}." for note in self.notes)
-            return "\n".join(lines)
+            lines.extend("Note: " + note + "." for note in self.notes)
+            return lines
         kept = self.rows + self.without_group + self.zero_weight
         read = f"{kept} read" if self.rows_in_file is None else f"{self.rows_in_file} read, {kept} kept by the row filter"
         if self.zero_weight:
@@ -188,8 +193,8 @@ class CheckResult(Presentable):
             lines.append(self.design.status()[0].upper() + self.design.status()[1:] + "; "
                          + ("sandwich standard errors and a scaled test in the fit" if self.design.columns.robust else
                             "each row counted as often as its weight in the fit") + ".")
-        lines.extend(f"Note: {note}." for note in self.notes)
-        return "\n".join(lines)
+        lines.extend("Note: " + note + "." for note in self.notes)
+        return lines
 
     def to_dict(self) -> dict:
         if self.analysed is not None:  # summary statistics: N, and no rows to count

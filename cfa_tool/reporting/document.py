@@ -11,7 +11,7 @@ from dataclasses import dataclass, field, replace
 from functools import cached_property
 from typing import Callable
 
-from cfa_tool.note_parts import Note, Text, read, saved
+from cfa_tool.note_parts import Command, Note, Text, read, saved
 from cfa_tool.reporting.tables import ProblemNotice, ReportTable
 
 
@@ -121,6 +121,9 @@ class Report:
     # cautions about the data and the estimation (rows left out, codes read as missing): right under the lines
     warnings: tuple[Text, ...] = ()
     listings: tuple[Listing, ...] = ()
+    # the paths of the user's files as the report's words give them (the command line's models, data and outputs):
+    # the views written for others to read name each by its file name (:func:`by_file_name`)
+    files: tuple[str, ...] = ()
 
     def __post_init__(self) -> None:
         # the notices' lines as sentences, in every view and in a saved report (those saved before too)
@@ -139,7 +142,8 @@ class Report:
                 "paragraph": self.paragraph, "figures": [{"title": f.title, "svg": f.svg, "note": f.note}
                                                          for f in self.figures],
                 "problem_table": None if self.problem_table is None else self.problem_table.to_dict(),
-                "warnings": [saved(x) for x in self.warnings], "listings": [{"title": x.title, "text": x.text} for x in self.listings]}
+                "warnings": [saved(x) for x in self.warnings], "listings": [{"title": x.title, "text": x.text} for x in self.listings],
+                "files": list(self.files)}
 
     @classmethod
     def from_dict(cls, d: dict) -> "Report":
@@ -152,4 +156,68 @@ class Report:
                    tuple(Figure(str(f["title"]), drawn(str(f["svg"]), str(f.get("note", "")))) for f in d.get("figures", ())),
                    None if d.get("problem_table") is None else ReportTable.from_dict(d["problem_table"]),
                    tuple(map(read, d.get("warnings", ()))),
-                   tuple(Listing(str(x["title"]), str(x["text"])) for x in d.get("listings", ())))
+                   tuple(Listing(str(x["title"]), str(x["text"])) for x in d.get("listings", ())),
+                   tuple(map(str, d.get("files", ()))))
+
+
+def file_names(files) -> dict[str, str]:
+    """Each path of ``files`` that names folders -> the name a report for others gives it: the file's own name, or,
+    where files that differ share that name, its last folders too, as many as tell them apart ('wave1/x.csv' and
+    'wave2/x.csv').  Paths that normalise alike ('./x.csv', 'x.csv') are one file."""
+    import posixpath
+
+    def steps(path: str) -> list[str]:
+        return [p for p in posixpath.normpath(path.replace("\\", "/")).split("/") if p not in ("", ".")]
+
+    given = {p: steps(p) for p in dict.fromkeys(files) if p}
+    kept = {"/".join(s) for s in given.values()}
+    out: dict[str, str] = {}
+    for path, parts in given.items():
+        k = 1
+        while k < len(parts) and any("/".join(o) != "/".join(parts) and o[-k:] == parts[-k:]
+                                     for o in (q.split("/") for q in kept)):
+            k += 1
+        name = "/".join(parts[-k:]) if parts else path
+        if name != path:
+            out[path] = name
+    return out
+
+
+def by_file_name(report: Report) -> Report:
+    """``report`` as the views written for others to read give it (HTML, Markdown, Word: a manuscript, a shared
+    page): the user's files (:attr:`Report.files`) named by their file names, not by paths that carry the user's
+    folders (re-check s17, 07: 'Model file: /home/<user>/.../x.cfa' in a manuscript).  The terminal report and the
+    JSON result keep the paths as given."""
+    names = file_names(report.files)
+    if not names:
+        return report
+    found = re.compile("|".join(rf"(?<![\w/\\.~-]){re.escape(p)}(?![\w/\\-])"
+                                for p in sorted(names, key=len, reverse=True)))
+
+    def plain(text: str) -> str:
+        return found.sub(lambda m: names[m.group(0)], text)
+
+    def named(text):
+        if text is None or isinstance(text, str):
+            return None if text is None else plain(text)
+        return Note(tuple(plain(p) if isinstance(p, str) else
+                          Command(plain(p.text), plain(p.words)) if isinstance(p, Command) else p
+                          for p in text.parts))
+
+    def table(t: ReportTable | None) -> ReportTable | None:
+        return None if t is None else replace(t, title=plain(t.title), rows=tuple(tuple(map(plain, r)) for r in t.rows),
+                                              note=named(t.note))
+
+    def figure(f: Figure) -> Figure:
+        return Figure(plain(f.title), lambda: (f.svg, plain(f.note)))
+
+    notice = report.notice
+    return replace(report, title=plain(report.title),
+                   notice=None if notice is None else replace(notice, heading=plain(notice.heading),
+                                                              lines=tuple(map(named, notice.lines))),
+                   lines=tuple(map(named, report.lines)), tables=tuple(map(table, report.tables)),
+                   notes=tuple(map(named, report.notes)), cautions=tuple(map(named, report.cautions)),
+                   paragraph=None if report.paragraph is None else plain(report.paragraph),
+                   figures=tuple(map(figure, report.figures)), problem_table=table(report.problem_table),
+                   warnings=tuple(map(named, report.warnings)),
+                   listings=tuple(Listing(plain(x.title), plain(x.text)) for x in report.listings), files=())

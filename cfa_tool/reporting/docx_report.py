@@ -26,7 +26,7 @@ from cfa_tool.reporting.column_parts import column_parts, label_columns
 from cfa_tool.reporting.diagram import MIN_FIGURE_TEXT  # the smallest lettering of a figure in print
 from cfa_tool.reporting.picture import (DEFAULT_DPI, page_fit, png_converter, smallest_text, svg_size, svg_strips,
                                        svg_to_png)
-from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS
+from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS, by_file_name
 from cfa_tool.reporting.numbers import printed
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.tables import ReportTable
@@ -449,7 +449,9 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
     """Any command's report (cfa_tool.reporting.document.Report) as a .docx file's bytes: the problems first,
     what was done, the methods paragraph, the numbered tables with their notes, the figures, the notes and the
     cautions.  A note's advice is said without the command that takes it (a manuscript's reader runs nothing),
-    and a table it refers to is named by its number (cfa_tool.note_parts)."""
+    and a table it refers to is named by its number (cfa_tool.note_parts); the user's files by their names, not their
+    folders (document.by_file_name)."""
+    report = by_file_name(report)
     view = numbered(report.tables)
     document = _document(report.title, report.notice, view)
     for line in report.lines:

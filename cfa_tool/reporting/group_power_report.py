@@ -113,8 +113,9 @@ def invariance_power_report(result) -> Report:
                       num(d.reference_value)] for d in result.population.differences]
         tables.append(_table("group_differences", "Population values that differ between the groups",
                              [("Parameter", "l"), ("Group", "l"), ("Value", "r"), (f"In {labels[0]}", "r")], diff_rows,
-                             "Values given by 'in group' statements, in the model's own units; every other value is "
-                             "the same in every group (the population table below).",
+                             Note(("Values the model file gives one group", Command(" ('in group' statements)"),
+                                   ", in the model's own units; every other value is the same in every group (the "
+                                   "population table below).")),
                              values=(["Parameter", "Group", "Value", f"Value in {labels[0]}"],
                                      [[parameter_words(d.kind, d.variables, observed=observed, article=False), d.group,
                                        d.value, d.reference_value] for d in result.population.differences])))

@@ -7,7 +7,7 @@ from cfa_tool.version import __version__
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.diagram import MIN_FIGURE_TEXT
 from cfa_tool.reporting.picture import smallest_text, svg_size
-from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS
+from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS, by_file_name
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.reporting.numbers import printed
 from cfa_tool.note_parts import RUNNING, View, said, titled
@@ -150,7 +150,9 @@ def report_html_fragment(report, heading: bool = False) -> str:
 
 
 def report_html(report) -> str:
-    """Any command's report as one self-contained HTML file."""
+    """Any command's report as one self-contained HTML file, a page people pass on: the user's files named by their
+    names, not their folders (document.by_file_name)."""
+    report = by_file_name(report)
     body = f'{report_html_fragment(report, heading=True)}\n<p class="note">Made by cfa-tool {esc(__version__)}.</p>'
     return (f'<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8">'
             f'<meta name="viewport" content="width=device-width, initial-scale=1">'

@@ -763,7 +763,11 @@ def missing_table(result) -> ReportTable | None:
     if weights:
         note += f". Rows are counted by their frequency weights ('{weights}'), as N is"
     note = note + "." + _completely_at_random_note(result)
-    return _table("missing", "Missing answers",
+    # the patterns shown are the most common ones: said in the title, where a table of 8 rows out of 191 patterns
+    # would otherwise read as every pattern (the Word file of a new user's workbook, re-check s17)
+    more = summary["n_patterns"] > len(rows)
+    return _table("missing", f"Missing answers: the {len(rows)} most common of {summary['n_patterns']} patterns"
+                  if more else "Missing answers",
                   [("Items not answered", "l"), ("Rows, weighted" if weights else "Rows", "r")], rows, note)
 
 

@@ -13,7 +13,7 @@ from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.output_files import TABLE_CONTENTS
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import latex_text, markdown_text
-from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS
+from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS, by_file_name
 from cfa_tool.reporting.tables import ReportTable
 
 
@@ -101,7 +101,8 @@ def notice_table(notice: T.ProblemNotice) -> ReportTable:
 def report_markdown(report) -> str:
     """Any command's report (cfa_tool.reporting.document.Report) as Markdown: the problems first.  A note's advice
     names its command (the reader runs the program), and a table it refers to is named by its title
-    (cfa_tool.note_parts)."""
+    (cfa_tool.note_parts); the user's files by their names, not their folders (document.by_file_name)."""
+    report = by_file_name(report)
     view = titled(report.tables)
     parts = []
     if report.notice is not None:
@@ -135,7 +136,9 @@ def report_markdown(report) -> str:
 
 
 def report_table_files(report) -> dict[str, str]:
-    """Every table of a report as CSV and LaTeX, file name -> text; the problems first."""
+    """Every table of a report as CSV and LaTeX, file name -> text; the problems first.  The tables go into
+    manuscripts and to colleagues: the user's files by their names, not their folders (document.by_file_name)."""
+    report = by_file_name(report)
     problems = report.problem_table or (notice_table(report.notice) if report.notice is not None else None)
     tables = ([problems] if problems is not None else []) + list(report.tables)
     files = {}

@@ -1355,7 +1355,7 @@ def population_report(simulated) -> Report:
                   (table,))
 
 
-def _worded_lines(simulated) -> list[str]:
+def _worded_lines(simulated) -> list[Text]:
     """Which simulated items were written as the words of the model's 'answers' statements, and how."""
     from cfa_tool.data.answer_words import coding_described
     from cfa_tool.errors import printable
@@ -1374,12 +1374,14 @@ def _worded_lines(simulated) -> list[str]:
         written = written_answers(coding)
         how = ("cut into equally likely categories" if simulated.population.equal_categories else
                "cut at the fitted thresholds where the earlier fit has them, else into equally likely categories")
+        origin = Command(f" of {coding.origin}", " of the model's coding")  # a manuscript names no statement or line
         if all(word is not None for word, _, _ in written):
-            said = f"written as the words of {coding.origin}, {coding_described(written)}"
+            said = Note(("written as the words", origin, f", {coding_described(written)}"))
         else:  # numbers listed beside the words: each code written as the answer listed first with it
-            said = (f"written in the {len(written)} answer categories of {coding.origin}, each as the answer it lists "
-                    f"first with that code ({', '.join(printable(w) if w is not None else f'{n:g}' for w, n, _ in written)})")
-        lines.append(f"{which} {said} (the latent responses {how}), so the file reads back with the same model file.")
+            said = Note((f"written in the {len(written)} answer categories", origin, ", each as the answer it lists "
+                         f"first with that code ({', '.join(printable(w) if w is not None else f'{n:g}' for w, n, _ in written)})"))
+        lines.append(f"{which} " + said + f" (the latent responses {how}), so the file reads back with the same model "
+                                          f"file.")
     return lines
 
 
@@ -1407,8 +1409,9 @@ def population_parts(population) -> tuple[Text, ReportTable]:
                 "item's variance from 1 (the Standardized column gives each value as it is in the population drawn "
                 "from).")
     else:
-        line = ("Defaults are set on the standardized metric (loadings .7, factor correlations .3, item variances "
-                "1) and converted to the model's scaling; values from 'start' statements replace them.")
+        line = Note(("Defaults are set on the standardized metric (loadings .7, factor correlations .3, item "
+                     "variances 1) and converted to the model's scaling; values the model file gives",
+                     Command(" ('start' statements)"), " replace them."))
     def source(v: dict) -> str:  # a parameter held equal names the one whose value it shares
         equal = v.get("equal_to")
         return v["from"] if equal is None else \
@@ -1417,15 +1420,18 @@ def population_parts(population) -> tuple[Text, ReportTable]:
     rows = [[parameter_words(v["kind"], tuple(v["variables"]), article=False), num(v["value"]), num(v["standardized"]),
              source(v)] for v in entries]
     values = [[v["kind"], names_text(v["variables"]), v["value"], v["standardized"], source(v)] for v in entries]
-    words = ("From: earlier fit = its estimate" if population.fitted_from is not None else
-             "From: default = the standardized default in the model's scaling; start = a 'start' statement")
+    # what each source means; the model file's statements apart (note_parts.Command), which a manuscript leaves out
+    words: Text = ("From: earlier fit = its estimate" if population.fitted_from is not None else
+                   Note(("From: default = the standardized default in the model's scaling; start = a population value "
+                         "the model file gives", Command(" (a 'start' statement)"))))
     if population.fitted_from is not None and population.equal_categories:
         words += "; default = the thresholds of equally likely categories"
     if any(v["from"] in (ValueSource.FIXED.value, ValueSource.SCALE.value) for v in entries):
-        words += "; fix = a 'fix' statement; scale (fixed) = fixed to give a factor its scale"
+        words += Note(("; fix = a value the model file fixes", Command(" (a 'fix' statement)"),
+                       "; scale (fixed) = fixed to give a factor its scale"))
     if any(v["from"] == ValueSource.EQUAL.value for v in entries):
-        words += "; equal to = held by an 'equal' statement at the value of the parameter named (its row says where "\
-                 "that value came from)"
+        words += Note(("; equal to = held equal by the model file", Command(" (an 'equal' statement)"),
+                       " to the parameter named (its row says where that value came from)"))
     words += "."
     table = _table("population", "Population values used", [("Parameter", "l"), ("Value", "r"), ("Standardized", "r"),
                                                              ("From", "l")], rows, words,
@@ -1438,7 +1444,7 @@ def population_parts(population) -> tuple[Text, ReportTable]:
 def check_report(found) -> Report:
     from cfa_tool.pipeline.results import _percent_below_all
 
-    lines = found.summary().splitlines()
+    lines = [line for text in found.summary_lines() for line in (text.splitlines() if isinstance(text, str) else [text])]
     rows = [[name, "100%" if share >= 1 else _percent_below_all(share)] for name, share in found.coverage.items()]
     counted = (Note(("A value that looks like no answer (named above) counts as an answer here, as the fit would "
                      "count it; marked as missing (", Command(f"{Option.MISSING_CODES}", "a code of no answer"),

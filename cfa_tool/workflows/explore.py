@@ -508,8 +508,9 @@ def _answers_file_hint(frame: pd.DataFrame, text: list) -> Note:
 
     statement = next((s for s in (suggested_statement(frame[c].to_numpy(dtype=object)) for c in text) if s), None)
     return Note(("answers recorded as words (yes/no, agree) are explored with an answers file",
-                 Command(f" ({Option.ANSWERS.given('FILE')})"), " whose 'answers' statement gives each word its code"
-                 + (f", such as the line: {statement}" if statement else "")))
+                 Command(f" ({Option.ANSWERS.given('FILE')}) whose 'answers' statement gives each word its code"
+                         + (f", such as the line: {statement}" if statement else ""),
+                         " that gives each word its code")))  # a manuscript: no option, no model-file statement
 
 
 def _first_unlisted(column: pd.Series, coding) -> tuple[object, int | None]:

@@ -1262,8 +1262,37 @@ def read_saved_fit(path) -> SavedFit:
         saved_fit_payload(None, source)  # the one error of a file that is not a saved fit
         raise
     return SavedFit(str(model.get("name")), str(model.get("source")), str(payload.get("estimator")), int(payload["n_obs"]),
-                    summary, tuple(summary.variables), problems, tuple(payload.get("warnings", ())),
+                    summary, tuple(summary.variables), problems, _saved_warnings(payload),
                     payload.get("group_column"), rows, payload, source)
+
+
+def _saved_warnings(payload: dict) -> tuple:
+    """A saved fit's warnings: its "warnings" list holds each as the program's user reads it (a statement of the
+    model file, an option in it), and its report holds the same lines with those parts apart (note_parts.Note), which
+    the scores' Word file leaves out; each line is the report's Note where the report has it (alike but for the
+    capital its report gives a line's first word), else the text as saved."""
+    from cfa_tool.note_parts import read
+
+    def key(text: str) -> str:
+        return text[:1].lower() + text[1:]
+
+    report = payload.get("report")
+    notes = {}
+    for line in (report.get("warnings", ()) if isinstance(report, dict) else ()):
+        if isinstance(line, dict):
+            try:
+                note = read(line)
+            except (ValueError, KeyError, TypeError):
+                continue
+            notes[key(str(note))] = note
+
+    def kept(text):  # the report's Note, its first letter as the warning has it
+        note = notes.get(key(text)) if isinstance(text, str) and text else None
+        if note is None or not isinstance(note.parts[0], str):
+            return text
+        return Note((text[:1] + note.parts[0][1:],) + note.parts[1:])
+
+    return tuple(map(kept, payload.get("warnings", ())))
 
 
 def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:

@@ -68,7 +68,7 @@ def test_answers_recorded_as_words_are_explored_with_an_answers_file(words_file,
     assert result["items"] == ITEMS  # the words' columns, without the id and the district
     said = " ".join(result["notes"])
     assert "respondent" in said and "district ('north' in row 2)" in said  # left out, and why
-    assert "answers recorded as words were coded 1 (Strongly disagree) to 5 (Strongly agree) in every item" in said
+    assert "answers recorded as words in every item were coded 1 (Strongly disagree) to 5 (Strongly agree)" in said
     assert result["data"]["answer_coding"][0]["answers"][0] == {"word": "Strongly disagree", "code": 1.0}
     explored = cfa_tool.explore(str(path), answers=str(answers))
     reference = coded[ITEMS].astype(float).corr().to_numpy()  # pandas' Pearson correlations of the codes

@@ -121,6 +121,8 @@ def test_the_methods_paragraph_html_and_word_name_the_renamed_columns(files, cap
     assert code == 0, err
     sentence = f"In {files['renamed']}, the column named x3r was analysed as x3."
     assert sentence.replace(" ", "") in "".join(out.split())  # (a long path may be wrapped anywhere)
+    # the files for others name the data file by its name, not its folders (re-check s17, 07)
+    sentence = "In renamed.csv, the column named x3r was analysed as x3."
     assert sentence in md.read_text().replace("\\_", "_")
     import html as markup
 

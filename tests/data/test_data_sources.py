@@ -380,11 +380,11 @@ def test_row_filter_of_a_value_no_row_has_lists_the_values_nearest_first(hs_data
     # a hostile trial: filters match text with its case while 'answers' words do not; the error says so (the rule
     # itself is unchanged: 'pasteur' still keeps no row), and names the label as the data write it
     with pytest.raises(DataError, match=r"\(values present: Pasteur, Grant-White\); a row filter matches text exactly, "
-                                        r"upper and lower case included \(unlike the words of an 'answers' statement\): "
+                                        r"upper and lower case included \(unlike the answer words a model file codes\): "
                                         r"write 'Pasteur' as the data have it"):
         cfa_tool.fit(THREE_FACTORS, hs_data, keep=["school = pasteur"])
     with pytest.raises(DataError, match=r"Pasteur\); a row filter matches text exactly, upper and lower case "
-                                        r"included \(unlike the words of an 'answers' statement\)$"):
+                                        r"included \(unlike the answer words a model file codes\)$"):
         cfa_tool.fit(THREE_FACTORS, hs_data, keep=["school = Central"])
 
 

@@ -41,7 +41,7 @@ def test_words_are_merged_by_a_statement_of_the_model_and_the_fit_equals_the_rec
     assert statement in message
     assert "copy of the data file" not in message and "--missing-codes" not in message and "missing_codes" not in message
     merged = cfa_tool.fit(MODEL + SCALE + statement + "\n", str(path), group="site")
-    assert any(re.search(r"'Never' and 'Rarely' share the code 2", w) for w in merged.warnings)
+    assert any(re.search(r"'Never' and 'Rarely' share the code 2", str(w)) for w in merged.warnings)
     # the reference: the codes recoded by pandas, 1 as 2 in q2 (every group)
     recoded = codes.copy()
     recoded.loc[recoded.q2 == 1, "q2"] = 2

@@ -449,7 +449,10 @@ def test_a_tables_folder_lists_its_tables_and_names_an_earlier_runs_left_behind(
     said = " ".join(second.stdout.split())
     assert "also holds" in said and "factor_2.csv, factor_2.tex, factor_3.csv, factor_3.tex" in said
     contents = (folder / "contents.txt").read_text()
-    assert "factor_3" not in contents and contents.splitlines()[0] == first_title_of(second.stdout)
+    # the report's title, a model without a name titled by its file: the terminal's path, the tables' file name (the
+    # tables go to manuscripts and colleagues, re-check s17, 07)
+    assert "factor_3" not in contents and contents.splitlines()[0] == one.name
+    assert first_title_of(second.stdout) == str(one)
     assert (folder / "factor_3.csv").exists()  # left in place: this run did not write it
 
 

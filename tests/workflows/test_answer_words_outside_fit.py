@@ -14,10 +14,11 @@ import pytest
 
 import cfa_tool
 from cfa_tool.cli import main
+from cfa_tool.note_parts import read
 from tests.data.test_answer_words import ITEMS, MODEL, PLAIN, STATEMENT, _answers, _as_words
 
-CODING = ("answers recorded as words were coded 1 (Strongly disagree) to 5 (Strongly agree) in every item, as the "
-          "'answers' statement on line 3 says")
+CODING = ("answers recorded as words in every item were coded 1 (Strongly disagree) to 5 (Strongly agree) (the "
+          "'answers' statement on line 3)")
 
 
 @pytest.fixture(scope="module")
@@ -43,12 +44,12 @@ def test_split_half_reads_missing_codes_among_words_as_fit_does_and_says_how_it_
     for a, b in zip(words, numbers):
         assert abs(a.calibration_result.fit.chi_square - b.calibration_result.fit.chi_square) < 1e-10
         assert abs(a.same_solution.chi_square_difference - b.same_solution.chi_square_difference) < 1e-8
-        assert CODING in a.notes and not any("recorded as words" in n for n in b.notes)
+        assert CODING in map(str, a.notes) and not any("recorded as words" in n for n in b.notes)
     out = tmp_path / "split.json"
     assert main(["replicate", str(coded / "words.cfa"), "--data", str(coded / "words.csv"), "--missing-codes=-99",
                  "--json", str(out)]) == 0
-    report = capsys.readouterr().out
-    assert "Answers recorded as words were coded 1 (Strongly disagree) to 5" in report
+    report = " ".join(capsys.readouterr().out.split())
+    assert "Answers recorded as words in every item were coded 1 (Strongly disagree) to 5" in report
     assert "(-99) was read as no answer (seat 1)" in report
     first = json.loads(out.read_text())["replications"][0]
     assert first["answer_coding"][0]["items"] == list(ITEMS)
@@ -60,7 +61,7 @@ def test_replication_on_new_data_codes_both_files_and_says_so(coded):
     numbers = cfa_tool.replicate(PLAIN, coded / "numbers2.csv", coded / "numbers.csv", missing_codes=(-99,))
     assert abs(words.same_solution.chi_square_difference - numbers.same_solution.chi_square_difference) < 1e-8
     assert abs(words.cvi - numbers.cvi) < 1e-10
-    assert words.notes.count(CODING) == 1  # one coding, said once for both files
+    assert list(map(str, words.notes)).count(CODING) == 1  # one coding, said once for both files
     assert "answer_coding" in words.entry() and "answer_coding" not in numbers.entry()
 
 
@@ -132,7 +133,7 @@ def test_cells_read_as_no_answer_are_said_in_one_shape_by_the_reader_and_the_cod
     listed = "(q1 1, q2 1, q3 1, q4 1, q5 1, q6 1, q7 1, q8 1 and 2 more columns)"
     assert ("numbers.csv: 10 cells holding a code given with missing_codes=... (-99) were read as no answer "
             + listed) in map(str, read.warnings)
-    assert ("words.csv: 10 cells of the items coded by an 'answers' statement holding a code given with "
+    assert ("words.csv: 10 cells of the items whose answer words the model codes holding a code given with "
             "missing_codes=... (-99) were read as no answer " + listed) in map(str, coded.warnings)
 
 
@@ -153,7 +154,8 @@ def test_simulate_writes_the_statements_words_which_read_back_through_it(tmp_pat
                  str(out)]) == 0
     saved = json.loads(out.read_text())
     assert saved["written_as_words"] == list(ITEMS) and saved["answer_coding"][0]["items"] == list(ITEMS)
-    assert any("written as the words of the 'answers' statement on line 3" in line for line in saved["report"]["lines"])
+    assert any("written as the words of the 'answers' statement on line 3" in str(read(line))
+               for line in saved["report"]["lines"])
     back = cfa_tool.fit(MODEL, path)
     numbers.to_csv(tmp_path / "numbers.csv", index=False)
     assert abs(back.fit.chi_square - cfa_tool.fit(PLAIN, tmp_path / "numbers.csv").fit.chi_square) < 1e-10
@@ -219,7 +221,8 @@ def test_a_statement_of_numbers_and_words_gives_its_distinct_codes_as_categories
     assert main(["simulate", str(tmp_path / "m.cfa"), "--n", "300", "--seed", "4", "--output", str(path), "--json",
                  str(out)]) == 0
     assert any("written in the 5 answer categories of the 'answers' statement on line 3, each as the answer it lists "
-               "first with that code (1, 2, 3, 4, 5)" in line for line in json.loads(out.read_text())["report"]["lines"])
+               "first with that code (1, 2, 3, 4, 5)" in str(read(line))
+               for line in json.loads(out.read_text())["report"]["lines"])
     back = cfa_tool.fit(MIXED, path)  # the file reads back through the same statement, as the numbers do
     numbers.to_csv(tmp_path / "numbers.csv", index=False)
     assert abs(back.fit.chi_square - cfa_tool.fit(PLAIN, tmp_path / "numbers.csv").fit.chi_square) < 1e-10

@@ -94,7 +94,7 @@ def test_the_population_table_lists_fixed_values_and_says_where_each_came_from(t
     assert words.index("Values fixed in the model file hold as written") < words.index("their standardized values can "
                                                                                          "differ from .7 and .3")
     assert words.index("loading of a3 on f1 0.800") < words.index("residual variance of a2 0.300 0.308 fix")
-    assert "fix = a 'fix' statement" in words
+    assert "fix = a value the model file fixes (a 'fix' statement)" in words
 
 
 @pytest.mark.parametrize("sizes", ["200", "100,200"])
@@ -168,4 +168,4 @@ def test_parameters_held_equal_are_listed_with_the_one_they_equal(command, tmp_p
     assert population[("residual_variance", ("b1",))]["from"] == "default"
     words = " ".join(out.split())
     assert "loading of a3 on f1 0.900 0.630 equal to loading of a2 on f1" in words  # .9 x sqrt(.49) = .63 by hand
-    assert "equal to = held by an 'equal' statement at the value of the parameter named" in words
+    assert "equal to = held equal by the model file (an 'equal' statement) to the parameter named" in words
