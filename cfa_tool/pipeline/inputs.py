@@ -21,7 +21,7 @@ from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_
 from cfa_tool.data.groups import SmallGroupsError, split_moments
 from cfa_tool.data.kept_rows import (RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
                                      unfinished_rows_note)
-from cfa_tool.data.labels import (CODED_LABELS, label_notes, label_text, labelled_codes, nominal_items_note,
+from cfa_tool.data.labels import (CODED_LABELS, cells_as_labels, label_notes, label_text, labelled_codes, nominal_items_note,
                                   refuse_container_cells)
 from cfa_tool.data.matching import (answer_range_notes, refuse_name_twins, check_codes_off_scales, check_columns, check_declared_ranges,
                                     chosen_columns)
@@ -359,7 +359,8 @@ def half_of(loaded: LoadedData, choice: RandomHalf, data, sheet: str | None = No
     """``loaded`` with only the rows of one half of a halves file (data.halves.half_kept, checked against the data
     file ``data``, the ``sheet`` asked for and the sheet read, and the model's ``items`` with the handling of rows
     with gaps), the half joining the row filters that the reports name."""
-    frame, half = half_kept(loaded.frame, choice, data, loaded.source, sheet, loaded.sheet_read, items, keeps_gaps)
+    frame, half = half_kept(loaded.frame, choice, data, loaded.source, sheet, loaded.sheet_read, items, keeps_gaps,
+                            loaded.value_labels)
     return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame),
                    read_frame=loaded.read_frame if loaded.read_frame is not None else loaded.frame,
                    row_filters=tuple(loaded.row_filters) + (half,))
@@ -383,7 +384,7 @@ def _codes_as_labels(frame: pd.DataFrame, value_labels: dict, items) -> pd.DataF
     coded = dict(frame.attrs.get(CODED_LABELS, {}))
     for column in labelled:
         labels = value_labels[column]
-        frame[column] = frame[column].map(lambda v: labels.get(v, v) if pd.notna(v) else v)
+        frame[column] = cells_as_labels(frame[column], labels)
         coded[column] = {label_text(code): label_text(labels[code]) for code in sorted(labels, key=_code_key)}
     frame.attrs[CODED_LABELS] = coded  # groups keep the file's order of codes and can be named by code
     return frame
