@@ -48,7 +48,12 @@ def add_parser(sub) -> None:
     O.add_data_options(p)
     O.refuse_design_options(p, "explore analyses the unweighted correlations of independent rows (columns named as "
                                "weights, clusters or strata are left out of its default items); fit the draft model "
-                               "with 'fit' and the design options")
+                               "with 'fit' and the design options; to explore one half of the clusters and confirm on "
+                               "the other, draw halves of whole clusters with 'cfa-tool replicate MODEL --data FILE "
+                               "--cluster COLUMN --halves-file HALVES.csv' (--strata too if any; any model of the "
+                               "items serves, such as one factor over them all), then 'cfa-tool explore --data FILE "
+                               "--half HALVES.csv A' and 'cfa-tool fit DRAFT --data FILE --half HALVES.csv B' with "
+                               "the design options")
     add_report_options(p)
 
 

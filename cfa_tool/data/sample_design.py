@@ -553,11 +553,13 @@ def shared_cluster(frame: pd.DataFrame, columns: DesignColumns, group: str | Non
 
 
 def refuse_shared_clusters(frame: pd.DataFrame, columns: DesignColumns | None, group: str | None, source: str,
-                           estimation: str, complete_rows: bool = False) -> None:
+                           estimation: str, complete_rows: bool = False, continuous_instead: bool = False) -> None:
     """A one-line error when groups share clusters (domains of one cluster sample) under an ``estimation`` (e.g.
     'full-information ML') whose design-based errors are computed group by group, with the routes that do run: the
-    weights and strata without the clusters (what that gives up said), each group alone with its clusters, and with
-    ``complete_rows`` the complete rows only (what that assumes said).  Never the refused route itself."""
+    weights and strata without the clusters (what that gives up said), each group alone with its clusters (which
+    compares no groups), with ``complete_rows`` the complete rows only (what that assumes said), and with
+    ``continuous_instead`` (ordinal items) the items analysed as continuous by maximum likelihood, the route that
+    keeps the clusters of groups compared (new-user trial s18).  Never the refused route itself."""
     if columns is None:
         return
     cluster = shared_cluster(frame, columns, group)
@@ -572,11 +574,16 @@ def refuse_shared_clusters(frame: pd.DataFrame, columns: DesignColumns | None, g
         listwise = (f", or analyse the complete rows only ({Option.INCOMPLETE_ROWS.given('listwise')}; groups that "
                     f"share clusters are analysed so), which assumes answers missing completely at random and leaves "
                     f"out every row with a gap" if complete_rows else "")
+        if continuous_instead:
+            listwise += (f", or keep the clusters by analysing the items as continuous by maximum likelihood (leave out "
+                         f"{Option.ORDINAL} or the model's 'ordinal' statement, with "
+                         f"{Option.INCOMPLETE_ROWS.given('listwise')} when rows have gaps: groups that share clusters "
+                         f"are analysed so), which reads answers of few categories as numbers")
         raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' has rows in "
                         f"more than one group of '{printable(group)}' (the groups share clusters: domains of one "
                         f"sample), and {estimation} does not yet take clusters shared by groups into account: {without}, "
-                        f"or fit each group "
-                        f"alone with its clusters ({Option.KEEP.given(f'{printable(group)} = ...')}){listwise}")
+                        f"or fit each group alone with its clusters ({Option.KEEP.given(f'{printable(group)} = ...')}), "
+                        f"which compares no groups{listwise}")
 
 
 def refuse_lone_strata(design: RowDesign, columns: DesignColumns, source: str, why: str) -> None:

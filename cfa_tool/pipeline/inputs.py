@@ -1989,7 +1989,8 @@ def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, ref
         raise OptionError(f"continuous items beside ordinal ones in several groups are not yet fitted with a sampling "
                           f"design, so the {design.names[0][0]} column '{design.names[0][1]}' cannot apply; declare "
                           f"every item ordinal, fit the groups without the design, or fit one group at a time")
-    refuse_shared_clusters(frame, design, group, source, "the least-squares fit of ordinal items")
+    refuse_shared_clusters(frame, design, group, source, "the least-squares fit of ordinal items",
+                           continuous_instead=True)
     groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group, pairwise,
                                              design, continuous)
     groups = [(label, ordinal_design_covariance(m)) for label, m in groups]
