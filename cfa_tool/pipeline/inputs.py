@@ -2251,14 +2251,16 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         refusals = ordinal_refusals(frame, spec.observed_names, source,
                                     frozenset(x for x in spec.observed_names if x not in ordinal_items), group,
                                     reference_group)
+    thresholds = 0  # of an ordinal fit in one group, estimated first: the design-based covariance carries them too
     if ordinal_items and not refusals:  # the same data checks as the fit (correlations, duplicates)
         if group is not None:
             ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise=True)
         else:
             from cfa_tool.data.polychoric import ordinal_moments
 
-            ordinal_moments(frame, spec.observed_names, source,
-                            frozenset(x for x in spec.observed_names if x not in ordinal_items), pairwise=True)
+            thresholds = sum(len(t) for t in ordinal_moments(
+                frame, spec.observed_names, source, frozenset(x for x in spec.observed_names if x not in ordinal_items),
+                pairwise=True).thresholds)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
     sparse, too_small = (), ()
     try:  # the saturated (EM) moments once; where they cannot be estimated, whether the gaps are why
@@ -2291,6 +2293,11 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     small = too_small + tuple(p for p in small if p.group not in named)
     notes += small_notes
     sample_design = design_summary(frame, design, [m for _, m in groups], [g for g, _ in groups]) if design is not None else None
+    carried = table.n_free  # the parameters a design-based covariance carries, counted as the fit counts them
+    if thresholds and sample_design is not None:  # an ordinal fit's latent responses: residual variances not free
+        from cfa_tool.pipeline.ordinal import ordinal_spec
+
+        carried = build_parameter_table(ordinal_spec(spec)[0]).n_free
     answered = _labelled(frame, group)[list(spec.observed_names)].notna()
     every_item = answered.all(axis=1).to_numpy()
     # complete rows that are complete only by values that look like no answers (the cautions' rows)
@@ -2309,11 +2316,11 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                    float(w[none].sum()))
     return CheckResult(spec, source, len(answered), complete, len(answered) - complete - odd_complete - empty, empty,
                        coverage, labels, bool(ordinal_items), sample_design,
-                       sample_design.caution(table.n_free) if sample_design is not None else None,
+                       sample_design.caution(carried, thresholds) if sample_design is not None else None,
                        tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
                        sparse + data_problems(loaded, spec, group, design, coverage=coverage, n_obs=len(answered))
                        + small
-                       + (design_problems(sample_design, table.n_free) if sample_design is not None else ()),
+                       + (design_problems(sample_design, carried, thresholds) if sample_design is not None else ()),
                        len(frame) - len(answered), odd_complete,
                        len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted,
                        group_rows=tuple(m.n_obs for _, m in groups) if labels else (),

@@ -80,7 +80,8 @@ def fit_ordinal_models(specs: Sequence[Spec], complete: pd.DataFrame, source: st
                                             and par.variables[0] not in ordinal_items))})
             result = replace(result, fit=replace(result.fit, n_free_parameters=result.fit.n_free_parameters - saturated))
         if design is not None and result.converged:
-            result = with_design(result, design_summary(complete, design, [m for _, m in groups], [g for g, _ in groups]))
+            result = with_design(result, design_summary(complete, design, [m for _, m in groups], [g for g, _ in groups]),
+                                 [m for _, m in groups])
         results.append(result)
     return estimations, results
 

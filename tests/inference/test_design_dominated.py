@@ -117,3 +117,18 @@ def test_an_ordinal_fit_counts_its_thresholds_against_the_clusters():
                           cluster="school")
     [few] = [p for p in result.problems if p.kind is ProblemKind.FEW_CLUSTERS]
     assert "the 48 free parameters (12 of the model and 36 thresholds)" in few.explanation
+
+
+def test_check_counts_the_thresholds_as_the_fit_does():
+    data = _schools(7, None, ordinal=True, items=12)
+    model = "factor F: " + ", ".join(f"x{i}" for i in range(1, 13))
+    checked = cfa_tool.check(model, data, ordinal="all", cluster="school")
+    [few] = [p for p in checked.problems if p.kind is ProblemKind.FEW_CLUSTERS]
+    assert "the 48 free parameters (12 of the model and 36 thresholds)" in few.explanation  # as the fit above
+
+
+def test_compare_says_it_too():
+    data = _schools(6, -2.5, ordinal=False)
+    comparison = cfa_tool.compare([ONE_FACTOR, "factor F: x1, x2, x3\nfactor G: x4, x5, x6"], data, cluster="school",
+                                  strata="region")
+    assert all("'S07' holds" in _dominated(r)[0].explanation for r in comparison.results)
