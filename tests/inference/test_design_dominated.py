@@ -132,3 +132,9 @@ def test_compare_says_it_too():
     comparison = cfa_tool.compare([ONE_FACTOR, "factor F: x1, x2, x3\nfactor G: x4, x5, x6"], data, cluster="school",
                                   strata="region")
     assert all("'S07' holds" in _dominated(r)[0].explanation for r in comparison.results)
+
+
+def test_every_step_of_an_invariance_ladder_says_it_too():
+    data = _schools(6, -2.5, ordinal=False).assign(sex=lambda d: np.tile(["girl", "boy"], len(d) // 2))
+    ladder = cfa_tool.invariance(ONE_FACTOR, data, group="sex", cluster="school", strata="region")
+    assert all("'S07' holds" in _dominated(step.result)[0].explanation for step in ladder.steps)
