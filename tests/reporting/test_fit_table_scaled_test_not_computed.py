@@ -9,7 +9,6 @@ import io
 import re
 
 import numpy as np
-import pandas as pd
 import pytest
 from rich.console import Console
 
@@ -17,6 +16,7 @@ import cfa_tool
 from cfa_tool.reporting.tables import fit_table
 from cfa_tool.reporting.terminal import rich_table
 from cfa_tool.reporting.text_formats import markdown_table
+from tests.inference.test_scaling_factor_not_positive import heavy_tailed_rows_with_gaps
 
 MODEL = "factor comfort: q1, q2, q3, q4\n"
 
@@ -25,11 +25,7 @@ MODEL = "factor comfort: q1, q2, q3, q4\n"
 def not_computed():
     import cfa_tool.inference.robust_missing as robust_missing
 
-    rng = np.random.default_rng(7)
-    factor = rng.normal(size=300)
-    values = 0.7 * factor[:, None] + 0.6 * rng.standard_t(4, size=(300, 4))
-    values[rng.random(values.shape) < 0.1] = np.nan
-    data = pd.DataFrame(values, columns=["q1", "q2", "q3", "q4"])
+    data = heavy_tailed_rows_with_gaps()
     real = robust_missing.robust_missing
 
     def negative(*args, **kwargs):  # the estimate of c replaced by a negative one: a constructed case
