@@ -64,6 +64,10 @@ class ProblemKind(enum.Enum):
     EMPIRICALLY_UNDERIDENTIFIED = ("empirically under-identified", "barely determined by the data", True)
     # not of the solution but of its standard errors: a sampling design with too few clusters
     FEW_CLUSTERS = ("too few clusters", "too few clusters", False)
+    # nor of the solution: a design-based test whose scaling is extreme (pipeline.inputs.extreme_scaling) or one
+    # cluster holding most of the design effect of the statistics (data.sample_design.DominantCluster), so the
+    # cluster-robust standard errors and the design-based test describe that cluster
+    DESIGN_DOMINATED = ("design-based test extreme or dominated by one cluster", "one cluster dominates", False)
     # sampling weights so uneven that the rows count as few (Kish's effective sample size)
     SMALL_EFFECTIVE_SAMPLE = ("small effective sample", "small effective sample", False)
     # frequency weights that make N many times the rows: likely expansion (sampling) weights read as counts
@@ -156,7 +160,7 @@ class ProblemKind(enum.Enum):
 
 #: problems not of the solution but of the sampling design it was fitted under (the methods paragraph states them
 #: beside the design)
-DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.SMALL_EFFECTIVE_SAMPLE,
+DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.DESIGN_DOMINATED, ProblemKind.SMALL_EFFECTIVE_SAMPLE,
                              ProblemKind.FREQUENCY_WEIGHTS_LARGE, ProblemKind.GROUPS_SHARE_STRATA})
 
 
@@ -389,6 +393,8 @@ class Problem:
                         f"held at a bound",
             K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
+            K.DESIGN_DOMINATED: "a design-based test whose scaling is extreme or a design effect that one cluster "
+                                "dominates, so that the cluster-robust standard errors and test say little",
             K.SMALL_EFFECTIVE_SAMPLE: f"very uneven weights (Kish's effective sample size {v})",
             K.FREQUENCY_WEIGHTS_LARGE: f"frequency weights counting {v.split('.')[0]} rows, far more than the rows "
                                        f"analysed (expansion weights read as counts?)",

@@ -175,6 +175,10 @@ class HalfRows:
     #: the rows with gaps left out before the split (replicate --incomplete-rows listwise): the halves are those of
     #: the rows with an answer to every model variable (data.halves.half_kept)
     with_gaps: int = 0
+    #: the columns the halves were drawn by, whole clusters to each half within strata ('' when not given; both ''
+    #: for halves drawn row by row): what the notes and the methods text say of how the rows were split
+    cluster_column: str = ""
+    strata_column: str = ""
     column = None  # no column of the data file chose the rows
     operator = "="
     empty = 0
@@ -194,10 +198,21 @@ class HalfRows:
     def __str__(self) -> str:
         return self.text
 
+    @property
+    def drawn(self) -> str:
+        """How the rows were split, after 'the N rows': 'split at random into two halves', or by whole clusters
+        'whose clusters of school were drawn at random into two halves, every row of a cluster in one half, within
+        the strata of region' (data.halves.draw_cluster_halves)."""
+        within = f"within the strata of {printable(self.strata_column)}" if self.strata_column else ""
+        if self.cluster_column:
+            return (f"whose clusters of {printable(self.cluster_column)} were drawn at random into two halves, every "
+                    f"row of a cluster in one half" + (f", {within}" if within else ""))
+        return "split at random into two halves" + (f" {within}" if within else "")
+
     def note(self) -> Text:
         """The note of a report: which rows were analysed (the option apart, note_parts.Command)."""
         return (f"Only the rows of the {self.name} half (seed {self.seed}) of {self.halves_file} are analysed: "
-                f"{self.rows} of the {self.split} rows split at random into two halves" + (
+                f"{self.rows} of the {self.split} rows {self.drawn}" + (
                     Note((f", those with an answer to every model variable ({self.with_gaps} "
                           f"{'row' if self.with_gaps == 1 else 'rows'} with gaps left out before the split",
                           Command(f", as {Option.INCOMPLETE_ROWS.given('listwise')} leaves them out"), ")"))
@@ -205,10 +220,18 @@ class HalfRows:
 
     def in_words(self) -> str:
         """'the row fell in the confirmation half of two random halves (seed 17; listed in halves.csv)', after
-        'those where' in a methods section, which gives the rows analysed and those in the file."""
+        'those where' in a methods section, which gives the rows analysed and those in the file; of halves drawn by
+        cluster, 'two random halves of the clusters of school (whole clusters to each half, within the strata of
+        region; seed 17; listed in halves.csv)'.  The file by its name: a methods text names no local folder."""
         rows = " of the rows with an answer to every model variable" if self.with_gaps else ""
-        return (f"the row fell in the {self.name} half of two random halves{rows} (seed {self.seed}; listed in "
-                f"{self.halves_file})")
+        within = f"within the strata of {self.strata_column}" if self.strata_column else ""
+        if self.cluster_column:
+            how = (f" of the clusters of {self.cluster_column}{rows} (whole clusters to each half"
+                   + (f", {within}" if within else "") + "; ")
+        else:
+            how = f"{rows} (" + (f"drawn {within}; " if within else "")
+        return (f"the row fell in the {self.name} half of two random halves{how}seed {self.seed}; listed in "
+                f"{Path(self.halves_file).name})")
 
 
 def fingerprint(path) -> str:
@@ -353,7 +376,8 @@ def read_halves(path) -> SavedHalves:
 
 
 def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet: str | None = None, read: str = "",
-              items: tuple[str, ...] = (), keeps_gaps: bool | None = None) -> tuple[pd.DataFrame, HalfRows]:
+              items: tuple[str, ...] = (), keeps_gaps: bool | None = None,
+              value_labels: dict | None = None) -> tuple[pd.DataFrame, HalfRows]:
     """The rows of ``frame`` (the data file's rows after the row filters; ``sheet`` the sheet asked for and ``read``
     the sheet read, data.readers.LoadedData.sheet_read) in the half ``choice`` names, and the half as found; a
     refusal when the halves file is not that of these rows: drawn from a file of other contents (the checksum) or
@@ -362,7 +386,8 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet:
     model's ``items`` while every row split has them all are the rows with gaps that replicate --incomplete-rows
     listwise leaves out before it splits: the half is read when the run leaves them out too (``keeps_gaps`` False)
     or does not fit (None: check describes the rows), and refused, naming the handling of rows with gaps, when it
-    keeps them (True)."""
+    keeps them (True).  ``value_labels``: the data file's (SPSS, Stata), by which a cluster or strata column of
+    labelled codes is read as the run that drew the halves read and recorded it (its labels)."""
     saved = read_halves(choice.path)
     shown = printable(str(choice.path))
     _check_drawn(saved, shown)
@@ -403,20 +428,25 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet:
                         f"halves are of another selection of rows; give the {Option.NAMES_ROW}, "
                         f"{Option.FIRST_DATA_ROW} and {Option.KEEP} of the run that drew them (this run reads their "
                         f"sheet)")
-    _check_labels(saved, frame, numbers, shown, source)
+    _check_labels(saved, frame, numbers, shown, source, value_labels or {})
     mask = np.isin(numbers, saved.rows[np.asarray(saved.halves) == choice.name])
     chosen = frame[mask]
     half = HalfRows(shown, choice.name, saved.seed, int(mask.sum()), len(saved.rows),
-                    len(with_gaps) if with_gaps is not None else 0)
+                    len(with_gaps) if with_gaps is not None else 0, saved.cluster_column, saved.strata_column)
     chosen.attrs[KEPT_BY] = tuple(frame.attrs.get(KEPT_BY, ())) + (half.text,)
     return chosen, half
 
 
-def _check_labels(saved: SavedHalves, frame: pd.DataFrame, numbers: np.ndarray, shown: str, source: str) -> None:
+def _check_labels(saved: SavedHalves, frame: pd.DataFrame, numbers: np.ndarray, shown: str, source: str,
+                  value_labels: dict) -> None:
     """A refusal when halves drawn by cluster within strata name other clusters or strata for their rows than the
     data's columns hold (the columns renamed or missing in this run, or edited labels): the halves were drawn by those
-    labels, and are checked by them (:func:`_check_drawn`)."""
-    from cfa_tool.data.labels import group_keys
+    labels, and are checked by them (:func:`_check_drawn`).  A column of labelled codes is read through its value
+    labels, as the run that drew the halves read it (data.labels.labelled_codes; new-user trial s18: a Stata file's
+    school codes, recorded as 'School 01', were compared as '1'); the cells as the design reads them (group_keys)."""
+    from cfa_tool.data.labels import cells_as_labels, group_keys, labelled_codes
+
+    labelled = set(labelled_codes(frame, value_labels))
 
     for column, recorded in ((saved.cluster_column, saved.clusters), (saved.strata_column, saved.strata)):
         if not column:
@@ -425,7 +455,8 @@ def _check_labels(saved: SavedHalves, frame: pd.DataFrame, numbers: np.ndarray, 
             raise DataError(f"{shown} holds halves drawn by the column '{printable(column)}', which {source} does not "
                             f"hold as this run reads it; give the {Option.RENAME} of the run that drew them")
         # as the design read them when the halves were drawn (data.sample_design: each distinct cell once)
-        labels = dict(zip(numbers.tolist(), group_keys(frame[column]).astype(object).fillna("").tolist()))
+        cells = cells_as_labels(frame[column], value_labels[column]) if column in labelled else frame[column]
+        labels = dict(zip(numbers.tolist(), group_keys(cells).astype(object).fillna("").tolist()))
         for row, label in zip(saved.rows.tolist(), recorded):
             if row in labels and labels[row] != label:
                 raise DataError(f"{shown}: row {row} was drawn in '{printable(label)}' of column "

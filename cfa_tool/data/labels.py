@@ -381,6 +381,12 @@ def labelled_codes(frame: pd.DataFrame, value_labels: dict, items=()) -> list[st
     return out
 
 
+def cells_as_labels(cells: pd.Series, labels: dict) -> pd.Series:
+    """A column of labelled codes (:func:`labelled_codes`) as its value labels, empty cells kept: the one reading of
+    such a column as the data name its values (groups, clusters and strata, and the halves drawn by them)."""
+    return cells.map(lambda v: labels.get(v, v)).where(cells.notna(), cells)
+
+
 def own_labels(column: str, value_labels: dict) -> bool:
     """Whether no other column has the value labels of ``column``: the items of a questionnaire share their answer
     scale's labels ('Strongly disagree' ... 'Strongly agree'), a code column's labels (departments) are its own."""

@@ -80,6 +80,8 @@ class OrdinalMoments:
     #: under clusters or strata: the variances of (all thresholds, then the correlations) with the rows taken as
     #: independent (weights applied), the diagonal the least-squares weights come from (None: diag(joint_gamma))
     weight_variances: np.ndarray | None = field(repr=False, default=None)
+    #: under clusters: the cluster holding the largest share of the statistics' design effect (DominantCluster)
+    dominant_cluster: object | None = field(repr=False, default=None)
 
     @property
     def pairwise(self) -> bool:

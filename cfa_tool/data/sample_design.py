@@ -118,6 +118,34 @@ def joint_design(designs: list[RowDesign]) -> RowDesign:
 
 
 @dataclass(frozen=True)
+class DominantCluster:
+    """The cluster whose rows carry the largest share of the design effect of a fit's statistics
+    (inference.design.dominant_cluster): its name, that share, the clusters (sampling units) among which it was
+    the largest, and the statistics' mean design effect."""
+
+    name: str
+    share: float
+    clusters: int
+    design_effect: float
+
+    @property
+    def large(self) -> bool:
+        """Whether one cluster holds so much of the design effect that the design-based covariance, and the
+        standard errors and scaled test made from it, mostly describe that cluster: a share above
+        :data:`DOMINANT_SHARE` and above :data:`DOMINANT_TIMES` times the even share 1/C (a rule of thumb of this
+        tool, not a law)."""
+        return self.share > DOMINANT_SHARE and self.share > DOMINANT_TIMES / self.clusters
+
+
+#: a cluster holding more than this share of the design effect of the statistics (more than all the other clusters
+#: together), and more than DOMINANT_TIMES times the even share 1/C, dominates the design-based covariance (a rule of
+#: thumb of this tool, not a law: with 40 clusters alike each holds about 2.5%; a cluster of clustered answers of
+#: normal size can hold a fifth or more, its share growing with the fourth power of its mean's departure)
+DOMINANT_SHARE = 0.5
+DOMINANT_TIMES = 5.0
+
+
+@dataclass(frozen=True)
 class SampleDesign:
     """What the report states about the design used."""
 
@@ -355,12 +383,22 @@ class SampleDesign:
                 f"law) are usually survey expansion weights (the persons in the population each respondent stands "
                 f"for), which are sampling weights, not counts of identical rows.")
 
-    def caution(self, free_parameters: int) -> str | None:
+    def caution(self, free_parameters: int, thresholds: int = 0) -> str | None:
         """Why cluster-robust standard errors are in doubt with this few clusters (None with enough of them): too
-        optimistic below about 30-50 clusters (common practice), and singular with no more clusters than free
-        parameters (the clusters' score sums then span too few dimensions)."""
+        optimistic below about 30-50 clusters (common practice), and singular with no more clusters than the
+        parameters the design-based covariance must carry (the clusters' score sums then span too few dimensions),
+        however many clusters that is: the model's ``free_parameters`` and, of an ordinal fit in one group, its
+        ``thresholds``, estimated in a first step whose covariance under the design is part of the same sandwich
+        (new-user trial s18: 40 clusters against 22 parameters and 48 thresholds)."""
         if self.clusters is None:
             return None
+        carried = free_parameters + thresholds
+        counted = (f"the {carried} free parameters ({free_parameters} of the model and {thresholds} thresholds)"
+                   if thresholds else f"the {free_parameters} free parameters")
+        where = f"Only {self.clusters} clusters in '{self.columns.cluster}'"
+        if self.clusters <= carried:
+            return (f"{where}, no more than {counted}: the cluster-robust covariance of the estimates is singular, "
+                    f"so its standard errors and scaled test mean little.")
         if self.clusters >= SMALL_NUMBER_OF_CLUSTERS:
             few = self._few_cluster_groups()
             if not few:
@@ -370,10 +408,6 @@ class SampleDesign:
                     f"group's estimates and their cluster-robust standard errors rest on its own clusters, which are "
                     f"too optimistic with fewer than about 30-50 clusters (common practice), and mean little with no "
                     f"more clusters than the group's free parameters.")
-        where = f"Only {self.clusters} clusters in '{self.columns.cluster}'"
-        if self.clusters <= free_parameters:
-            return (f"{where}, no more than the {free_parameters} free parameters: the cluster-robust covariance of "
-                    f"the estimates is singular, so its standard errors and scaled test mean little.")
         return (f"{where}: cluster-robust standard errors and tests are too optimistic with fewer than about 30-50 "
                 f"clusters (common practice).")
 
@@ -537,11 +571,13 @@ def shared_cluster(frame: pd.DataFrame, columns: DesignColumns, group: str | Non
 
 
 def refuse_shared_clusters(frame: pd.DataFrame, columns: DesignColumns | None, group: str | None, source: str,
-                           estimation: str, complete_rows: bool = False) -> None:
+                           estimation: str, complete_rows: bool = False, continuous_instead: bool = False) -> None:
     """A one-line error when groups share clusters (domains of one cluster sample) under an ``estimation`` (e.g.
     'full-information ML') whose design-based errors are computed group by group, with the routes that do run: the
-    weights and strata without the clusters (what that gives up said), each group alone with its clusters, and with
-    ``complete_rows`` the complete rows only (what that assumes said).  Never the refused route itself."""
+    weights and strata without the clusters (what that gives up said), each group alone with its clusters (which
+    compares no groups), with ``complete_rows`` the complete rows only (what that assumes said), and with
+    ``continuous_instead`` (ordinal items) the items analysed as continuous by maximum likelihood, the route that
+    keeps the clusters of groups compared (new-user trial s18).  Never the refused route itself."""
     if columns is None:
         return
     cluster = shared_cluster(frame, columns, group)
@@ -556,11 +592,16 @@ def refuse_shared_clusters(frame: pd.DataFrame, columns: DesignColumns | None, g
         listwise = (f", or analyse the complete rows only ({Option.INCOMPLETE_ROWS.given('listwise')}; groups that "
                     f"share clusters are analysed so), which assumes answers missing completely at random and leaves "
                     f"out every row with a gap" if complete_rows else "")
+        if continuous_instead:
+            listwise += (f", or keep the clusters by analysing the items as continuous by maximum likelihood (leave out "
+                         f"{Option.ORDINAL} or the model's 'ordinal' statement, with "
+                         f"{Option.INCOMPLETE_ROWS.given('listwise')} when rows have gaps: groups that share clusters "
+                         f"are analysed so), which reads answers of few categories as numbers")
         raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' has rows in "
                         f"more than one group of '{printable(group)}' (the groups share clusters: domains of one "
                         f"sample), and {estimation} does not yet take clusters shared by groups into account: {without}, "
-                        f"or fit each group "
-                        f"alone with its clusters ({Option.KEEP.given(f'{printable(group)} = ...')}){listwise}")
+                        f"or fit each group alone with its clusters ({Option.KEEP.given(f'{printable(group)} = ...')}), "
+                        f"which compares no groups{listwise}")
 
 
 def refuse_lone_strata(design: RowDesign, columns: DesignColumns, source: str, why: str) -> None:

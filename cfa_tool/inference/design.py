@@ -152,4 +152,38 @@ def ordinal_design_covariance(moments):
     if design.clusters is not None or design.strata is not None:
         z, f, total = _unit_sums(moments.influence, replace(design, clusters=None, strata=None))
         apart = np.einsum("ij,ij->j", z * f[:, None], z) / total
-    return replace(moments, joint_gamma=joint, gamma=joint[k:, k:], influence=None, weight_variances=apart)
+    return replace(moments, joint_gamma=joint, gamma=joint[k:, k:], influence=None, weight_variances=apart,
+                   dominant_cluster=dominant_cluster(moments.influence, design))
+
+
+def dominant_cluster(contributions: np.ndarray, design):
+    """The cluster that carries the largest share of the design effect of the statistics whose rows'
+    ``contributions`` (n x k) these are, under ``design`` (a RowDesign with clusters; None without them), as a
+    :class:`cfa_tool.data.sample_design.DominantCluster`.
+
+    Each statistic's design effect is its design-based variance over its variance with the rows taken as
+    independent (weights applied; Kish 1965, the design effect); their sum, tr(D) for D = diag(Gamma_apart)^-1
+    Gamma, is a sum over the clusters of (f_c / N) z_c' diag(Gamma_apart)^-1 z_c (the estimator of the module
+    docstring), so each cluster's term over the sum is its share.  With C clusters alike each holds about 1/C."""
+    from dataclasses import replace
+
+    from cfa_tool.data.sample_design import DominantCluster, _named
+
+    if design is None or design.clusters is None or not len(contributions):
+        return None
+    z, f, total = _unit_sums(contributions, design)
+    a, fa, _ = _unit_sums(contributions, replace(design, clusters=None, strata=None))
+    apart = np.einsum("ij,ij->j", a * fa[:, None], a) / total
+    keep = apart > 1e-12 * max(float(apart.max(initial=0.0)), 1e-300)
+    if not keep.any():
+        return None
+    terms = (z[:, keep] ** 2 / apart[keep]).sum(axis=1) * f / total  # each unit's part of tr(D)
+    effect = float(terms.sum())
+    if not effect > 0 or not np.isfinite(effect):
+        return None
+    unit_of_row, _ = design.sampling_units()
+    first_row = np.zeros(len(terms), dtype=int)
+    first_row[unit_of_row[::-1]] = np.arange(len(unit_of_row))[::-1]
+    largest = int(np.argmax(terms))
+    name = _named(design.clusters[first_row[[largest]]], design.cluster_names)[0]
+    return DominantCluster(name, float(terms[largest] / effect), len(terms), effect / int(keep.sum()))

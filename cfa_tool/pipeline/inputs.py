@@ -22,7 +22,7 @@ from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
 from cfa_tool.data.kept_rows import (RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
                                      unfinished_rows_note)
-from cfa_tool.data.labels import (CODED_LABELS, label_notes, label_text, labelled_codes, nominal_items_note,
+from cfa_tool.data.labels import (CODED_LABELS, cells_as_labels, label_notes, label_text, labelled_codes, nominal_items_note,
                                   refuse_container_cells)
 from cfa_tool.data.matching import (answer_range_notes, refuse_name_twins, check_codes_off_scales, check_columns, check_declared_ranges,
                                     chosen_columns)
@@ -35,8 +35,9 @@ from cfa_tool.data.readers import (LoadedData, blank_text_as_missing, drop_blank
                                    first_data_option, read_data, with_no_answers_read)
 from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame, renamed_hint
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
-from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
-                                         design_weights, refuse_shared_clusters, shared_cluster)
+from cfa_tool.data.sample_design import (DOMINANT_SHARE, DOMINANT_TIMES, DesignColumns, apply_design, check_design,
+                                         design_columns, design_summary, design_weights, refuse_shared_clusters,
+                                         shared_cluster)
 from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, holds_summary, pasted_matrix, read_summary_file,
                                          summary_in_other_text, summary_moments)
 from cfa_tool import options as opt
@@ -373,7 +374,8 @@ def half_of(loaded: LoadedData, choice: RandomHalf, data, sheet: str | None = No
     with gaps), the half joining the row filters that the reports name."""
     from cfa_tool.data.halves import half_kept
 
-    frame, half = half_kept(loaded.frame, choice, data, loaded.source, sheet, loaded.sheet_read, items, keeps_gaps)
+    frame, half = half_kept(loaded.frame, choice, data, loaded.source, sheet, loaded.sheet_read, items, keeps_gaps,
+                            loaded.value_labels)
     return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame),
                    read_frame=loaded.read_frame if loaded.read_frame is not None else loaded.frame,
                    row_filters=tuple(loaded.row_filters) + (half,))
@@ -397,7 +399,7 @@ def _codes_as_labels(frame: pd.DataFrame, value_labels: dict, items) -> pd.DataF
     coded = dict(frame.attrs.get(CODED_LABELS, {}))
     for column in labelled:
         labels = value_labels[column]
-        frame[column] = frame[column].map(lambda v: labels.get(v, v) if pd.notna(v) else v)
+        frame[column] = cells_as_labels(frame[column], labels)
         coded[column] = {label_text(code): label_text(labels[code]) for code in sorted(labels, key=_code_key)}
     frame.attrs[CODED_LABELS] = coded  # groups keep the file's order of codes and can be named by code
     return frame
@@ -1374,7 +1376,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                       if m.unanswered_rows is not None and len(m.unanswered_rows) else (label, m) for label, m in groups]
         result = converged(fit_moments(spec, groups, fit_options, group_column=group))
     if design is not None:
-        result = with_design(result, design_summary(frame, design, [m for _, m in groups], [g for g, _ in groups]))
+        result = with_design(result, design_summary(frame, design, [m for _, m in groups], [g for g, _ in groups]),
+                             [m for _, m in groups])
     analysed = _labelled(frame, group)
     every_row_complete = (sum(m.n_obs for _, m in groups) == len(analysed)
                           and not any(m.rows is not None and np.isnan(m.rows).any() for _, m in groups))
@@ -1436,15 +1439,21 @@ def design_test(fit_options, design: DesignColumns):
     return replace(fit_options, test=FitTest.ROBUST)  # resolved for the rows as --robust is (FitOptions, assess)
 
 
-def design_problems(design, free: int) -> tuple:
-    """The cautions of a sampling ``design`` (data.sample_design.SampleDesign) on a model of ``free`` parameters,
-    first in every view, the same for fit, check, compare and invariance: too few clusters for cluster-robust
-    standard errors, weights so uneven that Kish's effective sample size is below half the rows, and frequency
-    weights so large that they look like expansion (sampling) weights (first)."""
+def design_problems(design, free: int, thresholds: int = 0, dominant=None, robust=None) -> tuple:
+    """The cautions of a sampling ``design`` (data.sample_design.SampleDesign) on a model of ``free`` parameters
+    (and ``thresholds`` estimated in a first step, of an ordinal fit in one group), first in every view, the same
+    for fit, check, compare and invariance: too few clusters for cluster-robust standard errors, one cluster that
+    holds most of the design effect of the statistics (``dominant``, a data.sample_design.DominantCluster; the
+    fit's scaled test ``robust`` then described by it), weights so uneven that Kish's effective sample size is
+    below half the rows, and frequency weights so large that they look like expansion (sampling) weights
+    (first)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     problems: tuple = ()
-    caution = design.caution(free)
+    dominated = dominant_cluster_problem(design, dominant, robust) if design.columns.cluster else None
+    if dominated is not None:  # the standard errors and test describe one cluster, or the test is degenerate: first
+        problems += (dominated,)
+    caution = design.caution(free, thresholds)
     if caution:  # the standard errors and tests themselves are in doubt
         problems += (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.judged_clusters), caution,
                              Note(("read the p-values with caution, or fit without ",
@@ -1477,11 +1486,114 @@ def design_problems(design, free: int) -> tuple:
     return problems
 
 
-def with_design(result: FitResult, design) -> FitResult:
-    """The result stating the design it was fitted under (status line, JSON, methods paragraph, cautions)."""
+def extreme_scaling(robust) -> str:
+    """Why a design-based scaled test is extreme, in a researcher's words (empty when it is not): a scale-shifted
+    statistic whose effective degrees of freedom, (df - shift)^2 / df = tr(U Gamma)^2 / tr((U Gamma)^2) (the
+    mean-and-variance adjusted df, Satorra & Bentler 1994), are below :data:`FEW_EFFECTIVE_DF` of its df, or a
+    scaling factor tr(U Gamma) / df below :data:`LOW_SCALING` (rules of thumb of this tool, not laws)."""
+    if robust is None or not robust.df:
+        return ""
+    if robust.scale is not None:
+        if not (np.isfinite(robust.scale) and np.isfinite(robust.shift)):
+            return ""
+        effective = (robust.df - robust.shift) ** 2 / robust.df
+        if effective >= FEW_EFFECTIVE_DF * robust.df:
+            return ""
+        return (f"The design-based scale-shifted test is degenerate: its scale is {robust.scale:.3g} and its shift "
+                f"{robust.shift:.1f} of {robust.df} degrees of freedom, so its statistic varies like a chi-square on "
+                f"about {effective:.1f} degrees of freedom (the mean-and-variance adjusted df, Satorra & Bentler "
+                f"1994; below {FEW_EFFECTIVE_DF:.0%} of the df is taken as degenerate, a rule of thumb of this tool, "
+                f"not a law): it is nearly the shift whatever the model's misfit, and its p-value and the robust "
+                f"RMSEA, CFI and TLI made from it say little.")
+    c = robust.scaling_factor
+    if not (np.isfinite(c) and 0 < c < LOW_SCALING):
+        return ""
+    return (f"The design-based scaling factor is {c:.3g}: the scaled chi-square is {1 / c:.1f} times the unscaled "
+            f"one, whereas clusters usually make the statistics vary more than rows taken as independent (a factor "
+            f"above 1); below {LOW_SCALING:g} is taken as extreme (a rule of thumb of this tool, not a law), and its "
+            f"p-value and the robust RMSEA, CFI and TLI made from it say little.")
+
+
+#: a scale-shifted test whose effective df are below this share of its df is degenerate (a rule of thumb of this tool)
+FEW_EFFECTIVE_DF = 0.05
+#: a design-based scaling factor below this is extreme (a rule of thumb of this tool: clusters inflate variances)
+LOW_SCALING = 0.5
+
+
+def dominant_cluster_problem(design, dominant, robust=None):
+    """The caution on a design-based covariance that one cluster dominates (data.sample_design.DominantCluster.large)
+    or a design-based test whose scaling is extreme (:func:`extreme_scaling`): why, and the cluster with the largest
+    share of the design effect of the statistics, with that share; None when neither holds."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.language.names import written_name
+
+    extreme = extreme_scaling(robust)  # under clusters every robust test is a design-based one
+    large = dominant is not None and dominant.large
+    if not extreme and not large:
+        return None
+    column = design.columns.cluster
+    cluster = ""
+    if dominant is not None:
+        cluster = (f"{' ' if extreme else ''}Of the {dominant.clusters} clusters of '{column}', '{dominant.name}' "
+                   f"holds {dominant.share:.0%} of the design effect of the statistics the fit rests on (each "
+                   f"statistic's design-based variance over its variance with the rows taken as independent, summed; "
+                   f"mean design effect {dominant.design_effect:.2f}), where each would hold about "
+                   f"{1 / dominant.clusters:.1%} if they were alike")
+        cluster += (f" (more than {DOMINANT_SHARE:.0%}, more than all the other clusters together, is taken as "
+                    f"dominating, a rule of thumb of this tool, not a law): the cluster-robust standard errors and the "
+                    f"design-based test describe mostly that one cluster's rows." if large else ".")
+    singled = dominant is not None and dominant.share > DOMINANT_TIMES / dominant.clusters
+    if singled:
+        keep = f"{written_name(column)} != {dominant.name}"
+        advice = Note(("look at that cluster's rows (the same answer throughout, a block of careless or wrongly "
+                       "entered answers); fit again without it (", Command(f'{Option.KEEP} "{keep}"',
+                                                                          "leaving that cluster out"),
+                       ") and compare, and report both fits if its rows are genuine answers."))
+    else:
+        advice = Note(("judge the fit by the SRMR and the residual correlations, and compare with a fit without ",
+                       Command(f"{Option.CLUSTER}", "the clusters"), "."))
+    return Problem(ProblemKind.DESIGN_DOMINATED, (), round(dominant.share, 3) if dominant is not None else None,
+                   extreme + cluster, advice)
+
+
+def _dominant(moments, result: FitResult):
+    """The cluster holding the largest share of the design effect of the fit's statistics, over its groups'
+    ``moments`` (inference.design.dominant_cluster): ordinal moments carry theirs from their influence
+    functions; rows of continuous items give theirs from the rows' contributions to the covariances, or with
+    gaps from their scores in the saturated means and covariances (inference.robust_missing.moment_scores)."""
+    from cfa_tool.inference.design import dominant_cluster, moment_contributions
+
+    found = []
+    for m in moments:
+        if getattr(m, "dominant_cluster", None) is not None:
+            found.append(m.dominant_cluster)
+            continue
+        rows, design = getattr(m, "rows", None), getattr(m, "design", None)
+        if rows is None or design is None or design.clusters is None:
+            continue
+        if np.isnan(rows).any():  # the rows' scores in the saturated moments, as the Yuan-Bentler meat reads them
+            from cfa_tool.data.patterns import pattern_data
+            from cfa_tool.inference.robust_missing import moment_scores
+
+            contributions = moment_scores(pattern_data(rows), np.asarray(m.means), np.asarray(m.covariance))
+        else:
+            contributions = moment_contributions(rows, design, False)
+        found.append(dominant_cluster(contributions, design))
+    found = [d for d in found if d is not None]
+    return max(found, key=lambda d: d.share) if found else None
+
+
+def with_design(result: FitResult, design, moments=()) -> FitResult:
+    """The result stating the design it was fitted under (status line, JSON, methods paragraph, cautions);
+    ``moments``: each group's moments the fit was made from, for the cautions that read the rows' statistics
+    (one cluster dominating the design effect) and an ordinal fit's thresholds."""
     from cfa_tool.assessment.admissibility import free_parameters
 
-    problems = result.problems + design_problems(design, free_parameters(result))  # one count for every command
+    thresholds = (sum(len(t) for t in moments[0].thresholds) if result.method.ordinal and not result.method.thresholds
+                  and len(moments) == 1 and hasattr(moments[0], "thresholds") else 0)
+    problems = result.problems + design_problems(design, free_parameters(result), thresholds,
+                                                 _dominant(moments, result) if design.columns.cluster else None,
+                                                 result.robust)  # one count for every command
     lone = design.lone_caution()  # conservative, not optimistic: a note, and the methods paragraph says it
     warnings = result.warnings + ((lone,) if lone and lone not in result.warnings else ())
     fit = result.fit
@@ -1782,7 +1894,8 @@ def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: se
         result = ordinal_fitting.fit_ordinal_groups(spec, groups, fit_options, method, group)
         result = replace(result, warnings=tuple(notes) + result.warnings)
     if design is not None and result.converged:
-        result = with_design(result, design_summary(frame, design, [m for _, m in groups], [g for g, _ in groups]))
+        result = with_design(result, design_summary(frame, design, [m for _, m in groups], [g for g, _ in groups]),
+                             [m for _, m in groups])
     return result
 
 
@@ -1869,7 +1982,8 @@ def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, ref
         raise OptionError(f"continuous items beside ordinal ones in several groups are not yet fitted with a sampling "
                           f"design, so the {design.names[0][0]} column '{design.names[0][1]}' cannot apply; declare "
                           f"every item ordinal, fit the groups without the design, or fit one group at a time")
-    refuse_shared_clusters(frame, design, group, source, "the least-squares fit of ordinal items")
+    refuse_shared_clusters(frame, design, group, source, "the least-squares fit of ordinal items",
+                           continuous_instead=True)
     groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group, pairwise,
                                              design, continuous)
     groups = [(label, ordinal_design_covariance(m)) for label, m in groups]
@@ -2130,15 +2244,16 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         refusals = ordinal_refusals(frame, spec.observed_names, source,
                                     frozenset(x for x in spec.observed_names if x not in ordinal_items), group,
                                     reference_group)
+    thresholds = 0  # of an ordinal fit in one group, estimated first: the design-based covariance carries them too
     if ordinal_items and not refusals:  # the same data checks as the fit (correlations, duplicates, the design's)
         if group is not None:
             ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise=True, design=design)
         else:
             from cfa_tool.data.polychoric import ordinal_moments
 
-            ordinal_moments(frame, spec.observed_names, source,
-                            frozenset(x for x in spec.observed_names if x not in ordinal_items), pairwise=True,
-                            design=design)
+            thresholds = sum(len(t) for t in ordinal_moments(
+                frame, spec.observed_names, source, frozenset(x for x in spec.observed_names if x not in ordinal_items),
+                pairwise=True, design=design).thresholds)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
     sparse, too_small = (), ()
     try:  # the saturated (EM) moments once; where they cannot be estimated, whether the gaps are why
@@ -2171,6 +2286,11 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     small = too_small + tuple(p for p in small if p.group not in named)
     notes += small_notes
     sample_design = design_summary(frame, design, [m for _, m in groups], [g for g, _ in groups]) if design is not None else None
+    carried = table.n_free  # the parameters a design-based covariance carries, counted as the fit counts them
+    if thresholds and sample_design is not None:  # an ordinal fit's latent responses: residual variances not free
+        from cfa_tool.pipeline.ordinal import ordinal_spec
+
+        carried = build_parameter_table(ordinal_spec(spec)[0]).n_free
     answered = _labelled(frame, group)[list(spec.observed_names)].notna()
     every_item = answered.all(axis=1).to_numpy()
     # complete rows that are complete only by values that look like no answers (the cautions' rows)
@@ -2189,11 +2309,11 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                    float(w[none].sum()))
     return CheckResult(spec, source, len(answered), complete, len(answered) - complete - odd_complete - empty, empty,
                        coverage, labels, bool(ordinal_items), sample_design,
-                       sample_design.caution(table.n_free) if sample_design is not None else None,
+                       sample_design.caution(carried, thresholds) if sample_design is not None else None,
                        tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
                        sparse + data_problems(loaded, spec, group, design, coverage=coverage, n_obs=len(answered))
                        + small
-                       + (design_problems(sample_design, table.n_free) if sample_design is not None else ()),
+                       + (design_problems(sample_design, carried, thresholds) if sample_design is not None else ()),
                        len(frame) - len(answered), odd_complete,
                        len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted,
                        group_rows=tuple(m.n_obs for _, m in groups) if labels else (),

@@ -258,7 +258,7 @@ def fit_rows(result) -> list[FitRow]:
                       "p > .05 (very sensitive to N)", chi),
                  _row("CFI", fit_index_text("cfi", f.cfi), guide_text("cfi"), ("CFI", f.cfi)),
                  _row("TLI", fit_index_text("tli", f.tli), guide_text("tli"), ("TLI", f.tli)),
-                 _row("RMSEA [90% interval]", f"{fit_index_text('rmsea', f.rmsea)} [{unit(low)}, {unit(high)}]",
+                 _row("RMSEA [90% interval]", _with_interval(fit_index_text('rmsea', f.rmsea), low, high),
                       guide_text("rmsea"),
                       ("RMSEA", f.rmsea, None, None, low, high))]
         if not missing(f.rmsea_p_close) and r is None:
@@ -270,10 +270,12 @@ def fit_rows(result) -> list[FitRow]:
     else:
         rlow, rhigh = r.rmsea_robust_ci90
         label, text, guide = _correction_row(r)
+        # a value column holds figures, never a sentence: a cell wider than the terminal's room beside the labels
+        # would be cut, and the figures under it with it (new-user trial s18); why it is missing goes to the guide
         rows = [_row(f"Scaled chi-square ({r.label})", f"{r.chi_square_scaled:.3f} on {r.df} df, "
-                     f"p {p_phrase(r.p_value_scaled)}" if not missing(r.chi_square_scaled) else
-                     "not computed: its scaling factor is not positive (see the caution first)",
-                     "the test to read for these data" if not missing(r.chi_square_scaled) else "",
+                     f"p {p_phrase(r.p_value_scaled)}" if not missing(r.chi_square_scaled) else "not computed",
+                     "the test to read for these data" if not missing(r.chi_square_scaled) else
+                     "its scaling factor is not positive: see the caution first",
                      (f"Scaled chi-square ({r.label})", r.chi_square_scaled, r.df, r.p_value_scaled)),
                 _row(label, text, guide, *[(name.capitalize(), value) for name, value in r.pieces]),
                 _row("Robust CFI / TLI", NOT_COMPUTED_HERE if missing(r.cfi_robust) and r.not_computed else
@@ -281,8 +283,8 @@ def fit_rows(result) -> list[FitRow]:
                      guide_text("cfi"),
                      ("Robust CFI", r.cfi_robust), ("Robust TLI", r.tli_robust)),
                 _row("Robust RMSEA [90% interval]", NOT_COMPUTED_HERE if missing(r.rmsea_robust) and r.not_computed else
-                     f"{fit_index_text('rmsea', r.rmsea_robust)} [{unit(rlow)}, {unit(rhigh)}]", guide_text("rmsea"),
-                     ("Robust RMSEA", r.rmsea_robust, None, None, rlow, rhigh)),
+                     _with_interval(fit_index_text('rmsea', r.rmsea_robust), rlow, rhigh),
+                     guide_text("rmsea"), ("Robust RMSEA", r.rmsea_robust, None, None, rlow, rhigh)),
                 srmr] + [row.unadjusted() for row in plain if f.df > 0]
     rows.append(_row("Baseline (independence) chi-square", f"{f.baseline_chi_square:.3f} on {f.baseline_df} df", "",
                      ("Baseline (independence) chi-square", f.baseline_chi_square, f.baseline_df)))
@@ -292,6 +294,14 @@ def fit_rows(result) -> list[FitRow]:
                       ("AIC", f.aic), ("BIC", f.bic), ("Adjusted BIC", f.sabic))]
     rows.append(_row("Free parameters", str(f.n_free_parameters), "", ("Free parameters", f.n_free_parameters)))
     return rows
+
+
+def _with_interval(text: str, low, high) -> str:
+    """An index's value and its 90% interval, '.070 [.067, .073]'; the value alone when the interval has no bounds
+    (never an empty '[, ]')."""
+    if missing(low) and missing(high):
+        return text
+    return f"{text} [{unit(low)}, {unit(high)}]"
 
 
 def fit_table(result) -> ReportTable:

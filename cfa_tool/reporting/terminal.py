@@ -85,12 +85,12 @@ class _ColumnParts:
             for j in sorted(columns, key=lambda j: whole[j] - part[j]):  # headings whole while the room lasts
                 if report.align[j] == "r" and sum(part.values()) - part[j] + whole[j] <= room:
                     part[j] = whole[j]
-            yield self._table(report, columns, part)
+            yield self._table(report, columns, part, room)
         if keyed is not None:
             yield _key(keyed[1])
 
     @staticmethod
-    def _table(report: ReportTable, columns: list[int], widths: dict[int, float]) -> Table:
+    def _table(report: ReportTable, columns: list[int], widths: dict[int, float], room: int) -> Table:
         table = _table("", [(report.columns[j], "left" if report.align[j] == "l" else "right") for j in columns])
         for column, j in zip(table.columns, columns):
             # text wraps at its column's width, within words only when a word is longer (never cut short);
@@ -98,7 +98,8 @@ class _ColumnParts:
             column.overflow = "fold"
             column.max_width = max(1, int(widths[j]) - CELL_PADDING)
             if report.align[j] == "r":  # a number column's heading wraps between its words, its numbers never
-                column.min_width = max([len(row[j]) for row in report.rows] or [1])
+                column.min_width = _least_width(report, j, room - sum(
+                    min(widths[i], LEAST_TEXT + CELL_PADDING) for i in columns if i != j) - CELL_PADDING)
         faint = set(report.faint)
         # a part of a matrix of the items: the rows of its columns' items and those with a value in them
         shown = set(range(len(report.rows))) if not report.matrix else {
@@ -113,6 +114,18 @@ class _ColumnParts:
 
 
 CELL_PADDING = 3  # characters a column takes beside its text: padding and the gap to the next column
+
+
+def _least_width(report: ReportTable, j: int, room: float) -> int:
+    """The narrowest a number column ``j`` may be drawn: its longest cell, kept on one line; or, when that is wider
+    than the ``room`` left beside the other columns at their narrowest, its longest word, so that a cell of several
+    figures ('2906.584 / 2951.029 / 3000.105', '610.472 on 98 df, p < .001') wraps between them instead of being
+    cut at the terminal's edge with the figures under it (new-user trial s18); a figure is never broken."""
+    cells = [row[j] for row in report.rows]
+    longest = max(map(len, cells), default=1)
+    if longest <= room:
+        return max(longest, 1)
+    return max([len(word) for cell in cells for word in cell.split()] or [1])
 
 
 def _widths(report: ReportTable, wrapped_headings: bool = False) -> list[float]:

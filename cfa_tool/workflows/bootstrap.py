@@ -617,7 +617,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
         result = converged(fit_moments(spec, moments, options))
     result = replace(result, warnings=tuple(notes) + result.warnings)  # what reading and the row filters did
     if design is not None:
-        result = with_design(result, design_summary(frame, design, [moments]))
+        result = with_design(result, design_summary(frame, design, [moments]), [moments])
     result = with_odd_values(result, loaded, None, spec, design)
     order = [moments.names.index(n) for n in result.observed]
     return bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, scheduler,

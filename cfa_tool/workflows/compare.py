@@ -226,7 +226,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                                                      if group is not None else None), loaded, missing_codes)
             mine = tuple(x for x in few if x in spec.observed_names)  # the methods text names them
             result = replace(result, data=replace(result.data, few_categories=mine)) if mine else result
-            results.append(with_design(result, design_summary(complete, design, [m for _, m in groups], [g for g, _ in groups]))
+            results.append(with_design(result, design_summary(complete, design, [m for _, m in groups], [g for g, _ in groups]),
+                                       [m for _, m in groups])
                            if design is not None else result)
         reference_group_applies(results, reference_group)
         notes = list(notes) + reference_note(results, complete, group, reference_group)

@@ -861,7 +861,7 @@ class NormalLadder:
 
     def assess(self, spec, groups, est, options, group_column):
         result = assess(spec, groups, est, options, group_column=group_column)
-        return with_design(result, self.design) if self.design is not None else result
+        return with_design(result, self.design, [m for _, m in groups]) if self.design is not None else result
 
     def difference(self, est, result, previous, level, previous_level) -> DifferenceTest:
         """The scaled difference (Satorra & Bentler 2001) when the fits carry a robust test, as the report says,
@@ -901,7 +901,8 @@ class OrdinalLadder:
         except (NotIdentified, UnboundedSolution) as failure:  # the step could not be estimated: the ladder stops
             # there with the steps before it reported, as compare reports such a model among the others
             return unestimated_ordinal_result(spec, groups, est, options, group_column, self.method, failure)
-        return with_design(result, self.design) if self.design is not None and result.converged else result
+        return (with_design(result, self.design, [m for _, m in groups]) if self.design is not None
+                and result.converged else result)
 
     def difference(self, est, result, previous, level, previous_level) -> DifferenceTest:
         from cfa_tool.pipeline.ordinal import ordinal_difference

@@ -86,7 +86,8 @@ def fit_ordinal_models(specs: Sequence[Spec], complete: pd.DataFrame, source: st
                                                      n_free_parameters=result.fit.n_free_parameters - saturated))
             result = _counted_as_fit(result, est.table.n_free, est.table.n_free - saturated, groups[0][1].n_obs)
         if design is not None and result.converged:
-            result = with_design(result, design_summary(complete, design, [m for _, m in groups], [g for g, _ in groups]))
+            result = with_design(result, design_summary(complete, design, [m for _, m in groups], [g for g, _ in groups]),
+                                 [m for _, m in groups])
         results.append(result)
     return estimations, results
 

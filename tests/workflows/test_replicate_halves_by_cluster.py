@@ -158,3 +158,54 @@ def test_halves_drawn_by_cluster_are_saved_and_read_back_as_drawn(clustered, tmp
     assert "--cluster unit --strata school" in str(refused.value)
     with pytest.raises(DataError, match="holds halves drawn by the column 'unit', which"):  # read under another name
         cfa_tool.fit(THREE_FACTORS, str(data), rename={"unit": "household"}, keep=[RandomHalf(str(halves), "A")])
+
+
+@pytest.mark.parametrize("by", [("--cluster", "unit", "--strata", "school"), ("--strata", "school")])
+def test_halves_drawn_by_labelled_codes_of_a_stata_file_are_read_back(clustered, tmp_path, capsys, by):
+    # new-user trial s18: a Stata file whose cluster and strata columns hold codes with value labels; the halves file
+    # recorded the labels ('School 01'), --half compared the codes ('1') and refused, advising to write the halves
+    # again, which wrote the same file.  Written and read by one rule: the codes read as their labels.
+    pyreadstat = pytest.importorskip("pyreadstat")
+    data, halves, model = tmp_path / "d.dta", tmp_path / "h.csv", tmp_path / "m.cfa"
+    model.write_text(THREE_FACTORS)
+    units = {u: k + 1 for k, u in enumerate(dict.fromkeys(clustered["unit"]))}
+    schools = {s: k + 1 for k, s in enumerate(dict.fromkeys(clustered["school"]))}
+    coded = clustered[[f"x{i}" for i in range(1, 10)]].assign(unit=clustered["unit"].map(units),
+                                                               school=clustered["school"].map(schools))
+    pyreadstat.write_dta(coded, str(data), variable_value_labels={
+        "unit": {code: f"Unit {name}" for name, code in units.items()},
+        "school": {code: f"School {name}" for name, code in schools.items()}})
+    code, _, err = run_cli(["replicate", model, "--data", data, "--seed", "5", *by, "--halves-file", halves], capsys)
+    assert code == 0, err
+    import pandas as pd
+
+    saved = pd.read_csv(halves, keep_default_na=False)
+    assert saved["stratum"].str.startswith("School ").all()  # the labels are what the file records
+    for half in ("A", "B"):
+        kept = cfa_tool.fit(THREE_FACTORS, str(data), keep=[RandomHalf(str(halves), half)])
+        assert kept.n_obs == int((saved["half"] == half).sum())  # the rows drawn into that half, read back
+    code, out, err = run_cli(["explore", "--data", data, "--half", halves, "A", "--factors", "3"], capsys)
+    assert code == 0, err
+
+
+def test_a_half_of_clusters_is_said_to_be_one_in_the_notes_and_the_methods_paragraph(clustered, tmp_path, capsys):
+    # new-user trial s18: a half of whole schools was described as "600 of the 1200 rows split at random into two
+    # halves" and "the B half of two random halves (seed 11; listed in /tmp/.../h.csv)": a reader could not tell that
+    # the confirmation half holds other schools, and the paragraph named a local folder
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    model, data, halves = tmp_path / "m.cfa", tmp_path / "d.csv", tmp_path / "h.csv"
+    model.write_text(THREE_FACTORS)
+    clustered.to_csv(data, index=False)
+    code, _, err = run_cli(["replicate", model, "--data", data, "--cluster", "unit", "--strata", "school", "--seed",
+                            "5", "--halves-file", halves], capsys)
+    assert code == 0, err
+    result = cfa_tool.fit(THREE_FACTORS, str(data), keep=[RandomHalf(str(halves), "B")])
+    paragraph = " ".join(methods_paragraph(result).split())
+    assert ("the row fell in the B half of two random halves of the clusters of unit (whole clusters to each half, "
+            "within the strata of school; seed 5; listed in h.csv)") in paragraph
+    assert str(tmp_path) not in paragraph
+    notes = " ".join(" ".join(str(w).split()) for w in result.warnings)
+    assert "rows whose clusters of unit were drawn at random into two halves, every row of a cluster in one half, " \
+           "within the strata of school" in notes
+    assert "split at random into two halves" not in notes
