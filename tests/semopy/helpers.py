@@ -48,3 +48,18 @@ def _compare(ours: dict, theirs: dict) -> None:
         assert ours[key][0] == pytest.approx(est, rel=1e-3, abs=1e-6), key
         if np.isfinite(se):
             assert ours[key][1] == pytest.approx(se, rel=1e-3), key
+
+
+def observed_information_compared(rows, theirs: dict) -> int:
+    """Each of our estimate rows with a standard error (``rows``) against semopy's estimate and standard error from
+    its observed information (``theirs``: :func:`_semopy_lookup`); the number compared.  semopy's estimates stop near
+    1e-6 of the minimum (trust-constr) and its Hessian is a numerical one (numdifftools), hence the tolerances."""
+    compared = 0
+    for r in rows:
+        names = r.variables if len(r.variables) == 2 else r.variables * 2  # a variance: the variable twice
+        key = ("loading", *r.variables) if r.kind == "loading" else ("cov", *sorted(names))
+        estimate, se = theirs[key]
+        assert r.estimate == pytest.approx(estimate, rel=1e-4, abs=1e-6), key
+        assert r.se == pytest.approx(se, rel=1e-5), key
+        compared += 1
+    return compared
