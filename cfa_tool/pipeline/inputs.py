@@ -792,6 +792,9 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})
+    from cfa_tool.pipeline.column_codes import column_code_problems
+
+    found += column_code_problems(loaded, group, design)  # no-answer codes kept in the columns choosing rows
     found += odd_value_problems(loaded, group, design, helpers, listwise) + few_answers_problems(names, coverage or {}, n_obs, loaded,
                                                                               group, listwise)
     if group is not None and group in loaded.frame.columns:  # rows without a group label: the rule of _labelled
