@@ -134,6 +134,9 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the rows scored: ids that name several rows, in a file meant to be merged by id
     REPEATED_IDS_SCORED = ("ids that name several rows", "repeated ids", False)
     ANSWERS_BEYOND_FITTED = ("answers beyond the fitted rows", "answers beyond the fit's", False)
+    # not of the solution but of the rows scored: an item that runs against its factor in the scored file while its
+    # loading in the earlier fit runs with it (coded the other way round: workflows.factor_scores)
+    ITEM_AGAINST_FITTED_LOADING = ("item against its fitted loading", "coded the other way?", False)
     # not of the solution but of the rows scored: a factor score of a row that answered none of the factor's items,
     # which rests on the other factors' items alone (through the factors' correlations)
     SCORED_WITHOUT_OWN_ANSWERS = ("scores without the factor's own answers", "scored without its items", False)
@@ -416,6 +419,8 @@ class Problem:
             K.GROUP_WEIGHTED_OUT: "a group every row of which has weight 0, left out of the analysis",
             K.UNKNOWN_GROUPS_SCORED: "rows in groups the earlier fit does not have, which get no scores",
             K.ANSWERS_BEYOND_FITTED: "answers outside the range of the rows the earlier fit analysed",
+            K.ITEM_AGAINST_FITTED_LOADING: "items of the scored file that run against their factor, unlike their "
+                                           "loadings in the earlier fit (coded the other way round?)",
             K.SCORED_WITHOUT_OWN_ANSWERS: "factor scores of rows that answered none of the factor's items",
             K.FACTOR_SCORES_LEFT_EMPTY: "factor scores left empty, as asked, for rows that answered none of the "
                                         "factor's items",
