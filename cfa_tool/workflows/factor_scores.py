@@ -794,7 +794,10 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                   f"run 'fit' to see its problems")
     # the data's cautions as fit gives them (rows that gave one answer to every item, reverse-worded ones included,
     # named by their ids: scored like every row)
-    result = api.with_odd_values(result, loaded, group, spec, design, ids_by_row_number(ids, read_frame))
+    # and what was read as no answer (codes given, values the file marks so), which the methods paragraph names as
+    # fit's does (new-user trial s18: the scores' paragraph left out the codes 8 and 9)
+    result = api.with_missing_reading(api.with_odd_values(result, loaded, group, spec, design,
+                                                          ids_by_row_number(ids, read_frame)), loaded, missing_codes)
     chosen_by = api.reference_note(result, frame, group, reference_group)  # as fit names the reference group
     if chosen_by:
         result = replace(result, warnings=tuple(result.warnings) + tuple(chosen_by))
