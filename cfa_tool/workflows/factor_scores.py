@@ -1070,7 +1070,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     # the cautions about the scored file computed on it, first; the earlier fit's own said to be about the fit
     own = api.odd_value_problems(api.analysed_odd_values(loaded, spec, group), group) + api.same_answer_problems(
         api._labelled(frame, group) if group is not None else frame, spec, ids_by_row_number(ids, read_frame),
-        scored_only=True)
+        scored_only=True, by_loadings=api.reversed_by_loadings(result))
     # (the fit's own file scored again: its findings of the same kinds are the scored file's, said once)
     again = {p.kind for p in own} if (source, len(read_frame)) == (result.data.source, result.data.rows_read) else set()
     result = replace(result, problems=own + tuple(replace(p, explanation=ABOUT_THE_FIT + p.explanation)
