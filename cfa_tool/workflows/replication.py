@@ -660,8 +660,12 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
                      rows_in_file=len(loaded.read_frame) if loaded.read_frame is not None else None,
                      cluster=cluster, strata=strata, units=units, labels=labels)
     # the rows left out before the split (the halves hold complete rows only): fit's caution, after the data's
-    problems = data_problems(loaded, spec, listwise=rows.complete_only) + _left_out(len(frame) - split, len(frame), source,
-                                                       MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
+    from cfa_tool.pipeline.column_codes import column_code_problems
+
+    # (a cluster or strata column the halves are drawn by that keeps a no-answer code: one cluster of its rows)
+    problems = tuple(dict.fromkeys(data_problems(loaded, spec, listwise=rows.complete_only)
+                                   + column_code_problems(loaded, None, design))) + _left_out(
+        len(frame) - split, len(frame), source, MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
     # what the file read as no answer kept with each half's fit, as fit keeps it (with_missing_reading; the filters,
     # which chose the rows before the split, are the split's: SplitRows names them)
     unfiltered = replace(loaded, row_filters=())

@@ -63,3 +63,11 @@ def test_ordinary_filter_and_cluster_columns_say_nothing(with_age):
     data["school"] = np.arange(len(data)) % 40 + 1.0
     result = cfa_tool.fit(TWO, data, keep=["age <= 30"], cluster="school")
     assert not _codes(result)
+
+
+def test_replicate_s_halves_drawn_by_such_a_cluster_column_say_it(with_age, rider_model):
+    from cfa_tool.workflows.replication import split_half
+
+    pair = split_half(rider_model, with_age, seed=2, cluster="school")
+    said = [str(p.explanation) for p in pair[0].data_problems if p.kind is ProblemKind.VALUES_NOT_ANSWERS]
+    assert any("The cluster column 'school'" in s and "holds -99 in 60 of the 480 rows analysed" in s for s in said)
