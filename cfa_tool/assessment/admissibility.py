@@ -69,6 +69,9 @@ class ProblemKind(enum.Enum):
     GROUPS_SHARE_STRATA = ("groups share strata", "groups share strata", False)
     # not of the solution but of the data: values in item columns that look like no answers (data.odd_values)
     VALUES_NOT_ANSWERS = ("values that look like no answers", "values that look like no answers", False)
+    # not of the solution but of the data: a no-answer code that a row filter's, group, cluster or strata column keeps
+    # as a value (pipeline.column_codes; --missing-codes applies to the items only)
+    CODE_KEPT_AS_VALUE = ("no-answer code kept in a column choosing rows", "code kept as a value", False)
     # values the data file itself marks as no answer, read as missing (data.non_answers): said, not a problem
     VALUES_READ_AS_MISSING = ("values the file marks as no answer", "read as missing", False)
     # not of the solution but of the data: fewer rows than the model has free parameters (one group)
@@ -395,6 +398,7 @@ class Problem:
             K.DESIGN_LABELS_BY_CASE: "cluster or stratum labels that differ only in upper and lower case, analysed "
                                      "as different clusters or strata",
             K.VALUES_NOT_ANSWERS: "values in the data that look like no answers (a missing-value code or a totals row)",
+            K.CODE_KEPT_AS_VALUE: "a no-answer code kept as a value in a column that chooses or groups the rows",
             K.VALUES_READ_AS_MISSING: "values that the data file marks as no answer (by their value labels, as declared "
                                       "missing values, or as text such as 'refused') were treated as missing",
             K.FEW_ANSWERS: "items answered by few of the rows",

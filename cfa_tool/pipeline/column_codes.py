@@ -97,7 +97,7 @@ def _caution(loaded: LoadedData, column: str, said: list[str], value: float, mas
     advice = Note(("if it means no answer there, leave those rows out with a row filter",
                    Command(f" ({Option.KEEP.given(keep)})", f" keeping the rows where {keep}"),
                    "; if it is a real value, nothing needs doing."))
-    return Problem(ProblemKind.VALUES_NOT_ANSWERS, (), float(count), text, advice)
+    return Problem(ProblemKind.CODE_KEPT_AS_VALUE, (), float(count), text, advice)
 
 
 def _what_it_did(role: str, count: int) -> str:

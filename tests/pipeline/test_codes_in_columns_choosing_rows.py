@@ -28,7 +28,7 @@ def with_age(rider_demo):
 
 
 def _codes(result) -> list[str]:
-    return [str(p.explanation) for p in result.problems if p.kind is ProblemKind.VALUES_NOT_ANSWERS]
+    return [str(p.explanation) for p in result.problems if p.kind is ProblemKind.CODE_KEPT_AS_VALUE]
 
 
 def test_a_row_filter_that_keeps_rows_coded_minus_99_is_cautioned_first(with_age):
@@ -37,7 +37,7 @@ def test_a_row_filter_that_keeps_rows_coded_minus_99_is_cautioned_first(with_age
     [said] = [c for c in _codes(result) if "'age'" in c]
     assert f"holds -99 in 40 of the {kept} rows analysed" in said
     assert "far outside its other values (18 to 30)" in said and "kept those 40 rows as meeting it" in said
-    assert result.problems[0].kind is ProblemKind.VALUES_NOT_ANSWERS  # first: before the solution's own
+    assert result.problems[0].kind is ProblemKind.CODE_KEPT_AS_VALUE  # first: before the solution's own
     assert "age != -99" in str(result.problems[0].advice)
 
 
@@ -69,5 +69,5 @@ def test_replicate_s_halves_drawn_by_such_a_cluster_column_say_it(with_age, ride
     from cfa_tool.workflows.replication import split_half
 
     pair = split_half(rider_model, with_age, seed=2, cluster="school")
-    said = [str(p.explanation) for p in pair[0].data_problems if p.kind is ProblemKind.VALUES_NOT_ANSWERS]
+    said = [str(p.explanation) for p in pair[0].data_problems if p.kind is ProblemKind.CODE_KEPT_AS_VALUE]
     assert any("The cluster column 'school'" in s and "holds -99 in 60 of the 480 rows analysed" in s for s in said)
