@@ -76,6 +76,9 @@ class ProblemKind(enum.Enum):
     GROUPS_SHARE_STRATA = ("groups share strata", "groups share strata", False)
     # not of the solution but of the data: values in item columns that look like no answers (data.odd_values)
     VALUES_NOT_ANSWERS = ("values that look like no answers", "values that look like no answers", False)
+    # not of the solution but of the data: a no-answer code that a row filter's, group, cluster or strata column keeps
+    # as a value (pipeline.column_codes; --missing-codes applies to the items only)
+    CODE_KEPT_AS_VALUE = ("no-answer code kept in a column choosing rows", "code kept as a value", False)
     # values the data file itself marks as no answer, read as missing (data.non_answers): said, not a problem
     VALUES_READ_AS_MISSING = ("values the file marks as no answer", "read as missing", False)
     # not of the solution but of the data: fewer rows than the model has free parameters (one group)
@@ -141,6 +144,9 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the rows scored: ids that name several rows, in a file meant to be merged by id
     REPEATED_IDS_SCORED = ("ids that name several rows", "repeated ids", False)
     ANSWERS_BEYOND_FITTED = ("answers beyond the fitted rows", "answers beyond the fit's", False)
+    # not of the solution but of the rows scored: an item that runs against its factor in the scored file while its
+    # loading in the earlier fit runs with it (coded the other way round: workflows.factor_scores)
+    ITEM_AGAINST_FITTED_LOADING = ("item against its fitted loading", "coded the other way?", False)
     # not of the solution but of the rows scored: a factor score of a row that answered none of the factor's items,
     # which rests on the other factors' items alone (through the factors' correlations)
     SCORED_WITHOUT_OWN_ANSWERS = ("scores without the factor's own answers", "scored without its items", False)
@@ -406,6 +412,7 @@ class Problem:
             K.DESIGN_LABELS_BY_CASE: "cluster or stratum labels that differ only in upper and lower case, analysed "
                                      "as different clusters or strata",
             K.VALUES_NOT_ANSWERS: "values in the data that look like no answers (a missing-value code or a totals row)",
+            K.CODE_KEPT_AS_VALUE: "a no-answer code kept as a value in a column that chooses or groups the rows",
             K.VALUES_READ_AS_MISSING: "values that the data file marks as no answer (by their value labels, as declared "
                                       "missing values, or as text such as 'refused') were treated as missing",
             K.FEW_ANSWERS: "items answered by few of the rows",
@@ -430,6 +437,8 @@ class Problem:
             K.GROUP_WEIGHTED_OUT: "a group every row of which has weight 0, left out of the analysis",
             K.UNKNOWN_GROUPS_SCORED: "rows in groups the earlier fit does not have, which get no scores",
             K.ANSWERS_BEYOND_FITTED: "answers outside the range of the rows the earlier fit analysed",
+            K.ITEM_AGAINST_FITTED_LOADING: "items of the scored file that run against their factor, unlike their "
+                                           "loadings in the earlier fit (coded the other way round?)",
             K.SCORED_WITHOUT_OWN_ANSWERS: "factor scores of rows that answered none of the factor's items",
             K.FACTOR_SCORES_LEFT_EMPTY: "factor scores left empty, as asked, for rows that answered none of the "
                                         "factor's items",

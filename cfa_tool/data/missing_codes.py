@@ -141,7 +141,8 @@ def apply_missing_codes(frame: pd.DataFrame, codes, source: str | Path, items: C
                 cells = int((frame[column] == code).sum())
                 if cells:
                     kept.append((column, code, cells))
-    return frame, (missing_codes_note(source, codes, read_as_none),) + (
+    looked = "" if mine is None or read_as_none else "of the items"  # the cells looked at: the others keep codes (below)
+    return frame, (missing_codes_note(source, codes, read_as_none, looked),) + (
         (kept_codes_note(source, kept, filters),) if kept else ())
 
 

@@ -90,6 +90,9 @@ class LoadedData:
     #: the sampling design's weights of ``frame``'s rows, parsed once (data.sample_design.design_weights) for every
     #: reader of them; None without weights or before they are parsed
     weights: np.ndarray | None = None
+    #: the numeric codes given with --missing-codes, read as no answer in the item columns only: the columns that
+    #: choose and group the rows keep them as values, which pipeline.column_codes names first
+    missing_codes: tuple[float, ...] = ()
 
     def column_hint(self) -> str:
         """Words for a message about a missing column: the columns read under new names (a name the model uses may
@@ -231,7 +234,8 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
         code_notes = tuple(code_notes) + (missing_codes_note(where, unused, [], "of the items"),)
     if code_notes:
         loaded = replace(loaded, notes=loaded.notes + tuple(code_notes))
-    return loaded
+    numbers = tuple(float(c) for c in missing_codes if isinstance(c, (int, float)) and not isinstance(c, bool))
+    return replace(loaded, missing_codes=numbers) if numbers else loaded
 
 
 def sheet_of_each(sources, sheet: str | None) -> tuple[str | None, ...]:

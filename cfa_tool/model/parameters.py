@@ -900,18 +900,26 @@ def _settings_for(spec: Spec, label: str | None, starts: bool = True) -> dict[tu
 
 
 def given_values_possible(spec: Spec, table: ParameterTable, values: np.ndarray, group: int = 0,
-                          label: str | None = None, starts: bool = True) -> None:
+                          label: str | None = None, starts: bool = True, search_start: bool = False) -> None:
     """An error at the 'start' or 'fix' statement (file, line and column, as a model error shows them) whose value
     makes the population of group ``label`` (None: of a model of one group) impossible, with the parameter and the
     value: a variance below zero, or a covariance larger than the product of the two standard deviations that
     population has (a correlation beyond +/-1; Horn & Johnson 2013, Observation 7.1.2).  ``values``: every table
-    entry's value (StructuredModel.entry_values), of which group ``group``'s are read."""
+    entry's value (StructuredModel.entry_values), of which group ``group``'s are read.  ``search_start``: the values
+    are a fit's start values, its free variances taken from the data, at which the search could not begin (hostile
+    trial s18: 'fix covariance(a, b) = 5' between factors of variance about 0.5 was blamed on the start values)."""
     entry = {(par.kind, par.variables): float(v) for par, v in zip(table.parameters, values) if par.group == group}
     settings = _settings_for(spec, label, starts)
     whose = "" if label is None else f" of group '{printable(label)}'"
 
     def fail(ref, how: str, words: str) -> ModelError:
         where = "" if label is None or ref.group is not None else f" (a value for every group, here group '{label}')"
+        if search_start:
+            return ModelError(f"the model{whose} cannot hold a covariance larger than the variances allow: {ref}{where} "
+                              f"is {how} {words} (the variances as the data give them at the start of the search, "
+                              f"where the search could not begin); fix it at a value within those bounds, or scale "
+                              f"both by their variances and fix a correlation between -1 and 1",
+                              ref.location, spec.source_line(ref.location))
         return ModelError(f"the {_values(how)} make the population covariance matrix{whose} impossible: {ref}{where} "
                           f"is {how} {words}", ref.location, spec.source_line(ref.location))
 
@@ -932,6 +940,15 @@ def given_values_possible(spec: Spec, table: ParameterTable, values: np.ndarray,
             correlation = f", a correlation of {covariance / bound:.2f}" if bound > 0 else ""
             raise fail(ref, how, f"{value:g}, beyond what the variances of {a} ({va:.3g}) and {b} ({vb:.3g}) allow"
                                  f"{correlation}")
+
+
+def fixed_values_at_start(spec: Spec, table: ParameterTable, values: np.ndarray,
+                          labels: tuple[str, ...] | None = None) -> None:
+    """The error of a search that could not begin because a 'fix' statement's covariance lies beyond what the
+    variances at the start (``values``: every table entry's start value, the free variances from the data) allow,
+    named at the statement (:func:`given_values_possible`), in each group (``labels``; None: one group)."""
+    for g, label in enumerate(labels or (None,)):
+        given_values_possible(spec, table, values, g, label, starts=False, search_start=True)
 
 
 def given_entries(table: ParameterTable, starts: bool = True) -> np.ndarray:

@@ -32,13 +32,14 @@ from cfa_tool.data.moments import SampleMoments, moments_with_gaps
 from cfa_tool.data.sample_design import shared_clusters
 from cfa_tool.errors import CfaError, NotIdentified, OptionError
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
+from cfa_tool.estimation.optimizer import Outcome
 from cfa_tool.estimation.strategy import Alternative, search
 from cfa_tool.inference.standard_errors import observed_information, parameter_covariance, wald_inference
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import Spec
 from cfa_tool.method import Estimator, FitMethod, FitTest, Information, MissingData, WeightKind
 from cfa_tool.model.implied import StructuredModel
-from cfa_tool.model.parameters import ParameterTable, build_parameter_table
+from cfa_tool.model.parameters import ParameterTable, build_parameter_table, fixed_values_at_start
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
 from cfa_tool.note_parts import Command, Note, Text
@@ -215,6 +216,8 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
         start = starting_values(table, *pooled_moments())
     found = search(likelihood, table, start, options.max_iterations, variance_scaled_problem)
     opt = found.result
+    if opt.outcome is Outcome.BAD_START:  # a fixed covariance beyond the variances the data give: named at its line
+        fixed_values_at_start(spec, table, model.entry_values(start), labels)
     message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper)
     return Estimation(table, model, likelihood, opt.theta, opt.value, opt.converged, opt.iterations, message)
 

@@ -788,7 +788,7 @@ def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answe
 def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | None = None,
                   design: DesignColumns | None = None, ids: dict | None = None, names: tuple[str, ...] | None = None,
                   coverage: dict | None = None, n_obs: int | None = None, where: str = "",
-                  helpers: tuple[str, ...] = (), listwise: bool = False) -> tuple:
+                  helpers: tuple[str, ...] = (), listwise: bool = False, by_loadings: tuple[str, ...] = ()) -> tuple:
     """The cautions on the data that come first in every view, composed here once for every command (fit, check,
     compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: what the row filters did to
     the sample (pipeline.row_filter_cautions: a selection on a model item, a label several codes carry); rows that are copies of
@@ -809,6 +809,11 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})
+    elif spec is not None and by_loadings:  # ... and items a fit's loadings key as reversed, without a statement
+        found += same_answer_problems(_labelled(loaded.frame, group), spec, ids or {}, by_loadings=by_loadings)
+    from cfa_tool.pipeline.column_codes import column_code_problems
+
+    found += column_code_problems(loaded, group, design)  # no-answer codes kept in the columns choosing rows
     found += odd_value_problems(loaded, group, design, helpers, listwise) + few_answers_problems(names, coverage or {}, n_obs, loaded,
                                                                               group, listwise)
     if group is not None and group in loaded.frame.columns:  # rows without a group label: the rule of _labelled
@@ -827,11 +832,24 @@ def with_odd_values(result, loaded: LoadedData, group: str | None = None, spec: 
     helpers = tuple(getattr(getattr(result, "method", None), "helpers", None) or ())  # read as the items are
     listwise = getattr(getattr(result, "method", None), "missing", None) is MissingData.LISTWISE
     found = tuple(p for p in data_problems(loaded, spec, group, design, ids, tuple(getattr(result, "observed", ()) or ()),
-                                           coverage, getattr(result, "n_obs", None), helpers=helpers, listwise=listwise)
+                                           coverage, getattr(result, "n_obs", None), helpers=helpers, listwise=listwise,
+                                           by_loadings=reversed_by_loadings(result))
                   if p not in result.problems)
     from cfa_tool.assessment.admissibility import solution_first
 
     return replace(result, problems=solution_first(found + tuple(result.problems))) if found else result
+
+
+def reversed_by_loadings(result) -> tuple[str, ...]:
+    """The items a fit's loadings key as reversed in its first-order factors' keyed sums (assessment.reliability.
+    item_keys, named in its report), in every group; () for a model with a 'reversed' statement (its keys are the
+    statement's) or a result without reliabilities."""
+    from cfa_tool.assessment.reliability import Keying
+
+    groups = getattr(result, "groups", None) or (result,)
+    return tuple(dict.fromkeys(x for g in groups for r in (getattr(g, "reliability", None) or ())
+                               if getattr(r, "level", "") == "first-order" and r.keying is Keying.SIGNS
+                               for x in r.reversed))
 
 
 COPIED_ROWS_SHOWN = 5  # pairs of a copied row and its original that the caution names before 'and N more'
@@ -909,22 +927,35 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
 SAME_ANSWER_ROWS_SHOWN = 10  # rows a caution about same-answer rows names before 'and N more'
 
 
-def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only: bool = False) -> tuple:
+def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only: bool = False,
+                         by_loadings: tuple[str, ...] = ()) -> tuple:
     """A caution naming the rows of ``frame`` (the rows analysed) that gave one answer to every item, the items of
     the model's 'reversed' statement included (data.same_answers: careless responding, Johnson 2005; Curran 2016),
     by row number and id (``ids``: row number -> id); () when the model declares no reversed items or no
     row did.  The rows stay in the analysis (``scored_only``: rows scored with an earlier fit, which they did not
-    enter: they are scored like every row)."""
-    if not spec.reversed:
+    enter: they are scored like every row).  ``by_loadings``: without a 'reversed' statement, the items the fit's
+    loadings key as reversed (assessment.reliability.item_keys, which the fit's report names), judged so instead,
+    each with the middle of its answers in ``frame`` as the answer its reversal leaves unchanged (new-user trial
+    s18: the draft model explore writes declares no reversal, and its fit never named the careless rows the
+    hand-written model's fit named first)."""
+    if not spec.reversed and not by_loadings:
         return ()
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.data.same_answers import same_answer_rows
 
-    declared = spec.reverse_keyed
     items = [x for x in spec.observed_names if x in frame.columns]
     if len(items) < 2:
         return ()
     values = frame[items].apply(pd.to_numeric, errors="coerce").to_numpy(dtype=float)
+    if spec.reversed:
+        declared = spec.reverse_keyed
+        reversed_words = "reverse-worded items"
+    else:  # the ends of each such item's answers in the rows analysed: its scale as answered
+        with np.errstate(all="ignore"):
+            ends = {x: (float(np.nanmin(values[:, k])), float(np.nanmax(values[:, k])))
+                    for k, x in enumerate(items) if x in by_loadings and not np.isnan(values[:, k]).all()}
+        declared = ends
+        reversed_words = "items loading against their factors (reversed in the keyed sums)"
     middles = np.array([sum(declared[x]) / 2 if x in declared else np.nan for x in items])
     found = same_answer_rows(values, row_numbers(frame), np.array([x in declared for x in items]), middles)
     if found is None:
@@ -938,7 +969,7 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
         def one_row(k: int) -> Text:  # the id apart: a manuscript names rows by number alone (note_parts.RowId)
             r = found.rows[k]
             number = f"{r}{line_words(r, lines)}"  # a text file's row on a line of another number: both
-            answered = (f"{found.reversed_answered[k]} of the {found.reversed_items} reverse-worded items answered"
+            answered = (f"{found.reversed_answered[k]} of the {found.reversed_items} {reversed_words} answered"
                         if skipped and found.reversed_answered[k] < found.reversed_items else "")
             if ids.get(r) is None:
                 return f"{number} ({answered})" if answered else number
@@ -965,7 +996,7 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
     if against:
         # what each row answered: a row that skipped a reverse-worded item is not said to have answered it
         every = all(found.reversed_answered[k] == found.reversed_items for k in against)
-        included = f"the {found.reversed_items} reverse-worded items included" if every else "reverse-worded items included"
+        included = f"the {found.reversed_items} {reversed_words} included" if every else f"{reversed_words} included"
         parts.append(f"{rows_gave(against, gave(against))}, {included} (" + listed(against, skipped=True)
                      + "): agreeing alike with an item and its reversal suggests careless responding (a long string of "
                        "identical answers; Johnson 2005, Curran 2016).")
@@ -973,7 +1004,7 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
         one = len(middle) == 1
         parts.append(f"{rows_gave(middle, gave(middle))} (" + listed(middle)
                      + f"): the middle of the scale, which reversing leaves unchanged, so "
-                       f"{'it agrees' if one else 'they agree'} with the reverse-worded items, but a long string of "
+                       f"{'it agrees' if one else 'they agree'} with the {reversed_words}, but a long string of "
                        f"identical answers can still mean careless responding (Johnson 2005, Curran 2016).")
     n = len(found.rows)
     one = n == 1

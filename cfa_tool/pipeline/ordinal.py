@@ -28,6 +28,7 @@ from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.errors import CfaError, ModelError, NotIdentified, OptionError
 from cfa_tool.estimation.least_squares import MixedLeastSquares, OrdinalLeastSquares, group_statistics
+from cfa_tool.estimation.optimizer import Outcome
 from cfa_tool.estimation.strategy import Alternative, search
 from cfa_tool.inference.adjusted import (AdjustedTest, adjusted_fit, adjusted_from_traces, adjusted_test, residual_traces,
                                          robust_covariance)
@@ -36,7 +37,7 @@ from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import ParameterRef, Spec, ValueSetting
 from cfa_tool.method import ADJUSTED_TEST, MISSING_COMPLETELY_AT_RANDOM, Estimator, FitMethod, FitTest, Information, Items, MissingData, Weighting
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
-from cfa_tool.model.parameters import ParameterTable, build_parameter_table
+from cfa_tool.model.parameters import ParameterTable, build_parameter_table, fixed_values_at_start
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
 from cfa_tool.note_parts import Text
@@ -291,8 +292,11 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
         return Alternative(alt_table, alt_model, OrdinalLeastSquares(alt_model, statistics, thresholds=False),
                            starting_values(alt_table, R, None))
 
-    found = search(ls, table, starting_values(table, R, None), options.max_iterations, variance_scaled_problem)
+    start = starting_values(table, R, None)
+    found = search(ls, table, start, options.max_iterations, variance_scaled_problem)
     opt = found.result
+    if opt.outcome is Outcome.BAD_START:  # a fixed covariance beyond the variances at the start: named at its line
+        fixed_values_at_start(fixed_spec, table, model.entry_values(start))
     message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper)
     theta = opt.theta
     n = moments.n_obs
@@ -514,6 +518,8 @@ def estimate_ordinal_groups(spec: Spec, groups: list, options, method: Weighting
     found = search(objective, table, start, options.max_iterations,
                    lambda: variance_scaled_problem(objective.unit_variances))
     opt = found.result
+    if opt.outcome is Outcome.BAD_START:  # a fixed covariance beyond the variances at the start: named at its line
+        fixed_values_at_start(spec, table, model.entry_values(start), labels)
     if not correlation_metric:
         heywood = _heywood_responses(objective, opt.theta)
         if heywood.any():

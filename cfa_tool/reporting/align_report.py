@@ -7,7 +7,7 @@ from cfa_tool.data.groups import reference_words
 from cfa_tool.language.names import written_group
 from cfa_tool.note_parts import Text, capitalised
 from cfa_tool.reporting import tables as T
-from cfa_tool.reporting.numbers import num, p_value, unit
+from cfa_tool.reporting.numbers import num, p_phrase, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable, _table
 
 ALIGNMENT_CAUTION = (
@@ -58,7 +58,7 @@ def _fit_words(fit) -> str:
     f = fit.fit
     if f is None:
         return "no fit statistics"
-    return (f"chi-square {f.chi_square:.2f} (df {f.df}), p {p_value(f.p_value)}, CFI {unit(f.cfi)}, RMSEA {unit(f.rmsea)}, "
+    return (f"chi-square {f.chi_square:.2f} (df {f.df}), p {p_phrase(f.p_value)}, CFI {unit(f.cfi)}, RMSEA {unit(f.rmsea)}, "
             f"SRMR {unit(f.srmr)}")
 
 

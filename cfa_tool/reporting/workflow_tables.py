@@ -1003,11 +1003,13 @@ def bootstrap_report(boot) -> Report:
                          f"clusters, common practice); read them as rough.")
     if boot.bollen_stine_p is not None:
         lines.append(f"Bollen-Stine bootstrap p-value of the chi-square test: {unit(boot.bollen_stine_p)} "
-                     f"({boot.bollen_stine_converged} converged resamples; normal-theory p {p_value(result.fit.p_value)}).")
+                     f"({boot.bollen_stine_converged} converged resamples; normal-theory p {p_phrase(result.fit.p_value)}).")
+    elif boot.bollen_stine_not_computed and result.fit.df == 0:  # no test at all to fall back on
+        lines.append(f"No Bollen-Stine p-value: {boot.bollen_stine_not_computed}.")
     elif boot.bollen_stine_not_computed:
         robust = result.robust
-        test = (f"{robust.statistic()} (p {p_value(robust.p_value_scaled)})" if robust is not None
-                else f"chi-square (p {p_value(result.fit.p_value)})")
+        test = (f"{robust.statistic()} (p {p_phrase(robust.p_value_scaled)})" if robust is not None
+                else f"chi-square (p {p_phrase(result.fit.p_value)})")
         lines.append(f"No Bollen-Stine p-value: {boot.bollen_stine_not_computed}; the test of fit remains the fit's "
                      f"{test}.")
     def shown(value: float, scale: str) -> str:  # a standardized value within [-1, 1] without its leading zero

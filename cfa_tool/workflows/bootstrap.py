@@ -70,6 +70,10 @@ ORDINAL_DESIGN = "the bootstrap of ordinal items does not take a sampling design
 BOLLEN_STINE_WITH_GAPS = ("the Bollen-Stine bootstrap resamples rows transformed so that the model holds exactly, and "
                           "that transformation of rows with gaps (Enders 2002; Savalei & Yuan 2009) is not built yet, so "
                           "it is not computed for a full-information fit")
+#: why a just-identified fit has no Bollen-Stine p-value (the fit's report says the same: no fit to test)
+BOLLEN_STINE_NO_DF = ("the model is just-identified (0 degrees of freedom): it reproduces the covariances exactly, so "
+                      "there is no fit to test, and a p-value of its chi-square (zero up to rounding) would read "
+                      "rounding noise")
 
 
 @dataclass(frozen=True)
@@ -454,7 +458,12 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     bca = bca is not False  # where they apply (continuous items), BCa intervals unless left out
     gaps = result.method.missing is MissingData.FULL_INFORMATION
     not_computed = None
-    if gaps:
+    if result.fit.df == 0:  # nothing to test (as the fit says); before the gaps, whose reason would not be the first
+        if bollen_stine is True:
+            raise OptionError(f"{BOLLEN_STINE_NO_DF}; leave it out")
+        not_computed = BOLLEN_STINE_NO_DF if bollen_stine is None else None
+        bollen_stine = False
+    if gaps and bollen_stine is not False:
         if bollen_stine is True:
             raise OptionError(f"{BOLLEN_STINE_WITH_GAPS}; leave it out, or bootstrap the complete rows "
                               f"({check.Option.INCOMPLETE_ROWS.given('listwise')})")

@@ -795,7 +795,10 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     # the data's cautions as fit gives them (rows that gave one answer to every item, reverse-worded ones included,
     # named by their ids: scored like every row)
     fitted_problems = result.problems
-    result = api.with_odd_values(result, loaded, group, spec, design, ids_by_row_number(ids, read_frame))
+    # and what was read as no answer (codes given, values the file marks so), which the methods paragraph names as
+    # fit's does (new-user trial s18: the scores' paragraph left out the codes 8 and 9)
+    result = api.with_missing_reading(api.with_odd_values(result, loaded, group, spec, design,
+                                                          ids_by_row_number(ids, read_frame)), loaded, missing_codes)
     data_cautions = tuple(p for p in result.problems if p not in fitted_problems)
     chosen_by = api.reference_note(result, frame, group, reference_group)  # as fit names the reference group
     if chosen_by:
@@ -1083,7 +1086,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     # the cautions about the scored file computed on it, first; the earlier fit's own said to be about the fit
     own = api.odd_value_problems(api.analysed_odd_values(loaded, spec, group), group) + api.same_answer_problems(
         api._labelled(frame, group) if group is not None else frame, spec, ids_by_row_number(ids, read_frame),
-        scored_only=True)
+        scored_only=True, by_loadings=api.reversed_by_loadings(result))
     # (the fit's own file scored again: its findings of the same kinds are the scored file's, said once)
     again = {p.kind for p in own} if (source, len(read_frame)) == (result.data.source, result.data.rows_read) else set()
     result = replace(result, problems=own + tuple(replace(p, explanation=ABOUT_THE_FIT + p.explanation)
@@ -1123,11 +1126,9 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         scored_problems.append(Problem(ProblemKind.UNKNOWN_GROUPS_SCORED, (), None, unknown_groups + ".",
                                        "write each row's group as the fit's data wrote it, or fit the model to "
                                        "these groups."))
-    if not ordinal:
-        outside = _outside_fitted_ranges(result.data, base.items, rows, source)
-        if outside:
-            text, advice = outside
-            scored_problems.append(Problem(ProblemKind.ANSWERS_BEYOND_FITTED, (), None, text, advice))
+    # answers coded otherwise than in the fit's data, first: every score of the factor moves with them
+    scored_problems[:0] = [Problem(kind, (), None, text, advice) for kind, text, advice in
+                           _coded_otherwise(result.data, base, rows, source, ordinal)]
     if scored_problems:
         result = _after_data_cautions(result, own, scored_problems)
     result = _with_repeated_ids(result, ids, id_column)
@@ -1582,7 +1583,82 @@ def _numeric(frame: pd.DataFrame, items: tuple[str, ...], source: str) -> np.nda
     return _numeric_rows(frame, items, source)
 
 
-def _outside_fitted_ranges(data, items, rows: np.ndarray, source: str) -> tuple[str, str] | None:
+#: the advice of every caution on answers coded otherwise than in the fit's data (:func:`_coded_otherwise`)
+RECODE_ADVICE = "check that both files code the answers alike, and recode one as the other before scoring."
+
+
+def _coded_otherwise(data, model, rows: np.ndarray, source: str, ordinal: bool) -> list[tuple]:
+    """The cautions (ProblemKind, words, advice) on answers of the scored file coded otherwise than in the rows the
+    earlier fit analysed, the one rule of both ways a coding differs: a shifted scale (answers outside the fitted
+    ranges, :func:`_outside_fitted_ranges`; continuous items, whose scores move with the codes) and an item coded
+    the other way round (:func:`_items_against_loadings`); ``model``: the fit's ScoringModel (of its first group)."""
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    found = []
+    outside = None if ordinal else _outside_fitted_ranges(data, model.items, rows, source)
+    if outside:
+        found.append((ProblemKind.ANSWERS_BEYOND_FITTED, outside, RECODE_ADVICE))
+    against = _items_against_loadings(model, rows, source)
+    if against:
+        found.append((ProblemKind.ITEM_AGAINST_FITTED_LOADING, against, RECODE_ADVICE))
+    return found
+
+
+def _items_against_loadings(model, rows: np.ndarray, source: str) -> str | None:
+    """The caution for items of the scored file that run against their factor: an item's correlation with the
+    keyed sum of the rest of its factor's items (each standardized and keyed by the sign of its loading in the
+    earlier fit) has the opposite sign of its own loading, beyond what chance gives a correlation of zero (2 /
+    sqrt(n), about two standard errors: a rule of thumb), so that it is coded the other way round from the fit's
+    data (a reverse-worded item recoded in one file and not the other), and its answers pull every score of its
+    factor the wrong way.  Items loading on one factor only, of factors with three or more of them, on the
+    pairwise correlations of the rows; the item most against its factor is taken first and left out of the rest
+    of the others (hostile trial s18, finding 2: one item coded 6 - x correlated -.64 with the rest of its factor,
+    and every score was written without a word)."""
+    items = tuple(model.items)
+    loadings = np.asarray(model.loadings, dtype=float)
+    frame = pd.DataFrame(rows, columns=range(len(items)))
+    corr = frame.corr().to_numpy()
+    answered = frame.notna().sum().to_numpy()
+    found = []
+    for k, factor in enumerate(model.factors):
+        own = [j for j in range(len(items)) if loadings[j, k] != 0 and np.count_nonzero(loadings[j]) == 1]
+        flagged: list[tuple[int, float]] = []
+        while True:
+            worst = None
+            for j in own:
+                rest = [i for i in own if i != j and i not in {f for f, _ in flagged}]
+                if len(rest) < 2 or answered[j] < 3:
+                    continue
+                keys = np.sign(loadings[rest, k])
+                block = corr[np.ix_(rest, rest)]
+                spread = float(keys @ block @ keys)
+                if not spread > 0 or np.isnan(corr[j, rest]).any():
+                    continue
+                r = float(np.sign(loadings[j, k]) * (keys @ corr[rest, j]) / np.sqrt(spread))
+                if r < -2 / np.sqrt(answered[j]) and (worst is None or r < worst[1]):
+                    worst = (j, r)
+            if worst is None:
+                break
+            flagged.append(worst)
+            own = [j for j in own if j != worst[0]]
+        found += [(items[j], factor, r, loadings[j, k]) for j, r in flagged]
+    if not found:
+        return None
+    from cfa_tool.model.parameters import two_decimals
+
+    listed = "; ".join(f"'{printable(item)}' correlates {two_decimals(r)} with the rest of {printable(factor)}'s items "
+                       f"(keyed as the fit keys them), while its loading in the earlier fit is "
+                       f"{'positive' if loading > 0 else 'negative'} ({loading:.3f})"
+                       for item, factor, r, loading in found[:5]) + (
+        f"; and {len(found) - 5} more items" if len(found) > 5 else "")
+    one = len(found) == 1
+    return (f"In {source}, {'an item runs' if one else 'items run'} against {'its factor' if one else 'their factors'}"
+            f": {listed}. {'It is' if one else 'They are'} probably coded the other way round from the fit's data (a "
+            f"reverse-worded item recoded in one file and not in the other), so {'its' if one else 'their'} answers "
+            f"pull every score of {'its factor' if one else 'their factors'} the wrong way.")
+
+
+def _outside_fitted_ranges(data, items, rows: np.ndarray, source: str) -> str | None:
     """The caution for answers of the scored file outside the lowest and highest answers of the rows the earlier fit
     analysed (``data``: its DataSummary, whose ``ranges`` are empty for a fit of summary statistics): a file coded
     0-4 scored with a fit of answers coded 1-5 gets scores shifted by the difference, with no other sign of it."""
@@ -1605,8 +1681,7 @@ def _outside_fitted_ranges(data, items, rows: np.ndarray, source: str) -> tuple[
                        for item, n, lo, hi in found[:5]) + (f"; and {len(found) - 5} more items" if len(found) > 5 else "")
     return (f"{source} holds answers outside the range of the rows the earlier fit analysed: {listed}. Scores of such "
             f"answers extrapolate the fit, and if the files code the answers differently (0 to 4 against 1 to 5, "
-            f"say) every score is shifted.", "check that both files code the answers alike, and recode one as the "
-            "other before scoring.")
+            f"say) every score is shifted.")
 
 
 def _unknown_groups(group_of_row: np.ndarray, labels, group: str, source: str) -> str | None:

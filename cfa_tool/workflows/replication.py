@@ -67,7 +67,7 @@ from cfa_tool.data.halves import drawn_halves
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.pipeline.inputs import (_described, data_problems, keeps_rows_with_gaps, load_spec, make_options, odd_values_named,
                                       read_inputs_with_notes, refit_missing_handling, refuse_totals_rows,
-                                      with_row_filters)
+                                      with_missing_reading)
 from cfa_tool.assessment.admissibility import inadmissible_words
 from cfa_tool.data.answer_words import coding_json, coding_record
 from cfa_tool.data.matching import check_columns, chosen_columns
@@ -606,7 +606,9 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                                                          (result.calibration_result, result.loose))
                                 for p in data_problems(s, spec, where=f" on the {which} data ({s.source})",
                                                        listwise=r.method.missing is MissingData.LISTWISE)))
-    cal, loose = with_row_filters(result.calibration_result, read[0]), with_row_filters(result.loose, read[1])
+    # what each file read as no answer, as fit keeps it (with_missing_reading, the filters too): the paragraph names it
+    cal, loose = (with_missing_reading(result.calibration_result, read[0], missing_codes),
+                  with_missing_reading(result.loose, read[1], missing_codes))
     rows = tuple(replace(r, in_file=fitted.data.rows_in_file) for r, fitted in zip(result.rows, (cal, loose)))
     return replace(result, calibration_result=cal, loose=loose, rows=rows, data_problems=found + left_out,
                    notes=tuple(dict.fromkeys(n for file_notes in notes for n in file_notes)),
@@ -663,9 +665,18 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
                      rows_in_file=len(loaded.read_frame) if loaded.read_frame is not None else None,
                      cluster=cluster, strata=strata, units=units, labels=labels)
     # the rows left out before the split (the halves hold complete rows only): fit's caution, after the data's
-    problems = data_problems(loaded, spec, listwise=rows.complete_only) + _left_out(len(frame) - split, len(frame), source,
-                                                       MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
-    return tuple(replace(rep, data_problems=problems, split=rows, notes=notes, answer_coding=coding_record(spec))
+    from cfa_tool.pipeline.column_codes import column_code_problems
+
+    # (a cluster or strata column the halves are drawn by that keeps a no-answer code: one cluster of its rows)
+    problems = tuple(dict.fromkeys(data_problems(loaded, spec, listwise=rows.complete_only)
+                                   + column_code_problems(loaded, None, design))) + _left_out(
+        len(frame) - split, len(frame), source, MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
+    # what the file read as no answer kept with each half's fit, as fit keeps it (with_missing_reading; the filters,
+    # which chose the rows before the split, are the split's: SplitRows names them)
+    unfiltered = replace(loaded, row_filters=())
+    return tuple(replace(rep, calibration_result=with_missing_reading(rep.calibration_result, unfiltered, missing_codes),
+                         loose=with_missing_reading(rep.loose, unfiltered, missing_codes), data_problems=problems,
+                         split=rows, notes=notes, answer_coding=coding_record(spec))
                  for rep in pair)
 
 

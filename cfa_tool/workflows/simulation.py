@@ -325,8 +325,11 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
     target = standardized_population(table, frozenset(spec.reverse_keyed))
     n = 1_000_000  # the moments are the population's: N only scales the (unused) test statistic
     moments = SampleMoments(table.observed, target, np.zeros(table.p), n, n, 0, "<population>")
-    est = estimate(spec, [(None, moments)], FitOptions(diagnostics=False, modification_indices=False))
-    if not est.converged:
+    try:
+        est = estimate(spec, [(None, moments)], FitOptions(diagnostics=False, modification_indices=False))
+    except ModelError:  # a fixed covariance beyond the variances at the search's start, which a fit of data names
+        est = None  # in its words; here they are the defaults': said below as a population near them
+    if est is None or not est.converged:
         written = [f"{as_written(par)} = {par.offset:g}" for par in table.parameters
                    if par.group == 0 and not par.free and par.origin == "user"]
         if written:  # values the file gives that no population near the standardized defaults can hold

@@ -89,7 +89,7 @@ def test_a_word_no_item_holds_is_a_note_as_an_unused_code_is(answers, tmp_path):
     model, written, _ = _files(tmp_path, answers, {})
     result = _fit([model, "--data", written, "--missing-codes", "-98,Ne sait pas"], tmp_path, "unused")
     said = json.dumps(result)
-    assert "written.csv: no cell of numbers holds any of the codes given with --missing-codes (-98)" in said
+    assert "written.csv: no cell of the items holds any of the codes given with --missing-codes (-98)" in said
     assert "written.csv: no cell of the items holds any of the codes given with --missing-codes ('Ne sait pas')" in said
 
 

@@ -256,7 +256,7 @@ def test_missing_codes_say_how_many_cells_they_read_as_no_answer(tmp_path):
     assert said == ["coded.csv: 3 cells holding a code given with missing_codes=... (-9, 99) were read as no answer "
                     "(a1 2, a3 1)"]
     none = cfa_tool.fit("factor f: a1, a2, a3, a4\n", path, missing_codes=[-99])
-    assert "coded.csv: no cell of numbers holds any of the codes given with missing_codes=... (-99)" in map(str, none.warnings)
+    assert "coded.csv: no cell of the items holds any of the codes given with missing_codes=... (-99)" in map(str, none.warnings)
 
 
 def test_not_sure_between_the_answers_is_an_answer_and_beyond_them_is_none(tmp_path, answers):

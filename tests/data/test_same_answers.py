@@ -70,8 +70,11 @@ def test_fit_and_scores_name_the_rows_first_by_their_ids_and_keep_them():
     scored = cfa_tool.scores(MODEL + REVERSED, frame, id_column="respondent")
     assert scored.fit.problems[0] == first
     assert scored.table["respondent"].tolist()[6] == "P007" and not np.isnan(scored.table.iloc[6, 1])
-    # the same data without a 'reversed' statement: one answer throughout contradicts nothing the model knows
-    assert not any(p.kind is ProblemKind.SAME_ANSWER_ROWS for p in cfa_tool.fit(MODEL, frame).problems)
+    # the same data without a 'reversed' statement: the fit's loadings key a2 and b3 as reversed (as its report
+    # says), so one answer throughout contradicts them too (new-user trial s18: explore's draft model declares none)
+    [keyed] = [p for p in cfa_tool.fit(MODEL, frame).problems if p.kind is ProblemKind.SAME_ANSWER_ROWS]
+    assert keyed.value == 2.0 and "the 2 items loading against their factors (reversed in the keyed sums)" in str(
+        keyed.explanation)
     # and data without such rows have no caution (common practice: no false alarm on ordinary answers)
     assert not any(p.kind is ProblemKind.SAME_ANSWER_ROWS for p in cfa_tool.fit(MODEL + REVERSED, _answers()).problems)
 

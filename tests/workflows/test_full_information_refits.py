@@ -285,7 +285,7 @@ def test_a_cluster_bootstrap_of_rows_with_gaps_refits_every_row():
     [line] = [x for x in bootstrap_report(boot).lines if x.startswith("No Bollen-Stine p-value")]
     # named as every view names the scaled test under a design (new-user trial s16)
     assert line.endswith(f"the fit's design-based statistic (Yuan-Bentler scaling) "
-                         f"(p .{round(1000 * boot.fit.robust.p_value_scaled):03d}).")
+                         f"(p = .{round(1000 * boot.fit.robust.p_value_scaled):03d}).")
 
 
 @pytest.mark.parametrize("command", ["bootstrap", "cutoffs", "replicate"])
