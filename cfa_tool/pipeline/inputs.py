@@ -1308,9 +1308,14 @@ def with_rows_read(result: FitResult, loaded: LoadedData) -> FitResult:
     check_rows_counted(result.data.rows_read, len(loaded.frame), f"{loaded.source}: the rows of the groups")
     if result.data.rows_read == len(loaded.frame):
         return result
+    extra = len(loaded.frame) - result.data.rows_read
+    group = result.group_column
+    # the rows without a group label, and the rest: those the design left out (weight 0, or no answer and no weight,
+    # cluster or stratum), which the methods paragraph must not call rows without a group (re-check s18)
+    without = min(extra, int((~has_group(loaded.frame, group)).sum())) if group is not None else 0
     return replace(result, data=replace(result.data, rows_read=len(loaded.frame),
-                                        rows_dropped=result.data.rows_dropped + len(loaded.frame) - result.data.rows_read,
-                                        without_group=len(loaded.frame) - result.data.rows_read))
+                                        rows_dropped=result.data.rows_dropped + extra, without_group=without,
+                                        by_design=extra - without))
 
 
 def without_group_problem(without: int, read: int, group: str | None) -> Problem | None:

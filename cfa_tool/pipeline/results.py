@@ -262,6 +262,9 @@ class DataSummary:
     ranges: tuple[tuple[float, float], ...] = ()
     # rows left out for having no value in the group column (counted in rows_dropped, for another reason than gaps)
     without_group: int = 0
+    # rows the sampling design's columns left out (counted in rows_dropped): a weight of 0, or a row that answers no
+    # item and has no weight, cluster or stratum (data.sample_design.check_design, each said in a note)
+    by_design: int = 0
     # the model's coding of answers recorded as words (data.answer_words.coding_record), which scoring other data with
     # this fit reads so too
     answer_coding: tuple = ()
@@ -284,7 +287,8 @@ class DataSummary:
     def __post_init__(self) -> None:
         """No count of rows is negative and none exceeds the rows read (errors.check_rows_counted): a report of
         '-325 of 480 rows' is a bug, stopped here."""
-        check_rows_counted(self.without_group, self.rows_dropped, f"{self.source}: the rows without a group label")
+        check_rows_counted(self.without_group + self.by_design, self.rows_dropped,
+                           f"{self.source}: the rows without a group label or left out by the design")
         check_rows_counted(self.rows_dropped, self.rows_read, f"{self.source}: the rows left out")
 
     @property
@@ -336,6 +340,8 @@ class DataSummary:
             out["matrix_analysed"] = clean(self.analysed.name.lower())
         if self.without_group:
             out["rows_without_group"] = clean(self.without_group)
+        if self.by_design:
+            out["rows_left_out_by_the_design"] = clean(self.by_design)
         if self.helpers_only:
             out["rows_answering_only_helpers"] = clean(self.helpers_only)
         if self.few_categories:

@@ -540,7 +540,8 @@ def _sample_phrase(result) -> str:
     if kept:
         text += f"; {kept}"
     without_group = getattr(data, "without_group", 0)
-    dropped = data.rows_dropped - without_group
+    by_design = getattr(data, "by_design", 0)
+    dropped = data.rows_dropped - without_group - by_design
     helped = getattr(data, "helpers_only", 0)
     if helped:  # kept by the saturated-correlates likelihood (pipeline.inputs.with_helpers)
         text += (f"; {helped} of these rows answered no item but an auxiliary variable and entered the likelihood "
@@ -554,6 +555,10 @@ def _sample_phrase(result) -> str:
             text += _listwise_clause(dropped, data.rows_read, data.rows_read - data.rows_dropped)
     if without_group:
         text += _without_group_clause(without_group, data.rows_read, result.group_column)
+    if by_design:
+        text += (f"; {by_design} of {data.rows_read} row{'s' if data.rows_read != 1 else ''} "
+                 f"{'was' if by_design == 1 else 'were'} left out by the sampling design (a weight of 0, or no answer "
+                 f"and no weight, cluster or stratum)")
     return text
 
 

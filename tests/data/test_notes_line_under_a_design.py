@@ -54,3 +54,22 @@ def test_a_row_that_answers_an_item_still_needs_its_weight(tmp_path):
     frame.to_csv(without, index=False)
     with pytest.raises(DataError, match="row 9: no weight"):
         cfa_tool.fit(MODEL, without, weights="weight")
+
+
+def test_the_methods_paragraph_says_why_the_design_left_rows_out(tmp_path, hs_data):
+    # re-check s18 (r04): a row the design left out (the notes line, weight 0) was called a row 'with no value in the
+    # group column' in a fit without groups
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    _, with_line = _files(tmp_path)
+    text = methods_paragraph(cfa_tool.fit(MODEL, with_line, weights="weight"))
+    assert "group column" not in text
+    assert ("1 of 301 rows was left out by the sampling design (a weight of 0, or no answer and no weight, cluster or "
+            "stratum)") in text
+    weighted = hs_data.reset_index(drop=True).assign(w=1.0)
+    weighted.loc[weighted.index[::10], "w"] = 0.0
+    result = cfa_tool.fit("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n",
+                          weighted, weights="w", group="school")
+    assert result.data.by_design == 31 and result.data.without_group == 0
+    assert "group column" not in methods_paragraph(result)
+    assert result.to_dict()["data"]["rows_left_out_by_the_design"] == 31
