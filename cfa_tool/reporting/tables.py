@@ -7,7 +7,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from cfa_tool.assessment.admissibility import solution_first
+from cfa_tool.assessment.admissibility import ProblemKind, solution_first
 from cfa_tool.assessment.identification import JUST_IDENTIFIED
 from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.labels import label_text
@@ -244,6 +244,17 @@ def not_computed_words(robust) -> str:
             f"is not positive")
 
 
+#: the design's cautions that say its scaled test and robust indices mean little (too few clusters for the parameters,
+#: a design-based test whose scaling is extreme or dominated by one cluster): the table then recommends none of them
+DOUBTED_BY_THE_DESIGN = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.DESIGN_DOMINATED})
+
+
+def design_doubts(result) -> bool:
+    """Whether a caution of the sampling design says that the fit's scaled test means little (re-check s18: the table
+    still called it 'the test to read for these data')."""
+    return any(p.kind in DOUBTED_BY_THE_DESIGN for p in getattr(result, "problems", ()))
+
+
 def fit_rows(result) -> list[FitRow]:
     """The lines of the fit table in the order of every view: with a robust test, its figures first, then SRMR,
     then the unadjusted ones marked (without the test of close fit); the baseline, the likelihood and the count
@@ -274,7 +285,8 @@ def fit_rows(result) -> list[FitRow]:
         # would be cut, and the figures under it with it (new-user trial s18); why it is missing goes to the guide
         rows = [_row(f"Scaled chi-square ({r.label})", f"{r.chi_square_scaled:.3f} on {r.df} df, "
                      f"p {p_phrase(r.p_value_scaled)}" if not missing(r.chi_square_scaled) else "not computed",
-                     "the test to read for these data" if not missing(r.chi_square_scaled) else
+                     ("says little here: see the caution first" if design_doubts(result) else
+                      "the test to read for these data") if not missing(r.chi_square_scaled) else
                      "its scaling factor is not positive: see the caution first",
                      (f"Scaled chi-square ({r.label})", r.chi_square_scaled, r.df, r.p_value_scaled)),
                 _row(label, text, guide, *[(name.capitalize(), value) for name, value in r.pieces]),
@@ -1615,8 +1627,10 @@ def normality_lines(result) -> list[Text]:
         # said, not silently left out: both need every row complete
         guarded = (", and " + Remedy.ROBUST.said() + " guard the test and the standard errors against non-normal "
                    "answers either way" if result.robust is None else
-                   "; the scaled test and robust standard errors of this fit guard against non-normal answers either "
-                   "way")  # advice never asks for what the fit already does
+                   ("; the scaled test and robust standard errors of this fit are meant to guard against non-normal "
+                    "answers, but see the caution first" if design_doubts(result) else
+                    "; the scaled test and robust standard errors of this fit guard against non-normal answers either "
+                    "way"))  # advice never asks for what the fit already does
         lines.append("Mardia's tests of multivariate normality need complete rows, so with full-information ML they "
                      "are not computed; " + Remedy.COMPLETE_ROWS.said() + " gives them for those rows" + guarded + ".")
     return lines

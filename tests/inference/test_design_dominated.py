@@ -138,3 +138,15 @@ def test_every_step_of_an_invariance_ladder_says_it_too():
     data = _schools(6, -2.5, ordinal=False).assign(sex=lambda d: np.tile(["girl", "boy"], len(d) // 2))
     ladder = cfa_tool.invariance(ONE_FACTOR, data, group="sex", cluster="school", strata="region")
     assert all("'S07' holds" in _dominated(step.result)[0].explanation for step in ladder.steps)
+
+
+def test_the_fit_table_recommends_no_test_the_design_caution_discredits():
+    # re-check s18 (r01): with the dominated design's caution first, the table still called the scaled chi-square
+    # 'the test to read for these data'
+    from cfa_tool.reporting.tables import fit_table
+
+    dominated = cfa_tool.fit(ONE_FACTOR, _schools(6, -2.5, ordinal=False), cluster="school", strata="region")
+    plain = cfa_tool.fit(ONE_FACTOR, _schools(6, None, ordinal=False), cluster="school", strata="region")
+    guides = {name: [row[2] for row in fit_table(r).rows if row[0].startswith("Scaled chi-square")][0]
+              for name, r in (("dominated", dominated), ("plain", plain))}
+    assert guides == {"dominated": "says little here: see the caution first", "plain": "the test to read for these data"}
