@@ -20,7 +20,7 @@ import numpy as np
 
 from cfa_tool.method import (MISSING_AT_RANDOM, MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
-from cfa_tool.assessment.admissibility import ProblemKind, design_cautions, failure_words
+from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, design_cautions, failure_words
 from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors, uncorrelated_pairs
 from cfa_tool.assessment.reliability import BifactorPart, Keying, miskeyed
 from cfa_tool.data.non_answers import non_answer_clause
@@ -116,7 +116,13 @@ def _design_sentences(results) -> list[str]:
     first = results[0]
     if getattr(first, "design", None) is None:
         return []
-    return [design_sentence(first)] + [p.explanation for p in design_cautions(results)[1]]
+    most, problems = design_cautions(results)
+    own = [(r, tuple(p for p in r.problems if p.kind in DESIGN_CAUTIONS)) for r in results]
+    if (len(results) == 1 or all(found == problems for _, found in own if found)
+            or len({r.model_name for r in results}) < len(results)):  # the steps of one model: its largest's
+        return [design_sentence(first)] + [p.explanation for p in problems]
+    # the models' cautions differ (each its own scaling factor): each said of its model (re-check s18)
+    return [design_sentence(first)] + [f"For {_name(r.model_name)}: {p.explanation}" for r, found in own for p in found]
 
 
 def _estimator_phrase(result) -> str:

@@ -106,9 +106,15 @@ def _design_caution_lines(named_results) -> list[str]:
     if all(found == problems for _, found in own):
         return [p.line() for p in problems]
     name = next(n for n, r in named_results if r is most)
-    others = [n for n, _ in own if n != name]
-    whose = f"{name} (the model with the most free parameters{'; ' + word_list(others) + ' too' if others else ''}): "
-    return [whose[0].upper() + whose[1:] + p.line() for p in problems]
+    # 'too' only for the models whose cautions are the same; a model's cautions of other figures (its own scaling
+    # factor) under its own name (re-check s18: one model's extreme factor, 0.407, was said of the other, 0.651)
+    same = [n for n, found in own if n != name and found == problems]
+    whose = f"{name} (the model with the most free parameters{'; ' + word_list(same) + ' too' if same else ''}): "
+    lines = [whose[0].upper() + whose[1:] + p.line() for p in problems]
+    for other, found in own:
+        if other != name and found != problems:
+            lines += [other[0].upper() + other[1:] + ": " + p.line() for p in found]
+    return lines
 
 
 def _notice(problems: list[str], cautions: list[str] = (), failed: bool = False) -> ProblemNotice | None:

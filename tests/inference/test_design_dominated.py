@@ -150,3 +150,29 @@ def test_the_fit_table_recommends_no_test_the_design_caution_discredits():
     guides = {name: [row[2] for row in fit_table(r).rows if row[0].startswith("Scaled chi-square")][0]
               for name, r in (("dominated", dominated), ("plain", plain))}
     assert guides == {"dominated": "says little here: see the caution first", "plain": "the test to read for these data"}
+
+
+def test_each_models_own_design_caution_is_said_of_that_model():
+    # re-check s18 (r02): compare said the four-factor model's extreme scaling factor (0.407) of the one-factor model
+    # too ('...; One factor too'), whose factor was 0.651
+    from types import SimpleNamespace
+
+    from cfa_tool.assessment.admissibility import Problem
+    from cfa_tool.reporting.paragraph import _design_sentences
+    from cfa_tool.reporting.workflow_tables import _design_caution_lines
+
+    def model(name, free, factor):
+        caution = Problem(ProblemKind.DESIGN_DOMINATED, (), factor, f"The design-based scaling factor is {factor}.",
+                          "see the docs.")
+        return SimpleNamespace(model_name=name, fit=SimpleNamespace(n_free_parameters=free), problems=(caution,),
+                               design=None)
+
+    four, one = model("four factors", 54, 0.407), model("one factor", 48, 0.651)
+    lines = " ".join(_design_caution_lines([("Four factors", four), ("One factor", one)]))
+    assert "Four factors (the model with the most free parameters): The design-based scaling factor is 0.407" in lines
+    assert "One factor: The design-based scaling factor is 0.651" in lines and "too" not in lines
+    same = model("one factor", 48, 0.407)
+    # the same caution of both: said once, as before
+    assert _design_caution_lines([("Four factors", four), ("One factor", same)]) == [
+        "The design-based scaling factor is 0.407. What to try: see the docs."]
+    assert _design_sentences([four, one]) == []  # no design to state: the fake results carry none
