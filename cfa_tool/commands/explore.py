@@ -61,7 +61,7 @@ def run(args: argparse.Namespace) -> int:
     require_suffix("--draft", args.draft, MODEL_SUFFIX, "model files")
     require_suffix(HALVES_FILE, args.halves_file, ".csv", "the rows of the halves")
     if args.halves_file and args.split is None:
-        raise OptionError("--halves-file saves the random halves of --split SEED, and this run explores every row")
+        raise OptionError("--halves-file saves the random halves of --split SEED, and this run draws no halves")
     outputs = [("--draft", args.draft), ("--json", args.json), ("--html", args.html), ("--markdown", args.markdown),
                (HALVES_FILE, args.halves_file)]
     check_files(args, outputs, [args.data] + [f for f in (args.target, args.answers) if f],

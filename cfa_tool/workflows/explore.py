@@ -813,8 +813,9 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
                           f"explore_correlations, from_correlations')")
     if split is None and (cluster is not None or strata is not None):
         given = Option.CLUSTER if cluster is not None else Option.STRATA
-        raise OptionError(f"{given} draws the random halves of {Option.SPLIT} by cluster, and this run explores every "
-                          f"row: give {Option.SPLIT.given('SEED')} or leave {given} out")
+        # (a half given by --half was drawn by the run that wrote the halves file, by its clusters: re-check s18)
+        raise OptionError(f"{given} draws the random halves of {Option.SPLIT} by cluster, and this run draws no "
+                          f"halves: give {Option.SPLIT.given('SEED')} or leave {given} out")
     codings = _answer_codings(answers)
     # a first reading names the columns and chooses the default items; the data are then read for those items as
     # fit reads them for a model's (pipeline.inputs.read_inputs_with_notes): --missing-codes and words or labels

@@ -61,7 +61,7 @@ def test_both_commands_save_the_same_halves_and_the_rows_refit_as_reported(tmp_p
 
 @pytest.mark.parametrize("argv, words", [
     (["explore", "--data", HS_FILE, "--items", "x1..x9", "--halves-file", "h.csv"],
-     "--halves-file saves the random halves of --split SEED, and this run explores every row"),
+     "--halves-file saves the random halves of --split SEED, and this run draws no halves"),
     (["replicate", "{model}", "--calibration", HS_FILE, "--validation", HS_FILE, "--halves-file", "h.csv"],
      "--halves-file saves the random halves of one data file (--data)"),
     (["replicate", "{model}", "--data", HS_FILE, "--halves-file", "h.txt"],
