@@ -671,7 +671,8 @@ def invariance_report(result) -> Report:
         level_values.append([label, *values, _admissible_cell(step.result)])
         if step.result.converged and not step.result.admissible:
             flagged.append(len(levels) - 1)
-        verdict = ("not tested (0 df)" if step.untested else NOT_JUDGED if step.unjudged and step.result.admissible
+        verdict = ("not tested (0 df)" if step.untested else f"{NOT_JUDGED} (did not converge)"
+                   if not step.result.converged else NOT_JUDGED if step.unjudged and step.result.admissible
                    else TEST_MET if step.holds and unsound_basis(result.steps, k) is not None
                    else _verdict(step.holds, step.result)) \
             + (" *" if step.conditional else "")

@@ -204,11 +204,12 @@ class InvarianceStep:
             "fit": clean(self.result.fit.to_dict()) if self.result.fit is not None else None,
             "robust": clean(self.result.robust.to_dict()) if self.result.robust is not None else None,
             "versus_previous": vs,
-            "holds": self.holds,
+            # a step whose estimation did not converge is not judged (null), not one that does not hold (re-check s18)
+            "holds": self.holds if self.result.converged else None,
             "tested": not self.untested,
             "judged_by": "its own fit (CFI, RMSEA and SRMR guide values)" if self.versus_previous is None
             else "the difference test against the step before",
-            "not_judged_because": self.unjudged or None,
+            "not_judged_because": self.unjudged or (None if self.result.converged else "its estimation did not converge"),
             "conditional_on_a_rejected_step": self.conditional,
             "partial": self.partly_equal,
             "freed": [f.to_dict() for f in self.freed],
@@ -468,11 +469,14 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                     reason = ": " + why.explanation[0].lower() + why.explanation[1:].rstrip(".") + ". " + why.advice.rstrip(".")
                 stopped = (f"the {level} model " + ("could not be estimated" if why is not None and why.kind
                                                      in WHY_NOT_ESTIMATED else "did not converge")
-                           + reason + "; the ladder stops there"
+                           + (reason.rstrip(".") if isinstance(reason, str) else reason) + "; the ladder stops there"
                            + (", and the partial search could not run at this step" if partial != "none" else ""))
                 left_out, left_notes = _rows_left_out(steps[0].result)
+                # the impossible solutions of the steps before it, first as in a ladder that runs through (re-check s18)
+                impossible = tuple(_impossible_line(s, labels) for s in steps
+                                   if s.result.converged and not s.result.admissible)
                 return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
-                                        data_cautions + tuple(left_out) + (stopped,), rule,
+                                        impossible + data_cautions + tuple(left_out) + (stopped,), rule,
                                         notes=tuple(notes) + tuple(left_notes), data_problems=found,
                                         reference_rule=reference, gaps_by_full_information=gaps)
             with threads:
@@ -577,9 +581,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                "that only they differ across groups")
     inadmissible = [s for s in steps if s.result.converged and not s.result.admissible]
     for step in reversed(inadmissible):  # problems first: an impossible solution outranks every other note
-        impossible.insert(0, f"the {step.level} model's solution is not admissible ("
-                           + "; ".join(p.phrase(groups=labels) for p in step.result.problems if p.kind.inadmissible)
-                           + "): its fit and its difference test cannot show that invariance holds")
+        impossible.insert(0, _impossible_line(step, labels))
     differences, latent_note, not_estimated = latent_differences(steps)
     # groups with fewer rows than their configural model's free parameters: every step's comparison rests on them
     small = tuple(f"Group {written_group(p.group, labels)}: {p.line()}" for p in steps[0].result.problems
@@ -603,6 +605,13 @@ def _rows_left_out(configural: FitResult) -> tuple[list[str], list[str]]:
                                     pairwise_instead() if configural.method.ordinal else
                                     gaps_instead(configural.design is not None and configural.design.shared_clusters))
     return [p.line() for p in cautions], notes
+
+
+def _impossible_line(step, labels) -> str:
+    """The caution, first, on a step whose solution is not admissible."""
+    return (f"the {step.level} model's solution is not admissible ("
+            + "; ".join(p.phrase(groups=labels) for p in step.result.problems if p.kind.inadmissible)
+            + "): its fit and its difference test cannot show that invariance holds")
 
 
 def unsound_basis(steps, k: int):
