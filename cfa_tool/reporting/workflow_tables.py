@@ -105,14 +105,15 @@ def _design_caution_lines(named_results) -> list[str]:
     own = [(name, found) for name, found in own if found]
     if all(found == problems for _, found in own):
         return [p.line() for p in problems]
+    steps_of_one_model = len({r.model_name for _, r in named_results}) < len(named_results)
     name = next(n for n, r in named_results if r is most)
     # 'too' only for the models whose cautions are the same; a model's cautions of other figures (its own scaling
     # factor) under its own name (re-check s18: one model's extreme factor, 0.407, was said of the other, 0.651)
-    same = [n for n, found in own if n != name and found == problems]
+    same = [n for n, found in own if n != name and (found == problems or steps_of_one_model)]
     whose = f"{name} (the model with the most free parameters{'; ' + word_list(same) + ' too' if same else ''}): "
     lines = [whose[0].upper() + whose[1:] + p.line() for p in problems]
     for other, found in own:
-        if other != name and found != problems:
+        if other != name and found != problems and not steps_of_one_model:
             lines += [other[0].upper() + other[1:] + ": " + p.line() for p in found]
     return lines
 

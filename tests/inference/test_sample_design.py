@@ -320,7 +320,10 @@ def test_few_clusters_bring_their_caution_to_compare_and_invariance_first(hs_dat
     report = comparison_report(comparison)
     text = report_text(report)
     assert text.index("no more than the 21 free parameters") < text.index("Fit of each model")
-    assert sum("Only 12 clusters" in line for line in report.notice.lines) == 1
+    # each model's own count of parameters, said of that model (re-check s18: one model's figures were said of both)
+    assert sum("Only 12 clusters" in line for line in report.notice.lines) == 2
+    assert sum("no more than the 21 free parameters" in line and "the model with the most free parameters" in line
+               for line in report.notice.lines) == 1
     paragraph = comparison_paragraph(comparison)
     assert "Only 12 clusters in 'unit', no more than the 21 free parameters" in paragraph
     assert paragraph.index("12 clusters defined by unit") < paragraph.index("Only 12 clusters")  # after the design
