@@ -584,7 +584,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         impossible.insert(0, _impossible_line(step, labels))
     differences, latent_note, not_estimated = latent_differences(steps)
     # groups with fewer rows than their configural model's free parameters: every step's comparison rests on them
-    small = tuple(f"Group {written_group(p.group, labels)}: {p.line()}" for p in steps[0].result.problems
+    # (joined, not formatted: the advice's option is a Command part the Word file leaves out; re-check s18, r05)
+    small = tuple(f"Group {written_group(p.group, labels)}: " + p.line() for p in steps[0].result.problems
                   if p.kind is ProblemKind.SMALL_GROUP)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
                             tuple(impossible) + data_cautions + small + tuple(warnings), rule,
