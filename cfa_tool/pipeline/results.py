@@ -586,6 +586,9 @@ class FitResult(Presentable):
         if self.exploratory:
             out["exploratory_blocks"] = [block.to_dict() for block in self.exploratory]
         out["modification_indices"] = self.modification_indices.reported_dicts(self.mi_threshold, self.mi_top)
+        if self.mi_top is not None:  # the list cut: how many reach the threshold (re-check s18: 1 kept of 5, no count)
+            out["modification_indices_reaching_threshold"] = int(np.sum(self.modification_indices.index
+                                                                       >= self.mi_threshold))
         out["warnings"] = [str(w) for w in self.warnings]  # a Note as its reader reads it
         return out
 

@@ -27,3 +27,12 @@ def test_the_title_counts_every_index_that_reaches_the_threshold(hs_data):
 def test_showing_no_index_is_refused(hs_data):
     with pytest.raises(OptionError, match="the number of modification indices to show must be at least 1, not 0"):
         cfa_tool.fit(THREE_FACTORS, hs_data, mi_top=0)
+
+
+def test_the_json_of_a_cut_list_counts_the_indices_that_reach_the_threshold(hs_data):
+    # re-check s18 (r11): the JSON kept the two rows and no count of the others
+    full = cfa_tool.fit(THREE_FACTORS, hs_data)
+    reaching = sum(m.index >= full.mi_threshold for m in full.modification_indices)
+    out = cfa_tool.fit(THREE_FACTORS, hs_data, mi_top=2).to_dict()
+    assert len(out["modification_indices"]) == 2 and out["modification_indices_reaching_threshold"] == reaching
+    assert "modification_indices_reaching_threshold" not in full.to_dict()
