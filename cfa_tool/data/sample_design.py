@@ -198,10 +198,10 @@ class SampleDesign:
                           else f"rescaled to sum to the {self.rows} rows")
                 parts.append(f"sampling weights from the column {c.weights} (sum {self.sum_of_weights:.6g}, {within}; "
                              f"Kish's effective sample size {self.effective_n:.1f}), by "
-                             + ("the weighted full-information likelihood (Asparouhov 2005)" if full_information else
+                             + ("the weighted full-information likelihood (Asparouhov, 2005)" if full_information else
                                 f"weighted thresholds and {correlations} (pseudo-maximum likelihood; Muthén & "
-                                f"Satorra 1995; Asparouhov 2005)" if ordinal else
-                                "pseudo-maximum likelihood on weighted moments (Muthén & Satorra 1995)"))
+                                f"Satorra, 1995; Asparouhov, 2005)" if ordinal else
+                                "pseudo-maximum likelihood on weighted moments (Muthén & Satorra, 1995)"))
         if c.cluster is not None:
             parts.append(f"{self.clusters} clusters defined by {c.cluster}")
         if c.strata is not None:
@@ -213,14 +213,14 @@ class SampleDesign:
         units = "clusters" if c.cluster else "rows"
         if c.strata is not None:
             spread = (f"the {units}' weighted sums centred within each stratum (the variance between {units} within "
-                      f"strata, times C_h/(C_h - 1) for the C_h {units} of stratum h; Binder 1983)")
+                      f"strata, times C_h/(C_h - 1) for the C_h {units} of stratum h; Binder, 1983)")
         else:
-            spread = f"the {units}' weighted sums" + (" (times C/(C - 1) for C clusters; Binder 1983)" if c.cluster else "")
+            spread = f"the {units}' weighted sums" + (" (times C/(C - 1) for C clusters; Binder, 1983)" if c.cluster else "")
         after = ""
         if self.group_rows and self.shared_clusters:
             after += (" The groups are domains that share clusters: their estimating equations are stacked, and each "
                       "cluster's sums gather the contributions of its rows in every group, so the groups' estimates "
-                      "are correlated through their clusters (Binder 1983).")
+                      "are correlated through their clusters (Binder, 1983).")
         elif self.group_rows and (c.cluster or c.strata):
             after += (" The groups were taken as independent samples" + (", each with its own clusters" if c.cluster
                                                                           else "")
