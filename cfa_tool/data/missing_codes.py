@@ -137,10 +137,11 @@ def apply_missing_codes(frame: pd.DataFrame, codes, source: str | Path, items: C
             read_as_none.append((column, int(coded.sum())))
             frame[column] = frame[column].where(~coded)
         else:
+            others = frame[column][~coded].dropna().to_numpy(dtype=float)
             for code in codes:
                 cells = int((frame[column] == code).sum())
                 if cells:
-                    kept.append((column, code, cells))
+                    kept.append((column, code, cells, _far_outside(code, others)))
     looked = "" if mine is None or read_as_none else "of the items"  # the cells looked at: the others keep codes (below)
     return frame, (missing_codes_note(source, codes, read_as_none, looked),) + (
         (kept_codes_note(source, kept, filters),) if kept else ())
@@ -153,13 +154,24 @@ def _left_out(column: str, code: float, filters: Collection) -> bool:
                for f in filters)
 
 
-def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int]], filters: Collection = ()) -> Note:
+def _far_outside(code: float, others) -> bool:
+    """Whether ``code`` lies farther from the column's other values than they spread (-99 beside ages of 18 to 70),
+    as a code of no answer does; a grade of 8 or 9 beside 7 is the column's own value (new-user trial s18)."""
+    if not len(others):
+        return False
+    low, high = float(others.min()), float(others.max())
+    return min(abs(code - low), abs(code - high)) > max(high - low, 1.0) and not low <= code <= high
+
+
+def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int, bool]], filters: Collection = ()) -> Note:
     """The note on codes given with --missing-codes that columns other than the items hold and keep as values, with
-    a row filter that would leave those rows out when none given (``filters``) does already."""
+    a row filter that would leave those rows out when none given (``filters``) does already, for a code far outside
+    the column's other values (:func:`_far_outside`): a value among them is no code of no answer there, and leaving
+    its rows out would drop respondents (a grade of 8 among grades 7 to 9)."""
     shown = "; ".join(f"'{printable(str(column))}' holds {code:g} in {cells} {'row' if cells == 1 else 'rows'}"
-                      for column, code, cells in kept[:NAMED_COLUMNS])
+                      for column, code, cells, _ in kept[:NAMED_COLUMNS])
     more = f" and {len(kept) - NAMED_COLUMNS} more" if len(kept) > NAMED_COLUMNS else ""
-    open_ = [(column, code) for column, code, _ in kept if not _left_out(column, code, filters)]
+    open_ = [(column, code) for column, code, _, far in kept if far and not _left_out(column, code, filters)]
     kept_rows = f"{printable(str(open_[0][0]))} != {open_[0][1]:g}" if open_ else ""
     advice = ("; to leave those rows out, ", Command(f"give a row filter such as {Option.KEEP.given(kept_rows)}",
                                                       f"keep only the rows where {kept_rows}")) if open_ else ()
