@@ -12,18 +12,12 @@ import pandas as pd
 
 import cfa_tool
 from cfa_tool.reporting.workflow_tables import invariance_report
+from tests.heywood_data import ITEMS, heywood_draws
 
 
 def _two_groups() -> pd.DataFrame:
-    rng = np.random.default_rng(1)
-    R = np.eye(6)
-    R[0, 1] = R[1, 0] = R[0, 2] = R[2, 0] = .8
-    R[1, 2] = R[2, 1] = .5
-    R[3:, 3:] = .49
-    np.fill_diagonal(R, 1.0)
-    R[:3, 3:] = R[3:, :3] = .3
-    X = rng.multivariate_normal(np.zeros(6), R, size=400)
-    data = pd.DataFrame(np.digitize(X, [-1.5, -.5, .5, 1.5]) + 1, columns=["x1", "x2", "x3", "y1", "y2", "y3"])
+    X = heywood_draws(np.random.default_rng(1))
+    data = pd.DataFrame(np.digitize(X, [-1.5, -.5, .5, 1.5]) + 1, columns=ITEMS)
     data["g"] = np.where(np.arange(400) % 2, "p", "q")
     return data
 
