@@ -151,7 +151,7 @@ def _unbroken_widths(report: ReportTable) -> list[float]:
             + CELL_PADDING if align == "l" else 0 for j, align in enumerate(report.align)]
 
 
-def _wrapped(widths: list[float], align: tuple[str, ...], room: int, floors: list[float] | None = None) -> list[float]:
+def _wrapped(widths: list[float], align: tuple[str, ...], room: int, floors: list[float]) -> list[float]:
     """The widths with the widest text columns narrowed, their text to wrap, so that the number columns fit
     beside them in one part: when the table is wider than ``room``, the text columns share what the number
     columns leave (at least a third of the room), the widest cut to one width and the narrower kept whole,
@@ -171,7 +171,6 @@ def _wrapped(widths: list[float], align: tuple[str, ...], room: int, floors: lis
             cap = level
             break
     cap = max(int(cap), LEAST_TEXT + CELL_PADDING)
-    floors = floors or [0] * len(widths)
     return [max(min(w, cap), min(w, floor)) if a == "l" else w for w, a, floor in zip(widths, align, floors)]
 
 
