@@ -114,17 +114,18 @@ def words_given(words: list[str]) -> str:
 
 
 def apply_missing_codes(frame: pd.DataFrame, codes, source: str | Path, items: Collection[str] | None = None,
-                        filters: Collection = ()) -> tuple[pd.DataFrame, tuple[str, ...]]:
+                        filters: Collection = ()) -> tuple[pd.DataFrame, tuple[str, ...], frozenset[float]]:
     """``frame`` (of the data file ``source``) with the cells of numbers holding one of ``codes`` (--missing-codes)
-    read as no answer in the item columns ``items`` (every column when None: no model yet), and the notes saying
-    so: how many cells of which columns (:func:`missing_codes_note`), and the other columns that hold a code and
+    read as no answer in the item columns ``items`` (every column when None: no model yet), the codes some such
+    cell held, and the notes saying so: how many cells of which columns (:func:`missing_codes_note`), and the other columns that hold a code and
     keep it (:func:`kept_codes_note`): a group, cluster or weight column's 9 is the value 'Grade 9' more often than
     a code of no answer (new-user trial 9: --missing-codes 9 emptied grade 9 and its rows left the analysis).
     ``filters``: the row filters given (data.filters.RowFilter), which the note's advice does not suggest again."""
     read_as_none: list[tuple[str, int]] = []
     kept: list[tuple[str, float, int]] = []
+    found: set[float] = set()
     if not codes:
-        return frame, ()
+        return frame, (), frozenset()
     frame = frame.copy()
     mine = None if items is None else {str(x) for x in items}
     for column in frame.columns:
@@ -135,6 +136,7 @@ def apply_missing_codes(frame: pd.DataFrame, codes, source: str | Path, items: C
             continue
         if mine is None or str(column) in mine:
             read_as_none.append((column, int(coded.sum())))
+            found.update(float(v) for v in pd.unique(frame[column][coded]))
             frame[column] = frame[column].where(~coded)
         else:
             others = frame[column][~coded].dropna().to_numpy(dtype=float)
@@ -144,7 +146,7 @@ def apply_missing_codes(frame: pd.DataFrame, codes, source: str | Path, items: C
                     kept.append((column, code, cells, _far_outside(code, others)))
     looked = "" if mine is None or read_as_none else "of the items"  # the cells looked at: the others keep codes (below)
     return frame, (missing_codes_note(source, codes, read_as_none, looked),) + (
-        (kept_codes_note(source, kept, filters),) if kept else ())
+        (kept_codes_note(source, kept, filters),) if kept else ()), frozenset(found)
 
 
 def _left_out(column: str, code: float, filters: Collection) -> bool:

@@ -93,6 +93,9 @@ class LoadedData:
     #: the numeric codes given with --missing-codes, read as no answer in the item columns only: the columns that
     #: choose and group the rows keep them as values, which pipeline.column_codes names first
     missing_codes: tuple[float, ...] = ()
+    #: the codes of ``missing_codes`` that some item cell held (so read as no answer): the methods paragraph names
+    #: these, not a code no answer held (fixhost-s18: '-99 was treated as missing' where only a filter column held it)
+    codes_found: tuple[float, ...] = ()
 
     def column_hint(self) -> str:
         """Words for a message about a missing column: the columns read under new names (a name the model uses may
@@ -218,7 +221,7 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     frame, written = written_non_answers(loaded.frame, as_written, listed)  # before the codes: 'refused' made a column text
     item_labels = {c: v for c, v in loaded.value_labels.items() if c not in as_written}
     on_answers = codes_on_answers(frame, missing_codes, item_labels, mine, row_numbers(frame)) if missing_codes else ()
-    frame, code_notes = apply_missing_codes(frame, missing_codes, where, mine, filters)  # in the items only
+    frame, code_notes, found = apply_missing_codes(frame, missing_codes, where, mine, filters)  # in the items only
     frame, labelled = labelled_non_answers(frame, item_labels, tuple(missing_codes))
     if frame is not loaded.frame:
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
@@ -235,7 +238,7 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     if code_notes:
         loaded = replace(loaded, notes=loaded.notes + tuple(code_notes))
     numbers = tuple(float(c) for c in missing_codes if isinstance(c, (int, float)) and not isinstance(c, bool))
-    return replace(loaded, missing_codes=numbers) if numbers else loaded
+    return replace(loaded, missing_codes=numbers, codes_found=tuple(c for c in numbers if c in found)) if numbers else loaded
 
 
 def sheet_of_each(sources, sheet: str | None) -> tuple[str | None, ...]:

@@ -640,7 +640,7 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     if not codes and not words and not marked and not odd:
         return result
     return replace(result, data=replace(result.data, missing_codes=codes, no_answer_words=words, non_answers=marked,
-                                        odd_values=odd))
+                                        odd_values=odd, codes_found=tuple(c for c in codes if c in loaded.codes_found)))
 
 
 def _id_can_apply(spec: Spec, ordinal, fit_options: FitOptions) -> None:

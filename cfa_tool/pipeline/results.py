@@ -249,6 +249,9 @@ class DataSummary:
     not_given: tuple = ()
     # values read as no answer (--missing-codes), which scoring other data with this fit reads so too
     missing_codes: tuple[float, ...] = ()
+    # the codes of ``missing_codes`` that some item cell held, which the methods paragraph names (None: not known,
+    # as a fit of a data frame given without the file's reading has it: every code given is named)
+    codes_found: tuple[float, ...] | None = None
     # the words of no answer the run added (--missing-codes 'Ne sait pas', data.non_answers.also_no_answer), which
     # scoring other data with this fit reads so too (the values read so are named by ``non_answers``)
     no_answer_words: tuple[str, ...] = ()

@@ -475,9 +475,11 @@ def _pairs_with_gaps(result) -> bool:
 
 def _read_as_missing(data) -> str:
     """What was read as no answer, in clauses of the rows' phrase: the codes the user declared (--missing-codes) and
-    the values the data file itself marks as no answer, with their items ('' when neither)."""
+    the values the data file itself marks as no answer, with their items ('' when neither).  A code declared that no
+    item cell held is not named: nothing was treated so (the notes say no cell holds it)."""
     clauses = []
-    codes = [f"{c:g}" for c in getattr(data, "missing_codes", ())]
+    found = getattr(data, "codes_found", None)
+    codes = [f"{c:g}" for c in (getattr(data, "missing_codes", ()) if found is None else found)]
     if codes:
         clauses.append(f"the code{'s' if len(codes) > 1 else ''} {_list(codes)}, declared to mean no answer, "
                        f"{'were' if len(codes) > 1 else 'was'} treated as missing")

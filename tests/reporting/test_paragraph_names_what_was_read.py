@@ -41,6 +41,20 @@ def test_one_declared_code_reads_in_the_singular():
     assert "the code -9, declared to mean no answer, was treated as missing" in text
 
 
+def test_a_declared_code_no_item_holds_is_not_named():
+    """A code given that no item cell holds was treated as nothing (fixhost-s18: '-99 was treated as missing' where
+    only the filter column held -99, which keeps it as a value): the paragraph names the codes the items held only,
+    while the fit keeps every code given for scoring other data."""
+    data = _coded()
+    data["site"] = [-99 if i % 10 == 0 else 1 + i % 2 for i in range(len(data))]
+    result = cfa_tool.fit(THREE_FACTORS, data, missing_codes=(-9, -99), keep=["site = 1"])
+    assert result.data.missing_codes == (-9.0, -99.0) and result.data.codes_found == (-9.0,)
+    text = _flat(methods_paragraph(result))
+    assert "the code -9, declared to mean no answer, was treated as missing" in text and "-99" not in text
+    none_held = cfa_tool.fit(THREE_FACTORS, data.assign(x2=holzinger_swineford()["x2"]), missing_codes=(-99,))
+    assert "declared to mean no answer" not in methods_paragraph(none_held)
+
+
 def test_a_fit_without_codes_names_none():
     assert "declared to mean no answer" not in methods_paragraph(cfa_tool.fit(THREE_FACTORS, holzinger_swineford()))
 
