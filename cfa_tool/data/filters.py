@@ -67,13 +67,14 @@ class RowFilter:
 
     def in_words(self) -> str:
         """The filter as a methods section words it: 'district was north', 'age was at least 18', '"wave 2" was
-        1' (the column as the model language writes names: language.names.written_name); with the rows it left out
-        for an empty cell first: 'mode was not bus (54 rows with no value of mode left out)'."""
+        1' (the column as the model language writes names: language.names.written_name), a code with its label:
+        'gender was not 3, labelled "another / prefers to describe"' (new-user trial s15).  Without parentheses: the
+        methods section says it inside its own (reporting.paragraph), and the rows left out for an empty cell after
+        it (:meth:`empty_words`)."""
         value = f"{self.value:g}" if isinstance(self.value, float) else str(self.value)
-        if self.label is not None:  # 'gender was not 3 ("another / prefers to describe")' (new-user trial s15)
-            value += f' ("{self.label}")'
-        return f"{written_name(self.column)} {_OPERATOR_WORDS[self.operator]} {value}" + (
-            f" ({self.empty_words()} left out)" if self.empty else "")
+        if self.label is not None:
+            value += f', labelled "{self.label}"'
+        return f"{written_name(self.column)} {_OPERATOR_WORDS[self.operator]} {value}"
 
     def empty_words(self) -> str:
         """'54 rows with no value of mode'."""

@@ -219,19 +219,17 @@ class HalfRows:
                     if self.with_gaps else ""))
 
     def in_words(self) -> str:
-        """'the row fell in the confirmation half of two random halves (seed 17; listed in halves.csv)', after
-        'those where' in a methods section, which gives the rows analysed and those in the file; of halves drawn by
-        cluster, 'two random halves of the clusters of school (whole clusters to each half, within the strata of
-        region; seed 17; listed in halves.csv)'.  The file by its name: a methods text names no local folder."""
+        """'the row fell in the confirmation half of two random halves, drawn with seed 17 and listed in halves.csv',
+        after 'those where' in a methods section, which gives the rows analysed and those in the file; of halves
+        drawn by cluster, 'two random halves of the clusters of school, each cluster whole in one half, drawn within
+        the strata of region with seed 17 and listed in halves.csv'.  Without parentheses: the methods section says
+        it inside its own (reporting.paragraph).  The file by its name: a methods text names no local folder."""
         rows = " of the rows with an answer to every model variable" if self.with_gaps else ""
-        within = f"within the strata of {self.strata_column}" if self.strata_column else ""
-        if self.cluster_column:
-            how = (f" of the clusters of {self.cluster_column}{rows} (whole clusters to each half"
-                   + (f", {within}" if within else "") + "; ")
-        else:
-            how = f"{rows} (" + (f"drawn {within}; " if within else "")
-        return (f"the row fell in the {self.name} half of two random halves{how}seed {self.seed}; listed in "
-                f"{Path(self.halves_file).name})")
+        clusters = f" of the clusters of {self.cluster_column}{rows}, each cluster whole in one half" \
+            if self.cluster_column else rows
+        within = f" within the strata of {self.strata_column}" if self.strata_column else ""
+        return (f"the row fell in the {self.name} half of two random halves{clusters}, drawn{within} with seed "
+                f"{self.seed} and listed in {Path(self.halves_file).name}")
 
 
 def fingerprint(path) -> str:

@@ -30,9 +30,13 @@ factors (one on every item), and a cross-loading that would join two bands, are
 listed with the correlations.  No text is drawn smaller than ``SMALLEST_TEXT``
 and no band wider than ``MAX_WIDTH``: the legibility rule stated there.
 Arcs between factors leave each ellipse at their own point of its top, so they
-do not all meet at one point.  The root element names the heights between bands
-(and between groups), where nothing is drawn, in ``data-breaks``: the Word report
-cuts a drawing too large for one page there (reporting.picture.svg_strips).
+do not all meet at one point, and rise in proportion to their length, so two arcs
+that share a factor never cross (arcs between interleaved pairs of a row must cross
+once); each correlation's value stands on its own arc, at its apex unless another
+arc or value is there, then at the nearest free point along it.  The root element
+names the heights between bands (and between groups), where nothing is drawn, in
+``data-breaks``: the Word report cuts a drawing too large for one page there
+(reporting.picture.svg_strips).
 """
 
 from __future__ import annotations
@@ -41,6 +45,8 @@ import enum
 import math
 import textwrap
 from dataclasses import dataclass, field
+
+import numpy as np
 
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.reporting.numbers import printed, unit
@@ -293,7 +299,9 @@ def _layout(result, rows, obs_set) -> _Layout:
             own = [c for c in kids if home.get(c) == f and lay.band_of[c] == lay.band_of[f]] or kids
             lay.centre[f] = sum(lay.centre[c] for c in own) / len(own) if own else width / 2
     _spread_factors([f for f in latent if f not in lay.apart],
-                    {f: (lay.band_of[f], level[f], f in lay.bottom) for f in latent}, lay.centre, disturbed)
+                    {f: (lay.band_of[f], level[f], f in lay.bottom) for f in latent}, lay.centre, disturbed,
+                    frozenset() if wrap else frozenset(frozenset(r.variables) for r in rows
+                                                       if r.kind == "factor_covariance"))
     width = max(width, max((lay.centre[f] + _ellipse_rx(f) + 50 for f in latent if f not in lay.apart), default=0.0),
                 200.0)
     lay.width = width
@@ -340,8 +348,7 @@ def _layout(result, rows, obs_set) -> _Layout:
     for b in range(len(bands)):
         in_band = [f for f in latent if lay.band_of[f] == b and f not in lay.bottom and f not in lay.apart]
         arcs = [r for r in rows if r.kind == "factor_covariance" and not lay.banded and not any(v in lay.bottom for v in r.variables)]
-        spans = [abs(lay.centre[r.variables[0]] - lay.centre[r.variables[1]]) for r in arcs]
-        y += max((_lift(s) for s in spans), default=0.0) + (24 if arcs else 0)
+        y += _arc_rise(rows, lay, [r.variables for r in arcs]) + (24 if arcs else 0)
         if b == 0 and any(r.variables[0] in lay.routed and r.variables[1] in in_band and r.variables not in lay.via_edge
                           for r in loadings):  # straight arrows from the row above: room for them and their values
             y += ROW_GAP - 2 * ELLIPSE_RY - 20
@@ -369,8 +376,7 @@ def _layout(result, rows, obs_set) -> _Layout:
         for f in lay.bottom:
             lay.y_of[f] = y
         bottom_arcs = [r for r in rows if r.kind == "factor_covariance" and all(v in lay.bottom for v in r.variables)]
-        y += ELLIPSE_RY + max((_lift(abs(lay.centre[r.variables[0]] - lay.centre[r.variables[1]])) for r in bottom_arcs),
-                              default=0.0)
+        y += ELLIPSE_RY + _arc_rise(rows, lay, [r.variables for r in bottom_arcs])
     lay.height = y + 40
     return lay
 
@@ -629,21 +635,24 @@ def _draw(result, group: int) -> Drawing:
         parts.append(_label(lx, ly, text, problem=impossible or flagged(r.kind, r.variables)))
     # covariances between factors (arcs above, or below for the bottom row) and between residuals (arcs below)
     ports = _ports(rows, lay)
+    arcs = {}  # each factor covariance drawn: its curve (ends, the control point's height) and its value's text
     for r in rows:
         if r.kind == "factor_covariance" and (r.kind, *r.variables) not in lay.table:
             a, b = r.variables
-            bad = flagged(r.kind, r.variables)
             below = a in lay.bottom and b in lay.bottom
-            (xa, ya), (xb, yb) = ports[(r.variables, a)], ports[(r.variables, b)]
-            if xa > xb:
-                (xa, ya), (xb, yb) = (xb, yb), (xa, ya)
-            lift = _lift(abs(centre[a] - centre[b]))
+            (xa, ya), (xb, yb) = sorted((ports[(r.variables, a)], ports[(r.variables, b)]))
             y = min(ya, yb) if not below else max(ya, yb)
-            bend = lift if below else -lift
-            parts.append(_arc(xa, ya, xb, yb, y + bend * 2, "covariance", bad))
+            arcs[r.variables] = (xa, ya, xb, yb, y + 2 * (1 if below else -1) * _lift(xb - xa), _value(r.standardized))
+    obstacles = placed + [(centre[f] - _ellipse_rx(f), y_of[f] - ELLIPSE_RY, centre[f] + _ellipse_rx(f),
+                           y_of[f] + ELLIPSE_RY) for f in latent]
+    spots = dict(zip(arcs, _arc_values(list(arcs.values()), obstacles)))
+    for r in rows:
+        if r.variables in arcs and r.kind == "factor_covariance":
+            xa, ya, xb, yb, control, text = arcs[r.variables]
+            bad = flagged(r.kind, r.variables)
+            parts.append(_arc(xa, ya, xb, yb, control, "covariance", bad))
             drawn.add(Drawn.ARC)
-            label_y = (ya + yb) / 4 + (y + bend * 2) / 2 + (14 if below else -4)  # apex of the curve
-            parts.append(_label((xa + xb) / 2, label_y, _value(r.standardized), problem=bad))
+            parts.append(_label(*spots[r.variables], text, problem=bad))
         elif r.kind == "residual_covariance" and lay.band_of[r.variables[0]] == lay.band_of[r.variables[1]]:
             a, b = r.variables
             (xa, _), (xb, _) = sorted((_residual_centre(a, lay), _residual_centre(b, lay)))
@@ -733,10 +742,17 @@ def _residual_centre(name: str, lay: _Layout) -> tuple[float, float]:
     return lay.centre[name], lay.y_of[name] + BOX_H + 48
 
 
-def _ports(rows, lay: _Layout) -> dict:
-    """Where each arc between two factors leaves each ellipse: the arcs of one factor are spread over the top
-    of its ellipse (the bottom for the bottom row), the arc to the farthest factor on the left leftmost, so
-    arcs do not all meet at one point."""
+PORT_SPREAD = 0.55  # the arcs of a factor leave its ellipse this share of its half-width either side of its centre
+
+
+def _port_offsets(rows, lay: _Layout) -> dict:
+    """Where each arc between two factors leaves each ellipse, in x from its centre: the arcs of one factor are
+    spread over the top of its ellipse (the bottom for the bottom row), so arcs do not all meet at one point.  From
+    left to right:
+    the arcs to factors on the left, nearest first, then those to factors on the right, farthest first; so of
+    two arcs with a common end the longer one's other end lies beyond the shorter one's at both ends, and, as
+    every arc rises by the same share of its length (``_lift``), it stays above the shorter one: arcs that share
+    a factor never cross."""
     ends: dict[str, list[tuple[float, tuple]]] = {}
     for r in rows:
         if r.kind == "factor_covariance":
@@ -746,19 +762,90 @@ def _ports(rows, lay: _Layout) -> dict:
     ports = {}
     for f, arcs in ends.items():
         rx = _ellipse_rx(f)
-        arcs.sort(key=lambda e: (e[0] > 0, -abs(e[0]) if e[0] <= 0 else abs(e[0])))
-        # left-going arcs: farthest first; right-going arcs: nearest first
+        arcs.sort(key=lambda e: (e[0] > 0, abs(e[0]) if e[0] <= 0 else -abs(e[0])))
         n = len(arcs)
         for k, (_, variables) in enumerate(arcs):
-            dx = 0.0 if n == 1 else -0.55 * rx + 1.1 * rx * k / (n - 1)
-            dy = ELLIPSE_RY * math.sqrt(max(0.0, 1 - (dx / rx) ** 2))
-            ports[(variables, f)] = (lay.centre[f] + dx, lay.y_of[f] + (dy if f in lay.bottom else -dy))
+            ports[(variables, f)] = 0.0 if n == 1 else PORT_SPREAD * rx * (2 * k / (n - 1) - 1)
     return ports
 
 
-def _lift(distance: float) -> float:
-    """Height of a covariance arc over two factors this far apart."""
-    return 30 + 0.18 * distance
+def _ports(rows, lay: _Layout) -> dict:
+    """Each arc's ends on the ellipses of its factors (see ``_port_offsets``)."""
+    ports = {}
+    for (variables, f), dx in _port_offsets(rows, lay).items():
+        dy = ELLIPSE_RY * math.sqrt(max(0.0, 1 - (dx / _ellipse_rx(f)) ** 2))
+        ports[(variables, f)] = (lay.centre[f] + dx, lay.y_of[f] + (dy if f in lay.bottom else -dy))
+    return ports
+
+
+def _arc_rise(rows, lay: _Layout, pairs) -> float:
+    """The height of the highest arc between the factors of ``pairs`` (their x positions known)."""
+    offsets = _port_offsets(rows, lay)
+    return max((_lift(abs(lay.centre[a] + offsets[((a, b), a)] - lay.centre[b] - offsets[((a, b), b)]))
+                for a, b in pairs), default=0.0)
+
+
+#: an arc between two factors rises this share of the distance between its ends (a quadratic curve: it leaves
+#: each end at the same slope, 4 * ARC_RISE, whatever its length)
+ARC_RISE = 0.24
+#: the shortest arc between neighbouring factors, end to end: its value needs room between the other arcs that
+#: leave the two factors (they rise at its slope from the ports beside its ends), so neighbours joined by an arc
+#: are set at least this much further apart than its ends lie inside their ellipses (factors of two short items
+#: each stand about so far apart, 120 units); found by drawing rows of 3 to 8 factors of random sizes, names and
+#: signs of correlations (tests/reporting/test_diagram_arcs.py measures a fixed set)
+SHORTEST_ARC = 74.0
+
+
+def _lift(span: float) -> float:
+    """Height of a covariance arc between two factors' ellipses ``span`` apart (from end to end): proportional,
+    so that of two arcs with a common end the longer never crosses the shorter (see ``_port_offsets``): for
+    y = 4h(x - x0)(x1 - x)/(x1 - x0), the curve of a rise h proportional to its span, the height at any x grows as
+    either end moves out.  Arcs of like spans rise alike, so their values stand in one line, nested by span."""
+    return ARC_RISE * span
+
+
+#: where on its arc a correlation's value may go, in order of preference: the apex first, then along the
+#: curve to either side (a share of the way from its left end)
+ARC_SPOTS = (0.5, 0.44, 0.56, 0.38, 0.62, 0.32, 0.68, 0.26, 0.74, 0.2, 0.8)
+ARC_CLEARANCE = 1.0  # units between a value's box and any other arc
+
+
+def _arc_values(arcs: list[tuple[float, float, float, float, float, str]], blocked: list) -> list[tuple[float, float]]:
+    """Where the value of each arc (x1, y1, x2, y2, control point's height, text) goes (centre, baseline): on its
+    own curve (its white halo interrupts the line, as on a loading's arrow), at the first of ``ARC_SPOTS`` where
+    its box crosses no other arc (with ``ARC_CLEARANCE``) and covers none of the ``blocked`` boxes (other values,
+    ellipses; each value's box is added as it is placed); shorter arcs first, which have the fewest such spots.
+    Where none is free, the spot that covers the fewest boxes, then that the fewest points of other arcs enter.
+    Extent of a text as ``_free_spot``."""
+    t = np.linspace(0.0, 1.0, 401)[:, None]
+
+    def curve(arc, at):
+        x1, y1, x2, y2, control, _ = arc
+        return (1 - at) ** 2 * np.array([x1, y1]) + 2 * at * (1 - at) * np.array([(x1 + x2) / 2, control]) \
+            + at ** 2 * np.array([x2, y2])
+
+    points = [curve(arc, t) for arc in arcs]
+    spots: dict[int, tuple[float, float]] = {}
+    for k in sorted(range(len(arcs)), key=lambda k: arcs[k][2] - arcs[k][0]):
+        others = np.concatenate([points[j] for j in range(len(arcs)) if j != k] or [np.empty((0, 2))])
+        half = TEXT_EM * SMALLEST_TEXT * len(arcs[k][5]) / 2 + 1.5
+        best = None
+        for share in ARC_SPOTS:
+            x, y = curve(arcs[k], share)
+            baseline = y + 4
+            box = (x - half, baseline - 0.8 * SMALLEST_TEXT - 1.5, x + half, baseline + 0.2 * SMALLEST_TEXT + 1.5)
+            near = others[(others[:, 0] > box[0] - ARC_CLEARANCE) & (others[:, 0] < box[2] + ARC_CLEARANCE)
+                          & (others[:, 1] > box[1] - ARC_CLEARANCE) & (others[:, 1] < box[3] + ARC_CLEARANCE)]
+            covered = sum(min(box[2], p[2]) > max(box[0], p[0]) and min(box[3], p[3]) > max(box[1], p[1])
+                          for p in blocked)
+            cost = (covered, len(near))
+            if best is None or cost < best[0]:
+                best = (cost, (x, baseline), box)
+            if cost == (0, 0):
+                break
+        spots[k] = best[1]
+        blocked.append(best[2])
+    return [spots[k] for k in range(len(arcs))]
 
 
 def _arc(x1: float, y1: float, x2: float, y2: float, control_y: float, cls: str, problem: bool = False) -> str:
@@ -767,12 +854,16 @@ def _arc(x1: float, y1: float, x2: float, y2: float, control_y: float, cls: str,
             f'{x2:.1f},{y2:.1f}" fill="none" {look} marker-start="url(#head)" marker-end="url(#head)"/>')
 
 
-def _spread_factors(latent: list[str], row_of: dict, centre: dict[str, float], disturbed: set[str]) -> None:
-    """Push apart factors of one row whose ellipses (and disturbance circles) would overlap."""
+def _spread_factors(latent: list[str], row_of: dict, centre: dict[str, float], disturbed: set[str],
+                    joined: frozenset = frozenset()) -> None:
+    """Push apart factors of one row whose ellipses (and disturbance circles) would overlap, and neighbours
+    joined by an arc (``joined``: pairs as frozensets) whose arc would be too short to carry its value."""
     for row in set(row_of.values()):
         ordered = sorted((f for f in latent if row_of[f] == row), key=lambda f: centre[f])
         for a, b in zip(ordered, ordered[1:]):
             need = _ellipse_rx(a) + _ellipse_rx(b) + 16 + (2 * RESIDUAL_R + 40 if a in disturbed else 0)
+            if frozenset((a, b)) in joined:
+                need = max(need, SHORTEST_ARC + PORT_SPREAD * (_ellipse_rx(a) + _ellipse_rx(b)))
             if centre[b] - centre[a] < need:
                 centre[b] = centre[a] + need
 

@@ -614,12 +614,16 @@ def _pairs_by_group(result) -> str:
 
 def _filtered(data, file: str = "the data file") -> str:
     """' of the 301 rows in the data file, those where school was Pasteur': the rows the row filters (--keep) chose,
-    each filter worded by RowFilter.in_words ('' without filters); ``file``: the file's words (replicate's two files
-    are named)."""
+    each filter worded by RowFilter.in_words, then the rows a filter left out for an empty cell ('; 54 rows with no
+    value of mode were left out'); '' without filters.  ``file``: the file's words (replicate's two files are named).
+    Said inside the parentheses of a sample's description, and so without parentheses of its own (new-user trial
+    18: 'those where the row fell in the A half of two random halves (seed 11; listed in halves.csv)' nested them)."""
     if not data.row_filters:
         return ""
-    return (f" of the {data.rows_in_file} rows in {file}, those where "
-            f"{_list([f.in_words() for f in data.row_filters])}")
+    empty = [f for f in data.row_filters if f.empty]
+    verb = "was" if [f.empty for f in empty] == [1] else "were"
+    return (f" of the {data.rows_in_file} rows in {file}, those where {_list([f.in_words() for f in data.row_filters])}"
+            + (f"; {_list([f.empty_words() for f in empty])} {verb} left out" if empty else ""))
 
 
 def range_restriction_sentence(filters, analysed, factor_items: dict | None = None, where: str = "") -> str:
@@ -671,9 +675,10 @@ def renamed_sentence(data) -> str:
 
 
 def _without_group_clause(count: int, read: int, column: str | None) -> str:
-    """'; 48 of 480 rows had no value in the group column (district) and were left out'."""
-    where = f" ({_name(column)})" if column else ""
-    return (f"; {count} of {read} row{'s' if read != 1 else ''} had no value in the group column{where} and "
+    """'; 48 of 480 rows had no value of district, the group column, and were left out' (said inside the parentheses
+    of the rows analysed, so without parentheses of its own)."""
+    where = f" of {_name(column)}, the group column," if column else " in the group column"
+    return (f"; {count} of {read} row{'s' if read != 1 else ''} had no value{where} and "
             f"{'was' if count == 1 else 'were'} left out")
 def few_categories_sentence(results) -> str:
     """That items of at most FEW_CATEGORIES answer categories were analysed as continuous (the fit's note says so;
@@ -1694,19 +1699,18 @@ def invariance_paragraph(result, levels) -> str:
 def _sample_rows_phrase(rows, data=None, file: str = "") -> str:
     """One sample's rows (workflows.replication.SampleRows) and how those with gaps were used, with what that
     assumes (Little & Rubin, 2002); with ``data`` (its fit's data summary) that row filters chose, the rows of
-    ``file`` they kept (:func:`_filtered`)."""
+    ``file`` they kept (:func:`_filtered`).  Said in parentheses, as fit's (:func:`_sample_phrase`), so without
+    parentheses of its own: its citations after a comma."""
     filters = data is not None and data.row_filters
     text = f"N = {rows.analysed}{_filtered(data, file)}" if filters else f"N = {rows.analysed} of {rows.read} rows read"
     if rows.missing is MissingData.FULL_INFORMATION and rows.with_gaps:
         text += (f"; {rows.with_gaps} with missing answers, whose every answer was used by full-information maximum "
-                 f"likelihood, which assumes that {MISSING_AT_RANDOM} (Little & Rubin, 2002)")
+                 f"likelihood{_FULL_INFORMATION_ASSUMPTION}")
     elif rows.missing is MissingData.PAIRWISE and rows.with_gaps:
-        text += (f"; {rows.with_gaps} with missing answers, used pairwise (each item's thresholds from the rows that "
-                 f"answered it and each correlation from the rows that answered both items), which assumes that "
-                 f"{MISSING_COMPLETELY_AT_RANDOM} (Little & Rubin, 2002)")
+        text += (f"; {rows.with_gaps} with missing answers, used pairwise: each item's thresholds from the rows that "
+                 f"answered it and each correlation from the rows that answered both items{_PAIRWISE_ASSUMPTION}")
     if rows.left_out and rows.missing is MissingData.LISTWISE:
-        text += (f"; {rows.left_out} with missing answers excluded listwise, which assumes that "
-                 f"{MISSING_COMPLETELY_AT_RANDOM} (Little & Rubin, 2002)")
+        text += f"; {rows.left_out} with missing answers excluded listwise{_LISTWISE_ASSUMPTION}"
     elif rows.left_out:
         text += f"; {rows.left_out} answering no model variable left out"
     if not rows.with_gaps and not rows.left_out:
@@ -1786,8 +1790,8 @@ def replication_paragraph(replications) -> str:
                  f"the {rows.in_file} rows of one data file{rows.kept_words()}: each half served once as the calibration sample, where the model was "
                  f"estimated by {by}, and once as the validation sample, where it was refitted (double "
                  f"cross-validation; Cudeck & Browne, 1983), and whether one solution holds in both halves was "
-                 f"tested once (the same two halves either way); half A: {_sample_rows_phrase(first.rows[0])}; half B: "
-                 f"{_sample_rows_phrase(first.rows[1])}."] if first.rows else []
+                 f"tested once, with the same two halves either way: half A ({_sample_rows_phrase(first.rows[0])}) "
+                 f"and half B ({_sample_rows_phrase(first.rows[1])})."] if first.rows else []
     else:
         parts = [f"The replication of {model} was examined in two samples: the model was estimated in a calibration "
                  f"sample ({_sample_rows_phrase(first.rows[0], result.data, first.calibration)}) and refitted in a "

@@ -816,10 +816,12 @@ def replication_report(replications) -> Report:
     reps = list(getattr(replications, "replications", None) or [replications])
     problems, cautions, tables, notes = [], [], [], []
     for k, rep in enumerate(reps):
-        problems += _problem_lines([(f"the calibration fit ({rep.calibration})", rep.calibration_result),
-                                    (f"the loose refit ({rep.validation})", rep.loose)])
-        cautions += _caution_lines([(f"the calibration fit ({rep.calibration})", rep.calibration_result),
-                                    (f"the loose refit ({rep.validation})", rep.loose)])
+        # each fit named by its data after 'on', never in parentheses: a description of data may hold its own
+        # ('data.dta (half B, seed 11)'), and parentheses in parentheses read badly (new-user trial 18)
+        named = [(f"the calibration fit on {rep.calibration}", rep.calibration_result),
+                 (f"the loose refit on {rep.validation}", rep.loose)]
+        problems += _problem_lines(named)
+        cautions += _caution_lines(named)
         cal = _replication_figures(rep.calibration_result, rep.adjusted)
         total = rep.calibration_result.n_obs + rep.loose.n_obs
         rows = [[f"Calibration fit (N = {rep.calibration_result.n_obs})", f"{cal[0]:.3f}", str(cal[1]),

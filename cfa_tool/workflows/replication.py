@@ -358,7 +358,7 @@ def replicate_moments(spec: Spec, calibration: SampleMoments, validation: Sample
     with estimation_of(f"calibration sample {calibration.source}"):
         cal = fit_moments(spec, calibration, fit_options(calibration))
     if not cal.converged:
-        raise EstimationError(f"the model did not converge in the calibration sample {calibration.source} ({cal.message})")
+        raise EstimationError(f"the model did not converge in the calibration sample {calibration.source}: {cal.message}")
     with estimation_of(f"validation sample {validation.source}"):
         loose = fit_moments(spec, validation, fit_options(validation))
     cal, loose = _described(cal, spec, None), _described(loose, spec, None)  # the methods paragraph's model
@@ -392,7 +392,7 @@ def replicate_ordinal(spec: Spec, calibration, validation, method: Weighting | s
     with estimation_of(f"calibration sample {calibration.source}"):
         cal = fit_ordinal(spec, calibration, fit_options, method)
     if not cal.converged:
-        raise EstimationError(f"the model did not converge in the calibration sample {calibration.source} ({cal.message})")
+        raise EstimationError(f"the model did not converge in the calibration sample {calibration.source}: {cal.message}")
     with estimation_of(f"validation sample {validation.source}"):
         loose = fit_ordinal(spec, validation, fit_options, method)
     cal, loose = _described(cal, spec, None), _described(loose, spec, None)  # the methods paragraph's model

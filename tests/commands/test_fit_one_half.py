@@ -60,7 +60,8 @@ def test_fit_of_the_confirmation_half_is_a_fit_of_its_rows_alone(explored, tmp_p
     assert f"150 rows analysed of 150 kept by the row filter 'confirmation half (seed 11) of {halves}' (301 rows" in flat
     assert f"Only the rows of the confirmation half (seed 11) of {halves} are analysed: 150 of the 301 rows" in flat
     assert (f"N = 150 of the 301 rows in the data file, those where the row fell in the confirmation half of two "
-            f"random halves (seed 11; listed in {halves.name})") in flat  # the file's name, not its folder (s18)
+            f"random halves, drawn with seed 11 and listed in {halves.name}") in flat  # the file's name, not its
+    # folder (s18), and no parentheses inside the sample's own (s18)
     start = flat.index("N = 150 of the 301 rows in the data file")
     assert str(halves.parent) not in flat[start:start + 400]
 

@@ -78,7 +78,7 @@ def test_halves_of_the_complete_rows_read_back_when_rows_with_gaps_are_left_out(
     note = next(n for n in half.warnings if "half (seed 3)" in n)
     assert ("133 of the 265 rows split at random into two halves, those with an answer to every model variable "
             "(34 rows with gaps left out before the split, as missing='listwise' leaves them out)") in note
-    assert "two random halves of the rows with an answer to every model variable (seed 3" in \
+    assert "two random halves of the rows with an answer to every model variable, drawn with seed 3" in \
         " ".join(methods_paragraph(half).split())
 
     # a run that keeps rows with gaps is refused, naming the handling and what to run (exit 2, one line)

@@ -420,3 +420,12 @@ def test_a_higher_order_factor_drawn_above_bands_has_an_arrow_to_each_of_its_fac
         routed += on_left
         assert unit(r.standardized, 2) in ["".join(t.itertext()) for t in root.iter(SVG + "text")]
     assert routed >= 1  # some factor in a band below the first
+
+
+@pytest.mark.parametrize("shape", LAYOUTS)
+def test_each_arc_of_every_layout_keeps_its_value_readable(shapes, shape):
+    """The arcs of these layouts (factor correlations, residual correlations, an exploratory block's factors, two
+    groups), measured as tests/reporting/test_diagram_arcs.py measures the rows of 2 to 8 factors."""
+    from tests.reporting.test_diagram_arcs import unreadable
+
+    assert unreadable(diagram_file(shapes[shape])) == []

@@ -26,14 +26,14 @@ def test_the_fit_paragraph_gives_the_reason_rows_were_left_out(hs_data):
     result = cfa_tool.fit(THREE_FACTORS, data, group="school")
     text = " ".join(methods_paragraph(result).split())
     assert result.data.without_group == without and result.to_dict()["data"]["rows_without_group"] == without
-    assert f"{without} of {len(data)} rows had no value in the group column (school) and were left out" in text
+    assert f"{without} of {len(data)} rows had no value of school, the group column, and were left out" in text
     assert "answered no model variable" not in text
     listwise = cfa_tool.fit(THREE_FACTORS, data, group="school", missing="listwise")
     gaps = int((data["school"].notna() & data["x2"].isna()).sum())
     text = " ".join(methods_paragraph(listwise).split())
     assert (f"the {len(data) - gaps - without} complete rows were analysed and {gaps} of {len(data)} rows with "
             f"missing answers excluded listwise" in text)
-    assert f"{without} of {len(data)} rows had no value in the group column (school)" in text
+    assert f"{without} of {len(data)} rows had no value of school, the group column," in text
 
 
 def test_the_comparison_says_it_too(hs_data):
@@ -43,7 +43,7 @@ def test_the_comparison_says_it_too(hs_data):
     assert comparison.without_group == without and comparison.rows_dropped == 0
     report = comparison_report(comparison)
     text = " ".join(report.paragraph.split())
-    assert f"{without} of {len(data)} rows had no value in the group column (school) and were left out" in text
+    assert f"{without} of {len(data)} rows had no value of school, the group column, and were left out" in text
     assert "answered none of some model's variables" not in text
     # 21 of 301 rows (7%): past the share of listwise deletion's caution, a caution first (hostile tester s15)
     assert any(p.explanation.startswith(f"{without} of {len(data)} rows (7%) have no value in the group column 'school'")
@@ -62,4 +62,4 @@ def test_the_invariance_paragraph_says_it_too(hs_data):
     assert ladder.steps[0].result.n_obs == len(data) - without  # counted by pandas above
     text = " ".join(invariance_paragraph(ladder, LEVELS).split())
     assert f"(N = {len(data) - without}; " in text
-    assert f"; {without} of {len(data)} rows had no value in the group column (school) and were left out)" in text
+    assert f"; {without} of {len(data)} rows had no value of school, the group column, and were left out)" in text

@@ -96,7 +96,8 @@ def test_replicate_with_two_files_names_each_files_filter(rider_demo, rider_mode
         kept = int((frame["on_time"] >= 3).sum())  # pandas: the rows the filter keeps
         empty = int(frame["on_time"].isna().sum())
         rows = f"of the {len(frame)} rows in {path}, those where on_time was at least 3" + (
-            f" ({empty} row{'s' if empty != 1 else ''} with no value of on_time left out)" if empty else "")
+            f"; {empty} row{'s' if empty != 1 else ''} with no value of on_time {'was' if empty == 1 else 'were'} "
+            "left out" if empty else "")
         assert f"a {name} sample (N = {kept} {rows}" in text
         assert (f"In the {name} sample, the rows were selected by their answers to on_time (an item of punctuality; "
                 f"{_left_out(frame)} rows with an answer to it") in text

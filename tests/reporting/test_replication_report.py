@@ -77,8 +77,8 @@ def test_the_methods_paragraph_says_the_model_the_rows_the_test_and_the_index(sa
     assert paragraph.startswith("The replication of a confirmatory factor analysis with 12 indicators of three "
                                 "correlated factors (punctuality, comfort, and courtesy) was examined in two samples")
     assert (f"refitted in a validation sample (N = 240 of 240 rows read; {_gaps(second)} with missing answers, whose every answer "
-            "was used by full-information maximum likelihood, which assumes that answers are missing at random "
-            "(Little & Rubin, 2002))") in paragraph
+            "was used by full-information maximum likelihood, which assumes that answers are missing at random, "
+            "Little & Rubin, 2002)") in paragraph  # no parentheses inside the sample's own (new-user trial 18)
     t = rep.same_solution
     assert f"\u03c7\u00b2({t.df_difference}) = {t.chi_square_difference:.2f}" in paragraph
     assert "held equal (the intercepts free in each sample; Jöreskog, 1971)" in paragraph
@@ -91,7 +91,7 @@ def test_the_paragraph_of_ordinal_halves_names_pairwise_rows_and_tests_once(samp
     a, b = cfa_tool.split_half(MODEL, resource_dir("demo") / "rider_survey.csv", seed=3, ordinal="all")
     assert a.same_solution is b.same_solution  # the same two halves: one test
     paragraph = report_of(cfa_tool.workflows.replication.Replications((a, b))).paragraph
-    assert "used pairwise" in paragraph and "missing completely at random (Little & Rubin, 2002)" in paragraph
+    assert "used pairwise" in paragraph and "missing completely at random, Little & Rubin, 2002)" in paragraph
     assert paragraph.count("Whether one solution holds in both samples was tested") == 1
     assert "held equal (the thresholds free in each sample" in paragraph
     assert "error covariance and factor variance" in paragraph and "error variance and" not in paragraph

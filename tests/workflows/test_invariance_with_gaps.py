@@ -131,8 +131,8 @@ def test_rows_without_a_group_label_are_counted_as_fit_counts_them(holes):
     text = " ".join(ladder.summary().split())
     assert (f"the {len(data) - dropped - 7} complete rows were analysed and {dropped} of {len(data)} rows with missing "
             f"answers excluded listwise, which assumes that answers are missing completely at random" in text)
-    assert f"7 of {len(data)} rows had no value in the group column (school) and were left out" in text
-    assert f"7 of {len(data)} rows had no value in the group column (school)" in methods_paragraph(grouped)
+    assert f"7 of {len(data)} rows had no value of school, the group column, and were left out" in text
+    assert f"7 of {len(data)} rows had no value of school, the group column," in methods_paragraph(grouped)
 
 
 def test_ordinal_rows_per_pair_are_given_for_each_group(holes):
