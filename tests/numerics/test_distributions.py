@@ -204,3 +204,14 @@ def test_importing_and_calling_them_leaves_scipy_special_unloaded():
             "print(sorted(m for m in sys.modules if m.startswith(slow)))\n")
     done = subprocess.run([sys.executable, "-c", code], cwd=ROOT, capture_output=True, text=True, check=True)
     assert done.stdout.strip() == "[]"
+
+
+def test_the_noncentrality_bound_without_the_direct_inverse(monkeypatch):
+    """When the direct inverse gives no answer, the RMSEA interval's bound comes from Brent's root of the cdf (the
+    fallback of assessment/fit_indices.noncentrality_bound): the same number, to its tolerance of 1e-10."""
+    from cfa_tool.assessment import fit_indices
+
+    direct = fit_indices.noncentrality_bound(85.306, 24, 0.05)
+    monkeypatch.setattr(dist, "ncx2_noncentrality", lambda x, df, p: float("nan"))
+    assert fit_indices.noncentrality_bound(85.306, 24, 0.05) == pytest.approx(direct, abs=1e-9)
+    assert direct == pytest.approx(special.chndtrinc(85.306, 24, 0.05), rel=1e-12)
