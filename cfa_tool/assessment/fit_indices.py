@@ -137,8 +137,8 @@ def noncentrality_bound(chi_square: float, df: int, probability: float, central_
     f = lambda lam: dist.ncx2_cdf(chi_square, df, lam) - probability if lam > 0 else central_cdf - probability
     if f(0.0) < 0:
         return 0.0
-    direct = dist.ncx2_noncentrality(chi_square, df, probability)  # the inverse in closed numerical form
-    if np.isfinite(direct) and direct >= 0 and abs(f(direct)) < 1e-9:
+    direct = dist.ncx2_noncentrality(chi_square, df, probability)  # Newton's root, NaN where it finds none
+    if np.isfinite(direct) and direct >= 0:
         return float(direct)
     hi = max(1.0, chi_square)
     while f(hi) > 0:

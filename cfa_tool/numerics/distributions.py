@@ -156,41 +156,54 @@ def _window_sum(y: float, a: float, mu: float, low: int, high: int,
         first, last = low, high + _falling_up(a + high, y)
     else:
         first, last = max(low - _falling_down(a + low, y), bottom), high
-    j = np.arange(first, last + 1, dtype=float)
-    b = a + j
+    b = np.arange(first, last + 1, dtype=float)
+    b += a
     peak = min(max(math.ceil(y - 1.0 - a), first), last)  # the largest D: D(b + 1) / D(b) = y / (b + 1)
-    k = peak - first
-    d = np.empty(len(j))
-    d[k] = _gamma_term(a + peak, y)
-    if k + 1 < len(d):
-        d[k + 1:] = d[k] * np.cumprod(y / b[k + 1:])
-    if k > 0:
-        d[:k] = d[k] * np.cumprod(b[k:0:-1] / y)[::-1]
+    d = _from_largest(b, peak - first, _gamma_term(a + peak, y), y)
     window = slice(low - first, high - first + 1)
     if up:
-        p = np.cumsum(d[::-1])[::-1][window]  # P(a + j, y): the sum of D(a + i, y) over i >= j, smallest first
+        p = np.add.accumulate(d[::-1])[::-1][window]  # P(a + j, y): the sum of D(a + i, y) over i >= j, smallest first
         values = 1.0 - p if upper else p
     else:
         base = _base_upper_gamma(a + first, y) if first == bottom else 0.0  # else below e^-45 of the sum
-        q = base + np.concatenate(([0.0], np.cumsum(d[:-1])))[window]  # Q(a + j, y) = Q(a + first, y) + sum
+        q = np.empty(len(d))  # Q(a + j, y) = Q(a + first, y) + the sum of D(a + i, y) over i < j
+        q[0] = 0.0
+        np.add.accumulate(d[:-1], out=q[1:])
+        q = q[window]
+        q += base
         values = q if upper else 1.0 - q
     sign = 1.0 if upper else -1.0
+    d = d[window]
     if mu == 0.0:
-        value, slope = float(values[0]), float(d[window][0])
+        value, slope = float(values[0]), float(d[0])
         return value, value, value, sign * slope, -sign * a * slope
-    i = j[window]
+    i = np.arange(low, high + 1, dtype=float)
     m = min(max(math.floor(mu), low), high)  # the largest weight within the window
-    km = m - low
-    w = np.empty(len(i))
-    w[km] = _gamma_term(float(m), mu)
-    if km + 1 < len(w):
-        w[km + 1:] = w[km] * np.cumprod(mu / i[km + 1:])
-    if km > 0:
-        w[:km] = w[km] * np.cumprod(i[km:0:-1] / mu)[::-1]
+    w = _from_largest(i, m - low, _gamma_term(float(m), mu), mu)
     terms = w * values
-    wd = w * d[window]
-    return (float(terms.sum()), float(terms[0]), float(terms[-1]), sign * float(wd.sum()),
-            -sign * float(wd @ b[window]))
+    w *= d
+    return (float(np.add.reduce(terms)), float(terms[0]), float(terms[-1]), sign * float(np.add.reduce(w)),
+            -sign * float(w @ b[window]))
+
+
+def _from_largest(b: np.ndarray, k: int, largest: float, y: float) -> np.ndarray:
+    """Terms proportional to y^b / Gamma(b + 1) at the consecutive points ``b`` (D(b, y), and at whole b the Poisson
+    probabilities at mean y), from the k-th, ``largest``, by the ratios of neighbours t_i+1 / t_i = y / b_i+1 in
+    products taken outward from it: nothing overflows, and a term underflows only where it is that small."""
+    t = np.empty(len(b))
+    t[k] = largest
+    if k + 1 < len(t):
+        above = t[k + 1:]
+        np.divide(y, b[k + 1:], out=above)
+        np.multiply.accumulate(above, out=above)
+        above *= largest
+    if k > 0:
+        below = t[:k]
+        np.divide(b[1:k + 1], y, out=below)  # t_i / t_i+1 = b_i+1 / y
+        reverse = below[::-1]
+        np.multiply.accumulate(reverse, out=reverse)
+        below *= largest
+    return t
 
 
 def _poisson_mixture(y: float, a: float, mu: float, upper: bool) -> tuple[float, float, float]:

@@ -68,8 +68,9 @@ def increasing_root(f: Callable[[float], tuple[float, float]], start: float, low
     the bracket that the signs of the values seen so far give (starting from [``low``, ``high``]), bisection of it
     where a step would leave it (Press et al. 2007, section 9.4, rtsafe); no step longer than ``largest_step``
     (where the bracket is still open on that side, or a flat tail sends Newton's step far).  Ends when a step is
-    below ``rtol`` |x| (or a bisected bracket that narrow), or at a zero.  Values may be infinite (a logarithm of
-    a probability that underflowed): they narrow the bracket, and the step towards the root is the longest."""
+    below ``rtol`` |x| (or a bisected bracket that narrow), or at a zero; NaN when ``iterations`` do not get there.
+    Values may be infinite (a logarithm of a probability that underflowed): they narrow the bracket, and the step
+    towards the root is the longest."""
     x = float(start)
     for _ in range(iterations):
         value, slope = f(x)
@@ -92,4 +93,4 @@ def increasing_root(f: Callable[[float], tuple[float, float]], start: float, low
             if high - low <= rtol * abs(following):
                 return following
         x = following
-    return x
+    return math.nan  # no convergence within ``iterations``: no root to give

@@ -215,3 +215,9 @@ def test_the_noncentrality_bound_without_the_direct_inverse(monkeypatch):
     monkeypatch.setattr(dist, "ncx2_noncentrality", lambda x, df, p: float("nan"))
     assert fit_indices.noncentrality_bound(85.306, 24, 0.05) == pytest.approx(direct, abs=1e-9)
     assert direct == pytest.approx(special.chndtrinc(85.306, 24, 0.05), rel=1e-12)
+
+
+def test_newton_root_without_convergence_is_nan():
+    # a root never reached in the iterations allowed (a step of at most 1 towards a root at 1000): NaN, which the
+    # RMSEA bound's caller takes for "no direct answer"
+    assert math.isnan(increasing_root(lambda x: (x - 1000.0, 1.0), 0.0, largest_step=1.0, iterations=10))
