@@ -28,6 +28,7 @@ import numpy as np
 
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.linalg import log_det_pd, spd_inverse
+from cfa_tool.numerics.roots import bracketed_root
 
 
 @dataclass(frozen=True)
@@ -136,17 +137,15 @@ def noncentrality_bound(chi_square: float, df: int, probability: float, central_
     f = lambda lam: dist.ncx2_cdf(chi_square, df, lam) - probability if lam > 0 else central_cdf - probability
     if f(0.0) < 0:
         return 0.0
-    direct = dist.ncx2_noncentrality(chi_square, df, probability)  # the inverse in closed numerical form
-    if np.isfinite(direct) and direct >= 0 and abs(f(direct)) < 1e-9:
+    direct = dist.ncx2_noncentrality(chi_square, df, probability)  # Newton's root, NaN where it finds none
+    if np.isfinite(direct) and direct >= 0:
         return float(direct)
-    from scipy.optimize import brentq  # only when the direct inverse fails: scipy.optimize is slow to import
-
     hi = max(1.0, chi_square)
     while f(hi) > 0:
         hi *= 2.0
         if hi > 1e8:
             return float("nan")
-    return float(brentq(f, 0.0, hi, xtol=1e-10))
+    return float(bracketed_root(f, 0.0, hi, xtol=1e-10))
 
 
 def rmsea_interval(chi_square: float, df: int, n_obs: int, groups: int = 1, level: float = 0.90) -> tuple[float, float]:

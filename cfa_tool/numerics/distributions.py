@@ -1,16 +1,288 @@
-"""The few distribution functions the tool needs, from scipy.special (importing
-scipy.stats costs more than half a second at every start of the command)."""
+"""The chi-square, noncentral chi-square and normal distribution functions a report needs, with numpy and math only:
+importing scipy.special costs about 0.1 s at a start of the command (30 ms on top of scipy.linalg, whose array layer
+it shares; that layer loads numpy.testing and numpy.f2py), more than every p-value and interval of a report take.
+
+One rule divides the work: the report's numbers (a test's p-value, an RMSEA interval, a power, a critical value, a
+bootstrap interval's levels, a polychoric correlation's few thresholds) come from here, for scalars or small arrays;
+the modules that evaluate a distribution over large arrays in their own inner loops import scipy.special themselves,
+at the point where they are first needed, since they are off a plain fit's path: ``numerics/bivariate.py`` (erfc in
+the bivariate normal probabilities of ordinal items' cells), ``assessment/ordinal_reliability.py`` (ndtr of the
+thresholds of ordinal omega), ``scoring/ordinal.py`` (log_ndtr of every row's answer probabilities in the ordinal
+scores) and ``scoring/quadrature.py`` (ndtri of the quadrature points).
+
+Sources of the methods:
+
+* the regularized incomplete gamma functions P(a, x) and Q(a, x) = 1 - P(a, x) (chi-square with 2a df at 2x) as
+  sums of the terms D(b, x) = x^b e^-x / Gamma(b + 1): P(a, x) = sum over m >= 0 of D(a + m, x) (the series of
+  Abramowitz & Stegun 1964, 6.5.29; Press et al. 2007, section 6.2, gser) where the terms fall from the start
+  (x < a + 1), and Q(a + n, x) = Q(a, x) + sum over m < n of D(a + m, x) (the recurrence in a, A&S 6.5.21-22)
+  where they fall downward, from a base a in (0, 1] (Q(1, x) = e^-x, Q(1/2, x) = erfc(sqrt x), else the continued
+  fraction of Press et al. 2007, gcf, modified Lentz), unless they are negligible before it; both sums add
+  positive terms only, so every value keeps its relative accuracy, and they are summed with numpy from the largest
+  term out, the terms by ratios of neighbours and the largest one in Loader's (2000) saddle-point form
+  exp(-stirlerr(b) - bd0(b, x)) / sqrt(2 pi b), which keeps about 12 digits for df in the tens of thousands (240
+  items); arrays of upper tails with whole df (rows' Mahalanobis distances) by the same recurrence's finite sums
+  from its base, element by element at once;
+* the noncentral chi-square as the Poisson mixture of central ones (Johnson, Kotz & Balakrishnan 1995, eq. 29.2),
+  summed over a window of the Poisson index around its largest term (of the cdf's terms or of the survival
+  function's), widened while its edge terms are not negligible; the upper tail summed as such, never as 1 - cdf;
+* quantiles and the noncentrality for a given cdf value by Newton's steps kept inside a bracket (Press et al. 2007,
+  rtsafe; ``numerics/roots.py``), the slopes being sums over the same terms;
+* the normal cdf by math.erfc, its quantile by Wichura's (1988) algorithm AS241 (coefficients as published).
+
+Checked against scipy.special over wide grids in ``tests/numerics/test_distributions.py``.
+"""
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
-from scipy import special
+
+from cfa_tool.numerics.roots import increasing_root
+
+_HALF_LOG_2PI = 0.5 * math.log(2.0 * math.pi)
+_SQRT_HALF = math.sqrt(0.5)
+_TAIL = 45.0  # a sum of falling terms is cut where its terms fall below e^-45 (3e-20) of its first
+_NEGLIGIBLE = 1e-17  # a Poisson window is wide enough when its edge terms are below this share of its sum
+_NAN = float("nan")
+#: Newton's last step: once a step is below this share of x, the root is x plus it, its error of the order of the
+#: step squared (the functions solved are smooth logarithms of probabilities)
+_LAST_STEP = 1e-9
+
+
+def _stirling_error(b: float) -> float:
+    """ln Gamma(b + 1) - [(b + 1/2) ln b - b + ln sqrt(2 pi)], b > 0 (Loader 2000, stirlerr); above 15 by its
+    asymptotic series (Abramowitz & Stegun 1964, 6.1.41) to the term in b^-9."""
+    if b > 15.0:
+        b2 = 1.0 / (b * b)
+        return (1 / 12 - (1 / 360 - (1 / 1260 - (1 / 1680 - b2 / 1188) * b2) * b2) * b2) / b
+    return math.lgamma(b + 1.0) - (b + 0.5) * math.log(b) + b - _HALF_LOG_2PI
+
+
+def _deviance(b: float, y: float) -> float:
+    """b ln(b / y) + y - b for b, y > 0 (Loader 2000, bd0): near b = y by its series in v = (b - y) / (b + y), where
+    the direct form would lose its digits to cancellation."""
+    if abs(b - y) < 0.1 * (b + y):
+        v = (b - y) / (b + y)
+        v2 = v * v
+        total = (b - y) * v
+        term = 2.0 * b * v
+        j = 1
+        while True:
+            term *= v2
+            following = total + term / (2 * j + 1)
+            if following == total:
+                return total
+            total = following
+            j += 1
+    return b * math.log(b / y) + y - b
+
+
+def _gamma_term(b: float, y: float) -> float:
+    """D(b, y) = y^b e^-y / Gamma(b + 1) for b >= 0, y > 0: P(b, y) - P(b + 1, y), and at whole b the Poisson
+    probability of b events at mean y; from b = 1 on in Loader's (2000) form exp(-stirlerr(b) - bd0(b, y)) /
+    sqrt(2 pi b)."""
+    if b < 1.0:
+        return math.exp(b * math.log(y) - y - math.lgamma(b + 1.0))
+    return math.exp(-_stirling_error(b) - _deviance(b, y)) / math.sqrt(2.0 * math.pi * b)
+
+
+def _base_upper_gamma(a: float, y: float) -> float:
+    """Q(a, y) for 0 < a <= 1 and y > 0: e^-y at a = 1, erfc(sqrt y) at a = 1/2; otherwise 1 - P(a, y) by P's series
+    below a + 1 (1 - P there loses at most two or three digits for a above 0.005, df above 0.01) and Q's continued
+    fraction above (Press et al. 2007, section 6.2, gser and gcf)."""
+    if a == 1.0:
+        return math.exp(-y)
+    if a == 0.5:
+        return math.erfc(math.sqrt(y))
+    prefix = math.exp(a * math.log(y) - y - math.lgamma(a))  # y^a e^-y / Gamma(a)
+    if y < a + 1.0:
+        term = total = 1.0 / a
+        n = a
+        while term > 1e-17 * total:
+            n += 1.0
+            term *= y / n
+            total += term
+        return 1.0 - prefix * total
+    tiny = 1e-300
+    b = y + 1.0 - a
+    c, d = 1.0 / tiny, 1.0 / b
+    h = d
+    for i in range(1, 1000):
+        an = -i * (i - a)
+        b += 2.0
+        d = an * d + b
+        d = 1.0 / (d if abs(d) >= tiny else tiny)
+        c = b + an / c
+        c = c if abs(c) >= tiny else tiny
+        h *= d * c
+        if abs(d * c - 1.0) <= 2.3e-16:  # the spacing of floats at 1
+            break
+    return prefix * h
+
+
+def _falling_up(b: float, y: float) -> int:
+    """How many terms D(b + 1, y), D(b + 2, y), ... follow D(b, y) before they fall below e^-45 of it, y < b + 1:
+    the ratios y / (b + k) fall at least geometrically from y / (b + 1), and their product is at most
+    exp(-m (m - 1) / (2 (b + m))) after m of them (ln(1 + u) >= u / (1 + u))."""
+    ratio = y / (b + 1.0)
+    geometric = _TAIL / -math.log(ratio) if ratio > 0.0 else 0.0
+    gaussian = ((1 + 2 * _TAIL) + math.sqrt((1 + 2 * _TAIL) ** 2 + 8 * _TAIL * b)) / 2
+    return math.ceil(min(geometric, gaussian)) + 2
+
+
+def _falling_down(b: float, y: float) -> int:
+    """How many terms D(b - 1, y), D(b - 2, y), ... follow D(b, y) before they fall below e^-45 of it, b < y: the
+    ratios (b - i) / y fall at least geometrically from b / y, and their product is at most exp(-m (m - 1) / (2 b))
+    after m of them."""
+    geometric = _TAIL / -math.log(b / y) if b > 0.0 else 0.0
+    gaussian = (1 + math.sqrt(1 + 8 * _TAIL * b)) / 2
+    return math.ceil(min(geometric, gaussian)) + 2
+
+
+def _window_sum(y: float, a: float, mu: float, low: int, high: int,
+                upper: bool) -> tuple[float, float, float, float, float]:
+    """(S, its first term, its last term, dS / d mu, dS / d ln y) for S the sum over j from ``low`` to ``high`` of
+    w_j R(a + j, y), R = Q if ``upper`` else P, w_j the Poisson probabilities of j at mean ``mu`` (1 at j = 0 when
+    mu = 0).  The derivatives (for Newton's steps) are sums over the same window: d/d mu of the sum of w_j P(a + j, y)
+    is -sum w_j D(a + j, y) (as d w_j / d mu = w_j-1 - w_j), and d/dy of P(b, y) is D(b - 1, y) = D(b, y) b / y."""
+    bottom = 1 - math.ceil(a)  # a + bottom lies in (0, 1]: where the recurrence of Q starts
+    if upper:
+        up = not a + low < y  # the terms D fall below the window: Q by its sum, else 1 - P by P's series
+    else:
+        up = a + high + 1.0 > y  # the terms D fall above the window: P by its series, else 1 - Q
+    if up:
+        first, last = low, high + _falling_up(a + high, y)
+    else:
+        first, last = max(low - _falling_down(a + low, y), bottom), high
+    b = np.arange(first, last + 1, dtype=float)
+    b += a
+    peak = min(max(math.ceil(y - 1.0 - a), first), last)  # the largest D: D(b + 1) / D(b) = y / (b + 1)
+    d = _from_largest(b, peak - first, _gamma_term(a + peak, y), y)
+    window = slice(low - first, high - first + 1)
+    if up:
+        p = np.add.accumulate(d[::-1])[::-1][window]  # P(a + j, y): the sum of D(a + i, y) over i >= j, smallest first
+        values = 1.0 - p if upper else p
+    else:
+        base = _base_upper_gamma(a + first, y) if first == bottom else 0.0  # else below e^-45 of the sum
+        q = np.empty(len(d))  # Q(a + j, y) = Q(a + first, y) + the sum of D(a + i, y) over i < j
+        q[0] = 0.0
+        np.add.accumulate(d[:-1], out=q[1:])
+        q = q[window]
+        q += base
+        values = q if upper else 1.0 - q
+    sign = 1.0 if upper else -1.0
+    d = d[window]
+    if mu == 0.0:
+        value, slope = float(values[0]), float(d[0])
+        return value, value, value, sign * slope, -sign * a * slope
+    i = np.arange(low, high + 1, dtype=float)
+    m = min(max(math.floor(mu), low), high)  # the largest weight within the window
+    w = _from_largest(i, m - low, _gamma_term(float(m), mu), mu)
+    terms = w * values
+    w *= d
+    return (float(np.add.reduce(terms)), float(terms[0]), float(terms[-1]), sign * float(np.add.reduce(w)),
+            -sign * float(w @ b[window]))
+
+
+def _from_largest(b: np.ndarray, k: int, largest: float, y: float) -> np.ndarray:
+    """Terms proportional to y^b / Gamma(b + 1) at the consecutive points ``b`` (D(b, y), and at whole b the Poisson
+    probabilities at mean y), from the k-th, ``largest``, by the ratios of neighbours t_i+1 / t_i = y / b_i+1 in
+    products taken outward from it: nothing overflows, and a term underflows only where it is that small."""
+    t = np.empty(len(b))
+    t[k] = largest
+    if k + 1 < len(t):
+        above = t[k + 1:]
+        np.divide(y, b[k + 1:], out=above)
+        np.multiply.accumulate(above, out=above)
+        above *= largest
+    if k > 0:
+        below = t[:k]
+        np.divide(b[1:k + 1], y, out=below)  # t_i / t_i+1 = b_i+1 / y
+        reverse = below[::-1]
+        np.multiply.accumulate(reverse, out=reverse)
+        below *= largest
+    return t
+
+
+def _poisson_mixture(y: float, a: float, mu: float, upper: bool) -> tuple[float, float, float]:
+    """(S, dS / d mu, dS / d ln y) for S the sum over j of w_j P(a + j, y) (the noncentral chi-square cdf at x = 2y,
+    2a df, noncentrality 2 mu; Johnson, Kotz & Balakrishnan 1995, eq. 29.2) or, ``upper``, of w_j Q(a + j, y) (its
+    survival function); w_j the Poisson probabilities at mean ``mu``, the central distribution at mu = 0.  y >= 0,
+    a > 0, mu >= 0."""
+    if y <= 0.0:
+        return (1.0 if upper else 0.0), 0.0, 0.0
+    if y == math.inf:
+        return (0.0 if upper else 1.0), 0.0, 0.0
+    if mu == math.inf:
+        return (1.0 if upper else 0.0), 0.0, 0.0
+    if mu == 0.0:
+        total, _, _, slope_mu, slope_t = _window_sum(y, a, 0.0, 0, 0, upper)
+        return total, slope_mu, slope_t
+    # the terms' largest: where the ratio of neighbours w_j+1 R_j+1 / (w_j R_j) passes 1; in the tail of R near
+    # j (a + j) = mu y, where R is near 1 at the Poisson mode
+    centre = 2.0 * mu * y / (math.sqrt(a * a + 4.0 * mu * y) + a)
+    centre = max(mu, centre) if upper else min(mu, centre)
+    spread = math.ceil(9.5 * math.sqrt(centre + 1.0)) + 12
+    low, high = max(0, math.floor(centre) - spread), math.floor(centre) + spread
+    for _ in range(64):
+        total, first, last, slope_mu, slope_t = _window_sum(y, a, mu, low, high, upper)
+        wider_low = low > 0 and first > _NEGLIGIBLE * total
+        wider_high = last > _NEGLIGIBLE * total
+        if not (wider_low or wider_high):
+            break
+        spread *= 2
+        low = max(0, low - spread) if wider_low else low
+        high = high + spread if wider_high else high
+    return total, slope_mu, slope_t
+
+
+def _each(function, *args):
+    """``function`` of floats at each element of the broadcast arguments: a numpy float for scalar arguments (as a
+    ufunc gives), an array of floats otherwise."""
+    if all(isinstance(v, (float, int)) for v in args):
+        return np.float64(function(*(float(v) for v in args)))
+    arrays = np.broadcast_arrays(*(np.asarray(v, dtype=float) for v in args))
+    values = [function(*point) for point in zip(*(x.ravel().tolist() for x in arrays))]
+    return np.array(values, dtype=float).reshape(arrays[0].shape)[()]
+
+
+def _chi2_tail(x: float, df: float, nc: float, upper: bool) -> float:
+    if math.isnan(x) or not df > 0.0 or not nc >= 0.0:  # NaN in, NaN out; no distribution at df <= 0
+        return _NAN
+    return _poisson_mixture(max(x, 0.0) / 2.0, df / 2.0, nc / 2.0, upper)[0]
+
+
+#: whole df up to which :func:`chi2_sf` sums arrays by the finite sums at once (the Mahalanobis distances of rows)
+WHOLE_DF_SUMMED = 400
+
+
+def _whole_df_sf(x: np.ndarray, df: np.ndarray) -> np.ndarray:
+    """P(X > x) for arrays of x and whole df from 1 to WHOLE_DF_SUMMED, element by element at once: the recurrence
+    Q(b + 1, y) = Q(b, y) + D(b, y) summed from its base (Abramowitz & Stegun 1964, section 26.4): with y = x / 2,
+    e^-y times the sum of y^k / k! over k < df / 2 for even df, erfc(sqrt y) plus the sum of D(k + 1/2, y) over
+    k < (df - 1) / 2 for odd df; every term positive, each in logarithms, b ln y - y - ln Gamma(b + 1)."""
+    y = np.maximum(x, 0.0) / 2.0
+    odd = df % 2 == 1
+    start = np.where(odd, 0.5, 0.0)  # b = start + k runs up to df / 2 - 1
+    terms = df // 2  # how many of them
+    with np.errstate(divide="ignore", invalid="ignore"):
+        log_y = np.log(y)
+        total = np.where(odd, np.asarray(_erfc(np.sqrt(y)), dtype=float), 0.0)
+        for k in range(int(terms.max(initial=0))):
+            log_gamma = np.where(odd, math.lgamma(k + 1.5), math.lgamma(k + 1.0))
+            total += np.where(k < terms, np.exp((start + k) * log_y - y - log_gamma), 0.0)
+    return np.where(y == 0.0, 1.0, np.where(y == np.inf, 0.0, total))
 
 
 def chi2_sf(x, df):
-    if type(x) is float:  # one statistic: max() in place of numpy's (the same number, NaN kept, without an array)
-        return special.chdtrc(df, max(x, 0.0))
-    return special.chdtrc(df, np.maximum(x, 0.0))
+    """P(X > x), X chi-square with ``df`` (df > 0, whole or not)."""
+    if not isinstance(x, (float, int)) or not isinstance(df, (float, int)):
+        x, df = np.broadcast_arrays(np.asarray(x, dtype=float), np.asarray(df, dtype=float))
+        if x.size > 1 and np.all((df >= 1) & (df <= WHOLE_DF_SUMMED) & (df == np.floor(df))):
+            return _whole_df_sf(x, df)
+    return _each(lambda x, df: _chi2_tail(x, df, 0.0, True), x, df)
 
 
 def boundary_mixture_sf(x: float, df: int) -> float:
@@ -23,42 +295,154 @@ def boundary_mixture_sf(x: float, df: int) -> float:
 
 
 def chi2_cdf(x, df):
-    return special.chdtr(df, np.maximum(x, 0.0))
-
-
-def chi2_ppf(q, df):
-    return special.chdtri(df, 1.0 - np.asarray(q, dtype=float))
+    """P(X <= x), X chi-square with ``df``."""
+    return _each(lambda x, df: _chi2_tail(x, df, 0.0, False), x, df)
 
 
 def ncx2_cdf(x, df, nc):
-    return special.chndtr(np.maximum(x, 0.0), df, nc) if np.all(np.asarray(nc) > 0) else chi2_cdf(x, df)
+    """P(X <= x), X noncentral chi-square with ``df`` and noncentrality ``nc`` (the central one at nc = 0)."""
+    return _each(lambda x, df, nc: _chi2_tail(x, df, nc, False), x, df, nc)
 
 
 def ncx2_sf(x, df, nc):
-    return 1.0 - ncx2_cdf(x, df, nc)
+    """P(X > x), X noncentral chi-square with ``df`` and noncentrality ``nc``: the upper tail summed as such."""
+    return _each(lambda x, df, nc: _chi2_tail(x, df, nc, True), x, df, nc)
+
+
+def _quantile(q: float, df: float, nc: float) -> float:
+    """x with P(X <= x) = q, X noncentral chi-square (df, nc): Newton's steps in t = ln(x / 2) (relative accuracy
+    however small x) on the logarithm of the tail (the lower one, or the upper against 1 - q above the median), from
+    the normal approximation (mean df + nc, variance 2 (df + 2 nc))."""
+    if math.isnan(q) or not df > 0.0 or not nc >= 0.0 or not 0.0 <= q <= 1.0:
+        return _NAN
+    if q == 0.0:
+        return 0.0
+    if q == 1.0:
+        return math.inf
+    a, mu = df / 2.0, nc / 2.0
+    upper = q > 0.5
+    log_target = math.log(1.0 - q if upper else q)
+
+    def rising(t: float) -> tuple[float, float]:  # increasing in t: the log of the tail against that of its target
+        value, _, slope = _poisson_mixture(math.exp(t) if t < 709.0 else math.inf, a, mu, upper)
+        if value == 0.0:
+            return (math.inf if upper else -math.inf), 0.0
+        if upper:
+            return log_target - math.log(value), -slope / value
+        return math.log(value) - log_target, slope / value
+
+    guess = a + mu + _normal_quantile(q) * math.sqrt(a + 2.0 * mu)  # mean and sd of X / 2
+    t = increasing_root(rising, math.log(max(guess, 1e-3 * (a + mu), 1e-300)), largest_step=50.0, rtol=_LAST_STEP)
+    return 2.0 * math.exp(t) if t < 709.0 else math.inf
+
+
+def chi2_ppf(q, df):
+    """The ``q`` quantile of chi-square with ``df``."""
+    return _each(lambda q, df: _quantile(q, df, 0.0), q, df)
+
+
+def ncx2_ppf(q, df, nc):
+    """The ``q`` quantile of noncentral chi-square with ``df`` and noncentrality ``nc``."""
+    return _each(_quantile, q, df, nc)
+
+
+def _noncentrality(x: float, df: float, p: float) -> float:
+    """nc >= 0 with P(X <= x) = p, X noncentral chi-square (df, nc): NaN when even nc = 0 gives less than p (the cdf
+    falls as nc grows), infinity at p = 0.  Newton's steps on the logarithm of the tail (the lower one, or the upper
+    against 1 - p above p = 1/2), from the normal approximation (x = df + nc + z_p sqrt(2 (df + 2 nc)), solved for
+    nc)."""
+    if math.isnan(x) or math.isnan(p) or not df > 0.0 or not 0.0 <= p <= 1.0:
+        return _NAN
+    if p == 0.0:
+        return math.inf
+    y, a = max(x, 0.0) / 2.0, df / 2.0
+    upper = p > 0.5
+    log_target = math.log(1.0 - p if upper else p)
+
+    def rising(mu: float) -> tuple[float, float]:  # increasing in mu: the log of the tail against that of its target
+        value, slope, _ = _poisson_mixture(y, a, mu, upper)
+        if value == 0.0:
+            return (-math.inf if upper else math.inf), 0.0
+        if upper:
+            return math.log(value) - log_target, slope / value
+        return log_target - math.log(value), -slope / value
+
+    at_zero = rising(0.0)[0]
+    if at_zero > 0.0:
+        return _NAN
+    if at_zero == 0.0:
+        return 0.0
+    z = _normal_quantile(p)
+    square = z * z + 2.0 * y - a
+    s = 2.0 * (math.sqrt(square) - z) if square > 0.0 else 0.0  # s = sqrt(2 (df + 2 nc)) of that equation
+    guess = max((s * s / 2.0 - df) / 4.0, 0.0)
+    return 2.0 * increasing_root(rising, guess, low=0.0, largest_step=4.0 * math.sqrt(a + 2.0 * guess + 1.0),
+                                 rtol=_LAST_STEP)
 
 
 def ncx2_noncentrality(x, df, p):
     """The noncentrality at which the noncentral chi-square cdf at x equals p."""
-    return float(special.chndtrinc(x, df, p))
-
-
-def ncx2_ppf(q, df, nc):
-    return special.chndtrix(q, df, nc) if nc > 0 else chi2_ppf(q, df)
+    return float(_noncentrality(float(x), float(df), float(p)))
 
 
 def norm_cdf(x):
-    return special.ndtr(x)
+    """P(Z <= x), Z standard normal: erfc(-x / sqrt 2) / 2."""
+    if type(x) is float:
+        return np.float64(0.5 * math.erfc(-x * _SQRT_HALF))
+    x = np.asarray(x, dtype=float)
+    return (0.5 * np.asarray(_erfc(-x * _SQRT_HALF), dtype=float))[()]
 
 
 def norm_sf(x):
+    """P(Z > x), Z standard normal: erfc(x / sqrt 2) / 2."""
     if type(x) is float:  # one statistic: without the array
-        return special.ndtr(-x)
-    return special.ndtr(-np.asarray(x, dtype=float))
+        return np.float64(0.5 * math.erfc(x * _SQRT_HALF))
+    x = np.asarray(x, dtype=float)
+    return (0.5 * np.asarray(_erfc(x * _SQRT_HALF), dtype=float))[()]
+
+
+_erfc = np.frompyfunc(math.erfc, 1, 1)
+
+#: Wichura (1988, AS241, PPND16): numerators and denominators of the rational approximations, highest power first
+_CENTRAL = ((2.5090809287301226727e+3, 3.3430575583588128105e+4, 6.7265770927008700853e+4, 4.5921953931549871457e+4,
+             1.3731693765509461125e+4, 1.9715909503065514427e+3, 1.3314166789178437745e+2, 3.3871328727963666080e+0),
+            (5.2264952788528545610e+3, 2.8729085735721942674e+4, 3.9307895800092710610e+4, 2.1213794301586595867e+4,
+             5.3941960214247511077e+3, 6.8718700749205790830e+2, 4.2313330701600911252e+1, 1.0))
+_INTERMEDIATE = ((7.74545014278341407640e-4, 2.27238449892691845833e-2, 2.41780725177450611770e-1,
+                  1.27045825245236838258e+0, 3.64784832476320460504e+0, 5.76949722146069140550e+0,
+                  4.63033784615654529590e+0, 1.42343711074968357734e+0),
+                 (1.05075007164441684324e-9, 5.47593808499534494600e-4, 1.51986665636164571966e-2,
+                  1.48103976427480074590e-1, 6.89767334985100004550e-1, 1.67638483018380384940e+0,
+                  2.05319162663775882187e+0, 1.0))
+_FAR = ((2.01033439929228813265e-7, 2.71155556874348757815e-5, 1.24266094738807843860e-3, 2.65321895265761230930e-2,
+         2.96560571828504891230e-1, 1.78482653991729133580e+0, 5.46378491116411436990e+0, 6.65790464350110377720e+0),
+        (2.04426310338993978564e-15, 1.42151175831644588870e-7, 1.84631831751005468180e-5, 7.86869131145613259100e-4,
+         1.48753612908506148525e-2, 1.36929880922735805310e-1, 5.99832206555887937690e-1, 1.0))
+
+
+def _ratio(coefficients: tuple, r: float) -> float:
+    numerator, denominator = coefficients
+    n = d = 0.0
+    for cn, cd in zip(numerator, denominator):  # Horner's scheme
+        n, d = n * r + cn, d * r + cd
+    return n / d
+
+
+def _normal_quantile(p: float) -> float:
+    """z with P(Z <= z) = p (Wichura 1988, AS241): NaN outside [0, 1], -inf and inf at its ends."""
+    if not 0.0 < p < 1.0:
+        return -math.inf if p == 0.0 else math.inf if p == 1.0 else _NAN
+    q = p - 0.5
+    if abs(q) <= 0.425:
+        return q * _ratio(_CENTRAL, 0.180625 - q * q)
+    r = math.sqrt(-math.log(p if q < 0.0 else 1.0 - p))
+    z = _ratio(_INTERMEDIATE, r - 1.6) if r <= 5.0 else _ratio(_FAR, r - 5.0)
+    return -z if q < 0.0 else z
 
 
 def norm_ppf(q):
-    return special.ndtri(q)
+    """The ``q`` quantile of the standard normal."""
+    return _each(_normal_quantile, q)
 
 
 def norm_pdf(x):

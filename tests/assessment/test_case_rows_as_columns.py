@@ -35,7 +35,8 @@ def test_a_default_fit_and_its_json_build_no_record_per_row(hs_data, monkeypatch
 
 def test_rows_read_from_the_columns_are_the_distances_written_out(hs_data):
     """Each row's squared Mahalanobis distance from the centroid under the divisor-N covariance (Mahalanobis 1936),
-    its chi-square p-value on 9 df (scipy's survival function through numerics.distributions), largest first."""
+    its chi-square p-value on 9 df (numerics.distributions' survival function, checked against scipy.special in
+    tests/numerics/test_distributions.py), largest first."""
     result = cfa_tool.fit(THREE_FACTORS, hs_data)
     cases = result.groups[0].unusual_cases
     assert isinstance(cases, Cases)
