@@ -1,9 +1,9 @@
-"""Small dense linear algebra: positive-definite factorisations by direct LAPACK calls,
-and solves and inverses with Jacobi scaling.
+"""Small dense linear algebra: positive-definite factorisations, log-determinants, and solves and inverses with
+Jacobi scaling, through numpy.linalg.
 
-At the sizes of a questionnaire model (a 9 x 9 covariance matrix, 20-odd parameters)
-numpy.linalg's argument checks cost several times the LAPACK routine itself, so the
-hot path calls the routines (Cholesky, inverse from the factor, Cholesky solve) directly.
+numpy.linalg rather than scipy's direct LAPACK wrappers: importing scipy.linalg costs about 80 ms of every start of
+the command (bench/README.md), while a fit makes a few dozen of these calls, at a few microseconds each.  A matrix
+that is not positive definite is read from numpy's LinAlgError (or a NaN in the factor), never shown as a traceback.
 
 Parameters in very different units (a loading of an item scored in thousands
 beside one scored in thousandths) make an information matrix badly scaled but
@@ -16,13 +16,14 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.linalg import blas, lapack  # direct LAPACK calls: numpy.linalg's checks cost more than small factorisations
 
 
 def cholesky_log_det(A: np.ndarray) -> tuple[np.ndarray, float] | None:
-    """(lower Cholesky factor, log|A|) of a symmetric matrix, or None when it is not positive definite."""
-    factor, info = lapack.dpotrf(A, lower=1, clean=1)
-    if info != 0:
+    """(lower Cholesky factor, log|A|) of a symmetric matrix (its lower triangle read), or None when it is not
+    positive definite."""
+    try:
+        factor = np.linalg.cholesky(A)
+    except np.linalg.LinAlgError:
         return None
     log_det = 2.0 * float(np.log(factor.diagonal()).sum())
     if not math.isfinite(log_det):  # NaN anywhere in A reaches the factor's diagonal
@@ -58,6 +59,19 @@ def log_det_pd(A: np.ndarray) -> float | None:
     return None if found is None else found[1]
 
 
+def triangular_inverse(factor: np.ndarray) -> np.ndarray:
+    """L^-1 of a lower-triangular L with a positive diagonal (a Cholesky factor), exactly lower triangular.  numpy
+    has no triangular inverse: the general one (LU with row exchanges, backward stable; Golub & Van Loan 2013,
+    sec. 3.4) may leave rounding above the diagonal, which is cleared."""
+    return np.tril(np.linalg.inv(factor))
+
+
+def inverse_from_triangular(inverse: np.ndarray) -> np.ndarray:
+    """L^-T L^-1 from L^-1: the inverse of A = L L', exactly symmetric (numpy's product of a matrix's transpose with
+    the matrix itself computes one triangle and mirrors it)."""
+    return inverse.T @ inverse
+
+
 def spd_inverse(A: np.ndarray) -> tuple[np.ndarray, float] | None:
     """(A^-1, log|A|) of a symmetric positive-definite matrix from its Cholesky factor (exactly
     symmetric), or None when A is not positive definite."""
@@ -65,12 +79,7 @@ def spd_inverse(A: np.ndarray) -> tuple[np.ndarray, float] | None:
     if found is None:
         return None
     factor, log_det = found
-    lower, info = lapack.dpotri(factor, lower=1)
-    if info != 0:
-        return None
-    inverse = lower + lower.T  # dpotri fills the lower triangle; the factor's upper one is zero
-    inverse.ravel()[:: len(A) + 1] *= 0.5
-    return inverse, log_det
+    return inverse_from_triangular(triangular_inverse(factor)), log_det
 
 
 def _scales(H: np.ndarray) -> np.ndarray:
@@ -85,10 +94,7 @@ def scaled_solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = False) 
     d = _scales(H)
     dd = d if b.ndim == 1 else d[:, None]
     scaled = H * (d[:, None] * d)
-    _, x, info = lapack.dposv(scaled, dd * b, lower=1)  # Cholesky first: information matrices are positive definite
-    if info == 0:
-        return dd * x
-    if positive_definite:
+    if positive_definite and cholesky_log_det(scaled) is None:
         raise np.linalg.LinAlgError("the matrix is not positive definite")
     return dd * np.linalg.solve(scaled, dd * b)
 
@@ -97,7 +103,7 @@ def scaled_solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = False) 
 class ScaledFactor:
     """A positive-definite H factorised once for everything read from it: with D = diag(``scales``) scaling H to
     unit diagonal, D H D = L L' (Cholesky) and ``inverse`` = L^-1 (lower triangular).  Then H^-1 = D L^-T L^-1 D
-    (the LAPACK route of dpotri: dtrtri, then dlauum), b' H^-1 b = ||L^-1 D b||^2, and ||L^-1||_F bounds the
+    (the route of LAPACK's dpotri: the triangular inverse, then its product with its transpose), b' H^-1 b = ||L^-1 D b||^2, and ||L^-1||_F bounds the
     smallest eigenvalue of D H D (Golub & Van Loan 2013, sec. 2.3; the rank check of the information)."""
 
     scales: np.ndarray
@@ -105,26 +111,16 @@ class ScaledFactor:
 
     def inverse_matrix(self) -> np.ndarray:
         """H^-1, exactly symmetric: what :func:`scaled_inverse` gives."""
-        if self.inverse.size == 0:  # no parameter (LAPACK refuses a 0 x 0 matrix, and says so on the terminal)
-            return np.zeros((0, 0))
-        lower, info = lapack.dlauum(self.inverse, lower=1)  # L^-T L^-1 in the lower triangle
-        if info != 0:
-            raise np.linalg.LinAlgError("the triangular product failed")
-        inverse = lower + lower.T  # the factor's upper triangle is zero
-        inverse.ravel()[:: len(lower) + 1] *= 0.5
-        return inverse * (self.scales[:, None] * self.scales)
+        return inverse_from_triangular(self.inverse) * (self.scales[:, None] * self.scales)
 
 
 def scaled_factor(H: np.ndarray) -> ScaledFactor | None:
     """:class:`ScaledFactor` of H, or None when the scaled H is not positive definite (or holds NaN)."""
-    if H.size == 0:  # no parameter: the empty factor (LAPACK refuses a 0 x 0 matrix, and says so on the terminal)
+    if H.size == 0:  # no parameter: the empty factor
         return ScaledFactor(np.zeros(0), np.zeros((0, 0)))
     d = _scales(H)
     found = cholesky_log_det(H * (d[:, None] * d))
-    if found is None:
-        return None
-    inverse, info = lapack.dtrtri(found[0], lower=1)
-    return ScaledFactor(d, inverse) if info == 0 else None
+    return None if found is None else ScaledFactor(d, triangular_inverse(found[0]))
 
 
 def inverse_quadratic_forms(H: np.ndarray | None, factor: ScaledFactor | None = None):
@@ -132,19 +128,17 @@ def inverse_quadratic_forms(H: np.ndarray | None, factor: ScaledFactor | None = 
     of the Jacobi-scaled H (``factor``, :func:`scaled_factor` of H, when the caller has made it; H itself may then
     be None, as only the factor is read): H = F F' for
     F = D^-1 L, and the forms are the squared column norms of F^-1 B = L^-1 D B (one triangular product with
-    L^-1 D, made once; B not scaled first); the general solve when H is not positive definite.
-    ``forms(B, overwrite=True)`` may overwrite B (a Fortran-ordered B, such as the transpose of a C-ordered
-    array, is then multiplied in place)."""
+    L^-1 D, made once; B not scaled first); the general solve when H is not positive definite."""
     if (factor.inverse if H is None else H).size == 0:
-        return lambda B, overwrite=False: np.zeros(B.shape[1])
+        return lambda B: np.zeros(B.shape[1])
     if factor is None:
         factor = scaled_factor(H)
     if factor is None:
-        return lambda B, overwrite=False: np.einsum("ij,ij->j", B, scaled_solve(H, B))
-    inverse = factor.inverse * factor.scales  # F^-1 = L^-1 D: a triangular product per B is faster than a solve
+        return lambda B: np.einsum("ij,ij->j", B, scaled_solve(H, B))
+    inverse = factor.inverse * factor.scales  # F^-1 = L^-1 D: a product per B is faster than a solve
 
-    def forms(B: np.ndarray, overwrite: bool = False) -> np.ndarray:
-        X = blas.dtrmm(1.0, inverse, B, lower=1, overwrite_b=int(overwrite))
+    def forms(B: np.ndarray) -> np.ndarray:
+        X = inverse @ B
         return np.einsum("ij,ij->j", X, X)
 
     return forms
