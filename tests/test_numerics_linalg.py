@@ -10,8 +10,8 @@ import pytest
 from scipy import linalg as reference
 
 from cfa_tool.assessment.normality import whitened_rows
-from cfa_tool.numerics.linalg import (cholesky_log_det, log_det_pd, sample_log_det, scaled_factor, scaled_solve,
-                                      spd_inverse)
+from cfa_tool.numerics.linalg import (TRIANGULAR_BLOCK, cholesky_log_det, log_det_pd, sample_log_det, scaled_factor,
+                                      scaled_solve, spd_inverse, triangular_inverse)
 
 
 def _positive_definite(p: int, seed: int) -> np.ndarray:
@@ -78,6 +78,21 @@ def test_scaled_solves_are_scipys(p):
         scaled_solve(indefinite, b, positive_definite=True)
     assert np.allclose(scaled_solve(indefinite, b), reference.solve(indefinite, b), rtol=1e-8, atol=1e-10)
     assert scaled_solve(np.zeros((0, 0)), np.zeros(0)).shape == (0,)
+
+
+@pytest.mark.parametrize("p", [1, 7, TRIANGULAR_BLOCK, TRIANGULAR_BLOCK + 1, 3 * TRIANGULAR_BLOCK + 5])
+def test_triangular_inverse_is_scipys(p):
+    """Up to TRIANGULAR_BLOCK rows one general inverse, beyond it inverses of halves joined (also of halves of
+    halves)."""
+    L = reference.cholesky(_positive_definite(p, 50 + p), lower=True)
+    inverse = triangular_inverse(L)
+    assert np.array_equal(inverse, np.tril(inverse))
+    expected = reference.solve_triangular(L, np.eye(p), lower=True)
+    assert np.max(np.abs(inverse - expected)) <= 1e-12 * np.max(np.abs(expected))
+    assert np.array_equal(triangular_inverse(np.asfortranarray(L)), inverse)  # a factor in either memory order
+    singular = L.copy()
+    singular[p // 2, p // 2] = 0.0
+    assert triangular_inverse(singular) is None
 
 
 def test_the_factors_inverse_is_lower_triangular():

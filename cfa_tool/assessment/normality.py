@@ -67,7 +67,10 @@ def whitened_rows(rows: np.ndarray, moments: tuple[np.ndarray, np.ndarray] | Non
     if found is None:
         raise np.linalg.LinAlgError("the covariance matrix of the rows is not positive definite")
     L, log_det = found
-    Y = Z @ triangular_inverse(L).T
+    inverse = triangular_inverse(L)
+    if inverse is None:
+        raise np.linalg.LinAlgError("the covariance matrix of the rows is not positive definite")
+    Y = Z @ inverse.T
     return Whitened(Y, log_det, np.einsum("ij,ij->i", Y, Y), Z)
 
 
@@ -76,7 +79,10 @@ def _frequency_whitened(rows: np.ndarray, frequencies: np.ndarray) -> np.ndarray
     covariance (divisor the sum of the weights)."""
     total = frequencies.sum()
     Z = rows - frequencies @ rows / total
-    return Z @ triangular_inverse(np.linalg.cholesky((Z * frequencies[:, None]).T @ Z / total)).T
+    inverse = triangular_inverse(np.linalg.cholesky((Z * frequencies[:, None]).T @ Z / total))
+    if inverse is None:
+        raise np.linalg.LinAlgError("the weighted covariance matrix of the rows is not positive definite")
+    return Z @ inverse.T
 
 
 def mardia(rows: np.ndarray, whitened: Whitened | None = None,
