@@ -2,7 +2,8 @@
 Jacobi scaling, through numpy.linalg.
 
 numpy.linalg rather than scipy's direct LAPACK wrappers: importing scipy.linalg costs about 80 ms of every start of
-the command (bench/README.md), while a fit makes a few dozen of these calls, at a few microseconds each.  A matrix
+the command (bench/cold_start.py), while a fit makes a few dozen of these calls, each some microseconds slower
+through numpy's checks than the bare routine at these sizes.  A matrix
 that is not positive definite is read from numpy's LinAlgError (or a NaN in the factor), never shown as a traceback.
 
 Parameters in very different units (a loading of an item scored in thousands
@@ -144,8 +145,9 @@ def scaled_solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = False) 
 class ScaledFactor:
     """A positive-definite H factorised once for everything read from it: with D = diag(``scales``) scaling H to
     unit diagonal, D H D = L L' (Cholesky) and ``inverse`` = L^-1 (lower triangular).  Then H^-1 = D L^-T L^-1 D
-    (the route of LAPACK's dpotri: the triangular inverse, then its product with its transpose), b' H^-1 b = ||L^-1 D b||^2, and ||L^-1||_F bounds the
-    smallest eigenvalue of D H D (Golub & Van Loan 2013, sec. 2.3; the rank check of the information)."""
+    (the route of LAPACK's dpotri: the triangular inverse, then its product with its transpose),
+    b' H^-1 b = ||L^-1 D b||^2, and ||L^-1||_F bounds the smallest eigenvalue of D H D (Golub & Van Loan 2013,
+    sec. 2.3; the rank check of the information)."""
 
     scales: np.ndarray
     inverse: np.ndarray
@@ -169,8 +171,8 @@ def inverse_quadratic_forms(H: np.ndarray | None, factor: ScaledFactor | None = 
     """A function of B giving b_k' H^-1 b_k for every column b_k of B, from one Cholesky factorisation
     of the Jacobi-scaled H (``factor``, :func:`scaled_factor` of H, when the caller has made it; H itself may then
     be None, as only the factor is read): H = F F' for
-    F = D^-1 L, and the forms are the squared column norms of F^-1 B = L^-1 D B (one triangular product with
-    L^-1 D, made once; B not scaled first); the general solve when H is not positive definite."""
+    F = D^-1 L, and the forms are the squared column norms of F^-1 B = L^-1 D B (one product with L^-1 D, made
+    once; B not scaled first); the general solve when H is not positive definite."""
     if (factor.inverse if H is None else H).size == 0:
         return lambda B: np.zeros(B.shape[1])
     if factor is None:
