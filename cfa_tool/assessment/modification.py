@@ -234,7 +234,7 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
                 H_ct *= weight
             d.append(d_part)
             h_cc.append(h_cc_part)
-            h_ct.append(forms(H_ct.T, overwrite=True))  # H_ct is this loop's own
+            h_ct.append(forms(H_ct.T))
         d, h_cc = _joined(d), _joined(h_cc)
         h = h_cc - _joined(h_ct)
         ok = h > 1e-10 * np.maximum(h_cc, 1e-300)

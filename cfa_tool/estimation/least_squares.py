@@ -30,7 +30,6 @@ from __future__ import annotations
 from dataclasses import dataclass, replace
 
 import numpy as np
-from scipy.linalg import block_diag
 
 from cfa_tool.estimation.objective import Evaluation
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
@@ -410,7 +409,11 @@ class OrdinalLeastSquares:
         e = np.concatenate([self.targets[g] - self._statistics(m) for g, m in enumerate(moments)])
         w = np.concatenate([share * wg for share, wg in zip(self.weights, self.w)])
         gammas = [g.gamma / share for g, share in zip(self.groups, self.weights)]
-        gamma = gammas[0] if len(gammas) == 1 else block_diag(*gammas)
+        gamma = gammas[0]
+        if len(gammas) > 1:
+            from scipy.linalg import block_diag  # here, not at the top: importing scipy.linalg is slow (~80 ms)
+
+            gamma = block_diag(*gammas)
         return D, e, w, gamma
 
     def group_slices(self) -> list[slice]:

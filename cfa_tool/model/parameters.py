@@ -915,7 +915,7 @@ def given_values_possible(spec: Spec, table: ParameterTable, values: np.ndarray,
     def fail(ref, how: str, words: str) -> ModelError:
         where = "" if label is None or ref.group is not None else f" (a value for every group, here group '{label}')"
         if search_start:
-            return ModelError(f"the model{whose} cannot hold a covariance larger than the variances allow: {ref}{where} "
+            return ImpossibleAtStart(f"the model{whose} cannot hold a covariance larger than the variances allow: {ref}{where} "
                               f"is {how} {words} (the variances as the data give them at the start of the search, "
                               f"where the search could not begin); fix it at a value within those bounds, or scale "
                               f"both by their variances and fix a correlation between -1 and 1",
@@ -940,6 +940,13 @@ def given_values_possible(spec: Spec, table: ParameterTable, values: np.ndarray,
             correlation = f", a correlation of {covariance / bound:.2f}" if bound > 0 else ""
             raise fail(ref, how, f"{value:g}, beyond what the variances of {a} ({va:.3g}) and {b} ({vb:.3g}) allow"
                                  f"{correlation}")
+
+
+class ImpossibleAtStart(ModelError):
+    """A 'fix' statement's covariance beyond what the variances at a search's start allow, so that the search could
+    not begin (:func:`fixed_values_at_start`): the model error of a fit, but in a resampling refit that starts from
+    its sample's data that replicate's failure, counted as the refits count one that does not converge
+    (pipeline.continuous.replicate_fits)."""
 
 
 def fixed_values_at_start(spec: Spec, table: ParameterTable, values: np.ndarray,

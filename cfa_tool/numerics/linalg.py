@@ -1,9 +1,10 @@
-"""Small dense linear algebra: positive-definite factorisations by direct LAPACK calls,
-and solves and inverses with Jacobi scaling.
+"""Small dense linear algebra: positive-definite factorisations, log-determinants, and solves and inverses with
+Jacobi scaling, through numpy.linalg.
 
-At the sizes of a questionnaire model (a 9 x 9 covariance matrix, 20-odd parameters)
-numpy.linalg's argument checks cost several times the LAPACK routine itself, so the
-hot path calls the routines (Cholesky, inverse from the factor, Cholesky solve) directly.
+numpy.linalg rather than scipy's direct LAPACK wrappers: importing scipy.linalg costs about 80 ms of every start of
+the command (bench/cold_start.py), while a fit makes a few dozen of these calls, each some microseconds slower
+through numpy's checks than the bare routine at these sizes.  A matrix
+that is not positive definite is read from numpy's LinAlgError (or a NaN in the factor), never shown as a traceback.
 
 Parameters in very different units (a loading of an item scored in thousands
 beside one scored in thousandths) make an information matrix badly scaled but
@@ -14,15 +15,17 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
-from scipy.linalg import blas, lapack  # direct LAPACK calls: numpy.linalg's checks cost more than small factorisations
 
 
 def cholesky_log_det(A: np.ndarray) -> tuple[np.ndarray, float] | None:
-    """(lower Cholesky factor, log|A|) of a symmetric matrix, or None when it is not positive definite."""
-    factor, info = lapack.dpotrf(A, lower=1, clean=1)
-    if info != 0:
+    """(lower Cholesky factor, log|A|) of a symmetric matrix (its lower triangle read), or None when it is not
+    positive definite."""
+    try:
+        factor = np.linalg.cholesky(A)
+    except np.linalg.LinAlgError:
         return None
     log_det = 2.0 * float(np.log(factor.diagonal()).sum())
     if not math.isfinite(log_det):  # NaN anywhere in A reaches the factor's diagonal
@@ -58,6 +61,58 @@ def log_det_pd(A: np.ndarray) -> float | None:
     return None if found is None else found[1]
 
 
+#: the largest order whose triangular inverse is numpy's general inverse; larger ones are split in halves
+TRIANGULAR_BLOCK = 32
+
+
+@lru_cache(maxsize=64)
+def _above_diagonal(n: int) -> tuple[np.ndarray, np.ndarray]:
+    """The rows and columns of an n x n matrix's entries above the diagonal."""
+    return np.triu_indices(n, 1)
+
+
+def triangular_inverse(factor: np.ndarray) -> np.ndarray | None:
+    """L^-1 of a lower-triangular L (a Cholesky factor), exactly lower triangular, or None when L is singular (a zero
+    on its diagonal, as LAPACK's dtrtri reports it, or singular to working precision).  numpy has no triangular
+    inverse: up to :data:`TRIANGULAR_BLOCK` rows its general inverse (LU with row exchanges, which may leave rounding
+    above the diagonal, cleared here), larger ones by halves, [[A, 0], [C, B]]^-1 = [[A^-1, 0], [-B^-1 C A^-1, B^-1]],
+    so that most of the work is matrix products (the blocked method of LAPACK's dtrtri; Higham 2002, sec. 14.2):
+    numpy's general inverse of a large L takes several times as long as LAPACK's triangular one, the halves about as
+    long."""
+    if not np.all(np.isfinite(factor)) or not np.all(np.diagonal(factor)):
+        return None
+    return _factor_inverse(factor)
+
+
+def _factor_inverse(factor: np.ndarray) -> np.ndarray | None:
+    """:func:`triangular_inverse` of a factor with a finite, positive diagonal (of :func:`cholesky_log_det`)."""
+    try:
+        return _triangular_inverse(factor)
+    except np.linalg.LinAlgError:
+        return None
+
+
+def _triangular_inverse(factor: np.ndarray) -> np.ndarray:
+    n = len(factor)
+    if n <= TRIANGULAR_BLOCK:
+        inverse = np.linalg.inv(factor)
+        inverse[_above_diagonal(n)] = 0.0
+        return inverse
+    half = n // 2
+    first, second = _triangular_inverse(factor[:half, :half]), _triangular_inverse(factor[half:, half:])
+    inverse = np.zeros(factor.shape)
+    inverse[:half, :half] = first
+    inverse[half:, half:] = second
+    inverse[half:, :half] = -(second @ (factor[half:, :half] @ first))
+    return inverse
+
+
+def inverse_from_triangular(inverse: np.ndarray) -> np.ndarray:
+    """L^-T L^-1 from L^-1: the inverse of A = L L', exactly symmetric (numpy's product of a matrix's transpose with
+    the matrix itself computes one triangle and mirrors it)."""
+    return inverse.T @ inverse
+
+
 def spd_inverse(A: np.ndarray) -> tuple[np.ndarray, float] | None:
     """(A^-1, log|A|) of a symmetric positive-definite matrix from its Cholesky factor (exactly
     symmetric), or None when A is not positive definite."""
@@ -65,12 +120,8 @@ def spd_inverse(A: np.ndarray) -> tuple[np.ndarray, float] | None:
     if found is None:
         return None
     factor, log_det = found
-    lower, info = lapack.dpotri(factor, lower=1)
-    if info != 0:
-        return None
-    inverse = lower + lower.T  # dpotri fills the lower triangle; the factor's upper one is zero
-    inverse.ravel()[:: len(A) + 1] *= 0.5
-    return inverse, log_det
+    inverse = _factor_inverse(factor)
+    return None if inverse is None else (inverse_from_triangular(inverse), log_det)
 
 
 def _scales(H: np.ndarray) -> np.ndarray:
@@ -85,10 +136,7 @@ def scaled_solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = False) 
     d = _scales(H)
     dd = d if b.ndim == 1 else d[:, None]
     scaled = H * (d[:, None] * d)
-    _, x, info = lapack.dposv(scaled, dd * b, lower=1)  # Cholesky first: information matrices are positive definite
-    if info == 0:
-        return dd * x
-    if positive_definite:
+    if positive_definite and cholesky_log_det(scaled) is None:
         raise np.linalg.LinAlgError("the matrix is not positive definite")
     return dd * np.linalg.solve(scaled, dd * b)
 
@@ -97,54 +145,44 @@ def scaled_solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = False) 
 class ScaledFactor:
     """A positive-definite H factorised once for everything read from it: with D = diag(``scales``) scaling H to
     unit diagonal, D H D = L L' (Cholesky) and ``inverse`` = L^-1 (lower triangular).  Then H^-1 = D L^-T L^-1 D
-    (the LAPACK route of dpotri: dtrtri, then dlauum), b' H^-1 b = ||L^-1 D b||^2, and ||L^-1||_F bounds the
-    smallest eigenvalue of D H D (Golub & Van Loan 2013, sec. 2.3; the rank check of the information)."""
+    (the route of LAPACK's dpotri: the triangular inverse, then its product with its transpose),
+    b' H^-1 b = ||L^-1 D b||^2, and ||L^-1||_F bounds the smallest eigenvalue of D H D (Golub & Van Loan 2013,
+    sec. 2.3; the rank check of the information)."""
 
     scales: np.ndarray
     inverse: np.ndarray
 
     def inverse_matrix(self) -> np.ndarray:
         """H^-1, exactly symmetric: what :func:`scaled_inverse` gives."""
-        if self.inverse.size == 0:  # no parameter (LAPACK refuses a 0 x 0 matrix, and says so on the terminal)
-            return np.zeros((0, 0))
-        lower, info = lapack.dlauum(self.inverse, lower=1)  # L^-T L^-1 in the lower triangle
-        if info != 0:
-            raise np.linalg.LinAlgError("the triangular product failed")
-        inverse = lower + lower.T  # the factor's upper triangle is zero
-        inverse.ravel()[:: len(lower) + 1] *= 0.5
-        return inverse * (self.scales[:, None] * self.scales)
+        return inverse_from_triangular(self.inverse) * (self.scales[:, None] * self.scales)
 
 
 def scaled_factor(H: np.ndarray) -> ScaledFactor | None:
     """:class:`ScaledFactor` of H, or None when the scaled H is not positive definite (or holds NaN)."""
-    if H.size == 0:  # no parameter: the empty factor (LAPACK refuses a 0 x 0 matrix, and says so on the terminal)
+    if H.size == 0:  # no parameter: the empty factor
         return ScaledFactor(np.zeros(0), np.zeros((0, 0)))
     d = _scales(H)
     found = cholesky_log_det(H * (d[:, None] * d))
-    if found is None:
-        return None
-    inverse, info = lapack.dtrtri(found[0], lower=1)
-    return ScaledFactor(d, inverse) if info == 0 else None
+    inverse = None if found is None else _factor_inverse(found[0])
+    return None if inverse is None else ScaledFactor(d, inverse)
 
 
 def inverse_quadratic_forms(H: np.ndarray | None, factor: ScaledFactor | None = None):
     """A function of B giving b_k' H^-1 b_k for every column b_k of B, from one Cholesky factorisation
     of the Jacobi-scaled H (``factor``, :func:`scaled_factor` of H, when the caller has made it; H itself may then
     be None, as only the factor is read): H = F F' for
-    F = D^-1 L, and the forms are the squared column norms of F^-1 B = L^-1 D B (one triangular product with
-    L^-1 D, made once; B not scaled first); the general solve when H is not positive definite.
-    ``forms(B, overwrite=True)`` may overwrite B (a Fortran-ordered B, such as the transpose of a C-ordered
-    array, is then multiplied in place)."""
+    F = D^-1 L, and the forms are the squared column norms of F^-1 B = L^-1 D B (one product with L^-1 D, made
+    once; B not scaled first); the general solve when H is not positive definite."""
     if (factor.inverse if H is None else H).size == 0:
-        return lambda B, overwrite=False: np.zeros(B.shape[1])
+        return lambda B: np.zeros(B.shape[1])
     if factor is None:
         factor = scaled_factor(H)
     if factor is None:
-        return lambda B, overwrite=False: np.einsum("ij,ij->j", B, scaled_solve(H, B))
-    inverse = factor.inverse * factor.scales  # F^-1 = L^-1 D: a triangular product per B is faster than a solve
+        return lambda B: np.einsum("ij,ij->j", B, scaled_solve(H, B))
+    inverse = factor.inverse * factor.scales  # F^-1 = L^-1 D: a product per B is faster than a solve
 
-    def forms(B: np.ndarray, overwrite: bool = False) -> np.ndarray:
-        X = blas.dtrmm(1.0, inverse, B, lower=1, overwrite_b=int(overwrite))
+    def forms(B: np.ndarray) -> np.ndarray:
+        X = inverse @ B
         return np.einsum("ij,ij->j", X, X)
 
     return forms

@@ -39,7 +39,7 @@ from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import Spec
 from cfa_tool.method import Estimator, FitMethod, FitTest, Information, MissingData, WeightKind
 from cfa_tool.model.implied import StructuredModel
-from cfa_tool.model.parameters import ParameterTable, build_parameter_table, fixed_values_at_start
+from cfa_tool.model.parameters import ImpossibleAtStart, ParameterTable, build_parameter_table, fixed_values_at_start
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
 from cfa_tool.note_parts import Command, Note, Text
@@ -805,7 +805,8 @@ def _replicate_fit(spec, moments, options, start, standard_errors, fit_indices_w
     full_information = options.missing is MissingData.FULL_INFORMATION
     try:
         est = estimate(spec, [(None, moments)], options, start=start)
-    except SingularMoments:  # a resample with too few distinct rows: counted as not converged
+    except (SingularMoments, ImpossibleAtStart):  # a resample with too few distinct rows, or whose variances at a
+        # start from its data leave a fixed covariance impossible: counted as not converged
         table, model = model_structure(spec, None, full_information)
         theta = np.full(table.n_free, nan) if start is None else np.asarray(start, dtype=float)
         values = model.entry_values(theta)
