@@ -174,6 +174,25 @@ def _error(text: str) -> ModelError:
          "variance(a) is bounded to at least 0.6 here but to at least 0.1 on line 2; give it one bound on each side"),
         ("factor f: a, b, c\nscale latent by effects\nscale latent by variance\n", 3, 1,
          "'scale latent by ...' is given twice (the first, 'by effects', on line 2)"),
+        # re-check s18 (R8): the same statement given twice was accepted and the methods paragraph stated it twice
+        # ('... fixed at 0.5 and the residual variance of clean was fixed at 0.5'): an error naming both lines
+        ("factor f: a, b, c\nfix variance(a) = 0.5\nfix variance(a) = 0.5\n", 3, 5,
+         "variance(a) is fixed to 0.5 on line 2 and again on line 3; give it once (remove one, or correct the "
+         "parameter it names)"),
+        ("factor f: a, b, c\nfix variance(a), variance(a) = 0.5\n", 2, 18,
+         "variance(a) is fixed to 0.5 twice in this statement (line 2); name it once"),
+        ("factor f: a, b, c\nbound variance(a) >= 0.1\nbound variance(a) >= 0.1\n", 3, 7,
+         "variance(a) is bounded to at least 0.1 on line 2 and again on line 3; give it once"),
+        ("factor f: a, b, c\nstart variance(a) = 0.5\nstart variance(a) = 0.5\n", 3, 7,
+         "variance(a) is given the start value 0.5 on line 2 and again on line 3; give it once"),
+        ("factor f: a, b, c\nfree loading(f, a)\nfree loading(f, a)\n", 3, 6,
+         "loading(f, a) is freed on line 2 and again on line 3; give it once"),
+        ("factor f: a, b, c\nequal loading(f, b), loading(f, c)\nequal loading(f, c), loading(f, b)\n", 3, 7,
+         "these parameters are set equal on line 2 and again on line 3; give each 'equal' statement once"),
+        ("factor f: a, b, c\ncovary a, b\ncovary b, a\n", 3, 8,
+         "'covary' names 'b' and 'a' on line 2 and again on line 3; name each pair once"),
+        ("factor f: a, b, c\nfactor g: d, e, h\nuncorrelated f, g\nuncorrelated f, g\n", 4, 14,
+         "'uncorrelated' names 'f' and 'g' on line 3 and again on line 4; name each pair once"),
         # hostile trial 8: 'fix variance(f) = -1' reached the estimation (exit 3, "starting values ... not positive
         # definite") instead of naming the line
         ("factor f: a, b, c\nfix variance(f) = -1\n", 2, 5, "variance(f) is fixed to -1, but a variance cannot be "
