@@ -429,3 +429,27 @@ def test_minus_zero_is_zero():
     value = spec.fixed[0].value
     assert value == 0 and math.copysign(1.0, value) == 1.0 and f"{value:g}" == "0"
     assert f"{options.real_number('the threshold', -0.0, 0.0):g}" == "0" and f"{number('-0'):g}" == "0"
+
+
+def test_a_scaling_refused_points_at_its_scale_statement():
+    # re-check s18 (R13): with groups, 'scale a by effects' on line 3 was refused at the factor's line 1 as "factor
+    # 'a' has no scale: effects coding is not available with groups": the error now points at the statement that
+    # asks for the scaling and says what is refused
+    cases = {
+        "factor a: x1, x2, x3\nfactor b: y1, y2, y3\nscale a by effects\n": (
+            3, 7, "effects coding ('scale a by effects') is not available with groups; scale 'a' by a marker or by "
+                  "its variance"),
+        "factor a: x1, x2, x3\nfactor b: y1, y2, y3\nscale latent by effects\n": (
+            3, 1, "effects coding ('scale latent by effects') is not available with groups; scale the factors by "
+                  "markers or by their variances"),
+    }
+    for text, (line, column, words) in cases.items():
+        with pytest.raises(ModelError) as found:
+            build_parameter_table(parse_model(text), groups=("north", "south"))
+        assert (found.value.location.line, found.value.location.column) == (line, column)
+        assert str(found.value).endswith(words) and "has no scale" not in str(found.value)
+    with pytest.raises(ModelError) as found:
+        build_parameter_table(parse_model("factor a: x1, x2, x3\nscale a by variance\nfree variance(a)\n"))
+    assert found.value.location.line == 2
+    assert str(found.value).endswith("'scale a by variance' fixes the variance of 'a' at 1, which a 'free' statement "
+                                     "frees; keep one of the two")
