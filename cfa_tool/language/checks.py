@@ -453,6 +453,11 @@ def _check_contradictions(spec: Spec) -> None:
             if key in lower and key in upper and lower[key][0] > upper[key][0]:
                 raise _fail(spec, f"the bounds on {ref} leave no room: at least {lower[key][0]:g} and at most "
                                   f"{upper[key][0]:g}", ref.location)
+    exempt: dict[tuple, ParameterRef] = {}
+    for ref in spec.noninvariant:  # named again: 'except the intercept of clean and the intercept of clean' (s18)
+        if _gkey(ref) in exempt:
+            raise _fail(spec, _repeated(f"{ref} is named noninvariant", exempt[_gkey(ref)], ref), ref.location)
+        exempt[_gkey(ref)] = ref
     held: dict[frozenset, tuple[ParameterRef, ...]] = {}
     for group in spec.equal:
         key = frozenset(_gkey(r) for r in group)

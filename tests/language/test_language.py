@@ -193,6 +193,8 @@ def _error(text: str) -> ModelError:
          "'covary' names 'b' and 'a' on line 2 and again on line 3; name each pair once"),
         ("factor f: a, b, c\nfactor g: d, e, h\nuncorrelated f, g\nuncorrelated f, g\n", 4, 14,
          "'uncorrelated' names 'f' and 'g' on line 3 and again on line 4; name each pair once"),
+        ("factor f: a, b, c\ninvariance scalar\nnoninvariant intercept(b)\nnoninvariant intercept(b)\n", 4, 14,
+         "intercept(b) is named noninvariant on line 3 and again on line 4; give it once"),
         # hostile trial 8: 'fix variance(f) = -1' reached the estimation (exit 3, "starting values ... not positive
         # definite") instead of naming the line
         ("factor f: a, b, c\nfix variance(f) = -1\n", 2, 5, "variance(f) is fixed to -1, but a variance cannot be "
