@@ -7,6 +7,7 @@ import numpy as np
 
 from cfa_tool.estimation.optimizer import Outcome
 from cfa_tool.language.names import reference_text, written_group, written_name
+from cfa_tool.model.description import label_words
 from cfa_tool.estimation.strategy import Restart, Search
 from cfa_tool.note_parts import Command, Note, Text, joined
 from cfa_tool.options import Option
@@ -16,16 +17,18 @@ IDENTIFICATION_HINT = ("check that every factor is identified (three or more ite
 
 
 def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, lower: np.ndarray | None = None,
-                           upper: np.ndarray | None = None) -> Text:
+                           upper: np.ndarray | None = None, observed: tuple[str, ...] = ()) -> Text:
     """One paragraph for a search that did not converge; ``labels`` name the free parameters and ``limit``
     is the iteration limit in force; ``lower`` and ``upper``: the free parameters' bounds (the model file's
-    'bound' statements), so that a search that ended against a bound says so.  The option that raises the limit and
-    the model file's statements apart (note_parts.Command): a manuscript's reader runs nothing and edits no model
-    file."""
+    'bound' statements), so that a search that ended against a bound says so; ``observed``: the model's items, which
+    tell an item's residual variance from a factor's variance in words.  The option that raises the limit and the
+    model file's statements apart (note_parts.Command): a manuscript's reader runs nothing and edits no model file;
+    the parameters too, as the model file writes them ('variance(a) [p]') for the program's user, in words for a
+    manuscript ('the variance of factor a in group p', model.description.label_words; re-check s18)."""
     result = found.result
     used = result.iterations
     outcome = Outcome.ITERATION_LIMIT if used >= limit and result.outcome is not Outcome.BAD_START else result.outcome
-    parts = [{
+    parts: list[Text] = [{
         Outcome.ITERATION_LIMIT: f"no convergence within the limit of {_iterations(limit)}",
         Outcome.STALLED: f"the search stopped making progress after {_iterations(used)} (the limit is {limit})",
         Outcome.NO_DECREASE: f"no step lowered the discrepancy any further after {_iterations(used)} "
@@ -38,12 +41,12 @@ def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, l
     for indices, words in ((drift.growing, "kept growing"), (drift.shrinking, "shrank towards zero"),
                            (drift.oscillating, "swung back and forth")):
         if indices:
-            names = [labels[k] for k in indices]
-            parts.append(f"{_and_list(names)} {words}")
+            names = [_named(labels[k], observed) for k in indices]
+            parts.append(_and_list(names) + f" {words}")
     advice: list[Text] = []
-    held = _held_at_bounds(result.theta, labels, lower, upper)
+    held = _held_at_bounds(result.theta, labels, lower, upper, observed)
     if held:
-        parts.append(f"{_and_list(held)} {'was' if len(held) == 1 else 'were'} held at the model file's "
+        parts.append(_and_list(held) + f" {'was' if len(held) == 1 else 'were'} held at the model file's "
                      f"bound{'s' if len(held) > 1 else ''}")
         advice.append("check that the bounds leave room for the data (a variance bounded above the item's own "
                       "variance, say, cannot be met)")
@@ -75,24 +78,30 @@ def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, l
             advice.append(Note(("raise the limit", Command(f" ({Option.MAX_ITERATIONS})"))))
         advice.append(IDENTIFICATION_HINT)
         advice.append(Note(("give start values near the expected solution", Command(" ('start ...')"))))
-    return "; ".join(parts) + ". What to try: " + _or_list(advice)  # type: ignore[operator]
+    return joined(parts, "; ") + ". What to try: " + _or_list(advice)  # type: ignore[operator]
+
+
+def _named(label: str, observed: tuple[str, ...]) -> Note:
+    """A free parameter as the model file writes it, for the program's user (who may give it a start value), and in
+    words for a manuscript (model.description.label_words, the one way parameters are put in words)."""
+    return Note((Command(label, label_words(label, observed=observed or None)),))
 
 
 def _iterations(n: int) -> str:
     return f"{n} iteration" if n == 1 else f"{n} iterations"
 
 
-def _and_list(words: list[str]) -> str:
-    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + " and " + words[-1]
+def _and_list(words: list[Text]) -> Text:
+    return words[0] if len(words) == 1 else joined(words[:-1], ", ") + " and " + words[-1]  # type: ignore[operator]
 
 
 def _or_list(words: list[Text]) -> Text:
     return words[0] if len(words) == 1 else joined(words[:-1], ", ") + ", or " + words[-1]  # type: ignore[operator]
 
 
-def _held_at_bounds(theta, labels: tuple[str, ...], lower, upper) -> list[str]:
-    """The free parameters at a finite bound of the model file, in words with the bound ('variance(x) at its
-    bound of at least 5')."""
+def _held_at_bounds(theta, labels: tuple[str, ...], lower, upper, observed: tuple[str, ...] = ()) -> list[Text]:
+    """The free parameters at a finite bound of the model file, with the bound ('variance(x) (at least 5)'; in
+    words for a manuscript, :func:`_named`)."""
     if lower is None or upper is None or theta is None or len(theta) != len(labels):
         return []
     theta = np.asarray(theta, dtype=float)
@@ -100,5 +109,5 @@ def _held_at_bounds(theta, labels: tuple[str, ...], lower, upper) -> list[str]:
     for k, label in enumerate(labels):
         for bound, word in ((lower[k], "at least"), (upper[k], "at most")):
             if np.isfinite(bound) and abs(theta[k] - bound) <= 1e-8 * max(1.0, abs(bound)):
-                out.append(f"{label} ({word} {bound:g})")
+                out.append(_named(label, observed) + f" ({word} {bound:g})")
     return out

@@ -23,7 +23,9 @@ normal data, the bundled demo data and Holzinger & Swineford 1939):
   to 5; a 1-to-7 item beside them is of another scale and hides nothing, review s14).  A skewed 0-to-10 or 1-to-7
   item whose second-highest answer no one chose is so left alone: its run (0 to 8) is no other item's, so it has
   no other item of its scale (review s13); a column with no other item of its scale is not judged by this rule (nothing says where its scale ends; a scale a 'reversed' statement declares
-  is judged by the model's own check, data.matching.check_declared_ranges).  Common practice of data screening
+  is judged by the model's own check, data.matching.check_declared_ranges).  A value so found is then counted in
+  every column of that scale that holds it (its other answers having that run, the value fewer than half of its
+  answers), however many cells it takes there, as a declared scale counts every cell outside it.  Common practice of data screening
   (a value outside the range the questionnaire's items use is a keying error), written as this project's rule,
   not a published test.  Measures with many different values (reaction times, incomes, counts of many sizes)
   form no such run and are never judged so;
@@ -119,8 +121,8 @@ class OddValues:
                      f"{len(self.columns)} item columns of {name} ({_listed(self.columns)}) hold")
             return (f"{where} the value {value} ({self.answers} answer{'s' if self.answers != 1 else ''} in "
                     f"{self._rows_named()}), outside the answer "
-                    f"scale of the other answers ({_number(low)} to {_number(high)}), analysed as an answer: a typing "
-                    f"error?")
+                    f"scale of the other answers ({_number(low)} to {_number(high)}), analysed as an answer: "
+                    f"{self._guess()}?")
         if self.kind is OddKind.SUMMARY_BLOCK:
             return _block_caution(self, name)
         guess = ("a totals or means row, or a typing error?" if self.kind is OddKind.FAR_BEYOND
@@ -166,7 +168,7 @@ class OddValues:
         if self.kind is OddKind.OUTSIDE_SCALE:
             return (f"the value {_number(self.values[0])} in {_listed(written_name(c) for c in self.columns)} "
                     f"({self.answers} answer{'s' if self.answers != 1 else ''}), outside the answer scale of the other "
-                    f"answers ({_number(low)} to {_number(high)}): perhaps a typing error")
+                    f"answers ({_number(low)} to {_number(high)}): perhaps {self._guess()}")
         if self.kind is OddKind.FAR_BEYOND:
             return (f"{self._first_row()}, with values far beyond every other row's answers ({_number(low)} to "
                     f"{_number(high)}) in {len(self.columns)} item column{'s' if len(self.columns) != 1 else ''}: "
@@ -193,6 +195,12 @@ class OddValues:
             return _block_advice(self, holder)
         return Note((f"Delete {self._first_row()} from the {holder} (or leave it out with a row filter",
                      Command(f", {Option.KEEP}"), ") if it holds no one's answers; otherwise check those answers."))
+
+    def _guess(self) -> str:
+        """What a value outside the answer scale may be: a typing error in one column; in several, where the same
+        slip is unlikely, a code for no answer first (re-check s18: 8 in all 16 items, 432 cells, read 'a typing
+        error?')."""
+        return "a typing error" if len(self.columns) == 1 else "a code for no answer, or typing errors"
 
     def _rows_named(self) -> str:
         """'rows 302, 355 and 2 more', each row with its text line where it differs ('row 302 (text line 340)')."""
@@ -602,6 +610,9 @@ def _outside_scales(X: np.ndarray, apart: np.ndarray, named: set, names: list[st
             if not scale or min(r[0] for r in scale) <= value <= max(r[1] for r in scale):
                 continue  # no other item of its scale, or one that uses the value: not beyond the scale's range
             found.setdefault((value, low, high), []).append((j, X[:, j] == value))
+    for (value, low, high), held in found.items():  # the value in every column of its scale, however often given
+        held += _on_the_scale(X, value, low, high, {j for j, _ in held}, named)
+        held.sort(key=lambda c: c[0])  # the columns in the file's order
     out = []
     for (value, low, high), held in sorted(found.items(), key=lambda kv: -sum(int(c.sum()) for _, c in kv[1])):
         cells = np.column_stack([c for _, c in held])
@@ -609,6 +620,29 @@ def _outside_scales(X: np.ndarray, apart: np.ndarray, named: set, names: list[st
         out.append(OddValues(OddKind.OUTSIDE_SCALE, tuple(names[j] for j, _ in held), (float(value),) * len(held),
                              tuple(int(numbers[r]) for r in rows), int(cells.sum()), (low, high)))
     return tuple(out)
+
+
+def _on_the_scale(X: np.ndarray, value: float, low: float, high: float, taken: set,
+                  named: set) -> list[tuple[int, np.ndarray]]:
+    """The other columns of ``X`` (not in ``taken``; (column, value) not in ``named``) that hold ``value``, found
+    outside the answer scale ``low`` to ``high`` in some column, in fewer than half of their answers, and whose other
+    answers have that scale as their answer run (:func:`_answer_run`): (column, its cells holding the value).  The
+    value is then counted wherever it stands on the items of that scale, as a declared scale counts every cell
+    outside it (data.matching.check_declared_ranges): a 'don't know' code 8 among answers 1 to 4 in 3% of one item's
+    answers is the same code as in 2% of another's (re-check s18: 5 of the 16 columns holding it were named, 107 of
+    its 432 cells)."""
+    out = []
+    for k in range(X.shape[1]):
+        if k in taken or (k, value) in named:
+            continue
+        x = X[:, k]
+        cells = x == value
+        count = int(cells.sum())
+        if not count or 2 * count >= int(np.isfinite(x).sum()):
+            continue
+        if _answer_run(np.where(cells, np.nan, x)) == (low, high):
+            out.append((k, cells))
+    return out
 
 
 def _outside_scale(x: np.ndarray) -> list[tuple[float, float, float]]:

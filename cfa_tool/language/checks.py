@@ -11,7 +11,7 @@ from __future__ import annotations
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import Location, ModelError
 from cfa_tool.language.names import written_name
-from cfa_tool.language.spec import ParameterRef, Spec, answer_key, fix_sets_scale
+from cfa_tool.language.spec import NamePair, ParameterRef, Spec, answer_key, fix_sets_scale
 
 
 def _fail(spec: Spec, message: str, location: Location | None) -> ModelError:
@@ -282,6 +282,17 @@ def _check_pairs(spec: Spec) -> None:
             raise _fail(spec, f"'{a}' and '{b}' are already uncorrelated unless you covary them (a factor below a higher-order factor has no free covariances)", pair.first.location)
         if a not in latent:
             raise _fail(spec, f"residuals of '{a}' and '{b}' are uncorrelated unless you covary them; no statement is needed", pair.first.location)
+    for word, pairs in (("covary", spec.covary), ("uncorrelated", spec.uncorrelated)):
+        seen: dict[tuple[str, str], NamePair] = {}
+        for pair in pairs:  # the same pair again: the methods paragraph counted 'two residual covariances' (s18)
+            if pair.key() in seen:
+                first = seen[pair.key()].first.location
+                again = pair.first.location
+                where = (f"on line {first.line} and again on line {again.line}"
+                         if first is not None and again is not None and first.line != again.line else "twice")
+                raise _fail(spec, f"'{word}' names '{pair.first}' and '{pair.second}' {where}; name each pair once",
+                            pair.first.location)
+            seen[pair.key()] = pair
     covaried = {p.key(): p for p in spec.covary}
     for pair in spec.uncorrelated:
         if pair.key() in covaried:
@@ -364,6 +375,17 @@ def _check_zero_disturbances(spec: Spec, fixed: dict[tuple, tuple[float, Paramet
                           f"such as 'fix {ParameterRef('loading', (f, first), ref.location)} = 1'", ref.location)
 
 
+def _repeated(what: str, first: ParameterRef, again: ParameterRef) -> str:
+    """The error of a statement that repeats an earlier one exactly ('fix variance(x) = 0.5' twice), naming both
+    lines, as a repeated 'scale latent by ...' is an error naming the first's: a repeat is most often a copy left
+    behind or a line meant for another parameter, and a methods paragraph must not state it twice."""
+    if first.location is not None and again.location is not None and first.location.line == again.location.line:
+        return f"{what} twice in this statement (line {again.location.line}); name it once"
+    where = f"on line {first.location.line} and again on line {again.location.line}" if first.location is not None \
+        and again.location is not None else "twice"
+    return f"{what} {where}; give it once (remove one, or correct the parameter it names)"
+
+
 def _check_contradictions(spec: Spec) -> None:
     fixed: dict[tuple, tuple[float, ParameterRef]] = {}
     latent = set(spec.factor_names)
@@ -383,15 +405,27 @@ def _check_contradictions(spec: Spec) -> None:
             key = _gkey(ref)
             if key in fixed and fixed[key][0] != setting.value:
                 raise _fail(spec, f"{ref} is fixed to {setting.value:g} here but to {fixed[key][0]:g} on line {fixed[key][1].location.line}", ref.location)
+            if key in fixed:  # the same fix again: the methods paragraph stated it twice (re-check s18)
+                raise _fail(spec, _repeated(f"{ref} is fixed to {setting.value:g}", fixed[key][1], ref),
+                            ref.location)
             fixed[key] = (setting.value, ref)
     _check_zero_disturbances(spec, fixed, latent - top)
+    freed: dict[tuple, ParameterRef] = {}
     for ref in spec.freed:
         if _gkey(ref) in fixed:
             raise _fail(spec, f"{ref} is both fixed (line {fixed[_gkey(ref)][1].location.line}) and freed", ref.location)
+        if _gkey(ref) in freed:
+            raise _fail(spec, _repeated(f"{ref} is freed", freed[_gkey(ref)], ref), ref.location)
+        freed[_gkey(ref)] = ref
+    started: dict[tuple, tuple[float, ParameterRef]] = {}
     for setting in spec.starts:
         for ref in setting.refs:
             if _gkey(ref) in fixed:
                 raise _fail(spec, f"{ref} is fixed, so a start value for it has no effect; remove one of the two", ref.location)
+            if started.get(_gkey(ref), (None,))[0] == setting.value:  # two different ones: model.parameters says so
+                raise _fail(spec, _repeated(f"{ref} is given the start value {setting.value:g}", started[_gkey(ref)][1],
+                                            ref), ref.location)
+            started[_gkey(ref)] = (setting.value, ref)
     for bound in spec.bounds:
         for ref in bound.refs:
             if _gkey(ref) in fixed:
@@ -409,6 +443,9 @@ def _check_contradictions(spec: Spec) -> None:
                 if key in side and side[key][0] != value:
                     raise _fail(spec, f"{ref} is bounded to {word} {value:g} here but to {word} {side[key][0]:g} on line "
                                       f"{side[key][1].location.line}; give it one bound on each side", ref.location)
+                if key in side:  # the same bound again: stated twice by the methods paragraph (re-check s18)
+                    raise _fail(spec, _repeated(f"{ref} is bounded to {word} {value:g}", side[key][1], ref),
+                                ref.location)
                 side[key] = (value, ref)
             if ref.kind == "variance" and bound.upper is not None and bound.upper < 0:
                 raise _fail(spec, f"{ref} is bounded to at most {bound.upper:g}, but a variance cannot be negative",
@@ -416,7 +453,21 @@ def _check_contradictions(spec: Spec) -> None:
             if key in lower and key in upper and lower[key][0] > upper[key][0]:
                 raise _fail(spec, f"the bounds on {ref} leave no room: at least {lower[key][0]:g} and at most "
                                   f"{upper[key][0]:g}", ref.location)
+    exempt: dict[tuple, ParameterRef] = {}
+    for ref in spec.noninvariant:  # named again: 'except the intercept of clean and the intercept of clean' (s18)
+        if _gkey(ref) in exempt:
+            raise _fail(spec, _repeated(f"{ref} is named noninvariant", exempt[_gkey(ref)], ref), ref.location)
+        exempt[_gkey(ref)] = ref
+    held: dict[frozenset, tuple[ParameterRef, ...]] = {}
     for group in spec.equal:
+        key = frozenset(_gkey(r) for r in group)
+        if key in held and len(key) == len(group):  # the same equality again: stated twice by the methods paragraph
+            first, again = held[key][0].location, group[0].location
+            where = (f"on line {first.line} and again on line {again.line}" if first is not None and again is not None
+                     else "twice")
+            raise _fail(spec, f"these parameters are set equal {where}; give each 'equal' statement once",
+                        group[0].location)
+        held.setdefault(key, group)
         values = {fixed[_gkey(r)][0] for r in group if _gkey(r) in fixed}
         if len(values) > 1:
             raise _fail(spec, f"these parameters are set equal but are fixed to different values ({', '.join(f'{v:g}' for v in sorted(values))})", group[0].location)

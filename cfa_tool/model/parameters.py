@@ -326,15 +326,20 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                 entries[marker].update(fixed=value, origin="scale")
             elif method == "variance":
                 if var_key in freed:
-                    raise _scale_error(spec, f, "its variance is freed but 'scale ... by variance' fixes it")
+                    raise _scaling_refused(spec, f, f"{_scaling_words(spec, f)} fixes the variance of '{f}' at 1, "
+                                                    f"which a 'free' statement frees; keep one of the two")
                 # with loadings held equal across groups, only the first group's variance sets the scale
                 if g == 0 or not any(tied_across_groups(k[1:]) for k in load_keys):
                     entries[var_key].update(fixed=1.0, origin="scale")
             else:  # effects coding: loadings average 1
                 if multi:
-                    raise _scale_error(spec, f, "effects coding is not available with groups; use marker or variance scaling")
+                    every = not any(n.text == f for setting in spec.scaling for n in setting.factors)
+                    raise _scaling_refused(spec, f, f"effects coding ({_scaling_words(spec, f)}) is not available "
+                                                    f"with groups; scale " + ("the factors by markers or by their "
+                                                    "variances" if every else f"'{f}' by a marker or by its variance"))
                 if len(load_keys) < 2:
-                    raise _scale_error(spec, f, "effects coding needs at least two indicators")
+                    raise _scaling_refused(spec, f, f"effects coding ({_scaling_words(spec, f)}) needs at least two "
+                                                    f"indicators of '{f}' whose loadings are not fixed at 0")
                 effects[load_keys[-1]] = load_keys[:-1]
                 entries[load_keys[-1]]["origin"] = "scale"
         # factor means: free outside the first group where the intercepts of their indicators are held equal
@@ -813,6 +818,38 @@ def _sort_key(key: tuple, entry: dict) -> tuple:
 
 def _label(key: tuple, group_labels: tuple[str, ...] | None) -> str:
     return reference_text(key[1], key[2], group_labels[key[0]] if group_labels else None)
+
+
+def _scaling_statement(spec: Spec, factor: str):
+    """The 'scale' statement that gives ``factor`` its scaling method (Spec.scaling_of's rule) and the place to point
+    at: the factor's name in a statement naming it, or a 'scale latent by ...' statement; (None, None) where no
+    statement does (the marker by default)."""
+    every = None
+    for setting in spec.scaling:
+        named = next((n for n in setting.factors if n.text == factor), None)
+        if named is not None:
+            return setting, named.location
+        if not setting.factors:
+            every = setting
+    return (every, every.location) if every is not None else (None, None)
+
+
+def _scaling_words(spec: Spec, factor: str) -> str:
+    """The statement that scales ``factor``, as written ('scale a by effects', 'scale latent by effects')."""
+    setting, _ = _scaling_statement(spec, factor)
+    if setting is None:
+        return "the marker, by default"
+    return f"'scale {'latent' if not setting.factors else written_name(factor)} by {setting.method}'"
+
+
+def _scaling_refused(spec: Spec, factor: str, message: str) -> ModelError:
+    """An error of the scaling a 'scale' statement asks for, at that statement (re-check s18: with groups, 'scale a
+    by effects' on line 3 was refused at the factor's line 1 as "factor 'a' has no scale"); at the factor's line
+    where no statement names the method."""
+    _, loc = _scaling_statement(spec, factor)
+    if loc is None:
+        loc = next((f.name.location for f in spec.factors if f.name.text == factor), None)
+    return ModelError(message, loc, spec.source_line(loc))
 
 
 def _scale_error(spec: Spec, factor: str, why: str) -> ModelError:

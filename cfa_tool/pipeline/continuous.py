@@ -218,7 +218,7 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
     opt = found.result
     if opt.outcome is Outcome.BAD_START:  # a fixed covariance beyond the variances the data give: named at its line
         fixed_values_at_start(spec, table, model.entry_values(start), labels)
-    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper)
+    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper, table.observed)
     return Estimation(table, model, likelihood, opt.theta, opt.value, opt.converged, opt.iterations, message)
 
 

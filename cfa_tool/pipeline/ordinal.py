@@ -297,7 +297,7 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
     opt = found.result
     if opt.outcome is Outcome.BAD_START:  # a fixed covariance beyond the variances at the start: named at its line
         fixed_values_at_start(fixed_spec, table, model.entry_values(start))
-    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper)
+    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper, table.observed)
     theta = opt.theta
     n = moments.n_obs
     final = unit_variance_matrices(model.matrices(theta))
@@ -533,7 +533,7 @@ def estimate_ordinal_groups(spec: Spec, groups: list, options, method: Weighting
                                lambda: variance_scaled_problem(again.unit_variances))
                 if refit.result.converged:
                     objective, found, opt = again, refit, refit.result
-    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper)
+    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper, table.observed)
     return OrdinalEstimation(table, model, objective, opt.theta, opt.value, opt.converged, opt.iterations, message)
 
 

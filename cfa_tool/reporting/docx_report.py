@@ -27,7 +27,7 @@ from cfa_tool.reporting.diagram import MIN_FIGURE_TEXT  # the smallest lettering
 from cfa_tool.reporting.picture import (DEFAULT_DPI, page_fit, png_converter, smallest_text, svg_size, svg_strips,
                                        svg_to_png)
 from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS, by_file_name
-from cfa_tool.reporting.numbers import printed
+from cfa_tool.reporting.numbers import printed, printed_line
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.tables import ReportTable
 
@@ -434,7 +434,7 @@ def _document(title: str, notice, view: View = WORDS) -> Document:
         run.bold = True
         run.font.color.rgb = PROBLEM_RED
         for line in notice.lines:
-            document.add_paragraph(printable(said(line, view)), style="List Bullet")
+            document.add_paragraph(printable(printed_line(line, view)), style="List Bullet")
     document.add_heading(printable(title), level=1)
     return document
 
@@ -455,13 +455,13 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
     view = numbered(report.tables)
     document = _document(report.title, report.notice, view)
     for line in report.lines:
-        document.add_paragraph(printable(said(line, view)))
+        document.add_paragraph(printable(printed_line(line, view)))
     if report.warnings:
         heading = document.add_paragraph()
         heading.add_run(WARNINGS).bold = True
         heading.paragraph_format.keep_with_next = True
         for line in report.warnings:
-            document.add_paragraph(printable(said(line, view)), style="List Bullet")
+            document.add_paragraph(printable(printed_line(line, view)), style="List Bullet")
     if report.paragraph:
         document.add_heading(PARAGRAPH_HEADING, level=2)
         document.add_paragraph(typeset(report.paragraph))
@@ -509,9 +509,9 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
     if report.notes:
         document.add_heading("Notes", level=2)
         for line in report.notes:
-            document.add_paragraph(printable(said(line, view)), style="List Bullet")
+            document.add_paragraph(printable(printed_line(line, view)), style="List Bullet")
     if report.cautions:
         document.add_heading("Cautions", level=2)
         for line in report.cautions:
-            document.add_paragraph(printable(said(line, view)))
+            document.add_paragraph(printable(printed_line(line, view)))
     return _saved(document)

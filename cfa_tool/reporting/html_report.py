@@ -9,7 +9,7 @@ from cfa_tool.reporting.diagram import MIN_FIGURE_TEXT
 from cfa_tool.reporting.picture import smallest_text, svg_size
 from cfa_tool.reporting.document import PARAGRAPH_HEADING, WARNINGS, by_file_name
 from cfa_tool.reporting.escape import html_text as esc
-from cfa_tool.reporting.numbers import printed
+from cfa_tool.reporting.numbers import printed, printed_line
 from cfa_tool.note_parts import RUNNING, View, said, titled
 from cfa_tool.reporting.tables import ReportTable
 
@@ -107,7 +107,7 @@ def notice_html(notice: T.ProblemNotice | None, view: View = RUNNING) -> str:
     if notice is None:
         return ""
     cls = "problems" if notice.inadmissible else "problems caution-only"
-    items = "".join(f"<li>{esc(said(line, view))}</li>" for line in notice.lines)
+    items = "".join(f"<li>{esc(printed_line(line, view))}</li>" for line in notice.lines)
     return f'<div class="{cls}" id="problems" role="alert"><h2>{esc(notice.heading)}</h2><ul>{items}</ul></div>'
 
 
@@ -121,10 +121,10 @@ def report_html_fragment(report, heading: bool = False) -> str:
 
     view = titled(report.tables)
     parts = [notice_html(report.notice, view)] + ([f"<h1>{esc(report.title)}</h1>"] if heading else [])
-    parts += [f'<p class="note">{esc(said(line, view))}</p>' for line in report.lines]
+    parts += [f'<p class="note">{esc(printed_line(line, view))}</p>' for line in report.lines]
     if report.warnings:
         parts.append(f'<div class="caution" id="warnings"><strong>{esc(WARNINGS)}</strong><ul class="warnings">'
-                     + "".join(f"<li>{esc(said(w, view))}</li>" for w in report.warnings) + "</ul></div>")
+                     + "".join(f"<li>{esc(printed_line(w, view))}</li>" for w in report.warnings) + "</ul></div>")
     if report.paragraph:
         parts += [f"<h2>{PARAGRAPH_HEADING}</h2>", f'<p class="summary" id="methods-paragraph">{_set(report.paragraph)}</p>']
     for figure in report.figures:
@@ -144,8 +144,8 @@ def report_html_fragment(report, heading: bool = False) -> str:
         lines = "\n".join(esc(line) for line in listing.text.split("\n"))  # its line breaks kept, other controls shown
         parts += [f"<h2>{esc(listing.title)}</h2>", f"<pre>{lines}</pre>"]
     if report.notes:
-        parts.append('<ul class="warnings">' + "".join(f"<li>{esc(said(w, view))}</li>" for w in report.notes) + "</ul>")
-    parts += [f'<p class="caution">{esc(said(c, view))}</p>' for c in report.cautions]
+        parts.append('<ul class="warnings">' + "".join(f"<li>{esc(printed_line(w, view))}</li>" for w in report.notes) + "</ul>")
+    parts += [f'<p class="caution">{esc(printed_line(c, view))}</p>' for c in report.cautions]
     return "\n".join(p for p in parts if p)
 
 

@@ -6,6 +6,7 @@ import math
 import re
 
 from cfa_tool.assessment.fit_indices import FIT_GUIDES
+from cfa_tool.note_parts import Command, Note, Text, View, said
 from cfa_tool.numerics.plain import decimals_beside
 
 
@@ -64,6 +65,17 @@ PRINTED_RELATIONS = {">": "\u2265", "<": "\u2264"}
 def printed(text: str) -> str:
     """``text`` as a printed view sets it (the rule above): '-.63' as '\u2212.63', '>= .95' as '\u2265 .95'."""
     return _RELATION.sub(lambda m: PRINTED_RELATIONS[m.group(1)], _MINUS.sub("\u2212", text))
+
+
+def printed_line(text: Text, view: View) -> str:
+    """A report's line (a problem, a note, a caution) as a printed view says it in ``view``: its words by
+    :func:`printed` ('(p ≥ .05)'), what the program's user runs or writes (note_parts.Command: an option, a model
+    file's statement) as written, so that it can be copied ('--missing-codes -99'); a view without commands (a
+    manuscript's) says their words, which are printed as words are."""
+    if isinstance(text, str):
+        return printed(text)
+    return "".join(said(Note((part,)), view) if isinstance(part, Command) and view.commands
+                   else printed(said(Note((part,)), view)) for part in text.parts)
 
 
 def guide_text(index: str, signs: bool = False) -> str:

@@ -3,7 +3,9 @@ carries."""
 
 from __future__ import annotations
 
+import re
 import sys
+from dataclasses import replace
 
 from cfa_tool.errors import OptionError
 from cfa_tool.version import check_written_version
@@ -87,7 +89,46 @@ def saved_report(payload: object, source: str) -> Report:
     except (KeyError, TypeError, ValueError, AttributeError):
         raise OptionError(f"{source}: the report in this result is incomplete or changed by hand; run the command "
                           f"again with --json") from None
+    if isinstance(saved, dict) and "files" not in saved:  # saved before reports listed the user's files
+        report = replace(report, files=saved_paths(report, payload))
     return _with_estimate_problems(report, payload, source)
+
+
+#: a path that names folders, as a report's words give a file: from the root ('/home/x/data.csv'), the home
+#: ('~/data.csv'), the working folder ('./x', '../x') or a drive ('C:\\x\\data.csv'); not inside a web address
+#: ('https://doi.org/...') nor a word ('and/or')
+_PATH = re.compile(r"(?<![\w:/.~\\-])(?:~|\.{1,2})?/(?:[^\s/;,()'\"\[\]]+/)+[^\s/;,()'\"\[\]]+"
+                   r"|(?<![\w])[A-Za-z]:\\(?:[^\s\\;,()'\"\[\]]+\\)+[^\s\\;,()'\"\[\]]+")
+
+
+def saved_paths(report: Report, payload: dict) -> tuple[str, ...]:
+    """The user's files of a result saved before its report listed them (Report.files; re-check s18, R7: 'report
+    OLD.json --docx' printed 'Model file: /work/.../x.cfa' in Word): the model's and the data's ``source`` the result
+    holds, and the paths that name folders in the report's own lines, found by their form, so that the views written
+    for others name every file by its name whatever the result's age (document.by_file_name)."""
+    found: list[str] = []
+
+    def sources(part) -> None:
+        if isinstance(part, dict):
+            for key, value in part.items():
+                if key == "report":
+                    continue
+                if key == "source" and isinstance(value, str):
+                    found.append(value)
+                else:
+                    sources(value)
+        elif isinstance(part, list):
+            for value in part:
+                sources(value)
+
+    sources(payload)
+    notice = report.notice.lines if report.notice is not None else ()
+    tables = [t for t in (*report.tables, report.problem_table) if t is not None]
+    cells = [cell for t in tables for row in t.rows for cell in row]
+    for line in (report.title, *notice, *report.lines, *report.warnings, *report.notes, *report.cautions,
+                 *(t.title for t in tables), *(t.note for t in tables if t.note), *cells):
+        found += [path.rstrip(".") for path in _PATH.findall(str(line))]
+    return tuple(dict.fromkeys(p for p in found if p and ("/" in p or "\\" in p)))
 
 
 _NESTED_NAMES = {"calibration": "the calibration fit", "loose": "the loose refit"}

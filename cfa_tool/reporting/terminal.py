@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import io
+import re
 import textwrap
 
 from rich import box
@@ -87,7 +88,7 @@ class _ColumnParts:
                     part[j] = whole[j]
             yield self._table(report, columns, part, room)
         if keyed is not None:
-            yield _key(keyed[1])
+            yield _key(keyed[1], room)
 
     @staticmethod
     def _table(report: ReportTable, columns: list[int], widths: dict[int, float], room: int) -> Table:
@@ -100,6 +101,15 @@ class _ColumnParts:
             if report.align[j] == "r":  # a number column's heading wraps between its words, its numbers never
                 column.min_width = _least_width(report, j, room - sum(
                     min(widths[i], LEAST_TEXT + CELL_PADDING) for i in columns if i != j) - CELL_PADDING)
+        # a text column's width as the table will draw it: no wider than what the number columns at their least
+        # and the other text columns leave in the room, so that its long names are broken where it wraps them
+        least = {j: max([c.min_width or 1, *map(len, report.columns[j].split())]) + CELL_PADDING
+                 for j, c in zip(columns, table.columns) if report.align[j] == "r"}  # a heading's word is whole
+        text_widths = {j: max(1, int(min(widths[j], room - sum(least.values()) - sum(
+            widths[i] for i in columns if i != j and i not in least))) - CELL_PADDING) for j in columns if j not in least}
+        for column, j in zip(table.columns, columns):
+            if j in text_widths:
+                column.max_width = text_widths[j]
         faint = set(report.faint)
         # a part of a matrix of the items: the rows of its columns' items and those with a value in them
         shown = set(range(len(report.rows))) if not report.matrix else {
@@ -108,7 +118,8 @@ class _ColumnParts:
         for k, row in enumerate(report.rows):
             if k not in shown:
                 continue
-            cells = [Text(printable(row[j]), style="dim") if (k, j) in faint else row[j] for j in columns]
+            cells = [_names_broken(row[j], text_widths[j]) if j in text_widths else row[j] for j in columns]
+            cells = [Text(printable(cell), style="dim") if (k, j) in faint else cell for j, cell in zip(columns, cells)]
             table.add_row(*cells, style="bold red" if k in report.flagged else None)
         return table
 
@@ -151,6 +162,31 @@ def _unbroken_widths(report: ReportTable) -> list[float]:
             + CELL_PADDING if align == "l" else 0 for j, align in enumerate(report.align)]
 
 
+_NAME_PIECE = re.compile(r"[^_\-]*[_\-]+|[^_\-]+")  # a part of a name up to and with its '_' or '-'
+
+
+def _names_broken(text: str, width: int) -> str:
+    """A text cell with each word longer than ``width`` (an item's name of 52 characters in a column narrowed to 40)
+    broken into lines after a '_' or '-' inside it, as many of its parts to a line as fit, so that it reads as one
+    name carried over ('short_wait_with_a_really_very_long_' above 'descriptive_suffix'), never cut inside a part
+    (re-check s18: '..._descriptive_suffi' above 'x'); a part longer than the width alone is folded by the table.
+    Every terminal table's text columns (:class:`_ColumnParts`)."""
+    if width < 1 or len(text) <= width or all(len(word) <= width for word in text.split()):
+        return text
+    out = []
+    for word in text.split(" "):
+        if len(word) <= width:
+            out.append(word)
+            continue
+        lines = [""]
+        for piece in _NAME_PIECE.findall(word):
+            if lines[-1] and len(lines[-1]) + len(piece) > width:
+                lines.append("")
+            lines[-1] += piece
+        out.append("\n".join(lines))
+    return " ".join(out)
+
+
 def _wrapped(widths: list[float], align: tuple[str, ...], room: int, floors: list[float]) -> list[float]:
     """The widths with the widest text columns narrowed, their text to wrap, so that the number columns fit
     beside them in one part: when the table is wider than ``room``, the text columns share what the number
@@ -174,14 +210,15 @@ def _wrapped(widths: list[float], align: tuple[str, ...], room: int, floors: lis
     return [max(min(w, cap), min(w, floor)) if a == "l" else w for w, a, floor in zip(widths, align, floors)]
 
 
-def _key(entries: tuple[tuple[str, str], ...]) -> Table:
+def _key(entries: tuple[tuple[str, str], ...], room: int) -> Table:
     """The key under a matrix drawn with numbers for its items: each number and its item's name, the name
-    wrapped under itself."""
+    wrapped under itself, a long one after a '_' or '-' (:func:`_names_broken`) in the ``room`` beside the numbers."""
     grid = Table.grid(padding=(0, 1))
     grid.add_column(no_wrap=True, justify="right")
     grid.add_column(overflow="fold")
+    beside = room - max((len(short) for short, _ in entries), default=0) - 1
     for short, name in entries:
-        grid.add_row(short, Text(printable(name)))
+        grid.add_row(short, Text(printable(_names_broken(name, beside), keep_newlines=True)))
     return grid
 
 

@@ -58,7 +58,10 @@ def _failed_lines(named_results) -> list[Text]:
         if r.converged:
             continue
         failure = next((p for p in r.problems if p.kind in (ProblemKind.NOT_CONVERGED,) + WHY_NOT_ESTIMATED), None)
-        advice = " What to try: " + failure.advice if failure is not None else ""
+        # a search that did not converge says what to try in its message: its problem's advice, the same, once only
+        # (re-check s18: the invariance ladder said it twice)
+        advice = " What to try: " + failure.advice if failure is not None and \
+            failure.kind is not ProblemKind.NOT_CONVERGED else ""
         why = (failure.explanation[0].lower() + failure.explanation[1:].rstrip(".")
                if failure is not None and failure.kind is ProblemKind.UNBOUNDED_HEYWOOD else
                r.message if failure is not None and failure.kind is ProblemKind.NOT_IDENTIFIED else

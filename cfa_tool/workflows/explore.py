@@ -423,7 +423,8 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float
     values = {c: pd.to_numeric(frame[c], errors="coerce").dropna().to_numpy(dtype=float) for c in columns}
     distinct = {c: np.unique(v) for c, v in values.items()}
     whole = {c: v for c, v in distinct.items() if len(v) and np.all(v == np.round(v))}
-    answers = {c: np.setdiff1d(v, codes) if codes else v for c, v in whole.items()}
+    stray = _stray_values(frame, list(whole), codes)
+    answers = {c: np.setdiff1d(v, tuple(codes) + stray.get(c, ())) for c, v in whole.items()}
     shared = Counter((float(v[0]), float(v[-1])) for v in answers.values() if len(v)).most_common(1)
     if not shared or shared[0][1] * 2 <= len(columns):
         return UnlikeTheItems()
@@ -447,6 +448,27 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float
         groupings = [f for f in groupings if not related[f[0]] >= RELATED_TO_THE_ITEMS]
         off_scale = [f for f in off_scale if not related[f[0]] >= RELATED_TO_THE_ITEMS]
     return UnlikeTheItems(tuple(groupings), tuple(off_scale), (low, high))
+
+
+def _stray_values(frame: pd.DataFrame, columns: list[str], codes: tuple[float, ...]) -> dict[str, tuple[float, ...]]:
+    """The values of each of ``columns`` that the screening of odd values (data.odd_values) takes for no answers,
+    missing-value codes and values outside the answer scale of the other items (an 8 'don't know' among answers 1 to
+    4), the ``codes`` given read as no answer first: they are no answers of the scale, so that the scale most columns
+    share is 1 to 4 and a grade of 7 to 9 is not taken for an item (re-check s18: with --missing-codes 9 alone the
+    items' 8 made the scale 1 to 8, and the grade column entered the items with 411 cells emptied by the 9)."""
+    from cfa_tool.data.odd_values import OddKind, odd_values
+
+    if not columns:
+        return {}
+    numbers = frame[columns].apply(pd.to_numeric, errors="coerce")
+    if codes:
+        numbers = numbers.mask(numbers.isin(codes))
+    out: dict[str, tuple[float, ...]] = {}
+    for odd in odd_values(numbers.reset_index(drop=True), columns):
+        if odd.kind in (OddKind.MISSING_CODE, OddKind.OUTSIDE_SCALE):
+            for column, value in zip(odd.columns, odd.values):
+                out[column] = out.get(column, ()) + (value,)
+    return out
 
 
 def _count_values(column: pd.Series) -> int:

@@ -458,19 +458,23 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                                              analysed, missing_codes), loaded)
             if not result.converged:
                 why = next((p for p in result.problems if p.kind is not ProblemKind.SMALL_GROUP), None)
-                reason = " (" + result.message + (")." + " " + why.advice if why is not None else ")")
+                # the search's message holds its own advice ('What to try: ...'): the problem's advice, which says
+                # the same, is not added (re-check s18: the advice twice, and '(now 500).; the ladder stops there')
+                reason = " (" + result.message + ")"
                 if not steps:  # nothing to report without a configural model; a group too small for it first
                     small = tuple(f"Group {written_group(p.group, labels)}: {p.explanation}" for p in result.problems
                                   if p.kind is ProblemKind.SMALL_GROUP)
                     raise EstimationError(" ".join(map(str, data_cautions + small
-                                                       + ("the configural model did not converge" + reason,))))
+                                                       + ("the configural model did not converge" + reason + ".",))))
                 steps.append(InvarianceStep(level, result, None, False, ()))
-                if why is not None and why.kind in WHY_NOT_ESTIMATED:  # its words say why (a Heywood case, ...)
-                    reason = ": " + why.explanation[0].lower() + why.explanation[1:].rstrip(".") + ". " + why.advice.rstrip(".")
-                stopped = (f"the {level} model " + ("could not be estimated" if why is not None and why.kind
-                                                     in WHY_NOT_ESTIMATED else "did not converge")
-                           + (reason.rstrip(".") if isinstance(reason, str) else reason) + "; the ladder stops there"
-                           + (", and the partial search could not run at this step" if partial != "none" else ""))
+                estimated_not = why is not None and why.kind in WHY_NOT_ESTIMATED
+                if estimated_not:  # its words say why (a Heywood case, ...), then its advice
+                    reason = ": " + why.explanation[0].lower() + why.explanation[1:].rstrip(".") + ". " + \
+                        why.advice.rstrip(".")
+                # what happened to the step and why, its advice once, then what it means for the ladder
+                stopped = (f"the {level} model " + ("could not be estimated" if estimated_not else "did not converge")
+                           + reason + ". The ladder stops there"
+                           + (", and the partial search could not run at this step" if partial != "none" else "") + ".")
                 left_out, left_notes = _rows_left_out(steps[0].result)
                 # the impossible solutions of the steps before it, first as in a ladder that runs through (re-check s18)
                 impossible = tuple(_impossible_line(s, labels) for s in steps

@@ -291,3 +291,29 @@ def test_a_seven_among_one_to_five_answers_is_named_beside_an_item_on_one_to_sev
     assert frame["wide"].min() == 1 and frame["wide"].max() == 7  # pandas: the other item runs 1 to 7
     found = [o for o in odd_values(frame, list(frame.columns)) if o.kind is OddKind.OUTSIDE_SCALE]
     assert [(o.columns, o.values[0]) for o in found] == [(("x1",), 7.0)]
+
+
+def test_a_value_outside_the_scale_is_counted_in_every_item_of_the_scale_however_often_given():
+    """Re-check s18 (R6): a 'don't know' code 8 among answers 1 to 4 in every item, in 1% of some items' answers and
+    in 4% of others', was named in the items where it held at most 2% of the answers only (5 of 16 columns, 107 of
+    432 cells), so that it read as a few typing errors.  Once the value is found outside the scale, every item of
+    that scale holding it is counted, as a declared scale counts every cell outside it; the counts are pandas'."""
+    rng = np.random.default_rng(4)
+    n = 600
+    factor = rng.standard_normal((n, 1))
+    frame = pd.DataFrame(np.clip(np.round(2.5 + 0.8 * factor + 0.7 * rng.standard_normal((n, 6))), 1, 4),
+                         columns=[f"x{k + 1}" for k in range(6)])
+    for k, share in enumerate((0.01, 0.01, 0.04, 0.04, 0.05, 0.01)):
+        frame.loc[rng.random(n) < share, f"x{k + 1}"] = 8.0
+    held = (frame == 8).sum()  # pandas' counts of the 8s per column
+    assert (held > 0).all() and (held / n > 0.02).sum() >= 3  # some columns beyond the 2% of the first judgement
+    found = [o for o in odd_values(frame, list(frame.columns)) if o.kind is OddKind.OUTSIDE_SCALE]
+    assert [(o.columns, o.values[0], o.answers, o.others) for o in found] == [
+        (tuple(frame.columns), 8.0, int(held.sum()), (1.0, 4.0))]
+    assert found[0].rows == tuple(int(r) + 1 for r in np.flatnonzero((frame == 8).any(axis=1)))
+    assert "(x1, x2, x3 and 3 more) hold the value 8" in found[0].caution("school.csv")
+    assert found[0].caution("school.csv").endswith("analysed as an answer: a code for no answer, or typing errors?")
+    # a column of another scale (7 to 9) holding 8 among its answers is not counted
+    frame["grade"] = rng.integers(7, 10, n).astype(float)
+    found = [o for o in odd_values(frame, list(frame.columns)) if o.kind is OddKind.OUTSIDE_SCALE]
+    assert [o.columns for o in found] == [tuple(frame.columns[:6])]

@@ -174,6 +174,27 @@ def _error(text: str) -> ModelError:
          "variance(a) is bounded to at least 0.6 here but to at least 0.1 on line 2; give it one bound on each side"),
         ("factor f: a, b, c\nscale latent by effects\nscale latent by variance\n", 3, 1,
          "'scale latent by ...' is given twice (the first, 'by effects', on line 2)"),
+        # re-check s18 (R8): the same statement given twice was accepted and the methods paragraph stated it twice
+        # ('... fixed at 0.5 and the residual variance of clean was fixed at 0.5'): an error naming both lines
+        ("factor f: a, b, c\nfix variance(a) = 0.5\nfix variance(a) = 0.5\n", 3, 5,
+         "variance(a) is fixed to 0.5 on line 2 and again on line 3; give it once (remove one, or correct the "
+         "parameter it names)"),
+        ("factor f: a, b, c\nfix variance(a), variance(a) = 0.5\n", 2, 18,
+         "variance(a) is fixed to 0.5 twice in this statement (line 2); name it once"),
+        ("factor f: a, b, c\nbound variance(a) >= 0.1\nbound variance(a) >= 0.1\n", 3, 7,
+         "variance(a) is bounded to at least 0.1 on line 2 and again on line 3; give it once"),
+        ("factor f: a, b, c\nstart variance(a) = 0.5\nstart variance(a) = 0.5\n", 3, 7,
+         "variance(a) is given the start value 0.5 on line 2 and again on line 3; give it once"),
+        ("factor f: a, b, c\nfree loading(f, a)\nfree loading(f, a)\n", 3, 6,
+         "loading(f, a) is freed on line 2 and again on line 3; give it once"),
+        ("factor f: a, b, c\nequal loading(f, b), loading(f, c)\nequal loading(f, c), loading(f, b)\n", 3, 7,
+         "these parameters are set equal on line 2 and again on line 3; give each 'equal' statement once"),
+        ("factor f: a, b, c\ncovary a, b\ncovary b, a\n", 3, 8,
+         "'covary' names 'b' and 'a' on line 2 and again on line 3; name each pair once"),
+        ("factor f: a, b, c\nfactor g: d, e, h\nuncorrelated f, g\nuncorrelated f, g\n", 4, 14,
+         "'uncorrelated' names 'f' and 'g' on line 3 and again on line 4; name each pair once"),
+        ("factor f: a, b, c\ninvariance scalar\nnoninvariant intercept(b)\nnoninvariant intercept(b)\n", 4, 14,
+         "intercept(b) is named noninvariant on line 3 and again on line 4; give it once"),
         # hostile trial 8: 'fix variance(f) = -1' reached the estimation (exit 3, "starting values ... not positive
         # definite") instead of naming the line
         ("factor f: a, b, c\nfix variance(f) = -1\n", 2, 5, "variance(f) is fixed to -1, but a variance cannot be "
@@ -410,3 +431,27 @@ def test_minus_zero_is_zero():
     value = spec.fixed[0].value
     assert value == 0 and math.copysign(1.0, value) == 1.0 and f"{value:g}" == "0"
     assert f"{options.real_number('the threshold', -0.0, 0.0):g}" == "0" and f"{number('-0'):g}" == "0"
+
+
+def test_a_scaling_refused_points_at_its_scale_statement():
+    # re-check s18 (R13): with groups, 'scale a by effects' on line 3 was refused at the factor's line 1 as "factor
+    # 'a' has no scale: effects coding is not available with groups": the error now points at the statement that
+    # asks for the scaling and says what is refused
+    cases = {
+        "factor a: x1, x2, x3\nfactor b: y1, y2, y3\nscale a by effects\n": (
+            3, 7, "effects coding ('scale a by effects') is not available with groups; scale 'a' by a marker or by "
+                  "its variance"),
+        "factor a: x1, x2, x3\nfactor b: y1, y2, y3\nscale latent by effects\n": (
+            3, 1, "effects coding ('scale latent by effects') is not available with groups; scale the factors by "
+                  "markers or by their variances"),
+    }
+    for text, (line, column, words) in cases.items():
+        with pytest.raises(ModelError) as found:
+            build_parameter_table(parse_model(text), groups=("north", "south"))
+        assert (found.value.location.line, found.value.location.column) == (line, column)
+        assert str(found.value).endswith(words) and "has no scale" not in str(found.value)
+    with pytest.raises(ModelError) as found:
+        build_parameter_table(parse_model("factor a: x1, x2, x3\nscale a by variance\nfree variance(a)\n"))
+    assert found.value.location.line == 2
+    assert str(found.value).endswith("'scale a by variance' fixes the variance of 'a' at 1, which a 'free' statement "
+                                     "frees; keep one of the two")

@@ -272,3 +272,34 @@ def test_a_long_one_word_item_name_is_never_broken_in_a_terminal_table():
     rows = [line.split()[0] for line in text.split("\n") if line.startswith(" belonging")]
     assert rows and set(rows) == set(names)  # every row starts with a whole name, in every part
     assert all(re.search(r"\d+ \(\d+%\)", line) for line in text.split("\n") if line.startswith(" belonging"))
+
+
+@pytest.mark.parametrize("width", [80, 60, 40])
+def test_a_name_longer_than_its_column_is_carried_over_after_an_underscore_never_cut(width):
+    # re-check s18 (R12): names of 52 to 56 characters (CSV and SPSS allow them) were cut mid-name at 80 columns,
+    # 'short_wait_with_a_really_very_long_descriptive_suffi' above 'x'; a name longer than its column now goes on in
+    # the next line after one of its '_': every piece of a name printed is a run of its whole parts ('very_long_'),
+    # in every terminal table (an estimates table, and a matrix with the key under it)
+    from rich.console import Console
+
+    from cfa_tool.reporting.terminal import rich_table
+
+    names = [f"{x}_with_a_really_very_long_descriptive_suffix" for x in ("on_time", "short_wait", "accurate_info")]
+    table = T.ReportTable("t", "Loadings", ("Item", "Std.", "Loading", "SE", "95% CI", "p"),
+                          ("l", "r", "r", "r", "r", "r"),
+                          tuple((name, ".65", "0.887", "0.084", "[0.72, 1.05]", "< .001") for name in names))
+    matrix = T.ReportTable("m", "Residual correlations", ("Item", "1", "2"), ("l", "r", "r"),
+                           (("1 " + names[0], "", ""), ("2 " + names[1], ".01", ""), ("3 " + names[2], "-.02", ".03")),
+                           matrix=True)
+    runs = set()
+    for name in names:
+        parts = re.findall(r"[^_]*_|[^_]+$", name)
+        runs |= {"".join(parts[i:j]) for i in range(len(parts)) for j in range(i + 1, len(parts) + 1)}
+    for report in (table, matrix):
+        buffer = io.StringIO()
+        Console(file=buffer, width=width, no_color=True).print(rich_table(report))
+        text = buffer.getvalue()
+        assert max(len(line) for line in text.split("\n")) <= width
+        pieces = [w for w in re.findall(r"[a-z_]+", text) if "_" in w or w in ("suffix", "x", "su", "suffi")]
+        assert pieces and all(p in runs for p in pieces), [p for p in pieces if p not in runs]
+        assert sum(p.startswith(("on_time", "short_wait", "accurate_info")) for p in pieces) >= 3

@@ -7,6 +7,7 @@ from __future__ import annotations
 import csv
 import io
 import json
+import re
 from html.parser import HTMLParser
 from pathlib import Path
 
@@ -342,3 +343,30 @@ def test_a_saved_drawing_edited_without_its_size_is_a_one_line_error(tmp_path, c
     for view in ("--html", "--docx"):
         code, out, err = _run(["report", saved, view, tmp_path / f"out{view[2:]}"], capsys)
         assert code == 2 and "incomplete or changed by hand" in _error_line(err), err
+
+
+@pytest.mark.parametrize("command", ["fit", "replicate", "invariance"])
+def test_a_result_saved_before_reports_listed_their_files_names_them_by_name_for_others(command, files, capsys):
+    # re-check s18 (R7): 'report OLD.json --docx' of a result saved without report.files (as every version before
+    # the eighteenth round wrote it) printed 'Model file: /work/.../x.cfa' in Word; the files of such a result are its
+    # model's and data's sources and the paths its report's words give, so that Word and HTML name each file by its
+    # name whatever the result's age (the terminal keeps the paths as given)
+    out = files / f"old-{command}"
+    out.mkdir()
+    code, _, err = _run(_commands(files)[command] + ["--json", out / "new.json"], capsys)
+    assert code == 0, err
+    saved = json.loads((out / "new.json").read_text())
+    assert str(files) in json.dumps(saved["report"])  # the report's words give the folders
+    del saved["report"]["files"]
+    (out / "old.json").write_text(json.dumps(saved))
+    code, text, err = _run(["report", out / "old.json", "--docx", out / "r.docx", "--html", out / "r.html"], capsys)
+    assert code == 0, err
+    word = " ".join(p.text for p in docx.Document(str(out / "r.docx")).paragraphs)
+    word += " ".join(c.text for t in docx.Document(str(out / "r.docx")).tables for r in t.rows for c in r.cells)
+    html = re.sub(r"data:image/[^\"]+", "", (out / "r.html").read_text())
+    for view in (word, html):
+        assert str(files) not in view
+    if command != "invariance":  # whose report names no file in its words
+        code, text, err = _run(["report", out / "old.json"], capsys)
+        assert code == 0 and str(files) in "".join(text.split())  # the terminal: the paths as given
+        assert "hs.csv" in word and "hs.csv" in html

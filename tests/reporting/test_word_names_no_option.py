@@ -67,7 +67,8 @@ CASES = {
         ("--missing-codes 3 read as no answer", "given as a code of no answer, was read as no answer", True),
         ("leave 3 out of --missing-codes", "leave 3 out of the codes of no answer", True))),
     "summary.csv": ([], (
-        ("give --missing-codes -99", "If -99 means 'no answer', read -99 as no answer", True),
+        # the Word file sets a number's minus as the true minus (reporting.numbers.printed), the terminal as typed
+        ("give --missing-codes -99", "If \u221299 means 'no answer', read \u221299 as no answer", True),
         ('--keep "rider_id != Mean" --keep "rider_id != SD"', "leave them out with a row filter; statistics", False),
         ('--keep "Finished = True"', "keep only the rows where Finished = True", True))),
 }

@@ -128,3 +128,24 @@ def test_a_grade_is_not_taken_for_an_item_whose_missing_codes_empty_it():
             "that most columns hold, and no correlation of 0.30 or more with any item, as a grade or a year would "
             "be): grade (7 to 9)") in notes
     assert "constant" not in notes and "(grade " not in notes
+
+
+def test_a_grade_is_not_taken_for_an_item_when_only_one_code_of_two_is_given():
+    # re-check s18 (R6): with --missing-codes 9 alone, the items' 8 ('don't know', in every item) made their scale 1 to
+    # 8, and grade (7 to 9) entered the items with its 9s emptied; the 8 lies outside the answer scale of the items
+    # (data.odd_values), so the scale they share is 1 to 4, and the caution counts the 8 in every item
+    frame = _school_survey(seed=21).replace({8.0: 9.0})  # the items' codes all 9 ('no answer'); grade keeps its 8s
+    frame["grade"] = _school_survey(seed=21)["grade"]
+    rng = np.random.default_rng(2)
+    for k, share in enumerate((0.01, 0.03, 0.01, 0.03, 0.04, 0.01, 0.03, 0.01)):  # then 8 ('don't know') in each
+        frame.loc[rng.random(len(frame)) < share, f"b{k + 1}"] = 8.0
+    eights = (frame[[f"b{k}" for k in range(1, 9)]] == 8).sum()  # pandas
+    assert (eights > 0).all()
+    result = explore(frame, missing_codes=(9,), factors=2, replications=10)
+    assert list(result.items) == [f"b{k}" for k in range(1, 9)]
+    notes = " ".join(str(n) for n in result.notes)
+    assert "Left out as groupings or records rather than answers (a few whole values, most of them above the 1 to 4 " \
+           "that most columns hold" in notes and "grade (7 to 9)" in notes
+    caution = next(str(p) for p in result.problems() if "hold the value 8" in str(p))
+    assert caution.startswith(f"8 item columns of <data frame> (b1, b2, b3 and 5 more) hold the value 8 "
+                              f"({int(eights.sum())} answers")
