@@ -441,7 +441,12 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     named_by = _named_by(names_row, names_option)
     for position, name in enumerate(header, start=1 + skipped):
         if not name and not (position == 1 + skipped and row_names):
-            raise DataError(f"{path} (sheet '{ws.title}'): column {position} of the header row{named_by} has no name")
+            below = None if names_row is not None or first_data_row is not None else _names_row_below(
+                rows, first, items, every=_used_columns(rows[:MERGED_HEADER_LOOK + 1]))
+            hint = f" (row {first + 1} was read as the header; {_names_row_words(below, names_option, items)})" \
+                if below is not None else ""
+            raise DataError(f"{path} (sheet '{ws.title}'): column {position} of the header row{named_by} has no "
+                            f"name{hint}")
     _check_duplicates(header, f"{path} (sheet '{ws.title}')", named_by)
     width = len(header)
     for number, r in enumerate(rows[1:], start=data_start):
@@ -821,6 +826,13 @@ def _names_row_below(rows: list, first: int, items, headings: int = 0, every: Co
     return None
 
 
+def _names_row_words(below: int, names_option: Option, items=None) -> str:
+    """The words that name the row found to hold the column names (:func:`_names_row_below`) with the option that
+    reads it."""
+    among = ", the model's among them" if items else ""
+    return f"row {below} holds a name in every column{among}: read the names from it with {names_option.given(below)}"
+
+
 def _used_columns(rows: list) -> tuple[int, ...]:
     """The positions of the columns with a value in some row of ``rows``."""
     width = max(map(len, rows), default=0)
@@ -875,10 +887,8 @@ def _header_taken(where: str, names_option: Option = Option.NAMES_ROW, below: in
     the option that names the row of column names of this file; ``below``: the row found to hold them,
     :func:`_names_row_below` of the model's ``items``, named with the option that reads it)."""
     if below is not None:
-        among = ", the model's among them" if items else ""
-        return (f"{where}, the first with values, was taken as the header; row {below} looks like the column names "
-                f"(a name in every column{among}): read them from it with {names_option.given(below)}, or delete the "
-                f"rows above it")
+        return (f"{where}, the first with values, was taken as the header; {_names_row_words(below, names_option, items)}"
+                f", or delete the rows above it")
     return (f"{where}, the first with values, was taken as the header; if the column names are in a later row, "
             f"read them from it with {names_option} (its number), or delete the rows above them")
 
@@ -1423,8 +1433,10 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     named_by = _named_by(names_row, names_option)
     for position, name in enumerate(header, start=1):
         if not name and not (position == 1 and has_row_names):
+            below = _text_names_row(records, header_line, rows, items) if names_row is None and not data_line else None
+            hint = f" ({_names_row_words(below, names_option, items)})" if below is not None else ""
             raise DataError(f"{path}: {rows.words(header_row)}: column {position} of the header{named_by} has no "
-                            f"name")
+                            f"name{hint}")
     _check_duplicates(header, str(path), named_by)
     lines: list[int] = []  # the line each row starts on (messages about a malformed line name it)
     fields: list[list[str]] = []  # and its fields as written

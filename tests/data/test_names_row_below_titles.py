@@ -48,9 +48,8 @@ def test_the_row_of_names_below_two_titles_is_named(rider_demo, rider_model, tmp
     path = tmp_path / name
     write(rider_demo, path)
     err = fit_refused(rider_model, path, tmp_path, capsys)
-    assert (f"{where}, the first with values, was taken as the header; row 4 looks like the column names (a name in "
-            f"every column, the model's among them): read them from it with --names-row 4, or delete the rows above "
-            f"it") in err
+    assert (f"{where}, the first with values, was taken as the header; row 4 holds a name in every column, the "
+            f"model's among them: read the names from it with --names-row 4, or delete the rows above it") in err
     code, _, _ = run_cli(["fit", tmp_path / "m.cfa", "--data", path, "--names-row", "4"], capsys)
     assert code == 0  # as advised, the file is read as it is
 
@@ -60,4 +59,29 @@ def test_a_row_without_every_model_variable_is_not_named(rider_demo, rider_model
     path = tmp_path / name
     write(rider_demo.rename(columns={"on_time": "on_time_2026"}), path)  # the model's on_time is in no row
     err = fit_refused(rider_model, path, tmp_path, capsys)
-    assert "(its number)" in err and "looks like the column names" not in err
+    assert "(its number)" in err and "holds a name in every column" not in err
+
+
+@pytest.mark.parametrize("write, name, where", [(_book, "export.xlsx", "(sheet 'Sheet'): column 2 of the header row"),
+                                                (_text, "export.csv", "row 1: column 2 of the header")])
+def test_a_title_of_two_cells_taken_as_the_header_names_the_row_of_names(rider_demo, rider_model, tmp_path, capsys,
+                                                                         write, name, where):
+    """The neighbour: a title of two cells ('Rider survey', '', 'wave 1') read as the header, whose second column has
+    no name: the message names the row of names too."""
+    path = tmp_path / name
+    rows = _rows(rider_demo)
+    rows[0][2] = "wave 1"
+    rows[2] = [""] * len(rows[2])  # no headings
+    if name.endswith(".xlsx"):
+        openpyxl = pytest.importorskip("openpyxl")
+        book = openpyxl.Workbook()
+        for row in rows:
+            book.active.append([None if v == "" else v for v in row])
+        book.save(path)
+    else:
+        with open(path, "w", newline="") as f:
+            csv.writer(f).writerows([["" if v is None else v for v in row] for row in rows])
+    err = fit_refused(rider_model, path, tmp_path, capsys)
+    assert f"{where} has no name" in err
+    assert "row 4 holds a name in every column, the model's among them: read the names from it with --names-row 4" \
+        in err
