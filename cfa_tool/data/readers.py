@@ -441,7 +441,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     named_by = _named_by(names_row, names_option)
     for position, name in enumerate(header, start=1 + skipped):
         if not name and not (position == 1 + skipped and row_names):
-            below = None if names_row is not None or first_data_row is not None else _names_row_below(
+            below = None if first_data_row is not None else _names_row_below(
                 rows, first, items, every=_used_columns(rows[:MERGED_HEADER_LOOK + 1]))
             hint = f" (row {first + 1} was read as the header; {_names_row_words(below, names_option, items)})" \
                 if below is not None else ""
@@ -452,10 +452,11 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     for number, r in enumerate(rows[1:], start=data_start):
         beyond = [k for k, v in enumerate(r[width:], start=width + 1 + skipped) if v not in (None, "")]
         if beyond:
-            below = None if names_row is not None or first_data_row is not None else _names_row_below(
+            below = None if first_data_row is not None else _names_row_below(
                 rows, first, items, every=_used_columns(rows[:MERGED_HEADER_LOOK + 1]))
             raise DataError(f"{path} (sheet '{ws.title}'): row {number} has a value in column {beyond[0]}, which has "
-                            f"no name in the header row ({_header_taken(f'row {first + 1}', names_option, below, items)})")
+                            f"no name in the header row "
+                            f"({_header_taken(f'row {first + 1}', names_option, below, items, names_row)})")
     _check_merged_answers(ws, where, header, data_start, skipped)
     filled = [k for k, r in enumerate(rows[1:], start=data_start) if any(v is not None for v in r[:width])]
     # every row up to the last one with a value, empty ones too: they are left out, and named, by drop_blank_rows
@@ -882,13 +883,19 @@ def _check_uncomputed_formulas(path: Path, title: str, first: int) -> None:
                                 f"the workbook in a spreadsheet program, or save the table as CSV")
 
 
-def _header_taken(where: str, names_option: Option = Option.NAMES_ROW, below: int | None = None, items=None) -> str:
+def _header_taken(where: str, names_option: Option = Option.NAMES_ROW, below: int | None = None, items=None,
+                  names_row: int | None = None) -> str:
     """Which row was read as the header, and what to do when a title stands above the real one (``names_option``:
     the option that names the row of column names of this file; ``below``: the row found to hold them,
-    :func:`_names_row_below` of the model's ``items``, named with the option that reads it)."""
+    :func:`_names_row_below` of the model's ``items``, named with the option that reads it; ``names_row``: the row
+    that option gave, read as the header)."""
+    taken = (f"{where}, named by {names_option.given(names_row)}, was read as the header" if names_row is not None
+             else f"{where}, the first with values, was taken as the header")
     if below is not None:
-        return (f"{where}, the first with values, was taken as the header; {_names_row_words(below, names_option, items)}"
-                f", or delete the rows above it")
+        return f"{taken}; {_names_row_words(below, names_option, items)}" + (
+            ", or delete the rows above it" if names_row is None else "")
+    if names_row is not None:
+        return f"{taken}; give the row that holds the column names, or leave the option out if the first row does"
     return (f"{where}, the first with values, was taken as the header; if the column names are in a later row, "
             f"read them from it with {names_option} (its number), or delete the rows above them")
 
@@ -1288,7 +1295,8 @@ def _delimiter(text: str) -> str:
 def _check_field_counts(records: TextRecords, delimiter: str, named: int, width: int, path: Path,
                         header_line: int = 1, lines: list[int] | None = None,
                         names_option: Option = Option.NAMES_ROW, data_line: int = 0,
-                        fields_out: list[list[str]] | None = None, below=lambda: None, items=None) -> int:
+                        fields_out: list[list[str]] | None = None, below=lambda: None, items=None,
+                        names_row: int | None = None) -> int:
     """Every data record (those of ``records`` after the header on ``header_line``, from the line ``data_line`` on)
     must have a field for each of the ``named`` columns and no values beyond them.  Empty fields after them (a
     delimiter at the end of each line, as some programs write them; ``width`` fields in the header line) are
@@ -1315,13 +1323,13 @@ def _check_field_counts(records: TextRecords, delimiter: str, named: int, width:
         if named < n <= width:
             column = next(k for k in range(named, n) if fields[k].strip()) + 1
             raise DataError(f"{path}: line {line} has a value in column {column}, which has no name in the header "
-                            f"({_header_taken(f'line {header_line}', names_option, below(), items)})")
+                            f"({_header_taken(f'line {header_line}', names_option, below(), items, names_row)})")
         _check_quoted_rows(line, fields, delimiter, named, path)  # a stray quote before its field count (review s14)
         others = [d for d in _DELIMITERS if d != delimiter and d in delimiter.join(fields)]
         hint = (f"; the line holds '{_shown_delimiter(others[0])}', while the header is separated by "
                 f"'{_shown_delimiter(delimiter)}'") if others and n == 1 else ""
         more = "more" if n > named else "fewer"
-        taken = f"; {_header_taken(f'line {header_line}', names_option, below(), items)}" if n > named else ""
+        taken = f"; {_header_taken(f'line {header_line}', names_option, below(), items, names_row)}" if n > named else ""
         raise DataError(f"{path}: line {line} has {n} fields but the header has {named} ({more} than the header{hint}); "
                         f"every row needs one value (or an empty field) per column{taken}")
     if previous is not None:
@@ -1433,7 +1441,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     named_by = _named_by(names_row, names_option)
     for position, name in enumerate(header, start=1):
         if not name and not (position == 1 and has_row_names):
-            below = _text_names_row(records, header_line, rows, items) if names_row is None and not data_line else None
+            below = _text_names_row(records, header_line, rows, items) if not data_line else None
             hint = f" ({_names_row_words(below, names_option, items)})" if below is not None else ""
             raise DataError(f"{path}: {rows.words(header_row)}: column {position} of the header{named_by} has no "
                             f"name{hint}")
@@ -1443,7 +1451,8 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     body = text[_offset_of_line(text, header_line):]  # from the header line on, cut out once
     widest = _check_field_counts(records, delimiter, len(header), len(header) + trailing, path, header_line,
                                  lines, names_option, data_line, fields, items=items, below=lambda: _text_names_row(
-                                     records, header_line, rows, items) if names_row is None and not data_line else None)
+                                     records, header_line, rows, items) if not data_line else None,
+                                 names_row=names_row)
     decimal = _decimal_mark(body, delimiter)
     if reading is not None:
         reading.append(TextReading(encoding, delimiter, decimal, header_line, header_row))

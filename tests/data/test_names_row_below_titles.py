@@ -85,3 +85,19 @@ def test_a_title_of_two_cells_taken_as_the_header_names_the_row_of_names(rider_d
     assert f"{where} has no name" in err
     assert "row 4 holds a name in every column, the model's among them: read the names from it with --names-row 4" \
         in err
+
+
+@pytest.mark.parametrize("write, name, where", [(_book, "export.xlsx", "row 2"), (_text, "export.csv", "line 2")])
+def test_a_names_row_given_too_high_is_said_so_and_the_row_of_names_named(rider_demo, rider_model, tmp_path, capsys,
+                                                                          write, name, where):
+    """--names-row 2 (the second title) read as the header: the message said 'the first with values, was taken as
+    the header', which the option, not the file, chose; it says which option read it, and names row 4."""
+    path = tmp_path / name
+    write(rider_demo, path)
+    model = tmp_path / "m.cfa"
+    model.write_text(rider_model)
+    code, _, err = run_cli(["fit", model, "--data", path, "--names-row", "2"], capsys)
+    assert code == 2
+    assert (f"{where}, named by --names-row 2, was read as the header; row 4 holds a name in every column, the "
+            f"model's among them: read the names from it with --names-row 4") in err
+    assert "the first with values" not in err
