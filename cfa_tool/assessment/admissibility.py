@@ -79,6 +79,9 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the data: a no-answer code that a row filter's, group, cluster or strata column keeps
     # as a value (pipeline.column_codes; --missing-codes applies to the items only)
     CODE_KEPT_AS_VALUE = ("no-answer code kept in a column choosing rows", "code kept as a value", False)
+    # not of the solution but of the data: a missing-data helper of more than two categories that its SPSS file
+    # measures as nominal, whose codes enter the likelihood as one number (data.labels.HelperCategories)
+    HELPER_UNORDERED = ("missing-data helper of unordered categories", "unordered categories as a number", False)
     # values the data file itself marks as no answer, read as missing (data.non_answers): said, not a problem
     VALUES_READ_AS_MISSING = ("values the file marks as no answer", "read as missing", False)
     # not of the solution but of the data: fewer rows than the model has free parameters (one group)

@@ -10,6 +10,7 @@ researcher; whole numbers stored as floats (2.0) are the label 2.  One function 
 from __future__ import annotations
 
 import unicodedata
+from dataclasses import dataclass
 from collections.abc import Iterable
 from typing import TYPE_CHECKING
 
@@ -482,3 +483,75 @@ def _codes_by_label(labels: dict | None) -> dict[str, tuple[str, float]]:
                 and not says_no_answer(text, explained=True):
             found.setdefault(label_text(text).casefold(), []).append((text, float(value)))
     return {key: codes[0] for key, codes in found.items() if len(codes) == 1}
+
+
+#: labelled codes a note on a missing-data helper read as its codes names before 'and N more'
+HELPER_CODES_SHOWN = 8
+
+
+def helper_codes_notes(frame: "pd.DataFrame", value_labels: dict, helpers, source: str) -> list[str]:
+    """The note on each missing-data helper whose codes the data file labels (SPSS, Stata: a tenure band coded 1 to
+    4): it is read as its codes, not as its labels as a group column is (data.matching.ChosenColumns), and the note
+    names each code with its label, so that a reader sees the order the number gives the categories.  A helper enters
+    the saturated-correlates likelihood as one number (Graham 2003), related to the answers and to their gaps by a
+    straight line only: codes that order the categories carry that order, two categories are carried whole (as a
+    0/1 column is); codes of unordered categories carry an arbitrary order (:func:`unordered_helpers`)."""
+    notes = []
+    for name in helpers:
+        labels = value_labels.get(name) or {}
+        if name not in frame.columns or not labels:
+            continue
+        present = sorted({float(v) for v in frame[name].dropna()})
+        named = [(code, labels[code]) for code in present if code in labels]
+        if not named:
+            continue
+        shown = ", ".join(f"{label_text(code)} '{printable(str(label))}'" for code, label in named[:HELPER_CODES_SHOWN])
+        more = len(named) - HELPER_CODES_SHOWN
+        shown += f" and {more} more" if more > 0 else ""
+        what = ("with two values the number carries the whole distinction, as a 0/1 column would" if len(present) == 2
+                else "its codes stand for an order of its categories: categories without an order (departments, say) "
+                     "need one 0/1 column per category but one instead")
+        notes.append(f"{source}: the missing-data helper '{printable(name)}' is read as its codes, which the file "
+                     f"labels {shown}; a helper enters the likelihood as one number, related to the answers by a "
+                     f"straight line, so {what}")
+    return notes
+
+
+def unordered_helpers(frame: "pd.DataFrame", value_labels: dict, helpers) -> tuple["HelperCategories", ...]:
+    """The missing-data helpers of more than two labelled codes that their SPSS file measures as nominal (categories
+    without an order: data.readers.MeasureLevel, a hint the file gives): entered as one number, their codes carry
+    an order the file says they have not, so the answers are taken as missing at random given that order only.  A
+    caution first in every view, with the way out (one 0/1 column per category but one; or the file's measure level
+    set to ordinal when the codes do order the categories)."""
+    from cfa_tool.data.readers import MeasureLevel, measure_levels
+
+    levels = measure_levels(frame)
+    out = []
+    for name in helpers:
+        if levels.get(name) is not MeasureLevel.NOMINAL or not value_labels.get(name) or name not in frame.columns:
+            continue
+        codes = sorted({float(v) for v in frame[name].dropna()})
+        if len(codes) > 2 and all(c in value_labels[name] for c in codes):
+            out.append(HelperCategories(name, len(codes)))
+    return tuple(out)
+
+
+@dataclass(frozen=True)
+class HelperCategories:
+    """A missing-data helper whose SPSS file measures it as nominal, with ``categories`` codes among its rows
+    (:func:`unordered_helpers`): a caution that every view names first."""
+
+    column: str
+    categories: int
+    problem_kind: str = "missing-data helper of unordered categories"
+
+    def caution(self, source: str) -> str:
+        name = source.replace("\\", "/").rsplit("/", 1)[-1]
+        return (f"{name} measures the missing-data helper '{printable(self.column)}' as nominal (categories without "
+                f"an order), yet a helper enters the likelihood as one number: its {self.categories} codes were "
+                f"used as if they ordered its categories, so the answers are taken as missing at random given that "
+                f"order only, not given the categories.")
+
+    def advice(self) -> str:
+        return ("give one 0/1 column per category but one as helpers instead (in a copy of the file); if the codes "
+                "do order the categories, set the variable's measure level to ordinal in the file.")

@@ -59,11 +59,21 @@ def check_columns(spec: Spec, columns: list[str], data_source: str, sheet_hint: 
     return notes
 
 
+class ChosenColumns(dict):
+    """The columns a run chooses for a role other than an item, {column: the role's words}, and ``numbers``, those of
+    them whose role takes numbers (the weights, the missing-data helpers): read as the file's codes whatever value
+    labels it gives them, where a group or cluster column is read as its labels (pipeline.inputs._codes_as_labels)."""
+
+    numbers: frozenset[str] = frozenset()
+
+
 def chosen_columns(group: str | None = None, id_column: str | None = None, design=None,
-                   helpers=()) -> dict[str, str]:
+                   helpers=()) -> ChosenColumns:
     """The columns a run chooses for a role other than an item, by name: {column: 'the group column', ...}
-    (``design``: data.sample_design.DesignColumns; ``helpers``: the missing-data helpers)."""
-    out = {name: f"the {what} column" for what, name in (design.names if design is not None else ())}
+    (``design``: data.sample_design.DesignColumns; ``helpers``: the missing-data helpers), with those whose role
+    takes numbers (:class:`ChosenColumns`)."""
+    out = ChosenColumns({name: f"the {what} column" for what, name in (design.names if design is not None else ())})
+    out.numbers = frozenset([*(helpers or ()), *([design.weights] if design is not None and design.weights else [])])
     out.update({name: "a missing-data helper" for name in helpers or ()})
     if isinstance(id_column, str):
         out[id_column] = "the id column"

@@ -444,14 +444,22 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     named_by = _named_by(names_row, names_option)
     for position, name in enumerate(header, start=1 + skipped):
         if not name and not (position == 1 + skipped and row_names):
-            raise DataError(f"{path} (sheet '{ws.title}'): column {position} of the header row{named_by} has no name")
+            below = None if first_data_row is not None else _names_row_below(
+                rows, first, items, every=_used_columns(rows[:MERGED_HEADER_LOOK + 1]))
+            hint = f" (row {first + 1} was read as the header; {_names_row_words(below, names_option, items)})" \
+                if below is not None else ""
+            raise DataError(f"{path} (sheet '{ws.title}'): column {position} of the header row{named_by} has no "
+                            f"name{hint}")
     _check_duplicates(header, f"{path} (sheet '{ws.title}')", named_by)
     width = len(header)
     for number, r in enumerate(rows[1:], start=data_start):
         beyond = [k for k, v in enumerate(r[width:], start=width + 1 + skipped) if v not in (None, "")]
         if beyond:
+            below = None if first_data_row is not None else _names_row_below(
+                rows, first, items, every=_used_columns(rows[:MERGED_HEADER_LOOK + 1]))
             raise DataError(f"{path} (sheet '{ws.title}'): row {number} has a value in column {beyond[0]}, which has "
-                            f"no name in the header row ({_header_taken(f'row {first + 1}', names_option)})")
+                            f"no name in the header row "
+                            f"({_header_taken(f'row {first + 1}', names_option, below, items, names_row)})")
     _check_merged_answers(ws, where, header, data_start, skipped)
     filled = [k for k, r in enumerate(rows[1:], start=data_start) if any(v is not None for v in r[:width])]
     # every row up to the last one with a value, empty ones too: they are left out, and named, by drop_blank_rows
@@ -796,20 +804,43 @@ def _check_merged_header(ws, where: str, rows: list, first: int, items, names_op
     shown = ", ".join(f"{rng.coord}" + (f" '{clipped(str(value), 40)}'" if value not in (None, "") else "")
                       for rng in merged for value in (ws.cell(rng.min_row, rng.min_col).value,))
     wanted = None if items is None else {str(x) for x in items}
-    below = None
-    headings = len([v for v in rows[0] if v not in (None, "")])
-    for k, row in enumerate(rows[1:MERGED_HEADER_LOOK + 1], start=first + 2):
-        cells = [v for v in row if v not in (None, "")]
-        names = {str(v).strip() for v in cells}
-        if wanted is not None and wanted and wanted <= names or wanted is None and len(cells) >= 2 and \
-                len(cells) >= headings and all(isinstance(v, str) for v in cells):
-            below = k
-            break
+    below = _names_row_below(rows, first, items, len([v for v in rows[0] if v not in (None, "")]))
     held = "the model's item names" if wanted else "the column names"
     advice = (f"row {below} holds {held}: read them from it with {names_option.given(below)}" if below is not None
               else "give every column its own name in one header row")
     raise DataError(f"{where}: the header row {first + 1} has merged cells ({shown}), headings over several columns "
                     f"rather than one name for each; {advice}")
+
+
+def _names_row_below(rows: list, first: int, items, headings: int = 0, every: Collection[int] = ()) -> int | None:
+    """The sheet row (from 1) of the first row below the header (sheet row ``first`` + 1; ``rows`` from it on, as
+    cells; among the next :data:`MERGED_HEADER_LOOK`) that holds the column names: every one of the model's
+    ``items`` among its cells; without them, two or more cells and at least ``headings``, all text.  ``every``: the
+    positions of the columns that must each hold a name (text) in that row too.  None when no row does: the one
+    search of a row of names below the one read as the header, which the messages that stop at that header name
+    (a merged header row, a row wider than it)."""
+    wanted = None if items is None else {str(x) for x in items}
+    for k, row in enumerate(rows[1:MERGED_HEADER_LOOK + 1], start=first + 2):
+        cells = [v for v in row if v not in (None, "")]
+        if not all(c < len(row) and isinstance(row[c], str) and row[c].strip() for c in every):
+            continue
+        if wanted and wanted <= {str(v).strip() for v in cells} or not wanted and len(cells) >= max(2, headings) \
+                and all(isinstance(v, str) for v in cells):
+            return k
+    return None
+
+
+def _names_row_words(below: int, names_option: Option, items=None) -> str:
+    """The words that name the row found to hold the column names (:func:`_names_row_below`) with the option that
+    reads it."""
+    among = ", the model's among them" if items else ""
+    return f"row {below} holds a name in every column{among}: read the names from it with {names_option.given(below)}"
+
+
+def _used_columns(rows: list) -> tuple[int, ...]:
+    """The positions of the columns with a value in some row of ``rows``."""
+    width = max(map(len, rows), default=0)
+    return tuple(c for c in range(width) if any(c < len(r) and r[c] not in (None, "") for r in rows))
 
 
 def _check_merged_answers(ws, where: str, header: list, body_row: int, skipped: int) -> None:
@@ -855,9 +886,19 @@ def _check_uncomputed_formulas(path: Path, title: str, first: int) -> None:
                                 f"the workbook in a spreadsheet program, or save the table as CSV")
 
 
-def _header_taken(where: str, names_option: Option = Option.NAMES_ROW) -> str:
+def _header_taken(where: str, names_option: Option = Option.NAMES_ROW, below: int | None = None, items=None,
+                  names_row: int | None = None) -> str:
     """Which row was read as the header, and what to do when a title stands above the real one (``names_option``:
-    the option that names the row of column names of this file)."""
+    the option that names the row of column names of this file; ``below``: the row found to hold them,
+    :func:`_names_row_below` of the model's ``items``, named with the option that reads it; ``names_row``: the row
+    that option gave, read as the header)."""
+    taken = (f"{where}, named by {names_option.given(names_row)}, was read as the header" if names_row is not None
+             else f"{where}, the first with values, was taken as the header")
+    if below is not None:
+        return f"{taken}; {_names_row_words(below, names_option, items)}" + (
+            ", or delete the rows above it" if names_row is None else "")
+    if names_row is not None:
+        return f"{taken}; give the row that holds the column names, or leave the option out if the first row does"
     return (f"{where}, the first with values, was taken as the header; if the column names are in a later row, "
             f"read them from it with {names_option} (its number), or delete the rows above them")
 
@@ -1257,12 +1298,15 @@ def _delimiter(text: str) -> str:
 def _check_field_counts(records: TextRecords, delimiter: str, named: int, width: int, path: Path,
                         header_line: int = 1, lines: list[int] | None = None,
                         names_option: Option = Option.NAMES_ROW, data_line: int = 0,
-                        fields_out: list[list[str]] | None = None) -> int:
+                        fields_out: list[list[str]] | None = None, below=lambda: None, items=None,
+                        names_row: int | None = None) -> int:
     """Every data record (those of ``records`` after the header on ``header_line``, from the line ``data_line`` on)
     must have a field for each of the ``named`` columns and no values beyond them.  Empty fields after them (a
     delimiter at the end of each line, as some programs write them; ``width`` fields in the header line) are
     accepted.  Returns the largest number of fields in a record; ``lines`` receives the line on which each record
-    the table parser reads as a row starts, ``fields_out`` its fields as written (:class:`_RawCells`)."""
+    the table parser reads as a row starts, ``fields_out`` its fields as written (:class:`_RawCells`).  ``below``:
+    the row below the header that holds the column names (:func:`_text_names_row` of the model's ``items``), asked
+    for when a message says the header was taken from the first line."""
     widest = width
     previous = None
     for line, fields in records.read(delimiters_only=True, after=header_line):
@@ -1282,18 +1326,32 @@ def _check_field_counts(records: TextRecords, delimiter: str, named: int, width:
         if named < n <= width:
             column = next(k for k in range(named, n) if fields[k].strip()) + 1
             raise DataError(f"{path}: line {line} has a value in column {column}, which has no name in the header "
-                            f"({_header_taken(f'line {header_line}', names_option)})")
+                            f"({_header_taken(f'line {header_line}', names_option, below(), items, names_row)})")
         _check_quoted_rows(line, fields, delimiter, named, path)  # a stray quote before its field count (review s14)
         others = [d for d in _DELIMITERS if d != delimiter and d in delimiter.join(fields)]
         hint = (f"; the line holds '{_shown_delimiter(others[0])}', while the header is separated by "
                 f"'{_shown_delimiter(delimiter)}'") if others and n == 1 else ""
         more = "more" if n > named else "fewer"
-        taken = f"; {_header_taken(f'line {header_line}', names_option)}" if n > named else ""
+        taken = f"; {_header_taken(f'line {header_line}', names_option, below(), items, names_row)}" if n > named else ""
         raise DataError(f"{path}: line {line} has {n} fields but the header has {named} ({more} than the header{hint}); "
                         f"every row needs one value (or an empty field) per column{taken}")
     if previous is not None:
         _check_quoted_rows(*previous, delimiter, named, path)
     return widest
+
+
+def _text_names_row(records: TextRecords, header_line: int, rows: TextRows, items) -> int | None:
+    """The row (as a spreadsheet shows the file) below the header line of a text file that holds the column names:
+    a name in every column used and every one of the model's ``items`` among them (:func:`_names_row_below`; all
+    cells of a text file are text, so without the model's names no row is told from a row of answers: None)."""
+    if not items:
+        return None
+    from itertools import islice
+
+    found = list(islice(records.read(after=header_line - 1), MERGED_HEADER_LOOK + 1))
+    cells = [fields for _, fields in found]
+    k = _names_row_below(cells, 0, items, every=_used_columns(cells))
+    return rows.row(found[k - 1][0]) if k is not None else None
 
 
 def _looks_like_a_row(line: str, delimiter: str, named: int) -> bool:
@@ -1386,14 +1444,18 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     named_by = _named_by(names_row, names_option)
     for position, name in enumerate(header, start=1):
         if not name and not (position == 1 and has_row_names):
+            below = _text_names_row(records, header_line, rows, items) if not data_line else None
+            hint = f" ({_names_row_words(below, names_option, items)})" if below is not None else ""
             raise DataError(f"{path}: {rows.words(header_row)}: column {position} of the header{named_by} has no "
-                            f"name")
+                            f"name{hint}")
     _check_duplicates(header, str(path), named_by)
     lines: list[int] = []  # the line each row starts on (messages about a malformed line name it)
     fields: list[list[str]] = []  # and its fields as written
     body = text[_offset_of_line(text, header_line):]  # from the header line on, cut out once
     widest = _check_field_counts(records, delimiter, len(header), len(header) + trailing, path, header_line,
-                                 lines, names_option, data_line, fields)
+                                 lines, names_option, data_line, fields, items=items, below=lambda: _text_names_row(
+                                     records, header_line, rows, items) if not data_line else None,
+                                 names_row=names_row)
     decimal = _decimal_mark(body, delimiter)
     if reading is not None:
         reading.append(TextReading(encoding, delimiter, decimal, header_line, header_row))

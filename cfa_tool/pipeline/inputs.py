@@ -292,6 +292,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     unfinished = unfinished_rows_note(frame, loaded.source)
     if unfinished:
         notes.append(unfinished)
+    numbers = getattr(chosen, "numbers", frozenset())  # columns of a role that takes numbers (matching.ChosenColumns)
     # a row filter reads its column too (review s14: a filter on a factor-named total was said to leave it unused)
     chosen = {**{f.column: f"the column of the row filter '{f}'" for f in filters if f.column is not None},
               **(chosen or {})}
@@ -305,7 +306,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     notes += answer_range_notes(spec, frame, loaded.source, loaded.value_labels, values)
     beyond = beyond_scale(frame, spec.observed_names, loaded.value_labels, row_numbers(frame)) \
         if loaded.value_labels else ()
-    frame = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)  # said where used (labels.label_notes)
+    # said where used (labels.label_notes); the columns whose role takes numbers (weights, helpers) keep their codes
+    frame = _codes_as_labels(frame, loaded.value_labels, (*spec.observed_names, *sorted(numbers)))
     items = ItemColumns(frame, spec.observed_names, values)  # the items' codes are kept as they are
     return spec, replace(loaded, frame=frame, cautions=cautions + beyond, items=items,
                          odd_values=_screened_items(loaded, frame, spec, items.values)), notes
@@ -390,8 +392,9 @@ def kept_cautions(cautions: tuple, frame: pd.DataFrame) -> tuple:
 
 def _codes_as_labels(frame: pd.DataFrame, value_labels: dict, items) -> pd.DataFrame:
     """Columns other than the model's items whose every code has a value label (SPSS, Stata), as those labels:
-    a group column of codes 1..5 labelled 'Dispatch', 'Fleet', ... gives groups named so.  Items keep their codes
-    (the answers are numbers); a column with unlabelled codes (weights, say) stays as it is."""
+    a group column of codes 1..5 labelled 'Dispatch', 'Fleet', ... gives groups named so.  ``items`` keep their codes:
+    the model's items (the answers are numbers) and the columns whose role takes numbers (weights, missing-data
+    helpers: data.matching.ChosenColumns); a column with unlabelled codes stays as it is."""
     labelled = labelled_codes(frame, value_labels, items)
     if not labelled:
         return frame
@@ -557,6 +560,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     if fit_options.missing_helpers:
         check_helper_columns(fit_options.missing_helpers, frame, source, spec, group, id_column, design)
         loaded = with_helper_codes(loaded, helpers)
+        loaded, notes = with_labelled_helpers(loaded, helpers, notes)
     loaded = with_design_weights(analysed_odd_values(loaded, spec, group), design, spec, group)
     by_row = ids_by_row_number(ids, frame)
     with odd_values_named(loaded):
@@ -1694,6 +1698,20 @@ def with_helper_codes(loaded: LoadedData, helpers: tuple[str, ...]) -> LoadedDat
                                                                              row_numbers(loaded.frame))
                   if o.kind is OddKind.MISSING_CODE)
     return replace(loaded, odd_values=loaded.odd_values + found) if found else loaded
+
+
+def with_labelled_helpers(loaded: LoadedData, helpers: tuple[str, ...], notes: list[str]
+                          ) -> tuple[LoadedData, list[str]]:
+    """``loaded`` and ``notes`` with what a file's value labels on the missing-data ``helpers`` call for: the note
+    naming the codes read and their labels (data.labels.helper_codes_notes), and a caution first for a helper its
+    SPSS file measures as nominal (data.labels.unordered_helpers)."""
+    from cfa_tool.data.labels import helper_codes_notes, unordered_helpers
+
+    if not loaded.value_labels:
+        return loaded, notes
+    notes = list(notes) + helper_codes_notes(loaded.frame, loaded.value_labels, helpers, loaded.source)
+    unordered = unordered_helpers(loaded.frame, loaded.value_labels, helpers)
+    return (replace(loaded, cautions=loaded.cautions + unordered) if unordered else loaded), notes
 
 
 def helper_not_numbers(column: pd.Series, name: str, source: str, frame: pd.DataFrame) -> None:

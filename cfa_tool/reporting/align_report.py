@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from cfa_tool.data.groups import reference_words
 from cfa_tool.language.names import written_group
-from cfa_tool.note_parts import Text, capitalised
+from cfa_tool.note_parts import Text, capitalised, said
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.numbers import num, p_phrase, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable, _table
@@ -66,6 +66,58 @@ def caution_lines(result) -> list[Text]:
     return [capitalised(w) + "." for w in result.warnings]
 
 
+#: the heading of the box of the alignment's cautions, first in every view (the one report model's rule: a problem
+#: with a solution comes before the title), when the configural solution itself has none that makes it inadmissible
+ALIGNED_CAUTION = "Check before comparing these aligned means"
+
+
+def alignment_notice(result) -> T.ProblemNotice | None:
+    """What every view shows first: the configural solution's problems (tables.problem_notice, under its heading when
+    they make it inadmissible), then the alignment's cautions (workflows.alignment: a loss without a minimum, much
+    non-invariance, a Monte Carlo check below the authors' correlation); None when there are none (new-user trial
+    s19: the cautions stood inside the header, after the model, data and fit lines)."""
+    configural = T.problem_notice(result.configural)
+    cautions = tuple(caution_lines(result))
+    if configural is None and not cautions:
+        return None
+    lines = (configural.lines if configural is not None else ()) + cautions
+    inadmissible = configural is not None and configural.inadmissible
+    return T.ProblemNotice(configural.heading if inadmissible else ALIGNED_CAUTION, lines, inadmissible)
+
+
+def alignment_problem_table(result) -> ReportTable | None:
+    """:func:`alignment_notice` as a table for data files: the configural solution's problems
+    (tables.problem_table), then a row for each of the alignment's cautions (without configural problems, the
+    notice's own table, text_formats.notice_table)."""
+    table = T.problem_table(result.configural)
+    cautions = caution_lines(result)
+    if table is None or not cautions:
+        return table
+    kind = "caution about the aligned means"
+    rows = list(table.rows) + [[kind, "no", "", "", "", said(c), ""] for c in cautions]
+    values = list(table.values) + [[kind, "no", "", None, "", said(c), ""] for c in cautions]
+    return _table(table.key, alignment_notice(result).heading, list(zip(table.columns, table.align)), rows,
+                  values=(list(table.value_columns), values))
+
+
+def _order_doubts(result, k: int) -> list[str]:
+    """Why the order of factor k's aligned means may not hold, in the words of the caution that says it first."""
+    from cfa_tool.workflows.alignment import CAUTION_SHARE
+
+    factor = result.factors[k]
+    found = []
+    if not factor.converged:
+        found.append("the alignment did not reach a minimum of its loss")
+    if factor.noninvariant_share > CAUTION_SHARE:
+        found.append(f"more than {_percent(CAUTION_SHARE)} of its loadings and intercepts are non-invariant")
+    if result.check is not None:
+        check = next((c for c in result.check.factors if c.factor == factor.factor), None)
+        if check is not None and check.trusted is False:
+            found.append(f"in the Monte Carlo check its aligned means correlate {unit(check.mean_correlation)} with the "
+                         f"true ones")
+    return found
+
+
 def means_table(result, k: int) -> ReportTable:
     from cfa_tool.method import ReferenceMean
 
@@ -74,8 +126,10 @@ def means_table(result, k: int) -> ReportTable:
     rows = [[g.group, str(g.rows), num(g.mean), num(g.mean_se), num(g.variance), num(g.variance_se),
              _percent(shares[g.group])] for g in factor.groups]
     ranked = sorted(factor.groups, key=lambda g: -g.mean)
+    doubts = _order_doubts(result, k)
+    order = (f" (an order that may not hold: {'; '.join(doubts)}; see the caution first)" if doubts else "")
     note = (f"Groups in the order of their labels, the reference group first. Highest mean: {ranked[0].group}; lowest: "
-            f"{ranked[-1].group}. The reference group's "
+            f"{ranked[-1].group}{order}. The reference group's "
             + ("mean and variance are fixed (no standard error)." if result.reference_mean is ReferenceMean.ZERO
                else "variance is fixed at 1 (no standard error).")
             + f" Non-invariant: the group's share of flagged loadings and intercepts of {factor.factor}'s items"
@@ -231,7 +285,6 @@ def alignment_report(result):
     file shows, and what a saved result holds."""
     from cfa_tool.reporting.document import Report, ResultKind
 
-    return Report(ResultKind.ALIGN, title(result), T.problem_notice(result.configural),
-                  tuple(header_lines(result)) + tuple(f"Caution: {line}" for line in caution_lines(result)),
+    return Report(ResultKind.ALIGN, title(result), alignment_notice(result), tuple(header_lines(result)),
                   tuple(alignment_tables(result)), tuple(notes(result)), CLOSING_CAUTIONS,
-                  problem_table=T.problem_table(result.configural))
+                  problem_table=alignment_problem_table(result))

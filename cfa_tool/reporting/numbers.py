@@ -108,14 +108,25 @@ def p_phrase(p) -> str:
 
 def signed(value: float | None, digits: int = 3, beside: float | None = None) -> str:
     """A change bounded by 1 in size with its sign and without its leading zero (+.026, -.035); ``beside`` as for
-    :func:`unit`.  A change that rounds to zero keeps the sign of its direction (-.000 for -0.0002: the restricted
-    model fits worse, if by less than the digits show), and no change at all has none (.000)."""
+    :func:`unit`.  A change that rounds to zero has no sign (.000, as a paper prints it: new-user trial s19, where
+    '-.000' and '+.000' stood in the tables and the methods text; a sign is never the wrong one, which new-user s14
+    found of '+.000' for -0.0002): the one rule of every signed difference (:func:`signed_num` for others)."""
     if missing(value):
         return ""
-    text = unit(value, digits, beside)
-    if text.startswith("-"):
-        return text
-    return "-" + text if value < 0 else text if value == 0 else "+" + text
+    return _with_sign(unit(value, digits, beside))
+
+
+def signed_num(value: float | None, digits: int = 1) -> str:
+    """A change of any size to ``digits`` decimals with its sign (+2.3, -0.4), one that rounds to zero without one
+    (0.0): :func:`signed`'s rule for values not bounded by 1 (:func:`num`)."""
+    if missing(value):
+        return ""
+    return _with_sign(num(value, digits))
+
+
+def _with_sign(text: str) -> str:
+    """A number as text (its minus kept, none where it rounds to zero) with a plus before a positive one."""
+    return text if text.startswith("-") or float(text) == 0.0 else "+" + text
 
 
 def short(value) -> str:

@@ -21,8 +21,8 @@ from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, comparison_paragraph, design_sentence,
                                           mcar_score_tests,
                                           invariance_paragraph, replication_paragraph)
-from cfa_tool.reporting.numbers import (fit_index_text, guides_text, missing, num, p_phrase, p_value, short, signed, unit,
-                                        word_list)
+from cfa_tool.reporting.numbers import (fit_index_text, guides_text, missing, num, p_phrase, p_value, short, signed,
+                                        signed_num, unit, word_list)
 from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
 from cfa_tool.workflows.invariance import CONFIGURAL_INDICES
@@ -1222,7 +1222,7 @@ POWER_ORDINAL = ("The model declares ordinal items, whose fits use the adjusted 
 # ---------------------------------------------------------------- power-simulation
 
 def _percent(share: float) -> str:
-    return "" if share != share else f"{100 * share:+.1f}"
+    return "" if share != share else signed_num(100 * share, 1)
 
 
 def _ordinal_power_lines(result) -> list[str]:

@@ -109,7 +109,7 @@ def test_an_inadmissible_configural_step_comes_before_any_step_that_met_its_test
     assert ("Metric invariance cannot be read as held, though it met its test: it rests on the configural step, "
             "which was not admissible (\u03c7\u00b2(6) = 8.14") in text
     assert ("it met its test as partial invariance (\u03c7\u00b2(4) = 5.38, p = .251, \u0394CFI = -.002, \u0394RMSEA = "
-            "-.002, \u0394SRMR = +.000) but cannot be read as held: it rests on the configural step") in text
+            "-.002, \u0394SRMR = .000) but cannot be read as held: it rests on the configural step") in text
     assert ("Resting on the configural step, which was not admissible, the latent mean differences from the partially "
             "invariant scalar model cannot be read as established") in text
     assert problem < min(text.index(w) for w in ("met its test", "latent mean differences"))

@@ -40,16 +40,21 @@ def test_the_fit_paragraph_names_a_sample_smaller_than_its_model(hs_data):
     assert text.index(said) < text.index("χ²")
 
 
-def test_a_change_that_rounds_to_zero_keeps_its_direction():
+def test_a_change_that_rounds_to_zero_has_no_sign():
     """ΔCFI of -0.0002 (the restricted model fits worse) printed '+.000' in a table and the methods text (new user
-    s14): the sign of the direction stays, and no change at all has none (no leading zero for values bounded by 1:
-    journal style, APA Publication Manual 7th ed., recalled from memory; the signs are this project's rule)."""
-    from cfa_tool.reporting.numbers import signed
+    s14), a wrong sign; then '-.000' and '+.000' stood in invariance tables and the methods text (new-user s19), a
+    sign on a zero no paper prints: a change that rounds to zero has none, whatever its direction, and every other
+    change has its own (no leading zero for values bounded by 1: journal style, APA Publication Manual 7th ed.,
+    recalled from memory; the signs are this project's rule)."""
+    from cfa_tool.reporting.numbers import signed, signed_num
 
-    assert signed(-0.0002) == "-.000"
-    assert signed(0.0002) == "+.000"
-    assert signed(0.0) == ".000"
+    assert signed(-0.0002) == ".000"
+    assert signed(0.0002) == ".000"
+    assert signed(0.0) == ".000" and signed(-0.0) == ".000"
     assert signed(-0.026) == "-.026" and signed(0.035) == "+.035"
+    assert signed(-0.0004, beside=-0.01) == ".000" and signed(-0.0006) == "-.001"
+    assert signed_num(-0.04, 1) == "0.0" and signed_num(0.04, 1) == "0.0"
+    assert signed_num(2.26, 1) == "+2.3" and signed_num(-12.5, 1) == "-12.5"
 
 
 def test_the_rare_categories_advice_of_a_small_ordinal_group_names_the_ways_out():

@@ -334,7 +334,20 @@ def test_much_non_invariance_gets_the_caution():
     assert result.noninvariant_share > 0.25
     # the authors' rule of thumb (about 25% non-invariant parameters; Asparouhov & Muthén 2014, recalled)
     assert any("more than about 25%" in w for w in result.warnings)
-    assert "Caution: " in result.summary()
+    # first in every view, before the title, as every command's problems (new-user trial s19: they stood as
+    # 'Caution:' lines inside the header, and the means table's note named the highest and lowest without a word)
+    from cfa_tool.reporting.align_report import ALIGNED_CAUTION
+    from cfa_tool.reporting.reports import report_of
+
+    report = report_of(result)
+    assert report.notice.heading == ALIGNED_CAUTION and not report.notice.inadmissible
+    assert any("more than about 25%" in line for line in report.notice.lines)
+    assert not any("Caution" in str(line) for line in report.lines)
+    text = result.summary()
+    assert text.index(ALIGNED_CAUTION) < text.index("more than about 25%") < text.index("Alignment across country")
+    means = next(t for t in report.tables if t.key == "aligned_means_0")
+    assert "(an order that may not hold: more than 25% of its loadings and intercepts are non-invariant; see the " \
+           "caution first)" in str(means.note)
 
 
 def test_rows_with_gaps_use_full_information_in_the_configural_model():
