@@ -733,10 +733,14 @@ def _check_group_frees_held_equal(spec: Spec, entries: dict, tied_across_groups)
     change nothing (a free parameter) or leave the group's other parameters of the class scaled apart (a freed
     marker): an error naming the statement, what holds the class equal and the way that exists, the exemption of
     the parameter in every group ('noninvariant'), which the reports name (new-user trial, nineteenth session)."""
+    ladder = {kind for held in INVARIANCE_LEVELS["strict"] for kind in INVARIANCE_CLASSES[held]}
     for ref in spec.freed:
-        if ref.group is None or not tied_across_groups(ref.key()):
+        kind = _entry_kind(entries[(0, *ref.key())])
+        # a step of the invariance ladder before the one that holds the class equal: the later step would refuse it
+        later = spec.ladder_step and kind in ladder
+        if ref.group is None or not (tied_across_groups(ref.key()) or later):
             continue
-        says, claim = _held_by(spec, _entry_kind(entries[(0, *ref.key())]))
+        says, claim = _held_by(spec, kind)
         plain = replace(ref, group=None)
         raise _fail(spec, f"'in group {written_name(ref.group)}: free {plain}' cannot set {plain} apart in group "
                           f"{written_name(ref.group)} alone: {says}, and a parameter freed from that equality in one "
@@ -774,6 +778,9 @@ def _free_without_effect(spec: Spec, ref: ParameterRef, keys: list[tuple], relea
                           and k[2][0] == ref.names[0] and e["origin"] == "scale"), None)
             if scale is not None:
                 why += f" ('{scale['variables'][1]}' sets the scale of '{ref.names[0]}')"
+        elif ref.kind == "mean" and multi:
+            why += (" (a later group's factor mean is estimated where its indicators' loadings and intercepts are held "
+                    "equal across groups)")
         return _fail(spec, f"{ref} is {why}, so 'free' changes nothing: it releases a parameter fixed by default (a "
                            f"factor's marker loading or its mean); remove the statement", ref)
     why = reasons[fixed]

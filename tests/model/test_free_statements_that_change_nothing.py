@@ -63,6 +63,11 @@ def test_a_step_of_the_invariance_ladder_names_the_step():
                                          r"apart in group south alone: the invariance ladder holds the intercepts "
                                          r"equal across groups from its scalar step on"):
         build_parameter_table(spec, GROUPS)
+    # at the configural step too, where the intercept is free already: the ladder's later step is what it is about
+    configural = spec_of_level(spec, (), ())
+    with pytest.raises(ModelError, match=r"the invariance ladder holds the intercepts equal across groups from its "
+                                         r"scalar step on"):
+        build_parameter_table(configural, GROUPS)
 
 
 def test_the_way_out_frees_the_parameter_in_every_group():
