@@ -246,7 +246,8 @@ def just_identified_higher_order(spec: Spec, table: ParameterTable) -> tuple[str
         for i in f.indicators:
             if i.text in latent:
                 explained[i.text] = explained.get(i.text, 0) + 1
-    named = {n for r in all_refs(spec) if r.kind != "loading" or r.names[0] in explained for n in r.names}
+    # every name a statement reads other than an item's loading (a loading on a factor, a variance, a mean, ...)
+    named = {n for r in all_refs(spec) if r.kind != "loading" or r.names[-1] in latent for n in r.names}
     named |= {n.text for p in spec.covary + spec.uncorrelated for n in (p.first, p.second)}
     named |= {n.text for s in spec.scaling for n in s.factors}
     ordinal = {}
