@@ -733,19 +733,20 @@ def _check_group_frees_held_equal(spec: Spec, entries: dict, tied_across_groups)
     change nothing (a free parameter) or leave the group's other parameters of the class scaled apart (a freed
     marker): an error naming the statement, what holds the class equal and the way that exists, the exemption of
     the parameter in every group ('noninvariant'), which the reports name (new-user trial, nineteenth session)."""
-    ladder = {kind for held in INVARIANCE_LEVELS["strict"] for kind in INVARIANCE_CLASSES[held]}
     for ref in spec.freed:
-        kind = _entry_kind(entries[(0, *ref.key())])
-        # a step of the invariance ladder before the one that holds the class equal: the later step would refuse it
-        later = spec.ladder_step and kind in ladder
-        if ref.group is None or not (tied_across_groups(ref.key()) or later):
-            continue
-        says, claim = _held_by(spec, kind)
-        plain = replace(ref, group=None)
-        raise _fail(spec, f"'in group {written_name(ref.group)}: free {plain}' cannot set {plain} apart in group "
-                          f"{written_name(ref.group)} alone: {says}, and a parameter freed from that equality in one "
-                          f"group while the other groups' stay equal is not available; let it differ in every group "
-                          f"with 'noninvariant {plain}' (the reports name it), or remove the statement", ref)
+        if ref.group is not None and tied_across_groups(ref.key()):
+            raise _set_apart_in_one_group(spec, ref, _entry_kind(entries[(0, *ref.key())]))
+
+
+def _set_apart_in_one_group(spec: Spec, ref: ParameterRef, kind: str) -> ModelError:
+    """The error of an 'in group' 'free' of a parameter of ``kind`` held equal across groups (or, at a step of the
+    invariance ladder, held equal at a later step)."""
+    says, _ = _held_by(spec, kind)
+    plain = replace(ref, group=None)
+    return _fail(spec, f"'in group {written_name(ref.group)}: free {plain}' cannot set {plain} apart in group "
+                       f"{written_name(ref.group)} alone: {says}, and a parameter freed from that equality in one "
+                       f"group while the other groups' stay equal is not available; let it differ in every group "
+                       f"with 'noninvariant {plain}' (the reports name it), or remove the statement", ref)
 
 
 def _free_without_effect(spec: Spec, ref: ParameterRef, keys: list[tuple], released: set[tuple], entries: dict,
@@ -769,6 +770,11 @@ def _free_without_effect(spec: Spec, ref: ParameterRef, keys: list[tuple], relea
 
     if any(frees(k) for k in keys):
         return None
+    kind = _entry_kind(entries[keys[0]])
+    if spec.ladder_step and ref.group is not None and kind in {
+            k for held in INVARIANCE_LEVELS["strict"] for k in INVARIANCE_CLASSES[held]}:
+        # a step of the invariance ladder before the one that holds the class equal: what the statement is about
+        return _set_apart_in_one_group(spec, ref, kind)
     reasons = [_why_not_free(spec, k, entries, effects, fixed_by, tied_to, multi, group_labels) for k in keys]
     fixed = next((i for i, r in enumerate(reasons) if r is not None), None)
     if fixed is None:
