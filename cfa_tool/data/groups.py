@@ -178,9 +178,13 @@ def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], sour
     parts, without = group_rows(frame, column, source, reference)
     where = [f"'{label}' of {column}" for label, _ in parts]
     values = [numeric_columns(part, names, f"{source} (group {group})") for (_, part), group in zip(parts, where)]
-    small = too_small_groups([label for label, _ in parts], values, missing)
+    labels = [label for label, _ in parts]
+    small = too_small_groups(labels, values, missing)
     if small:
-        refuse_small_groups(small, frame, column, source, sum(len(p) for _, p in parts))
+        left_out = {g.label for g in small}
+        complete_only = small[0].complete_only
+        refuse_small_groups(small, column, source, sum(usable_rows(v, complete_only)
+                                                       for label, v in zip(labels, values) if label not in left_out))
     out = [(label, sample_moments(part, names, source, group=group, missing=missing, weights=weights, values=v))
            for (label, part), group, v in zip(parts, where, values)]
     # each row in one group at most (errors.check_rows_counted)
@@ -226,13 +230,19 @@ def too_small_groups(labels: list[str], values: list[np.ndarray], missing: Missi
     complete_only = missing != MissingData.FULL_INFORMATION
     found = []
     for label, v in zip(labels, values):
-        gaps = np.isnan(v)
-        if gaps.all():  # no answer at all in the group: the moments say so in their own words
+        if np.isnan(v).all():  # no answer at all in the group: the moments say so in their own words
             continue
-        n = int((~gaps.any(axis=1)).sum() if complete_only else (~gaps.all(axis=1)).sum())
+        n = usable_rows(v, complete_only)
         if n <= v.shape[1]:
             found.append(SmallGroup(label, n, v.shape[1], complete_only))
     return tuple(found)
+
+
+def usable_rows(values: np.ndarray, complete_only: bool) -> int:
+    """The rows of ``values`` (rows x model variables) an analysis uses: complete rows with listwise deletion, rows
+    with any answer with full-information ML."""
+    gaps = np.isnan(values)
+    return int((~gaps.any(axis=1)).sum() if complete_only else (~gaps.all(axis=1)).sum())
 
 
 _PLAIN_COLUMN = re.compile(r'[^\s=!<>"\']+')
@@ -259,12 +269,13 @@ def leaving_out(column: str, label: str) -> str | None:
     return None
 
 
-def small_group_words(small: tuple[SmallGroup, ...], frame: pd.DataFrame, column: str, grouped: int,
-                      named: bool = True) -> tuple[str, str]:
+def small_group_words(small: tuple[SmallGroup, ...], column: str, kept: int, named: bool = True) -> tuple[str, str]:
     """(what, remedy) of groups too small to analyse (:func:`too_small_groups`) in a refusal's or a check's words: the
     groups, their rows and the rule; the exact row filter that leaves them out, then joining each with a similar
-    group.  ``grouped``: the rows of ``frame`` with a group label; ``named`` False: one group, which the words
-    beside them name (a check's caution of that group)."""
+    group.  ``kept``: the rows of the other groups that the advised run analyses (complete rows with listwise
+    deletion, rows with any answer with full-information ML: :func:`usable_rows`; new-user trial s19, which was
+    promised the other groups' 855 rows and analysed their 251 complete ones); ``named`` False: one group, which the
+    words beside them name (a check's caution of that group)."""
     one = len(small) == 1
     only = "only " if small[0].rows else ""
     if one and not named:
@@ -277,23 +288,22 @@ def small_group_words(small: tuple[SmallGroup, ...], frame: pd.DataFrame, column
         said = (f"groups {listed} and '{printable(small[-1].label)}' ({small[-1].rows_words()}) of "
                 f"'{printable(column)}' have too few rows for the model's {small[0].variables} variables")
     filters = [leaving_out(column, g.label) for g in small]
-    keys = group_keys(frame[column])
-    kept = grouped - int(keys.isin([g.label for g in small]).sum())
     them = "it" if one else "them"
+    rows = SmallGroup("", kept, 0, small[0].complete_only).rows_words()  # '251 complete rows'
+    rows = "no rows" if not kept else rows
     leave = (f"leave {them} out with {Option.KEEP.given([printable(f) for f in filters])}" if all(filters) else
              f"leave {them} out with a row filter ({Option.KEEP}) on '{printable(column)}'")
     return (f"{said}, and a group needs more rows than variables (a factor analysis far more)",
-            f"{leave} (the other groups' {kept:,} rows stay), or join {'it' if one else 'each'} with a similar group "
+            f"{leave} (the other groups' {rows} stay), or join {'it' if one else 'each'} with a similar group "
             f"by recoding '{printable(column)}' in a copy of the data file")
 
 
-def refuse_small_groups(small: tuple[SmallGroup, ...], frame: pd.DataFrame, column: str, source: str,
-                        grouped: int) -> None:
+def refuse_small_groups(small: tuple[SmallGroup, ...], column: str, source: str, kept: int) -> None:
     """Raise the one-line refusal of groups too small to analyse (:func:`small_group_words`), holding each group's
     own words for a check's findings."""
-    said, remedy = small_group_words(small, frame, column, grouped)
+    said, remedy = small_group_words(small, column, kept)
     raise SmallGroupsError(f"{source}: {said}: {remedy}", small,
-                           tuple(small_group_words((g,), frame, column, grouped, named=False) for g in small))
+                           tuple(small_group_words((g,), column, kept, named=False) for g in small))
 
 
 def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,

@@ -71,6 +71,9 @@ class ModelDescription:
     # the group labels of a model fitted in groups (empty for one group): the texts that name a group write it among
     # them (language.names.written_group)
     groups: tuple[str, ...] = ()
+    # higher-order factors whose part of the model is just-identified (:func:`just_identified_higher_order`): the fit
+    # equals that of their factors correlated freely and does not test them
+    just_identified_higher_order: tuple[str, ...] = ()
 
     def to_dict(self) -> dict:
         keyed = {"reverse_keyed": [{"items": list(items), "lowest": lo, "highest": hi}
@@ -78,7 +81,9 @@ class ModelDescription:
         return keyed | {
             "exploratory_blocks": [{"factors": list(f), "items": list(i), "rotation": r} for f, i, r in self.exploratory],
             "first_order_factors": list(self.first_order),
-            "higher_order_factors": [{"factor": f, "explains": list(lower)} for f, lower in self.higher_order],
+            "higher_order_factors": [{"factor": f, "explains": list(lower),
+                                      "just_identified": f in self.just_identified_higher_order}
+                                     for f, lower in self.higher_order],
             "indicators": list(self.indicators),
             "cross_loadings": [{"item": x, "factors": list(fs)} for x, fs in self.cross_loadings],
             "residual_covariances": [list(p) for p in self.residual_covariances],
@@ -211,7 +216,60 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
         exploratory=tuple((b.factor_names, b.item_names, b.rotation.text) for b in spec.exploratory),
         reverse_keyed=tuple((tuple(i.text for i in k.items), k.minimum, k.maximum) for k in spec.reversed),
         groups=tuple(table.groups) if table.multigroup else (),
+        just_identified_higher_order=just_identified_higher_order(spec, table),
     )
+
+
+def just_identified_higher_order(spec: Spec, table: ParameterTable) -> tuple[str, ...]:
+    """The higher-order factors whose part of the model is just-identified: the model with the factor taken out and
+    the factors it explains correlated freely has as many free parameters (in every group, with what the model holds
+    equal across groups).  The higher-order model is nested in that one (it restricts the first-order factors'
+    covariance matrix, which the other leaves free), so with no degree of freedom between them the two fit alike
+    and the fit says nothing of the higher-order structure: a second-order factor over exactly three first-order
+    factors, 3 loadings (one fixed for its scale) and its variance and 3 disturbances for 3 variances and 3
+    covariances (Rindskopf & Rose 1988; Brown 2015, ch. 8, recalled from memory).
+
+    Checked only where taking the factor out leaves every other statement's meaning alone: a factor explaining
+    factors only, explained by none, whose factors no other factor explains and no statement names by their variance,
+    covariance or mean (nor the factor itself), without exploratory blocks."""
+    from dataclasses import replace
+
+    from cfa_tool.errors import ModelError
+    from cfa_tool.language.checks import all_refs
+    from cfa_tool.model.parameters import build_parameter_table
+
+    if spec.exploratory:
+        return ()
+    latent = set(spec.factor_names)
+    explained: dict[str, int] = {}
+    for f in spec.factors:
+        for i in f.indicators:
+            if i.text in latent:
+                explained[i.text] = explained.get(i.text, 0) + 1
+    # every name a statement reads other than an item's loading (a loading on a factor, a variance, a mean, ...)
+    named = {n for r in all_refs(spec) if r.kind != "loading" or r.names[-1] in latent for n in r.names}
+    named |= {n.text for p in spec.covary + spec.uncorrelated for n in (p.first, p.second)}
+    named |= {n.text for s in spec.scaling for n in s.factors}
+    ordinal = {}
+    for p in table.parameters:
+        if p.kind == "threshold" and p.group == 0:
+            ordinal[p.variables[0]] = ordinal.get(p.variables[0], 0) + 1
+    out = []
+    for f in spec.factors:
+        lower = [i.text for i in f.indicators]
+        h = f.name.text
+        if (h in explained or not all(x in latent for x in lower) or any(explained[x] > 1 for x in lower)
+                or named & {h, *lower}):
+            continue
+        alternative = replace(spec, factors=tuple(g for g in spec.factors if g is not f))
+        try:
+            other = build_parameter_table(alternative, table.groups if table.multigroup else None,
+                                          mean_structure=table.mean_structure, ordinal=ordinal or None)
+        except ModelError:
+            continue
+        if other.n_free == table.n_free:
+            out.append(h)
+    return tuple(out)
 
 
 def _scales(spec: Spec, table: ParameterTable, group: int = 0) -> tuple[FactorScale, ...]:

@@ -270,11 +270,13 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
 
     # ---- the user's fixes and frees
     freed: set[tuple] = set()
+    released: set[tuple] = set()  # entries a 'free' statement frees (fixed without it): the others are refused below
     for ref in refs_in_order(spec.freed):
         for g in groups_of(ref):
             freed.add((g, *ref.key()))
             if entries[(g, *ref.key())]["fixed"] is not None and ref.kind == "mean":
                 entries[(g, *ref.key())].update(fixed=None, origin="user")
+                released.add((g, *ref.key()))
     fixed_settings = [(ref, s.value) for s in spec.fixed for ref in s.refs]
     block_factors = spec.exploratory_factors
     fixed_by: dict[tuple, ParameterRef] = {}  # the 'fix' that applies to each entry a 'fix' statement fixes
@@ -300,6 +302,9 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             return multi and G > 1 and "threshold" in invariant and (kind, names[:1]) not in exceptions
         return multi and G > 1 and _entry_kind(entries[(0, *kind_key)]) in invariant and kind_key not in exceptions
 
+    if multi:
+        _check_group_frees_held_equal(spec, entries, tied_across_groups)
+
     # ---- the automatic scale of each factor in each group
     reverse_keyed = keyed_pairs(spec)
     effects: dict[tuple, list[tuple]] = {}  # the tied loading -> the other loadings of its factor
@@ -322,8 +327,12 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                 if not candidates:
                     raise _scale_error(spec, f, "every loading of it is freed or fixed at 0, so no indicator can set "
                                                 "its scale")
-                marker, value = marker_of(candidates, {x for g_, x in reverse_keyed if g_ == f})
+                keyed = {x for g_, x in reverse_keyed if g_ == f}
+                marker, value = marker_of(candidates, keyed)
                 entries[marker].update(fixed=value, origin="scale")
+                # a freed loading that would have been the marker: its 'free' passes the scale to the next indicator
+                released.update(k for k in load_keys if k in freed
+                                and marker_of([c for c in load_keys if c not in freed or c == k], keyed)[0] == k)
             elif method == "variance":
                 if var_key in freed:
                     raise _scaling_refused(spec, f, f"{_scaling_words(spec, f)} fixes the variance of '{f}' at 1, "
@@ -442,8 +451,10 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
 
     def no_effect(ref: ParameterRef, statement: Unapplied) -> ModelError:
         factor = ref.names[0]
-        freed = (f"in group {written_name(ref.group)}: free {replace(ref, group=None)}" if ref.group is not None
-                 else f"free {ref}")  # a statement as the model language writes it
+        # a statement as the model language writes it (a loading held equal across groups is freed in every group:
+        # one group's alone is refused, _check_group_frees_held_equal)
+        freed = (f"in group {written_name(ref.group)}: free {replace(ref, group=None)}"
+                 if ref.group is not None and not tied_across_groups(ref.key()) else f"free {replace(ref, group=None)}")
         how = (f"free it ('{freed}'; the next indicator then sets the scale) or scale '{factor}' another way"
                if ref.kind == "loading" else f"scale '{factor}' by a marker instead ('scale {written_name(factor)} by marker')")
         return _fail(spec, f"{ref} is fixed to set the scale of '{factor}', so {statement.phrase} on it has no effect; "
@@ -472,6 +483,11 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         return _fail(spec, f"{ref} is {why}, so {statement.phrase} on it has no effect; remove the {statement.removed}"
                            f"{' or the tie' if first_key in tied_to else ''}{how}", ref)
 
+    for ref in spec.freed:
+        error = _free_without_effect(spec, ref, [(g, *ref.key()) for g in groups_of(ref)], released, entries, effects,
+                                     fixed_by, tied_to, multi, group_labels, tied_across_groups, lat_ix, ordinal)
+        if error is not None:
+            raise error
     for setting in spec.starts:
         for ref in setting.refs:
             error = cannot_apply(ref, Unapplied.START)
@@ -686,28 +702,103 @@ def _check_group_fixes_held_equal(spec: Spec, fixed_by: dict, entries: dict, tie
         value = entries[key]["fixed"]
         if all(entries[(h, *key[1:])]["fixed"] == value for h in range(G)):
             continue
-        kind = "threshold" if ref.kind == "threshold" else _entry_kind(entries[key])
-        held = next(c for c, kinds in INVARIANCE_CLASSES.items() if kind in kinds)
-        words = equality_words([held])[0]
-        level = next(name for name, classes in INVARIANCE_LEVELS.items() if held in classes)
-        stated = next((n for n in spec.equal_across_groups if GROUP_EQUALITY_WORDS[n.text] == held), None)
-        if spec.ladder_step:
-            says = f"the invariance ladder holds the {words} equal across groups from its {level} step on"
-            claim = "the models from that step on would not be the invariance the ladder reports"
-        elif stated is not None:
-            says = f"'equal across groups: {stated.text}' (line {stated.location.line}) holds them equal across groups"
-            claim = "the model would not hold them equal as it says"
-        else:
-            where = spec.equalities_location
-            says = (f"'invariance {spec.invariance_level}'" + (f" (line {where.line})" if where is not None else "")
-                    + f" holds the {words} equal across groups")
-            claim = f"the model would not be the {spec.invariance_level} invariance it is said to be"
+        says, claim = _held_by(spec, "threshold" if ref.kind == "threshold" else _entry_kind(entries[key]))
         plain = replace(ref, group=None)
         raise _fail(spec, f"{ref} is fixed at {value:g} in that group alone, but {says}: the other groups' {plain} "
                           f"would be left free, and {claim}; "
                           f"fix it in every group (the 'fix' statement without 'in group') to hold it "
                           f"equal at {value:g}, or exempt it ('noninvariant {plain}') so that it may differ across "
                           f"groups and the report names it", ref)
+
+
+def _held_by(spec: Spec, kind: str) -> tuple[str, str]:
+    """What holds parameters of ``kind`` equal across groups, in words ('invariance scalar' (line 6) holds the
+    intercepts equal across groups), and what the model would not be were one group's parameter set apart."""
+    held = next(c for c, kinds in INVARIANCE_CLASSES.items() if kind in kinds)
+    words = equality_words([held])[0]
+    level = next((name for name, classes in INVARIANCE_LEVELS.items() if held in classes), None)
+    stated = next((n for n in spec.equal_across_groups if GROUP_EQUALITY_WORDS[n.text] == held), None)
+    if spec.ladder_step:
+        return (f"the invariance ladder holds the {words} equal across groups from its {level} step on",
+                "the models from that step on would not be the invariance the ladder reports")
+    if stated is not None:
+        return (f"'equal across groups: {stated.text}' (line {stated.location.line}) holds them equal across groups",
+                "the model would not hold them equal as it says")
+    where = spec.equalities_location
+    return (f"'invariance {spec.invariance_level}'" + (f" (line {where.line})" if where is not None else "")
+            + f" holds the {words} equal across groups",
+            f"the model would not be the {spec.invariance_level} invariance it is said to be")
+
+
+def _check_group_frees_held_equal(spec: Spec, entries: dict, tied_across_groups) -> None:
+    """A 'free' for one group ('in group audit: free intercept(x2)') of a parameter held equal across groups
+    ('invariance scalar', 'equal across groups: intercepts', a step of the invariance ladder): a researcher means
+    partial invariance in that group, that group's parameter its own and the other groups' still equal.  The
+    parameter table ties every group to the first and has no tie among some groups only, so the statement would
+    change nothing (a free parameter) or leave the group's other parameters of the class scaled apart (a freed
+    marker): an error naming the statement, what holds the class equal and the way that exists, the exemption of
+    the parameter in every group ('noninvariant'), which the reports name (new-user trial, nineteenth session)."""
+    for ref in spec.freed:
+        if ref.group is not None and tied_across_groups(ref.key()):
+            raise _set_apart_in_one_group(spec, ref, _entry_kind(entries[(0, *ref.key())]))
+
+
+def _set_apart_in_one_group(spec: Spec, ref: ParameterRef, kind: str) -> ModelError:
+    """The error of an 'in group' 'free' of a parameter of ``kind`` held equal across groups (or, at a step of the
+    invariance ladder, held equal at a later step)."""
+    says, _ = _held_by(spec, kind)
+    plain = replace(ref, group=None)
+    return _fail(spec, f"'in group {written_name(ref.group)}: free {plain}' cannot set {plain} apart in group "
+                       f"{written_name(ref.group)} alone: {says}, and a parameter freed from that equality in one "
+                       f"group while the other groups' stay equal is not available; let it differ in every group "
+                       f"with 'noninvariant {plain}' (the reports name it), or remove the statement", ref)
+
+
+def _free_without_effect(spec: Spec, ref: ParameterRef, keys: list[tuple], released: set[tuple], entries: dict,
+                         effects: dict, fixed_by: dict, tied_to: dict, multi: bool, group_labels: tuple[str, ...],
+                         tied_across_groups, lat_ix: dict, ordinal: dict) -> ModelError | None:
+    """The error for a 'free' statement that changes nothing (None when it frees something): the parameter is free
+    already in every group it names (only a factor's marker loading, a factor's mean and, with the variance
+    scaling, a factor's variance are fixed by default), or it stays fixed whatever the statement says (the loading
+    effects coding gives, an ordinal item's latent response fixed for its origin or unit, a tie to a fixed
+    parameter).  As a start value or a bound on a fixed parameter is an error, so is this: the model listing shows
+    the line, and a reader takes it for part of the model (new-user trial, nineteenth session)."""
+    factors = {f.name.text: f for f in spec.factors}
+
+    def frees(key: tuple) -> bool:
+        if key not in released:
+            return False
+        g, kind, names = key
+        # a later group's factor mean that its indicators' equal intercepts identify is free without the statement
+        return not (kind == "mean" and multi and g > 0
+                    and _mean_identified(spec, factors[names[0]], entries, tied_across_groups, lat_ix, ordinal))
+
+    if any(frees(k) for k in keys):
+        return None
+    kind = _entry_kind(entries[keys[0]])
+    if spec.ladder_step and ref.group is not None and kind in {
+            k for held in INVARIANCE_LEVELS["strict"] for k in INVARIANCE_CLASSES[held]}:
+        # a step of the invariance ladder before the one that holds the class equal: what the statement is about
+        return _set_apart_in_one_group(spec, ref, kind)
+    reasons = [_why_not_free(spec, k, entries, effects, fixed_by, tied_to, multi, group_labels) for k in keys]
+    fixed = next((i for i, r in enumerate(reasons) if r is not None), None)
+    if fixed is None:
+        why = "free already"
+        if ref.kind == "loading":
+            scale = next((e for k, e in entries.items() if k[0] == keys[0][0] and k[1] == "loading"
+                          and k[2][0] == ref.names[0] and e["origin"] == "scale"), None)
+            if scale is not None:
+                why += f" ('{scale['variables'][1]}' sets the scale of '{ref.names[0]}')"
+        elif ref.kind == "mean" and multi:
+            why += (" (a later group's factor mean is estimated where its indicators' loadings and intercepts are held "
+                    "equal across groups)")
+        return _fail(spec, f"{ref} is {why}, so 'free' changes nothing: it releases a parameter fixed by default (a "
+                           f"factor's marker loading or its mean); remove the statement", ref)
+    why = reasons[fixed]
+    if multi and len(keys) > 1:
+        why += (f" in group {group_labels[keys[fixed][0]]}" if any(r is None for r in reasons)
+                else f" (in group {group_labels[keys[fixed][0]]}, and fixed in every group)")
+    return _fail(spec, f"{ref} is {why}, so 'free' on it has no effect; remove the statement", ref)
 
 
 def _invariant_kinds(spec: Spec) -> set[str]:

@@ -1074,6 +1074,13 @@ def methods_paragraph(result) -> str:
     if small:  # the report's first caution, before the fit (new user s14)
         parts.append(small)
     parts.append(_fit_sentence(result))
+    untested = [(h, lower) for h, lower in (d.higher_order if d is not None else ())
+                if h in getattr(d, "just_identified_higher_order", ())]
+    if untested and result.fit.df > 0:  # right after the fit it qualifies
+        parts.append(" ".join(f"The part of the model above the first-order factors, the higher-order factor "
+                              f"{_name(h)} explaining {_names(lower)}, is just-identified, so this fit equals that of "
+                              f"those factors correlated freely and does not test the higher-order structure "
+                              f"(Rindskopf & Rose, 1988)." for h, lower in untested))
     methods = set(getattr(result.description, "method_factors", ()) or ())
     item_loadings = [r for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed
                      and r.variables[0] not in methods]
@@ -1425,7 +1432,9 @@ def comparison_paragraph(comparison) -> str:
                          ", so its p-value is only approximate.")
         parts.append(sentence)
     for n in comparison.not_nested:
-        after = " and were compared by AIC and BIC" if n.information_criteria else ""
+        after = ("; as equivalent models fit any data equally well, the data cannot choose between them, and the "
+                 "choice rests on theory (MacCallum, Wegener, Uchino, & Fabrigar, 1993)" if n.equivalent
+                 else " and were compared by AIC and BIC" if n.information_criteria else "")
         parts.append(f"{label[n.first]} and {label[n.second]} were not tested against each other ({n.reason}){after}.")
     if pairs and first.method.ordinal:
         parts.append("Changes in CFI and RMSEA were not used: each model's indices come from its own adjusted "

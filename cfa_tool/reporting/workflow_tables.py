@@ -248,6 +248,15 @@ def _design_lines(result) -> tuple[str, ...]:
     return (design_sentence(result),) if design is not None else ()
 
 
+def equivalent_models(information_criteria: bool) -> str:
+    """The advice on a pair of probably equivalent models (workflows.nesting.probably_equivalent), in place of AIC and
+    BIC, which are equal for them (equal likelihoods, equal numbers of parameters)."""
+    return ("Equivalent models fit any data equally well" + (" (their AIC and BIC are equal too)" if information_criteria
+                                                             else "")
+            + ", so these data cannot choose between them: the choice rests on theory (MacCallum, Wegener, Uchino & "
+              "Fabrigar 1993).")
+
+
 BOUNDARY_CAUTION = ("values on the boundary of what the general model allows, so the chi-square difference does not "
                     "follow the usual chi-square distribution (Self & Liang 1987; Stoel, Garre, Dolan & van den "
                     "Wittenboer 2006)")
@@ -426,7 +435,8 @@ def comparison_report(comparison) -> Report:
     if any(t.method is DifferenceMethod.SATORRA_BENTLER_2010 and not t.not_computed for t in comparison.tests):
         notes.append(READ_POSITIVE)
     for n in comparison.not_nested:
-        advice = " Compare them by AIC and BIC (lower is better)." if n.information_criteria else ""
+        advice = (f" {equivalent_models(n.information_criteria)}" if n.equivalent
+                  else " Compare them by AIC and BIC (lower is better)." if n.information_criteria else "")
         notes.append(f"Not tested: {n.first} and {n.second}: {n.reason}.{advice}")
     if comparison.tests:
         notes.append(ordinal_decision_note(any(t.boundary for t in comparison.tests)) if ordinal

@@ -34,7 +34,7 @@ from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import ORDINAL_FIT_CHANGE_WHY, FitTest, MissingData
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.nesting import (DifferenceTest, boundary_of, difference_test, is_nested,
-                                       scaled_difference_tests, scaling_at_restricted)
+                                       probably_equivalent, scaled_difference_tests, scaling_at_restricted)
 from cfa_tool.views import Presentable
 
 
@@ -46,6 +46,9 @@ class NotNested:
     reason: str
     # AIC and BIC of the two can be compared: both maximum-likelihood fits of the same variables and rows
     information_criteria: bool = True
+    # probably equivalent models (nesting.probably_equivalent): they fit any data equally well, so the data cannot
+    # choose between them (their AIC and BIC are equal too)
+    equivalent: bool = False
 
 
 @dataclass(frozen=True, eq=False)
@@ -95,7 +98,8 @@ class Comparison(Presentable):
             "change_guides_apply": self.change_guides_apply,
             "design": self.results[0].design.to_dict() if self.results[0].design is not None else None,
             "not_nested": [dict(first=n.first, second=n.second, reason=n.reason,
-                                information_criteria_comparable=n.information_criteria) for n in self.not_nested],
+                                information_criteria_comparable=n.information_criteria,
+                                equivalent=n.equivalent) for n in self.not_nested],
             # how the models coded answers recorded as words (one coding for all: refuse_different_codings), as fit's
             # JSON has it
             **({"data": {"answer_coding": coding_json(self.results[0].data.answer_coding)}}
@@ -376,7 +380,8 @@ def _each_pair(names, results, test_pair, specs, likelihood: bool) -> tuple[list
             else:
                 why = _no_information_criteria(results[a], results[b], likelihood)
                 not_nested.append(NotNested(names[a], names[b], reason + (f"; {why}" if why else ""),
-                                            information_criteria=not why))
+                                            information_criteria=not why,
+                                            equivalent=probably_equivalent(results[a], results[b])))
     return tests, not_nested
 
 

@@ -129,7 +129,7 @@ def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications
     weighted by default) with robust standard errors, and the share of replications whose adjusted test rejects
     the true model is reported beside the power."""
     from cfa_tool.pipeline.inputs import load_spec, ordinal_estimator_option, without_exploratory_blocks
-    from cfa_tool.workflows.simulation import with_categories
+    from cfa_tool.workflows.simulation import refuse_set_residual_variances_first, with_categories
 
     spec = without_exploratory_blocks(load_spec(spec), "power-simulation",
                                       "its power would be of the block's unrotated loadings, which no report shows")
@@ -147,6 +147,7 @@ def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications
         if n * p > check.MAX_SIMULATED_CELLS:
             raise OptionError(f"{n:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values per "
                               f"simulated data set; plan with a smaller sample size")
+    refuse_set_residual_variances_first(spec, categories)
     population = with_categories(population_from_spec(spec, population), spec, categories, "power-simulation")
     if len(population.theta) == 0:  # nothing is estimated, so there is no test whose power to count
         raise OptionError("power-simulation counts how often each free parameter's test rejects zero, and the model "

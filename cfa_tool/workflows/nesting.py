@@ -442,10 +442,20 @@ def same_degrees_of_freedom(first: FitResult, second: FitResult, reproduces: Cal
                 f"{'its bound' if len(held_words) == 1 else 'their bounds'} in the {which} model: the {which} is a "
                 f"restricted form of the other under an inequality restriction, which a test by degrees of freedom "
                 f"cannot judge, both having the same degrees of freedom")
-    same = abs(first.fit.chi_square - second.fit.chi_square) < 1e-6 * max(1.0, second.fit.chi_square)
     return "the models have the same degrees of freedom" + (
-        " and the same chi-square: they are probably equivalent models" if same
+        " and the same chi-square: they are probably equivalent models" if probably_equivalent(first, second)
         else ", so neither is a restricted form of the other")
+
+
+def probably_equivalent(first: FitResult, second: FitResult) -> bool:
+    """Whether two converged fits of the same rows are probably equivalent models: the same degrees of freedom and
+    the same chi-square (to 1e-6 of it).  Equivalent models reproduce any data equally well (MacCallum, Wegener,
+    Uchino & Fabrigar 1993), so no test and no information criterion (equal likelihoods and equal numbers of
+    parameters give equal AIC and BIC) can choose between them: the one rule of the reason compare gives and of its
+    advice."""
+    if first.fit is None or second.fit is None or first.fit.df != second.fit.df:
+        return False
+    return abs(first.fit.chi_square - second.fit.chi_square) < 1e-6 * max(1.0, second.fit.chi_square)
 
 
 def implied_moments(result: FitResult) -> list[tuple[str | None, SampleMoments]]:

@@ -476,6 +476,16 @@ def _coding_error(spec: Spec, item: str, what: str) -> ModelError:
     return ModelError(what.replace("{origin}", coding.origin), coding.location, spec.source_line(coding.location))
 
 
+def refuse_set_residual_variances_first(spec: Spec, categories: int | None) -> None:
+    """The rule on residual variances of items cut into categories (:func:`with_categories`) checked before the
+    population is built, when the model or ``categories`` declares items ordinal: its words say why such a statement
+    cannot apply, where the parameter table would only say that a 'free' of the residual variance changes nothing."""
+    if categories is not None or spec.ordinal or spec.answers:
+        from cfa_tool.pipeline.ordinal import refuse_set_residual_variances
+
+        refuse_set_residual_variances(spec)
+
+
 def with_categories(population: Population, spec: Spec, categories: int | None,
                     command: str = "simulate") -> Population:
     """The population with thresholds for its ordinal items: those of an earlier ordinal fit, or equally
@@ -618,6 +628,7 @@ def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing
     if n * p > check.MAX_SIMULATED_CELLS:
         raise OptionError(f"{n:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values; "
                           f"simulate fewer rows at a time")
+    refuse_set_residual_variances_first(spec, categories)
     population = with_categories(population_from_spec(spec, population), spec, categories, "simulate")
     rng = np.random.default_rng(seed)
     rows = simulate_rows(population.sigma, n, rng)
