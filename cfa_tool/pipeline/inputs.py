@@ -31,6 +31,7 @@ from cfa_tool.data.non_answers import also_no_answer, beyond_scale, non_answer_c
 from cfa_tool.data.descriptives import few_category_items, few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
+from cfa_tool.data.notes_rows import drop_notes_lines
 from cfa_tool.data.readers import (LoadedData, blank_text_as_missing, drop_blank_rows,
                                    first_data_option, read_data, with_no_answers_read)
 from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame, renamed_hint
@@ -167,7 +168,9 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
                               f"data are a data frame, whose rows are all data; leave it out")
         frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
         frame = renamed_frame(frame, renames, DATA_FRAME, rename_option)
-        frame, blank = drop_blank_rows(frame, DATA_FRAME)  # as the readers leave them out
+        frame, notes_lines = drop_notes_lines(frame, DATA_FRAME)  # the readers' rules: notes lines under the data,
+        frame, blank = drop_blank_rows(frame, DATA_FRAME)  # then blank rows
+        blank = notes_lines + blank
         renamed = (rename_note(renames, DATA_FRAME, rename_option),) if renames else ()
         by_position = row_naming(frame) is RowNaming.POSITION  # indexed by position: the caller's labels kept
         return with_no_answers_read(LoadedData(frame, DATA_FRAME, notes=renamed + blank, renamed=renames,
