@@ -54,7 +54,9 @@ def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
                         "separated by commas, or the option repeated; every report says so")
     if filters:
         p.add_argument("--keep", metavar="FILTER", action="append", default=[],
-                       help="keep only rows that meet COLUMN OPERATOR VALUE, e.g. 'district = north' (repeatable)")
+                       help="keep only rows that meet COLUMN OPERATOR VALUE, e.g. 'district = north', or whose value is "
+                            "one of a list, or none of it: 'district in north, south', 'id not in R0601, R0602' "
+                            "(a value that holds a comma in double quotes); repeatable")
         from cfa_tool.commands.common import add_half_option
 
         add_half_option(p)

@@ -612,12 +612,14 @@ def _pairs_by_group(result) -> str:
 
 def _filtered(data, file: str = "the data file") -> str:
     """' of the 301 rows in the data file, those where school was Pasteur': the rows the row filters (--keep) chose,
-    each filter worded by RowFilter.in_words ('' without filters); ``file``: the file's words (replicate's two files
+    each filter worded by RowFilter.in_words, several '!=' of one column as one clause (data.filters.filters_in_words;
+    '' without filters); ``file``: the file's words (replicate's two files
     are named)."""
     if not data.row_filters:
         return ""
-    return (f" of the {data.rows_in_file} rows in {file}, those where "
-            f"{_list([f.in_words() for f in data.row_filters])}")
+    from cfa_tool.data.filters import filters_in_words
+
+    return f" of the {data.rows_in_file} rows in {file}, those where {_list(filters_in_words(data.row_filters))}"
 
 
 def range_restriction_sentence(filters, analysed, factor_items: dict | None = None, where: str = "") -> str:

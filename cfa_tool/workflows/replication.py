@@ -776,7 +776,7 @@ class SplitRows:
         if not self.filters:
             return ""
         which = "filter" if len(self.filters) == 1 else "filters"
-        return (f" kept by the row {which} {', '.join(repr(f.text) for f in self.filters)} (of the "
+        return (f" kept by the row {which} {', '.join(repr(str(f)) for f in self.filters)} (of the "
                 f"{self.rows_in_file} rows in the file)")
 
 
