@@ -62,6 +62,17 @@ def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
         add_half_option(p)
 
 
+def add_id_option(p: argparse.ArgumentParser) -> None:
+    """--id, the one definition for every command that names rows (fit, check, compare, invariance, replicate,
+    scores, bootstrap, cutoffs, align; new-user trial s19: most of them took none, so their cautions named row
+    numbers only)."""
+    p.add_argument("--id", metavar="COLUMN",
+                   help="column that names each row (never analysed): the cautions about rows (one answer throughout, "
+                        "copies of earlier rows) and the case tables show it beside the row number, and their advice "
+                        "writes the row filter that leaves those rows out by it; a scores file writes it first. "
+                        "Default: the file's row names, when its first header cell is empty")
+
+
 def row_number(text: str) -> int:
     return _row_of_file(text, 1, "the row of column names must be a row number (1 or more)")
 
@@ -144,6 +155,7 @@ def add_resampling_parser(sub, name: str, help_text: str, replications: int, wha
     p = sub.add_parser(name, help=help_text)
     add_model_and_data(p)
     add_data_options(p)
+    add_id_option(p)
     p.add_argument("--replications", type=int, default=replications, help=f"{what} (default {replications})")
     add_run_options(p)
     return p

@@ -838,6 +838,19 @@ def id_filter_column(id_column: str | None, loaded: LoadedData) -> str | None:
     return ROW_NAMES_COLUMN if loaded.row_names is not None and ROW_NAMES_COLUMN not in loaded.frame.columns else None
 
 
+def rows_named(loaded: LoadedData, id_column: str | None, model_variables, group: str | None = None
+               ) -> tuple[dict, str | None]:
+    """(data-row number -> id, the column a row filter names them by: :func:`id_filter_column`) of ``loaded``'s rows,
+    which the cautions about rows name beside their numbers (copies of earlier rows, one answer throughout): the id
+    column given (``--id``, checked as fit checks it: data.row_ids.row_ids) or the file's row names; ({}, None)
+    without either.  Every command that names rows reads them so (new-user trial s19: invariance, check, compare
+    and replicate named row numbers only)."""
+    ids = row_ids(loaded.frame, loaded.source, id_column, tuple(model_variables), group, loaded.row_names)
+    if ids is None:
+        return {}, None
+    return ids_by_row_number(ids, loaded.frame), id_filter_column(id_column, loaded)
+
+
 def with_odd_values(result, loaded: LoadedData, group: str | None = None, spec: Spec | None = None,
                     design: DesignColumns | None = None, ids: dict | None = None, id_column: str | None = None):
     """``result`` (a fit: anything with ``problems``, ``observed``, ``n_obs`` and ``missing_data``) with the
@@ -2261,7 +2274,8 @@ def _small_group_problems(refused: SmallGroupsError) -> tuple:
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,
           sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None,
           missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), rename=None, reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
-          strata: str | None = None, weight_kind: str | None = None, ordinal=None) -> CheckResult:
+          strata: str | None = None, weight_kind: str | None = None, ordinal=None,
+          id_column: str | None = None) -> CheckResult:
     """Parse and validate a model against data without fitting it; the result says how many rows
     are complete, how many have gaps (kept by default) and each item's
     coverage.  A sampling design (``weights``, ``cluster``, ``strata``, ``weight_kind``, as for :func:`fit`) is
@@ -2269,7 +2283,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     clusters and strata, with the caution a fit would give about too few clusters.  ``ordinal`` ('all' or item
     names, as for :func:`fit`) checks those items as an ordinal fit would, beside those the model declares ordinal;
     every refusal of their answers that such a fit stops at first is listed (``refusals``), and for ordinal items or
-    items of few answer categories the answers per category of every item (``answers``, per group)."""
+    items of few answer categories the answers per category of every item (``answers``, per group).  ``id_column``:
+    the column that names each row (never analysed), beside the row numbers of the cautions about rows, as for
+    :func:`fit`."""
     from cfa_tool.assessment.admissibility import group_parameter_counts, group_size_problems, one_sample_size_problems
     from cfa_tool.assessment.identification import check_counting_rule, moments_count
     from cfa_tool.model.parameters import build_parameter_table
@@ -2281,6 +2297,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     design = design_columns(weights, cluster, strata, weight_kind)
     if summary_source(data):
         refuse_row_options(f"'{data}'", group=group, **read_options)
+        if id_column is not None:
+            raise OptionError(f"summary statistics hold no rows, so an id column ({Option.ID_COLUMN}) cannot apply; "
+                              f"leave it out")
         if design is not None:
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")
@@ -2295,8 +2314,10 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0, {}, None,
                            analysed=moments.analysed)
     spec, loaded, notes = read_inputs_with_notes(model, data, **read_options,
-                                                 chosen=chosen_columns(group, design=design))
+                                                 text_columns=(id_column,) if isinstance(id_column, str) else (),
+                                                 chosen=chosen_columns(group, id_column, design=design))
     frame, source = loaded.frame, loaded.source
+    ids, named_by = rows_named(loaded, id_column, spec.observed_names, group)
     loaded = with_design_weights(analysed_odd_values(loaded, spec, group), design, spec, group)
     if design is not None:
         frame, design_notes = check_design(frame, design, spec.observed_names, group, source, loaded.weights)
@@ -2378,7 +2399,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(carried, thresholds) if sample_design is not None else None,
                        tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
-                       sparse + data_problems(loaded, spec, group, design, coverage=coverage, n_obs=len(answered))
+                       sparse + data_problems(loaded, spec, group, design, ids, coverage=coverage,
+                                              n_obs=len(answered), id_column=named_by)
                        + small
                        + (design_problems(sample_design, carried, thresholds) if sample_design is not None else ()),
                        len(frame) - len(answered), odd_complete,
