@@ -8,35 +8,18 @@ from __future__ import annotations
 
 import argparse
 
-import numpy as np
-import pandas as pd
 import pytest
 
 import cfa_tool
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.cli import build_parser
 from cfa_tool.errors import OptionError
-from tests.conftest import run_cli, simulate_cfa
+from tests.conftest import run_cli
+from tests.data.test_list_filters import CARELESS, careless_answers as _answers
 
 MODEL = "factor f: a1, a2, a3, a4\nfactor g: b1, b2, b3, b4\nreversed a2, b3 on 1 to 5\n"
 ONE_FACTOR = "factor h: a1, a2, a3, a4, b1, b2, b3, b4\nreversed a2, b3 on 1 to 5\n"
-CARELESS = list(range(100, 130))
 FILTER = "student_id not in " + ", ".join(f"S-{k + 1:05d}" for k in CARELESS)
-
-
-def _answers(seed: int = 19) -> pd.DataFrame:
-    loadings = np.zeros((8, 2))
-    loadings[:4, 0] = [0.7, -0.6, 0.7, 0.6]
-    loadings[4:, 1] = [0.6, 0.7, -0.7, 0.6]
-    phi = np.array([[1.0, 0.3], [0.3, 1.0]])
-    theta = np.diag(1 - np.diag(loadings @ phi @ loadings.T))
-    names = ["a1", "a2", "a3", "a4", "b1", "b2", "b3", "b4"]
-    latent = simulate_cfa(loadings, phi, theta, n=400, seed=seed, names=names)
-    frame = latent.apply(lambda x: 1 + np.searchsorted([-1.2, -0.4, 0.4, 1.2], x)).astype(float)
-    frame.loc[CARELESS, names] = 1.0
-    frame.insert(0, "student_id", [f"S-{k:05d}" for k in range(1, 401)])
-    frame.insert(1, "sex", ["girl", "boy"] * 200)
-    return frame
 
 
 def _named_by_ids(problems) -> None:

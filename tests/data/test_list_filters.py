@@ -7,7 +7,6 @@ planted.  Data: simulated answers (a fixed seed) of invented respondents."""
 
 from __future__ import annotations
 
-import numpy as np
 import pandas as pd
 import pytest
 
@@ -17,25 +16,24 @@ from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.errors import OptionError
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.reporting.paragraph import methods_paragraph
-from tests.conftest import run_cli, simulate_cfa
+from tests.conftest import five_point_answers, run_cli
 
 MODEL = "factor f: a1, a2, a3, a4\nfactor g: b1, b2, b3, b4\nreversed a2, b3 on 1 to 5\n"
 CARELESS = list(range(100, 130))  # the positions of 30 rows answering 1 to every item
 
 
-def _answers() -> pd.DataFrame:
-    loadings = np.zeros((8, 2))
-    loadings[:4, 0] = [0.7, -0.6, 0.7, 0.6]
-    loadings[4:, 1] = [0.6, 0.7, -0.7, 0.6]
-    phi = np.array([[1.0, 0.3], [0.3, 1.0]])
-    theta = np.diag(1 - np.diag(loadings @ phi @ loadings.T))
-    names = ["a1", "a2", "a3", "a4", "b1", "b2", "b3", "b4"]
-    latent = simulate_cfa(loadings, phi, theta, n=400, seed=19, names=names)
-    frame = latent.apply(lambda x: 1 + np.searchsorted([-1.2, -0.4, 0.4, 1.2], x)).astype(float)
-    frame.loc[CARELESS, names] = 1.0
+def careless_answers(seed: int = 19) -> pd.DataFrame:
+    """400 simulated respondents (tests.conftest.five_point_answers), the 30 at :data:`CARELESS` answering 1 to
+    every item; an id, a school and a sex column."""
+    frame = five_point_answers(400, seed)
+    frame.loc[CARELESS, list(frame.columns)] = 1.0
     frame.insert(0, "student_id", [f"S-{k:05d}" for k in range(1, 401)])
     frame.insert(1, "school", [f"School {k % 8 + 1}" for k in range(400)])
+    frame.insert(2, "sex", ["girl", "boy"] * 200)
     return frame
+
+
+_answers = careless_answers
 
 
 def test_a_list_keeps_the_rows_with_one_of_its_values_or_none_of_them():
