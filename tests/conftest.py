@@ -93,6 +93,19 @@ def simulate_cfa(loadings: np.ndarray, phi: np.ndarray, theta: np.ndarray, n: in
     return pd.DataFrame(data, columns=names)
 
 
+def five_point_answers(n: int, seed: int) -> pd.DataFrame:
+    """Two factors of four five-point items (a1-a4, b1-b4), a2 and b3 reverse-keyed (negative population loadings),
+    factors correlated .3: simulated normal responses cut at -1.2, -0.4, 0.4 and 1.2 (a test helper)."""
+    loadings = np.zeros((8, 2))
+    loadings[:4, 0] = [0.7, -0.6, 0.7, 0.6]
+    loadings[4:, 1] = [0.6, 0.7, -0.7, 0.6]
+    phi = np.array([[1.0, 0.3], [0.3, 1.0]])
+    theta = np.diag(1 - np.diag(loadings @ phi @ loadings.T))
+    names = ["a1", "a2", "a3", "a4", "b1", "b2", "b3", "b4"]
+    latent = simulate_cfa(loadings, phi, theta, n=n, seed=seed, names=names)
+    return latent.apply(lambda x: 1 + np.searchsorted([-1.2, -0.4, 0.4, 1.2], x)).astype(float)
+
+
 def exact_cfa_rows(loadings: np.ndarray, phi: np.ndarray, theta: np.ndarray, n: int, seed: int,
                    names=None) -> pd.DataFrame:
     """Rows whose sample covariance matrix (divisor N) is exactly Sigma = L Phi L' + Theta and whose means are 0:

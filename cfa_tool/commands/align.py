@@ -34,6 +34,7 @@ def add_parser(sub) -> None:
     O.add_incomplete_rows_option(p)
     p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
     O.add_data_options(p)
+    O.add_id_option(p)
     add_report_options(p)
 
 
@@ -50,5 +51,5 @@ def run(args: argparse.Namespace) -> int:
     result = align(Path(args.model), args.data, args.group, reference_group=args.reference_group,
                    reference_mean=args.reference_mean, flag_level=args.flag_level, trials=args.trials, seed=1 if args.seed is None else args.seed,
                    **O.reading_args(args), missing=args.missing,
-                   max_iterations=args.max_iterations)
+                   max_iterations=args.max_iterations, id_column=args.id)
     return emit_report(args, result, [args.model, args.data])

@@ -25,5 +25,6 @@ def run(args: argparse.Namespace) -> int:
     with progress(args.command) as advance:
         result = bootstrap(Path(args.model), args.data, args.replications, args.seed, workers=args.workers,
                            scheduler=args.scheduler, progress=advance, **O.reading_args(args), ordinal=O.ordinal_arg(args.ordinal),
-                           ordinal_estimator=args.ordinal_estimator, missing=args.missing, **O.design_args(args))
+                           ordinal_estimator=args.ordinal_estimator, missing=args.missing, id_column=args.id,
+                           **O.design_args(args))
     return emit(args, result)

@@ -17,6 +17,7 @@ def add_parser(sub) -> None:
     check.add_argument("--group-column", dest="group", metavar="COLUMN", help="column whose values name the groups")
     O.add_renamed(check, "--group", O.GROUP_NOW)
     O.add_data_options(check)
+    O.add_id_option(check)
     check.add_argument("--ordinal", metavar="ITEMS",
                        help="'all' or comma-separated items to check as an ordinal fit would (their categories, in "
                             "each group); every problem that would stop that fit is listed, then the exit code is 2")
@@ -30,7 +31,7 @@ def run(args: argparse.Namespace) -> int:
 
     check_output(args, inputs_of(args))
     found = check(Path(args.model), args.data, group=args.group, ordinal=O.ordinal_arg(args.ordinal),
-                  **O.reading_args(args), **O.design_args(args))
+                  id_column=args.id, **O.reading_args(args), **O.design_args(args))
     emit(args, found)
     if found.refusals:  # listed in the report, each with its place; the exit code says the data cannot be fitted
         from cfa_tool.reporting.workflow_tables import stops_ordinal_fit

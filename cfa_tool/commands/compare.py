@@ -14,6 +14,7 @@ def add_parser(sub) -> None:
     compare.add_argument("models", metavar="MODEL", nargs="+", help="two or more model files")
     compare.add_argument("--data", required=True, metavar="FILE", help="data file")
     O.add_data_options(compare)
+    O.add_id_option(compare)
     O.add_group_options(compare, required=False)
     O.add_test_option(compare)
     O.add_incomplete_rows_option(compare, "; every model is fitted to the same rows either way")
@@ -28,5 +29,6 @@ def run(args: argparse.Namespace) -> int:
     check_output(args, inputs_of(args))
     result = compare([Path(m) for m in args.models], args.data, group=args.group, reference_group=args.reference_group,
                      test=O.fit_test(args), missing=args.missing, **O.reading_args(args),
-                     ordinal=O.ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator, **O.design_args(args))
+                     ordinal=O.ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator,
+                     id_column=args.id, **O.design_args(args))
     return emit(args, result)

@@ -28,5 +28,5 @@ def run(args: argparse.Namespace) -> int:
         result = cutoffs(Path(args.model), args.data, args.replications, args.seed, args.workers, args.scheduler,
                          advance, **O.reading_args(args),
                          ordinal=O.ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator,
-                         missing=args.missing)
+                         missing=args.missing, id_column=args.id)
     return emit(args, result)

@@ -17,9 +17,7 @@ def add_parser(sub) -> None:
     O.add_data_options(fit)
     O.add_group_options(fit, required=False)
     add_fit_outputs(fit)
-    fit.add_argument("--id", metavar="COLUMN", help="column that names each row (never analysed): the case tables and the "
-                                                    "caution about rows with one answer throughout show it beside the "
-                                                    "row number")
+    O.add_id_option(fit)
     O.add_design_options(fit)
     fit.add_argument("--missing-helpers", metavar="COLUMNS", default=None,
                      help="numeric columns outside the model that go with the answers or with their being missing (age, "

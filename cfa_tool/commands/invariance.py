@@ -15,6 +15,7 @@ def add_parser(sub) -> None:
     inv = sub.add_parser("invariance", help="test configural, metric, scalar and strict invariance across groups")
     O.add_model_and_data(inv)
     O.add_data_options(inv)
+    O.add_id_option(inv)
     O.add_group_options(inv, required=True)
     inv.add_argument("--partial", choices=("none", "auto"), default="none",
                      help="'auto': when a step fails, free the constraint with the largest score test until it holds")
@@ -38,5 +39,6 @@ def run(args: argparse.Namespace) -> int:
                             partial=args.partial, alpha=args.alpha, decide_by=args.decide_by, test=O.fit_test(args),
                             ordinal=O.ordinal_arg(args.ordinal),
                             ordinal_estimator=args.ordinal_estimator, missing=args.missing, progress=advance,
+                            id_column=args.id,
                             **O.reading_args(args), **O.design_args(args))
     return emit(args, result)

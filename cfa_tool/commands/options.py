@@ -54,10 +54,23 @@ def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
                         "separated by commas, or the option repeated; every report says so")
     if filters:
         p.add_argument("--keep", metavar="FILTER", action="append", default=[],
-                       help="keep only rows that meet COLUMN OPERATOR VALUE, e.g. 'district = north' (repeatable)")
+                       help="keep only rows that meet COLUMN OPERATOR VALUE, e.g. 'district = north', or whose value is "
+                            "one of a list, or none of it: 'district in north, south', 'id not in R0601, R0602' "
+                            "(a value that holds a comma in double quotes); repeatable")
         from cfa_tool.commands.common import add_half_option
 
         add_half_option(p)
+
+
+def add_id_option(p: argparse.ArgumentParser) -> None:
+    """--id, the one definition for every command that names rows (fit, check, compare, invariance, replicate,
+    scores, bootstrap, cutoffs, align; new-user trial s19: most of them took none, so their cautions named row
+    numbers only)."""
+    p.add_argument("--id", metavar="COLUMN",
+                   help="column that names each row (never analysed): the cautions about rows (one answer throughout, "
+                        "copies of earlier rows) and the case tables show it beside the row number, and their advice "
+                        "writes the row filter that leaves those rows out by it; a scores file writes it first. "
+                        "Default: the file's row names, when its first header cell is empty")
 
 
 def row_number(text: str) -> int:
@@ -142,6 +155,7 @@ def add_resampling_parser(sub, name: str, help_text: str, replications: int, wha
     p = sub.add_parser(name, help=help_text)
     add_model_and_data(p)
     add_data_options(p)
+    add_id_option(p)
     p.add_argument("--replications", type=int, default=replications, help=f"{what} (default {replications})")
     add_run_options(p)
     return p

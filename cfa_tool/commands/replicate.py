@@ -25,6 +25,7 @@ def add_parser(sub) -> None:
     rep.add_argument("--seed", type=int, default=None, help="seed of the random split of --data (default 1)")
     add_halves_file(rep, "--data")
     O.add_data_options(rep)
+    O.add_id_option(rep)
     rep.add_argument("--validation-names-row", metavar="N", type=O.row_number, default=None,
                      help="the row of the --validation file that holds its column names; --names-row gives "
                           "that of the --calibration file (or of --data), so each file is read as it is laid out")
@@ -54,7 +55,7 @@ def run(args: argparse.Namespace) -> int:
         raise OptionError("give either --data (split-half) or --calibration and --validation, not both")
     O.refuse_validation_reading(args)
     ordinal = {"ordinal": O.ordinal_arg(args.ordinal), "ordinal_estimator": args.ordinal_estimator,
-               "missing": args.missing, **O.reading_args(args)}
+               "missing": args.missing, "id_column": args.id, **O.reading_args(args)}
     if args.halves_file and not args.data:
         raise OptionError("--halves-file saves the random halves of one data file (--data), and --calibration and "
                           "--validation are not split")

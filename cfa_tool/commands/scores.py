@@ -41,8 +41,7 @@ def add_parser(sub) -> None:
                         "for item sums and means, _sem, their standard error of measurement from the items the row "
                         "answered); "
                         "ordinal items always have theirs written, so the option is not given with them")
-    p.add_argument("--id", metavar="COLUMN", help="column written first to name each row (never analysed); default: "
-                                                  "the file's row names, when its first header cell is empty")
+    O.add_id_option(p)
     O.add_data_options(p)
     O.add_group_options(p, required=False)
     O.add_ordinal_options(p)

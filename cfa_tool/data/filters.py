@@ -4,6 +4,11 @@ Examples: ``district = north``, ``age >= 18``, ``"wave 2" != 1``,
 ``visit_date >= 2026-03-01``.  A filter is parsed, never evaluated as code.
 Operators: = != < <= > >= (text columns take only = and !=; date columns, and
 text written YYYY-MM-DD, compare as dates; a date without a time of day means the whole day).
+
+A list of values in one filter: COLUMN in V1, V2, ... keeps the rows whose value is one of them, COLUMN not in
+V1, V2, ... the rows whose value is none of them (``student_id not in S-00601, S-00602``; a value that holds a comma
+in double quotes), each value compared as '=' compares it (labels, upper and lower case, dates, codes); a methods
+section words it as one clause with the count.
 """
 
 from __future__ import annotations
@@ -30,6 +35,12 @@ from cfa_tool.suggest import close_names
 OPERATOR_TESTS = {"=": operator.eq, "!=": operator.ne, "<": operator.lt, "<=": operator.le, ">": operator.gt,
              ">=": operator.ge}
 
+#: the operators of a filter with a list of values (a value equal to one of them, to none)
+SET_OPERATORS = ("in", "not in")
+#: values of a list a filter's words name before '...' (the methods paragraph, the notes)
+SHOWN_VALUES = 3
+_SET_PATTERN = re.compile(r'^\s*(?:"(?P<quoted>[^"]+)"|(?P<plain>[^\s=!<>"]+))\s+(?P<op>not\s+in|in)'
+                          r'(?:\s+(?P<values>.*?))?\s*$', re.S)
 _PATTERN = re.compile(r'^\s*(?:"(?P<quoted>[^"]+)"|(?P<plain>[^\s=!<>"]+))\s*(?P<op><=|>=|!=|==|=|<|>)\s*(?P<value>.+?)\s*$')
 
 
@@ -57,21 +68,46 @@ class RowFilter:
     #: the value label the file gives the code compared (set by apply_filters for a number compared with = or != in
     #: a column with value labels): a methods section names the group by its label, not by a bare code
     label: str | None = None
+    #: a filter with a list of values (:data:`SET_OPERATORS`): each value as a filter of its own ('=' for 'in', '!='
+    #: for 'not in'; set by apply_filters), with what comparing it found (labels, codes sharing a label, case)
+    members: tuple["RowFilter", ...] = ()
 
     def __str__(self) -> str:
-        return self.text
+        """The filter as messages and notes quote it: as written, a list of more than :data:`SHOWN_VALUES` values cut
+        to them and its count ('student_id not in S-00601, S-00602, S-00603, ... (30 values)')."""
+        if self.operator not in SET_OPERATORS or len(self.value) <= SHOWN_VALUES:
+            return self.text
+        shown = ", ".join(_value_text(v) for v in self.value[:SHOWN_VALUES])
+        return f"{_column_text(self.column)} {self.operator} {shown}, ... ({len(self.value)} values)"
 
     def meets(self, value) -> bool:
         """Whether a cell holding ``value`` (a number, compared with a number) meets the filter."""
+        if self.operator in SET_OPERATORS:
+            found = any(value == v for v in self.value)
+            return found if self.operator == "in" else not found
         return bool(OPERATOR_TESTS[self.operator](value, self.value))
+
+    def compares_numbers(self) -> bool:
+        """Whether the filter compares with a number (or, with a list, with numbers only)."""
+        values = self.value if self.operator in SET_OPERATORS else (self.value,)
+        return all(isinstance(v, (int, float)) for v in values)
 
     def in_words(self) -> str:
         """The filter as a methods section words it: 'district was north', 'age was at least 18', '"wave 2" was
         1' (the column as the model language writes names: language.names.written_name), a code with its label:
-        'gender was not 3, labelled "another / prefers to describe"' (new-user trial s15).  Without parentheses: the
-        methods section says it inside its own (reporting.paragraph), and the rows left out for an empty cell after
-        it (:meth:`empty_words`)."""
-        value = f"{self.value:g}" if isinstance(self.value, float) else str(self.value)
+        'gender was not 3, labelled "another / prefers to describe"' (new-user trial s15), a text of several words in
+        double quotes: 'gender was not "prefer not to say"' (new-user trial s19).  A list of values is one clause with
+        its count: 'district was one of north, south', 'student_id was none of 30 listed values (S-00601, S-00602,
+        S-00603, ...)', a listed code with its label after it in double quotes.  Without parentheses around what it
+        holds: the methods section says it inside its own (reporting.paragraph), and the rows left out for an empty
+        cell after it (:meth:`empty_words`)."""
+        if self.operator in SET_OPERATORS:
+            labels = {m.value: m.label for m in self.members}
+            values = [_worded(v) + (f' "{labels[v]}"' if labels.get(v) else "") for v in self.value]
+            listed = (", ".join(values) if len(values) <= SHOWN_VALUES else
+                      f"{len(values)} listed values: {', '.join(values[:SHOWN_VALUES])}, ...")
+            return f"{written_name(self.column)} was {'one' if self.operator == 'in' else 'none'} of {listed}"
+        value = _worded(self.value)
         if self.label is not None:
             value += f', labelled "{self.label}"'
         return f"{written_name(self.column)} {_OPERATOR_WORDS[self.operator]} {value}"
@@ -86,9 +122,69 @@ _OPERATOR_WORDS = {"=": "was", "!=": "was not", "<": "was below", "<=": "was at 
                    ">=": "was at least"}
 
 
+def _value_text(value) -> str:
+    return f"{value:g}" if isinstance(value, float) else str(value)
+
+
+def _worded(value) -> str:
+    """A filter's value in a methods sentence: a text of several words in double quotes, so that it reads as one value
+    ('gender was not "prefer not to say"', new-user trial s19), anything else as :func:`_value_text` writes it."""
+    text = _value_text(value)
+    return f'"{text}"' if isinstance(value, str) and len(text.split()) > 1 and '"' not in text else text
+
+
+def _column_text(column: str) -> str:
+    """A filter's column as a filter writes it: in double quotes when not a plain word."""
+    return column if re.fullmatch(r'[^\s=!<>"]+', column) else f'"{column}"'
+
+
+def filters_in_words(filters) -> list[str]:
+    """The row ``filters`` (as apply_filters counted them; a half of a halves file among them) as a methods section
+    words them (:meth:`RowFilter.in_words`), one clause each, except that several '!=' filters on one column are
+    one clause with their count, worded as the list form 'COLUMN not in ...' words it (new-user trial s19: 30
+    filters 'student_id != S-006..', 30 clauses), at the place of the first of them."""
+    from dataclasses import replace
+
+    excluded: dict[str, list] = {}
+    for f in filters:
+        if isinstance(f, RowFilter) and f.operator == "!=":
+            excluded.setdefault(f.column, []).append(f)
+    words, done = [], set()
+    for f in filters:
+        several = excluded.get(f.column) if isinstance(f, RowFilter) and f.operator == "!=" else None
+        if not several or len(several) < 2:
+            words.append(f.in_words())
+        elif f.column not in done:
+            done.add(f.column)
+            words.append(replace(several[0], operator="not in", value=tuple(g.value for g in several),
+                                 empty=sum(g.empty for g in several), members=tuple(several)).in_words())
+    return words
+
+
+#: values a filter written for advice lists at most (more: the advice gives the filter's form)
+LISTED_AT_MOST = 100
+
+
+def list_filter(column: str, values, keep: bool = False) -> str | None:
+    """The row filter that keeps the rows whose ``column`` holds one of ``values`` (``keep``) or none of them, written
+    as :func:`parse_filter` reads it back ('student_id not in S-00601, S-00602'; a value with a comma in double
+    quotes): the one way advice writes such a filter.  None where it cannot be written so (a name or value that
+    cannot be printed, a double quote in a value, more than :data:`LISTED_AT_MOST` values)."""
+    texts = [_value_text(v) for v in values]
+    if not texts or len(texts) > LISTED_AT_MOST or printable(column) != column or '"' in column:
+        return None
+    if any(printable(t) != t or '"' in t or not t.strip() or t != t.strip() for t in texts):
+        return None
+    listed = ", ".join(f'"{t}"' if "," in t or (t[0] == t[-1] == "'") else t for t in texts)
+    return f"{_column_text(column)} {'in' if keep else 'not in'} {listed}"
+
+
 def parse_filter(text: str) -> RowFilter:
     if not isinstance(text, str):
         raise OptionError(f"a row filter is text such as 'district = north', not {type(text).__name__}")
+    listed = _SET_PATTERN.match(text)
+    if listed:
+        return _set_filter(text, listed)
     match = _PATTERN.match(text)
     if not match:
         raise OptionError(f"cannot read the row filter '{printable(text)}'; " + (
@@ -104,6 +200,41 @@ def parse_filter(text: str) -> RowFilter:
         parsed = number(raw)
         value = parsed if parsed is not None else raw
     return RowFilter(column, op, value, text.strip())
+
+
+def _set_filter(text: str, match: re.Match) -> RowFilter:
+    """A filter with a list of values: COLUMN in V1, V2, ... or COLUMN not in V1, V2, ... (split at its commas, a value
+    in double quotes holding commas, as --missing-codes splits; each value a number or text, as one filter's value
+    is read); a list that is empty, has an empty value or a value twice is refused, naming the option and the value."""
+    import csv
+
+    column = match.group("quoted") or match.group("plain")
+    op = " ".join(match.group("op").split())
+    given = Option.KEEP.given(text.strip())
+    raw = match.group("values") or ""
+    if not raw.strip():
+        raise OptionError(f"{given}: no values after '{op}'; list them separated by commas, e.g. "
+                          f"'{printable(column)} {op} A, B, C'")
+    try:
+        cells = next(csv.reader([raw], skipinitialspace=True, strict=True), [])
+    except csv.Error:
+        raise OptionError(f"{given}: a double quote in the list of values is not closed; a value that holds a comma "
+                          f"goes in double quotes (\"a, b\")") from None
+    values: list[object] = []
+    for k, cell in enumerate(cells, start=1):
+        cell = cell.strip()
+        if not cell:
+            after = f" after '{printable(str(values[-1]))}'" if values else " at the start"
+            raise OptionError(f"{given}: value {k} of the list is empty{after} (two commas in a row, or a comma at an "
+                              f"end); separate the values by single commas")
+        if len(cell) >= 2 and cell[0] == cell[-1] == "'":
+            cell = cell[1:-1]
+        parsed = number(cell)
+        value: object = parsed if parsed is not None else cell
+        if value in values:
+            raise OptionError(f"{given}: '{printable(cell)}' is listed twice; list each value once")
+        values.append(value)
+    return RowFilter(column, op, tuple(values), text.strip())
 
 
 OPERATORS = tuple(OPERATOR_TESTS)
@@ -191,65 +322,14 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
             raise OptionError(f"row filter '{printable(f)}': {source} has no column '{printable(f.column)}'{hint}")
         column = row_names.reindex(frame.index).rename(f.column) if by_row_names else frame[f.column]
         labels = (value_labels or {}).get(f.column)
-        by_label = ""
-        shared: tuple[tuple[str, int], ...] = ()
-        if labels and isinstance(f.value, float):
-            _refuse_label_of_other_code(f, column, labels, source)
-        if labels and not isinstance(f.value, float) and f.operator in ("=", "!="):
-            shared = _codes_of_label(column, labels, f.value)
-            column = column.map(lambda v: labels.get(v, v) if pd.notna(v) else v)  # codes -> their labels
-            by_label = f" (compared with the value labels of '{printable(f.column)}')"
-        dates = None if column.dtype.kind in "iufb" else _as_dates(column)
-        numeric = pd.to_numeric(column, errors="coerce") if column.dtype.kind in "iuf" else \
-            column.map(lambda v: np.nan if pd.isna(v) else _number_or_nan(v))
-        if dates is not None:
-            values, target, by_day = _dates_compared(f, dates)
-            by_label += by_day
-        elif isinstance(f.value, float) and numeric.notna().sum() == column.notna().sum():
-            values, target = numeric, f.value
+        if f.operator in SET_OPERATORS:
+            keep, f, by_label, absent, read_as = _compared_with_list(frame, f, column, labels, source)
         else:
-            numbers_only = numeric.notna().sum() == column.notna().sum()
-            if f.operator not in ("=", "!=") and numbers_only and not isinstance(f.value, float):
-                raise OptionError(f"row filter '{printable(f)}': '{printable(str(f.value))}' is not a number, and "
-                                  f"{f.operator} compares numbers (write numbers with a decimal point; text is compared "
-                                  f"with = or !=)")
-            if f.operator not in ("=", "!="):
-                written = _written_date(column)
-                if written is not None:
-                    raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds dates written as text "
-                                      f"in another form than YYYY-MM-DD (such as '{printable(written)}'), whose order "
-                                      f"of day and month the file does not say, so they cannot be compared by order; "
-                                      f"in a copy of the file write them as YYYY-MM-DD, which filters compare as dates")
-                odd = _not_dates(column)
-                if odd is not None:  # a column of dates but for a few cells: those cells, not the column, are wrong
-                    position, value = odd[0]
-                    more = f" (and {len(odd) - 1} more such cell{'s' if len(odd) > 2 else ''})" if len(odd) > 1 else ""
-                    where = cell_words(frame, f.column, int(row_numbers(frame)[position]))
-                    raise DataError(f"{source}, {where}: '{printable(str(value))}' in '{printable(f.column)}' is not "
-                                    f"a date (a day that exists, written YYYY-MM-DD), and its other cells are "
-                                    f"dates{more}, so row filter '{printable(f)}' cannot compare them by order; "
-                                    f"correct the cell, or leave it empty in a copy of the file")
-                raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' of {source} holds text"
-                                  f"{_first_text(column, numeric)}, which can only be compared with = or !=")
-            values = column.map(lambda v: None if pd.isna(v) else _cell_label(v))
-            target = label_text(f.value)
-            if target.casefold() in ("true", "false") and values.isin(("TRUE", "FALSE")).any():
-                target = target.upper()  # a TRUE/FALSE cell as a spreadsheet shows it, whatever the case typed
-        keep = OPERATOR_TESTS[f.operator](values, target) & column.notna()
-        read_as = _written_otherwise(column, values, target) if f.operator in ("=", "!=") else ""
-        # labels differing from a text compared only in case: a filter matches text exactly (data.labels' rule)
-        cased = other_case(values.dropna(), target) if f.operator in ("=", "!=") and isinstance(target, str) else ()
-        absent = ""
-        if f.operator in ("=", "!=") and not (values == target).any():  # a value no row has: which ones are there
-            absent = (f"; no row has '{printable(label_text(f.value))}' in '{printable(f.column)}' (values present: "
-                      f"{_present(values, target)})" + (_case_hint(cased) if isinstance(target, str) else ""))
+            compared = _compared(frame, f, column, labels, source)
+            keep, by_label, absent, read_as = compared.keep, compared.by_label, compared.absent, compared.read_as
+            f = replace(f, shared=compared.shared, other_case=compared.cased, label=compared.named)
         before = len(frame)
-        named = None  # the label of the code compared, for the methods section's words
-        if labels and isinstance(f.value, float) and f.operator in ("=", "!="):
-            named = next((str(text) for code, text in labels.items()
-                          if _number_or_nan(code) == f.value and str(text).strip()), None)
-        f = replace(f, empty=int(column.isna().sum()), dropped=int((~keep & column.notna()).sum()), shared=shared,
-                    other_case=cased, label=named)
+        f = replace(f, empty=int(column.isna().sum()), dropped=int((~keep & column.notna()).sum()))
         counted.append(f)
         frame = frame.loc[keep.to_numpy()]
         emptied = (f"left out {f.empty_words()} (an empty cell meets no comparison, '!=' included), and "
@@ -262,6 +342,111 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         frame.attrs[KEPT_BY] = tuple(f.text for f in filters)  # follows the frame through selections and groups
     return frame, notes, tuple(counted)
 
+
+@dataclass(frozen=True)
+class _Comparison:
+    """What comparing a column with one filter found: the rows it keeps and the words of its note (how the values
+    were compared, a value no row has, cells read as the value), the codes sharing the label compared, the labels
+    differing from it in case, the label of the code compared."""
+    keep: pd.Series
+    by_label: str = ""
+    absent: str = ""
+    read_as: str = ""
+    shared: tuple[tuple[str, int], ...] = ()
+    cased: tuple[tuple[str, int], ...] = ()
+    named: str | None = None
+
+
+def _compared_with_list(frame: pd.DataFrame, f: RowFilter, column: pd.Series, labels, source: str):
+    """A filter with a list of values (:data:`SET_OPERATORS`) compared value by value as '=' compares one value (so
+    labels, codes, case and dates are read alike): the rows it keeps, the filter with its members, and its note's
+    words.  A value no row has is said (a typing slip), not refused, unless no row is left."""
+    from dataclasses import replace
+
+    found = pd.Series(False, index=column.index)
+    members, by_label, absent, missing, read_as = [], "", [], [], ""
+    for value in f.value:
+        compared = _compared(frame, replace(f, operator="=", value=value, members=()), column, labels, source)
+        found |= compared.keep
+        by_label = by_label or compared.by_label
+        read_as = read_as or compared.read_as
+        if compared.absent:  # (a value no row has)
+            absent.append(compared.absent)
+            missing.append(value)
+        members.append(replace(f, operator="=" if f.operator == "in" else "!=", value=value, shared=compared.shared,
+                               other_case=compared.cased, label=compared.named, members=(), text=str(f)))
+    keep = found if f.operator == "in" else ~found & column.notna()
+    said = ""
+    if absent:
+        said = absent[0] if len(absent) == 1 else (
+            f"; no row has {', '.join(repr(printable(_value_text(v))) for v in missing[:SHOWN_VALUES])}"
+            + (f" and {len(missing) - SHOWN_VALUES} more of the values listed" if len(missing) > SHOWN_VALUES else "")
+            + f" in '{printable(f.column)}'")
+    shared = tuple(pair for m in members for pair in m.shared)
+    cased = tuple(pair for m in members for pair in m.other_case)
+    return keep, replace(f, members=tuple(members), shared=shared, other_case=cased), by_label, said, read_as
+
+
+def _compared(frame: pd.DataFrame, f: RowFilter, column: pd.Series, labels, source: str) -> _Comparison:
+    """The rows of ``column`` that meet ``f`` (one value, one operator), compared as labels are read everywhere,
+    with what the comparison found (:class:`_Comparison`)."""
+    by_label = ""
+    shared: tuple[tuple[str, int], ...] = ()
+    if labels and isinstance(f.value, float):
+        _refuse_label_of_other_code(f, column, labels, source)
+    if labels and not isinstance(f.value, float) and f.operator in ("=", "!="):
+        shared = _codes_of_label(column, labels, f.value)
+        column = column.map(lambda v: labels.get(v, v) if pd.notna(v) else v)  # codes -> their labels
+        by_label = f" (compared with the value labels of '{printable(f.column)}')"
+    dates = None if column.dtype.kind in "iufb" else _as_dates(column)
+    numeric = pd.to_numeric(column, errors="coerce") if column.dtype.kind in "iuf" else \
+        column.map(lambda v: np.nan if pd.isna(v) else _number_or_nan(v))
+    if dates is not None:
+        values, target, by_day = _dates_compared(f, dates)
+        by_label += by_day
+    elif isinstance(f.value, float) and numeric.notna().sum() == column.notna().sum():
+        values, target = numeric, f.value
+    else:
+        numbers_only = numeric.notna().sum() == column.notna().sum()
+        if f.operator not in ("=", "!=") and numbers_only and not isinstance(f.value, float):
+            raise OptionError(f"row filter '{printable(f)}': '{printable(str(f.value))}' is not a number, and "
+                              f"{f.operator} compares numbers (write numbers with a decimal point; text is compared "
+                              f"with = or !=)")
+        if f.operator not in ("=", "!="):
+            written = _written_date(column)
+            if written is not None:
+                raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds dates written as text "
+                                  f"in another form than YYYY-MM-DD (such as '{printable(written)}'), whose order "
+                                  f"of day and month the file does not say, so they cannot be compared by order; "
+                                  f"in a copy of the file write them as YYYY-MM-DD, which filters compare as dates")
+            odd = _not_dates(column)
+            if odd is not None:  # a column of dates but for a few cells: those cells, not the column, are wrong
+                position, value = odd[0]
+                more = f" (and {len(odd) - 1} more such cell{'s' if len(odd) > 2 else ''})" if len(odd) > 1 else ""
+                where = cell_words(frame, f.column, int(row_numbers(frame)[position]))
+                raise DataError(f"{source}, {where}: '{printable(str(value))}' in '{printable(f.column)}' is not "
+                                f"a date (a day that exists, written YYYY-MM-DD), and its other cells are "
+                                f"dates{more}, so row filter '{printable(f)}' cannot compare them by order; "
+                                f"correct the cell, or leave it empty in a copy of the file")
+            raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' of {source} holds text"
+                              f"{_first_text(column, numeric)}, which can only be compared with = or !=")
+        values = column.map(lambda v: None if pd.isna(v) else _cell_label(v))
+        target = label_text(f.value)
+        if target.casefold() in ("true", "false") and values.isin(("TRUE", "FALSE")).any():
+            target = target.upper()  # a TRUE/FALSE cell as a spreadsheet shows it, whatever the case typed
+    keep = OPERATOR_TESTS[f.operator](values, target) & column.notna()
+    read_as = _written_otherwise(column, values, target) if f.operator in ("=", "!=") else ""
+    # labels differing from a text compared only in case: a filter matches text exactly (data.labels' rule)
+    cased = other_case(values.dropna(), target) if f.operator in ("=", "!=") and isinstance(target, str) else ()
+    absent = ""
+    if f.operator in ("=", "!=") and not (values == target).any():  # a value no row has: which ones are there
+        absent = (f"; no row has '{printable(label_text(f.value))}' in '{printable(f.column)}' (values present: "
+                  f"{_present(values, target)})" + (_case_hint(cased) if isinstance(target, str) else ""))
+    named = None  # the label of the code compared, for the methods section's words
+    if labels and isinstance(f.value, float) and f.operator in ("=", "!="):
+        named = next((str(text) for code, text in labels.items()
+                      if _number_or_nan(code) == f.value and str(text).strip()), None)
+    return _Comparison(keep, by_label, absent, read_as, shared, cased, named)
 
 
 def _refuse_label_of_other_code(f: RowFilter, column: pd.Series, labels: dict, source: str) -> None:

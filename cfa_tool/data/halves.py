@@ -185,10 +185,14 @@ class HalfRows:
     dropped = 0
     shared = ()
     other_case = ()
+    members = ()
 
     @property
     def value(self) -> str:
         return self.name
+
+    def compares_numbers(self) -> bool:
+        return False
 
     @property
     def text(self) -> str:

@@ -152,7 +152,7 @@ def apply_missing_codes(frame: pd.DataFrame, codes, source: str | Path, items: C
 def _left_out(column: str, code: float, filters: Collection) -> bool:
     """Whether a row filter given (``filters``: data.filters.RowFilter) already leaves out the rows whose ``column``
     holds ``code``."""
-    return any(str(f.column) == str(column) and isinstance(f.value, (int, float)) and not f.meets(code)
+    return any(str(f.column) == str(column) and f.compares_numbers() and not f.meets(code)
                for f in filters)
 
 

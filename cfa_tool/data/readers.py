@@ -28,6 +28,7 @@ from cfa_tool.data.kept_rows import (SHEET_COLUMNS, TEXT_LINES, line_words, row_
                                      text_lines)
 from cfa_tool.data.missing_codes import apply_missing_codes, codes_on_answers, missing_codes_note
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
+from cfa_tool.data.notes_rows import end_of_data, notes_lines, notes_note
 from cfa_tool.data.non_answers import answers_labelled_like_none, declared_missing, labelled_non_answers, \
     non_answer_note, run_words, says_no_answer, unused_run_words, written_non_answers
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
@@ -465,6 +466,13 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     # every row up to the last one with a value, empty ones too: they are left out, and named, by drop_blank_rows
     kept = list(range(data_start, filled[-1] + 1)) if filled else []
     body = [list(rows[k - data_start + 1][:width]) for k in kept]
+    found = notes_lines(body)  # a notes line under the data (data.notes_rows) is no row of data
+    if found:
+        notes.append(notes_note(where, [kept[k] for k in found], [body[k] for k in found]))
+        gone = {kept[k] for k in found}
+        filled = [k for k in filled if k not in gone]
+        end = end_of_data(body, found)  # the sheet read as if the lines were not there
+        body, kept = body[:end], kept[:end]
     hidden_rows = {k for k, dimension in ws.row_dimensions.items() if dimension.hidden}
     if hidden_rows and hidden_out is not None:  # a filter, or rows hidden by hand: the file holds them all the same
         sheet_rows = tuple(k for k in filled if k in hidden_rows)
@@ -1435,6 +1443,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     if first_data_row is not None:
         text, data_line = _skip_to_data(text, records, header_line, first_data_row, str(path), names_option, notes,
                                         between, rows)
+    text, records = _without_notes_lines(text, records, header_line, data_line, str(path), rows, notes)
     header = [h.strip() for h in header]
     trailing = 0
     while len(header) > 1 and not header[-1]:  # a delimiter at the end of the header line
@@ -1579,6 +1588,27 @@ def _skip_to_data(text: str, records: TextRecords, header_line: int, first_data_
                                    first_data_option(names_option)))
     begin, end = _offset_of_line(text, after[0]), _offset_of_line(text, start)
     return text[:begin] + "\n" * (start - after[0]) + text[end:], start
+
+
+def _without_notes_lines(text: str, records: TextRecords, header_line: int, data_line: int, where: str,
+                         rows: TextRows, notes: list[str] | None) -> tuple[str, TextRecords]:
+    """``text`` and its ``records`` without the notes lines under the data (data.notes_rows: a spreadsheet export's
+    'Notes: ...' row), their text lines left blank so that every other row keeps its line; ``notes`` receives the
+    note naming them.  Unchanged where the csv module stopped on a record it cannot read (its error comes first)."""
+    if records.error is not None:
+        return text, records
+    data = [(k, line, fields) for k, (line, fields) in enumerate(records.records)
+            if line > header_line and line >= data_line and _filled(fields, delimiters_only=True)]
+    found = notes_lines([fields for _, _, fields in data])
+    if not found:
+        return text, records
+    cut = data[end_of_data([fields for _, _, fields in data], found)][0]  # the first record not read
+    line = records.records[cut][0]
+    begin, stop = _offset_of_line(text, line), _offset_of_line(text, records.end)
+    if notes is not None:
+        notes.append(notes_note(where, [rows.row(data[k][1]) for k in found], [data[k][2] for k in found]))
+    return (text[:begin] + "\n" * (records.end - line) + text[stop:],
+            TextRecords(records.records[:cut], records.end, records.error))
 
 
 def _spanning_note(path, rows: TextRows) -> str:

@@ -20,7 +20,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
 
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
-from cfa_tool.data.kept_rows import (RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
+from cfa_tool.data.kept_rows import (ROW_NAMES_COLUMN, RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
                                      unfinished_rows_note)
 from cfa_tool.data.labels import (CODED_LABELS, cells_as_labels, label_notes, label_text, labelled_codes, nominal_items_note,
                                   refuse_container_cells)
@@ -31,6 +31,7 @@ from cfa_tool.data.non_answers import also_no_answer, beyond_scale, non_answer_c
 from cfa_tool.data.descriptives import few_category_items, few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
+from cfa_tool.data.notes_rows import drop_notes_lines
 from cfa_tool.data.readers import (LoadedData, blank_text_as_missing, drop_blank_rows,
                                    first_data_option, read_data, with_no_answers_read)
 from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame, renamed_hint
@@ -167,7 +168,9 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
                               f"data are a data frame, whose rows are all data; leave it out")
         frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
         frame = renamed_frame(frame, renames, DATA_FRAME, rename_option)
-        frame, blank = drop_blank_rows(frame, DATA_FRAME)  # as the readers leave them out
+        frame, notes_lines = drop_notes_lines(frame, DATA_FRAME)  # the readers' rules: notes lines under the data,
+        frame, blank = drop_blank_rows(frame, DATA_FRAME)  # then blank rows
+        blank = notes_lines + blank
         renamed = (rename_note(renames, DATA_FRAME, rename_option),) if renames else ()
         by_position = row_naming(frame) is RowNaming.POSITION  # indexed by position: the caller's labels kept
         return with_no_answers_read(LoadedData(frame, DATA_FRAME, notes=renamed + blank, renamed=renames,
@@ -567,7 +570,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         result = named_cases(_fit_read_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
                                             ordinal_estimator, design, ids), by_row)
     reference_group_applies(result, reference_group)
-    result = with_missing_reading(with_odd_values(result, loaded, group, spec, design, by_row), loaded, missing_codes)
+    result = with_missing_reading(with_odd_values(result, loaded, group, spec, design, by_row,
+                                                  id_filter_column(id_column, loaded)), loaded, missing_codes)
     repeated = reference_note(result, frame, group, reference_group) + duplicate_note(
         ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
@@ -792,7 +796,8 @@ def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answe
 def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | None = None,
                   design: DesignColumns | None = None, ids: dict | None = None, names: tuple[str, ...] | None = None,
                   coverage: dict | None = None, n_obs: int | None = None, where: str = "",
-                  helpers: tuple[str, ...] = (), listwise: bool = False, by_loadings: tuple[str, ...] = ()) -> tuple:
+                  helpers: tuple[str, ...] = (), listwise: bool = False, by_loadings: tuple[str, ...] = (),
+                  id_column: str | None = None) -> tuple:
     """The cautions on the data that come first in every view, composed here once for every command (fit, check,
     compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: what the row filters did to
     the sample (pipeline.row_filter_cautions: a selection on a model item, a label several codes carry); rows that are copies of
@@ -805,16 +810,18 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     items by default).  ``listwise``: rows with gaps leave the analysis.  The data are not refused: the user may
     know better.  ``where``: which of several files filtered alike the row filters' cautions are about (replicate's
     ' on the calibration data (spring.csv)'); ``helpers``: the missing-data helpers, whose values read as missing are
-    named with the items' ones."""
+    named with the items' ones; ``id_column``: the column ``ids`` are read from (:func:`id_filter_column`), by which
+    advice writes a row filter."""
     from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 
     names = names if names is not None else (spec.observed_names if spec is not None else ())
     found: tuple = row_filter_problems(loaded, spec, where=where) + copied_row_problems(loaded, group, design, names, ids or {})
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
-        found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})
+        found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {}, id_column=id_column)
     elif spec is not None and by_loadings:  # ... and items a fit's loadings key as reversed, without a statement
-        found += same_answer_problems(_labelled(loaded.frame, group), spec, ids or {}, by_loadings=by_loadings)
+        found += same_answer_problems(_labelled(loaded.frame, group), spec, ids or {}, by_loadings=by_loadings,
+                                      id_column=id_column)
     from cfa_tool.pipeline.column_codes import column_code_problems
 
     found += column_code_problems(loaded, group, design)  # no-answer codes kept in the columns choosing rows
@@ -827,8 +834,29 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     return tuple(dict.fromkeys(found))  # each once
 
 
+def id_filter_column(id_column: str | None, loaded: LoadedData) -> str | None:
+    """The column a row filter names the rows' ids by: the id column given, else the file's row names
+    (data.kept_rows.ROW_NAMES_COLUMN, which a filter compares when the file has no column of that name), else None."""
+    if isinstance(id_column, str):
+        return id_column
+    return ROW_NAMES_COLUMN if loaded.row_names is not None and ROW_NAMES_COLUMN not in loaded.frame.columns else None
+
+
+def rows_named(loaded: LoadedData, id_column: str | None, model_variables, group: str | None = None
+               ) -> tuple[dict, str | None]:
+    """(data-row number -> id, the column a row filter names them by: :func:`id_filter_column`) of ``loaded``'s rows,
+    which the cautions about rows name beside their numbers (copies of earlier rows, one answer throughout): the id
+    column given (``--id``, checked as fit checks it: data.row_ids.row_ids) or the file's row names; ({}, None)
+    without either.  Every command that names rows reads them so (new-user trial s19: invariance, check, compare
+    and replicate named row numbers only)."""
+    ids = row_ids(loaded.frame, loaded.source, id_column, tuple(model_variables), group, loaded.row_names)
+    if ids is None:
+        return {}, None
+    return ids_by_row_number(ids, loaded.frame), id_filter_column(id_column, loaded)
+
+
 def with_odd_values(result, loaded: LoadedData, group: str | None = None, spec: Spec | None = None,
-                    design: DesignColumns | None = None, ids: dict | None = None):
+                    design: DesignColumns | None = None, ids: dict | None = None, id_column: str | None = None):
     """``result`` (a fit: anything with ``problems``, ``observed``, ``n_obs`` and ``missing_data``) with the
     cautions about its data (:func:`data_problems`, the few answers judged by its own coverage) before its own,
     each once (scores of the fitted file, say)."""
@@ -837,7 +865,7 @@ def with_odd_values(result, loaded: LoadedData, group: str | None = None, spec: 
     listwise = getattr(getattr(result, "method", None), "missing", None) is MissingData.LISTWISE
     found = tuple(p for p in data_problems(loaded, spec, group, design, ids, tuple(getattr(result, "observed", ()) or ()),
                                            coverage, getattr(result, "n_obs", None), helpers=helpers, listwise=listwise,
-                                           by_loadings=reversed_by_loadings(result))
+                                           by_loadings=reversed_by_loadings(result), id_column=id_column)
                   if p not in result.problems)
     from cfa_tool.assessment.admissibility import solution_first
 
@@ -932,7 +960,7 @@ SAME_ANSWER_ROWS_SHOWN = 10  # rows a caution about same-answer rows names befor
 
 
 def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only: bool = False,
-                         by_loadings: tuple[str, ...] = ()) -> tuple:
+                         by_loadings: tuple[str, ...] = (), id_column: str | None = None) -> tuple:
     """A caution naming the rows of ``frame`` (the rows analysed) that gave one answer to every item, the items of
     the model's 'reversed' statement included (data.same_answers: careless responding, Johnson 2005; Curran 2016),
     by row number and id (``ids``: row number -> id); () when the model declares no reversed items or no
@@ -941,7 +969,10 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
     loadings key as reversed (assessment.reliability.item_keys, which the fit's report names), judged so instead,
     each with the middle of its answers in ``frame`` as the answer its reversal leaves unchanged (new-user trial
     s18: the draft model explore writes declares no reversal, and its fit never named the careless rows the
-    hand-written model's fit named first)."""
+    hand-written model's fit named first).  ``id_column``: the column whose values ``ids`` are (the id column, or
+    data.kept_rows.ROW_NAMES_COLUMN for the file's row names), by which the advice writes the one row filter that
+    leaves the rows out (data.filters.list_filter; new-user trial s19: a filter per row, 30 clauses in the methods
+    paragraph)."""
     if not spec.reversed and not by_loadings:
         return ()
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
@@ -1018,10 +1049,23 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
                     f"check {'this row' if one else 'these rows'} in the data; if {'it was' if one else 'they were'} "
                     f"not answered with care, " + (f"leave {'its' if one else 'their'} scores out of what follows." if
                                                    scored_only else
-                    Note((f"fit again without {'it' if one else 'them'} (a row filter on an id column",
-                          Command(f", {option_in_both('--keep', 'keep=[...]')}"),
+                    Note((f"fit again without {'it' if one else 'them'} (", *_leaving_out_rows(found.rows, ids, id_column),
                           f"; or deleting {'it' if one else 'them'} from a copy of the file) and compare the "
                           f"results.")))),)
+
+
+def _leaving_out_rows(rows, ids: dict, id_column: str | None) -> tuple:
+    """The words of advice that name the one row filter leaving ``rows`` out: by their ids when ``id_column`` holds
+    an id for each (data.filters.list_filter, the exact filter, as Command), else the filter's form with a list."""
+    from cfa_tool.data.filters import list_filter
+
+    named = [ids.get(int(r)) for r in rows]
+    exact = list_filter(id_column, named) if id_column is not None and all(i is not None for i in named) else None
+    their = "its id" if len(rows) == 1 else "their ids"
+    if exact is not None:
+        return (f"a row filter that lists {their}", Command(f": {Option.KEEP.given(exact)}"))
+    return (f"a row filter on an id column that lists {their}",
+            Command(f", {option_in_both('--keep', 'keep=[...]')}, such as 'ID_COLUMN not in ID1, ID2, ...'"))
 
 
 def scale_ends_problems(frame: pd.DataFrame, spec: Spec) -> tuple:
@@ -2248,7 +2292,8 @@ def _small_group_problems(refused: SmallGroupsError) -> tuple:
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,
           sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None,
           missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), rename=None, reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
-          strata: str | None = None, weight_kind: str | None = None, ordinal=None) -> CheckResult:
+          strata: str | None = None, weight_kind: str | None = None, ordinal=None,
+          id_column: str | None = None) -> CheckResult:
     """Parse and validate a model against data without fitting it; the result says how many rows
     are complete, how many have gaps (kept by default) and each item's
     coverage.  A sampling design (``weights``, ``cluster``, ``strata``, ``weight_kind``, as for :func:`fit`) is
@@ -2256,7 +2301,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     clusters and strata, with the caution a fit would give about too few clusters.  ``ordinal`` ('all' or item
     names, as for :func:`fit`) checks those items as an ordinal fit would, beside those the model declares ordinal;
     every refusal of their answers that such a fit stops at first is listed (``refusals``), and for ordinal items or
-    items of few answer categories the answers per category of every item (``answers``, per group)."""
+    items of few answer categories the answers per category of every item (``answers``, per group).  ``id_column``:
+    the column that names each row (never analysed), beside the row numbers of the cautions about rows, as for
+    :func:`fit`."""
     from cfa_tool.assessment.admissibility import group_parameter_counts, group_size_problems, one_sample_size_problems
     from cfa_tool.assessment.identification import check_counting_rule, moments_count
     from cfa_tool.model.parameters import build_parameter_table
@@ -2268,6 +2315,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     design = design_columns(weights, cluster, strata, weight_kind)
     if summary_source(data):
         refuse_row_options(f"'{data}'", group=group, **read_options)
+        if id_column is not None:
+            raise OptionError(f"summary statistics hold no rows, so an id column ({Option.ID_COLUMN}) cannot apply; "
+                              f"leave it out")
         if design is not None:
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")
@@ -2282,8 +2332,10 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0, {}, None,
                            analysed=moments.analysed)
     spec, loaded, notes = read_inputs_with_notes(model, data, **read_options,
-                                                 chosen=chosen_columns(group, design=design))
+                                                 text_columns=(id_column,) if isinstance(id_column, str) else (),
+                                                 chosen=chosen_columns(group, id_column, design=design))
     frame, source = loaded.frame, loaded.source
+    ids, named_by = rows_named(loaded, id_column, spec.observed_names, group)
     loaded = with_design_weights(analysed_odd_values(loaded, spec, group), design, spec, group)
     if design is not None:
         frame, design_notes = check_design(frame, design, spec.observed_names, group, source, loaded.weights)
@@ -2365,7 +2417,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(carried, thresholds) if sample_design is not None else None,
                        tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
-                       sparse + data_problems(loaded, spec, group, design, coverage=coverage, n_obs=len(answered))
+                       sparse + data_problems(loaded, spec, group, design, ids, coverage=coverage,
+                                              n_obs=len(answered), id_column=named_by)
                        + small
                        + (design_problems(sample_design, carried, thresholds) if sample_design is not None else ()),
                        len(frame) - len(answered), odd_complete,

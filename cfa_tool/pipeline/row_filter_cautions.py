@@ -24,10 +24,11 @@ def row_filter_problems(loaded: LoadedData, spec: Spec | None = None,
     for f in loaded.row_filters:
         if f in on_items:
             found.append(selected_on_item(f, spec, where))
-        if f.shared:
-            found.append(label_of_several_codes(f, where))
-        if f.other_case:
-            found.append(labels_by_case(f, where))
+        for one in f.members or (f,):  # a list's values each as its own comparison (data.filters.SET_OPERATORS)
+            if one.shared:
+                found.append(label_of_several_codes(one, where))
+            if one.other_case:
+                found.append(labels_by_case(one, where))
     return tuple(found)
 
 

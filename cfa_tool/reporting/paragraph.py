@@ -614,15 +614,18 @@ def _pairs_by_group(result) -> str:
 
 def _filtered(data, file: str = "the data file") -> str:
     """' of the 301 rows in the data file, those where school was Pasteur': the rows the row filters (--keep) chose,
-    each filter worded by RowFilter.in_words, then the rows a filter left out for an empty cell ('; 54 rows with no
-    value of mode were left out'); '' without filters.  ``file``: the file's words (replicate's two files are named).
-    Said inside the parentheses of a sample's description, and so without parentheses of its own (new-user trial
-    18: 'those where the row fell in the A half of two random halves (seed 11; listed in halves.csv)' nested them)."""
+    each filter worded by RowFilter.in_words, several '!=' of one column as one clause (data.filters.filters_in_words),
+    then the rows a filter left out for an empty cell ('; 54 rows with no value of mode were left out'); '' without
+    filters.  ``file``: the file's words (replicate's two files are named).  Said inside the parentheses of a
+    sample's description, and so without parentheses of its own (new-user trial 18: 'those where the row fell in the
+    A half of two random halves (seed 11; listed in halves.csv)' nested them)."""
     if not data.row_filters:
         return ""
+    from cfa_tool.data.filters import filters_in_words
+
     empty = [f for f in data.row_filters if f.empty]
     verb = "was" if [f.empty for f in empty] == [1] else "were"
-    return (f" of the {data.rows_in_file} rows in {file}, those where {_list([f.in_words() for f in data.row_filters])}"
+    return (f" of the {data.rows_in_file} rows in {file}, those where {_list(filters_in_words(data.row_filters))}"
             + (f"; {_list([f.empty_words() for f in empty])} {verb} left out" if empty else ""))
 
 

@@ -1530,7 +1530,7 @@ def selection_phrase(data) -> str:
     if not data.row_filters:
         return ""
     which = "filter" if len(data.row_filters) == 1 else "filters"
-    return (f"kept by the row {which} {', '.join(repr(f.text) for f in data.row_filters)} ({data.rows_in_file} rows in "
+    return (f"kept by the row {which} {', '.join(repr(str(f)) for f in data.row_filters)} ({data.rows_in_file} rows in "
             f"the file)")
 
 

@@ -612,17 +612,18 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
           reference_mean: str | ReferenceMean = ReferenceMean.ZERO, flag_level: float = ALIGNMENT_FLAG_LEVEL,
           trials: int = ALIGNMENT_TRIALS, seed: int = 1, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
           keep: tuple[str, ...] | list[str] = (), rename: ColumnRenames = None, missing: str | None = None,
-          max_iterations: int = 500) -> AlignmentResult:
+          max_iterations: int = 500, id_column: str | None = None) -> AlignmentResult:
     """Group factor means and variances under approximate invariance by alignment (Asparouhov & Muthén 2014),
     from the configural model fitted with every factor's mean 0 and variance 1 in every group.
 
     ``reference_mean``: 'zero' (the reference group's means 0, variances 1) or 'estimated' (its means free too);
     ``flag_level``: level of the tests that flag non-invariant loadings and intercepts; ``trials``: Monte Carlo
-    replications of the trustworthiness check (0 leaves it out), with ``seed``."""
+    replications of the trustworthiness check (0 leaves it out), with ``seed``.  ``id_column``: the column that names each row (never analysed), beside the row numbers of the cautions about
+    rows, as for ``fit``."""
     from cfa_tool.numerics.threads import blas_threads_for
     from cfa_tool.data.matching import chosen_columns
     from cfa_tool.pipeline.inputs import (analysed_odd_values, continuous_only, keeps_rows_with_gaps, odd_values_named,
-                                          read_inputs_with_notes,
+                                          read_inputs_with_notes, rows_named,
                                           with_odd_values)
 
     if not isinstance(group, str):
@@ -631,17 +632,20 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
     flag_level = check.probability("the level of the tests that flag non-invariant parameters", flag_level)
     trials = check.whole_number("the number of Monte Carlo trials", trials, 0, check.MAX_REPLICATIONS)
     seed = check.seed(seed)
-    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,
-                                                 rename=rename, chosen=chosen_columns(group),
+    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,
+                                                 (id_column,) if isinstance(id_column, str) else (),
+                                                 names_row=names_row, first_data_row=first_data_row,
+                                                 rename=rename, chosen=chosen_columns(group, id_column),
                                                  keeps_gaps=keeps_rows_with_gaps(missing))
     frame, source = loaded.frame, loaded.source
+    ids, named_by = rows_named(loaded, id_column, spec.observed_names, group)
     notes = list(notes)
     spec = configural_spec(continuous_only(spec, "align"))
     loaded = analysed_odd_values(loaded, spec, group)  # values that look like no answers: named first
     with blas_threads_for(len(spec.observed_names)), odd_values_named(loaded):  # one thread: small matrices (numerics.threads)
         result = _align(spec, frame, source, group, reference_group, variant, flag_level, trials, seed, missing,
                         max_iterations, notes)
-    result = replace(result, configural=with_odd_values(result.configural, loaded, group, spec))
+    result = replace(result, configural=with_odd_values(result.configural, loaded, group, spec, None, ids, named_by))
     if not loaded.row_filters:
         return result
     data = replace(result.configural.data, row_filters=loaded.row_filters, rows_in_file=len(loaded.read_frame))

@@ -58,7 +58,7 @@ from cfa_tool.method import MissingData, WeightKind
 from cfa_tool.data.matching import chosen_columns
 from cfa_tool.pipeline.inputs import (_fit_rows, converged, keeps_rows_with_gaps, design_test, moments_for, odd_values_named,
                                       ordinal_items_of, read_inputs_with_notes, refit_missing_handling, with_design,
-                                      with_odd_values, without_exploratory_blocks)
+                                      with_odd_values, without_exploratory_blocks, rows_named)
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.workflows.parallel import REFITS_TOGETHER, refits_together, run_tasks
@@ -581,19 +581,23 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
               progress=None, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
               keep: tuple[str, ...] | list[str] = (), rename=None, weights: str | None = None, cluster: str | None = None,
               strata: str | None = None, weight_kind: str | None = None, ordinal: str | list[str] | None = None,
-              ordinal_estimator: str | None = None, missing: str | None = None):
+              ordinal_estimator: str | None = None, missing: str | None = None, id_column: str | None = None):
     """Fit the model, then bootstrap it: the result holds the fit (``.fit``) and its bootstrap.  A sampling design (``weights``,
     ``cluster``, ``strata``, ``weight_kind``, as for ``fit``) weights the fit and every resample, and the
     resamples draw whole clusters within strata.  Ordinal items (an 'ordinal' statement, or ``ordinal`` and
     ``ordinal_estimator`` as for ``fit``) are fitted by least squares, and each resample is refitted so, with
     percentile intervals only (``bca``: BCa intervals too, None where they apply: for continuous items; asked for
-    with ordinal items, an error)."""
+    with ordinal items, an error).  ``id_column``: the column that names each row (never analysed), beside the row numbers of the cautions about
+    rows, as for ``fit``."""
     replications, seed = bootstrap_options(replications, seed, workers)
     design = design_columns(weights, cluster, strata, weight_kind)
-    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,
-                                                 rename=rename, chosen=chosen_columns(design=design),
+    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,
+                                                 (id_column,) if isinstance(id_column, str) else (),
+                                                 names_row=names_row, first_data_row=first_data_row,
+                                                 rename=rename, chosen=chosen_columns(id_column=id_column, design=design),
                                                  keeps_gaps=keeps_rows_with_gaps(missing))
     frame, source = loaded.frame, loaded.source
+    ids, named_by = rows_named(loaded, id_column, spec.observed_names)
     one_group_only(spec, "the bootstrap resamples one group's rows")
     without_exploratory_blocks(spec, "bootstrap", "it resamples the parameters, and a block's rotated loadings are "
                                                   "not among them")
@@ -606,7 +610,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
         # the fit and in every resample (ordinal_resampling.analysed_rows); full-information ML refused as fit does
         with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
             result = with_odd_values(_fit_rows(spec, loaded, notes, None, None, FitOptions(missing=missing), ordinal,
-                                               ordinal_estimator), loaded, None, spec)
+                                               ordinal_estimator), loaded, None, spec, None, ids, named_by)
         return bootstrap_fit(result, spec, numeric_columns(frame, result.observed, source), replications, seed,
                              bollen_stine, bca, workers, scheduler, progress)
     if design is not None:
@@ -627,7 +631,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     result = replace(result, warnings=tuple(notes) + result.warnings)  # what reading and the row filters did
     if design is not None:
         result = with_design(result, design_summary(frame, design, [moments]), [moments])
-    result = with_odd_values(result, loaded, None, spec, design)
+    result = with_odd_values(result, loaded, None, spec, design, ids, named_by)
     order = [moments.names.index(n) for n in result.observed]
     return bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, scheduler,
                          progress, moments.design)

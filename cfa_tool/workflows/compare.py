@@ -8,7 +8,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import (_described, _no_group_notes, choose_missing_handling, has_group, design_test, few_categories, keeps_rows_with_gaps, load_spec, make_options, moments_for,
+from cfa_tool.pipeline.inputs import (_described, rows_named, _no_group_notes, choose_missing_handling, has_group, design_test, few_categories, keeps_rows_with_gaps, load_spec, make_options, moments_for,
                                       missing_codes_option, of_summary_statistics,
                                       data_problems, odd_values_named, reference_group_applies, reference_note,
                                       with_missing_reading,
@@ -111,7 +111,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
             keep: tuple[str, ...] | list[str] = (), rename: ColumnRenames = None, ordinal: str | list[str] | None = None,
             ordinal_estimator: str | None = None, weights: str | None = None, cluster: str | None = None,
-            strata: str | None = None, weight_kind: str | None = None, **options: object) -> Comparison:
+            strata: str | None = None, weight_kind: str | None = None, id_column: str | None = None,
+            **options: object) -> Comparison:
     """Fit every model to the same rows and test each nested pair.
 
     Rows with gaps are kept as ``fit`` keeps them: with missing answers every model is fitted by
@@ -124,7 +125,10 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
 
     With ordinal items (an 'ordinal' statement in any model, or ``ordinal``) every model is fitted
     by least squares on thresholds and polychoric correlations and nested pairs get the adjusted
-    difference test."""
+    difference test.
+
+    ``id_column``: the column that names each row (never analysed), beside the row numbers of the cautions about
+    rows, as for ``fit``."""
     if isinstance(models, (str, Spec)) or not hasattr(models, "__iter__"):
         raise OptionError("compare takes a list of models (model files, model texts or parsed models)")
     models = list(models)
@@ -151,20 +155,25 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         if design is not None:
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")
+        if id_column is not None:
+            raise OptionError(f"summary statistics hold no rows, so an id column ({Option.ID_COLUMN}) cannot apply; "
+                              f"leave it out")
         return _some_estimated(_compare_summary(specs, names, data, fit_options, group))
     refuse_different_codings(specs, names)
     _, loaded, notes = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep,
+                                              (id_column,) if isinstance(id_column, str) else (),
                                               items={x for spec in specs for x in spec.observed_names}, names_row=names_row, first_data_row=first_data_row,
-                                              rename=rename, chosen=chosen_columns(group, design=design),
+                                              rename=rename, chosen=chosen_columns(group, id_column, design=design),
                                               keeps_gaps=keeps_rows_with_gaps(fit_options.missing))
     used = sorted({x for spec in specs for x in spec.observed_names})
+    id_rows = rows_named(loaded, id_column, used, group)  # (ids, their column), which the cautions about rows give
     if design is not None:  # the weights parsed once, as fit parses them, for the check and the groups weighted out
         loaded = replace(loaded, weights=design_weights(loaded.frame, design, tuple(used), group, loaded.source))
     frame, source = loaded.frame, loaded.source
     at = np.arange(len(frame))  # each compared row's place among the rows read, where its parsed weight is
     coded = set(specs[0].observed_names)  # items of the later models only, each once: their answer words as codes
     for spec in specs[1:]:
-        named = check_columns(spec, list(frame.columns), source, loaded.sheet_hint(), chosen_columns(group, design=design))
+        named = check_columns(spec, list(frame.columns), source, loaded.sheet_hint(), chosen_columns(group, id_column, design=design))
         notes = list(notes) + [n for n in named if n not in notes]
         frame, coding_notes = code_answer_words(spec, frame, source, tuple(x for x in spec.observed_names if x not in coded),
                                                 missing_codes=missing_codes_option(missing_codes))  # as fit reads them
@@ -213,7 +222,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             reference_group_applies(found.results, reference_group)
             found = replace(found, notes=tuple(found.notes) + tuple(reference_note(found.results, complete, group,
                                                                                    reference_group)))
-            found = _some_estimated(_with_data_problems(found, loaded, specs, group, design, dropped, pairwise, True))
+            found = _some_estimated(_with_data_problems(found, loaded, specs, group, design, dropped, pairwise, True,
+                                                        id_rows))
             return replace(found, results=tuple(with_missing_reading(r, loaded, missing_codes) for r in found.results),
                            without_group=without_group)
         results = []
@@ -240,7 +250,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                                                               tuple(not_nested), len(complete), dropped,
                                                               fit_options.missing, tuple(notes),
                                                               without_group=without_group),
-                                                   loaded, specs, group, design, dropped, False, False))
+                                                   loaded, specs, group, design, dropped, False, False, id_rows))
 
 
 def _some_estimated(found: Comparison) -> Comparison:
@@ -266,16 +276,18 @@ COMPARE_KEYWORDS = own_keywords(compare)
 
 
 def _with_data_problems(found: Comparison, loaded, specs, group, design, dropped: int, pairwise: bool,
-                        ordinal: bool) -> Comparison:
+                        ordinal: bool, named: tuple[dict, str | None] = ({}, None)) -> Comparison:
     """The comparison with the cautions on the data (pipeline.inputs.data_problems, as fit gives them): each model's
     own before its problems (its declared scales, its items judged by its fit's coverage), and all of them once in
     the comparison's, then the ``dropped`` rows listwise deletion left out of every model
-    (pipeline.continuous.listwise_problem)."""
+    (pipeline.continuous.listwise_problem).  ``named``: the rows' ids and their column
+    (pipeline.inputs.rows_named)."""
     results, found_all = [], []
     for r, spec in zip(found.results, specs):
         coverage = (r.missing_data or {}).get("coverage", {})
-        own = data_problems(loaded, spec, group, design, names=tuple(spec.observed_names), coverage=coverage,
-                            n_obs=r.n_obs, listwise=found.missing is MissingData.LISTWISE and not pairwise)
+        own = data_problems(loaded, spec, group, design, named[0], names=tuple(spec.observed_names),
+                            coverage=coverage, n_obs=r.n_obs,
+                            listwise=found.missing is MissingData.LISTWISE and not pairwise, id_column=named[1])
         found_all += own
         results.append(replace(r, problems=solution_first(tuple(p for p in own if p not in r.problems)
                                                           + tuple(r.problems))))

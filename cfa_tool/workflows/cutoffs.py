@@ -37,7 +37,7 @@ from cfa_tool.method import MissingData
 from cfa_tool.assessment.admissibility import counted_problems, refuse_inadmissible_fit, replicated_problems
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, model_structure, moments_from_rows, replicate_fits
 from cfa_tool.pipeline.inputs import (_fit_rows, converged, keeps_rows_with_gaps, odd_values_named, ordinal_items_of, read_inputs_with_notes,
-                                      refit_missing_handling, with_odd_values)
+                                      refit_missing_handling, with_odd_values, rows_named)
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import build_parameter_table
@@ -347,22 +347,31 @@ def _cutoffs(correct: np.ndarray, mis: np.ndarray) -> dict[tuple[str, float], fl
 def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 200, seed: int = 1,
             workers: int | None = None, scheduler: str | None = None, progress=None, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None,
             missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), rename=None,
-            ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None):
+            ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
+            id_column: str | None = None):
     """Fit the model, then simulate model-specific fit-index cutoffs: the result holds the fit (``.fit``) and the
     cutoffs.  Ordinal items (an 'ordinal' statement, or ``ordinal`` and ``ordinal_estimator`` as for ``fit``) are
     fitted by least squares, the samples are simulated as ordinal answers and fitted so, and the cutoffs are of
-    the adjusted indices the fit reports."""
+    the adjusted indices the fit reports.  ``id_column``: the column that names each row (never analysed), beside the row numbers of the cautions about
+    rows, as for ``fit``."""
+    from cfa_tool.data.matching import chosen_columns
+
     replications, seed = cutoff_options(replications, seed, workers)
-    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,
-                                                 rename=rename, keeps_gaps=keeps_rows_with_gaps(missing))
+    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,
+                                                 (id_column,) if isinstance(id_column, str) else (),
+                                                 names_row=names_row, first_data_row=first_data_row, rename=rename,
+                                                 chosen=chosen_columns(id_column=id_column),
+                                                 keeps_gaps=keeps_rows_with_gaps(missing))
     frame, source = loaded.frame, loaded.source
+    ids, named_by = rows_named(loaded, id_column, spec.observed_names)
     one_group_only(spec, "the cutoffs are simulated for one group's model")
     if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:
         with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
             # the rows as fit takes them: pairwise present rows by default, the complete rows with missing='listwise'
             # (given before, it was left unused), full-information ML refused as fit refuses it
             result = _fit_rows(spec, loaded, notes, None, None, FitOptions(missing=missing), ordinal, ordinal_estimator)
-        return fit_cutoffs(spec, with_odd_values(result, loaded, None, spec), replications, seed, workers, scheduler, progress)
+        return fit_cutoffs(spec, with_odd_values(result, loaded, None, spec, None, ids, named_by), replications, seed,
+                           workers, scheduler, progress)
     handling, missing_notes = refit_missing_handling(frame, spec.observed_names, missing)
     moments = sample_moments(frame, spec.observed_names, source, missing=handling)
     with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
@@ -371,5 +380,6 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
     patterns = None
     if handling is MissingData.FULL_INFORMATION:
         patterns = ~np.isnan(moments.rows[:, [moments.names.index(n) for n in result.observed]])
-    return fit_cutoffs(spec, with_odd_values(result, loaded, None, spec), replications, seed, workers, scheduler, progress,
+    return fit_cutoffs(spec, with_odd_values(result, loaded, None, spec, None, ids, named_by), replications, seed,
+                       workers, scheduler, progress,
                        patterns)

@@ -798,7 +798,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     # and what was read as no answer (codes given, values the file marks so), which the methods paragraph names as
     # fit's does (new-user trial s18: the scores' paragraph left out the codes 8 and 9)
     result = api.with_missing_reading(api.with_odd_values(result, loaded, group, spec, design,
-                                                          ids_by_row_number(ids, read_frame)), loaded, missing_codes)
+                                                          ids_by_row_number(ids, read_frame),
+                                                          api.id_filter_column(id_column, loaded)), loaded, missing_codes)
     data_cautions = tuple(p for p in result.problems if p not in fitted_problems)
     chosen_by = api.reference_note(result, frame, group, reference_group)  # as fit names the reference group
     if chosen_by:

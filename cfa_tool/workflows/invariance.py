@@ -24,7 +24,7 @@ from cfa_tool.data.groups import reference_rule
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.options import own_keywords
 from cfa_tool.data.matching import chosen_columns
-from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_categories, keeps_rows_with_gaps,
+from cfa_tool.pipeline.inputs import (_described, rows_named, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_categories, keeps_rows_with_gaps,
                                       make_options, moments_for, data_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
                                       with_design_weights, with_missing_reading, with_rows_read)
@@ -347,7 +347,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None,
                decide_by: str | DecisionRule = DecisionRule.DIFFERENCE_TEST, weights: str | None = None,
                cluster: str | None = None, strata: str | None = None, weight_kind: str | None = None,
-               progress: Callable[..., None] | None = None, **options: object) -> InvarianceResult:
+               progress: Callable[..., None] | None = None, id_column: str | None = None,
+               **options: object) -> InvarianceResult:
     """Fit the invariance ladder; with ``partial='auto'`` free the likeliest culprits until each step holds.
     ``decide_by`` names how each step is judged (:class:`DecisionRule`).  A sampling design (``weights``,
     ``cluster``, ``strata``, ``weight_kind``, as for ``fit``) weights every step, whose difference tests are
@@ -360,7 +361,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     With ordinal items (an 'ordinal' statement or ``ordinal``) the ladder is configural, thresholds,
     metric, scalar, strict, fitted by least squares on thresholds and polychoric correlations; continuous items
     beside them add their means and variances, and their intercepts and residual variances are held equal at the
-    scalar and strict steps as for continuous items alone (Millsap & Yun-Tein 2004)."""
+    scalar and strict steps as for continuous items alone (Millsap & Yun-Tein 2004).  ``id_column``: the column that
+    names each row (never analysed), beside the row numbers of the cautions about rows, as for ``fit``."""
     if not isinstance(group, str):
         raise OptionError(f"the invariance ladder needs a group column, given by its name (text), not "
                           f"{type(group).__name__}")
@@ -377,15 +379,18 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                               0.05 if alpha is None else alpha)
     fit_options = replace(make_options(options, INVARIANCE_KEYWORDS), diagnostics=False)
     design = design_columns(weights, cluster, strata, weight_kind)
-    spec, loaded, read_notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,
-                                                 rename=rename, chosen=chosen_columns(group, design=design),
+    spec, loaded, read_notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,
+                                                 (id_column,) if isinstance(id_column, str) else (),
+                                                 names_row=names_row, first_data_row=first_data_row,
+                                                 rename=rename, chosen=chosen_columns(group, id_column, design=design),
                                                  keeps_gaps=keeps_rows_with_gaps(fit_options.missing))
     frame, source = loaded.frame, loaded.source
     # values that look like no answers, among the rows with a group label: first among the cautions
     # the weights parsed once, as fit parses them, for the check of the design and the groups weighted out
     analysed = with_design_weights(analysed_odd_values(loaded, spec, group), design, spec, group)
-    found = data_problems(analysed, spec, group, design,  # as fit gives them
-                          listwise=fit_options.missing is MissingData.LISTWISE)
+    ids, named_by = rows_named(loaded, id_column, spec.observed_names, group)
+    found = data_problems(analysed, spec, group, design, ids,  # as fit gives them
+                          listwise=fit_options.missing is MissingData.LISTWISE, id_column=named_by)
     data_cautions = tuple(p.line() for p in found)
     if spec.invariant:
         where = spec.equalities_location

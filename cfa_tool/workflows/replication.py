@@ -65,7 +65,7 @@ import pandas as pd
 
 from cfa_tool.data.halves import drawn_halves
 from cfa_tool.model.parameters import one_group_only
-from cfa_tool.pipeline.inputs import (_described, data_problems, keeps_rows_with_gaps, load_spec, make_options, odd_values_named,
+from cfa_tool.pipeline.inputs import (_described, data_problems, rows_named, keeps_rows_with_gaps, load_spec, make_options, odd_values_named,
                                       read_inputs_with_notes, refit_missing_handling, refuse_totals_rows,
                                       with_missing_reading)
 from cfa_tool.assessment.admissibility import inadmissible_words
@@ -550,7 +550,7 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
               sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
               validation_names_row: int | None = None, first_data_row: int | None = None,
               validation_first_data_row: int | None = None, keep: tuple[str, ...] | list[str] = (),
-              rename=None, validation_rename=None,
+              rename=None, validation_rename=None, id_column: str | None = None,
               **options) -> Replication:
     """Calibrate on one data set, validate on another.  ``ordinal``, ``ordinal_estimator``: ordinal items and
     their least-squares estimator, as for ``fit`` (an 'ordinal' statement in the model declares them too);
@@ -561,7 +561,8 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     data start (``first_data_row``, ``validation_first_data_row``).  ``keep``: row filters ('Finished = True'),
     applied to each file, as for ``fit``; each file's notes say how many rows they kept.  So are the columns read under new names:
     ``rename`` those of the calibration file, ``validation_rename`` those of the validation file ({'SL3r': 'SL3_r'}:
-    a follow-up sample's file that names an item differently)."""
+    a follow-up sample's file that names an item differently).  ``id_column``: the column of each file that names
+    its rows (never analysed), beside the row numbers of the cautions about rows, as for ``fit``."""
     spec = load_spec(model)
     one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
@@ -575,14 +576,16 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     # that look like no answers): a hostile trial found replicate analysing answers beyond a declared scale that fit
     # refuses; the row filters apply to each file, their notes naming it
     gaps = keeps_rows_with_gaps(missing)  # a half of halves of the complete rows only when they are left out
-    read, notes = zip(read_inputs_with_notes(spec, calibration, sheets[0], missing_codes, keep, names_row=names_row,
+    ids = (id_column,) if isinstance(id_column, str) else ()
+    read, notes = zip(read_inputs_with_notes(spec, calibration, sheets[0], missing_codes, keep, ids, names_row=names_row,
                                              first_data_row=first_data_row, name_the_file=True, rename=rename,
-                                             keeps_gaps=gaps)[1:],
-                      read_inputs_with_notes(spec, validation, sheets[1], missing_codes, keep,
+                                             chosen=chosen_columns(id_column=id_column), keeps_gaps=gaps)[1:],
+                      read_inputs_with_notes(spec, validation, sheets[1], missing_codes, keep, ids,
                                              names_row=validation_names_row, names_option=Option.VALIDATION_NAMES_ROW,
                                              first_data_row=validation_first_data_row, name_the_file=True,
                                              rename=validation_rename, rename_option=Option.VALIDATION_RENAME,
-                                             keeps_gaps=gaps)[1:])
+                                             chosen=chosen_columns(id_column=id_column), keeps_gaps=gaps)[1:])
+    named = [rows_named(each, id_column, spec.observed_names) for each in read]  # each file's ids and their column
     (cal_frame, cal_source), (val_frame, val_source) = [(loaded.frame, loaded.source) for loaded in read]
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
     for each in read:  # a totals row in either file is refused (the estimation failures name the first file's)
@@ -602,10 +605,11 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                      for p in _left_out(r.data.rows_dropped, r.data.rows_read, source, r.method.missing, ordinal_items))
     # each file's row filters kept with its fit (the methods paragraph names them) and its cautions naming the file:
     # the two files' range restrictions read alike, and one left out as a repeat, without it
-    found = tuple(dict.fromkeys(p for s, which, r in zip(read, ("calibration", "validation"),
-                                                         (result.calibration_result, result.loose))
-                                for p in data_problems(s, spec, where=f" on the {which} data ({s.source})",
-                                                       listwise=r.method.missing is MissingData.LISTWISE)))
+    found = tuple(dict.fromkeys(p for s, which, r, (ids_of, by) in zip(read, ("calibration", "validation"),
+                                                                       (result.calibration_result, result.loose), named)
+                                for p in data_problems(s, spec, ids=ids_of, where=f" on the {which} data ({s.source})",
+                                                       listwise=r.method.missing is MissingData.LISTWISE,
+                                                       id_column=by)))
     # what each file read as no answer, as fit keeps it (with_missing_reading, the filters too): the paragraph names it
     cal, loose = (with_missing_reading(result.calibration_result, read[0], missing_codes),
                   with_missing_reading(result.loose, read[1], missing_codes))
@@ -634,7 +638,8 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
                sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
                first_data_row: int | None = None, keep: tuple[str, ...] | list[str] = (), rename=None,
-               cluster: str | None = None, strata: str | None = None, **options) -> tuple[Replication, Replication]:
+               cluster: str | None = None, strata: str | None = None, id_column: str | None = None,
+               **options) -> tuple[Replication, Replication]:
     """Random halves A and B (seeded) of the rows analysed (with continuous items and gaps, every row with an
     answer, as fit keeps them; else the complete rows): calibrate on A and validate on B, then the reverse.
     ``keep``: row filters ('Finished = True'), applied before the split, as for ``fit``: the halves are drawn from
@@ -642,7 +647,8 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     cluster by cluster, whole clusters to each half, so that the halves are independent samples of clusters;
     ``strata``: a column naming each row's stratum, the halves drawn within each stratum (its clusters, or its rows
     without ``cluster``; data.halves.draw_cluster_halves).  The fits within each half still take its rows as
-    independent, and the reports say so."""
+    independent, and the reports say so.  ``id_column``: the column that names each row (never analysed), beside the
+    row numbers of the cautions about rows, as for ``fit``."""
     seed = check.seed(seed)
     design = _split_design(cluster, strata)
     spec = load_spec(model)
@@ -650,9 +656,10 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
                                                      options if missing is None else {**options, "missing": missing},
                                                      SPLIT_HALF_KEYWORDS)
-    _, loaded, notes = read_inputs_with_notes(spec, data, sheet, missing_codes, keep, names_row=names_row,
+    _, loaded, notes = read_inputs_with_notes(spec, data, sheet, missing_codes, keep,
+                                              (id_column,) if isinstance(id_column, str) else (), names_row=names_row,
                                               first_data_row=first_data_row, rename=rename,
-                                              chosen=chosen_columns(design=design),
+                                              chosen=chosen_columns(id_column=id_column, design=design),
                                               keeps_gaps=keeps_rows_with_gaps(missing))  # as fit reads it
     notes = tuple(notes)
     frame, source = loaded.frame, loaded.source
@@ -668,7 +675,8 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     from cfa_tool.pipeline.column_codes import column_code_problems
 
     # (a cluster or strata column the halves are drawn by that keeps a no-answer code: one cluster of its rows)
-    problems = tuple(dict.fromkeys(data_problems(loaded, spec, listwise=rows.complete_only)
+    ids, named_by = rows_named(loaded, id_column, spec.observed_names)
+    problems = tuple(dict.fromkeys(data_problems(loaded, spec, ids=ids, listwise=rows.complete_only, id_column=named_by)
                                    + column_code_problems(loaded, None, design))) + _left_out(
         len(frame) - split, len(frame), source, MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
     # what the file read as no answer kept with each half's fit, as fit keeps it (with_missing_reading; the filters,
@@ -776,7 +784,7 @@ class SplitRows:
         if not self.filters:
             return ""
         which = "filter" if len(self.filters) == 1 else "filters"
-        return (f" kept by the row {which} {', '.join(repr(f.text) for f in self.filters)} (of the "
+        return (f" kept by the row {which} {', '.join(repr(str(f)) for f in self.filters)} (of the "
                 f"{self.rows_in_file} rows in the file)")
 
 

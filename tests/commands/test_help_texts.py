@@ -68,4 +68,4 @@ def test_the_data_files_page_names_options_the_fit_takes_and_filters_that_parse(
         if value and option != "--sheet":  # NAME: a placeholder
             args = build_parser("fit").parse_args(["fit", "m.cfa", "--data", "d.csv", f"{option}={value.strip(chr(39))}"])
             if option == "--keep":
-                assert parse_filter(args.keep[0]).column in ("district", "visit_date")
+                assert parse_filter(args.keep[0]).column in ("district", "visit_date", "rider_id")

@@ -28,13 +28,18 @@ BLANK_AFTER = (40, 41, 200)  # blank sheet rows are put after these data rows (0
 FOOTER = "Total responses: 480"
 
 
+UNANSWERED = 300  # the data row (0-based) that answers no item: its id alone
+
+
 def _export(rider_demo: pd.DataFrame, path, question_texts: bool = False, bad_cell: int | None = None):
-    """A platform-like export of the demo: blank rows among the data, two blank rows and a footer under them;
-    ``question_texts``: a row of question texts above the codes; ``bad_cell``: the data row (0-based) whose
-    'on_time' answer is the text 'x'.  Returns the workbook path and each data row's sheet row."""
+    """A platform-like export of the demo: blank rows among the data, a row that answers no item (its id alone), two
+    blank rows and a footer (a notes line) under them; ``question_texts``: a row of question texts above the codes;
+    ``bad_cell``: the data row (0-based) whose 'on_time' answer is the text 'x'.  Returns the workbook path, each
+    data row's sheet row and the footer's sheet row."""
     data = rider_demo.copy()
     for k in (3, 17, 99):  # a few gaps, so that rows with gaps are counted
         data.loc[k, "clean"] = np.nan
+    data.loc[UNANSWERED, ["district"] + ITEMS] = np.nan
     data = data.astype(object).where(data.notna(), None)
     book = openpyxl.Workbook()
     sheet = book.active
@@ -95,22 +100,33 @@ def test_blank_rows_and_a_footer_count_alike_in_the_file_and_a_data_frame(rider_
     from_file = cfa_tool.fit(rider_model, str(path))
     from_frame = cfa_tool.fit(rider_model, by_pandas)
     checked = cfa_tool.check(rider_model, str(path))
+    unanswered = rows[UNANSWERED]
     for result in (from_file, from_frame):
-        assert result.data.rows_read == len(rider_demo) + 1  # the answers and the footer; no blank row
-        assert result.n_obs == len(rider_demo)
+        # the answers, the row that answers nothing among them; no blank row, and the footer is no respondent
+        # (new-user trial s18: "1 of 1201 rows answered no model variable" for a file of 1200 respondents)
+        assert result.data.rows_read == len(rider_demo)
+        assert result.n_obs == len(rider_demo) - 1
         gaps = [w for w in result.warnings if "miss some answers" in w]
-        assert gaps and str(gaps[0]).startswith(f"{gaps_by_pandas} of {len(rider_demo) + 1} rows")
+        assert gaps and str(gaps[0]).startswith(f"{gaps_by_pandas} of {len(rider_demo)} rows")
         blank = [w for w in result.warnings if "with no value in any column" in w]
         assert blank and blank[0].count(",") >= 4  # the rows are named
-    assert checked.with_gaps == gaps_by_pandas and checked.empty == 1 and checked.empty_rows == (footer_row,)
-    assert f"1 with no answer to any model variable (row {footer_row})." in checked.summary()
+        footer = [w for w in result.warnings if FOOTER in str(w)]  # said once, as the line of text it is
+        assert len(footer) == 1 and "under the data holds only text" in footer[0]
+        assert not [w for w in result.warnings if "answered none" in w and "row 4" in w]
+    assert f"row {footer_row} under the data holds only text ('{FOOTER}')" in " ".join(map(str, from_file.warnings))
+    assert checked.with_gaps == gaps_by_pandas and checked.empty == 1 and checked.empty_rows == (unanswered,)
+    assert f"1 with no answer to any model variable (row {unanswered})." in checked.summary()
     file_notes = [w for w in from_file.warnings if "answered none of the model variables" in w]
-    assert file_notes == [f"1 of {len(rider_demo) + 1} rows answered none of the model variables and was left out "
-                          f"(row {footer_row})"]
-    with_ids = cfa_tool.fit(rider_model, str(path), id_column="rider_id")  # the footer's text is its id
-    assert any(str(w).endswith(f"left out (row {footer_row} ('{FOOTER}'))") for w in with_ids.warnings)
+    assert file_notes == [f"1 of {len(rider_demo)} rows answered none of the model variables and was left out "
+                          f"(row {unanswered})"]
+    with_ids = cfa_tool.fit(rider_model, str(path), id_column="rider_id")
+    rider = rider_demo["rider_id"][UNANSWERED]
+    assert any(str(w).endswith(f"left out (row {unanswered} ('{rider}'))") for w in with_ids.warnings)
     blank_rows = next(w for w in from_file.warnings if "with no value in any column" in w)
-    assert f"rows {rows[40] + 1}, {rows[40] + 2}, {rows[41] + 1}, {rows[41] + 2}, {rows[200] + 1} and 3 more" in blank_rows
+    # the blank rows among the data; those between the data and the footer end the table, as without the footer
+    assert f"rows {rows[40] + 1}, {rows[40] + 2}, {rows[41] + 1}, {rows[41] + 2}, {rows[200] + 1} and 1 more" in blank_rows
+    assert "6 rows with no value in any column" in blank_rows  # and so many in the frame pandas read
+    assert "6 rows with no value in any column" in next(w for w in from_frame.warnings if "no value in any" in w)
     # the same coverage in both methods paragraphs
     assert from_file.data.answered == from_frame.data.answered
 
@@ -120,17 +136,20 @@ def test_a_footer_row_gets_empty_scores(rider_demo, rider_model, tmp_path, metho
     path, _, _ = _export(rider_demo, tmp_path / "export.xlsx")
     scored = cfa_tool.scores(rider_model, str(path), methods=[method], id_column="rider_id")
     table = scored.table
-    # one line per row of the sheet from the first row of data to the footer: its blank rows as empty lines, so that
-    # the scores line up with the sheet (hostile trial s11)
-    assert len(table) == len(rider_demo) + 1 + 8 and list(table.index) == list(range(table.index[0], table.index[-1] + 1))
-    why = table.pop("why_not_scored")  # the lines without any score say why (the blank rows, the footer)
-    assert table.isna().all(axis=1).sum() == 8 and why[table.isna().all(axis=1)].eq("blank row").all()
-    footer = table[table["rider_id"] == FOOTER]
-    assert len(footer) == 1 and why[footer.index].tolist() == ["no answers"]
+    # one line per row of the sheet from the first row of data to the last: its blank rows as empty lines, so that
+    # the scores line up with the sheet (hostile trial s11); the footer under the data is no row of data (new-user
+    # trial s18: it was written as an id, "no answers")
+    assert len(table) == len(rider_demo) + 6 and list(table.index) == list(range(table.index[0], table.index[-1] + 1))
+    assert FOOTER not in table["rider_id"].tolist()
+    why = table.pop("why_not_scored")  # the lines without any score say why (the blank rows, the row of no answer)
+    assert table.isna().all(axis=1).sum() == 6 and why[table.isna().all(axis=1)].eq("blank row").all()
+    silent = table[table["rider_id"] == rider_demo["rider_id"][UNANSWERED]]
+    assert len(silent) == 1 and why[silent.index].tolist() == ["no answers"]
     score_columns = [c for c in table.columns if c.endswith(method.replace("-", "_"))]
     assert len(score_columns) == 3
-    assert footer[score_columns].isna().all(axis=None)  # no answer: no score, never 0
-    assert table[score_columns][table["rider_id"].notna()].iloc[:-1].notna().all(axis=None)
+    assert silent[score_columns].isna().all(axis=None)  # no answer: no score, never 0
+    answered = table["rider_id"].notna() & (table["rider_id"] != rider_demo["rider_id"][UNANSWERED])
+    assert table[score_columns][answered].notna().all(axis=None)
 
 
 def test_a_row_of_the_models_names_under_question_texts_is_said_and_can_be_read(rider_demo, rider_model, tmp_path):
@@ -219,11 +238,12 @@ def test_replicate_applies_the_sheet_to_the_workbook_only(rider_demo, rider_mode
 
 
 def test_scores_name_the_footer_row_by_its_id_as_fit_does(rider_demo, rider_model, tmp_path):
-    """Re-check of the merged round: with --id, fit named the footer by its text and scores only by its number."""
-    path, _, footer_row = _export(rider_demo, tmp_path / "export.xlsx")
+    """Re-check of the merged round: with --id, fit named a row that answers nothing by its id and scores only by its
+    number."""
+    path, rows, _ = _export(rider_demo, tmp_path / "export.xlsx")
     scored = cfa_tool.scores(rider_model, str(path), id_column="rider_id")
     said = scored.warnings + tuple(scored.fit.warnings) + tuple(scored.notes)
-    assert any(f"left out (row {footer_row} ('{FOOTER}'))" in w for w in said)
+    assert any(f"left out (row {rows[UNANSWERED]} ('{rider_demo['rider_id'][UNANSWERED]}'))" in w for w in said)
 
 
 def test_rows_that_answer_nothing_are_named_by_their_ids_whatever_the_frame_index(rider_demo, rider_model):

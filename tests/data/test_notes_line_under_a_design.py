@@ -1,8 +1,10 @@
-"""A spreadsheet export's notes line under the data (text in the id column, every other cell empty) answers no model
-variable, so every estimation leaves it out; under a sampling design it has no weight, cluster or stratum either,
-which must not refuse the file (new-user trial s18: 'row 1202: no weight (every row needs one ...)' stopped every
-weighted run).  The fit with the line equals the fit of the file without it, and a note names the row; a row that
-answers an item and has no weight is still refused."""
+"""A spreadsheet export's notes line under the data (text in the id column, every other cell empty) is no row of data:
+the reader leaves it out with a note (new-user trial s19: "1 of 1201 rows answered no model variable" for 1200
+respondents).  A row that answers no model variable (an id alone) is a row, which every estimation leaves out; under a
+sampling design it has no weight, cluster or stratum either, which must not refuse the file (new-user trial s18: 'row
+1202: no weight (every row needs one ...)' stopped every weighted run).  The fits with the line and with the row
+equal the fit of the file without them, and a note names the row; a row that answers an item and has no weight is
+still refused."""
 
 from __future__ import annotations
 
@@ -27,28 +29,36 @@ def _files(tmp_path, ordinal: bool = False):
         pd.DataFrame(np.round(items, 2), columns=["a1", "a2", "a3", "a4"]))
     frame["school"] = rng.integers(0, 30, n)
     frame["weight"] = rng.uniform(0.5, 2.0, n).round(3)
-    without, with_line = tmp_path / "without.csv", tmp_path / "with_line.csv"
+    without, with_line, with_row = tmp_path / "without.csv", tmp_path / "with_line.csv", tmp_path / "with_row.csv"
     frame.to_csv(without, index=False)
     with_line.write_text(without.read_text() + "Notes: exported by hand,,,,,,\n")
-    return without, with_line
+    with_row.write_text(without.read_text() + "S-999,,,,,,\n")  # a respondent with an id and nothing else
+    return without, with_line, with_row
 
 
 @pytest.mark.parametrize("design", [{"weights": "weight"}, {"cluster": "school"},
                                     {"weights": "weight", "cluster": "school"}])
 @pytest.mark.parametrize("estimation", [{}, {"ordinal": "all"}])
-def test_a_notes_line_under_the_data_is_left_out_with_a_note(tmp_path, design, estimation):
-    without, with_line = _files(tmp_path, ordinal=bool(estimation))
+def test_a_row_that_answers_nothing_is_left_out_with_a_note(tmp_path, design, estimation):
+    without, with_line, with_row = _files(tmp_path, ordinal=bool(estimation))
     clean = cfa_tool.fit(MODEL, without, **design, **estimation)
-    noted = cfa_tool.fit(MODEL, with_line, **design, **estimation)
-    assert [r.estimate for r in noted.estimates] == [r.estimate for r in clean.estimates]
-    assert noted.fit.chi_square == clean.fit.chi_square
+    for path in (with_line, with_row):
+        noted = cfa_tool.fit(MODEL, path, **design, **estimation)
+        assert [r.estimate for r in noted.estimates] == [r.estimate for r in clean.estimates]
+        assert noted.fit.chi_square == clean.fit.chi_square
+    said = " ".join(str(w) for w in noted.warnings)
     lacking = " or ".join(w for w, k in (("weight", "weights"), ("cluster", "cluster")) if k in design)
-    assert (f"row 302 answers no model variable and has no {lacking}, so it was left out"
-            in " ".join(str(w) for w in noted.warnings))
+    assert f"row 302 answers no model variable and has no {lacking}, so it was left out" in said
+    assert noted.data.rows_read == 301
+    lined = cfa_tool.fit(MODEL, with_line, **design, **estimation)  # the notes line: no row read, said once
+    assert lined.data.rows_read == 300 and lined.to_dict()["data"]["rows_read"] == 300
+    said = [str(w) for w in lined.warnings if "row 302" in str(w)]
+    assert said == [f"{with_line}: row 302 under the data holds only text ('Notes: exported by hand'), a note rather "
+                    f"than a respondent's answers, so it was not read as a row of data"]
 
 
 def test_a_row_that_answers_an_item_still_needs_its_weight(tmp_path):
-    without, _ = _files(tmp_path)
+    without, _, _ = _files(tmp_path)
     frame = pd.read_csv(without)
     frame.loc[7, "weight"] = np.nan
     frame.to_csv(without, index=False)
@@ -61,8 +71,10 @@ def test_the_methods_paragraph_says_why_the_design_left_rows_out(tmp_path, hs_da
     # group column' in a fit without groups
     from cfa_tool.reporting.paragraph import methods_paragraph
 
-    _, with_line = _files(tmp_path)
-    text = methods_paragraph(cfa_tool.fit(MODEL, with_line, weights="weight"))
+    _, with_line, with_row = _files(tmp_path)
+    lined = methods_paragraph(cfa_tool.fit(MODEL, with_line, weights="weight"))
+    assert "N = 300" in lined and "301" not in lined and "left out" not in lined  # the notes line is no respondent
+    text = methods_paragraph(cfa_tool.fit(MODEL, with_row, weights="weight"))
     assert "group column" not in text
     assert ("1 of 301 rows was left out by the sampling design (a weight of 0, or no answer and no weight, cluster or "
             "stratum)") in text

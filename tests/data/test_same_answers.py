@@ -12,7 +12,7 @@ import cfa_tool
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.data.same_answers import same_answer_rows
 from cfa_tool.version import __version__
-from tests.conftest import simulate_cfa
+from tests.conftest import five_point_answers
 
 MODEL = "factor f: a1, a2, a3, a4\nfactor g: b1, b2, b3, b4\n"
 REVERSED = "reversed a2, b3 on 1 to 5\n"
@@ -20,14 +20,7 @@ REVERSED = "reversed a2, b3 on 1 to 5\n"
 
 def _answers(seed: int = 5) -> pd.DataFrame:
     """Two factors of four five-point items, a2 and b3 reverse-keyed (negative population loadings), N = 300."""
-    loadings = np.zeros((8, 2))
-    loadings[:4, 0] = [0.7, -0.6, 0.7, 0.6]
-    loadings[4:, 1] = [0.6, 0.7, -0.7, 0.6]
-    phi = np.array([[1.0, 0.3], [0.3, 1.0]])
-    theta = np.diag(1 - np.diag(loadings @ phi @ loadings.T))
-    names = ["a1", "a2", "a3", "a4", "b1", "b2", "b3", "b4"]
-    latent = simulate_cfa(loadings, phi, theta, n=300, seed=seed, names=names)
-    frame = latent.apply(lambda x: 1 + np.searchsorted([-1.2, -0.4, 0.4, 1.2], x)).astype(float)
+    frame = five_point_answers(300, seed)
     frame.insert(0, "respondent", [f"P{k:03d}" for k in range(1, 301)])
     return frame
 

@@ -1,0 +1,108 @@
+"""A row filter with a list of values, 'COLUMN in V1, V2, ...' and 'COLUMN not in V1, V2, ...' (new-user trial s19,
+finding 08: the careless-responding caution named 30 ids and advised a row filter, --keep had no list form, so it took
+30 options and the methods paragraph said 30 clauses "student_id was not S-00601, ...").  The list is one filter, one
+note and one clause with its count; the JSON keeps it as written, every value; the caution's advice writes the exact
+filter from the ids.  Check values: the fit of the rows pandas keeps itself (``Series.isin``), and the rows the test
+planted.  Data: simulated answers (a fixed seed) of invented respondents."""
+
+from __future__ import annotations
+
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.data.filters import apply_filters, parse_filter
+from cfa_tool.errors import OptionError
+from cfa_tool.note_parts import Command, Note
+from cfa_tool.reporting.paragraph import methods_paragraph
+from tests.conftest import five_point_answers, run_cli
+
+MODEL = "factor f: a1, a2, a3, a4\nfactor g: b1, b2, b3, b4\nreversed a2, b3 on 1 to 5\n"
+CARELESS = list(range(100, 130))  # the positions of 30 rows answering 1 to every item
+
+
+def careless_answers(seed: int = 19) -> pd.DataFrame:
+    """400 simulated respondents (tests.conftest.five_point_answers), the 30 at :data:`CARELESS` answering 1 to
+    every item; an id, a school and a sex column."""
+    frame = five_point_answers(400, seed)
+    frame.loc[CARELESS, list(frame.columns)] = 1.0
+    frame.insert(0, "student_id", [f"S-{k:05d}" for k in range(1, 401)])
+    frame.insert(1, "school", [f"School {k % 8 + 1}" for k in range(400)])
+    frame.insert(2, "sex", ["girl", "boy"] * 200)
+    return frame
+
+
+_answers = careless_answers
+
+
+def test_a_list_keeps_the_rows_with_one_of_its_values_or_none_of_them():
+    frame = _answers()
+    kept, notes, [counted] = apply_filters(frame, [parse_filter("school in School 1, School 2")], "f.csv")
+    assert kept.index.tolist() == frame.index[frame["school"].isin(["School 1", "School 2"])].tolist()
+    assert notes == ["row filter 'school in School 1, School 2' kept 100 of 400 rows"]
+    assert counted.in_words() == "school was one of School 1, School 2"
+    ids = frame["student_id"][CARELESS].tolist()
+    text = "student_id not in " + ", ".join(ids)
+    kept, notes, [counted] = apply_filters(frame, [parse_filter(text)], "f.csv")
+    assert kept.index.tolist() == frame.index[~frame["student_id"].isin(ids)].tolist()
+    assert notes == ["row filter 'student_id not in S-00101, S-00102, S-00103, ... (30 values)' kept 370 of 400 rows"]
+    assert counted.in_words() == "student_id was none of 30 listed values (S-00101, S-00102, S-00103, ...)"
+    numbers, _, _ = apply_filters(frame, [parse_filter("a1 not in 1, 2")], "f.csv")  # numbers compared as numbers
+    assert len(numbers) == int((~frame["a1"].isin([1.0, 2.0])).sum())
+    quoted = parse_filter('school in "School 1, annex", School 2')  # a value with a comma, in double quotes
+    assert quoted.value == ("School 1, annex", "School 2")
+
+
+def test_the_fit_the_methods_paragraph_and_the_json_say_the_list_once(tmp_path, capsys):
+    frame = _answers()
+    ids = frame["student_id"][CARELESS].tolist()
+    text = "student_id not in " + ", ".join(ids)
+    result = cfa_tool.fit(MODEL, frame, keep=[text])
+    reference = cfa_tool.fit(MODEL, frame[~frame["student_id"].isin(ids)].reset_index(drop=True))
+    assert result.n_obs == 370 and result.fit.chi_square == pytest.approx(reference.fit.chi_square, rel=1e-10)
+    paragraph = methods_paragraph(result)
+    assert ("N = 370 of the 400 rows in the data file, those where student_id was none of 30 listed values "
+            "(S-00101, S-00102, S-00103, ...)") in paragraph
+    assert result.to_dict()["data"]["row_filters"] == [text]  # every value, as written
+    # the same rows left out by 30 filters of one column: one clause too
+    many = cfa_tool.fit(MODEL, frame, keep=[f"student_id != {i}" for i in ids])
+    assert many.fit.chi_square == pytest.approx(reference.fit.chi_square, rel=1e-10)
+    assert "was none of 30 listed values (S-00101, S-00102, S-00103, ...)" in methods_paragraph(many)
+    assert "was not S-" not in methods_paragraph(many)
+
+
+@pytest.mark.parametrize("text, words", [
+    ("student_id not in", "no values after 'not in'"),
+    ("student_id not in S-00101,, S-00102", "value 2 of the list is empty after 'S-00101'"),
+    ("student_id in S-00101, S-00101", "'S-00101' is listed twice"),
+    ('school in "School 1, School 2', "a double quote in the list of values is not closed"),
+])
+def test_a_bad_list_is_refused_naming_the_option_and_the_value(tmp_path, capsys, text, words):
+    with pytest.raises(OptionError) as caught:
+        cfa_tool.fit(MODEL, _answers(), keep=[text])
+    assert words in str(caught.value) and f"keep=[{text!r}]" in str(caught.value)
+    data, model = tmp_path / "answers.csv", tmp_path / "m.cfa"
+    _answers().to_csv(data, index=False)
+    model.write_text(MODEL)
+    code, _, err = run_cli(["fit", model, "--data", data, "--keep", text], capsys)
+    assert code == 2 and len(err.strip().splitlines()) == 1
+    assert words in err and "--keep" in err
+
+
+def test_the_careless_rows_caution_gives_the_one_filter_that_leaves_them_out():
+    frame = _answers()
+    result = cfa_tool.fit(MODEL, frame, id_column="student_id")
+    [caution] = [p for p in result.problems if p.kind is ProblemKind.SAME_ANSWER_ROWS]
+    assert isinstance(caution.advice, Note)
+    commands = [p.text for p in caution.advice.parts if isinstance(p, Command)]
+    ids = frame["student_id"][CARELESS].tolist()
+    assert commands == [f": keep=['student_id not in {', '.join(ids)}']"]  # from Python, as Python writes it
+    words = "".join(p for p in caution.advice.parts if isinstance(p, str))  # what the Word file keeps
+    assert "a row filter that lists their ids; or deleting them" in words and "keep" not in words
+    refit = cfa_tool.fit(MODEL, frame, id_column="student_id", keep=[commands[0][len(": keep=['"):-2]])
+    assert refit.n_obs == 370 and not [p for p in refit.problems if p.kind is ProblemKind.SAME_ANSWER_ROWS]
+    without_ids = cfa_tool.fit(MODEL, frame.drop(columns="student_id"))
+    [caution] = [p for p in without_ids.problems if p.kind is ProblemKind.SAME_ANSWER_ROWS]
+    commands = [p.text for p in caution.advice.parts if isinstance(p, Command)]
+    assert commands == [", --keep; from Python, keep=[...], such as 'ID_COLUMN not in ID1, ID2, ...'"]
