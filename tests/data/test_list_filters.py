@@ -41,13 +41,13 @@ def test_a_list_keeps_the_rows_with_one_of_its_values_or_none_of_them():
     kept, notes, [counted] = apply_filters(frame, [parse_filter("school in School 1, School 2")], "f.csv")
     assert kept.index.tolist() == frame.index[frame["school"].isin(["School 1", "School 2"])].tolist()
     assert notes == ["row filter 'school in School 1, School 2' kept 100 of 400 rows"]
-    assert counted.in_words() == "school was one of School 1, School 2"
+    assert counted.in_words() == 'school was one of "School 1", "School 2"'  # values of several words quoted
     ids = frame["student_id"][CARELESS].tolist()
     text = "student_id not in " + ", ".join(ids)
     kept, notes, [counted] = apply_filters(frame, [parse_filter(text)], "f.csv")
     assert kept.index.tolist() == frame.index[~frame["student_id"].isin(ids)].tolist()
     assert notes == ["row filter 'student_id not in S-00101, S-00102, S-00103, ... (30 values)' kept 370 of 400 rows"]
-    assert counted.in_words() == "student_id was none of 30 listed values (S-00101, S-00102, S-00103, ...)"
+    assert counted.in_words() == "student_id was none of 30 listed values: S-00101, S-00102, S-00103, ..."
     numbers, _, _ = apply_filters(frame, [parse_filter("a1 not in 1, 2")], "f.csv")  # numbers compared as numbers
     assert len(numbers) == int((~frame["a1"].isin([1.0, 2.0])).sum())
     quoted = parse_filter('school in "School 1, annex", School 2')  # a value with a comma, in double quotes
@@ -62,13 +62,13 @@ def test_the_fit_the_methods_paragraph_and_the_json_say_the_list_once(tmp_path, 
     reference = cfa_tool.fit(MODEL, frame[~frame["student_id"].isin(ids)].reset_index(drop=True))
     assert result.n_obs == 370 and result.fit.chi_square == pytest.approx(reference.fit.chi_square, rel=1e-10)
     paragraph = methods_paragraph(result)
-    assert ("N = 370 of the 400 rows in the data file, those where student_id was none of 30 listed values "
-            "(S-00101, S-00102, S-00103, ...)") in paragraph
+    assert ("N = 370 of the 400 rows in the data file, those where student_id was none of 30 listed values: "
+            "S-00101, S-00102, S-00103, ...") in paragraph
     assert result.to_dict()["data"]["row_filters"] == [text]  # every value, as written
     # the same rows left out by 30 filters of one column: one clause too
     many = cfa_tool.fit(MODEL, frame, keep=[f"student_id != {i}" for i in ids])
     assert many.fit.chi_square == pytest.approx(reference.fit.chi_square, rel=1e-10)
-    assert "was none of 30 listed values (S-00101, S-00102, S-00103, ...)" in methods_paragraph(many)
+    assert "was none of 30 listed values: S-00101, S-00102, S-00103, ..." in methods_paragraph(many)
     assert "was not S-" not in methods_paragraph(many)
 
 
@@ -106,3 +106,10 @@ def test_the_careless_rows_caution_gives_the_one_filter_that_leaves_them_out():
     [caution] = [p for p in without_ids.problems if p.kind is ProblemKind.SAME_ANSWER_ROWS]
     commands = [p.text for p in caution.advice.parts if isinstance(p, Command)]
     assert commands == [", --keep; from Python, keep=[...], such as 'ID_COLUMN not in ID1, ID2, ...'"]
+
+
+def test_a_value_of_several_words_reads_as_one_value_in_the_methods_words():
+    """new-user trial s19: 'those where gender was not prefer not to say' read as a garbled sentence; the value is
+    quoted when it holds several words, a one-word value is not."""
+    assert parse_filter('gender != "prefer not to say"').in_words() == 'gender was not "prefer not to say"'
+    assert parse_filter("department != Audit").in_words() == "department was not Audit"
