@@ -72,10 +72,6 @@ import numpy
 mark("numpy")
 import pandas
 mark("pandas")
-import scipy.linalg
-mark("scipy.linalg (LAPACK; with scipy's array-API layer)")
-import scipy.special
-mark("scipy.special (p-values, the RMSEA interval)")
 import lark
 mark("lark")
 import cfa_tool
