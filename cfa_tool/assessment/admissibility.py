@@ -127,6 +127,9 @@ class ProblemKind(enum.Enum):
     # not an impossible solution but a model these data do not support: CFI or RMSEA beyond the bounds of poor fit
     # (assessment.fit_indices.POOR_FIT_BOUNDS, read from the figures the report says to read)
     POOR_FIT = ("poor fit", "poor fit", False)
+    # not of the solution but of its fit indices: a baseline (independence) model whose own RMSEA is below the rule of
+    # thumb (assessment.fit_indices.UNINFORMATIVE_BASELINE_RMSEA), so that CFI and TLI say little about the model
+    UNINFORMATIVE_BASELINE = ("baseline model fits nearly: CFI and TLI say little", "CFI and TLI say little", False)
     # not of the solution but of the sample: a row filter that selects rows by their answers to a model item
     # (pipeline.row_filter_cautions): the item's range is restricted, its correlations changed
     SELECTED_ON_ITEM = ("rows selected on a model item", "selected on an item", False)
@@ -959,6 +962,36 @@ def refuse_inadmissible_fit(problems, source: str, purpose: str, flagged: bool =
     why = f" (it has {first.phrase()})" if first is not None else ""
     raise OptionError(f"{source}: the fitted solution is not admissible{why}, so {purpose}; fit a model whose solution "
                       f"is admissible and {remedy}")
+
+
+def uninformative_baseline_problems(fit, robust, n_obs: int, groups: int = 1) -> tuple[Problem, ...]:
+    """A caution when the baseline (independence) model's own RMSEA, from the baseline chi-square of the test the
+    report says to read (``fit``: assessment.fit_indices.FitIndices; ``robust``: inference.robust.RobustFit or None),
+    lies below :data:`cfa_tool.assessment.fit_indices.UNINFORMATIVE_BASELINE_RMSEA`: the items correlate too weakly
+    for CFI and TLI to tell this model from one in which they do not correlate at all (hostile s19: pure noise
+    printed CFI 1.000 beside its guide, and weakly correlated items TLI 1.574)."""
+    from cfa_tool.assessment.fit_indices import UNINFORMATIVE_BASELINE_RMSEA as BOUND
+    from cfa_tool.assessment.fit_indices import rmsea_value
+    from cfa_tool.numerics.plain import journal_decimal
+
+    if fit is None or fit.df <= 0 or fit.baseline_df <= 0:
+        return ()
+    base_chi = fit.baseline_chi_square if robust is None else robust.baseline_chi_square_scaled
+    if not np.isfinite(base_chi):
+        return ()
+    value = rmsea_value(base_chi, fit.baseline_df, n_obs, groups)
+    if value >= BOUND:
+        return ()
+    which = "" if robust is None else f" (from its {robust.statistic()})"
+    prefix = "" if robust is None else "robust "
+    return (Problem(ProblemKind.UNINFORMATIVE_BASELINE, (), float(value),
+                    f"The baseline model, in which the items do not correlate at all, itself nearly fits these data: "
+                    f"its RMSEA{which} is {journal_decimal(value, BOUND)}, below {journal_decimal(BOUND)} (a rule of "
+                    f"thumb recalled from Kenny, Kaniskan & McCoach 2015, not a law). The items correlate too weakly "
+                    f"for the {prefix}CFI and TLI to say anything about this model, whatever their values.",
+                    "judge the fit by the chi-square test, the RMSEA and the SRMR and by the residual correlations, "
+                    "and check that the items correlate as the model expects: weak correlations mean weak loadings "
+                    "and unreliable factors."),)
 
 
 def poor_fit_problems(read) -> tuple[Problem, ...]:

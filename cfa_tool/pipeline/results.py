@@ -655,11 +655,12 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
 
         from cfa_tool.assessment.reliability import keying_problems
 
-        from cfa_tool.assessment.admissibility import poor_fit_problems
+        from cfa_tool.assessment.admissibility import poor_fit_problems, uninformative_baseline_problems
 
         problems = tuple(problems) + tuple(weak_factor_problems(estimates, latent, observed, groups, spec.method_factors,
                                                                 spec.exploratory_factors)) + tuple(keying_problems(groups))
         if fit is not None:
+            problems += uninformative_baseline_problems(fit, robust, n_obs, max(len(groups), 1))
             problems += poor_fit_problems(IndicesToRead.of(fit, robust))
     if len(groups) <= 1:  # one group: the rule of rows per parameter (groups of several: each group's, by the same rule)
         from cfa_tool.assessment.admissibility import one_sample_size_problems

@@ -745,6 +745,20 @@ def _fit_sentence(result) -> str:
             f"TLI = {fit_index_text('tli', f.tli)}, RMSEA = {fit_index_text('rmsea', f.rmsea)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {fit_index_text('srmr', f.srmr)}.")
 
 
+def _uninformative_baseline_sentence(result) -> str:
+    """That the baseline model nearly fits, so CFI and TLI say little, when a caution of ``result`` says so
+    (assessment.admissibility.uninformative_baseline_problems); '' otherwise."""
+    from cfa_tool.assessment.fit_indices import UNINFORMATIVE_BASELINE_RMSEA as BOUND
+
+    found = next((p for p in result.problems if p.kind is ProblemKind.UNINFORMATIVE_BASELINE), None)
+    if found is None:
+        return ""
+    robust = "robust " if result.robust is not None else ""
+    return (f"The baseline (independence) model nearly fit the data itself (RMSEA = {unit(found.value, 3, BOUND)}, "
+            f"below the rule of thumb of {unit(BOUND)} of Kenny, Kaniskan & McCoach, 2015), so the {robust}CFI and "
+            f"TLI below say little about the model.")
+
+
 def _method_items(result, factor: str) -> list[str]:
     """The items a method factor loads on, in the model's order."""
     return [r.variables[1] for r in result.estimates
@@ -1066,6 +1080,9 @@ def methods_paragraph(result) -> str:
     small = _small_groups(result)
     if small:  # the report's first caution, before the fit (new user s14)
         parts.append(small)
+    baseline = _uninformative_baseline_sentence(result)
+    if baseline:  # before the CFI and TLI it says little of
+        parts.append(baseline)
     parts.append(_fit_sentence(result))
     methods = set(getattr(result.description, "method_factors", ()) or ())
     item_loadings = [r for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed

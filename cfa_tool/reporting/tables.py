@@ -9,6 +9,7 @@ import numpy as np
 
 from cfa_tool.assessment.admissibility import ProblemKind, solution_first
 from cfa_tool.assessment.identification import JUST_IDENTIFIED
+from cfa_tool.assessment.fit_indices import TLI_NOT_CUT
 from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
@@ -255,20 +256,35 @@ def design_doubts(result) -> bool:
     return any(p.kind in DOUBTED_BY_THE_DESIGN for p in getattr(result, "problems", ()))
 
 
+def baseline_uninformative(result) -> bool:
+    """Whether the caution first says that the baseline model nearly fits, so that CFI and TLI say little
+    (assessment.admissibility.uninformative_baseline_problems): their guide is then not the one to read."""
+    return any(p.kind is ProblemKind.UNINFORMATIVE_BASELINE for p in getattr(result, "problems", ()))
+
+
+#: the guide cell of CFI and TLI when the baseline model nearly fits (:func:`baseline_uninformative`)
+SAYS_LITTLE = "says little here: see the caution first"
+
+
 def fit_rows(result) -> list[FitRow]:
     """The lines of the fit table in the order of every view: with a robust test, its figures first, then SRMR,
     then the unadjusted ones marked (without the test of close fit); the baseline, the likelihood and the count
     of free parameters last."""
     f, r = result.fit, result.robust
     chi = ("Chi-square", f.chi_square, f.df, f.p_value)
+    uninformative = baseline_uninformative(result)
+
+    def incremental_guide(index: str) -> str:
+        return SAYS_LITTLE if uninformative else guide_text(index)
+
     if f.df == 0:  # nothing to test: CFI, TLI and RMSEA are not defined
         plain = [_row("Chi-square test", "0 df: no test", JUST_IDENTIFIED, chi)]
     else:
         low, high = f.rmsea_ci90
         plain = [_row("Chi-square test", f"{f.chi_square:.3f} on {f.df} df, p {p_phrase(f.p_value)}",
                       "p > .05 (very sensitive to N)", chi),
-                 _row("CFI", fit_index_text("cfi", f.cfi), guide_text("cfi"), ("CFI", f.cfi)),
-                 _row("TLI", fit_index_text("tli", f.tli), guide_text("tli"), ("TLI", f.tli)),
+                 _row("CFI", fit_index_text("cfi", f.cfi), incremental_guide("cfi"), ("CFI", f.cfi)),
+                 _row("TLI", fit_index_text("tli", f.tli), incremental_guide("tli"), ("TLI", f.tli)),
                  _row("RMSEA [90% interval]", _with_interval(fit_index_text('rmsea', f.rmsea), low, high),
                       guide_text("rmsea"),
                       ("RMSEA", f.rmsea, None, None, low, high))]
@@ -292,7 +308,7 @@ def fit_rows(result) -> list[FitRow]:
                 _row(label, text, guide, *[(name.capitalize(), value) for name, value in r.pieces]),
                 _row("Robust CFI / TLI", NOT_COMPUTED_HERE if missing(r.cfi_robust) and r.not_computed else
                      f"{fit_index_text('cfi', r.cfi_robust)} / {fit_index_text('tli', r.tli_robust)}",
-                     guide_text("cfi"),
+                     incremental_guide("cfi"),
                      ("Robust CFI", r.cfi_robust), ("Robust TLI", r.tli_robust)),
                 _row("Robust RMSEA [90% interval]", NOT_COMPUTED_HERE if missing(r.rmsea_robust) and r.not_computed else
                      _with_interval(fit_index_text('rmsea', r.rmsea_robust), rlow, rhigh),
@@ -319,7 +335,8 @@ def _with_interval(text: str, low, high) -> str:
 def fit_table(result) -> ReportTable:
     r = result.robust
     rows = fit_rows(result)
-    note = _unusable(result) + GUIDE_NOTE + (" " + robust_definition(r) if r is not None else "")
+    note = (_unusable(result) + GUIDE_NOTE + (" " + TLI_NOT_CUT if result.fit.df > 0 else "")
+            + (" " + robust_definition(r) if r is not None else ""))
     return _table("fit", "Model fit", [("Index", "l"), ("Value", "r"), ("Guide", "l")],
                   [[x.label, x.text, x.guide] for x in rows], note,
                   values=(["Index", "Value", "df", "p", "90% lower", "90% upper"],

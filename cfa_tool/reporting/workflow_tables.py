@@ -21,7 +21,7 @@ from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, comparison_paragraph, design_sentence,
                                           mcar_score_tests,
                                           invariance_paragraph, replication_paragraph)
-from cfa_tool.reporting.numbers import (fit_index_text, guides_text, missing, num, p_phrase, p_value, short, signed, unit,
+from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text, missing, num, p_phrase, p_value, short, signed, unit,
                                         word_list)
 from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
@@ -187,8 +187,11 @@ def _comparison_cells(r, test) -> tuple[list[str], list]:
     f = r.fit
     low, high = f.rmsea_ci90
     tested = f.df > 0
+    # a tested model's CFI or TLI without a value is said to be so (0/0: the baseline fits), never a blank
+    shown = index_text if tested else unit
     cells = [_admissible_cell(r), str(f.n_free_parameters), f"{f.chi_square:.3f}", str(f.df), p_value(f.p_value),
-             unit(f.cfi), unit(f.tli), unit(f.rmsea) if tested else "", f"[{unit(low)}, {unit(high)}]" if tested else "",
+             shown(f.cfi), shown(f.tli),
+             unit(f.rmsea) if tested else "", f"[{unit(low)}, {unit(high)}]" if tested else "",
              unit(f.srmr), _information_criterion(f.aic), _information_criterion(f.bic)]
     values = [_admissible_cell(r), f.n_free_parameters, f.chi_square, f.df, f.p_value, f.cfi, f.tli,
               f.rmsea if tested else None, low if tested else None, high if tested else None, f.srmr, f.aic, f.bic]
@@ -201,8 +204,8 @@ def _comparison_cells(r, test) -> tuple[list[str], list]:
             rl, rh = rb.rmsea_robust_ci90
             cell = T.robust_cell  # a figure not computed: a dash, which the table's note explains
             cells += [cell(rb, rb.chi_square_scaled, num(rb.chi_square_scaled)), T.correction_text(rb),
-                      cell(rb, rb.p_value_scaled, p_value(rb.p_value_scaled)), cell(rb, rb.cfi_robust, unit(rb.cfi_robust)),
-                      cell(rb, rb.tli_robust, unit(rb.tli_robust)), cell(rb, rb.rmsea_robust, unit(rb.rmsea_robust)),
+                      cell(rb, rb.p_value_scaled, p_value(rb.p_value_scaled)), cell(rb, rb.cfi_robust, shown(rb.cfi_robust)),
+                      cell(rb, rb.tli_robust, shown(rb.tli_robust)), cell(rb, rb.rmsea_robust, unit(rb.rmsea_robust)),
                       cell(rb, rl, f"[{unit(rl)}, {unit(rh)}]")]
             values += [rb.chi_square_scaled, *(value for _, value in rb.pieces), rb.p_value_scaled, rb.cfi_robust,
                        rb.tli_robust, rb.rmsea_robust, rl, rh]
