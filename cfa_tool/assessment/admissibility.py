@@ -20,6 +20,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
+from cfa_tool.numbers import user_number, count_text
 from cfa_tool.errors import OptionError
 from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.model.description import label_words, split_label
@@ -213,7 +214,7 @@ class RowsPerParameter:
 
     def figures(self) -> str:
         """'165 rows for 54 parameters, 3.1 per parameter': the figures, plainly."""
-        return f"{self.rows:g} rows for {self.parameters} parameters, {self.ratio()} per parameter"
+        return f"{count_text(self.rows)} rows for {self.parameters} parameters, {self.ratio()} per parameter"
 
     def besides(self) -> str:
         """The item means a one-group count leaves out, named (' (not counting the 9 item means that
@@ -268,7 +269,7 @@ def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Seq
         return problems, ()
     if not several:
         (facts,) = noted
-        return problems, (f"{facts.rows:g} rows for the {facts.parameters} free parameters of the model"
+        return problems, (f"{count_text(facts.rows)} rows for the {facts.parameters} free parameters of the model"
                           f"{facts.besides()}, fewer than {ROWS_PER_PARAMETER} per parameter ({facts.ratio()} per "
                           f"parameter; {ROWS_RULE}): with fewer rows per parameter, estimates and fit indices vary "
                           f"more from sample to sample",)
@@ -290,7 +291,7 @@ def _small_sample_problem(facts: RowsPerParameter, several: bool) -> "Problem":
     also = "its estimates, and every comparison with the other groups," if several else "every estimate and fit index"
     return Problem(
         ProblemKind.SMALL_GROUP if several else ProblemKind.SMALL_SAMPLE, (), float(facts.rows),
-        f"{facts.rows:g} rows for the {facts.parameters} free parameters of {whose}{facts.besides()}: {also} "
+        f"{count_text(facts.rows)} rows for the {facts.parameters} free parameters of {whose}{facts.besides()}: {also} "
         f"rest{'' if several else 's'} on too few answers"
         + ("" if several else ", and a CFI of 1 or a TLI above 1 then says little about fit")
         + f" (fewer rows than parameters; {ROWS_RULE}).",
@@ -626,7 +627,7 @@ def bound_problems(labels: tuple[str, ...], theta: np.ndarray, lower: np.ndarray
             if np.isfinite(limit) and abs(theta[k] - limit) <= 1e-8 * max(1.0, abs(limit)):
                 out.append(Problem(
                     ProblemKind.ON_BOUND, (label,), float(theta[k]),
-                    f"{_capital(label_words(label))} is held at its {word} bound ({limit:g}): without the bound the estimate would lie beyond it, "
+                    f"{_capital(label_words(label))} is held at its {word} bound ({user_number(limit)}): without the bound the estimate would lie beyond it, "
                     f"so the reported fit and standard errors describe a restricted solution.",
                     "Report the bound; the standard errors and tests near a bound are not reliable (the estimate's "
                     "sampling distribution is cut off there).", None))

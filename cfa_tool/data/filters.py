@@ -22,7 +22,7 @@ from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.options import Option
 from cfa_tool.language.names import written_name
-from cfa_tool.numbers import number
+from cfa_tool.numbers import number, user_number
 from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names
 
@@ -69,7 +69,7 @@ class RowFilter:
         """The filter as a methods section words it: 'district was north', 'age was at least 18', '"wave 2" was
         1' (the column as the model language writes names: language.names.written_name); with the rows it left out
         for an empty cell first: 'mode was not bus (54 rows with no value of mode left out)'."""
-        value = f"{self.value:g}" if isinstance(self.value, float) else str(self.value)
+        value = f"{user_number(self.value)}" if isinstance(self.value, float) else str(self.value)
         if self.label is not None:  # 'gender was not 3 ("another / prefers to describe")' (new-user trial s15)
             value += f' ("{self.label}")'
         return f"{written_name(self.column)} {_OPERATOR_WORDS[self.operator]} {value}" + (

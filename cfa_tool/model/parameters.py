@@ -33,6 +33,7 @@ from typing import Callable
 
 import numpy as np
 
+from cfa_tool.numbers import user_number
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import ModelError, printable
 from cfa_tool.options import Option
@@ -553,7 +554,7 @@ def _start_values(spec: Spec, groups_of, free_index, multi: bool) -> dict[int, f
                         if ref.group is None:
                             continue
                     elif value != setting.value:
-                        raise _fail(spec, f"{ref} is given the start value {setting.value:g} here but {value:g} on "
+                        raise _fail(spec, f"{ref} is given the start value {user_number(setting.value)} here but {user_number(value)} on "
                                           f"line {first.location.line}; give it one", ref)
                 given[key] = (setting.value, ref)
     starts: dict[int, tuple[float, ParameterRef, tuple]] = {}
@@ -580,8 +581,8 @@ def _start_values(spec: Spec, groups_of, free_index, multi: bool) -> dict[int, f
             exempt = (f", or let them differ across groups with 'noninvariant {reference_text(*key[1:])}'"
                       if multi and key[1:] == key0[1:] else "")
             held = " ".join(["held equal", " and ".join(ties)]).strip()
-            raise _fail(spec, f"{ref0} and {ref} are {held} but given different start values: {value0:g} on line "
-                              f"{ref0.location.line} and {value:g} on line {ref.location.line}; give them "
+            raise _fail(spec, f"{ref0} and {ref} are {held} but given different start values: {user_number(value0)} on line "
+                              f"{ref0.location.line} and {user_number(value)} on line {ref.location.line}; give them "
                               f"one{exempt}", ref)
     return {index: value for index, (value, _, _) in starts.items()}
 
@@ -620,16 +621,16 @@ def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by
             how = f"held equal by the 'equal' statement{'s' if len(lines) > 1 else ''} on line" + (
                 f"{'s' if len(lines) > 1 else ''} {' and '.join(map(str, lines))}")
         why = (_why_not_free(spec, other, entries, effects, fixed_by, tied_to, multi, group_labels)
-               or f"fixed at {entries[other]['fixed']:g} in the first group, which sets the origin of the means")
+               or f"fixed at {user_number(entries[other]['fixed'])} in the first group, which sets the origin of the means")
         return f"fixed through its tie to {label} ({how}), which is {why}"
     if key in fixed_by:
         ref = fixed_by[key]
         what = ("to orient its exploratory block" if e["origin"] == "exploratory" else "")
-        return f"fixed at {value:g} by the 'fix' statement on line {ref.location.line}" + (f" {what}" if what else "")
+        return f"fixed at {user_number(value)} by the 'fix' statement on line {ref.location.line}" + (f" {what}" if what else "")
     if e["origin"] == "scale":
         if names[0] in spec.factor_names:
-            return f"fixed at {value:g} to set the scale of '{names[0]}'"
-        return (f"fixed at {value:g} to give the latent response of the ordinal item '{names[0]}' its "
+            return f"fixed at {user_number(value)} to set the scale of '{names[0]}'"
+        return (f"fixed at {user_number(value)} to give the latent response of the ordinal item '{names[0]}' its "
                 f"{'origin' if kind == 'intercept' else 'unit'} (Wu & Estabrook 2016)")
     if kind == "mean":
         if not multi:
@@ -642,7 +643,7 @@ def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by
             return ("fixed at 0 in the first group, which sets the origin of the means (the other groups' means are "
                     "differences from it)")
         return MEANS_FIXED_EVERYWHERE
-    return f"fixed at {value:g}"  # pragma: no cover - every fixed entry has one of the reasons above
+    return f"fixed at {user_number(value)}"  # pragma: no cover - every fixed entry has one of the reasons above
 
 
 def _entry_kind(entry: dict) -> str:
@@ -698,10 +699,10 @@ def _check_group_fixes_held_equal(spec: Spec, fixed_by: dict, entries: dict, tie
                     + f" holds the {words} equal across groups")
             claim = f"the model would not be the {spec.invariance_level} invariance it is said to be"
         plain = replace(ref, group=None)
-        raise _fail(spec, f"{ref} is fixed at {value:g} in that group alone, but {says}: the other groups' {plain} "
+        raise _fail(spec, f"{ref} is fixed at {user_number(value)} in that group alone, but {says}: the other groups' {plain} "
                           f"would be left free, and {claim}; "
                           f"fix it in every group (the 'fix' statement without 'in group') to hold it "
-                          f"equal at {value:g}, or exempt it ('noninvariant {plain}') so that it may differ across "
+                          f"equal at {user_number(value)}, or exempt it ('noninvariant {plain}') so that it may differ across "
                           f"groups and the report names it", ref)
 
 
@@ -925,7 +926,7 @@ def given_values_possible(spec: Spec, table: ParameterTable, values: np.ndarray,
 
     for (kind, names), (ref, value, how) in settings.items():
         if kind.endswith("_variance") and value < 0:
-            raise fail(ref, how, f"{value:g}, and a variance cannot be negative")
+            raise fail(ref, how, f"{user_number(value)}, and a variance cannot be negative")
     for (kind, names), (ref, value, how) in settings.items():
         if not kind.endswith("_covariance"):
             continue
@@ -938,7 +939,7 @@ def given_values_possible(spec: Spec, table: ParameterTable, values: np.ndarray,
         bound = np.sqrt(va * vb)
         if abs(covariance) > bound * (1 + 1e-9):
             correlation = f", a correlation of {covariance / bound:.2f}" if bound > 0 else ""
-            raise fail(ref, how, f"{value:g}, beyond what the variances of {a} ({va:.3g}) and {b} ({vb:.3g}) allow"
+            raise fail(ref, how, f"{user_number(value)}, beyond what the variances of {a} ({va:.3g}) and {b} ({vb:.3g}) allow"
                                  f"{correlation}")
 
 
@@ -986,7 +987,7 @@ def impossible_fixed_values(table: ParameterTable, source: str, starts: bool = T
     for value, how, par in given.values():
         if par.kind in ("factor_variance", "residual_variance") and value < 0:
             raise ModelError(f"{source}: the {_values(how)} make the population covariance matrix impossible: "
-                             f"{as_written(par)} is {how} {value:g}, and a variance cannot be negative")
+                             f"{as_written(par)} is {how} {user_number(value)}, and a variance cannot be negative")
     for kind, names in (("factor", table.latent), ("residual", table.observed)):
         variance = {x: given[(f"{kind}_variance", (x,))][0] for x in names if (f"{kind}_variance", (x,)) in given}
         pairs = {}
@@ -998,7 +999,7 @@ def impossible_fixed_values(table: ParameterTable, source: str, starts: bool = T
             a, b = par.variables
             if abs(value) > np.sqrt(variance[a] * variance[b]) * (1 + 1e-9):  # zero variances: a zero covariance only
                 raise ModelError(f"{source}: the {_values(how)} make the population covariance matrix impossible: "
-                                 f"{as_written(par)} is {how} {value:g}, beyond what the variances of {a} and {b} "
+                                 f"{as_written(par)} is {how} {user_number(value)}, beyond what the variances of {a} and {b} "
                                  f"allow (a correlation beyond +/-1)")
         # the largest set of these variables whose covariances are all given: it must be positive definite
         members = sorted({x for pair in pairs for x in pair}, key=list(names).index)

@@ -7,6 +7,7 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
+from cfa_tool.numbers import user_number, count_text
 from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATED, ProblemKind, design_cautions, failure_words,
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
@@ -1181,8 +1182,8 @@ def rows_rule_caution(result) -> Note:
     below = result.below_rows_rule
     one = len(below) == 1
     enough = ROWS_PER_PARAMETER * below[0].parameters
-    sizes = [f"{f.rows:g}" for f in below] + [str(enough)]
-    return Note((f"{' and '.join(f'N = {f.rows:g}' for f in below)} {'is' if one else 'are'} judged by the RMSEA "
+    sizes = [f"{count_text(f.rows)}" for f in below] + [str(enough)]
+    return Note((f"{' and '.join(f'N = {count_text(f.rows)}' for f in below)} {'is' if one else 'are'} judged by the RMSEA "
                  f"test of {result.test} fit alone, not by what estimating the model needs: "
                  f"{'; '.join(f.figures() for f in below)}, fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; "
                  f"{enough} rows here); this plan says nothing of how precisely the loadings, variances and "
@@ -1392,7 +1393,7 @@ def _worded_lines(simulated) -> list[Text]:
             said = Note(("written as the words", origin, f", {coding_described(written)}"))
         else:  # numbers listed beside the words: each code written as the answer listed first with it
             said = Note((f"written in the {len(written)} answer categories", origin, ", each as the answer it lists "
-                         f"first with that code ({', '.join(printable(w) if w is not None else f'{n:g}' for w, n, _ in written)})"))
+                         f"first with that code ({', '.join(printable(w) if w is not None else f'{user_number(n)}' for w, n, _ in written)})"))
         lines.append(f"{which} " + said + f" (the latent responses {how}), so the file reads back with the same model "
                                           f"file.")
     return lines
