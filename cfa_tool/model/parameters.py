@@ -218,6 +218,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
     ordinal = dict(ordinal or {})
     if multi:  # without groups, invariance statements have nothing to hold equal
         _check_threshold_use(spec, ordinal)
+        _check_ordinal_intercept_fixes(spec, ordinal, group_labels[0])
 
     # ---- every entry of every group, keyed (group, kind, names)
     entries: dict[tuple, dict] = {}
@@ -780,6 +781,27 @@ def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, mea
             guess = close_names(ref.group, group_labels)
             hint = f"; did you mean '{guess[0]}'?" if guess else f"; the groups are {', '.join(group_labels)}"
             raise _fail(spec, f"there is no group '{ref.group}' in the data{hint}", ref)
+
+
+def _check_ordinal_intercept_fixes(spec: Spec, ordinal: dict[str, int], first_group: str) -> None:
+    """A 'fix' of an ordinal item's intercept at a value other than 0 in every group or in the first one, where none
+    of its thresholds is fixed, is refused at its line: the item's free thresholds carry its latent response's
+    location, so the value only moves every threshold by as much, the fit unchanged, while the report reads the
+    thresholds on the latent response's scale with intercept 0 (Wu & Estabrook 2016's location; hostile s19).  A fix
+    in a later group, beside thresholds held equal, sets that group's difference and stays."""
+    thresholds_fixed = {r.names[0] for s in spec.fixed for r in s.refs if r.kind == "threshold"}
+    for setting in spec.fixed:
+        for ref in setting.refs:
+            x = ref.names[0] if ref.names else None
+            if (ref.kind != "intercept" or x not in ordinal or setting.value == 0 or x in thresholds_fixed
+                    or ref.group not in (None, first_group)):
+                continue
+            where = "" if ref.group is None else f" in group {ref.group}"
+            raise _fail(spec, f"{ref} is fixed at {user_number(setting.value)}{where}, but '{x}' is ordinal: its "
+                              f"free thresholds carry its location, so this value would only move each of them by "
+                              f"{user_number(setting.value)} and change nothing in the fit, while the report reads "
+                              f"them with the intercept at 0; leave the statement out, or fix a threshold to set the "
+                              f"location", ref)
 
 
 def _check_threshold_use(spec: Spec, ordinal: dict[str, int]) -> None:
