@@ -88,9 +88,13 @@ def refuse_row_options(source: str, sheet: str | None = None, missing_codes=(), 
                        first_data_row: int | None = None, rename=None) -> None:
     """Options about rows and columns of raw data cannot apply to summary statistics: each is an
     error rather than silently ignored."""
+    keep = keep_option(keep)
+    halves = _halves(keep)  # a half of a halves file is named as the option that gave it (hostile s19: '--keep')
+    filters = [k for k in keep if k not in halves]
     given = [f"{name} ({option})" for name, option, value in (
         ("a sheet", Option.SHEET, sheet), ("missing-value codes", Option.MISSING_CODES, missing_codes),
-        ("row filters", Option.KEEP, keep), ("groups", Option.GROUP_COLUMN, group),
+        ("row filters", Option.KEEP, filters), ("a random half of the rows", Option.HALF, halves),
+        ("groups", Option.GROUP_COLUMN, group),
         ("an id column", Option.ID_COLUMN, id_column), ("a row of column names", Option.NAMES_ROW, names_row),
         ("a first row of data", Option.FIRST_DATA_ROW, first_data_row),
         ("columns read under new names", Option.RENAME, rename))
