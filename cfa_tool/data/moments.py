@@ -18,7 +18,7 @@ from cfa_tool.data.kept_rows import ROW_NAMING, RowNaming, cell_words, row_namin
 from cfa_tool.errors import DataError, EstimationError, clipped, printable
 from cfa_tool.options import Option
 from cfa_tool.method import MissingData
-from cfa_tool.numbers import number as strict_number, user_number
+from cfa_tool.numbers import number as strict_number
 from cfa_tool.numerics.linalg import cholesky_log_det
 
 
@@ -371,7 +371,7 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
     constant = np.flatnonzero((sds == 0) | (sds <= 1e-13 * np.abs(means)))
     if len(constant):
         j = constant[0]
-        raise DataError(f"{source}: column '{printable(names[j])}' has the same value ({user_number(means[j])}) in every row used, so "
+        raise DataError(f"{source}: column '{printable(names[j])}' has the same value ({means[j]:g}) in every row used, so "
                         f"it carries no information")
     tiny = np.flatnonzero(sds < SMALLEST_SPREAD)
     if len(tiny):
