@@ -988,8 +988,9 @@ def uninformative_baseline_problems(fit, robust, n_obs: int, groups: int = 1) ->
     return (Problem(ProblemKind.UNINFORMATIVE_BASELINE, (), float(value),
                     f"The baseline model, in which the items do not correlate at all, itself nearly fits these data: "
                     f"its RMSEA{which} is {journal_decimal(value, BOUND)}, below {journal_decimal(BOUND)} (a rule of "
-                    f"thumb recalled from Kenny, Kaniskan & McCoach 2015, not a law). The items correlate too weakly "
-                    f"for the {prefix}CFI and TLI to say anything about this model, whatever their values.",
+                    f"thumb recalled from Kenny, Kaniskan & McCoach 2015, not a law). The {prefix}CFI and TLI measure the "
+                    f"model's improvement on that baseline, so with items this weakly correlated they say little "
+                    f"about the model, high or low.",
                     "judge the fit by the chi-square test, the RMSEA and the SRMR and by the residual correlations, "
                     "and check that the items correlate as the model expects: weak correlations mean weak loadings "
                     "and unreliable factors."),)
