@@ -8,7 +8,9 @@ not numbers, so every reader uses :func:`number` instead.
 
 from __future__ import annotations
 
+import math
 import re
+from decimal import Decimal
 
 _NUMBER = re.compile(r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?")
 _WHOLE = re.compile(r"[+-]?[0-9]+")
@@ -31,3 +33,30 @@ def whole_number(text: str) -> int | None:
     """A whole number in plain ASCII digits, or None."""
     text = text.strip()
     return int(text) if _WHOLE.fullmatch(text) and len(text) <= 30 else None
+
+
+def user_number(value: float) -> str:
+    """A number the user gave (a code of no answer, a filter's cut-off, a fixed value, an answer), printed as written:
+    the shortest digits that read back as the same number, never in exponent form ('9999999', not the '1e+07' of
+    Python's 'g' format, which names another number; hostile s19), whole numbers without '.0', '-0' as '0'.  The one
+    rule for a user's number; counts and sums are :func:`count_text`."""
+    value = float(value)
+    if not math.isfinite(value):
+        return str(value)
+    if value == 0:
+        return "0"
+    text = format(Decimal(repr(value)), "f")
+    return text.rstrip("0").rstrip(".") if "." in text else text
+
+
+def count_text(value: float) -> str:
+    """A count or a sum (rows, a sum of weights) as the tool prints N: digits grouped by thousands, to two decimals
+    only where the value has a fraction ('5,000,136', '1,234.56'), never in exponent form (hostile s19: 'sum
+    5.00014e+06')."""
+    value = float(value)
+    if not math.isfinite(value):
+        return str(value)
+    if float(value).is_integer():
+        return f"{int(value):,}"
+    text = f"{value:,.2f}"
+    return text.rstrip("0").rstrip(".")

@@ -191,6 +191,9 @@ class Option(enum.Enum):
     TARGET = ("--target", "target")  # explore's target of rotation
     ROTATION = ("--rotation", "rotation")  # explore's rotation
     SPLIT = ("--split", "split")  # explore's seed of the random halves
+    MI_THRESHOLD = ("--mi-threshold", "mi_threshold")
+    MI_TOP = ("--mi-top", "mi_top")
+    HALF = ("--half", "keep")  # one half of a halves file; in Python a data.halves.RandomHalf among the row selections
     SIMULATED_MISSING = ("--missing", "missing")  # simulate's share of answers removed at random
     RENAME = ("--rename", "rename", None, True)
     VALIDATION_RENAME = ("--validation-rename", "validation_rename", None, True)  # replicate's validation file

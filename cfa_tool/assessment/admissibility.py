@@ -20,6 +20,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
+from cfa_tool.numbers import user_number, count_text
 from cfa_tool.errors import OptionError
 from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.model.description import label_words, split_label
@@ -130,6 +131,9 @@ class ProblemKind(enum.Enum):
     # not an impossible solution but a model these data do not support: CFI or RMSEA beyond the bounds of poor fit
     # (assessment.fit_indices.POOR_FIT_BOUNDS, read from the figures the report says to read)
     POOR_FIT = ("poor fit", "poor fit", False)
+    # not of the solution but of its fit indices: a baseline (independence) model whose own RMSEA is below the rule of
+    # thumb (assessment.fit_indices.UNINFORMATIVE_BASELINE_RMSEA), so that CFI and TLI say little about the model
+    UNINFORMATIVE_BASELINE = ("baseline model fits nearly: CFI and TLI say little", "CFI and TLI say little", False)
     # not of the solution but of the sample: a row filter that selects rows by their answers to a model item
     # (pipeline.row_filter_cautions): the item's range is restricted, its correlations changed
     SELECTED_ON_ITEM = ("rows selected on a model item", "selected on an item", False)
@@ -213,7 +217,7 @@ class RowsPerParameter:
 
     def figures(self) -> str:
         """'165 rows for 54 parameters, 3.1 per parameter': the figures, plainly."""
-        return f"{self.rows:g} rows for {self.parameters} parameters, {self.ratio()} per parameter"
+        return f"{count_text(self.rows)} rows for {self.parameters} parameters, {self.ratio()} per parameter"
 
     def besides(self) -> str:
         """The item means a one-group count leaves out, named (' (not counting the 9 item means that
@@ -268,7 +272,7 @@ def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Seq
         return problems, ()
     if not several:
         (facts,) = noted
-        return problems, (f"{facts.rows:g} rows for the {facts.parameters} free parameters of the model"
+        return problems, (f"{count_text(facts.rows)} rows for the {facts.parameters} free parameters of the model"
                           f"{facts.besides()}, fewer than {ROWS_PER_PARAMETER} per parameter ({facts.ratio()} per "
                           f"parameter; {ROWS_RULE}): with fewer rows per parameter, estimates and fit indices vary "
                           f"more from sample to sample",)
@@ -290,7 +294,7 @@ def _small_sample_problem(facts: RowsPerParameter, several: bool) -> "Problem":
     also = "its estimates, and every comparison with the other groups," if several else "every estimate and fit index"
     return Problem(
         ProblemKind.SMALL_GROUP if several else ProblemKind.SMALL_SAMPLE, (), float(facts.rows),
-        f"{facts.rows:g} rows for the {facts.parameters} free parameters of {whose}{facts.besides()}: {also} "
+        f"{count_text(facts.rows)} rows for the {facts.parameters} free parameters of {whose}{facts.besides()}: {also} "
         f"rest{'' if several else 's'} on too few answers"
         + ("" if several else ", and a CFI of 1 or a TLI above 1 then says little about fit")
         + f" (fewer rows than parameters; {ROWS_RULE}).",
@@ -626,7 +630,7 @@ def bound_problems(labels: tuple[str, ...], theta: np.ndarray, lower: np.ndarray
             if np.isfinite(limit) and abs(theta[k] - limit) <= 1e-8 * max(1.0, abs(limit)):
                 out.append(Problem(
                     ProblemKind.ON_BOUND, (label,), float(theta[k]),
-                    f"{_capital(label_words(label))} is held at its {word} bound ({limit:g}): without the bound the estimate would lie beyond it, "
+                    f"{_capital(label_words(label))} is held at its {word} bound ({user_number(limit)}): without the bound the estimate would lie beyond it, "
                     f"so the reported fit and standard errors describe a restricted solution.",
                     "Report the bound; the standard errors and tests near a bound are not reliable (the estimate's "
                     "sampling distribution is cut off there).", None))
@@ -962,6 +966,37 @@ def refuse_inadmissible_fit(problems, source: str, purpose: str, flagged: bool =
     why = f" (it has {first.phrase()})" if first is not None else ""
     raise OptionError(f"{source}: the fitted solution is not admissible{why}, so {purpose}; fit a model whose solution "
                       f"is admissible and {remedy}")
+
+
+def uninformative_baseline_problems(fit, robust, n_obs: int, groups: int = 1) -> tuple[Problem, ...]:
+    """A caution when the baseline (independence) model's own RMSEA, from the baseline chi-square of the test the
+    report says to read (``fit``: assessment.fit_indices.FitIndices; ``robust``: inference.robust.RobustFit or None),
+    lies below :data:`cfa_tool.assessment.fit_indices.UNINFORMATIVE_BASELINE_RMSEA`: the items correlate too weakly
+    for CFI and TLI to tell this model from one in which they do not correlate at all (hostile s19: pure noise
+    printed CFI 1.000 beside its guide, and weakly correlated items TLI 1.574)."""
+    from cfa_tool.assessment.fit_indices import UNINFORMATIVE_BASELINE_RMSEA as BOUND
+    from cfa_tool.assessment.fit_indices import rmsea_value
+    from cfa_tool.numerics.plain import journal_decimal
+
+    if fit is None or fit.df <= 0 or fit.baseline_df <= 0:
+        return ()
+    base_chi = fit.baseline_chi_square if robust is None else robust.baseline_chi_square_scaled
+    if not np.isfinite(base_chi):
+        return ()
+    value = rmsea_value(base_chi, fit.baseline_df, n_obs, groups)
+    if value >= BOUND:
+        return ()
+    which = "" if robust is None else f" (from its {robust.statistic()})"
+    prefix = "" if robust is None else "robust "
+    return (Problem(ProblemKind.UNINFORMATIVE_BASELINE, (), float(value),
+                    f"The baseline model, in which the items do not correlate at all, itself nearly fits these data: "
+                    f"its RMSEA{which} is {journal_decimal(value, BOUND)}, below {journal_decimal(BOUND)} (a rule of "
+                    f"thumb recalled from Kenny, Kaniskan & McCoach 2015, not a law). The {prefix}CFI and TLI measure the "
+                    f"model's improvement on that baseline, so with items this weakly correlated they say little "
+                    f"about the model, high or low.",
+                    "judge the fit by the chi-square test, the RMSEA and the SRMR and by the residual correlations, "
+                    "and check that the items correlate as the model expects: weak correlations mean weak loadings "
+                    "and unreliable factors."),)
 
 
 def poor_fit_problems(read) -> tuple[Problem, ...]:

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from cfa_tool.numbers import user_number
 from cfa_tool.estimation.optimizer import Outcome
 from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.model.description import label_words
@@ -109,5 +110,5 @@ def _held_at_bounds(theta, labels: tuple[str, ...], lower, upper, observed: tupl
     for k, label in enumerate(labels):
         for bound, word in ((lower[k], "at least"), (upper[k], "at most")):
             if np.isfinite(bound) and abs(theta[k] - bound) <= 1e-8 * max(1.0, abs(bound)):
-                out.append(_named(label, observed) + f" ({word} {bound:g})")
+                out.append(_named(label, observed) + f" ({word} {user_number(bound)})")
     return out

@@ -64,6 +64,17 @@ FIT_GUIDES = {"cfi": FitGuide(0.95, True), "tli": FitGuide(0.95, True), "rmsea":
 #: criterion of Bentler & Bonett 1980, recalled from memory).
 POOR_FIT_BOUNDS = {"cfi": 0.90, "rmsea": 0.10}
 
+#: Below this RMSEA of the baseline (independence) model the incremental indices CFI and TLI say little about a
+#: model, whatever their values: the items correlate so weakly that no model can improve much on the baseline (Kenny,
+#: Kaniskan & McCoach 2015, as recalled from memory; a rule of thumb, not a law).  The report cautions first.
+UNINFORMATIVE_BASELINE_RMSEA = 0.158
+
+#: The one rule of TLI for every test (normal-theory, robust, adjusted): the index is not normed, neither cut at 1
+#: nor at 0 (Tucker & Lewis 1973; Bentler 1990 calls it non-normed), so a value above 1 says the chi-square fell below
+#: its degrees of freedom.  CFI is cut at 0 and 1 by its definition (Bentler 1990).  The fit table's note says so.
+TLI_NOT_CUT = ("TLI is not cut at 1 (nor at 0), whatever the test: a value above 1 means that the chi-square fell below "
+               "its degrees of freedom.")
+
 
 @dataclass(frozen=True)
 class IndicesOfOneTest:
@@ -182,10 +193,12 @@ def rmsea_value(chi_square: float, df: int, n_obs: int, groups: int = 1) -> floa
 
 
 def cfi_from(noncentrality: float, baseline_noncentrality: float) -> float:
-    """1 - lambda / max(lambda, lambda_baseline, 0) (Bentler 1990)."""
+    """1 - lambda / max(lambda, lambda_baseline, 0) (Bentler 1990); not defined (NaN) when both noncentralities are
+    at most 0, 0/0: the baseline model then fits as well as the model, and the index compares nothing (hostile
+    s19: noise printed CFI 1.000 beside its guide)."""
     num = max(noncentrality, 0.0)
     den = max(noncentrality, baseline_noncentrality, 0.0)
-    return 1.0 if den == 0 else float(1.0 - num / den)
+    return float("nan") if den == 0 else float(1.0 - num / den)
 
 
 def cfi_value(chi_square: float, df: int, base_chi: float, base_df: int) -> float:
@@ -193,7 +206,8 @@ def cfi_value(chi_square: float, df: int, base_chi: float, base_df: int) -> floa
 
 
 def tli_from(noncentrality: float, df: int, baseline_noncentrality: float, base_df: int) -> float:
-    """1 - (lambda / df) / (lambda_baseline / df_baseline) (Tucker & Lewis 1973)."""
+    """1 - (lambda / df) / (lambda_baseline / df_baseline) (Tucker & Lewis 1973), the noncentralities as estimated,
+    not cut at 0: TLI is not normed (:data:`TLI_NOT_CUT`), whichever test it is computed from."""
     if df <= 0 or base_df <= 0 or baseline_noncentrality == 0:
         return float("nan")
     return float(1.0 - (noncentrality / df) / (baseline_noncentrality / base_df))

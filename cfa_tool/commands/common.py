@@ -262,6 +262,16 @@ def halves_file(args: argparse.Namespace, halves: list[tuple[str, tuple[int, ...
 HALF = "--half"
 
 
+def refuse_halves_of_a_half(args: argparse.Namespace) -> None:
+    """Halves saved (--halves-file) of the rows one half selects (--half) are refused before any work: a halves file
+    is read back against the whole data file and one --half, so halves drawn inside a half could never be analysed
+    (hostile s19: the confirmation half set aside was lost)."""
+    if getattr(args, "halves_file", None) and getattr(args, "half", None):
+        raise OptionError(f"{HALVES_FILE} would save halves of the rows of one half ({HALF}), and a halves file is read "
+                          f"back against the whole data file, so those halves could never be analysed; draw and save "
+                          f"the halves without {HALF}, or leave {HALVES_FILE} out")
+
+
 def add_half_option(parser) -> None:
     """The option that analyses one half of a halves file (data.halves.RandomHalf)."""
     parser.add_argument(HALF, nargs=2, metavar=("HALVES.csv", "NAME"), default=None,
@@ -294,6 +304,7 @@ def check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
     require_suffix("--output", output, ".csv", "the simulated rows")
     halves = getattr(args, "halves_file", None)
     require_suffix(HALVES_FILE, halves, ".csv", "the rows of the halves")
+    refuse_halves_of_a_half(args)
     targets = check_files(args, [(HALVES_FILE, halves)] if halves else [], inputs,
                           never_replaced=("--output", HALVES_FILE))
     if hasattr(args, "dpi"):

@@ -7,7 +7,7 @@ import argparse
 
 from cfa_tool.commands import options as O
 from cfa_tool.commands.common import HALF, HALVES_FILE, add_halves_file, add_report_options, check_files, emit_report, \
-    halves_file, require_suffix, say
+    halves_file, refuse_halves_of_a_half, require_suffix, say
 
 
 def add_parser(sub) -> None:
@@ -62,6 +62,7 @@ def run(args: argparse.Namespace) -> int:
     require_suffix(HALVES_FILE, args.halves_file, ".csv", "the rows of the halves")
     if args.halves_file and args.split is None:
         raise OptionError("--halves-file saves the random halves of --split SEED, and this run draws no halves")
+    refuse_halves_of_a_half(args)
     outputs = [("--draft", args.draft), ("--json", args.json), ("--html", args.html), ("--markdown", args.markdown),
                (HALVES_FILE, args.halves_file)]
     check_files(args, outputs, [args.data] + [f for f in (args.target, args.answers) if f],

@@ -40,7 +40,7 @@ def add_fit_outputs(p: argparse.ArgumentParser) -> None:
                         "robust (sandwich) standard errors instead")
     O.add_renamed(p, "--information", "choose where standard errors come from with --standard-errors-from "
                                       "expected|observed")
-    p.add_argument("--mi-threshold", type=float, default=3.84, metavar="X",
+    p.add_argument("--mi-threshold", type=float, default=None, metavar="X",
                    help="show modification indices of at least X (default 3.84)")
     p.add_argument("--mi-top", type=int, default=None, metavar="N", help="show at most N modification indices")
     p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")

@@ -8,6 +8,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from cfa_tool.numbers import user_number
 from cfa_tool.data.descriptives import rare_answer_limit
 
 
@@ -46,7 +47,7 @@ class AnswerCounts:
 
     def to_dict(self) -> dict:
         return {"group": self.group, "codes": list(self.codes),
-                "items": {name: {f"{code:g}": count for code, count, in_scale in
+                "items": {name: {user_number(code): count for code, count, in_scale in
                                  zip(self.codes, counts, [c in scale for c in self.codes]) if in_scale or count}
                           for name, counts, scale in zip(self.items, self.counts, self.scale)}}
 
@@ -90,7 +91,7 @@ def answer_counts(parts: list[tuple[str | None, np.ndarray]], names: tuple[str, 
 
 def _keys(item_labels: dict, code: float) -> list:
     """The key of ``code`` among an item's value labels (a float, an int or its text), as a list of at most one."""
-    for key in (code, int(code) if float(code).is_integer() else code, f"{code:g}"):
+    for key in (code, int(code) if float(code).is_integer() else code, user_number(code), f"{code:g}"):
         if key in item_labels:
             return [key]
     return []

@@ -21,11 +21,11 @@ from cfa_tool.errors import DataError, Location, ModelError, OptionError, charac
 from cfa_tool.options import Option
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.language.spec import AnswerCoding, AnswerWord, Name, Spec, answer_key
-from cfa_tool.numbers import number as strict_number
+from cfa_tool.numbers import number as strict_number, user_number
 
 def _shown(value: object) -> str:
     if isinstance(value, (int, float, np.integer, np.floating)) and not isinstance(value, (bool, np.bool_)):
-        return f"{float(value):g}"
+        return f"{user_number(float(value))}"
     return clipped(str(value).strip(), 40)
 
 
@@ -138,15 +138,15 @@ def _check_codes_of_answers(coding: AnswerCoding, no_answer: set[float]) -> None
     if coded:  # a word of --missing-codes that the statement gives a code: one or the other, never silently
         a = coded[0]
         raise OptionError(f"{Option.MISSING_CODES.given(given[answer_key(a.word)])} reads '{printable(a.word)}' as no "
-                          f"answer, and {coding.origin} codes it as the answer {a.code:g}: leave it out of "
+                          f"answer, and {coding.origin} codes it as the answer {user_number(a.code)}: leave it out of "
                           f"{Option.MISSING_CODES} to analyse it as an answer, or out of the statement to read it as "
                           f"no answer")
     answers = [a for a in coding.answers if a.code in no_answer and a.word is not None and not says_no_answer(a.word)]
     if answers:
         a = answers[0]
-        raise OptionError(f"{Option.MISSING_CODES.given(f'{a.code:g}')} is the code {coding.origin} gives the answer "
+        raise OptionError(f"{Option.MISSING_CODES.given(f'{user_number(a.code)}')} is the code {coding.origin} gives the answer "
                           f"'{printable(a.word)}'; a code of no answer cannot also stand for an answer (every "
-                          f"'{printable(a.word)}' would be read as no answer): leave {a.code:g} out of "
+                          f"'{printable(a.word)}' would be read as no answer): leave {user_number(a.code)} out of "
                           f"{Option.MISSING_CODES}")
 
 
@@ -192,19 +192,19 @@ def coding_described(answers: tuple, span: tuple[float, float] | None = None) ->
     for word, number, code in answers:
         if word is None and number == code:
             continue
-        by_code.setdefault(code, []).append(printable(word) if word is not None else f"{number:g}")
+        by_code.setdefault(code, []).append(printable(word) if word is not None else f"{user_number(number)}")
     if kept:
-        numbers = (f"the number {kept[0]:g} kept its value" if len(kept) == 1 else
-                   f"the numbers {kept[0]:g} to {kept[-1]:g} kept their values"
+        numbers = (f"the number {user_number(kept[0])} kept its value" if len(kept) == 1 else
+                   f"the numbers {user_number(kept[0])} to {user_number(kept[-1])} kept their values"
                    if kept == [kept[0] + k for k in range(len(kept))] else
-                   f"the numbers {', '.join(f'{k:g}' for k in kept)} kept their values")
+                   f"the numbers {', '.join(f'{user_number(k)}' for k in kept)} kept their values")
         return f"{coding_described(tuple(a for a in answers if not (a[0] is None and a[1] == a[2])), (kept[0], kept[-1]))}; {numbers}" \
             if by_code else numbers
     codes = sorted(by_code)
     run = (span is None or codes[0] <= span[0] and codes[-1] >= span[1]) and len(codes) > 2 and all(len(by_code[c]) == 1 for c in codes) and codes == [codes[0] + k for k in range(len(codes))]
     if run:
-        return f"{codes[0]:g} ({by_code[codes[0]][0]}) to {codes[-1]:g} ({by_code[codes[-1]][0]})"
-    return ", ".join(f"{c:g} ({', '.join(by_code[c])})" for c in codes)
+        return f"{user_number(codes[0])} ({by_code[codes[0]][0]}) to {user_number(codes[-1])} ({by_code[codes[-1]][0]})"
+    return ", ".join(f"{user_number(c)} ({', '.join(by_code[c])})" for c in codes)
 
 
 def _origin(coding: AnswerCoding, text: str, words: str = "") -> Command:
@@ -235,7 +235,7 @@ def answer_notes(spec: Spec, coded: tuple[str, ...] | None = None) -> list[Note]
         for answer in coding.answers:
             if not (answer.word is None and answer.number == answer.code):  # a number kept as itself: said apart
                 by_code.setdefault(answer.code, []).append(answer.shown)
-        shared = [f"{' and '.join(repr(printable(w)) for w in words)} share the code {code:g}"
+        shared = [f"{' and '.join(repr(printable(w)) for w in words)} share the code {user_number(code)}"
                   for code, words in by_code.items() if len(words) > 1]
         one = ("" if not shared else
                f"; {shared[0]}, so they are analysed as one answer" if len(shared) == 1 else
@@ -246,7 +246,7 @@ def answer_notes(spec: Spec, coded: tuple[str, ...] | None = None) -> list[Note]
         for answer in coding.answers:  # the statement decides: such a word is an answer, and the report says so
             if answer.word is not None and says_no_answer(answer.word):
                 notes.append(Note((f"'{printable(answer.word)}', a word that usually means no answer, is analysed as "
-                                   f"the answer {answer.code:g}", _origin(
+                                   f"the answer {user_number(answer.code)}", _origin(
                                        coding, " because {} codes it so (leave it out of the statement to read it as "
                                                "no answer)" if coding.carried_from is None else
                                        " because {} codes it so", _carried_words(coding)))))

@@ -8,6 +8,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 import pandas as pd
 
+from cfa_tool.numbers import user_number
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import printable
 from cfa_tool.note_parts import Command, Note
@@ -37,7 +38,7 @@ class FilterVariable:
 
     def keep(self) -> str:
         """The row filter that keeps the selected rows: 'filter_$ = 1'."""
-        return f"{self.column} = {self.selected:g}"
+        return f"{self.column} = {user_number(self.selected)}"
 
     def caution(self, source: str) -> str:
         name = source.replace("\\", "/").rsplit("/", 1)[-1]

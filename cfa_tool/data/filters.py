@@ -27,7 +27,7 @@ from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.options import Option
 from cfa_tool.language.names import written_name
-from cfa_tool.numbers import number
+from cfa_tool.numbers import number, user_number
 from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names
 
@@ -123,7 +123,7 @@ _OPERATOR_WORDS = {"=": "was", "!=": "was not", "<": "was below", "<=": "was at 
 
 
 def _value_text(value) -> str:
-    return f"{value:g}" if isinstance(value, float) else str(value)
+    return user_number(value) if isinstance(value, float) else str(value)
 
 
 def _worded(value) -> str:

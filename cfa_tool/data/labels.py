@@ -14,6 +14,7 @@ from dataclasses import dataclass
 from collections.abc import Iterable
 from typing import TYPE_CHECKING
 
+from cfa_tool.numbers import user_number
 from cfa_tool.errors import printable
 from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
@@ -458,13 +459,13 @@ def refuse_moved_labels(fitted: dict | None, value_labels: dict, items, source: 
         return
     item, pairs = moved[0]
     label, code, their_code = pairs[0]
-    recode = ", ".join(f"{c:g} as {t:g}" for _, c, t in pairs)
+    recode = ", ".join(f"{user_number(c)} as {user_number(t)}" for _, c, t in pairs)
     others = [printable(i) for i, _ in moved[1:]]
     more = (f"; {len(others)} more item{'s' if len(others) != 1 else ''} ({', '.join(others[:5])}"
             f"{' and more' if len(others) > 5 else ''}) {'has' if len(others) == 1 else 'have'} labels on other "
             f"codes too") if others else ""
-    raise DataError(f"{base_name(source)}: the value label '{printable(label)}' of {printable(item)} is code {code:g} "
-                    f"here but code {their_code:g} in the fit's data ({base_name(fit_source)}), so its answers would "
+    raise DataError(f"{base_name(source)}: the value label '{printable(label)}' of {printable(item)} is code {user_number(code)} "
+                    f"here but code {user_number(their_code)} in the fit's data ({base_name(fit_source)}), so its answers would "
                     f"be scored as other answers{more}; recode {printable(item)} in a copy of {base_name(source)} "
                     f"({recode}) so that each label has the fit's code, then score it")
 

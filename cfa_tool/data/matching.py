@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from cfa_tool.numbers import user_number
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import DataError, ModelError, OptionError, character_names, printable
 from cfa_tool.note_parts import Command, Note
@@ -161,9 +162,9 @@ def check_codes_off_scales(spec: Spec, missing_codes: tuple[float, ...]) -> None
         on_scale = [c for c in missing_codes if keying.minimum <= c <= keying.maximum and float(c).is_integer()]
         if on_scale:
             raise OptionError(
-                f"{Option.MISSING_CODES.given(f'{on_scale[0]:g}')} is an answer of the scale {keying.minimum:g} to "
-                f"{keying.maximum:g} declared by the 'reversed' statement on line {keying.items[0].location.line} "
-                f"(every such answer would be read as no answer): leave {on_scale[0]:g} out of "
+                f"{Option.MISSING_CODES.given(f'{user_number(on_scale[0])}')} is an answer of the scale {user_number(keying.minimum)} to "
+                f"{user_number(keying.maximum)} declared by the 'reversed' statement on line {keying.items[0].location.line} "
+                f"(every such answer would be read as no answer): leave {user_number(on_scale[0])} out of "
                 f"{Option.MISSING_CODES}, or correct the scale")
 
 
@@ -226,9 +227,9 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
             cells = (naming.one_row(where[0]) if len(where) == 1 else
                      f"{len(where)} cells: {naming.several} {', '.join(str(r) for r in where[:3])}"
                      + (" and more" if len(where) > 3 else ""))
-            shown.append(f"'{name}' {v:g}" + (f" '{label}'" if label else "") + f" ({cells})")
+            shown.append(f"'{name}' {user_number(v)}" + (f" '{label}'" if label else "") + f" ({cells})")
         more = f" and {len(stray) - 6} more" if len(stray) > 6 else ""
-        codes = ",".join(f"{c:g}" for c in sorted({v for _, v, _, _ in stray}))
+        codes = ",".join(f"{user_number(c)}" for c in sorted({v for _, v, _, _ in stray}))
         wider = not any(label or code_like(v) for _, v, _, label in stray)  # answers, perhaps, of a wider scale
         strays = {name for name, *_ in stray}
         location = next((i.location for i in keying.items if i.text in strays), keying.items[0].location)
@@ -237,12 +238,12 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
             raise ModelError(
                 f"the 'answers' {'statement' if len(lines) == 1 else 'statements'} on line "
                 f"{' and '.join(str(n) for n in lines)} {'codes' if len(lines) == 1 else 'code'} answers of "
-                f"{data_name} outside the scale {keying.minimum:g} to {keying.maximum:g} declared here: "
+                f"{data_name} outside the scale {user_number(keying.minimum)} to {user_number(keying.maximum)} declared here: "
                 f"{'; '.join(shown)}{more}; number the words to match this scale, or give the scale's true lowest "
                 f"and highest answers here",
                 location, spec.source_line(location))
         raise ModelError(
-            f"{data_name} holds answers outside the scale {keying.minimum:g} to {keying.maximum:g} declared here: "
+            f"{data_name} holds answers outside the scale {user_number(keying.minimum)} to {user_number(keying.maximum)} declared here: "
             f"{'; '.join(shown)}{more}; if they are typing errors or codes for no answer, give "
             f"{Option.MISSING_CODES.given(codes)} (or correct them in a copy of the file)"
             + ("; if the scale really runs wider, give its lowest and highest answers here" if wider else ""),
@@ -266,7 +267,7 @@ def _summary_row_first(frame, spec: Spec, data_source: str, strays: set[int]) ->
 
 def _read_as_none(value: float) -> Note:
     """Advice to read ``value`` as no answer, the option apart (note_parts.Command): a manuscript runs nothing."""
-    return Note((Command(f"give {Option.MISSING_CODES.given(f'{value:g}')}", f"read {value:g} as no answer"),))
+    return Note((Command(f"give {Option.MISSING_CODES.given(f'{user_number(value)}')}", f"read {user_number(value)} as no answer"),))
 
 
 def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict | None = None,
@@ -317,15 +318,15 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
         if x in scale_of:
             low, high, factor = scale_of[x]
             for v in np.unique(column[answered & ((column < low) | (column > high))]).tolist():
-                out.append(f"{data_name}: '{x}' has the answer {v:g} ({listed(column == v)}), outside the scale "
-                           f"{low:g} to {high:g} that the 'reversed' statement declares for the items of {factor}; "
+                out.append(f"{data_name}: '{x}' has the answer {user_number(v)} ({listed(column == v)}), outside the scale "
+                           f"{user_number(low)} to {user_number(high)} that the 'reversed' statement declares for the items of {factor}; "
                            f"so many of its answers lie outside that it is read as answered on another scale; if "
-                           f"{v:g} is a typing error or means 'no answer', " + _read_as_none(v))
+                           f"{user_number(v)} is a typing error or means 'no answer', " + _read_as_none(v))
             continue
         known = {float(k) for k in labels.get(x) or () if isinstance(k, (int, float))}
         if known:
             for v in sorted(set(column[answered].tolist()) - known):
-                out.append(f"{data_name}: '{x}' has the value {v:g} ({listed(column == v)}), which has no value "
+                out.append(f"{data_name}: '{x}' has the value {user_number(v)} ({listed(column == v)}), which has no value "
                            f"label, while its other values are labelled; if it is a typing error or means 'no "
                            f"answer', " + _read_as_none(v) + " (or correct it in a copy of the file)")
     return out

@@ -12,6 +12,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.numbers import user_number
 from cfa_tool.errors import clipped, printable
 from cfa_tool.input_files import base_name
 from cfa_tool.note_parts import Command, Note
@@ -67,7 +68,7 @@ def codes_and_words(values) -> tuple[tuple[float, ...], tuple[str, ...]]:
 
 def codes_shown(codes) -> str:
     """Missing codes as the notes show them: numbers as written (9, -99), words in quotes ('Ne sait pas')."""
-    return ", ".join(f"{c:g}" if isinstance(c, (int, float)) else f"'{printable(str(c))}'" for c in codes)
+    return ", ".join(f"{user_number(c)}" if isinstance(c, (int, float)) else f"'{printable(str(c))}'" for c in codes)
 
 
 def missing_codes_note(source: str | Path, codes: Collection[float | str], read_as_none: list[tuple[str, int]],
@@ -170,11 +171,11 @@ def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int, bool]]
     a row filter that would leave those rows out when none given (``filters``) does already, for a code far outside
     the column's other values (:func:`_far_outside`): a value among them is no code of no answer there, and leaving
     its rows out would drop respondents (a grade of 8 among grades 7 to 9)."""
-    shown = "; ".join(f"'{printable(str(column))}' holds {code:g} in {cells} {'row' if cells == 1 else 'rows'}"
+    shown = "; ".join(f"'{printable(str(column))}' holds {user_number(code)} in {cells} {'row' if cells == 1 else 'rows'}"
                       for column, code, cells, _ in kept[:NAMED_COLUMNS])
     more = f" and {len(kept) - NAMED_COLUMNS} more" if len(kept) > NAMED_COLUMNS else ""
     open_ = [(column, code) for column, code, _, far in kept if far and not _left_out(column, code, filters)]
-    kept_rows = f"{printable(str(open_[0][0]))} != {open_[0][1]:g}" if open_ else ""
+    kept_rows = f"{printable(str(open_[0][0]))} != {user_number(open_[0][1])}" if open_ else ""
     advice = ("; to leave those rows out, ", Command(f"give a row filter such as {Option.KEEP.given(kept_rows)}",
                                                       f"keep only the rows where {kept_rows}")) if open_ else ()
     return Note((f"{base_name(source)}: ", Command(f"{Option.MISSING_CODES} applies", "the codes of no answer apply"),
@@ -218,19 +219,19 @@ class CodeOnAnswer:
         listed = ", ".join(each[:SHOWN]) + (f" and {len(each) - SHOWN} more" if len(each) > SHOWN else "")
         many = len(self.columns) != 1
         name = base_name(source)
-        given = Option.MISSING_CODES.given(f'{self.value:g}')
+        given = Option.MISSING_CODES.given(f'{user_number(self.value)}')
         if self.label is None:  # an unlabelled code, an answer by its place among the answers given
-            opening = (Command(f"{given} read as no answer the code {self.value:g}, which lies in {name}",
-                               f"The code {self.value:g}, given as a code of no answer, was read as no answer; in "
+            opening = (Command(f"{given} read as no answer the code {user_number(self.value)}, which lies in {name}",
+                               f"The code {user_number(self.value)}, given as a code of no answer, was read as no answer; in "
                                f"{name} it lies"),
-                       f" between the other answers ({self.scale[0]:g} to {self.scale[1]:g})")
-            instead = f"as the answer {self.value:g}"
+                       f" between the other answers ({user_number(self.scale[0])} to {user_number(self.scale[1])})")
+            instead = f"as the answer {user_number(self.value)}"
         else:
-            opening = (Command(f"{given} read as no answer the code {self.value:g}, which {name} labels",
-                               f"The code {self.value:g}, given as a code of no answer, was read as no answer; "
+            opening = (Command(f"{given} read as no answer the code {user_number(self.value)}, which {name} labels",
+                               f"The code {user_number(self.value)}, given as a code of no answer, was read as no answer; "
                                f"{name} labels it"),
                        f" '{printable(self.label)}', an answer between the other answers "
-                       f"({self.scale[0]:g} to {self.scale[1]:g})")
+                       f"({user_number(self.scale[0])} to {user_number(self.scale[1])})")
             instead = f"as '{printable(self.label)}'"
         return Note(opening + (
             f" of {len(self.columns) if many else 'the'} item{'s' if many else ''} holding it: {cells} "
@@ -238,10 +239,10 @@ class CodeOnAnswer:
             f"analysed as missing answers, not {instead}.",))
 
     def advice(self) -> Note:
-        answer = f"{self.value:g}" if self.label is None else f"'{printable(self.label)}'"
-        return Note((f"If {answer} is an answer, leave {self.value:g} out of ",
+        answer = f"{user_number(self.value)}" if self.label is None else f"'{printable(self.label)}'"
+        return Note((f"If {answer} is an answer, leave {user_number(self.value)} out of ",
                      Command(f"{Option.MISSING_CODES}", "the codes of no answer"),
-                     f"; if these items' {self.value:g} means no answer, nothing (gaps so made are missing because "
+                     f"; if these items' {user_number(self.value)} means no answer, nothing (gaps so made are missing because "
                      f"of their own value, which full-information ML does not assume)."))
 
 

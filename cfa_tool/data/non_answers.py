@@ -35,7 +35,7 @@ import pandas as pd
 
 from cfa_tool.language.spec import answer_key
 from cfa_tool.errors import DataError, clipped, printable
-from cfa_tool.numbers import number
+from cfa_tool.numbers import number, user_number
 from cfa_tool.input_files import DATA_FRAME, base_name
 from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
@@ -168,7 +168,7 @@ class NonAnswer:
     rows: tuple[int, ...]
 
     def shown(self) -> str:
-        code = (f"{self.value:g}" if isinstance(self.value, float) else printable(self.value)
+        code = (f"{user_number(self.value)}" if isinstance(self.value, float) else printable(self.value)
                 if self.kind is NonAnswerKind.DECLARED else f"'{printable(self.value)}'")  # Stata's .a unquoted
         return code + (f" '{printable(self.label)}'" if self.label and self.kind is not NonAnswerKind.WRITTEN else "")
 
@@ -269,8 +269,8 @@ class LabelledAnswer:
         listed = ", ".join(f"{printable(c)} {n}" for c, n in zip(self.columns[:SHOWN], self.cells[:SHOWN]))
         more = f" and {_more(len(self.columns) - SHOWN, 'item')}" if len(self.columns) > SHOWN else ""
         total = sum(self.cells)
-        codes = [f"{c:g}" for c in given if isinstance(c, (int, float))] + [f"{self.value:g}"]
-        return Note((f"{base_name(source)}: {self.value:g} '{printable(self.label)}' lies between other answers of "
+        codes = [f"{user_number(c)}" for c in given if isinstance(c, (int, float))] + [f"{user_number(self.value)}"]
+        return Note((f"{base_name(source)}: {user_number(self.value)} '{printable(self.label)}' lies between other answers of "
                      f"the item{'s' if len(self.columns) != 1 else ''} and was analysed as an answer ({total} "
                      f"cell{'s' if total != 1 else ''}: {listed}{more}), though its label reads like no answer",
                      Command(f"; to read it as no answer, give {Option.MISSING_CODES.given(','.join(codes))}")))
@@ -348,19 +348,19 @@ class BeyondScale:
         if len(self.columns) == 1:
             (rows,) = self.rows
             shown = ", ".join(str(r) for r in rows[:3]) + (f" and {len(rows) - 3} more" if len(rows) > 3 else "")
-            where = (f"The item {printable(self.columns[0])} of {name} holds the code {self.value:g} labelled "
+            where = (f"The item {printable(self.columns[0])} of {name} holds the code {user_number(self.value)} labelled "
                      f"'{printable(self.label)}' ({cells} cell{'s' if cells != 1 else ''}: data "
                      f"row{'s' if cells != 1 else ''} {shown}), beyond its other labelled answers")
         else:
             each = [f"{printable(c)} {len(r)}" for c, r in zip(self.columns, self.rows)]
             listed = ", ".join(each[:SHOWN]) + (f" and {_more(len(each) - SHOWN, 'item')}" if len(each) > SHOWN else "")
-            where = (f"{len(self.columns)} items of {name} hold the code {self.value:g} labelled "
+            where = (f"{len(self.columns)} items of {name} hold the code {user_number(self.value)} labelled "
                      f"'{printable(self.label)}' ({cells} cells: {listed}), beyond their other labelled answers")
-        return f"{where} ({self.scale[0]:g} to {self.scale[1]:g}), analysed as an answer: a code of no answer?"
+        return f"{where} ({user_number(self.scale[0])} to {user_number(self.scale[1])}), analysed as an answer: a code of no answer?"
 
     def advice(self) -> Note:
-        return Note((f"If {self.value:g} '{printable(self.label)}' is not an answer on the scale, ",
-                     Command(f"give {Option.MISSING_CODES.given(f'{self.value:g}')}", "read it as no answer"),
+        return Note((f"If {user_number(self.value)} '{printable(self.label)}' is not an answer on the scale, ",
+                     Command(f"give {Option.MISSING_CODES.given(f'{user_number(self.value)}')}", "read it as no answer"),
                      "; if it is, nothing."))
 
 

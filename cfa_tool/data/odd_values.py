@@ -47,6 +47,7 @@ from functools import cached_property
 import numpy as np
 import pandas as pd
 
+from cfa_tool.numbers import user_number
 from cfa_tool.data.descriptives import answer_extremes
 from cfa_tool.data.kept_rows import RowNaming, row_naming, row_words, rows_listed, text_lines
 from cfa_tool.data.moments import column_dtypes, item_values, stored_column
@@ -862,4 +863,4 @@ def _listed(items) -> str:
 
 
 def _number(value: float) -> str:
-    return f"{value:g}" if abs(value) < 1e15 else f"{value:.6g}"
+    return user_number(value) if abs(value) < 1e15 else f"{value:.6g}"

@@ -34,6 +34,7 @@ import numpy as np
 import pandas as pd
 from scipy import optimize
 
+from cfa_tool.numbers import user_number
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool.data.answer_words import CODED_BY_STATEMENT, answers_statement
@@ -530,7 +531,7 @@ def category_count_refusal(source: str, where: str, name: str, levels) -> str | 
     """Why the ordinal item ``name`` with the categories ``levels`` cannot be fitted (a single category, or more than
     :data:`MAX_CATEGORIES`), with its place; None when its number of categories can be."""
     if len(levels) < 2:
-        return f"{source}{where}: ordinal item '{name}' has a single category ({levels[0]:g}); it needs at least two"
+        return f"{source}{where}: ordinal item '{name}' has a single category ({user_number(levels[0])}); it needs at least two"
     if len(levels) > MAX_CATEGORIES:
         return (f"{source}{where}: ordinal item '{name}' has {len(levels)} categories; with more than "
                 f"{MAX_CATEGORIES} treat it as continuous")
@@ -539,7 +540,7 @@ def category_count_refusal(source: str, where: str, name: str, levels) -> str | 
 
 def _rare_listed(rare: list[tuple[str, float, int]]) -> str:
     """The rare categories of the ordinal items, by item ('clean' 4 (1 row))."""
-    shown = [f"'{printable(name)}' {v:g} ({c} row{'' if c == 1 else 's'})" for name, v, c in rare[:6]]
+    shown = [f"'{printable(name)}' {user_number(v)} ({c} row{'' if c == 1 else 's'})" for name, v, c in rare[:6]]
     return ", ".join(shown) + (f" and {len(rare) - 6} more" if len(rare) > 6 else "")
 
 
@@ -559,7 +560,7 @@ def check_whole_answers(values: np.ndarray, frame: pd.DataFrame, names: tuple[st
     others = int(fractional[:, j].sum()) - 1
     more = f" (and {others} other fractional {'answer' if others == 1 else 'answers'})" if others else ""
     number = int(row_numbers(frame)[row])
-    raise RowDataError(f"{source}{where}: ordinal item '{printable(names[j])}' has the answer {values[row, j]:g} in "
+    raise RowDataError(f"{source}{where}: ordinal item '{printable(names[j])}' has the answer {user_number(values[row, j])} in "
                        f"{row_of(frame, number)}{more}; the answers of an ordinal item are category codes (whole numbers): "
                        f"correct the value, or analyse the item as continuous", number)
 
@@ -650,7 +651,7 @@ def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]
               if any(word is not None for word, _, _ in coded.get(name, ()))}
     beyond = sorted({v for name, empty in items.items() for v in empty if name not in worded  # a word's code is real
                      and len(seen[name]) and (v < min(seen[name]) or v > max(seen[name])) and code_like(v)})  # a code?
-    codes = [f"{v:g}" for v in beyond]
+    codes = [f"{user_number(v)}" for v in beyond]
     first = (f"if {' and '.join(codes)} {'is' if len(codes) == 1 else 'are'} not a real answer (a typing "
              f"error or a code for no answer), give {Option.MISSING_CODES.given(','.join(codes))}; if real, "
              if codes else "")
@@ -734,11 +735,11 @@ def _nearest(value: float, seen) -> float:
 
 def _merged_into(empty, seen) -> str:
     """'1 as 2, 5 as 4': each empty category recoded as its nearest category that was answered (:func:`_nearest`)."""
-    return ", ".join(f"{v:g} as {_nearest(v, seen):g}" for v in empty)
+    return ", ".join(f"{user_number(v)} as {user_number(_nearest(v, seen))}" for v in empty)
 
 
 def _categories(values) -> str:
-    text = [f"{v:g}" for v in values]
+    text = [f"{user_number(v)}" for v in values]
     return f"category {text[0]}" if len(text) == 1 else "categories " + ", ".join(text)
 
 

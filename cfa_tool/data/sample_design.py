@@ -14,6 +14,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 import pandas as pd
 
+from cfa_tool.numbers import count_text
 from cfa_tool.data.kept_rows import row_of
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.options import Option
@@ -191,12 +192,12 @@ class SampleDesign:
         parts = []
         if c.weights is not None:
             if c.kind is WeightKind.FREQUENCY:
-                parts.append(f"frequency weights from the column {c.weights} (sum {self.sum_of_weights:g}, taken as N)")
+                parts.append(f"frequency weights from the column {c.weights} (sum {count_text(self.sum_of_weights)}, taken as N)")
             else:
                 within = (f"rescaled within each group to sum to its rows ({', '.join(map(str, self.group_rows))})"
                           if self.group_rows
                           else f"rescaled to sum to the {self.rows} rows")
-                parts.append(f"sampling weights from the column {c.weights} (sum {self.sum_of_weights:.6g}, {within}; "
+                parts.append(f"sampling weights from the column {c.weights} (sum {count_text(self.sum_of_weights)}, {within}; "
                              f"Kish's effective sample size {self.effective_n:.1f}), by "
                              + ("the weighted full-information likelihood (Asparouhov, 2005)" if full_information else
                                 f"weighted thresholds and {correlations} (pseudo-maximum likelihood; Muthén & "
@@ -310,7 +311,7 @@ class SampleDesign:
         c = self.columns
         parts = []
         if c.weights is not None:
-            extra = (f"; sum {self.sum_of_weights:.6g}" + (f", Kish's effective N {self.effective_n:.1f}"
+            extra = (f"; sum {count_text(self.sum_of_weights)}" + (f", Kish's effective N {self.effective_n:.1f}"
                                                            if c.kind is WeightKind.SAMPLING else ""))
             parts.append(f"{c.kind.label} ({c.weights}{extra})")
         if c.cluster is not None:

@@ -34,7 +34,7 @@ from cfa_tool.data.moments import LARGEST_VALUE, SMALLEST_SPREAD, SampleMoments,
 from cfa_tool import options as check
 from cfa_tool.errors import DataError, clipped, printable
 from cfa_tool.input_files import DATA_FRAME, hidden_line_break, input_text, normalise_line_ends, text_lines, utf16_text
-from cfa_tool.numbers import number, whole_number
+from cfa_tool.numbers import number, whole_number, user_number
 from cfa_tool.options import MAX_OBSERVATIONS
 
 
@@ -285,7 +285,7 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
                         f"column {i + 1})")
     if np.any(np.diag(matrix) <= 0):
         j = int(np.flatnonzero(np.diag(matrix) <= 0)[0])
-        raise DataError(f"{source}: the variance of '{printable(names[j])}' on the diagonal is {matrix[j, j]:g}; "
+        raise DataError(f"{source}: the variance of '{printable(names[j])}' on the diagonal is {user_number(matrix[j, j])}; "
                         f"variances must be positive")
     n_obs = check.observations(n_obs)
     if sds is not None and kind != "correlation":
@@ -296,7 +296,7 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
         if len(sds) == p and not np.all(np.isfinite(sds) & (sds > 0)):
             j = int(np.flatnonzero(~(np.isfinite(sds) & (sds > 0)))[0])
             where = f"{source}:{sd_line}" if sd_line is not None else source
-            raise DataError(f"{where}: the standard deviation of '{printable(names[j])}' is {sds[j]:g}; standard "
+            raise DataError(f"{where}: the standard deviation of '{printable(names[j])}' is {user_number(sds[j])}; standard "
                             f"deviations must be positive")
         if len(sds) != p:
             raise DataError(f"{source}: give {p} positive standard deviations, one per variable ({len(sds)} given)")
@@ -319,11 +319,11 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
             i, j = beyond[0]
             where = f"{source}:{row_lines[i]}" if row_lines is not None else f"{source} (row {i + 1} of the matrix)"
             raise DataError(f"{where}: the correlation of '{printable(names[i])}' and '{printable(names[j])}' is "
-                            f"{matrix[i, j]:g}, beyond +/-1; check it for a typing error")
+                            f"{user_number(matrix[i, j])}, beyond +/-1; check it for a typing error")
         if not np.allclose(np.diag(matrix), 1.0, atol=1e-6):
             j = int(np.flatnonzero(~np.isclose(np.diag(matrix), 1.0, rtol=0.0, atol=1e-6))[0])
             where = f"{source}:{row_lines[j]}" if row_lines is not None else f"{source} (row {j + 1} of the matrix)"
-            raise DataError(f"{where}: the diagonal cell of '{printable(names[j])}' is {matrix[j, j]:g}; a correlation "
+            raise DataError(f"{where}: the diagonal cell of '{printable(names[j])}' is {user_number(matrix[j, j])}; a correlation "
                             f"matrix needs ones on its diagonal (check it for a typing error, or declare the matrix a "
                             f"covariance matrix if it holds variances)")
         if sds is not None:

@@ -230,7 +230,9 @@ def robust_fit(chi_square: float, df: int, trace_ug: float, base_chi: float, bas
         baseline_scaling_factor=float(cb),
         baseline_chi_square_scaled=float(base_chi / cb) if cb > 0 and np.isfinite(cb) else float("nan"),
         cfi_robust=cfi_from(lam, lam_b) if np.isfinite(lam) and np.isfinite(lam_b) else float("nan"),
-        tli_robust=tli_from(lam, df, lam_b, base_df) if np.isfinite(lam) and np.isfinite(lam_b) else float("nan"),
+        # not cut at 0, as the normal-theory TLI is not (fit_indices.TLI_NOT_CUT)
+        tli_robust=tli_from(chi_square - c * df, df, base_chi - cb * base_df, base_df)
+        if np.isfinite(lam) and np.isfinite(lam_b) else float("nan"),
         rmsea_robust=rmsea_from(lam, df, n_obs, n_groups),
         rmsea_robust_ci90=(float(low * scale), float(high * scale)),
         not_computed=not_computed,

@@ -33,6 +33,7 @@ from typing import Callable
 
 import numpy as np
 
+from cfa_tool.numbers import user_number
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import ModelError, printable
 from cfa_tool.options import Option
@@ -217,6 +218,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
     ordinal = dict(ordinal or {})
     if multi:  # without groups, invariance statements have nothing to hold equal
         _check_threshold_use(spec, ordinal)
+        _check_ordinal_intercept_fixes(spec, ordinal, group_labels[0])
 
     # ---- every entry of every group, keyed (group, kind, names)
     entries: dict[tuple, dict] = {}
@@ -574,7 +576,7 @@ def _start_values(spec: Spec, groups_of, free_index, multi: bool) -> dict[int, f
                         if ref.group is None:
                             continue
                     elif value != setting.value:
-                        raise _fail(spec, f"{ref} is given the start value {setting.value:g} here but {value:g} on "
+                        raise _fail(spec, f"{ref} is given the start value {user_number(setting.value)} here but {user_number(value)} on "
                                           f"line {first.location.line}; give it one", ref)
                 given[key] = (setting.value, ref)
     starts: dict[int, tuple[float, ParameterRef, tuple]] = {}
@@ -601,8 +603,8 @@ def _start_values(spec: Spec, groups_of, free_index, multi: bool) -> dict[int, f
             exempt = (f", or let them differ across groups with 'noninvariant {reference_text(*key[1:])}'"
                       if multi and key[1:] == key0[1:] else "")
             held = " ".join(["held equal", " and ".join(ties)]).strip()
-            raise _fail(spec, f"{ref0} and {ref} are {held} but given different start values: {value0:g} on line "
-                              f"{ref0.location.line} and {value:g} on line {ref.location.line}; give them "
+            raise _fail(spec, f"{ref0} and {ref} are {held} but given different start values: {user_number(value0)} on line "
+                              f"{ref0.location.line} and {user_number(value)} on line {ref.location.line}; give them "
                               f"one{exempt}", ref)
     return {index: value for index, (value, _, _) in starts.items()}
 
@@ -641,16 +643,16 @@ def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by
             how = f"held equal by the 'equal' statement{'s' if len(lines) > 1 else ''} on line" + (
                 f"{'s' if len(lines) > 1 else ''} {' and '.join(map(str, lines))}")
         why = (_why_not_free(spec, other, entries, effects, fixed_by, tied_to, multi, group_labels)
-               or f"fixed at {entries[other]['fixed']:g} in the first group, which sets the origin of the means")
+               or f"fixed at {user_number(entries[other]['fixed'])} in the first group, which sets the origin of the means")
         return f"fixed through its tie to {label} ({how}), which is {why}"
     if key in fixed_by:
         ref = fixed_by[key]
         what = ("to orient its exploratory block" if e["origin"] == "exploratory" else "")
-        return f"fixed at {value:g} by the 'fix' statement on line {ref.location.line}" + (f" {what}" if what else "")
+        return f"fixed at {user_number(value)} by the 'fix' statement on line {ref.location.line}" + (f" {what}" if what else "")
     if e["origin"] == "scale":
         if names[0] in spec.factor_names:
-            return f"fixed at {value:g} to set the scale of '{names[0]}'"
-        return (f"fixed at {value:g} to give the latent response of the ordinal item '{names[0]}' its "
+            return f"fixed at {user_number(value)} to set the scale of '{names[0]}'"
+        return (f"fixed at {user_number(value)} to give the latent response of the ordinal item '{names[0]}' its "
                 f"{'origin' if kind == 'intercept' else 'unit'} (Wu & Estabrook 2016)")
     if kind == "mean":
         if not multi:
@@ -663,7 +665,7 @@ def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by
             return ("fixed at 0 in the first group, which sets the origin of the means (the other groups' means are "
                     "differences from it)")
         return MEANS_FIXED_EVERYWHERE
-    return f"fixed at {value:g}"  # pragma: no cover - every fixed entry has one of the reasons above
+    return f"fixed at {user_number(value)}"  # pragma: no cover - every fixed entry has one of the reasons above
 
 
 def _entry_kind(entry: dict) -> str:
@@ -704,10 +706,10 @@ def _check_group_fixes_held_equal(spec: Spec, fixed_by: dict, entries: dict, tie
             continue
         says, claim = _held_by(spec, "threshold" if ref.kind == "threshold" else _entry_kind(entries[key]))
         plain = replace(ref, group=None)
-        raise _fail(spec, f"{ref} is fixed at {value:g} in that group alone, but {says}: the other groups' {plain} "
+        raise _fail(spec, f"{ref} is fixed at {user_number(value)} in that group alone, but {says}: the other groups' {plain} "
                           f"would be left free, and {claim}; "
                           f"fix it in every group (the 'fix' statement without 'in group') to hold it "
-                          f"equal at {value:g}, or exempt it ('noninvariant {plain}') so that it may differ across "
+                          f"equal at {user_number(value)}, or exempt it ('noninvariant {plain}') so that it may differ across "
                           f"groups and the report names it", ref)
 
 
@@ -875,6 +877,27 @@ def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, mea
             guess = close_names(ref.group, group_labels)
             hint = f"; did you mean '{guess[0]}'?" if guess else f"; the groups are {', '.join(group_labels)}"
             raise _fail(spec, f"there is no group '{ref.group}' in the data{hint}", ref)
+
+
+def _check_ordinal_intercept_fixes(spec: Spec, ordinal: dict[str, int], first_group: str) -> None:
+    """A 'fix' of an ordinal item's intercept at a value other than 0 in every group or in the first one, where none
+    of its thresholds is fixed, is refused at its line: the item's free thresholds carry its latent response's
+    location, so the value only moves every threshold by as much, the fit unchanged, while the report reads the
+    thresholds on the latent response's scale with intercept 0 (Wu & Estabrook 2016's location; hostile s19).  A fix
+    in a later group, beside thresholds held equal, sets that group's difference and stays."""
+    thresholds_fixed = {r.names[0] for s in spec.fixed for r in s.refs if r.kind == "threshold"}
+    for setting in spec.fixed:
+        for ref in setting.refs:
+            x = ref.names[0] if ref.names else None
+            if (ref.kind != "intercept" or x not in ordinal or setting.value == 0 or x in thresholds_fixed
+                    or ref.group not in (None, first_group)):
+                continue
+            where = "" if ref.group is None else f" in group {ref.group}"
+            raise _fail(spec, f"{ref} is fixed at {user_number(setting.value)}{where}, but '{x}' is ordinal: its "
+                              f"free thresholds carry its location, so this value would only move each of them by "
+                              f"{user_number(setting.value)} and change nothing in the fit, while the report reads "
+                              f"them with the intercept at 0; leave the statement out, or fix a threshold to set the "
+                              f"location", ref)
 
 
 def _check_threshold_use(spec: Spec, ordinal: dict[str, int]) -> None:
@@ -1053,7 +1076,7 @@ def given_values_possible(spec: Spec, table: ParameterTable, values: np.ndarray,
 
     for (kind, names), (ref, value, how) in settings.items():
         if kind.endswith("_variance") and value < 0:
-            raise fail(ref, how, f"{value:g}, and a variance cannot be negative")
+            raise fail(ref, how, f"{user_number(value)}, and a variance cannot be negative")
     for (kind, names), (ref, value, how) in settings.items():
         if not kind.endswith("_covariance"):
             continue
@@ -1066,7 +1089,7 @@ def given_values_possible(spec: Spec, table: ParameterTable, values: np.ndarray,
         bound = np.sqrt(va * vb)
         if abs(covariance) > bound * (1 + 1e-9):
             correlation = f", a correlation of {covariance / bound:.2f}" if bound > 0 else ""
-            raise fail(ref, how, f"{value:g}, beyond what the variances of {a} ({va:.3g}) and {b} ({vb:.3g}) allow"
+            raise fail(ref, how, f"{user_number(value)}, beyond what the variances of {a} ({va:.3g}) and {b} ({vb:.3g}) allow"
                                  f"{correlation}")
 
 
@@ -1121,7 +1144,7 @@ def impossible_fixed_values(table: ParameterTable, source: str, starts: bool = T
     for value, how, par in given.values():
         if par.kind in ("factor_variance", "residual_variance") and value < 0:
             raise ModelError(f"{source}: the {_values(how)} make the population covariance matrix impossible: "
-                             f"{as_written(par)} is {how} {value:g}, and a variance cannot be negative")
+                             f"{as_written(par)} is {how} {user_number(value)}, and a variance cannot be negative")
     for kind, names in (("factor", table.latent), ("residual", table.observed)):
         variance = {x: given[(f"{kind}_variance", (x,))][0] for x in names if (f"{kind}_variance", (x,)) in given}
         pairs = {}
@@ -1133,7 +1156,7 @@ def impossible_fixed_values(table: ParameterTable, source: str, starts: bool = T
             a, b = par.variables
             if abs(value) > np.sqrt(variance[a] * variance[b]) * (1 + 1e-9):  # zero variances: a zero covariance only
                 raise ModelError(f"{source}: the {_values(how)} make the population covariance matrix impossible: "
-                                 f"{as_written(par)} is {how} {value:g}, beyond what the variances of {a} and {b} "
+                                 f"{as_written(par)} is {how} {user_number(value)}, beyond what the variances of {a} and {b} "
                                  f"allow (a correlation beyond +/-1)")
         # the largest set of these variables whose covariances are all given: it must be positive definite
         members = sorted({x for pair in pairs for x in pair}, key=list(names).index)

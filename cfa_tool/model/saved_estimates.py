@@ -22,6 +22,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from cfa_tool.numbers import user_number
 from cfa_tool.errors import OptionError, clipped
 from cfa_tool.version import check_written_version
 from cfa_tool.model.description import parameter_words
@@ -162,8 +163,8 @@ def values_on_model(rows: tuple[SavedRow, ...], table: ParameterTable, source: s
         placed.add(key)
         values[k] = value = row.estimate
         if not par.terms and k not in derived and abs(value - par.offset) > TOLERANCE * (1.0 + abs(value)):
-            raise OptionError(f"{source} gives {value:g} for {words} where the model file {model} fixes it at "
-                              f"{par.offset:g}: the fit was made with another scale or other fixed values (a factor's "
+            raise OptionError(f"{source} gives {user_number(value)} for {words} where the model file {model} fixes it at "
+                              f"{user_number(par.offset)}: the fit was made with another scale or other fixed values (a factor's "
                               f"automatic marker is its first item not declared reversed); fit the model again and "
                               f"use that result")
         if len(par.terms) == 1 and par.terms[0][1] != 0 and np.isnan(theta[par.terms[0][0]]):
@@ -185,6 +186,6 @@ def values_on_model(rows: tuple[SavedRow, ...], table: ParameterTable, source: s
         again = par.offset + sum(c * theta[i] for i, c in par.terms)
         if k not in derived and abs(again - values[k]) > TOLERANCE * (1.0 + abs(values[k])):
             words = parameter_words(par.kind, par.variables, groups[par.group])
-            raise OptionError(f"{source} gives {values[k]:g} for {words} where the model {model} makes it {again:g} "
+            raise OptionError(f"{source} gives {user_number(values[k])} for {words} where the model {model} makes it {user_number(again)} "
                               f"(it holds it equal to another parameter): the fit is of another model; {other}")
     return SavedValues(table, theta, values, derived, kept)

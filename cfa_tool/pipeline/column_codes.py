@@ -13,6 +13,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from cfa_tool.numbers import user_number
 from cfa_tool.assessment.admissibility import Problem, ProblemKind
 from cfa_tool.data.kept_rows import rows_listed, row_naming
 from cfa_tool.data.moments import row_numbers
@@ -76,7 +77,7 @@ def _others(values: np.ndarray, mask: np.ndarray) -> tuple[float, float] | None:
 
 
 def _number(value: float) -> str:
-    return f"{value:g}"
+    return f"{user_number(value)}"
 
 
 def _caution(loaded: LoadedData, column: str, said: list[str], value: float, mask: np.ndarray,

@@ -62,7 +62,7 @@ class FitOptions:
     # source of the standard errors: None means the estimator's own (expected information for complete
     # data, observed information with full-information ML); robust tests use the sandwich
     information: Information | None = None
-    mi_threshold: float = DEFAULT_MI_THRESHOLD
+    mi_threshold: float | None = None  # None: not given, DEFAULT_MI_THRESHOLD (set in __post_init__)
     mi_top: int | None = None
     max_iterations: int = 500
     # the test of fit; None (not chosen) is the normal-theory test, and under a sampling design the design-based scaled
@@ -84,6 +84,9 @@ class FitOptions:
     # of the solution as in fit (assessment.reliability.keying_problems): for workflows that report their models'
     # problems (compare, the invariance ladder's configural model); not a keyword of the public functions
     reliability: bool = field(default=False, metadata={"keyword": False})
+    # the options of the modification indices the caller gave (--mi-threshold, --mi-top), refused for a model with
+    # nothing to free (0 df: pipeline.results.fit_result); set from mi_threshold and mi_top when not given
+    mi_chosen: tuple | None = field(default=None, metadata={"keyword": False})
 
     def __post_init__(self) -> None:
         if self.test_chosen is None:
@@ -104,6 +107,12 @@ class FitOptions:
                               "information assumes they are missing completely at random, so it is not offered")
         from cfa_tool import options as check
 
+        if self.mi_chosen is None:  # which of the two options of the modification indices the caller gave
+            object.__setattr__(self, "mi_chosen", tuple(o for o, value in ((Option.MI_THRESHOLD, self.mi_threshold),
+                                                                            (Option.MI_TOP, self.mi_top))
+                                                        if value is not None))
+        if self.mi_threshold is None:
+            object.__setattr__(self, "mi_threshold", DEFAULT_MI_THRESHOLD)
         object.__setattr__(self, "mi_threshold", check.real_number("the modification-index threshold", self.mi_threshold, 0.0))
         if self.mi_top is not None:
             object.__setattr__(self, "mi_top", check.whole_number("the number of modification indices to show", self.mi_top, 1))

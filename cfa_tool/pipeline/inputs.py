@@ -18,6 +18,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
     from cfa_tool.assessment.admissibility import Problem
     from cfa_tool.data.halves import RandomHalf
 
+from cfa_tool.numbers import user_number
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
 from cfa_tool.data.kept_rows import (ROW_NAMES_COLUMN, RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
@@ -39,7 +40,7 @@ from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DOMINANT_SHARE, DOMINANT_TIMES, DesignColumns, apply_design, check_design,
                                          design_columns, design_summary, design_weights, refuse_shared_clusters,
                                          shared_cluster)
-from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, holds_summary, pasted_matrix, read_summary_file,
+from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, NotGiven, holds_summary, pasted_matrix, read_summary_file,
                                          summary_in_other_text, summary_moments)
 from cfa_tool import options as opt
 from cfa_tool.note_parts import Command, Note, RowId, Text, joined
@@ -88,9 +89,13 @@ def refuse_row_options(source: str, sheet: str | None = None, missing_codes=(), 
                        first_data_row: int | None = None, rename=None) -> None:
     """Options about rows and columns of raw data cannot apply to summary statistics: each is an
     error rather than silently ignored."""
+    keep = keep_option(keep)
+    halves = _halves(keep)  # a half of a halves file is named as the option that gave it (hostile s19: '--keep')
+    filters = [k for k in keep if k not in halves]
     given = [f"{name} ({option})" for name, option, value in (
         ("a sheet", Option.SHEET, sheet), ("missing-value codes", Option.MISSING_CODES, missing_codes),
-        ("row filters", Option.KEEP, keep), ("groups", Option.GROUP_COLUMN, group),
+        ("row filters", Option.KEEP, filters), ("a random half of the rows", Option.HALF, halves),
+        ("groups", Option.GROUP_COLUMN, group),
         ("an id column", Option.ID_COLUMN, id_column), ("a row of column names", Option.NAMES_ROW, names_row),
         ("a first row of data", Option.FIRST_DATA_ROW, first_data_row),
         ("columns read under new names", Option.RENAME, rename))
@@ -135,8 +140,13 @@ def missing_codes_option(codes) -> tuple[float, ...]:
 
 def of_summary_statistics(result, moments, notes) -> object:
     """A fit of summary statistics with what every view says of them: the reading notes first among the warnings,
-    the matrix analysed and what the file did not give (means, standard deviations)."""
-    return replace(result, warnings=tuple(notes) + result.warnings,
+    the matrix analysed and what the file did not give (means, standard deviations: without means the keyed sums'
+    means are unknown too)."""
+    groups = result.groups
+    if NotGiven.MEANS in moments.not_given:  # no means: the keyed sums' means are not known either
+        groups = tuple(replace(g, reliability=tuple(replace(r, sum_score_mean=None) for r in g.reliability))
+                       for g in groups)
+    return replace(result, warnings=tuple(notes) + result.warnings, groups=groups,
                    data=replace(result.data, not_given=moments.not_given, analysed=moments.analysed))
 
 
@@ -543,7 +553,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         if fit_options.test is not FitTest.NORMAL:
             raise OptionError("summary statistics allow only the normal-theory test: robust tests and standard errors "
                               f"need the rows of answers ({Option.ROBUST} cannot apply)")
-        result = converged(fit_moments(spec, moments, replace(fit_options, diagnostics=False)))
+        result = converged(fit_moments(spec, moments, fit_options))
         return _described(of_summary_statistics(result, moments, notes), spec, None)
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
@@ -1018,8 +1028,8 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
 
     def gave(which: list[int]) -> str:
         answers = sorted({found.answers[k] for k in which})
-        return (f"the answer {answers[0]:g}" if len(answers) == 1 else
-                "one answer each (" + ", ".join(f"{a:g}" for a in answers) + ")")
+        return (f"the answer {user_number(answers[0])}" if len(answers) == 1 else
+                "one answer each (" + ", ".join(f"{user_number(a)}" for a in answers) + ")")
 
     def rows_gave(which: list[int], what: str) -> str:
         one = len(which) == 1
@@ -1092,25 +1102,25 @@ def scale_ends_problems(frame: pd.DataFrame, spec: Spec) -> tuple:
         low, high = float(values[answered].min()), float(values[answered].max())
         if low <= keying.minimum and high >= keying.maximum:
             continue
-        unreached = [f"{v:g}" for v in (keying.minimum, keying.maximum)
+        unreached = [f"{user_number(v)}" for v in (keying.minimum, keying.maximum)
                      if (v < low if v == keying.minimum else v > high)]
         reversed_items = ", ".join(i.text for i in keying.items)
         shift = (keying.minimum + keying.maximum) - (low + high)
-        effect = (f"if the answer scale is {low:g} to {high:g}, each reversed answer counts {abs(shift):g} too "
+        effect = (f"if the answer scale is {user_number(low)} to {user_number(high)}, each reversed answer counts {user_number(abs(shift))} too "
                   f"{'high' if shift > 0 else 'low'}, and each keyed sum's mean by as much for every reversed item in it "
                   f"(their spread, correlations and omega do not change)" if shift else
-                  f"the keyed sums would be the same on {low:g} to {high:g}")
+                  f"the keyed sums would be the same on {user_number(low)} to {user_number(high)}")
         out.append(Problem(
             ProblemKind.SCALE_ENDS_UNREACHED, (), float(len(unreached)),
             # the model file's statement apart (note_parts.Command): a manuscript's reader edits no model file
             Note(("The model", Command(f" (its 'reversed' statement on line {keying.location.line})"),
-                  f" declares answers from {keying.minimum:g} to {keying.maximum:g} for {reversed_items}, but no answer "
-                  f"of the items it covers reaches {' or '.join(unreached)}: they run from {low:g} to {high:g} in "
-                  f"{len(values)} rows. A reversed answer x counts as {keying.minimum + keying.maximum:g} - x in the "
+                  f" declares answers from {user_number(keying.minimum)} to {user_number(keying.maximum)} for {reversed_items}, but no answer "
+                  f"of the items it covers reaches {' or '.join(unreached)}: they run from {user_number(low)} to {user_number(high)} in "
+                  f"{len(values)} rows. A reversed answer x counts as {user_number(keying.minimum + keying.maximum)} - x in the "
                   f"keyed sums; {effect}.")),
             Note(("declare the questionnaire's own lowest and highest answers",
-                  Command(" in the 'reversed' statement"), f" (on {low:g} to {high:g} if that is the scale); if the "
-                  f"scale really runs from {keying.minimum:g} to {keying.maximum:g}, the keyed sums are right as they "
+                  Command(" in the 'reversed' statement"), f" (on {user_number(low)} to {user_number(high)} if that is the scale); if the "
+                  f"scale really runs from {user_number(keying.minimum)} to {user_number(keying.maximum)}, the keyed sums are right as they "
                   f"are."))))
     return tuple(out)
 
@@ -1269,7 +1279,7 @@ def _nearly_constant_problems(names: tuple[str, ...], loaded: LoadedData | None,
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     one = len(found) == 1
-    listed = "; ".join(f"'{printable(c.name)}' is {c.common:g} in all but {c.others} of the {c.answered} rows "
+    listed = "; ".join(f"'{printable(c.name)}' is {user_number(c.common)} in all but {c.others} of the {c.answered} rows "
                        f"answering it" for c in found[:5]) + (f"; and {len(found) - 5} more" if len(found) > 5 else "")
     return (Problem(ProblemKind.NEARLY_CONSTANT, (), float(min(c.others for c in found)),
                     f"Nearly constant {'item' if one else 'items'}: {listed}. {'Its' if one else 'Their'} variance, "

@@ -635,6 +635,13 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
     ``table``: the model's parameter table (model.parameters.ParameterTable; ``model.table`` when not given), from
     which the estimates held equal across groups are read (:func:`held_equal_entries`)."""
     groups = tuple(groups)
+    chosen = getattr(options, "mi_chosen", ())
+    if chosen and fit is not None and fit.df == 0:  # an option that cannot apply is an error, never ignored
+        from cfa_tool.errors import OptionError
+
+        raise OptionError(f"the model has 0 degrees of freedom: it reproduces the covariances exactly, so no parameter "
+                          f"can be freed and there are no modification indices to show; {chosen[0]} cannot apply, "
+                          f"remove it")
     if table is None and model is not None:
         table = model.table
     held = held_equal_entries(table) if table is not None and group_column is not None else frozenset()
@@ -658,11 +665,12 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
 
         from cfa_tool.assessment.reliability import keying_problems
 
-        from cfa_tool.assessment.admissibility import poor_fit_problems
+        from cfa_tool.assessment.admissibility import poor_fit_problems, uninformative_baseline_problems
 
         problems = tuple(problems) + tuple(weak_factor_problems(estimates, latent, observed, groups, spec.method_factors,
                                                                 spec.exploratory_factors)) + tuple(keying_problems(groups))
         if fit is not None:
+            problems += uninformative_baseline_problems(fit, robust, n_obs, max(len(groups), 1))
             problems += poor_fit_problems(IndicesToRead.of(fit, robust))
     if len(groups) <= 1:  # one group: the rule of rows per parameter (groups of several: each group's, by the same rule)
         from cfa_tool.assessment.admissibility import one_sample_size_problems

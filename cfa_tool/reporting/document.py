@@ -147,17 +147,33 @@ class Report:
 
     @classmethod
     def from_dict(cls, d: dict) -> "Report":
+        """The report saved by :meth:`to_dict`; a ValueError (or KeyError, TypeError) for a part of another type, as a
+        file changed by hand may hold (hostile s19: a text as 'lines' was shown one character per line, a number as
+        the paragraph ended in an internal error)."""
         n = d.get("notice")
-        notice = None if n is None else ProblemNotice(str(n["heading"]), tuple(map(read, n["lines"])),
+        notice = None if n is None else ProblemNotice(str(n["heading"]), tuple(map(read, _listed(n, "lines"))),
                                                       bool(n["inadmissible"]))
-        return cls(ResultKind(d["kind"]), str(d["title"]), notice, tuple(map(read, d["lines"])),
-                   tuple(ReportTable.from_dict(t) for t in d["tables"]), tuple(map(read, d.get("notes", ()))),
-                   tuple(map(read, d.get("cautions", ()))), d.get("paragraph"),
-                   tuple(Figure(str(f["title"]), drawn(str(f["svg"]), str(f.get("note", "")))) for f in d.get("figures", ())),
+        paragraph = d.get("paragraph")
+        if paragraph is not None and not isinstance(paragraph, str):
+            raise ValueError("a report's paragraph that is not text")
+        return cls(ResultKind(d["kind"]), str(d["title"]), notice, tuple(map(read, _listed(d, "lines"))),
+                   tuple(ReportTable.from_dict(t) for t in _listed(d, "tables")),
+                   tuple(map(read, _listed(d, "notes", ()))), tuple(map(read, _listed(d, "cautions", ()))), paragraph,
+                   tuple(Figure(str(f["title"]), drawn(str(f["svg"]), str(f.get("note", ""))))
+                         for f in _listed(d, "figures", ())),
                    None if d.get("problem_table") is None else ReportTable.from_dict(d["problem_table"]),
-                   tuple(map(read, d.get("warnings", ()))),
-                   tuple(Listing(str(x["title"]), str(x["text"])) for x in d.get("listings", ())),
-                   tuple(map(str, d.get("files", ()))))
+                   tuple(map(read, _listed(d, "warnings", ()))),
+                   tuple(Listing(str(x["title"]), str(x["text"])) for x in _listed(d, "listings", ())),
+                   tuple(map(str, _listed(d, "files", ()))))
+
+
+def _listed(d: dict, key: str, default=None) -> list:
+    """The list a saved report holds under ``key`` (``default`` when it has none and one is given); a ValueError for
+    anything else, which iterating would take apart (a text into its characters, a dict into its keys)."""
+    value = d[key] if default is None else d.get(key, default)
+    if not isinstance(value, (list, tuple)):
+        raise ValueError(f"a report's '{key}' that is not a list")
+    return list(value)
 
 
 def file_names(files) -> dict[str, str]:

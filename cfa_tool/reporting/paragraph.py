@@ -18,6 +18,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from cfa_tool.numbers import user_number, count_text
 from cfa_tool.method import (MISSING_AT_RANDOM, MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
 from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, design_cautions, failure_words
@@ -427,13 +428,13 @@ def _departures(d, shape: _Shape) -> str:
     fixed = [(r, value) for r, value in d.fixed
              if not (r[0] == "covariance" and r[2] is None and value == 0 and frozenset(r[1]) in stated)]
     if fixed:
-        sentences.append(_capital(_list([f"{_parameter(r, d)} was fixed at {value:g}" for r, value in fixed])) + ".")
+        sentences.append(_capital(_list([f"{_parameter(r, d)} was fixed at {user_number(value)}" for r, value in fixed])) + ".")
     if d.bounds:
         def bound(ref, lo, hi):
             if lo is not None and hi is not None:
-                return f"{_parameter(ref, d)} was kept between {lo:g} and {hi:g}"
-            return f"{_parameter(ref, d)} was kept at or above {lo:g}" if lo is not None else \
-                f"{_parameter(ref, d)} was kept at or below {hi:g}"
+                return f"{_parameter(ref, d)} was kept between {user_number(lo)} and {user_number(hi)}"
+            return f"{_parameter(ref, d)} was kept at or above {user_number(lo)}" if lo is not None else \
+                f"{_parameter(ref, d)} was kept at or below {user_number(hi)}"
         sentences.append(_capital(_list([bound(*b) for b in d.bounds])) + ".")
     return " ".join(sentences)
 
@@ -479,7 +480,7 @@ def _read_as_missing(data) -> str:
     item cell held is not named: nothing was treated so (the notes say no cell holds it)."""
     clauses = []
     found = getattr(data, "codes_found", None)
-    codes = [f"{c:g}" for c in (getattr(data, "missing_codes", ()) if found is None else found)]
+    codes = [user_number(c) for c in (getattr(data, "missing_codes", ()) if found is None else found)]
     if codes:
         clauses.append(f"the code{'s' if len(codes) > 1 else ''} {_list(codes)}, declared to mean no answer, "
                        f"{'were' if len(codes) > 1 else 'was'} treated as missing")
@@ -755,6 +756,20 @@ def _fit_sentence(result) -> str:
             f"TLI = {fit_index_text('tli', f.tli)}, RMSEA = {fit_index_text('rmsea', f.rmsea)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {fit_index_text('srmr', f.srmr)}.")
 
 
+def _uninformative_baseline_sentence(result) -> str:
+    """That the baseline model nearly fits, so CFI and TLI say little, when a caution of ``result`` says so
+    (assessment.admissibility.uninformative_baseline_problems); '' otherwise."""
+    from cfa_tool.assessment.fit_indices import UNINFORMATIVE_BASELINE_RMSEA as BOUND
+
+    found = next((p for p in result.problems if p.kind is ProblemKind.UNINFORMATIVE_BASELINE), None)
+    if found is None:
+        return ""
+    robust = "robust " if result.robust is not None else ""
+    return (f"The baseline (independence) model nearly fit the data itself (RMSEA = {unit(found.value, 3, BOUND)}, "
+            f"below the rule of thumb of {unit(BOUND)} of Kenny, Kaniskan & McCoach, 2015), so the {robust}CFI and "
+            f"TLI below say little about the model.")
+
+
 def _method_items(result, factor: str) -> list[str]:
     """The items a method factor loads on, in the model's order."""
     return [r.variables[1] for r in result.estimates
@@ -788,7 +803,7 @@ def _reverse_keyed_sentence(d) -> str:
         many = len(items) > 1
         parts.append(f"the item{'s' if many else ''} {_names(items)} {'were' if many else 'was'} declared "
                      f"reverse-keyed (worded against {'their factors' if many else 'its factor'}; answers from "
-                     f"{lowest:g} to {highest:g})")
+                     f"{user_number(lowest)} to {user_number(highest)})")
     return _capital("; ".join(parts)) + "." if parts else ""
 
 
@@ -943,11 +958,11 @@ def _latent_response_sentence(result) -> str:
 
     def state_of(own: list, fixed: list, value: float) -> str:
         if len(fixed) == len(own):
-            apart = [f"{_name(r.variables[0])}'s at {r.estimate:g}" for r in fixed if r.estimate != value]
-            return f"fixed at {value:g}" + (f" ({_list(apart)})" if apart else "")
+            apart = [f"{_name(r.variables[0])}'s at {user_number(r.estimate)}" for r in fixed if r.estimate != value]
+            return f"fixed at {user_number(value)}" + (f" ({_list(apart)})" if apart else "")
         if not fixed:
             return "estimated"
-        return f"estimated (except {_list([f'{_name(r.variables[0])} fixed at {r.estimate:g}' for r in fixed])})"
+        return f"estimated (except {_list([f'{_name(r.variables[0])} fixed at {user_number(r.estimate)}' for r in fixed])})"
 
     patterns: dict[tuple[str, str], list[str]] = {}
     for g in result.groups:
@@ -1076,6 +1091,9 @@ def methods_paragraph(result) -> str:
     small = _small_groups(result)
     if small:  # the report's first caution, before the fit (new user s14)
         parts.append(small)
+    baseline = _uninformative_baseline_sentence(result)
+    if baseline:  # before the CFI and TLI it says little of
+        parts.append(baseline)
     parts.append(_fit_sentence(result))
     untested = [(h, lower) for h, lower in (d.higher_order if d is not None else ())
                 if h in getattr(d, "just_identified_higher_order", ())]
@@ -1559,16 +1577,16 @@ def _small_groups(result) -> str:
         return ""
     if small[0].group is None:
         (facts,) = small
-        return (f"The sample had {facts.rows:g} rows for the {facts.parameters} free parameters of the model"
+        return (f"The sample had {count_text(facts.rows)} rows for the {facts.parameters} free parameters of the model"
                 f"{facts.besides()}, fewer rows than parameters, so every estimate and fit index rests on too few "
                 f"answers.")
     labels = group_labels(result) or tuple(f.group for f in small)
     if len(small) == 1:
         (facts,) = small
-        return (f"Group {written_group(facts.group, labels)} had {facts.rows:g} rows for the {facts.parameters} free "
+        return (f"Group {written_group(facts.group, labels)} had {count_text(facts.rows)} rows for the {facts.parameters} free "
                 f"parameters of its model{facts.besides()}, so its estimates, and every comparison with the other groups, rest on too "
                 f"few answers.")
-    named = _list([f"{written_group(f.group, labels)} ({f.rows:g} rows for {f.parameters} parameters)" for f in small])
+    named = _list([f"{written_group(f.group, labels)} ({count_text(f.rows)} rows for {f.parameters} parameters)" for f in small])
     return (f"Groups {named} had fewer rows than the free parameters of their model, so their estimates, and every "
             f"comparison with the other groups, rest on too few answers.")
 

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 from dataclasses import replace
 
+from cfa_tool.numbers import user_number
 from cfa_tool.reporting import tables as T
 from cfa_tool.note_parts import WORDS, Command, Note, Text, joined, said
 from cfa_tool.reporting.remedies import Remedy
@@ -390,7 +391,7 @@ def item_sum_notes(result) -> list[Text]:
     for g in result.item_sums:
         where = f" in group {_group(result, g.group)}" if g.group is not None else ""
         if g.reversals:
-            turned = "; ".join(f"{r.item} on {r.factor}, on {r.lowest:g} to {r.highest:g} ({r.source.value})"
+            turned = "; ".join(f"{r.item} on {r.factor}, on {user_number(r.lowest)} to {user_number(r.highest)} ({r.source.value})"
                                for r in g.reversals)
             lines.append(f"Reversed in the item sums{where}: {turned}.")
         if g.shared:
@@ -573,7 +574,7 @@ def _guessed_scales(result) -> list[Text]:
     guessed = {r.item: r for g in result.item_sums for r in g.reversals if r.source is ScaleSource.OBSERVED}
     if not guessed:
         return []
-    listed = ", ".join(f"{x} ({r.lowest:g} to {r.highest:g})" for x, r in guessed.items())
+    listed = ", ".join(f"{x} ({user_number(r.lowest)} to {user_number(r.highest)})" for x, r in guessed.items())
     return [Note((f"The item sums and means reverse {listed} on the lowest and highest answers of the rows the model "
                   f"was fitted to, as the model does not declare the answer scale; if the scale runs wider than these "
                   f"answers, every sum with {'this item' if len(guessed) == 1 else 'these items'} is shifted: declare "

@@ -7,8 +7,10 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
+from cfa_tool.numbers import user_number
 from cfa_tool.assessment.admissibility import ProblemKind, solution_first
 from cfa_tool.assessment.identification import JUST_IDENTIFIED
+from cfa_tool.assessment.fit_indices import TLI_NOT_CUT
 from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
@@ -255,20 +257,35 @@ def design_doubts(result) -> bool:
     return any(p.kind in DOUBTED_BY_THE_DESIGN for p in getattr(result, "problems", ()))
 
 
+def baseline_uninformative(result) -> bool:
+    """Whether the caution first says that the baseline model nearly fits, so that CFI and TLI say little
+    (assessment.admissibility.uninformative_baseline_problems): their guide is then not the one to read."""
+    return any(p.kind is ProblemKind.UNINFORMATIVE_BASELINE for p in getattr(result, "problems", ()))
+
+
+#: the guide cell of CFI and TLI when the baseline model nearly fits (:func:`baseline_uninformative`)
+SAYS_LITTLE = "says little here: see the caution first"
+
+
 def fit_rows(result) -> list[FitRow]:
     """The lines of the fit table in the order of every view: with a robust test, its figures first, then SRMR,
     then the unadjusted ones marked (without the test of close fit); the baseline, the likelihood and the count
     of free parameters last."""
     f, r = result.fit, result.robust
     chi = ("Chi-square", f.chi_square, f.df, f.p_value)
+    uninformative = baseline_uninformative(result)
+
+    def incremental_guide(index: str) -> str:
+        return SAYS_LITTLE if uninformative else guide_text(index)
+
     if f.df == 0:  # nothing to test: CFI, TLI and RMSEA are not defined
         plain = [_row("Chi-square test", "0 df: no test", JUST_IDENTIFIED, chi)]
     else:
         low, high = f.rmsea_ci90
         plain = [_row("Chi-square test", f"{f.chi_square:.3f} on {f.df} df, p {p_phrase(f.p_value)}",
                       "p > .05 (very sensitive to N)", chi),
-                 _row("CFI", fit_index_text("cfi", f.cfi), guide_text("cfi"), ("CFI", f.cfi)),
-                 _row("TLI", fit_index_text("tli", f.tli), guide_text("tli"), ("TLI", f.tli)),
+                 _row("CFI", fit_index_text("cfi", f.cfi), incremental_guide("cfi"), ("CFI", f.cfi)),
+                 _row("TLI", fit_index_text("tli", f.tli), incremental_guide("tli"), ("TLI", f.tli)),
                  _row("RMSEA [90% interval]", _with_interval(fit_index_text('rmsea', f.rmsea), low, high),
                       guide_text("rmsea"),
                       ("RMSEA", f.rmsea, None, None, low, high))]
@@ -292,7 +309,7 @@ def fit_rows(result) -> list[FitRow]:
                 _row(label, text, guide, *[(name.capitalize(), value) for name, value in r.pieces]),
                 _row("Robust CFI / TLI", NOT_COMPUTED_HERE if missing(r.cfi_robust) and r.not_computed else
                      f"{fit_index_text('cfi', r.cfi_robust)} / {fit_index_text('tli', r.tli_robust)}",
-                     guide_text("cfi"),
+                     incremental_guide("cfi"),
                      ("Robust CFI", r.cfi_robust), ("Robust TLI", r.tli_robust)),
                 _row("Robust RMSEA [90% interval]", NOT_COMPUTED_HERE if missing(r.rmsea_robust) and r.not_computed else
                      _with_interval(fit_index_text('rmsea', r.rmsea_robust), rlow, rhigh),
@@ -319,7 +336,8 @@ def _with_interval(text: str, low, high) -> str:
 def fit_table(result) -> ReportTable:
     r = result.robust
     rows = fit_rows(result)
-    note = _unusable(result) + GUIDE_NOTE + (" " + robust_definition(r) if r is not None else "")
+    note = (_unusable(result) + GUIDE_NOTE + (" " + TLI_NOT_CUT if result.fit.df > 0 else "")
+            + (" " + robust_definition(r) if r is not None else ""))
     return _table("fit", "Model fit", [("Index", "l"), ("Value", "r"), ("Guide", "l")],
                   [[x.label, x.text, x.guide] for x in rows], note,
                   values=(["Index", "Value", "df", "p", "90% lower", "90% upper"],
@@ -352,7 +370,7 @@ def _scale_phrase(result, factor: str) -> str:
     if scale is None:
         return ""
     if scale.method == "marker" and scale.marker:
-        return f"scale: loading of {scale.marker} fixed at {scale.marker_loading:g}{_marker_reason(scale)}"
+        return f"scale: loading of {scale.marker} fixed at {user_number(scale.marker_loading)}{_marker_reason(scale)}"
     if scale.method == "effects" and scale.counted_reversed:
         return f"scale: loadings average 1, with {', '.join(scale.counted_reversed)} (declared reversed) turned"
     return {"variance": "scale: variance fixed at 1", "effects": "scale: loadings average 1",
@@ -699,7 +717,7 @@ def _threshold_answers(result, label) -> dict[tuple[str, str], str]:
     for item, cats in zip(data.variables, data.categories):
         codes = [v for v, _ in cats]
         for k in range(len(codes) - 1):
-            low, high = (words.get((item, c), f"{c:g}") for c in (codes[k], codes[k + 1]))
+            low, high = (words.get((item, c), f"{user_number(c)}") for c in (codes[k], codes[k + 1]))
             out[(item, str(k + 1))] = f"{low} and {high}"
     return out
 
@@ -852,17 +870,17 @@ def modification_table(result, group: int | None = None, limit: int = 10) -> Rep
         largest = max(mine(computed), key=lambda m: m.index)
         name = parameter_words(largest.kind, tuple(largest.variables), None if label else largest.group, article=False,
                                groups=group_labels(result))
-        return _table(key, f"Largest modification indices (at least {result.mi_threshold:g}; none)",
+        return _table(key, f"Largest modification indices (at least {user_number(result.mi_threshold)}; none)",
                       [("Parameter that could be freed", "l"), ("Index", "r")],
-                      [[f"none reaches {result.mi_threshold:g}; the largest: {name}", num(largest.index, 2)]],
+                      [[f"none reaches {user_number(result.mi_threshold)}; the largest: {name}", num(largest.index, 2)]],
                       f"No parameter that could be freed{_in_group(result, label)} has a modification index of at least "
-                      f"{result.mi_threshold:g}: freeing any one of them alone would not improve the fit by that "
+                      f"{user_number(result.mi_threshold)}: freeing any one of them alone would not improve the fit by that "
                       f"much.", values=(["Kind", "Variables", "Group", "Index"],
                                         [[largest.kind, names_text(largest.variables), largest.group or "",
                                           largest.index]]))
     shown = rows[:limit] if result.mi_top is None else rows
     reaching = rows if result.mi_top is None else mine(result.modification_indices.reported(result.mi_threshold, None))
-    title = f"Largest modification indices (at least {result.mi_threshold:g}; {len(shown)} of {len(reaching)} shown)"
+    title = f"Largest modification indices (at least {user_number(result.mi_threshold)}; {len(shown)} of {len(reaching)} shown)"
     body = []
     for m in shown:  # parameters in words, as every table names them (the group in the section's heading)
         body.append([parameter_words(m.kind, tuple(m.variables), None if label else m.group, article=False,
@@ -1148,16 +1166,19 @@ def sum_score_table(result, group: int = 0) -> ReportTable | None:
     rows = [r for r in result.groups[group].reliability if r.sum_score_sd is not None]
     if not rows:
         return None
-    body = [[r.factor, str(len(r.items)), ", ".join(r.reversed), num(r.sum_score_mean, 2), num(r.sum_score_sd, 2),
-             unit(min(r.item_total), 2) if r.item_total else ""] for r in rows]
+    no_means = any(g.value == "means" for g in result.data.not_given)  # summary statistics without means
+    body = [[r.factor, str(len(r.items)), ", ".join(r.reversed), "not given" if no_means else num(r.sum_score_mean, 2),
+             num(r.sum_score_sd, 2), unit(min(r.item_total), 2) if r.item_total else ""] for r in rows]
     note = (f"The sum of each factor's items with reverse-keyed items reversed. Mean, SD (divisor N - 1) and "
             f"item-rest r come from the item means and covariances the fit analysed: {moments_source(result, group)}.")
-    if any(r.sum_score_mean is None for r in rows):
+    if no_means:
+        note += " The file gives no means, so the sums' means are not shown."
+    elif any(r.sum_score_mean is None for r in rows):
         note += Note((" A mean is shown once the answer scale of the reversed items is known: declare it in the model",
                       Command(" with 'reversed ITEMS on LOWEST to HIGHEST'"), "."))
     if result.multigroup:
         note = _sums_across_groups(result, rows) + " " + note  # (a Note stays one: no f-string)
-    values = [[r.factor, len(r.items), ", ".join(r.reversed), r.sum_score_mean, r.sum_score_sd,
+    values = [[r.factor, len(r.items), ", ".join(r.reversed), None if no_means else r.sum_score_mean, r.sum_score_sd,
                min(r.item_total) if r.item_total else None] for r in rows]
     columns = [("Factor", "l"), ("Items", "r"), ("Reversed for scoring", "l"), ("Mean", "r"), ("SD", "r"),
                ("Lowest item-rest r", "r")]
@@ -1296,6 +1317,8 @@ def moments_source(result, group: int = 0) -> str:
         return (f"estimates for all {n} rows analysed by full-information ML (the saturated model, by EM; Dempster, "
                 f"Laird & Rubin 1977){weighted}, which assume answers missing at random; not the figures of the rows "
                 f"that answered every item")
+    if getattr(result.data, "analysed", None) is not None:  # summary statistics: no rows
+        return f"the summary statistics given (N = {n})"
     return f"the {n} rows analysed{weighted}"
 
 
@@ -1354,7 +1377,7 @@ def few_answers_warning(result) -> Note | None:
         if answers is None:
             continue
         where = _in_group(result, answers.group)
-        cells = [f"{name} {v:g} ({c} row{'' if c == 1 else 's'}){where}" for i, name in enumerate(answers.items)
+        cells = [f"{name} {user_number(v)} ({c} row{'' if c == 1 else 's'}){where}" for i, name in enumerate(answers.items)
                  for j, (v, c) in enumerate(zip(answers.codes, answers.counts[i])) if answers.sparse(i, j)]
         if cells and key is None:
             key = CATEGORY_TABLE
@@ -1413,14 +1436,14 @@ def answer_table(answers, key: str, where: str = "", groups: bool = False, analy
                 counts.append(c if c or (j is not None and v in a.scale[i]) else None)
                 if j is not None and a.empty(i, j):
                     cells.append(NO_ANSWER_MARK)
-                    none.append(f"{name} {v:g}{in_group}")
+                    none.append(f"{name} {user_number(v)}{in_group}")
                 elif c == 0:
                     cells.append("")
                 else:
                     sparse = a.sparse(i, j)
                     cells.append(f"{c} ({100 * c / total:.0f}%)" + (f" {FEW_ANSWERS_MARK}" if sparse else ""))
                     if sparse:
-                        few.append(f"{name} {v:g}{in_group} ({c} row{'' if c == 1 else 's'})")
+                        few.append(f"{name} {user_number(v)}{in_group} ({c} row{'' if c == 1 else 's'})")
                         if v in (a.scale[i][0], a.scale[i][-1]):  # the lowest or highest answer: a stray value?
                             ends.add(v)
             if a.flagged(i):
@@ -1444,7 +1467,7 @@ def answer_table(answers, key: str, where: str = "", groups: bool = False, analy
                     if groups else "; an ordinal fit estimates no threshold for it") + f" ({_listed(none)}).")
     text: Text = note
     if few or none:  # the option that reads a stray code as no answer is a command part: a manuscript names none
-        stray = [f"{v:g}" for v in sorted(ends)]
+        stray = [f"{user_number(v)}" for v in sorted(ends)]
         missing_as = "a typing error or a code for no answer can be given as missing; "
         text = Note((note + " Check such an answer first: ",
                      Command(f"if {' or '.join(stray)} is a typing error or a code for no answer, give "
@@ -1456,8 +1479,8 @@ def answer_table(answers, key: str, where: str = "", groups: bool = False, analy
     else:
         text = note + after
     columns = ([("Group", "l")] if several else []) + [("Item", "l")] + [
-        (f"{v:g} {shared[v]}" if shared else f"{v:g}", "r") for v in codes]
-    value_columns = (["Group"] if several else []) + ["Item"] + [f"Answer {v:g} rows" for v in codes]
+        (f"{user_number(v)} {shared[v]}" if shared else f"{user_number(v)}", "r") for v in codes]
+    value_columns = (["Group"] if several else []) + ["Item"] + [f"Answer {user_number(v)} rows" for v in codes]
     return _table(key, f"Answers per category{where}{analysed}", columns, rows, text, flagged=tuple(flagged),
                   values=(value_columns, values))
 
@@ -1477,7 +1500,7 @@ def _labels_note(answers) -> str:
     lines: dict[str, list[str]] = {}
     for name, labelled in zip(answers.items, answers.labels):
         if labelled:
-            lines.setdefault(", ".join(f"{v:g} {text}" for v, text in labelled), []).append(name)
+            lines.setdefault(", ".join(f"{user_number(v)} {text}" for v, text in labelled), []).append(name)
     if not lines:
         return ""
     whole = len(lines) == 1 and len(next(iter(lines.values()))) == len(answers.items)
@@ -1619,7 +1642,11 @@ def normality_lines(result) -> list[Text]:
                      if design.columns.kind is WeightKind.FREQUENCY else
                      " These tests describe the rows as they are, unweighted.")
         lines.append(line)
-    if not lines and result.method.full_information and not result.method.ordinal and result.method.helpers:
+    if getattr(result.data, "analysed", None) is not None:  # summary statistics: said, not silently left out
+        lines.append("Summary statistics hold no rows of answers, so what needs them is not given: Mardia's tests of "
+                     "multivariate normality and the unusual and influential rows; the reliability, the factors' "
+                     "distinctness and the residuals come from the matrix.")
+    elif not lines and result.method.full_information and not result.method.ordinal and result.method.helpers:
         # with missing-data helpers a fit of the complete rows only and the robust test are refused: neither advised
         lines.append("Mardia's tests of multivariate normality need complete rows, so with full-information ML they "
                      "are not computed.")

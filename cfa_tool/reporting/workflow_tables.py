@@ -7,6 +7,7 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
+from cfa_tool.numbers import user_number, count_text
 from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATED, ProblemKind, design_cautions, failure_words,
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
@@ -21,8 +22,8 @@ from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, comparison_paragraph, design_sentence,
                                           mcar_score_tests,
                                           invariance_paragraph, replication_paragraph)
-from cfa_tool.reporting.numbers import (fit_index_text, guides_text, missing, num, p_phrase, p_value, short, signed,
-                                        signed_num, unit, word_list)
+from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text, missing, num, p_phrase, p_value, short,
+                                        signed, signed_num, unit, word_list)
 from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
 from cfa_tool.workflows.invariance import CONFIGURAL_INDICES
@@ -190,8 +191,11 @@ def _comparison_cells(r, test) -> tuple[list[str], list]:
     f = r.fit
     low, high = f.rmsea_ci90
     tested = f.df > 0
+    # a tested model's CFI or TLI without a value is said to be so (0/0: the baseline fits), never a blank
+    shown = index_text if tested else unit
     cells = [_admissible_cell(r), str(f.n_free_parameters), f"{f.chi_square:.3f}", str(f.df), p_value(f.p_value),
-             unit(f.cfi), unit(f.tli), unit(f.rmsea) if tested else "", f"[{unit(low)}, {unit(high)}]" if tested else "",
+             shown(f.cfi), shown(f.tli),
+             unit(f.rmsea) if tested else "", f"[{unit(low)}, {unit(high)}]" if tested else "",
              unit(f.srmr), _information_criterion(f.aic), _information_criterion(f.bic)]
     values = [_admissible_cell(r), f.n_free_parameters, f.chi_square, f.df, f.p_value, f.cfi, f.tli,
               f.rmsea if tested else None, low if tested else None, high if tested else None, f.srmr, f.aic, f.bic]
@@ -204,8 +208,8 @@ def _comparison_cells(r, test) -> tuple[list[str], list]:
             rl, rh = rb.rmsea_robust_ci90
             cell = T.robust_cell  # a figure not computed: a dash, which the table's note explains
             cells += [cell(rb, rb.chi_square_scaled, num(rb.chi_square_scaled)), T.correction_text(rb),
-                      cell(rb, rb.p_value_scaled, p_value(rb.p_value_scaled)), cell(rb, rb.cfi_robust, unit(rb.cfi_robust)),
-                      cell(rb, rb.tli_robust, unit(rb.tli_robust)), cell(rb, rb.rmsea_robust, unit(rb.rmsea_robust)),
+                      cell(rb, rb.p_value_scaled, p_value(rb.p_value_scaled)), cell(rb, rb.cfi_robust, shown(rb.cfi_robust)),
+                      cell(rb, rb.tli_robust, shown(rb.tli_robust)), cell(rb, rb.rmsea_robust, unit(rb.rmsea_robust)),
                       cell(rb, rl, f"[{unit(rl)}, {unit(rh)}]")]
             values += [rb.chi_square_scaled, *(value for _, value in rb.pieces), rb.p_value_scaled, rb.cfi_robust,
                        rb.tli_robust, rb.rmsea_robust, rl, rh]
@@ -1193,8 +1197,8 @@ def rows_rule_caution(result) -> Note:
     below = result.below_rows_rule
     one = len(below) == 1
     enough = ROWS_PER_PARAMETER * below[0].parameters
-    sizes = [f"{f.rows:g}" for f in below] + [str(enough)]
-    return Note((f"{' and '.join(f'N = {f.rows:g}' for f in below)} {'is' if one else 'are'} judged by the RMSEA "
+    sizes = [f"{count_text(f.rows)}" for f in below] + [str(enough)]
+    return Note((f"{' and '.join(f'N = {count_text(f.rows)}' for f in below)} {'is' if one else 'are'} judged by the RMSEA "
                  f"test of {result.test} fit alone, not by what estimating the model needs: "
                  f"{'; '.join(f.figures() for f in below)}, fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; "
                  f"{enough} rows here); this plan says nothing of how precisely the loadings, variances and "
@@ -1404,7 +1408,7 @@ def _worded_lines(simulated) -> list[Text]:
             said = Note(("written as the words", origin, f", {coding_described(written)}"))
         else:  # numbers listed beside the words: each code written as the answer listed first with it
             said = Note((f"written in the {len(written)} answer categories", origin, ", each as the answer it lists "
-                         f"first with that code ({', '.join(printable(w) if w is not None else f'{n:g}' for w, n, _ in written)})"))
+                         f"first with that code ({', '.join(printable(w) if w is not None else f'{user_number(n)}' for w, n, _ in written)})"))
         lines.append(f"{which} " + said + f" (the latent responses {how}), so the file reads back with the same model "
                                           f"file.")
     return lines

@@ -19,6 +19,7 @@ from functools import cached_property
 
 import numpy as np
 
+from cfa_tool.numbers import user_number
 from cfa_tool.errors import DataError, EstimationError
 from cfa_tool.model.implied import ModelMatrices
 
@@ -224,8 +225,8 @@ class OrdinalScoringModel:
             unknown = levels[at] != column[answered]
             if unknown.any():
                 value = column[answered][np.flatnonzero(unknown)[0]]
-                raise DataError(f"item '{self.base.items[j]}' has the answer {value:g}, which is not one of the "
-                                f"categories the model was fitted with ({', '.join(f'{v:g}' for v in levels)})")
+                raise DataError(f"item '{self.base.items[j]}' has the answer {user_number(value)}, which is not one of the "
+                                f"categories the model was fitted with ({', '.join(f'{user_number(v)}' for v in levels)})")
             codes[answered, j] = at
         return codes
 

@@ -19,6 +19,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.numbers import user_number
 from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, caller_labels, row_naming
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
@@ -1172,9 +1173,9 @@ def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: st
         unknown = ~np.isnan(column) & ~np.isin(column, np.asarray(cats))
         if unknown.any():
             k = int(np.flatnonzero(unknown)[0])
-            raise DataError(f"{source}: ordinal item '{printable(model.base.items[j])}' has the answer {column[k]:g} in "
+            raise DataError(f"{source}: ordinal item '{printable(model.base.items[j])}' has the answer {user_number(column[k])} in "
                             f"{naming.one_row(int(data_rows[k]))}, which is not one of the categories the earlier fit "
-                            f"estimated thresholds for ({', '.join(f'{v:g}' for v in cats)}); recode it or leave it out")
+                            f"estimated thresholds for ({', '.join(f'{user_number(v)}' for v in cats)}); recode it or leave it out")
 
 
 def _saved_methods(methods, ordinal: bool, standard_errors: bool = False) -> tuple[ScoreMethod, ...]:

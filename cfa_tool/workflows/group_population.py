@@ -17,6 +17,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
+from cfa_tool.numbers import user_number
 from cfa_tool import options as check
 from cfa_tool.errors import ModelError, OptionError
 from cfa_tool.language.checks import all_refs
@@ -172,7 +173,7 @@ def group_population(spec: Spec, labels: tuple[str, ...], configural: Spec) -> G
         if log_det_pd(sigma) is None:
             own = [(ref, s.value, how) for how, settings in (("start", spec.starts), ("fix", spec.fixed))
                    for s in settings for ref in s.refs if ref.group == label]
-            listed = "; ".join(f"line {ref.location.line}: {how} {ref} = {value:g}" for ref, value, how in own)
+            listed = "; ".join(f"line {ref.location.line}: {how} {ref} = {user_number(value)}" for ref, value, how in own)
             message = (f"the population values of group '{label}' imply a covariance matrix that is not positive "
                        f"definite or not finite: check its 'in group {label}:' values"
                        + (f" ({listed})" if own else ""))

@@ -20,6 +20,7 @@ from enum import Enum
 
 import numpy as np
 
+from cfa_tool.numbers import user_number
 from cfa_tool import options as check
 from cfa_tool.assessment.admissibility import counted_problems, replicated_problems
 from cfa_tool.data.moments import SampleMoments
@@ -175,8 +176,8 @@ def _differences_tested(spec: Spec, population: GroupPopulation, highest: str) -
             continue
         ref = _statement_of(d, spec.starts + spec.fixed)
         what = f"{ref}" if ref is not None else f"{ref_kind(d.kind)}({', '.join(d.variables)}) in group {d.group}"
-        message = (f"{what} makes group '{d.group}' differ from '{population.labels[0]}' ({d.value:g} against "
-                   f"{d.reference_value:g}), which only the {level} step tests, and {check.Option.HIGHEST_LEVEL} "
+        message = (f"{what} makes group '{d.group}' differ from '{population.labels[0]}' ({user_number(d.value)} against "
+                   f"{user_number(d.reference_value)}), which only the {level} step tests, and {check.Option.HIGHEST_LEVEL} "
                    f"{highest} stops before it: up to {highest} the parameter is free in each group, so the difference "
                    f"changes no step's test; give {check.Option.HIGHEST_LEVEL.given(level)} to plan for it, or remove "
                    f"the statement")
@@ -192,7 +193,7 @@ def _fixed_differences(spec: Spec, population: GroupPopulation) -> None:
         ref = _statement_of(d, spec.fixed)
         if ref is None:
             continue
-        message = (f"'fix' holds {ref} at {d.value:g} (against {d.reference_value:g} in group "
+        message = (f"'fix' holds {ref} at {user_number(d.value)} (against {user_number(d.reference_value)} in group "
                    f"'{population.labels[0]}') in every model the ladder fits, so no step tests the difference; write "
                    f"'start' to give it as the population value, which the fitted models then estimate")
         raise ModelError(message, ref.location, spec.source_line(ref.location))

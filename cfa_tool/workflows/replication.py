@@ -63,6 +63,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.numbers import user_number
 from cfa_tool.data.halves import drawn_halves
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.pipeline.inputs import (_described, data_problems, rows_named, keeps_rows_with_gaps, load_spec, make_options, odd_values_named,
@@ -490,9 +491,9 @@ def _same_categories(calibration, validation, frame: pd.DataFrame) -> None:
         where = np.isin(column, new)
         first = int(row_numbers(frame)[np.argmax(where)])
         raise DataError(f"{validation.source}: ordinal item '{printable(name)}' has the answer"
-                        f"{'s' if len(new) > 1 else ''} {', '.join(f'{c:g}' for c in new)} ({int(where.sum())} rows, the "
+                        f"{'s' if len(new) > 1 else ''} {', '.join(f'{user_number(c)}' for c in new)} ({int(where.sum())} rows, the "
                         f"first in {row_of(frame, first)}), which the calibration sample {calibration.source} never had (its "
-                        f"categories: {', '.join(f'{c:g}' for c in seen)}); the two samples' answer scales differ, so "
+                        f"categories: {', '.join(f'{user_number(c)}' for c in seen)}); the two samples' answer scales differ, so "
                         f"the calibration estimates cannot be carried over: recode the answers alike in both files or "
                         f"leave those rows out")
 

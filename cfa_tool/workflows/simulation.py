@@ -22,6 +22,7 @@ from enum import Enum
 
 import numpy as np
 import pandas as pd
+from cfa_tool.numbers import user_number
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.numerics import distributions as dist
@@ -330,7 +331,7 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
     except ModelError:  # a fixed covariance beyond the variances at the search's start, which a fit of data names
         est = None  # in its words; here they are the defaults': said below as a population near them
     if est is None or not est.converged:
-        written = [f"{as_written(par)} = {par.offset:g}" for par in table.parameters
+        written = [f"{as_written(par)} = {user_number(par.offset)}" for par in table.parameters
                    if par.group == 0 and not par.free and par.origin == "user"]
         if written:  # values the file gives that no population near the standardized defaults can hold
             raise ModelError(f"{spec.source}: no population near the standardized defaults (loadings .7, factor "
@@ -393,8 +394,8 @@ def _bound_words(lower: float | None, upper: float | None) -> str:
     low = lower is not None and np.isfinite(lower)
     high = upper is not None and np.isfinite(upper)
     if low and high:
-        return f"between {lower:g} and {upper:g}"
-    return f"at least {lower:g}" if low else f"at most {upper:g}"
+        return f"between {user_number(lower)} and {user_number(upper)}"
+    return f"at least {user_number(lower)}" if low else f"at most {user_number(upper)}"
 
 
 def beyond_bounds(spec: Spec, table: ParameterTable, theta: np.ndarray, given: np.ndarray) -> None:
@@ -433,10 +434,10 @@ def beyond_bounds(spec: Spec, table: ParameterTable, theta: np.ndarray, given: n
                     if ((statement.lower is not None and setting.value < statement.lower)
                             or (statement.upper is not None and setting.value > statement.upper)):
                         raise ModelError(
-                            f"the population value {setting.value:g} of {ref} (its 'start' value) lies outside the "
+                            f"the population value {user_number(setting.value)} of {ref} (its 'start' value) lies outside the "
                             f"model's own bound on it ({_bound_words(statement.lower, statement.upper)}, line "
                             f"{other.location.line}): {consequence}", ref.location, spec.source_line(ref.location))
-    raise ModelError(f"{spec.source}: the population value {given[k]:g} of {table.free_labels[k]} (a 'start' value, "
+    raise ModelError(f"{spec.source}: the population value {user_number(given[k])} of {table.free_labels[k]} (a 'start' value, "
                      f"shared through an 'equal' statement) lies outside the model's own bound ({bound}) on a "
                      f"parameter held equal to it: {consequence}")
 

@@ -67,7 +67,10 @@ def test_every_view_opens_with_it(miskeyed):
     word = _flat(" ".join(paragraphs))
     assert SAID in word and word.index(SAID) < word.index("A confirmatory factor analysis")
     problems = json.loads(to_json(miskeyed))["problems"]
-    assert [p["kind"] for p in problems] == [ProblemKind.KEYING_AGAINST_LOADINGS.value]
+    # beside the baseline's caution: its 25 items of five traits correlating .3 give a baseline RMSEA of .144, below
+    # the rule of thumb of .158 (Kenny, Kaniskan & McCoach 2015, recalled from memory)
+    assert [p["kind"] for p in problems if p["kind"] != ProblemKind.UNINFORMATIVE_BASELINE.value] == [
+        ProblemKind.KEYING_AGAINST_LOADINGS.value]
 
 
 def test_the_methods_paragraph_states_no_reliability_of_the_miskeyed_scale(miskeyed, keyed_scale):

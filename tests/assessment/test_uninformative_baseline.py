@@ -1,0 +1,115 @@
+"""CFI and TLI when the baseline (independence) model itself fits or nearly fits (hostile s19, cases 02 and 04).
+
+* CFI = 1 - max(lambda, 0) / max(lambda, lambda_b, 0) (Bentler 1990) is 0/0 when neither model's chi-square exceeds
+  its degrees of freedom: not defined, never 1.000 beside its guide.
+* TLI = 1 - (lambda / df) / (lambda_b / df_b) (Tucker & Lewis 1973) is not normed: one rule for every test, not cut
+  at 1 (the robust TLI was cut, the normal-theory one not: 1.000 and 1.574 in one report).
+* A baseline model whose RMSEA, sqrt(max(chi2_b - df_b, 0) / (df_b N)) (Steiger 1990), lies below .158 leaves CFI
+  and TLI nothing to say (Kenny, Kaniskan & McCoach 2015, recalled from memory; a rule of thumb): a caution first, the
+  guide cells and the methods paragraph say so.  Holzinger & Swineford (1939), whose baseline chi-square is 918.85
+  on 36 df for N = 301 (recalled from memory, as widely published), has a baseline RMSEA of .285 and no caution.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+import numpy as np
+import pandas as pd
+
+import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.assessment.fit_indices import cfi_from, tli_value
+from cfa_tool.cli import main
+from cfa_tool.inference.robust import robust_fit
+from cfa_tool.reporting.paragraph import methods_paragraph
+from cfa_tool.reporting.tables import fit_table
+from tests.conftest import THREE_FACTORS, holzinger_swineford
+
+
+def _noise(n: int = 500, seed: int = 1) -> pd.DataFrame:
+    rng = np.random.default_rng(seed)
+    x = rng.normal(size=(n, 6)) + 0.12 * rng.normal(size=(n, 1))
+    return pd.DataFrame(x, columns=[f"x{i}" for i in range(1, 7)])
+
+
+ONE = "factor f: x1, x2, x3, x4, x5, x6\n"
+
+
+def test_cfi_is_not_defined_when_neither_model_misfits():
+    assert math.isnan(cfi_from(-3.0, -0.4))  # 0/0 (Bentler 1990's definition)
+    assert cfi_from(-3.0, 10.0) == 1.0  # the model fits, the baseline does not: 1 - 0/10
+    assert np.isclose(cfi_from(5.0, 20.0), 0.75)  # 1 - 5/20 (Bentler 1990)
+
+
+def test_the_robust_tli_is_cut_no_more_than_the_normal_theory_one():
+    # T = 10 on 15 df with c = 1.2 (noncentrality 10 - 18 = -8), baseline 60 on 21 df with cb = 1.5 (60 - 31.5 = 28.5):
+    # TLI = 1 - (-8 / 15) / (28.5 / 21) = 1.39298... (Brosseau-Liard & Savalei 2014's formula, by hand)
+    r = robust_fit(10.0, 15, 1.2 * 15, 60.0, 21, 1.5 * 21, 300, 1)
+    assert np.isclose(r.tli_robust, 1 - (-8 / 15) / (28.5 / 21))
+    assert r.tli_robust > 1 and r.cfi_robust == 1.0  # CFI is cut by its definition, TLI is not
+    # the normal-theory TLI of the same form (Tucker & Lewis 1973): (60/21 - 10/15) / (60/21 - 1)
+    assert np.isclose(tli_value(10.0, 15, 60.0, 21), (60 / 21 - 10 / 15) / (60 / 21 - 1)) and tli_value(
+        10.0, 15, 60.0, 21) > 1
+
+
+def test_noise_gets_no_cfi_and_a_caution_first_in_every_view(tmp_path, capsys):
+    data = _noise()
+    result = cfa_tool.fit(ONE, data)
+    f = result.fit
+    assert f.chi_square < f.df and f.baseline_chi_square < f.baseline_df  # both below their df: CFI is 0/0
+    assert math.isnan(f.cfi)
+    [caution] = [p for p in result.problems if p.kind is ProblemKind.UNINFORMATIVE_BASELINE]
+    assert caution.value == 0.0  # sqrt(max(chi2_b - df_b, 0) / ...) with chi2_b below df_b (Steiger 1990)
+    assert "below .158" in str(caution.explanation) and "Kenny, Kaniskan & McCoach 2015" in str(caution.explanation)
+    table = fit_table(result)
+    rows = {row[0]: row for row in table.rows}
+    assert rows["CFI"][1] == "not defined" and "says little" in rows["CFI"][2] and "says little" in rows["TLI"][2]
+    assert "TLI is not cut at 1" in str(table.note)
+    paragraph = methods_paragraph(result)
+    assert "CFI = not defined" in paragraph
+    assert paragraph.index("nearly fit the data itself") < paragraph.index("The model fit was")
+    path = tmp_path / "noise.csv"
+    data.to_csv(path, index=False)
+    (tmp_path / "one.cfa").write_text(ONE)
+    assert main(["fit", str(tmp_path / "one.cfa"), "--data", str(path), "--json", str(tmp_path / "o.json")]) == 0
+    out = capsys.readouterr().out
+    assert out.index("The baseline model, in which the items do not correlate") < out.index("Model fit")
+    saved = json.loads((tmp_path / "o.json").read_text())
+    assert saved["fit"]["cfi"] is None
+    assert "baseline model fits nearly: CFI and TLI say little" in [p["kind"] for p in saved["problems"]]
+
+
+def test_a_robust_fit_follows_the_same_rules():
+    result = cfa_tool.fit(ONE, _noise(), test="robust")
+    r = result.robust
+    assert math.isnan(r.cfi_robust)
+    assert any(p.kind is ProblemKind.UNINFORMATIVE_BASELINE for p in result.problems)
+    rows = {row[0]: row for row in fit_table(result).rows}
+    assert rows["Robust CFI / TLI"][1].startswith("not defined /") and "says little" in rows["Robust CFI / TLI"][2]
+
+
+def test_weakly_correlated_items_get_the_caution_and_a_tli_above_one():
+    rng = np.random.default_rng(1)
+    n = 200
+    f = rng.normal(size=n)
+    g = 0.3 * f + rng.normal(size=n) * 0.95
+    cols = {f"a{i}": 0.45 * f + rng.normal(size=n) for i in (1, 2, 3)}
+    cols |= {f"b{i}": 0.45 * g + rng.normal(size=n) for i in (1, 2, 3)}
+    result = cfa_tool.fit("factor A: a1, a2, a3\nfactor B: b1, b2, b3\n", pd.DataFrame(cols))
+    fit = result.fit
+    base = np.sqrt(max(fit.baseline_chi_square - fit.baseline_df, 0) / (fit.baseline_df * n))  # Steiger 1990
+    assert base < 0.158 and fit.tli > 1
+    [caution] = [p for p in result.problems if p.kind is ProblemKind.UNINFORMATIVE_BASELINE]
+    assert np.isclose(caution.value, base)
+    robust = cfa_tool.fit("factor A: a1, a2, a3\nfactor B: b1, b2, b3\n", pd.DataFrame(cols), test="robust")
+    assert robust.robust.tli_robust > 1  # not cut at 1 either (it was 1.000 beside a plain 1.574)
+
+
+def test_items_that_correlate_get_no_caution():
+    result = cfa_tool.fit(THREE_FACTORS, holzinger_swineford())
+    f = result.fit
+    assert np.isclose(f.baseline_chi_square, 918.85, atol=0.01) and f.baseline_df == 36  # recalled from memory
+    assert not any(p.kind is ProblemKind.UNINFORMATIVE_BASELINE for p in result.problems)
+    assert "says little" not in str(fit_table(result).rows)
