@@ -33,6 +33,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 from scipy import optimize
+from scipy.special import ndtr  # the normal cdf over arrays in inner loops (numerics.distributions' rule)
 
 from cfa_tool.numbers import user_number
 from cfa_tool.numerics import distributions as dist
@@ -142,7 +143,7 @@ def _threshold_derivative(ti, tj, rho) -> np.ndarray:
     s = np.sqrt(1.0 - rho**2)
     out = np.zeros((len(ti), len(ti) + 1, len(tj) + 1))
     for c, t in enumerate(ti):
-        cond = dist.norm_cdf((b - rho * t) / s)
+        cond = ndtr((b - rho * t) / s)
         strip = dist.norm_pdf(t) * (cond[1:] - cond[:-1])  # d/dt of P(x <= t, b_k < y <= b_k+1)
         out[c, c, :] += strip  # cell a = c has upper limit tau_c
         out[c, c + 1, :] -= strip  # cell a = c + 1 has lower limit tau_c
@@ -180,8 +181,8 @@ def polychoric_tables(tables: np.ndarray, ti: np.ndarray, tj: np.ndarray, iterat
     B, K, L = tables.shape
     a, b = ti[:, :, None], tj[:, None, :]  # the inner corners; the outer ones follow from one variable
     F = np.zeros((B, K + 1, L + 1))
-    F[:, K, 1:L] = dist.norm_cdf(np.clip(tj, -BIG, BIG))
-    F[:, 1:K, L] = dist.norm_cdf(np.clip(ti, -BIG, BIG))
+    F[:, K, 1:L] = ndtr(np.clip(tj, -BIG, BIG))
+    F[:, 1:K, L] = ndtr(np.clip(ti, -BIG, BIG))
     F[:, K, L] = 1.0
     f = np.zeros((B, K + 1, L + 1))
     inner = np.isfinite(a) & np.isfinite(b)
@@ -238,7 +239,7 @@ def _polyserial_scores(z: np.ndarray, codes: np.ndarray, tau: np.ndarray, rho: f
     s = np.sqrt(1.0 - rho**2)
     up, low = t[codes + 1], t[codes]
     a, b = (up - rho * z) / s, (low - rho * z) / s
-    prob = np.clip(dist.norm_cdf(a) - dist.norm_cdf(b), 1e-300, None)
+    prob = np.clip(ndtr(a) - ndtr(b), 1e-300, None)
 
     def d(tt, arg):  # d/d rho of (tt - rho z) / s, zero for infinite limits
         out = (-z * s + (tt - rho * z) * rho / s) / s**2
@@ -253,7 +254,7 @@ def polyserial_pair(z: np.ndarray, codes: np.ndarray, tau: np.ndarray, w: np.nda
 
     def negative(rho):
         s = np.sqrt(1.0 - rho**2)
-        prob = dist.norm_cdf((t[codes + 1] - rho * z) / s) - dist.norm_cdf((t[codes] - rho * z) / s)
+        prob = ndtr((t[codes + 1] - rho * z) / s) - ndtr((t[codes] - rho * z) / s)
         log = np.log(np.clip(prob, 1e-300, None))
         return -float(np.sum(log) if w is None else w @ log)
 

@@ -3,10 +3,11 @@ importing scipy.special costs about 0.1 s at a start of the command (30 ms on to
 it shares; that layer loads numpy.testing and numpy.f2py), more than every p-value and interval of a report take.
 
 One rule divides the work: the report's numbers (a test's p-value, an RMSEA interval, a power, a critical value, a
-bootstrap interval's levels, a polychoric correlation's few thresholds) come from here, for scalars or small arrays;
-the modules that evaluate a distribution over large arrays in their own inner loops import scipy.special themselves,
-at the point where they are first needed, since they are off a plain fit's path: ``numerics/bivariate.py`` (erfc in
-the bivariate normal probabilities of ordinal items' cells), ``assessment/ordinal_reliability.py`` (ndtr of the
+bootstrap interval's levels, an ordinal item's thresholds from its answer shares) come from here, for scalars or small
+arrays; the modules that evaluate a distribution over large arrays in their own inner loops import scipy.special
+themselves, at the point where they are first needed, since they are off a plain fit's path: ``numerics/bivariate.py``
+(erfc in the bivariate normal probabilities of ordinal items' cells), ``data/polychoric.py`` (ndtr of every table's
+cells and of every row's answer in the polyserial likelihood), ``assessment/ordinal_reliability.py`` (ndtr of the
 thresholds of ordinal omega), ``scoring/ordinal.py`` (log_ndtr of every row's answer probabilities in the ordinal
 scores) and ``scoring/quadrature.py`` (ndtri of the quadrature points).
 
