@@ -607,21 +607,22 @@ class LeftOut(enum.Enum):
 
 
 def _default_items(first, columns: list[str], codings: tuple, design: tuple[str, ...] = (),
-                   codes: tuple[float, ...] = ()
+                   codes: tuple[float, ...] = (), id_column: str | None = None
                    ) -> tuple[tuple[str, ...], str, tuple[str, ...], tuple[tuple[str, LeftOut], ...]]:
     """The items explored by default (every column holding numbers, or the words of the answers file, except row
     numbers, ids, codes of categories, columns named for another part and columns whose values are not answers on
     the items' scale, unlike_the_items), the note that says which and why, the columns of the answers file's words,
     and the columns of numbers left out with why (:class:`LeftOut`); ``design``: the cluster and strata columns the
     halves of a split are drawn by, never items; ``codes``: the missing-value codes given, which the answer scale leaves
-    out (:func:`unlike_the_items`)."""
+    out (:func:`unlike_the_items`); ``id_column``: the id column given, never an item."""
     from cfa_tool.data.labels import labelled_codes, own_labels
 
     frame, source = first.frame.set_axis(columns, axis=1), first.source
     numeric = _numeric_columns(frame)
     drawn_by = tuple(c for c in design if c in frame.columns)  # named as such, whatever they hold
     numeric = tuple(c for c in numeric if c not in design)
-    ids = [c for c in numeric if _looks_like_row_ids(frame[c])]
+    named_id = [c for c in numeric if c == id_column]  # the id column given, whatever it holds
+    ids = named_id + [c for c in numeric if c != id_column and _looks_like_row_ids(frame[c])]
     roles = [c for c in numeric if c not in ids and column_role(c) is not None]
     coded = [c for c in labelled_codes(frame, first.value_labels) if c in numeric and c not in ids + roles
              and own_labels(c, first.value_labels)]
@@ -635,8 +636,9 @@ def _default_items(first, columns: list[str], codings: tuple, design: tuple[str,
     said = f"every column of {source} that holds numbers" + (" or the words of the answers file" if worded else "")
     name_them = Command(f" (name them in {Option.ITEMS} to explore them)")  # a manuscript's reader runs nothing
     note = (Note((f"Items: {said} ({len(chosen)})", Command(f", which {Option.ITEMS} can change"), "."))
+            + (f" Left out as the id column: {printable(id_column)}." if named_id else "")
             + (f" Left out as row numbers or ids (every value a different whole number): "
-               f"{', '.join(printable(c) for c in ids)}." if ids else "")
+               f"{', '.join(printable(c) for c in ids if c not in named_id)}." if ids[len(named_id):] else "")
             + (" Left out as codes of categories (every value has a value label of its own, as a "
                "department's do; the items share their answer scale's labels): "
                + Note((f"{', '.join(printable(c) for c in coded)}", name_them, "."))
@@ -802,7 +804,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
             names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
             keep: tuple[str, ...] | list[str] = (), rename: ColumnRenames = None, replications: int = 100,
             seed: int = 0, threshold: float = 0.30, target: np.ndarray | Sequence[Sequence[float]] | str | Path | None = None,
-            answers: str | Path | None = None, cluster: str | None = None, strata: str | None = None) -> ExploreResult:
+            answers: str | Path | None = None, cluster: str | None = None, strata: str | None = None,
+            id_column: str | None = None) -> ExploreResult:
     """How many factors, an exploratory solution and a draft model file for ``items`` of ``data``.
 
     ``items``: column names, or text 'a, b, c' with 'q1..q9' for a numbered range, counted as a model file counts
@@ -823,7 +826,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     ``rename`` reads columns under new names ({'SL3r': 'SL3_r'}) before ``items`` and the rest name them.
     ``cluster`` and ``strata``, with ``split``: the halves are drawn as replicate draws them (data.halves.drawn_halves),
     whole clusters of the column ``cluster`` to each half, within each stratum of ``strata``; those columns are never
-    items.
+    items.  ``id_column``: a column that names each row (never an item), which the caution about copies of earlier
+    rows shows beside the row numbers, as fit shows it (without it, a row-name column of the file does).
     """
     from cfa_tool import options
     from cfa_tool.pipeline import inputs as api
@@ -855,14 +859,17 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     if by_default:
         chosen, item_note, worded, left_out = _default_items(scan, columns, codings,
                                                              tuple(c for c in (cluster, strata) if c is not None),
-                                                             api.missing_values_option(missing_codes)[0])
+                                                             api.missing_values_option(missing_codes)[0],
+                                                             id_column if isinstance(id_column, str) else None)
         _refuse_too_few(chosen, scan, codings)
     spec = _explored_spec(chosen, codings, answers, worded if by_default else None)
     if not by_default:
         _refuse_text_items(scan.frame.set_axis(columns, axis=1), chosen, source, codings)
     spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, missing_codes, api.keep_option(keep),
+                                                     (id_column,) if isinstance(id_column, str) else (),
                                                      names_row=names_row, first_data_row=first_data_row, rename=rename)
     frame = loaded.frame
+    ids, _ = api.rows_named(loaded, id_column, chosen)  # the id column given (checked as fit checks it), or row names
     rows_read = len(loaded.read_frame) if loaded.read_frame is not None else len(frame)
     empty = next((c for c in chosen if not frame[c].notna().any()), None)
     if empty is not None and not by_default:  # the reading of the items would say 'take it out of the model'
@@ -911,7 +918,7 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     # and items answered alike by all rows but a few, as fit names them (pipeline.inputs.few_answers_problems)
     screened = api.screened(frame, tuple(chosen), source, loaded.non_answers, loaded.cautions)
     data_problems = (row_filter_problems(loaded, None, tuple(chosen))  # a selection on an item, as fit names it
-                     + api.copied_row_problems(screened, None, None, tuple(chosen), {})  # rows pasted twice, as fit
+                     + api.copied_row_problems(screened, None, None, tuple(chosen), ids)  # rows pasted twice, as fit
                      + api.odd_value_problems(screened) + api.few_answers_problems(tuple(chosen), {}, None, screened))
     halves = None
     if split is not None:
@@ -957,7 +964,7 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     statements = tuple(answer_lines(spec, drafted))
     split_result = None
     if halves is not None:
-        split_result = replace(_confirm(exploration, halves, split, source, statements), **design_split)
+        split_result = replace(_confirm(exploration, halves, split, source, statements, id_column), **design_split)
     return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
                          sorted_items(exploration), sample_problems + data_problems, statements, coding_record(spec),
                          few, left_out if by_default else ())
@@ -1081,10 +1088,12 @@ def _empty_rows_note(frame: pd.DataFrame, empty: np.ndarray) -> str:
             f"{'was' if n == 1 else 'were'} left out ({listed}).")
 
 
-def _confirm(exploration: Exploration, halves, seed: int, source: str, statements: tuple[str, ...]) -> SplitHalves:
+def _confirm(exploration: Exploration, halves, seed: int, source: str, statements: tuple[str, ...],
+             id_column: str | None = None) -> SplitHalves:
     """The draft model fitted on the confirmation half.  Its rows were read once, with the answers file's words
     coded, so the draft is fitted to their codes, and the fit keeps the coding that the draft model file's
-    ``statements`` state (its methods paragraph says how the words were coded, as a fit of that file does)."""
+    ``statements`` state (its methods paragraph says how the words were coded, as a fit of that file does); its rows
+    named by ``id_column`` as the exploration names them."""
     from dataclasses import replace
 
     from cfa_tool.pipeline import inputs as api
@@ -1096,7 +1105,7 @@ def _confirm(exploration: Exploration, halves, seed: int, source: str, statement
         return SplitHalves(seed, first, second, None, "the draft model has no factor with enough items, so there is "
                                                       "nothing to confirm")
     try:
-        fitted = api.fit(exploration.draft.text, confirming)  # its index keeps the row numbers
+        fitted = api.fit(exploration.draft.text, confirming, id_column=id_column)  # its index keeps the row numbers
     except CfaError as exc:
         return SplitHalves(seed, first, second, None, f"the draft model could not be fitted on the confirmation half: "
                                                       f"{exc}")
