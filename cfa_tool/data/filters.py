@@ -138,27 +138,39 @@ def _column_text(column: str) -> str:
     return column if re.fullmatch(r'[^\s=!<>"]+', column) else f'"{column}"'
 
 
-def filters_in_words(filters) -> list[str]:
-    """The row ``filters`` (as apply_filters counted them; a half of a halves file among them) as a methods section
-    words them (:meth:`RowFilter.in_words`), one clause each, except that several '!=' filters on one column are
-    one clause with their count, worded as the list form 'COLUMN not in ...' words it (new-user trial s19: 30
-    filters 'student_id != S-006..', 30 clauses), at the place of the first of them."""
+def merged_exclusions(filters) -> list[tuple[object, tuple[int, ...]]]:
+    """The row ``filters`` (a half of a halves file may be among them) with several '!=' filters on one column merged
+    into one list filter 'COLUMN not in V1, V2, ...' at the place of the first of them (its members the filters
+    merged, its empty cells theirs), each with the positions in ``filters`` of the filters it stands for: the one
+    merge that the methods paragraph (:func:`filters_in_words`) and the notes of :func:`apply_filters` both follow
+    (new-user trial s19: 30 filters 'student_id != S-006..', 30 clauses; s20: and 30 notes)."""
     from dataclasses import replace
 
-    excluded: dict[str, list] = {}
-    for f in filters:
+    excluded: dict[str, list[int]] = {}
+    for k, f in enumerate(filters):
         if isinstance(f, RowFilter) and f.operator == "!=":
-            excluded.setdefault(f.column, []).append(f)
-    words, done = [], set()
-    for f in filters:
+            excluded.setdefault(f.column, []).append(k)
+    merged, done = [], set()
+    for k, f in enumerate(filters):
         several = excluded.get(f.column) if isinstance(f, RowFilter) and f.operator == "!=" else None
         if not several or len(several) < 2:
-            words.append(f.in_words())
+            merged.append((f, (k,)))
         elif f.column not in done:
             done.add(f.column)
-            words.append(replace(several[0], operator="not in", value=tuple(g.value for g in several),
-                                 empty=sum(g.empty for g in several), members=tuple(several)).in_words())
-    return words
+            members = tuple(filters[j] for j in several)
+            merged.append((replace(members[0], operator="not in", value=tuple(g.value for g in members),
+                                   text=list_filter(f.column, [g.value for g in members])
+                                   or "; ".join(g.text for g in members),
+                                   empty=sum(g.empty for g in members), dropped=sum(g.dropped for g in members),
+                                   members=members), tuple(several)))
+    return merged
+
+
+def filters_in_words(filters) -> list[str]:
+    """The row ``filters`` (as apply_filters counted them; a half of a halves file among them) as a methods section
+    words them (:meth:`RowFilter.in_words`), one clause each, several '!=' filters on one column one clause with
+    their count, worded as the list form 'COLUMN not in ...' words it (:func:`merged_exclusions`)."""
+    return [f.in_words() for f, _ in merged_exclusions(filters)]
 
 
 #: values a filter written for advice lists at most (more: the advice gives the filter's form)
@@ -303,7 +315,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
     named by their row names could not be filtered out without editing the file)."""
     from dataclasses import replace
 
-    notes = []
+    said = []  # per filter: rows before and after it, and its note's words apart from the counts
     counted = []
     given: dict[tuple, RowFilter] = {}
     for f in filters:  # a filter given twice keeps the same rows: a slip for another filter (an option that adds nothing)
@@ -332,15 +344,55 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         f = replace(f, empty=int(column.isna().sum()), dropped=int((~keep & column.notna()).sum()))
         counted.append(f)
         frame = frame.loc[keep.to_numpy()]
-        emptied = (f"left out {f.empty_words()} (an empty cell meets no comparison, '!=' included), and "
-                   if f.empty else "")
-        notes.append(f"row filter '{f}'{by_label} {emptied}kept {len(frame)} of {before} rows{absent}{read_as}")
+        said.append((before, len(frame), by_label, absent, read_as))
         if len(frame) == 0:
             raise DataError(f"{source}: no row is left after the row filter '{printable(f)}'{absent}")
     if filters:
         frame = frame.copy()
         frame.attrs[KEPT_BY] = tuple(f.text for f in filters)  # follows the frame through selections and groups
-    return frame, notes, tuple(counted)
+    return frame, _filter_notes(counted, said), tuple(counted)
+
+
+def _quoted(f: RowFilter) -> str:
+    """A filter as a note quotes it: 'district = north'."""
+    return f"'{printable(str(f))}'"
+
+
+def _listed(texts: list[str]) -> str:
+    """'a', 'a and b', 'a, b and c'."""
+    return texts[0] if len(texts) == 1 else f"{', '.join(texts[:-1])} and {texts[-1]}"
+
+
+def _filter_notes(counted: list[RowFilter], said: list[tuple]) -> list[str]:
+    """The notes of the filters ``counted`` (as applied, in order; ``said``: each one's rows before and after it and
+    the words of what comparing found), one per filter, several '!=' filters on one column one note at the place of
+    the first of them, as the methods paragraph merges them (:func:`merged_exclusions`)."""
+    notes = []
+    for f, places in merged_exclusions(counted):
+        emptied = (f"left out {f.empty_words()} (an empty cell meets no comparison, '!=' included), and "
+                   if f.empty else "")
+        before, after = said[places[0]][0], said[places[-1]][1]
+        by_label = next((said[k][2] for k in places if said[k][2]), "")
+        read_as = next((said[k][4] for k in places if said[k][4]), "")
+        if len(places) == 1:
+            notes.append(f"row filter '{f}'{by_label} {emptied}kept {after} of {before} rows{said[places[0]][3]}{read_as}")
+            continue
+        left_out = sum(said[k][0] - said[k][1] for k in places)
+        kept = (f"kept {after} of {before} rows" if list(places) == list(range(places[0], places[-1] + 1)) else
+                f"left out {left_out} row{'s' if left_out != 1 else ''} in all")  # other filters between them
+        missing = [m.value for m, k in zip(f.members, places) if said[k][3]]
+        absent = ""
+        if len(missing) == 1:
+            absent = said[places[[m.value for m in f.members].index(missing[0])]][3]
+        elif missing:
+            absent = (f"; no row has {', '.join(repr(printable(_value_text(v))) for v in missing[:SHOWN_VALUES])}"
+                      + (f" and {len(missing) - SHOWN_VALUES} more of the values" if len(missing) > SHOWN_VALUES
+                         else "") + f" in '{printable(f.column)}'")
+        named = (f"row filters {_listed([_quoted(g) for g in f.members])}"  # few: each as written
+                 if len(places) <= SHOWN_VALUES else
+                 f"{len(places)} row filters '{printable(f.column)} != ...', read as one: '{f}'")
+        notes.append(f"{named}{by_label} {emptied}{kept}{absent}{read_as}")
+    return notes
 
 
 @dataclass(frozen=True)

@@ -113,3 +113,30 @@ def test_a_value_of_several_words_reads_as_one_value_in_the_methods_words():
     quoted when it holds several words, a one-word value is not."""
     assert parse_filter('gender != "prefer not to say"').in_words() == 'gender was not "prefer not to say"'
     assert parse_filter("department != Audit").in_words() == "department was not Audit"
+
+
+def test_several_exclusions_of_one_column_are_one_note_as_they_are_one_clause():
+    # s20: 30 filters 'student_id != ...' gave 30 notes while the methods paragraph said one clause; the notes follow
+    # the same merge (data.filters.merged_exclusions).  Check values: the 30 planted rows, and pandas' own count of
+    # the rows of 'School 1' among the 370 left (Series.isin).
+    frame = _answers()
+    ids = frame["student_id"][CARELESS].tolist()
+    filters = [parse_filter(f"student_id != {i}") for i in ids]
+    kept, notes, counted = apply_filters(frame, filters, "f.csv")
+    assert len(counted) == 30 and kept.index.tolist() == frame.index[~frame["student_id"].isin(ids)].tolist()
+    assert notes == ["30 row filters 'student_id != ...', read as one: 'student_id not in S-00101, S-00102, "
+                     "S-00103, ... (30 values)' kept 370 of 400 rows"]
+    # another filter between them (on a column the 30 rows all answered 1), and a value no row has: still one note,
+    # at the first one's place, with the rows the 30 left out in all (pandas' count: Series.isin)
+    between = filters[:10] + [parse_filter("a1 != 5")] + filters[10:] + [parse_filter("student_id != X-1")]
+    _, notes, _ = apply_filters(frame, between, "f.csv")
+    fives = int((frame["a1"][~frame["student_id"].isin(ids[:10])] == 5).sum())
+    assert notes == ["31 row filters 'student_id != ...', read as one: 'student_id not in S-00101, S-00102, S-00103, "
+                     "... (31 values)' left out 30 rows in all; no row has 'X-1' in 'student_id' (values present: "
+                     + notes[0].split("(values present: ")[1],
+                     f"row filter 'a1 != 5' kept {390 - fives} of 390 rows"]
+    assert fives > 0  # the filter between had rows of its own to leave out
+    # the notes a fit carries, beside its one clause of the methods paragraph
+    many = cfa_tool.fit(MODEL, frame, keep=[f"student_id != {i}" for i in ids])
+    said = [str(n) for n in many.warnings if "row filter" in str(n)]
+    assert len(said) == 1 and "30 row filters 'student_id != ...'" in said[0]
