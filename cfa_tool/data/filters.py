@@ -71,6 +71,10 @@ class RowFilter:
     #: a filter with a list of values (:data:`SET_OPERATORS`): each value as a filter of its own ('=' for 'in', '!='
     #: for 'not in'; set by apply_filters), with what comparing it found (labels, codes sharing a label, case)
     members: tuple["RowFilter", ...] = ()
+    #: of a member of a list filter (as compared, or in :attr:`members`): the list filter as messages quote it, the
+    #: member's own text its one clause ('grade = 6'), so that an error about one value quotes that clause and the
+    #: list cut to a few values (:func:`quoted_filter`), not every value of the list (s20)
+    within: str | None = None
 
     def __str__(self) -> str:
         """The filter as messages and notes quote it: as written, a list of more than :data:`SHOWN_VALUES` values cut
@@ -131,6 +135,11 @@ def _worded(value) -> str:
     ('gender was not "prefer not to say"', new-user trial s19), anything else as :func:`_value_text` writes it."""
     text = _value_text(value)
     return f'"{text}"' if isinstance(value, str) and len(text.split()) > 1 and '"' not in text else text
+
+
+def _clause_text(column: str, op: str, value) -> str:
+    """One comparison as a filter writes it: 'district = north', '"wave 2" != 1'."""
+    return f"{_column_text(column)} {op} {_value_text(value)}"
 
 
 def _column_text(column: str) -> str:
@@ -321,7 +330,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
     for f in filters:  # a filter given twice keeps the same rows: a slip for another filter (an option that adds nothing)
         key = (f.column, f.operator, f.value)
         if key in given:
-            raise OptionError(f"row filter '{printable(f)}' is given twice"
+            raise OptionError(f"row filter {quoted_filter(f)} is given twice"
                               + (f" (also as '{printable(given[key])}')" if str(given[key]) != str(f) else "")
                               + "; give it once (or give the other filter you meant)")
         given[key] = f
@@ -331,7 +340,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
             named = [str(c) for c in frame.columns] + ([ROW_NAMES_COLUMN] if row_names is not None else [])
             guess = close_names(f.column, named)
             hint = renamed_hint(frame, f.column) or (f"; did you mean '{guess[0]}'?" if guess else "")
-            raise OptionError(f"row filter '{printable(f)}': {source} has no column '{printable(f.column)}'{hint}")
+            raise OptionError(f"row filter {quoted_filter(f)}: {source} has no column '{printable(f.column)}'{hint}")
         column = row_names.reindex(frame.index).rename(f.column) if by_row_names else frame[f.column]
         labels = (value_labels or {}).get(f.column)
         if f.operator in SET_OPERATORS:
@@ -346,16 +355,20 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         frame = frame.loc[keep.to_numpy()]
         said.append((before, len(frame), by_label, absent, read_as))
         if len(frame) == 0:
-            raise DataError(f"{source}: no row is left after the row filter '{printable(f)}'{absent}")
+            raise DataError(f"{source}: no row is left after the row filter {quoted_filter(f)}{absent}")
     if filters:
         frame = frame.copy()
-        frame.attrs[KEPT_BY] = tuple(f.text for f in filters)  # follows the frame through selections and groups
+        # follows the frame through selections and groups: each filter as a message quotes it (a list cut to a few
+        # values, several '!=' of one column as their one list), never every value (data.kept_rows.rows_described)
+        frame.attrs[KEPT_BY] = tuple(str(f) for f, _ in merged_exclusions(counted))
     return frame, _filter_notes(counted, said), tuple(counted)
 
 
-def _quoted(f: RowFilter) -> str:
-    """A filter as a note quotes it: 'district = north'."""
-    return f"'{printable(str(f))}'"
+def quoted_filter(f: RowFilter) -> str:
+    """A filter as a message or a note quotes it: 'district = north', a list of many values cut to a few and its
+    count (:meth:`RowFilter.__str__`), one value of a list as its clause and the list it is in: 'grade = 6' (of
+    'grade in 6, 7, 8, ... (40 values)')."""
+    return f"'{printable(str(f))}'" + (f" (of '{printable(f.within)}')" if f.within else "")
 
 
 def _listed(texts: list[str]) -> str:
@@ -388,7 +401,7 @@ def _filter_notes(counted: list[RowFilter], said: list[tuple]) -> list[str]:
             absent = (f"; no row has {', '.join(repr(printable(_value_text(v))) for v in missing[:SHOWN_VALUES])}"
                       + (f" and {len(missing) - SHOWN_VALUES} more of the values" if len(missing) > SHOWN_VALUES
                          else "") + f" in '{printable(f.column)}'")
-        named = (f"row filters {_listed([_quoted(g) for g in f.members])}"  # few: each as written
+        named = (f"row filters {_listed([quoted_filter(g) for g in f.members])}"  # few: each as written
                  if len(places) <= SHOWN_VALUES else
                  f"{len(places)} row filters '{printable(f.column)} != ...', read as one: '{f}'")
         notes.append(f"{named}{by_label} {emptied}{kept}{absent}{read_as}")
@@ -418,15 +431,17 @@ def _compared_with_list(frame: pd.DataFrame, f: RowFilter, column: pd.Series, la
     found = pd.Series(False, index=column.index)
     members, by_label, absent, missing, read_as = [], "", [], [], ""
     for value in f.value:
-        compared = _compared(frame, replace(f, operator="=", value=value, members=()), column, labels, source)
+        one = "=" if f.operator == "in" else "!="
+        clause = replace(f, operator=one, value=value, members=(), text=_clause_text(f.column, one, value),
+                         within=str(f))  # the clause an error about this value quotes (_quoted)
+        compared = _compared(frame, replace(clause, operator="="), column, labels, source)
         found |= compared.keep
         by_label = by_label or compared.by_label
         read_as = read_as or compared.read_as
         if compared.absent:  # (a value no row has)
             absent.append(compared.absent)
             missing.append(value)
-        members.append(replace(f, operator="=" if f.operator == "in" else "!=", value=value, shared=compared.shared,
-                               other_case=compared.cased, label=compared.named, members=(), text=str(f)))
+        members.append(replace(clause, shared=compared.shared, other_case=compared.cased, label=compared.named))
     keep = found if f.operator == "in" else ~found & column.notna()
     said = ""
     if absent:
@@ -461,13 +476,13 @@ def _compared(frame: pd.DataFrame, f: RowFilter, column: pd.Series, labels, sour
     else:
         numbers_only = numeric.notna().sum() == column.notna().sum()
         if f.operator not in ("=", "!=") and numbers_only and not isinstance(f.value, float):
-            raise OptionError(f"row filter '{printable(f)}': '{printable(str(f.value))}' is not a number, and "
+            raise OptionError(f"row filter {quoted_filter(f)}: '{printable(str(f.value))}' is not a number, and "
                               f"{f.operator} compares numbers (write numbers with a decimal point; text is compared "
                               f"with = or !=)")
         if f.operator not in ("=", "!="):
             written = _written_date(column)
             if written is not None:
-                raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds dates written as text "
+                raise OptionError(f"row filter {quoted_filter(f)}: '{printable(f.column)}' holds dates written as text "
                                   f"in another form than YYYY-MM-DD (such as '{printable(written)}'), whose order "
                                   f"of day and month the file does not say, so they cannot be compared by order; "
                                   f"in a copy of the file write them as YYYY-MM-DD, which filters compare as dates")
@@ -478,9 +493,9 @@ def _compared(frame: pd.DataFrame, f: RowFilter, column: pd.Series, labels, sour
                 where = cell_words(frame, f.column, int(row_numbers(frame)[position]))
                 raise DataError(f"{source}, {where}: '{printable(str(value))}' in '{printable(f.column)}' is not "
                                 f"a date (a day that exists, written YYYY-MM-DD), and its other cells are "
-                                f"dates{more}, so row filter '{printable(f)}' cannot compare them by order; "
+                                f"dates{more}, so row filter {quoted_filter(f)} cannot compare them by order; "
                                 f"correct the cell, or leave it empty in a copy of the file")
-            raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' of {source} holds text"
+            raise OptionError(f"row filter {quoted_filter(f)}: '{printable(f.column)}' of {source} holds text"
                               f"{_first_text(column, numeric)}, which can only be compared with = or !=")
         values = column.map(lambda v: None if pd.isna(v) else _cell_label(v))
         target = label_text(f.value)
@@ -536,7 +551,7 @@ def _refuse_label_of_other_code(f: RowFilter, column: pd.Series, labels: dict, s
     else:
         write_label = (f"to compare with the label, write the code it labels: '{name} {f.operator} "
                        f"{label_text(code)}', if the codes run in the order of their labels")
-    raise OptionError(f"row filter '{printable(f)}': in {source}, '{name}' holds codes with value labels, and "
+    raise OptionError(f"row filter {quoted_filter(f)}: in {source}, '{name}' holds codes with value labels, and "
                       f"{shown} could mean {as_code} or {as_label}, which the groups and reports show; "
                       f"{write_label}" + (f"; {write_code}" if write_code else ""))
 
@@ -653,7 +668,7 @@ def _date_target(f: RowFilter) -> pd.Timestamp:
             return pd.Timestamp(text)
     except ValueError:
         pass
-    raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds dates, which are compared with a "
+    raise OptionError(f"row filter {quoted_filter(f)}: '{printable(f.column)}' holds dates, which are compared with a "
                       f"date written as YYYY-MM-DD (such as '{f.column} >= 2026-03-01')")
 
 

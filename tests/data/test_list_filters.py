@@ -140,3 +140,34 @@ def test_several_exclusions_of_one_column_are_one_note_as_they_are_one_clause():
     many = cfa_tool.fit(MODEL, frame, keep=[f"student_id != {i}" for i in ids])
     said = [str(n) for n in many.warnings if "row filter" in str(n)]
     assert len(said) == 1 and "30 row filters 'student_id != ...'" in said[0]
+
+
+def test_an_error_about_the_rows_kept_quotes_the_clause_concerned_not_every_value():
+    # s20: messages quoted a list filter whole (350 ids: a message of 3,353 characters); they quote the clause
+    # concerned and the list cut to three values with its count, as the notes do
+    import numpy as np
+
+    from cfa_tool.errors import DataError
+
+    frame = _answers()
+    frame.loc[frame["school"] == "School 1", "a1"] = np.nan  # invented: a1 not asked at School 1 (50 rows: 400 / 8)
+    others = frame["student_id"][frame["school"] != "School 1"].tolist()
+    with pytest.raises(DataError) as caught:
+        cfa_tool.fit("factor f: a1, a2, a3, a4\n", frame, keep=["student_id not in " + ", ".join(others), "sex = girl"])
+    said = str(caught.value)
+    assert ("column 'a1' has no answers in the 50 rows kept by keep=['student_id not in S-00002, S-00003, S-00004, "
+            "... (350 values)', 'sex = girl']") in said and len(said) < 400 and others[-1] not in said
+    # several '!=' of one column: quoted as the one list they make
+    with pytest.raises(DataError) as caught:
+        cfa_tool.fit("factor f: a1, a2, a3, a4\n", frame, keep=[f"student_id != {i}" for i in others[:40]]
+                     + ["school = School 1"])
+    assert "kept by keep=['student_id not in S-00002, S-00003, S-00004, ... (40 values)', 'school = School 1']" in str(
+        caught.value)
+    # one value of a list that cannot be compared: its clause, and the list it is in, cut
+    frame["visit"] = [f"2026-03-{k % 28 + 1:02d}" for k in range(len(frame))]
+    days = ", ".join(f"2026-03-{k:02d}" for k in range(1, 20))
+    with pytest.raises(OptionError) as caught:
+        cfa_tool.check("factor f: a1, a2, a3, a4\n", frame, keep=[f"visit in {days}, March 5"])
+    assert str(caught.value).startswith("row filter 'visit = March 5' (of 'visit in 2026-03-01, 2026-03-02, "
+                                        "2026-03-03, ... (20 values)'): 'visit' holds dates")
+    assert "2026-03-19" not in str(caught.value)
