@@ -21,6 +21,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.filter_text import filter_column, filter_text
 from cfa_tool.data.kept_rows import KEPT_BY, ROW_NAMES_COLUMN, cell_words, row_naming
 from cfa_tool.data.labels import label_text, listed_labels, merged_labels, other_case, shared_labels
 from cfa_tool.data.moments import row_numbers
@@ -138,13 +139,14 @@ def _worded(value) -> str:
 
 
 def _clause_text(column: str, op: str, value) -> str:
-    """One comparison as a filter writes it: 'district = north', '"wave 2" != 1'."""
-    return f"{_column_text(column)} {op} {_value_text(value)}"
+    """One comparison as a filter writes it: 'district = north', '"wave 2" != 1' (data.filter_text, the one writer;
+    as the user wrote it where that cannot be)."""
+    return filter_text(column, op, value) or f"{_column_text(column)} {op} {_value_text(value)}"
 
 
 def _column_text(column: str) -> str:
-    """A filter's column as a filter writes it: in double quotes when not a plain word."""
-    return column if re.fullmatch(r'[^\s=!<>"]+', column) else f'"{column}"'
+    """A filter's column as a filter writes it: in double quotes when not a plain word (data.filter_text)."""
+    return filter_column(column) or f'"{column}"'
 
 
 def merged_exclusions(filters) -> list[tuple[object, tuple[int, ...]]]:
@@ -192,12 +194,13 @@ def list_filter(column: str, values, keep: bool = False) -> str | None:
     quotes): the one way advice writes such a filter.  None where it cannot be written so (a name or value that
     cannot be printed, a double quote in a value, more than :data:`LISTED_AT_MOST` values)."""
     texts = [_value_text(v) for v in values]
-    if not texts or len(texts) > LISTED_AT_MOST or printable(column) != column or '"' in column:
+    name = filter_column(column)  # the one writer of a filter's column (data.filter_text)
+    if not texts or len(texts) > LISTED_AT_MOST or name is None:
         return None
     if any(printable(t) != t or '"' in t or not t.strip() or t != t.strip() for t in texts):
         return None
     listed = ", ".join(f'"{t}"' if "," in t or (t[0] == t[-1] == "'") else t for t in texts)
-    return f"{_column_text(column)} {'in' if keep else 'not in'} {listed}"
+    return f"{name} {'in' if keep else 'not in'} {listed}"
 
 
 def parse_filter(text: str) -> RowFilter:
@@ -303,9 +306,9 @@ def _first_text(column: pd.Series, numeric: pd.Series) -> str:
     more = int(text.sum()) - 1
     cell = str(column.iloc[k])
     # words that say no answer are read as missing in item columns only (data.readers): a filter can leave them out
-    leave_out = f"{printable(str(column.name))} != '{printable(cell.strip())}'"
+    leave_out = filter_text(str(column.name), "!=", cell.strip())  # the one writer of a filter (data.filter_text)
     first = (f", or leave its rows out first with {Option.KEEP.given(leave_out)}"
-             if says_no_answer(cell) and "'" not in cell else "")
+             if says_no_answer(cell) and leave_out is not None else "")
     return (f" ('{printable(cell)}' in {row_naming(column).one_row(row_numbers(column)[k])}"
             + (f", and {more} more such cell{'s' if more != 1 else ''}" if more else "")
             + f", among numbers: correct it or leave it empty in a copy of the file to compare numbers{first})")

@@ -20,6 +20,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
 
 from cfa_tool.numbers import user_number
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
+from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
 from cfa_tool.data.kept_rows import (ROW_NAMES_COLUMN, RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
                                      unfinished_rows_note)
@@ -937,7 +938,8 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     example = ""
     if found.numbering and set(found.copies) == set(row_numbers(frame)[len(frame) - n:].tolist()):  # a block at the end
         first = frame[found.numbering].iloc[len(frame) - n]
-        example = f" (here {Option.KEEP.given(f'{printable(found.numbering)} < {label_text(first)}')})"
+        written = filter_text(found.numbering, "<", first if isinstance(first, (int, float)) else label_text(first))
+        example = f" (here {Option.KEEP.given(written)})" if written else ""  # the one writer (data.filter_text)
     return (Problem(ProblemKind.COPIED_ROWS, (), float(n),
                     f"{n} of the {len(frame)} rows analysed {'is' if n == 1 else 'are'} identical in every column"
                     f"{numbering} to an earlier row: " + pairs + f"{more}. If they are copies (a file appended to itself, "

@@ -5,7 +5,9 @@ their answers to a model item, and a filter whose value label several codes of t
 from __future__ import annotations
 
 from cfa_tool.assessment.admissibility import Problem, ProblemKind
+from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.filters import quoted_filter
+from cfa_tool.numbers import number
 from cfa_tool.data.readers import LoadedData
 from cfa_tool.errors import printable
 from cfa_tool.language.spec import Spec
@@ -77,12 +79,14 @@ def label_of_several_codes(f, where: str = "") -> Problem:
     did = "kept" if f.operator == "=" else "left out"
     column = printable(f.column)
     first = f.shared[0][0]
+    by_code = filter_text(f.column, f.operator, number(first) if number(first) is not None else first) or \
+        f"{column} {f.operator} {first}"  # the one writer of a filter (data.filter_text): a code, compared as one
     both = "both" if len(f.shared) == 2 else "all"
     return Problem(
         ProblemKind.FILTER_LABEL_OF_SEVERAL_CODES, (), float(len(f.shared)),
         f"Row filter {quoted_filter(f)}{where} compares the value labels of '{column}', and codes {listed} {both} carry "
         f"the label '{printable(str(f.value))}': the filter {did} the rows of every one of them.",
-        f"if the codes are different categories, filter by a code ({Option.KEEP.given(f'{column} {f.operator} {first}')}"
+        f"if the codes are different categories, filter by a code ({Option.KEEP.given(by_code)}"
         f" compares the codes themselves) or give the codes different value labels in the data file; if they are one "
         f"category, nothing needs changing.")
 

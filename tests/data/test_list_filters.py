@@ -168,6 +168,6 @@ def test_an_error_about_the_rows_kept_quotes_the_clause_concerned_not_every_valu
     days = ", ".join(f"2026-03-{k:02d}" for k in range(1, 20))
     with pytest.raises(OptionError) as caught:
         cfa_tool.check("factor f: a1, a2, a3, a4\n", frame, keep=[f"visit in {days}, March 5"])
-    assert str(caught.value).startswith("row filter 'visit = March 5' (of 'visit in 2026-03-01, 2026-03-02, "
+    assert str(caught.value).startswith("row filter 'visit = \"March 5\"' (of 'visit in 2026-03-01, 2026-03-02, "
                                         "2026-03-03, ... (20 values)'): 'visit' holds dates")
     assert "2026-03-19" not in str(caught.value)
