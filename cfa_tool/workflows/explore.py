@@ -442,12 +442,88 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float
     found = [f[0] for f in groupings] + [f[0] for f in off_scale]
     if found:
         items = [c for c in columns if c not in found] + [c for c in others if c not in found]
-        answered = frame if not codes else frame[items].apply(pd.to_numeric, errors="coerce").mask(
-            lambda cells: cells.isin(codes)).join(frame[found])  # the items' codes of no answer are no answers
+        # the items' codes of no answer are no answers: those given, and the values set aside from their scales
+        answered = frame if not codes and not stray else frame[items].apply(pd.to_numeric, errors="coerce").apply(
+            lambda cells: cells.mask(cells.isin(tuple(codes) + stray.get(cells.name, ())))).join(frame[found])
         related = dict(zip(found, _largest_correlations(answered, found, items)))
         groupings = [f for f in groupings if not related[f[0]] >= RELATED_TO_THE_ITEMS]
         off_scale = [f for f in off_scale if not related[f[0]] >= RELATED_TO_THE_ITEMS]
     return UnlikeTheItems(tuple(groupings), tuple(off_scale), (low, high))
+
+
+#: a column's answer scale read with room for codes of no answer that the screening of odd values leaves alone
+#: (data.odd_values allows at most 2% of the answers outside a scale): the longest run of consecutive whole values
+#: holding at least this share of the column's answers, its other values at least :data:`SCALE_GAP` beyond the run's
+#: ends (8 'don't know' and 9 'refused' in 5% of the cells each beside answers 1 to 5).  A rule of thumb of this
+#: project, not a published one: it decides only which scale most columns share (so that a grade of 7 to 10 is not
+#: taken for an item on a scale of 1 to 9) and which values the caution of :func:`codes_beyond_the_scale` names
+SCALE_SHARE = 0.8
+#: the least distance of a value set aside from the run's end: 6 beside 1 to 5 may be the scale's own top answer
+SCALE_GAP = 2.0
+
+
+def beyond_the_run(x: np.ndarray) -> tuple[float, ...]:
+    """The values of one column (numbers, gaps aside) set aside from its answer scale by :data:`SCALE_SHARE` and
+    :data:`SCALE_GAP`: () when its values fill no such run (a measure of many values, a scale used in full)."""
+    x = x[np.isfinite(x)]
+    if not len(x):
+        return ()
+    values, counts = np.unique(x, return_counts=True)
+    whole = values == np.round(values)
+    from cfa_tool.data.odd_values import MAX_SCALE_POINTS
+
+    best = None  # (answers, first, last) of the run of consecutive whole values holding the most answers
+    start = 0
+    for k in range(1, len(values) + 1):
+        if k == len(values) or not (whole[k] and whole[k - 1] and values[k] - values[k - 1] == 1):
+            if whole[start] and 2 <= k - start <= MAX_SCALE_POINTS:
+                run = (int(counts[start:k].sum()), start, k - 1)
+                best = run if best is None or run[0] > best[0] else best
+            start = k
+    if best is None or best[0] < SCALE_SHARE * len(x) or best[0] == len(x):
+        return ()
+    low, high = values[best[1]], values[best[2]]
+    outside = [v for v in values if v < low or v > high]
+    if any((low - v if v < low else v - high) < SCALE_GAP for v in outside):
+        return ()  # a value next to the run: a scale's thinning tail, not codes
+    return tuple(float(v) for v in outside)
+
+
+def codes_beyond_the_scale(screened, names: tuple[str, ...]) -> tuple:
+    """A caution (assessment.admissibility.Problem, first in every view) when values set aside from the answer scale
+    of at least two of the items ``names`` (:func:`beyond_the_run`: 8 and 9 beyond answers 1 to 5, in 5% of the
+    cells) are explored as answers, the screening of odd values (``screened.odd_values``, which allows at most 2%)
+    having named none of them: codes of no answer, likely, which the correlations then read as the scale's highest
+    answers; with the option that reads them as no answer.  () otherwise."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    frame = screened.frame
+    named = {(c, v) for o in screened.odd_values for c, v in zip(o.columns, o.values)}
+    found: dict[float, list[str]] = {}
+    cells = 0
+    answered = 0
+    for name in names:
+        x = pd.to_numeric(frame[name], errors="coerce").to_numpy(dtype=float)
+        beyond = [v for v in beyond_the_run(x) if (name, v) not in named]
+        for v in beyond:
+            found.setdefault(v, []).append(name)
+        cells += int(np.isin(x, beyond).sum())
+        answered += int(np.isfinite(x).sum()) if beyond else 0
+    items = sorted({c for cs in found.values() for c in cs}, key=names.index)
+    if len(items) < 2:
+        return ()
+    values = sorted(found)
+    listed = " and ".join(f"{v:g}" for v in values) if len(values) <= 2 else (
+        ", ".join(f"{v:g}" for v in values[:-1]) + f" and {values[-1]:g}")
+    shown = ", ".join(printable(c) for c in items[:5]) + (f" and {len(items) - 5} more" if len(items) > 5 else "")
+    return (Problem(ProblemKind.VALUES_NOT_ANSWERS, (), float(cells),
+                    f"{listed} lie{'s' if len(values) == 1 else ''} apart from the run of answers in {len(items)} of "
+                    f"the {len(names)} items ({shown}; {cells} of their {answered} answers, "
+                    f"{100 * cells / max(answered, 1):.1f}%), as codes of no answer do ('don't know', 'refused'): they "
+                    f"are explored as answers, values beyond the scale's ends.",
+                    Note(("if they mean no answer, read them so with ",
+                          Command(Option.MISSING_CODES.given(",".join(f"{v:g}" for v in values)), "a list of codes"),
+                          "; if they are answers, nothing needs to change."))),)
 
 
 def _stray_values(frame: pd.DataFrame, columns: list[str], codes: tuple[float, ...]) -> dict[str, tuple[float, ...]]:
@@ -468,6 +544,10 @@ def _stray_values(frame: pd.DataFrame, columns: list[str], codes: tuple[float, .
         if odd.kind in (OddKind.MISSING_CODE, OddKind.OUTSIDE_SCALE):
             for column, value in zip(odd.columns, odd.values):
                 out[column] = out.get(column, ()) + (value,)
+    for column in columns:  # codes too many for the screening's 2% (8 and 9 in 5% of the cells): s20
+        beyond = beyond_the_run(numbers[column].to_numpy(dtype=float, na_value=np.nan))
+        if beyond:
+            out[column] = tuple(dict.fromkeys(out.get(column, ()) + beyond))
     return out
 
 
@@ -919,7 +999,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     screened = api.screened(frame, tuple(chosen), source, loaded.non_answers, loaded.cautions)
     data_problems = (row_filter_problems(loaded, None, tuple(chosen))  # a selection on an item, as fit names it
                      + api.copied_row_problems(screened, None, None, tuple(chosen), ids)  # rows pasted twice, as fit
-                     + api.odd_value_problems(screened) + api.few_answers_problems(tuple(chosen), {}, None, screened))
+                     + api.odd_value_problems(screened) + codes_beyond_the_scale(screened, tuple(chosen))
+                     + api.few_answers_problems(tuple(chosen), {}, None, screened))
     halves = None
     if split is not None:
         split = options.seed(split)
