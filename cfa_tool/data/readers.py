@@ -674,17 +674,20 @@ class AnswersAsNames:
     filled: int  # and its cells with a value
     shown: tuple[str, ...]  # the first few names of the likely row
 
-    def caution(self, source: str) -> str:
+    def caution(self, source: str) -> Note:
+        """The option in a note_parts.Command: a manuscript names no option."""
         listed = ", ".join(f"'{clipped(n, 30)}'" for n in self.shown[:4]) + (", ..." if len(self.shown) > 4 else "")
-        return (f"{base_name(self.where)}: row {self.names_row}, read as the column names as "
-                f"{self.option.given(self.names_row)} asks, holds numbers in {self.numbers} of its {self.filled} "
-                f"cells, as a row of answers does, and row {self.likely} above it holds a name in every one of those "
-                f"columns ({listed}): if the names are there, row {self.names_row} is a respondent's answers, left out "
-                f"of the analysis, and its values name the columns.")
+        return Note((f"{base_name(self.where)}: row {self.names_row}, read as the column names",
+                     Command(f" as {self.option.given(self.names_row)} asks"),
+                     f", holds numbers in {self.numbers} of its {self.filled} cells, as a row of answers does, and row "
+                     f"{self.likely} above it holds a name in every one of those columns ({listed}): if the names are "
+                     f"there, row {self.names_row} is a respondent's answers, left out of the analysis, and its values "
+                     f"name the columns."))
 
-    def advice(self) -> str:
-        return (f"If the column names are in row {self.likely}, give {self.option.given(self.likely)}; if row "
-                f"{self.names_row} does hold them, nothing.")
+    def advice(self) -> Note:
+        return Note((f"if the column names are in row {self.likely}, read them from it",
+                     Command(f" ({self.option.given(self.likely)})"),
+                     f"; if row {self.names_row} does hold them, nothing needs to change."))
 
     def hint(self) -> str:
         """Words after an error about the header read from the named row: the row that likely holds the names."""

@@ -47,12 +47,12 @@ def test_a_row_of_answers_read_as_names_is_a_caution_first_naming_the_row_of_nam
     assert ("survey.csv: row 3, read as the column names as names_row=3 asks, holds numbers in 5 of its 6 cells, as a "
             "row of answers does, and row 2 above it holds a name in every one of those columns ('resp', 'q1', 'q2', "
             "'q3', ...)") in text
-    assert "give names_row=2" in str(said[0].advice)
+    assert "read them from it (names_row=2)" in str(said[0].advice)
     code, out, err = run_cli(["explore", "--data", data, "--names-row", "3", "--factors", "1", "--replications", "5"],
                              capsys)
     assert code == 0, err
     flat = " ".join(out.split())
-    assert "as --names-row 3 asks" in flat and "give --names-row 2" in flat
+    assert "as --names-row 3 asks" in flat and "read them from it (--names-row 2)" in flat
     assert flat.index("as --names-row 3 asks") < flat.index("Items:")  # first, before the notes
     # the right row: nothing said
     right = cfa_tool.explore(data, names_row=2, factors=1, replications=5)
