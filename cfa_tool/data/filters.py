@@ -177,6 +177,17 @@ def merged_exclusions(filters) -> list[tuple[object, tuple[int, ...]]]:
     return merged
 
 
+def kept_by_words(filters) -> str:
+    """'the row filter 'district = north'', 'the row filters 'wave = 2', 'student_id not in S-00101, S-00102,
+    S-00103, ... (30 values)'': the filters that chose the rows as a data line or a split's sentence quotes them, each
+    as messages quote it (:func:`quoted_filter`), several '!=' of one column as their one list
+    (:func:`merged_exclusions`); '' without filters."""
+    merged = [f for f, _ in merged_exclusions(list(filters))]
+    if not merged:
+        return ""
+    return f"the row filter{'s' if len(merged) > 1 else ''} {', '.join(quoted_filter(f) for f in merged)}"
+
+
 def filters_in_words(filters) -> list[str]:
     """The row ``filters`` (as apply_filters counted them; a half of a halves file among them) as a methods section
     words them (:meth:`RowFilter.in_words`), one clause each, several '!=' filters on one column one clause with
@@ -371,7 +382,8 @@ def quoted_filter(f: RowFilter) -> str:
     """A filter as a message or a note quotes it: 'district = north', a list of many values cut to a few and its
     count (:meth:`RowFilter.__str__`), one value of a list as its clause and the list it is in: 'grade = 6' (of
     'grade in 6, 7, 8, ... (40 values)')."""
-    return f"'{printable(str(f))}'" + (f" (of '{printable(f.within)}')" if f.within else "")
+    within = getattr(f, "within", None)  # (a half of a halves file has none)
+    return f"'{printable(str(f))}'" + (f" (of '{printable(within)}')" if within else "")
 
 
 def _listed(texts: list[str]) -> str:

@@ -140,6 +140,10 @@ def test_several_exclusions_of_one_column_are_one_note_as_they_are_one_clause():
     many = cfa_tool.fit(MODEL, frame, keep=[f"student_id != {i}" for i in ids])
     said = [str(n) for n in many.warnings if "row filter" in str(n)]
     assert len(said) == 1 and "30 row filters 'student_id != ...'" in said[0]
+    # and the data line of every view quotes them as that one list (reporting.tables.selection_phrase)
+    text = " ".join(str(many).split())
+    assert ("370 rows analysed of 370 kept by the row filter 'student_id not in S-00101, S-00102, S-00103, ... "
+            "(30 values)' (400 rows in the file)") in text and "'student_id != S-00102'" not in text
 
 
 def test_an_error_about_the_rows_kept_quotes_the_clause_concerned_not_every_value():
