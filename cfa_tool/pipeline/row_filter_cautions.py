@@ -6,7 +6,7 @@ from __future__ import annotations
 
 from cfa_tool.assessment.admissibility import Problem, ProblemKind
 from cfa_tool.data.filter_text import filter_text
-from cfa_tool.data.filters import quoted_filter
+from cfa_tool.data.filters import merged_exclusions, quoted_filter
 from cfa_tool.numbers import number
 from cfa_tool.data.readers import LoadedData
 from cfa_tool.errors import printable
@@ -22,9 +22,11 @@ def row_filter_problems(loaded: LoadedData, spec: Spec | None = None,
     for one whose label several codes carry.  ``where``: which of several files filtered alike the cautions are about
     (' on the calibration data (spring.csv)'; '' for one file)."""
     analysed = spec.observed_names if spec is not None else (items or ())
-    on_items = selections_on_items(loaded.row_filters, analysed)
+    # several '!=' of one column as their one list, as the notes and the methods paragraph say them
+    filters = [f for f, _ in merged_exclusions(list(loaded.row_filters))]
+    on_items = selections_on_items(filters, analysed)
     found: list[Problem] = []
-    for f in loaded.row_filters:
+    for f in filters:
         if f in on_items:
             found.append(selected_on_item(f, spec, where))
         for one in f.members or (f,):  # a list's values each as its own comparison (data.filters.SET_OPERATORS)

@@ -175,3 +175,13 @@ def test_an_error_about_the_rows_kept_quotes_the_clause_concerned_not_every_valu
     assert str(caught.value).startswith("row filter 'visit = \"March 5\"' (of 'visit in 2026-03-01, 2026-03-02, "
                                         "2026-03-03, ... (20 values)'): 'visit' holds dates")
     assert "2026-03-19" not in str(caught.value)
+
+
+def test_several_exclusions_on_an_item_are_one_caution():
+    # s20: the range-restriction caution followed each '!=' filter (three cautions for one selection); it follows the
+    # one merge too.  Check value: pandas' count of the rows answering 1, 2 or 5 to a1 (Series.isin)
+    frame = _answers()
+    checked = cfa_tool.check("factor f: a1, a2, a3, a4\n", frame, keep=["a1 != 1", "a1 != 2", "a1 != 5"])
+    [caution] = [p for p in checked.problems if p.kind is ProblemKind.SELECTED_ON_ITEM]
+    assert caution.value == int(frame["a1"].isin([1, 2, 5]).sum())
+    assert str(caution.explanation).startswith("Row filter 'a1 not in 1, 2, 5' selects rows by their answers to 'a1'")
