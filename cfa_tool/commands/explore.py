@@ -46,6 +46,7 @@ def add_parser(sub) -> None:
     p.add_argument("--seed", type=int, default=0, help="seed of parallel analysis and of the rotation's random starts "
                                                        "(default 0)")
     O.add_data_options(p)
+    O.add_id_option(p)
     O.add_halves_design_options(p, "--split", ", as replicate --data draws them")
     O.refuse_design_options(p, "explore analyses the unweighted correlations of independent rows (columns named as "
                                "weights, clusters or strata are left out of its default items); fit the draft model "
@@ -71,7 +72,7 @@ def run(args: argparse.Namespace) -> int:
                      extraction=args.extraction, ordinal=O.ordinal_arg(args.ordinal), split=args.split,
                      **O.reading_args(args),
                      replications=args.replications, seed=args.seed, target=args.target, answers=args.answers,
-                     cluster=args.cluster, strata=args.strata)
+                     cluster=args.cluster, strata=args.strata, id_column=args.id)
     files = [("--draft", result.draft_text, f"Draft model written to {args.draft}")] if args.draft else []
     if result.split is not None:
         from cfa_tool.data.halves import EXPLORE_HALVES

@@ -63,9 +63,11 @@ def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
 
 
 def add_id_option(p: argparse.ArgumentParser) -> None:
-    """--id, the one definition for every command that names rows (fit, check, compare, invariance, replicate,
-    scores, bootstrap, cutoffs, align; new-user trial s19: most of them took none, so their cautions named row
-    numbers only)."""
+    """--id, the one definition for every command that reads rows of data (fit, check, compare, invariance,
+    replicate, scores, bootstrap, cutoffs, align, explore; new-user trial s19: most of them took none, so their
+    cautions named row numbers only).  One rule: every such command names rows in its caution about copies of
+    earlier rows (pipeline.inputs.copied_row_problems), whatever its model and items, so the option always applies
+    there (a fit of ordinal items too, which refused it until s20 for want of case tables)."""
     p.add_argument("--id", metavar="COLUMN",
                    help="column that names each row (never analysed): the cautions about rows (one answer throughout, "
                         "copies of earlier rows) and the case tables show it beside the row number, and their advice "

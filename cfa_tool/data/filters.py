@@ -21,6 +21,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.filter_text import filter_column, filter_text
 from cfa_tool.data.kept_rows import KEPT_BY, ROW_NAMES_COLUMN, cell_words, row_naming
 from cfa_tool.data.labels import label_text, listed_labels, merged_labels, other_case, shared_labels
 from cfa_tool.data.moments import row_numbers
@@ -71,6 +72,10 @@ class RowFilter:
     #: a filter with a list of values (:data:`SET_OPERATORS`): each value as a filter of its own ('=' for 'in', '!='
     #: for 'not in'; set by apply_filters), with what comparing it found (labels, codes sharing a label, case)
     members: tuple["RowFilter", ...] = ()
+    #: of a member of a list filter (as compared, or in :attr:`members`): the list filter as messages quote it, the
+    #: member's own text its one clause ('grade = 6'), so that an error about one value quotes that clause and the
+    #: list cut to a few values (:func:`quoted_filter`), not every value of the list (s20)
+    within: str | None = None
 
     def __str__(self) -> str:
         """The filter as messages and notes quote it: as written, a list of more than :data:`SHOWN_VALUES` values cut
@@ -133,32 +138,61 @@ def _worded(value) -> str:
     return f'"{text}"' if isinstance(value, str) and len(text.split()) > 1 and '"' not in text else text
 
 
+def _clause_text(column: str, op: str, value) -> str:
+    """One comparison as a filter writes it: 'district = north', '"wave 2" != 1' (data.filter_text, the one writer;
+    as the user wrote it where that cannot be)."""
+    return filter_text(column, op, value) or f"{_column_text(column)} {op} {_value_text(value)}"
+
+
 def _column_text(column: str) -> str:
-    """A filter's column as a filter writes it: in double quotes when not a plain word."""
-    return column if re.fullmatch(r'[^\s=!<>"]+', column) else f'"{column}"'
+    """A filter's column as a filter writes it: in double quotes when not a plain word (data.filter_text)."""
+    return filter_column(column) or f'"{column}"'
+
+
+def merged_exclusions(filters) -> list[tuple[object, tuple[int, ...]]]:
+    """The row ``filters`` (a half of a halves file may be among them) with several '!=' filters on one column merged
+    into one list filter 'COLUMN not in V1, V2, ...' at the place of the first of them (its members the filters
+    merged, its empty cells theirs), each with the positions in ``filters`` of the filters it stands for: the one
+    merge that the methods paragraph (:func:`filters_in_words`) and the notes of :func:`apply_filters` both follow
+    (new-user trial s19: 30 filters 'student_id != S-006..', 30 clauses; s20: and 30 notes)."""
+    from dataclasses import replace
+
+    excluded: dict[str, list[int]] = {}
+    for k, f in enumerate(filters):
+        if isinstance(f, RowFilter) and f.operator == "!=":
+            excluded.setdefault(f.column, []).append(k)
+    merged, done = [], set()
+    for k, f in enumerate(filters):
+        several = excluded.get(f.column) if isinstance(f, RowFilter) and f.operator == "!=" else None
+        if not several or len(several) < 2:
+            merged.append((f, (k,)))
+        elif f.column not in done:
+            done.add(f.column)
+            members = tuple(filters[j] for j in several)
+            merged.append((replace(members[0], operator="not in", value=tuple(g.value for g in members),
+                                   text=list_filter(f.column, [g.value for g in members])
+                                   or "; ".join(g.text for g in members),
+                                   empty=sum(g.empty for g in members), dropped=sum(g.dropped for g in members),
+                                   members=members), tuple(several)))
+    return merged
+
+
+def kept_by_words(filters) -> str:
+    """'the row filter 'district = north'', 'the row filters 'wave = 2', 'student_id not in S-00101, S-00102,
+    S-00103, ... (30 values)'': the filters that chose the rows as a data line or a split's sentence quotes them, each
+    as messages quote it (:func:`quoted_filter`), several '!=' of one column as their one list
+    (:func:`merged_exclusions`); '' without filters."""
+    merged = [f for f, _ in merged_exclusions(list(filters))]
+    if not merged:
+        return ""
+    return f"the row filter{'s' if len(merged) > 1 else ''} {', '.join(quoted_filter(f) for f in merged)}"
 
 
 def filters_in_words(filters) -> list[str]:
     """The row ``filters`` (as apply_filters counted them; a half of a halves file among them) as a methods section
-    words them (:meth:`RowFilter.in_words`), one clause each, except that several '!=' filters on one column are
-    one clause with their count, worded as the list form 'COLUMN not in ...' words it (new-user trial s19: 30
-    filters 'student_id != S-006..', 30 clauses), at the place of the first of them."""
-    from dataclasses import replace
-
-    excluded: dict[str, list] = {}
-    for f in filters:
-        if isinstance(f, RowFilter) and f.operator == "!=":
-            excluded.setdefault(f.column, []).append(f)
-    words, done = [], set()
-    for f in filters:
-        several = excluded.get(f.column) if isinstance(f, RowFilter) and f.operator == "!=" else None
-        if not several or len(several) < 2:
-            words.append(f.in_words())
-        elif f.column not in done:
-            done.add(f.column)
-            words.append(replace(several[0], operator="not in", value=tuple(g.value for g in several),
-                                 empty=sum(g.empty for g in several), members=tuple(several)).in_words())
-    return words
+    words them (:meth:`RowFilter.in_words`), one clause each, several '!=' filters on one column one clause with
+    their count, worded as the list form 'COLUMN not in ...' words it (:func:`merged_exclusions`)."""
+    return [f.in_words() for f, _ in merged_exclusions(filters)]
 
 
 #: values a filter written for advice lists at most (more: the advice gives the filter's form)
@@ -171,12 +205,13 @@ def list_filter(column: str, values, keep: bool = False) -> str | None:
     quotes): the one way advice writes such a filter.  None where it cannot be written so (a name or value that
     cannot be printed, a double quote in a value, more than :data:`LISTED_AT_MOST` values)."""
     texts = [_value_text(v) for v in values]
-    if not texts or len(texts) > LISTED_AT_MOST or printable(column) != column or '"' in column:
+    name = filter_column(column)  # the one writer of a filter's column (data.filter_text)
+    if not texts or len(texts) > LISTED_AT_MOST or name is None:
         return None
     if any(printable(t) != t or '"' in t or not t.strip() or t != t.strip() for t in texts):
         return None
     listed = ", ".join(f'"{t}"' if "," in t or (t[0] == t[-1] == "'") else t for t in texts)
-    return f"{_column_text(column)} {'in' if keep else 'not in'} {listed}"
+    return f"{name} {'in' if keep else 'not in'} {listed}"
 
 
 def parse_filter(text: str) -> RowFilter:
@@ -282,9 +317,9 @@ def _first_text(column: pd.Series, numeric: pd.Series) -> str:
     more = int(text.sum()) - 1
     cell = str(column.iloc[k])
     # words that say no answer are read as missing in item columns only (data.readers): a filter can leave them out
-    leave_out = f"{printable(str(column.name))} != '{printable(cell.strip())}'"
+    leave_out = filter_text(str(column.name), "!=", cell.strip())  # the one writer of a filter (data.filter_text)
     first = (f", or leave its rows out first with {Option.KEEP.given(leave_out)}"
-             if says_no_answer(cell) and "'" not in cell else "")
+             if says_no_answer(cell) and leave_out is not None else "")
     return (f" ('{printable(cell)}' in {row_naming(column).one_row(row_numbers(column)[k])}"
             + (f", and {more} more such cell{'s' if more != 1 else ''}" if more else "")
             + f", among numbers: correct it or leave it empty in a copy of the file to compare numbers{first})")
@@ -303,13 +338,13 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
     named by their row names could not be filtered out without editing the file)."""
     from dataclasses import replace
 
-    notes = []
+    said = []  # per filter: rows before and after it, and its note's words apart from the counts
     counted = []
     given: dict[tuple, RowFilter] = {}
     for f in filters:  # a filter given twice keeps the same rows: a slip for another filter (an option that adds nothing)
         key = (f.column, f.operator, f.value)
         if key in given:
-            raise OptionError(f"row filter '{printable(f)}' is given twice"
+            raise OptionError(f"row filter {quoted_filter(f)} is given twice"
                               + (f" (also as '{printable(given[key])}')" if str(given[key]) != str(f) else "")
                               + "; give it once (or give the other filter you meant)")
         given[key] = f
@@ -319,7 +354,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
             named = [str(c) for c in frame.columns] + ([ROW_NAMES_COLUMN] if row_names is not None else [])
             guess = close_names(f.column, named)
             hint = renamed_hint(frame, f.column) or (f"; did you mean '{guess[0]}'?" if guess else "")
-            raise OptionError(f"row filter '{printable(f)}': {source} has no column '{printable(f.column)}'{hint}")
+            raise OptionError(f"row filter {quoted_filter(f)}: {source} has no column '{printable(f.column)}'{hint}")
         column = row_names.reindex(frame.index).rename(f.column) if by_row_names else frame[f.column]
         labels = (value_labels or {}).get(f.column)
         if f.operator in SET_OPERATORS:
@@ -332,15 +367,60 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         f = replace(f, empty=int(column.isna().sum()), dropped=int((~keep & column.notna()).sum()))
         counted.append(f)
         frame = frame.loc[keep.to_numpy()]
-        emptied = (f"left out {f.empty_words()} (an empty cell meets no comparison, '!=' included), and "
-                   if f.empty else "")
-        notes.append(f"row filter '{f}'{by_label} {emptied}kept {len(frame)} of {before} rows{absent}{read_as}")
+        said.append((before, len(frame), by_label, absent, read_as))
         if len(frame) == 0:
-            raise DataError(f"{source}: no row is left after the row filter '{printable(f)}'{absent}")
+            raise DataError(f"{source}: no row is left after the row filter {quoted_filter(f)}{absent}")
     if filters:
         frame = frame.copy()
-        frame.attrs[KEPT_BY] = tuple(f.text for f in filters)  # follows the frame through selections and groups
-    return frame, notes, tuple(counted)
+        # follows the frame through selections and groups: each filter as a message quotes it (a list cut to a few
+        # values, several '!=' of one column as their one list), never every value (data.kept_rows.rows_described)
+        frame.attrs[KEPT_BY] = tuple(str(f) for f, _ in merged_exclusions(counted))
+    return frame, _filter_notes(counted, said), tuple(counted)
+
+
+def quoted_filter(f: RowFilter) -> str:
+    """A filter as a message or a note quotes it: 'district = north', a list of many values cut to a few and its
+    count (:meth:`RowFilter.__str__`), one value of a list as its clause and the list it is in: 'grade = 6' (of
+    'grade in 6, 7, 8, ... (40 values)')."""
+    within = getattr(f, "within", None)  # (a half of a halves file has none)
+    return f"'{printable(str(f))}'" + (f" (of '{printable(within)}')" if within else "")
+
+
+def _listed(texts: list[str]) -> str:
+    """'a', 'a and b', 'a, b and c'."""
+    return texts[0] if len(texts) == 1 else f"{', '.join(texts[:-1])} and {texts[-1]}"
+
+
+def _filter_notes(counted: list[RowFilter], said: list[tuple]) -> list[str]:
+    """The notes of the filters ``counted`` (as applied, in order; ``said``: each one's rows before and after it and
+    the words of what comparing found), one per filter, several '!=' filters on one column one note at the place of
+    the first of them, as the methods paragraph merges them (:func:`merged_exclusions`)."""
+    notes = []
+    for f, places in merged_exclusions(counted):
+        emptied = (f"left out {f.empty_words()} (an empty cell meets no comparison, '!=' included), and "
+                   if f.empty else "")
+        before, after = said[places[0]][0], said[places[-1]][1]
+        by_label = next((said[k][2] for k in places if said[k][2]), "")
+        read_as = next((said[k][4] for k in places if said[k][4]), "")
+        if len(places) == 1:
+            notes.append(f"row filter '{f}'{by_label} {emptied}kept {after} of {before} rows{said[places[0]][3]}{read_as}")
+            continue
+        left_out = sum(said[k][0] - said[k][1] for k in places)
+        kept = (f"kept {after} of {before} rows" if list(places) == list(range(places[0], places[-1] + 1)) else
+                f"left out {left_out} row{'s' if left_out != 1 else ''} in all")  # other filters between them
+        missing = [m.value for m, k in zip(f.members, places) if said[k][3]]
+        absent = ""
+        if len(missing) == 1:
+            absent = said[places[[m.value for m in f.members].index(missing[0])]][3]
+        elif missing:
+            absent = (f"; no row has {', '.join(repr(printable(_value_text(v))) for v in missing[:SHOWN_VALUES])}"
+                      + (f" and {len(missing) - SHOWN_VALUES} more of the values" if len(missing) > SHOWN_VALUES
+                         else "") + f" in '{printable(f.column)}'")
+        named = (f"row filters {_listed([quoted_filter(g) for g in f.members])}"  # few: each as written
+                 if len(places) <= SHOWN_VALUES else
+                 f"{len(places)} row filters '{printable(f.column)} != ...', read as one: '{f}'")
+        notes.append(f"{named}{by_label} {emptied}{kept}{absent}{read_as}")
+    return notes
 
 
 @dataclass(frozen=True)
@@ -366,15 +446,17 @@ def _compared_with_list(frame: pd.DataFrame, f: RowFilter, column: pd.Series, la
     found = pd.Series(False, index=column.index)
     members, by_label, absent, missing, read_as = [], "", [], [], ""
     for value in f.value:
-        compared = _compared(frame, replace(f, operator="=", value=value, members=()), column, labels, source)
+        one = "=" if f.operator == "in" else "!="
+        clause = replace(f, operator=one, value=value, members=(), text=_clause_text(f.column, one, value),
+                         within=str(f))  # the clause an error about this value quotes (_quoted)
+        compared = _compared(frame, replace(clause, operator="="), column, labels, source)
         found |= compared.keep
         by_label = by_label or compared.by_label
         read_as = read_as or compared.read_as
         if compared.absent:  # (a value no row has)
             absent.append(compared.absent)
             missing.append(value)
-        members.append(replace(f, operator="=" if f.operator == "in" else "!=", value=value, shared=compared.shared,
-                               other_case=compared.cased, label=compared.named, members=(), text=str(f)))
+        members.append(replace(clause, shared=compared.shared, other_case=compared.cased, label=compared.named))
     keep = found if f.operator == "in" else ~found & column.notna()
     said = ""
     if absent:
@@ -409,13 +491,13 @@ def _compared(frame: pd.DataFrame, f: RowFilter, column: pd.Series, labels, sour
     else:
         numbers_only = numeric.notna().sum() == column.notna().sum()
         if f.operator not in ("=", "!=") and numbers_only and not isinstance(f.value, float):
-            raise OptionError(f"row filter '{printable(f)}': '{printable(str(f.value))}' is not a number, and "
+            raise OptionError(f"row filter {quoted_filter(f)}: '{printable(str(f.value))}' is not a number, and "
                               f"{f.operator} compares numbers (write numbers with a decimal point; text is compared "
                               f"with = or !=)")
         if f.operator not in ("=", "!="):
             written = _written_date(column)
             if written is not None:
-                raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds dates written as text "
+                raise OptionError(f"row filter {quoted_filter(f)}: '{printable(f.column)}' holds dates written as text "
                                   f"in another form than YYYY-MM-DD (such as '{printable(written)}'), whose order "
                                   f"of day and month the file does not say, so they cannot be compared by order; "
                                   f"in a copy of the file write them as YYYY-MM-DD, which filters compare as dates")
@@ -426,9 +508,9 @@ def _compared(frame: pd.DataFrame, f: RowFilter, column: pd.Series, labels, sour
                 where = cell_words(frame, f.column, int(row_numbers(frame)[position]))
                 raise DataError(f"{source}, {where}: '{printable(str(value))}' in '{printable(f.column)}' is not "
                                 f"a date (a day that exists, written YYYY-MM-DD), and its other cells are "
-                                f"dates{more}, so row filter '{printable(f)}' cannot compare them by order; "
+                                f"dates{more}, so row filter {quoted_filter(f)} cannot compare them by order; "
                                 f"correct the cell, or leave it empty in a copy of the file")
-            raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' of {source} holds text"
+            raise OptionError(f"row filter {quoted_filter(f)}: '{printable(f.column)}' of {source} holds text"
                               f"{_first_text(column, numeric)}, which can only be compared with = or !=")
         values = column.map(lambda v: None if pd.isna(v) else _cell_label(v))
         target = label_text(f.value)
@@ -484,7 +566,7 @@ def _refuse_label_of_other_code(f: RowFilter, column: pd.Series, labels: dict, s
     else:
         write_label = (f"to compare with the label, write the code it labels: '{name} {f.operator} "
                        f"{label_text(code)}', if the codes run in the order of their labels")
-    raise OptionError(f"row filter '{printable(f)}': in {source}, '{name}' holds codes with value labels, and "
+    raise OptionError(f"row filter {quoted_filter(f)}: in {source}, '{name}' holds codes with value labels, and "
                       f"{shown} could mean {as_code} or {as_label}, which the groups and reports show; "
                       f"{write_label}" + (f"; {write_code}" if write_code else ""))
 
@@ -601,7 +683,7 @@ def _date_target(f: RowFilter) -> pd.Timestamp:
             return pd.Timestamp(text)
     except ValueError:
         pass
-    raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds dates, which are compared with a "
+    raise OptionError(f"row filter {quoted_filter(f)}: '{printable(f.column)}' holds dates, which are compared with a "
                       f"date written as YYYY-MM-DD (such as '{f.column} >= 2026-03-01')")
 
 

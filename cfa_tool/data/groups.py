@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import re
 from dataclasses import dataclass
 from enum import Enum
 from typing import TYPE_CHECKING
@@ -245,28 +244,14 @@ def usable_rows(values: np.ndarray, complete_only: bool) -> int:
     return int((~gaps.any(axis=1)).sum() if complete_only else (~gaps.all(axis=1)).sum())
 
 
-_PLAIN_COLUMN = re.compile(r'[^\s=!<>"\']+')
-
-
 def leaving_out(column: str, label: str) -> str | None:
     """The row filter (data.filters) that leaves out the rows of group ``label`` of ``column``:
     'gender != "another / prefers to describe"', 'region != north' (the label as the groups are named: a labelled
     column's filter compares with its labels, as a filter on its codes would with the codes); None when the names'
     quotes leave no way to write it, or the column is none of the file's (a name that cannot be printed)."""
-    if printable(column) != column or printable(label) != label:
-        return None
-    if _PLAIN_COLUMN.fullmatch(column):
-        name = column
-    elif '"' not in column:
-        name = f'"{column}"'
-    else:
-        return None
-    if _PLAIN_COLUMN.fullmatch(label):
-        return f"{name} != {label}"
-    for quote in ('"', "'"):
-        if quote not in label:
-            return f"{name} != {quote}{label}{quote}"
-    return None
+    from cfa_tool.data.filter_text import filter_text
+
+    return filter_text(column, "!=", label)  # the one writer of a filter's text, which parses back to it
 
 
 def small_group_words(small: tuple[SmallGroup, ...], column: str, kept: int, named: bool = True) -> tuple[str, str]:

@@ -9,6 +9,7 @@ from collections.abc import Mapping
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.filter_text import filter_text
 from cfa_tool.errors import clipped, printable
 from cfa_tool.note_parts import Command, Note, RowId, Text
 from cfa_tool.options import Option
@@ -186,5 +187,5 @@ def unfinished_rows_note(frame: pd.DataFrame, source: str) -> Note | None:
     unfinished = int((~read.astype(bool)).sum())
     return Note((f"{source}: the column '{printable(str(column))}' marks {unfinished} of the {len(frame)} rows as not "
                  f"finished: they are analysed with the answers they gave; to leave them out, ",
-                 Command(Option.KEEP.given(f"{column} = {finished}"),
+                 Command(Option.KEEP.given(filter_text(str(column), "=", finished) or f"{column} = {finished}"),
                          f"keep only the rows where {printable(str(column))} = {finished}")))

@@ -50,8 +50,10 @@ def check_columns(spec: Spec, columns: list[str], data_source: str, sheet_hint: 
         if name not in available:
             loc = spec.first_mention(name)
             guess = close_names(name, columns)
+            # the sheet, the renames and the row of names read after a guess too: a guess among a row of answers
+            # read as names ('1' for 'q1') is no help without the row that holds the names (s20)
             hint = (f"; did you mean '{guess[0]}'{character_names(guess[0], name)}?{_spaces_only(name, guess[0])}"
-                    if guess else sheet_hint)
+                    if guess else "") + sheet_hint
             raise ModelError(
                 f"unknown variable '{name}' (not a column of {data_name}{hint})",
                 loc,

@@ -157,13 +157,25 @@ def _left_out(column: str, code: float, filters: Collection) -> bool:
                for f in filters)
 
 
+def beyond_as_a_code(value: float, low: float, high: float) -> bool:
+    """Whether ``value`` lies at least the range of the other answers (``low`` to ``high``) beyond them, below the
+    lowest or above the highest, as a code of no answer does (-99 beside 1 to 5; 9 beside 1 to 4), while a value
+    nearer is the column's own (a grade of 8 or 9 beside grades of 7 to 9); when the others are all one value, at
+    least 1 beyond it.  The one rule of 'this value lies where a missing-value code lies': the screening of item
+    columns (data.odd_values._peeled, for values that are data.odd_values.code_like) and the codes given with
+    --missing-codes that other columns keep (:func:`kept_codes_note`).  A rule of this project (common practice of data
+    screening), not a published test."""
+    beyond = low - value if value < low else value - high if value > high else 0.0
+    return beyond > 0 and beyond >= (high - low if high > low else 1.0)
+
+
 def _far_outside(code: float, others) -> bool:
-    """Whether ``code`` lies farther from the column's other values than they spread (-99 beside ages of 18 to 70),
-    as a code of no answer does; a grade of 8 or 9 beside 7 is the column's own value (new-user trial s18)."""
+    """Whether ``code`` lies where a code of no answer lies beside the column's other values (-99 beside ages of 18
+    to 70), by the one rule the screening of item columns follows (:func:`beyond_as_a_code`); a grade of 8
+    or 9 beside 7 to 9 is the column's own value (new-user trial s18)."""
     if not len(others):
         return False
-    low, high = float(others.min()), float(others.max())
-    return min(abs(code - low), abs(code - high)) > max(high - low, 1.0) and not low <= code <= high
+    return beyond_as_a_code(float(code), float(others.min()), float(others.max()))
 
 
 def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int, bool]], filters: Collection = ()) -> Note:
@@ -175,9 +187,11 @@ def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int, bool]]
                       for column, code, cells, _ in kept[:NAMED_COLUMNS])
     more = f" and {len(kept) - NAMED_COLUMNS} more" if len(kept) > NAMED_COLUMNS else ""
     open_ = [(column, code) for column, code, _, far in kept if far and not _left_out(column, code, filters)]
-    kept_rows = f"{printable(str(open_[0][0]))} != {user_number(open_[0][1])}" if open_ else ""
+    from cfa_tool.data.filter_text import filter_text
+
+    kept_rows = (filter_text(str(open_[0][0]), "!=", float(open_[0][1])) or "") if open_ else ""  # the one writer
     advice = ("; to leave those rows out, ", Command(f"give a row filter such as {Option.KEEP.given(kept_rows)}",
-                                                      f"keep only the rows where {kept_rows}")) if open_ else ()
+                                                      f"keep only the rows where {kept_rows}")) if kept_rows else ()
     return Note((f"{base_name(source)}: ", Command(f"{Option.MISSING_CODES} applies", "the codes of no answer apply"),
                  f" to the model's items; other columns keep such a value as it is ({shown}{more})") + advice)
 

@@ -49,6 +49,7 @@ import pandas as pd
 
 from cfa_tool.numbers import user_number
 from cfa_tool.data.descriptives import answer_extremes
+from cfa_tool.data.missing_codes import beyond_as_a_code
 from cfa_tool.data.kept_rows import RowNaming, row_naming, row_words, rows_listed, text_lines
 from cfa_tool.data.moments import column_dtypes, item_values, stored_column
 from cfa_tool.errors import printable
@@ -150,8 +151,10 @@ class OddValues:
         cell that names it (:func:`row_naming_cell`), which keeps every other row, when it has one."""
         naming = row_naming_cell(frame, self, self.columns)
         holder = self.naming.holder
-        keep = (f" ({Option.KEEP.given(f'{printable(naming[0])} != {printable(naming[1])}')})" if naming
-                else f" ({Option.KEEP})")
+        from cfa_tool.data.filter_text import filter_text
+
+        written = filter_text(naming[0], "!=", naming[1]) if naming else None  # parses back to that cell's rows
+        keep = f" ({Option.KEEP.given(written)})" if written else f" ({Option.KEEP})"
         return (f"{self._row_holds(base_name(source))}: a spreadsheet's totals row, not anyone's answers (analysed "
                 f"as answers, that one row would decide the results). What to try: delete "
                 f"{self.naming.one_row(self.rows[0])} from the {holder}, or leave it out with a row filter{keep}.")
@@ -774,7 +777,7 @@ def _peeled(x: np.ndarray) -> list[tuple[float, bool, float]]:
                 break
             beyond = v - rest[-1] if end == 1 else rest[0] - v
             code = code_like(v)
-            if not (beyond >= span if code else beyond > FAR_RANGES * span):
+            if not (beyond_as_a_code(float(v), float(rest[0]), float(rest[-1])) if code else beyond > FAR_RANGES * span):
                 break
             flagged.append((float(v), code, float(beyond / span)))
             left = n_rest

@@ -195,9 +195,11 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         loaded = _numbers_from_text(loaded, text_columns)
     loaded = with_no_answers_read(loaded, missing_codes, path, text_columns, items, listed, filters)
     if names_row is not None:  # (a row of a sheet, or of a text file as a spreadsheet shows it)
-        loaded = replace(loaded, names_row_hint=f"; its column names were read from row {names_row}, as "
-                                                f"{names_option.given(names_row)} asks: give the row that holds the "
-                                                f"model's names, or leave the option out if the first row does")
+        found = next((c for c in loaded.cautions if isinstance(c, AnswersAsNames)), None)
+        loaded = replace(loaded, names_row_hint=found.hint() if found is not None else
+                         f"; its column names were read from row {names_row}, as {names_option.given(names_row)} "
+                         f"asks: give the row that holds the model's names, or leave the option out if the first "
+                         f"row does")
     return loaded
 
 
@@ -418,6 +420,12 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
         if not any(v not in (None, "") for v in rows[first]):
             raise DataError(f"{where}: row {names_row}, named by {names_option}, is empty")
         notes.append(_names_row_note(where, names_row, names_option))
+        above = next((k for k in range(first - 1, -1, -1) if any(v not in (None, "") for v in rows[k])), None)
+        found = None if above is None else _answers_as_names(list(rows[above]), list(rows[first]), names_row,
+                                                             above + 1, where, names_option)
+        if found is not None and hidden_out is not None:  # named first, with the sheet's other cautions
+            hidden_out.append(found)
+        named_by_row = found.hint() if found is not None else ""
     rows = rows[first:]  # empty rows above the header
     title = None if names_row is not None else _title_above_header(rows)
     if title is not None:
@@ -442,7 +450,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     while header and header[-1] in (None, ""):
         header.pop()
     row_names = len(header) > 1 and not header[0]
-    named_by = _named_by(names_row, names_option)
+    named_by = _named_by(names_row, names_option) + (named_by_row if names_row is not None else "")
     for position, name in enumerate(header, start=1 + skipped):
         if not name and not (position == 1 + skipped and row_names):
             below = None if first_data_row is not None else _names_row_below(
@@ -648,6 +656,64 @@ class SkippedAnswers:
                     f"{self.option.given(self.start)}; if those rows are rightly left out, nothing.")
         return (f"Give the row where the answers start with {self.option}; if those rows are rightly left "
                 f"out, nothing.")
+
+
+@dataclass(frozen=True)
+class AnswersAsNames:
+    """The row an option named as the row of column names (--names-row) that looks like a row of answers, below a row
+    that holds a name in every column it fills (the option set one row too low: the names are on row 3, the option
+    says 4): read as names, that row of answers leaves the analysis and the columns carry its values as names, so it
+    is named first, with the row that likely holds the names (s20).  Not refused: a row of names may be numbers (item
+    numbers under question texts)."""
+
+    where: str  # the file (and sheet) as messages name it
+    names_row: int
+    likely: int  # the row above that holds text in every column the named row fills
+    option: Option
+    numbers: int  # the named row's cells that are numbers
+    filled: int  # and its cells with a value
+    shown: tuple[str, ...]  # the first few names of the likely row
+
+    def caution(self, source: str) -> Note:
+        """The option in a note_parts.Command: a manuscript names no option."""
+        listed = ", ".join(f"'{clipped(n, 30)}'" for n in self.shown[:4]) + (", ..." if len(self.shown) > 4 else "")
+        return Note((f"{base_name(self.where)}: row {self.names_row}, read as the column names",
+                     Command(f" as {self.option.given(self.names_row)} asks"),
+                     f", holds numbers in {self.numbers} of its {self.filled} cells, as a row of answers does, and row "
+                     f"{self.likely} above it holds a name in every one of those columns ({listed}): if the names are "
+                     f"there, row {self.names_row} is a respondent's answers, left out of the analysis, and its values "
+                     f"name the columns."))
+
+    def advice(self) -> Note:
+        return Note((f"if the column names are in row {self.likely}, read them from it",
+                     Command(f" ({self.option.given(self.likely)})"),
+                     f"; if row {self.names_row} does hold them, nothing needs to change."))
+
+    def hint(self) -> str:
+        """Words after an error about the header read from the named row: the row that likely holds the names."""
+        return (f"; row {self.names_row} looks like a row of answers ({self.numbers} of its {self.filled} cells are "
+                f"numbers), and row {self.likely} above it holds a name in every column: read the names from it with "
+                f"{self.option.given(self.likely)}")
+
+
+def _answers_as_names(above: list, chosen, names_row: int, likely: int, where: str,
+                      option: Option) -> AnswersAsNames | None:
+    """An :class:`AnswersAsNames` when the row ``chosen`` (the cells of the row ``names_row`` an option named as the
+    column names) looks like a row of answers, at least two of its filled cells and half of them numbers, while the
+    row ``above`` it (the nearest row with values above it, row ``likely``) holds text that is not a number in every
+    column ``chosen`` fills; else None.  A rule of this project, not a published one."""
+    def is_number(v) -> bool:
+        return (isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool)) or (
+            isinstance(v, str) and number(v.strip()) is not None)
+
+    filled = [k for k, v in enumerate(chosen) if v not in (None, "") and not (isinstance(v, str) and not v.strip())]
+    numbers = sum(is_number(chosen[k]) for k in filled)
+    if numbers < 2 or 2 * numbers < len(filled) or not above:
+        return None
+    names = [above[k] if k < len(above) else None for k in filled]
+    if not all(isinstance(v, str) and v.strip() and not is_number(v) for v in names):
+        return None
+    return AnswersAsNames(where, names_row, likely, option, numbers, len(filled), tuple(v.strip() for v in names))
 
 
 def _skipped_answers(frame: pd.DataFrame, between: list[tuple[int, list]], items, text_columns, decimal_comma: bool,
@@ -1434,6 +1500,16 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
             raise DataError(f"{path}: {rows.words(start_row)}, named by {names_option}, is empty")
         if notes is not None:
             notes.append(_names_row_note(str(path), start_row, names_option))
+        above = None
+        for line, cells in records.read():  # the nearest record with values above the named one
+            if line >= start:
+                break
+            above = (line, cells)
+        found = None if above is None else _answers_as_names(above[1], first[1], start_row, rows.row(above[0]),
+                                                             str(path), names_option)
+        if found is not None and cautions is not None:
+            cautions.append(found)
+        named_by_row = found.hint() if found is not None else ""
     header_line, header = first
     header_row = rows.row(header_line)
     if header_out is not None:
@@ -1450,7 +1526,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
         header.pop()
         trailing += 1
     has_row_names = len(header) > 1 and not header[0]
-    named_by = _named_by(names_row, names_option)
+    named_by = _named_by(names_row, names_option) + (named_by_row if names_row is not None else "")
     for position, name in enumerate(header, start=1):
         if not name and not (position == 1 and has_row_names):
             below = _text_names_row(records, header_line, rows, items) if not data_line else None

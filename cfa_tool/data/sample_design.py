@@ -15,6 +15,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.numbers import count_text
+from cfa_tool.data.filter_text import filter_column
 from cfa_tool.data.kept_rows import row_of
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.options import Option
@@ -498,7 +499,12 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
                                                          lambda: answering_nothing(frame, model_variables))
         if len(w) != len(frame):
             raise ValueError("the weights given are not those of the frame's rows")
-    frame, rows, w, silent_notes = _without_silent_rows(frame, rows, w, columns, model_variables)
+    # the labels of the cluster, strata and group columns, each read once for every check below (rows left out
+    # below leave them too)
+    labels = {name: _labels(frame[name]) for name in dict.fromkeys((columns.cluster, columns.strata, group))
+              if name is not None}
+    frame, rows, w, silent_notes, kept = _without_silent_rows(frame, rows, w, columns, model_variables, labels)
+    labels = {name: cells[kept] for name, cells in labels.items()}
     notes += silent_notes
     if w is not None:
         zero = w == 0
@@ -508,6 +514,7 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             before = frame
             frame = frame.loc[~zero]
             count = int(zero.sum())
+            labels = {name: cells[~zero] for name, cells in labels.items()}
             notes.append(f"{count} {'row has' if count == 1 else 'rows have'} weight 0 in '{columns.weights}' and "
                          f"{'was' if count == 1 else 'were'} left out of the estimation")
             rows = rows[~zero]
@@ -519,7 +526,7 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             # a group weighted out is a caution of the fit, first (pipeline.inputs.odd_value_problems)
     for what, name in (("cluster", columns.cluster), ("stratum", columns.strata)):
         if name is not None:
-            absent = _labels(frame[name]).isna().to_numpy()
+            absent = labels[name].isna().to_numpy()
             if absent.any():
                 first = int(np.argmax(absent))
                 cell = frame[name].iloc[first]
@@ -528,23 +535,23 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
                                 f"given{looks}; every row needs one (a row filter, {Option.KEEP}, can leave such rows "
                                 f"out)")
     if columns.cluster is not None and columns.strata is not None:
-        pairs = pd.DataFrame({columns.cluster: _labels(frame[columns.cluster]),
-                              columns.strata: _labels(frame[columns.strata])}).drop_duplicates()
-        shared = pairs[columns.cluster].duplicated()
+        pairs = pd.DataFrame({"cluster": labels[columns.cluster].to_numpy(),
+                              "stratum": labels[columns.strata].to_numpy()}).drop_duplicates()
+        shared = pairs["cluster"].duplicated()
         if shared.any():
-            cluster = pairs[columns.cluster][shared.to_numpy()].iloc[0]
+            cluster = pairs["cluster"][shared.to_numpy()].iloc[0]
             raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' lies in "
                             f"more than one stratum of '{printable(columns.strata)}'; clusters must be nested in strata")
     if columns.cluster is not None:
-        names = pd.unique(_labels(frame[columns.cluster]))
+        names = pd.unique(labels[columns.cluster])
         if len(names) < 2:
             raise DataError(f"{source}: column '{printable(columns.cluster)}' names a single cluster "
                             f"('{printable(names[0])}'), and cluster-robust standard errors need at least two (and "
                             f"about 30 or more to be trusted); remove the cluster column or give the right one")
-    if columns.cluster is not None and group is not None and shared_cluster(frame, columns, group) is None:
+    if columns.cluster is not None and group is not None and shared_cluster(frame, columns, group, labels) is None:
         # the groups are independent samples, each with its own clusters: each group needs two of them
-        labelled = frame.loc[_labels(frame[group]).notna().to_numpy()]  # rows with a group (a blank label is none)
-        per_group = _labels(labelled[columns.cluster]).groupby(_labels(labelled[group]).to_numpy()).nunique()
+        grouped = labels[group].notna().to_numpy()  # rows with a group (a blank label is none)
+        per_group = labels[columns.cluster][grouped].groupby(labels[group][grouped].to_numpy()).nunique()
         single = per_group[per_group < 2]
         if len(single):
             raise DataError(f"{source}: group '{printable(single.index[0])}' of '{printable(group)}' has a single "
@@ -560,15 +567,19 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
     return frame, notes
 
 
-def shared_cluster(frame: pd.DataFrame, columns: DesignColumns, group: str | None):
-    """The first cluster with rows in more than one group (None when every cluster lies within one group)."""
+def shared_cluster(frame: pd.DataFrame, columns: DesignColumns, group: str | None, labels: dict | None = None):
+    """The first cluster with rows in more than one group (None when every cluster lies within one group).
+    ``labels``: the cluster and group columns' labels of ``frame``'s rows (:func:`_labels`), when read already."""
     if columns.cluster is None or group is None:
         return None
-    labelled = frame.loc[_labels(frame[group]).notna().to_numpy()]  # rows with a group (a blank label is none)
-    pairs = pd.DataFrame({columns.cluster: _labels(labelled[columns.cluster]),
-                          group: _labels(labelled[group])}).drop_duplicates()
-    shared = pairs[columns.cluster].duplicated()
-    return pairs[columns.cluster][shared.to_numpy()].iloc[0] if shared.any() else None
+    labels = labels or {}
+    clusters = labels[columns.cluster] if columns.cluster in labels else _labels(frame[columns.cluster])
+    groups = labels[group] if group in labels else _labels(frame[group])
+    grouped = groups.notna().to_numpy()  # rows with a group (a blank label is none)
+    pairs = pd.DataFrame({"cluster": clusters[grouped].to_numpy(), "group": groups[grouped].to_numpy()}
+                         ).drop_duplicates()
+    shared = pairs["cluster"].duplicated()
+    return pairs["cluster"][shared.to_numpy()].iloc[0] if shared.any() else None
 
 
 def refuse_shared_clusters(frame: pd.DataFrame, columns: DesignColumns | None, group: str | None, source: str,
@@ -601,7 +612,7 @@ def refuse_shared_clusters(frame: pd.DataFrame, columns: DesignColumns | None, g
         raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' has rows in "
                         f"more than one group of '{printable(group)}' (the groups share clusters: domains of one "
                         f"sample), and {estimation} does not yet take clusters shared by groups into account: {without}, "
-                        f"or fit each group alone with its clusters ({Option.KEEP.given(f'{printable(group)} = ...')}), "
+                        f"or fit each group alone with its clusters ({Option.KEEP.given(f'{printable(filter_column(group) or group)} = ...')}), "
                         f"which compares no groups{listwise}")
 
 
@@ -667,31 +678,33 @@ def _data_rows(frame: pd.DataFrame) -> np.ndarray:
 
 
 def _without_silent_rows(frame: pd.DataFrame, rows: np.ndarray, w: np.ndarray | None, columns: DesignColumns,
-                         model_variables: tuple[str, ...]) -> tuple[pd.DataFrame, np.ndarray, np.ndarray | None, list[str]]:
+                         model_variables: tuple[str, ...], labels: dict
+                         ) -> tuple[pd.DataFrame, np.ndarray, np.ndarray | None, list[str], np.ndarray]:
     """The rows that answer no model variable and lack a weight, cluster or stratum (:func:`answering_nothing`: a
     notes line under the data) left out, with a note naming them; a row that answers something and lacks one stays,
-    for the checks' error.  (frame, rows, weights, notes), unchanged when there is none."""
+    for the checks' error.  ``labels``: the cluster and strata columns' labels (:func:`_labels`).  (frame, rows,
+    weights, notes, the rows kept as a mask), unchanged when there is none."""
     lacking = np.zeros(len(frame), dtype=bool) if w is None else np.isnan(w)  # only silent rows get no weight
     missing_parts = ["weight"] if lacking.any() else []
     silent = None
     for what, name in (("cluster", columns.cluster), ("stratum", columns.strata)):
         if name is None:
             continue
-        absent = _labels(frame[name]).isna().to_numpy()
+        absent = labels[name].isna().to_numpy()
         if absent.any():
             silent = answering_nothing(frame, model_variables) if silent is None else silent
             if (absent & silent).any():
                 lacking |= absent & silent
                 missing_parts.append(what)
     if not lacking.any():
-        return frame, rows, w, []
+        return frame, rows, w, [], np.ones(len(frame), dtype=bool)
     count = int(lacking.sum())
     named = (f"row {rows[lacking][0]}" if count == 1 else f"{count} rows (the first row {rows[lacking][0]})")
     note = (f"{named} {'answers' if count == 1 else 'answer'} no model variable and {'has' if count == 1 else 'have'} "
             f"no {' or '.join(missing_parts)}, so {'it was' if count == 1 else 'they were'} left out (a notes line "
             f"under the data, perhaps)")
     keep = ~lacking
-    return frame.loc[keep], rows[keep], (None if w is None else w[keep]), [note]
+    return frame.loc[keep], rows[keep], (None if w is None else w[keep]), [note], keep
 
 
 def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.ndarray,

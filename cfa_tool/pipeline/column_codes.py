@@ -15,6 +15,7 @@ import pandas as pd
 
 from cfa_tool.numbers import user_number
 from cfa_tool.assessment.admissibility import Problem, ProblemKind
+from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.kept_rows import rows_listed, row_naming
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.odd_values import OddKind, odd_values
@@ -94,7 +95,7 @@ def _caution(loaded: LoadedData, column: str, said: list[str], value: float, mas
     did = "; ".join(_what_it_did(s, count) for s in said)
     text = (Note((f"The {kinds} column '{printable(column)}' of {base_name(loaded.source)} holds {shown} in {count} "
                   f"of the {n} rows analysed (",)) + rows + "), " + what + f": {did}. A missing-value code kept as a value?")
-    keep = f"{printable(column)} != {shown}"
+    keep = filter_text(column, "!=", value) or f"{printable(column)} != {shown}"  # one writer: data.filter_text
     advice = Note(("if it means no answer there, leave those rows out with a row filter",
                    Command(f" ({Option.KEEP.given(keep)})", f" keeping the rows where {keep}"),
                    "; if it is a real value, nothing needs doing."))

@@ -20,6 +20,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
 
 from cfa_tool.numbers import user_number
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
+from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
 from cfa_tool.data.kept_rows import (ROW_NAMES_COLUMN, RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
                                      unfinished_rows_note)
@@ -567,9 +568,10 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                                                                        fit_options.missing_helpers),
                                                  keeps_gaps=keeps_rows_with_gaps(fit_options.missing))
     frame, source = loaded.frame, loaded.source
+    # the id names rows in every fit of rows: the caution about copies of earlier rows (any model, any items), the
+    # one about rows with one answer throughout, and the case tables of a fit with its diagnostics (one rule for
+    # every command that reads rows: commands.options.add_id_option)
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
-    if id_column is not None:
-        _id_can_apply(spec, ordinal, fit_options)
     if fit_options.missing_helpers:
         check_helper_columns(fit_options.missing_helpers, frame, source, spec, group, id_column, design)
         loaded = with_helper_codes(loaded, helpers)
@@ -659,24 +661,6 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
         return result
     return replace(result, data=replace(result.data, missing_codes=codes, no_answer_words=words, non_answers=marked,
                                         odd_values=odd, codes_found=tuple(c for c in codes if c in loaded.codes_found)))
-
-
-def _id_can_apply(spec: Spec, ordinal, fit_options: FitOptions) -> None:
-    """An id column names rows in the table of rows that contribute most to the chi-square (fits of continuous
-    items with the diagnostics) and in the caution about rows with one answer throughout (models with reverse-keyed
-    items): an :class:`OptionError` when the fit has neither, since the option could not apply."""
-    if spec.reverse_keyed:
-        return
-    if ordinal_items_of(spec, ordinal):
-        why = "a fit of ordinal items does not have"
-    elif not fit_options.diagnostics:
-        why = "a fit without its diagnostics (diagnostics=False) does not have"
-    else:
-        return
-    raise OptionError(f"the id column ({Option.ID_COLUMN}) cannot apply: it names rows in the table of rows that "
-                      f"contribute most to the chi-square, which {why}, and in the caution about rows that gave one "
-                      f"answer to every item, which needs reverse-worded items (a 'reversed' statement); leave it out "
-                      f"(scores take {Option.ID_COLUMN} to name each scored row)")
 
 
 def with_design_weights(loaded: LoadedData, design: DesignColumns | None, spec: Spec, group: str | None) -> LoadedData:
@@ -954,7 +938,8 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     example = ""
     if found.numbering and set(found.copies) == set(row_numbers(frame)[len(frame) - n:].tolist()):  # a block at the end
         first = frame[found.numbering].iloc[len(frame) - n]
-        example = f" (here {Option.KEEP.given(f'{printable(found.numbering)} < {label_text(first)}')})"
+        written = filter_text(found.numbering, "<", first if isinstance(first, (int, float)) else label_text(first))
+        example = f" (here {Option.KEEP.given(written)})" if written else ""  # the one writer (data.filter_text)
     return (Problem(ProblemKind.COPIED_ROWS, (), float(n),
                     f"{n} of the {len(frame)} rows analysed {'is' if n == 1 else 'are'} identical in every column"
                     f"{numbering} to an earlier row: " + pairs + f"{more}. If they are copies (a file appended to itself, "

@@ -5,6 +5,9 @@ their answers to a model item, and a filter whose value label several codes of t
 from __future__ import annotations
 
 from cfa_tool.assessment.admissibility import Problem, ProblemKind
+from cfa_tool.data.filter_text import filter_text
+from cfa_tool.data.filters import merged_exclusions, quoted_filter
+from cfa_tool.numbers import number
 from cfa_tool.data.readers import LoadedData
 from cfa_tool.errors import printable
 from cfa_tool.language.spec import Spec
@@ -19,9 +22,11 @@ def row_filter_problems(loaded: LoadedData, spec: Spec | None = None,
     for one whose label several codes carry.  ``where``: which of several files filtered alike the cautions are about
     (' on the calibration data (spring.csv)'; '' for one file)."""
     analysed = spec.observed_names if spec is not None else (items or ())
-    on_items = selections_on_items(loaded.row_filters, analysed)
+    # several '!=' of one column as their one list, as the notes and the methods paragraph say them
+    filters = [f for f, _ in merged_exclusions(list(loaded.row_filters))]
+    on_items = selections_on_items(filters, analysed)
     found: list[Problem] = []
-    for f in loaded.row_filters:
+    for f in filters:
         if f in on_items:
             found.append(selected_on_item(f, spec, where))
         for one in f.members or (f,):  # a list's values each as its own comparison (data.filters.SET_OPERATORS)
@@ -53,7 +58,7 @@ def selected_on_item(f, spec: Spec | None, where: str = "") -> Problem:
             else f"the loadings of '{printable(item)}'")
     return Problem(
         ProblemKind.SELECTED_ON_ITEM, (), float(f.dropped),
-        f"Row filter '{printable(str(f))}'{where} selects rows by their answers to '{printable(item)}', "
+        f"Row filter {quoted_filter(f)}{where} selects rows by their answers to '{printable(item)}', "
         f"{f'an item of {of}' if factors else 'one of the items analysed'}: it "
         f"left out {f.dropped} row{'s' if f.dropped != 1 else ''} with an answer to it. Among the rows kept the "
         f"item's answers spread differently (a cut at one end narrows them), which changes its correlations with the "
@@ -76,12 +81,14 @@ def label_of_several_codes(f, where: str = "") -> Problem:
     did = "kept" if f.operator == "=" else "left out"
     column = printable(f.column)
     first = f.shared[0][0]
+    by_code = filter_text(f.column, f.operator, number(first) if number(first) is not None else first) or \
+        f"{column} {f.operator} {first}"  # the one writer of a filter (data.filter_text): a code, compared as one
     both = "both" if len(f.shared) == 2 else "all"
     return Problem(
         ProblemKind.FILTER_LABEL_OF_SEVERAL_CODES, (), float(len(f.shared)),
-        f"Row filter '{printable(str(f))}'{where} compares the value labels of '{column}', and codes {listed} {both} carry "
+        f"Row filter {quoted_filter(f)}{where} compares the value labels of '{column}', and codes {listed} {both} carry "
         f"the label '{printable(str(f.value))}': the filter {did} the rows of every one of them.",
-        f"if the codes are different categories, filter by a code ({Option.KEEP.given(f'{column} {f.operator} {first}')}"
+        f"if the codes are different categories, filter by a code ({Option.KEEP.given(by_code)}"
         f" compares the codes themselves) or give the codes different value labels in the data file; if they are one "
         f"category, nothing needs changing.")
 
@@ -98,7 +105,7 @@ def labels_by_case(f, where: str = "") -> Problem:
     did = f"left {them} out" if f.operator == "=" else f"kept {them}"
     return Problem(
         ProblemKind.FILTER_LABELS_BY_CASE, (), float(sum(n for _, n in f.other_case)),
-        f"Row filter '{printable(str(f))}'{where} matches text exactly, upper and lower case included, and '{column}' also "
+        f"Row filter {quoted_filter(f)}{where} matches text exactly, upper and lower case included, and '{column}' also "
         f"holds {listed}, which differ{'s' if len(f.other_case) == 1 else ''} from '{printable(str(f.value))}' only in "
         f"case: the filter {did}.",
         f"if they are one value, recode '{column}' in a copy of the file so that they are written alike; if they are "

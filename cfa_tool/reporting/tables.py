@@ -1552,9 +1552,9 @@ def selection_phrase(data) -> str:
     """Which row filters chose the rows, and how many rows the file held ('' without filters)."""
     if not data.row_filters:
         return ""
-    which = "filter" if len(data.row_filters) == 1 else "filters"
-    return (f"kept by the row {which} {', '.join(repr(str(f)) for f in data.row_filters)} ({data.rows_in_file} rows in "
-            f"the file)")
+    from cfa_tool.data.filters import kept_by_words
+
+    return f"kept by {kept_by_words(data.row_filters)} ({data.rows_in_file} rows in the file)"
 
 
 def pair_rows_phrase(data) -> str:

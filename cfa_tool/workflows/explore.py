@@ -442,12 +442,88 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float
     found = [f[0] for f in groupings] + [f[0] for f in off_scale]
     if found:
         items = [c for c in columns if c not in found] + [c for c in others if c not in found]
-        answered = frame if not codes else frame[items].apply(pd.to_numeric, errors="coerce").mask(
-            lambda cells: cells.isin(codes)).join(frame[found])  # the items' codes of no answer are no answers
+        # the items' codes of no answer are no answers: those given, and the values set aside from their scales
+        answered = frame if not codes and not stray else frame[items].apply(pd.to_numeric, errors="coerce").apply(
+            lambda cells: cells.mask(cells.isin(tuple(codes) + stray.get(cells.name, ())))).join(frame[found])
         related = dict(zip(found, _largest_correlations(answered, found, items)))
         groupings = [f for f in groupings if not related[f[0]] >= RELATED_TO_THE_ITEMS]
         off_scale = [f for f in off_scale if not related[f[0]] >= RELATED_TO_THE_ITEMS]
     return UnlikeTheItems(tuple(groupings), tuple(off_scale), (low, high))
+
+
+#: a column's answer scale read with room for codes of no answer that the screening of odd values leaves alone
+#: (data.odd_values allows at most 2% of the answers outside a scale): the longest run of consecutive whole values
+#: holding at least this share of the column's answers, its other values at least :data:`SCALE_GAP` beyond the run's
+#: ends (8 'don't know' and 9 'refused' in 5% of the cells each beside answers 1 to 5).  A rule of thumb of this
+#: project, not a published one: it decides only which scale most columns share (so that a grade of 7 to 10 is not
+#: taken for an item on a scale of 1 to 9) and which values the caution of :func:`codes_beyond_the_scale` names
+SCALE_SHARE = 0.8
+#: the least distance of a value set aside from the run's end: 6 beside 1 to 5 may be the scale's own top answer
+SCALE_GAP = 2.0
+
+
+def beyond_the_run(x: np.ndarray) -> tuple[float, ...]:
+    """The values of one column (numbers, gaps aside) set aside from its answer scale by :data:`SCALE_SHARE` and
+    :data:`SCALE_GAP`: () when its values fill no such run (a measure of many values, a scale used in full)."""
+    x = x[np.isfinite(x)]
+    if not len(x):
+        return ()
+    values, counts = np.unique(x, return_counts=True)
+    whole = values == np.round(values)
+    from cfa_tool.data.odd_values import MAX_SCALE_POINTS
+
+    best = None  # (answers, first, last) of the run of consecutive whole values holding the most answers
+    start = 0
+    for k in range(1, len(values) + 1):
+        if k == len(values) or not (whole[k] and whole[k - 1] and values[k] - values[k - 1] == 1):
+            if whole[start] and 2 <= k - start <= MAX_SCALE_POINTS:
+                run = (int(counts[start:k].sum()), start, k - 1)
+                best = run if best is None or run[0] > best[0] else best
+            start = k
+    if best is None or best[0] < SCALE_SHARE * len(x) or best[0] == len(x):
+        return ()
+    low, high = values[best[1]], values[best[2]]
+    outside = [v for v in values if v < low or v > high]
+    if any((low - v if v < low else v - high) < SCALE_GAP for v in outside):
+        return ()  # a value next to the run: a scale's thinning tail, not codes
+    return tuple(float(v) for v in outside)
+
+
+def codes_beyond_the_scale(screened, names: tuple[str, ...]) -> tuple:
+    """A caution (assessment.admissibility.Problem, first in every view) when values set aside from the answer scale
+    of at least two of the items ``names`` (:func:`beyond_the_run`: 8 and 9 beyond answers 1 to 5, in 5% of the
+    cells) are explored as answers, the screening of odd values (``screened.odd_values``, which allows at most 2%)
+    having named none of them: codes of no answer, likely, which the correlations then read as the scale's highest
+    answers; with the option that reads them as no answer.  () otherwise."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    frame = screened.frame
+    named = {(c, v) for o in screened.odd_values for c, v in zip(o.columns, o.values)}
+    found: dict[float, list[str]] = {}
+    cells = 0
+    answered = 0
+    for name in names:
+        x = pd.to_numeric(frame[name], errors="coerce").to_numpy(dtype=float)
+        beyond = [v for v in beyond_the_run(x) if (name, v) not in named]
+        for v in beyond:
+            found.setdefault(v, []).append(name)
+        cells += int(np.isin(x, beyond).sum())
+        answered += int(np.isfinite(x).sum()) if beyond else 0
+    items = sorted({c for cs in found.values() for c in cs}, key=names.index)
+    if len(items) < 2:
+        return ()
+    values = sorted(found)
+    listed = " and ".join(f"{v:g}" for v in values) if len(values) <= 2 else (
+        ", ".join(f"{v:g}" for v in values[:-1]) + f" and {values[-1]:g}")
+    shown = ", ".join(printable(c) for c in items[:5]) + (f" and {len(items) - 5} more" if len(items) > 5 else "")
+    return (Problem(ProblemKind.VALUES_NOT_ANSWERS, (), float(cells),
+                    f"{listed} lie{'s' if len(values) == 1 else ''} apart from the run of answers in {len(items)} of "
+                    f"the {len(names)} items ({shown}; {cells} of their {answered} answers, "
+                    f"{100 * cells / max(answered, 1):.1f}%), as codes of no answer do ('don't know', 'refused'): they "
+                    f"are explored as answers, values beyond the scale's ends.",
+                    Note(("if they mean no answer, read them so with ",
+                          Command(Option.MISSING_CODES.given(",".join(f"{v:g}" for v in values)), "a list of codes"),
+                          "; if they are answers, nothing needs to change."))),)
 
 
 def _stray_values(frame: pd.DataFrame, columns: list[str], codes: tuple[float, ...]) -> dict[str, tuple[float, ...]]:
@@ -468,6 +544,10 @@ def _stray_values(frame: pd.DataFrame, columns: list[str], codes: tuple[float, .
         if odd.kind in (OddKind.MISSING_CODE, OddKind.OUTSIDE_SCALE):
             for column, value in zip(odd.columns, odd.values):
                 out[column] = out.get(column, ()) + (value,)
+    for column in columns:  # codes too many for the screening's 2% (8 and 9 in 5% of the cells): s20
+        beyond = beyond_the_run(numbers[column].to_numpy(dtype=float, na_value=np.nan))
+        if beyond:
+            out[column] = tuple(dict.fromkeys(out.get(column, ()) + beyond))
     return out
 
 
@@ -607,21 +687,22 @@ class LeftOut(enum.Enum):
 
 
 def _default_items(first, columns: list[str], codings: tuple, design: tuple[str, ...] = (),
-                   codes: tuple[float, ...] = ()
+                   codes: tuple[float, ...] = (), id_column: str | None = None
                    ) -> tuple[tuple[str, ...], str, tuple[str, ...], tuple[tuple[str, LeftOut], ...]]:
     """The items explored by default (every column holding numbers, or the words of the answers file, except row
     numbers, ids, codes of categories, columns named for another part and columns whose values are not answers on
     the items' scale, unlike_the_items), the note that says which and why, the columns of the answers file's words,
     and the columns of numbers left out with why (:class:`LeftOut`); ``design``: the cluster and strata columns the
     halves of a split are drawn by, never items; ``codes``: the missing-value codes given, which the answer scale leaves
-    out (:func:`unlike_the_items`)."""
+    out (:func:`unlike_the_items`); ``id_column``: the id column given, never an item."""
     from cfa_tool.data.labels import labelled_codes, own_labels
 
     frame, source = first.frame.set_axis(columns, axis=1), first.source
     numeric = _numeric_columns(frame)
     drawn_by = tuple(c for c in design if c in frame.columns)  # named as such, whatever they hold
     numeric = tuple(c for c in numeric if c not in design)
-    ids = [c for c in numeric if _looks_like_row_ids(frame[c])]
+    named_id = [c for c in numeric if c == id_column]  # the id column given, whatever it holds
+    ids = named_id + [c for c in numeric if c != id_column and _looks_like_row_ids(frame[c])]
     roles = [c for c in numeric if c not in ids and column_role(c) is not None]
     coded = [c for c in labelled_codes(frame, first.value_labels) if c in numeric and c not in ids + roles
              and own_labels(c, first.value_labels)]
@@ -635,8 +716,9 @@ def _default_items(first, columns: list[str], codings: tuple, design: tuple[str,
     said = f"every column of {source} that holds numbers" + (" or the words of the answers file" if worded else "")
     name_them = Command(f" (name them in {Option.ITEMS} to explore them)")  # a manuscript's reader runs nothing
     note = (Note((f"Items: {said} ({len(chosen)})", Command(f", which {Option.ITEMS} can change"), "."))
+            + (f" Left out as the id column: {printable(id_column)}." if named_id else "")
             + (f" Left out as row numbers or ids (every value a different whole number): "
-               f"{', '.join(printable(c) for c in ids)}." if ids else "")
+               f"{', '.join(printable(c) for c in ids if c not in named_id)}." if ids[len(named_id):] else "")
             + (" Left out as codes of categories (every value has a value label of its own, as a "
                "department's do; the items share their answer scale's labels): "
                + Note((f"{', '.join(printable(c) for c in coded)}", name_them, "."))
@@ -802,7 +884,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
             names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
             keep: tuple[str, ...] | list[str] = (), rename: ColumnRenames = None, replications: int = 100,
             seed: int = 0, threshold: float = 0.30, target: np.ndarray | Sequence[Sequence[float]] | str | Path | None = None,
-            answers: str | Path | None = None, cluster: str | None = None, strata: str | None = None) -> ExploreResult:
+            answers: str | Path | None = None, cluster: str | None = None, strata: str | None = None,
+            id_column: str | None = None) -> ExploreResult:
     """How many factors, an exploratory solution and a draft model file for ``items`` of ``data``.
 
     ``items``: column names, or text 'a, b, c' with 'q1..q9' for a numbered range, counted as a model file counts
@@ -823,7 +906,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     ``rename`` reads columns under new names ({'SL3r': 'SL3_r'}) before ``items`` and the rest name them.
     ``cluster`` and ``strata``, with ``split``: the halves are drawn as replicate draws them (data.halves.drawn_halves),
     whole clusters of the column ``cluster`` to each half, within each stratum of ``strata``; those columns are never
-    items.
+    items.  ``id_column``: a column that names each row (never an item), which the caution about copies of earlier
+    rows shows beside the row numbers, as fit shows it (without it, a row-name column of the file does).
     """
     from cfa_tool import options
     from cfa_tool.pipeline import inputs as api
@@ -855,14 +939,17 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     if by_default:
         chosen, item_note, worded, left_out = _default_items(scan, columns, codings,
                                                              tuple(c for c in (cluster, strata) if c is not None),
-                                                             api.missing_values_option(missing_codes)[0])
+                                                             api.missing_values_option(missing_codes)[0],
+                                                             id_column if isinstance(id_column, str) else None)
         _refuse_too_few(chosen, scan, codings)
     spec = _explored_spec(chosen, codings, answers, worded if by_default else None)
     if not by_default:
         _refuse_text_items(scan.frame.set_axis(columns, axis=1), chosen, source, codings)
     spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, missing_codes, api.keep_option(keep),
+                                                     (id_column,) if isinstance(id_column, str) else (),
                                                      names_row=names_row, first_data_row=first_data_row, rename=rename)
     frame = loaded.frame
+    ids, _ = api.rows_named(loaded, id_column, chosen)  # the id column given (checked as fit checks it), or row names
     rows_read = len(loaded.read_frame) if loaded.read_frame is not None else len(frame)
     empty = next((c for c in chosen if not frame[c].notna().any()), None)
     if empty is not None and not by_default:  # the reading of the items would say 'take it out of the model'
@@ -911,8 +998,9 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     # and items answered alike by all rows but a few, as fit names them (pipeline.inputs.few_answers_problems)
     screened = api.screened(frame, tuple(chosen), source, loaded.non_answers, loaded.cautions)
     data_problems = (row_filter_problems(loaded, None, tuple(chosen))  # a selection on an item, as fit names it
-                     + api.copied_row_problems(screened, None, None, tuple(chosen), {})  # rows pasted twice, as fit
-                     + api.odd_value_problems(screened) + api.few_answers_problems(tuple(chosen), {}, None, screened))
+                     + api.copied_row_problems(screened, None, None, tuple(chosen), ids)  # rows pasted twice, as fit
+                     + api.odd_value_problems(screened) + codes_beyond_the_scale(screened, tuple(chosen))
+                     + api.few_answers_problems(tuple(chosen), {}, None, screened))
     halves = None
     if split is not None:
         split = options.seed(split)
@@ -957,7 +1045,7 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     statements = tuple(answer_lines(spec, drafted))
     split_result = None
     if halves is not None:
-        split_result = replace(_confirm(exploration, halves, split, source, statements), **design_split)
+        split_result = replace(_confirm(exploration, halves, split, source, statements, id_column), **design_split)
     return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
                          sorted_items(exploration), sample_problems + data_problems, statements, coding_record(spec),
                          few, left_out if by_default else ())
@@ -1081,10 +1169,12 @@ def _empty_rows_note(frame: pd.DataFrame, empty: np.ndarray) -> str:
             f"{'was' if n == 1 else 'were'} left out ({listed}).")
 
 
-def _confirm(exploration: Exploration, halves, seed: int, source: str, statements: tuple[str, ...]) -> SplitHalves:
+def _confirm(exploration: Exploration, halves, seed: int, source: str, statements: tuple[str, ...],
+             id_column: str | None = None) -> SplitHalves:
     """The draft model fitted on the confirmation half.  Its rows were read once, with the answers file's words
     coded, so the draft is fitted to their codes, and the fit keeps the coding that the draft model file's
-    ``statements`` state (its methods paragraph says how the words were coded, as a fit of that file does)."""
+    ``statements`` state (its methods paragraph says how the words were coded, as a fit of that file does); its rows
+    named by ``id_column`` as the exploration names them."""
     from dataclasses import replace
 
     from cfa_tool.pipeline import inputs as api
@@ -1096,7 +1186,7 @@ def _confirm(exploration: Exploration, halves, seed: int, source: str, statement
         return SplitHalves(seed, first, second, None, "the draft model has no factor with enough items, so there is "
                                                       "nothing to confirm")
     try:
-        fitted = api.fit(exploration.draft.text, confirming)  # its index keeps the row numbers
+        fitted = api.fit(exploration.draft.text, confirming, id_column=id_column)  # its index keeps the row numbers
     except CfaError as exc:
         return SplitHalves(seed, first, second, None, f"the draft model could not be fitted on the confirmation half: "
                                                       f"{exc}")

@@ -784,9 +784,9 @@ class SplitRows:
         before the split ('' without filters)."""
         if not self.filters:
             return ""
-        which = "filter" if len(self.filters) == 1 else "filters"
-        return (f" kept by the row {which} {', '.join(repr(str(f)) for f in self.filters)} (of the "
-                f"{self.rows_in_file} rows in the file)")
+        from cfa_tool.data.filters import kept_by_words
+
+        return f" kept by {kept_by_words(self.filters)} (of the {self.rows_in_file} rows in the file)"
 
 
 def _split_design(cluster: str | None, strata: str | None):

@@ -110,11 +110,14 @@ def test_rows_with_gaps_are_named_by_the_id_column_under_full_information(tmp_pa
         assert case["id"] == str(raw["id"].iloc[case["row"] - 2])  # the file's own id of that row
 
 
-def test_an_id_column_that_could_name_nothing_is_an_error(hs_data):
+def test_an_id_column_applies_to_a_fit_without_its_diagnostics(hs_data):
+    # s20: refused once ('nothing to name'); every fit of rows names copies of earlier rows by it
+    # (tests/commands/test_id_in_every_command.py), so it applies, and a wrong column is still an error
     import cfa_tool
     from cfa_tool.errors import OptionError
 
     frame = hs_data[[f"x{i}" for i in range(1, 10)]].copy()
     frame.insert(0, "code", [f"{k:04d}" for k in range(1, len(frame) + 1)])
-    with pytest.raises(OptionError, match="the id column .* cannot apply"):
-        cfa_tool.fit(THREE_FACTORS, frame, id_column="code", diagnostics=False)
+    assert cfa_tool.fit(THREE_FACTORS, frame, id_column="code", diagnostics=False).n_obs == 301  # H&S 1939: 301 pupils
+    with pytest.raises(OptionError, match="the id column 'cod' is not a column"):
+        cfa_tool.fit(THREE_FACTORS, frame, id_column="cod", diagnostics=False)

@@ -113,3 +113,75 @@ def test_a_value_of_several_words_reads_as_one_value_in_the_methods_words():
     quoted when it holds several words, a one-word value is not."""
     assert parse_filter('gender != "prefer not to say"').in_words() == 'gender was not "prefer not to say"'
     assert parse_filter("department != Audit").in_words() == "department was not Audit"
+
+
+def test_several_exclusions_of_one_column_are_one_note_as_they_are_one_clause():
+    # s20: 30 filters 'student_id != ...' gave 30 notes while the methods paragraph said one clause; the notes follow
+    # the same merge (data.filters.merged_exclusions).  Check values: the 30 planted rows, and pandas' own count of
+    # the rows of 'School 1' among the 370 left (Series.isin).
+    frame = _answers()
+    ids = frame["student_id"][CARELESS].tolist()
+    filters = [parse_filter(f"student_id != {i}") for i in ids]
+    kept, notes, counted = apply_filters(frame, filters, "f.csv")
+    assert len(counted) == 30 and kept.index.tolist() == frame.index[~frame["student_id"].isin(ids)].tolist()
+    assert notes == ["30 row filters 'student_id != ...', read as one: 'student_id not in S-00101, S-00102, "
+                     "S-00103, ... (30 values)' kept 370 of 400 rows"]
+    # another filter between them (on a column the 30 rows all answered 1), and a value no row has: still one note,
+    # at the first one's place, with the rows the 30 left out in all (pandas' count: Series.isin)
+    between = filters[:10] + [parse_filter("a1 != 5")] + filters[10:] + [parse_filter("student_id != X-1")]
+    _, notes, _ = apply_filters(frame, between, "f.csv")
+    fives = int((frame["a1"][~frame["student_id"].isin(ids[:10])] == 5).sum())
+    assert notes == ["31 row filters 'student_id != ...', read as one: 'student_id not in S-00101, S-00102, S-00103, "
+                     "... (31 values)' left out 30 rows in all; no row has 'X-1' in 'student_id' (values present: "
+                     + notes[0].split("(values present: ")[1],
+                     f"row filter 'a1 != 5' kept {390 - fives} of 390 rows"]
+    assert fives > 0  # the filter between had rows of its own to leave out
+    # the notes a fit carries, beside its one clause of the methods paragraph
+    many = cfa_tool.fit(MODEL, frame, keep=[f"student_id != {i}" for i in ids])
+    said = [str(n) for n in many.warnings if "row filter" in str(n)]
+    assert len(said) == 1 and "30 row filters 'student_id != ...'" in said[0]
+    # and the data line of every view quotes them as that one list (reporting.tables.selection_phrase)
+    text = " ".join(str(many).split())
+    assert ("370 rows analysed of 370 kept by the row filter 'student_id not in S-00101, S-00102, S-00103, ... "
+            "(30 values)' (400 rows in the file)") in text and "'student_id != S-00102'" not in text
+
+
+def test_an_error_about_the_rows_kept_quotes_the_clause_concerned_not_every_value():
+    # s20: messages quoted a list filter whole (350 ids: a message of 3,353 characters); they quote the clause
+    # concerned and the list cut to three values with its count, as the notes do
+    import numpy as np
+
+    from cfa_tool.errors import DataError
+
+    frame = _answers()
+    frame.loc[frame["school"] == "School 1", "a1"] = np.nan  # invented: a1 not asked at School 1 (50 rows: 400 / 8)
+    others = frame["student_id"][frame["school"] != "School 1"].tolist()
+    with pytest.raises(DataError) as caught:
+        cfa_tool.fit("factor f: a1, a2, a3, a4\n", frame, keep=["student_id not in " + ", ".join(others), "sex = girl"])
+    said = str(caught.value)
+    assert ("column 'a1' has no answers in the 50 rows kept by keep=['student_id not in S-00002, S-00003, S-00004, "
+            "... (350 values)', 'sex = girl']") in said and len(said) < 400 and others[-1] not in said
+    # several '!=' of one column: quoted as the one list they make
+    with pytest.raises(DataError) as caught:
+        cfa_tool.fit("factor f: a1, a2, a3, a4\n", frame, keep=[f"student_id != {i}" for i in others[:40]]
+                     + ["school = School 1"])
+    assert "kept by keep=['student_id not in S-00002, S-00003, S-00004, ... (40 values)', 'school = School 1']" in str(
+        caught.value)
+    # one value of a list that cannot be compared: its clause, and the list it is in, cut
+    frame["visit"] = [f"2026-03-{k % 28 + 1:02d}" for k in range(len(frame))]
+    days = ", ".join(f"2026-03-{k:02d}" for k in range(1, 20))
+    with pytest.raises(OptionError) as caught:
+        cfa_tool.check("factor f: a1, a2, a3, a4\n", frame, keep=[f"visit in {days}, March 5"])
+    assert str(caught.value).startswith("row filter 'visit = \"March 5\"' (of 'visit in 2026-03-01, 2026-03-02, "
+                                        "2026-03-03, ... (20 values)'): 'visit' holds dates")
+    assert "2026-03-19" not in str(caught.value)
+
+
+def test_several_exclusions_on_an_item_are_one_caution():
+    # s20: the range-restriction caution followed each '!=' filter (three cautions for one selection); it follows the
+    # one merge too.  Check value: pandas' count of the rows answering 1, 2 or 5 to a1 (Series.isin)
+    frame = _answers()
+    checked = cfa_tool.check("factor f: a1, a2, a3, a4\n", frame, keep=["a1 != 1", "a1 != 2", "a1 != 5"])
+    [caution] = [p for p in checked.problems if p.kind is ProblemKind.SELECTED_ON_ITEM]
+    assert caution.value == int(frame["a1"].isin([1, 2, 5]).sum())
+    assert str(caution.explanation).startswith("Row filter 'a1 not in 1, 2, 5' selects rows by their answers to 'a1'")
