@@ -84,6 +84,16 @@ class GroupsMeat:
         z = self.sums[g][:, start:] if start else self.sums[g]
         return (z * self.factors[g][:, None]).T @ z / self.total
 
+    def block_diagonal(self, g: int, start: int = 0) -> np.ndarray:
+        """The diagonal of :meth:`block` (without forming the block)."""
+        z = self.sums[g][:, start:] if start else self.sums[g]
+        return self.factors[g] @ (z * z) / self.total
+
+    def trace_with(self, weighted: GroupsMeat, g: int) -> float:
+        """tr(V_g Omega_gg) for ``weighted`` the :class:`GroupsMeat` of the same rows' contributions times a
+        symmetric V_g (its units' sums z V): sum_u f_u z_u' V z_u / N, without forming Omega_gg."""
+        return float(np.einsum("u,uk,uk->", self.factors[g], self.sums[g], weighted.sums[g])) / self.total
+
     def middle(self, mats: list[np.ndarray]) -> np.ndarray:
         """sum_gh M_g' Omega_gh M_h for each group's M_g (k_g x q)."""
         projected = [z @ m for z, m in zip(self.sums, mats)]
