@@ -14,6 +14,8 @@ import numpy as np
 import pandas as pd
 import pytest
 
+import cfa_tool
+
 from cfa_tool.numerics.linalg import scaled_inverse
 
 
@@ -147,3 +149,30 @@ def test_the_robust_statistics_of_60_items_hold_no_matrix_of_the_moments():
     finally:
         tracemalloc.stop()
     assert peak < moments * moments * 8
+
+
+def test_the_full_information_robust_route_refuses_matrices_too_large_before_making_them(monkeypatch, tmp_path):
+    # the Yuan-Bentler route (inference.robust_missing) needs matrices of the k = p + p(p+1)/2 moments by themselves
+    # (200 items: 20,300 x 20,300, 3.3 GB each, and 6.5 GB of directions); beyond its limit it is refused in one
+    # line (exit 3, a model that cannot be estimated so), before any is made.  The limit is lowered here so that 8
+    # items (44 moments, 15 KB a matrix) cross it.
+    import cfa_tool.inference.robust_missing as robust_missing
+    from cfa_tool.cli import main
+    from cfa_tool.errors import EstimationError
+
+    made = []
+    original = robust_missing._moment_directions
+    monkeypatch.setattr(robust_missing, "_moment_directions", lambda p: made.append(p) or original(p))
+    monkeypatch.setattr(robust_missing, "MOMENT_MATRIX_BYTES", 44 * 44 * 8 - 1)
+    frame = _many_items(8, 300, 4, False)
+    frame.iloc[::7, 2] = np.nan
+    model = "factor F1: q1..q4\nfactor F2: q5..q8\n"
+    with pytest.raises(EstimationError, match=r"44 means, variances and covariances of the 8 items.*"
+                                              r"missing='listwise'.*leave out test='robust'"):
+        cfa_tool.fit(model, frame, missing="full-information", test="robust")
+    assert made == []
+    (tmp_path / "m.cfa").write_text(model)
+    frame.to_csv(tmp_path / "d.csv", index=False)
+    assert main(["fit", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "d.csv"), "--robust"]) == 3
+    monkeypatch.setattr(robust_missing, "MOMENT_MATRIX_BYTES", 44 * 44 * 8)  # at the limit: computed
+    assert cfa_tool.fit(model, frame, missing="full-information", test="robust").robust is not None
