@@ -134,6 +134,23 @@ class NormalWeight:
         p = len(self.sigma_inv)
         return np.block([[self.sigma_inv, np.zeros((p, len(W)))], [np.zeros((len(W), p)), W]])
 
+    def entries(self, rows: np.ndarray, columns: np.ndarray) -> np.ndarray:
+        """V[rows][:, columns] from Sigma^-1 alone: A's entries in the means' block, h_ij h_kl (A_ik A_jl +
+        A_il A_jk) in the covariances' (:func:`normal_weight`), zero between them."""
+        A = self.sigma_inv
+        p = len(A)
+        start = p if self.with_means else 0
+        I, J = vech_indices(p)
+        h = np.where(I == J, 0.5, 1.0)
+        rows, columns = np.asarray(rows), np.asarray(columns)
+        out = np.zeros((len(rows), len(columns)))
+        mr, mc = rows < start, columns < start
+        out[np.ix_(mr, mc)] = A[np.ix_(rows[mr], columns[mc])]
+        r, c = rows[~mr] - start, columns[~mc] - start
+        i, j, k, l = I[r][:, None], J[r][:, None], I[c][None, :], J[c][None, :]
+        out[np.ix_(~mr, ~mc)] = np.outer(h[r], h[c]) * (A[i, k] * A[j, l] + A[i, l] * A[j, k])
+        return out
+
     def __matmul__(self, X: np.ndarray) -> np.ndarray:
         X = np.asarray(X, dtype=float)
         if X.ndim == 1:
@@ -211,7 +228,8 @@ def moments_meat(likelihood: NormalLikelihood, with_means: bool, weights: list |
 class MomentSandwich:
     """What the robust statistics of one fit share, made once at its estimates (:func:`moment_sandwich`): Omega of
     the groups' stacked moments (:func:`moments_meat`, with the means when the model has a mean structure), each
-    group's (Delta, V) (:func:`_group_blocks`, V a :class:`NormalWeight`) and the traces tr(V_g Omega_gg).  The
+    group's (Delta, V) (:func:`_group_blocks`, V a :class:`NormalWeight`), the units' sums times V and the traces
+    tr(V_g Omega_gg).  The
     sandwich covariance and tr(U Omega) (:func:`robust_parts`), the baseline's tr(U Omega) (:func:`baseline_trace`)
     and the generalized score tests (assessment.robust_scores.robust_score_tests) read the same numbers; none of
     them forms a matrix of the moments by the moments (p* x p*, 3 GiB at 200 items: hostile s19, case 11)."""
@@ -220,6 +238,8 @@ class MomentSandwich:
     blocks: tuple[tuple[np.ndarray, NormalWeight], ...]
     with_means: bool
     traces: tuple[float, ...]
+    #: Omega's units' sums times each group's V (:func:`moments_meat` with the weights): z_u V
+    weighted: GroupsMeat
 
 
 def moment_sandwich(model: StructuredModel, theta: np.ndarray, likelihood: NormalLikelihood) -> MomentSandwich:
@@ -228,7 +248,7 @@ def moment_sandwich(model: StructuredModel, theta: np.ndarray, likelihood: Norma
     omega = moments_meat(likelihood, likelihood.means)
     weighted = moments_meat(likelihood, likelihood.means, [V for _, V in blocks])
     traces = tuple(omega.trace_with(weighted, g) for g in range(len(blocks)))
-    return MomentSandwich(omega, blocks, likelihood.means, traces)
+    return MomentSandwich(omega, blocks, likelihood.means, traces, weighted)
 
 
 def robust_parts(model: StructuredModel, theta: np.ndarray, likelihood: NormalLikelihood,

@@ -176,3 +176,96 @@ def test_the_full_information_robust_route_refuses_matrices_too_large_before_mak
     assert main(["fit", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "d.csv"), "--robust"]) == 3
     monkeypatch.setattr(robust_missing, "MOMENT_MATRIX_BYTES", 44 * 44 * 8)  # at the limit: computed
     assert cfa_tool.fit(model, frame, missing="full-information", test="robust").robust is not None
+
+
+def _design_score_ratio_dense(est, found) -> np.ndarray:
+    """h / (L B L') of Satorra's (1989) generalized score test by its dense formulas: X = [Delta, candidates'
+    derivatives] (moments x (q + k)), A = X' V X, B = X' V Omega V X over the groups (Satorra & Bentler 1994's meat),
+    L = (-A_ct A_tt^-1, 1), h = A_cc - A_ct A_tt^-1 A_tc (Sörbom 1989)."""
+    from cfa_tool.assessment.modification import candidate_arrays
+    from cfa_tool.inference.robust import moment_sandwich, vech_indices
+    from cfa_tool.model.implied import entry_derivatives
+
+    model, likelihood, theta = est.model, est.likelihood, est.theta
+    sandwich = moment_sandwich(model, theta, likelihood)
+    q, k = len(theta), len(found)
+    I, J = vech_indices(model.p)
+    A = np.zeros((q + k, q + k))
+    weighted = []
+    for g, w in enumerate(likelihood.weights):
+        delta, weight = sandwich.blocks[g]
+        mine = np.flatnonzero(found.groups == g)
+        c_sigma, c_mu = entry_derivatives(model.matrices(theta, g),
+                                          *candidate_arrays([found.candidates[r] for r in found.rows[mine]]))
+        X = np.zeros((delta.shape[0], q + k))
+        X[:, :q] = delta
+        X[:, q + mine] = np.vstack([c_mu.T, c_sigma[:, I, J].T]) if likelihood.means else c_sigma[:, I, J].T
+        VX = weight.dense() @ X
+        A += w * X.T @ VX
+        weighted.append(w * VX)
+    B = sandwich.omega.middle(weighted)
+    K = A[q:, :q] @ scaled_inverse(A[:q, :q])
+    h = np.diag(A)[q:] - np.einsum("cq,cq->c", K, A[q:, :q])
+    L = np.hstack([-K, np.eye(k)])
+    return h / np.einsum("cq,qr,cr->c", L, B, L)
+
+
+@pytest.mark.parametrize("shared", [False, True])
+def test_the_design_based_score_tests_equal_their_dense_formulas(shared):
+    # the modification indices of a fit under a sampling design (assessment.robust_scores), computed in chunks of
+    # candidates from their sparse derivatives: equal to the dense formulas to 1e-10, with two groups (means) whose
+    # clusters lie within them or, ``shared``, cross them (domains of one sample: Omega's blocks between groups)
+    from cfa_tool.assessment.modification import modification_indices
+    from cfa_tool.assessment.robust_scores import _score_variance_ratio
+    from cfa_tool.language.checks import exogenous_factors
+    from cfa_tool.data.sample_design import DesignColumns, check_design
+    from cfa_tool.language.parser import parse_model
+    from cfa_tool.pipeline.continuous import FitOptions, estimate
+    from cfa_tool.pipeline.inputs import moments_for
+
+    spec = parse_model("".join(f"factor F{k + 1}: q{4 * k + 1}..q{4 * k + 4}\n" for k in range(4)))
+    frame = _many_items(16, 240, 8, True)  # four items a factor (with three, a residual covariance within a factor
+    # makes its block just identified: h = A_cc - A_ct A_tt^-1 A_tc cancels to 1e-8 of A_cc, and both routes' rounding
+    # with it)
+    if shared:
+        frame["unit"] = np.arange(len(frame)) % 40
+    columns = DesignColumns("w", "unit", None)
+    frame, _ = check_design(frame, columns, spec.observed_names, "half", "data")
+    groups, _ = moments_for(spec, frame, "data", "half", design=columns)
+    est = estimate(spec, groups, FitOptions(test="satorra-bentler"))
+    found = modification_indices(est.model, est.theta, est.likelihood, exogenous_factors(spec))
+    assert len(found) > 100
+    np.testing.assert_allclose(_score_variance_ratio(est.model, est.theta, est.likelihood, found),
+                               _design_score_ratio_dense(est, found), rtol=1e-10)
+
+
+def test_the_design_based_score_tests_of_60_items_hold_no_matrix_of_the_moments():
+    # 60 items under a design: 1,950 candidates, whose derivatives at once (1,950 x 60 x 60) were 56 MB and the
+    # moments x (parameters + candidates) products 30 MB each; one 1,830 x 1,830 matrix is 26.8 MB (200 items: a
+    # MemoryError allocating 6.1 GiB of derivatives, robust-s20 on hostile s19's case 11 with --weights --cluster)
+    from cfa_tool.assessment.modification import modification_indices
+    from cfa_tool.assessment.robust_scores import robust_score_tests
+    from cfa_tool.data.sample_design import DesignColumns, check_design
+    from cfa_tool.inference.robust import moment_sandwich
+    from cfa_tool.language.checks import exogenous_factors
+    from cfa_tool.language.parser import parse_model
+    from cfa_tool.pipeline.continuous import FitOptions, estimate
+    from cfa_tool.pipeline.inputs import moments_for
+
+    spec = parse_model("".join(f"factor F{k + 1}: q{15 * k + 1}..q{15 * k + 15}\n" for k in range(4)))
+    frame = _many_items(60, 300, 9, True)
+    columns = DesignColumns("w", "unit", None)
+    frame, _ = check_design(frame, columns, spec.observed_names, None, "data")
+    groups, _ = moments_for(spec, frame, "data", design=columns)
+    est = estimate(spec, groups, FitOptions(test="satorra-bentler"))
+    found = modification_indices(est.model, est.theta, est.likelihood, exogenous_factors(spec))
+    sandwich = moment_sandwich(est.model, est.theta, est.likelihood)  # the fit's, made before (its own test above)
+    tracemalloc.start()
+    try:
+        tests = robust_score_tests(found, est.model, est.theta, est.likelihood, sandwich)
+        _, peak = tracemalloc.get_traced_memory()
+    finally:
+        tracemalloc.stop()
+    assert len(found) == 1950 and len(tests) == len(found) and np.all(tests.index >= 0)
+    moments = 60 * 61 // 2
+    assert peak < moments * moments * 8
