@@ -84,13 +84,33 @@ class GroupsMeat:
         z = self.sums[g][:, start:] if start else self.sums[g]
         return (z * self.factors[g][:, None]).T @ z / self.total
 
+    def block_diagonal(self, g: int, start: int = 0) -> np.ndarray:
+        """The diagonal of :meth:`block` (without forming the block)."""
+        z = self.sums[g][:, start:] if start else self.sums[g]
+        return self.factors[g] @ (z * z) / self.total
+
+    def trace_with(self, weighted: GroupsMeat, g: int) -> float:
+        """tr(V_g Omega_gg) for ``weighted`` the :class:`GroupsMeat` of the same rows' contributions times a
+        symmetric V_g (its units' sums z V): sum_u f_u z_u' V z_u / N, without forming Omega_gg."""
+        return float(np.einsum("u,uk,uk->", self.factors[g], self.sums[g], weighted.sums[g])) / self.total
+
     def middle(self, mats: list[np.ndarray]) -> np.ndarray:
         """sum_gh M_g' Omega_gh M_h for each group's M_g (k_g x q)."""
         projected = [z @ m for z, m in zip(self.sums, mats)]
+        return self.cross(projected, projected)
+
+    def cross(self, left: list[np.ndarray], right: list[np.ndarray]) -> np.ndarray:
+        """sum_gh L_g' Omega_gh R_h from each group's projected units' sums, ``left`` z_g L_g and ``right`` z_g R_g."""
+        if self.shared:
+            return (sum(left) * self.factors[0][:, None]).T @ sum(right) / self.total
+        return sum((y * f[:, None]).T @ x for y, x, f in zip(left, right, self.factors)) / self.total
+
+    def cross_diagonal(self, projected: list[np.ndarray]) -> np.ndarray:
+        """The diagonal of :meth:`cross` of ``projected`` with itself, without the matrix."""
         if self.shared:
             y = sum(projected)
-            return (y * self.factors[0][:, None]).T @ y / self.total
-        return sum((y * f[:, None]).T @ y for y, f in zip(projected, self.factors)) / self.total
+            return self.factors[0] @ (y * y) / self.total
+        return sum(f @ (y * y) for y, f in zip(projected, self.factors)) / self.total
 
 
 def groups_meat(contributions: list[np.ndarray], designs: list) -> GroupsMeat:

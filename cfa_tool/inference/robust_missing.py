@@ -56,6 +56,35 @@ if TYPE_CHECKING:
     from cfa_tool.model.implied import ModelMatrices
 
 
+#: the largest matrix of the moments by the moments (k x k, k = p + p(p+1)/2 means, variances and covariances) the
+#: full-information robust route makes: it holds several at once (the saturated model's information and meat, an
+#: inverse, products) beside the moments' k x p x p directions, about 3.5 GB at this size (125 items); above it the
+#: route is refused before anything is allocated (:func:`check_moment_matrices`; 200 items would need 3.3 GB for each
+#: matrix and 6.5 GB of directions: hostile s19, case 11's neighbour)
+MOMENT_MATRIX_BYTES = 1 << 29
+
+
+def check_moment_matrices(likelihood: MissingDataLikelihood) -> None:
+    """Refuse, with a one-line EstimationError naming the sizes and what to do, a full-information robust route whose
+    matrices of the moments by the moments would exceed :data:`MOMENT_MATRIX_BYTES` each (module docstring: H_s and
+    B_s are k x k), before any of them is made: never a MemoryError after minutes of work."""
+    from cfa_tool.errors import EstimationError
+    from cfa_tool.options import Option
+
+    p = likelihood.p
+    k = p + p * (p + 1) // 2
+    if k * k * 8 <= MOMENT_MATRIX_BYTES:
+        return
+    designed = any(getattr(g, "design", None) is not None for g in likelihood.groups)
+    leave_out = "" if designed else f", or leave out {Option.ROBUST} for the normal-theory test"
+    raise EstimationError(
+        f"the robust test and standard errors with rows with gaps (full-information ML) work on matrices of the "
+        f"{k:,} means, variances and covariances of the {p} items by themselves, {k * k * 8 / 2 ** 30:.1f} GiB each "
+        f"and several at once, more than this tool allocates ({MOMENT_MATRIX_BYTES / 2 ** 30:.1f} GiB each, about "
+        f"125 items); keep only the complete rows ({Option.INCOMPLETE_ROWS.given('listwise')}), whose robust test needs "
+        f"no such matrix, fit the items in smaller sets{leave_out}")
+
+
 def _moment_directions(p: int) -> tuple[np.ndarray, np.ndarray]:
     """d Sigma and d mu for each element of beta = (mu, vech Sigma)."""
     I, J = vech_indices(p)
@@ -138,6 +167,7 @@ def scaling_at(likelihood: MissingDataLikelihood, theta: np.ndarray,
     rows W is the normal-theory weight at the sample moments.  NaN when D'WD, scaled to unit diagonal, has no
     positive smallest eigenvalue (the model not identified at ``theta``), or the saturated Sigma_oo are not
     positive definite."""
+    check_moment_matrices(likelihood)
     q = len(theta)
     information, meat = np.zeros((q, q)), np.zeros((q, q))
     trace_w_gamma = 0.0
@@ -168,7 +198,9 @@ def robust_missing(likelihood: MissingDataLikelihood, theta: np.ndarray,
                    ) -> tuple[np.ndarray, float, float]:
     """(Huber-White covariance of theta, scaling factor of the model, scaling factor of the baseline), the
     factors (sat - model) / (2 df) from the trace terms summed over groups; ``base_df`` None: the baseline's
-    factor is not wanted (NaN).  The bread is the observed information (module docstring)."""
+    factor is not wanted (NaN).  The bread is the observed information (module docstring).  Refused before any
+    work when its matrices of the moments would be too large (:func:`check_moment_matrices`)."""
+    check_moment_matrices(likelihood)
     q = len(theta)
     meat_total = np.zeros((q, q))
     trace_sat = trace_base = 0.0

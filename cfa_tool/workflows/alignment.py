@@ -862,6 +862,8 @@ def trust_check(spec: Spec, est, layout: _Layout, sizes: np.ndarray, variant: Re
     estimates, with the items' sample means as intercepts: the maximum-likelihood estimates of a saturated mean
     structure), align (starting from the true values), and compare the estimated group means and variances with
     the aligned ones taken as true."""
+    from cfa_tool.estimation.ml import SingularMoments
+    from cfa_tool.model.parameters import ImpossibleAtStart
     from cfa_tool.pipeline.continuous import FitOptions, estimate, model_structure, moments_from_rows
 
     table, model, theta = est.table, est.model, est.theta
@@ -889,7 +891,14 @@ def trust_check(spec: Spec, est, layout: _Layout, sizes: np.ndarray, variant: Re
         ok = True
         for g, (mean, cov) in enumerate(moments):
             rows = rng.standard_normal((int(sizes[g]), len(observed))) @ np.linalg.cholesky(cov).T + mean
-            fitted = estimate(spec, [(None, moments_from_rows(rows, observed))], options, start=starts[g])
+            try:
+                fitted = estimate(spec, [(None, moments_from_rows(rows, observed))], options, start=starts[g])
+            except (SingularMoments, ImpossibleAtStart):  # rows whose covariance is singular, or whose variances leave
+                # a fixed covariance impossible at the start: a failed trial, as the shared refit counts them
+                # (pipeline.continuous.replicate_fits); the other groups' rows are drawn all the same, so that the
+                # trials after it draw what they drew before
+                ok = False
+                continue
             ok = ok and fitted.converged
             loadings[g] = fitted.model.matrices(fitted.theta).L
             intercepts[g] = rows.mean(axis=0)

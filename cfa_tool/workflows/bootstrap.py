@@ -336,15 +336,14 @@ def full_information_influence(likelihood, theta: np.ndarray) -> np.ndarray:
 def _complete_row_influence(est, rows: np.ndarray, w: np.ndarray | None, design) -> np.ndarray:
     """Each complete row's (or cluster's) influence on the ML estimate (N, q); see :func:`influence_values`."""
     from cfa_tool.numerics.linalg import scaled_inverse
-    from cfa_tool.inference.robust import normal_weight, vech_indices
+    from cfa_tool.inference.robust import NormalWeight, vech_indices
 
     model, theta = est.model, est.theta
     sigma = model.implied(theta)
     I, J = vech_indices(len(sigma))
     d_sigma, _ = model.jacobian(theta, 0)
     delta = d_sigma[:, I, J].T  # (p*, q)
-    W = normal_weight(np.linalg.inv(sigma))
-    WD = W @ delta
+    WD = NormalWeight(np.linalg.inv(sigma), False) @ delta  # W applied in its Kronecker form: no p* x p* matrix
     if w is None:
         dev = rows - rows.mean(axis=0)
         U = dev[:, I] * dev[:, J]

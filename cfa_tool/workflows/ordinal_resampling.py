@@ -7,8 +7,12 @@ by the fit's own least-squares estimator with its robust standard errors and sca
 (:func:`cfa_tool.pipeline.ordinal.fit_ordinal`).  Simulated ordinal answers are latent responses drawn from the
 model-implied correlation matrix and cut at the thresholds (the latent-response formulation; Muthén 1984).
 A sample whose answers cannot be analysed (an item left with one category, or, in a bootstrap resample, an
-answer category of the data that no resampled row gives, so that its thresholds would not match the fit's) is
-counted as failed, apart from the fits that did not converge; neither is dropped silently.
+answer category of the data that no resampled row gives, so that its thresholds would not match the fit's; its
+correlations not positive definite) is counted as failed, apart from the fits that did not converge; a sample
+whose answers could be analysed but whose fit could not start (a fixed covariance beyond the variances its
+start gives, ImpossibleAtStart) or ended without an estimate (not identified, or a Heywood case without bound)
+counts with those that did not converge, as the shared refit of continuous items counts a start it cannot make
+(pipeline.continuous.replicate_fits), never as answers that could not be analysed; none is dropped silently.
 """
 
 from __future__ import annotations
@@ -34,7 +38,8 @@ REFIT_OPTIONS = FitOptions(diagnostics=False, modification_indices=False)
 
 
 class Outcome(Enum):
-    """What became of one sample."""
+    """What became of one sample (module docstring): fitted, its fit without an estimate, or its answers not
+    analysable (thresholds and correlations)."""
 
     CONVERGED = "converged"
     NOT_CONVERGED = "did not converge"
@@ -65,16 +70,21 @@ class OrdinalFitting:
                    result.method.weighting, result.method.missing is MissingData.PAIRWISE,
                    ordinal if keep_levels else None)
 
-    def fit(self, rows: np.ndarray) -> FitResult | None:
-        """The least-squares fit of ``rows`` (columns in ``names`` order); None when the answers cannot be analysed."""
+    def fit(self, rows: np.ndarray) -> FitResult | Outcome:
+        """The least-squares fit of ``rows`` (columns in ``names`` order); :attr:`Outcome.FAILED` when the answers
+        cannot be analysed, :attr:`Outcome.NOT_CONVERGED` when their fit could not start or ended without an
+        estimate (module docstring)."""
         frame = pd.DataFrame(rows, columns=list(self.names))
-        try:
-            with blas_threads_for(len(self.names)):
+        with blas_threads_for(len(self.names)):
+            try:
                 moments = ordinal_moments(frame, self.names, "<sample>", self.continuous, levels=self.levels,
                                           pairwise=self.pairwise)
+            except CfaError:
+                return Outcome.FAILED
+            try:
                 return fit_ordinal(self.spec, moments, REFIT_OPTIONS, self.weighting)
-        except CfaError:
-            return None
+            except CfaError:  # ImpossibleAtStart, NotIdentified, UnboundedSolution: the answers were analysed
+                return Outcome.NOT_CONVERGED
 
 
 @dataclass(frozen=True)
@@ -99,10 +109,10 @@ class Refit:
         return self.outcome is Outcome.CONVERGED
 
 
-def _refit(result: FitResult | None, keys: tuple[Key, ...]) -> Refit:
+def _refit(result: FitResult | Outcome, keys: tuple[Key, ...]) -> Refit:
     nan = np.full(len(keys), np.nan)
-    if result is None:
-        return Refit(Outcome.FAILED, nan, nan, nan)
+    if isinstance(result, Outcome):
+        return Refit(result, nan, nan, nan)
     if not result.converged or result.fit is None or result.robust is None:
         return Refit(Outcome.NOT_CONVERGED, nan, nan, nan)
     rows = {(r.kind, r.variables): r for r in result.estimates}

@@ -32,7 +32,9 @@ def test_a_design_fit_makes_its_moments_meat_once_per_group(hs_data, monkeypatch
     monkeypatch.setattr(robust, "moment_contributions", counted)
     result = cfa_tool.fit(THREE_FACTORS, _design_rows(hs_data), group="school", weights="w", cluster="unit")
     assert result.robust is not None and len(result.modification_indices)  # the design's test and score tests
-    assert calls == [True, True]  # each school's rows once, with their means (the model has a mean structure)
+    # each school's rows once, and once times Sigma^-1 (the contributions times V, for tr(V Omega) without a
+    # p* x p* matrix: robust-s20), with their means (the model has a mean structure)
+    assert calls == [True, True, True, True]
 
 
 def test_the_baseline_trace_of_the_shared_meat_is_the_independence_models_sum(hs_data):

@@ -162,7 +162,8 @@ def test_clusters_within_groups_give_the_block_diagonal_covariance(hs_data):
     bread = meat = 0.0
     trace = 0.0
     for g, w in enumerate(likelihood.weights):
-        delta, V = _group_blocks(model, theta, likelihood, g)
+        delta, weight = _group_blocks(model, theta, likelihood, g)
+        V = weight.dense()  # the matrix of normal_weight (robust_parts applies it in its Kronecker form)
         gamma = moment_covariance(likelihood.groups[g].rows, likelihood.groups[g].design, True)
         bread = bread + w * delta.T @ V @ delta
         meat = meat + w * (V @ delta).T @ gamma @ (V @ delta)

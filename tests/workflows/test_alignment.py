@@ -453,3 +453,28 @@ def test_a_factor_s_group_share_counts_its_own_items_only():
     for group, share in shown.items():
         expected = np.mean([not p.invariant for p in result.factors[1].parameters if p.group == group])
         assert share == f"{100 * expected:.0f}%", (group, own)
+
+
+def test_a_trial_whose_rows_cannot_be_fitted_counts_as_failed(monkeypatch):
+    # linalg-s19: the trust check fitted each trial's simulated rows with no guard, so rows whose covariance is
+    # singular ended the whole run in a traceback; the shared refit counts such a resample as not converged
+    # (pipeline.continuous._replicate_fit), and so does the trust check now.  The second group's rows of the first
+    # trial are given a copied column here (a covariance that is singular: the estimate refuses it, SingularMoments).
+    import cfa_tool.pipeline.continuous as continuous
+
+    data, _, _ = simulate(groups=4, rows=150, seed=3)
+    original = continuous.moments_from_rows
+    calls = []
+
+    def with_a_copied_column(rows, names, *args, **kwargs):
+        calls.append(len(rows))
+        if len(calls) == 2:
+            rows = rows.copy()
+            rows[:, 1] = rows[:, 0]
+        return original(rows, names, *args, **kwargs)
+
+    monkeypatch.setattr(continuous, "moments_from_rows", with_a_copied_column)
+    check = cfa_tool.align(MODEL, data, "country", trials=3, seed=2).check
+    assert len(calls) == 3 * 4  # every group of every trial drawn and fitted, the failed trial's too
+    assert check.trials == 3 and check.completed == 2
+    assert np.isfinite(check.factors[0].mean_correlation)

@@ -170,3 +170,36 @@ def test_command_line(tmp_path, ordinal_fit):
                "--workers", "1", "--json", str(tmp_path / "power.json"))
     assert proc.returncode == 0, proc.stderr
     assert json.loads((tmp_path / "power.json").read_text())["ordinal_items_fitted_by"] == "diagonally weighted least squares"
+
+
+def test_a_refit_that_cannot_start_is_not_counted_as_answers_that_could_not_be_analysed(monkeypatch):
+    # robust-s20: a sample whose answers were analysed but whose fit could not start (ImpossibleAtStart: a fixed
+    # covariance beyond the variances the sample's start gives) was counted with the samples whose answers could not
+    # be analysed, which the bootstrap's report explains as "an item lost an answer category, or the correlations
+    # were not positive definite"; it is counted with the fits that did not converge, as the shared refit of
+    # continuous items counts a start it cannot make (model.parameters.ImpossibleAtStart).  The start failure is
+    # raised here by the refit's fit of the moments, after the sample's moments were made from its answers.
+    import cfa_tool.workflows.ordinal_resampling as resampling
+    from cfa_tool.method import Weighting
+    from cfa_tool.model.parameters import ImpossibleAtStart
+
+    data = simulate(TWO, 600, seed=11, categories=4).frame
+    names = tuple(f"y{i}" for i in range(1, 7))
+    rows = data[list(names)].to_numpy(float)
+    fitting = resampling.OrdinalFitting(cfa_tool.parse_model(TWO), names, frozenset(), Weighting.DIAGONAL)
+    key = (("loading", ("f", "y2")),)
+    assert resampling.resample((fitting, rows, 1, key)).outcome is resampling.Outcome.CONVERGED
+    made = []
+
+    def cannot_start(spec, moments, options, weighting):
+        made.append(moments)
+        raise ImpossibleAtStart("the model cannot hold a covariance larger than the variances allow")
+
+    monkeypatch.setattr(resampling, "fit_ordinal", cannot_start)
+    assert resampling.resample((fitting, rows, 1, key)).outcome is resampling.Outcome.NOT_CONVERGED
+    assert len(made) == 1  # the answers were analysed: their thresholds and correlations made
+    # an item left with one answer in a sample: its answers cannot be analysed (counted so, as before)
+    one_answer = rows.copy()
+    one_answer[:, 0] = 1.0
+    assert resampling.resample((fitting, one_answer, 1, key)).outcome is resampling.Outcome.FAILED
+    assert len(made) == 1
