@@ -1174,7 +1174,8 @@ def power_report(result) -> Report:
             ["Significance level", unit(result.alpha, 2), result.alpha]]
     if result.power is not None:
         rows.append([f"Power with N = {result.n_obs}", unit(result.power), result.power])
-    rows.append([f"Smallest N for power {unit(result.target_power, 2)}", str(result.required_n), result.required_n])
+    digits = next((d for d in range(2, 9) if round(result.target_power, d) == result.target_power), 9)
+    rows.append([f"Smallest N for power {unit(result.target_power, digits)}", str(result.required_n), result.required_n])
     table = _table("power", "Power and sample size", [("", "l"), ("Value", "r")], [r[:2] for r in rows],
                    f"Note: {result.note}." if result.note else None,
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
@@ -1308,12 +1309,23 @@ def montecarlo_report(result) -> Report:
                                                    ("Estimate bias %", "r"), ("SE bias %", "r")], rows,
                    f"Power: share of replications in which the parameter differs from zero at alpha {unit(result.alpha, 2)}; "
                    f"coverage: share of 95% Wald intervals that hold the population value (nominal 95%); bias: mean "
-                   f"estimate (or mean SE) against the population value (or the SD of the estimates). " + where,
+                   f"estimate (or mean SE) against the population value (or the SD of the estimates). "
+                   + _zero_population_words(result.parameters) + where,
                    values=(["Parameter", "Power", "Coverage", "Estimate relative bias", "SE relative bias"], values))
     return Report(ResultKind.POWER_SIMULATION,
                   f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
                   _notice([], _inadmissible_cautions([result])), tuple(lines), (table, *population),
                   warnings=few_replications(result.replications))
+
+
+def _zero_population_words(parameters) -> str:
+    """For parameters whose population value is 0 (a residual covariance by default), the 'power' column counts false
+    rejections and the relative bias is not defined: said where there are such parameters (hostile s20)."""
+    zero = [p for p in parameters if p.population == 0]
+    if not zero:
+        return ""
+    return (f"Where the population value is 0 ({len(zero)} parameter{'s' if len(zero) != 1 else ''}), the power column "
+            f"is the share of false rejections (nominal alpha) and the estimate bias is not defined. ")
 
 
 def _population_of(result) -> tuple[ReportTable, ...]:
