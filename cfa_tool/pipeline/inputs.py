@@ -2338,9 +2338,13 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         refuse_for_summary_statistics(spec, f"'{data}'")
         moments, _ = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
-        check_counting_rule(spec, build_parameter_table(spec))
-        return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0, {}, None,
-                           analysed=moments.analysed)
+        table = build_parameter_table(spec)
+        check_counting_rule(spec, table)
+        # the rows per parameter and the degrees of freedom, as the fit of the same file gives them (hostile s20)
+        small, small_notes = one_sample_size_problems(moments.n_obs, table.n_free, table.free_labels)
+        return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0, {}, None, notes=tuple(small_notes),
+                           problems=small, analysed=moments.analysed,
+                           degrees_of_freedom=moments_count(table) - table.n_free)
     spec, loaded, notes = read_inputs_with_notes(model, data, **read_options,
                                                  text_columns=(id_column,) if isinstance(id_column, str) else (),
                                                  chosen=chosen_columns(group, id_column, design=design))
