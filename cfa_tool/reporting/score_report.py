@@ -369,7 +369,7 @@ def item_sum_notes(result) -> list[Text]:
     if not result.item_sums:
         return []
     rule = result.item_sums[0].rule
-    share = f"{rule.least_share:.0%}".replace(".0%", "%")
+    share = share_words(rule.least_share)
     written = word_list(METHOD_LABELS[m] for m in ITEM_METHODS if m in result.methods)
     lines: list[Text] = [Note((
         f"Item sums and means ({written}): each factor's own items, each reverse-keyed item reversed as lowest + "
