@@ -20,7 +20,7 @@ from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANG
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, comparison_paragraph, design_sentence,
-                                          mcar_score_tests,
+                                          mcar_score_tests, reversed_loadings,
                                           invariance_paragraph, replication_paragraph)
 from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text, missing, num, p_phrase, p_value, short,
                                         signed, signed_num, unit, word_list)
@@ -839,6 +839,7 @@ def replication_report(replications) -> Report:
                  (f"the loose refit on {rep.validation}", rep.loose)]
         problems += _problem_lines(named)
         cautions += _caution_lines(named)
+        cautions += _reversed_loading_lines(rep)
         cal = _replication_figures(rep.calibration_result, rep.adjusted)
         total = rep.calibration_result.n_obs + rep.loose.n_obs
         rows = [[f"Calibration fit (N = {rep.calibration_result.n_obs})", f"{cal[0]:.3f}", str(cal[1]),
@@ -905,6 +906,18 @@ def replication_report(replications) -> Report:
     read = tuple(dict.fromkeys(n for rep in reps for n in getattr(rep, "notes", ())))  # as fit says them
     return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), split, tuple(tables), tuple(notes),
                   (GUIDE_NOTE, HIGH_STAKES_NOTE), replication_paragraph(replications), warnings=read)
+
+
+def _reversed_loading_lines(rep) -> list[str]:
+    """A caution, first, for each item whose loading changes sign between the samples (hostile s20: an item recoded in
+    one file made the test of one solution fail by a difference of 1.56 with no word why), as scores --from-fit names
+    an item coded the other way round."""
+    return [f"The standardized loading of {item} on {factor} is {unit(a, 2)} in the calibration sample "
+            f"({rep.calibration}) and {unit(b, 2)} in the validation sample ({rep.validation}): the item is probably "
+            f"coded the other way round in one of the files (a reverse-worded item recoded in one and not the other), "
+            f"and then the test of one solution fails for the coding, not the scale. What to try: check that item's "
+            f"coding in both files."
+            for (factor, item), a, b in reversed_loadings(rep)]
 
 
 #: how each sample's rows with gaps were used, and what that assumes (Little & Rubin 2002)
