@@ -1773,6 +1773,27 @@ def reversed_loadings(rep) -> list[tuple[tuple[str, str], float, float]]:
             if a * b < 0 and min(abs(a), abs(b)) >= REVERSED_LOADING_SIZE]
 
 
+def reversed_across_groups(result) -> list[tuple[tuple[str, str], str, float, str, float]]:
+    """((factor, item), first group, its loading, other group, its loading) of the standardized loadings of a grouped
+    fit (the configural model of an invariance ladder) whose sign in a group is the opposite of the first group's,
+    both at least :data:`REVERSED_LOADING_SIZE` in size: an item coded the other way round in one group."""
+    if not result.converged:
+        return []
+    first: dict = {}
+    found = []
+    for r in result.estimates:
+        if r.kind != "loading" or r.variables[1] not in result.observed or r.standardized is None:
+            continue
+        if r.variables not in first:
+            first[r.variables] = (r.group, r.standardized)
+            continue
+        group, a = first[r.variables]
+        b = r.standardized
+        if a * b < 0 and min(abs(a), abs(b)) >= REVERSED_LOADING_SIZE:
+            found.append((r.variables, group, a, r.group, b))
+    return found
+
+
 def _one_solution_sentence(rep) -> str:
     """The test of one solution in both samples (workflows.replication), or why it was not made."""
     t = rep.same_solution

@@ -20,7 +20,7 @@ from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANG
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, comparison_paragraph, design_sentence,
-                                          mcar_score_tests, reversed_loadings,
+                                          mcar_score_tests, reversed_across_groups, reversed_loadings,
                                           invariance_paragraph, replication_paragraph)
 from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text, missing, num, p_phrase, p_value, short,
                                         signed, signed_num, unit, word_list)
@@ -656,6 +656,16 @@ def _score_tests_mcar_note(result) -> list[Text]:
                   "at random."))]
 
 
+def _reversed_in_group_lines(configural, groups) -> list[str]:
+    """A caution, first, for each item whose configural loading has the opposite sign in a group (hostile s20: an
+    item recoded in one group ended the ladder in an inadmissible metric step with no word of the coding)."""
+    return [f"The standardized loading of {item} on {factor} is {unit(a, 2)} in group {written_group(g, groups)} and "
+            f"{unit(b, 2)} in group {written_group(h, groups)} in the configural model: the item is probably coded "
+            f"the other way round in one of the groups (a reverse-worded item recoded in some rows and not others), "
+            f"and no step that holds its loading equal can fit. What to try: check that item's coding in each group."
+            for (factor, item), g, a, h, b in reversed_across_groups(configural)]
+
+
 def invariance_report(result) -> Report:
     from cfa_tool.workflows.invariance import STOP_HOLDS, unsound_basis  # the ladder's own, loaded with it
 
@@ -785,6 +795,7 @@ def invariance_report(result) -> Report:
     first = result.steps[0].result
     # the design's caution first: it doubts every step's test, the verdicts among the warnings included
     warnings = (tuple(_design_caution_lines([(f"the {s.level} model", s.result) for s in result.steps]))
+                + tuple(_reversed_in_group_lines(first, result.groups))
                 + tuple(result.warnings) + tuple(_caution_lines([(f"the {result.steps[0].level} model", first)],
                                                                 poor_fit=False, small_groups=False))
                 # a later step's robust test that could not be computed: its dashes in the tables, said first
