@@ -189,10 +189,8 @@ def _precision_of(result, q) -> tuple[ScoreMethod | None, tuple]:
     """(the method, its scoring.quality.Precision per factor) of one group's scores: the first factor-score method
     written (the posterior means for ordinal items, their one method); (None, ()) for item sums and means alone,
     whose precision has its own table (:func:`item_sum_precision_table`)."""
-    from cfa_tool.scoring.quality import precision_of
-
-    method = next(iter(factor_methods(result.methods)), None)
-    return method, precision_of(q, method) if method is not None else ()
+    found = _precisions_of(result, q)
+    return found[0] if found else (None, ())
 
 
 def precision_table(result, k: int) -> ReportTable | None:
@@ -318,23 +316,38 @@ def precision_cautions(result) -> list[str]:
     """Factors whose scores' reliability is below what decisions about individuals usually need."""
     lines = []
     for q in result.quality:
-        method, precise = _precision_of(result, q)
         lines += _item_sum_cautions(result, q)
-        if method is None:
-            continue
-        words = f"{METHOD_LABELS[method]} scores"
-        if hasattr(q, "methods"):
-            found = [(p.factor, p.reliability, p.band_in_sd) for p in precise]
-        else:  # every scored factor, with its band where rows answered all its items
-            bands = {p.factor: p.band_in_sd for p in precise}
-            found = [(f, rel, bands.get(f)) for f, rel in zip(q.factors, q.reliability)]
-        low = [f"{factor} {unit(rel, 2, INDIVIDUAL_DECISIONS)}" + (f" (95% band about ±{num(band, 2)} SD of the factor)" if band is not None
-                                             else "") for factor, rel, band in found if rel < INDIVIDUAL_DECISIONS]
-        if low:
-            lines.append(f"The reliability of the {words}{_where(result, q)} is below the {unit(INDIVIDUAL_DECISIONS, 2)} that "
-                         f"decisions about individuals usually need (Nunnally & Bernstein 1994; common practice): "
-                         f"{', '.join(low)}.")
+        for method, precise in _precisions_of(result, q):
+            lines += _precision_caution(result, q, method, precise)
     return lines
+
+
+def _precisions_of(result, q) -> list[tuple[ScoreMethod, tuple]]:
+    """(method, its scoring.quality.Precision per factor) of every factor-score method written for one group (the
+    posterior means alone for ordinal items): each method's scores get their own caution (hostile s20: the Bartlett
+    scores of a bifactor model, reliability .02-.05, went unflagged beside regression scores named in the box)."""
+    from cfa_tool.scoring.quality import precision_of
+
+    methods = factor_methods(result.methods)
+    return [(m, precision_of(q, m)) for m in (methods if hasattr(q, "methods") else methods[:1])]
+
+
+def _precision_caution(result, q, method: ScoreMethod, precise: tuple) -> list[str]:
+    """The caution on one method's scores of one group whose reliability is below what decisions about individuals
+    usually need; [] when none is."""
+    if hasattr(q, "methods"):
+        found = [(p.factor, p.reliability, p.band_in_sd) for p in precise]
+    else:  # every scored factor, with its band where rows answered all its items
+        bands = {p.factor: p.band_in_sd for p in precise}
+        found = [(f, rel, bands.get(f)) for f, rel in zip(q.factors, q.reliability)]
+    low = [f"{factor} {unit(rel, 2, INDIVIDUAL_DECISIONS)}"
+           + (f" (95% band about ±{num(band, 2)} SD of the factor)" if band is not None else "")
+           for factor, rel, band in found if rel < INDIVIDUAL_DECISIONS]
+    if not low:
+        return []
+    return [f"The reliability of the {METHOD_LABELS[method]} scores{_where(result, q)} is below the "
+            f"{unit(INDIVIDUAL_DECISIONS, 2)} that decisions about individuals usually need (Nunnally & Bernstein 1994; "
+            f"common practice): {', '.join(low)}."]
 
 
 def _item_sums_of(result, q):
