@@ -5,6 +5,8 @@ from __future__ import annotations
 
 from dataclasses import replace
 
+import numpy as np
+
 from cfa_tool.numbers import user_number
 from cfa_tool.reporting import tables as T
 from cfa_tool.note_parts import WORDS, Command, Note, Text, joined, said
@@ -322,6 +324,27 @@ def precision_cautions(result) -> list[str]:
     return lines
 
 
+#: the size of a factor correlation in the model at or above which the scores of the two factors are said to measure
+#: nearly the same thing (a line of this tool, above the .85 to .90 that common practice reads as a sign that two
+#: factors are not distinct, Henseler, Ringle & Sarstedt 2015 for the HTMT, recalled)
+HARDLY_DISTINCT = 0.95
+
+
+def indistinct_cautions(result) -> list[str]:
+    """Pairs of scored factors whose correlation in the model is at least :data:`HARDLY_DISTINCT` in size, per group
+    (hostile s20: two factors correlating .998 were scored as two traits, their score columns correlating 1.000,
+    with the correlation said only inside the paragraph)."""
+    lines = []
+    for q in result.quality:
+        r = np.asarray(q.factor_correlations, dtype=float)
+        pairs = [(q.factors[i], q.factors[j], r[i, j]) for i in range(len(q.factors)) for j in range(i)
+                 if np.isfinite(r[i, j]) and abs(r[i, j]) >= HARDLY_DISTINCT]
+        for a, b, value in pairs:
+            lines.append(f"The factors {b} and {a} correlate {unit(value, 3)} in the model{_where(result, q)}: their "
+                         f"scores measure nearly the same thing, and read as two traits they mislead.")
+    return lines
+
+
 def _precisions_of(result, q) -> list[tuple[ScoreMethod, tuple]]:
     """(method, its scoring.quality.Precision per factor) of every factor-score method written for one group (the
     posterior means alone for ordinal items): each method's scores get their own caution (hostile s20: the Bartlett
@@ -634,4 +657,8 @@ def _with_precision_problems(result):
     said = tuple(Problem(ProblemKind.SCORES_LESS_RELIABLE, (), None, line,
                          "use the scores to compare groups and for research, not for decisions about one person.")
                  for line in precision_cautions(result))
+    said += tuple(Problem(ProblemKind.SCORED_FACTORS_HARDLY_DISTINCT, (), None, line,
+                          Note(("compare a model in which they are one factor", Command(" (cfa-tool compare)"),
+                                " before handing their scores out as two traits.")))
+                  for line in indistinct_cautions(result))
     return replace(result.fit, problems=tuple(result.fit.problems) + said) if said else result.fit
