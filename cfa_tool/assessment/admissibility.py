@@ -162,6 +162,9 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the scores: their reliability below what decisions about individuals usually need
     SCORES_LESS_RELIABLE = ("scores less reliable than decisions about individuals need", "less reliable scores",
                             False)
+    # not of the solution but of the scores: two scored factors whose correlation in the model is near 1, handed out
+    # as two traits while their scores measure nearly the same thing
+    SCORED_FACTORS_HARDLY_DISTINCT = ("scored factors hardly distinct", "hardly distinct", False)
     # not of a solution but of the rows a check screened: gaps that leave full-information ML's saturated model
     # without an estimate (pairs of items no row answers together, or too few answers together), which a fit stops at
     # (assessment.missingness.sparse_answers_problem)
@@ -450,6 +453,7 @@ class Problem:
             K.FACTOR_SCORES_LEFT_EMPTY: "factor scores left empty, as asked, for rows that answered none of the "
                                         "factor's items",
             K.SCORES_LESS_RELIABLE: "scores less reliable than decisions about individuals usually need",
+            K.SCORED_FACTORS_HARDLY_DISTINCT: "scores of factors that correlate nearly 1 in the model",
             K.SPARSE_ANSWERS: "rows with gaps that answer too few items together for the saturated model of "
                               "full-information ML",
             K.COPIED_ROWS: f"{v.split('.')[0]} rows identical in every column to earlier rows (kept in the analysis)",

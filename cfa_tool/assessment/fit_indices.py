@@ -202,6 +202,11 @@ def cfi_from(noncentrality: float, baseline_noncentrality: float) -> float:
 
 
 def cfi_value(chi_square: float, df: int, base_chi: float, base_df: int) -> float:
+    """CFI from the two tests (:func:`cfi_from`); not defined (NaN) for a model of 0 df, whose chi-square is 0 by
+    construction, as its TLI and RMSEA are not: a CFI of 1 there tests nothing (hostile s20: replicate, compare and
+    invariance printed 1.000, and a 'loose replication' at 1.000, for a just-identified model)."""
+    if df <= 0:
+        return float("nan")
     return cfi_from(chi_square - df, base_chi - base_df)
 
 

@@ -84,12 +84,9 @@ def run(args: argparse.Namespace) -> int:
         if files[-1:] and files[-1][0] == HALVES_FILE:  # the way to fit an edited draft on the confirmation half
             import shlex
 
-            from cfa_tool.options import Option
-
-            filters = f" {Option.KEEP.given(args.keep)}" if args.keep else ""
             files[-1] = files[-1][:2] + (f"{files[-1][2]}; fit an edited model on the confirmation half alone with "
-                                         f"cfa-tool fit MODEL --data {shlex.quote(args.data)}{filters} {HALF} "
-                                         f"{shlex.quote(args.halves_file)} confirmation",)
+                                         f"cfa-tool fit MODEL --data {shlex.quote(args.data)}{O.reading_words(args)} "
+                                         f"{HALF} {shlex.quote(args.halves_file)} confirmation",)
     emit_report(args, result, [args.data, args.target, args.answers], files)  # one report for every format
     if args.draft and not result.exploration.draft.usable:
         say(args, "The draft model declares no factor (too few items per factor); it holds comments only")

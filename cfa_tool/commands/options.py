@@ -218,6 +218,27 @@ def reading_args(args: argparse.Namespace) -> dict:
     return given | {"missing_codes": codes, "keep": kept_rows(args)}
 
 
+def reading_words(args: argparse.Namespace) -> str:
+    """How the command line asked the data file to be read, as options to type again (Option.given, with a space
+    before each): --sheet, --names-row, --first-data-row, --missing-codes, --rename and --keep, so that a command
+    the report prints for the same file reads it as this run did (hostile s20: explore's follow-up fit command
+    carried --keep only, and run as shown read the missing codes as answers, silently)."""
+    from cfa_tool.numbers import user_number
+    from cfa_tool.options import Option
+
+    def code(value) -> str:
+        if isinstance(value, str):
+            return f'"{value}"' if "," in value else value
+        return user_number(value)
+
+    codes = getattr(args, "missing_codes", ())
+    given = ((Option.SHEET, getattr(args, "sheet", None)), (Option.NAMES_ROW, getattr(args, "names_row", None)),
+             (Option.FIRST_DATA_ROW, getattr(args, "first_data_row", None)),
+             (Option.MISSING_CODES, ",".join(code(v) for v in codes) if codes else None),
+             (Option.RENAME, getattr(args, "rename", None) or None), (Option.KEEP, getattr(args, "keep", None) or None))
+    return "".join(f" {option.given(value)}" for option, value in given if value is not None)
+
+
 #: replicate's options that read the --validation file, each with the option that reads --data instead
 VALIDATION_READING = (("validation_names_row", "--validation-names-row", "names the row of column names of",
                        "the row of --data is given with --names-row"),

@@ -547,8 +547,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     for g, ((label, m), gm) in enumerate(zip(groups, likelihood.groups)):
         sigma = mats[g].implied_covariance()
         # shared below; unweighted rows are those the sample moments were computed from
-        whitened = (whitened_rows(gm.rows, (gm.mean, gm.covariance) if gm.design is None else None)
-                    if options.diagnostics and gm.rows is not None else None)
+        rows = gm.rows if gm.rows is not None else _complete_pattern_rows(likelihood, g, est.auxiliary)
+        whitened = (whitened_rows(rows, (gm.mean, gm.covariance) if gm.design is None else None)
+                    if options.diagnostics and rows is not None else None)
         share = (None if not est.converged else est.auxiliary.group_chi_square(g) if est.auxiliary is not None else
                  likelihood.n_total * likelihood.weights[g] * likelihood.group_discrepancy(theta, g))
         group_results.append(
@@ -564,7 +565,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 sample_mean=gm.mean,
                 implied_mean=mats[g].implied_mean() if means else None,
                 latent_covariance=mats[g].latent_covariance(),
-                normality=mardia(gm.rows, whitened, _frequency_weights(gm)) if whitened is not None else None,
+                normality=mardia(rows, whitened, _frequency_weights(gm)) if whitened is not None else None,
                 **_group_diagnostics(mats[g], table, gm, _answering_items(m, est.auxiliary.answered[g])
                                      if est.auxiliary is not None else m, sigma,
                                      est.converged and (options.diagnostics or options.reliability),
@@ -672,6 +673,17 @@ def _entry_standardization(model: StructuredModel) -> list:
                                                                                model.m)))
         model.derived["entry standardization"] = out
     return model.derived["entry standardization"]
+
+
+def _complete_pattern_rows(likelihood, g: int, auxiliary) -> np.ndarray | None:
+    """Group ``g``'s rows under a full-information fit when every one of them is complete (one pattern, no gap), for
+    Mardia's tests, which need complete rows (hostile s20: a full-information fit of complete rows said they need
+    complete rows and left them out); None where a row has a gap or missing-data helpers join the items."""
+    patterns = getattr(likelihood, "patterns", None)
+    if patterns is None or auxiliary is not None:
+        return None
+    rows = patterns[g].rows
+    return rows if rows is not None and not np.isnan(rows).any() else None
 
 
 def _frequency_weights(gm: GroupMoments) -> np.ndarray | None:

@@ -537,6 +537,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                               f"raw data")
         spec = load_spec(model)
         refuse_ordinal_for_summary(spec, ordinal, ordinal_estimator)
+        refuse_means_for_summary(spec)
         refuse_for_summary_statistics(spec, "a covariance matrix" if covariance is not None else f"'{data}'")
         if covariance is not None:
             if data is not None:
@@ -2118,6 +2119,19 @@ def refuse_ordinal_for_summary(spec: Spec, ordinal, ordinal_estimator) -> None:
                          f"give the rows of answers", first.location, spec.source_line(first.location))
 
 
+def refuse_means_for_summary(spec: Spec) -> None:
+    """A statement about an intercept or a factor mean cannot apply to summary statistics, which are fitted by their
+    covariances alone (no groups, no full-information ML): an error at the statement that says so, rather than the
+    general error's advice to give groups or full-information ML, both refused for summary statistics (hostile s20)."""
+    from cfa_tool.language.checks import all_refs
+
+    ref = next((r for r in all_refs(spec) if r.kind in ("intercept", "mean")), None)
+    if ref is not None:
+        raise ModelError(f"{ref}: intercepts and factor means are estimated only in a fit with a mean structure, and "
+                         f"summary statistics are fitted by their covariances alone; remove the statement, or give "
+                         f"the rows of answers", ref.location, spec.source_line(ref.location))
+
+
 def ordinal_items_of(spec: Spec, ordinal) -> set[str]:
     items = {n.text for n in spec.ordinal}
     if ordinal is not None and not isinstance(ordinal, str) and not (
@@ -2320,12 +2334,17 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
         spec = load_spec(model)
         refuse_ordinal_for_summary(spec, ordinal, None)
+        refuse_means_for_summary(spec)
         refuse_for_summary_statistics(spec, f"'{data}'")
         moments, _ = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
-        check_counting_rule(spec, build_parameter_table(spec))
-        return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0, {}, None,
-                           analysed=moments.analysed)
+        table = build_parameter_table(spec)
+        check_counting_rule(spec, table)
+        # the rows per parameter and the degrees of freedom, as the fit of the same file gives them (hostile s20)
+        small, small_notes = one_sample_size_problems(moments.n_obs, table.n_free, table.free_labels)
+        return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0, {}, None, notes=tuple(small_notes),
+                           problems=small, analysed=moments.analysed,
+                           degrees_of_freedom=moments_count(table) - table.n_free)
     spec, loaded, notes = read_inputs_with_notes(model, data, **read_options,
                                                  text_columns=(id_column,) if isinstance(id_column, str) else (),
                                                  chosen=chosen_columns(group, id_column, design=design))

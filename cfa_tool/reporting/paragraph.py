@@ -1758,6 +1758,42 @@ def _loading_pairs(rep) -> list[tuple[tuple[str, str], float, float]]:
     return [(key, value, validation[key]) for key, value in calibration.items() if key in validation]
 
 
+#: the least size of a standardized loading, in both samples, whose change of sign is named as an item coded the
+#: other way round (a rule of thumb of this tool: loadings below .20 in size are commonly read as weak, and their sign
+#: may change by chance)
+REVERSED_LOADING_SIZE = 0.20
+
+
+def reversed_loadings(rep) -> list[tuple[tuple[str, str], float, float]]:
+    """((factor, item), calibration, validation) of the standardized loadings that have opposite signs in the two
+    samples, both at least :data:`REVERSED_LOADING_SIZE` in size (none when the loose refit did not converge)."""
+    if not rep.loose.converged:
+        return []
+    return [(key, a, b) for key, a, b in _loading_pairs(rep)
+            if a * b < 0 and min(abs(a), abs(b)) >= REVERSED_LOADING_SIZE]
+
+
+def reversed_across_groups(result) -> list[tuple[tuple[str, str], str, float, str, float]]:
+    """((factor, item), first group, its loading, other group, its loading) of the standardized loadings of a grouped
+    fit (the configural model of an invariance ladder) whose sign in a group is the opposite of the first group's,
+    both at least :data:`REVERSED_LOADING_SIZE` in size: an item coded the other way round in one group."""
+    if not result.converged:
+        return []
+    first: dict = {}
+    found = []
+    for r in result.estimates:
+        if r.kind != "loading" or r.variables[1] not in result.observed or r.standardized is None:
+            continue
+        if r.variables not in first:
+            first[r.variables] = (r.group, r.standardized)
+            continue
+        group, a = first[r.variables]
+        b = r.standardized
+        if a * b < 0 and min(abs(a), abs(b)) >= REVERSED_LOADING_SIZE:
+            found.append((r.variables, group, a, r.group, b))
+    return found
+
+
 def _one_solution_sentence(rep) -> str:
     """The test of one solution in both samples (workflows.replication), or why it was not made."""
     t = rep.same_solution
@@ -1797,6 +1833,12 @@ def _replication_sentences(rep, lead: str, test: bool = True) -> list[str]:
         (factor, item), a, b = max(pairs, key=lambda k: abs(k[2] - k[1]))
         parts.append(f"Standardized loadings differed between the samples by at most {unit(abs(b - a), 2)} "
                      f"({_name(item)} on {_name(factor)}: {unit(a, 2)} and {unit(b, 2)}).")
+        reversed_ = reversed_loadings(rep)
+        if reversed_:  # said in the manuscript too: the test above fails for the coding (hostile s20)
+            parts.append("The loading of " + _list([f"{_name(item)} on {_name(factor)}" for (factor, item), _, _
+                                                    in reversed_])
+                         + " had opposite signs in the two samples, as an item coded the other way round in one of "
+                           "them would.")
     return [_capital(p) for p in parts]
 
 

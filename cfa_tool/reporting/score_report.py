@@ -5,6 +5,8 @@ from __future__ import annotations
 
 from dataclasses import replace
 
+import numpy as np
+
 from cfa_tool.numbers import user_number
 from cfa_tool.reporting import tables as T
 from cfa_tool.note_parts import WORDS, Command, Note, Text, joined, said
@@ -189,10 +191,8 @@ def _precision_of(result, q) -> tuple[ScoreMethod | None, tuple]:
     """(the method, its scoring.quality.Precision per factor) of one group's scores: the first factor-score method
     written (the posterior means for ordinal items, their one method); (None, ()) for item sums and means alone,
     whose precision has its own table (:func:`item_sum_precision_table`)."""
-    from cfa_tool.scoring.quality import precision_of
-
-    method = next(iter(factor_methods(result.methods)), None)
-    return method, precision_of(q, method) if method is not None else ()
+    found = _precisions_of(result, q)
+    return found[0] if found else (None, ())
 
 
 def precision_table(result, k: int) -> ReportTable | None:
@@ -318,23 +318,59 @@ def precision_cautions(result) -> list[str]:
     """Factors whose scores' reliability is below what decisions about individuals usually need."""
     lines = []
     for q in result.quality:
-        method, precise = _precision_of(result, q)
         lines += _item_sum_cautions(result, q)
-        if method is None:
-            continue
-        words = f"{METHOD_LABELS[method]} scores"
-        if hasattr(q, "methods"):
-            found = [(p.factor, p.reliability, p.band_in_sd) for p in precise]
-        else:  # every scored factor, with its band where rows answered all its items
-            bands = {p.factor: p.band_in_sd for p in precise}
-            found = [(f, rel, bands.get(f)) for f, rel in zip(q.factors, q.reliability)]
-        low = [f"{factor} {unit(rel, 2, INDIVIDUAL_DECISIONS)}" + (f" (95% band about ±{num(band, 2)} SD of the factor)" if band is not None
-                                             else "") for factor, rel, band in found if rel < INDIVIDUAL_DECISIONS]
-        if low:
-            lines.append(f"The reliability of the {words}{_where(result, q)} is below the {unit(INDIVIDUAL_DECISIONS, 2)} that "
-                         f"decisions about individuals usually need (Nunnally & Bernstein 1994; common practice): "
-                         f"{', '.join(low)}.")
+        for method, precise in _precisions_of(result, q):
+            lines += _precision_caution(result, q, method, precise)
     return lines
+
+
+#: the size of a factor correlation in the model at or above which the scores of the two factors are said to measure
+#: nearly the same thing (a line of this tool, above the .85 to .90 that common practice reads as a sign that two
+#: factors are not distinct, Henseler, Ringle & Sarstedt 2015 for the HTMT, recalled)
+HARDLY_DISTINCT = 0.95
+
+
+def indistinct_cautions(result) -> list[str]:
+    """Pairs of scored factors whose correlation in the model is at least :data:`HARDLY_DISTINCT` in size, per group
+    (hostile s20: two factors correlating .998 were scored as two traits, their score columns correlating 1.000,
+    with the correlation said only inside the paragraph)."""
+    lines = []
+    for q in result.quality:
+        r = np.asarray(q.factor_correlations, dtype=float)
+        pairs = [(q.factors[i], q.factors[j], r[i, j]) for i in range(len(q.factors)) for j in range(i)
+                 if np.isfinite(r[i, j]) and abs(r[i, j]) >= HARDLY_DISTINCT]
+        for a, b, value in pairs:
+            lines.append(f"The factors {b} and {a} correlate {unit(value, 3)} in the model{_where(result, q)}: their "
+                         f"scores measure nearly the same thing, and read as two traits they mislead.")
+    return lines
+
+
+def _precisions_of(result, q) -> list[tuple[ScoreMethod, tuple]]:
+    """(method, its scoring.quality.Precision per factor) of every factor-score method written for one group (the
+    posterior means alone for ordinal items): each method's scores get their own caution (hostile s20: the Bartlett
+    scores of a bifactor model, reliability .02-.05, went unflagged beside regression scores named in the box)."""
+    from cfa_tool.scoring.quality import precision_of
+
+    methods = factor_methods(result.methods)
+    return [(m, precision_of(q, m)) for m in (methods if hasattr(q, "methods") else methods[:1])]
+
+
+def _precision_caution(result, q, method: ScoreMethod, precise: tuple) -> list[str]:
+    """The caution on one method's scores of one group whose reliability is below what decisions about individuals
+    usually need; [] when none is."""
+    if hasattr(q, "methods"):
+        found = [(p.factor, p.reliability, p.band_in_sd) for p in precise]
+    else:  # every scored factor, with its band where rows answered all its items
+        bands = {p.factor: p.band_in_sd for p in precise}
+        found = [(f, rel, bands.get(f)) for f, rel in zip(q.factors, q.reliability)]
+    low = [f"{factor} {unit(rel, 2, INDIVIDUAL_DECISIONS)}"
+           + (f" (95% band about ±{num(band, 2)} SD of the factor)" if band is not None else "")
+           for factor, rel, band in found if rel < INDIVIDUAL_DECISIONS]
+    if not low:
+        return []
+    return [f"The reliability of the {METHOD_LABELS[method]} scores{_where(result, q)} is below the "
+            f"{unit(INDIVIDUAL_DECISIONS, 2)} that decisions about individuals usually need (Nunnally & Bernstein 1994; "
+            f"common practice): {', '.join(low)}."]
 
 
 def _item_sums_of(result, q):
@@ -369,7 +405,7 @@ def item_sum_notes(result) -> list[Text]:
     if not result.item_sums:
         return []
     rule = result.item_sums[0].rule
-    share = f"{rule.least_share:.0%}".replace(".0%", "%")
+    share = share_words(rule.least_share)
     written = word_list(METHOD_LABELS[m] for m in ITEM_METHODS if m in result.methods)
     lines: list[Text] = [Note((
         f"Item sums and means ({written}): each factor's own items, each reverse-keyed item reversed as lowest + "
@@ -621,4 +657,8 @@ def _with_precision_problems(result):
     said = tuple(Problem(ProblemKind.SCORES_LESS_RELIABLE, (), None, line,
                          "use the scores to compare groups and for research, not for decisions about one person.")
                  for line in precision_cautions(result))
+    said += tuple(Problem(ProblemKind.SCORED_FACTORS_HARDLY_DISTINCT, (), None, line,
+                          Note(("compare a model in which they are one factor", Command(" (cfa-tool compare)"),
+                                " before handing their scores out as two traits.")))
+                  for line in indistinct_cautions(result))
     return replace(result.fit, problems=tuple(result.fit.problems) + said) if said else result.fit

@@ -20,7 +20,7 @@ from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANG
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, comparison_paragraph, design_sentence,
-                                          mcar_score_tests,
+                                          mcar_score_tests, reversed_across_groups, reversed_loadings,
                                           invariance_paragraph, replication_paragraph)
 from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text, missing, num, p_phrase, p_value, short,
                                         signed, signed_num, unit, word_list)
@@ -656,6 +656,16 @@ def _score_tests_mcar_note(result) -> list[Text]:
                   "at random."))]
 
 
+def _reversed_in_group_lines(configural, groups) -> list[str]:
+    """A caution, first, for each item whose configural loading has the opposite sign in a group (hostile s20: an
+    item recoded in one group ended the ladder in an inadmissible metric step with no word of the coding)."""
+    return [f"The standardized loading of {item} on {factor} is {unit(a, 2)} in group {written_group(g, groups)} and "
+            f"{unit(b, 2)} in group {written_group(h, groups)} in the configural model: the item is probably coded "
+            f"the other way round in one of the groups (a reverse-worded item recoded in some rows and not others), "
+            f"and no step that holds its loading equal can fit. What to try: check that item's coding in each group."
+            for (factor, item), g, a, h, b in reversed_across_groups(configural)]
+
+
 def invariance_report(result) -> Report:
     from cfa_tool.workflows.invariance import STOP_HOLDS, unsound_basis  # the ladder's own, loaded with it
 
@@ -785,6 +795,7 @@ def invariance_report(result) -> Report:
     first = result.steps[0].result
     # the design's caution first: it doubts every step's test, the verdicts among the warnings included
     warnings = (tuple(_design_caution_lines([(f"the {s.level} model", s.result) for s in result.steps]))
+                + tuple(_reversed_in_group_lines(first, result.groups))
                 + tuple(result.warnings) + tuple(_caution_lines([(f"the {result.steps[0].level} model", first)],
                                                                 poor_fit=False, small_groups=False))
                 # a later step's robust test that could not be computed: its dashes in the tables, said first
@@ -839,6 +850,7 @@ def replication_report(replications) -> Report:
                  (f"the loose refit on {rep.validation}", rep.loose)]
         problems += _problem_lines(named)
         cautions += _caution_lines(named)
+        cautions += _reversed_loading_lines(rep)
         cal = _replication_figures(rep.calibration_result, rep.adjusted)
         total = rep.calibration_result.n_obs + rep.loose.n_obs
         rows = [[f"Calibration fit (N = {rep.calibration_result.n_obs})", f"{cal[0]:.3f}", str(cal[1]),
@@ -905,6 +917,18 @@ def replication_report(replications) -> Report:
     read = tuple(dict.fromkeys(n for rep in reps for n in getattr(rep, "notes", ())))  # as fit says them
     return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), split, tuple(tables), tuple(notes),
                   (GUIDE_NOTE, HIGH_STAKES_NOTE), replication_paragraph(replications), warnings=read)
+
+
+def _reversed_loading_lines(rep) -> list[str]:
+    """A caution, first, for each item whose loading changes sign between the samples (hostile s20: an item recoded in
+    one file made the test of one solution fail by a difference of 1.56 with no word why), as scores --from-fit names
+    an item coded the other way round."""
+    return [f"The standardized loading of {item} on {factor} is {unit(a, 2)} in the calibration sample "
+            f"({rep.calibration}) and {unit(b, 2)} in the validation sample ({rep.validation}): the item is probably "
+            f"coded the other way round in one of the files (a reverse-worded item recoded in one and not the other), "
+            f"and then the test of one solution fails for the coding, not the scale. What to try: check that item's "
+            f"coding in both files."
+            for (factor, item), a, b in reversed_loadings(rep)]
 
 
 #: how each sample's rows with gaps were used, and what that assumes (Little & Rubin 2002)
@@ -1174,7 +1198,8 @@ def power_report(result) -> Report:
             ["Significance level", unit(result.alpha, 2), result.alpha]]
     if result.power is not None:
         rows.append([f"Power with N = {result.n_obs}", unit(result.power), result.power])
-    rows.append([f"Smallest N for power {unit(result.target_power, 2)}", str(result.required_n), result.required_n])
+    digits = next((d for d in range(2, 9) if round(result.target_power, d) == result.target_power), 9)
+    rows.append([f"Smallest N for power {unit(result.target_power, digits)}", str(result.required_n), result.required_n])
     table = _table("power", "Power and sample size", [("", "l"), ("Value", "r")], [r[:2] for r in rows],
                    f"Note: {result.note}." if result.note else None,
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
@@ -1308,12 +1333,23 @@ def montecarlo_report(result) -> Report:
                                                    ("Estimate bias %", "r"), ("SE bias %", "r")], rows,
                    f"Power: share of replications in which the parameter differs from zero at alpha {unit(result.alpha, 2)}; "
                    f"coverage: share of 95% Wald intervals that hold the population value (nominal 95%); bias: mean "
-                   f"estimate (or mean SE) against the population value (or the SD of the estimates). " + where,
+                   f"estimate (or mean SE) against the population value (or the SD of the estimates). "
+                   + _zero_population_words(result.parameters) + where,
                    values=(["Parameter", "Power", "Coverage", "Estimate relative bias", "SE relative bias"], values))
     return Report(ResultKind.POWER_SIMULATION,
                   f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
                   _notice([], _inadmissible_cautions([result])), tuple(lines), (table, *population),
                   warnings=few_replications(result.replications))
+
+
+def _zero_population_words(parameters) -> str:
+    """For parameters whose population value is 0 (a residual covariance by default), the 'power' column counts false
+    rejections and the relative bias is not defined: said where there are such parameters (hostile s20)."""
+    zero = [p for p in parameters if p.population == 0]
+    if not zero:
+        return ""
+    return (f"Where the population value is 0 ({len(zero)} parameter{'s' if len(zero) != 1 else ''}), the power column "
+            f"is the share of false rejections (nominal alpha) and the estimate bias is not defined. ")
 
 
 def _population_of(result) -> tuple[ReportTable, ...]:

@@ -13,7 +13,8 @@ from cfa_tool.pipeline.inputs import (_described, rows_named, _no_group_notes, c
                                       data_problems, odd_values_named, reference_group_applies, reference_note,
                                       with_missing_reading,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
-                                      refuse_ordinal_for_summary, refuse_row_options, summary_source, with_design)
+                                      refuse_means_for_summary, refuse_ordinal_for_summary, refuse_row_options,
+                                      summary_source, with_design)
 from cfa_tool.assessment.admissibility import solution_first
 from cfa_tool.data.answer_words import (code_answer_words, coding_json, refuse_different_codings,
                                         refuse_for_summary_statistics)
@@ -152,6 +153,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         refuse_row_options(f"'{data}'", sheet, missing_codes, keep, group, names_row=names_row, first_data_row=first_data_row, rename=rename)
         for spec in specs:
             refuse_ordinal_for_summary(spec, ordinal, None)  # an estimator without ordinal items is refused above
+            refuse_means_for_summary(spec)
         if design is not None:
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")

@@ -149,8 +149,11 @@ class ExploreResult(Presentable):
             text += ("# The answers recorded as words, coded as the answers file said:\n"
                      + "".join(line + "\n" for line in self.answer_statements))
         if self.requested is None and self._middle_count() == 0:  # the one factor shown for inspection only
-            text = ("# No factor was recommended: the three rules for the number of factors gave 0, so these items may\n"
-                    "# share no common factor. This one-factor draft is for inspection only.\n") + text
+            count = self.exploration.count  # each rule's count as the report gives it (hostile s20: one rule gave 2)
+            rules = "".join(f"#   {RULE_WORDS[r]}: {count.suggestion(r)}\n" for r in count.combined)
+            text = ("# No factor was recommended: the middle value of the three rules for the number of factors was 0:\n"
+                    + rules + "# These items may share no common factor. This one-factor draft is for inspection only.\n"
+                    ) + text
         return text
 
     def _middle_count(self) -> int:

@@ -18,6 +18,7 @@ from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
 from cfa_tool.errors import OptionError, clipped
+from cfa_tool.numbers import user_number
 from cfa_tool.language.spec import Spec
 from cfa_tool.views import Presentable
 
@@ -113,6 +114,10 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
         n_obs = check.observations(n_obs, "the sample size", minimum=2)
     alpha = check.probability("alpha (the significance level)", alpha)
     target_power = check.probability("the target power", target_power)
+    if target_power <= alpha:  # the test rejects at rate alpha or more at every N (hostile s20: N = 3 was 'found')
+        raise OptionError(f"the target power ({user_number(target_power)}) is not above the significance level "
+                          f"({user_number(alpha)}): the test rejects at least that often at any sample size, so no "
+                          f"sample size is needed for it; give a target above {user_number(alpha)} (.80 is common practice)")
     eps0, epsa = TESTS[test]
     eps0 = eps0 if rmsea_null is None else check.real_number("the RMSEA of the null hypothesis", rmsea_null, 0.0, 1.0, open_high=True)
     epsa = epsa if rmsea_alt is None else check.real_number("the RMSEA of the alternative", rmsea_alt, 0.0, 1.0, open_high=True)

@@ -177,11 +177,13 @@ def standardized_population(table: ParameterTable, reverse_keyed: frozenset = fr
 
 
 def _defaults_beside_given(table: ParameterTable, model: StructuredModel, theta: np.ndarray, open_: np.ndarray,
-                           target: np.ndarray, standardized_target: np.ndarray) -> np.ndarray:
+                           target: np.ndarray, standardized_target: np.ndarray, spec_source: str) -> np.ndarray:
     """With some values given in the model file, the defaulted ones follow the factor variances in
     force: a loading keeps its standardized default, a factor covariance its default correlation,
-    and each residual variance makes its item's variance 1.  Only parameters that are one matrix
-    entry each (not tied to others by 'equal' or effects coding) are adjusted."""
+    and each residual variance makes its item's variance 1 (an error where the given values leave it
+    nothing: hostile s20 found a silent floor of 0.1 beside a report saying item variances were 1).
+    Only parameters that are one matrix entry each (not tied to others by 'equal' or effects coding)
+    are adjusted."""
     codes, rows, cols = table.entry_arrays()
     uses = np.bincount([t[0] for par in table.parameters for t in par.terms], minlength=table.n_free)
     simple = {}
@@ -206,7 +208,14 @@ def _defaults_beside_given(table: ParameterTable, model: StructuredModel, theta:
             theta[k] = 0.0
         common = np.diag(model.implied(theta))
         for k, e in residual:
-            theta[k] = max(target_sd[rows[e]] ** 2 - common[rows[e]], 0.1)
+            theta[k] = target_sd[rows[e]] ** 2 - common[rows[e]]
+    for k, e in residual:  # the item's variance 1 cannot hold what the given values make its factors explain
+        if theta[k] <= 0:
+            item = table.observed[rows[e]]
+            raise ModelError(f"{spec_source}: with the values the model file gives, the factors of item '{printable(item)}' "
+                             f"explain {common[rows[e]]:.2f} of its variance, more than the 1 its standardized default "
+                             f"allows, so its default residual variance would be {theta[k]:.2f}; give the population value of "
+                             f"variance({printable(item)}) with a 'start' statement, or smaller loadings")
     return theta
 
 
@@ -314,6 +323,7 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
     if fitted is not None:
         return _population_from_fit(spec, fitted)
     one_group_only(spec, "the simulation draws rows of one group")
+    _no_factor_without_variance(spec)
     table = build_parameter_table(spec)
     model = StructuredModel(table)
     given_values_possible(spec, table, given_entries(table))  # at their statements, before any default
@@ -341,10 +351,16 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
         raise OptionError("the model's structure could not be given default population values (the model may not be "
                           "identified); give them with 'start' statements")
     theta = np.where(np.isnan(given), est.theta, given)
+    # a defaulted residual covariance is 0 exactly, not the fit's rounding of it (hostile s20: -4.2e-18 made an
+    # estimate bias of 1e17 percent)
+    codes, rows, cols = table.entry_arrays()
+    for par, code, r, c in zip(table.parameters, codes, rows, cols):
+        if code == 3 and r != c and par.free and len(par.terms) == 1 and np.isnan(given[par.terms[0][0]]):
+            theta[par.terms[0][0]] = 0.0
     defaulted = [table.free_labels[k] for k in range(table.n_free) if np.isnan(given[k])]
     if not np.isnan(given).all():
         theta = _defaults_beside_given(table, model, theta, np.isnan(given), target,
-                                       standardized_entries(table, model, est.theta))
+                                       standardized_entries(table, model, est.theta), spec.source)
     beyond_bounds(spec, table, theta, given)
     _defaults_held_apart(spec, table, model, theta, given)
     given_values_possible(spec, table, model.entry_values(theta))  # a covariance beside the variances it met
@@ -353,6 +369,22 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
         raise OptionError("the population values imply a covariance matrix that is not positive definite or not finite "
                           "(check the model's fixed and start values for impossible ones)")
     return Population(spec, table, theta, sigma, tuple(defaulted))
+
+
+def _no_factor_without_variance(spec: Spec) -> None:
+    """Refuse a population in which a factor below no other has variance 0 ('start variance(f) = 0'), as the model
+    language refuses 'fix variance(f) = 0': such a factor measures nothing, and the defaults of its loadings, set on
+    the standardized metric through the factor's SD, would be divided by 0 (hostile s20: loadings of 700,000 and a
+    power table of zeros).  A higher-order factor's indicators may have a residual variance of 0."""
+    from cfa_tool.language.checks import exogenous_factors
+
+    top = set(exogenous_factors(spec))
+    for setting in spec.starts:
+        for ref in setting.refs:
+            if ref.kind == "variance" and setting.value == 0 and len(set(ref.names)) == 1 and ref.names[0] in top:
+                raise ModelError(f"{ref} is given a population value of 0: a factor without variance measures nothing, "
+                                 f"and the simulated items would not measure it; give it a positive value (1 sets the "
+                                 f"factor's scale) or remove the statement", ref.location, spec.source_line(ref.location))
 
 
 def _defaults_held_apart(spec: Spec, table: ParameterTable, model: StructuredModel, theta: np.ndarray,

@@ -17,6 +17,7 @@ import pytest
 
 from cfa_tool.cli import main
 from cfa_tool.scoring.methods import Unscored
+from cfa_tool.reporting.score_words import share_words
 from tests.commands.test_cli import DATA, MODEL
 
 FACTORS = {"punctuality": ["on_time", "short_wait", "accurate_info", "easy_transfer"],
@@ -91,7 +92,7 @@ def test_sums_and_means_written_are_pandas_arithmetic(files, capsys, share):
     assert "_item_sum_se" not in ",".join(written.columns)  # standard errors are the factor scores' alone
     # the rule and the rows prorated are said in the report, with the omega beside the methods
     assert "Item sum ω" in text and "rest on some of a factor's items (prorated)" in text
-    assert f"at least {(share or 0.5):.0%}" in text and "short_wait on punctuality, on 1 to 5" in text
+    assert f"at least {share_words(share or 0.5)} of" in text and "short_wait on punctuality, on 1 to 5" in text
     assert ("common-practice default" in text) is (share is None)
 
 

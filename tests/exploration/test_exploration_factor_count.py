@@ -16,6 +16,7 @@ import pytest
 
 from cfa_tool.exploration import CountNote, CountRule, count_factors, from_covariance
 from cfa_tool.exploration.factor_count import average_partial, random_correlations, reduced
+from cfa_tool.workflows.explore import RULE_WORDS
 from tests.conftest import simulate_cfa
 
 
@@ -139,7 +140,12 @@ def test_no_structure_is_no_factor_above_chance():
     explored = explore(frame, replications=50)
     reasons = explored.reasons()
     assert reasons[0].startswith("No factor recommended: the middle value of three rules is 0 (")
-    assert explored.draft_text.startswith("# No factor was recommended: the three rules")  # the draft says so too
+    # the draft says so too, with each rule's count as the report gives it (hostile s20: 'the three rules gave 0'
+    # where one of them gave 2)
+    assert explored.draft_text.startswith("# No factor was recommended: the middle value of the three rules")
+    count = explored.exploration.count
+    for rule in count.combined:
+        assert f"#   {RULE_WORDS[rule]}: {count.suggestion(rule)}\n" in explored.draft_text
     assert not any("one more factor" in line or "The recommended solution" in line for line in reasons)
 
 

@@ -108,7 +108,9 @@ def test_monte_carlo_power_agrees_with_the_analytic_value():
     from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood
     from cfa_tool.model.implied import StructuredModel
 
-    spec = parse_model(POPULATION + "start variance(f), variance(g) = 1\n")  # a factor correlation of .15
+    # a factor correlation of .15; with factor variances 1 the markers' items (loading 1) have no variance left for
+    # a residual within the default item variance 1, so theirs are given (the value the default once took silently)
+    spec = parse_model(POPULATION + "start variance(f), variance(g) = 1\nstart variance(y1), variance(y5) = 0.1\n")
     population = population_from_spec(spec)
     n = 150
     model = StructuredModel(population.table)
@@ -134,7 +136,7 @@ def test_power_by_sample_size_agrees_with_the_analytic_values():
     from cfa_tool.model.implied import StructuredModel
     from cfa_tool.workflows.montecarlo import PowerCurve
 
-    spec = parse_model(POPULATION + "start variance(f), variance(g) = 1\n")
+    spec = parse_model(POPULATION + "start variance(f), variance(g) = 1\nstart variance(y1), variance(y5) = 0.1\n")
     population = population_from_spec(spec)
     model = StructuredModel(population.table)
     k = population.table.free_labels.index("covariance(f, g)")

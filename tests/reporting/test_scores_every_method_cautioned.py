@@ -1,0 +1,35 @@
+"""Every factor-score method written gets its own caution when its scores are less reliable than decisions about
+individuals need (hostile trial s20: with --method regression,bartlett on the bundled bifactor model, the box named the
+regression scores only, while the Bartlett scores written beside them had reliabilities of .02-.05)."""
+
+from __future__ import annotations
+
+from cfa_tool.resources import resource_dir
+from tests.conftest import run_cli
+
+
+def _box(out: str) -> str:
+    """The first box of the report, its borders left out."""
+    lines = []
+    for line in out.splitlines():
+        lines.append(line)
+        if line[:1] in ("\u2570", "\u2517"):
+            break
+    return " ".join(" ".join(lines).replace("\u2502", " ").replace("\u2503", " ").split())
+
+
+def test_each_method_is_cautioned_in_the_first_box(tmp_path, capsys, rider_demo):
+    data = tmp_path / "rider.csv"
+    rider_demo.to_csv(data, index=False)
+    model = resource_dir("models") / "rider_bifactor.cfa"
+    code, out, err = run_cli(["scores", model, "--data", data, "--method", "regression,bartlett",
+                              "--output", tmp_path / "s.csv"], capsys)
+    assert code == 0, err
+    box = _box(out)
+    assert "The reliability of the regression scores is below the .90" in box
+    assert "The reliability of the Bartlett scores is below the .90" in box
+    code, alone, err = run_cli(["scores", model, "--data", data, "--method", "bartlett",
+                                "--output", tmp_path / "b.csv"], capsys)
+    # the Bartlett caution beside the regression one says what it says when Bartlett scores are written alone
+    said = _box(alone).split("The reliability of the Bartlett scores")[1].split(" What to try")[0]
+    assert said in box.split("The reliability of the Bartlett scores")[1]
