@@ -518,6 +518,12 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                                      fixed_by, tied_to, multi, group_labels, tied_with_first, lat_ix, ordinal)
         if error is not None:
             raise error
+    for ref in spec.freed:
+        if ref.kind == "mean":
+            for g in groups_of(ref):
+                if (g, *ref.key()) in released and not _mean_has_origin(spec, ref.names[0], g, entries, tied_with_first,
+                                                                          lat_ix, ordinal):
+                    raise _mean_without_origin(spec, ref, group_labels[g] if multi else None)
     for setting in spec.starts:
         for ref in setting.refs:
             error = cannot_apply(ref, Unapplied.START)
@@ -841,6 +847,41 @@ def _unit_left_unidentified(spec: Spec, factor, group_labels: tuple[str, ...]) -
                        f"groups' factor its unit through the loadings they share with it; keep at least one loading of "
                        f"'{f}' held equal in group {written_name(group_labels[0])}, or let those loadings differ in "
                        f"every group ('noninvariant')", at)
+
+
+def _mean_has_origin(spec: Spec, f: str, g: int, entries: dict, tied_with_first, lat_ix: dict, ordinal: dict) -> bool:
+    """Whether a factor mean a 'free' statement releases in group ``g`` can be estimated: an indicator's intercept is
+    fixed in that group (the mean is then the indicator's mean less that intercept, over its loading), or, in a
+    later group, an indicator's intercept and loading are held equal to the first group's, whose mean is the
+    origin (Sorbom 1974).  Factors measured by other factors or by ordinal items are left to the check of the
+    information matrix (their means' origins run through the lower factors' means or the thresholds)."""
+    factor = next(x for x in spec.factors if x.name.text == f)
+    items = [i.text for i in factor.indicators]
+    if any(x in lat_ix or x in ordinal for x in items):
+        return True
+    if any(entries[(g, "intercept", (x,))]["fixed"] is not None for x in items):
+        return True
+    return g > 0 and _mean_identified(spec, factor, entries, tied_with_first(g), lat_ix, ordinal)
+
+
+def _mean_without_origin(spec: Spec, ref: ParameterRef, group: str | None) -> ModelError:
+    """The error of a 'free' of a factor mean that nothing gives an origin (the information matrix would be singular
+    at any estimate: the mean and its indicators' intercepts trade off)."""
+    f = ref.names[0]
+    plain = replace(ref, group=None)
+    first = next(x.indicators[0].text for x in spec.factors if x.name.text == f)
+    if group is None:
+        where, how = "", ""
+    else:
+        where = f" in group {written_name(group)}"
+        how = ("; with groups, a factor's mean is estimated in the groups after the first where the loading and "
+               "intercept of one of its indicators are held equal across groups ('invariance scalar'), the first "
+               "group's mean being 0, the origin of the others', without a 'free' statement")
+    return _fail(spec, f"'{'free ' + str(plain) if ref.group is None else f'in group {written_name(ref.group)}: free {plain}'}'"
+                       f" frees the mean of '{f}'{where}, where nothing sets its origin: every intercept of its "
+                       f"indicators is free{' there' if group is not None else ''} as well, so the mean and the intercepts cannot be told apart{how}; "
+                       f"fix an intercept of one indicator (as 'fix {ParameterRef('intercept', (first,), None)} = 0') "
+                       f"or remove the statement", ref)
 
 
 def _mean_left_unidentified(spec: Spec, factor, g: int, group_labels: tuple[str, ...], set_apart: set) -> ModelError:

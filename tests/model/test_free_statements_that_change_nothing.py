@@ -115,15 +115,19 @@ STANDS = [
     ("free loading(f, a)\n", None, 0),  # the marker: b sets the scale instead, same count
     ("free loading(f, a), loading(f, b)\n", None, 0),  # c sets it
     ("in group south: free loading(f, a)\n", GROUPS, 0),  # configural: south's scale from b
-    ("free mean(f)\n", None, 1),  # fixed at 0 by default with a mean structure
-    ("invariance scalar\nin group north: free mean(f)\n", GROUPS, 1),  # the first group's mean, fixed at 0 otherwise
+    # fixed at 0 by default with a mean structure; freed, it needs an origin: here an intercept fixed in every group
+    # (a freed mean with none is refused at its line: tests/model/test_free_mean_without_origin.py)
+    ("fix intercept(a) = 0\nfree mean(f)\n", None, 1),
+    # the first group's mean, fixed at 0 otherwise, with an intercept fixed (held equal at 0 across groups)
+    ("invariance scalar\nfix intercept(a) = 0\nin group north: free mean(f)\n", GROUPS, 1),
 ]
 
 
 @pytest.mark.parametrize("statements, groups, more", STANDS)
 def test_a_free_that_frees_a_fixed_parameter_stands(statements, groups, more):
     """The count of free parameters: a freed marker passes the scale on (the same count); a freed mean adds one."""
-    plain = F + ("invariance scalar\n" if "invariance" in statements else "")
+    plain = F + ("invariance scalar\n" if "invariance" in statements else "") + (
+        "fix intercept(a) = 0\n" if "fix intercept" in statements else "")
     means = groups is None and "mean" in statements
     before = build_parameter_table(parse_model(plain, "m.cfa"), groups, mean_structure=means)
     after = build_parameter_table(parse_model(F + statements, "m.cfa"), groups, mean_structure=means)
