@@ -808,7 +808,7 @@ def invariance_report(result) -> Report:
                   f"({', '.join(written_group(g, result.groups) for g in result.groups)})",
                   notice, lines, tuple(tables), tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE),
                   invariance_paragraph(result, ORDINAL_LEVELS if ordinal else LEVELS),
-                  warnings=tuple(getattr(result, "notes", ())))
+                  warnings=T.higher_order_cautions(first) + tuple(getattr(result, "notes", ())))
 
 
 # ---------------------------------------------------------------- replicate
@@ -902,7 +902,8 @@ def replication_report(replications) -> Report:
     # the data's cautions first (the halves of one file: once), then the calibration fits'
     cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems)) + cautions
     split = tuple(dict.fromkeys(_split_sentence(rep.split) for rep in reps if rep.split is not None))
-    read = tuple(dict.fromkeys(n for rep in reps for n in getattr(rep, "notes", ())))  # as fit says them
+    read = tuple(dict.fromkeys([c for rep in reps for c in T.higher_order_cautions(rep.calibration_result)]
+                               + [n for rep in reps for n in getattr(rep, "notes", ())]))  # as fit says them
     return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), split, tuple(tables), tuple(notes),
                   (GUIDE_NOTE, HIGH_STAKES_NOTE), replication_paragraph(replications), warnings=read)
 
@@ -1068,7 +1069,8 @@ def bootstrap_report(boot) -> Report:
                                                               if boot.bollen_stine_p is not None else "."))
     return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", _fit_notice(result), tuple(lines),
                   (table,) if boot.intervals else (),
-                  tuple(result.warnings), (HIGH_STAKES_NOTE,), warnings=((kept,) if kept else ()) + ((few,) if few else ()))
+                  tuple(result.warnings), (HIGH_STAKES_NOTE,),
+                  warnings=T.higher_order_cautions(result) + ((kept,) if kept else ()) + ((few,) if few else ()))
 
 
 #: fewer draws than this beyond a percentile make it move with the seed (a rule of thumb of this program)
