@@ -610,9 +610,22 @@ def _misfit_sources(step, result) -> Text:
     if not step.stopped and significant:  # no search was asked for: how to test partial invariance
         text = text + Note((" To test partial invariance, free the equalities named: let the search choose them",
                             Command(f" ({Option.PARTIAL.given('auto')})"), " or declare each in the model file "
-                            f"('noninvariant {search_exemption(significant[0])}'); a freed equality chosen from these "
-                            f"data needs confirmation in new data."))
+                            f"('noninvariant {search_exemption(significant[0])}'{_in_one_group(significant[0], result)}); "
+                            f"a freed equality chosen from these data needs confirmation in new data."))
     return text
+
+
+def _in_one_group(test, result) -> str:
+    """With three groups or more, how a score test's parameter is set apart in its group alone, beside the
+    exemption in every group: ", or in group north alone: 'in group north: noninvariant loading(f, x3)'" ('' where
+    that statement is not available: two groups, whose difference is in neither, thresholds and ordinal items)."""
+    from cfa_tool.language.names import written_name
+    from cfa_tool.workflows.invariance import search_exemption
+
+    if len(result.groups) == 2 or test.group is None or test.kind == "threshold" or result.steps[0].result.method.ordinal:
+        return ""
+    group = written_name(test.group)
+    return f", or in group {group} alone: 'in group {group}: noninvariant {search_exemption(test)}'"
 
 
 def _one_test_each(culprits) -> list[list]:
@@ -640,9 +653,12 @@ def _declared_note(steps) -> str:
     if not first:
         return ""
     d = steps[0].result.description
-    items = [f"{_parameter(ref, d)} (from the {level} step)" for ref, level in first.items()]
-    return (f"Partial invariance declared in the model file: not held equal across groups, {word_list(items)}; the "
-            f"steps marked partial hold every other equality of their level.")
+    every = [f"{_parameter(ref, d)} (from the {level} step)" for ref, level in first.items() if ref[2] is None]
+    one = [f"{_parameter(ref, d)} (from the {level} step)" for ref, level in first.items() if ref[2] is not None]
+    said = ([f"not held equal across groups, {word_list(every)}"] if every else []) + (
+        [f"estimated freely in one group, the other groups' held equal, {word_list(one)}"] if one else [])
+    return (f"Partial invariance declared in the model file: {'; '.join(said)}; the steps marked partial hold every "
+            f"other equality of their level.")
 
 
 def _score_tests_mcar_note(result) -> list[Text]:
