@@ -101,3 +101,17 @@ def test_compare_counts_it(ladders):
     df = {(t.restricted, t.general): t.df_difference for t in result.tests}
     first, second, third = result.names
     assert df[(first, second)] == 1 and df[(second, third)] == 1 and df[(first, third)] == 2
+
+
+def test_a_declaration_a_later_step_refuses_is_an_error_before_any_fit(ladders):
+    """Every intercept of f set apart in east leaves east's mean of f without an origin at the scalar step: refused at
+    the statement before the configural model is fitted (the ladder's progress never starts), not after two steps."""
+    from cfa_tool.errors import ModelError
+
+    calls = []
+    with pytest.raises(ModelError, match=r"m\.cfa:2:74: these statements set apart every intercept of the indicators "
+                                         r"of 'f' that was held equal in group east"):
+        invariance(cfa_tool.parse_model("factor f: x1, x2, x3, x4\nin group east: noninvariant intercept(x1), "
+                                        "intercept(x2), intercept(x3), intercept(x4)\n", "m.cfa"),
+                   ladders[0], group="site", progress=lambda *step: calls.append(step))
+    assert calls == []
