@@ -80,8 +80,8 @@ def invariance_power_report(result) -> Report:
     if one:  # set apart in one group ('in group east: noninvariant ...'): free there, the other groups' held equal
         named = word_list([parameter_words(r.kind, r.names, r.group, observed=observed) for r in one])
         lines.append(f"The model sets {named} apart ('in group ...: noninvariant'): each level that holds "
-                     f"{'its class' if len(one) == 1 else 'their classes'} equal estimates "
-                     f"{'it' if len(one) == 1 else 'each'} freely in that group and holds the other groups' equal, "
+                     f"{'its class' if len(one) == 1 else 'their classes'} equal sets "
+                     f"{'it' if len(one) == 1 else 'each'} apart in that group and holds the other groups' equal, "
                      f"as the invariance command does, so the steps test partial invariance.")
     shared = result.population.shared
     if shared.defaulted:

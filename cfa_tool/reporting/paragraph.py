@@ -284,20 +284,21 @@ def _parameter(ref: tuple, d) -> str:
 def _exceptions(d) -> str:
     """The exemptions of a model's equalities across groups, after 'held ... equal across groups': those of every
     group ('noninvariant intercept(x2)'), then those set apart in one group ('in group audit: noninvariant
-    intercept(x2)'), estimated freely there while the other groups' were held equal."""
+    intercept(x2)'): not held equal to the other groups' there, the other groups' held equal among themselves (not
+    'estimated freely': the first group's mean set apart stays 0, the origin, and a 'fix' in that group may follow)."""
     every = [r for r in d.noninvariant if r[2] is None]
     one = [r for r in d.noninvariant if r[2] is not None]
     text = f", except {_list([_parameter(r, d) for r in every])}" if every else ""
     if one:
         text += (f"{';' if every else ','} {_list([_parameter(r, d) for r in one])} "
-                 f"{'was' if len(one) == 1 else 'were'} estimated freely, the other groups' held equal")
+                 f"{'was' if len(one) == 1 else 'were'} set apart from the other groups', which were held equal")
     return text
 
 
 def _declared_words(refs, d) -> str:
     """A step's parameters the model file exempts from its equalities, in the words of the ladder's sentences
     ('partial with ...'): those of every group specified as not held equal across groups, those set apart in one
-    group estimated freely there while the other groups' stayed equal."""
+    group set apart from the other groups', which stayed equal."""
     def words(chosen) -> str:
         return _list([_parameter((r.kind, r.names, r.group), d) if d is not None else str(r) for r in chosen])
 
@@ -305,7 +306,7 @@ def _declared_words(refs, d) -> str:
     one = [r for r in refs if r.group is not None]
     parts = [f"{words(every)} specified as not held equal across groups"] if every else []
     if one:
-        parts.append(f"{words(one)} estimated freely (the other groups' held equal)")
+        parts.append(f"{words(one)} set apart from the other groups' (held equal among them)")
     return " and ".join(parts)
 
 

@@ -656,7 +656,7 @@ def _declared_note(steps) -> str:
     every = [f"{_parameter(ref, d)} (from the {level} step)" for ref, level in first.items() if ref[2] is None]
     one = [f"{_parameter(ref, d)} (from the {level} step)" for ref, level in first.items() if ref[2] is not None]
     said = ([f"not held equal across groups, {word_list(every)}"] if every else []) + (
-        [f"estimated freely in one group, the other groups' held equal, {word_list(one)}"] if one else [])
+        [f"set apart in one group, the other groups' held equal, {word_list(one)}"] if one else [])
     return (f"Partial invariance declared in the model file: {'; '.join(said)}; the steps marked partial hold every "
             f"other equality of their level.")
 
