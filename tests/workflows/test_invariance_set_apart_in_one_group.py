@@ -1,8 +1,8 @@
 """A parameter set apart in one group ('in group east: noninvariant intercept(x2)', twentieth session) in the
 invariance ladder, fit's methods paragraph and compare.  The ladder holds it in force from the step that holds its
 class equal, names its group in the report, the JSON and the methods paragraph ("set apart from the other groups'
-(held equal among them)"), and computes the latent mean differences with it; compare counts it (one degree of freedom against the
-full scalar model, one more for the exemption in every group).
+(held equal among them)"), and computes the latent mean differences with it; compare counts it (one degree of
+freedom against the full scalar model, one more for the exemption in every group).
 
 Data: an invented three-site survey simulated with a fixed seed, in which the only difference in measurement is the
 intercept of x2 at site east (0.7 higher); the factor's population means are 0 (audit), 0.4 (east) and -0.2 (north).
