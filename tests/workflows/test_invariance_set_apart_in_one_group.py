@@ -116,3 +116,12 @@ def test_a_declaration_a_later_step_refuses_is_an_error_before_any_fit(ladders):
                                         "intercept(x2), intercept(x3), intercept(x4)\n", "m.cfa"),
                    ladders[0], group="site", progress=lambda *step: calls.append(step))
     assert calls == []
+
+
+def test_the_advice_after_a_failed_step_names_the_statement_for_that_group(ladders):
+    """The full scalar step fails on the intercept of x2 at east; the advice names both declarations, the one for
+    every group and the one for that group alone."""
+    _, _, plain = ladders
+    text = " ".join(" ".join(map(str, invariance_report(plain).notes)).split())
+    assert ("declare each in the model file ('noninvariant intercept(x2)', or in group east alone: 'in group east: "
+            "noninvariant intercept(x2)')") in text
