@@ -321,7 +321,6 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         variances (under the variance scaling) set the origin and unit the other groups' are estimated against."""
         return lambda kind_key: shares(0, kind_key) and shares(g, kind_key)
 
-
     # ---- the automatic scale of each factor in each group
     reverse_keyed = keyed_pairs(spec)
     effects: dict[tuple, list[tuple]] = {}  # the tied loading -> the other loadings of its factor
