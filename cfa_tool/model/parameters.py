@@ -288,13 +288,20 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             fixed_by[(g, *ref.key())] = ref
 
     invariant = _invariant_kinds(spec)
-    exceptions = {r.key() for r in spec.noninvariant}
+    exceptions = {r.key() for r in spec.noninvariant if r.group is None}  # let differ in every group
+    # (group, kind, names) of a parameter set apart in one group ('in group audit: noninvariant intercept(x2)'): its
+    # own free value there, the other groups' still held equal among themselves
+    set_apart = {(group_labels.index(r.group), *r.key()) for r in spec.noninvariant if r.group is not None} \
+        if multi else set()
     if multi:
+        _check_set_apart_use(spec, ordinal)
         for ref in spec.noninvariant:
             kind = "threshold" if ref.kind == "threshold" else _entry_kind(entries[(0, *ref.key())])
             if kind not in invariant:
                 word = next((w for w, kinds in INVARIANCE_CLASSES.items() if kind in kinds), kind)
-                raise _fail(spec, f"'noninvariant {ref}' exempts a parameter from being held equal across groups, but "
+                said = (f"in group {written_name(ref.group)}: noninvariant {replace(ref, group=None)}"
+                        if ref.group is not None else f"noninvariant {ref}")
+                raise _fail(spec, f"'{said}' exempts a parameter from being held equal across groups, but "
                                   f"{equality_words([word])[0]} are not held equal (no 'invariance' level or 'equal "
                                   f"across groups' statement holds them), so it has no effect", ref)
 
@@ -304,8 +311,15 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             return multi and G > 1 and "threshold" in invariant and (kind, names[:1]) not in exceptions
         return multi and G > 1 and _entry_kind(entries[(0, *kind_key)]) in invariant and kind_key not in exceptions
 
-    if multi:
-        _check_group_frees_held_equal(spec, entries, tied_across_groups)
+    def shares(g: int, kind_key: tuple) -> bool:
+        """Whether group ``g``'s parameter is held equal to the other groups' that share it: its class held equal
+        across groups, and the parameter neither exempted in every group nor set apart in ``g``."""
+        return tied_across_groups(kind_key) and (g, *kind_key) not in set_apart
+
+    def tied_with_first(g: int):
+        """Whether a parameter of group ``g`` is held equal to the first group's, whose factor means (fixed at 0) and
+        variances (under the variance scaling) set the origin and unit the other groups' are estimated against."""
+        return lambda kind_key: shares(0, kind_key) and shares(g, kind_key)
 
     # ---- the automatic scale of each factor in each group
     reverse_keyed = keyed_pairs(spec)
@@ -340,7 +354,12 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                     raise _scaling_refused(spec, f, f"{_scaling_words(spec, f)} fixes the variance of '{f}' at 1, "
                                                     f"which a 'free' statement frees; keep one of the two")
                 # with loadings held equal across groups, only the first group's variance sets the scale
-                if g == 0 or not any(tied_across_groups(k[1:]) for k in load_keys):
+                if g == 0 or not any(tied_with_first(g)(k[1:]) for k in load_keys):
+                    if g > 0 and any(shares(g, k[1:]) and any(shares(h, k[1:]) for h in range(G) if h != g)
+                                     for k in load_keys):
+                        # held equal among the later groups only: each at variance 1 would hold their variances
+                        # equal too, an equality the model does not state
+                        raise _unit_left_unidentified(spec, factor, group_labels)
                     entries[var_key].update(fixed=1.0, origin="scale")
             else:  # effects coding: loadings average 1
                 if multi:
@@ -360,8 +379,13 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                 key = (g, "mean", (f,))
                 if entries[key]["origin"] == "user":
                     continue
-                if _mean_identified(spec, factor, entries, tied_across_groups, lat_ix, ordinal):
+                if _mean_identified(spec, factor, entries, tied_with_first(g), lat_ix, ordinal):
                     entries[key].update(fixed=None, origin="default")
+                elif _mean_identified(spec, factor, entries, tied_across_groups, lat_ix, ordinal):
+                    raise _mean_left_unidentified(spec, factor, g, group_labels, set_apart)
+
+    if multi:  # after the markers: a marker's loading freed in one group is named as such
+        _check_group_frees_held_equal(spec, entries, shares, group_labels, released)
 
     # ---- latent responses of ordinal items: their location and scale (Wu & Estabrook 2016)
     for x, n_thresholds in ordinal.items():
@@ -399,9 +423,12 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
     tied_to: dict[tuple, tuple] = {}  # an entry fixed through a tie -> the fixed entry it is tied to
     if multi:
         tied_kinds: set[str] = set()  # kinds of which at least one parameter is held equal across groups
-        for key in entries:
-            if key[0] > 0 and tied_across_groups(key[1:]):
-                first = (0, *key[1:])
+        anchors: dict[tuple, tuple] = {}  # each parameter held equal -> the first group's entry of those sharing it
+        for key in entries:  # (entries are laid out group by group, the first group first)
+            if not shares(key[0], key[1:]):
+                continue
+            first = anchors.setdefault(key[1:], key)
+            if first != key:
                 if entries[key]["fixed"] is None and entries[first]["fixed"] is None:
                     union(first, key)
                     tied_kinds.add(_entry_kind(entries[key]))
@@ -410,7 +437,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                     entries[key].update(fixed=entries[first]["fixed"], origin="user")
                     tied_to[key] = first
                     tied_kinds.add("mean")
-        _check_group_fixes_held_equal(spec, fixed_by, entries, tied_across_groups, G)
+        _check_group_fixes_held_equal(spec, fixed_by, entries, shares, G)
         _check_equalities_hold(spec, tied_kinds)
 
     group_fixed: dict[tuple, tuple] = {}  # root of a set of tied entries -> the fixed entry among them
@@ -487,9 +514,15 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
 
     for ref in spec.freed:
         error = _free_without_effect(spec, ref, [(g, *ref.key()) for g in groups_of(ref)], released, entries, effects,
-                                     fixed_by, tied_to, multi, group_labels, tied_across_groups, lat_ix, ordinal)
+                                     fixed_by, tied_to, multi, group_labels, tied_with_first, lat_ix, ordinal)
         if error is not None:
             raise error
+    for ref in spec.freed:
+        if ref.kind == "mean":
+            for g in groups_of(ref):
+                if (g, *ref.key()) in released and not _mean_has_origin(spec, ref.names[0], g, entries, tied_with_first,
+                                                                          lat_ix, ordinal):
+                    raise _mean_without_origin(spec, ref, group_labels[g] if multi else None)
     for setting in spec.starts:
         for ref in setting.refs:
             error = cannot_apply(ref, Unapplied.START)
@@ -502,6 +535,8 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                 raise error
     for ref in spec.noninvariant:
         if ref.kind != "threshold" and scale_fixed_everywhere(ref):
+            if ref.group is not None and ref.kind == "loading" and ref.names[0] in lat_ix:
+                raise _marker_set_apart(spec, ref)
             raise cannot_apply(ref, Unapplied.NONINVARIANT)
 
     start = np.full(n_free, np.nan)
@@ -692,25 +727,27 @@ def _check_equalities_hold(spec: Spec, tied_kinds: set[str]) -> None:
                           f"what it should hold", words)
 
 
-def _check_group_fixes_held_equal(spec: Spec, fixed_by: dict, entries: dict, tied_across_groups, G: int) -> None:
+def _check_group_fixes_held_equal(spec: Spec, fixed_by: dict, entries: dict, shares, G: int) -> None:
     """A parameter fixed in one group ('in group north: fix loading(f, b) = .5') while its class is held equal across
     groups ('invariance metric', 'equal across groups: loadings', a step of the invariance ladder) would leave the
     other groups' parameter free, or held equal among themselves only: the model fitted would not hold the class
     equal as its level says.  An error naming the statement, what holds the class equal and the two ways out (the
     'fix' for every group, or the parameter exempted by 'noninvariant'), unless every group has it fixed alike."""
     for key, ref in fixed_by.items():
-        if ref.group is None or not tied_across_groups(key[1:]):
+        if ref.group is None or not shares(key[0], key[1:]):  # a parameter set apart in its group may be fixed there
             continue
         value = entries[key]["fixed"]
-        if all(entries[(h, *key[1:])]["fixed"] == value for h in range(G)):
+        if all(entries[(h, *key[1:])]["fixed"] == value for h in range(G) if shares(h, key[1:])):
             continue
         says, claim = _held_by(spec, "threshold" if ref.kind == "threshold" else _entry_kind(entries[key]))
         plain = replace(ref, group=None)
         raise _fail(spec, f"{ref} is fixed at {user_number(value)} in that group alone, but {says}: the other groups' {plain} "
                           f"would be left free, and {claim}; "
                           f"fix it in every group (the 'fix' statement without 'in group') to hold it "
-                          f"equal at {user_number(value)}, or exempt it ('noninvariant {plain}') so that it may differ across "
-                          f"groups and the report names it", ref)
+                          f"equal at {user_number(value)}, set it apart in that group ('in group "
+                          f"{written_name(ref.group)}: noninvariant {plain}') to fix it there alone, or exempt it in "
+                          f"every group ('noninvariant {plain}') so that it may differ across groups; the report names "
+                          f"either", ref)
 
 
 def _held_by(spec: Spec, kind: str) -> tuple[str, str]:
@@ -732,33 +769,144 @@ def _held_by(spec: Spec, kind: str) -> tuple[str, str]:
             f"the model would not be the {spec.invariance_level} invariance it is said to be")
 
 
-def _check_group_frees_held_equal(spec: Spec, entries: dict, tied_across_groups) -> None:
+def _check_group_frees_held_equal(spec: Spec, entries: dict, shares, group_labels: tuple[str, ...],
+                                  released: set) -> None:
     """A 'free' for one group ('in group audit: free intercept(x2)') of a parameter held equal across groups
     ('invariance scalar', 'equal across groups: intercepts', a step of the invariance ladder): a researcher means
-    partial invariance in that group, that group's parameter its own and the other groups' still equal.  The
-    parameter table ties every group to the first and has no tie among some groups only, so the statement would
-    change nothing (a free parameter) or leave the group's other parameters of the class scaled apart (a freed
-    marker): an error naming the statement, what holds the class equal and the way that exists, the exemption of
-    the parameter in every group ('noninvariant'), which the reports name (new-user trial, nineteenth session)."""
+    partial invariance in that group, that group's parameter its own and the other groups' still equal.  'free'
+    releases what is fixed and leaves the equality as it is, so the statement would change nothing (a free parameter)
+    or leave the group's other parameters of the class scaled apart (a freed marker): an error naming the statement,
+    what holds the class equal and the statement that sets a parameter apart in one group ('in group audit:
+    noninvariant intercept(x2)'), or in every group ('noninvariant'), which the reports name (new-user trial,
+    nineteenth session)."""
     for ref in spec.freed:
-        if ref.group is not None and tied_across_groups(ref.key()):
-            raise _set_apart_in_one_group(spec, ref, _entry_kind(entries[(0, *ref.key())]))
+        if ref.group is not None and shares(group_labels.index(ref.group), ref.key()):
+            scale = ref.kind == "loading" and (group_labels.index(ref.group), *ref.key()) in released  # a marker
+            raise _set_apart_in_one_group(spec, ref, _entry_kind(entries[(0, *ref.key())]), scale)
 
 
-def _set_apart_in_one_group(spec: Spec, ref: ParameterRef, kind: str) -> ModelError:
+def _set_apart_in_one_group(spec: Spec, ref: ParameterRef, kind: str, scale: bool = False) -> ModelError:
     """The error of an 'in group' 'free' of a parameter of ``kind`` held equal across groups (or, at a step of the
-    invariance ladder, held equal at a later step)."""
+    invariance ladder, held equal at a later step); ``scale``: the parameter is a marker's loading, which cannot be
+    set apart in one group either (:func:`_marker_set_apart`)."""
     says, _ = _held_by(spec, kind)
     plain = replace(ref, group=None)
-    return _fail(spec, f"'in group {written_name(ref.group)}: free {plain}' cannot set {plain} apart in group "
-                       f"{written_name(ref.group)} alone: {says}, and a parameter freed from that equality in one "
-                       f"group while the other groups' stay equal is not available; let it differ in every group "
-                       f"with 'noninvariant {plain}' (the reports name it), or remove the statement", ref)
+    group = written_name(ref.group)
+    if scale:
+        return _fail(spec, f"'in group {group}: free {plain}' cannot set {plain} apart in group {group}: {says}, "
+                           f"and {plain} is the marker that sets the scale of '{ref.names[0]}' in every group; make "
+                           f"another indicator the marker ('free {plain}': the next indicator then sets the scale) and "
+                           f"write 'in group {group}: noninvariant {plain}', or remove the statement", ref)
+    return _fail(spec, f"'in group {group}: free {plain}' does not set {plain} apart in group {group}: {says}, and "
+                       f"'free' leaves that equality as it is; write 'in group {group}: noninvariant {plain}' to "
+                       f"estimate it freely in group {group} while the other groups' stay equal, or 'noninvariant "
+                       f"{plain}' to let it differ in every group (the reports name either)", ref)
+
+
+def _marker_set_apart(spec: Spec, ref: ParameterRef) -> ModelError:
+    """The error of 'in group audit: noninvariant loading(f, x1)' where x1 is the marker of f.  Refused rather than
+    rescaled: the marker's loading is 1 in every group and gives the factor its unit there; were it estimated in one
+    group, that group's factor would need another unit, taken from a loading held equal to the other groups' (the
+    next indicator's), and the loadings the others share would then mean another thing in that group.  The
+    researcher chooses: another marker for every group, or the factor's variance as its scale."""
+    plain = replace(ref, group=None)
+    factor = ref.names[0]
+    return _fail(spec, f"{plain} is the marker that sets the scale of '{factor}' in every group, so it cannot be set "
+                       f"apart in group {written_name(ref.group)} alone; make another indicator the marker ('free "
+                       f"{plain}': the next indicator then sets the scale, and this loading may be set apart) or scale "
+                       f"'{factor}' by its variance ('scale {written_name(factor)} by variance')", ref)
+
+
+def _check_set_apart_use(spec: Spec, ordinal: dict[str, int]) -> None:
+    """A parameter of an ordinal item set apart in one group ('in group audit: noninvariant intercept(x2)') is not
+    available yet: the latent responses' origin and unit follow from which of their thresholds, intercepts, loadings
+    and residual variances are held equal (Wu & Estabrook 2016), group by group, which the parameter table lays out
+    for all groups at once.  An error at the statement, naming the way that exists ('noninvariant', every group)."""
+    for ref in spec.noninvariant:
+        if ref.group is not None and ref.kind != "threshold" and set(ref.names) & set(ordinal):
+            item = next(n for n in ref.names if n in ordinal)
+            plain = replace(ref, group=None)
+            raise _fail(spec, f"setting {plain} apart in group {written_name(ref.group)} alone is not available yet, "
+                              f"as '{item}' is ordinal (its latent response's origin and unit follow from which of its "
+                              f"parameters are held equal); write 'noninvariant {plain}' to let it differ in every "
+                              f"group", ref)
+
+
+def _unit_left_unidentified(spec: Spec, factor, group_labels: tuple[str, ...]) -> ModelError:
+    """The error of statements that set apart, in the first group, every loading of a factor scaled by its variance
+    that was held equal across groups: the first group's variance (1) no longer gives the other groups' factor its
+    unit through a shared loading, and the other groups' variances, each fixed at 1 in its place, would be held
+    equal among them, which the model does not say.  At the last such statement."""
+    f = factor.name.text
+    refs = [r for r in spec.noninvariant if r.group == group_labels[0] and r.kind == "loading" and r.names[0] == f]
+    at = max(refs, key=lambda r: (r.location.line, r.location.column) if r.location is not None else (0, 0),
+             default=None)
+    return _fail(spec, f"these statements set apart every loading of '{f}' held equal in group "
+                       f"{written_name(group_labels[0])}, the first group, whose variance of '{f}' (1) gives the other "
+                       f"groups' factor its unit through the loadings they share with it; keep at least one loading of "
+                       f"'{f}' held equal in group {written_name(group_labels[0])}, or let those loadings differ in "
+                       f"every group ('noninvariant')", at)
+
+
+def _mean_has_origin(spec: Spec, f: str, g: int, entries: dict, tied_with_first, lat_ix: dict, ordinal: dict) -> bool:
+    """Whether a factor mean a 'free' statement releases in group ``g`` can be estimated: an indicator's intercept is
+    fixed in that group (the mean is then the indicator's mean less that intercept, over its loading), or, in a
+    later group, an indicator's intercept and loading are held equal to the first group's, whose mean is the
+    origin (Sorbom 1974).  Factors measured by other factors or by ordinal items are left to the check of the
+    information matrix (their means' origins run through the lower factors' means or the thresholds)."""
+    factor = next(x for x in spec.factors if x.name.text == f)
+    items = [i.text for i in factor.indicators]
+    if any(x in lat_ix or x in ordinal for x in items):
+        return True
+    if any(entries[(g, "intercept", (x,))]["fixed"] is not None for x in items):
+        return True
+    return g > 0 and _mean_identified(spec, factor, entries, tied_with_first(g), lat_ix, ordinal)
+
+
+def _mean_without_origin(spec: Spec, ref: ParameterRef, group: str | None) -> ModelError:
+    """The error of a 'free' of a factor mean that nothing gives an origin (the information matrix would be singular
+    at any estimate: the mean and its indicators' intercepts trade off)."""
+    f = ref.names[0]
+    plain = replace(ref, group=None)
+    first = next(x.indicators[0].text for x in spec.factors if x.name.text == f)
+    if group is None:
+        where, how = "", ""
+    else:
+        where = f" in group {written_name(group)}"
+        how = ("; with groups, a factor's mean is estimated in the groups after the first where the loading and "
+               "intercept of one of its indicators are held equal across groups ('invariance scalar'), the first "
+               "group's mean being 0, the origin of the others', without a 'free' statement")
+    return _fail(spec, f"'{'free ' + str(plain) if ref.group is None else f'in group {written_name(ref.group)}: free {plain}'}'"
+                       f" frees the mean of '{f}'{where}, where nothing sets its origin: every intercept of its "
+                       f"indicators is free{' there' if group is not None else ''} as well, so the mean and the intercepts cannot be told apart{how}; "
+                       f"fix an intercept of one indicator (as 'fix {ParameterRef('intercept', (first,), None)} = 0') "
+                       f"or remove the statement", ref)
+
+
+def _mean_left_unidentified(spec: Spec, factor, g: int, group_labels: tuple[str, ...], set_apart: set) -> ModelError:
+    """The error of statements that set apart, in one group, every intercept (or loading) that held the indicators
+    of ``factor`` equal between group ``g`` and the first group: the difference of the factor's mean in group ``g``
+    from the first group's has nothing left to be estimated from (Sorbom 1974: a factor mean is identified through an
+    indicator whose intercept and loading are equal across the groups compared).  At the last such statement."""
+    f = factor.name.text
+    items = {i.text for i in factor.indicators}
+    refs = [r for r in spec.noninvariant if r.group is not None and r.kind in ("intercept", "loading")
+            and r.names[-1] in items and (r.kind == "intercept" or r.names[0] == f)]
+    at = max(refs, key=lambda r: (r.location.line, r.location.column) if r.location is not None else (0, 0),
+             default=None)
+    named = at.group if at is not None else group_labels[g]
+    if at is not None and at.group == group_labels[0]:
+        whose = f"the mean of '{f}' in the other groups can no longer be compared with group {written_name(named)}'s"
+    else:
+        whose = f"the mean of '{f}' in group {written_name(named)} can no longer be compared with the other groups'"
+    return _fail(spec, f"these statements set apart every intercept of the indicators of '{f}' that was held equal "
+                       f"in group {written_name(named)} (with its loading), so {whose} and is not identified; keep at "
+                       f"least one intercept of '{f}' held equal in group {written_name(named)}", at)
 
 
 def _free_without_effect(spec: Spec, ref: ParameterRef, keys: list[tuple], released: set[tuple], entries: dict,
                          effects: dict, fixed_by: dict, tied_to: dict, multi: bool, group_labels: tuple[str, ...],
-                         tied_across_groups, lat_ix: dict, ordinal: dict) -> ModelError | None:
+                         tied_with_first, lat_ix: dict, ordinal: dict) -> ModelError | None:
     """The error for a 'free' statement that changes nothing (None when it frees something): the parameter is free
     already in every group it names (only a factor's marker loading, a factor's mean and, with the variance
     scaling, a factor's variance are fixed by default), or it stays fixed whatever the statement says (the loading
@@ -773,7 +921,7 @@ def _free_without_effect(spec: Spec, ref: ParameterRef, keys: list[tuple], relea
         g, kind, names = key
         # a later group's factor mean that its indicators' equal intercepts identify is free without the statement
         return not (kind == "mean" and multi and g > 0
-                    and _mean_identified(spec, factors[names[0]], entries, tied_across_groups, lat_ix, ordinal))
+                    and _mean_identified(spec, factors[names[0]], entries, tied_with_first(g), lat_ix, ordinal))
 
     if any(frees(k) for k in keys):
         return None

@@ -71,39 +71,6 @@ def _path_diagram(result, k: int) -> tuple[str, str]:
     return diagram_with_legend(result, k)
 
 
-def _two_factor_higher_order(result) -> tuple[str, ...]:
-    """A note on higher-order factors that explain two first-order factors only (a lone one is refused when the
-    model is read): like a factor of two indicators, each is identified only through its covariance with another
-    higher-order factor (Kenny 1979), so its loadings are barely determined when that covariance is small."""
-    d = getattr(result, "description", None)
-    two = [(h, lower) for h, lower in (d.higher_order if d is not None else ()) if len(lower) == 2]
-    if not two:
-        return ()
-    named = "; ".join(f"{h} explains {lower[0]} and {lower[1]}" for h, lower in two)
-    one = len(two) == 1
-    return (f"Higher-order {'factor' if one else 'factors'} over two factors ({named}): {'it is' if one else 'each is'}"
-            f" identified only through its covariance with another higher-order factor, as a factor of two "
-            f"indicators is through its correlations with other factors (Kenny 1979), so the loadings of the "
-            f"first-order factors on {'it' if one else 'them'} are barely determined when that covariance is small.",)
-
-
-def _just_identified_higher_order(result) -> tuple[str, ...]:
-    """A caution on higher-order factors whose part of the model is just-identified (a second-order factor over
-    exactly three factors; model.description.just_identified_higher_order): the fit equals that of the factors
-    correlated freely, so it does not test the higher-order structure (Rindskopf & Rose 1988)."""
-    d = getattr(result, "description", None)
-    found = [(h, lower) for h, lower in (d.higher_order if d is not None else ())
-             if h in getattr(d, "just_identified_higher_order", ())]
-    return tuple(f"Higher-order factor {h} over {_and(lower)}: its part of the model is just-identified (as many "
-                 f"parameters as the variances and covariances of those factors), so the model fits exactly as those "
-                 f"factors correlated freely would, and this fit does not test the higher-order structure (Rindskopf "
-                 f"& Rose 1988)." for h, lower in found)
-
-
-def _and(names) -> str:
-    return names[0] if len(names) == 1 else f"{', '.join(names[:-1])} and {names[-1]}"
-
-
 def fit_report(result) -> Report:
     """The report of the fit ``result``: the problems first; the model, the data and the estimation, with the
     cautions about the data right under them; the methods paragraph, the path diagrams, the tables, the model
@@ -111,8 +78,7 @@ def fit_report(result) -> Report:
     d = result.data
     lines = (f"Model file: {result.model_source}", f"Data: {d.source}; {T.rows_phrase(d, getattr(result, 'design', None))}", T.status_line(result))
     few = T.few_answers_warning(result)  # categories of ordinal items given by few rows: first, with the table named
-    warnings = (tuple(result.warnings) + (() if few is None else (few,)) + _two_factor_higher_order(result)
-                + _just_identified_higher_order(result)
+    warnings = (tuple(result.warnings) + (() if few is None else (few,)) + T.higher_order_cautions(result)
                 + (() if result.converged else (NOT_CONVERGED,)))
     figures = tuple(Figure("Path diagram of the fitted model" + ("" if g.label is None else f", group {g.label}")
                            + " (standardized values)", partial(_path_diagram, result, k))

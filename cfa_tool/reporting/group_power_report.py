@@ -69,12 +69,20 @@ def invariance_power_report(result) -> Report:
                                    " (no 'in group' statement names it)"),
                            f": {'their populations are' if len(unnamed) > 1 else 'its population is'} the shared one.")))
     declared = result.population.spec.noninvariant
-    if declared:  # partial invariance declared in the model file: the ladder leaves these free
-        observed = frozenset(result.population.observed)
-        named = word_list([parameter_words(r.kind, r.names, observed=observed) for r in declared])
+    observed = frozenset(result.population.observed)
+    every = [r for r in declared if r.group is None]
+    one = [r for r in declared if r.group is not None]
+    if every:  # partial invariance declared in the model file: the ladder leaves these free
+        named = word_list([parameter_words(r.kind, r.names, observed=observed) for r in every])
         lines.append(f"The model declares {named} "
                      f"not equal across groups ('noninvariant'): each level leaves it free, as the invariance command "
                      f"does, so the steps test partial invariance.")
+    if one:  # set apart in one group ('in group east: noninvariant ...'): free there, the other groups' held equal
+        named = word_list([parameter_words(r.kind, r.names, r.group, observed=observed) for r in one])
+        lines.append(f"The model sets {named} apart ('in group ...: noninvariant'): each level that holds "
+                     f"{'its class' if len(one) == 1 else 'their classes'} equal sets "
+                     f"{'it' if len(one) == 1 else 'each'} apart in that group and holds the other groups' equal, "
+                     f"as the invariance command does, so the steps test partial invariance.")
     shared = result.population.shared
     if shared.defaulted:
         lines.append(f"{len(shared.defaulted)} population values shared by the groups took the standardized defaults "

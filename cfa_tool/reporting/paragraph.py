@@ -281,6 +281,35 @@ def _parameter(ref: tuple, d) -> str:
     return parameter_words(kind, tuple(names), group, d.indicators, quoted=True, groups=d.groups)
 
 
+def _exceptions(d) -> str:
+    """The exemptions of a model's equalities across groups, after 'held ... equal across groups': those of every
+    group ('noninvariant intercept(x2)'), then those set apart in one group ('in group audit: noninvariant
+    intercept(x2)'): not held equal to the other groups' there, the other groups' held equal among themselves (not
+    'estimated freely': the first group's mean set apart stays 0, the origin, and a 'fix' in that group may follow)."""
+    every = [r for r in d.noninvariant if r[2] is None]
+    one = [r for r in d.noninvariant if r[2] is not None]
+    text = f", except {_list([_parameter(r, d) for r in every])}" if every else ""
+    if one:
+        text += (f"{';' if every else ','} {_list([_parameter(r, d) for r in one])} "
+                 f"{'was' if len(one) == 1 else 'were'} set apart from the other groups', which were held equal")
+    return text
+
+
+def _declared_words(refs, d) -> str:
+    """A step's parameters the model file exempts from its equalities, in the words of the ladder's sentences
+    ('partial with ...'): those of every group specified as not held equal across groups, those set apart in one
+    group set apart from the other groups', which stayed equal."""
+    def words(chosen) -> str:
+        return _list([_parameter((r.kind, r.names, r.group), d) if d is not None else str(r) for r in chosen])
+
+    every = [r for r in refs if r.group is None]
+    one = [r for r in refs if r.group is not None]
+    parts = [f"{words(every)} specified as not held equal across groups"] if every else []
+    if one:
+        parts.append(f"{words(one)} set apart from the other groups' (held equal among them)")
+    return " and ".join(parts)
+
+
 def _scale_sentence(d) -> str:
     """How each factor got its scale; with factors scaled differently in some group, those factors group by group."""
     if not d.group_scales:
@@ -1039,8 +1068,7 @@ def methods_paragraph(result) -> str:
         if departures:
             parts.append(departures)
         if d.invariant:
-            parts.append(f"Held equal across groups: {_list(equality_words(d.invariant))}" + (
-                f", except {_list([_parameter(r, d) for r in d.noninvariant])}" if d.noninvariant else "") + ".")
+            parts.append(f"Held equal across groups: {_list(equality_words(d.invariant))}" + _exceptions(d) + ".")
         elif result.multigroup and _stated(result):  # nothing estimated: the stated values are what holds
             parts.append(_stated_groups_sentence(result, d))
         elif result.multigroup:  # a reviewer must not take the groups' estimates for invariant ones
@@ -1298,8 +1326,7 @@ def _model_sentences(name: str, result, keys_said: bool = False) -> str:
     if departures:
         parts.append(departures.replace("The model also included", f"{name} also included", 1))
     if result.multigroup:  # what distinguishes grouped models: their equalities across groups
-        parts.append(f"{name} held {_list(equality_words(d.invariant))} equal across groups" + (
-            f", except {_list([_parameter(r, d) for r in d.noninvariant])}" if d.noninvariant else "") + "."
+        parts.append(f"{name} held {_list(equality_words(d.invariant))} equal across groups" + _exceptions(d) + "."
             if d.invariant else f"{name} held no parameter equal across groups (the same pattern in every group).")
     return " ".join(parts)
 
@@ -1656,17 +1683,16 @@ def invariance_paragraph(result, levels) -> str:
     for k, step in enumerate(steps[1:], start=1):
         name = _capital(_LEVEL_WORDS.get(step.level, step.level))
         basis = _basis(steps, k)
-        declared = _list([_parameter((r.kind, r.names, r.group), d) for r in step.declared]) if d is not None else \
-            _list([str(r) for r in step.declared])
+        declared = _declared_words(step.declared, d)
         earlier = [(f, s.level) for s in steps[1:k] for f in s.freed]  # freed by the search before: still free
         if earlier and not step.partial:
             kept = _list([f"{parameter_words(f.kind, f.variables, quoted=True)} (freed at the {level} step)"
                           for f, level in earlier])
-            extra = f" and {declared} specified as not held equal" if step.declared else ""
+            extra = f" and {declared}" if step.declared else ""
             parts.append(f"{name} invariance, partial with {kept} still free{extra}, {_held(step, basis)} "
                          f"({_step_figures(step)}).")
         elif step.declared and not step.partial:
-            parts.append(f"{name} invariance, partial with {declared} specified as not held equal across groups, "
+            parts.append(f"{name} invariance, partial with {declared}, "
                          f"{_held(step, basis)} ({_step_figures(step)}).")
         elif step.partial:
             full = step.full_test
@@ -1679,7 +1705,7 @@ def invariance_paragraph(result, levels) -> str:
             state = ("still did not hold" if not step.holds and step.result.admissible else
                      "held" if step.holds and not basis else "met its test" if step.holds else _held(step, basis))
             after = f" but cannot be read as held: it rests on {basis}" if step.holds and basis else ""
-            others = f"with {declared} specified as not held equal and every other equality" \
+            others = f"with {declared} and every other equality" \
                 if step.declared else "with every equality"
             if earlier:
                 others += " but those freed at earlier steps"

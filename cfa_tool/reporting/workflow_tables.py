@@ -610,9 +610,22 @@ def _misfit_sources(step, result) -> Text:
     if not step.stopped and significant:  # no search was asked for: how to test partial invariance
         text = text + Note((" To test partial invariance, free the equalities named: let the search choose them",
                             Command(f" ({Option.PARTIAL.given('auto')})"), " or declare each in the model file "
-                            f"('noninvariant {search_exemption(significant[0])}'); a freed equality chosen from these "
-                            f"data needs confirmation in new data."))
+                            f"('noninvariant {search_exemption(significant[0])}'{_in_one_group(significant[0], result)}); "
+                            f"a freed equality chosen from these data needs confirmation in new data."))
     return text
+
+
+def _in_one_group(test, result) -> str:
+    """With three groups or more, how a score test's parameter is set apart in its group alone, beside the
+    exemption in every group: ", or in group north alone: 'in group north: noninvariant loading(f, x3)'" ('' where
+    that statement is not available: two groups, whose difference is in neither, thresholds and ordinal items)."""
+    from cfa_tool.language.names import written_name
+    from cfa_tool.workflows.invariance import search_exemption
+
+    if len(result.groups) == 2 or test.group is None or test.kind == "threshold" or result.steps[0].result.method.ordinal:
+        return ""
+    group = written_name(test.group)
+    return f", or in group {group} alone: 'in group {group}: noninvariant {search_exemption(test)}'"
 
 
 def _one_test_each(culprits) -> list[list]:
@@ -640,9 +653,12 @@ def _declared_note(steps) -> str:
     if not first:
         return ""
     d = steps[0].result.description
-    items = [f"{_parameter(ref, d)} (from the {level} step)" for ref, level in first.items()]
-    return (f"Partial invariance declared in the model file: not held equal across groups, {word_list(items)}; the "
-            f"steps marked partial hold every other equality of their level.")
+    every = [f"{_parameter(ref, d)} (from the {level} step)" for ref, level in first.items() if ref[2] is None]
+    one = [f"{_parameter(ref, d)} (from the {level} step)" for ref, level in first.items() if ref[2] is not None]
+    said = ([f"not held equal across groups, {word_list(every)}"] if every else []) + (
+        [f"set apart in one group, the other groups' held equal, {word_list(one)}"] if one else [])
+    return (f"Partial invariance declared in the model file: {'; '.join(said)}; the steps marked partial hold every "
+            f"other equality of their level.")
 
 
 def _score_tests_mcar_note(result) -> list[Text]:
@@ -819,7 +835,7 @@ def invariance_report(result) -> Report:
                   f"({', '.join(written_group(g, result.groups) for g in result.groups)})",
                   notice, lines, tuple(tables), tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE),
                   invariance_paragraph(result, ORDINAL_LEVELS if ordinal else LEVELS),
-                  warnings=tuple(getattr(result, "notes", ())))
+                  warnings=T.higher_order_cautions(first) + tuple(getattr(result, "notes", ())))
 
 
 # ---------------------------------------------------------------- replicate
@@ -914,7 +930,8 @@ def replication_report(replications) -> Report:
     # the data's cautions first (the halves of one file: once), then the calibration fits'
     cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems)) + cautions
     split = tuple(dict.fromkeys(_split_sentence(rep.split) for rep in reps if rep.split is not None))
-    read = tuple(dict.fromkeys(n for rep in reps for n in getattr(rep, "notes", ())))  # as fit says them
+    read = tuple(dict.fromkeys([c for rep in reps for c in T.higher_order_cautions(rep.calibration_result)]
+                               + [n for rep in reps for n in getattr(rep, "notes", ())]))  # as fit says them
     return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), split, tuple(tables), tuple(notes),
                   (GUIDE_NOTE, HIGH_STAKES_NOTE), replication_paragraph(replications), warnings=read)
 
@@ -1092,7 +1109,8 @@ def bootstrap_report(boot) -> Report:
                                                               if boot.bollen_stine_p is not None else "."))
     return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", _fit_notice(result), tuple(lines),
                   (table,) if boot.intervals else (),
-                  tuple(result.warnings), (HIGH_STAKES_NOTE,), warnings=((kept,) if kept else ()) + ((few,) if few else ()))
+                  tuple(result.warnings), (HIGH_STAKES_NOTE,),
+                  warnings=T.higher_order_cautions(result) + ((kept,) if kept else ()) + ((few,) if few else ()))
 
 
 #: fewer draws than this beyond a percentile make it move with the seed (a rule of thumb of this program)

@@ -56,7 +56,7 @@ from cfa_tool.pipeline.continuous import FitOptions, fit_moments, model_structur
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary, refuse_lone_strata
 from cfa_tool.method import MissingData, WeightKind
 from cfa_tool.data.matching import chosen_columns
-from cfa_tool.pipeline.inputs import (_fit_rows, converged, keeps_rows_with_gaps, design_test, moments_for, odd_values_named,
+from cfa_tool.pipeline.inputs import (_described, _fit_rows, converged, keeps_rows_with_gaps, design_test, moments_for, odd_values_named,
                                       ordinal_items_of, read_inputs_with_notes, refit_missing_handling, with_design,
                                       with_odd_values, without_exploratory_blocks, rows_named)
 from cfa_tool.pipeline.results import FitResult, clean
@@ -626,7 +626,8 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     else:
         moments = sample_moments(frame, spec.observed_names, source, missing=handling)
     with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
-        result = converged(fit_moments(spec, moments, options))
+        # described as fit describes it: the report's cautions on the model (a just-identified higher-order part) too
+        result = _described(converged(fit_moments(spec, moments, options)), spec, None)
     result = replace(result, warnings=tuple(notes) + result.warnings)  # what reading and the row filters did
     if design is not None:
         result = with_design(result, design_summary(frame, design, [moments]), [moments])

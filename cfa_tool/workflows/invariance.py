@@ -433,6 +433,13 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         notes = list(missing_notes) + few_note + list(read_notes) + list(notes)
         ladder = NormalLadder(design_summary(frame, design, [m for _, m in groups], [g for g, _ in groups]) if design is not None else None)
     labels = tuple(label for label, _ in groups)
+    # the model of every step, laid out before the first is fitted: a statement a later step refuses (a parameter set
+    # apart in one group that leaves a factor's mean without an origin, ...) is an error before any fit
+    from cfa_tool.model.parameters import build_parameter_table
+
+    for _, classes, _ in ladder.levels:
+        build_parameter_table(spec_of_level(spec, classes, spec.noninvariant), labels,
+                              ordinal=ordinal_items if isinstance(ordinal_items, dict) else None)
     reference = reference_rule(frame, group, reference_group)  # the rule moments_for followed (data.groups)
     threads = blas_threads_for(len(spec.observed_names))  # the fits' matrices are small: one BLAS thread (numerics.threads)
 

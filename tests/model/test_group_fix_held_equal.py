@@ -26,7 +26,8 @@ REFUSED = [
      "loading(f, b) in group north is fixed at 0.5 in that group alone, but 'invariance metric' (line 3) holds the "
      "loadings equal across groups: the other groups' loading(f, b) would be left free, and the model would not be "
      "the metric invariance it is said to be; fix it in every group (the 'fix' statement without 'in group') to hold "
-     "it equal at 0.5, or exempt it ('noninvariant loading(f, b)')"),
+     "it equal at 0.5, set it apart in that group ('in group north: noninvariant loading(f, b)') to fix it there "
+     "alone, or exempt it in every group ('noninvariant loading(f, b)')"),
     ("invariance metric\nin group south: fix loading(f, b) = .5\n", (4, 21),
      "loading(f, b) in group south is fixed at 0.5 in that group alone, but 'invariance metric' (line 3)"),
     ("invariance scalar\nin group south: fix intercept(b) = 2\n", (4, 21),
@@ -65,6 +66,8 @@ STANDS = [
     "invariance metric\nfix loading(f, b) = .5\n",  # every group's: held equal at .5
     "invariance metric\nin group north: fix loading(f, b) = .5\nin group south: fix loading(f, b) = .5\n",
     "invariance metric\nin group south: fix loading(f, b) = .5\nnoninvariant loading(f, b)\n",  # exempted
+    # set apart in that group alone (twentieth session)
+    "invariance metric\nin group south: fix loading(f, b) = .5\nin group south: noninvariant loading(f, b)\n",
     "invariance metric\nin group south: start loading(f, b) = .5\n",  # a start of the loading every group shares
     "in group south: fix loading(f, b) = .5\n",  # nothing held equal
 ]

@@ -93,3 +93,22 @@ def test_compare_keeps_the_advice_for_models_that_are_not_equivalent(hs_data):
     (pair,) = result.not_nested
     assert not pair.equivalent
     assert "Compare them by AIC and BIC (lower is better)." in " ".join(str(n) for n in comparison_report(result).notes)
+
+
+def test_the_commands_that_fit_the_model_as_it_stands_say_it_too(hs_data):
+    """The caution rose in fit's report alone (fixnew-a-s19's notes): the invariance ladder's configural step, each fit
+    of replicate and bootstrap's fit of the full sample fit the same just-identified higher-order part, and their
+    reports said nothing of it.  One rule for all (reporting.tables.higher_order_cautions), under the report's lines."""
+    from cfa_tool.reporting.workflow_tables import bootstrap_report, invariance_report, replication_report
+    from cfa_tool.workflows.invariance import invariance
+    from cfa_tool.workflows.replication import replicate
+
+    ladder = invariance(SECOND, hs_data, group="school")
+    assert [str(w) for w in invariance_report(ladder).warnings if SAID in str(w)] != []
+    halves = hs_data.iloc[::2], hs_data.iloc[1::2]
+    assert [str(w) for w in replication_report(replicate(SECOND, *halves)).warnings if SAID in str(w)] != []
+    boot = cfa_tool.bootstrap(SECOND, hs_data, replications=20, seed=3, workers=1)
+    assert [str(w) for w in bootstrap_report(boot).warnings if SAID in str(w)] != []
+    # a model whose higher-order part has degrees of freedom: no such caution
+    equal = SECOND + "equal loading(ability, textual), loading(ability, speed)\n"
+    assert not [w for w in invariance_report(invariance(equal, hs_data, group="school")).warnings if SAID in str(w)]

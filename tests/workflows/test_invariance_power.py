@@ -231,6 +231,19 @@ def test_a_declared_noninvariant_parameter_is_left_free_at_each_level():
     assert "The model declares the intercept of x2 not equal across groups" in " ".join(result.summary().split())
 
 
+def test_a_parameter_set_apart_in_one_group_is_free_there_alone_at_each_level():
+    # 'in group south: noninvariant intercept(x2)' with three groups (twentieth session): south's intercept its own,
+    # north's and east's held equal: the population is reproduced (noncentrality 0) with one equality fewer than the
+    # full scalar step (counted: 2 x 4 equalities of the four intercepts, less the 2 means estimated, is 6 for the full
+    # step; 5 with south's x2 apart)
+    model = SHIFTED + "in group south: noninvariant intercept(x2)\n"
+    result = invariance_power(model, "north=200,east=200,south=200", replications=2, workers=1)
+    metric, scalar = result.designs[0].steps
+    assert (scalar.role, scalar.df, scalar.noncentrality) == (StepRole.FALSE_ALARM, 5, 0.0)
+    assert ("The model sets the intercept of x2 in group south apart ('in group ...: noninvariant')"
+            in " ".join(result.summary().split()))
+
+
 def test_a_value_for_every_group_and_another_for_one_group_plan_the_difference(tmp_path, capsys):
     # README: "a statement without 'in group' gives every group's value, and 'in group south: ...' the value of one
     # group".  Both on the same loading were refused as conflicting start values of a parameter the metric model
