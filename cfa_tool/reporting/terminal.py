@@ -53,10 +53,24 @@ def rich_table(report: ReportTable, view: View = RUNNING) -> Group:
     headings; what still does not fit is shown in parts of whole columns, each with the first column again: a
     number is never broken across lines (a residual '-.02' printed as '-.0' above '2' reads as another number).
     The note's advice names its command, and a table it refers to is named as ``view`` names it."""
-    parts = [Text(printable(report.title), style="bold"), _ColumnParts(report)]  # (Text is not escaped otherwise)
+    parts = [_Folded(report.title, "bold"), _ColumnParts(report)]
     if report.note:
-        parts += [Text(printable(said(report.note, view), keep_newlines=True), style="dim"), Text("")]
+        parts += [_Folded(said(report.note, view), "dim"), Text("")]
     return Group(*parts)
+
+
+class _Folded:
+    """Words drawn at the width the console offers when they are drawn (a table's title, its note), a word wider
+    than that (a long item name in a title at 40 columns) broken after a '_' or '-' inside it as the tables' cells
+    break it (:func:`_names_broken`), never in the middle of a part: 'satisfaction_with_the_overall_service_qu'
+    above 'ality_...' read as two names."""
+
+    def __init__(self, text: str, style: str):
+        self.text, self.style = text, style
+
+    def __rich_console__(self, console, options):
+        text = printable(self.text, keep_newlines=True)  # (Text is not escaped otherwise)
+        yield Text("\n".join(_names_broken(line, options.max_width) for line in text.split("\n")), style=self.style)
 
 
 class _ColumnParts:
@@ -78,7 +92,7 @@ class _ColumnParts:
         labels = label_columns(report.align, whole, room, report.rows)
         for k, columns in enumerate(column_parts(_wrapped(narrow, report.align, room, floors), room, labels)):
             if k:
-                yield Text(f"({printable(report.title)}, continued)", style="dim")
+                yield _Folded(f"{report.title}, continued", "dim")
             # each part's text as wide as the room beside its own number columns allows, their headings wrapped
             # between words where the room is short
             part = dict(zip(columns, _wrapped([narrow[j] for j in columns], tuple(report.align[j] for j in columns),

@@ -1,0 +1,50 @@
+"""At 40 columns (COLUMNS=40) a terminal table's title that holds a name longer than the line broke it mid-word
+('satisfaction_with_the_overall_service_qu' above 'ality_of_the_line', session note s19): a title, its continued
+title and its note break a long name after a '_' or '-' inside it, as the tables' cells do (the one rule,
+reporting.terminal._names_broken), never inside a part; and a continued title stands in no parentheses of its own
+(a title such as 'Items: descriptive statistics (analysed rows)' read '(... (analysed rows), continued)')."""
+
+from __future__ import annotations
+
+import io
+import re
+
+import pytest
+
+from cfa_tool.reporting.tables import ReportTable
+from cfa_tool.reporting.terminal import SafeConsole, rich_table
+
+LONG = "satisfaction_with_the_overall_service_quality_of_the_line"
+PARTS = set(LONG.split("_")) | {"a"}  # satisfaction, with, ... line; the item is the name and _a
+
+
+def _drawn(width: int, title: str, note: str | None = None) -> str:
+    table = ReportTable("loadings", title, ("Item", "Estimate", "SE", "z", "p", "Standardized"),
+                        ("l", "r", "r", "r", "r", "r"),
+                        ((LONG + "_a", "0.123", "0.045", "2.73", ".006", ".71"),), note=note)
+    out = io.StringIO()
+    SafeConsole(file=out, width=width, no_color=True, highlight=False).print(rich_table(table))
+    return out.getvalue()
+
+
+def _pieces(text: str) -> list[str]:
+    """Every run of the name's letters and '_' in ``text`` that a line holds, line by line."""
+    return [piece for line in text.splitlines() for piece in re.findall(r"[a-z_]*_[a-z_]*", line)]
+
+
+@pytest.mark.parametrize("width", [40, 52, 80])
+def test_a_long_name_in_a_title_breaks_only_after_an_underscore(width):
+    text = _drawn(width, f"Loadings of the factor {LONG}", note=f"The note names {LONG} too.")
+    assert max(len(line.rstrip()) for line in text.splitlines()) <= width
+    for piece in _pieces(text):
+        # each line's piece of the name is a run of whole parts (satisfaction_with_ ...), none cut inside
+        assert piece.strip("_") in LONG + "_a", piece
+        assert set(piece.strip("_").split("_")) <= PARTS, (piece, text)
+
+
+def test_a_continued_title_has_no_parentheses_around_a_title_that_holds_some():
+    text = _drawn(40, "Items: descriptive statistics (analysed rows)")
+    assert "continued" in text  # (the table goes on in parts at 40 columns)
+    flat = " ".join(text.split())
+    assert "Items: descriptive statistics (analysed rows), continued" in flat
+    assert "(Items" not in flat
