@@ -138,7 +138,7 @@ def test_no_structure_is_no_factor_above_chance():
 
     explored = explore(frame, replications=50)
     reasons = explored.reasons()
-    assert reasons[0].startswith("No factor recommended: the middle value of three rules is 0 (")
+    assert reasons[0].startswith("No factor recommended: the middle value of three rules is 0. Parallel analysis")
     assert explored.draft_text.startswith("# No factor was recommended: the three rules")  # the draft says so too
     assert not any("one more factor" in line or "The recommended solution" in line for line in reasons)
 
