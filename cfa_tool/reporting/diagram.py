@@ -957,7 +957,7 @@ def _block_rows(result) -> list:
 
 
 # ---------------------------------------------------------------------------------------------------------------
-# Sideways: a higher-order or a bifactor model of a page's height of items, drawn from left to right
+# Sideways: a model of a page's height of items, drawn from left to right (see _sideways)
 # ---------------------------------------------------------------------------------------------------------------
 
 #: the height a drawing laid out sideways may take: its items in one column on a portrait page of the Word report
@@ -965,7 +965,9 @@ def _block_rows(result) -> list:
 #: smallest text at ``MIN_FIGURE_TEXT`` or more, the legibility rule of ``MAX_WIDTH`` turned on its side
 PRINT_HEIGHT = 7.5  # inches
 SIDEWAYS_HEIGHT = math.floor(SMALLEST_TEXT * 72 * PRINT_HEIGHT / MIN_FIGURE_TEXT)  # 925 units
-FAN = 120.0  # across from a factor's ellipse to what it loads on: the room for the arrows and their values
+FAN = 120.0  # across from a factor's ellipse to what it loads on: the room for the arrows and their values, and
+FACTOR_FAN = 90.0  # across to factors: a few arrows, their values far apart
+FAN_SLOPE = 0.4  # to items, at least this share of the farthest height they reach, so that their values stand apart
 BLOCK_GAP = 12.0  # between the items of two factors in the column of items
 ITEM_COLUMN = 96.0  # least width of the item boxes under which a residual hangs (its value beside it, in the box's width)
 DISTURBANCE_GAP = 8.0  # between a factor's ellipse and its disturbance circle above it
@@ -975,7 +977,7 @@ HANG = 6.0  # between an item's box and its residual circle under it (room for t
 @dataclass
 class _Side:
     """Where everything of one group's drawing laid out sideways goes (computed once by ``_sideways``)."""
-    kind: str  # "higher-order" or "bifactor"
+    kind: str  # "higher-order", "bifactor" or "correlated"
     x: dict[str, float]  # centre of every factor and item
     y: dict[str, float]
     box: float  # the width of every item's box
@@ -1001,7 +1003,10 @@ def _sideways(result, rows, obs_set) -> _Side | None:
     items.  It applies when every item loads on one factor (a bifactor model: on the general factor and at most one
     other), each factor below another on that one only, the correlations are between factors of the left column
     only (a bifactor model: none, nor between residuals), and the drawing is no higher than ``SIDEWAYS_HEIGHT`` nor
-    wider than ``MAX_WIDTH``; never with method factors or exploratory blocks."""
+    wider than ``MAX_WIDTH``; never with method factors or exploratory blocks.  A model of correlated factors (or of
+    one) is drawn so too, its correlations as arcs on the left of its factors, when its items are too wide for one
+    row: from the top it would be drawn in bands, its correlations (the demo's three factors) or its loadings (the
+    demo's one factor, on a second band) listed instead of drawn."""
     latent, observed = list(result.latent), list(result.observed)
     if _method_factors(result) or getattr(result, "exploratory", ()):
         return None
@@ -1015,9 +1020,12 @@ def _sideways(result, rows, obs_set) -> _Side | None:
     higher = any(level[f] > 1 for f in latent)
     covariances = [r.variables for r in rows if r.kind == "factor_covariance"]
     residual_pairs = [r.variables for r in rows if r.kind == "residual_covariance"]
-    if higher == bool(cross) or any(x not in parents for x in observed):
+    if higher and cross or any(x not in parents for x in observed):
         return None
-    if higher:
+    shown = item_labels(result)
+    if not higher and not cross and sum(_box_width(shown.get(x, x)) + BOX_GAP for x in observed) <= MAX_WIDTH - 2 * MARGIN:
+        return None  # correlated factors whose items fit in one row: drawn from the top, their arcs above
+    if not cross:
         top = max(level.values())
         if any(len(p) > 1 for p in parents.values()) or \
                 any(a in parents or b in parents or level[a] != top or level[b] != top for a, b in covariances):
@@ -1033,7 +1041,7 @@ def _sideways(result, rows, obs_set) -> _Side | None:
     # the order from the top: a depth-first walk from each factor that loads on no other (a higher-order model), or
     # the specific factors in the model's order with the items of the general factor only where they come
     blocks: list[tuple[str | None, list[str]]] = []
-    if higher:
+    if not cross:
         def walk(f: str) -> None:
             items = [c for c in children[f] if c in obs_set]
             if items:
@@ -1054,11 +1062,11 @@ def _sideways(result, rows, obs_set) -> _Side | None:
                 blocks.append((own, [x]))
         if len({f for f, _ in blocks if f is not None}) != sum(f is not None for f, _ in blocks):
             return None  # a specific factor's items apart in the data: their arrows would cross
-    shown = item_labels(result)
-    below = not higher
+    below = bool(cross)
     box = max([_box_width(shown.get(x, x)) for x in observed] + ([ITEM_COLUMN] if below else []))
     disturbed = frozenset(f for f in latent if f in parents)
-    side = _Side("higher-order" if higher else "bifactor", {}, {}, box, below, disturbed, right, {}, shown)
+    side = _Side("higher-order" if higher else "bifactor" if cross else "correlated", {}, {}, box, below, disturbed,
+                 right, {}, shown)
     # heights: the items block by block, a block moved down when its factor's disturbance would meet the factor above
     pitch = BOX_H + (2 * HANG + 2 * RESIDUAL_R + 2 if below else BOX_GAP)
     y, last = MARGIN, -math.inf  # the top of the next item; the lowest point of the last factor of items drawn
@@ -1080,23 +1088,27 @@ def _sideways(result, rows, obs_set) -> _Side | None:
     if general is not None:
         side.y[general] = (side.y[observed[0]] + side.y[observed[-1]]) / 2
     # across: the columns of factors from the highest level, then the items, then (bifactor) the specific factors
-    left_of = [lvl for lvl in range(max(level.values()), 0, -1)] if higher else [1]
-    column = {lvl: [f for f in latent if (level[f] == lvl if higher else f == general)] for lvl in left_of}
+    left_of = [lvl for lvl in range(max(level.values()), 0, -1)] if not cross else [1]
+    column = {lvl: [f for f in latent if (level[f] == lvl if not cross else f == general)] for lvl in left_of}
     arcs_room = _side_arc_room(covariances, side)
     x = MARGIN + arcs_room
+    def fan(factors) -> float:  # across to what they load on: to items, wider as their arrows spread over more items
+        spread = [FAN_SLOPE * abs(side.y[c] - side.y[f]) for f in factors for c in children[f] if c in obs_set]
+        return max([FAN] + spread) if spread else FACTOR_FAN
+
     for lvl in left_of:
         rx = max(_ellipse_rx(f) for f in column[lvl])
         for f in column[lvl]:
             side.x[f] = x + rx
-        x += 2 * rx + FAN
+        x += 2 * rx + fan(column[lvl])
     for name in observed:
         side.x[name] = x + box / 2
     x += box
     if below:
         rx = max(_ellipse_rx(f) for f in right)
         for f in right:
-            side.x[f] = x + FAN + rx
-        x += FAN + 2 * rx
+            side.x[f] = x + fan(right) + rx
+        x += fan(right) + 2 * rx
     else:
         side.drops = _nest_levels({p: sorted((side.y[p[0]], side.y[p[1]])) for p in residual_pairs})
         deepest = max((_drop(d) for d in side.drops.values()), default=0.0)
@@ -1183,7 +1195,8 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
         parts.append(f'<line class="loading" x1="{x1:.1f}" y1="{y1:.1f}" x2="{x2:.1f}" y2="{y2:.1f}" stroke="#333" '
                      f'stroke-width="1.3"{dashed} marker-end="url(#head)"/>')
         text = _value(r.standardized)
-        lx, ly = _free_spot([(x1 + k * (x2 - x1), y1 + k * (y2 - y1) + 4) for k in (0.72, 0.6, 0.84, 0.5, 0.4)],
+        # near the arrow's head, where the arrows of a fan stand farthest apart
+        lx, ly = _free_spot([(x1 + k * (x2 - x1), y1 + k * (y2 - y1) + 4) for k in (0.78, 0.66, 0.88, 0.55, 0.45)],
                             text, placed)
         parts.append(_label(lx, ly, text, problem=r_squared.get(target, 0.0) > 1.0 or flagged(r.kind, r.variables)))
     # correlations between factors of the left column: arcs on its left

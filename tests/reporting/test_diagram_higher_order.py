@@ -189,3 +189,28 @@ def test_two_correlated_second_order_factors_keep_their_arc_on_the_left():
         assert min(own) <= factors[f"t{j + 1}"][1] <= max(own)
         parent = "left" if j < 3 else "right"
         assert factors[parent][0] < factors[f"t{j + 1}"][0] < items["v1"][0]
+
+
+@pytest.mark.parametrize("model", ["rider_three_factors", "rider_one_factor"])
+def test_the_demo_models_of_correlated_factors_stand_in_one_column(rider_demo, model):
+    """The demo's twelve items are too wide for one row: from the top, the three-factor model was drawn in two bands,
+    its three correlations listed above the drawing, and the one-factor model went on in a second band, six of its
+    loadings listed.  Their items now stand in one column, each factor beside its own items, its correlations arcs
+    on the left: every loading an arrow, every correlation an arc, nothing listed, no arrow crossing another."""
+    from cfa_tool.resources import resource_dir
+
+    result = cfa_tool.fit((resource_dir("models") / f"{model}.cfa").read_text(), rider_demo)
+    svg = path_diagram(result)
+    assert overlaps(svg) == [] and "listed" not in svg and not ET.fromstring(svg).get("data-breaks")
+    factors, items, segments = shapes(svg)
+    assert crossings(segments) == []
+    assert len({round(x, 1) for x, _ in items.values()}) == 1
+    assert svg.count('class="loading"') == 12 and svg.count('class="covariance"') == len(factors) * (len(factors) - 1) // 2
+    children = {f: [r.variables[1] for r in result.estimates if r.kind == "loading" and r.variables[0] == f]
+                for f in factors}
+    for f, own in children.items():
+        ys = [items[x][1] for x in own]
+        assert min(ys) <= factors[f][1] <= max(ys) and factors[f][0] < items[own[0]][0]
+    from tests.reporting.test_diagram_arcs import unreadable
+
+    assert unreadable(diagram_file(result)) == []

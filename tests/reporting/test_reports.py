@@ -80,8 +80,9 @@ def test_diagram_has_one_ellipse_per_factor_and_one_rectangle_per_indicator(demo
     assert _count(r"<ellipse\b", svg) == len(demo_result.latent) == 3
     assert _count(r"<rect\b", svg) == len(demo_result.observed) == 12
     assert _count(r'class="loading"', svg) == 12
-    # the model is drawn in two bands: its factor correlations are listed above the drawing, not drawn as arcs
-    assert _count(r'class="listed-correlation"', svg) == 3 and _count(r'class="covariance"', svg) == 0
+    # its twelve items, too wide for one row, stand in one column (drawn sideways): its factor correlations are
+    # drawn as arcs on the left of the factors, none listed (from the top, in two bands, they had been listed)
+    assert _count(r'class="listed-correlation"', svg) == 0 and _count(r'class="covariance"', svg) == 3
 
 
 def test_diagram_of_a_large_higher_order_model_is_legible():
