@@ -755,33 +755,39 @@ def _draw(result, group: int) -> Drawing:
                          f'stroke="#333" marker-end="url(#head)"/>')
             parts.append(_label(cx, cy - RESIDUAL_R - 5, _value(r.standardized), problem=bad))
     # indicators and their residuals
+    residual = {r.variables[0]: r for r in rows if r.kind == "residual_variance"}
     for name in lay.order:
-        w, top = lay.widths[name], y_of[name]
-        parts.append(f'<rect class="indicator" x="{centre[name] - w / 2:.1f}" y="{top:.1f}" width="{w:.1f}" height="{BOX_H}" '
-                     f'fill="#ffffff" stroke="#333" stroke-width="1.3"/>')
-        parts.append(f'<text class="name" x="{centre[name]:.1f}" y="{top + BOX_H / 2 + 4:.1f}" font-size="12" '
-                     f'text-anchor="middle">{esc(lay.text(name))}</text>')
-        bad = flagged("residual_variance", (name,))
-        cx, cy = _residual_centre(name, lay)
-        parts.append(f'<circle class="residual{" problem" if bad else ""}" cx="{cx:.1f}" cy="{cy:.1f}" '
-                     f'r="{RESIDUAL_R}" fill="#fff" {stroke("residual_variance", (name,))}/>')
-        if lay.side_residuals:
-            parts.append(f'<line x1="{cx - RESIDUAL_R:.1f}" y1="{cy:.1f}" x2="{centre[name] + w / 2:.1f}" y2="{cy:.1f}" '
-                         f'stroke="#333" marker-end="url(#head)"/>')
-        else:
-            parts.append(f'<line x1="{cx:.1f}" y1="{cy - RESIDUAL_R:.1f}" x2="{cx:.1f}" y2="{top + BOX_H:.1f}" '
-                         f'stroke="#333" marker-end="url(#head)"/>')
-        resid = next((r for r in rows if r.kind == "residual_variance" and r.variables[0] == name), None)
-        if resid is not None:
-            text = _value(resid.standardized)
-            if lay.side_residuals:
-                parts.append(_label(cx, cy - RESIDUAL_R - 5, text, problem=bad))
-            else:
-                parts.append(_label(cx + RESIDUAL_R + 3, cy + 4, text, anchor="start", problem=bad))
+        parts += _indicator(lay.text(name), centre[name] - lay.widths[name] / 2, y_of[name], lay.widths[name],
+                            _residual_centre(name, lay), lay.side_residuals, residual.get(name),
+                            flagged("residual_variance", (name,)), stroke("residual_variance", (name,)))
     parts.append("</g>")
     if any(PROBLEM_COLOUR in part for part in parts):
         drawn.add(Drawn.PROBLEM)
     return Drawing(lay.width, lay.height + head, parts, [head + b for b in lay.breaks], frozenset(drawn))
+
+
+def _indicator(text: str, left: float, top: float, width: float, circle: tuple[float, float], beside: bool, residual,
+               bad: bool, stroke: str) -> list[str]:
+    """An item's box with its name, and its residual: a circle on the box's right (``beside``) or under it, its
+    arrow to the box, its value over it (beside) or on its right (under the box); red when ``bad``."""
+    cx, cy = circle
+    out = [f'<rect class="indicator" x="{left:.1f}" y="{top:.1f}" width="{width:.1f}" height="{BOX_H}" '
+           f'fill="#ffffff" stroke="#333" stroke-width="1.3"/>',
+           f'<text class="name" x="{left + width / 2:.1f}" y="{top + BOX_H / 2 + 4:.1f}" font-size="12" '
+           f'text-anchor="middle">{esc(text)}</text>',
+           f'<circle class="residual{" problem" if bad else ""}" cx="{cx:.1f}" cy="{cy:.1f}" r="{RESIDUAL_R}" '
+           f'fill="#fff" {stroke}/>']
+    if beside:
+        out.append(f'<line x1="{cx - RESIDUAL_R:.1f}" y1="{cy:.1f}" x2="{left + width:.1f}" y2="{cy:.1f}" '
+                   f'stroke="#333" marker-end="url(#head)"/>')
+    else:
+        out.append(f'<line x1="{cx:.1f}" y1="{cy - RESIDUAL_R:.1f}" x2="{cx:.1f}" y2="{top + BOX_H:.1f}" '
+                   f'stroke="#333" marker-end="url(#head)"/>')
+    if residual is not None:
+        value = _value(residual.standardized)
+        out.append(_label(cx, cy - RESIDUAL_R - 5, value, problem=bad) if beside else
+                   _label(cx + RESIDUAL_R + 3, cy + 4, value, anchor="start", problem=bad))
+    return out
 
 
 def _free_spot(spots: list[tuple[float, float]], text: str, placed: list, size: int = SMALLEST_TEXT) -> tuple[float, float]:
@@ -1241,24 +1247,9 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
     # items, their residuals (on their right, or under them) and the arcs between residuals (on the right)
     residual = {r.variables[0]: r for r in rows if r.kind == "residual_variance"}
     for name in result.observed:
-        parts.append(f'<rect class="indicator" x="{x[name] - half:.1f}" y="{y[name] - BOX_H / 2:.1f}" '
-                     f'width="{side.box:.1f}" height="{BOX_H}" fill="#ffffff" stroke="#333" stroke-width="1.3"/>')
-        parts.append(f'<text class="name" x="{x[name]:.1f}" y="{y[name] + 4:.1f}" font-size="12" '
-                     f'text-anchor="middle">{esc(side.text(name))}</text>')
-        bad = flagged("residual_variance", (name,))
-        cx, cy = _side_residual(name, side)
-        parts.append(f'<circle class="residual{" problem" if bad else ""}" cx="{cx:.1f}" cy="{cy:.1f}" '
-                     f'r="{RESIDUAL_R}" fill="#fff" {stroke("residual_variance", (name,))}/>')
-        if side.below:
-            parts.append(f'<line x1="{cx:.1f}" y1="{cy - RESIDUAL_R:.1f}" x2="{cx:.1f}" y2="{y[name] + BOX_H / 2:.1f}" '
-                         f'stroke="#333" marker-end="url(#head)"/>')
-        else:
-            parts.append(f'<line x1="{cx - RESIDUAL_R:.1f}" y1="{cy:.1f}" x2="{x[name] + half:.1f}" y2="{cy:.1f}" '
-                         f'stroke="#333" marker-end="url(#head)"/>')
-        if name in residual:
-            text = _value(residual[name].standardized)
-            spot = (cx + RESIDUAL_R + 3, cy + 4) if side.below else (cx, cy - RESIDUAL_R - 5)
-            parts.append(_label(*spot, text, anchor="start" if side.below else "middle", problem=bad))
+        parts += _indicator(side.text(name), x[name] - half, y[name] - BOX_H / 2, side.box, _side_residual(name, side),
+                            not side.below, residual.get(name), flagged("residual_variance", (name,)),
+                            stroke("residual_variance", (name,)))
     for r in rows:
         if r.kind == "residual_covariance":
             (xa, ya), (_, yb) = sorted((_side_residual(v, side) for v in r.variables), key=lambda p: p[1])
