@@ -688,16 +688,10 @@ def _draw(result, group: int) -> Drawing:
             x2, y2 = centre[target], y_of[target] + (BOX_H if from_below else 0)
         else:
             x2, y2 = centre[target], y_of[target] - ELLIPSE_RY
-        dashed = ' stroke-dasharray="5,4"' if not r.free else ""
-        if not r.free:
-            drawn.add(Drawn.FIXED_LOADING)
-        parts.append(f'<line class="loading" x1="{x1:.1f}" y1="{y1:.1f}" x2="{x2:.1f}" y2="{y2:.1f}" stroke="#333" '
-                     f'stroke-width="1.3"{dashed} marker-end="url(#head)"/>')
-        text = _value(r.standardized)
-        shares = (0.8, 0.9, 0.7, 0.6) if from_below else (0.72, 0.6, 0.84, 0.5, 0.4)
-        lx, ly = _free_spot([(x1 + k * (x2 - x1), y1 + k * (y2 - y1) + 4) for k in shares], text, placed)
         impossible = result.groups[group].r_squared.get(target, 0.0) > 1.0  # R-squared above 1
-        parts.append(_label(lx, ly, text, problem=impossible or flagged(r.kind, r.variables)))
+        parts += _loading(r, (x1, y1, x2, y2), (0.8, 0.9, 0.7, 0.6) if from_below else (0.72, 0.6, 0.84, 0.5, 0.4),
+                          placed, impossible or flagged(r.kind, r.variables))
+        drawn.update({Drawn.FIXED_LOADING} if not r.free else set())
     # covariances between factors (arcs above, or below for the bottom row) and between residuals (arcs below)
     ports = _ports(rows, lay)
     arcs = {}  # each factor covariance drawn: its curve (ends, the control point's height) and its value's text
@@ -764,6 +758,19 @@ def _draw(result, group: int) -> Drawing:
     if any(PROBLEM_COLOUR in part for part in parts):
         drawn.add(Drawn.PROBLEM)
     return Drawing(lay.width, lay.height + head, parts, [head + b for b in lay.breaks], frozenset(drawn))
+
+
+def _loading(r, ends: tuple[float, float, float, float], shares: tuple[float, ...], placed: list,
+             problem: bool) -> list[str]:
+    """A loading's straight arrow (dashed when fixed) from (x1, y1) to (x2, y2), ``ends``, and its value on it at the
+    first of ``shares`` of the way where it covers none of the ``placed`` boxes (``_free_spot``); red when
+    ``problem``."""
+    x1, y1, x2, y2 = ends
+    dashed = ' stroke-dasharray="5,4"' if not r.free else ""
+    text = _value(r.standardized)
+    spot = _free_spot([(x1 + k * (x2 - x1), y1 + k * (y2 - y1) + 4) for k in shares], text, placed)
+    return [f'<line class="loading" x1="{x1:.1f}" y1="{y1:.1f}" x2="{x2:.1f}" y2="{y2:.1f}" stroke="#333" '
+            f'stroke-width="1.3"{dashed} marker-end="url(#head)"/>', _label(*spot, text, problem=problem)]
 
 
 def _indicator(text: str, left: float, top: float, width: float, circle: tuple[float, float], beside: bool, residual,
@@ -1195,16 +1202,10 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
         x1, y1 = x[f] + (rx if rightward else -rx), y[f]
         reach = half if target in obs_set else _ellipse_rx(target)
         x2, y2 = x[target] + (-reach if rightward else reach), y[target]
-        dashed = ' stroke-dasharray="5,4"' if not r.free else ""
-        if not r.free:
-            drawn.add(Drawn.FIXED_LOADING)
-        parts.append(f'<line class="loading" x1="{x1:.1f}" y1="{y1:.1f}" x2="{x2:.1f}" y2="{y2:.1f}" stroke="#333" '
-                     f'stroke-width="1.3"{dashed} marker-end="url(#head)"/>')
-        text = _value(r.standardized)
-        # near the arrow's head, where the arrows of a fan stand farthest apart
-        lx, ly = _free_spot([(x1 + k * (x2 - x1), y1 + k * (y2 - y1) + 4) for k in (0.78, 0.66, 0.88, 0.55, 0.45)],
-                            text, placed)
-        parts.append(_label(lx, ly, text, problem=r_squared.get(target, 0.0) > 1.0 or flagged(r.kind, r.variables)))
+        # its value near the arrow's head, where the arrows of a fan stand farthest apart
+        parts += _loading(r, (x1, y1, x2, y2), (0.78, 0.66, 0.88, 0.55, 0.45), placed,
+                          r_squared.get(target, 0.0) > 1.0 or flagged(r.kind, r.variables))
+        drawn.update({Drawn.FIXED_LOADING} if not r.free else set())
     # correlations between factors of the left column: arcs on its left
     covariances = [r for r in rows if r.kind == "factor_covariance"]
     ports = _side_ports([r.variables for r in covariances], side)
