@@ -926,9 +926,13 @@ def _arc_values(arcs: list[tuple[float, float, float, float, float, str]], block
     return [spots[k] for k in range(len(arcs))]
 
 
-def _arc(x1: float, y1: float, x2: float, y2: float, control_y: float, cls: str, problem: bool = False) -> str:
+def _arc(x1: float, y1: float, x2: float, y2: float, control_y: float, cls: str, problem: bool = False,
+         control_x: float | None = None) -> str:
+    """A double-headed curve from (x1, y1) to (x2, y2) through the control point (``control_x``, ``control_y``):
+    above or under its ends (``control_x`` None: midway across), or beside them (a drawing laid out sideways)."""
     look = f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if problem else 'stroke="#555" stroke-width="1.1"'
-    return (f'<path class="{cls}{" problem" if problem else ""}" d="M{x1:.1f},{y1:.1f} Q{(x1 + x2) / 2:.1f},{control_y:.1f} '
+    across = (x1 + x2) / 2 if control_x is None else control_x
+    return (f'<path class="{cls}{" problem" if problem else ""}" d="M{x1:.1f},{y1:.1f} Q{across:.1f},{control_y:.1f} '
             f'{x2:.1f},{y2:.1f}" fill="none" {look} marker-start="url(#head)" marker-end="url(#head)"/>')
 
 
@@ -1214,10 +1218,7 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
         (xa, ya), (xb, yb) = sorted((ports[(r.variables, a)], ports[(r.variables, b)]), key=lambda p: p[1])
         control = min(xa, xb) - 2 * _lift(yb - ya)
         bad = flagged(r.kind, r.variables)
-        look = f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if bad else 'stroke="#555" stroke-width="1.1"'
-        parts.append(f'<path class="covariance{" problem" if bad else ""}" d="M{xa:.1f},{ya:.1f} '
-                     f'Q{control:.1f},{(ya + yb) / 2:.1f} {xb:.1f},{yb:.1f}" fill="none" {look} '
-                     f'marker-start="url(#head)" marker-end="url(#head)"/>')
+        parts.append(_arc(xa, ya, xb, yb, (ya + yb) / 2, "covariance", bad, control_x=control))
         drawn.add(Drawn.ARC)
         text = _value(r.standardized)
 
@@ -1256,10 +1257,8 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
             (xa, ya), (_, yb) = sorted((_side_residual(v, side) for v in r.variables), key=lambda p: p[1])
             drop = _drop(side.drops[r.variables])
             bad = flagged(r.kind, r.variables)
-            look = f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if bad else 'stroke="#555" stroke-width="1.1"'
-            parts.append(f'<path class="residual-covariance{" problem" if bad else ""}" d="M{xa + RESIDUAL_R:.1f},{ya:.1f} '
-                         f'Q{xa + RESIDUAL_R + 2 * drop:.1f},{(ya + yb) / 2:.1f} {xa + RESIDUAL_R:.1f},{yb:.1f}" '
-                         f'fill="none" {look} marker-start="url(#head)" marker-end="url(#head)"/>')
+            parts.append(_arc(xa + RESIDUAL_R, ya, xa + RESIDUAL_R, yb, (ya + yb) / 2, "residual-covariance", bad,
+                              control_x=xa + RESIDUAL_R + 2 * drop))
             drawn.add(Drawn.ARC)
             parts.append(_label(xa + RESIDUAL_R + drop + 4, (ya + yb) / 2 + 4, _value(r.standardized), anchor="start",
                                 problem=bad))  # beside the arc's farthest point
