@@ -237,12 +237,13 @@ def _key(entries: tuple[tuple[str, str], ...], room: int) -> Table:
 
 
 def _bullets(lines) -> Table:
-    """Lines as a list, each wrapped under its own first word (not under the dash)."""
+    """Lines as a list, each wrapped under its own first word (not under the dash), a long name broken after a '_'
+    or '-' inside it (:class:`_Folded`)."""
     grid = Table.grid(padding=(0, 1))
     grid.add_column(no_wrap=True)
     grid.add_column(overflow="fold")
     for line in lines:
-        grid.add_row("  -", Text(printable(line)))
+        grid.add_row("  -", _Folded(line, ""))
     return grid
 
 
@@ -261,15 +262,15 @@ def render_report(report, console: Console) -> None:
     if report.notice is not None:
         console.print(problem_panel(report.notice, view))
         console.print()
-    console.print(Text(report.title, style="bold underline"))
-    for line in report.lines:
-        console.print(said(line, view))
+    console.print(_Folded(report.title, "bold underline"))
+    for line in report.lines:  # (a long name broken after a '_' or '-' inside it, as in the tables: _Folded)
+        console.print(_Folded(said(line, view), ""))
     if report.warnings:
         console.print(Text(WARNINGS, style="bold"))
         console.print(_bullets([said(line, view) for line in report.warnings]))
     if report.paragraph:
         console.print()
-        console.print(report.paragraph)
+        console.print(_Folded(report.paragraph, ""))
     for figure in report.figures:  # pictures cannot be drawn here: named, where a reader finds them
         console.print(Text(f"{figure.title}: a picture, drawn in the HTML, Markdown and Word reports", style="dim"))
     console.print()
@@ -289,9 +290,9 @@ def render_report(report, console: Console) -> None:
         text = "\n".join(listing_lines(printable(listing.text, keep_newlines=True), console.width))
         console.print(Text(text))  # (a line that cannot break so, a name wider than the terminal, wraps there)
     for line in report.notes:
-        console.print(said(line, view))
+        console.print(_Folded(said(line, view), ""))
     for line in report.cautions:
-        console.print(Text(said(line, view), style="italic"))
+        console.print(_Folded(said(line, view), "italic"))
 
 
 def _outside_quotes(line: str, wanted: str) -> list[int]:

@@ -48,3 +48,22 @@ def test_a_continued_title_has_no_parentheses_around_a_title_that_holds_some():
     flat = " ".join(text.split())
     assert "Items: descriptive statistics (analysed rows), continued" in flat
     assert "(Items" not in flat
+
+
+def test_the_report_lines_paragraph_notes_and_cautions_break_a_long_name_as_the_tables_do(rider_demo):
+    """The neighbours of the titles: the methods paragraph, the lines under the title, the warnings, notes and
+    cautions of a fit whose factor is named with 45 characters, at 40 columns."""
+    import cfa_tool
+    from cfa_tool.reporting.fit_document import fit_report
+    from cfa_tool.reporting.terminal import report_text
+
+    name = "satisfaction_with_the_overall_service_quality"
+    result = cfa_tool.fit(f"factor {name}: on_time, short_wait, accurate_info, easy_transfer\n", rider_demo)
+    text = report_text(fit_report(result), 40)
+    text = re.sub(r"\nModel\n.*?\n\n", "\n", text, flags=re.S)  # (the model file's text, kept as it can be copied)
+    assert text.count("satisfaction_with_the_overall_service_") >= 3  # (the paragraph names it twice, a table once)
+    parts = set(name.split("_"))
+    for line in text.splitlines():
+        for piece in re.findall(r"[a-z_]*_[a-z_]*", line):
+            if piece.strip("_") and piece.strip("_") in name:
+                assert set(piece.strip("_").split("_")) <= parts, (piece, line)
