@@ -88,7 +88,9 @@ class _ColumnParts:
             report = keyed[0]
             whole = _widths(report)
         narrow = _widths(report, wrapped_headings=True)
-        floors = _unbroken_widths(report)
+        # a long name kept whole up to LONGEST_UNBROKEN, but in no more than half the room: at 40 columns a floor
+        # of 40 left the item column beside it one character wide, its names written down the page letter by letter
+        floors = [min(f, max(LEAST_TEXT, room // 2) + CELL_PADDING) for f in _unbroken_widths(report)]
         labels = label_columns(report.align, whole, room, report.rows)
         for k, columns in enumerate(column_parts(_wrapped(narrow, report.align, room, floors), room, labels)):
             if k:

@@ -67,3 +67,23 @@ def test_the_report_lines_paragraph_notes_and_cautions_break_a_long_name_as_the_
         for piece in re.findall(r"[a-z_]*_[a-z_]*", line):
             if piece.strip("_") and piece.strip("_") in name:
                 assert set(piece.strip("_").split("_")) <= parts, (piece, line)
+
+
+def test_at_40_columns_a_long_name_leaves_the_item_column_its_room(rider_demo):
+    """The descriptive statistics of items whose factor has a name of 45 characters, at 40 columns: the part of the
+    table that holds the factor's column kept it at 40 characters, unbroken (the rule of LONGEST_UNBROKEN), and
+    the item column beside it was one character wide, each name written down the page a letter to a line.  A long
+    name is now kept whole only up to half the room; each part shows every item's name whole."""
+    import cfa_tool
+    from cfa_tool.reporting.fit_document import fit_report
+    from cfa_tool.reporting.terminal import report_text
+
+    result = cfa_tool.fit("factor satisfaction_with_the_overall_service_quality: on_time, short_wait, accurate_info, "
+                          "easy_transfer\n", rider_demo)
+    text = report_text(fit_report(result), 40)
+    parts = text.split("Items: descriptive statistics")[1:]
+    assert len(parts) >= 3
+    for part in parts:
+        rows = part.split("\n\n")[0]
+        for item in ("on_time", "short_wait", "accurate_info", "easy_transfer"):
+            assert re.search(rf"^ {item} ", rows, flags=re.M), (item, rows)
