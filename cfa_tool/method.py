@@ -90,7 +90,9 @@ class FitTest(Choice):
     SATORRA_BENTLER = ("satorra-bentler", "Satorra-Bentler",
                        "the Satorra-Bentler scaled test and robust standard errors")
     YUAN_BENTLER = ("yuan-bentler", "Yuan-Bentler", "the Yuan-Bentler scaled test and robust standard errors")
-    SCALE_SHIFTED = ("scale-shifted", f"{ADJUSTED_TEST} (Asparouhov & Muthén 2010)",
+    # (its name holds no citation: tables and notes put it in parentheses, "Scaled chi-square (...)"; the methods
+    # text cites it)
+    SCALE_SHIFTED = ("scale-shifted", ADJUSTED_TEST,
                      f"{ADJUSTED_TEST} chi-square test (Asparouhov & Muthén, 2010)", False)
     # the robust test that suits the data, resolved before any fit (FitOptions): Satorra-Bentler with
     # complete rows, Yuan-Bentler with full-information ML, the adjusted test of least squares for ordinal items

@@ -187,8 +187,8 @@ DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.DESIGN_DOMINA
 #: per factor and the whole N than on this ratio.
 ROWS_PER_PARAMETER = 5
 #: the rule in words, in the cautions of a small sample and of a small group alike
-ROWS_RULE = (f"a common rule of thumb (Bentler & Chou 1987) asks for at least {ROWS_PER_PARAMETER} rows "
-             f"per parameter; a convention, not a law")
+ROWS_RULE = (f"a common rule of thumb, after Bentler & Chou 1987, asks for at least {ROWS_PER_PARAMETER} rows "
+             f"per parameter; a convention, not a law")  # (no parenthesis: the cautions say it inside theirs)
 
 
 @dataclass(frozen=True)

@@ -1904,8 +1904,8 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
                           f"whose robust test is Yuan-Bentler ({Option.ROBUST} chooses it); for the Satorra-Bentler test "
                           f"of the complete rows only, choose {Option.INCOMPLETE_ROWS.given('listwise')}")
     note = Note((f"{gaps} of {rows} rows miss some answers on model variables; every answer is used by "
-                 f"full-information ML (the default when answers are missing; a fit of the complete rows only",
-                 Command(f" ({Option.INCOMPLETE_ROWS.given('listwise')})"), " would leave those rows out)"
+                 f"full-information ML, the default when answers are missing; a fit of the complete rows only",
+                 Command(f" ({Option.INCOMPLETE_ROWS.given('listwise')})"), " would leave those rows out"
                  + (("; under the sampling design the test is design-based, with the Yuan-Bentler scaling of "
                      "full-information ML" if design is not None and design.robust else
                      "; the robust test with full-information ML is the Yuan-Bentler one") if robust else "")))

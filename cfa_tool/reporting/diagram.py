@@ -8,8 +8,15 @@ share of the indicator's variance it leaves unexplained.  Only ellipses are
 factors and only rectangles are indicators, so the drawing can be checked by
 counting them.
 
-Layout, from the top: higher-order factors (one row per level), the factors
-of the traits each centred over its own items, the items, and, when the model
+A higher-order or a bifactor model whose items fit in one column of a page's height is drawn sideways
+(``_sideways``): from the left, the factors of the highest level, each level's factors beside what they load on,
+the first-order factors each beside its own items, the items in one column and their residuals; a bifactor model's
+general factor on the left of the items and its specific factors on their right, the residuals under the items.
+No two arrows cross.
+
+Any other model is laid out from the top: higher-order factors (one row per level), the factors
+of the traits each over its own items (moved along the row only as far as its last item, the items
+moved instead when a factor needs more room: ``_place_items``), the items, and, when the model
 has them, a bottom row for factors that load on items of several traits: the
 general factor of a bifactor model and method factors (grey).  Residual
 circles then sit beside their items, so the lines from the bottom row reach
@@ -140,7 +147,7 @@ class Drawn(enum.Enum):
     LISTED_LOADING = "loadings whose arrows would cross a row of items are listed above the drawing"
     ROUTED_LOADING = ("arrows along the left edge: loadings of a factor drawn above the rows on factors of the rows "
                       "below")
-    DISTURBANCE = "a circle beside a factor: the share of its variance the factors above it do not explain"
+    DISTURBANCE = "a circle joined to a factor: the share of its variance the higher-order factors do not explain"
     PROBLEM = "red: a value that makes the solution impossible or doubtful (see the report)"
 
 
@@ -229,14 +236,18 @@ def _cross_factors(latent, children, obs_set, methods) -> frozenset[str]:
     return frozenset(cross)
 
 
-def _layout(result, rows, obs_set) -> _Layout:
-    observed, latent = list(result.observed), list(result.latent)
-    loadings = [r for r in rows if r.kind == "loading"]
+def _children(latent, rows) -> dict[str, list[str]]:
+    """What each factor loads on (items and factors), in the order of the model's loadings."""
     children: dict[str, list[str]] = {f: [] for f in latent}
-    for r in loadings:
-        children[r.variables[0]].append(r.variables[1])
-    lay = _Layout(shown=item_labels(result))
-    level = lay.level
+    for r in rows:
+        if r.kind == "loading":
+            children[r.variables[0]].append(r.variables[1])
+    return children
+
+
+def _levels(latent, children, obs_set) -> dict[str, int]:
+    """Each factor's level: 1 for a factor of items only, one more than the highest factor it loads on otherwise."""
+    level: dict[str, int] = {}
 
     def level_of(f: str, seen: frozenset = frozenset()) -> int:
         if f in level:
@@ -247,6 +258,15 @@ def _layout(result, rows, obs_set) -> _Layout:
 
     for f in latent:
         level_of(f)
+    return level
+
+
+def _layout(result, rows, obs_set) -> _Layout:
+    observed, latent = list(result.observed), list(result.latent)
+    loadings = [r for r in rows if r.kind == "loading"]
+    children = _children(latent, rows)
+    lay = _Layout(shown=item_labels(result), level=_levels(latent, children, obs_set))
+    level = lay.level
     cross = _cross_factors(latent, children, obs_set, _method_factors(result))
     top = max(level.values(), default=1)
     # each item sits under its home factor: the trait factor with its largest loading (in size)
@@ -286,22 +306,17 @@ def _layout(result, rows, obs_set) -> _Layout:
             if f is not None and f not in lay.apart and lay.band_of[f] != b:
                 lay.continued.append((f, tuple(x for x in band if home.get(x) == f)))
     # x positions: items band by band from the left margin, factors over their own items
-    for band in bands:
-        x = MARGIN
-        for name in band:
-            lay.centre[name] = x + lay.widths[name] / 2
-            x += step[name]
-    width = max((MARGIN + sum(step[x] for x in band) - BOX_GAP + MARGIN for band in bands), default=200.0)
     disturbed = _disturbed(rows, latent, children)
+    joined = frozenset() if wrap else frozenset(frozenset(r.variables) for r in rows if r.kind == "factor_covariance")
+    first_order = {f for f in latent if level[f] == 1 and f not in lay.apart and f not in lay.bottom}
+    width = _place_items(bands, step, lay, first_order, disturbed, joined)
     for lvl in range(1, top + 1):
-        for f in [f for f in latent if level[f] == lvl and f not in lay.apart]:
+        for f in [f for f in latent if level[f] == lvl and f not in lay.apart and f not in lay.centre]:
             kids = [c for c in children[f] if c in lay.centre]
             own = [c for c in kids if home.get(c) == f and lay.band_of[c] == lay.band_of[f]] or kids
             lay.centre[f] = sum(lay.centre[c] for c in own) / len(own) if own else width / 2
     _spread_factors([f for f in latent if f not in lay.apart],
-                    {f: (lay.band_of[f], level[f], f in lay.bottom) for f in latent}, lay.centre, disturbed,
-                    frozenset() if wrap else frozenset(frozenset(r.variables) for r in rows
-                                                       if r.kind == "factor_covariance"))
+                    {f: (lay.band_of[f], level[f], f in lay.bottom) for f in latent}, lay.centre, disturbed, joined)
     width = max(width, max((lay.centre[f] + _ellipse_rx(f) + 50 for f in latent if f not in lay.apart), default=0.0),
                 200.0)
     lay.width = width
@@ -379,6 +394,53 @@ def _layout(result, rows, obs_set) -> _Layout:
         y += ELLIPSE_RY + _arc_rise(rows, lay, [r.variables for r in bottom_arcs])
     lay.height = y + 40
     return lay
+
+
+def _place_items(bands: list[list[str]], step: dict[str, float], lay: _Layout, first_order: set[str],
+                 disturbed: set[str], joined: frozenset) -> float:
+    """The x of every item, band by band from the left margin, and of each first-order factor drawn over its own
+    items (``first_order``): at their middle, or to the right of it as far as its last item when the factor on its
+    left needs the room (``_need``); only when even that is too little are its items moved right, so that a factor
+    is never pushed along the row beyond its own items over another factor's (session note s19: the first-order
+    factors of a higher-order model, their ellipses and disturbance circles wider than their two or three items,
+    had stood to the right of them).  The drawing's width."""
+    width = 200.0
+    for band in bands:
+        x, last = MARGIN, None
+        blocks: list[list[str]] = []
+        for name in band:
+            if blocks and lay.home.get(name) == lay.home.get(blocks[-1][0]):
+                blocks[-1].append(name)
+            else:
+                blocks.append([name])
+        for block in blocks:
+            f = lay.home.get(block[0])
+            centres, at = [], x
+            for name in block:
+                centres.append(at + lay.widths[name] / 2)
+                at += step[name]
+            shift = 0.0
+            if f in first_order and lay.band_of[f] == lay.band_of[block[0]]:
+                want = max(sum(centres) / len(centres), MARGIN + _ellipse_rx(f))  # (its ellipse inside the picture)
+                if last is not None:
+                    want = max(want, lay.centre[last] + _need(last, f, disturbed, joined))
+                shift = max(0.0, want - centres[-1])
+                lay.centre[f] = want
+                last = f
+            for name, centre in zip(block, centres):
+                lay.centre[name] = centre + shift
+            x = at + shift
+        width = max(width, x - BOX_GAP + MARGIN)
+    return width
+
+
+def _need(a: str, b: str, disturbed: set[str], joined: frozenset) -> float:
+    """How far apart the centres of neighbouring factors ``a`` (on the left) and ``b`` of one row must stand: their
+    ellipses, ``a``'s disturbance circle on its right and, for neighbours joined by an arc, the room of its value."""
+    need = _ellipse_rx(a) + _ellipse_rx(b) + 16 + (2 * RESIDUAL_R + 40 if a in disturbed else 0)
+    if frozenset((a, b)) in joined:
+        need = max(need, SHORTEST_ARC + PORT_SPREAD * (_ellipse_rx(a) + _ellipse_rx(b)))
+    return need
 
 
 def _disturbed(rows, latent, children) -> set[str]:
@@ -570,6 +632,9 @@ def _draw(result, group: int) -> Drawing:
 
     latent = list(result.latent)
     obs_set = set(result.observed)
+    side = _sideways(result, rows, obs_set)
+    if side is not None:
+        return _draw_sideways(result, group, rows, side, flagged)
     lay = _layout(result, rows, obs_set)
     centre, y_of = lay.centre, lay.y_of
     methods = _method_factors(result)
@@ -623,16 +688,10 @@ def _draw(result, group: int) -> Drawing:
             x2, y2 = centre[target], y_of[target] + (BOX_H if from_below else 0)
         else:
             x2, y2 = centre[target], y_of[target] - ELLIPSE_RY
-        dashed = ' stroke-dasharray="5,4"' if not r.free else ""
-        if not r.free:
-            drawn.add(Drawn.FIXED_LOADING)
-        parts.append(f'<line class="loading" x1="{x1:.1f}" y1="{y1:.1f}" x2="{x2:.1f}" y2="{y2:.1f}" stroke="#333" '
-                     f'stroke-width="1.3"{dashed} marker-end="url(#head)"/>')
-        text = _value(r.standardized)
-        shares = (0.8, 0.9, 0.7, 0.6) if from_below else (0.72, 0.6, 0.84, 0.5, 0.4)
-        lx, ly = _free_spot([(x1 + k * (x2 - x1), y1 + k * (y2 - y1) + 4) for k in shares], text, placed)
         impossible = result.groups[group].r_squared.get(target, 0.0) > 1.0  # R-squared above 1
-        parts.append(_label(lx, ly, text, problem=impossible or flagged(r.kind, r.variables)))
+        parts += _loading(r, (x1, y1, x2, y2), (0.8, 0.9, 0.7, 0.6) if from_below else (0.72, 0.6, 0.84, 0.5, 0.4),
+                          placed, impossible or flagged(r.kind, r.variables))
+        drawn.update({Drawn.FIXED_LOADING} if not r.free else set())
     # covariances between factors (arcs above, or below for the bottom row) and between residuals (arcs below)
     ports = _ports(rows, lay)
     arcs = {}  # each factor covariance drawn: its curve (ends, the control point's height) and its value's text
@@ -690,33 +749,52 @@ def _draw(result, group: int) -> Drawing:
                          f'stroke="#333" marker-end="url(#head)"/>')
             parts.append(_label(cx, cy - RESIDUAL_R - 5, _value(r.standardized), problem=bad))
     # indicators and their residuals
+    residual = {r.variables[0]: r for r in rows if r.kind == "residual_variance"}
     for name in lay.order:
-        w, top = lay.widths[name], y_of[name]
-        parts.append(f'<rect class="indicator" x="{centre[name] - w / 2:.1f}" y="{top:.1f}" width="{w:.1f}" height="{BOX_H}" '
-                     f'fill="#ffffff" stroke="#333" stroke-width="1.3"/>')
-        parts.append(f'<text class="name" x="{centre[name]:.1f}" y="{top + BOX_H / 2 + 4:.1f}" font-size="12" '
-                     f'text-anchor="middle">{esc(lay.text(name))}</text>')
-        bad = flagged("residual_variance", (name,))
-        cx, cy = _residual_centre(name, lay)
-        parts.append(f'<circle class="residual{" problem" if bad else ""}" cx="{cx:.1f}" cy="{cy:.1f}" '
-                     f'r="{RESIDUAL_R}" fill="#fff" {stroke("residual_variance", (name,))}/>')
-        if lay.side_residuals:
-            parts.append(f'<line x1="{cx - RESIDUAL_R:.1f}" y1="{cy:.1f}" x2="{centre[name] + w / 2:.1f}" y2="{cy:.1f}" '
-                         f'stroke="#333" marker-end="url(#head)"/>')
-        else:
-            parts.append(f'<line x1="{cx:.1f}" y1="{cy - RESIDUAL_R:.1f}" x2="{cx:.1f}" y2="{top + BOX_H:.1f}" '
-                         f'stroke="#333" marker-end="url(#head)"/>')
-        resid = next((r for r in rows if r.kind == "residual_variance" and r.variables[0] == name), None)
-        if resid is not None:
-            text = _value(resid.standardized)
-            if lay.side_residuals:
-                parts.append(_label(cx, cy - RESIDUAL_R - 5, text, problem=bad))
-            else:
-                parts.append(_label(cx + RESIDUAL_R + 3, cy + 4, text, anchor="start", problem=bad))
+        parts += _indicator(lay.text(name), centre[name] - lay.widths[name] / 2, y_of[name], lay.widths[name],
+                            _residual_centre(name, lay), lay.side_residuals, residual.get(name),
+                            flagged("residual_variance", (name,)), stroke("residual_variance", (name,)))
     parts.append("</g>")
     if any(PROBLEM_COLOUR in part for part in parts):
         drawn.add(Drawn.PROBLEM)
     return Drawing(lay.width, lay.height + head, parts, [head + b for b in lay.breaks], frozenset(drawn))
+
+
+def _loading(r, ends: tuple[float, float, float, float], shares: tuple[float, ...], placed: list,
+             problem: bool) -> list[str]:
+    """A loading's straight arrow (dashed when fixed) from (x1, y1) to (x2, y2), ``ends``, and its value on it at the
+    first of ``shares`` of the way where it covers none of the ``placed`` boxes (``_free_spot``); red when
+    ``problem``."""
+    x1, y1, x2, y2 = ends
+    dashed = ' stroke-dasharray="5,4"' if not r.free else ""
+    text = _value(r.standardized)
+    spot = _free_spot([(x1 + k * (x2 - x1), y1 + k * (y2 - y1) + 4) for k in shares], text, placed)
+    return [f'<line class="loading" x1="{x1:.1f}" y1="{y1:.1f}" x2="{x2:.1f}" y2="{y2:.1f}" stroke="#333" '
+            f'stroke-width="1.3"{dashed} marker-end="url(#head)"/>', _label(*spot, text, problem=problem)]
+
+
+def _indicator(text: str, left: float, top: float, width: float, circle: tuple[float, float], beside: bool, residual,
+               bad: bool, stroke: str) -> list[str]:
+    """An item's box with its name, and its residual: a circle on the box's right (``beside``) or under it, its
+    arrow to the box, its value over it (beside) or on its right (under the box); red when ``bad``."""
+    cx, cy = circle
+    out = [f'<rect class="indicator" x="{left:.1f}" y="{top:.1f}" width="{width:.1f}" height="{BOX_H}" '
+           f'fill="#ffffff" stroke="#333" stroke-width="1.3"/>',
+           f'<text class="name" x="{left + width / 2:.1f}" y="{top + BOX_H / 2 + 4:.1f}" font-size="12" '
+           f'text-anchor="middle">{esc(text)}</text>',
+           f'<circle class="residual{" problem" if bad else ""}" cx="{cx:.1f}" cy="{cy:.1f}" r="{RESIDUAL_R}" '
+           f'fill="#fff" {stroke}/>']
+    if beside:
+        out.append(f'<line x1="{cx - RESIDUAL_R:.1f}" y1="{cy:.1f}" x2="{left + width:.1f}" y2="{cy:.1f}" '
+                   f'stroke="#333" marker-end="url(#head)"/>')
+    else:
+        out.append(f'<line x1="{cx:.1f}" y1="{cy - RESIDUAL_R:.1f}" x2="{cx:.1f}" y2="{top + BOX_H:.1f}" '
+                   f'stroke="#333" marker-end="url(#head)"/>')
+    if residual is not None:
+        value = _value(residual.standardized)
+        out.append(_label(cx, cy - RESIDUAL_R - 5, value, problem=bad) if beside else
+                   _label(cx + RESIDUAL_R + 3, cy + 4, value, anchor="start", problem=bad))
+    return out
 
 
 def _free_spot(spots: list[tuple[float, float]], text: str, placed: list, size: int = SMALLEST_TEXT) -> tuple[float, float]:
@@ -848,9 +926,13 @@ def _arc_values(arcs: list[tuple[float, float, float, float, float, str]], block
     return [spots[k] for k in range(len(arcs))]
 
 
-def _arc(x1: float, y1: float, x2: float, y2: float, control_y: float, cls: str, problem: bool = False) -> str:
+def _arc(x1: float, y1: float, x2: float, y2: float, control_y: float, cls: str, problem: bool = False,
+         control_x: float | None = None) -> str:
+    """A double-headed curve from (x1, y1) to (x2, y2) through the control point (``control_x``, ``control_y``):
+    above or under its ends (``control_x`` None: midway across), or beside them (a drawing laid out sideways)."""
     look = f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if problem else 'stroke="#555" stroke-width="1.1"'
-    return (f'<path class="{cls}{" problem" if problem else ""}" d="M{x1:.1f},{y1:.1f} Q{(x1 + x2) / 2:.1f},{control_y:.1f} '
+    across = (x1 + x2) / 2 if control_x is None else control_x
+    return (f'<path class="{cls}{" problem" if problem else ""}" d="M{x1:.1f},{y1:.1f} Q{across:.1f},{control_y:.1f} '
             f'{x2:.1f},{y2:.1f}" fill="none" {look} marker-start="url(#head)" marker-end="url(#head)"/>')
 
 
@@ -861,9 +943,7 @@ def _spread_factors(latent: list[str], row_of: dict, centre: dict[str, float], d
     for row in set(row_of.values()):
         ordered = sorted((f for f in latent if row_of[f] == row), key=lambda f: centre[f])
         for a, b in zip(ordered, ordered[1:]):
-            need = _ellipse_rx(a) + _ellipse_rx(b) + 16 + (2 * RESIDUAL_R + 40 if a in disturbed else 0)
-            if frozenset((a, b)) in joined:
-                need = max(need, SHORTEST_ARC + PORT_SPREAD * (_ellipse_rx(a) + _ellipse_rx(b)))
+            need = _need(a, b, disturbed, joined)
             if centre[b] - centre[a] < need:
                 centre[b] = centre[a] + need
 
@@ -891,3 +971,305 @@ def _block_rows(result) -> list:
                 if g not in drawn]  # two blocks' correlations: drawn once, with the first block
         drawn.update(block.factors)
     return out
+
+
+# ---------------------------------------------------------------------------------------------------------------
+# Sideways: a model of a page's height of items, drawn from left to right (see _sideways)
+# ---------------------------------------------------------------------------------------------------------------
+
+#: the height a drawing laid out sideways may take: its items in one column on a portrait page of the Word report
+#: (letter paper, 1 inch margins: 9 inches of text, less about 1.5 for the caption and the legend under it) print their
+#: smallest text at ``MIN_FIGURE_TEXT`` or more, the legibility rule of ``MAX_WIDTH`` turned on its side
+PRINT_HEIGHT = 7.5  # inches
+SIDEWAYS_HEIGHT = math.floor(SMALLEST_TEXT * 72 * PRINT_HEIGHT / MIN_FIGURE_TEXT)  # 925 units
+FAN = 120.0  # across from a factor's ellipse to what it loads on: the room for the arrows and their values, and
+FACTOR_FAN = 90.0  # across to factors: a few arrows, their values far apart
+FAN_SLOPE = 0.4  # to items, at least this share of the farthest height they reach, so that their values stand apart
+BLOCK_GAP = 12.0  # between the items of two factors in the column of items
+ITEM_COLUMN = 96.0  # least width of the item boxes under which a residual hangs (its value beside it, in the box's width)
+DISTURBANCE_GAP = 8.0  # between a factor's ellipse and its disturbance circle above it
+HANG = 6.0  # between an item's box and its residual circle under it (room for the arrowhead), and under the circle
+
+
+@dataclass
+class _Side:
+    """Where everything of one group's drawing laid out sideways goes (computed once by ``_sideways``)."""
+    kind: str  # "higher-order", "bifactor" or "correlated"
+    x: dict[str, float]  # centre of every factor and item
+    y: dict[str, float]
+    box: float  # the width of every item's box
+    below: bool  # residuals hang under their items (bifactor: factors on both sides of the items)
+    disturbed: frozenset[str]  # factors with a disturbance circle above them
+    right: frozenset[str]  # factors to the right of the items (a bifactor model's specific factors)
+    drops: dict  # depth of each arc between residuals (to the right of the residuals)
+    shown: dict[str, str]
+    width: float = 0.0
+    height: float = 0.0
+
+    def text(self, name: str) -> str:
+        return self.shown.get(name, name)
+
+
+def _sideways(result, rows, obs_set) -> _Side | None:
+    """The layout of a higher-order model or of a bifactor model, from left to right, when it applies (None
+    otherwise: the drawing is then laid out from the top by ``_layout``).  A higher-order model: the factors of the
+    highest level on the left, each level's factors in a column centred on what they load on, the first-order factors
+    each beside its own items, the items in one column, the residuals on their right; its blocks of items in the
+    order of the factors above them, so that no two arrows cross.  A bifactor model: the general factor on the left
+    of the column of items, the specific factors on its right, each beside its own items, the residuals under their
+    items.  It applies when every item loads on one factor (a bifactor model: on the general factor and at most one
+    other), each factor below another on that one only, the correlations are between factors of the left column
+    only (a bifactor model: none, nor between residuals), and the drawing is no higher than ``SIDEWAYS_HEIGHT`` nor
+    wider than ``MAX_WIDTH``; never with method factors or exploratory blocks.  A model of correlated factors (or of
+    one) is drawn so too, its correlations as arcs on the left of its factors, when its items are too wide for one
+    row: from the top it would be drawn in bands, its correlations (the demo's three factors) or its loadings (the
+    demo's one factor, on a second band) listed instead of drawn."""
+    latent, observed = list(result.latent), list(result.observed)
+    if _method_factors(result) or getattr(result, "exploratory", ()):
+        return None
+    children = _children(latent, rows)
+    level = _levels(latent, children, obs_set)
+    cross = _cross_factors(latent, children, obs_set, frozenset())
+    parents: dict[str, list[str]] = {}
+    for f in latent:
+        for c in children[f]:
+            parents.setdefault(c, []).append(f)
+    higher = any(level[f] > 1 for f in latent)
+    covariances = [r.variables for r in rows if r.kind == "factor_covariance"]
+    residual_pairs = [r.variables for r in rows if r.kind == "residual_covariance"]
+    if higher and cross or any(x not in parents for x in observed):
+        return None
+    shown = item_labels(result)
+    if not higher and not cross and sum(_box_width(shown.get(x, x)) + BOX_GAP for x in observed) <= MAX_WIDTH - 2 * MARGIN:
+        return None  # correlated factors whose items fit in one row: drawn from the top, their arcs above
+    if not cross:
+        top = max(level.values())
+        if any(len(p) > 1 for p in parents.values()) or \
+                any(a in parents or b in parents or level[a] != top or level[b] != top for a, b in covariances):
+            return None
+        general, right = None, frozenset()
+    else:
+        if len(cross) != 1 or covariances or residual_pairs:
+            return None
+        (general,) = cross
+        if any(len([p for p in parents[x] if p != general]) > 1 for x in observed):
+            return None
+        right = frozenset(f for f in latent if f != general)
+    # the order from the top: a depth-first walk from each factor that loads on no other (a higher-order model), or
+    # the specific factors in the model's order with the items of the general factor only where they come
+    blocks: list[tuple[str | None, list[str]]] = []
+    if not cross:
+        def walk(f: str) -> None:
+            items = [c for c in children[f] if c in obs_set]
+            if items:
+                blocks.append((f, items))
+            for c in children[f]:
+                if c not in obs_set:
+                    walk(c)
+
+        for f in latent:
+            if f not in parents:
+                walk(f)
+    else:
+        for x in observed:
+            own = next((p for p in parents[x] if p != general), None)
+            if blocks and own is not None and blocks[-1][0] == own:
+                blocks[-1][1].append(x)
+            else:
+                blocks.append((own, [x]))
+        if len({f for f, _ in blocks if f is not None}) != sum(f is not None for f, _ in blocks):
+            return None  # a specific factor's items apart in the data: their arrows would cross
+    below = bool(cross)
+    box = max([_box_width(shown.get(x, x)) for x in observed] + ([ITEM_COLUMN] if below else []))
+    disturbed = frozenset(f for f in latent if f in parents)
+    side = _Side("higher-order" if higher else "bifactor" if cross else "correlated", {}, {}, box, below, disturbed,
+                 right, {}, shown)
+    # heights: the items block by block, a block moved down when its factor's disturbance would meet the factor above
+    pitch = BOX_H + (2 * HANG + 2 * RESIDUAL_R + 2 if below else BOX_GAP)
+    y, last = MARGIN, -math.inf  # the top of the next item; the lowest point of the last factor of items drawn
+    for f, items in blocks:
+        if f is not None:
+            centre = y + (len(items) - 1) * pitch / 2 + BOX_H / 2
+            up = ELLIPSE_RY + (DISTURBANCE_GAP + 2 * RESIDUAL_R if f in disturbed else 0)
+            y += max(0.0, last + 10 - (centre - up))
+        for k, x in enumerate(items):
+            side.y[x] = y + k * pitch + BOX_H / 2
+        if f is not None:
+            side.y[f] = (side.y[items[0]] + side.y[items[-1]]) / 2
+            last = side.y[f] + ELLIPSE_RY
+        y += len(items) * pitch + (BLOCK_GAP / 2 if below else BLOCK_GAP)  # (residuals under items part them)
+    for lvl in range(2, max(level.values()) + 1):
+        for f in latent:
+            if level[f] == lvl and not children[f][0] in obs_set:
+                side.y[f] = sum(side.y[c] for c in children[f]) / len(children[f])
+    if general is not None:
+        side.y[general] = (side.y[observed[0]] + side.y[observed[-1]]) / 2
+    # across: the columns of factors from the highest level, then the items, then (bifactor) the specific factors
+    left_of = [lvl for lvl in range(max(level.values()), 0, -1)] if not cross else [1]
+    column = {lvl: [f for f in latent if (level[f] == lvl if not cross else f == general)] for lvl in left_of}
+    arcs_room = _side_arc_room(covariances, side)
+    x = MARGIN + arcs_room
+    def fan(factors) -> float:  # across to what they load on: to items, wider as their arrows spread over more items
+        spread = [FAN_SLOPE * abs(side.y[c] - side.y[f]) for f in factors for c in children[f] if c in obs_set]
+        return max([FAN] + spread) if spread else FACTOR_FAN
+
+    for lvl in left_of:
+        rx = max(_ellipse_rx(f) for f in column[lvl])
+        for f in column[lvl]:
+            side.x[f] = x + rx
+        x += 2 * rx + fan(column[lvl])
+    for name in observed:
+        side.x[name] = x + box / 2
+    x += box
+    if below:
+        rx = max(_ellipse_rx(f) for f in right)
+        for f in right:
+            side.x[f] = x + fan(right) + rx
+        x += fan(right) + 2 * rx
+    else:
+        side.drops = _nest_levels({p: sorted((side.y[p[0]], side.y[p[1]])) for p in residual_pairs})
+        deepest = max((_drop(d) for d in side.drops.values()), default=0.0)
+        x += SIDE_GAP + 2 * RESIDUAL_R + (deepest + 4 + TEXT_EM * SMALLEST_TEXT * 4 if side.drops else 0.0)
+        x += TEXT_EM * SMALLEST_TEXT * 2  # a residual's value over its circle reaches past it
+    side.width = max(x + MARGIN, 200.0)
+    lowest = max(side.y[x] + BOX_H / 2 for x in observed) + (HANG + 2 * RESIDUAL_R if below else 0.0)
+    side.height = lowest + MARGIN
+    if side.height > SIDEWAYS_HEIGHT or side.width > MAX_WIDTH:
+        return None
+    return side
+
+
+def _side_arc_room(covariances, side: _Side) -> float:
+    """Room on the left of the left column for the arcs between its factors (their bulge and a value beside it);
+    0 without arcs.  Called before the factors' x are known: their heights are."""
+    if not covariances:
+        return 0.0
+    return max(_lift(abs(side.y[a] - side.y[b])) for a, b in covariances) + TEXT_EM * SMALLEST_TEXT * 3 + 10
+
+
+def _nest_levels(spans: dict) -> dict:
+    """A level (1, 2, ...) for each arc of ``spans`` (pair: (low, high)): shorter arcs first, each one level beyond
+    every arc whose span overlaps or touches its own, so that nested arcs and arcs that share an end keep their
+    values apart."""
+    levels: dict = {}
+    for p in sorted(spans, key=lambda q: (spans[q][1] - spans[q][0], spans[q][0])):
+        a, b = spans[p]
+        levels[p] = 1 + max((levels[q] for q in levels if spans[q][0] <= b and a <= spans[q][1]), default=0)
+    return levels
+
+
+def _side_ports(covariances, side: _Side) -> dict:
+    """Where each arc between two factors of the left column leaves each ellipse: spread over its left side, in the
+    order ``_port_offsets`` gives the top of an ellipse (turned on its side), so that arcs with a common end never
+    cross."""
+    ends: dict[str, list[tuple[float, tuple]]] = {}
+    for a, b in covariances:
+        ends.setdefault(a, []).append((side.y[b] - side.y[a], (a, b)))
+        ends.setdefault(b, []).append((side.y[a] - side.y[b], (a, b)))
+    ports = {}
+    for f, arcs in ends.items():
+        arcs.sort(key=lambda e: (e[0] > 0, abs(e[0]) if e[0] <= 0 else -abs(e[0])))
+        n = len(arcs)
+        for k, (_, pair) in enumerate(arcs):
+            dy = 0.0 if n == 1 else PORT_SPREAD * ELLIPSE_RY * (2 * k / (n - 1) - 1)
+            dx = _ellipse_rx(f) * math.sqrt(max(0.0, 1 - (dy / ELLIPSE_RY) ** 2))
+            ports[(pair, f)] = (side.x[f] - dx, side.y[f] + dy)
+    return ports
+
+
+def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
+    """One group's drawing laid out by ``_sideways``."""
+    label = result.groups[group].label
+    r_squared = result.groups[group].r_squared
+    parts: list[str] = []
+    drawn: set[Drawn] = set()
+    head = 26.0 if label is not None else 0.0
+    if label is not None:
+        parts.append(f'<text class="group-name" x="{MARGIN:.1f}" y="20" font-size="15" font-weight="bold">'
+                     f'Group {esc(label)}</text>')
+    parts.append(f'<g transform="translate(0,{head:.0f})">')
+    x, y = side.x, side.y
+    obs_set = set(result.observed)
+    half = side.box / 2
+    # the boxes' and ellipses' room, which no value may cover
+    placed: list[tuple[float, float, float, float]] = \
+        [(x[n] - half, y[n] - BOX_H / 2, x[n] + half, y[n] + BOX_H / 2) for n in result.observed] + \
+        [(x[f] - _ellipse_rx(f), y[f] - ELLIPSE_RY, x[f] + _ellipse_rx(f), y[f] + ELLIPSE_RY) for f in result.latent]
+
+    def stroke(kind: str, variables) -> str:
+        return f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if flagged(kind, variables) else 'stroke="#333"'
+
+    for r in (r for r in rows if r.kind == "loading"):
+        f, target = r.variables
+        rightward = f not in side.right
+        rx = _ellipse_rx(f)
+        x1, y1 = x[f] + (rx if rightward else -rx), y[f]
+        reach = half if target in obs_set else _ellipse_rx(target)
+        x2, y2 = x[target] + (-reach if rightward else reach), y[target]
+        # its value near the arrow's head, where the arrows of a fan stand farthest apart
+        parts += _loading(r, (x1, y1, x2, y2), (0.78, 0.66, 0.88, 0.55, 0.45), placed,
+                          r_squared.get(target, 0.0) > 1.0 or flagged(r.kind, r.variables))
+        drawn.update({Drawn.FIXED_LOADING} if not r.free else set())
+    # correlations between factors of the left column: arcs on its left
+    covariances = [r for r in rows if r.kind == "factor_covariance"]
+    ports = _side_ports([r.variables for r in covariances], side)
+    for r in covariances:
+        a, b = r.variables
+        (xa, ya), (xb, yb) = sorted((ports[(r.variables, a)], ports[(r.variables, b)]), key=lambda p: p[1])
+        control = min(xa, xb) - 2 * _lift(yb - ya)
+        bad = flagged(r.kind, r.variables)
+        parts.append(_arc(xa, ya, xb, yb, (ya + yb) / 2, "covariance", bad, control_x=control))
+        drawn.add(Drawn.ARC)
+        text = _value(r.standardized)
+
+        def on_curve(t: float) -> tuple[float, float]:
+            cx = (1 - t) ** 2 * xa + 2 * t * (1 - t) * control + t ** 2 * xb
+            cy = (1 - t) ** 2 * ya + 2 * t * (1 - t) * (ya + yb) / 2 + t ** 2 * yb
+            return cx, cy + 4
+
+        parts.append(_label(*_free_spot([on_curve(t) for t in ARC_SPOTS], text, placed), text, problem=bad))
+    # factors, and the disturbances of those below another factor (a circle above each)
+    for f in result.latent:
+        bad = flagged("factor_variance", (f,))
+        parts.append(f'<ellipse class="factor{" problem" if bad else ""}" cx="{x[f]:.1f}" cy="{y[f]:.1f}" '
+                     f'rx="{_ellipse_rx(f):.1f}" ry="{ELLIPSE_RY}" fill="{FACTOR_FILL}" '
+                     + (f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"/>' if bad else 'stroke="#1f3b73" stroke-width="1.5"/>'))
+        parts.append(f'<text class="name" x="{x[f]:.1f}" y="{y[f] + 4:.1f}" font-size="13" text-anchor="middle">{esc(f)}</text>')
+    for r in rows:
+        if r.kind == "factor_variance" and r.variables[0] in side.disturbed:
+            f = r.variables[0]
+            cx, cy = x[f], y[f] - ELLIPSE_RY - DISTURBANCE_GAP - RESIDUAL_R
+            bad = flagged(r.kind, r.variables)
+            parts.append(f'<circle class="residual{" problem" if bad else ""}" cx="{cx:.1f}" cy="{cy:.1f}" '
+                         f'r="{RESIDUAL_R}" fill="#fff" {stroke(r.kind, r.variables)}/>')
+            parts.append(f'<line x1="{cx:.1f}" y1="{cy + RESIDUAL_R:.1f}" x2="{cx:.1f}" y2="{y[f] - ELLIPSE_RY:.1f}" '
+                         f'stroke="#333" marker-end="url(#head)"/>')
+            drawn.add(Drawn.DISTURBANCE)
+            parts.append(_label(cx + RESIDUAL_R + 3, cy + 4, _value(r.standardized), anchor="start", problem=bad))
+    # items, their residuals (on their right, or under them) and the arcs between residuals (on the right)
+    residual = {r.variables[0]: r for r in rows if r.kind == "residual_variance"}
+    for name in result.observed:
+        parts += _indicator(side.text(name), x[name] - half, y[name] - BOX_H / 2, side.box, _side_residual(name, side),
+                            not side.below, residual.get(name), flagged("residual_variance", (name,)),
+                            stroke("residual_variance", (name,)))
+    for r in rows:
+        if r.kind == "residual_covariance":
+            (xa, ya), (_, yb) = sorted((_side_residual(v, side) for v in r.variables), key=lambda p: p[1])
+            drop = _drop(side.drops[r.variables])
+            bad = flagged(r.kind, r.variables)
+            parts.append(_arc(xa + RESIDUAL_R, ya, xa + RESIDUAL_R, yb, (ya + yb) / 2, "residual-covariance", bad,
+                              control_x=xa + RESIDUAL_R + 2 * drop))
+            drawn.add(Drawn.ARC)
+            parts.append(_label(xa + RESIDUAL_R + drop + 4, (ya + yb) / 2 + 4, _value(r.standardized), anchor="start",
+                                problem=bad))  # beside the arc's farthest point
+    parts.append("</g>")
+    if any(PROBLEM_COLOUR in part for part in parts):
+        drawn.add(Drawn.PROBLEM)
+    return Drawing(side.width, side.height + head, parts, [], frozenset(drawn))
+
+
+def _side_residual(name: str, side: _Side) -> tuple[float, float]:
+    """The centre of an item's residual circle in a drawing laid out sideways: on its right, or under it."""
+    if side.below:
+        return side.x[name], side.y[name] + BOX_H / 2 + HANG + RESIDUAL_R
+    return side.x[name] + side.box / 2 + SIDE_GAP + RESIDUAL_R, side.y[name]

@@ -86,7 +86,10 @@ def _indent(text: str) -> str:
     return f' style="padding-left:{0.35 + 0.5 * spaces:g}em"' if spaces else ""
 
 
-def table_html(table: ReportTable, view: View = RUNNING) -> str:
+def table_html(table: ReportTable, view: View = RUNNING, heading: str = "") -> str:
+    """A table with its caption and its note (and ``heading``, the section's heading it opens, when given).  A matrix
+    of the items prints on a landscape page of its own: the heading and the note go on that page with it (a heading
+    had been left alone at the foot of the portrait page before it, the note alone on a page after it)."""
     head = "".join(f'<th class="{a}">{_set(c)}</th>' for c, a in zip(table.columns, table.align))
     faint = set(table.faint)
     body = "".join(('<tr class="problem">' if k in table.flagged else "<tr>")
@@ -100,7 +103,7 @@ def table_html(table: ReportTable, view: View = RUNNING) -> str:
     html = (f'<table id="{esc(table.key)}"{matrix}><caption>{_set(table.title)}</caption><thead><tr>{head}</tr></thead>'
             f"<tbody>{body}</tbody></table>")
     # a matrix scrolls inside its own box on screen (its item column kept in view) and prints on a landscape page
-    return (f'<div class="wide">{html}</div>' if table.matrix else html) + note
+    return f'<div class="wide">{heading}{html}{note}</div>' if table.matrix else heading + html + note
 
 
 def notice_html(notice: T.ProblemNotice | None, view: View = RUNNING) -> str:
@@ -136,10 +139,9 @@ def report_html_fragment(report, heading: bool = False) -> str:
             parts.append(f'<p class="note">{_set(figure.note)}</p>')
     section = ""
     for table in report.tables:
-        if table.section and table.section != section:
-            parts.append(f"<h2>{esc(table.section)}</h2>")
+        heading = f"<h2>{esc(table.section)}</h2>" if table.section and table.section != section else ""
         section = table.section
-        parts.append(table_html(table, view))
+        parts.append(table_html(table, view, heading))
     for listing in report.listings:
         lines = "\n".join(esc(line) for line in listing.text.split("\n"))  # its line breaks kept, other controls shown
         parts += [f"<h2>{esc(listing.title)}</h2>", f"<pre>{lines}</pre>"]

@@ -53,10 +53,24 @@ def rich_table(report: ReportTable, view: View = RUNNING) -> Group:
     headings; what still does not fit is shown in parts of whole columns, each with the first column again: a
     number is never broken across lines (a residual '-.02' printed as '-.0' above '2' reads as another number).
     The note's advice names its command, and a table it refers to is named as ``view`` names it."""
-    parts = [Text(printable(report.title), style="bold"), _ColumnParts(report)]  # (Text is not escaped otherwise)
+    parts = [_Folded(report.title, "bold"), _ColumnParts(report)]
     if report.note:
-        parts += [Text(printable(said(report.note, view), keep_newlines=True), style="dim"), Text("")]
+        parts += [_Folded(said(report.note, view), "dim"), Text("")]
     return Group(*parts)
+
+
+class _Folded:
+    """Words drawn at the width the console offers when they are drawn (a table's title, its note), a word wider
+    than that (a long item name in a title at 40 columns) broken after a '_' or '-' inside it as the tables' cells
+    break it (:func:`_names_broken`), never in the middle of a part: 'satisfaction_with_the_overall_service_qu'
+    above 'ality_...' read as two names."""
+
+    def __init__(self, text: str, style: str):
+        self.text, self.style = text, style
+
+    def __rich_console__(self, console, options):
+        text = printable(self.text, keep_newlines=True)  # (Text is not escaped otherwise)
+        yield Text("\n".join(_names_broken(line, options.max_width) for line in text.split("\n")), style=self.style)
 
 
 class _ColumnParts:
@@ -74,11 +88,13 @@ class _ColumnParts:
             report = keyed[0]
             whole = _widths(report)
         narrow = _widths(report, wrapped_headings=True)
-        floors = _unbroken_widths(report)
+        # a long name kept whole up to LONGEST_UNBROKEN, but in no more than half the room: at 40 columns a floor
+        # of 40 left the item column beside it one character wide, its names written down the page letter by letter
+        floors = [min(f, max(LEAST_TEXT, room // 2) + CELL_PADDING) for f in _unbroken_widths(report)]
         labels = label_columns(report.align, whole, room, report.rows)
         for k, columns in enumerate(column_parts(_wrapped(narrow, report.align, room, floors), room, labels)):
             if k:
-                yield Text(f"({printable(report.title)}, continued)", style="dim")
+                yield _Folded(f"{report.title}, continued", "dim")
             # each part's text as wide as the room beside its own number columns allows, their headings wrapped
             # between words where the room is short
             part = dict(zip(columns, _wrapped([narrow[j] for j in columns], tuple(report.align[j] for j in columns),
@@ -223,12 +239,13 @@ def _key(entries: tuple[tuple[str, str], ...], room: int) -> Table:
 
 
 def _bullets(lines) -> Table:
-    """Lines as a list, each wrapped under its own first word (not under the dash)."""
+    """Lines as a list, each wrapped under its own first word (not under the dash), a long name broken after a '_'
+    or '-' inside it (:class:`_Folded`)."""
     grid = Table.grid(padding=(0, 1))
     grid.add_column(no_wrap=True)
     grid.add_column(overflow="fold")
     for line in lines:
-        grid.add_row("  -", Text(printable(line)))
+        grid.add_row("  -", _Folded(line, ""))
     return grid
 
 
@@ -247,15 +264,15 @@ def render_report(report, console: Console) -> None:
     if report.notice is not None:
         console.print(problem_panel(report.notice, view))
         console.print()
-    console.print(Text(report.title, style="bold underline"))
-    for line in report.lines:
-        console.print(said(line, view))
+    console.print(_Folded(report.title, "bold underline"))
+    for line in report.lines:  # (a long name broken after a '_' or '-' inside it, as in the tables: _Folded)
+        console.print(_Folded(said(line, view), ""))
     if report.warnings:
         console.print(Text(WARNINGS, style="bold"))
         console.print(_bullets([said(line, view) for line in report.warnings]))
     if report.paragraph:
         console.print()
-        console.print(report.paragraph)
+        console.print(_Folded(report.paragraph, ""))
     for figure in report.figures:  # pictures cannot be drawn here: named, where a reader finds them
         console.print(Text(f"{figure.title}: a picture, drawn in the HTML, Markdown and Word reports", style="dim"))
     console.print()
@@ -275,9 +292,9 @@ def render_report(report, console: Console) -> None:
         text = "\n".join(listing_lines(printable(listing.text, keep_newlines=True), console.width))
         console.print(Text(text))  # (a line that cannot break so, a name wider than the terminal, wraps there)
     for line in report.notes:
-        console.print(said(line, view))
+        console.print(_Folded(said(line, view), ""))
     for line in report.cautions:
-        console.print(Text(said(line, view), style="italic"))
+        console.print(_Folded(said(line, view), "italic"))
 
 
 def _outside_quotes(line: str, wanted: str) -> list[int]:

@@ -301,8 +301,8 @@ def boundary_note(tests, explained: str | None = None, criteria: bool = True, or
     if not computed:  # no p-value in the table, so none is marked: the boundary said, and what is left to weigh
         weigh = f"weigh the models by their fit indices{', AIC and BIC' if criteria else ''}"
         if explained is not None:
-            return Note((f"On the boundary: {what} (see the note under ", TableReference(explained),
-                         f"). No difference test could be computed here: {weigh}."))
+            return Note((f"On the boundary: {what}; see the note under ", TableReference(explained),
+                         f". No difference test could be computed here: {weigh}."))
         return (f"On the boundary: {what}: {BOUNDARY_CAUTION}. No difference test could be computed here: "
                 f"{weigh}.")
     if mixture:
@@ -310,15 +310,15 @@ def boundary_note(tests, explained: str | None = None, criteria: bool = True, or
         approximate = " (for the scaled differences as an approximation)" if len(mixture) > 1 else ""
         read = f": read {'that' if len(mixture) == 1 else 'those'}, not the {shown} marked *."
         if explained is not None:
-            return Note((f"* On the boundary: {what} (see the note under ", TableReference(explained),
-                         f"). The 50:50 mixture gives {found}{approximate}{read}"))
+            return Note((f"* On the boundary: {what}; see the note under ", TableReference(explained),
+                         f". The 50:50 mixture gives {found}{approximate}{read}"))
         reading = (f"With one parameter on the boundary the difference follows the 50:50 mixture of chi-square "
                    f"distributions with {mixture[0].df_difference - 1} and {mixture[0].df_difference} df (Self & Liang "
                    f"1987; Stram & Lee 1994), which gives {found}{approximate}{read}")
     else:
         if explained is not None:
-            return Note((f"* On the boundary: {what} (see the note under ", TableReference(explained),
-                         f"). No exact p-value: read the {shown} marked * as rough."))
+            return Note((f"* On the boundary: {what}; see the note under ", TableReference(explained),
+                         f". No exact p-value: read the {shown} marked * as rough."))
         weigh = ("; what else decides between these models, and how rough each part is: the note after the tables"
                  if ordinal else f", and weigh the models also by their fit indices{', AIC and BIC' if criteria else ''}")
         reading = ("Its distribution depends on the model here (several parameters on the boundary, or loadings that the "
@@ -423,7 +423,7 @@ def comparison_report(comparison) -> Report:
                             + (("values on the boundary too, so read the p-values of this comparison as approximate "
                                 "as well." if computed else f"values on the boundary too; {read}.")
                                if explained is not None else
-                               Note((f"{BOUNDARY_CAUTION}; {read} (see the note under ", TableReference(key), ")."))))
+                               Note((f"{BOUNDARY_CAUTION}; {read}; see the note under ", TableReference(key), "."))))
         columns = [("Test", "l"), ("Difference (df)", "r"), ("p", "r"), ("\u0394CFI", "r"), ("\u0394RMSEA", "r")]
         value_names = ["Test", "Chi-square difference", "df difference", "p", "\u0394CFI", "\u0394RMSEA",
                        "Not computed because", "On the boundary", "p, one parameter on the boundary"]

@@ -178,13 +178,17 @@ class ExploreResult(Presentable):
     def reasons(self) -> list[str]:
         """Why the recommendation is what it is, in plain words."""
         count = self.exploration.count
-        combined = [f"{RULE_WORDS[r]}: {count.suggestion(r)}" for r in count.combined]
+        # the rules' counts in a sentence of their own: a rule's name holds its source in parentheses
+        rules = [f"{RULE_WORDS[r]} " + ("gives no count" if count.suggestion(r) is None else f"counts {count.suggestion(r)}")
+                 for r in count.combined]
+        counted = (", ".join(rules[:-1]) + ", and " + rules[-1] if len(rules) > 1 else "".join(rules))
+        counted = counted[:1].upper() + counted[1:]
         middle = self._middle_count()
         if middle == 0:
-            lines = [f"No factor recommended: the middle value of three rules is 0 ({'; '.join(combined)})."]
+            lines = [f"No factor recommended: the middle value of three rules is 0. {counted}."]
         else:
             lines = [f"Recommended: {count.recommended} factor{'s' if count.recommended != 1 else ''}, the middle value "
-                     f"of three rules ({'; '.join(combined)})."]
+                     f"of three rules. {counted}."]
         for note in count.notes:
             if note is CountNote.RULES_DISAGREE:  # say which rules count otherwise
                 other = [f"{RULE_WORDS[s.rule]}: {s.factors}" for s in count.suggestions

@@ -139,7 +139,7 @@ def test_no_structure_is_no_factor_above_chance():
 
     explored = explore(frame, replications=50)
     reasons = explored.reasons()
-    assert reasons[0].startswith("No factor recommended: the middle value of three rules is 0 (")
+    assert reasons[0].startswith("No factor recommended: the middle value of three rules is 0. Parallel analysis")
     # the draft says so too, with each rule's count as the report gives it (hostile s20: 'the three rules gave 0'
     # where one of them gave 2)
     assert explored.draft_text.startswith("# No factor was recommended: the middle value of the three rules")

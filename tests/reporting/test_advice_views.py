@@ -88,7 +88,7 @@ def test_the_word_file_keeps_the_advice_in_words(fits):
     assert "What to try: full-information ML would use every answer they have." in listwise
     assert "consider the scaled test and robust standard errors." in listwise
     # the statement stays whole where the command was in the middle of it
-    assert "(the default when answers are missing; a fit of the complete rows only would leave those rows out)" in gaps
+    assert ", the default when answers are missing; a fit of the complete rows only would leave those rows out" in gaps
     assert ("the items analysed, and any auxiliary variables, which enter the likelihood beside the model without "
             "changing it (Graham 2003)") in gaps
 

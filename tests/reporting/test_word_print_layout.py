@@ -184,7 +184,7 @@ def test_split_tables_at_80_columns_keep_every_rows_names(hs_data):
     intervals = tuple(BootInterval("residual_covariance", ("x7", "x8"), scale, 0.2, (0.1, 0.3), (0.11, 0.31), 0.05)
                       for scale in ("unstandardized", "standardized"))
     text = report_text(bootstrap_report(BootstrapResult(fitted, 500, 500, 1, intervals, None, None)), 80)
-    parts = text.split("continued)")
+    parts = text.split(", continued")
     assert len(parts) > 1
     for part in parts[1:]:
         rows = [line for line in part.splitlines() if "residual covariance of x7 and x8" in line]

@@ -244,13 +244,13 @@ def test_the_boundary_is_explained_once_under_several_tables(data):
         assert note.startswith(f"* On the boundary: {'; '.join(found[0].boundary)}")  # each names its own
         if table is not tables[0]:
             assert TableReference(tables[0].key) in table.note.parts
-            assert said(table.note, WORDS).split(" (see ")[0] in word
+            assert said(table.note, WORDS).split("; see ")[0] in word
             assert "first table of difference tests" not in note
         for t in found:  # each table keeps its own mixture p-values
             if not missing(t.boundary_p_value):
                 assert f"p {p_phrase(t.boundary_p_value)} for the {t.method}" in note
-    assert word.count(f"(see the note under Table {number})") == len(tables)  # and the first caution's
-    assert terminal.count(f'(see the note under the table "{tables[0].title}")') == len(tables)
+    assert word.count(f"; see the note under Table {number}.") == len(tables)  # and the first caution's
+    assert terminal.count(f'; see the note under the table "{tables[0].title}".') == len(tables)
     assert sum(len(said(t.note)) for t in tables[1:]) < 2 * len(said(tables[0].note))
 
 
