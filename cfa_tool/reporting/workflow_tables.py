@@ -940,8 +940,10 @@ def _reversed_loading_lines(rep) -> list[str]:
     """A caution, first, for each item whose loading changes sign between the samples (hostile s20: an item recoded in
     one file made the test of one solution fail by a difference of 1.56 with no word why), as scores --from-fit names
     an item coded the other way round."""
-    return [f"The standardized loading of {item} on {factor} is {unit(a, 2)} in the calibration sample "
-            f"({rep.calibration}) and {unit(b, 2)} in the validation sample ({rep.validation}): the item is probably "
+    # the samples named after a comma, never in parentheses: a random half's name holds its own ('data.csv (half A,
+    # seed 1)')
+    return [f"The standardized loading of {item} on {factor} is {unit(a, 2)} in the calibration sample, "
+            f"{rep.calibration}, and {unit(b, 2)} in the validation sample, {rep.validation}: the item is probably "
             f"coded the other way round in one of the files (a reverse-worded item recoded in one and not the other), "
             f"and then the test of one solution fails for the coding, not the scale. What to try: check that item's "
             f"coding in both files."
