@@ -31,6 +31,7 @@ import pandas as pd
 from cfa_tool import options as check
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.numerics.linalg import log_det_pd
+from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.method import MissingData
@@ -173,13 +174,13 @@ def misspecified_covariance(spec: Spec, result: FitResult, scale: float = 1.0,
         target = max(others, key=lambda j: abs(corr[own[item], j]))
         size *= scale
         L[item, target] = size * sd_obs[item] / sd_lat[target]
-        what = f"a cross-loading of {size:.2f} (standardized) of {names[item]} on {factors[target]}"
+        what = f"a cross-loading of {journal_decimal(size, digits=2)} (standardized) of {names[item]} on {factors[target]}"
     else:
         if len(names) < 2:
             raise OptionError("a model with one item has nothing to misspecify")
         r = size = min(0.30 * scale, 0.95)
         T[0, 1] = T[1, 0] = r * np.sqrt(T[0, 0] * T[1, 1])
-        what = f"a residual correlation of {r:.2f} between {names[0]} and {names[1]}"
+        what = f"a residual correlation of {journal_decimal(r, digits=2)} between {names[0]} and {names[1]}"
     G = L @ mats.A
     wrong = G @ mats.P @ G.T + T
     if log_det_pd(wrong) is None:  # not positive definite, or not finite
