@@ -27,7 +27,7 @@ from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.options import Option
 from cfa_tool.language.names import written_name
-from cfa_tool.numbers import number, user_number
+from cfa_tool.numbers import count_text, number, user_number
 from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names
 
@@ -334,7 +334,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         frame = frame.loc[keep.to_numpy()]
         emptied = (f"left out {f.empty_words()} (an empty cell meets no comparison, '!=' included), and "
                    if f.empty else "")
-        notes.append(f"row filter '{f}'{by_label} {emptied}kept {len(frame)} of {before} rows{absent}{read_as}")
+        notes.append(f"row filter '{f}'{by_label} {emptied}kept {count_text(len(frame))} of {count_text(before)} rows{absent}{read_as}")
         if len(frame) == 0:
             raise DataError(f"{source}: no row is left after the row filter '{printable(f)}'{absent}")
     if filters:

@@ -42,7 +42,7 @@ WORDS = {1: "one", 2: "two", 3: "three", 4: "four", 5: "five", 6: "six", 7: "sev
 
 
 def _count(n: int, noun: str, plural: str | None = None) -> str:
-    return f"{WORDS.get(n, str(n))} {noun if n == 1 else (plural or noun + 's')}"
+    return f"{WORDS.get(n, count_text(n))} {noun if n == 1 else (plural or noun + 's')}"
 
 
 def _p(p: float) -> str:
@@ -464,7 +464,7 @@ _LISTWISE_ASSUMPTION = _PAIRWISE_ASSUMPTION
 def _listwise_clause(dropped: int, read: int, kept: int) -> str:
     """The rows listwise deletion left out and kept, with what it assumes (Little & Rubin, 2002), inside the
     parentheses of the rows' phrase (new-user trial s16: the text said only how many were excluded)."""
-    return (f"; the {kept} complete {'row was' if kept == 1 else 'rows were'} analysed and {dropped} of {read} rows "
+    return (f"; the {count_text(kept)} complete {'row was' if kept == 1 else 'rows were'} analysed and {count_text(dropped)} of {count_text(read)} rows "
             f"with missing answers excluded listwise{_LISTWISE_ASSUMPTION}")
 
 
@@ -527,7 +527,7 @@ _NOTHING_MISSING = ("no answer on the model's variables was missing, so full-inf
 
 def _sample_phrase(result) -> str:
     data = result.data
-    text = f"N = {result.n_obs}" + _filtered(data)
+    text = f"N = {count_text(result.n_obs)}" + _filtered(data)
     full_information = result.method.full_information
     low = _lowest_coverage(result) if full_information else None
     if low is not None and low >= 1.0:  # asked for on complete rows: nothing was missing, nothing was assumed
@@ -540,7 +540,7 @@ def _sample_phrase(result) -> str:
     pairs = data.pair_range
     if _pairs_with_gaps(result):
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
-                 f"from the rows that answered both items, {pairs[0]} to {pairs[1]} rows per pair"
+                 f"from the rows that answered both items, {count_text(pairs[0])} to {count_text(pairs[1])} rows per pair"
                  f"{_pairs_by_group(result)}{_PAIRWISE_ASSUMPTION}")
     read = _read_as_missing(data)
     if read:
@@ -553,19 +553,19 @@ def _sample_phrase(result) -> str:
     dropped = data.rows_dropped - without_group - by_design
     helped = getattr(data, "helpers_only", 0)
     if helped:  # kept by the saturated-correlates likelihood (pipeline.inputs.with_helpers)
-        text += (f"; {helped} of these rows answered no item but an auxiliary variable and entered the likelihood "
+        text += (f"; {count_text(helped)} of these rows answered no item but an auxiliary variable and entered the likelihood "
                  f"through {'it' if len(result.method.helpers) == 1 else 'them'}")
     if dropped:
         if full_information or result.method.missing is MissingData.PAIRWISE:
             neither = " or auxiliary variable" if result.method.helpers else ""
-            text += (f"; {dropped} of {data.rows_read} rows answered no model variable{neither} and "
+            text += (f"; {count_text(dropped)} of {count_text(data.rows_read)} rows answered no model variable{neither} and "
                      f"{'was' if dropped == 1 else 'were'} left out")
         else:
             text += _listwise_clause(dropped, data.rows_read, data.rows_read - data.rows_dropped)
     if without_group:
         text += _without_group_clause(without_group, data.rows_read, result.group_column)
     if by_design:
-        text += (f"; {by_design} of {data.rows_read} row{'s' if data.rows_read != 1 else ''} "
+        text += (f"; {count_text(by_design)} of {count_text(data.rows_read)} row{'s' if data.rows_read != 1 else ''} "
                  f"{'was' if by_design == 1 else 'were'} left out by the sampling design (a weight of 0, or no answer "
                  f"and no weight, cluster or stratum)")
     return text
@@ -626,7 +626,7 @@ def _filtered(data, file: str = "the data file") -> str:
 
     empty = [f for f in data.row_filters if f.empty]
     verb = "was" if [f.empty for f in empty] == [1] else "were"
-    return (f" of the {data.rows_in_file} rows in {file}, those where {_list(filters_in_words(data.row_filters))}"
+    return (f" of the {count_text(data.rows_in_file)} rows in {file}, those where {_list(filters_in_words(data.row_filters))}"
             + (f"; {_list([f.empty_words() for f in empty])} {verb} left out" if empty else ""))
 
 
@@ -649,7 +649,7 @@ def range_restriction_sentence(filters, analysed, factor_items: dict | None = No
         mine = [factor for factor, on in (factor_items or {}).items() if item in on]
         return f"an item of {_names(mine)}; " if mine else ""
 
-    parts = [f"{_name(f.column)} ({of(f.column)}{f.dropped} row{'s' if f.dropped != 1 else ''} with an answer to it "
+    parts = [f"{_name(f.column)} ({of(f.column)}{count_text(f.dropped)} row{'s' if f.dropped != 1 else ''} with an answer to it "
              f"left out by {f.text!r})" for f in found]
     many = len(items) > 1
     loading = f"the loading{'s' if many else ''} of {_names(items)}"
@@ -682,7 +682,7 @@ def _without_group_clause(count: int, read: int, column: str | None) -> str:
     """'; 48 of 480 rows had no value of district, the group column, and were left out' (said inside the parentheses
     of the rows analysed, so without parentheses of its own)."""
     where = f" of {_name(column)}, the group column," if column else " in the group column"
-    return (f"; {count} of {read} row{'s' if read != 1 else ''} had no value{where} and "
+    return (f"; {count_text(count)} of {count_text(read)} row{'s' if read != 1 else ''} had no value{where} and "
             f"{'was' if count == 1 else 'were'} left out")
 def few_categories_sentence(results) -> str:
     """That items of at most FEW_CATEGORIES answer categories were analysed as continuous (the fit's note says so;
@@ -726,7 +726,7 @@ def _matrix_sentence(result, subject: str = "The model was") -> str:
         return ""
     text = (f"{subject} fitted to summary statistics, not to rows of answers: {analysed.value}"
             + ("" if NotGiven.MEANS in result.data.not_given else ", with the items' means")
-            + f", and N = {result.n_obs} as given in the file")
+            + f", and N = {count_text(result.n_obs)} as given in the file")
     if analysed is AnalysedMatrix.CORRELATION:
         text += ("; the correlations were analysed as if they were covariances, so the unstandardized estimates are in "
                  "standard-deviation units and their standard errors are only approximate (Cudeck, 1989), while the "
@@ -1025,7 +1025,7 @@ def methods_paragraph(result) -> str:
         return "The model did not converge, so no results are reported."
     d = result.description
     groups = (f" in {_count(len(result.groups), 'group')} defined by {_name(result.group_column)} ("
-              + "; ".join(f"{w}, n = {g.data.n_obs}" for w, g in zip(_group_names(result.groups), result.groups)) + ")"
+              + "; ".join(f"{w}, n = {count_text(g.data.n_obs)}" for w, g in zip(_group_names(result.groups), result.groups)) + ")"
               if result.multigroup else "")
     parts = []
     if d is not None:
@@ -1253,9 +1253,9 @@ def scores_paragraph(result) -> str:
                         ", as the mean of the keyed items answered") + "; rows that answered fewer have none.")
     empty = {why: n for why, n in result.not_scored.items()}
     if empty:
-        parts.append(f"Of the {result.rows} rows in the data, {WORDS.get(sum(empty.values()), sum(empty.values()))} "
+        parts.append(f"Of the {count_text(result.rows)} rows in the data, {WORDS.get(sum(empty.values()), count_text(sum(empty.values())))} "
                      f"{'has' if sum(empty.values()) == 1 else 'have'} no score ("
-                     + "; ".join(f"{why.words}: {n}" for why, n in empty.items() if isinstance(why, NotScored)) + ").")
+                     + "; ".join(f"{why.words}: {count_text(n)}" for why, n in empty.items() if isinstance(why, NotScored)) + ").")
     for q in result.quality:
         where = f" in group {written_group(q.group, group_labels(fit))}" if grouped and q.group is not None else ""
         if hasattr(q, "methods"):
@@ -1337,20 +1337,20 @@ def _comparison_rows(comparison) -> str:
                "from the rows that answered both items" + (_PAIRWISE_ASSUMPTION if _pairs_with_gaps(comparison.results[0])
                                                             else ""))
     else:
-        how = (f"{dropped} of {n + dropped} rows with a missing answer on some model's variables were excluded listwise"
+        how = (f"{count_text(dropped)} of {count_text(n + dropped)} rows with a missing answer on some model's variables were excluded listwise"
                if dropped else "")
     without = getattr(comparison, "without_group", 0)
     read_rows = n + dropped + without
-    if how.startswith(f"{dropped} of {n + dropped} rows"):
-        how = how.replace(f"{dropped} of {n + dropped} rows", f"{dropped} of {read_rows} rows", 1)
-    left = (f"; {dropped} of {read_rows} rows answered none of some model's variables and were left out"
+    if how.startswith(f"{count_text(dropped)} of {count_text(n + dropped)} rows"):
+        how = how.replace(f"{count_text(dropped)} of {count_text(n + dropped)} rows", f"{count_text(dropped)} of {count_text(read_rows)} rows", 1)
+    left = (f"; {count_text(dropped)} of {count_text(read_rows)} rows answered none of some model's variables and were left out"
             if dropped and comparison.missing is not MissingData.LISTWISE else "")
     if without:
         left += _without_group_clause(without, read_rows, comparison.results[0].group_column)
     data = comparison.results[0].data
     read = _read_as_missing(data)
     kept = _kept_as_answers(data)
-    return (f"N = {n}" + _filtered(data) + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
+    return (f"N = {count_text(n)}" + _filtered(data) + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
             + (f"; {kept}" if kept else ""))
 
 
@@ -1600,7 +1600,7 @@ def invariance_paragraph(result, levels) -> str:
 
     steps = result.steps
     first = steps[0].result
-    sizes = "; ".join(f"{w}, n = {g.data.n_obs}" for w, g in zip(_group_names(first.groups), first.groups))
+    sizes = "; ".join(f"{w}, n = {count_text(g.data.n_obs)}" for w, g in zip(_group_names(first.groups), first.groups))
     held = {level: classes for level, classes, *_ in levels}
     ladder = []
     for step in steps:
@@ -1732,17 +1732,18 @@ def _sample_rows_phrase(rows, data=None, file: str = "") -> str:
     ``file`` they kept (:func:`_filtered`).  Said in parentheses, as fit's (:func:`_sample_phrase`), so without
     parentheses of its own: its citations after a comma."""
     filters = data is not None and data.row_filters
-    text = f"N = {rows.analysed}{_filtered(data, file)}" if filters else f"N = {rows.analysed} of {rows.read} rows read"
+    text = (f"N = {count_text(rows.analysed)}{_filtered(data, file)}" if filters
+            else f"N = {count_text(rows.analysed)} of {count_text(rows.read)} rows read")
     if rows.missing is MissingData.FULL_INFORMATION and rows.with_gaps:
-        text += (f"; {rows.with_gaps} with missing answers, whose every answer was used by full-information maximum "
+        text += (f"; {count_text(rows.with_gaps)} with missing answers, whose every answer was used by full-information maximum "
                  f"likelihood{_FULL_INFORMATION_ASSUMPTION}")
     elif rows.missing is MissingData.PAIRWISE and rows.with_gaps:
-        text += (f"; {rows.with_gaps} with missing answers, used pairwise: each item's thresholds from the rows that "
+        text += (f"; {count_text(rows.with_gaps)} with missing answers, used pairwise: each item's thresholds from the rows that "
                  f"answered it and each correlation from the rows that answered both items{_PAIRWISE_ASSUMPTION}")
     if rows.left_out and rows.missing is MissingData.LISTWISE:
-        text += f"; {rows.left_out} with missing answers excluded listwise{_LISTWISE_ASSUMPTION}"
+        text += f"; {count_text(rows.left_out)} with missing answers excluded listwise{_LISTWISE_ASSUMPTION}"
     elif rows.left_out:
-        text += f"; {rows.left_out} answering no model variable left out"
+        text += f"; {count_text(rows.left_out)} answering no model variable left out"
     if not rows.with_gaps and not rows.left_out:
         text += ", none with missing answers"
     return text

@@ -358,18 +358,18 @@ def comparison_report(comparison) -> Report:
     pairwise = comparison.missing is MissingData.PAIRWISE
     if full_information or pairwise:
         dropped, without = comparison.rows_dropped, comparison.without_group
-        left = (f"{dropped} {'row' if dropped == 1 else 'rows'} answering none of some model's variables left out" if
+        left = (f"{count_text(dropped)} {'row' if dropped == 1 else 'rows'} answering none of some model's variables left out" if
                 dropped else "no row left out for missing answers")
         if without:
-            left += f"; {without} {'row' if without == 1 else 'rows'} without a value in the group column left out"
+            left += f"; {count_text(without)} {'row' if without == 1 else 'rows'} without a value in the group column left out"
         how = ("every answer used: each correlation from the rows that answered both items" if pairwise else
                "by full-information ML, rows with missing answers included")
-        rows_line = f"All models fitted to the same {comparison.n_obs} rows, {how} ({left})."
+        rows_line = f"All models fitted to the same {count_text(comparison.n_obs)} rows, {how} ({left})."
     elif getattr(comparison.results[0].data, "analysed", None) is not None:  # summary statistics: no rows
         rows_line = (f"All models fitted to the same summary statistics "
-                     f"({comparison.results[0].data.analysed.value}), N = {comparison.n_obs} as given in the file.")
+                     f"({comparison.results[0].data.analysed.value}), N = {count_text(comparison.n_obs)} as given in the file.")
     else:
-        rows_line = (f"All models fitted to the same {comparison.n_obs} rows ({comparison.rows_dropped} rows with a missing "
+        rows_line = (f"All models fitted to the same {count_text(comparison.n_obs)} rows ({count_text(comparison.rows_dropped)} rows with a missing "
                      f"answer on any model's variables left out).")
     lines = (rows_line, *_comparison_group_lines(comparison), *_design_lines(comparison.results[0]))
     # one column per model, one row per index: readable in 80 columns for the usual two to four models
@@ -565,7 +565,7 @@ def _comparison_group_lines(comparison) -> tuple[str, ...]:
         held.append(f"model {k} ({name}): {words}" + (f" (with {len(d.noninvariant)} exception"
                                           f"{'s' if len(d.noninvariant) > 1 else ''})" if d is not None and
                                           d.invariant and d.noninvariant else ""))
-    return (f"Groups defined by {first.group_column}: {', '.join(f'{g.label} ({g.data.n_obs} rows)' for g in first.groups)}.",
+    return (f"Groups defined by {first.group_column}: {', '.join(f'{g.label} ({count_text(g.data.n_obs)} rows)' for g in first.groups)}.",
             f"Held equal across groups: {'; '.join(held)}.")
 
 
@@ -796,8 +796,8 @@ def invariance_report(result) -> Report:
     lines = ("Reference group (factor means fixed at zero): " + (
                  written_group(result.groups[0], labels) if result.reference_rule is None else
                  reference_words(result.groups[0], result.reference_rule, labels)),
-             f"{first.n_obs} rows analysed "
-             f"({', '.join(f'{written_group(g.label, labels)}: {g.data.n_obs}' for g in first.groups)}); "
+             f"{count_text(first.n_obs)} rows analysed "
+             f"({', '.join(f'{written_group(g.label, labels)}: {count_text(g.data.n_obs)}' for g in first.groups)}); "
              f"estimation: {first.estimator}",
              *_design_lines(first),
              f"Each step after the configural one is judged by "
@@ -841,13 +841,13 @@ def replication_report(replications) -> Report:
         cautions += _caution_lines(named)
         cal = _replication_figures(rep.calibration_result, rep.adjusted)
         total = rep.calibration_result.n_obs + rep.loose.n_obs
-        rows = [[f"Calibration fit (N = {rep.calibration_result.n_obs})", f"{cal[0]:.3f}", str(cal[1]),
+        rows = [[f"Calibration fit (N = {count_text(rep.calibration_result.n_obs)})", f"{cal[0]:.3f}", str(cal[1]),
                  p_value(cal[2]), unit(cal[3]), unit(cal[4])]]
         values = [["Calibration fit", rep.calibration_result.n_obs, *cal]]
         flagged = [0] if not rep.calibration_result.admissible else []
         if rep.loose.fit is not None and rep.loose.converged:
             f = _replication_figures(rep.loose, rep.adjusted)
-            rows.append([f"Loose: same model refitted (N = {rep.loose.n_obs})", f"{f[0]:.3f}", str(f[1]),
+            rows.append([f"Loose: same model refitted (N = {count_text(rep.loose.n_obs)})", f"{f[0]:.3f}", str(f[1]),
                          p_value(f[2]), unit(f[3]), unit(f[4])])
             values.append(["Loose: same model refitted", rep.loose.n_obs, *f])
             if not rep.loose.admissible:
@@ -987,7 +987,7 @@ def _split_sentence(rows) -> str:
                 f"random into two halves.{clusters}")
     why = ("they miss some answers, and the halves hold complete rows only" if rows.complete_only else
            "they answer none of the model's items")
-    return (f"{rows.split} of the {rows.in_file} rows{rows.kept_words()} were split at random into two halves; the other "
+    return (f"{count_text(rows.split)} of the {count_text(rows.in_file)} rows{rows.kept_words()} were split at random into two halves; the other "
             f"{rows.in_file - rows.split} were left out before the split ({why}).{clusters}")
 
 
@@ -999,11 +999,11 @@ def _left_out(result) -> str:
         return ""
     if result.method.missing is MissingData.FULL_INFORMATION:
         return (" with their gaps, each refitted by full-information ML"
-                + (f"; {d.rows_dropped} of {d.rows_read} rows answered none of the items and were left out"
+                + (f"; {count_text(d.rows_dropped)} of {count_text(d.rows_read)} rows answered none of the items and were left out"
                    if d.rows_dropped else ""))
     if not d.rows_dropped:
         return ""
-    return f" ({d.rows_dropped} of {d.rows_read} rows with missing answers left out: the refits use complete rows)"
+    return f" ({count_text(d.rows_dropped)} of {count_text(d.rows_read)} rows with missing answers left out: the refits use complete rows)"
 
 
 def bootstrap_report(boot) -> Report:
@@ -1013,9 +1013,9 @@ def bootstrap_report(boot) -> Report:
     why_failed = ("an item lost an answer category, or the correlations were not positive definite" if ordinal else
                   "an item had fewer than two answers, or a pair of items none together, so the saturated model could "
                   "not be estimated")
-    lines = [f"{boot.replications} resamples of {result.n_obs} rows{_left_out(result)} (seed {boot.seed}); "
-             f"{boot.converged} converged, "
-             f"{not_converged} did not" + (f" and {boot.failed} could not be analysed ({why_failed})" if boot.failed
+    lines = [f"{count_text(boot.replications)} resamples of {count_text(result.n_obs)} rows{_left_out(result)} (seed {boot.seed}); "
+             f"{count_text(boot.converged)} converged, "
+             f"{count_text(not_converged)} did not" + (f" and {count_text(boot.failed)} could not be analysed ({why_failed})" if boot.failed
                                            else "")
              + "; those are left out of the intervals."]
     if ordinal:
@@ -1030,7 +1030,7 @@ def bootstrap_report(boot) -> Report:
                          f"clusters, common practice); read them as rough.")
     if boot.bollen_stine_p is not None:
         lines.append(f"Bollen-Stine bootstrap p-value of the chi-square test: {unit(boot.bollen_stine_p)} "
-                     f"({boot.bollen_stine_converged} converged resamples; normal-theory p {p_phrase(result.fit.p_value)}).")
+                     f"({count_text(boot.bollen_stine_converged)} converged resamples; normal-theory p {p_phrase(result.fit.p_value)}).")
     elif boot.bollen_stine_not_computed and result.fit.df == 0:  # no test at all to fall back on
         lines.append(f"No Bollen-Stine p-value: {boot.bollen_stine_not_computed}.")
     elif boot.bollen_stine_not_computed:
@@ -1082,8 +1082,8 @@ def few_draws(draws: int, tail: float, what: str, moves: str) -> str:
     beyond = draws * tail
     if beyond >= TAIL_DRAWS:
         return ""
-    return (f"Only {draws} {what}: each {100 * tail:g}% tail holds about {beyond:.1f} of them, so {moves} move with the "
-            f"seed; give {math.ceil(TAIL_DRAWS / tail):,} or more (common practice asks for 1,000 or more resamples for "
+    return (f"Only {count_text(draws)} {what}: each {100 * tail:g}% tail holds about {beyond:.1f} of them, so {moves} move with the "
+            f"seed; give {count_text(math.ceil(TAIL_DRAWS / tail))} or more (common practice asks for 1,000 or more resamples for "
             f"bootstrap intervals)")
 
 
@@ -1096,9 +1096,9 @@ def cutoffs_report(cut) -> Report:
     rows, values = [], []
     for c in cut.cutoffs:
         if c.cutoff is None:
-            found = ([f"by N = {c.separating_n:,}"] if c.separating_n is not None else []) + (
+            found = ([f"by N = {count_text(c.separating_n)}"] if c.separating_n is not None else []) + (
                 [f"for a misspecification of {unit(c.separating_size, 2)} at this N"] if c.separating_size is not None else [])
-            reading = f"none at N = {cut.n_obs:,}" + ("; one exists " + ", or ".join(found) if found else
+            reading = f"none at N = {count_text(cut.n_obs)}" + ("; one exists " + ", or ".join(found) if found else
                                                       "; none either at 16 times this N or 3 times the misspecification")
         else:
             reading = CUTOFF_BEYOND if c.beyond else CUTOFF_WITHIN
@@ -1117,11 +1117,11 @@ def cutoffs_report(cut) -> Report:
                                           ("Reading", "l")], rows, cutoff_meaning(cut.misspecification),
                    values=(["Index", "Level", "Cutoff", "This model", "Reading"], values))
     left_out = _left_out(result) if cut.pattern_rows is None else ""  # the gaps carried over: said below
-    lines = (f"{cut.replications} samples of N = {cut.n_obs}{left_out} from the fitted model and from the model with "
+    lines = (f"{count_text(cut.replications)} samples of N = {count_text(cut.n_obs)}{left_out} from the fitted model and from the model with "
              f"{cut.misspecification} left out (seed {cut.seed}).",)
     if cut.pattern_rows is not None:
         lines += (f"The missing-data pattern was carried over: each simulated row takes the gaps of one of the "
-                  f"{cut.pattern_rows} data rows, drawn at random (missing completely at random, with the data's "
+                  f"{count_text(cut.pattern_rows)} data rows, drawn at random (missing completely at random, with the data's "
                   f"patterns in their proportions), and each sample is fitted by full-information ML, as the data "
                   f"were.",)
     if result.method.ordinal:
@@ -1131,7 +1131,7 @@ def cutoffs_report(cut) -> Report:
                   f"the polychoric correlations.",)
         if cut.correct_rejected is not None:
             lines += (f"That test rejected the fitted model at .05 in {100 * cut.correct_rejected:.1f}% of the "
-                      f"{cut.converged_correct} samples drawn from it (nominal 5%).",)
+                      f"{count_text(cut.converged_correct)} samples drawn from it (nominal 5%).",)
     few = few_draws(cut.replications, 0.05, "samples", "the cutoffs")
     kept = not_admissible_sentence([(count, converged, named, f" from the {whose}") for (count, named), converged, whose
                                     in zip(cut.inadmissible, (cut.converged_correct, cut.converged_misspecified),
@@ -1173,7 +1173,7 @@ def power_report(result) -> Report:
             ["Degrees of freedom", str(result.df), result.df],
             ["Significance level", unit(result.alpha, 2), result.alpha]]
     if result.power is not None:
-        rows.append([f"Power with N = {result.n_obs}", unit(result.power), result.power])
+        rows.append([f"Power with N = {count_text(result.n_obs)}", unit(result.power), result.power])
     rows.append([f"Smallest N for power {unit(result.target_power, 2)}", str(result.required_n), result.required_n])
     table = _table("power", "Power and sample size", [("", "l"), ("Value", "r")], [r[:2] for r in rows],
                    f"Note: {result.note}." if result.note else None,
@@ -1197,16 +1197,18 @@ def rows_rule_caution(result) -> Note:
     below = result.below_rows_rule
     one = len(below) == 1
     enough = ROWS_PER_PARAMETER * below[0].parameters
-    sizes = [f"{count_text(f.rows)}" for f in below] + [str(enough)]
+    sizes = [f.rows for f in below] + [enough]
+    typed = [user_number(n) for n in sizes]  # as a command takes them: no grouping comma inside a list of commas
     return Note((f"{' and '.join(f'N = {count_text(f.rows)}' for f in below)} {'is' if one else 'are'} judged by the RMSEA "
                  f"test of {result.test} fit alone, not by what estimating the model needs: "
                  f"{'; '.join(f.figures() for f in below)}, fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; "
-                 f"{enough} rows here); this plan says nothing of how precisely the loadings, variances and "
+                 f"{count_text(enough)} rows here); this plan says nothing of how precisely the loadings, variances and "
                  f"correlations are estimated at {'that N' if one else 'those sizes'}. What to try: plan the N with a "
                  f"power simulation of the model, which gives each parameter's power, bias and coverage at each sample "
                  f"size",
-                 Command(f" ('cfa-tool power-simulation MODEL --n {','.join(sizes)}'; from Python, "
-                         f"power_simulation(model, [{', '.join(sizes)}]))", f" ({' and '.join(sizes)} rows, say)"),
+                 Command(f" ('cfa-tool power-simulation MODEL --n {','.join(typed)}'; from Python, "
+                         f"power_simulation(model, [{', '.join(typed)}]))",
+                         f" ({' and '.join(count_text(n) for n in sizes)} rows, say)"),
                  "."))
 
 
@@ -1253,7 +1255,7 @@ def _inadmissible_cautions(results) -> tuple[str, ...]:
     """The caution, first, on the converged replications whose solution is not admissible at each sample size,
     naming their problems (assessment.admissibility.not_admissible_sentence; said once per report)."""
     said = not_admissible_sentence([(r.inadmissible, r.converged, getattr(r, "inadmissible_named", ""),
-                                     f" at N = {r.n_obs}" if len(results) > 1 else "") for r in results],
+                                     f" at N = {count_text(r.n_obs)}" if len(results) > 1 else "") for r in results],
                                    "replications", "the power, coverage and bias figures, which therefore describe "
                                                    "such solutions too")
     return (said,) if said else ()
@@ -1278,7 +1280,7 @@ def few_replications(replications: int) -> tuple[str, ...]:
     error of a share p from R replications is sqrt(p (1 - p) / R)."""
     if replications >= 100:
         return ()
-    return (f"Only {replications} replications: a power near .80 has a Monte Carlo standard error of about "
+    return (f"Only {count_text(replications)} replications: a power near .80 has a Monte Carlo standard error of about "
             f"{math.sqrt(0.16 / replications):.2f} and a coverage near 95% one of about "
             f"{100 * math.sqrt(0.0475 / replications):.0f} points; give 500 or more (common practice) for figures to "
             f"two decimals",)
@@ -1287,7 +1289,7 @@ def few_replications(replications: int) -> tuple[str, ...]:
 def montecarlo_report(result) -> Report:
     if hasattr(result, "results"):  # a power curve: several sample sizes
         return power_curve_report(result)
-    lines = [f"{result.converged} of {result.replications} replications converged "
+    lines = [f"{count_text(result.converged)} of {count_text(result.replications)} replications converged "
              f"({100 * result.converged / result.replications:.1f}%)."
              ] + _ordinal_power_lines(result)
     if result.defaulted:
@@ -1311,7 +1313,7 @@ def montecarlo_report(result) -> Report:
                    f"estimate (or mean SE) against the population value (or the SD of the estimates). " + where,
                    values=(["Parameter", "Power", "Coverage", "Estimate relative bias", "SE relative bias"], values))
     return Report(ResultKind.POWER_SIMULATION,
-                  f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
+                  f"Monte Carlo power: N = {count_text(result.n_obs)}, {count_text(result.replications)} replications (seed {result.seed})",
                   _notice([], _inadmissible_cautions([result])), tuple(lines), (table, *population),
                   warnings=few_replications(result.replications))
 
@@ -1327,11 +1329,11 @@ def _population_of(result) -> tuple[ReportTable, ...]:
 def power_curve_report(curve) -> Report:
     """Power per parameter (rows) and sample size (columns), with each size's convergence."""
     first = curve.results[0]
-    lines = ["Converged: " + ", ".join(f"{r.converged} of {r.replications} at N = {r.n_obs}" for r in curve.results)
+    lines = ["Converged: " + ", ".join(f"{count_text(r.converged)} of {count_text(r.replications)} at N = {count_text(r.n_obs)}" for r in curve.results)
              + "."]
     if first.ordinal:
         lines += [_ordinal_power_lines(first)[0], f"The {ADJUSTED_TEST} test rejected the true model at alpha "
-                  f"{unit(first.alpha, 2)} in " + ", ".join(f"{100 * r.model_rejected:.1f}% at N = {r.n_obs}"
+                  f"{unit(first.alpha, 2)} in " + ", ".join(f"{100 * r.model_rejected:.1f}% at N = {count_text(r.n_obs)}"
                                                            for r in curve.results) + " of the converged replications."]
     if first.defaulted:
         lines.append("Population values not given in the model file took defaults: "
@@ -1341,12 +1343,12 @@ def power_curve_report(curve) -> Report:
     rows = [[name, *(unit(r.parameters[k].power, 2) for r in curve.results)] for k, name in enumerate(names)]
     values = [[name, *(r.parameters[k].power for r in curve.results)] for k, name in enumerate(names)]
     table = _table("power_by_sample_size", "Power per parameter and sample size",
-                   [("Parameter", "l")] + [(f"N = {n}", "r") for n in curve.sample_sizes], rows,
+                   [("Parameter", "l")] + [(f"N = {count_text(n)}", "r") for n in curve.sample_sizes], rows,
                    f"Power: share of replications in which the parameter differs from zero at alpha "
                    f"{unit(first.alpha, 2)}.",
-                   values=(["Parameter", *(f"Power at N = {n}" for n in curve.sample_sizes)], values))
+                   values=(["Parameter", *(f"Power at N = {count_text(n)}" for n in curve.sample_sizes)], values))
     # whether intervals and estimates can be trusted at each size: coverage and bias beside each other per size
-    heads = [("Parameter", "l")] + [(f"{what} at N = {n}", "r") for n in curve.sample_sizes
+    heads = [("Parameter", "l")] + [(f"{what} at N = {count_text(n)}", "r") for n in curve.sample_sizes
                                     for what in ("Coverage", "Estimate bias %", "SE bias %")]
     rows = [[name, *(cell for r in curve.results for cell in (
         f"{100 * r.parameters[k].coverage:.1f}%", _percent(r.parameters[k].relative_bias),
@@ -1359,7 +1361,7 @@ def power_curve_report(curve) -> Report:
                    "estimate (or mean SE) against the population value (or the SD of the estimates). Population "
                    "values, mean estimates and SDs are in the JSON result.",
                    values=([h for h, _ in heads], values))
-    return Report(ResultKind.POWER_SIMULATION, f"Monte Carlo power by sample size: {first.replications} replications "
+    return Report(ResultKind.POWER_SIMULATION, f"Monte Carlo power by sample size: {count_text(first.replications)} replications "
                                                f"per size (seed {first.seed})",
                   _notice([], _inadmissible_cautions(curve.results)), tuple(lines), (table, trust, *_population_of(first)),
                   warnings=few_replications(first.replications))
