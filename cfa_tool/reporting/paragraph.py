@@ -757,17 +757,18 @@ def _fit_sentence(result) -> str:
 
 
 def _uninformative_baseline_sentence(result) -> str:
-    """That the baseline model nearly fits, so CFI and TLI say little, when a caution of ``result`` says so
-    (assessment.admissibility.uninformative_baseline_problems); '' otherwise."""
+    """That the baseline model misfits little, so CFI and TLI are bounded by it and read beside RMSEA and SRMR, when
+    a caution of ``result`` says so (assessment.admissibility.uninformative_baseline_problems); '' otherwise."""
     from cfa_tool.assessment.fit_indices import UNINFORMATIVE_BASELINE_RMSEA as BOUND
 
     found = next((p for p in result.problems if p.kind is ProblemKind.UNINFORMATIVE_BASELINE), None)
     if found is None:
         return ""
     robust = "robust " if result.robust is not None else ""
-    return (f"The baseline (independence) model nearly fit the data itself (RMSEA = {unit(found.value, 3, BOUND)}, "
-            f"below the rule of thumb of {unit(BOUND)} of Kenny, Kaniskan & McCoach, 2015), so the {robust}CFI and "
-            f"TLI below say little about the model.")
+    return (f"The items correlated weakly: the baseline (independence) model had an RMSEA of "
+            f"{unit(found.value, 3, BOUND)}, below the rule of thumb of {unit(BOUND)} (Kenny, Kaniskan & McCoach, "
+            f"2015), so the {robust}CFI and TLI below, which are bounded by how badly that model fits, are read beside "
+            f"the RMSEA and SRMR.")
 
 
 def _method_items(result, factor: str) -> list[str]:
@@ -1092,7 +1093,7 @@ def methods_paragraph(result) -> str:
     if small:  # the report's first caution, before the fit (new user s14)
         parts.append(small)
     baseline = _uninformative_baseline_sentence(result)
-    if baseline:  # before the CFI and TLI it says little of
+    if baseline:  # before the CFI and TLI it says how to read
         parts.append(baseline)
     parts.append(_fit_sentence(result))
     untested = [(h, lower) for h, lower in (d.higher_order if d is not None else ())

@@ -263,8 +263,9 @@ def baseline_uninformative(result) -> bool:
     return any(p.kind is ProblemKind.UNINFORMATIVE_BASELINE for p in getattr(result, "problems", ()))
 
 
-#: the guide cell of CFI and TLI when the baseline model nearly fits (:func:`baseline_uninformative`)
-SAYS_LITTLE = "says little here: see the caution first"
+#: what the guide cell of CFI and TLI adds when the baseline model misfits little (:func:`baseline_uninformative`):
+#: the guide stays, and the caution says how the two indices are bounded
+BASELINE_BOUNDED = "bounded by the baseline: see the caution"
 
 
 def fit_rows(result) -> list[FitRow]:
@@ -276,7 +277,7 @@ def fit_rows(result) -> list[FitRow]:
     uninformative = baseline_uninformative(result)
 
     def incremental_guide(index: str) -> str:
-        return SAYS_LITTLE if uninformative else guide_text(index)
+        return f"{guide_text(index)}; {BASELINE_BOUNDED}" if uninformative else guide_text(index)
 
     if f.df == 0:  # nothing to test: CFI, TLI and RMSEA are not defined
         plain = [_row("Chi-square test", "0 df: no test", JUST_IDENTIFIED, chi)]
