@@ -1431,19 +1431,26 @@ def comparison_paragraph(comparison) -> str:
     # advice to the reader of the tables (nesting.DifferenceTest.advice)
     parts += [f"{_capital(method.phrase)} was not computed: {said_in(reason, MANUSCRIPT)}." for method, reason in
               sorted(missed, key=lambda m: _PREFERRED.index(m[0]))]
+    by_name = dict(zip(names, results))
+
+    def undefined(restricted: str, general: str) -> bool:
+        return cfi_not_defined(by_name[restricted]) or cfi_not_defined(by_name[general])
+
     for (restricted, general), found in pairs.items():
         pair = f"{label[restricted]} against {label[general]}"
         if not shown[(restricted, general)]:  # why each was not is said above; the changes in fit stay descriptions
             t = sorted(found, key=lambda t: _PREFERRED.index(t.method))[0]
             changes = ("" if first.method.ordinal or math.isnan(t.delta_cfi) else
                        f"; {_change('CFI', t.delta_cfi)}, {_change('RMSEA', t.delta_rmsea)}")
+            if not first.method.ordinal and undefined(restricted, general):
+                changes = f"; \u0394CFI not defined, {_change('RMSEA', t.delta_rmsea)}"
             parts.append(f"For {pair} no difference statistic could be computed{changes}.")
             continue
         t = shown[(restricted, general)][0]
         which = f", {t.method}" if len(methods) > 1 else ""
-        sentence = (f"{pair}: {CHI}({t.df_difference}) = {t.chi_square_difference:.2f}, {_p(t.p_value)}{which}"
-                    + ("." if first.method.ordinal else
-                       f"; {_change('CFI', t.delta_cfi)}, {_change('RMSEA', t.delta_rmsea)}."))
+        cfi = "\u0394CFI not defined" if undefined(restricted, general) else _change('CFI', t.delta_cfi)
+        sentence = (f"{pair}: {CHI}({t.df_difference}) = {num(t.chi_square_difference, 2)}, {_p(t.p_value)}{which}"
+                    + ("." if first.method.ordinal else f"; {cfi}, {_change('RMSEA', t.delta_rmsea)}."))
         if t.boundary:
             sentence += (f" Because {label[restricted]} has {_list(list(t.boundary))}, values on the boundary of the "
                          f"parameter space of {label[general]}, the difference does not follow the usual chi-square "
@@ -1480,21 +1487,68 @@ _HELD_EQUAL = {"thresholds": "thresholds", "loadings": "loadings", "intercepts":
 _LEVEL_WORDS = {"thresholds": "threshold"}
 
 
-def _step_figures(step) -> str:
+def _step_figures(step, steps) -> str:
+    """A step's difference test and changes in fit against the step before it among ``steps``."""
     t = step.versus_previous
     if t is None or t.not_computed:
         return "no difference statistic"
     if step.untested:
         return "0 degrees of freedom"
-    text = f"{CHI}({t.df_difference}) = {t.chi_square_difference:.2f}, {_p(t.p_value)}"
+    text = f"{CHI}({t.df_difference}) = {num(t.chi_square_difference, 2)}, {_p(t.p_value)}"
     if not step.result.method.ordinal:  # the adjusted indices of ordinal fits are not compared between models
-        from cfa_tool.workflows.invariance import CFI_GUIDE, RMSEA_GUIDE, SRMR_GUIDE, SRMR_GUIDE_LATER
+        from cfa_tool.workflows.invariance import (CFI_GUIDE, RMSEA_GUIDE, SRMR_GUIDE, SRMR_GUIDE_LATER,
+                                                   delta_cfi_not_defined)
 
-        text += f", {_change('CFI', t.delta_cfi, CFI_GUIDE)}, {_change('RMSEA', t.delta_rmsea, RMSEA_GUIDE)}"
+        before = steps[steps.index(step) - 1].result
+        cfi = ("\u0394CFI not defined" if delta_cfi_not_defined(step.result, before)
+               else _change('CFI', t.delta_cfi, CFI_GUIDE))
+        text += f", {cfi}, {_change('RMSEA', t.delta_rmsea, RMSEA_GUIDE)}"
         if step.delta_srmr is not None:
             text += (f", \u0394SRMR = "
                      f"{signed(step.delta_srmr, beside=SRMR_GUIDE.get(step.level, SRMR_GUIDE_LATER))}")
     return text
+
+
+def cfi_not_defined_sentence(result) -> str:
+    """What an invariance ladder does where CFI has no value (workflows.invariance.cfi_not_defined: the baseline
+    model fits the data no worse than the model, so CFI is 0/0): the configural model is judged by RMSEA and SRMR,
+    and a step whose change in CFI is not defined by the other rules of its decision ('' when every CFI has a
+    value).  The one sentence of the paragraph and of the steps' table."""
+    from cfa_tool.workflows.invariance import cfi_not_defined, delta_cfi_not_defined
+    from cfa_tool.method import DecisionRule
+
+    steps = result.steps
+    models = [s.level for s in steps if cfi_not_defined(s.result)]
+    if not models:
+        return ""
+    ordinal = steps[0].result.method.ordinal
+    index = "robust CFI" if any(s.result.robust is not None for s in steps) and not ordinal else "CFI"
+    text = (f"{index} was not defined for the {_list(models)} model{'s' if len(models) > 1 else ''}: the baseline "
+            f"(independence) model fits these data no worse than {'they do' if len(models) > 1 else 'it does'} (both "
+            f"noncentralities at most 0, so CFI is 0/0), and CFI then says nothing about fit")
+    if steps[0].level in models:
+        text += "; the configural model was judged by RMSEA and SRMR alone"
+    later = [s.level for k, s in enumerate(steps) if k and s.versus_previous is not None and not s.untested
+             and delta_cfi_not_defined(s.result, steps[k - 1].result)]
+    if later and not ordinal:
+        rule = result.rule
+        by = ("by \u0394RMSEA and \u0394SRMR alone" if rule is DecisionRule.FIT_CHANGE else
+              "by the difference test, \u0394RMSEA and \u0394SRMR" if rule is DecisionRule.BOTH else
+              "by the difference test alone, as every step is under this rule")
+        text += (f"; \u0394CFI was not defined at the {_list(later)} step{'s' if len(later) > 1 else ''}, "
+                 f"{'which were' if len(later) > 1 else 'which was'} judged {by}")
+    return text + "."
+
+
+def cfi_not_defined(result) -> bool:
+    """Whether a fit's CFI, or its robust CFI, has no value though it was computed: the baseline model fits the data
+    no worse than the model (both noncentralities at most 0, so CFI is 0/0; assessment.fit_indices.cfi_from), not a
+    robust index left uncomputed (a scaling factor not positive), which the reports mark otherwise.  A change in CFI
+    from or to such a fit is 'not defined' in every view of a comparison."""
+    fit, robust = result.fit, result.robust
+    if not result.converged or fit is None or result.method.ordinal:
+        return False
+    return missing(fit.cfi) or (robust is not None and not robust.not_computed and missing(robust.cfi_robust))
 
 
 def _change(index: str, value: float, guide: float | None = None) -> str:
@@ -1642,6 +1696,9 @@ def invariance_paragraph(result, levels) -> str:
                  f"{guides_text(CONFIGURAL_INDICES, signs=True)}; Hu & Bentler, 1999); each later model by "
                  f"{rule}" + (f", the difference test being {_list([m.phrase for m in methods])}" if methods else "")
                  + ".")
+    undefined = cfi_not_defined_sentence(result)
+    if undefined:
+        parts.append(undefined)
     if result.freed:  # the search's guide, as the table of freed parameters and the JSON name it
         # with rows with gaps, normal-theory score tests rest on the expected information: the assumption the report's
         # note and the JSON name is the paper's too (review s13)
@@ -1665,13 +1722,13 @@ def invariance_paragraph(result, levels) -> str:
                           for f, level in earlier])
             extra = f" and {declared} specified as not held equal" if step.declared else ""
             parts.append(f"{name} invariance, partial with {kept} still free{extra}, {_held(step, basis)} "
-                         f"({_step_figures(step)}).")
+                         f"({_step_figures(step, steps)}).")
         elif step.declared and not step.partial:
             parts.append(f"{name} invariance, partial with {declared} specified as not held equal across groups, "
-                         f"{_held(step, basis)} ({_step_figures(step)}).")
+                         f"{_held(step, basis)} ({_step_figures(step, steps)}).")
         elif step.partial:
             full = step.full_test
-            with_all = (f"{CHI}({full.df_difference}) = {full.chi_square_difference:.2f}, {_p(full.p_value)}"
+            with_all = (f"{CHI}({full.df_difference}) = {num(full.chi_square_difference, 2)}, {_p(full.p_value)}"
                         if full is not None and not full.not_computed else "no difference statistic")
             if step.full_result is not None and step.full_result.converged and not step.full_result.admissible:
                 found = _list([_phrase(p, step.full_result) for p in step.full_result.problems if p.kind.inadmissible])
@@ -1686,9 +1743,9 @@ def invariance_paragraph(result, levels) -> str:
                 others += " but those freed at earlier steps"
             parts.append(f"{name} invariance did not hold {others} ({with_all}); after freeing {freed}, "
                          f"chosen one at a time by score tests (a data-driven search that capitalises on chance and "
-                         f"needs confirmation in new data), it {state} as partial invariance ({_step_figures(step)}){after}.")
+                         f"needs confirmation in new data), it {state} as partial invariance ({_step_figures(step, steps)}){after}.")
         else:
-            parts.append(f"{name} invariance {_held(step, basis)} ({_step_figures(step)}).")
+            parts.append(f"{name} invariance {_held(step, basis)} ({_step_figures(step, steps)}).")
     # a step that held after an inadmissible or unconverged one says so above
     conditional = [s.level for k, s in enumerate(steps) if s.conditional and not (s.holds and _basis(steps, k))]
     if conditional:

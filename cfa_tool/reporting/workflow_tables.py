@@ -19,7 +19,8 @@ from cfa_tool.note_parts import Command, Note, TableReference, Text, joined
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANGE_WHY, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
-from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, comparison_paragraph, design_sentence,
+from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, cfi_not_defined, cfi_not_defined_sentence,
+                                          comparison_paragraph, design_sentence,
                                           mcar_score_tests,
                                           invariance_paragraph, replication_paragraph)
 from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text, missing, num, p_phrase, p_value, short,
@@ -396,6 +397,7 @@ def comparison_report(comparison) -> Report:
     tables = [_table("model_fit", "Fit of each model", [("", "l")] + [(name, "r") for name in comparison.names], rows,
                      dashes, flagged=(0,) if bad else (),
                      values=(value_columns, [[name, *c[1]] for name, c in zip(comparison.names, cells)]))]
+    by_name = dict(zip(comparison.names, comparison.results))
     pairs: dict[tuple[str, str], list] = {}
     for t in comparison.tests:
         pairs.setdefault((t.restricted, t.general), []).append(t)
@@ -405,15 +407,18 @@ def comparison_report(comparison) -> Report:
         key = f"difference_tests_{k + 1}"
         rows, values = [], []
         boundary = found[0].boundary
+        # a CFI of 0/0 (the baseline model fits no worse): the change from or to it is not defined, and said so
+        undefined = [name for name in (restricted, general) if cfi_not_defined(by_name[name])]
+        cfi_change = (lambda t: "not defined") if undefined else (lambda t: _change(t.delta_cfi, dashes))
         for t in found:
             if t.not_computed:  # the changes in fit indices describe the two fits, with or without a statistic
-                rows.append([t.method, f"not computed ({t.df_difference})", "", _change(t.delta_cfi, dashes),
+                rows.append([t.method, f"not computed ({t.df_difference})", "", cfi_change(t),
                              _change(t.delta_rmsea, dashes)])
                 notes.append(f"{t.method}: not computed: " + t.not_computed + (f"; {t.advice}" if t.advice else "")
                              + ".")
             else:
-                rows.append([t.method, f"{t.chi_square_difference:.3f} ({t.df_difference})",
-                             p_value(t.p_value) + (" *" if boundary else ""), _change(t.delta_cfi, dashes),
+                rows.append([t.method, f"{num(t.chi_square_difference, 3)} ({t.df_difference})",
+                             p_value(t.p_value) + (" *" if boundary else ""), cfi_change(t),
                              _change(t.delta_rmsea, dashes)])
                 if t.scaled_by:  # the factors and correction a scaled difference took, as computed (nesting._scaled_by)
                     pair = f" ({restricted} against {general})" if len(pairs) > 1 else ""
@@ -439,7 +444,13 @@ def comparison_report(comparison) -> Report:
             values = [row[:4] + row[6:] for row in values]
         tables.append(_table(key, f"{restricted} (restricted) against {general}: difference tests",
                              columns, rows, joined((boundary_note(found, explained, criteria, ordinal) if boundary
-                                                    else None, _changes_note(rows, dashes, ordinal))) or None,
+                                                    else None, _changes_note(rows, dashes, ordinal),
+                                                    None if ordinal or not undefined else
+                                                    f"\u0394CFI not defined: CFI has no value for {word_list(undefined)} "
+                                                    f"(the baseline model fits these data no worse than "
+                                                    f"{'they do' if len(undefined) > 1 else 'it does'}: both "
+                                                    f"noncentralities at most 0, so CFI is 0/0); read the difference "
+                                                    f"test and \u0394RMSEA.")) or None,
                              values=(value_names, values)))
         explained = key if boundary and explained is None else explained
     if any(t.method is DifferenceMethod.SATORRA_BENTLER_2010 and not t.not_computed for t in comparison.tests):
@@ -479,16 +490,18 @@ def _level_fit_cells(result, adjusted: bool) -> tuple[list[str], list]:
             [fit.chi_square, fit.df, fit.p_value, fit.cfi, fit.rmsea, fit.srmr])
 
 
-def _step_cells(t, delta_srmr, level: str, dashes: bool = False) -> tuple[list[str], list]:
+def _step_cells(t, delta_srmr, level: str, dashes: bool = False, cfi_undefined: bool = False) -> tuple[list[str], list]:
     """A step's difference test and changes in fit, each change printed on the side of its guide it lies on;
-    ``dashes``: a change missing because a robust index was not computed is a dash (the table's note says so)."""
+    ``dashes``: a change missing because a robust index was not computed is a dash (the table's note says so);
+    ``cfi_undefined``: the change in CFI has no value, a CFI being 0/0 (workflows.invariance.delta_cfi_not_defined),
+    'not defined' (the table's note says how the step was judged)."""
     from cfa_tool.workflows.invariance import CFI_GUIDE, RMSEA_GUIDE, SRMR_GUIDE, SRMR_GUIDE_LATER
 
     def change(value, guide) -> str:
         return T.NOT_COMPUTED if dashes and missing(value) else signed(value, beside=guide)
 
-    return ([f"{t.chi_square_difference:.2f} ({t.df_difference})", p_value(t.p_value),
-             change(t.delta_cfi, CFI_GUIDE), change(t.delta_rmsea, RMSEA_GUIDE),
+    return ([f"{num(t.chi_square_difference, 2)} ({t.df_difference})", p_value(t.p_value),
+             "not defined" if cfi_undefined else change(t.delta_cfi, CFI_GUIDE), change(t.delta_rmsea, RMSEA_GUIDE),
              "" if delta_srmr is None else signed(delta_srmr, beside=SRMR_GUIDE.get(level, SRMR_GUIDE_LATER))],
             [t.chi_square_difference, t.df_difference, t.p_value, t.delta_cfi, t.delta_rmsea, delta_srmr])
 
@@ -663,7 +676,7 @@ def _score_tests_mcar_note(result) -> list[Text]:
 
 
 def invariance_report(result) -> Report:
-    from cfa_tool.workflows.invariance import STOP_HOLDS, unsound_basis  # the ladder's own, loaded with it
+    from cfa_tool.workflows.invariance import STOP_HOLDS, delta_cfi_not_defined, unsound_basis  # loaded with the ladder
 
     # two narrow tables (each level's own fit; each step against the one before) read in 80 columns;
     # a partially invariant step shows first with every equality, then with the freed ones
@@ -687,7 +700,8 @@ def invariance_report(result) -> Report:
             if step.full_test is not None:
                 before = result.steps[result.steps.index(step) - 1].result
                 srmr = step.full_result.fit.srmr - before.fit.srmr
-                cells, values = _step_cells(step.full_test, srmr, step.level, dashes is not None)
+                cells, values = _step_cells(step.full_test, srmr, step.level, dashes is not None,
+                                            delta_cfi_not_defined(step.full_result, before))
                 steps.append([f"{step.level} ({first_fit})", *cells, _verdict(step.full_holds, step.full_result)])
                 step_values.append([f"{step.level} ({first_fit})", *values, _verdict(step.full_holds, step.full_result)])
         cells, values = _level_fit_cells(step.result, adjusted)
@@ -701,7 +715,8 @@ def invariance_report(result) -> Report:
                    else _verdict(step.holds, step.result)) \
             + (" *" if step.conditional else "")
         if step.versus_previous is not None:
-            cells, values = _step_cells(step.versus_previous, step.delta_srmr, step.level, dashes is not None)
+            cells, values = _step_cells(step.versus_previous, step.delta_srmr, step.level, dashes is not None,
+                                        delta_cfi_not_defined(step.result, result.steps[k - 1].result))
             steps.append([label, *cells, verdict])
             step_values.append([label, *values, verdict])
         else:
@@ -736,6 +751,7 @@ def invariance_report(result) -> Report:
                       f"{s.unjudged}.", True) for s in result.steps if s.unjudged and s.result.admissible),
                    ("* tested after a step that did not hold: the comparison is between models already rejected.",
                     any(step.conditional for step in result.steps)),
+                   (cfi_not_defined_sentence(result), True),
                    (Note((f"{T.NOT_COMPUTED} in \u0394CFI or \u0394RMSEA: a robust index of a level was not computed "
                           f"(see the note under ", TableReference("levels"), ").")),
                     any(T.NOT_COMPUTED in row[3:5] for row in steps) and not ordinal)) if shown) or None,
@@ -1095,6 +1111,19 @@ def few_draws(draws: int, tail: float, what: str, moves: str) -> str:
 
 # ---------------------------------------------------------------- cutoffs
 
+def cutoffs_without_cfi(cut) -> str:
+    """How many simulated samples had no CFI (workflows.cutoffs.CutoffResult.without_cfi), which the CFI cutoffs
+    leave out: said beside the samples' line, never left as a cutoff that silently does not exist."""
+    correct, wrong = cut.without_cfi
+    why = ("" if cut.fit.method.ordinal else " (both noncentralities at most 0, so CFI is 0/0: the baseline model "
+                                              "fitted them no worse than the model)")
+    return (f"CFI had no value in {count_text(correct)} of the {count_text(cut.converged_correct)} converged samples "
+            f"from the fitted model and {count_text(wrong)} of the {count_text(cut.converged_misspecified)} from the "
+            f"misspecified one{why}; the CFI cutoffs come from the samples where it has one"
+            + (", too few of one model's to set them (at least 10 each)"
+               if min(cut.converged_correct - correct, cut.converged_misspecified - wrong) < 10 else "") + ".")
+
+
 def cutoffs_report(cut) -> Report:
     from cfa_tool.workflows.cutoffs import N_STEPS, SIZE_STEPS
 
@@ -1106,10 +1135,12 @@ def cutoffs_report(cut) -> Report:
                 [f"for a misspecification of {unit(c.separating_size, 2)} at this N"] if c.separating_size is not None else [])
             reading = f"none at N = {count_text(cut.n_obs)}" + ("; one exists " + ", or ".join(found) if found else
                                                       "; none either at 16 times this N or 3 times the misspecification")
+        elif missing(c.observed):  # this model's CFI is 0/0: on neither side of a cutoff
+            reading = f"this model's {c.index.upper()} is not defined"
         else:
             reading = CUTOFF_BEYOND if c.beyond else CUTOFF_WITHIN
         rows.append([c.index.upper(), f"{100 * c.level:.0f}%", unit(c.cutoff) if c.cutoff is not None else "",
-                     unit(c.observed), reading])
+                     index_text(c.observed), reading])
         values.append([c.index.upper(), c.level, c.cutoff, c.observed, reading])
     notes = []
     if any(c.cutoff is None for c in cut.cutoffs):
@@ -1125,6 +1156,8 @@ def cutoffs_report(cut) -> Report:
     left_out = _left_out(result) if cut.pattern_rows is None else ""  # the gaps carried over: said below
     lines = (f"{count_text(cut.replications)} samples of N = {count_text(cut.n_obs)}{left_out} from the fitted model and from the model with "
              f"{cut.misspecification} left out (seed {cut.seed}).",)
+    if any(cut.without_cfi):
+        lines += (cutoffs_without_cfi(cut),)
     if cut.pattern_rows is not None:
         lines += (f"The missing-data pattern was carried over: each simulated row takes the gaps of one of the "
                   f"{count_text(cut.pattern_rows)} data rows, drawn at random (missing completely at random, with the data's "
