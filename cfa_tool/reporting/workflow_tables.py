@@ -951,7 +951,8 @@ def _rows_table(rep) -> ReportTable:
         if assumption:
             assumed.append(f"{name}, answers {assumption}")
         in_file = sample.in_file if sample.in_file is not None else sample.read
-        rows.append([name] + [str(in_file)] * filtered + [str(sample.read), str(sample.analysed), str(gaps), how])
+        rows.append([name] + [count_text(in_file)] * filtered + [count_text(sample.read), count_text(sample.analysed),
+                                                              count_text(gaps), how])
         values.append([name] + [in_file] * filtered + [sample.read, sample.analysed, gaps, how])
     columns = ([("Sample", "l")] + [("Rows in the file", "r"), ("Kept by the row filter", "r")] * filtered
                + [("Rows read", "r")] * (not filtered)
@@ -1005,12 +1006,12 @@ def _split_sentence(rows) -> str:
     drawn = rows.how_drawn()  # row by row, or cluster by cluster within strata (workflows.replication.SplitRows)
     clusters = f" {drawn[0].upper()}{drawn[1:]}."
     if rows.split >= rows.in_file:
-        return (f"The {rows.split} rows {f'{rows.kept_words()[1:]}' if rows.filters else 'of the file'} were split at "
+        return (f"The {count_text(rows.split)} rows {f'{rows.kept_words()[1:]}' if rows.filters else 'of the file'} were split at "
                 f"random into two halves.{clusters}")
     why = ("they miss some answers, and the halves hold complete rows only" if rows.complete_only else
            "they answer none of the model's items")
     return (f"{count_text(rows.split)} of the {count_text(rows.in_file)} rows{rows.kept_words()} were split at random into two halves; the other "
-            f"{rows.in_file - rows.split} were left out before the split ({why}).{clusters}")
+            f"{count_text(rows.in_file - rows.split)} were left out before the split ({why}).{clusters}")
 
 
 def _left_out(result) -> str:

@@ -88,3 +88,15 @@ def test_a_power_plans_sample_sizes_grouped_in_words_and_plain_in_the_command(tm
     flat = " ".join(markdown.read_text().split())
     assert re.search(r"--n \d+,1500,1630'", flat) and "1500, 1630" in flat  # as the command and Python take them
     assert "N = 1,500" in flat and "1,630 rows here" in flat and "and 1,630 rows, say" not in flat
+
+
+def test_random_halves_count_their_rows_grouped(tmp_path, capsys):
+    model = tmp_path / "m.cfa"
+    model.write_text(THREE)
+    markdown = tmp_path / "halves.md"
+    code, out, err = run_cli(["replicate", model, "--data", _rows(tmp_path), "--seed", "3", "--keep", "age >= 18",
+                              "--markdown", markdown], capsys)
+    assert code == 0, err
+    text = out + markdown.read_text()
+    assert "of the 2,400 rows in the file" in text and not UNGROUPED.findall(text), UNGROUPED.findall(text)
+    assert not re.search(r"\| \d{4,} \|", markdown.read_text())  # the rows table's cells: grouped too
