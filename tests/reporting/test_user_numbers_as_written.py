@@ -108,3 +108,17 @@ def test_an_options_number_is_named_as_written():
     with pytest.raises(OptionError) as refused:
         RotationSpec(method="oblimin", gamma=2500000.0).checked()
     assert "not 2500000:" in str(refused.value)
+
+
+def test_a_workbooks_row_names_are_ids_as_written(tmp_path):
+    # a sheet whose unnamed first column holds codes with a decimal part (1235820.5: read back as floats; whole
+    # numbers come back as integers): they named rows as '1.23582e+06', so that neighbouring codes read alike
+    frame = holzinger_swineford()[ITEMS].iloc[:100].copy()
+    frame.index = [1_235_820.5 + k for k in range(len(frame))]
+    path = tmp_path / "ids.xlsx"
+    frame.to_excel(path)
+    from cfa_tool.reporting.tables import case_table
+
+    result = cfa_tool.fit(ONE, str(path))
+    ids = [row[1] for row in case_table(result, 0).rows]  # the table of rows that contribute most: Row, Id, ...
+    assert ids and all(i.startswith("12358") and float(i) in frame.index for i in ids), ids
