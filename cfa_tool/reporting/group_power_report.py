@@ -140,5 +140,5 @@ def _few_replications(replications: int) -> tuple[str, ...]:
     if replications >= 100:
         return ()
     return (f"Only {count_text(replications)} replications: a power near .80 has a Monte Carlo standard error of about "
-            f"{math.sqrt(0.16 / replications):.2f}, and a false-alarm rate near .05 one of about "
-            f"{math.sqrt(0.0475 / replications):.2f}; give 500 or more (common practice) for shares to two decimals",)
+            f"{unit(math.sqrt(0.16 / replications), 2)}, and a false-alarm rate near .05 one of about "
+            f"{unit(math.sqrt(0.0475 / replications), 2)}; give 500 or more (common practice) for shares to two decimals",)

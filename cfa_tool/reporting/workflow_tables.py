@@ -1321,7 +1321,7 @@ def few_replications(replications: int) -> tuple[str, ...]:
     if replications >= 100:
         return ()
     return (f"Only {count_text(replications)} replications: a power near .80 has a Monte Carlo standard error of about "
-            f"{math.sqrt(0.16 / replications):.2f} and a coverage near 95% one of about "
+            f"{unit(math.sqrt(0.16 / replications), 2)} and a coverage near 95% one of about "
             f"{100 * math.sqrt(0.0475 / replications):.0f} points; give 500 or more (common practice) for figures to "
             f"two decimals",)
 

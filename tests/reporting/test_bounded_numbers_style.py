@@ -41,3 +41,15 @@ def test_a_cutoffs_misspecification_names_its_correlation_without_a_leading_zero
     result = cfa_tool.fit(ONE, holzinger_swineford())
     _, what, size = misspecified_covariance(parse_model(ONE), result)
     assert what.startswith("a residual correlation of .30 between") and size == 0.30  # the tool's default size
+
+
+def test_few_replications_name_their_monte_carlo_errors_as_their_shares():
+    # 'a power near .80 has a Monte Carlo standard error of about 0.09': one sentence, two styles (s20); the error
+    # of a share p from R replications is sqrt(p (1 - p) / R) (the binomial standard error)
+    from cfa_tool.reporting.group_power_report import _few_replications
+    from cfa_tool.reporting.workflow_tables import few_replications
+
+    [said] = few_replications(20)
+    assert "about .09 and" in said and "0.09" not in said  # sqrt(.16 / 20) = .089
+    [said] = _few_replications(20)
+    assert "about .09, and a false-alarm rate near .05 one of about .05;" in said  # sqrt(.0475 / 20) = .049
