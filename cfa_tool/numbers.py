@@ -58,6 +58,17 @@ def user_number(value: float) -> str:
     return text.rstrip("0").rstrip(".") if "." in text else text
 
 
+def rounded_number(value: float, digits: int = 3) -> str:
+    """A number the tool computed, shown to ``digits`` significant digits in plain digits as :func:`user_number`
+    prints them ('0.000031', '1230000'; Python's '.3g' gave '3.1e-05' and '1.23e+06', which a researcher reads less
+    easily): discrepancies, scaling factors, variances in messages.  The one rule for a computed number of any size
+    in words; values bounded by 1 and fit indices are reporting.numbers'."""
+    value = float(value)
+    if not math.isfinite(value):
+        return str(value)
+    return user_number(float(f"{value:.{digits}g}"))
+
+
 def count_text(value: float) -> str:
     """A count or a sum (rows, a sum of weights) as the tool prints N: digits grouped by thousands, to two decimals
     only where the value has a fraction ('5,000,136', '1,234.56'), never in exponent form (hostile s19: 'sum

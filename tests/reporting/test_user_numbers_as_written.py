@@ -122,3 +122,15 @@ def test_a_workbooks_row_names_are_ids_as_written(tmp_path):
     result = cfa_tool.fit(ONE, str(path))
     ids = [row[1] for row in case_table(result, 0).rows]  # the table of rows that contribute most: Row, Id, ...
     assert ids and all(i.startswith("12358") and float(i) in frame.index for i in ids), ids
+
+
+def test_a_computed_number_is_rounded_and_printed_in_plain_digits():
+    # discrepancies, scaling factors and variances in messages were printed with '.3g' ('3.1e-05', '1.23e+06'); the
+    # check is Python's own parser: the text reads back as the number rounded to its significant digits
+    from cfa_tool.numbers import rounded_number
+
+    rng = np.random.default_rng(11)
+    for value in rng.normal(size=200) * 10.0 ** rng.integers(-12, 14, size=200):
+        text = rounded_number(value)
+        assert "e" not in text and float(text) == float(f"{value:.3g}"), (value, text)
+    assert rounded_number(3.14159e-5, 2) == "0.000031" and rounded_number(1234567.0) == "1230000"
