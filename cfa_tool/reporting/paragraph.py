@@ -1434,7 +1434,7 @@ def comparison_paragraph(comparison) -> str:
     by_name = dict(zip(names, results))
 
     def undefined(restricted: str, general: str) -> bool:
-        return cfi_not_defined(by_name[restricted]) or cfi_not_defined(by_name[general])
+        return compared_cfi_not_defined(by_name[restricted]) or compared_cfi_not_defined(by_name[general])
 
     for (restricted, general), found in pairs.items():
         pair = f"{label[restricted]} against {label[general]}"
@@ -1540,7 +1540,7 @@ def cfi_not_defined_sentence(result) -> str:
     return text + "."
 
 
-def cfi_not_defined(result) -> bool:
+def compared_cfi_not_defined(result) -> bool:
     """Whether a fit's CFI, or its robust CFI, has no value though it was computed: the baseline model fits the data
     no worse than the model (both noncentralities at most 0, so CFI is 0/0; assessment.fit_indices.cfi_from), not a
     robust index left uncomputed (a scaling factor not positive), which the reports mark otherwise.  A change in CFI

@@ -19,7 +19,7 @@ from cfa_tool.note_parts import Command, Note, TableReference, Text, joined
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANGE_WHY, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
-from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, cfi_not_defined, cfi_not_defined_sentence,
+from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, cfi_not_defined_sentence, compared_cfi_not_defined,
                                           comparison_paragraph, design_sentence,
                                           mcar_score_tests,
                                           invariance_paragraph, replication_paragraph)
@@ -408,7 +408,7 @@ def comparison_report(comparison) -> Report:
         rows, values = [], []
         boundary = found[0].boundary
         # a CFI of 0/0 (the baseline model fits no worse): the change from or to it is not defined, and said so
-        undefined = [name for name in (restricted, general) if cfi_not_defined(by_name[name])]
+        undefined = [name for name in (restricted, general) if compared_cfi_not_defined(by_name[name])]
         cfi_change = (lambda t: "not defined") if undefined else (lambda t: _change(t.delta_cfi, dashes))
         for t in found:
             if t.not_computed:  # the changes in fit indices describe the two fits, with or without a statistic
