@@ -42,8 +42,8 @@ def header_lines(result) -> list[str]:
     fit = result.configural
     total = sum(result.sizes)
     lines = [f"Model file: {fit.model_source}",
-             f"Data: {fit.data.source}; {total} rows in {len(result.groups)} groups of {result.group_column} "
-             f"(smallest {min(result.sizes)}, largest {max(result.sizes)})"
+             f"Data: {fit.data.source}; {count_text(total)} rows in {len(result.groups)} groups of {result.group_column} "
+             f"(smallest {count_text(min(result.sizes))}, largest {count_text(max(result.sizes))})"
              + (f", {T.selection_phrase(fit.data)}" if fit.data.row_filters else ""),
              "Reference group: " + _reference(result) + f"; {result.reference_mean.phrase}",
              f"Configural model (every factor's mean 0 and variance 1 in every group), {fit.estimator}: {_fit_words(fit)}",

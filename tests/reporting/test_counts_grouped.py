@@ -100,3 +100,16 @@ def test_random_halves_count_their_rows_grouped(tmp_path, capsys):
     text = out + markdown.read_text()
     assert "of the 2,400 rows in the file" in text and not UNGROUPED.findall(text), UNGROUPED.findall(text)
     assert not re.search(r"\| \d{4,} \|", markdown.read_text())  # the rows table's cells: grouped too
+
+
+def test_alignment_counts_its_rows_grouped(tmp_path, capsys):
+    path = tmp_path / "sites.csv"
+    frame = pd.read_csv(_rows(tmp_path))
+    frame["site"] = np.resize(list("abcdef"), len(frame))  # six invented sites of 400 rows
+    frame.to_csv(path, index=False)
+    model = tmp_path / "m.cfa"
+    model.write_text(THREE)
+    code, out, err = run_cli(["align", model, "--data", path, "--group-column", "site", "--trials", "0"], capsys)
+    assert code == 0, err
+    flat = " ".join(out.split())  # 2,390 rows: the 10 that answer nothing are left out
+    assert "2,390 rows in 6 groups of site" in flat and not UNGROUPED.findall(flat), UNGROUPED.findall(flat)
