@@ -35,18 +35,38 @@ def whole_number(text: str) -> int | None:
     return int(text) if _WHOLE.fullmatch(text) and len(text) <= 30 else None
 
 
+#: the sizes a user's number is printed in plain digits within (:func:`user_number`): a float holds about 16
+#: significant digits, so beyond 1e16 plain digits would print noise, and below 1e-15 a run of zeros
+PLAIN_DIGITS = (1e-15, 1e16)
+
+
 def user_number(value: float) -> str:
     """A number the user gave (a code of no answer, a filter's cut-off, a fixed value, an answer), printed as written:
-    the shortest digits that read back as the same number, never in exponent form ('9999999', not the '1e+07' of
-    Python's 'g' format, which names another number; hostile s19), whole numbers without '.0', '-0' as '0'.  The one
-    rule for a user's number; counts and sums are :func:`count_text`."""
+    the shortest digits that read back as the same number, never rounded ('9999999', not the '1e+07' of Python's
+    'g' format, which names another number; hostile s19) and in plain digits, whole numbers without '.0', '-0' as
+    '0'; only beyond the digits a float holds (:data:`PLAIN_DIGITS`: 1e16 and up, or below 1e-15 in size) in
+    Python's exact shortest form ('1e+308', not 309 digits).  The one rule for a user's number; counts and sums are
+    :func:`count_text`."""
     value = float(value)
     if not math.isfinite(value):
         return str(value)
     if value == 0:
         return "0"
+    if not PLAIN_DIGITS[0] <= abs(value) < PLAIN_DIGITS[1]:
+        return repr(value)
     text = format(Decimal(repr(value)), "f")
     return text.rstrip("0").rstrip(".") if "." in text else text
+
+
+def rounded_number(value: float, digits: int = 3) -> str:
+    """A number the tool computed, shown to ``digits`` significant digits in plain digits as :func:`user_number`
+    prints them ('0.000031', '1230000'; Python's '.3g' gave '3.1e-05' and '1.23e+06', which a researcher reads less
+    easily): discrepancies, scaling factors, variances in messages.  The one rule for a computed number of any size
+    in words; values bounded by 1 and fit indices are reporting.numbers'."""
+    value = float(value)
+    if not math.isfinite(value):
+        return str(value)
+    return user_number(float(f"{value:.{digits}g}"))
 
 
 def count_text(value: float) -> str:

@@ -132,8 +132,10 @@ class ProblemKind(enum.Enum):
     # (assessment.fit_indices.POOR_FIT_BOUNDS, read from the figures the report says to read)
     POOR_FIT = ("poor fit", "poor fit", False)
     # not of the solution but of its fit indices: a baseline (independence) model whose own RMSEA is below the rule of
-    # thumb (assessment.fit_indices.UNINFORMATIVE_BASELINE_RMSEA), so that CFI and TLI say little about the model
-    UNINFORMATIVE_BASELINE = ("baseline model fits nearly: CFI and TLI say little", "CFI and TLI say little", False)
+    # thumb (assessment.fit_indices.UNINFORMATIVE_BASELINE_RMSEA), so that CFI and TLI are bounded by how little it
+    # misfits and are read beside RMSEA, SRMR and the residuals; ranked after every other problem (solution_first)
+    UNINFORMATIVE_BASELINE = ("baseline model misfits little: read CFI and TLI beside RMSEA and SRMR",
+                              "CFI and TLI bounded by the baseline", False)
     # not of the solution but of the sample: a row filter that selects rows by their answers to a model item
     # (pipeline.row_filter_cautions): the item's range is restricted, its correlations changed
     SELECTED_ON_ITEM = ("rows selected on a model item", "selected on an item", False)
@@ -319,8 +321,11 @@ def counted_parameters(free: int, labels: Iterable[str]) -> int:
 def solution_first(problems: Iterable["Problem"]) -> tuple["Problem", ...]:
     """``problems`` with those that make the solution not admissible first (a fit's data cautions, which it puts
     before its own problems, after them: a new-user trial found a harmless note on missing-value words above a
-    negative variance), each kind's order kept."""
-    return tuple(sorted(problems, key=lambda p: not p.kind.inadmissible))
+    negative variance), each kind's order kept; the caution on a baseline model that misfits little
+    (:func:`uninformative_baseline_problems`), which says how to read two indices rather than what is wrong with the
+    solution or the data, last (it stood above a poor fit's caution on a realistic 25-item scale, s19)."""
+    return tuple(sorted(problems, key=lambda p: (not p.kind.inadmissible,
+                                                 p.kind is ProblemKind.UNINFORMATIVE_BASELINE)))
 
 
 def one_sample_size_problems(rows: float, free: int, labels: Sequence[str]) -> tuple[tuple["Problem", ...],
@@ -975,9 +980,13 @@ def refuse_inadmissible_fit(problems, source: str, purpose: str, flagged: bool =
 def uninformative_baseline_problems(fit, robust, n_obs: int, groups: int = 1) -> tuple[Problem, ...]:
     """A caution when the baseline (independence) model's own RMSEA, from the baseline chi-square of the test the
     report says to read (``fit``: assessment.fit_indices.FitIndices; ``robust``: inference.robust.RobustFit or None),
-    lies below :data:`cfa_tool.assessment.fit_indices.UNINFORMATIVE_BASELINE_RMSEA`: the items correlate too weakly
-    for CFI and TLI to tell this model from one in which they do not correlate at all (hostile s19: pure noise
-    printed CFI 1.000 beside its guide, and weakly correlated items TLI 1.574)."""
+    lies below :data:`cfa_tool.assessment.fit_indices.UNINFORMATIVE_BASELINE_RMSEA` (hostile s19: pure noise printed
+    CFI 1.000 beside its guide, and weakly correlated items TLI 1.574).  What it means, in measured words (s20: a
+    realistic 25-item scale with a baseline RMSEA of .144 was told its CFI and TLI 'say little ..., high or low'):
+    CFI and TLI compare the model with that baseline, so they are bounded by how badly it fits.  For TLI the bound is
+    exact: with both noncentralities positive, TLI = 1 - (RMSEA / baseline RMSEA)^2 (Tucker & Lewis 1973's index and
+    Steiger & Lind's RMSEA, each with its own df and the same N, written in one another's terms), so the caution
+    gives the TLI a model of RMSEA .05 would have with this baseline."""
     from cfa_tool.assessment.fit_indices import UNINFORMATIVE_BASELINE_RMSEA as BOUND
     from cfa_tool.assessment.fit_indices import rmsea_value
     from cfa_tool.numerics.plain import journal_decimal
@@ -992,15 +1001,21 @@ def uninformative_baseline_problems(fit, robust, n_obs: int, groups: int = 1) ->
         return ()
     which = "" if robust is None else f" (from its {robust.statistic()})"
     prefix = "" if robust is None else "robust "
+    close = 0.05  # the RMSEA of close fit (Browne & Cudeck 1993, recalled from memory; a convention)
+    about = "" if robust is None else "about "  # exact for the normal-theory indices, near for the robust ones
+    bound = (f"here a model with an RMSEA of {journal_decimal(close).rstrip('0')} would have a TLI of {about}"
+             f"{journal_decimal(1 - (close / value) ** 2, 0.95)}" if value > close else
+             f"here the baseline model itself fits closely (RMSEA at most {journal_decimal(close).rstrip('0')}), so "
+             f"CFI and TLI compare the model with one that already fits and can take almost any value, or none")
     return (Problem(ProblemKind.UNINFORMATIVE_BASELINE, (), float(value),
-                    f"The baseline model, in which the items do not correlate at all, itself nearly fits these data: "
-                    f"its RMSEA{which} is {journal_decimal(value, BOUND)}, below {journal_decimal(BOUND)} (a rule of "
-                    f"thumb recalled from Kenny, Kaniskan & McCoach 2015, not a law). The {prefix}CFI and TLI measure the "
-                    f"model's improvement on that baseline, so with items this weakly correlated they say little "
-                    f"about the model, high or low.",
-                    "judge the fit by the chi-square test, the RMSEA and the SRMR and by the residual correlations, "
-                    "and check that the items correlate as the model expects: weak correlations mean weak loadings "
-                    "and unreliable factors."),)
+                    f"The items correlate weakly enough that the baseline model, in which they do not correlate at "
+                    f"all, has an RMSEA{which} of {journal_decimal(value, BOUND)}, below {journal_decimal(BOUND)} (a "
+                    f"rule of thumb recalled from Kenny, Kaniskan & McCoach 2015, not a law). The {prefix}CFI and TLI "
+                    f"measure the model's improvement on that baseline, so they are bounded by how badly it fits: TLI "
+                    f"is {about}1 - (RMSEA / baseline RMSEA)\u00b2, and {bound}. This is no problem of the solution: it "
+                    f"says how to read two indices.",
+                    f"read the {prefix}CFI and TLI beside the RMSEA, the SRMR and the residual correlations rather "
+                    f"than alone."),)
 
 
 def poor_fit_problems(read) -> tuple[Problem, ...]:

@@ -6,6 +6,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from cfa_tool.numbers import rounded_number
 from cfa_tool.errors import ModelError, NotIdentified, UnboundedSolution
 from cfa_tool.language.names import written_name
 from cfa_tool.language.spec import Spec
@@ -123,7 +124,7 @@ def check_bounded_responses(mats, observed: tuple[str, ...], groups: tuple, labe
     share, j, g = worst
     where = f" in group {groups[g]}" if groups[g] is not None else ""
     grown = [k for k in np.argsort(-np.abs(theta)).tolist()[:3] if abs(theta[k]) > 100]
-    shown = ", ".join(f"{labels[k]} {theta[k]:.3g}" for k in grown)
+    shown = ", ".join(f"{labels[k]} {rounded_number(theta[k])}" for k in grown)
     raise UnboundedSolution(
         f"the solution is not admissible: the factors explain all of {observed[j]}'s latent response{where} (its "
         f"residual's share of the variance goes to zero, {share:.1e}"

@@ -28,7 +28,7 @@ from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.options import Option
 from cfa_tool.language.names import written_name
-from cfa_tool.numbers import number, user_number
+from cfa_tool.numbers import count_text, number, user_number
 from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names
 
@@ -403,11 +403,13 @@ def _filter_notes(counted: list[RowFilter], said: list[tuple]) -> list[str]:
         by_label = next((said[k][2] for k in places if said[k][2]), "")
         read_as = next((said[k][4] for k in places if said[k][4]), "")
         if len(places) == 1:
-            notes.append(f"row filter '{f}'{by_label} {emptied}kept {after} of {before} rows{said[places[0]][3]}{read_as}")
+            notes.append(f"row filter '{f}'{by_label} {emptied}kept {count_text(after)} of {count_text(before)} rows"
+                         f"{said[places[0]][3]}{read_as}")
             continue
         left_out = sum(said[k][0] - said[k][1] for k in places)
-        kept = (f"kept {after} of {before} rows" if list(places) == list(range(places[0], places[-1] + 1)) else
-                f"left out {left_out} row{'s' if left_out != 1 else ''} in all")  # other filters between them
+        kept = (f"kept {count_text(after)} of {count_text(before)} rows"
+                if list(places) == list(range(places[0], places[-1] + 1)) else
+                f"left out {count_text(left_out)} row{'s' if left_out != 1 else ''} in all")  # other filters between them
         missing = [m.value for m, k in zip(f.members, places) if said[k][3]]
         absent = ""
         if len(missing) == 1:

@@ -36,7 +36,7 @@ from cfa_tool.errors import DataError, clipped, printable
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 from cfa_tool.input_files import base_name, check_input_path, input_bytes, line_count, utf16_text
-from cfa_tool.numbers import number
+from cfa_tool.numbers import number, user_number
 
 if TYPE_CHECKING:
     from cfa_tool.data.moments import ItemColumns
@@ -2128,7 +2128,7 @@ def _split_row_names(frame: pd.DataFrame, out: list | None) -> pd.DataFrame:
     """The frame without its first (row-name) column; the column's values, as text, go to ``out``."""
     if out is not None:
         first = frame.iloc[:, 0]
-        out.append(first.map(lambda v: None if pd.isna(v) else (f"{v:g}" if isinstance(v, float) else str(v)))
+        out.append(first.map(lambda v: None if pd.isna(v) else (user_number(v) if isinstance(v, float) else str(v)))
                    .rename(None))
     return frame.iloc[:, 1:]
 

@@ -45,6 +45,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from cfa_tool.errors import OptionError
+from cfa_tool.numbers import user_number
 from cfa_tool.exploration import criteria
 from cfa_tool.exploration.choices import RotationMethod
 from cfa_tool.exploration.draft import DEFAULT_THRESHOLD
@@ -109,7 +110,7 @@ class RotationSpec:
             raise OptionError("promax starts from a normalized varimax rotation; row normalization cannot be turned off")
         gamma = options.real_number("oblimin's gamma", self.gamma, -100.0) if self.gamma is not None else 0.0
         if gamma > 0:
-            raise OptionError(f"oblimin's gamma must be 0 or below, not {gamma:g}: above 0 the criterion can have no "
+            raise OptionError(f"oblimin's gamma must be 0 or below, not {user_number(gamma)}: above 0 the criterion can have no "
                               f"minimum, and the factors drift towards perfect correlation (Jennrich 1979)")
         epsilon = (options.real_number("geomin's epsilon", self.epsilon, 0.0, 10.0, open_low=True)
                    if self.epsilon is not None else DEFAULT_EPSILON)

@@ -10,6 +10,8 @@ from __future__ import annotations
 
 from dataclasses import replace
 
+from cfa_tool.numbers import user_number
+
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import Location, ModelError
 from cfa_tool.language.names import written_name
@@ -395,7 +397,7 @@ def _check_contradictions(spec: Spec) -> None:
     for setting in spec.fixed:
         for ref in setting.refs:
             if ref.kind == "variance" and setting.value < 0:
-                raise _fail(spec, f"{ref} is fixed to {setting.value:g}, but a variance cannot be negative; fix it to 0 "
+                raise _fail(spec, f"{ref} is fixed to {user_number(setting.value)}, but a variance cannot be negative; fix it to 0 "
                                   f"or more", ref.location)
             if (ref.kind == "variance" and setting.value == 0 and len(set(ref.names)) == 1
                     and ref.names[0] in top):
@@ -406,9 +408,9 @@ def _check_contradictions(spec: Spec) -> None:
                                   f"scale) or remove the statement", ref.location)
             key = _gkey(ref)
             if key in fixed and fixed[key][0] != setting.value:
-                raise _fail(spec, f"{ref} is fixed to {setting.value:g} here but to {fixed[key][0]:g} on line {fixed[key][1].location.line}", ref.location)
+                raise _fail(spec, f"{ref} is fixed to {user_number(setting.value)} here but to {user_number(fixed[key][0])} on line {fixed[key][1].location.line}", ref.location)
             if key in fixed:  # the same fix again: the methods paragraph stated it twice (re-check s18)
-                raise _fail(spec, _repeated(f"{ref} is fixed to {setting.value:g}", fixed[key][1], ref),
+                raise _fail(spec, _repeated(f"{ref} is fixed to {user_number(setting.value)}", fixed[key][1], ref),
                             ref.location)
             fixed[key] = (setting.value, ref)
     _check_zero_disturbances(spec, fixed, latent - top)
@@ -425,7 +427,7 @@ def _check_contradictions(spec: Spec) -> None:
             if _gkey(ref) in fixed:
                 raise _fail(spec, f"{ref} is fixed, so a start value for it has no effect; remove one of the two", ref.location)
             if started.get(_gkey(ref), (None,))[0] == setting.value:  # two different ones: model.parameters says so
-                raise _fail(spec, _repeated(f"{ref} is given the start value {setting.value:g}", started[_gkey(ref)][1],
+                raise _fail(spec, _repeated(f"{ref} is given the start value {user_number(setting.value)}", started[_gkey(ref)][1],
                                             ref), ref.location)
             started[_gkey(ref)] = (setting.value, ref)
     for bound in spec.bounds:
@@ -443,18 +445,18 @@ def _check_contradictions(spec: Spec) -> None:
                 if value is None:
                     continue
                 if key in side and side[key][0] != value:
-                    raise _fail(spec, f"{ref} is bounded to {word} {value:g} here but to {word} {side[key][0]:g} on line "
+                    raise _fail(spec, f"{ref} is bounded to {word} {user_number(value)} here but to {word} {user_number(side[key][0])} on line "
                                       f"{side[key][1].location.line}; give it one bound on each side", ref.location)
                 if key in side:  # the same bound again: stated twice by the methods paragraph (re-check s18)
-                    raise _fail(spec, _repeated(f"{ref} is bounded to {word} {value:g}", side[key][1], ref),
+                    raise _fail(spec, _repeated(f"{ref} is bounded to {word} {user_number(value)}", side[key][1], ref),
                                 ref.location)
                 side[key] = (value, ref)
             if ref.kind == "variance" and bound.upper is not None and bound.upper < 0:
-                raise _fail(spec, f"{ref} is bounded to at most {bound.upper:g}, but a variance cannot be negative",
+                raise _fail(spec, f"{ref} is bounded to at most {user_number(bound.upper)}, but a variance cannot be negative",
                             ref.location)
             if key in lower and key in upper and lower[key][0] > upper[key][0]:
-                raise _fail(spec, f"the bounds on {ref} leave no room: at least {lower[key][0]:g} and at most "
-                                  f"{upper[key][0]:g}", ref.location)
+                raise _fail(spec, f"the bounds on {ref} leave no room: at least {user_number(lower[key][0])} and at most "
+                                  f"{user_number(upper[key][0])}", ref.location)
     exempt: dict[tuple, ParameterRef] = {}
     for ref in spec.noninvariant:  # named again: 'except the intercept of clean and the intercept of clean' (s18)
         if _gkey(ref) in exempt:
@@ -485,7 +487,7 @@ def _check_contradictions(spec: Spec) -> None:
         held.setdefault(key, group)
         values = {fixed[_gkey(r)][0] for r in group if _gkey(r) in fixed}
         if len(values) > 1:
-            raise _fail(spec, f"these parameters are set equal but are fixed to different values ({', '.join(f'{v:g}' for v in sorted(values))})", group[0].location)
+            raise _fail(spec, f"these parameters are set equal but are fixed to different values ({', '.join(user_number(v) for v in sorted(values))})", group[0].location)
         kinds = {r.kind for r in group}
         keys = [_gkey(r) for r in group]
         if len(set(keys)) < len(keys):

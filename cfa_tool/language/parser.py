@@ -18,6 +18,7 @@ from pathlib import Path
 from lark import Lark, Token, Tree
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
+from cfa_tool.numbers import user_number
 from cfa_tool.suggest import close_names, dotted_span
 from cfa_tool.errors import Location, ModelError, character_names, clipped, printable
 from cfa_tool.input_files import hidden_line_break, input_bytes, normalise_line_ends, text_lines, utf16_text
@@ -435,11 +436,11 @@ class _Builder:
                 low, high = self.number(stmt.children[1]), self.number(stmt.children[2])
                 for value, child in ((low, stmt.children[1]), (high, stmt.children[2])):
                     if not abs(value) <= LARGEST_SCALE_END:  # also refuses a value too large to be a number
-                        raise self.error(f"the answer scale's end {value:g} is not a rating scale's answer; give the "
+                        raise self.error(f"the answer scale's end {user_number(value)} is not a rating scale's answer; give the "
                                          f"lowest and highest answers the items allow (such as 1 to 5), each between "
                                          f"-{LARGEST_SCALE_END:,.0f} and {LARGEST_SCALE_END:,.0f}", child.children[0])
                 if low >= high:
-                    raise self.error(f"the answer scale must run from a smaller to a larger number; got {low:g} to {high:g}",
+                    raise self.error(f"the answer scale must run from a smaller to a larger number; got {user_number(low)} to {user_number(high)}",
                                      stmt.children[1].children[0])
                 reversed_items.append(ReverseKeying(self.name_list(stmt.children[0]), low, high, self.loc(stmt)))
             else:  # pragma: no cover - grammar and builder out of step
@@ -493,7 +494,7 @@ class _Builder:
             key, code_node = answer.children
             code = self.number(code_node)
             if not abs(code) <= LARGEST_SCALE_END:
-                raise self.error(f"the code {code:g} is not a rating scale's answer; give each answer a code between "
+                raise self.error(f"the code {user_number(code)} is not a rating scale's answer; give each answer a code between "
                                  f"-{LARGEST_SCALE_END:,.0f} and {LARGEST_SCALE_END:,.0f}", code_node.children[0])
             if isinstance(key, Token) and key.type == "STRING":
                 word = str(key)[1:-1]

@@ -11,6 +11,7 @@ from dataclasses import dataclass, field
 from functools import cached_property
 
 from cfa_tool.errors import Location
+from cfa_tool.numbers import user_number
 from cfa_tool.language.names import reference_text
 
 #: Parameter kinds a reference may name, with the number of names each takes.
@@ -178,7 +179,7 @@ class AnswerWord:
 
     @property
     def shown(self) -> str:
-        return self.word if self.word is not None else f"{self.number:g}"
+        return self.word if self.word is not None else user_number(self.number)
 
 
 @dataclass(frozen=True)

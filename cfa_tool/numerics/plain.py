@@ -99,7 +99,10 @@ def decimals_beside(value: float, limit: float | None, digits: int = 3, most: in
 
 
 def journal_decimal(value: float, beside: float | None = None, digits: int = 3) -> str:
-    """A value below 1 as journals print indices, without the leading zero ('.931'), to ``digits`` decimals or as
-    many more as it takes to print on the side of ``beside``, a guide it is judged by (:func:`decimals_beside`)."""
+    """A value below 1 as journals print indices, without the leading zero ('.931', '-.25'), to ``digits`` decimals or
+    as many more as it takes to print on the side of ``beside``, a guide it is judged by (:func:`decimals_beside`);
+    one that rounds to zero without a sign ('.000')."""
     text = f"{value:.{decimals_beside(value, beside, digits)}f}"
-    return text[1:] if text.startswith("0.") else text
+    if float(text) == 0.0:
+        text = text.lstrip("-")
+    return text[1:] if text.startswith("0.") else "-" + text[2:] if text.startswith("-0.") else text

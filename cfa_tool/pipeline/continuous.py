@@ -31,6 +31,7 @@ from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments, moments_with_gaps
 from cfa_tool.data.sample_design import shared_clusters
 from cfa_tool.errors import CfaError, NotIdentified, OptionError
+from cfa_tool.numbers import count_text
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
 from cfa_tool.estimation.optimizer import Outcome
 from cfa_tool.estimation.strategy import Alternative, search
@@ -387,15 +388,15 @@ def listwise_problem(dropped: int, read: int, where: str = "",
         return None
     instead = full_information_instead() if instead is None else instead
     return Problem(ProblemKind.ROWS_LEFT_OUT, (), float(dropped),
-                   f"Listwise deletion left out {dropped} of {read} rows{where} ({100 * dropped / read:.0f}%) because "
+                   f"Listwise deletion left out {count_text(dropped)} of {count_text(read)} rows{where} ({100 * dropped / read:.0f}%) because "
                    f"they miss an answer on a model variable, and the rows left out may differ from those kept.",
                    instead + " would use every answer they have.")
 
 
 def listwise_line(dropped: int, read: int, analysed: int, where: str = "") -> str:
     """The note on fewer rows left out listwise than :func:`listwise_problem` cautions about."""
-    return (f"{dropped} of {read} rows{where} had a missing answer on a model variable and were left out "
-            f"(listwise deletion); {analysed} rows were analysed")
+    return (f"{count_text(dropped)} of {count_text(read)} rows{where} had a missing answer on a model variable and were left out "
+            f"(listwise deletion); {count_text(analysed)} rows were analysed")
 
 
 def rows_left_out(groups, missing: MissingData | None,
@@ -423,7 +424,7 @@ def rows_left_out(groups, missing: MissingData | None,
             naming = named[2] if len(named) > 2 else RowNaming.FILE_ROW
             lines = named[3] if len(named) > 3 else None  # a text file's rows on lines of other numbers
             listed = " (" + rows_listed(rows, ids=ids, naming=naming, lines=lines) + ")" if len(rows) else ""
-            notes.append(f"{dropped} of {read} {'row' if read == 1 else 'rows'}{where} answered none of the model "
+            notes.append(f"{count_text(dropped)} of {count_text(read)} {'row' if read == 1 else 'rows'}{where} answered none of the model "
                          f"variables and {'was' if dropped == 1 else 'were'} left out" + listed)
     return tuple(cautions), notes
 
@@ -614,7 +615,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
 
 def helpers_only_note(count: int, read: int) -> str:
     """The note on the rows that answer no item but a missing-data helper: analysed, and why."""
-    return (f"{count} of {read} rows answer none of the model's items but a missing-data helper: they are analysed "
+    return (f"{count_text(count)} of {count_text(read)} rows answer none of the model's items but a missing-data helper: they are analysed "
             f"and counted in N, entering the likelihood of items and helpers through the helpers' values (Graham's "
             f"2003 saturated-correlates model), which moves the items' estimated means and covariances as the "
             f"helpers' correlations with the items imply; left out, they would leave a sample selected by the helpers")

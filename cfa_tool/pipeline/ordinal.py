@@ -27,6 +27,7 @@ from cfa_tool.assessment.modification import (ModificationIndices, candidate_arr
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.errors import CfaError, ModelError, NotIdentified, OptionError
+from cfa_tool.numbers import count_text
 from cfa_tool.estimation.least_squares import MixedLeastSquares, OrdinalLeastSquares, group_statistics
 from cfa_tool.estimation.optimizer import Outcome
 from cfa_tool.estimation.strategy import Alternative, search
@@ -194,7 +195,7 @@ def _rows_notes(moments, order: list[int], where: str = "") -> list[str]:
         return [listwise_line(moments.rows_dropped, moments.rows_read, len(moments.codes), where)]
     out = []
     if moments.rows_dropped:
-        out.append(f"{moments.rows_dropped} of {moments.rows_read} rows{where} answered no model variable and were left out")
+        out.append(f"{count_text(moments.rows_dropped)} of {count_text(moments.rows_read)} rows{where} answered no model variable and were left out")
     if moments.gaps:
         pairs = _pair_rows(moments, order)
         low, high = min(pairs, key=lambda t: t[2]), max(pairs, key=lambda t: t[2])

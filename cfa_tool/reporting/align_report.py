@@ -7,6 +7,7 @@ from cfa_tool.data.groups import reference_words
 from cfa_tool.language.names import written_group
 from cfa_tool.note_parts import Text, capitalised, said
 from cfa_tool.reporting import tables as T
+from cfa_tool.numbers import count_text
 from cfa_tool.reporting.numbers import num, p_phrase, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable, _table
 
@@ -41,8 +42,8 @@ def header_lines(result) -> list[str]:
     fit = result.configural
     total = sum(result.sizes)
     lines = [f"Model file: {fit.model_source}",
-             f"Data: {fit.data.source}; {total} rows in {len(result.groups)} groups of {result.group_column} "
-             f"(smallest {min(result.sizes)}, largest {max(result.sizes)})"
+             f"Data: {fit.data.source}; {count_text(total)} rows in {len(result.groups)} groups of {result.group_column} "
+             f"(smallest {count_text(min(result.sizes))}, largest {count_text(max(result.sizes))})"
              + (f", {T.selection_phrase(fit.data)}" if fit.data.row_filters else ""),
              "Reference group: " + _reference(result) + f"; {result.reference_mean.phrase}",
              f"Configural model (every factor's mean 0 and variance 1 in every group), {fit.estimator}: {_fit_words(fit)}",
@@ -123,7 +124,7 @@ def means_table(result, k: int) -> ReportTable:
 
     factor = result.factors[k]
     shares = dict(result.group_shares(factor.factor))
-    rows = [[g.group, str(g.rows), num(g.mean), num(g.mean_se), num(g.variance), num(g.variance_se),
+    rows = [[g.group, count_text(g.rows), num(g.mean), num(g.mean_se), num(g.variance), num(g.variance_se),
              _percent(shares[g.group])] for g in factor.groups]
     ranked = sorted(factor.groups, key=lambda g: -g.mean)
     doubts = _order_doubts(result, k)

@@ -12,6 +12,7 @@ from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import html_text as esc
+from cfa_tool.numbers import count_text
 from cfa_tool.reporting.numbers import num, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, ReportTable, _table
 
@@ -36,7 +37,7 @@ def header_lines(result) -> list[str]:
     ex = result.exploration
     half = " (the exploration half)" if result.split is not None else ""
     kind = "polychoric" if ex.data.kind.value == "polychoric" else "Pearson"
-    return [f"Data: {result.source}; {ex.data.n_obs} rows analysed{half} of {result.rows_read} read",
+    return [f"Data: {result.source}; {count_text(ex.data.n_obs)} rows analysed{half} of {count_text(result.rows_read)} read",
             f"Items ({len(result.items)}): {names_text(result.items)}",  # as --items takes them: commas stay inside
             f"{ex.settings.extraction.value} extraction from the {kind} correlations; " + rotation_phrase(ex)]
 
@@ -57,7 +58,7 @@ def count_table(result) -> ReportTable:
              "yes" if s.rule in count.combined else ""] for s in count.suggestions]
     return _table("factor_count", "How many factors: what each rule suggests",
                   [("Rule", "l"), ("Factors", "r"), ("Part of the recommendation", "l")], rows,
-                  f"Parallel analysis: {count.parallel.replications} {count.parallel.reference.phrase}, "
+                  f"Parallel analysis: {count_text(count.parallel.replications)} {count.parallel.reference.phrase}, "
                   f"{count.parallel.percentile:g}th percentile (Glorfeld 1995). An empty cell: the rule found no "
                   f"count among the solutions tried" + (", or, for the lowest BIC, BIC is not defined for polychoric "
                                                         "correlations." if _scaled(result) else "."))

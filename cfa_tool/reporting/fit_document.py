@@ -8,6 +8,7 @@ import re
 from dataclasses import replace
 from functools import partial
 
+from cfa_tool.numbers import count_text
 from cfa_tool.note_parts import joined
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Figure, Listing, Report, ResultKind, in_section
@@ -28,7 +29,7 @@ def fit_tables(result) -> list[ReportTable]:
         fit = replace(fit, note=joined([fit.note, *extra]))
         out += in_section("Fit", [fit, T.group_table(result) if result.multigroup else None])
     for g, group in enumerate(result.groups):
-        heading = "Estimates" + (f", group {group.label} (N = {group.data.n_obs})" if result.multigroup else "")
+        heading = "Estimates" + (f", group {group.label} (N = {count_text(group.data.n_obs)})" if result.multigroup else "")
         out += in_section(heading, of_group(result, g, [*T.estimate_tables(result, g), T.reliability_table(result, g),
                              T.sum_score_table(result, g), T.distinct_table(result, g), T.case_table(result, g)]))
     for g, group in enumerate(result.groups):

@@ -8,6 +8,7 @@ import math
 from dataclasses import replace
 
 from cfa_tool.model.description import parameter_words
+from cfa_tool.numbers import count_text
 from cfa_tool.note_parts import Command, Note, joined
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.numbers import num, unit, word_list
@@ -22,7 +23,7 @@ AFTER_MISFIT_CAUTION = ("A step tested after a step whose equalities already fai
 
 
 def _sizes(labels, sizes) -> str:
-    return ", ".join(f"{label} {n}" for label, n in zip(labels, sizes))
+    return ", ".join(f"{label} {count_text(n)}" for label, n in zip(labels, sizes))
 
 
 def _difference_words(result) -> str:
@@ -43,8 +44,8 @@ def _inadmissible_cautions(result) -> tuple[str, ...]:
         where = f" at group sizes {_sizes(result.labels, d.sizes)}" if len(result.designs) > 1 else ""
         found = [("configural", d.configural_inadmissible, d.configural_problems)]
         found += [(s.level, s.inadmissible, s.inadmissible_named) for s in d.steps]
-        out += [f"The {level} model's solution is not admissible, as a single fit would judge it, in {count} of the "
-                f"{d.converged} converged replications{where} ({named}); they are included in the rejection shares"
+        out += [f"The {level} model's solution is not admissible, as a single fit would judge it, in {count_text(count)} of the "
+                f"{count_text(d.converged)} converged replications{where} ({named}); they are included in the rejection shares"
                 for level, count, named in found if count]
     return tuple(out)
 
@@ -57,7 +58,7 @@ def invariance_power_report(result) -> Report:
              f"command fits them, each tested against the one before by {result.method.phrase} at alpha "
              f"{unit(result.alpha, 2)}.",
              "Converged (every model of the ladder): " + "; ".join(
-                 f"{d.converged} of {d.replications}" + (f" at {_sizes(labels, d.sizes)}"
+                 f"{count_text(d.converged)} of {count_text(d.replications)}" + (f" at {_sizes(labels, d.sizes)}"
                                                          if len(result.designs) > 1 else "")
                  for d in result.designs) + ".",
              _difference_words(result)]
@@ -136,7 +137,7 @@ def invariance_power_report(result) -> Report:
         cautions.insert(0, AFTER_MISFIT_CAUTION)
     title = (f"Invariance power by simulation: {_sizes(labels, result.designs[0].sizes)}"
              if len(result.designs) == 1 else f"Invariance power by simulation at {len(result.designs)} designs")
-    return Report(ResultKind.POWER_SIMULATION, f"{title}; {result.replications} replications (seed {result.seed})",
+    return Report(ResultKind.POWER_SIMULATION, f"{title}; {count_text(result.replications)} replications (seed {result.seed})",
                   _notice([], list(_inadmissible_cautions(result))), tuple(lines), tuple(tables),
                   cautions=tuple(cautions), warnings=_few_replications(result.replications))
 
@@ -146,6 +147,6 @@ def _few_replications(replications: int) -> tuple[str, ...]:
     share p from R replications is sqrt(p (1 - p) / R)."""
     if replications >= 100:
         return ()
-    return (f"Only {replications} replications: a power near .80 has a Monte Carlo standard error of about "
-            f"{math.sqrt(0.16 / replications):.2f}, and a false-alarm rate near .05 one of about "
-            f"{math.sqrt(0.0475 / replications):.2f}; give 500 or more (common practice) for shares to two decimals",)
+    return (f"Only {count_text(replications)} replications: a power near .80 has a Monte Carlo standard error of about "
+            f"{unit(math.sqrt(0.16 / replications), 2)}, and a false-alarm rate near .05 one of about "
+            f"{unit(math.sqrt(0.0475 / replications), 2)}; give 500 or more (common practice) for shares to two decimals",)

@@ -42,7 +42,7 @@ WORDS = {1: "one", 2: "two", 3: "three", 4: "four", 5: "five", 6: "six", 7: "sev
 
 
 def _count(n: int, noun: str, plural: str | None = None) -> str:
-    return f"{WORDS.get(n, str(n))} {noun if n == 1 else (plural or noun + 's')}"
+    return f"{WORDS.get(n, count_text(n))} {noun if n == 1 else (plural or noun + 's')}"
 
 
 def _p(p: float) -> str:
@@ -493,7 +493,7 @@ _LISTWISE_ASSUMPTION = _PAIRWISE_ASSUMPTION
 def _listwise_clause(dropped: int, read: int, kept: int) -> str:
     """The rows listwise deletion left out and kept, with what it assumes (Little & Rubin, 2002), inside the
     parentheses of the rows' phrase (new-user trial s16: the text said only how many were excluded)."""
-    return (f"; the {kept} complete {'row was' if kept == 1 else 'rows were'} analysed and {dropped} of {read} rows "
+    return (f"; the {count_text(kept)} complete {'row was' if kept == 1 else 'rows were'} analysed and {count_text(dropped)} of {count_text(read)} rows "
             f"with missing answers excluded listwise{_LISTWISE_ASSUMPTION}")
 
 
@@ -556,7 +556,7 @@ _NOTHING_MISSING = ("no answer on the model's variables was missing, so full-inf
 
 def _sample_phrase(result) -> str:
     data = result.data
-    text = f"N = {result.n_obs}" + _filtered(data)
+    text = f"N = {count_text(result.n_obs)}" + _filtered(data)
     full_information = result.method.full_information
     low = _lowest_coverage(result) if full_information else None
     if low is not None and low >= 1.0:  # asked for on complete rows: nothing was missing, nothing was assumed
@@ -569,7 +569,7 @@ def _sample_phrase(result) -> str:
     pairs = data.pair_range
     if _pairs_with_gaps(result):
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
-                 f"from the rows that answered both items, {pairs[0]} to {pairs[1]} rows per pair"
+                 f"from the rows that answered both items, {count_text(pairs[0])} to {count_text(pairs[1])} rows per pair"
                  f"{_pairs_by_group(result)}{_PAIRWISE_ASSUMPTION}")
     read = _read_as_missing(data)
     if read:
@@ -582,19 +582,19 @@ def _sample_phrase(result) -> str:
     dropped = data.rows_dropped - without_group - by_design
     helped = getattr(data, "helpers_only", 0)
     if helped:  # kept by the saturated-correlates likelihood (pipeline.inputs.with_helpers)
-        text += (f"; {helped} of these rows answered no item but an auxiliary variable and entered the likelihood "
+        text += (f"; {count_text(helped)} of these rows answered no item but an auxiliary variable and entered the likelihood "
                  f"through {'it' if len(result.method.helpers) == 1 else 'them'}")
     if dropped:
         if full_information or result.method.missing is MissingData.PAIRWISE:
             neither = " or auxiliary variable" if result.method.helpers else ""
-            text += (f"; {dropped} of {data.rows_read} rows answered no model variable{neither} and "
+            text += (f"; {count_text(dropped)} of {count_text(data.rows_read)} rows answered no model variable{neither} and "
                      f"{'was' if dropped == 1 else 'were'} left out")
         else:
             text += _listwise_clause(dropped, data.rows_read, data.rows_read - data.rows_dropped)
     if without_group:
         text += _without_group_clause(without_group, data.rows_read, result.group_column)
     if by_design:
-        text += (f"; {by_design} of {data.rows_read} row{'s' if data.rows_read != 1 else ''} "
+        text += (f"; {count_text(by_design)} of {count_text(data.rows_read)} row{'s' if data.rows_read != 1 else ''} "
                  f"{'was' if by_design == 1 else 'were'} left out by the sampling design (a weight of 0, or no answer "
                  f"and no weight, cluster or stratum)")
     return text
@@ -655,7 +655,7 @@ def _filtered(data, file: str = "the data file") -> str:
 
     empty = [f for f in data.row_filters if f.empty]
     verb = "was" if [f.empty for f in empty] == [1] else "were"
-    return (f" of the {data.rows_in_file} rows in {file}, those where {_list(filters_in_words(data.row_filters))}"
+    return (f" of the {count_text(data.rows_in_file)} rows in {file}, those where {_list(filters_in_words(data.row_filters))}"
             + (f"; {_list([f.empty_words() for f in empty])} {verb} left out" if empty else ""))
 
 
@@ -678,7 +678,7 @@ def range_restriction_sentence(filters, analysed, factor_items: dict | None = No
         mine = [factor for factor, on in (factor_items or {}).items() if item in on]
         return f"an item of {_names(mine)}; " if mine else ""
 
-    parts = [f"{_name(f.column)} ({of(f.column)}{f.dropped} row{'s' if f.dropped != 1 else ''} with an answer to it "
+    parts = [f"{_name(f.column)} ({of(f.column)}{count_text(f.dropped)} row{'s' if f.dropped != 1 else ''} with an answer to it "
              f"left out by {f.text!r})" for f in found]
     many = len(items) > 1
     loading = f"the loading{'s' if many else ''} of {_names(items)}"
@@ -711,7 +711,7 @@ def _without_group_clause(count: int, read: int, column: str | None) -> str:
     """'; 48 of 480 rows had no value of district, the group column, and were left out' (said inside the parentheses
     of the rows analysed, so without parentheses of its own)."""
     where = f" of {_name(column)}, the group column," if column else " in the group column"
-    return (f"; {count} of {read} row{'s' if read != 1 else ''} had no value{where} and "
+    return (f"; {count_text(count)} of {count_text(read)} row{'s' if read != 1 else ''} had no value{where} and "
             f"{'was' if count == 1 else 'were'} left out")
 def few_categories_sentence(results) -> str:
     """That items of at most FEW_CATEGORIES answer categories were analysed as continuous (the fit's note says so;
@@ -755,7 +755,7 @@ def _matrix_sentence(result, subject: str = "The model was") -> str:
         return ""
     text = (f"{subject} fitted to summary statistics, not to rows of answers: {analysed.value}"
             + ("" if NotGiven.MEANS in result.data.not_given else ", with the items' means")
-            + f", and N = {result.n_obs} as given in the file")
+            + f", and N = {count_text(result.n_obs)} as given in the file")
     if analysed is AnalysedMatrix.CORRELATION:
         text += ("; the correlations were analysed as if they were covariances, so the unstandardized estimates are in "
                  "standard-deviation units and their standard errors are only approximate (Cudeck, 1989), while the "
@@ -786,17 +786,18 @@ def _fit_sentence(result) -> str:
 
 
 def _uninformative_baseline_sentence(result) -> str:
-    """That the baseline model nearly fits, so CFI and TLI say little, when a caution of ``result`` says so
-    (assessment.admissibility.uninformative_baseline_problems); '' otherwise."""
+    """That the baseline model misfits little, so CFI and TLI are bounded by it and read beside RMSEA and SRMR, when
+    a caution of ``result`` says so (assessment.admissibility.uninformative_baseline_problems); '' otherwise."""
     from cfa_tool.assessment.fit_indices import UNINFORMATIVE_BASELINE_RMSEA as BOUND
 
     found = next((p for p in result.problems if p.kind is ProblemKind.UNINFORMATIVE_BASELINE), None)
     if found is None:
         return ""
     robust = "robust " if result.robust is not None else ""
-    return (f"The baseline (independence) model nearly fit the data itself (RMSEA = {unit(found.value, 3, BOUND)}, "
-            f"below the rule of thumb of {unit(BOUND)} of Kenny, Kaniskan & McCoach, 2015), so the {robust}CFI and "
-            f"TLI below say little about the model.")
+    return (f"The items correlated weakly: the baseline (independence) model had an RMSEA of "
+            f"{unit(found.value, 3, BOUND)}, below the rule of thumb of {unit(BOUND)} (Kenny, Kaniskan & McCoach, "
+            f"2015), so the {robust}CFI and TLI below, which are bounded by how badly that model fits, are read beside "
+            f"the RMSEA and SRMR.")
 
 
 def _method_items(result, factor: str) -> list[str]:
@@ -1054,7 +1055,7 @@ def methods_paragraph(result) -> str:
         return "The model did not converge, so no results are reported."
     d = result.description
     groups = (f" in {_count(len(result.groups), 'group')} defined by {_name(result.group_column)} ("
-              + "; ".join(f"{w}, n = {g.data.n_obs}" for w, g in zip(_group_names(result.groups), result.groups)) + ")"
+              + "; ".join(f"{w}, n = {count_text(g.data.n_obs)}" for w, g in zip(_group_names(result.groups), result.groups)) + ")"
               if result.multigroup else "")
     parts = []
     if d is not None:
@@ -1120,7 +1121,7 @@ def methods_paragraph(result) -> str:
     if small:  # the report's first caution, before the fit (new user s14)
         parts.append(small)
     baseline = _uninformative_baseline_sentence(result)
-    if baseline:  # before the CFI and TLI it says little of
+    if baseline:  # before the CFI and TLI it says how to read
         parts.append(baseline)
     parts.append(_fit_sentence(result))
     untested = [(h, lower) for h, lower in (d.higher_order if d is not None else ())
@@ -1281,9 +1282,9 @@ def scores_paragraph(result) -> str:
                         ", as the mean of the keyed items answered") + "; rows that answered fewer have none.")
     empty = {why: n for why, n in result.not_scored.items()}
     if empty:
-        parts.append(f"Of the {result.rows} rows in the data, {WORDS.get(sum(empty.values()), sum(empty.values()))} "
+        parts.append(f"Of the {count_text(result.rows)} rows in the data, {WORDS.get(sum(empty.values()), count_text(sum(empty.values())))} "
                      f"{'has' if sum(empty.values()) == 1 else 'have'} no score ("
-                     + "; ".join(f"{why.words}: {n}" for why, n in empty.items() if isinstance(why, NotScored)) + ").")
+                     + "; ".join(f"{why.words}: {count_text(n)}" for why, n in empty.items() if isinstance(why, NotScored)) + ").")
     for q in result.quality:
         where = f" in group {written_group(q.group, group_labels(fit))}" if grouped and q.group is not None else ""
         if hasattr(q, "methods"):
@@ -1364,20 +1365,20 @@ def _comparison_rows(comparison) -> str:
                "from the rows that answered both items" + (_PAIRWISE_ASSUMPTION if _pairs_with_gaps(comparison.results[0])
                                                             else ""))
     else:
-        how = (f"{dropped} of {n + dropped} rows with a missing answer on some model's variables were excluded listwise"
+        how = (f"{count_text(dropped)} of {count_text(n + dropped)} rows with a missing answer on some model's variables were excluded listwise"
                if dropped else "")
     without = getattr(comparison, "without_group", 0)
     read_rows = n + dropped + without
-    if how.startswith(f"{dropped} of {n + dropped} rows"):
-        how = how.replace(f"{dropped} of {n + dropped} rows", f"{dropped} of {read_rows} rows", 1)
-    left = (f"; {dropped} of {read_rows} rows answered none of some model's variables and were left out"
+    if how.startswith(f"{count_text(dropped)} of {count_text(n + dropped)} rows"):
+        how = how.replace(f"{count_text(dropped)} of {count_text(n + dropped)} rows", f"{count_text(dropped)} of {count_text(read_rows)} rows", 1)
+    left = (f"; {count_text(dropped)} of {count_text(read_rows)} rows answered none of some model's variables and were left out"
             if dropped and comparison.missing is not MissingData.LISTWISE else "")
     if without:
         left += _without_group_clause(without, read_rows, comparison.results[0].group_column)
     data = comparison.results[0].data
     read = _read_as_missing(data)
     kept = _kept_as_answers(data)
-    return (f"N = {n}" + _filtered(data) + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
+    return (f"N = {count_text(n)}" + _filtered(data) + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
             + (f"; {kept}" if kept else ""))
 
 
@@ -1457,19 +1458,26 @@ def comparison_paragraph(comparison) -> str:
     # advice to the reader of the tables (nesting.DifferenceTest.advice)
     parts += [f"{_capital(method.phrase)} was not computed: {said_in(reason, MANUSCRIPT)}." for method, reason in
               sorted(missed, key=lambda m: _PREFERRED.index(m[0]))]
+    by_name = dict(zip(names, results))
+
+    def undefined(restricted: str, general: str) -> bool:
+        return compared_cfi_not_defined(by_name[restricted]) or compared_cfi_not_defined(by_name[general])
+
     for (restricted, general), found in pairs.items():
         pair = f"{label[restricted]} against {label[general]}"
         if not shown[(restricted, general)]:  # why each was not is said above; the changes in fit stay descriptions
             t = sorted(found, key=lambda t: _PREFERRED.index(t.method))[0]
             changes = ("" if first.method.ordinal or math.isnan(t.delta_cfi) else
                        f"; {_change('CFI', t.delta_cfi)}, {_change('RMSEA', t.delta_rmsea)}")
+            if not first.method.ordinal and undefined(restricted, general):
+                changes = f"; \u0394CFI not defined, {_change('RMSEA', t.delta_rmsea)}"
             parts.append(f"For {pair} no difference statistic could be computed{changes}.")
             continue
         t = shown[(restricted, general)][0]
         which = f", {t.method}" if len(methods) > 1 else ""
-        sentence = (f"{pair}: {CHI}({t.df_difference}) = {t.chi_square_difference:.2f}, {_p(t.p_value)}{which}"
-                    + ("." if first.method.ordinal else
-                       f"; {_change('CFI', t.delta_cfi)}, {_change('RMSEA', t.delta_rmsea)}."))
+        cfi = "\u0394CFI not defined" if undefined(restricted, general) else _change('CFI', t.delta_cfi)
+        sentence = (f"{pair}: {CHI}({t.df_difference}) = {num(t.chi_square_difference, 2)}, {_p(t.p_value)}{which}"
+                    + ("." if first.method.ordinal else f"; {cfi}, {_change('RMSEA', t.delta_rmsea)}."))
         if t.boundary:
             sentence += (f" Because {label[restricted]} has {_list(list(t.boundary))}, values on the boundary of the "
                          f"parameter space of {label[general]}, the difference does not follow the usual chi-square "
@@ -1506,21 +1514,68 @@ _HELD_EQUAL = {"thresholds": "thresholds", "loadings": "loadings", "intercepts":
 _LEVEL_WORDS = {"thresholds": "threshold"}
 
 
-def _step_figures(step) -> str:
+def _step_figures(step, steps) -> str:
+    """A step's difference test and changes in fit against the step before it among ``steps``."""
     t = step.versus_previous
     if t is None or t.not_computed:
         return "no difference statistic"
     if step.untested:
         return "0 degrees of freedom"
-    text = f"{CHI}({t.df_difference}) = {t.chi_square_difference:.2f}, {_p(t.p_value)}"
+    text = f"{CHI}({t.df_difference}) = {num(t.chi_square_difference, 2)}, {_p(t.p_value)}"
     if not step.result.method.ordinal:  # the adjusted indices of ordinal fits are not compared between models
-        from cfa_tool.workflows.invariance import CFI_GUIDE, RMSEA_GUIDE, SRMR_GUIDE, SRMR_GUIDE_LATER
+        from cfa_tool.workflows.invariance import (CFI_GUIDE, RMSEA_GUIDE, SRMR_GUIDE, SRMR_GUIDE_LATER,
+                                                   delta_cfi_not_defined)
 
-        text += f", {_change('CFI', t.delta_cfi, CFI_GUIDE)}, {_change('RMSEA', t.delta_rmsea, RMSEA_GUIDE)}"
+        before = steps[steps.index(step) - 1].result
+        cfi = ("\u0394CFI not defined" if delta_cfi_not_defined(step.result, before)
+               else _change('CFI', t.delta_cfi, CFI_GUIDE))
+        text += f", {cfi}, {_change('RMSEA', t.delta_rmsea, RMSEA_GUIDE)}"
         if step.delta_srmr is not None:
             text += (f", \u0394SRMR = "
                      f"{signed(step.delta_srmr, beside=SRMR_GUIDE.get(step.level, SRMR_GUIDE_LATER))}")
     return text
+
+
+def cfi_not_defined_sentence(result) -> str:
+    """What an invariance ladder does where CFI has no value (workflows.invariance.cfi_not_defined: the baseline
+    model fits the data no worse than the model, so CFI is 0/0): the configural model is judged by RMSEA and SRMR,
+    and a step whose change in CFI is not defined by the other rules of its decision ('' when every CFI has a
+    value).  The one sentence of the paragraph and of the steps' table."""
+    from cfa_tool.workflows.invariance import cfi_not_defined, delta_cfi_not_defined
+    from cfa_tool.method import DecisionRule
+
+    steps = result.steps
+    models = [s.level for s in steps if cfi_not_defined(s.result)]
+    if not models:
+        return ""
+    ordinal = steps[0].result.method.ordinal
+    index = "robust CFI" if any(s.result.robust is not None for s in steps) and not ordinal else "CFI"
+    text = (f"{index} was not defined for the {_list(models)} model{'s' if len(models) > 1 else ''}: the baseline "
+            f"(independence) model fits these data no worse than {'they do' if len(models) > 1 else 'it does'} (both "
+            f"noncentralities at most 0, so CFI is 0/0), and CFI then says nothing about fit")
+    if steps[0].level in models:
+        text += "; the configural model was judged by RMSEA and SRMR alone"
+    later = [s.level for k, s in enumerate(steps) if k and s.versus_previous is not None and not s.untested
+             and delta_cfi_not_defined(s.result, steps[k - 1].result)]
+    if later and not ordinal:
+        rule = result.rule
+        by = ("by \u0394RMSEA and \u0394SRMR alone" if rule is DecisionRule.FIT_CHANGE else
+              "by the difference test, \u0394RMSEA and \u0394SRMR" if rule is DecisionRule.BOTH else
+              "by the difference test alone, as every step is under this rule")
+        text += (f"; \u0394CFI was not defined at the {_list(later)} step{'s' if len(later) > 1 else ''}, "
+                 f"{'which were' if len(later) > 1 else 'which was'} judged {by}")
+    return text + "."
+
+
+def compared_cfi_not_defined(result) -> bool:
+    """Whether a fit's CFI, or its robust CFI, has no value though it was computed: the baseline model fits the data
+    no worse than the model (both noncentralities at most 0, so CFI is 0/0; assessment.fit_indices.cfi_from), not a
+    robust index left uncomputed (a scaling factor not positive), which the reports mark otherwise.  A change in CFI
+    from or to such a fit is 'not defined' in every view of a comparison."""
+    fit, robust = result.fit, result.robust
+    if not result.converged or fit is None or result.method.ordinal:
+        return False
+    return missing(fit.cfi) or (robust is not None and not robust.not_computed and missing(robust.cfi_robust))
 
 
 def _change(index: str, value: float, guide: float | None = None) -> str:
@@ -1627,7 +1682,7 @@ def invariance_paragraph(result, levels) -> str:
 
     steps = result.steps
     first = steps[0].result
-    sizes = "; ".join(f"{w}, n = {g.data.n_obs}" for w, g in zip(_group_names(first.groups), first.groups))
+    sizes = "; ".join(f"{w}, n = {count_text(g.data.n_obs)}" for w, g in zip(_group_names(first.groups), first.groups))
     held = {level: classes for level, classes, *_ in levels}
     ladder = []
     for step in steps:
@@ -1668,6 +1723,9 @@ def invariance_paragraph(result, levels) -> str:
                  f"{guides_text(CONFIGURAL_INDICES, signs=True)}; Hu & Bentler, 1999); each later model by "
                  f"{rule}" + (f", the difference test being {_list([m.phrase for m in methods])}" if methods else "")
                  + ".")
+    undefined = cfi_not_defined_sentence(result)
+    if undefined:
+        parts.append(undefined)
     if result.freed:  # the search's guide, as the table of freed parameters and the JSON name it
         # with rows with gaps, normal-theory score tests rest on the expected information: the assumption the report's
         # note and the JSON name is the paper's too (review s13)
@@ -1690,13 +1748,13 @@ def invariance_paragraph(result, levels) -> str:
                           for f, level in earlier])
             extra = f" and {declared}" if step.declared else ""
             parts.append(f"{name} invariance, partial with {kept} still free{extra}, {_held(step, basis)} "
-                         f"({_step_figures(step)}).")
+                         f"({_step_figures(step, steps)}).")
         elif step.declared and not step.partial:
             parts.append(f"{name} invariance, partial with {declared}, "
-                         f"{_held(step, basis)} ({_step_figures(step)}).")
+                         f"{_held(step, basis)} ({_step_figures(step, steps)}).")
         elif step.partial:
             full = step.full_test
-            with_all = (f"{CHI}({full.df_difference}) = {full.chi_square_difference:.2f}, {_p(full.p_value)}"
+            with_all = (f"{CHI}({full.df_difference}) = {num(full.chi_square_difference, 2)}, {_p(full.p_value)}"
                         if full is not None and not full.not_computed else "no difference statistic")
             if step.full_result is not None and step.full_result.converged and not step.full_result.admissible:
                 found = _list([_phrase(p, step.full_result) for p in step.full_result.problems if p.kind.inadmissible])
@@ -1711,9 +1769,9 @@ def invariance_paragraph(result, levels) -> str:
                 others += " but those freed at earlier steps"
             parts.append(f"{name} invariance did not hold {others} ({with_all}); after freeing {freed}, "
                          f"chosen one at a time by score tests (a data-driven search that capitalises on chance and "
-                         f"needs confirmation in new data), it {state} as partial invariance ({_step_figures(step)}){after}.")
+                         f"needs confirmation in new data), it {state} as partial invariance ({_step_figures(step, steps)}){after}.")
         else:
-            parts.append(f"{name} invariance {_held(step, basis)} ({_step_figures(step)}).")
+            parts.append(f"{name} invariance {_held(step, basis)} ({_step_figures(step, steps)}).")
     # a step that held after an inadmissible or unconverged one says so above
     conditional = [s.level for k, s in enumerate(steps) if s.conditional and not (s.holds and _basis(steps, k))]
     if conditional:
@@ -1758,17 +1816,18 @@ def _sample_rows_phrase(rows, data=None, file: str = "") -> str:
     ``file`` they kept (:func:`_filtered`).  Said in parentheses, as fit's (:func:`_sample_phrase`), so without
     parentheses of its own: its citations after a comma."""
     filters = data is not None and data.row_filters
-    text = f"N = {rows.analysed}{_filtered(data, file)}" if filters else f"N = {rows.analysed} of {rows.read} rows read"
+    text = (f"N = {count_text(rows.analysed)}{_filtered(data, file)}" if filters
+            else f"N = {count_text(rows.analysed)} of {count_text(rows.read)} rows read")
     if rows.missing is MissingData.FULL_INFORMATION and rows.with_gaps:
-        text += (f"; {rows.with_gaps} with missing answers, whose every answer was used by full-information maximum "
+        text += (f"; {count_text(rows.with_gaps)} with missing answers, whose every answer was used by full-information maximum "
                  f"likelihood{_FULL_INFORMATION_ASSUMPTION}")
     elif rows.missing is MissingData.PAIRWISE and rows.with_gaps:
-        text += (f"; {rows.with_gaps} with missing answers, used pairwise: each item's thresholds from the rows that "
+        text += (f"; {count_text(rows.with_gaps)} with missing answers, used pairwise: each item's thresholds from the rows that "
                  f"answered it and each correlation from the rows that answered both items{_PAIRWISE_ASSUMPTION}")
     if rows.left_out and rows.missing is MissingData.LISTWISE:
-        text += f"; {rows.left_out} with missing answers excluded listwise{_LISTWISE_ASSUMPTION}"
+        text += f"; {count_text(rows.left_out)} with missing answers excluded listwise{_LISTWISE_ASSUMPTION}"
     elif rows.left_out:
-        text += f"; {rows.left_out} answering no model variable left out"
+        text += f"; {count_text(rows.left_out)} answering no model variable left out"
     if not rows.with_gaps and not rows.left_out:
         text += ", none with missing answers"
     return text
@@ -1884,8 +1943,8 @@ def replication_paragraph(replications) -> str:
     by = estimator if other == estimator else f"{estimator} (in the validation sample by {other})"
     if first.split is not None:
         rows = first.split
-        parts = [f"The replication of {model} was examined in two random halves, {rows.drawn_phrase}, of {rows.split} of "
-                 f"the {rows.in_file} rows of one data file{rows.kept_words()}: each half served once as the calibration sample, where the model was "
+        parts = [f"The replication of {model} was examined in two random halves, {rows.drawn_phrase}, of {count_text(rows.split)} of "
+                 f"the {count_text(rows.in_file)} rows of one data file{rows.kept_words()}: each half served once as the calibration sample, where the model was "
                  f"estimated by {by}, and once as the validation sample, where it was refitted (double "
                  f"cross-validation; Cudeck & Browne, 1983), and whether one solution holds in both halves was "
                  f"tested once, with the same two halves either way: half A ({_sample_rows_phrase(first.rows[0])}) "

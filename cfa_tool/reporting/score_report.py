@@ -7,7 +7,7 @@ from dataclasses import replace
 
 import numpy as np
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import count_text, user_number
 from cfa_tool.reporting import tables as T
 from cfa_tool.note_parts import WORDS, Command, Note, Text, joined, said
 from cfa_tool.reporting.remedies import Remedy
@@ -72,7 +72,7 @@ def header_lines(result) -> list[str]:
     methods = ", ".join(METHOD_LABELS[m] for m in result.methods)
     first = f"{result.id_name}, then " if result.id_name else ""
     scored = [f"Scored data: {result.scored_source} (with the parameters of the fit above)"] if result.scored_source else []
-    return [f"Model file: {fit.model_source}", f"Data: {fit.data.source}; the model was fitted to {fit.n_obs} rows",
+    return [f"Model file: {fit.model_source}", f"Data: {fit.data.source}; the model was fitted to {count_text(fit.n_obs)} rows",
             f"Estimation of the fit: {fit.estimator}", *scored,
             f"Scores ({methods}) of {rows_scored(result)}, one line per row of the data in the file's order"
             + _empty_lines(result) + f"; columns: {first}one per factor" + ("" if not result.standard_errors else
@@ -88,18 +88,18 @@ def header_lines(result) -> list[str]:
 def rows_scored(result) -> str:
     """'250 of the 480 rows' when some lines of the scores file hold no score, else '480 rows'."""
     if result.rows_scored == result.rows:
-        return f"{result.rows} rows"
-    return f"{result.rows_scored} of the {result.rows} rows"
+        return f"{count_text(result.rows)} rows"
+    return f"{count_text(result.rows_scored)} of the {count_text(result.rows)} rows"
 
 
 def _empty_lines(result) -> str:
     """What the lines without any score are, with their count by reason (the words of the why_not_scored column)."""
     if not result.not_scored:
         return ""
-    counts = ", ".join(f"{why.value} {n}" for why, n in result.not_scored.items())
+    counts = ", ".join(f"{why.value} {count_text(n)}" for why, n in result.not_scored.items())
     empty = result.rows - result.rows_scored
     keep = "keeps its line" if empty == 1 else "keep their line"
-    return (f" (the {empty} without any score {keep} with empty cells, the column "
+    return (f" (the {count_text(empty)} without any score {keep} with empty cells, the column "
             f"{WHY_NOT_SCORED_COLUMN} saying why: {counts})")
 
 

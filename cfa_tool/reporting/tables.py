@@ -7,7 +7,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import count_text, user_number
 from cfa_tool.assessment.admissibility import ProblemKind, solution_first
 from cfa_tool.assessment.identification import JUST_IDENTIFIED
 from cfa_tool.assessment.fit_indices import TLI_NOT_CUT
@@ -263,8 +263,9 @@ def baseline_uninformative(result) -> bool:
     return any(p.kind is ProblemKind.UNINFORMATIVE_BASELINE for p in getattr(result, "problems", ()))
 
 
-#: the guide cell of CFI and TLI when the baseline model nearly fits (:func:`baseline_uninformative`)
-SAYS_LITTLE = "says little here: see the caution first"
+#: what the guide cell of CFI and TLI adds when the baseline model misfits little (:func:`baseline_uninformative`):
+#: the guide stays, and the caution says how the two indices are bounded
+BASELINE_BOUNDED = "bounded by the baseline: see the caution"
 
 
 def fit_rows(result) -> list[FitRow]:
@@ -276,7 +277,7 @@ def fit_rows(result) -> list[FitRow]:
     uninformative = baseline_uninformative(result)
 
     def incremental_guide(index: str) -> str:
-        return SAYS_LITTLE if uninformative else guide_text(index)
+        return f"{guide_text(index)}; {BASELINE_BOUNDED}" if uninformative else guide_text(index)
 
     if f.df == 0:  # nothing to test: CFI, TLI and RMSEA are not defined
         plain = [_row("Chi-square test", "0 df: no test", JUST_IDENTIFIED, chi)]
@@ -782,9 +783,11 @@ def matrix_key(table: ReportTable) -> tuple[ReportTable, tuple[tuple[str, str], 
 
 
 def group_table(result) -> ReportTable:
-    rows = [[str(g.label), str(g.data.n_obs), num(g.chi_square), unit(g.srmr)] for g in result.groups]
-    return _table("groups", f"Groups ({result.group_column})",
-                  [("Group", "l"), ("N", "r"), ("Contribution to chi-square", "r"), ("SRMR", "r")], rows)
+    rows = [[str(g.label), count_text(g.data.n_obs), num(g.chi_square), unit(g.srmr)] for g in result.groups]
+    columns = [("Group", "l"), ("N", "r"), ("Contribution to chi-square", "r"), ("SRMR", "r")]
+    values = [[str(g.label), g.data.n_obs, g.chi_square, g.srmr] for g in result.groups]  # N as a number in CSV
+    return _table("groups", f"Groups ({result.group_column})", columns, rows,
+                  values=([c for c, _ in columns], values))
 
 
 def missing_table(result) -> ReportTable | None:
@@ -796,7 +799,7 @@ def missing_table(result) -> ReportTable | None:
             return "(none: complete rows)"
         return ", ".join(items[:6]) + (f" and {len(items) - 6} more" if len(items) > 6 else "")
 
-    rows = [[named(p["not_answered"]), str(p["rows"])] for p in summary["patterns"][:8]]
+    rows = [[named(p["not_answered"]), count_text(p["rows"])] for p in summary["patterns"][:8]]
     low = sorted(summary["coverage"].items(), key=lambda kv: kv[1])[:5]
     note = f"{summary['n_patterns']} distinct patterns over all rows. Lowest coverage: " + ", ".join(f"{name} {100 * share:.1f}%" for name, share in low)
     weights = summary.get("counted_by_weights")
@@ -808,7 +811,9 @@ def missing_table(result) -> ReportTable | None:
     more = summary["n_patterns"] > len(rows)
     return _table("missing", f"Missing answers: the {len(rows)} most common of {summary['n_patterns']} patterns"
                   if more else "Missing answers",
-                  [("Items not answered", "l"), ("Rows, weighted" if weights else "Rows", "r")], rows, note)
+                  [("Items not answered", "l"), ("Rows, weighted" if weights else "Rows", "r")], rows, note,
+                  values=(["Items not answered", "Rows, weighted" if weights else "Rows"],
+                          [[row[0], p["rows"]] for row, p in zip(rows, summary["patterns"])]))
 
 
 def _completely_at_random_note(result) -> Text:
@@ -1265,7 +1270,7 @@ def item_table(result) -> ReportTable:
     no_means = any(g.value == "means" for g in result.data.not_given)
     no_sds = any(g.value == "standard_deviations" for g in result.data.not_given)
     for k, (name, m, s) in enumerate(zip(d.variables, d.means, d.sds)):
-        row = [name] + ([str(d.answered[k])] if shape else []) + ["not given" if no_means else num(m, 2),
+        row = [name] + ([count_text(d.answered[k])] if shape else []) + ["not given" if no_means else num(m, 2),
                                                                   "not given" if no_sds else num(s * stretch, 2)]
         numbers = [name] + ([d.answered[k]] if shape else []) + [None if no_means else m,
                                                                  None if no_sds else s * stretch]
@@ -1314,12 +1319,12 @@ def moments_source(result, group: int = 0) -> str:
     n = result.groups[group].data.n_obs
     weighted = f", weighted by {weights}" if weights else ""
     if _estimated_for_gaps(result):
-        return (f"estimates for all {n} rows analysed by full-information ML (the saturated model, by EM; Dempster, "
+        return (f"estimates for all {count_text(n)} rows analysed by full-information ML (the saturated model, by EM; Dempster, "
                 f"Laird & Rubin 1977){weighted}, which assume answers missing at random; not the figures of the rows "
                 f"that answered every item")
     if getattr(result.data, "analysed", None) is not None:  # summary statistics: no rows
-        return f"the summary statistics given (N = {n})"
-    return f"the {n} rows analysed{weighted}"
+        return f"the summary statistics given (N = {count_text(n)})"
+    return f"the {count_text(n)} rows analysed{weighted}"
 
 
 def _weights_column(result) -> str | None:
@@ -1578,14 +1583,15 @@ def rows_phrase(data, design=None) -> str:
     """For the data line: the rows analysed, of the rows read or of those the row filters kept (then with the
     filters and the rows in the file), and the rows per pair of items when pairs used different rows; under
     frequency weights (``design``) the rows analysed are counted by their weights (the N of the fit), and said so."""
-    kept = f"{data.rows_read} {selection_phrase(data)}" if data.row_filters else f"{data.rows_read} read"
+    kept = (f"{count_text(data.rows_read)} {selection_phrase(data)}" if data.row_filters
+            else f"{count_text(data.rows_read)} read")
     if design is not None and design.columns.weights is not None and design.columns.kind is WeightKind.FREQUENCY:
-        return (f"{data.n_obs:,.10g} rows analysed, counted by their frequency weights ({design.columns.weights}), "
+        return (f"{count_text(data.n_obs)} rows analysed, counted by their frequency weights ({design.columns.weights}), "
                 f"of {kept}{pair_rows_phrase(data)}")
     analysed = getattr(data, "analysed", None)
     if analysed is not None:  # summary statistics: no rows were read
-        return f"summary statistics ({analysed.value}), N = {data.n_obs} as given in the file"
-    return f"{data.n_obs} rows analysed of {kept}{pair_rows_phrase(data)}"
+        return f"summary statistics ({analysed.value}), N = {count_text(data.n_obs)} as given in the file"
+    return f"{count_text(data.n_obs)} rows analysed of {kept}{pair_rows_phrase(data)}"
 
 
 def selection_phrase(data) -> str:
@@ -1594,7 +1600,7 @@ def selection_phrase(data) -> str:
         return ""
     from cfa_tool.data.filters import kept_by_words
 
-    return f"kept by {kept_by_words(data.row_filters)} ({data.rows_in_file} rows in the file)"
+    return f"kept by {kept_by_words(data.row_filters)} ({count_text(data.rows_in_file)} rows in the file)"
 
 
 def pair_rows_phrase(data) -> str:
@@ -1603,7 +1609,7 @@ def pair_rows_phrase(data) -> str:
     pairs = data.pair_range
     if pairs is None or pairs[0] == data.n_obs:
         return ""
-    return f" ({pairs[0]} to {pairs[1]} rows per pair of items: each pair from the rows that answered both)"
+    return f" ({count_text(pairs[0])} to {count_text(pairs[1])} rows per pair of items: each pair from the rows that answered both)"
 
 
 def correlation_table(result, group: int = 0) -> ReportTable | None:
@@ -1617,8 +1623,8 @@ def correlation_table(result, group: int = 0) -> ReportTable | None:
     r = S / np.outer(sd, sd)
     where = _in_group(result, g.label)
     pairs = g.data.pair_range
-    rows_used = (f"N = {pairs[0]} to {pairs[1]} per pair" if pairs is not None and pairs[0] < pairs[1]
-                 else f"N = {g.data.n_obs}" if pairs is None else f"N = {pairs[0]}")
+    rows_used = (f"N = {count_text(pairs[0])} to {count_text(pairs[1])} per pair" if pairs is not None and pairs[0] < pairs[1]
+                 else f"N = {count_text(g.data.n_obs)}" if pairs is None else f"N = {count_text(pairs[0])}")
     # each sentence only when it applies to this fit (one note for both would tell of ordinal items under a
     # continuous fit with gaps)
     said = [text for applies, text in (

@@ -19,7 +19,8 @@ from cfa_tool.note_parts import Command, Note, TableReference, Text, joined
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANGE_WHY, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
-from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, comparison_paragraph, design_sentence,
+from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, cfi_not_defined_sentence, compared_cfi_not_defined,
+                                          comparison_paragraph, design_sentence,
                                           mcar_score_tests, reversed_across_groups, reversed_loadings,
                                           invariance_paragraph, replication_paragraph)
 from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text, missing, num, p_phrase, p_value, short,
@@ -82,20 +83,26 @@ def _caution_lines(named_results, poor_fit: bool = True, small_groups: bool = Tr
     model's fit by its own guides; groups smaller than their model unless ``small_groups`` is False: an invariance
     result says them once among its own cautions), each once, named by its model; a keying of reverse-scored items
     that the loadings contradict, or a factor pointing against its items (assessment.reliability.keying_problems),
-    and a robust test whose scaling factor is not positive (its figures are dashes in the tables).  ``only``: these
-    kinds alone (an invariance ladder's later steps: what their own fits could not compute)."""
+    and a robust test whose scaling factor is not positive (its figures are dashes in the tables); last, once and
+    unnamed, the caution on a baseline model that misfits little, which bounds the CFI and TLI of every model of
+    the same rows alike (assessment.admissibility.uninformative_baseline_problems: a fit says it, and a comparison
+    or a ladder printed CFI and TLI without it).  ``only``: these kinds alone (an invariance ladder's later steps:
+    what their own fits could not compute)."""
     kinds = only if only is not None else (
         ProblemKind.WEAK_METHOD_FACTOR, ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE, ProblemKind.SMALL_SAMPLE,
         ProblemKind.KEYING_AGAINST_LOADINGS, ProblemKind.FACTOR_POINTS_AGAINST_ITEMS,
         ProblemKind.SCALED_TEST_NOT_COMPUTED) + (
         (ProblemKind.SMALL_GROUP,) if small_groups else ()) + ((ProblemKind.POOR_FIT,) if poor_fit else ())
     lines: list[str] = []
+    baseline: list[str] = []
     for name, r in named_results:
         for p in getattr(r, "problems", ()) if r.converged else ():
             line = f"{name}: " + (f"group {p.group}: " if p.group is not None else "") + p.line()
             if p.kind in kinds and line not in lines:
                 lines.append(line)
-    return lines
+            elif only is None and p.kind is ProblemKind.UNINFORMATIVE_BASELINE and not baseline:
+                baseline.append(p.line())
+    return lines + baseline
 
 
 def _design_caution_lines(named_results) -> list[str]:
@@ -358,18 +365,18 @@ def comparison_report(comparison) -> Report:
     pairwise = comparison.missing is MissingData.PAIRWISE
     if full_information or pairwise:
         dropped, without = comparison.rows_dropped, comparison.without_group
-        left = (f"{dropped} {'row' if dropped == 1 else 'rows'} answering none of some model's variables left out" if
+        left = (f"{count_text(dropped)} {'row' if dropped == 1 else 'rows'} answering none of some model's variables left out" if
                 dropped else "no row left out for missing answers")
         if without:
-            left += f"; {without} {'row' if without == 1 else 'rows'} without a value in the group column left out"
+            left += f"; {count_text(without)} {'row' if without == 1 else 'rows'} without a value in the group column left out"
         how = ("every answer used: each correlation from the rows that answered both items" if pairwise else
                "by full-information ML, rows with missing answers included")
-        rows_line = f"All models fitted to the same {comparison.n_obs} rows, {how} ({left})."
+        rows_line = f"All models fitted to the same {count_text(comparison.n_obs)} rows, {how} ({left})."
     elif getattr(comparison.results[0].data, "analysed", None) is not None:  # summary statistics: no rows
         rows_line = (f"All models fitted to the same summary statistics "
-                     f"({comparison.results[0].data.analysed.value}), N = {comparison.n_obs} as given in the file.")
+                     f"({comparison.results[0].data.analysed.value}), N = {count_text(comparison.n_obs)} as given in the file.")
     else:
-        rows_line = (f"All models fitted to the same {comparison.n_obs} rows ({comparison.rows_dropped} rows with a missing "
+        rows_line = (f"All models fitted to the same {count_text(comparison.n_obs)} rows ({count_text(comparison.rows_dropped)} rows with a missing "
                      f"answer on any model's variables left out).")
     lines = (rows_line, *_comparison_group_lines(comparison), *_design_lines(comparison.results[0]))
     # one column per model, one row per index: readable in 80 columns for the usual two to four models
@@ -390,6 +397,7 @@ def comparison_report(comparison) -> Report:
     tables = [_table("model_fit", "Fit of each model", [("", "l")] + [(name, "r") for name in comparison.names], rows,
                      dashes, flagged=(0,) if bad else (),
                      values=(value_columns, [[name, *c[1]] for name, c in zip(comparison.names, cells)]))]
+    by_name = dict(zip(comparison.names, comparison.results))
     pairs: dict[tuple[str, str], list] = {}
     for t in comparison.tests:
         pairs.setdefault((t.restricted, t.general), []).append(t)
@@ -399,15 +407,18 @@ def comparison_report(comparison) -> Report:
         key = f"difference_tests_{k + 1}"
         rows, values = [], []
         boundary = found[0].boundary
+        # a CFI of 0/0 (the baseline model fits no worse): the change from or to it is not defined, and said so
+        undefined = [name for name in (restricted, general) if compared_cfi_not_defined(by_name[name])]
+        cfi_change = (lambda t: "not defined") if undefined else (lambda t: _change(t.delta_cfi, dashes))
         for t in found:
             if t.not_computed:  # the changes in fit indices describe the two fits, with or without a statistic
-                rows.append([t.method, f"not computed ({t.df_difference})", "", _change(t.delta_cfi, dashes),
+                rows.append([t.method, f"not computed ({t.df_difference})", "", cfi_change(t),
                              _change(t.delta_rmsea, dashes)])
                 notes.append(f"{t.method}: not computed: " + t.not_computed + (f"; {t.advice}" if t.advice else "")
                              + ".")
             else:
-                rows.append([t.method, f"{t.chi_square_difference:.3f} ({t.df_difference})",
-                             p_value(t.p_value) + (" *" if boundary else ""), _change(t.delta_cfi, dashes),
+                rows.append([t.method, f"{num(t.chi_square_difference, 3)} ({t.df_difference})",
+                             p_value(t.p_value) + (" *" if boundary else ""), cfi_change(t),
                              _change(t.delta_rmsea, dashes)])
                 if t.scaled_by:  # the factors and correction a scaled difference took, as computed (nesting._scaled_by)
                     pair = f" ({restricted} against {general})" if len(pairs) > 1 else ""
@@ -433,7 +444,13 @@ def comparison_report(comparison) -> Report:
             values = [row[:4] + row[6:] for row in values]
         tables.append(_table(key, f"{restricted} (restricted) against {general}: difference tests",
                              columns, rows, joined((boundary_note(found, explained, criteria, ordinal) if boundary
-                                                    else None, _changes_note(rows, dashes, ordinal))) or None,
+                                                    else None, _changes_note(rows, dashes, ordinal),
+                                                    None if ordinal or not undefined else
+                                                    f"\u0394CFI not defined: CFI has no value for {word_list(undefined)} "
+                                                    f"(the baseline model fits these data no worse than "
+                                                    f"{'they do' if len(undefined) > 1 else 'it does'}: both "
+                                                    f"noncentralities at most 0, so CFI is 0/0); read the difference "
+                                                    f"test and \u0394RMSEA.")) or None,
                              values=(value_names, values)))
         explained = key if boundary and explained is None else explained
     if any(t.method is DifferenceMethod.SATORRA_BENTLER_2010 and not t.not_computed for t in comparison.tests):
@@ -473,16 +490,18 @@ def _level_fit_cells(result, adjusted: bool) -> tuple[list[str], list]:
             [fit.chi_square, fit.df, fit.p_value, fit.cfi, fit.rmsea, fit.srmr])
 
 
-def _step_cells(t, delta_srmr, level: str, dashes: bool = False) -> tuple[list[str], list]:
+def _step_cells(t, delta_srmr, level: str, dashes: bool = False, cfi_undefined: bool = False) -> tuple[list[str], list]:
     """A step's difference test and changes in fit, each change printed on the side of its guide it lies on;
-    ``dashes``: a change missing because a robust index was not computed is a dash (the table's note says so)."""
+    ``dashes``: a change missing because a robust index was not computed is a dash (the table's note says so);
+    ``cfi_undefined``: the change in CFI has no value, a CFI being 0/0 (workflows.invariance.delta_cfi_not_defined),
+    'not defined' (the table's note says how the step was judged)."""
     from cfa_tool.workflows.invariance import CFI_GUIDE, RMSEA_GUIDE, SRMR_GUIDE, SRMR_GUIDE_LATER
 
     def change(value, guide) -> str:
         return T.NOT_COMPUTED if dashes and missing(value) else signed(value, beside=guide)
 
-    return ([f"{t.chi_square_difference:.2f} ({t.df_difference})", p_value(t.p_value),
-             change(t.delta_cfi, CFI_GUIDE), change(t.delta_rmsea, RMSEA_GUIDE),
+    return ([f"{num(t.chi_square_difference, 2)} ({t.df_difference})", p_value(t.p_value),
+             "not defined" if cfi_undefined else change(t.delta_cfi, CFI_GUIDE), change(t.delta_rmsea, RMSEA_GUIDE),
              "" if delta_srmr is None else signed(delta_srmr, beside=SRMR_GUIDE.get(level, SRMR_GUIDE_LATER))],
             [t.chi_square_difference, t.df_difference, t.p_value, t.delta_cfi, t.delta_rmsea, delta_srmr])
 
@@ -565,7 +584,7 @@ def _comparison_group_lines(comparison) -> tuple[str, ...]:
         held.append(f"model {k} ({name}): {words}" + (f" (with {len(d.noninvariant)} exception"
                                           f"{'s' if len(d.noninvariant) > 1 else ''})" if d is not None and
                                           d.invariant and d.noninvariant else ""))
-    return (f"Groups defined by {first.group_column}: {', '.join(f'{g.label} ({g.data.n_obs} rows)' for g in first.groups)}.",
+    return (f"Groups defined by {first.group_column}: {', '.join(f'{g.label} ({count_text(g.data.n_obs)} rows)' for g in first.groups)}.",
             f"Held equal across groups: {'; '.join(held)}.")
 
 
@@ -683,7 +702,7 @@ def _reversed_in_group_lines(configural, groups) -> list[str]:
 
 
 def invariance_report(result) -> Report:
-    from cfa_tool.workflows.invariance import STOP_HOLDS, unsound_basis  # the ladder's own, loaded with it
+    from cfa_tool.workflows.invariance import STOP_HOLDS, delta_cfi_not_defined, unsound_basis  # loaded with the ladder
 
     # two narrow tables (each level's own fit; each step against the one before) read in 80 columns;
     # a partially invariant step shows first with every equality, then with the freed ones
@@ -707,7 +726,8 @@ def invariance_report(result) -> Report:
             if step.full_test is not None:
                 before = result.steps[result.steps.index(step) - 1].result
                 srmr = step.full_result.fit.srmr - before.fit.srmr
-                cells, values = _step_cells(step.full_test, srmr, step.level, dashes is not None)
+                cells, values = _step_cells(step.full_test, srmr, step.level, dashes is not None,
+                                            delta_cfi_not_defined(step.full_result, before))
                 steps.append([f"{step.level} ({first_fit})", *cells, _verdict(step.full_holds, step.full_result)])
                 step_values.append([f"{step.level} ({first_fit})", *values, _verdict(step.full_holds, step.full_result)])
         cells, values = _level_fit_cells(step.result, adjusted)
@@ -721,7 +741,8 @@ def invariance_report(result) -> Report:
                    else _verdict(step.holds, step.result)) \
             + (" *" if step.conditional else "")
         if step.versus_previous is not None:
-            cells, values = _step_cells(step.versus_previous, step.delta_srmr, step.level, dashes is not None)
+            cells, values = _step_cells(step.versus_previous, step.delta_srmr, step.level, dashes is not None,
+                                        delta_cfi_not_defined(step.result, result.steps[k - 1].result))
             steps.append([label, *cells, verdict])
             step_values.append([label, *values, verdict])
         else:
@@ -756,6 +777,7 @@ def invariance_report(result) -> Report:
                       f"{s.unjudged}.", True) for s in result.steps if s.unjudged and s.result.admissible),
                    ("* tested after a step that did not hold: the comparison is between models already rejected.",
                     any(step.conditional for step in result.steps)),
+                   (cfi_not_defined_sentence(result), True),
                    (Note((f"{T.NOT_COMPUTED} in \u0394CFI or \u0394RMSEA: a robust index of a level was not computed "
                           f"(see the note under ", TableReference("levels"), ").")),
                     any(T.NOT_COMPUTED in row[3:5] for row in steps) and not ordinal)) if shown) or None,
@@ -823,8 +845,8 @@ def invariance_report(result) -> Report:
     lines = ("Reference group (factor means fixed at zero): " + (
                  written_group(result.groups[0], labels) if result.reference_rule is None else
                  reference_words(result.groups[0], result.reference_rule, labels)),
-             f"{first.n_obs} rows analysed "
-             f"({', '.join(f'{written_group(g.label, labels)}: {g.data.n_obs}' for g in first.groups)}); "
+             f"{count_text(first.n_obs)} rows analysed "
+             f"({', '.join(f'{written_group(g.label, labels)}: {count_text(g.data.n_obs)}' for g in first.groups)}); "
              f"estimation: {first.estimator}",
              *_design_lines(first),
              f"Each step after the configural one is judged by "
@@ -869,13 +891,13 @@ def replication_report(replications) -> Report:
         cautions += _reversed_loading_lines(rep)
         cal = _replication_figures(rep.calibration_result, rep.adjusted)
         total = rep.calibration_result.n_obs + rep.loose.n_obs
-        rows = [[f"Calibration fit (N = {rep.calibration_result.n_obs})", f"{cal[0]:.3f}", str(cal[1]),
+        rows = [[f"Calibration fit (N = {count_text(rep.calibration_result.n_obs)})", f"{cal[0]:.3f}", str(cal[1]),
                  p_value(cal[2]), unit(cal[3]), unit(cal[4])]]
         values = [["Calibration fit", rep.calibration_result.n_obs, *cal]]
         flagged = [0] if not rep.calibration_result.admissible else []
         if rep.loose.fit is not None and rep.loose.converged:
             f = _replication_figures(rep.loose, rep.adjusted)
-            rows.append([f"Loose: same model refitted (N = {rep.loose.n_obs})", f"{f[0]:.3f}", str(f[1]),
+            rows.append([f"Loose: same model refitted (N = {count_text(rep.loose.n_obs)})", f"{f[0]:.3f}", str(f[1]),
                          p_value(f[2]), unit(f[3]), unit(f[4])])
             values.append(["Loose: same model refitted", rep.loose.n_obs, *f])
             if not rep.loose.admissible:
@@ -972,7 +994,8 @@ def _rows_table(rep) -> ReportTable:
         if assumption:
             assumed.append(f"{name}, answers {assumption}")
         in_file = sample.in_file if sample.in_file is not None else sample.read
-        rows.append([name] + [str(in_file)] * filtered + [str(sample.read), str(sample.analysed), str(gaps), how])
+        rows.append([name] + [count_text(in_file)] * filtered + [count_text(sample.read), count_text(sample.analysed),
+                                                              count_text(gaps), how])
         values.append([name] + [in_file] * filtered + [sample.read, sample.analysed, gaps, how])
     columns = ([("Sample", "l")] + [("Rows in the file", "r"), ("Kept by the row filter", "r")] * filtered
                + [("Rows read", "r")] * (not filtered)
@@ -1026,12 +1049,12 @@ def _split_sentence(rows) -> str:
     drawn = rows.how_drawn()  # row by row, or cluster by cluster within strata (workflows.replication.SplitRows)
     clusters = f" {drawn[0].upper()}{drawn[1:]}."
     if rows.split >= rows.in_file:
-        return (f"The {rows.split} rows {f'{rows.kept_words()[1:]}' if rows.filters else 'of the file'} were split at "
+        return (f"The {count_text(rows.split)} rows {f'{rows.kept_words()[1:]}' if rows.filters else 'of the file'} were split at "
                 f"random into two halves.{clusters}")
     why = ("they miss some answers, and the halves hold complete rows only" if rows.complete_only else
            "they answer none of the model's items")
-    return (f"{rows.split} of the {rows.in_file} rows{rows.kept_words()} were split at random into two halves; the other "
-            f"{rows.in_file - rows.split} were left out before the split ({why}).{clusters}")
+    return (f"{count_text(rows.split)} of the {count_text(rows.in_file)} rows{rows.kept_words()} were split at random into two halves; the other "
+            f"{count_text(rows.in_file - rows.split)} were left out before the split ({why}).{clusters}")
 
 
 def _left_out(result) -> str:
@@ -1042,11 +1065,11 @@ def _left_out(result) -> str:
         return ""
     if result.method.missing is MissingData.FULL_INFORMATION:
         return (" with their gaps, each refitted by full-information ML"
-                + (f"; {d.rows_dropped} of {d.rows_read} rows answered none of the items and were left out"
+                + (f"; {count_text(d.rows_dropped)} of {count_text(d.rows_read)} rows answered none of the items and were left out"
                    if d.rows_dropped else ""))
     if not d.rows_dropped:
         return ""
-    return f" ({d.rows_dropped} of {d.rows_read} rows with missing answers left out: the refits use complete rows)"
+    return f" ({count_text(d.rows_dropped)} of {count_text(d.rows_read)} rows with missing answers left out: the refits use complete rows)"
 
 
 def bootstrap_report(boot) -> Report:
@@ -1056,9 +1079,9 @@ def bootstrap_report(boot) -> Report:
     why_failed = ("an item lost an answer category, or the correlations were not positive definite" if ordinal else
                   "an item had fewer than two answers, or a pair of items none together, so the saturated model could "
                   "not be estimated")
-    lines = [f"{boot.replications} resamples of {result.n_obs} rows{_left_out(result)} (seed {boot.seed}); "
-             f"{boot.converged} converged, "
-             f"{not_converged} did not" + (f" and {boot.failed} could not be analysed ({why_failed})" if boot.failed
+    lines = [f"{count_text(boot.replications)} resamples of {count_text(result.n_obs)} rows{_left_out(result)} (seed {boot.seed}); "
+             f"{count_text(boot.converged)} converged, "
+             f"{count_text(not_converged)} did not" + (f" and {count_text(boot.failed)} could not be analysed ({why_failed})" if boot.failed
                                            else "")
              + "; those are left out of the intervals."]
     if ordinal:
@@ -1073,7 +1096,7 @@ def bootstrap_report(boot) -> Report:
                          f"clusters, common practice); read them as rough.")
     if boot.bollen_stine_p is not None:
         lines.append(f"Bollen-Stine bootstrap p-value of the chi-square test: {unit(boot.bollen_stine_p)} "
-                     f"({boot.bollen_stine_converged} converged resamples; normal-theory p {p_phrase(result.fit.p_value)}).")
+                     f"({count_text(boot.bollen_stine_converged)} converged resamples; normal-theory p {p_phrase(result.fit.p_value)}).")
     elif boot.bollen_stine_not_computed and result.fit.df == 0:  # no test at all to fall back on
         lines.append(f"No Bollen-Stine p-value: {boot.bollen_stine_not_computed}.")
     elif boot.bollen_stine_not_computed:
@@ -1126,12 +1149,25 @@ def few_draws(draws: int, tail: float, what: str, moves: str) -> str:
     beyond = draws * tail
     if beyond >= TAIL_DRAWS:
         return ""
-    return (f"Only {draws} {what}: each {100 * tail:g}% tail holds about {beyond:.1f} of them, so {moves} move with the "
-            f"seed; give {math.ceil(TAIL_DRAWS / tail):,} or more (common practice asks for 1,000 or more resamples for "
+    return (f"Only {count_text(draws)} {what}: each {100 * tail:g}% tail holds about {beyond:.1f} of them, so {moves} move with the "
+            f"seed; give {count_text(math.ceil(TAIL_DRAWS / tail))} or more (common practice asks for 1,000 or more resamples for "
             f"bootstrap intervals)")
 
 
 # ---------------------------------------------------------------- cutoffs
+
+def cutoffs_without_cfi(cut) -> str:
+    """How many simulated samples had no CFI (workflows.cutoffs.CutoffResult.without_cfi), which the CFI cutoffs
+    leave out: said beside the samples' line, never left as a cutoff that silently does not exist."""
+    correct, wrong = cut.without_cfi
+    why = ("" if cut.fit.method.ordinal else " (both noncentralities at most 0, so CFI is 0/0: the baseline model "
+                                              "fitted them no worse than the model)")
+    return (f"CFI had no value in {count_text(correct)} of the {count_text(cut.converged_correct)} converged samples "
+            f"from the fitted model and {count_text(wrong)} of the {count_text(cut.converged_misspecified)} from the "
+            f"misspecified one{why}; the CFI cutoffs come from the samples where it has one"
+            + (", too few of one model's to set them (at least 10 each)"
+               if min(cut.converged_correct - correct, cut.converged_misspecified - wrong) < 10 else "") + ".")
+
 
 def cutoffs_report(cut) -> Report:
     from cfa_tool.workflows.cutoffs import N_STEPS, SIZE_STEPS
@@ -1140,14 +1176,16 @@ def cutoffs_report(cut) -> Report:
     rows, values = [], []
     for c in cut.cutoffs:
         if c.cutoff is None:
-            found = ([f"by N = {c.separating_n:,}"] if c.separating_n is not None else []) + (
+            found = ([f"by N = {count_text(c.separating_n)}"] if c.separating_n is not None else []) + (
                 [f"for a misspecification of {unit(c.separating_size, 2)} at this N"] if c.separating_size is not None else [])
-            reading = f"none at N = {cut.n_obs:,}" + ("; one exists " + ", or ".join(found) if found else
+            reading = f"none at N = {count_text(cut.n_obs)}" + ("; one exists " + ", or ".join(found) if found else
                                                       "; none either at 16 times this N or 3 times the misspecification")
+        elif missing(c.observed):  # this model's CFI is 0/0: on neither side of a cutoff
+            reading = f"this model's {c.index.upper()} is not defined"
         else:
             reading = CUTOFF_BEYOND if c.beyond else CUTOFF_WITHIN
         rows.append([c.index.upper(), f"{100 * c.level:.0f}%", unit(c.cutoff) if c.cutoff is not None else "",
-                     unit(c.observed), reading])
+                     index_text(c.observed), reading])
         values.append([c.index.upper(), c.level, c.cutoff, c.observed, reading])
     notes = []
     if any(c.cutoff is None for c in cut.cutoffs):
@@ -1161,11 +1199,13 @@ def cutoffs_report(cut) -> Report:
                                           ("Reading", "l")], rows, cutoff_meaning(cut.misspecification),
                    values=(["Index", "Level", "Cutoff", "This model", "Reading"], values))
     left_out = _left_out(result) if cut.pattern_rows is None else ""  # the gaps carried over: said below
-    lines = (f"{cut.replications} samples of N = {cut.n_obs}{left_out} from the fitted model and from the model with "
+    lines = (f"{count_text(cut.replications)} samples of N = {count_text(cut.n_obs)}{left_out} from the fitted model and from the model with "
              f"{cut.misspecification} left out (seed {cut.seed}).",)
+    if any(cut.without_cfi):
+        lines += (cutoffs_without_cfi(cut),)
     if cut.pattern_rows is not None:
         lines += (f"The missing-data pattern was carried over: each simulated row takes the gaps of one of the "
-                  f"{cut.pattern_rows} data rows, drawn at random (missing completely at random, with the data's "
+                  f"{count_text(cut.pattern_rows)} data rows, drawn at random (missing completely at random, with the data's "
                   f"patterns in their proportions), and each sample is fitted by full-information ML, as the data "
                   f"were.",)
     if result.method.ordinal:
@@ -1175,7 +1215,7 @@ def cutoffs_report(cut) -> Report:
                   f"the polychoric correlations.",)
         if cut.correct_rejected is not None:
             lines += (f"That test rejected the fitted model at .05 in {100 * cut.correct_rejected:.1f}% of the "
-                      f"{cut.converged_correct} samples drawn from it (nominal 5%).",)
+                      f"{count_text(cut.converged_correct)} samples drawn from it (nominal 5%).",)
     few = few_draws(cut.replications, 0.05, "samples", "the cutoffs")
     kept = not_admissible_sentence([(count, converged, named, f" from the {whose}") for (count, named), converged, whose
                                     in zip(cut.inadmissible, (cut.converged_correct, cut.converged_misspecified),
@@ -1217,7 +1257,7 @@ def power_report(result) -> Report:
             ["Degrees of freedom", str(result.df), result.df],
             ["Significance level", unit(result.alpha, 2), result.alpha]]
     if result.power is not None:
-        rows.append([f"Power with N = {result.n_obs}", unit(result.power), result.power])
+        rows.append([f"Power with N = {count_text(result.n_obs)}", unit(result.power), result.power])
     digits = next((d for d in range(2, 9) if round(result.target_power, d) == result.target_power), 9)
     rows.append([f"Smallest N for power {unit(result.target_power, digits)}", str(result.required_n), result.required_n])
     table = _table("power", "Power and sample size", [("", "l"), ("Value", "r")], [r[:2] for r in rows],
@@ -1242,16 +1282,18 @@ def rows_rule_caution(result) -> Note:
     below = result.below_rows_rule
     one = len(below) == 1
     enough = ROWS_PER_PARAMETER * below[0].parameters
-    sizes = [f"{count_text(f.rows)}" for f in below] + [str(enough)]
+    sizes = [f.rows for f in below] + [enough]
+    typed = [user_number(n) for n in sizes]  # as a command takes them: no grouping comma inside a list of commas
     return Note((f"{' and '.join(f'N = {count_text(f.rows)}' for f in below)} {'is' if one else 'are'} judged by the RMSEA "
                  f"test of {result.test} fit alone, not by what estimating the model needs: "
                  f"{'; '.join(f.figures() for f in below)}, fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; "
-                 f"{enough} rows here); this plan says nothing of how precisely the loadings, variances and "
+                 f"{count_text(enough)} rows here); this plan says nothing of how precisely the loadings, variances and "
                  f"correlations are estimated at {'that N' if one else 'those sizes'}. What to try: plan the N with a "
                  f"power simulation of the model, which gives each parameter's power, bias and coverage at each sample "
                  f"size",
-                 Command(f" ('cfa-tool power-simulation MODEL --n {','.join(sizes)}'; from Python, "
-                         f"power_simulation(model, [{', '.join(sizes)}]))", f" ({' and '.join(sizes)} rows, say)"),
+                 Command(f" ('cfa-tool power-simulation MODEL --n {','.join(typed)}'; from Python, "
+                         f"power_simulation(model, [{', '.join(typed)}]))",
+                         f" ({' and '.join(count_text(n) for n in sizes)} rows, say)"),
                  "."))
 
 
@@ -1298,7 +1340,7 @@ def _inadmissible_cautions(results) -> tuple[str, ...]:
     """The caution, first, on the converged replications whose solution is not admissible at each sample size,
     naming their problems (assessment.admissibility.not_admissible_sentence; said once per report)."""
     said = not_admissible_sentence([(r.inadmissible, r.converged, getattr(r, "inadmissible_named", ""),
-                                     f" at N = {r.n_obs}" if len(results) > 1 else "") for r in results],
+                                     f" at N = {count_text(r.n_obs)}" if len(results) > 1 else "") for r in results],
                                    "replications", "the power, coverage and bias figures, which therefore describe "
                                                    "such solutions too")
     return (said,) if said else ()
@@ -1323,8 +1365,8 @@ def few_replications(replications: int) -> tuple[str, ...]:
     error of a share p from R replications is sqrt(p (1 - p) / R)."""
     if replications >= 100:
         return ()
-    return (f"Only {replications} replications: a power near .80 has a Monte Carlo standard error of about "
-            f"{math.sqrt(0.16 / replications):.2f} and a coverage near 95% one of about "
+    return (f"Only {count_text(replications)} replications: a power near .80 has a Monte Carlo standard error of about "
+            f"{unit(math.sqrt(0.16 / replications), 2)} and a coverage near 95% one of about "
             f"{100 * math.sqrt(0.0475 / replications):.0f} points; give 500 or more (common practice) for figures to "
             f"two decimals",)
 
@@ -1332,7 +1374,7 @@ def few_replications(replications: int) -> tuple[str, ...]:
 def montecarlo_report(result) -> Report:
     if hasattr(result, "results"):  # a power curve: several sample sizes
         return power_curve_report(result)
-    lines = [f"{result.converged} of {result.replications} replications converged "
+    lines = [f"{count_text(result.converged)} of {count_text(result.replications)} replications converged "
              f"({100 * result.converged / result.replications:.1f}%)."
              ] + _ordinal_power_lines(result)
     if result.defaulted:
@@ -1357,7 +1399,7 @@ def montecarlo_report(result) -> Report:
                    + _zero_population_words(result.parameters) + where,
                    values=(["Parameter", "Power", "Coverage", "Estimate relative bias", "SE relative bias"], values))
     return Report(ResultKind.POWER_SIMULATION,
-                  f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
+                  f"Monte Carlo power: N = {count_text(result.n_obs)}, {count_text(result.replications)} replications (seed {result.seed})",
                   _notice([], _inadmissible_cautions([result])), tuple(lines), (table, *population),
                   warnings=few_replications(result.replications))
 
@@ -1383,11 +1425,11 @@ def _population_of(result) -> tuple[ReportTable, ...]:
 def power_curve_report(curve) -> Report:
     """Power per parameter (rows) and sample size (columns), with each size's convergence."""
     first = curve.results[0]
-    lines = ["Converged: " + ", ".join(f"{r.converged} of {r.replications} at N = {r.n_obs}" for r in curve.results)
+    lines = ["Converged: " + ", ".join(f"{count_text(r.converged)} of {count_text(r.replications)} at N = {count_text(r.n_obs)}" for r in curve.results)
              + "."]
     if first.ordinal:
         lines += [_ordinal_power_lines(first)[0], f"The {ADJUSTED_TEST} test rejected the true model at alpha "
-                  f"{unit(first.alpha, 2)} in " + ", ".join(f"{100 * r.model_rejected:.1f}% at N = {r.n_obs}"
+                  f"{unit(first.alpha, 2)} in " + ", ".join(f"{100 * r.model_rejected:.1f}% at N = {count_text(r.n_obs)}"
                                                            for r in curve.results) + " of the converged replications."]
     if first.defaulted:
         lines.append("Population values not given in the model file took defaults: "
@@ -1397,12 +1439,12 @@ def power_curve_report(curve) -> Report:
     rows = [[name, *(unit(r.parameters[k].power, 2) for r in curve.results)] for k, name in enumerate(names)]
     values = [[name, *(r.parameters[k].power for r in curve.results)] for k, name in enumerate(names)]
     table = _table("power_by_sample_size", "Power per parameter and sample size",
-                   [("Parameter", "l")] + [(f"N = {n}", "r") for n in curve.sample_sizes], rows,
+                   [("Parameter", "l")] + [(f"N = {count_text(n)}", "r") for n in curve.sample_sizes], rows,
                    f"Power: share of replications in which the parameter differs from zero at alpha "
                    f"{unit(first.alpha, 2)}.",
-                   values=(["Parameter", *(f"Power at N = {n}" for n in curve.sample_sizes)], values))
+                   values=(["Parameter", *(f"Power at N = {count_text(n)}" for n in curve.sample_sizes)], values))
     # whether intervals and estimates can be trusted at each size: coverage and bias beside each other per size
-    heads = [("Parameter", "l")] + [(f"{what} at N = {n}", "r") for n in curve.sample_sizes
+    heads = [("Parameter", "l")] + [(f"{what} at N = {count_text(n)}", "r") for n in curve.sample_sizes
                                     for what in ("Coverage", "Estimate bias %", "SE bias %")]
     rows = [[name, *(cell for r in curve.results for cell in (
         f"{100 * r.parameters[k].coverage:.1f}%", _percent(r.parameters[k].relative_bias),
@@ -1415,7 +1457,7 @@ def power_curve_report(curve) -> Report:
                    "estimate (or mean SE) against the population value (or the SD of the estimates). Population "
                    "values, mean estimates and SDs are in the JSON result.",
                    values=([h for h, _ in heads], values))
-    return Report(ResultKind.POWER_SIMULATION, f"Monte Carlo power by sample size: {first.replications} replications "
+    return Report(ResultKind.POWER_SIMULATION, f"Monte Carlo power by sample size: {count_text(first.replications)} replications "
                                                f"per size (seed {first.seed})",
                   _notice([], _inadmissible_cautions(curve.results)), tuple(lines), (table, trust, *_population_of(first)),
                   warnings=few_replications(first.replications))

@@ -54,6 +54,7 @@ from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
 from cfa_tool.language.spec import ScaleSetting, Spec
 from cfa_tool.method import ALIGNMENT_FLAG_LEVEL, ALIGNMENT_TRIALS, ReferenceMean
+from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 
@@ -960,8 +961,8 @@ def _cautions(result: AlignmentResult) -> list[str]:
     if result.check is not None:
         for c in result.check.factors:
             if c.trusted is False:
-                out.append(f"in the Monte Carlo check the estimated means of {c.factor} correlate {c.mean_correlation:.3f} "
-                           f"on average with the true ones, below the {TRUSTED_CORRELATION:.2f} the method's authors ask "
+                out.append(f"in the Monte Carlo check the estimated means of {c.factor} correlate {journal_decimal(c.mean_correlation)} "
+                           f"on average with the true ones, below the {journal_decimal(TRUSTED_CORRELATION, digits=2)} the method's authors ask "
                            f"for (a rule of thumb): its aligned means may not order the groups reliably")
         by_name = {f.factor: f for f in result.factors}
         for c in result.check.factors:

@@ -31,6 +31,7 @@ import pandas as pd
 from cfa_tool import options as check
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.numerics.linalg import log_det_pd
+from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.method import MissingData
@@ -89,6 +90,10 @@ class CutoffResult(Presentable):
     #: the misspecified one: (count, their problems named with their counts) each (assessment.admissibility.
     #: counted_problems); they stay in the distributions the cutoffs come from
     inadmissible: tuple[tuple[int, str], tuple[int, str]] = ((0, ""), (0, ""))
+    #: converged samples of the fitted model and of the misspecified one whose CFI has no value (both noncentralities
+    #: at most 0, so CFI is 0/0: the baseline model fits the sample no worse than the model): the CFI cutoffs come
+    #: from the other samples, and the report says how many were left out (a CFI of 0/0 is no value to rank)
+    without_cfi: tuple[int, int] = (0, 0)
 
     @property
     def statistic(self) -> str:
@@ -106,6 +111,7 @@ class CutoffResult(Presentable):
             "inadmissible_correct": self.inadmissible[0][0], "inadmissible_misspecified": self.inadmissible[1][0],
             "inadmissible_problems_correct": self.inadmissible[0][1],
             "inadmissible_problems_misspecified": self.inadmissible[1][1],
+            "cfi_not_defined_correct": self.without_cfi[0], "cfi_not_defined_misspecified": self.without_cfi[1],
             "cutoffs": [c.to_dict() for c in self.cutoffs]})}
 
 
@@ -173,13 +179,13 @@ def misspecified_covariance(spec: Spec, result: FitResult, scale: float = 1.0,
         target = max(others, key=lambda j: abs(corr[own[item], j]))
         size *= scale
         L[item, target] = size * sd_obs[item] / sd_lat[target]
-        what = f"a cross-loading of {size:.2f} (standardized) of {names[item]} on {factors[target]}"
+        what = f"a cross-loading of {journal_decimal(size, digits=2)} (standardized) of {names[item]} on {factors[target]}"
     else:
         if len(names) < 2:
             raise OptionError("a model with one item has nothing to misspecify")
         r = size = min(0.30 * scale, 0.95)
         T[0, 1] = T[1, 0] = r * np.sqrt(T[0, 0] * T[1, 1])
-        what = f"a residual correlation of {r:.2f} between {names[0]} and {names[1]}"
+        what = f"a residual correlation of {journal_decimal(r, digits=2)} between {names[0]} and {names[1]}"
     G = L @ mats.A
     wrong = G @ mats.P @ G.T + T
     if log_det_pd(wrong) is None:  # not positive definite, or not finite
@@ -256,7 +262,7 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
     cutoffs = []
     for (index, level), cut in found.items():
         beyond = None
-        if cut is not None:
+        if cut is not None and np.isfinite(observed[index]):  # a CFI of 0/0 lies on neither side
             beyond = bool(observed[index] < cut) if index == "cfi" else bool(observed[index] > cut)
         cutoffs.append(Cutoff(index, level, cut, float(observed[index]), beyond,
                               separating_n.get((index, level)), separating_size.get((index, level))))
@@ -266,7 +272,13 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
                         converged_misspecified=len(mis), seed=seed, n_obs=n, cutoffs=tuple(cutoffs),
                         misspecification_size=size, correct_rejected=rejected,
                         pattern_rows=len(patterns) if patterns is not None else None,
-                        inadmissible=(counted_problems(judged_correct), counted_problems(judged_mis)))
+                        inadmissible=(counted_problems(judged_correct), counted_problems(judged_mis)),
+                        without_cfi=(_without(correct, "cfi"), _without(mis, "cfi")))
+
+
+def _without(draws: np.ndarray, index: str) -> int:
+    """How many of the simulated samples ``draws`` (rows: the :data:`INDICES` of each) have no value of ``index``."""
+    return int(np.sum(~np.isfinite(draws[:, INDICES.index(index)])))
 
 
 def _latent_response_misspecified(spec: Spec, result: FitResult, scale: float = 1.0) -> tuple[np.ndarray, str, float]:
@@ -327,19 +339,23 @@ def _sampler(spec: Spec, result: FitResult, replications: int, seeds: np.random.
 def _cutoffs(correct: np.ndarray, mis: np.ndarray) -> dict[tuple[str, float], float | None]:
     """Each index's cutoff at each level, or None where the two distributions overlap too much: a cutoff
     exists when the level's share of misspecified samples lies beyond it and the same share of correct
-    ones does not."""
+    ones does not.  Each index's distributions hold the samples where it has a value (a CFI of 0/0 has none:
+    :attr:`CutoffResult.without_cfi`), at least 10 of each model (one such sample had left the CFI's cutoffs
+    unset, as if the distributions overlapped)."""
     out: dict[tuple[str, float], float | None] = {}
     for k, index in enumerate(INDICES):
+        right, wrong = correct[:, k], mis[:, k]
+        right, wrong = right[np.isfinite(right)], wrong[np.isfinite(wrong)]
         for level in LEVELS:
-            if len(correct) < 10 or len(mis) < 10:
+            if len(right) < 10 or len(wrong) < 10:
                 out[(index, level)] = None
                 continue
             if index == "cfi":  # misspecified samples have low CFI
-                cut = float(np.quantile(mis[:, k], level))
-                ok = np.quantile(correct[:, k], 1 - level) >= cut
+                cut = float(np.quantile(wrong, level))
+                ok = np.quantile(right, 1 - level) >= cut
             else:
-                cut = float(np.quantile(mis[:, k], 1 - level))
-                ok = np.quantile(correct[:, k], level) <= cut
+                cut = float(np.quantile(wrong, 1 - level))
+                ok = np.quantile(right, level) <= cut
             out[(index, level)] = cut if ok else None
     return out
 

@@ -23,6 +23,8 @@ from cfa_tool.data.kept_rows import FINISHED_COLUMNS, ROW_NAMING, row_naming
 from cfa_tool.data.moments import stray_word_message
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.assessment.admissibility import sample_size_problems
+from cfa_tool.numbers import user_number
+from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.note_parts import Command, Note, Text
@@ -734,15 +736,15 @@ def _default_items(first, columns: list[str], codings: tuple, design: tuple[str,
                "particulars or the survey's records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
                + Note((name_them, ".")) if roles else "")
             + (f" Left out as groupings or records rather than answers (a few whole values, most of them above the "
-               f"{unlike.scale[0]:g} to {unlike.scale[1]:g} that most columns hold, and no correlation of "
-               f"{RELATED_TO_THE_ITEMS:.2f} or more with any item, as a grade or a year would be): "
-               + ", ".join(f"{printable(c)} ({low:g} to {high:g})" for c, low, high in unlike.groupings)
+               f"{user_number(unlike.scale[0])} to {user_number(unlike.scale[1])} that most columns hold, and no correlation of "
+               f"{journal_decimal(RELATED_TO_THE_ITEMS, digits=2)} or more with any item, as a grade or a year would be): "
+               + ", ".join(f"{printable(c)} ({user_number(low)} to {user_number(high)})" for c, low, high in unlike.groupings)
                + Note((name_them, ".")) if unlike.groupings else "")
-            + (f" Left out as measures rather than answers on the {unlike.scale[0]:g} to {unlike.scale[1]:g} scale "
+            + (f" Left out as measures rather than answers on the {user_number(unlike.scale[0])} to {user_number(unlike.scale[1])} scale "
                f"that most columns hold (mostly fractions, or far more values over a far wider range, and no "
-               f"correlation of {RELATED_TO_THE_ITEMS:.2f} or more with any item, as years of service or an income "
+               f"correlation of {journal_decimal(RELATED_TO_THE_ITEMS, digits=2)} or more with any item, as years of service or an income "
                f"would be): "
-               + ", ".join(f"{printable(c)} ({low:.10g} to {high:.10g}, "
+               + ", ".join(f"{printable(c)} ({user_number(low)} to {user_number(high)}, "
                            + ("mostly fractions)" if fractions else f"{_count_values(frame[c])} different values)")
                            for c, low, high, fractions in unlike.off_scale)
                + Note((name_them, ".")) if unlike.off_scale else "")

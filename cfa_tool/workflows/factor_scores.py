@@ -1679,7 +1679,7 @@ def _outside_fitted_ranges(data, items, rows: np.ndarray, source: str) -> str | 
                 found.append((item, below + above, lo, hi))
     if not found:
         return None
-    listed = "; ".join(f"'{printable(item)}', {n} answer{'s' if n != 1 else ''} outside {lo:g} to {hi:g}"
+    listed = "; ".join(f"'{printable(item)}', {n} answer{'s' if n != 1 else ''} outside {user_number(lo)} to {user_number(hi)}"
                        for item, n, lo, hi in found[:5]) + (f"; and {len(found) - 5} more items" if len(found) > 5 else "")
     return (f"{source} holds answers outside the range of the rows the earlier fit analysed: {listed}. Scores of such "
             f"answers extrapolate the fit, and if the files code the answers differently (0 to 4 against 1 to 5, "

@@ -664,7 +664,10 @@ def _step_holds(rule: DecisionRule, test: DifferenceTest, alpha: float, result: 
     if rule is DecisionRule.DIFFERENCE_TEST:
         return by_test
     restricted, before = _fit_values(result), _fit_values(general)
-    by_change = (restricted["cfi"] - before["cfi"] >= CFI_GUIDE and restricted["rmsea"] - before["rmsea"] < RMSEA_GUIDE
+    # a change in a CFI that has no value (cfi_not_defined) is no evidence either way: the step is judged by the
+    # other changes (and the test, under the rule of both), and the report says so (delta_cfi_not_defined)
+    cfi_met = delta_cfi_not_defined(result, general) or restricted["cfi"] - before["cfi"] >= CFI_GUIDE
+    by_change = (cfi_met and restricted["rmsea"] - before["rmsea"] < RMSEA_GUIDE
                  and restricted["srmr"] - before["srmr"] < SRMR_GUIDE.get(level, SRMR_GUIDE_LATER))
     return by_change if rule is DecisionRule.FIT_CHANGE else (by_change and by_test)
 
@@ -817,13 +820,17 @@ def _total_moments(result: FitResult, higher: dict, rows: dict, factor: str, gro
 
 def _judged(fit: dict[str, float]) -> str:
     """The indices of :func:`_fit_values` against their guides (assessment.fit_indices.FIT_GUIDES), those that miss
-    theirs first: 'RMSEA .0605, above .06; CFI .951 and SRMR .046 meet theirs'."""
+    theirs first: 'RMSEA .0605, above .06; CFI .951 and SRMR .046 meet theirs'; an index without a value is said to
+    be not defined, never compared ('CFI nan, below .95' was printed for a CFI of 0/0)."""
+    undefined = [k for k, v in fit.items() if not np.isfinite(v)]
+    fit = {k: v for k, v in fit.items() if k not in undefined}
     missed = [k for k, v in fit.items() if not FIT_GUIDES[k].met_by(v)]
     said = [f"{k.upper()} {journal_decimal(fit[k], FIT_GUIDES[k].value)}, {FIT_GUIDES[k].missed_side} "
             f"{journal_decimal(FIT_GUIDES[k].value).rstrip('0')}" for k in missed]
     met = [f"{k.upper()} {journal_decimal(v, FIT_GUIDES[k].value)}" for k, v in fit.items() if k not in missed]
     if met:
         said.append(f"{' and '.join(met)} {'meets its' if len(met) == 1 else 'meet theirs'}")
+    said += [f"{k.upper()} not defined" for k in undefined]
     return "; ".join(said)
 
 
@@ -833,6 +840,20 @@ def _fit_values(result: FitResult) -> dict[str, float]:
     if robust is not None:
         return {"cfi": robust.cfi_robust, "rmsea": robust.rmsea_robust, "srmr": fit.srmr}
     return {"cfi": fit.cfi, "rmsea": fit.rmsea, "srmr": fit.srmr}
+
+
+def cfi_not_defined(result: FitResult) -> bool:
+    """Whether the CFI a step is judged by (:func:`_fit_values`) has no value because the baseline model fits these
+    data no worse than the model (both noncentralities at most 0, so CFI is 0/0: assessment.fit_indices.cfi_from),
+    rather than because a robust index was not computed (:func:`unjudged`).  The one rule of the ladder: such a
+    model, or a step from or to it, is judged by the other indices (RMSEA and SRMR), and the report says so."""
+    return (result.converged and result.fit is not None and not np.isfinite(_fit_values(result)["cfi"])
+            and not (result.robust is not None and result.robust.not_computed))
+
+
+def delta_cfi_not_defined(result: FitResult, general: FitResult) -> bool:
+    """Whether a step's change in CFI has no value because the CFI of either model has none (:func:`cfi_not_defined`)."""
+    return cfi_not_defined(result) or cfi_not_defined(general)
 
 
 def unjudged(rule: DecisionRule, step: tuple[str, FitResult], before: tuple[str, FitResult] | None) -> str:
@@ -863,7 +884,7 @@ def configural_fits(result: FitResult) -> bool:
     if result.fit.df == 0:
         return True
     values = _fit_values(result)
-    return all(FIT_GUIDES[k].met_by(values[k]) for k in CONFIGURAL_INDICES)
+    return all(FIT_GUIDES[k].met_by(values[k]) for k in CONFIGURAL_INDICES if k != "cfi" or not cfi_not_defined(result))
 
 
 def _one_per_constraint(tests: tuple[ModificationIndex, ...], labels: tuple[str, ...]) -> tuple[ModificationIndex, ...]:

@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 from typing import Sequence
 
 import numpy as np
+from cfa_tool.numbers import rounded_number
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
@@ -184,7 +185,7 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
     if np.abs(variances - 1.0).max() > 1e-6:
         k = int(np.argmax(np.abs(variances - 1.0)))
         scale = (f"with ordinal items the population values are on the scale of latent responses of variance 1, but "
-                 f"the values {{}} make the variance of '{population.observed[k]}' {variances[k]:.3g}")
+                 f"the values {{}} make the variance of '{population.observed[k]}' {rounded_number(variances[k])}")
         if population.fitted_from is not None:  # a continuous fit's values are on its items' own scales
             raise OptionError(scale.format(f"of the continuous fit in {population.fitted_from}") + "; give the JSON "
                               f"result of an ordinal fit of these items (a fit with {check.Option.ORDINAL}), or leave "

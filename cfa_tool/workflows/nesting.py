@@ -12,6 +12,7 @@ from typing import Callable
 
 import numpy as np
 
+from cfa_tool.numbers import rounded_number
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool.data.moments import SampleMoments
@@ -307,7 +308,7 @@ def _not_positive_factor(factors) -> str:
     bad = [(name, c, own) for name, c, own in factors if not (c is not None and np.isfinite(c) and c > 0)]
     if not bad:
         return ""
-    said = " and ".join(f"{name}{'' if own else AT_RESTRICTED} ({c:.3g})" for name, c, own in bad)
+    said = " and ".join(f"{name}{'' if own else AT_RESTRICTED} ({rounded_number(c)})" for name, c, own in bad)
     one = len(bad) == 1
     own_test = [name for name, _, own in bad if own]
     return (f"the scaling factor{'' if one else 's'} of {said} {'is' if one else 'are'} not positive, so the "
@@ -489,5 +490,5 @@ def is_nested(restricted: FitResult, general_spec: Spec, general: FitResult) -> 
         return False, "the nesting check did not converge", None
     if est.value > NESTING_TOLERANCE:
         return False, (f"the second model cannot reproduce the first model's implied covariances "
-                       f"(discrepancy {est.value:.2g}), so the first is not a special case of it"), None
+                       f"(discrepancy {rounded_number(est.value, 2)}), so the first is not a special case of it"), None
     return True, "", est

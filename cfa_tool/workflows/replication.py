@@ -63,7 +63,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import count_text, user_number
 from cfa_tool.data.halves import drawn_halves
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.pipeline.inputs import (_described, data_problems, rows_named, keeps_rows_with_gaps, load_spec, make_options, odd_values_named,
@@ -786,7 +786,7 @@ class SplitRows:
             return ""
         from cfa_tool.data.filters import kept_by_words
 
-        return f" kept by {kept_by_words(self.filters)} (of the {self.rows_in_file} rows in the file)"
+        return f" kept by {kept_by_words(self.filters)} (of the {count_text(self.rows_in_file)} rows in the file)"
 
 
 def _split_design(cluster: str | None, strata: str | None):

@@ -22,7 +22,7 @@ from enum import Enum
 
 import numpy as np
 import pandas as pd
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import rounded_number, user_number
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.numerics import distributions as dist
@@ -448,11 +448,11 @@ def beyond_bounds(spec: Spec, table: ParameterTable, theta: np.ndarray, given: n
     bound = _bound_words(table.lower[k], table.upper[k])
     if held[k]:  # the conversion to the model's scaling stopped a default at the bound: its standardized default lies beyond
         raise ModelError(f"{spec.source}: the default population value of {table.free_labels[k]} lies beyond the "
-                         f"model's own bound ({bound}) and is held at it ({theta[k]:.3g}), so the simulated samples "
+                         f"model's own bound ({bound}) and is held at it ({rounded_number(theta[k])}), so the simulated samples "
                          f"would hold its estimate at the bound; give its population value with a 'start' statement "
                          f"within the bound")
     if np.isnan(given[k]):
-        raise ModelError(f"{spec.source}: the default population value {theta[k]:.3g} of {table.free_labels[k]} lies "
+        raise ModelError(f"{spec.source}: the default population value {rounded_number(theta[k])} of {table.free_labels[k]} lies "
                          f"outside the model's own bound ({bound}), so every simulated sample would hold its estimate "
                          f"at the bound; give its population value with a 'start' statement within the bound")
     consequence = "every simulated sample would hold its estimate at the bound; change the start value or the bound"

@@ -297,8 +297,10 @@ def test_answers_outside_the_fitted_rows_range_are_said_first(tmp_path, model_fi
     assert below >= 1
     first = json.loads(js.read_text())["problems"][0]  # a caution first in every view
     assert first["kind"] == "answers beyond the fitted rows"
-    assert (f"'x1', {below} answer{'s' if below != 1 else ''} outside {hs_data['x1'].min():g} to "
-            f"{hs_data['x1'].max():g}") in first["explanation"]
+    # the ends as the data hold them (Python's shortest repr, which reads back as the same number; ':g' rounded them
+    # to six digits, '0.666667', another number)
+    low, high = (repr(float(v)).removesuffix(".0") for v in (hs_data["x1"].min(), hs_data["x1"].max()))
+    assert f"'x1', {below} answer{'s' if below != 1 else ''} outside {low} to {high}" in first["explanation"]
     assert text.index("Check before using these scores") < text.index("Scores of")
     # the fit's own rows: nothing to say
     code, text, _ = _run(["scores", model_file, "--data", tmp_path / "rows.csv", "--from-fit", saved, "--output",

@@ -319,7 +319,7 @@ ANSWERS_ERRORS = {
     'answers "No" = 0, 9 = 1, 9 = 2': (2, 26, "the answer '9' is listed twice"),
     'answers 1 = 1, 2 = 2': (2, 1, 'lists numbers only'),
     'answers " " = 1': (2, 9, 'an answer word is empty'),
-    'answers "No" = 1e9': (2, 16, "the code 1e+09 is not a rating scale's answer"),
+    'answers "No" = 1e9': (2, 16, "the code 1000000000 is not a rating scale's answer"),  # the number, plain
     'answers "No" = 0\nanswers "Yes" = 1': (3, 1, "a second 'answers' statement for every item "
                                                       "(the first is on line 2)"),
     'answers "No" = 0 for f': (2, 22, "'f' is a factor; 'answers' says what the answers"),

@@ -36,7 +36,7 @@ def test_a_grade_and_a_year_are_not_explored_as_items_and_the_note_says_how_to_i
     assert items == ITEMS + ["wave"]
     note = next(str(n) for n in result.notes if str(n).startswith("Items:"))
     assert ("Left out as groupings or records rather than answers (a few whole values, most of them above the 1 to "
-            "5 that most columns hold, and no correlation of 0.30 or more with any item, as a grade or a year would "
+            "5 that most columns hold, and no correlation of .30 or more with any item, as a grade or a year would "
             "be): grade (5 to 9), year (2021 to 2024) (name them in items=... to explore them).") in note
     named = explore(_survey(), items="r1..r8, grade", factors=2, replications=10)  # named: explored
     assert "grade" in named.to_dict()["items"]

@@ -56,7 +56,7 @@ def test_years_of_service_with_decimals_are_not_explored_among_answers_of_1_to_7
     note = next(str(n) for n in result.notes if str(n).startswith("Items:"))
     low, high = frame["tenure_years"].min(), frame["tenure_years"].max()
     assert (f"Left out as measures rather than answers on the 1 to 7 scale that most columns hold (mostly fractions, "
-            f"or far more values over a far wider range, and no correlation of 0.30 or more with any item, as years "
+            f"or far more values over a far wider range, and no correlation of .30 or more with any item, as years "
             f"of service or an income would be): tenure_years ({low:.10g} to {high:.10g}, mostly fractions) (name them "
             f"in items=... to explore them).") in note
     # the fit of four factors counts 20 items: df ((20 - 4)^2 - (20 + 4)) / 2 = 116 (Lawley & Maxwell 1971), not the
@@ -125,7 +125,7 @@ def test_a_grade_is_not_taken_for_an_item_whose_missing_codes_empty_it():
     assert list(result.items) == [f"b{k}" for k in range(1, 9)]
     notes = " ".join(str(n) for n in result.notes)
     assert ("Left out as groupings or records rather than answers (a few whole values, most of them above the 1 to 4 "
-            "that most columns hold, and no correlation of 0.30 or more with any item, as a grade or a year would "
+            "that most columns hold, and no correlation of .30 or more with any item, as a grade or a year would "
             "be): grade (7 to 9)") in notes
     assert "constant" not in notes and "(grade " not in notes
 
