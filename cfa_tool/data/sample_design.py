@@ -213,10 +213,14 @@ class SampleDesign:
         # inference/design.design_meat: weighted sums per cluster (or per row), centred within strata, C/(C - 1)
         units = "clusters" if c.cluster else "rows"
         if c.strata is not None:
+            # in a methods section's words (new-user trial s20): the formula, sum_h C_h/(C_h - 1) ..., is in
+            # inference/design.py's docstring
             spread = (f"the {units}' weighted sums centred within each stratum (the variance between {units} within "
-                      f"strata, times C_h/(C_h - 1) for the C_h {units} of stratum h; Binder, 1983)")
+                      f"strata, each stratum's multiplied by its number of {units} over that number less one; Binder, "
+                      f"1983)")
         else:
-            spread = f"the {units}' weighted sums" + (" (times C/(C - 1) for C clusters; Binder, 1983)" if c.cluster else "")
+            spread = f"the {units}' weighted sums" + (" (multiplied by the number of clusters over that number less "
+                                                      "one; Binder, 1983)" if c.cluster else "")
         after = ""
         if self.group_rows and self.shared_clusters:
             after += (" The groups are domains that share clusters: their estimating equations are stacked, and each "
@@ -385,12 +389,17 @@ class SampleDesign:
                 f"for), which are sampling weights, not counts of identical rows.")
 
     def caution(self, free_parameters: int, thresholds: int = 0) -> str | None:
-        """Why cluster-robust standard errors are in doubt with this few clusters (None with enough of them): too
-        optimistic below about 30-50 clusters (common practice), and singular with no more clusters than the
-        parameters the design-based covariance must carry (the clusters' score sums then span too few dimensions),
-        however many clusters that is: the model's ``free_parameters`` and, of an ordinal fit in one group, its
-        ``thresholds``, estimated in a first step whose covariance under the design is part of the same sandwich
-        (new-user trial s18: 40 clusters against 22 parameters and 48 thresholds)."""
+        """Why cluster-robust standard errors and tests are in doubt with this few clusters (None with enough of them),
+        in words a methods section can keep: with no more clusters than the parameters the design-based covariance
+        must carry (the model's ``free_parameters`` and, of an ordinal fit in one group, its ``thresholds``, estimated
+        in a first step whose covariance under the design is part of the same sandwich; new-user trial s18: 40 clusters
+        against 22 parameters and 48 thresholds), that covariance, a sum over the clusters' centred score sums, has
+        rank at most C - 1, so joint (Wald-type) tests and a scaled statistic, which use the whole matrix, are
+        unreliable, while each standard error, one diagonal entry, is a usable if somewhat small estimate (Cameron &
+        Miller 2015, section on few clusters, recalled from memory, not checked here); below about 30-50 clusters
+        cluster-robust standard errors tend to be too small (common practice).  Never advises leaving the clusters
+        out, which makes every standard error too small when rows of one cluster answer alike (new-user trial s20):
+        the advice is :func:`few_clusters_advice`."""
         if self.clusters is None:
             return None
         carried = free_parameters + thresholds
@@ -398,19 +407,37 @@ class SampleDesign:
                    if thresholds else f"the {free_parameters} free parameters")
         where = f"Only {self.clusters} clusters in '{self.columns.cluster}'"
         if self.clusters <= carried:
-            return (f"{where}, no more than {counted}: the cluster-robust covariance of the estimates is singular, "
-                    f"so its standard errors and scaled test mean little.")
+            return (f"{where}, no more than {counted}: the cluster-robust covariance of the estimates is built from "
+                    f"the clusters' sums, so it can describe at most {max(self.clusters - 1, 0)} independent "
+                    f"directions (one fewer than the clusters), fewer than the parameters it covers. Tests of many "
+                    f"parameters at once rest on the whole of that covariance and are unreliable here: the scaled "
+                    f"chi-square test, its p-value and the robust CFI, TLI and RMSEA made from it (Cameron & Miller, "
+                    f"2015). Each standard error on its own is less affected, though with few clusters standard "
+                    f"errors tend to be somewhat too small.")
         if self.clusters >= SMALL_NUMBER_OF_CLUSTERS:
             few = self._few_cluster_groups()
             if not few:
                 return None
             listed = ", ".join(f"'{label}' ({k})" for label, k in few)
             return (f"Few clusters of '{self.columns.cluster}' in group{'s' if len(few) > 1 else ''} {listed}: each "
-                    f"group's estimates and their cluster-robust standard errors rest on its own clusters, which are "
-                    f"too optimistic with fewer than about 30-50 clusters (common practice), and mean little with no "
-                    f"more clusters than the group's free parameters.")
-        return (f"{where}: cluster-robust standard errors and tests are too optimistic with fewer than about 30-50 "
-                f"clusters (common practice).")
+                    f"group's estimates and their cluster-robust standard errors rest on its own clusters; with fewer "
+                    f"than about 30-50 clusters (common practice) the standard errors tend to be too small, and with "
+                    f"no more clusters than the group's free parameters tests of many parameters at once are "
+                    f"unreliable.")
+        return (f"{where}: with fewer than about 30-50 clusters (common practice) cluster-robust standard errors and "
+                f"tests tend to be too small, so p-values near the chosen level are less certain than they look.")
+
+
+def few_clusters_advice(ordinal: bool = False) -> str:
+    """What helps with too few clusters (:meth:`SampleDesign.caution`), never leaving them out (new-user trial s20:
+    'fit without --cluster' made every standard error too small when rows of one cluster answer alike): keep them,
+    read single standard errors rather than joint tests, fewer parameters (of ``ordinal`` items, fewer answer
+    categories, so fewer thresholds), more clusters in a later sample."""
+    fewer = ("fewer parameters help (rarely used answer categories merged mean fewer thresholds)" if ordinal else
+             "fewer parameters help")
+    return ("keep the clusters (leaving them out makes every standard error too small when rows of one cluster answer "
+            "alike); read the single standard errors and confidence intervals rather than the scaled test; "
+            f"{fewer}, and so do more clusters in a later sample.")
 
 
 #: the first note under the modification indices of a fit under a sampling design (SampleDesign.score_test_text)
