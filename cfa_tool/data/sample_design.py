@@ -169,6 +169,9 @@ class SampleDesign:
     group_labels: tuple[str, ...] = ()
     group_clusters: tuple[int, ...] = ()
     group_effective: tuple[float, ...] = ()
+    #: data.cluster_similarity.ClusterSimilarity: the items' intraclass correlations over the clusters and the design
+    #: effect they imply, for planning a later sample (new-user trial s20); None without clusters
+    similarity: object | None = None
 
     def to_dict(self) -> dict:
         c = self.columns
@@ -180,7 +183,8 @@ class SampleDesign:
                            "domains sharing clusters" if self.shared_clusters else "independent samples"),
                 "strata_with_a_single_unit": list(self.lone_strata),
                 "strata_shared_by_groups": list(self.shared_strata),
-                "single_unit_centred_at": "the mean of all units' sums" if self.lone_strata else None}
+                "single_unit_centred_at": "the mean of all units' sums" if self.lone_strata else None,
+                "cluster_similarity": self.similarity.to_dict() if self.similarity is not None else None}
 
     def sentence(self, full_information: bool = False, ordinal: bool = False,
                  correlations: str = "polychoric correlations", weighted_least_squares: bool = True) -> str:
@@ -319,7 +323,8 @@ class SampleDesign:
                                                            if c.kind is WeightKind.SAMPLING else ""))
             parts.append(f"{c.kind.label} ({c.weights}{extra})")
         if c.cluster is not None:
-            parts.append(f"clusters ({c.cluster}; {self.clusters})")
+            alike = self.similarity.phrase() if self.similarity is not None else ""
+            parts.append(f"clusters ({c.cluster}; {self.clusters}{'; ' + alike if alike else ''})")
         if c.strata is not None:
             parts.append(f"strata ({c.strata}; {self.strata})")
         return "design: " + ", ".join(parts)
@@ -867,7 +872,36 @@ def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list, l
     per_effective = (tuple(float(d.given[0] ** 2 / d.given[1]) if d.given[1] else 0.0 for d in designs)
                      if labels and columns.weights is not None and columns.kind is WeightKind.SAMPLING else ())
     return SampleDesign(columns, rows, total, kish, clusters, strata, group_rows, lone, shared, across, labels,
-                        per_clusters, per_effective)
+                        per_clusters, per_effective, _similarity(moments) if columns.cluster else None)
+
+
+def _similarity(moments: list):
+    """The items' intraclass correlations over the clusters of the rows analysed in every group
+    (data.cluster_similarity), from each group's rows (SampleMoments.rows) or ordinal answers (OrdinalMoments.codes
+    read back as the answers' values); None when the rows are not at hand."""
+    from cfa_tool.data.cluster_similarity import cluster_similarity
+
+    values, clusters = [], []
+    for m in moments:
+        design = getattr(m, "design", None)
+        if design is None or design.clusters is None:
+            return None
+        rows = getattr(m, "rows", None)
+        codes = getattr(m, "codes", None)
+        if rows is None and codes is not None:  # ordinal answers: each code's value, NaN for no answer (-1)
+            rows = np.full(codes.shape, np.nan)
+            for j, levels in enumerate(m.categories):
+                answered = codes[:, j] >= 0
+                if levels and m.names[j] not in getattr(m, "continuous", ()):
+                    rows[answered, j] = np.asarray(levels, dtype=float)[codes[answered, j]]
+        if rows is None or len(rows) != len(design.clusters) or m.names != moments[0].names:
+            return None
+        values.append(np.asarray(rows, dtype=float))
+        names = np.asarray(design.cluster_names, dtype=object) if design.cluster_names else None
+        clusters.append(names[design.clusters] if names is not None else design.clusters)
+    if not values:
+        return None
+    return cluster_similarity(moments[0].names, np.vstack(values), np.concatenate(clusters))
 
 
 

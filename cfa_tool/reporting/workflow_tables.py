@@ -1175,6 +1175,17 @@ def power_report(result) -> Report:
     if result.power is not None:
         rows.append([f"Power with N = {result.n_obs}", unit(result.power), result.power])
     rows.append([f"Smallest N for power {unit(result.target_power, 2)}", str(result.required_n), result.required_n])
+    planned = getattr(result, "clusters", None)  # a planned cluster sample (workflows.power.cluster_plan)
+    if planned is not None:
+        if planned.intraclass is not None:
+            rows.append(["Intraclass correlation (given)", num(planned.intraclass, 3), planned.intraclass])
+        if planned.cluster_size is not None:
+            rows.append(["Rows per cluster (given)", f"{planned.cluster_size:g}", planned.cluster_size])
+        rows.append(["Design effect" + (" (1 + (m - 1) ICC, Kish 1965)" if planned.intraclass is not None
+                                        else " (given)"), num(planned.design_effect, 2), planned.design_effect])
+        rows.append(["Rows needed in the cluster sample", str(planned.rows), planned.rows])
+        if planned.clusters is not None:
+            rows.append([f"Clusters of {planned.cluster_size:g} rows needed", str(planned.clusters), planned.clusters])
     table = _table("power", "Power and sample size", [("", "l"), ("Value", "r")], [r[:2] for r in rows],
                    f"Note: {result.note}." if result.note else None,
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
@@ -1220,7 +1231,11 @@ def power_assumptions() -> Note:
             "answered in full by normally distributed data. A sampling design (clusters or uneven weights make the "
             "effective sample size smaller), missing answers and non-normal data lower it, and this plan models none "
             "of them: count on more rows than shown (with a design, common practice multiplies the N shown by the "
-            "expected design effect). For answers on a few categories (4-point items, say), power-simulation "
+            "expected design effect, which a fit or check of an earlier cluster sample reports with the items' median "
+            "intraclass correlation and the rows per cluster; given here",
+            Command(f" ({Option.DESIGN_EFFECT.given('D')}, or {Option.INTRACLASS.given('ICC')} with "
+                    f"{Option.CLUSTER_SIZE.given('M')})", " as the plan's design effect"),
+            ", the table gives the rows and clusters needed). For answers on a few categories (4-point items, say), power-simulation "
             "simulates ordinal answers, cut from normal latent responses at the thresholds of an earlier ordinal fit",
             Command(f" ({Option.POPULATION_FROM.given('fit.json')})"), " or into equally likely categories",
             Command(f" ({Option.CATEGORIES.given(4)})"), ", and fits them as an ordinal fit does; it simulates no "
