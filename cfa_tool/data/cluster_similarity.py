@@ -91,6 +91,15 @@ class ClusterSimilarity:
                 f"{self.design_effect:.2f} at {self.rows_per_cluster:.1f} rows per cluster (Kish 1965)")
 
 
+    def note(self, column: str) -> str:
+        """Each item's intraclass correlation in one line (check's notes), with the median and its design effect."""
+        items = ", ".join(f"{x} {'not defined' if v != v else _r(v)}" for x, v in zip(self.items, self.intraclass))
+        return (f"Intraclass correlations of the items over the clusters of '{column}' (one-way analysis of variance, "
+                f"unweighted): {items}; median {_r(self.median)}, so a design effect of {self.design_effect:.2f} at "
+                f"{self.rows_per_cluster:.1f} rows per cluster (1 + (m - 1) x ICC, Kish 1965): a rough guide for "
+                f"planning a later sample, since each statistic of a fit has its own design effect")
+
+
 def _r(value: float) -> str:
     """A correlation without its leading zero, hyphen-minus for a negative one (-.02)."""
     text = f"{value:.3f}" if abs(value) < 0.01 else f"{value:.2f}"

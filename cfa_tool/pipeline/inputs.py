@@ -2440,7 +2440,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     return CheckResult(spec, source, len(answered), complete, len(answered) - complete - odd_complete - empty, empty,
                        coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(carried, thresholds) if sample_design is not None else None,
-                       tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
+                       tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ())
+                       + ((sample_design.similarity.note(sample_design.columns.cluster),)  # each item's, for planning
+                          if sample_design is not None and sample_design.similarity is not None else ()),
                        sparse + data_problems(loaded, spec, group, design, ids, coverage=coverage,
                                               n_obs=len(answered), id_column=named_by)
                        + small

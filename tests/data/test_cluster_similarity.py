@@ -72,6 +72,9 @@ def test_fit_and_check_report_the_items_intraclass_correlations(ordinal):
         np.testing.assert_allclose(similarity.intraclass, expected, rtol=1e-10)
         assert similarity.rows_per_cluster == pytest.approx(25.0)
         assert similarity.design_effect == pytest.approx(1 + 24 * np.median(expected))
+    checked = cfa_tool.check(model, data, cluster="school", ordinal=ordinal)
+    (note,) = [str(n) for n in checked.notes if "Intraclass correlations of the items" in str(n)]
+    assert f"x1 {expected[0]:.2f}".replace("0.", ".") in note and "rows per cluster" in note  # each item's, for planning
     fitted = cfa_tool.fit(model, data, cluster="school", ordinal=ordinal)
     said = fitted.design.to_dict()["cluster_similarity"]
     assert said["median_intraclass_correlation"] == pytest.approx(np.median(expected))
