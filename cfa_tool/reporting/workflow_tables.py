@@ -12,7 +12,7 @@ from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATE
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.data.groups import reference_words
-from cfa_tool.language.names import names_text, written_group
+from cfa_tool.language.names import names_text, prose_group, written_group
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
 from cfa_tool.note_parts import Command, Note, TableReference, Text, joined
@@ -807,7 +807,7 @@ def invariance_report(result) -> Report:
     from cfa_tool.workflows.invariance import LEVELS, ORDINAL_LEVELS
 
     return Report(ResultKind.INVARIANCE, f"Measurement invariance across {result.group_column} "
-                  f"({', '.join(written_group(g, result.groups) for g in result.groups)})",
+                  f"({', '.join(prose_group(g, result.groups) for g in result.groups)})",  # a title: as prose (s20)
                   notice, lines, tuple(tables), tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE),
                   invariance_paragraph(result, ORDINAL_LEVELS if ordinal else LEVELS),
                   warnings=tuple(getattr(result, "notes", ())))

@@ -34,3 +34,6 @@ def test_the_invariance_paragraph_names_grades_without_quotes(hs_data):
     assert "the factor means of group 7 were fixed at zero" in text
     assert "against group 7 (d: over the pooled latent standard deviation)" in text
     assert "visual in group 8, " in text
+    from cfa_tool.reporting.workflow_tables import invariance_report
+
+    assert invariance_report(ladder).title == "Measurement invariance across grade (7, 8)"  # the title too
