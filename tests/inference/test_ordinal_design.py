@@ -370,7 +370,7 @@ def test_the_command_line_fits_ordinal_items_under_a_design(survey, tmp_path, ca
                  "--cluster", "unit", "--strata", "stratum", "--json", str(out)]) == 0
     status = " ".join(capsys.readouterr().out.split())
     assert "polychoric correlations (ordinal items), cluster-robust standard errors; design: sampling weights (w;" in status
-    assert "clusters (unit; 80), strata (stratum; 4)" in status
+    assert "clusters (unit; 80; median intraclass correlation of the items" in status and "strata (stratum; 4)" in status
     saved = json.loads(out.read_text())
     assert saved["design"]["clusters"] == 80 and saved["design"]["strata"] == 4
     assert "cluster-robust standard errors" in saved["estimator"]
