@@ -178,6 +178,9 @@ class Option(enum.Enum):
     HIGHEST_LEVEL = ("--highest-level", "highest_level")
     DECIDE_BY = ("--decide-by", "decide_by")
     PARTIAL = ("--partial", "partial")
+    DESIGN_EFFECT = ("--design-effect", "design_effect")  # power: a planned sample's design effect
+    CLUSTER_SIZE = ("--cluster-size", "cluster_size")  # power: rows per cluster of a planned sample
+    INTRACLASS = ("--intraclass", "intraclass")  # power: the items' intraclass correlation in a planned sample
     MAX_ITERATIONS = ("--max-iterations", "max_iterations")
     SCORE_METHODS = ("--method", "methods", None, True)
     MISSING_HELPERS = ("--missing-helpers", "missing_helpers", None, True)

@@ -15,6 +15,16 @@ def add_parser(sub) -> None:
     power.add_argument("--test", choices=("close", "not-close", "exact"), default="close", help="which test (default close)")
     power.add_argument("--alpha", type=float, default=0.05, help="significance level (default .05)")
     power.add_argument("--target", type=float, default=0.80, help="power the sample size should reach (default .80)")
+    power.add_argument("--design-effect", type=float, metavar="D",
+                       help="a planned cluster sample's design effect (at least 1): the rows it needs are D times the N "
+                            "of independent rows; with --cluster-size, the clusters too")
+    power.add_argument("--cluster-size", type=float, metavar="M",
+                       help="rows per cluster of a planned cluster sample (e.g. the 'rows per cluster' a fit or check "
+                            "with --cluster reports): with --intraclass or --design-effect, the clusters needed")
+    power.add_argument("--intraclass", type=float, metavar="ICC",
+                       help="the items' intraclass correlation in the planned clusters (e.g. the median a fit or check "
+                            "with --cluster reports); with --cluster-size it gives the design effect 1 + (M - 1) ICC "
+                            "(Kish 1965)")
     add_report_options(power)
 
 
@@ -40,4 +50,6 @@ def run(args: argparse.Namespace) -> int:
                               f"and there is no power to compute")
     if df is None:
         raise OptionError("give a model file or --df")
-    return emit(args, plan(df, args.test, args.n, args.alpha, args.target, variables=variables, ordinal=ordinal))
+    return emit(args, plan(df, args.test, args.n, args.alpha, args.target, variables=variables, ordinal=ordinal,
+                           design_effect=args.design_effect, cluster_size=args.cluster_size,
+                           intraclass=args.intraclass))

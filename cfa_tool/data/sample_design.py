@@ -170,6 +170,9 @@ class SampleDesign:
     group_labels: tuple[str, ...] = ()
     group_clusters: tuple[int, ...] = ()
     group_effective: tuple[float, ...] = ()
+    #: data.cluster_similarity.ClusterSimilarity: the items' intraclass correlations over the clusters and the design
+    #: effect they imply, for planning a later sample (new-user trial s20); None without clusters
+    similarity: object | None = None
 
     def to_dict(self) -> dict:
         c = self.columns
@@ -181,7 +184,8 @@ class SampleDesign:
                            "domains sharing clusters" if self.shared_clusters else "independent samples"),
                 "strata_with_a_single_unit": list(self.lone_strata),
                 "strata_shared_by_groups": list(self.shared_strata),
-                "single_unit_centred_at": "the mean of all units' sums" if self.lone_strata else None}
+                "single_unit_centred_at": "the mean of all units' sums" if self.lone_strata else None,
+                "cluster_similarity": self.similarity.to_dict() if self.similarity is not None else None}
 
     def sentence(self, full_information: bool = False, ordinal: bool = False,
                  correlations: str = "polychoric correlations", weighted_least_squares: bool = True) -> str:
@@ -214,10 +218,14 @@ class SampleDesign:
         # inference/design.design_meat: weighted sums per cluster (or per row), centred within strata, C/(C - 1)
         units = "clusters" if c.cluster else "rows"
         if c.strata is not None:
+            # in a methods section's words (new-user trial s20): the formula, sum_h C_h/(C_h - 1) ..., is in
+            # inference/design.py's docstring
             spread = (f"the {units}' weighted sums centred within each stratum (the variance between {units} within "
-                      f"strata, times C_h/(C_h - 1) for the C_h {units} of stratum h; Binder, 1983)")
+                      f"strata, each stratum's multiplied by its number of {units} over that number less one; Binder, "
+                      f"1983)")
         else:
-            spread = f"the {units}' weighted sums" + (" (times C/(C - 1) for C clusters; Binder, 1983)" if c.cluster else "")
+            spread = f"the {units}' weighted sums" + (" (multiplied by the number of clusters over that number less "
+                                                      "one; Binder, 1983)" if c.cluster else "")
         after = ""
         if self.group_rows and self.shared_clusters:
             after += (" The groups are domains that share clusters: their estimating equations are stacked, and each "
@@ -316,7 +324,8 @@ class SampleDesign:
                                                            if c.kind is WeightKind.SAMPLING else ""))
             parts.append(f"{c.kind.label} ({c.weights}{extra})")
         if c.cluster is not None:
-            parts.append(f"clusters ({c.cluster}; {self.clusters})")
+            alike = self.similarity.phrase() if self.similarity is not None else ""
+            parts.append(f"clusters ({c.cluster}; {self.clusters}{'; ' + alike if alike else ''})")
         if c.strata is not None:
             parts.append(f"strata ({c.strata}; {self.strata})")
         return "design: " + ", ".join(parts)
@@ -386,12 +395,17 @@ class SampleDesign:
                 f"for), which are sampling weights, not counts of identical rows.")
 
     def caution(self, free_parameters: int, thresholds: int = 0) -> str | None:
-        """Why cluster-robust standard errors are in doubt with this few clusters (None with enough of them): too
-        optimistic below about 30-50 clusters (common practice), and singular with no more clusters than the
-        parameters the design-based covariance must carry (the clusters' score sums then span too few dimensions),
-        however many clusters that is: the model's ``free_parameters`` and, of an ordinal fit in one group, its
-        ``thresholds``, estimated in a first step whose covariance under the design is part of the same sandwich
-        (new-user trial s18: 40 clusters against 22 parameters and 48 thresholds)."""
+        """Why cluster-robust standard errors and tests are in doubt with this few clusters (None with enough of them),
+        in words a methods section can keep: with no more clusters than the parameters the design-based covariance
+        must carry (the model's ``free_parameters`` and, of an ordinal fit in one group, its ``thresholds``, estimated
+        in a first step whose covariance under the design is part of the same sandwich; new-user trial s18: 40 clusters
+        against 22 parameters and 48 thresholds), that covariance, a sum over the clusters' centred score sums, has
+        rank at most C - 1, so joint (Wald-type) tests and a scaled statistic, which use the whole matrix, are
+        unreliable, while each standard error, one diagonal entry, is a usable if somewhat small estimate (Cameron &
+        Miller 2015, section on few clusters, recalled from memory, not checked here); below about 30-50 clusters
+        cluster-robust standard errors tend to be too small (common practice).  Never advises leaving the clusters
+        out, which makes every standard error too small when rows of one cluster answer alike (new-user trial s20):
+        the advice is :func:`few_clusters_advice`."""
         if self.clusters is None:
             return None
         carried = free_parameters + thresholds
@@ -399,19 +413,37 @@ class SampleDesign:
                    if thresholds else f"the {free_parameters} free parameters")
         where = f"Only {self.clusters} clusters in '{self.columns.cluster}'"
         if self.clusters <= carried:
-            return (f"{where}, no more than {counted}: the cluster-robust covariance of the estimates is singular, "
-                    f"so its standard errors and scaled test mean little.")
+            return (f"{where}, no more than {counted}: the cluster-robust covariance of the estimates is built from "
+                    f"the clusters' sums, so it can describe at most {max(self.clusters - 1, 0)} independent "
+                    f"directions (one fewer than the clusters), fewer than the parameters it covers. Tests of many "
+                    f"parameters at once rest on the whole of that covariance and are unreliable here: the scaled "
+                    f"chi-square test, its p-value and the robust CFI, TLI and RMSEA made from it (Cameron & Miller, "
+                    f"2015). Each standard error on its own is less affected, though with few clusters standard "
+                    f"errors tend to be somewhat too small.")
         if self.clusters >= SMALL_NUMBER_OF_CLUSTERS:
             few = self._few_cluster_groups()
             if not few:
                 return None
             listed = ", ".join(f"'{label}' ({k})" for label, k in few)
             return (f"Few clusters of '{self.columns.cluster}' in group{'s' if len(few) > 1 else ''} {listed}: each "
-                    f"group's estimates and their cluster-robust standard errors rest on its own clusters, which are "
-                    f"too optimistic with fewer than about 30-50 clusters (common practice), and mean little with no "
-                    f"more clusters than the group's free parameters.")
-        return (f"{where}: cluster-robust standard errors and tests are too optimistic with fewer than about 30-50 "
-                f"clusters (common practice).")
+                    f"group's estimates and their cluster-robust standard errors rest on its own clusters; with fewer "
+                    f"than about 30-50 clusters (common practice) the standard errors tend to be too small, and with "
+                    f"no more clusters than the group's free parameters tests of many parameters at once are "
+                    f"unreliable.")
+        return (f"{where}: with fewer than about 30-50 clusters (common practice) cluster-robust standard errors and "
+                f"tests tend to be too small, so p-values near the chosen level are less certain than they look.")
+
+
+def few_clusters_advice(ordinal: bool = False) -> str:
+    """What helps with too few clusters (:meth:`SampleDesign.caution`), never leaving them out (new-user trial s20:
+    'fit without --cluster' made every standard error too small when rows of one cluster answer alike): keep them,
+    read single standard errors rather than joint tests, fewer parameters (of ``ordinal`` items, fewer answer
+    categories, so fewer thresholds), more clusters in a later sample."""
+    fewer = ("fewer parameters help (rarely used answer categories merged mean fewer thresholds)" if ordinal else
+             "fewer parameters help")
+    return ("keep the clusters (leaving them out makes every standard error too small when rows of one cluster answer "
+            "alike); read the single standard errors and confidence intervals rather than the scaled test; "
+            f"{fewer}, and so do more clusters in a later sample.")
 
 
 #: the first note under the modification indices of a fit under a sampling design (SampleDesign.score_test_text)
@@ -853,7 +885,36 @@ def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list, l
     per_effective = (tuple(float(d.given[0] ** 2 / d.given[1]) if d.given[1] else 0.0 for d in designs)
                      if labels and columns.weights is not None and columns.kind is WeightKind.SAMPLING else ())
     return SampleDesign(columns, rows, total, kish, clusters, strata, group_rows, lone, shared, across, labels,
-                        per_clusters, per_effective)
+                        per_clusters, per_effective, _similarity(moments) if columns.cluster else None)
+
+
+def _similarity(moments: list):
+    """The items' intraclass correlations over the clusters of the rows analysed in every group
+    (data.cluster_similarity), from each group's rows (SampleMoments.rows) or ordinal answers (OrdinalMoments.codes
+    read back as the answers' values); None when the rows are not at hand."""
+    from cfa_tool.data.cluster_similarity import cluster_similarity
+
+    values, clusters = [], []
+    for m in moments:
+        design = getattr(m, "design", None)
+        if design is None or design.clusters is None:
+            return None
+        rows = getattr(m, "rows", None)
+        codes = getattr(m, "codes", None)
+        if rows is None and codes is not None:  # ordinal answers: each code's value, NaN for no answer (-1)
+            rows = np.full(codes.shape, np.nan)
+            for j, levels in enumerate(m.categories):
+                answered = codes[:, j] >= 0
+                if levels and m.names[j] not in getattr(m, "continuous", ()):
+                    rows[answered, j] = np.asarray(levels, dtype=float)[codes[answered, j]]
+        if rows is None or len(rows) != len(design.clusters) or m.names != moments[0].names:
+            return None
+        values.append(np.asarray(rows, dtype=float))
+        names = np.asarray(design.cluster_names, dtype=object) if design.cluster_names else None
+        clusters.append(names[design.clusters] if names is not None else design.clusters)
+    if not values:
+        return None
+    return cluster_similarity(moments[0].names, np.vstack(values), np.concatenate(clusters))
 
 
 

@@ -49,6 +49,21 @@ def written_group(label: str, labels: Sequence[str] = ()) -> str:
     return label
 
 
+#: a group label a sentence of prose can hold without quotes: one word of letters or digits, hyphens, full stops or
+#: apostrophes inside it ('8', 'translated', 'grade-8', 'École'), which no comma, bracket or space runs into the sentence
+_PROSE_PLAIN = re.compile(r"[^\W_](?:[\w'.-]*[^\W_])?\Z")
+
+
+def prose_group(label: str, labels: Sequence[str] = ()) -> str:
+    """A group's label as a methods paragraph names it among ``labels`` (every group label of the fit): as it is when
+    every one of them is one word or number ('in group 8', new-user trial s20, where '"8"' read as code), else by
+    :func:`written_group`, whose quotes then delimit labels that hold spaces, commas or brackets, all alike."""
+    label = str(label)
+    if _PROSE_PLAIN.match(label) and all(_PROSE_PLAIN.match(str(x)) for x in labels):
+        return label
+    return written_group(label, labels)
+
+
 def names_text(names) -> str:
     """Several names as a list of the model language writes them: ``a, "b c"``."""
     return ", ".join(written_name(n) for n in names)

@@ -39,8 +39,8 @@ from cfa_tool.data.readers import (LoadedData, blank_text_as_missing, drop_blank
 from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame, renamed_hint
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DOMINANT_SHARE, DOMINANT_TIMES, DesignColumns, apply_design, check_design,
-                                         design_columns, design_summary, design_weights, refuse_shared_clusters,
-                                         shared_cluster)
+                                         design_columns, design_summary, design_weights, few_clusters_advice,
+                                         refuse_shared_clusters, shared_cluster)
 from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, NotGiven, holds_summary, pasted_matrix, read_summary_file,
                                          summary_in_other_text, summary_moments)
 from cfa_tool import options as opt
@@ -1519,14 +1519,15 @@ def design_test(fit_options, design: DesignColumns):
     return replace(fit_options, test=FitTest.ROBUST)  # resolved for the rows as --robust is (FitOptions, assess)
 
 
-def design_problems(design, free: int, thresholds: int = 0, dominant=None, robust=None) -> tuple:
+def design_problems(design, free: int, thresholds: int = 0, dominant=None, robust=None, ordinal: bool = False) -> tuple:
     """The cautions of a sampling ``design`` (data.sample_design.SampleDesign) on a model of ``free`` parameters
     (and ``thresholds`` estimated in a first step, of an ordinal fit in one group), first in every view, the same
     for fit, check, compare and invariance: too few clusters for cluster-robust standard errors, one cluster that
     holds most of the design effect of the statistics (``dominant``, a data.sample_design.DominantCluster; the
     fit's scaled test ``robust`` then described by it), weights so uneven that Kish's effective sample size is
     below half the rows, and frequency weights so large that they look like expansion (sampling) weights
-    (first)."""
+    (first).  Each advice names only a route the run's estimator accepts (``ordinal``: a least-squares fit of
+    ordinal items, which refuses clusters shared by groups; :func:`shared_clusters_route`)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     problems: tuple = ()
@@ -1536,9 +1537,7 @@ def design_problems(design, free: int, thresholds: int = 0, dominant=None, robus
     caution = design.caution(free, thresholds)
     if caution:  # the standard errors and tests themselves are in doubt
         problems += (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.judged_clusters), caution,
-                             Note(("read the p-values with caution, or fit without ",
-                                   Command(f"{Option.CLUSTER}", "the clusters"),
-                                   " and say that rows are nested in clusters."))),)
+                             few_clusters_advice(ordinal or thresholds > 0)),)
     counts = design.frequency_caution()
     if counts:  # N itself is in doubt: first
         problems = (Problem(ProblemKind.FREQUENCY_WEIGHTS_LARGE, (), float(design.sum_of_weights), counts,
@@ -1551,19 +1550,34 @@ def design_problems(design, free: int, thresholds: int = 0, dominant=None, robus
     across = design.shared_strata_caution()
     if across:
         problems += (Problem(ProblemKind.GROUPS_SHARE_STRATA, (), float(len(design.shared_strata)), across,
-                             Note(("if rows of the groups share households or other clusters, ",
-                                   Command(f"give them with {Option.CLUSTER}", "give those clusters too"),
-                                   ": groups that share clusters are then analysed as domains of one sample (with "
-                                   "complete rows only when rows have gaps",
-                                   Command(f", {Option.INCOMPLETE_ROWS.given('listwise')}"),
-                                   "); otherwise say in the report that the groups were treated as drawn apart "
-                                   "within strata."))),)
+                             Note(("if rows of the groups share households or other clusters, ",)
+                                  + shared_clusters_route(ordinal).parts
+                                  + ("; otherwise say in the report that the groups were treated as drawn apart "
+                                     "within strata.",))),)
     uneven = design.weight_caution()
     if uneven:
         problems += (Problem(ProblemKind.SMALL_EFFECTIVE_SAMPLE, (), round(float(design.judged_effective_n), 1), uneven,
                              "check the weights (a few rows may carry most of them), trim extreme weights by the survey's "
                              "rules, or report the unweighted fit beside the weighted one."),)
     return problems
+
+
+def shared_clusters_route(ordinal: bool) -> Note:
+    """The route that takes clusters shared by groups (domains of one cluster sample) into account, for the run's
+    estimator: the one rule the advice follows, as :func:`moments_for` and :func:`ordinal_moments_for` refuse them
+    (data.sample_design.refuse_shared_clusters): continuous items by maximum likelihood with complete rows take
+    them; full-information ML takes them only from the complete rows; the least-squares fit of ordinal items does
+    not, so its advice never sends the user to the clusters it refuses (new-user trial s20)."""
+    complete = ("(with complete rows only when rows have gaps", Command(f", {Option.INCOMPLETE_ROWS.given('listwise')}"),
+                ")")
+    if not ordinal:
+        return Note((Command(f"give them with {Option.CLUSTER}", "give those clusters too"),
+                     ": groups that share clusters are then analysed as domains of one sample ") + complete)
+    return Note(("the fit of ordinal items does not yet take clusters shared by groups into account",
+                 Command(f" (it refuses {Option.CLUSTER} then)"),
+                 "; to keep them, analyse the items as continuous by maximum likelihood",
+                 Command(f" (leave out {Option.ORDINAL} or the model's 'ordinal' statement, give {Option.CLUSTER})"),
+                 ", which reads answers of few categories as numbers ") + complete)
 
 
 def extreme_scaling(robust) -> str:
@@ -1673,7 +1687,7 @@ def with_design(result: FitResult, design, moments=()) -> FitResult:
                   and len(moments) == 1 and hasattr(moments[0], "thresholds") else 0)
     problems = result.problems + design_problems(design, free_parameters(result), thresholds,
                                                  _dominant(moments, result) if design.columns.cluster else None,
-                                                 result.robust)  # one count for every command
+                                                 result.robust, result.method.ordinal)  # one count for every command
     lone = design.lone_caution()  # conservative, not optimistic: a note, and the methods paragraph says it
     warnings = result.warnings + ((lone,) if lone and lone not in result.warnings else ())
     fit = result.fit
@@ -2430,11 +2444,14 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     return CheckResult(spec, source, len(answered), complete, len(answered) - complete - odd_complete - empty, empty,
                        coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(carried, thresholds) if sample_design is not None else None,
-                       tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
+                       tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ())
+                       + ((sample_design.similarity.note(sample_design.columns.cluster),)  # each item's, for planning
+                          if sample_design is not None and sample_design.similarity is not None else ()),
                        sparse + data_problems(loaded, spec, group, design, ids, coverage=coverage,
                                               n_obs=len(answered), id_column=named_by)
                        + small
-                       + (design_problems(sample_design, carried, thresholds) if sample_design is not None else ()),
+                       + (design_problems(sample_design, carried, thresholds, ordinal=bool(ordinal_items))
+                          if sample_design is not None else ()),
                        len(frame) - len(answered), odd_complete,
                        len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted,
                        group_rows=tuple(m.n_obs for _, m in groups) if labels else (),

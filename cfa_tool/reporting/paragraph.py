@@ -28,7 +28,7 @@ from cfa_tool.data.non_answers import non_answer_clause
 from cfa_tool.data.answer_words import coding_described
 from cfa_tool.data.descriptives import FEW_CATEGORIES
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
-from cfa_tool.language.names import written_group, written_name
+from cfa_tool.language.names import prose_group, written_name
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
 from cfa_tool.note_parts import WORDS as MANUSCRIPT, said as said_in  # ('said' names sentences here)
@@ -65,21 +65,22 @@ def _name(name) -> str:
 
 
 def _group_names(groups) -> list[str]:
-    """The groups' labels written alike by the one rule (language.names.written_group): every one in double quotes
-    when any needs them, so that a list of groups does not quote some and not others (new user s14)."""
+    """The groups' labels written alike by the one rule of prose (language.names.prose_group): every one in double
+    quotes when any needs them, so that a list of groups does not quote some and not others (new user s14), none
+    when each is one word or number (new-user trial s20)."""
     labels = [g.label for g in groups]
-    return [written_group(label, labels) for label in labels]
+    return [prose_group(label, labels) for label in labels]
 
 
 def group_labels(result) -> tuple[str, ...]:
     """The group labels of a fit in groups (empty for one group), among which every text names each group
-    (language.names.written_group)."""
+    (language.names.prose_group)."""
     return tuple(g.label for g in result.groups) if getattr(result, "multigroup", False) else ()
 
 
 def _phrase(problem, result) -> str:
     """A problem of ``result`` in the paragraph's words: its names quoted as the model language writes them, its
-    group named among the fit's groups (language.names.written_group)."""
+    group named among the fit's groups (language.names.prose_group)."""
     return problem.phrase(quoted=True, groups=group_labels(result))
 
 
@@ -318,7 +319,7 @@ def _scale_sentence(d) -> str:
     sentences = [_scales_in_words(shared, d.scales)] if shared else []
     for label, scales in d.group_scales:
         words = _scales_in_words([s for s in scales if s not in shared], scales)
-        sentences.append(f"In group {written_group(label, d.groups)}, {words[:1].lower()}{words[1:]}")
+        sentences.append(f"In group {prose_group(label, d.groups)}, {words[:1].lower()}{words[1:]}")
     different = [s.factor for s in d.scales if s not in shared]
     sentences.append(f"Scaled differently in different groups, {_names(different)} "
                      f"{'are' if len(different) > 1 else 'is'} not on the same metric in every group.")
@@ -638,7 +639,7 @@ def _pairs_by_group(result) -> str:
     if not ranges or any(r is None for _, r in ranges):
         return ""
     labels = [label for label, _ in ranges]
-    return " over the groups and " + _list([f"{low} to {high} in {written_group(label, labels)}"
+    return " over the groups and " + _list([f"{low} to {high} in group {prose_group(label, labels)}"
                                             for label, (low, high) in ranges])
 
 
@@ -894,7 +895,7 @@ def _negative_count(rows, groups: list) -> str:
     counts = [sum(r.group == g for r in negative) for g in groups]
     if len(set(counts)) == 1:
         return f"{counts[0]} negative in each group"
-    return "negative: " + _list([f"{n} in {written_group(g, groups)}" for n, g in zip(counts, groups)])
+    return "negative: " + _list([f"{n} in group {prose_group(g, groups)}" for n, g in zip(counts, groups)])
 
 
 def _reliability_sentence(result) -> str:
@@ -954,11 +955,11 @@ def _factor_means_sentence(result) -> str:
     every = {r.variables[0] for r in means}
     if len(at_zero) == len(labels):
         return "The factor means were fixed at zero in every group."
-    parts = [f"fixed at zero in {_list([written_group(g, labels) for g in at_zero])}"] if at_zero else []
+    parts = [f"fixed at zero in {'group' if len(at_zero) == 1 else 'groups'} {_list([prose_group(g, labels) for g in at_zero])}"] if at_zero else []
     whole = [g for g in labels if estimated[g] and set(estimated[g]) == every]
     if whole:
-        parts.append(f"estimated in {_list([written_group(g, labels) for g in whole])}")
-    parts += [f"estimated for {_names(estimated[g])} in {written_group(g, labels)}" for g in labels
+        parts.append(f"estimated in {'group' if len(whole) == 1 else 'groups'} {_list([prose_group(g, labels) for g in whole])}")
+    parts += [f"estimated for {_names(estimated[g])} in group {prose_group(g, labels)}" for g in labels
               if estimated[g] and g not in whole]
     return f"The factor means were {_list(parts)}." if parts else ""
 
@@ -1286,7 +1287,7 @@ def scores_paragraph(result) -> str:
                      f"{'has' if sum(empty.values()) == 1 else 'have'} no score ("
                      + "; ".join(f"{why.words}: {count_text(n)}" for why, n in empty.items() if isinstance(why, NotScored)) + ").")
     for q in result.quality:
-        where = f" in group {written_group(q.group, group_labels(fit))}" if grouped and q.group is not None else ""
+        where = f" in group {prose_group(q.group, group_labels(fit))}" if grouped and q.group is not None else ""
         if hasattr(q, "methods"):
             parts.append(f"With every item answered, the determinacy of the factors{where} (the correlation of the "
                          f"regression scores with their factor; Grice, 2001) was {_values_of(q.factors, q.determinacy)}.")
@@ -1665,10 +1666,10 @@ def _small_groups(result) -> str:
     labels = group_labels(result) or tuple(f.group for f in small)
     if len(small) == 1:
         (facts,) = small
-        return (f"Group {written_group(facts.group, labels)} had {count_text(facts.rows)} rows for the {facts.parameters} free "
+        return (f"Group {prose_group(facts.group, labels)} had {count_text(facts.rows)} rows for the {facts.parameters} free "
                 f"parameters of its model{facts.besides()}, so its estimates, and every comparison with the other groups, rest on too "
                 f"few answers.")
-    named = _list([f"{written_group(f.group, labels)} ({count_text(f.rows)} rows for {f.parameters} parameters)" for f in small])
+    named = _list([f"{prose_group(f.group, labels)} ({count_text(f.rows)} rows for {f.parameters} parameters)" for f in small])
     return (f"Groups {named} had fewer rows than the free parameters of their model, so their estimates, and every "
             f"comparison with the other groups, rest on too few answers.")
 
@@ -1698,7 +1699,7 @@ def invariance_paragraph(result, levels) -> str:
         shape = _shape(first, d)
         parts.append(f"The configural model had {_structure(d, shape).rstrip(',')}, with the same pattern in every "
                      f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
-                     f"{written_group(result.groups[0], result.groups)} were fixed at zero.")
+                     f"group {prose_group(result.groups[0], result.groups)} were fixed at zero.")
         parts += _scale_sentences(d, getattr(result, "data_problems", ()))
         departures = _departures(d, shape)
         if departures:
@@ -1779,7 +1780,7 @@ def invariance_paragraph(result, levels) -> str:
                      f"that did not hold, so {'they compare' if len(conditional) > 1 else 'it compares'} models "
                      f"already rejected.")
     if result.latent_differences:
-        diffs = "; ".join(f"{_name(x.factor)} in {written_group(x.group, result.groups)}, {num(x.mean, 2)} "
+        diffs = "; ".join(f"{_name(x.factor)} in group {prose_group(x.group, result.groups)}, {num(x.mean, 2)} "
                           f"(SE = {num(x.se, 2)}, {_p(x.p_value)}, "
                           f"d = {num(x.standardized, 2)})" for x in result.latent_differences)
         scalar = next(k for k, s in enumerate(steps) if s.level == "scalar")
@@ -1787,7 +1788,7 @@ def invariance_paragraph(result, levels) -> str:
         source = (f"atent mean differences from the "
                   f"{'partially invariant ' if any(s.partly_equal for s in steps if s.level != 'strict') else ''}"
                   f"scalar model")
-        against = f"against {written_group(result.groups[0], result.groups)} (d: over the pooled latent standard deviation): {diffs}."
+        against = f"against group {prose_group(result.groups[0], result.groups)} (d: over the pooled latent standard deviation): {diffs}."
         parts.append(f"Resting on {basis}, the l{source} cannot be read as established; {against}" if basis else
                      f"L{source}, {against}")
         totals = list(dict.fromkeys(x.factor for x in result.latent_differences if x.total))

@@ -12,7 +12,7 @@ from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATE
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.data.groups import reference_words
-from cfa_tool.language.names import names_text, written_group
+from cfa_tool.language.names import names_text, prose_group, written_group
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
 from cfa_tool.note_parts import Command, Note, TableReference, Text, joined
@@ -792,14 +792,16 @@ def invariance_report(result) -> Report:
     if result.freed:
         many = len(result.groups) > 2
         rows = [[f.level, parameter_words(f.kind, f.variables, article=False), *([str(f.group)] if many else []),
-                 num(f.score, 2)] for f in result.freed]
+                 num(f.score, 2), _freed_estimates(f)] for f in result.freed]
         values = [[f.level, parameter_words(f.kind, f.variables, article=False), *([str(f.group)] if many else []),
-                   f.score] for f in result.freed]
+                   f.score, _freed_estimates(f)] for f in result.freed]
         columns = [("Level", "l"), ("Parameter", "l")] + ([("Pointed to by group", "l")] if many else []) + [
-            ("Score test", "r")]
+            ("Score test", "r"), ("Estimate in each group (SE)", "l")]
         note = (f"Score tests: {result.score_tests.phrase}, each compared with chi-square(1) at alpha = "
                 f"{unit(result.alpha, 3).rstrip('0')}, the level the search stops at."
 
+                + " Estimates in each group: the fit of the step's partial model, unstandardized (fixed: set by the "
+                  "model's scaling, no SE)."
                 + (" Each freed parameter is freed in every group: its equality across the groups is dropped, so it "
                    "may differ between any of them; 'Pointed to by group' names the group whose constraint had the "
                    "largest score test." if many else ""))
@@ -854,7 +856,7 @@ def invariance_report(result) -> Report:
     from cfa_tool.workflows.invariance import LEVELS, ORDINAL_LEVELS
 
     return Report(ResultKind.INVARIANCE, f"Measurement invariance across {result.group_column} "
-                  f"({', '.join(written_group(g, result.groups) for g in result.groups)})",
+                  f"({', '.join(prose_group(g, result.groups) for g in result.groups)})",  # a title: as prose (s20)
                   notice, lines, tuple(tables), tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE),
                   invariance_paragraph(result, ORDINAL_LEVELS if ordinal else LEVELS),
                   warnings=T.higher_order_cautions(first) + tuple(getattr(result, "notes", ())))
@@ -1031,6 +1033,13 @@ ORDINAL_BOOTSTRAP = ("Ordinal items: each resample gets its own thresholds and p
                      "by {estimator}. Only the parameters are bootstrapped, by percentile intervals: BCa's acceleration "
                      "and the Bollen-Stine bootstrap of the test are built for continuous rows and have no counterpart "
                      "for ordinal answers, so the test of fit remains the fit's adjusted one.")
+
+
+def _freed_estimates(freed) -> str:
+    """A freed parameter's estimate in each group of its step's partial model, with its standard error ('Grant-White
+    2.00 (0.09); Pasteur 2.53 (0.11)'), so that the size and the direction of the difference show (new-user trial
+    s20)."""
+    return "; ".join(f"{g} {num(e, 2)} ({num(se, 2) if free else 'fixed'})" for g, e, se, free in freed.estimates)
 
 
 def _equal_tests_note(freed) -> str:
@@ -1260,6 +1269,17 @@ def power_report(result) -> Report:
         rows.append([f"Power with N = {count_text(result.n_obs)}", unit(result.power), result.power])
     digits = next((d for d in range(2, 9) if round(result.target_power, d) == result.target_power), 9)
     rows.append([f"Smallest N for power {unit(result.target_power, digits)}", str(result.required_n), result.required_n])
+    planned = getattr(result, "clusters", None)  # a planned cluster sample (workflows.power.cluster_plan)
+    if planned is not None:
+        if planned.intraclass is not None:
+            rows.append(["Intraclass correlation (given)", num(planned.intraclass, 3), planned.intraclass])
+        if planned.cluster_size is not None:
+            rows.append(["Rows per cluster (given)", f"{planned.cluster_size:g}", planned.cluster_size])
+        rows.append(["Design effect" + (" (1 + (m - 1) ICC, Kish 1965)" if planned.intraclass is not None
+                                        else " (given)"), num(planned.design_effect, 2), planned.design_effect])
+        rows.append(["Rows needed in the cluster sample", str(planned.rows), planned.rows])
+        if planned.clusters is not None:
+            rows.append([f"Clusters of {planned.cluster_size:g} rows needed", str(planned.clusters), planned.clusters])
     table = _table("power", "Power and sample size", [("", "l"), ("Value", "r")], [r[:2] for r in rows],
                    f"Note: {result.note}." if result.note else None,
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
@@ -1307,7 +1327,11 @@ def power_assumptions() -> Note:
             "answered in full by normally distributed data. A sampling design (clusters or uneven weights make the "
             "effective sample size smaller), missing answers and non-normal data lower it, and this plan models none "
             "of them: count on more rows than shown (with a design, common practice multiplies the N shown by the "
-            "expected design effect). For answers on a few categories (4-point items, say), power-simulation "
+            "expected design effect, which a fit or check of an earlier cluster sample reports with the items' median "
+            "intraclass correlation and the rows per cluster; given here",
+            Command(f" ({Option.DESIGN_EFFECT.given('D')}, or {Option.INTRACLASS.given('ICC')} with "
+                    f"{Option.CLUSTER_SIZE.given('M')})", " as the plan's design effect"),
+            ", the table gives the rows and clusters needed). For answers on a few categories (4-point items, say), power-simulation "
             "simulates ordinal answers, cut from normal latent responses at the thresholds of an earlier ordinal fit",
             Command(f" ({Option.POPULATION_FROM.given('fit.json')})"), " or into equally likely categories",
             Command(f" ({Option.CATEGORIES.given(4)})"), ", and fits them as an ordinal fit does; it simulates no "

@@ -842,7 +842,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
                                spec, answered, sums) if ordinal_items else _linear_quality(models, spec, sums)
     result = _with_repeated_ids(result, ids, id_column)
-    extra = duplicate_note(ids, "id column" if id_column is not None else "row names", False) + _partly_answered(
+    result, few = _few_clusters_as_note(result)
+    extra = few + duplicate_note(ids, "id column" if id_column is not None else "row names", False) + _partly_answered(
         models[0].base if ordinal_items else models[0], answered, chosen, errors)
     if ids is not None and id_column is None:
         extra.insert(0, Note((f"The first column holds the row names of {source} (its first column, which has no "
@@ -878,6 +879,22 @@ def _id_column_note(read_frame: pd.DataFrame, source: str, spec, group, design) 
     return [Note((f"No column names the rows in the scores file, whose lines follow the rows of {source} in order; "
                   f"the column '{printable(column)}' holds a different value in every row and could name them",
                   Command(f" ({Option.ID_COLUMN.given(column)})"), "."))]
+
+
+def _few_clusters_as_note(result) -> tuple[FitResult, list[str]]:
+    """The fit without its caution on too few clusters, and a one-line note in its place: that caution is about the
+    fit's standard errors and tests, and clusters change no score (new-user trial s20: it headed the scores' report)."""
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    few = [p for p in result.problems if p.kind is ProblemKind.FEW_CLUSTERS]
+    if not few:
+        return result, []
+    design = getattr(result, "design", None)  # a saved fit (SavedFit) has none
+    clusters = ("few clusters" if few[0].value is None else f"only {int(few[0].value)} clusters") + (
+        f" of '{design.columns.cluster}'" if design is not None and design.columns.cluster else "")
+    return (replace(result, problems=tuple(p for p in result.problems if p.kind is not ProblemKind.FEW_CLUSTERS)),
+            [f"The fit's standard errors and test rest on {clusters}, too few to trust its joint tests (see the "
+             f"fit's report); clusters change no score"])
 
 
 def _after_data_cautions(result, data_cautions, scored) -> FitResult:
@@ -1091,6 +1108,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         scored_only=True, by_loadings=api.reversed_by_loadings(result))
     # (the fit's own file scored again: its findings of the same kinds are the scored file's, said once)
     again = {p.kind for p in own} if (source, len(read_frame)) == (result.data.source, result.data.rows_read) else set()
+    result, few = _few_clusters_as_note(result)
+    notes[:0] = few
     result = replace(result, problems=own + tuple(replace(p, explanation=ABOUT_THE_FIT + p.explanation)
                                                   for p in result.problems if p not in own and p.kind not in again))
     from cfa_tool.scoring.model import OrdinalScoringModel

@@ -140,11 +140,23 @@ class FreedParameter:
     #: (kind, variables) of the parameters whose score tests equalled this one's (EQUAL_SCORE_TESTS): freeing one of
     #: them instead would fit as well; this one was freed as the first of them in the model's order
     equal_tests: tuple[tuple[str, tuple[str, ...]], ...] = ()
+    #: (group, estimate, standard error, free) of the freed parameter in each group in the fit of its step's partial
+    #: model: how large the difference is, and which way (new-user trial s20: only the score test was given)
+    estimates: tuple[tuple[str, float, float, bool], ...] = ()
 
     def to_dict(self) -> dict:
         return clean({"level": self.level, "kind": self.kind, "variables": list(self.variables), "group": self.group,
                       "score_test": self.score,
-                      "equal_score_tests": [{"kind": k, "variables": list(v)} for k, v in self.equal_tests]})
+                      "equal_score_tests": [{"kind": k, "variables": list(v)} for k, v in self.equal_tests],
+                      "estimates": [{"group": g, "estimate": e, "se": se if free else None,
+                                     "free": free} for g, e, se, free in self.estimates]})
+
+
+def freed_estimates(result: FitResult, freed: FreedParameter) -> tuple[tuple[str, float, float, bool], ...]:
+    """(group, estimate, standard error, free) of a freed parameter in each group of ``result``, the fit of the
+    partial model that frees it (its estimate rows of the same kind and variables)."""
+    return tuple((str(r.group), float(r.estimate), float(r.se), bool(r.free)) for r in result.estimates
+                 if r.kind == freed.kind and tuple(r.variables) == tuple(freed.variables))
 
 
 @dataclass(frozen=True, eq=False)
@@ -537,6 +549,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             freed_here.append(FreedParameter(level, top.kind, _ref_names(top), top.group, top.index,
                                              tuple((c.kind, _ref_names(c)) for c in equal)))
             start = None
+        freed_here = [replace(f, estimates=freed_estimates(result, f)) for f in freed_here]  # in the partial model
         freed.extend(freed_here)
         if not steps:  # groups below the rule of rows per parameter of the configural model: the fit's note
             notes = list(notes) + list(group_size_problems(est.table, [m.n_obs for _, m in groups])[1])

@@ -47,9 +47,64 @@ class PowerResult(Presentable):
     #: the model (assessment.admissibility.rows_per_parameter), when the model's variables are known: the test's N
     #: is not what estimating the model needs, which the report says first
     below_rows_rule: tuple[RowsPerParameter, ...] = ()
+    #: a planned cluster sample (:class:`ClusterPlan`): the rows and clusters the smallest N needs under its design
+    #: effect; None without one
+    clusters: ClusterPlan | None = None
 
     def to_dict(self) -> dict:
         return asdict(self)
+
+
+@dataclass(frozen=True)
+class ClusterPlan:
+    """The smallest N of a plan under a design effect (Kish 1965: the variance of a cluster sample's statistics
+    over that of as many independent rows, so a cluster sample needs deff times the rows; recalled from memory), and
+    with clusters of ``cluster_size`` rows the clusters that takes.  ``intraclass``: the intraclass correlation the
+    design effect came from, 1 + (m - 1) ICC (data.cluster_similarity.design_effect), None when it was given."""
+    design_effect: float
+    rows: int  # ceil(required N x design effect)
+    cluster_size: float | None = None
+    intraclass: float | None = None
+    clusters: int | None = None  # ceil(rows / cluster size)
+
+
+def cluster_plan(required_n: int, design_effect: float | None = None, cluster_size: float | None = None,
+                 intraclass: float | None = None) -> ClusterPlan | None:
+    """The rows and clusters a cluster sample needs for the power of ``required_n`` independent rows: under a
+    ``design_effect`` given, or one from ``intraclass`` and ``cluster_size`` (1 + (m - 1) ICC, Kish 1965), whose
+    figures a fit or check of an earlier cluster sample reports (its design's median intraclass correlation and
+    design effect); None without either.  A design effect applies to the whole N, which is an approximation: the fit's
+    statistics each have their own (common practice)."""
+    from math import ceil
+
+    from cfa_tool.data.cluster_similarity import design_effect as kish
+    from cfa_tool.options import Option
+
+    if design_effect is None and intraclass is None:
+        if cluster_size is not None:
+            raise OptionError(f"a cluster size ({Option.CLUSTER_SIZE}) alone gives no design effect; give with it the "
+                              f"items' intraclass correlation ({Option.INTRACLASS}) or the design effect "
+                              f"({Option.DESIGN_EFFECT}), both reported by a fit or check of an earlier cluster sample")
+        return None
+    if design_effect is not None and intraclass is not None:
+        raise OptionError(f"give the design effect ({Option.DESIGN_EFFECT}) or the intraclass correlation "
+                          f"({Option.INTRACLASS}) with the cluster size, not both: the one follows from the other")
+    size = None
+    if cluster_size is not None:
+        size = check.real_number(f"the cluster size ({Option.CLUSTER_SIZE}, rows per cluster)", cluster_size, 1.0,
+                                 10.0**7)
+    if intraclass is not None:
+        if size is None:
+            raise OptionError(f"an intraclass correlation ({Option.INTRACLASS}) gives a design effect only with the "
+                              f"number of rows per cluster; give {Option.CLUSTER_SIZE} too")
+        rho = check.real_number(f"the intraclass correlation ({Option.INTRACLASS})", intraclass, 0.0, 1.0,
+                                open_high=True)
+        deff = kish(rho, size)
+    else:
+        rho = None
+        deff = check.real_number(f"the design effect ({Option.DESIGN_EFFECT})", design_effect, 1.0, 10.0**4)
+    rows = ceil(required_n * deff - 1e-9)
+    return ClusterPlan(deff, rows, size, rho, ceil(rows / size - 1e-9) if size is not None else None)
 
 
 def rmsea_power(df: int, n_obs: int, rmsea_null: float, rmsea_alt: float, alpha: float = 0.05) -> float:
@@ -100,13 +155,16 @@ def model_degrees_of_freedom(spec: Spec) -> tuple[int, int]:
 
 def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 0.05, target_power: float = 0.80,
          rmsea_null: float | None = None, rmsea_alt: float | None = None, variables: int | None = None,
-         ordinal: bool = False) -> PowerResult:
+         ordinal: bool = False, design_effect: float | None = None, cluster_size: float | None = None,
+         intraclass: float | None = None) -> PowerResult:
     """Power of the RMSEA test at ``n_obs`` and the smallest N reaching ``target_power``; with the model's
     number of ``variables``, that N is never below what estimating the model needs (more rows than variables), and
     the sample sizes shown are judged by the rule of rows per free parameter every fit applies (its free parameters
     p(p + 1)/2 - df, the covariance structure's; assessment.admissibility.rows_per_parameter): the test's N says
     nothing of how precisely the model's parameters are estimated (new-user trial s17: N = 96 for 46 parameters).
-    ``ordinal``: the model declares ordinal items (the report then says the plan is for the normal-theory test)."""
+    ``ordinal``: the model declares ordinal items (the report then says the plan is for the normal-theory test).
+    ``design_effect``, or ``intraclass`` with ``cluster_size``: a planned cluster sample, whose rows and clusters
+    the plan gives (:func:`cluster_plan`; new-user trial s20: how many schools?)."""
     if test not in TESTS:
         raise OptionError(f"test must be one of {', '.join(TESTS)}, not '{clipped(test, 40)}'")
     df = check.whole_number("the degrees of freedom", df, 1, 10**7)
@@ -123,6 +181,7 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
     epsa = epsa if rmsea_alt is None else check.real_number("the RMSEA of the alternative", rmsea_alt, 0.0, 1.0, open_high=True)
     power = rmsea_power(df, n_obs, eps0, epsa, alpha) if n_obs is not None else None
     required = required_sample_size(df, eps0, epsa, target_power, alpha)
+    clusters = cluster_plan(required, design_effect, cluster_size, intraclass)  # its options checked first
     note = None
     if variables is not None and required <= variables + 1:
         note = (f"the test alone would reach the power at N = {required}, but the model's {variables} variables need more "
@@ -134,4 +193,7 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
         free = variables * (variables + 1) // 2 - df
         below = tuple(facts for n in dict.fromkeys((required, n_obs)) if n is not None
                       for facts in rows_per_parameter((n,), (free,)))
-    return PowerResult(test, df, eps0, epsa, alpha, n_obs, power, required, target_power, note, ordinal, below)
+    if clusters is not None:  # the plan's N is the design's, not that of independent rows
+        clusters = cluster_plan(required, design_effect, cluster_size, intraclass)
+    return PowerResult(test, df, eps0, epsa, alpha, n_obs, power, required, target_power, note, ordinal, below,
+                       clusters)

@@ -223,7 +223,8 @@ def test_clusters_and_strata_change_standard_errors_not_estimates(survey, group)
 def test_the_methods_paragraph_says_what_the_design_based_ordinal_fit_did(survey):
     """What inference/design.design_meat and data/sample_design.row_design do, in the paragraph's words: the
     least-squares weights and the standard errors from the design-based covariance of the influence functions,
-    cluster sums centred within strata with C_h/(C_h - 1), sampling weights rescaled within each group;
+    cluster sums centred within strata times C_h/(C_h - 1) (said in words, new-user trial s20), sampling weights
+    rescaled within each group;
     tetrachoric correlations between two-category items."""
     binary = survey.assign(**{x: (survey[x] > 2).astype(float) + 1 for x in ITEMS})
     text = methods_paragraph(cfa_tool.fit(ONE_FACTOR, binary, ordinal="all", weights="w", cluster="unit",
@@ -234,13 +235,15 @@ def test_the_methods_paragraph_says_what_the_design_based_ordinal_fit_did(survey
             "taken as independent (weights applied), so the clusters and strata change the standard errors and the "
             "test but not the estimates") in text
     assert "influence functions" in text and "score contributions" not in text
-    assert "clusters' weighted sums centred within each stratum" in text and "C_h/(C_h - 1)" in text
+    assert "clusters' weighted sums centred within each stratum" in text and "C_h" not in text
+    assert "each stratum's multiplied by its number of clusters over that number less one" in text
     mixed = survey.assign(a=(survey["a"] > 2).astype(float) + 1)
     unweighted = cfa_tool.fit(ONE_FACTOR, mixed, ordinal="all", ordinal_estimator="unweighted", weights="w",
                               cluster="unit")
     text = methods_paragraph(unweighted)
     assert "polychoric correlations (tetrachoric between items with two categories)" in text
-    assert "least-squares weights" not in text and "times C/(C - 1) for C clusters" in text
+    assert "least-squares weights" not in text and "C/(C - 1)" not in text
+    assert "(multiplied by the number of clusters over that number less one; Binder, 1983)" in text
     halves = survey.assign(half=np.where(survey["unit"] < 30, "first", "second"))
     grouped = cfa_tool.fit(ONE_FACTOR, halves, ordinal="all", group="half", weights="w", cluster="unit")
     rows = halves["half"].value_counts().sort_index().tolist()  # pandas: the rows of each group
@@ -367,7 +370,7 @@ def test_the_command_line_fits_ordinal_items_under_a_design(survey, tmp_path, ca
                  "--cluster", "unit", "--strata", "stratum", "--json", str(out)]) == 0
     status = " ".join(capsys.readouterr().out.split())
     assert "polychoric correlations (ordinal items), cluster-robust standard errors; design: sampling weights (w;" in status
-    assert "clusters (unit; 80), strata (stratum; 4)" in status
+    assert "clusters (unit; 80; median intraclass correlation of the items" in status and "strata (stratum; 4)" in status
     saved = json.loads(out.read_text())
     assert saved["design"]["clusters"] == 80 and saved["design"]["strata"] == 4
     assert "cluster-robust standard errors" in saved["estimator"]

@@ -274,7 +274,8 @@ def test_design_is_stated_in_every_output(design_files, tmp_path, capsys):
     shown = capsys.readouterr().out
     status = " ".join(shown.split())
     assert "design: sampling weights (w; sum " in status and "Kish's effective N" in status
-    assert "clusters (unit; 31)" in status and "cluster-robust standard errors" in status
+    assert "clusters (unit; 31; median intraclass correlation of the items" in status  # for planning (s20)
+    assert "cluster-robust standard errors" in status
     block = json.loads(out.read_text())["design"]
     assert block["weights"] == "w" and block["clusters"] == 31 and block["rows"] == 301
     result = cfa_tool.fit(THREE_FACTORS, pd.read_csv(data), weights="w", cluster="unit")

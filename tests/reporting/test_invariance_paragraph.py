@@ -30,11 +30,12 @@ def partial_ladder(hs_data):
 
 def test_the_paragraph_names_the_ladder_the_groups_and_the_test(partial_ladder):
     text = _text(partial_ladder)
-    assert text.startswith('Measurement invariance across school (two groups: "Grant-White", n = 145; "Pasteur", n = 156)')
+    # the groups as prose names them (new-user trial s20: one-word labels unquoted, language.names.prose_group)
+    assert text.startswith('Measurement invariance across school (two groups: Grant-White, n = 145; Pasteur, n = 156)')
     assert ("configural, metric (loadings equal across groups), scalar (loadings and intercepts equal across groups), "
             "and strict (loadings, intercepts, and error variances and covariances equal across groups)") in text
     assert "The configural model had nine indicators of three correlated factors (visual, textual, and speed)" in text
-    assert 'the factor means of "Grant-White" were fixed at zero' in text
+    assert 'the factor means of group Grant-White were fixed at zero' in text
     assert "the likelihood-ratio chi-square difference test (Steiger, Shapiro & Browne, 1985)" in text
     assert "The configural model did not hold (\u03c7\u00b2(48) = 115.85, p < .001" in text
     assert "Metric invariance held (\u03c7\u00b2(6) = 8.19, p = .224" in text
@@ -48,9 +49,9 @@ def test_the_paragraph_names_the_ladder_the_groups_and_the_test(partial_ladder):
 
 def test_the_latent_differences_are_those_of_the_report(partial_ladder):
     text = _text(partial_ladder)
-    assert 'Latent mean differences from the partially invariant scalar model, against "Grant-White"' in text
+    assert 'Latent mean differences from the partially invariant scalar model, against group Grant-White' in text
     for d in partial_ladder.latent_differences:
-        assert f"{d.factor} in \"{d.group}\", {d.mean:.2f} (SE = {d.se:.2f}" in text.replace("-0.00", "0.00")  # quoted alike (s14)
+        assert f"{d.factor} in group {d.group}, {d.mean:.2f} (SE = {d.se:.2f}" in text.replace("-0.00", "0.00")  # alike (s14)
 
 
 def test_every_step_figure_is_the_step_test(partial_ladder):
@@ -103,7 +104,7 @@ def test_an_inadmissible_configural_step_comes_before_any_step_that_met_its_test
     assert result.steps[1].holds and result.steps[1].conditional
     text = _text(result)
     problem = text.index("The solution of the configural model was not admissible (the loading of x2 on visual in "
-                         'group "Grant-White" held at a bound)')
+                         'group Grant-White held at a bound)')
     assert problem < text.index("The configural model did not hold: its solution was not admissible")
     assert "held (" not in text and "held as partial" not in text  # no step reads as held
     assert ("Metric invariance cannot be read as held, though it met its test: it rests on the configural step, "

@@ -28,7 +28,7 @@ def test_without_equal_intercepts_every_groups_means_are_zero():
     assert _means(result) == {"Grant-White": {False}, "Pasteur": {False}}
     assert [(g.label, g.data.n_obs) for g in result.groups] == [("Grant-White", 145), ("Pasteur", 156)]
     text = _flat(methods_paragraph(result))
-    assert 'estimated in two groups defined by school ("Grant-White", n = 145; "Pasteur", n = 156) by' in text
+    assert 'estimated in two groups defined by school (Grant-White, n = 145; Pasteur, n = 156) by' in text
     assert "The factor means were fixed at zero in every group." in text
 
 
@@ -37,7 +37,7 @@ def test_with_equal_intercepts_the_other_groups_means_are_estimated():
                           reference_group="Pasteur")
     assert _means(result) == {"Pasteur": {False}, "Grant-White": {True}}
     text = _flat(methods_paragraph(result))
-    assert 'The factor means were fixed at zero in "Pasteur" and estimated in "Grant-White".' in text
+    assert 'The factor means were fixed at zero in group Pasteur and estimated in group Grant-White.' in text
 
 
 def test_a_fit_of_one_group_says_nothing_of_factor_means():

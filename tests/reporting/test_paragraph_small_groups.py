@@ -20,7 +20,7 @@ def test_the_invariance_paragraph_names_a_group_smaller_than_its_model(hs_data):
     data = pd.concat([hs_data[hs_data["school"] == first].iloc[20:40], hs_data[hs_data["school"] != first]])
     ladder = cfa_tool.invariance(THREE, data, "school")
     text = " ".join(invariance_report(ladder).paragraph.split())
-    said = (f"Group \"{first}\" had 20 rows for the 21 free parameters of its model (not counting its 9 item "
+    said = (f"Group {first} had 20 rows for the 21 free parameters of its model (not counting its 9 item "
             f"intercepts), so its estimates, and every comparison with the other groups, rest on too few "
             f"answers.")  # 21 by hand: tests/pipeline/test_small_groups.py
     assert said in text
@@ -92,10 +92,12 @@ def test_the_note_on_few_rows_per_parameter_does_not_call_the_groups_small(hs_da
 
 def test_group_labels_are_quoted_alike_and_factor_markers_named(hs_data):
     """A list of groups quotes every label when one needs quotes ('"Grant-White", n = 145; Pasteur, n = 156' read
-    unevenly), and a higher-order factor's marker is said to be one of its factors (new user s14)."""
+    unevenly), none when each is one word as prose names groups (new-user trial s20; '"men, 40+"' beside them:
+    tests/reporting/test_group_labels_alike.py), and a higher-order factor's marker is said to be one of its factors
+    (new user s14)."""
     ladder = cfa_tool.invariance(THREE, hs_data, "school")
     text = " ".join(invariance_report(ladder).paragraph.split())
-    assert '(two groups: "Grant-White", n = 145; "Pasteur", n = 156)' in text
+    assert '(two groups: Grant-White, n = 145; Pasteur, n = 156)' in text
     higher = cfa_tool.fit(THREE + "factor g: visual, textual, speed\n", hs_data)
     assert ("fixing the loading of one indicator (for a higher-order factor, one of its factors) to 1 (x1 for visual, "
             "x4 for textual, x7 for speed, and visual for g)") in " ".join(methods_paragraph(higher).split())
@@ -122,5 +124,5 @@ def test_a_comparison_names_a_group_smaller_than_its_model(hs_data):
     data = pd.concat([hs_data[hs_data["school"] == first].iloc[20:40], hs_data[hs_data["school"] != first]])
     comparison = cfa_tool.compare([THREE, THREE + "invariance metric\n"], data, group="school")
     text = " ".join(comparison_paragraph(comparison).split())
-    said = f'Group "{first}" had 20 rows for the 21 free parameters of its model'
+    said = f'Group {first} had 20 rows for the 21 free parameters of its model'
     assert said in text and text.index(said) < text.index("Fit:")

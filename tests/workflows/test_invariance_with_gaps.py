@@ -155,6 +155,6 @@ def test_ordinal_rows_per_pair_are_given_for_each_group(holes):
     together = (answered.T @ answered)[np.triu_indices(len(items), 1)]
     assert (saved["all_groups"]["fewest"], saved["all_groups"]["most"]) == (together.min(), together.max())
     text = " ".join(ladder.summary().split())  # the methods paragraph of the ladder
-    school = sorted(expected)  # Grant-White, quoted as a name holding a hyphen, and Pasteur quoted alike (s14)
-    assert (f'rows per pair over the groups and {expected[school[0]][0]} to {expected[school[0]][1]} in "{school[0]}" '
-            f'and {expected[school[1]][0]} to {expected[school[1]][1]} in "{school[1]}"') in text
+    school = sorted(expected)  # Grant-White and Pasteur, one word each: named as prose names groups (s20)
+    assert (f'rows per pair over the groups and {expected[school[0]][0]} to {expected[school[0]][1]} in group '
+            f'{school[0]} and {expected[school[1]][0]} to {expected[school[1]][1]} in group {school[1]}') in text
