@@ -62,9 +62,10 @@ def test_chi_square_upper_tail_of_arrays_with_whole_df_as_scipy():
     few = slice(0, 3000, 37)
     close(dist.chi2_sf(x[few], df[few]), [dist.chi2_sf(float(a), int(b)) for a, b in zip(x[few], df[few])],
           relative=1e-12)
-    for df in range(1, dist.WHOLE_DF_SUMMED + 1, 13):
+    for df in range(1, dist.WHOLE_DF_SUMMED + 1, 13):  # one df for every x (complete rows): its own route
         x = chi_square_points(df)
         close(dist.chi2_sf(x, df), special.chdtrc(df, x))
+        assert np.array_equal(dist.chi2_sf(x, df), dist.chi2_sf(x, np.full(len(x), df)))  # the same numbers
     edges = dist.chi2_sf(np.array([np.nan, np.inf, -2.0, 0.0]), np.array([3, 3, 4, 5]))
     assert math.isnan(edges[0]) and edges[1] == 0.0 and edges[2] == edges[3] == 1.0
 
