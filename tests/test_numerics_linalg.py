@@ -5,6 +5,8 @@ NaN), and the whitened rows of Mardia's tests against scipy's triangular solve."
 
 from __future__ import annotations
 
+import warnings
+
 import numpy as np
 import pytest
 from scipy import linalg as reference
@@ -117,3 +119,44 @@ def test_whitened_rows_are_scipys():
     assert np.allclose(found.rows.T @ found.rows / len(rows), np.eye(12), atol=1e-9)
     with pytest.raises(np.linalg.LinAlgError):  # a covariance matrix that is not positive definite: refused
         whitened_rows(rows, (rows.mean(axis=0), _indefinite(12, 3)))
+
+
+def test_numpys_kernels_called_directly_give_what_numpy_linalg_gives(monkeypatch):
+    """The factorisations, inverses and solves call numpy's LAPACK kernels under numpy.linalg's floating-point
+    settings made once (numerics/linalg.py): the same numbers to the last bit and the same verdicts as numpy.linalg's
+    public functions (the route of a numpy without those kernels), no warning where a matrix is not positive definite
+    or is singular, whatever settings the caller has, and the caller's settings as they were afterwards."""
+    from cfa_tool.numerics import linalg
+
+    assert linalg._KERNELS is not None  # the numpy the tests run with has them
+
+    def results():
+        out = []
+        for p in (1, 3, 9, 40):
+            A = _positive_definite(p, 10 + p)
+            b = np.arange(1.0, p + 1.0)
+            factor = scaled_factor(A)
+            out += [cholesky_log_det(A), spd_inverse(A), scaled_solve(A, b), scaled_solve(A, np.outer(b, b[:2])),
+                    scaled_solve(A, b, positive_definite=True), factor.scales, factor.inverse]
+        bad = _indefinite(5, 3)
+        out += [cholesky_log_det(bad), spd_inverse(bad), scaled_factor(bad), cholesky_log_det(np.full((3, 3), np.nan))]
+        for singular, positive_definite in ((np.ones((3, 3)), False), (bad, True)):
+            with pytest.raises(np.linalg.LinAlgError):
+                scaled_solve(singular, np.ones(3), positive_definite=positive_definite)
+        return out
+
+    before = np.geterr()
+    with np.errstate(all="raise"), warnings.catch_warnings():  # a caller's settings change nothing inside
+        warnings.simplefilter("error")
+        direct = results()
+    assert np.geterr() == before
+    monkeypatch.setattr(linalg, "_KERNELS", None)
+    public = results()
+    assert len(direct) == len(public)
+    for mine, theirs in zip(direct, public):
+        if theirs is None:
+            assert mine is None
+        elif isinstance(theirs, tuple):
+            assert all(np.array_equal(m, t) for m, t in zip(mine, theirs))
+        else:
+            assert np.array_equal(mine, theirs)

@@ -28,7 +28,6 @@ import numpy as np
 
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.linalg import log_det_pd, spd_inverse
-from cfa_tool.numerics.roots import bracketed_root
 
 
 @dataclass(frozen=True)
@@ -141,30 +140,26 @@ def chi_square_p(chi_square: float, df: int) -> float:
 
 
 def noncentrality_bound(chi_square: float, df: int, probability: float, central_cdf: float | None = None) -> float:
-    """lambda such that P(chi2_df(lambda) <= chi_square) = probability (0 if none); ``central_cdf`` is
+    """lambda such that P(chi2_df(lambda) <= chi_square) = probability: 0 when even lambda = 0 gives less (no
+    lambda does: the cdf falls as lambda grows), infinity at probability 0 (the cdf's limit), NaN for a chi-square
+    that is NaN or infinite; Newton's root of :func:`numerics.distributions.ncx2_noncentrality`.  ``central_cdf`` is
     P(chi2_df <= chi_square) when the caller has it."""
     if central_cdf is None:
         central_cdf = float(dist.chi2_cdf(chi_square, df))
-    f = lambda lam: dist.ncx2_cdf(chi_square, df, lam) - probability if lam > 0 else central_cdf - probability
-    if f(0.0) < 0:
+    if central_cdf < probability:
         return 0.0
-    direct = dist.ncx2_noncentrality(chi_square, df, probability)  # Newton's root, NaN where it finds none
-    if np.isfinite(direct) and direct >= 0:
-        return float(direct)
-    hi = max(1.0, chi_square)
-    while f(hi) > 0:
-        hi *= 2.0
-        if hi > 1e8:
-            return float("nan")
-    return float(bracketed_root(f, 0.0, hi, xtol=1e-10))
+    return dist.ncx2_noncentrality(chi_square, df, probability, central_cdf)
 
 
-def rmsea_interval(chi_square: float, df: int, n_obs: int, groups: int = 1, level: float = 0.90) -> tuple[float, float]:
-    """The RMSEA's interval from the noncentral chi-square (Browne & Cudeck 1993), times sqrt(G) with G groups."""
+def rmsea_interval(chi_square: float, df: int, n_obs: int, groups: int = 1, level: float = 0.90,
+                   p_value: float | None = None) -> tuple[float, float]:
+    """The RMSEA's interval from the noncentral chi-square (Browne & Cudeck 1993), times sqrt(G) with G groups;
+    ``p_value``: P(chi2_df > chi_square) when the caller has it (the central cdf, 1 minus it, only decides whether a
+    bound is 0)."""
     if df <= 0:
         return (float("nan"), float("nan"))
     tail = (1.0 - level) / 2.0
-    central = float(dist.chi2_cdf(chi_square, df))
+    central = float(dist.chi2_cdf(chi_square, df)) if p_value is None else 1.0 - p_value
     lam_low = noncentrality_bound(chi_square, df, 1.0 - tail, central)
     lam_high = noncentrality_bound(chi_square, df, tail, central)
     scale = df * n_obs
@@ -298,7 +293,8 @@ def fit_indices(*, chi_square: float, df: int, baseline_chi_square: float, basel
     ``log_likelihood`` (maximum likelihood) also the information criteria.  ``close_fit_test``
     adds the p of the test of close fit."""
     chi = max(float(chi_square), 0.0)  # rounding can leave a just-identified model a hair below zero
-    low, high = rmsea_interval(chi, df, n_obs, groups)
+    p_value = chi_square_p(chi, df)
+    low, high = rmsea_interval(chi, df, n_obs, groups, p_value=p_value)
     criteria = {}
     if log_likelihood is not None:
         criteria = dict(log_likelihood=log_likelihood, aic=-2 * log_likelihood + 2 * n_free,
@@ -307,7 +303,7 @@ def fit_indices(*, chi_square: float, df: int, baseline_chi_square: float, basel
     return FitIndices(
         chi_square=chi,
         df=df,
-        p_value=chi_square_p(chi, df),
+        p_value=p_value,
         cfi=cfi_value(chi, df, baseline_chi_square, baseline_df),
         tli=tli_value(chi, df, baseline_chi_square, baseline_df),
         rmsea=rmsea_value(chi, df, n_obs, groups),

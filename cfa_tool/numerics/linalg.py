@@ -1,10 +1,17 @@
 """Small dense linear algebra: positive-definite factorisations, log-determinants, and solves and inverses with
-Jacobi scaling, through numpy.linalg.
+Jacobi scaling, through numpy's LAPACK kernels.
 
-numpy.linalg rather than scipy's direct LAPACK wrappers: importing scipy.linalg costs about 80 ms of every start of
-the command (bench/cold_start.py), while a fit makes a few dozen of these calls, each some microseconds slower
-through numpy's checks than the bare routine at these sizes.  A matrix
-that is not positive definite is read from numpy's LinAlgError (or a NaN in the factor), never shown as a traceback.
+numpy rather than scipy's direct LAPACK wrappers: importing scipy.linalg costs about 80 ms of every start of the
+command (bench/cold_start.py).  A default fit makes a few dozen factorisations, inverses and solves of small matrices,
+and most of the cost of numpy.linalg's functions at these sizes is not LAPACK's: above all the np.errstate each sets
+up around its kernel at every call (its floating-point settings: a kernel that fails raises LinAlgError through a
+callback; about 20,000 of the 36,000 instructions of a 9 x 9 Cholesky factorisation, counted by valgrind).  Here the
+same kernels (``numpy.linalg._umath_linalg``, which estimation/stacked.py calls for stacks of matrices too) are
+called on the float arrays the package makes, under the same settings, made once (``_LINALG_SETTINGS``, numpy's
+context variable of floating-point settings set and reset around the call as np.errstate does): the same numbers
+and the same LinAlgError where a matrix is not positive definite or is singular, in about half the instructions.
+Neither is public API: a numpy without them takes numpy.linalg's functions (``_KERNELS`` None; a test compares both
+routes).  A matrix that is not positive definite is never shown as a traceback.
 
 Parameters in very different units (a loading of an item scored in thousands
 beside one scored in thousandths) make an information matrix badly scaled but
@@ -20,12 +27,68 @@ from functools import lru_cache
 import numpy as np
 
 
+def _raise_not_positive_definite(error, flag):
+    raise np.linalg.LinAlgError("Matrix is not positive definite")
+
+
+def _raise_singular(error, flag):
+    raise np.linalg.LinAlgError("Singular matrix")
+
+
+try:  # numpy's LAPACK kernels and its settings of floating-point errors (see the module's docstring)
+    from numpy._core._ufunc_config import _extobj_contextvar, _make_extobj
+    from numpy.linalg import _umath_linalg as _KERNELS
+
+    #: numpy.linalg's settings around its kernels (numpy/linalg/_linalg.py): invalid, which a failing kernel sets,
+    #: calls the callback that raises LinAlgError; overflow, division by zero and underflow ignored
+    _LINALG_SETTINGS = {
+        message: _make_extobj(call=callback, invalid="call", over="ignore", divide="ignore", under="ignore")
+        for message, callback in (("positive definite", _raise_not_positive_definite),
+                                  ("singular", _raise_singular))}
+except (ImportError, AttributeError, TypeError):  # pragma: no cover - depends on the numpy installed
+    _KERNELS = None
+
+
+def _kernel(kernel, settings: str, *arrays: np.ndarray, signature: str) -> np.ndarray:
+    """``kernel`` of float64 ``arrays`` under numpy.linalg's floating-point settings (``settings``: which LinAlgError
+    a failure raises)."""
+    token = _extobj_contextvar.set(_LINALG_SETTINGS[settings])
+    try:
+        return kernel(*arrays, signature=signature)
+    finally:
+        _extobj_contextvar.reset(token)
+
+
+def _lower_factor(A: np.ndarray) -> np.ndarray | None:
+    """np.linalg.cholesky(A): the lower Cholesky factor of a symmetric matrix (its lower triangle read), or None when
+    it is not positive definite."""
+    try:
+        if _KERNELS is None:
+            return np.linalg.cholesky(A)
+        return _kernel(_KERNELS.cholesky_lo, "positive definite", A, signature="d->d")
+    except np.linalg.LinAlgError:
+        return None
+
+
+def _inverse(A: np.ndarray) -> np.ndarray:
+    """np.linalg.inv(A): LinAlgError where A is singular."""
+    if _KERNELS is None:
+        return np.linalg.inv(A)
+    return _kernel(_KERNELS.inv, "singular", A, signature="d->d")
+
+
+def _solve(A: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """np.linalg.solve(A, b) for a vector or a matrix of columns b: LinAlgError where A is singular."""
+    if _KERNELS is None:
+        return np.linalg.solve(A, b)
+    return _kernel(_KERNELS.solve1 if b.ndim == 1 else _KERNELS.solve, "singular", A, b, signature="dd->d")
+
+
 def cholesky_log_det(A: np.ndarray) -> tuple[np.ndarray, float] | None:
     """(lower Cholesky factor, log|A|) of a symmetric matrix (its lower triangle read), or None when it is not
     positive definite."""
-    try:
-        factor = np.linalg.cholesky(A)
-    except np.linalg.LinAlgError:
+    factor = _lower_factor(A)
+    if factor is None:
         return None
     log_det = 2.0 * float(np.log(factor.diagonal()).sum())
     if not math.isfinite(log_det):  # NaN anywhere in A reaches the factor's diagonal
@@ -95,7 +158,7 @@ def _factor_inverse(factor: np.ndarray) -> np.ndarray | None:
 def _triangular_inverse(factor: np.ndarray) -> np.ndarray:
     n = len(factor)
     if n <= TRIANGULAR_BLOCK:
-        inverse = np.linalg.inv(factor)
+        inverse = _inverse(factor)
         inverse[_above_diagonal(n)] = 0.0
         return inverse
     half = n // 2
@@ -138,7 +201,7 @@ def scaled_solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = False) 
     scaled = H * (d[:, None] * d)
     if positive_definite and cholesky_log_det(scaled) is None:
         raise np.linalg.LinAlgError("the matrix is not positive definite")
-    return dd * np.linalg.solve(scaled, dd * b)
+    return dd * _solve(scaled, dd * b)
 
 
 @dataclass(frozen=True)
