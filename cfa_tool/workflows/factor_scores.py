@@ -841,7 +841,6 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     table.index = caller_labels(table.index, loaded.frame_index)
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
                                spec, answered, sums) if ordinal_items else _linear_quality(models, spec, sums)
-    result = _with_repeated_ids(result, ids, id_column)
     extra = duplicate_note(ids, "id column" if id_column is not None else "row names", False) + _partly_answered(
         models[0].base if ordinal_items else models[0], answered, chosen, errors)
     if ids is not None and id_column is None:
@@ -891,22 +890,6 @@ def _after_data_cautions(result, data_cautions, scored) -> FitResult:
     first = tuple(p for p in result.problems if p in data_cautions)
     rest = tuple(p for p in result.problems if p not in data_cautions)
     return replace(result, problems=solution_first(first + tuple(scored) + rest))
-
-
-def _with_repeated_ids(result, ids, id_column):
-    """``result`` with a caution first when ids repeat: a scores file is merged back by id, and a repeated id gives
-    two people each other's scores (a hostile trial found it said only in a note far down the report)."""
-    from cfa_tool.assessment.admissibility import Problem, ProblemKind
-    from cfa_tool.data.row_ids import repeated_ids
-
-    said = repeated_ids(ids, "Id column" if id_column is not None else "Row names")
-    if said is None:
-        return result
-    return replace(result, problems=(Problem(
-        ProblemKind.REPEATED_IDS_SCORED, (), None, said + ": a merge of the scores file by id would match them with "
-        "the wrong rows.", Note(("give each row an id of its own in a copy of the data file, or name the rows by "
-                                 "another column", Command(f" ({Option.ID_COLUMN.given('COLUMN')})"), "."))),)
-        + tuple(result.problems))
 
 
 def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group, chosen, ordinal: bool,
@@ -1086,7 +1069,9 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                         f"{'was' if one else 'were'} read as no answer, as the earlier fit read {'it' if one else 'them'} "
                         f"(its missing-value codes and words of no answer)")
     # the cautions about the scored file computed on it, first; the earlier fit's own said to be about the fit
-    own = api.odd_value_problems(api.analysed_odd_values(loaded, spec, group), group) + api.same_answer_problems(
+    # (ids of several rows first, as every command names them: pipeline.inputs.repeated_id_problems)
+    own = api.repeated_id_problems(loaded, ids_by_row_number(ids, read_frame), api.id_filter_column(id_column, loaded)) \
+        + api.odd_value_problems(api.analysed_odd_values(loaded, spec, group), group) + api.same_answer_problems(
         api._labelled(frame, group) if group is not None else frame, spec, ids_by_row_number(ids, read_frame),
         scored_only=True, by_loadings=api.reversed_by_loadings(result))
     # (the fit's own file scored again: its findings of the same kinds are the scored file's, said once)
@@ -1133,7 +1118,6 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                            _coded_otherwise(result.data, base, rows, source, ordinal)]
     if scored_problems:
         result = _after_data_cautions(result, own, scored_problems)
-    result = _with_repeated_ids(result, ids, id_column)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names", False) \
         + _partly_answered(base, answered, chosen, errors)
     if ids is None and not isinstance(data, pd.DataFrame):
