@@ -849,7 +849,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                                               "rows by another column"), ".")))
     elif ids is None and not isinstance(data, pd.DataFrame):
         extra[:0] = _id_column_note(read_frame, source, spec, group, design)
-    own = _without_own_answers(answered, values, chosen, factors, unanswered)
+    own = _without_own_answers(answered, values, chosen, factors, unanswered) + _item_sums_across_groups(
+        models, labels, sums, chosen, bool(ordinal_items), group)
     if own:
         result = _after_data_cautions(result, data_cautions, own)
     unweighted = len(frame) - len(fitted_rows)  # weight 0: not in the fit, yet scored like every row
@@ -877,6 +878,49 @@ def _id_column_note(read_frame: pd.DataFrame, source: str, spec, group, design) 
     return [Note((f"No column names the rows in the scores file, whose lines follow the rows of {source} in order; "
                   f"the column '{printable(column)}' holds a different value in every row and could name them",
                   Command(f" ({Option.ID_COLUMN.given(column)})"), "."))]
+
+
+def _item_sums_across_groups(models, labels, sums: list, chosen, ordinal: bool, group: str | None) -> tuple:
+    """The caution, first in every view, on item sums and means of several groups whose model sets an item of the
+    sum apart between them (its intercept, loading or thresholds: scoring.item_sums.group_shifts) while it compares
+    the factor's means: the groups' sums and means differ by that item's own shift besides the factor, and the
+    model-based scores, which allow for it, are the ones to compare (new-user trial s20: a translated version's
+    shifted item made its item means differ by a quarter of their SD while the factor's scores agreed, with no
+    word).  () without item sums or means, groups or such items."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.scoring.item_sums import group_shifts
+
+    summed = [m for m in ITEM_METHODS if m in chosen]
+    if not summed or group is None or len(models) < 2 or not sums:
+        return ()
+    bases = [m.base for m in models] if ordinal else list(models)
+    shifts = group_shifts(bases, [m.thresholds for m in models] if ordinal else None, [str(x) for x in labels],
+                          sums[0])
+    if not shifts:
+        return ()
+    kinds = " and ".join(dict.fromkeys(("item sums" if m is ScoreMethod.ITEM_SUM else "item means") for m in summed))
+    factors = tuple(dict.fromkeys(x.factor for x in shifts))
+
+    def said(x) -> str:
+        what = " and ".join(("intercept" if k == "intercept" else "loading" if k == "loading" else "thresholds")
+                            for k in x.parameters)
+        of = f"{printable(x.factor)}: " if len(factors) > 1 else ""
+        if x.intercepts:
+            values = ", ".join(f"{printable(g)} {v:.2f}" for g, v in zip(x.groups, x.intercepts))
+            return f"the {what} of {printable(x.item)} ({of}intercept {values})"
+        return f"the {what} of {printable(x.item)} ({of}differing in {', '.join(printable(g) for g in x.groups)})"
+
+    names = ", ".join(printable(f) for f in factors)
+    model_based = "posterior means" if ordinal else "regression or Bartlett scores"
+    return (Problem(ProblemKind.ITEM_SUMS_ACROSS_GROUPS, (), float(len(shifts)),
+                    f"The {kinds} of {names} do not compare across the groups of {printable(group)}: while it "
+                    f"compares the factor means, the model sets apart between groups "
+                    + "; ".join(said(x) for x in shifts)
+                    + f", so the groups' {kinds} of "
+                    f"{'that factor' if len(factors) == 1 else 'those factors'} differ by each such item's own shift "
+                    f"as well as by the factor (a difference in the {kinds} that the factor may not have).",
+                    f"compare the groups by the model-based scores of {names} ({model_based}), which allow for those "
+                    f"items; read the {kinds} within one group only."),)
 
 
 def _after_data_cautions(result, data_cautions, scored) -> FitResult:
@@ -1108,7 +1152,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     # first in every view, before the fit's own (the rows scored are this run's data)
-    scored_problems = list(_without_own_answers(answered, values, chosen, factors, unanswered))
+    scored_problems = list(_without_own_answers(answered, values, chosen, factors, unanswered)
+                           + _item_sums_across_groups(models, labels, sums, chosen, ordinal, group))
     if unknown_groups:
         scored_problems.append(Problem(ProblemKind.UNKNOWN_GROUPS_SCORED, (), None, unknown_groups + ".",
                                        "write each row's group as the fit's data wrote it, or fit the model to "
