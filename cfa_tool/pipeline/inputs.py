@@ -1006,11 +1006,11 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None) -
     more = (f"; and {len(found) - REPEATED_IDS_SHOWN} more id{'s' if len(found) - REPEATED_IDS_SHOWN != 1 else ''}"
             if len(found) > REPEATED_IDS_SHOWN else "")
     rows = sum(len(r) for _, r in found)
-    what = "ids" if by_column else "names"
+    what, gives = ("ids", "gives") if by_column else ("names", "give")
     return (Problem(ProblemKind.REPEATED_IDS, (), float(len(found)),
-                    Note((f"{holder} gives {rows} rows one {what[:-1]}: " if len(found) == 1 else
-                          f"{holder} gives {rows} rows {len(found)} {what} that each name more than one row: ",))
-                    + shown + f"{more}. These {what} do not name one row each, so a file "
+                    Note((f"{holder} {gives} {rows} rows one {what[:-1]}: " if len(found) == 1 else
+                          f"{holder} {gives} {rows} rows {len(found)} {what} that each name more than one row: ",))
+                    + shown + f"{more}. These {what} do not stand for one row each, so a file "
                     f"merged by them (a scores file, say) cannot be matched to the rows one to one: a merge that "
                     f"expects one row per {what[:-1]} refuses, and one that allows several gives a row another "
                     f"row's values.",

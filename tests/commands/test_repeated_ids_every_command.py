@@ -88,3 +88,14 @@ def test_copies_say_that_their_ids_repeat_and_the_id_caution_leaves_them_to_it(t
     [repeated] = [p for p in cfa_tool.check(MODEL, path, id_column="rider_id").problems
                   if p.kind is ProblemKind.REPEATED_IDS]
     assert "gives 2 rows one id: 'R0011' in rows 12, 32" in _flat(repeated.explanation)
+
+
+def test_row_names_that_repeat_are_named_alike(tmp_path):
+    # a file whose first header cell is empty: its first column names the rows (data.readers), by the same rule
+    rows = _riders().rename(columns={"rider_id": ""})
+    path = tmp_path / "named.csv"
+    rows.to_csv(path, index=False)
+    first = cfa_tool.check(MODEL, path).problems[0]
+    assert first.kind is ProblemKind.REPEATED_IDS
+    assert _flat(first.explanation).startswith(f"The row names of {path} give 5 rows 2 names that each name more "
+                                               f"than one row: 'R0005' in rows 6, 7; 'R0021' in rows 22, 32, 42")
