@@ -150,11 +150,16 @@ class ProblemKind(enum.Enum):
     # answers, labelled or not (data.missing_codes.CodeOnAnswer): its answers were read as gaps
     ANSWERS_GIVEN_AS_MISSING = ("answers given as missing codes", "answers read as gaps", False)
     UNKNOWN_GROUPS_SCORED = ("rows in groups the fit does not have", "groups the fit lacks", False)
-    # not of the solution but of the rows scored: ids that name several rows, in a file meant to be merged by id
-    REPEATED_IDS_SCORED = ("ids that name several rows", "repeated ids", False)
+    # not of the solution but of the rows: ids of the id column (or row names) that name several rows, so nothing
+    # merged by them (a scores file) matches the rows one to one (pipeline.inputs.repeated_id_problems)
+    REPEATED_IDS = ("ids that name several rows", "repeated ids", False)
     ANSWERS_BEYOND_FITTED = ("answers beyond the fitted rows", "answers beyond the fit's", False)
     # not of the solution but of the rows scored: an item that runs against its factor in the scored file while its
     # loading in the earlier fit runs with it (coded the other way round: workflows.factor_scores)
+    # not of the solution but of the scores: item sums or means of a factor whose items' intercepts, loadings or
+    # thresholds the model sets apart between groups while it compares the factor's means (partial invariance): the
+    # groups' sums differ by those items' own shifts (scoring.item_sums.group_shifts)
+    ITEM_SUMS_ACROSS_GROUPS = ("item sums that do not compare across groups", "item sums across groups", False)
     ITEM_AGAINST_FITTED_LOADING = ("item against its fitted loading", "coded the other way?", False)
     # not of the solution but of the rows scored: a factor score of a row that answered none of the factor's items,
     # which rests on the other factors' items alone (through the factors' correlations)

@@ -74,6 +74,19 @@ def ids_by_row_number(ids: pd.Series | None, frame: pd.DataFrame) -> dict[int, s
     return dict(zip(row_numbers(frame).tolist(), ids.tolist()))
 
 
+def ids_of_several_rows(ids: dict) -> tuple[tuple[str, tuple[int, ...]], ...]:
+    """Each id that more than one row holds (``ids``: data-row number -> id, None where a row has none), with the
+    numbers of its rows in order, the ids in the order of their first rows; () when every id names one row.  One rule
+    for every command that takes an id column (pipeline.inputs.repeated_id_problems; new-user trial s20: a pupil id
+    typed twice was named by no command, and the scores file carried it twice)."""
+    named = pd.Series([v for v in ids.values()], index=list(ids.keys()), dtype=object).dropna()
+    repeated = named[named.duplicated(keep=False)]
+    if not len(repeated):
+        return ()
+    return tuple((str(value), tuple(int(r) for r in rows.index))
+                 for value, rows in repeated.groupby(repeated.astype(str), sort=False))
+
+
 def repeated_ids(ids: pd.Series | None, what: str) -> Note | None:
     """The sentence on rows that repeat an id of an earlier row (the ids then do not name one row each); None when
     none does."""

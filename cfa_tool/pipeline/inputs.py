@@ -585,8 +585,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     reference_group_applies(result, reference_group)
     result = with_missing_reading(with_odd_values(result, loaded, group, spec, design, by_row,
                                                   id_filter_column(id_column, loaded)), loaded, missing_codes)
-    repeated = reference_note(result, frame, group, reference_group) + duplicate_note(
-        ids, "id column" if id_column is not None else "row names")
+    repeated = reference_note(result, frame, group, reference_group) + duplicate_note(  # repeated ids: a caution first
+        ids, "id column" if id_column is not None else "row names", False)
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
 
 
@@ -811,6 +811,7 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
 
     names = names if names is not None else (spec.observed_names if spec is not None else ())
     found: tuple = row_filter_problems(loaded, spec, where=where) + copied_row_problems(loaded, group, design, names, ids or {})
+    found += repeated_id_problems(loaded, ids or {}, id_column)  # ids of several rows: no merge by id one to one
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {}, id_column=id_column)
@@ -936,6 +937,11 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
                    "; ")
     more = f"; and {n - COPIED_ROWS_SHOWN} more" if n > COPIED_ROWS_SHOWN else ""
     numbering = f" but the row-number column '{printable(found.numbering)}'" if found.numbering else ""
+    # a row filter can leave the copies out only by a column in which they differ from their originals: a row-number
+    # column, or row names (``ids`` not read from a column of the file, which the copies repeat); rows identical in
+    # every column have none (new-user trial s20: the advice named a filter that no column could write)
+    same_ids = any(ids.get(c) is not None and ids.get(c) == ids.get(o) for c, o in zip(found.copies, found.originals))
+    apart = found.numbering is not None or any(ids.get(c) != ids.get(o) for c, o in zip(found.copies, found.originals))
     example = ""
     if found.numbering and set(found.copies) == set(row_numbers(frame)[len(frame) - n:].tolist()):  # a block at the end
         first = frame[found.numbering].iloc[len(frame) - n]
@@ -945,11 +951,85 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
                     f"{n} of the {len(frame)} rows analysed {'is' if n == 1 else 'are'} identical in every column"
                     f"{numbering} to an earlier row: " + pairs + f"{more}. If they are copies (a file appended to itself, "
                     f"rows pasted twice), each is counted as another respondent, so N is too large, the standard "
-                    f"errors too small and the chi-square too large.",
-                    Note(("delete the copies in a copy of the data file and analyse that, or leave them out with ",
-                          Command(f"{Option.KEEP}", "a row filter"), " on a column that tells them apart",
-                          Command(example), "; if they are different respondents who answered alike, nothing needs "
-                          "to change."))),)
+                    f"errors too small and the chi-square too large." + (
+                        " Each copy repeats its original's id too, so a file merged by the ids (a scores file, say) "
+                        "cannot be matched to the rows one to one while the copies are there." if same_ids else ""),
+                    Note(("delete the copies in a copy of the data file and analyse that",)
+                         + ((", or leave them out with ", Command(f"{Option.KEEP}", "a row filter"),
+                             " on a column that tells them apart", Command(example)) if apart else ())
+                         + ("." if same_ids else  # the same ids: not different respondents
+                            "; if they are different respondents who answered alike, nothing needs to change.",))),)
+
+
+REPEATED_IDS_SHOWN = 5  # ids of several rows that the caution names before 'and N more'
+
+
+def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None) -> tuple:
+    """A caution naming the ids that several rows hold (``ids``: data-row number -> id; ``id_column``: the column
+    they are read from, data.kept_rows.ROW_NAMES_COLUMN for the file's row names: :func:`id_filter_column`), each with
+    its rows, the first :data:`REPEATED_IDS_SHOWN`; () when every id names one row.  One rule for every command that
+    takes an id column (data.row_ids.ids_of_several_rows): a caution, never a refusal, since the rows are analysed
+    and scored alike whatever their ids, and data in long form hold a person's id once per wave by design (merged by
+    the id and the wave); a scores file is written all the same, its lines in the order of the data's rows.  Rows that
+    copy an earlier row in every column repeat its id too: named here as well, for a merge by id fails on them alike
+    (new-user trial s20: the caution on copies showed the ids without saying that they repeat)."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.data.kept_rows import rows_listed
+    from cfa_tool.data.row_ids import ids_of_several_rows
+
+    found = ids_of_several_rows(ids)
+    if not found:
+        return ()
+    frame = loaded.read_frame if loaded.read_frame is not None else loaded.frame  # the rows the ids were read for
+    found = _without_copies(found, frame)
+    if not found:
+        return ()
+    naming, lines = row_naming(frame), text_lines(frame)
+    by_column = id_column is not None and (id_column != ROW_NAMES_COLUMN or loaded.row_names is None)
+    holder = f"The id column '{printable(id_column)}'" if by_column else f"The row names of {loaded.source}"
+    shown = joined([Note((RowId(f"'{clipped(value, 40)}' in "),)) + rows_listed(rows, 4, naming=naming, lines=lines)
+                    for value, rows in found[:REPEATED_IDS_SHOWN]], "; ")
+    more = (f"; and {len(found) - REPEATED_IDS_SHOWN} more id{'s' if len(found) - REPEATED_IDS_SHOWN != 1 else ''}"
+            if len(found) > REPEATED_IDS_SHOWN else "")
+    rows = sum(len(r) for _, r in found)
+    what, gives = ("ids", "gives") if by_column else ("names", "give")
+    return (Problem(ProblemKind.REPEATED_IDS, (), float(len(found)),
+                    Note((f"{holder} {gives} {rows} rows one {what[:-1]}: " if len(found) == 1 else
+                          f"{holder} {gives} {rows} rows {len(found)} {what} that each name more than one row: ",))
+                    + shown + f"{more}. These {what} do not stand for one row each, so a file "
+                    f"merged by them (a scores file, say) cannot be matched to the rows one to one: a merge that "
+                    f"expects one row per {what[:-1]} refuses, and one that allows several gives a row another "
+                    f"row's values.",
+                    Note(("correct the ids in a copy of the data file (a typing error?), or name the rows by a "
+                          "column whose values differ in every row", Command(f" ({Option.ID_COLUMN.given('COLUMN')})"),
+                          "; if the rows are one person's at several times, merge by the id and the time together."))),)
+
+
+def _without_copies(found: tuple, frame: pd.DataFrame) -> tuple:
+    """``found`` (id, its rows' numbers) without the rows identical in every column (a row-number column aside, as
+    data.copied_rows compares them) to an earlier row of the same id: the caution on copies names them with their
+    ids, and deleting the copies mends their ids too; the ids left to several rows after that."""
+    from cfa_tool.data.copied_rows import numbering_column
+
+    place = pd.Series(np.arange(len(frame)), index=row_numbers(frame))
+    if not place.index.is_unique:
+        return found
+    numbering = numbering_column(frame)
+    compared = frame.drop(columns=[numbering]) if numbering is not None else frame
+    kept = []
+    for value, rows in found:
+        at = place.reindex(list(rows)).dropna().astype(int)
+        copies: set = set()
+        if len(at) > 1:
+            try:
+                repeat = compared.iloc[at.to_numpy()].duplicated(keep="first").to_numpy()
+            except TypeError:  # cells pandas cannot hash: compared as text
+                repeat = compared.iloc[at.to_numpy()].astype(str).duplicated(keep="first").to_numpy()
+            copies = set(at.index[repeat].tolist())
+        rest = tuple(r for r in rows if r not in copies)
+        if len(rest) > 1:
+            kept.append((value, rest))
+    return tuple(kept)
 
 
 SAME_ANSWER_ROWS_SHOWN = 10  # rows a caution about same-answer rows names before 'and N more'

@@ -109,3 +109,75 @@ def item_sums(rows: np.ndarray, keys: np.ndarray, lowest: np.ndarray, highest: n
     if few.any():
         unscored[Unscored.TOO_FEW_ITEMS_ANSWERED] = few
     return ItemSums(tuple(factors), sums, means, count, enough & (count < items), unscored)
+
+
+#: two groups' values of one parameter differ when they differ by more than this, relative to their size (a value
+#: held equal across groups is one estimate, the same number in each group; one left free is estimated apart)
+GROUP_VALUES_ALIKE = 1e-9
+
+
+@dataclass(frozen=True)
+class GroupShift:
+    """An item of a factor's item sum whose parameters the fitted model sets apart between groups while it compares
+    the factor's means across them (partial invariance: 'noninvariant intercept(x)'): its answers move between groups
+    by its own shift, which the item sums and means carry and the model-based scores allow for.  ``parameters``: the
+    kinds that differ ('intercept', 'loading', 'thresholds'); ``groups``: the groups whose values differ from the
+    first group's, after it; ``intercepts``: the item's intercept in each of ``groups`` when it differs (else ())."""
+
+    factor: str
+    item: str
+    parameters: tuple[str, ...]
+    groups: tuple[str, ...]
+    intercepts: tuple[float, ...] = ()
+
+
+def _apart(values: list[np.ndarray]) -> list[bool]:
+    """Whether each group's values differ from the first group's (:data:`GROUP_VALUES_ALIKE`)."""
+    first = np.asarray(values[0], dtype=float)
+    out = []
+    for v in values:
+        v = np.asarray(v, dtype=float)
+        if v.shape != first.shape:
+            out.append(True)
+            continue
+        scale = np.maximum(1.0, np.maximum(np.abs(v), np.abs(first)))
+        out.append(bool(np.any(np.abs(v - first) > GROUP_VALUES_ALIKE * scale)))
+    return out
+
+
+def group_shifts(bases, thresholds, labels, sums) -> tuple[GroupShift, ...]:
+    """The items of the item sums (``sums``: the first group's keyed sums, scoring.quality.SumScore) whose intercept,
+    loading on the sum's factor or thresholds differ between the groups (``bases``: each group's
+    scoring.model.ScoringModel, of the latent responses for ordinal items; ``thresholds``: each group's thresholds per
+    item, or None for continuous items; ``labels``: the groups' labels), for the factors whose means the model
+    compares across groups (not zero in every group: a model that fixes them at zero in every group compares no
+    means, and says so: workflows.factor_scores.centred_in_each_group).  () for one group.
+
+    Under x = nu_g + L_g eta + e (Joreskog 1971; Meredith 1993) a factor's item mean in group g is
+    mean(nu_g) + mean(L_g) alpha_g over its items: with equal loadings and intercepts it differs between groups only
+    through alpha_g (scalar invariance); an intercept set apart adds its own shift (nu_ig - nu_i1) / J to the item
+    mean, which the model-based scores take out (Byrne, Shavelson & Muthén 1989: partial invariance)."""
+    if len(bases) < 2:
+        return ()
+    out = []
+    for s in sums:
+        f = list(bases[0].factors).index(s.factor)
+        if all(np.all(b.factor_means[f] == 0.0) for b in bases):
+            continue
+        for item in s.items:
+            j = list(bases[0].items).index(item)
+            kinds, differ = [], [False] * len(bases)
+            nu = _apart([b.intercepts[j] for b in bases])
+            for kind, flags in (("intercept", nu),
+                                ("loading", _apart([b.loadings[j, f] for b in bases])),
+                                ("thresholds", _apart([t[j] for t in thresholds]) if thresholds is not None
+                                 else [False] * len(bases))):
+                if any(flags):
+                    kinds.append(kind)
+                    differ = [a or b for a, b in zip(differ, flags)]
+            if kinds:
+                groups = (labels[0],) + tuple(lab for lab, d in zip(labels, differ) if d)
+                intercepts = tuple(float(bases[g].intercepts[j]) for g, lab in enumerate(labels)
+                                   if lab in groups) if any(nu) else ()
+                out.append(GroupShift(s.factor, item, tuple(kinds), groups, intercepts))
+    return tuple(out)

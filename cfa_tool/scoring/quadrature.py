@@ -5,9 +5,19 @@ E[h(u)] ~ sum_k exp(w_k) h(u_k) for u ~ N(0, I_r):
 
 * product Gauss-Hermite rules (probabilists' Hermite polynomials; e.g. Abramowitz & Stegun 1964,
   25.4.46), exact for polynomials of degree 2Q - 1 in each coordinate, used for 1 to 3 factors;
+* the same products pruned by weight for 4 and 5 factors: the points whose product weight is below
+  :data:`PRUNED_BELOW` times the largest are left out (Jäckel 2005, recalled from memory), which
+  keeps 1,273 of the 7^4 = 2,401 points of four factors and 2,133 of the 5^5 = 3,125 of five.  On a
+  grid centred and scaled on each row's posterior (adaptive quadrature) those points lie in its far
+  tails, where the integrand is next to nothing;
 * randomised quasi-Monte Carlo (scrambled Sobol points, Owen 1995; u = Phi^-1 of the points), used
-  for more factors, where a product grid grows too fast.  The scrambling seed is fixed, so the
+  for more factors, where even a pruned grid grows too fast.  The scrambling seed is fixed, so the
   same data give the same scores.
+
+Accuracy (tests/scoring/test_quadrature_rules.py, and new-user trial s20's 327 rows of 16 four-point
+items on 4 factors, against a 9^4 product rule): the pruned 7^4 rule's posterior means lay within
+4e-4 factor SD of it, the 4,096 Sobol points used for four factors until s20 within 3.5e-3, at about
+a tenth of the time; with 3 factors the 7^3 rule lay within 2e-4 of 9^3.
 """
 
 from __future__ import annotations
@@ -20,12 +30,15 @@ import numpy as np
 
 class RuleKind(Enum):
     GAUSS_HERMITE = "Gauss-Hermite product rule"
+    PRUNED_GAUSS_HERMITE = "Gauss-Hermite product rule pruned by weight"
     QUASI_MONTE_CARLO = "scrambled Sobol points (quasi-Monte Carlo)"
 
 
 #: points per factor of the Gauss-Hermite rule, by number of factors integrated over; the grid is
 #: centred and scaled on each row's posterior (adaptive quadrature), where few points suffice
-GAUSS_HERMITE_POINTS = {1: 21, 2: 11, 3: 7}
+GAUSS_HERMITE_POINTS = {1: 21, 2: 11, 3: 7, 4: 7, 5: 5}
+#: points of a product rule over 4 or 5 factors whose weight is below this share of the largest are left out
+PRUNED_BELOW = 1e-5
 SOBOL_POINTS_LOG2 = 12  # 4096 points for four or more factors
 SOBOL_SEED = 20261202
 
@@ -63,18 +76,36 @@ def sobol_rule(dimension: int, log2_points: int = SOBOL_POINTS_LOG2, seed: int =
     return Rule(RuleKind.QUASI_MONTE_CARLO, u, np.full(len(u), -np.log(len(u))))
 
 
+def pruned_gauss_hermite_rule(dimension: int, points: int, below: float = PRUNED_BELOW) -> Rule:
+    """The product Gauss-Hermite rule without its points of weight below ``below`` times the largest (the weights
+    of the points kept are left as they are: the posterior moments divide by their sum)."""
+    full = gauss_hermite_rule(dimension, points)
+    keep = full.log_weights >= full.log_weights.max() + np.log(below)
+    return Rule(RuleKind.PRUNED_GAUSS_HERMITE, full.points[keep], full.log_weights[keep])
+
+
 def default_rule_size(dimension: int) -> int:
-    """The number of points of :func:`default_rule` over ``dimension`` factors, without building it."""
+    """The number of points of :func:`default_rule` over ``dimension`` factors, without building its points."""
     if dimension < 1:
         raise ValueError("there is nothing to integrate over")
-    return GAUSS_HERMITE_POINTS[dimension] ** dimension if dimension <= 3 else 2 ** SOBOL_POINTS_LOG2
+    if dimension <= 3:
+        return GAUSS_HERMITE_POINTS[dimension] ** dimension
+    if dimension in GAUSS_HERMITE_POINTS:
+        x, w = np.polynomial.hermite_e.hermegauss(GAUSS_HERMITE_POINTS[dimension])
+        log_w = np.zeros(1)
+        for _ in range(dimension):  # the product's log-weights, without its points
+            log_w = (log_w[:, None] + np.log(w)[None, :]).ravel()
+        return int(np.count_nonzero(log_w >= log_w.max() + np.log(PRUNED_BELOW)))
+    return 2 ** SOBOL_POINTS_LOG2
 
 
 def default_rule(dimension: int, points: int | None = None) -> Rule:
-    """Gauss-Hermite for 1-3 dimensions (``points`` per coordinate, default GAUSS_HERMITE_POINTS),
-    scrambled Sobol points beyond."""
+    """Gauss-Hermite for 1-3 dimensions (``points`` per coordinate, default GAUSS_HERMITE_POINTS), the same pruned
+    by weight for 4 and 5, scrambled Sobol points beyond."""
     if dimension < 1:
         raise ValueError("there is nothing to integrate over")
     if dimension <= 3:
         return gauss_hermite_rule(dimension, points or GAUSS_HERMITE_POINTS[dimension])
+    if dimension in GAUSS_HERMITE_POINTS:
+        return pruned_gauss_hermite_rule(dimension, points or GAUSS_HERMITE_POINTS[dimension])
     return sobol_rule(dimension)

@@ -841,7 +841,6 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     table.index = caller_labels(table.index, loaded.frame_index)
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
                                spec, answered, sums) if ordinal_items else _linear_quality(models, spec, sums)
-    result = _with_repeated_ids(result, ids, id_column)
     result, few = _few_clusters_as_note(result)
     extra = few + duplicate_note(ids, "id column" if id_column is not None else "row names", False) + _partly_answered(
         models[0].base if ordinal_items else models[0], answered, chosen, errors)
@@ -851,7 +850,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                                               "rows by another column"), ".")))
     elif ids is None and not isinstance(data, pd.DataFrame):
         extra[:0] = _id_column_note(read_frame, source, spec, group, design)
-    own = _without_own_answers(answered, values, chosen, factors, unanswered)
+    own = _without_own_answers(answered, values, chosen, factors, unanswered) + _item_sums_across_groups(
+        models, labels, sums, chosen, bool(ordinal_items), group)
     if own:
         result = _after_data_cautions(result, data_cautions, own)
     unweighted = len(frame) - len(fitted_rows)  # weight 0: not in the fit, yet scored like every row
@@ -897,6 +897,49 @@ def _few_clusters_as_note(result) -> tuple[FitResult, list[str]]:
              f"fit's report); clusters change no score"])
 
 
+def _item_sums_across_groups(models, labels, sums: list, chosen, ordinal: bool, group: str | None) -> tuple:
+    """The caution, first in every view, on item sums and means of several groups whose model sets an item of the
+    sum apart between them (its intercept, loading or thresholds: scoring.item_sums.group_shifts) while it compares
+    the factor's means: the groups' sums and means differ by that item's own shift besides the factor, and the
+    model-based scores, which allow for it, are the ones to compare (new-user trial s20: a translated version's
+    shifted item made its item means differ by a quarter of their SD while the factor's scores agreed, with no
+    word).  () without item sums or means, groups or such items."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.scoring.item_sums import group_shifts
+
+    summed = [m for m in ITEM_METHODS if m in chosen]
+    if not summed or group is None or len(models) < 2 or not sums:
+        return ()
+    bases = [m.base for m in models] if ordinal else list(models)
+    shifts = group_shifts(bases, [m.thresholds for m in models] if ordinal else None, [str(x) for x in labels],
+                          sums[0])
+    if not shifts:
+        return ()
+    kinds = " and ".join(dict.fromkeys(("item sums" if m is ScoreMethod.ITEM_SUM else "item means") for m in summed))
+    factors = tuple(dict.fromkeys(x.factor for x in shifts))
+
+    def said(x) -> str:
+        what = " and ".join(("intercept" if k == "intercept" else "loading" if k == "loading" else "thresholds")
+                            for k in x.parameters)
+        of = f"{printable(x.factor)}: " if len(factors) > 1 else ""
+        if x.intercepts:
+            values = ", ".join(f"{printable(g)} {v:.2f}" for g, v in zip(x.groups, x.intercepts))
+            return f"the {what} of {printable(x.item)} ({of}intercept {values})"
+        return f"the {what} of {printable(x.item)} ({of}differing in {', '.join(printable(g) for g in x.groups)})"
+
+    names = ", ".join(printable(f) for f in factors)
+    model_based = "posterior means" if ordinal else "regression or Bartlett scores"
+    return (Problem(ProblemKind.ITEM_SUMS_ACROSS_GROUPS, (), float(len(shifts)),
+                    f"The {kinds} of {names} do not compare across the groups of {printable(group)}: while it "
+                    f"compares the factor means, the model sets apart between groups "
+                    + "; ".join(said(x) for x in shifts)
+                    + f", so the groups' {kinds} of "
+                    f"{'that factor' if len(factors) == 1 else 'those factors'} differ by each such item's own shift "
+                    f"as well as by the factor (a difference in the {kinds} that the factor may not have).",
+                    f"compare the groups by the model-based scores of {names} ({model_based}), which allow for those "
+                    f"items; read the {kinds} within one group only."),)
+
+
 def _after_data_cautions(result, data_cautions, scored) -> FitResult:
     """``result`` with the cautions on the rows ``scored`` placed as a fit places its own problems
     (pipeline.inputs.with_odd_values): after the cautions on the data (``data_cautions``, among ``result``'s
@@ -908,22 +951,6 @@ def _after_data_cautions(result, data_cautions, scored) -> FitResult:
     first = tuple(p for p in result.problems if p in data_cautions)
     rest = tuple(p for p in result.problems if p not in data_cautions)
     return replace(result, problems=solution_first(first + tuple(scored) + rest))
-
-
-def _with_repeated_ids(result, ids, id_column):
-    """``result`` with a caution first when ids repeat: a scores file is merged back by id, and a repeated id gives
-    two people each other's scores (a hostile trial found it said only in a note far down the report)."""
-    from cfa_tool.assessment.admissibility import Problem, ProblemKind
-    from cfa_tool.data.row_ids import repeated_ids
-
-    said = repeated_ids(ids, "Id column" if id_column is not None else "Row names")
-    if said is None:
-        return result
-    return replace(result, problems=(Problem(
-        ProblemKind.REPEATED_IDS_SCORED, (), None, said + ": a merge of the scores file by id would match them with "
-        "the wrong rows.", Note(("give each row an id of its own in a copy of the data file, or name the rows by "
-                                 "another column", Command(f" ({Option.ID_COLUMN.given('COLUMN')})"), "."))),)
-        + tuple(result.problems))
 
 
 def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group, chosen, ordinal: bool,
@@ -1103,7 +1130,9 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                         f"{'was' if one else 'were'} read as no answer, as the earlier fit read {'it' if one else 'them'} "
                         f"(its missing-value codes and words of no answer)")
     # the cautions about the scored file computed on it, first; the earlier fit's own said to be about the fit
-    own = api.odd_value_problems(api.analysed_odd_values(loaded, spec, group), group) + api.same_answer_problems(
+    # (ids of several rows first, as every command names them: pipeline.inputs.repeated_id_problems)
+    own = api.repeated_id_problems(loaded, ids_by_row_number(ids, read_frame), api.id_filter_column(id_column, loaded)) \
+        + api.odd_value_problems(api.analysed_odd_values(loaded, spec, group), group) + api.same_answer_problems(
         api._labelled(frame, group) if group is not None else frame, spec, ids_by_row_number(ids, read_frame),
         scored_only=True, by_loadings=api.reversed_by_loadings(result))
     # (the fit's own file scored again: its findings of the same kinds are the scored file's, said once)
@@ -1142,7 +1171,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     # first in every view, before the fit's own (the rows scored are this run's data)
-    scored_problems = list(_without_own_answers(answered, values, chosen, factors, unanswered))
+    scored_problems = list(_without_own_answers(answered, values, chosen, factors, unanswered)
+                           + _item_sums_across_groups(models, labels, sums, chosen, ordinal, group))
     if unknown_groups:
         scored_problems.append(Problem(ProblemKind.UNKNOWN_GROUPS_SCORED, (), None, unknown_groups + ".",
                                        "write each row's group as the fit's data wrote it, or fit the model to "
@@ -1152,7 +1182,6 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                            _coded_otherwise(result.data, base, rows, source, ordinal)]
     if scored_problems:
         result = _after_data_cautions(result, own, scored_problems)
-    result = _with_repeated_ids(result, ids, id_column)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names", False) \
         + _partly_answered(base, answered, chosen, errors)
     if ids is None and not isinstance(data, pd.DataFrame):

@@ -68,7 +68,14 @@ def test_a_file_appended_to_itself_is_named_first_by_fit_check_compare_and_invar
     # csv rows: the header is line 1, so the first data row is row 2 and its copy row 302
     assert first.explanation.startswith("300 of the 600 rows analysed are identical in every column to an earlier "
                                         "row: row 302 repeats row 2; row 303 repeats row 3;")
-    assert "and 295 more" in first.explanation and "keep" in first.advice
+    assert "and 295 more" in first.explanation
+    # s20 (new-user item 12): rows identical in every column have no column a row filter could tell them apart by,
+    # so the advice is only the remedy that applies; a row-number column gives a filter
+    assert "keep" not in first.advice and "delete the copies in a copy of the data file" in first.advice
+    numbered = tmp_path / "numbered.csv"
+    pd.concat([riders, riders]).assign(line=np.arange(1, 601)).to_csv(numbered, index=False)
+    advice = cfa_tool.fit(MODEL, numbered).problems[0].advice
+    assert "keep" in advice and "on a column that tells them apart" in advice and "line < 301" in advice
     assert _kinds(cfa_tool.fit(MODEL, path, id_column="rider").problems)[0] is ProblemKind.COPIED_ROWS
     with_ids = cfa_tool.fit(MODEL, path, id_column="rider").problems[0].explanation
     assert "row 302 (R0001) repeats row 2 (R0001)" in with_ids
