@@ -400,6 +400,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         item_if = np.zeros((n, len(tau)))
         item_if[rows_j] = (total / n_j) * (below - cumulative[None, :]) / dist.norm_pdf(tau)[None, :]
         threshold_if.append(item_if)
+    _refuse_large_covariance(source + where, sum(len(t) for t in thresholds) + 2 * len(mean_if), p)
     rows_i, cols_j = np.tril_indices(p, -1)
     R = np.eye(p)
     polychoric = _pair_correlations(codes, present, thresholds, categories, rows_i, cols_j, w)
@@ -485,6 +486,27 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                           R, gamma, codes, means, sds, frozenset(continuous), joint_gamma,
                           pair_counts if pairwise else None, rows_design,
                           joint if rows_design is not None else None, mixed_gamma)
+
+
+def _refuse_large_covariance(source: str, per_item: int, p: int) -> None:
+    """Refuse in one line (EstimationError, exit 3), before the correlations are estimated, statistics whose
+    asymptotic covariance (``joint_gamma``, or beside continuous items ``mixed_gamma``, or under a design the
+    covariance from the rows' influence functions: k x k, k the ``per_item`` thresholds (and continuous items' means
+    and variances) and the p(p-1)/2 correlations) would exceed the one limit of :mod:`cfa_tool.numerics.sizes`:
+    at 200 items with four answers 20,500 x 20,500, 3.1 GiB, which ran out of time and memory (robust-s20)."""
+    from cfa_tool.errors import EstimationError
+    from cfa_tool.numerics import sizes
+
+    pairs = p * (p - 1) // 2
+    k = per_item + pairs
+    if sizes.fits(k):
+        return
+    share = per_item / p
+    raise EstimationError(
+        f"{source}: the {p} items' {per_item:,} thresholds and {pairs:,} correlations are {k:,} statistics, and the "
+        f"covariance of their estimates, which the weights, standard errors and tests of ordinal items come from, is a "
+        f"{k:,} x {k:,} matrix of {sizes.too_large_words(k, lambda n: round(n * share) + n * (n - 1) // 2)}; fit "
+        f"the items in smaller sets")
 
 
 @dataclass(frozen=True)

@@ -56,25 +56,30 @@ def moment_hessian(data: PatternData, mu: np.ndarray, sigma: np.ndarray, d_sigma
 class MissingParts:
     """One group's pieces of the FIML discrepancy at theta (see the module docstring)."""
 
-    def __init__(self, M: np.ndarray, mean_gradient: np.ndarray, weight_tensor: np.ndarray, mean_weight: np.ndarray):
+    def __init__(self, M: np.ndarray, mean_gradient: np.ndarray, A: np.ndarray, w: np.ndarray):
         self.M = M
         self.mean_gradient = mean_gradient
-        self.G = weight_tensor  # (p*p, p*p): sum_k w_k vec(A_k) vec(A_k)', reordered for contraction
-        self.mean_weight = mean_weight  # sum_k w_k A_k
+        self.A, self.w = A, w  # the patterns' A_k and weights w_k, whose sum_k w_k tr(A X A Y) is the information
+        self.mean_weight = np.tensordot(w, A, axes=1)  # sum_k w_k A_k
+        self._G = None  # at few items, the whole weight matrix of :func:`_trace_products`, made once
+
+    def _products(self, x_sigma: np.ndarray) -> np.ndarray:
+        if self._G is None and _in_one_block(self.A.shape[1]):
+            self._G = _trace_weights(self.A, self.A, self.w)
+        return _trace_products(self.A, self.A, self.w, x_sigma, self._G)
 
     def gradient(self, d_sigma: np.ndarray, d_mu: np.ndarray) -> np.ndarray:
         return d_sigma.reshape(len(d_sigma), -1) @ self.M.ravel() + d_mu @ self.mean_gradient
 
     def information_diagonal(self, x_sigma: np.ndarray, x_mu: np.ndarray) -> np.ndarray:
-        k, p, _ = x_sigma.shape
-        T = (x_sigma.reshape(k, p * p) @ self.G).reshape(k, p, p)
+        T = self._products(x_sigma)
         return np.einsum("kib,kbi->k", T, x_sigma) + 2.0 * np.einsum("ki,ij,kj->k", x_mu, self.mean_weight, x_mu)
 
     def information(self, x_sigma, x_mu, y_sigma=None, y_mu=None) -> np.ndarray:
         y_sigma = x_sigma if y_sigma is None else y_sigma
         y_mu = x_mu if y_mu is None else y_mu
-        # tr(A X A Y) = sum_{ijab} A_ij X_ja A_ab Y_bi: contract X with G over (j, a), then with Y over (b, i)
-        return _trace_contract(self.G, x_sigma, y_sigma) + 2.0 * x_mu @ self.mean_weight @ y_mu.T
+        # tr(A X A Y) = sum_{ijab} A_ij X_ja A_ab Y_bi: the products A X A, then their traces with Y
+        return _trace_contract(self._products(x_sigma), y_sigma) + 2.0 * x_mu @ self.mean_weight @ y_mu.T
 
 
 class MissingDataLikelihood:
@@ -163,7 +168,7 @@ class MissingDataLikelihood:
         if state is None:
             return None
         _, A, w, _, M, _, mean_gradient = state
-        return MissingParts(M, mean_gradient, _trace_weights(A, A, w), np.tensordot(w, A, axes=1))
+        return MissingParts(M, mean_gradient, A, w)
 
     def moment_hessian(self, theta: np.ndarray, g: int, d_sigma: np.ndarray, d_mu: np.ndarray) -> np.ndarray | None:
         """Group g's observed information in directions (``d_sigma``, ``d_mu``) linear in the moments, at the model's
@@ -265,8 +270,8 @@ def first_order_hessian(A: np.ndarray, w: np.ndarray, ATA: np.ndarray, Ad: np.nd
                    + 2 dmu_a' A dmu_b]."""
     q = len(d_sigma)
     P, p, _ = A.shape
-    same = _trace_contract(_trace_weights(A, A, w), d_sigma, d_sigma)  # sum_k w_k tr(A X A Y)
-    mixed = _trace_contract(_trace_weights(A, ATA, w), d_sigma, d_sigma)  # sum_k w_k tr(A X (ATA) Y)
+    same = _trace_contract(_trace_products(A, A, w, d_sigma), d_sigma)  # sum_k w_k tr(A X A Y)
+    mixed = _trace_contract(_trace_products(A, ATA, w, d_sigma), d_sigma)  # sum_k w_k tr(A X (ATA) Y)
     t3 = (Ad * w[:, None]).T @ A.reshape(P, p * p)  # [i, (j, l)] = sum_k w_k (A d)_i A_jl
     cross = d_sigma.reshape(q, p * p) @ t3.reshape(p * p, p) @ d_mu.T  # d'A D_a A dmu_b
     return (-same + (mixed + mixed.T) + 2.0 * (cross + cross.T)  # mixed is symmetric: 2 mixed, symmetrised
@@ -287,6 +292,16 @@ def model_second_order(model: StructuredModel, g: int, mats, M: np.ndarray, mean
     return J.T @ second @ J
 
 
+#: the most bytes a block of the patterns' weight matrix takes (:func:`_trace_products`): up to about 50 items the
+#: whole (p*p, p*p) matrix is one block; beyond, a few of its columns at a time, so that no route makes it whole
+#: (at 200 items it would be 40,000 x 40,000, 11.9 GiB: a MemoryError after minutes, robust-s20)
+BLOCK_BYTES = 1 << 26
+
+
+def _in_one_block(p: int) -> bool:
+    return p ** 4 * 8 <= BLOCK_BYTES
+
+
 def pattern_outer(X: np.ndarray, Y: np.ndarray, w: np.ndarray) -> np.ndarray:
     """sum_k w_k vec(X_k) vec(Y_k)' for symmetric X_k, Y_k of shape (P, p, p), as a (p*p, p*p) matrix.
 
@@ -302,15 +317,43 @@ def pattern_outer(X: np.ndarray, Y: np.ndarray, w: np.ndarray) -> np.ndarray:
 
 
 def _trace_weights(X: np.ndarray, Y: np.ndarray, w: np.ndarray) -> np.ndarray:
-    """sum_k w_k X_ij Y_ce arranged with rows (j, c) and columns (i, e), ready for :func:`_trace_contract`."""
+    """The whole of G = sum_k w_k X_ij Y_ce arranged with rows (j, c) and columns (i, e) (:func:`_weight_block`'s
+    layout) from the symmetric X_k, Y_k's distinct elements (:func:`pattern_outer`): the route of few items."""
     p = X.shape[1]
     return pattern_outer(X, Y, w).reshape(p, p, p, p).transpose(1, 2, 0, 3).reshape(p * p, p * p)
 
 
-def _trace_contract(G: np.ndarray, x_sigma: np.ndarray, y_sigma: np.ndarray) -> np.ndarray:
-    """sum_k w_k tr(X_k D_a Y_k E_b) for every D_a in x_sigma and E_b in y_sigma, G from :func:`_trace_weights`."""
+def _weight_block(X: np.ndarray, Y: np.ndarray, w: np.ndarray, rows: slice) -> np.ndarray:
+    """Columns (i, e), i in ``rows``, of G = sum_k w_k X_ij Y_ce arranged with rows (j, c) (X_k, Y_k of shape (P, p,
+    p)), ready for a product with the directions' vec: G' vec(D) = vec(X D Y) for each i in ``rows``."""
+    P, p, _ = X.shape
+    Xw = X[:, rows, :] * w[:, None, None]
+    n_i = Xw.shape[1]
+    M = Xw.reshape(P, n_i * p).T @ Y.reshape(P, p * p)  # ((i, j), (c, e)) = sum_k w_k X_ij Y_ce
+    return M.reshape(n_i, p, p, p).transpose(1, 2, 0, 3).reshape(p * p, n_i * p)
+
+
+def _trace_products(X: np.ndarray, Y: np.ndarray, w: np.ndarray, x_sigma: np.ndarray,
+                    whole: np.ndarray | None = None) -> np.ndarray:
+    """sum_k w_k X_k D_a Y_k for every D_a in ``x_sigma``, shape (len(x_sigma), p, p): the products of the
+    directions with the patterns' weight matrix G (:func:`_weight_block`; ``whole``: G made beforehand), a block of
+    its columns at a time (:data:`BLOCK_BYTES`), never the (p*p, p*p) matrix at once beyond about 50 items."""
     kx, p, _ = x_sigma.shape
-    T = (x_sigma.reshape(kx, p * p) @ G).reshape(kx, p, p)  # (a, i, e) = sum_jc D_a[j, c] X_ij Y_ce
+    D = x_sigma.reshape(kx, p * p)
+    if whole is not None or _in_one_block(p):
+        G = whole if whole is not None else _trace_weights(X, Y, w)
+        return (D @ G).reshape(kx, p, p)
+    T = np.empty((kx, p, p))
+    step = max(1, BLOCK_BYTES // (8 * p ** 3))
+    for start in range(0, p, step):
+        rows = slice(start, min(p, start + step))
+        T[:, rows, :] = (D @ _weight_block(X, Y, w, rows)).reshape(kx, -1, p)
+    return T
+
+
+def _trace_contract(T: np.ndarray, y_sigma: np.ndarray) -> np.ndarray:
+    """sum_k w_k tr(X_k D_a Y_k E_b) for every E_b in y_sigma, T from :func:`_trace_products`."""
+    kx = len(T)
     return T.reshape(kx, -1) @ y_sigma.transpose(0, 2, 1).reshape(len(y_sigma), -1).T
 
 

@@ -56,33 +56,32 @@ if TYPE_CHECKING:
     from cfa_tool.model.implied import ModelMatrices
 
 
-#: the largest matrix of the moments by the moments (k x k, k = p + p(p+1)/2 means, variances and covariances) the
-#: full-information robust route makes: it holds several at once (the saturated model's information and meat, an
-#: inverse, products) beside the moments' k x p x p directions, about 3.5 GB at this size (125 items); above it the
-#: route is refused before anything is allocated (:func:`check_moment_matrices`; 200 items would need 3.3 GB for each
-#: matrix and 6.5 GB of directions: hostile s19, case 11's neighbour)
-MOMENT_MATRIX_BYTES = 1 << 29
-
-
 def check_moment_matrices(likelihood: MissingDataLikelihood) -> None:
+    """:func:`refuse_moment_matrices` for ``likelihood``'s items and design."""
+    refuse_moment_matrices(likelihood.p, any(getattr(g, "design", None) is not None for g in likelihood.groups))
+
+
+def refuse_moment_matrices(p: int, designed: bool) -> None:
     """Refuse, with a one-line EstimationError naming the sizes and what to do, a full-information robust route whose
-    matrices of the moments by the moments would exceed :data:`MOMENT_MATRIX_BYTES` each (module docstring: H_s and
-    B_s are k x k), before any of them is made: never a MemoryError after minutes of work."""
+    matrices of the moments by the moments (module docstring: H_s and B_s are k x k, k = p + p(p+1)/2 means,
+    variances and covariances; several at once beside the moments' k x p x p directions) would exceed the one limit
+    of :mod:`cfa_tool.numerics.sizes` each, before any of them is made: never a MemoryError after minutes of work
+    (200 items would need 3.3 GB for each matrix and 6.5 GB of directions: hostile s19, case 11's neighbour).
+    ``designed``: under a sampling design, whose test is design-based (no normal-theory test to fall back on)."""
     from cfa_tool.errors import EstimationError
+    from cfa_tool.numerics import sizes
     from cfa_tool.options import Option
 
-    p = likelihood.p
     k = p + p * (p + 1) // 2
-    if k * k * 8 <= MOMENT_MATRIX_BYTES:
+    if sizes.fits(k):
         return
-    designed = any(getattr(g, "design", None) is not None for g in likelihood.groups)
     leave_out = "" if designed else f", or leave out {Option.ROBUST} for the normal-theory test"
     raise EstimationError(
-        f"the robust test and standard errors with rows with gaps (full-information ML) work on matrices of the "
-        f"{k:,} means, variances and covariances of the {p} items by themselves, {k * k * 8 / 2 ** 30:.1f} GiB each "
-        f"and several at once, more than this tool allocates ({MOMENT_MATRIX_BYTES / 2 ** 30:.1f} GiB each, about "
-        f"125 items); keep only the complete rows ({Option.INCOMPLETE_ROWS.given('listwise')}), whose robust test needs "
-        f"no such matrix, fit the items in smaller sets{leave_out}")
+        f"the robust test and standard errors with rows with gaps (full-information ML) work on several matrices of "
+        f"the {k:,} means, variances and covariances of the {p} items by themselves, each "
+        f"{sizes.too_large_words(k, lambda n: n + n * (n + 1) // 2)}; keep only the complete rows "
+        f"({Option.INCOMPLETE_ROWS.given('listwise')}), whose robust test needs no such matrix, fit the items in "
+        f"smaller sets{leave_out}")
 
 
 def _moment_directions(p: int) -> tuple[np.ndarray, np.ndarray]:

@@ -1523,6 +1523,10 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     notes += few_note
     if design is not None:
         fit_options = design_test(fit_options, design)
+    if fit_options.missing is MissingData.FULL_INFORMATION and fit_options.test in (FitTest.YUAN_BENTLER, FitTest.ROBUST):
+        from cfa_tool.inference.robust_missing import refuse_moment_matrices  # before the EM and the fit, not after
+
+        refuse_moment_matrices(len(spec.observed_names), design is not None)
     # EM on thousands of rows: one thread beats several on small p; the moments and the fit in one context (the
     # fit's own then finds one thread already and sets nothing)
     with blas_threads_for(len(spec.observed_names)):

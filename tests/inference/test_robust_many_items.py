@@ -159,11 +159,12 @@ def test_the_full_information_robust_route_refuses_matrices_too_large_before_mak
     import cfa_tool.inference.robust_missing as robust_missing
     from cfa_tool.cli import main
     from cfa_tool.errors import EstimationError
+    from cfa_tool.numerics import sizes
 
     made = []
     original = robust_missing._moment_directions
     monkeypatch.setattr(robust_missing, "_moment_directions", lambda p: made.append(p) or original(p))
-    monkeypatch.setattr(robust_missing, "MOMENT_MATRIX_BYTES", 44 * 44 * 8 - 1)
+    monkeypatch.setattr(sizes, "MATRIX_BYTES", 44 * 44 * 8 - 1)
     frame = _many_items(8, 300, 4, False)
     frame.iloc[::7, 2] = np.nan
     model = "factor F1: q1..q4\nfactor F2: q5..q8\n"
@@ -174,7 +175,7 @@ def test_the_full_information_robust_route_refuses_matrices_too_large_before_mak
     (tmp_path / "m.cfa").write_text(model)
     frame.to_csv(tmp_path / "d.csv", index=False)
     assert main(["fit", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "d.csv"), "--robust"]) == 3
-    monkeypatch.setattr(robust_missing, "MOMENT_MATRIX_BYTES", 44 * 44 * 8)  # at the limit: computed
+    monkeypatch.setattr(sizes, "MATRIX_BYTES", 44 * 44 * 8)  # at the limit: computed
     assert cfa_tool.fit(model, frame, missing="full-information", test="robust").robust is not None
 
 
