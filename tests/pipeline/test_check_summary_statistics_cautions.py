@@ -19,15 +19,20 @@ sd,1.17,1.18,1.13,1.16,1.29,1.10
 """
 
 
-def test_check_of_summary_statistics_cautions_as_the_fit(tmp_path, capsys):
+def _run(command: str, n: int, tmp_path, capsys) -> str:
+    """The output of ``command`` (check or fit) of the two-factor model on the summary statistics with N = ``n``,
+    its lines joined."""
     model = tmp_path / "m.cfa"
     model.write_text("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\n")
-    stats = tmp_path / "n7.stats"
-    stats.write_text(STATS.format(n=7))
-    code, checked, err = run_cli(["check", model, "--data", stats], capsys)
+    stats = tmp_path / f"n{n}.stats"
+    stats.write_text(STATS.format(n=n))
+    code, out, err = run_cli([command, model, "--data", stats], capsys)
     assert code == 0, err
-    code, fitted, err = run_cli(["fit", model, "--data", stats], capsys)
-    checked, fitted = " ".join(checked.split()), " ".join(fitted.split())
+    return " ".join(out.split())
+
+
+def test_check_of_summary_statistics_cautions_as_the_fit(tmp_path, capsys):
+    checked, fitted = _run("check", 7, tmp_path, capsys), _run("fit", 7, tmp_path, capsys)
     said = "7 rows for the 13 free parameters of the model"
     assert said in fitted and said in checked
     assert checked.index(said) < checked.index("The model is valid")  # first, as problems are
@@ -35,10 +40,5 @@ def test_check_of_summary_statistics_cautions_as_the_fit(tmp_path, capsys):
 
 
 def test_enough_rows_give_no_caution(tmp_path, capsys):
-    model = tmp_path / "m.cfa"
-    model.write_text("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\n")
-    stats = tmp_path / "n301.stats"
-    stats.write_text(STATS.format(n=301))
-    code, checked, err = run_cli(["check", model, "--data", stats], capsys)
-    assert code == 0, err
-    assert "free parameters of the model" not in checked and "8 degrees of freedom" in " ".join(checked.split())
+    checked = _run("check", 301, tmp_path, capsys)
+    assert "free parameters of the model" not in checked and "8 degrees of freedom" in checked

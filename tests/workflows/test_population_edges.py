@@ -26,22 +26,19 @@ def test_a_factor_without_population_variance_is_refused_at_its_line(command, tm
     assert not (tmp_path / "s.csv").exists()
 
 
-def test_a_given_loading_beyond_the_items_variance_is_refused(tmp_path, capsys):
+@pytest.mark.parametrize("residual, refused", [("", True), ("start variance(b) = 0.5\n", False)])
+def test_a_given_loading_beyond_the_items_variance_is_refused(residual, refused, tmp_path, capsys):
+    """Refused unless the item's residual variance is given too."""
     model = tmp_path / "pop.cfa"
-    model.write_text("factor f: a, b, c, d\nstart loading(f, b) = 3\n")
+    model.write_text("factor f: a, b, c, d\nstart loading(f, b) = 3\n" + residual)
     code, out, err = run_cli(["simulate", model, "--n", "50", "--output", tmp_path / "s.csv"], capsys)
+    if not refused:
+        assert code == 0, err
+        return
     assert code in (2, 3) and out == ""
     # the default factor variance is .49 (loadings .7 of standardized items): 3 * .7 = 2.1, 2.1 ** 2 = 4.41
     assert "the factors of item 'b' explain 4.41 of its variance" in err and "would be -3.41" in err
     assert "variance(b) with a 'start' statement" in err
-
-
-def test_a_given_residual_variance_beside_a_large_loading_is_taken(tmp_path, capsys):
-    model = tmp_path / "pop.cfa"
-    model.write_text("factor f: a, b, c, d\nstart loading(f, b) = 3\nstart variance(b) = 0.5\n")
-    code, out, err = run_cli(["simulate", model, "--n", "50", "--output", tmp_path / "s.csv",
-                              "--json", tmp_path / "s.json"], capsys)
-    assert code == 0, err
 
 
 def test_a_defaulted_residual_covariance_is_zero_and_its_power_is_read_as_false_rejections(tmp_path, capsys):
