@@ -79,6 +79,12 @@ def ids_of_several_rows(ids: dict) -> tuple[tuple[str, tuple[int, ...]], ...]:
     numbers of its rows in order, the ids in the order of their first rows; () when every id names one row.  One rule
     for every command that takes an id column (pipeline.inputs.repeated_id_problems; new-user trial s20: a pupil id
     typed twice was named by no command, and the scores file carried it twice)."""
+    try:  # every id once, the common case, without building a series (a fixed price of every fit otherwise)
+        present = [v for v in ids.values() if not (v is None or v != v)]
+        if len(set(present)) == len(present):
+            return ()
+    except TypeError:  # an id that cannot be hashed or compared (pandas' NA): the series decides
+        pass
     named = pd.Series([v for v in ids.values()], index=list(ids.keys()), dtype=object).dropna()
     repeated = named[named.duplicated(keep=False)]
     if not len(repeated):
