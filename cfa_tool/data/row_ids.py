@@ -119,5 +119,6 @@ def duplicate_note(ids: pd.Series | None, what: str, repeats: bool = True) -> li
     if repeated is not None:
         notes.append(repeated)
     if len(present) < len(ids):
-        notes.append(f"{what}: {len(ids) - len(present)} rows have no id")
+        missing = len(ids) - len(present)
+        notes.append(f"{what}: {missing} row{' has' if missing == 1 else 's have'} no id")
     return notes

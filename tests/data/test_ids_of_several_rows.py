@@ -20,3 +20,10 @@ def test_repeated_ids_are_named_with_their_rows_in_order():
     assert ids_of_several_rows(ids) == (("p1", (2, 4)), ("p2", (3, 7)))
     with_na = {2: 7, 3: pd.NA, 4: 7, 5: pd.NA}  # NA cannot be compared: the series route decides, alike
     assert ids_of_several_rows(with_na) == (("7", (2, 4)),)
+
+
+def test_rows_without_an_id_counted_in_words():
+    from cfa_tool.data.row_ids import duplicate_note
+
+    assert duplicate_note(pd.Series(["a", None, "c"]), "Id column") == ["Id column: 1 row has no id"]
+    assert duplicate_note(pd.Series(["a", None, np.nan]), "Id column") == ["Id column: 2 rows have no id"]
