@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from numbers import Real
 import os
 from typing import TYPE_CHECKING
 from collections import Counter
@@ -945,9 +946,9 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     example = ""
     if found.numbering and set(found.copies) == set(row_numbers(frame)[len(frame) - n:].tolist()):  # a block at the end
         first = frame[found.numbering].iloc[len(frame) - n]
-        number = isinstance(first, (int, float, np.integer, np.floating)) and not isinstance(first, bool)
-        written = filter_text(found.numbering, "<", first.item() if isinstance(first, np.generic) else first) \
-            if number else filter_text(found.numbering, "<", label_text(first))
+        # a number as the one writer takes numbers (numpy's too: Real), anything else as its label's text
+        number = isinstance(first, Real) and not isinstance(first, bool)
+        written = filter_text(found.numbering, "<", first if number else label_text(first))
         example = f" (here {Option.KEEP.given(written)})" if written else ""  # the one writer (data.filter_text)
     return (Problem(ProblemKind.COPIED_ROWS, (), float(n),
                     f"{n} of the {len(frame)} rows analysed {'is' if n == 1 else 'are'} identical in every column"
