@@ -1850,13 +1850,18 @@ def _loading_pairs(rep) -> list[tuple[tuple[str, str], float, float]]:
 REVERSED_LOADING_SIZE = 0.20
 
 
+def _reversed(a: float, b: float) -> bool:
+    """Two standardized loadings of one item of opposite signs, both at least :data:`REVERSED_LOADING_SIZE` in size."""
+    return a * b < 0 and min(abs(a), abs(b)) >= REVERSED_LOADING_SIZE
+
+
 def reversed_loadings(rep) -> list[tuple[tuple[str, str], float, float]]:
     """((factor, item), calibration, validation) of the standardized loadings that have opposite signs in the two
     samples, both at least :data:`REVERSED_LOADING_SIZE` in size (none when the loose refit did not converge)."""
     if not rep.loose.converged:
         return []
     return [(key, a, b) for key, a, b in _loading_pairs(rep)
-            if a * b < 0 and min(abs(a), abs(b)) >= REVERSED_LOADING_SIZE]
+            if _reversed(a, b)]
 
 
 def reversed_across_groups(result) -> list[tuple[tuple[str, str], str, float, str, float]]:
@@ -1875,7 +1880,7 @@ def reversed_across_groups(result) -> list[tuple[tuple[str, str], str, float, st
             continue
         group, a = first[r.variables]
         b = r.standardized
-        if a * b < 0 and min(abs(a), abs(b)) >= REVERSED_LOADING_SIZE:
+        if _reversed(a, b):
             found.append((r.variables, group, a, r.group, b))
     return found
 
