@@ -15,12 +15,14 @@ METHOD_LABELS = {ScoreMethod.REGRESSION: "regression", ScoreMethod.BARTLETT: "Ba
 
 
 def share_words(share: float) -> str:
-    """A least share in plain words: 'half' for .5, else a percentage with the decimals it needs ('60%', '0.01%',
-    '66.67%'; hostile s20: a share of .0001 was printed 'at least 0%')."""
+    """A least share in plain words: 'half' for .5, else a percentage with the fewest decimals (up to 4) that neither
+    print 0 nor move it by as much as half a percent of itself ('60%', '67%' for 2/3, '12.3%', '0.01%'; hostile s20: a
+    share of .0001 was printed 'at least 0%')."""
     if share == 0.5:
         return "half"
     percent = 100 * share
-    digits = next((d for d in range(0, 4) if round(percent, d) != 0 and abs(round(percent, d) - percent) < 5e-3 * max(percent, 1e-9) + 1e-12), 4)
+    close = 5e-3 * max(percent, 1e-9) + 1e-12
+    digits = next((d for d in range(4) if round(percent, d) != 0 and abs(round(percent, d) - percent) < close), 4)
     return f"{percent:.{digits}f}%"
 
 
