@@ -390,6 +390,12 @@ def _repeated(what: str, first: ParameterRef, again: ParameterRef) -> str:
     return f"{what} {where}; give it once (remove one, or correct the parameter it names)"
 
 
+def factor_without_variance(ref: ParameterRef, value: float, top) -> bool:
+    """Whether a 'fix' or 'start' value gives a factor below no other (``top``: language.checks.exogenous_factors)
+    variance 0: a factor that measures nothing (a higher-order factor's indicators may have residual variance 0)."""
+    return ref.kind == "variance" and value == 0 and len(set(ref.names)) == 1 and ref.names[0] in top
+
+
 def _check_contradictions(spec: Spec) -> None:
     fixed: dict[tuple, tuple[float, ParameterRef]] = {}
     latent = set(spec.factor_names)
@@ -399,8 +405,7 @@ def _check_contradictions(spec: Spec) -> None:
             if ref.kind == "variance" and setting.value < 0:
                 raise _fail(spec, f"{ref} is fixed to {user_number(setting.value)}, but a variance cannot be negative; fix it to 0 "
                                   f"or more", ref.location)
-            if (ref.kind == "variance" and setting.value == 0 and len(set(ref.names)) == 1
-                    and ref.names[0] in top):
+            if factor_without_variance(ref, setting.value, top):
                 # a higher-order factor's own part (its residual variance) may be 0; a factor with no variance at
                 # all measures nothing, and its loadings cannot be estimated
                 raise _fail(spec, f"{ref} is fixed to 0: a factor without variance measures nothing, and its "

@@ -376,12 +376,12 @@ def _no_factor_without_variance(spec: Spec) -> None:
     language refuses 'fix variance(f) = 0': such a factor measures nothing, and the defaults of its loadings, set on
     the standardized metric through the factor's SD, would be divided by 0 (hostile s20: loadings of 700,000 and a
     power table of zeros).  A higher-order factor's indicators may have a residual variance of 0."""
-    from cfa_tool.language.checks import exogenous_factors
+    from cfa_tool.language.checks import exogenous_factors, factor_without_variance
 
     top = set(exogenous_factors(spec))
     for setting in spec.starts:
         for ref in setting.refs:
-            if ref.kind == "variance" and setting.value == 0 and len(set(ref.names)) == 1 and ref.names[0] in top:
+            if factor_without_variance(ref, setting.value, top):
                 raise ModelError(f"{ref} is given a population value of 0: a factor without variance measures nothing, "
                                  f"and the simulated items would not measure it; give it a positive value (1 sets the "
                                  f"factor's scale) or remove the statement", ref.location, spec.source_line(ref.location))
