@@ -1031,8 +1031,9 @@ def _block_rows(result) -> list:
 PRINT_HEIGHT = 7.5  # inches
 SIDEWAYS_HEIGHT = math.floor(SMALLEST_TEXT * 72 * PRINT_HEIGHT / MIN_FIGURE_TEXT)  # 925 units
 FAN = 120.0  # across from a factor's ellipse to what it loads on: the room for the arrows and their values, and
-FACTOR_FAN = 90.0  # across to factors: a few arrows, their values far apart
-FAN_SLOPE = 0.4  # to items, at least this share of the farthest height they reach, so that their values stand apart
+FACTOR_FAN = 90.0  # across to factors: a few arrows, their values far apart; either wider when the fan is steep:
+VALUE_SHARE = 0.78  # a loading's value stands this share of the way to its head when nothing is there (_loading)
+FAN_CLEARANCE = 3.0  # units between a value's text and any other arrow of its fan: its white halo (1.5) and as much air
 BLOCK_GAP = 12.0  # between the items of two factors in the column of items
 ITEM_COLUMN = 96.0  # least width of the item boxes under which a residual hangs (its value beside it, in the box's width)
 DISTURBANCE_GAP = 8.0  # between a factor's ellipse and its disturbance circle above it
@@ -1071,7 +1072,8 @@ def _sideways(result, rows, obs_set) -> _Side | None:
     wider than ``MAX_WIDTH``; never with method factors or exploratory blocks.  A model of correlated factors (or of
     one) is drawn so too, its correlations as arcs on the left of its factors, when its items or its factors (long
     names over few items) are too wide for one row: from the top it would be drawn in bands, its correlations (the
-    demo's three factors) or its loadings (the demo's one factor, on a second band) listed instead of drawn."""
+    demo's three factors) or its loadings (the demo's one factor, on a second band) listed instead of drawn.  A fan
+    of arrows runs across as far as its values need to stand apart (``_fan_run``)."""
     latent, observed = list(result.latent), list(result.observed)
     if _method_factors(result) or getattr(result, "exploratory", ()):
         return None
@@ -1159,9 +1161,10 @@ def _sideways(result, rows, obs_set) -> _Side | None:
     column = {lvl: [f for f in latent if (level[f] == lvl if not cross else f == general)] for lvl in left_of}
     arcs_room = _side_arc_room(covariances, side)
     x = MARGIN + arcs_room
-    def fan(factors) -> float:  # across to what they load on: to items, wider as their arrows spread over more items
-        spread = [FAN_SLOPE * abs(side.y[c] - side.y[f]) for f in factors for c in children[f] if c in obs_set]
-        return max([FAN] + spread) if spread else FACTOR_FAN
+    def fan(factors) -> float:  # across to what they load on, wider when their arrows are steep (_fan_run)
+        items = any(c in obs_set for f in factors for c in children[f])
+        return max(_fan_run(side.y[f], [side.y[c] for c in children[f]], FAN if items else FACTOR_FAN)
+                   for f in factors)
 
     for lvl in left_of:
         rx = max(_ellipse_rx(f) for f in column[lvl])
@@ -1187,6 +1190,49 @@ def _sideways(result, rows, obs_set) -> _Side | None:
     if side.height > SIDEWAYS_HEIGHT or side.width > MAX_WIDTH:
         return None
     return side
+
+
+def _fan_run(start: float, ends: list[float], least: float) -> float:
+    """How far across a fan of arrows from one factor at height ``start`` to things at heights ``ends`` must run (at
+    least ``least``) for each arrow's value, at ``VALUE_SHARE`` of the way to its head, to stand ``FAN_CLEARANCE``
+    clear of every other arrow of the fan (session note s20: a factor's fan to sixteen items ran 163 units across,
+    each value 1.2 units from the next arrow, so that its halo cut that arrow and the values read as belonging to
+    either).  Extent of a value as ``_free_spot`` estimates it (``TEXT_EM`` per character of '−.00'), the
+    arrows as straight lines from the factor's edge to the things' edges, in steps of 4 units up to twice
+    ``MAX_WIDTH`` (a drawing so wide is then drawn from the top)."""
+    half = TEXT_EM * SMALLEST_TEXT * 4 / 2 + FAN_CLEARANCE
+    run = least
+    while run < 2 * MAX_WIDTH:
+        clear = True
+        for k, end in enumerate(ends):
+            x, base = VALUE_SHARE * run, start + VALUE_SHARE * (end - start) + 4
+            box = (x - half, base - 0.8 * SMALLEST_TEXT - FAN_CLEARANCE, x + half, base + 0.2 * SMALLEST_TEXT + FAN_CLEARANCE)
+            if any(_meets((0.0, start, run, other), box) for j, other in enumerate(ends) if j != k and other != end):
+                clear = False
+                break
+        if clear:
+            return run
+        run += 4.0
+    return run
+
+
+def _meets(segment: tuple[float, float, float, float], box: tuple[float, float, float, float]) -> bool:
+    """Whether the straight segment (x1, y1, x2, y2) enters the box (left, top, right, bottom): the segment clipped
+    to the box's sides (Liang & Barsky 1984) keeps some length."""
+    x1, y1, x2, y2 = segment
+    dx, dy = x2 - x1, y2 - y1
+    low, high = 0.0, 1.0
+    for p, q in ((-dx, x1 - box[0]), (dx, box[2] - x1), (-dy, y1 - box[1]), (dy, box[3] - y1)):
+        if p == 0:
+            if q < 0:
+                return False
+        elif p < 0:
+            low = max(low, q / p)
+        else:
+            high = min(high, q / p)
+        if low > high:
+            return False
+    return True
 
 
 def _side_arc_room(covariances, side: _Side) -> float:
