@@ -56,6 +56,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from cfa_tool.errors import printable
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.reporting.numbers import printed, unit
 
@@ -688,10 +689,8 @@ def _draw(result, group: int) -> Drawing:
     methods = _method_factors(result)
     parts: list[str] = []
     drawn: set[Drawn] = set()
-    head = 26.0 if label is not None else 0.0
-    if label is not None:  # the group is named on its own diagram
-        parts.append(f'<text class="group-name" x="{MARGIN:.1f}" y="20" font-size="15" font-weight="bold">'
-                     f'Group {esc(label)}</text>')
+    named, head, lay.width = _group_name(label, lay.width)  # the group is named on its own diagram
+    parts += named
     parts.append(f'<g transform="translate(0,{head:.0f})">')
     y = lay.table_top
     for entries in _lists(lay):
@@ -806,6 +805,25 @@ def _draw(result, group: int) -> Drawing:
     if any(PROBLEM_COLOUR in part for part in parts):
         drawn.add(Drawn.PROBLEM)
     return Drawing(lay.width, lay.height + head, parts, [head + b for b in lay.breaks], frozenset(drawn))
+
+
+GROUP_NAME_SIZE = 15  # font size of a group's name over its drawing
+
+
+def _group_name(label, width: float) -> tuple[list[str], float, float]:
+    """A group's name over its drawing ('Group north'; nothing without groups): its texts, the height they take and
+    the drawing's width, widened to hold the name up to ``MAX_WIDTH``; a name longer than that goes on in lines under
+    it (a group label of 88 characters had run 137 units past a drawing 767 wide, out of the picture)."""
+    if label is None:
+        return [], 0.0, width
+    text = f"Group {printable(label)}"
+    per = TEXT_EM * GROUP_NAME_SIZE
+    fit = int((MAX_WIDTH - 2 * MARGIN) // per)
+    lines = (textwrap.wrap(text, fit, break_on_hyphens=False) or [text]) if len(text) > fit else [text]
+    width = max(width, min(MAX_WIDTH, 2 * MARGIN + per * max(len(line) for line in lines)))
+    parts = [f'<text class="group-name" x="{MARGIN:.1f}" y="{20 + 18 * k}" font-size="{GROUP_NAME_SIZE}" '
+             f'font-weight="bold">{esc(line)}</text>' for k, line in enumerate(lines)]
+    return parts, 26.0 + 18 * (len(lines) - 1), width
 
 
 def _loading(r, ends: tuple[float, float, float, float], shares: tuple[float, ...], placed: list,
@@ -1279,10 +1297,8 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
     r_squared = result.groups[group].r_squared
     parts: list[str] = []
     drawn: set[Drawn] = set()
-    head = 26.0 if label is not None else 0.0
-    if label is not None:
-        parts.append(f'<text class="group-name" x="{MARGIN:.1f}" y="20" font-size="15" font-weight="bold">'
-                     f'Group {esc(label)}</text>')
+    named, head, side.width = _group_name(label, side.width)
+    parts += named
     parts.append(f'<g transform="translate(0,{head:.0f})">')
     x, y = side.x, side.y
     obs_set = set(result.observed)

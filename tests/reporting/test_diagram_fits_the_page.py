@@ -24,7 +24,7 @@ import numpy as np
 import pytest
 
 import cfa_tool
-from cfa_tool.reporting.diagram import MAX_WIDTH, diagram_file
+from cfa_tool.reporting.diagram import MAX_WIDTH, diagram_file, path_diagram
 
 from tests.conftest import simulate_cfa
 from tests.reporting.test_diagram_layouts import CHROMIUM, SVG, check_in_a_browser, overlaps, text_boxes
@@ -167,6 +167,29 @@ def test_a_long_question_goes_on_in_lines_of_the_key():
     assert len(lines) == 16
 
 
+@functools.lru_cache(maxsize=None)
+def long_group_names():
+    """Two groups, one named in 115 characters (a survey's description of a mode of answering)."""
+    data = simulate_cfa(np.kron(np.eye(2), np.full((3, 1), 0.7)), 0.6 * np.eye(2) + 0.4, np.diag(np.full(6, 0.51)), 400, 1,
+                        [f"y{i + 1}" for i in range(6)])
+    data["mode"] = np.where(np.arange(400) % 2, LONG_GROUP, "online")
+    return cfa_tool.fit("factor a: y1, y2, y3\nfactor b: y4, y5, y6\n", data, group="mode")
+
+
+LONG_GROUP = ("Riders who answered the survey on paper at a station kiosk during the second survey wave of the year, "
+              "in the evening")
+
+
+def test_a_long_group_name_goes_on_in_lines_inside_the_picture():
+    """At cadd83a7 the name ran out of the picture (a drawing 767 units wide, the name's estimated extent reaching
+    1165); now the drawing is widened to hold it up to MAX_WIDTH, and the rest goes on in a line under it."""
+    for svg in (diagram_file(long_group_names()), *(path_diagram(long_group_names(), g) for g in (0, 1))):
+        assert outside(svg) == [] and overlaps(svg) == []
+        assert float(ET.fromstring(svg).get("viewBox").split()[2]) <= MAX_WIDTH
+    names = re.findall(r'class="group-name"[^>]*>([^<]*)<', diagram_file(long_group_names()))
+    assert names[-1] == "Group online" and " ".join(names[:-1]) == f"Group {LONG_GROUP}" and len(names) == 3
+
+
 @pytest.mark.skipif(CHROMIUM is None, reason="headless Chromium is not installed (.ci/run installs it)")
 def test_in_a_browser_no_text_overlaps_and_the_estimate_is_on_the_safe_side(tmp_path):
-    check_in_a_browser([diagram_file(make()) for make in WIDE.values()], tmp_path)
+    check_in_a_browser([diagram_file(make()) for make in (*WIDE.values(), long_group_names)], tmp_path)
