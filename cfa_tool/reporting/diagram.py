@@ -102,6 +102,14 @@ def item_labels(result) -> dict[str, str]:
     observed = list(result.observed)
     if all(len(name) <= LONG_NAME for name in observed):
         return {}
+    return short_labels(result)
+
+
+def short_labels(result) -> dict[str, str]:
+    """I1, I2, ... for the items in the order of the data's items, each label no name of the model (see
+    ``item_labels``; also for a drawing from the top whose factor's items, named, are wider than a band:
+    ``_layout``)."""
+    observed = list(result.observed)
     names = set(observed) | set(result.latent)
     for prefix in LABEL_PREFIXES:  # never a label that is also a name of the model (a column called 'I3')
         labels = {name: f"{prefix}{k + 1}" for k, name in enumerate(observed)}
@@ -262,9 +270,10 @@ def _levels(latent, children, obs_set) -> dict[str, int]:
     return level
 
 
-def _layout(result, rows, obs_set, room: float = MAX_WIDTH - 2 * MARGIN) -> _Layout:
+def _layout(result, rows, obs_set, room: float = MAX_WIDTH - 2 * MARGIN, relabel: bool = True) -> _Layout:
     """Where everything of one group's drawing laid out from the top goes, its bands of items at most ``room`` wide
-    (the factors over them counted: ``_factor_room``)."""
+    (the factors over them counted: ``_factor_room``); with ``relabel``, its items drawn with short labels when a
+    factor's named items are wider than a band and labelled are not."""
     observed, latent = list(result.observed), list(result.latent)
     loadings = [r for r in rows if r.kind == "loading"]
     children = _children(latent, rows)
@@ -291,6 +300,13 @@ def _layout(result, rows, obs_set, room: float = MAX_WIDTH - 2 * MARGIN) -> _Lay
             blocks.append([x])
     disturbed = _disturbed(rows, latent, children)
     arcs = frozenset(frozenset(r.variables) for r in rows if r.kind == "factor_covariance")
+    too_wide = [block for block in blocks if block[0] in home and sum(lay.widths[x] + BOX_GAP for x in block) > room]
+    labels = short_labels(result) if too_wide and not lay.shown and relabel else {}
+    if labels and all(sum(_box_width(labels[x]) + BOX_GAP for x in block) <= room for block in too_wide):
+        # a factor whose items, named, are wider than a band and, labelled, fit one: every item drawn with its
+        # short label, named in the key, rather than the factor cut over two bands with half its loadings listed
+        lay.shown = labels
+        lay.widths = {x: _box_width(lay.text(x)) for x in lay.order}
     bands = _bands(blocks, {x: lay.widths[x] + BOX_GAP for x in lay.order},
                    [_factor_room(home.get(block[0]), disturbed, arcs, level) for block in blocks], room)
     wrap = len(bands) > 1
@@ -592,7 +608,7 @@ def diagram_file(result) -> str:
 def _document(result, groups: list[int], legend: bool, drawings: list | None = None) -> str:
     drawings = drawings or [_draw(result, g) for g in groups]
     lines = legend_lines(result, frozenset().union(*(d.drawn for d in drawings))) if legend else []
-    key = [(short, name) for name, short in item_labels(result).items()]
+    key = [(short, name) for name, short in next((d.shown for d in drawings if d.shown), {}).items()]
     indent = TEXT_EM * LIST_SIZE * (max((len(short) for short, _ in key), default=0) + 1)  # from a label to its name
     # a name too long for a line of MAX_WIDTH goes on in lines under it (a 190-character question had made the
     # picture 1511 units wide, and every text of the drawing smaller on the page: the legibility rule of MAX_WIDTH)
@@ -654,13 +670,14 @@ def _document(result, groups: list[int], legend: bool, drawings: list | None = N
 @dataclass(frozen=True)
 class Drawing:
     """One group's drawing: its size, its SVG elements, the heights between its bands where nothing is drawn (where
-    the Word report may cut it into strips) and the parts its legend explains."""
+    the Word report may cut it into strips), the parts its legend explains and the items' short labels it draws."""
 
     width: float
     height: float
     parts: list[str]
     breaks: list[float]
     drawn: frozenset[Drawn]
+    shown: dict[str, str] = field(default_factory=dict)  # each item's short label drawn, when drawn so (the key)
 
 
 def _draw(result, group: int) -> Drawing:
@@ -804,7 +821,7 @@ def _draw(result, group: int) -> Drawing:
     parts.append("</g>")
     if any(PROBLEM_COLOUR in part for part in parts):
         drawn.add(Drawn.PROBLEM)
-    return Drawing(lay.width, lay.height + head, parts, [head + b for b in lay.breaks], frozenset(drawn))
+    return Drawing(lay.width, lay.height + head, parts, [head + b for b in lay.breaks], frozenset(drawn), lay.shown)
 
 
 GROUP_NAME_SIZE = 15  # font size of a group's name over its drawing
@@ -1109,7 +1126,7 @@ def _sideways(result, rows, obs_set) -> _Side | None:
         return None
     shown = item_labels(result)
     if not higher and not cross:
-        row = _layout(result, rows, obs_set)
+        row = _layout(result, rows, obs_set, relabel=False)  # (drawn sideways with their names rather than labelled)
         if not row.banded and row.width <= MAX_WIDTH:
             return None  # correlated factors that fit in one row, items and factors: drawn from the top, arcs above
     if not cross:
@@ -1377,7 +1394,7 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
     parts.append("</g>")
     if any(PROBLEM_COLOUR in part for part in parts):
         drawn.add(Drawn.PROBLEM)
-    return Drawing(side.width, side.height + head, parts, [], frozenset(drawn))
+    return Drawing(side.width, side.height + head, parts, [], frozenset(drawn), side.shown)
 
 
 def _side_residual(name: str, side: _Side) -> tuple[float, float]:

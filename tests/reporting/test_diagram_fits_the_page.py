@@ -153,6 +153,21 @@ def test_a_drawing_is_no_wider_than_a_page_and_everything_is_inside_it(shape):
     assert len(root.findall(f".//{SVG}rect[@class='indicator']")) == len(result.observed)
 
 
+@pytest.mark.parametrize("factors", [3, 5])
+def test_a_factor_whose_named_items_are_wider_than_a_band_is_drawn_whole_with_short_labels(factors):
+    """Six items named in 20 characters are 1080 units wide (7.4 units a character and 18 for the box, 14 between
+    boxes), more than a band's 989: rather than cut each factor over two bands, half its loadings listed, every item
+    is drawn with its short label (I1, I2, ...), named in the key, and every loading is an arrow."""
+    result = correlated(factors, 6, 20, 6)
+    svg = diagram_file(result)
+    assert 'class="listed-loading"' not in svg and 'class="continued"' not in svg
+    root = ET.fromstring(svg)
+    assert len(root.findall(f".//{SVG}line[@class='loading']")) == len(result.observed)
+    drawn = ["".join(t.itertext()) for t in root.iter(SVG + "text") if t.get("class") == "name"]
+    assert sorted(drawn) == sorted([f"I{k + 1}" for k in range(len(result.observed))] + list(result.latent))
+    assert re.findall(r'class="key"[^>]*>([^<]*)<', svg) == list(result.observed)
+
+
 def test_a_long_question_goes_on_in_lines_of_the_key():
     """Each question of 190 characters is named in the key beside its label, in two lines that give it whole."""
     svg = diagram_file(long_questions())
