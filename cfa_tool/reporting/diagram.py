@@ -20,9 +20,10 @@ moved instead when a factor needs more room: ``_place_items``), the items, and, 
 has them, a bottom row for factors that load on items of several traits: the
 general factor of a bifactor model and method factors (grey).  Residual
 circles then sit beside their items, so the lines from the bottom row reach
-the items unobstructed.  A model whose items do not fit in one row of
-``MAX_WIDTH`` is drawn in bands of whole factors, one band under the other;
-a factor whose items alone are much wider than a band goes on in the next band,
+the items unobstructed.  A model whose items, or the factors over them, do not
+fit in one row of ``MAX_WIDTH`` is drawn in bands of whole factors, one band under
+the other, each as wide as its items or its factors need (``_factor_room``);
+a factor whose items alone are wider than a band goes on in the next band,
 named there, its loadings to those items listed;
 its factor correlations, and residual correlations that would join two bands,
 are then listed at the top of the drawing instead of arcs crossing the bands;
@@ -55,6 +56,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from cfa_tool.errors import printable
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.reporting.numbers import printed, unit
 
@@ -80,9 +82,8 @@ MAX_WIDTH = math.floor(SMALLEST_TEXT * 72 * PRINT_WIDTH / MIN_FIGURE_TEXT)  # 10
 BAND_GAP = 40.0
 EDGE_X, EDGE_STEP = 8.0, 7.0  # the lines down the left edge carrying higher-order factors' arrows to lower bands
 LANE_GAP = 20.0  # between such lines over a band's factors (a value's height and some air)
-# a factor whose items are wider than this is drawn in parts over several bands (a little wider than a band, it is
-# drawn whole: a slightly wider picture reads better than a factor cut in two)
-SPLIT_BEYOND = 1.1 * (MAX_WIDTH - 2 * MARGIN)
+# a factor whose items are wider than a band is drawn in parts over several bands (session note s20: drawn whole up to
+# a tenth wider, six items of 20-character names made a drawing 1126 units wide, its text 6.5 pt across the page)
 TEXT_EM = 0.62  # width of a character in ems, on the safe side for Helvetica and Arial (widest digits: 0.556)
 PROBLEM_COLOUR = "#b3261e"  # parts of the drawing that show a problem of the solution
 METHOD_FILL = "#e6e6e6"  # method factors: a way of answering, not a trait
@@ -101,6 +102,14 @@ def item_labels(result) -> dict[str, str]:
     observed = list(result.observed)
     if all(len(name) <= LONG_NAME for name in observed):
         return {}
+    return short_labels(result)
+
+
+def short_labels(result) -> dict[str, str]:
+    """I1, I2, ... for the items in the order of the data's items, each label no name of the model (see
+    ``item_labels``; also for a drawing from the top whose factor's items, named, are wider than a band:
+    ``_layout``)."""
+    observed = list(result.observed)
     names = set(observed) | set(result.latent)
     for prefix in LABEL_PREFIXES:  # never a label that is also a name of the model (a column called 'I3')
         labels = {name: f"{prefix}{k + 1}" for k, name in enumerate(observed)}
@@ -261,7 +270,10 @@ def _levels(latent, children, obs_set) -> dict[str, int]:
     return level
 
 
-def _layout(result, rows, obs_set) -> _Layout:
+def _layout(result, rows, obs_set, room: float = MAX_WIDTH - 2 * MARGIN, relabel: bool = True) -> _Layout:
+    """Where everything of one group's drawing laid out from the top goes, its bands of items at most ``room`` wide
+    (the factors over them counted: ``_factor_room``); with ``relabel``, its items drawn with short labels when a
+    factor's named items are wider than a band and labelled are not."""
     observed, latent = list(result.observed), list(result.latent)
     loadings = [r for r in rows if r.kind == "loading"]
     children = _children(latent, rows)
@@ -278,7 +290,7 @@ def _layout(result, rows, obs_set) -> _Layout:
     homes = [f for f in latent if f in home.values()]
     lay.order = sorted(observed, key=lambda x: (homes.index(home[x]) if x in home else len(homes), observed.index(x)))
     lay.widths = {x: _box_width(lay.text(x)) for x in lay.order}
-    # a model whose items do not fit in one row is drawn in bands of whole factors; the factors whose lines
+    # a model whose items (or factors) do not fit in one row is drawn in bands of whole factors; the factors whose lines
     # would cross the bands (higher-order, general and method factors) are then drawn apart, above the bands
     blocks: list[list[str]] = []
     for x in lay.order:
@@ -286,8 +298,18 @@ def _layout(result, rows, obs_set) -> _Layout:
             blocks[-1].append(x)
         else:
             blocks.append([x])
-    bands = _bands(blocks, {x: lay.widths[x] + BOX_GAP for x in lay.order})
-    wrap = len(bands) > 1  # (a model of one factor too wide for a band stays one row)
+    disturbed = _disturbed(rows, latent, children)
+    arcs = frozenset(frozenset(r.variables) for r in rows if r.kind == "factor_covariance")
+    too_wide = [block for block in blocks if block[0] in home and sum(lay.widths[x] + BOX_GAP for x in block) > room]
+    labels = short_labels(result) if too_wide and not lay.shown and relabel else {}
+    if labels and all(sum(_box_width(labels[x]) + BOX_GAP for x in block) <= room for block in too_wide):
+        # a factor whose items, named, are wider than a band and, labelled, fit one: every item drawn with its
+        # short label, named in the key, rather than the factor cut over two bands with half its loadings listed
+        lay.shown = labels
+        lay.widths = {x: _box_width(lay.text(x)) for x in lay.order}
+    bands = _bands(blocks, {x: lay.widths[x] + BOX_GAP for x in lay.order},
+                   [_factor_room(home.get(block[0]), disturbed, arcs, level) for block in blocks], room)
+    wrap = len(bands) > 1
     lay.apart = frozenset(f for f in latent if wrap and (level[f] > 1 or f in cross))
     lay.bottom = frozenset() if wrap else cross
     lay.side_residuals = bool(lay.bottom)
@@ -306,8 +328,7 @@ def _layout(result, rows, obs_set) -> _Layout:
             if f is not None and f not in lay.apart and lay.band_of[f] != b:
                 lay.continued.append((f, tuple(x for x in band if home.get(x) == f)))
     # x positions: items band by band from the left margin, factors over their own items
-    disturbed = _disturbed(rows, latent, children)
-    joined = frozenset() if wrap else frozenset(frozenset(r.variables) for r in rows if r.kind == "factor_covariance")
+    joined = frozenset() if wrap else arcs
     first_order = {f for f in latent if level[f] == 1 and f not in lay.apart and f not in lay.bottom}
     width = _place_items(bands, step, lay, first_order, disturbed, joined)
     for lvl in range(1, top + 1):
@@ -449,20 +470,49 @@ def _disturbed(rows, latent, children) -> set[str]:
     return {r.variables[0] for r in rows if r.kind == "factor_variance" and r.variables[0] in below}
 
 
-def _bands(blocks: list[list[str]], step: dict[str, float]) -> list[list[str]]:
-    """The items in bands no wider than ``MAX_WIDTH`` of whole factors (``blocks``), as many to a band as fit; a
-    factor much wider than a band (``SPLIT_BEYOND``) in even parts over several bands."""
-    room = MAX_WIDTH - 2 * MARGIN
-    if sum(step.values()) <= room:
+def _bands(blocks: list[list[str]], step: dict[str, float], rooms: list[tuple[float, float]],
+           room: float) -> list[list[str]]:
+    """The items in bands no wider than ``room`` (``MAX_WIDTH`` less the margins) of whole factors (``blocks``), as
+    many to a band as fit, each block as wide as its items or as the room its factor needs over them (``rooms``: in
+    one row, with the arcs of its correlations; in bands, without: ``_factor_room``), whichever is wider; a factor
+    whose items are wider than a band in even parts over several bands."""
+    def wide(k: int, banded: bool) -> float:
+        return max(sum(step[x] for x in blocks[k]), rooms[k][banded])
+
+    if sum(wide(k, False) for k in range(len(blocks))) <= room:
         return [[x for block in blocks for x in block]]
-    parts = [part for block in blocks for part in
-             (_parts(block, step, room) if sum(step[x] for x in block) > SPLIT_BEYOND else [block])]
+    parts: list[tuple[list[str], float]] = []
+    for k, block in enumerate(blocks):
+        if sum(step[x] for x in block) > room:
+            split = _parts(block, step, room)
+            parts += [(split[0], max(sum(step[x] for x in split[0]), rooms[k][1]))] + \
+                [(part, sum(step[x] for x in part)) for part in split[1:]]
+        else:
+            parts.append((block, wide(k, True)))
     bands: list[list[str]] = [[]]
-    for part in parts:
-        if bands[-1] and sum(step[x] for x in bands[-1]) + sum(step[x] for x in part) > room:
+    used = 0.0
+    for part, width in parts:
+        if bands[-1] and used + width > room:
             bands.append([])
+            used = 0.0
         bands[-1].extend(part)
+        used += width
     return bands
+
+
+def _factor_room(f: str | None, disturbed: set[str], arcs: frozenset, level: dict[str, int]) -> tuple[float, float]:
+    """The width a first-order factor's block of items needs for the factor drawn over it (0 for items of no
+    factor), in one row and in bands: its ellipse with room either side for its neighbours', and its disturbance
+    circle on its right; in one row, where its correlations are arcs, also the room ``_need`` keeps for an arc's
+    value (half on each side of it).  The sum of a row's rooms is about the sum of the distances ``_need`` sets
+    between its factors; where the drawing still comes out wider than ``MAX_WIDTH``, ``_draw`` makes its bands
+    narrower."""
+    if f is None or level.get(f, 1) > 1:
+        return 0.0, 0.0
+    rx = _ellipse_rx(f)
+    banded = 2 * rx + 16 + (2 * RESIDUAL_R + 40 if f in disturbed else 0)
+    joined = any(f in pair for pair in arcs)
+    return (max(banded, SHORTEST_ARC + 2 * PORT_SPREAD * rx) if joined else banded), banded
 
 
 def _parts(block: list[str], step: dict[str, float], room: float) -> list[list[str]]:
@@ -558,13 +608,18 @@ def diagram_file(result) -> str:
 def _document(result, groups: list[int], legend: bool, drawings: list | None = None) -> str:
     drawings = drawings or [_draw(result, g) for g in groups]
     lines = legend_lines(result, frozenset().union(*(d.drawn for d in drawings))) if legend else []
-    key = [(short, name) for name, short in item_labels(result).items()]
+    key = [(short, name) for name, short in next((d.shown for d in drawings if d.shown), {}).items()]
     indent = TEXT_EM * LIST_SIZE * (max((len(short) for short, _ in key), default=0) + 1)  # from a label to its name
-    key_column = indent + TEXT_EM * LIST_SIZE * max((len(name) for _, name in key), default=0) + 30  # with a gap
+    # a name too long for a line of MAX_WIDTH goes on in lines under it (a 190-character question had made the
+    # picture 1511 units wide, and every text of the drawing smaller on the page: the legibility rule of MAX_WIDTH)
+    fit = max(20, int((MAX_WIDTH - 2 * MARGIN - indent - 30) // (TEXT_EM * LIST_SIZE)))
+    key_lines = [textwrap.wrap(name, fit, break_on_hyphens=False) or [name] if len(name) > fit else [name] for _, name in key]
+    key_column = indent + TEXT_EM * LIST_SIZE * max((len(line) for part in key_lines for line in part), default=0) + 30
     width = max([d.width for d in drawings] + [2 * MARGIN + TEXT_EM * SMALLEST_TEXT * len(line) for line in lines]
                 + ([2 * MARGIN + key_column] if key else []))
-    key_columns = max(1, int((width - 2 * MARGIN) // key_column)) if key else 1
-    key_rows = math.ceil(len(key) / key_columns)
+    wrapped = any(len(part) > 1 for part in key_lines)
+    key_columns = max(1, int((width - 2 * MARGIN) // key_column)) if key and not wrapped else 1
+    key_rows = math.ceil(len(key) / key_columns) if not wrapped else sum(len(part) for part in key_lines)
     key_height = 18 + 16 * key_rows + 10 if key else 0
     height = sum(d.height for d in drawings) + key_height + (10 + 18 * len(lines) if lines else 0)
     labels = [result.groups[g].label for g in groups]
@@ -592,11 +647,17 @@ def _document(result, groups: list[int], legend: bool, drawings: list | None = N
     if key:  # the items' names, under the drawing of every group
         parts.append(f'<text class="key-title" x="{MARGIN:.1f}" y="{y + 14:.1f}" font-size="{LIST_SIZE}" '
                      f'font-weight="bold">{KEY_TITLE}</text>')
-        for k, (short, name) in enumerate(key):
-            x, line_y = MARGIN + key_column * (k // key_rows), y + 32 + 16 * (k % key_rows)
+        row = 0  # the key's line, from its top (every entry one line, in columns, unless some name is wrapped)
+        for k, ((short, name), part) in enumerate(zip(key, key_lines)):
+            if not wrapped:
+                row = k % key_rows
+            x, line_y = MARGIN + (key_column * (k // key_rows) if not wrapped else 0.0), y + 32 + 16 * row
             parts.append(f'<text class="key-label" x="{x:.1f}" y="{line_y:.1f}" font-size="{LIST_SIZE}" '
                          f'font-weight="bold">{esc(short)}</text>')
-            parts.append(f'<text class="key" x="{x + indent:.1f}" y="{line_y:.1f}" font-size="{LIST_SIZE}">{esc(name)}</text>')
+            for j, text in enumerate(part):  # the name's first line 'key', the lines it goes on in 'key-more'
+                parts.append(f'<text class="{"key" if j == 0 else "key-more"}" x="{x + indent:.1f}" '
+                             f'y="{line_y + 16 * j:.1f}" font-size="{LIST_SIZE}">{esc(text)}</text>')
+            row += len(part)
         y += key_height
     red = any(Drawn.PROBLEM in d.drawn for d in drawings)
     for k, line in enumerate(lines):
@@ -609,13 +670,14 @@ def _document(result, groups: list[int], legend: bool, drawings: list | None = N
 @dataclass(frozen=True)
 class Drawing:
     """One group's drawing: its size, its SVG elements, the heights between its bands where nothing is drawn (where
-    the Word report may cut it into strips) and the parts its legend explains."""
+    the Word report may cut it into strips), the parts its legend explains and the items' short labels it draws."""
 
     width: float
     height: float
     parts: list[str]
     breaks: list[float]
     drawn: frozenset[Drawn]
+    shown: dict[str, str] = field(default_factory=dict)  # each item's short label drawn, when drawn so (the key)
 
 
 def _draw(result, group: int) -> Drawing:
@@ -636,14 +698,16 @@ def _draw(result, group: int) -> Drawing:
     if side is not None:
         return _draw_sideways(result, group, rows, side, flagged)
     lay = _layout(result, rows, obs_set)
+    room = MAX_WIDTH - 2 * MARGIN
+    while lay.width > MAX_WIDTH and room > MAX_WIDTH / 4:  # what the rooms of the factors left out (higher-order
+        room -= lay.width - MAX_WIDTH + 10  # factors wider than the factors under them): the bands made narrower
+        lay = _layout(result, rows, obs_set, room)
     centre, y_of = lay.centre, lay.y_of
     methods = _method_factors(result)
     parts: list[str] = []
     drawn: set[Drawn] = set()
-    head = 26.0 if label is not None else 0.0
-    if label is not None:  # the group is named on its own diagram
-        parts.append(f'<text class="group-name" x="{MARGIN:.1f}" y="20" font-size="15" font-weight="bold">'
-                     f'Group {esc(label)}</text>')
+    named, head, lay.width = _group_name(label, lay.width)  # the group is named on its own diagram
+    parts += named
     parts.append(f'<g transform="translate(0,{head:.0f})">')
     y = lay.table_top
     for entries in _lists(lay):
@@ -757,7 +821,26 @@ def _draw(result, group: int) -> Drawing:
     parts.append("</g>")
     if any(PROBLEM_COLOUR in part for part in parts):
         drawn.add(Drawn.PROBLEM)
-    return Drawing(lay.width, lay.height + head, parts, [head + b for b in lay.breaks], frozenset(drawn))
+    return Drawing(lay.width, lay.height + head, parts, [head + b for b in lay.breaks], frozenset(drawn), lay.shown)
+
+
+GROUP_NAME_SIZE = 15  # font size of a group's name over its drawing
+
+
+def _group_name(label, width: float) -> tuple[list[str], float, float]:
+    """A group's name over its drawing ('Group north'; nothing without groups): its texts, the height they take and
+    the drawing's width, widened to hold the name up to ``MAX_WIDTH``; a name longer than that goes on in lines under
+    it (a group label of 88 characters had run 137 units past a drawing 767 wide, out of the picture)."""
+    if label is None:
+        return [], 0.0, width
+    text = f"Group {printable(label)}"
+    per = TEXT_EM * GROUP_NAME_SIZE
+    fit = int((MAX_WIDTH - 2 * MARGIN) // per)
+    lines = (textwrap.wrap(text, fit, break_on_hyphens=False) or [text]) if len(text) > fit else [text]
+    width = max(width, min(MAX_WIDTH, 2 * MARGIN + per * max(len(line) for line in lines)))
+    parts = [f'<text class="group-name" x="{MARGIN:.1f}" y="{20 + 18 * k}" font-size="{GROUP_NAME_SIZE}" '
+             f'font-weight="bold">{esc(line)}</text>' for k, line in enumerate(lines)]
+    return parts, 26.0 + 18 * (len(lines) - 1), width
 
 
 def _loading(r, ends: tuple[float, float, float, float], shares: tuple[float, ...], placed: list,
@@ -983,8 +1066,9 @@ def _block_rows(result) -> list:
 PRINT_HEIGHT = 7.5  # inches
 SIDEWAYS_HEIGHT = math.floor(SMALLEST_TEXT * 72 * PRINT_HEIGHT / MIN_FIGURE_TEXT)  # 925 units
 FAN = 120.0  # across from a factor's ellipse to what it loads on: the room for the arrows and their values, and
-FACTOR_FAN = 90.0  # across to factors: a few arrows, their values far apart
-FAN_SLOPE = 0.4  # to items, at least this share of the farthest height they reach, so that their values stand apart
+FACTOR_FAN = 90.0  # across to factors: a few arrows, their values far apart; either wider when the fan is steep:
+VALUE_SHARE = 0.78  # a loading's value stands this share of the way to its head when nothing is there (_loading)
+FAN_CLEARANCE = 3.0  # units between a value's text and any other arrow of its fan: its white halo (1.5) and as much air
 BLOCK_GAP = 12.0  # between the items of two factors in the column of items
 ITEM_COLUMN = 96.0  # least width of the item boxes under which a residual hangs (its value beside it, in the box's width)
 DISTURBANCE_GAP = 8.0  # between a factor's ellipse and its disturbance circle above it
@@ -1021,9 +1105,10 @@ def _sideways(result, rows, obs_set) -> _Side | None:
     other), each factor below another on that one only, the correlations are between factors of the left column
     only (a bifactor model: none, nor between residuals), and the drawing is no higher than ``SIDEWAYS_HEIGHT`` nor
     wider than ``MAX_WIDTH``; never with method factors or exploratory blocks.  A model of correlated factors (or of
-    one) is drawn so too, its correlations as arcs on the left of its factors, when its items are too wide for one
-    row: from the top it would be drawn in bands, its correlations (the demo's three factors) or its loadings (the
-    demo's one factor, on a second band) listed instead of drawn."""
+    one) is drawn so too, its correlations as arcs on the left of its factors, when its items or its factors (long
+    names over few items) are too wide for one row: from the top it would be drawn in bands, its correlations (the
+    demo's three factors) or its loadings (the demo's one factor, on a second band) listed instead of drawn.  A fan
+    of arrows runs across as far as its values need to stand apart (``_fan_run``)."""
     latent, observed = list(result.latent), list(result.observed)
     if _method_factors(result) or getattr(result, "exploratory", ()):
         return None
@@ -1040,8 +1125,10 @@ def _sideways(result, rows, obs_set) -> _Side | None:
     if higher and cross or any(x not in parents for x in observed):
         return None
     shown = item_labels(result)
-    if not higher and not cross and sum(_box_width(shown.get(x, x)) + BOX_GAP for x in observed) <= MAX_WIDTH - 2 * MARGIN:
-        return None  # correlated factors whose items fit in one row: drawn from the top, their arcs above
+    if not higher and not cross:
+        row = _layout(result, rows, obs_set, relabel=False)  # (drawn sideways with their names rather than labelled)
+        if not row.banded and row.width <= MAX_WIDTH:
+            return None  # correlated factors that fit in one row, items and factors: drawn from the top, arcs above
     if not cross:
         top = max(level.values())
         if any(len(p) > 1 for p in parents.values()) or \
@@ -1109,9 +1196,10 @@ def _sideways(result, rows, obs_set) -> _Side | None:
     column = {lvl: [f for f in latent if (level[f] == lvl if not cross else f == general)] for lvl in left_of}
     arcs_room = _side_arc_room(covariances, side)
     x = MARGIN + arcs_room
-    def fan(factors) -> float:  # across to what they load on: to items, wider as their arrows spread over more items
-        spread = [FAN_SLOPE * abs(side.y[c] - side.y[f]) for f in factors for c in children[f] if c in obs_set]
-        return max([FAN] + spread) if spread else FACTOR_FAN
+    def fan(factors) -> float:  # across to what they load on, wider when their arrows are steep (_fan_run)
+        items = any(c in obs_set for f in factors for c in children[f])
+        return max(_fan_run(side.y[f], [side.y[c] for c in children[f]], FAN if items else FACTOR_FAN)
+                   for f in factors)
 
     for lvl in left_of:
         rx = max(_ellipse_rx(f) for f in column[lvl])
@@ -1137,6 +1225,49 @@ def _sideways(result, rows, obs_set) -> _Side | None:
     if side.height > SIDEWAYS_HEIGHT or side.width > MAX_WIDTH:
         return None
     return side
+
+
+def _fan_run(start: float, ends: list[float], least: float) -> float:
+    """How far across a fan of arrows from one factor at height ``start`` to things at heights ``ends`` must run (at
+    least ``least``) for each arrow's value, at ``VALUE_SHARE`` of the way to its head, to stand ``FAN_CLEARANCE``
+    clear of every other arrow of the fan (session note s20: a factor's fan to sixteen items ran 163 units across,
+    each value 1.2 units from the next arrow, so that its halo cut that arrow and the values read as belonging to
+    either).  Extent of a value as ``_free_spot`` estimates it (``TEXT_EM`` per character of '−.00'), the
+    arrows as straight lines from the factor's edge to the things' edges, in steps of 4 units up to twice
+    ``MAX_WIDTH`` (a drawing so wide is then drawn from the top)."""
+    half = TEXT_EM * SMALLEST_TEXT * 4 / 2 + FAN_CLEARANCE
+    run = least
+    while run < 2 * MAX_WIDTH:
+        clear = True
+        for k, end in enumerate(ends):
+            x, base = VALUE_SHARE * run, start + VALUE_SHARE * (end - start) + 4
+            box = (x - half, base - 0.8 * SMALLEST_TEXT - FAN_CLEARANCE, x + half, base + 0.2 * SMALLEST_TEXT + FAN_CLEARANCE)
+            if any(_meets((0.0, start, run, other), box) for j, other in enumerate(ends) if j != k and other != end):
+                clear = False
+                break
+        if clear:
+            return run
+        run += 4.0
+    return run
+
+
+def _meets(segment: tuple[float, float, float, float], box: tuple[float, float, float, float]) -> bool:
+    """Whether the straight segment (x1, y1, x2, y2) enters the box (left, top, right, bottom): the segment clipped
+    to the box's sides (Liang & Barsky 1984) keeps some length."""
+    x1, y1, x2, y2 = segment
+    dx, dy = x2 - x1, y2 - y1
+    low, high = 0.0, 1.0
+    for p, q in ((-dx, x1 - box[0]), (dx, box[2] - x1), (-dy, y1 - box[1]), (dy, box[3] - y1)):
+        if p == 0:
+            if q < 0:
+                return False
+        elif p < 0:
+            low = max(low, q / p)
+        else:
+            high = min(high, q / p)
+        if low > high:
+            return False
+    return True
 
 
 def _side_arc_room(covariances, side: _Side) -> float:
@@ -1183,10 +1314,8 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
     r_squared = result.groups[group].r_squared
     parts: list[str] = []
     drawn: set[Drawn] = set()
-    head = 26.0 if label is not None else 0.0
-    if label is not None:
-        parts.append(f'<text class="group-name" x="{MARGIN:.1f}" y="20" font-size="15" font-weight="bold">'
-                     f'Group {esc(label)}</text>')
+    named, head, side.width = _group_name(label, side.width)
+    parts += named
     parts.append(f'<g transform="translate(0,{head:.0f})">')
     x, y = side.x, side.y
     obs_set = set(result.observed)
@@ -1265,7 +1394,7 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
     parts.append("</g>")
     if any(PROBLEM_COLOUR in part for part in parts):
         drawn.add(Drawn.PROBLEM)
-    return Drawing(side.width, side.height + head, parts, [], frozenset(drawn))
+    return Drawing(side.width, side.height + head, parts, [], frozenset(drawn), side.shown)
 
 
 def _side_residual(name: str, side: _Side) -> tuple[float, float]:

@@ -99,21 +99,23 @@ def correlated(sizes: list[int], seed: int, long_names: bool = False, rows: int 
 
 
 def second_order(seed: int):
-    """Six factors of two items under three correlated higher-order factors, each over two of them, and a seventh
-    factor correlated with the three."""
-    lower = np.zeros((14, 7))
-    for i in range(14):
+    """Four factors of two items under two correlated higher-order factors, each over two of them, and two more
+    factors of two items correlated with both and with each other: four correlated factors in the row above the
+    first-order factors.  (Six factors under three, and a seventh, made a row 1147 units wide, which is now drawn in
+    bands, its correlations listed: the legibility rule of reporting.diagram.MAX_WIDTH.)"""
+    lower = np.zeros((12, 6))
+    for i in range(12):
         lower[i, i // 2] = 0.75
-    upper = np.zeros((7, 4))
-    for j in range(6):
+    upper = np.zeros((6, 4))
+    for j in range(4):
         upper[j, j // 2] = 0.8
-    upper[6, 3] = 1.0
+    upper[4, 2] = upper[5, 3] = 1.0
     psi = 0.5 * np.eye(4) + 0.5
-    phi = upper @ psi @ upper.T + np.diag([0.36] * 6 + [0.0])
-    names = [f"q{i + 1}" for i in range(14)]
-    data = simulate_cfa(lower, phi, np.diag(np.full(14, 0.45)), 800, seed, names)
-    model = "".join(f"factor f{j + 1}: q{2 * j + 1}, q{2 * j + 2}\n" for j in range(7))
-    model += "factor h1: f1, f2\nfactor h2: f3, f4\nfactor h3: f5, f6\n"
+    phi = upper @ psi @ upper.T + np.diag([0.36] * 4 + [0.0, 0.0])
+    names = [f"q{i + 1}" for i in range(12)]
+    data = simulate_cfa(lower, phi, np.diag(np.full(12, 0.45)), 800, seed, names)
+    model = "".join(f"factor f{j + 1}: q{2 * j + 1}, q{2 * j + 2}\n" for j in range(6))
+    model += "factor h1: f1, f2\nfactor h2: f3, f4\n"
     return cfa_tool.fit(model, data)
 
 
@@ -140,7 +142,7 @@ def drawing(shape: str) -> str:
 def test_each_correlation_is_read_from_its_own_arc(shape):
     svg = drawing(shape)
     assert 'class="listed-correlation"' not in svg  # drawn as arcs, in one row
-    factors = 4 if shape == "higher-order" else int(shape.split()[0])  # (h1, h2, h3 and f7 correlated)
+    factors = 4 if shape == "higher-order" else int(shape.split()[0])  # (h1, h2, f5 and f6 correlated)
     assert svg.count('class="covariance') == factors * (factors - 1) // 2  # an arc for every pair
     assert unreadable(svg) == []
 
