@@ -20,7 +20,8 @@ from __future__ import annotations
 import numpy as np
 
 from cfa_tool.estimation.objective import Evaluation
-from cfa_tool.model.rank_two import mean_second_derivatives, path_second_derivatives, second_derivative_contraction
+from cfa_tool.model.rank_two import (basis_vectors, gradient_and_information, mean_coefficients, mean_second_derivatives,
+                                     path_second_derivatives, second_derivative_contraction)
 from cfa_tool.data.em import weighted_available_moments
 from cfa_tool.data.patterns import PatternData, embedded_inverse, missing_groups
 from cfa_tool.model.implied import StructuredModel
@@ -138,6 +139,65 @@ class MissingDataLikelihood:
             kept[("jacobian", g)] = self.model.jacobian(theta, g)
         return kept[("jacobian", g)]
 
+    @property
+    def _rank_two_model(self) -> bool:
+        """Whether the model's derivatives are rank-two gathers (:mod:`cfa_tool.model.rank_two`; a StructuredModel's
+        are, the joint model of auxiliary columns' are not: it takes the general route of (q, p, p) derivatives)."""
+        return isinstance(self.model, StructuredModel)
+
+    def _rank_two_pieces(self, theta: np.ndarray, g: int):
+        """(V, a, per-pattern K_k = V' A_k V) at theta, kept with the point's pieces, None outside the region."""
+        state = self._pattern_state(theta, g)
+        if state is None:
+            return None
+        kept = self._at[1]
+        if ("rank two", g) not in kept:
+            mats, A = state[0], state[1]
+            V, a = basis_vectors(mats, True)
+            kept[("rank two", g)] = V, a, pattern_bases(A, V)
+        return kept[("rank two", g)]
+
+    def _rank_two(self, theta: np.ndarray, g: int) -> tuple[np.ndarray, np.ndarray] | None:
+        """Group g's gradient and patterns-fixed information in theta from rank-two gathers (the module docstring's
+        H; :mod:`cfa_tool.model.rank_two`): with K_k = V' A_k V per pattern,
+            H_ef = sum_k w_k 2 c_e c_f (K_k[u_e, u_f] K_k[v_e, v_f] + K_k[u_e, v_f] K_k[v_e, u_f])
+                   + 2 s_e s_f (V' (sum_k w_k A_k) V)[w_e, w_f],
+        p_o^2 (p + 2m) a pattern and E^2 gathers, where the general route's weight matrix is p^4."""
+        pieces = self._rank_two_pieces(theta, g)
+        if pieces is None:
+            return None
+        _, A, w, _, M, _, mean_gradient = self._pattern_state(theta, g)
+        V, a, K = pieces
+        basis, J = self.model.bases[g], self.model.active_J[g]
+        g_e, _, K_bar, _ = gradient_and_information(basis, V, a, self._mean_weight(theta, g), M, mean_gradient,
+                                                    with_information=False)
+        s = mean_coefficients(basis, a)
+        H = pattern_trace_sum(basis, K, w) + 2.0 * np.outer(s, s) * K_bar.ravel()[basis.ww]
+        return g_e @ J, J.T @ H @ J
+
+    def _mean_weight(self, theta: np.ndarray, g: int) -> np.ndarray:
+        """sum_k w_k A_k at theta (kept with the point's pieces)."""
+        kept = self._at[1]
+        if ("mean weight", g) not in kept:
+            _, A, w, *_ = self._pattern_state(theta, g)
+            kept[("mean weight", g)] = np.tensordot(w, A, axes=1)
+        return kept[("mean weight", g)]
+
+    def _rank_two_hessian(self, theta: np.ndarray, g: int, state) -> np.ndarray:
+        """:func:`first_order_hessian`'s terms in theta from rank-two gathers: with K_k = V' A_k V, Q_k = V' (A T A)_k V
+        and (V' A d)_k per pattern, each trace a sum over the patterns of products of their entries (the formulas of
+        :mod:`cfa_tool.model.rank_two`, pattern by pattern)."""
+        _, A, w, ATA, _, Ad, _ = state
+        V, a, K = self._rank_two_pieces(theta, g)
+        basis, J = self.model.bases[g], self.model.active_J[g]
+        s = mean_coefficients(basis, a)
+        same = pattern_trace_sum(basis, K, w)
+        mixed = pattern_cross_sum(basis, K, pattern_bases(ATA, V), w)
+        cross = pattern_mean_sum(basis, K, Ad @ V, w, s)
+        K_bar = V.T @ self._mean_weight(theta, g) @ V
+        H = (-same + (mixed + mixed.T) + 2.0 * (cross + cross.T) + 2.0 * np.outer(s, s) * K_bar.ravel()[basis.ww])
+        return J.T @ H @ J
+
     def group_discrepancy(self, theta: np.ndarray, g: int) -> float:
         pieces = self._pieces(theta, g)
         if pieces is None:
@@ -187,12 +247,19 @@ class MissingDataLikelihood:
         gradient = np.zeros(q)
         information = np.zeros((q, q))
         for g, w in enumerate(self.weights):
-            parts = self.group_parts(theta, g)
-            if parts is None:
-                return None
-            d_sigma, d_mu = self._jacobian(theta, g)
-            gradient += w * parts.gradient(d_sigma, d_mu)
-            information += w * parts.information(d_sigma, d_mu)
+            if self._rank_two_model:
+                out = self._rank_two(theta, g)
+                if out is None:
+                    return None
+                group_gradient, group_information = out
+            else:
+                parts = self.group_parts(theta, g)
+                if parts is None:
+                    return None
+                d_sigma, d_mu = self._jacobian(theta, g)
+                group_gradient, group_information = parts.gradient(d_sigma, d_mu), parts.information(d_sigma, d_mu)
+            gradient += w * group_gradient
+            information += w * group_information
         value = self.value(theta)
         if not np.isfinite(value):
             return None
@@ -214,7 +281,10 @@ class MissingDataLikelihood:
             if state is None:
                 return None
             mats, A, w, ATA, M, Ad, mean_gradient = state
-            H = first_order_hessian(A, w, ATA, Ad, *self._jacobian(theta, g))
+            if self._rank_two_model:
+                H = self._rank_two_hessian(theta, g, state)
+            else:
+                H = first_order_hessian(A, w, ATA, Ad, *self._jacobian(theta, g))
             total += w_group * (H + self._second_order(g, mats, M, mean_gradient))
         return 0.5 * (total + total.T)
 
@@ -290,6 +360,72 @@ def model_second_order(model: StructuredModel, g: int, mats, M: np.ndarray, mean
         second += mean_second_derivatives(codes, rows, cols, mean_gradient)
     J = model._J[g]
     return J.T @ second @ J
+
+
+def pattern_bases(X: np.ndarray, V: np.ndarray) -> np.ndarray:
+    """V' X_k V for each pattern's symmetric X_k (P, p, p): the rank-two route's K_k (X = A) and Q_k (X = A T A), as
+    two products of stacked rows (X_k V, then (X_k V)' V), each one matrix product for all patterns."""
+    P, p, _ = X.shape
+    r = V.shape[1]
+    XV = (X.reshape(P * p, p) @ V).reshape(P, p, r)
+    return (XV.transpose(0, 2, 1).reshape(P * r, p) @ V).reshape(P, r, r)
+
+
+def pattern_trace_sum(basis, K: np.ndarray, w: np.ndarray) -> np.ndarray:
+    """sum_k w_k tr(A_k D_e A_k D_f) over the entries of ``basis`` (:mod:`cfa_tool.model.rank_two`), K the patterns'
+    V' A_k V: sum_k w_k 2 c_e c_f (K_k[u_e, u_f] K_k[v_e, v_f] + K_k[u_e, v_f] K_k[v_e, u_f]); pattern by pattern,
+    each's E x E gathers small enough to stay in the processor's caches, for the entries with a covariance part."""
+    E = len(basis.u)
+    cov = np.flatnonzero(basis.c)
+    u, v = basis.u[cov], basis.v[cov]
+    total = np.zeros((len(cov), len(cov)))
+    for Kk, wk in zip(K, w):
+        Ku, Kv = Kk[u], Kk[v]
+        Kuv = Ku[:, v]
+        product = Ku[:, u] * Kv[:, v]
+        product += Kuv * Kuv.T
+        total += wk * product
+    out = np.zeros((E, E))
+    out[np.ix_(cov, cov)] = 2.0 * np.outer(basis.c[cov], basis.c[cov]) * total
+    return out
+
+
+def pattern_cross_sum(basis, K: np.ndarray, Q: np.ndarray, w: np.ndarray) -> np.ndarray:
+    """sum_k w_k tr(A_k D_e B_k D_f) over the entries of ``basis``, K and Q the patterns' V' A_k V and V' B_k V
+    (:func:`cfa_tool.model.rank_two.cross_term`, pattern by pattern)."""
+    E = len(basis.u)
+    cov = np.flatnonzero(basis.c)
+    u, v = basis.u[cov], basis.v[cov]
+    total = np.zeros((len(cov), len(cov)))
+    for Kk, Qk, wk in zip(K, Q, w):
+        Ku, Kv, Qu, Qv = Kk[u], Kk[v], Qk[u], Qk[v]
+        Kuv = Ku[:, v]
+        product = Qv[:, u] * Kuv
+        product += Qv[:, v] * Ku[:, u]
+        product += Qu[:, u] * Kv[:, v]
+        product += Qu[:, v] * Kuv.T
+        total += wk * product
+    out = np.zeros((E, E))
+    out[np.ix_(cov, cov)] = np.outer(basis.c[cov], basis.c[cov]) * total
+    return out
+
+
+def pattern_mean_sum(basis, K: np.ndarray, VAd: np.ndarray, w: np.ndarray, s: np.ndarray) -> np.ndarray:
+    """sum_k w_k d_k' A_k D_e A_k dmu_f over the entries of ``basis``, with (V' A d)_k the rows of ``VAd``:
+    c_e s_f sum_k w_k ((V'Ad)_k[u_e] K_k[v_e, w_f] + (V'Ad)_k[v_e] K_k[u_e, w_f])."""
+    E = len(basis.u)
+    cov, mean = np.flatnonzero(basis.c), np.flatnonzero(s)
+    out = np.zeros((E, E))
+    if not len(mean) or not len(cov):
+        return out
+    u, v, at = basis.u[cov], basis.v[cov], basis.w[mean]
+    total = np.zeros((len(cov), len(mean)))
+    weighted = VAd * w[:, None]
+    for Kk, ad in zip(K, weighted):
+        Kw = Kk[:, at]
+        total += ad[u][:, None] * Kw[v] + ad[v][:, None] * Kw[u]
+    out[np.ix_(cov, mean)] = basis.c[cov][:, None] * total * s[mean][None, :]
+    return out
 
 
 #: the most bytes a block of the patterns' weight matrix takes (:func:`_trace_products`): up to about 50 items the
