@@ -175,6 +175,53 @@ class MissingDataLikelihood:
         H = pattern_trace_sum(basis, K, w) + 2.0 * np.outer(s, s) * K_bar.ravel()[basis.ww]
         return g_e @ J, J.T @ H @ J
 
+    @property
+    def candidate_scores(self):
+        """:meth:`_candidate_scores` where the model's derivatives are rank-two gathers; absent otherwise (the joint
+        model of missing-data helpers, whose score tests take the general route with the helpers' parameters), so
+        that ``hasattr`` tells the score tests which route this likelihood has."""
+        if not self._rank_two_model:
+            raise AttributeError("candidate_scores")
+        return self._candidate_scores
+
+    def _candidate_scores(self, theta: np.ndarray, g: int, chunks):
+        """(d, H_ct, h) of group g's candidate entries for score tests, one triple per chunk (``chunks``: their
+        :class:`~cfa_tool.model.rank_two.EntryBasis`), as :meth:`cfa_tool.estimation.ml.NormalLikelihood.candidate_scores`
+        gives them: the gradient, the patterns-fixed information with theta and the candidates' own, of this group's
+        discrepancy (unweighted).  With Z_e = sum_k w_k K_k[:, u_e] K_k[:, v_e]' for each model entry e (one matrix
+        product over the patterns, :func:`pattern_pair_sums`),
+            H_ce = 2 c_c c_e (Z_e[u_c, v_c] + Z_e[v_c, u_c]) + 2 s_c s_e Kbar[w_c, w_e],
+        with Kbar = V' (sum_k w_k A_k) V: no (p*p, p*p) weight matrix, and no candidate's p x p derivative."""
+        pieces = self._rank_two_pieces(theta, g)
+        if pieces is None:
+            return
+        _, A, w, _, M, _, mean_gradient = self._pattern_state(theta, g)
+        V, a, K = pieces
+        model, J = self.model.bases[g], self.model.active_J[g]
+        Q = V.T @ M @ V
+        Vm = V.T @ mean_gradient
+        K_bar = V.T @ self._mean_weight(theta, g) @ V
+        s_model = mean_coefficients(model, a)
+        chunks = tuple(chunks)
+        uc = np.concatenate([c.u for c in chunks]) if chunks else np.zeros(0, dtype=int)
+        vc = np.concatenate([c.v for c in chunks]) if chunks else np.zeros(0, dtype=int)
+        H = np.zeros((len(uc), len(model.u)))
+        for entries, Z in pattern_pair_sums(model, K, w):  # (e in a batch, r, r)
+            H[:, entries] = (Z[:, uc, vc] + Z[:, vc, uc]).T * (2.0 * model.c[entries])
+        flat = K.reshape(len(K), -1)
+        r = K.shape[1]
+        start = 0
+        for cand in chunks:
+            stop = start + len(cand.u)
+            sc = mean_coefficients(cand, a)
+            d = 2.0 * cand.c * Q[cand.u, cand.v] + sc * Vm[cand.w]
+            block = H[start:stop] * cand.c[:, None] + 2.0 * np.outer(sc, s_model) * K_bar[np.ix_(cand.w, model.w)]
+            # sum_k w_k (K_k[u, u] K_k[v, v] + K_k[u, v]^2): the diagonal of H_cc, three gathers a pattern
+            own = w @ (flat[:, cand.u * r + cand.u] * flat[:, cand.v * r + cand.v] + flat[:, cand.u * r + cand.v] ** 2)
+            h = 2.0 * cand.c ** 2 * own + 2.0 * sc ** 2 * K_bar[cand.w, cand.w]
+            yield d, block @ J, h
+            start = stop
+
     def _mean_weight(self, theta: np.ndarray, g: int) -> np.ndarray:
         """sum_k w_k A_k at theta (kept with the point's pieces)."""
         kept = self._at[1]
@@ -369,6 +416,20 @@ def pattern_bases(X: np.ndarray, V: np.ndarray) -> np.ndarray:
     r = V.shape[1]
     XV = (X.reshape(P * p, p) @ V).reshape(P, p, r)
     return (XV.transpose(0, 2, 1).reshape(P * r, p) @ V).reshape(P, r, r)
+
+
+def pattern_pair_sums(basis, K: np.ndarray, w: np.ndarray):
+    """(entries, Z) for batches of the entries of ``basis`` with a covariance part: Z[b] = sum_k w_k K_k[:, u_e]
+    K_k[:, v_e]' (r x r) for each entry e of the batch, one stacked matrix product over the patterns K_k = V' A_k V,
+    a batch taking at most :data:`BLOCK_BYTES` (the score tests' cross-information reads Z_e[u_c, v_c])."""
+    P, r, _ = K.shape
+    cov = np.flatnonzero(basis.c)
+    step = max(1, BLOCK_BYTES // (8 * max(P * r, r * r)))
+    for start in range(0, len(cov), step):
+        entries = cov[start:start + step]
+        left = (K[:, :, basis.u[entries]] * w[:, None, None]).transpose(2, 1, 0)  # (b, r, P)
+        right = K[:, :, basis.v[entries]].transpose(2, 0, 1)  # (b, P, r)
+        yield entries, np.matmul(left, right)
 
 
 def pattern_trace_sum(basis, K: np.ndarray, w: np.ndarray) -> np.ndarray:

@@ -78,23 +78,58 @@ def test_the_rank_two_route_is_the_general_one(monkeypatch, model, groups):
 
 
 def test_a_fit_with_gaps_makes_no_weight_matrix_of_the_patterns(monkeypatch):
-    # the fit's search and standard errors (the evaluations and the observed Hessian) never reach the general route's
-    # products with the patterns' (p*p, p*p) weight matrix, and give what that route gives
+    # the fit's search, standard errors and modification indices (the evaluations, the observed Hessian and the score
+    # tests) never reach the general route's products with the patterns' (p*p, p*p) weight matrix, and give what
+    # that route gives
     frame = _rows(300, 44)
     reference = None
     with monkeypatch.context() as patch:
         _general_route(patch)
-        reference = cfa_tool.fit(ONE_GROUP, frame, missing="full-information", diagnostics=False,
-                                 modification_indices=False)
+        reference = cfa_tool.fit(ONE_GROUP, frame, missing="full-information", diagnostics=False)
 
     def refused(*args, **kwargs):
         raise AssertionError("the patterns' weight matrix was used")
 
     monkeypatch.setattr(fiml, "_trace_products", refused)
-    result = cfa_tool.fit(ONE_GROUP, frame, missing="full-information", diagnostics=False, modification_indices=False)
+    result = cfa_tool.fit(ONE_GROUP, frame, missing="full-information", diagnostics=False)  # modification indices too
     assert result.converged
     assert abs(result.fit.chi_square - reference.fit.chi_square) < 1e-8 * reference.fit.chi_square
     assert np.allclose([e.estimate for e in result.estimates], [e.estimate for e in reference.estimates], rtol=0,
                        atol=1e-8)
     assert np.allclose([e.se for e in result.estimates], [e.se for e in reference.estimates], rtol=1e-7, atol=0,
                        equal_nan=True)
+    assert np.allclose(result.modification_indices.index, reference.modification_indices.index, rtol=1e-7, atol=0)
+
+
+@pytest.mark.parametrize("model, group", [(ONE_GROUP, None), (HIGHER_ORDER, None), (TWO_GROUPS, "site")],
+                         ids=["means-equal-covary", "higher-order", "two-groups"])
+def test_the_score_tests_from_rank_two_gathers_are_the_general_ones(monkeypatch, model, group):
+    # modification indices with gaps: the candidates' cross-information from one matrix product over the patterns
+    # per model entry (fiml.pattern_pair_sums), against the general route's whole derivative matrices
+    frame = _rows(300, 44)
+    if group is not None:
+        frame = pd.concat([frame, _rows(300, 45, 0.3)], ignore_index=True)
+        frame.insert(0, "site", np.repeat(["north", "south"], 300))
+    found = cfa_tool.fit(model, frame, missing="full-information", group=group)
+    with monkeypatch.context() as patch:
+        _general_route(patch)
+        general = cfa_tool.fit(model, frame, missing="full-information", group=group)
+    for attr in ("index", "expected_change", "standardized_expected_change"):
+        mine = np.asarray(getattr(found.modification_indices, attr), float)
+        theirs = np.asarray(getattr(general.modification_indices, attr), float)
+        assert len(theirs) > 20 and np.array_equal(np.isnan(mine), np.isnan(theirs))
+        assert np.nanmax(np.abs(mine - theirs)) <= 1e-10 * np.nanmax(np.abs(theirs))
+
+
+def test_the_helpers_joint_likelihood_keeps_the_general_score_tests():
+    # the joint model of missing-data helpers is no StructuredModel: its score tests free the helpers' parameters on
+    # the general route (assessment.modification reads which route by hasattr(likelihood, "candidate_scores"))
+    from cfa_tool.estimation.auxiliary import AuxiliaryLikelihood
+    from cfa_tool.model.implied import StructuredModel
+
+    joint = object.__new__(AuxiliaryLikelihood)
+    joint.model = object()
+    assert not hasattr(joint, "candidate_scores")
+    plain = object.__new__(fiml.MissingDataLikelihood)
+    plain.model = object.__new__(StructuredModel)
+    assert hasattr(plain, "candidate_scores")
