@@ -13,6 +13,15 @@ and the information used for scoring treats patterns as fixed:
     H = sum_k w_k [tr(A_k X A_k Y) + 2 x_mu' A_k y_mu]
 (the "expected" information of Kenward & Molenberghs 1998; standard errors use
 the observed information).
+
+For a model whose derivatives are rank-two (a StructuredModel: D_e = c_e (u v' + v u') for columns u, v of
+V = [I, C', G], :mod:`cfa_tool.model.rank_two`) every trace is a product of entries of the patterns'
+K_k = V' A_k V (and Q_k = V' A_k T_k A_k V for the observed Hessian), so the search's gradient and information,
+the observed Hessian and the modification indices need p_o^2 (p + 2m) a pattern and gathers, never a p x p
+derivative or the patterns' (p*p, p*p) weight matrix.  The general route, with whole (q, p, p) derivatives
+(``model.jacobian``) and that weight matrix a block at a time, serves the joint model of missing-data helpers,
+directions in the moments (the robust routes) and the robust score tests, and is the reference the rank-two
+route is checked against (tests/estimation/test_fiml_rank_two.py).
 """
 
 from __future__ import annotations
