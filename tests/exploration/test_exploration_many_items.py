@@ -19,17 +19,14 @@ from cfa_tool.exploration.correlations import from_correlations, from_covariance
 
 
 def _pearson_filon(R: np.ndarray) -> np.ndarray:
-    """The whole normal-theory asymptotic covariance of sqrt(N)(r - rho), pair by pair as Olkin & Siotani (1976)
+    """The whole normal-theory asymptotic covariance of sqrt(N)(r - rho), entry (st, kl) as Olkin & Siotani (1976)
     write it (Pearson & Filon 1898), pairs in numpy.tril_indices(p, -1) order: the reference, for small p."""
     i, j = np.tril_indices(len(R), -1)
-    out = np.empty((len(i), len(i)))
-    for a, (s, t) in enumerate(zip(i, j)):
-        for b, (k, l) in enumerate(zip(i, j)):
-            rst, rkl = R[s, t], R[k, l]
-            out[a, b] = (0.5 * rst * rkl * (R[s, k] ** 2 + R[s, l] ** 2 + R[t, k] ** 2 + R[t, l] ** 2)
-                         + R[s, k] * R[t, l] + R[s, l] * R[t, k]
-                         - rst * (R[s, k] * R[s, l] + R[t, k] * R[t, l]) - rkl * (R[s, k] * R[t, k] + R[s, l] * R[t, l]))
-    return out
+    s, t, k, l = i[:, None], j[:, None], i[None, :], j[None, :]
+    rst, rkl = R[s, t], R[k, l]
+    rsk, rsl, rtk, rtl = R[s, k], R[s, l], R[t, k], R[t, l]
+    return (0.5 * rst * rkl * (rsk ** 2 + rsl ** 2 + rtk ** 2 + rtl ** 2) + rsk * rtl + rsl * rtk
+            - rst * (rsk * rsl + rtk * rtl) - rkl * (rsk * rtk + rsl * rtl))
 
 
 def normal_theory_product(R: np.ndarray, X: np.ndarray) -> np.ndarray:
@@ -87,17 +84,17 @@ def _peak(function) -> int:
 
 
 def test_the_standard_errors_of_a_pearson_exploration_make_no_matrix_of_the_pairs(monkeypatch):
-    # 40 items in 2 factors: 780 pairs, whose matrix by themselves is 4.9 MB; the exploration's standard errors (on
+    # 30 items in 2 factors: 435 pairs, whose matrix by themselves is 1.5 MB; the exploration's standard errors (on
     # by default in explore, the step that made the pairs' matrix) stay below one such matrix, with blocks of 4
-    # columns' 40 x 40 matrices, and are those of the whole matrix (the Pearson-Filon formula) to 1e-10
+    # columns' 30 x 30 matrices, and are those of the whole matrix (the Pearson-Filon formula) to 1e-10
     from cfa_tool.exploration import ExploreSettings, explore_correlations, loading_errors
     from cfa_tool.exploration.rotated_errors import constrained_covariance
 
-    monkeypatch.setattr(cs, "BLOCK_BYTES", 8 * 40 * 40 * 4, raising=False)
-    p, n = 40, 600
+    monkeypatch.setattr(cs, "BLOCK_BYTES", 8 * 30 * 30 * 4, raising=False)
+    p, n = 30, 600
     rng = np.random.default_rng(15)
     L = np.zeros((p, 2))
-    L[:20, 0], L[20:, 1] = 0.7, 0.6
+    L[:15, 0], L[15:, 1] = 0.7, 0.6
     X = rng.normal(size=(n, 2)) @ L.T + 0.6 * rng.normal(size=(n, p))
     data = from_covariance(np.cov(X.T, bias=True), n, tuple(f"v{k}" for k in range(p)))
     explored = explore_correlations(data, ExploreSettings(factors=2, count=False))
@@ -132,7 +129,7 @@ def test_the_scaled_test_of_polychoric_correlations_makes_no_second_matrix_of_th
     p = 30
     R = np.full((p, p), 0.3) + 0.7 * np.eye(p)
     B = np.random.default_rng(16).normal(size=(435, 500))
-    gamma = B @ B.T / 500 + _pearson_filon_blocked(R)
+    gamma = B @ B.T / 500 + _pearson_filon(R)
     data = replace(from_correlations(R, 500, tuple(f"v{k}" for k in range(p))), kind=CorrelationKind.POLYCHORIC,
                    gamma=gamma)
     solution = extract(data, 1)
@@ -147,8 +144,3 @@ def test_the_scaled_test_of_polychoric_correlations_makes_no_second_matrix_of_th
     expected = (np.vdot(V, gamma) - np.vdot(np.linalg.pinv(delta.T @ VD, rcond=1e-9, hermitian=True), meat)) / solution.fit.df
     assert abs(found[0] - expected) < 1e-10 * abs(expected)
 
-
-def _pearson_filon_blocked(R: np.ndarray) -> np.ndarray:
-    """The Pearson-Filon matrix by its products with the unit columns (a positive semi-definite addend)."""
-    pairs = len(R) * (len(R) - 1) // 2
-    return normal_theory_product(R, np.eye(pairs))
