@@ -13,6 +13,15 @@ and the information used for scoring treats patterns as fixed:
     H = sum_k w_k [tr(A_k X A_k Y) + 2 x_mu' A_k y_mu]
 (the "expected" information of Kenward & Molenberghs 1998; standard errors use
 the observed information).
+
+For a model whose derivatives are rank-two (a StructuredModel: D_e = c_e (u v' + v u') for columns u, v of
+V = [I, C', G], :mod:`cfa_tool.model.rank_two`) every trace is a product of entries of the patterns'
+K_k = V' A_k V (and Q_k = V' A_k T_k A_k V for the observed Hessian), so the search's gradient and information,
+the observed Hessian and the modification indices need p_o^2 (p + 2m) a pattern and gathers, never a p x p
+derivative or the patterns' (p*p, p*p) weight matrix.  The general route, with whole (q, p, p) derivatives
+(``model.jacobian``) and that weight matrix a block at a time, serves the joint model of missing-data helpers,
+directions in the moments (the robust routes) and the robust score tests, and is the reference the rank-two
+route is checked against (tests/estimation/test_fiml_rank_two.py).
 """
 
 from __future__ import annotations
@@ -20,7 +29,8 @@ from __future__ import annotations
 import numpy as np
 
 from cfa_tool.estimation.objective import Evaluation
-from cfa_tool.model.rank_two import mean_second_derivatives, path_second_derivatives, second_derivative_contraction
+from cfa_tool.model.rank_two import (basis_vectors, gradient_and_information, mean_coefficients, mean_second_derivatives,
+                                     path_second_derivatives, second_derivative_contraction)
 from cfa_tool.data.em import weighted_available_moments
 from cfa_tool.data.patterns import PatternData, embedded_inverse, missing_groups
 from cfa_tool.model.implied import StructuredModel
@@ -138,6 +148,112 @@ class MissingDataLikelihood:
             kept[("jacobian", g)] = self.model.jacobian(theta, g)
         return kept[("jacobian", g)]
 
+    @property
+    def _rank_two_model(self) -> bool:
+        """Whether the model's derivatives are rank-two gathers (:mod:`cfa_tool.model.rank_two`; a StructuredModel's
+        are, the joint model of auxiliary columns' are not: it takes the general route of (q, p, p) derivatives)."""
+        return isinstance(self.model, StructuredModel)
+
+    def _rank_two_pieces(self, theta: np.ndarray, g: int):
+        """(V, a, per-pattern K_k = V' A_k V) at theta, kept with the point's pieces, None outside the region."""
+        state = self._pattern_state(theta, g)
+        if state is None:
+            return None
+        kept = self._at[1]
+        if ("rank two", g) not in kept:
+            mats, A = state[0], state[1]
+            V, a = basis_vectors(mats, True)
+            kept[("rank two", g)] = V, a, pattern_bases(A, V)
+        return kept[("rank two", g)]
+
+    def _rank_two(self, theta: np.ndarray, g: int) -> tuple[np.ndarray, np.ndarray] | None:
+        """Group g's gradient and patterns-fixed information in theta from rank-two gathers (the module docstring's
+        H; :mod:`cfa_tool.model.rank_two`): with K_k = V' A_k V per pattern,
+            H_ef = sum_k w_k 2 c_e c_f (K_k[u_e, u_f] K_k[v_e, v_f] + K_k[u_e, v_f] K_k[v_e, u_f])
+                   + 2 s_e s_f (V' (sum_k w_k A_k) V)[w_e, w_f],
+        p_o^2 (p + 2m) a pattern and E^2 gathers, where the general route's weight matrix is p^4."""
+        pieces = self._rank_two_pieces(theta, g)
+        if pieces is None:
+            return None
+        _, A, w, _, M, _, mean_gradient = self._pattern_state(theta, g)
+        V, a, K = pieces
+        basis, J = self.model.bases[g], self.model.active_J[g]
+        g_e, _, K_bar, _ = gradient_and_information(basis, V, a, self._mean_weight(theta, g), M, mean_gradient,
+                                                    with_information=False)
+        s = mean_coefficients(basis, a)
+        H = pattern_trace_sum(basis, K, w) + 2.0 * np.outer(s, s) * K_bar.ravel()[basis.ww]
+        return g_e @ J, J.T @ H @ J
+
+    @property
+    def candidate_scores(self):
+        """:meth:`_candidate_scores` where the model's derivatives are rank-two gathers; absent otherwise (the joint
+        model of missing-data helpers, whose score tests take the general route with the helpers' parameters), so
+        that ``hasattr`` tells the score tests which route this likelihood has."""
+        if not self._rank_two_model:
+            raise AttributeError("candidate_scores")
+        return self._candidate_scores
+
+    def _candidate_scores(self, theta: np.ndarray, g: int, chunks):
+        """(d, H_ct, h) of group g's candidate entries for score tests, one triple per chunk (``chunks``: their
+        :class:`~cfa_tool.model.rank_two.EntryBasis`), as :meth:`cfa_tool.estimation.ml.NormalLikelihood.candidate_scores`
+        gives them: the gradient, the patterns-fixed information with theta and the candidates' own, of this group's
+        discrepancy (unweighted).  With Z_e = sum_k w_k K_k[:, u_e] K_k[:, v_e]' for each model entry e (one matrix
+        product over the patterns, :func:`pattern_pair_sums`),
+            H_ce = 2 c_c c_e (Z_e[u_c, v_c] + Z_e[v_c, u_c]) + 2 s_c s_e Kbar[w_c, w_e],
+        with Kbar = V' (sum_k w_k A_k) V: no (p*p, p*p) weight matrix, and no candidate's p x p derivative."""
+        pieces = self._rank_two_pieces(theta, g)
+        if pieces is None:
+            return
+        _, A, w, _, M, _, mean_gradient = self._pattern_state(theta, g)
+        V, a, K = pieces
+        model, J = self.model.bases[g], self.model.active_J[g]
+        Q = V.T @ M @ V
+        Vm = V.T @ mean_gradient
+        K_bar = V.T @ self._mean_weight(theta, g) @ V
+        s_model = mean_coefficients(model, a)
+        chunks = tuple(chunks)
+        uc = np.concatenate([c.u for c in chunks]) if chunks else np.zeros(0, dtype=int)
+        vc = np.concatenate([c.v for c in chunks]) if chunks else np.zeros(0, dtype=int)
+        H = np.zeros((len(uc), len(model.u)))
+        for entries, Z in pattern_pair_sums(model, K, w):  # (e in a batch, r, r)
+            H[:, entries] = (Z[:, uc, vc] + Z[:, vc, uc]).T * (2.0 * model.c[entries])
+        flat = K.reshape(len(K), -1)
+        r = K.shape[1]
+        start = 0
+        for cand in chunks:
+            stop = start + len(cand.u)
+            sc = mean_coefficients(cand, a)
+            d = 2.0 * cand.c * Q[cand.u, cand.v] + sc * Vm[cand.w]
+            block = H[start:stop] * cand.c[:, None] + 2.0 * np.outer(sc, s_model) * K_bar[np.ix_(cand.w, model.w)]
+            # sum_k w_k (K_k[u, u] K_k[v, v] + K_k[u, v]^2): the diagonal of H_cc, three gathers a pattern
+            own = w @ (flat[:, cand.u * r + cand.u] * flat[:, cand.v * r + cand.v] + flat[:, cand.u * r + cand.v] ** 2)
+            h = 2.0 * cand.c ** 2 * own + 2.0 * sc ** 2 * K_bar[cand.w, cand.w]
+            yield d, block @ J, h
+            start = stop
+
+    def _mean_weight(self, theta: np.ndarray, g: int) -> np.ndarray:
+        """sum_k w_k A_k at theta (kept with the point's pieces)."""
+        kept = self._at[1]
+        if ("mean weight", g) not in kept:
+            _, A, w, *_ = self._pattern_state(theta, g)
+            kept[("mean weight", g)] = np.tensordot(w, A, axes=1)
+        return kept[("mean weight", g)]
+
+    def _rank_two_hessian(self, theta: np.ndarray, g: int, state) -> np.ndarray:
+        """:func:`first_order_hessian`'s terms in theta from rank-two gathers: with K_k = V' A_k V, Q_k = V' (A T A)_k V
+        and (V' A d)_k per pattern, each trace a sum over the patterns of products of their entries (the formulas of
+        :mod:`cfa_tool.model.rank_two`, pattern by pattern)."""
+        _, A, w, ATA, _, Ad, _ = state
+        V, a, K = self._rank_two_pieces(theta, g)
+        basis, J = self.model.bases[g], self.model.active_J[g]
+        s = mean_coefficients(basis, a)
+        same = pattern_trace_sum(basis, K, w)
+        mixed = pattern_cross_sum(basis, K, pattern_bases(ATA, V), w)
+        cross = pattern_mean_sum(basis, K, Ad @ V, w, s)
+        K_bar = V.T @ self._mean_weight(theta, g) @ V
+        H = (-same + (mixed + mixed.T) + 2.0 * (cross + cross.T) + 2.0 * np.outer(s, s) * K_bar.ravel()[basis.ww])
+        return J.T @ H @ J
+
     def group_discrepancy(self, theta: np.ndarray, g: int) -> float:
         pieces = self._pieces(theta, g)
         if pieces is None:
@@ -187,12 +303,19 @@ class MissingDataLikelihood:
         gradient = np.zeros(q)
         information = np.zeros((q, q))
         for g, w in enumerate(self.weights):
-            parts = self.group_parts(theta, g)
-            if parts is None:
-                return None
-            d_sigma, d_mu = self._jacobian(theta, g)
-            gradient += w * parts.gradient(d_sigma, d_mu)
-            information += w * parts.information(d_sigma, d_mu)
+            if self._rank_two_model:
+                out = self._rank_two(theta, g)
+                if out is None:
+                    return None
+                group_gradient, group_information = out
+            else:
+                parts = self.group_parts(theta, g)
+                if parts is None:
+                    return None
+                d_sigma, d_mu = self._jacobian(theta, g)
+                group_gradient, group_information = parts.gradient(d_sigma, d_mu), parts.information(d_sigma, d_mu)
+            gradient += w * group_gradient
+            information += w * group_information
         value = self.value(theta)
         if not np.isfinite(value):
             return None
@@ -214,7 +337,10 @@ class MissingDataLikelihood:
             if state is None:
                 return None
             mats, A, w, ATA, M, Ad, mean_gradient = state
-            H = first_order_hessian(A, w, ATA, Ad, *self._jacobian(theta, g))
+            if self._rank_two_model:
+                H = self._rank_two_hessian(theta, g, state)
+            else:
+                H = first_order_hessian(A, w, ATA, Ad, *self._jacobian(theta, g))
             total += w_group * (H + self._second_order(g, mats, M, mean_gradient))
         return 0.5 * (total + total.T)
 
@@ -290,6 +416,86 @@ def model_second_order(model: StructuredModel, g: int, mats, M: np.ndarray, mean
         second += mean_second_derivatives(codes, rows, cols, mean_gradient)
     J = model._J[g]
     return J.T @ second @ J
+
+
+def pattern_bases(X: np.ndarray, V: np.ndarray) -> np.ndarray:
+    """V' X_k V for each pattern's symmetric X_k (P, p, p): the rank-two route's K_k (X = A) and Q_k (X = A T A), as
+    two products of stacked rows (X_k V, then (X_k V)' V), each one matrix product for all patterns."""
+    P, p, _ = X.shape
+    r = V.shape[1]
+    XV = (X.reshape(P * p, p) @ V).reshape(P, p, r)
+    return (XV.transpose(0, 2, 1).reshape(P * r, p) @ V).reshape(P, r, r)
+
+
+def pattern_pair_sums(basis, K: np.ndarray, w: np.ndarray):
+    """(entries, Z) for batches of the entries of ``basis`` with a covariance part: Z[b] = sum_k w_k K_k[:, u_e]
+    K_k[:, v_e]' (r x r) for each entry e of the batch, one stacked matrix product over the patterns K_k = V' A_k V,
+    a batch taking at most :data:`BLOCK_BYTES` (the score tests' cross-information reads Z_e[u_c, v_c])."""
+    P, r, _ = K.shape
+    cov = np.flatnonzero(basis.c)
+    step = max(1, BLOCK_BYTES // (8 * max(P * r, r * r)))
+    for start in range(0, len(cov), step):
+        entries = cov[start:start + step]
+        left = (K[:, :, basis.u[entries]] * w[:, None, None]).transpose(2, 1, 0)  # (b, r, P)
+        right = K[:, :, basis.v[entries]].transpose(2, 0, 1)  # (b, P, r)
+        yield entries, np.matmul(left, right)
+
+
+def pattern_trace_sum(basis, K: np.ndarray, w: np.ndarray) -> np.ndarray:
+    """sum_k w_k tr(A_k D_e A_k D_f) over the entries of ``basis`` (:mod:`cfa_tool.model.rank_two`), K the patterns'
+    V' A_k V: sum_k w_k 2 c_e c_f (K_k[u_e, u_f] K_k[v_e, v_f] + K_k[u_e, v_f] K_k[v_e, u_f]); pattern by pattern,
+    each's E x E gathers small enough to stay in the processor's caches, for the entries with a covariance part."""
+    E = len(basis.u)
+    cov = np.flatnonzero(basis.c)
+    u, v = basis.u[cov], basis.v[cov]
+    total = np.zeros((len(cov), len(cov)))
+    for Kk, wk in zip(K, w):
+        Ku, Kv = Kk[u], Kk[v]
+        Kuv = Ku[:, v]
+        product = Ku[:, u] * Kv[:, v]
+        product += Kuv * Kuv.T
+        total += wk * product
+    out = np.zeros((E, E))
+    out[np.ix_(cov, cov)] = 2.0 * np.outer(basis.c[cov], basis.c[cov]) * total
+    return out
+
+
+def pattern_cross_sum(basis, K: np.ndarray, Q: np.ndarray, w: np.ndarray) -> np.ndarray:
+    """sum_k w_k tr(A_k D_e B_k D_f) over the entries of ``basis``, K and Q the patterns' V' A_k V and V' B_k V
+    (:func:`cfa_tool.model.rank_two.cross_term`, pattern by pattern)."""
+    E = len(basis.u)
+    cov = np.flatnonzero(basis.c)
+    u, v = basis.u[cov], basis.v[cov]
+    total = np.zeros((len(cov), len(cov)))
+    for Kk, Qk, wk in zip(K, Q, w):
+        Ku, Kv, Qu, Qv = Kk[u], Kk[v], Qk[u], Qk[v]
+        Kuv = Ku[:, v]
+        product = Qv[:, u] * Kuv
+        product += Qv[:, v] * Ku[:, u]
+        product += Qu[:, u] * Kv[:, v]
+        product += Qu[:, v] * Kuv.T
+        total += wk * product
+    out = np.zeros((E, E))
+    out[np.ix_(cov, cov)] = np.outer(basis.c[cov], basis.c[cov]) * total
+    return out
+
+
+def pattern_mean_sum(basis, K: np.ndarray, VAd: np.ndarray, w: np.ndarray, s: np.ndarray) -> np.ndarray:
+    """sum_k w_k d_k' A_k D_e A_k dmu_f over the entries of ``basis``, with (V' A d)_k the rows of ``VAd``:
+    c_e s_f sum_k w_k ((V'Ad)_k[u_e] K_k[v_e, w_f] + (V'Ad)_k[v_e] K_k[u_e, w_f])."""
+    E = len(basis.u)
+    cov, mean = np.flatnonzero(basis.c), np.flatnonzero(s)
+    out = np.zeros((E, E))
+    if not len(mean) or not len(cov):
+        return out
+    u, v, at = basis.u[cov], basis.v[cov], basis.w[mean]
+    total = np.zeros((len(cov), len(mean)))
+    weighted = VAd * w[:, None]
+    for Kk, ad in zip(K, weighted):
+        Kw = Kk[:, at]
+        total += ad[u][:, None] * Kw[v] + ad[v][:, None] * Kw[u]
+    out[np.ix_(cov, mean)] = basis.c[cov][:, None] * total * s[mean][None, :]
+    return out
 
 
 #: the most bytes a block of the patterns' weight matrix takes (:func:`_trace_products`): up to about 50 items the

@@ -62,20 +62,49 @@ def jacobian(L: np.ndarray, Phi: np.ndarray, oblique: bool) -> np.ndarray:
     return delta
 
 
+#: the most bytes a block of the pairs' symmetric matrices takes (:func:`pair_matrix_map`): at 200 items a block of
+#: 100 columns, so that no route makes one p x p matrix per column at once (a thousand at 200 items and 5 factors)
+BLOCK_BYTES = 1 << 25
+
+
+def pair_matrix_map(X: np.ndarray, p: int, function) -> np.ndarray:
+    """For each column x of ``X`` (pairs x columns), the pairs of ``function(S)``, S the symmetric p x p matrix with
+    S_ij = S_ji = x_ij off the diagonal and zeros on it; ``function`` maps a stack (b, p, p) of them to a stack of
+    symmetric matrices.  A block of columns at a time (:data:`BLOCK_BYTES`)."""
+    i, j = pairs(p)
+    columns = X.shape[1]
+    out = np.empty((len(i), columns))
+    step = max(1, BLOCK_BYTES // (8 * p * p))
+    for start in range(0, columns, step):
+        block = slice(start, min(columns, start + step))
+        S = np.zeros((block.stop - start, p, p))
+        S[:, i, j] = X[:, block].T
+        S += S.transpose(0, 2, 1)
+        out[:, block] = function(S)[:, i, j].T
+    return out
+
+
 def weighted(delta: np.ndarray, W: np.ndarray) -> np.ndarray:
     """V delta for the maximum-likelihood weight of the pairs, V_ab = W_ik W_jl + W_il W_jk with
     W the inverse implied correlation matrix (the second-order term of the ML discrepancy,
     F ~ (r - rho)' V (r - rho); Browne 1974), computed as the pairs of W X W for each column X."""
-    p = len(W)
-    i, j = pairs(p)
-    X = np.zeros((delta.shape[1], p, p))
-    X[:, i, j] = delta.T
-    X += X.transpose(0, 2, 1)
-    Y = W @ X @ W
-    return np.ascontiguousarray(Y[:, i, j].T)
+    return pair_matrix_map(delta, len(W), lambda S: W @ S @ W)
 
 
-def weight_matrix(W: np.ndarray) -> np.ndarray:
-    """The dense maximum-likelihood weight V of the pairs (see ``weighted``)."""
+def weight_trace(W: np.ndarray, gamma) -> float:
+    """tr(V Gamma) = sum_ab V_ab Gamma_ab for the weight V of :func:`weighted`, V made a block of its rows at a time
+    (:data:`BLOCK_BYTES`), never whole (at 125 items it is 7,750 x 7,750, 480 MB).  ``gamma``: the (symmetric)
+    matrix of the pairs, given (polychoric input), or a function X -> Gamma X (normal theory, whose Gamma is never
+    made: the diagonal blocks of Gamma V, p^3 a pair; for direct calls, the workflows scale polychoric input only)."""
     i, j = pairs(len(W))
-    return W[i][:, i] * W[j][:, j] + W[i][:, j] * W[j][:, i]
+    n = len(i)
+    step = max(1, BLOCK_BYTES // (8 * max(n, 1)))
+    total = 0.0
+    for start in range(0, n, step):
+        a = slice(start, min(n, start + step))
+        V = W[i[a]][:, i] * W[j[a]][:, j] + W[i[a]][:, j] * W[j[a]][:, i]  # rows a of V
+        if callable(gamma):
+            total += float(np.trace(gamma(V.T)[a]))  # (Gamma V)_aa, V symmetric
+        else:
+            total += float(np.vdot(V, gamma[a]))
+    return total

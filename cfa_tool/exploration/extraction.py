@@ -227,14 +227,14 @@ def solution_fit(data: CorrelationInput, method: ExtractionMethod, L: np.ndarray
 def scaling_factor(data: CorrelationInput, L: np.ndarray, W: np.ndarray, df: int) -> float:
     """c = tr(U Gamma) / df, U = V - V D (D'V D)^+ D'V (Satorra & Bentler 1994), with D the
     derivatives of the implied correlations at the unrotated loadings (a rank deficiency of
-    m(m-1)/2 from rotation, hence the pseudo-inverse) and V the ML weight of the pairs."""
+    m(m-1)/2 from rotation, hence the pseudo-inverse) and V the ML weight of the pairs.  No matrix of the pairs by
+    the pairs is made beside a given Gamma (polychoric input, the only one a solution's fit scales)."""
     if df <= 0:
         return float("nan")
-    gamma = data.pair_covariance()
     m = L.shape[1]
     delta = cs.jacobian(L, np.eye(m), oblique=False)
     VD = cs.weighted(delta, W)
-    V = cs.weight_matrix(W)
     bread = delta.T @ VD
-    meat = VD.T @ gamma @ VD
-    return float((np.vdot(V, gamma) - np.vdot(np.linalg.pinv(bread, rcond=1e-9, hermitian=True), meat)) / df)
+    meat = VD.T @ data.pair_covariance_times(VD)
+    trace = cs.weight_trace(W, data.gamma if data.gamma is not None else data.pair_covariance_times)  # V never whole
+    return float((trace - np.vdot(np.linalg.pinv(bread, rcond=1e-9, hermitian=True), meat)) / df)

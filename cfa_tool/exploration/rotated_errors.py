@@ -79,7 +79,7 @@ def constrained_covariance(data: CorrelationInput, method: ExtractionMethod, L: 
     else:
         VD = delta
     bread = delta.T @ VD
-    meat = VD.T @ data.pair_covariance() @ VD
+    meat = VD.T @ data.pair_covariance_times(VD)  # no matrix of the pairs by the pairs for Pearson input
     q = len(theta)
     if constraints is not None:
         C = _central_jacobian(constraints, theta)

@@ -1524,10 +1524,7 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     notes += few_note
     if design is not None:
         fit_options = design_test(fit_options, design)
-    if fit_options.missing is MissingData.FULL_INFORMATION and fit_options.test in (FitTest.YUAN_BENTLER, FitTest.ROBUST):
-        from cfa_tool.inference.robust_missing import refuse_moment_matrices  # before the EM and the fit, not after
-
-        refuse_moment_matrices(len(spec.observed_names), design is not None)
+    refuse_large_robust_route(spec, fit_options, design)
     # EM on thousands of rows: one thread beats several on small p; the moments and the fit in one context (the
     # fit's own then finds one thread already and sets nothing)
     with blas_threads_for(len(spec.observed_names)):
@@ -1581,6 +1578,18 @@ def _labelled(frame: pd.DataFrame, group: str | None) -> pd.DataFrame:
         return frame
     labelled = has_group(frame, group)
     return frame if labelled.all() else frame.loc[labelled]
+
+
+def refuse_large_robust_route(spec: Spec, fit_options, design) -> None:
+    """The one check, before the moments (the EM) and the fit, of a full-information robust route (a robust test, or
+    the design-based one, with rows with gaps) whose matrices of the moments by themselves would exceed the tool's
+    one limit of a matrix (:func:`cfa_tool.inference.robust_missing.refuse_moment_matrices`, exit 3): called by every
+    route that fits with those options (fit, compare for each model, invariance, bootstrap), with ``fit_options`` as
+    the fit will take them (after :func:`design_test` and :func:`choose_missing_handling`)."""
+    if fit_options.missing is MissingData.FULL_INFORMATION and fit_options.test in (FitTest.YUAN_BENTLER, FitTest.ROBUST):
+        from cfa_tool.inference.robust_missing import refuse_moment_matrices
+
+        refuse_moment_matrices(len(spec.observed_names), design is not None)
 
 
 def design_test(fit_options, design: DesignColumns):

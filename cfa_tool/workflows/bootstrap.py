@@ -56,6 +56,7 @@ from cfa_tool.data.sample_design import check_design, design_columns, design_sum
 from cfa_tool.method import MissingData, WeightKind
 from cfa_tool.data.matching import chosen_columns
 from cfa_tool.pipeline.inputs import (_described, _fit_rows, converged, keeps_rows_with_gaps, design_test, moments_for, odd_values_named,
+                                      refuse_large_robust_route,
                                       ordinal_items_of, read_inputs_with_notes, refit_missing_handling, with_design,
                                       with_odd_values, without_exploratory_blocks, rows_named)
 from cfa_tool.pipeline.results import FitResult, clean
@@ -621,6 +622,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     options = FitOptions(missing=handling)
     if design is not None:
         options = design_test(options, design)
+        refuse_large_robust_route(spec, options, design)  # before the moments and the fit
         [(_, moments)], _ = moments_for(spec, frame, source, missing=handling, design=design)
         refuse_lone_strata(moments.design, design, source, "the resamples would draw that one again and again, "
                            "so its stratum would add no variation")

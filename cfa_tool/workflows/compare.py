@@ -9,6 +9,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.pipeline.inputs import (_described, rows_named, _no_group_notes, choose_missing_handling, has_group, design_test, few_categories, keeps_rows_with_gaps, load_spec, make_options, moments_for,
+                                      refuse_large_robust_route,
                                       missing_codes_option, of_summary_statistics,
                                       data_problems, odd_values_named, reference_group_applies, reference_note,
                                       with_missing_reading,
@@ -228,6 +229,9 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                                                         id_rows))
             return replace(found, results=tuple(with_missing_reading(r, loaded, missing_codes) for r in found.results),
                            without_group=without_group)
+        for spec, name in zip(specs, names):  # every model's, before any moments or fit
+            with estimation_of(f"model {name}"):
+                refuse_large_robust_route(spec, fit_options, design)
         results = []
         data_groups = []
         for spec, name in zip(specs, names):

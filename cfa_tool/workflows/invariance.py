@@ -25,6 +25,7 @@ from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.options import own_keywords
 from cfa_tool.data.matching import chosen_columns
 from cfa_tool.pipeline.inputs import (_described, rows_named, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_categories, keeps_rows_with_gaps,
+                                      refuse_large_robust_route,
                                       make_options, moments_for, data_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
                                       with_design_weights, with_missing_reading, with_rows_read)
@@ -440,6 +441,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                                              design=design)
         gaps = (fit_options.missing is MissingData.FULL_INFORMATION
                 and bool(frame[list(spec.observed_names)].isna().to_numpy().any()))
+        refuse_large_robust_route(spec, fit_options, design)  # before the moments and the ladder's fits
         groups, notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design=design)
         few, few_note = few_categories(frame, spec.observed_names)
         notes = list(missing_notes) + few_note + list(read_notes) + list(notes)
