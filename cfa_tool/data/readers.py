@@ -32,11 +32,12 @@ from cfa_tool.data.notes_rows import end_of_data, notes_lines, notes_note
 from cfa_tool.data.non_answers import answers_labelled_like_none, declared_missing, labelled_non_answers, \
     non_answer_note, run_words, says_no_answer, unused_run_words, written_non_answers
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
+from cfa_tool.data.row_ids import id_text
 from cfa_tool.errors import DataError, clipped, printable
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 from cfa_tool.input_files import base_name, check_input_path, input_bytes, line_count, utf16_text
-from cfa_tool.numbers import number, user_number
+from cfa_tool.numbers import number
 
 if TYPE_CHECKING:
     from cfa_tool.data.moments import ItemColumns
@@ -2128,8 +2129,7 @@ def _split_row_names(frame: pd.DataFrame, out: list | None) -> pd.DataFrame:
     """The frame without its first (row-name) column; the column's values, as text, go to ``out``."""
     if out is not None:
         first = frame.iloc[:, 0]
-        out.append(first.map(lambda v: None if pd.isna(v) else (user_number(v) if isinstance(v, float) else str(v)))
-                   .rename(None))
+        out.append(first.map(id_text).rename(None))  # the one rule of an id's text
     return frame.iloc[:, 1:]
 
 
