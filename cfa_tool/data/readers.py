@@ -638,25 +638,32 @@ class SkippedAnswers:
     first_data_row: int
     option: Option
     start: int | None
+    #: the kind of problem every view files it under (assessment.admissibility.ProblemKind's value)
+    problem_kind: str = "rows of answers left unread"
 
-    def caution(self, source: str) -> str:
+    def caution(self, source: str) -> Note:
+        """The option in a note_parts.Command: a manuscript names no option, and says 'above the first row of data'."""
         several = len(self.rows) > 1
         first, last = self.rows[0], self.rows[-1]
         shown = (f"row {first}" if not several else f"rows {first}-{last}"
                  if last - first == len(self.rows) - 1 else
                  "rows " + ", ".join(str(r) for r in self.rows[:SHOWN_ROWS])
                  + (f" and {len(self.rows) - SHOWN_ROWS} more" if len(self.rows) > SHOWN_ROWS else ""))
-        return (f"{base_name(self.where)}: {shown}, left unread by {self.option.given(self.first_data_row)}, "
-                f"{'hold' if several else 'holds'} answers like the rows read (in every item column that "
-                f"{'they fill' if several else 'it fills'}, a number or an answer the other rows give), so "
-                f"{len(self.rows)} {'rows' if several else 'row'} of answers {'are' if several else 'is'} not analysed.")
+        return Note((f"{base_name(self.where)}: {shown}, left unread ",
+                     Command(f"by {self.option.given(self.first_data_row)}",
+                             f"above the first row of data, row {self.first_data_row}"),
+                     f", {'hold' if several else 'holds'} answers like the rows read (in every item column that "
+                     f"{'they fill' if several else 'it fills'}, a number or an answer the other rows give), so "
+                     f"{len(self.rows)} {'rows' if several else 'row'} of answers {'are' if several else 'is'} not "
+                     f"analysed."))
 
-    def advice(self) -> str:
+    def advice(self) -> Note:
         if self.start is not None:
-            return (f"If the answers start at row {self.start}, give "
-                    f"{self.option.given(self.start)}; if those rows are rightly left out, nothing.")
-        return (f"Give the row where the answers start with {self.option}; if those rows are rightly left "
-                f"out, nothing.")
+            return Note((f"If the answers start at row {self.start}, read them from it",
+                         Command(f" ({self.option.given(self.start)})"),
+                         "; if those rows are rightly left out, nothing."))
+        return Note(("Give the row where the answers start", Command(f" ({self.option})"),
+                     "; if those rows are rightly left out, nothing."))
 
 
 @dataclass(frozen=True)
@@ -674,6 +681,8 @@ class AnswersAsNames:
     numbers: int  # the named row's cells that are numbers
     filled: int  # and its cells with a value
     shown: tuple[str, ...]  # the first few names of the likely row
+    #: the kind of problem every view files it under (assessment.admissibility.ProblemKind's value)
+    problem_kind: str = "a row of answers read as the column names"
 
     def caution(self, source: str) -> Note:
         """The option in a note_parts.Command: a manuscript names no option."""
