@@ -653,9 +653,8 @@ def _set_apart(X: np.ndarray, named: set, names: list[str], numbers: np.ndarray)
     hold, as one finding naming each column with each value it holds.  Only columns whose answers are mostly whole
     numbers are looked at, so that measures of many values cost one comparison."""
     finite = np.isfinite(X)
-    whole = (finite & (X == np.round(X))).sum(axis=0)
     held: dict[int, tuple[float, ...]] = {}
-    for j in np.flatnonzero(whole >= SCALE_SHARE * np.maximum(finite.sum(axis=0), 1)):
+    for j in _with_a_gap(X, finite):
         beyond = tuple(v for v in beyond_the_run(X[:, j]) if (int(j), v) not in named)
         if beyond:
             held[int(j)] = beyond
@@ -673,6 +672,21 @@ def _set_apart(X: np.ndarray, named: set, names: list[str], numbers: np.ndarray)
     return (OddValues(OddKind.SET_APART, tuple(names[j] for j, _ in pairs), tuple(v for _, v in pairs),
                       tuple(int(numbers[r]) for r in rows), int(cells.sum()),
                       (min(r[0] for r in runs), max(r[1] for r in runs)), of=int(finite[:, js].sum())),)
+
+
+def _with_a_gap(X: np.ndarray, finite: np.ndarray) -> np.ndarray:
+    """The columns in which :func:`beyond_the_run` can set values apart, all columns at once: at least
+    :data:`SCALE_SHARE` of their answers whole numbers, two of which lie at least :data:`SCALE_GAP` apart with no
+    whole answer between them (a value set apart lies so beyond the run).
+    Scales answered in full (1 to 5, each given) and measures of fractions cost a few comparisons (review s20:
+    ordinary data pay for every rule on every fit)."""
+    whole = finite & (X == np.round(X))
+    count = whole.sum(axis=0)
+    maybe = np.flatnonzero((count >= SCALE_SHARE * np.maximum(finite.sum(axis=0), 1)) & (count > MIN_OTHERS))
+    if not len(maybe):
+        return maybe
+    ordered = np.sort(np.where(whole[:, maybe], X[:, maybe], np.nan), axis=0)  # the whole answers, gaps last
+    return maybe[(np.diff(ordered, axis=0) >= SCALE_GAP).any(axis=0)]  # NaN compares false
 
 
 def _run_ends(x: np.ndarray, beyond: tuple[float, ...]) -> tuple[float, float]:
