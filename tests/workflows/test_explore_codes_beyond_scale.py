@@ -13,22 +13,16 @@ import pytest
 
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.workflows.explore import LeftOut, explore
+from tests.commands.test_codes_set_apart_every_command import ITEMS, pupils
 
 
 def _survey(grade_from: int, seed: int = 20) -> pd.DataFrame:
-    """400 simulated pupils: 12 items of 1 to 5 on two factors, 8 ('don't know') and 9 ('refused') each in about
-    2.5% of every item's cells, and a school grade of four years starting at ``grade_from``."""
-    rng = np.random.default_rng(seed)
-    f = rng.normal(size=(400, 2))
-    data = {}
-    for j in range(12):
-        x = np.clip(np.round(3 + 0.9 * f[:, j // 6] + rng.normal(scale=0.8, size=400)), 1, 5)
-        u = rng.random(400)
-        x[u < 0.025] = 8
-        x[(u >= 0.025) & (u < 0.05)] = 9
-        data[f"q{j + 1}"] = x.astype(int)
-    data["grade"] = rng.integers(grade_from, grade_from + 4, 400)
-    return pd.DataFrame(data)
+    """400 simulated pupils (tests.commands.test_codes_set_apart_every_command.pupils: 12 items of 1 to 5 on two
+    factors, 8 'don't know' and 9 'refused' each in about 2.5% of every item's cells) and a school grade of four years
+    starting at ``grade_from``."""
+    frame = pupils(seed)[ITEMS].copy()
+    frame["grade"] = np.random.default_rng(seed + 1).integers(grade_from, grade_from + 4, len(frame))
+    return frame
 
 
 @pytest.mark.parametrize("grade_from", [6, 7, 9])
