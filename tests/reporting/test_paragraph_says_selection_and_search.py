@@ -18,6 +18,7 @@ from __future__ import annotations
 import pandas as pd
 
 import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.reporting.paragraph import (comparison_paragraph, invariance_paragraph, methods_paragraph,
                                           replication_paragraph)
 from cfa_tool.workflows.invariance import LEVELS, ScoreTests
@@ -55,7 +56,8 @@ def test_several_filters_on_items_are_one_sentence_naming_each_items_kept_range(
     3')'); now each item once, with the range its filters keep, the bounds the tightest ('>= 1' and '> 1': above 1)
     and a filter that left out no answer ('<= 6' on answers 1 to 5) not named.  The rows left out counted with pandas."""
     keep = ["on_time >= 1", "on_time <= 6", "on_time > 1", "on_time != 3", "on_time != 4", "short_wait < 5"]
-    text = _flat(methods_paragraph(cfa_tool.fit(rider_model, rider_demo, keep=keep)))
+    fitted = cfa_tool.fit(rider_model, rider_demo, keep=keep)
+    text = _flat(methods_paragraph(fitted))
     on_time = int(rider_demo["on_time"].isin([1, 3, 4]).sum())  # answers 1, 3 and 4 left out
     kept = rider_demo[rider_demo["on_time"].isin([2, 5])]
     short_wait = int((kept["short_wait"] >= 5).sum())  # then short_wait's answers of 5 and more among the rows left
@@ -64,6 +66,14 @@ def test_several_filters_on_items_are_one_sentence_naming_each_items_kept_range(
             f"below 5 (an item of punctuality; {short_wait} rows with an answer to it left out), so those items "
             f"{RESTRICTED}") in text
     assert text.count("range restriction") == 1  # one sentence
+    # the report's caution likewise: one per item, its filters named with the range they keep
+    cautions = [str(p.explanation) for p in fitted.problems if p.kind is ProblemKind.SELECTED_ON_ITEM]
+    assert len(cautions) == 2
+    assert cautions[0].startswith("Row filters 'on_time > 1' and 'on_time not in 3, 4' select rows by their answers to "
+                                  "'on_time', an item of punctuality, keeping those where on_time was above 1 and none "
+                                  f"of 3, 4: they left out {on_time} rows with an answer to it.")
+    assert cautions[1].startswith("Row filter 'short_wait < 5' selects rows by their answers to 'short_wait', an item "
+                                  f"of punctuality: it left out {short_wait} rows with an answer to it.")
 
 
 def test_the_kept_range_of_one_column_takes_the_tightest_bounds():
