@@ -77,6 +77,14 @@ class ProblemKind(enum.Enum):
     GROUPS_SHARE_STRATA = ("groups share strata", "groups share strata", False)
     # not of the solution but of the data: values in item columns that look like no answers (data.odd_values)
     VALUES_NOT_ANSWERS = ("values that look like no answers", "values that look like no answers", False)
+    # the same of codes the items share, set apart from their answer scale in more cells than a typing error leaves
+    # (data.odd_values, OddKind.SET_APART: 8 'don't know' and 9 'refused' beside answers 1 to 5), analysed as answers
+    CODES_SET_APART = ("codes set apart from the answer scale", "codes beside the scale", False)
+    # not of the answers but of the reading: the row given as the row of column names looks like a row of answers
+    # below a row of names (data.readers.AnswersAsNames): a respondent left out, the columns named by answers
+    ANSWERS_READ_AS_NAMES = ("a row of answers read as the column names", "answers read as names", False)
+    # ... rows that the first row of data given left unread though they hold answers (data.readers.SkippedAnswers)
+    ANSWERS_LEFT_UNREAD = ("rows of answers left unread", "answers left unread", False)
     # not of the solution but of the data: a no-answer code that a row filter's, group, cluster or strata column keeps
     # as a value (pipeline.column_codes; --missing-codes applies to the items only)
     CODE_KEPT_AS_VALUE = ("no-answer code kept in a column choosing rows", "code kept as a value", False)
@@ -432,6 +440,10 @@ class Problem:
             K.DESIGN_LABELS_BY_CASE: "cluster or stratum labels that differ only in upper and lower case, analysed "
                                      "as different clusters or strata",
             K.VALUES_NOT_ANSWERS: "values in the data that look like no answers (a missing-value code or a totals row)",
+            K.CODES_SET_APART: "values that the items share apart from their answer scale, as codes of no answer are "
+                               "given, analysed as answers",
+            K.ANSWERS_READ_AS_NAMES: "a row that looks like a respondent's answers, read as the column names",
+            K.ANSWERS_LEFT_UNREAD: "rows that look like respondents' answers, left unread above the first row of data",
             K.CODE_KEPT_AS_VALUE: "a no-answer code kept as a value in a column that chooses or groups the rows",
             K.VALUES_READ_AS_MISSING: "values that the data file marks as no answer (by their value labels, as declared "
                                       "missing values, or as text such as 'refused') were treated as missing",

@@ -195,6 +195,37 @@ def filters_in_words(filters) -> list[str]:
     return [f.in_words() for f, _ in merged_exclusions(filters)]
 
 
+def kept_range_words(filters) -> str:
+    """The row ``filters`` on one column (data.filters.RowFilter, as apply_filters counted them) as one clause naming
+    what they keep, for a methods section: 'on_time was at least 2 and at most 4', the bounds the tightest of their
+    comparisons ('>= 2' and '> 3' keep the rows above 3; of two bounds at one value the strict one), then the other
+    comparisons as :meth:`RowFilter.in_words` words them ('was not 3', several '!=' one list: :func:`merged_exclusions`)
+    after 'and' (s20: the range-restriction sentence named each filter of one item apart, 'x1 >= 2' and 'x1 <= 4')."""
+    filters = list(filters)
+    column = filters[0].column
+    lower = upper = None  # (value, strict) of the tightest bound below and above
+    others = []
+    for f, _ in merged_exclusions(filters):
+        value = f.value
+        numeric = isinstance(value, (int, float)) and not isinstance(value, bool)
+        if numeric and f.operator in (">", ">="):
+            bound = (float(value), f.operator == ">")
+            lower = bound if lower is None or bound > lower else lower
+        elif numeric and f.operator in ("<", "<="):
+            bound = (float(value), f.operator == "<")
+            upper = bound if upper is None or (bound[0], not bound[1]) < (upper[0], not upper[1]) else upper
+        else:
+            others.append(f)
+    name = written_name(column)
+    bits = ([f"{'above' if lower[1] else 'at least'} {_worded(lower[0])}"] if lower else []) + (
+        [f"{'below' if upper[1] else 'at most'} {_worded(upper[0])}"] if upper else [])
+    for f in others:
+        words = f.in_words()
+        bits.append(words[len(f"{name} was "):] if words.startswith(f"{name} was ") else words)
+    listed = bits[0] if len(bits) == 1 else f"{', '.join(bits[:-1])} and {bits[-1]}"
+    return f"{name} was {listed}"
+
+
 #: values a filter written for advice lists at most (more: the advice gives the filter's form)
 LISTED_AT_MOST = 100
 

@@ -29,6 +29,14 @@ normal data, the bundled demo data and Holzinger & Swineford 1939):
   (a value outside the range the questionnaire's items use is a keying error), written as this project's rule,
   not a published test.  Measures with many different values (reaction times, incomes, counts of many sizes)
   form no such run and are never judged so;
+* **codes set apart from the answer scale**: values that items on a scale of whole numbers hold apart from it, too
+  many for the rule outside the answer scale (more than :data:`FEW_SHARE`, which allows a typing error or two): in
+  each column, the longest run of consecutive whole numbers (at most :data:`MAX_SCALE_POINTS`) holds at least
+  :data:`SCALE_SHARE` of its answers and each other value lies at least :data:`SCALE_GAP` beyond the run's ends (8
+  'don't know' and 9 'refused' in 5% of the cells each beside answers 1 to 5, :func:`beyond_the_run`); a value so
+  set apart in at least two item columns (a code the items share, not one item's tail), and named by no other rule,
+  is named once for all of them.  A rule of thumb of this project, not a published one (s20: explore's; s21: one rule
+  for every command);
 * **a row of sums or means**: a row whose values equal, in every item column it answers (three or more), the
   sums (to within 0.5, and beyond the range of the other answers in at least half of those columns, as sums of
   ten or more answers of one sign lie: small answers of data centred at zero are near their sums too) or the means
@@ -47,7 +55,7 @@ from functools import cached_property
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import count_text, user_number
 from cfa_tool.data.descriptives import answer_extremes
 from cfa_tool.data.missing_codes import beyond_as_a_code
 from cfa_tool.data.kept_rows import RowNaming, row_naming, row_words, rows_listed, text_lines
@@ -64,6 +72,11 @@ FAR_ALONE = 10.0  # ... or with one value this many ranges beyond them
 SHOWN = 3  # columns, values and row numbers a caution names before 'and N more'
 MAX_SCALE_POINTS = 11  # the answers of an answer scale: at most 0 to 10
 FEW_SHARE = 0.02  # values outside a scale: at most this share of the answers (at least one cell); its end: at least it
+#: codes set apart from the answer scale: the least share of a column's answers its run of whole numbers holds, with
+#: room for codes of no answer beyond the :data:`FEW_SHARE` the rule outside the answer scale allows
+SCALE_SHARE = 0.8
+#: ... and the least distance of a value set apart from the run's end: 6 beside 1 to 5 may be the scale's own top answer
+SCALE_GAP = 2.0
 MEAN_TOLERANCE = 0.005  # means written to two decimals
 SUM_TOLERANCE = 0.5  # sums written as whole numbers
 
@@ -77,6 +90,7 @@ class OddKind(enum.Enum):
     SUMS_ROW = "row of sums"
     MEANS_ROW = "row of means"
     SUMMARY_BLOCK = "rows of column statistics"
+    SET_APART = "codes set apart from the answer scale"
 
 
 @dataclass(frozen=True)
@@ -103,6 +117,16 @@ class OddValues:
     #: text cell that names it ((column, text), or None)
     holds: tuple[str, ...] = ()
     labels: tuple[tuple[str, str] | None, ...] = ()
+    #: codes set apart from the answer scale (kind SET_APART, whose ``columns`` and ``values`` are pairs: each column
+    #: with each value it holds): the answers of the columns named, of which the ``answers`` are the share named
+    of: int = 0
+
+    @property
+    def problem_kind(self) -> str:
+        """The kind of problem every view files it under (assessment.admissibility.ProblemKind's value): codes set
+        apart from the answer scale their own, so that a reader of the JSON tells them from the other findings."""
+        return ("codes set apart from the answer scale" if self.kind is OddKind.SET_APART
+                else "values that look like no answers")
 
     def caution(self, source: str) -> str:
         """The one line a report shows first: the columns, the value, how many rows and which."""
@@ -127,6 +151,14 @@ class OddValues:
                     f"{self._guess()}?")
         if self.kind is OddKind.SUMMARY_BLOCK:
             return _block_caution(self, name)
+        if self.kind is OddKind.SET_APART:
+            columns = self.distinct_columns()
+            rows = "row" if len(self.rows) == 1 else "rows"
+            return (f"{len(columns)} {self.role} columns of {name} ({_listed(columns)}) hold {self._values_words()} "
+                    f"apart from the run of their other answers ({_number(low)} to {_number(high)}): "
+                    f"{self._share_words()}, in {count_text(len(self.rows))} {rows} ({self._rows_named()}). Codes of "
+                    f"no answer ('don't know', 'refused') lie so; these are analysed as answers, beyond the scale's "
+                    f"ends.")
         guess = ("a totals or means row, or a typing error?" if self.kind is OddKind.FAR_BEYOND
                  else "a totals or means row of a spreadsheet?")
         return f"{self._row_holds(name)}: {guess}"
@@ -177,6 +209,10 @@ class OddValues:
             return (f"{self._first_row()}, with values far beyond every other row's answers ({_number(low)} to "
                     f"{_number(high)}) in {len(self.columns)} item column{'s' if len(self.columns) != 1 else ''}: "
                     f"perhaps a totals row or a typing error")
+        if self.kind is OddKind.SET_APART:
+            return (f"{self._values_words()} in {_listed(written_name(c) for c in self.distinct_columns())}, "
+                    f"{self._share_words()}, apart from the run of the other answers ({_number(low)} to "
+                    f"{_number(high)}): perhaps codes of no answer")
         if self.kind is OddKind.SUMMARY_BLOCK:
             return (f"{self._rows_named()}, which hold {_listed(self.holds)} of the rows above them in the item "
                     f"columns: perhaps a summary block under the data")
@@ -190,6 +226,14 @@ class OddValues:
         code = Command(f"give {Option.MISSING_CODES.given(value)}", f"read {value} as no answer")
         if self.kind is OddKind.MISSING_CODE:
             return Note((f"If {value} means 'no answer', ", code, " (or correct those answers in the file)."))
+        if self.kind is OddKind.SET_APART:
+            values = self.distinct_values()
+            listed = ",".join(_number(v) for v in values)
+            one = len(values) == 1
+            return Note((f"If {'it means' if one else 'they mean'} no answer, ",
+                         Command(f"give {Option.MISSING_CODES.given(listed)}",
+                                 f"read {'it' if one else 'them'} as no answer"),
+                         f"; if {'it is an answer' if one else 'they are answers'}, nothing needs to change."))
         if self.kind is OddKind.OUTSIDE_SCALE:
             holder = self.naming.holder
             return Note((f"Check those answers: correct a typing error in a copy of the {holder}, or, if {value} "
@@ -199,6 +243,26 @@ class OddValues:
             return _block_advice(self, holder)
         return Note((f"Delete {self._first_row()} from the {holder} (or leave it out with a row filter",
                      Command(f", {Option.KEEP}"), ") if it holds no one's answers; otherwise check those answers."))
+
+    def distinct_columns(self) -> tuple[str, ...]:
+        """The columns named, each once, in the file's order (kind SET_APART names pairs of a column and a value)."""
+        return tuple(dict.fromkeys(self.columns))
+
+    def distinct_values(self) -> tuple[float, ...]:
+        """The values named, each once, from the lowest."""
+        return tuple(sorted(set(self.values)))
+
+    def _values_words(self) -> str:
+        """'the value 8', '8 and 9', '7, 8 and 9'."""
+        values = [_number(v) for v in self.distinct_values()]
+        if len(values) == 1:
+            return f"the value {values[0]}"
+        return f"{', '.join(values[:-1])} and {values[-1]}"
+
+    def _share_words(self) -> str:
+        """'480 of their 4,800 answers (10.0%)': the cells named among the answers of their columns."""
+        share = self.answers / self.of if self.of else 0.0
+        return f"{count_text(self.answers)} of their {count_text(self.of)} answers ({100 * share:.1f}%)"
 
     def _guess(self) -> str:
         """What a value outside the answer scale may be: a typing error in one column; in several, where the same
@@ -218,6 +282,8 @@ class OddValues:
                "rows": list(self.rows), "answers": self.answers}
         if self.kind is OddKind.SUMMARY_BLOCK:
             out["holds"] = list(self.holds)
+        if self.kind is OddKind.SET_APART:  # pairs: each column with each value it holds
+            out["answers_of_those_columns"] = self.of
         return out
 
 
@@ -548,7 +614,8 @@ def _odd_values(frame: pd.DataFrame, columns, row_numbers, X) -> tuple[OddValues
     if not flagged:
         outside = _outside_scales(X, apart, set(), names, numbers)  # the common case: only the rows-of-sums-or-means rule to apply, and no row far beyond
         summary = _summary_rows(X, X)
-        return outside + (tuple(_row_findings(X, X, X, np.zeros(X.shape, dtype=bool), summary, names, numbers))
+        named = {(names.index(c), v) for o in outside for c, v in zip(o.columns, o.values)}
+        return outside + _set_apart(X, named, names, numbers) + (tuple(_row_findings(X, X, X, np.zeros(X.shape, dtype=bool), summary, names, numbers))
                           if summary else ())
     codes: dict[float, list[int]] = {}  # code -> columns
     code_cells = np.zeros(X.shape, dtype=bool)
@@ -575,7 +642,86 @@ def _odd_values(frame: pd.DataFrame, columns, row_numbers, X) -> tuple[OddValues
     base = np.where(far, np.nan, clean)
     named = {(j, float(v)) for j in range(X.shape[1]) for v in np.unique(X[code_cells[:, j] | far[:, j], j])}
     outside = _outside_scales(X, apart, named, names, numbers)
-    return tuple(found) + outside + tuple(_row_findings(X, clean, base, far, _summary_rows(clean, base), names, numbers))
+    named |= {(names.index(c), v) for o in outside for c, v in zip(o.columns, o.values)}
+    return (tuple(found) + outside + _set_apart(X, named, names, numbers)
+            + tuple(_row_findings(X, clean, base, far, _summary_rows(clean, base), names, numbers)))
+
+
+def _set_apart(X: np.ndarray, named: set, names: list[str], numbers: np.ndarray) -> tuple[OddValues, ...]:
+    """The codes set apart from the answer scale (see the module's rules): the values :func:`beyond_the_run` sets
+    apart in each column, those that no other rule names (``named``: (column, value)) and that at least two columns
+    hold, as one finding naming each column with each value it holds.  Only columns whose answers are mostly whole
+    numbers are looked at, so that measures of many values cost one comparison."""
+    finite = np.isfinite(X)
+    held: dict[int, tuple[float, ...]] = {}
+    for j in _with_a_gap(X, finite):
+        beyond = tuple(v for v in beyond_the_run(X[:, j]) if (int(j), v) not in named)
+        if beyond:
+            held[int(j)] = beyond
+    shared = {v for v in {v for vs in held.values() for v in vs}
+              if sum(v in vs for vs in held.values()) >= 2}  # a code the items share, not one item's tail
+    pairs = [(j, v) for j in sorted(held) for v in held[j] if v in shared]
+    if not pairs:
+        return ()
+    js = sorted({j for j, _ in pairs})
+    cells = np.zeros(X.shape, dtype=bool)
+    for j, v in pairs:
+        cells[:, j] |= X[:, j] == v
+    rows = np.flatnonzero(cells.any(axis=1))
+    runs = [_run_ends(X[:, j], held[j]) for j in js]
+    return (OddValues(OddKind.SET_APART, tuple(names[j] for j, _ in pairs), tuple(v for _, v in pairs),
+                      tuple(int(numbers[r]) for r in rows), int(cells.sum()),
+                      (min(r[0] for r in runs), max(r[1] for r in runs)), of=int(finite[:, js].sum())),)
+
+
+def _with_a_gap(X: np.ndarray, finite: np.ndarray) -> np.ndarray:
+    """The columns in which :func:`beyond_the_run` can set values apart, all columns at once: at least
+    :data:`SCALE_SHARE` of their answers whole numbers, two of which lie at least :data:`SCALE_GAP` apart with no
+    whole answer between them (a value set apart lies so beyond the run).
+    Scales answered in full (1 to 5, each given) and measures of fractions cost a few comparisons (review s20:
+    ordinary data pay for every rule on every fit)."""
+    whole = finite & (X == np.round(X))
+    count = whole.sum(axis=0)
+    maybe = np.flatnonzero((count >= SCALE_SHARE * np.maximum(finite.sum(axis=0), 1)) & (count > MIN_OTHERS))
+    if not len(maybe):
+        return maybe
+    ordered = np.sort(np.where(whole[:, maybe], X[:, maybe], np.nan), axis=0)  # the whole answers, gaps last
+    return maybe[(np.diff(ordered, axis=0) >= SCALE_GAP).any(axis=0)]  # NaN compares false
+
+
+def _run_ends(x: np.ndarray, beyond: tuple[float, ...]) -> tuple[float, float]:
+    """The lowest and highest of a column's answers other than the values ``beyond`` (gaps left out)."""
+    x = x[np.isfinite(x) & ~np.isin(x, beyond)]
+    return float(x.min()), float(x.max())
+
+
+def beyond_the_run(x: np.ndarray) -> tuple[float, ...]:
+    """The values of one column (numbers, gaps aside) set apart from its answer scale by :data:`SCALE_SHARE` and
+    :data:`SCALE_GAP`: () when its values fill no such run (a measure of many values, a scale used in full).  The one
+    reading of codes beyond a scale: the rule of codes set apart (:func:`_set_apart`) and explore's reading of the
+    scale most columns share (workflows.explore)."""
+    x = x[np.isfinite(x)]
+    if not len(x):
+        return ()
+    values, counts = np.unique(x, return_counts=True)
+    if len(values) - MAX_SCALE_POINTS > (1 - SCALE_SHARE) * len(x):
+        return ()  # too many values outside any run for it to hold its share: a measure of many values
+    whole = values == np.round(values)
+    best = None  # (answers, first, last) of the run of consecutive whole values holding the most answers
+    start = 0
+    for k in range(1, len(values) + 1):
+        if k == len(values) or not (whole[k] and whole[k - 1] and values[k] - values[k - 1] == 1):
+            if whole[start] and 2 <= k - start <= MAX_SCALE_POINTS:
+                run = (int(counts[start:k].sum()), start, k - 1)
+                best = run if best is None or run[0] > best[0] else best
+            start = k
+    if best is None or best[0] < SCALE_SHARE * len(x) or best[0] == len(x):
+        return ()
+    low, high = values[best[1]], values[best[2]]
+    outside = [v for v in values if v < low or v > high]
+    if any((low - v if v < low else v - high) < SCALE_GAP for v in outside):
+        return ()  # a value next to the run: a scale's thinning tail, not codes
+    return tuple(float(v) for v in outside)
 
 
 def _row_findings(X: np.ndarray, clean: np.ndarray, base: np.ndarray, far: np.ndarray, summary: dict[int, OddKind],

@@ -32,11 +32,12 @@ from cfa_tool.data.notes_rows import end_of_data, notes_lines, notes_note
 from cfa_tool.data.non_answers import answers_labelled_like_none, declared_missing, labelled_non_answers, \
     non_answer_note, run_words, says_no_answer, unused_run_words, written_non_answers
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
+from cfa_tool.data.row_ids import id_text
 from cfa_tool.errors import DataError, clipped, printable
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 from cfa_tool.input_files import base_name, check_input_path, input_bytes, line_count, utf16_text
-from cfa_tool.numbers import number, user_number
+from cfa_tool.numbers import number
 
 if TYPE_CHECKING:
     from cfa_tool.data.moments import ItemColumns
@@ -637,25 +638,32 @@ class SkippedAnswers:
     first_data_row: int
     option: Option
     start: int | None
+    #: the kind of problem every view files it under (assessment.admissibility.ProblemKind's value)
+    problem_kind: str = "rows of answers left unread"
 
-    def caution(self, source: str) -> str:
+    def caution(self, source: str) -> Note:
+        """The option in a note_parts.Command: a manuscript names no option, and says 'above the first row of data'."""
         several = len(self.rows) > 1
         first, last = self.rows[0], self.rows[-1]
         shown = (f"row {first}" if not several else f"rows {first}-{last}"
                  if last - first == len(self.rows) - 1 else
                  "rows " + ", ".join(str(r) for r in self.rows[:SHOWN_ROWS])
                  + (f" and {len(self.rows) - SHOWN_ROWS} more" if len(self.rows) > SHOWN_ROWS else ""))
-        return (f"{base_name(self.where)}: {shown}, left unread by {self.option.given(self.first_data_row)}, "
-                f"{'hold' if several else 'holds'} answers like the rows read (in every item column that "
-                f"{'they fill' if several else 'it fills'}, a number or an answer the other rows give), so "
-                f"{len(self.rows)} {'rows' if several else 'row'} of answers {'are' if several else 'is'} not analysed.")
+        return Note((f"{base_name(self.where)}: {shown}, left unread ",
+                     Command(f"by {self.option.given(self.first_data_row)}",
+                             f"above the first row of data, row {self.first_data_row}"),
+                     f", {'hold' if several else 'holds'} answers like the rows read (in every item column that "
+                     f"{'they fill' if several else 'it fills'}, a number or an answer the other rows give), so "
+                     f"{len(self.rows)} {'rows' if several else 'row'} of answers {'are' if several else 'is'} not "
+                     f"analysed."))
 
-    def advice(self) -> str:
+    def advice(self) -> Note:
         if self.start is not None:
-            return (f"If the answers start at row {self.start}, give "
-                    f"{self.option.given(self.start)}; if those rows are rightly left out, nothing.")
-        return (f"Give the row where the answers start with {self.option}; if those rows are rightly left "
-                f"out, nothing.")
+            return Note((f"If the answers start at row {self.start}, read them from it",
+                         Command(f" ({self.option.given(self.start)})"),
+                         "; if those rows are rightly left out, nothing."))
+        return Note(("Give the row where the answers start", Command(f" ({self.option})"),
+                     "; if those rows are rightly left out, nothing."))
 
 
 @dataclass(frozen=True)
@@ -673,6 +681,8 @@ class AnswersAsNames:
     numbers: int  # the named row's cells that are numbers
     filled: int  # and its cells with a value
     shown: tuple[str, ...]  # the first few names of the likely row
+    #: the kind of problem every view files it under (assessment.admissibility.ProblemKind's value)
+    problem_kind: str = "a row of answers read as the column names"
 
     def caution(self, source: str) -> Note:
         """The option in a note_parts.Command: a manuscript names no option."""
@@ -2128,8 +2138,7 @@ def _split_row_names(frame: pd.DataFrame, out: list | None) -> pd.DataFrame:
     """The frame without its first (row-name) column; the column's values, as text, go to ``out``."""
     if out is not None:
         first = frame.iloc[:, 0]
-        out.append(first.map(lambda v: None if pd.isna(v) else (user_number(v) if isinstance(v, float) else str(v)))
-                   .rename(None))
+        out.append(first.map(id_text).rename(None))  # the one rule of an id's text
     return frame.iloc[:, 1:]
 
 

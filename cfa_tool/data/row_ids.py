@@ -11,16 +11,23 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.errors import OptionError, clipped, printable
+from cfa_tool.numbers import user_number
 from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names
 from cfa_tool.note_parts import Note, RowId, Text
 
 
-def _text(value) -> str | None:
+def id_text(value) -> str | None:
+    """A cell of an id column (or of a file's row-name column) as the id's text, None where it is empty: a number
+    as the user wrote it (numbers.user_number: 7.0 is '7', the 7 it equals; 1234567890123456.0, an id of a column of
+    numbers with gaps, all its digits, where the 15 significant digits of '%.15g' made '1.23456789012346e+15' of it
+    and of its neighbour 1234567890123457, one id of two rows, in the repeated-id caution and the scores file alike);
+    text as it stands ('007' is not 7).  The one rule of an id's text: the ids of an id column and the file's row
+    names (data.readers), which the cautions, the case diagnostics and the scores file all read."""
     if value is None or (not isinstance(value, str) and pd.isna(value)):
         return None
     if isinstance(value, (float, np.floating)):
-        return f"{float(value):.15g}"
+        return user_number(float(value))
     return str(value)
 
 
@@ -44,7 +51,7 @@ def row_ids(frame: pd.DataFrame, source: str, id_column: str | None, model_varia
     if group is not None and id_column == group:
         raise OptionError(f"'{printable(id_column)}' is the group column and cannot also be the id column")
     values = frame[frame.columns[columns.index(id_column)]]
-    return values.map(_text).rename(None)
+    return values.map(id_text).rename(None)
 
 
 def id_like_column(frame: pd.DataFrame, skip) -> str | None:

@@ -345,14 +345,15 @@ def _within_declared_scales(found: tuple, spec: Spec, frame: pd.DataFrame) -> tu
     from cfa_tool.data.matching import declared_scales
     from cfa_tool.data.odd_values import OddKind
 
-    if not spec.reversed or not any(o.kind is OddKind.OUTSIDE_SCALE for o in found):
+    apart = (OddKind.OUTSIDE_SCALE, OddKind.SET_APART)  # values judged by a scale, which the model may declare
+    if not spec.reversed or not any(o.kind in apart for o in found):
         return found
     scales = declared_scales(spec, frame)
 
     def declared(o) -> bool:
         return all(c in scales and scales[c][0] <= v <= scales[c][1] for c, v in zip(o.columns, o.values))
 
-    return tuple(o for o in found if not (o.kind is OddKind.OUTSIDE_SCALE and declared(o)))
+    return tuple(o for o in found if not (o.kind in apart and declared(o)))
 
 
 def summary_rows_kept(loaded: LoadedData, frame: pd.DataFrame, names: tuple[str, ...], found: tuple) -> tuple:
@@ -723,7 +724,7 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
     from cfa_tool.data.odd_values import OddKind
 
     labelled = {(c.value, column) for c in loaded.cautions if isinstance(c, BeyondScale) for column in c.columns}
-    odd = tuple(o for o in loaded.odd_values if not (o.kind is OddKind.MISSING_CODE and all(
+    odd = tuple(o for o in loaded.odd_values if not (o.kind in (OddKind.MISSING_CODE, OddKind.SET_APART) and all(
         (v, column) in labelled for v, column in zip(o.values, o.columns))))
     return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked),) if marked else ()) + tuple(
         Problem(ProblemKind(getattr(odd, "problem_kind", ProblemKind.VALUES_NOT_ANSWERS.value)), (), None,
@@ -1399,7 +1400,8 @@ def odd_values_named(loaded: LoadedData):
     except RowDataError as exc:  # a data row the reading already found to look like no one's answers: said first
         from cfa_tool.data.odd_values import OddKind
 
-        odd = next((o for o in loaded.odd_values if o.kind is not OddKind.MISSING_CODE and exc.row in o.rows), None)
+        odd = next((o for o in loaded.odd_values if o.kind not in (OddKind.MISSING_CODE, OddKind.SET_APART)
+                    and exc.row in o.rows), None)  # a row's finding, not a code's
         if odd is None:
             raise
         raise DataError(f"{odd.caution(loaded.source)} What to try first: {odd.advice()} "

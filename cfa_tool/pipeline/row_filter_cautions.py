@@ -26,9 +26,11 @@ def row_filter_problems(loaded: LoadedData, spec: Spec | None = None,
     filters = [f for f, _ in merged_exclusions(list(loaded.row_filters))]
     on_items = selections_on_items(filters, analysed)
     found: list[Problem] = []
+    said: set = set()
     for f in filters:
-        if f in on_items:
-            found.append(selected_on_item(f, spec, where))
+        if f in on_items and f.column not in said:  # an item's filters as one caution, at the place of its first
+            said.add(f.column)
+            found.append(selected_on_item([g for g in on_items if g.column == f.column], spec, where))
         for one in f.members or (f,):  # a list's values each as its own comparison (data.filters.SET_OPERATORS)
             if one.shared:
                 found.append(label_of_several_codes(one, where))
@@ -44,23 +46,34 @@ def selections_on_items(filters, analysed) -> tuple:
     return tuple(f for f in filters if f.column in analysed and f.dropped)
 
 
-def selected_on_item(f, spec: Spec | None, where: str = "") -> Problem:
-    """A row filter that selects rows by their answers to a model item: among the rows kept the item's answers
-    spread differently (a cut at one end narrows them), which changes its correlations with the other items and so
-    its loading, its factor's variance and the factor's reliability: range restriction, a textbook effect (Pearson
-    1903; Thorndike 1949, recalled from memory).  The rows are analysed as kept: the population may be meant so.
-    ``where``: the file, as :func:`row_filter_problems` takes it."""
+def selected_on_item(filters, spec: Spec | None, where: str = "") -> Problem:
+    """Row ``filters`` (one, or several on the same column) that select rows by their answers to a model item: among
+    the rows kept the item's answers spread differently (a cut at one end narrows them), which changes its
+    correlations with the other items and so its loading, its factor's variance and the factor's reliability: range
+    restriction, a textbook effect (Pearson 1903; Thorndike 1949, recalled from memory).  The rows are analysed as
+    kept: the population may be meant so.  Several filters of one item are one caution naming the range they keep
+    (data.filters.kept_range_words), as the methods paragraph names it (s21: one caution per filter).  ``where``: the
+    file, as :func:`row_filter_problems` takes it."""
+    from cfa_tool.data.filters import kept_range_words
+
+    filters = list(filters) if isinstance(filters, (list, tuple)) else [filters]
+    f = filters[0]
     item = f.column
+    dropped = sum(g.dropped for g in filters)
     factors = ([factor.name.text for factor in spec.factors if any(i.text == item for i in factor.indicators)]
                if spec is not None else [])
     of = " and ".join(printable(name) for name in factors)
     what = (f"the loading of '{printable(item)}', the variance of {of} and the reliability (omega) of {of}" if factors
             else f"the loadings of '{printable(item)}'")
+    several = len(filters) > 1
+    which = (f"Row filters {' and '.join(quoted_filter(g) for g in filters)}{where} select" if several else
+             f"Row filter {quoted_filter(f)}{where} selects")
+    kept = f", keeping those where {kept_range_words(filters)}" if several else ""
     return Problem(
-        ProblemKind.SELECTED_ON_ITEM, (), float(f.dropped),
-        f"Row filter {quoted_filter(f)}{where} selects rows by their answers to '{printable(item)}', "
-        f"{f'an item of {of}' if factors else 'one of the items analysed'}: it "
-        f"left out {f.dropped} row{'s' if f.dropped != 1 else ''} with an answer to it. Among the rows kept the "
+        ProblemKind.SELECTED_ON_ITEM, (), float(dropped),
+        f"{which} rows by their answers to '{printable(item)}', "
+        f"{f'an item of {of}' if factors else 'one of the items analysed'}{kept}: {'they' if several else 'it'} "
+        f"left out {dropped} row{'s' if dropped != 1 else ''} with an answer to it. Among the rows kept the "
         f"item's answers spread differently (a cut at one end narrows them), which changes its correlations with the "
         f"other items (range restriction, a textbook effect: Pearson 1903, Thorndike 1949; recalled from memory): "
         f"{what} describe the rows kept, not the sample, and usually come out smaller.",

@@ -679,14 +679,22 @@ def range_restriction_sentence(filters, analysed, factor_items: dict | None = No
         mine = [factor for factor, on in (factor_items or {}).items() if item in on]
         return f"an item of {_names(mine)}; " if mine else ""
 
-    parts = [f"{_name(f.column)} ({of(f.column)}{count_text(f.dropped)} row{'s' if f.dropped != 1 else ''} with an answer to it "
-             f"left out by {f.text!r})" for f in found]
+    from cfa_tool.data.filters import kept_range_words
+
+    def kept(item: str) -> str:  # the item's filters as the one range they keep, and the answers they left out
+        mine = [f for f in found if f.column == item]
+        dropped = sum(f.dropped for f in mine)
+        return (f"{kept_range_words(mine)} ({of(item)}{count_text(dropped)} row{'s' if dropped != 1 else ''} with an "
+                f"answer to it left out)")
+
+    parts = [kept(item) for item in items]
     many = len(items) > 1
     loading = f"the loading{'s' if many else ''} of {_names(items)}"
     what = (f"{loading}, the variance{'s' if len(factors) > 1 else ''} of {_names(factors)} and "
             f"{'their' if len(factors) > 1 else 'its'} reliability" if factors else
             f"{loading}, the variances of the factors {'they measure' if many else 'it measures'} and their reliability")
-    return _capital(f"{where}the rows were selected by their answers to {_list(parts)}, so "
+    return _capital(f"{where}the rows were selected by their answers to {_names(items)}, keeping those where "
+                    f"{_list(parts)}, so "
                     f"{'those items' if many else 'that item'} had a restricted range among the rows analysed (range "
                     f"restriction): {what} describe the rows kept, not the whole sample, and usually come out smaller.")
 

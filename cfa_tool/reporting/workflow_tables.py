@@ -1600,7 +1600,8 @@ def check_report(found) -> Report:
     counted = (Note(("A value that looks like no answer (named above) counts as an answer here, as the fit would "
                      "count it; marked as missing (", Command(f"{Option.MISSING_CODES}", "a code of no answer"),
                      ", or an empty cell), it would not."))
-               if any(p.kind is ProblemKind.VALUES_NOT_ANSWERS for p in found.problems) else None)
+               if any(p.kind in (ProblemKind.VALUES_NOT_ANSWERS, ProblemKind.CODES_SET_APART) for p in found.problems)
+               else None)
     table = _table("coverage", "Share of rows answering each model variable", [("Variable", "l"), ("Answered", "r")],
                    rows, counted, values=(["Variable", "Share answering"], [[k, v] for k, v in found.coverage.items()]))
     notice = T.problem_notice(found)

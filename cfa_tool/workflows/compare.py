@@ -168,7 +168,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                                               items={x for spec in specs for x in spec.observed_names}, names_row=names_row, first_data_row=first_data_row,
                                               rename=rename, chosen=chosen_columns(group, id_column, design=design),
                                               keeps_gaps=keeps_rows_with_gaps(fit_options.missing))
-    used = sorted({x for spec in specs for x in spec.observed_names})
+    used = list(dict.fromkeys(x for spec in specs for x in spec.observed_names))  # in the models' order, as named
     id_rows = rows_named(loaded, id_column, used, group)  # (ids, their column), which the cautions about rows give
     if design is not None:  # the weights parsed once, as fit parses them, for the check and the groups weighted out
         loaded = replace(loaded, weights=design_weights(loaded.frame, design, tuple(used), group, loaded.source))

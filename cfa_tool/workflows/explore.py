@@ -25,7 +25,6 @@ from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.assessment.admissibility import sample_size_problems
 from cfa_tool.numbers import user_number
 from cfa_tool.numerics.plain import journal_decimal
-from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Interface, Option, interface
@@ -460,88 +459,13 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float
     return UnlikeTheItems(tuple(groupings), tuple(off_scale), (low, high))
 
 
-#: a column's answer scale read with room for codes of no answer that the screening of odd values leaves alone
-#: (data.odd_values allows at most 2% of the answers outside a scale): the longest run of consecutive whole values
-#: holding at least this share of the column's answers, its other values at least :data:`SCALE_GAP` beyond the run's
-#: ends (8 'don't know' and 9 'refused' in 5% of the cells each beside answers 1 to 5).  A rule of thumb of this
-#: project, not a published one: it decides only which scale most columns share (so that a grade of 7 to 10 is not
-#: taken for an item on a scale of 1 to 9) and which values the caution of :func:`codes_beyond_the_scale` names
-SCALE_SHARE = 0.8
-#: the least distance of a value set aside from the run's end: 6 beside 1 to 5 may be the scale's own top answer
-SCALE_GAP = 2.0
-
-
-def beyond_the_run(x: np.ndarray) -> tuple[float, ...]:
-    """The values of one column (numbers, gaps aside) set aside from its answer scale by :data:`SCALE_SHARE` and
-    :data:`SCALE_GAP`: () when its values fill no such run (a measure of many values, a scale used in full)."""
-    x = x[np.isfinite(x)]
-    if not len(x):
-        return ()
-    values, counts = np.unique(x, return_counts=True)
-    whole = values == np.round(values)
-    from cfa_tool.data.odd_values import MAX_SCALE_POINTS
-
-    best = None  # (answers, first, last) of the run of consecutive whole values holding the most answers
-    start = 0
-    for k in range(1, len(values) + 1):
-        if k == len(values) or not (whole[k] and whole[k - 1] and values[k] - values[k - 1] == 1):
-            if whole[start] and 2 <= k - start <= MAX_SCALE_POINTS:
-                run = (int(counts[start:k].sum()), start, k - 1)
-                best = run if best is None or run[0] > best[0] else best
-            start = k
-    if best is None or best[0] < SCALE_SHARE * len(x) or best[0] == len(x):
-        return ()
-    low, high = values[best[1]], values[best[2]]
-    outside = [v for v in values if v < low or v > high]
-    if any((low - v if v < low else v - high) < SCALE_GAP for v in outside):
-        return ()  # a value next to the run: a scale's thinning tail, not codes
-    return tuple(float(v) for v in outside)
-
-
-def codes_beyond_the_scale(screened, names: tuple[str, ...]) -> tuple:
-    """A caution (assessment.admissibility.Problem, first in every view) when values set aside from the answer scale
-    of at least two of the items ``names`` (:func:`beyond_the_run`: 8 and 9 beyond answers 1 to 5, in 5% of the
-    cells) are explored as answers, the screening of odd values (``screened.odd_values``, which allows at most 2%)
-    having named none of them: codes of no answer, likely, which the correlations then read as the scale's highest
-    answers; with the option that reads them as no answer.  () otherwise."""
-    from cfa_tool.assessment.admissibility import Problem, ProblemKind
-
-    frame = screened.frame
-    named = {(c, v) for o in screened.odd_values for c, v in zip(o.columns, o.values)}
-    found: dict[float, list[str]] = {}
-    cells = 0
-    answered = 0
-    for name in names:
-        x = pd.to_numeric(frame[name], errors="coerce").to_numpy(dtype=float)
-        beyond = [v for v in beyond_the_run(x) if (name, v) not in named]
-        for v in beyond:
-            found.setdefault(v, []).append(name)
-        cells += int(np.isin(x, beyond).sum())
-        answered += int(np.isfinite(x).sum()) if beyond else 0
-    items = sorted({c for cs in found.values() for c in cs}, key=names.index)
-    if len(items) < 2:
-        return ()
-    values = sorted(found)
-    listed = " and ".join(f"{v:g}" for v in values) if len(values) <= 2 else (
-        ", ".join(f"{v:g}" for v in values[:-1]) + f" and {values[-1]:g}")
-    shown = ", ".join(printable(c) for c in items[:5]) + (f" and {len(items) - 5} more" if len(items) > 5 else "")
-    return (Problem(ProblemKind.VALUES_NOT_ANSWERS, (), float(cells),
-                    f"{listed} lie{'s' if len(values) == 1 else ''} apart from the run of answers in {len(items)} of "
-                    f"the {len(names)} items ({shown}; {cells} of their {answered} answers, "
-                    f"{100 * cells / max(answered, 1):.1f}%), as codes of no answer do ('don't know', 'refused'): they "
-                    f"are explored as answers, values beyond the scale's ends.",
-                    Note(("if they mean no answer, read them so with ",
-                          Command(Option.MISSING_CODES.given(",".join(f"{v:g}" for v in values)), "a list of codes"),
-                          "; if they are answers, nothing needs to change."))),)
-
-
 def _stray_values(frame: pd.DataFrame, columns: list[str], codes: tuple[float, ...]) -> dict[str, tuple[float, ...]]:
     """The values of each of ``columns`` that the screening of odd values (data.odd_values) takes for no answers,
     missing-value codes and values outside the answer scale of the other items (an 8 'don't know' among answers 1 to
     4), the ``codes`` given read as no answer first: they are no answers of the scale, so that the scale most columns
     share is 1 to 4 and a grade of 7 to 9 is not taken for an item (re-check s18: with --missing-codes 9 alone the
     items' 8 made the scale 1 to 8, and the grade column entered the items with 411 cells emptied by the 9)."""
-    from cfa_tool.data.odd_values import OddKind, odd_values
+    from cfa_tool.data.odd_values import OddKind, beyond_the_run, odd_values
 
     if not columns:
         return {}
@@ -550,7 +474,7 @@ def _stray_values(frame: pd.DataFrame, columns: list[str], codes: tuple[float, .
         numbers = numbers.mask(numbers.isin(codes))
     out: dict[str, tuple[float, ...]] = {}
     for odd in odd_values(numbers.reset_index(drop=True), columns):
-        if odd.kind in (OddKind.MISSING_CODE, OddKind.OUTSIDE_SCALE):
+        if odd.kind in (OddKind.MISSING_CODE, OddKind.OUTSIDE_SCALE, OddKind.SET_APART):
             for column, value in zip(odd.columns, odd.values):
                 out[column] = out.get(column, ()) + (value,)
     for column in columns:  # codes too many for the screening's 2% (8 and 9 in 5% of the cells): s20
@@ -958,7 +882,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
                                                      (id_column,) if isinstance(id_column, str) else (),
                                                      names_row=names_row, first_data_row=first_data_row, rename=rename)
     frame = loaded.frame
-    ids, _ = api.rows_named(loaded, id_column, chosen)  # the id column given (checked as fit checks it), or row names
+    # the id column given (checked as fit checks it), or row names, and the column a row filter names them by
+    ids, named_by = api.rows_named(loaded, id_column, chosen)
     rows_read = len(loaded.read_frame) if loaded.read_frame is not None else len(frame)
     empty = next((c for c in chosen if not frame[c].notna().any()), None)
     if empty is not None and not by_default:  # the reading of the items would say 'take it out of the model'
@@ -1006,10 +931,11 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     # values that look like no answers among the rows read (both halves of a split): first in every view
     # and items answered alike by all rows but a few, as fit names them (pipeline.inputs.few_answers_problems)
     screened = api.screened(frame, tuple(chosen), source, loaded.non_answers, loaded.cautions)
-    data_problems = (row_filter_problems(loaded, None, tuple(chosen))  # a selection on an item, as fit names it
-                     + api.copied_row_problems(screened, None, None, tuple(chosen), ids)  # rows pasted twice, as fit
-                     + api.odd_value_problems(screened) + codes_beyond_the_scale(screened, tuple(chosen))
-                     + api.few_answers_problems(tuple(chosen), {}, None, screened))
+    # the cautions every command composes once (pipeline.inputs.data_problems): a row filter's selection on an item,
+    # rows pasted twice, ids of several rows (s20: explore named copies but not repeated ids), codes kept in a filter's
+    # column, values that look like no answers (codes set apart from the scale among them) and items answered by few
+    data_problems = api.data_problems(replace(screened, row_filters=loaded.row_filters, read_frame=loaded.read_frame),
+                                      spec, ids=ids, names=tuple(chosen), id_column=named_by)
     halves = None
     if split is not None:
         split = options.seed(split)

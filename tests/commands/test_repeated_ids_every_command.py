@@ -99,3 +99,25 @@ def test_row_names_that_repeat_are_named_alike(tmp_path):
     assert first.kind is ProblemKind.REPEATED_IDS
     assert _flat(first.explanation).startswith(f"The row names of {path} give 5 rows 2 names that each name more "
                                                f"than one row: 'R0005' in rows 6, 7; 'R0021' in rows 22, 32, 42")
+
+
+def test_explore_names_the_repeated_ids_first_by_the_one_rule(tmp_path, capsys):
+    """s20: explore named copied rows by its own call and no repeated id; now it composes its cautions as every other
+    command does (pipeline.inputs.data_problems), the repeated ids among them."""
+    rows = _riders()
+    said = "The id column 'rider_id' gives 5 rows 2 ids that each name more than one row: 'R0005' in rows 6, 7; " \
+           "'R0021' in rows 22, 32, 42"
+    explored = cfa_tool.explore(rows, factors=3, replications=5, id_column="rider_id")
+    [caution] = [p for p in explored.data_problems if p.kind is ProblemKind.REPEATED_IDS]
+    assert explored.data_problems[0] is caution
+    assert said.replace("rows 6, 7", "index labels 4, 5").replace("rows 22, 32, 42", "index labels 20, 30, 40") \
+        in _flat(caution.explanation)  # a data frame's rows by their index labels
+    data = tmp_path / "riders.csv"
+    rows.to_csv(data, index=False)
+    assert main(["explore", "--data", str(data), "--factors", "3", "--replications", "5", "--id", "rider_id"]) == 0
+    out = _flat(capsys.readouterr().out.replace("┃", " "))  # the caution box's borders aside
+    assert said in out and out.index(said) < out.index("Items:")  # first, before the notes
+    # ids that each name one row: nothing said
+    plain = cfa_tool.explore(pd.read_csv(resource_dir("demo") / "rider_survey.csv"), factors=3, replications=5,
+                             id_column="rider_id")
+    assert not [p for p in plain.data_problems if p.kind is ProblemKind.REPEATED_IDS]

@@ -128,3 +128,41 @@ def test_an_id_column_applies_to_a_fit_without_its_diagnostics(hs_data):
     assert cfa_tool.fit(THREE_FACTORS, frame, id_column="code", diagnostics=False).n_obs == 301  # H&S 1939: 301 pupils
     with pytest.raises(OptionError, match="the id column 'cod' is not a column"):
         cfa_tool.fit(THREE_FACTORS, frame, id_column="cod", diagnostics=False)
+
+
+def test_ids_read_alike_by_the_repeated_id_caution_and_the_scores_file(tmp_path, hs_data):
+    """s21: one rule of an id's text (data.row_ids.id_text) for the caution and the scores file.  A data frame's id
+    column of numbers with a gap is float: 16-digit ids became '1.23456789012346e+15' (the 15 digits of '%.15g'), two
+    neighbours one id, so a false repeated-id caution and a scores file that merges back to nothing; 7.0 and 7 are the
+    same number, one id; '007' and 7 of a text file are two; an empty cell is no id.  Check: pandas' own merge of
+    the scores file back on the data (validate='one_to_one' refuses repeated keys) and the ids planted here."""
+    import cfa_tool
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    model = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+    frame = hs_data[[f"x{i}" for i in range(1, 10)]].reset_index(drop=True)
+    frame.insert(0, "pid", [1234567890123456.0 + k for k in range(len(frame))])
+    frame.loc[5, "pid"] = float("nan")  # a gap: the column stays float
+    scored = cfa_tool.scores(model, frame, id_column="pid")
+    assert not [p for p in scored.fit.problems if p.kind is ProblemKind.REPEATED_IDS]
+    path = tmp_path / "scores.csv"
+    path.write_text(scored.csv())
+    written = pd.read_csv(path, dtype={"pid": str})
+    assert written["pid"].iloc[0] == "1234567890123456" and written["pid"].iloc[1] == "1234567890123457"
+    keys = frame["pid"].map(lambda v: None if pd.isna(v) else str(int(v)))
+    merged = pd.DataFrame({"pid": keys}).dropna().merge(written.dropna(subset=["pid"]), on="pid",
+                                                        validate="one_to_one")
+    assert len(merged) == len(frame) - 1
+    # 7.0 and 7 (one number) name two rows: the caution says so, and the scores file writes both as '7'
+    frame["pid"] = [7.0, 7] + list(range(100, 100 + len(frame) - 2))
+    scored = cfa_tool.scores(model, frame.astype({"pid": object}), id_column="pid")
+    [caution] = [p for p in scored.fit.problems if p.kind is ProblemKind.REPEATED_IDS]
+    assert "'7' in index labels 0, 1" in str(caution.explanation)
+    assert [line.split(",")[0] for line in scored.csv().splitlines()[1:3]] == ["7", "7"]
+    # a text file's '007' and 7 are two ids, written as they stand
+    frame["pid"] = ["007", "7"] + [str(k) for k in range(100, 100 + len(frame) - 2)]
+    data = tmp_path / "ids.csv"
+    frame.to_csv(data, index=False)
+    scored = cfa_tool.scores(model, str(data), id_column="pid")
+    assert not [p for p in scored.fit.problems if p.kind is ProblemKind.REPEATED_IDS]
+    assert [line.split(",")[0] for line in scored.csv().splitlines()[1:3]] == ["007", "7"]

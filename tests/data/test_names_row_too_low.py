@@ -12,6 +12,7 @@ import pandas as pd
 import pytest
 
 import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.errors import CfaError
 from tests.conftest import run_cli
 
@@ -43,6 +44,8 @@ def test_a_row_of_answers_read_as_names_is_a_caution_first_naming_the_row_of_nam
     said = [p for p in result.data_problems if "looks like" in str(p.explanation) or "as a row of answers" in str(
         p.explanation)]
     assert len(said) == 1
+    # its own kind, not the 'values that look like no answers' of codes and totals rows (s20's leftover)
+    assert said[0].kind is ProblemKind.ANSWERS_READ_AS_NAMES
     text = " ".join(str(said[0].explanation).split())
     assert ("survey.csv: row 3, read as the column names as names_row=3 asks, holds numbers in 5 of its 6 cells, as a "
             "row of answers does, and row 2 above it holds a name in every one of those columns ('resp', 'q1', 'q2', "

@@ -18,6 +18,7 @@ import pandas as pd
 import pytest
 
 import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.readers import read_data
 from cfa_tool.errors import DataError, OptionError
@@ -190,10 +191,17 @@ def test_a_mistyped_first_row_of_data_that_skips_answers_is_a_caution(tmp_path):
         assert fitted.n_obs == len(frame) - 2  # pandas: the rows written, less the two skipped
         cautions = [p for p in fitted.problems if "left unread by first_data_row=5" in p.explanation]
         assert len(cautions) == 1, [p.explanation for p in fitted.problems]
-        assert cautions[0].explanation.startswith(f"{where}: {word}s 3-4, left unread by first_data_row=5, hold "
-                                                  "answers like the rows read")
+        assert str(cautions[0].explanation).startswith(f"{where}: {word}s 3-4, left unread by first_data_row=5, "
+                                                       "hold answers like the rows read")
         assert "so 2 rows of answers are not analysed" in cautions[0].explanation
-        assert cautions[0].advice.startswith(f"If the answers start at {word} 3, give first_data_row=3")
+        assert str(cautions[0].advice).startswith(f"If the answers start at {word} 3, read them from it "
+                                                  "(first_data_row=3)")
+        # its own kind, and the option apart: a manuscript's reader runs nothing (s20: named in plain text)
+        assert cautions[0].kind is ProblemKind.ANSWERS_LEFT_UNREAD
+        from cfa_tool.note_parts import WORDS
+
+        words = cautions[0].explanation.said(WORDS) + cautions[0].advice.said(WORDS)
+        assert "first_data_row" not in words and "above the first row of data, row 5" in words
         # the right row: the question texts skip quietly, as before
         right = cfa_tool.fit(MODEL + CODED, path, first_data_row=3)
         assert right.n_obs == len(frame)

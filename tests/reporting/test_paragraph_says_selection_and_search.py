@@ -18,6 +18,7 @@ from __future__ import annotations
 import pandas as pd
 
 import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.reporting.paragraph import (comparison_paragraph, invariance_paragraph, methods_paragraph,
                                           replication_paragraph)
 from cfa_tool.workflows.invariance import LEVELS, ScoreTests
@@ -39,9 +40,9 @@ def _left_out(frame: pd.DataFrame) -> int:
 
 def test_fit_says_the_selection_on_an_item(rider_demo, rider_model):
     text = _flat(methods_paragraph(cfa_tool.fit(rider_model, rider_demo, keep="on_time >= 3")))
-    assert (f"The rows were selected by their answers to on_time (an item of punctuality; {_left_out(rider_demo)} rows "
-            f"with an answer to it left out by 'on_time >= 3'), so that item {RESTRICTED}: the loading of on_time, the "
-            f"variance of punctuality and its reliability describe the rows kept") in text
+    assert (f"The rows were selected by their answers to on_time, keeping those where on_time was at least 3 (an item "
+            f"of punctuality; {_left_out(rider_demo)} rows with an answer to it left out), so that item {RESTRICTED}: "
+            f"the loading of on_time, the variance of punctuality and its reliability describe the rows kept") in text
     # right after the sentence that names the rows the filter chose
     assert text.index("those where on_time was at least 3") < text.index("The rows were selected") < \
         text.index("The scale of each factor")
@@ -50,16 +51,54 @@ def test_fit_says_the_selection_on_an_item(rider_demo, rider_model):
         assert "range restriction" not in methods_paragraph(cfa_tool.fit(rider_model, rider_demo, keep=keep))
 
 
+def test_several_filters_on_items_are_one_sentence_naming_each_items_kept_range(rider_demo, rider_model):
+    """s20: the sentence went filter by filter ('on_time (...left out by 'on_time > 1'), on_time (... 'on_time !=
+    3')'); now each item once, with the range its filters keep, the bounds the tightest ('>= 1' and '> 1': above 1)
+    and a filter that left out no answer ('<= 6' on answers 1 to 5) not named.  The rows left out counted with pandas."""
+    keep = ["on_time >= 1", "on_time <= 6", "on_time > 1", "on_time != 3", "on_time != 4", "short_wait < 5"]
+    fitted = cfa_tool.fit(rider_model, rider_demo, keep=keep)
+    text = _flat(methods_paragraph(fitted))
+    on_time = int(rider_demo["on_time"].isin([1, 3, 4]).sum())  # answers 1, 3 and 4 left out
+    kept = rider_demo[rider_demo["on_time"].isin([2, 5])]
+    short_wait = int((kept["short_wait"] >= 5).sum())  # then short_wait's answers of 5 and more among the rows left
+    assert (f"The rows were selected by their answers to on_time and short_wait, keeping those where on_time was above 1 "
+            f"and none of 3, 4 (an item of punctuality; {on_time} rows with an answer to it left out) and short_wait was "
+            f"below 5 (an item of punctuality; {short_wait} rows with an answer to it left out), so those items "
+            f"{RESTRICTED}") in text
+    assert text.count("range restriction") == 1  # one sentence
+    # the report's caution likewise: one per item, its filters named with the range they keep
+    cautions = [str(p.explanation) for p in fitted.problems if p.kind is ProblemKind.SELECTED_ON_ITEM]
+    assert len(cautions) == 2
+    assert cautions[0].startswith("Row filters 'on_time > 1' and 'on_time not in 3, 4' select rows by their answers to "
+                                  "'on_time', an item of punctuality, keeping those where on_time was above 1 and none "
+                                  f"of 3, 4: they left out {on_time} rows with an answer to it.")
+    assert cautions[1].startswith("Row filter 'short_wait < 5' selects rows by their answers to 'short_wait', an item "
+                                  f"of punctuality: it left out {short_wait} rows with an answer to it.")
+
+
+def test_the_kept_range_of_one_column_takes_the_tightest_bounds():
+    from cfa_tool.data.filters import kept_range_words, parse_filter
+
+    def words(*texts):
+        return kept_range_words([parse_filter(t) for t in texts])
+
+    assert words("x >= 2", "x <= 4") == "x was at least 2 and at most 4"
+    assert words("x >= 2", "x > 2", "x < 5", "x <= 5") == "x was above 2 and below 5"  # strict at the same value
+    assert words("x > 1", "x >= 3", "x <= 9", "x < 7") == "x was at least 3 and below 7"
+    assert words("x != 3") == "x was not 3"
+    assert words("x < 5", "x != 1", "x != 2") == "x was below 5 and none of 1, 2"
+
+
 def test_compare_and_invariance_say_it_too(rider_demo, rider_model):
     compared = _flat(comparison_paragraph(cfa_tool.compare([rider_model, rider_model + "covary on_time, short_wait\n"],
                                                            rider_demo, keep="on_time >= 3")))
     # the models may place the item differently: its factor is not named
-    assert (f"The rows were selected by their answers to on_time ({_left_out(rider_demo)} rows with an answer to it "
-            f"left out by 'on_time >= 3'), so that item {RESTRICTED}: the loading of on_time, the variances of the "
-            f"factors it measures and their reliability") in compared
+    assert (f"The rows were selected by their answers to on_time, keeping those where on_time was at least 3 "
+            f"({_left_out(rider_demo)} rows with an answer to it left out), so that item {RESTRICTED}: the loading of "
+            f"on_time, the variances of the factors it measures and their reliability") in compared
     ladder = _flat(invariance_paragraph(cfa_tool.invariance(rider_model, rider_demo, "district", keep="on_time >= 3"),
                                         LEVELS))
-    assert f"to on_time (an item of punctuality; {_left_out(rider_demo)} rows" in ladder and RESTRICTED in ladder
+    assert f"on_time was at least 3 (an item of punctuality; {_left_out(rider_demo)} rows" in ladder and RESTRICTED in ladder
 
 
 def test_the_paragraph_names_the_score_tests_of_the_partial_search():
@@ -99,8 +138,8 @@ def test_replicate_with_two_files_names_each_files_filter(rider_demo, rider_mode
             f"; {empty} row{'s' if empty != 1 else ''} with no value of on_time {'was' if empty == 1 else 'were'} "
             "left out" if empty else "")
         assert f"a {name} sample (N = {kept} {rows}" in text
-        assert (f"In the {name} sample, the rows were selected by their answers to on_time (an item of punctuality; "
-                f"{_left_out(frame)} rows with an answer to it") in text
+        assert (f"In the {name} sample, the rows were selected by their answers to on_time, keeping those where "
+                f"on_time was at least 3 (an item of punctuality; {_left_out(frame)} rows with an answer to it") in text
         caution = [p.explanation for p in rep.data_problems
                    if p.explanation.startswith(f"Row filter 'on_time >= 3' on the {name} data ({path}) selects rows")]
         assert len(caution) == 1 and f"it left out {_left_out(frame)} rows with an answer to it" in caution[0]
@@ -112,8 +151,8 @@ def test_replicate_with_two_files_names_each_files_filter(rider_demo, rider_mode
 def test_split_half_says_the_selection_too(rider_demo, rider_model):
     pair = split_half(rider_model, rider_demo, seed=5, keep="on_time >= 3")
     text = _flat(replication_paragraph(Replications(pair)))
-    assert (f"The rows were selected by their answers to on_time (an item of punctuality; {_left_out(rider_demo)} "
-            f"rows with an answer to it left out by 'on_time >= 3')") in text
+    assert (f"The rows were selected by their answers to on_time, keeping those where on_time was at least 3 (an item "
+            f"of punctuality; {_left_out(rider_demo)} rows with an answer to it left out)") in text
     assert f"selects rows by their answers to 'on_time'" in pair[0].data_problems[0].explanation
 
 
