@@ -228,9 +228,13 @@ class SampleDesign:
                                                       "one; Binder, 1983)" if c.cluster else "")
         after = ""
         if self.group_rows and self.shared_clusters:
+            # full-information ML: the rows' scores of their answered items, rows with gaps included
+            # (inference.robust_missing.groups_scores_meat, s21)
             after += (" The groups are domains that share clusters: their estimating equations are stacked, and each "
-                      "cluster's sums gather the contributions of its rows in every group, so the groups' estimates "
-                      "are correlated through their clusters (Binder, 1983).")
+                      "cluster's sums gather the contributions of its rows in every group"
+                      + (", rows with missing answers included (each row's score from the items it answered, valid "
+                         "when answers are missing at random)" if full_information else "")
+                      + ", so the groups' estimates are correlated through their clusters (Binder, 1983).")
         elif self.group_rows and (c.cluster or c.strata):
             after += (" The groups were taken as independent samples" + (", each with its own clusters" if c.cluster
                                                                           else "")
@@ -615,13 +619,14 @@ def shared_cluster(frame: pd.DataFrame, columns: DesignColumns, group: str | Non
 
 
 def refuse_shared_clusters(frame: pd.DataFrame, columns: DesignColumns | None, group: str | None, source: str,
-                           estimation: str, complete_rows: bool = False, continuous_instead: bool = False) -> None:
-    """A one-line error when groups share clusters (domains of one cluster sample) under an ``estimation`` (e.g.
-    'full-information ML') whose design-based errors are computed group by group, with the routes that do run: the
-    weights and strata without the clusters (what that gives up said), each group alone with its clusters (which
-    compares no groups), with ``complete_rows`` the complete rows only (what that assumes said), and with
-    ``continuous_instead`` (ordinal items) the items analysed as continuous by maximum likelihood, the route that
-    keeps the clusters of groups compared (new-user trial s18).  Never the refused route itself."""
+                           estimation: str, continuous_instead: bool = False) -> None:
+    """A one-line error when groups share clusters (domains of one cluster sample) under an ``estimation`` (the
+    least-squares fit of ordinal items, the one estimator left whose design-based errors are computed group by group:
+    continuous maximum likelihood takes such groups with complete rows and, since s21, with rows with gaps) with the
+    routes that do run: the weights and strata without the clusters (what that gives up said), each group alone with
+    its clusters (which compares no groups), and with ``continuous_instead`` the items analysed as continuous by
+    maximum likelihood, the route that keeps the clusters of groups compared, rows with gaps included (new-user trials
+    s18, s20).  Never the refused route itself."""
     if columns is None:
         return
     cluster = shared_cluster(frame, columns, group)
@@ -633,19 +638,15 @@ def refuse_shared_clusters(frame: pd.DataFrame, columns: DesignColumns | None, g
                    f"too small when they do)" if kept else
                    f"leave out {Option.CLUSTER} (the standard errors and tests then leave out that rows of one cluster "
                    f"answer alike, so they come out too small when they do)")
-        listwise = (f", or analyse the complete rows only ({Option.INCOMPLETE_ROWS.given('listwise')}; groups that "
-                    f"share clusters are analysed so), which assumes answers missing completely at random and leaves "
-                    f"out every row with a gap" if complete_rows else "")
-        if continuous_instead:
-            listwise += (f", or keep the clusters by analysing the items as continuous by maximum likelihood (leave out "
-                         f"{Option.ORDINAL} or the model's 'ordinal' statement, with "
-                         f"{Option.INCOMPLETE_ROWS.given('listwise')} when rows have gaps: groups that share clusters "
-                         f"are analysed so), which reads answers of few categories as numbers")
+        continuous = (f", or keep the clusters by analysing the items as continuous by maximum likelihood (leave out "
+                      f"{Option.ORDINAL} or the model's 'ordinal' statement: groups that share clusters are analysed "
+                      f"so, rows with gaps included by full-information ML), which reads answers of few categories as "
+                      f"numbers" if continuous_instead else "")
         raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' has rows in "
                         f"more than one group of '{printable(group)}' (the groups share clusters: domains of one "
                         f"sample), and {estimation} does not yet take clusters shared by groups into account: {without}, "
                         f"or fit each group alone with its clusters ({Option.KEEP.given(f'{printable(filter_column(group) or group)} = ...')}), "
-                        f"which compares no groups{listwise}")
+                        f"which compares no groups{continuous}")
 
 
 def refuse_lone_strata(design: RowDesign, columns: DesignColumns, source: str, why: str) -> None:

@@ -41,7 +41,7 @@ from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_f
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DOMINANT_SHARE, DOMINANT_TIMES, DesignColumns, apply_design, check_design,
                                          design_columns, design_summary, design_weights, few_clusters_advice,
-                                         refuse_shared_clusters, shared_cluster)
+                                         refuse_shared_clusters)
 from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, NotGiven, holds_summary, pasted_matrix, read_summary_file,
                                          summary_in_other_text, summary_moments)
 from cfa_tool import options as opt
@@ -444,9 +444,6 @@ def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None 
                                         values=values))]
     else:
         _check_group_column(spec, group)
-        if missing == MissingData.FULL_INFORMATION:
-            refuse_shared_clusters(frame, design, group, source, "full-information ML (rows with missing answers)",
-                                   complete_rows=True)
         groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing, weights)
         notes = _no_group_notes(no_group, group, len(frame)) + label_notes(frame, group)
     if design is not None:
@@ -695,7 +692,7 @@ def weighted_out_problems(loaded: LoadedData, group: str | None, design: DesignC
 
 
 def odd_value_problems(loaded: LoadedData, group: str | None = None, design: DesignColumns | None = None,
-                       helpers: tuple[str, ...] = (), listwise: bool = False, shared_clusters: bool = False) -> tuple:
+                       helpers: tuple[str, ...] = (), listwise: bool = False) -> tuple:
     """Values in the item columns that look like no answers (a missing-value code, a totals row), and those the
     file marks as no answer and that were read as missing when rows leave the analysis because of them
     (data.non_answers.non_answer_caution; ``listwise``: rows with gaps are left out), as cautions that come first in
@@ -713,11 +710,10 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
                 + (group_case_problems(loaded.frame, group) if group is not None else ())
                 + tuple(p for part, unit, name in design_columns if name is not None
                         for p in group_case_problems(loaded.frame, name, part, unit))
-                + odd_value_problems(loaded, helpers=helpers, listwise=listwise, shared_clusters=listwise and (
-                    design is not None and shared_cluster(loaded.frame, design, group) is not None)))
+                + odd_value_problems(loaded, helpers=helpers, listwise=listwise))
 
     items = (tuple(loaded.items.names) + tuple(helpers)) if loaded.items is not None else tuple(loaded.frame.columns)
-    marked = non_answer_caution(loaded.non_answers, loaded.source, items, loaded.frame, listwise, shared_clusters)
+    marked = non_answer_caution(loaded.non_answers, loaded.source, items, loaded.frame, listwise)
     # a code already named as labelled beyond the scale of the same items is not named again as a missing-value code
     from cfa_tool.data.non_answers import BeyondScale
     from cfa_tool.data.odd_values import OddKind
@@ -1652,19 +1648,18 @@ def design_problems(design, free: int, thresholds: int = 0, dominant=None, robus
 def shared_clusters_route(ordinal: bool) -> Note:
     """The route that takes clusters shared by groups (domains of one cluster sample) into account, for the run's
     estimator: the one rule the advice follows, as :func:`moments_for` and :func:`ordinal_moments_for` refuse them
-    (data.sample_design.refuse_shared_clusters): continuous items by maximum likelihood with complete rows take
-    them; full-information ML takes them only from the complete rows; the least-squares fit of ordinal items does
-    not, so its advice never sends the user to the clusters it refuses (new-user trial s20)."""
-    complete = ("(with complete rows only when rows have gaps", Command(f", {Option.INCOMPLETE_ROWS.given('listwise')}"),
-                ")")
+    (data.sample_design.refuse_shared_clusters): continuous items by maximum likelihood take them, with complete
+    rows and with rows with gaps (full-information ML, s21); the least-squares fit of ordinal items does not, so its
+    advice never sends the user to the clusters it refuses (new-user trial s20)."""
+    kept = "(rows with gaps kept by full-information ML)"
     if not ordinal:
         return Note((Command(f"give them with {Option.CLUSTER}", "give those clusters too"),
-                     ": groups that share clusters are then analysed as domains of one sample ") + complete)
+                     f": groups that share clusters are then analysed as domains of one sample {kept}"))
     return Note(("the fit of ordinal items does not yet take clusters shared by groups into account",
                  Command(f" (it refuses {Option.CLUSTER} then)"),
                  "; to keep them, analyse the items as continuous by maximum likelihood",
                  Command(f" (leave out {Option.ORDINAL} or the model's 'ordinal' statement, give {Option.CLUSTER})"),
-                 ", which reads answers of few categories as numbers ") + complete)
+                 f", which reads answers of few categories as numbers {kept}"))
 
 
 def extreme_scaling(robust) -> str:
