@@ -58,15 +58,17 @@ def _schools(seed: int, schools: int = 24, per_grade: int = 8, gaps: float = 0.0
 LABEL = re.compile(r"(\w+)\(([^)]*)\)(?: \[(.+)\])?$")
 
 
-def _group_moments(labels: list[str], theta: np.ndarray, group: str, items: tuple[str, ...]):
+def _group_moments(labels: list[str], theta: np.ndarray, group: str, items: tuple[str, ...],
+                   common: tuple[str, ...] = ()):
     """(mu, Sigma) of a one-factor model in ``group`` from the parameters by their labels (marker the first item,
-    factor mean 0 unless a 'mean(f)' of the group is free): Sigma = phi l l' + diag(psi), mu = nu + l kappa."""
+    factor mean 0 unless a 'mean(f)' of the group is free): Sigma = phi l l' + diag(psi), mu = nu + l kappa;
+    ``common``: the kinds held equal across groups, labelled with the first group only."""
     p = len(items)
     lam, psi, nu = np.ones(p), np.zeros(p), np.zeros(p)
     phi = kappa = 0.0
     for label, value in zip(labels, theta):
         kind, inside, where = LABEL.match(label).groups()
-        if where is not None and where != group:
+        if where is not None and where != group and kind not in common:
             continue
         names = [s.strip() for s in inside.split(",")]
         if kind == "loading":
@@ -310,3 +312,40 @@ def test_standard_errors_track_the_spread_of_estimates_under_cluster_sampling_wi
     assert np.mean(apart_se, axis=0)[2] / spread[2] > 1.4  # the grades apart: the mean difference's SE far too large
     rejected = int(np.sum(np.array(p_values) < 0.05))
     assert stats.binom.ppf(0.0005, REPLICATIONS, 0.05) <= rejected <= stats.binom.ppf(0.9995, REPLICATIONS, 0.05)
+
+
+def test_design_based_score_tests_join_the_groups_sharing_clusters():
+    """The modification indices of full-information ML under the design are Satorra's (1989) generalized score
+    tests, the score s of the freed parameter over L B L', L = (-A_gt A_tt^-1, 1) (assessment.robust_scores): summed
+    by hand here with B the stacked groups' meat over the shared schools (so a residual covariance of grade 6 feels
+    grade 5's rows through the loadings and intercepts held equal and the schools they share).  The tool takes L from
+    the observed information in the moments without the curvature of the moments in the parameters (the same
+    convention with the grades apart differs from this exact form by up to 10% in this design), so the check allows
+    5%; the grades taken apart (each grade's schools its own) move these two tests by more than 20%."""
+    data = _schools(24)
+    model = "factor f: x1, x2, x3, x4\ninvariance scalar\n"
+    result = cfa_tool.fit(model, data, group="grade", weights="w", cluster="school", strata="region")
+    labels, theta = list(result.parameter_labels), np.asarray(result.theta)
+    tool = {(tuple(row["variables"]), row["group"]): row["index"] for row in result.modification_indices.dicts()
+            if row["kind"] == "residual_covariance"}
+    q = len(theta)
+    for a, b in ((1, 3), (2, 3)):
+        def points(t, g, a=a, b=b):
+            mu, sigma = _group_moments(labels, t[:-1], g, ITEMS, common=("loading", "intercept"))
+            if g == "6":
+                sigma = sigma.copy()
+                sigma[a, b] += t[-1]
+                sigma[b, a] += t[-1]
+            return mu, sigma
+
+        A, B, scores = _hand(data, labels, np.append(theta, 0.0), points=points)
+        assert np.abs(scores[:, :q].sum(axis=0)).max() < 1e-6  # the restricted estimates: their scores sum to 0
+        L = np.append(-A[q, :q] @ np.linalg.inv(A[:q, :q]), 1.0)
+        score = scores[:, q].sum()
+        shared = score ** 2 / (L @ B @ L)
+        apart_units = data.assign(school=data["grade"] + data["school"])
+        _, B_apart, _ = _hand(apart_units, labels, np.append(theta, 0.0), points=points)
+        apart = score ** 2 / (L @ B_apart @ L)
+        found = tool[((ITEMS[a], ITEMS[b]), "6")]
+        assert found == pytest.approx(shared, rel=0.05)
+        assert abs(apart - shared) > 0.2 * shared
