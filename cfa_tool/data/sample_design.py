@@ -15,7 +15,6 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.numbers import count_text
-from cfa_tool.data.filter_text import filter_column
 from cfa_tool.data.kept_rows import row_of
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.options import Option
@@ -616,37 +615,6 @@ def shared_cluster(frame: pd.DataFrame, columns: DesignColumns, group: str | Non
                          ).drop_duplicates()
     shared = pairs["cluster"].duplicated()
     return pairs["cluster"][shared.to_numpy()].iloc[0] if shared.any() else None
-
-
-def refuse_shared_clusters(frame: pd.DataFrame, columns: DesignColumns | None, group: str | None, source: str,
-                           estimation: str, continuous_instead: bool = False) -> None:
-    """A one-line error when groups share clusters (domains of one cluster sample) under an ``estimation`` (the
-    least-squares fit of ordinal items, the one estimator left whose design-based errors are computed group by group:
-    continuous maximum likelihood takes such groups with complete rows and, since s21, with rows with gaps) with the
-    routes that do run: the weights and strata without the clusters (what that gives up said), each group alone with
-    its clusters (which compares no groups), and with ``continuous_instead`` the items analysed as continuous by
-    maximum likelihood, the route that keeps the clusters of groups compared, rows with gaps included (new-user trials
-    s18, s20).  Never the refused route itself."""
-    if columns is None:
-        return
-    cluster = shared_cluster(frame, columns, group)
-    if cluster is not None:
-        kept = " and ".join(f"the {what}" for what, name in (("weights", columns.weights), ("strata", columns.strata))
-                            if name is not None)
-        without = (f"leave out {Option.CLUSTER} to keep {kept} (the groups are then taken as independent samples, and "
-                   f"the standard errors and tests leave out that rows of one cluster answer alike, so they come out "
-                   f"too small when they do)" if kept else
-                   f"leave out {Option.CLUSTER} (the standard errors and tests then leave out that rows of one cluster "
-                   f"answer alike, so they come out too small when they do)")
-        continuous = (f", or keep the clusters by analysing the items as continuous by maximum likelihood (leave out "
-                      f"{Option.ORDINAL} or the model's 'ordinal' statement: groups that share clusters are analysed "
-                      f"so, rows with gaps included by full-information ML), which reads answers of few categories as "
-                      f"numbers" if continuous_instead else "")
-        raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' has rows in "
-                        f"more than one group of '{printable(group)}' (the groups share clusters: domains of one "
-                        f"sample), and {estimation} does not yet take clusters shared by groups into account: {without}, "
-                        f"or fit each group alone with its clusters ({Option.KEEP.given(f'{printable(filter_column(group) or group)} = ...')}), "
-                        f"which compares no groups{continuous}")
 
 
 def refuse_lone_strata(design: RowDesign, columns: DesignColumns, source: str, why: str) -> None:

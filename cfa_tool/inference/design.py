@@ -105,6 +105,20 @@ class GroupsMeat:
             return (sum(left) * self.factors[0][:, None]).T @ sum(right) / self.total
         return sum((y * f[:, None]).T @ x for y, x, f in zip(left, right, self.factors)) / self.total
 
+    def matrix(self) -> np.ndarray:
+        """Omega itself, every group's contributions stacked (sum_g k_g square): the blocks between groups zero
+        unless they share clusters."""
+        sizes = [z.shape[1] for z in self.sums]
+        ends = np.cumsum(sizes)
+        out = np.zeros((int(ends[-1]), int(ends[-1])))
+        for g, (z, f) in enumerate(zip(self.sums, self.factors)):
+            rows = slice(int(ends[g] - sizes[g]), int(ends[g]))
+            others = range(len(self.sums)) if self.shared else (g,)
+            for h in others:
+                cols = slice(int(ends[h] - sizes[h]), int(ends[h]))
+                out[rows, cols] = (z * f[:, None]).T @ self.sums[h] / self.total
+        return out
+
     def cross_diagonal(self, projected: list[np.ndarray]) -> np.ndarray:
         """The diagonal of :meth:`cross` of ``projected`` with itself, without the matrix."""
         if self.shared:
@@ -174,6 +188,23 @@ def ordinal_design_covariance(moments):
         apart = np.einsum("ij,ij->j", z * f[:, None], z) / total
     return replace(moments, joint_gamma=joint, gamma=joint[k:, k:], influence=None, weight_variances=apart,
                    dominant_cluster=dominant_cluster(moments.influence, design))
+
+
+def ordinal_domains(moments: list) -> list:
+    """Each group's ``moments`` (OrdinalMoments under a sampling design, carrying their rows' influence functions)
+    with the design-based covariance of its thresholds and correlations (:func:`ordinal_design_covariance`), and,
+    when the groups share clusters (domains of one cluster sample), the covariance of all groups' statistics
+    stacked: the groups' influence functions joined as the rows' scores of full-information ML are
+    (:func:`groups_meat`: each cluster's sums gather its rows of every group; Binder 1983; Skinner, Holt & Smith
+    1989, recalled from memory), attached to every group as ``domains_gamma``."""
+    from dataclasses import replace
+
+    designs = [m.design for m in moments]
+    joined = None
+    if len(moments) > 1 and all(m.influence is not None for m in moments) and shared_clusters(designs):
+        joined = groups_meat([m.influence for m in moments], designs).matrix()
+    covariances = [ordinal_design_covariance(m) for m in moments]
+    return covariances if joined is None else [replace(m, domains_gamma=joined) for m in covariances]
 
 
 def dominant_cluster(contributions: np.ndarray, design):
