@@ -35,9 +35,10 @@ from cfa_tool.data.sample_design import joint_design, shared_clusters
 from cfa_tool.method import WeightKind
 
 
-def _unit_sums(contributions: np.ndarray, design) -> tuple[np.ndarray, np.ndarray, float]:
+def _unit_sums(contributions: np.ndarray, design, rows: slice | None = None) -> tuple[np.ndarray, np.ndarray, float]:
     """(z, f, N) with design_meat = (z f)' z / N: z the sampling units' weighted sums of the contributions,
-    centred as the design says, and f each unit's factor."""
+    centred as the design says, and f each unit's factor.  ``rows``: the design's rows the contributions are of (a
+    group's within the joint design of groups that share clusters; the other rows contribute zero), under clusters."""
     if design is None:
         return contributions, np.ones(len(contributions)), float(len(contributions))
     w = design.weights
@@ -47,6 +48,8 @@ def _unit_sums(contributions: np.ndarray, design) -> tuple[np.ndarray, np.ndarra
             return contributions * np.sqrt(w)[:, None], np.ones(len(w)), total
         return contributions * w[:, None], np.ones(len(w)), total
     unit_of_row, stratum_of_unit = design.sampling_units()
+    if rows is not None:
+        unit_of_row, w = unit_of_row[rows], w[rows]
     sums = np.zeros((len(stratum_of_unit), contributions.shape[1]))
     np.add.at(sums, unit_of_row, contributions * w[:, None])
     counts = np.bincount(stratum_of_unit)
@@ -135,13 +138,9 @@ def groups_meat(contributions: list[np.ndarray], designs: list) -> GroupsMeat:
     total = sum(totals)
     scaled = [c * (total / t) for c, t in zip(contributions, totals)]
     if len(designs) > 1 and shared_clusters(designs):
-        joint = joint_design(designs)
+        joint = joint_design(designs)  # shared: every design has clusters
         starts = np.cumsum([0] + [len(c) for c in scaled])
-        parts = []
-        for g, c in enumerate(scaled):
-            embedded = np.zeros((int(starts[-1]), c.shape[1]))
-            embedded[starts[g]:starts[g + 1]] = c
-            parts.append(_unit_sums(embedded, joint))
+        parts = [_unit_sums(c, joint, slice(int(starts[g]), int(starts[g + 1]))) for g, c in enumerate(scaled)]
         return GroupsMeat(tuple(z for z, _, _ in parts), tuple(f for _, f, _ in parts), total, True)
     parts = [_unit_sums(c, d) for c, d in zip(scaled, designs)]
     return GroupsMeat(tuple(z for z, _, _ in parts), tuple(f for _, f, _ in parts), total, False)
