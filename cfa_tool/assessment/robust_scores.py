@@ -62,7 +62,6 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
     cross = np.zeros((q + k, q))
     diagonal = np.zeros(k)
     bread = None if complete else np.zeros((q + k, q + k))  # L comes from it (with complete rows: the information)
-    meat = np.zeros((q + k, q + k))
     weighted = []
     if complete and sandwich is None:
         sandwich = moment_sandwich(model, theta, likelihood)
@@ -74,7 +73,7 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
             delta, V = sandwich.blocks[g]
             extra = np.vstack([c_mu.T, c_sigma[:, I, J].T]) if likelihood.means else c_sigma[:, I, J].T
         else:  # means, vech: the layout of inference.robust_missing
-            from cfa_tool.inference.robust_missing import _model_directions, _moment_directions, group_meat
+            from cfa_tool.inference.robust_missing import _model_directions, _moment_directions
 
             delta = _model_directions(likelihood, theta, g)
             extra = np.vstack([c_mu.T, c_sigma[:, I, J].T])
@@ -91,9 +90,13 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
             weighted.append(w * VX)
         else:
             bread += w * X.T @ observed @ X
-            meat += w * X.T @ group_meat(likelihood, g, mats) @ X  # inference.robust_missing's per-group B
+            weighted.append(w * X)
     if complete:
         meat = sandwich.omega.middle(weighted)
+    else:  # inference.robust_missing's B of the stacked groups' scores (blocks between groups sharing clusters)
+        from cfa_tool.inference.robust_missing import groups_scores_meat, implied_points
+
+        meat = groups_scores_meat(likelihood, implied_points(likelihood, theta)).middle(weighted)
     K = cross[q:] @ scaled_inverse(cross[:q])  # A_gt A_tt^-1 of the index's information
     normal = diagonal - np.einsum("cq,cq->c", K, cross[q:])
     if not complete:  # L from the observed information

@@ -587,12 +587,12 @@ def rows_lost(found: tuple[NonAnswer, ...], frame: pd.DataFrame, items: Iterable
 
 
 def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items: Iterable[str] | None, frame: pd.DataFrame,
-                       listwise: bool = False, shared_clusters: bool = False) -> tuple[str, Text] | None:
+                       listwise: bool = False) -> tuple[str, Text] | None:
     """The one rule that makes values read as no answer (the data summary's note, :func:`non_answer_note`) a
     caution first in every view: when rows leave the analysis because of them (:func:`rows_lost`: ``listwise``
     deletion, or a row left with no answer to any item), the caution (one line) says how many rows and what was
-    read, with its advice; None when every row stays (full information keeps a row with gaps).  ``shared_clusters``:
-    the groups share clusters, which full-information ML cannot yet take into account (its advice says so)."""
+    read, with its advice; None when every row stays (full information keeps a row with gaps), which it advises
+    with listwise deletion (groups that share clusters too: full-information ML takes their clusters)."""
     said = _said(found, source, items)
     lost = rows_lost(found, frame, items, listwise) if said is not None else 0
     if not lost:
@@ -601,14 +601,8 @@ def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items: Iterabl
            "no answer to any item was left in them")
     caution = (f"{lost} row{'s' if lost != 1 else ''} left the analysis because values read as no answer emptied "
                f"{'their cells' if lost != 1 else 'its cells'} ({why}). {said[0]}")
-    # groups that share clusters: full-information ML runs without the clusters only (sample_design.refuse_shared_clusters)
     if not listwise:
         keep = ""
-    elif shared_clusters:
-        keep = Note((" To use the rows' other answers, ",
-                     Command(f"leave out {Option.INCOMPLETE_ROWS.given('listwise')} and {Option.CLUSTER}",
-                             "fit them by full-information ML without the clusters"),
-                     " (the standard errors and tests then leave out that rows of one cluster answer alike)."))
     else:
         keep = Note((" To use the rows' other answers, ", Command(f"leave out {Option.INCOMPLETE_ROWS.given('listwise')}",
                                                                    "fit them by full-information ML"), "."))

@@ -84,6 +84,11 @@ class OrdinalMoments:
     weight_variances: np.ndarray | None = field(repr=False, default=None)
     #: under clusters: the cluster holding the largest share of the statistics' design effect (DominantCluster)
     dominant_cluster: object | None = field(repr=False, default=None)
+    #: groups that share clusters (domains of one cluster sample): the covariance of every group's statistics
+    #: (thresholds, then correlations) stacked over the groups, N/N_g Gamma_g in group g's own block and the blocks
+    #: between groups from the clusters they share (inference.design.ordinal_domains); the same matrix in every
+    #: group's moments; None for one group or independent groups
+    domains_gamma: np.ndarray | None = field(repr=False, default=None)
 
     @property
     def pairwise(self) -> bool:

@@ -15,7 +15,6 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.numbers import count_text
-from cfa_tool.data.filter_text import filter_column
 from cfa_tool.data.kept_rows import row_of
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.options import Option
@@ -228,9 +227,13 @@ class SampleDesign:
                                                       "one; Binder, 1983)" if c.cluster else "")
         after = ""
         if self.group_rows and self.shared_clusters:
+            # full-information ML: the rows' scores of their answered items, rows with gaps included
+            # (inference.robust_missing.groups_scores_meat, s21)
             after += (" The groups are domains that share clusters: their estimating equations are stacked, and each "
-                      "cluster's sums gather the contributions of its rows in every group, so the groups' estimates "
-                      "are correlated through their clusters (Binder, 1983).")
+                      "cluster's sums gather the contributions of its rows in every group"
+                      + (", rows with missing answers included (each row's score from the items it answered, valid "
+                         "when answers are missing at random)" if full_information else "")
+                      + ", so the groups' estimates are correlated through their clusters (Binder, 1983).")
         elif self.group_rows and (c.cluster or c.strata):
             after += (" The groups were taken as independent samples" + (", each with its own clusters" if c.cluster
                                                                           else "")
@@ -612,40 +615,6 @@ def shared_cluster(frame: pd.DataFrame, columns: DesignColumns, group: str | Non
                          ).drop_duplicates()
     shared = pairs["cluster"].duplicated()
     return pairs["cluster"][shared.to_numpy()].iloc[0] if shared.any() else None
-
-
-def refuse_shared_clusters(frame: pd.DataFrame, columns: DesignColumns | None, group: str | None, source: str,
-                           estimation: str, complete_rows: bool = False, continuous_instead: bool = False) -> None:
-    """A one-line error when groups share clusters (domains of one cluster sample) under an ``estimation`` (e.g.
-    'full-information ML') whose design-based errors are computed group by group, with the routes that do run: the
-    weights and strata without the clusters (what that gives up said), each group alone with its clusters (which
-    compares no groups), with ``complete_rows`` the complete rows only (what that assumes said), and with
-    ``continuous_instead`` (ordinal items) the items analysed as continuous by maximum likelihood, the route that
-    keeps the clusters of groups compared (new-user trial s18).  Never the refused route itself."""
-    if columns is None:
-        return
-    cluster = shared_cluster(frame, columns, group)
-    if cluster is not None:
-        kept = " and ".join(f"the {what}" for what, name in (("weights", columns.weights), ("strata", columns.strata))
-                            if name is not None)
-        without = (f"leave out {Option.CLUSTER} to keep {kept} (the groups are then taken as independent samples, and "
-                   f"the standard errors and tests leave out that rows of one cluster answer alike, so they come out "
-                   f"too small when they do)" if kept else
-                   f"leave out {Option.CLUSTER} (the standard errors and tests then leave out that rows of one cluster "
-                   f"answer alike, so they come out too small when they do)")
-        listwise = (f", or analyse the complete rows only ({Option.INCOMPLETE_ROWS.given('listwise')}; groups that "
-                    f"share clusters are analysed so), which assumes answers missing completely at random and leaves "
-                    f"out every row with a gap" if complete_rows else "")
-        if continuous_instead:
-            listwise += (f", or keep the clusters by analysing the items as continuous by maximum likelihood (leave out "
-                         f"{Option.ORDINAL} or the model's 'ordinal' statement, with "
-                         f"{Option.INCOMPLETE_ROWS.given('listwise')} when rows have gaps: groups that share clusters "
-                         f"are analysed so), which reads answers of few categories as numbers")
-        raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' has rows in "
-                        f"more than one group of '{printable(group)}' (the groups share clusters: domains of one "
-                        f"sample), and {estimation} does not yet take clusters shared by groups into account: {without}, "
-                        f"or fit each group alone with its clusters ({Option.KEEP.given(f'{printable(filter_column(group) or group)} = ...')}), "
-                        f"which compares no groups{listwise}")
 
 
 def refuse_lone_strata(design: RowDesign, columns: DesignColumns, source: str, why: str) -> None:

@@ -45,15 +45,19 @@ class GroupStatistics:
     weights: np.ndarray  # the diagonal of W_g
     gamma: np.ndarray  # asymptotic covariance of sqrt(N_g)(s_g - sigma_g)
     n_obs: int
+    #: groups that share clusters: the covariance of every group's statistics stacked (the same in every group,
+    #: data.polychoric.OrdinalMoments.domains_gamma), which :meth:`OrdinalLeastSquares.stacked` returns
+    domains_gamma: np.ndarray | None = None
 
 
 def group_statistics(values: np.ndarray, gamma: np.ndarray, n_obs: int, diagonal: bool,
-                     variances: np.ndarray | None = None) -> GroupStatistics:
+                     variances: np.ndarray | None = None, domains_gamma: np.ndarray | None = None) -> GroupStatistics:
     """Statistics with diagonal weights 1 / diag(Gamma) (``diagonal``) or unit weights; ``variances``, when given,
     replace diag(Gamma) in the weights (under clusters or strata: the statistics' variances with the rows taken as
-    independent, so that the design changes the standard errors and tests but not the estimates)."""
+    independent, so that the design changes the standard errors and tests but not the estimates);
+    ``domains_gamma``: of groups that share clusters, :attr:`GroupStatistics.domains_gamma`."""
     weights = 1.0 / (np.diag(gamma) if variances is None else variances) if diagonal else np.ones(len(values))
-    return GroupStatistics(values, weights, gamma, n_obs)
+    return GroupStatistics(values, weights, gamma, n_obs, domains_gamma)
 
 
 @dataclass(frozen=True, eq=False)
@@ -403,11 +407,15 @@ class OrdinalLeastSquares:
 
     # -- stacked pieces for robust inference
     def stacked(self, theta: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-        """(D of shape (q, k), residuals e, weights diag(N_g/N W_g), Gamma blockdiag(N/N_g Gamma_g)) over all groups."""
+        """(D of shape (q, k), residuals e, weights diag(N_g/N W_g), Gamma blockdiag(N/N_g Gamma_g)) over all groups;
+        of groups that share clusters Gamma has blocks between the groups too (:attr:`GroupStatistics.domains_gamma`,
+        and :meth:`gamma_blocks` is None)."""
         moments = [self._latent_moments(theta, g) for g in range(len(self.weights))]
         D = np.hstack([self._jacobian(theta, g, m) for g, m in enumerate(moments)])
         e = np.concatenate([self.targets[g] - self._statistics(m) for g, m in enumerate(moments)])
         w = np.concatenate([share * wg for share, wg in zip(self.weights, self.w)])
+        if self.groups[0].domains_gamma is not None:
+            return D, e, w, self.groups[0].domains_gamma
         gammas = [g.gamma / share for g, share in zip(self.groups, self.weights)]
         gamma = gammas[0]
         if len(gammas) > 1:
@@ -420,6 +428,11 @@ class OrdinalLeastSquares:
         sizes = [len(t) for t in self.targets]
         ends = np.cumsum(sizes)
         return [slice(int(end - size), int(end)) for size, end in zip(sizes, ends)]
+
+    def gamma_blocks(self) -> list[slice] | None:
+        """The groups' slices of the statistics over which the stacked Gamma is block-diagonal (independent groups),
+        or None when the groups share clusters and Gamma has blocks between them."""
+        return None if self.groups[0].domains_gamma is not None else self.group_slices()
 
 
 class MixedLeastSquares(OrdinalLeastSquares):

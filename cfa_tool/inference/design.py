@@ -35,9 +35,10 @@ from cfa_tool.data.sample_design import joint_design, shared_clusters
 from cfa_tool.method import WeightKind
 
 
-def _unit_sums(contributions: np.ndarray, design) -> tuple[np.ndarray, np.ndarray, float]:
+def _unit_sums(contributions: np.ndarray, design, rows: slice | None = None) -> tuple[np.ndarray, np.ndarray, float]:
     """(z, f, N) with design_meat = (z f)' z / N: z the sampling units' weighted sums of the contributions,
-    centred as the design says, and f each unit's factor."""
+    centred as the design says, and f each unit's factor.  ``rows``: the design's rows the contributions are of (a
+    group's within the joint design of groups that share clusters; the other rows contribute zero), under clusters."""
     if design is None:
         return contributions, np.ones(len(contributions)), float(len(contributions))
     w = design.weights
@@ -47,6 +48,8 @@ def _unit_sums(contributions: np.ndarray, design) -> tuple[np.ndarray, np.ndarra
             return contributions * np.sqrt(w)[:, None], np.ones(len(w)), total
         return contributions * w[:, None], np.ones(len(w)), total
     unit_of_row, stratum_of_unit = design.sampling_units()
+    if rows is not None:
+        unit_of_row, w = unit_of_row[rows], w[rows]
     sums = np.zeros((len(stratum_of_unit), contributions.shape[1]))
     np.add.at(sums, unit_of_row, contributions * w[:, None])
     counts = np.bincount(stratum_of_unit)
@@ -105,6 +108,20 @@ class GroupsMeat:
             return (sum(left) * self.factors[0][:, None]).T @ sum(right) / self.total
         return sum((y * f[:, None]).T @ x for y, x, f in zip(left, right, self.factors)) / self.total
 
+    def matrix(self) -> np.ndarray:
+        """Omega itself, every group's contributions stacked (sum_g k_g square): the blocks between groups zero
+        unless they share clusters."""
+        sizes = [z.shape[1] for z in self.sums]
+        ends = np.cumsum(sizes)
+        out = np.zeros((int(ends[-1]), int(ends[-1])))
+        for g, (z, f) in enumerate(zip(self.sums, self.factors)):
+            rows = slice(int(ends[g] - sizes[g]), int(ends[g]))
+            others = range(len(self.sums)) if self.shared else (g,)
+            for h in others:
+                cols = slice(int(ends[h] - sizes[h]), int(ends[h]))
+                out[rows, cols] = (z * f[:, None]).T @ self.sums[h] / self.total
+        return out
+
     def cross_diagonal(self, projected: list[np.ndarray]) -> np.ndarray:
         """The diagonal of :meth:`cross` of ``projected`` with itself, without the matrix."""
         if self.shared:
@@ -121,13 +138,9 @@ def groups_meat(contributions: list[np.ndarray], designs: list) -> GroupsMeat:
     total = sum(totals)
     scaled = [c * (total / t) for c, t in zip(contributions, totals)]
     if len(designs) > 1 and shared_clusters(designs):
-        joint = joint_design(designs)
+        joint = joint_design(designs)  # shared: every design has clusters
         starts = np.cumsum([0] + [len(c) for c in scaled])
-        parts = []
-        for g, c in enumerate(scaled):
-            embedded = np.zeros((int(starts[-1]), c.shape[1]))
-            embedded[starts[g]:starts[g + 1]] = c
-            parts.append(_unit_sums(embedded, joint))
+        parts = [_unit_sums(c, joint, slice(int(starts[g]), int(starts[g + 1]))) for g, c in enumerate(scaled)]
         return GroupsMeat(tuple(z for z, _, _ in parts), tuple(f for _, f, _ in parts), total, True)
     parts = [_unit_sums(c, d) for c, d in zip(scaled, designs)]
     return GroupsMeat(tuple(z for z, _, _ in parts), tuple(f for _, f, _ in parts), total, False)
@@ -174,6 +187,23 @@ def ordinal_design_covariance(moments):
         apart = np.einsum("ij,ij->j", z * f[:, None], z) / total
     return replace(moments, joint_gamma=joint, gamma=joint[k:, k:], influence=None, weight_variances=apart,
                    dominant_cluster=dominant_cluster(moments.influence, design))
+
+
+def ordinal_domains(moments: list) -> list:
+    """Each group's ``moments`` (OrdinalMoments under a sampling design, carrying their rows' influence functions)
+    with the design-based covariance of its thresholds and correlations (:func:`ordinal_design_covariance`), and,
+    when the groups share clusters (domains of one cluster sample), the covariance of all groups' statistics
+    stacked: the groups' influence functions joined as the rows' scores of full-information ML are
+    (:func:`groups_meat`: each cluster's sums gather its rows of every group; Binder 1983; Skinner, Holt & Smith
+    1989, recalled from memory), attached to every group as ``domains_gamma``."""
+    from dataclasses import replace
+
+    designs = [m.design for m in moments]
+    joined = None
+    if len(moments) > 1 and all(m.influence is not None for m in moments) and shared_clusters(designs):
+        joined = groups_meat([m.influence for m in moments], designs).matrix()
+    covariances = [ordinal_design_covariance(m) for m in moments]
+    return covariances if joined is None else [replace(m, domains_gamma=joined) for m in covariances]
 
 
 def dominant_cluster(contributions: np.ndarray, design):

@@ -33,7 +33,15 @@ full-information ML at all (cfa_tool.pipeline.continuous.FitOptions refuses it):
 MAR it is not valid.
 
 With a sampling design, B is the design-based meat of cfa_tool.inference.design
-(Asparouhov 2005); the bread is the weighted observed information.
+(Asparouhov 2005); the bread is the weighted observed information.  Several groups stack their
+rows' scores (each row scores its own group's beta_g): B is the covariance of the stacked scores,
+block-diagonal over groups for independent samples, and with blocks between the groups when they
+share clusters (domains of one cluster sample: each cluster's sums gather its rows of every group,
+cfa_tool.inference.design.groups_meat; Binder 1983, Skinner, Holt & Smith 1989, recalled from memory).
+The model's meat is then sum_gh w_g w_h D_g' Omega_gh D_h; the traces tr(H_s^-1 B_s) of the
+saturated and baseline models, whose information is block-diagonal over groups, read only the
+groups' own blocks w_g Omega_gg (a domain's block: its rows' sums over the clusters of the whole
+sample, which equals the group's own meat when every cluster lies within one group).
 """
 
 from __future__ import annotations
@@ -46,14 +54,13 @@ import numpy as np
 from cfa_tool.data.em import weighted_available_moments
 from cfa_tool.data.patterns import PatternData, embedded_inverse
 from cfa_tool.estimation.fiml import MissingDataLikelihood, moment_hessian
-from cfa_tool.inference.design import design_meat
+from cfa_tool.inference.design import GroupsMeat, design_meat, groups_meat
 from cfa_tool.inference.robust import vech_indices
 from cfa_tool.inference.standard_errors import observed_information
 from cfa_tool.numerics.linalg import scaled_inverse
 
 if TYPE_CHECKING:
     from cfa_tool.data.sample_design import RowDesign
-    from cfa_tool.model.implied import ModelMatrices
 
 
 def check_moment_matrices(likelihood: MissingDataLikelihood) -> None:
@@ -117,22 +124,38 @@ def scores_meat(data: PatternData, mu: np.ndarray, sigma: np.ndarray, design: Ro
     return design_meat(moment_scores(data, mu, sigma), design)
 
 
-def group_meat(likelihood: MissingDataLikelihood, g: int, mats: ModelMatrices) -> np.ndarray:
-    """Group g's B (:func:`scores_meat`) at the model's implied moments ``mats`` (its matrices at theta)."""
-    return scores_meat(likelihood.patterns[g], mats.implied_mean(), mats.implied_covariance(),
-                       likelihood.groups[g].design)
+def groups_scores_meat(likelihood: MissingDataLikelihood, points: Sequence[tuple[np.ndarray, np.ndarray]]
+                       ) -> GroupsMeat:
+    """Omega of the groups' stacked rows' scores in beta (:func:`moment_scores`), each group's at its ``points``
+    (mu_g, Sigma_g), under the groups' designs (cfa_tool.inference.design.groups_meat: blocks between the groups
+    when they share clusters).  The meat of several groups is sum_gh M_g' Omega_gh M_h for each group's M_g = w_g
+    D_g (:meth:`GroupsMeat.middle`), and a group's own B (:func:`scores_meat` when every cluster lies within one
+    group) is :func:`own_meat`."""
+    return groups_meat([moment_scores(data, mu, sigma) for data, (mu, sigma) in zip(likelihood.patterns, points)],
+                       [gm.design for gm in likelihood.groups])
 
 
-def _unstructured_trace(data: PatternData, mu: np.ndarray, sigma: np.ndarray, D: np.ndarray | None, design) -> float:
+def own_meat(likelihood: MissingDataLikelihood, omega: GroupsMeat, g: int) -> np.ndarray:
+    """Group g's B in its own scale, w_g Omega_gg (w_g = N_g / N, :func:`groups_scores_meat`)."""
+    return likelihood.weights[g] * omega.block(g)
+
+
+def implied_points(likelihood: MissingDataLikelihood, theta: np.ndarray) -> list[tuple[np.ndarray, np.ndarray]]:
+    """Each group's implied (mu, Sigma) at ``theta``."""
+    mats = [likelihood.model.matrices(theta, g) for g in range(len(likelihood.patterns))]
+    return [(m.implied_mean(), m.implied_covariance()) for m in mats]
+
+
+def _unstructured_trace(data: PatternData, mu: np.ndarray, sigma: np.ndarray, D: np.ndarray | None,
+                        B: np.ndarray) -> float:
     """tr(H^-1 B) of a model linear in beta at its estimates (mu, Sigma): H its observed information, B the
-    meat of its rows' scores (D = None: the saturated model itself; else the columns of beta it frees)."""
+    meat of its rows' scores in beta (D = None: the saturated model itself; else the columns of beta it frees,
+    whose meat is D'BD)."""
     d_sigma, d_mu = _moment_directions(len(mu))
     if D is not None:
         d_sigma, d_mu = np.tensordot(D.T, d_sigma, axes=1), D.T @ d_mu
-    H = moment_hessian(data, mu, sigma, d_sigma, d_mu)
-    B = scores_meat(data, mu, sigma, design)
-    if D is not None:
         B = D.T @ B @ D
+    H = moment_hessian(data, mu, sigma, d_sigma, d_mu)
     return float(np.sum(scaled_inverse(H) * B.T))
 
 
@@ -168,20 +191,22 @@ def scaling_at(likelihood: MissingDataLikelihood, theta: np.ndarray,
     positive definite."""
     check_moment_matrices(likelihood)
     q = len(theta)
-    information, meat = np.zeros((q, q)), np.zeros((q, q))
+    information = np.zeros((q, q))
     trace_w_gamma = 0.0
     d_sigma, d_mu = _moment_directions(likelihood.p)
+    omega = groups_scores_meat(likelihood, saturated)  # B_s of the stacked groups (blocks between shared clusters')
+    weighted = []
     for g, (w, data) in enumerate(zip(likelihood.weights, likelihood.patterns)):
         mu_s, sigma_s = saturated[g]
         H_s = moment_hessian(data, mu_s, sigma_s, d_sigma, d_mu)
         if H_s is None:
             return float("nan")
-        B_s = scores_meat(data, mu_s, sigma_s, likelihood.groups[g].design)
         D = _model_directions(likelihood, theta, g)
-        # W Gamma W = B_s: D'W Gamma W D = D' B_s D and tr(W Gamma) = tr(H_s^-1 B_s)
+        # W Gamma W = B_s: D'W Gamma W D = D' B_s D and tr(W Gamma) = sum_g tr(H_s,g^-1 B_s,gg), W block-diagonal
         information += w * D.T @ H_s @ D
-        meat += w * D.T @ B_s @ D
-        trace_w_gamma += float(np.sum(scaled_inverse(H_s) * B_s.T))
+        weighted.append(w * D)
+        trace_w_gamma += float(np.sum(scaled_inverse(H_s) * own_meat(likelihood, omega, g).T))
+    meat = omega.middle(weighted)
     information = 0.5 * (information + information.T)
     diagonal = np.diag(information)
     if not np.all(diagonal > 0):
@@ -200,21 +225,24 @@ def robust_missing(likelihood: MissingDataLikelihood, theta: np.ndarray,
     factor is not wanted (NaN).  The bread is the observed information (module docstring).  Refused before any
     work when its matrices of the moments would be too large (:func:`check_moment_matrices`)."""
     check_moment_matrices(likelihood)
-    q = len(theta)
-    meat_total = np.zeros((q, q))
     trace_sat = trace_base = 0.0
+    model_meat = groups_scores_meat(likelihood, implied_points(likelihood, theta))
+    saturated_meat = groups_scores_meat(likelihood, saturated)
+    baseline = None if base_df is None else [
+        (mu, np.diag(var)) for mu, var in (weighted_available_moments(d.rows, d.row_weights)
+                                           for d in likelihood.patterns)]
+    baseline_meat = None if baseline is None else groups_scores_meat(likelihood, baseline)
+    p = likelihood.p
+    I, J = vech_indices(p)
+    keep = np.concatenate([np.arange(p), p + np.flatnonzero(I == J)])  # the baseline's means and variances
+    weighted = []
     for g, data in enumerate(likelihood.patterns):
-        D = _model_directions(likelihood, theta, g)
-        design = likelihood.groups[g].design
-        meat_total += likelihood.weights[g] * D.T @ group_meat(likelihood, g, likelihood.model.matrices(theta, g)) @ D
-        trace_sat += _unstructured_trace(data, *saturated[g], None, design)
-        if base_df is None:
-            continue
-        mu_b, var_b = weighted_available_moments(data.rows, data.row_weights)
-        p = likelihood.p
-        I, J = vech_indices(p)
-        keep = np.concatenate([np.arange(p), p + np.flatnonzero(I == J)])  # means and variances
-        trace_base += _unstructured_trace(data, mu_b, np.diag(var_b), np.eye(p + len(I))[:, keep], design)
+        weighted.append(likelihood.weights[g] * _model_directions(likelihood, theta, g))
+        trace_sat += _unstructured_trace(data, *saturated[g], None, own_meat(likelihood, saturated_meat, g))
+        if baseline is not None:
+            trace_base += _unstructured_trace(data, *baseline[g], np.eye(p + len(I))[:, keep],
+                                              own_meat(likelihood, baseline_meat, g))
+    meat_total = model_meat.middle(weighted)  # sum_gh w_g w_h D_g' Omega_gh D_h (module docstring)
     hessian = likelihood.observed_hessian(theta)  # the weighted sum over groups, as the meat
     if hessian is None:  # higher-order factors: differences of the analytic gradient, as fit's standard errors
         hessian = observed_information(likelihood.gradient, theta, central=False)

@@ -29,7 +29,6 @@ from cfa_tool.assessment.standardized import r_squared, standardization, standar
 from cfa_tool.data.kept_rows import RowNaming, rows_listed
 from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments, moments_with_gaps
-from cfa_tool.data.sample_design import shared_clusters
 from cfa_tool.errors import CfaError, NotIdentified, OptionError
 from cfa_tool.numbers import count_text
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
@@ -367,17 +366,6 @@ def pairwise_instead() -> Note:
                  Command(f", without {Option.INCOMPLETE_ROWS.given('listwise')}"), ")"))
 
 
-def gaps_instead(shared_clusters: bool) -> Note:
-    """What would use every answer of the rows listwise deletion left out: full-information ML, without the
-    clusters when the groups share them, which full-information ML cannot yet take into account
-    (data.sample_design.refuse_shared_clusters): never the route that is refused (new-user trial s16)."""
-    if not shared_clusters:
-        return full_information_instead()
-    return Note(("full-information ML without the clusters",
-                 Command(f" (leave out {Option.CLUSTER} and {Option.INCOMPLETE_ROWS.given('listwise')})"),
-                 ", whose standard errors and tests then leave out that rows of one cluster answer alike,"))
-
-
 def listwise_problem(dropped: int, read: int, where: str = "",
                      instead: Note | None = None) -> Problem | None:
     """The caution on rows that listwise deletion left out for a missing answer, first in every view of every
@@ -451,8 +439,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
 
     left_out, warnings = rows_left_out([(label, m.rows_dropped, m.rows_read, m.n_obs, m.unanswered_rows,
                                          m.unanswered_ids, m.row_naming, m.text_lines) for label, m in groups],
-                                       options.missing, gaps_instead(len(groups) > 1 and shared_clusters(
-                                           [m.design for _, m in groups])))  # cautions first in every view, notes among the warnings
+                                       options.missing)  # cautions first in every view, notes among the warnings
     # with helpers, the rows that answer no item but a helper (inputs.with_helpers keeps them)
     helpers_only = ([int((~a).sum()) for a in est.auxiliary.answered] if est.auxiliary is not None
                     else [0] * len(groups))

@@ -40,8 +40,7 @@ from cfa_tool.data.readers import (LoadedData, blank_text_as_missing, drop_blank
 from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame, renamed_hint
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DOMINANT_SHARE, DOMINANT_TIMES, DesignColumns, apply_design, check_design,
-                                         design_columns, design_summary, design_weights, few_clusters_advice,
-                                         refuse_shared_clusters, shared_cluster)
+                                         design_columns, design_summary, design_weights, few_clusters_advice)
 from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, NotGiven, holds_summary, pasted_matrix, read_summary_file,
                                          summary_in_other_text, summary_moments)
 from cfa_tool import options as opt
@@ -445,9 +444,6 @@ def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None 
                                         values=values))]
     else:
         _check_group_column(spec, group)
-        if missing == MissingData.FULL_INFORMATION:
-            refuse_shared_clusters(frame, design, group, source, "full-information ML (rows with missing answers)",
-                                   complete_rows=True)
         groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing, weights)
         notes = _no_group_notes(no_group, group, len(frame)) + label_notes(frame, group)
     if design is not None:
@@ -696,7 +692,7 @@ def weighted_out_problems(loaded: LoadedData, group: str | None, design: DesignC
 
 
 def odd_value_problems(loaded: LoadedData, group: str | None = None, design: DesignColumns | None = None,
-                       helpers: tuple[str, ...] = (), listwise: bool = False, shared_clusters: bool = False) -> tuple:
+                       helpers: tuple[str, ...] = (), listwise: bool = False) -> tuple:
     """Values in the item columns that look like no answers (a missing-value code, a totals row), and those the
     file marks as no answer and that were read as missing when rows leave the analysis because of them
     (data.non_answers.non_answer_caution; ``listwise``: rows with gaps are left out), as cautions that come first in
@@ -714,11 +710,10 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
                 + (group_case_problems(loaded.frame, group) if group is not None else ())
                 + tuple(p for part, unit, name in design_columns if name is not None
                         for p in group_case_problems(loaded.frame, name, part, unit))
-                + odd_value_problems(loaded, helpers=helpers, listwise=listwise, shared_clusters=listwise and (
-                    design is not None and shared_cluster(loaded.frame, design, group) is not None)))
+                + odd_value_problems(loaded, helpers=helpers, listwise=listwise))
 
     items = (tuple(loaded.items.names) + tuple(helpers)) if loaded.items is not None else tuple(loaded.frame.columns)
-    marked = non_answer_caution(loaded.non_answers, loaded.source, items, loaded.frame, listwise, shared_clusters)
+    marked = non_answer_caution(loaded.non_answers, loaded.source, items, loaded.frame, listwise)
     # a code already named as labelled beyond the scale of the same items is not named again as a missing-value code
     from cfa_tool.data.non_answers import BeyondScale
     from cfa_tool.data.odd_values import OddKind
@@ -1625,7 +1620,7 @@ def design_problems(design, free: int, thresholds: int = 0, dominant=None, robus
     fit's scaled test ``robust`` then described by it), weights so uneven that Kish's effective sample size is
     below half the rows, and frequency weights so large that they look like expansion (sampling) weights
     (first).  Each advice names only a route the run's estimator accepts (``ordinal``: a least-squares fit of
-    ordinal items, which refuses clusters shared by groups; :func:`shared_clusters_route`)."""
+    ordinal items, whose advice on few clusters differs; :func:`few_clusters_advice`)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     problems: tuple = ()
@@ -1649,7 +1644,7 @@ def design_problems(design, free: int, thresholds: int = 0, dominant=None, robus
     if across:
         problems += (Problem(ProblemKind.GROUPS_SHARE_STRATA, (), float(len(design.shared_strata)), across,
                              Note(("if rows of the groups share households or other clusters, ",)
-                                  + shared_clusters_route(ordinal).parts
+                                  + shared_clusters_route().parts
                                   + ("; otherwise say in the report that the groups were treated as drawn apart "
                                      "within strata.",))),)
     uneven = design.weight_caution()
@@ -1660,22 +1655,13 @@ def design_problems(design, free: int, thresholds: int = 0, dominant=None, robus
     return problems
 
 
-def shared_clusters_route(ordinal: bool) -> Note:
-    """The route that takes clusters shared by groups (domains of one cluster sample) into account, for the run's
-    estimator: the one rule the advice follows, as :func:`moments_for` and :func:`ordinal_moments_for` refuse them
-    (data.sample_design.refuse_shared_clusters): continuous items by maximum likelihood with complete rows take
-    them; full-information ML takes them only from the complete rows; the least-squares fit of ordinal items does
-    not, so its advice never sends the user to the clusters it refuses (new-user trial s20)."""
-    complete = ("(with complete rows only when rows have gaps", Command(f", {Option.INCOMPLETE_ROWS.given('listwise')}"),
-                ")")
-    if not ordinal:
-        return Note((Command(f"give them with {Option.CLUSTER}", "give those clusters too"),
-                     ": groups that share clusters are then analysed as domains of one sample ") + complete)
-    return Note(("the fit of ordinal items does not yet take clusters shared by groups into account",
-                 Command(f" (it refuses {Option.CLUSTER} then)"),
-                 "; to keep them, analyse the items as continuous by maximum likelihood",
-                 Command(f" (leave out {Option.ORDINAL} or the model's 'ordinal' statement, give {Option.CLUSTER})"),
-                 ", which reads answers of few categories as numbers ") + complete)
+def shared_clusters_route() -> Note:
+    """The route that takes clusters shared by groups (domains of one cluster sample) into account: giving them.
+    Every estimator takes such groups since s21 (continuous items with complete rows or by full-information ML,
+    ordinal items by least squares: inference.design.groups_meat joins the groups' rows' contributions), so the
+    advice is the same for every run (new-user trials s18 and s20 found it sending ordinal runs to a refusal)."""
+    return Note((Command(f"give them with {Option.CLUSTER}", "give those clusters too"),
+                 ": groups that share clusters are then analysed as domains of one sample, rows with gaps included"))
 
 
 def extreme_scaling(robust) -> str:
@@ -2181,18 +2167,17 @@ def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, ref
     present); under a sampling ``design`` weighted, with the design-based covariance (ordinal items only)."""
     _check_group_column(spec, group)
     from cfa_tool.data.groups import split_ordinal_moments
-    from cfa_tool.inference.design import ordinal_design_covariance
+    from cfa_tool.inference.design import ordinal_domains
 
     continuous = frozenset(x for x in spec.observed_names if x not in ordinal_items)
     if continuous and design is not None:
         raise OptionError(f"continuous items beside ordinal ones in several groups are not yet fitted with a sampling "
                           f"design, so the {design.names[0][0]} column '{design.names[0][1]}' cannot apply; declare "
                           f"every item ordinal, fit the groups without the design, or fit one group at a time")
-    refuse_shared_clusters(frame, design, group, source, "the least-squares fit of ordinal items",
-                           continuous_instead=True)
     groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group, pairwise,
                                              design, continuous)
-    groups = [(label, ordinal_design_covariance(m)) for label, m in groups]
+    # groups that share clusters: their statistics' covariance joined over the clusters (s21)
+    groups = list(zip([label for label, _ in groups], ordinal_domains([m for _, m in groups])))
     return groups, _no_group_notes(no_group, group, len(frame)) + label_notes(frame, group)
 
 

@@ -488,8 +488,8 @@ def estimate_ordinal_groups(spec: Spec, groups: list, options, method: Weighting
         raise OptionError(f"the model has {table.n_free} free parameters but the groups' {what} and correlations "
                           f"give only {n_stats} statistics, so it cannot be identified")
     model = StructuredModel(table)
-    statistics = [group_statistics(values, gamma, m.n_obs, method is Weighting.DIAGONAL, _weight_variances(m))
-                  for (values, gamma), m in zip(data, moments)]
+    statistics = [group_statistics(values, gamma, m.n_obs, method is Weighting.DIAGONAL, _weight_variances(m),
+                                   m.domains_gamma) for (values, gamma), m in zip(data, moments)]
     objective = _objective(model, statistics, continuous)
     weights = objective.weights
     R = sum(w * m.correlations for w, m in zip(weights, moments))
@@ -594,7 +594,7 @@ def ordinal_difference(restricted: OrdinalEstimation, general: OrdinalEstimation
         general_derivatives = general_objective.stacked(theta1)[0]
     # U_d = U_restricted - U_general: the weights W cancel
     traces = residual_traces(w, gamma, [(1.0, D0), (-1.0, general_derivatives)], False,
-                             restricted.objective.group_slices())
+                             restricted.objective.gamma_blocks())
     diff = restricted.statistic - general.statistic
     return adjusted_from_traces(max(diff, 0.0), restricted.df - general.df, *traces)
 
@@ -644,7 +644,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
                                     else (None,) * G, table.free_labels, theta)
             raise
         slices = obj.group_slices()
-        cov_theta = robust_covariance(D, w, gamma, n, slices)
+        blocks = obj.gamma_blocks()  # None: groups that share clusters, Gamma not block-diagonal
+        cov_theta = robust_covariance(D, w, gamma, n, blocks)
         inference = wald_inference(values, model.J, cov_theta)
         df = est.df
         T = est.statistic
@@ -664,8 +665,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
             sd = np.sqrt(np.diag(sigma))
             latent_correlations.append((moments[g].correlations, sigma / np.outer(sd, sd), moments[g].n_obs))
         overall_srmr, srmrs = srmr(latent_correlations, correlations=True)
-        test = adjusted_test(T, df, D, w, gamma, slices)
-        base = adjusted_test(T_base, base_df, D_base, w, gamma, slices)
+        test = adjusted_test(T, df, D, w, gamma, blocks)
+        base = adjusted_test(T_base, base_df, D_base, w, gamma, blocks)
         fit = _least_squares_fit(T, df, T_base, base_df, n, table.n_free, overall_srmr, G)
         robust = adjusted_fit(test, base, df, base_df, n, G)
         if modification and df > 0 and options.modification_indices:

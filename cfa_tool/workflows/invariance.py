@@ -38,7 +38,7 @@ from cfa_tool.assessment.modification import ModificationIndex, equality_score_t
 from cfa_tool.assessment.robust_scores import robust_score_tests
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
-from cfa_tool.pipeline.continuous import assess, estimate, gaps_instead, pairwise_instead, rows_left_out
+from cfa_tool.pipeline.continuous import assess, estimate, pairwise_instead, rows_left_out
 from cfa_tool.language.names import written_group
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
@@ -634,8 +634,7 @@ def _rows_left_out(configural: FitResult) -> tuple[list[str], list[str]]:
     cautions, notes = rows_left_out([(g.label, g.data.rows_dropped, g.data.rows_read, g.data.n_obs)
                                      for g in configural.groups],
                                     configural.method.missing,
-                                    pairwise_instead() if configural.method.ordinal else
-                                    gaps_instead(configural.design is not None and configural.design.shared_clusters))
+                                    pairwise_instead() if configural.method.ordinal else None)
     return [p.line() for p in cautions], notes
 
 

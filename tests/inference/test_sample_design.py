@@ -418,19 +418,14 @@ def test_cluster_bootstrap_agrees_with_the_cluster_sandwich():
     assert _by_row(naive, "se")[key] < 0.75 * sandwich
 
 
-def test_a_cluster_across_groups_of_ordinal_items_is_an_error(hs_data):
-    # groups that share clusters (domains) are analysed by continuous ML with complete rows
-    # (tests/inference/test_survey_domains.py); the ordinal least-squares fit still computes its design-based
-    # covariance group by group, so it refuses them, naming itself
-    from cfa_tool.errors import DataError
-
+def test_a_cluster_across_groups_of_ordinal_items_is_fitted_as_domains(hs_data):
+    # groups that share clusters (domains): the ordinal least-squares fit joins the groups' influence functions over
+    # the clusters since s21 (it refused them; tests/inference/test_ordinal_domains.py checks the numbers)
     data = hs_data.assign(unit=np.arange(len(hs_data)) % 20)  # every unit has rows in both schools
-    data[ITEMS] = data[ITEMS].round().clip(1, 6)
-    with pytest.raises(DataError, match="has rows in more than one group of 'school'") as raised:
-        cfa_tool.fit(THREE_FACTORS, data, group="school", cluster="unit", ordinal="all")
-    assert "the least-squares fit of ordinal items does not yet take clusters shared by groups" in str(raised.value)
-    # what to do next (new-user trial: languages crossing neighbourhoods left the user without a way on)
-    assert "fit each group alone with its clusters (keep=['school = ...'])" in str(raised.value)
+    data[ITEMS] = np.ceil(data[ITEMS].rank(pct=True) * 3)  # three answers of about equal shares
+    result = cfa_tool.fit(THREE_FACTORS, data, group="school", cluster="unit", ordinal="all")
+    assert result.method.ordinal and result.design.shared_clusters
+    assert "The groups are domains that share clusters" in result.design.sentence(ordinal=True)
 
 
 @pytest.mark.parametrize("column, values, kind, words", [

@@ -182,26 +182,27 @@ def test_a_group_with_a_single_cluster_of_its_own_is_an_error(hs_data):
         cfa_tool.fit(ONE_FACTOR, hs_data.assign(unit=unit), group="school", cluster="unit")
 
 
-def test_groups_sharing_clusters_are_refused_with_full_information(hs_data):
+def test_groups_sharing_clusters_are_fitted_with_full_information(hs_data):
+    # s21 (new-user trial s20, item 5): full-information ML takes groups that share clusters (it refused them, and the
+    # only route that kept the clusters left out every row with a gap); tests/inference/test_full_information_domains.py
+    # checks its numbers by hand
     data = _domains(hs_data)
     data.loc[data.index[::7], "x2"] = np.nan
-    with pytest.raises(DataError, match="full-information ML .* does not yet take clusters shared by groups") as raised:
-        cfa_tool.fit(ONE_FACTOR, data, group="school", cluster="unit", weights="w")
-    said = str(raised.value)
-    # the routes that run, each with what it gives up or assumes (new-user trial s16: the listwise route then advised
-    # the refused one)
-    assert "cluster '" in said and "leave out cluster=... to keep the weights" in said
-    assert "too small" in said and "missing='listwise'" in said and "missing completely at random" in said
-    listwise = cfa_tool.fit(ONE_FACTOR, data, group="school", cluster="unit", missing="listwise", weights="w")
-    assert listwise.design.shared_clusters
-    # the route the refusal gives first runs: the weights kept, the clusters left out, every answer used
-    without = cfa_tool.fit(ONE_FACTOR, data, group="school", weights="w")
-    assert without.method.full_information
+    result = cfa_tool.fit(ONE_FACTOR, data, group="school", cluster="unit", weights="w")
+    assert result.method.full_information and result.design.shared_clusters
+    assert sum(g.data.n_obs for g in result.groups) == len(data)  # every row kept, those with a gap too
+    sentence = " ".join(result.design.sentence(full_information=True).split())
+    assert "The groups are domains that share clusters" in sentence
+    assert "rows with missing answers included" in sentence and "missing at random" in sentence
+    a, b = (list(result.parameter_labels).index(f"intercept(x1) [{s}]") for s in ("Pasteur", "Grant-White"))
+    cov = result.parameter_covariance
+    assert abs(cov[a, b]) > 0.05 * np.sqrt(cov[a, a] * cov[b, b])  # the schools covary through their units
 
 
-def test_the_listwise_route_of_groups_sharing_clusters_never_advises_the_refused_one(hs_data, tmp_path):
-    # new-user trial s16: the caution on the rows listwise deletion left out advised full-information ML, which these
-    # groups' clusters refuse; it names the route that runs (without the clusters) and what that gives up
+def test_the_listwise_route_of_groups_sharing_clusters_advises_full_information_with_the_clusters(hs_data, tmp_path):
+    # new-user trial s16 made the caution on the rows listwise deletion left out advise full-information ML without
+    # the clusters, the route that ran then; since s21 full-information ML keeps the clusters, and the advice is the
+    # plain one (leave out listwise), never dropping the clusters
     data = _domains(hs_data)
     data.loc[data.index[::2], "x2"] = np.nan  # half the rows have a gap: the caution comes first
     fitted = cfa_tool.fit(ONE_FACTOR, data, group="school", cluster="unit", missing="listwise", weights="w")
@@ -209,26 +210,22 @@ def test_the_listwise_route_of_groups_sharing_clusters_never_advises_the_refused
     assert len(left) == 2
     for problem in left:
         advice = str(problem.advice)
-        assert "without the clusters" in advice and "leave out cluster=... and missing='listwise'" in advice
-        assert "missing='full-information'" not in advice and "--" not in advice  # a Python caller's words
+        assert "without the clusters" not in advice and "missing='full-information'" in advice
+        assert "--" not in advice  # a Python caller's words
     from cfa_tool.workflows.invariance import invariance
 
     ladder = invariance(ONE_FACTOR, data, group="school", cluster="unit", missing="listwise", weights="w")
     assert ladder.steps[0].result.design.shared_clusters
     cautions = [c for c in ladder.warnings if "Listwise deletion left out" in c]
-    assert cautions and all("without the clusters" in c for c in cautions)
-    assert not any("missing='full-information'" in c for c in ladder.warnings)
+    assert cautions and not any("without the clusters" in c for c in cautions)
+    assert any("missing='full-information'" in c for c in cautions)
     # the caution on cells read as no answer ('refused') advises the same route
     words = data.assign(x2=data["x2"].astype(object).where(data["x2"].notna(), "refused"))
     path = tmp_path / "refused.csv"
     words.to_csv(path, index=False)
     read = cfa_tool.fit(ONE_FACTOR, path, group="school", cluster="unit", missing="listwise", weights="w")
     marked = [str(p.advice) for p in read.problems if p.kind.name == "VALUES_READ_AS_MISSING"]
-    assert len(marked) == 1 and "leave out missing='listwise' and cluster=..." in marked[0]
-    # groups that do not share clusters keep the plain advice
-    own = data.assign(unit=data["school"].astype(str) + data["unit"].astype(str))
-    plain = cfa_tool.fit(ONE_FACTOR, own, group="school", cluster="unit", missing="listwise", weights="w")
-    assert all("without the clusters" not in str(p.advice) for p in plain.problems if p.kind.name == "ROWS_LEFT_OUT")
+    assert len(marked) == 1 and "leave out missing='listwise'" in marked[0] and "cluster=" not in marked[0]
 
 
 def test_an_invariance_ladder_of_groups_sharing_clusters(hs_data):
