@@ -1745,7 +1745,7 @@ def invariance_paragraph(result, levels) -> str:
         declared = _declared_words(step.declared, d)
         earlier = [(f, s.level) for s in steps[1:k] for f in s.freed]  # freed by the search before: still free
         if earlier and not step.partial:
-            kept = _list([f"{parameter_words(f.kind, f.variables, quoted=True)} (freed at the {level} step)"
+            kept = _list([f"{f.words(quoted=True, groups=result.groups)} (freed at the {level} step)"
                           for f, level in earlier])
             extra = f" and {declared}" if step.declared else ""
             parts.append(f"{name} invariance, partial with {kept} still free{extra}, {_held(step, basis)} "
@@ -1760,7 +1760,7 @@ def invariance_paragraph(result, levels) -> str:
             if step.full_result is not None and step.full_result.converged and not step.full_result.admissible:
                 found = _list([_phrase(p, step.full_result) for p in step.full_result.problems if p.kind.inadmissible])
                 with_all += f"; its solution was not admissible: {found}"
-            freed = _list([parameter_words(f.kind, f.variables, quoted=True) for f in step.freed])
+            freed = _list([f.words(quoted=True, groups=result.groups) for f in step.freed])
             state = ("still did not hold" if not step.holds and step.result.admissible else
                      "held" if step.holds and not basis else "met its test" if step.holds else _held(step, basis))
             after = f" but cannot be read as held: it rests on {basis}" if step.holds and basis else ""
