@@ -30,7 +30,7 @@ from cfa_tool.data.descriptives import FEW_CATEGORIES
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.names import prose_group, written_name
 from cfa_tool.language.spec import equality_words
-from cfa_tool.model.description import parameter_words
+from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words
 from cfa_tool.note_parts import WORDS as MANUSCRIPT, said as said_in  # ('said' names sentences here)
 from cfa_tool.reporting.numbers import fit_index_text, guides_text, missing, num, p_phrase, signed, unit
 from cfa_tool.reporting.numbers import word_list as _list
@@ -312,18 +312,58 @@ def _declared_words(refs, d) -> str:
 
 
 def _scale_sentence(d) -> str:
-    """How each factor got its scale; with factors scaled differently in some group, those factors group by group."""
-    if not d.group_scales:
-        return _scales_in_words(d.scales, d.scales)
-    shared = [s for s in d.scales if all(s in scales for _, scales in d.group_scales)]
-    sentences = [_scales_in_words(shared, d.scales)] if shared else []
+    """How each factor got its scale; with factors scaled differently in some group, those factors group by group.
+    A factor scaled by its variance in the first group whose variance later groups estimate, its loadings held
+    equal across groups (model.description.CARRIED_BY_LOADINGS), is on one metric: said in a sentence of its own
+    (hostile s21: the paragraph said every group's variances were fixed at 1)."""
+    first = {s.factor: s for s in d.scales}
+    carried = {f: labels for f, labels in _carried_groups(d).items() if f in first}
+    group_scales = []
     for label, scales in d.group_scales:
-        words = _scales_in_words([s for s in scales if s not in shared], scales)
-        sentences.append(f"In group {prose_group(label, d.groups)}, {words[:1].lower()}{words[1:]}")
-    different = [s.factor for s in d.scales if s not in shared]
-    sentences.append(f"Scaled differently in different groups, {_names(different)} "
-                     f"{'are' if len(different) > 1 else 'is'} not on the same metric in every group.")
+        group_scales.append((label, tuple(first[s.factor] if s.factor in carried and s.method == CARRIED_BY_LOADINGS
+                                          else s for s in scales)))
+    shared = [s for s in d.scales if all(s in scales for _, scales in group_scales)]
+    if len(shared) == len(d.scales):
+        sentences = [_scales_in_words(d.scales, d.scales)]
+        if carried:  # the variances fixed in the first group only
+            sentences[0] = sentences[0][:-1] + f" in group {prose_group(d.groups[0], d.groups)}."
+    else:
+        sentences = [_scales_in_words(shared, d.scales)] if shared else []
+        for label, scales in group_scales:
+            own = [s for s in scales if s not in shared]
+            if own:
+                words = _scales_in_words(own, scales)
+                sentences.append(f"In group {prose_group(label, d.groups)}, {words[:1].lower()}{words[1:]}")
+        different = [s.factor for s in d.scales if s not in shared]
+        sentences.append(f"Scaled differently in different groups, {_names(different)} "
+                         f"{'are' if len(different) > 1 else 'is'} not on the same metric in every group.")
+    if carried:
+        sentences.append(_carried_sentence(d, carried))
     return " ".join(sentences)
+
+
+def _carried_groups(d) -> dict[str, list[str]]:
+    """Each factor whose scale the loadings held equal carry in some groups -> those groups."""
+    out: dict[str, list[str]] = {}
+    for label, own in d.group_scales:
+        for s in own:
+            if s.method == CARRIED_BY_LOADINGS:
+                out.setdefault(s.factor, []).append(label)
+    return out
+
+
+def _carried_sentence(d, carried: dict[str, list[str]]) -> str:
+    """Which factors' variances the later groups estimate, their loadings held equal across groups carrying the scale
+    set in the first group."""
+    groups = sorted({g for labels in carried.values() for g in labels}, key=list(d.groups).index)
+    where = (f"group {prose_group(groups[0], d.groups)}" if len(groups) == 1
+             else "groups " + _list([prose_group(g, d.groups) for g in groups]))
+    every = len(carried) == len(d.scales)
+    whose = "the factors" if every and len(carried) > 1 else _names(list(carried))
+    several = len(carried) > 1
+    return (f"In {where}, the variance{'s' if several else ''} of {whose} {'were' if several else 'was'} estimated, "
+            f"the loadings held equal across groups carrying the scale set in group "
+            f"{prose_group(d.groups[0], d.groups)}.")
 
 
 def _scales_in_words(chosen, every) -> str:
@@ -1701,6 +1741,13 @@ def invariance_paragraph(result, levels) -> str:
                      f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
                      f"group {prose_group(result.groups[0], result.groups)} were fixed at zero.")
         parts += _scale_sentences(d, getattr(result, "data_problems", ()))
+        carried = next(((step.level, step.result.description) for step in steps[1:] if step.result.description
+                        is not None and any(s.method == CARRIED_BY_LOADINGS for _, own in
+                                            step.result.description.group_scales for s in own)), None)
+        if carried is not None:  # the later groups' variances estimated once loadings are held equal (hostile s21)
+            level, later = carried
+            sentence = _carried_sentence(later, _carried_groups(later))
+            parts.append(f"From the {level} step on, {sentence[0].lower()}{sentence[1:]}")
         departures = _departures(d, shape)
         if departures:
             parts.append(departures.replace("The model also included", "The configural model also included", 1))
