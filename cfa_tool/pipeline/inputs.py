@@ -1507,7 +1507,7 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
             result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator,
                                   design)
         labels = tuple(g.label for g in result.groups) if group is not None else None
-        summary = missing_summary(_labelled(frame, group), spec.observed_names,  # as for continuous items
+        summary = missing_summary(_answering(_labelled(frame, group), spec.observed_names),  # as for continuous items
                                   frequency_weights=counted_by(design))
         gaps = summary["n_patterns"] > 1 or not all(summary["coverage"].values())
         return _described(replace(converged(result), warnings=tuple(notes) + result.warnings,
@@ -1548,8 +1548,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     analysed = _labelled(frame, group)
     every_row_complete = (sum(m.n_obs for _, m in groups) == len(analysed)
                           and not any(m.rows is not None and np.isnan(m.rows).any() for _, m in groups))
-    summary = None if every_row_complete else missing_summary(analysed, spec.observed_names,
-                                                              frequency_weights=counted_by(design))
+    summary = None if every_row_complete else missing_summary(_answering(analysed, spec.observed_names),
+                                                              spec.observed_names, frequency_weights=counted_by(design))
     group_labels = tuple(label for label, _ in groups) if group is not None else None
     return replace(result, warnings=tuple(notes) + result.warnings,  # with _described's description: one replace
                    missing_data=summary if summary is not None and (summary["n_patterns"] > 1
@@ -1573,6 +1573,14 @@ def counted_by(design: DesignColumns | None) -> str | None:
     if design is None or design.weights is None or design.kind is not WeightKind.FREQUENCY:
         return None
     return design.weights
+
+
+def _answering(frame: pd.DataFrame, names: tuple[str, ...]) -> pd.DataFrame:
+    """The rows that answered some model variable: those every route analyses (a row answering none is left out, with
+    its own note), over which the coverage of each item is counted (hostile s21: 100 rows answering nothing took the
+    least coverage from 99.6% to 82.4%)."""
+    answering = frame[list(names)].notna().any(axis=1)
+    return frame if answering.all() else frame.loc[answering]
 
 
 def _labelled(frame: pd.DataFrame, group: str | None) -> pd.DataFrame:

@@ -579,7 +579,7 @@ def _lowest_coverage(result) -> float | None:
     neither is at hand)."""
     if result.multigroup and result.groups and all(g.data.answered and g.data.n_obs for g in result.groups):
         # each group judged on its own rows: an item nearly unanswered in one group hides in a pooled share
-        return min(min(g.data.answered) / g.data.n_obs for g in result.groups)
+        return min(min(g.data.answered) / (g.data.answered_of or g.data.n_obs) for g in result.groups)
     if result.missing_data is not None:
         coverage = result.missing_data.get("coverage", {})
         return min(coverage.values()) if coverage else 1.0
