@@ -20,7 +20,7 @@ import numpy as np
 
 from cfa_tool.numbers import user_number, count_text
 from cfa_tool.method import (MISSING_AT_RANDOM, MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
-                              Weighting)
+                              WeightKind, Weighting)
 from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, design_cautions, failure_words
 from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors, uncorrelated_pairs
 from cfa_tool.assessment.reliability import BifactorPart, Keying, miskeyed
@@ -597,7 +597,7 @@ _NOTHING_MISSING = ("no answer on the model's variables was missing, so full-inf
 
 def _sample_phrase(result) -> str:
     data = result.data
-    text = f"N = {count_text(result.n_obs)}" + _filtered(data)
+    text = _n_of_rows(result.n_obs, result)
     full_information = result.method.full_information
     low = _lowest_coverage(result) if full_information else None
     if low is not None and low >= 1.0:  # asked for on complete rows: nothing was missing, nothing was assumed
@@ -681,6 +681,18 @@ def _pairs_by_group(result) -> str:
     labels = [label for label, _ in ranges]
     return " over the groups and " + _list([f"{low} to {high} in group {prose_group(label, labels)}"
                                             for label, (low, high) in ranges])
+
+
+def _n_of_rows(n: float, result) -> str:
+    """'N = 301', with the rows a row filter chose (:func:`_filtered`); under frequency weights N is no count of
+    rows, so the rows it sums are named before the file's ('N = 565, the sum of the frequency weights of 272 of the 480
+    rows in the data file, those where ...'; hostile s21: 'N = 623 of the 480 rows')."""
+    design = getattr(result, "design", None)
+    summed = ""
+    if result.data.row_filters and design is not None and design.columns.weights is not None and \
+            design.columns.kind is WeightKind.FREQUENCY:
+        summed = f", the sum of the frequency weights of {count_text(design.rows)}"
+    return f"N = {count_text(n)}{summed}" + _filtered(result.data)
 
 
 def _filtered(data, file: str = "the data file") -> str:
@@ -1419,7 +1431,7 @@ def _comparison_rows(comparison) -> str:
     data = comparison.results[0].data
     read = _read_as_missing(data)
     kept = _kept_as_answers(data)
-    return (f"N = {count_text(n)}" + _filtered(data) + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
+    return (_n_of_rows(n, comparison.results[0]) + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
             + (f"; {kept}" if kept else ""))
 
 
