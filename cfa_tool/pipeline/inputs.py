@@ -1508,7 +1508,7 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                                   design)
         labels = tuple(g.label for g in result.groups) if group is not None else None
         summary = missing_summary(_answering(_labelled(frame, group), spec.observed_names),  # as for continuous items
-                                  frequency_weights=counted_by(design))
+                                  spec.observed_names, frequency_weights=counted_by(design))
         gaps = summary["n_patterns"] > 1 or not all(summary["coverage"].values())
         return _described(replace(converged(result), warnings=tuple(notes) + result.warnings,
                                   missing_data=summary if gaps else None, labels=_file_labels(loaded, spec)),
