@@ -1489,8 +1489,34 @@ def with_row_filters(result, loaded: LoadedData):
                                         rows_in_file=len(loaded.read_frame)))
 
 
+def refuse_groups_filtered_out(spec: Spec, loaded: LoadedData, group: str | None,
+                               reference_group: str | None = None) -> None:
+    """An error naming the row filter when a group that the model's 'in group' statements or the reference group name
+    has rows in the file but none among the rows the filters kept (hostile s21: 'there is no group 'east side' in
+    the data' sent the user looking for a typo in a group the filter had left out on purpose)."""
+    if group is None or not loaded.row_filters or loaded.read_frame is None or group not in loaded.read_frame.columns:
+        return
+    from cfa_tool.data.filters import kept_by_words
+    from cfa_tool.data.groups import group_keys
+    from cfa_tool.language.checks import all_refs
+
+    named = [r.group for r in all_refs(spec) if r.group is not None]
+    if reference_group is not None:
+        named.append(label_text(reference_group) if isinstance(reference_group, str) else reference_group)
+    kept = set(group_keys(loaded.frame[group]).dropna())
+    before = set(group_keys(loaded.read_frame[group]).dropna())
+    for name in dict.fromkeys(named):
+        if name not in kept and name in before:
+            reference = name == reference_group
+            what = "the reference group" if reference else "a group the model file names"
+            instead = "choose another reference group" if reference else "remove the statements naming that group"
+            raise OptionError(f"{loaded.source}: '{name}', {what}, has rows in the file but none among those "
+                              f"{kept_by_words(loaded.row_filters)} kept; change the filter, or {instead}")
+
+
 def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
                    design: DesignColumns | None = None, ids: pd.Series | None = None) -> FitResult:
+    refuse_groups_filtered_out(spec, loaded, group, reference_group)
     frame, source = loaded.frame, loaded.source
     ordinal_items = ordinal_items_of(spec, ordinal)
     spec = with_ordinal_levels(spec, ordinal_items)

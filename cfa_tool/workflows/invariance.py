@@ -27,7 +27,8 @@ from cfa_tool.data.matching import chosen_columns
 from cfa_tool.pipeline.inputs import (_described, rows_named, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_categories, keeps_rows_with_gaps,
                                       make_options, moments_for, data_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
-                                      with_design_weights, with_missing_reading, with_rows_read)
+                                      with_design_weights, with_missing_reading, with_rows_read,
+                                      refuse_groups_filtered_out)
 from cfa_tool.assessment.admissibility import WHY_NOT_ESTIMATED, ProblemKind, group_size_problems
 from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.model.description import parameter_words
@@ -409,6 +410,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                                  names_row=names_row, first_data_row=first_data_row,
                                                  rename=rename, chosen=chosen_columns(group, id_column, design=design),
                                                  keeps_gaps=keeps_rows_with_gaps(fit_options.missing))
+    refuse_groups_filtered_out(spec, loaded, group, reference_group)
     frame, source = loaded.frame, loaded.source
     # values that look like no answers, among the rows with a group label: first among the cautions
     # the weights parsed once, as fit parses them, for the check of the design and the groups weighted out
