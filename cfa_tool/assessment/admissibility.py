@@ -28,6 +28,7 @@ from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.model.parameters import ParameterTable
 from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.numerics.linalg import cholesky_log_det
+from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.options import Option
 
 if TYPE_CHECKING:  # a saved fit's estimate rows, for the hints only (a fit that reads none does not import them)
@@ -180,6 +181,9 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the scores: two scored factors whose correlation in the model is near 1, handed out
     # as two traits while their scores measure nearly the same thing
     SCORED_FACTORS_HARDLY_DISTINCT = ("scored factors hardly distinct", "hardly distinct", False)
+    # a possible solution whose two trait factors correlate nearly 1 (:data:`HARDLY_DISTINCT` or more in size): the
+    # data hardly tell them apart, so reading them as two traits may mislead (:func:`indistinct_problems`)
+    FACTORS_HARDLY_DISTINCT = ("factors that correlate nearly 1", "nearly the same factor", False)
     # not of a solution but of the rows a check screened: gaps that leave full-information ML's saturated model
     # without an estimate (pairs of items no row answers together, or too few answers together), which a fit stops at
     # (assessment.missingness.sparse_answers_problem)
@@ -193,6 +197,12 @@ class ProblemKind(enum.Enum):
 #: beside the design)
 DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.DESIGN_DOMINATED, ProblemKind.SMALL_EFFECTIVE_SAMPLE,
                              ProblemKind.FREQUENCY_WEIGHTS_LARGE, ProblemKind.GROUPS_SHARE_STRATA})
+
+
+#: the size of a correlation of two trait factors at or above which they are said to be hardly distinct (a line of
+#: this tool, above the .85 to .90 that common practice reads as a sign that two factors are not distinct: Henseler,
+#: Ringle & Sarstedt 2015 for the HTMT, recalled); the fit's caution and the scores' use it
+HARDLY_DISTINCT = 0.95
 
 
 #: rows per free parameter a common rule of thumb asks for (Bentler & Chou 1987, recalled from memory: as low as 5
@@ -476,6 +486,8 @@ class Problem:
                                         "factor's items",
             K.SCORES_LESS_RELIABLE: "scores less reliable than decisions about individuals usually need",
             K.SCORED_FACTORS_HARDLY_DISTINCT: "scores of factors that correlate nearly 1 in the model",
+            K.FACTORS_HARDLY_DISTINCT: f"a correlation of factors {' and '.join(names)} of "
+                                       f"{journal_decimal(self.value or 0.0, digits=2)}, nearly 1",
             K.SPARSE_ANSWERS: "rows with gaps that answer too few items together for the saturated model of "
                               "full-information ML",
             K.COPIED_ROWS: f"{v.split('.')[0]} rows identical in every column to earlier rows (kept in the analysis)",
@@ -747,12 +759,53 @@ def solution_problems(table: ParameterTable, mats: list[ModelMatrices], theta: n
             se_of = {name: float(se[k] * c) for name, k, c in layout.single_terms[g]}
         found = matrix_problems(m, table.observed, table.latent, label, se_of)
         out.extend(p for p in found if standardized_loadings or p.kind is not ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE)
+        if not any(p.kind.inadmissible for p in found):
+            out.extend(indistinct_problems(table, m, g))
     if table.n_free:
         if layout.bounded:
             out.extend(bound_problems(layout.free_names, theta, table.lower, table.upper))
         if cov_theta is not None:
             out.extend(identification_problems(layout.free_names, se, theta))
     return tuple(out)
+
+
+def indistinct_problems(table: ParameterTable, mats: ModelMatrices, group: int = 0) -> list[Problem]:
+    """Pairs of trait factors of one group whose correlation is at least :data:`HARDLY_DISTINCT` in size (and not
+    beyond 1, which :func:`matrix_problems` calls impossible): factors measured by items, sharing none (a bifactor
+    model's general and specific factors are another question), whose correlation the data estimate: a free
+    covariance, or one implied through higher-order factors; a correlation the model fixes (at 1, to test whether
+    two factors are one) is not the data's finding.  A possible solution, so a caution, not a reason to call it
+    inadmissible (hostile s20: a correlation of .998 was said in the scores' cautions but not in the fit's)."""
+    L, B, phi = mats.L, mats.B, mats.latent_covariance()
+    d = phi.diagonal()
+    traits = np.flatnonzero((L != 0).any(axis=0) & (d > 0))
+    if len(traits) < 2:
+        return []
+    corr = phi[np.ix_(traits, traits)] / np.sqrt(np.outer(d[traits], d[traits]))
+    close = np.abs(np.tril(corr, -1)) >= HARDLY_DISTINCT
+    if not close.any():
+        return []
+    latent = table.latent
+    free = {frozenset(par.variables) for par in table.parameters
+            if par.group == group and par.kind == "factor_covariance" and par.terms}
+    higher = (B != 0).any(axis=1)  # factors that load on another factor
+    label = table.groups[group] if table.multigroup else None
+    out = []
+    for i, j in zip(*(k.tolist() for k in np.nonzero(close))):  # pairs i > j, row by row
+        a, b = int(traits[j]), int(traits[i])
+        shared = bool(((L[:, a] != 0) & (L[:, b] != 0)).any())
+        if shared or abs(corr[i, j]) > 1.0 + 1e-10 or not (frozenset((latent[a], latent[b])) in free
+                                                            or (higher[a] and higher[b])):
+            continue
+        r = float(corr[i, j])
+        out.append(Problem(
+            ProblemKind.FACTORS_HARDLY_DISTINCT, (reference_text("factor_covariance", (latent[a], latent[b])),), r,
+            f"The factors {latent[a]} and {latent[b]} correlate {journal_decimal(r)}: nearly 1, so the data hardly tell them "
+            f"apart, and read as two traits they may mislead.",
+            Note(("compare this model with one in which they are one factor", Command(" (cfa-tool compare)"),
+                  ", and read the distinctness of the factors (HTMT, AVE); common practice reads correlations above "
+                  ".85 or .90 as a sign that two factors are not distinct, a convention, not a law.")), label))
+    return out
 
 
 def replicated_problems(table: ParameterTable, model, thetas: np.ndarray,

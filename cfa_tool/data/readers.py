@@ -937,10 +937,26 @@ def _check_merged_answers(ws, where: str, header: list, body_row: int, skipped: 
             continue
         if ws.cell(rng.min_row, rng.min_col).value in (None, ""):
             continue  # an empty merged range: every cell is empty as shown
+        if _merged_footer(ws, rng):
+            continue  # a line of text under the table ('Source: ...'), read as the footer it is in one cell
         column = header[max(rng.min_col - skipped, 1) - 1]
         raise DataError(f"{where}: cells {rng.coord} of column '{printable(column or '')}' are merged, so only the "
                         f"first holds the value shown and the others would be read as missing; unmerge them and fill "
                         f"every cell")
+
+
+def _merged_footer(ws, rng) -> bool:
+    """Whether a merged range is a line of text under a table (hostile s21: a 'Source: ...' note merged across the
+    table's width stopped the run with advice to fill every cell): one row, text in its first cell, and only such
+    lines or empty rows below it, so the footer rule of every reader (a row of one text field under the data) takes
+    it as it takes the same line in one cell."""
+    if rng.min_row != rng.max_row or not isinstance(ws.cell(rng.min_row, rng.min_col).value, str):
+        return False
+    for row in ws.iter_rows(min_row=rng.min_row + 1, values_only=True):
+        filled = [v for v in row if v not in (None, "")]
+        if len(filled) > 1 or (filled and not isinstance(filled[0], str)):
+            return False
+    return True
 
 
 def _title_above_header(rows: list) -> str | None:

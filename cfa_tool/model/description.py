@@ -18,11 +18,17 @@ from cfa_tool.language.spec import Spec, equality_words
 from cfa_tool.model.parameters import ParameterTable
 
 
+#: the scale of a factor scaled by its variance in the first group, in a later group where its loadings are held equal
+#: across groups: its variance is estimated there, the loadings held equal carrying the scale (metric invariance)
+CARRIED_BY_LOADINGS = "loadings held equal"
+
+
 @dataclass(frozen=True)
 class FactorScale:
     """How one factor's scale is set."""
     factor: str
-    method: str  # "marker", "variance", "effects", "fixed by the model" (a fix the model file states)
+    # "marker", "variance", "effects", "fixed by the model" (a fix the model file states), or :data:`CARRIED_BY_LOADINGS`
+    method: str
     marker: str | None = None  # the indicator whose loading is fixed, for marker scaling
     below_higher_order: bool = False  # its variance parameter is a disturbance variance
     marker_loading: float = 1.0  # the marker's fixed loading: -1 when every candidate is declared reversed
@@ -299,5 +305,8 @@ def _scales(spec: Spec, table: ParameterTable, group: int = 0) -> tuple[FactorSc
             out.append(FactorScale(name, "marker", marker, endogenous, scale[0].offset,
                                    tuple(x for x in before if (name, x) in keyed)))
         else:
-            out.append(FactorScale(name, spec.scaling_of(name), None, endogenous))
+            method = spec.scaling_of(name)
+            if method == "variance" and any(p.kind == "factor_variance" and p.free for p in own):
+                method = CARRIED_BY_LOADINGS  # a later group of a model holding the loadings equal (hostile s21)
+            out.append(FactorScale(name, method, None, endogenous))
     return tuple(out)

@@ -754,7 +754,8 @@ def _summary(m: SampleMoments, observed: tuple[str, ...], gm: GroupMoments) -> D
     ranges = () if rows is None or not len(rows) else tuple(zip(*(e.tolist() for e in answer_extremes(rows))))
     return DataSummary(m.source, m.rows_read, m.rows_dropped, m.n_obs, observed,
                        tuple(gm.mean.tolist()), tuple(np.sqrt(np.diag(gm.covariance)).tolist()),
-                       *((shape.answered, shape.skewness, shape.kurtosis) if shape is not None else ()), ranges=ranges)
+                       *((shape.answered, shape.skewness, shape.kurtosis) if shape is not None else ()), ranges=ranges,
+                       answered_of=None if rows is None else len(rows))
 
 
 @dataclass(frozen=True)

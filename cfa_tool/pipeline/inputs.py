@@ -1486,8 +1486,34 @@ def with_row_filters(result, loaded: LoadedData):
                                         rows_in_file=len(loaded.read_frame)))
 
 
+def refuse_groups_filtered_out(spec: Spec, loaded: LoadedData, group: str | None,
+                               reference_group: str | None = None) -> None:
+    """An error naming the row filter when a group that the model's 'in group' statements or the reference group name
+    has rows in the file but none among the rows the filters kept (hostile s21: 'there is no group 'east side' in
+    the data' sent the user looking for a typo in a group the filter had left out on purpose)."""
+    if group is None or not loaded.row_filters or loaded.read_frame is None or group not in loaded.read_frame.columns:
+        return
+    from cfa_tool.data.filters import kept_by_words
+    from cfa_tool.data.groups import group_keys
+    from cfa_tool.language.checks import all_refs
+
+    named = [r.group for r in all_refs(spec) if r.group is not None]
+    if reference_group is not None:
+        named.append(label_text(reference_group) if isinstance(reference_group, str) else reference_group)
+    kept = set(group_keys(loaded.frame[group]).dropna())
+    before = set(group_keys(loaded.read_frame[group]).dropna())
+    for name in dict.fromkeys(named):
+        if name not in kept and name in before:
+            reference = name == reference_group
+            what = "the reference group" if reference else "a group the model file names"
+            instead = "choose another reference group" if reference else "remove the statements naming that group"
+            raise OptionError(f"{loaded.source}: '{name}', {what}, has rows in the file but none among those "
+                              f"{kept_by_words(loaded.row_filters)} kept; change the filter, or {instead}")
+
+
 def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
                    design: DesignColumns | None = None, ids: pd.Series | None = None) -> FitResult:
+    refuse_groups_filtered_out(spec, loaded, group, reference_group)
     frame, source = loaded.frame, loaded.source
     ordinal_items = ordinal_items_of(spec, ordinal)
     spec = with_ordinal_levels(spec, ordinal_items)
@@ -1504,8 +1530,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
             result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator,
                                   design)
         labels = tuple(g.label for g in result.groups) if group is not None else None
-        summary = missing_summary(_labelled(frame, group), spec.observed_names,  # as for continuous items
-                                  frequency_weights=counted_by(design))
+        summary = missing_summary(_answering(_labelled(frame, group), spec.observed_names),  # as for continuous items
+                                  spec.observed_names, frequency_weights=counted_by(design))
         gaps = summary["n_patterns"] > 1 or not all(summary["coverage"].values())
         return _described(replace(converged(result), warnings=tuple(notes) + result.warnings,
                                   missing_data=summary if gaps else None, labels=_file_labels(loaded, spec)),
@@ -1542,8 +1568,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     analysed = _labelled(frame, group)
     every_row_complete = (sum(m.n_obs for _, m in groups) == len(analysed)
                           and not any(m.rows is not None and np.isnan(m.rows).any() for _, m in groups))
-    summary = None if every_row_complete else missing_summary(analysed, spec.observed_names,
-                                                              frequency_weights=counted_by(design))
+    summary = None if every_row_complete else missing_summary(_answering(analysed, spec.observed_names),
+                                                              spec.observed_names, frequency_weights=counted_by(design))
     group_labels = tuple(label for label, _ in groups) if group is not None else None
     return replace(result, warnings=tuple(notes) + result.warnings,  # with _described's description: one replace
                    missing_data=summary if summary is not None and (summary["n_patterns"] > 1
@@ -1567,6 +1593,14 @@ def counted_by(design: DesignColumns | None) -> str | None:
     if design is None or design.weights is None or design.kind is not WeightKind.FREQUENCY:
         return None
     return design.weights
+
+
+def _answering(frame: pd.DataFrame, names: tuple[str, ...]) -> pd.DataFrame:
+    """The rows that answered some model variable: those every route analyses (a row answering none is left out, with
+    its own note), over which the coverage of each item is counted (hostile s21: 100 rows answering nothing took the
+    least coverage from 99.6% to 82.4%)."""
+    answering = frame[list(names)].notna().any(axis=1)
+    return frame if answering.all() else frame.loc[answering]
 
 
 def _labelled(frame: pd.DataFrame, group: str | None) -> pd.DataFrame:

@@ -263,6 +263,9 @@ class DataSummary:
     # per item, the lowest and highest answer of the rows analysed (empty without rows), so that scoring other data
     # with this fit can name answers outside them (a file coded 0-4 scored with a fit of answers coded 1-5)
     ranges: tuple[tuple[float, float], ...] = ()
+    # the rows the ``answered`` counts are of (None: N), which frequency weights make fewer than N (hostile s21: 190
+    # rows answering an item of a group of 191 rows counted as 400 read as 47.5%)
+    answered_of: int | None = None
     # rows left out for having no value in the group column (counted in rows_dropped, for another reason than gaps)
     without_group: int = 0
     # rows the sampling design's columns left out (counted in rows_dropped): a weight of 0, or a row that answers no

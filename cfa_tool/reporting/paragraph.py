@@ -20,7 +20,7 @@ import numpy as np
 
 from cfa_tool.numbers import user_number, count_text
 from cfa_tool.method import (MISSING_AT_RANDOM, MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
-                              Weighting)
+                              WeightKind, Weighting)
 from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, design_cautions, failure_words
 from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors, uncorrelated_pairs
 from cfa_tool.assessment.reliability import BifactorPart, Keying, miskeyed
@@ -30,7 +30,7 @@ from cfa_tool.data.descriptives import FEW_CATEGORIES
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.names import prose_group, written_name
 from cfa_tool.language.spec import equality_words
-from cfa_tool.model.description import parameter_words
+from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words
 from cfa_tool.note_parts import WORDS as MANUSCRIPT, said as said_in  # ('said' names sentences here)
 from cfa_tool.reporting.numbers import fit_index_text, guides_text, missing, num, p_phrase, signed, unit
 from cfa_tool.reporting.numbers import word_list as _list
@@ -312,18 +312,58 @@ def _declared_words(refs, d) -> str:
 
 
 def _scale_sentence(d) -> str:
-    """How each factor got its scale; with factors scaled differently in some group, those factors group by group."""
-    if not d.group_scales:
-        return _scales_in_words(d.scales, d.scales)
-    shared = [s for s in d.scales if all(s in scales for _, scales in d.group_scales)]
-    sentences = [_scales_in_words(shared, d.scales)] if shared else []
+    """How each factor got its scale; with factors scaled differently in some group, those factors group by group.
+    A factor scaled by its variance in the first group whose variance later groups estimate, its loadings held
+    equal across groups (model.description.CARRIED_BY_LOADINGS), is on one metric: said in a sentence of its own
+    (hostile s21: the paragraph said every group's variances were fixed at 1)."""
+    first = {s.factor: s for s in d.scales}
+    carried = {f: labels for f, labels in _carried_groups(d).items() if f in first}
+    group_scales = []
     for label, scales in d.group_scales:
-        words = _scales_in_words([s for s in scales if s not in shared], scales)
-        sentences.append(f"In group {prose_group(label, d.groups)}, {words[:1].lower()}{words[1:]}")
-    different = [s.factor for s in d.scales if s not in shared]
-    sentences.append(f"Scaled differently in different groups, {_names(different)} "
-                     f"{'are' if len(different) > 1 else 'is'} not on the same metric in every group.")
+        group_scales.append((label, tuple(first[s.factor] if s.factor in carried and s.method == CARRIED_BY_LOADINGS
+                                          else s for s in scales)))
+    shared = [s for s in d.scales if all(s in scales for _, scales in group_scales)]
+    if len(shared) == len(d.scales):
+        sentences = [_scales_in_words(d.scales, d.scales)]
+        if carried:  # the variances fixed in the first group only
+            sentences[0] = sentences[0][:-1] + f" in group {prose_group(d.groups[0], d.groups)}."
+    else:
+        sentences = [_scales_in_words(shared, d.scales)] if shared else []
+        for label, scales in group_scales:
+            own = [s for s in scales if s not in shared]
+            if own:
+                words = _scales_in_words(own, scales)
+                sentences.append(f"In group {prose_group(label, d.groups)}, {words[:1].lower()}{words[1:]}")
+        different = [s.factor for s in d.scales if s not in shared]
+        sentences.append(f"Scaled differently in different groups, {_names(different)} "
+                         f"{'are' if len(different) > 1 else 'is'} not on the same metric in every group.")
+    if carried:
+        sentences.append(_carried_sentence(d, carried))
     return " ".join(sentences)
+
+
+def _carried_groups(d) -> dict[str, list[str]]:
+    """Each factor whose scale the loadings held equal carry in some groups -> those groups."""
+    out: dict[str, list[str]] = {}
+    for label, own in d.group_scales:
+        for s in own:
+            if s.method == CARRIED_BY_LOADINGS:
+                out.setdefault(s.factor, []).append(label)
+    return out
+
+
+def _carried_sentence(d, carried: dict[str, list[str]]) -> str:
+    """Which factors' variances the later groups estimate, their loadings held equal across groups carrying the scale
+    set in the first group."""
+    groups = sorted({g for labels in carried.values() for g in labels}, key=list(d.groups).index)
+    where = (f"group {prose_group(groups[0], d.groups)}" if len(groups) == 1
+             else "groups " + _list([prose_group(g, d.groups) for g in groups]))
+    every = len(carried) == len(d.scales)
+    whose = "the factors" if every and len(carried) > 1 else _names(list(carried))
+    several = len(carried) > 1
+    return (f"In {where}, the variance{'s' if several else ''} of {whose} {'were' if several else 'was'} estimated, "
+            f"the loadings held equal across groups carrying the scale set in group "
+            f"{prose_group(d.groups[0], d.groups)}.")
 
 
 def _scales_in_words(chosen, every) -> str:
@@ -539,7 +579,7 @@ def _lowest_coverage(result) -> float | None:
     neither is at hand)."""
     if result.multigroup and result.groups and all(g.data.answered and g.data.n_obs for g in result.groups):
         # each group judged on its own rows: an item nearly unanswered in one group hides in a pooled share
-        return min(min(g.data.answered) / g.data.n_obs for g in result.groups)
+        return min(min(g.data.answered) / (g.data.answered_of or g.data.n_obs) for g in result.groups)
     if result.missing_data is not None:
         coverage = result.missing_data.get("coverage", {})
         return min(coverage.values()) if coverage else 1.0
@@ -557,7 +597,7 @@ _NOTHING_MISSING = ("no answer on the model's variables was missing, so full-inf
 
 def _sample_phrase(result) -> str:
     data = result.data
-    text = f"N = {count_text(result.n_obs)}" + _filtered(data)
+    text = _n_of_rows(result.n_obs, result)
     full_information = result.method.full_information
     low = _lowest_coverage(result) if full_information else None
     if low is not None and low >= 1.0:  # asked for on complete rows: nothing was missing, nothing was assumed
@@ -641,6 +681,18 @@ def _pairs_by_group(result) -> str:
     labels = [label for label, _ in ranges]
     return " over the groups and " + _list([f"{low} to {high} in group {prose_group(label, labels)}"
                                             for label, (low, high) in ranges])
+
+
+def _n_of_rows(n: float, result) -> str:
+    """'N = 301', with the rows a row filter chose (:func:`_filtered`); under frequency weights N is no count of
+    rows, so the rows it sums are named before the file's ('N = 565, the sum of the frequency weights of 272 of the 480
+    rows in the data file, those where ...'; hostile s21: 'N = 623 of the 480 rows')."""
+    design = getattr(result, "design", None)
+    summed = ""
+    if result.data.row_filters and design is not None and design.columns.weights is not None and \
+            design.columns.kind is WeightKind.FREQUENCY:
+        summed = f", the sum of the frequency weights of {count_text(design.rows)}"
+    return f"N = {count_text(n)}{summed}" + _filtered(result.data)
 
 
 def _filtered(data, file: str = "the data file") -> str:
@@ -1387,7 +1439,7 @@ def _comparison_rows(comparison) -> str:
     data = comparison.results[0].data
     read = _read_as_missing(data)
     kept = _kept_as_answers(data)
-    return (f"N = {count_text(n)}" + _filtered(data) + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
+    return (_n_of_rows(n, comparison.results[0]) + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
             + (f"; {kept}" if kept else ""))
 
 
@@ -1709,6 +1761,13 @@ def invariance_paragraph(result, levels) -> str:
                      f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
                      f"group {prose_group(result.groups[0], result.groups)} were fixed at zero.")
         parts += _scale_sentences(d, getattr(result, "data_problems", ()))
+        carried = next(((step.level, step.result.description) for step in steps[1:] if step.result.description
+                        is not None and any(s.method == CARRIED_BY_LOADINGS for _, own in
+                                            step.result.description.group_scales for s in own)), None)
+        if carried is not None:  # the later groups' variances estimated once loadings are held equal (hostile s21)
+            level, later = carried
+            sentence = _carried_sentence(later, _carried_groups(later))
+            parts.append(f"From the {level} step on, {sentence[0].lower()}{sentence[1:]}")
         departures = _departures(d, shape)
         if departures:
             parts.append(departures.replace("The model also included", "The configural model also included", 1))
@@ -1753,7 +1812,7 @@ def invariance_paragraph(result, levels) -> str:
         declared = _declared_words(step.declared, d)
         earlier = [(f, s.level) for s in steps[1:k] for f in s.freed]  # freed by the search before: still free
         if earlier and not step.partial:
-            kept = _list([f"{parameter_words(f.kind, f.variables, quoted=True)} (freed at the {level} step)"
+            kept = _list([f"{f.words(quoted=True, groups=result.groups)} (freed at the {level} step)"
                           for f, level in earlier])
             extra = f" and {declared}" if step.declared else ""
             parts.append(f"{name} invariance, partial with {kept} still free{extra}, {_held(step, basis)} "
@@ -1768,7 +1827,7 @@ def invariance_paragraph(result, levels) -> str:
             if step.full_result is not None and step.full_result.converged and not step.full_result.admissible:
                 found = _list([_phrase(p, step.full_result) for p in step.full_result.problems if p.kind.inadmissible])
                 with_all += f"; its solution was not admissible: {found}"
-            freed = _list([parameter_words(f.kind, f.variables, quoted=True) for f in step.freed])
+            freed = _list([f.words(quoted=True, groups=result.groups) for f in step.freed])
             state = ("still did not hold" if not step.holds and step.result.admissible else
                      "held" if step.holds and not basis else "met its test" if step.holds else _held(step, basis))
             after = f" but cannot be read as held: it rests on {basis}" if step.holds and basis else ""

@@ -324,25 +324,28 @@ def precision_cautions(result) -> list[str]:
     return lines
 
 
-#: the size of a factor correlation in the model at or above which the scores of the two factors are said to measure
-#: nearly the same thing (a line of this tool, above the .85 to .90 that common practice reads as a sign that two
-#: factors are not distinct, Henseler, Ringle & Sarstedt 2015 for the HTMT, recalled)
-HARDLY_DISTINCT = 0.95
-
-
 def indistinct_cautions(result) -> list[str]:
-    """Pairs of scored factors whose correlation in the model is at least :data:`HARDLY_DISTINCT` in size, per group
-    (hostile s20: two factors correlating .998 were scored as two traits, their score columns correlating 1.000,
-    with the correlation said only inside the paragraph)."""
-    lines = []
+    """Pairs of scored factors whose correlation in the model is at least
+    :data:`~cfa_tool.assessment.admissibility.HARDLY_DISTINCT` in size, per group (hostile s20: two factors correlating
+    .998 were scored as two traits, their score columns correlating 1.000, with the correlation said only inside the
+    paragraph)."""
+    return [line for _, _, _, line in _indistinct_pairs(result)]
+
+
+def _indistinct_pairs(result) -> list[tuple[str, str, str | None, str]]:
+    """(first factor, second factor, group label or None, caution) of :func:`indistinct_cautions`."""
+    from cfa_tool.assessment.admissibility import HARDLY_DISTINCT
+
+    out = []
     for q in result.quality:
         r = np.asarray(q.factor_correlations, dtype=float)
         pairs = [(q.factors[i], q.factors[j], r[i, j]) for i in range(len(q.factors)) for j in range(i)
                  if np.isfinite(r[i, j]) and abs(r[i, j]) >= HARDLY_DISTINCT]
         for a, b, value in pairs:
-            lines.append(f"The factors {b} and {a} correlate {unit(value, 3)} in the model{_where(result, q)}: their "
-                         f"scores measure nearly the same thing, and read as two traits they mislead.")
-    return lines
+            out.append((b, a, q.group, f"The factors {b} and {a} correlate {unit(value, 3)} in the model"
+                                       f"{_where(result, q)}: their scores measure nearly the same thing, and read as "
+                                       f"two traits they mislead."))
+    return out
 
 
 def _precisions_of(result, q) -> list[tuple[ScoreMethod, tuple]]:
@@ -657,8 +660,14 @@ def _with_precision_problems(result):
     said = tuple(Problem(ProblemKind.SCORES_LESS_RELIABLE, (), None, line,
                          "use the scores to compare groups and for research, not for decisions about one person.")
                  for line in precision_cautions(result))
+    pairs = _indistinct_pairs(result)
     said += tuple(Problem(ProblemKind.SCORED_FACTORS_HARDLY_DISTINCT, (), None, line,
                           Note(("compare a model in which they are one factor", Command(" (cfa-tool compare)"),
                                 " before handing their scores out as two traits.")))
-                  for line in indistinct_cautions(result))
-    return replace(result.fit, problems=tuple(result.fit.problems) + said) if said else result.fit
+                  for _, _, _, line in pairs)
+    # the fit's own caution on a pair the scores' caution names says it again: the scores' words stand for both
+    scored = {(frozenset((a, b)), group) for a, b, group, _ in pairs}
+    kept = tuple(p for p in result.fit.problems if not (p.kind is ProblemKind.FACTORS_HARDLY_DISTINCT and any(
+        p.touches("factor_covariance", tuple(pair)) and p.group == group
+        for pair, group in scored)))
+    return replace(result.fit, problems=kept + said) if said else result.fit

@@ -18,7 +18,7 @@ from cfa_tool.method import ADJUSTED_TEST, MissingData, WeightKind
 from cfa_tool.note_parts import Command, Note, TableReference, Text, read, said, saved
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.options import option_in_both
-from cfa_tool.model.description import parameter_words
+from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
 from cfa_tool.reporting.numbers import (fit_index_text, guide_text, missing, num, p_phrase, p_value, short, unit,
                                         word_list)
@@ -364,10 +364,12 @@ def robust_definition(r) -> str:
             "and Brosseau-Liard & Savalei (2014), not the indices of the scaled statistic.")
 
 
-def _scale_phrase(result, factor: str) -> str:
-    """How a factor got its scale, in a few words for the heading of its block."""
+def _scale_phrase(result, factor: str, label: str | None = None) -> str:
+    """How a factor got its scale in the group ``label`` (its own scales where they differ between groups), in a few
+    words for the heading of its block."""
     d = result.description
-    scale = next((s for s in d.scales if s.factor == factor), None) if d is not None else None
+    scales = next((own for g, own in d.group_scales if g == label), d.scales) if d is not None else ()
+    scale = next((s for s in scales if s.factor == factor), None)
     if scale is None:
         return ""
     if scale.method == "marker" and scale.marker:
@@ -375,7 +377,9 @@ def _scale_phrase(result, factor: str) -> str:
     if scale.method == "effects" and scale.counted_reversed:
         return f"scale: loadings average 1, with {', '.join(scale.counted_reversed)} (declared reversed) turned"
     return {"variance": "scale: variance fixed at 1", "effects": "scale: loadings average 1",
-            "fixed by the model": "scale: fixed by the model"}.get(scale.method, f"scale: {scale.method}")
+            "fixed by the model": "scale: fixed by the model",
+            CARRIED_BY_LOADINGS: "scale: loadings held equal across groups, variance estimated"
+            }.get(scale.method, f"scale: {scale.method}")
 
 
 def _marker_reason(scale) -> str:
@@ -432,7 +436,7 @@ def _factor_block(result, group: int, k: int, factor: str, rows: list, residual:
                      "Free", "R²", "Error variance" if not higher else "Disturbance variance", "Its SE", "Its p"] + (
         ["Loading equal across groups", f"{other.capitalize()} equal across groups"] if shared else []) + (
         ["Problem"] if mark_any else [])
-    scale = _scale_phrase(result, factor)
+    scale = _scale_phrase(result, factor, label)
     title = f"Factor {factor}" + (f" ({scale})" if scale else "")
     suffix = "" if label is None else f"_{group}"
     both = sorted({r.variables[1] for r in rows} & {

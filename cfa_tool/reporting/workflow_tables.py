@@ -791,9 +791,9 @@ def invariance_report(result) -> Report:
         CONFIGURAL_ORDINAL_NOTE if ordinal else CONFIGURAL_NOTE]
     if result.freed:
         many = len(result.groups) > 2
-        rows = [[f.level, parameter_words(f.kind, f.variables, article=False), *([str(f.group)] if many else []),
+        rows = [[f.level, f.words(article=False, groups=result.groups), *([str(f.group)] if many else []),
                  num(f.score, 2), _freed_estimates(f)] for f in result.freed]
-        values = [[f.level, parameter_words(f.kind, f.variables, article=False), *([str(f.group)] if many else []),
+        values = [[f.level, f.words(article=False, groups=result.groups), *([str(f.group)] if many else []),
                    f.score, _freed_estimates(f)] for f in result.freed]
         columns = [("Level", "l"), ("Parameter", "l")] + ([("Pointed to by group", "l")] if many else []) + [
             ("Score test", "r"), ("Estimate in each group (SE)", "l")]
@@ -804,7 +804,11 @@ def invariance_report(result) -> Report:
                   "model's scaling, no SE)."
                 + (" Each freed parameter is freed in every group: its equality across the groups is dropped, so it "
                    "may differ between any of them; 'Pointed to by group' names the group whose constraint had the "
-                   "largest score test." if many else ""))
+                   "largest score test." if many else "")
+                + (" A parameter marked 'alone' is freed in that group only: the model file sets it apart in another "
+                   "group, and the search freed the rest of its equality where its score test pointed, the other "
+                   "groups still holding it equal among themselves."
+                   if any(f.alone for f in result.freed) else ""))
         tables.append(_table("freed", "Parameters freed by the partial-invariance search", columns, rows, note,
                              values=([c for c, _ in columns], values)))
         notes.extend(_equal_tests_note(f) for f in result.freed if f.equal_tests)

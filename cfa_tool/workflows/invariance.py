@@ -12,7 +12,7 @@ practice, not tests.
 
 from __future__ import annotations
 
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, replace
 from pathlib import Path
 
@@ -28,7 +28,8 @@ from cfa_tool.pipeline.inputs import (_described, rows_named, analysed_odd_value
                                       refuse_large_robust_route,
                                       make_options, moments_for, data_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
-                                      with_design_weights, with_missing_reading, with_rows_read)
+                                      with_design_weights, with_missing_reading, with_rows_read,
+                                      refuse_groups_filtered_out)
 from cfa_tool.assessment.admissibility import WHY_NOT_ESTIMATED, ProblemKind, group_size_problems
 from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.model.description import parameter_words
@@ -144,10 +145,23 @@ class FreedParameter:
     #: (group, estimate, standard error, free) of the freed parameter in each group in the fit of its step's partial
     #: model: how large the difference is, and which way (new-user trial s20: only the score test was given)
     estimates: tuple[tuple[str, float, float, bool], ...] = ()
+    #: set apart in ``group`` alone (the other groups still equal among themselves): a parameter the model file sets
+    #: apart in one group already, whose remaining equality the search frees where its score test points (hostile
+    #: s21: freeing it in every group clashes with the file's statement, and the search had skipped it)
+    alone: bool = False
+
+    def words(self, article: bool = True, quoted: bool = False, groups: tuple[str, ...] = ()) -> str:
+        """The freed parameter in words (model.description.parameter_words), its group named when it was set apart
+        there alone ('the intercept of clean in group south alone'); one freed in every group names none (the group
+        its score test pointed to is not where it was freed)."""
+        if not self.alone:
+            return parameter_words(self.kind, self.variables, article=article, quoted=quoted)
+        return parameter_words(self.kind, self.variables, self.group, article=article, quoted=quoted,
+                               groups=groups) + " alone"
 
     def to_dict(self) -> dict:
         return clean({"level": self.level, "kind": self.kind, "variables": list(self.variables), "group": self.group,
-                      "score_test": self.score,
+                      "in_this_group_alone": self.alone or None, "score_test": self.score,
                       "equal_score_tests": [{"kind": k, "variables": list(v)} for k, v in self.equal_tests],
                       "estimates": [{"group": g, "estimate": e, "se": se if free else None,
                                      "free": free} for g, e, se, free in self.estimates]})
@@ -397,6 +411,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                                  names_row=names_row, first_data_row=first_data_row,
                                                  rename=rename, chosen=chosen_columns(group, id_column, design=design),
                                                  keeps_gaps=keeps_rows_with_gaps(fit_options.missing))
+    refuse_groups_filtered_out(spec, loaded, group, reference_group)
     frame, source = loaded.frame, loaded.source
     # values that look like no answers, among the rows with a group label: first among the cautions
     # the weights parsed once, as fit parses them, for the check of the design and the groups weighted out
@@ -547,9 +562,11 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             if stopped:
                 break
             top, equal = _first_of_equal(culprits, est.table)
-            exceptions.append(search_exemption(top))
+            exemption = search_exemption(top, exceptions)
+            exceptions.append(exemption)
             freed_here.append(FreedParameter(level, top.kind, _ref_names(top), top.group, top.index,
-                                             tuple((c.kind, _ref_names(c)) for c in equal)))
+                                             tuple((c.kind, _ref_names(c)) for c in equal),
+                                             alone=exemption.group is not None))
             start = None
         freed_here = [replace(f, estimates=freed_estimates(result, f)) for f in freed_here]  # in the partial model
         freed.extend(freed_here)
@@ -607,7 +624,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             impossible.insert(0, f"the {step.level} model with every equality held has a solution that is not admissible ("
                                + "; ".join(p.phrase(groups=labels) for p in full_result.problems if p.kind.inadmissible)
                                + "); the partial search then freed "
-                               + ", ".join(parameter_words(f.kind, f.variables, f.group) for f in step.freed)
+                               + ", ".join(f.words(groups=labels) for f in step.freed)
                                + ": read the freed parameters as a way around an impossible solution, not as evidence "
                                "that only they differ across groups")
     inadmissible = [s for s in steps if s.result.converged and not s.result.admissible]
@@ -1004,10 +1021,15 @@ def _exempts_a_class_of(ref: ParameterRef, classes: tuple[str, ...]) -> bool:
                          else {"residual_covariance", "factor_covariance"}))
 
 
-def search_exemption(candidate: ModificationIndex) -> ParameterRef:
+def search_exemption(candidate: ModificationIndex, exceptions: Sequence[ParameterRef] = ()) -> ParameterRef:
     """The exemption the partial search makes of a score test: no line of the model file (the search chose it), so
-    no error about it can point at the researcher's file."""
-    return ParameterRef(ref_kind(candidate.kind), _ref_names(candidate), None)
+    no error about it can point at the researcher's file.  Freed in every group, unless ``exceptions`` (the model
+    file's and the search's so far) set the parameter apart in some groups alone: then in the score test's group alone,
+    the rest of its equality (a statement in every group beside one in a group is refused by the model language)."""
+    ref = ParameterRef(ref_kind(candidate.kind), _ref_names(candidate), None)
+    if candidate.group is not None and any(r.key() == ref.key() and r.group is not None for r in exceptions):
+        return replace(ref, group=candidate.group)
+    return ref
 
 
 def _first_of_equal(culprits: tuple[ModificationIndex, ...], table) -> tuple[ModificationIndex,
@@ -1043,7 +1065,8 @@ def _buildable_first(culprits: tuple[ModificationIndex, ...], spec: Spec, classe
     counts = ordinal if isinstance(ordinal, dict) else None
     for i, candidate in enumerate(culprits):
         try:
-            build_parameter_table(spec_of_level(spec, classes, [*exceptions, search_exemption(candidate)]), labels,
+            build_parameter_table(spec_of_level(spec, classes, [*exceptions, search_exemption(candidate, exceptions)]),
+                                  labels,
                                   ordinal=counts)
         except ModelError:
             continue
@@ -1066,7 +1089,9 @@ def ref_kind(kind: str) -> str:
 def _may_free(candidate: ModificationIndex, exceptions: list[ParameterRef], spec: Spec, kinds: tuple[str, ...]) -> bool:
     """Keep at least one loading and one intercept per factor held equal, so factor scales and means stay comparable."""
     key = (ref_kind(candidate.kind), _ref_names(candidate))
-    if any((r.kind, r.names) == key for r in exceptions):
+    # set apart in every group, or in the candidate's group already: nothing of it left to free there (one set apart
+    # in other groups alone keeps the equality of the rest, which the search may free: hostile s21)
+    if any((r.kind, r.names) == key and r.group in (None, candidate.group) for r in exceptions):
         return False
     if candidate.kind == "threshold":
         key = ("threshold", (candidate.variables[0],))

@@ -648,3 +648,31 @@ def test_lines_are_counted_as_the_split_text_counts_them():
         for combo in itertools.product(pieces, repeat=n):
             text = "".join(combo)
             assert line_count(text) == len(text_lines(normalise_line_ends(text))), repr(text)
+
+
+def test_a_note_merged_across_the_table_under_the_data_is_a_footer(tmp_path, hs_items):
+    # hostile s21: a 'Source: ...' line under the data, merged across the table's width as spreadsheets lay such lines
+    # out, stopped the run with advice to unmerge it and fill every cell; the same line in one cell is skipped as a
+    # footer, and so is the merged one now: the same fit as the data frame's; a merged range among the answers is
+    # still refused
+    import openpyxl
+
+    data = hs_items[ITEMS].round(6)
+    book = openpyxl.Workbook()
+    sheet = book.active
+    sheet.append(ITEMS)
+    for row in data.itertuples(index=False):
+        sheet.append(list(row))
+    sheet.append([None] * 9)
+    sheet.append(["Source: the 1939 tests, rounded"] + [None] * 8)
+    last = sheet.max_row
+    sheet.merge_cells(f"A{last}:I{last}")
+    path = tmp_path / "footer.xlsx"
+    book.save(path)
+    assert cfa_tool.fit(THREE_FACTORS, path).fit.chi_square == pytest.approx(
+        cfa_tool.fit(THREE_FACTORS, data).fit.chi_square, rel=1e-9)
+    sheet.cell(5, 1, 4.5)
+    sheet.merge_cells("A5:A6")  # a value shown over two rows of answers
+    book.save(path)
+    with pytest.raises(DataError, match="merged"):
+        cfa_tool.fit(THREE_FACTORS, path)
