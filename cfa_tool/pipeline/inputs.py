@@ -19,7 +19,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
     from cfa_tool.assessment.admissibility import Problem
     from cfa_tool.data.halves import RandomHalf
 
-from cfa_tool.numbers import count_text, user_number
+from cfa_tool.numbers import count_text, rounded_number, user_number
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
@@ -1680,7 +1680,7 @@ def extreme_scaling(robust) -> str:
         effective = (robust.df - robust.shift) ** 2 / robust.df
         if effective >= FEW_EFFECTIVE_DF * robust.df:
             return ""
-        return (f"The design-based scale-shifted test is degenerate: its scale is {robust.scale:.3g} and its shift "
+        return (f"The design-based scale-shifted test is degenerate: its scale is {rounded_number(robust.scale)} and its shift "
                 f"{robust.shift:.1f} of {robust.df} degrees of freedom, so its statistic varies like a chi-square on "
                 f"about {effective:.1f} degrees of freedom (the mean-and-variance adjusted df, Satorra & Bentler "
                 f"1994; below {FEW_EFFECTIVE_DF:.0%} of the df is taken as degenerate, a rule of thumb of this tool, "
@@ -1689,9 +1689,9 @@ def extreme_scaling(robust) -> str:
     c = robust.scaling_factor
     if not (np.isfinite(c) and 0 < c < LOW_SCALING):
         return ""
-    return (f"The design-based scaling factor is {c:.3g}: the scaled chi-square is {1 / c:.1f} times the unscaled "
+    return (f"The design-based scaling factor is {rounded_number(c)}: the scaled chi-square is {1 / c:.1f} times the unscaled "
             f"one, whereas clusters usually make the statistics vary more than rows taken as independent (a factor "
-            f"above 1); below {LOW_SCALING:g} is taken as extreme (a rule of thumb of this tool, not a law), and its "
+            f"above 1); below {user_number(LOW_SCALING)} is taken as extreme (a rule of thumb of this tool, not a law), and its "
             f"p-value and the robust RMSEA, CFI and TLI made from it say little.")
 
 

@@ -1694,9 +1694,9 @@ def _items_against_loadings(model, rows: np.ndarray, source: str) -> str | None:
         found += [(items[j], factor, r, loadings[j, k]) for j, r in flagged]
     if not found:
         return None
-    from cfa_tool.model.parameters import two_decimals
+    from cfa_tool.numerics.plain import journal_decimal
 
-    listed = "; ".join(f"'{printable(item)}' correlates {two_decimals(r)} with the rest of {printable(factor)}'s items "
+    listed = "; ".join(f"'{printable(item)}' correlates {journal_decimal(r, digits=2)} with the rest of {printable(factor)}'s items "
                        f"(keyed as the fit keys them), while its loading in the earlier fit is "
                        f"{'positive' if loading > 0 else 'negative'} ({loading:.3f})"
                        for item, factor, r, loading in found[:5]) + (
