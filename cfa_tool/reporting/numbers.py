@@ -22,6 +22,19 @@ def num(value, digits: int = 3) -> str:
     return text.lstrip("-") if float(text) == 0.0 else text
 
 
+def needed_decimals(value: float, fewest: int = 0, most: int = 9, within: float = 0.0) -> int:
+    """The fewest decimals, from ``fewest`` up to ``most``, that print ``value`` neither as 0 nor further from it than
+    ``within`` of its size: 0 for a number the user gave, printed exactly with as many decimals as it has (a target
+    power of .825 as '.825', of .8 as '.80' with ``fewest`` 2), or a share of itself for a computed one (2/3 as '67%'
+    within half a percent of itself, a share of .0001 as '0.01%', never '0%').  The one rule of 'as many decimals as
+    it needs'; ``most`` where none fewer does.  (2/3 as 67%: 67 is 0.5% of 66.67 away, to the last binary digit.)"""
+    for digits in range(fewest, most):
+        shown = round(value, digits)
+        if shown != 0 and abs(shown - value) <= within * abs(value) + 1e-12:  # the slack of binary fractions
+            return digits
+    return most
+
+
 def unit(value, digits: int = 3, beside: float | None = None) -> str:
     """A value bounded by 1 in size without its leading zero (.931), as journals print indices; ``beside``: a guide
     value the reader compares it with, which it then prints on the right side of (:func:`decimals_beside`)."""

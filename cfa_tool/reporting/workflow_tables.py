@@ -23,8 +23,8 @@ from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, cfi_not_de
                                           comparison_paragraph, design_sentence,
                                           mcar_score_tests, reversed_across_groups, reversed_loadings,
                                           invariance_paragraph, replication_paragraph)
-from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text, missing, num, p_phrase, p_value, short,
-                                        signed, signed_num, unit, word_list)
+from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text, missing, needed_decimals, num,
+                                        p_phrase, p_value, short, signed, signed_num, unit, word_list)
 from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
 from cfa_tool.workflows.invariance import CONFIGURAL_INDICES
@@ -1267,8 +1267,7 @@ def power_report(result) -> Report:
             ["Significance level", unit(result.alpha, 2), result.alpha]]
     if result.power is not None:
         rows.append([f"Power with N = {count_text(result.n_obs)}", unit(result.power), result.power])
-    digits = next((d for d in range(2, 9) if round(result.target_power, d) == result.target_power), 9)
-    rows.append([f"Smallest N for power {unit(result.target_power, digits)}", str(result.required_n), result.required_n])
+    rows.append([f"Smallest N for power {unit(result.target_power, needed_decimals(result.target_power, fewest=2))}", str(result.required_n), result.required_n])
     planned = getattr(result, "clusters", None)  # a planned cluster sample (workflows.power.cluster_plan)
     if planned is not None:
         if planned.intraclass is not None:
