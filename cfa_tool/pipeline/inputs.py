@@ -537,9 +537,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")
         spec = load_spec(model)
-        refuse_ordinal_for_summary(spec, ordinal, ordinal_estimator)
-        refuse_means_for_summary(spec)
-        refuse_for_summary_statistics(spec, "a covariance matrix" if covariance is not None else f"'{data}'")
+        refuse_for_summary(spec, "a covariance matrix" if covariance is not None else f"'{data}'", ordinal,
+                           ordinal_estimator)
         if covariance is not None:
             if data is not None:
                 raise OptionError("give either data or a covariance matrix, not both")
@@ -2207,7 +2206,18 @@ def refuse_item_named_all(items) -> None:
                           "(ordinal=['all'], or --ordinal '\"all\"' on the command line), or rename it")
 
 
-def refuse_ordinal_for_summary(spec: Spec, ordinal, ordinal_estimator) -> None:
+def refuse_for_summary(spec: Spec, source: str, ordinal=None, ordinal_estimator=None) -> None:
+    """The one gate of a model fitted to summary statistics (``source``: them as a message names them, a file or 'a
+    covariance matrix'), called once by each route that takes them (fit, check, compare): what the model or the
+    options ask that a matrix cannot give is an error, at the statement where a statement asks it: ordinal items
+    (by the ``ordinal`` option, an ordinal estimator or an 'ordinal' statement), intercepts and factor means, and
+    'answers' statements (data.answer_words.refuse_for_summary_statistics)."""
+    _refuse_ordinal_for_summary(spec, ordinal, ordinal_estimator)
+    _refuse_means_for_summary(spec)
+    refuse_for_summary_statistics(spec, source)
+
+
+def _refuse_ordinal_for_summary(spec: Spec, ordinal, ordinal_estimator) -> None:
     """Ordinal items, named by the ``ordinal`` option (or an ordinal estimator chosen) or by an 'ordinal' statement of
     the model, need the rows of answers (their thresholds and polychoric correlations): with summary statistics an
     error, naming the statement's file and line when the model asks for them."""
@@ -2220,7 +2230,7 @@ def refuse_ordinal_for_summary(spec: Spec, ordinal, ordinal_estimator) -> None:
                          f"give the rows of answers", first.location, spec.source_line(first.location))
 
 
-def refuse_means_for_summary(spec: Spec) -> None:
+def _refuse_means_for_summary(spec: Spec) -> None:
     """A statement about an intercept or a factor mean cannot apply to summary statistics, which are fitted by their
     covariances alone (no groups, no full-information ML): an error at the statement that says so, rather than the
     general error's advice to give groups or full-information ML, both refused for summary statistics (hostile s20)."""
@@ -2434,9 +2444,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         if reference_group is not None:
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
         spec = load_spec(model)
-        refuse_ordinal_for_summary(spec, ordinal, None)
-        refuse_means_for_summary(spec)
-        refuse_for_summary_statistics(spec, f"'{data}'")
+        refuse_for_summary(spec, f"'{data}'", ordinal)
         moments, _ = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
         table = build_parameter_table(spec)
