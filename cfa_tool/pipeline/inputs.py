@@ -19,7 +19,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
     from cfa_tool.assessment.admissibility import Problem
     from cfa_tool.data.halves import RandomHalf
 
-from cfa_tool.numbers import count_text, rounded_number, user_number
+from cfa_tool.numbers import count_text, counted, rounded_number, user_number
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
@@ -1453,8 +1453,10 @@ def without_group_problem(without: int, read: int, group: str | None) -> Problem
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     return Problem(ProblemKind.ROWS_LEFT_OUT, (), float(without),
-                   f"{count_text(without)} of {count_text(read)} rows ({100 * without / read:.0f}%) have no value in the group column "
-                   f"'{group}' and were left out, and the rows left out may differ from those kept.",
+                   f"{count_text(without)} of {count_text(read)} rows ({100 * without / read:.0f}%) "
+                   f"{'has' if without == 1 else 'have'} no value in the group column '{group}' and "
+                   f"{'was' if without == 1 else 'were'} left out, and the "
+                   f"{'row' if without == 1 else 'rows'} left out may differ from those kept.",
                    "find out why they have no group: give rows that belong to a group its label, and say in the "
                    "report why the others were left out.")
 
@@ -2000,12 +2002,15 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
     if not gaps:
         return replace(fit_options, missing=MissingData.LISTWISE), []
     if fit_options.test is FitTest.SATORRA_BENTLER:
-        raise OptionError(f"{gaps} rows have missing answers on model variables, so the fit uses full-information ML, "
+        raise OptionError(f"{counted(gaps, 'row')} {'has' if gaps == 1 else 'have'} missing answers on model "
+                          f"variables, so the fit uses full-information ML, "
                           f"whose robust test is Yuan-Bentler ({Option.ROBUST} chooses it); for the Satorra-Bentler test "
                           f"of the complete rows only, choose {Option.INCOMPLETE_ROWS.given('listwise')}")
-    note = Note((f"{count_text(gaps)} of {count_text(rows)} rows miss some answers on model variables; every answer is "
+    note = Note((f"{count_text(gaps)} of {count_text(rows)} rows {'misses' if gaps == 1 else 'miss'} some answers on "
+                 f"model variables; every answer is "
                  f"used by full-information ML, the default when answers are missing; a fit of the complete rows only",
-                 Command(f" ({Option.INCOMPLETE_ROWS.given('listwise')})"), " would leave those rows out"
+                 Command(f" ({Option.INCOMPLETE_ROWS.given('listwise')})"),
+                 f" would leave {'that row' if gaps == 1 else 'those rows'} out"
                  + (("; under the sampling design the test is design-based, with the Yuan-Bentler scaling of "
                      "full-information ML" if design is not None and design.robust else
                      "; the robust test with full-information ML is the Yuan-Bentler one") if robust else "")))
