@@ -7,6 +7,7 @@ import re
 
 from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.note_parts import Command, Note, Text, View, said
+from cfa_tool.numbers import user_number
 from cfa_tool.numerics.plain import decimals_beside
 
 
@@ -143,10 +144,12 @@ def _with_sign(text: str) -> str:
 
 
 def short(value) -> str:
-    """A value below 1 as given (no trailing zeros) without its leading zero (.05, .08)."""
+    """A value below 1 as given (no trailing zeros) without its leading zero (.05, .08): a user's number
+    (cfa_tool.numbers.user_number, never rounded: a significance level of .005 was printed '.01', an intraclass
+    correlation of .0625 '0.062') or a guide value."""
     if missing(value):
         return ""
-    text = f"{value:g}"
+    text = user_number(value)
     return text[1:] if text.startswith("0.") else ("-" + text[2:] if text.startswith("-0.") else text)
 
 

@@ -78,21 +78,3 @@ def test_noise_reads_tli_not_defined_in_every_view(tmp_path, capsys):
                     + [cell.text for table in document.tables for row in table.rows for cell in row.cells])
     assert "TLI = not defined" in word
 
-
-def test_an_invariance_ladder_says_tli_is_not_defined_too(tmp_path, capsys):
-    from tests.workflows.test_cfi_not_defined import ONE as LADDER_MODEL
-    from tests.workflows.test_cfi_not_defined import _weak
-    import pandas as pd
-
-    a, b = _weak(200, 1), _weak(200, 2)
-    a["grp"], b["grp"] = "a", "b"
-    data = tmp_path / "groups.csv"
-    pd.concat([a, b]).to_csv(data, index=False)
-    model = tmp_path / "one.cfa"
-    model.write_text(LADDER_MODEL)
-    markdown = tmp_path / "ladder.md"
-    assert main(["invariance", str(model), "--data", str(data), "--group-column", "grp", "--decide-by", "fit-change",
-                 "--markdown", str(markdown)]) == 0
-    flat = " ".join(markdown.read_text().split())
-    assert "CFI and TLI were not defined for the configural" in flat
-    assert "TLI divides by at most 0" in flat
