@@ -69,6 +69,13 @@ def rounded_number(value: float, digits: int = 3) -> str:
     return user_number(float(f"{value:.{digits}g}"))
 
 
+def counted(count: int, noun: str, plural: str | None = None) -> str:
+    """A count with its noun in the number it takes: '1 row', '2 rows', '1,204 rows' (:func:`count_text`); ``plural``
+    where it is not the noun with an 's' ('1 category', '2 categories').  Messages that could say '1 rows' (the s20
+    closing note) count by it."""
+    return f"{count_text(count)} {noun if count == 1 else plural or noun + 's'}"
+
+
 def count_text(value: float) -> str:
     """A count or a sum (rows, a sum of weights) as the tool prints N: digits grouped by thousands, to two decimals
     only where the value has a fraction ('5,000,136', '1,234.56'), never in exponent form (hostile s19: 'sum

@@ -20,7 +20,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from cfa_tool.numbers import user_number, count_text
+from cfa_tool.numbers import count_text, counted, user_number
 from cfa_tool.errors import OptionError
 from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.model.description import label_words, split_label
@@ -422,6 +422,7 @@ class Problem:
         names = tuple(written(n) for n in _names(self.parameters[0])) if self.parameters else ()
         v = f"{self.value:.2f}" if self.value is not None and np.isfinite(self.value) else ""
         keyed = [written(_names(label)[-1]) for label in self.parameters]  # the items of loadings, for their kinds
+        rows = counted(int(self.value), "row") if v else "rows"  # a count of rows, where the problem is one
         K = ProblemKind
         text = {
             K.NOT_CONVERGED: "the estimation did not converge",
@@ -459,7 +460,7 @@ class Problem:
                                       "missing values, or as text such as 'refused') were treated as missing",
             K.FEW_ANSWERS: "items answered by few of the rows",
             K.FEW_ANSWERED_TOGETHER: "pairs of items answered together by few of the rows",
-            K.ROWS_LEFT_OUT: f"{v.split('.')[0]} rows left out listwise for a missing answer",
+            K.ROWS_LEFT_OUT: f"{rows} left out listwise for a missing answer",
             K.SCALE_ENDS_UNREACHED: "a scale declared for reverse-keyed items whose ends no answer reaches",
             K.NEARLY_CONSTANT: "items answered alike by all rows but a few",
             K.SELECTED_ON_ITEM: "a row filter selecting rows by their answers to a model item (range restriction)",
@@ -490,7 +491,7 @@ class Problem:
                                        f"{journal_decimal(self.value or 0.0, digits=2)}, nearly 1",
             K.SPARSE_ANSWERS: "rows with gaps that answer too few items together for the saturated model of "
                               "full-information ML",
-            K.COPIED_ROWS: f"{v.split('.')[0]} rows identical in every column to earlier rows (kept in the analysis)",
+            K.COPIED_ROWS: f"{rows} identical in every column to earlier rows (kept in the analysis)",
             K.SAME_ANSWER_ROWS: "rows that gave the same answer to every item, reverse-worded ones included (kept in "
                                 "the analysis)",
             K.FACTOR_POINTS_AGAINST_ITEMS: f"factor {', '.join(names)} pointing against its items (a higher score "

@@ -207,19 +207,22 @@ def cfi_value(chi_square: float, df: int, base_chi: float, base_df: int) -> floa
 
 def tli_from(noncentrality: float, df: int, baseline_noncentrality: float, base_df: int) -> float:
     """1 - (lambda / df) / (lambda_baseline / df_baseline) (Tucker & Lewis 1973), the noncentralities as estimated,
-    not cut at 0: TLI is not normed (:data:`TLI_NOT_CUT`), whichever test it is computed from."""
-    if df <= 0 or base_df <= 0 or baseline_noncentrality == 0:
+    not cut at 0: TLI is not normed (:data:`TLI_NOT_CUT`), whichever test it is computed from.  Not defined (NaN)
+    when the baseline model's noncentrality is at most 0 (its chi-square at most its df): the index then divides by
+    nothing or by less than nothing, and the baseline model it compares with fits (the s20 closing note: TLI -.772
+    printed beside a CFI not defined)."""
+    if df <= 0 or base_df <= 0 or not baseline_noncentrality > 0:
         return float("nan")
     return float(1.0 - (noncentrality / df) / (baseline_noncentrality / base_df))
 
 
 def tli_value(chi_square: float, df: int, base_chi: float, base_df: int) -> float:
     """(chi2_b / df_b - chi2 / df) / (chi2_b / df_b - 1), the same index as :func:`tli_from` written with
-    the statistics."""
+    the statistics, and not defined where it is not (chi2_b / df_b at most 1)."""
     if df <= 0 or base_df <= 0:
         return float("nan")
     base_ratio = base_chi / base_df
-    if base_ratio == 1.0:
+    if not base_ratio > 1.0:
         return float("nan")
     return float((base_ratio - chi_square / df) / (base_ratio - 1.0))
 

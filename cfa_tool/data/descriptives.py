@@ -151,9 +151,10 @@ def few_category_note(few: tuple[str, ...], names: tuple[str, ...]) -> Note | No
     which = "all" if len(few) == len(names) else ",".join(written_name(x) for x in few)
     if which != "all" and which != ",".join(few):  # names written in double quotes: the list in single quotes
         which = f"'{which}'"
-    return Note((f"{len(few)} of the {len(names)} items ({listed}) have at most {FEW_CATEGORIES} answer categories "
-                 f"and are analysed here as continuous by maximum likelihood; with so few categories loadings tend to "
-                 f"come out too small and the fit to be misjudged, and analysing the answers as ordered categories is "
+    one = len(few) == 1
+    return Note((f"{len(few)} of the {len(names)} items ({listed}) {'has' if one else 'have'} at most {FEW_CATEGORIES} "
+                 f"answer categories and {'is' if one else 'are'} analysed here as continuous by maximum likelihood; "
+                 f"with so few categories loadings tend to come out too small and the fit to be misjudged, and analysing the answers as ordered categories is "
                  f"usually preferred (Rhemtulla, Brosseau-Liard & Savalei 2012)",
                  Command(": " + option_in_both(f"--ordinal {which}",
                                                "ordinal=" + repr("all" if which == "all" else list(few)))),

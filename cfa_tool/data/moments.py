@@ -19,6 +19,7 @@ from cfa_tool.errors import DataError, EstimationError, clipped, printable
 from cfa_tool.options import Option
 from cfa_tool.method import MissingData
 from cfa_tool.numbers import number as strict_number
+from cfa_tool.numbers import rounded_number, user_number
 from cfa_tool.numerics.linalg import cholesky_log_det
 
 
@@ -358,7 +359,7 @@ def _checked_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str,
     if (largest > LARGEST_VALUE).any():
         col = int(np.flatnonzero(largest > LARGEST_VALUE)[0])
         row = int(np.nanargmax(np.abs(values[:, col])))
-        raise DataError(f"{source}: column '{printable(names[col])}' holds {values[row, col]:.3g} "
+        raise DataError(f"{source}: column '{printable(names[col])}' holds {user_number(values[row, col])} "
                         f"({cell_words(frame, names[col], row_numbers(frame)[row])}), too "
                         f"large to compute with; if the value is right, divide the column by a power of ten (the fit does "
                         f"not change), otherwise correct it")
@@ -371,17 +372,17 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
     constant = np.flatnonzero((sds == 0) | (sds <= 1e-13 * np.abs(means)))
     if len(constant):
         j = constant[0]
-        raise DataError(f"{source}: column '{printable(names[j])}' has the same value ({means[j]:g}) in every row used, so "
+        raise DataError(f"{source}: column '{printable(names[j])}' has the same value ({rounded_number(means[j], 12)}) in every row used, so "
                         f"it carries no information")
     tiny = np.flatnonzero(sds < SMALLEST_SPREAD)
     if len(tiny):
         j = tiny[0]
-        raise DataError(f"{source}: the values of column '{printable(names[j])}' differ by no more than about {sds[j]:.1g}, "
+        raise DataError(f"{source}: the values of column '{printable(names[j])}' differ by no more than about {rounded_number(sds[j], 1)}, "
                         f"too little to compute with; multiply the column by a power of ten (the fit does not change)")
     if sds.max() > LARGEST_SPREAD_RATIO * sds.min():
         hi, lo = int(np.argmax(sds)), int(np.argmin(sds))
-        raise DataError(f"{source}: the standard deviations of the columns differ by a factor of {sds[hi] / sds[lo]:.1g} "
-                        f"('{printable(names[hi])}' {sds[hi]:.3g}, '{printable(names[lo])}' {sds[lo]:.3g}), too much to "
+        raise DataError(f"{source}: the standard deviations of the columns differ by a factor of {rounded_number(sds[hi] / sds[lo], 1)} "
+                        f"('{printable(names[hi])}' {rounded_number(sds[hi])}, '{printable(names[lo])}' {rounded_number(sds[lo])}), too much to "
                         f"compute with accurately; put the items on comparable scales by multiplying or dividing columns "
                         f"by powers of ten (the fit does not change)")
     _check_combinations(cov / np.outer(sds, sds), names, source)
@@ -399,7 +400,7 @@ def _check_combinations(corr: np.ndarray, names: tuple[str, ...], source: str, a
     vals, vecs = np.linalg.eigh(corr)
     if vals[0] < -1e-8:
         raise DataError(
-            f"{source}: the matrix is not positive semi-definite (smallest eigenvalue of the correlations {vals[0]:.3g}), so "
+            f"{source}: the matrix is not positive semi-definite (smallest eigenvalue of the correlations {rounded_number(vals[0])}), so "
             f"it cannot be the covariance matrix of one set of complete rows; check the values for typing errors (a matrix "
             f"computed from pairwise-complete rows can have this problem too)")
     if vals[0] < 1e-10:

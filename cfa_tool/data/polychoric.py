@@ -37,6 +37,7 @@ from scipy.special import ndtr  # the normal cdf over arrays in inner loops (num
 
 from cfa_tool.numbers import user_number
 from cfa_tool.numerics import distributions as dist
+from cfa_tool.numerics.plain import journal_decimal
 
 from cfa_tool.data.answer_words import CODED_BY_STATEMENT, answers_statement
 from cfa_tool.data.descriptives import rare_answer_limit
@@ -464,10 +465,10 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         i, j = np.argwhere(np.tril(near, -1))[0]
         if sparse is not None and sparse.pair == {names[i], names[j]}:  # two rows agreeing are no near duplicates
             raise DataError(f"{source}{where}: items '{printable(names[j])}' and '{printable(names[i])}' correlate "
-                            f"{R[i, j]:.4f}, yet {sparse.words}, which says nothing of answers given alike"
+                            f"{near_one(R[i, j])}, yet {sparse.words}, which says nothing of answers given alike"
                             f"{sparse.remedy(bool(where))}")
         raise DataError(f"{source}{where}: items '{printable(names[j])}' and '{printable(names[i])}' correlate "
-                        f"{R[i, j]:.4f}: they give (nearly) the same answers, so one adds nothing and the correlation "
+                        f"{near_one(R[i, j])}: they give (nearly) the same answers, so one adds nothing and the correlation "
                         f"matrix is singular; drop one of them")
     if np.linalg.eigvalsh(R)[0] <= 1e-8 and sparse is not None:  # the likely cause: a pair's correlation from few rows
         raise DataError(f"{source}{where}: the polychoric correlation matrix is not positive definite: "
@@ -573,6 +574,17 @@ def _rare_listed(rare: list[tuple[str, float, int]]) -> str:
 
 
 NEAR_DUPLICATE = 0.995  # a correlation this close to 1 in size means two items answer alike (the search stops at .999)
+
+
+def near_one(r: float) -> str:
+    """A polychoric or polyserial correlation near +/-1 in a message, as the reports print correlations (no leading
+    zero; on its side of :data:`NEAR_DUPLICATE`): '.9962', or 'about 1' where the search stopped at its bound
+    (:data:`RHO_BOUND`), beyond which the estimate may lie; '0.9990' was printed, the bound to four decimals, a value
+    the estimate never had (the s20 closing note)."""
+    if abs(r) >= RHO_BOUND - 1e-6:  # a bounded search ends within its tolerance of the bound
+        return (f"about {'-' if r < 0 else ''}1 (the estimate stopped at the search's bound of "
+                f"{'-' if r < 0 else ''}{journal_decimal(RHO_BOUND)})")
+    return journal_decimal(r, NEAR_DUPLICATE if r > 0 else -NEAR_DUPLICATE)
 
 
 def check_whole_answers(values: np.ndarray, frame: pd.DataFrame, names: tuple[str, ...], source: str,

@@ -37,7 +37,7 @@ from cfa_tool.errors import DataError, clipped, printable
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 from cfa_tool.input_files import base_name, check_input_path, input_bytes, line_count, utf16_text
-from cfa_tool.numbers import number
+from cfa_tool.numbers import counted, number
 
 if TYPE_CHECKING:
     from cfa_tool.data.moments import ItemColumns
@@ -1632,7 +1632,7 @@ def _names_row_start(names_row, rows: int, first: int, where: str,
         raise DataError(f"the row of column names ({option}) must be a row number (1 or more), not "
                         f"{clipped(repr(names_row), 40)}")
     if names_row > rows:
-        raise DataError(f"{where} has {rows} rows, so row {names_row} ({option}) cannot hold the column names")
+        raise DataError(f"{where} has {counted(rows, 'row')}, so row {names_row} ({option}) cannot hold the column names")
     if names_row - 1 < first:
         raise DataError(f"{where}: row {names_row} ({option}) is empty; the first row with values is "
                         f"{first + 1}")
@@ -1653,7 +1653,7 @@ def _first_data_start(first_data_row, names_row: int, last: int, where: str, nam
         raise DataError(f"{where}: row {first_data_row} ({option.given(first_data_row)}) is not below the column "
                         f"names, which are in row {names_row}; give the row where the answers start")
     if first_data_row > last:
-        raise DataError(f"{where} has {last} rows, so row {first_data_row} ({option.given(first_data_row)}) "
+        raise DataError(f"{where} has {counted(last, 'row')}, so row {first_data_row} ({option.given(first_data_row)}) "
                         f"cannot be the first row of data")
     if first_data_row > names_row + 1 and notes is not None:
         notes.append(_skipped_note(where, names_row, names_row + 1, first_data_row, option))

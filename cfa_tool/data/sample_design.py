@@ -14,7 +14,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import count_text
+from cfa_tool.numbers import count_text, user_number
 from cfa_tool.data.kept_rows import row_of
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.options import Option
@@ -755,11 +755,11 @@ def _check_weight_values(values: np.ndarray, rows: np.ndarray, columns: DesignCo
                             f"numbers, not {float(values[np.argmax(fraction)])!r} (for sampling weights leave out the "
                             f"kind)")  # the value as given: ':g' showed 2.0000000001 as 2 (hostile trial s16)
         if values.sum() > MAX_FREQUENCY_TOTAL:
-            raise DataError(f"{source}: the frequency weights in column '{printable(name)}' count {values.sum():.3g} rows, "
+            raise DataError(f"{source}: the frequency weights in column '{printable(name)}' count {count_text(values.sum())} rows, "
                             f"more than the {MAX_FREQUENCY_TOTAL:,.0f} the tool computes with")
     elif values.max(initial=0.0) > 0 and not WEIGHT_RANGE[0] <= values.max() <= WEIGHT_RANGE[1]:
-        raise DataError(f"{source}: the sampling weights in column '{printable(name)}' reach {values.max():.3g}, outside "
-                        f"the range the tool computes with ({WEIGHT_RANGE[0]:g} to {WEIGHT_RANGE[1]:g}); sampling weights "
+        raise DataError(f"{source}: the sampling weights in column '{printable(name)}' reach {user_number(values.max())}, outside "
+                        f"the range the tool computes with ({user_number(WEIGHT_RANGE[0])} to {user_number(WEIGHT_RANGE[1])}); sampling weights "
                         f"count only relative to each other, so divide the column by its mean")
     elif values.max(initial=0.0) > 0:
         relative = values / values.max()  # Kish's (1965) effective sample size, free of the weights' scale

@@ -277,7 +277,7 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
     if not np.all(np.isfinite(matrix)):
         raise DataError(f"{source}: the matrix holds a missing or infinite value")
     if np.abs(matrix).max() > LARGEST_VALUE:
-        raise DataError(f"{source}: the matrix holds {np.abs(matrix).max():.3g}, too large to compute with; rescale the "
+        raise DataError(f"{source}: the matrix holds {user_number(matrix.flat[np.argmax(np.abs(matrix))])}, too large to compute with; rescale the "
                         f"variables (the fit does not change)")
     if not np.allclose(matrix, matrix.T, rtol=1e-6, atol=1e-8 * max(1.0, float(np.abs(matrix).max()))):
         i, j = np.argwhere(~np.isclose(matrix, matrix.T, rtol=1e-6, atol=1e-8 * max(1.0, float(np.abs(matrix).max()))))[0]
@@ -305,10 +305,10 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
         if len(means) != p or not np.all(np.isfinite(means)):
             raise DataError(f"{source}: give {p} finite means, one per variable ({len(means)} given)")
         if np.abs(means).max() > LARGEST_VALUE:
-            raise DataError(f"{source}: a mean of {np.abs(means).max():.3g} is too large to compute with; rescale the "
+            raise DataError(f"{source}: a mean of {user_number(means[np.argmax(np.abs(means))])} is too large to compute with; rescale the "
                             f"variables (the fit does not change)")
     if sds is not None and (sds.max() > LARGEST_VALUE ** 0.5 or sds.min() < SMALLEST_SPREAD):
-        raise DataError(f"{source}: standard deviations from {sds.min():.3g} to {sds.max():.3g} cannot be computed with; "
+        raise DataError(f"{source}: standard deviations from {user_number(sds.min())} to {user_number(sds.max())} cannot be computed with; "
                         f"rescale the variables (the fit does not change)")
     if n_obs <= p:
         raise DataError(f"{source}: {n_obs} observations for {p} variables; the analysis needs more observations than variables")

@@ -29,6 +29,7 @@ from cfa_tool.assessment.fit_indices import cfi_from, rmsea_from, rmsea_interval
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.inference.design import GroupsMeat, groups_meat, moment_contributions, moment_covariance
 from cfa_tool.method import FitTest
+from cfa_tool.numbers import rounded_number
 from cfa_tool.model.implied import StructuredModel
 
 
@@ -338,7 +339,7 @@ def robust_fit(chi_square: float, df: int, trace_ug: float, base_chi: float, bas
 def _not_positive(c: float, cb: float, test: FitTest) -> str:
     """Why a scaled statistic cannot be computed from scaling factors ``c`` (the model's) and ``cb`` (the baseline
     model's), in a researcher's words; empty when both are positive."""
-    bad = [f"{what} scaling factor came out {value:.3g}" for what, value in (("the model's", c), ("the baseline "
+    bad = [f"{what} scaling factor came out {rounded_number(value)}" for what, value in (("the model's", c), ("the baseline "
            "model's", cb)) if not (value > 0 and np.isfinite(value))]
     if not bad:
         return ""

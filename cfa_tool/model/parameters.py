@@ -33,7 +33,8 @@ from typing import Callable
 
 import numpy as np
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import rounded_number, user_number
+from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import ModelError, printable
 from cfa_tool.options import Option
@@ -1172,11 +1173,6 @@ def as_written(par) -> str:
     return reference_text(word, par.variables)
 
 
-def two_decimals(value: float) -> str:
-    """A standardized value (a correlation, a standardized loading) to two decimals without the leading zero: '-.70'."""
-    return f"{value:.2f}".replace("0.", ".", 1)
-
-
 def _values(how: str) -> str:
     return "fixed values" if how == "fixed at" else "start values"
 
@@ -1237,8 +1233,10 @@ def given_values_possible(spec: Spec, table: ParameterTable, values: np.ndarray,
         bound = np.sqrt(va * vb)
         if abs(covariance) > bound * (1 + 1e-9):
             correlation = f", a correlation of {covariance / bound:.2f}" if bound > 0 else ""
-            raise fail(ref, how, f"{user_number(value)}, beyond what the variances of {a} ({va:.3g}) and {b} ({vb:.3g}) allow"
-                                 f"{correlation}")
+            shown = [user_number(v) if (variance, (x,)) in settings else rounded_number(v)  # given, or computed
+                     for x, v in ((a, va), (b, vb))]
+            raise fail(ref, how, f"{user_number(value)}, beyond what the variances of {a} ({shown[0]}) and {b} "
+                                 f"({shown[1]}) allow{correlation}")
 
 
 class ImpossibleAtStart(ModelError):
@@ -1325,7 +1323,7 @@ def impossible_fixed_values(table: ParameterTable, source: str, starts: bool = T
         # singular matrix, not an impossible one
         smallest = np.linalg.eigvalsh(corr)[0]
         if smallest <= 0 if starts else smallest < -1e-9:
-            values = [f"{two_decimals(corr[i, j])} ({members[i]} with {members[j]})"  # each pair with its value
+            values = [f"{journal_decimal(corr[i, j], digits=2)} ({members[i]} with {members[j]})"  # each pair with its value
                       for i in range(len(members)) for j in range(i + 1, len(members))]
             what = "factor correlations" if kind == "factor" else "residual correlations"
             hows = {pairs[frozenset((members[i], members[j]))][1] for i in range(len(members)) for j in range(i)}

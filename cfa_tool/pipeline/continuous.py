@@ -602,10 +602,12 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
 
 def helpers_only_note(count: int, read: int) -> str:
     """The note on the rows that answer no item but a missing-data helper: analysed, and why."""
-    return (f"{count_text(count)} of {count_text(read)} rows answer none of the model's items but a missing-data helper: they are analysed "
-            f"and counted in N, entering the likelihood of items and helpers through the helpers' values (Graham's "
-            f"2003 saturated-correlates model), which moves the items' estimated means and covariances as the "
-            f"helpers' correlations with the items imply; left out, they would leave a sample selected by the helpers")
+    one = count == 1
+    return (f"{count_text(count)} of {count_text(read)} rows {'answers' if one else 'answer'} none of the model's "
+            f"items but a missing-data helper: {'it is' if one else 'they are'} analysed and counted in N, entering "
+            f"the likelihood of items and helpers through the helpers' values (Graham's 2003 saturated-correlates "
+            f"model), which moves the items' estimated means and covariances as the helpers' correlations with the "
+            f"items imply; left out, {'it' if one else 'they'} would leave a sample selected by the helpers")
 
 
 def _answering_items(moments: SampleMoments, answered: np.ndarray) -> SampleMoments:

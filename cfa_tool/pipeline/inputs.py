@@ -19,7 +19,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
     from cfa_tool.assessment.admissibility import Problem
     from cfa_tool.data.halves import RandomHalf
 
-from cfa_tool.numbers import count_text, user_number
+from cfa_tool.numbers import count_text, counted, rounded_number, user_number
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
@@ -534,9 +534,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")
         spec = load_spec(model)
-        refuse_ordinal_for_summary(spec, ordinal, ordinal_estimator)
-        refuse_means_for_summary(spec)
-        refuse_for_summary_statistics(spec, "a covariance matrix" if covariance is not None else f"'{data}'")
+        refuse_for_summary(spec, "a covariance matrix" if covariance is not None else f"'{data}'", ordinal,
+                           ordinal_estimator)
         if covariance is not None:
             if data is not None:
                 raise OptionError("give either data or a covariance matrix, not both")
@@ -1451,8 +1450,10 @@ def without_group_problem(without: int, read: int, group: str | None) -> Problem
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     return Problem(ProblemKind.ROWS_LEFT_OUT, (), float(without),
-                   f"{count_text(without)} of {count_text(read)} rows ({100 * without / read:.0f}%) have no value in the group column "
-                   f"'{group}' and were left out, and the rows left out may differ from those kept.",
+                   f"{count_text(without)} of {count_text(read)} rows ({100 * without / read:.0f}%) "
+                   f"{'has' if without == 1 else 'have'} no value in the group column '{group}' and "
+                   f"{'was' if without == 1 else 'were'} left out, and the "
+                   f"{'row' if without == 1 else 'rows'} left out may differ from those kept.",
                    "find out why they have no group: give rows that belong to a group its label, and say in the "
                    "report why the others were left out.")
 
@@ -1711,7 +1712,7 @@ def extreme_scaling(robust) -> str:
         effective = (robust.df - robust.shift) ** 2 / robust.df
         if effective >= FEW_EFFECTIVE_DF * robust.df:
             return ""
-        return (f"The design-based scale-shifted test is degenerate: its scale is {robust.scale:.3g} and its shift "
+        return (f"The design-based scale-shifted test is degenerate: its scale is {rounded_number(robust.scale)} and its shift "
                 f"{robust.shift:.1f} of {robust.df} degrees of freedom, so its statistic varies like a chi-square on "
                 f"about {effective:.1f} degrees of freedom (the mean-and-variance adjusted df, Satorra & Bentler "
                 f"1994; below {FEW_EFFECTIVE_DF:.0%} of the df is taken as degenerate, a rule of thumb of this tool, "
@@ -1720,9 +1721,9 @@ def extreme_scaling(robust) -> str:
     c = robust.scaling_factor
     if not (np.isfinite(c) and 0 < c < LOW_SCALING):
         return ""
-    return (f"The design-based scaling factor is {c:.3g}: the scaled chi-square is {1 / c:.1f} times the unscaled "
+    return (f"The design-based scaling factor is {rounded_number(c)}: the scaled chi-square is {1 / c:.1f} times the unscaled "
             f"one, whereas clusters usually make the statistics vary more than rows taken as independent (a factor "
-            f"above 1); below {LOW_SCALING:g} is taken as extreme (a rule of thumb of this tool, not a law), and its "
+            f"above 1); below {user_number(LOW_SCALING)} is taken as extreme (a rule of thumb of this tool, not a law), and its "
             f"p-value and the robust RMSEA, CFI and TLI made from it say little.")
 
 
@@ -2032,12 +2033,15 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
     if not gaps:
         return replace(fit_options, missing=MissingData.LISTWISE), []
     if fit_options.test is FitTest.SATORRA_BENTLER:
-        raise OptionError(f"{gaps} rows have missing answers on model variables, so the fit uses full-information ML, "
+        raise OptionError(f"{counted(gaps, 'row')} {'has' if gaps == 1 else 'have'} missing answers on model "
+                          f"variables, so the fit uses full-information ML, "
                           f"whose robust test is Yuan-Bentler ({Option.ROBUST} chooses it); for the Satorra-Bentler test "
                           f"of the complete rows only, choose {Option.INCOMPLETE_ROWS.given('listwise')}")
-    note = Note((f"{count_text(gaps)} of {count_text(rows)} rows miss some answers on model variables; every answer is "
+    note = Note((f"{count_text(gaps)} of {count_text(rows)} rows {'misses' if gaps == 1 else 'miss'} some answers on "
+                 f"model variables; every answer is "
                  f"used by full-information ML, the default when answers are missing; a fit of the complete rows only",
-                 Command(f" ({Option.INCOMPLETE_ROWS.given('listwise')})"), " would leave those rows out"
+                 Command(f" ({Option.INCOMPLETE_ROWS.given('listwise')})"),
+                 f" would leave {'that row' if gaps == 1 else 'those rows'} out"
                  + (("; under the sampling design the test is design-based, with the Yuan-Bentler scaling of "
                      "full-information ML" if design is not None and design.robust else
                      "; the robust test with full-information ML is the Yuan-Bentler one") if robust else "")))
@@ -2237,7 +2241,18 @@ def refuse_item_named_all(items) -> None:
                           "(ordinal=['all'], or --ordinal '\"all\"' on the command line), or rename it")
 
 
-def refuse_ordinal_for_summary(spec: Spec, ordinal, ordinal_estimator) -> None:
+def refuse_for_summary(spec: Spec, source: str, ordinal=None, ordinal_estimator=None) -> None:
+    """The one gate of a model fitted to summary statistics (``source``: them as a message names them, a file or 'a
+    covariance matrix'), called once by each route that takes them (fit, check, compare): what the model or the
+    options ask that a matrix cannot give is an error, at the statement where a statement asks it: ordinal items
+    (by the ``ordinal`` option, an ordinal estimator or an 'ordinal' statement), intercepts and factor means, and
+    'answers' statements (data.answer_words.refuse_for_summary_statistics)."""
+    _refuse_ordinal_for_summary(spec, ordinal, ordinal_estimator)
+    _refuse_means_for_summary(spec)
+    refuse_for_summary_statistics(spec, source)
+
+
+def _refuse_ordinal_for_summary(spec: Spec, ordinal, ordinal_estimator) -> None:
     """Ordinal items, named by the ``ordinal`` option (or an ordinal estimator chosen) or by an 'ordinal' statement of
     the model, need the rows of answers (their thresholds and polychoric correlations): with summary statistics an
     error, naming the statement's file and line when the model asks for them."""
@@ -2250,7 +2265,7 @@ def refuse_ordinal_for_summary(spec: Spec, ordinal, ordinal_estimator) -> None:
                          f"give the rows of answers", first.location, spec.source_line(first.location))
 
 
-def refuse_means_for_summary(spec: Spec) -> None:
+def _refuse_means_for_summary(spec: Spec) -> None:
     """A statement about an intercept or a factor mean cannot apply to summary statistics, which are fitted by their
     covariances alone (no groups, no full-information ML): an error at the statement that says so, rather than the
     general error's advice to give groups or full-information ML, both refused for summary statistics (hostile s20)."""
@@ -2464,9 +2479,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         if reference_group is not None:
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
         spec = load_spec(model)
-        refuse_ordinal_for_summary(spec, ordinal, None)
-        refuse_means_for_summary(spec)
-        refuse_for_summary_statistics(spec, f"'{data}'")
+        refuse_for_summary(spec, f"'{data}'", ordinal)
         moments, _ = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
         table = build_parameter_table(spec)

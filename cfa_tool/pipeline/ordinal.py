@@ -195,7 +195,8 @@ def _rows_notes(moments, order: list[int], where: str = "") -> list[str]:
         return [listwise_line(moments.rows_dropped, moments.rows_read, len(moments.codes), where)]
     out = []
     if moments.rows_dropped:
-        out.append(f"{count_text(moments.rows_dropped)} of {count_text(moments.rows_read)} rows{where} answered no model variable and were left out")
+        out.append(f"{count_text(moments.rows_dropped)} of {count_text(moments.rows_read)} rows{where} answered no model "
+                   f"variable and {'was' if moments.rows_dropped == 1 else 'were'} left out")
     if moments.gaps:
         pairs = _pair_rows(moments, order)
         low, high = min(pairs, key=lambda t: t[2]), max(pairs, key=lambda t: t[2])

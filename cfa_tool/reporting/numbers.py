@@ -7,6 +7,7 @@ import re
 
 from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.note_parts import Command, Note, Text, View, said
+from cfa_tool.numbers import user_number
 from cfa_tool.numerics.plain import decimals_beside
 
 
@@ -20,6 +21,19 @@ def num(value, digits: int = 3) -> str:
         return ""
     text = f"{value:.{digits}f}"
     return text.lstrip("-") if float(text) == 0.0 else text
+
+
+def needed_decimals(value: float, fewest: int = 0, most: int = 9, within: float = 0.0) -> int:
+    """The fewest decimals, from ``fewest`` up to ``most``, that print ``value`` neither as 0 nor further from it than
+    ``within`` of its size: 0 for a number the user gave, printed exactly with as many decimals as it has (a target
+    power of .825 as '.825', of .8 as '.80' with ``fewest`` 2), or a share of itself for a computed one (2/3 as '67%'
+    within half a percent of itself, a share of .0001 as '0.01%', never '0%').  The one rule of 'as many decimals as
+    it needs'; ``most`` where none fewer does.  (2/3 as 67%: 67 is 0.5% of 66.67 away, to the last binary digit.)"""
+    for digits in range(fewest, most):
+        shown = round(value, digits)
+        if shown != 0 and abs(shown - value) <= within * abs(value) + 1e-12:  # the slack of binary fractions
+            return digits
+    return most
 
 
 def unit(value, digits: int = 3, beside: float | None = None) -> str:
@@ -130,10 +144,12 @@ def _with_sign(text: str) -> str:
 
 
 def short(value) -> str:
-    """A value below 1 as given (no trailing zeros) without its leading zero (.05, .08)."""
+    """A value below 1 as given (no trailing zeros) without its leading zero (.05, .08): a user's number
+    (cfa_tool.numbers.user_number, never rounded: a significance level of .005 was printed '.01', an intraclass
+    correlation of .0625 '0.062') or a guide value."""
     if missing(value):
         return ""
-    text = f"{value:g}"
+    text = user_number(value)
     return text[1:] if text.startswith("0.") else ("-" + text[2:] if text.startswith("-0.") else text)
 
 

@@ -1611,9 +1611,10 @@ def cfi_not_defined_sentence(result) -> str:
         return ""
     ordinal = steps[0].result.method.ordinal
     index = "robust CFI" if any(s.result.robust is not None for s in steps) and not ordinal else "CFI"
-    text = (f"{index} was not defined for the {_list(models)} model{'s' if len(models) > 1 else ''}: the baseline "
-            f"(independence) model fits these data no worse than {'they do' if len(models) > 1 else 'it does'} (both "
-            f"noncentralities at most 0, so CFI is 0/0), and CFI then says nothing about fit")
+    text = (f"{index} and TLI were not defined for the {_list(models)} model{'s' if len(models) > 1 else ''}: the "
+            f"baseline (independence) model fits these data no worse than {'they do' if len(models) > 1 else 'it does'} "
+            f"(both noncentralities at most 0, so CFI is 0/0 and TLI divides by at most 0), and neither then says "
+            f"anything about fit")
     if steps[0].level in models:
         text += "; the configural model was judged by RMSEA and SRMR alone"
     later = [s.level for k, s in enumerate(steps) if k and s.versus_previous is not None and not s.untested

@@ -5,6 +5,7 @@ not load the scoring modules (the command's cold start)."""
 
 from __future__ import annotations
 
+from cfa_tool.reporting.numbers import needed_decimals
 from cfa_tool.scoring.methods import ScoreMethod
 
 #: each scoring method's name in the scores' report and paragraph
@@ -14,6 +15,10 @@ METHOD_LABELS = {ScoreMethod.REGRESSION: "regression", ScoreMethod.BARTLETT: "Ba
                  ScoreMethod.ITEM_MEAN: "item mean"}
 
 
+#: how close to a least share its percentage is printed (:func:`share_words`): within half a percent of itself
+SHARE_CLOSE = 5e-3
+
+
 def share_words(share: float) -> str:
     """A least share in plain words: 'half' for .5, else a percentage with the fewest decimals (up to 4) that neither
     print 0 nor move it by as much as half a percent of itself ('60%', '67%' for 2/3, '12.3%', '0.01%'; hostile s20: a
@@ -21,9 +26,7 @@ def share_words(share: float) -> str:
     if share == 0.5:
         return "half"
     percent = 100 * share
-    close = 5e-3 * max(percent, 1e-9) + 1e-12
-    digits = next((d for d in range(4) if round(percent, d) != 0 and abs(round(percent, d) - percent) < close), 4)
-    return f"{percent:.{digits}f}%"
+    return f"{percent:.{needed_decimals(percent, most=4, within=SHARE_CLOSE)}f}%"
 
 
 #: how the scores' paragraph names each scoring method, with its authors (scoring.methods.ScoreMethod)

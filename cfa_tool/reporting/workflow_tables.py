@@ -23,8 +23,8 @@ from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, cfi_not_de
                                           comparison_paragraph, design_sentence,
                                           mcar_score_tests, reversed_across_groups, reversed_loadings,
                                           invariance_paragraph, replication_paragraph)
-from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text, missing, num, p_phrase, p_value, short,
-                                        signed, signed_num, unit, word_list)
+from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text, missing, needed_decimals, num,
+                                        p_phrase, p_value, short, signed, signed_num, unit, word_list)
 from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
 from cfa_tool.workflows.invariance import CONFIGURAL_INDICES
@@ -1268,22 +1268,23 @@ def power_report(result) -> Report:
             ["RMSEA under the null hypothesis", short(result.rmsea_null), result.rmsea_null],
             ["RMSEA under the alternative", short(result.rmsea_alternative), result.rmsea_alternative],
             ["Degrees of freedom", str(result.df), result.df],
-            ["Significance level", unit(result.alpha, 2), result.alpha]]
+            ["Significance level", short(result.alpha), result.alpha]]
     if result.power is not None:
         rows.append([f"Power with N = {count_text(result.n_obs)}", unit(result.power), result.power])
-    digits = next((d for d in range(2, 9) if round(result.target_power, d) == result.target_power), 9)
-    rows.append([f"Smallest N for power {unit(result.target_power, digits)}", str(result.required_n), result.required_n])
+    rows.append([f"Smallest N for power {unit(result.target_power, needed_decimals(result.target_power, fewest=2))}", str(result.required_n), result.required_n])
     planned = getattr(result, "clusters", None)  # a planned cluster sample (workflows.power.cluster_plan)
     if planned is not None:
         if planned.intraclass is not None:
-            rows.append(["Intraclass correlation (given)", num(planned.intraclass, 3), planned.intraclass])
+            rows.append(["Intraclass correlation (given)", short(planned.intraclass), planned.intraclass])
         if planned.cluster_size is not None:
-            rows.append(["Rows per cluster (given)", f"{planned.cluster_size:g}", planned.cluster_size])
+            rows.append(["Rows per cluster (given)", user_number(planned.cluster_size), planned.cluster_size])
         rows.append(["Design effect" + (" (1 + (m - 1) ICC, Kish 1965)" if planned.intraclass is not None
                                         else " (given)"), num(planned.design_effect, 2), planned.design_effect])
-        rows.append(["Rows needed in the cluster sample", str(planned.rows), planned.rows])
+        rows.append(["Rows needed in the cluster sample", count_text(planned.rows), planned.rows])
         if planned.clusters is not None:
-            rows.append([f"Clusters of {planned.cluster_size:g} rows needed", str(planned.clusters), planned.clusters])
+            size = planned.cluster_size
+            rows.append([f"Clusters of {user_number(size)} {'row' if size == 1 else 'rows'} needed",
+                         count_text(planned.clusters), planned.clusters])
     table = _table("power", "Power and sample size", [("", "l"), ("Value", "r")], [r[:2] for r in rows],
                    f"Note: {result.note}." if result.note else None,
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))

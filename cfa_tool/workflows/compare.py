@@ -14,11 +14,10 @@ from cfa_tool.pipeline.inputs import (_described, rows_named, _no_group_notes, c
                                       data_problems, odd_values_named, reference_group_applies, reference_note,
                                       with_missing_reading,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
-                                      refuse_means_for_summary, refuse_ordinal_for_summary, refuse_row_options,
+                                      refuse_for_summary, refuse_row_options,
                                       summary_source, with_design)
 from cfa_tool.assessment.admissibility import solution_first
-from cfa_tool.data.answer_words import (code_answer_words, coding_json, refuse_different_codings,
-                                        refuse_for_summary_statistics)
+from cfa_tool.data.answer_words import code_answer_words, coding_json, refuse_different_codings
 from cfa_tool.data.labels import label_notes
 from cfa_tool.data.matching import check_columns, check_declared_ranges, chosen_columns
 from cfa_tool.data.moments import row_numbers
@@ -152,9 +151,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     group_column(group)
     if summary_source(data):
         refuse_row_options(f"'{data}'", sheet, missing_codes, keep, group, names_row=names_row, first_data_row=first_data_row, rename=rename)
-        for spec in specs:
-            refuse_ordinal_for_summary(spec, ordinal, None)  # an estimator without ordinal items is refused above
-            refuse_means_for_summary(spec)
+        for spec in specs:  # an estimator without ordinal items is refused above
+            refuse_for_summary(spec, f"'{data}'", ordinal)
         if design is not None:
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")
@@ -330,7 +328,6 @@ def _compare_summary(specs, names, path, fit_options, group) -> Comparison:
     moments, notes = read_summary_file(path)
     results = []
     for spec, name in zip(specs, names):
-        refuse_for_summary_statistics(spec, moments.source)
         check_columns(spec, list(moments.names), moments.source)
         with estimation_of(f"model {name}"):
             try:

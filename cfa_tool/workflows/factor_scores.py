@@ -19,7 +19,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import counted, user_number
 from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, caller_labels, row_naming
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
@@ -1694,9 +1694,9 @@ def _items_against_loadings(model, rows: np.ndarray, source: str) -> str | None:
         found += [(items[j], factor, r, loadings[j, k]) for j, r in flagged]
     if not found:
         return None
-    from cfa_tool.model.parameters import two_decimals
+    from cfa_tool.numerics.plain import journal_decimal
 
-    listed = "; ".join(f"'{printable(item)}' correlates {two_decimals(r)} with the rest of {printable(factor)}'s items "
+    listed = "; ".join(f"'{printable(item)}' correlates {journal_decimal(r, digits=2)} with the rest of {printable(factor)}'s items "
                        f"(keyed as the fit keys them), while its loading in the earlier fit is "
                        f"{'positive' if loading > 0 else 'negative'} ({loading:.3f})"
                        for item, factor, r, loading in found[:5]) + (
@@ -1752,11 +1752,13 @@ def _unknown_groups(group_of_row: np.ndarray, labels, group: str, source: str) -
                      + (f"; the fit has '{printable(near[0])}'" if near else "") + ")")
     more = f" and {len(counts) - 6} more" if len(counts) > 6 else ""
     fitted = ", ".join(f"'{printable(x)}'" for x in labels)
-    text = (f"{int(counts.sum())} rows of {source} are in groups of '{printable(group)}' that the earlier fit does not "
+    outside = int(counts.sum())
+    text = (f"{counted(outside, 'row')} of {source} {'is' if outside == 1 else 'are'} in groups of "
+            f"'{printable(group)}' that the earlier fit does not "
             f"have: {', '.join(shown)}{more}; the fit's groups are {fitted}, and a label must match one as written")
     if not any(v in known for v in group_of_row if not pd.isna(v)):
         raise OptionError(f"no row of {source} can be scored: {text}")
-    return text + "; those rows get no scores"  # (a caution first: ProblemKind.UNKNOWN_GROUPS_SCORED)
+    return text + ("; that row gets no scores" if outside == 1 else "; those rows get no scores")  # (a caution first: ProblemKind.UNKNOWN_GROUPS_SCORED)
 
 
 def _group_keys(frame: pd.DataFrame, group: str) -> np.ndarray:

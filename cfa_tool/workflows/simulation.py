@@ -32,7 +32,8 @@ from cfa_tool.errors import ModelError, OptionError, printable
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import ModelMatrices, StructuredModel
 from cfa_tool.model.parameters import (ParameterTable, as_written, given_entries, build_parameter_table,
-                                      given_values_possible, impossible_fixed_values, two_decimals)
+                                      given_values_possible, impossible_fixed_values)
+from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.views import Presentable
 
 #: Defaults on the standardized metric
@@ -414,9 +415,9 @@ def _defaults_held_apart(spec: Spec, table: ParameterTable, model: StructuredMod
         ref = next(ref for ref in held if ref.key() == key)
         raise ModelError(
             f"the default population values cannot hold here: this 'equal' statement holds {ref} (default "
-            f"{two_decimals(default)}{', a reverse-keyed item' if item in reversed_items else ''}) equal to "
+            f"{journal_decimal(default, digits=2)}{', a reverse-keyed item' if item in reversed_items else ''}) equal to "
             f"{', '.join(str(other) for other in held if other is not ref)}, whose default differs, so the simulated "
-            f"loading would be {two_decimals(std[e])} (standardized), not a default; give their common population value "
+            f"loading would be {journal_decimal(std[e], digits=2)} (standardized), not a default; give their common population value "
             f"with a 'start' statement", held[0].location, spec.source_line(held[0].location))
 
 

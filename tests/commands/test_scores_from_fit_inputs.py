@@ -236,7 +236,7 @@ def test_words_that_said_a_little_more_or_less_than_happened(tmp_path, model_fil
                             tmp_path / "again.csv"], capsys)
     assert code == 0, err
     flat = " ".join(text.split())
-    assert "About the fit (not the scored data): 1 of 301 rows miss some answers" in flat
+    assert "About the fit (not the scored data): 1 of 301 rows misses some answers" in flat
     assert "--incomplete-rows" not in flat
 
 

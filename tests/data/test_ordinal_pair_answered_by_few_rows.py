@@ -37,7 +37,7 @@ def split_ballot(first: tuple[int, int] | None = None, second: tuple[int, int] |
 
 @pytest.mark.parametrize("answers, said", [
     (((5, 1), (5, 1)), "the polychoric correlation matrix is not positive definite: only 2"),
-    (((1, 5), (1, 5)), "correlate -0.99"),  # two rows answering alike are no near duplicates
+    (((1, 5), (1, 5)), "correlate -.999, yet only 2"),  # two rows answering alike are no near duplicates
 ])
 def test_the_pair_its_group_and_its_rows_are_named(tmp_path, answers, said):
     frame = split_ballot(*answers)

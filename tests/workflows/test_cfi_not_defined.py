@@ -47,6 +47,8 @@ def test_an_invariance_step_without_delta_cfi_is_judged_by_the_other_changes(tmp
     assert "-0.00" not in flat  # a difference that rounds to zero has no sign (reporting.numbers.num), as elsewhere
     assert "ΔCFI not defined" in flat  # each step's figures in the methods paragraph
     assert "which were judged by ΔRMSEA and ΔSRMR alone" in flat  # and how the steps were judged
+    # TLI divides by chi2_b / df_b - 1, at most 0 here (Tucker & Lewis 1973): not defined either, and said so
+    assert "CFI and TLI were not defined for the configural" in flat and "TLI divides by at most 0" in flat
 
 
 def test_a_comparison_says_delta_cfi_is_not_defined(tmp_path, capsys):
