@@ -111,11 +111,13 @@ def full_rank_pivots(factor: np.ndarray, A: np.ndarray) -> np.ndarray | bool:
         return (pivots / np.diagonal(A, axis1=-2, axis2=-1)).min(axis=-1) > RANK_TOLERANCE
 
 
-def sample_log_det(S: np.ndarray) -> float | None:
-    """log|S| of a sample covariance matrix, or None when it is not positive definite or not of full rank
-    (:func:`full_rank_pivots`)."""
+def sample_factor(S: np.ndarray) -> tuple[np.ndarray, float] | None:
+    """(lower Cholesky factor, log|S|) of a sample covariance matrix, or None when it is not positive definite or
+    not of full rank (:func:`full_rank_pivots`): the likelihood's log|S| and the whitened rows of Mardia's tests and
+    the case diagnostics read the one factorisation."""
     found = cholesky_log_det(S)
-    return None if found is None or not full_rank_pivots(found[0], S) else found[1]
+    return None if found is None or not full_rank_pivots(found[0], S) else found
+
 
 
 def log_det_pd(A: np.ndarray) -> float | None:
