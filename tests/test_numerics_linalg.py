@@ -117,6 +117,10 @@ def test_whitened_rows_are_scipys():
     assert np.allclose(found.rows, expected, rtol=1e-9, atol=1e-9)
     assert found.log_det == pytest.approx(np.linalg.slogdet(S)[1], rel=1e-10)
     assert np.allclose(found.rows.T @ found.rows / len(rows), np.eye(12), atol=1e-9)
+    # the factor of S the likelihood made (sample_factor), given: the same rows, not factorised again
+    given = whitened_rows(rows, (rows.mean(axis=0), S), sample_factor(S))
+    assert np.array_equal(given.rows, whitened_rows(rows, (rows.mean(axis=0), S)).rows)
+    assert given.log_det == found.log_det
     with pytest.raises(np.linalg.LinAlgError):  # a covariance matrix that is not positive definite: refused
         whitened_rows(rows, (rows.mean(axis=0), _indefinite(12, 3)))
 
