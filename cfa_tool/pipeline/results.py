@@ -65,11 +65,11 @@ def estimate_dicts(rows: tuple[EstimateRow, ...] | list[EstimateRow]) -> list[di
 def _json_numbers(column: list) -> list[float | None]:
     """A column of numbers as Python floats, NaN and infinities as None.  A column of Python floats whose sum is
     finite is used as it is (a NaN or an infinity makes the sum one; numpy numbers make it a numpy one); any other
-    is checked as one array (plain_array)."""
+    goes through value by value."""
     total = sum(column)
     if type(total) is float and math.isfinite(total):
         return column
-    return plain_array(column)
+    return [float(v) if v - v == 0.0 else None for v in column]
 
 
 def _percent_below_all(share: float) -> str:
