@@ -12,8 +12,8 @@ import pytest
 from scipy import linalg as reference
 
 from cfa_tool.assessment.normality import whitened_rows
-from cfa_tool.numerics.linalg import (TRIANGULAR_BLOCK, cholesky_log_det, log_det_pd, sample_log_det, scaled_factor,
-                                      scaled_solve, spd_inverse, triangular_inverse)
+from cfa_tool.numerics.linalg import (FORM_ROWS, TRIANGULAR_BLOCK, cholesky_log_det, inverse_quadratic_forms, log_det_pd,
+                                      sample_factor, scaled_factor, scaled_solve, spd_inverse, triangular_inverse)
 
 
 def _positive_definite(p: int, seed: int) -> np.ndarray:
@@ -53,7 +53,7 @@ def test_no_factor_of_a_matrix_that_is_not_positive_definite():
     assert cholesky_log_det(with_nan) is None
     # a sample covariance matrix of rank 2 (three rows of three items, centred): not of full rank
     rows = np.array([[1.0, 2.0, 3.0], [2.0, 1.0, 0.0], [0.0, 3.0, 6.0]])
-    assert sample_log_det(np.cov(rows.T, bias=True)) is None
+    assert sample_factor(np.cov(rows.T, bias=True)) is None
 
 
 @pytest.mark.parametrize("p", [1, 9, 30, 90])
@@ -107,6 +107,17 @@ def test_the_factors_inverse_is_lower_triangular():
         assert np.allclose(factor.inverse @ L, np.eye(p), atol=1e-10)
 
 
+@pytest.mark.parametrize("q", [1, 9, 2 * FORM_ROWS - 1, 2 * FORM_ROWS, 135, 270])
+def test_inverse_quadratic_forms_are_scipys(q):
+    """b' H^-1 b for each column b, by one product with L^-1 D (by blocks of its rows from 2 FORM_ROWS parameters on,
+    where L^-1 is lower triangular), against scipy's solve with H (the definition of the form)."""
+    H = _positive_definite(q, 70 + q)
+    B = np.random.default_rng(q).standard_normal((q, 300)) * np.sqrt(np.diag(H))[:, None]
+    expected = np.einsum("ij,ij->j", B, reference.solve(H, B, assume_a="pos"))
+    for factor in (None, scaled_factor(H)):
+        assert np.allclose(inverse_quadratic_forms(H, factor)(B), expected, rtol=1e-10, atol=0.0)
+
+
 def test_whitened_rows_are_scipys():
     rng = np.random.default_rng(7)
     rows = rng.standard_normal((200, 12)) @ rng.standard_normal((12, 12)) + 5.0
@@ -117,6 +128,10 @@ def test_whitened_rows_are_scipys():
     assert np.allclose(found.rows, expected, rtol=1e-9, atol=1e-9)
     assert found.log_det == pytest.approx(np.linalg.slogdet(S)[1], rel=1e-10)
     assert np.allclose(found.rows.T @ found.rows / len(rows), np.eye(12), atol=1e-9)
+    # the factor of S the likelihood made (sample_factor), given: the same rows, not factorised again
+    given = whitened_rows(rows, (rows.mean(axis=0), S), sample_factor(S))
+    assert np.array_equal(given.rows, whitened_rows(rows, (rows.mean(axis=0), S)).rows)
+    assert given.log_det == found.log_det
     with pytest.raises(np.linalg.LinAlgError):  # a covariance matrix that is not positive definite: refused
         whitened_rows(rows, (rows.mean(axis=0), _indefinite(12, 3)))
 

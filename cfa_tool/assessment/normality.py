@@ -57,13 +57,16 @@ class Whitened:
     centred: np.ndarray
 
 
-def whitened_rows(rows: np.ndarray, moments: tuple[np.ndarray, np.ndarray] | None = None) -> Whitened:
+def whitened_rows(rows: np.ndarray, moments: tuple[np.ndarray, np.ndarray] | None = None,
+                  factor: tuple[np.ndarray, float] | None = None) -> Whitened:
     """:class:`Whitened` of ``rows``; ``moments``: the rows' (mean, covariance with divisor N) when the caller has
-    them (the fit's sample moments).  Y = Z L^-T for the Cholesky factor L, one product with the inverse of L (the
-    centred rows Z are kept for the case diagnostics)."""
+    them (the fit's sample moments), and ``factor`` (Cholesky factor, log-determinant) of that covariance when the
+    caller has made it (the likelihood's, numerics.linalg.sample_factor).  Y = Z L^-T for the Cholesky factor L, one
+    product with the inverse of L (the centred rows Z are kept for the case diagnostics)."""
     mean, covariance = moments if moments is not None else (rows.mean(axis=0), None)
     Z = rows - mean
-    found = cholesky_log_det(Z.T @ Z / len(rows) if covariance is None else covariance)
+    found = factor if factor is not None and moments is not None else cholesky_log_det(
+        Z.T @ Z / len(rows) if covariance is None else covariance)
     if found is None:
         raise np.linalg.LinAlgError("the covariance matrix of the rows is not positive definite")
     L, log_det = found

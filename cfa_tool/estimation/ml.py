@@ -15,7 +15,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.estimation.objective import Evaluation
-from cfa_tool.numerics.linalg import sample_log_det, spd_inverse
+from cfa_tool.numerics.linalg import sample_factor, spd_inverse
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term, gradient_and_information, mean_coefficients,
                                      mean_second_derivatives, model_columns, path_second_derivatives,
@@ -77,11 +77,14 @@ class NormalLikelihood:
         self.means = model.mean_structure
         self.n_statistics = len(groups) * (self.p * (self.p + 1) // 2 + (self.p if self.means else 0))
         self.logdet_S = []
+        #: each group's (Cholesky factor of S, log|S|), read again by the whitened rows of the diagnostics
+        self.sample_factors = []
         for g in groups:
-            logdet = sample_log_det(g.covariance)
-            if logdet is None:
+            found = sample_factor(g.covariance)
+            if found is None:
                 raise SingularMoments("sample covariance matrix is not positive definite")
-            self.logdet_S.append(logdet)
+            self.sample_factors.append(found)
+            self.logdet_S.append(found[1])
         self._active, self._basis, self._J = model.active, model.bases, model.active_J
         self._memo: dict = {}
 

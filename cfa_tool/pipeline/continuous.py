@@ -536,7 +536,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         sigma = mats[g].implied_covariance()
         # shared below; unweighted rows are those the sample moments were computed from
         rows = gm.rows if gm.rows is not None else _complete_pattern_rows(likelihood, g, est.auxiliary)
-        whitened = (whitened_rows(rows, (gm.mean, gm.covariance) if gm.design is None else None)
+        whitened = (whitened_rows(rows, (gm.mean, gm.covariance) if gm.design is None else None,
+                                  likelihood.sample_factors[g] if hasattr(likelihood, "sample_factors") else None)
                     if options.diagnostics and rows is not None else None)
         share = (None if not est.converged else est.auxiliary.group_chi_square(g) if est.auxiliary is not None else
                  likelihood.n_total * likelihood.weights[g] * likelihood.group_discrepancy(theta, g))

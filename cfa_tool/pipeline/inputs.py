@@ -641,12 +641,14 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     (:func:`with_row_filters`), which it names too; how a text file was read (``loaded.reading``) and how its rows are
     named (a data frame's by their index labels, data.kept_rows.RowNaming)."""
     result = with_row_filters(result, loaded)
+    read = {}  # what the reading adds to the result's data, put in with one copy of the result
     if loaded.renamed:
-        result = replace(result, data=replace(result.data, renamed=loaded.renamed))
+        read["renamed"] = loaded.renamed
     if loaded.reading is not None:
-        result = replace(result, data=replace(result.data, reading=loaded.reading))
-    if row_naming(loaded.frame) is not RowNaming.FILE_ROW:
-        result = replace(result, data=replace(result.data, row_naming=row_naming(loaded.frame)))
+        read["reading"] = loaded.reading
+    naming = row_naming(loaded.frame)
+    if naming is not RowNaming.FILE_ROW:
+        read["row_naming"] = naming
     codes, words = missing_values_option(missing_codes)
     # the words of no answer too, given in Python or on the command line (there, the run's words): scoring other data
     # with the fit reads them so too
@@ -655,10 +657,10 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     items = set(result.observed) | set(getattr(result.method, "helpers", None) or ())
     marked = tuple(f for f in loaded.non_answers if f.column in items)
     odd = tuple(o for o in loaded.odd_values if items.intersection(o.columns))
-    if not codes and not words and not marked and not odd:
-        return result
-    return replace(result, data=replace(result.data, missing_codes=codes, no_answer_words=words, non_answers=marked,
-                                        odd_values=odd, codes_found=tuple(c for c in codes if c in loaded.codes_found)))
+    if codes or words or marked or odd:
+        read.update(missing_codes=codes, no_answer_words=words, non_answers=marked, odd_values=odd,
+                    codes_found=tuple(c for c in codes if c in loaded.codes_found))
+    return replace(result, data=replace(result.data, **read)) if read else result
 
 
 def with_design_weights(loaded: LoadedData, design: DesignColumns | None, spec: Spec, group: str | None) -> LoadedData:
