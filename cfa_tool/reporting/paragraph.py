@@ -974,12 +974,22 @@ def _reliability_sentence(result) -> str:
 
     if result.method.ordinal:
         found = [r for r in rows if shown(r.observed_sum_omega)]
-        if not found:
-            return ""
-        values = _list([f"{unit(r.observed_sum_omega, 2)} for {_name(r.factor)}" for r in found])
-        return (f"The reliability of the factors' keyed sums of the answers' codes (the omega of the observed sum, from "
-                f"the fitted thresholds, loadings and factor variances; Green & Yang, 2009) was {values}"
-                f"{_keyed_sum_words(found)}.")
+        # factors of continuous items beside ordinal ones: omega of their items' keyed sum (hostile s21: left out)
+        ordinal = {x for x, c in zip(result.observed, result.data.categories) if c}  # as _estimator_phrase reads them
+        continuous = [r for r in rows if result.method.items is Items.MIXED and not shown(r.observed_sum_omega)
+                      and r.level != "higher-order" and r.bifactor is None and shown(r.omega)
+                      and not ordinal & set(r.items)]
+        parts = []
+        if found:
+            values = _list([f"{unit(r.observed_sum_omega, 2)} for {_name(r.factor)}" for r in found])
+            parts.append(f"The reliability of the factors' keyed sums of the answers' codes (the omega of the observed "
+                         f"sum, from the fitted thresholds, loadings and factor variances; Green & Yang, 2009) was "
+                         f"{values}{_keyed_sum_words(found)}.")
+        if continuous:
+            values = _list([f"{unit(r.omega, 2)} for {_name(r.factor)}" for r in continuous])
+            parts.append(f"For the keyed sum scores of the factors of continuous items, omega (McDonald, 1999) was "
+                         f"{values}{_keyed_sum_words(continuous)}.")
+        return " ".join(parts)
     first = [r for r in rows if r.level != "higher-order" and r.bifactor is None and shown(r.omega)]
     higher = [r for r in rows if (r.level == "higher-order" or r.bifactor is BifactorPart.GENERAL)
               and shown(r.omega_hierarchical)]

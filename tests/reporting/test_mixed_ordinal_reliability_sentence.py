@@ -1,0 +1,39 @@
+"""Some items ordinal, others continuous: the methods paragraph gives the reliability of every factor, the observed
+sum's omega of a factor of ordinal items (Green & Yang 2009) and McDonald's (1999) omega of a factor of continuous
+items (hostile s21: comfort and courtesy, whose items are continuous, were left out).  The omega checked here is
+McDonald's formula computed by hand from the fit's own estimates: (sum of loadings)^2 var / ((sum)^2 var + sum of
+error variances)."""
+
+from __future__ import annotations
+
+import cfa_tool
+from cfa_tool.reporting.paragraph import methods_paragraph
+
+RIDER = ("factor punctuality: on_time, short_wait, accurate_info, easy_transfer\n"
+         "factor comfort: seat_available, clean, temperature, room_to_stand\n"
+         "factor courtesy: greeting, helpful, respectful, clear_answers\n")
+
+
+def _omega(result, factor: str) -> float:
+    rows = result.estimates
+    loadings = [r.estimate for r in rows if r.kind == "loading" and r.variables[0] == factor]
+    items = [r.variables[1] for r in rows if r.kind == "loading" and r.variables[0] == factor]
+    errors = sum(r.estimate for r in rows if r.kind == "residual_variance" and r.variables[0] in items)
+    variance = next(r.estimate for r in rows if r.kind == "factor_variance" and r.variables == (factor,))
+    common = sum(loadings) ** 2 * variance
+    return common / (common + errors)
+
+
+def test_every_factor_has_its_reliability(rider_demo):
+    result = cfa_tool.fit(RIDER, rider_demo, ordinal=["on_time", "short_wait", "accurate_info", "easy_transfer"])
+    text = " ".join(methods_paragraph(result).split())
+    observed = next(r.observed_sum_omega for r in result.groups[0].reliability if r.factor == "punctuality")
+    assert f"Green & Yang, 2009) was {observed:.2f} for punctuality".replace(" 0.", " .") in text
+    expected = {f: f"{_omega(result, f):.2f}".lstrip("0") for f in ("comfort", "courtesy")}
+    assert (f"For the keyed sum scores of the factors of continuous items, omega (McDonald, 1999) was "
+            f"{expected['comfort']} for comfort and {expected['courtesy']} for courtesy") in text
+
+
+def test_all_ordinal_no_sentence_on_continuous_items(rider_demo):
+    result = cfa_tool.fit(RIDER, rider_demo, ordinal="all")
+    assert "factors of continuous items" not in " ".join(methods_paragraph(result).split())
