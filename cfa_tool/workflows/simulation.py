@@ -49,8 +49,7 @@ class ItemMeans(Enum):
     UNKNOWN = "not known to the earlier fit (summary statistics without means): every item centred at 0"
     THRESHOLDS = "set by the earlier fit's thresholds (answers 1 to k)"
     CUT = "set by the thresholds that cut their latent responses into categories (answers 1 to k)"
-    GROUPS = ("not carried over: each group's intercepts and factor means are 0 unless the model gives them, as in "
-              "every plan with groups")
+    GROUPS = "not carried over, as in every plan with groups"
 
 
 class ValueSource(Enum):
