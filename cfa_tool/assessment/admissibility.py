@@ -220,13 +220,15 @@ ROWS_RULE = (f"a common rule of thumb, after Bentler & Chou 1987, asks for at le
 class RowsPerParameter:
     """The facts of the rule of rows per parameter for the sample (``group`` None) or one group of several: its rows,
     its model's free parameters as the rule counts them (:func:`counted_parameters`, :func:`group_parameter_counts`)
-    and, for one group, the item means a full-information fit estimates beside them and the count leaves out
-    (``uncounted``).  The one record that the report's caution and note and the methods paragraph each only word."""
+    and the item means a full-information fit estimates beside them, or a group's item intercepts, that the count
+    leaves out (``uncounted``), and a group's thresholds of ordinal items, which it leaves out too (``thresholds``).
+    The one record that the report's caution and note and the methods paragraph each only word."""
 
     rows: float
     parameters: int
     group: str | None = None
     uncounted: int = 0
+    thresholds: int = 0
 
     @property
     def per_parameter(self) -> float:
@@ -249,20 +251,32 @@ class RowsPerParameter:
 
     def besides(self) -> str:
         """The item means a one-group count leaves out, named (' (not counting the 9 item means that
-        full-information ML estimates beside them)'), or a group's item intercepts (' (not counting its 9 item
-        intercepts)'); '' without."""
+        full-information ML estimates beside them)'), or a group's item intercepts and thresholds (' (not counting its
+        9 item intercepts)', ' (not counting its 72 thresholds)'); '' without."""
         n = self.uncounted
-        if n and self.group is not None:
-            return f" (not counting its {n} item intercept{'s' if n != 1 else ''})"
+        if (n or self.thresholds) and self.group is not None:
+            return f" (not counting its {left_out_words(n, self.thresholds)})"
         return (f" (not counting the {n} item mean{'s' if n != 1 else ''} that full-information ML estimates beside "
                 f"{'them' if n != 1 else 'it'})" if n else "")
 
     def to_dict(self) -> dict:
-        return {"rows": self.rows, "parameters": self.parameters, "group": self.group, "uncounted": self.uncounted}
+        return {"rows": self.rows, "parameters": self.parameters, "group": self.group, "uncounted": self.uncounted,
+                "thresholds": self.thresholds}
+
+
+def left_out_words(intercepts: int | None, thresholds: int | None) -> str:
+    """What a group's count of parameters leaves out, in words ('9 item intercepts', '72 thresholds', '9 item
+    intercepts and 72 thresholds'); a count None is one the groups do not share ('item intercepts')."""
+    parts = [(f"{intercepts} " if intercepts is not None else "") + f"item intercept{'s' if intercepts != 1 else ''}"
+             if intercepts != 0 else "",
+             (f"{thresholds} " if thresholds is not None else "") + f"threshold{'s' if thresholds != 1 else ''}"
+             if thresholds != 0 else ""]
+    return " and ".join(p for p in parts if p)
 
 
 def rows_per_parameter(rows: Sequence[float], free: Sequence[int], groups: Sequence[str] | None = None,
-                       uncounted: int | Sequence[int] = 0) -> tuple[RowsPerParameter, ...]:
+                       uncounted: int | Sequence[int] = 0,
+                       thresholds: Sequence[int] = ()) -> tuple[RowsPerParameter, ...]:
     """The sample (``groups`` None; ``rows`` and ``free`` then hold one number each) or the groups of several
     (``groups`` their labels, ``rows`` and ``free`` one number per group) below :data:`ROWS_PER_PARAMETER` rows per
     free parameter of their model (a model without free parameters is below nothing).  Which groups are named: each
@@ -274,26 +288,30 @@ def rows_per_parameter(rows: Sequence[float], free: Sequence[int], groups: Seque
     in each of several alike (:func:`counted_parameters`, :func:`counted_group_parameters`): the same rows under the
     same model are judged alike whether they are a sample or a group (new-user trial s17: a group of 311 rows was
     below the rule and a sample of 300 rows was not); ``uncounted``: the means left out, one number for the sample
-    or one per group, which the note names.  The rule is a rule of thumb, common practice, not a finding (see
-    :data:`ROWS_PER_PARAMETER`)."""
+    or one per group, which the note names; ``thresholds``: each group's thresholds of ordinal items, left out as a
+    one-group ordinal fit leaves them out (they are its first-step statistics, not among its free parameters: new-user
+    trial s21, a group of 360 rows counted 93 parameters with its 72 thresholds and the same rows alone 21).  The rule
+    is a rule of thumb, common practice, not a finding (see :data:`ROWS_PER_PARAMETER`)."""
     several = groups is not None
     left_out = tuple(uncounted) if isinstance(uncounted, Sequence) else (uncounted,) * len(rows)
-    return tuple(RowsPerParameter(n, q, label, u)
-                 for label, n, q, u in zip(groups if several else (None,), rows, free, left_out)
+    steps = tuple(thresholds) or (0,) * len(rows)
+    return tuple(RowsPerParameter(n, q, label, u, k)
+                 for label, n, q, u, k in zip(groups if several else (None,), rows, free, left_out, steps)
                  if q > 0 and n < ROWS_PER_PARAMETER * q)
 
 
 def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Sequence[str] | None = None,
-                         uncounted: int | Sequence[int] = 0) -> tuple[tuple["Problem", ...], tuple[str, ...]]:
+                         uncounted: int | Sequence[int] = 0,
+                         thresholds: Sequence[int] = ()) -> tuple[tuple["Problem", ...], tuple[str, ...]]:
     """The one rule of rows per parameter (:func:`rows_per_parameter`) in the report's words: a caution (first in
     every view) for a sample or group with fewer rows than its model's free parameters, and a note naming those with
     fewer than :data:`ROWS_PER_PARAMETER` rows per parameter (a common rule of thumb; Bentler & Chou 1987, recalled
     from memory: a convention, not a law), with their figures.  ``free`` counts the model's parameters the same way
     whatever the estimator (:func:`counted_parameters`); ``uncounted``: the item means a one-group fit estimates
-    beside them and the count leaves out, named so that the count agrees with the fit's table of free parameters.
-    Returns (problems, notes)."""
+    beside them and the count leaves out, named so that the count agrees with the fit's table of free parameters;
+    ``thresholds``: each group's thresholds of ordinal items, left out and named too.  Returns (problems, notes)."""
     several = groups is not None
-    below = rows_per_parameter(rows, free, groups, uncounted)
+    below = rows_per_parameter(rows, free, groups, uncounted, thresholds)
     problems = tuple(_small_sample_problem(facts, several) for facts in below if facts.fewer_rows_than_parameters)
     noted = [facts for facts in below if not facts.fewer_rows_than_parameters]
     if not noted:
@@ -307,9 +325,10 @@ def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Seq
     labels = tuple(groups)
     each = [f"{written_group(f.group, labels)} ({f.figures()})" for f in noted]
     listed = each[0] if len(each) == 1 else f"{', '.join(each[:-1])} and {each[-1]}"
-    means = {f.uncounted for f in noted}
-    besides = (f", not counting its {means.pop()} item intercepts" if len(means) == 1 and 0 not in means else
-               ", not counting its item intercepts" if 0 not in means else "")
+    means, steps = {f.uncounted for f in noted}, {f.thresholds for f in noted}
+    shared = left_out_words(means.pop() if len(means) == 1 else None if 0 not in means else 0,
+                            steps.pop() if len(steps) == 1 else None if 0 not in steps else 0)
+    besides = f", not counting its {shared}" if shared else ""
     return problems, (f"group{'s' if len(each) > 1 else ''} {listed}: fewer than {ROWS_PER_PARAMETER} rows per "
                       f"free parameter of the group's model{besides} ({ROWS_RULE}): with fewer rows per parameter, a "
                       f"group's estimates, and every comparison with the other groups, vary more from sample to "
@@ -533,17 +552,21 @@ def group_parameter_counts(table: ParameterTable) -> list[int]:
     return [len(u) for u in used]
 
 
-def counted_group_parameters(table: ParameterTable) -> tuple[list[int], list[int]]:
+def counted_group_parameters(table: ParameterTable) -> tuple[list[int], list[int], list[int]]:
     """(the free parameters of each group's model as the rule of rows per parameter counts them, the item intercepts
-    it leaves out): :func:`group_parameter_counts` less the group's item intercepts, as :func:`counted_parameters`
-    leaves out a one-group model's item means (the item means of each group's rows, which the intercepts, free or
-    held equal, reproduce beside the covariance structure)."""
+    and the thresholds it leaves out): :func:`group_parameter_counts` less the group's item intercepts, as
+    :func:`counted_parameters` leaves out a one-group model's item means (the item means of each group's rows, which
+    the intercepts, free or held equal, reproduce beside the covariance structure), and less its thresholds of
+    ordinal items, which a one-group ordinal fit estimates as first-step statistics outside its free parameters:
+    the same rows under the same model are counted alike, a sample or a group."""
     whole = group_parameter_counts(table)
     means: list[set[int]] = [set() for _ in range(table.n_groups)]
+    steps: list[set[int]] = [set() for _ in range(table.n_groups)]
     for par in table.parameters:
-        if par.kind == "intercept":
-            means[par.group].update(index for index, _ in par.terms)
-    return [n - len(m) for n, m in zip(whole, means)], [len(m) for m in means]
+        if par.kind in ("intercept", "threshold"):
+            (means if par.kind == "intercept" else steps)[par.group].update(index for index, _ in par.terms)
+    return ([n - len(m | k) for n, m, k in zip(whole, means, steps)], [len(m) for m in means],
+            [len(k) for k in steps])
 
 
 def group_size_problems(table: ParameterTable, rows: Sequence[float]) -> tuple[tuple[Problem, ...], tuple[str, ...]]:
@@ -552,8 +575,8 @@ def group_size_problems(table: ParameterTable, rows: Sequence[float]) -> tuple[t
     as a whole (pipeline.results.fit_result)."""
     if not table.multigroup:
         return (), ()
-    counted, means = counted_group_parameters(table)
-    return sample_size_problems(rows, counted, table.groups, means)
+    counted, means, steps = counted_group_parameters(table)
+    return sample_size_problems(rows, counted, table.groups, means, steps)
 
 
 HEYWOOD_ADVICE = ("Look for what the model leaves out near it (a residual covariance or cross-loading the modification "

@@ -28,7 +28,9 @@ def add_parser(sub) -> None:
     mc.add_argument("--replications", type=int, default=500, help="number of data sets (default 500)")
     mc.add_argument("--alpha", type=float, default=0.05, help="significance level (default .05)")
     mc.add_argument("--population-from", metavar="RESULT", help="take the population values from an earlier fit of "
-                    "this model (the file written by 'fit --json'); an ordinal fit gives its thresholds too")
+                    "this model (the file written by 'fit --json'); an ordinal fit gives its thresholds too; with "
+                    "--group-sizes, a continuous fit of one group gives every group's values, and 'in group' "
+                    "statements the differences")
     mc.add_argument("--categories", type=int, help="cut the ordinal items (all items without an 'ordinal' statement) "
                     "into this many equally likely categories and fit them as ordinal")
     O.add_ordinal_estimator_option(mc)
@@ -41,11 +43,10 @@ def run(args: argparse.Namespace) -> int:
 
     if args.group_sizes is not None:
         given = [flag for flag, value in (("--n", args.n), ("--categories", args.categories),
-                                          ("--ordinal-estimator", args.ordinal_estimator),
-                                          ("--population-from", args.population_from)) if value is not None]
+                                          ("--ordinal-estimator", args.ordinal_estimator)) if value is not None]
         if given:
             why = ("the group sizes replace it" if given[0] == "--n" else
-                   "planning with groups takes its population from the model file and simulates continuous answers")
+                   "planning with groups simulates continuous answers")
             raise OptionError(f"{given[0]} cannot apply with --group-sizes: {why}; leave it out")
     elif args.n is None:
         raise OptionError("give the sample size (--n 300), or the groups and their sizes to plan an invariance study "
@@ -69,7 +70,7 @@ def run(args: argparse.Namespace) -> int:
         with progress(args.command) as advance:
             result = invariance_power(spec, args.group_sizes, args.replications, args.seed,
                                       args.alpha, args.workers, args.scheduler, advance,
-                                      args.highest_level or DEFAULT_HIGHEST)
+                                      args.highest_level or DEFAULT_HIGHEST, args.population_from)
         return emit(args, result)
     from cfa_tool.workflows.montecarlo import monte_carlo_power
 

@@ -10,6 +10,7 @@ from dataclasses import replace
 from cfa_tool.model.description import parameter_words
 from cfa_tool.numbers import count_text
 from cfa_tool.note_parts import Command, Note, joined
+from cfa_tool.options import Option
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.numbers import num, unit, word_list
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, _table
@@ -85,9 +86,6 @@ def invariance_power_report(result) -> Report:
                      f"{'it' if len(one) == 1 else 'each'} apart in that group and holds the other groups' equal, "
                      f"as the invariance command does, so the steps test partial invariance.")
     shared = result.population.shared
-    if shared.defaulted:
-        lines.append(f"{len(shared.defaulted)} population values shared by the groups took the standardized defaults "
-                     f"(listed in the population table).")
     several = len(result.designs) > 1  # the sizes of one design are in the title
     rows, values = [], []
     for d in result.designs:
@@ -139,7 +137,22 @@ def invariance_power_report(result) -> Report:
              if len(result.designs) == 1 else f"Invariance power by simulation at {len(result.designs)} designs")
     return Report(ResultKind.POWER_SIMULATION, f"{title}; {count_text(result.replications)} replications (seed {result.seed})",
                   _notice([], list(_inadmissible_cautions(result))), tuple(lines), tuple(tables),
-                  cautions=tuple(cautions), warnings=_few_replications(result.replications))
+                  cautions=tuple(cautions), warnings=_defaults_caution(shared) + _few_replications(result.replications))
+
+
+def _defaults_caution(shared) -> tuple[Note, ...]:
+    """A caution, above the tables, when population values shared by the groups are the standardized defaults rather
+    than values of the researcher's scale (new-user trial s21: a plan drawn from loadings .7 and factor correlations
+    +.3 where the fit found -.5 said only that the defaults were listed), with the two ways to give them."""
+    if not shared.defaulted:
+        return ()
+    return (Note((f"{len(shared.defaulted)} of the population values shared by the groups are the standardized "
+                  f"defaults (loadings .7, -.7 for reverse-keyed items, factor correlations .3, residual covariances "
+                  f"0, item variances 1; listed in the population table), not values of this scale: the rejection "
+                  f"shares are those of such a population. Give the values the model file lacks",
+                  Command(" with 'start' statements, or take every value from a continuous fit of the model to one "
+                          f"group ({Option.POPULATION_FROM.given('FIT.json')})",
+                          " from an earlier fit of the model or from the literature"), ".")),)
 
 
 def _few_replications(replications: int) -> tuple[str, ...]:

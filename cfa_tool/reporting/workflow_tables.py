@@ -1549,6 +1549,9 @@ def population_parts(population) -> tuple[Text, ReportTable]:
     entries = population.values()
     if population.fitted_from is not None:
         line = (f"Every value is an estimate of the earlier fit in {population.fitted_from}"
+                + (", rescaled so that every item's latent response has variance 1, the scale on which items cut into "
+                   "categories are fitted (the standardized values are the fit's)"
+                   if getattr(population, "standardized", False) else "")
                 + (Note((" but the thresholds, which cut equally likely categories (as many as ",
                          Command(f"{Option.CATEGORIES}", "asked for"), " or the 'answers' statement gives)"))
                    if population.equal_categories else "") + "; the items' means are "

@@ -45,7 +45,7 @@ RULE_WORDS = {
     CountRule.AVERAGE_PARTIAL: "minimum average partial correlation (Velicer 1976)",
     CountRule.AVERAGE_PARTIAL_REVISED: "minimum average partial, fourth powers (Velicer, Eaton & Fava 2000)",
     CountRule.LOWEST_BIC: "lowest BIC of the maximum-likelihood solutions (Schwarz 1978)",
-    CountRule.CLOSE_FIT: f"fewest factors with RMSEA at most {CLOSE_RMSEA:.2f} (Browne & Cudeck 1993; a convention)",
+    CountRule.CLOSE_FIT: f"fewest factors with RMSEA at most {journal_decimal(CLOSE_RMSEA, digits=2)} (Browne & Cudeck 1993; a convention)",
 }
 
 NOTE_WORDS = {
@@ -411,7 +411,8 @@ class UnlikeTheItems:
 
 def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float, ...] = ()) -> UnlikeTheItems:
     """The columns among ``columns`` (of numbers) whose values are not answers on the answer scale that most of
-    ``columns`` share (the lowest and highest whole value more than half of them hold, such as 1 to 4), and that have
+    ``columns`` and ``others`` share (the lowest and highest whole value more than half of them hold, such as 1 to 4;
+    ``others`` given as the numbers they code, answers recorded as words read by their 'answers' statement), and that have
     no relation to the items (no correlation of RELATED_TO_THE_ITEMS or more, in absolute value, with any of the
     other columns or of ``others``, further item columns such as answers recorded as words, each correlation from
     the rows that answered both).  Two kinds: groupings or records, few whole values (at most
@@ -428,14 +429,18 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float
 
     from cfa_tool.data.polychoric import MAX_CATEGORIES
 
-    values = {c: pd.to_numeric(frame[c], errors="coerce").dropna().to_numpy(dtype=float) for c in columns}
+    every = list(dict.fromkeys([*columns, *others]))  # the scale is the one most of the items share, all of them
+    values = {c: pd.to_numeric(frame[c], errors="coerce").dropna().to_numpy(dtype=float) for c in every}
     distinct = {c: np.unique(v) for c, v in values.items()}
     whole = {c: v for c, v in distinct.items() if len(v) and np.all(v == np.round(v))}
     stray = _stray_values(frame, list(whole), codes)
     answers = {c: np.setdiff1d(v, tuple(codes) + stray.get(c, ())) for c, v in whole.items()}
     shared = Counter((float(v[0]), float(v[-1])) for v in answers.values() if len(v)).most_common(1)
-    if not shared or shared[0][1] * 2 <= len(columns):
+    if not shared or shared[0][1] * 2 <= len(every):
         return UnlikeTheItems()
+    values = {c: values[c] for c in columns}
+    distinct = {c: distinct[c] for c in columns}
+    whole = {c: whole[c] for c in columns if c in whole}
     (low, high), _ = shared[0]
     groupings = [(c, float(v[0]), float(v[-1])) for c, v in whole.items() if len(v) <= MAX_CATEGORIES
                  and v[0] > low and 2 * int((v > high).sum()) > len(v)]
@@ -606,6 +611,25 @@ def _word_columns(frame: pd.DataFrame, numeric: tuple[str, ...], codings: tuple)
     return tuple(out)
 
 
+def _words_as_codes(frame: pd.DataFrame, worded: tuple[str, ...], codings: tuple) -> dict[str, pd.Series]:
+    """Each of the columns ``worded`` with its cells as the codes of the 'answers' statement that covers it (the
+    one naming it with 'for', else the one for every item), read as data.answer_words reads them; a cell the statement
+    does not list is left empty here (the reading of the items names it later)."""
+    from cfa_tool.data.answer_words import _code_of
+
+    general = next((c for c in codings if not c.items), None)
+    coded = {}
+    for name in worded:
+        coding = next((c for c in codings if name in c.item_names), general)
+        if coding is None:
+            continue
+        words, numbers = coding.codes_by_word(), coding.codes_by_number()
+        column = frame[name]
+        codes = {v: _code_of(v, words, numbers)[0] for v in pd.unique(column.dropna().to_numpy(dtype=object))}
+        coded[name] = column.map(codes).astype(float)
+    return coded
+
+
 class LeftOut(enum.Enum):
     """Why a column of numbers is not among the items explored by default (each said in the items' note and listed in
     the JSON result, ``items_left_out``)."""
@@ -640,7 +664,11 @@ def _default_items(first, columns: list[str], codings: tuple, design: tuple[str,
     coded = [c for c in labelled_codes(frame, first.value_labels) if c in numeric and c not in ids + roles
              and own_labels(c, first.value_labels)]
     worded = _word_columns(frame, numeric, codings)
-    unlike = unlike_the_items(frame, [c for c in numeric if c not in ids + roles + coded], worded, codes)
+    # the answers recorded as words count as the answers they code: the scale most items share and their
+    # correlations are the same whether a file holds the words or the numbers (new-user trial s21: with words,
+    # years of service was explored as an item, with numbers left out)
+    unlike = unlike_the_items(frame.assign(**_words_as_codes(frame, worded, codings)),
+                              [c for c in numeric if c not in ids + roles + coded], worded, codes)
     records = list(unlike.columns)
     chosen = tuple(c for c in columns if c in worded or (c in numeric and c not in ids + roles + coded + records))
     if codings and not worded:
@@ -951,6 +979,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         design_split = dict(cluster=cluster, strata=strata, units=units, drawn_by=drawn_by)
         frame = explored
     names = tuple(chosen)
+    if by_default and ordinal_items:
+        _refuse_fractions_of_default_items(frame, ordinal_items, source)
     correlations = _correlations(frame, names, source, ordinal_items, notes)
     few = _few_categories(frame, names, ordinal_items, source)
     if few:
@@ -1059,6 +1089,21 @@ def _ordinal_items(ordinal, items: tuple[str, ...]) -> tuple[str, ...]:
     from cfa_tool.language.names import ordinal_names
 
     return tuple(dict.fromkeys(ordinal_names(ordinal, items, "one of the items explored")))
+
+
+def _refuse_fractions_of_default_items(frame: pd.DataFrame, ordinal_items: tuple[str, ...], source: str) -> None:
+    """The error of an ordinal item with a fractional answer (data.polychoric.check_whole_answers) when the items
+    were chosen by default, with the way to leave the column out: a column of measures the default choice kept
+    (new-user trial s21: the run stopped on years of service without saying how to name the items)."""
+    from cfa_tool.data.moments import numeric_columns
+    from cfa_tool.data.polychoric import check_whole_answers
+    from cfa_tool.errors import RowDataError
+
+    try:
+        check_whole_answers(numeric_columns(frame, ordinal_items, source), frame, ordinal_items, source)
+    except RowDataError as error:
+        raise RowDataError(f"{error}; the items were chosen by default (every column of numbers that looks like "
+                           f"answers): if it is not an item, name the items with {Option.ITEMS}", error.row) from None
 
 
 def _correlations(frame, names, source, ordinal_items, notes):

@@ -25,7 +25,7 @@ from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.model.implied import ModelMatrices, StructuredModel
 from cfa_tool.model.parameters import ParameterTable
 from cfa_tool.numerics.linalg import log_det_pd
-from cfa_tool.workflows.simulation import Population, given_values_possible, population_from_spec
+from cfa_tool.workflows.simulation import ItemMeans, Population, given_values_possible, population_from_spec
 
 #: parameters the one-group population cannot hold (it has no mean structure): given per group here
 MEAN_KINDS = ("intercept", "mean")
@@ -139,13 +139,20 @@ def check_groups_named(spec: Spec, labels: tuple[str, ...]) -> None:
                           f"{'their sizes' if len(missing) > 1 else 'its size'} or correct the name")
 
 
-def group_population(spec: Spec, labels: tuple[str, ...], configural: Spec) -> GroupPopulation:
+def group_population(spec: Spec, labels: tuple[str, ...], configural: Spec, fitted=None) -> GroupPopulation:
     """The population of each group in ``labels`` (the first the reference group), with ``configural`` the model
-    with no equality across groups (whose table lays out every group's parameters)."""
+    with no equality across groups (whose table lays out every group's parameters); ``fitted``: an earlier
+    continuous fit of one group whose estimates every group shares (simulation.population_from_spec), its item means
+    left aside as every plan's intercepts are (0 unless a statement gives them)."""
     from cfa_tool.pipeline.continuous import model_structure
 
     check_groups_named(spec, labels)
-    shared = population_from_spec(_shared_only(spec))
+    shared = population_from_spec(_shared_only(spec), fitted)
+    if fitted is not None:
+        if shared.thresholds is not None:
+            raise OptionError(f"{shared.fitted_from}: the fit is of ordinal items, and planning with groups simulates "
+                              f"continuous answers; give a continuous fit of the model")
+        shared = replace(shared, means=None, means_from=ItemMeans.GROUPS)
     shared_model = StructuredModel(shared.table)
     value_of = {(par.kind, par.variables): float(v) for par, v in
                 zip(shared.table.parameters, shared_model.entry_values(shared.theta))}

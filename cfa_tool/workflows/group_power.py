@@ -317,11 +317,14 @@ def approximate_power(df: int, noncentrality: float, alpha: float) -> float:
 def invariance_power(model: str | Path | Spec, group_sizes: str | Mapping[str, int | Sequence[int]],
                      replications: int = 500, seed: int = 1, alpha: float = 0.05, workers: int | None = None,
                      scheduler: str | None = None, progress: Callable[..., None] | None = None,
-                     highest_level: str = DEFAULT_HIGHEST) -> InvariancePower:
+                     highest_level: str = DEFAULT_HIGHEST, population=None) -> InvariancePower:
     """Monte Carlo power of the invariance ladder for groups of the given sizes (``group_sizes``: text such as
     'north=300,south=200', 'north=100/200,south=100/200' for several designs, or a dict), from the model's
     population values ('start' and 'fix' statements; 'in group NAME:' ones for one group), up to
-    ``highest_level`` (metric, scalar or strict).  The first group is the reference group."""
+    ``highest_level`` (metric, scalar or strict).  The first group is the reference group.  ``population``: an
+    earlier continuous fit of the model to one group (a fit result, its JSON dict or the JSON file), whose estimates
+    every group shares in place of the model file's values and defaults; 'in group NAME:' statements still give the
+    differences (new-user trial s21: a plan could not start from the fit, and planned from defaults in silence)."""
     from cfa_tool.pipeline.inputs import load_spec, without_exploratory_blocks
 
     spec = without_exploratory_blocks(load_spec(model), "power-simulation",
@@ -341,8 +344,9 @@ def invariance_power(model: str | Path | Spec, group_sizes: str | Mapping[str, i
     if spec.ordinal or spec.answers:
         statement = "'ordinal'" if spec.ordinal else "'answers'"
         raise OptionError(f"planning with groups simulates continuous answers, and the model has an {statement} "
-                          f"statement: remove it to plan for continuous items (ordinal items with groups are not "
-                          f"yet simulated)")
+                          f"statement: remove it from a copy of the model file to plan for continuous items (a "
+                          f"continuous fit made with it still gives the population, {check.Option.POPULATION_FROM}; "
+                          f"ordinal items with groups are not yet simulated)")
     p = len(spec.observed_names)
     for design in designs:
         for label, n in zip(labels, design):
@@ -354,7 +358,8 @@ def invariance_power(model: str | Path | Spec, group_sizes: str | Mapping[str, i
                               f"values per simulated data set; plan with smaller groups")
     ladder = _ladder_of(spec, highest_level)
     configural = spec_of_level(spec, LEVELS[0][1], spec.noninvariant)
-    population = group_population(spec, labels, configural)  # first: it names a group the sizes do not give
+    # first: it names a group the sizes do not give
+    population = group_population(spec, labels, configural, population)
     _scaled_alike(spec, labels, configural)
     _fixed_differences(spec, population)
     _differences_tested(spec, population, highest_level)

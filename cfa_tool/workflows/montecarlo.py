@@ -108,6 +108,27 @@ class PowerCurve(Presentable):
                 "model_test_rejection_rate": [r.model_rejected for r in self.results] if first.ordinal else None}
 
 
+def model_order_labels(table) -> dict[str, str]:
+    """Each free parameter's label (``table.free_labels``, a model file's reference, whose pair of names is sorted)
+    -> the same reference with the pair in the order the model names it (the parameter's variables), as the
+    population table and the fit name it: one parameter named one way in one report (new-user trial s21: 'dedication
+    and vigour' in the power table, 'vigour and dedication' in the population table)."""
+    from cfa_tool.language.names import read_reference, reference_text
+
+    first = {}
+    for par in table.parameters:
+        if len(par.terms) == 1 and par.terms[0][1] == 1.0:
+            first.setdefault(par.terms[0][0], par)
+    out = {}
+    for k, label in enumerate(table.free_labels):
+        kind, names, group = read_reference(label)
+        par = first.get(k)
+        if par is not None and len(names) == 2 and sorted(names) == sorted(par.variables):
+            names = par.variables
+        out[label] = reference_text(kind, names, group)
+    return out
+
+
 def _replicate(tasks: list) -> list[tuple[bool, np.ndarray, np.ndarray]]:
     """(converged, estimates, standard errors) of each task's simulated data set, fitted together."""
     spec, _, names, _, _, start = tasks[0]
@@ -179,18 +200,18 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
     from cfa_tool.model.parameters import build_parameter_table
     from cfa_tool.pipeline.ordinal import ordinal_spec
     from cfa_tool.workflows.ordinal_resampling import OrdinalFitting, simulated_fit
+    from cfa_tool.workflows.simulation import on_latent_response_scale
 
     ordinal = ordinal_spec(spec)[0]  # (a statement setting a residual variance was refused by with_categories)
     variances = np.diag(population.sigma)
     if np.abs(variances - 1.0).max() > 1e-6:
-        k = int(np.argmax(np.abs(variances - 1.0)))
-        scale = (f"with ordinal items the population values are on the scale of latent responses of variance 1, but "
-                 f"the values {{}} make the variance of '{population.observed[k]}' {rounded_number(variances[k])}")
-        if population.fitted_from is not None:  # a continuous fit's values are on its items' own scales
-            raise OptionError(scale.format(f"of the continuous fit in {population.fitted_from}") + "; give the JSON "
-                              f"result of an ordinal fit of these items (a fit with {check.Option.ORDINAL}), or leave "
-                              f"out {check.Option.CATEGORIES} for the power of the continuous model")
-        raise OptionError(scale.format("given") + "; change the 'start' values")
+        if population.fitted_from is not None:  # a continuous fit's values are on its items' own scales: standardized
+            population = on_latent_response_scale(population)
+        else:
+            k = int(np.argmax(np.abs(variances - 1.0)))
+            raise OptionError(f"with ordinal items the population values are on the scale of latent responses of "
+                              f"variance 1, but the values given make the variance of '{population.observed[k]}' "
+                              f"{rounded_number(variances[k])}; change the 'start' values")
     table = build_parameter_table(ordinal)
     value_of = {(v["kind"], tuple(v["variables"])): v["value"] for v in population.values()}
     entry_of = {}  # each free parameter through an entry that is that parameter alone
@@ -204,7 +225,8 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
     tasks = [(fitting, population.sigma, population.thresholds, n, int(s), tuple(keys))
              for n, stream in zip(sizes, streams) for s in stream.generate_state(replications)]
     draws = run_tasks(simulated_fit, tasks, workers, scheduler, progress)
-    defaulted = tuple(label for label in population.defaulted if label in table.free_labels)
+    labels = model_order_labels(table)
+    defaulted = tuple(labels[label] for label in population.defaulted if label in table.free_labels)
     powers = []
     for k, n in enumerate(sizes):
         ok = [d for d in draws[k * replications:(k + 1) * replications] if d.converged]
@@ -213,7 +235,8 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
         thetas, ses = np.array([d.values for d in ok]), np.array([d.se for d in ok])
         count, named = counted_problems(d.problems for d in ok)  # as each replication's fit judged itself
         powers.append(MonteCarloPower(n, replications, len(ok), alpha, seed,
-                                      _parameter_rows(table.free_labels, np.array(truth), thetas, ses, alpha), defaulted,
+                                      _parameter_rows(tuple(labels.values()), np.array(truth), thetas, ses, alpha),
+                                      defaulted,
                                       weighting.phrase, float(np.mean([d.p_value < alpha for d in ok])),
                                       count, population.not_carried, population, named))
     return powers[0] if len(sizes) == 1 else PowerCurve(tuple(powers))
@@ -232,9 +255,11 @@ def _summary(population, n_obs: int, replications: int, seed: int, alpha: float,
             entry_of.setdefault(par.terms[0][0], e)
     thetas = np.array([t for t, _ in ok])
     ses = np.array([se[[entry_of[k] for k in range(table.n_free)]] for _, se in ok])
-    rows = _parameter_rows(table.free_labels, population.theta, thetas, ses, alpha)
+    labels = model_order_labels(table)
+    rows = _parameter_rows(tuple(labels.values()), population.theta, thetas, ses, alpha)
     count, named = counted_problems(replicated_problems(table, StructuredModel(table), thetas))
-    return MonteCarloPower(n_obs, replications, len(ok), alpha, seed, rows, population.defaulted,
+    return MonteCarloPower(n_obs, replications, len(ok), alpha, seed, rows,
+                           tuple(labels.get(label, label) for label in population.defaulted),
                            inadmissible=count, not_carried=population.not_carried, population=population,
                            inadmissible_named=named)
 

@@ -49,6 +49,8 @@ class ItemMeans(Enum):
     SAMPLE_MEANS = "the item means of the rows the earlier fit was fitted to (it estimated no intercepts)"
     UNKNOWN = "not known to the earlier fit (summary statistics without means): every item centred at 0"
     THRESHOLDS = "set by the earlier fit's thresholds (answers 1 to k)"
+    CUT = "set by the thresholds that cut their latent responses into categories (answers 1 to k)"
+    GROUPS = "not carried over, as in every plan with groups"
 
 
 class ValueSource(Enum):
@@ -83,6 +85,9 @@ class Population:
     not_carried: tuple[str, ...] = ()
     #: the thresholds are those of equally likely categories (--categories), not of the earlier fit
     equal_categories: bool = False
+    #: an earlier continuous fit's values put on the scale of latent responses of variance 1
+    #: (:func:`on_latent_response_scale`), for items cut into categories and fitted as ordinal
+    standardized: bool = False
 
     @property
     def ordinal_items(self) -> tuple[str, ...]:
@@ -481,6 +486,40 @@ def simulate_rows(sigma: np.ndarray, n: int, rng: np.random.Generator, means: np
     return rows + (0.0 if means is None else means)
 
 
+def on_latent_response_scale(population: Population) -> Population:
+    """An earlier continuous fit's population with every item's variance 1: the scale of the latent responses that
+    ordinal items are fitted on (their residual variances follow from it), for answers cut into categories from it
+    (``--categories`` or an 'answers' statement with a continuous fit: new-user trial s21, whose advice went in a
+    circle).  The model's values for the standardized covariance matrix D^-1/2 Sigma D^-1/2 (D its diagonal) are
+    found by fitting the model to that matrix, which it reproduces exactly when the model is invariant under a
+    change of the items' scales (Cudeck 1989, recalled from memory: every loading and residual variance that a
+    rescaling changes is free or set only to scale a factor); a model whose fixed values a rescaling would change
+    cannot reproduce it, which is an error."""
+    from dataclasses import replace
+
+    from cfa_tool.data.moments import SampleMoments
+    from cfa_tool.pipeline.continuous import FitOptions, estimate
+
+    table = population.table
+    sd = np.sqrt(np.diag(population.sigma))
+    target = population.sigma / np.outer(sd, sd)
+    n = 1_000_000  # the moments are the population's: N only scales the (unused) test statistic
+    moments = SampleMoments(table.observed, target, np.zeros(table.p), n, n, 0, "<population>")
+    model = StructuredModel(table)
+    try:
+        est = estimate(replace(population.spec, starts=()), [(None, moments)],
+                       FitOptions(diagnostics=False, modification_indices=False))
+    except (ModelError, OptionError):
+        est = None
+    if est is None or not est.converged or np.abs(model.implied(est.theta) - target).max() > 1e-6:
+        raise OptionError(f"the values of the continuous fit in {population.fitted_from} cannot be put on the scale "
+                          f"of latent responses of variance 1 that ordinal items are fitted on: the model fixes values "
+                          f"that a change of the items' scales would change; give the JSON result of an ordinal fit "
+                          f"of these items (a fit with {check.Option.ORDINAL})")
+    return replace(population, theta=est.theta, sigma=model.implied(est.theta), means=None,
+                   means_from=ItemMeans.CUT, standardized=True)
+
+
 def equal_thresholds(categories: int) -> np.ndarray:
     """The thresholds of a standardized latent response that give ``categories`` equally likely categories:
     the normal quantiles Phi^-1(c / k), c = 1 .. k-1."""
@@ -580,8 +619,9 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
                                          f"categories, and {command} simulates continuous answers for the items "
                                          f"the model does not declare ordinal; declare them ordinal (an 'ordinal' "
                                          f"statement, or {check.Option.CATEGORIES.given(len(codes))}) to simulate answers in the "
-                                         f"statement's categories, or remove the statement for the power of "
-                                         f"continuous answers")
+                                         f"statement's categories (an earlier continuous fit's values then put on "
+                                         f"the scale of latent responses of variance 1), or remove the statement "
+                                         f"from a copy of the model file for the power of continuous answers")
         thresholds[x] = equal_thresholds(len(codes))  # simulate writes the statement's answers
     if thresholds:  # ordinal items in one group: the one rule of every command that fits or draws them
         from cfa_tool.pipeline.ordinal import refuse_set_residual_variances

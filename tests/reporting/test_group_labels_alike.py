@@ -65,7 +65,8 @@ def test_the_small_group_caution_and_the_paper_word_the_same_facts():
     assert ('Group "north" had 12 rows for the 13 free parameters of its model (not counting its 6 item intercepts), '
             'so its estimates, and every comparison with the other groups, rest on too few answers.') in text
     # the facts travel with a saved result's problems
-    assert small.to_dict()["rows_per_parameter"] == {"rows": 12.0, "parameters": 13, "group": "north", "uncounted": 6}
+    assert small.to_dict()["rows_per_parameter"] == {"rows": 12.0, "parameters": 13, "group": "north", "uncounted": 6,
+                                                              "thresholds": 0}
 
 
 def test_rows_per_parameter_are_cut_not_rounded_up_to_the_rule():

@@ -180,7 +180,6 @@ def test_bad_designs_are_one_line_errors(model, sizes, words, tmp_path, capsys):
 @pytest.mark.parametrize("extra, words", [
     (["--n", "100"], "--n cannot apply with --group-sizes"),
     (["--categories", "4"], "--categories cannot apply with --group-sizes"),
-    (["--population-from", "fit.json"], "--population-from cannot apply with --group-sizes"),
     (["--ordinal-estimator", "unweighted"], "--ordinal-estimator cannot apply with --group-sizes"),
 ])
 def test_options_that_cannot_apply_with_groups_are_errors(extra, words, tmp_path, capsys):

@@ -202,10 +202,23 @@ def test_categories_with_a_continuous_fit_are_named_as_such(tmp_path):
     import pandas as pd
 
     fitted = cfa_tool.fit("factor f: a1..a4\n", pd.DataFrame(data))
-    with pytest.raises(OptionError, match=r"the values of the continuous fit in .* make the variance of 'a\d' "
-                                          r"[0-9.]+; give the JSON result of an ordinal fit of these items \(a fit "
-                                          r"with ordinal=\.\.\.\), or leave out categories=\.\.\."):
-        monte_carlo_power("factor f: a1..a4\n", 100, replications=2, workers=1, population=fitted, categories=4)
+    # new-user trial s21: the refusal that stood here advised leaving out --categories, which the model's 'answers'
+    # statement refused in turn; the continuous fit's values are now put on the latent responses' scale (variance 1):
+    # each loading lambda_j sqrt(psi) / sd_j with the factor's variance 1 once rescaled by the marker's, i.e. the
+    # fit's standardized solution by its formula (Bollen 1989, ch. 7), computed here from the raw estimates
+    power = monte_carlo_power("factor f: a1..a4\n", 100, replications=2, workers=1, population=fitted, categories=4)
+    raw = {(r.kind, r.variables): r.estimate for r in fitted.estimates}
+    sd = np.sqrt(np.diag(fitted.implied_covariance))
+    psi = raw[("factor_variance", ("f",))]
+    standardized = [raw[("loading", ("f", f"a{j}"))] * np.sqrt(psi) / sd[j - 1] for j in (1, 2, 3, 4)]
+    values = {(v["kind"], tuple(v["variables"])): v["value"] for v in power.population.values()}
+    for j in (2, 3, 4):  # the marker a1 keeps loading 1; the others are relative to it on the standardized scale
+        assert values[("loading", ("f", f"a{j}"))] == pytest.approx(standardized[j - 1] / standardized[0], abs=1e-5)
+    assert values[("factor_variance", ("f",))] == pytest.approx(standardized[0] ** 2, abs=1e-5)
+    assert np.allclose(np.diag(power.population.sigma), 1.0, atol=1e-8)
+    text = " ".join(power.summary().split())
+    assert ("Every value is an estimate of the earlier fit in the fit result given, rescaled so that every item's "
+            "latent response has variance 1") in text
     simulated = simulate("factor f: a1..a4\n", 50, seed=3, categories=4, population=fitted)
     sources = {v["kind"]: v["from"] for v in simulated.population.values()}
     assert sources["threshold"] == "default" and sources["loading"] == "earlier fit"
