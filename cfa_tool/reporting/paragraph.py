@@ -1259,6 +1259,7 @@ def scores_paragraph(result) -> str:
     else:
         parts.append(f"Each row's scores on the {_count(len(result.factors), 'factor')} were computed from {whose} "
                      f"as {methods}.")
+    parts.append(_centred_scores_sentence(result))
     gaps, none = _scored_with_gaps(result)
     factor_methods = [m for m in result.methods if m not in ITEM_METHODS]
     if gaps and factor_methods:
@@ -1309,6 +1310,19 @@ def scores_paragraph(result) -> str:
         parts.append(f"The scores of {_names(low)} fall below a determinacy of {unit(DETERMINACY_CAUTION, 2)} (common "
                      f"practice) and are not suited to decisions about individuals.")
     return " ".join(p for p in parts if p)
+
+
+def _centred_scores_sentence(result) -> str:
+    """That the groups' factor scores are each centred at zero and do not compare across the groups, when the
+    scores' caution says so (workflows.factor_scores.not_comparable_problems); '' otherwise."""
+    from cfa_tool.workflows.factor_scores import centred_factors
+
+    if not any(p.kind is ProblemKind.SCORES_NOT_COMPARABLE_ACROSS_GROUPS for p in result.fit.problems):
+        return ""
+    centred = centred_factors(result.fit.estimates)
+    which = "" if len(centred) == len(result.factors) else f" of {_names(list(centred))}"
+    return (f"As the model fixed the factor means{which} at zero in every group, each group's factor scores{which} "
+            f"are centred at zero in that group's own units and do not compare across the groups.")
 
 
 #: which of a pair's difference tests a comparison's paragraph reports: the one to read for the fits' test

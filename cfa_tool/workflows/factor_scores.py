@@ -850,7 +850,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                                               "rows by another column"), ".")))
     elif ids is None and not isinstance(data, pd.DataFrame):
         extra[:0] = _id_column_note(read_frame, source, spec, group, design)
-    own = _without_own_answers(answered, values, chosen, factors, unanswered) + _item_sums_across_groups(
+    own = not_comparable_problems(result.estimates, chosen) + _without_own_answers(
+        answered, values, chosen, factors, unanswered) + _item_sums_across_groups(
         models, labels, sums, chosen, bool(ordinal_items), group)
     if own:
         result = _after_data_cautions(result, data_cautions, own)
@@ -862,7 +863,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality), unscored,
                        bool(standard_errors or ordinal_items), tuple(extra),
-                       warnings=tuple(centred_in_each_group(result.estimates)), item_sums=summaries,
+                       item_sums=summaries,
                        unanswered=unanswered)
 
 
@@ -1167,16 +1168,17 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     written, written_errors, left = _left_empty(answered, values, errors, chosen, unanswered, counts)
     id_name, columns = _score_columns(ids, id_column, chosen, factors, written, written_errors, with_errors, answered)
     columns = _with_same_answer_column(columns, id_name, spec, base.items, rows, position.loc[frame.index].to_numpy(), n)
-    warnings = centred_in_each_group(result.estimates)
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
-    # first in every view, before the fit's own (the rows scored are this run's data)
-    scored_problems = list(_without_own_answers(answered, values, chosen, factors, unanswered)
+    # first in every view, before the fit's own (the rows scored are this run's data): the rows' own cautions (rows
+    # in groups the fit does not have, after their cause among the data's cautions), then the scores'
+    scored_problems = list(not_comparable_problems(result.estimates, chosen)
+                           + _without_own_answers(answered, values, chosen, factors, unanswered)
                            + _item_sums_across_groups(models, labels, sums, chosen, ordinal, group))
     if unknown_groups:
-        scored_problems.append(Problem(ProblemKind.UNKNOWN_GROUPS_SCORED, (), None, unknown_groups + ".",
-                                       "write each row's group as the fit's data wrote it, or fit the model to "
-                                       "these groups."))
+        scored_problems.insert(0, Problem(ProblemKind.UNKNOWN_GROUPS_SCORED, (), None, unknown_groups + ".",
+                                          "write each row's group as the fit's data wrote it, or fit the model to "
+                                          "these groups."))
     # answers coded otherwise than in the fit's data, first: every score of the factor moves with them
     scored_problems[:0] = [Problem(kind, (), None, text, advice) for kind, text, advice in
                            _coded_otherwise(result.data, base, rows, source, ordinal)]
@@ -1206,7 +1208,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                                  score_columns(chosen, factors), reasons, pd.Series(left, index=read_frame.index))
     table.index = caller_labels(table.index, loaded.frame_index)
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
-                       unscored, with_errors, tuple(notes), source, tuple(warnings), summaries, unanswered)
+                       unscored, with_errors, tuple(notes), source, (), summaries, unanswered)
 
 
 def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: str,
@@ -1894,32 +1896,54 @@ def _ordinal_precision(base, v: np.ndarray, e: np.ndarray, answered: np.ndarray,
     return tuple(precision), tuple(by_level)
 
 
-def centred_in_each_group(estimates) -> list[str]:
-    """The caution on scores of several groups whose factor means the model fixes at zero in every group (no
-    intercepts held equal): each group's scores are then centred at 0 in that group's own units, and a difference
-    between two groups' scores says nothing about their factor means.  ``estimates``: a fit's estimate rows, or a
-    saved fit's (which keep no free flag: a mean of exactly 0 in every group is taken as fixed)."""
+def centred_factors(estimates) -> tuple[str, ...]:
+    """The factors of a model of several groups whose mean it fixes at zero in every group (no intercepts held
+    equal): each group's scores of them are then centred at 0 in that group's own units, and a difference between
+    two groups' scores says nothing about their factor means; () for one group.  ``estimates``: a fit's estimate
+    rows, or a saved fit's (which keep no free flag: a mean of exactly 0 in every group is taken as fixed)."""
     groups = {r.group for r in estimates if r.group is not None}
     if len(groups) < 2:
-        return []
+        return ()
     set_free: dict[str, bool] = {}
     for r in estimates:
         if r.kind == "mean":
             free = getattr(r, "free", None)
             set_free[r.variables[0]] = set_free.get(r.variables[0], False) or bool(free) or r.estimate != 0
-    centred = [f for f, free in set_free.items() if not free]
-    if not centred:
-        return []
-    if len(centred) == len(set_free):
-        return ["The scores of different groups cannot be compared: the model fixes every factor's mean at zero in "
-                "every group (its intercepts are not held equal across groups), so each group's scores are centred at "
-                "0 in that group's own units, and the groups' average scores are 0 whatever their factor means.  "
-                "Compare groups only with the scores of a model that holds loadings and intercepts equal ('invariance "
-                "scalar' in the model file), and only when the invariance command finds that level holds."]
+    return tuple(f for f, free in set_free.items() if not free)
+
+
+def not_comparable_problems(estimates, chosen) -> tuple:
+    """The caution, first among the scores' in every view, on factor scores of several groups whose factor means
+    the model fixes at zero in every group (:func:`centred_factors`): each group's scores are centred at 0, so they
+    cannot be compared or ranked across groups (new-user trial s21: ranking employees of all departments for a
+    programme, with the caution among the notes under a box advising 'use the scores to compare groups').  Item sums
+    and means are not centred and are not named by it.  () for one group, no factor-score method or no such factor."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    methods = factor_methods(chosen)
+    centred = centred_factors(estimates)
+    if not methods or not centred:
+        return ()
+    statement = Command(" ('invariance scalar' in the model file)", " (scalar invariance)")
+    test = (", once ", Command("the invariance command", "a test of measurement invariance"),
+            " finds that level holds.")
+    scores = "The factor scores" if any(m in ITEM_METHODS for m in chosen) else "The scores"  # not the item sums
     names, one = ", ".join(printable(f) for f in centred), len(centred) == 1
-    return [f"The scores of different groups cannot be compared on {names}: the model fixes {'its' if one else 'their'} "
-            f"mean at zero in every group, so each group's scores of {'it' if one else 'them'} are centred at 0 in "
-            f"that group's own units."]
+    every = len(centred) == len({r.variables[0] for r in estimates if r.kind == "mean"})
+    if every:
+        text = (f"{scores} of different groups cannot be compared: the model fixes every factor's mean at zero in "
+                f"every group (its intercepts are not held equal across groups), so each group's scores are centred "
+                f"at 0 in that group's own units, and the groups' average scores are 0 whatever their factor means.")
+        advice = Note(("compare or rank people of different groups only with the scores of a model that holds "
+                       "loadings and intercepts equal across the groups", statement) + test)
+    else:
+        text = (f"{scores} of different groups cannot be compared on {names}: the model fixes "
+                f"{'its' if one else 'their'} mean at zero in every group, so each group's scores of "
+                f"{'it' if one else 'them'} are centred at 0 in that group's own units.")
+        advice = Note((f"compare or rank people of different groups on {names} only with the scores of a model that "
+                       f"estimates {'its' if one else 'their'} means with loadings and intercepts held equal across "
+                       f"the groups", statement) + test)
+    return (Problem(ProblemKind.SCORES_NOT_COMPARABLE_ACROSS_GROUPS, (), float(len(centred)), text, advice),)
 
 
 def _without_own_answers(answered: np.ndarray, values: dict, chosen, factors,
