@@ -489,6 +489,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
                                          _filter_kept(ws, header, skipped)))
     if not body:
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
+    _padded_as_shown(ws, body, kept, header, skipped, items, where, notes)
     marked: dict[int, dict[str, int]] = {}  # column position -> {marker: cells}, counted once
     for r in body:
         for k, v in enumerate(r):
@@ -519,6 +520,38 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
 
 
 MAX_EXCEL_CELLS = 20_000_000
+
+#: a cell format that shows a whole number with leading zeros to a width ('000000' shows 991 as 000991)
+_PADDED_FORMAT = re.compile(r"0{2,}")
+
+
+def _padded_as_shown(ws, body: list[list], kept: list[int], header: list, skipped: int, items, where: str,
+                     notes: list[str]) -> None:
+    """Whole numbers that their cell format shows with leading zeros ('000000': 991 shown as 000991), read as the
+    sheet shows them, as text, in every column but the model's items (``items``; None: every column): such a
+    column holds codes (ids, postcodes), which a scores file, the notes and the groups then name as the sheet does
+    (new-user trial s21: ids shown as 000991 were written 991 in the scores file, and no longer matched the
+    spreadsheet's).  The other whole numbers of such a column are read as text too (plain digits), so that the
+    column is one of text; a column with a number that is not whole is left as it is (a format that rounds).
+    ``body``: the rows of data (changed in place), ``kept``: their rows in the sheet; a note names each column."""
+    wanted = None if items is None else {str(x) for x in items}
+    for k, name in enumerate(header):
+        if not name or (wanted is not None and name in wanted):
+            continue
+        whole = [(i, r[k]) for i, r in enumerate(body) if isinstance(r[k], (int, float)) and not isinstance(r[k], bool)]
+        if not whole or any(isinstance(v, float) and not v.is_integer() for _, v in whole):
+            continue
+        shown = {i: ws.cell(row=kept[i], column=skipped + k + 1).number_format for i, _ in whole}
+        padded = [i for i, f in shown.items() if isinstance(f, str) and _PADDED_FORMAT.fullmatch(f)]
+        if not padded:
+            continue
+        for i, v in whole:
+            width = len(shown[i]) if i in padded else 0
+            body[i][k] = ("-" if v < 0 else "") + str(abs(int(v))).zfill(width)
+        first = padded[0]
+        notes.append(f"{where}: the numbers of column '{printable(name)}' that their cell format shows with leading "
+                     f"zeros ('{printable(shown[first])}', {len(padded)} cell{'s' if len(padded) != 1 else ''}) were "
+                     f"read as the sheet shows them, as text (row {kept[first]}: '{body[first][k]}')")
 
 
 @dataclass(frozen=True)
