@@ -93,14 +93,37 @@ def rows_scored(result) -> str:
 
 
 def _empty_lines(result) -> str:
-    """What the lines without any score are, with their count by reason (the words of the why_not_scored column)."""
-    if not result.not_scored:
+    """What the lines without any score are: the rows of data without one, with their count by reason (the words of
+    the why_not_scored column), and the empty lines of rows of the file that hold no data (:func:`lines_without_data`)."""
+    said = ""
+    if result.not_scored:
+        counts = ", ".join(f"{why.value} {count_text(n)}" for why, n in result.not_scored.items())
+        empty = result.rows - result.rows_scored
+        keep = "keeps its line" if empty == 1 else "keep their line"
+        said = (f" (the {count_text(empty)} without any score {keep} with empty cells, the column "
+                f"{WHY_NOT_SCORED_COLUMN} saying why: {counts})")
+    lines = lines_without_data(result)
+    return said + (f", and {lines}" if lines else "")
+
+
+#: the rows of a file that hold no data, whose lines the scores file keeps empty (workflows.factor_scores.NotScored
+#: .row_of_data), in words: one, several
+_NO_DATA_WORDS = {NotScored.BLANK: ("a blank row of the file", "blank rows of the file"),
+                  NotScored.ABOVE_ANSWERS: ("the row above the first row of answers",
+                                            "rows above the first row of answers")}
+
+
+def lines_without_data(result) -> str:
+    """The empty lines the scores file keeps for rows of the file that hold no data, so that its lines follow the
+    file's rows ('an empty line for the row above the first row of answers'), never counted as rows of the data
+    (new-user trial s21); '' when there are none."""
+    found = result.lines_without_data
+    if not found:
         return ""
-    counts = ", ".join(f"{why.value} {count_text(n)}" for why, n in result.not_scored.items())
-    empty = result.rows - result.rows_scored
-    keep = "keeps its line" if empty == 1 else "keep their line"
-    return (f" (the {count_text(empty)} without any score {keep} with empty cells, the column "
-            f"{WHY_NOT_SCORED_COLUMN} saying why: {counts})")
+    listed = word_list(_NO_DATA_WORDS[why][0] if n == 1 else f"each of the {count_text(n)} {_NO_DATA_WORDS[why][1]}"
+                       for why, n in found.items())
+    return (f"an empty line for {listed} (no data; {WHY_NOT_SCORED_COLUMN} says '"
+            + "', '".join(why.value for why in found) + "'), so that the lines follow the file's rows")
 
 
 def _design_line(fit) -> list[str]:

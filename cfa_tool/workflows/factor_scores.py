@@ -68,6 +68,14 @@ class NotScored(Enum):
         """Whether the reason leaves the line without any score (all but :attr:`FACTOR_LEFT_EMPTY`)."""
         return self is not NotScored.FACTOR_LEFT_EMPTY
 
+    @property
+    def row_of_data(self) -> bool:
+        """Whether the line stands for a row of the data (all but :attr:`BLANK` and :attr:`ABOVE_ANSWERS`: a row of
+        the file that holds no data, whose empty line keeps the scores in line with the file's rows, and which no
+        count of rows holds: new-user trial s21, 'Of the 901 rows in the data, one has no score (a row above the first
+        row of answers: 1)' where the fit had 900 rows)."""
+        return self not in (NotScored.BLANK, NotScored.ABOVE_ANSWERS)
+
 
 _REASONS: dict[NotScored, tuple[str, Option | None]] = {
     NotScored.FILTERED: ("left out by a row filter", Option.KEEP), NotScored.BLANK: ("a blank row of the file", None),
@@ -648,19 +656,27 @@ class ScoreResult(Presentable):
 
     @property
     def rows(self) -> int:
-        """Lines of the scores file: one per row of the data read, in the file's order (blank rows of a file too)."""
-        return len(self.table)
+        """Rows of the data read: the lines of the scores file (one per row of the file, in its order) but those of
+        rows that hold no data (:attr:`lines_without_data`: blank rows, rows above the first row of answers)."""
+        return len(self.table) - sum(self.lines_without_data.values())
 
     @property
     def rows_scored(self) -> int:
-        """Lines with at least one score: every line but those the why_not_scored column gives a reason
+        """Rows with at least one score: every row but those the why_not_scored column gives a reason
         (:func:`_with_why_not_scored` fills it on exactly the lines without any score)."""
         return self.rows - sum(self.not_scored.values())
 
     @property
     def not_scored(self) -> dict[NotScored, int]:
-        """The lines without any score, by reason (:data:`WHY_NOT_SCORED_COLUMN`), in :class:`NotScored` order."""
-        return {why: n for why, n in self._reasons_written().items() if why.whole_line}
+        """The rows of data without any score, by reason (:data:`WHY_NOT_SCORED_COLUMN`), in :class:`NotScored`
+        order."""
+        return {why: n for why, n in self._reasons_written().items() if why.whole_line and why.row_of_data}
+
+    @property
+    def lines_without_data(self) -> dict[NotScored, int]:
+        """The empty lines of the scores file that stand for rows of the file holding no data (not rows of the data,
+        :attr:`NotScored.row_of_data`), by reason, in :class:`NotScored` order."""
+        return {why: n for why, n in self._reasons_written().items() if not why.row_of_data}
 
     @property
     def lines_left_partly_empty(self) -> int:
@@ -689,6 +705,7 @@ class ScoreResult(Presentable):
             "rows": self.rows,
             "rows_scored": self.rows_scored,
             "rows_not_scored": {why.value: n for why, n in self.not_scored.items()},
+            "lines_without_data": {why.value: n for why, n in self.lines_without_data.items()},
             "unanswered_factors": self.unanswered.value,
             "rows_with_a_factor_left_empty": self.lines_left_partly_empty,
             "methods": [m.value for m in self.methods],
