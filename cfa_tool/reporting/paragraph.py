@@ -612,8 +612,10 @@ def _completely_at_random_sentence(result) -> str:
     figures = f"{CHI}({test.df}) = {test.chi_square:.2f}, {_p(test.p_value)}"
     given = "the items analysed" + (" and the auxiliary variables" if result.method.helpers else "")
     if test.p_value < 0.05:
-        return (f"{TEST_NAME} was significant ({figures}), so the answers are not missing completely at random; "
-                f"full-information ML rests on their being missing at random given {given}.")
+        # evidence, not proof, as the non-significant case is worded (new-user trial s21: p = .006 on one half of
+        # answers made missing completely at random, a chance rejection, read as a fact)
+        return (f"{TEST_NAME} was significant ({figures}), evidence that the answers are not missing completely at "
+                f"random; full-information ML rests on their being missing at random given {given}.")
     return (f"{TEST_NAME} was not significant ({figures}), which does not show that they are; full-information ML "
             f"needs only that the answers be missing at random given {given}.")
 
