@@ -1667,12 +1667,13 @@ def _first_data_start(first_data_row, names_row: int, last: int, where: str, nam
     return first_data_row
 
 
-def _skipped_note(where: str, names_row: int, skipped: int, first_data_row: int, option: Option) -> str:
-    """The note naming the rows from ``skipped`` to the one before ``first_data_row``, which ``option`` left unread."""
+def _skipped_note(where: str, names_row: int, skipped: int, first_data_row: int, option: Option) -> Note:
+    """The note naming the rows from ``skipped`` to the one before ``first_data_row``, which ``option`` left unread,
+    the option apart (note_parts.Command: the Word file names none; new-user trial s21)."""
     between = (f"row {skipped} was" if first_data_row == skipped + 1 else
                f"rows {skipped}-{first_data_row - 1} were")
-    return (f"{where}: {between} not read as data (between the column names in row {names_row} and the first "
-            f"row of data, {first_data_row}, as {option.given(first_data_row)} asks)")
+    return Note((f"{where}: {between} not read as data (between the column names in row {names_row} and the first "
+                 f"row of data, {first_data_row}", Command(f", as {option.given(first_data_row)} asks"), ")"))
 
 
 def _skip_to_data(text: str, records: TextRecords, header_line: int, first_data_row, where: str,
@@ -1730,11 +1731,13 @@ def _spanning_note(path, rows: TextRows) -> str:
             f"is text line {rows.line(last)}); messages give a row's text line beside it where the two differ")
 
 
-def _names_row_note(where: str, names_row: int, option: Option = Option.NAMES_ROW) -> str:
-    """The note of a table whose column names were read from a later row (``option``: --names-row)."""
+def _names_row_note(where: str, names_row: int, option: Option = Option.NAMES_ROW) -> Note:
+    """The note of a table whose column names were read from a later row (``option``: --names-row), the option apart
+    (note_parts.Command: the Word file names none)."""
     above = "" if names_row == 1 else ("; row 1 above it was not read" if names_row == 2 else
                                         f"; rows 1-{names_row - 1} above it were not read")
-    return f"{where}: the column names were read from row {names_row}, as {option.flag} asks{above}"
+    return Note((f"{where}: the column names were read from row {names_row}", Command(f", as {option.flag} asks"),
+                 above))
 
 
 def drop_blank_rows(frame: pd.DataFrame, where: str) -> tuple[pd.DataFrame, tuple[str, ...]]:
