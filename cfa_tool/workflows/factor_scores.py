@@ -19,7 +19,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import names_shown, user_number
 from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, caller_labels, row_naming
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
@@ -1529,8 +1529,9 @@ def _same_item_names(spec, fitted: tuple[str, ...]) -> None:
         return
 
     def listed(names: list[str]) -> str:
-        return ", ".join(f"'{printable(x)}'" for x in names[:4]) + (f" and {len(names) - 4} more" if len(names) > 4
-                                                                    else "")
+        few = names_shown(len(names), 4)
+        return ", ".join(f"'{printable(x)}'" for x in names[:few]) + (f" and {len(names) - few} more"
+                                                                      if len(names) > few else "")
     differ = (f"the model {spec.source} has {listed(here)} where the fit has {listed(there)}" if here and there else
               f"the model {spec.source} has {listed(here)}, which the fit does not" if here else
               f"the fit has {listed(there)}, which the model {spec.source} does not")
@@ -1718,8 +1719,8 @@ def _items_against_loadings(model, rows: np.ndarray, source: str) -> str | None:
     listed = "; ".join(f"'{printable(item)}' correlates {two_decimals(r)} with the rest of {printable(factor)}'s items "
                        f"(keyed as the fit keys them), while its loading in the earlier fit is "
                        f"{'positive' if loading > 0 else 'negative'} ({loading:.3f})"
-                       for item, factor, r, loading in found[:5]) + (
-        f"; and {len(found) - 5} more items" if len(found) > 5 else "")
+                       for item, factor, r, loading in found[:names_shown(len(found), 5)]) + (
+        f"; and {len(found) - 5} more items" if len(found) > names_shown(len(found), 5) else "")
     one = len(found) == 1
     return (f"In {source}, {'an item runs' if one else 'items run'} against {'its factor' if one else 'their factors'}"
             f": {listed}. {'It is' if one else 'They are'} probably coded the other way round from the fit's data (a "
@@ -1747,7 +1748,8 @@ def _outside_fitted_ranges(data, items, rows: np.ndarray, source: str) -> str | 
     if not found:
         return None
     listed = "; ".join(f"'{printable(item)}', {n} answer{'s' if n != 1 else ''} outside {user_number(lo)} to {user_number(hi)}"
-                       for item, n, lo, hi in found[:5]) + (f"; and {len(found) - 5} more items" if len(found) > 5 else "")
+                       for item, n, lo, hi in found[:names_shown(len(found), 5)]) + (
+        f"; and {len(found) - 5} more items" if len(found) > names_shown(len(found), 5) else "")
     return (f"{source} holds answers outside the range of the rows the earlier fit analysed: {listed}. Scores of such "
             f"answers extrapolate the fit, and if the files code the answers differently (0 to 4 against 1 to 5, "
             f"say) every score is shifted.")
@@ -1765,11 +1767,11 @@ def _unknown_groups(group_of_row: np.ndarray, labels, group: str, source: str) -
         return None
     counts = given.value_counts()
     shown = []
-    for label, n in list(counts.items())[:6]:
+    for label, n in list(counts.items())[:names_shown(len(counts), 6)]:
         near = close_names(str(label), [str(x) for x in labels])
         shown.append(f"'{printable(label)}' ({n} row{'s' if n != 1 else ''}"
                      + (f"; the fit has '{printable(near[0])}'" if near else "") + ")")
-    more = f" and {len(counts) - 6} more" if len(counts) > 6 else ""
+    more = f" and {len(counts) - 6} more" if len(counts) > names_shown(len(counts), 6) else ""
     fitted = ", ".join(f"'{printable(x)}'" for x in labels)
     text = (f"{int(counts.sum())} rows of {source} are in groups of '{printable(group)}' that the earlier fit does not "
             f"have: {', '.join(shown)}{more}; the fit's groups are {fitted}, and a label must match one as written")
