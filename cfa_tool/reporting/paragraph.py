@@ -1986,12 +1986,13 @@ def replication_paragraph(replications) -> str:
     coding = answer_coding_sentence(result.data)
     if coding:
         parts.append(coding)
-    # halves of one file read it once: said once, of the data file
+    # halves of one file read it once: said once, without naming the one file (whose clauses say 'the data file'
+    # themselves: new-user trial s21 read 'In the data file, values the data file marks as no answer ...')
     for r in ((result,) if first.split is not None else (result, first.loose)):
         read, kept = _read_as_missing(r.data), _kept_as_answers(r.data)
-        where = "the data file" if first.split is not None else r.data.source
+        where = "" if first.split is not None else f"in {r.data.source}, "
         if read or kept:
-            parts.append(_capital(f"in {where}, {'; '.join(x for x in (read, kept) if x)}") + ".")
+            parts.append(_capital(where + "; ".join(x for x in (read, kept) if x)) + ".")
     for k, rep in enumerate(reps):
         lead = (f"calibrated on half {'AB'[k]} and validated on half {'BA'[k]}: " if len(reps) > 1 else "")
         parts += _replication_sentences(rep, lead, k == 0)
