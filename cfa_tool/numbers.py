@@ -87,3 +87,11 @@ def count_text(value: float) -> str:
         return f"{int(value):,}"
     text = f"{value:,.2f}"
     return text.rstrip("0").rstrip(".")
+
+
+def names_shown(total: int, most: int) -> int:
+    """How many of ``total`` names (items, rows, values) a list that cuts after ``most`` of them names before 'and N
+    more': every one when at most one would be left over, since 'and 1 more item' hides a name to save none (new-user
+    trial s21: "'Prefer not to say' in vig3, ded2, exh1 and 1 more item" left exh4 unnamed in a methods paragraph);
+    else ``most``.  The one rule of every list of names that cuts."""
+    return total if total <= most + 1 else most

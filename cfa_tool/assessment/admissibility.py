@@ -169,6 +169,10 @@ class ProblemKind(enum.Enum):
     # thresholds the model sets apart between groups while it compares the factor's means (partial invariance): the
     # groups' sums differ by those items' own shifts (scoring.item_sums.group_shifts)
     ITEM_SUMS_ACROSS_GROUPS = ("item sums that do not compare across groups", "item sums across groups", False)
+    # not of the solution but of the scores: factor scores of several groups whose factor means the model fixes at
+    # zero in every group, so that each group's scores are centred at 0 (workflows.factor_scores
+    # .not_comparable_problems)
+    SCORES_NOT_COMPARABLE_ACROSS_GROUPS = ("scores that do not compare across groups", "groups not comparable", False)
     ITEM_AGAINST_FITTED_LOADING = ("item against its fitted loading", "coded the other way?", False)
     # not of the solution but of the rows scored: a factor score of a row that answered none of the factor's items,
     # which rests on the other factors' items alone (through the factors' correlations)

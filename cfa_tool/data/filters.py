@@ -16,7 +16,7 @@ from __future__ import annotations
 import datetime
 import operator
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 import pandas as pd
@@ -263,7 +263,7 @@ def parse_filter(text: str) -> RowFilter:
     if len(raw) >= 2 and raw[0] == raw[-1] and raw[0] in "\"'":
         value: object = raw[1:-1]
     else:
-        parsed = number(raw)
+        parsed = None if zero_led(raw) else number(raw)  # '000991' kept as written (:func:`_compared`)
         value = parsed if parsed is not None else raw
     return RowFilter(column, op, value, text.strip())
 
@@ -295,7 +295,7 @@ def _set_filter(text: str, match: re.Match) -> RowFilter:
                               f"end); separate the values by single commas")
         if len(cell) >= 2 and cell[0] == cell[-1] == "'":
             cell = cell[1:-1]
-        parsed = number(cell)
+        parsed = None if zero_led(cell) else number(cell)
         value: object = parsed if parsed is not None else cell
         if value in values:
             raise OptionError(f"{given}: '{printable(cell)}' is listed twice; list each value once")
@@ -507,6 +507,7 @@ def _compared(frame: pd.DataFrame, f: RowFilter, column: pd.Series, labels, sour
     with what the comparison found (:class:`_Comparison`)."""
     by_label = ""
     shared: tuple[tuple[str, int], ...] = ()
+    f, as_written = _codes_as_written(f, column)
     if labels and isinstance(f.value, float):
         _refuse_label_of_other_code(f, column, labels, source)
     if labels and not isinstance(f.value, float) and f.operator in ("=", "!="):
@@ -556,12 +557,46 @@ def _compared(frame: pd.DataFrame, f: RowFilter, column: pd.Series, labels, sour
     absent = ""
     if f.operator in ("=", "!=") and not (values == target).any():  # a value no row has: which ones are there
         absent = (f"; no row has '{printable(label_text(f.value))}' in '{printable(f.column)}' (values present: "
-                  f"{_present(values, target)})" + (_case_hint(cased) if isinstance(target, str) else ""))
+                  f"{_present(values, target)})" + (_zeros_hint(values, target) if as_written else
+                                                     _case_hint(cased) if isinstance(target, str) else ""))
     named = None  # the label of the code compared, for the methods section's words
     if labels and isinstance(f.value, float) and f.operator in ("=", "!="):
         named = next((str(text) for code, text in labels.items()
                       if _number_or_nan(code) == f.value and str(text).strip()), None)
     return _Comparison(keep, by_label, absent, read_as, shared, cased, named)
+
+
+#: a whole number written with a leading zero ('000991', '07'): in a column of text, a code written as the sheet shows it
+_ZERO_LED = re.compile(r"[+-]?0\d+")
+
+
+def _zeros_hint(values: pd.Series, target: str) -> str:
+    """What a filter says when no row has its value in a column of codes written with leading zeros
+    (:func:`_codes_as_written`): that they are compared as written, with the cells that hold the same number."""
+    wanted = number(target.strip())
+    same = sorted({v for v in values.dropna() if wanted is not None and number(str(v)) == wanted})
+    shown = f" ({', '.join(printable(v) for v in same[:3])})" if same else ""
+    return (f"; the column holds numbers written with leading zeros (ids, codes), which a filter's = and != compare "
+            f"as written: write the value as the file shows it{shown}")
+
+
+def zero_led(text: str) -> bool:
+    """Whether ``text`` is a whole number written with a leading zero ('000991', '07'; not '0' or '0.5')."""
+    return bool(_ZERO_LED.fullmatch(text.strip()))
+
+
+def _codes_as_written(f: RowFilter, column: pd.Series) -> tuple[RowFilter, bool]:
+    """``f`` as it compares with ``column``, and whether it compares text as written: a column of text that holds
+    numbers written with leading zeros ('000991': ids, postcodes, as a sheet shows them) holds codes, which = and !=
+    compare as written, so 'respondent_id = 991' does not match '000991' and 'respondent_id = 000991' does (new-user
+    trial s21); a value written with a leading zero is a number elsewhere (an order, a column of numbers)."""
+    text_column = column.dtype.kind not in "iufb"
+    codes = text_column and any(isinstance(v, str) and zero_led(v) for v in column.dropna())
+    if codes and f.operator in ("=", "!=") and isinstance(f.value, float):
+        return replace(f, value=user_number(f.value)), True
+    if isinstance(f.value, str) and zero_led(f.value) and not (codes and f.operator in ("=", "!=")):
+        return replace(f, value=number(f.value.strip())), False
+    return f, codes and f.operator in ("=", "!=")
 
 
 def _refuse_label_of_other_code(f: RowFilter, column: pd.Series, labels: dict, source: str) -> None:

@@ -11,6 +11,7 @@ import pandas as pd
 
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.errors import clipped, printable
+from cfa_tool.numbers import names_shown
 from cfa_tool.note_parts import Command, Note, RowId, Text
 from cfa_tool.options import Option
 
@@ -138,6 +139,7 @@ def rows_listed(numbers, shown: int = 5, ids=(), naming: RowNaming = RowNaming.F
     ``naming``: 'row 711 ('Total responses: 1204')', 'rows 152, 154, 424, 709, 710 and 3 more', 'row 501 (text line
     575)', 'index labels 151, 153'."""
     numbers = [int(n) for n in numbers]
+    shown = names_shown(len(numbers), shown)  # never 'and 1 more'
     ids = list(ids) if len(ids) == len(numbers) else [None] * len(numbers)
     parts: list = [f"{naming.of(len(numbers))} "]
     for k, (n, i) in enumerate(zip(numbers[:shown], ids)):

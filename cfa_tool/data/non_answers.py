@@ -35,7 +35,7 @@ import pandas as pd
 
 from cfa_tool.language.spec import answer_key
 from cfa_tool.errors import DataError, clipped, printable
-from cfa_tool.numbers import number, user_number
+from cfa_tool.numbers import names_shown, number, user_number
 from cfa_tool.input_files import DATA_FRAME, base_name
 from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
@@ -266,8 +266,9 @@ class LabelledAnswer:
     def note(self, source: str, given: tuple = ()) -> Note:
         """The note: where, how many cells, and how to read the code as no answer (``given``: the codes the run
         gives with --missing-codes already, which the advice keeps), the option apart (note_parts.Command)."""
-        listed = ", ".join(f"{printable(c)} {n}" for c, n in zip(self.columns[:SHOWN], self.cells[:SHOWN]))
-        more = f" and {_more(len(self.columns) - SHOWN, 'item')}" if len(self.columns) > SHOWN else ""
+        shown = names_shown(len(self.columns), SHOWN)
+        listed = ", ".join(f"{printable(c)} {n}" for c, n in zip(self.columns[:shown], self.cells[:shown]))
+        more = f" and {_more(len(self.columns) - shown, 'item')}" if len(self.columns) > shown else ""
         total = sum(self.cells)
         codes = [f"{user_number(c)}" for c in given if isinstance(c, (int, float))] + [f"{user_number(self.value)}"]
         return Note((f"{base_name(source)}: {user_number(self.value)} '{printable(self.label)}' lies between other answers of "
@@ -347,13 +348,15 @@ class BeyondScale:
         cells = sum(len(r) for r in self.rows)
         if len(self.columns) == 1:
             (rows,) = self.rows
-            shown = ", ".join(str(r) for r in rows[:3]) + (f" and {len(rows) - 3} more" if len(rows) > 3 else "")
+            few = names_shown(len(rows), 3)
+            shown = ", ".join(str(r) for r in rows[:few]) + (f" and {len(rows) - few} more" if len(rows) > few else "")
             where = (f"The item {printable(self.columns[0])} of {name} holds the code {user_number(self.value)} labelled "
                      f"'{printable(self.label)}' ({cells} cell{'s' if cells != 1 else ''}: data "
                      f"row{'s' if cells != 1 else ''} {shown}), beyond its other labelled answers")
         else:
             each = [f"{printable(c)} {len(r)}" for c, r in zip(self.columns, self.rows)]
-            listed = ", ".join(each[:SHOWN]) + (f" and {_more(len(each) - SHOWN, 'item')}" if len(each) > SHOWN else "")
+            few = names_shown(len(each), SHOWN)
+            listed = ", ".join(each[:few]) + (f" and {_more(len(each) - few, 'item')}" if len(each) > few else "")
             where = (f"{len(self.columns)} items of {name} hold the code {user_number(self.value)} labelled "
                      f"'{printable(self.label)}' ({cells} cells: {listed}), beyond their other labelled answers")
         return f"{where} ({user_number(self.scale[0])} to {user_number(self.scale[1])}), analysed as an answer: a code of no answer?"
@@ -495,10 +498,11 @@ def _more(count: int, noun: str) -> str:
 
 
 def _brief(names: list[str], noun: str) -> str:
-    """'a, b and c', or 'a, b, c and 4 more NOUN' past :data:`BRIEF` names."""
-    shown = names[:BRIEF]
-    if len(names) > BRIEF:
-        return f"{', '.join(shown)} and {_more(len(names) - BRIEF, noun)}"
+    """'a, b and c', or 'a, b, c and 4 more NOUN' past :data:`BRIEF` names (all of them when one would be left
+    over: numbers.names_shown)."""
+    shown = names[:names_shown(len(names), BRIEF)]
+    if len(names) > len(shown):
+        return f"{', '.join(shown)} and {_more(len(names) - len(shown), noun)}"
     return shown[0] if len(shown) == 1 else f"{', '.join(shown[:-1])} and {shown[-1]}"
 
 
@@ -525,7 +529,8 @@ def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | No
         return _brief([printable(n) for n in names], "item")
 
     values = [f"{value} in {held_in(names)}" for value, names in columns.items()]
-    shown = "; ".join(values[:BRIEF]) + (f"; and {_more(len(values) - BRIEF, 'value')}" if len(values) > BRIEF else "")
+    few = names_shown(len(values), BRIEF)
+    shown = "; ".join(values[:few]) + (f"; and {_more(len(values) - few, 'value')}" if len(values) > few else "")
     if source == DATA_FRAME:
         return f"text cells of the data frame that say no answer were treated as missing ({shown})"
     return f"values the data file marks as no answer were treated as missing ({shown})"
@@ -546,8 +551,9 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None) -> tuple[str, s
     for group in by_value.values():
         group = sorted(group, key=lambda f: -len(f.rows))  # the items most affected first (those past SHOWN: fewest)
         cells = sum(len(f.rows) for f in group)
-        listed = ", ".join(f"{printable(f.column)} {len(f.rows)}" for f in group[:SHOWN])
-        more = f" and {_more(len(group) - SHOWN, 'item')}" if len(group) > SHOWN else ""
+        few = names_shown(len(group), SHOWN)
+        listed = ", ".join(f"{printable(f.column)} {len(f.rows)}" for f in group[:few])
+        more = f" and {_more(len(group) - few, 'item')}" if len(group) > few else ""
         parts.append(f"{group[0].shown()} ({cells} cell{'s' if cells != 1 else ''}: {listed}{more})")
     total = sum(len(f.rows) for f in mine)
     kinds = {f.kind for f in mine}

@@ -490,6 +490,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
                                          _filter_kept(ws, header, skipped)))
     if not body:
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
+    _padded_as_shown(ws, body, kept, header, skipped, items, where, notes)
     marked: dict[int, dict[str, int]] = {}  # column position -> {marker: cells}, counted once
     for r in body:
         for k, v in enumerate(r):
@@ -520,6 +521,38 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
 
 
 MAX_EXCEL_CELLS = 20_000_000
+
+#: a cell format that shows a whole number with leading zeros to a width ('000000' shows 991 as 000991)
+_PADDED_FORMAT = re.compile(r"0{2,}")
+
+
+def _padded_as_shown(ws, body: list[list], kept: list[int], header: list, skipped: int, items, where: str,
+                     notes: list[str]) -> None:
+    """Whole numbers that their cell format shows with leading zeros ('000000': 991 shown as 000991), read as the
+    sheet shows them, as text, in every column but the model's items (``items``; None: every column): such a
+    column holds codes (ids, postcodes), which a scores file, the notes and the groups then name as the sheet does
+    (new-user trial s21: ids shown as 000991 were written 991 in the scores file, and no longer matched the
+    spreadsheet's).  The other whole numbers of such a column are read as text too (plain digits), so that the
+    column is one of text; a column with a number that is not whole is left as it is (a format that rounds).
+    ``body``: the rows of data (changed in place), ``kept``: their rows in the sheet; a note names each column."""
+    wanted = None if items is None else {str(x) for x in items}
+    for k, name in enumerate(header):
+        if not name or (wanted is not None and name in wanted):
+            continue
+        whole = [(i, r[k]) for i, r in enumerate(body) if isinstance(r[k], (int, float)) and not isinstance(r[k], bool)]
+        if not whole or any(isinstance(v, float) and not v.is_integer() for _, v in whole):
+            continue
+        shown = {i: ws.cell(row=kept[i], column=skipped + k + 1).number_format for i, _ in whole}
+        padded = [i for i, f in shown.items() if isinstance(f, str) and _PADDED_FORMAT.fullmatch(f)]
+        if not padded:
+            continue
+        for i, v in whole:
+            width = len(shown[i]) if i in padded else 0
+            body[i][k] = ("-" if v < 0 else "") + str(abs(int(v))).zfill(width)
+        first = padded[0]
+        notes.append(f"{where}: the numbers of column '{printable(name)}' that their cell format shows with leading "
+                     f"zeros ('{printable(shown[first])}', {len(padded)} cell{'s' if len(padded) != 1 else ''}) were "
+                     f"read as the sheet shows them, as text (row {kept[first]}: '{body[first][k]}')")
 
 
 @dataclass(frozen=True)
@@ -1660,12 +1693,13 @@ def _first_data_start(first_data_row, names_row: int, last: int, where: str, nam
     return first_data_row
 
 
-def _skipped_note(where: str, names_row: int, skipped: int, first_data_row: int, option: Option) -> str:
-    """The note naming the rows from ``skipped`` to the one before ``first_data_row``, which ``option`` left unread."""
+def _skipped_note(where: str, names_row: int, skipped: int, first_data_row: int, option: Option) -> Note:
+    """The note naming the rows from ``skipped`` to the one before ``first_data_row``, which ``option`` left unread,
+    the option apart (note_parts.Command: the Word file names none; new-user trial s21)."""
     between = (f"row {skipped} was" if first_data_row == skipped + 1 else
                f"rows {skipped}-{first_data_row - 1} were")
-    return (f"{where}: {between} not read as data (between the column names in row {names_row} and the first "
-            f"row of data, {first_data_row}, as {option.given(first_data_row)} asks)")
+    return Note((f"{where}: {between} not read as data (between the column names in row {names_row} and the first "
+                 f"row of data, {first_data_row}", Command(f", as {option.given(first_data_row)} asks"), ")"))
 
 
 def _skip_to_data(text: str, records: TextRecords, header_line: int, first_data_row, where: str,
@@ -1723,11 +1757,13 @@ def _spanning_note(path, rows: TextRows) -> str:
             f"is text line {rows.line(last)}); messages give a row's text line beside it where the two differ")
 
 
-def _names_row_note(where: str, names_row: int, option: Option = Option.NAMES_ROW) -> str:
-    """The note of a table whose column names were read from a later row (``option``: --names-row)."""
+def _names_row_note(where: str, names_row: int, option: Option = Option.NAMES_ROW) -> Note:
+    """The note of a table whose column names were read from a later row (``option``: --names-row), the option apart
+    (note_parts.Command: the Word file names none)."""
     above = "" if names_row == 1 else ("; row 1 above it was not read" if names_row == 2 else
                                         f"; rows 1-{names_row - 1} above it were not read")
-    return f"{where}: the column names were read from row {names_row}, as {option.flag} asks{above}"
+    return Note((f"{where}: the column names were read from row {names_row}", Command(f", as {option.flag} asks"),
+                 above))
 
 
 def drop_blank_rows(frame: pd.DataFrame, where: str) -> tuple[pd.DataFrame, tuple[str, ...]]:

@@ -652,8 +652,10 @@ def _completely_at_random_sentence(result) -> str:
     figures = f"{CHI}({test.df}) = {test.chi_square:.2f}, {_p(test.p_value)}"
     given = "the items analysed" + (" and the auxiliary variables" if result.method.helpers else "")
     if test.p_value < 0.05:
-        return (f"{TEST_NAME} was significant ({figures}), so the answers are not missing completely at random; "
-                f"full-information ML rests on their being missing at random given {given}.")
+        # evidence, not proof, as the non-significant case is worded (new-user trial s21: p = .006 on one half of
+        # answers made missing completely at random, a chance rejection, read as a fact)
+        return (f"{TEST_NAME} was significant ({figures}), evidence that the answers are not missing completely at "
+                f"random; full-information ML rests on their being missing at random given {given}.")
     return (f"{TEST_NAME} was not significant ({figures}), which does not show that they are; full-information ML "
             f"needs only that the answers be missing at random given {given}.")
 
@@ -1329,6 +1331,7 @@ def scores_paragraph(result) -> str:
     else:
         parts.append(f"Each row's scores on the {_count(len(result.factors), 'factor')} were computed from {whose} "
                      f"as {methods}.")
+    parts.append(_centred_scores_sentence(result))
     gaps, none = _scored_with_gaps(result)
     factor_methods = [m for m in result.methods if m not in ITEM_METHODS]
     if gaps and factor_methods:
@@ -1379,6 +1382,19 @@ def scores_paragraph(result) -> str:
         parts.append(f"The scores of {_names(low)} fall below a determinacy of {unit(DETERMINACY_CAUTION, 2)} (common "
                      f"practice) and are not suited to decisions about individuals.")
     return " ".join(p for p in parts if p)
+
+
+def _centred_scores_sentence(result) -> str:
+    """That the groups' factor scores are each centred at zero and do not compare across the groups, when the
+    scores' caution says so (workflows.factor_scores.not_comparable_problems); '' otherwise."""
+    from cfa_tool.workflows.factor_scores import centred_factors
+
+    if not any(p.kind is ProblemKind.SCORES_NOT_COMPARABLE_ACROSS_GROUPS for p in result.fit.problems):
+        return ""
+    centred = centred_factors(result.fit.estimates)
+    which = "" if len(centred) == len(result.factors) else f" of {_names(list(centred))}"
+    return (f"As the model fixed the factor means{which} at zero in every group, each group's factor scores{which} "
+            f"are centred at zero in that group's own units and do not compare across the groups.")
 
 
 #: which of a pair's difference tests a comparison's paragraph reports: the one to read for the fits' test
@@ -2048,12 +2064,13 @@ def replication_paragraph(replications) -> str:
     coding = answer_coding_sentence(result.data)
     if coding:
         parts.append(coding)
-    # halves of one file read it once: said once, of the data file
+    # halves of one file read it once: said once, without naming the one file (whose clauses say 'the data file'
+    # themselves: new-user trial s21 read 'In the data file, values the data file marks as no answer ...')
     for r in ((result,) if first.split is not None else (result, first.loose)):
         read, kept = _read_as_missing(r.data), _kept_as_answers(r.data)
-        where = "the data file" if first.split is not None else r.data.source
+        where = "" if first.split is not None else f"in {r.data.source}, "
         if read or kept:
-            parts.append(_capital(f"in {where}, {'; '.join(x for x in (read, kept) if x)}") + ".")
+            parts.append(_capital(where + "; ".join(x for x in (read, kept) if x)) + ".")
     for k, rep in enumerate(reps):
         lead = (f"calibrated on half {'AB'[k]} and validated on half {'BA'[k]}: " if len(reps) > 1 else "")
         parts += _replication_sentences(rep, lead, k == 0)

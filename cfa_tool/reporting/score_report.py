@@ -93,14 +93,37 @@ def rows_scored(result) -> str:
 
 
 def _empty_lines(result) -> str:
-    """What the lines without any score are, with their count by reason (the words of the why_not_scored column)."""
-    if not result.not_scored:
+    """What the lines without any score are: the rows of data without one, with their count by reason (the words of
+    the why_not_scored column), and the empty lines of rows of the file that hold no data (:func:`lines_without_data`)."""
+    said = ""
+    if result.not_scored:
+        counts = ", ".join(f"{why.value} {count_text(n)}" for why, n in result.not_scored.items())
+        empty = result.rows - result.rows_scored
+        keep = "keeps its line" if empty == 1 else "keep their line"
+        said = (f" (the {count_text(empty)} without any score {keep} with empty cells, the column "
+                f"{WHY_NOT_SCORED_COLUMN} saying why: {counts})")
+    lines = lines_without_data(result)
+    return said + (f", and {lines}" if lines else "")
+
+
+#: the rows of a file that hold no data, whose lines the scores file keeps empty (workflows.factor_scores.NotScored
+#: .row_of_data), in words: one, several
+_NO_DATA_WORDS = {NotScored.BLANK: ("a blank row of the file", "blank rows of the file"),
+                  NotScored.ABOVE_ANSWERS: ("the row above the first row of answers",
+                                            "rows above the first row of answers")}
+
+
+def lines_without_data(result) -> str:
+    """The empty lines the scores file keeps for rows of the file that hold no data, so that its lines follow the
+    file's rows ('an empty line for the row above the first row of answers'), never counted as rows of the data
+    (new-user trial s21); '' when there are none."""
+    found = result.lines_without_data
+    if not found:
         return ""
-    counts = ", ".join(f"{why.value} {count_text(n)}" for why, n in result.not_scored.items())
-    empty = result.rows - result.rows_scored
-    keep = "keeps its line" if empty == 1 else "keep their line"
-    return (f" (the {count_text(empty)} without any score {keep} with empty cells, the column "
-            f"{WHY_NOT_SCORED_COLUMN} saying why: {counts})")
+    listed = word_list(_NO_DATA_WORDS[why][0] if n == 1 else f"each of the {count_text(n)} {_NO_DATA_WORDS[why][1]}"
+                       for why, n in found.items())
+    return (f"an empty line for {listed} (no data; {WHY_NOT_SCORED_COLUMN} says '"
+            + "', '".join(why.value for why in found) + "'), so that the lines follow the file's rows")
 
 
 def _design_line(fit) -> list[str]:
@@ -315,13 +338,50 @@ SCORES_PRECISION_HEADING = "Check before using these scores"
 
 
 def precision_cautions(result) -> list[str]:
-    """Factors whose scores' reliability is below what decisions about individuals usually need."""
+    """Factors whose scores' reliability is below what decisions about individuals usually need: one caution per
+    group, naming each method whose scores fall below with its factors (new-user trial s21: item means, regression
+    and Bartlett scores gave three nearly identical cautions in a row)."""
     lines = []
     for q in result.quality:
-        lines += _item_sum_cautions(result, q)
-        for method, precise in _precisions_of(result, q):
-            lines += _precision_caution(result, q, method, precise)
+        found = _item_sum_low(result, q)
+        found += [(f"{METHOD_LABELS[method]} scores", low) for method, precise in _precisions_of(result, q)
+                  for low in [_low_reliabilities(q, precise)] if low]
+        if not found:
+            continue
+        if len(found) == 1:
+            (what, low), = found
+            lines.append(f"The reliability{' (omega)' if what == _SUMS else ''} of the {what}{_where(result, q)} is "
+                         f"below {_NEEDED}: {', '.join(low)}.")
+        else:
+            said = "; ".join(f"{what}{' (omega)' if what == _SUMS else ''}: {', '.join(low)}" for what, low in found)
+            lines.append(f"The reliability of the {word_list(what for what, _ in found)}{_where(result, q)} is "
+                         f"below {_NEEDED}: {said}.")
     return lines
+
+
+#: the level of the precision cautions, with its source
+_NEEDED = (f"the {unit(INDIVIDUAL_DECISIONS, 2)} that decisions about individuals usually need (Nunnally & "
+           f"Bernstein 1994; common practice)")
+#: how the precision cautions name the item sums and means
+_SUMS = "item sums and means"
+
+
+def _precision_advice(result) -> Text:
+    """What to try with scores less reliable than decisions about individuals need: read them for groups of people,
+    comparing groups only where the scores can be compared (new-user trial s21: with each group's scores centred at
+    0 the advice was still 'use the scores to compare groups'; workflows.factor_scores.not_comparable_problems)."""
+    from cfa_tool.assessment.admissibility import ProblemKind
+    from cfa_tool.workflows.factor_scores import centred_factors
+
+    if not any(p.kind is ProblemKind.SCORES_NOT_COMPARABLE_ACROSS_GROUPS for p in result.fit.problems):
+        return "use the scores to compare groups and for research, not for decisions about one person."
+    centred = set(centred_factors(result.fit.estimates))
+    others = [f for f in result.factors if f not in centred]
+    if not others:
+        return ("use the scores for research within each group, not to compare the groups (the caution above) nor "
+                "for decisions about one person.")
+    return (f"use the scores for research, comparing groups only on {word_list(others)} (the caution above), not "
+            f"for decisions about one person.")
 
 
 def indistinct_cautions(result) -> list[str]:
@@ -358,22 +418,17 @@ def _precisions_of(result, q) -> list[tuple[ScoreMethod, tuple]]:
     return [(m, precision_of(q, m)) for m in (methods if hasattr(q, "methods") else methods[:1])]
 
 
-def _precision_caution(result, q, method: ScoreMethod, precise: tuple) -> list[str]:
-    """The caution on one method's scores of one group whose reliability is below what decisions about individuals
-    usually need; [] when none is."""
+def _low_reliabilities(q, precise: tuple) -> list[str]:
+    """The factors of one method's scores of one group whose reliability is below what decisions about individuals
+    usually need, each with its reliability and its 95% band in the factor's SDs where it has one; [] when none is."""
     if hasattr(q, "methods"):
         found = [(p.factor, p.reliability, p.band_in_sd) for p in precise]
     else:  # every scored factor, with its band where rows answered all its items
         bands = {p.factor: p.band_in_sd for p in precise}
         found = [(f, rel, bands.get(f)) for f, rel in zip(q.factors, q.reliability)]
-    low = [f"{factor} {unit(rel, 2, INDIVIDUAL_DECISIONS)}"
-           + (f" (95% band about ±{num(band, 2)} SD of the factor)" if band is not None else "")
-           for factor, rel, band in found if rel < INDIVIDUAL_DECISIONS]
-    if not low:
-        return []
-    return [f"The reliability of the {METHOD_LABELS[method]} scores{_where(result, q)} is below the "
-            f"{unit(INDIVIDUAL_DECISIONS, 2)} that decisions about individuals usually need (Nunnally & Bernstein 1994; "
-            f"common practice): {', '.join(low)}."]
+    return [f"{factor} {unit(rel, 2, INDIVIDUAL_DECISIONS)}"
+            + (f" (95% band about ±{num(band, 2)} SD of the factor)" if band is not None else "")
+            for factor, rel, band in found if rel < INDIVIDUAL_DECISIONS]
 
 
 def _item_sums_of(result, q):
@@ -382,19 +437,15 @@ def _item_sums_of(result, q):
     return next((g for g in result.item_sums if g.group == q.group), None)
 
 
-def _item_sum_cautions(result, q) -> list[str]:
-    """The caution of the precision table's reliabilities, for the item sums' omega below what decisions about
-    individuals usually need."""
+def _item_sum_low(result, q) -> list[tuple[str, list[str]]]:
+    """The item sums' and means' factors of one group whose omega is below what decisions about individuals usually
+    need, as [(their name in the caution, the factors with their omega)]; [] when none is or none is written."""
     sums = _item_sums_of(result, q)
     if sums is None:
         return []
     low = [f"{f} {unit(w, 2, INDIVIDUAL_DECISIONS)}" for f, w in zip(sums.factors, sums.omega)
            if w == w and w < INDIVIDUAL_DECISIONS]
-    if not low:
-        return []
-    return [f"The reliability (omega) of the item sums and means{_where(result, q)} is below the "
-            f"{unit(INDIVIDUAL_DECISIONS, 2)} that decisions about individuals usually need (Nunnally & Bernstein 1994; "
-            f"common practice): {', '.join(low)}."]
+    return [(_SUMS, low)] if low else []
 
 
 def _listed_counts(factors, counts) -> str:
@@ -658,7 +709,7 @@ def _with_precision_problems(result):
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     said = tuple(Problem(ProblemKind.SCORES_LESS_RELIABLE, (), None, line,
-                         "use the scores to compare groups and for research, not for decisions about one person.")
+                         _precision_advice(result))
                  for line in precision_cautions(result))
     pairs = _indistinct_pairs(result)
     said += tuple(Problem(ProblemKind.SCORED_FACTORS_HARDLY_DISTINCT, (), None, line,

@@ -834,8 +834,8 @@ def _completely_at_random_note(result) -> Text:
         return f" {NOT_WITH_DESIGN}" if result.method.full_information and design else ""
     each = "; ".join(f"group {written_group(label, [g[0] for g in test.groups])}: chi-square {d2:.2f} on {df} df, p {p_phrase(p)}"
                      for label, d2, df, p in test.groups if df > 0)
-    verdict = ("" if test.p_value >= 0.05 else " The rows with different gaps differ in their answers: the answers "
-               "are not missing completely at random.")
+    verdict = ("" if test.p_value >= 0.05 else " The rows with different gaps differ in their answers more than "
+               "chance would make likely: evidence that the answers are not missing completely at random.")
     pooled = (result.missing_data or {}).get("n_patterns")
     within = (f"{test.patterns} patterns counted group by group, the groups added up; a pattern found in several "
               f"groups counts in each, hence more than the {pooled} distinct patterns above"

@@ -151,7 +151,7 @@ def group_shifts(bases, thresholds, labels, sums) -> tuple[GroupShift, ...]:
     scoring.model.ScoringModel, of the latent responses for ordinal items; ``thresholds``: each group's thresholds per
     item, or None for continuous items; ``labels``: the groups' labels), for the factors whose means the model
     compares across groups (not zero in every group: a model that fixes them at zero in every group compares no
-    means, and says so: workflows.factor_scores.centred_in_each_group).  () for one group.
+    means, and says so: workflows.factor_scores.not_comparable_problems).  () for one group.
 
     Under x = nu_g + L_g eta + e (Joreskog 1971; Meredith 1993) a factor's item mean in group g is
     mean(nu_g) + mean(L_g) alpha_g over its items: with equal loadings and intercepts it differs between groups only

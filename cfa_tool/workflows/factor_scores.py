@@ -19,7 +19,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import counted, user_number
+from cfa_tool.numbers import counted, names_shown, user_number
 from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, caller_labels, row_naming
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
@@ -67,6 +67,14 @@ class NotScored(Enum):
     def whole_line(self) -> bool:
         """Whether the reason leaves the line without any score (all but :attr:`FACTOR_LEFT_EMPTY`)."""
         return self is not NotScored.FACTOR_LEFT_EMPTY
+
+    @property
+    def row_of_data(self) -> bool:
+        """Whether the line stands for a row of the data (all but :attr:`BLANK` and :attr:`ABOVE_ANSWERS`: a row of
+        the file that holds no data, whose empty line keeps the scores in line with the file's rows, and which no
+        count of rows holds: new-user trial s21, 'Of the 901 rows in the data, one has no score (a row above the first
+        row of answers: 1)' where the fit had 900 rows)."""
+        return self not in (NotScored.BLANK, NotScored.ABOVE_ANSWERS)
 
 
 _REASONS: dict[NotScored, tuple[str, Option | None]] = {
@@ -648,19 +656,27 @@ class ScoreResult(Presentable):
 
     @property
     def rows(self) -> int:
-        """Lines of the scores file: one per row of the data read, in the file's order (blank rows of a file too)."""
-        return len(self.table)
+        """Rows of the data read: the lines of the scores file (one per row of the file, in its order) but those of
+        rows that hold no data (:attr:`lines_without_data`: blank rows, rows above the first row of answers)."""
+        return len(self.table) - sum(self.lines_without_data.values())
 
     @property
     def rows_scored(self) -> int:
-        """Lines with at least one score: every line but those the why_not_scored column gives a reason
+        """Rows with at least one score: every row but those the why_not_scored column gives a reason
         (:func:`_with_why_not_scored` fills it on exactly the lines without any score)."""
         return self.rows - sum(self.not_scored.values())
 
     @property
     def not_scored(self) -> dict[NotScored, int]:
-        """The lines without any score, by reason (:data:`WHY_NOT_SCORED_COLUMN`), in :class:`NotScored` order."""
-        return {why: n for why, n in self._reasons_written().items() if why.whole_line}
+        """The rows of data without any score, by reason (:data:`WHY_NOT_SCORED_COLUMN`), in :class:`NotScored`
+        order."""
+        return {why: n for why, n in self._reasons_written().items() if why.whole_line and why.row_of_data}
+
+    @property
+    def lines_without_data(self) -> dict[NotScored, int]:
+        """The empty lines of the scores file that stand for rows of the file holding no data (not rows of the data,
+        :attr:`NotScored.row_of_data`), by reason, in :class:`NotScored` order."""
+        return {why: n for why, n in self._reasons_written().items() if not why.row_of_data}
 
     @property
     def lines_left_partly_empty(self) -> int:
@@ -689,6 +705,7 @@ class ScoreResult(Presentable):
             "rows": self.rows,
             "rows_scored": self.rows_scored,
             "rows_not_scored": {why.value: n for why, n in self.not_scored.items()},
+            "lines_without_data": {why.value: n for why, n in self.lines_without_data.items()},
             "unanswered_factors": self.unanswered.value,
             "rows_with_a_factor_left_empty": self.lines_left_partly_empty,
             "methods": [m.value for m in self.methods],
@@ -850,7 +867,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                                               "rows by another column"), ".")))
     elif ids is None and not isinstance(data, pd.DataFrame):
         extra[:0] = _id_column_note(read_frame, source, spec, group, design)
-    own = _without_own_answers(answered, values, chosen, factors, unanswered) + _item_sums_across_groups(
+    own = not_comparable_problems(result.estimates, chosen) + _without_own_answers(
+        answered, values, chosen, factors, unanswered) + _item_sums_across_groups(
         models, labels, sums, chosen, bool(ordinal_items), group)
     if own:
         result = _after_data_cautions(result, data_cautions, own)
@@ -862,7 +880,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality), unscored,
                        bool(standard_errors or ordinal_items), tuple(extra),
-                       warnings=tuple(centred_in_each_group(result.estimates)), item_sums=summaries,
+                       item_sums=summaries,
                        unanswered=unanswered)
 
 
@@ -1167,16 +1185,17 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     written, written_errors, left = _left_empty(answered, values, errors, chosen, unanswered, counts)
     id_name, columns = _score_columns(ids, id_column, chosen, factors, written, written_errors, with_errors, answered)
     columns = _with_same_answer_column(columns, id_name, spec, base.items, rows, position.loc[frame.index].to_numpy(), n)
-    warnings = centred_in_each_group(result.estimates)
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
-    # first in every view, before the fit's own (the rows scored are this run's data)
-    scored_problems = list(_without_own_answers(answered, values, chosen, factors, unanswered)
+    # first in every view, before the fit's own (the rows scored are this run's data): the rows' own cautions (rows
+    # in groups the fit does not have, after their cause among the data's cautions), then the scores'
+    scored_problems = list(not_comparable_problems(result.estimates, chosen)
+                           + _without_own_answers(answered, values, chosen, factors, unanswered)
                            + _item_sums_across_groups(models, labels, sums, chosen, ordinal, group))
     if unknown_groups:
-        scored_problems.append(Problem(ProblemKind.UNKNOWN_GROUPS_SCORED, (), None, unknown_groups + ".",
-                                       "write each row's group as the fit's data wrote it, or fit the model to "
-                                       "these groups."))
+        scored_problems.insert(0, Problem(ProblemKind.UNKNOWN_GROUPS_SCORED, (), None, unknown_groups + ".",
+                                          "write each row's group as the fit's data wrote it, or fit the model to "
+                                          "these groups."))
     # answers coded otherwise than in the fit's data, first: every score of the factor moves with them
     scored_problems[:0] = [Problem(kind, (), None, text, advice) for kind, text, advice in
                            _coded_otherwise(result.data, base, rows, source, ordinal)]
@@ -1206,7 +1225,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                                  score_columns(chosen, factors), reasons, pd.Series(left, index=read_frame.index))
     table.index = caller_labels(table.index, loaded.frame_index)
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
-                       unscored, with_errors, tuple(notes), source, tuple(warnings), summaries, unanswered)
+                       unscored, with_errors, tuple(notes), source, (), summaries, unanswered)
 
 
 def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: str,
@@ -1510,8 +1529,9 @@ def _same_item_names(spec, fitted: tuple[str, ...]) -> None:
         return
 
     def listed(names: list[str]) -> str:
-        return ", ".join(f"'{printable(x)}'" for x in names[:4]) + (f" and {len(names) - 4} more" if len(names) > 4
-                                                                    else "")
+        few = names_shown(len(names), 4)
+        return ", ".join(f"'{printable(x)}'" for x in names[:few]) + (f" and {len(names) - few} more"
+                                                                      if len(names) > few else "")
     differ = (f"the model {spec.source} has {listed(here)} where the fit has {listed(there)}" if here and there else
               f"the model {spec.source} has {listed(here)}, which the fit does not" if here else
               f"the fit has {listed(there)}, which the model {spec.source} does not")
@@ -1699,8 +1719,8 @@ def _items_against_loadings(model, rows: np.ndarray, source: str) -> str | None:
     listed = "; ".join(f"'{printable(item)}' correlates {journal_decimal(r, digits=2)} with the rest of {printable(factor)}'s items "
                        f"(keyed as the fit keys them), while its loading in the earlier fit is "
                        f"{'positive' if loading > 0 else 'negative'} ({loading:.3f})"
-                       for item, factor, r, loading in found[:5]) + (
-        f"; and {len(found) - 5} more items" if len(found) > 5 else "")
+                       for item, factor, r, loading in found[:names_shown(len(found), 5)]) + (
+        f"; and {len(found) - 5} more items" if len(found) > names_shown(len(found), 5) else "")
     one = len(found) == 1
     return (f"In {source}, {'an item runs' if one else 'items run'} against {'its factor' if one else 'their factors'}"
             f": {listed}. {'It is' if one else 'They are'} probably coded the other way round from the fit's data (a "
@@ -1728,7 +1748,8 @@ def _outside_fitted_ranges(data, items, rows: np.ndarray, source: str) -> str | 
     if not found:
         return None
     listed = "; ".join(f"'{printable(item)}', {n} answer{'s' if n != 1 else ''} outside {user_number(lo)} to {user_number(hi)}"
-                       for item, n, lo, hi in found[:5]) + (f"; and {len(found) - 5} more items" if len(found) > 5 else "")
+                       for item, n, lo, hi in found[:names_shown(len(found), 5)]) + (
+        f"; and {len(found) - 5} more items" if len(found) > names_shown(len(found), 5) else "")
     return (f"{source} holds answers outside the range of the rows the earlier fit analysed: {listed}. Scores of such "
             f"answers extrapolate the fit, and if the files code the answers differently (0 to 4 against 1 to 5, "
             f"say) every score is shifted.")
@@ -1746,11 +1767,11 @@ def _unknown_groups(group_of_row: np.ndarray, labels, group: str, source: str) -
         return None
     counts = given.value_counts()
     shown = []
-    for label, n in list(counts.items())[:6]:
+    for label, n in list(counts.items())[:names_shown(len(counts), 6)]:
         near = close_names(str(label), [str(x) for x in labels])
         shown.append(f"'{printable(label)}' ({n} row{'s' if n != 1 else ''}"
                      + (f"; the fit has '{printable(near[0])}'" if near else "") + ")")
-    more = f" and {len(counts) - 6} more" if len(counts) > 6 else ""
+    more = f" and {len(counts) - 6} more" if len(counts) > names_shown(len(counts), 6) else ""
     fitted = ", ".join(f"'{printable(x)}'" for x in labels)
     outside = int(counts.sum())
     text = (f"{counted(outside, 'row')} of {source} {'is' if outside == 1 else 'are'} in groups of "
@@ -1896,32 +1917,54 @@ def _ordinal_precision(base, v: np.ndarray, e: np.ndarray, answered: np.ndarray,
     return tuple(precision), tuple(by_level)
 
 
-def centred_in_each_group(estimates) -> list[str]:
-    """The caution on scores of several groups whose factor means the model fixes at zero in every group (no
-    intercepts held equal): each group's scores are then centred at 0 in that group's own units, and a difference
-    between two groups' scores says nothing about their factor means.  ``estimates``: a fit's estimate rows, or a
-    saved fit's (which keep no free flag: a mean of exactly 0 in every group is taken as fixed)."""
+def centred_factors(estimates) -> tuple[str, ...]:
+    """The factors of a model of several groups whose mean it fixes at zero in every group (no intercepts held
+    equal): each group's scores of them are then centred at 0 in that group's own units, and a difference between
+    two groups' scores says nothing about their factor means; () for one group.  ``estimates``: a fit's estimate
+    rows, or a saved fit's (which keep no free flag: a mean of exactly 0 in every group is taken as fixed)."""
     groups = {r.group for r in estimates if r.group is not None}
     if len(groups) < 2:
-        return []
+        return ()
     set_free: dict[str, bool] = {}
     for r in estimates:
         if r.kind == "mean":
             free = getattr(r, "free", None)
             set_free[r.variables[0]] = set_free.get(r.variables[0], False) or bool(free) or r.estimate != 0
-    centred = [f for f, free in set_free.items() if not free]
-    if not centred:
-        return []
-    if len(centred) == len(set_free):
-        return ["The scores of different groups cannot be compared: the model fixes every factor's mean at zero in "
-                "every group (its intercepts are not held equal across groups), so each group's scores are centred at "
-                "0 in that group's own units, and the groups' average scores are 0 whatever their factor means.  "
-                "Compare groups only with the scores of a model that holds loadings and intercepts equal ('invariance "
-                "scalar' in the model file), and only when the invariance command finds that level holds."]
+    return tuple(f for f, free in set_free.items() if not free)
+
+
+def not_comparable_problems(estimates, chosen) -> tuple:
+    """The caution, first among the scores' in every view, on factor scores of several groups whose factor means
+    the model fixes at zero in every group (:func:`centred_factors`): each group's scores are centred at 0, so they
+    cannot be compared or ranked across groups (new-user trial s21: ranking employees of all departments for a
+    programme, with the caution among the notes under a box advising 'use the scores to compare groups').  Item sums
+    and means are not centred and are not named by it.  () for one group, no factor-score method or no such factor."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    methods = factor_methods(chosen)
+    centred = centred_factors(estimates)
+    if not methods or not centred:
+        return ()
+    statement = Command(" ('invariance scalar' in the model file)", " (scalar invariance)")
+    test = (", once ", Command("the invariance command", "a test of measurement invariance"),
+            " finds that level holds.")
+    scores = "The factor scores" if any(m in ITEM_METHODS for m in chosen) else "The scores"  # not the item sums
     names, one = ", ".join(printable(f) for f in centred), len(centred) == 1
-    return [f"The scores of different groups cannot be compared on {names}: the model fixes {'its' if one else 'their'} "
-            f"mean at zero in every group, so each group's scores of {'it' if one else 'them'} are centred at 0 in "
-            f"that group's own units."]
+    every = len(centred) == len({r.variables[0] for r in estimates if r.kind == "mean"})
+    if every:
+        text = (f"{scores} of different groups cannot be compared: the model fixes every factor's mean at zero in "
+                f"every group (its intercepts are not held equal across groups), so each group's scores are centred "
+                f"at 0 in that group's own units, and the groups' average scores are 0 whatever their factor means.")
+        advice = Note(("compare or rank people of different groups only with the scores of a model that holds "
+                       "loadings and intercepts equal across the groups", statement) + test)
+    else:
+        text = (f"{scores} of different groups cannot be compared on {names}: the model fixes "
+                f"{'its' if one else 'their'} mean at zero in every group, so each group's scores of "
+                f"{'it' if one else 'them'} are centred at 0 in that group's own units.")
+        advice = Note((f"compare or rank people of different groups on {names} only with the scores of a model that "
+                       f"estimates {'its' if one else 'their'} means with loadings and intercepts held equal across "
+                       f"the groups", statement) + test)
+    return (Problem(ProblemKind.SCORES_NOT_COMPARABLE_ACROSS_GROUPS, (), float(len(centred)), text, advice),)
 
 
 def _without_own_answers(answered: np.ndarray, values: dict, chosen, factors,

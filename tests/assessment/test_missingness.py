@@ -97,6 +97,23 @@ def test_the_fit_gives_littles_test_as_the_formula_computed_by_hand():
     assert saved["chi_square"] == pytest.approx(d2, rel=1e-5) and saved["df"] == 7 and saved["method"] == "Little (1988)"
 
 
+def test_a_significant_test_is_worded_as_evidence_not_as_a_fact():
+    # new-user trial s21: answers made missing completely at random gave p = .006 on one half (a chance rejection:
+    # p = .16 on the other), and the paragraph said 'so the answers are not missing completely at random'.  A test
+    # rejects with a chance of alpha when they are; the rejection is evidence, as a non-rejection is no proof.
+    result = cfa_tool.fit(ONE_FACTOR, _frame(), missing="full-information")
+    test = result.completely_at_random
+    assert test.p_value < 0.01  # the formula computed by hand above, and two packages, agree (p about .002)
+    paragraph = methods_paragraph(result)
+    assert (f"{TEST_NAME} was significant (\u03c7\u00b2({test.df}) = {test.chi_square:.2f}, p = .00"
+            in paragraph)
+    assert "evidence that the answers are not missing completely at random" in paragraph
+    assert "so the answers are not" not in paragraph
+    note = str(missing_table(result).note)
+    assert "evidence that the answers are not missing completely at random" in note
+    assert "the answers are not missing completely at random." not in note.replace("evidence that the answers", "")
+
+
 def test_the_statistic_matches_two_packages_given_their_moments():
     # pyampute 0.0.3 (MCARTest.little_mcar_test) and mcartest 0.0.0a4 (MCARTest.little_mcar_test, return_stats=True),
     # run once on ROWS on 2026-12-03 (they estimate mu and Sigma from the available answers, pandas' mean and

@@ -34,7 +34,19 @@ def test_fit_and_scores_say_it_alike(rider_model, coded):
 
 def test_replicate_of_halves_says_it_once(rider_model, coded):
     text = _flat(replication_paragraph(Replications(split_half(rider_model, coded, seed=3, missing_codes=[9]))))
-    assert text.count(SAID) == 1 and f"In the data file, {SAID}." in text
+    capital = f"{SAID[0].upper()}{SAID[1:]}"
+    assert text.count(capital) == 1 and f"{capital}." in text and "In the data file," not in text
+
+
+def test_replicate_of_halves_names_the_file_once(rider_model, rider_demo, tmp_path):
+    """New-user trial s21: 'In the data file, values the data file marks as no answer were treated as missing'."""
+    data = rider_demo.copy()
+    data["clean"] = data["clean"].astype(object)
+    data.loc[[3, 40, 77, 150], "clean"] = "Prefer not to say"
+    data.to_csv(tmp_path / "riders.csv", index=False)
+    text = _flat(replication_paragraph(Replications(split_half(rider_model, tmp_path / "riders.csv", seed=3))))
+    assert "Values the data file marks as no answer were treated as missing ('Prefer not to say' in clean)" in text
+    assert text.count("data file marks as no answer") == 1 and "In the data file" not in text
 
 
 def test_replicate_of_two_files_says_it_of_each(rider_model, coded, tmp_path):

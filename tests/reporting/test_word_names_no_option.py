@@ -158,3 +158,29 @@ def test_the_word_file_names_no_command_in_the_modification_note(tmp_path):
                     + [c.text for t in document.tables for r in t.rows for c in r.cells])
     assert "comparing the two fits tests it" in text and "cfa-tool compare" not in text
     assert "('cfa-tool compare')" in " ".join(report_text(report).split())
+
+
+@pytest.mark.parametrize("command", ["fit", "scores"])
+def test_rows_read_past_by_the_names_and_first_data_row_options_are_said_without_them_in_word(tmp_path, command):
+    """New-user trial s21: the note 'row 2 was not read as data (... as --first-data-row 3 asks)' reached the Word
+    files of fit, invariance and scores; the note of --names-row too.  The terminal keeps the options."""
+    base = pd.read_csv(resource_dir("demo") / "rider_survey.csv")
+    header = ",".join(base.columns)
+    questions = ",".join(f'"Question {k}"' for k in range(len(base.columns)))
+    rows = base.to_csv(index=False, header=False).splitlines()
+    data = tmp_path / "export.csv"
+    data.write_text("\n".join(["Rider survey export" + "," * (len(base.columns) - 1), header, questions] + rows) + "\n")
+    model = resource_dir("models") / "rider_three_factors.cfa"
+    out = tmp_path / f"{command}.docx"
+    argv = [command, str(model), "--data", str(data), "--names-row", "2", "--first-data-row", "4", "--docx", str(out)]
+    argv += ["--output", str(tmp_path / "s.csv")] if command == "scores" else []
+    terminal = io.StringIO()
+    with redirect_stdout(terminal):
+        assert cli.main(argv) == 0
+    said = " ".join(terminal.getvalue().replace("│", " ").split())
+    assert "as --names-row asks" in said and "as --first-data-row 4 asks" in said
+    word = " ".join(_word_text(out).split())
+    assert not OPTION.search(word), word[max(0, OPTION.search(word).start() - 200):OPTION.search(word).end() + 60]
+    assert ("export.csv: row 3 was not read as data (between the column names in row 2 and the first row of data, "
+            "4)") in word
+    assert "export.csv: the column names were read from row 2; row 1 above it was not read" in word

@@ -182,6 +182,7 @@ def test_scores_of_groups_whose_means_the_model_fixes_are_said_not_to_compare(tm
     true means: the scores report says first that they cannot be compared.  With 'invariance scalar' the Pasteur
     means are estimated and the schools' average scores differ; no such caution then."""
     import cfa_tool
+    from cfa_tool.assessment.admissibility import ProblemKind
     from cfa_tool.cli import main
     from tests.conftest import THREE_FACTORS, holzinger_swineford
 
@@ -189,12 +190,15 @@ def test_scores_of_groups_whose_means_the_model_fixes_are_said_not_to_compare(tm
     configural = cfa_tool.scores(THREE_FACTORS, data, group="school")
     by_school = configural.table.filter(like="_regression").groupby(data["school"].to_numpy()).mean()
     assert np.abs(by_school.to_numpy()).max() < 0.05  # pandas' group means of the written scores
-    assert configural.warnings[0].startswith("The scores of different groups cannot be compared: the model fixes "
-                                             "every factor's mean at zero in every group")
+    first = configural.fit.problems[0]  # a caution first, in the box before the tables (new user s21)
+    assert first.kind is ProblemKind.SCORES_NOT_COMPARABLE_ACROSS_GROUPS
+    assert first.explanation.startswith("The scores of different groups cannot be compared: the model fixes "
+                                        "every factor's mean at zero in every group")
+    assert not any("cannot be compared" in w for w in configural.warnings)
     scalar = cfa_tool.scores(THREE_FACTORS + "invariance scalar\n", data, group="school")
     by_school = scalar.table.filter(like="_regression").groupby(data["school"].to_numpy()).mean()
     assert np.abs(by_school.loc["Pasteur"] - by_school.loc["Grant-White"]).max() > 0.3
-    assert not any("cannot be compared" in w for w in scalar.warnings)
+    assert not any(p.kind is ProblemKind.SCORES_NOT_COMPARABLE_ACROSS_GROUPS for p in scalar.fit.problems)
     # a saved fit scored again says so too (its means were estimated as exactly 0 in every group)
     (tmp_path / "m.cfa").write_text(THREE_FACTORS)
     data.to_csv(tmp_path / "hs.csv", index=False)
@@ -203,7 +207,7 @@ def test_scores_of_groups_whose_means_the_model_fixes_are_said_not_to_compare(tm
     from cfa_tool.workflows.factor_scores import score_with_saved_fit
 
     again = score_with_saved_fit(tmp_path / "m.cfa", tmp_path / "fit.json", tmp_path / "hs.csv")
-    assert any(w.startswith("The scores of different groups cannot be compared") for w in again.warnings)
+    assert [p.kind for p in again.fit.problems][:1] == [ProblemKind.SCORES_NOT_COMPARABLE_ACROSS_GROUPS]
 
 
 def test_the_precision_note_names_the_standard_error_column_only_when_written():
