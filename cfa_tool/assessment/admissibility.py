@@ -804,8 +804,16 @@ def indistinct_problems(table: ParameterTable, mats: ModelMatrices, group: int =
     covariance, or one implied through higher-order factors; a correlation the model fixes (at 1, to test whether
     two factors are one) is not the data's finding.  A possible solution, so a caution, not a reason to call it
     inadmissible (hostile s20: a correlation of .998 was said in the scores' cautions but not in the fit's)."""
-    L, B, phi = mats.L, mats.B, mats.latent_covariance()
+    phi = mats.latent_covariance()
     d = phi.diagonal()
+    if len(d) < 2:
+        return []
+    with np.errstate(divide="ignore", invalid="ignore"):  # the common case ends here, in a few array operations
+        squared = phi * phi / np.outer(d, d)
+    np.fill_diagonal(squared, 0.0)
+    if not squared.max() >= HARDLY_DISTINCT ** 2:
+        return []
+    L, B = mats.L, mats.B
     traits = np.flatnonzero((L != 0).any(axis=0) & (d > 0))
     if len(traits) < 2:
         return []
