@@ -20,7 +20,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from cfa_tool.numbers import count_text, counted, user_number
+from cfa_tool.numbers import count_text, counted, rounded_number, user_number
 from cfa_tool.errors import OptionError
 from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.model.description import label_words, split_label
@@ -593,7 +593,9 @@ def _capital(text: str) -> str:
 
 
 def _fmt(value: float) -> str:
-    return f"{value:.3f}" if abs(value) >= 0.001 else f"{value:.3g}"
+    """An estimate in a problem's words: three decimals, a smaller one to three significant digits in plain digits
+    (numbers.rounded_number: '-0.0000123', never '-1.23e-05')."""
+    return f"{value:.3f}" if abs(value) >= 0.001 else rounded_number(value)
 
 
 def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[str, ...],

@@ -111,3 +111,16 @@ def test_correlations_that_round_to_zero_have_no_sign(rider_model, rider_demo):
     # three correlations each within +/-1 but not together: 1 - 2(.95^2) - .003^2 - 2(.95^2)(.003) < 0 (the
     # determinant of the 3 x 3 matrix, by hand); model.parameters' own 'two_decimals' printed '-.00'
     assert ".95 (punctuality with courtesy) and .00 (comfort with courtesy) cannot hold together" in str(raised.value)
+
+
+def test_a_tiny_negative_variance_in_plain_digits():
+    # a residual variance of -0.0000123 (invented matrices) was said '-1.23e-05' in the problem's words
+    from cfa_tool.assessment.admissibility import ProblemKind, matrix_problems
+    from cfa_tool.model.implied import ModelMatrices
+
+    L = np.array([[1.0], [0.8], [0.7]])
+    T = np.diag([-0.0000123, 0.4, 0.5])
+    found = matrix_problems(ModelMatrices(L, np.zeros((1, 1)), np.eye(1), T, np.zeros(3), np.zeros(1)),
+                            ("a", "b", "c"), ("f",))
+    words = [str(p.explanation) for p in found if p.kind is ProblemKind.NEGATIVE_RESIDUAL_VARIANCE]
+    assert words and "(-0.0000123)" in words[0] and "e-05" not in words[0]
