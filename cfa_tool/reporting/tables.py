@@ -14,7 +14,7 @@ from cfa_tool.assessment.fit_indices import TLI_NOT_CUT
 from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
-from cfa_tool.method import ADJUSTED_TEST, MissingData, WeightKind
+from cfa_tool.method import ADJUSTED_TEST, Items, MissingData, WeightKind
 from cfa_tool.note_parts import Command, Note, TableReference, Text, read, said, saved
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.options import option_in_both
@@ -944,7 +944,7 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
              "computes) due to the factor, from the fitted thresholds, loadings and factor variance (Green & Yang "
              "2009); report this one for a sum score. The other columns are ordinal versions on the latent "
              "responses behind the items, which no one observes; they usually run higher than the sum's reliability, "
-             "most with few categories. "
+             "most with few categories. " + _continuous_factors_sentence(result, rows)
              if ordinal else "") + keying_sentence(rows) +
             ("Omega hierarchical" if any(r.bifactor is not None for r in rows) else "Omega") + ": share of the " + ("variance of the keyed sum of the latent responses" if ordinal else
                                       "keyed item sum's variance") + " due "
@@ -973,10 +973,35 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
     if methods:
         note += (f" Method factors ({', '.join(methods)}) stand for a way of answering, not a trait: they get no "
                  f"coefficients and take no part in the Fornell-Larcker and HTMT comparisons.")
-    title = "Reliability of the scale scores" + (" (ordinal: sum omega for the answers' sum, the others for the "
-                                                     "latent responses)" if ordinal else "")
+    title = "Reliability of the scale scores" + (
+        " (ordinal: sum omega for the answers' sum, the others for the latent responses)"
+        if ordinal and result.method.items is not Items.MIXED else
+        " (sum omega for the answers' sum of ordinal items)" if ordinal else "")
     return _table(f"reliability_{group}", title, columns, body, _unusable(result) + note,
                   _all_if_unusable(result, body), values=(names, values))
+
+
+def _continuous_factors_sentence(result, rows) -> str:
+    """With ordinal and continuous items in one fit, which factors the ordinal reading of the reliability table does not
+    describe (hostile s21: the note called every factor's figures the latent responses' while two factors had
+    continuous items only): those of continuous items, whose figures are their keyed item sum's, and those mixing both
+    kinds, which get no omega of the answers' sum."""
+    if result.method.items is not Items.MIXED:
+        return ""
+    ordinal = {x for x, c in zip(result.observed, result.data.categories) if c}
+    continuous = [r.factor for r in rows if not ordinal & set(r.items)]
+    mixed = [r.factor for r in rows if ordinal & set(r.items) and not set(r.items) <= ordinal]
+    parts = []
+    if continuous:
+        many = len(continuous) > 1
+        parts.append(f"The factor{'s' if many else ''} {word_list(continuous)}, whose items are continuous, "
+                     f"{'have' if many else 'has'} no Sum omega: {'their' if many else 'its'} columns describe the keyed "
+                     f"sum of the items' own values.")
+    if mixed:
+        many = len(mixed) > 1
+        parts.append(f"The factor{'s' if many else ''} {word_list(mixed)}, with ordinal and continuous items, "
+                     f"{'have' if many else 'has'} no Sum omega.")
+    return " ".join(parts) + (" " if parts else "")
 
 
 def bifactor_reliability_sentence(rows) -> str:

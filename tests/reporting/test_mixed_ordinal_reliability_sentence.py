@@ -37,3 +37,14 @@ def test_every_factor_has_its_reliability(rider_demo):
 def test_all_ordinal_no_sentence_on_continuous_items(rider_demo):
     result = cfa_tool.fit(RIDER, rider_demo, ordinal="all")
     assert "factors of continuous items" not in " ".join(methods_paragraph(result).split())
+
+
+def test_the_table_says_which_factors_its_ordinal_reading_does_not_describe(rider_demo):
+    from cfa_tool.reporting.tables import reliability_table
+
+    result = cfa_tool.fit(RIDER, rider_demo, ordinal=["on_time", "short_wait"])
+    table = reliability_table(result)
+    note = " ".join(str(table.note).split())
+    assert "The factors comfort and courtesy, whose items are continuous, have no Sum omega" in note
+    assert "The factor punctuality, with ordinal and continuous items, has no Sum omega." in note
+    assert "the others for the latent responses" not in table.title
