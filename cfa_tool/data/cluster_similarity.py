@@ -19,6 +19,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from cfa_tool.numerics.plain import journal_decimal
+
 
 def intraclass_correlations(values: np.ndarray, clusters: np.ndarray) -> np.ndarray:
     """Each column's one-way ANOVA intraclass correlation (module docstring) over the rows that answered it
@@ -101,9 +103,8 @@ class ClusterSimilarity:
 
 
 def _r(value: float) -> str:
-    """A correlation without its leading zero, hyphen-minus for a negative one (-.02)."""
-    text = f"{value:.3f}" if abs(value) < 0.01 else f"{value:.2f}"
-    return text.replace("0.", ".", 1)
+    """A correlation without its leading zero (numerics.plain.journal_decimal): two decimals, three below .01 (.004)."""
+    return journal_decimal(value, digits=3 if abs(value) < 0.01 else 2)
 
 
 def cluster_similarity(items: tuple[str, ...], values: np.ndarray, clusters: np.ndarray) -> ClusterSimilarity | None:

@@ -23,6 +23,7 @@ import numpy as np
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.exploration.choices import Placement
 from cfa_tool.language.names import writable, written_name
+from cfa_tool.numerics.plain import journal_decimal
 
 DEFAULT_THRESHOLD = 0.30  # common practice
 MIN_ITEMS = 3  # items a drafted factor needs (see the module's docstring)
@@ -94,8 +95,7 @@ def place_items(names: tuple[str, ...], pattern: np.ndarray, threshold: float = 
 
 
 def _two(value: float) -> str:
-    text = f"{value:.2f}"
-    return text.replace("0.", ".", 1) if abs(value) < 1 else text
+    return journal_decimal(value, digits=2)  # without the leading zero below 1 in size (numerics.plain)
 
 
 def _statement(head: str, items: list[str], prefix: str = "") -> list[str]:

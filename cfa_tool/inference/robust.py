@@ -339,8 +339,9 @@ def robust_fit(chi_square: float, df: int, trace_ug: float, base_chi: float, bas
 def _not_positive(c: float, cb: float, test: FitTest) -> str:
     """Why a scaled statistic cannot be computed from scaling factors ``c`` (the model's) and ``cb`` (the baseline
     model's), in a researcher's words; empty when both are positive."""
-    bad = [f"{what} scaling factor came out {rounded_number(value)}" for what, value in (("the model's", c), ("the baseline "
-           "model's", cb)) if not (value > 0 and np.isfinite(value))]
+    bad = [f"{what} scaling factor " + (f"came out {rounded_number(value)}" if np.isfinite(value) else
+                                         "had no finite value")  # never 'came out nan'
+           for what, value in (("the model's", c), ("the baseline model's", cb)) if not (value > 0 and np.isfinite(value))]
     if not bad:
         return ""
     what = (f"the {test.label} scaled test could not be computed" if not (c > 0 and np.isfinite(c)) else

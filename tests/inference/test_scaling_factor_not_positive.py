@@ -73,3 +73,12 @@ def test_a_full_information_fit_says_first_that_its_scaled_test_could_not_be_com
         in paragraph and "nan" not in paragraph
     saved = json.loads(json.dumps(result.to_dict(), default=str))
     assert saved["robust"]["not_computed"].startswith("the Yuan-Bentler scaled test could not be computed")
+
+
+def test_a_scaling_factor_without_a_value_is_said_so_not_nan():
+    # the words of a scaling factor that is not a finite number (numbers s21: 'came out nan' could be printed)
+    from cfa_tool.inference.robust import _not_positive
+
+    words = _not_positive(float("nan"), 1.2, FitTest.SATORRA_BENTLER)
+    assert "the model's scaling factor had no finite value" in words and "nan" not in words
+    assert "came out -0.5" in _not_positive(-0.5, 1.2, FitTest.SATORRA_BENTLER)
