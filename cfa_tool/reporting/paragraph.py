@@ -127,6 +127,13 @@ def _design_sentences(results) -> list[str]:
     return [design_sentence(first)] + [f"For {_name(r.model_name)}: {p.explanation}" for r, found in own for p in found]
 
 
+def ordinal_item_names(result) -> tuple[str, ...]:
+    """The items a fit read as ordinal, in the model's order: those with answer categories in its data summary (with
+    ordinal and continuous items in one fit, the paragraph, the reliability table and the estimator's words name them
+    by this one reading)."""
+    return tuple(x for x, c in zip(result.observed, result.data.categories) if c)
+
+
 def _estimator_phrase(result) -> str:
     method = result.method
     if method.ordinal:
@@ -135,7 +142,7 @@ def _estimator_phrase(result) -> str:
         moments = (" (and the means and variances of the continuous items)"
                    if method.items is Items.MIXED and method.thresholds else "")
         if method.items is Items.MIXED:  # which items were ordinal, which continuous (all of them read as ordinal)
-            ordinal = [x for x, c in zip(result.observed, result.data.categories) if c]
+            ordinal = ordinal_item_names(result)
             others = len(result.observed) - len(ordinal)
             rest = "item" if others == 1 else f"{WORDS.get(others, others)} items"
             which = f" ({_list([_name(x) for x in ordinal])} treated as ordinal, the other {rest} as continuous)"
@@ -977,7 +984,7 @@ def _reliability_sentence(result) -> str:
     if result.method.ordinal:
         found = [r for r in rows if shown(r.observed_sum_omega)]
         # factors of continuous items beside ordinal ones: omega of their items' keyed sum (hostile s21: left out)
-        ordinal = {x for x, c in zip(result.observed, result.data.categories) if c}  # as _estimator_phrase reads them
+        ordinal = set(ordinal_item_names(result))
         continuous = [r for r in rows if result.method.items is Items.MIXED and not shown(r.observed_sum_omega)
                       and r.level != "higher-order" and r.bifactor is None and shown(r.omega)
                       and not ordinal & set(r.items)]

@@ -22,7 +22,7 @@ from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
 from cfa_tool.reporting.numbers import (fit_index_text, guide_text, missing, num, p_phrase, p_value, short, unit,
                                         word_list)
-from cfa_tool.reporting.paragraph import group_labels, mcar_score_tests
+from cfa_tool.reporting.paragraph import group_labels, mcar_score_tests, ordinal_item_names
 from cfa_tool.reporting.remedies import Remedy
 
 GUIDE_NOTE = (
@@ -988,7 +988,7 @@ def _continuous_factors_sentence(result, rows) -> str:
     kinds, which get no omega of the answers' sum."""
     if result.method.items is not Items.MIXED:
         return ""
-    ordinal = {x for x, c in zip(result.observed, result.data.categories) if c}
+    ordinal = set(ordinal_item_names(result))
     continuous = [r.factor for r in rows if not ordinal & set(r.items)]
     mixed = [r.factor for r in rows if ordinal & set(r.items) and not set(r.items) <= ordinal]
     parts = []
