@@ -79,6 +79,9 @@ ODD = {
     "long names listed": lambda: _method(LONG + "wave one", "Loyalty of riders who would choose the bus again",
                                          "Wording of the reverse-keyed statements in the second half"),
     "names right to left listed": lambda: _method("אמון", "נאמנות", "ניסוח"),
+    "long names of bands listed": lambda: _fit(tuple(f"Satisfaction with part {k + 1} of the trip from home to the "
+                                                     "workplace, as rated" for k in range(6)),
+                                               tuple(tuple(f"q{k}_{j}" for j in range(6)) for k in range(6))),
     "60 items of one factor": lambda: _fit(("Everyday riding",), (tuple(f"WWWWWWWWWW{k:02d}" for k in range(60)),)),
 }
 
