@@ -137,8 +137,9 @@ def _value(value: float) -> str:
 
 
 def _shown(name: str) -> str:
-    """A factor's or item's name as the drawing writes it: whole up to ``NAME_ROOM``, shortened beyond."""
-    return shortened(name, NAME_SIZE, NAME_ROOM)
+    """A factor's or item's name as the drawing writes it (its control characters as escapes: ``printable``, as
+    ``esc`` writes them): whole up to ``NAME_ROOM``, shortened beyond."""
+    return shortened(printable(name), NAME_SIZE, NAME_ROOM)
 
 
 def _box_width(text: str) -> float:
@@ -172,7 +173,7 @@ def _closed(inside: str, tag: str) -> str:
 def _whole_name(name: str) -> str:
     """The title of a shape whose name is drawn shortened: the whole name (shown as a tooltip by a browser, read
     by a screen reader); nothing when it is drawn whole."""
-    return f"<title>{esc(name)}</title>" if _shown(name) != name else ""
+    return f"<title>{esc(name)}</title>" if _shown(name) != printable(name) else ""
 
 
 def _label(x: float, y: float, text: str, size: int = SMALLEST_TEXT, anchor: str = "middle", cls: str = "value",
@@ -656,7 +657,7 @@ def _document(result, groups: list[int], legend: bool, drawings: list | None = N
     # a name too long for a line of MAX_WIDTH goes on in lines under it (a 190-character question had made the
     # picture 1511 units wide, and every text of the drawing smaller on the page: the legibility rule of MAX_WIDTH)
     room = MAX_WIDTH - 2 * MARGIN - indent - 30
-    key_lines = [wrapped(name, LIST_SIZE, room) for _, name in key]
+    key_lines = [wrapped(printable(name), LIST_SIZE, room) for _, name in key]
     key_column = indent + max((text_width(line, LIST_SIZE) for part in key_lines for line in part), default=0.0) + 30
     width = max([d.width for d in drawings] + [2 * MARGIN + text_width(line, SMALLEST_TEXT) for line in lines]
                 + ([2 * MARGIN + key_column] if key else []))
@@ -769,7 +770,8 @@ def _draw(result, group: int) -> Drawing:
                           _entry_text(entry, _value(r.standardized), lay.text), size=LIST_SIZE, anchor="start",
                           cls="listed-loading" if loadings else "listed-correlation", problem=bad)
             whole = _entry_text(entry, _value(r.standardized))  # a name drawn shortened: the whole entry its title
-            parts.append(text if all(_shown(n) == n for n in entry[-2:]) else f"<g><title>{esc(whole)}</title>{text}</g>")
+            parts.append(text if all(_shown(n) == printable(n) for n in entry[-2:]) else
+                         f"<g><title>{esc(whole)}</title>{text}</g>")
         y += 18 + 16 * per + 10
     # loadings: an item's home factor first, so that a cross-loading's value moves along its line if it would
     # cover another

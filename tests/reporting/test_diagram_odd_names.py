@@ -75,6 +75,7 @@ ODD = {
                                                     ("שאלה1", "שאלה2", "שאלה3"), ("سؤال1", "سؤال2", "سؤال3"))),
     "markup characters": lambda: _fit(("a & b", "x < y", "q > r"), (("i&1", "i<2", "i>3"), ("j&amp;1", "j<!--2", "j]]>3"),
                                                                     ("k1", "k'2", "k&lt;3"))),
+    "control characters": lambda: _fit(("f\x1b[2J\x1b[2J",), (("WWW\x1b[31mWWW\x1b[0m\x07", "a\x07b", "c\x01d"),)),
     "a factor of 200 characters": lambda: _fit(((LONG * 3)[:200], "b"), (("x1", "x2", "x3"), ("y1", "y2", "y3"))),
     "long names listed": lambda: _method(LONG + "wave one", "Loyalty of riders who would choose the bus again",
                                          "Wording of the reverse-keyed statements in the second half"),
