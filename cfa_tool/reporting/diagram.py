@@ -59,7 +59,7 @@ import numpy as np
 from cfa_tool.errors import printable
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.reporting.numbers import printed, unit
-from cfa_tool.reporting.text_extent import in_line, shortened, text_width, wrapped
+from cfa_tool.reporting.text_extent import ELLIPSIS, in_line, shortened, text_width, wrapped
 
 ROW_GAP = 130
 BOX_H = 34
@@ -89,7 +89,7 @@ LANE_GAP = 20.0  # between such lines over a band's factors (a value's height an
 NAME_SIZE = 13  # font size of a factor's name in its ellipse
 ITEM_SIZE = 12  # font size of an item's name in its box
 NAME_ROOM = 300.0  # units: a name wider than this at NAME_SIZE (about 45 characters) is drawn shortened, '…' in its
-# middle (text_extent.shortened), its whole name the title of its shape (a factor of 200 characters had made a
+# middle (drawn_names), its whole name the title of its shape (a factor of 200 characters had made a
 # drawing 1937 units wide, its ellipse alone 1800); lists and labels name it so too (session note s21)
 VALUE_ROOM = text_width("\u2212.00", SMALLEST_TEXT)  # the widest value the drawing writes ('−.63')
 PROBLEM_COLOUR = "#b3261e"  # parts of the drawing that show a problem of the solution
@@ -136,14 +136,33 @@ def _value(value: float) -> str:
     return printed(unit(value, 2))
 
 
-def _shown(name: str) -> str:
-    """A factor's or item's name as the drawing writes it (its control characters as escapes: ``printable``, as
-    ``esc`` writes them): whole up to ``NAME_ROOM``, shortened beyond."""
-    return shortened(printable(name), NAME_SIZE, NAME_ROOM)
+def drawn_names(names) -> dict[str, str]:
+    """Each of ``names`` (a model's factors and items) as the drawing writes it (its control characters as escapes:
+    ``printable``, as ``esc`` writes them): whole up to ``NAME_ROOM``, else shortened in its middle
+    (``text_extent.shortened``); names that would be shortened alike ('Perceived reliability of the…rated by riders'
+    for the ratings of line 1 and of line 2) keep, between two '…', the part where each differs from the others, and
+    when even these are alike, they are written whole: two shapes never read alike."""
+    whole = {name: printable(name) for name in names}
+    shown = {name: shortened(text, NAME_SIZE, NAME_ROOM) for name, text in whole.items()}
+    alike: dict[str, list[str]] = {}
+    for name, text in shown.items():
+        alike.setdefault(text, []).append(name)
+    for group in (g for g in alike.values() if len(g) > 1):
+        for name in group:
+            text = whole[name]
+            head, tail = shown[name].split(ELLIPSIS, 1)
+            differs = min(next((k for k, (a, b) in enumerate(zip(text, whole[other])) if a != b),
+                               min(len(text), len(whole[other]))) for other in group if other != name)
+            part = text[max(len(head), differs - 6):min(len(text) - len(tail), differs + 10)]
+            shown[name] = f"{head}{ELLIPSIS}{part}{ELLIPSIS}{tail}"
+    counts: dict[str, int] = {}
+    for text in shown.values():
+        counts[text] = counts.get(text, 0) + 1
+    return {name: text if counts[text] == 1 else whole[name] for name, text in shown.items()}
 
 
 def _box_width(text: str) -> float:
-    """The width of an item's box around ``text`` (as drawn: ``_shown``): the text (its estimate holds the overhang
+    """The width of an item's box around ``text`` (as drawn: ``drawn_names``): the text (its estimate holds the overhang
     of its ends, ``text_extent.OVERHANG``) and 8 units either side."""
     return max(46.0, text_width(text, ITEM_SIZE) + 16.0)
 
@@ -153,16 +172,16 @@ def _box_width(text: str) -> float:
 NAME_SHARE = 0.8
 
 
-def _ellipse_rx(name: str) -> float:
-    """The half-width of a factor's ellipse: its name as drawn (``_shown``) across ``NAME_SHARE`` of it, and 16
-    units of air either side."""
-    return max(42.0, text_width(_shown(name), NAME_SIZE) / 2 / NAME_SHARE + 16.0)
+def _ellipse_rx(text: str) -> float:
+    """The half-width of a factor's ellipse: its name as drawn (``text``: ``drawn_names``) across ``NAME_SHARE`` of
+    it, and 16 units of air either side."""
+    return max(42.0, text_width(text, NAME_SIZE) / 2 / NAME_SHARE + 16.0)
 
 
-def _name_text(x: float, y: float, name: str, size: int) -> str:
-    """A factor's or an item's name drawn centred at (x, y): as ``_shown`` writes it."""
+def _name_text(x: float, y: float, text: str, size: int) -> str:
+    """A factor's or an item's name drawn centred at (x, y), as the drawing writes it (``text``)."""
     return (f'<text class="name" x="{x:.1f}" y="{y:.1f}" font-size="{size}" text-anchor="middle">'
-            f'{esc(_shown(name))}</text>')
+            f'{esc(text)}</text>')
 
 
 def _closed(inside: str, tag: str) -> str:
@@ -170,10 +189,10 @@ def _closed(inside: str, tag: str) -> str:
     return f">{inside}</{tag}>" if inside else "/>"
 
 
-def _whole_name(name: str) -> str:
-    """The title of a shape whose name is drawn shortened: the whole name (shown as a tooltip by a browser, read
-    by a screen reader); nothing when it is drawn whole."""
-    return f"<title>{esc(name)}</title>" if _shown(name) != printable(name) else ""
+def _whole_name(name: str, names: dict[str, str]) -> str:
+    """The title of a shape whose name is drawn shortened (``names``: ``drawn_names``): the whole name (shown as a
+    tooltip by a browser, read by a screen reader); nothing when it is drawn whole."""
+    return f"<title>{esc(name)}</title>" if names[name] != printable(name) else ""
 
 
 def _label(x: float, y: float, text: str, size: int = SMALLEST_TEXT, anchor: str = "middle", cls: str = "value",
@@ -255,6 +274,7 @@ class _Layout:
     table_top: float = MARGIN  # where the lists of values not drawn begin
     continued: list[tuple[str, tuple[str, ...]]] = field(default_factory=list)  # (factor, its items in a later band)
     shown: dict[str, str] = field(default_factory=dict)  # the short label drawn for an item (see item_labels)
+    names: dict[str, str] = field(default_factory=dict)  # every factor and item as the drawing writes it (drawn_names)
     breaks: list[float] = field(default_factory=list)  # the middle of each gap between bands, where nothing is drawn
     routed: dict[str, int] = field(default_factory=dict)  # higher-order factors drawn apart, their arrows drawn: lane
     via_edge: frozenset = frozenset()  # (factor, factor) loadings drawn along the left edge and over the band
@@ -267,8 +287,8 @@ class _Layout:
         return EDGE_X + EDGE_STEP * k, self.lane_top[band] - LANE_GAP * (k + 1)
 
     def text(self, name: str) -> str:
-        """What the drawing shows for a factor or item: an item's short label, or the name (``_shown``)."""
-        return self.shown.get(name) or _shown(name)
+        """What the drawing shows for a factor or item: an item's short label, or the name (``drawn_names``)."""
+        return self.shown.get(name) or self.names[name]
 
 
 def _cross_factors(latent, children, obs_set, methods) -> frozenset[str]:
@@ -316,7 +336,8 @@ def _layout(result, rows, obs_set, room: float = MAX_WIDTH - 2 * MARGIN, relabel
     observed, latent = list(result.observed), list(result.latent)
     loadings = [r for r in rows if r.kind == "loading"]
     children = _children(latent, rows)
-    lay = _Layout(shown=item_labels(result), level=_levels(latent, children, obs_set))
+    lay = _Layout(shown=item_labels(result), level=_levels(latent, children, obs_set),
+                  names=drawn_names(latent + observed))
     level = lay.level
     cross = _cross_factors(latent, children, obs_set, _method_factors(result))
     top = max(level.values(), default=1)
@@ -347,7 +368,7 @@ def _layout(result, rows, obs_set, room: float = MAX_WIDTH - 2 * MARGIN, relabel
         lay.shown = labels
         lay.widths = {x: _box_width(lay.text(x)) for x in lay.order}
     bands = _bands(blocks, {x: lay.widths[x] + BOX_GAP for x in lay.order},
-                   [_factor_room(home.get(block[0]), disturbed, arcs, level) for block in blocks], room)
+                   [_factor_room(home.get(block[0]), disturbed, arcs, level, lay.text) for block in blocks], room)
     wrap = len(bands) > 1
     lay.apart = frozenset(f for f in latent if wrap and (level[f] > 1 or f in cross))
     lay.bottom = frozenset() if wrap else cross
@@ -376,8 +397,10 @@ def _layout(result, rows, obs_set, room: float = MAX_WIDTH - 2 * MARGIN, relabel
             own = [c for c in kids if home.get(c) == f and lay.band_of[c] == lay.band_of[f]] or kids
             lay.centre[f] = sum(lay.centre[c] for c in own) / len(own) if own else width / 2
     _spread_factors([f for f in latent if f not in lay.apart],
-                    {f: (lay.band_of[f], level[f], f in lay.bottom) for f in latent}, lay.centre, disturbed, joined)
-    width = max(width, max((lay.centre[f] + _ellipse_rx(f) + 50 for f in latent if f not in lay.apart), default=0.0),
+                    {f: (lay.band_of[f], level[f], f in lay.bottom) for f in latent}, lay.centre, disturbed, lay.text,
+                    joined)
+    width = max(width, max((lay.centre[f] + _ellipse_rx(lay.text(f)) + 50 for f in latent if f not in lay.apart),
+                           default=0.0),
                 200.0)
     lay.width = width
     # a higher-order factor drawn above the bands keeps its arrows (lay.routed): straight to factors of the band
@@ -407,17 +430,17 @@ def _layout(result, rows, obs_set, room: float = MAX_WIDTH - 2 * MARGIN, relabel
     # arrows go along the left edge first in a row of its own (nothing between it and the edge)
     apart_rows: list[list[str]] = []
     for f in sorted(lay.apart, key=lambda f: (-level[f], f not in lay.routed, latent.index(f))):
-        need = 2 * _ellipse_rx(f) + 16 + (2 * RESIDUAL_R + 40 if f in disturbed else 0)
+        need = 2 * _ellipse_rx(lay.text(f)) + 16 + (2 * RESIDUAL_R + 40 if f in disturbed else 0)
         if not apart_rows or f in lay.routed or \
-                sum(_apart_width(g, disturbed) for g in apart_rows[-1]) + need > width - 2 * MARGIN:
+                sum(_apart_width(g, disturbed, lay.text) for g in apart_rows[-1]) + need > width - 2 * MARGIN:
             apart_rows.append([])
         apart_rows[-1].append(f)
     for row in apart_rows:
-        x = (width - sum(_apart_width(g, disturbed) for g in row)) / 2
+        x = (width - sum(_apart_width(g, disturbed, lay.text) for g in row)) / 2
         for f in row:
-            lay.centre[f] = x + 8 + _ellipse_rx(f)
+            lay.centre[f] = x + 8 + _ellipse_rx(lay.text(f))
             lay.y_of[f] = y + ELLIPSE_RY
-            x += _apart_width(f, disturbed)
+            x += _apart_width(f, disturbed, lay.text)
         y += 2 * ELLIPSE_RY + 20
     last_row = set(apart_rows[-1]) if apart_rows else set()
     lay.via_edge = frozenset((r.variables[0], r.variables[1]) for r in loadings if r.variables[0] in lay.routed
@@ -484,9 +507,9 @@ def _place_items(bands: list[list[str]], step: dict[str, float], lay: _Layout, f
                 at += step[name]
             shift = 0.0
             if f in first_order and lay.band_of[f] == lay.band_of[block[0]]:
-                want = max(sum(centres) / len(centres), MARGIN + _ellipse_rx(f))  # (its ellipse inside the picture)
+                want = max(sum(centres) / len(centres), MARGIN + _ellipse_rx(lay.text(f)))  # (its ellipse inside)
                 if last is not None:
-                    want = max(want, lay.centre[last] + _need(last, f, disturbed, joined))
+                    want = max(want, lay.centre[last] + _need(last, f, disturbed, joined, lay.text))
                 shift = max(0.0, want - centres[-1])
                 lay.centre[f] = want
                 last = f
@@ -497,12 +520,13 @@ def _place_items(bands: list[list[str]], step: dict[str, float], lay: _Layout, f
     return width
 
 
-def _need(a: str, b: str, disturbed: set[str], joined: frozenset) -> float:
+def _need(a: str, b: str, disturbed: set[str], joined: frozenset, text) -> float:
     """How far apart the centres of neighbouring factors ``a`` (on the left) and ``b`` of one row must stand: their
     ellipses, ``a``'s disturbance circle on its right and, for neighbours joined by an arc, the room of its value."""
-    need = _ellipse_rx(a) + _ellipse_rx(b) + 16 + (2 * RESIDUAL_R + 40 if a in disturbed else 0)
+    ra, rb = _ellipse_rx(text(a)), _ellipse_rx(text(b))  # (text: each name as drawn)
+    need = ra + rb + 16 + (2 * RESIDUAL_R + 40 if a in disturbed else 0)
     if frozenset((a, b)) in joined:
-        need = max(need, SHORTEST_ARC + PORT_SPREAD * (_ellipse_rx(a) + _ellipse_rx(b)))
+        need = max(need, SHORTEST_ARC + PORT_SPREAD * (ra + rb))
     return need
 
 
@@ -542,7 +566,8 @@ def _bands(blocks: list[list[str]], step: dict[str, float], rooms: list[tuple[fl
     return bands
 
 
-def _factor_room(f: str | None, disturbed: set[str], arcs: frozenset, level: dict[str, int]) -> tuple[float, float]:
+def _factor_room(f: str | None, disturbed: set[str], arcs: frozenset, level: dict[str, int],
+                 text) -> tuple[float, float]:
     """The width a first-order factor's block of items needs for the factor drawn over it (0 for items of no
     factor), in one row and in bands: its ellipse with room either side for its neighbours', and its disturbance
     circle on its right; in one row, where its correlations are arcs, also the room ``_need`` keeps for an arc's
@@ -551,7 +576,7 @@ def _factor_room(f: str | None, disturbed: set[str], arcs: frozenset, level: dic
     narrower."""
     if f is None or level.get(f, 1) > 1:
         return 0.0, 0.0
-    rx = _ellipse_rx(f)
+    rx = _ellipse_rx(text(f))  # (text: its name as drawn)
     banded = 2 * rx + 16 + (2 * RESIDUAL_R + 40 if f in disturbed else 0)
     joined = any(f in pair for pair in arcs)
     return (max(banded, SHORTEST_ARC + 2 * PORT_SPREAD * rx) if joined else banded), banded
@@ -568,14 +593,14 @@ def _parts(block: list[str], step: dict[str, float], room: float) -> list[list[s
         count += 1
 
 
-def continued_label(factor: str) -> str:
+def continued_label(factor: str) -> str:  # (factor: its name as drawn)
     """What stands over a factor's items drawn in a band under its ellipse."""
-    return f"{in_line(_shown(factor))}, continued (loadings listed above)"
+    return f"{in_line(factor)}, continued (loadings listed above)"
 
 
-def _apart_width(f: str, disturbed: set[str]) -> float:
+def _apart_width(f: str, disturbed: set[str], text) -> float:
     """Room a factor drawn apart takes in its row: its ellipse, a gap, and its disturbance circle if it has one."""
-    return 2 * _ellipse_rx(f) + 16 + (2 * RESIDUAL_R + 40 if f in disturbed else 0)
+    return 2 * _ellipse_rx(text(f)) + 16 + (2 * RESIDUAL_R + 40 if f in disturbed else 0)
 
 
 def _lists(lay: _Layout) -> list[list]:
@@ -770,7 +795,7 @@ def _draw(result, group: int) -> Drawing:
                           _entry_text(entry, _value(r.standardized), lay.text), size=LIST_SIZE, anchor="start",
                           cls="listed-loading" if loadings else "listed-correlation", problem=bad)
             whole = _entry_text(entry, _value(r.standardized))  # a name drawn shortened: the whole entry its title
-            parts.append(text if all(_shown(n) == printable(n) for n in entry[-2:]) else
+            parts.append(text if all(lay.names[n] == printable(n) for n in entry[-2:]) else
                          f"<g><title>{esc(whole)}</title>{text}</g>")
         y += 18 + 16 * per + 10
     # loadings: an item's home factor first, so that a cross-loading's value moves along its line if it would
@@ -782,7 +807,7 @@ def _draw(result, group: int) -> Drawing:
             continue
         if r.variables in lay.via_edge:  # from a factor above the bands: left, down the edge, over the band, down
             edge, lane = lay.lane(f, lay.band_of[target])
-            x1, y1, x2, y2 = centre[f] - _ellipse_rx(f), y_of[f], centre[target], y_of[target] - ELLIPSE_RY
+            x1, y1, x2, y2 = centre[f] - _ellipse_rx(lay.text(f)), y_of[f], centre[target], y_of[target] - ELLIPSE_RY
             dashed = ' stroke-dasharray="5,4"' if not r.free else ""
             parts.append(f'<path class="loading routed" d="M{x1:.1f},{y1:.1f} H{edge:.1f} V{lane:.1f} H{x2:.1f} '
                          f'V{y2:.1f}" fill="none" stroke="#333" stroke-width="1.3"{dashed} marker-end="url(#head)"/>')
@@ -813,7 +838,7 @@ def _draw(result, group: int) -> Drawing:
             (xa, ya), (xb, yb) = sorted((ports[(r.variables, a)], ports[(r.variables, b)]))
             y = min(ya, yb) if not below else max(ya, yb)
             arcs[r.variables] = (xa, ya, xb, yb, y + 2 * (1 if below else -1) * _lift(xb - xa), _value(r.standardized))
-    obstacles = placed + [(centre[f] - _ellipse_rx(f), y_of[f] - ELLIPSE_RY, centre[f] + _ellipse_rx(f),
+    obstacles = placed + [(centre[f] - _ellipse_rx(lay.text(f)), y_of[f] - ELLIPSE_RY, centre[f] + _ellipse_rx(lay.text(f)),
                            y_of[f] + ELLIPSE_RY) for f in latent]
     spots = dict(zip(arcs, _arc_values(list(arcs.values()), obstacles)))
     for r in rows:
@@ -834,26 +859,26 @@ def _draw(result, group: int) -> Drawing:
             parts.append(_label((xa + xb) / 2, y + drop + 4, _value(r.standardized), problem=bad))  # on the arc's lowest point
     # the items of a factor that go on in a later band: named over them, their loadings listed above
     for f, items in lay.continued:
-        text = continued_label(f)
+        text = continued_label(lay.text(f))
         half = text_width(text, SMALLEST_TEXT) / 2 + 2  # over the middle of the items, inside the picture
         x = min(max((lay.centre[items[0]] + lay.centre[items[-1]]) / 2, half), lay.width - half)
         parts.append(_label(x, y_of[items[0]] - 12, text, cls="continued"))
     # factors
     for f in latent:
-        rx = _ellipse_rx(f)
+        rx = _ellipse_rx(lay.text(f))
         bad = flagged("factor_variance", (f,))
         fill = METHOD_FILL if f in methods else FACTOR_FILL
         parts.append(f'<ellipse class="factor{" method" if f in methods else ""}{" problem" if bad else ""}" '
                      f'cx="{centre[f]:.1f}" cy="{y_of[f]:.1f}" rx="{rx:.1f}" ry="{ELLIPSE_RY}" fill="{fill}" '
                      + (f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if bad else 'stroke="#1f3b73" stroke-width="1.5"')
-                     + _closed(_whole_name(f), "ellipse"))
-        parts.append(_name_text(centre[f], y_of[f] + 4, f, NAME_SIZE))
+                     + _closed(_whole_name(f, lay.names), "ellipse"))
+        parts.append(_name_text(centre[f], y_of[f] + 4, lay.text(f), NAME_SIZE))
     # disturbances of factors explained by higher-order factors
     children_of = {r.variables[1] for r in rows if r.kind == "loading"}
     for r in rows:
         if r.kind == "factor_variance" and r.variables[0] in children_of:
             f = r.variables[0]
-            rx = _ellipse_rx(f)
+            rx = _ellipse_rx(lay.text(f))
             cx, cy = centre[f] + rx + 30, y_of[f]
             bad = flagged(r.kind, r.variables)
             parts.append(f'<circle class="residual{" problem" if bad else ""}" cx="{cx:.1f}" cy="{cy:.1f}" r="{RESIDUAL_R}" '
@@ -868,7 +893,7 @@ def _draw(result, group: int) -> Drawing:
         parts += _indicator(lay.text(name), centre[name] - lay.widths[name] / 2, y_of[name], lay.widths[name],
                             _residual_centre(name, lay), lay.side_residuals, residual.get(name),
                             flagged("residual_variance", (name,)), stroke("residual_variance", (name,)),
-                            _whole_name(name))
+                            _whole_name(name, lay.names))
     parts.append("</g>")
     if any(PROBLEM_COLOUR in part for part in parts):
         drawn.add(Drawn.PROBLEM)
@@ -972,7 +997,7 @@ def _port_offsets(rows, lay: _Layout) -> dict:
             ends.setdefault(b, []).append((lay.centre[a] - lay.centre[b], r.variables))
     ports = {}
     for f, arcs in ends.items():
-        rx = _ellipse_rx(f)
+        rx = _ellipse_rx(lay.text(f))
         arcs.sort(key=lambda e: (e[0] > 0, abs(e[0]) if e[0] <= 0 else -abs(e[0])))
         n = len(arcs)
         for k, (_, variables) in enumerate(arcs):
@@ -984,7 +1009,7 @@ def _ports(rows, lay: _Layout) -> dict:
     """Each arc's ends on the ellipses of its factors (see ``_port_offsets``)."""
     ports = {}
     for (variables, f), dx in _port_offsets(rows, lay).items():
-        dy = ELLIPSE_RY * math.sqrt(max(0.0, 1 - (dx / _ellipse_rx(f)) ** 2))
+        dy = ELLIPSE_RY * math.sqrt(max(0.0, 1 - (dx / _ellipse_rx(lay.text(f))) ** 2))
         ports[(variables, f)] = (lay.centre[f] + dx, lay.y_of[f] + (dy if f in lay.bottom else -dy))
     return ports
 
@@ -1069,14 +1094,15 @@ def _arc(x1: float, y1: float, x2: float, y2: float, control_y: float, cls: str,
             f'{x2:.1f},{y2:.1f}" fill="none" {look} marker-start="url(#head)" marker-end="url(#head)"/>')
 
 
-def _spread_factors(latent: list[str], row_of: dict, centre: dict[str, float], disturbed: set[str],
+def _spread_factors(latent: list[str], row_of: dict, centre: dict[str, float], disturbed: set[str], text,
                     joined: frozenset = frozenset()) -> None:
     """Push apart factors of one row whose ellipses (and disturbance circles) would overlap, and neighbours
-    joined by an arc (``joined``: pairs as frozensets) whose arc would be too short to carry its value."""
+    joined by an arc (``joined``: pairs as frozensets) whose arc would be too short to carry its value (``text``:
+    each name as drawn)."""
     for row in set(row_of.values()):
         ordered = sorted((f for f in latent if row_of[f] == row), key=lambda f: centre[f])
         for a, b in zip(ordered, ordered[1:]):
-            need = _need(a, b, disturbed, joined)
+            need = _need(a, b, disturbed, joined, text)
             if centre[b] - centre[a] < need:
                 centre[b] = centre[a] + need
 
@@ -1137,11 +1163,12 @@ class _Side:
     right: frozenset[str]  # factors to the right of the items (a bifactor model's specific factors)
     drops: dict  # depth of each arc between residuals (to the right of the residuals)
     shown: dict[str, str]
+    names: dict[str, str]  # every factor and item as the drawing writes it (drawn_names)
     width: float = 0.0
     height: float = 0.0
 
     def text(self, name: str) -> str:
-        return self.shown.get(name) or _shown(name)
+        return self.shown.get(name) or self.names[name]
 
 
 def _sideways(result, rows, obs_set) -> _Side | None:
@@ -1217,10 +1244,11 @@ def _sideways(result, rows, obs_set) -> _Side | None:
         if len({f for f, _ in blocks if f is not None}) != sum(f is not None for f, _ in blocks):
             return None  # a specific factor's items apart in the data: their arrows would cross
     below = bool(cross)
-    box = max([_box_width(shown.get(x) or _shown(x)) for x in observed] + ([ITEM_COLUMN] if below else []))
+    names = drawn_names(latent + observed)
+    box = max([_box_width(shown.get(x) or names[x]) for x in observed] + ([ITEM_COLUMN] if below else []))
     disturbed = frozenset(f for f in latent if f in parents)
     side = _Side("higher-order" if higher else "bifactor" if cross else "correlated", {}, {}, box, below, disturbed,
-                 right, {}, shown)
+                 right, {}, shown, names)
     # heights: the items block by block, a block moved down when its factor's disturbance would meet the factor above
     pitch = BOX_H + (2 * HANG + 2 * RESIDUAL_R + 2 if below else BOX_GAP)
     y, last = MARGIN, -math.inf  # the top of the next item; the lowest point of the last factor of items drawn
@@ -1252,7 +1280,7 @@ def _sideways(result, rows, obs_set) -> _Side | None:
                    for f in factors)
 
     for lvl in left_of:
-        rx = max(_ellipse_rx(f) for f in column[lvl])
+        rx = max(_ellipse_rx(side.text(f)) for f in column[lvl])
         for f in column[lvl]:
             side.x[f] = x + rx
         x += 2 * rx + fan(column[lvl])
@@ -1260,7 +1288,7 @@ def _sideways(result, rows, obs_set) -> _Side | None:
         side.x[name] = x + box / 2
     x += box
     if below:
-        rx = max(_ellipse_rx(f) for f in right)
+        rx = max(_ellipse_rx(side.text(f)) for f in right)
         for f in right:
             side.x[f] = x + fan(right) + rx
         x += fan(right) + 2 * rx
@@ -1353,7 +1381,7 @@ def _side_ports(covariances, side: _Side) -> dict:
         n = len(arcs)
         for k, (_, pair) in enumerate(arcs):
             dy = 0.0 if n == 1 else PORT_SPREAD * ELLIPSE_RY * (2 * k / (n - 1) - 1)
-            dx = _ellipse_rx(f) * math.sqrt(max(0.0, 1 - (dy / ELLIPSE_RY) ** 2))
+            dx = _ellipse_rx(side.text(f)) * math.sqrt(max(0.0, 1 - (dy / ELLIPSE_RY) ** 2))
             ports[(pair, f)] = (side.x[f] - dx, side.y[f] + dy)
     return ports
 
@@ -1373,7 +1401,8 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
     # the boxes' and ellipses' room, which no value may cover
     placed: list[tuple[float, float, float, float]] = \
         [(x[n] - half, y[n] - BOX_H / 2, x[n] + half, y[n] + BOX_H / 2) for n in result.observed] + \
-        [(x[f] - _ellipse_rx(f), y[f] - ELLIPSE_RY, x[f] + _ellipse_rx(f), y[f] + ELLIPSE_RY) for f in result.latent]
+        [(x[f] - _ellipse_rx(side.text(f)), y[f] - ELLIPSE_RY, x[f] + _ellipse_rx(side.text(f)), y[f] + ELLIPSE_RY)
+         for f in result.latent]
 
     def stroke(kind: str, variables) -> str:
         return f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if flagged(kind, variables) else 'stroke="#333"'
@@ -1381,9 +1410,9 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
     for r in (r for r in rows if r.kind == "loading"):
         f, target = r.variables
         rightward = f not in side.right
-        rx = _ellipse_rx(f)
+        rx = _ellipse_rx(side.text(f))
         x1, y1 = x[f] + (rx if rightward else -rx), y[f]
-        reach = half if target in obs_set else _ellipse_rx(target)
+        reach = half if target in obs_set else _ellipse_rx(side.text(target))
         x2, y2 = x[target] + (-reach if rightward else reach), y[target]
         # its value near the arrow's head, where the arrows of a fan stand farthest apart
         parts += _loading(r, (x1, y1, x2, y2), (0.78, 0.66, 0.88, 0.55, 0.45), placed,
@@ -1411,10 +1440,10 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
     for f in result.latent:
         bad = flagged("factor_variance", (f,))
         parts.append(f'<ellipse class="factor{" problem" if bad else ""}" cx="{x[f]:.1f}" cy="{y[f]:.1f}" '
-                     f'rx="{_ellipse_rx(f):.1f}" ry="{ELLIPSE_RY}" fill="{FACTOR_FILL}" '
+                     f'rx="{_ellipse_rx(side.text(f)):.1f}" ry="{ELLIPSE_RY}" fill="{FACTOR_FILL}" '
                      + (f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if bad else 'stroke="#1f3b73" stroke-width="1.5"')
-                     + _closed(_whole_name(f), "ellipse"))
-        parts.append(_name_text(x[f], y[f] + 4, f, NAME_SIZE))
+                     + _closed(_whole_name(f, side.names), "ellipse"))
+        parts.append(_name_text(x[f], y[f] + 4, side.text(f), NAME_SIZE))
     for r in rows:
         if r.kind == "factor_variance" and r.variables[0] in side.disturbed:
             f = r.variables[0]
@@ -1431,7 +1460,7 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
     for name in result.observed:
         parts += _indicator(side.text(name), x[name] - half, y[name] - BOX_H / 2, side.box, _side_residual(name, side),
                             not side.below, residual.get(name), flagged("residual_variance", (name,)),
-                            stroke("residual_variance", (name,)), _whole_name(name))
+                            stroke("residual_variance", (name,)), _whole_name(name, side.names))
     for r in rows:
         if r.kind == "residual_covariance":
             (xa, ya), (_, yb) = sorted((_side_residual(v, side) for v in r.variables), key=lambda p: p[1])

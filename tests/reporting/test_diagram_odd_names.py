@@ -55,6 +55,7 @@ def _method(trust: str, loyalty: str, wording: str):
                         f'method "{wording}"\nscale latent by variance\n', data)
 
 
+ALIKE = "Perceived reliability of the night bus service on line {} as rated by riders on weekdays"
 LONG = "Perceived reliability of the night bus service as reported by riders of the three city lines, "
 ODD = {
     "wide and narrow letters": lambda: _fit(("WWWWWWWW", "iiiiiiii", "MiWmiWlw"),
@@ -77,6 +78,8 @@ ODD = {
                                                                     ("k1", "k'2", "k&lt;3"))),
     "control characters": lambda: _fit(("f\x1b[2J\x1b[2J",), (("WWW\x1b[31mWWW\x1b[0m\x07", "a\x07b", "c\x01d"),)),
     "a factor of 200 characters": lambda: _fit(((LONG * 3)[:200], "b"), (("x1", "x2", "x3"), ("y1", "y2", "y3"))),
+    "long names alike but in their middle": lambda: _fit(tuple(ALIKE.format(k + 1) for k in range(3)),
+                                                         (("x1", "x2", "x3"), ("y1", "y2", "y3"), ("z1", "z2", "z3"))),
     "long names listed": lambda: _method(LONG + "wave one", "Loyalty of riders who would choose the bus again",
                                          "Wording of the reverse-keyed statements in the second half"),
     "names right to left listed": lambda: _method("אמון", "נאמנות", "ניסוח"),
@@ -163,6 +166,19 @@ def test_a_name_too_long_for_its_ellipse_is_drawn_shortened_and_whole_in_its_tit
     assert text_width(text, NAME_SIZE) <= NAME_ROOM
     titles = [e.find(SVG + "title") for e in root.iter(SVG + "ellipse")]
     assert [t.text for t in titles if t is not None] == [name]
+
+
+def test_names_shortened_alike_keep_the_part_where_they_differ():
+    """Shortened to their beginning and end, the three names would all read 'Perceived reliability of the night…on
+    weekdays': each keeps, between two '…', the words around its line's number."""
+    root = ET.fromstring(diagram_file(ODD["long names alike but in their middle"]()))
+    drawn = [("".join(t.itertext())) for t in root.iter(SVG + "text") if t.get("class") == "name" and "…" in
+             "".join(t.itertext())]
+    assert len(drawn) == len(set(drawn)) == 3
+    for k, text in enumerate(drawn):
+        head, part, tail = text.split("…")
+        whole = ALIKE.format(k + 1)
+        assert whole.startswith(head) and whole.endswith(tail) and f"line {k + 1}" in part and part in whole
 
 
 def test_long_names_in_the_lists_of_a_narrow_drawing_are_shortened_and_whole_in_their_titles():
