@@ -86,6 +86,17 @@ def _bifactor(items: int, parts: int, rows: int, seed: int):
                         + "scale latent by variance\nuncorrelated general, " + ", ".join(specific) + "\n", data)
 
 
+def method_data():
+    """800 rows of ten items v1..v10 simulated from two correlated traits (.4) of five items each (loadings .7) and
+    a method factor on four of them, two of each trait (.4)."""
+    loadings = np.zeros((10, 3))
+    loadings[:5, 0] = loadings[5:, 1] = 0.7
+    loadings[[1, 3, 6, 8], 2] = 0.4
+    phi = np.eye(3)
+    phi[0, 1] = phi[1, 0] = 0.4
+    return simulate_cfa(loadings, phi, np.diag(np.full(10, 0.4)), 800, 6, [f"v{i + 1}" for i in range(10)])
+
+
 @pytest.fixture(scope="module")
 def shapes(hs_data):
     out = {"small": cfa_tool.fit(THREE_FACTORS + "covary x1, x4\ncovary x7, x9\n", hs_data),
@@ -94,12 +105,7 @@ def shapes(hs_data):
     # bifactor: a general factor on every item, three specific factors, all uncorrelated
     out["bifactor"] = _bifactor(12, 3, 800, 5)
     # a method factor on the reverse-keyed items of two traits
-    loadings = np.zeros((10, 3))
-    loadings[:5, 0] = loadings[5:, 1] = 0.7
-    loadings[[1, 3, 6, 8], 2] = 0.4
-    phi = np.eye(3)
-    phi[0, 1] = phi[1, 0] = 0.4
-    data = simulate_cfa(loadings, phi, np.diag(np.full(10, 0.4)), 800, 6, [f"v{i + 1}" for i in range(10)])
+    data = method_data()
     out["method factor"] = cfa_tool.fit("factor trust: v1..v5\nfactor loyalty: v6..v10\nfactor wording: v2, v4, v7, v9\n"
                                         "method wording\nuncorrelated wording, trust\nuncorrelated wording, loyalty\n"
                                         "scale latent by variance\n", data)

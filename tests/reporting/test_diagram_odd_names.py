@@ -24,7 +24,8 @@ from cfa_tool.reporting.text_extent import LEFT_TO_RIGHT_MARK, text_width
 
 from tests.conftest import simulate_cfa
 from tests.reporting.test_diagram_fits_the_page import outside
-from tests.reporting.test_diagram_layouts import CHROMIUM, SVG, check_in_a_browser, estimated_width, overlaps
+from tests.reporting.test_diagram_layouts import (CHROMIUM, SVG, check_in_a_browser, estimated_width, method_data,
+                                                  overlaps)
 
 
 def _fit(factors: tuple[str, ...], items: tuple[tuple[str, ...], ...], seed: int = 1):
@@ -45,12 +46,7 @@ def _fit(factors: tuple[str, ...], items: tuple[tuple[str, ...], ...], seed: int
 def _method(trust: str, loyalty: str, wording: str):
     """Two traits of five items and a method factor on four of them, correlated with the traits: its correlations
     listed above a narrow drawing (tests/reporting/test_diagram_layouts.py, 'method factor, correlated')."""
-    loadings = np.zeros((10, 3))
-    loadings[:5, 0] = loadings[5:, 1] = 0.7
-    loadings[[1, 3, 6, 8], 2] = 0.4
-    phi = np.eye(3)
-    phi[0, 1] = phi[1, 0] = 0.4
-    data = simulate_cfa(loadings, phi, np.diag(np.full(10, 0.4)), 800, 6, [f"v{i + 1}" for i in range(10)])
+    data = method_data()
     return cfa_tool.fit(f'factor "{trust}": v1..v5\nfactor "{loyalty}": v6..v10\nfactor "{wording}": v2, v4, v7, v9\n'
                         f'method "{wording}"\nscale latent by variance\n', data)
 
