@@ -59,6 +59,7 @@ import numpy as np
 from cfa_tool.errors import printable
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.reporting.numbers import printed, unit
+from cfa_tool.reporting.text_extent import ELLIPSIS, in_line, shortened, text_width, wrapped
 
 ROW_GAP = 130
 BOX_H = 34
@@ -84,7 +85,13 @@ EDGE_X, EDGE_STEP = 8.0, 7.0  # the lines down the left edge carrying higher-ord
 LANE_GAP = 20.0  # between such lines over a band's factors (a value's height and some air)
 # a factor whose items are wider than a band is drawn in parts over several bands (session note s20: drawn whole up to
 # a tenth wider, six items of 20-character names made a drawing 1126 units wide, its text 6.5 pt across the page)
-TEXT_EM = 0.62  # width of a character in ems, on the safe side for Helvetica and Arial (widest digits: 0.556)
+# the width of a text: reporting.text_extent.text_width, each character's advance width in the font the drawing names
+NAME_SIZE = 13  # font size of a factor's name in its ellipse
+ITEM_SIZE = 12  # font size of an item's name in its box
+NAME_ROOM = 300.0  # units: a name wider than this at NAME_SIZE (about 45 characters) is drawn shortened, '…' in its
+# middle (drawn_names), its whole name the title of its shape (a factor of 200 characters had made a
+# drawing 1937 units wide, its ellipse alone 1800); lists and labels name it so too (session note s21)
+VALUE_ROOM = text_width("\u2212.00", SMALLEST_TEXT)  # the widest value the drawing writes ('−.63')
 PROBLEM_COLOUR = "#b3261e"  # parts of the drawing that show a problem of the solution
 METHOD_FILL = "#e6e6e6"  # method factors: a way of answering, not a trait
 FACTOR_FILL = "#eef3fb"
@@ -129,12 +136,63 @@ def _value(value: float) -> str:
     return printed(unit(value, 2))
 
 
-def _box_width(name: str) -> float:
-    return max(46.0, 7.4 * len(name) + 18.0)
+def drawn_names(names) -> dict[str, str]:
+    """Each of ``names`` (a model's factors and items) as the drawing writes it (its control characters as escapes:
+    ``printable``, as ``esc`` writes them): whole up to ``NAME_ROOM``, else shortened in its middle
+    (``text_extent.shortened``); names that would be shortened alike ('Perceived reliability of the…rated by riders'
+    for the ratings of line 1 and of line 2) keep, between two '…', the part where each differs from the others, and
+    when even these are alike, they are written whole: two shapes never read alike."""
+    whole = {name: printable(name) for name in names}
+    shown = {name: shortened(text, NAME_SIZE, NAME_ROOM) for name, text in whole.items()}
+    alike: dict[str, list[str]] = {}
+    for name, text in shown.items():
+        alike.setdefault(text, []).append(name)
+    for group in (g for g in alike.values() if len(g) > 1):
+        for name in group:
+            text = whole[name]
+            head, tail = shown[name].split(ELLIPSIS, 1)
+            differs = min(next((k for k, (a, b) in enumerate(zip(text, whole[other])) if a != b),
+                               min(len(text), len(whole[other]))) for other in group if other != name)
+            part = text[max(len(head), differs - 6):min(len(text) - len(tail), differs + 10)]
+            shown[name] = f"{head}{ELLIPSIS}{part}{ELLIPSIS}{tail}"
+    counts: dict[str, int] = {}
+    for text in shown.values():
+        counts[text] = counts.get(text, 0) + 1
+    return {name: text if counts[text] == 1 else whole[name] for name, text in shown.items()}
 
 
-def _ellipse_rx(name: str) -> float:
-    return max(42.0, 4.4 * len(name) + 22.0)
+def _box_width(text: str) -> float:
+    """The width of an item's box around ``text`` (as drawn: ``drawn_names``): the text (its estimate holds the overhang
+    of its ends, ``text_extent.OVERHANG``) and 8 units either side."""
+    return max(46.0, text_width(text, ITEM_SIZE) + 16.0)
+
+
+#: a factor's name is drawn across its ellipse at most this share of the ellipse's width at the name's height (its
+#: box reaches 6.6 units from the centre, where the ellipse is sqrt(1 - (6.6 / 24) ** 2) = 96% of its width)
+NAME_SHARE = 0.8
+
+
+def _ellipse_rx(text: str) -> float:
+    """The half-width of a factor's ellipse: its name as drawn (``text``: ``drawn_names``) across ``NAME_SHARE`` of
+    it, and 16 units of air either side."""
+    return max(42.0, text_width(text, NAME_SIZE) / 2 / NAME_SHARE + 16.0)
+
+
+def _name_text(x: float, y: float, text: str, size: int) -> str:
+    """A factor's or an item's name drawn centred at (x, y), as the drawing writes it (``text``)."""
+    return (f'<text class="name" x="{x:.1f}" y="{y:.1f}" font-size="{size}" text-anchor="middle">'
+            f'{esc(text)}</text>')
+
+
+def _closed(inside: str, tag: str) -> str:
+    """The end of an element's start tag: empty ('/>'), or holding ``inside`` and closed."""
+    return f">{inside}</{tag}>" if inside else "/>"
+
+
+def _whole_name(name: str, names: dict[str, str]) -> str:
+    """The title of a shape whose name is drawn shortened (``names``: ``drawn_names``): the whole name (shown as a
+    tooltip by a browser, read by a screen reader); nothing when it is drawn whole."""
+    return f"<title>{esc(name)}</title>" if names[name] != printable(name) else ""
 
 
 def _label(x: float, y: float, text: str, size: int = SMALLEST_TEXT, anchor: str = "middle", cls: str = "value",
@@ -216,6 +274,7 @@ class _Layout:
     table_top: float = MARGIN  # where the lists of values not drawn begin
     continued: list[tuple[str, tuple[str, ...]]] = field(default_factory=list)  # (factor, its items in a later band)
     shown: dict[str, str] = field(default_factory=dict)  # the short label drawn for an item (see item_labels)
+    names: dict[str, str] = field(default_factory=dict)  # every factor and item as the drawing writes it (drawn_names)
     breaks: list[float] = field(default_factory=list)  # the middle of each gap between bands, where nothing is drawn
     routed: dict[str, int] = field(default_factory=dict)  # higher-order factors drawn apart, their arrows drawn: lane
     via_edge: frozenset = frozenset()  # (factor, factor) loadings drawn along the left edge and over the band
@@ -228,8 +287,8 @@ class _Layout:
         return EDGE_X + EDGE_STEP * k, self.lane_top[band] - LANE_GAP * (k + 1)
 
     def text(self, name: str) -> str:
-        """What the drawing shows for a factor or item."""
-        return self.shown.get(name, name)
+        """What the drawing shows for a factor or item: an item's short label, or the name (``drawn_names``)."""
+        return self.shown.get(name) or self.names[name]
 
 
 def _cross_factors(latent, children, obs_set, methods) -> frozenset[str]:
@@ -277,7 +336,8 @@ def _layout(result, rows, obs_set, room: float = MAX_WIDTH - 2 * MARGIN, relabel
     observed, latent = list(result.observed), list(result.latent)
     loadings = [r for r in rows if r.kind == "loading"]
     children = _children(latent, rows)
-    lay = _Layout(shown=item_labels(result), level=_levels(latent, children, obs_set))
+    lay = _Layout(shown=item_labels(result), level=_levels(latent, children, obs_set),
+                  names=drawn_names(latent + observed))
     level = lay.level
     cross = _cross_factors(latent, children, obs_set, _method_factors(result))
     top = max(level.values(), default=1)
@@ -308,7 +368,7 @@ def _layout(result, rows, obs_set, room: float = MAX_WIDTH - 2 * MARGIN, relabel
         lay.shown = labels
         lay.widths = {x: _box_width(lay.text(x)) for x in lay.order}
     bands = _bands(blocks, {x: lay.widths[x] + BOX_GAP for x in lay.order},
-                   [_factor_room(home.get(block[0]), disturbed, arcs, level) for block in blocks], room)
+                   [_factor_room(home.get(block[0]), disturbed, arcs, level, lay.text) for block in blocks], room)
     wrap = len(bands) > 1
     lay.apart = frozenset(f for f in latent if wrap and (level[f] > 1 or f in cross))
     lay.bottom = frozenset() if wrap else cross
@@ -337,8 +397,10 @@ def _layout(result, rows, obs_set, room: float = MAX_WIDTH - 2 * MARGIN, relabel
             own = [c for c in kids if home.get(c) == f and lay.band_of[c] == lay.band_of[f]] or kids
             lay.centre[f] = sum(lay.centre[c] for c in own) / len(own) if own else width / 2
     _spread_factors([f for f in latent if f not in lay.apart],
-                    {f: (lay.band_of[f], level[f], f in lay.bottom) for f in latent}, lay.centre, disturbed, joined)
-    width = max(width, max((lay.centre[f] + _ellipse_rx(f) + 50 for f in latent if f not in lay.apart), default=0.0),
+                    {f: (lay.band_of[f], level[f], f in lay.bottom) for f in latent}, lay.centre, disturbed, lay.text,
+                    joined)
+    width = max(width, max((lay.centre[f] + _ellipse_rx(lay.text(f)) + 50 for f in latent if f not in lay.apart),
+                           default=0.0),
                 200.0)
     lay.width = width
     # a higher-order factor drawn above the bands keeps its arrows (lay.routed): straight to factors of the band
@@ -358,6 +420,9 @@ def _layout(result, rows, obs_set, room: float = MAX_WIDTH - 2 * MARGIN, relabel
         elif r.kind == "loading" and (a in lay.apart and a not in lay.routed
                                       or a not in lay.apart and lay.band_of[a] != lay.band_of[b]):
             lay.listed_loadings.append((a, b))
+    # a drawing narrower than an entry of its lists is made as wide as that entry (its names shortened beyond
+    # NAME_ROOM, no entry is wider than MAX_WIDTH allows: session note s21, a list ran 185 units out of a drawing)
+    width = lay.width = max([width] + [2 * MARGIN + _entry_width(entries, lay.text) for entries in _lists(lay)])
     lay.table_top = y = MARGIN
     for entries in _lists(lay):
         y += 18 + 16 * math.ceil(len(entries) / _table_columns(entries, width, lay.text)) + 10
@@ -365,17 +430,17 @@ def _layout(result, rows, obs_set, room: float = MAX_WIDTH - 2 * MARGIN, relabel
     # arrows go along the left edge first in a row of its own (nothing between it and the edge)
     apart_rows: list[list[str]] = []
     for f in sorted(lay.apart, key=lambda f: (-level[f], f not in lay.routed, latent.index(f))):
-        need = 2 * _ellipse_rx(f) + 16 + (2 * RESIDUAL_R + 40 if f in disturbed else 0)
+        need = 2 * _ellipse_rx(lay.text(f)) + 16 + (2 * RESIDUAL_R + 40 if f in disturbed else 0)
         if not apart_rows or f in lay.routed or \
-                sum(_apart_width(g, disturbed) for g in apart_rows[-1]) + need > width - 2 * MARGIN:
+                sum(_apart_width(g, disturbed, lay.text) for g in apart_rows[-1]) + need > width - 2 * MARGIN:
             apart_rows.append([])
         apart_rows[-1].append(f)
     for row in apart_rows:
-        x = (width - sum(_apart_width(g, disturbed) for g in row)) / 2
+        x = (width - sum(_apart_width(g, disturbed, lay.text) for g in row)) / 2
         for f in row:
-            lay.centre[f] = x + 8 + _ellipse_rx(f)
+            lay.centre[f] = x + 8 + _ellipse_rx(lay.text(f))
             lay.y_of[f] = y + ELLIPSE_RY
-            x += _apart_width(f, disturbed)
+            x += _apart_width(f, disturbed, lay.text)
         y += 2 * ELLIPSE_RY + 20
     last_row = set(apart_rows[-1]) if apart_rows else set()
     lay.via_edge = frozenset((r.variables[0], r.variables[1]) for r in loadings if r.variables[0] in lay.routed
@@ -442,9 +507,9 @@ def _place_items(bands: list[list[str]], step: dict[str, float], lay: _Layout, f
                 at += step[name]
             shift = 0.0
             if f in first_order and lay.band_of[f] == lay.band_of[block[0]]:
-                want = max(sum(centres) / len(centres), MARGIN + _ellipse_rx(f))  # (its ellipse inside the picture)
+                want = max(sum(centres) / len(centres), MARGIN + _ellipse_rx(lay.text(f)))  # (its ellipse inside)
                 if last is not None:
-                    want = max(want, lay.centre[last] + _need(last, f, disturbed, joined))
+                    want = max(want, lay.centre[last] + _need(last, f, disturbed, joined, lay.text))
                 shift = max(0.0, want - centres[-1])
                 lay.centre[f] = want
                 last = f
@@ -455,12 +520,13 @@ def _place_items(bands: list[list[str]], step: dict[str, float], lay: _Layout, f
     return width
 
 
-def _need(a: str, b: str, disturbed: set[str], joined: frozenset) -> float:
+def _need(a: str, b: str, disturbed: set[str], joined: frozenset, text) -> float:
     """How far apart the centres of neighbouring factors ``a`` (on the left) and ``b`` of one row must stand: their
     ellipses, ``a``'s disturbance circle on its right and, for neighbours joined by an arc, the room of its value."""
-    need = _ellipse_rx(a) + _ellipse_rx(b) + 16 + (2 * RESIDUAL_R + 40 if a in disturbed else 0)
+    ra, rb = _ellipse_rx(text(a)), _ellipse_rx(text(b))  # (text: each name as drawn)
+    need = ra + rb + 16 + (2 * RESIDUAL_R + 40 if a in disturbed else 0)
     if frozenset((a, b)) in joined:
-        need = max(need, SHORTEST_ARC + PORT_SPREAD * (_ellipse_rx(a) + _ellipse_rx(b)))
+        need = max(need, SHORTEST_ARC + PORT_SPREAD * (ra + rb))
     return need
 
 
@@ -500,7 +566,8 @@ def _bands(blocks: list[list[str]], step: dict[str, float], rooms: list[tuple[fl
     return bands
 
 
-def _factor_room(f: str | None, disturbed: set[str], arcs: frozenset, level: dict[str, int]) -> tuple[float, float]:
+def _factor_room(f: str | None, disturbed: set[str], arcs: frozenset, level: dict[str, int],
+                 text) -> tuple[float, float]:
     """The width a first-order factor's block of items needs for the factor drawn over it (0 for items of no
     factor), in one row and in bands: its ellipse with room either side for its neighbours', and its disturbance
     circle on its right; in one row, where its correlations are arcs, also the room ``_need`` keeps for an arc's
@@ -509,7 +576,7 @@ def _factor_room(f: str | None, disturbed: set[str], arcs: frozenset, level: dic
     narrower."""
     if f is None or level.get(f, 1) > 1:
         return 0.0, 0.0
-    rx = _ellipse_rx(f)
+    rx = _ellipse_rx(text(f))  # (text: its name as drawn)
     banded = 2 * rx + 16 + (2 * RESIDUAL_R + 40 if f in disturbed else 0)
     joined = any(f in pair for pair in arcs)
     return (max(banded, SHORTEST_ARC + 2 * PORT_SPREAD * rx) if joined else banded), banded
@@ -526,14 +593,14 @@ def _parts(block: list[str], step: dict[str, float], room: float) -> list[list[s
         count += 1
 
 
-def continued_label(factor: str) -> str:
+def continued_label(factor: str) -> str:  # (factor: its name as drawn)
     """What stands over a factor's items drawn in a band under its ellipse."""
-    return f"{factor}, continued (loadings listed above)"
+    return f"{in_line(factor)}, continued (loadings listed above)"
 
 
-def _apart_width(f: str, disturbed: set[str]) -> float:
+def _apart_width(f: str, disturbed: set[str], text) -> float:
     """Room a factor drawn apart takes in its row: its ellipse, a gap, and its disturbance circle if it has one."""
-    return 2 * _ellipse_rx(f) + 16 + (2 * RESIDUAL_R + 40 if f in disturbed else 0)
+    return 2 * _ellipse_rx(text(f)) + 16 + (2 * RESIDUAL_R + 40 if f in disturbed else 0)
 
 
 def _lists(lay: _Layout) -> list[list]:
@@ -546,21 +613,22 @@ LIST_SIZE = SMALLEST_TEXT  # font size of the lists above the drawing and of the
 
 
 def _entry_width(entries, shown=str) -> float:
-    """Width of one column of a list: 260 units, or more for long entries (their text, estimated as the layout
-    tests do, and a gap)."""
-    longest = max((len(_entry_text(e, shown=shown)) for e in entries), default=0)
-    return max(260.0, TEXT_EM * LIST_SIZE * (longest + 6) + 20)
+    """Width of one column of a list: 260 units, or more for long entries (their text with the widest value, in
+    bold as a value of a problem is drawn, and a gap of 20 units)."""
+    longest = max((text_width(_entry_text(e, "\u2212.00", shown), LIST_SIZE, bold=True) for e in entries), default=0.0)
+    return max(260.0, longest + 20)
 
 
 def _entry_text(entry, value: str = "", shown=str) -> str:
     """An entry of a list above the drawing: 'f1 on g' for a loading, 'a with b' or 'a with b (residuals)' for a
-    correlation (a value's room reserved when ``value`` is empty), each name as ``shown`` draws it."""
+    correlation, with its ``value``, each name as ``shown`` draws it (a name written right to left kept apart from
+    the words after it: ``text_extent.in_line``)."""
     if len(entry) == 2:
         factor, target = entry
-        text = f"{shown(target)} on {shown(factor)}"
+        text = f"{in_line(shown(target))} on {in_line(shown(factor))}"
     else:
         kind, a, b = entry
-        text = f"{shown(a)} with {shown(b)}{'' if kind == 'factor_covariance' else ' (residuals)'}"
+        text = f"{in_line(shown(a))} with {in_line(shown(b))}{'' if kind == 'factor_covariance' else ' (residuals)'}"
     return f"{text}: {value}" if value else text
 
 
@@ -609,17 +677,18 @@ def _document(result, groups: list[int], legend: bool, drawings: list | None = N
     drawings = drawings or [_draw(result, g) for g in groups]
     lines = legend_lines(result, frozenset().union(*(d.drawn for d in drawings))) if legend else []
     key = [(short, name) for name, short in next((d.shown for d in drawings if d.shown), {}).items()]
-    indent = TEXT_EM * LIST_SIZE * (max((len(short) for short, _ in key), default=0) + 1)  # from a label to its name
+    # from a label to its name: the widest label (bold) and a space
+    indent = max((text_width(short, LIST_SIZE, bold=True) for short, _ in key), default=0.0) + text_width(" ", LIST_SIZE)
     # a name too long for a line of MAX_WIDTH goes on in lines under it (a 190-character question had made the
     # picture 1511 units wide, and every text of the drawing smaller on the page: the legibility rule of MAX_WIDTH)
-    fit = max(20, int((MAX_WIDTH - 2 * MARGIN - indent - 30) // (TEXT_EM * LIST_SIZE)))
-    key_lines = [textwrap.wrap(name, fit, break_on_hyphens=False) or [name] if len(name) > fit else [name] for _, name in key]
-    key_column = indent + TEXT_EM * LIST_SIZE * max((len(line) for part in key_lines for line in part), default=0) + 30
-    width = max([d.width for d in drawings] + [2 * MARGIN + TEXT_EM * SMALLEST_TEXT * len(line) for line in lines]
+    room = MAX_WIDTH - 2 * MARGIN - indent - 30
+    key_lines = [wrapped(printable(name), LIST_SIZE, room) for _, name in key]
+    key_column = indent + max((text_width(line, LIST_SIZE) for part in key_lines for line in part), default=0.0) + 30
+    width = max([d.width for d in drawings] + [2 * MARGIN + text_width(line, SMALLEST_TEXT) for line in lines]
                 + ([2 * MARGIN + key_column] if key else []))
-    wrapped = any(len(part) > 1 for part in key_lines)
-    key_columns = max(1, int((width - 2 * MARGIN) // key_column)) if key and not wrapped else 1
-    key_rows = math.ceil(len(key) / key_columns) if not wrapped else sum(len(part) for part in key_lines)
+    goes_on = any(len(part) > 1 for part in key_lines)
+    key_columns = max(1, int((width - 2 * MARGIN) // key_column)) if key and not goes_on else 1
+    key_rows = math.ceil(len(key) / key_columns) if not goes_on else sum(len(part) for part in key_lines)
     key_height = 18 + 16 * key_rows + 10 if key else 0
     height = sum(d.height for d in drawings) + key_height + (10 + 18 * len(lines) if lines else 0)
     labels = [result.groups[g].label for g in groups]
@@ -649,9 +718,9 @@ def _document(result, groups: list[int], legend: bool, drawings: list | None = N
                      f'font-weight="bold">{KEY_TITLE}</text>')
         row = 0  # the key's line, from its top (every entry one line, in columns, unless some name is wrapped)
         for k, ((short, name), part) in enumerate(zip(key, key_lines)):
-            if not wrapped:
+            if not goes_on:
                 row = k % key_rows
-            x, line_y = MARGIN + (key_column * (k // key_rows) if not wrapped else 0.0), y + 32 + 16 * row
+            x, line_y = MARGIN + (key_column * (k // key_rows) if not goes_on else 0.0), y + 32 + 16 * row
             parts.append(f'<text class="key-label" x="{x:.1f}" y="{line_y:.1f}" font-size="{LIST_SIZE}" '
                          f'font-weight="bold">{esc(short)}</text>')
             for j, text in enumerate(part):  # the name's first line 'key', the lines it goes on in 'key-more'
@@ -722,9 +791,12 @@ def _draw(result, group: int) -> Drawing:
             kind, variables = ("loading", entry) if loadings else (entry[0], entry[1:])
             r = next(r for r in rows if r.kind == kind and r.variables == variables)
             bad = flagged(kind, variables) or loadings and result.groups[group].r_squared.get(variables[1], 0.0) > 1.0
-            parts.append(_label(MARGIN + _entry_width(entries, lay.text) * (k // per), y + 20 + 16 * (k % per),
-                                _entry_text(entry, _value(r.standardized), lay.text), size=LIST_SIZE, anchor="start",
-                                cls="listed-loading" if loadings else "listed-correlation", problem=bad))
+            text = _label(MARGIN + _entry_width(entries, lay.text) * (k // per), y + 20 + 16 * (k % per),
+                          _entry_text(entry, _value(r.standardized), lay.text), size=LIST_SIZE, anchor="start",
+                          cls="listed-loading" if loadings else "listed-correlation", problem=bad)
+            whole = _entry_text(entry, _value(r.standardized))  # a name drawn shortened: the whole entry its title
+            parts.append(text if all(lay.names[n] == printable(n) for n in entry[-2:]) else
+                         f"<g><title>{esc(whole)}</title>{text}</g>")
         y += 18 + 16 * per + 10
     # loadings: an item's home factor first, so that a cross-loading's value moves along its line if it would
     # cover another
@@ -735,14 +807,14 @@ def _draw(result, group: int) -> Drawing:
             continue
         if r.variables in lay.via_edge:  # from a factor above the bands: left, down the edge, over the band, down
             edge, lane = lay.lane(f, lay.band_of[target])
-            x1, y1, x2, y2 = centre[f] - _ellipse_rx(f), y_of[f], centre[target], y_of[target] - ELLIPSE_RY
+            x1, y1, x2, y2 = centre[f] - _ellipse_rx(lay.text(f)), y_of[f], centre[target], y_of[target] - ELLIPSE_RY
             dashed = ' stroke-dasharray="5,4"' if not r.free else ""
             parts.append(f'<path class="loading routed" d="M{x1:.1f},{y1:.1f} H{edge:.1f} V{lane:.1f} H{x2:.1f} '
                          f'V{y2:.1f}" fill="none" stroke="#333" stroke-width="1.3"{dashed} marker-end="url(#head)"/>')
             drawn.add(Drawn.ROUTED_LOADING)
             drawn.update({Drawn.FIXED_LOADING} if not r.free else set())
             text = _value(r.standardized)
-            lx, ly = _free_spot([(x2 - 6 - TEXT_EM * SMALLEST_TEXT * len(text) / 2, lane - 4)], text, placed)
+            lx, ly = _free_spot([(x2 - 6 - text_width(text, SMALLEST_TEXT) / 2, lane - 4)], text, placed)
             impossible = result.groups[group].r_squared.get(target, 0.0) > 1.0
             parts.append(_label(lx, ly, text, problem=impossible or flagged(r.kind, r.variables)))
             continue
@@ -766,7 +838,7 @@ def _draw(result, group: int) -> Drawing:
             (xa, ya), (xb, yb) = sorted((ports[(r.variables, a)], ports[(r.variables, b)]))
             y = min(ya, yb) if not below else max(ya, yb)
             arcs[r.variables] = (xa, ya, xb, yb, y + 2 * (1 if below else -1) * _lift(xb - xa), _value(r.standardized))
-    obstacles = placed + [(centre[f] - _ellipse_rx(f), y_of[f] - ELLIPSE_RY, centre[f] + _ellipse_rx(f),
+    obstacles = placed + [(centre[f] - _ellipse_rx(lay.text(f)), y_of[f] - ELLIPSE_RY, centre[f] + _ellipse_rx(lay.text(f)),
                            y_of[f] + ELLIPSE_RY) for f in latent]
     spots = dict(zip(arcs, _arc_values(list(arcs.values()), obstacles)))
     for r in rows:
@@ -787,23 +859,26 @@ def _draw(result, group: int) -> Drawing:
             parts.append(_label((xa + xb) / 2, y + drop + 4, _value(r.standardized), problem=bad))  # on the arc's lowest point
     # the items of a factor that go on in a later band: named over them, their loadings listed above
     for f, items in lay.continued:
-        x = (lay.centre[items[0]] + lay.centre[items[-1]]) / 2
-        parts.append(_label(x, y_of[items[0]] - 12, continued_label(f), size=12, cls="continued"))
+        text = continued_label(lay.text(f))
+        half = text_width(text, SMALLEST_TEXT) / 2 + 2  # over the middle of the items, inside the picture
+        x = min(max((lay.centre[items[0]] + lay.centre[items[-1]]) / 2, half), lay.width - half)
+        parts.append(_label(x, y_of[items[0]] - 12, text, cls="continued"))
     # factors
     for f in latent:
-        rx = _ellipse_rx(f)
+        rx = _ellipse_rx(lay.text(f))
         bad = flagged("factor_variance", (f,))
         fill = METHOD_FILL if f in methods else FACTOR_FILL
         parts.append(f'<ellipse class="factor{" method" if f in methods else ""}{" problem" if bad else ""}" '
                      f'cx="{centre[f]:.1f}" cy="{y_of[f]:.1f}" rx="{rx:.1f}" ry="{ELLIPSE_RY}" fill="{fill}" '
-                     + (f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"/>' if bad else 'stroke="#1f3b73" stroke-width="1.5"/>'))
-        parts.append(f'<text class="name" x="{centre[f]:.1f}" y="{y_of[f] + 4:.1f}" font-size="13" text-anchor="middle">{esc(f)}</text>')
+                     + (f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if bad else 'stroke="#1f3b73" stroke-width="1.5"')
+                     + _closed(_whole_name(f, lay.names), "ellipse"))
+        parts.append(_name_text(centre[f], y_of[f] + 4, lay.text(f), NAME_SIZE))
     # disturbances of factors explained by higher-order factors
     children_of = {r.variables[1] for r in rows if r.kind == "loading"}
     for r in rows:
         if r.kind == "factor_variance" and r.variables[0] in children_of:
             f = r.variables[0]
-            rx = _ellipse_rx(f)
+            rx = _ellipse_rx(lay.text(f))
             cx, cy = centre[f] + rx + 30, y_of[f]
             bad = flagged(r.kind, r.variables)
             parts.append(f'<circle class="residual{" problem" if bad else ""}" cx="{cx:.1f}" cy="{cy:.1f}" r="{RESIDUAL_R}" '
@@ -817,7 +892,8 @@ def _draw(result, group: int) -> Drawing:
     for name in lay.order:
         parts += _indicator(lay.text(name), centre[name] - lay.widths[name] / 2, y_of[name], lay.widths[name],
                             _residual_centre(name, lay), lay.side_residuals, residual.get(name),
-                            flagged("residual_variance", (name,)), stroke("residual_variance", (name,)))
+                            flagged("residual_variance", (name,)), stroke("residual_variance", (name,)),
+                            _whole_name(name, lay.names))
     parts.append("</g>")
     if any(PROBLEM_COLOUR in part for part in parts):
         drawn.add(Drawn.PROBLEM)
@@ -834,10 +910,8 @@ def _group_name(label, width: float) -> tuple[list[str], float, float]:
     if label is None:
         return [], 0.0, width
     text = f"Group {printable(label)}"
-    per = TEXT_EM * GROUP_NAME_SIZE
-    fit = int((MAX_WIDTH - 2 * MARGIN) // per)
-    lines = (textwrap.wrap(text, fit, break_on_hyphens=False) or [text]) if len(text) > fit else [text]
-    width = max(width, min(MAX_WIDTH, 2 * MARGIN + per * max(len(line) for line in lines)))
+    lines = wrapped(text, GROUP_NAME_SIZE, MAX_WIDTH - 2 * MARGIN, bold=True)
+    width = max(width, min(MAX_WIDTH, 2 * MARGIN + max(text_width(line, GROUP_NAME_SIZE, bold=True) for line in lines)))
     parts = [f'<text class="group-name" x="{MARGIN:.1f}" y="{20 + 18 * k}" font-size="{GROUP_NAME_SIZE}" '
              f'font-weight="bold">{esc(line)}</text>' for k, line in enumerate(lines)]
     return parts, 26.0 + 18 * (len(lines) - 1), width
@@ -857,13 +931,14 @@ def _loading(r, ends: tuple[float, float, float, float], shares: tuple[float, ..
 
 
 def _indicator(text: str, left: float, top: float, width: float, circle: tuple[float, float], beside: bool, residual,
-               bad: bool, stroke: str) -> list[str]:
-    """An item's box with its name, and its residual: a circle on the box's right (``beside``) or under it, its
-    arrow to the box, its value over it (beside) or on its right (under the box); red when ``bad``."""
+               bad: bool, stroke: str, title: str = "") -> list[str]:
+    """An item's box with its name (``text``, as drawn), and its residual: a circle on the box's right (``beside``)
+    or under it, its arrow to the box, its value over it (beside) or on its right (under the box); red when
+    ``bad``; the box's ``title``, the item's whole name, when it is drawn shortened (``_whole_name``)."""
     cx, cy = circle
     out = [f'<rect class="indicator" x="{left:.1f}" y="{top:.1f}" width="{width:.1f}" height="{BOX_H}" '
-           f'fill="#ffffff" stroke="#333" stroke-width="1.3"/>',
-           f'<text class="name" x="{left + width / 2:.1f}" y="{top + BOX_H / 2 + 4:.1f}" font-size="12" '
+           f'fill="#ffffff" stroke="#333" stroke-width="1.3"' + _closed(title, "rect"),
+           f'<text class="name" x="{left + width / 2:.1f}" y="{top + BOX_H / 2 + 4:.1f}" font-size="{ITEM_SIZE}" '
            f'text-anchor="middle">{esc(text)}</text>',
            f'<circle class="residual{" problem" if bad else ""}" cx="{cx:.1f}" cy="{cy:.1f}" r="{RESIDUAL_R}" '
            f'fill="#fff" {stroke}/>']
@@ -883,8 +958,8 @@ def _indicator(text: str, left: float, top: float, width: float, circle: tuple[f
 def _free_spot(spots: list[tuple[float, float]], text: str, placed: list, size: int = SMALLEST_TEXT) -> tuple[float, float]:
     """The first of ``spots`` (centre, baseline) where a label ``text`` covers none of the ``placed`` boxes (the
     first spot when none is free); its box is added to ``placed``.  Extent of a text as the layout tests estimate
-    it: ``TEXT_EM`` per character, 1 em tall, with its white halo."""
-    half = TEXT_EM * size * len(text) / 2 + 1.5
+    it: its characters' widths (``text_extent.text_width``), 1 em tall, with its white halo."""
+    half = text_width(text, size) / 2 + 1.5
 
     def box(x: float, y: float) -> tuple[float, float, float, float]:
         return x - half, y - 0.8 * size - 1.5, x + half, y + 0.2 * size + 1.5
@@ -922,7 +997,7 @@ def _port_offsets(rows, lay: _Layout) -> dict:
             ends.setdefault(b, []).append((lay.centre[a] - lay.centre[b], r.variables))
     ports = {}
     for f, arcs in ends.items():
-        rx = _ellipse_rx(f)
+        rx = _ellipse_rx(lay.text(f))
         arcs.sort(key=lambda e: (e[0] > 0, abs(e[0]) if e[0] <= 0 else -abs(e[0])))
         n = len(arcs)
         for k, (_, variables) in enumerate(arcs):
@@ -934,7 +1009,7 @@ def _ports(rows, lay: _Layout) -> dict:
     """Each arc's ends on the ellipses of its factors (see ``_port_offsets``)."""
     ports = {}
     for (variables, f), dx in _port_offsets(rows, lay).items():
-        dy = ELLIPSE_RY * math.sqrt(max(0.0, 1 - (dx / _ellipse_rx(f)) ** 2))
+        dy = ELLIPSE_RY * math.sqrt(max(0.0, 1 - (dx / _ellipse_rx(lay.text(f))) ** 2))
         ports[(variables, f)] = (lay.centre[f] + dx, lay.y_of[f] + (dy if f in lay.bottom else -dy))
     return ports
 
@@ -989,7 +1064,7 @@ def _arc_values(arcs: list[tuple[float, float, float, float, float, str]], block
     spots: dict[int, tuple[float, float]] = {}
     for k in sorted(range(len(arcs)), key=lambda k: arcs[k][2] - arcs[k][0]):
         others = np.concatenate([points[j] for j in range(len(arcs)) if j != k] or [np.empty((0, 2))])
-        half = TEXT_EM * SMALLEST_TEXT * len(arcs[k][5]) / 2 + 1.5
+        half = text_width(arcs[k][5], SMALLEST_TEXT) / 2 + 1.5
         best = None
         for share in ARC_SPOTS:
             x, y = curve(arcs[k], share)
@@ -1019,14 +1094,15 @@ def _arc(x1: float, y1: float, x2: float, y2: float, control_y: float, cls: str,
             f'{x2:.1f},{y2:.1f}" fill="none" {look} marker-start="url(#head)" marker-end="url(#head)"/>')
 
 
-def _spread_factors(latent: list[str], row_of: dict, centre: dict[str, float], disturbed: set[str],
+def _spread_factors(latent: list[str], row_of: dict, centre: dict[str, float], disturbed: set[str], text,
                     joined: frozenset = frozenset()) -> None:
     """Push apart factors of one row whose ellipses (and disturbance circles) would overlap, and neighbours
-    joined by an arc (``joined``: pairs as frozensets) whose arc would be too short to carry its value."""
+    joined by an arc (``joined``: pairs as frozensets) whose arc would be too short to carry its value (``text``:
+    each name as drawn)."""
     for row in set(row_of.values()):
         ordered = sorted((f for f in latent if row_of[f] == row), key=lambda f: centre[f])
         for a, b in zip(ordered, ordered[1:]):
-            need = _need(a, b, disturbed, joined)
+            need = _need(a, b, disturbed, joined, text)
             if centre[b] - centre[a] < need:
                 centre[b] = centre[a] + need
 
@@ -1087,11 +1163,12 @@ class _Side:
     right: frozenset[str]  # factors to the right of the items (a bifactor model's specific factors)
     drops: dict  # depth of each arc between residuals (to the right of the residuals)
     shown: dict[str, str]
+    names: dict[str, str]  # every factor and item as the drawing writes it (drawn_names)
     width: float = 0.0
     height: float = 0.0
 
     def text(self, name: str) -> str:
-        return self.shown.get(name, name)
+        return self.shown.get(name) or self.names[name]
 
 
 def _sideways(result, rows, obs_set) -> _Side | None:
@@ -1167,10 +1244,11 @@ def _sideways(result, rows, obs_set) -> _Side | None:
         if len({f for f, _ in blocks if f is not None}) != sum(f is not None for f, _ in blocks):
             return None  # a specific factor's items apart in the data: their arrows would cross
     below = bool(cross)
-    box = max([_box_width(shown.get(x, x)) for x in observed] + ([ITEM_COLUMN] if below else []))
+    names = drawn_names(latent + observed)
+    box = max([_box_width(shown.get(x) or names[x]) for x in observed] + ([ITEM_COLUMN] if below else []))
     disturbed = frozenset(f for f in latent if f in parents)
     side = _Side("higher-order" if higher else "bifactor" if cross else "correlated", {}, {}, box, below, disturbed,
-                 right, {}, shown)
+                 right, {}, shown, names)
     # heights: the items block by block, a block moved down when its factor's disturbance would meet the factor above
     pitch = BOX_H + (2 * HANG + 2 * RESIDUAL_R + 2 if below else BOX_GAP)
     y, last = MARGIN, -math.inf  # the top of the next item; the lowest point of the last factor of items drawn
@@ -1202,7 +1280,7 @@ def _sideways(result, rows, obs_set) -> _Side | None:
                    for f in factors)
 
     for lvl in left_of:
-        rx = max(_ellipse_rx(f) for f in column[lvl])
+        rx = max(_ellipse_rx(side.text(f)) for f in column[lvl])
         for f in column[lvl]:
             side.x[f] = x + rx
         x += 2 * rx + fan(column[lvl])
@@ -1210,15 +1288,15 @@ def _sideways(result, rows, obs_set) -> _Side | None:
         side.x[name] = x + box / 2
     x += box
     if below:
-        rx = max(_ellipse_rx(f) for f in right)
+        rx = max(_ellipse_rx(side.text(f)) for f in right)
         for f in right:
             side.x[f] = x + fan(right) + rx
         x += fan(right) + 2 * rx
     else:
         side.drops = _nest_levels({p: sorted((side.y[p[0]], side.y[p[1]])) for p in residual_pairs})
         deepest = max((_drop(d) for d in side.drops.values()), default=0.0)
-        x += SIDE_GAP + 2 * RESIDUAL_R + (deepest + 4 + TEXT_EM * SMALLEST_TEXT * 4 if side.drops else 0.0)
-        x += TEXT_EM * SMALLEST_TEXT * 2  # a residual's value over its circle reaches past it
+        x += SIDE_GAP + 2 * RESIDUAL_R + (deepest + 4 + VALUE_ROOM if side.drops else 0.0)
+        x += VALUE_ROOM / 2 + 3  # a residual's value over its circle reaches past it
     side.width = max(x + MARGIN, 200.0)
     lowest = max(side.y[x] + BOX_H / 2 for x in observed) + (HANG + 2 * RESIDUAL_R if below else 0.0)
     side.height = lowest + MARGIN
@@ -1232,10 +1310,10 @@ def _fan_run(start: float, ends: list[float], least: float) -> float:
     least ``least``) for each arrow's value, at ``VALUE_SHARE`` of the way to its head, to stand ``FAN_CLEARANCE``
     clear of every other arrow of the fan (session note s20: a factor's fan to sixteen items ran 163 units across,
     each value 1.2 units from the next arrow, so that its halo cut that arrow and the values read as belonging to
-    either).  Extent of a value as ``_free_spot`` estimates it (``TEXT_EM`` per character of '−.00'), the
+    either).  Extent of a value as ``_free_spot`` estimates it (``VALUE_ROOM``, the width of '−.00'), the
     arrows as straight lines from the factor's edge to the things' edges, in steps of 4 units up to twice
     ``MAX_WIDTH`` (a drawing so wide is then drawn from the top)."""
-    half = TEXT_EM * SMALLEST_TEXT * 4 / 2 + FAN_CLEARANCE
+    half = VALUE_ROOM / 2 + FAN_CLEARANCE
     run = least
     while run < 2 * MAX_WIDTH:
         clear = True
@@ -1275,7 +1353,7 @@ def _side_arc_room(covariances, side: _Side) -> float:
     0 without arcs.  Called before the factors' x are known: their heights are."""
     if not covariances:
         return 0.0
-    return max(_lift(abs(side.y[a] - side.y[b])) for a, b in covariances) + TEXT_EM * SMALLEST_TEXT * 3 + 10
+    return max(_lift(abs(side.y[a] - side.y[b])) for a, b in covariances) + VALUE_ROOM + 10
 
 
 def _nest_levels(spans: dict) -> dict:
@@ -1303,7 +1381,7 @@ def _side_ports(covariances, side: _Side) -> dict:
         n = len(arcs)
         for k, (_, pair) in enumerate(arcs):
             dy = 0.0 if n == 1 else PORT_SPREAD * ELLIPSE_RY * (2 * k / (n - 1) - 1)
-            dx = _ellipse_rx(f) * math.sqrt(max(0.0, 1 - (dy / ELLIPSE_RY) ** 2))
+            dx = _ellipse_rx(side.text(f)) * math.sqrt(max(0.0, 1 - (dy / ELLIPSE_RY) ** 2))
             ports[(pair, f)] = (side.x[f] - dx, side.y[f] + dy)
     return ports
 
@@ -1323,7 +1401,8 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
     # the boxes' and ellipses' room, which no value may cover
     placed: list[tuple[float, float, float, float]] = \
         [(x[n] - half, y[n] - BOX_H / 2, x[n] + half, y[n] + BOX_H / 2) for n in result.observed] + \
-        [(x[f] - _ellipse_rx(f), y[f] - ELLIPSE_RY, x[f] + _ellipse_rx(f), y[f] + ELLIPSE_RY) for f in result.latent]
+        [(x[f] - _ellipse_rx(side.text(f)), y[f] - ELLIPSE_RY, x[f] + _ellipse_rx(side.text(f)), y[f] + ELLIPSE_RY)
+         for f in result.latent]
 
     def stroke(kind: str, variables) -> str:
         return f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if flagged(kind, variables) else 'stroke="#333"'
@@ -1331,9 +1410,9 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
     for r in (r for r in rows if r.kind == "loading"):
         f, target = r.variables
         rightward = f not in side.right
-        rx = _ellipse_rx(f)
+        rx = _ellipse_rx(side.text(f))
         x1, y1 = x[f] + (rx if rightward else -rx), y[f]
-        reach = half if target in obs_set else _ellipse_rx(target)
+        reach = half if target in obs_set else _ellipse_rx(side.text(target))
         x2, y2 = x[target] + (-reach if rightward else reach), y[target]
         # its value near the arrow's head, where the arrows of a fan stand farthest apart
         parts += _loading(r, (x1, y1, x2, y2), (0.78, 0.66, 0.88, 0.55, 0.45), placed,
@@ -1361,9 +1440,10 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
     for f in result.latent:
         bad = flagged("factor_variance", (f,))
         parts.append(f'<ellipse class="factor{" problem" if bad else ""}" cx="{x[f]:.1f}" cy="{y[f]:.1f}" '
-                     f'rx="{_ellipse_rx(f):.1f}" ry="{ELLIPSE_RY}" fill="{FACTOR_FILL}" '
-                     + (f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"/>' if bad else 'stroke="#1f3b73" stroke-width="1.5"/>'))
-        parts.append(f'<text class="name" x="{x[f]:.1f}" y="{y[f] + 4:.1f}" font-size="13" text-anchor="middle">{esc(f)}</text>')
+                     f'rx="{_ellipse_rx(side.text(f)):.1f}" ry="{ELLIPSE_RY}" fill="{FACTOR_FILL}" '
+                     + (f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if bad else 'stroke="#1f3b73" stroke-width="1.5"')
+                     + _closed(_whole_name(f, side.names), "ellipse"))
+        parts.append(_name_text(x[f], y[f] + 4, side.text(f), NAME_SIZE))
     for r in rows:
         if r.kind == "factor_variance" and r.variables[0] in side.disturbed:
             f = r.variables[0]
@@ -1380,7 +1460,7 @@ def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
     for name in result.observed:
         parts += _indicator(side.text(name), x[name] - half, y[name] - BOX_H / 2, side.box, _side_residual(name, side),
                             not side.below, residual.get(name), flagged("residual_variance", (name,)),
-                            stroke("residual_variance", (name,)))
+                            stroke("residual_variance", (name,)), _whole_name(name, side.names))
     for r in rows:
         if r.kind == "residual_covariance":
             (xa, ya), (_, yb) = sorted((_side_residual(v, side) for v in r.variables), key=lambda p: p[1])

@@ -5,8 +5,8 @@ must), and a value drawn where two other arcs cross cannot be told apart from th
 .52 between the second and third of four factors sat on the crossing of the arcs from the first to the third
 and from the second to the fourth).  Measured on the SVG itself: each arc is the quadratic Bezier curve of its
 path, sampled densely; each value's box is estimated as the layout tests estimate text
-(tests/reporting/test_diagram_layouts.text_boxes: 0.62 em a character, from Adobe's Helvetica metrics, with
-the white halo).  A value is readable as its arc's when no other arc passes through its box, its box overlaps
+(tests/reporting/test_diagram_layouts.text_boxes: each character's width in Helvetica, from Adobe's font metrics,
+with the white halo).  A value is readable as its arc's when no other arc passes through its box, its box overlaps
 no other text, and its own arc is the nearest curve to its centre.
 """
 
@@ -23,7 +23,7 @@ import cfa_tool
 from cfa_tool.reporting.diagram import diagram_file
 
 from tests.conftest import simulate_cfa
-from tests.reporting.test_diagram_layouts import CHAR_EM, CHROMIUM, HALO, SVG, check_in_a_browser, overlaps
+from tests.reporting.test_diagram_layouts import CHROMIUM, HALO, SVG, check_in_a_browser, estimated_width, overlaps
 
 ARCS = ("covariance", "residual-covariance")
 
@@ -46,7 +46,7 @@ def arcs_and_values(svg: str) -> list[tuple[np.ndarray, tuple[float, float, floa
         elif node.tag == SVG + "text" and pending:
             size, text = float(node.get("font-size")), "".join(node.itertext())
             x, y = float(node.get("x")) + dx, float(node.get("y")) + dy
-            w = CHAR_EM * size * len(text)
+            w = estimated_width(node)
             left = {"start": x, "middle": x - w / 2, "end": x - w}[node.get("text-anchor", "start")]
             found.append((pending.pop(), (left - HALO, y - 0.8 * size - HALO, left + w + HALO, y + 0.2 * size + HALO),
                           text))

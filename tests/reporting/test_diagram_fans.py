@@ -3,8 +3,8 @@
 Session note s20: in a steep fan (a factor's arrows to sixteen items in one column) each loading's value stood 1.2
 units from the next arrow, so that its white halo cut that arrow and the value could be read as either arrow's.  Now
 a fan runs across as far as its values need (reporting.diagram._fan_run).  Measured on the SVG: each value's box,
-estimated as tests/reporting/test_diagram_layouts.text_boxes estimates text (0.62 em a character, from Adobe's
-Helvetica metrics, 1 em tall), keeps its halo (1.5 units) and a unit of air from every arrow but its own; no two
+estimated as tests/reporting/test_diagram_layouts.text_boxes estimates text (each character's width in Helvetica,
+from Adobe's font metrics, 1 em tall), keeps its halo (1.5 units) and a unit of air from every arrow but its own; no two
 texts overlap and everything lies inside the picture (tests/reporting/test_diagram_fits_the_page.outside).
 """
 
@@ -18,10 +18,11 @@ import pytest
 
 import cfa_tool
 from cfa_tool.reporting.diagram import MAX_WIDTH, diagram_file
+from cfa_tool.reporting.text_extent import text_width
 
 from tests.conftest import simulate_cfa
 from tests.reporting.test_diagram_fits_the_page import _names, correlated, outside
-from tests.reporting.test_diagram_layouts import CHAR_EM, CHROMIUM, HALO, SVG, check_in_a_browser, overlaps
+from tests.reporting.test_diagram_layouts import CHROMIUM, HALO, SVG, check_in_a_browser, overlaps
 
 @functools.lru_cache(maxsize=None)
 def higher_order(factors: int, items: int):
@@ -98,7 +99,7 @@ def crowded(svg: str) -> list[str]:
                 values.append(("".join(node.itertext()), float(node.get("x")), float(node.get("y")), last))
                 last = None
         for text, x, y, own in values:
-            half = CHAR_EM * 12 * len(text) / 2
+            half = text_width(text, 12) / 2  # (values are drawn at 12 units)
             box = (x - half, y - 0.8 * 12, x + half, y + 0.2 * 12)
             near = min((_segment_distance(a, box) for a in arrows if a != own), default=np.inf)
             if near < CLEARANCE:
@@ -112,10 +113,12 @@ def test_the_measure_finds_a_value_on_another_arrow():
            '<line class="loading" x1="0" y1="100" x2="100" y2="20"/><text class="value" x="78" y="42">.71</text>'
            '<line class="loading" x1="0" y1="100" x2="100" y2="200"/><text class="value" x="78" y="180">.72</text>'
            '</g></svg>')
-    # .70's box (66.8 to 89.2 across, 16.4 to 28.4 down) has its corner (89.2, 28.4) 0.24 / sqrt(1.64) = 0.19 units
-    # from the second arrow (0.8 x + y = 100); .71's box holds a piece of the first (y = 100 - x); .72 is alone
-    assert crowded(svg) == [".70 at (78, 26) is 0.2 units from another arrow",
-                            ".71 at (78, 42) is 0.0 units from another arrow"]
+    # .70's box (12 x (0.278 + 2 x 0.556 + 0.15) = 18.48 wide: 68.76 to 87.24 across, 16.4 to 28.4 down) has its
+    # corner (87.24, 28.4) 1.808 / sqrt(1.64) = 1.41 units from the second arrow (0.8 x + y = 100), less than its
+    # halo and a unit of air; .71's box has its corner (68.76, 32.4) 1.16 / sqrt(2) = 0.82 units from the first
+    # (x + y = 100); .72 is alone
+    assert crowded(svg) == [".70 at (78, 26) is 1.4 units from another arrow",
+                            ".71 at (78, 42) is 0.8 units from another arrow"]
 
 
 @pytest.mark.parametrize("shape", list(FANS))

@@ -9,7 +9,7 @@ two items named in 20 characters: 1952 units), higher-order factors with their d
 of long question texts (1511 units).  (Its crowded fans drawn sideways: tests/reporting/test_diagram_fans.py.)
 
 Measured on the SVG: every text's box (estimated as tests/reporting/test_diagram_layouts.text_boxes estimates it:
-0.62 em a character, from Adobe's Helvetica metrics, 1 em tall, the white halo around values) and every shape (boxes,
+each character's width in Helvetica, from Adobe's font metrics, 1 em tall, the white halo around values) and every shape (boxes,
 ellipses, circles, straight arrows, the routed arrows' polylines, the arcs' quadratic curves sampled densely) lies
 inside the viewBox, no two texts overlap, and the viewBox is at most ``MAX_WIDTH`` wide.
 """
@@ -29,7 +29,7 @@ from cfa_tool.reporting.diagram import MAX_WIDTH, diagram_file, path_diagram
 from tests.conftest import simulate_cfa
 from tests.reporting.test_diagram_layouts import CHROMIUM, SVG, check_in_a_browser, overlaps, text_boxes
 
-FILL = "abcdefghijklnopqrstuvxyz"  # letters of about average width (the estimate is 0.62 em; 'm' and 'w' are wider)
+FILL = "abcdefghijklnopqrstuvxyz"  # letters of about average width ('m' and 'w' are wider)
 
 
 def _names(prefix: str, count: int, length: int) -> list[str]:
@@ -155,10 +155,12 @@ def test_a_drawing_is_no_wider_than_a_page_and_everything_is_inside_it(shape):
 
 @pytest.mark.parametrize("factors", [3, 5])
 def test_a_factor_whose_named_items_are_wider_than_a_band_is_drawn_whole_with_short_labels(factors):
-    """Six items named in 20 characters are 1080 units wide (7.4 units a character and 18 for the box, 14 between
-    boxes), more than a band's 989: rather than cut each factor over two bands, half its loadings listed, every item
-    is drawn with its short label (I1, I2, ...), named in the key, and every loading is an arrow."""
-    result = correlated(factors, 6, 20, 6)
+    """Eight items named in 20 characters are 1254 units wide (each name's characters as wide as Helvetica draws
+    them, 16 units for the box, 14 between boxes), more than a band's 989: rather than cut each factor over two
+    bands, half its loadings listed, every item is drawn with its short label (I1, I2, ...), named in the key, and
+    every loading is an arrow.  (Six such items, 923 units wide, fit a band with their names: before each character
+    was estimated alike, at 0.62 em, they did not.)"""
+    result = correlated(factors, 8, 20, 6)
     svg = diagram_file(result)
     assert 'class="listed-loading"' not in svg and 'class="continued"' not in svg
     root = ET.fromstring(svg)
@@ -184,7 +186,7 @@ def test_a_long_question_goes_on_in_lines_of_the_key():
 
 @functools.lru_cache(maxsize=None)
 def long_group_names():
-    """Two groups, one named in 115 characters (a survey's description of a mode of answering)."""
+    """Two groups, one named in 149 characters (a survey's description of a mode of answering)."""
     data = simulate_cfa(np.kron(np.eye(2), np.full((3, 1), 0.7)), 0.6 * np.eye(2) + 0.4, np.diag(np.full(6, 0.51)), 400, 1,
                         [f"y{i + 1}" for i in range(6)])
     data["mode"] = np.where(np.arange(400) % 2, LONG_GROUP, "online")
@@ -192,7 +194,7 @@ def long_group_names():
 
 
 LONG_GROUP = ("Riders who answered the survey on paper at a station kiosk during the second survey wave of the year, "
-              "in the evening")
+              "in the evening, after their last trip of the day")
 
 
 def test_a_long_group_name_goes_on_in_lines_inside_the_picture():

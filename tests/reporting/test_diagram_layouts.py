@@ -1,18 +1,18 @@
 """Every layout of the path diagram, checked for text that overlaps or leaves the picture.
 
-The extent of a text is estimated from its font size and number of characters, on the safe side: a
-character is taken as 0.62 em wide (the widest digits and lower-case letters of Helvetica and Arial are
-0.556 em, the average of lower-case text about 0.5 em: Adobe's Helvetica font metrics, the AFM file of
-the 35 standard PostScript fonts), the text as 1 em tall (0.8 em above the baseline, 0.2 em below), and
-the white halo drawn around value labels (stroke-width 3) adds 1.5 units on every side.  Two boxes
-overlap when they share more than a hair (0.5 units) in both directions.
+The extent of a text is estimated from its font size and its characters, on the safe side: each character as
+wide as the font the drawing names draws it (reporting/text_extent.py: Helvetica's advance widths, from Adobe's
+font metrics, the AFM files of the 35 standard PostScript fonts, bold where the text is bold; other scripts by
+class; the browser test below checks that the estimate is never narrower than the text Chromium draws), the
+text as 1 em tall (0.8 em above the baseline, 0.2 em below), and the white halo drawn around value labels
+(stroke-width 3) adds 1.5 units on every side.  Two boxes overlap when they share more than a hair (0.5 units)
+in both directions.
 """
 
 from __future__ import annotations
 
 import re
 import shutil
-import subprocess
 import xml.etree.ElementTree as ET
 
 import numpy as np
@@ -20,13 +20,18 @@ import pytest
 
 import cfa_tool
 from cfa_tool.reporting.diagram import diagram_file, path_diagram
+from cfa_tool.reporting.text_extent import text_width
 
 from tests.conftest import THREE_FACTORS, simulate_cfa
 from tests.commands.test_cli import run
 
 SVG = "{http://www.w3.org/2000/svg}"
-CHAR_EM = 0.62
 HALO = 1.5
+
+
+def estimated_width(node) -> float:
+    """The estimated width of an SVG text element (its font size, its weight and its characters)."""
+    return text_width("".join(node.itertext()), float(node.get("font-size")), bold=node.get("font-weight") == "bold")
 
 
 def text_boxes(svg: str) -> tuple[list[tuple[str, float, float, float, float]], float, float]:
@@ -43,7 +48,7 @@ def text_boxes(svg: str) -> tuple[list[tuple[str, float, float, float, float]], 
             size = float(node.get("font-size"))
             text = "".join(node.itertext())
             x, y = float(node.get("x")) + dx, float(node.get("y")) + dy
-            w = CHAR_EM * size * len(text)
+            w = estimated_width(node)
             left = {"start": x, "middle": x - w / 2, "end": x - w}[node.get("text-anchor", "start")]
             halo = HALO if node.get("stroke") else 0.0
             boxes.append((text, left - halo, y - 0.8 * size - halo, left + w + halo, y + 0.2 * size + halo))
@@ -81,6 +86,17 @@ def _bifactor(items: int, parts: int, rows: int, seed: int):
                         + "scale latent by variance\nuncorrelated general, " + ", ".join(specific) + "\n", data)
 
 
+def method_data():
+    """800 rows of ten items v1..v10 simulated from two correlated traits (.4) of five items each (loadings .7) and
+    a method factor on four of them, two of each trait (.4)."""
+    loadings = np.zeros((10, 3))
+    loadings[:5, 0] = loadings[5:, 1] = 0.7
+    loadings[[1, 3, 6, 8], 2] = 0.4
+    phi = np.eye(3)
+    phi[0, 1] = phi[1, 0] = 0.4
+    return simulate_cfa(loadings, phi, np.diag(np.full(10, 0.4)), 800, 6, [f"v{i + 1}" for i in range(10)])
+
+
 @pytest.fixture(scope="module")
 def shapes(hs_data):
     out = {"small": cfa_tool.fit(THREE_FACTORS + "covary x1, x4\ncovary x7, x9\n", hs_data),
@@ -89,12 +105,7 @@ def shapes(hs_data):
     # bifactor: a general factor on every item, three specific factors, all uncorrelated
     out["bifactor"] = _bifactor(12, 3, 800, 5)
     # a method factor on the reverse-keyed items of two traits
-    loadings = np.zeros((10, 3))
-    loadings[:5, 0] = loadings[5:, 1] = 0.7
-    loadings[[1, 3, 6, 8], 2] = 0.4
-    phi = np.eye(3)
-    phi[0, 1] = phi[1, 0] = 0.4
-    data = simulate_cfa(loadings, phi, np.diag(np.full(10, 0.4)), 800, 6, [f"v{i + 1}" for i in range(10)])
+    data = method_data()
     out["method factor"] = cfa_tool.fit("factor trust: v1..v5\nfactor loyalty: v6..v10\nfactor wording: v2, v4, v7, v9\n"
                                         "method wording\nuncorrelated wording, trust\nuncorrelated wording, loyalty\n"
                                         "scale latent by variance\n", data)
@@ -272,6 +283,7 @@ def test_in_a_browser_no_label_overlaps_and_the_estimate_is_on_the_safe_side(tmp
 def check_in_a_browser(pictures: list[str], tmp_path) -> None:
     """The browser lays out every text with its real font; the boxes it reports (glyph extents, without the
     halo) must not overlap, must stay in the picture, and must be no wider than the test's estimate."""
+    import html
     import json
 
     from tests.reporting.test_reports import _chromium
@@ -280,7 +292,7 @@ def check_in_a_browser(pictures: list[str], tmp_path) -> None:
     page.write_text("<!DOCTYPE html><html><body style='margin:0'>" + "".join(f"<div>{svg}</div>" for svg in pictures)
                     + "<pre id='out'></pre>" + MEASURE + "</body></html>", encoding="utf-8")
     dom = _chromium("--dump-dom", page.resolve().as_uri()).stdout
-    measured = json.loads(re.search(r"<pre id=\"out\">(.*?)</pre>", dom, re.S).group(1).replace("&amp;", "&"))
+    measured = json.loads(html.unescape(re.search(r"<pre id=\"out\">(.*?)</pre>", dom, re.S).group(1)))
     assert len(measured) == len(pictures)
     for svg, real in zip(pictures, measured):
         estimated, width, height = text_boxes(svg)
