@@ -219,10 +219,9 @@ def _defaults_beside_given(table: ParameterTable, model: StructuredModel, theta:
         if theta[k] <= 0:
             item = table.observed[rows[e]]
             variance = target_sd[rows[e]] ** 2
-            # significant digits enough to tell the share from the variance (1.002 was '1.00', more than the 1; its
-            # residual '-0.00'; 1e8 was '100004000.04': s22, by the one rule of a computed number, rounded_number)
-            digits = next((d for d in range(3, 10) if float(f"{common[rows[e]]:.{d}g}") != variance), 10)
-            explained = (f"{rounded_number(common[rows[e]], digits)} of its variance, more than"
+            # digits enough to tell the share from the variance (1.002 was '1.00', more than the 1; its residual
+            # '-0.00'; 1e8 was '100004000.04': s22, by the one rule of a computed number, rounded_number)
+            explained = (f"{rounded_number(common[rows[e]], apart_from=variance)} of its variance, more than"
                          if theta[k] < 0 else "all of its variance,")
             raise ModelError(f"{spec_source}: with the values the model file gives, the factors of item '{printable(item)}' "
                              f"explain {explained} the {user_number(variance)} its standardized default allows, so its "
