@@ -58,14 +58,18 @@ def user_number(value: float) -> str:
     return text.rstrip("0").rstrip(".") if "." in text else text
 
 
-def rounded_number(value: float, digits: int = 3) -> str:
+def rounded_number(value: float, digits: int = 3, apart_from: float | None = None) -> str:
     """A number the tool computed, shown to ``digits`` significant digits in plain digits as :func:`user_number`
     prints them ('0.000031', '1230000'; Python's '.3g' gave '3.1e-05' and '1.23e+06', which a researcher reads less
     easily): discrepancies, scaling factors, variances in messages.  The one rule for a computed number of any size
-    in words; values bounded by 1 and fit indices are reporting.numbers'."""
+    in words; values bounded by 1 and fit indices are reporting.numbers'.  ``apart_from``: a number a message sets it
+    beside, which it then takes as many more significant digits as tell it from (up to 12): a variance of 1.002
+    'more than the 1' reads '1.002', not '1' (s22: '.2f' wrote '1.00')."""
     value = float(value)
     if not math.isfinite(value):
         return str(value)
+    if apart_from is not None:
+        digits = next((d for d in range(digits, 13) if float(f"{value:.{d}g}") != apart_from), 12)
     return user_number(float(f"{value:.{digits}g}"))
 
 

@@ -2511,15 +2511,20 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                                     frozenset(x for x in spec.observed_names if x not in ordinal_items), group,
                                     reference_group)
     thresholds = 0  # of an ordinal fit in one group, estimated first: the design-based covariance carries them too
+    ordinal_small = ((), ())  # the rule of rows per parameter as the ordinal fit judges it (its rows, its model)
     if ordinal_items and not refusals:  # the same data checks as the fit (correlations, duplicates, the design's)
         if group is not None:
-            ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise=True, design=design)
+            ordinal_parts, _ = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items,
+                                              pairwise=True, design=design)
+            ordinal_small = _ordinal_group_sizes(spec, ordinal_parts)
         else:
             from cfa_tool.data.polychoric import ordinal_moments
 
-            thresholds = sum(len(t) for t in ordinal_moments(
+            first_step = ordinal_moments(
                 frame, spec.observed_names, source, frozenset(x for x in spec.observed_names if x not in ordinal_items),
-                pairwise=True, design=design).thresholds)
+                pairwise=True, design=design)
+            thresholds = sum(len(t) for t in first_step.thresholds)
+            ordinal_small = _ordinal_sample_size(spec, first_step.n_obs)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
     sparse, too_small = (), ()
     try:  # the saturated (EM) moments once; where they cannot be estimated, whether the gaps are why
@@ -2546,7 +2551,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     check_counting_rule(spec, table)
     # the rows per parameter of the sample or of each group, by the fit's rule (an ordinal fit's thresholds: counted
     # by the fit)
-    small, small_notes = ((), ()) if ordinal_items else group_size_problems(table, [m.n_obs for _, m in groups]) \
+    small, small_notes = ordinal_small if ordinal_items else group_size_problems(table, [m.n_obs for _, m in groups]) \
         if labels else one_sample_size_problems(groups[0][1].n_obs, table.n_free, table.free_labels)
     named = {p.group for p in too_small}  # those groups' rows per parameter: their caution says more
     small = too_small + tuple(p for p in small if p.group not in named)
@@ -2595,6 +2600,31 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                                                      loaded),
                        refusals=refusals, group_coverage=_group_coverage(spec, frame, source, group, reference_group),
                        degrees_of_freedom=None if ordinal_items else moments_count(table) - table.n_free)
+
+
+def _ordinal_group_sizes(spec: Spec, groups: list) -> tuple[tuple, tuple[str, ...]]:
+    """The rule of rows per parameter of each group of an ordinal fit (assessment.admissibility.group_size_problems),
+    judged as pipeline.ordinal.assess_ordinal_groups judges it: the model of the groups with each ordinal item's
+    thresholds, and each group's rows of its ordinal moments (``groups``, as :func:`ordinal_groups` gives them)."""
+    from cfa_tool.assessment.admissibility import group_size_problems
+    from cfa_tool.model.parameters import build_parameter_table
+    from cfa_tool.pipeline.ordinal import threshold_counts
+
+    moments = [m for _, m in groups]
+    table = build_parameter_table(spec, tuple(label for label, _ in groups), ordinal=threshold_counts(moments[0]))
+    return group_size_problems(table, [m.n_obs for m in moments])
+
+
+def _ordinal_sample_size(spec: Spec, rows: float) -> tuple[tuple, tuple[str, ...]]:
+    """The rule of rows per parameter of a one-group ordinal fit of ``rows`` rows, judged as its result judges it
+    (pipeline.results.fit_result): the parameters of the model it estimates (pipeline.ordinal.ordinal_spec, the
+    thresholds first-step statistics outside them)."""
+    from cfa_tool.assessment.admissibility import one_sample_size_problems
+    from cfa_tool.model.parameters import build_parameter_table
+    from cfa_tool.pipeline.ordinal import ordinal_spec
+
+    table = build_parameter_table(ordinal_spec(spec)[0])
+    return one_sample_size_problems(rows, table.n_free, table.free_labels)
 
 
 def _group_coverage(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,

@@ -10,11 +10,10 @@ from dataclasses import replace
 from cfa_tool.model.description import parameter_words
 from cfa_tool.numbers import count_text
 from cfa_tool.note_parts import Command, Note, joined
-from cfa_tool.options import Option
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.numbers import num, unit, word_list
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, _table
-from cfa_tool.reporting.workflow_tables import _notice, population_parts
+from cfa_tool.reporting.workflow_tables import _notice, defaults_caution, population_parts
 from cfa_tool.workflows.group_power import StepRole
 
 #: why a step after a misfitting one measures neither power nor a false-alarm rate
@@ -141,18 +140,13 @@ def invariance_power_report(result) -> Report:
 
 
 def _defaults_caution(shared) -> tuple[Note, ...]:
-    """A caution, above the tables, when population values shared by the groups are the standardized defaults rather
-    than values of the researcher's scale (new-user trial s21: a plan drawn from loadings .7 and factor correlations
-    +.3 where the fit found -.5 said only that the defaults were listed), with the two ways to give them."""
+    """The caution of population values shared by the groups that are the standardized defaults
+    (workflow_tables.defaults_caution, the one caution of power-simulation with groups and without)."""
     if not shared.defaulted:
         return ()
-    return (Note((f"{len(shared.defaulted)} of the population values shared by the groups are the standardized "
-                  f"defaults (loadings .7, -.7 for reverse-keyed items, factor correlations .3, residual covariances "
-                  f"0, item variances 1; listed in the population table), not values of this scale: the rejection "
-                  f"shares are those of such a population. Give the values the model file lacks",
-                  Command(" with 'start' statements, or take every value from a continuous fit of the model to one "
-                          f"group ({Option.POPULATION_FROM.given('FIT.json')})",
-                          " from an earlier fit of the model or from the literature"), ".")),)
+    return (defaults_caution(f"{len(shared.defaulted)} of the population values shared by the groups are the "
+                             f"standardized defaults",
+                             "the rejection shares", "a continuous fit of the model to one group"),)
 
 
 def _few_replications(replications: int) -> tuple[str, ...]:

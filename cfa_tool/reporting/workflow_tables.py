@@ -1406,9 +1406,6 @@ def montecarlo_report(result) -> Report:
     lines = [f"{count_text(result.converged)} of {count_text(result.replications)} replications converged "
              f"({100 * result.converged / result.replications:.1f}%)."
              ] + _ordinal_power_lines(result)
-    if result.defaulted:
-        lines.append("Population values not given in the model file took defaults: "
-                     + ", ".join(label_words(label, observed=result.observed or None) for label in result.defaulted))
     lines += not_carried_line(result.not_carried)
     # what decides the plan first: power, then whether intervals and estimates can be trusted at this N
     rows = [[label_words(p.label, article=False, observed=result.observed or None), unit(p.power, 2), f"{100 * p.coverage:.1f}%",
@@ -1430,7 +1427,7 @@ def montecarlo_report(result) -> Report:
     return Report(ResultKind.POWER_SIMULATION,
                   f"Monte Carlo power: N = {count_text(result.n_obs)}, {count_text(result.replications)} replications (seed {result.seed})",
                   _notice([], _inadmissible_cautions([result])), tuple(lines), (table, *population),
-                  warnings=few_replications(result.replications))
+                  warnings=one_group_defaults_caution(result) + few_replications(result.replications))
 
 
 def _zero_population_words(parameters) -> str:
@@ -1460,9 +1457,6 @@ def power_curve_report(curve) -> Report:
         lines += [_ordinal_power_lines(first)[0], f"The {ADJUSTED_TEST} test rejected the true model at alpha "
                   f"{unit(first.alpha, 2)} in " + ", ".join(f"{100 * r.model_rejected:.1f}% at N = {count_text(r.n_obs)}"
                                                            for r in curve.results) + " of the converged replications."]
-    if first.defaulted:
-        lines.append("Population values not given in the model file took defaults: "
-                     + ", ".join(label_words(label, observed=first.observed or None) for label in first.defaulted))
     lines += not_carried_line(first.not_carried)
     names = [label_words(p.label, article=False, observed=first.observed or None) for p in first.parameters]
     rows = [[name, *(unit(r.parameters[k].power, 2) for r in curve.results)] for k, name in enumerate(names)]
@@ -1489,7 +1483,46 @@ def power_curve_report(curve) -> Report:
     return Report(ResultKind.POWER_SIMULATION, f"Monte Carlo power by sample size: {count_text(first.replications)} replications "
                                                f"per size (seed {first.seed})",
                   _notice([], _inadmissible_cautions(curve.results)), tuple(lines), (table, trust, *_population_of(first)),
-                  warnings=few_replications(first.replications))
+                  warnings=one_group_defaults_caution(first) + few_replications(first.replications))
+
+
+#: the values a population takes where the model file gives none (workflows.simulation: STANDARDIZED_LOADING,
+#: FACTOR_CORRELATION and the standardized item variances), in words
+STANDARDIZED_DEFAULTS = ("loadings .7, -.7 for reverse-keyed items, factor correlations .3, residual covariances 0, "
+                         "item variances 1")
+
+
+def defaults_caution(which: str, figures: str, whose: str, named: str = "") -> Note:
+    """The one caution of a power simulation drawn from population values that are the standardized defaults rather
+    than values of the researcher's scale (new-user trial s21: a plan drawn from loadings .7 and factor correlations
+    +.3 where the fit found -.5), with the two ways to give them: ``which``, the defaulted values counted ('8 of the
+    population values shared by the groups are the standardized defaults'); ``figures``, what is then a figure of such a population ('the
+    rejection shares'); ``whose``, the earlier fit that may give every value ('a continuous fit of the model to one
+    group'); ``named``, the defaulted values in words, or '' where the population table lists them.  Among the
+    warnings, above the tables, in every view (power-simulation with groups and without)."""
+    listed = f" They are {named}." if named else ""
+    return Note((f"{which} ({STANDARDIZED_DEFAULTS}"
+                 f"{'' if named else '; listed in the population table'}), not values of this scale: {figures} are "
+                 f"those of such a population.{listed} Give the values the model file lacks",
+                 Command(f" with 'start' statements, or take every value from {whose} "
+                         f"({Option.POPULATION_FROM.given('FIT.json')})",
+                         " from an earlier fit of the model or from the literature"), "."))
+
+
+def one_group_defaults_caution(result) -> tuple[Note, ...]:
+    """:func:`defaults_caution` of a power simulation of one group (``result``: a workflows.montecarlo result of one
+    sample size, or the first of several): the defaulted values listed in the population table, or named where the
+    result has none (read back from its JSON).  Before s22 a plain line among the report's lines, where the grouped
+    plan's was a caution."""
+    if not result.defaulted:
+        return ()
+    n = len(result.defaulted)
+    named = "" if getattr(result, "population", None) is not None else word_list(
+        [label_words(label, observed=result.observed or None) for label in result.defaulted])
+    return (defaults_caution(f"{n} population value{'s' if n != 1 else ''} not given in the model file "
+                             f"{'are the standardized defaults' if n != 1 else 'is a standardized default'}",
+                             "the power, coverage and bias",
+                             "an earlier fit of the model", named),)
 
 
 # ---------------------------------------------------------------- simulate

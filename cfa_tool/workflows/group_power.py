@@ -24,7 +24,7 @@ from cfa_tool.numbers import rounded_number, user_number
 from cfa_tool import options as check
 from cfa_tool.assessment.admissibility import counted_problems, replicated_problems
 from cfa_tool.data.moments import SampleMoments
-from cfa_tool.errors import CfaError, EstimationError, ModelError, OptionError
+from cfa_tool.errors import CfaError, EstimationError, ModelError, OptionError, printable
 from cfa_tool.language.spec import Spec
 from cfa_tool.method import DifferenceMethod
 from cfa_tool.numerics import distributions as dist
@@ -341,12 +341,7 @@ def invariance_power(model: str | Path | Spec, group_sizes: str | Mapping[str, i
         where = spec.equalities_location
         raise ModelError("the invariance ladder sets the equalities of each level itself; remove 'invariance' and "
                          "'equal across groups' statements from the model file", where, spec.source_line(where))
-    if spec.ordinal or spec.answers:
-        statement = "'ordinal'" if spec.ordinal else "'answers'"
-        raise OptionError(f"planning with groups simulates continuous answers, and the model has an {statement} "
-                          f"statement: remove it from a copy of the model file to plan for continuous items (a "
-                          f"continuous fit made with it still gives the population, {check.Option.POPULATION_FROM}; "
-                          f"ordinal items with groups are not yet simulated)")
+    _refuse_answers_in_categories(spec)
     p = len(spec.observed_names)
     for design in designs:
         for label, n in zip(labels, design):
@@ -376,6 +371,34 @@ def invariance_power(model: str | Path | Spec, group_sizes: str | Mapping[str, i
         results.append(_design_power(ladder, design, replications, mine, truth[k], alpha))
     method = next((d.method for d in draws if d.converged), DifferenceMethod.LIKELIHOOD_RATIO)
     return InvariancePower(population, tuple(results), replications, alpha, seed, method)
+
+
+def _refuse_answers_in_categories(spec: Spec) -> None:
+    """An 'ordinal' or 'answers' statement refused at its line (its source line shown), saying why and what to do:
+    planning with groups simulates continuous answers, fitted by the ladder of continuous items, and items answered in
+    a few categories are not continuous answers, whose power a plan of continuous ones would misstate; the ladder of
+    ordinal items (thresholds first, Wu & Estabrook 2016) is not yet simulated.  What remains: a plan of continuous
+    answers from a copy of the model file without the statement, or the power of one group's answers in the
+    categories (power-simulation without group sizes, which simulates and fits them)."""
+    if not spec.ordinal and not spec.answers:
+        return
+    if spec.ordinal:
+        name = spec.ordinal[0]
+        what, location = f"the model declares '{printable(name.text)}' ordinal", name.location
+    else:
+        coding = spec.answers[0]
+        items = [x for x, c in spec.answer_codings().items() if c is coding]
+        covered = (f"'{printable(items[0])}'" if len(items) == 1 else
+                   f"{len(items)} items ('{printable(items[0])}' first)") if items else "no item of the model"
+        what, location = (f"{coding.origin} records the answers of {covered} in {len(coding.codes())} categories",
+                          coding.location)
+    raise ModelError(f"{what}, and planning an invariance study ({check.Option.GROUP_SIZES}) simulates continuous "
+                     f"answers, which a plan of answers in a few categories would misstate (the ladder of ordinal "
+                     f"items is not yet simulated); remove the statement from a copy of the model file to plan for "
+                     f"continuous answers (a continuous fit made with it still gives the population, "
+                     f"{check.Option.POPULATION_FROM}), or plan the power of one group, which simulates and fits "
+                     f"answers in categories (without {check.Option.GROUP_SIZES})", location,
+                     spec.source_line(location))
 
 
 def _design_power(ladder, design: tuple[int, ...], replications: int, draws: list[_Draw], truth, alpha: float

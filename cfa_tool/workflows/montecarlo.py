@@ -211,7 +211,7 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
             k = int(np.argmax(np.abs(variances - 1.0)))
             raise OptionError(f"with ordinal items the population values are on the scale of latent responses of "
                               f"variance 1, but the values given make the variance of '{population.observed[k]}' "
-                              f"{rounded_number(variances[k])}; change the 'start' values")
+                              f"{rounded_number(variances[k], apart_from=1.0)}; change the 'start' values")
     table = build_parameter_table(ordinal)
     value_of = {(v["kind"], tuple(v["variables"])): v["value"] for v in population.values()}
     entry_of = {}  # each free parameter through an entry that is that parameter alone

@@ -218,9 +218,14 @@ def _defaults_beside_given(table: ParameterTable, model: StructuredModel, theta:
     for k, e in residual:  # the item's variance 1 cannot hold what the given values make its factors explain
         if theta[k] <= 0:
             item = table.observed[rows[e]]
+            variance = target_sd[rows[e]] ** 2
+            # digits enough to tell the share from the variance (1.002 was '1.00', more than the 1; its residual
+            # '-0.00'; 1e8 was '100004000.04': s22, by the one rule of a computed number, rounded_number)
+            explained = (f"{rounded_number(common[rows[e]], apart_from=variance)} of its variance, more than"
+                         if theta[k] < 0 else "all of its variance,")
             raise ModelError(f"{spec_source}: with the values the model file gives, the factors of item '{printable(item)}' "
-                             f"explain {common[rows[e]]:.2f} of its variance, more than the 1 its standardized default "
-                             f"allows, so its default residual variance would be {theta[k]:.2f}; give the population value of "
+                             f"explain {explained} the {user_number(variance)} its standardized default allows, so its "
+                             f"default residual variance would be {rounded_number(theta[k])}; give the population value of "
                              f"variance({printable(item)}) with a 'start' statement, or smaller loadings")
     return theta
 

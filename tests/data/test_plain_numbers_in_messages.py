@@ -124,3 +124,14 @@ def test_a_tiny_negative_variance_in_plain_digits():
                             ("a", "b", "c"), ("f",))
     words = [str(p.explanation) for p in found if p.kind is ProblemKind.NEGATIVE_RESIDUAL_VARIANCE]
     assert words and "(-0.0000123)" in words[0] and "e-05" not in words[0]
+
+
+def test_a_computed_number_set_beside_another_takes_the_digits_that_tell_them_apart():
+    # s22: an item's variance of 1.002 said 'more than the 1' was '1.00' ('.2f'), and at three significant digits it
+    # would be '1'; by hand, 1.43 ** 2 * .49 = 1.002001 and 1 + 4e-6
+    from cfa_tool.numbers import rounded_number
+
+    assert rounded_number(1.43 ** 2 * 0.49) == "1" and rounded_number(1.43 ** 2 * 0.49, apart_from=1) == "1.002"
+    assert rounded_number(1.000004, apart_from=1.0) == "1.000004"
+    assert rounded_number(4.41, apart_from=1.0) == "4.41"  # three digits already tell them apart
+    assert rounded_number(100004000.04, apart_from=1.0) == "100000000"

@@ -80,7 +80,13 @@ def test_the_groups_statistics_are_joined_over_their_shared_clusters_as_summed_b
     assert all(m.domains_gamma is None for m in ordinal_domains([m for _, m in groups]))
 
 
-REPLICATIONS = 200  # about 25 s of computing: two fits of a tiny ordinal model (4 items, 640 rows) per replication
+REPLICATIONS = 200  # about 14 s of computing: a fit of a tiny ordinal model (4 items, 640 rows) per replication
+#: the grades taken apart are fitted in every APART-th replication only (50 of 200): their check is of the mean of
+#: the standard errors, whose Monte Carlo error over 50 replications (their coefficient of variation, .16 in this
+#: design, over sqrt(50): 2.3%) is small beside that of the empirical SD over all 200 (5%), which it shares; the
+#: ratio moved from 1.54 (all 200) to 1.56 (every fourth) with these seeds, the bound is 1.4 (s22: 400 fits were
+#: 250, about 22 s of processor time 14)
+APART = 4
 
 
 def test_standard_errors_track_the_spread_of_estimates_under_cluster_sampling_with_domains():
@@ -90,7 +96,7 @@ def test_standard_errors_track_the_spread_of_estimates_under_cluster_sampling_wi
     (SD / sqrt(2 (R - 1)), normal-theory approximation), so the mean standard error should lie within 15% of the SD;
     the grades taken as independent samples (each grade's schools its own) leave out that the school effect moves
     both grades together, which cancels in their latent mean difference: its standard error then comes out far too
-    large (1.65 times the SD in this design).  The scaled test's rejections at .05 lie within the central 99.9% of
+    large (1.54 times the SD over these 200 replications, 1.56 over every fourth, measured s22).  The scaled test's rejections at .05 lie within the central 99.9% of
     Binomial(200, .05)."""
     model = "factor f: x1, x2, x3, x4\ninvariance scalar\n"
     wanted = ("loading(f, x2) [5]", "mean(f) [6]")  # held equal; the difference between the grades
@@ -105,13 +111,14 @@ def test_standard_errors_track_the_spread_of_estimates_under_cluster_sampling_wi
         estimates.append(np.asarray(result.theta)[at])
         shared_se.append(np.sqrt(np.diag(result.parameter_covariance)[at]))
         p_values.append(result.robust.p_value_scaled)
-        apart = cfa_tool.fit(model, data.assign(school=data["grade"] + data["school"]), **options)
-        assert not apart.design.shared_clusters
-        apart_se.append(np.sqrt(np.diag(apart.parameter_covariance)[at]))
+        if r % APART == 0:
+            apart = cfa_tool.fit(model, data.assign(school=data["grade"] + data["school"]), **options)
+            assert not apart.design.shared_clusters
+            apart_se.append(np.sqrt(np.diag(apart.parameter_covariance)[at]))
     spread = np.std(estimates, axis=0, ddof=1)
     ratio = np.mean(shared_se, axis=0) / spread
     assert np.all((ratio > 0.85) & (ratio < 1.15)), ratio
-    assert np.mean(apart_se, axis=0)[1] / spread[1] > 1.4
+    assert len(apart_se) == REPLICATIONS // APART and np.mean(apart_se, axis=0)[1] / spread[1] > 1.4
     rejected = int(np.sum(np.array(p_values) < 0.05))
     assert stats.binom.ppf(0.0005, REPLICATIONS, 0.05) <= rejected <= stats.binom.ppf(0.9995, REPLICATIONS, 0.05)
 

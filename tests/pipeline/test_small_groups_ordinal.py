@@ -48,3 +48,21 @@ def test_a_small_ordinal_group_is_named_with_the_count_of_its_rows_alone_and_its
                            "per free parameter of the group's model, not counting its 27 thresholds (")
     (alone,) = _said(cfa_tool.fit(THREE_FACTORS, data[data.school == "Grant-White"], ordinal="all"))
     assert alone.startswith("55 rows for the 12 free parameters of the model, fewer than 5 per parameter (4.5 per")
+
+
+def _checked(found) -> list[str]:
+    return [str(n) for n in found.notes if "per parameter" in str(n)]
+
+
+def test_check_of_ordinal_items_in_groups_says_what_their_fit_says(four_categories):
+    # the plan of s22, item 1: check skipped the rule for ordinal items, in groups and alone, where the fit judged it
+    data = four_categories.drop(four_categories.index[four_categories.school == "Grant-White"][55:])
+    (said,) = _said(cfa_tool.fit(THREE_FACTORS, data, group="school", ordinal="all"))
+    found = cfa_tool.check(THREE_FACTORS, data, group="school", ordinal="all")
+    # the same note: 55 rows for the 12 parameters counted by hand (module docstring), its 27 thresholds named
+    assert _checked(found) == [said] and "55 rows for 12 parameters" in said and "27 thresholds" in said
+    alone = data[data.school == "Grant-White"]
+    (said,) = _said(cfa_tool.fit(THREE_FACTORS, alone, ordinal="all"))
+    assert _checked(cfa_tool.check(THREE_FACTORS, alone, ordinal="all")) == [said]
+    assert said.startswith("55 rows for the 12 free parameters of the model")
+

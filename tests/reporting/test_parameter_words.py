@@ -137,7 +137,8 @@ def test_the_power_simulation_tables_name_parameters_in_words():
     report = montecarlo_report(result)
     assert [row[0] for row in report.tables[0].rows] == ["loading of y2 on f", "covariance of f and g", "variance of y3"]
     text = _plain(report_text(report, 100))
-    assert "took defaults: the loading of y7 on g" in text
+    # no population table to list them (a result read back): the caution names them
+    assert "They are the loading of y7 on g." in text
     assert not MACHINE.search(text) and "loading(" not in text and "covariance(" not in text
     assert result.to_dict()["parameters"][0]["label"] == "loading(f, y2)"  # the JSON keeps the key
     # knowing the model's items, an item's residual variance is told from a factor's variance (re-check 6: both
@@ -153,7 +154,8 @@ def test_the_power_simulation_tables_name_parameters_in_words():
     assert [row[0] for row in report.tables[0].rows] == ["residual variance of y3", "variance of factor f",
                                                          "covariance of factors f and g",
                                                          "residual covariance of y2 and y3"]
-    assert "took defaults: the residual variance of y3" in _plain(report_text(report, 100))
+    assert "1 population value not given in the model file is a standardized default" in _plain(
+        report_text(report, 100))  # named in the population table, in words
 
 
 def test_modification_and_bootstrap_tables_name_parameters_in_words(hs_data):
@@ -239,7 +241,7 @@ def test_the_power_simulation_tells_an_items_residual_variance_whose_name_holds_
                  for label in (*labels, reference_text("loading", ("f", item))))
     report = montecarlo_report(MonteCarloPower(200, 500, 500, 0.05, 1, rows, tuple(labels), population=population))
     assert [row[0] for row in report.tables[0].rows] == [f"residual variance of {item}", f"loading of {item} on f"]
-    assert f"took defaults: the residual variance of {item}" in _plain(report_text(report, 100))
+    assert f"residual variance of {item}" in _plain(report_text(report, 100))
 
 
 def test_the_data_columns_of_variables_write_names_with_commas_in_double_quotes(hs_data):

@@ -167,7 +167,6 @@ def test_several_designs_are_sorted_and_seeded_like_the_sample_sizes_of_one_grou
     (ONE_FACTOR, "north=100/200,south=100", "every group needs as many sizes"),
     (ONE_FACTOR, "north=100,south=many", "the size of group 'south' must be a whole number"),
     (ONE_FACTOR, "north=5,south=100", "the size 5 of group 'north' is too small"),
-    (ONE_FACTOR + "ordinal x1\n", "north=100,south=100", "planning with groups simulates continuous answers"),
 ])
 def test_bad_designs_are_one_line_errors(model, sizes, words, tmp_path, capsys):
     path = tmp_path / "plan.cfa"
@@ -175,6 +174,26 @@ def test_bad_designs_are_one_line_errors(model, sizes, words, tmp_path, capsys):
     assert main(["power-simulation", str(path), "--group-sizes", sizes, "--replications", "2"]) == 2
     err = capsys.readouterr().err.strip()
     assert words in err and "\n" not in err and "Traceback" not in err
+
+
+@pytest.mark.parametrize("statement, said", [
+    ("ordinal x1\n", "plan.cfa:{line}:9: the model declares 'x1' ordinal"),
+    ('answers "no" = 0, "yes" = 1 for x2, x3\n',
+     "plan.cfa:{line}:1: the 'answers' statement on line {line} records the answers of 2 items ('x2' first) in 2 "
+     "categories")])
+def test_answers_in_categories_are_refused_at_their_statement_saying_why_and_what_to_do(statement, said, tmp_path,
+                                                                                       capsys):
+    # the plan of s22, item 2: the refusal named no line and gave no way to the power of answers in categories
+    path = tmp_path / "plan.cfa"
+    path.write_text(ONE_FACTOR + statement)
+    assert main(["power-simulation", str(path), "--group-sizes", "north=100,south=100", "--replications", "2"]) == 2
+    err = capsys.readouterr().err
+    line = ONE_FACTOR.count("\n") + 1
+    assert f"cfa-tool: {path.parent / said.format(line=line)}" in err and "Traceback" not in err
+    assert "planning an invariance study (--group-sizes) simulates continuous answers" in err
+    assert "remove the statement from a copy of the model file" in err  # the plan of continuous answers
+    assert "plan the power of one group, which simulates and fits answers in categories" in err
+    assert err.splitlines()[1].strip() == statement.strip()  # the statement's line shown under the message
 
 
 @pytest.mark.parametrize("extra, words", [

@@ -65,3 +65,19 @@ def test_a_defaulted_residual_covariance_is_zero_and_its_power_is_read_as_false_
     assert "Where the population value is 0 (1 parameter), the power column is the share of false rejections" in flat
     row = next(line for line in out.splitlines() if line.strip().startswith("residual covariance of a and b"))
     assert len(row.split()) == 6 + 3  # the label, power, coverage and SE bias: no estimate bias beside a population of 0
+
+
+@pytest.mark.parametrize("loading, explained, residual", [
+    # the default factor variance .49 (module above): 1.43 ** 2 * .49 = 1.002001, residual 1 - 1.002001
+    ("1.43", "explain 1.002 of its variance, more than the 1", "would be -0.002;"),
+    # 14286 ** 2 * .49 = 100,004,000.04: three significant digits in plain digits (numbers.rounded_number)
+    ("14286", "explain 100000000 of its variance, more than the 1", "would be -100000000;")])
+def test_the_share_beyond_the_items_variance_is_told_from_it_in_plain_digits(loading, explained, residual, tmp_path,
+                                                                             capsys):
+    # the plan of s22, item 4: '.2f' wrote 1.002 as '1.00 of its variance, more than the 1' and its residual -0.00,
+    # and 1e8 as 100004000.04
+    model = tmp_path / "pop.cfa"
+    model.write_text(f"factor f: a, b, c, d\nstart loading(f, b) = {loading}\n")
+    code, out, err = run_cli(["simulate", model, "--n", "50", "--output", tmp_path / "s.csv"], capsys)
+    assert code in (2, 3) and out == ""
+    assert f"the factors of item 'b' {explained} its standardized default allows" in err and residual in err

@@ -23,11 +23,12 @@ def test_the_power_and_population_tables_name_each_pair_in_the_models_order():
     assert "covariance(vigour, dedication)" in labels and "covariance(dedication, vigour)" not in labels
     assert "covariance(v3, d1)" in labels
     text = _text(result)
-    # the line of defaults, the power table and the population table
-    assert text.count("covariance of factors vigour and dedication") == 3
+    # the power table and the population table (the defaults' caution counts them and points to that table, s22)
+    assert text.count("covariance of factors vigour and dedication") == 2
+    assert "population values not given in the model file are the standardized defaults" in text
     assert "dedication and vigour" not in text and "d1 and v3" not in text
     assert "residual covariance of v3 and d1" in text
-    assert "covariance(vigour, dedication)" in result.defaulted  # the line of defaults names it alike
+    assert "covariance(vigour, dedication)" in result.defaulted  # the JSON's defaults name it alike
 
 
 def test_the_power_curve_names_them_alike():
