@@ -7,7 +7,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from cfa_tool.numbers import count_text, user_number
+from cfa_tool.numbers import count_text, cut_list, user_number
 from cfa_tool.assessment.admissibility import ProblemKind, solution_first
 from cfa_tool.assessment.identification import JUST_IDENTIFIED
 from cfa_tool.assessment.fit_indices import TLI_NOT_CUT
@@ -801,7 +801,7 @@ def missing_table(result) -> ReportTable | None:
     def named(items: list[str]) -> str:
         if not items:
             return "(none: complete rows)"
-        return ", ".join(items[:6]) + (f" and {len(items) - 6} more" if len(items) > 6 else "")
+        return cut_list(items, 6)
 
     rows = [[named(p["not_answered"]), count_text(p["rows"])] for p in summary["patterns"][:8]]
     low = sorted(summary["coverage"].items(), key=lambda kv: kv[1])[:5]
@@ -1583,7 +1583,7 @@ def _labels_note(answers) -> str:
 
 
 def _listed(found: list[str], most: int = 8) -> str:
-    return ", ".join(found[:most]) + (f" and {len(found) - most} more" if len(found) > most else "")
+    return cut_list(found, most)
 
 
 def label_tables(result) -> list[ReportTable]:
