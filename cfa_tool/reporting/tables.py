@@ -322,8 +322,23 @@ def fit_rows(result) -> list[FitRow]:
         rows += [_row("Log-likelihood", num(f.log_likelihood), "", ("Log-likelihood", f.log_likelihood)),
                  _row("AIC / BIC / adjusted BIC", f"{num(f.aic)} / {num(f.bic)} / {num(f.sabic)}", "lower is better",
                       ("AIC", f.aic), ("BIC", f.bic), ("Adjusted BIC", f.sabic))]
-    rows.append(_row("Free parameters", str(f.n_free_parameters), "", ("Free parameters", f.n_free_parameters)))
+    rows.append(_row("Free parameters", str(f.n_free_parameters), thresholds_counted(result),
+                     ("Free parameters", f.n_free_parameters)))
     return rows
+
+
+def thresholds_counted(result) -> str:
+    """What an ordinal fit's free-parameter count says of its thresholds ('' without thresholds): in one group they
+    count in neither its parameters nor its degrees of freedom, which weigh the model's parameters against the
+    polychoric correlations ('fit' estimates them first, from each item's answers, Olsson 1979; 'compare' with the
+    model, counted alike); in groups, where they may be held equal, they are counted (new-user trial s22: 'Free
+    parameters 18' beside 45 thresholds, unsaid)."""
+    rows = [e for e in getattr(result, "estimates", ()) if e.kind == "threshold"]
+    if not rows:
+        return ""
+    if len(getattr(result, "groups", ()) or ()) > 1:
+        return "thresholds included"
+    return f"the {len(rows)} thresholds count in neither this number nor the df"
 
 
 def _with_interval(text: str, low, high) -> str:

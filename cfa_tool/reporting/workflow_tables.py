@@ -394,8 +394,10 @@ def comparison_report(comparison) -> Report:
     bad = any(r.converged and not r.admissible for r in comparison.results)
     value_columns = ["Model", *value_labels]
     dashes = not_computed_note(named)
+    thresholds = next((T.thresholds_counted(r) for r in comparison.results if T.thresholds_counted(r)), "")
+    fit_note = " ".join(x for x in (dashes, f"Free parameters: {thresholds}." if thresholds else "") if x) or None
     tables = [_table("model_fit", "Fit of each model", [("", "l")] + [(name, "r") for name in comparison.names], rows,
-                     dashes, flagged=(0,) if bad else (),
+                     fit_note, flagged=(0,) if bad else (),
                      values=(value_columns, [[name, *c[1]] for name, c in zip(comparison.names, cells)]))]
     by_name = dict(zip(comparison.names, comparison.results))
     pairs: dict[tuple[str, str], list] = {}
