@@ -811,6 +811,11 @@ def invariance_report(result) -> Report:
                    "group, and the search freed the rest of its equality where its score test pointed, the other "
                    "groups still holding it equal among themselves."
                    if any(f.alone for f in result.freed) else ""))
+        statements = result.partial_statements()
+        if statements:  # how to fit that model again: the model file's lines (a manuscript edits no model file)
+            note = Note((note, Command(f" To fit the partially invariant {statements[0].split()[-1]} model again "
+                                       f"(fit, scores), add to the model file: "
+                                       + "; ".join(f"'{s}'" for s in statements) + ".")))
         tables.append(_table("freed", "Parameters freed by the partial-invariance search", columns, rows, note,
                              values=([c for c, _ in columns], values)))
         notes.extend(_equal_tests_note(f) for f in result.freed if f.equal_tests)
