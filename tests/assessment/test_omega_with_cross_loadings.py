@@ -80,3 +80,18 @@ def test_the_demo_with_a_cross_loading_reports_no_omega_above_omega_total(ordina
         for r in fitted:
             assert sums[r.factor].omega == pytest.approx(r.omega, rel=1e-9)
             assert sums[r.factor].omega <= sums[r.factor].validity ** 2 + 1e-9
+
+
+def test_ordinal_sums_of_a_higher_order_model_correlate_with_their_factors_below_one():
+    # the sums' validity took the items' covariances with the factors as G Phi, which counts a first-order factor's
+    # share of the higher-order factor twice: 1.22 to 1.58 on these data.  Under the model the sum's squared linear
+    # correlation with its factor cannot exceed the share of its variance the factor accounts for (Green & Yang's
+    # omega, Var(E[X | f]) / Var(X): the correlation ratio bounds the squared linear correlation; Pearson 1905)
+    data = pd.read_csv(resource_dir("demo") / "rider_survey.csv")
+    model = ("factor punctuality: on_time, short_wait, accurate_info, easy_transfer\n"
+             "factor comfort: seat_available, clean, temperature, room_to_stand\n"
+             "factor courtesy: greeting, helpful, respectful, clear_answers\n"
+             "factor service: punctuality, comfort, courtesy\n")
+    for s in cfa_tool.scores(model, data, ordinal="all").quality[0].sums:
+        assert 0 < s.validity < 1
+        assert s.validity ** 2 <= s.omega + 1e-9, (s.factor, s.validity, s.omega)
