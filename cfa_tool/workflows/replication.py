@@ -354,7 +354,10 @@ def replicate_moments(spec: Spec, calibration: SampleMoments, validation: Sample
 
     def fit_options(moments: SampleMoments):
         missing = MissingData.FULL_INFORMATION if _has_gaps(moments) else MissingData.LISTWISE
-        return replace(make_options({**options, "missing": options.get("missing") or missing}), diagnostics=False)
+        # the reliability too, so that keys the loadings contradict are a problem of each sample's solution, first in
+        # every view as in fit (hostile s22: replicate alone was silent)
+        return replace(make_options({**options, "missing": options.get("missing") or missing}), diagnostics=False,
+                       reliability=True)
 
     with estimation_of(f"calibration sample {calibration.source}"):
         cal = fit_moments(spec, calibration, fit_options(calibration))
@@ -389,7 +392,7 @@ def replicate_ordinal(spec: Spec, calibration, validation, method: Weighting | s
     test of one solution fits, or a reason (str) why they could not be computed."""
     from cfa_tool.pipeline.ordinal import correlations_in_order, fit_ordinal
 
-    fit_options = replace(make_options(options), diagnostics=False)
+    fit_options = replace(make_options(options), diagnostics=False, reliability=True)  # keying problems, as above
     with estimation_of(f"calibration sample {calibration.source}"):
         cal = fit_ordinal(spec, calibration, fit_options, method)
     if not cal.converged:
