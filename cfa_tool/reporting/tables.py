@@ -1455,13 +1455,14 @@ def higher_order_cautions(result) -> tuple[str, ...]:
     return _two_factor_higher_order(result) + _just_identified_higher_order(result)
 
 
-def few_answers_warning(result) -> Note | None:
+def few_answers_warning(result, table: bool = True) -> Note | None:
     """A caution among an ordinal fit's first lines when some category of an item was given by few rows
     (data.answer_counts.AnswerCounts.sparse), naming them, with the table of answers per category where they are
-    marked; None when there are none.  The table itself stays with the data, where a methods reader looks for the
-    items' distributions; what it finds wrong comes first, as every problem does."""
+    marked (``table``: the report holds it, as fit's does; the other commands' reports of the same fit say it without
+    the table: hostile s22); None when there are none.  The table itself stays with the data, where a methods reader
+    looks for the items' distributions; what it finds wrong comes first, as every problem does."""
     found, key = [], None
-    for g in range(len(result.groups)):
+    for g in range(len(getattr(result, "groups", ()))):  # a fit read from its JSON (scores --from-fit) has no groups
         answers = fit_answer_counts(result, g)
         if answers is None:
             continue
@@ -1473,10 +1474,12 @@ def few_answers_warning(result) -> Note | None:
         found += cells
     if not found:
         return None
-    return Note((f"Categories of ordinal items given by few rows (fewer than 5, or 1% of the item's answers when that "
-                 f"is more: a rule of thumb of this project): {_listed(found)}; a threshold next to such a category "
-                 f"rests on those few answers and is unstable; check those answers first (marked '{FEW_ANSWERS_MARK}' "
-                 f"in ", TableReference(key), ")."))
+    said = (f"Categories of ordinal items given by few rows (fewer than 5, or 1% of the item's answers when that "
+            f"is more: a rule of thumb of this project): {_listed(found)}; a threshold next to such a category "
+            f"rests on those few answers and is unstable; check those answers first")
+    if not table:
+        return Note((said + ".",))
+    return Note((said + f" (marked '{FEW_ANSWERS_MARK}' in ", TableReference(key), ")."))
 
 
 def fit_answer_labels(result, items=None) -> dict[str, dict[float, str]]:
