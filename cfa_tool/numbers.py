@@ -10,10 +10,13 @@ from __future__ import annotations
 
 import math
 import re
+from collections.abc import Callable, Sequence
 from decimal import Decimal
+from typing import TypeVar
 
 _NUMBER = re.compile(r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?")
 _WHOLE = re.compile(r"[+-]?[0-9]+")
+T = TypeVar("T")
 
 
 def number(text: str, decimal_comma: bool = False) -> float | None:
@@ -99,3 +102,21 @@ def names_shown(total: int, most: int) -> int:
     trial s21: "'Prefer not to say' in vig3, ded2, exh1 and 1 more item" left exh4 unnamed in a methods paragraph);
     else ``most``.  The one rule of every list of names that cuts."""
     return total if total <= most + 1 else most
+
+
+def more_words(left: int, lead: str = " and ", noun: str | None = None, plural: str | None = None) -> str:
+    """The tail of a list that cuts: '' when nothing is left out, else ``lead`` and the count left ('and 4 more',
+    '; and 12 more items' with ``noun``).  Lists whose parts are notes rather than text count what they name with
+    :func:`names_shown` and end with this."""
+    if left <= 0:
+        return ""
+    return f"{lead}{count_text(left)} more" + (f" {noun if left == 1 else plural or noun + 's'}" if noun else "")
+
+
+def cut_list(items: Sequence[T], most: int, show: Callable[[T], str] = str, *, sep: str = ", ", lead: str = " and ",
+             noun: str | None = None, plural: str | None = None) -> str:
+    """The first of ``items`` shown by ``show`` and joined by ``sep``, then 'and N more' (:func:`more_words`) for the
+    rest: at most ``most`` named, every one when only one would be left over (:func:`names_shown`).  The one way a
+    message lists names, rows or values that may be many; ``show`` runs on the named ones only."""
+    shown = names_shown(len(items), most)
+    return sep.join(show(x) for x in items[:shown]) + more_words(len(items) - shown, lead, noun, plural)

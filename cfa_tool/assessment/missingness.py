@@ -20,6 +20,7 @@ import numpy as np
 
 from cfa_tool.note_parts import Command, Note
 
+from cfa_tool.numbers import cut_list
 from cfa_tool.numerics import distributions as dist
 
 if TYPE_CHECKING:
@@ -121,9 +122,9 @@ def sparse_answers_problem(values: np.ndarray, names: tuple[str, ...], failure: 
     complete = int(rows.all(axis=1).sum()) if len(rows) else 0
     pairs = never_together(values, names)
     if pairs:
-        shown = ", ".join(f"'{printable(a)}' and '{printable(b)}'" for a, b in pairs[:5])
-        more = f" (and {len(pairs) - 5} more pairs)" if len(pairs) > 5 else ""
-        which = f"both {shown}" if len(pairs) == 1 else f"both items of the pairs {shown}{more}"
+        shown = cut_list(pairs, 5, lambda pair: f"'{printable(pair[0])}' and '{printable(pair[1])}'", sep="; ",
+                         lead="; and ", noun="pair")
+        which = f"both {shown}" if len(pairs) == 1 else f"both items of the pairs {shown}"
         said = (f"No row answers {which}, so {'their covariance has' if len(pairs) == 1 else 'those covariances have'} "
                 f"no data: full-information ML cannot estimate the saturated model of these rows, and a fit of them "
                 f"stops.")

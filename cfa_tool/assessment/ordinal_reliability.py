@@ -12,7 +12,9 @@ so that
 
 where t_ic = (tau_ic - mu_i) / sigma_i are the thresholds standardized by the latent response's implied mean and
 standard deviation, rho_ij = Sigma_ij / (sigma_i sigma_j) its implied correlation (1 for i = j) and
-rho*_ij = G_if G_jf Phi_ff / (sigma_i sigma_j) the part of it due to f (Green & Yang 2009, eqs. 19-21; the second
+rho*_ij = C_if C_jf / (Phi_ff sigma_i sigma_j) the part of it due to f, with C_if = Cov(y*_i, f) (G_if Phi_ff for an
+item that measures f alone, Green & Yang 2009, eqs. 19-21; an item that also loads on another factor correlated with
+f adds its covariance with f through that one, as reliability.keyed_omega does for continuous items; the second
 line holds because two answers given f are independent, and P(y*_i > a, y*_j > b) - P(y*_i > a) P(y*_j > b) is the
 same with lower tails).  The coefficient is the keyed sum of the second line over the keyed sum of the first, both
 from the model (not from the sample's answers), so that it describes the fitted model's observed sum.
@@ -61,6 +63,13 @@ def observed_sum_variance(thresholds: Sequence[np.ndarray], steps: Sequence[np.n
     return _sum_variance(item, t, d, sigma / np.outer(sd, sd), whole=True)
 
 
+def due_to_factor(with_factor: np.ndarray, factor_variance: float) -> np.ndarray:
+    """The latent responses' covariances due to the factor f, Cov(E[y*_i | f], E[y*_j | f]) = C_if C_jf / Phi_ff,
+    from their covariances with f (``with_factor``: C_f = (L Phi)_f) and its variance (the module docstring)."""
+    c = np.asarray(with_factor, dtype=float)
+    return np.outer(c, c) / factor_variance
+
+
 def observed_sum_omega(thresholds: Sequence[np.ndarray], steps: Sequence[np.ndarray], mean: np.ndarray,
                        sigma: np.ndarray, common: np.ndarray, keys: np.ndarray) -> float:
     """Green & Yang's (2009) reliability of the keyed sum of ordinal answers (module docstring).
@@ -68,7 +77,7 @@ def observed_sum_omega(thresholds: Sequence[np.ndarray], steps: Sequence[np.ndar
     For the items of one factor: ``thresholds[i]`` item i's thresholds on its latent response's scale, ``steps[i]``
     the differences of its consecutive answer codes (one per threshold), ``mean`` and ``sigma`` the latent
     responses' implied means and covariance matrix, ``common`` the covariance due to the factor
-    (G_if G_jf Phi_ff) and ``keys`` +1 or -1 per item."""
+    (:func:`due_to_factor`) and ``keys`` +1 or -1 per item."""
     return observed_sum_reliability(thresholds, steps, mean, sigma, common, keys)[0]
 
 
@@ -110,7 +119,7 @@ def with_observed_sum_omega(factors: Sequence[FactorReliability], mats: ModelMat
     responses' implied means (0 when None, as in one group)."""
     sigma = mats.implied_covariance()
     phi = mats.latent_covariance()
-    G = mats.G
+    C = mats.L @ phi  # the latent responses' covariances with the factors
     mean = np.zeros(len(observed)) if mean is None else np.asarray(mean, float)
     out = []
     for r in factors:
@@ -119,9 +128,8 @@ def with_observed_sum_omega(factors: Sequence[FactorReliability], mats: ModelMat
             continue
         f = latent.index(r.factor)
         idx = [observed.index(x) for x in r.items]
-        loadings = G[idx, f]
         value = observed_sum_omega([thresholds[x] for x in r.items], [np.diff(codes[x]) for x in r.items], mean[idx],
-                                   sigma[np.ix_(idx, idx)], np.outer(loadings, loadings) * phi[f, f],
+                                   sigma[np.ix_(idx, idx)], due_to_factor(C[idx, f], phi[f, f]),
                                    np.array([-1.0 if x in r.reversed else 1.0 for x in r.items]))
         out.append(replace(r, observed_sum_omega=value))
     return tuple(out)

@@ -12,9 +12,14 @@ For a factor f and the items it reaches (directly, or through the factors below 
 the total effects of factors on items, Phi the factor covariance matrix, Sigma the implied item
 covariance, Theta the residual covariances and k the keys:
 
-* omega = (sum_i k_i G_if)^2 Phi_ff / k'Sigma_I k: the share of the keyed sum's variance due to f
-  (McDonald 1999); for a higher-order or general factor this is omega hierarchical (Zinbarg,
-  Revelle, Yovel & Li 2005);
+* omega = (sum_i k_i C_if)^2 / (Phi_ff k'Sigma_I k), with C = L Phi the items' covariances with the factors: the
+  share of the keyed sum's variance that f accounts for, Var(E[X | f]) / Var(X), the squared correlation of the sum
+  with f.  For items that measure f alone (through f and the factors below it) C_if = G_if Phi_ff, which gives
+  McDonald's (1999) (sum_i k_i G_if)^2 Phi_ff / k'Sigma_I k; for a higher-order or general factor this is omega
+  hierarchical (Zinbarg, Revelle, Yovel & Li 2005).  An item that also loads on another factor correlated with f
+  brings its covariance with f through that factor, so that omega never exceeds omega total (hostile trial s22:
+  an item reversed in f's sum for a cross-loading of -.07 gave omega .86 beside omega total .66, the sum's
+  covariance with the other factor counted as f's);
 * omega total = 1 - k'Theta_I k / k'Sigma_I k: the share due to all factors;
 * in a bifactor model (assessment/method_factors.bifactor_parts) the same two formulas give, for the general factor,
   omega hierarchical and omega total of the keyed sum of all its items, and for a specific factor, over its own
@@ -211,11 +216,13 @@ def item_keys(G: np.ndarray, member: np.ndarray, observed: tuple[str, ...],
     return K, direction, (vote == 0) & member.any(axis=0)
 
 
-def keyed_omega(K: np.ndarray, G: np.ndarray, factor_variances: np.ndarray, sum_variances: np.ndarray) -> np.ndarray:
-    """The one formula of a keyed sum's omega (McDonald 1999), per factor (column): (sum_i k_i G_if)^2 Phi_ff /
-    k'Sigma k, for keys K (p, m), total loadings G (p, m), the factors' variances Phi_ff (m) and the keyed sums'
-    variances k'Sigma k (m), which the callers need for more than omega."""
-    return np.einsum("ij,ij->j", K, G) ** 2 * factor_variances / sum_variances
+def keyed_omega(K: np.ndarray, C: np.ndarray, factor_variances: np.ndarray, sum_variances: np.ndarray) -> np.ndarray:
+    """The one formula of a keyed sum's omega, per factor (column): (sum_i k_i C_if)^2 / (Phi_ff k'Sigma k), the share
+    of the sum's variance its factor accounts for (McDonald 1999's (sum_i k_i G_if)^2 Phi_ff / k'Sigma k where the
+    items measure the factor alone; module docstring), for keys K (p, m), the items' covariances with the factors
+    C = L Phi (p, m), the factors' variances Phi_ff (m) and the keyed sums' variances k'Sigma k (m), which the callers
+    need for more than omega."""
+    return np.einsum("ij,ij->j", K, C) ** 2 / (factor_variances * sum_variances)
 
 
 def cronbach_alpha(S: np.ndarray, keys: np.ndarray | None = None) -> float:
@@ -323,7 +330,7 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     # AVE), NaN comparisons for them (and a negative AVE: no Fornell-Larcker comparison holds), a factor of one item
     with np.errstate(divide="ignore", invalid="ignore"):
         totals = np.einsum("ij,ij->j", K, sigma @ K)
-        omega = keyed_omega(K, G, phi.diagonal(), totals)
+        omega = keyed_omega(K, L @ phi, phi.diagonal(), totals)
         omega_total = 1.0 - np.einsum("ij,ij->j", K, theta @ K) / totals
         sd_lat = np.sqrt(np.maximum(phi.diagonal(), 1e-300))
         sd_obs = np.sqrt(np.maximum(sigma.diagonal(), 1e-300))

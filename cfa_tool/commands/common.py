@@ -9,6 +9,7 @@ from dataclasses import replace
 from pathlib import Path
 
 from cfa_tool.errors import OptionError, printable
+from cfa_tool.numbers import cut_list
 
 
 def check_files(args: argparse.Namespace, outputs: list[tuple[str, str | None]], inputs: list[str | None],
@@ -137,7 +138,7 @@ def write_tables(args: argparse.Namespace, files: dict[str, str], inputs: list[s
     earlier = write_table_folder("--tables", args.tables, files, [i for i in inputs if i])
     said = [f"Tables written to {args.tables}/ as CSV and LaTeX ({TABLE_CONTENTS} lists them)"]
     if earlier:
-        shown_names = ", ".join(earlier[:6]) + (f" and {len(earlier) - 6} more" if len(earlier) > 6 else "")
+        shown_names = cut_list(earlier, 6)
         said.append(f"Caution: {args.tables}/ also holds {len(earlier)} files an earlier run wrote and this one did not "
                     f"({shown_names}); they belong to another report: delete them, or write into an empty folder, so "
                     f"that tables of two analyses are not mixed")

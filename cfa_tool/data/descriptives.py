@@ -9,6 +9,7 @@ import numpy as np
 
 from cfa_tool.language.names import written_name
 from cfa_tool.note_parts import Command, Note
+from cfa_tool.numbers import cut_list
 from cfa_tool.options import option_in_both
 
 
@@ -147,7 +148,7 @@ def few_category_note(few: tuple[str, ...], names: tuple[str, ...]) -> Note | No
     when there are none)."""
     if not few:
         return None
-    listed = ", ".join(few[:8]) + (f" and {len(few) - 8} more" if len(few) > 8 else "")
+    listed = cut_list(few, 8)
     which = "all" if len(few) == len(names) else ",".join(written_name(x) for x in few)
     if which != "all" and which != ",".join(few):  # names written in double quotes: the list in single quotes
         which = f"'{which}'"

@@ -14,7 +14,7 @@ from dataclasses import dataclass
 from collections.abc import Iterable
 from typing import TYPE_CHECKING
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import cut_list, more_words, names_shown, user_number
 from cfa_tool.errors import printable
 from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
@@ -240,10 +240,9 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
     coded = code_order(frame, column)
     if coded:
         pairs = list(coded.items())
-        listed = ", ".join(f"{printable(code)} as '{printable(label)}'" for code, label in pairs[:shown])
+        listed = cut_list(pairs, shown, lambda pair: f"{printable(pair[0])} as '{printable(pair[1])}'")
         notes.append(f"the {part} column '{printable(column)}' holds codes with value labels in the data file; its "
-                     f"{units} are named by those labels ({listed}"
-                     + (f" and {len(pairs) - shown} more" if len(pairs) > shown else "") + ")")
+                     f"{units} are named by those labels ({listed})")
         for label, codes in shared_labels(coded):
             said = ", ".join(printable(c) for c in codes[:-1]) + f" and {printable(codes[-1])}"
             notes.append(f"in the {part} column '{printable(column)}', codes {said} carry the same value label "
@@ -290,13 +289,13 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
                      f"a copy of the file")
     said = no_answer_labels(values)
     if said:
-        named = [f"'{printable(label)}' ({n} row{'s' if n != 1 else ''})" for label, n in said[:shown]]
-        listed = named[0] if len(named) == 1 else f"{', '.join(named[:-1])} and {named[-1]}"
-        more = f" and {len(said) - shown} more" if len(said) > shown else ""
-        listed, more = (f"{', '.join(named)}", more) if more else (listed, "")
+        few = names_shown(len(said), shown)
+        named = [f"'{printable(label)}' ({n} row{'s' if n != 1 else ''})" for label, n in said[:few]]
+        listed = (", ".join(named) + more_words(len(said) - few) if few < len(said) else
+                  named[0] if len(named) == 1 else f"{', '.join(named[:-1])} and {named[-1]}")
         first = printable(said[0][0]).replace("'", "")
         filter_text = f"{printable(column)} != '{first}'"
-        notes.append(f"in the {part} column '{printable(column)}', {listed}{more} read{'s' if len(said) == 1 else ''} "
+        notes.append(f"in the {part} column '{printable(column)}', {listed} read{'s' if len(said) == 1 else ''} "
                      f"like no answer, yet {'was' if len(said) == 1 else 'were'} kept as "
                      f"{f'a {unit}' if len(said) == 1 else units} of {'its' if len(said) == 1 else 'their'} own (words that say no "
                      f"answer are read as missing in item columns only); if such rows have no {unit}, leave them out "
@@ -364,9 +363,8 @@ def listed_labels(merged: list[tuple[str, list]], shown: int = 5) -> str:
             return f"'{spelled_out(str(text[0]))}' ({said})"
         return f"'{spelled_out(str(text))}'"
 
-    listed = "; ".join(f"{' and '.join(written(t) for t in texts)} as '{printable(label)}'"
-                       for label, texts in merged[:shown])
-    return listed + (f"; and {len(merged) - shown} more" if len(merged) > shown else "")
+    return cut_list(merged, shown, lambda m: f"{' and '.join(written(t) for t in m[1])} as '{printable(m[0])}'",
+                    sep="; ", lead="; and ")
 
 
 def labelled_codes(frame: pd.DataFrame, value_labels: dict, items=()) -> list[str]:
@@ -461,8 +459,7 @@ def refuse_moved_labels(fitted: dict | None, value_labels: dict, items, source: 
     label, code, their_code = pairs[0]
     recode = ", ".join(f"{user_number(c)} as {user_number(t)}" for _, c, t in pairs)
     others = [printable(i) for i, _ in moved[1:]]
-    more = (f"; {len(others)} more item{'s' if len(others) != 1 else ''} ({', '.join(others[:5])}"
-            f"{' and more' if len(others) > 5 else ''}) {'has' if len(others) == 1 else 'have'} labels on other "
+    more = (f"; {len(others)} more item{'s' if len(others) != 1 else ''} ({cut_list(others, 5)}) {'has' if len(others) == 1 else 'have'} labels on other "
             f"codes too") if others else ""
     raise DataError(f"{base_name(source)}: the value label '{printable(label)}' of {printable(item)} is code {user_number(code)} "
                     f"here but code {user_number(their_code)} in the fit's data ({base_name(fit_source)}), so its answers would "
@@ -506,9 +503,7 @@ def helper_codes_notes(frame: "pd.DataFrame", value_labels: dict, helpers, sourc
         named = [(code, labels[code]) for code in present if code in labels]
         if not named:
             continue
-        shown = ", ".join(f"{label_text(code)} '{printable(str(label))}'" for code, label in named[:HELPER_CODES_SHOWN])
-        more = len(named) - HELPER_CODES_SHOWN
-        shown += f" and {more} more" if more > 0 else ""
+        shown = cut_list(named, HELPER_CODES_SHOWN, lambda n: f"{label_text(n[0])} '{printable(str(n[1]))}'")
         what = ("with two values the number carries the whole distinction, as a 0/1 column would" if len(present) == 2
                 else "its codes stand for an order of its categories: categories without an order (departments, say) "
                      "need one 0/1 column per category but one instead")

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import more_words, names_shown, user_number
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import DataError, ModelError, OptionError, character_names, printable
 from cfa_tool.note_parts import Command, Note
@@ -225,12 +225,12 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
                                                       for r in where})
     for keying, stray in found.items():
         shown = []
-        for name, v, where, label in stray[:6]:
+        for name, v, where, label in stray[:names_shown(len(stray), 6)]:
             cells = (naming.one_row(where[0]) if len(where) == 1 else
                      f"{len(where)} cells: {naming.several} {', '.join(str(r) for r in where[:3])}"
                      + (" and more" if len(where) > 3 else ""))
             shown.append(f"'{name}' {user_number(v)}" + (f" '{label}'" if label else "") + f" ({cells})")
-        more = f" and {len(stray) - 6} more" if len(stray) > 6 else ""
+        more = more_words(len(stray) - len(shown))
         codes = ",".join(f"{user_number(c)}" for c in sorted({v for _, v, _, _ in stray}))
         wider = not any(label or code_like(v) for _, v, _, label in stray)  # answers, perhaps, of a wider scale
         strays = {name for name, *_ in stray}

@@ -21,7 +21,7 @@ import pandas as pd
 from cfa_tool.data.kept_rows import RowNaming, row_naming, rows_listed
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import clipped
-from cfa_tool.numbers import number
+from cfa_tool.numbers import cut_list, number
 
 #: the texts a note shows of its notes lines, at most
 SHOWN_LINES = 3
@@ -91,10 +91,9 @@ def notes_note(where: str, rows: Sequence[int], lines: Sequence[Sequence[object]
     cells a separator split it into joined by '; ')."""
     one = len(rows) == 1
     texts = ["; ".join(str(c).strip() for c in cells if not _empty(c)) for cells in lines]
-    shown = ", ".join(f"'{clipped(t, 70)}'" for t in texts[:SHOWN_LINES])
-    more = f" and {len(texts) - SHOWN_LINES} more" if len(texts) > SHOWN_LINES else ""
+    shown = cut_list(texts, SHOWN_LINES, lambda t: f"'{clipped(t, 70)}'")
     return (f"{where}: {rows_listed(rows, naming=naming)} under the data {'holds' if one else 'hold'} only text "
-            f"({shown}{more}), {'a note' if one else 'notes'} rather than a respondent's answers, so "
+            f"({shown}), {'a note' if one else 'notes'} rather than a respondent's answers, so "
             f"{'it was' if one else 'they were'} not read as {'a row' if one else 'rows'} of data")
 
 

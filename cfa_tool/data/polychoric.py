@@ -35,7 +35,7 @@ import pandas as pd
 from scipy import optimize
 from scipy.special import ndtr  # the normal cdf over arrays in inner loops (numerics.distributions' rule)
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import counted, cut_list, user_number
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.plain import journal_decimal
 
@@ -569,8 +569,7 @@ def category_count_refusal(source: str, where: str, name: str, levels) -> str | 
 
 def _rare_listed(rare: list[tuple[str, float, int]]) -> str:
     """The rare categories of the ordinal items, by item ('clean' 4 (1 row))."""
-    shown = [f"'{printable(name)}' {user_number(v)} ({c} row{'' if c == 1 else 's'})" for name, v, c in rare[:6]]
-    return ", ".join(shown) + (f" and {len(rare) - 6} more" if len(rare) > 6 else "")
+    return cut_list(rare, 6, lambda r: f"'{printable(r[0])}' {user_number(r[1])} ({counted(r[2], 'row')})")
 
 
 NEAR_DUPLICATE = 0.995  # a correlation this close to 1 in size means two items answer alike (the search stops at .999)

@@ -19,7 +19,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
     from cfa_tool.assessment.admissibility import Problem
     from cfa_tool.data.halves import RandomHalf
 
-from cfa_tool.numbers import count_text, counted, rounded_number, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, rounded_number, user_number
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
@@ -745,10 +745,8 @@ def group_case_problems(frame: pd.DataFrame, group: str, part: str = "group",
     found = case_variants(labels)
     if not found:
         return ()
-    listed = "; ".join(" and ".join(f"'{printable(label)}' ({n} row{'s' if n != 1 else ''})" for label, n in variants)
-                       for variants in found[:CASE_VARIANTS_SHOWN])
-    more = len(found) - CASE_VARIANTS_SHOWN
-    listed += f"; and {more} more such set{'s' if more != 1 else ''}" if more > 0 else ""
+    listed = cut_list(found, CASE_VARIANTS_SHOWN, lambda variants: " and ".join(
+        f"'{printable(label)}' ({counted(n, 'row')})" for label, n in variants), sep="; ", lead="; and ", noun="such set")
     kind = ProblemKind.GROUP_LABELS_BY_CASE if part == "group" else ProblemKind.DESIGN_LABELS_BY_CASE
     return (Problem(kind, (), float(len(found)),
                     f"In the {part} column '{printable(group)}', labels that differ only in upper and lower case are "
@@ -931,9 +929,9 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
         return row_of(frame, r) + (Note((RowId(f" ({printable(ids[r])})"),)) if ids.get(r) is not None else "")
 
     n = len(found)
-    pairs = joined([row(c) + " repeats " + row(o) for c, o in list(zip(found.copies, found.originals))[:COPIED_ROWS_SHOWN]],
-                   "; ")
-    more = f"; and {n - COPIED_ROWS_SHOWN} more" if n > COPIED_ROWS_SHOWN else ""
+    few = names_shown(n, COPIED_ROWS_SHOWN)
+    pairs = joined([row(c) + " repeats " + row(o) for c, o in list(zip(found.copies, found.originals))[:few]], "; ")
+    more = more_words(n - few, "; and ")
     numbering = f" but the row-number column '{printable(found.numbering)}'" if found.numbering else ""
     # a row filter can leave the copies out only by a column in which they differ from their originals: a row-number
     # column, or row names (``ids`` not read from a column of the file, which the copies repeat); rows identical in
@@ -987,10 +985,10 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None) -
     naming, lines = row_naming(frame), text_lines(frame)
     by_column = id_column is not None and (id_column != ROW_NAMES_COLUMN or loaded.row_names is None)
     holder = f"The id column '{printable(id_column)}'" if by_column else f"The row names of {loaded.source}"
+    few = names_shown(len(found), REPEATED_IDS_SHOWN)
     shown = joined([Note((RowId(f"'{clipped(value, 40)}' in "),)) + rows_listed(rows, 4, naming=naming, lines=lines)
-                    for value, rows in found[:REPEATED_IDS_SHOWN]], "; ")
-    more = (f"; and {len(found) - REPEATED_IDS_SHOWN} more id{'s' if len(found) - REPEATED_IDS_SHOWN != 1 else ''}"
-            if len(found) > REPEATED_IDS_SHOWN else "")
+                    for value, rows in found[:few]], "; ")
+    more = more_words(len(found) - few, "; and ", "id")
     rows = sum(len(r) for _, r in found)
     what, gives = ("ids", "gives") if by_column else ("names", "give")
     return (Problem(ProblemKind.REPEATED_IDS, (), float(len(found)),
@@ -1087,10 +1085,9 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
             if not answered:
                 return Note((number, RowId(f" ({printable(ids[r])})")))
             return Note((f"{number} (", RowId(f"{printable(ids[r])}; "), f"{answered})"))
-        shown = [one_row(k) for k in which[:SAME_ANSWER_ROWS_SHOWN]]
-        more = len(which) - len(shown)
-        return joined([f"{row_naming(frame).of(len(which))} ", joined(shown, ", "),
-                       f" and {more} more" if more else ""], "")
+        shown = [one_row(k) for k in which[:names_shown(len(which), SAME_ANSWER_ROWS_SHOWN)]]
+        return joined([f"{row_naming(frame).of(len(which))} ", joined(shown, ", "), more_words(len(which) - len(shown))],
+                      "")
 
     def gave(which: list[int]) -> str:
         answers = sorted({found.answers[k] for k in which})
@@ -1217,8 +1214,7 @@ def few_answers_problems(names: tuple[str, ...], coverage: dict, n_obs: int | No
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     n = n_obs
-    listed = ", ".join(f"'{printable(x)}' ({round(share * n)} of {n} rows)" for x, share in list(few.items())[:5]) + (
-        f" and {len(few) - 5} more" if len(few) > 5 else "")
+    listed = cut_list(list(few.items()), 5, lambda f: f"'{printable(f[0])}' ({round(f[1] * n)} of {n} rows)")
     one = len(few) == 1
     return (Problem(ProblemKind.FEW_ANSWERS, (), min(few.values()),
                     f"Few rows answer {'the item' if one else 'the items'} {listed}: {'its' if one else 'their'} "
@@ -1263,8 +1259,8 @@ def _few_together_problems(names: tuple[str, ...], loaded: LoadedData, group: st
     which = row_numbers(frame)[rows & answered[:, i] & answered[:, j]]
     first = f"'{printable(a)}' and '{printable(b)}' ({both} of {n} rows" + (
         f": {rows_listed(which, naming=row_naming(frame))})" if both else ")")
-    others = "; ".join(f"'{printable(x)}' and '{printable(y)}' ({k} of {n} rows)" for x, y, k in found[1:5]) + (
-        f"; and {len(found) - 5} more" if len(found) > 5 else "")
+    others = cut_list(found[1:], 4, lambda f: f"'{printable(f[0])}' and '{printable(f[1])}' ({f[2]} of {n} rows)",
+                      sep="; ", lead="; and ")
     one = len(found) == 1
     whose = "this group's rows" if label is not None else "the rows"
     return (Problem(
@@ -1311,8 +1307,7 @@ def _few_answers_in_groups(names: tuple[str, ...], loaded: LoadedData, group: st
             continue
         few_items[label] = tuple(x for x, _ in few)
         one = len(few) == 1
-        listed = ", ".join(f"'{printable(x)}' ({c} of {n} rows)" for x, c in few[:5]) + (
-            f" and {len(few) - 5} more" if len(few) > 5 else "")
+        listed = cut_list(few, 5, lambda f: f"'{printable(f[0])}' ({f[1]} of {n} rows)")
         found.append(Problem(  # the views name the group first ('Group south: '), and the JSON its 'group'
             ProblemKind.FEW_ANSWERS, (), min(c / n for _, c in few),
             f"Few of this group's rows answer {'the item' if one else 'the items'} {listed}: the group's "
@@ -1345,8 +1340,8 @@ def _nearly_constant_problems(names: tuple[str, ...], loaded: LoadedData | None,
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     one = len(found) == 1
-    listed = "; ".join(f"'{printable(c.name)}' is {user_number(c.common)} in all but {c.others} of the {c.answered} rows "
-                       f"answering it" for c in found[:5]) + (f"; and {len(found) - 5} more" if len(found) > 5 else "")
+    listed = cut_list(found, 5, lambda c: f"'{printable(c.name)}' is {user_number(c.common)} in all but {c.others} of "
+                      f"the {c.answered} rows answering it", sep="; ", lead="; and ")
     return (Problem(ProblemKind.NEARLY_CONSTANT, (), float(min(c.others for c in found)),
                     f"Nearly constant {'item' if one else 'items'}: {listed}. {'Its' if one else 'Their'} variance, "
                     f"and the size and sign of {'its' if one else 'their'} loading, rest on those few rows alone, and "
@@ -1411,7 +1406,7 @@ def odd_values_named(loaded: LoadedData):
         # is bad input, the likelier cause of the failure: a data error (exit 2), that row named first
         row = next((o for o in loaded.odd_values if o.kind is OddKind.FAR_BEYOND and len(o.columns) > 1), None)
         first = row or loaded.odd_values[0]
-        more = f" (and {len(loaded.odd_values) - 1} more such findings)" if len(loaded.odd_values) > 1 else ""
+        more = f" ({more_words(n, 'and ', 'such finding')})" if (n := len(loaded.odd_values) - 1) else ""
         raise (DataError if row is not None else EstimationError)(
             f"{first.caution(loaded.source)}{more} What to try first: {first.advice()} Then: {exc}") from None
 
@@ -1917,7 +1912,7 @@ def helper_not_numbers(column: pd.Series, name: str, source: str, frame: pd.Data
     value = column.iloc[position]
     shown = ("TRUE" if value else "FALSE") if isinstance(value, (bool, np.bool_)) else clipped(str(value), 40)
     more = int(odd.sum()) - 1
-    cells = f", and {more} more such cell{'s' if more != 1 else ''}" if more else ""
+    cells = more_words(more, ", and ", "such cell")
     where = cell_words(frame, column.name, int(row_numbers(frame)[position]))
     advice = ("code them as 0 and 1" if what.startswith("TRUE") else
               "give a number such as the days since the first date, in a copy of the file" if what.startswith("dates")

@@ -653,7 +653,8 @@ def warnings(result) -> list[Text]:
         # holds its warnings as text, with the option in it)
         option = f" ({Remedy.COMPLETE_ROWS.option})"
         fitted = [ABOUT_THE_FIT + said(w, WORDS).replace(option, "") for w in fitted]
-    return list(result.warnings) + _guessed_scales(result) + fitted
+    rare = T.few_answers_warning(result.fit, table=False)  # the fit's sparse categories, as fit says them (hostile s22)
+    return list(result.warnings) + _guessed_scales(result) + fitted + ([] if rare is None else [rare])
 
 
 def _guessed_scales(result) -> list[Text]:

@@ -7,7 +7,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from cfa_tool.numbers import count_text, user_number
+from cfa_tool.numbers import count_text, cut_list, user_number
 from cfa_tool.assessment.admissibility import ProblemKind, solution_first
 from cfa_tool.assessment.identification import JUST_IDENTIFIED
 from cfa_tool.assessment.fit_indices import TLI_NOT_CUT
@@ -322,8 +322,23 @@ def fit_rows(result) -> list[FitRow]:
         rows += [_row("Log-likelihood", num(f.log_likelihood), "", ("Log-likelihood", f.log_likelihood)),
                  _row("AIC / BIC / adjusted BIC", f"{num(f.aic)} / {num(f.bic)} / {num(f.sabic)}", "lower is better",
                       ("AIC", f.aic), ("BIC", f.bic), ("Adjusted BIC", f.sabic))]
-    rows.append(_row("Free parameters", str(f.n_free_parameters), "", ("Free parameters", f.n_free_parameters)))
+    rows.append(_row("Free parameters", str(f.n_free_parameters), thresholds_counted(result),
+                     ("Free parameters", f.n_free_parameters)))
     return rows
+
+
+def thresholds_counted(result) -> str:
+    """What an ordinal fit's free-parameter count says of its thresholds ('' without thresholds): in one group they
+    count in neither its parameters nor its degrees of freedom, which weigh the model's parameters against the
+    polychoric correlations ('fit' estimates them first, from each item's answers, Olsson 1979; 'compare' with the
+    model, counted alike); in groups, where they may be held equal, they are counted (new-user trial s22: 'Free
+    parameters 18' beside 45 thresholds, unsaid)."""
+    rows = [e for e in getattr(result, "estimates", ()) if e.kind == "threshold"]
+    if not rows:
+        return ""
+    if len(getattr(result, "groups", ()) or ()) > 1:
+        return "thresholds included"
+    return f"the {len(rows)} thresholds count in neither this number nor the df"
 
 
 def _with_interval(text: str, low, high) -> str:
@@ -801,7 +816,7 @@ def missing_table(result) -> ReportTable | None:
     def named(items: list[str]) -> str:
         if not items:
             return "(none: complete rows)"
-        return ", ".join(items[:6]) + (f" and {len(items) - 6} more" if len(items) > 6 else "")
+        return cut_list(items, 6)
 
     rows = [[named(p["not_answered"]), count_text(p["rows"])] for p in summary["patterns"][:8]]
     low = sorted(summary["coverage"].items(), key=lambda kv: kv[1])[:5]
@@ -1440,13 +1455,14 @@ def higher_order_cautions(result) -> tuple[str, ...]:
     return _two_factor_higher_order(result) + _just_identified_higher_order(result)
 
 
-def few_answers_warning(result) -> Note | None:
+def few_answers_warning(result, table: bool = True) -> Note | None:
     """A caution among an ordinal fit's first lines when some category of an item was given by few rows
     (data.answer_counts.AnswerCounts.sparse), naming them, with the table of answers per category where they are
-    marked; None when there are none.  The table itself stays with the data, where a methods reader looks for the
-    items' distributions; what it finds wrong comes first, as every problem does."""
+    marked (``table``: the report holds it, as fit's does; the other commands' reports of the same fit say it without
+    the table: hostile s22); None when there are none.  The table itself stays with the data, where a methods reader
+    looks for the items' distributions; what it finds wrong comes first, as every problem does."""
     found, key = [], None
-    for g in range(len(result.groups)):
+    for g in range(len(getattr(result, "groups", ()))):  # a fit read from its JSON (scores --from-fit) has no groups
         answers = fit_answer_counts(result, g)
         if answers is None:
             continue
@@ -1458,10 +1474,12 @@ def few_answers_warning(result) -> Note | None:
         found += cells
     if not found:
         return None
-    return Note((f"Categories of ordinal items given by few rows (fewer than 5, or 1% of the item's answers when that "
-                 f"is more: a rule of thumb of this project): {_listed(found)}; a threshold next to such a category "
-                 f"rests on those few answers and is unstable; check those answers first (marked '{FEW_ANSWERS_MARK}' "
-                 f"in ", TableReference(key), ")."))
+    said = (f"Categories of ordinal items given by few rows (fewer than 5, or 1% of the item's answers when that "
+            f"is more: a rule of thumb of this project): {_listed(found)}; a threshold next to such a category "
+            f"rests on those few answers and is unstable; check those answers first")
+    if not table:
+        return Note((said + ".",))
+    return Note((said + f" (marked '{FEW_ANSWERS_MARK}' in ", TableReference(key), ")."))
 
 
 def fit_answer_labels(result, items=None) -> dict[str, dict[float, str]]:
@@ -1583,7 +1601,7 @@ def _labels_note(answers) -> str:
 
 
 def _listed(found: list[str], most: int = 8) -> str:
-    return ", ".join(found[:most]) + (f" and {len(found) - most} more" if len(found) > most else "")
+    return cut_list(found, most)
 
 
 def label_tables(result) -> list[ReportTable]:

@@ -394,8 +394,10 @@ def comparison_report(comparison) -> Report:
     bad = any(r.converged and not r.admissible for r in comparison.results)
     value_columns = ["Model", *value_labels]
     dashes = not_computed_note(named)
+    thresholds = next((T.thresholds_counted(r) for r in comparison.results if T.thresholds_counted(r)), "")
+    fit_note = " ".join(x for x in (dashes, f"Free parameters: {thresholds}." if thresholds else "") if x) or None
     tables = [_table("model_fit", "Fit of each model", [("", "l")] + [(name, "r") for name in comparison.names], rows,
-                     dashes, flagged=(0,) if bad else (),
+                     fit_note, flagged=(0,) if bad else (),
                      values=(value_columns, [[name, *c[1]] for name, c in zip(comparison.names, cells)]))]
     by_name = dict(zip(comparison.names, comparison.results))
     pairs: dict[tuple[str, str], list] = {}
@@ -809,6 +811,11 @@ def invariance_report(result) -> Report:
                    "group, and the search freed the rest of its equality where its score test pointed, the other "
                    "groups still holding it equal among themselves."
                    if any(f.alone for f in result.freed) else ""))
+        statements = result.partial_statements()
+        if statements:  # how to fit that model again: the model file's lines (a manuscript edits no model file)
+            note = Note((note, Command(f" To fit the partially invariant {statements[0].split()[-1]} model again "
+                                       f"(fit, scores), add to the model file: "
+                                       + "; ".join(f"'{s}'" for s in statements) + ".")))
         tables.append(_table("freed", "Parameters freed by the partial-invariance search", columns, rows, note,
                              values=([c for c, _ in columns], values)))
         notes.extend(_equal_tests_note(f) for f in result.freed if f.equal_tests)
@@ -960,8 +967,10 @@ def replication_report(replications) -> Report:
     split = tuple(dict.fromkeys(_split_sentence(rep.split) for rep in reps if rep.split is not None))
     read = tuple(dict.fromkeys([c for rep in reps for c in T.higher_order_cautions(rep.calibration_result)]
                                + [n for rep in reps for n in getattr(rep, "notes", ())]))  # as fit says them
+    rare = tuple(dict.fromkeys(w for rep in reps for r in (rep.calibration_result, rep.loose)
+                               if (w := T.few_answers_warning(r, table=False)) is not None))  # each half's answers
     return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), split, tuple(tables), tuple(notes),
-                  (GUIDE_NOTE, HIGH_STAKES_NOTE), replication_paragraph(replications), warnings=read)
+                  (GUIDE_NOTE, HIGH_STAKES_NOTE), replication_paragraph(replications), warnings=rare + read)
 
 
 def _reversed_loading_lines(rep) -> list[str]:
@@ -1145,10 +1154,36 @@ def bootstrap_report(boot) -> Report:
         lines.append("The model fixes every parameter, so there are no estimates to give intervals for; the resamples "
                      "serve the test of the stated values" + (" (the Bollen-Stine p-value above)."
                                                               if boot.bollen_stine_p is not None else "."))
-    return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", _fit_notice(result), tuple(lines),
+    lost = _resamples_left_out(boot, why_failed)
+    rare = T.few_answers_warning(result, table=False)
+    notice = _fit_notice(result)
+    if lost:  # intervals conditional on what the left-out resamples lacked: in the first box, as cutoffs' samples
+        notice = replace(notice, lines=notice.lines + (lost,)) if notice is not None else _notice([], [lost])
+    return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", notice, tuple(lines),
                   (table,) if boot.intervals else (),
                   tuple(result.warnings), (HIGH_STAKES_NOTE,),
-                  warnings=T.higher_order_cautions(result) + ((kept,) if kept else ()) + ((few,) if few else ()))
+                  warnings=((rare,) if rare else ()) + T.higher_order_cautions(result)
+                  + ((kept,) if kept else ()) + ((few,) if few else ()))
+
+
+#: the share of resamples that could not be analysed from which the intervals are cautioned as conditional on what
+#: those resamples lacked (a convention of this project)
+LEFT_OUT_SHARE = 0.01
+
+
+def _resamples_left_out(boot, why: str) -> str:
+    """A caution when resamples that could not be analysed (``why``) are left out of the intervals: those that are kept
+    all hold what the others lacked (a rare answer category, two answers of every item), so the intervals describe
+    the estimates given that it was drawn, too narrow near it (hostile s22: 38 of 100 resamples left out for a
+    category given by one row, the interval of its threshold ending at the estimate); '' below LEFT_OUT_SHARE."""
+    if not boot.failed or boot.failed < LEFT_OUT_SHARE * boot.replications:
+        return ""
+    return (f"{count_text(boot.failed)} of the {count_text(boot.replications)} resamples "
+            f"({100 * boot.failed / boot.replications:.0f}%) could not be analysed ({why}) and are left out, so the "
+            f"intervals come only from resamples that kept what the others lacked (a rare answer category, say): the "
+            f"intervals of the estimates it touches, its thresholds above all, are too narrow, and one may end at the "
+            f"estimate. Merge a rare category with its neighbour in a copy of the data, or read those intervals as "
+            f"too narrow")
 
 
 #: fewer draws than this beyond a percentile make it move with the seed (a rule of thumb of this program)
@@ -1242,7 +1277,8 @@ def cutoffs_report(cut) -> Report:
     return Report(ResultKind.CUTOFFS, f"Model-specific fit cutoffs for {result.model_name}", notice, lines,
                   (table,), tuple(notes), ("These cutoffs hold for this model, sample size and kind of misspecification "
                                            "only; they are guides, not laws.", HIGH_STAKES_NOTE),
-                  warnings=tuple(result.warnings) + ((few,) if few else ()))
+                  warnings=tuple(result.warnings) + (() if (rare := T.few_answers_warning(result, table=False)) is None
+                                                     else (rare,)) + ((few,) if few else ()))
 
 
 #: how a fit index on either side of a simulated cutoff reads (McNeish & Wolf 2023): the cutoff is a value that most

@@ -31,8 +31,9 @@ from the thresholds, loadings and factor covariances (:mod:`cfa_tool.assessment.
 
 Sum scores: the unit-weighted sum of the items that measure a factor (directly or through the
 factors below it), each reverse-keyed item (negative total loading) reversed (its sign flipped), with
-omega of the sum (McDonald 1999): omega = (k'G_f)^2 Phi_ff / k'Sigma k for keys k and total loadings
-G = L A, by the formula and keys of the fit's reliability (:func:`cfa_tool.assessment.reliability.keyed_omega`,
+omega of the sum (McDonald 1999): omega = (k'C_f)^2 / (Phi_ff k'Sigma k) for keys k and the items' covariances
+with the factors C = L Phi ((k'G_f)^2 Phi_ff / k'Sigma k, G = L A, where the items measure the factor alone), by the
+formula and keys of the fit's reliability (:func:`cfa_tool.assessment.reliability.keyed_omega`,
 :func:`cfa_tool.assessment.reliability.item_keys`).
 Each person's item sum and mean, prorated from the answered items: :mod:`cfa_tool.scoring.item_sums`.
 """
@@ -44,7 +45,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.assessment.ordinal_reliability import observed_sum_factor_correlation, observed_sum_reliability
+from cfa_tool.assessment.ordinal_reliability import (due_to_factor, observed_sum_factor_correlation,
+                                                      observed_sum_reliability)
 from cfa_tool.assessment.reliability import item_keys, keyed_omega
 from cfa_tool.numerics.plain import clean
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_METHODS, ScoreMethod
@@ -237,10 +239,10 @@ def sum_quality(model: ScoringModel, declared: Collection[str] | None = None) ->
     """Omega (McDonald 1999), validity and variance k'Sigma k of each factor's keyed sum (keys: :func:`sum_keys`)."""
     sigma = checked_covariance(model)
     keys = sum_keys(model, declared)
-    G, phi, C = model.total_loadings, model.factor_covariance, model.item_factor_covariance
+    phi, C = model.factor_covariance, model.item_factor_covariance
     variances = _keyed_variances(sigma, keys)
     with np.errstate(invalid="ignore", divide="ignore"):
-        omegas = keyed_omega(keys, G, np.diag(phi), variances)  # the fit's reliability's formula
+        omegas = keyed_omega(keys, C, np.diag(phi), variances)  # the fit's reliability's formula
     out = []
     for f, name in enumerate(model.factors):
         k = keys[:, f]
@@ -288,8 +290,8 @@ def ordinal_sum_quality(model: OrdinalScoringModel, declared: Collection[str] | 
     base = model.base
     sigma = checked_covariance(base)
     keys = sum_keys(base, declared)
-    G, phi = base.total_loadings, base.factor_covariance
-    mean = base.intercepts + G @ base.factor_means
+    phi, C = base.factor_covariance, base.item_factor_covariance
+    mean = base.implied_mean  # nu + L alpha (G alpha counted a higher-order factor's mean twice)
     out = []
     for f, name in enumerate(base.factors):
         idx = _ordinal_sum_items(model, keys[:, f])
@@ -297,7 +299,7 @@ def ordinal_sum_quality(model: OrdinalScoringModel, declared: Collection[str] | 
             continue
         omega, variance = _ordinal_sum_parts(model, sigma, mean, idx, f, keys[:, f])
         taus, steps = [model.thresholds[i] for i in idx], [np.diff(model.categories[i]) for i in idx]
-        validity = observed_sum_factor_correlation(taus, steps, mean[idx], sigma[np.ix_(idx, idx)], (G @ phi)[idx, f],
+        validity = observed_sum_factor_correlation(taus, steps, mean[idx], sigma[np.ix_(idx, idx)], C[idx, f],
                                                    phi[f, f], keys[idx, f])
         items = tuple(base.items[i] for i in idx)
         out.append(SumScore(name, items, tuple(base.items[i] for i in idx if keys[i, f] < 0),
@@ -310,10 +312,10 @@ def _ordinal_sum_parts(model: OrdinalScoringModel, sigma: np.ndarray, mean: np.n
     """(omega, variance) of the keyed sum of the answers' codes of the ordinal items ``idx`` for factor ``f``
     (Green & Yang 2009; ``sigma``, ``mean``: the latent responses' implied covariance and means)."""
     base = model.base
-    g = base.total_loadings[idx, f]
     taus, steps = [model.thresholds[i] for i in idx], [np.diff(model.categories[i]) for i in idx]
     return observed_sum_reliability(taus, steps, mean[idx], sigma[np.ix_(idx, idx)],
-                                    np.outer(g, g) * base.factor_covariance[f, f], keys[idx])
+                                    due_to_factor(base.item_factor_covariance[idx, f], base.factor_covariance[f, f]),
+                                    keys[idx])
 
 
 def answered_sum_sems(model: ScoringModel | OrdinalScoringModel, sums: Sequence[SumScore], keys: np.ndarray,
@@ -330,7 +332,7 @@ def answered_sum_sems(model: ScoringModel | OrdinalScoringModel, sums: Sequence[
     base = model.base if ordinal else model
     sigma = checked_covariance(base)
     mean = base.intercepts + base.total_loadings @ base.factor_means
-    G, phi = base.total_loadings, np.diag(base.factor_covariance)
+    C, phi = base.item_factor_covariance, np.diag(base.factor_covariance)
     answered = np.asarray(answered, dtype=bool)
     out = {}
     for s in sums:
@@ -352,7 +354,7 @@ def answered_sum_sems(model: ScoringModel | OrdinalScoringModel, sums: Sequence[
             else:
                 k_a = keys[idx, f]
                 variance = float(k_a @ sigma[np.ix_(idx, idx)] @ k_a)
-                omega = float(keyed_omega(k_a[:, None], G[idx, f][:, None], phi[f:f + 1], np.array([variance]))[0])
+                omega = float(keyed_omega(k_a[:, None], C[idx, f][:, None], phi[f:f + 1], np.array([variance]))[0])
             found[k] = np.sqrt(max(variance * (1.0 - omega), 0.0))
         out[s.factor] = found[np.ravel(which)]
     return out

@@ -26,6 +26,7 @@ from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary, design_weights
 from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import EstimationError, NotIdentified, OptionError, estimation_of, printable
+from cfa_tool.numbers import cut_list
 from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.pipeline.continuous import (fit_moments, full_information_instead, pairwise_instead,
@@ -448,7 +449,7 @@ def _same_item_types(specs: list[Spec], names: list[str], ordinal: list[set[str]
             if one != other:
                 ordinal_in, continuous_in = (i, j) if one - other else (j, i)
                 items = sorted((one ^ other), key=specs[ordinal_in].observed_names.index)
-                shown = ", ".join(items[:4]) + (f" and {len(items) - 4} more" if len(items) > 4 else "")
+                shown = cut_list(items, 4)
                 raise OptionError(f"the models {_named(specs[ordinal_in], names[ordinal_in])} and "
                                   f"{_named(specs[continuous_in], names[continuous_in])} treat {shown} differently "
                                   f"(ordinal in the first, continuous in the second), so they describe different data "

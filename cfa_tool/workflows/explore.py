@@ -23,7 +23,7 @@ from cfa_tool.data.kept_rows import FINISHED_COLUMNS, ROW_NAMING, row_naming
 from cfa_tool.data.moments import stray_word_message
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.assessment.admissibility import sample_size_problems
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import cut_list, more_words, names_shown, user_number
 from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.note_parts import Command, Note, Text
@@ -526,16 +526,16 @@ def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: t
     text = [str(c) for c in left if str(c) not in dates]
 
     def listed(names: list[str]) -> str:
-        return ", ".join(printable(c) for c in names[:10]) + (f" and {len(names) - 10} more" if len(names) > 10 else "")
+        return cut_list(names, 10, printable)
 
     said = f" Left out as dates or times: {listed(dates)}." if dates else ""
     if text and codings:
         general = next((c for c in codings if not c.items), None)
         unlisted = [printable(c) + (f" ('{printable(cell)}' in {row_of(frame, row)})" if cell is not None else "")
-                    for c in text[:10] for cell, row in [_first_unlisted(frame[c], general)]]
+                    for c in text[:names_shown(len(text), 10)] for cell, row in [_first_unlisted(frame[c], general)]]
         said += (Note((" Left out as text holding none of the answers file's words", Command(f" ({Option.ANSWERS})"),
                        ": "))
-                 + ", ".join(unlisted) + (f" and {len(text) - 10} more" if len(text) > 10 else "") + ".")
+                 + ", ".join(unlisted) + more_words(len(text) - len(unlisted)) + ".")
     elif text:
         said += f" Left out as text (not numbers): {listed(text)}; " + _answers_file_hint(frame, text) + "."
     return said
@@ -1037,7 +1037,7 @@ def few_categories_note(few: tuple[str, ...], names: tuple[str, ...], ordinal_it
     from cfa_tool.data.descriptives import FEW_CATEGORIES
     from cfa_tool.language.names import written_name
 
-    listed = ", ".join(printable(x) for x in few[:8]) + (f" and {len(few) - 8} more" if len(few) > 8 else "")
+    listed = cut_list(few, 8, printable)
     subject = (f"All {len(names)} items ({listed}) have" if len(few) == len(names) else
                f"{len(few)} of the {len(names)} items ({listed}) {'has' if len(few) == 1 else 'have'}")
     ordinal = tuple(x for x in names if x in few or x in ordinal_items)  # those of the option, in the items' order

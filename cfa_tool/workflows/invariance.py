@@ -40,7 +40,7 @@ from cfa_tool.assessment.robust_scores import robust_score_tests
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
 from cfa_tool.pipeline.continuous import assess, estimate, pairwise_instead, rows_left_out
-from cfa_tool.language.names import written_group
+from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
@@ -159,9 +159,18 @@ class FreedParameter:
         return parameter_words(self.kind, self.variables, self.group, article=article, quoted=quoted,
                                groups=groups) + " alone"
 
+    def statement(self) -> str:
+        """The model file's line that frees this parameter as the search did: 'noninvariant intercept(x3)', a
+        threshold for its item as a whole ('noninvariant threshold(x3)'), 'in group south: noninvariant ...' for one
+        set apart in its group alone (new-user trial s22: the search's result could not be carried into fit or
+        scores without guessing how to write it)."""
+        ref = reference_text(ref_kind(self.kind), self.variables[:1] if self.kind == "threshold" else self.variables)
+        return f"in group {written_name(str(self.group))}: noninvariant {ref}" if self.alone else f"noninvariant {ref}"
+
     def to_dict(self) -> dict:
         return clean({"level": self.level, "kind": self.kind, "variables": list(self.variables), "group": self.group,
-                      "in_this_group_alone": self.alone or None, "score_test": self.score,
+                      "in_this_group_alone": self.alone or None, "model_statement": self.statement(),
+                      "score_test": self.score,
                       "equal_score_tests": [{"kind": k, "variables": list(v)} for k, v in self.equal_tests],
                       "estimates": [{"group": g, "estimate": e, "se": se if free else None,
                                      "free": free} for g, e, se, free in self.estimates]})
@@ -327,6 +336,19 @@ class InvarianceResult(Presentable):
         robust ones take the observed information (:func:`robust_score_tests`)."""
         return self.score_tests is ScoreTests.NORMAL and self.gaps_by_full_information
 
+    def partial_statements(self) -> tuple[str, ...]:
+        """The model file's lines of the last step that holds with parameters the search freed (at it or at a step
+        before it): its 'invariance LEVEL' and one 'noninvariant' line per freed parameter, each once (an ordinal
+        item's thresholds are freed together), beside the file's own lines; () when no such step holds.  Pasted into
+        the model file they give 'fit' and 'scores' that step's partially invariant model."""
+        held = [k for k, s in enumerate(self.steps) if s.holds and any(t.freed for t in self.steps[:k + 1])]
+        if not held:
+            return ()
+        lines = [f"invariance {self.steps[held[-1]].level}"]
+        for step in self.steps[:held[-1] + 1]:
+            lines += [f.statement() for f in step.freed if f.statement() not in lines]
+        return tuple(lines)
+
     def to_dict(self) -> dict:
         data = self._data_dict()
         return {
@@ -347,6 +369,7 @@ class InvarianceResult(Presentable):
             "steps": [s.to_dict() for s in self.steps],
             "design": self.steps[0].result.design.to_dict() if self.steps[0].result.design is not None else None,
             "freed": [f.to_dict() for f in self.freed],
+            "partial_model_statements": list(self.partial_statements()),
             "latent_differences": [d.to_dict() for d in self.latent_differences],
             "latent_differences_note": self.latent_note,
             "means_not_estimated": list(self.means_not_estimated),

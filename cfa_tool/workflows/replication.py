@@ -63,7 +63,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import count_text, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, user_number
 from cfa_tool.data.halves import drawn_halves
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.pipeline.inputs import (_described, data_problems, rows_named, keeps_rows_with_gaps, load_spec, make_options, odd_values_named,
@@ -354,7 +354,10 @@ def replicate_moments(spec: Spec, calibration: SampleMoments, validation: Sample
 
     def fit_options(moments: SampleMoments):
         missing = MissingData.FULL_INFORMATION if _has_gaps(moments) else MissingData.LISTWISE
-        return replace(make_options({**options, "missing": options.get("missing") or missing}), diagnostics=False)
+        # the reliability too, so that keys the loadings contradict are a problem of each sample's solution, first in
+        # every view as in fit (hostile s22: replicate alone was silent)
+        return replace(make_options({**options, "missing": options.get("missing") or missing}), diagnostics=False,
+                       reliability=True)
 
     with estimation_of(f"calibration sample {calibration.source}"):
         cal = fit_moments(spec, calibration, fit_options(calibration))
@@ -389,7 +392,7 @@ def replicate_ordinal(spec: Spec, calibration, validation, method: Weighting | s
     test of one solution fits, or a reason (str) why they could not be computed."""
     from cfa_tool.pipeline.ordinal import correlations_in_order, fit_ordinal
 
-    fit_options = replace(make_options(options), diagnostics=False)
+    fit_options = replace(make_options(options), diagnostics=False, reliability=True)  # keying problems, as above
     with estimation_of(f"calibration sample {calibration.source}"):
         cal = fit_ordinal(spec, calibration, fit_options, method)
     if not cal.converged:
@@ -460,10 +463,25 @@ def _two_samples(spec: Spec, frames: tuple[pd.DataFrame, pd.DataFrame], source: 
     try:
         groups, _ = split_ordinal_moments(both, SAMPLE_COLUMN, spec.observed_names, source, "calibration", pairwise,
                                           None, continuous)
-    except DataError as exc:  # an answer category of an ordinal item missing from one sample, named by the error
+    except DataError:  # an answer category of an ordinal item missing from one sample: named here, in the paragraph's
+        # words (the error's own named the internal sample column and advised a row filter: hostile s22)
         return (f"an answer category of an ordinal item is missing from one sample, so the two samples' thresholds "
-                f"cannot be estimated side by side ({printable(str(exc))})")
+                f"cannot be estimated side by side: {_categories_apart(frames, [x for x in names if x in ordinal_items])}")
     return groups
+
+
+def _categories_apart(frames: tuple[pd.DataFrame, pd.DataFrame], items: list[str]) -> str:
+    """Which answer categories of the ordinal ``items`` one of the two samples has and the other lacks, in words
+    ('category 1 of short_wait, given by 1 row of the calibration sample, none of the validation sample')."""
+    found = []
+    for item in items:
+        counts = [frame[item].value_counts() for frame in frames]
+        for k, (mine, other) in enumerate((counts, counts[::-1])):
+            for value in sorted(set(mine.index) - set(other.index)):
+                found.append(f"category {user_number(float(value))} of {printable(item)}, given by "
+                             f"{counted(int(mine[value]), 'row')} of the {('calibration', 'validation')[k]} sample, "
+                             f"none of the {('validation', 'calibration')[k]} sample")
+    return cut_list(found, 3, sep="; ", lead="; and ") or "the samples' answer categories differ"
 
 
 def _ordinal_setup(spec: Spec, ordinal, ordinal_estimator, options: dict,

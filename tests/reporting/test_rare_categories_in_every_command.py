@@ -1,0 +1,48 @@
+"""An ordinal category given by one row, in every command (hostile trial s22): fit said 'Categories of ordinal items
+given by few rows', bootstrap, scores, cutoffs and replicate were silent, and bootstrap left out the resamples that
+lost the category (about (1 - 1/480)^480 = 37% of them, the chance a resample misses one given row) without a word,
+its intervals conditional on the rare answer being drawn.  Data: the bundled demo (a fictional transit agency's rider
+survey, simulated with a fixed seed) with every answer 1 to short_wait but one made 2."""
+
+from __future__ import annotations
+
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.reporting.score_report import scores_report
+from cfa_tool.reporting.workflow_tables import bootstrap_report, cutoffs_report, replication_report
+from cfa_tool.resources import resource_dir
+
+MODEL = ("factor punctuality: on_time, short_wait, accurate_info, easy_transfer\n"
+         "factor comfort: seat_available, clean, temperature, room_to_stand\n"
+         "ordinal on_time, short_wait, accurate_info, easy_transfer\n")
+FEW = "short_wait 1 (1 row)"
+
+
+@pytest.fixture(scope="module")
+def one_row() -> pd.DataFrame:
+    data = pd.read_csv(resource_dir("demo") / "rider_survey.csv")
+    rare = data.index[data["short_wait"] == 1]
+    data.loc[rare[1:], "short_wait"] = 2
+    return data
+
+
+def _said(lines) -> str:
+    return " ".join(" ".join(str(x).split()) for x in lines)
+
+
+def test_bootstrap_says_what_it_left_out_first_and_the_rare_category(one_row):
+    boot = cfa_tool.bootstrap(MODEL, one_row, replications=60, workers=1)
+    assert boot.failed >= 0.15 * boot.replications  # the chance of missing the one row is about .37
+    report = bootstrap_report(boot)
+    first = _said(report.notice.lines)
+    assert f"{boot.failed} of the 60 resamples" in first and "too narrow" in first
+    assert FEW in _said(report.warnings)
+
+
+def test_scores_cutoffs_and_replicate_say_the_rare_category(one_row):
+    assert FEW in _said(scores_report(cfa_tool.scores(MODEL, one_row)).warnings)
+    assert FEW in _said(cutoffs_report(cfa_tool.cutoffs(MODEL, one_row, replications=20, workers=1)).warnings)
+    rep = cfa_tool.replicate(MODEL, one_row.iloc[:240], one_row.iloc[240:])
+    assert FEW in _said(replication_report(rep).warnings)
