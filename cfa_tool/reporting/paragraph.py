@@ -134,6 +134,40 @@ def ordinal_item_names(result) -> tuple[str, ...]:
     return tuple(x for x, c in zip(result.observed, result.data.categories) if c)
 
 
+def factors_by_item_kind(result, rows) -> tuple[tuple[str, ...], tuple[str, ...]]:
+    """With ordinal and continuous items in one fit (else two empty tuples): the factors of ``rows`` (a group's
+    reliability rows) whose items are all continuous, and those mixing both kinds, by the one reading of which items
+    were ordinal (:func:`ordinal_item_names`).  The reliability table's note and the methods paragraph name them by this
+    one rule."""
+    if result.method.items is not Items.MIXED:
+        return (), ()
+    ordinal = set(ordinal_item_names(result))
+    continuous = tuple(r.factor for r in rows if not ordinal & set(r.items))
+    mixed = tuple(r.factor for r in rows if ordinal & set(r.items) and not set(r.items) <= ordinal)
+    return continuous, mixed
+
+
+def mixed_kinds_sentence(factors, paper: bool = False) -> str:
+    """What is (not) reported of the reliability of factors whose items mix ordinal and continuous ones, in one wording
+    for the reliability table's note and the methods paragraph (``paper``: the paragraph's, its names as the model
+    language writes them and the coefficient in words rather than by its column): no omega of the answers' sum (Green &
+    Yang 2009 give it for a sum of ordinal answers alone), and no reliability of the factor's keyed sum ('' without
+    such factors)."""
+    if not factors:
+        return ""
+    many = len(factors) > 1
+    names = _names(factors) if paper else _list([str(f) for f in factors])
+    coefficient = "omega of the answers' sum" if paper else "Sum omega"
+    source = "Green & Yang, 2009," if paper else "Green & Yang 2009"
+    text = (f"The factor{'s' if many else ''} {names}, with ordinal and continuous items, {'have' if many else 'has'} "
+            f"no {coefficient} ({source} give it for a sum of ordinal answers alone)")
+    if paper:
+        return text + f", so no reliability of {'their' if many else 'its'} keyed sum score is reported."
+    return (text + f": {'their' if many else 'its'} other columns describe the sum of the ordinal items' latent "
+            f"responses and the continuous items' values, which no one observes, so no reliability of "
+            f"{'their' if many else 'its'} keyed sum score is given.")
+
+
 def _estimator_phrase(result) -> str:
     method = result.method
     if method.ordinal:
@@ -984,10 +1018,9 @@ def _reliability_sentence(result) -> str:
     if result.method.ordinal:
         found = [r for r in rows if shown(r.observed_sum_omega)]
         # factors of continuous items beside ordinal ones: omega of their items' keyed sum (hostile s21: left out)
-        ordinal = set(ordinal_item_names(result))
-        continuous = [r for r in rows if result.method.items is Items.MIXED and not shown(r.observed_sum_omega)
-                      and r.level != "higher-order" and r.bifactor is None and shown(r.omega)
-                      and not ordinal & set(r.items)]
+        only_continuous, mixed = factors_by_item_kind(result, rows)
+        continuous = [r for r in rows if r.factor in only_continuous and r.level != "higher-order"
+                      and r.bifactor is None and shown(r.omega)]
         parts = []
         if found:
             values = _list([f"{unit(r.observed_sum_omega, 2)} for {_name(r.factor)}" for r in found])
@@ -998,6 +1031,8 @@ def _reliability_sentence(result) -> str:
             values = _list([f"{unit(r.omega, 2)} for {_name(r.factor)}" for r in continuous])
             parts.append(f"For the keyed sum scores of the factors of continuous items, omega (McDonald, 1999) was "
                          f"{values}{_keyed_sum_words(continuous)}.")
+        if mixed:  # the table's note says it; the paragraph too (hostile s22: the paragraph said nothing of them)
+            parts.append(mixed_kinds_sentence(mixed, paper=True))
         return " ".join(parts)
     first = [r for r in rows if r.level != "higher-order" and r.bifactor is None and shown(r.omega)]
     higher = [r for r in rows if (r.level == "higher-order" or r.bifactor is BifactorPart.GENERAL)
