@@ -28,7 +28,7 @@ from cfa_tool.data.non_answers import non_answer_clause
 from cfa_tool.data.answer_words import coding_described
 from cfa_tool.data.descriptives import FEW_CATEGORIES
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
-from cfa_tool.language.names import prose_group, written_name
+from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words
 from cfa_tool.note_parts import WORDS as MANUSCRIPT, said as said_in  # ('said' names sentences here)
@@ -65,22 +65,22 @@ def _name(name) -> str:
 
 
 def _group_names(groups) -> list[str]:
-    """The groups' labels written alike by the one rule of prose (language.names.prose_group): every one in double
+    """The groups' labels written alike by the one rule of prose (language.names.written_group): every one in double
     quotes when any needs them, so that a list of groups does not quote some and not others (new user s14), none
     when each is one word or number (new-user trial s20)."""
     labels = [g.label for g in groups]
-    return [prose_group(label, labels) for label in labels]
+    return [written_group(label, labels) for label in labels]
 
 
 def group_labels(result) -> tuple[str, ...]:
     """The group labels of a fit in groups (empty for one group), among which every text names each group
-    (language.names.prose_group)."""
+    (language.names.written_group)."""
     return tuple(g.label for g in result.groups) if getattr(result, "multigroup", False) else ()
 
 
 def _phrase(problem, result) -> str:
     """A problem of ``result`` in the paragraph's words: its names quoted as the model language writes them, its
-    group named among the fit's groups (language.names.prose_group)."""
+    group named among the fit's groups (language.names.written_group)."""
     return problem.phrase(quoted=True, groups=group_labels(result))
 
 
@@ -323,24 +323,43 @@ def _parameter(ref: tuple, d) -> str:
     return parameter_words(kind, tuple(names), group, d.indicators, quoted=True, groups=d.groups)
 
 
-def _exceptions(d) -> str:
-    """The exemptions of a model's equalities across groups, after 'held ... equal across groups': those of every
-    group ('noninvariant intercept(x2)'), then those set apart in one group ('in group audit: noninvariant
-    intercept(x2)'): not held equal to the other groups' there, the other groups' held equal among themselves (not
+def _set_apart(d) -> str:
+    """From what a parameter set apart in one group ('in group audit: noninvariant intercept(x2)') is set apart: the
+    other group's, with two groups; with more, the other groups', which stay held equal among themselves (not
     'estimated freely': the first group's mean set apart stays 0, the origin, and a 'fix' in that group may follow)."""
+    if len(d.groups) == 2:
+        return "set apart from the other group's"
+    return "set apart from the other groups', which were held equal among themselves"
+
+
+def _exceptions(d) -> tuple[str, str]:
+    """The exemptions of a model's equalities across groups: those of every group ('noninvariant intercept(x2)'), a
+    clause after 'held ... equal across groups' (', except the intercept of x2'), and those set apart in one group
+    ('in group audit: noninvariant intercept(x2)'), a sentence of their own (:func:`_set_apart`; s22: they ran on
+    after a comma, a comma splice).  ('', '') when there are none."""
     every = [r for r in d.noninvariant if r[2] is None]
     one = [r for r in d.noninvariant if r[2] is not None]
-    text = f", except {_list([_parameter(r, d) for r in every])}" if every else ""
-    if one:
-        text += (f"{';' if every else ','} {_list([_parameter(r, d) for r in one])} "
-                 f"{'was' if len(one) == 1 else 'were'} set apart from the other groups', which were held equal")
-    return text
+    clause = f", except {_list([_parameter(r, d) for r in every])}" if every else ""
+    sentence = (f"{_capital(_list([_parameter(r, d) for r in one]))} {'was' if len(one) == 1 else 'were'} "
+                f"{_set_apart(d)}." if one else "")
+    return clause, sentence
+
+
+def _held_equal_sentences(d, subject: str = "") -> str:
+    """What a model in groups holds equal across groups, in sentences: '{subject} held loadings and intercepts equal
+    across groups, except ...', or without ``subject`` 'Loadings and intercepts were held equal across groups, except
+    ...'; then the parameters set apart in one group (:func:`_exceptions`)."""
+    classes = _list(equality_words(d.invariant))
+    clause, sentence = _exceptions(d)
+    held = (f"{subject} held {classes} equal across groups{clause}." if subject else
+            f"{_capital(classes)} were held equal across groups{clause}.")  # (every class's words are plural)
+    return held + (f" {sentence}" if sentence else "")
 
 
 def _declared_words(refs, d) -> str:
     """A step's parameters the model file exempts from its equalities, in the words of the ladder's sentences
     ('partial with ...'): those of every group specified as not held equal across groups, those set apart in one
-    group set apart from the other groups', which stayed equal."""
+    group set apart from the other group's (with more groups: the other groups', held equal among themselves)."""
     def words(chosen) -> str:
         return _list([_parameter((r.kind, r.names, r.group), d) if d is not None else str(r) for r in chosen])
 
@@ -348,7 +367,9 @@ def _declared_words(refs, d) -> str:
     one = [r for r in refs if r.group is not None]
     parts = [f"{words(every)} specified as not held equal across groups"] if every else []
     if one:
-        parts.append(f"{words(one)} set apart from the other groups' (held equal among them)")
+        apart = ("set apart from the other group's" if d is not None and len(d.groups) == 2 else
+                 "set apart from the other groups' (held equal among themselves)")
+        parts.append(f"{words(one)} {apart}")
     return " and ".join(parts)
 
 
@@ -367,14 +388,14 @@ def _scale_sentence(d) -> str:
     if len(shared) == len(d.scales):
         sentences = [_scales_in_words(d.scales, d.scales)]
         if carried:  # the variances fixed in the first group only
-            sentences[0] = sentences[0][:-1] + f" in group {prose_group(d.groups[0], d.groups)}."
+            sentences[0] = sentences[0][:-1] + f" in group {written_group(d.groups[0], d.groups)}."
     else:
         sentences = [_scales_in_words(shared, d.scales)] if shared else []
         for label, scales in group_scales:
             own = [s for s in scales if s not in shared]
             if own:
                 words = _scales_in_words(own, scales)
-                sentences.append(f"In group {prose_group(label, d.groups)}, {words[:1].lower()}{words[1:]}")
+                sentences.append(f"In group {written_group(label, d.groups)}, {words[:1].lower()}{words[1:]}")
         different = [s.factor for s in d.scales if s not in shared]
         sentences.append(f"Scaled differently in different groups, {_names(different)} "
                          f"{'are' if len(different) > 1 else 'is'} not on the same metric in every group.")
@@ -397,14 +418,14 @@ def _carried_sentence(d, carried: dict[str, list[str]]) -> str:
     """Which factors' variances the later groups estimate, their loadings held equal across groups carrying the scale
     set in the first group."""
     groups = sorted({g for labels in carried.values() for g in labels}, key=list(d.groups).index)
-    where = (f"group {prose_group(groups[0], d.groups)}" if len(groups) == 1
-             else "groups " + _list([prose_group(g, d.groups) for g in groups]))
+    where = (f"group {written_group(groups[0], d.groups)}" if len(groups) == 1
+             else "groups " + _list([written_group(g, d.groups) for g in groups]))
     every = len(carried) == len(d.scales)
     whose = "the factors" if every and len(carried) > 1 else _names(list(carried))
     several = len(carried) > 1
     return (f"In {where}, the variance{'s' if several else ''} of {whose} {'were' if several else 'was'} estimated, "
             f"the loadings held equal across groups carrying the scale set in group "
-            f"{prose_group(d.groups[0], d.groups)}.")
+            f"{written_group(d.groups[0], d.groups)}.")
 
 
 def _scales_in_words(chosen, every) -> str:
@@ -722,7 +743,7 @@ def _pairs_by_group(result) -> str:
     if not ranges or any(r is None for _, r in ranges):
         return ""
     labels = [label for label, _ in ranges]
-    return " over the groups and " + _list([f"{low} to {high} in group {prose_group(label, labels)}"
+    return " over the groups and " + _list([f"{low} to {high} in group {written_group(label, labels)}"
                                             for label, (low, high) in ranges])
 
 
@@ -998,7 +1019,7 @@ def _negative_count(rows, groups: list) -> str:
     counts = [sum(r.group == g for r in negative) for g in groups]
     if len(set(counts)) == 1:
         return f"{counts[0]} negative in each group"
-    return "negative: " + _list([f"{n} in group {prose_group(g, groups)}" for n, g in zip(counts, groups)])
+    return "negative: " + _list([f"{n} in group {written_group(g, groups)}" for n, g in zip(counts, groups)])
 
 
 def _reliability_sentence(result) -> str:
@@ -1069,11 +1090,11 @@ def _factor_means_sentence(result) -> str:
     every = {r.variables[0] for r in means}
     if len(at_zero) == len(labels):
         return "The factor means were fixed at zero in every group."
-    parts = [f"fixed at zero in {'group' if len(at_zero) == 1 else 'groups'} {_list([prose_group(g, labels) for g in at_zero])}"] if at_zero else []
+    parts = [f"fixed at zero in {'group' if len(at_zero) == 1 else 'groups'} {_list([written_group(g, labels) for g in at_zero])}"] if at_zero else []
     whole = [g for g in labels if estimated[g] and set(estimated[g]) == every]
     if whole:
-        parts.append(f"estimated in {'group' if len(whole) == 1 else 'groups'} {_list([prose_group(g, labels) for g in whole])}")
-    parts += [f"estimated for {_names(estimated[g])} in group {prose_group(g, labels)}" for g in labels
+        parts.append(f"estimated in {'group' if len(whole) == 1 else 'groups'} {_list([written_group(g, labels) for g in whole])}")
+    parts += [f"estimated for {_names(estimated[g])} in group {written_group(g, labels)}" for g in labels
               if estimated[g] and g not in whole]
     return f"The factor means were {_list(parts)}." if parts else ""
 
@@ -1184,7 +1205,7 @@ def methods_paragraph(result) -> str:
         if departures:
             parts.append(departures)
         if d.invariant:
-            parts.append(f"Held equal across groups: {_list(equality_words(d.invariant))}" + _exceptions(d) + ".")
+            parts.append(_held_equal_sentences(d))
         elif result.multigroup and _stated(result):  # nothing estimated: the stated values are what holds
             parts.append(_stated_groups_sentence(result, d))
         elif result.multigroup:  # a reviewer must not take the groups' estimates for invariant ones
@@ -1402,7 +1423,7 @@ def scores_paragraph(result) -> str:
                      f"{'has' if sum(empty.values()) == 1 else 'have'} no score ("
                      + "; ".join(f"{why.words}: {count_text(n)}" for why, n in empty.items() if isinstance(why, NotScored)) + ").")
     for q in result.quality:
-        where = f" in group {prose_group(q.group, group_labels(fit))}" if grouped and q.group is not None else ""
+        where = f" in group {written_group(q.group, group_labels(fit))}" if grouped and q.group is not None else ""
         if hasattr(q, "methods"):
             parts.append(f"With every item answered, the determinacy of the factors{where} (the correlation of the "
                          f"regression scores with their factor; Grice, 2001) was {_values_of(q.factors, q.determinacy)}.")
@@ -1456,8 +1477,8 @@ def _model_sentences(name: str, result, keys_said: bool = False) -> str:
     if departures:
         parts.append(departures.replace("The model also included", f"{name} also included", 1))
     if result.multigroup:  # what distinguishes grouped models: their equalities across groups
-        parts.append(f"{name} held {_list(equality_words(d.invariant))} equal across groups" + _exceptions(d) + "."
-            if d.invariant else f"{name} held no parameter equal across groups (the same pattern in every group).")
+        parts.append(_held_equal_sentences(d, name) if d.invariant else
+                     f"{name} held no parameter equal across groups (the same pattern in every group).")
     return " ".join(parts)
 
 
@@ -1795,10 +1816,10 @@ def _small_groups(result) -> str:
     labels = group_labels(result) or tuple(f.group for f in small)
     if len(small) == 1:
         (facts,) = small
-        return (f"Group {prose_group(facts.group, labels)} had {count_text(facts.rows)} rows for the {facts.parameters} free "
+        return (f"Group {written_group(facts.group, labels)} had {count_text(facts.rows)} rows for the {facts.parameters} free "
                 f"parameters of its model{facts.besides()}, so its estimates, and every comparison with the other groups, rest on too "
                 f"few answers.")
-    named = _list([f"{prose_group(f.group, labels)} ({count_text(f.rows)} rows for {f.parameters} parameters)" for f in small])
+    named = _list([f"{written_group(f.group, labels)} ({count_text(f.rows)} rows for {f.parameters} parameters)" for f in small])
     return (f"Groups {named} had fewer rows than the free parameters of their model, so their estimates, and every "
             f"comparison with the other groups, rest on too few answers.")
 
@@ -1828,7 +1849,7 @@ def invariance_paragraph(result, levels) -> str:
         shape = _shape(first, d)
         parts.append(f"The configural model had {_structure(d, shape).rstrip(',')}, with the same pattern in every "
                      f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
-                     f"group {prose_group(result.groups[0], result.groups)} were fixed at zero.")
+                     f"group {written_group(result.groups[0], result.groups)} were fixed at zero.")
         parts += _scale_sentences(d, getattr(result, "data_problems", ()))
         carried = next(((step.level, step.result.description) for step in steps[1:] if step.result.description
                         is not None and any(s.method == CARRIED_BY_LOADINGS for _, own in
@@ -1916,7 +1937,7 @@ def invariance_paragraph(result, levels) -> str:
                      f"that did not hold, so {'they compare' if len(conditional) > 1 else 'it compares'} models "
                      f"already rejected.")
     if result.latent_differences:
-        diffs = "; ".join(f"{_name(x.factor)} in group {prose_group(x.group, result.groups)}, {num(x.mean, 2)} "
+        diffs = "; ".join(f"{_name(x.factor)} in group {written_group(x.group, result.groups)}, {num(x.mean, 2)} "
                           f"(SE = {num(x.se, 2)}, {_p(x.p_value)}, "
                           f"d = {num(x.standardized, 2)})" for x in result.latent_differences)
         scalar = next(k for k, s in enumerate(steps) if s.level == "scalar")
@@ -1924,7 +1945,7 @@ def invariance_paragraph(result, levels) -> str:
         source = (f"atent mean differences from the "
                   f"{'partially invariant ' if any(s.partly_equal for s in steps if s.level != 'strict') else ''}"
                   f"scalar model")
-        against = f"against group {prose_group(result.groups[0], result.groups)} (d: over the pooled latent standard deviation): {diffs}."
+        against = f"against group {written_group(result.groups[0], result.groups)} (d: over the pooled latent standard deviation): {diffs}."
         parts.append(f"Resting on {basis}, the l{source} cannot be read as established; {against}" if basis else
                      f"L{source}, {against}")
         totals = list(dict.fromkeys(x.factor for x in result.latent_differences if x.total))

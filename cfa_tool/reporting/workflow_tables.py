@@ -12,7 +12,7 @@ from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATE
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.data.groups import reference_words
-from cfa_tool.language.names import names_text, prose_group, written_group
+from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
 from cfa_tool.note_parts import Command, Note, TableReference, Text, joined
@@ -674,9 +674,12 @@ def _declared_note(steps) -> str:
     d = steps[0].result.description
     every = [f"{_parameter(ref, d)} (from the {level} step)" for ref, level in first.items() if ref[2] is None]
     one = [f"{_parameter(ref, d)} (from the {level} step)" for ref, level in first.items() if ref[2] is not None]
-    said = ([f"not held equal across groups, {word_list(every)}"] if every else []) + (
-        [f"set apart in one group, the other groups' held equal, {word_list(one)}"] if one else [])
-    return (f"Partial invariance declared in the model file: {'; '.join(said)}; the steps marked partial hold every "
+    # sentences, each group named by the one rule (language.names.written_group through parameter_words; s22)
+    others = ("set apart from the other group's" if d is not None and len(d.groups) == 2 else
+              "set apart from the other groups', which stay held equal among themselves")
+    said = ([f"{word_list(every)} {'is' if len(every) == 1 else 'are'} not held equal across groups"] if every else []) + (
+        [f"{word_list(one)} {'is' if len(one) == 1 else 'are'} {others}"] if one else [])
+    return (f"Partial invariance declared in the model file: {'; '.join(said)}. The steps marked partial hold every "
             f"other equality of their level.")
 
 
@@ -860,7 +863,7 @@ def invariance_report(result) -> Report:
     from cfa_tool.workflows.invariance import LEVELS, ORDINAL_LEVELS
 
     return Report(ResultKind.INVARIANCE, f"Measurement invariance across {result.group_column} "
-                  f"({', '.join(prose_group(g, result.groups) for g in result.groups)})",  # a title: as prose (s20)
+                  f"({', '.join(written_group(g, result.groups) for g in result.groups)})",  # a title: as prose (s20)
                   notice, lines, tuple(tables), tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE),
                   invariance_paragraph(result, ORDINAL_LEVELS if ordinal else LEVELS),
                   warnings=T.higher_order_cautions(first) + tuple(getattr(result, "notes", ())))
