@@ -913,16 +913,20 @@ def _fit_sentence(result) -> str:
 def _uninformative_baseline_sentence(result) -> str:
     """That the baseline model misfits little, so CFI and TLI are bounded by it and read beside RMSEA and SRMR, when
     a caution of ``result`` says so (assessment.admissibility.uninformative_baseline_problems); '' otherwise."""
-    from cfa_tool.assessment.fit_indices import UNINFORMATIVE_BASELINE_RMSEA as BOUND
+    from cfa_tool.assessment.fit_indices import UNINFORMATIVE_BASELINE_RMSEA as BOUND, baseline_fits_words
 
     found = next((p for p in result.problems if p.kind is ProblemKind.UNINFORMATIVE_BASELINE), None)
     if found is None:
         return ""
     robust = "robust " if result.robust is not None else ""
-    return (f"The items correlated weakly: the baseline (independence) model had an RMSEA of "
-            f"{unit(found.value, 3, BOUND)}, below the rule of thumb of {unit(BOUND)} (Kenny, Kaniskan & McCoach, "
-            f"2015), so the {robust}CFI and TLI below, which are bounded by how badly that model fits, are read beside "
-            f"the RMSEA and SRMR.")
+    opening = (f"The items correlated weakly: the baseline (independence) model had an RMSEA of "
+               f"{unit(found.value, 3, BOUND)}, below the rule of thumb of {unit(BOUND)} (Kenny, Kaniskan & McCoach, "
+               f"2015)")
+    fits = baseline_fits_words(result.fit, result.robust, paper=True)
+    if fits:  # the indices have no value to read beside anything: the caution's words (s22)
+        return f"{opening}, and {fits}."
+    return (f"{opening}, so the {robust}CFI and TLI below, which are bounded by how badly that model fits, are read "
+            f"beside the RMSEA and SRMR.")
 
 
 def _method_items(result, factor: str) -> list[str]:
