@@ -1138,7 +1138,10 @@ def _latent_response_sentence(result) -> str:
     for g in result.groups:
         patterns.setdefault((state("intercept", g.label, 0.0), state("residual_variance", g.label, 1.0)),
                             []).append(g.label)
-    phrases = [f"intercepts {a} and residual variances {b} in {_names(labels) if len(patterns) > 1 else 'every group'}"
+    every = group_labels(result)  # each group named by the one rule of group names (s22: '"8"', no 'group', here)
+    phrases = [f"intercepts {a} and residual variances {b} in "
+               + (f"{'group' if len(labels) == 1 else 'groups'} {_list([written_group(g, every) for g in labels])}"
+                  if len(patterns) > 1 else "every group")
                for (a, b), labels in patterns.items()]
     return (f"The latent responses behind the ordinal items had {'; '.join(phrases)} (the identification of Wu & "
             f"Estabrook, 2016).")

@@ -65,8 +65,8 @@ def test_an_ordinal_fit_in_groups_says_how_its_latent_responses_were_identified(
     assert _latent_responses(result, "west") == ({True}, {True})  # free once thresholds are equal (Wu & Estabrook)
     text = _flat(methods_paragraph(result))
     assert ("The latent responses behind the ordinal items had intercepts fixed at 0 and residual variances fixed at 1 "
-            "in east; intercepts estimated and residual variances estimated in west (the identification of Wu & "
-            "Estabrook, 2016).") in text
+            "in group east; intercepts estimated and residual variances estimated in group west (the identification of "
+            "Wu & Estabrook, 2016).") in text  # each group named as every sentence names it (s22: 'in east')
     configural = cfa_tool.fit(model, data, group="site", ordinal="all")
     assert _latent_responses(configural, "west") == ({False}, {False})
     assert ("intercepts fixed at 0 and residual variances fixed at 1 in every group"
