@@ -1831,6 +1831,22 @@ def _small_groups(result) -> str:
             f"comparison with the other groups, rest on too few answers.")
 
 
+def _ladder_means(steps, groups) -> str:
+    """Where the ladder's models fixed the factor means and where they estimated them, read from each step's own mean
+    parameters: at zero in every group until the first step that estimates some (scalar, with intercepts held equal),
+    from which on the reference group's stay at zero (s22: 'the factor means of group north were fixed at zero' said
+    of the configural model, whose means are zero in every group)."""
+    reference = written_group(groups[0], groups)
+    estimated = next((s.level for s in steps if any(r.kind == "mean" and r.free for r in s.result.estimates)), None)
+    if estimated is None:
+        return "the factor means were fixed at zero in every group at every step"
+    if estimated == steps[0].level:
+        return f"the factor means were fixed at zero in group {reference}, the reference group"
+    return (f"the factor means were fixed at zero in every group up to the {estimated} step, from which on they were "
+            f"estimated in the other groups against group {reference}, the reference group, whose means stayed at "
+            f"zero")
+
+
 def invariance_paragraph(result, levels) -> str:
     """The methods-and-results paragraph of an invariance ladder: the groups and rows, exactly the models of the
     ladder (what each level holds equal, ``levels`` being the ladder's (level, classes held equal, ...) rows), the
@@ -1855,8 +1871,8 @@ def invariance_paragraph(result, levels) -> str:
     if d is not None:
         shape = _shape(first, d)
         parts.append(f"The configural model had {_structure(d, shape).rstrip(',')}, with the same pattern in every "
-                     f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
-                     f"group {written_group(result.groups[0], result.groups)} were fixed at zero.")
+                     f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); "
+                     f"{_ladder_means(steps, result.groups)}.")
         parts += _scale_sentences(d, getattr(result, "data_problems", ()))
         carried = next(((step.level, step.result.description) for step in steps[1:] if step.result.description
                         is not None and any(s.method == CARRIED_BY_LOADINGS for _, own in

@@ -31,7 +31,7 @@ def test_the_invariance_paragraph_names_grades_without_quotes(hs_data):
     text = " ".join(invariance_paragraph(ladder, [s.level for s in ladder.steps]).split())
     assert not re.search(r'"[78]"', text), text
     assert "(two groups: 7, n = " in text and "; 8, n = " in text
-    assert "the factor means of group 7 were fixed at zero" in text
+    assert "estimated in the other groups against group 7, the reference group" in text
     assert "against group 7 (d: over the pooled latent standard deviation)" in text
     assert "visual in group 8, " in text
     from cfa_tool.reporting.workflow_tables import invariance_report
