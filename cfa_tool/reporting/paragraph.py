@@ -1301,12 +1301,12 @@ def methods_paragraph(result) -> str:
                      and r.variables[1] in result.observed]
         if items:
             parts.append(f"The method factor {_name(factor)} was indicated by {_names(items)}; its standardized loadings "
-                         f"{_range(on_factor)}.")
+                         f"{_range(on_factor)}{across if len(on_factor) > 1 else ''}.")
     higher = {r.variables[0] for r in result.estimates if r.kind == "loading" and r.variables[1] not in result.observed}
     if second:
         what = ("The standardized loadings of the factors on the higher-order factor" if len(higher) == 1 else
                 "The standardized loadings of the first-order factors on the higher-order factors")
-        parts.append(f"{what} {_range(second)}.")
+        parts.append(f"{what} {_range(second)}{across if len(second) > 1 else ''}.")  # every group's, as the items'
     # the estimated correlations: one the model fixes (at 0 in a bifactor model) the methods part states
     correlated = [r for r in result.estimates if r.kind == "factor_covariance" and r.free]
     corr = [r.standardized for r in correlated]
