@@ -20,7 +20,7 @@ from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANG
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, cfi_not_defined_sentence, compared_cfi_not_defined,
-                                          comparison_paragraph, design_sentence,
+                                          comparison_paragraph, group_labels, design_sentence,
                                           mcar_score_tests, reversed_across_groups, reversed_loadings,
                                           invariance_paragraph, replication_paragraph)
 from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text, missing, needed_decimals, num,
@@ -47,9 +47,17 @@ def _admissible_cell(result) -> str:
 
 def _problem_lines(named_results) -> list[str]:
     """One line per solution that is not admissible (problems first in every view)."""
-    return [f"The solution of {name} is not admissible (" + "; ".join(p.phrase() for p in r.problems if p.kind.inadmissible)
+    return [f"The solution of {name} is not admissible (" + "; ".join(p.phrase(groups=group_labels(r)) for p in r.problems
+                                                                      if p.kind.inadmissible)
             + "): do not interpret its estimates or fit, and do not choose it over another model on its fit."
             for name, r in named_results if r.converged and not r.admissible]
+
+
+def _in_group(problem, result) -> str:
+    """'group north: ' before a problem of one group of ``result``, the group named among the fit's groups by the one
+    rule of group names (language.names.written_group; s22: these lines wrote the label bare, a label with a space
+    running into the sentence); '' for a problem of the whole model."""
+    return "" if problem.group is None else f"group {written_group(problem.group, group_labels(result))}: "
 
 
 def _failed_lines(named_results) -> list[Text]:
@@ -70,7 +78,7 @@ def _failed_lines(named_results) -> list[Text]:
                "its estimation did not converge (" + r.message + ")")
         lines.append(f"{name} could not be estimated: " + why + "; nothing of it is a result, and no model is tested "
                      "against it." + advice)
-        lines += [f"{name}: " + (f"group {p.group}: " if p.group is not None else "") + p.line() for p in r.problems
+        lines += [f"{name}: " + _in_group(p, r) + p.line() for p in r.problems
                   if p.kind in (ProblemKind.SMALL_SAMPLE, ProblemKind.SMALL_GROUP)]
     return lines
 
@@ -97,7 +105,7 @@ def _caution_lines(named_results, poor_fit: bool = True, small_groups: bool = Tr
     baseline: list[str] = []
     for name, r in named_results:
         for p in getattr(r, "problems", ()) if r.converged else ():
-            line = f"{name}: " + (f"group {p.group}: " if p.group is not None else "") + p.line()
+            line = f"{name}: " + _in_group(p, r) + p.line()
             if p.kind in kinds and line not in lines:
                 lines.append(line)
             elif only is None and p.kind is ProblemKind.UNINFORMATIVE_BASELINE and not baseline:
@@ -584,7 +592,9 @@ def _comparison_group_lines(comparison) -> tuple[str, ...]:
         held.append(f"model {k} ({name}): {words}" + (f" (with {len(d.noninvariant)} exception"
                                           f"{'s' if len(d.noninvariant) > 1 else ''})" if d is not None and
                                           d.invariant and d.noninvariant else ""))
-    return (f"Groups defined by {first.group_column}: {', '.join(f'{g.label} ({count_text(g.data.n_obs)} rows)' for g in first.groups)}.",
+    labels = group_labels(first)  # each named by the one rule of group names (s22: bare beside the quoted reference)
+    return (f"Groups defined by {first.group_column}: "
+            f"{', '.join(f'{written_group(g.label, labels)} ({count_text(g.data.n_obs)} rows)' for g in first.groups)}.",
             f"Held equal across groups: {'; '.join(held)}.")
 
 

@@ -48,3 +48,24 @@ def test_the_comparison_and_the_ladder_say_it_alike(rider_demo):
     notes = " ".join(" ".join(map(str, ladder_report.notes)).split())
     assert ('Partial invariance declared in the model file: the intercept of clean in group "east side" (from the '
             "scalar step) is set apart from the other group's.") in notes
+
+
+def test_a_comparisons_lines_and_cautions_name_groups_by_the_one_rule(rider_demo):
+    """The comparison's line of groups and its cautions of one group wrote the label bare ('east side (15 rows)',
+    'group east side: 15 rows ...') beside the quoted reference group (s22)."""
+    import pandas as pd
+
+    from cfa_tool.reporting.workflow_tables import comparison_report
+    from cfa_tool.workflows.compare import compare
+
+    data = _spaced(rider_demo)
+    data = pd.concat([data[data["district"] == "north"], data[data["district"] == "east side"].head(15)])
+    two = ("factor punctuality: on_time, short_wait, accurate_info, easy_transfer\n"
+           "factor comfort: seat_available, clean, temperature, room_to_stand\n")
+    report = comparison_report(compare([two + "equal across groups: loadings\n",
+                                        two + "equal across groups: loadings, intercepts\n"], data, "district"))
+    assert 'Groups defined by district: "east side" (15 rows), "north" (250 rows).' in report.lines
+    # 15 rows for 17 free parameters in that group (6 loadings, 8 residual variances, 2 variances, 1 covariance)
+    notice = " ".join(str(line) for line in report.notice.lines)
+    assert 'group "east side": 15 rows for the 17 free parameters' in notice
+    assert "group east side" not in notice
