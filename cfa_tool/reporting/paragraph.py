@@ -1041,7 +1041,10 @@ def _reliability_sentence(result) -> str:
         return value is not None and math.isfinite(value)
 
     if result.method.ordinal:
-        found = [r for r in rows if shown(r.observed_sum_omega)]
+        # a bifactor model's: the share of the general factor alone, or of a specific factor beyond it, not the
+        # reliability of a sum (s22: '.29 for comfort' read as its subscale's reliability)
+        parts_of = [r for r in rows if shown(r.observed_sum_omega) and r.bifactor is not None]
+        found = [r for r in rows if shown(r.observed_sum_omega) and r.bifactor is None]
         # factors of continuous items beside ordinal ones: omega of their items' keyed sum (hostile s21: left out)
         only_continuous, mixed = factors_by_item_kind(result, rows)
         continuous = [r for r in rows if r.factor in only_continuous and r.level != "higher-order"
@@ -1052,6 +1055,20 @@ def _reliability_sentence(result) -> str:
             parts.append(f"The reliability of the factors' keyed sums of the answers' codes (the omega of the observed "
                          f"sum, from the fitted thresholds, loadings and factor variances; Green & Yang, 2009) was "
                          f"{values}{_keyed_sum_words(found)}.")
+        general = [r for r in parts_of if r.bifactor is BifactorPart.GENERAL]
+        specific = [r for r in parts_of if r.bifactor is BifactorPart.SPECIFIC]
+        if general:
+            parts.append(f"For the general factor{'s' if len(general) > 1 else ''} of the bifactor model, omega "
+                         f"hierarchical of the keyed sum of the answers' codes, the share of that sum's variance due to "
+                         f"the general factor alone (from the fitted thresholds, loadings and factor variances; Green & "
+                         f"Yang, 2009; Rodriguez, Reise & Haviland, 2016), was "
+                         f"{_list([f'{unit(r.observed_sum_omega, 2)} for {_name(r.factor)}' for r in general])}"
+                         f"{_keyed_sum_words(general)}.")
+        if specific:
+            parts.append(f"Omega hierarchical subscale of the keyed subscale sum of the answers' codes, the share due "
+                         f"to a specific factor beyond the general factor (Rodriguez, Reise & Haviland, 2016), was "
+                         f"{_list([f'{unit(r.observed_sum_omega, 2)} for {_name(r.factor)}' for r in specific])}"
+                         f"{_keyed_sum_words(specific)}.")
         if continuous:
             values = _list([f"{unit(r.omega, 2)} for {_name(r.factor)}" for r in continuous])
             parts.append(f"For the keyed sum scores of the factors of continuous items, omega (McDonald, 1999) was "
