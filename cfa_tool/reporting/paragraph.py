@@ -179,8 +179,10 @@ def _estimator_phrase(result) -> str:
             ordinal = ordinal_item_names(result)
             others = len(result.observed) - len(ordinal)
             rest = "item" if others == 1 else f"{WORDS.get(others, others)} items"
-            which = f" ({_list([_name(x) for x in ordinal])} treated as ordinal, the other {rest} as continuous)"
-            return (f"{method.weighting.label} least squares on {kind}{extra} correlations{aside}{which}{moments}, "
+            # one aside, not two in a row (s22: '... as continuous) (and the means and variances of ...)')
+            fitted = ", their means and variances fitted beside the correlations" if moments else ""
+            which = f" ({_list([_name(x) for x in ordinal])} treated as ordinal, the other {rest} as continuous{fitted})"
+            return (f"{method.weighting.label} least squares on {kind}{extra} correlations{aside}{which}, "
                     f"with robust standard errors")
         return (f"{method.weighting.label} least squares on {kind}{extra} correlations{aside} of the ordinal "
                 f"items{moments}, with robust standard errors")

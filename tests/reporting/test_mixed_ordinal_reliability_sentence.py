@@ -67,3 +67,15 @@ def test_the_paragraph_names_the_factors_mixing_both_kinds(rider_demo):
     # every factor of ordinal items only: no such sentence
     whole = cfa_tool.fit(RIDER, rider_demo, ordinal=["on_time", "short_wait", "accurate_info", "easy_transfer"])
     assert "with ordinal and continuous items" not in " ".join(methods_paragraph(whole).split())
+
+
+def test_a_mixed_fit_in_groups_says_its_continuous_moments_in_one_aside(rider_demo):
+    """In groups, least squares fits the continuous items' means and variances beside the correlations: said inside the
+    aside that names the ordinal items, not in a second parenthesis right after it (s22: '... as continuous) (and the
+    means and variances of the continuous items)')."""
+    result = cfa_tool.fit(RIDER + "invariance scalar\n", rider_demo, group="district",
+                          ordinal=["on_time", "short_wait"])
+    text = " ".join(methods_paragraph(result).split())
+    assert ("(on_time and short_wait treated as ordinal, the other ten items as continuous, their means and variances "
+            "fitted beside the correlations), with robust standard errors") in text
+    assert ") (" not in text
