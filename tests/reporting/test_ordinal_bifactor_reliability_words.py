@@ -27,8 +27,8 @@ def test_the_paragraph_names_the_shares_of_an_ordinal_bifactor_model(rider_demo)
     subscale = (general ** 2 + specific ** 2) / (general ** 2 + specific ** 2 + residual)
     assert share < subscale - 0.3  # the share of comfort alone, not the reliability of its subscale's sum
     assert "The reliability of the factors' keyed sums of the answers' codes" not in text
-    assert (f"For the general factor of the bifactor model, omega hierarchical of the keyed sum of the answers' codes, "
-            f"the share of that sum's variance due to the general factor alone") in text
-    assert (f"Omega hierarchical subscale of the keyed subscale sum of the answers' codes, the share due to a specific "
-            f"factor beyond the general factor (Rodriguez, Reise & Haviland, 2016), was") in text
+    assert ("For the general factor of the bifactor model, omega hierarchical of the keyed sum of the answers' codes, "
+            "the share of that sum's variance due to the general factor alone") in text
+    assert ("Omega hierarchical subscale of the keyed subscale sum of the answers' codes, the share due to a specific "
+            "factor beyond the general factor (Rodriguez, Reise & Haviland, 2016), was") in text
     assert f"{share:.2f} for comfort".lstrip("0") in text
