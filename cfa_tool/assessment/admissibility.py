@@ -1096,7 +1096,7 @@ def uninformative_baseline_problems(fit, robust, n_obs: int, groups: int = 1) ->
     Steiger & Lind's RMSEA, each with its own df and the same N, written in one another's terms), so the caution
     gives the TLI a model of RMSEA .05 would have with this baseline."""
     from cfa_tool.assessment.fit_indices import UNINFORMATIVE_BASELINE_RMSEA as BOUND
-    from cfa_tool.assessment.fit_indices import rmsea_value
+    from cfa_tool.assessment.fit_indices import baseline_fits_words, rmsea_value
     from cfa_tool.numerics.plain import journal_decimal
 
     if fit is None or fit.df <= 0 or fit.baseline_df <= 0:
@@ -1111,8 +1111,10 @@ def uninformative_baseline_problems(fit, robust, n_obs: int, groups: int = 1) ->
     prefix = "" if robust is None else "robust "
     close = 0.05  # the RMSEA of close fit (Browne & Cudeck 1993, recalled from memory; a convention)
     about = "" if robust is None else "about "  # exact for the normal-theory indices, near for the robust ones
+    fits = baseline_fits_words(fit, robust)  # its chi-square at most its df: TLI not defined, CFI 0/0 or 0 (s22)
     bound = (f"here a model with an RMSEA of {journal_decimal(close).rstrip('0')} would have a TLI of {about}"
              f"{journal_decimal(1 - (close / value) ** 2, 0.95)}" if value > close else
+             f"here {fits}" if fits else
              f"here the baseline model itself fits closely (RMSEA at most {journal_decimal(close).rstrip('0')}), so "
              f"CFI and TLI compare the model with one that already fits and can take almost any value, or none")
     return (Problem(ProblemKind.UNINFORMATIVE_BASELINE, (), float(value),
@@ -1122,6 +1124,8 @@ def uninformative_baseline_problems(fit, robust, n_obs: int, groups: int = 1) ->
                     f"measure the model's improvement on that baseline, so they are bounded by how badly it fits: TLI "
                     f"is {about}1 - (RMSEA / baseline RMSEA)\u00b2, and {bound}. This is no problem of the solution: it "
                     f"says how to read two indices.",
+                    f"judge the fit by the RMSEA, the SRMR and the residual correlations: the {prefix}CFI and TLI "
+                    f"give no reading here." if fits else
                     f"read the {prefix}CFI and TLI beside the RMSEA, the SRMR and the residual correlations rather "
                     f"than alone."),)
 

@@ -34,34 +34,27 @@ def written_name(name: str) -> str:
     return name if plain(name) or not writable(name) else f'"{name}"'
 
 
-def written_group(label: str, labels: Sequence[str] = ()) -> str:
-    """A group's label as a sentence names it among ``labels`` (every group label of the fit): the one rule of every
-    text that names groups ('in group north', 'groups "2" and "3"').  As :func:`written_name` writes it, and in double
-    quotes when any of ``labels`` needs them, so that one text neither writes 'east' in one place and '"east"' in
-    another nor quotes some groups of a list and not others (new user s14); a label the model language cannot write
-    (it holds a double quote or a line break) in single quotes, so that its own double quotes are not read as the
-    quoting.  Without ``labels``: the label alone decides."""
-    label = str(label)
-    if not writable(label):
-        return f"'{label}'"
-    if not plain(label) or any(not plain(str(x)) for x in labels):
-        return f'"{label}"'
-    return label
-
-
-#: a group label a sentence of prose can hold without quotes: one word of letters or digits, hyphens, full stops or
-#: apostrophes inside it ('8', 'translated', 'grade-8', 'École'), which no comma, bracket or space runs into the sentence
+#: a group label a sentence can hold without quotes: one word of letters or digits, hyphens, full stops or apostrophes
+#: inside it ('8', 'translated', 'grade-8', 'École'), which no comma, bracket or space runs into the sentence
 _PROSE_PLAIN = re.compile(r"[^\W_](?:[\w'.-]*[^\W_])?\Z")
 
 
-def prose_group(label: str, labels: Sequence[str] = ()) -> str:
-    """A group's label as a methods paragraph names it among ``labels`` (every group label of the fit): as it is when
-    every one of them is one word or number ('in group 8', new-user trial s20, where '"8"' read as code), else by
-    :func:`written_group`, whose quotes then delimit labels that hold spaces, commas or brackets, all alike."""
+def written_group(label: str, labels: Sequence[str] = ()) -> str:
+    """A group's label as a sentence names it among ``labels`` (every group label of the fit): the one rule of every
+    text that names groups ('in group north', 'in group 8', 'groups "grade 8" and "grade 9"'), the methods paragraph,
+    the notes, the titles and the messages alike (s22: a paragraph wrote 'group 8' and the note below it 'group "8"',
+    two rules folded into this one).  As it is when every one of them is one word or number (new-user trial s20, where
+    '"8"' read as code); else every label in double quotes, so that one text neither writes 'east' in one place and
+    '"east"' in another nor quotes some groups of a list and not others (new user s14), the quotes delimiting labels
+    that hold spaces, commas or brackets; a label the model language cannot write (it holds a double quote or a line
+    break) in single quotes, so that its own double quotes are not read as the quoting.  Without ``labels``: the
+    label alone decides.  A model file's statement writes a group as the language does (:func:`written_name`)."""
     label = str(label)
+    if not writable(label):
+        return f"'{label}'"
     if _PROSE_PLAIN.match(label) and all(_PROSE_PLAIN.match(str(x)) for x in labels):
         return label
-    return written_group(label, labels)
+    return f'"{label}"'
 
 
 def names_text(names) -> str:

@@ -13,7 +13,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from cfa_tool.language.checks import exogenous_factors
-from cfa_tool.language.names import prose_group, read_reference, written_group, written_name
+from cfa_tool.language.names import read_reference, written_group, written_name
 from cfa_tool.language.spec import Spec, equality_words
 from cfa_tool.model.parameters import ParameterTable
 
@@ -126,10 +126,9 @@ def parameter_words(kind: str, names: tuple[str, ...], group: str | None = None,
     ``observed`` tells an item's residual from a factor; without it they stay 'variance' and 'covariance');
     ``article`` False leaves out the leading 'the' (a table cell); ``quoted`` writes the names as the model language
     writes them (:func:`cfa_tool.language.names.written_name`: in double quotes unless plain), for the lists of a
-    methods paragraph, where a name's commas would run into the list's; ``groups`` (the fit's labels) write the group
-    as every text names a group among them (:func:`cfa_tool.language.names.written_group`; with ``quoted``, as a
-    methods paragraph does, :func:`cfa_tool.language.names.prose_group`).  The one place that
-    turns parameters into words."""
+    methods paragraph, where a name's commas would run into the list's; ``groups`` (the fit's labels) or ``quoted``
+    write the group as every text names a group among them (:func:`cfa_tool.language.names.written_group`).  The one
+    place that turns parameters into words."""
     if kind in ("variance", "covariance") and observed is not None:
         kind = ("residual_" if names and names[0] in observed else "factor_") + kind
     if quoted:
@@ -152,8 +151,7 @@ def parameter_words(kind: str, names: tuple[str, ...], group: str | None = None,
                 "mean": f"mean of {pair}",
                 "threshold": f"thresholds of {pair}"}.get(kind, f"{kind.replace('_', ' ')} of {pair}")
     if group is not None:
-        # (a methods paragraph's, ``quoted``, by the rule of prose: 'in group 8', new-user trial s20)
-        text += f" in group {prose_group(group, groups) if quoted else written_group(group, groups) if groups else group}"
+        text += f" in group {written_group(group, groups) if quoted or groups else group}"
     return ("the " if article else "") + text
 
 

@@ -28,7 +28,7 @@ from cfa_tool.data.non_answers import non_answer_clause
 from cfa_tool.data.answer_words import coding_described
 from cfa_tool.data.descriptives import FEW_CATEGORIES
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
-from cfa_tool.language.names import prose_group, written_name
+from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words
 from cfa_tool.note_parts import WORDS as MANUSCRIPT, said as said_in  # ('said' names sentences here)
@@ -65,22 +65,22 @@ def _name(name) -> str:
 
 
 def _group_names(groups) -> list[str]:
-    """The groups' labels written alike by the one rule of prose (language.names.prose_group): every one in double
+    """The groups' labels written alike by the one rule of prose (language.names.written_group): every one in double
     quotes when any needs them, so that a list of groups does not quote some and not others (new user s14), none
     when each is one word or number (new-user trial s20)."""
     labels = [g.label for g in groups]
-    return [prose_group(label, labels) for label in labels]
+    return [written_group(label, labels) for label in labels]
 
 
 def group_labels(result) -> tuple[str, ...]:
     """The group labels of a fit in groups (empty for one group), among which every text names each group
-    (language.names.prose_group)."""
+    (language.names.written_group)."""
     return tuple(g.label for g in result.groups) if getattr(result, "multigroup", False) else ()
 
 
 def _phrase(problem, result) -> str:
     """A problem of ``result`` in the paragraph's words: its names quoted as the model language writes them, its
-    group named among the fit's groups (language.names.prose_group)."""
+    group named among the fit's groups (language.names.written_group)."""
     return problem.phrase(quoted=True, groups=group_labels(result))
 
 
@@ -134,6 +134,40 @@ def ordinal_item_names(result) -> tuple[str, ...]:
     return tuple(x for x, c in zip(result.observed, result.data.categories) if c)
 
 
+def factors_by_item_kind(result, rows) -> tuple[tuple[str, ...], tuple[str, ...]]:
+    """With ordinal and continuous items in one fit (else two empty tuples): the factors of ``rows`` (a group's
+    reliability rows) whose items are all continuous, and those mixing both kinds, by the one reading of which items
+    were ordinal (:func:`ordinal_item_names`).  The reliability table's note and the methods paragraph name them by this
+    one rule."""
+    if result.method.items is not Items.MIXED:
+        return (), ()
+    ordinal = set(ordinal_item_names(result))
+    continuous = tuple(r.factor for r in rows if not ordinal & set(r.items))
+    mixed = tuple(r.factor for r in rows if ordinal & set(r.items) and not set(r.items) <= ordinal)
+    return continuous, mixed
+
+
+def mixed_kinds_sentence(factors, paper: bool = False) -> str:
+    """What is (not) reported of the reliability of factors whose items mix ordinal and continuous ones, in one wording
+    for the reliability table's note and the methods paragraph (``paper``: the paragraph's, its names as the model
+    language writes them and the coefficient in words rather than by its column): no omega of the answers' sum (Green &
+    Yang 2009 give it for a sum of ordinal answers alone), and no reliability of the factor's keyed sum ('' without
+    such factors)."""
+    if not factors:
+        return ""
+    many = len(factors) > 1
+    names = _names(factors) if paper else _list([str(f) for f in factors])
+    coefficient = "omega of the answers' sum" if paper else "Sum omega"
+    source = "Green & Yang, 2009," if paper else "Green & Yang 2009"
+    text = (f"The factor{'s' if many else ''} {names}, with ordinal and continuous items, {'have' if many else 'has'} "
+            f"no {coefficient} ({source} give it for a sum of ordinal answers alone)")
+    if paper:
+        return text + f", so no reliability of {'their' if many else 'its'} keyed sum score is reported."
+    return (text + f": {'their' if many else 'its'} other columns describe the sum of the ordinal items' latent "
+            f"responses and the continuous items' values, which no one observes, so no reliability of "
+            f"{'their' if many else 'its'} keyed sum score is given.")
+
+
 def _estimator_phrase(result) -> str:
     method = result.method
     if method.ordinal:
@@ -145,8 +179,10 @@ def _estimator_phrase(result) -> str:
             ordinal = ordinal_item_names(result)
             others = len(result.observed) - len(ordinal)
             rest = "item" if others == 1 else f"{WORDS.get(others, others)} items"
-            which = f" ({_list([_name(x) for x in ordinal])} treated as ordinal, the other {rest} as continuous)"
-            return (f"{method.weighting.label} least squares on {kind}{extra} correlations{aside}{which}{moments}, "
+            # one aside, not two in a row (s22: '... as continuous) (and the means and variances of ...)')
+            fitted = ", their means and variances fitted beside the correlations" if moments else ""
+            which = f" ({_list([_name(x) for x in ordinal])} treated as ordinal, the other {rest} as continuous{fitted})"
+            return (f"{method.weighting.label} least squares on {kind}{extra} correlations{aside}{which}, "
                     f"with robust standard errors")
         return (f"{method.weighting.label} least squares on {kind}{extra} correlations{aside} of the ordinal "
                 f"items{moments}, with robust standard errors")
@@ -289,24 +325,43 @@ def _parameter(ref: tuple, d) -> str:
     return parameter_words(kind, tuple(names), group, d.indicators, quoted=True, groups=d.groups)
 
 
-def _exceptions(d) -> str:
-    """The exemptions of a model's equalities across groups, after 'held ... equal across groups': those of every
-    group ('noninvariant intercept(x2)'), then those set apart in one group ('in group audit: noninvariant
-    intercept(x2)'): not held equal to the other groups' there, the other groups' held equal among themselves (not
+def _set_apart(d) -> str:
+    """From what a parameter set apart in one group ('in group audit: noninvariant intercept(x2)') is set apart: the
+    other group's, with two groups; with more, the other groups', which stay held equal among themselves (not
     'estimated freely': the first group's mean set apart stays 0, the origin, and a 'fix' in that group may follow)."""
+    if len(d.groups) == 2:
+        return "set apart from the other group's"
+    return "set apart from the other groups', which were held equal among themselves"
+
+
+def _exceptions(d) -> tuple[str, str]:
+    """The exemptions of a model's equalities across groups: those of every group ('noninvariant intercept(x2)'), a
+    clause after 'held ... equal across groups' (', except the intercept of x2'), and those set apart in one group
+    ('in group audit: noninvariant intercept(x2)'), a sentence of their own (:func:`_set_apart`; s22: they ran on
+    after a comma, a comma splice).  ('', '') when there are none."""
     every = [r for r in d.noninvariant if r[2] is None]
     one = [r for r in d.noninvariant if r[2] is not None]
-    text = f", except {_list([_parameter(r, d) for r in every])}" if every else ""
-    if one:
-        text += (f"{';' if every else ','} {_list([_parameter(r, d) for r in one])} "
-                 f"{'was' if len(one) == 1 else 'were'} set apart from the other groups', which were held equal")
-    return text
+    clause = f", except {_list([_parameter(r, d) for r in every])}" if every else ""
+    sentence = (f"{_capital(_list([_parameter(r, d) for r in one]))} {'was' if len(one) == 1 else 'were'} "
+                f"{_set_apart(d)}." if one else "")
+    return clause, sentence
+
+
+def _held_equal_sentences(d, subject: str = "") -> str:
+    """What a model in groups holds equal across groups, in sentences: '{subject} held loadings and intercepts equal
+    across groups, except ...', or without ``subject`` 'Loadings and intercepts were held equal across groups, except
+    ...'; then the parameters set apart in one group (:func:`_exceptions`)."""
+    classes = _list(equality_words(d.invariant))
+    clause, sentence = _exceptions(d)
+    held = (f"{subject} held {classes} equal across groups{clause}." if subject else
+            f"{_capital(classes)} were held equal across groups{clause}.")  # (every class's words are plural)
+    return held + (f" {sentence}" if sentence else "")
 
 
 def _declared_words(refs, d) -> str:
     """A step's parameters the model file exempts from its equalities, in the words of the ladder's sentences
     ('partial with ...'): those of every group specified as not held equal across groups, those set apart in one
-    group set apart from the other groups', which stayed equal."""
+    group set apart from the other group's (with more groups: the other groups', held equal among themselves)."""
     def words(chosen) -> str:
         return _list([_parameter((r.kind, r.names, r.group), d) if d is not None else str(r) for r in chosen])
 
@@ -314,7 +369,9 @@ def _declared_words(refs, d) -> str:
     one = [r for r in refs if r.group is not None]
     parts = [f"{words(every)} specified as not held equal across groups"] if every else []
     if one:
-        parts.append(f"{words(one)} set apart from the other groups' (held equal among them)")
+        apart = ("set apart from the other group's" if d is not None and len(d.groups) == 2 else
+                 "set apart from the other groups' (held equal among themselves)")
+        parts.append(f"{words(one)} {apart}")
     return " and ".join(parts)
 
 
@@ -333,14 +390,14 @@ def _scale_sentence(d) -> str:
     if len(shared) == len(d.scales):
         sentences = [_scales_in_words(d.scales, d.scales)]
         if carried:  # the variances fixed in the first group only
-            sentences[0] = sentences[0][:-1] + f" in group {prose_group(d.groups[0], d.groups)}."
+            sentences[0] = sentences[0][:-1] + f" in group {written_group(d.groups[0], d.groups)}."
     else:
         sentences = [_scales_in_words(shared, d.scales)] if shared else []
         for label, scales in group_scales:
             own = [s for s in scales if s not in shared]
             if own:
                 words = _scales_in_words(own, scales)
-                sentences.append(f"In group {prose_group(label, d.groups)}, {words[:1].lower()}{words[1:]}")
+                sentences.append(f"In group {written_group(label, d.groups)}, {words[:1].lower()}{words[1:]}")
         different = [s.factor for s in d.scales if s not in shared]
         sentences.append(f"Scaled differently in different groups, {_names(different)} "
                          f"{'are' if len(different) > 1 else 'is'} not on the same metric in every group.")
@@ -363,14 +420,14 @@ def _carried_sentence(d, carried: dict[str, list[str]]) -> str:
     """Which factors' variances the later groups estimate, their loadings held equal across groups carrying the scale
     set in the first group."""
     groups = sorted({g for labels in carried.values() for g in labels}, key=list(d.groups).index)
-    where = (f"group {prose_group(groups[0], d.groups)}" if len(groups) == 1
-             else "groups " + _list([prose_group(g, d.groups) for g in groups]))
+    where = (f"group {written_group(groups[0], d.groups)}" if len(groups) == 1
+             else "groups " + _list([written_group(g, d.groups) for g in groups]))
     every = len(carried) == len(d.scales)
     whose = "the factors" if every and len(carried) > 1 else _names(list(carried))
     several = len(carried) > 1
     return (f"In {where}, the variance{'s' if several else ''} of {whose} {'were' if several else 'was'} estimated, "
             f"the loadings held equal across groups carrying the scale set in group "
-            f"{prose_group(d.groups[0], d.groups)}.")
+            f"{written_group(d.groups[0], d.groups)}.")
 
 
 def _scales_in_words(chosen, every) -> str:
@@ -688,7 +745,7 @@ def _pairs_by_group(result) -> str:
     if not ranges or any(r is None for _, r in ranges):
         return ""
     labels = [label for label, _ in ranges]
-    return " over the groups and " + _list([f"{low} to {high} in group {prose_group(label, labels)}"
+    return " over the groups and " + _list([f"{low} to {high} in group {written_group(label, labels)}"
                                             for label, (low, high) in ranges])
 
 
@@ -858,16 +915,20 @@ def _fit_sentence(result) -> str:
 def _uninformative_baseline_sentence(result) -> str:
     """That the baseline model misfits little, so CFI and TLI are bounded by it and read beside RMSEA and SRMR, when
     a caution of ``result`` says so (assessment.admissibility.uninformative_baseline_problems); '' otherwise."""
-    from cfa_tool.assessment.fit_indices import UNINFORMATIVE_BASELINE_RMSEA as BOUND
+    from cfa_tool.assessment.fit_indices import UNINFORMATIVE_BASELINE_RMSEA as BOUND, baseline_fits_words
 
     found = next((p for p in result.problems if p.kind is ProblemKind.UNINFORMATIVE_BASELINE), None)
     if found is None:
         return ""
     robust = "robust " if result.robust is not None else ""
-    return (f"The items correlated weakly: the baseline (independence) model had an RMSEA of "
-            f"{unit(found.value, 3, BOUND)}, below the rule of thumb of {unit(BOUND)} (Kenny, Kaniskan & McCoach, "
-            f"2015), so the {robust}CFI and TLI below, which are bounded by how badly that model fits, are read beside "
-            f"the RMSEA and SRMR.")
+    opening = (f"The items correlated weakly: the baseline (independence) model had an RMSEA of "
+               f"{unit(found.value, 3, BOUND)}, below the rule of thumb of {unit(BOUND)} (Kenny, Kaniskan & McCoach, "
+               f"2015)")
+    fits = baseline_fits_words(result.fit, result.robust, paper=True)
+    if fits:  # the indices have no value to read beside anything: the caution's words (s22)
+        return f"{opening}, and {fits}."
+    return (f"{opening}, so the {robust}CFI and TLI below, which are bounded by how badly that model fits, are read "
+            f"beside the RMSEA and SRMR.")
 
 
 def _method_items(result, factor: str) -> list[str]:
@@ -964,7 +1025,7 @@ def _negative_count(rows, groups: list) -> str:
     counts = [sum(r.group == g for r in negative) for g in groups]
     if len(set(counts)) == 1:
         return f"{counts[0]} negative in each group"
-    return "negative: " + _list([f"{n} in group {prose_group(g, groups)}" for n, g in zip(counts, groups)])
+    return "negative: " + _list([f"{n} in group {written_group(g, groups)}" for n, g in zip(counts, groups)])
 
 
 def _reliability_sentence(result) -> str:
@@ -982,22 +1043,40 @@ def _reliability_sentence(result) -> str:
         return value is not None and math.isfinite(value)
 
     if result.method.ordinal:
-        found = [r for r in rows if shown(r.observed_sum_omega)]
+        # a bifactor model's: the share of the general factor alone, or of a specific factor beyond it, not the
+        # reliability of a sum (s22: '.29 for comfort' read as its subscale's reliability)
+        parts_of = [r for r in rows if shown(r.observed_sum_omega) and r.bifactor is not None]
+        found = [r for r in rows if shown(r.observed_sum_omega) and r.bifactor is None]
         # factors of continuous items beside ordinal ones: omega of their items' keyed sum (hostile s21: left out)
-        ordinal = set(ordinal_item_names(result))
-        continuous = [r for r in rows if result.method.items is Items.MIXED and not shown(r.observed_sum_omega)
-                      and r.level != "higher-order" and r.bifactor is None and shown(r.omega)
-                      and not ordinal & set(r.items)]
+        only_continuous, mixed = factors_by_item_kind(result, rows)
+        continuous = [r for r in rows if r.factor in only_continuous and r.level != "higher-order"
+                      and r.bifactor is None and shown(r.omega)]
         parts = []
         if found:
             values = _list([f"{unit(r.observed_sum_omega, 2)} for {_name(r.factor)}" for r in found])
             parts.append(f"The reliability of the factors' keyed sums of the answers' codes (the omega of the observed "
                          f"sum, from the fitted thresholds, loadings and factor variances; Green & Yang, 2009) was "
                          f"{values}{_keyed_sum_words(found)}.")
+        general = [r for r in parts_of if r.bifactor is BifactorPart.GENERAL]
+        specific = [r for r in parts_of if r.bifactor is BifactorPart.SPECIFIC]
+        if general:
+            parts.append(f"For the general factor{'s' if len(general) > 1 else ''} of the bifactor model, omega "
+                         f"hierarchical of the keyed sum of the answers' codes, the share of that sum's variance due to "
+                         f"the general factor alone (from the fitted thresholds, loadings and factor variances; Green & "
+                         f"Yang, 2009; Rodriguez, Reise & Haviland, 2016), was "
+                         f"{_list([f'{unit(r.observed_sum_omega, 2)} for {_name(r.factor)}' for r in general])}"
+                         f"{_keyed_sum_words(general)}.")
+        if specific:
+            parts.append(f"Omega hierarchical subscale of the keyed subscale sum of the answers' codes, the share due "
+                         f"to a specific factor beyond the general factor (Rodriguez, Reise & Haviland, 2016), was "
+                         f"{_list([f'{unit(r.observed_sum_omega, 2)} for {_name(r.factor)}' for r in specific])}"
+                         f"{_keyed_sum_words(specific)}.")
         if continuous:
             values = _list([f"{unit(r.omega, 2)} for {_name(r.factor)}" for r in continuous])
             parts.append(f"For the keyed sum scores of the factors of continuous items, omega (McDonald, 1999) was "
                          f"{values}{_keyed_sum_words(continuous)}.")
+        if mixed:  # the table's note says it; the paragraph too (hostile s22: the paragraph said nothing of them)
+            parts.append(mixed_kinds_sentence(mixed, paper=True))
         return " ".join(parts)
     first = [r for r in rows if r.level != "higher-order" and r.bifactor is None and shown(r.omega)]
     higher = [r for r in rows if (r.level == "higher-order" or r.bifactor is BifactorPart.GENERAL)
@@ -1034,11 +1113,11 @@ def _factor_means_sentence(result) -> str:
     every = {r.variables[0] for r in means}
     if len(at_zero) == len(labels):
         return "The factor means were fixed at zero in every group."
-    parts = [f"fixed at zero in {'group' if len(at_zero) == 1 else 'groups'} {_list([prose_group(g, labels) for g in at_zero])}"] if at_zero else []
+    parts = [f"fixed at zero in {'group' if len(at_zero) == 1 else 'groups'} {_list([written_group(g, labels) for g in at_zero])}"] if at_zero else []
     whole = [g for g in labels if estimated[g] and set(estimated[g]) == every]
     if whole:
-        parts.append(f"estimated in {'group' if len(whole) == 1 else 'groups'} {_list([prose_group(g, labels) for g in whole])}")
-    parts += [f"estimated for {_names(estimated[g])} in group {prose_group(g, labels)}" for g in labels
+        parts.append(f"estimated in {'group' if len(whole) == 1 else 'groups'} {_list([written_group(g, labels) for g in whole])}")
+    parts += [f"estimated for {_names(estimated[g])} in group {written_group(g, labels)}" for g in labels
               if estimated[g] and g not in whole]
     return f"The factor means were {_list(parts)}." if parts else ""
 
@@ -1078,7 +1157,10 @@ def _latent_response_sentence(result) -> str:
     for g in result.groups:
         patterns.setdefault((state("intercept", g.label, 0.0), state("residual_variance", g.label, 1.0)),
                             []).append(g.label)
-    phrases = [f"intercepts {a} and residual variances {b} in {_names(labels) if len(patterns) > 1 else 'every group'}"
+    every = group_labels(result)  # each group named by the one rule of group names (s22: '"8"', no 'group', here)
+    phrases = [f"intercepts {a} and residual variances {b} in "
+               + (f"{'group' if len(labels) == 1 else 'groups'} {_list([written_group(g, every) for g in labels])}"
+                  if len(patterns) > 1 else "every group")
                for (a, b), labels in patterns.items()]
     return (f"The latent responses behind the ordinal items had {'; '.join(phrases)} (the identification of Wu & "
             f"Estabrook, 2016).")
@@ -1149,7 +1231,7 @@ def methods_paragraph(result) -> str:
         if departures:
             parts.append(departures)
         if d.invariant:
-            parts.append(f"Held equal across groups: {_list(equality_words(d.invariant))}" + _exceptions(d) + ".")
+            parts.append(_held_equal_sentences(d))
         elif result.multigroup and _stated(result):  # nothing estimated: the stated values are what holds
             parts.append(_stated_groups_sentence(result, d))
         elif result.multigroup:  # a reviewer must not take the groups' estimates for invariant ones
@@ -1238,12 +1320,12 @@ def methods_paragraph(result) -> str:
                      and r.variables[1] in result.observed]
         if items:
             parts.append(f"The method factor {_name(factor)} was indicated by {_names(items)}; its standardized loadings "
-                         f"{_range(on_factor)}.")
+                         f"{_range(on_factor)}{across if len(on_factor) > 1 else ''}.")
     higher = {r.variables[0] for r in result.estimates if r.kind == "loading" and r.variables[1] not in result.observed}
     if second:
         what = ("The standardized loadings of the factors on the higher-order factor" if len(higher) == 1 else
                 "The standardized loadings of the first-order factors on the higher-order factors")
-        parts.append(f"{what} {_range(second)}.")
+        parts.append(f"{what} {_range(second)}{across if len(second) > 1 else ''}.")  # every group's, as the items'
     # the estimated correlations: one the model fixes (at 0 in a bifactor model) the methods part states
     correlated = [r for r in result.estimates if r.kind == "factor_covariance" and r.free]
     corr = [r.standardized for r in correlated]
@@ -1367,7 +1449,7 @@ def scores_paragraph(result) -> str:
                      f"{'has' if sum(empty.values()) == 1 else 'have'} no score ("
                      + "; ".join(f"{why.words}: {count_text(n)}" for why, n in empty.items() if isinstance(why, NotScored)) + ").")
     for q in result.quality:
-        where = f" in group {prose_group(q.group, group_labels(fit))}" if grouped and q.group is not None else ""
+        where = f" in group {written_group(q.group, group_labels(fit))}" if grouped and q.group is not None else ""
         if hasattr(q, "methods"):
             parts.append(f"With every item answered, the determinacy of the factors{where} (the correlation of the "
                          f"regression scores with their factor; Grice, 2001) was {_values_of(q.factors, q.determinacy)}.")
@@ -1421,8 +1503,8 @@ def _model_sentences(name: str, result, keys_said: bool = False) -> str:
     if departures:
         parts.append(departures.replace("The model also included", f"{name} also included", 1))
     if result.multigroup:  # what distinguishes grouped models: their equalities across groups
-        parts.append(f"{name} held {_list(equality_words(d.invariant))} equal across groups" + _exceptions(d) + "."
-            if d.invariant else f"{name} held no parameter equal across groups (the same pattern in every group).")
+        parts.append(_held_equal_sentences(d, name) if d.invariant else
+                     f"{name} held no parameter equal across groups (the same pattern in every group).")
     return " ".join(parts)
 
 
@@ -1760,12 +1842,28 @@ def _small_groups(result) -> str:
     labels = group_labels(result) or tuple(f.group for f in small)
     if len(small) == 1:
         (facts,) = small
-        return (f"Group {prose_group(facts.group, labels)} had {count_text(facts.rows)} rows for the {facts.parameters} free "
+        return (f"Group {written_group(facts.group, labels)} had {count_text(facts.rows)} rows for the {facts.parameters} free "
                 f"parameters of its model{facts.besides()}, so its estimates, and every comparison with the other groups, rest on too "
                 f"few answers.")
-    named = _list([f"{prose_group(f.group, labels)} ({count_text(f.rows)} rows for {f.parameters} parameters)" for f in small])
+    named = _list([f"{written_group(f.group, labels)} ({count_text(f.rows)} rows for {f.parameters} parameters)" for f in small])
     return (f"Groups {named} had fewer rows than the free parameters of their model, so their estimates, and every "
             f"comparison with the other groups, rest on too few answers.")
+
+
+def _ladder_means(steps, groups) -> str:
+    """Where the ladder's models fixed the factor means and where they estimated them, read from each step's own mean
+    parameters: at zero in every group until the first step that estimates some (scalar, with intercepts held equal),
+    from which on the reference group's stay at zero (s22: 'the factor means of group north were fixed at zero' said
+    of the configural model, whose means are zero in every group)."""
+    reference = written_group(groups[0], groups)
+    estimated = next((s.level for s in steps if any(r.kind == "mean" and r.free for r in s.result.estimates)), None)
+    if estimated is None:
+        return "the factor means were fixed at zero in every group at every step"
+    if estimated == steps[0].level:
+        return f"the factor means were fixed at zero in group {reference}, the reference group"
+    return (f"the factor means were fixed at zero in every group up to the {estimated} step, from which on they were "
+            f"estimated in the other groups against group {reference}, the reference group, whose means stayed at "
+            f"zero")
 
 
 def invariance_paragraph(result, levels) -> str:
@@ -1792,8 +1890,8 @@ def invariance_paragraph(result, levels) -> str:
     if d is not None:
         shape = _shape(first, d)
         parts.append(f"The configural model had {_structure(d, shape).rstrip(',')}, with the same pattern in every "
-                     f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
-                     f"group {prose_group(result.groups[0], result.groups)} were fixed at zero.")
+                     f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); "
+                     f"{_ladder_means(steps, result.groups)}.")
         parts += _scale_sentences(d, getattr(result, "data_problems", ()))
         carried = next(((step.level, step.result.description) for step in steps[1:] if step.result.description
                         is not None and any(s.method == CARRIED_BY_LOADINGS for _, own in
@@ -1881,7 +1979,7 @@ def invariance_paragraph(result, levels) -> str:
                      f"that did not hold, so {'they compare' if len(conditional) > 1 else 'it compares'} models "
                      f"already rejected.")
     if result.latent_differences:
-        diffs = "; ".join(f"{_name(x.factor)} in group {prose_group(x.group, result.groups)}, {num(x.mean, 2)} "
+        diffs = "; ".join(f"{_name(x.factor)} in group {written_group(x.group, result.groups)}, {num(x.mean, 2)} "
                           f"(SE = {num(x.se, 2)}, {_p(x.p_value)}, "
                           f"d = {num(x.standardized, 2)})" for x in result.latent_differences)
         scalar = next(k for k, s in enumerate(steps) if s.level == "scalar")
@@ -1889,7 +1987,7 @@ def invariance_paragraph(result, levels) -> str:
         source = (f"atent mean differences from the "
                   f"{'partially invariant ' if any(s.partly_equal for s in steps if s.level != 'strict') else ''}"
                   f"scalar model")
-        against = f"against group {prose_group(result.groups[0], result.groups)} (d: over the pooled latent standard deviation): {diffs}."
+        against = f"against group {written_group(result.groups[0], result.groups)} (d: over the pooled latent standard deviation): {diffs}."
         parts.append(f"Resting on {basis}, the l{source} cannot be read as established; {against}" if basis else
                      f"L{source}, {against}")
         totals = list(dict.fromkeys(x.factor for x in result.latent_differences if x.total))

@@ -22,7 +22,8 @@ from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
 from cfa_tool.reporting.numbers import (fit_index_text, guide_text, missing, num, p_phrase, p_value, short, unit,
                                         word_list)
-from cfa_tool.reporting.paragraph import group_labels, mcar_score_tests, ordinal_item_names
+from cfa_tool.reporting.paragraph import (factors_by_item_kind, group_labels, mcar_score_tests,
+                                         mixed_kinds_sentence)
 from cfa_tool.reporting.remedies import Remedy
 
 GUIDE_NOTE = (
@@ -1000,12 +1001,9 @@ def _continuous_factors_sentence(result, rows) -> str:
     """With ordinal and continuous items in one fit, which factors the ordinal reading of the reliability table does not
     describe (hostile s21: the note called every factor's figures the latent responses' while two factors had
     continuous items only): those of continuous items, whose figures are their keyed item sum's, and those mixing both
-    kinds, which get no omega of the answers' sum."""
-    if result.method.items is not Items.MIXED:
-        return ""
-    ordinal = set(ordinal_item_names(result))
-    continuous = [r.factor for r in rows if not ordinal & set(r.items)]
-    mixed = [r.factor for r in rows if ordinal & set(r.items) and not set(r.items) <= ordinal]
+    kinds, which get no omega of the answers' sum (paragraph.factors_by_item_kind, paragraph.mixed_kinds_sentence:
+    the methods paragraph's rule and words)."""
+    continuous, mixed = factors_by_item_kind(result, rows)
     parts = []
     if continuous:
         many = len(continuous) > 1
@@ -1013,9 +1011,7 @@ def _continuous_factors_sentence(result, rows) -> str:
                      f"{'have' if many else 'has'} no Sum omega: {'their' if many else 'its'} columns describe the keyed "
                      f"sum of the items' own values.")
     if mixed:
-        many = len(mixed) > 1
-        parts.append(f"The factor{'s' if many else ''} {word_list(mixed)}, with ordinal and continuous items, "
-                     f"{'have' if many else 'has'} no Sum omega.")
+        parts.append(mixed_kinds_sentence(mixed))
     return " ".join(parts) + (" " if parts else "")
 
 

@@ -12,7 +12,7 @@ from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATE
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.data.groups import reference_words
-from cfa_tool.language.names import names_text, prose_group, written_group
+from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
 from cfa_tool.note_parts import Command, Note, TableReference, Text, joined
@@ -20,7 +20,7 @@ from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANG
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, cfi_not_defined_sentence, compared_cfi_not_defined,
-                                          comparison_paragraph, design_sentence,
+                                          comparison_paragraph, group_labels, design_sentence,
                                           mcar_score_tests, reversed_across_groups, reversed_loadings,
                                           invariance_paragraph, replication_paragraph)
 from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text, missing, needed_decimals, num,
@@ -47,9 +47,17 @@ def _admissible_cell(result) -> str:
 
 def _problem_lines(named_results) -> list[str]:
     """One line per solution that is not admissible (problems first in every view)."""
-    return [f"The solution of {name} is not admissible (" + "; ".join(p.phrase() for p in r.problems if p.kind.inadmissible)
+    return [f"The solution of {name} is not admissible (" + "; ".join(p.phrase(groups=group_labels(r)) for p in r.problems
+                                                                      if p.kind.inadmissible)
             + "): do not interpret its estimates or fit, and do not choose it over another model on its fit."
             for name, r in named_results if r.converged and not r.admissible]
+
+
+def _in_group(problem, result) -> str:
+    """'group north: ' before a problem of one group of ``result``, the group named among the fit's groups by the one
+    rule of group names (language.names.written_group; s22: these lines wrote the label bare, a label with a space
+    running into the sentence); '' for a problem of the whole model."""
+    return "" if problem.group is None else f"group {written_group(problem.group, group_labels(result))}: "
 
 
 def _failed_lines(named_results) -> list[Text]:
@@ -70,7 +78,7 @@ def _failed_lines(named_results) -> list[Text]:
                "its estimation did not converge (" + r.message + ")")
         lines.append(f"{name} could not be estimated: " + why + "; nothing of it is a result, and no model is tested "
                      "against it." + advice)
-        lines += [f"{name}: " + (f"group {p.group}: " if p.group is not None else "") + p.line() for p in r.problems
+        lines += [f"{name}: " + _in_group(p, r) + p.line() for p in r.problems
                   if p.kind in (ProblemKind.SMALL_SAMPLE, ProblemKind.SMALL_GROUP)]
     return lines
 
@@ -97,7 +105,7 @@ def _caution_lines(named_results, poor_fit: bool = True, small_groups: bool = Tr
     baseline: list[str] = []
     for name, r in named_results:
         for p in getattr(r, "problems", ()) if r.converged else ():
-            line = f"{name}: " + (f"group {p.group}: " if p.group is not None else "") + p.line()
+            line = f"{name}: " + _in_group(p, r) + p.line()
             if p.kind in kinds and line not in lines:
                 lines.append(line)
             elif only is None and p.kind is ProblemKind.UNINFORMATIVE_BASELINE and not baseline:
@@ -586,7 +594,9 @@ def _comparison_group_lines(comparison) -> tuple[str, ...]:
         held.append(f"model {k} ({name}): {words}" + (f" (with {len(d.noninvariant)} exception"
                                           f"{'s' if len(d.noninvariant) > 1 else ''})" if d is not None and
                                           d.invariant and d.noninvariant else ""))
-    return (f"Groups defined by {first.group_column}: {', '.join(f'{g.label} ({count_text(g.data.n_obs)} rows)' for g in first.groups)}.",
+    labels = group_labels(first)  # each named by the one rule of group names (s22: bare beside the quoted reference)
+    return (f"Groups defined by {first.group_column}: "
+            f"{', '.join(f'{written_group(g.label, labels)} ({count_text(g.data.n_obs)} rows)' for g in first.groups)}.",
             f"Held equal across groups: {'; '.join(held)}.")
 
 
@@ -676,9 +686,12 @@ def _declared_note(steps) -> str:
     d = steps[0].result.description
     every = [f"{_parameter(ref, d)} (from the {level} step)" for ref, level in first.items() if ref[2] is None]
     one = [f"{_parameter(ref, d)} (from the {level} step)" for ref, level in first.items() if ref[2] is not None]
-    said = ([f"not held equal across groups, {word_list(every)}"] if every else []) + (
-        [f"set apart in one group, the other groups' held equal, {word_list(one)}"] if one else [])
-    return (f"Partial invariance declared in the model file: {'; '.join(said)}; the steps marked partial hold every "
+    # sentences, each group named by the one rule (language.names.written_group through parameter_words; s22)
+    others = ("set apart from the other group's" if d is not None and len(d.groups) == 2 else
+              "set apart from the other groups', which stay held equal among themselves")
+    said = ([f"{word_list(every)} {'is' if len(every) == 1 else 'are'} not held equal across groups"] if every else []) + (
+        [f"{word_list(one)} {'is' if len(one) == 1 else 'are'} {others}"] if one else [])
+    return (f"Partial invariance declared in the model file: {'; '.join(said)}. The steps marked partial hold every "
             f"other equality of their level.")
 
 
@@ -867,7 +880,7 @@ def invariance_report(result) -> Report:
     from cfa_tool.workflows.invariance import LEVELS, ORDINAL_LEVELS
 
     return Report(ResultKind.INVARIANCE, f"Measurement invariance across {result.group_column} "
-                  f"({', '.join(prose_group(g, result.groups) for g in result.groups)})",  # a title: as prose (s20)
+                  f"({', '.join(written_group(g, result.groups) for g in result.groups)})",  # a title: as prose (s20)
                   notice, lines, tuple(tables), tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE),
                   invariance_paragraph(result, ORDINAL_LEVELS if ordinal else LEVELS),
                   warnings=T.higher_order_cautions(first) + tuple(getattr(result, "notes", ())))

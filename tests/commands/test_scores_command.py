@@ -249,11 +249,11 @@ def test_python_entry_point_with_groups(hs_data):
     assert result.table.iloc[:, -2:].isna().all().all()  # nothing to say: no 'reversed' statement, every row scored
     assert [q.group for q in result.quality] == ["Grant-White", "Pasteur"]  # one quality record per group
     assert result.to_dict()["methods"] == ["bartlett"] and result.to_dict()["fit"]["group_column"] == "school"
-    # groups named by the one rule (language.names.written_group): 'Grant-White' needs quotes, so every group has them
+    # groups named by the one rule (language.names.written_group): one word each, so as they are (s22)
     from cfa_tool.language.names import written_group
-    assert written_group("Pasteur", ("Grant-White", "Pasteur")) == '"Pasteur"'
-    assert 'Quality of the scores (group "Pasteur")' in result.summary()
-    assert 'Quality of the scores (group "Grant-White")' in result.summary()
+    assert written_group("Pasteur", ("Grant-White", "Pasteur")) == "Pasteur"
+    assert "Quality of the scores (group Pasteur)" in result.summary()
+    assert "Quality of the scores (group Grant-White)" in result.summary()
     assert "<table" in result._repr_html_()
     # a configural fit (free intercepts, factor means 0) reproduces each group's item means, so each group's
     # linear scores alpha + W'(x - mu) average to alpha = 0 in that group: each row used its own group's parameters

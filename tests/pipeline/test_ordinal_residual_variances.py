@@ -132,7 +132,7 @@ def test_the_methods_text_says_which_residual_variances_a_fit_in_groups_fixed():
     assert ("had intercepts fixed at 0 and residual variances fixed at 1 (a1's at 0.3) in every group") in text
     held = " ".join(methods_paragraph(cfa_tool.fit(ITEMS + "fix variance(a1) = 0.3\ninvariance thresholds\n", data,
                                                    ordinal="all", group="grp")).split())
-    assert "residual variances estimated (except a1 fixed at 0.3) in south" in held
+    assert "residual variances estimated (except a1 fixed at 0.3) in group south" in held  # named as every sentence names a group (s22)
     assert "partly estimated" not in text + held
 
 

@@ -37,7 +37,7 @@ def test_a_group_smaller_than_its_model_is_named_first(three_schools):
     # after the problems that make the solution not admissible, before every other caution
     first = [p for p in result.problems if p.kind.inadmissible]
     assert result.problems[len(first)] is small[0]
-    assert str(T.problem_notice(result).lines[len(first)]).startswith('Group "Annex": 20 rows')
+    assert str(T.problem_notice(result).lines[len(first)]).startswith('Group Annex: 20 rows')
     # groups of 145 and 136 rows get no caution, nor does anything without groups
     assert not any(p.kind is ProblemKind.SMALL_GROUP for p in cfa_tool.fit(THREE_FACTORS, three_schools).problems)
 
@@ -51,7 +51,7 @@ def test_each_group_below_five_rows_per_parameter_gets_the_samples_note(hs_data)
     result = cfa_tool.fit(THREE_FACTORS, two, group="school")
     said = [w for w in result.warnings if "rows per free parameter of the group's model" in w]
     assert len(said) == 1 and said[0].startswith(
-        'groups "Grant-White" (100 rows for 21 parameters, 4.7 per parameter) and "Pasteur" (90 rows for 21 '
+        'groups Grant-White (100 rows for 21 parameters, 4.7 per parameter) and Pasteur (90 rows for 21 '
         'parameters, 4.2 per parameter): fewer than 5 rows per free parameter of the group\'s model, not counting its '
         '9 item intercepts')
     assert [n for n in cfa_tool.check(THREE_FACTORS, two, group="school").notes if n == said[0]]
@@ -70,7 +70,7 @@ def test_the_same_rows_are_judged_alike_as_a_sample_and_as_a_group(hs_data):
                                          "means that full-information ML estimates beside them)")
     grouped = pd.concat([pasteur, data[data.school == "Grant-White"]])
     said = [w for w in cfa_tool.fit(THREE_FACTORS, grouped, group="school").warnings if "per parameter" in w]
-    assert said and said[0].startswith('group "Pasteur" (90 rows for 21 parameters, 4.2 per parameter)')
+    assert said and said[0].startswith('group Pasteur (90 rows for 21 parameters, 4.2 per parameter)')
 
 
 def test_check_lists_each_groups_rows_and_the_caution(three_schools):
@@ -92,7 +92,7 @@ def test_invariance_names_the_small_group_first(three_schools):
     assert result.warnings[0].startswith("the configural model's solution is not admissible (a negative residual "
                                          "variance of x3")
     # (a Note: its advice's option a Command part, re-check s18)
-    assert said(result.warnings[1], RUNNING).startswith('Group "Annex": 20 rows for the 21 free parameters')
+    assert said(result.warnings[1], RUNNING).startswith('Group Annex: 20 rows for the 21 free parameters')
     # groups of 145 and 136 rows are above 5 rows per parameter of the configural model: no note
     assert not [n for n in result.notes if "rows per free parameter" in n]
 
@@ -102,5 +102,5 @@ def test_a_fit_that_fails_in_a_small_group_says_so_first(hs_data):
 
     data = hs_data.reset_index(drop=True)[ITEMS + ["school"]].copy()
     data.loc[data.index[data.school == "Pasteur"][:20], "school"] = "Annex"  # 20 rows: the search does not converge
-    with pytest.raises(EstimationError, match=r"^Group \"Annex\": 20 rows for the 21 free parameters.*did not converge"):
+    with pytest.raises(EstimationError, match=r"^Group Annex: 20 rows for the 21 free parameters.*did not converge"):
         cfa_tool.fit(THREE_FACTORS, data, group="school")

@@ -44,7 +44,7 @@ def test_a_small_ordinal_group_is_named_with_the_count_of_its_rows_alone_and_its
     (said,) = _said(cfa_tool.fit(THREE_FACTORS, data, group="school", ordinal="all"))
     # 55 rows for 12 parameters: 4.5 per parameter (4.58 cut, not rounded), below the common rule of thumb of 5
     # (Bentler & Chou 1987, recalled from memory)
-    assert said.startswith('group "Grant-White" (55 rows for 12 parameters, 4.5 per parameter): fewer than 5 rows '
+    assert said.startswith('group Grant-White (55 rows for 12 parameters, 4.5 per parameter): fewer than 5 rows '
                            "per free parameter of the group's model, not counting its 27 thresholds (")
     (alone,) = _said(cfa_tool.fit(THREE_FACTORS, data[data.school == "Grant-White"], ordinal="all"))
     assert alone.startswith("55 rows for the 12 free parameters of the model, fewer than 5 per parameter (4.5 per")

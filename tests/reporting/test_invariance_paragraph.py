@@ -30,12 +30,13 @@ def partial_ladder(hs_data):
 
 def test_the_paragraph_names_the_ladder_the_groups_and_the_test(partial_ladder):
     text = _text(partial_ladder)
-    # the groups as prose names them (new-user trial s20: one-word labels unquoted, language.names.prose_group)
+    # the groups as prose names them (new-user trial s20: one-word labels unquoted, language.names.written_group)
     assert text.startswith('Measurement invariance across school (two groups: Grant-White, n = 145; Pasteur, n = 156)')
     assert ("configural, metric (loadings equal across groups), scalar (loadings and intercepts equal across groups), "
             "and strict (loadings, intercepts, and error variances and covariances equal across groups)") in text
     assert "The configural model had nine indicators of three correlated factors (visual, textual, and speed)" in text
-    assert 'the factor means of group Grant-White were fixed at zero' in text
+    assert ('the factor means were fixed at zero in every group up to the scalar step, from which on they were '
+            'estimated in the other groups against group Grant-White, the reference group') in text
     assert "the likelihood-ratio chi-square difference test (Steiger, Shapiro & Browne, 1985)" in text
     assert "The configural model did not hold (\u03c7\u00b2(48) = 115.85, p < .001" in text
     assert "Metric invariance held (\u03c7\u00b2(6) = 8.19, p = .224" in text

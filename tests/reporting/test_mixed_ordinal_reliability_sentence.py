@@ -46,5 +46,36 @@ def test_the_table_says_which_factors_its_ordinal_reading_does_not_describe(ride
     table = reliability_table(result)
     note = " ".join(str(table.note).split())
     assert "The factors comfort and courtesy, whose items are continuous, have no Sum omega" in note
-    assert "The factor punctuality, with ordinal and continuous items, has no Sum omega." in note
+    assert "The factor punctuality, with ordinal and continuous items, has no Sum omega (" in note
     assert "the others for the latent responses" not in table.title
+
+
+def test_the_paragraph_names_the_factors_mixing_both_kinds(rider_demo):
+    """A factor of ordinal and continuous items has no omega of the answers' sum (Green & Yang 2009 define it for a
+    sum of ordinal answers): the table's note said so and the methods paragraph said nothing of the factor (hostile
+    s22); both now say it, in one wording (paragraph.mixed_kinds_sentence)."""
+    from cfa_tool.reporting.tables import reliability_table
+
+    result = cfa_tool.fit(RIDER, rider_demo, ordinal=["on_time", "short_wait"])
+    text = " ".join(methods_paragraph(result).split())
+    assert ("The factor punctuality, with ordinal and continuous items, has no omega of the answers' sum (Green & "
+            "Yang, 2009, give it for a sum of ordinal answers alone), so no reliability of its keyed sum score is "
+            "reported.") in text
+    note = " ".join(str(reliability_table(result).note).split())
+    assert ("The factor punctuality, with ordinal and continuous items, has no Sum omega (Green & Yang 2009 give it "
+            "for a sum of ordinal answers alone)") in note
+    # every factor of ordinal items only: no such sentence
+    whole = cfa_tool.fit(RIDER, rider_demo, ordinal=["on_time", "short_wait", "accurate_info", "easy_transfer"])
+    assert "with ordinal and continuous items" not in " ".join(methods_paragraph(whole).split())
+
+
+def test_a_mixed_fit_in_groups_says_its_continuous_moments_in_one_aside(rider_demo):
+    """In groups, least squares fits the continuous items' means and variances beside the correlations: said inside the
+    aside that names the ordinal items, not in a second parenthesis right after it (s22: '... as continuous) (and the
+    means and variances of the continuous items)')."""
+    result = cfa_tool.fit(RIDER + "invariance scalar\n", rider_demo, group="district",
+                          ordinal=["on_time", "short_wait"])
+    text = " ".join(methods_paragraph(result).split())
+    assert ("(on_time and short_wait treated as ordinal, the other ten items as continuous, their means and variances "
+            "fitted beside the correlations), with robust standard errors") in text
+    assert ") (" not in text

@@ -65,8 +65,8 @@ def test_an_ordinal_fit_in_groups_says_how_its_latent_responses_were_identified(
     assert _latent_responses(result, "west") == ({True}, {True})  # free once thresholds are equal (Wu & Estabrook)
     text = _flat(methods_paragraph(result))
     assert ("The latent responses behind the ordinal items had intercepts fixed at 0 and residual variances fixed at 1 "
-            "in east; intercepts estimated and residual variances estimated in west (the identification of Wu & "
-            "Estabrook, 2016).") in text
+            "in group east; intercepts estimated and residual variances estimated in group west (the identification of "
+            "Wu & Estabrook, 2016).") in text  # each group named as every sentence names it (s22: 'in east')
     configural = cfa_tool.fit(model, data, group="site", ordinal="all")
     assert _latent_responses(configural, "west") == ({False}, {False})
     assert ("intercepts fixed at 0 and residual variances fixed at 1 in every group"
@@ -103,7 +103,7 @@ def test_a_fit_in_groups_without_equalities_says_none_were_imposed(hs_data):
             "the same pattern in every group.") in text
     held = " ".join(methods_paragraph(cfa_tool.fit(THREE_FACTORS + "invariance metric\n", hs_data,
                                                    group="school")).split())
-    assert "No invariance constraints" not in held and "Held equal across groups: loadings" in held
+    assert "No invariance constraints" not in held and "Loadings were held equal across groups" in held
 
 
 def test_loadings_and_correlations_of_every_group_are_said_to_span_the_groups():
@@ -123,3 +123,17 @@ def test_loadings_and_correlations_of_every_group_are_said_to_span_the_groups():
     assert len(corr) == 6  # three correlations in each school, each standardized in its own school
     assert (f"Factor correlations ranged from {min(corr):.2f} to {max(corr):.2f} across the two groups."
             .replace("0.", ".")) in text
+
+
+def test_the_higher_order_loadings_of_a_fit_in_groups_span_the_groups(rider_demo):
+    """The higher-order factor's loadings of every group make one range, as the items' do: the sentence says so (s22:
+    'across the two groups' after the items' range and not after the factors')."""
+    from cfa_tool.resources import resource_dir
+
+    model = (resource_dir("models") / "rider_higher_order.cfa").read_text() + "invariance metric\n"
+    result = cfa_tool.fit(model, rider_demo, group="district")
+    second = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[0] == "service"]
+    assert len(second) == 6  # three factors in each of two groups
+    text = _flat(methods_paragraph(result))
+    assert (f"The standardized loadings of the factors on the higher-order factor ranged from "
+            f"{min(second):.2f} to {max(second):.2f} across the two groups.").replace(" 0.", " .") in text

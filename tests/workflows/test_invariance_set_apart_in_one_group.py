@@ -1,7 +1,7 @@
 """A parameter set apart in one group ('in group east: noninvariant intercept(x2)', twentieth session) in the
 invariance ladder, fit's methods paragraph and compare.  The ladder holds it in force from the step that holds its
 class equal, names its group in the report, the JSON and the methods paragraph ("set apart from the other groups'
-(held equal among them)"), and computes the latent mean differences with it; compare counts it (one degree of
+(held equal among themselves)"), and computes the latent mean differences with it; compare counts it (one degree of
 freedom against the full scalar model, one more for the exemption in every group).
 
 Data: an invented three-site survey simulated with a fixed seed, in which the only difference in measurement is the
@@ -74,11 +74,11 @@ def test_the_report_the_json_and_the_methods_paragraph_name_its_group(ladders):
     _, declared, _ = ladders
     report = invariance_report(declared)
     text = " ".join(" ".join(map(str, report.notes)).split())
-    assert ("Partial invariance declared in the model file: set apart in one group, the other groups' held "
-            "equal, the intercept of x2 in group east (from the scalar step)") in text
+    assert ("Partial invariance declared in the model file: the intercept of x2 in group east (from the scalar "
+            "step) is set apart from the other groups', which stay held equal among themselves.") in text
     paragraph = " ".join(report.paragraph.split())
     assert ("Scalar invariance, partial with the intercept of x2 in group east set apart from the other groups' "
-            "(held equal among them), held") in paragraph
+            "(held equal among themselves), held") in paragraph
     steps = json.loads(json.dumps(declared.to_dict()))["steps"]
     assert steps[2]["declared_not_equal"] == [{"kind": "intercept", "variables": ["x2"], "group": "east"}]
 
@@ -87,8 +87,8 @@ def test_fits_methods_paragraph_names_it_beside_an_exemption_in_every_group(ladd
     data = ladders[0]
     result = cfa_tool.fit("factor f: x1, x2, x3, x4\ninvariance scalar\nnoninvariant intercept(x3)\n"
                           "in group east: noninvariant intercept(x2)\n", data, group="site")
-    assert ("Held equal across groups: loadings and intercepts, except the intercept of x3; the intercept of x2 in "
-            "group east was set apart from the other groups', which were held equal.") in " ".join(
+    assert ("Loadings and intercepts were held equal across groups, except the intercept of x3. The intercept of x2 "
+            "in group east was set apart from the other groups', which were held equal among themselves.") in " ".join(
         methods_paragraph(result).split())
     described = result.description.to_dict()["noninvariant"]
     assert {"kind": "intercept", "variables": ["x2"], "group": "east"} in described
