@@ -2,7 +2,8 @@
 trial s22, problem 3: with two row filters keeping 267 of 1,400 rows, the note said the 870 cells of the whole file
 where 188 were read so in the rows analysed), as the caution on codes set apart from the answer scale counts them:
 values a file declares missing (SPSS), codes given with --missing-codes, the caution when rows leave the analysis
-because of them, and codes labelled like no answer that lie between the answers and stay answers.
+because of them, and codes labelled like no answer that lie between the answers and stay answers.  And the check's
+count of rows grouped by thousands, as every other line writes it ('1,200 read', not '1200 read').
 
 The data are invented (a fictional transit agency's rider survey: ride comfort c1..c3 and staff courtesy s1..s3,
 answered 0 to 3, from two depots), written as SPSS files by pyreadstat, an independent writer of the format, and as
@@ -104,3 +105,12 @@ def test_a_code_labelled_like_no_answer_between_the_answers_is_counted_in_the_ro
     assert f"and was analysed as an answer ({sum(cells.values()):,} cells: " in note
     assert all(f"{c} {n}" in note for c, n in cells.items())
 
+
+def test_the_check_counts_rows_by_thousands(tmp_path, riders):
+    path = tmp_path / "riders.csv"
+    riders.to_csv(path, index=False)
+    # 1,200 rows, 5 with the code 8 read as no answer (CODED): 1,195 complete
+    assert "Rows: 1,200 read, 1,195 complete, 5 with missing answers" in cfa_tool.check(
+        MODEL, path, missing_codes=[8]).summary()
+    assert "Rows: 1,200 read, 600 kept by the row filter, 598 complete, 2 with missing answers" in cfa_tool.check(
+        MODEL, path, missing_codes=[8], keep=["depot = 1"]).summary()
