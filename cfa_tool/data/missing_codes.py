@@ -12,7 +12,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import count_text, user_number
 from cfa_tool.errors import clipped, printable
 from cfa_tool.input_files import base_name
 from cfa_tool.note_parts import Command, Note
@@ -87,7 +87,7 @@ def missing_codes_note(source: str | Path, codes: Collection[float | str], read_
     total = sum(n for _, n in read_as_none)
     shown = ", ".join(f"{printable(str(column))} {n}" for column, n in read_as_none[:NAMED_COLUMNS]) + (
         f" and {len(read_as_none) - NAMED_COLUMNS} more column{'s' if len(read_as_none) - NAMED_COLUMNS != 1 else ''}" if len(read_as_none) > NAMED_COLUMNS else "")
-    return Note((f"{name}: {total} {'cell' if total == 1 else 'cells'} {where + ' ' if where else ''}holding a code "
+    return Note((f"{name}: {count_text(total)} {'cell' if total == 1 else 'cells'} {where + ' ' if where else ''}holding a code "
                  f"given", with_option, f" ({given}) {'was' if total == 1 else 'were'} read as no answer ({shown})"))
 
 

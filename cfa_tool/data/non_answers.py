@@ -35,7 +35,7 @@ import pandas as pd
 
 from cfa_tool.language.spec import answer_key
 from cfa_tool.errors import DataError, clipped, printable
-from cfa_tool.numbers import names_shown, number, user_number
+from cfa_tool.numbers import count_text, names_shown, number, user_number
 from cfa_tool.input_files import DATA_FRAME, base_name
 from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
@@ -272,7 +272,7 @@ class LabelledAnswer:
         total = sum(self.cells)
         codes = [f"{user_number(c)}" for c in given if isinstance(c, (int, float))] + [f"{user_number(self.value)}"]
         return Note((f"{base_name(source)}: {user_number(self.value)} '{printable(self.label)}' lies between other answers of "
-                     f"the item{'s' if len(self.columns) != 1 else ''} and was analysed as an answer ({total} "
+                     f"the item{'s' if len(self.columns) != 1 else ''} and was analysed as an answer ({count_text(total)} "
                      f"cell{'s' if total != 1 else ''}: {listed}{more}), though its label reads like no answer",
                      Command(f"; to read it as no answer, give {Option.MISSING_CODES.given(','.join(codes))}")))
 
@@ -536,14 +536,17 @@ def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | No
     return f"values the data file marks as no answer were treated as missing ({shown})"
 
 
-def _said(found: tuple[NonAnswer, ...], source: str, items=None) -> tuple[str, str] | None:
+def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | None = None) -> tuple[str, str] | None:
     """What was read as no answer in the model's ``items`` (None: every column in ``found``), one sentence: each
-    code with its label, the items and their cells; and how to undo it.  None if nothing."""
+    code with its label, the items and their cells; and how to undo it.  None if nothing.  ``kept``: the rows row
+    filters kept, when they chose the rows (``found`` counted over them: data.kept_counts), which the sentence names."""
     mine = [f for f in found if items is None or f.column in set(items)]
     if not mine:
         return None
     frame = source == DATA_FRAME
     name = "the data frame" if frame else base_name(source)
+    if kept is not None:
+        name = f"the {count_text(kept)} row{'s' if kept != 1 else ''} of {name} that the row filters kept"
     by_value: dict[tuple, list[NonAnswer]] = {}
     for f in mine:
         by_value.setdefault((f.kind, f.value, f.label if f.kind is NonAnswerKind.LABELLED else None), []).append(f)
@@ -554,14 +557,14 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None) -> tuple[str, s
         few = names_shown(len(group), SHOWN)
         listed = ", ".join(f"{printable(f.column)} {len(f.rows)}" for f in group[:few])
         more = f" and {_more(len(group) - few, 'item')}" if len(group) > few else ""
-        parts.append(f"{group[0].shown()} ({cells} cell{'s' if cells != 1 else ''}: {listed}{more})")
+        parts.append(f"{group[0].shown()} ({count_text(cells)} cell{'s' if cells != 1 else ''}: {listed}{more})")
     total = sum(len(f.rows) for f in mine)
     kinds = {f.kind for f in mine}
     how = " and ".join(w for k, w in ((NonAnswerKind.LABELLED, "labels as no answer"),
                                       (NonAnswerKind.DECLARED, "declares as missing values"),
                                       (NonAnswerKind.WRITTEN, "writes as no answer")) if k in kinds)
     held = "text that says no answer" if frame else f"values that the file {how}"
-    said = (f"{total} cell{'s' if total != 1 else ''} of the items in {name} hold {held}, "
+    said = (f"{count_text(total)} cell{'s' if total != 1 else ''} of the items in {name} hold {held}, "
             f"read as missing, not as answers: {'; '.join(parts)}.")
     undo = "; ".join(w for k, w in ((NonAnswerKind.LABELLED, "give its code another value label"),
                                      (NonAnswerKind.DECLARED, "remove its declaration as a missing value"),
@@ -569,11 +572,13 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None) -> tuple[str, s
     return said, f"To analyse one as an answer, {undo}, in a copy of the {'data frame' if frame else 'file'}."
 
 
-def non_answer_note(found: tuple[NonAnswer, ...], source: str, items: Iterable[str] | None = None) -> str | None:
+def non_answer_note(found: tuple[NonAnswer, ...], source: str, items: Iterable[str] | None = None,
+                    kept: int | None = None) -> str | None:
     """The note of the data summary on what was read as no answer in the model's ``items`` (every view shows a
     reader's notes): what, where and how many cells, and how to undo it; None if nothing.  Whether rows leave the
-    analysis because of it is :func:`non_answer_caution`'s to say."""
-    said = _said(found, source, items)
+    analysis because of it is :func:`non_answer_caution`'s to say.  ``kept``: the rows row filters kept (``found``
+    counted over them, data.kept_counts)."""
+    said = _said(found, source, items, kept)
     return None if said is None else f"{said[0][:-1]}. {said[1][:-1]}"
 
 
@@ -593,13 +598,14 @@ def rows_lost(found: tuple[NonAnswer, ...], frame: pd.DataFrame, items: Iterable
 
 
 def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items: Iterable[str] | None, frame: pd.DataFrame,
-                       listwise: bool = False) -> tuple[str, Text] | None:
+                       listwise: bool = False, kept: int | None = None) -> tuple[str, Text] | None:
     """The one rule that makes values read as no answer (the data summary's note, :func:`non_answer_note`) a
     caution first in every view: when rows leave the analysis because of them (:func:`rows_lost`: ``listwise``
     deletion, or a row left with no answer to any item), the caution (one line) says how many rows and what was
     read, with its advice; None when every row stays (full information keeps a row with gaps), which it advises
-    with listwise deletion (groups that share clusters too: full-information ML takes their clusters)."""
-    said = _said(found, source, items)
+    with listwise deletion (groups that share clusters too: full-information ML takes their clusters).  ``kept``:
+    the rows row filters kept, when they chose the rows (``found`` counted over them, data.kept_counts)."""
+    said = _said(found, source, items, kept)
     lost = rows_lost(found, frame, items, listwise) if said is not None else 0
     if not lost:
         return None

@@ -26,6 +26,7 @@ import pandas as pd
 from cfa_tool.data.case_filter import filter_variable
 from cfa_tool.data.kept_rows import (SHEET_COLUMNS, TEXT_LINES, line_words, row_naming, row_words, rows_listed,
                                      text_lines)
+from cfa_tool.data.kept_counts import ReadingCounts, emptied_cells
 from cfa_tool.data.missing_codes import apply_missing_codes, codes_on_answers, missing_codes_note
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.notes_rows import end_of_data, notes_lines, notes_note
@@ -98,6 +99,9 @@ class LoadedData:
     #: the codes of ``missing_codes`` that some item cell held (so read as no answer): the methods paragraph names
     #: these, not a code no answer held (fixhost-s18: '-99 was treated as missing' where only a filter column held it)
     codes_found: tuple[float, ...] = ()
+    #: what the reading of no answers counted, with its notes (data.kept_counts.ReadingCounts): the notes are written
+    #: again over the rows that row filters keep
+    counts: ReadingCounts | None = None
 
     def column_hint(self) -> str:
         """Words for a message about a missing column: the columns read under new names (a name the model uses may
@@ -225,7 +229,9 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     frame, written = written_non_answers(loaded.frame, as_written, listed)  # before the codes: 'refused' made a column text
     item_labels = {c: v for c, v in loaded.value_labels.items() if c not in as_written}
     on_answers = codes_on_answers(frame, missing_codes, item_labels, mine, row_numbers(frame)) if missing_codes else ()
+    before = frame
     frame, code_notes, found = apply_missing_codes(frame, missing_codes, where, mine, filters)  # in the items only
+    coded = emptied_cells(before, frame) if missing_codes else ()  # (their notes written again over the rows kept)
     frame, labelled = labelled_non_answers(frame, item_labels, tuple(missing_codes))
     if frame is not loaded.frame:
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
@@ -234,8 +240,13 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     read_as_none = non_answer_note(loaded.non_answers, str(where), mine)  # a note; rows lost: a caution too
     if read_as_none:
         code_notes = tuple(code_notes) + (read_as_none,)
-    code_notes = tuple(code_notes) + tuple(a.note(str(where), tuple(missing_codes))  # answers whose label reads like none
-                                           for a in answers_labelled_like_none(frame, item_labels, tuple(missing_codes)))
+    like_none = tuple(a.note(str(where), tuple(missing_codes))  # answers whose label reads like none
+                      for a in answers_labelled_like_none(frame, item_labels, tuple(missing_codes)))
+    code_notes = tuple(code_notes) + like_none
+    # the notes that count cells, kept with what they counted: written again over the rows row filters keep
+    loaded = replace(loaded, counts=ReadingCounts(
+        str(where), None if mine is None else frozenset(mine), tuple(missing_codes), coded, item_labels,
+        code_notes[0] if missing_codes else None, read_as_none, like_none))
     unused = unused_run_words(written + labelled) if run_words() else ()
     if unused:  # the words of --missing-codes that no item holds: said as a code that no cell holds is
         code_notes = tuple(code_notes) + (missing_codes_note(where, unused, [], "of the items"),)

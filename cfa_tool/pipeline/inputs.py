@@ -30,6 +30,7 @@ from cfa_tool.data.labels import (CODED_LABELS, cells_as_labels, label_notes, la
 from cfa_tool.data.matching import (answer_range_notes, refuse_name_twins, check_codes_off_scales, check_columns, check_declared_ranges,
                                     chosen_columns)
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
+from cfa_tool.data.kept_counts import kept_non_answers, kept_reading_notes
 from cfa_tool.data.non_answers import also_no_answer, beyond_scale, non_answer_caution, run_words
 from cfa_tool.data.descriptives import few_category_items, few_category_note
 from cfa_tool.data.odd_values import odd_values
@@ -302,6 +303,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         loaded = half_of(loaded, halves[0], data, sheet, spec.observed_names, keeps_gaps)
         notes.append(loaded.row_filters[-1].note())
     frame, cautions, filters = loaded.frame, loaded.cautions, loaded.row_filters
+    if loaded.read_frame is not None:  # the reading's counts of cells read as no answer, over the rows kept
+        notes = kept_reading_notes(notes, loaded.counts, frame, loaded.non_answers)
     notes += [f"{loaded.source}: {note}" for note in filter_notes] if name_the_file else filter_notes
     unfinished = unfinished_rows_note(frame, loaded.source)
     if unfinished:
@@ -381,7 +384,7 @@ def rows_kept(loaded: LoadedData, filters) -> tuple[LoadedData, list[str]]:
     frame, notes, filters = apply_filters(loaded.frame, list(filters), loaded.source, loaded.value_labels,
                                           loaded.row_names)
     return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame), read_frame=loaded.frame,
-                   row_filters=tuple(filters)), notes
+                   non_answers=kept_non_answers(loaded.non_answers, frame), row_filters=tuple(filters)), notes
 
 
 def half_of(loaded: LoadedData, choice: RandomHalf, data, sheet: str | None = None, items: tuple[str, ...] = (),
@@ -394,6 +397,7 @@ def half_of(loaded: LoadedData, choice: RandomHalf, data, sheet: str | None = No
     frame, half = half_kept(loaded.frame, choice, data, loaded.source, sheet, loaded.sheet_read, items, keeps_gaps,
                             loaded.value_labels)
     return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame),
+                   non_answers=kept_non_answers(loaded.non_answers, frame),
                    read_frame=loaded.read_frame if loaded.read_frame is not None else loaded.frame,
                    row_filters=tuple(loaded.row_filters) + (half,))
 
@@ -714,7 +718,8 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
                 + odd_value_problems(loaded, helpers=helpers, listwise=listwise))
 
     items = (tuple(loaded.items.names) + tuple(helpers)) if loaded.items is not None else tuple(loaded.frame.columns)
-    marked = non_answer_caution(loaded.non_answers, loaded.source, items, loaded.frame, listwise)
+    marked = non_answer_caution(loaded.non_answers, loaded.source, items, loaded.frame, listwise,
+                                len(loaded.frame) if loaded.read_frame is not None else None)
     # a code already named as labelled beyond the scale of the same items is not named again as a missing-value code
     from cfa_tool.data.non_answers import BeyondScale
     from cfa_tool.data.odd_values import OddKind

@@ -20,6 +20,7 @@ from cfa_tool.errors import EstimationError, check_rows_counted
 from cfa_tool.language.names import names_text
 from cfa_tool.method import FitMethod
 from cfa_tool.note_parts import Text
+from cfa_tool.numbers import count_text
 from cfa_tool.numerics.plain import clean, clean_list, plain_array
 from cfa_tool.views import Presentable, scorer
 
@@ -152,7 +153,7 @@ class CheckResult(Presentable):
                     if df else f"; 0 degrees of freedom: {JUST_IDENTIFIED}.")]
         if self.groups and self.group_rows:
             lines.append(f"Groups: {len(self.groups)} (" + ", ".join(
-                f"{g}: {n} row{'s' if n != 1 else ''}" for g, n in zip(self.groups, self.group_rows))
+                f"{g}: {count_text(n)} row{'s' if n != 1 else ''}" for g, n in zip(self.groups, self.group_rows))
                 + (f"; the model has {self.group_parameters[0]} free parameters in each group"
                    if len(set(self.group_parameters)) == 1 else "") + ").")
         elif self.groups:
@@ -163,17 +164,19 @@ class CheckResult(Presentable):
             lines.extend("Note: " + note + "." for note in self.notes)
             return lines
         kept = self.rows + self.without_group + self.zero_weight
-        read = f"{kept} read" if self.rows_in_file is None else f"{self.rows_in_file} read, {kept} kept by the row filter"
+        # counts grouped by thousands as every other line writes them (numbers.count_text; new-user trial s22)
+        read = (f"{count_text(kept)} read" if self.rows_in_file is None else
+                f"{count_text(self.rows_in_file)} read, {count_text(kept)} kept by the row filter")
         if self.zero_weight:
-            read += f", {self.zero_weight} of weight 0 (left out)"
-        read = (f"{read}, {self.without_group} without a group label (left out), {self.rows} with one:"
-                if self.without_group else f"{read},")
+            read += f", {count_text(self.zero_weight)} of weight 0 (left out)"
+        read = (f"{read}, {count_text(self.without_group)} without a group label (left out), {count_text(self.rows)} "
+                f"with one:" if self.without_group else f"{read},")
         # codes for no answer, typing errors or a totals row: whatever the cautions above call them (review s13)
-        odd = (f" (and {self.complete_by_odd_values} complete only if the odd values named above are answers)"
+        odd = (f" (and {count_text(self.complete_by_odd_values)} complete only if the odd values named above are answers)"
                if self.complete_by_odd_values else "")
-        lines.append(f"Rows: {read} {self.complete} complete{odd}, {self.with_gaps} with missing answers "
+        lines.append(f"Rows: {read} {count_text(self.complete)} complete{odd}, {count_text(self.with_gaps)} with missing answers "
                      f"({'used through pairwise present rows for ordinal items' if self.ordinal else 'used by full-information ML'}, "
-                     f"the default), {self.empty} with no answer to any model variable"
+                     f"the default), {count_text(self.empty)} with no answer to any model variable"
                      + (f" ({rows_listed(self.empty_rows, naming=self.row_naming, lines=self.text_lines)})."
                         if self.empty_rows else "."))
         if self.counted is not None:

@@ -71,7 +71,7 @@ def test_a_midpoint_whose_label_reads_like_no_answer_is_analysed_with_a_note(tmp
         assert result.n_obs == plain.n_obs
         [note] = [str(n) for n in result.warnings if "lies between other answers" in n]
         assert note.startswith(f"riders.sav: 3 '{middle}' lies between other answers of the items and was analysed "
-                               f"as an answer ({threes} cells: on_time {int((data.on_time == 3).sum())}, ")
+                               f"as an answer ({threes:,} cells: on_time {int((data.on_time == 3).sum())}, ")
         assert note.endswith("though its label reads like no answer; to read it as no answer, give missing_codes=[3]")
         assert not any(p.kind in (ProblemKind.VALUES_READ_AS_MISSING, ProblemKind.ANSWERS_GIVEN_AS_MISSING)
                        for p in result.problems)
@@ -80,7 +80,7 @@ def test_a_midpoint_whose_label_reads_like_no_answer_is_analysed_with_a_note(tmp
     given = cfa_tool.fit(model, _sav(tmp_path, data, items, "Not sure / neutral"), missing_codes=[3])
     assert not any(p.kind is ProblemKind.ANSWERS_GIVEN_AS_MISSING for p in given.problems)
     assert not any("lies between other answers" in n for n in given.warnings)
-    assert any(f"{threes} cells holding a code given with missing_codes=... (3)" in n for n in given.warnings)
+    assert any(f"{threes:,} cells holding a code given with missing_codes=... (3)" in n for n in given.warnings)
 
 
 def test_a_missing_code_on_a_labelled_answer_is_a_caution_first(tmp_path, rider):
