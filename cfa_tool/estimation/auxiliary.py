@@ -167,6 +167,11 @@ class JointModel:
         self._directions = _joint_directions(model.p, r, False)
         self._layouts: dict = {}  # each group's (basis, J*) of rank_two_layout, fixed by the model
 
+    @property
+    def basis_width(self) -> int:
+        """The columns of :meth:`rank_two_layout`'s V*: the model's p + 2m and the helpers'."""
+        return self.structured.p + 2 * self.structured.m + self.r
+
     def split(self, theta: np.ndarray, g: int) -> tuple[np.ndarray, np.ndarray]:
         """(the model's theta, group g's eta)."""
         start = self.q + g * self.k

@@ -32,7 +32,7 @@ from cfa_tool.estimation.objective import Evaluation
 from cfa_tool.model.rank_two import (basis_vectors, gradient_and_information, mean_coefficients, mean_second_derivatives,
                                      path_second_derivatives, second_derivative_contraction)
 from cfa_tool.data.em import weighted_available_moments
-from cfa_tool.data.patterns import PatternData, embedded_inverse, missing_groups
+from cfa_tool.data.patterns import PatternData, embedded_inverse, missing_groups, refuse_large_patterns
 from cfa_tool.model.implied import StructuredModel
 
 
@@ -102,6 +102,8 @@ class MissingDataLikelihood:
                  groups):
         self.model = model
         self.patterns = patterns
+        # the widest stack of the patterns' matrices, their K_k = V' A_k V, within the one limit before any is made
+        refuse_large_patterns(max((len(d.counts) for d in patterns), default=0), self._basis_width(model), model.p)
         self.groups = groups  # GroupMoments holding the EM (saturated) moments, for reports and starts
         self.n_total = sum(d.n_obs for d in patterns)
         self.weights = [d.n_obs / self.n_total for d in patterns]
@@ -113,6 +115,14 @@ class MissingDataLikelihood:
         # each group's missing items by pattern, batched by their number (fixed by the data), for embedded_inverse
         self._missing = [list(missing_groups(d.observed)) for d in patterns]
         self._at = None  # the last point's per-pattern pieces: (theta's bytes, {group: pieces})
+
+    @staticmethod
+    def _basis_width(model) -> int:
+        """The columns of the rank-two route's basis V (:meth:`_layout`): p + 2m for a StructuredModel, a joint model's
+        own ``basis_width``, else the model's p."""
+        if isinstance(model, StructuredModel):
+            return model.p + 2 * model.m
+        return max(model.p, getattr(model, "basis_width", 0))
 
     def _pieces(self, theta: np.ndarray, g: int):
         """Group g's per-pattern pieces at theta: (matrices, A, log|Sigma_oo|, w, d, T), None if some Sigma_oo is
