@@ -18,10 +18,12 @@ For a model whose derivatives are rank-two (a StructuredModel: D_e = c_e (u v' +
 V = [I, C', G], :mod:`cfa_tool.model.rank_two`) every trace is a product of entries of the patterns'
 K_k = V' A_k V (and Q_k = V' A_k T_k A_k V for the observed Hessian), so the search's gradient and information,
 the observed Hessian and the modification indices need p_o^2 (p + 2m) a pattern and gathers, never a p x p
-derivative or the patterns' (p*p, p*p) weight matrix.  The general route, with whole (q, p, p) derivatives
-(``model.jacobian``) and that weight matrix a block at a time, serves the joint model of missing-data helpers,
-directions in the moments (the robust routes) and the robust score tests, and is the reference the rank-two
-route is checked against (tests/estimation/test_fiml_rank_two.py).
+derivative or the patterns' (p*p, p*p) weight matrix; the joint model of missing-data helpers and its baseline
+give their own basis (``rank_two_layout``, :mod:`cfa_tool.estimation.auxiliary`) and take the same gathers.  The
+information in the moments themselves (the robust routes and the robust score tests) is gathered from one product
+over the patterns' distinct elements (:func:`moment_second_derivatives`).  The general route, with whole (q, p, p)
+derivatives (``model.jacobian``) and that weight matrix a block at a time, is the reference both are checked
+against (tests/estimation/test_fiml_rank_two.py, tests/estimation/test_fiml_without_weight_matrix.py).
 """
 
 from __future__ import annotations
