@@ -449,7 +449,10 @@ def moment_second_derivatives(A: np.ndarray, w: np.ndarray, rows: np.ndarray, co
     if ATA is None:
         out[p:, p:] = same
         return out
-    out[p:, p:] = 2.0 * _pair_traces(A, ATA, w, rows, cols) - same  # mixed + mixed' - same, mixed symmetric
+    block = out[p:, p:]  # mixed + mixed' - same, mixed symmetric: in place, no matrix of the moments beside
+    block[...] = _pair_traces(A, ATA, w, rows, cols)
+    block *= 2.0
+    block -= same
     # d'A D_a A dmu_b = s_a sum_k w_k ((A d)_k[i] A_k[j, b] + (A d)_k[j] A_k[i, b]), the sigma rows by the mean columns
     t3 = ((Ad * w[:, None]).T @ A.reshape(P, p * p)).reshape(p, p, p)  # [i, j, b] = sum_k w_k (A d)_k[i] A_k[j, b]
     cross = (t3[rows, cols] + t3[cols, rows]) * np.where(rows == cols, 0.5, 1.0)[:, None]
@@ -471,7 +474,11 @@ def _pair_traces(X: np.ndarray, Y: np.ndarray | None, w: np.ndarray, rows: np.nd
     P, p, _ = X.shape
     iu, ju = np.triu_indices(p)
     G = (X[:, iu, ju] * w[:, None]).T @ (X if Y is None else Y)[:, iu, ju]
-    S = 2.0 * G if Y is None else G + G.T
+    if Y is None:  # G symmetric: S = 2 G, made in place
+        G *= 2.0
+        S = G
+    else:
+        S = G + G.T
     del G
     flat = S.ravel()
     width = len(iu)
