@@ -33,9 +33,10 @@ def robust_score_tests(found: ModificationIndices, model, theta: np.ndarray, lik
     and the bread is the observed information in the moments (MissingDataLikelihood.moment_hessian), as the robust
     standard errors and the Yuan-Bentler test take the observed information (valid when answers are missing at
     random, not only completely at random; Kenward & Molenberghs 1998), while h is that of the index's own
-    information (the patterns' expected information, MissingDataLikelihood.group_parts).  The expected changes stay
-    as they are.  ``sandwich``: with complete rows, the fit's inference.robust.moment_sandwich at ``theta`` (Omega
-    and each group's Delta and V, shared with its robust standard errors and test; made here when not given)."""
+    information (the patterns' expected information, MissingDataLikelihood.moment_hessian with observed=False).  The
+    expected changes stay as they are.  ``sandwich``: with complete rows, the fit's
+    inference.robust.moment_sandwich at ``theta`` (Omega and each group's Delta and V, shared with its robust standard
+    errors and test; made here when not given)."""
     if not len(found):
         return found
     index = found.index * _score_variance_ratio(model, theta, likelihood, found, sandwich)
@@ -61,7 +62,8 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
     # of the index's own information (h comes from it) only its columns of theta and the candidates' diagonal enter
     cross = np.zeros((q + k, q))
     diagonal = np.zeros(k)
-    bread = None if complete else np.zeros((q + k, q + k))  # L comes from it (with complete rows: the information)
+    # L comes from it (with complete rows: the information), of which only the columns of theta enter
+    bread = None if complete else np.zeros((q + k, q))
     weighted = []
     if complete and sandwich is None:
         sandwich = moment_sandwich(model, theta, likelihood)
@@ -73,13 +75,12 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
             delta, V = sandwich.blocks[g]
             extra = np.vstack([c_mu.T, c_sigma[:, I, J].T]) if likelihood.means else c_sigma[:, I, J].T
         else:  # means, vech: the layout of inference.robust_missing
-            from cfa_tool.inference.robust_missing import _model_directions, _moment_directions
+            from cfa_tool.inference.robust_missing import _model_directions
 
             delta = _model_directions(likelihood, theta, g)
             extra = np.vstack([c_mu.T, c_sigma[:, I, J].T])
-            directions = _moment_directions(model.p)
-            V = likelihood.group_parts(theta, g).information(*directions)  # the patterns' expected information
-            observed = likelihood.moment_hessian(theta, g, *directions)
+            V = likelihood.moment_hessian(theta, g, I, J, observed=False)  # the patterns' expected information
+            observed = likelihood.moment_hessian(theta, g, I, J)
         X = np.zeros((delta.shape[0], q + k))
         X[:, :q] = delta
         X[:, q + mine] = extra
@@ -89,7 +90,7 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
         if complete:
             weighted.append(w * VX)
         else:
-            bread += w * X.T @ observed @ X
+            bread += w * X.T @ (observed @ X[:, :q])
             weighted.append(w * X)
     if complete:
         meat = sandwich.omega.middle(weighted)

@@ -71,6 +71,7 @@ def pattern_data(rows: np.ndarray, weights: np.ndarray | None = None) -> Pattern
     mask = ~np.isnan(rows)
     patterns, index, counts = group_patterns(mask)
     P, p = patterns.shape
+    refuse_large_patterns(P, p, p)
     filled = np.where(mask, rows, 0.0)
     if weights is not None:
         counts = np.bincount(index, weights=weights, minlength=P)
@@ -80,9 +81,61 @@ def pattern_data(rows: np.ndarray, weights: np.ndarray | None = None) -> Pattern
     starts = np.searchsorted(index[order], np.arange(P))
     means = np.add.reduceat((filled * w[:, None])[order], starts, axis=0) / counts[:, None]
     centred = np.where(mask, filled - means[index], 0.0)[order]
-    scatter = np.add.reduceat((centred * w[order, None])[:, :, None] * centred[:, None, :], starts, axis=0)
+    scatter = _scatter(centred, w[order], starts)
     scatter /= counts[:, None, None]
     return PatternData(patterns, counts, means, scatter, index, rows, weights)
+
+
+#: the most bytes of the rows' outer products :func:`_scatter` makes at once
+OUTER_BYTES = 1 << 26
+
+
+def _scatter(centred: np.ndarray, w: np.ndarray, starts: np.ndarray) -> np.ndarray:
+    """sum over each pattern's rows of w_i c_i c_i' (rows sorted by pattern, the patterns' first rows at
+    ``starts``): the outer products of the rows of a run of patterns added up at once, at most :data:`OUTER_BYTES`
+    of them (at 200 items a row's is 0.3 MB: every row's at once was 0.6 GB at 2,000 rows), and a pattern of more
+    rows than that by one matrix product."""
+    n, p = centred.shape
+    P = len(starts)
+    stops = np.append(starts[1:], n)
+    scatter = np.empty((P, p, p))
+    limit = max(1, OUTER_BYTES // (8 * p * p))  # rows whose outer products are made at once
+    first = 0
+    while first < P:
+        r0, r1 = starts[first], stops[first]
+        if r1 - r0 > limit:
+            rows = centred[r0:r1]
+            scatter[first] = (rows * w[r0:r1, None]).T @ rows
+            first += 1
+            continue
+        last = max(first + 1, int(np.searchsorted(stops, r0 + limit, side="right")))
+        rows = centred[r0:stops[last - 1]]
+        outer = (rows * w[r0:stops[last - 1], None])[:, :, None] * rows[:, None, :]
+        scatter[first:last] = np.add.reduceat(outer, starts[first:last] - r0, axis=0)
+        first = last
+    return scatter
+
+
+def refuse_large_patterns(patterns: int, side: int, items: int) -> None:
+    """Refuse, with a one-line EstimationError naming the size and what to do, full-information ML whose stacks of
+    one side x side matrix per pattern of missing answers would exceed the one limit of a matrix of
+    :mod:`cfa_tool.numerics.sizes` (the patterns' scatter here; the likelihood's inverses, their products and its
+    rank-two gathers, each such a stack and about seven at once, ``side`` then the widest: estimation.fiml), before
+    any is made: at 200 items each stack takes 0.3 MB a pattern, 0.6 GB for 2,000 rows with gaps everywhere, which no
+    other limit held.  ``items``: the items (and missing-data helpers) of the rows."""
+    from cfa_tool.errors import EstimationError
+    from cfa_tool.numerics import sizes
+    from cfa_tool.options import Option
+
+    if sizes.stack_fits(patterns, side):
+        return
+    raise EstimationError(
+        f"full-information ML holds one matrix of the {items} analysed columns by themselves for each pattern of "
+        f"missing answers (which columns a row answered), several such stacks at once; the {patterns:,} patterns of "
+        f"these rows make each stack {patterns:,} matrices of {side} x {side}, "
+        f"{sizes.stack_too_large_words(patterns, side)}; "
+        f"fit the items in smaller sets, or keep only the complete rows ({Option.INCOMPLETE_ROWS.given('listwise')}) "
+        f"when enough rows have no gaps")
 
 
 def embedded_inverse(sigma: np.ndarray, observed: np.ndarray, missing: list | None = None

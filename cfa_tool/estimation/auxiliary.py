@@ -37,6 +37,7 @@ import numpy as np
 from cfa_tool.data.patterns import PatternData
 from cfa_tool.estimation.fiml import MissingDataLikelihood, model_second_order
 from cfa_tool.model.implied import ModelMatrices, StructuredModel
+from cfa_tool.model.rank_two import EntryBasis, basis_vectors
 
 if TYPE_CHECKING:
     from cfa_tool.estimation.ml import GroupMoments
@@ -74,6 +75,38 @@ def _joint_directions(p: int, r: int, observed_variances: bool) -> tuple[np.ndar
         for b in range(a + 1):
             cov(p + a, p + b)
     return np.array(sigma_dirs).reshape(-1, P, P), np.array(mean_dirs).reshape(-1, P)
+
+
+def _joint_entries(p: int, r: int, observed_variances: bool, helpers_from: int
+                   ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """The parameters of :func:`_joint_directions`, in its order, as rank-two entries (:mod:`cfa_tool.model.rank_two`):
+    (u, v, c, w, mean) with d Sigma* = c (e_u e_v' + e_v e_u') and d mu* = e_w where ``mean``, the columns u, v, w
+    those of a basis whose column i is item i and column ``helpers_from`` + j is helper j (c 1/2 on the diagonal,
+    0 for a mean)."""
+    helper = helpers_from + np.arange(r)
+    item = np.arange(p)
+    a, b = np.tril_indices(r)
+    parts = []  # (u, v, c, w, mean) of each kind
+    if observed_variances:
+        parts.append((item * 0, item * 0, np.zeros(p), item, np.ones(p, dtype=bool)))
+        parts.append((item, item, np.full(p, 0.5), item * 0, np.zeros(p, dtype=bool)))
+    parts.append((helper * 0, helper * 0, np.zeros(r), helper, np.ones(r, dtype=bool)))
+    parts.append((np.repeat(item, r), np.tile(helper, p), np.ones(p * r), np.zeros(p * r, dtype=int),
+                  np.zeros(p * r, dtype=bool)))
+    parts.append((helper[a], helper[b], np.where(a == b, 0.5, 1.0), np.zeros(len(a), dtype=int),
+                  np.zeros(len(a), dtype=bool)))
+    return tuple(np.concatenate(column) for column in zip(*parts))
+
+
+def _entry_basis(u, v, c, w, mean_one, mean_from_a, width: int) -> EntryBasis:
+    """An :class:`~cfa_tool.model.rank_two.EntryBasis` of given entries over a basis of ``width`` columns (the flat
+    positions of the pairs the information reads laid out for that width)."""
+
+    def pairs(x, y):
+        return x[:, None] * width + y[None, :]
+
+    return EntryBasis(u, v, w, c, mean_from_a, mean_one, pairs(u, u), pairs(v, v), pairs(u, v), pairs(v, u),
+                      pairs(w, w), np.outer(c, c))
 
 
 def auxiliary_count(p: int, r: int) -> int:
@@ -132,6 +165,12 @@ class JointModel:
         self.k = auxiliary_count(model.p, r)
         self.n_free = self.q + n_groups * self.k
         self._directions = _joint_directions(model.p, r, False)
+        self._layouts: dict = {}  # each group's (basis, J*) of rank_two_layout, fixed by the model
+
+    @property
+    def basis_width(self) -> int:
+        """The columns of :meth:`rank_two_layout`'s V*: the model's p + 2m and the helpers'."""
+        return self.structured.p + 2 * self.structured.m + self.r
 
     def split(self, theta: np.ndarray, g: int) -> tuple[np.ndarray, np.ndarray]:
         """(the model's theta, group g's eta)."""
@@ -153,6 +192,34 @@ class JointModel:
         omega[b, a] = eta[r + p * r:]
         sigma[p:, p:] = omega
         return JointMatrices(mats, sigma, np.concatenate([mats.implied_mean(), eta[:r]]))
+
+    def rank_two_layout(self, mats: JointMatrices, g: int):
+        """(V*, a, the entries' basis, J*) of group g for the rank-two gathers of full-information ML
+        (:meth:`cfa_tool.estimation.fiml.MissingDataLikelihood._layout`): the model's basis V = [I, C', G] over the
+        items beside the helpers' unit vectors, V* = [[V, 0], [0, I_r]], the model's entries followed by the helpers'
+        parameters (unit directions, :func:`_joint_entries`), and J* mapping the joint parameters to them."""
+        V, a = basis_vectors(mats.model, True)
+        p, width = self.items, V.shape[1]
+        joint_V = np.zeros((self.p, width + self.r))
+        joint_V[:p, :width] = V
+        joint_V[p:, width:] = np.eye(self.r)
+        return (joint_V, a) + self._joint_layout(g, width)
+
+    def _joint_layout(self, g: int, width: int):
+        """The (basis, J*) of :meth:`rank_two_layout`, fixed by the model: made once a group."""
+        if g not in self._layouts:
+            model, J = self.structured.bases[g], self.structured.active_J[g]
+            u, v, c, w, mean = _joint_entries(self.items, self.r, False, width)
+            basis = _entry_basis(np.concatenate([model.u, u]), np.concatenate([model.v, v]),
+                                 np.concatenate([model.c, c]), np.concatenate([model.w, w]),
+                                 np.concatenate([model.mean_one, mean]),
+                                 np.concatenate([model.mean_from_a, np.full(len(u), -1)]), width + self.r)
+            joint_J = np.zeros((len(basis.u), self.n_free))
+            joint_J[: len(model.u), : self.q] = J
+            start = self.q + g * self.k
+            joint_J[len(model.u):, start: start + self.k] = np.eye(self.k)
+            self._layouts[g] = basis, joint_J
+        return self._layouts[g]
 
     def jacobian(self, theta: np.ndarray, g: int = 0) -> tuple[np.ndarray, np.ndarray]:
         """d Sigma* / d theta (n_free, p+r, p+r) and d mu* / d theta (n_free, p+r) of group g."""
@@ -193,6 +260,8 @@ class LinearJointModel:
         self.r = r
         self._directions = _joint_directions(p, r, True)
         self.n_free = len(self._directions[0])
+        u, v, c, w, mean = _joint_entries(p, r, True, p)
+        self._basis = _entry_basis(u, v, c, w, mean, np.full(len(u), -1), self.p)
 
     def matrices(self, theta: np.ndarray, g: int = 0) -> JointMatrices:
         d_sigma, d_mu = self._directions
@@ -200,6 +269,11 @@ class LinearJointModel:
 
     def jacobian(self, theta: np.ndarray, g: int = 0) -> tuple[np.ndarray, np.ndarray]:
         return self._directions
+
+    def rank_two_layout(self, mats: JointMatrices, g: int):
+        """(V, a, the entries' basis, J) for the rank-two gathers of full-information ML (as
+        :meth:`JointModel.rank_two_layout`): every parameter a unit direction, V the identity, J the identity."""
+        return np.eye(self.p), np.zeros(0), self._basis, np.eye(self.n_free)
 
 
 class _BaselineLikelihood(MissingDataLikelihood):

@@ -18,10 +18,12 @@ For a model whose derivatives are rank-two (a StructuredModel: D_e = c_e (u v' +
 V = [I, C', G], :mod:`cfa_tool.model.rank_two`) every trace is a product of entries of the patterns'
 K_k = V' A_k V (and Q_k = V' A_k T_k A_k V for the observed Hessian), so the search's gradient and information,
 the observed Hessian and the modification indices need p_o^2 (p + 2m) a pattern and gathers, never a p x p
-derivative or the patterns' (p*p, p*p) weight matrix.  The general route, with whole (q, p, p) derivatives
-(``model.jacobian``) and that weight matrix a block at a time, serves the joint model of missing-data helpers,
-directions in the moments (the robust routes) and the robust score tests, and is the reference the rank-two
-route is checked against (tests/estimation/test_fiml_rank_two.py).
+derivative or the patterns' (p*p, p*p) weight matrix; the joint model of missing-data helpers and its baseline
+give their own basis (``rank_two_layout``, :mod:`cfa_tool.estimation.auxiliary`) and take the same gathers.  The
+information in the moments themselves (the robust routes and the robust score tests) is gathered from one product
+over the patterns' distinct elements (:func:`moment_second_derivatives`).  The general route, with whole (q, p, p)
+derivatives (``model.jacobian``) and that weight matrix a block at a time, is the reference both are checked
+against (tests/estimation/test_fiml_rank_two.py, tests/estimation/test_fiml_without_weight_matrix.py).
 """
 
 from __future__ import annotations
@@ -32,7 +34,7 @@ from cfa_tool.estimation.objective import Evaluation
 from cfa_tool.model.rank_two import (basis_vectors, gradient_and_information, mean_coefficients, mean_second_derivatives,
                                      path_second_derivatives, second_derivative_contraction)
 from cfa_tool.data.em import weighted_available_moments
-from cfa_tool.data.patterns import PatternData, embedded_inverse, missing_groups
+from cfa_tool.data.patterns import PatternData, embedded_inverse, missing_groups, refuse_large_patterns
 from cfa_tool.model.implied import StructuredModel
 
 
@@ -48,11 +50,12 @@ def pattern_objective(data: PatternData, mu: np.ndarray, sigma: np.ndarray) -> f
     return float(w @ (logdet + np.einsum("kij,kji->k", A, T)))
 
 
-def moment_hessian(data: PatternData, mu: np.ndarray, sigma: np.ndarray, d_sigma: np.ndarray, d_mu: np.ndarray,
+def moment_hessian(data: PatternData, mu: np.ndarray, sigma: np.ndarray, rows: np.ndarray, cols: np.ndarray
                    ) -> np.ndarray | None:
-    """The observed information of the saturated (unstructured) model: the second derivatives of f (module
-    docstring) at any (mu, Sigma) along directions (``d_sigma``, ``d_mu``) linear in the moments, so that the
-    terms of :func:`first_order_hessian` are all there is (None if some Sigma_oo is not positive definite)."""
+    """The observed information of the saturated (unstructured) model in its moments beta = (mu, vech Sigma), vech's
+    elements at (``rows``, ``cols``): the second derivatives of f (module docstring) at any (mu, Sigma), whose
+    directions are linear in the moments, so that the terms of :func:`first_order_hessian` are all there is, gathered
+    by :func:`moment_second_derivatives` (None if some Sigma_oo is not positive definite)."""
     inv = embedded_inverse(sigma, data.observed)
     if inv is None:
         return None
@@ -60,7 +63,7 @@ def moment_hessian(data: PatternData, mu: np.ndarray, sigma: np.ndarray, d_sigma
     dev = np.where(data.observed, data.means - mu, 0.0)
     T = data.scatter + dev[:, :, None] * dev[:, None, :]
     w = data.counts / data.counts.sum()
-    return first_order_hessian(A, w, A @ T @ A, (A @ dev[:, :, None])[:, :, 0], d_sigma, d_mu)
+    return moment_second_derivatives(A, w, rows, cols, A @ T @ A, (A @ dev[:, :, None])[:, :, 0])
 
 
 class MissingParts:
@@ -101,6 +104,8 @@ class MissingDataLikelihood:
                  groups):
         self.model = model
         self.patterns = patterns
+        # the widest stack of the patterns' matrices, their K_k = V' A_k V, within the one limit before any is made
+        refuse_large_patterns(max((len(d.counts) for d in patterns), default=0), self._basis_width(model), model.p)
         self.groups = groups  # GroupMoments holding the EM (saturated) moments, for reports and starts
         self.n_total = sum(d.n_obs for d in patterns)
         self.weights = [d.n_obs / self.n_total for d in patterns]
@@ -112,6 +117,14 @@ class MissingDataLikelihood:
         # each group's missing items by pattern, batched by their number (fixed by the data), for embedded_inverse
         self._missing = [list(missing_groups(d.observed)) for d in patterns]
         self._at = None  # the last point's per-pattern pieces: (theta's bytes, {group: pieces})
+
+    @staticmethod
+    def _basis_width(model) -> int:
+        """The columns of the rank-two route's basis V (:meth:`_layout`): p + 2m for a StructuredModel, a joint model's
+        own ``basis_width``, else the model's p."""
+        if isinstance(model, StructuredModel):
+            return model.p + 2 * model.m
+        return max(model.p, getattr(model, "basis_width", 0))
 
     def _pieces(self, theta: np.ndarray, g: int):
         """Group g's per-pattern pieces at theta: (matrices, A, log|Sigma_oo|, w, d, T), None if some Sigma_oo is
@@ -150,20 +163,31 @@ class MissingDataLikelihood:
 
     @property
     def _rank_two_model(self) -> bool:
-        """Whether the model's derivatives are rank-two gathers (:mod:`cfa_tool.model.rank_two`; a StructuredModel's
-        are, the joint model of auxiliary columns' are not: it takes the general route of (q, p, p) derivatives)."""
-        return isinstance(self.model, StructuredModel)
+        """Whether the model's derivatives are rank-two gathers (:mod:`cfa_tool.model.rank_two`): a StructuredModel's
+        are, and so are those of a model that gives its own layout (``rank_two_layout``: the joint model of missing-data
+        helpers and its baseline, :mod:`cfa_tool.estimation.auxiliary`)."""
+        return isinstance(self.model, StructuredModel) or hasattr(self.model, "rank_two_layout")
+
+    def _layout(self, mats, g: int):
+        """(V, a, the entries' basis, J) of group g at its matrices ``mats``: V the basis vectors whose columns the
+        entries' derivatives c (u v' + v u') and s w take, a the mean coefficients, J the map from the parameters to the
+        entries (a StructuredModel's :func:`~cfa_tool.model.rank_two.basis_vectors`, ``bases`` and ``active_J``)."""
+        if isinstance(self.model, StructuredModel):
+            V, a = basis_vectors(mats, True)
+            return V, a, self.model.bases[g], self.model.active_J[g]
+        return self.model.rank_two_layout(mats, g)
 
     def _rank_two_pieces(self, theta: np.ndarray, g: int):
-        """(V, a, per-pattern K_k = V' A_k V) at theta, kept with the point's pieces, None outside the region."""
+        """(V, a, per-pattern K_k = V' A_k V, the entries' basis, J) at theta, kept with the point's pieces, None
+        outside the region."""
         state = self._pattern_state(theta, g)
         if state is None:
             return None
         kept = self._at[1]
         if ("rank two", g) not in kept:
             mats, A = state[0], state[1]
-            V, a = basis_vectors(mats, True)
-            kept[("rank two", g)] = V, a, pattern_bases(A, V)
+            V, a, basis, J = self._layout(mats, g)
+            kept[("rank two", g)] = V, a, pattern_bases(A, V), basis, J
         return kept[("rank two", g)]
 
     def _rank_two(self, theta: np.ndarray, g: int) -> tuple[np.ndarray, np.ndarray] | None:
@@ -176,8 +200,7 @@ class MissingDataLikelihood:
         if pieces is None:
             return None
         _, A, w, _, M, _, mean_gradient = self._pattern_state(theta, g)
-        V, a, K = pieces
-        basis, J = self.model.bases[g], self.model.active_J[g]
+        V, a, K, basis, J = pieces
         g_e, _, K_bar, _ = gradient_and_information(basis, V, a, self._mean_weight(theta, g), M, mean_gradient,
                                                     with_information=False)
         s = mean_coefficients(basis, a)
@@ -186,9 +209,10 @@ class MissingDataLikelihood:
 
     @property
     def candidate_scores(self):
-        """:meth:`_candidate_scores` where the model's derivatives are rank-two gathers; absent otherwise (the joint
-        model of missing-data helpers, whose score tests take the general route with the helpers' parameters), so
-        that ``hasattr`` tells the score tests which route this likelihood has."""
+        """:meth:`_candidate_scores` where the model's derivatives are rank-two gathers (with missing-data helpers too:
+        a candidate is an entry of the model's matrices, its basis columns the joint layout's first ones, and its
+        cross-information is with every joint parameter); absent otherwise, so that ``hasattr`` tells the score tests
+        which route this likelihood has."""
         if not self._rank_two_model:
             raise AttributeError("candidate_scores")
         return self._candidate_scores
@@ -205,8 +229,7 @@ class MissingDataLikelihood:
         if pieces is None:
             return
         _, A, w, _, M, _, mean_gradient = self._pattern_state(theta, g)
-        V, a, K = pieces
-        model, J = self.model.bases[g], self.model.active_J[g]
+        V, a, K, model, J = pieces
         Q = V.T @ M @ V
         Vm = V.T @ mean_gradient
         K_bar = V.T @ self._mean_weight(theta, g) @ V
@@ -244,8 +267,7 @@ class MissingDataLikelihood:
         and (V' A d)_k per pattern, each trace a sum over the patterns of products of their entries (the formulas of
         :mod:`cfa_tool.model.rank_two`, pattern by pattern)."""
         _, A, w, ATA, _, Ad, _ = state
-        V, a, K = self._rank_two_pieces(theta, g)
-        basis, J = self.model.bases[g], self.model.active_J[g]
+        V, a, K, basis, J = self._rank_two_pieces(theta, g)
         s = mean_coefficients(basis, a)
         same = pattern_trace_sum(basis, K, w)
         mixed = pattern_cross_sum(basis, K, pattern_bases(ATA, V), w)
@@ -286,16 +308,21 @@ class MissingDataLikelihood:
         _, A, w, _, M, _, mean_gradient = state
         return MissingParts(M, mean_gradient, A, w)
 
-    def moment_hessian(self, theta: np.ndarray, g: int, d_sigma: np.ndarray, d_mu: np.ndarray) -> np.ndarray | None:
-        """Group g's observed information in directions (``d_sigma``, ``d_mu``) linear in the moments, at the model's
-        moments at theta: :func:`moment_hessian` with the patterns weighed n_k / n_obs, as :meth:`observed_hessian`
-        and :meth:`group_parts` weigh them (n_obs rounds the sum of sampling weights); None if some Sigma_oo is not
-        positive definite.  The first-order terms of :meth:`observed_hessian`, here in the moments."""
+    def moment_hessian(self, theta: np.ndarray, g: int, rows: np.ndarray, cols: np.ndarray,
+                       observed: bool = True) -> np.ndarray | None:
+        """Group g's information in the moments beta = (mu, vech Sigma) (vech's elements at ``rows``, ``cols``) at the
+        model's moments at theta, with the patterns weighed n_k / n_obs, as :meth:`observed_hessian` and
+        :meth:`group_parts` weigh them (n_obs rounds the sum of sampling weights): the observed one, the first-order
+        terms of :meth:`observed_hessian` here in the moments, or (``observed`` False) the patterns-fixed one of
+        :meth:`evaluate`; both gathered by :func:`moment_second_derivatives`, no (p*p, p*p) weight matrix.  None if
+        some Sigma_oo is not positive definite."""
         state = self._pattern_state(theta, g)
         if state is None:
             return None
         _, A, w, ATA, _, Ad, _ = state
-        return first_order_hessian(A, w, ATA, Ad, d_sigma, d_mu)
+        if not observed:
+            return moment_second_derivatives(A, w, rows, cols)
+        return moment_second_derivatives(A, w, rows, cols, ATA, Ad)
 
     def evaluate(self, theta: np.ndarray) -> Evaluation | None:
         """Value, gradient and patterns-fixed information summed over groups (None outside the region)."""
@@ -402,6 +429,72 @@ def first_order_hessian(A: np.ndarray, w: np.ndarray, ATA: np.ndarray, Ad: np.nd
     cross = d_sigma.reshape(q, p * p) @ t3.reshape(p * p, p) @ d_mu.T  # d'A D_a A dmu_b
     return (-same + (mixed + mixed.T) + 2.0 * (cross + cross.T)  # mixed is symmetric: 2 mixed, symmetrised
             + 2.0 * d_mu @ np.tensordot(w, A, axes=1) @ d_mu.T)
+
+
+def moment_second_derivatives(A: np.ndarray, w: np.ndarray, rows: np.ndarray, cols: np.ndarray,
+                               ATA: np.ndarray | None = None, Ad: np.ndarray | None = None) -> np.ndarray:
+    """The patterns' second derivatives of f in the moments beta = (mu, vech Sigma) themselves, vech's elements at
+    (``rows``, ``cols``) (d Sigma / d sigma_ij = E_ij + E_ji off the diagonal, E_ii on it; d mu / d mu_i = e_i):
+    with ``ATA`` None the patterns-fixed information sum_k w_k [tr(A D_a A D_b) + 2 dmu_a' A dmu_b]
+    (:meth:`MissingParts.information` in those directions), else the observed one, :func:`first_order_hessian`'s
+    terms (with ``Ad``).  Every trace of unit directions is a sum of products of the patterns' entries,
+    tr(X E_ij Y E_lm) = X_mi Y_jl, read from one product over the patterns of their distinct elements
+    (:func:`_pair_traces`): P p^4 / 4 products and gathers, where the directions' (k, p, p) array times the
+    (p*p, p*p) weight matrix took k p^4 (k = p + p(p+1)/2) and made both arrays."""
+    P, p, _ = A.shape
+    kv = len(rows)
+    out = np.zeros((p + kv, p + kv))
+    out[:p, :p] = 2.0 * np.tensordot(w, A, axes=1)
+    same = _pair_traces(A, None, w, rows, cols)  # sum_k w_k tr(A D_a A D_b)
+    if ATA is None:
+        out[p:, p:] = same
+        return out
+    block = out[p:, p:]  # mixed + mixed' - same, mixed symmetric: in place, no matrix of the moments beside
+    block[...] = _pair_traces(A, ATA, w, rows, cols)
+    block *= 2.0
+    block -= same
+    # d'A D_a A dmu_b = s_a sum_k w_k ((A d)_k[i] A_k[j, b] + (A d)_k[j] A_k[i, b]), the sigma rows by the mean columns
+    t3 = ((Ad * w[:, None]).T @ A.reshape(P, p * p)).reshape(p, p, p)  # [i, j, b] = sum_k w_k (A d)_k[i] A_k[j, b]
+    cross = (t3[rows, cols] + t3[cols, rows]) * np.where(rows == cols, 0.5, 1.0)[:, None]
+    out[p:, :p] = 2.0 * cross
+    out[:p, p:] = 2.0 * cross.T
+    return out
+
+
+def _pair_traces(X: np.ndarray, Y: np.ndarray | None, w: np.ndarray, rows: np.ndarray, cols: np.ndarray
+                 ) -> np.ndarray:
+    """sum_k w_k tr(X_k D_a Y_k D_b) for the vech directions a, b at (``rows``, ``cols``)
+    (:func:`moment_second_derivatives`; ``Y`` None: X itself).  With D_a = s_a (E_ij + E_ji), s_a 1/2 on the
+    diagonal, and F(i, j, l, m) = sum_k w_k X_il Y_jm, the trace of a = (i, j), b = (l, m) is
+        s_a s_b (F(i, j, l, m) + F(i, j, m, l) + F(j, i, l, m) + F(j, i, m, l)),
+    and as X_k and Y_k are symmetric, F(i, j, l, m) = G[(i, l), (j, m)] with G the small matrix over their distinct
+    elements (i <= l, j <= m; :func:`pattern_outer`'s, one product over the patterns, the size of the result), so
+    that the trace is s_a s_b (S[(i, l), (j, m)] + S[(i, m), (j, l)]) for S = G + G' (symmetric in a and b),
+    gathered a block of rows a at a time (:data:`BLOCK_BYTES`): no (p*p, p*p) matrix and no direction is made."""
+    P, p, _ = X.shape
+    iu, ju = np.triu_indices(p)
+    G = (X[:, iu, ju] * w[:, None]).T @ (X if Y is None else Y)[:, iu, ju]
+    if Y is None:  # G symmetric: S = 2 G, made in place
+        G *= 2.0
+        S = G
+    else:
+        S = G + G.T
+    del G
+    flat = S.ravel()
+    width = len(iu)
+    position = np.empty((p, p), dtype=np.intp)
+    position[iu, ju] = np.arange(width)
+    position[ju, iu] = position[iu, ju]
+    n = len(rows)
+    out = np.empty((n, n))
+    step = max(1, BLOCK_BYTES // (8 * 4 * n))
+    for start in range(0, n, step):
+        i, j = rows[start:start + step, None], cols[start:start + step, None]
+        at = np.take(flat, position[i, rows] * width + position[j, cols])
+        at += np.take(flat, position[i, cols] * width + position[j, rows])
+        out[start:start + step] = at
+    s = np.where(rows == cols, 0.5, 1.0)
+    return out * np.outer(s, s)
 
 
 def model_second_order(model: StructuredModel, g: int, mats, M: np.ndarray, mean_gradient: np.ndarray) -> np.ndarray:

@@ -91,19 +91,6 @@ def refuse_moment_matrices(p: int, designed: bool) -> None:
         f"smaller sets{leave_out}")
 
 
-def _moment_directions(p: int) -> tuple[np.ndarray, np.ndarray]:
-    """d Sigma and d mu for each element of beta = (mu, vech Sigma)."""
-    I, J = vech_indices(p)
-    k = p + len(I)
-    d_sigma = np.zeros((k, p, p))
-    d_mu = np.zeros((k, p))
-    d_mu[np.arange(p), np.arange(p)] = 1.0
-    rows = p + np.arange(len(I))
-    d_sigma[rows, I, J] = 1.0
-    d_sigma[rows, J, I] = 1.0
-    return d_sigma, d_mu
-
-
 def moment_scores(data: PatternData, mu: np.ndarray, sigma: np.ndarray) -> np.ndarray:
     """Row scores in beta (N x k) at (mu, Sigma): the derivatives of f_i (module docstring)."""
     A_patterns, _ = embedded_inverse(sigma, data.observed)
@@ -146,16 +133,21 @@ def implied_points(likelihood: MissingDataLikelihood, theta: np.ndarray) -> list
     return [(m.implied_mean(), m.implied_covariance()) for m in mats]
 
 
-def _unstructured_trace(data: PatternData, mu: np.ndarray, sigma: np.ndarray, D: np.ndarray | None,
-                        B: np.ndarray) -> float:
+def _unstructured_trace(data: PatternData, mu: np.ndarray, sigma: np.ndarray, B: np.ndarray,
+                        variances_only: bool = False) -> float:
     """tr(H^-1 B) of a model linear in beta at its estimates (mu, Sigma): H its observed information, B the
-    meat of its rows' scores in beta (D = None: the saturated model itself; else the columns of beta it frees,
-    whose meat is D'BD)."""
-    d_sigma, d_mu = _moment_directions(len(mu))
-    if D is not None:
-        d_sigma, d_mu = np.tensordot(D.T, d_sigma, axes=1), D.T @ d_mu
-        B = D.T @ B @ D
-    H = moment_hessian(data, mu, sigma, d_sigma, d_mu)
+    meat of its rows' scores in beta: the saturated model's, or (``variances_only``) the baseline's, which frees the
+    means and the variances alone (their rows and columns of the saturated model's meat; its information is made for
+    them alone, vech's diagonal in its order)."""
+    p = len(mu)
+    if variances_only:
+        rows = cols = np.arange(p)
+        I, J = vech_indices(p)
+        keep = np.concatenate([np.arange(p), p + np.flatnonzero(I == J)])
+        B = B[np.ix_(keep, keep)]
+    else:
+        rows, cols = vech_indices(p)
+    H = moment_hessian(data, mu, sigma, rows, cols)
     return float(np.sum(scaled_inverse(H) * B.T))
 
 
@@ -193,12 +185,12 @@ def scaling_at(likelihood: MissingDataLikelihood, theta: np.ndarray,
     q = len(theta)
     information = np.zeros((q, q))
     trace_w_gamma = 0.0
-    d_sigma, d_mu = _moment_directions(likelihood.p)
+    rows, cols = vech_indices(likelihood.p)
     omega = groups_scores_meat(likelihood, saturated)  # B_s of the stacked groups (blocks between shared clusters')
     weighted = []
     for g, (w, data) in enumerate(zip(likelihood.weights, likelihood.patterns)):
         mu_s, sigma_s = saturated[g]
-        H_s = moment_hessian(data, mu_s, sigma_s, d_sigma, d_mu)
+        H_s = moment_hessian(data, mu_s, sigma_s, rows, cols)
         if H_s is None:
             return float("nan")
         D = _model_directions(likelihood, theta, g)
@@ -232,16 +224,12 @@ def robust_missing(likelihood: MissingDataLikelihood, theta: np.ndarray,
         (mu, np.diag(var)) for mu, var in (weighted_available_moments(d.rows, d.row_weights)
                                            for d in likelihood.patterns)]
     baseline_meat = None if baseline is None else groups_scores_meat(likelihood, baseline)
-    p = likelihood.p
-    I, J = vech_indices(p)
-    keep = np.concatenate([np.arange(p), p + np.flatnonzero(I == J)])  # the baseline's means and variances
     weighted = []
     for g, data in enumerate(likelihood.patterns):
         weighted.append(likelihood.weights[g] * _model_directions(likelihood, theta, g))
-        trace_sat += _unstructured_trace(data, *saturated[g], None, own_meat(likelihood, saturated_meat, g))
+        trace_sat += _unstructured_trace(data, *saturated[g], own_meat(likelihood, saturated_meat, g))
         if baseline is not None:
-            trace_base += _unstructured_trace(data, *baseline[g], np.eye(p + len(I))[:, keep],
-                                              own_meat(likelihood, baseline_meat, g))
+            trace_base += _unstructured_trace(data, *baseline[g], own_meat(likelihood, baseline_meat, g), True)
     meat_total = model_meat.middle(weighted)  # sum_gh w_g w_h D_g' Omega_gh D_h (module docstring)
     hessian = likelihood.observed_hessian(theta)  # the weighted sum over groups, as the meat
     if hessian is None:  # higher-order factors: differences of the analytic gradient, as fit's standard errors

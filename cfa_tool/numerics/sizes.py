@@ -1,7 +1,8 @@
 """The largest matrix the tool allocates, one rule for every route that would need a larger one (matrices of the
 statistics by the statistics at many items: the full-information likelihood's weights of the patterns, the
-full-information robust route's moments, the ordinal statistics' asymptotic covariance).  A route beyond it is
-refused in one line before anything is made: never a MemoryError after minutes of work."""
+full-information robust route's moments, the ordinal statistics' asymptotic covariance; and the stacks of one
+matrix of the items by themselves for each pattern of missing answers, which full-information ML holds).  A route
+beyond it is refused in one line before anything is made: never a MemoryError after minutes of work."""
 
 from __future__ import annotations
 
@@ -25,3 +26,17 @@ def too_large_words(side: int, side_of: Callable[[int], int]) -> str:
         most += 1
     return (f"{side * side * 8 / 2 ** 30:.1f} GiB, more than the {MATRIX_BYTES / 2 ** 30:.1f} GiB this tool "
             f"allocates to a matrix (about {most} items)")
+
+
+def stack_fits(count: int, side: int) -> bool:
+    """Whether a stack of ``count`` side x side matrices (one array) is within :data:`MATRIX_BYTES` (read at each
+    call)."""
+    return count * side * side * 8 <= MATRIX_BYTES
+
+
+def stack_too_large_words(count: int, side: int) -> str:
+    """'<size> GiB, more than the <limit> GiB this tool allocates to one array (at most <n> such matrices)' for a
+    stack of ``count`` side x side matrices."""
+    most = MATRIX_BYTES // (8 * side * side)
+    return (f"{count * side * side * 8 / 2 ** 30:.1f} GiB, more than the {MATRIX_BYTES / 2 ** 30:.1f} GiB this tool "
+            f"allocates to one array (at most {most:,} such matrices)")

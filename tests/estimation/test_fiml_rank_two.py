@@ -121,15 +121,18 @@ def test_the_score_tests_from_rank_two_gathers_are_the_general_ones(monkeypatch,
         assert np.nanmax(np.abs(mine - theirs)) <= 1e-10 * np.nanmax(np.abs(theirs))
 
 
-def test_the_helpers_joint_likelihood_keeps_the_general_score_tests():
-    # the joint model of missing-data helpers is no StructuredModel: its score tests free the helpers' parameters on
-    # the general route (assessment.modification reads which route by hasattr(likelihood, "candidate_scores"))
-    from cfa_tool.estimation.auxiliary import AuxiliaryLikelihood
+def test_which_likelihoods_offer_the_rank_two_score_tests():
+    # assessment.modification reads which route by hasattr(likelihood, "candidate_scores"): a StructuredModel's
+    # likelihood and the joint model of missing-data helpers (its own rank-two layout since large-s22,
+    # tests/estimation/test_fiml_without_weight_matrix.py) offer them; a model without a layout does not
+    from cfa_tool.estimation.auxiliary import AuxiliaryLikelihood, JointModel
     from cfa_tool.model.implied import StructuredModel
 
     joint = object.__new__(AuxiliaryLikelihood)
     joint.model = object()
     assert not hasattr(joint, "candidate_scores")
+    joint.model = object.__new__(JointModel)
+    assert hasattr(joint, "candidate_scores")
     plain = object.__new__(fiml.MissingDataLikelihood)
     plain.model = object.__new__(StructuredModel)
     assert hasattr(plain, "candidate_scores")

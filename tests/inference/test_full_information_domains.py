@@ -213,7 +213,7 @@ def _old_meats(result, data):
         meat += likelihood.weights[g] * D.T @ scores_meat(data_g, mats.implied_mean(), mats.implied_covariance(),
                                                           design_g) @ D
         B_s = scores_meat(data_g, likelihood.groups[g].mean, likelihood.groups[g].covariance, design_g)
-        trace_sat += _unstructured_trace(data_g, likelihood.groups[g].mean, likelihood.groups[g].covariance, None, B_s)
+        trace_sat += _unstructured_trace(data_g, likelihood.groups[g].mean, likelihood.groups[g].covariance, B_s)
     inv = np.linalg.inv(likelihood.observed_hessian(theta))
     df = likelihood.n_statistics - q
     return inv @ meat @ inv / likelihood.n_total, (trace_sat - float(np.sum(inv * meat.T))) / (2.0 * df)
