@@ -381,9 +381,9 @@ def _precision_advice(result) -> Text:
             return ("use the scores for research, not for decisions about one person; comparing groups or units "
                     "(wards, sites, teams) by their mean scores needs measurement invariance across them tested first"
                     f"{_INVARIANCE_TEST} and enough rows in each ({_UNIT_MEANS_SAID}).")
-        return ("use the scores for research and to compare the groups of this fit, whose loadings and intercepts the "
-                "model holds equal, not for decisions about one person; other groups or units (wards, teams) only "
-                f"once measurement invariance across them is tested{_INVARIANCE_TEST} ({_UNIT_MEANS_SAID}).")
+        return ("use the scores for research and to compare the groups of this fit under the loadings and intercepts "
+                "the model holds equal across them, not for decisions about one person; other groups or units (wards, "
+                f"teams) only once measurement invariance across them is tested{_INVARIANCE_TEST} ({_UNIT_MEANS_SAID}).")
     centred = set(centred_factors(result.fit.estimates))
     others = [f for f in result.factors if f not in centred]
     if not others:

@@ -46,8 +46,8 @@ def test_the_box_says_first_that_the_groups_scores_cannot_be_compared():
     scalar = cfa_tool.scores(THREE_FACTORS + "invariance scalar\n", data, group="school")
     assert not any(p.kind is ProblemKind.SCORES_NOT_COMPARABLE_ACROSS_GROUPS for p in scalar.fit.problems)
     lines = [str(x) for x in scores_report(scalar).notice.lines]
-    assert any("use the scores for research and to compare the groups of this fit, whose loadings and intercepts "
-               "the model holds equal, not for decisions about one person" in x for x in lines)
+    assert any("use the scores for research and to compare the groups of this fit under the loadings and intercepts "
+               "the model holds equal across them, not for decisions about one person" in x for x in lines)
 
 
 def test_item_sums_alone_are_not_said_to_be_centred():

@@ -73,8 +73,8 @@ def test_scores_of_groups_held_equal_compare_those_groups_only(hs_data):
     result = cfa_tool.scores(THREE_FACTORS + "invariance scalar\n", hs_data, group="school")
     lines = [str(x) for x in scores_report(result).notice.lines]
     advised = [x for x in lines if "decisions about individuals usually need" in x]
-    assert advised and all("use the scores for research and to compare the groups of this fit, whose loadings and "
-                           "intercepts the model holds equal" in x and "other groups or units (wards, teams) only once "
+    assert advised and all("use the scores for research and to compare the groups of this fit under the loadings and "
+                           "intercepts the model holds equal across them" in x and "other groups or units (wards, teams) only once "
                            "measurement invariance across them is tested" in x for x in advised)
     assert "The groups of this fit are compared under the loadings and intercepts the model holds equal" \
         in unit_means_caution(result)
