@@ -507,7 +507,10 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         everywhere = (multi and ref.kind == "mean" and first_key not in tied_to and first_key not in fixed_by
                       and all(entries[(h, *ref.key())]["fixed"] is not None for h in range(G)))
         if multi and ref.group is None and not everywhere:
-            why = f"fixed in every group (in group {group_labels[first_key[0]]}: {why})"
+            # one reason in every group is said once, naming no group; else the reason of one group, as one of them
+            # (new user s22: 'fixed in every group (in group North Hospital: ...)' read as contradicting itself)
+            why = (f"{why}, in every group" if len(set(reasons)) == 1 else
+                   f"fixed in every group (in group {group_labels[first_key[0]]}, for one: {why})")
         how = (" (the invariance command reads it at the step that holds the intercepts equal)"
                if everywhere and statement.read_at_ladder_step else "")
         return _fail(spec, f"{ref} is {why}, so {statement.phrase} on it has no effect; remove the {statement.removed}"

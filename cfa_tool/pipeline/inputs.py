@@ -1518,8 +1518,7 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                    design: DesignColumns | None = None, ids: pd.Series | None = None) -> FitResult:
     refuse_groups_filtered_out(spec, loaded, group, reference_group)
     frame, source = loaded.frame, loaded.source
-    ordinal_items = ordinal_items_of(spec, ordinal)
-    spec = with_ordinal_levels(spec, ordinal_items)
+    spec, ordinal_items = ordinal_model(spec, ordinal)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if design is not None:
         frame, design_notes = check_design(frame, design, spec.observed_names, group, source, loaded.weights)
@@ -2278,6 +2277,17 @@ def _refuse_means_for_summary(spec: Spec) -> None:
         raise ModelError(f"{ref}: intercepts and factor means are estimated only in a fit with a mean structure, and "
                          f"summary statistics are fitted by their covariances alone; remove the statement, or give "
                          f"the rows of answers", ref.location, spec.source_line(ref.location))
+
+
+def ordinal_model(spec: Spec, ordinal) -> tuple[Spec, set[str]]:
+    """The model as a fit with ordinal items reads it, and those items: the items of its 'ordinal' statements and of
+    the ``ordinal`` option (the command line's --ordinal) alike, and with them the thresholds held equal from the
+    metric level on (language.spec.with_ordinal_levels; Wu & Estabrook 2016).  The one route of every command that
+    takes ordinal items with a model (fit, scores, bootstrap, cutoffs, replicate), before it checks the model: new
+    user s22, 'scores --ordinal all' checked 'noninvariant intercept(x)' against a model without equal thresholds and
+    refused what 'fit --ordinal all' fits, which the same items declared by an 'ordinal' statement passed."""
+    items = ordinal_items_of(spec, ordinal)
+    return with_ordinal_levels(spec, items), items
 
 
 def ordinal_items_of(spec: Spec, ordinal) -> set[str]:

@@ -367,14 +367,23 @@ _SUMS = "item sums and means"
 
 
 def _precision_advice(result) -> Text:
-    """What to try with scores less reliable than decisions about individuals need: read them for groups of people,
-    comparing groups only where the scores can be compared (new-user trial s21: with each group's scores centred at
-    0 the advice was still 'use the scores to compare groups'; workflows.factor_scores.not_comparable_problems)."""
+    """What to try with scores less reliable than decisions about individuals need: read them for research, comparing
+    groups only where the scores can be compared (new-user trial s21: with each group's scores centred at 0 the advice
+    was still 'use the scores to compare groups'; workflows.factor_scores.not_comparable_problems), and groups or
+    units the fit did not hold equal only once measurement invariance across them is tested (new-user trial s22: a
+    one-group run advised 'use the scores to compare groups', and the wards ranked last by their mean scores were
+    those of the one site whose patients answered an item differently; :func:`unit_means_caution`)."""
     from cfa_tool.assessment.admissibility import ProblemKind
     from cfa_tool.workflows.factor_scores import centred_factors
 
     if not any(p.kind is ProblemKind.SCORES_NOT_COMPARABLE_ACROSS_GROUPS for p in result.fit.problems):
-        return "use the scores to compare groups and for research, not for decisions about one person."
+        if not _has_groups(result):
+            return ("use the scores for research, not for decisions about one person; comparing groups or units "
+                    "(wards, sites, teams) by their mean scores needs measurement invariance across them tested first"
+                    f"{_INVARIANCE_TEST} and enough rows in each ({_UNIT_MEANS_SAID}).")
+        return ("use the scores for research and to compare the groups of this fit under the loadings and intercepts "
+                "the model holds equal across them, not for decisions about one person; other groups or units (wards, "
+                f"teams) only once measurement invariance across them is tested{_INVARIANCE_TEST} ({_UNIT_MEANS_SAID}).")
     centred = set(centred_factors(result.fit.estimates))
     others = [f for f in result.factors if f not in centred]
     if not others:
@@ -382,6 +391,45 @@ def _precision_advice(result) -> Text:
                 "for decisions about one person.")
     return (f"use the scores for research, comparing groups only on {word_list(others)} (the caution above), not "
             f"for decisions about one person.")
+
+
+#: how the scores' report names the test of measurement invariance across groups or units (a command, as the
+#: invariance reports name it, no option: every view says it alike, the Word file too)
+_INVARIANCE_TEST = " (the invariance command, with their column as the groups)"
+#: where the scores' report says what comparing the means of groups or units needs (:func:`unit_means_caution`)
+_UNIT_MEANS_SAID = "the caution on means of groups and units, under the report"
+
+
+def _has_groups(result) -> bool:
+    """Whether the scores are of a fit with groups (one quality summary per group)."""
+    return any(q.group is not None for q in result.quality)
+
+
+def unit_means_caution(result) -> str:
+    """What comparing or ranking groups or units (wards, sites, teams, schools) by the mean of their rows' scores
+    needs, beside the high-stakes caution (new-user trial s22: an analyst ranked 18 wards by their mean scores for a
+    bonus; the three lowest were the wards of the one site whose patients answered an item differently at the same
+    level of the factor, and nothing said what such a ranking needs).  A unit's mean is a mean of its rows: its
+    standard error is the scores' standard deviation over the square root of its rows, a 95% band of 1.96 of those
+    (the normal approximation, common practice), ±0.31 SD for 40 rows and ±0.20 SD for 100; the reliability of unit
+    means, ICC(2) = n ICC / (1 + (n - 1) ICC), the Spearman-Brown formula applied to the share of the variance that
+    lies between units (Bliese 2000)."""
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    held = _has_groups(result) and not any(p.kind is ProblemKind.SCORES_NOT_COMPARABLE_ACROSS_GROUPS
+                                           for p in result.fit.problems)
+    fitted = (" The groups of this fit are compared under the loadings and intercepts the model holds equal across "
+              "them; other groups or units are not." if held else "")
+    return ("Comparing or ranking groups or units (wards, sites, teams, schools) by the mean of their rows' scores "
+            f"needs measurement invariance across them tested first{_INVARIANCE_TEST}: an item that the people of one "
+            "unit answer differently at the same level of the factor moves that unit's mean, not the factor."
+            + fitted + " A unit's mean is only as reliable as its number of rows allows: its standard error is about "
+            "the scores' standard deviation divided by √n for n rows (a 95% band of about ±0.31 SD for 40 rows, "
+            "±0.20 SD for 100; normal approximation), and the reliability of the units' means grows with their rows "
+            "and with the share of the differences that lies between units (ICC(2) = n·ICC / (1 + (n − 1)·ICC), ICC "
+            "that share; Bliese 2000); units within larger ones (wards within sites) differ partly as those do. Ranking units, "
+            "or the staff in them, for rewards or sanctions is a decision about people: the caution that follows "
+            "applies.")
 
 
 def indistinct_cautions(result) -> list[str]:
@@ -679,7 +727,7 @@ def scores_report(result):
 
     return Report(ResultKind.SCORES, f"Factor scores: {result.fit.model_name}", scores_notice(result),
                   tuple(header_lines(result)) + tuple(caution_lines(result)), tuple(score_tables(result)),
-                  tuple(result.notes) + tuple(item_sum_notes(result)), (SCORES_CAUTION, HIGH_STAKES_NOTE, flagging_caution(result)),
+                  tuple(result.notes) + tuple(item_sum_notes(result)), (SCORES_CAUTION, unit_means_caution(result), HIGH_STAKES_NOTE, flagging_caution(result)),
                   paragraph=scores_paragraph(result), problem_table=scores_problem_table(result),
                   warnings=tuple(warnings(result)))
 

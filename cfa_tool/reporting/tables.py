@@ -31,7 +31,8 @@ GUIDE_NOTE = (
     "conditions, and meeting them does not prove the model right."
 )
 HIGH_STAKES_NOTE = (
-    "If this scale is used for decisions about people (screening, hiring, diagnosis), such use needs evidence of "
+    "If this scale is used for decisions about people (screening, hiring, diagnosis, ranking staff, wards or schools "
+    "for rewards or sanctions), such use needs evidence of "
     "validity for that purpose and the judgement of a licensed professional under local rules."
 )
 # items of a matrix of the items (correlations, residual correlations) that the terminal shows: a wider one is cut

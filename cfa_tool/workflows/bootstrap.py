@@ -57,7 +57,7 @@ from cfa_tool.method import MissingData, WeightKind
 from cfa_tool.data.matching import chosen_columns
 from cfa_tool.pipeline.inputs import (_described, _fit_rows, converged, keeps_rows_with_gaps, design_test, moments_for, odd_values_named,
                                       refuse_large_robust_route,
-                                      ordinal_items_of, read_inputs_with_notes, refit_missing_handling, with_design,
+                                      ordinal_model, read_inputs_with_notes, refit_missing_handling, with_design,
                                       with_odd_values, without_exploratory_blocks, rows_named)
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
@@ -599,10 +599,11 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
                                                  keeps_gaps=keeps_rows_with_gaps(missing))
     frame, source = loaded.frame, loaded.source
     ids, named_by = rows_named(loaded, id_column, spec.observed_names)
+    spec, ordinal_items = ordinal_model(spec, ordinal)  # the model as fit reads it, before it is checked
     one_group_only(spec, "the bootstrap resamples one group's rows")
     without_exploratory_blocks(spec, "bootstrap", "it resamples the parameters, and a block's rotated loadings are "
                                                   "not among them")
-    if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:
+    if ordinal_items or ordinal_estimator is not None:
         if design is not None:
             raise OptionError(f"{ORDINAL_DESIGN}, so the {design.names[0][0]} column '{design.names[0][1]}' cannot "
                               f"apply; leave out the design")

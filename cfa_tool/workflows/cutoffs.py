@@ -37,7 +37,7 @@ from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.method import MissingData
 from cfa_tool.assessment.admissibility import counted_problems, refuse_inadmissible_fit, replicated_problems
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, model_structure, moments_from_rows, replicate_fits
-from cfa_tool.pipeline.inputs import (_fit_rows, converged, keeps_rows_with_gaps, odd_values_named, ordinal_items_of, read_inputs_with_notes,
+from cfa_tool.pipeline.inputs import (_fit_rows, converged, keeps_rows_with_gaps, odd_values_named, ordinal_model, read_inputs_with_notes,
                                       refit_missing_handling, with_odd_values, rows_named)
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
@@ -380,8 +380,9 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
                                                  keeps_gaps=keeps_rows_with_gaps(missing))
     frame, source = loaded.frame, loaded.source
     ids, named_by = rows_named(loaded, id_column, spec.observed_names)
+    spec, ordinal_items = ordinal_model(spec, ordinal)  # the model as fit reads it, before it is checked
     one_group_only(spec, "the cutoffs are simulated for one group's model")
-    if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:
+    if ordinal_items or ordinal_estimator is not None:
         with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
             # the rows as fit takes them: pairwise present rows by default, the complete rows with missing='listwise'
             # (given before, it was left unused), full-information ML refused as fit refuses it

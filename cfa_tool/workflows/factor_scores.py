@@ -788,6 +788,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                                                                fit_options.missing_helpers),
                                                      keeps_gaps=api.keeps_rows_with_gaps(fit_options.missing))
     api.without_exploratory_blocks(spec, "scores", "its factors' scores would be those of the unrotated block")
+    # the model as the fit reads it, before anything checks it: --ordinal's items as an 'ordinal' statement's
+    spec, ordinal_items = api.ordinal_model(spec, ordinal)
     frame, source = loaded.frame, loaded.source
     read_frame = _rows_as_read(loaded)
     read_index = read_frame.index
@@ -795,7 +797,6 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index) so "
                           "that every row can be scored in its place")
     ids = row_ids(read_frame, source, id_column, spec.observed_names, group, loaded.row_names)
-    ordinal_items = api.ordinal_items_of(spec, ordinal)
     if ordinal_items:
         chosen = _ordinal_methods(methods, chosen, standard_errors, "")
     unanswered = unanswered_option(unanswered_factors, chosen)

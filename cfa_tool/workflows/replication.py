@@ -485,16 +485,18 @@ def _categories_apart(frames: tuple[pd.DataFrame, pd.DataFrame], items: list[str
 
 
 def _ordinal_setup(spec: Spec, ordinal, ordinal_estimator, options: dict,
-                   own: tuple[str, ...]) -> tuple[set[str], Weighting | None, bool]:
-    """(ordinal items, their estimator, whether rows with gaps are kept), as ``fit`` reads them; the fit options
-    checked first (an unknown keyword named with the near ones of the public function's keywords ``own``)."""
-    from cfa_tool.pipeline.inputs import check_ordinal_options, ordinal_estimator_option, ordinal_items_of
+                   own: tuple[str, ...]) -> tuple[Spec, set[str], Weighting | None, bool]:
+    """(the model as ``fit`` reads it with its ordinal items, those items, their estimator, whether rows with gaps
+    are kept), as ``fit`` reads them (pipeline.inputs.ordinal_model), so that the model is checked after them; the
+    fit options checked first (an unknown keyword named with the near ones of the public function's keywords
+    ``own``)."""
+    from cfa_tool.pipeline.inputs import check_ordinal_options, ordinal_estimator_option, ordinal_model
 
     fit_options = make_options(options, own)
-    items = ordinal_items_of(spec, ordinal)
+    spec, items = ordinal_model(spec, ordinal)
     method = ordinal_estimator_option(ordinal_estimator, items)
     pairwise = check_ordinal_options(fit_options) if items else False
-    return items, method if items else None, pairwise
+    return spec, items, method if items else None, pairwise
 
 
 def _same_categories(calibration, validation, frame: pd.DataFrame) -> None:
@@ -582,11 +584,10 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     ``rename`` those of the calibration file, ``validation_rename`` those of the validation file ({'SL3r': 'SL3_r'}:
     a follow-up sample's file that names an item differently).  ``id_column``: the column of each file that names
     its rows (never analysed), beside the row numbers of the cautions about rows, as for ``fit``."""
-    spec = load_spec(model)
+    spec, ordinal_items, method, pairwise = _ordinal_setup(load_spec(model), ordinal, ordinal_estimator,
+                                                           options if missing is None else {**options, "missing": missing},
+                                                           REPLICATE_KEYWORDS)
     one_group_only(spec, "replication fits one group's model in each sample")
-    ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
-                                                     options if missing is None else {**options, "missing": missing},
-                                                     REPLICATE_KEYWORDS)
     if _same_file(calibration, validation):
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
                           f"new data ({_one_file_instead()})")
@@ -670,11 +671,10 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     row numbers of the cautions about rows, as for ``fit``."""
     seed = check.seed(seed)
     design = _split_design(cluster, strata)
-    spec = load_spec(model)
+    spec, ordinal_items, method, pairwise = _ordinal_setup(load_spec(model), ordinal, ordinal_estimator,
+                                                           options if missing is None else {**options, "missing": missing},
+                                                           SPLIT_HALF_KEYWORDS)
     one_group_only(spec, "replication fits one group's model in each sample")
-    ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
-                                                     options if missing is None else {**options, "missing": missing},
-                                                     SPLIT_HALF_KEYWORDS)
     _, loaded, notes = read_inputs_with_notes(spec, data, sheet, missing_codes, keep,
                                               (id_column,) if isinstance(id_column, str) else (), names_row=names_row,
                                               first_data_row=first_data_row, rename=rename,

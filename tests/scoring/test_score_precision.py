@@ -121,7 +121,10 @@ def test_the_problems_table_of_the_scores_holds_what_the_first_box_says(hs_data)
     assert [row[0] for row in table.rows] == ["scores without the factor's own answers",
                                               "scores less reliable than decisions about individuals need"]
     assert report.notice.lines[1].startswith([row[5] for row in table.rows][1])  # the box adds 'What to try'
-    assert table.rows[1][6].startswith("use the scores to compare groups")
+    # one group: no advice to compare groups whose invariance nobody tested (new-user trial s22)
+    assert table.rows[1][6].startswith("use the scores for research, not for decisions about one person; comparing "
+                                       "groups or units (wards, sites, teams) by their mean scores needs measurement "
+                                       "invariance across them tested first")
 
 
 def test_the_quality_note_says_no_factor_score_method_was_written_with_item_sums_alone(rider_demo, rider_model):
