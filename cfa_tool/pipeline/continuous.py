@@ -179,7 +179,8 @@ class Estimation:
 
 def ordered_moments(moments: SampleMoments, observed: tuple[str, ...]) -> GroupMoments:
     if tuple(moments.names) == tuple(observed):
-        return GroupMoments(moments.covariance, moments.means, moments.n_obs, moments.rows, moments.design)
+        return GroupMoments(moments.covariance, moments.means, moments.n_obs, moments.rows, moments.design,
+                            moments.factor)
     order = [moments.names.index(n) for n in observed]
     rows = moments.rows[:, order] if moments.rows is not None else None
     return GroupMoments(moments.covariance[np.ix_(order, order)], moments.means[order], moments.n_obs, rows,
