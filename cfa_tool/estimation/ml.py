@@ -14,7 +14,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from cfa_tool.estimation.objective import Evaluation
+from cfa_tool.estimation.objective import Evaluation, ScoreRoute
 from cfa_tool.numerics.linalg import KnownFactor, sample_factor_of, spd_inverse
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term, gradient_and_information, mean_coefficients,
@@ -69,6 +69,7 @@ class NormalLikelihood:
     """
 
     complete_data = True
+    score_route = ScoreRoute.RANK_TWO  # candidate_scores
 
     def __init__(self, model: StructuredModel, groups: list[GroupMoments]):
         self.model = model

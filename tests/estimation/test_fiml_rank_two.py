@@ -123,13 +123,14 @@ def test_the_score_tests_from_rank_two_gathers_are_the_general_ones(monkeypatch,
 
 def test_the_helpers_joint_likelihood_keeps_the_general_score_tests():
     # the joint model of missing-data helpers is no StructuredModel: its score tests free the helpers' parameters on
-    # the general route (assessment.modification reads which route by hasattr(likelihood, "candidate_scores"))
+    # the general route (assessment.modification reads which route by the objective's score_route)
     from cfa_tool.estimation.auxiliary import AuxiliaryLikelihood
+    from cfa_tool.estimation.objective import ScoreRoute
     from cfa_tool.model.implied import StructuredModel
 
     joint = object.__new__(AuxiliaryLikelihood)
     joint.model = object()
-    assert not hasattr(joint, "candidate_scores")
+    assert joint.score_route is ScoreRoute.GENERAL and not hasattr(joint, "candidate_scores")
     plain = object.__new__(fiml.MissingDataLikelihood)
     plain.model = object.__new__(StructuredModel)
-    assert hasattr(plain, "candidate_scores")
+    assert plain.score_route is ScoreRoute.RANK_TWO and hasattr(plain, "candidate_scores")
