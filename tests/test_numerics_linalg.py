@@ -153,11 +153,19 @@ def test_numpys_kernels_called_directly_give_what_numpy_linalg_gives(monkeypatch
             factor = scaled_factor(A)
             out += [cholesky_log_det(A), spd_inverse(A), scaled_solve(A, b), scaled_solve(A, np.outer(b, b[:2])),
                     scaled_solve(A, b, positive_definite=True), factor.scales, factor.inverse]
+            # the start values' routes (model/starts.py): a general solve, an inverse of a stack, eigen-decompositions
+            stack = np.stack([A, A + np.eye(p)])
+            out += [linalg.solve(A, np.outer(b, b[:2])), linalg.inverse(stack), linalg.symmetric_eigen(stack),
+                    linalg.symmetric_eigenvalues(A)]
         bad = _indefinite(5, 3)
         out += [cholesky_log_det(bad), spd_inverse(bad), scaled_factor(bad), cholesky_log_det(np.full((3, 3), np.nan))]
         for singular, positive_definite in ((np.ones((3, 3)), False), (bad, True)):
             with pytest.raises(np.linalg.LinAlgError):
                 scaled_solve(singular, np.ones(3), positive_definite=positive_definite)
+        for refused in (lambda: linalg.inverse(np.ones((3, 3))), lambda: linalg.solve(np.ones((3, 3)), np.ones((3, 2))),
+                        lambda: linalg.symmetric_eigen(np.full((3, 3), np.nan))):
+            with pytest.raises(np.linalg.LinAlgError):
+                refused()
         return out
 
     before = np.geterr()

@@ -18,6 +18,7 @@
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, replace
 
 import numpy as np
@@ -86,6 +87,11 @@ def case_dicts(cases: Cases | tuple, naming: RowNaming = RowNaming.FILE_ROW) -> 
     if not cases:
         return []
     word = naming.json_word
+    m, p, s = cases.mahalanobis, cases.p_value, cases.chi_square_share
+    if (cases.id is None and cases.answered is None and all(type(row) is int for row in cases.rows)
+            and _finite_floats(m) and _finite_floats(p) and _finite_floats(s)):  # every row plain: checked at once
+        return [{"row": row, ROW_NAMED_BY: word, "mahalanobis": a, "p_value": b, "chi_square_share": c}
+                for row, a, b, c in zip(cases.rows, m, p, s)]
     none = (None,) * len(cases)
     out = []
     for row, id_, m, p, s, answered, model in zip(cases.rows, cases.id or none, cases.mahalanobis, cases.p_value,
@@ -102,6 +108,11 @@ def case_dicts(cases: Cases | tuple, naming: RowNaming = RowNaming.FILE_ROW) -> 
             plain = plain and type(answered) is int and type(model) is float and model - model == 0.0
         out.append(d if plain else clean(d))
     return out
+
+
+def _finite_floats(values: tuple) -> bool:
+    """Whether every value is a Python float and none NaN or infinite (a NaN or an infinity makes the sum one)."""
+    return all(type(v) is float for v in values) and math.isfinite(sum(values))
 
 
 def normalized_residuals(S: np.ndarray, sigma: np.ndarray, n_obs: int) -> np.ndarray:

@@ -27,7 +27,7 @@ from cfa_tool.assessment.diagnostics import descending_order
 from cfa_tool.assessment.held_rows import HeldRows
 from cfa_tool.assessment.standardized import Standardization, standardization, standardize_entries
 from cfa_tool.numerics.linalg import ScaledFactor, inverse_quadratic_forms, scaled_inverse
-from cfa_tool.estimation.objective import Objective
+from cfa_tool.estimation.objective import Objective, ScoreRoute
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import MATRIX_CODES, ParameterTable
 from cfa_tool.model.rank_two import EntryBasis, entry_basis
@@ -214,7 +214,8 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
         layouts = [candidate_layout(c, model.p, model.m) for c in candidates]
     if mats is None:
         mats = [model.matrices(theta, g) for g in range(table.n_groups)]
-    if hasattr(likelihood, "candidate_scores"):  # complete data: every block from rank-two derivatives, in chunks
+    rank_two = likelihood.score_route is ScoreRoute.RANK_TWO
+    if rank_two:  # every block from rank-two derivatives, in chunks
         # the information itself only when the caller has not factorised it (the forms below read the factor alone)
         H_tt = likelihood.evaluate(theta).information if factor is None else None
         # made when used: one chunk's block of the information held at a time
@@ -223,7 +224,7 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
     else:
         H_tt, parts = _chunked_blocks(model, theta, likelihood, candidates, layouts, mats, joint)
     # one factorisation for every group and chunk (the caller's, for complete data)
-    forms = inverse_quadratic_forms(H_tt, factor if hasattr(likelihood, "candidate_scores") else None)
+    forms = inverse_quadratic_forms(H_tt, factor if rank_two else None)
     n = likelihood.n_total
     columns = []
     for g, weight, mats, blocks in parts:

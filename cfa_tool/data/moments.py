@@ -20,7 +20,7 @@ from cfa_tool.options import Option
 from cfa_tool.method import MissingData
 from cfa_tool.numbers import number as strict_number
 from cfa_tool.numbers import rounded_number, user_number
-from cfa_tool.numerics.linalg import cholesky_log_det
+from cfa_tool.numerics.linalg import KnownFactor, cholesky_log_det, sample_factor
 
 
 @dataclass(frozen=True)
@@ -49,6 +49,9 @@ class SampleMoments:
     row_naming: RowNaming = field(default=RowNaming.FILE_ROW, repr=False, compare=False)
     #: the text lines of a text file's rows that start on a line of another number (data.kept_rows.text_lines)
     text_lines: Mapping[int, int] = field(default_factory=dict, repr=False, compare=False)
+    #: the covariance matrix's Cholesky factor and log-determinant, made by the checks of the moments, as (covariance,
+    #: factor, log|covariance|): the likelihood reads it for this very matrix (numerics.linalg.sample_factor_of)
+    factor: KnownFactor | None = field(default=None, repr=False, compare=False)
 
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
@@ -366,8 +369,10 @@ def _checked_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str,
     return values, finite
 
 
-def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], source: str) -> None:
-    """Constant columns and exactly collinear columns are errors that name the columns."""
+def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], source: str) -> KnownFactor | None:
+    """Constant columns and exactly collinear columns are errors that name the columns.  Returns the covariance
+    matrix's :func:`~cfa_tool.numerics.linalg.sample_factor` as (cov, lower factor, log|cov|), which the check of
+    combinations reads and the likelihood reuses, or None where it has none."""
     sds = np.sqrt(np.maximum(cov.diagonal(), 0.0))
     constant = np.flatnonzero((sds == 0) | (sds <= 1e-13 * np.abs(means)))
     if len(constant):
@@ -385,7 +390,11 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
                         f"('{printable(names[hi])}' {rounded_number(sds[hi])}, '{printable(names[lo])}' {rounded_number(sds[lo])}), too much to "
                         f"compute with accurately; put the items on comparable scales by multiplying or dividing columns "
                         f"by powers of ten (the fit does not change)")
-    _check_combinations(cov / np.outer(sds, sds), names, source)
+    found = sample_factor(cov)
+    # the correlations' factor is the covariances' with each row divided by its item's SD: chol(D^-1 S D^-1) = D^-1 L
+    if found is None or (found[0].diagonal() / sds).min() ** 2 <= 1e-8:
+        _check_combinations(cov / np.outer(sds, sds), names, source)
+    return None if found is None else (cov, *found)
 
 
 def _check_combinations(corr: np.ndarray, names: tuple[str, ...], source: str, among: str = "",
@@ -393,7 +402,8 @@ def _check_combinations(corr: np.ndarray, names: tuple[str, ...], source: str, a
     """Columns that are exact linear combinations of each other (a singular correlation matrix ``corr``) are an error
     that names them; ``among`` says which rows the matrix is of, when not all; ``cause``, when given, the likelier
     cause and what to try, instead of an exact combination of items ('one is the sum of others')."""
-    # a column that is an exact combination of earlier ones has (next to) no variance left given them
+    # a column that is an exact combination of earlier ones has (next to) no variance left given them: the squared
+    # diagonal of the Cholesky factor of the correlations (:func:`_check_moments` reads the covariances' factor so)
     found = cholesky_log_det(corr)
     if found is not None and found[0].diagonal().min() ** 2 > 1e-8:
         return
@@ -473,10 +483,10 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
         means = w @ data / w.sum()
         centred = data - means
         cov = (centred * w[:, None]).T @ centred / w.sum()
-    _check_moments(cov, means, names, source)
+    factor = _check_moments(cov, means, names, source)
     numbers = row_numbers(frame) if every_row else row_numbers(frame)[complete]
     return SampleMoments(tuple(names), cov, means, n, len(frame), len(frame) - n, file_source, group, data, numbers,
-                         row_naming=row_naming(frame), text_lines=text_lines(frame))
+                         row_naming=row_naming(frame), text_lines=text_lines(frame), factor=factor)
 
 
 def moments_with_gaps(values: np.ndarray, names: tuple[str, ...], source: str,

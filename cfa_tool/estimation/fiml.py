@@ -30,7 +30,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from cfa_tool.estimation.objective import Evaluation
+from cfa_tool.estimation.objective import Evaluation, ScoreRoute
 from cfa_tool.model.rank_two import (basis_vectors, gradient_and_information, mean_coefficients, mean_second_derivatives,
                                      path_second_derivatives, second_derivative_contraction)
 from cfa_tool.data.em import weighted_available_moments
@@ -208,11 +208,16 @@ class MissingDataLikelihood:
         return g_e @ J, J.T @ H @ J
 
     @property
+    def score_route(self) -> ScoreRoute:
+        """Rank-two gathers (:meth:`candidate_scores`) where the model's derivatives are (missing-data helpers' joint
+        model too); the general route otherwise."""
+        return ScoreRoute.RANK_TWO if self._rank_two_model else ScoreRoute.GENERAL
+
+    @property
     def candidate_scores(self):
-        """:meth:`_candidate_scores` where the model's derivatives are rank-two gathers (with missing-data helpers too:
-        a candidate is an entry of the model's matrices, its basis columns the joint layout's first ones, and its
-        cross-information is with every joint parameter); absent otherwise, so that ``hasattr`` tells the score tests
-        which route this likelihood has."""
+        """:meth:`_candidate_scores` where the model's derivatives are rank-two gathers (:attr:`score_route`; with
+        missing-data helpers too: a candidate is an entry of the model's matrices, its basis columns the joint layout's
+        first ones, and its cross-information is with every joint parameter); absent otherwise."""
         if not self._rank_two_model:
             raise AttributeError("candidate_scores")
         return self._candidate_scores

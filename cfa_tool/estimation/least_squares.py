@@ -31,7 +31,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from cfa_tool.estimation.objective import Evaluation
+from cfa_tool.estimation.objective import Evaluation, ScoreRoute
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.rank_two import (SecondOrderLayout, basis_vectors, path_second_derivatives, second_derivative_contraction,
                                      second_order_layout)
@@ -101,6 +101,8 @@ class OrdinalLeastSquares:
 
     ``thresholds``: the model statistics are standardized thresholds and correlations (thresholds
     as parameters); otherwise correlations of latent responses of unit variance."""
+
+    score_route = ScoreRoute.GENERAL
 
     def __init__(self, model: StructuredModel, groups: list[GroupStatistics], thresholds: bool,
                  unit_variances: tuple[np.ndarray, ...] | None = None):

@@ -10,12 +10,12 @@ chi-square statistic is N F at the minimum.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
-from cfa_tool.estimation.objective import Evaluation
-from cfa_tool.numerics.linalg import sample_factor, spd_inverse
+from cfa_tool.estimation.objective import Evaluation, ScoreRoute
+from cfa_tool.numerics.linalg import KnownFactor, sample_factor_of, spd_inverse
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term, gradient_and_information, mean_coefficients,
                                      mean_second_derivatives, model_columns, path_second_derivatives,
@@ -43,6 +43,8 @@ class GroupMoments:
     n_obs: int
     rows: np.ndarray | None = None  # raw complete rows, when robust statistics are wanted
     design: object | None = None  # data.sample_design.RowDesign of the rows (weights, clusters, strata), if any
+    # the covariance's factor made by the checks of the moments (data.moments.SampleMoments.factor), read for this matrix
+    factor: KnownFactor | None = field(default=None, repr=False, compare=False)
 
 
 class NormalParts:
@@ -67,6 +69,7 @@ class NormalLikelihood:
     """
 
     complete_data = True
+    score_route = ScoreRoute.RANK_TWO  # candidate_scores
 
     def __init__(self, model: StructuredModel, groups: list[GroupMoments]):
         self.model = model
@@ -80,7 +83,7 @@ class NormalLikelihood:
         #: each group's (Cholesky factor of S, log|S|), read again by the whitened rows of the diagnostics
         self.sample_factors = []
         for g in groups:
-            found = sample_factor(g.covariance)
+            found = sample_factor_of(g.covariance, g.factor)
             if found is None:
                 raise SingularMoments("sample covariance matrix is not positive definite")
             self.sample_factors.append(found)

@@ -12,6 +12,7 @@ implementation against this contract.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from enum import Enum
 from typing import Protocol, runtime_checkable
 
 import numpy as np
@@ -27,9 +28,20 @@ class Evaluation:
     information: np.ndarray  # expected second derivatives of F (scoring's Hessian), symmetric positive semi-definite
 
 
+class ScoreRoute(Enum):
+    """How an objective gives the score tests (assessment.modification.score_tests) their candidates' scores and
+    information."""
+
+    #: from rank-two gathers, chunk by chunk (the objective's ``candidate_scores``; model/rank_two.py)
+    RANK_TWO = "rank-two gathers"
+    #: from the general (q, p, p) derivatives of the implied moments and the objective's information
+    GENERAL = "general derivatives"
+
+
 @runtime_checkable
 class Objective(Protocol):
     model: StructuredModel
+    score_route: ScoreRoute  # which route the score tests take with this objective
     n_total: int  # N, the rows over all groups
     weights: list[float]  # each group's share N_g / N
     n_statistics: int  # sample statistics the model reproduces (degrees of freedom = this - free parameters)

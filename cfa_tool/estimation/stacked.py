@@ -31,14 +31,12 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-try:  # the stacked LAPACK kernels behind np.linalg (see _cholesky); not public API, so a numpy without them
-    from numpy.linalg import _umath_linalg  # falls back to one matrix at a time
-except ImportError:  # pragma: no cover - depends on the numpy installed
-    _umath_linalg = None
 
 from cfa_tool.estimation.optimizer import CLOSED_FORM_NEWTON_BELOW, NEAR_MINIMUM
 from cfa_tool.model.implied import StructuredModel
-from cfa_tool.numerics.linalg import full_rank_pivots
+# the stacked LAPACK kernels behind np.linalg (see _cholesky), imported where the package imports them; not public
+# API, so a numpy without them (LAPACK_KERNELS None) or with other ones falls back to one matrix at a time (_stacked)
+from cfa_tool.numerics.linalg import LAPACK_KERNELS, full_rank_pivots
 
 TOLERANCE = 1e-14  # on the Newton decrement, as for a single fit (optimizer.minimise)
 ARMIJO = 1e-4
@@ -363,7 +361,7 @@ def _cholesky(A: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     factors every matrix and leaves NaN where one is not positive definite; np.linalg.cholesky would then
     raise for the whole stack, so the kernel is called directly and the failures read from the factors."""
     with np.errstate(invalid="ignore", over="ignore", divide="ignore", under="ignore"):
-        factor = _stacked(lambda: _umath_linalg.cholesky_lo(A, signature="d->d"), np.linalg.cholesky, A)
+        factor = _stacked(lambda: LAPACK_KERNELS.cholesky_lo(A, signature="d->d"), np.linalg.cholesky, A)
     ok = np.isfinite(np.diagonal(factor, axis1=1, axis2=2)).all(axis=1)
     if not ok.all():
         factor[~ok] = np.eye(A.shape[-1])
@@ -390,7 +388,7 @@ def _solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = True, negated
         left, right, scale = _kept(ok, scaled, d * b, d)
         right = right[:, :, None]
         with np.errstate(invalid="ignore", over="ignore", divide="ignore", under="ignore"):
-            x[ok] = _stacked(lambda: _umath_linalg.solve(left, right, signature="dd->d"), np.linalg.solve, left,
+            x[ok] = _stacked(lambda: LAPACK_KERNELS.solve(left, right, signature="dd->d"), np.linalg.solve, left,
                              right)[:, :, 0] * scale
     return x, ok & np.isfinite(x).all(axis=1)
 
@@ -398,7 +396,7 @@ def _solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = True, negated
 def _stacked(kernel, one, *stacks: np.ndarray) -> np.ndarray:
     """numpy's stacked kernel (NaN where a matrix fails), or, should this numpy lack it, ``one`` applied matrix by
     matrix with NaN where it raises."""
-    if _umath_linalg is not None:
+    if LAPACK_KERNELS is not None:
         try:
             return kernel()
         except (AttributeError, TypeError):  # pragma: no cover - depends on the numpy installed

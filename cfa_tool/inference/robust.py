@@ -19,7 +19,7 @@ cluster sample) have a joint Gamma whose blocks between groups are not zero (cfa
 
 from __future__ import annotations
 
-from dataclasses import asdict, dataclass
+from dataclasses import dataclass
 
 import numpy as np
 from cfa_tool.numerics import distributions as dist
@@ -76,7 +76,7 @@ class RobustFit:
         return tuple(zip(self.test.pieces, values))
 
     def to_dict(self) -> dict:
-        d = asdict(self)
+        d = dict(vars(self))  # the fields in order (asdict's, without its deep copies of numbers and the enum)
         del d["test"]
         if self.scale is None:
             del d["scale"], d["shift"]

@@ -30,6 +30,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.model.parameters import ParameterTable
+from cfa_tool.numerics import linalg
 
 
 @dataclass(frozen=True)
@@ -164,7 +165,7 @@ def start_plan(table: ParameterTable) -> StartPlan:
 
     J, _ = table.mapping()
     try:
-        solve = np.linalg.solve(J.T @ J, J.T)  # J'J is nearly diagonal here
+        solve = linalg.solve(J.T @ J, J.T)  # J'J is nearly diagonal here
     except np.linalg.LinAlgError:
         solve = np.linalg.pinv(J)
     has_items = np.array([bool(items[f]) for f in range(m)])
@@ -303,7 +304,7 @@ def _positive_definite(r: np.ndarray, a: np.ndarray, b: np.ndarray, m: int) -> n
         return r
     C = np.eye(m)
     C[a, b] = C[b, a] = r
-    smallest = float(np.linalg.eigvalsh(C)[0])
+    smallest = float(linalg.symmetric_eigenvalues(C)[0])
     return r if smallest >= 0.02 else r * (0.98 / (1.0 - smallest))
 
 
@@ -314,12 +315,12 @@ def _principal_axes(R: np.ndarray) -> np.ndarray:
     eigenvector, and magnitudes are held between 0.2 and 0.95."""
     reduced = R.copy()
     try:
-        smc = 1.0 - 1.0 / np.diagonal(np.linalg.inv(R), axis1=1, axis2=2)
+        smc = 1.0 - 1.0 / np.diagonal(linalg.inverse(R), axis1=1, axis2=2)
     except np.linalg.LinAlgError:
         smc = np.full(R.shape[:2], 0.5)
     n = R.shape[1]
     reduced[:, np.arange(n), np.arange(n)] = np.minimum(np.maximum(smc, 0.05), 0.95)
-    vals, vecs = np.linalg.eigh(reduced)
+    vals, vecs = linalg.symmetric_eigen(reduced)
     v = vecs[:, :, -1]
     sign = np.sign(v.sum(axis=1))
     v = v * np.where(sign == 0, 1.0, sign)[:, None]

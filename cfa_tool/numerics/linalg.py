@@ -35,6 +35,10 @@ def _raise_singular(error, flag):
     raise np.linalg.LinAlgError("Singular matrix")
 
 
+def _raise_not_converged(error, flag):
+    raise np.linalg.LinAlgError("Eigenvalues did not converge")
+
+
 try:  # numpy's LAPACK kernels and its settings of floating-point errors (see the module's docstring)
     from numpy._core._ufunc_config import _extobj_contextvar, _make_extobj
     from numpy.linalg import _umath_linalg as _KERNELS
@@ -44,9 +48,12 @@ try:  # numpy's LAPACK kernels and its settings of floating-point errors (see th
     _LINALG_SETTINGS = {
         message: _make_extobj(call=callback, invalid="call", over="ignore", divide="ignore", under="ignore")
         for message, callback in (("positive definite", _raise_not_positive_definite),
-                                  ("singular", _raise_singular))}
+                                  ("singular", _raise_singular), ("eigenvalues", _raise_not_converged))}
 except (ImportError, AttributeError, TypeError):  # pragma: no cover - depends on the numpy installed
     _KERNELS = None
+
+#: the kernels for stacks of matrices too (estimation/stacked.py), imported here once: None without them
+LAPACK_KERNELS = _KERNELS
 
 
 def _kernel(kernel, settings: str, *arrays: np.ndarray, signature: str) -> np.ndarray:
@@ -84,6 +91,31 @@ def _solve(A: np.ndarray, b: np.ndarray) -> np.ndarray:
     return _kernel(_KERNELS.solve1 if b.ndim == 1 else _KERNELS.solve, "singular", A, b, signature="dd->d")
 
 
+def inverse(A: np.ndarray) -> np.ndarray:
+    """np.linalg.inv(A) of a float matrix or a stack of them: LinAlgError where one is singular."""
+    return _inverse(A)
+
+
+def solve(A: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """np.linalg.solve(A, b) of a float matrix, for a vector or a matrix of columns b: LinAlgError where A is singular."""
+    return _solve(A, b)
+
+
+def symmetric_eigen(A: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """np.linalg.eigh(A) of a symmetric float matrix or a stack of them (the lower triangle read): the eigenvalues in
+    ascending order and the eigenvectors as columns; LinAlgError where they do not converge."""
+    if _KERNELS is None:
+        return tuple(np.linalg.eigh(A))
+    return _kernel(_KERNELS.eigh_lo, "eigenvalues", A, signature="d->dd")
+
+
+def symmetric_eigenvalues(A: np.ndarray) -> np.ndarray:
+    """np.linalg.eigvalsh(A) of a symmetric float matrix or a stack of them (the lower triangle read), ascending."""
+    if _KERNELS is None:
+        return np.linalg.eigvalsh(A)
+    return _kernel(_KERNELS.eigvalsh_lo, "eigenvalues", A, signature="d->d")
+
+
 def cholesky_log_det(A: np.ndarray) -> tuple[np.ndarray, float] | None:
     """(lower Cholesky factor, log|A|) of a symmetric matrix (its lower triangle read), or None when it is not
     positive definite."""
@@ -118,6 +150,17 @@ def sample_factor(S: np.ndarray) -> tuple[np.ndarray, float] | None:
     found = cholesky_log_det(S)
     return None if found is None or not full_rank_pivots(found[0], S) else found
 
+
+#: a sample_factor made where the moments were computed: (the matrix S it is of, its lower factor, log|S|)
+KnownFactor = tuple[np.ndarray, np.ndarray, float]
+
+
+def sample_factor_of(S: np.ndarray, known: KnownFactor | None) -> tuple[np.ndarray, float] | None:
+    """:func:`sample_factor` of S, read from ``known`` when that was made of this very matrix (the same array, not an
+    equal one: moments replaced by others carry their own), made otherwise."""
+    if known is not None and known[0] is S:
+        return known[1], known[2]
+    return sample_factor(S)
 
 
 def log_det_pd(A: np.ndarray) -> float | None:

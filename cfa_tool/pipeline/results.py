@@ -68,8 +68,11 @@ def _json_numbers(column: list) -> list[float | None]:
     finite is used as it is (a NaN or an infinity makes the sum one; numpy numbers make it a numpy one); any other
     goes through value by value."""
     total = sum(column)
-    if type(total) is float and math.isfinite(total):
-        return column
+    if type(total) is float:  # Python floats, or numpy numbers after a Python float's NaN (then value by value below)
+        if total - total == 0.0:
+            return column
+        if all(type(v) is float for v in column):  # as float(v) gives them, without a call per number
+            return [v if v - v == 0.0 else None for v in column]
     return [float(v) if v - v == 0.0 else None for v in column]
 
 
@@ -329,10 +332,9 @@ class DataSummary:
             out.update(answered=clean_list(self.answered), skewness=clean_list(self.skewness),
                        excess_kurtosis=clean_list(self.kurtosis))
         if self.categories:
-            out["category_counts"] = clean({name: [{"value": v, "rows": c} for v, c in cats]
-                                            for name, cats in zip(self.variables, self.categories)})
+            out["category_counts"] = _category_counts(self.variables, self.categories)
         if self.pair_rows:
-            out["pair_rows"] = clean([{"items": [a, b], "rows": c} for a, b, c in self.pair_rows])
+            out["pair_rows"] = _pair_rows(self.pair_rows)
         if self.row_filters:
             out.update(row_filters=clean([f.text for f in self.row_filters]), rows_in_file=clean(self.rows_in_file))
         if self.not_given:
@@ -360,8 +362,33 @@ class DataSummary:
 
             out["answer_coding"] = clean(coding_json(self.answer_coding))
         if self.ranges:
-            out["answer_ranges"] = {name: clean_list(r) for name, r in zip(self.variables, self.ranges)}
+            out["answer_ranges"] = _answer_ranges(self.variables, self.ranges)
         return out
+
+
+def _category_counts(variables: tuple[str, ...], categories: tuple) -> dict:
+    """``clean({name: [{"value": v, "rows": c}, ...]})`` (numerics.plain.clean) of each item's categories: built as it
+    is when every value is a finite Python float and every count a Python int (what clean leaves as it is)."""
+    if all(type(v) is float and v - v == 0.0 and type(c) is int for cats in categories for v, c in cats):
+        return {name: [{"value": v, "rows": c} for v, c in cats] for name, cats in zip(variables, categories)}
+    return clean({name: [{"value": v, "rows": c} for v, c in cats] for name, cats in zip(variables, categories)})
+
+
+def _pair_rows(pair_rows: tuple) -> list:
+    """``clean([{"items": [a, b], "rows": c}, ...])``: built as it is when the names are text and the counts Python
+    ints (what clean leaves as it is)."""
+    if all(type(a) is str and type(b) is str and type(c) is int for a, b, c in pair_rows):
+        return [{"items": [a, b], "rows": c} for a, b, c in pair_rows]
+    return clean([{"items": [a, b], "rows": c} for a, b, c in pair_rows])
+
+
+def _answer_ranges(variables: tuple[str, ...], ranges: tuple) -> dict:
+    """Each item's lowest and highest answer as ``clean_list`` (numerics.plain) gives them: checked at once, the
+    pairs copied as they are when every value is a Python float and their sum finite."""
+    values = [v for r in ranges for v in r]
+    if all(type(v) is float for v in values) and math.isfinite(sum(values)):
+        return {name: list(r) for name, r in zip(variables, ranges)}
+    return {name: clean_list(r) for name, r in zip(variables, ranges)}
 
 
 @dataclass(frozen=True, eq=False)

@@ -55,3 +55,25 @@ def test_case_rows_as_json_are_those_of_each_row_cleaned(naming):
     assert all(_same(a, b) for a, b in zip(built, expected))
     assert any(None in d.values() for d in built)  # the draws hold NaN and infinities
     assert all(type(d["row"]) is int for d in built)  # numpy integers turned into Python ones
+
+
+def test_rows_checked_at_once_are_each_row_cleaned():
+    """Sets of ten rows without ids or gaps, as a complete-data fit holds them, are built at once when every number is
+    a finite Python float and every row a Python int: what cleaning each row gives, also when one odd value (NaN, an
+    infinity, a numpy number) sends the set back to the row-by-row route."""
+    rng = np.random.default_rng(8)
+    odd = [float("nan"), float("inf"), -float("inf"), np.float64(2.5), 1e308]
+    at_once = 0
+    for k in range(400):
+        rows = [CaseDiagnostic(int(rng.integers(1, 500)), *(float(v) for v in rng.normal(size=3))) for _ in range(10)]
+        if k % 3 == 0:  # one odd value in one row's column
+            j, column = int(rng.integers(10)), ("mahalanobis", "p_value", "chi_square_share")[k % 9 // 3]
+            rows[j] = CaseDiagnostic(**{**vars(rows[j]), column: odd[k % len(odd)]})
+        elif k % 3 == 1 and k % 5 == 0:  # a row numbered by a numpy integer
+            rows[0] = CaseDiagnostic(**{**vars(rows[0]), "row": np.int64(7)})
+        else:
+            at_once += 1
+        for naming in RowNaming:
+            built, expected = case_dicts(_columns(rows), naming), [clean(c.to_dict(naming)) for c in rows]
+            assert len(built) == 10 and all(_same(a, b) for a, b in zip(built, expected))
+    assert 200 < at_once < 400  # both routes were taken

@@ -122,17 +122,18 @@ def test_the_score_tests_from_rank_two_gathers_are_the_general_ones(monkeypatch,
 
 
 def test_which_likelihoods_offer_the_rank_two_score_tests():
-    # assessment.modification reads which route by hasattr(likelihood, "candidate_scores"): a StructuredModel's
-    # likelihood and the joint model of missing-data helpers (its own rank-two layout since large-s22,
+    # assessment.modification reads which route by the objective's score_route: a StructuredModel's likelihood and
+    # the joint model of missing-data helpers (its own rank-two layout since large-s22,
     # tests/estimation/test_fiml_without_weight_matrix.py) offer them; a model without a layout does not
     from cfa_tool.estimation.auxiliary import AuxiliaryLikelihood, JointModel
+    from cfa_tool.estimation.objective import ScoreRoute
     from cfa_tool.model.implied import StructuredModel
 
     joint = object.__new__(AuxiliaryLikelihood)
     joint.model = object()
-    assert not hasattr(joint, "candidate_scores")
+    assert joint.score_route is ScoreRoute.GENERAL and not hasattr(joint, "candidate_scores")
     joint.model = object.__new__(JointModel)
-    assert hasattr(joint, "candidate_scores")
+    assert joint.score_route is ScoreRoute.RANK_TWO and hasattr(joint, "candidate_scores")
     plain = object.__new__(fiml.MissingDataLikelihood)
     plain.model = object.__new__(StructuredModel)
-    assert hasattr(plain, "candidate_scores")
+    assert plain.score_route is ScoreRoute.RANK_TWO and hasattr(plain, "candidate_scores")

@@ -26,7 +26,7 @@ from cfa_tool.data.moments import sample_moments
 from cfa_tool.data.polychoric import ordinal_moments
 from cfa_tool.estimation.least_squares import OrdinalLeastSquares, group_statistics
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood
-from cfa_tool.estimation.objective import Objective
+from cfa_tool.estimation.objective import Objective, ScoreRoute
 from cfa_tool.estimation.optimizer import minimise
 from cfa_tool.language import parse_model
 from cfa_tool.language.spec import ParameterRef, ValueSetting
@@ -132,6 +132,9 @@ def test_every_objective_implements_the_interface(fitted):
     objective, theta, table = fitted
     assert isinstance(objective, Objective)
     assert objective.n_statistics > table.n_free  # the two-factor model is over-identified
+    # the score tests' route is declared, and the rank-two one has its candidates' scores
+    assert isinstance(objective.score_route, ScoreRoute)
+    assert objective.score_route is not ScoreRoute.RANK_TWO or callable(objective.candidate_scores)
     assert sum(objective.weights) == pytest.approx(1.0)
 
 

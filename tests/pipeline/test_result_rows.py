@@ -81,3 +81,42 @@ def test_estimate_rows_json_is_each_field_cleaned(hs_data):
         assert list(row) == ["kind", "variables", "group", "free", "estimate", "se", "z", "p_value", "ci95",
                              "standardized", "standardized_factors_only"]
     assert any(row["se"] is None for row in rows) and any(not row["free"] for row in rows)
+
+
+def _same(a, b) -> bool:
+    """The same JSON value to the bit: types, keys in order, floats' bits (NaN equal to NaN)."""
+    if type(a) is not type(b):
+        return False
+    if isinstance(a, dict):
+        return list(a) == list(b) and all(_same(a[k], b[k]) for k in a)
+    if isinstance(a, list):
+        return len(a) == len(b) and all(_same(x, y) for x, y in zip(a, b))
+    if isinstance(a, float):
+        return (math.isnan(a) and math.isnan(b)) or (a == b and math.copysign(1, a) == math.copysign(1, b))
+    return a == b
+
+
+def test_columns_checked_at_once_are_each_value_cleaned():
+    """The estimate rows' columns (pipeline.results._json_numbers) and the data block's category counts, pairs of items
+    and answer ranges, each built at once when every value is plain, are what cleaning them value by value gives
+    (numerics.plain.clean): Python floats, NaN and infinities as None, numpy numbers as Python ones."""
+    from cfa_tool.pipeline.results import _answer_ranges, _category_counts, _json_numbers, _pair_rows
+
+    rng = np.random.default_rng(3)
+    odd = [float("nan"), float("inf"), -float("inf"), np.float64(2.5), np.float64("nan"), -0.0, 1e308]
+    for k in range(300):
+        values = [float(v) for v in rng.normal(size=12)]
+        if k % 2:
+            values[int(rng.integers(12))] = odd[k % len(odd)]
+        assert _same(_json_numbers(list(values)), [clean(v) for v in values])
+        names = tuple(f"item{j}" for j in range(6))
+        ranges = tuple((values[2 * j], values[2 * j + 1]) for j in range(6))
+        assert _same(_answer_ranges(names, ranges), {n: clean(list(r)) for n, r in zip(names, ranges)})
+        counts = [int(c) for c in rng.integers(0, 90, 12)]
+        if k % 4 == 1:
+            counts[3] = np.int64(counts[3])
+        categories = tuple(tuple(zip(values[2 * j: 2 * j + 2], counts[2 * j: 2 * j + 2])) for j in range(6))
+        assert _same(_category_counts(names, categories),
+                     clean({n: [{"value": v, "rows": c} for v, c in cats] for n, cats in zip(names, categories)}))
+        pairs = tuple((names[j], names[j + 1], counts[j]) for j in range(5))
+        assert _same(_pair_rows(pairs), clean([{"items": [a, b], "rows": c} for a, b, c in pairs]))
