@@ -567,6 +567,9 @@ class HiddenRows:
     filtered: bool  # the sheet has a filter
     keep: str | None = None  # the --keep filter that keeps the rows the workbook's filter shows, when it is plain
     filtered_out: int = 0  # hidden rows the row filters (--keep) left out
+    #: the kind of problem every view files it under (assessment.admissibility.ProblemKind's value): rows, not values
+    #: that look like no answers (s21)
+    problem_kind: str = "rows the workbook hides"
 
     def among(self, kept) -> HiddenRows | None:
         """The hidden rows that row filters kept (``kept``: row numbers), or None when they kept none."""
@@ -574,23 +577,32 @@ class HiddenRows:
         return replace(self, rows=rows, filtered_out=self.filtered_out + len(self.rows) - len(rows)) if rows else None
 
     def caution(self, source: str) -> str:
+        """What was found (the rows, hidden by the workbook's filter or by hand) and that they were kept."""
         name = source.replace("\\", "/").rsplit("/", 1)[-1]
         shown = ", ".join(str(r) for r in self.rows[:5]) + (f" and {len(self.rows) - 5} more" if len(self.rows) > 5
                                                              else "")
-        how = "by its filter" if self.filtered else "as hidden rows"
         hidden = len(self.rows) + self.filtered_out
-        left = f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)}" \
-            if self.filtered_out else "; they"
-        return (f"{name} (sheet '{printable(self.sheet)}') hides {hidden} of its {self.of} rows of data {how} "
-                f"(row{'s' if len(self.rows) != 1 else ''} {shown}){left} were analysed with the others, as the "
-                f"file holds them.")
+        how = "by its filter" if self.filtered else "by hand, not by a filter"
+        left = (f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)} were kept"
+                if self.filtered_out else f"; {'it was' if hidden == 1 else 'they were'} kept")
+        return (f"{name} (sheet '{printable(self.sheet)}') hides {hidden} of its {self.of} rows of data "
+                f"(row{'s' if len(self.rows) != 1 else ''} {shown}) {how}{left} and analysed with the rows it shows, "
+                f"as the file holds them.")
 
     def advice(self) -> Note:
         """What to try, the row filter apart (note_parts.Command): a manuscript's reader runs nothing."""
-        keep = f" (here {Option.KEEP.given(printable(self.keep))})" if self.keep else ""
-        return Note(("If the hidden rows are not to be analysed, leave them out with a row filter",
-                     Command(f" ({Option.KEEP})"), " on the column the workbook's filter uses", Command(keep),
-                     ", or delete them from a copy of the file."))
+        ending = "; to analyse every row, leave the caution be."
+        if self.filtered and self.keep:
+            return Note(("To analyse only the rows the workbook's filter shows, ",
+                         Command(f"give {Option.KEEP.given(printable(self.keep))}",
+                                 f"keep the rows where {printable(self.keep)}"), ending))
+        if self.filtered:
+            return Note(("To analyse only the rows the workbook's filter shows, leave the hidden ones out with a row "
+                         "filter", Command(f" ({Option.KEEP})"), " on the column its filter uses, or delete them from "
+                         "a copy of the file", ending))
+        return Note(("To analyse only the rows the sheet shows, leave the hidden ones out with a row filter",
+                     Command(f" ({Option.KEEP})"), " on a column that tells them apart (an id, a date), or delete them "
+                     "from a copy of the file", ending))
 
     def to_dict(self) -> dict:
         return {"sheet": self.sheet, "rows": list(self.rows), "of": self.of, "filtered": self.filtered,
