@@ -98,6 +98,9 @@ class LoadedData:
     #: the codes of ``missing_codes`` that some item cell held (so read as no answer): the methods paragraph names
     #: these, not a code no answer held (fixhost-s18: '-99 was treated as missing' where only a filter column held it)
     codes_found: tuple[float, ...] = ()
+    #: the words given with --missing-codes (data.non_answers.run_words, as given), which advice that adds a code to
+    #: the list keeps beside ``missing_codes`` (data.missing_codes.codes_given)
+    missing_words: tuple[str, ...] = ()
 
     def column_hint(self) -> str:
         """Words for a message about a missing column: the columns read under new names (a name the model uses may
@@ -242,7 +245,11 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     if code_notes:
         loaded = replace(loaded, notes=loaded.notes + tuple(code_notes))
     numbers = tuple(float(c) for c in missing_codes if isinstance(c, (int, float)) and not isinstance(c, bool))
-    return replace(loaded, missing_codes=numbers, codes_found=tuple(c for c in numbers if c in found)) if numbers else loaded
+    words = run_words()
+    if not numbers and not words:
+        return loaded
+    return replace(loaded, missing_codes=numbers, codes_found=tuple(c for c in numbers if c in found),
+                   missing_words=tuple(words))
 
 
 def sheet_of_each(sources, sheet: str | None) -> tuple[str | None, ...]:

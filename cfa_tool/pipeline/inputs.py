@@ -722,9 +722,11 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
     labelled = {(c.value, column) for c in loaded.cautions if isinstance(c, BeyondScale) for column in c.columns}
     odd = tuple(o for o in loaded.odd_values if not (o.kind in (OddKind.MISSING_CODE, OddKind.SET_APART) and all(
         (v, column) in labelled for v, column in zip(o.values, o.columns))))
+    given = tuple(loaded.missing_codes) + tuple(loaded.missing_words)  # advice adding a code keeps those given
+    odd = tuple(replace(o, given=given) for o in odd) if given else odd
     return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked),) if marked else ()) + tuple(
-        Problem(ProblemKind(getattr(odd, "problem_kind", ProblemKind.VALUES_NOT_ANSWERS.value)), (), None,
-                odd.caution(loaded.source), odd.advice())
+        Problem(ProblemKind(getattr(odd, "problem_kind", ProblemKind.VALUES_NOT_ANSWERS.value)), (),
+                getattr(odd, "problem_value", None), odd.caution(loaded.source), odd.advice())
         for odd in loaded.cautions + odd)
 
 
@@ -1410,7 +1412,7 @@ def odd_values_named(loaded: LoadedData):
         # a row far beyond the others in several item columns (a spreadsheet's COUNT or totals row of other rows)
         # is bad input, the likelier cause of the failure: a data error (exit 2), that row named first
         row = next((o for o in loaded.odd_values if o.kind is OddKind.FAR_BEYOND and len(o.columns) > 1), None)
-        first = row or loaded.odd_values[0]
+        first = replace(row or loaded.odd_values[0], given=tuple(loaded.missing_codes) + tuple(loaded.missing_words))
         more = f" (and {len(loaded.odd_values) - 1} more such findings)" if len(loaded.odd_values) > 1 else ""
         raise (DataError if row is not None else EstimationError)(
             f"{first.caution(loaded.source)}{more} What to try first: {first.advice()} Then: {exc}") from None
