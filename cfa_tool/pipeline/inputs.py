@@ -1752,10 +1752,10 @@ def dominant_cluster_problem(design, dominant, robust=None):
     cluster = ""
     if dominant is not None:
         cluster = (f"{' ' if extreme else ''}Of the {dominant.clusters} clusters of '{column}', '{dominant.name}' "
-                   f"holds {dominant.share:.0%} of the design effect of the statistics the fit rests on (each "
+                   f"holds {rounded_number(100 * dominant.share, 2)}% of the design effect of the statistics the fit rests on (each "
                    f"statistic's design-based variance over its variance with the rows taken as independent, summed; "
-                   f"mean design effect {dominant.design_effect:.2f}), where each would hold about "
-                   f"{1 / dominant.clusters:.1%} if they were alike")
+                   f"mean design effect {rounded_number(dominant.design_effect)}), where each would hold about "
+                   f"{rounded_number(100 / dominant.clusters, 2)}% if they were alike")
         cluster += (f" (more than {DOMINANT_SHARE:.0%}, more than all the other clusters together, is taken as "
                     f"dominating, a rule of thumb of this tool, not a law): the cluster-robust standard errors and the "
                     f"design-based test describe mostly that one cluster's rows." if large else ".")
