@@ -81,3 +81,19 @@ def test_a_missing_value_codes_advice_keeps_the_codes_given():
     [caution] = [p for p in problems if p.kind is ProblemKind.VALUES_NOT_ANSWERS]
     assert "the value -99" in str(caution.explanation)
     assert "missing_codes=[999, -99]" in str(caution.advice)
+
+
+def test_explore_keeps_the_codes_given_too():
+    """explore screens its items apart from the other commands (pipeline.inputs.screened): its advice keeps the codes
+    given as theirs does, and a filter column holding a code given is named as one given."""
+    frame = pupils()
+    frame.loc[[3, 5], ["q1", "q2"]] = -99
+    frame["site"] = 1
+    frame.loc[:5, "site"] = 9  # 9 given as a code: beside the sites' 1 it is no code by the screening's own rule
+    result = cfa_tool.explore(frame, items=ITEMS, replications=5, missing_codes=[-99, 9], keep="site <= 9")
+    # 8 alone left beside the codes given (in about 2.5% of the cells): its advice keeps -99 and 9
+    assert any("8" in str(p.explanation) and "missing_codes=[-99, 9, 8]" in str(p.advice)
+               for p in result.data_problems)
+    [kept] = [p for p in result.data_problems if p.kind is ProblemKind.CODE_KEPT_AS_VALUE]
+    assert "holds 9 in 6 of the 400 rows analysed" in str(kept.explanation)  # rows 0 to 5, set above
+    assert "a value given as a code of no answer" in str(kept.explanation)
