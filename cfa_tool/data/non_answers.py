@@ -270,11 +270,13 @@ class LabelledAnswer:
         listed = ", ".join(f"{printable(c)} {n}" for c, n in zip(self.columns[:shown], self.cells[:shown]))
         more = f" and {_more(len(self.columns) - shown, 'item')}" if len(self.columns) > shown else ""
         total = sum(self.cells)
-        codes = [f"{user_number(c)}" for c in given if isinstance(c, (int, float))] + [f"{user_number(self.value)}"]
+        from cfa_tool.data.missing_codes import codes_given
+
+        codes = tuple(c for c in given if isinstance(c, (int, float))) + run_words() + (self.value,)
         return Note((f"{base_name(source)}: {user_number(self.value)} '{printable(self.label)}' lies between other answers of "
                      f"the item{'s' if len(self.columns) != 1 else ''} and was analysed as an answer ({total} "
                      f"cell{'s' if total != 1 else ''}: {listed}{more}), though its label reads like no answer",
-                     Command(f"; to read it as no answer, give {Option.MISSING_CODES.given(','.join(codes))}")))
+                     Command(f"; to read it as no answer, give {codes_given(codes)}")))
 
 
 def answers_labelled_like_none(frame: pd.DataFrame, value_labels: dict, skip: tuple = ()) -> tuple[LabelledAnswer, ...]:
@@ -342,6 +344,9 @@ class BeyondScale:
     label: str
     rows: tuple[tuple[int, ...], ...]  # one tuple per column
     scale: tuple[float, float]  # the lowest and highest of the items' other labelled codes
+    #: the codes of no answer the run gave already (numbers and words), which the advice's list keeps
+    #: (data.missing_codes.codes_given; set by pipeline.inputs.odd_value_problems)
+    given: tuple = ()
 
     def caution(self, source: str) -> str:
         name = source.replace("\\", "/").rsplit("/", 1)[-1]
@@ -362,8 +367,10 @@ class BeyondScale:
         return f"{where} ({user_number(self.scale[0])} to {user_number(self.scale[1])}), analysed as an answer: a code of no answer?"
 
     def advice(self) -> Note:
+        from cfa_tool.data.missing_codes import codes_given
+
         return Note((f"If {user_number(self.value)} '{printable(self.label)}' is not an answer on the scale, ",
-                     Command(f"give {Option.MISSING_CODES.given(f'{user_number(self.value)}')}", "read it as no answer"),
+                     Command(f"give {codes_given(tuple(self.given) + (self.value,))}", "read it as no answer"),
                      "; if it is, nothing."))
 
 

@@ -715,19 +715,22 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
 
     items = (tuple(loaded.items.names) + tuple(helpers)) if loaded.items is not None else tuple(loaded.frame.columns)
     marked = non_answer_caution(loaded.non_answers, loaded.source, items, loaded.frame, listwise)
-    # a code already named as labelled beyond the scale of the same items is not named again as a missing-value code
+    # a code already named as labelled beyond the scale of the same items is not named again (as a missing-value code,
+    # a value outside the answer scale or a code set apart)
     from cfa_tool.data.non_answers import BeyondScale
     from cfa_tool.data.odd_values import OddKind
 
     labelled = {(c.value, column) for c in loaded.cautions if isinstance(c, BeyondScale) for column in c.columns}
-    odd = tuple(o for o in loaded.odd_values if not (o.kind in (OddKind.MISSING_CODE, OddKind.SET_APART) and all(
+    odd = tuple(o for o in loaded.odd_values if not (o.kind in (OddKind.MISSING_CODE, OddKind.OUTSIDE_SCALE,
+                                                                OddKind.SET_APART) and all(
         (v, column) in labelled for v, column in zip(o.values, o.columns))))
     given = tuple(loaded.missing_codes) + tuple(loaded.missing_words)  # advice adding a code keeps those given
     odd = tuple(replace(o, given=given) for o in odd) if given else odd
+    cautions = tuple(replace(c, given=given) if given and isinstance(c, BeyondScale) else c for c in loaded.cautions)
     return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked),) if marked else ()) + tuple(
         Problem(ProblemKind(getattr(odd, "problem_kind", ProblemKind.VALUES_NOT_ANSWERS.value)), (),
                 getattr(odd, "problem_value", None), odd.caution(loaded.source), odd.advice())
-        for odd in loaded.cautions + odd)
+        for odd in cautions + odd)
 
 
 def group_case_problems(frame: pd.DataFrame, group: str, part: str = "group",

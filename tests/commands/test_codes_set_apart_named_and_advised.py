@@ -97,3 +97,29 @@ def test_explore_keeps_the_codes_given_too():
     [kept] = [p for p in result.data_problems if p.kind is ProblemKind.CODE_KEPT_AS_VALUE]
     assert "holds 9 in 6 of the 400 rows analysed" in str(kept.explanation)  # rows 0 to 5, set above
     assert "a value given as a code of no answer" in str(kept.explanation)
+
+
+def test_labelled_codes_advice_keeps_the_codes_given_and_is_said_once(tmp_path, rider_demo, rider_model):
+    """A labelled code beyond the scale (7 'Other' beside labelled answers 1 to 5) is named once, by its label, not
+    again as a value outside the answer scale, and its advice keeps the codes given; so does the note on a midpoint
+    whose label reads like no answer (data.non_answers).  Files written by pyreadstat; counts by pandas."""
+    import pytest
+
+    pyreadstat = pytest.importorskip("pyreadstat")
+    items = [c for c in rider_demo.columns if c not in ("rider_id", "district")]
+    scale = {1.0: "Strongly disagree", 2.0: "Disagree", 3.0: "Neutral", 4.0: "Agree", 5.0: "Strongly agree"}
+    frame = rider_demo.copy()
+    frame.loc[:7, items[:4]] = 7
+    path = tmp_path / "other.sav"
+    pyreadstat.write_sav(frame, str(path), variable_value_labels={c: {**scale, 7.0: "Other"} for c in items})
+    problems = cfa_tool.fit(rider_model, str(path), missing_codes=[-99, "Ne sait pas"]).problems
+    named = [p for p in problems if "7" in str(p.explanation) and p.kind is ProblemKind.VALUES_NOT_ANSWERS]
+    assert len(named) == 1, [str(p.explanation) for p in named]
+    assert "hold the code 7 labelled 'Other' (32 cells" in str(named[0].explanation)  # 8 rows x 4 items
+    assert "give missing_codes=[-99, 'Ne sait pas', 7]" in str(named[0].advice)
+    middle = tmp_path / "middle.sav"
+    pyreadstat.write_sav(rider_demo, str(middle),
+                         variable_value_labels={c: {**scale, 3.0: "Not sure / neutral"} for c in items})
+    notes = [str(w) for w in cfa_tool.fit(rider_model, str(middle), missing_codes=[-99, "Ne sait pas"]).warnings
+             if "lies between other answers" in str(w)]
+    assert len(notes) == 1 and notes[0].endswith("give missing_codes=[-99, 'Ne sait pas', 3]")
