@@ -47,3 +47,13 @@ def test_the_dominant_clusters_shares_are_never_zero_percent():
     assert "holds 60% of the design effect" in said
     assert "mean design effect 0.004)" in said
     assert "where each would hold about 0.025% if they were alike" in said  # 100 / 4,000
+
+
+def test_a_tiny_intraclass_correlation_is_not_written_as_zero():
+    from cfa_tool.data.cluster_similarity import ClusterSimilarity
+
+    similar = ClusterSimilarity(("a", "b", "c"), (0.0004, 0.0004, 0.02), 11.0)
+    said = similar.phrase()
+    assert said.startswith("median intraclass correlation of the items .0004 (.0004 to .02), design effect 1.00 at")
+    # 1 + (11 - 1) x .0004 = 1.004 (Kish 1965)
+    assert ".000 " not in said and ".000)" not in said
