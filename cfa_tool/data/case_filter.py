@@ -47,7 +47,8 @@ class FilterVariable:
         shown = ", ".join(str(r) for r in self.rows[:5]) + (f" and {len(self.rows) - 5} more" if len(self.rows) > 5
                                                              else "")
         label = f" ('{printable(self.label)}')" if self.label else ""
-        left = (f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)} were"
+        left = (f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)} "
+                f"{'was' if len(self.rows) == 1 else 'were'}"
                 if self.filtered_out else f"; {'it was' if len(self.rows) == 1 else 'they were'}")
         return (f"{name} was saved with a case filter on: its filter variable {printable(self.column)}{label} marks "
                 f"{len(self.rows) + self.filtered_out} of its {self.of} rows 'Not Selected' "

@@ -590,7 +590,8 @@ class HiddenRows:
                                                              else "")
         hidden = len(self.rows) + self.filtered_out
         how = "by its filter" if self.filtered else "by hand, not by a filter"
-        left = (f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)} were kept"
+        left = (f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)} "
+                f"{'was' if len(self.rows) == 1 else 'were'} kept"
                 if self.filtered_out else f"; {'it was' if hidden == 1 else 'they were'} kept")
         return (f"{name} (sheet '{printable(self.sheet)}') hides {hidden} of its {self.of} rows of data "
                 f"(row{'s' if len(self.rows) != 1 else ''} {shown}) {how}{left} and analysed with the rows it shows, "

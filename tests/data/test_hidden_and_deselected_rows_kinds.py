@@ -96,3 +96,13 @@ def test_rows_an_spss_case_filter_deselects_are_their_own_caution(rider_demo, ri
         assert "keep=['filter_$ = 1']" in str(first.advice)
     assert cfa_tool.fit(rider_model, str(path)).to_dict()["problems"][0]["kind"] == \
         "rows a saved case filter deselects"
+
+
+def test_hidden_rows_a_row_filter_leaves_out_are_counted_apart(rider_demo, rider_model, tmp_path):
+    path = _book(rider_demo, tmp_path / "riders.xlsx", hidden=(5, 9, 12))
+    # sheet rows 5 and 9 hold the frame's rows 3 and 7 (the header is row 1)
+    out = [f"rider_id != {rider_demo.rider_id[3]}", f"rider_id != {rider_demo.rider_id[7]}"]
+    first = cfa_tool.fit(rider_model, str(path), keep=out).problems[0]
+    assert first.kind is ProblemKind.HIDDEN_ROWS
+    assert ("hides 3 of its 480 rows of data (row 12) by hand, not by a filter; the row filters left out 2 of them, "
+            "and the other 1 was kept and analysed") in str(first.explanation)
