@@ -91,39 +91,11 @@ def missing_codes_note(source: str | Path, codes: Collection[float | str], read_
                  f"given", with_option, f" ({given}) {'was' if total == 1 else 'were'} read as no answer ({shown})"))
 
 
-def codes_given(codes) -> str:
-    """--missing-codes with ``codes`` (numbers and words, as :func:`missing_value` reads them) as a shell takes it:
-    the list written as a CSV line (numbers as written, :func:`user_number`; a word holding a comma in double quotes,
-    as the option reads it), each code once (words alike but for case once), the whole in double quotes when it holds
-    spaces or quotes: --missing-codes -99,8,9, --missing-codes "Ne sait pas,\\"No, not asked\\""; in Python, the list
-    as ``missing_codes=`` takes it: missing_codes=[-99, 8, 'Ne sait pas'].  The one writer of a list of codes that
-    advice gives to copy: advice that adds a code keeps those the run gave (s21: '--missing-codes 8,9' after
-    '--missing-codes -99' would have read -99 as an answer again)."""
-    import csv
-    import io
-
-    from cfa_tool.options import Interface, interface
-
-    unique: dict[object, object] = {}
-    for code in codes:
-        if isinstance(code, str):
-            unique.setdefault(code.strip().casefold(), code.strip())
-        else:
-            unique.setdefault(float(code), float(code))
-    if interface() is not Interface.COMMAND_LINE:
-        shown = [user_number(c) if isinstance(c, float) else repr(c) for c in unique.values()]
-        return f"{Option.MISSING_CODES.keyword}=[{', '.join(shown)}]"
-    line = io.StringIO()
-    csv.writer(line, lineterminator="").writerow(user_number(c) if isinstance(c, float) else c
-                                                 for c in unique.values())
-    text = line.getvalue()
-    if any(c.isspace() or c in "\"'\\$`" for c in text):
-        text = '"' + "".join("\\" + c if c in '"\\$`' else c for c in text) + '"'
-    return f"{Option.MISSING_CODES} {text}"
-
-
 def words_given(words: list[str]) -> str:
-    """--missing-codes with ``words`` as the caller writes it (:func:`codes_given`, the one writer of such a list)."""
+    """--missing-codes with ``words`` as the caller writes it (data.non_answers.codes_given, the one writer of such a
+    list)."""
+    from cfa_tool.data.non_answers import codes_given
+
     return codes_given(words)
 
 

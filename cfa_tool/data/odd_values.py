@@ -121,7 +121,7 @@ class OddValues:
     #: with each value it holds): the answers of the columns named, of which the ``answers`` are the share named
     of: int = 0
     #: the codes of no answer the run gave already (--missing-codes, ``missing_codes=``: numbers and words), which the
-    #: advice to give a code keeps in the list it writes (data.missing_codes.codes_given)
+    #: advice to give a code keeps in the list it writes (data.non_answers.codes_given)
     given: tuple = ()
 
     @property
@@ -257,7 +257,7 @@ class OddValues:
     def _codes_given(self, codes) -> str:
         """--missing-codes with ``codes`` after those the run gave already (:attr:`given`), which a list given again
         would otherwise leave out (s21: '--missing-codes 8,9' after '--missing-codes -99')."""
-        from cfa_tool.data.missing_codes import codes_given
+        from cfa_tool.data.non_answers import codes_given
 
         return codes_given(tuple(self.given) + tuple(codes))
 

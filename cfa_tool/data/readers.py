@@ -99,7 +99,7 @@ class LoadedData:
     #: these, not a code no answer held (fixhost-s18: '-99 was treated as missing' where only a filter column held it)
     codes_found: tuple[float, ...] = ()
     #: the words given with --missing-codes (data.non_answers.run_words, as given), which advice that adds a code to
-    #: the list keeps beside ``missing_codes`` (data.missing_codes.codes_given)
+    #: the list keeps beside ``missing_codes`` (data.non_answers.codes_given)
     missing_words: tuple[str, ...] = ()
 
     def column_hint(self) -> str:
