@@ -86,12 +86,15 @@ def counted(count: int, noun: str, plural: str | None = None) -> str:
 def count_text(value: float) -> str:
     """A count or a sum (rows, a sum of weights) as the tool prints N: digits grouped by thousands, to two decimals
     only where the value has a fraction ('5,000,136', '1,234.56'), never in exponent form (hostile s19: 'sum
-    5.00014e+06')."""
+    5.00014e+06'), and never a rounded zero for a sum that is not zero: one below 0.005 in size to its significant
+    digits (:func:`rounded_number`: sampling weights summing to 5.9e-7 are 'sum 0.00000059', not 'sum 0'; s21)."""
     value = float(value)
     if not math.isfinite(value):
         return str(value)
     if float(value).is_integer():
         return f"{int(value):,}"
+    if abs(value) < 0.005:
+        return rounded_number(value)
     text = f"{value:,.2f}"
     return text.rstrip("0").rstrip(".")
 

@@ -155,6 +155,12 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the data: a workbook read without a sheet named whose other sheets hold the model's
     # items too (data.readers.OtherSheets): only one sheet of a survey split over sheets was analysed
     OTHER_SHEETS_WITH_ITEMS = ("other sheets with the model's items", "other sheets hold the items", False)
+    # not of the answers but of the rows: rows a workbook hides (by its filter or by hand), read and analysed as the
+    # file holds them (data.readers.HiddenRows); their own kind, not the values that look like no answers (s21)
+    HIDDEN_ROWS = ("rows the workbook hides", "hidden rows analysed", False)
+    # ... rows an SPSS file's saved case filter marks 'Not Selected', read and analysed as the file holds them
+    # (data.case_filter.FilterVariable)
+    DESELECTED_ROWS = ("rows a saved case filter deselects", "deselected rows analysed", False)
     # not of the solution but of the data: a code given with --missing-codes that lies between the items' other
     # answers, labelled or not (data.missing_codes.CodeOnAnswer): its answers were read as gaps
     ANSWERS_GIVEN_AS_MISSING = ("answers given as missing codes", "answers read as gaps", False)
@@ -491,6 +497,9 @@ class Problem:
                                              "took together",
             K.OTHER_SHEETS_WITH_ITEMS: "a workbook whose other sheets hold the model's items too, of which one sheet "
                                        "was analysed",
+            K.HIDDEN_ROWS: "rows that the workbook hides, analysed with the others as the file holds them",
+            K.DESELECTED_ROWS: "rows that the data file's saved case filter marks as not selected, analysed with the "
+                               "selected ones as the file holds them",
             K.ANSWERS_GIVEN_AS_MISSING: "a missing-value code that the data file labels as an answer between the "
                                         "items' other answers, whose answers were treated as missing",
             K.FILTER_LABELS_BY_CASE: "a row filter whose text the column also holds in other upper and lower case, "

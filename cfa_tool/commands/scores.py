@@ -111,7 +111,7 @@ def run(args: argparse.Namespace) -> int:
                         max_iterations=args.max_iterations, least_answered=args.least_answered,
                         unanswered_factors=args.unanswered_factors, announce=_announcer(),
                         **O.design_args(args))
-    from cfa_tool.reporting.score_report import lines_without_data, rows_scored
+    from cfa_tool.reporting.score_report import lines_without_data, rows_above_names, rows_scored
     from cfa_tool.workflows.factor_scores import WHY_NOT_SCORED_COLUMN
 
     empty = result.rows - result.rows_scored
@@ -119,7 +119,8 @@ def run(args: argparse.Namespace) -> int:
     rows = ("--output", result.csv(), f"Scores of {rows_scored(result)} written to {args.output}"
             + (f"; the {empty} without any score {'keeps its' if empty == 1 else 'keep their'} line, empty, with the "
                f"reason in {WHY_NOT_SCORED_COLUMN}"
-               if empty else "") + (f"; it holds {lines}" if lines else ""))
+               if empty else "") + (f"; it holds {lines}" if lines else "")
+            + (f"; it has {rows_above_names(result)}" if rows_above_names(result) else ""))
     emit_report(args, result, [args.model, args.data, args.from_fit], first=[rows])
     if result.low_determinacy:
         say(args, f"Caution: the determinacy of {', '.join(result.low_determinacy)} is below .80; see the report")

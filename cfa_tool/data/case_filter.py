@@ -29,7 +29,9 @@ class FilterVariable:
     of: int  # rows of data in the file
     selected: float  # the code labelled 'Selected'
     filtered_out: int = 0  # deselected rows the row filters (--keep) left out
-    problem_kind: str = "values that look like no answers"
+    #: the kind of problem every view files it under (assessment.admissibility.ProblemKind's value): rows, not values
+    #: that look like no answers (s21)
+    problem_kind: str = "rows a saved case filter deselects"
 
     def among(self, kept) -> FilterVariable | None:
         """The deselected rows that row filters kept (``kept``: row numbers), or None when they kept none."""
@@ -45,11 +47,12 @@ class FilterVariable:
         shown = ", ".join(str(r) for r in self.rows[:5]) + (f" and {len(self.rows) - 5} more" if len(self.rows) > 5
                                                              else "")
         label = f" ('{printable(self.label)}')" if self.label else ""
-        left = (f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)}"
-                if self.filtered_out else "; they")
+        left = (f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)} "
+                f"{'was' if len(self.rows) == 1 else 'were'}"
+                if self.filtered_out else f"; {'it was' if len(self.rows) == 1 else 'they were'}")
         return (f"{name} was saved with a case filter on: its filter variable {printable(self.column)}{label} marks "
                 f"{len(self.rows) + self.filtered_out} of its {self.of} rows 'Not Selected' "
-                f"(row{'s' if len(self.rows) != 1 else ''} {shown}){left} were analysed with the selected rows, as "
+                f"(row{'s' if len(self.rows) != 1 else ''} {shown}){left} kept and analysed with the selected rows, as "
                 f"the file holds them.")
 
     def advice(self) -> Note:

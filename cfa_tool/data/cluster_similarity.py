@@ -17,6 +17,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+import math
+
 import numpy as np
 
 from cfa_tool.numerics.plain import journal_decimal
@@ -103,8 +105,12 @@ class ClusterSimilarity:
 
 
 def _r(value: float) -> str:
-    """A correlation without its leading zero (numerics.plain.journal_decimal): two decimals, three below .01 (.004)."""
-    return journal_decimal(value, digits=3 if abs(value) < 0.01 else 2)
+    """A correlation without its leading zero (numerics.plain.journal_decimal): two decimals, three below .01 (.004),
+    and as many as its first significant digit needs below .001 (.0004), never a rounded zero ('.000') for an
+    intraclass correlation that is not zero (s21: the design's numbers)."""
+    size = abs(value)
+    digits = 2 if size >= 0.01 else 3 if size >= 0.001 or size == 0 or size != size else -math.floor(math.log10(size))
+    return journal_decimal(value, digits=digits)
 
 
 def cluster_similarity(items: tuple[str, ...], values: np.ndarray, clusters: np.ndarray) -> ClusterSimilarity | None:

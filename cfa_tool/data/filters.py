@@ -86,16 +86,20 @@ class RowFilter:
         return f"{_column_text(self.column)} {self.operator} {shown}, ... ({len(self.value)} values)"
 
     def meets(self, value) -> bool:
-        """Whether a cell holding ``value`` (a number, compared with a number) meets the filter."""
+        """Whether a cell of a column of numbers holding ``value`` (a number) meets the filter, its values read as
+        :meth:`compares_numbers` reads them ('07' as 7)."""
         if self.operator in SET_OPERATORS:
-            found = any(value == v for v in self.value)
+            found = any(value == _as_number(v) for v in self.value)
             return found if self.operator == "in" else not found
-        return bool(OPERATOR_TESTS[self.operator](value, self.value))
+        return bool(OPERATOR_TESTS[self.operator](value, _as_number(self.value)))
 
     def compares_numbers(self) -> bool:
-        """Whether the filter compares with a number (or, with a list, with numbers only)."""
+        """Whether the filter compares with a number (or, with a list, with numbers only) in a column of numbers: a
+        value written with a leading zero ('site = 07') is the number there, as :func:`_codes_as_written` compares it
+        (only a column of text holds codes written so), and is checked as '7' is (s21: the check of a code given with
+        --missing-codes that a filter already leaves out passed '07' over)."""
         values = self.value if self.operator in SET_OPERATORS else (self.value,)
-        return all(isinstance(v, (int, float)) for v in values)
+        return all(_as_number(v) is not None for v in values)
 
     def in_words(self) -> str:
         """The filter as a methods section words it: 'district was north', 'age was at least 18', '"wave 2" was
@@ -578,6 +582,14 @@ def _zeros_hint(values: pd.Series, target: str) -> str:
     shown = f" ({', '.join(printable(v) for v in same[:3])})" if same else ""
     return (f"; the column holds numbers written with leading zeros (ids, codes), which a filter's = and != compare "
             f"as written: write the value as the file shows it{shown}")
+
+
+def _as_number(value: object) -> float | None:
+    """A filter's value as a column of numbers compares it: a number as it is, a whole number written with a leading
+    zero ('07', :func:`zero_led`) as the number; None for other text."""
+    if isinstance(value, (int, float)) and not isinstance(value, bool):
+        return value
+    return number(value.strip()) if isinstance(value, str) and zero_led(value) else None
 
 
 def zero_led(text: str) -> bool:

@@ -92,26 +92,11 @@ def missing_codes_note(source: str | Path, codes: Collection[float | str], read_
 
 
 def words_given(words: list[str]) -> str:
-    """--missing-codes with ``words`` as a shell takes it: the list written as a CSV line (a word holding a comma in
-    double quotes, as the option reads it), words alike but for case once, the whole in double quotes when it holds
-    spaces or quotes: --missing-codes "Ne sait pas,\\"No, not asked\\""; in Python, the list of words as
-    ``missing_codes=`` takes it (the one rule of both, :func:`missing_value`): missing_codes=['Ne sait pas']."""
-    import csv
-    import io
+    """--missing-codes with ``words`` as the caller writes it (data.non_answers.codes_given, the one writer of such a
+    list)."""
+    from cfa_tool.data.non_answers import codes_given
 
-    from cfa_tool.options import Interface, interface
-
-    unique: dict[str, str] = {}
-    for word in words:
-        unique.setdefault(word.strip().casefold(), word.strip())
-    if interface() is not Interface.COMMAND_LINE:
-        return f"{Option.MISSING_CODES.keyword}={list(unique.values())!r}"
-    line = io.StringIO()
-    csv.writer(line, lineterminator="").writerow(unique.values())
-    text = line.getvalue()
-    if any(c.isspace() or c in "\"'\\$`" for c in text):
-        text = '"' + "".join("\\" + c if c in '"\\$`' else c for c in text) + '"'
-    return f"{Option.MISSING_CODES} {text}"
+    return codes_given(words)
 
 
 def apply_missing_codes(frame: pd.DataFrame, codes, source: str | Path, items: Collection[str] | None = None,

@@ -100,6 +100,37 @@ def run_words() -> tuple[str, ...]:
     return _RUN_WORDS.get().given
 
 
+def codes_given(codes) -> str:
+    """--missing-codes with ``codes`` (numbers and words, as data.missing_codes.missing_value reads them) as a shell takes it:
+    the list written as a CSV line (numbers as written, :func:`user_number`; a word holding a comma in double quotes,
+    as the option reads it), each code once (words alike but for case once), the whole in double quotes when it holds
+    spaces or quotes: --missing-codes -99,8,9, --missing-codes "Ne sait pas,\\"No, not asked\\""; in Python, the list
+    as ``missing_codes=`` takes it: missing_codes=[-99, 8, 'Ne sait pas'].  The one writer of a list of codes that
+    advice gives to copy: advice that adds a code keeps those the run gave (s21: '--missing-codes 8,9' after
+    '--missing-codes -99' would have read -99 as an answer again)."""
+    import csv
+    import io
+
+    from cfa_tool.options import Interface, interface
+
+    unique: dict[object, object] = {}
+    for code in codes:
+        if isinstance(code, str):
+            unique.setdefault(code.strip().casefold(), code.strip())
+        else:
+            unique.setdefault(float(code), float(code))
+    if interface() is not Interface.COMMAND_LINE:
+        shown = [user_number(c) if isinstance(c, float) else repr(c) for c in unique.values()]
+        return f"{Option.MISSING_CODES.keyword}=[{', '.join(shown)}]"
+    line = io.StringIO()
+    csv.writer(line, lineterminator="").writerow(user_number(c) if isinstance(c, float) else c
+                                                 for c in unique.values())
+    text = line.getvalue()
+    if any(c.isspace() or c in "\"'\\$`" for c in text):
+        text = '"' + "".join("\\" + c if c in '"\\$`' else c for c in text) + '"'
+    return f"{Option.MISSING_CODES} {text}"
+
+
 def says_no_answer(text: object, explained: bool = False) -> bool:
     """Whether a value label or a cell's text says the value is not an answer: one of the phrases (or of the run's
     own words, :func:`also_no_answer`) as a whole ('N/A', 'DK/NA'), one of the :data:`NON_ANSWER_MARKS`, or several
@@ -270,11 +301,11 @@ class LabelledAnswer:
         listed = ", ".join(f"{printable(c)} {n}" for c, n in zip(self.columns[:shown], self.cells[:shown]))
         more = f" and {_more(len(self.columns) - shown, 'item')}" if len(self.columns) > shown else ""
         total = sum(self.cells)
-        codes = [f"{user_number(c)}" for c in given if isinstance(c, (int, float))] + [f"{user_number(self.value)}"]
+        codes = tuple(c for c in given if isinstance(c, (int, float))) + run_words() + (self.value,)
         return Note((f"{base_name(source)}: {user_number(self.value)} '{printable(self.label)}' lies between other answers of "
                      f"the item{'s' if len(self.columns) != 1 else ''} and was analysed as an answer ({count_text(total)} "
                      f"cell{'s' if total != 1 else ''}: {listed}{more}), though its label reads like no answer",
-                     Command(f"; to read it as no answer, give {Option.MISSING_CODES.given(','.join(codes))}")))
+                     Command(f"; to read it as no answer, give {codes_given(codes)}")))
 
 
 def answers_labelled_like_none(frame: pd.DataFrame, value_labels: dict, skip: tuple = ()) -> tuple[LabelledAnswer, ...]:
@@ -342,6 +373,9 @@ class BeyondScale:
     label: str
     rows: tuple[tuple[int, ...], ...]  # one tuple per column
     scale: tuple[float, float]  # the lowest and highest of the items' other labelled codes
+    #: the codes of no answer the run gave already (numbers and words), which the advice's list keeps
+    #: (data.non_answers.codes_given; set by pipeline.inputs.odd_value_problems)
+    given: tuple = ()
 
     def caution(self, source: str) -> str:
         name = source.replace("\\", "/").rsplit("/", 1)[-1]
@@ -363,7 +397,7 @@ class BeyondScale:
 
     def advice(self) -> Note:
         return Note((f"If {user_number(self.value)} '{printable(self.label)}' is not an answer on the scale, ",
-                     Command(f"give {Option.MISSING_CODES.given(f'{user_number(self.value)}')}", "read it as no answer"),
+                     Command(f"give {codes_given(tuple(self.given) + (self.value,))}", "read it as no answer"),
                      "; if it is, nothing."))
 
 

@@ -120,6 +120,15 @@ class OddValues:
     #: codes set apart from the answer scale (kind SET_APART, whose ``columns`` and ``values`` are pairs: each column
     #: with each value it holds): the answers of the columns named, of which the ``answers`` are the share named
     of: int = 0
+    #: the codes of no answer the run gave already (--missing-codes, ``missing_codes=``: numbers and words), which the
+    #: advice to give a code keeps in the list it writes (data.non_answers.codes_given)
+    given: tuple = ()
+
+    @property
+    def problem_value(self) -> float | None:
+        """The figure the problem carries (assessment.admissibility.Problem.value, the JSON's and the problems table's
+        'value'): the answers holding codes set apart from the answer scale; None for the other kinds."""
+        return float(self.answers) if self.kind is OddKind.SET_APART else None
 
     @property
     def problem_kind(self) -> str:
@@ -154,11 +163,12 @@ class OddValues:
         if self.kind is OddKind.SET_APART:
             columns = self.distinct_columns()
             rows = "row" if len(self.rows) == 1 else "rows"
-            return (f"{len(columns)} {self.role} columns of {name} ({_listed(columns)}) hold {self._values_words()} "
-                    f"apart from the run of their other answers ({_number(low)} to {_number(high)}): "
+            one = len(self.distinct_values()) == 1
+            return (f"{len(columns)} {self.role} columns of {name} ({_listed(columns)}) share {self._values_words()}, "
+                    f"set apart from their other answers ({_number(low)} to {_number(high)}): "
                     f"{self._share_words()}, in {count_text(len(self.rows))} {rows} ({self._rows_named()}). Codes of "
-                    f"no answer ('don't know', 'refused') lie so; these are analysed as answers, beyond the scale's "
-                    f"ends.")
+                    f"no answer ('don't know', 'refused') lie so; {'it is' if one else 'they are'} analysed as "
+                    f"answers, beyond the scale's ends.")
         guess = ("a totals or means row, or a typing error?" if self.kind is OddKind.FAR_BEYOND
                  else "a totals or means row of a spreadsheet?")
         return f"{self._row_holds(name)}: {guess}"
@@ -211,7 +221,7 @@ class OddValues:
                     f"perhaps a totals row or a typing error")
         if self.kind is OddKind.SET_APART:
             return (f"{self._values_words()} in {_listed(written_name(c) for c in self.distinct_columns())}, "
-                    f"{self._share_words()}, apart from the run of the other answers ({_number(low)} to "
+                    f"{self._share_words()}, set apart from the other answers ({_number(low)} to "
                     f"{_number(high)}): perhaps codes of no answer")
         if self.kind is OddKind.SUMMARY_BLOCK:
             return (f"{self._rows_named()}, which hold {_listed(self.holds)} of the rows above them in the item "
@@ -223,15 +233,15 @@ class OddValues:
     def advice(self) -> Note:
         """What to try, the option apart (note_parts.Command): a manuscript's reader runs nothing."""
         value = _number(self.values[0]) if self.values else ""
-        code = Command(f"give {Option.MISSING_CODES.given(value)}", f"read {value} as no answer")
+        code = Command(f"give {self._codes_given((self.values[0],) if self.values else ())}",
+                       f"read {value} as no answer")
         if self.kind is OddKind.MISSING_CODE:
             return Note((f"If {value} means 'no answer', ", code, " (or correct those answers in the file)."))
         if self.kind is OddKind.SET_APART:
             values = self.distinct_values()
-            listed = ",".join(_number(v) for v in values)
             one = len(values) == 1
             return Note((f"If {'it means' if one else 'they mean'} no answer, ",
-                         Command(f"give {Option.MISSING_CODES.given(listed)}",
+                         Command(f"give {self._codes_given(values)}",
                                  f"read {'it' if one else 'them'} as no answer"),
                          f"; if {'it is an answer' if one else 'they are answers'}, nothing needs to change."))
         if self.kind is OddKind.OUTSIDE_SCALE:
@@ -244,6 +254,13 @@ class OddValues:
         return Note((f"Delete {self._first_row()} from the {holder} (or leave it out with a row filter",
                      Command(f", {Option.KEEP}"), ") if it holds no one's answers; otherwise check those answers."))
 
+    def _codes_given(self, codes) -> str:
+        """--missing-codes with ``codes`` after those the run gave already (:attr:`given`), which a list given again
+        would otherwise leave out (s21: '--missing-codes 8,9' after '--missing-codes -99')."""
+        from cfa_tool.data.non_answers import codes_given
+
+        return codes_given(tuple(self.given) + tuple(codes))
+
     def distinct_columns(self) -> tuple[str, ...]:
         """The columns named, each once, in the file's order (kind SET_APART names pairs of a column and a value)."""
         return tuple(dict.fromkeys(self.columns))
@@ -253,11 +270,11 @@ class OddValues:
         return tuple(sorted(set(self.values)))
 
     def _values_words(self) -> str:
-        """'the value 8', '8 and 9', '7, 8 and 9'."""
+        """The codes set apart, named: 'the code 9', 'the codes 8 and 9', 'the codes 7, 8 and 9'."""
         values = [_number(v) for v in self.distinct_values()]
         if len(values) == 1:
-            return f"the value {values[0]}"
-        return f"{', '.join(values[:-1])} and {values[-1]}"
+            return f"the code {values[0]}"
+        return f"the codes {', '.join(values[:-1])} and {values[-1]}"
 
     def _share_words(self) -> str:
         """'480 of their 4,800 answers (10.0%)': the cells named among the answers of their columns."""
@@ -654,8 +671,10 @@ def _set_apart(X: np.ndarray, named: set, names: list[str], numbers: np.ndarray)
     numbers are looked at, so that measures of many values cost one comparison."""
     finite = np.isfinite(X)
     held: dict[int, tuple[float, ...]] = {}
+    outside: dict[int, tuple[float, ...]] = {}  # every value beyond each column's run, those named by other rules too
     for j in _with_a_gap(X, finite):
-        beyond = tuple(v for v in beyond_the_run(X[:, j]) if (int(j), v) not in named)
+        outside[int(j)] = beyond_the_run(X[:, j])
+        beyond = tuple(v for v in outside[int(j)] if (int(j), v) not in named)
         if beyond:
             held[int(j)] = beyond
     shared = {v for v in {v for vs in held.values() for v in vs}
@@ -668,7 +687,7 @@ def _set_apart(X: np.ndarray, named: set, names: list[str], numbers: np.ndarray)
     for j, v in pairs:
         cells[:, j] |= X[:, j] == v
     rows = np.flatnonzero(cells.any(axis=1))
-    runs = [_run_ends(X[:, j], held[j]) for j in js]
+    runs = [_run_ends(X[:, j], outside[j]) for j in js]  # the run itself: a -99 another rule names lies outside it
     return (OddValues(OddKind.SET_APART, tuple(names[j] for j, _ in pairs), tuple(v for _, v in pairs),
                       tuple(int(numbers[r]) for r in rows), int(cells.sum()),
                       (min(r[0] for r in runs), max(r[1] for r in runs)), of=int(finite[:, js].sum())),)

@@ -102,6 +102,9 @@ class LoadedData:
     #: what the reading of no answers counted, with its notes (data.kept_counts.ReadingCounts): the notes are written
     #: again over the rows that row filters keep
     counts: ReadingCounts | None = None
+    #: the words given with --missing-codes (data.non_answers.run_words, as given), which advice that adds a code to
+    #: the list keeps beside ``missing_codes`` (data.non_answers.codes_given)
+    missing_words: tuple[str, ...] = ()
 
     def column_hint(self) -> str:
         """Words for a message about a missing column: the columns read under new names (a name the model uses may
@@ -253,7 +256,11 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     if code_notes:
         loaded = replace(loaded, notes=loaded.notes + tuple(code_notes))
     numbers = tuple(float(c) for c in missing_codes if isinstance(c, (int, float)) and not isinstance(c, bool))
-    return replace(loaded, missing_codes=numbers, codes_found=tuple(c for c in numbers if c in found)) if numbers else loaded
+    words = run_words()
+    if not numbers and not words:
+        return loaded
+    return replace(loaded, missing_codes=numbers, codes_found=tuple(c for c in numbers if c in found),
+                   missing_words=tuple(words))
 
 
 def sheet_of_each(sources, sheet: str | None) -> tuple[str | None, ...]:
@@ -578,6 +585,9 @@ class HiddenRows:
     filtered: bool  # the sheet has a filter
     keep: str | None = None  # the --keep filter that keeps the rows the workbook's filter shows, when it is plain
     filtered_out: int = 0  # hidden rows the row filters (--keep) left out
+    #: the kind of problem every view files it under (assessment.admissibility.ProblemKind's value): rows, not values
+    #: that look like no answers (s21)
+    problem_kind: str = "rows the workbook hides"
 
     def among(self, kept) -> HiddenRows | None:
         """The hidden rows that row filters kept (``kept``: row numbers), or None when they kept none."""
@@ -585,23 +595,33 @@ class HiddenRows:
         return replace(self, rows=rows, filtered_out=self.filtered_out + len(self.rows) - len(rows)) if rows else None
 
     def caution(self, source: str) -> str:
+        """What was found (the rows, hidden by the workbook's filter or by hand) and that they were kept."""
         name = source.replace("\\", "/").rsplit("/", 1)[-1]
         shown = ", ".join(str(r) for r in self.rows[:5]) + (f" and {len(self.rows) - 5} more" if len(self.rows) > 5
                                                              else "")
-        how = "by its filter" if self.filtered else "as hidden rows"
         hidden = len(self.rows) + self.filtered_out
-        left = f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)}" \
-            if self.filtered_out else "; they"
-        return (f"{name} (sheet '{printable(self.sheet)}') hides {hidden} of its {self.of} rows of data {how} "
-                f"(row{'s' if len(self.rows) != 1 else ''} {shown}){left} were analysed with the others, as the "
-                f"file holds them.")
+        how = "by its filter" if self.filtered else "by hand, not by a filter"
+        left = (f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)} "
+                f"{'was' if len(self.rows) == 1 else 'were'} kept"
+                if self.filtered_out else f"; {'it was' if hidden == 1 else 'they were'} kept")
+        return (f"{name} (sheet '{printable(self.sheet)}') hides {hidden} of its {self.of} rows of data "
+                f"(row{'s' if len(self.rows) != 1 else ''} {shown}) {how}{left} and analysed with the rows it shows, "
+                f"as the file holds them.")
 
     def advice(self) -> Note:
         """What to try, the row filter apart (note_parts.Command): a manuscript's reader runs nothing."""
-        keep = f" (here {Option.KEEP.given(printable(self.keep))})" if self.keep else ""
-        return Note(("If the hidden rows are not to be analysed, leave them out with a row filter",
-                     Command(f" ({Option.KEEP})"), " on the column the workbook's filter uses", Command(keep),
-                     ", or delete them from a copy of the file."))
+        ending = "; to analyse every row, leave the caution be."
+        if self.filtered and self.keep:
+            return Note(("To analyse only the rows the workbook's filter shows, ",
+                         Command(f"give {Option.KEEP.given(printable(self.keep))}",
+                                 f"keep the rows where {printable(self.keep)}"), ending))
+        if self.filtered:
+            return Note(("To analyse only the rows the workbook's filter shows, leave the hidden ones out with a row "
+                         "filter", Command(f" ({Option.KEEP})"), " on the column its filter uses, or delete them from "
+                         "a copy of the file", ending))
+        return Note(("To analyse only the rows the sheet shows, leave the hidden ones out with a row filter",
+                     Command(f" ({Option.KEEP})"), " on a column that tells them apart (an id, a date), or delete them "
+                     "from a copy of the file", ending))
 
     def to_dict(self) -> dict:
         return {"sheet": self.sheet, "rows": list(self.rows), "of": self.of, "filtered": self.filtered,

@@ -14,7 +14,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import count_text, user_number
+from cfa_tool.numbers import count_text, rounded_number, user_number
 from cfa_tool.data.kept_rows import row_of
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.options import Option
@@ -198,9 +198,9 @@ class SampleDesign:
             if c.kind is WeightKind.FREQUENCY:
                 parts.append(f"frequency weights from the column {c.weights} (sum {count_text(self.sum_of_weights)}, taken as N)")
             else:
-                within = (f"rescaled within each group to sum to its rows ({', '.join(map(str, self.group_rows))})"
+                within = (f"rescaled within each group to sum to its rows ({', '.join(map(count_text, self.group_rows))})"
                           if self.group_rows
-                          else f"rescaled to sum to the {self.rows} rows")
+                          else f"rescaled to sum to the {count_text(self.rows)} rows")
                 parts.append(f"sampling weights from the column {c.weights} (sum {count_text(self.sum_of_weights)}, {within}; "
                              f"Kish's effective sample size {self.effective_n:.1f}), by "
                              + ("the weighted full-information likelihood (Asparouhov, 2005)" if full_information else
@@ -346,13 +346,13 @@ class SampleDesign:
             few = self._uneven_groups()
             if not few:
                 return None
-            listed = "; ".join(f"group '{label}': its {n} rows count as about {k:.1f}" for label, n, k in few)
+            listed = "; ".join(f"group '{label}': its {count_text(n)} rows count as about {k:.1f}" for label, n, k in few)
             return (f"The weights in '{self.columns.weights}' are very uneven within a group ({listed}; Kish's "
                     f"effective sample size of each group's rows, below half of them taken as very uneven, a rule of "
                     f"thumb of survey practice, not a law): that group's estimates rest mostly on its heavily weighted "
                     f"rows, and their standard errors are as large as those of a sample of that many rows.")
-        return (f"The weights in '{self.columns.weights}' are very uneven: the {self.rows} rows count as about "
-                f"{self.effective_n:.1f} (Kish's effective sample size, {self.effective_n / self.rows:.0%} of the rows; "
+        return (f"The weights in '{self.columns.weights}' are very uneven: the {count_text(self.rows)} rows count as about "
+                f"{self.effective_n:.1f} (Kish's effective sample size, {rounded_number(100 * self.effective_n / self.rows, 2)}% of the rows; "
                 f"below half of them is taken as very uneven, a rule of thumb of survey practice, not a law), so the "
                 f"estimates rest mostly on the heavily weighted rows and their standard errors are as large as those "
                 f"of a sample of about {self.effective_n:.0f} rows.")

@@ -720,17 +720,22 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
     items = (tuple(loaded.items.names) + tuple(helpers)) if loaded.items is not None else tuple(loaded.frame.columns)
     marked = non_answer_caution(loaded.non_answers, loaded.source, items, loaded.frame, listwise,
                                 len(loaded.frame) if loaded.read_frame is not None else None)
-    # a code already named as labelled beyond the scale of the same items is not named again as a missing-value code
+    # a code already named as labelled beyond the scale of the same items is not named again (as a missing-value code,
+    # a value outside the answer scale or a code set apart)
     from cfa_tool.data.non_answers import BeyondScale
     from cfa_tool.data.odd_values import OddKind
 
     labelled = {(c.value, column) for c in loaded.cautions if isinstance(c, BeyondScale) for column in c.columns}
-    odd = tuple(o for o in loaded.odd_values if not (o.kind in (OddKind.MISSING_CODE, OddKind.SET_APART) and all(
+    odd = tuple(o for o in loaded.odd_values if not (o.kind in (OddKind.MISSING_CODE, OddKind.OUTSIDE_SCALE,
+                                                                OddKind.SET_APART) and all(
         (v, column) in labelled for v, column in zip(o.values, o.columns))))
+    given = tuple(loaded.missing_codes) + tuple(loaded.missing_words)  # advice adding a code keeps those given
+    odd = tuple(replace(o, given=given) for o in odd) if given else odd
+    cautions = tuple(replace(c, given=given) if given and isinstance(c, BeyondScale) else c for c in loaded.cautions)
     return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked),) if marked else ()) + tuple(
-        Problem(ProblemKind(getattr(odd, "problem_kind", ProblemKind.VALUES_NOT_ANSWERS.value)), (), None,
-                odd.caution(loaded.source), odd.advice())
-        for odd in loaded.cautions + odd)
+        Problem(ProblemKind(getattr(odd, "problem_kind", ProblemKind.VALUES_NOT_ANSWERS.value)), (),
+                getattr(odd, "problem_value", None), odd.caution(loaded.source), odd.advice())
+        for odd in cautions + odd)
 
 
 def group_case_problems(frame: pd.DataFrame, group: str, part: str = "group",
@@ -1410,7 +1415,7 @@ def odd_values_named(loaded: LoadedData):
         # a row far beyond the others in several item columns (a spreadsheet's COUNT or totals row of other rows)
         # is bad input, the likelier cause of the failure: a data error (exit 2), that row named first
         row = next((o for o in loaded.odd_values if o.kind is OddKind.FAR_BEYOND and len(o.columns) > 1), None)
-        first = row or loaded.odd_values[0]
+        first = replace(row or loaded.odd_values[0], given=tuple(loaded.missing_codes) + tuple(loaded.missing_words))
         more = f" ({more_words(n, 'and ', 'such finding')})" if (n := len(loaded.odd_values) - 1) else ""
         raise (DataError if row is not None else EstimationError)(
             f"{first.caution(loaded.source)}{more} What to try first: {first.advice()} Then: {exc}") from None
@@ -1749,10 +1754,10 @@ def dominant_cluster_problem(design, dominant, robust=None):
     cluster = ""
     if dominant is not None:
         cluster = (f"{' ' if extreme else ''}Of the {dominant.clusters} clusters of '{column}', '{dominant.name}' "
-                   f"holds {dominant.share:.0%} of the design effect of the statistics the fit rests on (each "
+                   f"holds {rounded_number(100 * dominant.share, 2)}% of the design effect of the statistics the fit rests on (each "
                    f"statistic's design-based variance over its variance with the rows taken as independent, summed; "
-                   f"mean design effect {dominant.design_effect:.2f}), where each would hold about "
-                   f"{1 / dominant.clusters:.1%} if they were alike")
+                   f"mean design effect {rounded_number(dominant.design_effect)}), where each would hold about "
+                   f"{rounded_number(100 / dominant.clusters, 2)}% if they were alike")
         cluster += (f" (more than {DOMINANT_SHARE:.0%}, more than all the other clusters together, is taken as "
                     f"dominating, a rule of thumb of this tool, not a law): the cluster-robust standard errors and the "
                     f"design-based test describe mostly that one cluster's rows." if large else ".")

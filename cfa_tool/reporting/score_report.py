@@ -103,7 +103,22 @@ def _empty_lines(result) -> str:
         said = (f" (the {count_text(empty)} without any score {keep} with empty cells, the column "
                 f"{WHY_NOT_SCORED_COLUMN} saying why: {counts})")
     lines = lines_without_data(result)
-    return said + (f", and {lines}" if lines else "")
+    above = rows_above_names(result)
+    return said + (f", and {lines}" if lines else "") + (f"; {above}" if above else "")
+
+
+def rows_above_names(result) -> str:
+    """The rows of the scored file above its column names (a title, the rows --names-row leaves unread), which the
+    scores file has no line for, said where the empty lines of the rows without data are (new-user trial s21: only
+    the rows below the names were said): its header stands for the names' row, as a CSV file begins with its header;
+    '' when the names are the first row."""
+    names = getattr(result, "names_row", 1)
+    if names <= 1:
+        return ""
+    above = "the row above the column names (row 1 of the file" if names == 2 else \
+        f"the {names - 1} rows above the column names (rows 1 to {names - 1} of the file"
+    return (f"no line for {above}; its header stands for row {names}, which holds the names, so that its lines "
+            f"follow the file's rows from there)")
 
 
 #: the rows of a file that hold no data, whose lines the scores file keeps empty (workflows.factor_scores.NotScored

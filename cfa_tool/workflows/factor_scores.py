@@ -653,6 +653,11 @@ class ScoreResult(Presentable):
     item_sums: tuple[ItemSumSummary, ...] = ()
     #: what was done with a factor a row answered none of the items of (its prediction written, or left empty)
     unanswered: UnansweredFactor = UnansweredFactor.PREDICT
+    #: the row of the scored file that holds the column names (data.readers.LoadedData.names_row_read; 1 for a data
+    #: frame), beside which the scores file's header stands: the rows above it (a title, --names-row) have no line,
+    #: as a CSV file begins with its header, and the report says so where it says which empty lines stand for rows of
+    #: the file without data (reporting.score_report.rows_above_names)
+    names_row: int = 1
 
     @property
     def rows(self) -> int:
@@ -706,6 +711,7 @@ class ScoreResult(Presentable):
             "rows_scored": self.rows_scored,
             "rows_not_scored": {why.value: n for why, n in self.not_scored.items()},
             "lines_without_data": {why.value: n for why, n in self.lines_without_data.items()},
+            "names_row": self.names_row,
             "unanswered_factors": self.unanswered.value,
             "rows_with_a_factor_left_empty": self.lines_left_partly_empty,
             "methods": [m.value for m in self.methods],
@@ -882,7 +888,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality), unscored,
                        bool(standard_errors or ordinal_items), tuple(extra),
                        item_sums=summaries,
-                       unanswered=unanswered)
+                       unanswered=unanswered, names_row=_names_row(loaded, data))
 
 
 def _id_column_note(read_frame: pd.DataFrame, source: str, spec, group, design) -> list[Note]:
@@ -1226,7 +1232,14 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                                  score_columns(chosen, factors), reasons, pd.Series(left, index=read_frame.index))
     table.index = caller_labels(table.index, loaded.frame_index)
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
-                       unscored, with_errors, tuple(notes), source, (), summaries, unanswered)
+                       unscored, with_errors, tuple(notes), source, (), summaries, unanswered,
+                       _names_row(loaded, data))
+
+
+def _names_row(loaded, data) -> int:
+    """The row of a scored file that holds the column names (:attr:`ScoreResult.names_row`); 1 for a data frame,
+    whose scores keep its own index."""
+    return 1 if isinstance(data, pd.DataFrame) else int(loaded.names_row_read or 1)
 
 
 def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: str,

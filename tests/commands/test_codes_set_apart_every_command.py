@@ -46,8 +46,8 @@ def _codes_named_first(problems, frame: pd.DataFrame) -> None:
     planted = int(frame[ITEMS].isin([8, 9]).sum().sum())  # pandas' count of the planted codes
     rows = int(frame[ITEMS].isin([8, 9]).any(axis=1).sum())
     said = str(first.explanation)
-    assert said.startswith("12 item columns of <data frame> (q1, q2, q3 and 9 more) hold 8 and 9 apart from the run "
-                           f"of their other answers (1 to 5): {planted} of their 4,800 answers "
+    assert said.startswith("12 item columns of <data frame> (q1, q2, q3 and 9 more) share the codes 8 and 9, set apart "
+                           f"from their other answers (1 to 5): {planted} of their 4,800 answers "
                            f"({100 * planted / 4800:.1f}%), in {rows} rows"), said
     assert "missing_codes=[8, 9]" in str(first.advice)
     assert [p.kind for p in problems].count(ProblemKind.CODES_SET_APART) == 1
@@ -76,7 +76,7 @@ def test_the_command_line_shows_it_first_and_the_methods_text_and_json_name_it(t
     code, out, err = run_cli(["fit", model, "--data", data, "--json", saved], capsys)
     assert code == 0, err
     flat = " ".join(out.replace("│", " ").split())
-    assert flat.index("hold 8 and 9 apart from the run") < flat.index("CFI")
+    assert flat.index("share the codes 8 and 9, set apart") < flat.index("CFI")
     assert "--missing-codes 8,9" in flat
     result = json.loads(saved.read_text())
     assert result["problems"][0]["kind"] == "codes set apart from the answer scale"

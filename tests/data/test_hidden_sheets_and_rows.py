@@ -59,8 +59,8 @@ def test_rows_hidden_by_a_filter_are_analysed_and_named_first(rider_demo, rider_
     assert result.n_obs == 480
     first = result.problems[0]
     hidden = int((rider_demo.district != "north").sum())  # counted in the demo CSV by pandas
-    assert f"hides {hidden} of its 480 rows of data by its filter" in first.explanation
-    assert "were analysed" in first.explanation
+    assert f"hides {hidden} of its 480 rows of data (rows " in first.explanation
+    assert "by its filter; they were kept and analysed" in first.explanation
     assert "keep=[\"district == 'north'\"]" in first.advice  # as a Python call writes the option (Option.KEEP)
     kept = cfa_tool.fit(rider_model, str(path), keep="district == 'north'")  # the advice, followed
     assert kept.n_obs == 480 - hidden

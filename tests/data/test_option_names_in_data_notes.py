@@ -24,7 +24,7 @@ def test_missing_code_advice_and_notes_name_the_keyword_in_python(tmp_path):
     frame, _ = _with_code(tmp_path)
     result = cfa_tool.fit(MODEL, frame, missing_codes=[77])
     said = " ".join([f"{p.explanation} {p.advice}" for p in result.problems] + list(map(str, result.warnings)))
-    assert "missing_codes=[-99]" in said  # the odd value's advice
+    assert "missing_codes=[77, -99]" in said  # the odd value's advice, the code given kept (s22)
     assert "codes given with missing_codes=" in said  # the note that no cell holds 77
     assert "--missing-codes" not in said
 
@@ -34,5 +34,5 @@ def test_missing_code_advice_and_notes_name_the_flag_on_the_command_line(tmp_pat
     report = tmp_path / "report.md"
     assert cli.main(["fit", str(MODEL), "--data", str(path), "--missing-codes", "77", "--markdown", str(report)]) == 0
     text = " ".join(report.read_text(encoding="utf-8").split())
-    assert "give --missing-codes -99" in text and "codes given with --missing-codes (77)" in text
+    assert "give --missing-codes 77,-99" in text and "codes given with --missing-codes (77)" in text
     assert "missing_codes=" not in text

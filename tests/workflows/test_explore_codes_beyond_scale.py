@@ -36,8 +36,8 @@ def test_a_grade_beside_items_with_codes_is_left_out_and_the_codes_named_first(g
     assert "most of them above the 1 to 5 that most columns hold" in note
     [caution] = [p for p in result.data_problems if p.kind is ProblemKind.CODES_SET_APART]
     planted = int(frame[items].isin([8, 9]).sum().sum())  # pandas' count of the planted codes
-    assert str(caution.explanation).startswith(f"12 item columns of <data frame> (q1, q2, q3 and 9 more) hold 8 and 9 "
-                                               f"apart from the run of their other answers (1 to 5): {planted} of "
+    assert str(caution.explanation).startswith(f"12 item columns of <data frame> (q1, q2, q3 and 9 more) share the codes "
+                                               f"8 and 9, set apart from their other answers (1 to 5): {planted} of "
                                                f"their 4,800 answers")
     assert "missing_codes=[8, 9]" in str(caution.advice)
     given = explore(frame, replications=5, missing_codes=[8, 9])  # read as no answer: nothing to say, grade still out
