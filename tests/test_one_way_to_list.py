@@ -1,7 +1,7 @@
 """One way to list names that may be many: numbers.cut_list (and numbers.more_words for lists of notes), which names
 every one when only one would be left over (numbers.names_shown: 'and 1 more item' hides a name to save none) and
-counts the rest.  Every list that cuts goes through it; a hand-written 'and {n} more' is gone from the modules
-converted in the twenty-second round, and a test keeps it from coming back there."""
+counts the rest.  Every list that cuts goes through it; a hand-written 'and {n} more' is gone from the package, and a
+test keeps it from coming back."""
 
 from __future__ import annotations
 
@@ -58,11 +58,6 @@ def _hand_lists(path: Path) -> list[int]:
     return found
 
 
-CONVERTED = ("workflows/compare.py", "commands/common.py", "data/descriptives.py", "data/notes_rows.py",
-             "data/polychoric.py", "data/labels.py", "workflows/explore.py", "reporting/tables.py", "pipeline/inputs.py",
-             "data/matching.py", "assessment/missingness.py")
-
-
-def test_converted_modules_list_through_cut_list():
-    left = {name: lines for name in CONVERTED if (lines := _hand_lists(PACKAGE / name))}
+def test_no_module_lists_by_hand():
+    left = {str(path.relative_to(PACKAGE)): lines for path in sorted(PACKAGE.rglob("*.py")) if (lines := _hand_lists(path))}
     assert not left, f"hand-written 'and N more' lists: {left}"

@@ -8,7 +8,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import cut_list, user_number
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import printable
 from cfa_tool.note_parts import Command, Note
@@ -44,8 +44,7 @@ class FilterVariable:
 
     def caution(self, source: str) -> str:
         name = source.replace("\\", "/").rsplit("/", 1)[-1]
-        shown = ", ".join(str(r) for r in self.rows[:5]) + (f" and {len(self.rows) - 5} more" if len(self.rows) > 5
-                                                             else "")
+        shown = cut_list(self.rows, 5)
         label = f" ('{printable(self.label)}')" if self.label else ""
         left = (f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)} "
                 f"{'was' if len(self.rows) == 1 else 'were'}"

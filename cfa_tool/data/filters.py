@@ -28,7 +28,7 @@ from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.options import Option
 from cfa_tool.language.names import written_name
-from cfa_tool.numbers import count_text, number, user_number
+from cfa_tool.numbers import count_text, cut_list, more_words, number, user_number
 from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names
 
@@ -356,7 +356,7 @@ def _first_text(column: pd.Series, numeric: pd.Series) -> str:
     first = (f", or leave its rows out first with {Option.KEEP.given(leave_out)}"
              if says_no_answer(cell) and leave_out is not None else "")
     return (f" ('{printable(cell)}' in {row_naming(column).one_row(row_numbers(column)[k])}"
-            + (f", and {more} more such cell{'s' if more != 1 else ''}" if more else "")
+            + more_words(more, ", and ", "such cell")
             + f", among numbers: correct it or leave it empty in a copy of the file to compare numbers{first})")
 
 
@@ -450,9 +450,8 @@ def _filter_notes(counted: list[RowFilter], said: list[tuple]) -> list[str]:
         if len(missing) == 1:
             absent = said[places[[m.value for m in f.members].index(missing[0])]][3]
         elif missing:
-            absent = (f"; no row has {', '.join(repr(printable(_value_text(v))) for v in missing[:SHOWN_VALUES])}"
-                      + (f" and {len(missing) - SHOWN_VALUES} more of the values" if len(missing) > SHOWN_VALUES
-                         else "") + f" in '{printable(f.column)}'")
+            absent = (f"; no row has {cut_list(missing, SHOWN_VALUES, lambda v: repr(printable(_value_text(v))))}"
+                      f" in '{printable(f.column)}'")
         named = (f"row filters {_listed([quoted_filter(g) for g in f.members])}"  # few: each as written
                  if len(places) <= SHOWN_VALUES else
                  f"{len(places)} row filters '{printable(f.column)} != ...', read as one: '{f}'")
@@ -498,9 +497,8 @@ def _compared_with_list(frame: pd.DataFrame, f: RowFilter, column: pd.Series, la
     said = ""
     if absent:
         said = absent[0] if len(absent) == 1 else (
-            f"; no row has {', '.join(repr(printable(_value_text(v))) for v in missing[:SHOWN_VALUES])}"
-            + (f" and {len(missing) - SHOWN_VALUES} more of the values listed" if len(missing) > SHOWN_VALUES else "")
-            + f" in '{printable(f.column)}'")
+            f"; no row has {cut_list(missing, SHOWN_VALUES, lambda v: repr(printable(_value_text(v))))}"
+            f" in '{printable(f.column)}'")
     shared = tuple(pair for m in members for pair in m.shared)
     cased = tuple(pair for m in members for pair in m.other_case)
     return keep, replace(f, members=tuple(members), shared=shared, other_case=cased), by_label, said, read_as
@@ -542,7 +540,7 @@ def _compared(frame: pd.DataFrame, f: RowFilter, column: pd.Series, labels, sour
             odd = _not_dates(column)
             if odd is not None:  # a column of dates but for a few cells: those cells, not the column, are wrong
                 position, value = odd[0]
-                more = f" (and {len(odd) - 1} more such cell{'s' if len(odd) > 2 else ''})" if len(odd) > 1 else ""
+                more = f" ({more_words(len(odd) - 1, 'and ', 'such cell')})" if len(odd) > 1 else ""
                 where = cell_words(frame, f.column, int(row_numbers(frame)[position]))
                 raise DataError(f"{source}, {where}: '{printable(str(value))}' in '{printable(f.column)}' is not "
                                 f"a date (a day that exists, written YYYY-MM-DD), and its other cells are "
@@ -673,8 +671,7 @@ def _present(values: pd.Series, target, shown: int = 8) -> str:
         texts = sorted(str(v) for v in found)
         near = close_names(str(target), texts, n=3)
         texts = near + [t for t in texts if t not in near]
-    more = f" and {len(texts) - shown} more" if len(texts) > shown else ""
-    return ", ".join(printable(t) for t in texts[:shown]) + more
+    return cut_list(texts, shown, printable)
 
 
 def _case_hint(alike: tuple[tuple[str, int], ...]) -> str:

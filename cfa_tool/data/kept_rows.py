@@ -11,7 +11,7 @@ import pandas as pd
 
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.errors import clipped, printable
-from cfa_tool.numbers import names_shown
+from cfa_tool.numbers import more_words, names_shown
 from cfa_tool.note_parts import Command, Note, RowId, Text
 from cfa_tool.options import Option
 
@@ -145,7 +145,7 @@ def rows_listed(numbers, shown: int = 5, ids=(), naming: RowNaming = RowNaming.F
     for k, (n, i) in enumerate(zip(numbers[:shown], ids)):
         parts += [", " if k else "", str(n) + line_words(n, lines)] + ([RowId(f" ('{clipped(str(i), 40)}')")]
                                                                         if i is not None else [])
-    parts.append(f" and {len(numbers) - shown} more" if len(numbers) > shown else "")
+    parts.append(more_words(len(numbers) - shown))
     listed = Note(tuple(parts))
     return listed if any(isinstance(p, RowId) for p in listed.parts) else str(listed)
 

@@ -12,7 +12,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import count_text, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, user_number
 from cfa_tool.errors import clipped, printable
 from cfa_tool.input_files import base_name
 from cfa_tool.note_parts import Command, Note
@@ -85,8 +85,7 @@ def missing_codes_note(source: str | Path, codes: Collection[float | str], read_
         return Note((f"{name}: no cell {where or 'of numbers'} holds any of the codes given", with_option,
                      f" ({given})"))
     total = sum(n for _, n in read_as_none)
-    shown = ", ".join(f"{printable(str(column))} {n}" for column, n in read_as_none[:NAMED_COLUMNS]) + (
-        f" and {len(read_as_none) - NAMED_COLUMNS} more column{'s' if len(read_as_none) - NAMED_COLUMNS != 1 else ''}" if len(read_as_none) > NAMED_COLUMNS else "")
+    shown = cut_list(read_as_none, NAMED_COLUMNS, lambda pair: f"{printable(str(pair[0]))} {pair[1]}", noun="column")
     return Note((f"{name}: {count_text(total)} {'cell' if total == 1 else 'cells'} {where + ' ' if where else ''}holding a code "
                  f"given", with_option, f" ({given}) {'was' if total == 1 else 'were'} read as no answer ({shown})"))
 
@@ -168,9 +167,8 @@ def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int, bool]]
     a row filter that would leave those rows out when none given (``filters``) does already, for a code far outside
     the column's other values (:func:`_far_outside`): a value among them is no code of no answer there, and leaving
     its rows out would drop respondents (a grade of 8 among grades 7 to 9)."""
-    shown = "; ".join(f"'{printable(str(column))}' holds {user_number(code)} in {cells} {'row' if cells == 1 else 'rows'}"
-                      for column, code, cells, _ in kept[:NAMED_COLUMNS])
-    more = f" and {len(kept) - NAMED_COLUMNS} more" if len(kept) > NAMED_COLUMNS else ""
+    shown = cut_list(kept, NAMED_COLUMNS, lambda k: f"'{printable(str(k[0]))}' holds {user_number(k[1])} in "
+                     f"{counted(k[2], 'row')}", sep="; ", lead="; and ")
     open_ = [(column, code) for column, code, _, far in kept if far and not _left_out(column, code, filters)]
     from cfa_tool.data.filter_text import filter_text
 
@@ -178,7 +176,7 @@ def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int, bool]]
     advice = ("; to leave those rows out, ", Command(f"give a row filter such as {Option.KEEP.given(kept_rows)}",
                                                       f"keep only the rows where {kept_rows}")) if kept_rows else ()
     return Note((f"{base_name(source)}: ", Command(f"{Option.MISSING_CODES} applies", "the codes of no answer apply"),
-                 f" to the model's items; other columns keep such a value as it is ({shown}{more})") + advice)
+                 f" to the model's items; other columns keep such a value as it is ({shown})") + advice)
 
 
 #: items and row numbers the caution of a code given for a labelled answer names before 'and N more'
@@ -215,7 +213,7 @@ class CodeOnAnswer:
         cells = sum(len(r) for r in self.rows)
         rows = len(set().union(*self.rows))
         each = [f"{printable(str(c))} {len(r)}" for c, r in zip(self.columns, self.rows)]
-        listed = ", ".join(each[:SHOWN]) + (f" and {len(each) - SHOWN} more" if len(each) > SHOWN else "")
+        listed = cut_list(each, SHOWN)
         many = len(self.columns) != 1
         name = base_name(source)
         given = Option.MISSING_CODES.given(f'{user_number(self.value)}')

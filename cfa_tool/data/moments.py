@@ -19,7 +19,7 @@ from cfa_tool.errors import DataError, EstimationError, clipped, printable
 from cfa_tool.options import Option
 from cfa_tool.method import MissingData
 from cfa_tool.numbers import number as strict_number
-from cfa_tool.numbers import rounded_number, user_number
+from cfa_tool.numbers import counted, cut_list, rounded_number, user_number
 from cfa_tool.numerics.linalg import KnownFactor, cholesky_log_det, sample_factor
 
 
@@ -206,13 +206,11 @@ def stray_words(names: Sequence[str], columns: list[pd.Series], source: str) -> 
         return
     name, column, k, text = first
     words = sorted(found.items(), key=lambda item: (-item[1], item[0]))
-    listed = ", ".join(f"'{clipped(w, 40)}' ({n} cell{'s' if n != 1 else ''})" for w, n in words[:STRAY_WORDS_SHOWN])
-    more = f" and {len(words) - STRAY_WORDS_SHOWN} more" if len(words) > STRAY_WORDS_SHOWN else ""
-    shown = ", ".join(f"'{printable(c)}'" for c in columns_with[:STRAY_WORDS_SHOWN]) + (
-        f" and {len(columns_with) - STRAY_WORDS_SHOWN} more" if len(columns_with) > STRAY_WORDS_SHOWN else "")
+    listed = cut_list(words, STRAY_WORDS_SHOWN, lambda w: f"'{clipped(w[0], 40)}' ({counted(w[1], 'cell')})")
+    shown = cut_list(columns_with, STRAY_WORDS_SHOWN, lambda c: f"'{printable(c)}'")
     where = cell_words(column, name, row_numbers(column)[k])
     raise DataError(f"{source}: {total} cells of {len(columns_with)} column{'s' if len(columns_with) != 1 else ''} "
-                    f"({shown}) hold text among numbers: {listed}{more}; the first is '{clipped(text, 40)}' in "
+                    f"({shown}) hold text among numbers: {listed}; the first is '{clipped(text, 40)}' in "
                     f"column '{printable(name)}', {where}. Correct those cells, or, if "
                     f"{'the word means' if len(words) == 1 else 'the words mean'} no answer, "
                     + _no_answer_advice([w for w, _ in words]))
@@ -341,8 +339,7 @@ def _checked_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             raise DataError(f"{source}: no row answers any of the model's {len(names)} variables (every cell is empty); "
                             f"check the data file, or leave these rows out ({Option.KEEP})")
         if len(empty):
-            listed = ", ".join(f"'{printable(names[j])}'" for j in empty[:5]) + (
-                f" and {len(empty) - 5} more" if len(empty) > 5 else "")
+            listed = cut_list(empty, 5, lambda j: f"'{printable(names[j])}'")
             verb = 'have' if len(empty) > 1 else 'has'
             if part or frame.attrs.get(KEPT_BY):  # a part of the file: its other rows may well answer the item
                 raise DataError(f"{source}: column{'s' if len(empty) > 1 else ''} {listed} {verb} no answers in "

@@ -35,7 +35,7 @@ import pandas as pd
 
 from cfa_tool.language.spec import answer_key
 from cfa_tool.errors import DataError, clipped, printable
-from cfa_tool.numbers import count_text, names_shown, number, user_number
+from cfa_tool.numbers import count_text, more_words, names_shown, number, user_number
 from cfa_tool.input_files import DATA_FRAME, base_name
 from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
@@ -383,7 +383,7 @@ class BeyondScale:
         if len(self.columns) == 1:
             (rows,) = self.rows
             few = names_shown(len(rows), 3)
-            shown = ", ".join(str(r) for r in rows[:few]) + (f" and {len(rows) - few} more" if len(rows) > few else "")
+            shown = ", ".join(str(r) for r in rows[:few]) + more_words(len(rows) - few)
             where = (f"The item {printable(self.columns[0])} of {name} holds the code {user_number(self.value)} labelled "
                      f"'{printable(self.label)}' ({cells} cell{'s' if cells != 1 else ''}: data "
                      f"row{'s' if cells != 1 else ''} {shown}), beyond its other labelled answers")

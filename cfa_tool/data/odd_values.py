@@ -55,7 +55,7 @@ from functools import cached_property
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import count_text, user_number
+from cfa_tool.numbers import count_text, cut_list, user_number
 from cfa_tool.data.descriptives import answer_extremes
 from cfa_tool.data.missing_codes import beyond_as_a_code
 from cfa_tool.data.kept_rows import RowNaming, row_naming, row_words, rows_listed, text_lines
@@ -177,14 +177,13 @@ class OddValues:
         """What one row holds, as a caution or an error names it: 'Row 482 of survey.csv holds the sums of the
         other rows' answers in 12 item columns (on_time 1500, short_wait 1509, accurate_info 1545 and 9 more)'."""
         low, high = self.others
-        shown = ", ".join(f"{printable(c)} {_number(v)}" for c, v in zip(self.columns[:SHOWN], self.values[:SHOWN]))
-        more = f" and {len(self.columns) - SHOWN} more" if len(self.columns) > SHOWN else ""
+        shown = cut_list(list(zip(self.columns, self.values)), SHOWN, lambda cv: f"{printable(cv[0])} {_number(cv[1])}")
         what = {OddKind.FAR_BEYOND: f"values far beyond every other row's answers ({_number(low)} to {_number(high)})",
                 OddKind.SUMS_ROW: "the sums of the other rows' answers",
                 OddKind.MEANS_ROW: "the means of the other rows' answers"}[self.kind]
         row = self._first_row()
         return (f"{row[0].upper()}{row[1:]} of {name} holds {what} in {len(self.columns)} item "
-                f"column{'s' if len(self.columns) != 1 else ''} ({shown}{more})")
+                f"column{'s' if len(self.columns) != 1 else ''} ({shown})")
 
     def totals_refusal(self, source: str, frame: pd.DataFrame) -> str:
         """The one-line error of a totals row (kind SUMS_ROW) among ``frame``'s rows, the one message of every
@@ -1024,10 +1023,7 @@ def _others(values: np.ndarray) -> tuple[float, float]:
 
 
 def _listed(items) -> str:
-    items = [printable(str(i)) for i in items]
-    if len(items) <= SHOWN:
-        return ", ".join(items)
-    return f"{', '.join(items[:SHOWN])} and {len(items) - SHOWN} more"
+    return cut_list(list(items), SHOWN, lambda i: printable(str(i)))
 
 
 def _number(value: float) -> str:

@@ -38,7 +38,7 @@ from cfa_tool.errors import DataError, clipped, printable
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 from cfa_tool.input_files import base_name, check_input_path, input_bytes, line_count, utf16_text
-from cfa_tool.numbers import counted, number
+from cfa_tool.numbers import counted, cut_list, number
 
 if TYPE_CHECKING:
     from cfa_tool.data.moments import ItemColumns
@@ -597,8 +597,7 @@ class HiddenRows:
     def caution(self, source: str) -> str:
         """What was found (the rows, hidden by the workbook's filter or by hand) and that they were kept."""
         name = source.replace("\\", "/").rsplit("/", 1)[-1]
-        shown = ", ".join(str(r) for r in self.rows[:5]) + (f" and {len(self.rows) - 5} more" if len(self.rows) > 5
-                                                             else "")
+        shown = cut_list(self.rows, 5)
         hidden = len(self.rows) + self.filtered_out
         how = "by its filter" if self.filtered else "by hand, not by a filter"
         left = (f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)} "
@@ -711,8 +710,7 @@ class SkippedAnswers:
         first, last = self.rows[0], self.rows[-1]
         shown = (f"row {first}" if not several else f"rows {first}-{last}"
                  if last - first == len(self.rows) - 1 else
-                 "rows " + ", ".join(str(r) for r in self.rows[:SHOWN_ROWS])
-                 + (f" and {len(self.rows) - SHOWN_ROWS} more" if len(self.rows) > SHOWN_ROWS else ""))
+                 "rows " + cut_list(self.rows, SHOWN_ROWS))
         return Note((f"{base_name(self.where)}: {shown}, left unread ",
                      Command(f"by {self.option.given(self.first_data_row)}",
                              f"above the first row of data, row {self.first_data_row}"),

@@ -14,7 +14,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import count_text, rounded_number, user_number
+from cfa_tool.numbers import count_text, cut_list, rounded_number, user_number
 from cfa_tool.data.kept_rows import row_of
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.options import Option
@@ -286,8 +286,7 @@ class SampleDesign:
         if not self.shared_strata or not self.group_rows or self.shared_clusters:
             return None
         count = len(self.shared_strata)
-        which = ", ".join(f"'{name}'" for name in self.shared_strata[:LONE_STRATA_NAMED]) + (
-            f" and {count - LONE_STRATA_NAMED} more" if count > LONE_STRATA_NAMED else "")
+        which = cut_list(self.shared_strata, LONE_STRATA_NAMED, lambda name: f"'{name}'")
         return (f"The groups share {count} {'stratum' if count == 1 else 'strata'} of '{self.columns.strata}' "
                 f"({which}), and the standard errors and tests treat each group's rows in a stratum as drawn apart, as "
                 f"if the design had fixed how many rows of each group each stratum holds. If the groups were drawn "
@@ -301,8 +300,7 @@ class SampleDesign:
             return ""
         unit = "cluster" if self.columns.cluster else "row"
         count = len(self.lone_strata)
-        which = ", ".join(f"'{name}'" for name in self.lone_strata[:LONE_STRATA_NAMED]) + (
-            f" and {count - LONE_STRATA_NAMED} more" if count > LONE_STRATA_NAMED else "")
+        which = cut_list(self.lone_strata, LONE_STRATA_NAMED, lambda name: f"'{name}'")
         where = " in a group" if self.group_rows and not self.shared_clusters else ""
         return (f"{count} {'stratum has' if count == 1 else 'strata have'} a single {unit}{where} ({which}); with no second "
                 f"{unit} to compare, its weighted sum was centred at the mean of all {unit}s' sums instead of its "

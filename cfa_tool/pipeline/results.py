@@ -20,7 +20,7 @@ from cfa_tool.errors import EstimationError, check_rows_counted
 from cfa_tool.language.names import names_text
 from cfa_tool.method import FitMethod
 from cfa_tool.note_parts import Text
-from cfa_tool.numbers import count_text
+from cfa_tool.numbers import count_text, cut_list, names_shown
 from cfa_tool.numerics.plain import clean, clean_list, plain_array
 from cfa_tool.views import Presentable, scorer
 
@@ -189,8 +189,9 @@ class CheckResult(Presentable):
         low = sorted((v, k) for k, v in self.coverage.items() if v < 1)
         if low:
             rest = "; every other item 100%" if len(low) < len(self.coverage) else ""
-            lines.append("Coverage (share of rows answering): " + ", ".join(f"{k} {_percent_below_all(v)}" for v, k in low[:10])
-                         + (f", and {len(low) - 10} more below 100%" if len(low) > 10 else "") + rest + ".")
+            lines.append("Coverage (share of rows answering): "
+                         + cut_list(low, 10, lambda vk: f"{vk[1]} {_percent_below_all(vk[0])}", lead=", and ")
+                         + (" below 100%" if len(low) > names_shown(len(low), 10) else "") + rest + ".")
         if len(self.group_coverage) > 1:  # new-user trial s17: a department's gaps (87% against 96%) shown nowhere
             shares = sorted(self.group_coverage, key=lambda g: g[1])
             lines.append("Share of the model variables' answers given, by group (lowest first): " + ", ".join(

@@ -19,7 +19,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import counted, names_shown, user_number
+from cfa_tool.numbers import counted, cut_list, more_words, names_shown, user_number
 from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, caller_labels, row_naming
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
@@ -1543,9 +1543,7 @@ def _same_item_names(spec, fitted: tuple[str, ...]) -> None:
         return
 
     def listed(names: list[str]) -> str:
-        few = names_shown(len(names), 4)
-        return ", ".join(f"'{printable(x)}'" for x in names[:few]) + (f" and {len(names) - few} more"
-                                                                      if len(names) > few else "")
+        return cut_list(names, 4, lambda x: f"'{printable(x)}'")
     differ = (f"the model {spec.source} has {listed(here)} where the fit has {listed(there)}" if here and there else
               f"the model {spec.source} has {listed(here)}, which the fit does not" if here else
               f"the fit has {listed(there)}, which the model {spec.source} does not")
@@ -1730,11 +1728,9 @@ def _items_against_loadings(model, rows: np.ndarray, source: str) -> str | None:
         return None
     from cfa_tool.numerics.plain import journal_decimal
 
-    listed = "; ".join(f"'{printable(item)}' correlates {journal_decimal(r, digits=2)} with the rest of {printable(factor)}'s items "
-                       f"(keyed as the fit keys them), while its loading in the earlier fit is "
-                       f"{'positive' if loading > 0 else 'negative'} ({loading:.3f})"
-                       for item, factor, r, loading in found[:names_shown(len(found), 5)]) + (
-        f"; and {len(found) - 5} more items" if len(found) > names_shown(len(found), 5) else "")
+    listed = cut_list(found, 5, lambda f: f"'{printable(f[0])}' correlates {journal_decimal(f[2], digits=2)} with the rest "
+                      f"of {printable(f[1])}'s items (keyed as the fit keys them), while its loading in the earlier fit "
+                      f"is {'positive' if f[3] > 0 else 'negative'} ({f[3]:.3f})", sep="; ", lead="; and ", noun="item")
     one = len(found) == 1
     return (f"In {source}, {'an item runs' if one else 'items run'} against {'its factor' if one else 'their factors'}"
             f": {listed}. {'It is' if one else 'They are'} probably coded the other way round from the fit's data (a "
@@ -1761,9 +1757,8 @@ def _outside_fitted_ranges(data, items, rows: np.ndarray, source: str) -> str | 
                 found.append((item, below + above, lo, hi))
     if not found:
         return None
-    listed = "; ".join(f"'{printable(item)}', {n} answer{'s' if n != 1 else ''} outside {user_number(lo)} to {user_number(hi)}"
-                       for item, n, lo, hi in found[:names_shown(len(found), 5)]) + (
-        f"; and {len(found) - 5} more items" if len(found) > names_shown(len(found), 5) else "")
+    listed = cut_list(found, 5, lambda f: f"'{printable(f[0])}', {counted(f[1], 'answer')} outside {user_number(f[2])} to "
+                      f"{user_number(f[3])}", sep="; ", lead="; and ", noun="item")
     return (f"{source} holds answers outside the range of the rows the earlier fit analysed: {listed}. Scores of such "
             f"answers extrapolate the fit, and if the files code the answers differently (0 to 4 against 1 to 5, "
             f"say) every score is shifted.")
@@ -1781,11 +1776,12 @@ def _unknown_groups(group_of_row: np.ndarray, labels, group: str, source: str) -
         return None
     counts = given.value_counts()
     shown = []
-    for label, n in list(counts.items())[:names_shown(len(counts), 6)]:
+    few = names_shown(len(counts), 6)
+    for label, n in list(counts.items())[:few]:
         near = close_names(str(label), [str(x) for x in labels])
         shown.append(f"'{printable(label)}' ({n} row{'s' if n != 1 else ''}"
                      + (f"; the fit has '{printable(near[0])}'" if near else "") + ")")
-    more = f" and {len(counts) - 6} more" if len(counts) > names_shown(len(counts), 6) else ""
+    more = more_words(len(counts) - few)
     fitted = ", ".join(f"'{printable(x)}'" for x in labels)
     outside = int(counts.sum())
     text = (f"{counted(outside, 'row')} of {source} {'is' if outside == 1 else 'are'} in groups of "
