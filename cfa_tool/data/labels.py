@@ -16,6 +16,7 @@ from typing import TYPE_CHECKING
 
 from cfa_tool.numbers import cut_list, more_words, names_shown, user_number
 from cfa_tool.errors import printable
+from cfa_tool.language.names import composed
 from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
 
@@ -50,7 +51,7 @@ def label_text(value) -> str:
     text = str(value)
     if not text.isascii():
         text = _without_invisible(text)
-    return unicodedata.normalize("NFC", text.strip())
+    return composed(text.strip())
 
 
 def distinct_cells(values) -> tuple[list, "np.ndarray"]:

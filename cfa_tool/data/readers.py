@@ -9,7 +9,6 @@ and whose variable and value labels are kept for reports.
 
 from __future__ import annotations
 
-import unicodedata
 
 import csv
 import io
@@ -38,6 +37,7 @@ from cfa_tool.errors import DataError, clipped, printable
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 from cfa_tool.input_files import base_name, check_input_path, input_bytes, line_count, utf16_text
+from cfa_tool.language.names import composed as composed_text
 from cfa_tool.numbers import counted, cut_list, number
 
 if TYPE_CHECKING:
@@ -368,7 +368,7 @@ def _composed_names(loaded: LoadedData) -> LoadedData:
     """Column names in Unicode's composed form (NFC), as model names are read: a header written with decomposed
     accents (as some systems save files) names the same column as the model's 'température'."""
     def composed(name):
-        return unicodedata.normalize("NFC", name) if isinstance(name, str) else name
+        return composed_text(name) if isinstance(name, str) else name
 
     names = [composed(c) for c in loaded.frame.columns]
     if names == list(loaded.frame.columns):

@@ -5,13 +5,13 @@ filters, ordinal items), and every report says which column of which file was re
 
 from __future__ import annotations
 
-import unicodedata
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
 import pandas as pd
 
 from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.language.names import composed
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 from cfa_tool.suggest import close_names
@@ -39,7 +39,7 @@ class ColumnRename:
 
 def _composed(name: str) -> str:
     """A name in Unicode's composed form, as column names are read (data.readers)."""
-    return unicodedata.normalize("NFC", name)
+    return composed(name)
 
 
 def column_renames(value: ColumnRenames, option: Option = Option.RENAME) -> tuple[ColumnRename, ...]:

@@ -503,6 +503,22 @@ def _check_contradictions(spec: Spec) -> None:
             raise _fail(spec, "'equal' within 'in group' applies to one group; to hold parameters equal across groups use 'invariance LEVEL' or 'equal across groups: ...'", group[0].location)
 
 
+def _single_indicator_remedy(spec: Spec, name: str, x: str, scaled: set) -> str:
+    """What to write for factor ``name`` whose one indicator is ``x``: add indicators, or fix the indicator's
+    residual at 0.  A factor as that indicator (a higher-order factor over one factor) then also needs one of its own
+    loadings fixed, since its variance fixed at 0 takes the place of its marker (:func:`_check_zero_disturbances`):
+    both lines are given at once (hostile s22: following the first advice gave a second error).  ``scaled``: the
+    keys of the loadings and variances the model fixes at values that set a scale."""
+    below = next((f for f in spec.factors if f.name.text == x), None)
+    if below is None or any(("loading", (x, i.text)) in scaled for i in below.indicators):
+        return f"add indicators or fix its residual, e.g. 'fix variance({written_name(x)}) = 0'"
+    zero = ParameterRef("variance", (x,), below.name.location)
+    loading = ParameterRef("loading", (x, below.indicators[0].text), below.name.location)
+    return (f"add indicators, or fix the disturbance variance of '{x}' at 0 and give '{x}' its scale by one of its "
+            f"loadings, in two lines: 'fix {zero} = 0' and 'fix {loading} = 1' (a higher-order factor over one factor "
+            f"is that factor itself, so '{name}' can also be left out)")
+
+
 def _check_indicator_counts(spec: Spec) -> None:
     fixed_keys = {r.key() for s in spec.fixed for r in s.refs if r.group is None}
     set_apart = {r.key() for s in spec.fixed for r in s.refs if r.group is None and not fix_sets_scale(r.kind, s.value)}
@@ -521,11 +537,8 @@ def _check_indicator_counts(spec: Spec) -> None:
         if len(inds) == 1:
             x = inds[0]
             if ("variance", (x,)) not in fixed_keys:
-                raise _fail(
-                    spec,
-                    f"factor '{name}' has a single indicator '{x}' and cannot be identified; add indicators or fix its residual, e.g. 'fix variance({x}) = 0'",
-                    factor.name.location,
-                )
+                raise _fail(spec, f"factor '{name}' has a single indicator '{x}' and cannot be identified; "
+                                  + _single_indicator_remedy(spec, name, x, fixed_keys - set_apart), factor.name.location)
         elif len(inds) == 2:
             # the two loadings and the factor's variance give one covariance: identified when two of the three are
             # fixed (at values other than 0) or held equal, e.g. a loading and the variance both fixed

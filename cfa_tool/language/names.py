@@ -11,11 +11,19 @@ its names and its group exactly (:func:`read_reference`), whatever commas, brack
 from __future__ import annotations
 
 import re
+import unicodedata
 from collections.abc import Callable, Sequence
 
 from cfa_tool.errors import clipped
 
 _PLAIN = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")  # the grammar's NAME (grammar/model.lark)
+
+
+def composed(text: str) -> str:
+    """``text`` in Unicode's composed form (NFC; Unicode Standard Annex #15): the one rule by which text written with
+    decomposed accents ('e' + U+0301, as some systems save files) is the text written composed ('é'), for the model's
+    names, the data's column names and the names options give, labels, and answer words alike."""
+    return text if text.isascii() else unicodedata.normalize("NFC", text)
 
 
 def plain(name: str) -> bool:
@@ -239,6 +247,7 @@ def ordinal_names(given: str | Sequence[str], items: Sequence[str], among: str) 
 
     names: list[str] = []
     for name in [given] if isinstance(given, str) else given:
+        name = composed(name)  # as the data's column names are read
         if name not in items and name.strip() in items:
             name = name.strip()
         ends = [end.strip() for end in name.split("..")]

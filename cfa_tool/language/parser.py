@@ -44,7 +44,7 @@ from cfa_tool.language.spec import (
     ValueSetting,
 )
 from cfa_tool.language.grammar_tables import model_parser
-from cfa_tool.language.names import range_names
+from cfa_tool.language.names import composed, range_names
 
 STATEMENT_WORDS = ("name", "factor", "covary", "uncorrelated", "fix", "free", "equal", "start", "bound", "scale", "in",
                    "invariance", "noninvariant", "ordinal", "reversed", "method", "exploratory", "near", "answers")
@@ -639,12 +639,12 @@ class _Builder:
         token = node.children[0]
         text = str(token)
         if node.data == "quoted_name":
-            # as data column names are read: composed accents, no spaces at the ends (headers are trimmed, so a
-            # name copied from a header with its trailing space names the same column)
-            text = unicodedata.normalize("NFC", text[1:-1]).strip()
+            # no spaces at the ends (headers are trimmed, so a name copied from a header with its trailing space
+            # names the same column)
+            text = text[1:-1].strip()
             if not text.strip():
                 raise self.error("a quoted name cannot be empty", token)
-        return Name(text, self.loc(token))
+        return Name(composed(text), self.loc(token))  # as data column names are read (names.composed), quoted or not
 
     def name_list(self, node: Tree) -> tuple[Name, ...]:
         names: list[Name] = []

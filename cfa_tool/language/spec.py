@@ -12,7 +12,7 @@ from functools import cached_property
 
 from cfa_tool.errors import Location
 from cfa_tool.numbers import user_number
-from cfa_tool.language.names import reference_text
+from cfa_tool.language.names import composed, reference_text
 
 #: Parameter kinds a reference may name, with the number of names each takes.
 REFERENCE_KINDS: dict[str, int] = {"loading": 2, "variance": 1, "covariance": 2, "intercept": 1, "mean": 1, "threshold": 1}
@@ -162,9 +162,11 @@ _INVISIBLE_MARKS = dict.fromkeys(map(ord, "\u00ad\u200b\u200c\u200d\u200e\u200f\
 
 def answer_key(word: str) -> str:
     """How an answer word is matched: case, the spaces around it, the kind and number of spaces inside it (a
-    no-break space is a space) and invisible marks (a zero-width space) do not count ('  agree ' and
-    'Strongly\u00a0agree' are 'Agree' and 'Strongly agree'); the word itself must be whole (no partial matches)."""
-    return " ".join(word.translate(_INVISIBLE_MARKS).split()).casefold()
+    no-break space is a space), invisible marks (a zero-width space) and the Unicode form of its accents (names'
+    one rule, :func:`~cfa_tool.language.names.composed`: 'Neutre' + U+0300 is 'Neutrè') do not count ('  agree '
+    and 'Strongly\u00a0agree' are 'Agree' and 'Strongly agree'); the word itself must be whole (no partial
+    matches)."""
+    return composed(composed(" ".join(word.translate(_INVISIBLE_MARKS).split())).casefold())
 
 
 @dataclass(frozen=True)

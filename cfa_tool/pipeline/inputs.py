@@ -54,6 +54,7 @@ from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import LISTWISE_WARNING_SHARE, FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec, with_ordinal_levels
+from cfa_tool.language.names import composed
 from cfa_tool.method import ADJUSTED_TEST, FitTest, MissingData, WeightKind, Weighting
 from cfa_tool.pipeline.results import CheckResult, FitResult
 from cfa_tool.suggest import close_names
@@ -179,6 +180,9 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             raise OptionError(f"a first row of data ({first_data_option(names_option)}) is read from a file, and the "
                               f"data are a data frame, whose rows are all data; leave it out")
         frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
+        # column names in Unicode's composed form, as a file's are read (names.composed: a column named with
+        # decomposed accents is the model's name written composed; diagram-s22: "did you mean" the same name)
+        frame = frame.set_axis([composed(c) if isinstance(c, str) else c for c in frame.columns], axis=1)
         frame = renamed_frame(frame, renames, DATA_FRAME, rename_option)
         frame, notes_lines = drop_notes_lines(frame, DATA_FRAME)  # the readers' rules: notes lines under the data,
         frame, blank = drop_blank_rows(frame, DATA_FRAME)  # then blank rows

@@ -392,6 +392,15 @@ def _answer_ranges(variables: tuple[str, ...], ranges: tuple) -> dict:
     return {name: clean_list(r) for name, r in zip(variables, ranges)}
 
 
+def saved_categories(data: dict) -> tuple[tuple[tuple[float, int], ...], ...]:
+    """The answer categories of a saved fit's data block (:meth:`DataSummary.to_dict`, its ``category_counts``) read
+    back: per variable, each answer value with the rows giving it, lowest first (empty for a continuous item and for
+    every item of a fit that recorded none).  The one reader of them, for scores and simulate alike; a block changed
+    by hand raises KeyError, TypeError, ValueError or AttributeError, which the caller names."""
+    counts = data.get("category_counts") or {}
+    return tuple(tuple((float(c["value"]), int(c["rows"])) for c in counts.get(x, ())) for x in data["variables"])
+
+
 @dataclass(frozen=True, eq=False)
 class GroupResult:
     """What is specific to one group (the only group of a single-group fit)."""

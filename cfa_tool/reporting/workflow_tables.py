@@ -1585,7 +1585,9 @@ def population_report(simulated) -> Report:
     cut = population.ordinal_items
     made = (f"{len(frame)} rows of {frame.shape[1]} variables (seed {simulated.seed})"
             + (f", ordinal with {simulated.categories} categories" if simulated.categories else "")
-            + (f", {len(cut)} ordinal items cut at the fitted thresholds (answers 1 to k)"
+            + (f", {len(cut)} ordinal items cut at the fitted thresholds ("
+               + ("answers in the earlier fit's own codes" if getattr(population, "answer_codes", None) else
+                  "answers 1 to k") + ")"
                if cut and not simulated.categories and not population.equal_categories else "")
             + (f", {100 * simulated.missing:g}% of answers removed completely at random" if simulated.missing else "") + ".")
     carried = [] if simulated.missing else not_carried_line(population.not_carried, power=False)  # --missing: gaps

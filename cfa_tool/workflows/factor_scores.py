@@ -1314,7 +1314,7 @@ def read_saved_fit(path) -> SavedFit:
     from cfa_tool.data.missing_codes import codes_and_words
     from cfa_tool.input_files import input_json
     from cfa_tool.model.saved_estimates import saved_fit_payload, saved_rows
-    from cfa_tool.pipeline.results import DataSummary
+    from cfa_tool.pipeline.results import DataSummary, saved_categories
 
     source = f"'{printable(str(path))}'"
     # one rule with simulate's and power-simulation's --population-from: a fit's to_dict() saved from Python serves too
@@ -1325,7 +1325,7 @@ def read_saved_fit(path) -> SavedFit:
     try:
         d = payload["data"]
         counts = d.get("category_counts") or {}
-        categories = tuple(tuple((float(c["value"]), int(c["rows"])) for c in counts.get(x, ())) for x in d["variables"])
+        categories = saved_categories(d)
         means = tuple(float(v) for v in d["means"]) if d["means"] is not None else (0.0,) * len(d["variables"])
         not_given = tuple(NotGiven(v) for v in d.get("not_given", ()))
         if "not_given" not in d and not any(row.kind == "intercept" for row in rows) \

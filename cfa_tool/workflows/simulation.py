@@ -48,7 +48,7 @@ class ItemMeans(Enum):
     INTERCEPTS = "the earlier fit's intercepts (and factor means)"
     SAMPLE_MEANS = "the item means of the rows the earlier fit was fitted to (it estimated no intercepts)"
     UNKNOWN = "not known to the earlier fit (summary statistics without means): every item centred at 0"
-    THRESHOLDS = "set by the earlier fit's thresholds (answers 1 to k)"
+    THRESHOLDS = "set by the earlier fit's thresholds"
     CUT = "set by the thresholds that cut their latent responses into categories (answers 1 to k)"
     GROUPS = "not carried over, as in every plan with groups"
 
@@ -88,6 +88,10 @@ class Population:
     #: an earlier continuous fit's values put on the scale of latent responses of variance 1
     #: (:func:`on_latent_response_scale`), for items cut into categories and fitted as ordinal
     standardized: bool = False
+    #: the answer codes of the earlier ordinal fit's items, lowest first, one more than its thresholds (0 to 10, or
+    #: 1, 2, 4, 5 with 3 never chosen), which simulated answers are written in so that the file reads back with that
+    #: fit (hostile s22: written 1 to k, which scores --from-fit of the same fit refused); None: answers 1 to k
+    answer_codes: dict[str, tuple[float, ...]] | None = None
 
     @property
     def ordinal_items(self) -> tuple[str, ...]:
@@ -295,7 +299,37 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
     not_carried = tuple(what for what, had in (("sampling design", payload.get("design") is not None),
                                                ("pattern of missing answers", payload.get("missing_data") is not None)) if had)
     return Population(spec, table, theta, sigma, (), source, cuts or None, means, means_from,
-                      "standard_deviations" in not_given, not_carried)
+                      "standard_deviations" in not_given, not_carried,
+                      answer_codes=_fitted_answer_codes(payload, cuts, source) or None)
+
+
+def _fitted_answer_codes(payload: dict, cuts: dict[str, np.ndarray], source: str) -> dict[str, tuple[float, ...]]:
+    """Each ordinal item's answer codes in the earlier fit, lowest first: the values of its data summary's answer
+    categories (:func:`cfa_tool.pipeline.results.saved_categories`, the reader scores --from-fit checks new answers
+    by), one more than the item's thresholds.  A fit that recorded no categories (written before they were saved)
+    gives none, and its items are written 1 to k; categories that do not match the thresholds are an error."""
+    from cfa_tool.model.saved_estimates import AGAIN
+    from cfa_tool.pipeline.results import saved_categories
+
+    if not cuts:
+        return {}
+    data = payload.get("data")
+    try:
+        categories = dict(zip((str(x) for x in data["variables"]), saved_categories(data)))
+    except (AttributeError, KeyError, TypeError, ValueError):
+        raise OptionError(f"{source}: the fit's data summary (its answer categories) is missing or changed by hand; "
+                          f"{AGAIN}") from None
+    out = {}
+    for item, thresholds in cuts.items():
+        codes = tuple(value for value, _ in categories.get(item, ()))
+        if not codes:
+            continue
+        if len(codes) != len(thresholds) + 1 or not np.all(np.isfinite(codes)) or np.any(np.diff(codes) <= 0):
+            raise OptionError(f"{source}: the answer categories of '{printable(item)}' in the fit's data summary "
+                              f"({', '.join(user_number(c) for c in codes)}) are not the {len(thresholds) + 1} "
+                              f"increasing answers its {len(thresholds)} thresholds cut; {AGAIN}")
+        out[item] = codes
+    return out
 
 
 def _fitted_means(model: StructuredModel, theta: np.ndarray, saved, payload: dict, observed: tuple[str, ...],
@@ -635,7 +669,8 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
     if set(thresholds) == set(population.thresholds or ()):  # nothing cut beyond the earlier fit's items
         return population
     return replace(population, thresholds={x: thresholds[x] for x in population.observed if x in thresholds},
-                   equal_categories=population.thresholds is None or population.equal_categories)
+                   equal_categories=population.thresholds is None or population.equal_categories,
+                   answer_codes=population.answer_codes)
 
 
 def written_as_words(frame: pd.DataFrame, spec: Spec, observed: tuple[str, ...]) -> pd.DataFrame:
@@ -653,14 +688,17 @@ def written_as_words(frame: pd.DataFrame, spec: Spec, observed: tuple[str, ...])
 
 
 def cut_at_thresholds(rows: np.ndarray, sigma: np.ndarray, observed: tuple[str, ...],
-                      thresholds: dict[str, np.ndarray]) -> np.ndarray:
+                      thresholds: dict[str, np.ndarray], codes: dict[str, tuple[float, ...]] | None = None) -> np.ndarray:
     """Latent responses (``rows``, covariance ``sigma``) as answers 1..k: each ordinal item's response standardized
-    and cut at its thresholds (answer c when tau_(c-1) < y* <= tau_c); continuous items are left as they are."""
+    and cut at its thresholds (answer c when tau_(c-1) < y* <= tau_c), written as the c-th of the item's ``codes``
+    where they give them (an earlier fit's own answers); continuous items are left as they are."""
     out = rows.copy()
     sd = np.sqrt(np.diag(sigma))
     for k, item in enumerate(observed):
         if item in thresholds:
-            out[:, k] = np.searchsorted(thresholds[item], rows[:, k] / sd[k], side="left") + 1
+            category = np.searchsorted(thresholds[item], rows[:, k] / sd[k], side="left")
+            own = (codes or {}).get(item)
+            out[:, k] = category + 1 if own is None else np.asarray(own, dtype=float)[category]
     return out
 
 
@@ -689,7 +727,8 @@ class SimulatedData(Presentable):
 def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing: float = 0.0,
              population=None) -> SimulatedData:
     """Data from the model's population values (``spec``: a model file, model text or parsed model):
-    continuous, or ordinal with ``categories`` categories (whole numbers 1..k), with a share ``missing``
+    continuous, or ordinal with ``categories`` categories (whole numbers 1..k; from an earlier ordinal fit, its own
+    answer codes), with a share ``missing``
     of answers removed completely at random.  Items an 'ordinal' statement declares are cut into
     categories (and need ``categories``); without such a statement ``categories`` cuts every item.
     ``population``: an earlier fit of the same model (result, JSON dict or JSON file) whose estimates are
@@ -714,14 +753,16 @@ def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing
     cut = population.ordinal_items
     if population.means is not None:  # continuous items about their means; ordinal ones are cut from centred ones
         rows += np.where(np.isin(np.asarray(population.observed), cut), 0.0, population.means)
+    worded = tuple(x for x in population.observed if x in spec.answer_codings())
+    # the earlier fit's own answer codes (written_as_words writes the worded items' categories as the statement's)
+    own = {x: c for x, c in (population.answer_codes or {}).items() if x not in worded}
     if cut:
-        rows = cut_at_thresholds(rows, population.sigma, population.observed, population.thresholds)
+        rows = cut_at_thresholds(rows, population.sigma, population.observed, population.thresholds, own)
     if missing:
         rows[rng.random(rows.shape) < missing] = np.nan
     frame = pd.DataFrame(rows, columns=list(population.observed))
-    if cut:  # answers are whole numbers (a nullable integer type keeps the gaps)
-        frame = frame.astype({x: "Int64" for x in cut})
-    worded = tuple(x for x in population.observed if x in spec.answer_codings())
+    if cut:  # whole answers as whole numbers (a nullable integer type keeps the gaps)
+        frame = frame.astype({x: "Int64" for x in cut if all(float(c).is_integer() for c in own.get(x, (1.0,)))})
     if worded:  # the model's 'answers' statements: the words, as the data the model reads hold them
         frame = written_as_words(frame, spec, population.observed)
     return SimulatedData(frame, population, seed, categories, missing, worded)
