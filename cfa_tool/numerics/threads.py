@@ -15,9 +15,6 @@ Where threads are set (one rule, so that they never oversubscribe the cores):
 from __future__ import annotations
 
 import contextlib
-import os
-import sys
-import threading
 from functools import lru_cache
 
 SMALL_MODEL = 250  # indicators; up to this one BLAS thread is never much slower than several and never oversubscribes
@@ -39,8 +36,6 @@ def one_blas_thread():
 
 def one_blas_thread_from_now() -> None:
     """This process's BLAS libraries run one thread from now on (a worker process of many fits)."""
-    global _worker
-    _worker = True
     for lib in blas_libraries():
         if lib.num_threads != 1:
             lib.set_num_threads(1)
@@ -84,54 +79,3 @@ def _found_libraries(with_scipy: bool) -> tuple:
     from threadpoolctl import ThreadpoolController
 
     return tuple(lib for lib in ThreadpoolController().lib_controllers if lib.user_api == "blas")
-
-
-_worker = False  # set in worker processes of many fits (one_blas_thread_from_now): no thread beside the fit there
-FORCE_SIDE_THREAD = False  # bench only: the guards' load test skipped, to time side by side whatever the load
-
-
-def side_thread_allowed() -> bool:
-    """Whether a piece of a fit may run in a second thread beside the caller's without oversubscribing the cores
-    (round 12's guards): at least two cores, the load average of the last minute below the cores less one half (the
-    caller's own fit counts about one), the BLAS libraries at one thread (inside :func:`blas_threads_for`), the caller
-    the program's main thread (a program running fits from threads of its own has shared the cores out itself), and
-    the process no worker of many fits (those are as many as the cores)."""
-    if (_worker or threading.current_thread() is not threading.main_thread()
-            or ("multiprocessing" in sys.modules and sys.modules["multiprocessing"].parent_process() is not None)):
-        return False
-    try:
-        cores = len(os.sched_getaffinity(0))
-    except AttributeError:  # no affinity outside Linux
-        cores = os.cpu_count() or 1
-    try:
-        idle = cores >= 2 and (FORCE_SIDE_THREAD or os.getloadavg()[0] < cores - 0.5)
-    except (AttributeError, OSError):  # no load average (Windows): the load cannot be judged
-        idle = False
-    return idle and all(lib.num_threads == 1 for lib in blas_libraries())
-
-
-class Beside:
-    """``function(*args)`` run in a thread of its own, started now (with the caller's context: numpy's error settings
-    among it) and joined by :meth:`result`, which returns its value or raises its exception.  A thread per piece, not
-    a pool: no thread outlives the fit (a process forking workers later has none)."""
-
-    def __init__(self, function, *args) -> None:
-        import contextvars
-
-        self._value = self._error = None
-        context = contextvars.copy_context()
-        self._thread = threading.Thread(target=context.run, args=(self._run, function, args), daemon=True,
-                                        name="cfa-tool-beside")
-        self._thread.start()
-
-    def _run(self, function, args) -> None:
-        try:
-            self._value = function(*args)
-        except BaseException as error:  # raised in the caller's thread by result()
-            self._error = error
-
-    def result(self):
-        self._thread.join()
-        if self._error is not None:
-            raise self._error
-        return self._value

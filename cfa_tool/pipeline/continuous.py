@@ -43,8 +43,8 @@ from cfa_tool.model.parameters import ImpossibleAtStart, ParameterTable, build_p
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
 from cfa_tool.note_parts import Command, Note, Text
-from cfa_tool.numerics.linalg import sample_factor_of, scaled_factor
-from cfa_tool.numerics.threads import Beside, blas_threads_for, side_thread_allowed
+from cfa_tool.numerics.linalg import scaled_factor
+from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.options import Option
 from cfa_tool.pipeline.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
@@ -328,40 +328,8 @@ def fit_moments(spec: Spec, moments: SampleMoments | list[tuple[str | None, Samp
     """Fit ``spec`` by normal-theory maximum likelihood to one or several groups' moments."""
     groups = [(None, moments)] if isinstance(moments, SampleMoments) else list(moments)
     with blas_threads_for(len(spec.observed_names)):
-        beside = _data_only_beside(spec, groups, options)
-        try:
-            est = estimate(spec, groups, options)
-        except BaseException:
-            for piece in beside or ():
-                try:
-                    piece.result()  # joined: nothing runs on after the fit
-                except Exception:
-                    pass  # the search's error is the one said
-            raise
-        return assess(spec, groups, est, options, group_column, beside=beside)
-
-
-#: items from which the data-only part of the diagnostics (whitened rows, Mardia's tests) starts in a second thread
-#: before the search, when the guards of numerics.threads.side_thread allow one
-SIDE_BY_SIDE_ITEMS = 30
-
-
-def _data_only_beside(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options: FitOptions):
-    """Futures of each group's (whitened rows, Mardia's tests), computed from the data alone in a side thread while the
-    search runs, or None (the fit computes them in assess as before)."""
-    observed = tuple(spec.observed_names)
-    if (not options.diagnostics or len(observed) < SIDE_BY_SIDE_ITEMS or options.missing is MissingData.FULL_INFORMATION
-            or any(m.rows is None or m.design is not None for _, m in groups)):
-        return None
-    if not side_thread_allowed():
-        return None
-    return [Beside(_rows_normality, ordered_moments(m, observed)) for _, m in groups]
-
-
-def _rows_normality(gm: GroupMoments):
-    """(whitened rows, Mardia's tests) of one group's complete rows, as assess computes them."""
-    whitened = whitened_rows(gm.rows, (gm.mean, gm.covariance), sample_factor_of(gm.covariance, gm.factor))
-    return whitened, mardia(gm.rows, whitened, None)
+        est = estimate(spec, groups, options)
+        return assess(spec, groups, est, options, group_column)
 
 
 def unestimated(spec: Spec, moments: SampleMoments | list[tuple[str | None, SampleMoments]], options: FitOptions,
@@ -451,7 +419,7 @@ def rows_left_out(groups, missing: MissingData | None,
 
 
 def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Estimation, options: FitOptions,
-           group_column: str | None = None, identification_known: bool = False, beside=None) -> FitResult:
+           group_column: str | None = None, identification_known: bool = False) -> FitResult:
     """Standard errors, fit indices, standardized values, modification indices and warnings; ``identification_known``:
     the estimation is one that the rank check already found not identified (:func:`unestimated`)."""
     table, model, likelihood, theta = est.table, est.model, est.likelihood, est.theta
@@ -569,13 +537,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         sigma = mats[g].implied_covariance()
         # shared below; unweighted rows are those the sample moments were computed from
         rows = gm.rows if gm.rows is not None else _complete_pattern_rows(likelihood, g, est.auxiliary)
-        normality = None
-        if beside is not None and table.observed == tuple(spec.observed_names) and likelihood.complete_data:
-            whitened, normality = beside[g].result()
-        else:
-            whitened = (whitened_rows(rows, (gm.mean, gm.covariance) if gm.design is None else None,
-                                      likelihood.sample_factors[g] if hasattr(likelihood, "sample_factors") else None)
-                        if options.diagnostics and rows is not None else None)
+        whitened = (whitened_rows(rows, (gm.mean, gm.covariance) if gm.design is None else None,
+                                  likelihood.sample_factors[g] if hasattr(likelihood, "sample_factors") else None)
+                    if options.diagnostics and rows is not None else None)
         share = (None if not est.converged else est.auxiliary.group_chi_square(g) if est.auxiliary is not None else
                  likelihood.n_total * likelihood.weights[g] * likelihood.group_discrepancy(theta, g))
         group_results.append(
@@ -591,8 +555,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 sample_mean=gm.mean,
                 implied_mean=mats[g].implied_mean() if means else None,
                 latent_covariance=mats[g].latent_covariance(),
-                normality=(normality if normality is not None else
-                           mardia(rows, whitened, _frequency_weights(gm)) if whitened is not None else None),
+                normality=mardia(rows, whitened, _frequency_weights(gm)) if whitened is not None else None,
                 **_group_diagnostics(mats[g], table, gm, _answering_items(m, est.auxiliary.answered[g])
                                      if est.auxiliary is not None else m, sigma,
                                      est.converged and (options.diagnostics or options.reliability),
