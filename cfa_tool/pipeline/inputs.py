@@ -182,7 +182,9 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
         # column names in Unicode's composed form, as a file's are read (names.composed: a column named with
         # decomposed accents is the model's name written composed; diagram-s22: "did you mean" the same name)
-        frame = frame.set_axis([composed(c) if isinstance(c, str) else c for c in frame.columns], axis=1)
+        names = [composed(c) if isinstance(c, str) else c for c in frame.columns]
+        if names != list(frame.columns):  # set anew only when a name changes (set_axis copies the frame, every fit)
+            frame = frame.set_axis(names, axis=1)
         frame = renamed_frame(frame, renames, DATA_FRAME, rename_option)
         frame, notes_lines = drop_notes_lines(frame, DATA_FRAME)  # the readers' rules: notes lines under the data,
         frame, blank = drop_blank_rows(frame, DATA_FRAME)  # then blank rows
