@@ -22,7 +22,7 @@ import pandas as pd
 from cfa_tool.data.missing_codes import missing_codes_note
 from cfa_tool.data.non_answers import NonAnswer, answers_labelled_like_none, non_answer_note
 from cfa_tool.note_parts import Text
-from cfa_tool.numbers import count_text
+from cfa_tool.numbers import counted
 
 
 def kept_non_answers(found: tuple[NonAnswer, ...], frame: pd.DataFrame) -> tuple[NonAnswer, ...]:
@@ -70,7 +70,7 @@ class ReadingCounts:
         """The notes over the rows of ``frame`` (the rows kept), keyed by the identity of the note read over every
         row that each replaces (no note where none is left to say); ``non_answers``: the values read as no answer in
         those rows (:func:`kept_non_answers`)."""
-        rows = f"the {count_text(len(frame))} row{'s' if len(frame) != 1 else ''}"
+        rows = f"the {counted(len(frame), 'row')}"
         out: dict[int, tuple[Text, ...]] = {}
         if self.codes_note is not None and self.coded:  # (a note that no item of the file holds a code stays)
             kept = frame.index

@@ -90,14 +90,6 @@ def missing_codes_note(source: str | Path, codes: Collection[float | str], read_
                  f"given", with_option, f" ({given}) {'was' if total == 1 else 'were'} read as no answer ({shown})"))
 
 
-def words_given(words: list[str]) -> str:
-    """--missing-codes with ``words`` as the caller writes it (data.non_answers.codes_given, the one writer of such a
-    list)."""
-    from cfa_tool.data.non_answers import codes_given
-
-    return codes_given(words)
-
-
 def apply_missing_codes(frame: pd.DataFrame, codes, source: str | Path, items: Collection[str] | None = None,
                         filters: Collection = ()) -> tuple[pd.DataFrame, tuple[str, ...], frozenset[float]]:
     """``frame`` (of the data file ``source``) with the cells of numbers holding one of ``codes`` (--missing-codes)

@@ -226,10 +226,10 @@ def stray_word_message(source: str, name: str, shown: str, where: str, word: str
 
 def _no_answer_advice(words: list[str]) -> str:
     """How to read words among numbers as no answer: give them with --missing-codes on the command line, with
-    missing_codes= in Python (data.missing_codes.words_given)."""
-    from cfa_tool.data.missing_codes import words_given
+    missing_codes= in Python (data.non_answers.codes_given)."""
+    from cfa_tool.data.non_answers import codes_given
 
-    return f"give {'it' if len(words) == 1 else 'them'} with {words_given(words[:STRAY_WORDS_SHOWN])}"
+    return f"give {'it' if len(words) == 1 else 'them'} with {codes_given(words[:STRAY_WORDS_SHOWN])}"
 
 
 def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:

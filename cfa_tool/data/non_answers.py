@@ -35,7 +35,7 @@ import pandas as pd
 
 from cfa_tool.language.spec import answer_key
 from cfa_tool.errors import DataError, clipped, printable
-from cfa_tool.numbers import count_text, more_words, names_shown, number, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, number, user_number
 from cfa_tool.input_files import DATA_FRAME, base_name
 from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
@@ -297,14 +297,13 @@ class LabelledAnswer:
     def note(self, source: str, given: tuple = ()) -> Note:
         """The note: where, how many cells, and how to read the code as no answer (``given``: the codes the run
         gives with --missing-codes already, which the advice keeps), the option apart (note_parts.Command)."""
-        shown = names_shown(len(self.columns), SHOWN)
-        listed = ", ".join(f"{printable(c)} {n}" for c, n in zip(self.columns[:shown], self.cells[:shown]))
-        more = f" and {_more(len(self.columns) - shown, 'item')}" if len(self.columns) > shown else ""
+        listed = cut_list(list(zip(self.columns, self.cells)), SHOWN, lambda cn: f"{printable(cn[0])} {cn[1]}",
+                          noun="item")
         total = sum(self.cells)
         codes = tuple(c for c in given if isinstance(c, (int, float))) + run_words() + (self.value,)
         return Note((f"{base_name(source)}: {user_number(self.value)} '{printable(self.label)}' lies between other answers of "
                      f"the item{'s' if len(self.columns) != 1 else ''} and was analysed as an answer ({count_text(total)} "
-                     f"cell{'s' if total != 1 else ''}: {listed}{more}), though its label reads like no answer",
+                     f"cell{'s' if total != 1 else ''}: {listed}), though its label reads like no answer",
                      Command(f"; to read it as no answer, give {codes_given(codes)}")))
 
 
@@ -388,9 +387,8 @@ class BeyondScale:
                      f"'{printable(self.label)}' ({cells} cell{'s' if cells != 1 else ''}: data "
                      f"row{'s' if cells != 1 else ''} {shown}), beyond its other labelled answers")
         else:
-            each = [f"{printable(c)} {len(r)}" for c, r in zip(self.columns, self.rows)]
-            few = names_shown(len(each), SHOWN)
-            listed = ", ".join(each[:few]) + (f" and {_more(len(each) - few, 'item')}" if len(each) > few else "")
+            listed = cut_list(list(zip(self.columns, self.rows)), SHOWN, lambda cr: f"{printable(cr[0])} {len(cr[1])}",
+                              noun="item")
             where = (f"{len(self.columns)} items of {name} hold the code {user_number(self.value)} labelled "
                      f"'{printable(self.label)}' ({cells} cells: {listed}), beyond their other labelled answers")
         return f"{where} ({user_number(self.scale[0])} to {user_number(self.scale[1])}), analysed as an answer: a code of no answer?"
@@ -526,18 +524,12 @@ def written_non_answers(frame: pd.DataFrame, keep_text: tuple[str, ...] = (),
 BRIEF = 3
 
 
-def _more(count: int, noun: str) -> str:
-    """'1 more item', '4 more items': the end of a list cut short (``noun`` in the singular)."""
-    return f"{count} more {noun}{'s' if count != 1 else ''}"
-
-
 def _brief(names: list[str], noun: str) -> str:
     """'a, b and c', or 'a, b, c and 4 more NOUN' past :data:`BRIEF` names (all of them when one would be left
     over: numbers.names_shown)."""
-    shown = names[:names_shown(len(names), BRIEF)]
-    if len(names) > len(shown):
-        return f"{', '.join(shown)} and {_more(len(names) - len(shown), noun)}"
-    return shown[0] if len(shown) == 1 else f"{', '.join(shown[:-1])} and {shown[-1]}"
+    if len(names) > names_shown(len(names), BRIEF):
+        return cut_list(names, BRIEF, noun=noun)
+    return names[0] if len(names) == 1 else f"{', '.join(names[:-1])} and {names[-1]}"
 
 
 def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | None = None,
@@ -563,8 +555,7 @@ def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | No
         return _brief([printable(n) for n in names], "item")
 
     values = [f"{value} in {held_in(names)}" for value, names in columns.items()]
-    few = names_shown(len(values), BRIEF)
-    shown = "; ".join(values[:few]) + (f"; and {_more(len(values) - few, 'value')}" if len(values) > few else "")
+    shown = cut_list(values, BRIEF, sep="; ", lead="; and ", noun="value")
     if source == DATA_FRAME:
         return f"text cells of the data frame that say no answer were treated as missing ({shown})"
     return f"values the data file marks as no answer were treated as missing ({shown})"
@@ -580,7 +571,7 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | Non
     frame = source == DATA_FRAME
     name = "the data frame" if frame else base_name(source)
     if kept is not None:
-        name = f"the {count_text(kept)} row{'s' if kept != 1 else ''} of {name} that the row filters kept"
+        name = f"the {counted(kept, 'row')} of {name} that the row filters kept"
     by_value: dict[tuple, list[NonAnswer]] = {}
     for f in mine:
         by_value.setdefault((f.kind, f.value, f.label if f.kind is NonAnswerKind.LABELLED else None), []).append(f)
@@ -588,10 +579,8 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | Non
     for group in by_value.values():
         group = sorted(group, key=lambda f: -len(f.rows))  # the items most affected first (those past SHOWN: fewest)
         cells = sum(len(f.rows) for f in group)
-        few = names_shown(len(group), SHOWN)
-        listed = ", ".join(f"{printable(f.column)} {len(f.rows)}" for f in group[:few])
-        more = f" and {_more(len(group) - few, 'item')}" if len(group) > few else ""
-        parts.append(f"{group[0].shown()} ({count_text(cells)} cell{'s' if cells != 1 else ''}: {listed}{more})")
+        listed = cut_list(group, SHOWN, lambda f: f"{printable(f.column)} {len(f.rows)}", noun="item")
+        parts.append(f"{group[0].shown()} ({counted(cells, 'cell')}: {listed})")
     total = sum(len(f.rows) for f in mine)
     kinds = {f.kind for f in mine}
     how = " and ".join(w for k, w in ((NonAnswerKind.LABELLED, "labels as no answer"),

@@ -9,7 +9,6 @@ and whose variable and value labels are kept for reports.
 
 from __future__ import annotations
 
-
 import csv
 import io
 import re

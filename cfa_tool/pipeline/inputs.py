@@ -2533,6 +2533,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                                     reference_group)
     thresholds = 0  # of an ordinal fit in one group, estimated first: the design-based covariance carries them too
     ordinal_small = ((), ())  # the rule of rows per parameter as the ordinal fit judges it (its rows, its model)
+    first_step_table = None  # a one-group ordinal fit's model, its thresholds estimated first and outside it
     if ordinal_items and not refusals:  # the same data checks as the fit (correlations, duplicates, the design's)
         if group is not None:
             ordinal_parts, _ = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items,
@@ -2545,7 +2546,13 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                 frame, spec.observed_names, source, frozenset(x for x in spec.observed_names if x not in ordinal_items),
                 pairwise=True, design=design)
             thresholds = sum(len(t) for t in first_step.thresholds)
-            ordinal_small = _ordinal_sample_size(spec, first_step.n_obs)
+            from cfa_tool.pipeline.ordinal import ordinal_spec
+
+            # judged as the fit's result judges it (pipeline.results.fit_result): the parameters of the model it
+            # estimates, pipeline.ordinal.ordinal_spec
+            first_step_table = build_parameter_table(ordinal_spec(spec)[0])
+            ordinal_small = one_sample_size_problems(first_step.n_obs, first_step_table.n_free,
+                                                     first_step_table.free_labels)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
     sparse, too_small = (), ()
     try:  # the saturated (EM) moments once; where they cannot be estimated, whether the gaps are why
@@ -2579,10 +2586,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     notes += small_notes
     sample_design = design_summary(frame, design, [m for _, m in groups], [g for g, _ in groups]) if design is not None else None
     carried = table.n_free  # the parameters a design-based covariance carries, counted as the fit counts them
-    if thresholds and sample_design is not None:  # an ordinal fit's latent responses: residual variances not free
-        from cfa_tool.pipeline.ordinal import ordinal_spec
-
-        carried = build_parameter_table(ordinal_spec(spec)[0]).n_free
+    if first_step_table is not None and sample_design is not None:  # an ordinal fit's latent responses: residual
+        carried = first_step_table.n_free  # variances not free
     answered = _labelled(frame, group)[list(spec.observed_names)].notna()
     every_item = answered.all(axis=1).to_numpy()
     # complete rows that are complete only by values that look like no answers (the cautions' rows)
@@ -2634,18 +2639,6 @@ def _ordinal_group_sizes(spec: Spec, groups: list) -> tuple[tuple, tuple[str, ..
     moments = [m for _, m in groups]
     table = build_parameter_table(spec, tuple(label for label, _ in groups), ordinal=threshold_counts(moments[0]))
     return group_size_problems(table, [m.n_obs for m in moments])
-
-
-def _ordinal_sample_size(spec: Spec, rows: float) -> tuple[tuple, tuple[str, ...]]:
-    """The rule of rows per parameter of a one-group ordinal fit of ``rows`` rows, judged as its result judges it
-    (pipeline.results.fit_result): the parameters of the model it estimates (pipeline.ordinal.ordinal_spec, the
-    thresholds first-step statistics outside them)."""
-    from cfa_tool.assessment.admissibility import one_sample_size_problems
-    from cfa_tool.model.parameters import build_parameter_table
-    from cfa_tool.pipeline.ordinal import ordinal_spec
-
-    table = build_parameter_table(ordinal_spec(spec)[0])
-    return one_sample_size_problems(rows, table.n_free, table.free_labels)
 
 
 def _group_coverage(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,

@@ -402,7 +402,7 @@ def comparison_report(comparison) -> Report:
     bad = any(r.converged and not r.admissible for r in comparison.results)
     value_columns = ["Model", *value_labels]
     dashes = not_computed_note(named)
-    thresholds = next((T.thresholds_counted(r) for r in comparison.results if T.thresholds_counted(r)), "")
+    thresholds = next(filter(None, map(T.thresholds_counted, comparison.results)), "")
     fit_note = " ".join(x for x in (dashes, f"Free parameters: {thresholds}." if thresholds else "") if x) or None
     tables = [_table("model_fit", "Fit of each model", [("", "l")] + [(name, "r") for name in comparison.names], rows,
                      fit_note, flagged=(0,) if bad else (),
