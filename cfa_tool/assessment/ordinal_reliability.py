@@ -119,7 +119,7 @@ def with_observed_sum_omega(factors: Sequence[FactorReliability], mats: ModelMat
     responses' implied means (0 when None, as in one group)."""
     sigma = mats.implied_covariance()
     phi = mats.latent_covariance()
-    C = mats.L @ phi  # the latent responses' covariances with the factors
+    C = mats.item_factor_covariance()  # the latent responses' covariances with the factors
     mean = np.zeros(len(observed)) if mean is None else np.asarray(mean, float)
     out = []
     for r in factors:

@@ -330,7 +330,7 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     # AVE), NaN comparisons for them (and a negative AVE: no Fornell-Larcker comparison holds), a factor of one item
     with np.errstate(divide="ignore", invalid="ignore"):
         totals = np.einsum("ij,ij->j", K, sigma @ K)
-        omega = keyed_omega(K, L @ phi, phi.diagonal(), totals)
+        omega = keyed_omega(K, mats.item_factor_covariance(), phi.diagonal(), totals)
         omega_total = 1.0 - np.einsum("ij,ij->j", K, theta @ K) / totals
         sd_lat = np.sqrt(np.maximum(phi.diagonal(), 1e-300))
         sd_obs = np.sqrt(np.maximum(sigma.diagonal(), 1e-300))

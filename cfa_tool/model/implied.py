@@ -62,6 +62,17 @@ class ModelMatrices:
         out.setflags(write=False)
         return out
 
+    def item_factor_covariance(self) -> np.ndarray:
+        """Cov(x, eta) = L A P A' (p, m): the items' covariances with every factor, through higher-order paths too (what
+        a keyed sum's omega and the ordinal sum's share due to a factor read; read-only, computed once)."""
+        return self._item_factor_covariance
+
+    @cached_property
+    def _item_factor_covariance(self) -> np.ndarray:
+        out = self.L @ self.latent_covariance()
+        out.setflags(write=False)
+        return out
+
     def latent_means(self) -> np.ndarray:
         return self.A @ self.M
 
