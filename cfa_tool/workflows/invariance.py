@@ -164,7 +164,7 @@ class FreedParameter:
         threshold for its item as a whole ('noninvariant threshold(x3)'), 'in group south: noninvariant ...' for one
         set apart in its group alone (new-user trial s22: the search's result could not be carried into fit or
         scores without guessing how to write it)."""
-        ref = reference_text(ref_kind(self.kind), self.variables[:1] if self.kind == "threshold" else self.variables)
+        ref = reference_text(ref_kind(self.kind), _ref_names(self))  # as the search freed it (search_exemption)
         return f"in group {written_name(str(self.group))}: noninvariant {ref}" if self.alone else f"noninvariant {ref}"
 
     def to_dict(self) -> dict:
@@ -1097,7 +1097,7 @@ def _buildable_first(culprits: tuple[ModificationIndex, ...], spec: Spec, classe
     return ()
 
 
-def _ref_names(candidate: ModificationIndex) -> tuple[str, ...]:
+def _ref_names(candidate: ModificationIndex | FreedParameter) -> tuple[str, ...]:
     # a threshold is released for its item as a whole
     return candidate.variables[:1] if candidate.kind == "threshold" else candidate.variables
 
