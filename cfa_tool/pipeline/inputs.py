@@ -20,7 +20,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
     from cfa_tool.data.halves import RandomHalf
 
 from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, rounded_number, user_number
-from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
+from cfa_tool.data.answer_words import NUMBERS_ONLY, code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
 from cfa_tool.data.kept_rows import (ROW_NAMES_COLUMN, RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
@@ -322,7 +322,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     notes += check_columns(spec, columns, loaded.source, loaded.column_hint(), chosen)
     notes += nominal_items_note(frame, spec.observed_names, loaded.source)  # an SPSS file's measure levels
     frame, coding_notes = code_answer_words(spec, frame, loaded.source,  # 'answers' statements: words as codes
-                                            missing_codes=missing_codes_option(missing_codes))
+                                            missing_codes=missing_codes_option(missing_codes),
+                                            value_labels=loaded.value_labels)
     notes += coding_notes
     check_declared_ranges(spec, frame, loaded.source, loaded.value_labels)
     values = item_values(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it
@@ -644,7 +645,8 @@ def reference_note(results, frame: pd.DataFrame, group: str | None, reference_gr
 
 
 def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
-    """``result`` (a fit of rows) with what was read as no answer kept in its data: the ``missing_codes`` given
+    """``result`` (a fit of rows) with what was read as no answer kept in its data (and which items an 'answers'
+    statement covers held numbers alone, data.answer_words.NUMBERS_ONLY): the ``missing_codes`` given
     (scores of other data with the fit read them so too) and the values of its items that the file itself marks as
     no answer (``loaded.non_answers``), which the methods paragraph names; and the values of its items that look like
     no answers but were analysed as answers (``loaded.odd_values``), and the row filters that chose its rows
@@ -659,6 +661,9 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     naming = row_naming(loaded.frame)
     if naming is not RowNaming.FILE_ROW:
         read["row_naming"] = naming
+    numbers_only = tuple(x for x in loaded.frame.attrs.get(NUMBERS_ONLY, ()) if x in result.observed)
+    if numbers_only:  # items an 'answers' statement covers whose answers held no word
+        read["numbers_only"] = numbers_only
     codes, words = missing_values_option(missing_codes)
     # the words of no answer too, given in Python or on the command line (there, the run's words): scoring other data
     # with the fit reads them so too

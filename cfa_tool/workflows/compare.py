@@ -178,7 +178,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         named = check_columns(spec, list(frame.columns), source, loaded.sheet_hint(), chosen_columns(group, id_column, design=design))
         notes = list(notes) + [n for n in named if n not in notes]
         frame, coding_notes = code_answer_words(spec, frame, source, tuple(x for x in spec.observed_names if x not in coded),
-                                                missing_codes=missing_codes_option(missing_codes))  # as fit reads them
+                                                missing_codes=missing_codes_option(missing_codes),  # as fit reads them
+                                                value_labels=loaded.value_labels)
         coded |= set(spec.observed_names)
         notes = list(notes) + coding_notes
         check_declared_ranges(spec, frame, source, loaded.value_labels)  # every model's 'reversed ... on' scale
