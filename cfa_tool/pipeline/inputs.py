@@ -1234,8 +1234,11 @@ def few_answers_problems(names: tuple[str, ...], coverage: dict, n_obs: int | No
         return together + constant
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
-    n = n_obs
-    listed = cut_list(list(few.items()), 5, lambda f: f"'{printable(f[0])}' ({round(f[1] * n)} of {n} rows)")
+    n, rows = n_obs, "rows"
+    if listwise and loaded is not None:  # the shares are of the rows read, of which listwise deletion kept n_obs
+        # (hostile trial s23: '2 of 28 rows' for an item that each of the 28 rows kept answers, 28 of 480 read)
+        n, rows = int(loaded.frame[[x for x in names if x in loaded.frame.columns]].notna().any(axis=1).sum()), "rows read"
+    listed = cut_list(list(few.items()), 5, lambda f: f"'{printable(f[0])}' ({round(f[1] * n):,} of {n:,} {rows})")
     one = len(few) == 1
     return (Problem(ProblemKind.FEW_ANSWERS, (), min(few.values()),
                     f"Few rows answer {'the item' if one else 'the items'} {listed}: {'its' if one else 'their'} "
