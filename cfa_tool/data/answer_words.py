@@ -201,6 +201,11 @@ def _first_row(column: pd.Series, value: object, rows: np.ndarray) -> str:
     return row_words(row, text_lines(column), row_naming(column))
 
 
+#: a number among answer words this many times the statement's largest code (or more) is taken for a row of totals
+#: in the advice (a rule of this project: an answer scale's codes are single digits, a total of many answers is not)
+TOTALS_LIKE = 10
+
+
 def _cell_error(source: str, item: str, column: pd.Series, value: object, wrong: str, coding: AnswerCoding,
                 rows: np.ndarray) -> DataError:
     where = f"{source}: column '{printable(item)}', {_first_row(column, value, rows)}"
@@ -212,8 +217,12 @@ def _cell_error(source: str, item: str, column: pd.Series, value: object, wrong:
                          f"add it to the statement with its code, or correct the cell (leave it empty for no answer)")
     if wrong == "number":
         number = float(strict_number(value.strip()) if isinstance(value, str) else value)
+        top = max((abs(a.code) for a in coding.answers), default=0.0)
+        # a fraction, or a number ten times the statement's largest code or more: a row of means or totals, which
+        # listing it in the statement would make a respondent (new-user trial s23, 05: a workbook's TOTAL row)
+        summary = number != round(number) or (top > 0 and abs(number) >= TOTALS_LIKE * top)
         remedy = (f"a row of means or totals below the answers? remove it, or leave it out with {Option.KEEP}" if
-                  number != round(number) else f"check the file, or mark a code for no answer with {Option.MISSING_CODES}"
+                  summary else f"check the file, or mark a code for no answer with {Option.MISSING_CODES}"
                   + ("" if coding.carried_from else ", or list the number in the statement with its code"))
         return DataError(f"{where}: holds the number {_shown(value)} among answers recorded as words, and {line} does "
                          f"not list it (a column of words and numbers is often a bad export); {remedy}")

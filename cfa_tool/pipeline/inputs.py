@@ -967,7 +967,7 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
         written = filter_text(found.numbering, "<", first if number else label_text(first))
         example = f" (here {Option.KEEP.given(written)})" if written else ""  # the one writer (data.filter_text)
     return (Problem(ProblemKind.COPIED_ROWS, (), float(n),
-                    f"{n} of the {len(frame)} rows analysed {'is' if n == 1 else 'are'} identical in every column"
+                    f"{count_text(n)} of the {count_text(len(frame))} rows analysed {'is' if n == 1 else 'are'} identical in every column"
                     f"{numbering} to an earlier row: " + pairs + f"{more}. If they are copies (a file appended to itself, "
                     f"rows pasted twice), each is counted as another respondent, so N is too large, the standard "
                     f"errors too small and the chi-square too large." + (
@@ -1013,8 +1013,9 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None) -
     rows = sum(len(r) for _, r in found)
     what, gives = ("ids", "gives") if by_column else ("names", "give")
     return (Problem(ProblemKind.REPEATED_IDS, (), float(len(found)),
-                    Note((f"{holder} {gives} {rows} rows one {what[:-1]}: " if len(found) == 1 else
-                          f"{holder} {gives} {rows} rows {len(found)} {what} that each name more than one row: ",))
+                    Note((f"{holder} {gives} one {what[:-1]} to {count_text(rows)} rows: " if len(found) == 1 else
+                          f"{holder} {gives} {count_text(len(found))} {what} each to more than one row "
+                          f"({count_text(rows)} rows in all): ",))
                     + shown + f"{more}. These {what} do not stand for one row each, so a file "
                     f"merged by them (a scores file, say) cannot be matched to the rows one to one: a merge that "
                     f"expects one row per {what[:-1]} refuses, and one that allows several gives a row another "

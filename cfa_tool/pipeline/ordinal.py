@@ -203,11 +203,11 @@ def _rows_notes(moments, order: list[int], where: str = "") -> list[str]:
         complete = int((moments.codes >= 0).all(axis=1).sum())
         out.append(f"missing answers{where}: every answer is used (pairwise present rows): each item's thresholds come "
                    f"from the rows that answered it, each correlation from the rows that answered both items, from "
-                   f"{low[2]} rows ({low[0]}, {low[1]}) to {high[2]} ({high[0]}, {high[1]}) of {len(moments.codes)}; "
+                   f"{count_text(low[2])} rows ({low[0]}, {low[1]}) to {count_text(high[2])} ({high[0]}, {high[1]}) of {count_text(len(moments.codes))}; "
                    f"pairwise present rows assume that {MISSING_COMPLETELY_AT_RANDOM} (whether an answer is missing "
                    f"does not depend on the person's answers, given or not; Little & Rubin 2002; full-information estimation, "
                    f"valid when answers are missing at random, is not available for ordinal items); the standard errors and tests allow for the differing numbers "
-                   f"of rows; a fit of only the {complete} complete rows would leave the others out and assume the same")
+                   f"of rows; a fit of only the {count_text(complete)} complete rows would leave the others out and assume the same")
     return out
 
 

@@ -23,7 +23,7 @@ from cfa_tool.data.kept_rows import FINISHED_COLUMNS, ROW_NAMING, row_naming
 from cfa_tool.data.moments import stray_word_message
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.assessment.admissibility import sample_size_problems
-from cfa_tool.numbers import cut_list, more_words, names_shown, user_number
+from cfa_tool.numbers import count_text, cut_list, more_words, names_shown, user_number
 from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.note_parts import Command, Note, Text
@@ -1145,8 +1145,8 @@ def _correlations(frame, names, source, ordinal_items, notes):
         if moments.gaps:
             counts = moments.pair_counts[np.tril_indices(len(names), -1)]
             notes.append(f"Rows with gaps are kept: each polychoric correlation comes from the rows that answered both "
-                         f"items ({int(counts.min())} to {int(counts.max())} rows per pair), as fit computes them; N is "
-                         f"the {moments.n_obs} rows with at least one answer.")
+                         f"items ({count_text(int(counts.min()))} to {count_text(int(counts.max()))} rows per pair), as fit computes "
+                         f"them; N is the {count_text(moments.n_obs)} rows with at least one answer.")
         if len(frame) > moments.n_obs:
             notes.append(_empty_rows_note(frame, frame[list(names)].isna().to_numpy().all(axis=1)))
         return from_ordinal_moments(moments)
@@ -1157,8 +1157,8 @@ def _correlations(frame, names, source, ordinal_items, notes):
     missing = "full-information" if gaps else "listwise"
     moments = sample_moments(frame, names, source, missing=missing)
     if gaps:
-        notes.append(f"{gaps} {'row misses' if gaps == 1 else 'rows miss'} some answers; the correlations are the "
-                     f"maximum-likelihood (EM) estimates from every answer, and N is the {moments.n_obs} rows with at "
+        notes.append(f"{count_text(gaps)} {'row misses' if gaps == 1 else 'rows miss'} some answers; the correlations are "
+                     f"the maximum-likelihood (EM) estimates from every answer, and N is the {count_text(moments.n_obs)} rows with at "
                      f"least one answer.")
     if empty.any():
         notes.append(_empty_rows_note(frame, empty))
@@ -1173,7 +1173,7 @@ def _empty_rows_note(frame: pd.DataFrame, empty: np.ndarray) -> str:
 
     n = int(empty.sum())
     listed = rows_listed(row_numbers(frame)[empty], naming=row_naming(frame), lines=text_lines(frame))
-    return (f"{n} of {len(frame)} {'row' if len(frame) == 1 else 'rows'} answered none of the items and "
+    return (f"{count_text(n)} of {count_text(len(frame))} {'row' if len(frame) == 1 else 'rows'} answered none of the items and "
             f"{'was' if n == 1 else 'were'} left out ({listed}).")
 
 
@@ -1198,7 +1198,7 @@ def _confirm(exploration: Exploration, halves, seed: int, source: str, statement
     except CfaError as exc:
         return SplitHalves(seed, first, second, None, f"the draft model could not be fitted on the confirmation half: "
                                                       f"{exc}")
-    fitted = replace_source(fitted, f"{source} (confirmation half, {len(second)} rows)")
+    fitted = replace_source(fitted, f"{source} (confirmation half, {count_text(len(second))} rows)")
     if statements:
         written = parse_model(exploration.draft.text + "".join(line + "\n" for line in statements), "draft model")
         fitted = replace(fitted, data=replace(fitted.data, answer_coding=coding_record(written)))

@@ -551,7 +551,7 @@ def _not_the_same_rows(spec: Spec, first: pd.DataFrame, second: pd.DataFrame, fi
         inside = first_source if small is a else second_source
         raise OptionError((f"the calibration data ({first_source}) and the validation data ({second_source}) hold the "
                            f"same rows" if shared == len(a) == len(b) else
-                           f"{'every row' if shared == len(small) else f'{shared} of the {len(small)} rows'} of {inside} "
+                           f"{'every row' if shared == len(small) else f'{count_text(shared)} of the {count_text(len(small))} rows'} of {inside} "
                            f"(on the model's variables) {'is' if shared == len(small) else 'are'} also in the other file")
                           + f"; replication checks the model in new data ({_one_file_instead()})")
 
