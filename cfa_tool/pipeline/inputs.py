@@ -828,7 +828,7 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
 
     names = names if names is not None else (spec.observed_names if spec is not None else ())
     found: tuple = row_filter_problems(loaded, spec, where=where) + copied_row_problems(loaded, group, design, names, ids or {})
-    found += repeated_id_problems(loaded, ids or {}, id_column)  # ids of several rows: no merge by id one to one
+    found += repeated_id_problems(loaded, ids or {}, id_column, group)  # ids of several rows: no merge by id one to one
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {}, id_column=id_column)
@@ -983,7 +983,7 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
 REPEATED_IDS_SHOWN = 5  # ids of several rows that the caution names before 'and N more'
 
 
-def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None) -> tuple:
+def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, group: str | None = None) -> tuple:
     """A caution naming the ids that several rows hold (``ids``: data-row number -> id; ``id_column``: the column
     they are read from, data.kept_rows.ROW_NAMES_COLUMN for the file's row names: :func:`id_filter_column`), each with
     its rows, the first :data:`REPEATED_IDS_SHOWN`; () when every id names one row.  One rule for every command that
@@ -991,7 +991,10 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None) -
     and scored alike whatever their ids, and data in long form hold a person's id once per wave by design (merged by
     the id and the wave); a scores file is written all the same, its lines in the order of the data's rows.  Rows that
     copy an earlier row in every column repeat its id too: named here as well, for a merge by id fails on them alike
-    (new-user trial s20: the caution on copies showed the ids without saying that they repeat)."""
+    (new-user trial s20: the caution on copies showed the ids without saying that they repeat).  With a ``group``
+    column, ids whose rows lie in more than one group are said to be the same people in several groups, which the
+    multi-group fit and its tests take for independent samples (new-user trial s23: two waves of one staff stacked
+    and compared as groups), with the model of both occasions side by side as the way to test invariance over time."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.data.kept_rows import rows_listed
     from cfa_tool.data.row_ids import ids_of_several_rows
@@ -1012,6 +1015,17 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None) -
     more = more_words(len(found) - few, "; and ", "id")
     rows = sum(len(r) for _, r in found)
     what, gives = ("ids", "gives") if by_column else ("names", "give")
+    across = _ids_across_groups(found, frame, group)
+    if across:
+        spread = (f" {'It' if len(found) == 1 else f'{count_text(across)} of these {what}'} name{'s' if across == 1 else ''} "
+                  f"rows in more than one group of '{printable(group)}': the same people in several groups? The "
+                  f"multi-group fit and its tests take the groups for independent samples, which the same people "
+                  f"answering twice are not (the standard errors and difference tests are then wrong).")
+        advice = Note(("for the same people at several times, put each time's answers side by side in one row per "
+                       "person and fit one model of both times (each item at each time its own indicator, its "
+                       "residuals correlated across the times), holding its loadings and intercepts equal across the "
+                       "times to test invariance over time; if the groups hold different people, correct the ids in a "
+                       "copy of the data file",))
     return (Problem(ProblemKind.REPEATED_IDS, (), float(len(found)),
                     Note((f"{holder} {gives} one {what[:-1]} to {count_text(rows)} rows: " if len(found) == 1 else
                           f"{holder} {gives} {count_text(len(found))} {what} each to more than one row "
@@ -1019,10 +1033,20 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None) -
                     + shown + f"{more}. These {what} do not stand for one row each, so a file "
                     f"merged by them (a scores file, say) cannot be matched to the rows one to one: a merge that "
                     f"expects one row per {what[:-1]} refuses, and one that allows several gives a row another "
-                    f"row's values.",
+                    f"row's values." + (spread if across else ""),
+                    advice if across else
                     Note(("correct the ids in a copy of the data file (a typing error?), or name the rows by a "
                           "column whose values differ in every row", Command(f" ({Option.ID_COLUMN.given('COLUMN')})"),
                           "; if the rows are one person's at several times, merge by the id and the time together."))),)
+
+
+def _ids_across_groups(found: tuple, frame: pd.DataFrame, group: str | None) -> int:
+    """How many of the repeated ids ``found`` (id, its rows' numbers) have rows in more than one group of ``group``
+    (0 without a group column)."""
+    if group is None or group not in frame.columns:
+        return 0
+    label = dict(zip(row_numbers(frame).tolist(), frame[group].tolist()))
+    return sum(len({label[r] for r in rows if r in label and label[r] == label[r]}) > 1 for _, rows in found)
 
 
 def _without_copies(found: tuple, frame: pd.DataFrame) -> tuple:

@@ -630,6 +630,7 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                                 for p in data_problems(s, spec, ids=ids_of, where=f" on the {which} data ({s.source})",
                                                        listwise=r.method.missing is MissingData.LISTWISE,
                                                        id_column=by)))
+    found += _same_people(named, id_column, read)
     # what each file read as no answer, as fit keeps it (with_missing_reading, the filters too): the paragraph names it
     cal, loose = (with_missing_reading(result.calibration_result, read[0], missing_codes),
                   with_missing_reading(result.loose, read[1], missing_codes))
@@ -642,6 +643,35 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
 #: the keywords of :func:`replicate` besides the fit options it passes on (an unknown keyword's near names,
 #: make_options), read from its signature once
 REPLICATE_KEYWORDS = own_keywords(replicate)
+
+
+def _same_people(named, id_column: str | None, read) -> tuple:
+    """A caution when the validation file holds ids of the calibration file (``named``: each file's data-row number
+    -> id, with ``id_column`` given; a file's row names, which number rows alike in any two files, are not read so):
+    the same people in both samples (new-user trial s23: a second wave of one staff taken as new data, nothing said).
+    A replication on them tests the solution's stability over time, not that it holds in other people, and the test
+    of one solution for both samples takes them for independent samples."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.errors import clipped
+    from cfa_tool.numbers import count_text
+
+    if not isinstance(id_column, str) or any(by is None for _, by in named):
+        return ()
+    calibration = set(named[0][0].values())
+    validation = list(dict.fromkeys(named[1][0].values()))
+    shared = [v for v in validation if v in calibration]
+    if not shared:
+        return ()
+    return (Problem(ProblemKind.REPEATED_IDS, (), float(len(shared)),
+                    f"{count_text(len(shared))} of the {count_text(len(validation))} ids of the validation data "
+                    f"({read[1].source}) are ids of the calibration data ({read[0].source}) too, such as "
+                    f"'{clipped(str(shared[0]), 40)}': the same people in both samples? A replication on the "
+                    f"calibration's people tests whether the solution is stable over time, not whether it holds in "
+                    f"other people, and the test of one solution for both samples takes them for independent "
+                    f"samples, which the same people are not.",
+                    "replicate on a sample of other people; for the same people at two times, test invariance over "
+                    "time with one model of both times side by side, their loadings and intercepts held equal across "
+                    "the times."),)
 
 
 def _left_out(dropped: int, read: int, source: str, missing, ordinal_items) -> tuple:
