@@ -418,7 +418,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
         sheets_out.extend([ws.title] + [n for n in names if n != ws.title])
     where = f"{path} (sheet '{printable(ws.title)}')"
     if len(names) > 1:
-        notes.append(_sheet_note(path, ws.title, names, hidden, sheet is not None))
+        notes.append(_sheet_note(path, ws.title, names, hidden, sheet is not None, sheet_option(names_option)))
         if sheet is None and items and hidden_out is not None:
             alike = _sheets_with_items(book, ws.title, items)
             if alike:
@@ -917,19 +917,20 @@ def _filter_kept(ws, header: list, skipped: int) -> str | None:
     return f"{name} == {shown}" if name.isidentifier() else None
 
 
-def _sheet_note(path: Path, read: str, names: list[str], hidden: list[str], named: bool) -> Note:
+def _sheet_note(path: Path, read: str, names: list[str], hidden: list[str], named: bool,
+                option: Option = Option.SHEET) -> Note:
     """Which sheet of a workbook of several was analysed, and which sheets the workbook hides (the option that names
     a sheet apart, note_parts.Command: a manuscript's reader runs nothing)."""
     others = [n for n in names if n != read]
     listed = ", ".join(f"'{printable(n)}'" + (" (hidden)" if n in hidden else "") for n in others)
     if named:
-        how: tuple = (Command(f"as named with {Option.SHEET}", "as named"),
+        how: tuple = (Command(f"as named with {option}", "as named"),
                       "; the workbook hides this sheet" if read in hidden else "")
     elif hidden and names.index(read) > 0:
         how = ("the first sheet the workbook shows (hidden sheets are not read unless named",
-               Command(f" with {Option.SHEET}"), ")")
+               Command(f" with {option}"), ")")
     else:
-        how = ("the first sheet", Command(f"; name another with {Option.SHEET}"))
+        how = ("the first sheet", Command(f"; name another with {option}"))
     return Note((f"{path}: the sheet '{printable(read)}' was analysed, ", *how, f"; the workbook also has {listed}"))
 
 
@@ -1981,6 +1982,12 @@ def _words_lead(column: pd.Series, present: np.ndarray, words: frozenset[str] | 
     while lead < MAX_HEADER_ROWS and present[lead] and isinstance(cells[lead], str) and not answer(cells[lead]):
         lead += 1
     return lead
+
+
+def sheet_option(names_option: Option) -> Option:
+    """The option that names the sheet of the workbook whose row of column names ``names_option`` names: --sheet
+    beside --names-row, --validation-sheet beside --validation-names-row."""
+    return Option.VALIDATION_SHEET if names_option is Option.VALIDATION_NAMES_ROW else Option.SHEET
 
 
 def first_data_option(names_option: Option) -> Option:

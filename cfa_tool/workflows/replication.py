@@ -518,6 +518,13 @@ def _same_categories(calibration, validation, frame: pd.DataFrame) -> None:
                         f"leave those rows out")
 
 
+def _workbook(source) -> bool:
+    """Whether ``source`` is a path of an Excel workbook."""
+    from cfa_tool.data.readers import EXCEL_SUFFIXES
+
+    return isinstance(source, (str, Path)) and Path(source).suffix.lower() in EXCEL_SUFFIXES
+
+
 def _same_file(first, second) -> bool:
     import os
 
@@ -572,11 +579,12 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
               validation_names_row: int | None = None, first_data_row: int | None = None,
               validation_first_data_row: int | None = None, keep: tuple[str, ...] | list[str] = (),
               rename=None, validation_rename=None, id_column: str | None = None,
-              **options) -> Replication:
+              validation_sheet: str | None = None, **options) -> Replication:
     """Calibrate on one data set, validate on another.  ``ordinal``, ``ordinal_estimator``: ordinal items and
     their least-squares estimator, as for ``fit`` (an 'ordinal' statement in the model declares them too);
     ``missing_codes`` apply to both files, as for ``fit``; ``sheet`` to those of the two that are Excel workbooks
-    (a calibration workbook with a CSV validation file), an error when neither is one.  The row of column names is
+    (a calibration workbook with a CSV validation file), an error when neither is one, and ``validation_sheet`` to the
+    validation workbook alone (two sheets of one workbook may be the two samples).  The row of column names is
     each file's own: ``names_row`` that of the calibration file, ``validation_names_row`` that of the validation
     file (a workbook with question texts above the item codes beside a plain CSV file), and so is the row where its
     data start (``first_data_row``, ``validation_first_data_row``).  ``keep``: row filters ('Finished = True'),
@@ -588,10 +596,14 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                                                            options if missing is None else {**options, "missing": missing},
                                                            REPLICATE_KEYWORDS)
     one_group_only(spec, "replication fits one group's model in each sample")
-    if _same_file(calibration, validation):
-        raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
-                          f"new data ({_one_file_instead()})")
     sheets = sheet_of_each((calibration, validation), sheet)
+    if validation_sheet is not None:  # the validation workbook's own sheet (new-user trial s23: one sheet per wave)
+        sheets = (sheets[0], sheet_of_each((validation,), validation_sheet)[0])
+    if _same_file(calibration, validation) and (validation_sheet is None or sheets[0] == sheets[1]):
+        raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
+                          f"new data ({_one_file_instead()}"
+                          + (f"; or give the sheets of one workbook: {Option.SHEET} and {Option.VALIDATION_SHEET})"
+                             if sheets[0] is not None or _workbook(calibration) else ")"))
     # each file read as fit reads its data (row filters, declared scales, answer words, codes as labels, values
     # that look like no answers): a hostile trial found replicate analysing answers beyond a declared scale that fit
     # refuses; the row filters apply to each file, their notes naming it
