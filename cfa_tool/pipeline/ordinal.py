@@ -18,7 +18,7 @@ from dataclasses import replace as dc_replace
 import numpy as np
 
 from cfa_tool.assessment.admissibility import group_size_problems, solution_problems
-from cfa_tool.assessment.convergence import nonconvergence_message
+from cfa_tool.assessment.convergence import nonconvergence_message, two_item_factors
 from cfa_tool.assessment.fit_indices import fit_indices, srmr
 from cfa_tool.assessment.identification import check_bounded_responses, check_information_rank
 from cfa_tool.assessment.ordinal_reliability import with_observed_sum_omega
@@ -299,7 +299,9 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
     opt = found.result
     if opt.outcome is Outcome.BAD_START:  # a fixed covariance beyond the variances at the start: named at its line
         fixed_values_at_start(fixed_spec, table, model.entry_values(start))
-    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper, table.observed)
+    message = "converged" if opt.converged else nonconvergence_message(
+        found, table.free_labels, options.max_iterations, table.lower, table.upper, table.observed,
+        two_item_factors(spec, table.free_labels))
     theta = opt.theta
     n = moments.n_obs
     final = unit_variance_matrices(model.matrices(theta))
@@ -535,7 +537,9 @@ def estimate_ordinal_groups(spec: Spec, groups: list, options, method: Weighting
                                lambda: variance_scaled_problem(again.unit_variances))
                 if refit.result.converged:
                     objective, found, opt = again, refit, refit.result
-    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper, table.observed)
+    message = "converged" if opt.converged else nonconvergence_message(
+        found, table.free_labels, options.max_iterations, table.lower, table.upper, table.observed,
+        two_item_factors(spec, table.free_labels))
     return OrdinalEstimation(table, model, objective, opt.theta, opt.value, opt.converged, opt.iterations, message)
 
 
