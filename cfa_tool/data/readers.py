@@ -677,9 +677,13 @@ class OtherSheets:
                 f"{'holds' if len(self.sheets) == 1 else 'hold'} columns named as every item of the model too.")
 
     def advice(self) -> Note:
-        return Note(("If the data are split over the sheets, put their rows in one sheet (or one CSV file) in a copy "
-                     "of the workbook; to analyse another sheet, ", Command(f"name it with {Option.SHEET}",
-                                                                            "analyse it by name"), "."))
+        # sheets may be parts of one sample, or other samples, or the same people at other times, which pooled
+        # rows would take for other people (new-user trial s23: one sheet per wave of one staff survey)
+        return Note(("If the sheets hold parts of one sample, put their rows in one sheet (or one CSV file) in a copy "
+                     "of the workbook; if they hold another sample or the same people at another time (a wave), do "
+                     "not pool them: to analyse another sheet, ", Command(f"name it with {Option.SHEET}",
+                                                                        "analyse it by name"),
+                     "; the same people at two times are compared by one model of both times side by side."))
 
     def to_dict(self) -> dict:
         return {"sheet_read": self.read, "other_sheets_with_items": list(self.sheets)}
