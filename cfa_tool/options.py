@@ -162,6 +162,7 @@ class Option(enum.Enum):
     ID_COLUMN = ("--id", "id_column")
     NAMES_ROW = ("--names-row", "names_row")
     VALIDATION_NAMES_ROW = ("--validation-names-row", "validation_names_row")  # replicate's validation file
+    VALIDATION_SHEET = ("--validation-sheet", "validation_sheet")  # replicate's validation workbook's sheet
     FIRST_DATA_ROW = ("--first-data-row", "first_data_row")
     VALIDATION_FIRST_DATA_ROW = ("--validation-first-data-row", "validation_first_data_row")
     ROBUST = ("--robust", "test", "robust")

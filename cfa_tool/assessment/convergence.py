@@ -17,15 +17,36 @@ IDENTIFICATION_HINT = ("check that every factor is identified (three or more ite
                        "and a correlation with another factor)")
 
 
+def two_item_factors(spec, labels: tuple[str, ...]) -> tuple[tuple[str, tuple[str, str]], ...]:
+    """The factors of ``spec`` measured by exactly two items whose loadings are not all fixed or held equal (a free
+    loading among ``labels``, the free parameters' names): each is identified only through its covariances with the
+    other factors, and where those are near zero it is not identified in the data (empirical under-identification;
+    Kenny 1979, as recalled; Bollen 1989, ch. 7)."""
+    observed = set(spec.observed_names)
+    free = set(labels)
+    out = []
+    for each in spec.factors:
+        factor, items = str(each.name), tuple(str(x) for x in each.indicators)
+        if len(items) == 2 and all(x in observed for x in items) \
+                and sum(f"loading({factor}, {x})" in free for x in items) >= 1 \
+                and not any(f"loading({factor}, {x})" == str(ref) for group in spec.equal for ref in group
+                            for x in items):
+            out.append((str(factor), items))
+    return tuple(out)
+
+
 def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, lower: np.ndarray | None = None,
-                           upper: np.ndarray | None = None, observed: tuple[str, ...] = ()) -> Text:
+                           upper: np.ndarray | None = None, observed: tuple[str, ...] = (),
+                           two_items: tuple[tuple[str, tuple[str, str]], ...] = ()) -> Text:
     """One paragraph for a search that did not converge; ``labels`` name the free parameters and ``limit``
     is the iteration limit in force; ``lower`` and ``upper``: the free parameters' bounds (the model file's
     'bound' statements), so that a search that ended against a bound says so; ``observed``: the model's items, which
     tell an item's residual variance from a factor's variance in words.  The option that raises the limit and the
     model file's statements apart (note_parts.Command): a manuscript's reader runs nothing and edits no model file;
     the parameters too, as the model file writes them ('variance(a) [p]') for the program's user, in words for a
-    manuscript ('the variance of factor a in group p', model.description.label_words; re-check s18)."""
+    manuscript ('the variance of factor a in group p', model.description.label_words; re-check s18).  ``two_items``:
+    the factors of two items whose loadings are free (:func:`two_item_factors`), named first with the language's own
+    remedy (hostile trial s23: 'raise the limit' failed at 5,000 iterations, and the factor went unnamed)."""
     result = found.result
     used = result.iterations
     outcome = Outcome.ITERATION_LIMIT if used >= limit and result.outcome is not Outcome.BAD_START else result.outcome
@@ -74,6 +95,20 @@ def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, l
         parts.append("with every factor's variance fixed at 1 the model converged, but the search in the model's own "
                      "scaling did not confirm that minimum")
         advice.append(Note((Command("write 'scale latent by variance'", "fix every factor's variance at 1"),)))
+    if two_items and not advice:  # named first, with the language's own remedy (the limit does not help)
+        named = ", ".join(f"'{f}' ({a}, {b})" for f, (a, b) in two_items)
+        one = len(two_items) == 1
+        parts.append(f"{'the factor' if one else 'the factors'} {named} {'has' if one else 'have'} two items and "
+                     f"{'is' if one else 'are'} identified only through {'its' if one else 'their'} covariances with "
+                     f"the other factors: where those are near zero, {'it is' if one else 'they are'} not identified "
+                     f"in these data (empirical under-identification)")
+        f, (a, b) = two_items[0]
+        advice.append(Note(("hold its two loadings equal, which identifies a two-item factor" if one else
+                            "hold each one's two loadings equal, which identifies a two-item factor",
+                            Command(f" ('equal {reference_text('loading', (f, a))}, "
+                                    f"{reference_text('loading', (f, b))}')"))))
+        advice.append(IDENTIFICATION_HINT)
+        advice.append(Note(("give start values near the expected solution", Command(" ('start ...')"))))
     if not advice:
         if outcome is Outcome.ITERATION_LIMIT:
             advice.append(Note(("raise the limit", Command(f" ({Option.MAX_ITERATIONS})"))))

@@ -20,7 +20,7 @@ import numpy as np
 
 from cfa_tool.note_parts import Command, Note
 
-from cfa_tool.numbers import cut_list
+from cfa_tool.numbers import count_text, counted, cut_list
 from cfa_tool.numerics import distributions as dist
 
 if TYPE_CHECKING:
@@ -136,8 +136,8 @@ def sparse_answers_problem(values: np.ndarray, names: tuple[str, ...], failure: 
         i, j = upper[0][least], upper[1][least]
         said = (f"The rows with gaps answer too few items together for the saturated model of "
                 f"full-information ML ({failure or 'it has no estimate'}): the fewest rows answering a pair of items "
-                f"are {int(together[i, j])} ('{printable(names[i])}' and '{printable(names[j])}'), and {complete} of "
-                f"the {len(rows)} rows answer all {len(names)} items; a fit of these rows stops.")
+                f"are {int(together[i, j])} ('{printable(names[i])}' and '{printable(names[j])}'), and {count_text(complete)} of "
+                f"the {count_text(len(rows))} rows answer all {len(names)} items; a fit of these rows stops.")
         value = float(together[i, j])
     from cfa_tool.options import Option
 
@@ -145,6 +145,6 @@ def sparse_answers_problem(values: np.ndarray, names: tuple[str, ...], failure: 
     advice = Note((f"analyse fewer items ({which}), or gather rows that answer them together; leaving out the rows "
                    f"with gaps",
                    Command(f" ({Option.INCOMPLETE_ROWS.given('listwise')})"),
-                   f" would keep {complete} complete row{'s' if complete != 1 else ''}")) + (
+                   f" would keep {counted(complete, 'complete row')}")) + (
         Note(("; or leave the group out with a row filter", Command(f" ({Option.KEEP})"))) if group is not None else "")
     return Problem(ProblemKind.SPARSE_ANSWERS, (), value, said, advice, group)

@@ -242,6 +242,8 @@ def reading_words(args: argparse.Namespace) -> str:
 #: replicate's options that read the --validation file, each with the option that reads --data instead
 VALIDATION_READING = (("validation_names_row", "--validation-names-row", "names the row of column names of",
                        "the row of --data is given with --names-row"),
+                      ("validation_sheet", "--validation-sheet", "names the sheet of",
+                       "the sheet of --data is given with --sheet"),
                       ("validation_rename", "--validation-rename", "renames columns of",
                        "the columns of --data are renamed with --rename"),
                       ("validation_first_data_row", "--validation-first-data-row", "names the first row of data of",

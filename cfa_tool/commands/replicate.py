@@ -26,6 +26,10 @@ def add_parser(sub) -> None:
     add_halves_file(rep, "--data")
     O.add_data_options(rep)
     O.add_id_option(rep)
+    rep.add_argument("--validation-sheet", metavar="NAME", default=None,
+                     help="the sheet of the --validation workbook to read; --sheet gives that of the --calibration "
+                          "workbook (and of the --validation workbook when this is not given): two sheets of one "
+                          "workbook may be the two samples")
     rep.add_argument("--validation-names-row", metavar="N", type=O.row_number, default=None,
                      help="the row of the --validation file that holds its column names; --names-row gives "
                           "that of the --calibration file (or of --data), so each file is read as it is laid out")
@@ -69,7 +73,8 @@ def run(args: argparse.Namespace) -> int:
         raise OptionError("--seed sets the random split of --data into halves; --calibration and --validation are "
                           "split already: leave --seed out")
     elif args.calibration and args.validation:
-        pair = (replicate(model, args.calibration, args.validation, validation_names_row=args.validation_names_row,
+        pair = (replicate(model, args.calibration, args.validation, validation_sheet=args.validation_sheet,
+                          validation_names_row=args.validation_names_row,
                           validation_first_data_row=args.validation_first_data_row,
                           validation_rename=args.validation_rename, **ordinal),)
     else:

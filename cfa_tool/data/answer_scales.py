@@ -54,10 +54,22 @@ def stray_text(values: np.ndarray) -> bool:
     return 0 < texts <= max(3, len(values) // 100) and numbers >= 10 * texts
 
 
+def _scale_numbers(values: np.ndarray, points: int) -> bool:
+    """Whether some cells of a column of words hold whole numbers from 1 to ``points`` (answers typed as the scale's
+    numbers; a totals row's larger numbers are no answers)."""
+    for value in values:
+        number = strict_number(value.strip()) if isinstance(value, str) else value
+        if isinstance(number, (int, float, np.integer, np.floating)) and not isinstance(number, (bool, np.bool_)) \
+                and number == number and float(number).is_integer() and 1 <= number <= points:
+            return True
+    return False
+
+
 def suggested_statement(values: np.ndarray) -> str | None:
     """The 'answers' statement to write for a column whose words (case and surrounding spaces aside) all come from
     one common agreement, frequency or satisfaction scale, in the scale's order with the words as the file writes
-    them (numbers among them aside); None otherwise.  Only a suggestion: it is never applied without the statement."""
+    them, and the numbers 1 to k read as themselves when some cells hold them (numbers do not decide the scale); None
+    otherwise.  Only a suggestion: it is never applied without the statement."""
     # numbers among the words (a means row, a bad export) do not decide the scale; the statement's own check names
     # them when it is written
     written = {answer_key(w): w for w in distinct_words(values)}
@@ -71,6 +83,9 @@ def suggested_statement(values: np.ndarray) -> str | None:
         return None
     scale, keys = found[0]
     listed = ", ".join(f'"{written.get(k, w)}" = {i}' for i, (k, w) in enumerate(zip(keys, scale), start=1))
+    if _scale_numbers(values, len(scale)):  # answers typed as the scale's numbers beside its words: read them as
+        # themselves too, or the statement's first run stops on them (new-user trial s23, 11)
+        listed += ", " + ", ".join(f"{i} = {i}" for i in range(1, len(scale) + 1))
     absent = ", ".join('"' + w + '"' for k, w in zip(keys, scale) if k not in written)  # words no cell holds
     if not absent:
         return f"answers {listed}"

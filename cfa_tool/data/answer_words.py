@@ -58,6 +58,41 @@ def _code_of(value: object, words: dict[str, float], numbers: dict[float, float]
 #: statement of its own (data.polychoric: an empty category of ordinal groups)
 CODED_BY_STATEMENT = "coded_by_answers_statement"
 
+#: ``frame.attrs`` key of the items an 'answers' statement covers whose answers in the data held no word (numbers
+#: alone, e.g. a Stata or SPSS file of codes): pipeline.results.DataSummary.numbers_only
+NUMBERS_ONLY = "answers_numbers_only"
+
+
+def refuse_labels_against_coding(codings: dict, value_labels: dict, source: str) -> None:
+    """The data file's value labels (SPSS, Stata: value -> text, per column) must not give a number a word that the
+    item's 'answers' statement codes as another number: a file labelled 1 = 'Strongly agree' read with a statement
+    coding 'Strongly agree' as 7 (a scale stored the other way round) would turn every factor and score around
+    unsaid (new-user trial s23).  One DataError naming the file, the first such column, value, label and code, and
+    how many columns disagree."""
+    found: list[tuple[str, float, str, float, AnswerCoding]] = []
+    for item, coding in codings.items():
+        labels = value_labels.get(item) or {}
+        if not labels:
+            continue
+        words, numbers = coding.codes_by_word(), coding.codes_by_number()
+        for value, text in labels.items():
+            number = strict_number(str(value).strip()) if isinstance(value, str) else value
+            if not isinstance(number, (int, float, np.integer, np.floating)) or isinstance(number, (bool, np.bool_)):
+                continue
+            word_code = words.get(answer_key(str(text)))
+            number_code = numbers.get(float(number))
+            if word_code is not None and number_code is not None and word_code != number_code:
+                found.append((item, float(number), str(text).strip(), word_code, coding))
+                break
+    if not found:
+        return
+    item, number, text, code, coding = found[0]
+    more = (f" ({len(found)} columns' labels disagree so)" if len(found) > 1 else "")
+    raise DataError(f"{source}: the file's value labels of column '{printable(item)}' name {user_number(number)} "
+                    f"'{printable(clipped(text, 40))}', which {coding.origin} codes as {user_number(code)}{more}: the file "
+                    f"and the statement disagree about what the numbers mean, and every factor and score would point "
+                    f"the other way; write the statement as the file labels its values (or correct the labels)")
+
 
 def answers_statement(answers, items: tuple[str, ...] | None = None) -> str:
     """An 'answers' statement written in the model language: ``answers``, each (word or None, number or None, code)
@@ -71,18 +106,24 @@ def answers_statement(answers, items: tuple[str, ...] | None = None) -> str:
 
 def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
                       only: tuple[str, ...] | None = None,
-                      missing_codes: tuple[float, ...] = ()) -> tuple[pd.DataFrame, list[Note]]:
+                      missing_codes: tuple[float, ...] = (),
+                      value_labels: dict | None = None) -> tuple[pd.DataFrame, list[Note]]:
     """``frame`` with the items its 'answers' statements cover (of them, those in ``only`` when given) coded as
     numbers (a copy; the caller's frame is not changed), and one note per statement saying how the answers were
     coded and, if so, which words share a code.  ``missing_codes`` (--missing-codes) mean no answer in these items
     too: a cell holding one (as a number or written as one, such as '-99' among words), or a word the statement
-    codes as one, is read as missing, and a note counts them."""
+    codes as one, is read as missing, and a note counts them.  ``value_labels``: the data file's (SPSS, Stata), which
+    may not give a number a word the statement codes otherwise (:func:`refuse_labels_against_coding`).  The items whose
+    answers held no word at all are kept in ``frame.attrs[NUMBERS_ONLY]``: no note or methods text says their answers
+    were recorded as words."""
     codings = spec.answer_codings()
     if only is not None:
         codings = {x: c for x, c in codings.items() if x in only}
     if not codings:
         return frame, []
+    refuse_labels_against_coding(codings, value_labels or {}, source)
     frame = frame.copy()
+    numbers_only: list[str] = []
     no_answer = set(float(c) for c in missing_codes)
     for coding in {id(c): c for c in codings.values()}.values():
         _check_codes_of_answers(coding, no_answer)
@@ -98,6 +139,8 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
         else:
             coded_missing = np.zeros(len(column), dtype=bool)
         distinct = pd.unique(column.to_numpy(dtype=object))
+        if not any(isinstance(v, str) and answer_key(v) in words for v in distinct):
+            numbers_only.append(item)
         mapping: dict[object, float] = {}
         for value in distinct:
             code, wrong = _code_of(value, words, numbers)
@@ -122,7 +165,8 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
         frame[item] = coded
     frame.attrs[CODED_BY_STATEMENT] = {item: tuple((a.word, a.number, a.code) for a in coding.answers)
                                        for item, coding in codings.items()}
-    notes = answer_notes(spec, tuple(codings))
+    frame.attrs[NUMBERS_ONLY] = tuple(dict.fromkeys((*frame.attrs.get(NUMBERS_ONLY, ()), *numbers_only)))
+    notes = answer_notes(spec, tuple(codings), tuple(numbers_only))
     if read_as_none:
         notes.append(missing_codes_note(source, missing_codes, read_as_none,
                                         "of the items whose answer words the model codes"))
@@ -157,6 +201,11 @@ def _first_row(column: pd.Series, value: object, rows: np.ndarray) -> str:
     return row_words(row, text_lines(column), row_naming(column))
 
 
+#: a number among answer words this many times the statement's largest code (or more) is taken for a row of totals
+#: in the advice (a rule of this project: an answer scale's codes are single digits, a total of many answers is not)
+TOTALS_LIKE = 10
+
+
 def _cell_error(source: str, item: str, column: pd.Series, value: object, wrong: str, coding: AnswerCoding,
                 rows: np.ndarray) -> DataError:
     where = f"{source}: column '{printable(item)}', {_first_row(column, value, rows)}"
@@ -168,8 +217,12 @@ def _cell_error(source: str, item: str, column: pd.Series, value: object, wrong:
                          f"add it to the statement with its code, or correct the cell (leave it empty for no answer)")
     if wrong == "number":
         number = float(strict_number(value.strip()) if isinstance(value, str) else value)
+        top = max((abs(a.code) for a in coding.answers), default=0.0)
+        # a fraction, or a number ten times the statement's largest code or more: a row of means or totals, which
+        # listing it in the statement would make a respondent (new-user trial s23, 05: a workbook's TOTAL row)
+        summary = number != round(number) or (top > 0 and abs(number) >= TOTALS_LIKE * top)
         remedy = (f"a row of means or totals below the answers? remove it, or leave it out with {Option.KEEP}" if
-                  number != round(number) else f"check the file, or mark a code for no answer with {Option.MISSING_CODES}"
+                  summary else f"check the file, or mark a code for no answer with {Option.MISSING_CODES}"
                   + ("" if coding.carried_from else ", or list the number in the statement with its code"))
         return DataError(f"{where}: holds the number {_shown(value)} among answers recorded as words, and {line} does "
                          f"not list it (a column of words and numbers is often a bad export); {remedy}")
@@ -178,6 +231,12 @@ def _cell_error(source: str, item: str, column: pd.Series, value: object, wrong:
 
 def _listed_answers(coding: AnswerCoding) -> tuple:
     return tuple((a.word, a.number, a.code) for a in coding.answers)
+
+
+def named_codes(answers: tuple) -> tuple:
+    """The (word, number, code) triples of a coding (:func:`coding_record`'s) with only its words, as (word, None,
+    code): what each number means, said of answers read as numbers (:func:`coding_described`)."""
+    return tuple((w, None, c) for w, _, c in answers if w is not None) or answers
 
 
 def coding_described(answers: tuple, span: tuple[float, float] | None = None) -> str:
@@ -215,12 +274,14 @@ def _origin(coding: AnswerCoding, text: str, words: str = "") -> Command:
     return Command(text.format(coding.origin), words)
 
 
-def answer_notes(spec: Spec, coded: tuple[str, ...] | None = None) -> list[Note]:
+def answer_notes(spec: Spec, coded: tuple[str, ...] | None = None, numbers_only: tuple[str, ...] = ()) -> list[Note]:
     """How the answers recorded as words were coded: one note per 'answers' statement in use, which also names the
     answers that share a code and so are analysed as one (words, or numbers the statement recodes; a number listed as
     its own code is not among them: the note says those numbers kept their values, so a word coded 6 beside the
     number 6 is said once, re-check s17, 04), and a note for each word that usually means no answer which the
-    statement codes as an answer; ``coded``: the items coded, when not all the statements cover."""
+    statement codes as an answer; ``coded``: the items coded, when not all the statements cover; ``numbers_only``:
+    the items whose answers held no word (a statement all of whose items are such says their numbers were read,
+    never that words were recorded)."""
     codings = spec.answer_codings()
     if coded is not None:
         codings = {x: c for x, c in codings.items() if x in coded}
@@ -229,8 +290,15 @@ def answer_notes(spec: Spec, coded: tuple[str, ...] | None = None) -> list[Note]
         items = [x for x, c in codings.items() if c is coding]
         if not items:
             continue
-        which = "every item" if len(items) == len(spec.observed_names) else \
-            f"{len(items)} item{'s' if len(items) > 1 else ''} ({', '.join(printable(x) for x in items)})"
+        numbers = [x for x in items if x in numbers_only]  # answers read as numbers: said apart, never as words
+        items = [x for x in items if x not in numbers]
+        if numbers:
+            notes.append(Note((f"the answers in {_which(numbers, spec)} were numbers, which mean "
+                               f"{coding_described(named_codes(_listed_answers(coding)))}",
+                               _origin(coding, " ({})", _carried_words(coding)))))
+        if not items:
+            continue
+        which = _which(items, spec)
         by_code: dict[float, list[str]] = {}
         for answer in coding.answers:
             if not (answer.word is None and answer.number == answer.code):  # a number kept as itself: said apart
@@ -251,6 +319,12 @@ def answer_notes(spec: Spec, coded: tuple[str, ...] | None = None) -> list[Note]
                                                "no answer)" if coding.carried_from is None else
                                        " because {} codes it so", _carried_words(coding)))))
     return notes
+
+
+def _which(items: list[str], spec: Spec) -> str:
+    """'every item', or 'N item(s) (a, b)'."""
+    return "every item" if len(items) == len(spec.observed_names) else \
+        f"{len(items)} item{'s' if len(items) > 1 else ''} ({', '.join(printable(x) for x in items)})"
 
 
 def _carried_words(coding: AnswerCoding) -> str:

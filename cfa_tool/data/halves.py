@@ -33,6 +33,7 @@ import pandas as pd
 
 from cfa_tool.data.kept_rows import KEPT_BY, row_naming, rows_listed
 from cfa_tool.data.moments import row_numbers
+from cfa_tool.numbers import count_text
 from cfa_tool.data.readers import sheet_read
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.note_parts import Command, Note, Text
@@ -216,7 +217,7 @@ class HalfRows:
     def note(self) -> Text:
         """The note of a report: which rows were analysed (the option apart, note_parts.Command)."""
         return (f"Only the rows of the {self.name} half (seed {self.seed}) of {self.halves_file} are analysed: "
-                f"{self.rows} of the {self.split} rows {self.drawn}" + (
+                f"{count_text(self.rows)} of the {count_text(self.split)} rows {self.drawn}" + (
                     Note((f", those with an answer to every model variable ({self.with_gaps} "
                           f"{'row' if self.with_gaps == 1 else 'rows'} with gaps left out before the split",
                           Command(f", as {Option.INCOMPLETE_ROWS.given('listwise')} leaves them out"), ")"))

@@ -11,7 +11,7 @@ import pandas as pd
 
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.errors import clipped, printable
-from cfa_tool.numbers import more_words, names_shown
+from cfa_tool.numbers import count_text, more_words, names_shown
 from cfa_tool.note_parts import Command, Note, RowId, Text
 from cfa_tool.options import Option
 
@@ -187,7 +187,7 @@ def unfinished_rows_note(frame: pd.DataFrame, source: str) -> Note | None:
         return None
     finished = next(str(v).strip() for v, ok in zip(values.dropna(), read) if ok)
     unfinished = int((~read.astype(bool)).sum())
-    return Note((f"{source}: the column '{printable(str(column))}' marks {unfinished} of the {len(frame)} rows as not "
+    return Note((f"{source}: the column '{printable(str(column))}' marks {count_text(unfinished)} of the {count_text(len(frame))} rows as not "
                  f"finished: they are analysed with the answers they gave; to leave them out, ",
                  Command(Option.KEEP.given(filter_text(str(column), "=", finished) or f"{column} = {finished}"),
                          f"keep only the rows where {printable(str(column))} = {finished}")))

@@ -19,7 +19,7 @@ from cfa_tool.errors import DataError, EstimationError, clipped, printable
 from cfa_tool.options import Option
 from cfa_tool.method import MissingData
 from cfa_tool.numbers import number as strict_number
-from cfa_tool.numbers import counted, cut_list, rounded_number, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, rounded_number, user_number
 from cfa_tool.numerics.linalg import KnownFactor, cholesky_log_det, sample_factor
 
 
@@ -468,7 +468,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
         raise DataError(f"{source}: no row has answers on all {p} model variables, so nothing is left to analyse")
     if n <= p:
         raise DataError(
-            f"{source}: {n} complete {'row' if n == 1 else 'rows'} for {p} variables; the covariance matrix needs more rows than variables "
+            f"{source}: {count_text(n)} complete {'row' if n == 1 else 'rows'} for {p} variables; the covariance matrix needs more rows than variables "
             f"(and a factor analysis far more)"
         )
     if w is None:
@@ -582,7 +582,7 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
         spread = whole.std(axis=0)
         if spread.min() > 0:
             _check_combinations(np.corrcoef(whole, rowvar=False), names, source,
-                                f" in the {len(whole)} rows that answer all {p} items",
+                                f" in the {count_text(len(whole))} rows that answer all {p} items",
                                 _few_rows_cause(counts, names, n, group))
     try:
         mu, sigma, _ = em_saturated(pattern_data(data, weights[answered] if weights is not None else None))
@@ -602,14 +602,14 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
                 both = f"{both} ({rows_listed(numbers[answered][observed[:, i] & observed[:, j]], naming=naming)})"
             more = f" ({len(sparse) - 1} more such pair{'s' if len(sparse) > 2 else ''})" if len(sparse) > 1 else ""
             raise EstimationError(
-                f"{source}: {error}; only {both} of its {n} rows answer both '{printable(a)}' and '{printable(b)}'"
+                f"{source}: {error}; only {count_text(both)} of its {count_text(n)} rows answer both '{printable(a)}' and '{printable(b)}'"
                 f"{more}, so their covariance rests on those rows (fewer than a tenth of the rows: a rule of thumb of "
                 f"this project). What to try: take one of the two items out of the model, or analyse rows that "
                 f"answer both") from None
         remedy = (f"leave this group out with a row filter ({Option.KEEP}), join it with another group by recoding the group "
                   "column, or analyse fewer items" if group is not None
                   else "analyse fewer items, or gather rows that answer more of them")
-        raise EstimationError(f"{source}: {error}; {complete} of its {n} rows answer all {p} items. What to try: "
+        raise EstimationError(f"{source}: {error}; {count_text(complete)} of its {count_text(n)} rows answer all {p} items. What to try: "
                               f"{remedy}") from None
     _check_moments(sigma, mu, names, source)
     return SampleMoments(tuple(names), sigma, mu, n, rows_read, rows_read - n, file_source, group, data,

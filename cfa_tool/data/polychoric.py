@@ -467,6 +467,17 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             raise DataError(f"{source}{where}: items '{printable(names[j])}' and '{printable(names[i])}' correlate "
                             f"{near_one(R[i, j])}, yet {sparse.words}, which says nothing of answers given alike"
                             f"{sparse.remedy(bool(where))}")
+        pair_rare = [r for r in rare if r[0] in (names[i], names[j])]
+        both = present[:, i] & present[:, j]
+        plain = (np.corrcoef(data[both, i], data[both, j])[0, 1] if both.sum() > 2 and data[both, i].std() > 0
+                 and data[both, j].std() > 0 else 1.0)  # the answers' own (Pearson) correlation
+        if pair_rare and abs(plain) < SPARSE_PAIR_PLAIN:  # a correlation near +/-1 from a sparse table is no sign of the same answers (hostile s23, 02:
+            # two unrelated items of 98% one answer, Pearson r -.01, 'drop one of them')
+            raise DataError(f"{source}{where}: items '{printable(names[j])}' and '{printable(names[i])}' correlate "
+                            f"{near_one(R[i, j])}, yet categories of theirs are answered by very few rows: "
+                            f"{_rare_listed(pair_rare)}, so their table says nothing of answers given alike and the "
+                            f"correlation matrix is singular; {_RARE_REMEDY}"
+                            + (f"; or leave this group out with a row filter ({Option.KEEP})" if where else ""))
         raise DataError(f"{source}{where}: items '{printable(names[j])}' and '{printable(names[i])}' correlate "
                         f"{near_one(R[i, j])}: they give (nearly) the same answers, so one adds nothing and the correlation "
                         f"matrix is singular; drop one of them")
@@ -478,9 +489,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         complete = int(present.all(axis=1).sum())
         gaps = pairwise and not present.all() and complete > p  # listwise deletion keeps enough rows to work
         raise DataError(f"{source}{where}: the polychoric correlation matrix is not positive definite; "
-                        + (f"categories answered by very few rows: {_rare_listed(rare)} (merge such a category with "
-                           f"its neighbour in a copy of the data (answers recorded as words: an 'answers' statement "
-                           f"in the model file may give two words one code); or leave the item out"
+                        + (f"categories answered by very few rows: {_rare_listed(rare)} ({_RARE_REMEDY}"
                            + (f"; or leave this group out with a row filter ({Option.KEEP})" if where else "") + ")"
                            if rare else
                            "some items may be near duplicates or some categories nearly empty")
@@ -567,12 +576,21 @@ def category_count_refusal(source: str, where: str, name: str, levels) -> str | 
     return None
 
 
+#: what to do with categories answered by very few rows (the refusals of a singular polychoric matrix)
+_RARE_REMEDY = ("merge such a category with its neighbour in a copy of the data (answers recorded as words: an "
+                "'answers' statement in the model file may give two words one code); or leave the item out")
+
+
 def _rare_listed(rare: list[tuple[str, float, int]]) -> str:
     """The rare categories of the ordinal items, by item ('clean' 4 (1 row))."""
     return cut_list(rare, 6, lambda r: f"'{printable(r[0])}' {user_number(r[1])} ({counted(r[2], 'row')})")
 
 
 NEAR_DUPLICATE = 0.995  # a correlation this close to 1 in size means two items answer alike (the search stops at .999)
+#: a pair whose polychoric correlation is near +/-1 while categories of theirs are rare and the answers' own (Pearson)
+#: correlation is below this in size is a sparse table, not two items answering alike (a rule of this project: true
+#: near duplicates of ordinal items correlate well above it as numbers too)
+SPARSE_PAIR_PLAIN = 0.8
 
 
 def near_one(r: float) -> str:

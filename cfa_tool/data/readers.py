@@ -418,7 +418,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
         sheets_out.extend([ws.title] + [n for n in names if n != ws.title])
     where = f"{path} (sheet '{printable(ws.title)}')"
     if len(names) > 1:
-        notes.append(_sheet_note(path, ws.title, names, hidden, sheet is not None))
+        notes.append(_sheet_note(path, ws.title, names, hidden, sheet is not None, sheet_option(names_option)))
         if sheet is None and items and hidden_out is not None:
             alike = _sheets_with_items(book, ws.title, items)
             if alike:
@@ -677,9 +677,13 @@ class OtherSheets:
                 f"{'holds' if len(self.sheets) == 1 else 'hold'} columns named as every item of the model too.")
 
     def advice(self) -> Note:
-        return Note(("If the data are split over the sheets, put their rows in one sheet (or one CSV file) in a copy "
-                     "of the workbook; to analyse another sheet, ", Command(f"name it with {Option.SHEET}",
-                                                                            "analyse it by name"), "."))
+        # sheets may be parts of one sample, or other samples, or the same people at other times, which pooled
+        # rows would take for other people (new-user trial s23: one sheet per wave of one staff survey)
+        return Note(("If the sheets hold parts of one sample, put their rows in one sheet (or one CSV file) in a copy "
+                     "of the workbook; if they hold another sample or the same people at another time (a wave), do "
+                     "not pool them: to analyse another sheet, ", Command(f"name it with {Option.SHEET}",
+                                                                        "analyse it by name"),
+                     "; the same people at two times are compared by one model of both times side by side."))
 
     def to_dict(self) -> dict:
         return {"sheet_read": self.read, "other_sheets_with_items": list(self.sheets)}
@@ -917,19 +921,20 @@ def _filter_kept(ws, header: list, skipped: int) -> str | None:
     return f"{name} == {shown}" if name.isidentifier() else None
 
 
-def _sheet_note(path: Path, read: str, names: list[str], hidden: list[str], named: bool) -> Note:
+def _sheet_note(path: Path, read: str, names: list[str], hidden: list[str], named: bool,
+                option: Option = Option.SHEET) -> Note:
     """Which sheet of a workbook of several was analysed, and which sheets the workbook hides (the option that names
     a sheet apart, note_parts.Command: a manuscript's reader runs nothing)."""
     others = [n for n in names if n != read]
     listed = ", ".join(f"'{printable(n)}'" + (" (hidden)" if n in hidden else "") for n in others)
     if named:
-        how: tuple = (Command(f"as named with {Option.SHEET}", "as named"),
+        how: tuple = (Command(f"as named with {option}", "as named"),
                       "; the workbook hides this sheet" if read in hidden else "")
     elif hidden and names.index(read) > 0:
         how = ("the first sheet the workbook shows (hidden sheets are not read unless named",
-               Command(f" with {Option.SHEET}"), ")")
+               Command(f" with {option}"), ")")
     else:
-        how = ("the first sheet", Command(f"; name another with {Option.SHEET}"))
+        how = ("the first sheet", Command(f"; name another with {option}"))
     return Note((f"{path}: the sheet '{printable(read)}' was analysed, ", *how, f"; the workbook also has {listed}"))
 
 
@@ -1981,6 +1986,12 @@ def _words_lead(column: pd.Series, present: np.ndarray, words: frozenset[str] | 
     while lead < MAX_HEADER_ROWS and present[lead] and isinstance(cells[lead], str) and not answer(cells[lead]):
         lead += 1
     return lead
+
+
+def sheet_option(names_option: Option) -> Option:
+    """The option that names the sheet of the workbook whose row of column names ``names_option`` names: --sheet
+    beside --names-row, --validation-sheet beside --validation-names-row."""
+    return Option.VALIDATION_SHEET if names_option is Option.VALIDATION_NAMES_ROW else Option.SHEET
 
 
 def first_data_option(names_option: Option) -> Option:

@@ -15,7 +15,7 @@ import numpy as np
 from cfa_tool.assessment.admissibility import (Problem, ProblemKind, group_size_problems, not_identified,
                                                solution_problems)
 from cfa_tool.data.descriptives import answer_extremes, item_shape
-from cfa_tool.assessment.convergence import nonconvergence_message
+from cfa_tool.assessment.convergence import nonconvergence_message, two_item_factors
 from cfa_tool.assessment.diagnostics import case_diagnostics, incomplete_case_diagnostics, normalized_residuals
 from cfa_tool.assessment.fit_indices import (baseline_chi_square, cfi_value, fit_indices, normal_theory_parts,
                                              rmsea_value, srmr, srmr_value)
@@ -228,7 +228,9 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
     opt = found.result
     if opt.outcome is Outcome.BAD_START:  # a fixed covariance beyond the variances the data give: named at its line
         fixed_values_at_start(spec, table, model.entry_values(start), labels)
-    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper, table.observed)
+    message = "converged" if opt.converged else nonconvergence_message(
+        found, table.free_labels, options.max_iterations, table.lower, table.upper, table.observed,
+        two_item_factors(spec, table.free_labels))
     return Estimation(table, model, likelihood, opt.theta, opt.value, opt.converged, opt.iterations, message)
 
 

@@ -20,7 +20,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
     from cfa_tool.data.halves import RandomHalf
 
 from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, rounded_number, user_number
-from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
+from cfa_tool.data.answer_words import NUMBERS_ONLY, code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
 from cfa_tool.data.kept_rows import (ROW_NAMES_COLUMN, RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
@@ -322,7 +322,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     notes += check_columns(spec, columns, loaded.source, loaded.column_hint(), chosen)
     notes += nominal_items_note(frame, spec.observed_names, loaded.source)  # an SPSS file's measure levels
     frame, coding_notes = code_answer_words(spec, frame, loaded.source,  # 'answers' statements: words as codes
-                                            missing_codes=missing_codes_option(missing_codes))
+                                            missing_codes=missing_codes_option(missing_codes),
+                                            value_labels=loaded.value_labels)
     notes += coding_notes
     check_declared_ranges(spec, frame, loaded.source, loaded.value_labels)
     values = item_values(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it
@@ -644,7 +645,8 @@ def reference_note(results, frame: pd.DataFrame, group: str | None, reference_gr
 
 
 def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
-    """``result`` (a fit of rows) with what was read as no answer kept in its data: the ``missing_codes`` given
+    """``result`` (a fit of rows) with what was read as no answer kept in its data (and which items an 'answers'
+    statement covers held numbers alone, data.answer_words.NUMBERS_ONLY): the ``missing_codes`` given
     (scores of other data with the fit read them so too) and the values of its items that the file itself marks as
     no answer (``loaded.non_answers``), which the methods paragraph names; and the values of its items that look like
     no answers but were analysed as answers (``loaded.odd_values``), and the row filters that chose its rows
@@ -659,6 +661,9 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     naming = row_naming(loaded.frame)
     if naming is not RowNaming.FILE_ROW:
         read["row_naming"] = naming
+    numbers_only = tuple(x for x in loaded.frame.attrs.get(NUMBERS_ONLY, ()) if x in result.observed)
+    if numbers_only:  # items an 'answers' statement covers whose answers held no word
+        read["numbers_only"] = numbers_only
     codes, words = missing_values_option(missing_codes)
     # the words of no answer too, given in Python or on the command line (there, the run's words): scoring other data
     # with the fit reads them so too
@@ -823,7 +828,7 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
 
     names = names if names is not None else (spec.observed_names if spec is not None else ())
     found: tuple = row_filter_problems(loaded, spec, where=where) + copied_row_problems(loaded, group, design, names, ids or {})
-    found += repeated_id_problems(loaded, ids or {}, id_column)  # ids of several rows: no merge by id one to one
+    found += repeated_id_problems(loaded, ids or {}, id_column, group)  # ids of several rows: no merge by id one to one
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {}, id_column=id_column)
@@ -962,7 +967,7 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
         written = filter_text(found.numbering, "<", first if number else label_text(first))
         example = f" (here {Option.KEEP.given(written)})" if written else ""  # the one writer (data.filter_text)
     return (Problem(ProblemKind.COPIED_ROWS, (), float(n),
-                    f"{n} of the {len(frame)} rows analysed {'is' if n == 1 else 'are'} identical in every column"
+                    f"{count_text(n)} of the {count_text(len(frame))} rows analysed {'is' if n == 1 else 'are'} identical in every column"
                     f"{numbering} to an earlier row: " + pairs + f"{more}. If they are copies (a file appended to itself, "
                     f"rows pasted twice), each is counted as another respondent, so N is too large, the standard "
                     f"errors too small and the chi-square too large." + (
@@ -978,7 +983,7 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
 REPEATED_IDS_SHOWN = 5  # ids of several rows that the caution names before 'and N more'
 
 
-def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None) -> tuple:
+def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, group: str | None = None) -> tuple:
     """A caution naming the ids that several rows hold (``ids``: data-row number -> id; ``id_column``: the column
     they are read from, data.kept_rows.ROW_NAMES_COLUMN for the file's row names: :func:`id_filter_column`), each with
     its rows, the first :data:`REPEATED_IDS_SHOWN`; () when every id names one row.  One rule for every command that
@@ -986,7 +991,10 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None) -
     and scored alike whatever their ids, and data in long form hold a person's id once per wave by design (merged by
     the id and the wave); a scores file is written all the same, its lines in the order of the data's rows.  Rows that
     copy an earlier row in every column repeat its id too: named here as well, for a merge by id fails on them alike
-    (new-user trial s20: the caution on copies showed the ids without saying that they repeat)."""
+    (new-user trial s20: the caution on copies showed the ids without saying that they repeat).  With a ``group``
+    column, ids whose rows lie in more than one group are said to be the same people in several groups, which the
+    multi-group fit and its tests take for independent samples (new-user trial s23: two waves of one staff stacked
+    and compared as groups), with the model of both occasions side by side as the way to test invariance over time."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.data.kept_rows import rows_listed
     from cfa_tool.data.row_ids import ids_of_several_rows
@@ -1007,16 +1015,38 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None) -
     more = more_words(len(found) - few, "; and ", "id")
     rows = sum(len(r) for _, r in found)
     what, gives = ("ids", "gives") if by_column else ("names", "give")
+    across = _ids_across_groups(found, frame, group)
+    if across:
+        spread = (f" {'It' if len(found) == 1 else f'{count_text(across)} of these {what}'} name{'s' if across == 1 else ''} "
+                  f"rows in more than one group of '{printable(group)}': the same people in several groups? The "
+                  f"multi-group fit and its tests take the groups for independent samples, which the same people "
+                  f"answering twice are not (the standard errors and difference tests are then wrong).")
+        advice = Note(("for the same people at several times, put each time's answers side by side in one row per "
+                       "person and fit one model of both times (each item at each time its own indicator, its "
+                       "residuals correlated across the times), holding its loadings and intercepts equal across the "
+                       "times to test invariance over time; if the groups hold different people, correct the ids in a "
+                       "copy of the data file",))
     return (Problem(ProblemKind.REPEATED_IDS, (), float(len(found)),
-                    Note((f"{holder} {gives} {rows} rows one {what[:-1]}: " if len(found) == 1 else
-                          f"{holder} {gives} {rows} rows {len(found)} {what} that each name more than one row: ",))
+                    Note((f"{holder} {gives} one {what[:-1]} to {count_text(rows)} rows: " if len(found) == 1 else
+                          f"{holder} {gives} {count_text(len(found))} {what} each to more than one row "
+                          f"({count_text(rows)} rows in all): ",))
                     + shown + f"{more}. These {what} do not stand for one row each, so a file "
                     f"merged by them (a scores file, say) cannot be matched to the rows one to one: a merge that "
                     f"expects one row per {what[:-1]} refuses, and one that allows several gives a row another "
-                    f"row's values.",
+                    f"row's values." + (spread if across else ""),
+                    advice if across else
                     Note(("correct the ids in a copy of the data file (a typing error?), or name the rows by a "
                           "column whose values differ in every row", Command(f" ({Option.ID_COLUMN.given('COLUMN')})"),
                           "; if the rows are one person's at several times, merge by the id and the time together."))),)
+
+
+def _ids_across_groups(found: tuple, frame: pd.DataFrame, group: str | None) -> int:
+    """How many of the repeated ids ``found`` (id, its rows' numbers) have rows in more than one group of ``group``
+    (0 without a group column)."""
+    if group is None or group not in frame.columns:
+        return 0
+    label = dict(zip(row_numbers(frame).tolist(), frame[group].tolist()))
+    return sum(len({label[r] for r in rows if r in label and label[r] == label[r]}) > 1 for _, rows in found)
 
 
 def _without_copies(found: tuple, frame: pd.DataFrame) -> tuple:
@@ -1229,8 +1259,11 @@ def few_answers_problems(names: tuple[str, ...], coverage: dict, n_obs: int | No
         return together + constant
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
-    n = n_obs
-    listed = cut_list(list(few.items()), 5, lambda f: f"'{printable(f[0])}' ({round(f[1] * n)} of {n} rows)")
+    n, rows = n_obs, "rows"
+    if listwise and loaded is not None:  # the shares are of the rows read, of which listwise deletion kept n_obs
+        # (hostile trial s23: '2 of 28 rows' for an item that each of the 28 rows kept answers, 28 of 480 read)
+        n, rows = int(loaded.frame[[x for x in names if x in loaded.frame.columns]].notna().any(axis=1).sum()), "rows read"
+    listed = cut_list(list(few.items()), 5, lambda f: f"'{printable(f[0])}' ({round(f[1] * n):,} of {n:,} {rows})")
     one = len(few) == 1
     return (Problem(ProblemKind.FEW_ANSWERS, (), min(few.values()),
                     f"Few rows answer {'the item' if one else 'the items'} {listed}: {'its' if one else 'their'} "

@@ -18,7 +18,7 @@ from dataclasses import replace as dc_replace
 import numpy as np
 
 from cfa_tool.assessment.admissibility import group_size_problems, solution_problems
-from cfa_tool.assessment.convergence import nonconvergence_message
+from cfa_tool.assessment.convergence import nonconvergence_message, two_item_factors
 from cfa_tool.assessment.fit_indices import fit_indices, srmr
 from cfa_tool.assessment.identification import check_bounded_responses, check_information_rank
 from cfa_tool.assessment.ordinal_reliability import with_observed_sum_omega
@@ -203,11 +203,11 @@ def _rows_notes(moments, order: list[int], where: str = "") -> list[str]:
         complete = int((moments.codes >= 0).all(axis=1).sum())
         out.append(f"missing answers{where}: every answer is used (pairwise present rows): each item's thresholds come "
                    f"from the rows that answered it, each correlation from the rows that answered both items, from "
-                   f"{low[2]} rows ({low[0]}, {low[1]}) to {high[2]} ({high[0]}, {high[1]}) of {len(moments.codes)}; "
+                   f"{count_text(low[2])} rows ({low[0]}, {low[1]}) to {count_text(high[2])} ({high[0]}, {high[1]}) of {count_text(len(moments.codes))}; "
                    f"pairwise present rows assume that {MISSING_COMPLETELY_AT_RANDOM} (whether an answer is missing "
                    f"does not depend on the person's answers, given or not; Little & Rubin 2002; full-information estimation, "
                    f"valid when answers are missing at random, is not available for ordinal items); the standard errors and tests allow for the differing numbers "
-                   f"of rows; a fit of only the {complete} complete rows would leave the others out and assume the same")
+                   f"of rows; a fit of only the {count_text(complete)} complete rows would leave the others out and assume the same")
     return out
 
 
@@ -299,7 +299,9 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
     opt = found.result
     if opt.outcome is Outcome.BAD_START:  # a fixed covariance beyond the variances at the start: named at its line
         fixed_values_at_start(fixed_spec, table, model.entry_values(start))
-    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper, table.observed)
+    message = "converged" if opt.converged else nonconvergence_message(
+        found, table.free_labels, options.max_iterations, table.lower, table.upper, table.observed,
+        two_item_factors(spec, table.free_labels))
     theta = opt.theta
     n = moments.n_obs
     final = unit_variance_matrices(model.matrices(theta))
@@ -535,7 +537,9 @@ def estimate_ordinal_groups(spec: Spec, groups: list, options, method: Weighting
                                lambda: variance_scaled_problem(again.unit_variances))
                 if refit.result.converged:
                     objective, found, opt = again, refit, refit.result
-    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper, table.observed)
+    message = "converged" if opt.converged else nonconvergence_message(
+        found, table.free_labels, options.max_iterations, table.lower, table.upper, table.observed,
+        two_item_factors(spec, table.free_labels))
     return OrdinalEstimation(table, model, objective, opt.theta, opt.value, opt.converged, opt.iterations, message)
 
 

@@ -281,6 +281,9 @@ class DataSummary:
     # the model's coding of answers recorded as words (data.answer_words.coding_record), which scoring other data with
     # this fit reads so too
     answer_coding: tuple = ()
+    # the items of answer_coding whose answers in the data held no word, numbers alone (data.answer_words.NUMBERS_ONLY):
+    # the methods paragraph says their numbers were read, not that words were coded
+    numbers_only: tuple[str, ...] = ()
     # values of the model's items that look like no answers (data.odd_values.OddValues: a missing-value code, a totals
     # or means row) but were analysed as answers, as the file holds them: the methods paragraph says so
     odd_values: tuple = ()
@@ -362,6 +365,8 @@ class DataSummary:
             from cfa_tool.data.answer_words import coding_json
 
             out["answer_coding"] = clean(coding_json(self.answer_coding))
+            if self.numbers_only:
+                out["answers_read_as_numbers"] = list(self.numbers_only)
         if self.ranges:
             out["answer_ranges"] = _answer_ranges(self.variables, self.ranges)
         return out

@@ -191,7 +191,8 @@ def split_lines(result) -> list[Text]:
     s = result.split
     if s is None:
         return [same_data_caution()]
-    lines = [SPLIT_STATEMENT.format(seed=s.seed, first=len(s.exploration_rows), second=len(s.confirmation_rows))]
+    lines = [SPLIT_STATEMENT.format(seed=s.seed, first=count_text(len(s.exploration_rows)),
+                                    second=count_text(len(s.confirmation_rows)))]
     if s.how_drawn():  # by clusters or strata (workflows.explore.SplitHalves)
         lines.append(s.how_drawn())
     if s.note:

@@ -25,7 +25,7 @@ from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, desi
 from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors, uncorrelated_pairs
 from cfa_tool.assessment.reliability import BifactorPart, Keying, miskeyed
 from cfa_tool.data.non_answers import non_answer_clause
-from cfa_tool.data.answer_words import coding_described
+from cfa_tool.data.answer_words import coding_described, named_codes
 from cfa_tool.data.descriptives import FEW_CATEGORIES
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.names import written_group, written_name
@@ -866,10 +866,22 @@ def answer_coding_sentence(data) -> str:
     record = getattr(data, "answer_coding", ())
     if not record:
         return ""
-    if len(record) == 1 and set(record[0][0]) >= set(getattr(data, "variables", ())):  # every item coded alike
-        return f"Answers recorded as words were coded {coding_described(record[0][1])}."
-    each = "; ".join(f"{coding_described(answers)} for {_names(items)}" for items, answers in record)
-    return f"Answers recorded as words were coded {each}."
+    numbers = set(getattr(data, "numbers_only", ()))  # items whose answers held no word: their numbers were read
+    worded = tuple((tuple(x for x in items if x not in numbers), answers) for items, answers in record)
+    read = tuple((tuple(x for x in items if x in numbers), named_codes(answers)) for items, answers in record)
+    variables = set(getattr(data, "variables", ()))
+
+    def said(entries: tuple, opening: str) -> str:
+        entries = tuple(e for e in entries if e[0])
+        if not entries:
+            return ""
+        if len(entries) == 1 and set(entries[0][0]) >= variables:  # every item alike
+            return f"{opening} {coding_described(entries[0][1])}."
+        return f"{opening} " + "; ".join(f"{coding_described(answers)} for {_names(items)}"
+                                         for items, answers in entries) + "."
+
+    return " ".join(s for s in (said(worded, "Answers recorded as words were coded"),
+                                said(read, "Answers were recorded as the numbers")) if s)
 
 
 def _matrix_sentence(result, subject: str = "The model was") -> str:

@@ -28,6 +28,7 @@ from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text,
 from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
 from cfa_tool.workflows.invariance import CONFIGURAL_INDICES
+from cfa_tool.workflows.nesting import heavy_tails_caution
 
 SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
 CHECK_SOLUTIONS = "Check before interpreting these solutions"  # the cautions of several models' solutions
@@ -369,6 +370,8 @@ def comparison_report(comparison) -> Report:
                  f"is not admissible: that is no reason to prefer it." for name, indices in lowest.items()]
     cautions = [p.line() for p in comparison.problems]  # the data's, first
     cautions += _design_caution_lines(named) + _caution_lines(named)
+    if comparison.heavy_tails:  # normal-theory differences over heavy-tailed answers
+        cautions.append(heavy_tails_caution(comparison.heavy_tails, "a rejected restriction"))
     full_information = comparison.missing is MissingData.FULL_INFORMATION
     pairwise = comparison.missing is MissingData.PAIRWISE
     if full_information or pairwise:

@@ -35,7 +35,7 @@ from cfa_tool.pipeline.continuous import (fit_moments, full_information_instead,
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import ORDINAL_FIT_CHANGE_WHY, FitTest, MissingData
 from cfa_tool.pipeline.results import FitResult, clean
-from cfa_tool.workflows.nesting import (DifferenceTest, boundary_of, difference_test, is_nested,
+from cfa_tool.workflows.nesting import (DifferenceTest, boundary_of, difference_test, heavy_tailed_groups, is_nested,
                                        probably_equivalent, scaled_difference_tests, scaling_at_restricted)
 from cfa_tool.views import Presentable
 
@@ -68,6 +68,9 @@ class Comparison(Presentable):
     notes: tuple[str, ...] = ()
     problems: tuple = ()  # of the data, first in every view (pipeline.inputs.data_problems; assessment.admissibility.Problem)
     without_group: int = 0  # rows left out for having no value in the group column (not in rows_dropped)
+    # with a normal-theory difference test: the groups (or 'these rows') whose answers are heavier-tailed than normal
+    # (workflows.nesting.heavy_tailed_groups), cautioned first in every view
+    heavy_tails: tuple[str, ...] = ()
 
     @property
     def change_guides_apply(self) -> bool:
@@ -84,6 +87,7 @@ class Comparison(Presentable):
             "rows_without_group": self.without_group,
             "incomplete_rows": self.missing.value,
             "notes": [str(x) for x in self.notes],
+            "heavy_tailed_answers": list(self.heavy_tails),
             "group_column": self.results[0].group_column if self.results[0].multigroup else None,
             "groups": [g.label for g in self.results[0].groups] if self.results[0].multigroup else [],
             "models": [
@@ -178,7 +182,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         named = check_columns(spec, list(frame.columns), source, loaded.sheet_hint(), chosen_columns(group, id_column, design=design))
         notes = list(notes) + [n for n in named if n not in notes]
         frame, coding_notes = code_answer_words(spec, frame, source, tuple(x for x in spec.observed_names if x not in coded),
-                                                missing_codes=missing_codes_option(missing_codes))  # as fit reads them
+                                                missing_codes=missing_codes_option(missing_codes),  # as fit reads them
+                                                value_labels=loaded.value_labels)
         coded |= set(spec.observed_names)
         notes = list(notes) + coding_notes
         check_declared_ranges(spec, frame, source, loaded.value_labels)  # every model's 'reversed ... on' scale
@@ -251,10 +256,13 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         reference_group_applies(results, reference_group)
         notes = list(notes) + reference_note(results, complete, group, reference_group)
         tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
+        normal_theory = bool(tests) and all(r.robust is None for r in results if r.converged)
+        heavy = heavy_tailed_groups([m for _, m in data_groups[0]], tuple(label for label, _ in data_groups[0])
+                                    if group is not None else None) if normal_theory else ()
         return _some_estimated(_with_data_problems(Comparison(tuple(names), tuple(results), tuple(tests),
                                                               tuple(not_nested), len(complete), dropped,
                                                               fit_options.missing, tuple(notes),
-                                                              without_group=without_group),
+                                                              without_group=without_group, heavy_tails=heavy),
                                                    loaded, specs, group, design, dropped, False, False, id_rows))
 
 

@@ -23,7 +23,7 @@ from cfa_tool.data.kept_rows import FINISHED_COLUMNS, ROW_NAMING, row_naming
 from cfa_tool.data.moments import stray_word_message
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.assessment.admissibility import sample_size_problems
-from cfa_tool.numbers import cut_list, more_words, names_shown, user_number
+from cfa_tool.numbers import count_text, cut_list, more_words, names_shown, user_number
 from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.note_parts import Command, Note, Text
@@ -670,6 +670,7 @@ def _default_items(first, columns: list[str], codings: tuple, design: tuple[str,
     unlike = unlike_the_items(frame.assign(**_words_as_codes(frame, worded, codings)),
                               [c for c in numeric if c not in ids + roles + coded], worded, codes)
     records = list(unlike.columns)
+    _refuse_numbers_with_slips(frame, (*numeric, *worded, *drawn_by, *([id_column] if id_column else [])), source)
     chosen = tuple(c for c in columns if c in worded or (c in numeric and c not in ids + roles + coded + records))
     if codings and not worded:
         raise OptionError(f"no column of {source} holds only the words of the answers file's statements "
@@ -738,6 +739,31 @@ def _refuse_too_few_named(chosen: tuple[str, ...]) -> None:
     raise OptionError(f"{Option.ITEMS} names {'one item' if len(chosen) == 1 else 'two items'} ({named}), too few "
                       f"for a factor: an exploratory factor analysis needs at least three items for each factor; name "
                       f"more items")
+
+
+def _refuse_numbers_with_slips(frame: pd.DataFrame, taken: tuple[str, ...], source: str) -> None:
+    """A column of numbers with a few text slips ('?' in 2 of 480 cells: data.answer_scales.stray_text) is an item
+    whose cells need correcting, not a text column to leave out: explore's default items stop on it as fit does
+    (hostile trial s23: the item was dropped from the exploration and the draft, said only as 'text (not numbers)');
+    columns named for another part (an id, an age) are left to the note."""
+    from cfa_tool.data.answer_scales import stray_text
+    from cfa_tool.data.kept_rows import cell_words
+    from cfa_tool.data.moments import row_numbers
+    from cfa_tool.numbers import number as strict_number
+
+    for name in frame.columns:
+        column = frame[name]
+        if (name in taken or column_role(str(name)) is not None or pd.api.types.is_numeric_dtype(column)
+                or column.dtype.kind in "mM"):
+            continue
+        values = column.to_numpy(dtype=object)
+        if not stray_text(values):
+            continue
+        row, cell = next((r, v) for r, v in zip(row_numbers(column), values) if isinstance(v, str) and v.strip()
+                         and strict_number(v.strip()) is None)
+        raise DataError(stray_word_message(source, str(name), clipped(cell.strip(), 40),
+                                           cell_words(column, str(name), row), cell.strip())
+                        + f"; or leave the column out by naming the items with {Option.ITEMS}")
 
 
 def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str, codings: tuple) -> None:
@@ -1119,8 +1145,8 @@ def _correlations(frame, names, source, ordinal_items, notes):
         if moments.gaps:
             counts = moments.pair_counts[np.tril_indices(len(names), -1)]
             notes.append(f"Rows with gaps are kept: each polychoric correlation comes from the rows that answered both "
-                         f"items ({int(counts.min())} to {int(counts.max())} rows per pair), as fit computes them; N is "
-                         f"the {moments.n_obs} rows with at least one answer.")
+                         f"items ({count_text(int(counts.min()))} to {count_text(int(counts.max()))} rows per pair), as fit computes "
+                         f"them; N is the {count_text(moments.n_obs)} rows with at least one answer.")
         if len(frame) > moments.n_obs:
             notes.append(_empty_rows_note(frame, frame[list(names)].isna().to_numpy().all(axis=1)))
         return from_ordinal_moments(moments)
@@ -1131,8 +1157,8 @@ def _correlations(frame, names, source, ordinal_items, notes):
     missing = "full-information" if gaps else "listwise"
     moments = sample_moments(frame, names, source, missing=missing)
     if gaps:
-        notes.append(f"{gaps} {'row misses' if gaps == 1 else 'rows miss'} some answers; the correlations are the "
-                     f"maximum-likelihood (EM) estimates from every answer, and N is the {moments.n_obs} rows with at "
+        notes.append(f"{count_text(gaps)} {'row misses' if gaps == 1 else 'rows miss'} some answers; the correlations are "
+                     f"the maximum-likelihood (EM) estimates from every answer, and N is the {count_text(moments.n_obs)} rows with at "
                      f"least one answer.")
     if empty.any():
         notes.append(_empty_rows_note(frame, empty))
@@ -1147,7 +1173,7 @@ def _empty_rows_note(frame: pd.DataFrame, empty: np.ndarray) -> str:
 
     n = int(empty.sum())
     listed = rows_listed(row_numbers(frame)[empty], naming=row_naming(frame), lines=text_lines(frame))
-    return (f"{n} of {len(frame)} {'row' if len(frame) == 1 else 'rows'} answered none of the items and "
+    return (f"{count_text(n)} of {count_text(len(frame))} {'row' if len(frame) == 1 else 'rows'} answered none of the items and "
             f"{'was' if n == 1 else 'were'} left out ({listed}).")
 
 
@@ -1172,7 +1198,7 @@ def _confirm(exploration: Exploration, halves, seed: int, source: str, statement
     except CfaError as exc:
         return SplitHalves(seed, first, second, None, f"the draft model could not be fitted on the confirmation half: "
                                                       f"{exc}")
-    fitted = replace_source(fitted, f"{source} (confirmation half, {len(second)} rows)")
+    fitted = replace_source(fitted, f"{source} (confirmation half, {count_text(len(second))} rows)")
     if statements:
         written = parse_model(exploration.draft.text + "".join(line + "\n" for line in statements), "draft model")
         fitted = replace(fitted, data=replace(fitted.data, answer_coding=coding_record(written)))

@@ -518,6 +518,13 @@ def _same_categories(calibration, validation, frame: pd.DataFrame) -> None:
                         f"leave those rows out")
 
 
+def _workbook(source) -> bool:
+    """Whether ``source`` is a path of an Excel workbook."""
+    from cfa_tool.data.readers import EXCEL_SUFFIXES
+
+    return isinstance(source, (str, Path)) and Path(source).suffix.lower() in EXCEL_SUFFIXES
+
+
 def _same_file(first, second) -> bool:
     import os
 
@@ -551,7 +558,7 @@ def _not_the_same_rows(spec: Spec, first: pd.DataFrame, second: pd.DataFrame, fi
         inside = first_source if small is a else second_source
         raise OptionError((f"the calibration data ({first_source}) and the validation data ({second_source}) hold the "
                            f"same rows" if shared == len(a) == len(b) else
-                           f"{'every row' if shared == len(small) else f'{shared} of the {len(small)} rows'} of {inside} "
+                           f"{'every row' if shared == len(small) else f'{count_text(shared)} of the {count_text(len(small))} rows'} of {inside} "
                            f"(on the model's variables) {'is' if shared == len(small) else 'are'} also in the other file")
                           + f"; replication checks the model in new data ({_one_file_instead()})")
 
@@ -572,11 +579,12 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
               validation_names_row: int | None = None, first_data_row: int | None = None,
               validation_first_data_row: int | None = None, keep: tuple[str, ...] | list[str] = (),
               rename=None, validation_rename=None, id_column: str | None = None,
-              **options) -> Replication:
+              validation_sheet: str | None = None, **options) -> Replication:
     """Calibrate on one data set, validate on another.  ``ordinal``, ``ordinal_estimator``: ordinal items and
     their least-squares estimator, as for ``fit`` (an 'ordinal' statement in the model declares them too);
     ``missing_codes`` apply to both files, as for ``fit``; ``sheet`` to those of the two that are Excel workbooks
-    (a calibration workbook with a CSV validation file), an error when neither is one.  The row of column names is
+    (a calibration workbook with a CSV validation file), an error when neither is one, and ``validation_sheet`` to the
+    validation workbook alone (two sheets of one workbook may be the two samples).  The row of column names is
     each file's own: ``names_row`` that of the calibration file, ``validation_names_row`` that of the validation
     file (a workbook with question texts above the item codes beside a plain CSV file), and so is the row where its
     data start (``first_data_row``, ``validation_first_data_row``).  ``keep``: row filters ('Finished = True'),
@@ -588,10 +596,14 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                                                            options if missing is None else {**options, "missing": missing},
                                                            REPLICATE_KEYWORDS)
     one_group_only(spec, "replication fits one group's model in each sample")
-    if _same_file(calibration, validation):
-        raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
-                          f"new data ({_one_file_instead()})")
     sheets = sheet_of_each((calibration, validation), sheet)
+    if validation_sheet is not None:  # the validation workbook's own sheet (new-user trial s23: one sheet per wave)
+        sheets = (sheets[0], sheet_of_each((validation,), validation_sheet)[0])
+    if _same_file(calibration, validation) and (validation_sheet is None or sheets[0] == sheets[1]):
+        raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
+                          f"new data ({_one_file_instead()}"
+                          + (f"; or give the sheets of one workbook: {Option.SHEET} and {Option.VALIDATION_SHEET})"
+                             if sheets[0] is not None or _workbook(calibration) else ")"))
     # each file read as fit reads its data (row filters, declared scales, answer words, codes as labels, values
     # that look like no answers): a hostile trial found replicate analysing answers beyond a declared scale that fit
     # refuses; the row filters apply to each file, their notes naming it
@@ -630,6 +642,7 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                                 for p in data_problems(s, spec, ids=ids_of, where=f" on the {which} data ({s.source})",
                                                        listwise=r.method.missing is MissingData.LISTWISE,
                                                        id_column=by)))
+    found += _same_people(named, id_column, read)
     # what each file read as no answer, as fit keeps it (with_missing_reading, the filters too): the paragraph names it
     cal, loose = (with_missing_reading(result.calibration_result, read[0], missing_codes),
                   with_missing_reading(result.loose, read[1], missing_codes))
@@ -642,6 +655,35 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
 #: the keywords of :func:`replicate` besides the fit options it passes on (an unknown keyword's near names,
 #: make_options), read from its signature once
 REPLICATE_KEYWORDS = own_keywords(replicate)
+
+
+def _same_people(named, id_column: str | None, read) -> tuple:
+    """A caution when the validation file holds ids of the calibration file (``named``: each file's data-row number
+    -> id, with ``id_column`` given; a file's row names, which number rows alike in any two files, are not read so):
+    the same people in both samples (new-user trial s23: a second wave of one staff taken as new data, nothing said).
+    A replication on them tests the solution's stability over time, not that it holds in other people, and the test
+    of one solution for both samples takes them for independent samples."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.errors import clipped
+    from cfa_tool.numbers import count_text
+
+    if not isinstance(id_column, str) or any(by is None for _, by in named):
+        return ()
+    calibration = set(named[0][0].values())
+    validation = list(dict.fromkeys(named[1][0].values()))
+    shared = [v for v in validation if v in calibration]
+    if not shared:
+        return ()
+    return (Problem(ProblemKind.REPEATED_IDS, (), float(len(shared)),
+                    f"{count_text(len(shared))} of the {count_text(len(validation))} ids of the validation data "
+                    f"({read[1].source}) are ids of the calibration data ({read[0].source}) too, such as "
+                    f"'{clipped(str(shared[0]), 40)}': the same people in both samples? A replication on the "
+                    f"calibration's people tests whether the solution is stable over time, not whether it holds in "
+                    f"other people, and the test of one solution for both samples takes them for independent "
+                    f"samples, which the same people are not.",
+                    "replicate on a sample of other people; for the same people at two times, test invariance over "
+                    "time with one model of both times side by side, their loadings and intercepts held equal across "
+                    "the times."),)
 
 
 def _left_out(dropped: int, read: int, source: str, missing, ordinal_items) -> tuple:

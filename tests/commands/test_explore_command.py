@@ -286,3 +286,27 @@ def test_rows_that_answered_no_item_are_named_as_the_file_numbers_them(tmp_path,
     result = cfa_tool.explore(str(path), items=ITEMS, replications=20, ordinal="all" if ordinal else None)
     said = " ".join(result.summary().split())
     assert "1 of 302 rows answered none of the items and was left out (row 303)." in said
+
+
+def test_a_column_of_numbers_with_two_slips_stops_the_default_items_as_fit_stops(hs_data, tmp_path, capsys):
+    # hostile trial s23 (5): two '?' among 299 answers of x4 filed the item under 'text (not numbers)', and the
+    # exploration and its draft went on without it; fit and explore --items named the cell
+    import cfa_tool
+    from cfa_tool.errors import DataError
+
+    frame = hs_data.astype({"x4": object})
+    frame.loc[[3, 10], "x4"] = "?"
+    path = tmp_path / "hs.csv"
+    frame.to_csv(path, index=False)
+    before = path.read_bytes()
+    with pytest.raises(DataError, match=r"column 'x4' holds text \('\?' in row 4\) among numbers; .*or leave the "
+                                        r"column out by naming the items"):
+        cfa_tool.explore(path)
+    assert main(["explore", "--data", str(path), "--draft", str(tmp_path / "draft.cfa")]) == 2
+    err = capsys.readouterr().err
+    assert "Traceback" not in err and "'x4'" in err
+    assert not (tmp_path / "draft.cfa").exists() and path.read_bytes() == before
+    # a column of words stays a text column named in the note, and the exploration runs
+    frame = hs_data.assign(remark=["ok" if k % 2 else "late" for k in range(len(hs_data))])
+    explored = cfa_tool.explore(frame, factors=3)
+    assert "remark" not in explored.items

@@ -48,7 +48,7 @@ def test_check_fit_and_scores_name_the_repeated_ids_first(tmp_path, capsys):
     data, model = tmp_path / "riders.csv", tmp_path / "m.cfa"
     _riders().to_csv(data, index=False)
     model.write_text(MODEL)
-    said = "The id column 'rider_id' gives 5 rows 2 ids that each name more than one row: 'R0005' in rows 6, 7; " \
+    said = "The id column 'rider_id' gives 2 ids each to more than one row (5 rows in all): 'R0005' in rows 6, 7; " \
            "'R0021' in rows 22, 32, 42"
     for problems in (cfa_tool.check(MODEL, data, id_column="rider_id").problems,
                      cfa_tool.fit(MODEL, data, id_column="rider_id").problems,
@@ -87,7 +87,7 @@ def test_copies_say_that_their_ids_repeat_and_the_id_caution_leaves_them_to_it(t
     copied.to_csv(path, index=False)
     [repeated] = [p for p in cfa_tool.check(MODEL, path, id_column="rider_id").problems
                   if p.kind is ProblemKind.REPEATED_IDS]
-    assert "gives 2 rows one id: 'R0011' in rows 12, 32" in _flat(repeated.explanation)
+    assert "gives one id to 2 rows: 'R0011' in rows 12, 32" in _flat(repeated.explanation)
 
 
 def test_row_names_that_repeat_are_named_alike(tmp_path):
@@ -97,15 +97,15 @@ def test_row_names_that_repeat_are_named_alike(tmp_path):
     rows.to_csv(path, index=False)
     first = cfa_tool.check(MODEL, path).problems[0]
     assert first.kind is ProblemKind.REPEATED_IDS
-    assert _flat(first.explanation).startswith(f"The row names of {path} give 5 rows 2 names that each name more "
-                                               f"than one row: 'R0005' in rows 6, 7; 'R0021' in rows 22, 32, 42")
+    assert _flat(first.explanation).startswith(f"The row names of {path} give 2 names each to more than one row "
+                                               f"(5 rows in all): 'R0005' in rows 6, 7; 'R0021' in rows 22, 32, 42")
 
 
 def test_explore_names_the_repeated_ids_first_by_the_one_rule(tmp_path, capsys):
     """s20: explore named copied rows by its own call and no repeated id; now it composes its cautions as every other
     command does (pipeline.inputs.data_problems), the repeated ids among them."""
     rows = _riders()
-    said = "The id column 'rider_id' gives 5 rows 2 ids that each name more than one row: 'R0005' in rows 6, 7; " \
+    said = "The id column 'rider_id' gives 2 ids each to more than one row (5 rows in all): 'R0005' in rows 6, 7; " \
            "'R0021' in rows 22, 32, 42"
     explored = cfa_tool.explore(rows, factors=3, replications=5, id_column="rider_id")
     [caution] = [p for p in explored.data_problems if p.kind is ProblemKind.REPEATED_IDS]

@@ -94,7 +94,7 @@ def test_repeated_ids_are_noted_by_fit(tmp_path, hs_data):
 
     first = result.problems[0]
     assert first.kind is ProblemKind.REPEATED_IDS
-    assert "The id column 'code' gives 301 rows one id: '007' in rows 2, 3, 4, 5 and 297 more" in first.explanation
+    assert "The id column 'code' gives one id to 301 rows: '007' in rows 2, 3, 4, 5 and 297 more" in first.explanation
     assert not any("repeat" in str(w) for w in result.warnings)
 
 

@@ -381,3 +381,9 @@ def test_an_item_answered_by_few_rows_is_named_first():
     assert sum(p.kind is ProblemKind.FEW_ANSWERS for p in result.problems) == 1
     assert result.to_dict()["problems"][0]["kind"] == "item answered by few rows"
     assert not any(p.kind is ProblemKind.FEW_ANSWERS for p in cfa_tool.fit("factor f: a, b, c, d\n", data).problems)
+    # hostile trial s23 (8): with listwise deletion the 15 rows kept all answer 'e'; the caution said '1 of 15 rows',
+    # the whole file's share applied to the rows kept: it counts the rows read
+    listwise = cfa_tool.fit("factor f: a, b, c, d, e\n", data, missing="listwise")
+    assert listwise.n_obs == 15
+    said = next(p.explanation for p in listwise.problems if p.kind is ProblemKind.FEW_ANSWERS)
+    assert "Few rows answer the item 'e' (15 of 200 rows read)" in said

@@ -28,6 +28,11 @@ def test_other_sheets_with_the_items_are_named_first(rider_demo, rider_model, tm
     assert first.kind is ProblemKind.OTHER_SHEETS_WITH_ITEMS
     assert first.explanation == ("waves.xlsx: only the sheet 'Wave1' was analysed, and the workbook's sheet 'Wave2' "
                                  "holds columns named as every item of the model too.")  # not 'Notes'
+    # the advice pools the sheets only if they are parts of one sample (new-user trial s23: one sheet per wave of the
+    # same people, whose rows pooled would be taken for other people)
+    advice = " ".join(str(first.advice).split())
+    assert advice.startswith("If the sheets hold parts of one sample, put their rows in one sheet")
+    assert "the same people at another time (a wave), do not pool them" in advice
     model = tmp_path / "m.cfa"
     model.write_text(rider_model)
     code, out, _ = run_cli(["fit", model, "--data", book, "--json", tmp_path / "r.json"], capsys)

@@ -301,3 +301,29 @@ def test_a_search_held_at_an_impossible_bound_names_the_bound(hs_data):
     message = str(caught.value)
     assert "variance(x1) (at least 5) was held at the model file's bound" in message
     assert "check that the bounds leave room for the data" in message and caught.value.exit_code == 3
+
+
+def test_a_two_item_factor_not_identified_in_the_data_is_named_with_its_remedy():
+    # hostile trial s23 (09): the items of the two-item factor b barely relate to a's (their factors correlate .2 in
+    # the population; loadings .95 and .35), so b is identified only through a covariance near zero; the error named
+    # no factor and advised a higher limit, which failed at 5,000 iterations.  Invented data, fixed seed.
+    import numpy as np
+    import pandas as pd
+
+    import cfa_tool
+    from cfa_tool.errors import EstimationError
+
+    rng = np.random.default_rng(2)
+    F = rng.multivariate_normal([0, 0], [[1, .2], [.2, 1]], 100)
+    d = {f"a{j + 1}": l * F[:, 0] + rng.normal(0, np.sqrt(1 - l * l), 100) for j, l in enumerate([.7, .7, .6, .6])}
+    d.update({f"b{j + 1}": l * F[:, 1] + rng.normal(0, np.sqrt(1 - l * l), 100) for j, l in enumerate([.95, .35])})
+    frame = pd.DataFrame(d).round(3)
+    with pytest.raises(EstimationError) as raised:
+        cfa_tool.fit("factor a: a1..a4\nfactor b: b1, b2\n", frame)
+    said = str(raised.value)
+    assert "the factor 'b' (b1, b2) has two items and is identified only through its covariances" in said
+    assert "hold its two loadings equal, which identifies a two-item factor ('equal loading(b, b1), loading(b, b2)')" \
+        in said
+    assert "raise the limit" not in said
+    held = cfa_tool.fit("factor a: a1..a4\nfactor b: b1, b2\nequal loading(b, b1), loading(b, b2)\n", frame)
+    assert held.converged  # the remedy advised identifies it

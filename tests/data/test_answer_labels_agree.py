@@ -1,0 +1,96 @@
+"""A data file's value labels against the model's 'answers' statement, and what the reports say of answers read as
+numbers (new-user trial s23, findings 1 and 8).
+
+A Stata or SPSS file stores numbers and labels them; a model's 'answers' statement says what word each code means.
+When the file labels 1 'Strongly agree' and the statement codes 'Strongly agree' as 5, the two disagree about what the
+numbers mean: every factor and score would point the other way, unsaid.  Such a run is refused in one line (exit 2,
+no file altered).  When the file holds numbers alone, no note or methods text may say answers 'recorded as words were
+coded'.  The reference of each fit is the fit of the same numbers without the statement (the statement's words with
+the numbers listed as themselves change no number).  The data are invented (a fictional transit agency's rider
+survey), simulated with a fixed seed.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+pyreadstat = pytest.importorskip("pyreadstat")
+
+import cfa_tool  # noqa: E402
+from cfa_tool.cli import main  # noqa: E402
+from cfa_tool.errors import DataError  # noqa: E402
+from cfa_tool.reporting.paragraph import methods_paragraph  # noqa: E402
+
+ITEMS = ("seat", "clean", "quiet", "driver", "info", "punctual")
+PLAIN = "factor comfort: seat, clean, quiet\nfactor service: driver, info, punctual\n"
+WORDS = ("Strongly disagree", "Disagree", "Neither", "Agree", "Strongly agree")
+STATEMENT = ("answers " + ", ".join(f'"{w}" = {k + 1}' for k, w in enumerate(WORDS))
+             + ", " + ", ".join(f"{k} = {k}" for k in range(1, 6)) + "\n")
+
+
+def _answers(n: int = 300, seed: int = 20261205) -> pd.DataFrame:
+    """Five-point answers of two correlated traits (loadings .7)."""
+    rng = np.random.default_rng(seed)
+    traits = rng.multivariate_normal([0, 0], [[1, .4], [.4, 1]], size=n)
+    return pd.DataFrame({x: np.digitize(.7 * traits[:, k // 3] + rng.normal(0, .7, n), [-1.2, -.4, .4, 1.2]) + 1.0
+                         for k, x in enumerate(ITEMS)})
+
+
+def _stata(path, frame: pd.DataFrame, reversed_labels: bool) -> None:
+    order = WORDS[::-1] if reversed_labels else WORDS
+    pyreadstat.write_dta(frame, str(path),
+                         variable_value_labels={x: {k + 1: w for k, w in enumerate(order)} for x in ITEMS})
+
+
+def test_labels_that_run_the_other_way_from_the_statement_are_refused(tmp_path, capsys):
+    data = tmp_path / "wave.dta"
+    _stata(data, _answers(), reversed_labels=True)
+    (tmp_path / "m.cfa").write_text(PLAIN + STATEMENT)
+    before = {p.name: p.read_bytes() for p in tmp_path.iterdir()}
+    with pytest.raises(DataError, match=r"value labels of column 'seat' name 1 'Strongly agree', which the 'answers' "
+                                        r"statement on line 3 codes as 5 \(6 columns' labels disagree so\)"):
+        cfa_tool.fit(PLAIN + STATEMENT, data)
+    for command in ("fit", "check"):
+        assert main([command, str(tmp_path / "m.cfa"), "--data", str(data)]) == 2
+        err = capsys.readouterr().err
+        assert "Traceback" not in err and len(err.strip().splitlines()) == 1
+        assert "the file and the statement disagree about what the numbers mean" in err
+    assert {p.name: p.read_bytes() for p in tmp_path.iterdir()} == before
+
+
+def test_labels_that_agree_with_the_statement_fit_as_the_numbers_do_and_say_numbers(tmp_path):
+    frame = _answers()
+    data = tmp_path / "wave.dta"
+    _stata(data, frame, reversed_labels=False)
+    coded = cfa_tool.fit(PLAIN + STATEMENT, data)
+    plain = cfa_tool.fit(PLAIN, frame)  # the reference: the same numbers, no statement
+    assert coded.fit.chi_square == pytest.approx(plain.fit.chi_square, rel=1e-10)
+    paragraph = " ".join(methods_paragraph(coded).split())
+    assert "recorded as words" not in paragraph
+    assert "Answers were recorded as the numbers 1 (Strongly disagree) to 5 (Strongly agree)." in paragraph
+    notes = " ".join(" ".join(str(w) for w in coded.warnings).split())
+    assert "recorded as words" not in notes and "were numbers, which mean 1 (Strongly disagree)" in notes
+    assert coded.to_dict()["data"]["answers_read_as_numbers"] == list(ITEMS)
+
+
+def test_a_file_of_words_still_says_words_and_a_mixed_file_says_each(tmp_path):
+    frame = _answers()
+    words = frame.copy()
+    for x in ITEMS[:3]:  # the comfort items written as words, the service items as numbers
+        words[x] = frame[x].map(lambda v: WORDS[int(v) - 1])
+    path = tmp_path / "mixed.csv"
+    words.to_csv(path, index=False)
+    result = cfa_tool.fit(PLAIN + STATEMENT, path)
+    reference = cfa_tool.fit(PLAIN, frame)
+    assert result.fit.chi_square == pytest.approx(reference.fit.chi_square, rel=1e-10)
+    paragraph = " ".join(methods_paragraph(result).split())
+    assert ("Answers recorded as words were coded 1 (Strongly disagree) to 5 (Strongly agree); the numbers 1 to 5 "
+            "kept their values for seat, clean, and quiet.") in paragraph
+    assert ("Answers were recorded as the numbers 1 (Strongly disagree) to 5 (Strongly agree) for driver, info, and "
+            "punctual.") in paragraph
+    notes = [" ".join(str(w).split()) for w in result.warnings if "answers" in str(w)]
+    assert any(n.startswith("answers recorded as words in 3 items (seat, clean, quiet) were coded") for n in notes)
+    assert any(n.startswith("the answers in 3 items (driver, info, punctual) were numbers, which mean 1 (Strongly "
+                            "disagree) to 5 (Strongly agree)") for n in notes)
