@@ -9,15 +9,16 @@ commands against each other: no number is asserted."""
 from __future__ import annotations
 
 import shutil
-import tomllib
 from pathlib import Path
 
 import pytest
 
 from cfa_tool.cli import main
+from tests.commands import test_bad_inputs as bad_inputs
+from tests.commands.test_bad_inputs import CASES, CORPUS, _argv
 
-CORPUS = Path(__file__).parent / "bad_inputs"
-CASES = tomllib.loads((CORPUS / "cases.toml").read_text())["case"]
+corpus = bad_inputs.corpus  # the fixture: a copy of the corpus, the working folder
+
 OUTPUTS = {"--json", "--html", "--markdown", "--docx", "--tables", "--diagram"}
 # the options of a fit that check takes too, each with the number of values it takes
 SHARED = {"--data": 1, "--group-column": 1, "--group": 1, "--sheet": 1, "--names-row": 1, "--first-data-row": 1,
@@ -31,15 +32,12 @@ NOT_WITHOUT_FITTING = {
 
 
 def _fit_argv(case: dict) -> list[str] | None:
-    """A case's fit as the corpus runs it (tests/commands/test_bad_inputs.py), or None for another command."""
-    data, model = f"data/{case.get('data', 'good.csv')}", f"models/{case.get('model', 'good.cfa')}"
-    if "argv" in case:
-        argv = [a.replace("{data}", data).replace("{model}", model) for a in case["argv"]]
-        return argv if argv[:1] == ["fit"] else None
-    args = [a.replace("{data}", data).replace("{model}", model) for a in case["args"]]
-    if any(a.split("=", 1)[0] in OUTPUTS for a in args if a.startswith("--")):
-        return None  # a case about the outputs, not the model or the data
-    return ["fit", model, "--data", data, "--json", "out.json", "--html", "out.html", *args]
+    """A case's fit as the corpus runs it (tests/commands/test_bad_inputs.py), or None for another command and for
+    a case about the outputs rather than the model or the data."""
+    argv = _argv(case)
+    if argv[:1] != ["fit"] or any(a.split("=", 1)[0] in OUTPUTS for a in case.get("args", ()) if a.startswith("--")):
+        return None
+    return argv
 
 
 def _check_argv(fit: list[str]) -> list[str] | None:
@@ -89,16 +87,9 @@ def test_most_of_the_corpus_is_compared():
     assert set(NOT_WITHOUT_FITTING) <= {c["name"] for c in CASES}
 
 
-@pytest.fixture()
-def corpus(tmp_path, monkeypatch) -> Path:
-    work = tmp_path / "corpus"
-    shutil.copytree(CORPUS, work)
-    monkeypatch.chdir(work)
-    return work
-
-
 @pytest.mark.parametrize("name, fit, check", COMPARED, ids=[name for name, _, _ in COMPARED])
-def test_check_refuses_what_fit_refuses(name, fit, check, corpus, capsys):
+@pytest.mark.usefixtures("corpus")
+def test_check_refuses_what_fit_refuses(name, fit, check, capsys):
     fit_code, fit_line = _first_line(fit, capsys)
     check_code, check_line = _first_line(check, capsys)
     if fit_code == 0:
