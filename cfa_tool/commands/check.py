@@ -33,10 +33,13 @@ def run(args: argparse.Namespace) -> int:
     found = check(Path(args.model), args.data, group=args.group, ordinal=O.ordinal_arg(args.ordinal),
                   id_column=args.id, **O.reading_args(args), **O.design_args(args))
     emit(args, found)
-    if found.refusals:  # listed in the report, each with its place; the exit code says the data cannot be fitted
-        from cfa_tool.reporting.workflow_tables import stops_ordinal_fit
+    if found.refusals or found.stops_fit:  # the line a fit of the same model and data stops with, first; the exit
+        # code says the data cannot be fitted
+        print(f"cfa-tool: {printable(found.refusals[0] if found.refusals else found.stops_fit)}", file=sys.stderr)
+        if found.refusals:  # listed in the report, each with its place (a fit names the first alone)
+            from cfa_tool.reporting.workflow_tables import stops_ordinal_fit
 
-        print(f"cfa-tool: {printable(found.source)}: {stops_ordinal_fit(len(found.refusals))} (listed first in the "
-              f"report)", file=sys.stderr)
+            print(f"cfa-tool: {printable(found.source)}: {stops_ordinal_fit(len(found.refusals))} (listed first in "
+                  f"the report)", file=sys.stderr)
         return DataError.exit_code
     return 0

@@ -44,10 +44,13 @@ def run(args: argparse.Namespace) -> int:
     if args.group_sizes is not None:
         given = [flag for flag, value in (("--n", args.n), ("--categories", args.categories),
                                           ("--ordinal-estimator", args.ordinal_estimator)) if value is not None]
+        if given and given[0] == "--n":
+            raise OptionError("--n cannot apply with --group-sizes: the group sizes replace it; leave it out")
         if given:
-            why = ("the group sizes replace it" if given[0] == "--n" else
-                   "planning with groups simulates continuous answers")
-            raise OptionError(f"{given[0]} cannot apply with --group-sizes: {why}; leave it out")
+            from cfa_tool.workflows.group_population import answers_in_categories_refused
+
+            raise OptionError(f"{given[0]} cannot apply with --group-sizes: "
+                              + answers_in_categories_refused(f"plan continuous answers without {given[0]}"))
     elif args.n is None:
         raise OptionError("give the sample size (--n 300), or the groups and their sizes to plan an invariance study "
                           "(--group-sizes north=300,south=200)")

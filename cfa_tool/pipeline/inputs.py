@@ -2514,7 +2514,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     every refusal of their answers that such a fit stops at first is listed (``refusals``), and for ordinal items or
     items of few answer categories the answers per category of every item (``answers``, per group).  ``id_column``:
     the column that names each row (never analysed), beside the row numbers of the cautions about rows, as for
-    :func:`fit`."""
+    :func:`fit`.  The model is read by the fit's own rules (:func:`ordinal_model`, pipeline.ordinal.one_group_model
+    and groups_model), so that check refuses what fit refuses on the model and the data, with the same words, and
+    accepts what fit accepts; where a fit of continuous items would stop on the data, its line is ``stops_fit``."""
     from cfa_tool.assessment.admissibility import group_parameter_counts, group_size_problems, one_sample_size_problems
     from cfa_tool.assessment.identification import check_counting_rule, moments_count
     from cfa_tool.model.parameters import build_parameter_table
@@ -2525,15 +2527,12 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                     "rename": rename}
     design = design_columns(weights, cluster, strata, weight_kind)
     if summary_source(data):
-        refuse_row_options(f"'{data}'", group=group, **read_options)
-        if id_column is not None:
-            raise OptionError(f"summary statistics hold no rows, so an id column ({Option.ID_COLUMN}) cannot apply; "
-                              f"leave it out")
+        refuse_row_options(f"'{data}'", group=group, id_column=id_column, **read_options)  # in fit's order, its words
+        if reference_group is not None:
+            raise OptionError("a reference group needs groups, and summary statistics describe one group")
         if design is not None:
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")
-        if reference_group is not None:
-            raise OptionError("a reference group needs groups, and summary statistics describe one group")
         spec = load_spec(model)
         refuse_for_summary(spec, f"'{data}'", ordinal)
         moments, _ = read_summary_file(data)
@@ -2554,7 +2553,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     if design is not None:
         frame, design_notes = check_design(frame, design, spec.observed_names, group, source, loaded.weights)
         notes += design_notes
-    ordinal_items = ordinal_items_of(spec, ordinal)
+    spec, ordinal_items = ordinal_model(spec, ordinal)  # the model as fit reads it, and its rules below
     refusals = ()
     if ordinal_items:  # every refusal of the answers' categories at once, then the fit's other data checks
         from cfa_tool.data.groups import ordinal_refusals
@@ -2566,12 +2565,15 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                                     reference_group)
     thresholds = 0  # of an ordinal fit in one group, estimated first: the design-based covariance carries them too
     ordinal_small = ((), ())  # the rule of rows per parameter as the ordinal fit judges it (its rows, its model)
-    first_step_table = None  # a one-group ordinal fit's model, its thresholds estimated first and outside it
+    ordinal_table = None  # the model an ordinal fit estimates, read and refused by the fit's own rules
     if ordinal_items and not refusals:  # the same data checks as the fit (correlations, duplicates, the design's)
+        from cfa_tool.pipeline import ordinal as ordinal_fitting
+
         if group is not None:
             ordinal_parts, _ = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items,
                                               pairwise=True, design=design)
-            ordinal_small = _ordinal_group_sizes(spec, ordinal_parts)
+            ordinal_table = ordinal_fitting.groups_model(spec, ordinal_parts)[0]
+            ordinal_small = group_size_problems(ordinal_table, [m.n_obs for _, m in ordinal_parts])
         else:
             from cfa_tool.data.polychoric import ordinal_moments
 
@@ -2579,15 +2581,13 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                 frame, spec.observed_names, source, frozenset(x for x in spec.observed_names if x not in ordinal_items),
                 pairwise=True, design=design)
             thresholds = sum(len(t) for t in first_step.thresholds)
-            from cfa_tool.pipeline.ordinal import ordinal_spec
-
             # judged as the fit's result judges it (pipeline.results.fit_result): the parameters of the model it
-            # estimates, pipeline.ordinal.ordinal_spec
-            first_step_table = build_parameter_table(ordinal_spec(spec)[0])
-            ordinal_small = one_sample_size_problems(first_step.n_obs, first_step_table.n_free,
-                                                     first_step_table.free_labels)
+            # estimates
+            ordinal_table = ordinal_fitting.one_group_model(spec)[2]  # its thresholds estimated first, outside it
+            ordinal_small = one_sample_size_problems(first_step.n_obs, ordinal_table.n_free, ordinal_table.free_labels)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
     sparse, too_small = (), ()
+    stops = ""  # the refusal a fit of continuous items stops with, which a check names after its findings
     try:  # the saturated (EM) moments once; where they cannot be estimated, whether the gaps are why
         groups, group_notes = moments_for(spec, frame, source, group, reference_group, missing=options.missing,
                                           design=design)
@@ -2596,7 +2596,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         groups, group_notes = _rows_answering(parts, without, frame, group,
                                               complete_only=options.missing is not MissingData.FULL_INFORMATION)
         too_small = _small_group_problems(refused)
-    except (DataError, EstimationError):
+        stops = "" if ordinal_items else str(refused)
+    except (DataError, EstimationError) as refused:
         if options.missing is not MissingData.FULL_INFORMATION or design is not None:
             raise
         parts, without = _group_parts(spec, frame, source, group, reference_group)
@@ -2606,10 +2607,13 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
             raise
         # the rows are reported, with the caution that a fit of them stops (no saturated model to estimate)
         groups, group_notes = _rows_answering(parts, without, frame, group)
+        stops = str(refused) if isinstance(refused, DataError) and not ordinal_items else ""
     notes += group_notes
     labels = tuple(label for label, _ in groups) if group is not None else None
-    table = build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION)
-    check_counting_rule(spec, table)
+    table = ordinal_table  # an ordinal fit's model was read and checked by its own rules above
+    if not ordinal_items:
+        table = build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION)
+        check_counting_rule(spec, table)
     # the rows per parameter of the sample or of each group, by the fit's rule (an ordinal fit's thresholds: counted
     # by the fit)
     small, small_notes = ordinal_small if ordinal_items else group_size_problems(table, [m.n_obs for _, m in groups]) \
@@ -2618,9 +2622,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     small = too_small + tuple(p for p in small if p.group not in named)
     notes += small_notes
     sample_design = design_summary(frame, design, [m for _, m in groups], [g for g, _ in groups]) if design is not None else None
-    carried = table.n_free  # the parameters a design-based covariance carries, counted as the fit counts them
-    if first_step_table is not None and sample_design is not None:  # an ordinal fit's latent responses: residual
-        carried = first_step_table.n_free  # variances not free
+    # the parameters a design-based covariance carries, counted as the fit counts them (an ordinal fit's: its own
+    # model's, in one group the latent responses' residual variances not free)
+    carried = table.n_free if table is not None else 0
     answered = _labelled(frame, group)[list(spec.observed_names)].notna()
     every_item = answered.all(axis=1).to_numpy()
     # complete rows that are complete only by values that look like no answers (the cautions' rows)
@@ -2657,21 +2661,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        row_naming=row_naming(frame), text_lines=dict(text_lines(frame)),
                        answers=_answers_per_category(spec, frame, source, group, reference_group, ordinal_items,
                                                      loaded),
-                       refusals=refusals, group_coverage=_group_coverage(spec, frame, source, group, reference_group),
+                       refusals=refusals, stops_fit=stops,
+                       group_coverage=_group_coverage(spec, frame, source, group, reference_group),
                        degrees_of_freedom=None if ordinal_items else moments_count(table) - table.n_free)
-
-
-def _ordinal_group_sizes(spec: Spec, groups: list) -> tuple[tuple, tuple[str, ...]]:
-    """The rule of rows per parameter of each group of an ordinal fit (assessment.admissibility.group_size_problems),
-    judged as pipeline.ordinal.assess_ordinal_groups judges it: the model of the groups with each ordinal item's
-    thresholds, and each group's rows of its ordinal moments (``groups``, as :func:`ordinal_groups` gives them)."""
-    from cfa_tool.assessment.admissibility import group_size_problems
-    from cfa_tool.model.parameters import build_parameter_table
-    from cfa_tool.pipeline.ordinal import threshold_counts
-
-    moments = [m for _, m in groups]
-    table = build_parameter_table(spec, tuple(label for label, _ in groups), ordinal=threshold_counts(moments[0]))
-    return group_size_problems(table, [m.n_obs for m in moments])
 
 
 def _group_coverage(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,

@@ -155,6 +155,22 @@ def ordinal_spec(spec: Spec) -> tuple[Spec, set[str]]:
     return dc_replace(spec, fixed=spec.fixed + ((ValueSetting(refs, 1.0),) if refs else ())), derived_items
 
 
+def one_group_model(spec: Spec) -> tuple[Spec, set[str], ParameterTable]:
+    """The model a one-group ordinal fit estimates (:func:`ordinal_spec`), the items whose residual variance follows
+    from it, and its parameter table, refused as that fit refuses it: a statement on an item's residual variance,
+    more free parameters than the items' correlations.  The one reading of the model that :func:`fit_ordinal` and a
+    check of the same model and options (pipeline.inputs.check) share, so that check refuses what fit refuses, with
+    the same line, and accepts what fit accepts."""
+    fixed_spec, derived_items = ordinal_spec(spec)
+    table = build_parameter_table(fixed_spec)
+    p = table.p
+    n_corr = p * (p - 1) // 2
+    if table.n_free > n_corr:
+        raise OptionError(f"the model has {table.n_free} free parameters but {p} ordinal items give only {n_corr} "
+                          f"correlations, so it cannot be identified")
+    return fixed_spec, derived_items, table
+
+
 def _category_counts(moments, order: list[int]) -> tuple:
     """Per item (in model order), each answer value with the number of rows giving it (empty for continuous
     items analysed beside the ordinal ones)."""
@@ -269,13 +285,9 @@ def _weight_variances(moments, observed: tuple[str, ...] | None = None) -> np.nd
 def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weighting.DIAGONAL) -> FitResult:
     """Least squares on polychoric correlations, with robust standard errors and adjusted tests."""
     method = _check_method(method)
-    fixed_spec, derived_items = ordinal_spec(spec)
-    table = build_parameter_table(fixed_spec)
+    fixed_spec, derived_items, table = one_group_model(spec)
     p = table.p
     n_corr = p * (p - 1) // 2
-    if table.n_free > n_corr:
-        raise OptionError(f"the model has {table.n_free} free parameters but {p} ordinal items give only {n_corr} "
-                          f"correlations, so it cannot be identified")
     order = [moments.names.index(n) for n in table.observed]
     R, gamma = correlations_in_order(moments, table.observed)
     pairs = np.tril_indices(p, -1)
@@ -462,6 +474,27 @@ def _heywood_responses(objective: OrdinalLeastSquares, theta: np.ndarray) -> np.
     return np.array(out)
 
 
+def groups_model(spec: Spec, groups: list) -> tuple[ParameterTable, list, list]:
+    """The parameter table an ordinal fit of several groups estimates (each ordinal item's thresholds among its
+    parameters), refused as that fit refuses it: the model's statements on thresholds and on the ordinal items'
+    intercepts and residual variances (model.parameters.build_parameter_table), more free parameters than the groups'
+    statistics; with each group's moments in the model's order and their statistics.  ``groups``: (label, ordinal
+    moments), as pipeline.inputs.ordinal_groups gives them.  The one reading of the model that
+    :func:`estimate_ordinal_groups` and a check of the same model and groups (pipeline.inputs.check) share."""
+    labels = tuple(label for label, _ in groups)
+    moments = _in_model_order(groups, spec.observed_names)
+    if any(m.continuous != moments[0].continuous for m in moments[1:]):
+        raise ValueError("every group must treat the same items as continuous")
+    table = build_parameter_table(spec, labels, ordinal=threshold_counts(moments[0]))
+    data = [m.statistics() for m in moments]
+    n_stats = sum(len(values) for values, _ in data)
+    if table.n_free > n_stats:
+        what = "thresholds, means, variances" if len(moments[0].continuous_positions) else "thresholds"
+        raise OptionError(f"the model has {table.n_free} free parameters but the groups' {what} and correlations "
+                          f"give only {n_stats} statistics, so it cannot be identified")
+    return table, moments, data
+
+
 def estimate_ordinal_groups(spec: Spec, groups: list, options, method: Weighting | str = Weighting.DIAGONAL,
                             start: np.ndarray | None = None, correlation_metric: bool = False) -> OrdinalEstimation:
     """Build the multi-group ordinal model and minimise its least-squares discrepancy.  Continuous items
@@ -478,18 +511,9 @@ def estimate_ordinal_groups(spec: Spec, groups: list, options, method: Weighting
     method = _check_method(method)
     labels = tuple(label for label, _ in groups)
     observed = spec.observed_names
-    moments = _in_model_order(groups, observed)
-    if any(m.continuous != moments[0].continuous for m in moments[1:]):
-        raise ValueError("every group must treat the same items as continuous")
+    table, moments, data = groups_model(spec, groups)
     n_thresholds = threshold_counts(moments[0])
     continuous = moments[0].continuous_positions
-    table = build_parameter_table(spec, labels, ordinal=n_thresholds)
-    data = [m.statistics() for m in moments]
-    n_stats = sum(len(values) for values, _ in data)
-    if table.n_free > n_stats:
-        what = "thresholds, means, variances" if len(continuous) else "thresholds"
-        raise OptionError(f"the model has {table.n_free} free parameters but the groups' {what} and correlations "
-                          f"give only {n_stats} statistics, so it cannot be identified")
     model = StructuredModel(table)
     statistics = [group_statistics(values, gamma, m.n_obs, method is Weighting.DIAGONAL, _weight_variances(m),
                                    m.domains_gamma) for (values, gamma), m in zip(data, moments)]

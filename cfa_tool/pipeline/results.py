@@ -130,6 +130,10 @@ class CheckResult(Presentable):
     answers: tuple = ()
     #: what stops an ordinal fit of these data, each refusal with its place, all of them (a fit stops at the first)
     refusals: tuple[str, ...] = ()
+    #: the one line a fit of these rows (continuous items) stops with, its refusal's words, "" when none: the groups
+    #: too small to analyse, rows with gaps that leave the saturated model without an estimate; their cautions are
+    #: among ``problems``
+    stops_fit: str = ""
     #: each group's share of the model variables' cells its rows answered, (label, share) in the groups' order; ()
     #: without groups
     group_coverage: tuple[tuple[str, float], ...] = ()

@@ -155,15 +155,13 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         fit_options = design_test(fit_options, design)
     group_column(group)
     if summary_source(data):
-        refuse_row_options(f"'{data}'", sheet, missing_codes, keep, group, names_row=names_row, first_data_row=first_data_row, rename=rename)
+        refuse_row_options(f"'{data}'", sheet, missing_codes, keep, group, id_column, names_row=names_row,
+                           first_data_row=first_data_row, rename=rename)
         for spec in specs:  # an estimator without ordinal items is refused above
             refuse_for_summary(spec, f"'{data}'", ordinal)
         if design is not None:
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")
-        if id_column is not None:
-            raise OptionError(f"summary statistics hold no rows, so an id column ({Option.ID_COLUMN}) cannot apply; "
-                              f"leave it out")
         return _some_estimated(_compare_summary(specs, names, data, fit_options, group))
     refuse_different_codings(specs, names)
     _, loaded, notes = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep,

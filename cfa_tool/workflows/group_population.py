@@ -139,6 +139,24 @@ def check_groups_named(spec: Spec, labels: tuple[str, ...]) -> None:
                           f"{'their sizes' if len(missing) > 1 else 'its size'} or correct the name")
 
 
+def answers_in_categories_refused(instead: str) -> str:
+    """Why a plan of several groups (power-simulation --group-sizes) takes no answers in categories, and what to do
+    instead: the one wording of each such refusal (an 'ordinal' or 'answers' statement, the number of categories or
+    an ordinal estimator given, an ordinal fit as the population), ``instead`` saying how to plan continuous answers
+    from what was given.  The ladder of ordinal items holds thresholds equal first (Wu & Estabrook 2016), which the
+    plan's ladder of continuous items does not simulate, and answers cut into a few categories carry less information
+    than the continuous answers behind them (Cohen 1983, The cost of dichotomization, recalled from memory: a median
+    split leaves a correlation about .8 of its value), so a plan of continuous answers is likely optimistic: the sizes
+    it finds are the least the study needs, not enough."""
+    return (f"planning an invariance study ({check.Option.GROUP_SIZES}) does not simulate answers in categories yet: "
+            f"the ladder of ordinal items (thresholds held equal first; Wu & Estabrook 2016) is not simulated, and a "
+            f"plan of continuous answers would misstate answers in a few categories, which carry less information "
+            f"(its power likely too high, its group sizes too small); instead, {instead} and take the group sizes it "
+            f"finds as the least the study needs, and check that each group's size estimates the model in the "
+            f"categories with the power of one group (without {check.Option.GROUP_SIZES}), which simulates and fits "
+            f"answers in categories")
+
+
 def group_population(spec: Spec, labels: tuple[str, ...], configural: Spec, fitted=None) -> GroupPopulation:
     """The population of each group in ``labels`` (the first the reference group), with ``configural`` the model
     with no equality across groups (whose table lays out every group's parameters); ``fitted``: an earlier
@@ -150,8 +168,9 @@ def group_population(spec: Spec, labels: tuple[str, ...], configural: Spec, fitt
     shared = population_from_spec(_shared_only(spec), fitted)
     if fitted is not None:
         if shared.thresholds is not None:
-            raise OptionError(f"{shared.fitted_from}: the fit is of ordinal items, and planning with groups simulates "
-                              f"continuous answers; give a continuous fit of the model")
+            raise OptionError(f"{shared.fitted_from}: the fit is of ordinal items, and "
+                              + answers_in_categories_refused("plan continuous answers from a continuous fit of the "
+                                                              "items"))
         shared = replace(shared, means=None, means_from=ItemMeans.GROUPS)
     shared_model = StructuredModel(shared.table)
     value_of = {(par.kind, par.variables): float(v) for par, v in

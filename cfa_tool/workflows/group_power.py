@@ -30,7 +30,8 @@ from cfa_tool.method import DifferenceMethod
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.plain import clean
 from cfa_tool.views import Presentable
-from cfa_tool.workflows.group_population import GroupPopulation, designs_of, group_population
+from cfa_tool.workflows.group_population import (GroupPopulation, answers_in_categories_refused, designs_of,
+                                                  group_population)
 from cfa_tool.workflows.invariance import LEVELS, NormalLadder, ref_kind, rejected_by_test, spec_of_level
 from cfa_tool.workflows.nesting import NESTING_TOLERANCE
 from cfa_tool.workflows.parallel import run_tasks
@@ -374,12 +375,10 @@ def invariance_power(model: str | Path | Spec, group_sizes: str | Mapping[str, i
 
 
 def _refuse_answers_in_categories(spec: Spec) -> None:
-    """An 'ordinal' or 'answers' statement refused at its line (its source line shown), saying why and what to do:
-    planning with groups simulates continuous answers, fitted by the ladder of continuous items, and items answered in
-    a few categories are not continuous answers, whose power a plan of continuous ones would misstate; the ladder of
-    ordinal items (thresholds first, Wu & Estabrook 2016) is not yet simulated.  What remains: a plan of continuous
-    answers from a copy of the model file without the statement, or the power of one group's answers in the
-    categories (power-simulation without group sizes, which simulates and fits them)."""
+    """An 'ordinal' or 'answers' statement refused at its line (its source line shown), saying why and what to do
+    (group_population.answers_in_categories_refused): planning with groups simulates continuous answers, fitted by the
+    ladder of continuous items, and items answered in a few categories are not continuous answers, whose power a plan
+    of continuous ones would overstate."""
     if not spec.ordinal and not spec.answers:
         return
     if spec.ordinal:
@@ -392,13 +391,9 @@ def _refuse_answers_in_categories(spec: Spec) -> None:
                    f"{len(items)} items ('{printable(items[0])}' first)") if items else "no item of the model"
         what, location = (f"{coding.origin} records the answers of {covered} in {len(coding.codes())} categories",
                           coding.location)
-    raise ModelError(f"{what}, and planning an invariance study ({check.Option.GROUP_SIZES}) simulates continuous "
-                     f"answers, which a plan of answers in a few categories would misstate (the ladder of ordinal "
-                     f"items is not yet simulated); remove the statement from a copy of the model file to plan for "
-                     f"continuous answers (a continuous fit made with it still gives the population, "
-                     f"{check.Option.POPULATION_FROM}), or plan the power of one group, which simulates and fits "
-                     f"answers in categories (without {check.Option.GROUP_SIZES})", location,
-                     spec.source_line(location))
+    instead = ("plan continuous answers from a copy of the model file without the statement (a continuous fit made "
+               f"with it still gives the population, {check.Option.POPULATION_FROM})")
+    raise ModelError(f"{what}, and {answers_in_categories_refused(instead)}", location, spec.source_line(location))
 
 
 def _design_power(ladder, design: tuple[int, ...], replications: int, draws: list[_Draw], truth, alpha: float

@@ -1,6 +1,6 @@
 """``check``, the data screen run first, reports rows whose gaps leave full-information ML's saturated model without
 an estimate (a pair of items no row answers together; answers so sparse that EM finds no maximum) with a caution
-naming the items, instead of stopping (exit 2 or 3) as a fit of them does.  Check values are planted by construction:
+naming the items, then stops with the fit's line (exit 2) where a fit of them stops on the data.  Check values are planted by construction:
 in the first data set x1 and x2 are never answered by one row; in the second each of 15 rows answers exactly one pair
 of 6 items, so every pair is answered together by one row and no row answers all 6."""
 
@@ -66,7 +66,11 @@ def test_answers_too_sparse_for_em_are_a_caution_with_the_least_answered_pair(tm
     model.write_text("factor f: x1..x6\n")
     code = main(["check", str(model), "--data", str(path)])
     out = capsys.readouterr()
-    assert code == 0, out.err
+    # every finding reported, then the line the fit stops with and its exit code (plan s23: check refuses what fit
+    # refuses, with the same line)
+    assert code == 2, out.err
+    assert out.err.startswith(f"cfa-tool: {path}: 'x1' has only 5 answers (rows 2, 3, 4, 5, 6); full-information ML "
+                              f"needs at least 7 answers"), out.err
     flat = " ".join(out.out.split()).replace("│ ", "").replace(" │", "")
     assert "answer too few items together for the saturated model of full-information ML" in flat
     assert "(--incomplete-rows listwise) would keep 0 complete rows" in flat

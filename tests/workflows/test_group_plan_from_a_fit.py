@@ -77,7 +77,7 @@ def test_a_fit_of_groups_and_an_ordinal_fit_are_refused(hs_data, fitted):
     for x in [f"x{i}" for i in range(1, 10)]:
         cut[x] = np.digitize(cut[x], np.quantile(cut[x], [.25, .5, .75])) + 1
     ordinal = cfa_tool.fit(THREE_FACTORS, cut, ordinal="all")
-    with pytest.raises(OptionError, match="the fit is of ordinal items, and planning with groups simulates continuous"):
+    with pytest.raises(OptionError, match="the fit is of ordinal items, and planning an invariance study .* does not simulate answers in categories"):
         invariance_power(THREE_FACTORS, "west=200,east=200", replications=2, workers=1, population=ordinal)
 
 

@@ -10,9 +10,11 @@ from __future__ import annotations
 import json
 
 import numpy as np
+import pandas as pd
 import pytest
 from scipy import optimize, stats
 
+import cfa_tool
 from cfa_tool.cli import main
 from cfa_tool.errors import ModelError, OptionError
 from cfa_tool.workflows.group_power import StepRole, invariance_power
@@ -190,10 +192,52 @@ def test_answers_in_categories_are_refused_at_their_statement_saying_why_and_wha
     err = capsys.readouterr().err
     line = ONE_FACTOR.count("\n") + 1
     assert f"cfa-tool: {path.parent / said.format(line=line)}" in err and "Traceback" not in err
-    assert "planning an invariance study (--group-sizes) simulates continuous answers" in err
-    assert "remove the statement from a copy of the model file" in err  # the plan of continuous answers
-    assert "plan the power of one group, which simulates and fits answers in categories" in err
+    assert "planning an invariance study (--group-sizes) does not simulate answers in categories yet" in err
+    assert "plan continuous answers from a copy of the model file without the statement" in err
+    assert "with the power of one group (without --group-sizes), which simulates and fits answers in categories" in err
     assert err.splitlines()[1].strip() == statement.strip()  # the statement's line shown under the message
+
+
+WHY_AND_INSTEAD = (
+    # why: the ordinal ladder is not simulated, and a continuous plan overstates answers in categories
+    "does not simulate answers in categories yet: the ladder of ordinal items (thresholds held equal first; Wu & "
+    "Estabrook 2016) is not simulated, and a plan of continuous answers would misstate answers in a few categories, "
+    "which carry less information (its power likely too high, its group sizes too small); instead, ",
+    # what instead, and how to read it
+    " and take the group sizes it finds as the least the study needs, and check that each group's size estimates the "
+    "model in the categories with the power of one group (without --group-sizes)")
+
+
+@pytest.mark.parametrize("statement, extra, instead", [
+    ("ordinal x1\n", [], "plan continuous answers from a copy of the model file without the statement (a continuous fit made with it "
+     "still gives the population, --population-from)"),
+    ('answers "no" = 0, "yes" = 1 for x2, x3\n', [],
+     "plan continuous answers from a copy of the model file without the statement (a continuous fit made with it "
+     "still gives the population, --population-from)"),
+    ("", ["--categories", "4"], "plan continuous answers without --categories"),
+    ("", ["--ordinal-estimator", "unweighted"], "plan continuous answers without --ordinal-estimator"),
+    ("", ["--population-from", "ORDINAL"], "plan continuous answers from a continuous fit of the items"),
+])
+def test_every_refusal_of_answers_in_categories_says_why_and_what_to_plan_instead(statement, extra, instead, tmp_path,
+                                                                                  capsys):
+    # plan s23, item 2: ordinal planning over groups is refused (the ladder of ordinal items is not simulated); each
+    # refusal says why, and what to plan instead and how to read it: before, the statements' refusal advised the
+    # continuous plan it had just said would misstate the answers, and --categories or an ordinal fit as the
+    # population said only that groups simulate continuous answers
+    path = tmp_path / "plan.cfa"
+    path.write_text(ONE_FACTOR + statement)
+    if extra[-1:] == ["ORDINAL"]:
+        rng = np.random.default_rng(3)
+        factor = rng.normal(size=300)
+        rows = pd.DataFrame({x: np.digitize(0.7 * factor + rng.normal(scale=0.7, size=300), [-0.5, 0.5]) + 1
+                             for x in ("x1", "x2", "x3", "x4")})
+        fitted = cfa_tool.fit(ONE_FACTOR, rows, ordinal="all")
+        (tmp_path / "fit.json").write_text(json.dumps(fitted.to_dict()))
+        extra = [extra[0], str(tmp_path / "fit.json")]
+    assert main(["power-simulation", str(path), "--group-sizes", "north=100,south=100", "--replications", "2",
+                 *extra]) == 2
+    first = capsys.readouterr().err.splitlines()[0]
+    assert WHY_AND_INSTEAD[0] + instead + WHY_AND_INSTEAD[1] in first, first
 
 
 @pytest.mark.parametrize("extra, words", [
