@@ -599,10 +599,12 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
             if numbers is not None and both:
                 from cfa_tool.data.kept_rows import rows_listed
 
-                both = f"{both} ({rows_listed(numbers[answered][observed[:, i] & observed[:, j]], naming=naming)})"
+                both = f"{count_text(both)} ({rows_listed(numbers[answered][observed[:, i] & observed[:, j]], naming=naming)})"
+            else:
+                both = count_text(both)
             more = f" ({len(sparse) - 1} more such pair{'s' if len(sparse) > 2 else ''})" if len(sparse) > 1 else ""
             raise EstimationError(
-                f"{source}: {error}; only {count_text(both)} of its {count_text(n)} rows answer both '{printable(a)}' and '{printable(b)}'"
+                f"{source}: {error}; only {both} of its {count_text(n)} rows answer both '{printable(a)}' and '{printable(b)}'"
                 f"{more}, so their covariance rests on those rows (fewer than a tenth of the rows: a rule of thumb of "
                 f"this project). What to try: take one of the two items out of the model, or analyse rows that "
                 f"answer both") from None
