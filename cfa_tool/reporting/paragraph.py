@@ -325,25 +325,29 @@ def _parameter(ref: tuple, d) -> str:
     return parameter_words(kind, tuple(names), group, d.indicators, quoted=True, groups=d.groups)
 
 
-def _set_apart(d) -> str:
-    """From what a parameter set apart in one group ('in group audit: noninvariant intercept(x2)') is set apart: the
-    other group's, with two groups; with more, the other groups', which stay held equal among themselves (not
-    'estimated freely': the first group's mean set apart stays 0, the origin, and a 'fix' in that group may follow)."""
-    if len(d.groups) == 2:
+def set_apart_words(groups: int, verb: str) -> str:
+    """From what a parameter set apart in one group ('in group audit: noninvariant intercept(x2)') is set apart, the
+    one rule of the methods paragraph, the ladder's paragraph and its note, each giving the verb of its tense ('were'
+    in a paper's past, 'are' in a report's present): the other group's, with two groups; with more, the other groups',
+    which stay held equal among themselves, as a clause: 'set apart from the other groups', which were held equal
+    among themselves' (not 'estimated freely': the first group's mean set apart stays 0, the origin, and a 'fix' in
+    that group may follow).  A caller that goes on after it closes the clause with a comma (s23: three wordings,
+    one in brackets)."""
+    if groups == 2:
         return "set apart from the other group's"
-    return "set apart from the other groups', which were held equal among themselves"
+    return f"set apart from the other groups', which {verb} held equal among themselves"
 
 
 def _exceptions(d) -> tuple[str, str]:
     """The exemptions of a model's equalities across groups: those of every group ('noninvariant intercept(x2)'), a
     clause after 'held ... equal across groups' (', except the intercept of x2'), and those set apart in one group
-    ('in group audit: noninvariant intercept(x2)'), a sentence of their own (:func:`_set_apart`; s22: they ran on
+    ('in group audit: noninvariant intercept(x2)'), a sentence of their own (:func:`set_apart_words`; s22: they ran on
     after a comma, a comma splice).  ('', '') when there are none."""
     every = [r for r in d.noninvariant if r[2] is None]
     one = [r for r in d.noninvariant if r[2] is not None]
     clause = f", except {_list([_parameter(r, d) for r in every])}" if every else ""
     sentence = (f"{_capital(_list([_parameter(r, d) for r in one]))} {'was' if len(one) == 1 else 'were'} "
-                f"{_set_apart(d)}." if one else "")
+                f"{set_apart_words(len(d.groups), 'were')}." if one else "")
     return clause, sentence
 
 
@@ -361,17 +365,16 @@ def _held_equal_sentences(d, subject: str = "") -> str:
 def _declared_words(refs, d) -> str:
     """A step's parameters the model file exempts from its equalities, in the words of the ladder's sentences
     ('partial with ...'): those of every group specified as not held equal across groups, those set apart in one
-    group set apart from the other group's (with more groups: the other groups', held equal among themselves)."""
+    group set apart from the other group's (with more groups: the other groups', which were held equal among
+    themselves: :func:`set_apart_words`, a clause the caller closes)."""
     def words(chosen) -> str:
         return _list([_parameter((r.kind, r.names, r.group), d) if d is not None else str(r) for r in chosen])
 
     every = [r for r in refs if r.group is None]
     one = [r for r in refs if r.group is not None]
     parts = [f"{words(every)} specified as not held equal across groups"] if every else []
-    if one:
-        apart = ("set apart from the other group's" if d is not None and len(d.groups) == 2 else
-                 "set apart from the other groups' (held equal among themselves)")
-        parts.append(f"{words(one)} {apart}")
+    if one:  # last, its clause closed by the caller (set_apart_words)
+        parts.append(f"{words(one)} {set_apart_words(len(d.groups) if d is not None else 0, 'were')}")
     return " and ".join(parts)
 
 
@@ -1963,10 +1966,11 @@ def invariance_paragraph(result, levels) -> str:
             state = ("still did not hold" if not step.holds and step.result.admissible else
                      "held" if step.holds and not basis else "met its test" if step.holds else _held(step, basis))
             after = f" but cannot be read as held: it rests on {basis}" if step.holds and basis else ""
-            others = f"with {declared} and every other equality" \
-                if step.declared else "with every equality"
+            others = "with every other equality" if step.declared else "with every equality"
             if earlier:
                 others += " but those freed at earlier steps"
+            if step.declared:  # last: its words may end in a clause (set_apart_words)
+                others += f" and {declared}"
             parts.append(f"{name} invariance did not hold {others} ({with_all}); after freeing {freed}, "
                          f"chosen one at a time by score tests (a data-driven search that capitalises on chance and "
                          f"needs confirmation in new data), it {state} as partial invariance ({_step_figures(step, steps)}){after}.")
