@@ -930,7 +930,7 @@ def _uninformative_baseline_sentence(result) -> str:
     fits = baseline_fits_words(result.fit, result.robust, paper=True)
     if fits:  # the indices have no value to read beside anything: the caution's words (s22)
         return f"{opening}, and {fits}."
-    return (f"{opening}, so the {robust}CFI and TLI below, which are bounded by how badly that model fits, are read "
+    return (f"{opening}, so the {robust}CFI and TLI below, which compare the model with that baseline, were read "
             f"beside the RMSEA and SRMR.")
 
 
