@@ -1049,7 +1049,9 @@ def _reliability_sentence(result) -> str:
         # a bifactor model's: the share of the general factor alone, or of a specific factor beyond it, not the
         # reliability of a sum (s22: '.29 for comfort' read as its subscale's reliability)
         parts_of = [r for r in rows if shown(r.observed_sum_omega) and r.bifactor is not None]
-        found = [r for r in rows if shown(r.observed_sum_omega) and r.bifactor is None]
+        found = [r for r in rows if shown(r.observed_sum_omega) and r.bifactor is None and r.level != "higher-order"]
+        # a higher-order factor's: the share of its items' sum due to it alone (s23: left out, the table showing it)
+        above = [r for r in rows if shown(r.observed_sum_omega) and r.level == "higher-order"]
         # factors of continuous items beside ordinal ones: omega of their items' keyed sum (hostile s21: left out)
         only_continuous, mixed = factors_by_item_kind(result, rows)
         continuous = [r for r in rows if r.factor in only_continuous and r.level != "higher-order"
@@ -1060,6 +1062,13 @@ def _reliability_sentence(result) -> str:
             parts.append(f"The reliability of the factors' keyed sums of the answers' codes (the omega of the observed "
                          f"sum, from the fitted thresholds, loadings and factor variances; Green & Yang, 2009) was "
                          f"{values}{_keyed_sum_words(found)}.")
+        if above:
+            parts.append(f"For the higher-order factor{'s' if len(above) > 1 else ''}, omega hierarchical of the keyed "
+                         f"sum of the answers' codes of the items below it, the share of that sum's variance due to the "
+                         f"higher-order factor alone (from the fitted thresholds, "
+                         f"loadings and factor variances; Green & Yang, 2009; Zinbarg, Revelle, Yovel & Li, 2005), was "
+                         f"{_list([f'{unit(r.observed_sum_omega, 2)} for {_name(r.factor)}' for r in above])}"
+                         f"{_keyed_sum_words(above)}.")
         general = [r for r in parts_of if r.bifactor is BifactorPart.GENERAL]
         specific = [r for r in parts_of if r.bifactor is BifactorPart.SPECIFIC]
         if general:
