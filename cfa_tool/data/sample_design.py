@@ -17,6 +17,7 @@ import pandas as pd
 from cfa_tool.numbers import count_text, cut_list, rounded_number, user_number
 from cfa_tool.data.kept_rows import row_of
 from cfa_tool.errors import DataError, OptionError, clipped, printable
+from cfa_tool.language.names import written_group
 from cfa_tool.options import Option
 from cfa_tool.method import MissingData, WeightKind
 from cfa_tool.data.renamed_columns import renamed_hint
@@ -356,11 +357,17 @@ class SampleDesign:
             few = self._uneven_groups()
             if not few:
                 return None
-            listed = "; ".join(f"group '{label}': its {count_text(n)} rows count as about {k:.1f}" for label, n, k in few)
-            return (f"The weights in '{self.columns.weights}' are very uneven within a group ({listed}; Kish's "
-                    f"effective sample size of each group's rows, below half of them taken as very uneven, a rule of "
-                    f"thumb of survey practice, not a law): that group's estimates rest mostly on its heavily weighted "
-                    f"rows, and their standard errors are as large as those of a sample of that many rows.")
+            # each group named by the one rule of group names, the words in the number of the groups named (s23)
+            listed = "; ".join(f"group {written_group(label, self.group_labels)}: its {count_text(n)} rows count as "
+                               f"about {k:.1f}" for label, n, k in few)
+            one = len(few) == 1
+            return (f"The weights in '{self.columns.weights}' are very uneven within {'a group' if one else 'groups'} "
+                    f"({listed}; Kish's effective sample size of each group's rows, below half of them taken as very "
+                    f"uneven, a rule of thumb of survey practice, not a law): "
+                    + ("that group's estimates rest mostly on its heavily weighted rows, and their standard errors are "
+                       "as large as those of a sample of that many rows." if one else
+                       "those groups' estimates rest mostly on their heavily weighted rows, and their standard errors "
+                       "are as large as those of samples of that many rows."))
         return (f"The weights in '{self.columns.weights}' are very uneven: the {count_text(self.rows)} rows count as about "
                 f"{self.effective_n:.1f} (Kish's effective sample size, {rounded_number(100 * self.effective_n / self.rows, 2)}% of the rows; "
                 f"below half of them is taken as very uneven, a rule of thumb of survey practice, not a law), so the "
@@ -437,7 +444,7 @@ class SampleDesign:
             few = self._few_cluster_groups()
             if not few:
                 return None
-            listed = ", ".join(f"'{label}' ({k})" for label, k in few)
+            listed = ", ".join(f"{written_group(label, self.group_labels)} ({k})" for label, k in few)
             return (f"Few clusters of '{self.columns.cluster}' in group{'s' if len(few) > 1 else ''} {listed}: each "
                     f"group's estimates and their cluster-robust standard errors rest on its own clusters; with fewer "
                     f"than about 30-50 clusters (common practice) the standard errors tend to be too small, and with "

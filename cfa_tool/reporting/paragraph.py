@@ -482,9 +482,11 @@ def _keyed_markers(scales) -> str:
         several = sum(len(s.passed_over) for s in passed) > 1
         words.append(f"{items}, declared reverse-keyed, {'were' if several else 'was'} not taken as "
                      f"marker{'s' if several else ''}, so that {'their factors point the way of their traits' if several else 'its factor points the way of its trait'}")
-    if against:
+    if against:  # each subject in the number of its verb (s23)
+        many = len(against) > 1
         words.append(f"every item of {_names([s.factor for s in against])} is declared reverse-keyed, so the "
-                     f"loading of {_names([s.marker for s in against])} was fixed to -1 instead")
+                     f"loading{'s' if many else ''} of {_names([s.marker for s in against])} "
+                     f"{'were' if many else 'was'} fixed to -1 instead")
     return f"; {'; '.join(words)}" if words else ""
 
 
@@ -576,10 +578,16 @@ def _departures(d, shape: _Shape) -> str:
     return " ".join(sentences)
 
 
-def _range(values: list[float]) -> str:
-    """'ranged from a to b' (in absolute value when some are negative), or 'was a' for one value."""
+def _range(values: list[float], one: str, many: str) -> str:
+    """'{many} ranged from a to b' (in absolute value when some are negative), or '{one} was a' for one value: the
+    subject in the number of its verb (s23: 'The standardized loadings ... was 1.00')."""
     if len(values) == 1:
-        return f"was {unit(values[0], 2)}"
+        return f"{one} was {unit(values[0], 2)}"
+    return f"{many} {_spread(values)}"
+
+
+def _spread(values: list[float]) -> str:
+    """'ranged from a to b' of several values, in absolute value when some are negative."""
     if any(v < 0 for v in values):
         sizes = [abs(v) for v in values]
         return f"ranged from {unit(min(sizes), 2)} to {unit(max(sizes), 2)} in absolute value"
@@ -948,15 +956,21 @@ def _weak_factor_sentence(result, subject: str) -> str:
     turned = [_phrase(p, result) for p in result.problems if p.kind is ProblemKind.FACTOR_POINTS_AGAINST_ITEMS]
     keyed_against = [_phrase(p, result) for p in result.problems if p.kind is ProblemKind.KEYING_AGAINST_LOADINGS]
     parts = []
+
+    def its(found: list) -> str:  # each factor's, or theirs (s23: 'its' after a list of several)
+        return "its" if len(found) == 1 else "their"
+
     if weak:
-        parts.append(f"{subject} has {_list(weak)} (a common-practice guide for negligible loadings): its items share "
-                     f"little beyond the other factors they load on.")
+        parts.append(f"{subject} has {_list(weak)} (a common-practice guide for negligible loadings): {its(weak)} "
+                     f"items share little beyond the other factors they load on.")
     if turned:
-        parts.append(f"{subject} has {_list(turned)}: its correlations, mean differences and scores read the wrong "
-                     f"way.")
+        parts.append(f"{subject} has {_list(turned)}: {its(turned)} correlations, mean differences and scores read "
+                     f"the wrong way.")
     if keyed_against:  # a typing error in the statement, or answers coded the other way (new user s17)
-        parts.append(f"{subject} has {_list(keyed_against)}: the keyed sum adds items that run against each other, so "
-                     f"its reliability is not reported here.")
+        one = len(keyed_against) == 1
+        parts.append(f"{subject} has {_list(keyed_against)}: the keyed sum{'' if one else 's'} "
+                     f"add{'s' if one else ''} items that run against each other, so {its(keyed_against)} "
+                     f"reliability is not reported here.")
     return " ".join(parts)
 
 
@@ -1151,7 +1165,9 @@ def _latent_response_sentence(result) -> str:
         fixed = [r for r in own if not r.free]
         if held:
             instead = (f"{_names([r.variables[0] for r in held])}: the latent response's variance at 1 instead, its "
-                       f"residual variance following from the loadings")
+                       f"residual variance following from the loadings" if len(held) == 1 else
+                       f"{_names([r.variables[0] for r in held])}: the latent responses' variances at 1 instead, their "
+                       f"residual variances following from the loadings")
             if not own:
                 return "following from latent-response variances fixed at 1"
             return state_of(own, fixed, value) + f" ({instead})"
@@ -1331,13 +1347,16 @@ def methods_paragraph(result) -> str:
         on_factor = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[0] == factor
                      and r.variables[1] in result.observed]
         if items:
-            parts.append(f"The method factor {_name(factor)} was indicated by {_names(items)}; its standardized loadings "
-                         f"{_range(on_factor)}{across if len(on_factor) > 1 else ''}.")
+            loads = _range(on_factor, "its standardized loading", "its standardized loadings")
+            parts.append(f"The method factor {_name(factor)} was indicated by {_names(items)}; {loads}"
+                         f"{across if len(on_factor) > 1 else ''}.")
     higher = {r.variables[0] for r in result.estimates if r.kind == "loading" and r.variables[1] not in result.observed}
     if second:
-        what = ("The standardized loadings of the factors on the higher-order factor" if len(higher) == 1 else
-                "The standardized loadings of the first-order factors on the higher-order factors")
-        parts.append(f"{what} {_range(second)}{across if len(second) > 1 else ''}.")  # every group's, as the items'
+        on = "the higher-order factor" if len(higher) == 1 else "the higher-order factors"
+        said = _range(second, f"The standardized loading of the factor on {on}",
+                      f"The standardized loadings of the {'factors' if len(higher) == 1 else 'first-order factors'} "
+                      f"on {on}")
+        parts.append(f"{said}{across if len(second) > 1 else ''}.")  # every group's, as the items'
     # the estimated correlations: one the model fixes (at 0 in a bifactor model) the methods part states
     correlated = [r for r in result.estimates if r.kind == "factor_covariance" and r.free]
     corr = [r.standardized for r in correlated]
@@ -2138,8 +2157,8 @@ def _replication_sentences(rep, lead: str, test: bool = True) -> list[str]:
                      f"({_name(item)} on {_name(factor)}: {unit(a, 2)} and {unit(b, 2)}).")
         reversed_ = reversed_loadings(rep)
         if reversed_:  # said in the manuscript too: the test above fails for the coding (hostile s20)
-            parts.append("The loading of " + _list([f"{_name(item)} on {_name(factor)}" for (factor, item), _, _
-                                                    in reversed_])
+            parts.append(f"The loading{'s' if len(reversed_) > 1 else ''} of "
+                         + _list([f"{_name(item)} on {_name(factor)}" for (factor, item), _, _ in reversed_])
                          + " had opposite signs in the two samples, as an item coded the other way round in one of "
                            "them would.")
     return [_capital(p) for p in parts]

@@ -554,8 +554,8 @@ def _other_differences(steps) -> str:
     positive = levels(DifferenceMethod.SATORRA_BENTLER_2010, False)
     plain = levels(DifferenceMethod.LIKELIHOOD_RATIO, False)
     if positive:
-        out += (f"; at the {word_list(positive)} step{'s' if len(positive) > 1 else ''} its correction was not "
-                f"positive, so the strictly positive version (Satorra & Bentler 2010) is given")
+        out += (f"; at the {word_list(positive)} step{'s' if len(positive) > 1 else ''} the scaled difference's "
+                f"correction was not positive, so the strictly positive version (Satorra & Bentler 2010) is given")
     if plain:
         out += (f"; at the {word_list(plain)} step{'s' if len(plain) > 1 else ''} neither scaled version could be "
                 f"computed, so the unscaled likelihood-ratio difference is given")
