@@ -27,6 +27,7 @@ from cfa_tool.assessment.reliability import BifactorPart, Keying, miskeyed
 from cfa_tool.data.non_answers import non_answer_clause
 from cfa_tool.data.answer_words import coding_described
 from cfa_tool.data.descriptives import FEW_CATEGORIES
+from cfa_tool.data.odd_values import OddKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import equality_words
@@ -640,10 +641,13 @@ def _kept_as_answers(data) -> str:
     """The values of the items that look like no answers (a missing-value code, a totals or means row:
     data.odd_values) but were analysed as answers, as the file holds them, in a clause of the rows' phrase ('' when
     there are none)."""
-    found = [o.kept_words() for o in getattr(data, "odd_values", ())]
+    odd = list(getattr(data, "odd_values", ()))
+    found = [o.kept_words() for o in odd]
     if not found:
         return ""
-    one = len(found) == 1
+    # one finding of one value (or row); several codes set apart are several values (s23: 'the codes 8 and 9 ...;
+    # this was analysed')
+    one = len(found) == 1 and not (odd[0].kind is OddKind.SET_APART and len(odd[0].distinct_values()) > 1)
     return (f"{'; '.join(found)}; {'this was' if one else 'these were'} analysed as answers, as the file holds "
             f"{'it' if one else 'them'}")
 

@@ -88,3 +88,18 @@ def test_markers_turned_for_several_factors_are_said_in_the_plural():
     one = _flat(methods_paragraph(cfa_tool.fit(THREE_FACTORS + "reversed x1, x2, x3 on 0 to 10\n",
                                                holzinger_swineford())))
     assert "every item of visual is declared reverse-keyed, so the loading of x1 was fixed to -1 instead" in one
+
+
+def test_one_code_set_apart_is_perhaps_a_code_of_no_answer():
+    """The pupils of tests.commands.test_codes_set_apart_every_command with one code, 7, where 8 and 9 were planted:
+    said in the singular in the methods paragraph (s23: 'perhaps codes of no answer' of one code), and the two codes
+    8 and 9 in the plural ('this was analysed' of them)."""
+    from tests.commands.test_codes_set_apart_every_command import MODEL, pupils
+
+    frame = pupils().replace({8: 7, 9: 7})  # one code, 7, beside answers 1 to 5
+    paragraph = _flat(methods_paragraph(cfa_tool.fit(MODEL, frame)))
+    assert ("set apart from the other answers (1 to 5): perhaps a code of no answer; this was analysed as answers, as "
+            "the file holds it") in paragraph
+    both = _flat(methods_paragraph(cfa_tool.fit(MODEL, pupils())))  # the codes 8 and 9
+    assert ("set apart from the other answers (1 to 5): perhaps codes of no answer; these were analysed as answers, as "
+            "the file holds them") in both
