@@ -46,6 +46,13 @@ class ProblemKind(enum.Enum):
         member.inadmissible = inadmissible
         return member
 
+    @classmethod
+    def _missing_(cls, value):
+        """A kind by the word an earlier version wrote into a saved fit's JSON (:data:`EARLIER_WORDS`), so that
+        such a file is still read (report, scores --from-fit); None for any other word."""
+        name = EARLIER_WORDS.get(value)
+        return cls[name] if name is not None else None
+
     NOT_CONVERGED = ("not converged", "not converged", True)
     # the information matrix is singular at the solution: no unique estimates (a workflow reporting several models)
     NOT_IDENTIFIED = ("not identified", "not identified", True)
@@ -143,8 +150,9 @@ class ProblemKind(enum.Enum):
     # not of the solution but of its fit indices: a baseline (independence) model whose own RMSEA is below the rule of
     # thumb (assessment.fit_indices.UNINFORMATIVE_BASELINE_RMSEA), so that CFI and TLI are bounded by how little it
     # misfits and are read beside RMSEA, SRMR and the residuals; ranked after every other problem (solution_first)
-    UNINFORMATIVE_BASELINE = ("baseline model misfits little: read CFI and TLI beside RMSEA and SRMR",
-                              "CFI and TLI bounded by the baseline", False)
+    # (its word, a kind like the others' and no advice, s23: 'baseline model misfits little: read CFI and TLI beside
+    # RMSEA and SRMR', which a saved fit of earlier versions still lists: EARLIER_WORDS)
+    UNINFORMATIVE_BASELINE = ("weakly correlated items", "CFI and TLI bounded by the baseline", False)
     # not of the solution but of the sample: a row filter that selects rows by their answers to a model item
     # (pipeline.row_filter_cautions): the item's range is restricted, its correlations changed
     SELECTED_ON_ITEM = ("rows selected on a model item", "selected on an item", False)
@@ -1094,6 +1102,11 @@ def refuse_inadmissible_fit(problems, source: str, purpose: str, flagged: bool =
                       f"is admissible and {remedy}")
 
 
+#: the words earlier versions wrote as a problem's kind into a saved fit's JSON -> the kind's member name
+#: (ProblemKind._missing_)
+EARLIER_WORDS = {"baseline model misfits little: read CFI and TLI beside RMSEA and SRMR": "UNINFORMATIVE_BASELINE"}
+
+
 def uninformative_baseline_problems(fit, robust, n_obs: int, groups: int = 1) -> tuple[Problem, ...]:
     """A caution when the baseline (independence) model's own RMSEA, from the baseline chi-square of the test the
     report says to read (``fit``: assessment.fit_indices.FitIndices; ``robust``: inference.robust.RobustFit or None),
@@ -1127,12 +1140,13 @@ def uninformative_baseline_problems(fit, robust, n_obs: int, groups: int = 1) ->
              f"here the baseline model itself fits closely (RMSEA at most {journal_decimal(close).rstrip('0')}), so "
              f"CFI and TLI compare the model with one that already fits and can take almost any value, or none")
     return (Problem(ProblemKind.UNINFORMATIVE_BASELINE, (), float(value),
-                    f"The items correlate weakly enough that the baseline model, in which they do not correlate at "
-                    f"all, has an RMSEA{which} of {journal_decimal(value, BOUND)}, below {journal_decimal(BOUND)} (a "
-                    f"rule of thumb recalled from Kenny, Kaniskan & McCoach 2015, not a law). The {prefix}CFI and TLI "
-                    f"measure the model's improvement on that baseline, so they are bounded by how badly it fits: TLI "
-                    f"is {about}1 - (RMSEA / baseline RMSEA)\u00b2, and {bound}. This is no problem of the solution: it "
-                    f"says how to read two indices.",
+                    f"The items correlate weakly: the baseline model, in which no two items correlate, has an "
+                    f"RMSEA{which} of {journal_decimal(value, BOUND)}, below {journal_decimal(BOUND)} (a rule of "
+                    f"thumb recalled from Kenny, Kaniskan & McCoach 2015, not a law). The {prefix}CFI and TLI compare "
+                    f"the model with that baseline, so with a baseline that misfits this little a small "
+                    f"change in the model's own misfit moves them a long way: TLI is {about}1 - (RMSEA / baseline "
+                    f"RMSEA)\u00b2, and {bound}. The solution is not at fault: this is about how to read the "
+                    f"{prefix}CFI and TLI.",
                     f"judge the fit by the RMSEA, the SRMR and the residual correlations: the {prefix}CFI and TLI "
                     f"give no reading here." if fits else
                     f"read the {prefix}CFI and TLI beside the RMSEA, the SRMR and the residual correlations rather "

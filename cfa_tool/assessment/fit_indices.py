@@ -79,9 +79,9 @@ def baseline_fits_words(fit, robust=None, paper: bool = False) -> str:
     """When the baseline (independence) model's chi-square of the test the report reads (``fit``: FitIndices;
     ``robust``: inference.robust.RobustFit or None, then its scaled or adjusted statistic) is at most its degrees of
     freedom, what that leaves of the incremental indices, in one wording for the caution every view opens with and
-    the methods paragraph (``paper``: past tense): TLI is not defined (:func:`tli_from`: it would divide by at most 0;
-    numbers-s21), and CFI is not defined either (0/0, the model's statistic being at most its df too) or is 0
-    (:func:`cfi_from`).  '' when the baseline's chi-square exceeds its df or was not computed."""
+    the methods paragraph (``paper``: past tense), in plain words (s23): TLI is not defined (:func:`tli_from`: it
+    would divide by at most 0; numbers-s21), and CFI is not defined either (0/0, the model's statistic being at most
+    its df too) or is 0 (:func:`cfi_from`).  '' when the baseline's chi-square exceeds its df or was not computed."""
     base = fit.baseline_chi_square if robust is None else robust.baseline_chi_square_scaled
     df = fit.baseline_df
     if not (df > 0 and np.isfinite(base) and base <= df):
@@ -90,11 +90,11 @@ def baseline_fits_words(fit, robust=None, paper: bool = False) -> str:
     index = "" if robust is None else "robust "
     statistic = "chi-square" if robust is None else robust.statistic()
     be = "was" if paper else "is"
-    rest = (f"nor {be} the {index}CFI (0/0: the model's {statistic} {be} at most its degrees of freedom too)"
-            if not np.isfinite(cfi) else
-            f"and the {index}CFI {be} 0 (the model misfits more than the baseline model, which fits)")
-    return (f"the baseline model's {statistic} ({base:.2f}) {be} at most its degrees of freedom ({df}), so the "
-            f"{index}TLI {be} not defined (it would divide by at most 0), {rest}")
+    rest = (f"nor {be} the {index}CFI (its formula gives 0/0, the model's {statistic} being no larger than its "
+            f"degrees of freedom either)" if not np.isfinite(cfi) else
+            f"and the {index}CFI {be} 0 (the model misfits more than the baseline model, which itself fits)")
+    return (f"the baseline model's {statistic} ({base:.2f}) {be} no larger than its degrees of freedom ({df}), so "
+            f"the {index}TLI {be} not defined (its formula would divide by zero or less), {rest}")
 
 
 @dataclass(frozen=True)

@@ -18,6 +18,11 @@ f adds its covariance with f through that one, as reliability.keyed_omega does f
 line holds because two answers given f are independent, and P(y*_i > a, y*_j > b) - P(y*_i > a) P(y*_j > b) is the
 same with lower tails).  The coefficient is the keyed sum of the second line over the keyed sum of the first, both
 from the model (not from the sample's answers), so that it describes the fitted model's observed sum.
+
+For a higher-order factor f the same lines, over the items of the factors it explains and with C_if = Cov(y*_i, f)
+through the higher-order paths (model.implied.ModelMatrices.item_factor_covariance), give the share of the sum's
+variance due to f alone: the omega hierarchical of the observed sum (Zinbarg, Revelle, Yovel & Li 2005, for the
+continuous sum; the reliability table's latent-response column gives it beside).
 """
 
 from __future__ import annotations
@@ -114,16 +119,18 @@ def observed_sum_factor_correlation(thresholds: Sequence[np.ndarray], steps: Seq
 def with_observed_sum_omega(factors: Sequence[FactorReliability], mats: ModelMatrices, observed: tuple[str, ...],
                             latent: tuple[str, ...], thresholds: dict[str, np.ndarray], codes: dict[str, np.ndarray],
                             mean: np.ndarray | None = None) -> tuple[FactorReliability, ...]:
-    """``factors`` with the observed-sum omega of each first-order factor whose items are all ordinal
-    (``thresholds`` and answer ``codes`` by item; continuous items beside them have neither); ``mean``: the latent
-    responses' implied means (0 when None, as in one group)."""
+    """``factors`` with the observed-sum omega of each factor whose items are all ordinal (``thresholds`` and answer
+    ``codes`` by item; continuous items beside them have neither), a higher-order factor's over the items of the
+    factors it explains, its omega hierarchical (module docstring; s23: none was computed, and the methods paragraph
+    left the factor out while the table showed its latent-response omega); ``mean``: the latent responses' implied
+    means (0 when None, as in one group)."""
     sigma = mats.implied_covariance()
     phi = mats.latent_covariance()
     C = mats.item_factor_covariance()  # the latent responses' covariances with the factors
     mean = np.zeros(len(observed)) if mean is None else np.asarray(mean, float)
     out = []
     for r in factors:
-        if r.level != "first-order" or not all(x in thresholds for x in r.items):
+        if not all(x in thresholds for x in r.items):
             out.append(r)
             continue
         f = latent.index(r.factor)

@@ -219,9 +219,10 @@ class OddValues:
                     f"{_number(high)}) in {len(self.columns)} item column{'s' if len(self.columns) != 1 else ''}: "
                     f"perhaps a totals row or a typing error")
         if self.kind is OddKind.SET_APART:
+            one = len(self.distinct_values()) == 1  # in the number of the codes named (s23)
             return (f"{self._values_words()} in {_listed(written_name(c) for c in self.distinct_columns())}, "
                     f"{self._share_words()}, set apart from the other answers ({_number(low)} to "
-                    f"{_number(high)}): perhaps codes of no answer")
+                    f"{_number(high)}): perhaps {'a code' if one else 'codes'} of no answer")
         if self.kind is OddKind.SUMMARY_BLOCK:
             return (f"{self._rows_named()}, which hold {_listed(self.holds)} of the rows above them in the item "
                     f"columns: perhaps a summary block under the data")

@@ -17,6 +17,7 @@ import pandas as pd
 from cfa_tool.numbers import count_text, cut_list, rounded_number, user_number
 from cfa_tool.data.kept_rows import row_of
 from cfa_tool.errors import DataError, OptionError, clipped, printable
+from cfa_tool.language.names import written_group
 from cfa_tool.options import Option
 from cfa_tool.method import MissingData, WeightKind
 from cfa_tool.data.renamed_columns import renamed_hint
@@ -216,15 +217,16 @@ class SampleDesign:
             return text
         # inference/design.design_meat: weighted sums per cluster (or per row), centred within strata, C/(C - 1)
         units = "clusters" if c.cluster else "rows"
+        sums = self._unit_sums()[1]
         if c.strata is not None:
             # in a methods section's words (new-user trial s20): the formula, sum_h C_h/(C_h - 1) ..., is in
             # inference/design.py's docstring
-            spread = (f"the {units}' weighted sums centred within each stratum (the variance between {units} within "
+            spread = (f"the {units}' {sums} centred within each stratum (the variance between {units} within "
                       f"strata, each stratum's multiplied by its number of {units} over that number less one; Binder, "
                       f"1983)")
         else:
-            spread = f"the {units}' weighted sums" + (" (multiplied by the number of clusters over that number less "
-                                                      "one; Binder, 1983)" if c.cluster else "")
+            spread = f"the {units}' {sums}" + (" (multiplied by the number of clusters over that number less "
+                                               "one; Binder, 1983)" if c.cluster else "")
         after = ""
         if self.group_rows and self.shared_clusters:
             # full-information ML: the rows' scores of their answered items, rows with gaps included
@@ -273,8 +275,8 @@ class SampleDesign:
         parts = [what for what, there in (("sampling weights", c.weights is not None and c.kind is WeightKind.SAMPLING),
                                           ("clusters", c.cluster is not None), ("strata", c.strata is not None))
                  if there]
-        return SCORE_TESTS_BY_DESIGN.format(parts[0] if len(parts) == 1 else
-                                                 ", ".join(parts[:-1]) + " and " + parts[-1])
+        return SCORE_TESTS_BY_DESIGN.format(parts[0] if len(parts) == 1 else ", ".join(parts[:-1]) + " and " + parts[-1],
+                                            "weighted " if c.weights is not None else "")  # (s23: also without)
 
     def shared_strata_caution(self) -> str | None:
         """Why the design-based errors of groups taken as independent samples rest on an assumption when the groups
@@ -294,6 +296,16 @@ class SampleDesign:
                 f"fixed (usually a small difference), and rows of different groups in one household or other cluster "
                 f"may answer alike, which standard errors without the clusters leave out: they are then too small.")
 
+    def _unit_sums(self) -> tuple[str, str]:
+        """What the design-based covariance sums over, each sampling unit's (inference.design.design_meat), in
+        words, one and many: a cluster's sum of its rows' contributions, a row's own contribution, weighted when
+        weights were given ('weighted sum', 'weighted sums'; s23: 'weighted sums' were said of clusters and strata
+        without weights)."""
+        noun = ("sum", "sums") if self.columns.cluster else ("contribution", "contributions")
+        if self.columns.weights is None:
+            return noun
+        return f"weighted {noun[0]}", f"weighted {noun[1]}"
+
     def lone_text(self) -> str:
         """What was done with strata of a single sampling unit (empty when there are none)."""
         if not self.lone_strata:
@@ -302,8 +314,9 @@ class SampleDesign:
         count = len(self.lone_strata)
         which = cut_list(self.lone_strata, LONE_STRATA_NAMED, lambda name: f"'{name}'")
         where = " in a group" if self.group_rows and not self.shared_clusters else ""
+        one, many = self._unit_sums()
         return (f"{count} {'stratum has' if count == 1 else 'strata have'} a single {unit}{where} ({which}); with no second "
-                f"{unit} to compare, its weighted sum was centred at the mean of all {unit}s' sums instead of its "
+                f"{unit} to compare, its {one} was centred at the mean of all {unit}s' {many.split()[-1]} instead of its "
                 f"stratum's mean (factor 1), a conservative choice that counts the differences between strata as "
                 f"variance (Lumley 2010)")
 
@@ -344,11 +357,17 @@ class SampleDesign:
             few = self._uneven_groups()
             if not few:
                 return None
-            listed = "; ".join(f"group '{label}': its {count_text(n)} rows count as about {k:.1f}" for label, n, k in few)
-            return (f"The weights in '{self.columns.weights}' are very uneven within a group ({listed}; Kish's "
-                    f"effective sample size of each group's rows, below half of them taken as very uneven, a rule of "
-                    f"thumb of survey practice, not a law): that group's estimates rest mostly on its heavily weighted "
-                    f"rows, and their standard errors are as large as those of a sample of that many rows.")
+            # each group named by the one rule of group names, the words in the number of the groups named (s23)
+            listed = "; ".join(f"group {written_group(label, self.group_labels)}: its {count_text(n)} rows count as "
+                               f"about {k:.1f}" for label, n, k in few)
+            one = len(few) == 1
+            return (f"The weights in '{self.columns.weights}' are very uneven within {'a group' if one else 'groups'} "
+                    f"({listed}; Kish's effective sample size of each group's rows, below half of them taken as very "
+                    f"uneven, a rule of thumb of survey practice, not a law): "
+                    + ("that group's estimates rest mostly on its heavily weighted rows, and their standard errors are "
+                       "as large as those of a sample of that many rows." if one else
+                       "those groups' estimates rest mostly on their heavily weighted rows, and their standard errors "
+                       "are as large as those of samples of that many rows."))
         return (f"The weights in '{self.columns.weights}' are very uneven: the {count_text(self.rows)} rows count as about "
                 f"{self.effective_n:.1f} (Kish's effective sample size, {rounded_number(100 * self.effective_n / self.rows, 2)}% of the rows; "
                 f"below half of them is taken as very uneven, a rule of thumb of survey practice, not a law), so the "
@@ -425,7 +444,7 @@ class SampleDesign:
             few = self._few_cluster_groups()
             if not few:
                 return None
-            listed = ", ".join(f"'{label}' ({k})" for label, k in few)
+            listed = ", ".join(f"{written_group(label, self.group_labels)} ({k})" for label, k in few)
             return (f"Few clusters of '{self.columns.cluster}' in group{'s' if len(few) > 1 else ''} {listed}: each "
                     f"group's estimates and their cluster-robust standard errors rest on its own clusters; with fewer "
                     f"than about 30-50 clusters (common practice) the standard errors tend to be too small, and with "
@@ -451,7 +470,7 @@ def few_clusters_advice(ordinal: bool = False) -> str:
 SCORE_TESTS_BY_DESIGN = (
     "These indices take the sampling design ({}) into account: each is a design-based score test (Satorra's 1989 "
     "generalized score test), the squared score of the parameter over its variance estimated under the design, as the "
-    "standard errors and the scaled test are; the expected changes are those of the weighted likelihood.")
+    "standard errors and the scaled test are; the expected changes are those of the {}likelihood.")
 #: strata with a single unit named in the methods paragraph and the caution (the rest counted)
 LONE_STRATA_NAMED = 5
 #: Kish's effective sample size below this share of the rows (a design effect of the weighting, n / n_eff = 1 + CV^2 of

@@ -9,10 +9,11 @@ from dataclasses import replace
 from functools import partial
 
 from cfa_tool.numbers import count_text
+from cfa_tool.language.names import written_group
 from cfa_tool.note_parts import joined
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Figure, Listing, Report, ResultKind, in_section
-from cfa_tool.reporting.paragraph import methods_paragraph
+from cfa_tool.reporting.paragraph import group_labels, methods_paragraph
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable
 
 NOT_CONVERGED = "The estimation did not converge: nothing in this report is a result."
@@ -29,15 +30,16 @@ def fit_tables(result) -> list[ReportTable]:
         fit = replace(fit, note=joined([fit.note, *extra]))
         out += in_section("Fit", [fit, T.group_table(result) if result.multigroup else None])
     for g, group in enumerate(result.groups):
-        heading = "Estimates" + (f", group {group.label} (N = {count_text(group.data.n_obs)})" if result.multigroup else "")
+        heading = "Estimates" + (f", group {group_words(result, g)} (N = {count_text(group.data.n_obs)})"
+                                 if result.multigroup else "")
         out += in_section(heading, of_group(result, g, [*T.estimate_tables(result, g), T.reliability_table(result, g),
                              T.sum_score_table(result, g), T.distinct_table(result, g), T.case_table(result, g)]))
-    for g, group in enumerate(result.groups):
-        heading = "Local fit" + (f", group {group.label}" if result.multigroup else "")
+    for g in range(len(result.groups)):
+        heading = "Local fit" + (f", group {group_words(result, g)}" if result.multigroup else "")
         out += in_section(heading, of_group(result, g, [T.residual_table(result, g)]))
     if result.multigroup:  # each group's under its own heading, as its local fit
-        for g, group in enumerate(result.groups):
-            out += in_section(f"Modification indices, group {group.label}",
+        for g in range(len(result.groups)):
+            out += in_section(f"Modification indices, group {group_words(result, g)}",
                               of_group(result, g, [T.modification_table(result, g)]))
     else:
         out += in_section("Modification indices", [T.modification_table(result)])
@@ -48,14 +50,21 @@ def fit_tables(result) -> list[ReportTable]:
     return out
 
 
+def group_words(result, g: int) -> str:
+    """Group ``g`` of ``result`` as its headings and titles name it: by the one rule of every text of the report
+    (language.names.written_group among the fit's groups: 'North', or '"South side"' with every label quoted when
+    one needs it; s23: the headings wrote the label bare beside the quoted one of the notes)."""
+    return written_group(result.groups[g].label, group_labels(result))
+
+
 def of_group(result, g: int, tables) -> list[ReportTable]:
     """Group ``g``'s tables of a multi-group fit with the group in each title (a Word or HTML table is read, cited
     and numbered on its own, away from its section's heading); one group's tables as they are."""
     tables = [t for t in tables if t is not None]
     if not result.multigroup:
         return tables
-    label = result.groups[g].label
-    named = re.compile(rf"\bgroup {re.escape(str(label))}(?=$|[ ,;:)?])")
+    label = group_words(result, g)
+    named = re.compile(rf"\bgroup {re.escape(label)}(?=$|[ ,;:)?])")
 
     def titled(title: str) -> str:
         if named.search(title):  # the title names its group already
@@ -81,7 +90,8 @@ def fit_report(result) -> Report:
     few = T.few_answers_warning(result)  # categories of ordinal items given by few rows: first, with the table named
     warnings = (tuple(result.warnings) + (() if few is None else (few,)) + T.higher_order_cautions(result)
                 + (() if result.converged else (NOT_CONVERGED,)))
-    figures = tuple(Figure("Path diagram of the fitted model" + ("" if g.label is None else f", group {g.label}")
+    figures = tuple(Figure("Path diagram of the fitted model" + ("" if g.label is None else
+                                                                 f", group {group_words(result, k)}")
                            + " (standardized values)", partial(_path_diagram, result, k))
                     for k, g in enumerate(result.groups))
     left_out = T.matrices_left_out(result)

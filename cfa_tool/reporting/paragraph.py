@@ -27,6 +27,7 @@ from cfa_tool.assessment.reliability import BifactorPart, Keying, miskeyed
 from cfa_tool.data.non_answers import non_answer_clause
 from cfa_tool.data.answer_words import coding_described, named_codes
 from cfa_tool.data.descriptives import FEW_CATEGORIES
+from cfa_tool.data.odd_values import OddKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import equality_words
@@ -325,25 +326,29 @@ def _parameter(ref: tuple, d) -> str:
     return parameter_words(kind, tuple(names), group, d.indicators, quoted=True, groups=d.groups)
 
 
-def _set_apart(d) -> str:
-    """From what a parameter set apart in one group ('in group audit: noninvariant intercept(x2)') is set apart: the
-    other group's, with two groups; with more, the other groups', which stay held equal among themselves (not
-    'estimated freely': the first group's mean set apart stays 0, the origin, and a 'fix' in that group may follow)."""
-    if len(d.groups) == 2:
+def set_apart_words(groups: int, verb: str) -> str:
+    """From what a parameter set apart in one group ('in group audit: noninvariant intercept(x2)') is set apart, the
+    one rule of the methods paragraph, the ladder's paragraph and its note, each giving the verb of its tense ('were'
+    in a paper's past, 'are' in a report's present): the other group's, with two groups; with more, the other groups',
+    which stay held equal among themselves, as a clause: 'set apart from the other groups', which were held equal
+    among themselves' (not 'estimated freely': the first group's mean set apart stays 0, the origin, and a 'fix' in
+    that group may follow).  A caller that goes on after it closes the clause with a comma (s23: three wordings,
+    one in brackets)."""
+    if groups == 2:
         return "set apart from the other group's"
-    return "set apart from the other groups', which were held equal among themselves"
+    return f"set apart from the other groups', which {verb} held equal among themselves"
 
 
 def _exceptions(d) -> tuple[str, str]:
     """The exemptions of a model's equalities across groups: those of every group ('noninvariant intercept(x2)'), a
     clause after 'held ... equal across groups' (', except the intercept of x2'), and those set apart in one group
-    ('in group audit: noninvariant intercept(x2)'), a sentence of their own (:func:`_set_apart`; s22: they ran on
+    ('in group audit: noninvariant intercept(x2)'), a sentence of their own (:func:`set_apart_words`; s22: they ran on
     after a comma, a comma splice).  ('', '') when there are none."""
     every = [r for r in d.noninvariant if r[2] is None]
     one = [r for r in d.noninvariant if r[2] is not None]
     clause = f", except {_list([_parameter(r, d) for r in every])}" if every else ""
     sentence = (f"{_capital(_list([_parameter(r, d) for r in one]))} {'was' if len(one) == 1 else 'were'} "
-                f"{_set_apart(d)}." if one else "")
+                f"{set_apart_words(len(d.groups), 'were')}." if one else "")
     return clause, sentence
 
 
@@ -361,17 +366,16 @@ def _held_equal_sentences(d, subject: str = "") -> str:
 def _declared_words(refs, d) -> str:
     """A step's parameters the model file exempts from its equalities, in the words of the ladder's sentences
     ('partial with ...'): those of every group specified as not held equal across groups, those set apart in one
-    group set apart from the other group's (with more groups: the other groups', held equal among themselves)."""
+    group set apart from the other group's (with more groups: the other groups', which were held equal among
+    themselves: :func:`set_apart_words`, a clause the caller closes)."""
     def words(chosen) -> str:
         return _list([_parameter((r.kind, r.names, r.group), d) if d is not None else str(r) for r in chosen])
 
     every = [r for r in refs if r.group is None]
     one = [r for r in refs if r.group is not None]
     parts = [f"{words(every)} specified as not held equal across groups"] if every else []
-    if one:
-        apart = ("set apart from the other group's" if d is not None and len(d.groups) == 2 else
-                 "set apart from the other groups' (held equal among themselves)")
-        parts.append(f"{words(one)} {apart}")
+    if one:  # last, its clause closed by the caller (set_apart_words)
+        parts.append(f"{words(one)} {set_apart_words(len(d.groups) if d is not None else 0, 'were')}")
     return " and ".join(parts)
 
 
@@ -479,9 +483,11 @@ def _keyed_markers(scales) -> str:
         several = sum(len(s.passed_over) for s in passed) > 1
         words.append(f"{items}, declared reverse-keyed, {'were' if several else 'was'} not taken as "
                      f"marker{'s' if several else ''}, so that {'their factors point the way of their traits' if several else 'its factor points the way of its trait'}")
-    if against:
+    if against:  # each subject in the number of its verb (s23)
+        many = len(against) > 1
         words.append(f"every item of {_names([s.factor for s in against])} is declared reverse-keyed, so the "
-                     f"loading of {_names([s.marker for s in against])} was fixed to -1 instead")
+                     f"loading{'s' if many else ''} of {_names([s.marker for s in against])} "
+                     f"{'were' if many else 'was'} fixed to -1 instead")
     return f"; {'; '.join(words)}" if words else ""
 
 
@@ -573,10 +579,16 @@ def _departures(d, shape: _Shape) -> str:
     return " ".join(sentences)
 
 
-def _range(values: list[float]) -> str:
-    """'ranged from a to b' (in absolute value when some are negative), or 'was a' for one value."""
+def _range(values: list[float], one: str, many: str) -> str:
+    """'{many} ranged from a to b' (in absolute value when some are negative), or '{one} was a' for one value: the
+    subject in the number of its verb (s23: 'The standardized loadings ... was 1.00')."""
     if len(values) == 1:
-        return f"was {unit(values[0], 2)}"
+        return f"{one} was {unit(values[0], 2)}"
+    return f"{many} {_spread(values)}"
+
+
+def _spread(values: list[float]) -> str:
+    """'ranged from a to b' of several values, in absolute value when some are negative."""
     if any(v < 0 for v in values):
         sizes = [abs(v) for v in values]
         return f"ranged from {unit(min(sizes), 2)} to {unit(max(sizes), 2)} in absolute value"
@@ -629,10 +641,13 @@ def _kept_as_answers(data) -> str:
     """The values of the items that look like no answers (a missing-value code, a totals or means row:
     data.odd_values) but were analysed as answers, as the file holds them, in a clause of the rows' phrase ('' when
     there are none)."""
-    found = [o.kept_words() for o in getattr(data, "odd_values", ())]
+    odd = list(getattr(data, "odd_values", ()))
+    found = [o.kept_words() for o in odd]
     if not found:
         return ""
-    one = len(found) == 1
+    # one finding of one value (or row); several codes set apart are several values (s23: 'the codes 8 and 9 ...;
+    # this was analysed')
+    one = len(found) == 1 and not (odd[0].kind is OddKind.SET_APART and len(odd[0].distinct_values()) > 1)
     return (f"{'; '.join(found)}; {'this was' if one else 'these were'} analysed as answers, as the file holds "
             f"{'it' if one else 'them'}")
 
@@ -939,7 +954,7 @@ def _uninformative_baseline_sentence(result) -> str:
     fits = baseline_fits_words(result.fit, result.robust, paper=True)
     if fits:  # the indices have no value to read beside anything: the caution's words (s22)
         return f"{opening}, and {fits}."
-    return (f"{opening}, so the {robust}CFI and TLI below, which are bounded by how badly that model fits, are read "
+    return (f"{opening}, so the {robust}CFI and TLI below, which compare the model with that baseline, were read "
             f"beside the RMSEA and SRMR.")
 
 
@@ -957,15 +972,21 @@ def _weak_factor_sentence(result, subject: str) -> str:
     turned = [_phrase(p, result) for p in result.problems if p.kind is ProblemKind.FACTOR_POINTS_AGAINST_ITEMS]
     keyed_against = [_phrase(p, result) for p in result.problems if p.kind is ProblemKind.KEYING_AGAINST_LOADINGS]
     parts = []
+
+    def its(found: list) -> str:  # each factor's, or theirs (s23: 'its' after a list of several)
+        return "its" if len(found) == 1 else "their"
+
     if weak:
-        parts.append(f"{subject} has {_list(weak)} (a common-practice guide for negligible loadings): its items share "
-                     f"little beyond the other factors they load on.")
+        parts.append(f"{subject} has {_list(weak)} (a common-practice guide for negligible loadings): {its(weak)} "
+                     f"items share little beyond the other factors they load on.")
     if turned:
-        parts.append(f"{subject} has {_list(turned)}: its correlations, mean differences and scores read the wrong "
-                     f"way.")
+        parts.append(f"{subject} has {_list(turned)}: {its(turned)} correlations, mean differences and scores read "
+                     f"the wrong way.")
     if keyed_against:  # a typing error in the statement, or answers coded the other way (new user s17)
-        parts.append(f"{subject} has {_list(keyed_against)}: the keyed sum adds items that run against each other, so "
-                     f"its reliability is not reported here.")
+        one = len(keyed_against) == 1
+        parts.append(f"{subject} has {_list(keyed_against)}: the keyed sum{'' if one else 's'} "
+                     f"add{'s' if one else ''} items that run against each other, so {its(keyed_against)} "
+                     f"reliability is not reported here.")
     return " ".join(parts)
 
 
@@ -1058,7 +1079,9 @@ def _reliability_sentence(result) -> str:
         # a bifactor model's: the share of the general factor alone, or of a specific factor beyond it, not the
         # reliability of a sum (s22: '.29 for comfort' read as its subscale's reliability)
         parts_of = [r for r in rows if shown(r.observed_sum_omega) and r.bifactor is not None]
-        found = [r for r in rows if shown(r.observed_sum_omega) and r.bifactor is None]
+        found = [r for r in rows if shown(r.observed_sum_omega) and r.bifactor is None and r.level != "higher-order"]
+        # a higher-order factor's: the share of its items' sum due to it alone (s23: left out, the table showing it)
+        above = [r for r in rows if shown(r.observed_sum_omega) and r.level == "higher-order"]
         # factors of continuous items beside ordinal ones: omega of their items' keyed sum (hostile s21: left out)
         only_continuous, mixed = factors_by_item_kind(result, rows)
         continuous = [r for r in rows if r.factor in only_continuous and r.level != "higher-order"
@@ -1069,6 +1092,13 @@ def _reliability_sentence(result) -> str:
             parts.append(f"The reliability of the factors' keyed sums of the answers' codes (the omega of the observed "
                          f"sum, from the fitted thresholds, loadings and factor variances; Green & Yang, 2009) was "
                          f"{values}{_keyed_sum_words(found)}.")
+        if above:
+            parts.append(f"For the higher-order factor{'s' if len(above) > 1 else ''}, omega hierarchical of the keyed "
+                         f"sum of the answers' codes of the items below it, the share of that sum's variance due to the "
+                         f"higher-order factor alone (from the fitted thresholds, "
+                         f"loadings and factor variances; Green & Yang, 2009; Zinbarg, Revelle, Yovel & Li, 2005), was "
+                         f"{_list([f'{unit(r.observed_sum_omega, 2)} for {_name(r.factor)}' for r in above])}"
+                         f"{_keyed_sum_words(above)}.")
         general = [r for r in parts_of if r.bifactor is BifactorPart.GENERAL]
         specific = [r for r in parts_of if r.bifactor is BifactorPart.SPECIFIC]
         if general:
@@ -1151,7 +1181,9 @@ def _latent_response_sentence(result) -> str:
         fixed = [r for r in own if not r.free]
         if held:
             instead = (f"{_names([r.variables[0] for r in held])}: the latent response's variance at 1 instead, its "
-                       f"residual variance following from the loadings")
+                       f"residual variance following from the loadings" if len(held) == 1 else
+                       f"{_names([r.variables[0] for r in held])}: the latent responses' variances at 1 instead, their "
+                       f"residual variances following from the loadings")
             if not own:
                 return "following from latent-response variances fixed at 1"
             return state_of(own, fixed, value) + f" ({instead})"
@@ -1331,13 +1363,16 @@ def methods_paragraph(result) -> str:
         on_factor = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[0] == factor
                      and r.variables[1] in result.observed]
         if items:
-            parts.append(f"The method factor {_name(factor)} was indicated by {_names(items)}; its standardized loadings "
-                         f"{_range(on_factor)}{across if len(on_factor) > 1 else ''}.")
+            loads = _range(on_factor, "its standardized loading", "its standardized loadings")
+            parts.append(f"The method factor {_name(factor)} was indicated by {_names(items)}; {loads}"
+                         f"{across if len(on_factor) > 1 else ''}.")
     higher = {r.variables[0] for r in result.estimates if r.kind == "loading" and r.variables[1] not in result.observed}
     if second:
-        what = ("The standardized loadings of the factors on the higher-order factor" if len(higher) == 1 else
-                "The standardized loadings of the first-order factors on the higher-order factors")
-        parts.append(f"{what} {_range(second)}{across if len(second) > 1 else ''}.")  # every group's, as the items'
+        on = "the higher-order factor" if len(higher) == 1 else "the higher-order factors"
+        said = _range(second, f"The standardized loading of the factor on {on}",
+                      f"The standardized loadings of the {'factors' if len(higher) == 1 else 'first-order factors'} "
+                      f"on {on}")
+        parts.append(f"{said}{across if len(second) > 1 else ''}.")  # every group's, as the items'
     # the estimated correlations: one the model fixes (at 0 in a bifactor model) the methods part states
     correlated = [r for r in result.estimates if r.kind == "factor_covariance" and r.free]
     corr = [r.standardized for r in correlated]
@@ -1975,10 +2010,11 @@ def invariance_paragraph(result, levels) -> str:
             state = ("still did not hold" if not step.holds and step.result.admissible else
                      "held" if step.holds and not basis else "met its test" if step.holds else _held(step, basis))
             after = f" but cannot be read as held: it rests on {basis}" if step.holds and basis else ""
-            others = f"with {declared} and every other equality" \
-                if step.declared else "with every equality"
+            others = "with every other equality" if step.declared else "with every equality"
             if earlier:
                 others += " but those freed at earlier steps"
+            if step.declared:  # last: its words may end in a clause (set_apart_words)
+                others += f" and {declared}"
             parts.append(f"{name} invariance did not hold {others} ({with_all}); after freeing {freed}, "
                          f"chosen one at a time by score tests (a data-driven search that capitalises on chance and "
                          f"needs confirmation in new data), it {state} as partial invariance ({_step_figures(step, steps)}){after}.")
@@ -2137,8 +2173,8 @@ def _replication_sentences(rep, lead: str, test: bool = True) -> list[str]:
                      f"({_name(item)} on {_name(factor)}: {unit(a, 2)} and {unit(b, 2)}).")
         reversed_ = reversed_loadings(rep)
         if reversed_:  # said in the manuscript too: the test above fails for the coding (hostile s20)
-            parts.append("The loading of " + _list([f"{_name(item)} on {_name(factor)}" for (factor, item), _, _
-                                                    in reversed_])
+            parts.append(f"The loading{'s' if len(reversed_) > 1 else ''} of "
+                         + _list([f"{_name(item)} on {_name(factor)}" for (factor, item), _, _ in reversed_])
                          + " had opposite signs in the two samples, as an item coded the other way round in one of "
                            "them would.")
     return [_capital(p) for p in parts]

@@ -958,8 +958,9 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
                  "Latent-response alpha", "Latent-response composite reliability"]
         values = [row[:2] + [r.observed_sum_omega] + row[2:] for row, r in zip(values, rows)]
     note = (("Sum omega: the share of the variance of the keyed sum of the answers' codes (the score a researcher "
-             "computes) due to the factor, from the fitted thresholds, loadings and factor variance (Green & Yang "
-             "2009); report this one for a sum score. The other columns are ordinal versions on the latent "
+             "computes) due to the factor (for a higher-order factor: due to it alone, its omega hierarchical), "
+             "from the fitted thresholds, loadings and factor variance (Green & Yang 2009); report this one for a sum "
+             "score. The other columns are ordinal versions on the latent "
              "responses behind the items, which no one observes; they usually run higher than the sum's reliability, "
              "most with few categories. " + _continuous_factors_sentence(result, rows)
              if ordinal else "") + keying_sentence(rows) +

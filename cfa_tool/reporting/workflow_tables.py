@@ -20,7 +20,7 @@ from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANG
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, cfi_not_defined_sentence, compared_cfi_not_defined,
-                                          comparison_paragraph, group_labels, design_sentence,
+                                          comparison_paragraph, set_apart_words, group_labels, design_sentence,
                                           mcar_score_tests, reversed_across_groups, reversed_loadings,
                                           invariance_paragraph, replication_paragraph)
 from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text, missing, needed_decimals, num,
@@ -557,8 +557,8 @@ def _other_differences(steps) -> str:
     positive = levels(DifferenceMethod.SATORRA_BENTLER_2010, False)
     plain = levels(DifferenceMethod.LIKELIHOOD_RATIO, False)
     if positive:
-        out += (f"; at the {word_list(positive)} step{'s' if len(positive) > 1 else ''} its correction was not "
-                f"positive, so the strictly positive version (Satorra & Bentler 2010) is given")
+        out += (f"; at the {word_list(positive)} step{'s' if len(positive) > 1 else ''} the scaled difference's "
+                f"correction was not positive, so the strictly positive version (Satorra & Bentler 2010) is given")
     if plain:
         out += (f"; at the {word_list(plain)} step{'s' if len(plain) > 1 else ''} neither scaled version could be "
                 f"computed, so the unscaled likelihood-ratio difference is given")
@@ -690,8 +690,7 @@ def _declared_note(steps) -> str:
     every = [f"{_parameter(ref, d)} (from the {level} step)" for ref, level in first.items() if ref[2] is None]
     one = [f"{_parameter(ref, d)} (from the {level} step)" for ref, level in first.items() if ref[2] is not None]
     # sentences, each group named by the one rule (language.names.written_group through parameter_words; s22)
-    others = ("set apart from the other group's" if d is not None and len(d.groups) == 2 else
-              "set apart from the other groups', which stay held equal among themselves")
+    others = set_apart_words(len(d.groups) if d is not None else 0, "are")
     said = ([f"{word_list(every)} {'is' if len(every) == 1 else 'are'} not held equal across groups"] if every else []) + (
         [f"{word_list(one)} {'is' if len(one) == 1 else 'are'} {others}"] if one else [])
     return (f"Partial invariance declared in the model file: {'; '.join(said)}. The steps marked partial hold every "

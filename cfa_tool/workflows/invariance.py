@@ -794,8 +794,9 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str, tuple[
             out.append(LatentDifference(factor, label, mean - ref_mean, se, ci, p, float(d), var,
                                         own.se if own is not None and not through else float("nan"), ref_var,
                                         bool(through)))
-    withheld = (f" None for {', '.join(too_few)}: fewer than two of its items keep equal loadings and intercepts "
-                f"across groups, so the equality that makes its means comparable is not tested (Byrne, Shavelson & "
+    its = "its" if len(too_few) == 1 else "their"  # each sentence in the number of the factors it names (s23)
+    withheld = (f" None for {', '.join(too_few)}: fewer than two of {its} items keep equal loadings and intercepts "
+                f"across groups, so the equality that makes {its} means comparable is not tested (Byrne, Shavelson & "
                 f"Muthén 1989)." if too_few else "")
     lower = [f for f in result.latent if f in higher and f not in too_few]
     if lower:
@@ -805,9 +806,12 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str, tuple[
                      f"(I - B)^-T), not those of {'their' if len(lower) > 1 else 'its'} disturbance"
                      f"{'s' if len(lower) > 1 else ''}, and d is over the pooled total standard deviation.")
     if fixed_means:
-        withheld += (f" No mean difference for {', '.join(fixed_means)}: {'their' if len(fixed_means) > 1 else 'its'} "
-                     f"mean is fixed at 0 in every group (at this step the means of the factors it explains are free "
-                     f"in each group and take up any difference), so it is not estimated.")
+        one = len(fixed_means) == 1
+        withheld += (f" No mean difference for {', '.join(fixed_means)}: "
+                     + ("its mean is fixed at 0 in every group (at this step the means of the factors it explains are "
+                        "free in each group and take up any difference), so it is not estimated." if one else
+                        "their means are fixed at 0 in every group (at this step the means of the factors they "
+                        "explain are free in each group and take up any difference), so they are not estimated."))
     which = "the partially invariant scalar model" if any(s.partly_equal for s in steps if s.level != "strict") \
         else "the scalar model"
     return tuple(out), (f"From {which}: each group's factor means against the reference group "

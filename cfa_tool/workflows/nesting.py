@@ -353,7 +353,8 @@ def _not_positive_factor(factors) -> str:
     own_test = [name for name, _, own in bad if own]
     return (f"the scaling factor{'' if one else 's'} of {said} {'is' if one else 'are'} not positive, so the "
             f"difference cannot be scaled (a scaling factor is an estimated average of eigenvalues that must be "
-            f"positive" + (f"; the scaled test of {' and '.join(own_test)} was not computed either" if own_test else "")
+            f"positive" + (f"; the scaled test{'' if len(own_test) == 1 else 's'} of {' and '.join(own_test)} "
+                           f"{'was' if len(own_test) == 1 else 'were'} not computed either" if own_test else "")
             + ")")
 
 

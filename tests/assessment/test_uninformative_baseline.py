@@ -20,11 +20,13 @@ import math
 
 import numpy as np
 import pandas as pd
+import pytest
 
 import cfa_tool
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.assessment.fit_indices import cfi_from, tli_value
 from cfa_tool.cli import main
+from cfa_tool.errors import OptionError
 from cfa_tool.inference.robust import robust_fit
 from cfa_tool.reporting.paragraph import methods_paragraph
 from cfa_tool.reporting.tables import fit_table
@@ -74,18 +76,17 @@ def test_noise_gets_no_cfi_and_a_caution_first_in_every_view(tmp_path, capsys):
     paragraph = methods_paragraph(result)
     assert "CFI = not defined" in paragraph
     # the baseline's chi-square below its df: TLI not defined and CFI 0/0, said before the figures (s22)
-    assert paragraph.index("so the TLI was not defined") < paragraph.index("nor was the CFI (0/0") < paragraph.index(
+    assert paragraph.index("so the TLI was not defined") < paragraph.index("nor was the CFI (its formula gives 0/0") < paragraph.index(
         "The model fit was")
     path = tmp_path / "noise.csv"
     data.to_csv(path, index=False)
     (tmp_path / "one.cfa").write_text(ONE)
     assert main(["fit", str(tmp_path / "one.cfa"), "--data", str(path), "--json", str(tmp_path / "o.json")]) == 0
     out = capsys.readouterr().out
-    assert out.index("The items correlate weakly enough") < out.index("Model fit")
+    assert out.index("The items correlate weakly: the baseline model") < out.index("Model fit")
     saved = json.loads((tmp_path / "o.json").read_text())
     assert saved["fit"]["cfi"] is None
-    assert "baseline model misfits little: read CFI and TLI beside RMSEA and SRMR" in [p["kind"] for p in
-                                                                                       saved["problems"]]
+    assert "weakly correlated items" in [p["kind"] for p in saved["problems"]]  # a kind, no advice (s23)
 
 
 def test_a_robust_fit_follows_the_same_rules():
@@ -151,7 +152,8 @@ def test_a_realistic_scale_is_told_how_the_indices_are_bounded_in_measured_words
     assert f.chi_square > f.df and np.isclose(f.tli, 1 - (f.rmsea / base) ** 2, atol=1e-9)
     words = str(caution.explanation)
     assert "high or low" not in words and "nearly fits" not in words and "say little" not in words
-    assert "bounded by how badly it fits" in words and "rule of thumb recalled" in words
+    assert "a small change in the model's own misfit moves them a long way" in words
+    assert "rule of thumb recalled" in words
     at_close = 1 - (0.05 / base) ** 2  # the TLI a model of RMSEA .05 would have with this baseline
     assert f"a model with an RMSEA of .05 would have a TLI of {at_close:.3f}".replace("0.", ".", 1) in words
     assert "beside the RMSEA, the SRMR and the residual correlations" in str(caution.advice)
@@ -176,5 +178,21 @@ def test_a_comparison_says_it_once_after_its_other_cautions(tmp_path, capsys):
     capsys.readouterr()
     flat = " ".join(markdown.read_text().split())
     # one baseline for both models of the same rows: said once, as a fit says it (a comparison printed none)
-    assert flat.count("The items correlate weakly enough that the baseline model") == 1
-    assert "is at most its degrees of freedom" in flat and "so the TLI is not defined" in flat
+    assert flat.count("The items correlate weakly: the baseline model") == 1
+    assert "is no larger than its degrees of freedom" in flat and "so the TLI is not defined" in flat
+
+
+def test_its_kind_is_a_plain_value_and_a_saved_fit_of_earlier_versions_is_still_read():
+    """The JSON kind is a kind like the others ('weakly correlated items'), not advice (s23: 'baseline model misfits
+    little: read CFI and TLI beside RMSEA and SRMR'); a saved fit that lists the earlier words is still read as the same
+    kind (assessment.admissibility.listed_problems, as report and scores --from-fit read it)."""
+    from cfa_tool.assessment.admissibility import listed_problems
+
+    assert ProblemKind.UNINFORMATIVE_BASELINE.value == "weakly correlated items"
+    assert ":" not in ProblemKind.UNINFORMATIVE_BASELINE.value
+    saved = {"kind": "baseline model misfits little: read CFI and TLI beside RMSEA and SRMR", "parameters": [],
+             "value": 0.07, "explanation": "The items correlate weakly.", "advice": "read them beside", "group": None}
+    [read] = listed_problems([saved], "fit.json")
+    assert read.kind is ProblemKind.UNINFORMATIVE_BASELINE
+    with pytest.raises(OptionError, match="its list of problems is incomplete or changed by hand"):
+        listed_problems([saved | {"kind": "no such kind"}], "fit.json")

@@ -28,7 +28,7 @@ def test_a_group_of_few_clusters_is_a_caution(rows):
     assert data.groupby("district").hh.nunique().to_dict() == {"north": 182, "south": 3}
     result = fit(MODEL, data, group="district", cluster="hh")
     (few,) = [p for p in result.problems if p.kind is ProblemKind.FEW_CLUSTERS]
-    assert "group 'south' (3)" in str(few.explanation)
+    assert "in group south (3)" in str(few.explanation)  # the one rule of group names (s23: quoted alone here)
     assert few.value == 3  # the group's clusters, not the sample's 185
 
 
@@ -50,5 +50,6 @@ def test_weights_uneven_within_one_group_are_a_caution(rows):
     assert kish["south"] < 2 and w.sum() ** 2 / (w ** 2).sum() > 0.5 * len(w)  # the sample's own size says nothing
     result = fit(MODEL, data, group="district", weights="w")
     (uneven,) = [p for p in result.problems if p.kind is ProblemKind.SMALL_EFFECTIVE_SAMPLE]
-    assert f"group 'south': its {len(south)} rows count as about {kish['south']:.1f}" in str(uneven.explanation)
+    assert (f"within a group (group south: its {len(south)} rows count as about {kish['south']:.1f}"
+            in str(uneven.explanation))  # the group named by the one rule of group names (s23: quoted alone here)
     assert uneven.value == round(kish["south"], 1)  # the group's, not the sample's

@@ -24,9 +24,9 @@ from cfa_tool.reporting.html_report import report_html
 from cfa_tool.reporting.paragraph import methods_paragraph
 from cfa_tool.reporting.terminal import report_text
 
-SAID = ("the baseline model's chi-square (5.84) is at most its degrees of freedom (6), so the TLI is not defined (it "
-        "would divide by at most 0), nor is the CFI (0/0: the model's chi-square is at most its degrees of freedom "
-        "too)")
+SAID = ("the baseline model's chi-square (5.84) is no larger than its degrees of freedom (6), so the TLI is not "
+        "defined (its formula would divide by zero or less), nor is the CFI (its formula gives 0/0, the model's "
+        "chi-square being no larger than its degrees of freedom either)")
 
 
 def _weak_items() -> pd.DataFrame:
@@ -51,7 +51,7 @@ def test_every_view_says_tli_and_cfi_are_not_defined():
     for view, text in flat.items():
         assert SAID in " ".join(text.split()), view
     paragraph = " ".join(methods_paragraph(result).split())
-    assert ("the baseline model's chi-square (5.84) was at most its degrees of freedom (6), so the TLI was not defined "
-            "(it would divide by at most 0), nor was the CFI (0/0: the model's chi-square was at most its degrees of "
-            "freedom too).") in paragraph
+    assert ("the baseline model's chi-square (5.84) was no larger than its degrees of freedom (6), so the TLI was not "
+            "defined (its formula would divide by zero or less), nor was the CFI (its formula gives 0/0, the model's "
+            "chi-square being no larger than its degrees of freedom either).") in paragraph
     assert "are read beside the RMSEA and SRMR" not in paragraph

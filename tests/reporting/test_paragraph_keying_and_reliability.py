@@ -142,9 +142,70 @@ def test_the_ordinal_paragraph_gives_the_observed_sum_omega_and_the_declared_ite
     assert "McDonald" not in text
 
 
-def test_an_ordinal_higher_order_factor_gets_no_coefficient_the_fit_did_not_compute(answers):
+def _higher_order_sum_omega_by_hand(result, top: str, keys: dict) -> float:
+    """The share of the variance of the keyed sum X = sum_i k_i x_i of the answers' codes (1..5) due to the
+    higher-order factor ``top`` alone, Var(E[X | g]) / Var(X), from the fit's estimates, with scipy's normal
+    distributions: E[x_i | g] = 1 + sum_c P(y*_i > tau_ic | g), y*_i | g normal with mean Cov(y*_i, g) g / Var(g) and
+    variance Var(y*_i) - Cov(y*_i, g)^2 / Var(g), integrated over g by Gauss-Hermite quadrature; Var(X) from the
+    bivariate normal probabilities of each pair of thresholds, P(y*_i > a, y*_j > b) (Green & Yang 2009, eq. 19, the
+    definition of the covariance of two cut normal variables; Zinbarg et al. 2005 for the share due to the general
+    factor alone)."""
+    from scipy import stats
+
+    est = {(r.kind, tuple(r.variables)): r.estimate for r in result.estimates}
+    items = list(result.observed)
+    factor_of = {v[1]: v[0] for k, v in est if k == "loading" and v[1] in items}
+    lam = {x: est[("loading", (factor_of[x], x))] for x in items}
+    gamma = {f: est[("loading", (top, f))] for f in set(factor_of.values())}
+    var_g = est[("factor_variance", (top,))]
+    var_f = {f: gamma[f] ** 2 * var_g + est[("factor_variance", (f,))] for f in gamma}
+    var_y = {x: lam[x] ** 2 * var_f[factor_of[x]] + est[("residual_variance", (x,))] for x in items}
+    with_g = {x: lam[x] * gamma[factor_of[x]] * var_g for x in items}
+    tau = {x: [est[("threshold", (x, str(c)))] for c in range(1, 5)] for x in items}
+    k = {x: keys.get(x, 1.0) for x in items}
+
+    nodes, weights = np.polynomial.hermite_e.hermegauss(80)  # g = sqrt(Var g) z, z standard normal
+    weights = weights / weights.sum()
+    g = np.sqrt(var_g) * nodes
+    expected = sum(k[x] * sum(stats.norm.sf((t - with_g[x] / var_g * g) / np.sqrt(var_y[x] - with_g[x] ** 2 / var_g))
+                              for t in tau[x]) for x in items)
+    due = float(weights @ (expected - weights @ expected) ** 2)
+
+    def covariance(x, y) -> float:
+        if x == y:
+            return sum(stats.norm.sf(max(a, b) / np.sqrt(var_y[x])) - stats.norm.sf(a / np.sqrt(var_y[x]))
+                       * stats.norm.sf(b / np.sqrt(var_y[x])) for a in tau[x] for b in tau[x])
+        sx, sy = np.sqrt(var_y[x]), np.sqrt(var_y[y])
+        rho = lam[x] * lam[y] * (var_f[factor_of[x]] if factor_of[x] == factor_of[y] else
+                                 gamma[factor_of[x]] * gamma[factor_of[y]] * var_g) / (sx * sy)
+        law = stats.multivariate_normal(mean=[0.0, 0.0], cov=[[1.0, rho], [rho, 1.0]])
+        return sum(law.cdf([-a / sx, -b / sy]) - stats.norm.sf(a / sx) * stats.norm.sf(b / sy)
+                   for a in tau[x] for b in tau[y])
+
+    total = sum(k[x] * k[y] * covariance(x, y) for x in items for y in items)
+    return due / total
+
+
+def test_an_ordinal_higher_order_factor_gets_the_omega_hierarchical_of_its_items_sum(answers):
+    """s23: the reliability table showed the higher-order factor's latent-response omega and the paragraph said
+    nothing of it (the observed-sum omega was computed for first-order factors only); now the share of the keyed sum
+    of the answers' codes due to it alone is computed, shown in the table's sum column and said in the paragraph, and
+    checked here against scipy's normal distributions (by hand, as the docstring of the helper says)."""
     result = cfa_tool.fit(TRAITS + "factor g: a, b, c\n", answers, ordinal="all")
     top = next(r for r in result.groups[0].reliability if r.factor == "g")
-    assert top.observed_sum_omega is None  # not computed for a higher-order factor's sum
-    sentence = _flat(methods_paragraph(result)).split("Green & Yang, 2009) was ")[1].split(", with")[0]
-    assert " for a" in sentence and " for c" in sentence and "for g" not in sentence
+    assert top.level == "higher-order" and top.reversed == KEYED  # the items worded against their traits
+    by_hand = _higher_order_sum_omega_by_hand(result, "g", {x: -1.0 for x in KEYED})
+    assert top.observed_sum_omega == pytest.approx(by_hand, abs=1e-6)
+    assert top.observed_sum_omega < top.omega_hierarchical  # the sum of codes below its latent responses' (Green &
+    # Yang 2009: categories lose reliability)
+    text = _flat(methods_paragraph(result))
+    first = text.split("Green & Yang, 2009) was ")[1].split(", with")[0]
+    assert " for a" in first and " for c" in first and "for g" not in first  # not among the first-order factors
+    assert ("For the higher-order factor, omega hierarchical of the keyed sum of the answers' codes of the items below "
+            "it, the share of that sum's variance due to the higher-order factor alone (from the fitted thresholds, "
+            "loadings and factor variances; Green & Yang, 2009; Zinbarg, Revelle, Yovel & Li, 2005), was "
+            f"{unit(top.observed_sum_omega, 2)} for g, with q2, q5, and q8 reversed in the sums") in text
+    from cfa_tool.reporting.tables import reliability_table
+
+    table = reliability_table(result)
+    assert {row[0]: row[2] for row in table.rows}["g"] == unit(top.observed_sum_omega)

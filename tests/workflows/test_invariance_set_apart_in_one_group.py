@@ -1,7 +1,7 @@
 """A parameter set apart in one group ('in group east: noninvariant intercept(x2)', twentieth session) in the
 invariance ladder, fit's methods paragraph and compare.  The ladder holds it in force from the step that holds its
-class equal, names its group in the report, the JSON and the methods paragraph ("set apart from the other groups'
-(held equal among themselves)"), and computes the latent mean differences with it; compare counts it (one degree of
+class equal, names its group in the report, the JSON and the methods paragraph ("set apart from the other groups',
+which were held equal among themselves", the one rule in each view's tense), and computes the latent mean differences with it; compare counts it (one degree of
 freedom against the full scalar model, one more for the exemption in every group).
 
 Data: an invented three-site survey simulated with a fixed seed, in which the only difference in measurement is the
@@ -25,12 +25,12 @@ from cfa_tool.workflows.invariance import invariance
 MODEL = "factor f: x1, x2, x3, x4\nin group east: noninvariant intercept(x2)\n"
 
 
-def _sites(seed: int = 11) -> pd.DataFrame:
+def _sites(seed: int = 11, north_x3: float = 0.0) -> pd.DataFrame:
     rng = np.random.default_rng(seed)
     nu, lam = np.array([3.0, 2.5, 3.2, 2.8]), np.array([1.0, 0.8, 0.9, 0.7])
     frames = []
     for label, mean, sd in (("audit", 0.0, 1.0), ("east", 0.4, 0.9), ("north", -0.2, 1.1)):
-        shift = np.array([0.0, 0.7 if label == "east" else 0.0, 0.0, 0.0])
+        shift = np.array([0.0, 0.7 if label == "east" else 0.0, north_x3 if label == "north" else 0.0, 0.0])
         eta = rng.normal(mean, sd, size=250)
         frame = pd.DataFrame(nu + shift + np.outer(eta, lam) + rng.normal(0, 0.6, size=(250, 4)),
                              columns=["x1", "x2", "x3", "x4"])
@@ -75,10 +75,10 @@ def test_the_report_the_json_and_the_methods_paragraph_name_its_group(ladders):
     report = invariance_report(declared)
     text = " ".join(" ".join(map(str, report.notes)).split())
     assert ("Partial invariance declared in the model file: the intercept of x2 in group east (from the scalar "
-            "step) is set apart from the other groups', which stay held equal among themselves.") in text
+            "step) is set apart from the other groups', which are held equal among themselves.") in text
     paragraph = " ".join(report.paragraph.split())
-    assert ("Scalar invariance, partial with the intercept of x2 in group east set apart from the other groups' "
-            "(held equal among themselves), held") in paragraph
+    assert ("Scalar invariance, partial with the intercept of x2 in group east set apart from the other groups', "
+            "which were held equal among themselves, held") in paragraph
     steps = json.loads(json.dumps(declared.to_dict()))["steps"]
     assert steps[2]["declared_not_equal"] == [{"kind": "intercept", "variables": ["x2"], "group": "east"}]
 
@@ -125,3 +125,19 @@ def test_the_advice_after_a_failed_step_names_the_statement_for_that_group(ladde
     text = " ".join(" ".join(map(str, invariance_report(plain).notes)).split())
     assert ("declare each in the model file ('noninvariant intercept(x2)', or in group east alone: 'in group east: "
             "noninvariant intercept(x2)')") in text
+
+
+def test_a_failed_partial_step_names_the_declaration_last_its_clause_closed():
+    """The ladder's paragraph says the declaration by the one rule (paragraph.set_apart_words: a clause 'which were
+    held equal among themselves'), last in the sentence of a step that failed before the search freed another
+    parameter, so that the clause does not run into 'and every other equality' (s23; before: in brackets, first).
+    Data: the same sites with the intercept of x3 also 0.8 higher at north (invented; fixed seed), which the search
+    frees."""
+    result = invariance(MODEL, _sites(north_x3=0.8), group="site", partial="auto")
+    assert [(f.kind, f.variables) for f in result.freed] == [("intercept", ("x3",))]  # the difference simulated
+    paragraph = " ".join(invariance_report(result).paragraph.split())
+    assert ("Scalar invariance did not hold with every other equality and the intercept of x2 in group east set apart "
+            "from the other groups', which were held equal among themselves (\u03c7\u00b2(") in paragraph
+    assert ("Strict invariance, partial with the intercept of x3 (freed at the scalar step) still free and the "
+            "intercept of x2 in group east set apart from the other groups', which were held equal among themselves, "
+            "held") in paragraph

@@ -64,8 +64,8 @@ def test_a_step_whose_2001_correction_is_not_positive_reads_the_strictly_positiv
     ladder = invariance(THREE_FACTORS, holes, "school", test="robust")
     metric = ladder.steps[1].versus_previous
     assert metric.method.value == "Satorra-Bentler 2010 strictly positive scaled difference"
-    assert ("(Satorra & Bentler 2001); at the metric, scalar, and strict steps its correction was not positive, so "
-            "the strictly positive version (Satorra & Bentler 2010) is given" in " ".join(ladder.summary().split()))
+    assert ("(Satorra & Bentler 2001); at the metric, scalar, and strict steps the scaled difference's correction was "
+            "not positive, so the strictly positive version (Satorra & Bentler 2010) is given" in " ".join(ladder.summary().split()))
     monkeypatch.undo()
     pair = compare([THREE_FACTORS + "invariance metric\n", THREE_FACTORS], holes, group="school", test="robust")
     (expected,) = [t for t in pair.tests if t.method is metric.method]
