@@ -131,6 +131,25 @@ def codes_given(codes) -> str:
     return f"{Option.MISSING_CODES} {text}"
 
 
+#: the key of a frame's ``attrs`` that holds the codes and words of no answer the run gave (--missing-codes, as
+#: data.readers.with_no_answers_read read them): the rows' columns carry it wherever they go (row filters, groups,
+#: items taken out), so that advice written far from the options (a word among numbers, an empty category, an
+#: answer outside a declared scale) keeps them (:func:`advice_codes`)
+GIVEN_CODES = "no_answer_codes_given"
+
+
+def given_codes(frame) -> tuple:
+    """The codes and words of no answer the run gave, which the reading of ``frame`` (a data frame or one of its
+    columns) recorded (:data:`GIVEN_CODES`); () when none."""
+    return tuple(getattr(frame, "attrs", {}).get(GIVEN_CODES, ()))
+
+
+def advice_codes(frame, codes) -> str:
+    """:func:`codes_given` of the codes the run gave (:func:`given_codes` of ``frame``) followed by ``codes``: the
+    list that advice to read ``codes`` as no answer gives to copy, which never drops a code already given."""
+    return codes_given(given_codes(frame) + tuple(codes))
+
+
 def says_no_answer(text: object, explained: bool = False) -> bool:
     """Whether a value label or a cell's text says the value is not an answer: one of the phrases (or of the run's
     own words, :func:`also_no_answer`) as a whole ('N/A', 'DK/NA'), one of the :data:`NON_ANSWER_MARKS`, or several

@@ -28,7 +28,7 @@ from cfa_tool.data.kept_counts import ReadingCounts, emptied_cells
 from cfa_tool.data.missing_codes import apply_missing_codes, codes_on_answers, missing_codes_note
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.notes_rows import end_of_data, notes_lines, notes_note
-from cfa_tool.data.non_answers import answers_labelled_like_none, declared_missing, labelled_non_answers, \
+from cfa_tool.data.non_answers import GIVEN_CODES, answers_labelled_like_none, declared_missing, labelled_non_answers, \
     non_answer_note, run_words, says_no_answer, unused_run_words, written_non_answers
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
 from cfa_tool.data.row_ids import id_text
@@ -258,6 +258,10 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     words = run_words()
     if not numbers and not words:
         return loaded
+    if loaded.frame.attrs.get(GIVEN_CODES) != numbers + tuple(words):  # what advice far from here keeps
+        marked = loaded.frame.copy(deep=False)  # never the caller's own data frame
+        marked.attrs[GIVEN_CODES] = numbers + tuple(words)
+        loaded = replace(loaded, frame=marked)
     return replace(loaded, missing_codes=numbers, codes_found=tuple(c for c in numbers if c in found),
                    missing_words=tuple(words))
 

@@ -21,6 +21,7 @@ import pandas as pd
 from cfa_tool.data.halves import drawn_halves
 from cfa_tool.data.kept_rows import FINISHED_COLUMNS, ROW_NAMING, row_naming
 from cfa_tool.data.moments import stray_word_message
+from cfa_tool.data.non_answers import run_words
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.assessment.admissibility import sample_size_problems
 from cfa_tool.numbers import cut_list, more_words, names_shown, user_number
@@ -740,10 +741,12 @@ def _refuse_too_few_named(chosen: tuple[str, ...]) -> None:
                       f"more items")
 
 
-def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str, codings: tuple) -> None:
+def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str, codings: tuple,
+                       given: tuple = ()) -> None:
     """An item named in --items that holds words no answers file codes: an error naming the column, the cell and
     what explore takes (an answers file, with the statement the words suggest); cells holding digits or other
-    values are left to the reading of the items (data.moments), which names them."""
+    values are left to the reading of the items (data.moments), which names them; ``given``: the codes and words of
+    no answer the run gave, which advice to give a word keeps."""
     from cfa_tool.data.answer_scales import stray_text, suggested_statement
     from cfa_tool.data.kept_rows import cell_words
     from cfa_tool.data.moments import row_numbers
@@ -763,7 +766,8 @@ def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str
                 continue
             shown = clipped(cell.strip(), 40)
             if stray_text(values):  # a slip among numbers, as fit reads it (data.answer_scales.stray_text)
-                raise DataError(stray_word_message(source, name, shown, cell_words(column, name, row), cell.strip()))
+                raise DataError(stray_word_message(source, name, shown, cell_words(column, name, row), cell.strip(),
+                                                   given))
             statement = suggested_statement(values)
             where = (f"{source}: column '{printable(name)}' holds words ('{shown}' in {row_of(column, row)}), "
                      f"and explore analyses numbers")
@@ -905,7 +909,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         _refuse_too_few(chosen, scan, codings)
     spec = _explored_spec(chosen, codings, answers, worded if by_default else None)
     if not by_default:
-        _refuse_text_items(scan.frame.set_axis(columns, axis=1), chosen, source, codings)
+        _refuse_text_items(scan.frame.set_axis(columns, axis=1), chosen, source, codings,
+                           sum(api.missing_values_option(missing_codes), ()) + run_words())
     spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, missing_codes, api.keep_option(keep),
                                                      (id_column,) if isinstance(id_column, str) else (),
                                                      names_row=names_row, first_data_row=first_data_row, rename=rename)
