@@ -321,7 +321,7 @@ class LabelledAnswer:
         total = sum(self.cells)
         codes = tuple(c for c in given if isinstance(c, (int, float))) + run_words() + (self.value,)
         return Note((f"{base_name(source)}: {user_number(self.value)} '{printable(self.label)}' lies between other answers of "
-                     f"the item{'s' if len(self.columns) != 1 else ''} and was analysed as an answer ({count_text(total)} "
+                     f"the item{'s' if len(self.columns) != 1 else ''} and is analysed as an answer ({count_text(total)} "
                      f"cell{'s' if total != 1 else ''}: {listed}), though its label reads like no answer",
                      Command(f"; to read it as no answer, give {codes_given(codes)}")))
 
@@ -652,9 +652,9 @@ def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items: Iterabl
     if not lost:
         return None
     why = ("listwise deletion leaves out every row with a gap" if listwise else
-           "no answer to any item was left in them")
-    caution = (f"{lost} row{'s' if lost != 1 else ''} left the analysis because values read as no answer emptied "
-               f"{'their cells' if lost != 1 else 'its cells'} ({why}). {said[0]}")
+           "no answer to any item is left in them")
+    caution = (f"{counted(lost, 'row')} leave{'s' if lost == 1 else ''} the analysis because values read as no answer "
+               f"emptied {'their cells' if lost != 1 else 'its cells'} ({why}). {said[0]}")
     if not listwise:
         keep = ""
     else:

@@ -21,7 +21,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.case_filter import filter_variable
+from cfa_tool.data.case_filter import filter_variable, kept_rows_words
 from cfa_tool.data.kept_rows import (SHEET_COLUMNS, TEXT_LINES, line_words, row_naming, row_words, rows_listed,
                                      text_lines)
 from cfa_tool.data.kept_counts import ReadingCounts, emptied_cells
@@ -598,17 +598,16 @@ class HiddenRows:
         return replace(self, rows=rows, filtered_out=self.filtered_out + len(self.rows) - len(rows)) if rows else None
 
     def caution(self, source: str) -> str:
-        """What was found (the rows, hidden by the workbook's filter or by hand) and that they were kept."""
+        """What was found (the rows, hidden by the workbook's filter or by hand), that they are kept, and what a fit
+        does with them, in words as true of a check, which analyses nothing, as of a fit (plan-s23: check said the
+        rows 'were kept and analysed')."""
         name = source.replace("\\", "/").rsplit("/", 1)[-1]
         shown = cut_list(self.rows, 5)
         hidden = len(self.rows) + self.filtered_out
         how = "by its filter" if self.filtered else "by hand, not by a filter"
-        left = (f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)} "
-                f"{'was' if len(self.rows) == 1 else 'were'} kept"
-                if self.filtered_out else f"; {'it was' if hidden == 1 else 'they were'} kept")
         return (f"{name} (sheet '{printable(self.sheet)}') hides {hidden} of its {self.of} rows of data "
-                f"(row{'s' if len(self.rows) != 1 else ''} {shown}) {how}{left} and analysed with the rows it shows, "
-                f"as the file holds them.")
+                f"(row{'s' if len(self.rows) != 1 else ''} {shown}) {how}"
+                + kept_rows_words(len(self.rows), self.filtered_out, "the rows it shows") + ".")
 
     def advice(self) -> Note:
         """What to try, the row filter apart (note_parts.Command): a manuscript's reader runs nothing."""
@@ -677,7 +676,7 @@ class OtherSheets:
         name = source.replace("\\", "/").rsplit("/", 1)[-1]
         listed = " and ".join(f"'{printable(s)}'" for s in self.sheets)
         other = "sheet" if len(self.sheets) == 1 else "sheets"
-        return (f"{name}: only the sheet '{printable(self.read)}' was analysed, and the workbook's {other} {listed} "
+        return (f"{name}: only the sheet '{printable(self.read)}' is read, and the workbook's {other} {listed} "
                 f"{'holds' if len(self.sheets) == 1 else 'hold'} columns named as every item of the model too.")
 
     def advice(self) -> Note:
@@ -934,7 +933,7 @@ def _sheet_note(path: Path, read: str, names: list[str], hidden: list[str], name
                Command(f" with {Option.SHEET}"), ")")
     else:
         how = ("the first sheet", Command(f"; name another with {Option.SHEET}"))
-    return Note((f"{path}: the sheet '{printable(read)}' was analysed, ", *how, f"; the workbook also has {listed}"))
+    return Note((f"{path}: the sheet '{printable(read)}' was read, ", *how, f"; the workbook also has {listed}"))
 
 
 MERGED_HEADER_LOOK = 5  # rows under a header of merged cells looked at for the column names

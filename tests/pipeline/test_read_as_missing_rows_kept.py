@@ -69,7 +69,7 @@ def test_the_caution_of_rows_left_out_counts_the_cells_of_the_rows_kept(tmp_path
     (caution,) = [p for p in result.problems if p.kind is ProblemKind.VALUES_READ_AS_MISSING]
     # depot 2: rows 700, 701 (s3) and 900 (c1), 3 rows and 3 cells (counted by hand from CODED)
     assert str(caution.explanation).startswith(
-        "3 rows left the analysis because values read as no answer emptied their cells (listwise deletion leaves out "
+        "3 rows leave the analysis because values read as no answer emptied their cells (listwise deletion leaves out "
         "every row with a gap). 3 cells of the items in the 600 rows of riders.sav that the row filters kept hold "
         "values that the file declares as missing values, read as missing, not as answers: 8 (3 cells: s3 2, c1 1).")
 
@@ -98,11 +98,11 @@ def test_a_code_labelled_like_no_answer_between_the_answers_is_counted_in_the_ro
                          missing_ranges={c: [8] for c in ITEMS})
     whole = int((riders[ITEMS] == 2).to_numpy().sum())  # counted by numpy on every row: above 1,000
     (note,) = _notes(cfa_tool.check(MODEL, path), "lies between other answers")
-    assert whole >= 1000 and f"and was analysed as an answer ({whole:,} cells: " in note
+    assert whole >= 1000 and f"and is analysed as an answer ({whole:,} cells: " in note
     kept = riders.iloc[: ROWS // 2]
     cells = {c: int((kept[c] == 2).sum()) for c in ITEMS}  # counted by numpy on the rows of depot 1
     (note,) = _notes(cfa_tool.check(MODEL, path, keep=["depot = 1"]), "lies between other answers")
-    assert f"and was analysed as an answer ({sum(cells.values()):,} cells: " in note
+    assert f"and is analysed as an answer ({sum(cells.values()):,} cells: " in note
     assert all(f"{c} {n}" in note for c, n in cells.items())
 
 
