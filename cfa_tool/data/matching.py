@@ -66,9 +66,12 @@ def check_columns(spec: Spec, columns: list[str], data_source: str, sheet_hint: 
 class ChosenColumns(dict):
     """The columns a run chooses for a role other than an item, {column: the role's words}, and ``numbers``, those of
     them whose role takes numbers (the weights, the missing-data helpers): read as the file's codes whatever value
-    labels it gives them, where a group or cluster column is read as its labels (pipeline.inputs._codes_as_labels)."""
+    labels it gives them, where a group or cluster column is read as its labels (pipeline.inputs._codes_as_labels);
+    ``group``: the group column, whose rows without a value are left out of the analysis (the reading's counts are
+    then written over the others, data.kept_counts)."""
 
     numbers: frozenset[str] = frozenset()
+    group: str | None = None
 
 
 def chosen_columns(group: str | None = None, id_column: str | None = None, design=None,
@@ -83,6 +86,7 @@ def chosen_columns(group: str | None = None, id_column: str | None = None, desig
         out[id_column] = "the id column"
     if isinstance(group, str):
         out[group] = "the group column"
+        out.group = group
     return out
 
 

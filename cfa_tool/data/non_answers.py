@@ -185,16 +185,16 @@ def _parts(text: str) -> list[str]:
     return [_plain(p) for p in re.split(r"[/,;&]|\bor\b", text.lower())]
 
 
-def unused_run_words(found: tuple["NonAnswer", ...]) -> tuple[str, ...]:
-    """The run's words of no answer (:func:`also_no_answer`) that no value read as no answer (``found``: cells and
-    value labels of the items) says, as a mistyped word would leave them."""
+def unused_run_words(found: tuple["NonAnswer", ...], words: tuple[str, ...] | None = None) -> tuple[str, ...]:
+    """The run's words of no answer (``words``; None: :func:`also_no_answer`'s) that no value read as no answer
+    (``found``: cells and value labels of the items) says, as a mistyped word would leave them."""
     said = set()
     for f in found:
         for text in (f.value, f.label):
             if isinstance(text, str):
                 said.add(_plain(text))
                 said.update(_parts(text))
-    return tuple(w for w in run_words() if _plain(w) not in said)
+    return tuple(w for w in (run_words() if words is None else words) if _plain(w) not in said)
 
 
 class NonAnswerKind(enum.Enum):
@@ -580,7 +580,12 @@ def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | No
     return f"values the data file marks as no answer were treated as missing ({shown})"
 
 
-def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | None = None) -> tuple[str, str] | None:
+#: the words after 'the N rows' of a note counted over the rows that row filters kept (data.kept_counts)
+FILTERS_KEPT = "that the row filters kept"
+
+
+def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | None = None,
+          among: str = FILTERS_KEPT) -> tuple[str, str] | None:
     """What was read as no answer in the model's ``items`` (None: every column in ``found``), one sentence: each
     code with its label, the items and their cells; and how to undo it.  None if nothing.  ``kept``: the rows row
     filters kept, when they chose the rows (``found`` counted over them: data.kept_counts), which the sentence names."""
@@ -590,7 +595,7 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | Non
     frame = source == DATA_FRAME
     name = "the data frame" if frame else base_name(source)
     if kept is not None:
-        name = f"the {counted(kept, 'row')} of {name} that the row filters kept"
+        name = f"the {counted(kept, 'row')} of {name} {among}"
     by_value: dict[tuple, list[NonAnswer]] = {}
     for f in mine:
         by_value.setdefault((f.kind, f.value, f.label if f.kind is NonAnswerKind.LABELLED else None), []).append(f)
@@ -606,7 +611,8 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | Non
                                       (NonAnswerKind.DECLARED, "declares as missing values"),
                                       (NonAnswerKind.WRITTEN, "writes as no answer")) if k in kinds)
     held = "text that says no answer" if frame else f"values that the file {how}"
-    said = (f"{count_text(total)} cell{'s' if total != 1 else ''} of the items in {name} hold {held}, "
+    said = (f"{count_text(total)} cell{'s' if total != 1 else ''} of the items in {name} "
+            f"hold{'s' if total == 1 else ''} {held}, "
             f"read as missing, not as answers: {'; '.join(parts)}.")
     undo = "; ".join(w for k, w in ((NonAnswerKind.LABELLED, "give its code another value label"),
                                      (NonAnswerKind.DECLARED, "remove its declaration as a missing value"),
@@ -615,12 +621,13 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | Non
 
 
 def non_answer_note(found: tuple[NonAnswer, ...], source: str, items: Iterable[str] | None = None,
-                    kept: int | None = None) -> str | None:
+                    kept: int | None = None, among: str = FILTERS_KEPT) -> str | None:
     """The note of the data summary on what was read as no answer in the model's ``items`` (every view shows a
     reader's notes): what, where and how many cells, and how to undo it; None if nothing.  Whether rows leave the
-    analysis because of it is :func:`non_answer_caution`'s to say.  ``kept``: the rows row filters kept (``found``
-    counted over them, data.kept_counts)."""
-    said = _said(found, source, items, kept)
+    analysis because of it is :func:`non_answer_caution`'s to say.  ``kept``: the rows analysed, when row filters
+    or a group column chose them (``found`` counted over them, data.kept_counts), which ``among`` names ('that the row
+    filters kept')."""
+    said = _said(found, source, items, kept, among)
     return None if said is None else f"{said[0][:-1]}. {said[1][:-1]}"
 
 
@@ -640,14 +647,16 @@ def rows_lost(found: tuple[NonAnswer, ...], frame: pd.DataFrame, items: Iterable
 
 
 def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items: Iterable[str] | None, frame: pd.DataFrame,
-                       listwise: bool = False, kept: int | None = None) -> tuple[str, Text] | None:
+                       listwise: bool = False, kept: int | None = None,
+                       among: str = FILTERS_KEPT) -> tuple[str, Text] | None:
     """The one rule that makes values read as no answer (the data summary's note, :func:`non_answer_note`) a
     caution first in every view: when rows leave the analysis because of them (:func:`rows_lost`: ``listwise``
     deletion, or a row left with no answer to any item), the caution (one line) says how many rows and what was
     read, with its advice; None when every row stays (full information keeps a row with gaps), which it advises
     with listwise deletion (groups that share clusters too: full-information ML takes their clusters).  ``kept``:
-    the rows row filters kept, when they chose the rows (``found`` counted over them, data.kept_counts)."""
-    said = _said(found, source, items, kept)
+    the rows analysed, when row filters or a group column chose them (``found`` counted over them,
+    data.kept_counts), which ``among`` names."""
+    said = _said(found, source, items, kept, among)
     lost = rows_lost(found, frame, items, listwise) if said is not None else 0
     if not lost:
         return None

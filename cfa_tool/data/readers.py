@@ -24,7 +24,7 @@ import pandas as pd
 from cfa_tool.data.case_filter import filter_variable, kept_rows_words
 from cfa_tool.data.kept_rows import (SHEET_COLUMNS, TEXT_LINES, line_words, row_naming, row_words, rows_listed,
                                      text_lines)
-from cfa_tool.data.kept_counts import ReadingCounts, emptied_cells
+from cfa_tool.data.kept_counts import ReadingCounts, emptied_cells, markers_note
 from cfa_tool.data.missing_codes import apply_missing_codes, codes_on_answers, missing_codes_note
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.notes_rows import end_of_data, notes_lines, notes_note
@@ -245,13 +245,18 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     like_none = tuple(a.note(str(where), tuple(missing_codes))  # answers whose label reads like none
                       for a in answers_labelled_like_none(frame, item_labels, tuple(missing_codes)))
     code_notes = tuple(code_notes) + like_none
-    # the notes that count cells, kept with what they counted: written again over the rows row filters keep
+    unused = unused_run_words(written + labelled) if run_words() else ()
+    unused_note = missing_codes_note(where, unused, [], "of the items") if unused else None
+    if unused_note is not None:  # the words of --missing-codes that no item holds: said as a code that no cell holds is
+        code_notes = tuple(code_notes) + (unused_note,)
+    markers = loaded.frame.attrs.get(MARKER_CELLS)  # the reader's note on 'NA', '.': (note, {marker: rows})
+    # the notes that count cells, kept with what they counted: written again over the rows analysed (row filters,
+    # a group column: data.kept_counts)
     loaded = replace(loaded, counts=ReadingCounts(
         str(where), None if mine is None else frozenset(mine), tuple(missing_codes), coded, item_labels,
-        code_notes[0] if missing_codes else None, read_as_none, like_none))
-    unused = unused_run_words(written + labelled) if run_words() else ()
-    if unused:  # the words of --missing-codes that no item holds: said as a code that no cell holds is
-        code_notes = tuple(code_notes) + (missing_codes_note(where, unused, [], "of the items"),)
+        code_notes[0] if missing_codes else None, read_as_none, like_none,
+        markers[0] if markers and any(n is markers[0] for n in loaded.notes) else None,
+        markers[1] if markers else {}, tuple(run_words()), unused_note, _code_rows(before, found, mine)))
     if code_notes:
         loaded = replace(loaded, notes=loaded.notes + tuple(code_notes))
     numbers = tuple(float(c) for c in missing_codes if isinstance(c, (int, float)) and not isinstance(c, bool))
@@ -264,6 +269,17 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
         loaded = replace(loaded, frame=marked)
     return replace(loaded, missing_codes=numbers, codes_found=tuple(c for c in numbers if c in found),
                    missing_words=tuple(words))
+
+
+def _code_rows(frame: pd.DataFrame, found, items) -> tuple[tuple[float, tuple], ...]:
+    """Each code of ``found`` (codes given with --missing-codes that some cell held) with the rows (index labels) of
+    ``frame`` (before the codes were read as no answer) whose item columns (``items``; None: every column) hold it."""
+    if not found:
+        return ()
+    columns = [c for c in frame.columns if (items is None or str(c) in items)
+               and pd.api.types.is_numeric_dtype(frame[c])]
+    values = frame[columns].to_numpy(dtype=float, na_value=np.nan) if columns else np.empty((len(frame), 0))
+    return tuple((float(c), tuple(frame.index[(values == c).any(axis=1)].tolist())) for c in sorted(found))
 
 
 def sheet_of_each(sources, sheet: str | None) -> tuple[str | None, ...]:
@@ -513,19 +529,23 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
     _padded_as_shown(ws, body, kept, header, skipped, items, where, notes)
     marked: dict[int, dict[str, int]] = {}  # column position -> {marker: cells}, counted once
-    for r in body:
+    marker_rows: dict[str, list[int]] = {}  # marker -> the body's row of each such cell
+    for i, r in enumerate(body):
         for k, v in enumerate(r):
             if isinstance(v, str) and v.strip() in _MARKER_SET:
                 counted = marked.setdefault(k, {})
                 counted[v.strip()] = counted.get(v.strip(), 0) + 1
+                marker_rows.setdefault(v.strip(), []).append(i)
                 r[k] = None
-    _say_markers(_marker_totals(marked.values()), where, notes)
+    said = _say_markers(_marker_totals(marked.values()), where, notes)
     if any(v is None for r in body for v in r):
         _check_uncomputed_formulas(path, ws.title, data_start - 2)
     frame = pd.DataFrame(body, columns=header, index=file_rows_index(kept))
     frame.attrs[SHEET_COLUMNS] = {name: get_column_letter(skipped + k + 1) for k, name in enumerate(header) if name}
     if marked:
         frame.attrs[MARKED] = {header[k]: counted for k, counted in marked.items()}
+    if said is not None:
+        frame.attrs[MARKER_CELLS] = (said, {m: frame.index[rows].to_numpy() for m, rows in marker_rows.items()})
     _check_formula_errors(frame, where, items, _typed_errors(frame, ws))
     _check_repeated_header(frame, where, first + 1)
     _check_header_rows(frame, where, False, items=items, header_row=first + 1, names_option=names_option,
@@ -2071,19 +2091,30 @@ def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list
         return
     cells = raw.frame()
     marked = {}  # column -> {marker: cells}, counted once for the note and the column's record
+    marker_rows: dict[str, list] = {}  # marker -> the row (index label) of each such cell
     for k, name in enumerate(header):
         stripped = cells.iloc[:, k].str.strip()
-        counted = stripped[stripped.isin(MISSING_MARKERS)].value_counts(sort=False)
+        held = stripped[stripped.isin(MISSING_MARKERS)]
+        counted = held.value_counts(sort=False)
         if len(counted):
             marked[name] = {str(m): int(n) for m, n in counted.items()}
-    _say_markers(_marker_totals(marked.values()), path, notes)
+            for label, m in held.items():
+                marker_rows.setdefault(str(m), []).append(label)
+    said = _say_markers(_marker_totals(marked.values()), path, notes)
     if frame is not None and marked:
         frame.attrs[MARKED] = marked
+        if said is not None and len(cells) == len(frame):
+            frame.attrs[MARKER_CELLS] = (said, {m: np.asarray(rows) for m, rows in marker_rows.items()})
 
 
 #: the key of DataFrame.attrs that keeps, for each column, the markers of no answer its cells were written as and
 #: how many ({column: {marker: cells}}): a group column's note names them (cfa_tool.data.labels.label_notes)
 MARKED = "marked_no_answer"
+#: the key of DataFrame.attrs that keeps the reader's note on cells written as markers of no answer and the rows
+#: (index labels, an array: the attrs are copied with every frame made from this one) of those cells, one per cell,
+#: for each marker: (note, {marker: rows}), by which the note is counted again over the rows analysed
+#: (data.kept_counts.ReadingCounts)
+MARKER_CELLS = "marker_cells"
 
 
 def _marker_totals(marked) -> dict[str, int]:
@@ -2093,12 +2124,14 @@ def _marker_totals(marked) -> dict[str, int]:
     return {m: sum(counted.get(m, 0) for counted in marked) for m in MISSING_MARKERS}
 
 
-def _say_markers(found: dict[str, int], where, notes: list[str] | None) -> None:
-    """The note naming how many cells of each marker of no answer were read as empty."""
-    found = {m: k for m, k in found.items() if k}
-    if found and notes is not None:
-        listed = ", ".join(f"'{m}' ({k:,} cell{'s' if k != 1 else ''})" for m, k in found.items())
-        notes.append(f"{where}: cells written as {listed} were read as no answer")
+def _say_markers(found: dict[str, int], where, notes: list[str] | None) -> str | None:
+    """The note naming how many cells of each marker of no answer were read as empty (data.kept_counts.markers_note),
+    added to ``notes`` and returned (None when none)."""
+    note = markers_note(found, where)
+    if note is not None and notes is not None:
+        notes.append(note)
+        return note
+    return None
 
 
 class _RawCells:
