@@ -476,6 +476,89 @@ def declared_missing(frame: pd.DataFrame, ranges: dict, value_labels: dict) -> t
     return out, tuple(found)
 
 
+#: the kinds of values read as no answer by the fit's own data file (its declarations and value labels), which
+#: scoring other data with the fit reads so too (:func:`fit_marked`); text cells that say no answer are read so in
+#: every file by the one vocabulary, and the run's codes and words are carried as codes
+MARKED_BY_FILE = (NonAnswerKind.DECLARED, NonAnswerKind.LABELLED)
+
+_FIT_MARKED: contextvars.ContextVar[tuple[NonAnswer, ...]] = contextvars.ContextVar("cfa_tool_fit_marked", default=())
+
+
+@contextlib.contextmanager
+def fit_marked(found: tuple[NonAnswer, ...]) -> Iterator[None]:
+    """Within: the codes that an earlier fit's data file declared missing or labelled as no answer (``found``, the
+    fit's values read as no answer; those of :data:`MARKED_BY_FILE` with numbers) are read as no answer in the same
+    item columns of the data read (:func:`read_fit_marked`): scores of another file with the fit (an export of the
+    same survey without the declarations, say) treat as missing what the fit did."""
+    token = _FIT_MARKED.set(tuple(f for f in found if f.kind in MARKED_BY_FILE and isinstance(f.value, float)))
+    try:
+        yield
+    finally:
+        _FIT_MARKED.reset(token)
+
+
+def saved_non_answers(found: tuple[NonAnswer, ...]) -> list[dict]:
+    """The values a fit's data file marks as no answer (:data:`MARKED_BY_FILE`), as its saved result keeps them
+    (one per column and code), for scores of other data read by :func:`non_answers_from_saved`."""
+    seen = {}
+    for f in found:
+        if f.kind in MARKED_BY_FILE and isinstance(f.value, float):
+            seen.setdefault((f.column, f.value), {"column": f.column, "value": f.value, "kind": f.kind.name.lower(),
+                                                 "label": f.label})
+    return list(seen.values())
+
+
+def non_answers_from_saved(saved) -> tuple[NonAnswer, ...]:
+    """:func:`saved_non_answers` read back (rows unknown: ()); a list changed by hand raises KeyError, TypeError or
+    ValueError, which the reader of the saved fit names."""
+    return tuple(NonAnswer(NonAnswerKind[str(d["kind"]).upper()], str(d["column"]), float(d["value"]),
+                           None if d.get("label") is None else str(d["label"]), ()) for d in saved or ())
+
+
+def _marked_how(f: NonAnswer) -> str:
+    """How a fit's data file marked the value ``f`` as no answer, in words."""
+    if f.kind is NonAnswerKind.DECLARED:
+        return "declared it missing"
+    return f"labelled it '{printable(f.label)}'" if f.label else "labelled it as no answer"
+
+
+def read_fit_marked(frame: pd.DataFrame, items, source: str, value_labels: dict) -> tuple[pd.DataFrame, str | None]:
+    """``frame`` with the codes of :func:`fit_marked` read as no answer in their item columns (``items``; None: every
+    column), and the note saying so (None when no cell holds one); a code that the file read labels as an answer
+    is refused, naming both readings: the files code that answer otherwise (the scores would read an answer as
+    no answer)."""
+    carried = _FIT_MARKED.get()
+    if not carried:
+        return frame, None
+    mine = None if items is None else {str(x) for x in items}
+    found: dict[float, list[tuple[str, int]]] = {}
+    out = frame
+    for f in carried:
+        if f.column not in frame.columns or (mine is not None and f.column not in mine) \
+                or not pd.api.types.is_numeric_dtype(frame[f.column]):
+            continue
+        label = (value_labels.get(f.column) or {}).get(f.value)
+        if label is not None and not says_no_answer(label, explained=True):
+            raise DataError(f"{base_name(source)}: column '{printable(f.column)}' labels {user_number(f.value)} "
+                            f"'{printable(label)}', an answer, but the earlier fit read {user_number(f.value)} as no "
+                            f"answer (its data file {_marked_how(f)}): the two files code the answers otherwise; "
+                            f"recode one as the other before scoring")
+        cells = (out[f.column] == f.value).to_numpy(dtype=bool)
+        if cells.any():
+            if out is frame:
+                out = frame.copy()
+            out[f.column] = out[f.column].where(~cells)
+            found.setdefault(f.value, []).append((f.column, int(cells.sum())))
+    if not found:
+        return frame, None
+    total = sum(n for held in found.values() for _, n in held)
+    listed = "; ".join(f"{user_number(v)} ({cut_list(held, SHOWN, lambda cn: f'{printable(cn[0])} {cn[1]}', noun='item')})"
+                       for v, held in found.items())
+    return out, (f"{base_name(source)}: {counted(total, 'cell')} of the items holding a value that the earlier fit's "
+                 f"data file marked as no answer (declared missing, or labelled so) {'was' if total == 1 else 'were'} "
+                 f"read as no answer, as the fit read {'it' if total == 1 else 'them'}: {listed}")
+
+
 #: what a data frame built in Python may hold in a cell that is neither a number nor a word (never a file's cell)
 CONTAINERS = (list, dict, set, np.ndarray)
 

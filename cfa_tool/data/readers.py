@@ -29,7 +29,7 @@ from cfa_tool.data.missing_codes import apply_missing_codes, codes_on_answers, m
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.notes_rows import end_of_data, notes_lines, notes_note
 from cfa_tool.data.non_answers import GIVEN_CODES, answers_labelled_like_none, declared_missing, labelled_non_answers, \
-    non_answer_note, run_words, says_no_answer, unused_run_words, written_non_answers
+    non_answer_note, read_fit_marked, run_words, says_no_answer, unused_run_words, written_non_answers
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
 from cfa_tool.data.row_ids import id_text
 from cfa_tool.errors import DataError, clipped, printable
@@ -235,6 +235,9 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     frame, code_notes, found = apply_missing_codes(frame, missing_codes, where, mine, filters)  # in the items only
     coded = emptied_cells(before, frame) if missing_codes else ()  # (their notes written again over the rows kept)
     frame, labelled = labelled_non_answers(frame, item_labels, tuple(missing_codes))
+    frame, carried = read_fit_marked(frame, mine, str(where), item_labels)  # scores: what the fit's file marked
+    if carried:
+        code_notes = tuple(code_notes) + (carried,)
     if frame is not loaded.frame:
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
     if on_answers:
