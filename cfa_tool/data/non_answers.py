@@ -100,14 +100,15 @@ def run_words() -> tuple[str, ...]:
     return _RUN_WORDS.get().given
 
 
-def codes_given(codes) -> str:
+def codes_given(codes, shown_as=None) -> str:
     """--missing-codes with ``codes`` (numbers and words, as data.missing_codes.missing_value reads them) as a shell takes it:
     the list written as a CSV line (numbers as written, :func:`user_number`; a word holding a comma in double quotes,
     as the option reads it), each code once (words alike but for case once), the whole in double quotes when it holds
     spaces or quotes: --missing-codes -99,8,9, --missing-codes "Ne sait pas,\\"No, not asked\\""; in Python, the list
     as ``missing_codes=`` takes it: missing_codes=[-99, 8, 'Ne sait pas'].  The one writer of a list of codes that
     advice gives to copy: advice that adds a code keeps those the run gave (s21: '--missing-codes 8,9' after
-    '--missing-codes -99' would have read -99 as an answer again)."""
+    '--missing-codes -99' would have read -99 as an answer again).  ``shown_as``: the interface whose form to write
+    (None: the run's, options.interface), for a report that gives both."""
     import csv
     import io
 
@@ -119,7 +120,7 @@ def codes_given(codes) -> str:
             unique.setdefault(code.strip().casefold(), code.strip())
         else:
             unique.setdefault(float(code), float(code))
-    if interface() is not Interface.COMMAND_LINE:
+    if (shown_as or interface()) is not Interface.COMMAND_LINE:
         shown = [user_number(c) if isinstance(c, float) else repr(c) for c in unique.values()]
         return f"{Option.MISSING_CODES.keyword}=[{', '.join(shown)}]"
     line = io.StringIO()
@@ -128,7 +129,7 @@ def codes_given(codes) -> str:
     text = line.getvalue()
     if any(c.isspace() or c in "\"'\\$`" for c in text):
         text = '"' + "".join("\\" + c if c in '"\\$`' else c for c in text) + '"'
-    return f"{Option.MISSING_CODES} {text}"
+    return f"{Option.MISSING_CODES.flag} {text}"
 
 
 #: the key of a frame's ``attrs`` that holds the codes and words of no answer the run gave (--missing-codes, as

@@ -2690,5 +2690,7 @@ def _answers_per_category(spec: Spec, frame: pd.DataFrame, source: str, group: s
     for name, coded in frame.attrs.get(CODED_BY_STATEMENT, {}).items():
         if name in items:
             labels[name] = {code: word for word, _, code in coded if word is not None}
-    return answer_counts(parts, spec.observed_names, items, labels) if items else ()
+    from cfa_tool.data.non_answers import given_codes
+
+    return answer_counts(parts, spec.observed_names, items, labels, given_codes(frame)) if items else ()
 

@@ -89,3 +89,22 @@ def test_a_category_no_one_in_a_group_answered_keeps_the_codes_given():
     message = str(caught.value)
     assert "no one answered category 9 on ordinal item 'q2'" in message
     assert "give missing_codes=[-99, 9]; if real" in message
+
+
+def test_the_table_of_answers_per_category_keeps_the_codes_given(rider_demo, rider_model, tmp_path, capsys):
+    """The note of the table of answers per category (check's and an ordinal fit's) advises giving an answer at the
+    end of the scale given by one row as a code of no answer: after the codes the run gave."""
+    from cfa_tool.reporting.tables import category_table
+
+    frame = rider_demo.copy()
+    frame.loc[140, "on_time"] = 0  # one row's answer below the scale 1 to 5
+    frame.loc[141, "clean"] = -99
+    advice = "if 0 is a typing error or a code for no answer, give --missing-codes -99,0; from Python, " \
+             "missing_codes=[-99, 0];"
+    table = category_table(cfa_tool.fit(rider_model, frame, missing_codes=[-99], ordinal="all"))
+    assert advice in " ".join(str(table.note).split())
+    data, model = tmp_path / "survey.csv", tmp_path / "m.cfa"
+    frame.to_csv(data, index=False)
+    model.write_text(rider_model)
+    code, out, _ = run_cli(["check", model, "--data", data, "--missing-codes=-99", "--ordinal", "all"], capsys)
+    assert code == 0 and advice in " ".join(out.replace("│", " ").split())
