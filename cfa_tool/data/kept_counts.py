@@ -4,11 +4,11 @@ The reader counts the cells of every row of the file: the values the file marks 
 declared missing values, labels and cells that say no answer), the codes given with --missing-codes
 (data.missing_codes) and the codes labelled like no answer that lie between the answers and stay answers.  Row
 filters (--keep) and a half of a halves file choose the rows after the reading; the notes are then written again
-over the rows they kept (:func:`kept_reading_notes`), and so are they over the rows with a value in the group
-column when a run fits groups (the other rows are left out: :func:`analysed_words`), by the one rule of every count
-of the rows analysed: the
-screening of values that look like no answers (codes set apart from the answer scale, data.odd_values) runs on the
-rows kept, and the cautions of the reading are those of the rows kept (pipeline.inputs.kept_cautions).  New-user
+over the rows they kept (:func:`kept_reading_notes`), and so they are over the rows with a value in the group
+column when a run fits groups, which leaves the other rows out (:func:`analysed_rows`; rows-s23: the notes of a fit
+of groups counted those rows), by the one rule of every count of the rows analysed: the screening of values that
+look like no answers (codes set apart from the answer scale, data.odd_values) runs on the rows kept, and the
+cautions of the reading are those of the rows kept (pipeline.inputs.kept_cautions).  New-user
 trial s22, problem 3: 870 cells of a file of 1,400 rows were said of the 267 rows analysed, where 188 were read
 so (22% of their cells against 4.7%).
 """

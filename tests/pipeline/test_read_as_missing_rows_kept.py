@@ -81,11 +81,11 @@ def test_missing_codes_given_are_counted_in_the_rows_the_filters_kept(tmp_path, 
     assert len(whole) == 1 and whole[0].startswith("riders.csv: 5 cells holding a code given")
     assert whole[0].endswith("(c1 1, c2 1, s1 1, s3 2)")
     (kept,) = _notes(cfa_tool.check(MODEL, path, missing_codes=[8], keep=["depot = 1"]), "holding a code given")
-    assert kept.startswith("riders.csv: 2 cells of the items in the 600 rows the row filters kept holding a code given")
+    assert kept.startswith("riders.csv: 2 cells of the items in the 600 rows that the row filters kept holding a code given")
     assert kept.endswith("were read as no answer (c2 1, s1 1)")
     (none,) = _notes(cfa_tool.check(MODEL, path, missing_codes=[8], keep=["depot = 1", "c2 != 8", "s1 != 8"]),
                      "holds any of the codes given")
-    assert none.startswith("riders.csv: no cell of the items in the 598 rows the row filters kept holds any of the "
+    assert none.startswith("riders.csv: no cell of the items in the 598 rows that the row filters kept holds any of the "
                            "codes given")
 
 
