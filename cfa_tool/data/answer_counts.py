@@ -26,6 +26,9 @@ class AnswerCounts:
     counts: tuple[tuple[int, ...], ...]
     scale: tuple[tuple[float, ...], ...]
     labels: tuple[tuple[tuple[float, str], ...], ...] = ()
+    #: the codes and words of no answer the run gave (--missing-codes), which advice to give another keeps
+    #: (data.non_answers.codes_given)
+    given: tuple = ()
 
     def answered(self, i: int) -> int:
         """Rows that answered item ``i``."""
@@ -65,12 +68,12 @@ def category_items(values: np.ndarray, names: tuple[str, ...], most: int) -> tup
 
 
 def answer_counts(parts: list[tuple[str | None, np.ndarray]], names: tuple[str, ...], items: tuple[str, ...],
-                  labels: dict[str, dict] | None = None) -> tuple[AnswerCounts, ...]:
+                  labels: dict[str, dict] | None = None, given: tuple = ()) -> tuple[AnswerCounts, ...]:
     """The :class:`AnswerCounts` of ``items`` in each part of the rows (``parts``: (group label or None, the values
     of ``names`` in its rows, gaps NaN)), every part on the same columns: the codes any part gave to any of the
     items.  An item's scale runs from its lowest to its highest answer over all parts, so that a category one group
     never gave while another did shows as empty.  ``labels``: item -> {code: words} (value labels of the file, or
-    the words of 'answers' statements)."""
+    the words of 'answers' statements); ``given``: the codes and words of no answer the run gave."""
     labels = labels or {}
     columns = [names.index(x) for x in items]
     seen = [np.concatenate([v[:, j][np.isfinite(v[:, j])] for _, v in parts]) for j in columns]
@@ -85,7 +88,8 @@ def answer_counts(parts: list[tuple[str | None, np.ndarray]], names: tuple[str, 
             column = values[:, j]
             found = column[np.isfinite(column)]
             counts.append(tuple(int(n) for n in (found[:, None] == codes[None, :]).sum(axis=0)))
-        out.append(AnswerCounts(label, tuple(items), tuple(float(c) for c in codes), tuple(counts), scale, named))
+        out.append(AnswerCounts(label, tuple(items), tuple(float(c) for c in codes), tuple(counts), scale, named,
+                                tuple(given)))
     return tuple(out)
 
 

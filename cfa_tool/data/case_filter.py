@@ -15,6 +15,20 @@ from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 
 
+def kept_rows_words(kept: int, left_out: int, others: str) -> str:
+    """The words of a caution on rows the file marks as not meant for analysis (a workbook's hidden rows, an SPSS
+    file's deselected rows) on what is done with them: '; they are kept as the file holds them, and a fit analyses
+    them with OTHERS', or, when row filters left ``left_out`` of them out, '; the row filters leave out 2 of them, and
+    the other 1 is kept ...'.  Present tense, what every command does with them, so that a check, which analyses
+    nothing, says what a fit does, and a fit what it did."""
+    rest = "it" if kept == 1 else "them"
+    if left_out:
+        which = f"; the row filters leave out {left_out} of them, and the other {kept} {'is' if kept == 1 else 'are'}"
+    else:
+        which = f"; {'it is' if kept == 1 else 'they are'}"
+    return f"{which} kept as the file holds {rest}, and a fit analyses {rest} with {others}"
+
+
 @dataclass(frozen=True)
 class FilterVariable:
     """An SPSS file saved while a case filter was on: SPSS keeps every case and writes the filter as a variable
@@ -46,13 +60,10 @@ class FilterVariable:
         name = source.replace("\\", "/").rsplit("/", 1)[-1]
         shown = cut_list(self.rows, 5)
         label = f" ('{printable(self.label)}')" if self.label else ""
-        left = (f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)} "
-                f"{'was' if len(self.rows) == 1 else 'were'}"
-                if self.filtered_out else f"; {'it was' if len(self.rows) == 1 else 'they were'}")
         return (f"{name} was saved with a case filter on: its filter variable {printable(self.column)}{label} marks "
                 f"{len(self.rows) + self.filtered_out} of its {self.of} rows 'Not Selected' "
-                f"(row{'s' if len(self.rows) != 1 else ''} {shown}){left} kept and analysed with the selected rows, as "
-                f"the file holds them.")
+                f"(row{'s' if len(self.rows) != 1 else ''} {shown})"
+                + kept_rows_words(len(self.rows), self.filtered_out, "the selected rows") + ".")
 
     def advice(self) -> Note:
         """What to try, the row filter apart (note_parts.Command): a manuscript's reader runs nothing."""

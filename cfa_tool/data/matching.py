@@ -8,6 +8,7 @@ from cfa_tool.errors import DataError, ModelError, OptionError, character_names,
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 from cfa_tool.language.spec import Spec
+from cfa_tool.data.non_answers import advice_codes
 from cfa_tool.data.odd_values import code_like
 from cfa_tool.input_files import base_name
 
@@ -65,9 +66,12 @@ def check_columns(spec: Spec, columns: list[str], data_source: str, sheet_hint: 
 class ChosenColumns(dict):
     """The columns a run chooses for a role other than an item, {column: the role's words}, and ``numbers``, those of
     them whose role takes numbers (the weights, the missing-data helpers): read as the file's codes whatever value
-    labels it gives them, where a group or cluster column is read as its labels (pipeline.inputs._codes_as_labels)."""
+    labels it gives them, where a group or cluster column is read as its labels (pipeline.inputs._codes_as_labels);
+    ``group``: the group column, whose rows without a value are left out of the analysis (the reading's counts are
+    then written over the others, data.kept_counts)."""
 
     numbers: frozenset[str] = frozenset()
+    group: str | None = None
 
 
 def chosen_columns(group: str | None = None, id_column: str | None = None, design=None,
@@ -82,6 +86,7 @@ def chosen_columns(group: str | None = None, id_column: str | None = None, desig
         out[id_column] = "the id column"
     if isinstance(group, str):
         out[group] = "the group column"
+        out.group = group
     return out
 
 
@@ -231,7 +236,7 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
                      + (" and more" if len(where) > 3 else ""))
             shown.append(f"'{name}' {user_number(v)}" + (f" '{label}'" if label else "") + f" ({cells})")
         more = more_words(len(stray) - len(shown))
-        codes = ",".join(f"{user_number(c)}" for c in sorted({v for _, v, _, _ in stray}))
+        codes = sorted({v for _, v, _, _ in stray})
         wider = not any(label or code_like(v) for _, v, _, label in stray)  # answers, perhaps, of a wider scale
         strays = {name for name, *_ in stray}
         location = next((i.location for i in keying.items if i.text in strays), keying.items[0].location)
@@ -247,7 +252,7 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
         raise ModelError(
             f"{data_name} holds answers outside the scale {user_number(keying.minimum)} to {user_number(keying.maximum)} declared here: "
             f"{'; '.join(shown)}{more}; if they are typing errors or codes for no answer, give "
-            f"{Option.MISSING_CODES.given(codes)} (or correct them in a copy of the file)"
+            f"{advice_codes(frame, codes)} (or correct them in a copy of the file)"
             + ("; if the scale really runs wider, give its lowest and highest answers here" if wider else ""),
             location,
             spec.source_line(location),
@@ -267,9 +272,10 @@ def _summary_row_first(frame, spec: Spec, data_source: str, strays: set[int]) ->
         raise DataError(found[0].totals_refusal(data_source, frame))
 
 
-def _read_as_none(value: float) -> Note:
-    """Advice to read ``value`` as no answer, the option apart (note_parts.Command): a manuscript runs nothing."""
-    return Note((Command(f"give {Option.MISSING_CODES.given(f'{user_number(value)}')}", f"read {user_number(value)} as no answer"),))
+def _read_as_none(value: float, frame) -> Note:
+    """Advice to read ``value`` as no answer after the codes the run gave (``frame``: the rows read,
+    data.non_answers.advice_codes), the option apart (note_parts.Command): a manuscript runs nothing."""
+    return Note((Command(f"give {advice_codes(frame, (value,))}", f"read {user_number(value)} as no answer"),))
 
 
 def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict | None = None,
@@ -323,14 +329,14 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
                 out.append(f"{data_name}: '{x}' has the answer {user_number(v)} ({listed(column == v)}), outside the scale "
                            f"{user_number(low)} to {user_number(high)} that the 'reversed' statement declares for the items of {factor}; "
                            f"so many of its answers lie outside that it is read as answered on another scale; if "
-                           f"{user_number(v)} is a typing error or means 'no answer', " + _read_as_none(v))
+                           f"{user_number(v)} is a typing error or means 'no answer', " + _read_as_none(v, frame))
             continue
         known = {float(k) for k in labels.get(x) or () if isinstance(k, (int, float))}
         if known:
             for v in sorted(set(column[answered].tolist()) - known):
                 out.append(f"{data_name}: '{x}' has the value {user_number(v)} ({listed(column == v)}), which has no value "
                            f"label, while its other values are labelled; if it is a typing error or means 'no "
-                           f"answer', " + _read_as_none(v) + " (or correct it in a copy of the file)")
+                           f"answer', " + _read_as_none(v, frame) + " (or correct it in a copy of the file)")
     return out
 
 

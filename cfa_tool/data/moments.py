@@ -15,6 +15,7 @@ import pandas as pd
 
 from cfa_tool.data.answer_scales import MOST_WORDS_SHOWN, distinct_words, stray_text, suggested_statement
 from cfa_tool.data.kept_rows import ROW_NAMING, RowNaming, cell_words, row_naming, text_lines
+from cfa_tool.data.non_answers import given_codes
 from cfa_tool.errors import DataError, EstimationError, clipped, printable
 from cfa_tool.options import Option
 from cfa_tool.method import MissingData
@@ -213,23 +214,24 @@ def stray_words(names: Sequence[str], columns: list[pd.Series], source: str) -> 
                     f"({shown}) hold text among numbers: {listed}; the first is '{clipped(text, 40)}' in "
                     f"column '{printable(name)}', {where}. Correct those cells, or, if "
                     f"{'the word means' if len(words) == 1 else 'the words mean'} no answer, "
-                    + _no_answer_advice([w for w, _ in words]))
+                    + _no_answer_advice([w for w, _ in words], given_codes(columns[0])))
 
 
-def stray_word_message(source: str, name: str, shown: str, where: str, word: str) -> str:
+def stray_word_message(source: str, name: str, shown: str, where: str, word: str, given: tuple = ()) -> str:
     """The one message of a word typed among a column's numbers (a slip, data.answer_scales.stray_text): which
     cell, and the two ways on (correct it, or read the word as no answer), for every command (re-read s14: explore
-    said 'leave it empty' where fit gave the option)."""
+    said 'leave it empty' where fit gave the option); ``given``: the codes and words of no answer the run gave
+    already, which the advice keeps (data.non_answers.codes_given)."""
     return (f"{source}: column '{printable(name)}' holds text ('{shown}' in {where}) among numbers; correct the cell, "
-            f"or, if the word means no answer, " + _no_answer_advice([word]))
+            f"or, if the word means no answer, " + _no_answer_advice([word], given))
 
 
-def _no_answer_advice(words: list[str]) -> str:
+def _no_answer_advice(words: list[str], given: tuple = ()) -> str:
     """How to read words among numbers as no answer: give them with --missing-codes on the command line, with
-    missing_codes= in Python (data.non_answers.codes_given)."""
+    missing_codes= in Python, after the codes and words the run gave already (``given``, data.non_answers.codes_given)."""
     from cfa_tool.data.non_answers import codes_given
 
-    return f"give {'it' if len(words) == 1 else 'them'} with {codes_given(words[:STRAY_WORDS_SHOWN])}"
+    return f"give {'it' if len(words) == 1 else 'them'} with {codes_given(tuple(given) + tuple(words[:STRAY_WORDS_SHOWN]))}"
 
 
 def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
@@ -263,7 +265,8 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
                 raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
             shown = clipped(text, 40)
             if stray_text(values):  # a slip among numbers, not a column of words
-                raise DataError(stray_word_message(source, name, shown, cell_words(column, name, numbers[row]), text))
+                raise DataError(stray_word_message(source, name, shown, cell_words(column, name, numbers[row]), text,
+                                                   given_codes(column)))
             raise DataError(f"{source}: column '{printable(name)}' is used as an indicator but holds text ('{shown}' in "
                             f"{cell_words(column, name, numbers[row])}); indicators must be numbers: {_recoding(text)}"
                             + _statement_hint(values))

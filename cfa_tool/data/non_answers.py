@@ -100,14 +100,15 @@ def run_words() -> tuple[str, ...]:
     return _RUN_WORDS.get().given
 
 
-def codes_given(codes) -> str:
+def codes_given(codes, shown_as=None) -> str:
     """--missing-codes with ``codes`` (numbers and words, as data.missing_codes.missing_value reads them) as a shell takes it:
     the list written as a CSV line (numbers as written, :func:`user_number`; a word holding a comma in double quotes,
     as the option reads it), each code once (words alike but for case once), the whole in double quotes when it holds
     spaces or quotes: --missing-codes -99,8,9, --missing-codes "Ne sait pas,\\"No, not asked\\""; in Python, the list
     as ``missing_codes=`` takes it: missing_codes=[-99, 8, 'Ne sait pas'].  The one writer of a list of codes that
     advice gives to copy: advice that adds a code keeps those the run gave (s21: '--missing-codes 8,9' after
-    '--missing-codes -99' would have read -99 as an answer again)."""
+    '--missing-codes -99' would have read -99 as an answer again).  ``shown_as``: the interface whose form to write
+    (None: the run's, options.interface), for a report that gives both."""
     import csv
     import io
 
@@ -119,7 +120,7 @@ def codes_given(codes) -> str:
             unique.setdefault(code.strip().casefold(), code.strip())
         else:
             unique.setdefault(float(code), float(code))
-    if interface() is not Interface.COMMAND_LINE:
+    if (shown_as or interface()) is not Interface.COMMAND_LINE:
         shown = [user_number(c) if isinstance(c, float) else repr(c) for c in unique.values()]
         return f"{Option.MISSING_CODES.keyword}=[{', '.join(shown)}]"
     line = io.StringIO()
@@ -128,7 +129,26 @@ def codes_given(codes) -> str:
     text = line.getvalue()
     if any(c.isspace() or c in "\"'\\$`" for c in text):
         text = '"' + "".join("\\" + c if c in '"\\$`' else c for c in text) + '"'
-    return f"{Option.MISSING_CODES} {text}"
+    return f"{Option.MISSING_CODES.flag} {text}"
+
+
+#: the key of a frame's ``attrs`` that holds the codes and words of no answer the run gave (--missing-codes, as
+#: data.readers.with_no_answers_read read them): the rows' columns carry it wherever they go (row filters, groups,
+#: items taken out), so that advice written far from the options (a word among numbers, an empty category, an
+#: answer outside a declared scale) keeps them (:func:`advice_codes`)
+GIVEN_CODES = "no_answer_codes_given"
+
+
+def given_codes(frame) -> tuple:
+    """The codes and words of no answer the run gave, which the reading of ``frame`` (a data frame or one of its
+    columns) recorded (:data:`GIVEN_CODES`); () when none."""
+    return tuple(getattr(frame, "attrs", {}).get(GIVEN_CODES, ()))
+
+
+def advice_codes(frame, codes) -> str:
+    """:func:`codes_given` of the codes the run gave (:func:`given_codes` of ``frame``) followed by ``codes``: the
+    list that advice to read ``codes`` as no answer gives to copy, which never drops a code already given."""
+    return codes_given(given_codes(frame) + tuple(codes))
 
 
 def says_no_answer(text: object, explained: bool = False) -> bool:
@@ -166,16 +186,16 @@ def _parts(text: str) -> list[str]:
     return [_plain(p) for p in re.split(r"[/,;&]|\bor\b", text.lower())]
 
 
-def unused_run_words(found: tuple["NonAnswer", ...]) -> tuple[str, ...]:
-    """The run's words of no answer (:func:`also_no_answer`) that no value read as no answer (``found``: cells and
-    value labels of the items) says, as a mistyped word would leave them."""
+def unused_run_words(found: tuple["NonAnswer", ...], words: tuple[str, ...] | None = None) -> tuple[str, ...]:
+    """The run's words of no answer (``words``; None: :func:`also_no_answer`'s) that no value read as no answer
+    (``found``: cells and value labels of the items) says, as a mistyped word would leave them."""
     said = set()
     for f in found:
         for text in (f.value, f.label):
             if isinstance(text, str):
                 said.add(_plain(text))
                 said.update(_parts(text))
-    return tuple(w for w in run_words() if _plain(w) not in said)
+    return tuple(w for w in (run_words() if words is None else words) if _plain(w) not in said)
 
 
 class NonAnswerKind(enum.Enum):
@@ -302,7 +322,7 @@ class LabelledAnswer:
         total = sum(self.cells)
         codes = tuple(c for c in given if isinstance(c, (int, float))) + run_words() + (self.value,)
         return Note((f"{base_name(source)}: {user_number(self.value)} '{printable(self.label)}' lies between other answers of "
-                     f"the item{'s' if len(self.columns) != 1 else ''} and was analysed as an answer ({count_text(total)} "
+                     f"the item{'s' if len(self.columns) != 1 else ''} and is analysed as an answer ({count_text(total)} "
                      f"cell{'s' if total != 1 else ''}: {listed}), though its label reads like no answer",
                      Command(f"; to read it as no answer, give {codes_given(codes)}")))
 
@@ -457,6 +477,89 @@ def declared_missing(frame: pd.DataFrame, ranges: dict, value_labels: dict) -> t
     return out, tuple(found)
 
 
+#: the kinds of values read as no answer by the fit's own data file (its declarations and value labels), which
+#: scoring other data with the fit reads so too (:func:`fit_marked`); text cells that say no answer are read so in
+#: every file by the one vocabulary, and the run's codes and words are carried as codes
+MARKED_BY_FILE = (NonAnswerKind.DECLARED, NonAnswerKind.LABELLED)
+
+_FIT_MARKED: contextvars.ContextVar[tuple[NonAnswer, ...]] = contextvars.ContextVar("cfa_tool_fit_marked", default=())
+
+
+@contextlib.contextmanager
+def fit_marked(found: tuple[NonAnswer, ...]) -> Iterator[None]:
+    """Within: the codes that an earlier fit's data file declared missing or labelled as no answer (``found``, the
+    fit's values read as no answer; those of :data:`MARKED_BY_FILE` with numbers) are read as no answer in the same
+    item columns of the data read (:func:`read_fit_marked`): scores of another file with the fit (an export of the
+    same survey without the declarations, say) treat as missing what the fit did."""
+    token = _FIT_MARKED.set(tuple(f for f in found if f.kind in MARKED_BY_FILE and isinstance(f.value, float)))
+    try:
+        yield
+    finally:
+        _FIT_MARKED.reset(token)
+
+
+def saved_non_answers(found: tuple[NonAnswer, ...]) -> list[dict]:
+    """The values a fit's data file marks as no answer (:data:`MARKED_BY_FILE`), as its saved result keeps them
+    (one per column and code), for scores of other data read by :func:`non_answers_from_saved`."""
+    seen = {}
+    for f in found:
+        if f.kind in MARKED_BY_FILE and isinstance(f.value, float):
+            seen.setdefault((f.column, f.value), {"column": f.column, "value": f.value, "kind": f.kind.name.lower(),
+                                                 "label": f.label})
+    return list(seen.values())
+
+
+def non_answers_from_saved(saved) -> tuple[NonAnswer, ...]:
+    """:func:`saved_non_answers` read back (rows unknown: ()); a list changed by hand raises KeyError, TypeError or
+    ValueError, which the reader of the saved fit names."""
+    return tuple(NonAnswer(NonAnswerKind[str(d["kind"]).upper()], str(d["column"]), float(d["value"]),
+                           None if d.get("label") is None else str(d["label"]), ()) for d in saved or ())
+
+
+def _marked_how(f: NonAnswer) -> str:
+    """How a fit's data file marked the value ``f`` as no answer, in words."""
+    if f.kind is NonAnswerKind.DECLARED:
+        return "declared it missing"
+    return f"labelled it '{printable(f.label)}'" if f.label else "labelled it as no answer"
+
+
+def read_fit_marked(frame: pd.DataFrame, items, source: str, value_labels: dict) -> tuple[pd.DataFrame, str | None]:
+    """``frame`` with the codes of :func:`fit_marked` read as no answer in their item columns (``items``; None: every
+    column), and the note saying so (None when no cell holds one); a code that the file read labels as an answer
+    is refused, naming both readings: the files code that answer otherwise (the scores would read an answer as
+    no answer)."""
+    carried = _FIT_MARKED.get()
+    if not carried:
+        return frame, None
+    mine = None if items is None else {str(x) for x in items}
+    found: dict[float, list[tuple[str, int]]] = {}
+    out = frame
+    for f in carried:
+        if f.column not in frame.columns or (mine is not None and f.column not in mine) \
+                or not pd.api.types.is_numeric_dtype(frame[f.column]):
+            continue
+        label = (value_labels.get(f.column) or {}).get(f.value)
+        if label is not None and not says_no_answer(label, explained=True):
+            raise DataError(f"{base_name(source)}: column '{printable(f.column)}' labels {user_number(f.value)} "
+                            f"'{printable(label)}', an answer, but the earlier fit read {user_number(f.value)} as no "
+                            f"answer (its data file {_marked_how(f)}): the two files code the answers otherwise; "
+                            f"recode one as the other before scoring")
+        cells = (out[f.column] == f.value).to_numpy(dtype=bool)
+        if cells.any():
+            if out is frame:
+                out = frame.copy()
+            out[f.column] = out[f.column].where(~cells)
+            found.setdefault(f.value, []).append((f.column, int(cells.sum())))
+    if not found:
+        return frame, None
+    total = sum(n for held in found.values() for _, n in held)
+    listed = "; ".join(f"{user_number(v)} ({cut_list(held, SHOWN, lambda cn: f'{printable(cn[0])} {cn[1]}', noun='item')})"
+                       for v, held in found.items())
+    return out, (f"{base_name(source)}: {counted(total, 'cell')} of the items holding a value that the earlier fit's "
+                 f"data file marked as no answer (declared missing, or labelled so) {'was' if total == 1 else 'were'} "
+                 f"read as no answer, as the fit read {'it' if total == 1 else 'them'}: {listed}")
+
+
 #: what a data frame built in Python may hold in a cell that is neither a number nor a word (never a file's cell)
 CONTAINERS = (list, dict, set, np.ndarray)
 
@@ -561,7 +664,12 @@ def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | No
     return f"values the data file marks as no answer were treated as missing ({shown})"
 
 
-def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | None = None) -> tuple[str, str] | None:
+#: the words after 'the N rows' of a note counted over the rows that row filters kept (data.kept_counts)
+FILTERS_KEPT = "that the row filters kept"
+
+
+def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | None = None,
+          among: str = FILTERS_KEPT) -> tuple[str, str] | None:
     """What was read as no answer in the model's ``items`` (None: every column in ``found``), one sentence: each
     code with its label, the items and their cells; and how to undo it.  None if nothing.  ``kept``: the rows row
     filters kept, when they chose the rows (``found`` counted over them: data.kept_counts), which the sentence names."""
@@ -571,7 +679,7 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | Non
     frame = source == DATA_FRAME
     name = "the data frame" if frame else base_name(source)
     if kept is not None:
-        name = f"the {counted(kept, 'row')} of {name} that the row filters kept"
+        name = f"the {counted(kept, 'row')} of {name} {among}"
     by_value: dict[tuple, list[NonAnswer]] = {}
     for f in mine:
         by_value.setdefault((f.kind, f.value, f.label if f.kind is NonAnswerKind.LABELLED else None), []).append(f)
@@ -587,7 +695,8 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | Non
                                       (NonAnswerKind.DECLARED, "declares as missing values"),
                                       (NonAnswerKind.WRITTEN, "writes as no answer")) if k in kinds)
     held = "text that says no answer" if frame else f"values that the file {how}"
-    said = (f"{count_text(total)} cell{'s' if total != 1 else ''} of the items in {name} hold {held}, "
+    said = (f"{count_text(total)} cell{'s' if total != 1 else ''} of the items in {name} "
+            f"hold{'s' if total == 1 else ''} {held}, "
             f"read as missing, not as answers: {'; '.join(parts)}.")
     undo = "; ".join(w for k, w in ((NonAnswerKind.LABELLED, "give its code another value label"),
                                      (NonAnswerKind.DECLARED, "remove its declaration as a missing value"),
@@ -596,12 +705,13 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | Non
 
 
 def non_answer_note(found: tuple[NonAnswer, ...], source: str, items: Iterable[str] | None = None,
-                    kept: int | None = None) -> str | None:
+                    kept: int | None = None, among: str = FILTERS_KEPT) -> str | None:
     """The note of the data summary on what was read as no answer in the model's ``items`` (every view shows a
     reader's notes): what, where and how many cells, and how to undo it; None if nothing.  Whether rows leave the
-    analysis because of it is :func:`non_answer_caution`'s to say.  ``kept``: the rows row filters kept (``found``
-    counted over them, data.kept_counts)."""
-    said = _said(found, source, items, kept)
+    analysis because of it is :func:`non_answer_caution`'s to say.  ``kept``: the rows analysed, when row filters
+    or a group column chose them (``found`` counted over them, data.kept_counts), which ``among`` names ('that the row
+    filters kept')."""
+    said = _said(found, source, items, kept, among)
     return None if said is None else f"{said[0][:-1]}. {said[1][:-1]}"
 
 
@@ -621,21 +731,23 @@ def rows_lost(found: tuple[NonAnswer, ...], frame: pd.DataFrame, items: Iterable
 
 
 def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items: Iterable[str] | None, frame: pd.DataFrame,
-                       listwise: bool = False, kept: int | None = None) -> tuple[str, Text] | None:
+                       listwise: bool = False, kept: int | None = None,
+                       among: str = FILTERS_KEPT) -> tuple[str, Text] | None:
     """The one rule that makes values read as no answer (the data summary's note, :func:`non_answer_note`) a
     caution first in every view: when rows leave the analysis because of them (:func:`rows_lost`: ``listwise``
     deletion, or a row left with no answer to any item), the caution (one line) says how many rows and what was
     read, with its advice; None when every row stays (full information keeps a row with gaps), which it advises
     with listwise deletion (groups that share clusters too: full-information ML takes their clusters).  ``kept``:
-    the rows row filters kept, when they chose the rows (``found`` counted over them, data.kept_counts)."""
-    said = _said(found, source, items, kept)
+    the rows analysed, when row filters or a group column chose them (``found`` counted over them,
+    data.kept_counts), which ``among`` names."""
+    said = _said(found, source, items, kept, among)
     lost = rows_lost(found, frame, items, listwise) if said is not None else 0
     if not lost:
         return None
     why = ("listwise deletion leaves out every row with a gap" if listwise else
-           "no answer to any item was left in them")
-    caution = (f"{lost} row{'s' if lost != 1 else ''} left the analysis because values read as no answer emptied "
-               f"{'their cells' if lost != 1 else 'its cells'} ({why}). {said[0]}")
+           "no answer to any item is left in them")
+    caution = (f"{counted(lost, 'row')} leave{'s' if lost == 1 else ''} the analysis because values read as no answer "
+               f"emptied {'their cells' if lost != 1 else 'its cells'} ({why}). {said[0]}")
     if not listwise:
         keep = ""
     else:

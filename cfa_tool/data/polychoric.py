@@ -44,6 +44,7 @@ from cfa_tool.data.descriptives import rare_answer_limit
 from cfa_tool.data.kept_rows import row_of
 from cfa_tool.data.moments import numeric_columns, row_numbers
 from cfa_tool.data.odd_values import code_like
+from cfa_tool.data.non_answers import advice_codes
 from cfa_tool.data.sample_design import DesignColumns, RowDesign, row_design
 from cfa_tool.errors import DataError, RowDataError, printable
 from cfa_tool.options import Option
@@ -386,7 +387,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             empty = [v for v in item_levels if v not in seen]
             if empty:
                 raise _empty_categories_error(source, {where: {name: empty}}, {name: seen},
-                                              frame.attrs.get(CODED_BY_STATEMENT, {}))
+                                              frame.attrs.get(CODED_BY_STATEMENT, {}), given=frame)
         else:
             item_levels = seen
         refused = category_count_refusal(source, where, name, item_levels)
@@ -683,17 +684,20 @@ def empty_categories_in_groups(frames: list[pd.DataFrame], wheres: list[str], na
     if found:
         costs = _costs(analysed, wheres, filters, names, found) if filters is not None else None
         raise _empty_categories_error(source, found, {name: np.array(sorted(v)) for name, v in answered_everywhere.items()},
-                                      frames[0].attrs.get(CODED_BY_STATEMENT, {}) if frames else {}, costs)
+                                      frames[0].attrs.get(CODED_BY_STATEMENT, {}) if frames else {}, costs,
+                                      frames[0] if frames else None)
 
 
 def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]], seen: dict,
-                            coded: dict | None = None, costs: EmptyCategoryCosts | None = None) -> DataError:
+                            coded: dict | None = None, costs: EmptyCategoryCosts | None = None,
+                            given=None) -> DataError:
     """The one message of every empty category: ``found`` maps each group's ' (group ...)' to its items' empty
     categories, ``seen`` each item's categories answered in every group (what an empty one is recoded as), ``coded``
     the items whose answers are words an 'answers' statement coded (data.answer_words.CODED_BY_STATEMENT): for
     them the model file itself can merge the empty category into the nearest one answered, with a statement of the
     item's own that gives their words one code; answers recorded as codes are recoded in a copy of the data file
-    (the model language codes words, not numbers)."""
+    (the model language codes words, not numbers); ``given``: the rows read, which know the codes of no answer the
+    run gave already, kept in the advice to add a code (data.non_answers.advice_codes)."""
     coded = coded or {}
     items: dict[str, list[float]] = {}  # each item's empty categories in any group
     for by_item in found.values():
@@ -710,7 +714,7 @@ def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]
                      and len(seen[name]) and (v < min(seen[name]) or v > max(seen[name])) and code_like(v)})  # a code?
     codes = [f"{user_number(v)}" for v in beyond]
     first = (f"if {' and '.join(codes)} {'is' if len(codes) == 1 else 'are'} not a real answer (a typing "
-             f"error or a code for no answer), give {Option.MISSING_CODES.given(','.join(codes))}; if real, "
+             f"error or a code for no answer), give {advice_codes(given, beyond)}; if real, "
              if codes else "")
     one_item, one_group = len(items) == 1, len(found) == 1
     if one_group and one_item:

@@ -21,15 +21,15 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.case_filter import filter_variable
+from cfa_tool.data.case_filter import filter_variable, kept_rows_words
 from cfa_tool.data.kept_rows import (SHEET_COLUMNS, TEXT_LINES, line_words, row_naming, row_words, rows_listed,
                                      text_lines)
-from cfa_tool.data.kept_counts import ReadingCounts, emptied_cells
+from cfa_tool.data.kept_counts import ReadingCounts, emptied_cells, markers_note
 from cfa_tool.data.missing_codes import apply_missing_codes, codes_on_answers, missing_codes_note
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.notes_rows import end_of_data, notes_lines, notes_note
-from cfa_tool.data.non_answers import answers_labelled_like_none, declared_missing, labelled_non_answers, \
-    non_answer_note, run_words, says_no_answer, unused_run_words, written_non_answers
+from cfa_tool.data.non_answers import GIVEN_CODES, answers_labelled_like_none, declared_missing, labelled_non_answers, \
+    non_answer_note, read_fit_marked, run_words, says_no_answer, unused_run_words, written_non_answers
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
 from cfa_tool.data.row_ids import id_text
 from cfa_tool.errors import DataError, clipped, printable
@@ -235,6 +235,9 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     frame, code_notes, found = apply_missing_codes(frame, missing_codes, where, mine, filters)  # in the items only
     coded = emptied_cells(before, frame) if missing_codes else ()  # (their notes written again over the rows kept)
     frame, labelled = labelled_non_answers(frame, item_labels, tuple(missing_codes))
+    frame, carried = read_fit_marked(frame, mine, str(where), item_labels)  # scores: what the fit's file marked
+    if carried:
+        code_notes = tuple(code_notes) + (carried,)
     if frame is not loaded.frame:
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
     if on_answers:
@@ -245,21 +248,41 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     like_none = tuple(a.note(str(where), tuple(missing_codes))  # answers whose label reads like none
                       for a in answers_labelled_like_none(frame, item_labels, tuple(missing_codes)))
     code_notes = tuple(code_notes) + like_none
-    # the notes that count cells, kept with what they counted: written again over the rows row filters keep
+    unused = unused_run_words(written + labelled) if run_words() else ()
+    unused_note = missing_codes_note(where, unused, [], "of the items") if unused else None
+    if unused_note is not None:  # the words of --missing-codes that no item holds: said as a code that no cell holds is
+        code_notes = tuple(code_notes) + (unused_note,)
+    markers = loaded.frame.attrs.get(MARKER_CELLS)  # the reader's note on 'NA', '.': (note, {marker: rows})
+    # the notes that count cells, kept with what they counted: written again over the rows analysed (row filters,
+    # a group column: data.kept_counts)
     loaded = replace(loaded, counts=ReadingCounts(
         str(where), None if mine is None else frozenset(mine), tuple(missing_codes), coded, item_labels,
-        code_notes[0] if missing_codes else None, read_as_none, like_none))
-    unused = unused_run_words(written + labelled) if run_words() else ()
-    if unused:  # the words of --missing-codes that no item holds: said as a code that no cell holds is
-        code_notes = tuple(code_notes) + (missing_codes_note(where, unused, [], "of the items"),)
+        code_notes[0] if missing_codes else None, read_as_none, like_none,
+        markers[0] if markers and any(n is markers[0] for n in loaded.notes) else None,
+        markers[1] if markers else {}, tuple(run_words()), unused_note, _code_rows(before, found, mine)))
     if code_notes:
         loaded = replace(loaded, notes=loaded.notes + tuple(code_notes))
     numbers = tuple(float(c) for c in missing_codes if isinstance(c, (int, float)) and not isinstance(c, bool))
     words = run_words()
     if not numbers and not words:
         return loaded
+    if loaded.frame.attrs.get(GIVEN_CODES) != numbers + tuple(words):  # what advice far from here keeps
+        marked = loaded.frame.copy(deep=False)  # never the caller's own data frame
+        marked.attrs[GIVEN_CODES] = numbers + tuple(words)
+        loaded = replace(loaded, frame=marked)
     return replace(loaded, missing_codes=numbers, codes_found=tuple(c for c in numbers if c in found),
                    missing_words=tuple(words))
+
+
+def _code_rows(frame: pd.DataFrame, found, items) -> tuple[tuple[float, tuple], ...]:
+    """Each code of ``found`` (codes given with --missing-codes that some cell held) with the rows (index labels) of
+    ``frame`` (before the codes were read as no answer) whose item columns (``items``; None: every column) hold it."""
+    if not found:
+        return ()
+    columns = [c for c in frame.columns if (items is None or str(c) in items)
+               and pd.api.types.is_numeric_dtype(frame[c])]
+    values = frame[columns].to_numpy(dtype=float, na_value=np.nan) if columns else np.empty((len(frame), 0))
+    return tuple((float(c), tuple(frame.index[(values == c).any(axis=1)].tolist())) for c in sorted(found))
 
 
 def sheet_of_each(sources, sheet: str | None) -> tuple[str | None, ...]:
@@ -509,19 +532,23 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
     _padded_as_shown(ws, body, kept, header, skipped, items, where, notes)
     marked: dict[int, dict[str, int]] = {}  # column position -> {marker: cells}, counted once
-    for r in body:
+    marker_rows: dict[str, list[int]] = {}  # marker -> the body's row of each such cell
+    for i, r in enumerate(body):
         for k, v in enumerate(r):
             if isinstance(v, str) and v.strip() in _MARKER_SET:
                 counted = marked.setdefault(k, {})
                 counted[v.strip()] = counted.get(v.strip(), 0) + 1
+                marker_rows.setdefault(v.strip(), []).append(i)
                 r[k] = None
-    _say_markers(_marker_totals(marked.values()), where, notes)
+    said = _say_markers(_marker_totals(marked.values()), where, notes)
     if any(v is None for r in body for v in r):
         _check_uncomputed_formulas(path, ws.title, data_start - 2)
     frame = pd.DataFrame(body, columns=header, index=file_rows_index(kept))
     frame.attrs[SHEET_COLUMNS] = {name: get_column_letter(skipped + k + 1) for k, name in enumerate(header) if name}
     if marked:
         frame.attrs[MARKED] = {header[k]: counted for k, counted in marked.items()}
+    if said is not None:
+        frame.attrs[MARKER_CELLS] = (said, {m: frame.index[rows].to_numpy() for m, rows in marker_rows.items()})
     _check_formula_errors(frame, where, items, _typed_errors(frame, ws))
     _check_repeated_header(frame, where, first + 1)
     _check_header_rows(frame, where, False, items=items, header_row=first + 1, names_option=names_option,
@@ -594,17 +621,16 @@ class HiddenRows:
         return replace(self, rows=rows, filtered_out=self.filtered_out + len(self.rows) - len(rows)) if rows else None
 
     def caution(self, source: str) -> str:
-        """What was found (the rows, hidden by the workbook's filter or by hand) and that they were kept."""
+        """What was found (the rows, hidden by the workbook's filter or by hand), that they are kept, and what a fit
+        does with them, in words as true of a check, which analyses nothing, as of a fit (plan-s23: check said the
+        rows 'were kept and analysed')."""
         name = source.replace("\\", "/").rsplit("/", 1)[-1]
         shown = cut_list(self.rows, 5)
         hidden = len(self.rows) + self.filtered_out
         how = "by its filter" if self.filtered else "by hand, not by a filter"
-        left = (f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)} "
-                f"{'was' if len(self.rows) == 1 else 'were'} kept"
-                if self.filtered_out else f"; {'it was' if hidden == 1 else 'they were'} kept")
         return (f"{name} (sheet '{printable(self.sheet)}') hides {hidden} of its {self.of} rows of data "
-                f"(row{'s' if len(self.rows) != 1 else ''} {shown}) {how}{left} and analysed with the rows it shows, "
-                f"as the file holds them.")
+                f"(row{'s' if len(self.rows) != 1 else ''} {shown}) {how}"
+                + kept_rows_words(len(self.rows), self.filtered_out, "the rows it shows") + ".")
 
     def advice(self) -> Note:
         """What to try, the row filter apart (note_parts.Command): a manuscript's reader runs nothing."""
@@ -673,7 +699,7 @@ class OtherSheets:
         name = source.replace("\\", "/").rsplit("/", 1)[-1]
         listed = " and ".join(f"'{printable(s)}'" for s in self.sheets)
         other = "sheet" if len(self.sheets) == 1 else "sheets"
-        return (f"{name}: only the sheet '{printable(self.read)}' was analysed, and the workbook's {other} {listed} "
+        return (f"{name}: only the sheet '{printable(self.read)}' is read, and the workbook's {other} {listed} "
                 f"{'holds' if len(self.sheets) == 1 else 'hold'} columns named as every item of the model too.")
 
     def advice(self) -> Note:
@@ -935,7 +961,7 @@ def _sheet_note(path: Path, read: str, names: list[str], hidden: list[str], name
                Command(f" with {option}"), ")")
     else:
         how = ("the first sheet", Command(f"; name another with {option}"))
-    return Note((f"{path}: the sheet '{printable(read)}' was analysed, ", *how, f"; the workbook also has {listed}"))
+    return Note((f"{path}: the sheet '{printable(read)}' was read, ", *how, f"; the workbook also has {listed}"))
 
 
 MERGED_HEADER_LOOK = 5  # rows under a header of merged cells looked at for the column names
@@ -2079,19 +2105,30 @@ def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list
         return
     cells = raw.frame()
     marked = {}  # column -> {marker: cells}, counted once for the note and the column's record
+    marker_rows: dict[str, list] = {}  # marker -> the row (index label) of each such cell
     for k, name in enumerate(header):
         stripped = cells.iloc[:, k].str.strip()
-        counted = stripped[stripped.isin(MISSING_MARKERS)].value_counts(sort=False)
+        held = stripped[stripped.isin(MISSING_MARKERS)]
+        counted = held.value_counts(sort=False)
         if len(counted):
             marked[name] = {str(m): int(n) for m, n in counted.items()}
-    _say_markers(_marker_totals(marked.values()), path, notes)
+            for label, m in held.items():
+                marker_rows.setdefault(str(m), []).append(label)
+    said = _say_markers(_marker_totals(marked.values()), path, notes)
     if frame is not None and marked:
         frame.attrs[MARKED] = marked
+        if said is not None and len(cells) == len(frame):
+            frame.attrs[MARKER_CELLS] = (said, {m: np.asarray(rows) for m, rows in marker_rows.items()})
 
 
 #: the key of DataFrame.attrs that keeps, for each column, the markers of no answer its cells were written as and
 #: how many ({column: {marker: cells}}): a group column's note names them (cfa_tool.data.labels.label_notes)
 MARKED = "marked_no_answer"
+#: the key of DataFrame.attrs that keeps the reader's note on cells written as markers of no answer and the rows
+#: (index labels, an array: the attrs are copied with every frame made from this one) of those cells, one per cell,
+#: for each marker: (note, {marker: rows}), by which the note is counted again over the rows analysed
+#: (data.kept_counts.ReadingCounts)
+MARKER_CELLS = "marker_cells"
 
 
 def _marker_totals(marked) -> dict[str, int]:
@@ -2101,12 +2138,14 @@ def _marker_totals(marked) -> dict[str, int]:
     return {m: sum(counted.get(m, 0) for counted in marked) for m in MISSING_MARKERS}
 
 
-def _say_markers(found: dict[str, int], where, notes: list[str] | None) -> None:
-    """The note naming how many cells of each marker of no answer were read as empty."""
-    found = {m: k for m, k in found.items() if k}
-    if found and notes is not None:
-        listed = ", ".join(f"'{m}' ({k:,} cell{'s' if k != 1 else ''})" for m, k in found.items())
-        notes.append(f"{where}: cells written as {listed} were read as no answer")
+def _say_markers(found: dict[str, int], where, notes: list[str] | None) -> str | None:
+    """The note naming how many cells of each marker of no answer were read as empty (data.kept_counts.markers_note),
+    added to ``notes`` and returned (None when none)."""
+    note = markers_note(found, where)
+    if note is not None and notes is not None:
+        notes.append(note)
+        return note
+    return None
 
 
 class _RawCells:

@@ -30,7 +30,7 @@ from cfa_tool.data.labels import (CODED_LABELS, cells_as_labels, label_notes, la
 from cfa_tool.data.matching import (answer_range_notes, refuse_name_twins, check_codes_off_scales, check_columns, check_declared_ranges,
                                     chosen_columns)
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
-from cfa_tool.data.kept_counts import kept_non_answers, kept_reading_notes
+from cfa_tool.data.kept_counts import analysed_rows, kept_non_answers, kept_reading_notes
 from cfa_tool.data.non_answers import also_no_answer, beyond_scale, non_answer_caution, run_words
 from cfa_tool.data.descriptives import few_category_items, few_category_note
 from cfa_tool.data.odd_values import odd_values
@@ -309,8 +309,9 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         loaded = half_of(loaded, halves[0], data, sheet, spec.observed_names, keeps_gaps)
         notes.append(loaded.row_filters[-1].note())
     frame, cautions, filters = loaded.frame, loaded.cautions, loaded.row_filters
-    if loaded.read_frame is not None:  # the reading's counts of cells read as no answer, over the rows kept
-        notes = kept_reading_notes(notes, loaded.counts, frame, loaded.non_answers)
+    analysed, among = rows_analysed(loaded, getattr(chosen, "group", None))  # a fit of groups leaves some out
+    if among is not None:  # the reading's counts of cells read as no answer, over the rows analysed
+        notes = kept_reading_notes(notes, loaded.counts, analysed, kept_non_answers(loaded.non_answers, analysed), among)
     notes += [f"{loaded.source}: {note}" for note in filter_notes] if name_the_file else filter_notes
     unfinished = unfinished_rows_note(frame, loaded.source)
     if unfinished:
@@ -392,6 +393,15 @@ def rows_kept(loaded: LoadedData, filters) -> tuple[LoadedData, list[str]]:
                                           loaded.row_names)
     return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame), read_frame=loaded.frame,
                    non_answers=kept_non_answers(loaded.non_answers, frame), row_filters=tuple(filters)), notes
+
+
+def rows_analysed(loaded: LoadedData, group: str | None = None) -> tuple[pd.DataFrame, str | None]:
+    """The rows of ``loaded`` that an analysis takes (those the row filters kept; of a fit of groups, those with a
+    value in the ``group`` column), and the words that name them, None when they are every row read: the one rule
+    by which the reading's counts are written over the rows analysed (data.kept_counts)."""
+    frame = loaded.frame
+    labelled = has_group(frame, group) if group is not None and group in frame.columns else None
+    return analysed_rows(frame, loaded.read_frame is not None, group, labelled)
 
 
 def half_of(loaded: LoadedData, choice: RandomHalf, data, sheet: str | None = None, items: tuple[str, ...] = (),
@@ -670,11 +680,15 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     words = tuple(dict.fromkeys(words + run_words()))
     # the missing-data helpers' cells read as missing too: they enter the likelihood as the items do (review s13)
     items = set(result.observed) | set(getattr(result.method, "helpers", None) or ())
-    marked = tuple(f for f in loaded.non_answers if f.column in items)
+    # what the rows analysed held (those the row filters kept, with a group label): the methods paragraph names it
+    analysed, among = rows_analysed(loaded, getattr(result, "group_column", None))
+    held = kept_non_answers(loaded.non_answers, analysed) if among else loaded.non_answers
+    found = loaded.counts.codes_among(analysed) if among and loaded.counts is not None else loaded.codes_found
+    marked = tuple(f for f in held if f.column in items)
     odd = tuple(o for o in loaded.odd_values if items.intersection(o.columns))
     if codes or words or marked or odd:
         read.update(missing_codes=codes, no_answer_words=words, non_answers=marked, odd_values=odd,
-                    codes_found=tuple(c for c in codes if c in loaded.codes_found))
+                    codes_found=tuple(c for c in codes if c in found))
     return replace(result, data=replace(result.data, **read)) if read else result
 
 
@@ -708,7 +722,7 @@ def weighted_out_problems(loaded: LoadedData, group: str | None, design: DesignC
 
 
 def odd_value_problems(loaded: LoadedData, group: str | None = None, design: DesignColumns | None = None,
-                       helpers: tuple[str, ...] = (), listwise: bool = False) -> tuple:
+                       helpers: tuple[str, ...] = (), listwise: bool = False, labelled_by: str | None = None) -> tuple:
     """Values in the item columns that look like no answers (a missing-value code, a totals row), and those the
     file marks as no answer and that were read as missing when rows leave the analysis because of them
     (data.non_answers.non_answer_caution; ``listwise``: rows with gaps are left out), as cautions that come first in
@@ -716,7 +730,8 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
     weights leave out (:func:`weighted_out_problems`) and its labels that differ only in case
     (:func:`group_case_problems`) first.  ``helpers``: the missing-data helpers, whose cells read as missing are
     named in the same caution as the items' (they enter the likelihood as items do; review s13: they were in the
-    methods text only)."""
+    methods text only); ``labelled_by``: the group column, whose rows without a value leave the analysis for want of
+    one, not for values read as no answer (:func:`rows_analysed`)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     if group is not None or (design is not None and (design.cluster or design.strata)):
@@ -726,11 +741,13 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
                 + (group_case_problems(loaded.frame, group) if group is not None else ())
                 + tuple(p for part, unit, name in design_columns if name is not None
                         for p in group_case_problems(loaded.frame, name, part, unit))
-                + odd_value_problems(loaded, helpers=helpers, listwise=listwise))
+                + odd_value_problems(loaded, helpers=helpers, listwise=listwise, labelled_by=group))
 
     items = (tuple(loaded.items.names) + tuple(helpers)) if loaded.items is not None else tuple(loaded.frame.columns)
-    marked = non_answer_caution(loaded.non_answers, loaded.source, items, loaded.frame, listwise,
-                                len(loaded.frame) if loaded.read_frame is not None else None)
+    analysed, among = rows_analysed(loaded, labelled_by)  # rows without a group label leave for want of one
+    marked = non_answer_caution(kept_non_answers(loaded.non_answers, analysed) if among else loaded.non_answers,
+                                loaded.source, items, analysed, listwise, len(analysed) if among else None,
+                                among or "")
     # a code already named as labelled beyond the scale of the same items is not named again (as a missing-value code,
     # a value outside the answer scale or a code set apart)
     from cfa_tool.data.non_answers import BeyondScale
@@ -2698,5 +2715,7 @@ def _answers_per_category(spec: Spec, frame: pd.DataFrame, source: str, group: s
     for name, coded in frame.attrs.get(CODED_BY_STATEMENT, {}).items():
         if name in items:
             labels[name] = {code: word for word, _, code in coded if word is not None}
-    return answer_counts(parts, spec.observed_names, items, labels) if items else ()
+    from cfa_tool.data.non_answers import given_codes
+
+    return answer_counts(parts, spec.observed_names, items, labels, given_codes(frame)) if items else ()
 

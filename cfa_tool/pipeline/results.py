@@ -351,6 +351,12 @@ class DataSummary:
             out["missing_codes"] = clean(list(self.missing_codes))
         if self.no_answer_words:
             out["no_answer_words"] = list(self.no_answer_words)
+        if self.non_answers:  # what the data file declared missing or labelled so: scores of other data read it so
+            from cfa_tool.data.non_answers import saved_non_answers
+
+            marked = saved_non_answers(self.non_answers)
+            if marked:
+                out["marked_no_answer_by_the_file"] = clean(marked)
         if self.reading is not None:
             out["reading"] = clean(self.reading.to_dict())
         if self.renamed:

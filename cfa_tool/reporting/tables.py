@@ -1390,7 +1390,8 @@ def fit_answer_counts(result, group: int = 0):
     names = tuple(name for name, _ in shown)
     labels = fit_answer_labels(result, names)
     return AnswerCounts(result.groups[group].label, names, codes, counts, scale,
-                        tuple(tuple((v, labels[name][v]) for v in codes if v in labels.get(name, {})) for name in names))
+                        tuple(tuple((v, labels[name][v]) for v in codes if v in labels.get(name, {})) for name in names),
+                        tuple(result.data.missing_codes) + tuple(result.data.no_answer_words))
 
 
 def category_table(result) -> ReportTable | None:
@@ -1557,12 +1558,16 @@ def answer_table(answers, key: str, where: str = "", groups: bool = False, analy
                     if groups else "; an ordinal fit estimates no threshold for it") + f" ({_listed(none)}).")
     text: Text = note
     if few or none:  # the option that reads a stray code as no answer is a command part: a manuscript names none
+        from cfa_tool.data.non_answers import codes_given
+        from cfa_tool.options import Interface
+
         stray = [f"{user_number(v)}" for v in sorted(ends)]
+        given = tuple(parts[0].given) + tuple(sorted(ends))  # after the codes the run gave, which it keeps
         missing_as = "a typing error or a code for no answer can be given as missing; "
         text = Note((note + " Check such an answer first: ",
                      Command(f"if {' or '.join(stray)} is a typing error or a code for no answer, give "
-                             + option_in_both(f"--missing-codes {','.join(stray)}",
-                                              f"missing_codes=[{', '.join(stray)}]") + "; ", missing_as)
+                             + option_in_both(codes_given(given, Interface.COMMAND_LINE),
+                                              codes_given(given, Interface.PYTHON)) + "; ", missing_as)
                      if ends else missing_as,
                      "a real answer's category can be merged with its neighbour's in a copy of the data file."
                      + after))

@@ -21,6 +21,7 @@ import pandas as pd
 from cfa_tool.data.halves import drawn_halves
 from cfa_tool.data.kept_rows import FINISHED_COLUMNS, ROW_NAMING, row_naming
 from cfa_tool.data.moments import stray_word_message
+from cfa_tool.data.non_answers import run_words
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.assessment.admissibility import sample_size_problems
 from cfa_tool.numbers import count_text, cut_list, more_words, names_shown, user_number
@@ -670,7 +671,8 @@ def _default_items(first, columns: list[str], codings: tuple, design: tuple[str,
     unlike = unlike_the_items(frame.assign(**_words_as_codes(frame, worded, codings)),
                               [c for c in numeric if c not in ids + roles + coded], worded, codes)
     records = list(unlike.columns)
-    _refuse_numbers_with_slips(frame, (*numeric, *worded, *drawn_by, *([id_column] if id_column else [])), source)
+    _refuse_numbers_with_slips(frame, (*numeric, *worded, *drawn_by, *([id_column] if id_column else [])), source,
+                               tuple(codes) + run_words())
     chosen = tuple(c for c in columns if c in worded or (c in numeric and c not in ids + roles + coded + records))
     if codings and not worded:
         raise OptionError(f"no column of {source} holds only the words of the answers file's statements "
@@ -741,11 +743,12 @@ def _refuse_too_few_named(chosen: tuple[str, ...]) -> None:
                       f"more items")
 
 
-def _refuse_numbers_with_slips(frame: pd.DataFrame, taken: tuple[str, ...], source: str) -> None:
+def _refuse_numbers_with_slips(frame: pd.DataFrame, taken: tuple[str, ...], source: str, given: tuple = ()) -> None:
     """A column of numbers with a few text slips ('?' in 2 of 480 cells: data.answer_scales.stray_text) is an item
     whose cells need correcting, not a text column to leave out: explore's default items stop on it as fit does
     (hostile trial s23: the item was dropped from the exploration and the draft, said only as 'text (not numbers)');
-    columns named for another part (an id, an age) are left to the note."""
+    columns named for another part (an id, an age) are left to the note; ``given``: the codes and words of no answer
+    the run gave, which the advice keeps."""
     from cfa_tool.data.answer_scales import stray_text
     from cfa_tool.data.kept_rows import cell_words
     from cfa_tool.data.moments import row_numbers
@@ -762,14 +765,16 @@ def _refuse_numbers_with_slips(frame: pd.DataFrame, taken: tuple[str, ...], sour
         row, cell = next((r, v) for r, v in zip(row_numbers(column), values) if isinstance(v, str) and v.strip()
                          and strict_number(v.strip()) is None)
         raise DataError(stray_word_message(source, str(name), clipped(cell.strip(), 40),
-                                           cell_words(column, str(name), row), cell.strip())
+                                           cell_words(column, str(name), row), cell.strip(), given)
                         + f"; or leave the column out by naming the items with {Option.ITEMS}")
 
 
-def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str, codings: tuple) -> None:
+def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str, codings: tuple,
+                       given: tuple = ()) -> None:
     """An item named in --items that holds words no answers file codes: an error naming the column, the cell and
     what explore takes (an answers file, with the statement the words suggest); cells holding digits or other
-    values are left to the reading of the items (data.moments), which names them."""
+    values are left to the reading of the items (data.moments), which names them; ``given``: the codes and words of
+    no answer the run gave, which advice to give a word keeps."""
     from cfa_tool.data.answer_scales import stray_text, suggested_statement
     from cfa_tool.data.kept_rows import cell_words
     from cfa_tool.data.moments import row_numbers
@@ -789,7 +794,8 @@ def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str
                 continue
             shown = clipped(cell.strip(), 40)
             if stray_text(values):  # a slip among numbers, as fit reads it (data.answer_scales.stray_text)
-                raise DataError(stray_word_message(source, name, shown, cell_words(column, name, row), cell.strip()))
+                raise DataError(stray_word_message(source, name, shown, cell_words(column, name, row), cell.strip(),
+                                                   given))
             statement = suggested_statement(values)
             where = (f"{source}: column '{printable(name)}' holds words ('{shown}' in {row_of(column, row)}), "
                      f"and explore analyses numbers")
@@ -931,7 +937,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         _refuse_too_few(chosen, scan, codings)
     spec = _explored_spec(chosen, codings, answers, worded if by_default else None)
     if not by_default:
-        _refuse_text_items(scan.frame.set_axis(columns, axis=1), chosen, source, codings)
+        _refuse_text_items(scan.frame.set_axis(columns, axis=1), chosen, source, codings,
+                           sum(api.missing_values_option(missing_codes), ()) + run_words())
     spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, missing_codes, api.keep_option(keep),
                                                      (id_column,) if isinstance(id_column, str) else (),
                                                      names_row=names_row, first_data_row=first_data_row, rename=rename)

@@ -1124,17 +1124,20 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 
     from cfa_tool.data.missing_codes import codes_shown
-    from cfa_tool.data.non_answers import run_words
+    from cfa_tool.data.non_answers import fit_marked, run_words
 
     given, words = api.missing_values_option(missing_codes)
     # the earlier fit's codes and words of no answer, read so here too (words alike but for case are one word)
     known = {w.casefold() for w in words + run_words()}
     carried = tuple(c for c in result.data.missing_codes if c not in given) + tuple(
         w for w in result.data.no_answer_words if w.casefold() not in known)
-    spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, given + words + carried, keep,
-                                                     (id_column,) if isinstance(id_column, str) else (),
-                                                     names_row=names_row, first_data_row=first_data_row, rename=rename,
-                                                     chosen=api.chosen_columns(result.group_column, id_column))
+    # and the codes its data file declared missing or labelled so, in their own items (an export without them)
+    with fit_marked(tuple(getattr(result.data, "non_answers", ()) or ())):
+        spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, given + words + carried, keep,
+                                                         (id_column,) if isinstance(id_column, str) else (),
+                                                         names_row=names_row, first_data_row=first_data_row,
+                                                         rename=rename,
+                                                         chosen=api.chosen_columns(result.group_column, id_column))
     frame, source = loaded.frame, loaded.source
     from cfa_tool.data.labels import refuse_moved_labels  # answers coded otherwise than in the fit's data: refused
 
@@ -1312,6 +1315,7 @@ def read_saved_fit(path) -> SavedFit:
     from cfa_tool.assessment.admissibility import saved_fit_problems
     from cfa_tool.data.answer_words import coding_from_json
     from cfa_tool.data.missing_codes import codes_and_words
+    from cfa_tool.data.non_answers import non_answers_from_saved
     from cfa_tool.input_files import input_json
     from cfa_tool.model.saved_estimates import saved_fit_payload, saved_rows
     from cfa_tool.pipeline.results import DataSummary, saved_categories
@@ -1338,6 +1342,7 @@ def read_saved_fit(path) -> SavedFit:
                               categories=categories if counts else (), not_given=not_given,
                               missing_codes=codes_and_words(d.get("missing_codes", ()))[0],
                               no_answer_words=codes_and_words(d.get("no_answer_words", ()))[1],
+                              non_answers=non_answers_from_saved(d.get("marked_no_answer_by_the_file")),
                               ranges=tuple((float(d["answer_ranges"][x][0]), float(d["answer_ranges"][x][1]))
                                            for x in d["variables"]) if d.get("answer_ranges") else (),
                               answer_coding=coding_from_json(d.get("answer_coding"), source))

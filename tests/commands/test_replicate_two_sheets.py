@@ -44,8 +44,8 @@ def test_two_sheets_of_one_workbook_are_the_two_samples(workbook, capsys):
     assert main(["replicate", model, "--calibration", str(workbook), "--validation", str(workbook),
                  "--sheet", "spring", "--validation-sheet", "autumn"]) == 0
     out = " ".join(capsys.readouterr().out.split())
-    assert "the sheet 'autumn' was analysed, as named with --validation-sheet" in out
-    assert "the sheet 'spring' was analysed, as named with --sheet" in out
+    assert "the sheet 'autumn' was read, as named with --validation-sheet" in out
+    assert "the sheet 'spring' was read, as named with --sheet" in out
 
 
 def test_the_same_sheet_twice_or_a_sheet_without_its_file_is_refused(workbook, tmp_path, capsys):

@@ -48,7 +48,7 @@ def test_rows_hidden_by_hand_are_their_own_caution_first_in_every_command(rider_
         assert ProblemKind.VALUES_NOT_ANSWERS not in [p.kind for p in problems]
         said = str(first.explanation)
         assert "hides 3 of its 480 rows of data (rows 5, 9, 12) by hand, not by a filter" in said
-        assert "they were kept and analysed with the rows it shows" in said
+        assert "they are kept as the file holds them, and a fit analyses them with the rows it shows" in said
         # no workbook filter to speak of: the advice names a column that tells the rows apart
         assert "the column its filter uses" not in str(first.advice)
         assert "on a column that tells them apart" in str(first.advice) and "keep" in str(first.advice)
@@ -72,7 +72,7 @@ def test_rows_hidden_by_a_filter_name_the_filter_that_keeps_the_rows_shown(rider
     hidden = int((rider_demo.district != "north").sum())  # pandas' count
     shown = ", ".join(map(str, south[:5]))  # the sheet's rows: the frame's row numbers plus the header's row
     assert f"hides {hidden} of its 480 rows of data (rows {shown} and {hidden - 5} more) by its filter; " \
-           f"they were kept" in str(first.explanation)
+           f"they are kept" in str(first.explanation)
     assert "To analyse only the rows the workbook's filter shows, give keep=[\"district == 'north'\"]" in \
         str(first.advice)
     assert "a workbook" not in first.phrase() and "rows that the workbook hides" in first.phrase()
@@ -92,7 +92,7 @@ def test_rows_an_spss_case_filter_deselects_are_their_own_caution(rider_demo, ri
         assert first.kind is ProblemKind.DESELECTED_ROWS
         assert ProblemKind.VALUES_NOT_ANSWERS not in [p.kind for p in problems]
         assert f"marks {deselected} of its 480 rows 'Not Selected'" in str(first.explanation)
-        assert "they were kept and analysed with the selected rows" in str(first.explanation)
+        assert "they are kept as the file holds them, and a fit analyses them with the selected rows" in str(first.explanation)
         assert "keep=['filter_$ = 1']" in str(first.advice)
     assert cfa_tool.fit(rider_model, str(path)).to_dict()["problems"][0]["kind"] == \
         "rows a saved case filter deselects"
@@ -104,5 +104,32 @@ def test_hidden_rows_a_row_filter_leaves_out_are_counted_apart(rider_demo, rider
     out = [f"rider_id != {rider_demo.rider_id[3]}", f"rider_id != {rider_demo.rider_id[7]}"]
     first = cfa_tool.fit(rider_model, str(path), keep=out).problems[0]
     assert first.kind is ProblemKind.HIDDEN_ROWS
-    assert ("hides 3 of its 480 rows of data (row 12) by hand, not by a filter; the row filters left out 2 of them, "
-            "and the other 1 was kept and analysed") in str(first.explanation)
+    assert ("hides 3 of its 480 rows of data (row 12) by hand, not by a filter; the row filters leave out 2 of them, "
+            "and the other 1 is kept as the file holds it, and a fit analyses it with the rows it shows") \
+        in str(first.explanation)
+
+
+def test_check_says_what_a_fit_does_with_the_rows_not_that_it_analysed_them(rider_demo, rider_model, tmp_path, capsys):
+    """check analyses nothing (rows-s23: it said the hidden and deselected rows 'were kept and analysed'): its
+    caution says that they are kept and what a fit does with them, in words as true of the fit's own report."""
+    pyreadstat = pytest.importorskip("pyreadstat")
+    model = tmp_path / "m.cfa"
+    model.write_text(rider_model)
+    book = _book(rider_demo, tmp_path / "riders.xlsx", hidden=(5, 9, 12))
+    frame = rider_demo.copy()
+    frame["filter_$"] = (frame["district"] == "north").astype(float)
+    spss = tmp_path / "survey.sav"
+    pyreadstat.write_sav(frame, str(spss), variable_value_labels={"filter_$": {0: "Not Selected", 1: "Selected"}})
+    for path, others in ((book, "the rows it shows"), (spss, "the selected rows")):
+        code, out, _ = run_cli(["check", model, "--data", path], capsys)
+        assert code == 0
+        flat = " ".join(out.replace("│", " ").split())
+        assert "analysed with" not in flat.replace("a fit analyses them with", "")
+        assert f"they are kept as the file holds them, and a fit analyses them with {others}." in flat
+    # two of the three hidden rows left out by a row filter (sheet rows 5 and 9: the frame's rows 3 and 7)
+    keep = f"rider_id not in {rider_demo.rider_id[3]}, {rider_demo.rider_id[7]}"
+    code, out, _ = run_cli(["check", model, "--data", book, "--keep", keep], capsys)
+    assert code == 0
+    flat = " ".join(out.replace("│", " ").split())
+    assert ("the row filters leave out 2 of them, and the other 1 is kept as the file holds it, and a fit analyses it "
+            "with the rows it shows.") in flat

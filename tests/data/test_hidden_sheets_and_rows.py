@@ -35,10 +35,10 @@ def test_a_hidden_first_sheet_is_not_read_without_sheet(rider_demo, rider_model,
     book.save(path)
     loaded = read_data(path)
     assert len(loaded.frame) == 480  # the visible sheet's rows, as pandas counts the demo CSV
-    assert any("the sheet 'answers' was analysed" in n and "'draft_old' (hidden)" in n for n in loaded.notes)
+    assert any("the sheet 'answers' was read" in n and "'draft_old' (hidden)" in n for n in loaded.notes)
     result = cfa_tool.fit(rider_model, str(path))
     assert result.n_obs == 480
-    assert any("'answers' was analysed" in w for w in result.warnings)  # said in every view's notes
+    assert any("'answers' was read" in w for w in result.warnings)  # said in every view's notes
     named = read_data(path, sheet="draft_old")
     assert len(named.frame) == 200
     assert any("the workbook hides this sheet" in n for n in named.notes)
@@ -60,7 +60,7 @@ def test_rows_hidden_by_a_filter_are_analysed_and_named_first(rider_demo, rider_
     first = result.problems[0]
     hidden = int((rider_demo.district != "north").sum())  # counted in the demo CSV by pandas
     assert f"hides {hidden} of its 480 rows of data (rows " in first.explanation
-    assert "by its filter; they were kept and analysed" in first.explanation
+    assert "by its filter; they are kept as the file holds them, and a fit analyses them" in first.explanation
     assert "keep=[\"district == 'north'\"]" in first.advice  # as a Python call writes the option (Option.KEEP)
     kept = cfa_tool.fit(rider_model, str(path), keep="district == 'north'")  # the advice, followed
     assert kept.n_obs == 480 - hidden

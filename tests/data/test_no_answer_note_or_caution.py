@@ -19,7 +19,7 @@ from cfa_tool import cli
 from tests.conftest import simulate_cfa
 
 MODEL = "factor rider: q1, q2, q3, q4\n"
-CAUTION = "left the analysis because values read as no answer emptied"
+CAUTION = "the analysis because values read as no answer emptied"
 HEADING = "Check before interpreting this solution"
 
 
@@ -74,10 +74,10 @@ def test_rows_dropped_listwise_are_a_caution_that_counts_them(files, capsys):
     result, html, terminal = _run(tmp_path, "some.csv", "--incomplete-rows", "listwise", capsys=capsys)
     assert result["n_obs"] == 250 - lost
     [problem] = _no_answer_problems(result)
-    assert problem["explanation"].startswith(f"{lost} rows {CAUTION} their cells (listwise deletion leaves out every "
+    assert problem["explanation"].startswith(f"{lost} rows leave {CAUTION} their cells (listwise deletion leaves out every "
                                              f"row with a gap). 3 cells of the items in some.csv")
     assert "leave out --incomplete-rows listwise" in problem["advice"]
-    assert HEADING in terminal and f"{lost} rows {CAUTION}" in terminal and f"{lost} rows {CAUTION}" in html
+    assert HEADING in terminal and f"{lost} rows leave {CAUTION}" in terminal and f"{lost} rows leave {CAUTION}" in html
     assert terminal.index(HEADING) < terminal.index("Model file:")  # first in the report
 
 
@@ -88,6 +88,6 @@ def test_a_row_left_without_any_answer_is_a_caution_with_full_information(files,
     result, html, terminal = _run(tmp_path, "whole_row.csv", capsys=capsys)
     [problem] = _no_answer_problems(result)
     assert empty == 1 and problem["explanation"].startswith(
-        f"1 row {CAUTION} its cells (no answer to any item was left in them). {int(said.to_numpy().sum())} cells of "
+        f"1 row leaves {CAUTION} its cells (no answer to any item is left in them). {int(said.to_numpy().sum())} cells of "
         f"the items in whole_row.csv")
     assert HEADING in terminal and CAUTION in html

@@ -26,7 +26,7 @@ def test_other_sheets_with_the_items_are_named_first(rider_demo, rider_model, tm
     assert result.n_obs == 240  # the first sheet, as before
     first = result.problems[0]
     assert first.kind is ProblemKind.OTHER_SHEETS_WITH_ITEMS
-    assert first.explanation == ("waves.xlsx: only the sheet 'Wave1' was analysed, and the workbook's sheet 'Wave2' "
+    assert first.explanation == ("waves.xlsx: only the sheet 'Wave1' is read, and the workbook's sheet 'Wave2' "
                                  "holds columns named as every item of the model too.")  # not 'Notes'
     # the advice pools the sheets only if they are parts of one sample (new-user trial s23: one sheet per wave of the
     # same people, whose rows pooled would be taken for other people)
@@ -38,7 +38,7 @@ def test_other_sheets_with_the_items_are_named_first(rider_demo, rider_model, tm
     code, out, _ = run_cli(["fit", model, "--data", book, "--json", tmp_path / "r.json"], capsys)
     assert code == 0
     plain = " ".join(out.replace("│", " ").split())
-    assert plain.index("only the sheet 'Wave1' was analysed") < 200
+    assert plain.index("only the sheet 'Wave1' is read") < 200
     assert json.loads((tmp_path / "r.json").read_text())["problems"][0]["kind"] == ProblemKind.OTHER_SHEETS_WITH_ITEMS.value
     # a sheet named says nothing of the kind, nor does a workbook whose other sheet holds other columns
     named = cfa_tool.fit(rider_model, book, sheet="Wave2")

@@ -69,7 +69,7 @@ def test_the_caution_of_rows_left_out_counts_the_cells_of_the_rows_kept(tmp_path
     (caution,) = [p for p in result.problems if p.kind is ProblemKind.VALUES_READ_AS_MISSING]
     # depot 2: rows 700, 701 (s3) and 900 (c1), 3 rows and 3 cells (counted by hand from CODED)
     assert str(caution.explanation).startswith(
-        "3 rows left the analysis because values read as no answer emptied their cells (listwise deletion leaves out "
+        "3 rows leave the analysis because values read as no answer emptied their cells (listwise deletion leaves out "
         "every row with a gap). 3 cells of the items in the 600 rows of riders.sav that the row filters kept hold "
         "values that the file declares as missing values, read as missing, not as answers: 8 (3 cells: s3 2, c1 1).")
 
@@ -81,11 +81,11 @@ def test_missing_codes_given_are_counted_in_the_rows_the_filters_kept(tmp_path, 
     assert len(whole) == 1 and whole[0].startswith("riders.csv: 5 cells holding a code given")
     assert whole[0].endswith("(c1 1, c2 1, s1 1, s3 2)")
     (kept,) = _notes(cfa_tool.check(MODEL, path, missing_codes=[8], keep=["depot = 1"]), "holding a code given")
-    assert kept.startswith("riders.csv: 2 cells of the items in the 600 rows the row filters kept holding a code given")
+    assert kept.startswith("riders.csv: 2 cells of the items in the 600 rows that the row filters kept holding a code given")
     assert kept.endswith("were read as no answer (c2 1, s1 1)")
     (none,) = _notes(cfa_tool.check(MODEL, path, missing_codes=[8], keep=["depot = 1", "c2 != 8", "s1 != 8"]),
                      "holds any of the codes given")
-    assert none.startswith("riders.csv: no cell of the items in the 598 rows the row filters kept holds any of the "
+    assert none.startswith("riders.csv: no cell of the items in the 598 rows that the row filters kept holds any of the "
                            "codes given")
 
 
@@ -98,11 +98,11 @@ def test_a_code_labelled_like_no_answer_between_the_answers_is_counted_in_the_ro
                          missing_ranges={c: [8] for c in ITEMS})
     whole = int((riders[ITEMS] == 2).to_numpy().sum())  # counted by numpy on every row: above 1,000
     (note,) = _notes(cfa_tool.check(MODEL, path), "lies between other answers")
-    assert whole >= 1000 and f"and was analysed as an answer ({whole:,} cells: " in note
+    assert whole >= 1000 and f"and is analysed as an answer ({whole:,} cells: " in note
     kept = riders.iloc[: ROWS // 2]
     cells = {c: int((kept[c] == 2).sum()) for c in ITEMS}  # counted by numpy on the rows of depot 1
     (note,) = _notes(cfa_tool.check(MODEL, path, keep=["depot = 1"]), "lies between other answers")
-    assert f"and was analysed as an answer ({sum(cells.values()):,} cells: " in note
+    assert f"and is analysed as an answer ({sum(cells.values()):,} cells: " in note
     assert all(f"{c} {n}" in note for c, n in cells.items())
 
 

@@ -47,12 +47,19 @@ def test_a_declared_code_no_item_holds_is_not_named():
     while the fit keeps every code given for scoring other data."""
     data = _coded()
     data["site"] = [-99 if i % 10 == 0 else 1 + i % 2 for i in range(len(data))]
+    data.loc[(data[["x1", "x2", "x3", "x4", "x5", "x6", "x7", "x8", "x9"]] == -9).any(axis=1), "site"] = 1  # kept
     result = cfa_tool.fit(THREE_FACTORS, data, missing_codes=(-9, -99), keep=["site = 1"])
     assert result.data.missing_codes == (-9.0, -99.0) and result.data.codes_found == (-9.0,)
     text = _flat(methods_paragraph(result))
     assert "the code -9, declared to mean no answer, was treated as missing" in text and "-99" not in text
     none_held = cfa_tool.fit(THREE_FACTORS, data.assign(x2=holzinger_swineford()["x2"]), missing_codes=(-99,))
     assert "declared to mean no answer" not in methods_paragraph(none_held)
+    # a code that only rows the row filters left out held is not named either (rows-s23)
+    left_out = data.assign(site=[2 if v == 1 else v for v in data["site"]])
+    left_out.loc[left_out.index[1::4], "site"] = 1
+    left_out.loc[(data[["x1", "x2", "x3", "x4", "x5", "x6", "x7", "x8", "x9"]] == -9).any(axis=1), "site"] = 2
+    result = cfa_tool.fit(THREE_FACTORS, left_out, missing_codes=(-9,), keep=["site = 1"])
+    assert result.data.codes_found == () and "declared to mean no answer" not in methods_paragraph(result)
 
 
 def test_a_fit_without_codes_names_none():
