@@ -755,7 +755,8 @@ def _summary(m: SampleMoments, observed: tuple[str, ...], gm: GroupMoments) -> D
     if rows is not None and rows is m.rows and tuple(m.names) != tuple(observed):
         rows = rows[:, [m.names.index(x) for x in observed]]
     shape = item_shape(rows) if rows is not None else None
-    ranges = () if rows is None or not len(rows) else tuple(zip(*(e.tolist() for e in answer_extremes(rows))))
+    known = m.extremes.for_values(rows) if m.extremes is not None and rows is not None else None  # made by the reading
+    ranges = () if rows is None or not len(rows) else tuple(zip(*(e.tolist() for e in known or answer_extremes(rows))))
     return DataSummary(m.source, m.rows_read, m.rows_dropped, m.n_obs, observed,
                        tuple(gm.mean.tolist()), tuple(np.sqrt(np.diag(gm.covariance)).tolist()),
                        *((shape.answered, shape.skewness, shape.kurtosis) if shape is not None else ()), ranges=ranges,
