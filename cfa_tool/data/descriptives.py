@@ -3,7 +3,7 @@ and the shape of its distribution."""
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -57,6 +57,37 @@ def answer_extremes(values: np.ndarray, answered: np.ndarray | None = None) -> t
         return values.min(axis=0, initial=np.inf), values.max(axis=0, initial=-np.inf)
     return (values.min(axis=0, initial=np.inf, where=answered),
             values.max(axis=0, initial=-np.inf, where=answered))
+
+
+@dataclass(frozen=True, eq=False)
+class AnswerExtremes:
+    """Each column's lowest and highest answer of one array of item values (:func:`answer_extremes`), made once per
+    fit and read by every check of that array: the screening for values that are not answers (data.odd_values),
+    the few-categories note (:func:`few_category_items`) and the answer ranges of the data summary.  ``of`` is the
+    array itself, so that a reader holding any other array (rows left out, columns reordered, a group's rows) takes
+    its own (:meth:`for_values`)."""
+
+    of: np.ndarray = field(repr=False)
+    low: np.ndarray
+    high: np.ndarray
+
+    def for_values(self, values: np.ndarray) -> tuple[np.ndarray, np.ndarray] | None:
+        """(lowest, highest) of each column when ``values`` is the very array they are of, else None."""
+        return (self.low, self.high) if values is self.of else None
+
+
+def shared_extremes(values: np.ndarray | None) -> AnswerExtremes | None:
+    """:class:`AnswerExtremes` of ``values`` over their answered cells (gaps NaN left out), or None where readers'
+    rules of what counts as an answer could differ: where some extreme is not finite (an infinite value, which the
+    screening for values that are not answers leaves out and the few-categories check keeps, or a column without
+    any answer).  Where every extreme is finite no cell is infinite, so the finite cells are the answered ones and
+    every reader's extremes are these."""
+    if values is None or not values.size:
+        return None
+    low, high = answer_extremes(values, ~np.isnan(values))
+    if not (np.isfinite(low).all() and np.isfinite(high).all()):
+        return None
+    return AnswerExtremes(values, low, high)
 
 
 #: items answered in at most this many categories are, by common practice, analysed as ordered categories
@@ -120,18 +151,23 @@ def nearly_constant_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[N
     return tuple(found)
 
 
-def few_category_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[str, ...]:
+def few_category_items(values: np.ndarray, names: tuple[str, ...],
+                       extremes: AnswerExtremes | None = None) -> tuple[str, ...]:
     """The items (columns of ``values``, gaps NaN) answered in whole numbers spanning at most FEW_CATEGORIES
     values (so at most that many categories), with two categories at least; a nearly constant item
     (:func:`nearly_constant_items`) is not among them: analysed as ordered categories its rare category leaves the
-    polychoric correlations undetermined, and a caution names it instead."""
+    polychoric correlations undetermined, and a caution names it instead.  ``extremes``: :func:`shared_extremes`
+    of ``values`` when the caller has them."""
     if not values.size:  # no rows (the reading of the data says so)
         return ()
-    answered = ~np.isnan(values)
-    low, high = answer_extremes(values, answered)
+    known = extremes.for_values(values) if extremes is not None else None
+    answered = None if known is not None else ~np.isnan(values)
+    low, high = known if known is not None else answer_extremes(values, answered)
     few = (high > low) & (high - low <= FEW_CATEGORIES - 1)
     if not few.any():  # no item spans so few values (the common case): no whole numbers to look for
         return ()
+    if answered is None:
+        answered = ~np.isnan(values)
     near = np.flatnonzero(few)  # whole numbers looked for in those items alone
     part, given = values[:, near], answered[:, near]
     with np.errstate(invalid="ignore"):

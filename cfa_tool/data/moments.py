@@ -9,10 +9,12 @@ from __future__ import annotations
 import re
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field, replace
+from functools import cached_property
 
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.descriptives import AnswerExtremes, shared_extremes
 from cfa_tool.data.answer_scales import MOST_WORDS_SHOWN, distinct_words, stray_text, suggested_statement
 from cfa_tool.data.kept_rows import ROW_NAMING, RowNaming, cell_words, row_naming, text_lines
 from cfa_tool.data.non_answers import given_codes
@@ -53,6 +55,9 @@ class SampleMoments:
     #: the covariance matrix's Cholesky factor and log-determinant, made by the checks of the moments, as (covariance,
     #: factor, log|covariance|): the likelihood reads it for this very matrix (numerics.linalg.sample_factor_of)
     factor: KnownFactor | None = field(default=None, repr=False, compare=False)
+    #: each item's lowest and highest answer (data.descriptives.AnswerExtremes) of the array they were made of, read
+    #: by the data summary when :attr:`rows` is that very array (every row of the frame's items kept)
+    extremes: AnswerExtremes | None = field(default=None, repr=False, compare=False)
 
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
@@ -165,6 +170,13 @@ class ItemColumns:
     def of(self, frame: pd.DataFrame, names: tuple[str, ...] | list[str]) -> np.ndarray | None:
         """The array when it holds exactly ``names`` of this very ``frame`` (else None: take them out again)."""
         return self.values if frame is self.frame and tuple(names) == self.names else None
+
+    @cached_property
+    def extremes(self) -> AnswerExtremes | None:
+        """Each item's lowest and highest answer in :attr:`values` (data.descriptives.shared_extremes), made on first
+        use and read by the screening for values that are not answers, the few-categories note and the data summary
+        (each reader checks that its array is this one)."""
+        return shared_extremes(self.values)
 
 
 def _copied(columns: list[pd.Series], rows: int) -> np.ndarray:
@@ -446,13 +458,13 @@ def row_numbers(frame: pd.DataFrame | pd.Series) -> np.ndarray:
 
 def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, group: str | None = None,
                    missing: MissingData | str = MissingData.LISTWISE, weights: str | None = None,
-                   values: np.ndarray | None = None) -> SampleMoments:
+                   values: np.ndarray | None = None, extremes: AnswerExtremes | None = None) -> SampleMoments:
     """Moments of the model variables: of the complete rows (listwise deletion), or, with
     ``missing='full-information'``, the EM estimates from every row with at least one answer
     (the rows themselves are kept for the casewise likelihood).  ``weights``: a column of row
     weights (checked beforehand, see cfa_tool.data.sample_design): weighted means and covariance,
     divisor the sum of the weights.  ``values``: the columns' :func:`item_values` when already taken out of
-    ``frame``."""
+    ``frame``; ``extremes``: their answers' extremes (:attr:`ItemColumns.extremes`), kept for the data summary."""
     file_source = source
     if group is not None:
         source = f"{source} (group {group})"
@@ -461,7 +473,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     p = values.shape[1]
     if missing == MissingData.FULL_INFORMATION:  # the member or its word
         found = _incomplete_moments(values, names, source, file_source, group, len(frame), w, row_numbers(frame),
-                                    row_naming(frame))
+                                    row_naming(frame), extremes)
         return replace(found, text_lines=text_lines(frame)) if text_lines(frame) else found
     complete = None if finite else ~np.isnan(values).any(axis=1)  # checked finite: every row is complete
     every_row = complete is None or bool(complete.all())
@@ -486,7 +498,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     factor = _check_moments(cov, means, names, source)
     numbers = row_numbers(frame) if every_row else row_numbers(frame)[complete]
     return SampleMoments(tuple(names), cov, means, n, len(frame), len(frame) - n, file_source, group, data, numbers,
-                         row_naming=row_naming(frame), text_lines=text_lines(frame), factor=factor)
+                         row_naming=row_naming(frame), text_lines=text_lines(frame), factor=factor, extremes=extremes)
 
 
 def moments_with_gaps(values: np.ndarray, names: tuple[str, ...], source: str,
@@ -556,7 +568,7 @@ def too_few_answers(name: str, answers: int, source: str, group: str | None = No
 
 def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int,
                         weights: np.ndarray | None = None, numbers: np.ndarray | None = None,
-                        naming: RowNaming = RowNaming.FILE_ROW) -> SampleMoments:
+                        naming: RowNaming = RowNaming.FILE_ROW, extremes: AnswerExtremes | None = None) -> SampleMoments:
     from cfa_tool.data.em import SingularCovariance, em_saturated
     from cfa_tool.data.patterns import pattern_data
 
@@ -617,9 +629,13 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
         raise EstimationError(f"{source}: {error}; {count_text(complete)} of its {count_text(n)} rows answer all {p} items. What to try: "
                               f"{remedy}") from None
     _check_moments(sigma, mu, names, source)
+    # the rows left out answer nothing, so the answers' extremes of the rows kept are those of ``values``
+    kept = (AnswerExtremes(data, extremes.low, extremes.high)
+            if extremes is not None and extremes.for_values(values) is not None else None)
     return SampleMoments(tuple(names), sigma, mu, n, rows_read, rows_read - n, file_source, group, data,
                          numbers[answered] if numbers is not None else None,
-                         unanswered_rows=numbers[~answered] if numbers is not None else None, row_naming=naming)
+                         unanswered_rows=numbers[~answered] if numbers is not None else None, row_naming=naming,
+                         extremes=kept)
 
 
 def _few_rows_cause(counts: np.ndarray, names, rows: int, group) -> str:

@@ -56,7 +56,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.numbers import count_text, cut_list, user_number
-from cfa_tool.data.descriptives import answer_extremes
+from cfa_tool.data.descriptives import AnswerExtremes, answer_extremes
 from cfa_tool.data.missing_codes import beyond_as_a_code
 from cfa_tool.data.kept_rows import RowNaming, row_naming, row_words, rows_listed, text_lines
 from cfa_tool.data.moments import column_dtypes, item_values, stored_column
@@ -305,10 +305,11 @@ class OddValues:
 
 
 def odd_values(frame: pd.DataFrame, columns: tuple[str, ...] | list[str],
-               row_numbers: np.ndarray | None = None, values: np.ndarray | None = None) -> tuple[OddValues, ...]:
+               row_numbers: np.ndarray | None = None, values: np.ndarray | None = None,
+               extremes: AnswerExtremes | None = None) -> tuple[OddValues, ...]:
     """What in ``columns`` of ``frame`` looks like no answers (see the module's rules), a summary block under the
     data first (:func:`summary_block`), then codes.  ``values``: the columns' ``data.moments.item_values`` when
-    already taken out of ``frame``."""
+    already taken out of ``frame``, and ``extremes`` their answers' extremes (data.descriptives.shared_extremes)."""
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # values near the float limit judge as inf
         block, above = _summary_block(frame, columns, row_numbers, values)
         if block:  # the other rules judge the rows above the block, against them alone
@@ -316,7 +317,7 @@ def odd_values(frame: pd.DataFrame, columns: tuple[str, ...] | list[str],
             found = block + _odd_values(frame.iloc[:above], columns, numbers[:above],
                                         None if values is None else values[:above])
         else:
-            found = _odd_values(frame, columns, row_numbers, values)
+            found = _odd_values(frame, columns, row_numbers, values, extremes)
     naming = row_naming(frame)
     lines = text_lines(frame)
     if lines:  # a text file whose quoted cells hold line breaks: the rows' text lines named beside them
@@ -612,7 +613,7 @@ def _joined(items: list[str]) -> str:
     return items[0] if len(items) == 1 else f"{', '.join(items[:-1])} and {items[-1]}"
 
 
-def _odd_values(frame: pd.DataFrame, columns, row_numbers, X) -> tuple[OddValues, ...]:
+def _odd_values(frame: pd.DataFrame, columns, row_numbers, X, extremes: AnswerExtremes | None = None) -> tuple[OddValues, ...]:
     numbers = np.arange(1, len(frame) + 1) if row_numbers is None else np.asarray(row_numbers)
     if len(frame) <= MIN_OTHERS:
         return ()
@@ -626,7 +627,7 @@ def _odd_values(frame: pd.DataFrame, columns, row_numbers, X) -> tuple[OddValues
         if not names:
             return ()
         X = frame[names].to_numpy(dtype=float, na_value=np.nan)  # infinite values are judged by no rule
-    standing, apart = _may_stand_out(X)
+    standing, apart = _may_stand_out(X, extremes.for_values(X) if extremes is not None else None)
     flagged = [(j, value, code, ranges) for j in standing for value, code, ranges in _peeled(X[:, j])]
     if not flagged:
         outside = _outside_scales(X, apart, set(), names, numbers)  # the common case: only the rows-of-sums-or-means rule to apply, and no row far beyond
@@ -902,14 +903,15 @@ def code_like(value: float) -> bool:
     return value < 0 or set(digits) == {"9"}
 
 
-def _may_stand_out(X: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def _may_stand_out(X: np.ndarray, extremes: tuple[np.ndarray, np.ndarray] | None = None) -> tuple[np.ndarray, np.ndarray]:
     """The columns in which :func:`_peeled` can find a value, all columns at once: its first judgement at the top
     needs the highest answer at least the range of the others beyond them (highest - next <= next - lowest fails
     it), and at the bottom likewise; a column failing both has nothing to peel.  Comparisons with NaN keep a
     column (``_peeled`` judges it).  Second, the columns in which :func:`_outside_scale` can find a value: an
-    extreme at least two steps beyond the next value."""
+    extreme at least two steps beyond the next value.  ``extremes``: each column's (lowest, highest) finite value,
+    when the caller has them."""
     finite = np.isfinite(X)  # the extremes over masks (no masked copy of the data: on a thousand rows its
-    bottom, top = answer_extremes(X, finite)  # allocation costs more than the comparisons)
+    bottom, top = extremes if extremes is not None else answer_extremes(X, finite)  # allocation costs more than the comparisons)
     if finite.all():  # no gaps (the common case): fewer masks
         next_top = X.max(axis=0, initial=-np.inf, where=X < top)
         next_bottom = X.min(axis=0, initial=np.inf, where=X > bottom)

@@ -98,6 +98,7 @@ class MissingParts:
 class MissingDataLikelihood:
     """FIML discrepancy summed over groups, weighted by group size."""
 
+    #: rows with gaps, held pattern by pattern (:attr:`patterns`): the flag the assessment reads (NormalLikelihood)
     complete_data = False
 
     def __init__(self, model: StructuredModel, patterns: list[PatternData], saturated: list[tuple[np.ndarray, np.ndarray]],

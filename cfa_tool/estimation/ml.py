@@ -68,6 +68,9 @@ class NormalLikelihood:
     that N F is the likelihood-ratio chi-square against the saturated model.
     """
 
+    #: the flag the assessment after the search reads (pipeline.continuous.assess), never an attribute's presence:
+    #: complete rows, so each group's :attr:`sample_factors` and :meth:`sigma_inverse` at the estimates are there to
+    #: share (full-information ML's MissingDataLikelihood declares False and holds its rows pattern by pattern)
     complete_data = True
     score_route = ScoreRoute.RANK_TWO  # candidate_scores
 

@@ -505,10 +505,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         else:
             if options.information is Information.OBSERVED or not likelihood.complete_data:
                 # with incomplete data the observed information is the one valid under MAR (Kenward & Molenberghs 1998)
-                closed_form = likelihood.observed_hessian(theta) if hasattr(likelihood, "observed_hessian") else None
-                gradient = getattr(likelihood, "gradient", None) or (lambda t: likelihood.evaluate(t).gradient)
+                closed_form = likelihood.observed_hessian(theta)  # None where there is no closed form (Objective)
                 information = closed_form if closed_form is not None else observed_information(
-                    gradient, theta, central=likelihood.complete_data)
+                    likelihood.gradient, theta, central=likelihood.complete_data)
             cov_theta = parameter_covariance(information, n_total,
                                              factor if information is evaluation.information else None)
         inference = wald_inference(values, model.J, cov_theta)
@@ -540,7 +539,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         # shared below; unweighted rows are those the sample moments were computed from
         rows = gm.rows if gm.rows is not None else _complete_pattern_rows(likelihood, g, est.auxiliary)
         whitened = (whitened_rows(rows, (gm.mean, gm.covariance) if gm.design is None else None,
-                                  likelihood.sample_factors[g] if hasattr(likelihood, "sample_factors") else None)
+                                  likelihood.sample_factors[g] if likelihood.complete_data else None)
                     if options.diagnostics and rows is not None else None)
         share = (None if not est.converged else est.auxiliary.group_chi_square(g) if est.auxiliary is not None else
                  likelihood.n_total * likelihood.weights[g] * likelihood.group_discrepancy(theta, g))
@@ -562,8 +561,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                                      if est.auxiliary is not None else m, sigma,
                                      est.converged and (options.diagnostics or options.reliability),
                                      spec.reverse_keyed or None, spec.method_factors | spec.exploratory_factors, whitened,
-                                     likelihood.sigma_inverse(theta, g) if hasattr(likelihood, "sigma_inverse") else None,
-                                     likelihood.patterns[g].rows if hasattr(likelihood, "patterns") else None,
+                                     likelihood.sigma_inverse(theta, g) if likelihood.complete_data else None,
+                                     None if likelihood.complete_data else likelihood.patterns[g].rows,
                                      reliability_only=not options.diagnostics),
             )
         )
@@ -673,10 +672,9 @@ def _complete_pattern_rows(likelihood, g: int, auxiliary) -> np.ndarray | None:
     """Group ``g``'s rows under a full-information fit when every one of them is complete (one pattern, no gap), for
     Mardia's tests, which need complete rows (hostile s20: a full-information fit of complete rows said they need
     complete rows and left them out); None where a row has a gap or missing-data helpers join the items."""
-    patterns = getattr(likelihood, "patterns", None)
-    if patterns is None or auxiliary is not None:
+    if likelihood.complete_data or auxiliary is not None:
         return None
-    rows = patterns[g].rows
+    rows = likelihood.patterns[g].rows
     return rows if rows is not None and not np.isnan(rows).any() else None
 
 
@@ -757,7 +755,8 @@ def _summary(m: SampleMoments, observed: tuple[str, ...], gm: GroupMoments) -> D
     if rows is not None and rows is m.rows and tuple(m.names) != tuple(observed):
         rows = rows[:, [m.names.index(x) for x in observed]]
     shape = item_shape(rows) if rows is not None else None
-    ranges = () if rows is None or not len(rows) else tuple(zip(*(e.tolist() for e in answer_extremes(rows))))
+    known = m.extremes.for_values(rows) if m.extremes is not None and rows is not None else None  # made by the reading
+    ranges = () if rows is None or not len(rows) else tuple(zip(*(e.tolist() for e in known or answer_extremes(rows))))
     return DataSummary(m.source, m.rows_read, m.rows_dropped, m.n_obs, observed,
                        tuple(gm.mean.tolist()), tuple(np.sqrt(np.diag(gm.covariance)).tolist()),
                        *((shape.answered, shape.skewness, shape.kurtosis) if shape is not None else ()), ranges=ranges,

@@ -32,7 +32,7 @@ from cfa_tool.data.matching import (answer_range_notes, refuse_name_twins, check
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.kept_counts import analysed_rows, kept_non_answers, kept_reading_notes
 from cfa_tool.data.non_answers import also_no_answer, beyond_scale, non_answer_caution, run_words
-from cfa_tool.data.descriptives import few_category_items, few_category_note
+from cfa_tool.data.descriptives import AnswerExtremes, few_category_items, few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.notes_rows import drop_notes_lines
@@ -335,15 +335,17 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     frame = _codes_as_labels(frame, loaded.value_labels, (*spec.observed_names, *sorted(numbers)))
     items = ItemColumns(frame, spec.observed_names, values)  # the items' codes are kept as they are
     return spec, replace(loaded, frame=frame, cautions=cautions + beyond, items=items,
-                         odd_values=_screened_items(loaded, frame, spec, items.values)), notes
+                         odd_values=_screened_items(loaded, frame, spec, items.values, items.extremes)), notes
 
 
-def _screened_items(loaded: LoadedData, frame: pd.DataFrame, spec: Spec, values: np.ndarray | None = None) -> tuple:
+def _screened_items(loaded: LoadedData, frame: pd.DataFrame, spec: Spec, values: np.ndarray | None = None,
+                    extremes: AnswerExtremes | None = None) -> tuple:
     """The values of the model's items among ``frame``'s rows that look like no answers (data.odd_values), those on a
     scale the model declares left out (:func:`_within_declared_scales`), with the rows of sums or means of the whole
     file that the row filters kept (:func:`summary_rows_kept`): one screen for the rows read and, with groups, for
     the rows with a group label (:func:`analysed_odd_values`)."""
-    found = _within_declared_scales(odd_values(frame, spec.observed_names, row_numbers(frame), values), spec, frame)
+    found = _within_declared_scales(odd_values(frame, spec.observed_names, row_numbers(frame), values, extremes), spec,
+                                    frame)
     return found + summary_rows_kept(loaded, frame, spec.observed_names, found)
 
 
@@ -452,17 +454,19 @@ def _code_key(code) -> tuple:
 def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None = None,
                 reference_group: str | None = None, missing: MissingData | str = MissingData.LISTWISE,
                 design: DesignColumns | None = None,
-                values: np.ndarray | None = None) -> tuple[list[tuple[str | None, SampleMoments]], list[str]]:
+                values: np.ndarray | None = None,
+                extremes: AnswerExtremes | None = None) -> tuple[list[tuple[str | None, SampleMoments]], list[str]]:
     """Per-group (or single) sample moments of the model variables, with notes on rows left out;
     weighted, and carrying each row's weight, cluster and stratum, under a sampling ``design``.  ``values``:
-    the model variables' columns of ``frame`` already taken out (data.moments.item_values)."""
+    the model variables' columns of ``frame`` already taken out (data.moments.item_values), ``extremes`` their
+    answers' extremes (data.moments.ItemColumns.extremes)."""
     notes: list[str] = []
     weights = design.weights if design is not None else None
     if group is None:
         if reference_group is not None:
             raise OptionError("a reference group needs a group column")
         groups = [(None, sample_moments(frame, spec.observed_names, source, missing=missing, weights=weights,
-                                        values=values))]
+                                        values=values, extremes=extremes))]
     else:
         _check_group_column(spec, group)
         groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing, weights)
@@ -1606,7 +1610,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
         helpers_can_apply(fit_options, frame, spec.observed_names, group, values)
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group, values, design)
     notes = missing_notes + notes
-    few, few_note = few_categories(frame, spec.observed_names, values)
+    extremes = loaded.items.extremes if values is not None else None  # made once, by the screening of odd values
+    few, few_note = few_categories(frame, spec.observed_names, values, extremes)
     notes += few_note
     if design is not None:
         fit_options = design_test(fit_options, design)
@@ -1615,7 +1620,7 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     # fit's own then finds one thread already and sets nothing)
     with blas_threads_for(len(spec.observed_names)):
         groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design,
-                                          values)
+                                          values, extremes)
         notes += group_notes
         if fit_options.missing_helpers:
             groups = [(label, with_helpers(m, frame, fit_options.missing_helpers, source, design))
@@ -2203,15 +2208,15 @@ def continuous_only(spec: Spec, command: str) -> Spec:
     return spec
 
 
-def few_categories(frame: pd.DataFrame, names: tuple[str, ...],
-                   values: np.ndarray | None = None) -> tuple[tuple[str, ...], list[str]]:
+def few_categories(frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarray | None = None,
+                   extremes: AnswerExtremes | None = None) -> tuple[tuple[str, ...], list[str]]:
     """For a command that treats ``names`` as continuous: the items of few answer categories
     (data.descriptives.few_category_items), which the methods paragraph names, and the note on them
     (data.descriptives.few_category_note), empty when there are none (``values``: the items taken out already)."""
     values = item_values(frame, names) if values is None else values
     if values is None:  # not plain numbers: the reading of the items names what is wrong
         return (), []
-    few = few_category_items(values, names)
+    few = few_category_items(values, names, extremes)
     note = few_category_note(few, names)
     return few, [note] if note else []
 
