@@ -63,19 +63,36 @@ def test_the_boundary_nesting_is_tested_with_gaps_as_with_complete_rows(seed):
 
 
 def test_the_nesting_check_starts_from_the_general_fit_and_reaches_zero():
-    """The check's start is the general fit's own estimates, laid out without the means, matched by label."""
-    from cfa_tool.workflows.nesting import general_start
+    """The check fits the general model in its fit's own layout (the means too), from its estimates."""
+    from cfa_tool.workflows.nesting import general_at_implied
 
     rows = _rows(2)
     second, two = cfa_tool.fit(SECOND, rows), cfa_tool.fit(TWO, rows)
-    implied = implied_moments(two)
     spec = parse_model(SECOND)
-    start = general_start(second, spec, implied)
-    estimated = dict(zip(second.parameter_labels, second.theta))
-    assert len(second.theta) == 77 and len(start) == 53  # 24 intercepts left out
-    est = estimate(spec, implied, FitOptions(), start=start)
-    assert [estimated[label] for label in est.table.free_labels] == list(start)
+    est = general_at_implied(two, spec, second)
+    assert len(est.theta) == len(second.theta) == 77  # 53 and the 24 intercepts
     assert est.converged and est.value <= NESTING_TOLERANCE
     # from the start values built from the implied moments too (the higher-order covariance at 0, a singular point)
-    plain = estimate(spec, implied, FitOptions())
+    plain = estimate(spec, implied_moments(two), FitOptions())
     assert plain.converged and plain.value <= NESTING_TOLERANCE and plain.iterations > 0
+
+
+def test_models_that_differ_in_their_means_are_compared_under_full_information():
+    """A one-group longitudinal model with both occasions' means at 0 is nested in the one with the later mean free
+    (1 df); the check, which fitted no means, stopped the comparison on 'intercepts and factor means are estimated
+    only in a fit with a mean structure'."""
+    from tests.model.test_free_mean_with_equal_intercepts import LONGITUDINAL
+    from tests.conftest import exact_cfa_rows
+
+    lam = np.array([1.0, 0.8, 0.7])
+    L = np.zeros((6, 2))
+    L[:3, 0] = L[3:, 1] = lam
+    data = exact_cfa_rows(L, np.array([[1.0, 0.5], [0.5, 1.2]]), np.diag(np.full(6, 0.5)), 600, 7,
+                          names=["x1_1", "x2_1", "x3_1", "x1_2", "x2_2", "x3_2"])
+    data += np.r_[3.0, 3.5, 2.8, 3.0 + 0.3 * lam[0], 3.5 + 0.3 * lam[1], 2.8 + 0.3 * lam[2]]  # the mean moves .3
+    result = cfa_tool.compare([LONGITUDINAL, LONGITUDINAL + "free mean(f2)\n"], data, missing="full-information")
+    (test,) = result.tests
+    fixed, free = result.results
+    assert test.df_difference == 1 == fixed.fit.df - free.fit.df
+    assert test.chi_square_difference == pytest.approx(fixed.fit.chi_square - free.fit.chi_square, rel=1e-9)
+    assert test.chi_square_difference > 10
