@@ -81,7 +81,7 @@ class ModelDescription:
     # equals that of their factors correlated freely and does not test them
     just_identified_higher_order: tuple[str, ...] = ()
     # the degrees of freedom the higher-order structure saves over its first-order factors correlated freely
-    # (:func:`higher_order_saving`; None when no higher-order factor could be checked)
+    # (:func:`higher_order_saving`; None when some higher-order factor could not be checked)
     higher_order_df: int | None = None
 
     def to_dict(self) -> dict:
@@ -234,7 +234,7 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
 
 def higher_order_saving(spec: Spec, table: ParameterTable) -> tuple[tuple[str, ...], int | None]:
     """The higher-order factors whose part of the model is just-identified, and the degrees of freedom the
-    higher-order structure as a whole saves (None when no higher-order factor can be checked).
+    higher-order structure as a whole saves (None when some higher-order factor cannot be checked).
 
     A part is just-identified when the model with the factor taken out and the factors it explains correlated freely
     has as many free parameters (in every group, with what the model holds equal across groups).  The higher-order
@@ -304,7 +304,9 @@ def higher_order_saving(spec: Spec, table: ParameterTable) -> tuple[tuple[str, .
         return (), None
     whole = saved(set(checked))
     together = 0 if len(alone) == 1 else whole if len(alone) == len(checked) else saved(set(alone))
-    return (tuple(alone) if alone and together == 0 else ()), whole
+    # the saving of the whole structure only where every higher-order factor could be taken out
+    higher = sum(any(i.text in latent for i in f.indicators) for f in spec.factors)
+    return (tuple(alone) if alone and together == 0 else ()), (whole if len(checked) == higher else None)
 
 
 def _scales(spec: Spec, table: ParameterTable, group: int = 0) -> tuple[FactorScale, ...]:

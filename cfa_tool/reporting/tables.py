@@ -1425,9 +1425,9 @@ def _two_factor_higher_order(result) -> tuple[str, ...]:
     saved = getattr(d, "higher_order_df", None)
     # what the structure saves, counted (model.description.higher_order_saving): two such factors together save a df
     # while neither alone does (newuser-s23)
-    tested = (f" Together the higher-order structure has {counted(saved, 'parameter')} fewer than the variances and "
-              f"covariances of the first-order factors it explains, so this fit tests it with "
-              f"{counted(saved, 'degree')} of freedom (Rindskopf & Rose 1988)." if saved else "")
+    tested = (f" Together the higher-order structure has {counted(saved, 'parameter')} fewer than the first-order "
+              f"factors correlated freely, so this fit tests it with {counted(saved, 'degree')} of freedom "
+              f"(Rindskopf & Rose 1988)." if saved else "")
     return (f"Higher-order {'factor' if one else 'factors'} over two factors ({named}): {'it is' if one else 'each is'}"
             f" identified only through its covariance with another higher-order factor, as a factor of two "
             f"indicators is through its correlations with other factors (Kenny 1979), so the loadings of the "

@@ -85,6 +85,14 @@ def test_two_parts_over_two_factors_each_say_the_df_they_save_together(rows):
     """The note on higher-order factors over two factors counts what the structure saves (newuser-s23, finding 4)."""
     model = cfa_tool.fit(_first(4) + LAYOUTS[1][0], rows)
     text = " ".join(model.summary().split())
-    assert ("Together the higher-order structure has 1 parameter fewer than the variances and covariances of the "
-            "first-order factors it explains, so this fit tests it with 1 degree of freedom") in text
+    assert ("Together the higher-order structure has 1 parameter fewer than the first-order factors correlated "
+            "freely, so this fit tests it with 1 degree of freedom") in text
     assert "just-identified" not in text
+
+
+def test_no_saving_is_said_where_a_higher_order_factor_cannot_be_taken_out(rows):
+    """A statement naming the higher-order loadings ties the parts: taking a factor out would change its meaning, so
+    nothing is counted and the note says no df."""
+    model = cfa_tool.fit(_first(4) + LAYOUTS[1][0] + "equal loading(g1, f2), loading(g2, f4)\n", rows)
+    assert model.description.higher_order_df is None
+    assert "Together the higher-order structure" not in " ".join(model.summary().split())

@@ -60,3 +60,20 @@ def test_means_that_only_give_the_intercepts_their_origin_are_not_said(shifted):
                                          missing="full-information"))
     assert "The intercept of x1_1 and the intercept of x1_2 were constrained to be equal." in one
     assert "The means of f1 and f2 were fixed at zero; as intercepts were held equal across these factors" in one
+
+
+def test_the_word_and_html_reports_say_it_too(shifted):
+    import io
+
+    import docx
+
+    from cfa_tool.reporting.docx_report import report_docx
+    from cfa_tool.reporting.fit_document import fit_report
+    from cfa_tool.reporting.html_report import report_html
+
+    report = fit_report(cfa_tool.fit(LONGITUDINAL, shifted, missing="full-information"))
+    said = "fixing their means at zero is a restriction the fit tests"
+    assert said in " ".join(report_html(report).split())
+    word = docx.Document(io.BytesIO(report_docx(report)))
+    assert any(said in p.text for p in word.paragraphs)
+    assert any(EQUAL_INTERCEPTS in p.text for p in word.paragraphs)
