@@ -36,6 +36,10 @@ SHIFT = 0.4  # the population's change of the factor mean from the first occasio
 
 @pytest.fixture(scope="module")
 def rows():
+    return longitudinal_rows()
+
+
+def longitudinal_rows():
     """Rows whose covariances and means are exactly the population's (invented values): loadings 1, .8, .7 at both
     occasions, intercepts 3, 3.5, 2.8 at both, factor variances 1 and 1.2 correlated .5, the second mean SHIFT."""
     lam = np.array([1.0, 0.8, 0.7])

@@ -14,7 +14,7 @@ import pytest
 
 import cfa_tool
 from cfa_tool.reporting.paragraph import methods_paragraph
-from tests.model.test_free_mean_with_equal_intercepts import LONGITUDINAL, rows  # noqa: F401  (the fixture)
+from tests.model.test_free_mean_with_equal_intercepts import LONGITUDINAL, longitudinal_rows
 
 EQUAL_INTERCEPTS = ("The intercepts were constrained to be equal within each of three pairs (x1_1 and x1_2; x2_1 "
                     "and x2_2; x3_1 and x3_2).")
@@ -23,10 +23,10 @@ EQUAL_LOADINGS = ("The loadings were constrained to be equal within each of two 
 
 
 @pytest.fixture(scope="module")
-def shifted(rows):  # noqa: F811
-    """The rows with the second occasion's items moved by a further .2 of a unit: a change the model at zero
+def shifted():
+    """The rows (longitudinal_rows) with the second occasion's items moved by a further .2 of a unit: a change the model at zero
     means cannot follow."""
-    out = rows.copy()
+    out = longitudinal_rows()
     for k, lam in enumerate((1.0, 0.8, 0.7)):
         out[f"x{k + 1}_2"] += 0.2 * lam
     return out
