@@ -164,7 +164,10 @@ def minimise(
                 break
             # Newton decrement g' H^-1 g: about twice the distance to the minimum of F, whatever the units
             decrement = float(-g @ step) if free_all else float(-g[inactive] @ step[inactive])
-            if decrement < tolerance:
+            # a decrement below zero (beyond rounding) comes from an information that is singular there, not from a
+            # minimum: the line search takes the gradient's direction instead (newuser-s23: a start where two
+            # higher-order factors over two factors each are uncorrelated, 'converged' at the start, value 1.3)
+            if -tolerance < decrement < tolerance:
                 return OptimizerResult(theta, current.value, g, iterations - 1, Outcome.CONVERGED)
             # scoring converges linearly when the model misfits: then switch to Newton near the minimum;
             # with a closed-form Hessian Newton is cheap enough to take as soon as it is safe

@@ -77,9 +77,12 @@ class ModelDescription:
     # the group labels of a model fitted in groups (empty for one group): the texts that name a group write it among
     # them (language.names.written_group)
     groups: tuple[str, ...] = ()
-    # higher-order factors whose part of the model is just-identified (:func:`just_identified_higher_order`): the fit
+    # higher-order factors whose part of the model is just-identified (:func:`higher_order_saving`): the fit
     # equals that of their factors correlated freely and does not test them
     just_identified_higher_order: tuple[str, ...] = ()
+    # the degrees of freedom the higher-order structure saves over its first-order factors correlated freely
+    # (:func:`higher_order_saving`; None when some higher-order factor could not be checked)
+    higher_order_df: int | None = None
 
     def to_dict(self) -> dict:
         keyed = {"reverse_keyed": [{"items": list(items), "lowest": lo, "highest": hi}
@@ -90,6 +93,7 @@ class ModelDescription:
             "higher_order_factors": [{"factor": f, "explains": list(lower),
                                       "just_identified": f in self.just_identified_higher_order}
                                      for f, lower in self.higher_order],
+            "higher_order_df_saved": self.higher_order_df,
             "indicators": list(self.indicators),
             "cross_loadings": [{"item": x, "factors": list(fs)} for x, fs in self.cross_loadings],
             "residual_covariances": [list(p) for p in self.residual_covariances],
@@ -200,6 +204,7 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
     held = {frozenset(p) for p in uncorrelated}
     correlated = any(frozenset((a, b)) not in held for i, a in enumerate(exo_first) for b in exo_first[i + 1:])
     scales = [tuple(s for s in _scales(spec, table, g) if outside(s.factor)) for g in range(table.n_groups)]
+    untested, saving = higher_order_saving(spec, table)
     return ModelDescription(
         first_order=first_order,
         higher_order=higher,
@@ -222,20 +227,31 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
         exploratory=tuple((b.factor_names, b.item_names, b.rotation.text) for b in spec.exploratory),
         reverse_keyed=tuple((tuple(i.text for i in k.items), k.minimum, k.maximum) for k in spec.reversed),
         groups=tuple(table.groups) if table.multigroup else (),
-        just_identified_higher_order=just_identified_higher_order(spec, table),
+        just_identified_higher_order=untested,
+        higher_order_df=saving,
     )
 
 
-def just_identified_higher_order(spec: Spec, table: ParameterTable) -> tuple[str, ...]:
-    """The higher-order factors whose part of the model is just-identified: the model with the factor taken out and
-    the factors it explains correlated freely has as many free parameters (in every group, with what the model holds
-    equal across groups).  The higher-order model is nested in that one (it restricts the first-order factors'
-    covariance matrix, which the other leaves free), so with no degree of freedom between them the two fit alike
-    and the fit says nothing of the higher-order structure: a second-order factor over exactly three first-order
-    factors, 3 loadings (one fixed for its scale) and its variance and 3 disturbances for 3 variances and 3
-    covariances (Rindskopf & Rose 1988; Brown 2015, ch. 8, recalled from memory).
+def higher_order_saving(spec: Spec, table: ParameterTable) -> tuple[tuple[str, ...], int | None]:
+    """The higher-order factors whose part of the model is just-identified, and the degrees of freedom the
+    higher-order structure as a whole saves (None when some higher-order factor cannot be checked).
 
-    Checked only where taking the factor out leaves every other statement's meaning alone: a factor explaining
+    A part is just-identified when the model with the factor taken out and the factors it explains correlated freely
+    has as many free parameters (in every group, with what the model holds equal across groups).  The higher-order
+    model is nested in that one (it restricts the first-order factors' covariance matrix, which the other leaves
+    free), so with no degree of freedom between them the two fit alike and the fit says nothing of the higher-order
+    structure: a second-order factor over exactly three first-order factors, 3 loadings (one fixed for its scale) and
+    its variance and 3 disturbances for 3 variances and 3 covariances (Rindskopf & Rose 1988; Brown 2015, ch. 8,
+    recalled from memory).  A second-order factor over two first-order factors is identified only through its
+    covariance with another factor (Rindskopf & Rose 1988), so taken out alone it may save nothing while the structure
+    it shares with another saves a degree of freedom: two correlated second-order factors over two first-order factors
+    each have 2 loadings, 2 variances, a covariance and 4 disturbances for the 4 factors' 10 variances and covariances,
+    1 df (newuser-s23, finding 4).  So the parts that save nothing alone are said untested only when taking all of
+    them out together saves nothing either; the saving of the whole structure is the difference in free parameters
+    from the model with every checked higher-order factor taken out, the df of the test of the structure against the
+    first-order factors correlated freely.
+
+    Checked only where taking a factor out leaves every other statement's meaning alone: a factor explaining
     factors only, explained by none, whose factors no other factor explains and no statement names by their variance,
     covariance or mean (nor the factor itself), without exploratory blocks."""
     from dataclasses import replace
@@ -245,7 +261,7 @@ def just_identified_higher_order(spec: Spec, table: ParameterTable) -> tuple[str
     from cfa_tool.model.parameters import build_parameter_table
 
     if spec.exploratory:
-        return ()
+        return (), None
     latent = set(spec.factor_names)
     explained: dict[str, int] = {}
     for f in spec.factors:
@@ -260,22 +276,37 @@ def just_identified_higher_order(spec: Spec, table: ParameterTable) -> tuple[str
     for p in table.parameters:
         if p.kind == "threshold" and p.group == 0:
             ordinal[p.variables[0]] = ordinal.get(p.variables[0], 0) + 1
-    out = []
+
+    def saved(taken_out: set[str]) -> int | None:
+        """Free parameters gained by taking these higher-order factors out (None when that model cannot be built)."""
+        alternative = replace(spec, factors=tuple(g for g in spec.factors if g.name.text not in taken_out))
+        try:
+            other = build_parameter_table(alternative, table.groups if table.multigroup else None,
+                                          mean_structure=table.mean_structure, ordinal=ordinal or None)
+        except ModelError:
+            return None
+        return other.n_free - table.n_free
+
+    checked, alone = [], []
     for f in spec.factors:
         lower = [i.text for i in f.indicators]
         h = f.name.text
         if (h in explained or not all(x in latent for x in lower) or any(explained[x] > 1 for x in lower)
                 or named & {h, *lower}):
             continue
-        alternative = replace(spec, factors=tuple(g for g in spec.factors if g is not f))
-        try:
-            other = build_parameter_table(alternative, table.groups if table.multigroup else None,
-                                          mean_structure=table.mean_structure, ordinal=ordinal or None)
-        except ModelError:
+        own = saved({h})
+        if own is None:
             continue
-        if other.n_free == table.n_free:
-            out.append(h)
-    return tuple(out)
+        checked.append(h)
+        if own == 0:
+            alone.append(h)
+    if not checked:
+        return (), None
+    whole = saved(set(checked))
+    together = 0 if len(alone) == 1 else whole if len(alone) == len(checked) else saved(set(alone))
+    # the saving of the whole structure only where every higher-order factor could be taken out
+    higher = sum(any(i.text in latent for i in f.indicators) for f in spec.factors)
+    return (tuple(alone) if alone and together == 0 else ()), (whole if len(checked) == higher else None)
 
 
 def _scales(spec: Spec, table: ParameterTable, group: int = 0) -> tuple[FactorScale, ...]:

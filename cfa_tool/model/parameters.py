@@ -525,8 +525,8 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         if ref.kind == "mean":
             for g in groups_of(ref):
                 if (g, *ref.key()) in released and not _mean_has_origin(spec, ref.names[0], g, entries, tied_with_first,
-                                                                          lat_ix, ordinal):
-                    raise _mean_without_origin(spec, ref, group_labels[g] if multi else None)
+                                                                          lat_ix, ordinal, find):
+                    raise _mean_without_origin(spec, ref, group_labels[g] if multi else None, g, find, entries)
     for setting in spec.starts:
         for ref in setting.refs:
             error = cannot_apply(ref, Unapplied.START)
@@ -852,39 +852,88 @@ def _unit_left_unidentified(spec: Spec, factor, group_labels: tuple[str, ...]) -
                        f"every group ('noninvariant')", at)
 
 
-def _mean_has_origin(spec: Spec, f: str, g: int, entries: dict, tied_with_first, lat_ix: dict, ordinal: dict) -> bool:
+def _mean_has_origin(spec: Spec, f: str, g: int, entries: dict, tied_with_first, lat_ix: dict, ordinal: dict,
+                     find) -> bool:
     """Whether a factor mean a 'free' statement releases in group ``g`` can be estimated: an indicator's intercept is
-    fixed in that group (the mean is then the indicator's mean less that intercept, over its loading), or, in a
-    later group, an indicator's intercept and loading are held equal to the first group's, whose mean is the
-    origin (Sorbom 1974).  Factors measured by other factors or by ordinal items are left to the check of the
-    information matrix (their means' origins run through the lower factors' means or the thresholds)."""
+    fixed in that group (the mean is then the indicator's mean less that intercept, over its loading), or held equal
+    in that group to the intercept of an item of other factors whose means are fixed there (:func:`_origin_partners`:
+    a longitudinal model's later occasion against the first, Little, Slegers & Card 2006; Brown 2015, ch. 7,
+    recalled from memory), or, in a later group, an indicator's intercept and loading are held equal to the first
+    group's, whose mean is the origin (Sorbom 1974).  Factors measured by other factors or by ordinal items are left
+    to the check of the information matrix (their means' origins run through the lower factors' means or the
+    thresholds).  ``find``: the root of a parameter's set of equal parameters (the model's 'equal' statements)."""
     factor = next(x for x in spec.factors if x.name.text == f)
     items = [i.text for i in factor.indicators]
     if any(x in lat_ix or x in ordinal for x in items):
         return True
     if any(entries[(g, "intercept", (x,))]["fixed"] is not None for x in items):
         return True
+    if any(_origin_partners(spec, f, x, g, entries, find) for x in items):
+        return True
     return g > 0 and _mean_identified(spec, factor, entries, tied_with_first(g), lat_ix, ordinal)
 
 
-def _mean_without_origin(spec: Spec, ref: ParameterRef, group: str | None) -> ModelError:
+def _origin_partners(spec: Spec, f: str, x: str, g: int, entries: dict, find) -> list[str]:
+    """The items whose intercepts in group ``g`` are held equal to that of ``x`` (an indicator of ``f``) and that
+    indicate only factors other than ``f`` whose means are fixed there: each such intercept is its item's mean less
+    its loadings times those fixed means, so the shared intercept gives the mean of ``f`` its origin, as the first
+    occasion's mean (0) gives the later occasions' theirs when the intercepts are held equal over time (Little,
+    Slegers & Card 2006; Brown 2015, ch. 7, recalled from memory).  Loadings need not be equal for this: they are
+    identified by the covariances; equal loadings are what make the means comparable, which invariance judges."""
+    root = find((g, "intercept", (x,)))
+    out = []
+    for key in entries:
+        if key[0] != g or key[1] != "intercept" or key[2] == (x,) or find(key) != root:
+            continue
+        y = key[2][0]
+        own = [h.name.text for h in spec.factors if any(i.text == y for i in h.indicators)]
+        if own and f not in own and all(entries[(g, "mean", (h,))]["fixed"] is not None for h in own):
+            out.append(y)
+    return out
+
+
+def _tied_intercepts(g: int, x: str, entries: dict, find) -> list[str]:
+    """The other items whose intercepts in group ``g`` are held equal to that of ``x`` ('equal' statements)."""
+    root = find((g, "intercept", (x,)))
+    return [k[2][0] for k in entries if k[0] == g and k[1] == "intercept" and k[2] != (x,) and find(k) == root]
+
+
+def _mean_without_origin(spec: Spec, ref: ParameterRef, group: str | None, g: int, find, entries: dict) -> ModelError:
     """The error of a 'free' of a factor mean that nothing gives an origin (the information matrix would be singular
-    at any estimate: the mean and its indicators' intercepts trade off)."""
+    at any estimate: the mean and its indicators' intercepts trade off).  Its advice fixes the intercept of an
+    indicator held equal to no other where there is one; where every one is, it names the intercepts the fix would
+    fix too (newuser-s23: 'fix intercept(vig1_t2) = 0' fixed intercept(vig1_t1), held equal to it, without a word),
+    and says what else gives the mean its origin: an intercept held equal to that of an item of a factor whose mean
+    is fixed (:func:`_origin_partners`)."""
     f = ref.names[0]
     plain = replace(ref, group=None)
-    first = next(x.indicators[0].text for x in spec.factors if x.name.text == f)
+    items = next([i.text for i in x.indicators] for x in spec.factors if x.name.text == f)
+    ties = {x: _tied_intercepts(g, x, entries, find) for x in items}
+    first = next((x for x in items if not ties[x]), items[0])
+    fix = f"fix an intercept of one indicator (as 'fix {ParameterRef('intercept', (first,), None)} = 0'"
+    if ties[first]:
+        tied = ", ".join(str(ParameterRef("intercept", (y,), None)) for y in ties[first])
+        fix += (f", which fixes {tied} at 0 too, being held equal to it: every intercept of '{f}' is held equal to "
+                f"another")
+    fix += ")"
+    # equalities within the group count only where they reach an intercept whose factors' means are fixed
+    held = " (those held equal to others are held equal to intercepts whose items' factors have free means too)"
     if group is None:
         where, how = "", ""
+        other = (", hold an intercept of one of its indicators equal to that of an item of a factor whose mean is "
+                 "fixed (as the intercepts of one item at two occasions are, the first occasion's mean 0 the origin "
+                 "of the later one's)")
     else:
         where = f" in group {written_name(group)}"
         how = ("; with groups, a factor's mean is estimated in the groups after the first where the loading and "
                "intercept of one of its indicators are held equal across groups ('invariance scalar'), the first "
                "group's mean being 0, the origin of the others', without a 'free' statement")
+        other = ""
     return _fail(spec, f"'{'free ' + str(plain) if ref.group is None else f'in group {written_name(ref.group)}: free {plain}'}'"
                        f" frees the mean of '{f}'{where}, where nothing sets its origin: every intercept of its "
-                       f"indicators is free{' there' if group is not None else ''} as well, so the mean and the intercepts cannot be told apart{how}; "
-                       f"fix an intercept of one indicator (as 'fix {ParameterRef('intercept', (first,), None)} = 0') "
-                       f"or remove the statement", ref)
+                       f"indicators is free{' there' if group is not None else ''} as well"
+                       f"{held if any(ties.values()) else ''}, so the mean and the intercepts cannot be told apart{how}; "
+                       f"{fix}{other} or remove the statement", ref)
 
 
 def _mean_left_unidentified(spec: Spec, factor, g: int, group_labels: tuple[str, ...], set_apart: set) -> ModelError:

@@ -562,8 +562,7 @@ def _departures(d, shape: _Shape) -> str:
         pairs = _list([f"{_name(a)} and {_name(b)}" for a, b in uncorrelated])
         sentences.append(f"The covariance{'s' if len(uncorrelated) > 1 else ''} of {pairs} "
                          f"{'were' if len(uncorrelated) > 1 else 'was'} fixed at zero.")
-    for group in d.equal:
-        sentences.append(f"{_capital(_list([_parameter(r, d) for r in group]))} were constrained to be equal.")
+    sentences += _equality_sentences(d)
     # a factor covariance fixed at 0 that the structure's sentence states already is not said again
     fixed = [(r, value) for r, value in d.fixed
              if not (r[0] == "covariance" and r[2] is None and value == 0 and frozenset(r[1]) in stated)]
@@ -577,6 +576,84 @@ def _departures(d, shape: _Shape) -> str:
                 f"{_parameter(ref, d)} was kept at or below {user_number(hi)}"
         sentences.append(_capital(_list([bound(*b) for b in d.bounds])) + ".")
     return " ".join(sentences)
+
+
+#: kinds of the model file's parameters whose equalities one sentence gathers, by the words of their plural
+_GATHERED_EQUALITIES = {"intercept": "intercepts", "loading": "loadings", "variance": "residual variances"}
+
+
+def _equality_sentences(d) -> list[str]:
+    """The model file's equalities ('equal' statements): those of one kind of parameter in one group ('equal
+    intercept(x1_t1), intercept(x1_t2)' for each item of a longitudinal model) gathered in one sentence that lists
+    each pair or set, the others one sentence each (newuser-s23: 44 sentences, one per equality)."""
+    def kind_of(group) -> tuple | None:
+        kinds, groups = {r[0] for r in group}, {r[2] for r in group}
+        kind = next(iter(kinds))
+        if len(kinds) > 1 or len(groups) > 1 or kind not in _GATHERED_EQUALITIES:
+            return None
+        if kind == "variance" and not all(r[1][0] in d.indicators for r in group):
+            return None  # factors' variances: said one by one
+        return kind, next(iter(groups))
+
+    def short(ref) -> str:
+        kind, names, _ = ref
+        return f"{_name(names[1])} on {_name(names[0])}" if kind == "loading" else _name(names[0])
+
+    gathered: dict[tuple, list] = {}
+    for group in d.equal:
+        key = kind_of(group)
+        if key is not None:
+            gathered.setdefault(key, []).append(group)
+    out, said = [], set()
+    for group in d.equal:
+        key = kind_of(group)
+        if key is None or len(gathered[key]) == 1:
+            out.append(f"{_capital(_list([_parameter(r, d) for r in group]))} were constrained to be equal.")
+        elif key not in said:
+            said.add(key)
+            sets = gathered[key]
+            pairs = all(len(g) == 2 for g in sets)
+            where = f" in group {written_group(key[1], d.groups)}" if key[1] is not None else ""
+            listed = "; ".join(_list([short(r) for r in g]) for g in sets)
+            out.append(f"The {_GATHERED_EQUALITIES[key[0]]}{where} were constrained to be equal within each of "
+                       f"{_count(len(sets), 'pair' if pairs else 'set')} ({listed}).")
+    return out
+
+
+def _one_group_means(result, d) -> str:
+    """What a one-group fit with a mean structure holds of its factors' means, when it is more than their origin: a
+    mean the model file frees, or means fixed at 0 (the default) beside intercepts held equal across factors, where
+    the fixing holds those factors' means equal to one another, a restriction the fit tests (newuser-s23: a
+    longitudinal model's equal intercepts with both occasions' means at 0, said only by a table note).  '' otherwise
+    (the means at 0 then only give the intercepts their origin, Sorbom 1974)."""
+    means = [r for r in result.estimates if r.kind == "mean" and r.variables[0] in d.first_order + tuple(
+        h for h, _ in d.higher_order)]
+    zero = [r.variables[0] for r in means if not r.free and r.origin != "user"]  # a 'fix' is said with the fixes
+    free = [r.variables[0] for r in means if r.free]
+    factors_of: dict[str, set] = {}
+    for r in result.estimates:
+        if r.kind == "loading":
+            factors_of.setdefault(r.variables[1], set()).add(r.variables[0])
+    across = set()  # factors at 0 whose items' intercepts are held equal to those of items of another such factor
+    for group in d.equal:
+        if all(r[0] == "intercept" for r in group):
+            owners = [factors_of.get(r[1][0], set()) & set(zero) for r in group]
+            if len(set().union(*owners)) > 1:
+                across |= set().union(*owners)
+    if not free and not across:
+        return ""
+    many = len(zero) > 1
+    text = f"The mean{'s' if many else ''} of {_names(zero)} {'were' if many else 'was'} fixed at zero" if zero else ""
+    if free:
+        estimated = (f"the mean{'s' if len(free) > 1 else ''} of {_names(free)} "
+                     f"{'were' if len(free) > 1 else 'was'} estimated")
+        text = f"{text} and {estimated}" if text else _capital(estimated)
+    if across:
+        ordered = [f for f in zero if f in across]
+        these = "these factors" if len(ordered) == len(zero) else _names(ordered)
+        text += (f"; as intercepts were held equal across {these}, fixing their means at zero is a restriction the fit "
+                 f"tests (no difference between them), not only the origin of the intercepts")
+    return text + "."
 
 
 def _range(values: list[float], one: str, many: str) -> str:
@@ -1145,10 +1222,13 @@ def _reliability_sentence(result) -> str:
 def _factor_means_sentence(result) -> str:
     """Where a fit in groups estimated its factor means and where it fixed them at zero (its own mean parameters):
     with intercepts held equal the means of every group but the reference are estimated; without, every group's
-    are zero ('' for a fit of one group, or one without mean parameters)."""
+    are zero ('' for one without mean parameters); a fit of one group says it where the means are more than the
+    intercepts' origin (:func:`_one_group_means`)."""
     means = [r for r in result.estimates if r.kind == "mean"]
-    if not result.multigroup or not means:
+    if not means:
         return ""
+    if not result.multigroup:
+        return "" if result.description is None else _one_group_means(result, result.description)
     labels = group_labels(result)
     at_zero = [g for g in labels if all(not r.free and r.estimate == 0.0 for r in means if r.group == g)]
     estimated = {g: [r.variables[0] for r in means if r.group == g and r.free] for g in labels}
@@ -1549,6 +1629,10 @@ def _model_sentences(name: str, result, keys_said: bool = False) -> str:
     departures = _departures(d, shape)
     if departures:
         parts.append(departures.replace("The model also included", f"{name} also included", 1))
+    means = "" if result.multigroup else _factor_means_sentence(result)
+    if means:  # a one-group model's means where they are more than the intercepts' origin, as fit's paragraph says
+        parts.append(means.replace("The mean", f"In {name}, the mean", 1) if means.startswith("The mean") else
+                     f"In {name}, {means[0].lower()}{means[1:]}")
     if result.multigroup:  # what distinguishes grouped models: their equalities across groups
         parts.append(_held_equal_sentences(d, name) if d.invariant else
                      f"{name} held no parameter equal across groups (the same pattern in every group).")

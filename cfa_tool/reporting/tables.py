@@ -7,7 +7,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from cfa_tool.numbers import count_text, cut_list, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, user_number
 from cfa_tool.assessment.admissibility import ProblemKind, solution_first
 from cfa_tool.assessment.identification import JUST_IDENTIFIED
 from cfa_tool.assessment.fit_indices import TLI_NOT_CUT
@@ -1424,15 +1424,22 @@ def _two_factor_higher_order(result) -> tuple[str, ...]:
         return ()
     named = "; ".join(f"{h} explains {lower[0]} and {lower[1]}" for h, lower in two)
     one = len(two) == 1
+    saved = getattr(d, "higher_order_df", None)
+    # what the structure saves, counted (model.description.higher_order_saving): two such factors together save a df
+    # while neither alone does (newuser-s23)
+    tested = (f" Together the higher-order structure has {counted(saved, 'parameter')} fewer than the first-order "
+              f"factors correlated freely, so this fit tests it with {counted(saved, 'degree')} of freedom "
+              f"(Rindskopf & Rose 1988)." if saved else "")
     return (f"Higher-order {'factor' if one else 'factors'} over two factors ({named}): {'it is' if one else 'each is'}"
             f" identified only through its covariance with another higher-order factor, as a factor of two "
             f"indicators is through its correlations with other factors (Kenny 1979), so the loadings of the "
-            f"first-order factors on {'it' if one else 'them'} are barely determined when that covariance is small.",)
+            f"first-order factors on {'it' if one else 'them'} are barely determined when that covariance is small."
+            + tested,)
 
 
 def _just_identified_higher_order(result) -> tuple[str, ...]:
     """A caution on higher-order factors whose part of the model is just-identified (a second-order factor over
-    exactly three factors; model.description.just_identified_higher_order): the fit equals that of the factors
+    exactly three factors; model.description.higher_order_saving): the fit equals that of the factors
     correlated freely, so it does not test the higher-order structure (Rindskopf & Rose 1988)."""
     d = getattr(result, "description", None)
     found = [(h, lower) for h, lower in (d.higher_order if d is not None else ())

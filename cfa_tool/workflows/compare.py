@@ -365,8 +365,8 @@ def _pairwise_tests(specs, names, results, data_groups) -> tuple[list[Difference
             general = results[b]
             fiml = general.method.full_information
             table, model, likelihood = structure(b)
-            # the nesting check fitted M10 already in the complete-data layout: its estimates start the search there
-            start = m10.theta if not fiml and len(m10.theta) == table.n_free else general.theta
+            # the nesting check fitted M10 already in the fit's own layout: its estimates start the search there
+            start = m10.theta if len(m10.theta) == table.n_free else general.theta
             at = scaling_at_restricted(results[a], table, model, likelihood, start, general.fit.df,
                                        structure(a)[2] if fiml else None)
             tests.extend(scaled_difference_tests(results[a], general, names[a], names[b], at.general, at.why_not,

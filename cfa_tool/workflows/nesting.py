@@ -510,23 +510,52 @@ def implied_moments(result: FitResult) -> list[tuple[str | None, SampleMoments]]
     return out
 
 
+def general_at_implied(restricted: FitResult, spec: Spec, general: FitResult) -> Estimation:
+    """The general model (``spec``, fitted as ``general``) fitted to the restricted model's implied moments (Satorra
+    & Bentler's M10), from the general fit's own estimates, in that fit's layout: under full-information ML with the
+    means the fit estimates, so that what the models hold of the means is compared too (a one-group model's
+    intercepts held equal across factors), as the strictly positive scaled difference fits it
+    (:func:`scaling_at_restricted`).  Before (newuser-s23, finding 5) the check fitted the complete-data layout,
+    without means: a model whose statements name means or intercepts could not be built there (the comparison
+    stopped on 'intercepts and factor means are estimated only in a fit with a mean structure'), and the general
+    fit's estimates, of another length, were dropped for start values that hold the covariance of higher-order factors
+    at 0, where two higher-order factors over two factors each are not identified (Rindskopf & Rose 1988): the
+    check stopped at that start and missed a boundary nesting (four disturbance variances at 0) for some patterns of
+    gaps."""
+    implied = implied_moments(restricted)
+    theta = general.theta
+    if not general.method.full_information or theta is None:
+        return estimate(spec, implied, FitOptions(), start=theta)
+    from cfa_tool.estimation.ml import NormalLikelihood
+    from cfa_tool.estimation.strategy import search
+    from cfa_tool.pipeline.continuous import model_structure, ordered_moments
+
+    table, model = model_structure(spec, tuple(label for label, _ in implied) if general.multigroup else None, True)
+    if len(theta) != table.n_free:  # not the fit's own layout (missing-data helpers): the complete-data check
+        return estimate(spec, implied, FitOptions())
+    likelihood = NormalLikelihood(model, [ordered_moments(m, table.observed) for _, m in implied])
+    found = search(likelihood, table, np.asarray(theta, dtype=float), FitOptions().max_iterations).result
+    return Estimation(table, model, likelihood, found.theta, found.value, found.converged, found.iterations,
+                      "converged" if found.converged else "the search did not converge")
+
+
 def is_nested(restricted: FitResult, general_spec: Spec, general: FitResult) -> tuple[bool, str, Estimation | None]:
     """Whether ``restricted`` is nested in ``general``, the reason when it is not, and the
-    general model fitted to the restricted model's implied moments (Satorra & Bentler's M10)."""
+    general model fitted to the restricted model's implied moments (Satorra & Bentler's M10,
+    :func:`general_at_implied`)."""
     if set(restricted.observed) != set(general.observed):
         return False, "the models use different variables, so they are not fitted to the same covariance matrix", None
     if restricted.multigroup != general.multigroup:
         return False, "one model is fitted in groups and the other is not", None
     if restricted.fit.df == general.fit.df:
         def reproduces() -> bool:  # the general model without its bounds, fitted to the restricted one's moments
-            est = estimate(replace(general_spec, bounds=()), implied_moments(restricted), FitOptions(),
-                           start=general.theta)
+            est = general_at_implied(restricted, replace(general_spec, bounds=()), general)
             return est.converged and est.value <= NESTING_TOLERANCE
 
         return False, same_degrees_of_freedom(restricted, general, reproduces), None
     if restricted.fit.df < general.fit.df:
         return False, "the first model does not have more degrees of freedom than the second", None
-    est = estimate(general_spec, implied_moments(restricted), FitOptions(), start=general.theta)
+    est = general_at_implied(restricted, general_spec, general)
     if not est.converged:
         return False, "the nesting check did not converge", None
     if est.value > NESTING_TOLERANCE:
