@@ -29,8 +29,9 @@ def est_num(value, digits: int = 3) -> str:
     the last decimal's unit (10 ** -digits), which ``digits`` decimals would print as 0.000 or to less than one
     significant digit, in plain digits to two significant digits (cfa_tool.numbers.rounded_number: a loading fixed at
     1e-6 as '0.000001', an error variance of 4.8e-7 as '0.00000048'; s23: an item scaled in the thousands printed every
-    loading and standard error as 0.000).  The one rule of every table cell that holds such a value; a value that is
-    zero stays '0.000'."""
+    loading and standard error as 0.000).  The one rule of every table cell that holds such a value, so that an
+    estimate of 0.00055 ('0.00055', not '0.001') stands inside its interval [0.00036, 0.00075]; a value that is zero
+    stays '0.000'."""
     if missing(value):
         return ""
     if value != 0 and abs(value) < 10.0 ** -digits:
