@@ -104,3 +104,25 @@ def test_a_loading_fixed_at_one_millionth(scaled, capsys):
     for view, text in views.items():
         assert _shown(text, 1e-6) and _shown(text, free.se), view
         assert "0.000001" in text or view == "csv", view
+
+
+def test_the_other_table_writers_print_no_rounded_zero(tmp_path, capsys):
+    """The scores' precision table (reporting.score_report), another table writer: with x1..x3 divided by 1,000 the
+    visual factor's scale (its marker x1's) is a thousandth of the unscaled one, and so are its scores' standard
+    error, band and real difference (a linear rescaling; Bollen 1989, ch. 7), which 2 decimals printed as 0.00."""
+    hs = holzinger_swineford()
+    hs[["x1", "x2", "x3"]] = hs[["x1", "x2", "x3"]] / 1000
+    data = tmp_path / "scaled.csv"
+    hs.to_csv(data)
+    model = tmp_path / "m.cfa"
+    model.write_text(MODEL)
+    code, out, err = run_cli(["scores", model, "--data", data, "--output", tmp_path / "scores.csv"], capsys)
+    assert code == 0, err
+    table = out[out.index("Precision of one person's score"):]
+    visual = next(line for line in table.splitlines() if line.split()[:1] == ["visual"])
+    numbers = [float(n) for n in re.findall(r"\d+\.\d+", visual)]
+    assert len(numbers) == 5 and all(n > 0 for n in numbers), visual
+    textual = next(line for line in table.splitlines() if line.split()[:1] == ["textual"])
+    # visual's SE is of the order of a thousandth, textual's (whose items are not rescaled) of the order of one tenth
+    # or more: a bound of sizes, not a check value
+    assert 1e-5 < numbers[0] < 1e-2 and float(textual.split()[1]) > 0.1
