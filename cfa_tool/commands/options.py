@@ -123,15 +123,16 @@ def no_answer_words(args: argparse.Namespace) -> tuple[str, ...]:
     return tuple(v for v in getattr(args, "missing_codes", ()) if isinstance(v, str))
 
 
-#: the options that name columns of the data (or a group by its label), as their attributes of the parsed arguments:
-#: each read in Unicode's composed form by :func:`composed_names`
+#: the options that name columns of the data, a group by its label or words of the data (--missing-codes' words), as
+#: their attributes of the parsed arguments: each read in Unicode's composed form by :func:`composed_names`
 NAMING_OPTIONS = ("group", "reference_group", "id", "keep", "weights", "cluster", "strata", "items", "ordinal",
-                  "missing_helpers", "rename", "validation_rename")
+                  "missing_helpers", "rename", "validation_rename", "missing_codes")
 
 
 def composed_names(args: argparse.Namespace) -> argparse.Namespace:
-    """Every option of ``args`` that names a column or a group (:data:`NAMING_OPTIONS`: --group-column, --id, --keep,
-    --weights, --cluster, --strata, --items, --ordinal, ...) in Unicode's composed form, by the one rule of names
+    """Every option of ``args`` that names a column, a group or a word of the data (:data:`NAMING_OPTIONS`:
+    --group-column, --id, --keep, --weights, --cluster, --strata, --items, --ordinal, the words of --missing-codes, ...)
+    in Unicode's composed form, by the one rule of names
     (language.names.composed) by which the data's column names and the model's are read: a name typed or pasted with
     decomposed accents ('cafe' + U+0301, as some systems write it) is the column written composed (s23: refused with
     a 'did you mean' that showed the same-looking name).  The one place the command line reads them, for every
@@ -141,8 +142,8 @@ def composed_names(args: argparse.Namespace) -> argparse.Namespace:
     def each(value):
         if isinstance(value, str):
             return composed(value)
-        if isinstance(value, list):
-            return [each(v) for v in value]
+        if isinstance(value, (list, tuple)):
+            return type(value)(each(v) for v in value)
         return value
 
     for name in NAMING_OPTIONS:

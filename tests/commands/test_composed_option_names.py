@@ -125,3 +125,22 @@ def test_explore_items_read_decomposed_names(files, capsys):
     code, _, err = run_cli(["explore", "--data", data, "--items", items, "--factors", "3", "--json", out], capsys)
     assert code == 0, err
     assert ITEM in json.dumps(json.loads(out.read_text(encoding="utf-8")), ensure_ascii=False)
+
+
+def test_missing_code_words_read_decomposed(files, capsys):
+    """A word of no answer given with --missing-codes typed decomposed ('Refuse' + U+0301) reads the cells written
+    composed as no answer, as the word typed composed does (before: the cells were refused as text among numbers, with
+    advice to give the same-looking word)."""
+    model, data, tmp_path, _ = files
+    frame = holzinger_swineford()
+    frame["x3"] = frame["x3"].astype(object)
+    frame.loc[[1, 2, 3], "x3"] = "Refusé"
+    frame = frame.rename(columns={"x3": ITEM})
+    worded = tmp_path / "worded.csv"
+    frame.to_csv(worded, encoding="utf-8")
+    given = _fit(["fit", model, "--data", worded, "--missing-codes", f"-99,{typed('Refusé')}"], tmp_path, capsys, "w1")
+    reference = _fit(["fit", model, "--data", worded, "--missing-codes", "-99,Refusé"], tmp_path, capsys, "w2")
+    assert given["fit"]["chi_square"] == pytest.approx(reference["fit"]["chi_square"], rel=1e-12)
+    args = options.composed_names(build_parser().parse_args(["fit", "m.cfa", "--data", "d.csv",
+                                                             f"--missing-codes=-99,{typed('Refusé')}"]))
+    assert args.missing_codes == (-99.0, "Refusé")
