@@ -31,10 +31,11 @@ def handles(command: str | None) -> bool:
 
 
 def run(args: argparse.Namespace) -> int:
-    """Run the command of ``args``, the words of --missing-codes read as no answer throughout its run
-    (data.non_answers.also_no_answer)."""
-    from cfa_tool.commands.options import no_answer_words
+    """Run the command of ``args``, its options that name columns composed (commands.options.composed_names) and
+    the words of --missing-codes read as no answer throughout its run (data.non_answers.also_no_answer)."""
+    from cfa_tool.commands.options import composed_names, no_answer_words
     from cfa_tool.data.non_answers import also_no_answer
 
+    args = composed_names(args)  # the names of columns as the data's are read
     with also_no_answer(no_answer_words(args)):
         return import_module(MODULES[args.command]).run(args)

@@ -123,6 +123,35 @@ def no_answer_words(args: argparse.Namespace) -> tuple[str, ...]:
     return tuple(v for v in getattr(args, "missing_codes", ()) if isinstance(v, str))
 
 
+#: the options that name columns of the data, a group by its label or words of the data (--missing-codes' words), as
+#: their attributes of the parsed arguments: each read in Unicode's composed form by :func:`composed_names`
+NAMING_OPTIONS = ("group", "reference_group", "id", "keep", "weights", "cluster", "strata", "items", "ordinal",
+                  "missing_helpers", "rename", "validation_rename", "missing_codes")
+
+
+def composed_names(args: argparse.Namespace) -> argparse.Namespace:
+    """Every option of ``args`` that names a column, a group or a word of the data (:data:`NAMING_OPTIONS`:
+    --group-column, --id, --keep, --weights, --cluster, --strata, --items, --ordinal, the words of --missing-codes, ...)
+    in Unicode's composed form, by the one rule of names
+    (language.names.composed) by which the data's column names and the model's are read: a name typed or pasted with
+    decomposed accents ('cafe' + U+0301, as some systems write it) is the column written composed (s23: refused with
+    a 'did you mean' that showed the same-looking name).  The one place the command line reads them, for every
+    command (commands.run)."""
+    from cfa_tool.language.names import composed
+
+    def each(value):
+        if isinstance(value, str):
+            return composed(value)
+        if isinstance(value, (list, tuple)):
+            return type(value)(each(v) for v in value)
+        return value
+
+    for name in NAMING_OPTIONS:
+        if getattr(args, name, None) is not None:
+            setattr(args, name, each(getattr(args, name)))
+    return args
+
+
 GROUP_NOW = "name the column whose values are the groups with --group-column COLUMN"
 #: the default reference group in --help, as data.groups.default_reference chooses it
 DEFAULT_REFERENCE = ("a categorical column's first category; of codes with value labels, the lowest code's group; "

@@ -26,6 +26,27 @@ def composed(text: str) -> str:
     return text if text.isascii() else unicodedata.normalize("NFC", text)
 
 
+def case_twins(read, columns) -> dict[str, tuple[str, ...]]:
+    """For each name of ``read`` (the columns a run reads: the model's items, the group, id and design columns, a row
+    filter's column) that is one of ``columns``, the other columns whose names differ from it only in upper and lower
+    case ('Clean' beside 'clean', by Unicode's case folding of the composed names) and that the run does not read;
+    names without such twins left out.  Names are matched exactly, capitals included, so the column of the exact name
+    is the one read; its twins are for a note to name (s23: the exact match was taken without a word)."""
+    read = [name for name in dict.fromkeys(read) if isinstance(name, str)]
+    taken = set(read)
+    folded: dict[str, list[str]] = {}
+    for column in columns:
+        if isinstance(column, str):
+            folded.setdefault(composed(column).casefold(), []).append(column)
+    present = set(columns)
+    twins = {}
+    for name in read:
+        others = tuple(c for c in folded.get(composed(name).casefold(), ()) if c != name and c not in taken)
+        if name in present and others:
+            twins[name] = others
+    return twins
+
+
 def plain(name: str) -> bool:
     """Whether ``name`` can be written without quotes."""
     return bool(_PLAIN.match(name))

@@ -54,7 +54,7 @@ from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import LISTWISE_WARNING_SHARE, FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec, with_ordinal_levels
-from cfa_tool.language.names import composed
+from cfa_tool.language.names import case_twins, composed
 from cfa_tool.method import ADJUSTED_TEST, FitTest, MissingData, WeightKind, Weighting
 from cfa_tool.pipeline.results import CheckResult, FitResult
 from cfa_tool.suggest import close_names
@@ -321,6 +321,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     chosen = {**{f.column: f"the column of the row filter '{f}'" for f in filters if f.column is not None},
               **(chosen or {})}
     notes += check_columns(spec, columns, loaded.source, loaded.column_hint(), chosen)
+    notes += case_twin_notes([*spec.observed_names, *(items or ()), *text_columns, *chosen], columns, loaded.source)
     notes += nominal_items_note(frame, spec.observed_names, loaded.source)  # an SPSS file's measure levels
     frame, coding_notes = code_answer_words(spec, frame, loaded.source,  # 'answers' statements: words as codes
                                             missing_codes=missing_codes_option(missing_codes),
@@ -336,6 +337,21 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     items = ItemColumns(frame, spec.observed_names, values)  # the items' codes are kept as they are
     return spec, replace(loaded, frame=frame, cautions=cautions + beyond, items=items,
                          odd_values=_screened_items(loaded, frame, spec, items.values, items.extremes)), notes
+
+
+def case_twin_notes(read, columns, source: str) -> list[str]:
+    """A note for each column the run reads (``read``: the model's items, the group, id, design and helper columns,
+    a row filter's column) beside which ``source`` holds columns whose names differ from it only in capital letters
+    (language.names.case_twins): names are matched exactly, so the exact one is read, and the note says which one and
+    that the others are not, every command alike (s23: 'clean' beside 'Clean' was read without a word)."""
+    notes = []
+    for name, twins in case_twins(read, columns).items():
+        shown = cut_list(twins, 3, lambda twin: f"'{printable(twin)}'")
+        others = (f"the column {shown}, whose name differs from it only in capital letters, is" if len(twins) == 1
+                  else f"the columns {shown}, whose names differ from it only in capital letters, are")
+        notes.append(f"{source}: the column '{printable(name)}' is read, as named; {others} not read (names are "
+                     f"matched exactly, capitals included)")
+    return notes
 
 
 def _screened_items(loaded: LoadedData, frame: pd.DataFrame, spec: Spec, values: np.ndarray | None = None,

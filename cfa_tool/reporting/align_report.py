@@ -8,7 +8,7 @@ from cfa_tool.language.names import written_group
 from cfa_tool.note_parts import Text, capitalised, said
 from cfa_tool.reporting import tables as T
 from cfa_tool.numbers import count_text
-from cfa_tool.reporting.numbers import num, p_phrase, unit
+from cfa_tool.reporting.numbers import est_num, num, p_phrase, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable, _table
 
 ALIGNMENT_CAUTION = (
@@ -124,7 +124,7 @@ def means_table(result, k: int) -> ReportTable:
 
     factor = result.factors[k]
     shares = dict(result.group_shares(factor.factor))
-    rows = [[g.group, count_text(g.rows), num(g.mean), num(g.mean_se), num(g.variance), num(g.variance_se),
+    rows = [[g.group, count_text(g.rows), est_num(g.mean), est_num(g.mean_se), est_num(g.variance), est_num(g.variance_se),
              _percent(shares[g.group])] for g in factor.groups]
     ranked = sorted(factor.groups, key=lambda g: -g.mean)
     doubts = _order_doubts(result, k)
@@ -154,8 +154,8 @@ def item_table(result, k: int) -> ReportTable:
         loading, intercept = by_item[(item, "loading")], by_item[(item, "intercept")]
         share = shares[(factor.factor, item)]
         high = share > CAUTION_SHARE
-        rows.append([item, _percent(share) + (f" {HIGH_MARK}" if high else ""), num(loading.value),
-                     num(intercept.value), _groups(result, loading.noninvariant_groups),
+        rows.append([item, _percent(share) + (f" {HIGH_MARK}" if high else ""), est_num(loading.value),
+                     est_num(intercept.value), _groups(result, loading.noninvariant_groups),
                      _groups(result, intercept.noninvariant_groups)])
         if high:
             flagged.append(n)
@@ -212,7 +212,7 @@ def parameter_tables(result, k: int, kind: str) -> list[ReportTable]:
     chunks = item_chunks(result, factor.items)
     out = []
     for n, items in enumerate(chunks):
-        rows = [[g] + [num(values[(g, item)].aligned) + ("" if values[(g, item)].invariant else " *") for item in items]
+        rows = [[g] + [est_num(values[(g, item)].aligned) + ("" if values[(g, item)].invariant else " *") for item in items]
                 for g in result.groups]
         data = (["group", "item", "configural", "aligned", "se", "invariant"],
                 [[g, item, values[(g, item)].configural, values[(g, item)].aligned, values[(g, item)].se,

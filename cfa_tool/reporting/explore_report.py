@@ -13,7 +13,7 @@ from cfa_tool.options import Option
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.numbers import count_text
-from cfa_tool.reporting.numbers import num, unit
+from cfa_tool.reporting.numbers import est_num, est_unit, num, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, ReportTable, _table
 
 SPLIT_STATEMENT = ("The rows were divided at random into two halves (seed {seed}): the number of factors, the solution "
@@ -123,10 +123,10 @@ def loading_table(result, structure: bool = False) -> ReportTable:
     marked = not structure and any(result.items[k] in ex.solution.at_bound for k in order)  # a Problem column if any
     for i, k in enumerate(order):
         if errors is None:
-            cells = [result.items[k]] + [unit(v, 2) for v in shown[i]]
+            cells = [result.items[k]] + [est_unit(v, 2) for v in shown[i]]
         else:  # each loading with its standard error beside it
             cells = [result.items[k]] + [c for v, e in zip(shown[i], errors[i])
-                                         for c in (unit(v, 2), num(e, 3) if np.isfinite(e) else "")]
+                                         for c in (est_unit(v, 2), est_num(e, 3) if np.isfinite(e) else "")]
         if not structure:
             cells += [unit(ex.communalities[k], 2)] + (["at bound" if result.items[k] in ex.solution.at_bound else ""]
                                                        if marked else [])

@@ -11,7 +11,7 @@ from cfa_tool.model.description import parameter_words
 from cfa_tool.numbers import count_text
 from cfa_tool.note_parts import Command, Note, joined
 from cfa_tool.reporting.document import Report, ResultKind
-from cfa_tool.reporting.numbers import num, unit, word_list
+from cfa_tool.reporting.numbers import est_num, unit, word_list
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, _table
 from cfa_tool.reporting.workflow_tables import _notice, defaults_caution, population_parts
 from cfa_tool.workflows.group_power import StepRole
@@ -29,8 +29,8 @@ def _sizes(labels, sizes) -> str:
 def _difference_words(result) -> str:
     """The population values in which the groups differ, in words."""
     observed = result.population.observed
-    parts = [f"{parameter_words(d.kind, d.variables, observed=frozenset(observed))} ({d.group} {num(d.value, 2)}, "
-             f"{result.labels[0]} {num(d.reference_value, 2)})" for d in result.population.differences]
+    parts = [f"{parameter_words(d.kind, d.variables, observed=frozenset(observed))} ({d.group} {est_num(d.value, 2)}, "
+             f"{result.labels[0]} {est_num(d.reference_value, 2)})" for d in result.population.differences]
     if not parts:
         return ("The groups share every population value, so every step's equalities hold in the population and its "
                 "rejection share is a false-alarm rate (nominal alpha).")
@@ -115,8 +115,8 @@ def invariance_power_report(result) -> Report:
     tables = [table]
     if result.population.differences:
         observed = frozenset(result.population.observed)
-        diff_rows = [[parameter_words(d.kind, d.variables, observed=observed, article=False), d.group, num(d.value),
-                      num(d.reference_value)] for d in result.population.differences]
+        diff_rows = [[parameter_words(d.kind, d.variables, observed=observed, article=False), d.group, est_num(d.value),
+                      est_num(d.reference_value)] for d in result.population.differences]
         tables.append(_table("group_differences", "Population values that differ between the groups",
                              [("Parameter", "l"), ("Group", "l"), ("Value", "r"), (f"In {labels[0]}", "r")], diff_rows,
                              Note(("Values the model file gives one group", Command(" ('in group' statements)"),

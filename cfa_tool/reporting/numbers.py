@@ -7,7 +7,7 @@ import re
 
 from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.note_parts import Command, Note, Text, View, said
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import rounded_number, user_number
 from cfa_tool.numerics.plain import decimals_beside
 
 
@@ -21,6 +21,33 @@ def num(value, digits: int = 3) -> str:
         return ""
     text = f"{value:.{digits}f}"
     return text.lstrip("-") if float(text) == 0.0 else text
+
+
+def est_num(value, digits: int = 3) -> str:
+    """An estimate, a standard error, an interval's end or another value the tool computed for a table, to ``digits``
+    decimals as :func:`num` prints it, but never a rounded zero for a value that is not zero: one smaller in size than
+    the last decimal's unit (10 ** -digits), which ``digits`` decimals would print as 0.000 or to less than one
+    significant digit, in plain digits to two significant digits (cfa_tool.numbers.rounded_number: a loading fixed at
+    1e-6 as '0.000001', an error variance of 4.8e-7 as '0.00000048'; s23: an item scaled in the thousands printed every
+    loading and standard error as 0.000).  The one rule of every table cell that holds such a value, so that an
+    estimate of 0.00055 ('0.00055', not '0.001') stands inside its interval [0.00036, 0.00075]; a value that is zero
+    stays '0.000'."""
+    if missing(value):
+        return ""
+    if value != 0 and abs(value) < 10.0 ** -digits:
+        return rounded_number(value, 2)
+    return num(value, digits)
+
+
+def est_unit(value, digits: int = 2) -> str:
+    """A value bounded by 1 in size (a standardized estimate, a correlation, an R²) as :func:`unit` prints it, without
+    its leading zero, by :func:`est_num`'s rule: never a rounded zero for a value that is not zero ('.000001')."""
+    if missing(value):
+        return ""
+    if value != 0 and abs(value) < 10.0 ** -digits:
+        text = rounded_number(value, 2)
+        return text[1:] if text.startswith("0.") else "-" + text[2:]
+    return unit(value, digits)
 
 
 def needed_decimals(value: float, fewest: int = 0, most: int = 9, within: float = 0.0) -> int:

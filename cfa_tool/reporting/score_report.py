@@ -14,7 +14,7 @@ from cfa_tool.reporting.remedies import Remedy
 from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.options import Option
 from cfa_tool.language.names import written_group
-from cfa_tool.reporting.numbers import num, unit, word_list
+from cfa_tool.reporting.numbers import est_num, num, unit, word_list
 from cfa_tool.reporting.paragraph import group_labels, scores_paragraph
 from cfa_tool.reporting.score_words import METHOD_LABELS, share_words
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
@@ -242,8 +242,8 @@ def precision_table(result, k: int) -> ReportTable | None:
     method, found = _precision_of(result, q)
     rows, values = [], []
     for p in found:
-        rows.append([p.factor, num(p.standard_error, 2), f"±{num(p.band, 2)}", f"±{num(p.band_in_sd, 2)}",
-                     num(p.smallest_difference, 2), num(p.smallest_difference_in_sd, 2)])
+        rows.append([p.factor, est_num(p.standard_error, 2), f"±{est_num(p.band, 2)}", f"±{est_num(p.band_in_sd, 2)}",
+                     est_num(p.smallest_difference, 2), est_num(p.smallest_difference_in_sd, 2)])
         values.append([p.factor, p.standard_error, p.band, p.band_in_sd, p.smallest_difference,
                        p.smallest_difference_in_sd])
     if not rows:
@@ -251,7 +251,7 @@ def precision_table(result, k: int) -> ReportTable | None:
     cols = [("Factor", "l"), ("SE", "r"), ("95% band", "r"), ("Band, SDs", "r"), ("Real difference", "r"),
             ("Difference, SDs", "r")]
     if ordinal:
-        levels = "; ".join(f"{f} {num(low, 2)} in the lowest third of the scores and {num(high, 2)} in the highest"
+        levels = "; ".join(f"{f} {est_num(low, 2)} in the lowest third of the scores and {est_num(high, 2)} in the highest"
                            for f, low, high in q.precision_by_level)
         first = (f"For {METHOD_LABELS[method]} scores of the rows that answered every item of the factor: SE is the "
                  f"median of their posterior SDs (each row's own is the _posterior_sd column of the file), which "
@@ -260,7 +260,7 @@ def precision_table(result, k: int) -> ReportTable | None:
         own = ("each row's own standard error is the _se column of the file" if result.standard_errors else
                "each row's own standard error is written to the file when standard errors are asked for")
         first = f"For {METHOD_LABELS[method]} scores with every item answered ({own}). "
-    sds = ", ".join(f"{p.factor} {num(p.scale_sd, 2)}" for p in found)
+    sds = ", ".join(f"{p.factor} {est_num(p.scale_sd, 2)}" for p in found)
     first += (f"Scores, SEs and bands are in each factor's units as the model scales it (the factor's standard "
               f"deviation: {sds}). ")
     first += _left_empty_sentence(result, method)
@@ -299,8 +299,8 @@ def item_sum_precision_table(result, k: int) -> ReportTable | None:
     rows, values = [], []
     for p in sums.precision:
         label = [METHOD_LABELS[p.method]] if both else []
-        rows.append([p.factor, *label, str(count[p.factor]), unit(p.reliability), num(p.scale_sd, 2),
-                     num(p.standard_error, 2), f"±{num(p.band, 2)}", num(p.smallest_difference, 2)])
+        rows.append([p.factor, *label, str(count[p.factor]), unit(p.reliability), est_num(p.scale_sd, 2),
+                     est_num(p.standard_error, 2), f"±{est_num(p.band, 2)}", est_num(p.smallest_difference, 2)])
         values.append([p.factor, *label, count[p.factor], p.reliability, p.scale_sd, p.standard_error, p.band,
                        p.smallest_difference])
     cols = [("Factor", "l")] + ([("Score", "l")] if both else []) + [

@@ -20,8 +20,8 @@ from cfa_tool.language.names import names_text, written_group
 from cfa_tool.options import option_in_both
 from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
-from cfa_tool.reporting.numbers import (fit_index_text, guide_text, missing, num, p_phrase, p_value, short, unit,
-                                        word_list)
+from cfa_tool.reporting.numbers import (est_num, est_unit, fit_index_text, guide_text, missing, num, p_phrase, p_value,
+                                        short, unit, word_list)
 from cfa_tool.reporting.paragraph import (factors_by_item_kind, group_labels, mcar_score_tests,
                                          mixed_kinds_sentence)
 from cfa_tool.reporting.remedies import Remedy
@@ -164,7 +164,7 @@ def problem_table(result) -> ReportTable | None:
         return None
     problems = solution_first(result.problems)
     rows = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()),
-             "" if p.value is None else num(p.value), p.group or "", said(p.explanation), said(p.advice)] for p in problems]
+             "" if p.value is None else est_num(p.value), p.group or "", said(p.explanation), said(p.advice)] for p in problems]
     values = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()), p.value, p.group or "",
                said(p.explanation), said(p.advice)] for p in problems]
     columns = [("Problem", "l"), ("Makes it inadmissible", "l"), ("Parameters", "l"), ("Value", "r"), ("Group", "l"),
@@ -411,7 +411,7 @@ def _marker_reason(scale) -> str:
 
 
 def _interval(low: float, high: float) -> str:
-    return "" if missing(low) else f"[{num(low, 2)}, {num(high, 2)}]"
+    return "" if missing(low) else f"[{est_num(low, 2)}, {est_num(high, 2)}]"
 
 
 def _factor_block(result, group: int, k: int, factor: str, rows: list, residual: dict, problems: list[str]
@@ -434,11 +434,11 @@ def _factor_block(result, group: int, k: int, factor: str, rows: list, residual:
         target = r.variables[1]
         rest = residual.get(target)
         r2 = r_squared.get(target)
-        cells = [target, unit(r.standardized, 2) if abs(r.standardized) <= 1 else num(r.standardized, 2),
-                 num(r.estimate), num(r.se) if r.free else "fixed", _interval(*r.ci95), p_value(r.p_value)]
+        cells = [target, est_unit(r.standardized, 2) if abs(r.standardized) <= 1 else est_num(r.standardized, 2),
+                 est_num(r.estimate), est_num(r.se) if r.free else "fixed", _interval(*r.ci95), p_value(r.p_value)]
         if not higher:
-            cells.append("" if r2 is None else (unit(r2, 2) if 0 <= r2 <= 1 else num(r2, 2)))
-        cells.append(num(rest.estimate) if rest is not None else "")
+            cells.append("" if r2 is None else (est_unit(r2, 2) if 0 <= r2 <= 1 else est_num(r2, 2)))
+        cells.append(est_num(rest.estimate) if rest is not None else "")
         equal = [name for name, row in (("loading", r), (other, rest)) if row is not None and _key(row) in shared]
         if mark_any:
             cells.append(mark)
@@ -506,15 +506,15 @@ def _factor_matrix(result, group: int) -> ReportTable | None:
                 v = variance.get(a)
                 if total:
                     k = result.latent.index(a)
-                    row.append(num(float(phi[k, k])))
+                    row.append(est_num(float(phi[k, k])))
                 else:
-                    row.append(num(v.estimate) if v is not None else "")
+                    row.append(est_num(v.estimate) if v is not None else "")
                 bad |= v is not None and bool(row_problem(result, "factor_variance", (a,), label))
             else:
                 c = pairs.get(frozenset((a, b)))
                 r = implied_factor_correlation(result, group, a, b) if total else (
                     c.standardized if c is not None else 0.0)
-                row.append(unit(r, 2) if abs(r) <= 1 else num(r, 2))
+                row.append(est_unit(r, 2) if abs(r) <= 1 else est_num(r, 2))
                 bad |= c is not None and bool(row_problem(result, "factor_covariance", c.variables, label))
         row += [""] * (len(latent) - i - 1)
         body.append(row)
@@ -696,8 +696,8 @@ def _estimates_table(result, kind: str, key: str, title: str, rows: list, note: 
             shown = names[0] if names[0] != previous else ""
             previous = names[0]
             names = [shown, between.get(r.variables, f"step {names[1]}")]
-        cells = names + [num(r.estimate), num(r.se) if r.free else "fixed", _interval(*r.ci95), p_value(r.p_value)] \
-            + ([] if repeated else [num(r.standardized, 2)])
+        cells = names + [est_num(r.estimate), est_num(r.se) if r.free else "fixed", _interval(*r.ci95),
+                         p_value(r.p_value)] + ([] if repeated else [est_num(r.standardized, 2)])
         if shared:
             cells.append(_equal_word(r, shared))
         if any(marks):
@@ -911,7 +911,7 @@ def modification_table(result, group: int | None = None, limit: int = 10) -> Rep
     for m in shown:  # parameters in words, as every table names them (the group in the section's heading)
         body.append([parameter_words(m.kind, tuple(m.variables), None if label else m.group, article=False,
                                      groups=group_labels(result)),
-                     num(m.index, 2), num(m.expected_change), num(m.standardized_expected_change)])
+                     num(m.index, 2), est_num(m.expected_change), est_num(m.standardized_expected_change)])
     # under a sampling design, first: the indices are design-based score tests (s17; s16 said they left the design
     # out); ordinal fits' score tests are the robust ones of least squares, which take it in
     design = (result.design.score_test_text() if getattr(result, "design", None) is not None
@@ -1081,14 +1081,14 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
             interval = ""
             if row is not None and row.free and {a, b} <= unit_variance and parameters_are_correlations:
                 # the covariance parameter is the correlation
-                interval = f"[{unit(row.ci95[0], 2)}, {unit(row.ci95[1], 2)}]"
+                interval = f"[{est_unit(row.ci95[0], 2)}, {est_unit(row.ci95[1], 2)}]"
             h = htmt.get((a, b)) or htmt.get((b, a))
             ratio = "" if h is None or h.ratio is None else unit(h.ratio, 2)
             if h is not None and h.ratio is None:
                 reasons.append(f"HTMT of {a} and {b}: {h.why_missing}.")
             ave_a, ave_b = traits[a].average_variance_extracted, traits[b].average_variance_extracted
             holds = ave_a ** 0.5 > abs(r) and ave_b ** 0.5 > abs(r)
-            body.append([a, b, unit(r, 2), interval, ratio, f"{unit(ave_a, 2)} / {unit(ave_b, 2)}",
+            body.append([a, b, est_unit(r, 2), interval, ratio, f"{unit(ave_a, 2)} / {unit(ave_b, 2)}",
                          "yes" if holds else "no"])
             lo, hi = (row.ci95 if interval else (None, None))
             numbers.append([a, b, r, lo, hi, None if h is None else h.ratio, ave_a, ave_b, "yes" if holds else "no"])
@@ -1214,8 +1214,8 @@ def sum_score_table(result, group: int = 0) -> ReportTable | None:
     if not rows:
         return None
     no_means = any(g.value == "means" for g in result.data.not_given)  # summary statistics without means
-    body = [[r.factor, str(len(r.items)), ", ".join(r.reversed), "not given" if no_means else num(r.sum_score_mean, 2),
-             num(r.sum_score_sd, 2), unit(min(r.item_total), 2) if r.item_total else ""] for r in rows]
+    body = [[r.factor, str(len(r.items)), ", ".join(r.reversed), "not given" if no_means else est_num(r.sum_score_mean, 2),
+             est_num(r.sum_score_sd, 2), unit(min(r.item_total), 2) if r.item_total else ""] for r in rows]
     note = (f"The sum of each factor's items with reverse-keyed items reversed. Mean, SD (divisor N - 1) and "
             f"item-rest r come from the item means and covariances the fit analysed: {moments_source(result, group)}.")
     if no_means:
@@ -1312,8 +1312,8 @@ def item_table(result) -> ReportTable:
     no_means = any(g.value == "means" for g in result.data.not_given)
     no_sds = any(g.value == "standard_deviations" for g in result.data.not_given)
     for k, (name, m, s) in enumerate(zip(d.variables, d.means, d.sds)):
-        row = [name] + ([count_text(d.answered[k])] if shape else []) + ["not given" if no_means else num(m, 2),
-                                                                  "not given" if no_sds else num(s * stretch, 2)]
+        row = [name] + ([count_text(d.answered[k])] if shape else []) + ["not given" if no_means else est_num(m, 2),
+                                                                  "not given" if no_sds else est_num(s * stretch, 2)]
         numbers = [name] + ([d.answered[k]] if shape else []) + [None if no_means else m,
                                                                  None if no_sds else s * stretch]
         if shape:
@@ -1809,7 +1809,7 @@ def _block_loading_table(block, k: int) -> ReportTable:
         cells = [item]
         for j in range(m):
             value, se = block.standardized[i, j], block.standardized_se[i, j]
-            cells += [unit(value, 2) if abs(value) <= 1 else num(value, 2), num(se, 3) if np.isfinite(se) else ""]
+            cells += [est_unit(value, 2) if abs(value) <= 1 else est_num(value, 2), est_num(se, 3) if np.isfinite(se) else ""]
             if abs(value) < SMALL_LOADING:
                 faint += [(i, 1 + 2 * j), (i, 2 + 2 * j)]
             numbers.append([item, block.factors[j], value, se, block.pattern[i, j], block.pattern_se[i, j]])
@@ -1849,7 +1849,7 @@ def _block_correlation_table(block, k: int) -> ReportTable | None:
     pairs += [(a, g, block.other_correlations[i, j], block.other_correlations_se[i, j])
               for i, a in enumerate(names) for j, g in enumerate(others)]
     for a, b, r, se in pairs:
-        rows.append([a, b, unit(r, 2) if abs(r) <= 1 else num(r, 2), num(se, 3) if np.isfinite(se) else ""])
+        rows.append([a, b, est_unit(r, 2) if abs(r) <= 1 else est_num(r, 2), est_num(se, 3) if np.isfinite(se) else ""])
         numbers.append([a, b, r, se])
     note = "SE: delta method." if block.errors is BlockErrors.DELTA_METHOD else _BLOCK_ERRORS[block.errors]
     if not block.oblique and m > 1:

@@ -23,7 +23,7 @@ from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, cfi_not_de
                                           comparison_paragraph, set_apart_words, group_labels, design_sentence,
                                           mcar_score_tests, reversed_across_groups, reversed_loadings,
                                           invariance_paragraph, replication_paragraph)
-from cfa_tool.reporting.numbers import (fit_index_text, guides_text, index_text, missing, needed_decimals, num,
+from cfa_tool.reporting.numbers import (est_num, est_unit, fit_index_text, guides_text, index_text, missing, needed_decimals, num,
                                         p_phrase, p_value, short, signed, signed_num, unit, word_list)
 from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
@@ -846,8 +846,9 @@ def invariance_report(result) -> Report:
         if not step.holds and step.culprits:
             notes.append(_misfit_sources(step, result))
     if result.latent_differences:
-        rows = [[d.factor, d.group, num(d.mean), num(d.se), f"[{num(d.ci95[0], 2)}, {num(d.ci95[1], 2)}]",
-                 p_value(d.p_value), num(d.standardized, 2), num(d.variance_ratio, 2)] for d in result.latent_differences]
+        rows = [[d.factor, d.group, est_num(d.mean), est_num(d.se), f"[{est_num(d.ci95[0], 2)}, {est_num(d.ci95[1], 2)}]",
+                 p_value(d.p_value), est_num(d.standardized, 2), est_num(d.variance_ratio, 2)]
+                for d in result.latent_differences]
         values = [[d.factor, d.group, d.mean, d.se, d.ci95[0], d.ci95[1], d.p_value, d.standardized, d.variance_ratio]
                   for d in result.latent_differences]
         tables.append(_table("latent_differences", "Latent mean and variance differences",
@@ -1067,7 +1068,7 @@ def _freed_estimates(freed) -> str:
     """A freed parameter's estimate in each group of its step's partial model, with its standard error ('Grant-White
     2.00 (0.09); Pasteur 2.53 (0.11)'), so that the size and the direction of the difference show (new-user trial
     s20)."""
-    return "; ".join(f"{g} {num(e, 2)} ({num(se, 2) if free else 'fixed'})" for g, e, se, free in freed.estimates)
+    return "; ".join(f"{g} {est_num(e, 2)} ({est_num(se, 2) if free else 'fixed'})" for g, e, se, free in freed.estimates)
 
 
 def _equal_tests_note(freed) -> str:
@@ -1143,11 +1144,11 @@ def bootstrap_report(boot) -> Report:
         lines.append(f"No Bollen-Stine p-value: {boot.bollen_stine_not_computed}; the test of fit remains the fit's "
                      f"{test}.")
     def shown(value: float, scale: str) -> str:  # a standardized value within [-1, 1] without its leading zero
-        return unit(value) if scale == "standardized" and not missing(value) and abs(value) <= 1 else num(value)
+        return est_unit(value, 3) if scale == "standardized" and not missing(value) and abs(value) <= 1 else est_num(value)
 
     rows = [[parameter_words(i.kind, i.variables, article=False), SCALE_WORDS.get(i.scale, i.scale),
              shown(i.estimate, i.scale),
-             num(i.bootstrap_se), f"[{shown(i.percentile[0], i.scale)}, {shown(i.percentile[1], i.scale)}]",
+             est_num(i.bootstrap_se), f"[{shown(i.percentile[0], i.scale)}, {shown(i.percentile[1], i.scale)}]",
              *([] if ordinal else [f"[{shown(i.bca[0], i.scale)}, {shown(i.bca[1], i.scale)}]"])] for i in boot.intervals]
     values = [[i.kind, names_text(i.variables), i.scale, i.estimate, i.bootstrap_se, *i.percentile,
                *([] if ordinal else i.bca)] for i in boot.intervals]
@@ -1662,7 +1663,7 @@ def population_parts(population) -> tuple[Text, ReportTable]:
         return v["from"] if equal is None else \
             f"{v['from']} to {parameter_words(equal['kind'], tuple(equal['variables']), article=False)}"
 
-    rows = [[parameter_words(v["kind"], tuple(v["variables"]), article=False), num(v["value"]), num(v["standardized"]),
+    rows = [[parameter_words(v["kind"], tuple(v["variables"]), article=False), est_num(v["value"]), est_num(v["standardized"]),
              source(v)] for v in entries]
     values = [[v["kind"], names_text(v["variables"]), v["value"], v["standardized"], source(v)] for v in entries]
     # what each source means; the model file's statements apart (note_parts.Command), which a manuscript leaves out

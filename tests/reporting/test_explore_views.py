@@ -5,7 +5,9 @@ data/explore_words_before.json, are all found in the same format of the report m
 The scree plot's former axis values (five even splits of the range) were taken out of the kept words when the
 axis got round values; the caution's '--split SEED' when the report names the option as the caller writes it
 (options.Option: 'split=...' from Python); the close-fit rule's '0.05' became '.05' ('05' once its dot is stripped)
-when it was written as every other RMSEA guide is (new-user trial s21)."""
+when it was written as every other RMSEA guide is (new-user trial s21); a loading's '.00' ('00'), '.01' and '-.01' once a
+value below the last decimal's unit was printed to its two significant digits, never as a rounded zero (s23: '.0046',
+'-.0059')."""
 
 from __future__ import annotations
 
