@@ -519,6 +519,18 @@ def miskeyed(r: FactorReliability) -> bool:
     return bool(r.against_keying) and not r.evenly_split
 
 
+def withheld_sums(problems) -> frozenset[tuple[str | None, str]]:
+    """(group label, None with one group; factor) of each keyed sum whose reliability a fit withholds because its
+    loadings contradict the declared keying (:func:`miskeyed`), read from the fit's problems (``problems``: its
+    assessment.admissibility.Problem values, saved or not), so that what uses the fit's sums (scores) withholds the
+    same ones (hostile s23: the scores' first box called comfort's sum 'no scale' and then quoted its omega .35)."""
+    from cfa_tool.assessment.admissibility import ProblemKind
+    from cfa_tool.language.names import read_reference
+
+    return frozenset((p.group, read_reference(label)[1][0]) for p in problems
+                     if p.kind is ProblemKind.KEYING_AGAINST_LOADINGS for label in p.parameters[:1])
+
+
 def _miskeyed_warning(r: FactorReliability) -> tuple[Note, Note]:
     """(what is wrong, what to try) for a factor whose loadings contradict the declared keying (:func:`miskeyed`):
     its keyed sum adds items that run against each other, so its omega and alpha describe no scale.  The model
