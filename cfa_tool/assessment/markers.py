@@ -79,9 +79,10 @@ def weak_marker_problem(w: WeakMarker, several_groups: bool, turned_from: tuple[
     sizes = [abs(s) for s, _ in w.others if math.isfinite(s)]
     ps = [p for _, p in w.others if math.isfinite(p)]
     here = ""
-    if ps and max(ps) > 0.05:  # the tests read as 'not significant' (conventional .05 level)
-        here = (f" (here p up to {journal_decimal(max(ps), digits=3)} for items whose standardized loadings reach "
-                f"{journal_decimal(max(sizes), digits=2)} in size)")
+    if ps and sizes and max(ps) > 0.05:  # the tests read as 'not significant' (conventional .05 level)
+        largest = "> .999" if max(ps) > 0.999 else f"up to {journal_decimal(max(ps), digits=3)}"
+        here = (f" (here p {largest} for items whose standardized loadings reach {journal_decimal(max(sizes), digits=2)} "
+                f"in size)")
     said = (f"The marker of factor '{f}', {x}, hardly measures it (standardized loading "
             f"{loading_size(abs(w.standardized))} in size, below the {loading_size(SMALL_LOADING)} that common "
             f"practice reads as negligible), yet its loading, fixed at {user_number(w.fixed_at)}, sets the factor's "
@@ -93,7 +94,7 @@ def weak_marker_problem(w: WeakMarker, several_groups: bool, turned_from: tuple[
     if reversed_in_sums:
         said += f" The keyed sums reverse {x} for no more than the sign of that near-zero loading."
     ref = reference_text("loading", (f, x))
-    by_variance = Command(f" ('scale {written_name(f)} by variance')", " (its variance fixed at 1)")
+    by_variance = Command(f" ('scale {written_name(f)} by variance')")
     if w.by_model:  # the model file's 'fix' sets it: the automatic scale is the model file's to restore
         advice = Note((f"fix the loading of an item that measures '{f}' at 1 in place of {x}'s, or drop that fix and "
                        f"scale the factor by its variance", by_variance, f"; and check whether {x} belongs to '{f}' "
