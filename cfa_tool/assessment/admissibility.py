@@ -126,6 +126,9 @@ class ProblemKind(enum.Enum):
     # typing error in the statement, or answers coded the other way), so the factor's keyed sum adds items running
     # against each other and its omega and alpha describe no scale
     KEYING_AGAINST_LOADINGS = ("declared keying contradicted by the loadings", "against the declared keying", False)
+    # a factor's marker whose standardized loading is negligible (assessment.markers): the other loadings' values,
+    # standard errors and tests depend on it, and the factor takes its direction from it
+    WEAK_MARKER = ("marker that hardly measures its factor", "marker hardly loads", False)
     # not of the solution but of the data: rows that gave one answer to every item, reverse-worded ones included
     # (data.same_answers), kept in the analysis
     SAME_ANSWER_ROWS = ("same answer to every item", "same answer throughout", False)
@@ -514,6 +517,10 @@ class Problem:
                                      "which it treated as another value",
             K.KEYING_AGAINST_LOADINGS: f"a declared keying of reverse-scored items contradicted by the loadings of "
                                        f"{', '.join(keyed)} on {names[0] if names else ''}",
+            K.WEAK_MARKER: f"a marker of factor {names[0] if names else ''}, {keyed[0] if keyed else ''}, whose "
+                           f"standardized loading ({journal_decimal(self.value or 0.0, digits=2)}) is below the .20 in "
+                           f"size that common practice reads as negligible, on which the unstandardized loadings and "
+                           f"their tests depend",
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",
             K.SMALL_GROUP: f"fewer rows ({v.split('.')[0]}) than free parameters of the group's model",

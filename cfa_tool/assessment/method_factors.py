@@ -113,8 +113,8 @@ def weak_factor_problems(estimates, latent: tuple[str, ...], observed: tuple[str
                          f"Reise 2012), so its variance and any reliability of it are negligible.")
             out.append(Problem(
                 ProblemKind.WEAK_METHOD_FACTOR, (reference_text("factor_variance", (factor,)),), float(sizes.max()),
-                f"The {kind} {factor}{beside} has only small standardized loadings (at most {_size(sizes.max())} in size, "
-                f"below {_size(SMALL_LOADING)}: common practice): its items share little beyond the other factors they "
+                f"The {kind} {factor}{beside} has only small standardized loadings (at most {loading_size(sizes.max())} in size, "
+                f"below {loading_size(SMALL_LOADING)}: common practice): its items share little beyond the other factors they "
                 f"load on.{explained}",
                 f"Do not read {factor} as a substantive effect; fit the model without it and compare the two (the "
                 f"difference then sits on a boundary, which compare says), and report it as negligible if theory "
@@ -122,7 +122,7 @@ def weak_factor_problems(estimates, latent: tuple[str, ...], observed: tuple[str
     return out
 
 
-def _size(value: float) -> str:
+def loading_size(value: float) -> str:
     """A loading's size as reports write it: '.19'."""
     text = f"{value:.2f}"
     if float(text) >= SMALL_LOADING > value:  # .1996 is not '.20'

@@ -50,7 +50,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Collection
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from enum import Enum
 from functools import lru_cache
 
@@ -511,9 +511,24 @@ def keying_warnings(factors: list[FactorReliability] | tuple, prefix: str = "") 
 
 def miskeyed(r: FactorReliability) -> bool:
     """Whether the loadings of some of the factor's items contradict the keying a 'reversed' statement declares
-    (``against_keying``), the factor itself pointing the way of most of its items (else ``points_against`` says
-    more, and half each way has no majority to judge by)."""
-    return bool(r.against_keying) and not r.points_against and not r.evenly_split
+    (``against_keying``: the items whose keyed loadings run against most of the factor's items, judged by their signs
+    relative to the others, the marker's too); half each way has no majority to judge by.  Whichever way the factor
+    points: the items are the same in every order of the factor's items (hostile s23: with the item coded the other
+    way listed first, as the marker, the factor pointed its way and the contradiction went unnamed, its omega .35
+    printed)."""
+    return bool(r.against_keying) and not r.evenly_split
+
+
+def withheld_sums(problems) -> frozenset[tuple[str | None, str]]:
+    """(group label, None with one group; factor) of each keyed sum whose reliability a fit withholds because its
+    loadings contradict the declared keying (:func:`miskeyed`), read from the fit's problems (``problems``: its
+    assessment.admissibility.Problem values, saved or not), so that what uses the fit's sums (scores) withholds the
+    same ones (hostile s23: the scores' first box called comfort's sum 'no scale' and then quoted its omega .35)."""
+    from cfa_tool.assessment.admissibility import ProblemKind
+    from cfa_tool.language.names import read_reference
+
+    return frozenset((p.group, read_reference(label)[1][0]) for p in problems
+                     if p.kind is ProblemKind.KEYING_AGAINST_LOADINGS for label in p.parameters[:1])
 
 
 def _miskeyed_warning(r: FactorReliability) -> tuple[Note, Note]:
@@ -527,12 +542,22 @@ def _miskeyed_warning(r: FactorReliability) -> tuple[Note, Note]:
         f"{'s' if len(declared) == 1 else ''} the way of the factor's other items" if declared else "",
         f"{', '.join(undeclared)} load{'s' if len(undeclared) == 1 else ''} against the factor's other items but "
         f"{'is' if len(undeclared) == 1 else 'are'} not declared reversed" if undeclared else "") if part)
+    turned = ""
+    if r.points_against:  # the factor points the way of those items (its marker among them), against the others
+        others = [x for x in r.items if x not in r.against_keying and x not in r.reversed]
+        lower = (f"{', '.join(others)} load{'s' if len(others) == 1 else ''} negatively, so a higher '{r.factor}' "
+                 f"means lower answers on {'it' if len(others) == 1 else 'them'}" if others else
+                 f"a higher '{r.factor}' means less of what its other items ask")
+        turned = (f" The factor points the way of {', '.join(r.against_keying)} too: {lower}, and its correlations, "
+                  f"mean differences and scores read the wrong way.")
     return (Note((f"The loadings of {', '.join(repr(x) for x in r.against_keying)} on factor '{r.factor}' point the "
                   f"other way from the keying the model declares", Command(REVERSED_STATEMENT),
                   f": {said}; the factor's keyed sum adds items that run against each other, so its reliability "
-                  f"(omega, alpha) and its sum scores describe no scale.")),
+                  f"(omega, alpha) and its sum scores describe no scale.{turned}")),
             Note(("check the declared keying", Command(REVERSED_STATEMENT), " for a typing error (an item named in "
-                  "place of another) and how the answers were coded, then fit again.")))
+                  "place of another) and how the answers were coded, then fit again"
+                  + ("; with the keying right, the automatic marker, an item not declared reversed, orients the "
+                     "factor." if r.points_against else "."))))
 
 
 def _split_warning(split: list[FactorReliability], prefix: str) -> Note:
@@ -565,7 +590,17 @@ def _turned_warning(r: FactorReliability) -> tuple[str, Text]:
                 f"a higher '{r.factor}' means less of what they ask, and its correlations, mean differences and scores "
                 f"read the wrong way.",
                 Note(("fix the loading of an item not declared reversed at 1 as its marker (the automatic marker "
-                      "does so), or check the keying the model declares", Command(REVERSED_STATEMENT), ".")))
+                      "does so; where the factor's variance sets its scale, start those items' loadings above 0), or "
+                      "check the keying the model declares", Command(REVERSED_STATEMENT), ".")))
+    if not r.reversed:  # every item loads negatively: no item to name, the factor itself is turned (hostile s23)
+        return (f"Every item of factor '{r.factor}' loads negatively ({', '.join(r.items)}), so the factor points "
+                f"against all of them: a higher '{r.factor}' means lower answers on every item, and its correlations, "
+                f"mean differences and scores read the wrong way. A factor's direction is arbitrary (turned round it "
+                f"fits the data the same), so this one was turned by its scale: a marker's loading fixed below 0, or "
+                f"start values below 0.",
+                Note(("turn it round: fix its marker's loading at 1 rather than below 0, or, where its variance sets "
+                      "its scale, start its loadings above 0 (the automatic start values do); the fit stays the "
+                      "same.",)))
     few = ", ".join(r.reversed)
     one = len(r.reversed) == 1
     return (f"Factor '{r.factor}' points the way of {few}, against most of its items ({', '.join(with_keys)} load "
@@ -575,23 +610,50 @@ def _turned_warning(r: FactorReliability) -> tuple[str, Text]:
                   "the factor by its other items and keys the sums.")))
 
 
-def keying_problems(groups) -> list:
-    """A caution, first in every view, for each factor of each group (``groups``: GroupResult, with their
-    reliability rows) that points against its items, or whose loadings contradict the keying a 'reversed' statement
-    declares (new-user trial s17: a typing error in the statement gave omega .14 in a paste-ready paragraph, the
-    contradiction only among the notes)."""
-    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+def apart_from_weak_markers(rows, weak) -> tuple[FactorReliability, ...]:
+    """One group's reliability rows with the factors' weak markers (``weak``: assessment.markers.WeakMarker of that
+    group) taken out of ``against_keying``: the sign of a loading that small says nothing of how the item is keyed (a
+    random-answer item as the marker, hostile s23); the marker's own caution says what it does to the factor."""
+    if not weak:
+        return tuple(rows)
+    marker = {w.factor: w.item for w in weak}
+    return tuple(replace(r, against_keying=tuple(x for x in r.against_keying if x != marker[r.factor]))
+                 if r.factor in marker and marker[r.factor] in r.against_keying else r for r in rows)
 
+
+def keying_problems(groups, weak=()) -> list:
+    """A caution, first in every view, for each factor of each group (``groups``: GroupResult, with their
+    reliability rows) whose loadings contradict the keying a 'reversed' statement declares (new-user trial s17: a
+    typing error in the statement gave omega .14 in a paste-ready paragraph, the contradiction only among the notes),
+    or that points against its items; and for each factor whose marker hardly measures it (``weak``:
+    assessment.markers.WeakMarker), whose caution says too where that marker turns the factor against its items or
+    is reversed in the keyed sums, in place of advice to declare it reversed (hostile s23)."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.assessment.markers import weak_marker_problem
+
+    several = len(groups) > 1
     out = []
     for g in groups:
+        label = g.label if several else None
+        rows = {r.factor: r for r in g.reliability}
+        marked = set()
+        for w in weak:
+            if w.group is not None and w.group != g.label:  # one group: its rows carry no label
+                continue
+            r = rows.get(w.factor)
+            turned = r is not None and r.points_against and not miskeyed(r)
+            out.append(weak_marker_problem(w, several, tuple(x for x in r.items if x != w.item and x not in r.reversed)
+                                           if turned else (),
+                                           r is not None and r.keying is Keying.SIGNS and w.item in r.reversed))
+            marked.add(w.factor)
         for r in g.reliability:
-            if r.points_against:
-                explanation, advice = _turned_warning(r)
-                out.append(Problem(ProblemKind.FACTOR_POINTS_AGAINST_ITEMS, (reference_text("factor_variance", (r.factor,)),), None,
-                                   explanation, advice, g.label if len(groups) > 1 else None))
-            elif miskeyed(r):
+            if miskeyed(r):
                 explanation, advice = _miskeyed_warning(r)
                 out.append(Problem(ProblemKind.KEYING_AGAINST_LOADINGS,
                                    tuple(reference_text("loading", (r.factor, x)) for x in r.against_keying), None,
-                                   explanation, advice, g.label if len(groups) > 1 else None))
+                                   explanation, advice, label))
+            elif r.points_against and r.factor not in marked:
+                explanation, advice = _turned_warning(r)
+                out.append(Problem(ProblemKind.FACTOR_POINTS_AGAINST_ITEMS,
+                                   (reference_text("factor_variance", (r.factor,)),), None, explanation, advice, label))
     return out

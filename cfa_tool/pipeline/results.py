@@ -721,12 +721,21 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
     if converged:  # a method factor that carries next to nothing: a caution
         from cfa_tool.assessment.method_factors import weak_factor_problems
 
-        from cfa_tool.assessment.reliability import keying_problems
+        from cfa_tool.assessment.reliability import apart_from_weak_markers, keying_problems
 
         from cfa_tool.assessment.admissibility import poor_fit_problems, uninformative_baseline_problems
 
+        from cfa_tool.assessment.markers import weak_markers
+
+        weak = weak_markers(estimates, spec.exploratory_factors)  # markers that hardly measure their factors
+        if weak:  # their signs judge no keying (assessment.reliability.apart_from_weak_markers)
+            from dataclasses import replace
+
+            groups = tuple(replace(g, reliability=apart_from_weak_markers(
+                g.reliability, [w for w in weak if w.group is None or w.group == g.label])) for g in groups)
         problems = tuple(problems) + tuple(weak_factor_problems(estimates, latent, observed, groups, spec.method_factors,
-                                                                spec.exploratory_factors)) + tuple(keying_problems(groups))
+                                                                spec.exploratory_factors)) + tuple(
+            keying_problems(groups, weak))
         if fit is not None:
             problems += uninformative_baseline_problems(fit, robust, n_obs, max(len(groups), 1))
             problems += poor_fit_problems(IndicesToRead.of(fit, robust))

@@ -31,7 +31,7 @@ from cfa_tool.data.odd_values import OddKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import equality_words
-from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words
+from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words, split_label
 from cfa_tool.note_parts import WORDS as MANUSCRIPT, said as said_in  # ('said' names sentences here)
 from cfa_tool.reporting.numbers import fit_index_text, guides_text, missing, num, p_phrase, signed, unit
 from cfa_tool.reporting.numbers import word_list as _list
@@ -1048,11 +1048,24 @@ def _weak_factor_sentence(result, subject: str) -> str:
     weak = [_phrase(p, result) for p in result.problems if p.kind is ProblemKind.WEAK_METHOD_FACTOR]
     turned = [_phrase(p, result) for p in result.problems if p.kind is ProblemKind.FACTOR_POINTS_AGAINST_ITEMS]
     keyed_against = [_phrase(p, result) for p in result.problems if p.kind is ProblemKind.KEYING_AGAINST_LOADINGS]
+    markers = [p for p in result.problems if p.kind is ProblemKind.WEAK_MARKER]  # hostile s23
+    # the factors that point against their items, by (factor, group): a weak or miskeyed marker turns its factor too
+    pointing = {(r.factor, g.label if len(result.groups) > 1 else None) for g in result.groups
+                for r in g.reliability if r.points_against}
+
+    def directing(found) -> bool:
+        return any((split_label(p.parameters[0])[1][0], p.group) in pointing for p in found)
+
     parts = []
 
     def its(found: list) -> str:  # each factor's, or theirs (s23: 'its' after a list of several)
         return "its" if len(found) == 1 else "their"
 
+    if markers:
+        parts.append(f"{subject} has {_list([_phrase(p, result) for p in markers])}; the standardized loadings do "
+                     f"not depend on {'it' if len(markers) == 1 else 'them'}"
+                     + (", but the factor's direction does, so its correlations, mean differences and scores read the "
+                        "wrong way." if directing(markers) else "."))
     if weak:
         parts.append(f"{subject} has {_list(weak)} (a common-practice guide for negligible loadings): {its(weak)} "
                      f"items share little beyond the other factors they load on.")
@@ -1061,9 +1074,13 @@ def _weak_factor_sentence(result, subject: str) -> str:
                      f"the wrong way.")
     if keyed_against:  # a typing error in the statement, or answers coded the other way (new user s17)
         one = len(keyed_against) == 1
+        against = [p for p in result.problems if p.kind is ProblemKind.KEYING_AGAINST_LOADINGS]
         parts.append(f"{subject} has {_list(keyed_against)}: the keyed sum{'' if one else 's'} "
                      f"add{'s' if one else ''} items that run against each other, so {its(keyed_against)} "
-                     f"reliability is not reported here.")
+                     f"reliability is not reported here"
+                     + (f"; {'the factor points' if one else 'the factors point'} the way of those items, against "
+                        f"{its(keyed_against)} other items, so {its(keyed_against)} correlations, mean differences and "
+                        f"scores read the wrong way too." if directing(against) else "."))
     return " ".join(parts)
 
 
@@ -2186,21 +2203,39 @@ def _reversed(a: float, b: float) -> bool:
     return a * b < 0 and min(abs(a), abs(b)) >= REVERSED_LOADING_SIZE
 
 
+def _directions(result) -> dict[tuple[str | None, str], float]:
+    """Each factor's direction in each group of ``result`` ((group, factor): +1 or -1): the sign most of its items'
+    standardized loadings take, ties broken by their sum.  A factor turned as a whole in one group or sample (by a
+    marker that hardly measures it, whose sign is chance: hostile s23) then turns none of its items, and an item coded
+    the other way round is told from the others by its sign relative to theirs, the marker's too."""
+    votes: dict = {}
+    for r in result.estimates:
+        if r.kind == "loading" and r.variables[1] in result.observed and r.standardized is not None:
+            vote, total = votes.get((r.group, r.variables[0]), (0, 0.0))
+            votes[(r.group, r.variables[0])] = (vote + (r.standardized > 0) - (r.standardized < 0),
+                                                total + r.standardized)
+    return {key: -1.0 if (vote or total) < 0 else 1.0 for key, (vote, total) in votes.items()}
+
+
 def reversed_loadings(rep) -> list[tuple[tuple[str, str], float, float]]:
     """((factor, item), calibration, validation) of the standardized loadings that have opposite signs in the two
-    samples, both at least :data:`REVERSED_LOADING_SIZE` in size (none when the loose refit did not converge)."""
+    samples relative to their factor's other items (:func:`_directions`), both at least :data:`REVERSED_LOADING_SIZE`
+    in size (none when the loose refit did not converge)."""
     if not rep.loose.converged:
         return []
+    first, second = _directions(rep.calibration_result), _directions(rep.loose)
     return [(key, a, b) for key, a, b in _loading_pairs(rep)
-            if _reversed(a, b)]
+            if _reversed(a * first.get((None, key[0]), 1.0), b * second.get((None, key[0]), 1.0))]
 
 
 def reversed_across_groups(result) -> list[tuple[tuple[str, str], str, float, str, float]]:
     """((factor, item), first group, its loading, other group, its loading) of the standardized loadings of a grouped
-    fit (the configural model of an invariance ladder) whose sign in a group is the opposite of the first group's,
-    both at least :data:`REVERSED_LOADING_SIZE` in size: an item coded the other way round in one group."""
+    fit (the configural model of an invariance ladder) whose sign in a group, relative to its factor's other items
+    there (:func:`_directions`), is the opposite of the first group's, both at least :data:`REVERSED_LOADING_SIZE` in
+    size: an item coded the other way round in one group."""
     if not result.converged:
         return []
+    direction = _directions(result)
     first: dict = {}
     found = []
     for r in result.estimates:
@@ -2211,7 +2246,8 @@ def reversed_across_groups(result) -> list[tuple[tuple[str, str], str, float, st
             continue
         group, a = first[r.variables]
         b = r.standardized
-        if _reversed(a, b):
+        factor = r.variables[0]
+        if _reversed(a * direction[(group, factor)], b * direction[(r.group, factor)]):
             found.append((r.variables, group, a, r.group, b))
     return found
 

@@ -171,6 +171,23 @@ def _one_item_sentence(fit) -> str:
     return one_item_sentence(one_item_factors(fit.estimates, fit.observed), "determinacy, reliability and precision")
 
 
+def _withheld_sentence(result, q) -> str:
+    """The factors of one group (``q``: its quality) whose keyed sum has no omega because the fit's loadings contradict
+    the declared keying (assessment.reliability.withheld_sums: the fit withholds it too), said where the tables show
+    '—' for it; '' where there are none."""
+    from cfa_tool.assessment.reliability import withheld_sums
+
+    several = len(result.quality) > 1
+    found = [f for f in q.factors if ((q.group if several else None), f) in withheld_sums(result.fit.problems)]
+    if not found:
+        return ""
+    many = len(found) > 1
+    return (f" No item sum ω is given for {word_list(found)}: the loadings of {'their' if many else 'its'} items "
+            f"contradict the keying the model declares (the caution first in this report), so "
+            f"{'their keyed sums add' if many else 'its keyed sum adds'} items that run against each other and "
+            f"describe{'' if many else 's'} no scale.")
+
+
 def quality_table(result, k: int) -> ReportTable:
     q = result.quality[k]
     ordinal = not hasattr(q, "methods")
@@ -190,7 +207,7 @@ def quality_table(result, k: int) -> ReportTable:
                      "fit gives it: the agreement of the sum with its own true score, not with the factor, so it is "
                      "not comparable with the posterior means' reliability beside it; — where a factor has no item "
                      "sum or its sum none (one item, or continuous items beside ordinal ones: the notes say why)."
-                     + _one_item_sentence(result.fit))
+                     + _withheld_sentence(result, q) + _one_item_sentence(result.fit))
     else:
         cols = [("Factor", "l"), ("Determinacy", "r")] + [(METHOD_COLUMNS[m.method], "r") for m in q.methods]
         rows = []
@@ -212,7 +229,7 @@ def quality_table(result, k: int) -> ReportTable:
                    "items that load on one factor only it is the squared correlation of the sum with the factor, as "
                    "the methods' reliabilities are; it is that of rows that answered every item (a prorated sum of "
                    "fewer items is less reliable); — where a factor has no item sum or its sum none (one item)."
-                   if sums is not None else "")
+                   + _withheld_sentence(result, q) if sums is not None else "")
                 + _one_item_sentence(result.fit))
     title = "Quality of the scores" + _where(result, q) + ("" if ordinal else ": determinacy, and reliability by method")
     return _table(f"score_quality_{k}", title, cols, rows, note,
@@ -615,7 +632,8 @@ def sum_table(result, k: int) -> ReportTable | None:
                       "categories is a curved function of the factor, so it is not comparable with a score's "
                       "agreement with the factor. Sum's r: the sum's correlation with the factor under the fitted "
                       "model; score's r: the posterior-mean score's in these data (the square root of its reliability "
-                      "in the quality table); the two show what the simpler score loses." + _one_item_sentence(result.fit))
+                      "in the quality table); the two show what the simpler score loses." + _withheld_sentence(result, q)
+                      + _one_item_sentence(result.fit))
     rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), _sum_omega(s), _sum_validity(s),
              unit(rho[s.factor])] for s in q.sums]
     return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(result, q),
@@ -624,7 +642,8 @@ def sum_table(result, k: int) -> ReportTable | None:
                   "The unit-weighted sum of each factor's items (reversed: the reverse-keyed items, reversed in the "
                   "sum); sum omega: its reliability (McDonald 1999); sum's r and score's r: the correlations of the "
                   "sum and of the regression score with the factor under the fitted model, which show what the "
-                  "simpler score loses against the factor score." + _one_item_sentence(result.fit))
+                  "simpler score loses against the factor score." + _withheld_sentence(result, q)
+                  + _one_item_sentence(result.fit))
 
 
 def _sum_omega(s) -> str:

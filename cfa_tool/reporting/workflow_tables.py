@@ -91,15 +91,15 @@ def _caution_lines(named_results, poor_fit: bool = True, small_groups: bool = Tr
     group, a fit poor by common bounds, unless ``poor_fit`` is False: an invariance test judges its configural
     model's fit by its own guides; groups smaller than their model unless ``small_groups`` is False: an invariance
     result says them once among its own cautions), each once, named by its model; a keying of reverse-scored items
-    that the loadings contradict, or a factor pointing against its items (assessment.reliability.keying_problems),
-    and a robust test whose scaling factor is not positive (its figures are dashes in the tables); last, once and
+    that the loadings contradict, a factor pointing against its items or a marker that hardly measures its factor
+    (assessment.reliability.keying_problems), and a robust test whose scaling factor is not positive (its figures are dashes in the tables); last, once and
     unnamed, the caution on a baseline model that misfits little, which bounds the CFI and TLI of every model of
     the same rows alike (assessment.admissibility.uninformative_baseline_problems: a fit says it, and a comparison
     or a ladder printed CFI and TLI without it).  ``only``: these kinds alone (an invariance ladder's later steps:
     what their own fits could not compute)."""
     kinds = only if only is not None else (
         ProblemKind.WEAK_METHOD_FACTOR, ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE, ProblemKind.SMALL_SAMPLE,
-        ProblemKind.KEYING_AGAINST_LOADINGS, ProblemKind.FACTOR_POINTS_AGAINST_ITEMS,
+        ProblemKind.KEYING_AGAINST_LOADINGS, ProblemKind.FACTOR_POINTS_AGAINST_ITEMS, ProblemKind.WEAK_MARKER,
         ProblemKind.SCALED_TEST_NOT_COMPUTED) + (
         (ProblemKind.SMALL_GROUP,) if small_groups else ()) + ((ProblemKind.POOR_FIT,) if poor_fit else ())
     lines: list[str] = []

@@ -845,7 +845,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     errors = {meth: np.full((len(read_index), m), np.nan) for meth in chosen}
     counts: dict = {}
     position = pd.Series(np.arange(len(read_index)), index=read_index)
-    sums = _sum_scores(models, spec, bool(ordinal_items))
+    sums = _sum_scores(models, spec, bool(ordinal_items), labels, result.problems)
     summaries = _score_each_group(models, labels, spec, result, rule, rows, group_of_row, group, chosen,
                                   bool(ordinal_items), position.loc[kept].to_numpy(), values, errors, counts, sums,
                                   announce)
@@ -1014,12 +1014,22 @@ def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group
     return tuple(summaries)
 
 
-def _sum_scores(models, spec, ordinal: bool) -> list[tuple[SumScore, ...]]:
+def _sum_scores(models, spec, ordinal: bool, labels, problems) -> list[tuple[SumScore, ...]]:
     """Each group's keyed sums with their reliability and spread under the fitted model (scoring.quality
     .sum_quality, or ordinal_sum_quality for ordinal items), computed once: the quality tables and the item sums'
-    summary read the same objects."""
+    summary read the same objects.  A sum whose reliability the fit withholds (``problems``, the fit's: its loadings
+    contradict the declared keying, assessment.reliability.withheld_sums) has no omega here either."""
+    from cfa_tool.assessment.reliability import withheld_sums
+
     declared = _declared(spec)
-    return [ordinal_sum_quality(m, declared) if ordinal else sum_quality(m, declared) for m in models]
+    sums = [ordinal_sum_quality(m, declared) if ordinal else sum_quality(m, declared) for m in models]
+    withheld = withheld_sums(problems)
+    if not withheld:
+        return sums
+    one = len(models) == 1  # one group: its problems name no group
+    return [tuple(replace(s, omega=float("nan")) if (None if one else label, s.factor) in withheld else s
+                  for s in group_sums) for group_sums, label in zip(sums, labels if labels is not None
+                                                                    else [None] * len(sums))]
 
 
 def _partly_answered(model, answered: np.ndarray, chosen, errors: dict) -> list[str]:
@@ -1184,7 +1194,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     if ordinal:
         _check_categories(models[0], rows, row_numbers(frame), source, row_naming(frame))
     counts: dict = {}
-    sums = _sum_scores(models, spec, ordinal)
+    sums = _sum_scores(models, spec, ordinal, labels, result.problems)
     summaries = _score_each_group(models, labels, spec, result, rule, rows, group_of_row, group, chosen, ordinal,
                                   position.loc[frame.index].to_numpy(), values, errors, counts, sums, announce)
     reasons = _row_reasons(read_frame.index, frame.index, rows, group_of_row, group, labels)
