@@ -18,7 +18,6 @@ import json
 
 import numpy as np
 import pandas as pd
-import pytest
 from scipy import stats
 
 import cfa_tool
