@@ -1224,13 +1224,21 @@ def _without_interval(boot, unavailable) -> str:
             f"merged threshold")
 
 
+def lacked_sentence(lacking: int, converged: int, lacked, samples: str, kept_in: str) -> str:
+    """What the converged ``samples`` ('resamples', 'samples of the fitted model') that lacked an answer category of an
+    ordinal item were, and how they were kept (workflows.ordinal_resampling: fitted with the categories they held);
+    ``kept_in``: what they count in.  The one rule of the bootstrap, the cutoffs and power by simulation."""
+    listed = cut_list(lacked, 6, lambda c: f"{c.item} {user_number(c.category)} in {count_text(c.samples)}")
+    return (f"{count_text(lacking)} of the {count_text(converged)} converged {samples} lacked an answer category of an "
+            f"ordinal item ({listed}); each was fitted with the categories it held, as data lacking them would be, and "
+            f"kept in {kept_in}.")
+
+
 def _lacked_sentence(boot) -> str:
     """What the resamples lacking an answer category were and how they were kept."""
-    listed = cut_list(boot.lacked, 6, lambda c: f"{c.item} {user_number(c.category)} in {count_text(c.resamples)}")
-    return (f"{count_text(boot.resamples_lacking)} of the {count_text(boot.converged)} converged resamples lacked an "
-            f"answer category of an ordinal item ({listed}); each was fitted with the categories it held and kept: a "
-            f"threshold next to a lacked category takes the value of the boundary the merged categories share, and one "
-            f"with no answer on a side has no value, so its interval is not available.")
+    return lacked_sentence(boot.resamples_lacking, boot.converged, boot.lacked, "resamples", "every interval")[:-1] + (
+        ": a threshold next to a lacked category takes the value of the boundary the merged categories share, and "
+        "one with no answer on a side has no value, so its interval is not available.")
 
 
 #: the share of resamples that could not be analysed from which the intervals are cautioned as conditional on what
@@ -1331,6 +1339,11 @@ def cutoffs_report(cut) -> Report:
         if cut.correct_rejected is not None:
             lines += (f"That test rejected the fitted model at .05 in {100 * cut.correct_rejected:.1f}% of the "
                       f"{count_text(cut.converged_correct)} samples drawn from it (nominal 5%).",)
+        if cut.lacking[0]:
+            lines += (lacked_sentence(cut.lacking[0], cut.converged_correct, cut.lacked, "samples of the fitted model",
+                                      "the distributions the cutoffs come from")
+                      + (f" So did {count_text(cut.lacking[1])} of the {count_text(cut.converged_misspecified)} of the "
+                         f"misspecified model." if cut.lacking[1] else ""),)
     few = few_draws(cut.replications, 0.05, "samples", "the cutoffs")
     kept = not_admissible_sentence([(count, converged, named, f" from the {whose}") for (count, named), converged, whose
                                     in zip(cut.inadmissible, (cut.converged_correct, cut.converged_misspecified),
@@ -1465,7 +1478,9 @@ def _ordinal_power_lines(result) -> list[str]:
     return [f"Ordinal items: latent responses cut at the population thresholds; each data set fitted by "
             f"{result.ordinal} on its thresholds and polychoric correlations, with robust standard errors.",
             f"The {ADJUSTED_TEST} test rejected the true model at alpha {unit(result.alpha, 2)} in "
-            f"{100 * result.model_rejected:.1f}% of the converged replications (nominal {100 * result.alpha:g}%)."]
+            f"{100 * result.model_rejected:.1f}% of the converged replications (nominal {100 * result.alpha:g}%)."] + (
+        [lacked_sentence(result.lacking, result.converged, result.lacked, "replications",
+                         f"every figure at N = {count_text(result.n_obs)}")] if result.lacking else [])
 
 
 def _inadmissible_cautions(results) -> tuple[str, ...]:
@@ -1560,6 +1575,8 @@ def power_curve_report(curve) -> Report:
         lines += [_ordinal_power_lines(first)[0], f"The {ADJUSTED_TEST} test rejected the true model at alpha "
                   f"{unit(first.alpha, 2)} in " + ", ".join(f"{100 * r.model_rejected:.1f}% at N = {count_text(r.n_obs)}"
                                                            for r in curve.results) + " of the converged replications."]
+        lines += [lacked_sentence(r.lacking, r.converged, r.lacked, f"replications at N = {count_text(r.n_obs)}",
+                                  "every figure of that size") for r in curve.results if r.lacking]
     lines += not_carried_line(first.not_carried)
     names = [label_words(p.label, article=False, observed=first.observed or None) for p in first.parameters]
     rows = [[name, *(unit(r.parameters[k].power, 2) for r in curve.results)] for k, name in enumerate(names)]

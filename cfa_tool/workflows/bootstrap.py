@@ -106,18 +106,6 @@ class BootInterval:
         return clean(out)
 
 
-@dataclass(frozen=True)
-class LackedCategory:
-    """An answer category of an ordinal item that some converged bootstrap resamples lacked (none of their rows gave
-    it): those resamples were fitted with the categories they held and kept."""
-    item: str
-    category: float
-    resamples: int
-
-    def to_dict(self) -> dict:
-        return {"item": self.item, "category": self.category, "resamples": self.resamples}
-
-
 @dataclass(frozen=True, eq=False)
 class BootstrapResult(Presentable):
     """A fit and its bootstrap: intervals of every estimate and the Bollen-Stine p-value."""
@@ -140,7 +128,8 @@ class BootstrapResult(Presentable):
     inadmissible: int = 0
     inadmissible_named: str = ""
     #: ordinal items: the answer categories some converged resamples lacked, with how many lacked each
-    lacked: tuple[LackedCategory, ...] = ()
+    #: (workflows.ordinal_resampling.LackedCategory)
+    lacked: tuple = ()
     #: how many converged resamples lacked some answer category (each fitted with the categories it held, and kept)
     resamples_lacking: int = 0
 
@@ -549,7 +538,7 @@ def _bootstrap_ordinal(result: FitResult, spec, values: np.ndarray, replications
     an interval ended at the estimate); every other interval comes from all converged resamples.  BCa's acceleration comes from the influence of each row on the ML estimates, which has no counterpart
     here, and the Bollen-Stine transformation of continuous rows has none for ordinal answers: the test stays the
     fit's adjusted one."""
-    from cfa_tool.workflows.ordinal_resampling import OrdinalFitting, Outcome, analysed_rows, resample
+    from cfa_tool.workflows.ordinal_resampling import OrdinalFitting, Outcome, analysed_rows, lacked_categories, resample
 
     fitting = OrdinalFitting.of_fit(spec, result, keep_levels=True)
     rows = analysed_rows(fitting, values)
@@ -565,17 +554,11 @@ def _bootstrap_ordinal(result: FitResult, spec, values: np.ndarray, replications
     intervals = _intervals(result, np.array([d.values for d in ok]), np.array([d.standardized for d in ok]),
                            lacked=lacked)
     count, named = counted_problems(d.problems for d in ok)  # as each resample's fit judged itself
-    lost: dict[tuple[str, float], int] = {}
-    for d in ok:  # which item lost which category, resample by resample, counted
-        for pair in d.lost:
-            lost[pair] = lost.get(pair, 0) + 1
-    order = {x: k for k, x in enumerate(result.observed)}
+    lacking, lacked_each = lacked_categories(ok, result.observed)
     return BootstrapResult(fit=result, replications=replications, converged=len(ok), seed=seed, intervals=intervals,
                            bollen_stine_p=None, bollen_stine_converged=None,
                            failed=sum(d.outcome is Outcome.FAILED for d in draws), inadmissible=count,
-                           inadmissible_named=named, resamples_lacking=sum(bool(d.lost) for d in ok),
-                           lacked=tuple(LackedCategory(x, v, n) for (x, v), n in
-                                        sorted(lost.items(), key=lambda kv: (order[kv[0][0]], kv[0][1]))))
+                           inadmissible_named=named, resamples_lacking=lacking, lacked=lacked_each)
 
 
 def _intervals(result: FitResult, values: np.ndarray, standardized: np.ndarray, accel_values: np.ndarray | None = None,

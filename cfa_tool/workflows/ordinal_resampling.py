@@ -178,6 +178,34 @@ def _refit(result: FitResult | Outcome, keys: tuple[Key, ...], levels: dict | No
                  inadmissible_words(result.problems))
 
 
+@dataclass(frozen=True)
+class LackedCategory:
+    """An answer category of an ordinal item that some converged samples lacked (none of their rows gave it): those
+    samples were fitted with the categories they held and kept (module docstring)."""
+    item: str
+    category: float
+    samples: int
+
+    def to_dict(self) -> dict:
+        return {"item": self.item, "category": self.category, "samples": self.samples}
+
+
+def lacked_categories(refits, observed: tuple[str, ...]) -> tuple[int, tuple[LackedCategory, ...]]:
+    """How many of the converged ``refits`` lacked some answer category, and each category lacked (in the order of
+    the items ``observed`` and of their answers) with how many lacked it: which item lost which category, sample by
+    sample, counted."""
+    lost: dict[tuple[str, float], int] = {}
+    lacking = 0
+    for refit in refits:
+        if refit.converged and refit.lost:
+            lacking += 1
+            for pair in refit.lost:
+                lost[pair] = lost.get(pair, 0) + 1
+    order = {x: k for k, x in enumerate(observed)}
+    return lacking, tuple(LackedCategory(x, v, n) for (x, v), n in sorted(lost.items(),
+                                                                      key=lambda kv: (order[kv[0][0]], kv[0][1])))
+
+
 def resample(task) -> Refit:
     """One bootstrap resample: rows drawn with replacement, thresholds and correlations recomputed, refitted."""
     fitting, rows, seed, keys = task
@@ -189,7 +217,9 @@ def simulated_fit(task) -> Refit:
     """One simulated sample of ``n`` rows: latent responses from ``sigma``, ordinal items cut at ``thresholds``."""
     fitting, sigma, thresholds, n, seed, keys = task
     latent = simulate_rows(sigma, n, np.random.default_rng(seed))
-    return _refit(fitting.fit(cut_at_thresholds(latent, sigma, fitting.names, thresholds)), keys)
+    # the answers 1..k the thresholds cut (simulation.cut_at_thresholds), by which a sample's lacked ones are named
+    answers = {x: tuple(float(c) for c in range(1, len(t) + 2)) for x, t in thresholds.items()}
+    return _refit(fitting.fit(cut_at_thresholds(latent, sigma, fitting.names, thresholds)), keys, answers)
 
 
 def analysed_rows(fitting: OrdinalFitting, values: np.ndarray) -> np.ndarray:

@@ -40,7 +40,7 @@ def test_resamples_without_the_rare_category_are_kept_and_its_threshold_has_no_i
     boot = cfa_tool.bootstrap(MODEL, _one_row_in_category_1(), replications=100, seed=3, workers=1)
     # nothing left out for the lacked category: before, about a third of the resamples could not be analysed
     assert boot.failed == 0 and boot.converged >= 98
-    lacked = {(c.item, c.category): c.resamples for c in boot.lacked}
+    lacked = {(c.item, c.category): c.samples for c in boot.lacked}
     assert set(lacked) == {("y2", 1.0)} and boot.resamples_lacking == lacked[("y2", 1.0)]
     # (1 - 1/300)^300 = .367 of the resamples leave the one row out; binomial SD at 100 resamples .048: 4.5 SDs
     share = (1 - 1 / N) ** N
@@ -55,7 +55,7 @@ def test_resamples_without_the_rare_category_are_kept_and_its_threshold_has_no_i
         if i.kind in ("loading", "threshold") and i.scale == "unstandardized":
             assert i.percentile[0] < i.estimate < i.percentile[1], i
     saved = boot.to_dict()["result"]
-    assert saved["categories_lacked"] == [{"item": "y2", "category": 1.0, "resamples": lacked[("y2", 1.0)]}]
+    assert saved["categories_lacked"] == [{"item": "y2", "category": 1.0, "samples": lacked[("y2", 1.0)]}]
     row = next(i for i in saved["intervals"] if i["variables"] == ["y2", "1"])
     assert row["interval_available"] is False and row["percentile_ci95"] == [None, None]
     assert row["resamples_without_answer_below"] == lacked[("y2", 1.0)]
