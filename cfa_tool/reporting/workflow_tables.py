@@ -1199,7 +1199,7 @@ def _answers_words(values) -> str:
     return f"answer{'s' if len(values) > 1 else ''} {word_list([user_number(v) for v in values])}"
 
 
-def _lacked_categories(boot) -> dict[str, tuple[float, ...]]:
+def _fit_categories(boot) -> dict[str, tuple[float, ...]]:
     """Each ordinal item's answer categories in the fit (item -> categories)."""
     result = boot.fit
     return {x: tuple(v for v, _ in cats) for x, cats in zip(result.observed, result.data.categories) if cats}
@@ -1208,7 +1208,7 @@ def _lacked_categories(boot) -> dict[str, tuple[float, ...]]:
 def _without_interval(boot, unavailable) -> str:
     """The first box's line on thresholds whose interval is not available: which, how many resamples gave each no
     value and why, and what would give the merged threshold one."""
-    levels = _lacked_categories(boot)
+    levels = _fit_categories(boot)
     phrases = []
     for i in unavailable:
         item, step = i.variables[0], int(i.variables[1])
@@ -1236,9 +1236,9 @@ def lacked_sentence(lacking: int, converged: int, lacked, samples: str, kept_in:
 
 def _lacked_sentence(boot) -> str:
     """What the resamples lacking an answer category were and how they were kept."""
-    return lacked_sentence(boot.resamples_lacking, boot.converged, boot.lacked, "resamples", "every interval")[:-1] + (
+    return lacked_sentence(boot.resamples_lacking, boot.converged, boot.lacked, "resamples", "the intervals")[:-1] + (
         ": a threshold next to a lacked category takes the value of the boundary the merged categories share, and "
-        "one with no answer on a side has no value, so its interval is not available.")
+        "one with no answer on a side has no value there, so its interval is not available.")
 
 
 #: the share of resamples that could not be analysed from which the intervals are cautioned as conditional on what

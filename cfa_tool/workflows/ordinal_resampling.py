@@ -144,8 +144,9 @@ def threshold_place(item_levels: tuple[float, ...], held: tuple[float, ...], ste
 
 
 def _refit(result: FitResult | Outcome, keys: tuple[Key, ...], levels: dict | None = None) -> Refit:
-    """What a worker sends back of one sample's fit ``result``; ``levels``: the data's answer categories (a
-    bootstrap resample), whose thresholds are placed by :func:`threshold_place` when the sample lacks some."""
+    """What a worker sends back of one sample's fit ``result``; ``levels``: the answer categories of the data (a
+    bootstrap resample) or of the population (a simulated sample, answers 1..k), by which what the sample lacks is
+    named and its asked-for thresholds are placed (:func:`threshold_place`)."""
     nan = np.full(len(keys), np.nan)
     if isinstance(result, Outcome):
         return Refit(result, nan, nan, nan)
