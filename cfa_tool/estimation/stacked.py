@@ -22,8 +22,12 @@ matrix is not positive definite, whose start or trial point leaves the region wh
 positive definite, whose line search fails or that does not converge within :data:`ITERATIONS` iterations is returned
 with ``converged`` False, and the caller refits it one at a time with the full search (restarts,
 quasi-Newton fallback and diagnosis of the failure) so that it is judged exactly as a single fit is.
-Only models it covers are given to it (:func:`stackable`): one group, no mean structure, no
-higher-order factors, no bounds on the parameters.
+Only models it covers are given to it (:func:`stackable`): one group, no mean structure, no bounds on the
+parameters.  Higher-order factors are covered: Sigma = G P G' + T with G = L A, A = (I - B)^-1, the basis
+V = [I, C', G] with C' = G P A' (:func:`cfa_tool.model.rank_two.basis_vectors`), and the observed Hessian's second
+derivatives of the pairs with a loading or a path between factors those of
+:func:`cfa_tool.model.rank_two.path_second_derivatives`, with a leading axis of replications
+(:meth:`StackedNormal._path_second_derivatives`).
 """
 
 from __future__ import annotations
@@ -46,10 +50,10 @@ BLOCK = 64  # replications evaluated together: (BLOCK, q, q) arrays of a questio
 
 
 def stackable(model: StructuredModel) -> bool:
-    """Whether :func:`fit_stacked` covers the model: one group, no mean structure, no higher-order
-    factors and no bounds on any parameter."""
+    """Whether :func:`fit_stacked` covers the model: one group, no mean structure and no bounds on any parameter
+    (higher-order factors are covered)."""
     table = model.table
-    return (model.n_groups == 1 and not model.mean_structure and not model.higher_order
+    return (model.n_groups == 1 and not model.mean_structure
             and not np.isfinite(table.lower).any() and not np.isfinite(table.upper).any())
 
 
@@ -72,7 +76,7 @@ class StackedNormal:
 
     def __init__(self, model: StructuredModel, covariances: np.ndarray):
         if not stackable(model):
-            raise ValueError("the stacked discrepancy covers one group without means, higher-order factors or bounds")
+            raise ValueError("the stacked discrepancy covers one group without means or bounds")
         self.model = model
         self.S = np.asarray(covariances, dtype=float)
         self.p, self.m = model.p, model.m
@@ -91,18 +95,30 @@ class StackedNormal:
         first, second = self._second.first, self._second.second
         self._first = first // self.m * nb + self.p + self.m + first % self.m
         self._second_at = second // self.m * nb + self.p + self.m + second % self.m
+        self.higher_order = model.higher_order
+        if self.higher_order:
+            active = model.active[0]
+            self._paths = _PathLayout.of(model._codes[0][active], model._rows[0][active], model._cols[0][active],
+                                         self.p)
 
     def _sigma(self, theta: np.ndarray):
-        """L (R, p, m), P (R, m, m), L P and Sigma = L P L' + T (R, p, p) at a stack of parameter vectors."""
+        """G = L A (R, p, m), P (R, m, m), C' = G P A' (the basis columns c_j; L P without higher-order factors),
+        Sigma = G P G' + T (R, p, p) and A = (I - B)^-1 (None without higher-order factors) at a stack of parameter
+        vectors."""
         mats = self.model.matrices(theta)
         L, P = mats.L, mats.P
-        LP = L @ P
-        return L, P, LP, LP @ np.swapaxes(L, 1, 2) + mats.T
+        if not self.higher_order:
+            LP = L @ P
+            return L, P, LP, LP @ np.swapaxes(L, 1, 2) + mats.T, None
+        A = np.broadcast_to(mats.A, P.shape)  # (the identity, unstacked, where no replication has a path)
+        G = L @ A
+        GP = G @ P
+        return G, P, GP @ np.swapaxes(A, 1, 2), GP @ np.swapaxes(G, 1, 2) + mats.T, A
 
     def value(self, theta: np.ndarray, rows: np.ndarray) -> np.ndarray:
         """F of the replications ``rows`` (indices into the stack) at their ``theta`` (inf where Sigma is
         not positive definite)."""
-        _, _, _, sigma = self._sigma(theta)
+        sigma = self._sigma(theta)[3]
         factor, ok = _cholesky(sigma)
         logdet = 2.0 * np.log(np.abs(np.diagonal(factor, axis1=1, axis2=2))).sum(axis=1)
         # tr(S Sigma^-1) = ||F^-1 S^1/2||^2 is not cheaper than a solve at these sizes: solve Sigma X = S
@@ -132,7 +148,7 @@ class StackedNormal:
                   hessian_out: np.ndarray | None):
         """:meth:`evaluate` of one block, its information and Hessian written into ``information_out`` and
         ``hessian_out`` (None: no Hessian)."""
-        L, P, LP, sigma = self._sigma(theta)
+        G, P, C, sigma, A = self._sigma(theta)
         R, p, m = len(theta), self.p, self.m
         factor, ok = _cholesky(sigma)
         if not ok.all():
@@ -145,10 +161,10 @@ class StackedNormal:
         value = logdet + np.trace(SI, axis1=1, axis2=2) - self.logdet_S[rows] - p
         ok &= np.isfinite(value)
         W = inverse - inverse @ SI  # Sigma^-1 (Sigma - S) Sigma^-1
-        V = np.zeros((R, p, p + 2 * m))  # [I, C', G] with C' = G P (rank_two.basis_vectors)
+        V = np.zeros((R, p, p + 2 * m))  # [I, C', G] with C' = G P A' (rank_two.basis_vectors)
         V[:, np.arange(p), np.arange(p)] = 1.0
-        V[:, :, p:p + m] = LP
-        V[:, :, p + m:] = L
+        V[:, :, p:p + m] = C
+        V[:, :, p + m:] = G
         Vt = np.swapaxes(V, 1, 2)
         # K and Q with the replications on the last axis ((entries, R)): every gather below then moves rows of R
         # values at once (gathering along the last axis moves one number at a time)
@@ -173,7 +189,8 @@ class StackedNormal:
             cross += take(Q, tri.uu, axis=0) * Kvv
             cross += take(Q, tri.uv, axis=0) * Kvu
             cross *= tri.cc2[:, None]
-            hessian = information - cross + self._second_derivatives(W, P, Q)
+            hessian = information - cross + (self._second_derivatives(W, P, Q) if A is None
+                                             else self._path_second_derivatives(W, A, P, G))
         if self._identity:
             information_out.reshape(R, -1)[...] = take(information, tri.full, axis=0).T
             if hessian is not None:
@@ -199,6 +216,70 @@ class StackedNormal:
             out[tri.load_cov] = (take(Q, self._first, axis=0) * layout.first_weight[:, None]
                                  + take(Q, self._second_at, axis=0) * layout.second_weight[:, None])
         return out
+
+
+    def _path_second_derivatives(self, W: np.ndarray, A: np.ndarray, P: np.ndarray, G: np.ndarray) -> np.ndarray:
+        """tr(W d2Sigma / de de') for the pairs e <= f of active entries of a model with higher-order factors, (T, R):
+        :func:`cfa_tool.model.rank_two.path_second_derivatives` (without a mean structure) with a leading axis of
+        replications, computed over all pairs and read on the upper triangle.  With U = [I, G], S = U' W U,
+        Z = G' W U and Phi = A P A', a pair of loadings or paths (x_e = U[:, u_e], columns c_e) gives
+        2 Phi[c_e, c_f] S[u_e, u_f], a path B[k, l] adds 2 A[c_f, k] (A P Z)[l, u_f] (and its mirror image), and a
+        loading or path with a factor (co)variance P[k, l] gives 2 c (A[c_e, k] Z[l, u_e] + A[c_e, l] Z[k, u_e])."""
+        lay, R, p = self._paths, len(W), self.p
+        swap = np.swapaxes
+        U = np.concatenate((np.broadcast_to(np.eye(p), (R, p, p)), G), axis=2)
+        S = swap(U, 1, 2) @ (W @ U)
+        Z = S[:, p:]
+        out = np.zeros((R, lay.size, lay.size))
+        x, u, c = lay.x, lay.u, lay.c
+        if len(x):
+            Phi = A @ P @ swap(A, 1, 2)
+            block = 2.0 * Phi[:, c[:, None], c[None, :]] * S[:, u[:, None], u[None, :]]
+            if len(lay.paths):
+                Y = A @ P @ Z
+                T = 2.0 * swap(A[:, c[:, None], lay.k[None, :]], 1, 2) * Y[:, lay.l[:, None], u[None, :]]
+                block[:, lay.paths] += T
+                block[:, :, lay.paths] += swap(T, 1, 2)
+            out[:, x[:, None], x[None, :]] = block
+            if len(lay.cov):
+                k, l = lay.cov_k, lay.cov_l
+                term = lay.cov_weight * (A[:, c[:, None], k[None, :]] * swap(Z[:, l[:, None], u[None, :]], 1, 2)
+                                         + A[:, c[:, None], l[None, :]] * swap(Z[:, k[:, None], u[None, :]], 1, 2))
+                out[:, x[:, None], lay.cov[None, :]] = term
+                out[:, lay.cov[:, None], x[None, :]] = swap(term, 1, 2)
+        return np.take(out.reshape(R, -1), lay.upper, axis=1).T
+
+
+@dataclass(frozen=True)
+class _PathLayout:
+    """Where the second derivatives of a model with higher-order factors read their matrices
+    (:meth:`StackedNormal._path_second_derivatives`): the active entries with an X (loadings and paths, ``x``), the
+    column of U = [I, G] each multiplies (``u``) and its factor (``c``); among them the paths B[k, l] (positions in
+    ``x``, ``k``, ``l``); the factor (co)variances P[k, l] (``cov``) with 2 c (c = 1/2 on the diagonal)."""
+
+    size: int
+    upper: np.ndarray  # the flat positions of the pairs e <= f in an E x E matrix, in the order of _Triangle's pairs
+    x: np.ndarray
+    u: np.ndarray
+    c: np.ndarray
+    paths: np.ndarray
+    k: np.ndarray
+    l: np.ndarray
+    cov: np.ndarray
+    cov_k: np.ndarray
+    cov_l: np.ndarray
+    cov_weight: np.ndarray
+
+    @staticmethod
+    def of(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, p: int) -> "_PathLayout":
+        E = len(codes)
+        x = np.flatnonzero((codes == 0) | (codes == 1))
+        paths = np.flatnonzero(codes[x] == 1)
+        cov = np.flatnonzero(codes == 2)
+        return _PathLayout(E, np.flatnonzero(np.triu(np.ones((E, E), dtype=bool))), x,
+                           np.where(codes[x] == 0, rows[x], p + rows[x]), cols[x], paths, rows[x][paths],
+                           cols[x][paths], cov, rows[cov], cols[cov],
+                           2.0 * np.where(rows[cov] == cols[cov], 0.5, 1.0))
 
 
 @dataclass(frozen=True)

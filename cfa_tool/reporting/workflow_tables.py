@@ -7,7 +7,7 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
-from cfa_tool.numbers import user_number, count_text
+from cfa_tool.numbers import cut_list, user_number, count_text
 from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATED, ProblemKind, design_cautions, failure_words,
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
@@ -1114,7 +1114,7 @@ def bootstrap_report(boot) -> Report:
     result = boot.fit
     ordinal = result.method.ordinal
     not_converged = boot.replications - boot.converged - boot.failed
-    why_failed = ("an item lost an answer category, or the correlations were not positive definite" if ordinal else
+    why_failed = ("an item was left with a single answer, or the correlations were not positive definite" if ordinal else
                   "an item had fewer than two answers, or a pair of items none together, so the saturated model could "
                   "not be estimated")
     lines = [f"{count_text(boot.replications)} resamples of {count_text(result.n_obs)} rows{_left_out(result)} (seed {boot.seed}); "
@@ -1124,6 +1124,8 @@ def bootstrap_report(boot) -> Report:
              + "; those are left out of the intervals."]
     if ordinal:
         lines.append(ORDINAL_BOOTSTRAP.format(estimator=result.method.weighting.phrase))
+    if boot.lacked:
+        lines.append(_lacked_sentence(boot))
     if _design_lines(result):
         lines += [*_design_lines(result), "Resamples draw whole clusters (each row its own cluster without them) within "
                                           "strata, and keep the rows' weights."]
@@ -1148,19 +1150,25 @@ def bootstrap_report(boot) -> Report:
 
     rows = [[parameter_words(i.kind, i.variables, article=False), SCALE_WORDS.get(i.scale, i.scale),
              shown(i.estimate, i.scale),
-             est_num(i.bootstrap_se), f"[{shown(i.percentile[0], i.scale)}, {shown(i.percentile[1], i.scale)}]",
+             est_num(i.bootstrap_se), f"[{shown(i.percentile[0], i.scale)}, {shown(i.percentile[1], i.scale)}]"
+             if i.available else NOT_AVAILABLE,
              *([] if ordinal else [f"[{shown(i.bca[0], i.scale)}, {shown(i.bca[1], i.scale)}]"])] for i in boot.intervals]
+    unavailable = [i for i in boot.intervals if not i.available]
     values = [[i.kind, names_text(i.variables), i.scale, i.estimate, i.bootstrap_se, *i.percentile,
-               *([] if ordinal else i.bca)] for i in boot.intervals]
+               *([] if ordinal else i.bca), *([i.lacked_below + i.lacked_above] if unavailable else [])]
+              for i in boot.intervals]
     kinds = "percentile intervals" if ordinal else "percentile and bias-corrected and accelerated (BCa; Efron 1987) intervals"
     table = _table("bootstrap_intervals", "Bootstrap intervals (95%)",
                    [("Parameter", "l"), ("Scale", "l"), ("Estimate", "r"), ("Bootstrap SE", "r"), ("Percentile", "r"),
                     *([] if ordinal else [("BCa", "r")])], rows,
                    "Scale: std., standardized (every variable with variance 1); unstd., in the model's units"
                    + ("; thresholds are on the latent response's scale (variance 1)" if ordinal else "")
-                   + f". {kinds[0].upper()}{kinds[1:]} from the converged resamples.",
+                   + f". {kinds[0].upper()}{kinds[1:]} from the converged resamples"
+                   + (f"; '{NOT_AVAILABLE}': a threshold that some resamples gave no value, as the first lines say."
+                      if unavailable else "."),
                    values=(["Kind", "Variables", "Scale", "Estimate", "Bootstrap SE", "Percentile lower",
-                            "Percentile upper", *([] if ordinal else ["BCa lower", "BCa upper"])], values))
+                            "Percentile upper", *([] if ordinal else ["BCa lower", "BCa upper"]),
+                            *(["Resamples without a value"] if unavailable else [])], values))
     few = few_draws(boot.converged, 0.025, "converged resamples", "the interval ends" + (
         " and the Bollen-Stine p-value" if boot.bollen_stine_p is not None else ""))
     kept = not_admissible_sentence([(boot.inadmissible, boot.converged, boot.inadmissible_named, "")], "resamples",
@@ -1175,11 +1183,65 @@ def bootstrap_report(boot) -> Report:
     notice = _fit_notice(result)
     if lost:  # intervals conditional on what the left-out resamples lacked: in the first box, as cutoffs' samples
         notice = replace(notice, lines=notice.lines + (lost,)) if notice is not None else _notice([], [lost])
+    if unavailable:  # thresholds without an interval: in the first box, with what would give them one
+        without = _without_interval(boot, unavailable)
+        notice = replace(notice, lines=notice.lines + (without,)) if notice is not None else _notice([], [without])
     return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", notice, tuple(lines),
                   (table,) if boot.intervals else (),
                   tuple(result.warnings), (HIGH_STAKES_NOTE,),
                   warnings=((rare,) if rare else ()) + T.higher_order_cautions(result)
                   + ((kept,) if kept else ()) + ((few,) if few else ()))
+
+
+#: the interval cell of a threshold that some resamples gave no value (workflows.bootstrap.BootInterval.available)
+NOT_AVAILABLE = "not available"
+
+
+def _answers_words(values) -> str:
+    """'answer 1', 'answers 1 and 2', 'answers 4, 5, and 6'."""
+    return f"answer{'s' if len(values) > 1 else ''} {word_list([user_number(v) for v in values])}"
+
+
+def _fit_categories(boot) -> dict[str, tuple[float, ...]]:
+    """Each ordinal item's answer categories in the fit (item -> categories)."""
+    result = boot.fit
+    return {x: tuple(v for v, _ in cats) for x, cats in zip(result.observed, result.data.categories) if cats}
+
+
+def _without_interval(boot, unavailable) -> str:
+    """The first box's line on thresholds whose interval is not available: which, how many resamples gave each no
+    value and why, and what would give the merged threshold one."""
+    levels = _fit_categories(boot)
+    phrases = []
+    for i in unavailable:
+        item, step = i.variables[0], int(i.variables[1])
+        sides = [(n, levels[item][:step] if side < 0 else levels[item][step:])
+                 for n, side in ((i.lacked_below, -1), (i.lacked_above, 1)) if n]
+        held = "; ".join(f"{count_text(n)} of the {count_text(boot.converged)} converged resamples held no "
+                         f"{_answers_words(cats)} of {item}" for n, cats in sides)
+        phrases.append(f"{parameter_words(i.kind, i.variables, article=False)} ({held})")
+    return (f"No interval for {cut_list(phrases, 6, sep='; ', lead='; and ')}: a resample holding no answer on one side "
+            f"of a threshold gives it no value, and an interval from the other resamples alone would be too narrow "
+            f"(it could end at the estimate); every other interval comes from all {count_text(boot.converged)} "
+            f"converged resamples. Merge a rare category with its neighbour in a copy of the data to bootstrap the "
+            f"merged threshold")
+
+
+def lacked_sentence(lacking: int, converged: int, lacked, samples: str, kept_in: str) -> str:
+    """What the converged ``samples`` ('resamples', 'samples of the fitted model') that lacked an answer category of an
+    ordinal item were, and how they were kept (workflows.ordinal_resampling: fitted with the categories they held);
+    ``kept_in``: what they count in.  The one rule of the bootstrap, the cutoffs and power by simulation."""
+    listed = cut_list(lacked, 6, lambda c: f"{c.item} {user_number(c.category)} in {count_text(c.samples)}")
+    return (f"{count_text(lacking)} of the {count_text(converged)} converged {samples} lacked an answer category of an "
+            f"ordinal item ({listed}); each was fitted with the categories it held, as data lacking them would be, and "
+            f"kept in {kept_in}.")
+
+
+def _lacked_sentence(boot) -> str:
+    """What the resamples lacking an answer category were and how they were kept."""
+    return lacked_sentence(boot.resamples_lacking, boot.converged, boot.lacked, "resamples", "the intervals")[:-1] + (
+        ": a threshold next to a lacked category takes the value of the boundary the merged categories share, and "
+        "one with no answer on a side has no value there, so its interval is not available.")
 
 
 #: the share of resamples that could not be analysed from which the intervals are cautioned as conditional on what
@@ -1196,8 +1258,8 @@ def _resamples_left_out(boot, why: str) -> str:
         return ""
     return (f"{count_text(boot.failed)} of the {count_text(boot.replications)} resamples "
             f"({100 * boot.failed / boot.replications:.0f}%) could not be analysed ({why}) and are left out, so the "
-            f"intervals come only from resamples that kept what the others lacked (a rare answer category, say): the "
-            f"intervals of the estimates it touches, its thresholds above all, are too narrow, and one may end at the "
+            f"intervals come only from resamples that kept what the others lacked (two answers of a rarely answered "
+            f"item, say): the intervals of the estimates it touches are too narrow, and one may end at the "
             f"estimate. Merge a rare category with its neighbour in a copy of the data, or read those intervals as "
             f"too narrow")
 
@@ -1280,6 +1342,11 @@ def cutoffs_report(cut) -> Report:
         if cut.correct_rejected is not None:
             lines += (f"That test rejected the fitted model at .05 in {100 * cut.correct_rejected:.1f}% of the "
                       f"{count_text(cut.converged_correct)} samples drawn from it (nominal 5%).",)
+        if cut.lacking[0]:
+            lines += (lacked_sentence(cut.lacking[0], cut.converged_correct, cut.lacked, "samples of the fitted model",
+                                      "the distributions the cutoffs come from")
+                      + (f" So did {count_text(cut.lacking[1])} of the {count_text(cut.converged_misspecified)} of the "
+                         f"misspecified model." if cut.lacking[1] else ""),)
     few = few_draws(cut.replications, 0.05, "samples", "the cutoffs")
     kept = not_admissible_sentence([(count, converged, named, f" from the {whose}") for (count, named), converged, whose
                                     in zip(cut.inadmissible, (cut.converged_correct, cut.converged_misspecified),
@@ -1414,7 +1481,9 @@ def _ordinal_power_lines(result) -> list[str]:
     return [f"Ordinal items: latent responses cut at the population thresholds; each data set fitted by "
             f"{result.ordinal} on its thresholds and polychoric correlations, with robust standard errors.",
             f"The {ADJUSTED_TEST} test rejected the true model at alpha {unit(result.alpha, 2)} in "
-            f"{100 * result.model_rejected:.1f}% of the converged replications (nominal {100 * result.alpha:g}%)."]
+            f"{100 * result.model_rejected:.1f}% of the converged replications (nominal {100 * result.alpha:g}%)."] + (
+        [lacked_sentence(result.lacking, result.converged, result.lacked, "replications",
+                         f"every figure at N = {count_text(result.n_obs)}")] if result.lacking else [])
 
 
 def _inadmissible_cautions(results) -> tuple[str, ...]:
@@ -1509,6 +1578,8 @@ def power_curve_report(curve) -> Report:
         lines += [_ordinal_power_lines(first)[0], f"The {ADJUSTED_TEST} test rejected the true model at alpha "
                   f"{unit(first.alpha, 2)} in " + ", ".join(f"{100 * r.model_rejected:.1f}% at N = {count_text(r.n_obs)}"
                                                            for r in curve.results) + " of the converged replications."]
+        lines += [lacked_sentence(r.lacking, r.converged, r.lacked, f"replications at N = {count_text(r.n_obs)}",
+                                  "every figure of that size") for r in curve.results if r.lacking]
     lines += not_carried_line(first.not_carried)
     names = [label_words(p.label, article=False, observed=first.observed or None) for p in first.parameters]
     rows = [[name, *(unit(r.parameters[k].power, 2) for r in curve.results)] for k, name in enumerate(names)]

@@ -86,10 +86,24 @@ class BootInterval:
     percentile: tuple[float, float]
     bca: tuple[float, float]
     bootstrap_se: float
+    #: converged resamples in which this threshold has no value because they hold no answer below it (``lacked_below``)
+    #: or above it (``lacked_above``): its interval and standard error are then not available (NaN), never taken from
+    #: the other resamples alone (workflows.ordinal_resampling: the bootstrap rule of session 23)
+    lacked_below: int = 0
+    lacked_above: int = 0
+
+    @property
+    def available(self) -> bool:
+        """Whether the interval could be computed (every converged resample gave the parameter a value)."""
+        return not (self.lacked_below or self.lacked_above)
 
     def to_dict(self) -> dict:
-        return clean({"kind": self.kind, "variables": list(self.variables), "scale": self.scale, "estimate": self.estimate,
-                      "percentile_ci95": list(self.percentile), "bca_ci95": list(self.bca), "bootstrap_se": self.bootstrap_se})
+        out = {"kind": self.kind, "variables": list(self.variables), "scale": self.scale, "estimate": self.estimate,
+               "percentile_ci95": list(self.percentile), "bca_ci95": list(self.bca), "bootstrap_se": self.bootstrap_se}
+        if not self.available:
+            out.update(interval_available=False, resamples_without_answer_below=self.lacked_below,
+                       resamples_without_answer_above=self.lacked_above)
+        return clean(out)
 
 
 @dataclass(frozen=True, eq=False)
@@ -113,6 +127,11 @@ class BootstrapResult(Presentable):
     #: (assessment.admissibility.replicated_problems), kept in the intervals; their problems named with their counts
     inadmissible: int = 0
     inadmissible_named: str = ""
+    #: ordinal items: the answer categories some converged resamples lacked, with how many lacked each
+    #: (workflows.ordinal_resampling.LackedCategory)
+    lacked: tuple = ()
+    #: how many converged resamples lacked some answer category (each fitted with the categories it held, and kept)
+    resamples_lacking: int = 0
 
     def to_dict(self) -> dict:
         """The fit and, under "result", the bootstrap."""
@@ -122,6 +141,8 @@ class BootstrapResult(Presentable):
             "bollen_stine_p_value": self.bollen_stine_p, "bollen_stine_converged": self.bollen_stine_converged,
             "bollen_stine_not_computed": self.bollen_stine_not_computed,
             "inadmissible": self.inadmissible, "inadmissible_problems": self.inadmissible_named,
+            "resamples_lacking_a_category": self.resamples_lacking if self.lacked else None,
+            "categories_lacked": [c.to_dict() for c in self.lacked] or None,
             "intervals": [i.to_dict() for i in self.intervals]})}
 
 
@@ -511,10 +532,13 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
 def _bootstrap_ordinal(result: FitResult, spec, values: np.ndarray, replications: int, seed: int, workers, scheduler,
                        progress) -> BootstrapResult:
     """The bootstrap of a one-group ordinal fit (:mod:`cfa_tool.workflows.ordinal_resampling`): percentile intervals
-    only.  BCa's acceleration comes from the influence of each row on the ML estimates, which has no counterpart
+    only.  A resample lacking an answer category is fitted with those it holds and kept; a threshold with no answer on
+    one side of it there has no value, and its interval is not available (with the count of such resamples), never
+    taken from the other resamples alone, which would condition it on the rare answer being drawn (hostile s22: such
+    an interval ended at the estimate); every other interval comes from all converged resamples.  BCa's acceleration comes from the influence of each row on the ML estimates, which has no counterpart
     here, and the Bollen-Stine transformation of continuous rows has none for ordinal answers: the test stays the
     fit's adjusted one."""
-    from cfa_tool.workflows.ordinal_resampling import OrdinalFitting, Outcome, analysed_rows, resample
+    from cfa_tool.workflows.ordinal_resampling import OrdinalFitting, Outcome, analysed_rows, lacked_categories, resample
 
     fitting = OrdinalFitting.of_fit(spec, result, keep_levels=True)
     rows = analysed_rows(fitting, values)
@@ -526,21 +550,32 @@ def _bootstrap_ordinal(result: FitResult, spec, values: np.ndarray, replications
         raise EstimationError(f"{len(ok)} of {replications} bootstrap resamples could be fitted, too few for intervals; "
                               f"the model is too fragile for these data (check for Heywood cases, rare answer "
                               f"categories, or use more rows)")
-    intervals = _intervals(result, np.array([d.values for d in ok]), np.array([d.standardized for d in ok]))
+    lacked = np.array([d.lacked or (0,) * len(keys) for d in ok])
+    intervals = _intervals(result, np.array([d.values for d in ok]), np.array([d.standardized for d in ok]),
+                           lacked=lacked)
     count, named = counted_problems(d.problems for d in ok)  # as each resample's fit judged itself
+    lacking, lacked_each = lacked_categories(ok, result.observed)
     return BootstrapResult(fit=result, replications=replications, converged=len(ok), seed=seed, intervals=intervals,
                            bollen_stine_p=None, bollen_stine_converged=None,
                            failed=sum(d.outcome is Outcome.FAILED for d in draws), inadmissible=count,
-                           inadmissible_named=named)
+                           inadmissible_named=named, resamples_lacking=lacking, lacked=lacked_each)
 
 
 def _intervals(result: FitResult, values: np.ndarray, standardized: np.ndarray, accel_values: np.ndarray | None = None,
-               accel_std: np.ndarray | None = None) -> tuple[BootInterval, ...]:
+               accel_std: np.ndarray | None = None, lacked: np.ndarray | None = None) -> tuple[BootInterval, ...]:
     """The intervals of every free estimate (and of every loading's standardized value) from the draws (one row per
-    converged resample, one column per estimate row of ``result``); BCa ones where accelerations are given."""
+    converged resample, one column per estimate row of ``result``); BCa ones where accelerations are given.
+    ``lacked`` (same shape, ordinal items): -1 or 1 where a resample held no answer below or above a threshold, which
+    then has no value there; such a threshold's interval is not available, with those counts."""
     intervals = []
+    nan2 = (float("nan"), float("nan"))
     for e, row in enumerate(result.estimates):
         if not row.free and row.kind != "loading":
+            continue
+        if lacked is not None and lacked[:, e].any():
+            below, above = int(np.sum(lacked[:, e] < 0)), int(np.sum(lacked[:, e] > 0))
+            intervals.append(BootInterval(row.kind, row.variables, "unstandardized", row.estimate, nan2, nan2,
+                                          float("nan"), below, above))
             continue
         for scale, draws_e, point, accel in (
             ("unstandardized", values[:, e], row.estimate, None if accel_values is None else accel_values[e]),

@@ -94,6 +94,11 @@ class CutoffResult(Presentable):
     #: at most 0, so CFI is 0/0: the baseline model fits the sample no worse than the model): the CFI cutoffs come
     #: from the other samples, and the report says how many were left out (a CFI of 0/0 is no value to rank)
     without_cfi: tuple[int, int] = (0, 0)
+    #: ordinal items: converged samples of the fitted model and of the misspecified one that lacked an answer category
+    #: (fitted with the categories they held and kept: workflows.ordinal_resampling), and the categories the fitted
+    #: model's samples lacked with their counts (ordinal_resampling.LackedCategory)
+    lacking: tuple[int, int] = (0, 0)
+    lacked: tuple = ()
 
     @property
     def statistic(self) -> str:
@@ -112,6 +117,8 @@ class CutoffResult(Presentable):
             "inadmissible_problems_correct": self.inadmissible[0][1],
             "inadmissible_problems_misspecified": self.inadmissible[1][1],
             "cfi_not_defined_correct": self.without_cfi[0], "cfi_not_defined_misspecified": self.without_cfi[1],
+            **({"lacking_a_category_correct": self.lacking[0], "lacking_a_category_misspecified": self.lacking[1],
+                "categories_lacked_correct": [c.to_dict() for c in self.lacked]} if any(self.lacking) else {}),
             "cutoffs": [c.to_dict() for c in self.cutoffs]})}
 
 
@@ -232,7 +239,8 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
         sample = _sampler(spec, result, replications, seeds, workers, scheduler, progress, patterns)
         observed = {"cfi": result.fit.cfi, "rmsea": result.fit.rmsea, "srmr": result.fit.srmr}
     wrong, what, size = misspecify()
-    (correct, judged_correct), (mis, judged_mis) = sample(result.implied_covariance, n, True), sample(wrong, n, True)
+    (correct, judged_correct, lacked_correct), (mis, judged_mis, lacked_mis) = (sample(result.implied_covariance, n, True),
+                                                                                sample(wrong, n, True))
     if len(correct) < 10 or len(mis) < 10:
         raise OptionError("too few simulated fits converged to set cutoffs")
     found = _cutoffs(correct, mis)
@@ -273,7 +281,8 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
                         misspecification_size=size, correct_rejected=rejected,
                         pattern_rows=len(patterns) if patterns is not None else None,
                         inadmissible=(counted_problems(judged_correct), counted_problems(judged_mis)),
-                        without_cfi=(_without(correct, "cfi"), _without(mis, "cfi")))
+                        without_cfi=(_without(correct, "cfi"), _without(mis, "cfi")),
+                        lacking=(lacked_correct[0], lacked_mis[0]), lacked=lacked_correct[1])
 
 
 def _without(draws: np.ndarray, index: str) -> int:
@@ -298,8 +307,9 @@ def _ordinal_sampler(spec: Spec, result: FitResult, replications: int, seeds: np
                      scheduler, progress):
     """As :func:`_sampler` for a fit of ordinal items: latent responses cut at the fitted thresholds, each sample
     fitted by the fit's least squares; per converged sample its adjusted CFI and RMSEA, its SRMR and the adjusted
-    test's p-value (the same statistics the fit reports)."""
-    from cfa_tool.workflows.ordinal_resampling import OrdinalFitting, fit_thresholds, simulated_fit
+    test's p-value (the same statistics the fit reports); and how many lacked an answer category, with the categories
+    lacked (ordinal_resampling.lacked_categories: those samples are kept, as the bootstrap keeps its resamples)."""
+    from cfa_tool.workflows.ordinal_resampling import OrdinalFitting, fit_thresholds, lacked_categories, simulated_fit
 
     fitting = OrdinalFitting.of_fit(spec, result, keep_levels=False)
     thresholds = fit_thresholds(result)
@@ -310,7 +320,8 @@ def _ordinal_sampler(spec: Spec, result: FitResult, replications: int, seeds: np
         tasks = [(fitting, sigma, thresholds, n, int(s), ()) for s in states]
         draws = [d for d in run_tasks(simulated_fit, tasks, workers, scheduler, progress) if d.converged]
         return (np.array([(d.cfi, d.rmsea, d.srmr, d.p_value) for d in draws]).reshape(-1, len(INDICES) + 1),
-                [d.problems for d in draws])  # as each sample's fit judged itself
+                [d.problems for d in draws],  # as each sample's fit judged itself
+                lacked_categories(draws, fitting.names))
 
     return sample
 
@@ -324,14 +335,15 @@ def _sampler(spec: Spec, result: FitResult, replications: int, seeds: np.random.
     mean = result.groups[0].implied_mean if patterns is not None else None
     table, model = model_structure(spec, None, patterns is not None)
 
-    def sample(sigma: np.ndarray, n: int, judge: bool = False) -> tuple[np.ndarray, tuple[tuple[str, ...], ...]]:
-        """``judge``: also say why each sample is not admissible (only the samples the report counts: () else)."""
+    def sample(sigma: np.ndarray, n: int, judge: bool = False) -> tuple[np.ndarray, tuple[tuple[str, ...], ...], tuple]:
+        """``judge``: also say why each sample is not admissible (only the samples the report counts: () else); the
+        third element, the samples lacking an answer category, has none (continuous items)."""
         states = seeds.spawn(1)[0].generate_state(replications)
         tasks = [(spec, sigma, result.observed, n, int(s), result.theta, patterns, mean) for s in states]
         draws = [d for d in run_tasks(_replicate, tasks, workers, scheduler, progress,
                                       refits_together(REFITS_TOGETHER, len(result.theta)), batched=True) if d[0]]
         judged = replicated_problems(table, model, np.array([d[4] for d in draws])) if draws and judge else ()
-        return np.array([d[1:4] for d in draws]).reshape(-1, len(INDICES)), judged
+        return np.array([d[1:4] for d in draws]).reshape(-1, len(INDICES)), judged, (0, ())
 
     return sample
 

@@ -70,6 +70,10 @@ class MonteCarloPower(Presentable):
     #: the population the samples were drawn from (simulation.Population): every value, fixed ones included
     population: object = field(default=None, compare=False)
     inadmissible_named: str = ""
+    #: ordinal items: converged replications that lacked an answer category (fitted with the categories they held and
+    #: kept: workflows.ordinal_resampling), and the categories lacked with their counts (LackedCategory)
+    lacking: int = 0
+    lacked: tuple = ()
 
     @property
     def observed(self) -> tuple[str, ...]:
@@ -83,7 +87,9 @@ class MonteCarloPower(Presentable):
                 "population": self.population.values() if self.population is not None else None,
                 "ordinal_items_fitted_by": self.ordinal, "model_test_rejection_rate": self.model_rejected,
                 "inadmissible": self.inadmissible,
-                "inadmissible_problems": self.inadmissible_named, "not_carried_over": list(self.not_carried)}
+                "inadmissible_problems": self.inadmissible_named, "not_carried_over": list(self.not_carried),
+                **({"lacking_a_category": self.lacking, "categories_lacked": [c.to_dict() for c in self.lacked]}
+                   if self.lacking else {})}
 
 
 @dataclass(frozen=True)
@@ -199,7 +205,7 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
     population values are the population's on the latent responses' scale."""
     from cfa_tool.model.parameters import build_parameter_table
     from cfa_tool.pipeline.ordinal import ordinal_spec
-    from cfa_tool.workflows.ordinal_resampling import OrdinalFitting, simulated_fit
+    from cfa_tool.workflows.ordinal_resampling import OrdinalFitting, lacked_categories, simulated_fit
     from cfa_tool.workflows.simulation import on_latent_response_scale
 
     ordinal = ordinal_spec(spec)[0]  # (a statement setting a residual variance was refused by with_categories)
@@ -234,11 +240,12 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
             raise OptionError(f"no replication converged at N = {n}; check the population values and the sample size")
         thetas, ses = np.array([d.values for d in ok]), np.array([d.se for d in ok])
         count, named = counted_problems(d.problems for d in ok)  # as each replication's fit judged itself
+        lacking, lacked = lacked_categories(ok, population.observed)  # kept, as the bootstrap keeps its resamples
         powers.append(MonteCarloPower(n, replications, len(ok), alpha, seed,
                                       _parameter_rows(tuple(labels.values()), np.array(truth), thetas, ses, alpha),
                                       defaulted,
                                       weighting.phrase, float(np.mean([d.p_value < alpha for d in ok])),
-                                      count, population.not_carried, population, named))
+                                      count, population.not_carried, population, named, lacking, lacked))
     return powers[0] if len(sizes) == 1 else PowerCurve(tuple(powers))
 
 

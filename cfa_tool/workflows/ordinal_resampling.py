@@ -6,9 +6,16 @@ thresholds and polychoric correlations (two-step, Olsson 1979; :mod:`cfa_tool.da
 by the fit's own least-squares estimator with its robust standard errors and scale-shifted adjusted test
 (:func:`cfa_tool.pipeline.ordinal.fit_ordinal`).  Simulated ordinal answers are latent responses drawn from the
 model-implied correlation matrix and cut at the thresholds (the latent-response formulation; Muthén 1984).
-A sample whose answers cannot be analysed (an item left with one category, or, in a bootstrap resample, an
-answer category of the data that no resampled row gives, so that its thresholds would not match the fit's; its
-correlations not positive definite) is counted as failed, apart from the fits that did not converge; a sample
+A sample whose answers cannot be analysed (an item left with one category; its correlations not positive
+definite) is counted as failed, apart from the fits that did not converge.  A sample that lacks an answer category
+(a bootstrap resample that drew no row giving a rare answer, a simulated sample that no latent response cut into
+it) is fitted with the categories it holds, as any data set is, and kept: its correlations, loadings and fit
+indices are those of the same latent responses cut more coarsely.  Its thresholds are each placed by the categories
+below it (the threshold between answers c and c' is the one above the highest answer it holds up to c), so a
+lacked category between others leaves the thresholds on its two sides one value, the boundary of the categories
+it merged; only a threshold with no answer on one side (every category below it, or above it, lacked) has no
+value in that sample (minus or plus infinity), and it is returned as NaN with the side it lacked
+(:class:`Refit` ``lacked``), never dropped with the sample (bootstrap rule of session 23); a sample
 whose answers could be analysed but whose fit could not start (a fixed covariance beyond the variances its
 start gives, ImpossibleAtStart) or ended without an estimate (not identified, or a Heywood case without bound)
 counts with those that did not converge, as the shared refit of continuous items counts a start it cannot make
@@ -52,8 +59,9 @@ Key = tuple[str, tuple[str, ...]]  # (kind, variables) of an estimate row
 @dataclass(frozen=True)
 class OrdinalFitting:
     """How each sample is fitted: the model, the items (and which are continuous), the least-squares weighting,
-    whether rows with gaps are kept (pairwise present rows), and the answer categories every bootstrap resample
-    must keep (None for simulated samples, whose thresholds are not compared with the data's)."""
+    whether rows with gaps are kept (pairwise present rows), and the data's answer categories, by which a bootstrap
+    resample's thresholds are placed and what it lacks is named (None for simulated samples, whose thresholds are
+    not compared with the data's).  Every sample is fitted with the categories it holds (module docstring)."""
 
     spec: object
     names: tuple[str, ...]
@@ -77,8 +85,7 @@ class OrdinalFitting:
         frame = pd.DataFrame(rows, columns=list(self.names))
         with blas_threads_for(len(self.names)):
             try:
-                moments = ordinal_moments(frame, self.names, "<sample>", self.continuous, levels=self.levels,
-                                          pairwise=self.pairwise)
+                moments = ordinal_moments(frame, self.names, "<sample>", self.continuous, pairwise=self.pairwise)
             except CfaError:
                 return Outcome.FAILED
             try:
@@ -96,6 +103,11 @@ class Refit:
     values: np.ndarray
     standardized: np.ndarray
     se: np.ndarray
+    #: the answer categories of the data (the fit's) that this sample lacks, as (item, category) pairs
+    lost: tuple[tuple[str, float], ...] = ()
+    #: per asked-for estimate row, -1 for a threshold with no answer below it in this sample, 1 for one with none
+    #: above it (its value NaN), 0 otherwise; empty when nothing was lacked
+    lacked: tuple[int, ...] = ()
     cfi: float = float("nan")
     rmsea: float = float("nan")
     srmr: float = float("nan")
@@ -109,34 +121,106 @@ class Refit:
         return self.outcome is Outcome.CONVERGED
 
 
-def _refit(result: FitResult | Outcome, keys: tuple[Key, ...]) -> Refit:
+def lost_categories(result: FitResult, levels: dict[str, tuple[float, ...]]) -> tuple[tuple[str, float], ...]:
+    """The categories ``levels`` (item -> the data's answer categories) that the sample fitted in ``result`` lacks,
+    as (item, category) pairs in the items' order."""
+    held = dict(zip(result.observed, result.data.categories))
+    return tuple((item, float(v)) for item, cats in levels.items()
+                 for v in cats if v not in {c for c, _ in held.get(item, ())})
+
+
+def threshold_place(item_levels: tuple[float, ...], held: tuple[float, ...], step: int) -> tuple[int, int]:
+    """Where threshold ``step`` (1-based: between the data's answers ``item_levels[step - 1]`` and
+    ``item_levels[step]``) lies among the thresholds of a sample holding the answers ``held`` (sorted): (its step
+    there, 0) when the sample holds answers on both of its sides, the threshold above the highest answer it holds
+    up to ``item_levels[step - 1]``; (0, -1) when it holds none below it, (0, 1) when none above it (no value: the
+    proportion below it is 0 or 1)."""
+    below = int(np.searchsorted(np.asarray(held, dtype=float), item_levels[step - 1], side="right"))
+    if below == 0:
+        return 0, -1
+    if below == len(held):
+        return 0, 1
+    return below, 0
+
+
+def _refit(result: FitResult | Outcome, keys: tuple[Key, ...], levels: dict | None = None) -> Refit:
+    """What a worker sends back of one sample's fit ``result``; ``levels``: the answer categories of the data (a
+    bootstrap resample) or of the population (a simulated sample, answers 1..k), by which what the sample lacks is
+    named and its asked-for thresholds are placed (:func:`threshold_place`)."""
     nan = np.full(len(keys), np.nan)
     if isinstance(result, Outcome):
         return Refit(result, nan, nan, nan)
     if not result.converged or result.fit is None or result.robust is None:
         return Refit(Outcome.NOT_CONVERGED, nan, nan, nan)
     rows = {(r.kind, r.variables): r for r in result.estimates}
-    found = [rows.get(k) for k in keys]
-    if any(r is None for r in found):  # an item with fewer categories than the population's: no such threshold
+    lost = lost_categories(result, levels) if levels is not None else ()
+    lacked = [0] * len(keys)
+    if lost:
+        held = {x: tuple(c for c, _ in cats) for x, cats in zip(result.observed, result.data.categories)}
+        found = []
+        for k, (kind, variables) in enumerate(keys):
+            if kind == "threshold" and variables[0] in levels:
+                step, lacked[k] = threshold_place(levels[variables[0]], held[variables[0]], int(variables[1]))
+                found.append(rows.get((kind, (variables[0], str(step)))) if not lacked[k] else None)
+            else:
+                found.append(rows.get((kind, variables)))
+    else:
+        found = [rows.get(k) for k in keys]
+    if any(r is None and not side for r, side in zip(found, lacked)):  # an item with fewer categories than the
+        # population's (a simulated sample, whose thresholds are not asked for by place): no such threshold
         return Refit(Outcome.FAILED, nan, nan, nan)
-    return Refit(Outcome.CONVERGED, np.array([r.estimate for r in found]), np.array([r.standardized for r in found]),
-                 np.array([r.se for r in found]), result.robust.cfi_robust, result.robust.rmsea_robust,
+
+    def of(name: str) -> np.ndarray:
+        return np.array([np.nan if r is None else getattr(r, name) for r in found])
+
+    return Refit(Outcome.CONVERGED, of("estimate"), of("standardized"), of("se"), lost,
+                 tuple(lacked) if any(lacked) else (), result.robust.cfi_robust, result.robust.rmsea_robust,
                  result.fit.srmr, result.robust.p_value_scaled,
                  inadmissible_words(result.problems))
+
+
+@dataclass(frozen=True)
+class LackedCategory:
+    """An answer category of an ordinal item that some converged samples lacked (none of their rows gave it): those
+    samples were fitted with the categories they held and kept (module docstring)."""
+    item: str
+    category: float
+    samples: int
+
+    def to_dict(self) -> dict:
+        return {"item": self.item, "category": self.category, "samples": self.samples}
+
+
+def lacked_categories(refits, observed: tuple[str, ...]) -> tuple[int, tuple[LackedCategory, ...]]:
+    """How many of the converged ``refits`` lacked some answer category, and each category lacked (in the order of
+    the items ``observed`` and of their answers) with how many lacked it: which item lost which category, sample by
+    sample, counted."""
+    lost: dict[tuple[str, float], int] = {}
+    lacking = 0
+    for refit in refits:
+        if refit.converged and refit.lost:
+            lacking += 1
+            for pair in refit.lost:
+                lost[pair] = lost.get(pair, 0) + 1
+    order = {x: k for k, x in enumerate(observed)}
+    return lacking, tuple(LackedCategory(x, v, n) for (x, v), n in sorted(lost.items(),
+                                                                      key=lambda kv: (order[kv[0][0]], kv[0][1])))
 
 
 def resample(task) -> Refit:
     """One bootstrap resample: rows drawn with replacement, thresholds and correlations recomputed, refitted."""
     fitting, rows, seed, keys = task
     rng = np.random.default_rng(seed)
-    return _refit(fitting.fit(rows[rng.integers(0, len(rows), len(rows))]), keys)
+    return _refit(fitting.fit(rows[rng.integers(0, len(rows), len(rows))]), keys, fitting.levels)
 
 
 def simulated_fit(task) -> Refit:
     """One simulated sample of ``n`` rows: latent responses from ``sigma``, ordinal items cut at ``thresholds``."""
     fitting, sigma, thresholds, n, seed, keys = task
     latent = simulate_rows(sigma, n, np.random.default_rng(seed))
-    return _refit(fitting.fit(cut_at_thresholds(latent, sigma, fitting.names, thresholds)), keys)
+    # the answers 1..k the thresholds cut (simulation.cut_at_thresholds), by which a sample's lacked ones are named
+    answers = {x: tuple(float(c) for c in range(1, len(t) + 2)) for x, t in thresholds.items()}
+    return _refit(fitting.fit(cut_at_thresholds(latent, sigma, fitting.names, thresholds)), keys, answers)
 
 
 def analysed_rows(fitting: OrdinalFitting, values: np.ndarray) -> np.ndarray:

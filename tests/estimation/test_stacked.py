@@ -116,12 +116,69 @@ def test_replications_that_fail_fail_as_they_do_one_at_a_time(hs_three):
 
 
 def test_models_the_stacked_search_does_not_cover_are_fitted_one_at_a_time(resamples, hs_three):
-    spec = parse_model(THREE_FACTORS + "factor g: visual, textual, speed\n")
+    spec = parse_model(THREE_FACTORS + "bound variance(x3) >= 0.1\n")  # bounds: left to the full search
     table, model = model_structure(spec, None, False)
     assert not stackable(model)
     together = replicate_fits(spec, resamples[:5], None)
     for m, a in zip(resamples[:5], together):
         _same(a, replicate_fit(spec, m), tol=0)
+
+
+HIGHER = THREE_FACTORS + "factor g: visual, textual, speed\n"
+
+
+@pytest.fixture(scope="module")
+def higher_fit(hs_data):
+    import cfa_tool
+
+    return cfa_tool.fit(HIGHER, hs_data)
+
+
+def test_stacked_refits_of_a_higher_order_model_equal_one_fit_at_a_time(resamples, higher_fit):
+    """Session 23: higher-order factors (second-order loadings, paths in B) run in the stacked search, to the
+    estimates, standard errors and fit indices of the one-at-a-time search within 1e-8."""
+    spec = parse_model(HIGHER)
+    table, model = model_structure(spec, None, False)
+    assert model.higher_order and stackable(model)
+    assert (table.entry_arrays()[0] == 1).sum() == 3  # g -> visual fixed at 1, two free paths
+    found = fit_stacked(model, np.array([m.covariance for m in resamples]), higher_fit.theta)
+    assert found.converged.all() and (found.iterations > 0).all()  # in stacked arrays, not one by one
+    together = replicate_fits(spec, resamples, higher_fit.theta, standard_errors=True)
+    alone = [replicate_fit(spec, m, start=higher_fit.theta, standard_errors=True) for m in resamples]
+    assert sum(f.converged for f in together) == len(resamples)
+    for a, b in zip(together, alone):
+        _same(a, b, tol=1e-8)
+
+
+def test_the_stacked_derivatives_of_a_higher_order_model_are_the_closed_form_ones_and_the_differences(resamples,
+                                                                                                      higher_fit):
+    """Away from the minimum, where the second-derivative terms count: the stacked gradient, expected information and
+    observed Hessian equal the one-fit closed forms (estimation.ml.NormalLikelihood), and the Hessian equals
+    central differences of the stacked gradient (a handbook rule, Nocedal & Wright 2006, section 8.1)."""
+    from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood
+    from cfa_tool.estimation.stacked import StackedNormal
+
+    _, model = model_structure(parse_model(HIGHER), None, False)
+    samples = resamples[:4]
+    stacked = StackedNormal(model, np.array([m.covariance for m in samples]))
+    rng = np.random.default_rng(9)
+    theta = higher_fit.theta + 0.05 * rng.normal(size=(len(samples), len(higher_fit.theta)))
+    rows = np.arange(len(samples))
+    value, gradient, information, hessian, ok = stacked.evaluate(theta, rows)
+    assert ok.all()
+    for r, m in enumerate(samples):
+        one = NormalLikelihood(model, [GroupMoments(m.covariance, m.means, m.n_obs)])
+        ev = one.evaluate(theta[r])
+        assert value[r] == pytest.approx(ev.value, rel=1e-12)
+        np.testing.assert_allclose(gradient[r], ev.gradient, rtol=1e-9, atol=1e-11)
+        np.testing.assert_allclose(information[r], ev.information, rtol=1e-9, atol=1e-11)
+        np.testing.assert_allclose(hessian[r], one.observed_hessian(theta[r]), rtol=1e-9, atol=1e-10)
+    h = 1e-5
+    for k in range(theta.shape[1]):
+        step = np.zeros_like(theta)
+        step[:, k] = h
+        difference = (stacked.evaluate(theta + step, rows)[1] - stacked.evaluate(theta - step, rows)[1]) / (2 * h)
+        np.testing.assert_allclose(difference, hessian[:, :, k], rtol=1e-5, atol=1e-6)
 
 
 def test_stack_factorisations_mark_the_matrices_that_fail_and_solve_the_others_as_numpy_does_one_by_one():
