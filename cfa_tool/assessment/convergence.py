@@ -23,7 +23,7 @@ def two_item_factors(spec, labels: tuple[str, ...]) -> tuple[tuple[str, tuple[st
     other factors, and where those are near zero it is not identified in the data (empirical under-identification;
     Kenny 1979, as recalled; Bollen 1989, ch. 7)."""
     observed = set(spec.observed_names)
-    free = set(labels)
+    free = {label.split(" [", 1)[0] for label in labels}  # a group's parameters carry ' [group]' (hostile s23b)
     out = []
     for each in spec.factors:
         factor, items = str(each.name), tuple(str(x) for x in each.indicators)

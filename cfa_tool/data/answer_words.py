@@ -8,6 +8,8 @@ naming the file, column, row and the cell.
 
 from __future__ import annotations
 
+import re
+
 import numpy as np
 import pandas as pd
 
@@ -63,6 +65,10 @@ CODED_BY_STATEMENT = "coded_by_answers_statement"
 NUMBERS_ONLY = "answers_numbers_only"
 
 
+#: a value label that starts with its code: '1 Strongly agree', '5 - agree', '2: rarely', '1) never'
+_LABEL_CODE = re.compile(r"^\s*[-+]?\d+(?:[.,]\d+)?(?:\s*[-\u2013:=.)]\s*|\s+)(?=\S)")
+
+
 def refuse_labels_against_coding(codings: dict, value_labels: dict, source: str) -> None:
     """The data file's value labels (SPSS, Stata: value -> text, per column) must not give a number a word that the
     item's 'answers' statement codes as another number: a file labelled 1 = 'Strongly agree' read with a statement
@@ -80,6 +86,8 @@ def refuse_labels_against_coding(codings: dict, value_labels: dict, source: str)
             if not isinstance(number, (int, float, np.integer, np.floating)) or isinstance(number, (bool, np.bool_)):
                 continue
             word_code = words.get(answer_key(str(text)))
+            if word_code is None:  # a label that carries its code ('1 Strongly agree', '5 - agree')
+                word_code = words.get(answer_key(_LABEL_CODE.sub("", str(text)))) if _LABEL_CODE.match(str(text)) else None
             number_code = numbers.get(float(number))
             if word_code is not None and number_code is not None and word_code != number_code:
                 found.append((item, float(number), str(text).strip(), word_code, coding))
@@ -233,6 +241,12 @@ def _listed_answers(coding: AnswerCoding) -> tuple:
     return tuple((a.word, a.number, a.code) for a in coding.answers)
 
 
+def numbers_recoded(answers: tuple) -> bool:
+    """Whether a coding (:func:`coding_record`'s triples) gives a number another code (1 = 5): its numbers are then
+    said as coded, not as what each number means (hostile trial s23b: '1 = 5, ..., 5 = 1' was said backwards)."""
+    return any(w is None and n != c for w, n, c in answers)
+
+
 def named_codes(answers: tuple) -> tuple:
     """The (word, number, code) triples of a coding (:func:`coding_record`'s) with only its words, as (word, None,
     code): what each number means, said of answers read as numbers (:func:`coding_described`)."""
@@ -293,8 +307,10 @@ def answer_notes(spec: Spec, coded: tuple[str, ...] | None = None, numbers_only:
         numbers = [x for x in items if x in numbers_only]  # answers read as numbers: said apart, never as words
         items = [x for x in items if x not in numbers]
         if numbers:
-            notes.append(Note((f"the answers in {_which(numbers, spec)} were numbers, which mean "
-                               f"{coding_described(named_codes(_listed_answers(coding)))}",
+            listed = _listed_answers(coding)
+            notes.append(Note((f"the answers in {_which(numbers, spec)} were numbers, "
+                               + (f"coded {coding_described(listed)}" if numbers_recoded(listed) else
+                                  f"which mean {coding_described(named_codes(listed))}"),
                                _origin(coding, " ({})", _carried_words(coding)))))
         if not items:
             continue

@@ -285,7 +285,7 @@ def _code_rows(frame: pd.DataFrame, found, items) -> tuple[tuple[float, tuple], 
     return tuple((float(c), tuple(frame.index[(values == c).any(axis=1)].tolist())) for c in sorted(found))
 
 
-def sheet_of_each(sources, sheet: str | None) -> tuple[str | None, ...]:
+def sheet_of_each(sources, sheet: str | None, option: Option = Option.SHEET) -> tuple[str | None, ...]:
     """The sheet to read in each of several data sources (``sheet``: the one --sheet names): the workbooks among
     them, a CSV file or a data frame beside a workbook read as it is; an error when none is a workbook (a sheet that
     cannot apply)."""
@@ -295,7 +295,7 @@ def sheet_of_each(sources, sheet: str | None) -> tuple[str | None, ...]:
     if not any(workbook):
         named = " and ".join(f"'{printable(str(s))}'" if isinstance(s, (str, Path)) else "a data frame" for s in sources)
         raise DataError(f"none of {named} is an Excel workbook, so a sheet ('{printable(str(sheet))}') cannot be "
-                        f"chosen; leave {Option.SHEET} out")
+                        f"chosen; leave {option} out")
     return tuple(sheet if w else None for w in workbook)
 
 

@@ -1289,7 +1289,9 @@ def few_answers_problems(names: tuple[str, ...], coverage: dict, n_obs: int | No
     rows with gaps leave the analysis, so every item is answered by every row analysed."""
     constant = _nearly_constant_problems(names, loaded, group)
     if group is not None and loaded is not None and group in loaded.frame.columns:
-        return (() if listwise else _few_answers_in_groups(names, loaded, group)) + constant
+        # under listwise deletion too: an item few rows answer leaves the others out (hostile s23b: an item of 3%
+        # of the rows, which left 97% of each group out, was named with one group and not with groups)
+        return _few_answers_in_groups(names, loaded, group) + constant
     few = {x: share for x, share in coverage.items() if share < FEW_ANSWERS_SHARE}
     together = () if listwise or loaded is None else _few_together_problems(names, loaded, None, tuple(few))
     if not few or not n_obs:
@@ -1393,7 +1395,7 @@ def _few_answers_in_groups(names: tuple[str, ...], loaded: LoadedData, group: st
             continue
         few_items[label] = tuple(x for x, _ in few)
         one = len(few) == 1
-        listed = cut_list(few, 5, lambda f: f"'{printable(f[0])}' ({f[1]} of {n} rows)")
+        listed = cut_list(few, 5, lambda f: f"'{printable(f[0])}' ({f[1]:,} of {n:,} rows)")
         found.append(Problem(  # the views name the group first ('Group south: '), and the JSON its 'group'
             ProblemKind.FEW_ANSWERS, (), min(c / n for _, c in few),
             f"Few of this group's rows answer {'the item' if one else 'the items'} {listed}: the group's "

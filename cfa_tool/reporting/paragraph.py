@@ -25,7 +25,7 @@ from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, desi
 from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors, uncorrelated_pairs
 from cfa_tool.assessment.reliability import BifactorPart, Keying, miskeyed
 from cfa_tool.data.non_answers import non_answer_clause
-from cfa_tool.data.answer_words import coding_described, named_codes
+from cfa_tool.data.answer_words import coding_described, named_codes, numbers_recoded
 from cfa_tool.data.descriptives import FEW_CATEGORIES
 from cfa_tool.data.odd_values import OddKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
@@ -960,7 +960,11 @@ def answer_coding_sentence(data) -> str:
         return ""
     numbers = set(getattr(data, "numbers_only", ()))  # items whose answers held no word: their numbers were read
     worded = tuple((tuple(x for x in items if x not in numbers), answers) for items, answers in record)
-    read = tuple((tuple(x for x in items if x in numbers), named_codes(answers)) for items, answers in record)
+    read = tuple((tuple(x for x in items if x in numbers), named_codes(answers)) for items, answers in record
+                 if not numbers_recoded(answers))
+    # numbers the statement codes as other numbers (1 = 5, ..., 5 = 1): said as coded, never as the numbers' meaning
+    recoded = tuple((tuple(x for x in items if x in numbers), answers) for items, answers in record
+                    if numbers_recoded(answers))
     variables = set(getattr(data, "variables", ()))
 
     def said(entries: tuple, opening: str) -> str:
@@ -973,7 +977,8 @@ def answer_coding_sentence(data) -> str:
                                          for items, answers in entries) + "."
 
     return " ".join(s for s in (said(worded, "Answers recorded as words were coded"),
-                                said(read, "Answers were recorded as the numbers")) if s)
+                                said(read, "Answers were recorded as the numbers"),
+                                said(recoded, "Answers recorded as numbers were coded")) if s)
 
 
 def _matrix_sentence(result, subject: str = "The model was") -> str:

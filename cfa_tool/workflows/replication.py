@@ -598,8 +598,11 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     one_group_only(spec, "replication fits one group's model in each sample")
     sheets = sheet_of_each((calibration, validation), sheet)
     if validation_sheet is not None:  # the validation workbook's own sheet (new-user trial s23: one sheet per wave)
-        sheets = (sheets[0], sheet_of_each((validation,), validation_sheet)[0])
-    if _same_file(calibration, validation) and (validation_sheet is None or sheets[0] == sheets[1]):
+        sheets = (sheets[0], sheet_of_each((validation,), validation_sheet, Option.VALIDATION_SHEET)[0])
+    if _same_file(calibration, validation) and validation_sheet is not None and sheets[0] == sheets[1]:
+        raise OptionError(f"{Option.SHEET} and {Option.VALIDATION_SHEET} name the same sheet of one workbook "
+                          f"('{sheets[0]}'); replication checks the model in new data: name the other sample's sheet")
+    if _same_file(calibration, validation) and validation_sheet is None:
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
                           f"new data ({_one_file_instead()}"
                           + (f"; or give the sheets of one workbook: {Option.SHEET} and {Option.VALIDATION_SHEET})"

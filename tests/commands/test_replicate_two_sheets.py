@@ -56,7 +56,7 @@ def test_the_same_sheet_twice_or_a_sheet_without_its_file_is_refused(workbook, t
     assert "the same file" in err and "--sheet and --validation-sheet" in err and len(err.strip().splitlines()) == 1
     assert main(["replicate", model, "--calibration", str(workbook), "--validation", str(workbook),
                  "--sheet", "spring", "--validation-sheet", "spring"]) == 2
-    assert "the same file" in capsys.readouterr().err
+    assert "--sheet and --validation-sheet name the same sheet of one workbook ('spring')" in capsys.readouterr().err
     assert main(["replicate", model, "--data", str(workbook), "--validation-sheet", "autumn"]) == 2
     assert "--validation-sheet names the sheet of the --validation file, and no --validation file is given" \
         in capsys.readouterr().err
@@ -64,4 +64,5 @@ def test_the_same_sheet_twice_or_a_sheet_without_its_file_is_refused(workbook, t
     _sample(2).to_csv(csv, index=False)
     assert main(["replicate", model, "--calibration", str(workbook), "--validation", str(csv),
                  "--sheet", "spring", "--validation-sheet", "autumn"]) == 2
-    assert "is an Excel workbook" in capsys.readouterr().err
+    err = capsys.readouterr().err
+    assert "is an Excel workbook" in err and "leave --validation-sheet out" in err

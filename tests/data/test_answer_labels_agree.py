@@ -94,3 +94,30 @@ def test_a_file_of_words_still_says_words_and_a_mixed_file_says_each(tmp_path):
     assert any(n.startswith("answers recorded as words in 3 items (seat, clean, quiet) were coded") for n in notes)
     assert any(n.startswith("the answers in 3 items (driver, info, punctual) were numbers, which mean 1 (Strongly "
                             "disagree) to 5 (Strongly agree)") for n in notes)
+
+
+def test_labels_that_carry_their_code_are_checked_too(tmp_path):
+    # hostile trial s23b (08): labels written '1 Strongly agree' (the code before the word, as some exports write
+    # them) on a scale stored the other way round fitted with exit 0
+    data = tmp_path / "coded.dta"
+    pyreadstat.write_dta(_answers(), str(data), variable_value_labels={
+        x: {k + 1: f"{k + 1} {w}" for k, w in enumerate(WORDS[::-1])} for x in ITEMS})
+    with pytest.raises(DataError, match=r"value labels of column 'seat' name 1 '1 Strongly agree', which the 'answers' "
+                                        r"statement on line 3 codes as 5"):
+        cfa_tool.fit(PLAIN + STATEMENT, data)
+
+
+def test_numbers_the_statement_recodes_are_said_as_coded():
+    # hostile trial s23b (01): '1 = 5, ..., 5 = 1' (answers stored the other way round, recoded by the statement)
+    # was said as 'recorded as the numbers 1 (Strongly disagree) to 5 (Strongly agree)', backwards
+    frame = _answers()
+    recoding = ("answers " + ", ".join(f'"{w}" = {k + 1}' for k, w in enumerate(WORDS)) + ", "
+                + ", ".join(f"{k} = {6 - k}" for k in range(1, 6)) + "\n")
+    result = cfa_tool.fit(PLAIN + recoding, frame)
+    reference = cfa_tool.fit(PLAIN, 6 - frame)  # the recoded numbers themselves
+    assert result.fit.chi_square == pytest.approx(reference.fit.chi_square, rel=1e-10)
+    paragraph = " ".join(methods_paragraph(result).split())
+    assert "recorded as the numbers 1 (Strongly disagree)" not in paragraph
+    assert "Answers recorded as numbers were coded 1 (Strongly disagree, 5), 2 (Disagree, 4)" in paragraph
+    notes = " ".join(" ".join(str(w).split()) for w in result.warnings)
+    assert "which mean" not in notes and "were numbers, coded 1 (Strongly disagree, 5)" in notes

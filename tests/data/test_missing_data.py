@@ -387,3 +387,9 @@ def test_an_item_answered_by_few_rows_is_named_first():
     assert listwise.n_obs == 15
     said = next(p.explanation for p in listwise.problems if p.kind is ProblemKind.FEW_ANSWERS)
     assert "Few rows answer the item 'e' (15 of 200 rows read)" in said
+    # and with groups (hostile trial s23b, 07: the caution was dropped under listwise deletion with a group column),
+    # counts past 999 with their separator (06)
+    grouped = pd.concat([data] * 12, ignore_index=True).assign(site=["east"] * 1200 + ["west"] * 1200)
+    found = cfa_tool.fit("factor f: a, b, c, d, e\n", grouped, missing="listwise", group="site")
+    said = [p.explanation for p in found.problems if p.kind is ProblemKind.FEW_ANSWERS]
+    assert len(said) == 2 and all("'e' (90 of 1,200 rows)" in " ".join(str(s).split()) for s in said)

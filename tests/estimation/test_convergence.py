@@ -327,3 +327,32 @@ def test_a_two_item_factor_not_identified_in_the_data_is_named_with_its_remedy()
     assert "raise the limit" not in said
     held = cfa_tool.fit("factor a: a1..a4\nfactor b: b1, b2\nequal loading(b, b1), loading(b, b2)\n", frame)
     assert held.converged  # the remedy advised identifies it
+
+
+def test_the_two_item_factor_is_named_with_groups_too():
+    # hostile trial s23b (03): with a group column the parameters' names carry ' [group]', and the lookup of the
+    # two-item factor's free loadings found none: the error named no factor and advised a higher limit again
+    import numpy as np
+    import pandas as pd
+
+    import cfa_tool
+    from cfa_tool.errors import EstimationError
+
+    rng = np.random.default_rng(2)
+    frames = []
+    for label in ("east", "west"):
+        F = rng.multivariate_normal([0, 0], [[1, .05], [.05, 1]], 150)
+        d = {f"a{j + 1}": l * F[:, 0] + rng.normal(0, np.sqrt(1 - l * l), 150) for j, l in enumerate([.7, .7, .6, .6])}
+        d.update({f"b{j + 1}": l * F[:, 1] + rng.normal(0, np.sqrt(1 - l * l), 150) for j, l in enumerate([.95, .3])})
+        frames.append(pd.DataFrame(d).assign(site=label))
+    frame = pd.concat(frames, ignore_index=True).round(3)
+    try:
+        cfa_tool.fit("factor a: a1..a4\nfactor b: b1, b2\n", frame, group="site")
+    except EstimationError as raised:
+        said = str(raised)
+        assert "the factor 'b' (b1, b2) has two items" in said and "raise the limit" not in said
+    from cfa_tool.assessment.convergence import two_item_factors
+
+    spec = cfa_tool.parse_model("factor a: a1..a4\nfactor b: b1, b2\n")
+    assert two_item_factors(spec, ("loading(a, a2) [east]", "loading(b, b2) [east]", "loading(b, b2) [west]")) \
+        == (("b", ("b1", "b2")),)
