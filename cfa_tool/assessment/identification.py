@@ -61,8 +61,11 @@ def _scale_shared_with_first_group(table: ParameterTable, j: int, g: int) -> boo
     return any(par.terms in first for par in table.parameters if par.group == g and par.matrix in ("L", "B") and par.col == j and par.free)
 
 
-def check_information_rank(information: np.ndarray, labels: tuple[str, ...], factor: ScaledFactor | None = None) -> None:
-    """Raise if the information matrix is (numerically) singular, naming the parameters involved; ``factor``:
+def check_information_rank(information: np.ndarray, labels: tuple[str, ...], factor: ScaledFactor | None = None,
+                           two_items: tuple[tuple[str, tuple[str, str]], ...] = ()) -> None:
+    """Raise if the information matrix is (numerically) singular, naming the parameters involved (and, when they hold
+    a loading of a two-item factor among ``two_items``, :func:`~cfa_tool.assessment.convergence.two_item_factors`, that
+    factor with the language's remedy); ``factor``:
     :func:`~cfa_tool.numerics.linalg.scaled_factor` of it when the caller has made it (the standard errors and the
     score tests read the same factor)."""
     if information.size == 0:
@@ -77,6 +80,17 @@ def check_information_rank(information: np.ndarray, labels: tuple[str, ...], fac
     vals, vecs = np.linalg.eigh(normalised)
     weights = np.abs(vecs[:, 0])
     involved = [labels[k] for k in np.argsort(-weights) if weights[k] > 0.1][:6]
+    bases = {label.split(" [", 1)[0] for label in involved}
+    pair = next(((f, items) for f, items in two_items if any(f"loading({f}, {x})" in bases for x in items)), None)
+    if pair is not None:  # a two-item factor's loadings among them (hostile s23b: advice to fix a residual variance)
+        f, (a, b) = pair
+        raise NotIdentified(
+            f"the model is not identified with these data (the information matrix is singular); the parameters "
+            f"involved are: {', '.join(involved)}: the factor '{f}' has two items ({a}, {b}) and is identified only "
+            f"through its covariances with the other factors, which these data leave near zero (empirical "
+            f"under-identification); hold its two loadings equal ('equal loading({f}, {a}), loading({f}, {b})')",
+            tuple(involved),
+        )
     raise NotIdentified(
         "the model is not identified with these data (the information matrix is singular); "
         f"the parameters involved are: {', '.join(involved)}; fix one of them or add constraints",

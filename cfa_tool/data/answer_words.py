@@ -69,6 +69,22 @@ NUMBERS_ONLY = "answers_numbers_only"
 _LABEL_CODE = re.compile(r"^\s*[-+]?\d+(?:[.,]\d+)?(?:\s*[-\u2013:=.)]\s*|\s+)(?=\S)")
 
 
+def _numbers_by_labels(labels: dict, words: dict) -> str:
+    """'1 = 5, 2 = 4, ...': each labelled number with the code its label's word has in a statement (``words``: the
+    statement's codes by word), '' when no label is one of its words."""
+    pairs = []
+    for value, text in labels.items():
+        number = strict_number(str(value).strip()) if isinstance(value, str) else value
+        if not isinstance(number, (int, float, np.integer, np.floating)) or isinstance(number, (bool, np.bool_)):
+            continue
+        code = words.get(answer_key(str(text)))
+        if code is None and _LABEL_CODE.match(str(text)):
+            code = words.get(answer_key(_LABEL_CODE.sub("", str(text))))
+        if code is not None:
+            pairs.append((float(number), code))
+    return ", ".join(f"{user_number(n)} = {user_number(c)}" for n, c in sorted(pairs))
+
+
 def refuse_labels_against_coding(codings: dict, value_labels: dict, source: str) -> None:
     """The data file's value labels (SPSS, Stata: value -> text, per column) must not give a number a word that the
     item's 'answers' statement codes as another number: a file labelled 1 = 'Strongly agree' read with a statement
@@ -153,6 +169,11 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
         for value in distinct:
             code, wrong = _code_of(value, words, numbers)
             if wrong == "number" and not any(isinstance(v, str) and answer_key(v) in words for v in distinct):
+                labelled = _numbers_by_labels((value_labels or {}).get(item) or {}, words)
+                if labelled:  # numbers the file labels with the statement's words (hostile s23b): how to list them
+                    raise DataError(f"{source}: column '{printable(item)}' holds numbers whose value labels are the "
+                                    f"words of {coding.origin}, not the words themselves; list the numbers in the "
+                                    f"statement with the codes their labels' words have there: {labelled}")
                 raise DataError(f"{source}: column '{printable(item)}' holds numbers, not the words of {coding.origin} "
                                 f"('{_shown(value)}' in {_first_row(column, value, row_numbers(column))}); "
                                 + ("name the items whose answers are words with 'for ITEMS' at the end of the statement"

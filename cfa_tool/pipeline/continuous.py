@@ -463,7 +463,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         evaluation = likelihood.evaluate(theta)
         information = evaluation.information
         factor = scaled_factor(information)  # read by the rank check, the standard errors and the score tests
-        check_information_rank(information, table.free_labels, factor)
+        check_information_rank(information, table.free_labels, factor, two_item_factors(spec, table.free_labels))
         per_group = []
         for g, gm in enumerate(likelihood.groups):
             dev = gm.mean - mats[g].implied_mean() if means else None
@@ -523,7 +523,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         # a model that is not identified often shows itself by not converging: say so when it is the cause
         evaluation = likelihood.evaluate(theta)
         if not identification_known and evaluation is not None and np.all(np.isfinite(evaluation.information)):
-            check_information_rank(evaluation.information, table.free_labels)
+            check_information_rank(evaluation.information, table.free_labels,
+                                   two_items=two_item_factors(spec, table.free_labels))
     small, small_notes = group_size_problems(table, [m.n_obs for _, m in groups])
     warnings.extend(small_notes)
     problems = left_out + small + tuple(solution_problems(

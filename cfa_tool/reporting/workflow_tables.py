@@ -371,7 +371,7 @@ def comparison_report(comparison) -> Report:
     cautions = [p.line() for p in comparison.problems]  # the data's, first
     cautions += _design_caution_lines(named) + _caution_lines(named)
     if comparison.heavy_tails:  # normal-theory differences over heavy-tailed answers
-        cautions.append(heavy_tails_caution(comparison.heavy_tails, "a rejected restriction"))
+        cautions.append(heavy_tails_caution(comparison.heavy_tails, "a restriction the difference test rejects"))
     full_information = comparison.missing is MissingData.FULL_INFORMATION
     pairwise = comparison.missing is MissingData.PAIRWISE
     if full_information or pairwise:

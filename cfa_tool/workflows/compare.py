@@ -36,6 +36,7 @@ from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import ORDINAL_FIT_CHANGE_WHY, FitTest, MissingData
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.nesting import (DifferenceTest, boundary_of, difference_test, heavy_tailed_groups, is_nested,
+                                       tails_not_judged_note,
                                        probably_equivalent, scaled_difference_tests, scaling_at_restricted)
 from cfa_tool.views import Presentable
 
@@ -255,8 +256,10 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         notes = list(notes) + reference_note(results, complete, group, reference_group)
         tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
         normal_theory = bool(tests) and all(r.robust is None for r in results if r.converged)
-        heavy = heavy_tailed_groups([m for _, m in data_groups[0]], tuple(label for label, _ in data_groups[0])
-                                    if group is not None else None) if normal_theory else ()
+        heavy, unjudged = heavy_tailed_groups([m for _, m in data_groups[0]], tuple(label for label, _ in data_groups[0])
+                                              if group is not None else None) if normal_theory else ((), ())
+        if unjudged:
+            notes = list(notes) + [tails_not_judged_note(unjudged)]
         return _some_estimated(_with_data_problems(Comparison(tuple(names), tuple(results), tuple(tests),
                                                               tuple(not_nested), len(complete), dropped,
                                                               fit_options.missing, tuple(notes),

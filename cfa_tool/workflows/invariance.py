@@ -45,7 +45,8 @@ from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.numerics.threads import blas_threads_for
-from cfa_tool.workflows.nesting import DifferenceTest, heavy_tailed_groups, heavy_tails_caution, scaled_difference
+from cfa_tool.workflows.nesting import (DifferenceTest, heavy_tailed_groups, heavy_tails_caution, scaled_difference,
+                                       tails_not_judged_note)
 from cfa_tool.views import Presentable
 from cfa_tool.method import ORDINAL_FIT_CHANGE, Choice, DecisionRule, MissingData  # (declared with the other choices; imported from here too)
 
@@ -660,8 +661,10 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                   if p.kind is ProblemKind.SMALL_GROUP)
     # a normal-theory ladder over heavy-tailed answers: its differences reject too often (fit says so beside its
     # normality tests; a ladder, whose decisions are those differences, among its cautions)
-    heavy = (heavy_tailed_groups([m for _, m in groups], labels)
-             if not ordinal_items and steps[0].result.robust is None else ())
+    heavy, tails_unjudged = (heavy_tailed_groups([m for _, m in groups], labels)
+                             if not ordinal_items and steps[0].result.robust is None else ((), ()))
+    if tails_unjudged:
+        notes = list(notes) + [tails_not_judged_note(tails_unjudged)]
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
                             tuple(impossible) + data_cautions + small + tuple(warnings)
                             + ((heavy_tails_caution(heavy, "a step that did not hold"),) if heavy else ()), rule,

@@ -26,31 +26,45 @@ from cfa_tool.pipeline.results import FitResult, clean
 NESTING_TOLERANCE = 1e-7  # minimum discrepancy below which the implied moments count as reproduced
 
 
-def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None) -> tuple[str, ...]:
+def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None
+                        ) -> tuple[tuple[str, ...], tuple[str, ...]]:
     """The groups (``labels``; None: one group of rows) whose answers are heavier-tailed than normal by Mardia's
     (1970) kurtosis test at .05 (each group's complete rows), each said with its z: 'group south (z = 12.3)', or
     'these rows (z = 12.3)' for one group.  Normal-theory chi-square statistics and their differences then reject
     models that hold far more often than their level (Curran, West & Finch 1996: kurtosis, not skewness, inflates
-    them; light tails, as a short answer scale has, make them conservative instead, so those are not named)."""
+    them; light tails, as a short answer scale has, make them conservative instead, so those are not named); and the
+    groups whose complete rows are too few to judge (items + 2 or fewer: rows with gaps everywhere, fitted by
+    full-information ML), said apart (hostile trial s23b: the caution vanished without a word when every row had a
+    gap), as (found, not judged)."""
     from cfa_tool.assessment.normality import mardia
     from cfa_tool.language.names import written_group
 
-    found = []
+    found, unjudged = [], []
     for k, m in enumerate(moments):
         rows = getattr(m, "rows", None)
         if rows is None:
             continue
+        where = "these rows" if labels is None else f"group {written_group(labels[k], labels)}"
         rows = rows[~np.isnan(rows).any(axis=1)]
         if len(rows) <= rows.shape[1] + 1:
+            unjudged.append(f"{where} ({len(rows):,} complete rows)")
             continue
         try:
             n = mardia(rows)
         except np.linalg.LinAlgError:
             continue
         if n.kurtosis_p_value < 0.05 and n.kurtosis_z > 0:
-            where = "these rows" if labels is None else f"group {written_group(labels[k], labels)}"
             found.append(f"{where} (z = {n.kurtosis_z:.1f})")
-    return tuple(found)
+    return tuple(found), tuple(unjudged)
+
+
+def tails_not_judged_note(unjudged: tuple[str, ...]) -> Note:
+    """The note on groups whose tails :func:`heavy_tailed_groups` could not judge: normal-theory differences assume
+    normal tails, which these rows cannot show."""
+    return Note((f"Whether the answers have heavier tails than normal ones (Mardia's multivariate kurtosis, which "
+                 f"needs complete rows) could not be judged in {cut_list(list(unjudged), 4)}: over heavy tails "
+                 f"normal-theory chi-square differences reject restrictions that hold more often than their level; "
+                 f"the scaled differences", Command(f" ({Option.ROBUST})"), " do not assume normal tails."))
 
 
 def heavy_tails_caution(found: tuple[str, ...], decided: str) -> Note:

@@ -649,6 +649,11 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     # what each file read as no answer, as fit keeps it (with_missing_reading, the filters too): the paragraph names it
     cal, loose = (with_missing_reading(result.calibration_result, read[0], missing_codes),
                   with_missing_reading(result.loose, read[1], missing_codes))
+    # the methods paragraph describes both samples from the calibration's data: an item is said to be read as numbers
+    # only when both files held numbers alone (hostile s23b: the validation file's words were said to be numbers)
+    both = tuple(x for x in cal.data.numbers_only if x in loose.data.numbers_only)
+    if both != cal.data.numbers_only:
+        cal = replace(cal, data=replace(cal.data, numbers_only=both))
     rows = tuple(replace(r, in_file=fitted.data.rows_in_file) for r, fitted in zip(result.rows, (cal, loose)))
     return replace(result, calibration_result=cal, loose=loose, rows=rows, data_problems=found + left_out,
                    notes=tuple(dict.fromkeys(n for file_notes in notes for n in file_notes)),

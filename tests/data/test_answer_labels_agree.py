@@ -121,3 +121,35 @@ def test_numbers_the_statement_recodes_are_said_as_coded():
     assert "Answers recorded as numbers were coded 1 (Strongly disagree, 5), 2 (Disagree, 4)" in paragraph
     notes = " ".join(" ".join(str(w).split()) for w in result.warnings)
     assert "which mean" not in notes and "were numbers, coded 1 (Strongly disagree, 5)" in notes
+
+
+def test_replicate_of_numbers_and_words_says_each_file(tmp_path):
+    # hostile trial s23b (05): numbers in the calibration file, words in the validation file; the notes named no
+    # file and the paragraph said both samples were recorded as numbers
+    from cfa_tool.reporting.paragraph import replication_paragraph
+
+    frame = _answers()
+    cal, val = tmp_path / "cal.csv", tmp_path / "val.csv"
+    frame.iloc[:150].to_csv(cal, index=False)
+    frame.iloc[150:].apply(lambda c: c.map(lambda v: WORDS[int(v) - 1])).to_csv(val, index=False)
+    found = cfa_tool.replicate(PLAIN + STATEMENT, cal, val)
+    notes = [" ".join(str(n).split()) for n in found.notes]
+    assert any(n.startswith(f"{cal}: the answers in every item were numbers") for n in notes)
+    assert any(n.startswith(f"{val}: answers recorded as words in every item were coded") for n in notes)
+    paragraph = " ".join(replication_paragraph(found).split())
+    assert "recorded as the numbers" not in paragraph and "Answers recorded as words were coded" in paragraph
+
+
+@pytest.mark.parametrize("reversed_labels, listed", [(False, "1 = 1, 2 = 2, 3 = 3, 4 = 4, 5 = 5"),
+                                                     (True, "1 = 5, 2 = 4, 3 = 3, 4 = 2, 5 = 1")])
+def test_labelled_numbers_read_with_a_statement_of_words_get_the_numbers_to_list(tmp_path, reversed_labels, listed):
+    # hostile trial s23b (10): the advice was to name the items whose answers are words with 'for ITEMS', which no
+    # item is; the labels say how each number is to be listed, and reversed labels show it in the list
+    data = tmp_path / "wave.dta"
+    _stata(data, _answers(), reversed_labels=reversed_labels)
+    words_only = "answers " + ", ".join(f'"{w}" = {k + 1}' for k, w in enumerate(WORDS)) + "\n"
+    with pytest.raises(DataError) as raised:
+        cfa_tool.fit(PLAIN + words_only, data)
+    said = str(raised.value)
+    assert "holds numbers whose value labels are the words of the 'answers' statement on line 3" in said
+    assert said.endswith(f"their labels' words have there: {listed}") and "for ITEMS" not in said

@@ -356,3 +356,30 @@ def test_the_two_item_factor_is_named_with_groups_too():
     spec = cfa_tool.parse_model("factor a: a1..a4\nfactor b: b1, b2\n")
     assert two_item_factors(spec, ("loading(a, a2) [east]", "loading(b, b2) [east]", "loading(b, b2) [west]")) \
         == (("b", ("b1", "b2")),)
+
+
+def test_a_two_item_factor_scaled_by_its_variance_is_named_when_the_information_is_singular():
+    # hostile trial s23b (04): under 'scale latent by variance' the run stopped with 'variance(c2), loading(fc, c2);
+    # fix one of them', advice to fix an item's residual variance; the two-item factor and its remedy went unnamed
+    import numpy as np
+    import pandas as pd
+
+    import cfa_tool
+    from cfa_tool.assessment.identification import check_information_rank
+    from cfa_tool.errors import CfaError
+
+    spec = cfa_tool.parse_model("factor fa: a1, a2, a3\nfactor fc: c1, c2\nscale latent by variance\n")
+    from cfa_tool.assessment.convergence import two_item_factors
+
+    labels = ("loading(fa, a1)", "loading(fc, c1)", "loading(fc, c2)", "variance(c2)")
+    two = two_item_factors(spec, labels)
+    assert two == (("fc", ("c1", "c2")),)
+    singular = np.diag([1.0, 1.0, 1.0, 1.0])
+    singular[1:, 1:] = 1.0  # the two loadings and the residual variance move together
+    with pytest.raises(CfaError) as raised:
+        check_information_rank(singular, labels, two_items=two)
+    said = str(raised.value)
+    assert "the factor 'fc' has two items (c1, c2)" in said and "'equal loading(fc, c1), loading(fc, c2)'" in said
+    assert "fix one of them" not in said
+    with pytest.raises(CfaError, match="fix one of them or add constraints"):  # no two-item factor involved
+        check_information_rank(singular, labels)
