@@ -83,7 +83,7 @@ def test_the_note_on_few_rows_per_parameter_does_not_call_the_groups_small(hs_da
     """Groups with more rows than parameters but fewer than five per parameter: the note says the figures and that
     fewer rows per parameter vary more, not 'a group this small' (departments of 165-260 people read as too small)."""
     ladder = cfa_tool.invariance(THREE, hs_data.groupby("school").head(100), "school")  # 100 / 21 = 4.7 each
-    notes = " ".join(" ".join(ladder.notes + ladder.warnings).split())
+    notes = " ".join(" ".join(str(x) for x in ladder.notes + ladder.warnings).split())
     assert "rows per free parameter of the group's model" in notes
     assert "with fewer rows per parameter, a group's estimates, and every comparison with the other groups, vary more" \
            in notes
