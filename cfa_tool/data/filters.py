@@ -361,8 +361,8 @@ def _first_text(column: pd.Series, numeric: pd.Series) -> str:
 
 
 def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
-                  value_labels: dict[str, dict] | None = None, row_names: pd.Series | None = None
-                  ) -> tuple[pd.DataFrame, list[str], tuple[RowFilter, ...]]:
+                  value_labels: dict[str, dict] | None = None, row_names: pd.Series | None = None,
+                  decimal_comma: bool = False) -> tuple[pd.DataFrame, list[str], tuple[RowFilter, ...]]:
     """Keep the rows that meet every filter; notes say how many each filter left out, first those it left out for an
     empty cell (which meets no comparison, '!=' included: what it holds is unknown).  Text is compared as labels are
     read everywhere (spaces at the ends and Unicode forms ignored); a text value compared with a column of codes that
@@ -370,7 +370,9 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
     filters with the rows each left out for an empty cell (:attr:`RowFilter.empty`).  ``row_names``: the file's row
     names (a first column without a name, on ``frame``'s index), which a filter compares as the column
     data.kept_rows.ROW_NAMES_COLUMN when the file has no column of that name (new-user trial s17: the rows a caution
-    named by their row names could not be filtered out without editing the file)."""
+    named by their row names could not be filtered out without editing the file).  ``decimal_comma``: the file was
+    read with decimal commas, so a filter's number written the same way ('age >= 40,5') compares a column of numbers
+    as that number (new-user trial 2 of s23: it was refused, though the note said how the file's decimals were read)."""
     from dataclasses import replace
 
     said = []  # per filter: rows before and after it, and its note's words apart from the counts
@@ -392,6 +394,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
             raise OptionError(f"row filter {quoted_filter(f)}: {source} has no column '{printable(f.column)}'{hint}")
         column = row_names.reindex(frame.index).rename(f.column) if by_row_names else frame[f.column]
         labels = (value_labels or {}).get(f.column)
+        f = _with_decimal_comma(f, column) if decimal_comma else f
         if f.operator in SET_OPERATORS:
             keep, f, by_label, absent, read_as = _compared_with_list(frame, f, column, labels, source)
         else:
@@ -411,6 +414,16 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         # values, several '!=' of one column as their one list), never every value (data.kept_rows.rows_described)
         frame.attrs[KEPT_BY] = tuple(str(f) for f, _ in merged_exclusions(counted))
     return frame, _filter_notes(counted, said), tuple(counted)
+
+
+def _with_decimal_comma(f: RowFilter, column: pd.Series) -> RowFilter:
+    """``f`` with its value written with a decimal comma ('40,5') read as the number, as the file's cells were, when
+    ``column`` holds numbers (a column of text compares the text as written); any other filter as it is."""
+    if f.operator in SET_OPERATORS or not isinstance(f.value, str) or column.dtype.kind not in "iuf" \
+            or "," not in f.value or zero_led(f.value):
+        return f
+    read = number(f.value, decimal_comma=True)
+    return f if read is None else replace(f, value=read)
 
 
 def quoted_filter(f: RowFilter) -> str:

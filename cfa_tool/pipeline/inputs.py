@@ -408,7 +408,8 @@ def rows_kept(loaded: LoadedData, filters) -> tuple[LoadedData, list[str]]:
     if not filters:
         return loaded, []
     frame, notes, filters = apply_filters(loaded.frame, list(filters), loaded.source, loaded.value_labels,
-                                          loaded.row_names)
+                                          loaded.row_names, decimal_comma=loaded.reading is not None
+                                          and loaded.reading.decimal == ",")
     return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame), read_frame=loaded.frame,
                    non_answers=kept_non_answers(loaded.non_answers, frame), row_filters=tuple(filters)), notes
 

@@ -376,7 +376,9 @@ def robust_definition(r) -> str:
     """Which definition the robust indices follow."""
     if r.scale is not None:
         return (f"Robust CFI, TLI and RMSEA: the usual formulas applied to the {ADJUSTED_TEST} statistics of the model "
-                f"and of the baseline model (ordinal items); SRMR over the off-diagonal polychoric correlations.")
+                f"and of the baseline model (ordinal items); SRMR over the off-diagonal polychoric correlations. An "
+                f"exploratory analysis of the same items reports another RMSEA (maximum likelihood on the polychoric "
+                f"correlations, population-corrected), not comparable with this one.")
     return ("Robust CFI, TLI and RMSEA: the population-corrected definitions of Brosseau-Liard, Savalei & Li (2012) "
             "and Brosseau-Liard & Savalei (2014), not the indices of the scaled statistic.")
 

@@ -8,6 +8,7 @@ import math
 from dataclasses import replace
 
 from cfa_tool.numbers import cut_list, user_number, count_text
+from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATED, ProblemKind, design_cautions, failure_words,
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
@@ -84,6 +85,47 @@ def _failed_lines(named_results) -> list[Text]:
     return lines
 
 
+#: the cautions on a solution that is admissible but needs care in reading, which every view of several solutions (a
+#: comparison, a ladder, a replication) says first, as fit does: a method factor that carries next to nothing, a
+#: standardized loading above 1, two factors that correlate nearly 1 (s23: a ladder and a comparison left out the .954
+#: that fit put first), fewer rows than free parameters, a keying the loadings contradict, a factor pointing against its
+#: items, a robust test whose scaling factor is not positive
+SOLUTION_CAUTIONS = (ProblemKind.WEAK_METHOD_FACTOR, ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE,
+                     ProblemKind.FACTORS_HARDLY_DISTINCT, ProblemKind.SMALL_SAMPLE, ProblemKind.KEYING_AGAINST_LOADINGS,
+                     ProblemKind.FACTOR_POINTS_AGAINST_ITEMS, ProblemKind.WEAK_MARKER,
+                     ProblemKind.SCALED_TEST_NOT_COMPUTED)
+
+
+def _ladder_caution_lines(named_steps) -> list[Text]:
+    """The cautions of every step's solution of a ladder (:data:`SOLUTION_CAUTIONS`; ``named_steps``: (the step's
+    name, e.g. 'configural' or 'scalar with every equality', its result)), once per problem with the steps that have it
+    named ('The configural, metric, and scalar models: group control: ...'), in the words of the last of them, the
+    range of its figure over the steps added when it differs; then, once, the caution on a baseline model that misfits
+    little (of the first step).  Groups smaller than their model the ladder says among its own cautions, and the
+    configural model's poor fit it judges by its own guides."""
+    found: dict[tuple, list[tuple[str, object, object]]] = {}
+    for name, r in named_steps:
+        for p in getattr(r, "problems", ()) if r is not None and r.converged else ():
+            if p.kind in SOLUTION_CAUTIONS:
+                found.setdefault((p.kind, p.group, p.parameters), []).append((name, p, r))
+    lines: list[Text] = []
+    for seen in found.values():
+        names = list(dict.fromkeys(name for name, _, _ in seen))
+        _, p, r = seen[-1]
+        values = sorted({q.value for _, q, _ in seen if q.value is not None and math.isfinite(q.value)}, key=abs)
+        spread = ""
+        if len({str(q.explanation) for _, q, _ in seen}) > 1 and len(values) > 1:
+            low, high = (journal_decimal(values[0]), journal_decimal(values[-1])) if abs(values[-1]) < 1 else \
+                (num(values[0]), num(values[-1]))
+            spread = f" ({low} to {high} over these steps; the figure below is the {names[-1]} model's)"
+        whose = f"The {word_list(names)} model{'s' if len(names) > 1 else ''}{spread}: "
+        line = whose + _in_group(p, r) + p.line()
+        if line not in lines:
+            lines.append(line)
+    first = next((r for _, r in named_steps if r is not None and r.converged), None)
+    return lines + [p.line() for p in getattr(first, "problems", ()) if p.kind is ProblemKind.UNINFORMATIVE_BASELINE][:1]
+
+
 def _caution_lines(named_results, poor_fit: bool = True, small_groups: bool = True,
                    only: tuple[ProblemKind, ...] | None = None) -> list[str]:
     """One line per caution about a solution that is admissible but needs care in reading (a method factor that
@@ -97,10 +139,7 @@ def _caution_lines(named_results, poor_fit: bool = True, small_groups: bool = Tr
     the same rows alike (assessment.admissibility.uninformative_baseline_problems: a fit says it, and a comparison
     or a ladder printed CFI and TLI without it).  ``only``: these kinds alone (an invariance ladder's later steps:
     what their own fits could not compute)."""
-    kinds = only if only is not None else (
-        ProblemKind.WEAK_METHOD_FACTOR, ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE, ProblemKind.SMALL_SAMPLE,
-        ProblemKind.KEYING_AGAINST_LOADINGS, ProblemKind.FACTOR_POINTS_AGAINST_ITEMS, ProblemKind.WEAK_MARKER,
-        ProblemKind.SCALED_TEST_NOT_COMPUTED) + (
+    kinds = only if only is not None else SOLUTION_CAUTIONS + (
         (ProblemKind.SMALL_GROUP,) if small_groups else ()) + ((ProblemKind.POOR_FIT,) if poor_fit else ())
     lines: list[str] = []
     baseline: list[str] = []
@@ -863,11 +902,12 @@ def invariance_report(result) -> Report:
     # the design's caution first: it doubts every step's test, the verdicts among the warnings included
     warnings = (tuple(_design_caution_lines([(f"the {s.level} model", s.result) for s in result.steps]))
                 + tuple(_reversed_in_group_lines(first, result.groups))
-                + tuple(result.warnings) + tuple(_caution_lines([(f"the {result.steps[0].level} model", first)],
-                                                                poor_fit=False, small_groups=False))
-                # a later step's robust test that could not be computed: its dashes in the tables, said first
-                + tuple(_caution_lines([(name, r) for name, r in named_levels if r is not first],
-                                       only=(ProblemKind.SCALED_TEST_NOT_COMPUTED,))))
+                # every step's solution's cautions (two factors that correlate nearly 1, a robust test that could not
+                # be computed: its dashes in the tables), once each, with the steps that have them: first, as fit
+                + tuple(result.warnings) + tuple(_ladder_caution_lines(
+                    [pair for s in result.steps for pair in ((f"{s.level} with every equality", s.full_result),
+                                                             (s.level, s.result))
+                     if pair[0] == s.level or (s.partial and s.full_result is not None)])))
     notice = None if not warnings else ProblemNotice(SOME_NOT_ADMISSIBLE if inadmissible else CHECK_SOLUTIONS, warnings,
                                                      inadmissible)
     labels = tuple(result.groups)
