@@ -1261,6 +1261,13 @@ class TextEncoding(Enum):
     LATIN1 = "Latin-1"
 
 
+def separator_words(separator: str, decimal: str) -> str:
+    """'fields separated by semicolons, decimals written with commas': how delimited text is written, the words of the
+    reading's note and of the scores file's format alike."""
+    fields = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "vertical bars ('|')"}[separator]
+    return f"fields separated by {fields}, decimals written with {'commas' if decimal == ',' else 'points'}"
+
+
 @dataclass(frozen=True)
 class TextReading:
     """How a delimited text file was read: its encoding, the separator between fields and the decimal mark, as
@@ -1278,9 +1285,7 @@ class TextReading:
         return self.encoding is TextEncoding.UTF8 and self.separator == "," and self.decimal == "."
 
     def words(self) -> str:
-        separator = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "vertical bars ('|')"}[self.separator]
-        mark = "commas" if self.decimal == "," else "points"
-        return (f"read as {self.encoding.value} text, fields separated by {separator}, decimals written with {mark}; "
+        return (f"read as {self.encoding.value} text, {separator_words(self.separator, self.decimal)}; "
                 f"the column names are in row {self.names_row}"
                 + (f" (text line {self.names_line})" if self.names_row != self.names_line else "")
                 + ", and rows are numbered as a spreadsheet shows the file (one row per record)")

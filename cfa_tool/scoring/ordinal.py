@@ -12,8 +12,15 @@ standard deviation as its standard error; unanswered items drop out of the produ
 
 The integral runs over the factors with items of their own (F).  Each row's grid is centred
 on its posterior mean and scaled by the Cholesky factor of its posterior covariance, both
-refined from the prior until they settle (adaptive quadrature; Naylor & Smith 1982, Liu &
-Pierce 1994, Rabe-Hesketh, Skrondal & Pickles 2005): Gauss-Hermite product rules for 1-3
+refined until they settle (adaptive quadrature; Naylor & Smith 1982, Liu & Pierce 1994,
+Rabe-Hesketh, Skrondal & Pickles 2005), from the posterior's mode and the inverse of its
+curvature there (Liu & Pierce 1994; found by Newton's method, which converges from any start
+because the log-posterior is strictly concave: the normal prior is, and so is the logarithm of a
+normal probability of an interval as a function of its shift, Prékopa 1973).  Started from the
+prior instead, a row whose posterior lies beyond the outermost point of the coarse rule below put
+all its weight on that point, read a posterior variance of about zero, and its grid shrank onto
+that point: severe answer patterns all got the one score sqrt(3) prior SDs above the mean with a
+posterior SD of 1e-5 (new-user trial s23b, finding 1).  Gauss-Hermite product rules for 1-3
 such factors, the same pruned by weight for 4 and 5, scrambled Sobol points (importance
 sampling with the adaptive normal as proposal) beyond (:mod:`cfa_tool.scoring.quadrature`).
 The refinement runs in two stages: a coarse 3-point product rule places each row's grid to
@@ -41,6 +48,10 @@ from cfa_tool.scoring.model import OrdinalScoringModel
 from cfa_tool.scoring.quadrature import Rule, default_rule, gauss_hermite_rule
 
 MAX_ITERATIONS = 20  # adaptive refinements of each row's grid
+#: Newton steps to the posterior's mode, and the step (in prior standard deviations) at which it has been found; a
+#: strictly concave function's Newton steps, halved until they rise, take a handful
+MODE_ITERATIONS = 100
+MODE_TOLERANCE = 1e-10
 TOLERANCE = 1e-7  # change of the posterior mean (in prior standard deviations) at which the grid's place has settled
 #: points per factor of the coarse product rule that places each row's grid before the rule itself refines it, and
 #: the change of the posterior mean (in prior standard deviations) at which that first stage stops
@@ -158,6 +169,83 @@ class EapScorer:
                 total[rows] += _log_category_probability(upper, lower, self.sd[j])
         return total
 
+    def _log_likelihood_derivatives(self, codes: np.ndarray, z: np.ndarray, eta: np.ndarray
+                                    ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """The answers' log-likelihood at one point eta (n, r) per row, with its gradient (n, r) and Hessian (n, r, r).
+
+        With x = nu_j + l_j'eta, a = (tau_j,c - x) / s_j, b = (tau_j,c-1 - x) / s_j and P = Phi(a) - Phi(b):
+        d log P / dx = -(phi(a) - phi(b)) / (s_j P) and
+        d2 log P / dx2 = -(a phi(a) - b phi(b)) / (s_j^2 P) - (d log P / dx)^2 (the derivatives of the graded
+        model's category probabilities under the normal ogive: Samejima 1969; Baker & Kim 2004), taken
+        as phi / P = exp(log phi - log P) so that neither underflows in the tails; a continuous item adds
+        (z_j - x) / s_j^2 and -1 / s_j^2.  The chain rule gives l_j d and l_j l_j' d2."""
+        n, p = codes.shape
+        predictor = self.nu + eta @ self.loadings.T  # (n, p)
+        answered = codes >= 0
+        ordinal = answered & ~self.continuous
+        continuous = answered & self.continuous
+        c = np.where(ordinal, codes, 0)
+        columns = np.arange(p)
+        upper = np.where(ordinal, self.limits[columns, c + 1], np.inf) - predictor
+        lower = np.where(ordinal, self.limits[columns, c], -np.inf) - predictor
+        log_p = _log_category_probability(upper, lower, self.sd)
+        a, b = upper / self.sd, lower / self.sd
+        half_log_2pi = 0.5 * np.log(2.0 * np.pi)
+        with np.errstate(over="ignore", invalid="ignore", under="ignore"):
+            ra = np.where(np.isfinite(a), np.exp(-0.5 * a**2 - half_log_2pi - log_p), 0.0)  # phi(a) / P
+            rb = np.where(np.isfinite(b), np.exp(-0.5 * b**2 - half_log_2pi - log_p), 0.0)
+            a_ra = np.where(np.isfinite(a), a * ra, 0.0)
+            b_rb = np.where(np.isfinite(b), b * rb, 0.0)
+        first = -(ra - rb) / self.sd
+        second = -(a_ra - b_rb) / self.sd**2 - first**2
+        resid = (z - predictor) / self.sd
+        value = np.where(ordinal, log_p, 0.0) + np.where(continuous, -0.5 * resid**2 - np.log(self.sd) - half_log_2pi,
+                                                         0.0)
+        first = np.where(ordinal, first, 0.0) + np.where(continuous, resid / self.sd, 0.0)
+        # log-concave in x (Prékopa 1973): a second derivative above 0 is rounding in the far tails
+        second = np.where(ordinal, np.minimum(second, 0.0), 0.0) + np.where(continuous, -1.0 / self.sd**2, 0.0)
+        gradient = first @ self.loadings
+        hessian = np.einsum("np,pr,ps->nrs", second, self.loadings, self.loadings)
+        return value.sum(axis=1), gradient, hessian
+
+    def _log_posterior(self, codes, z, eta):
+        """log p(y | eta) + log p(eta), up to a constant, at one point eta (n, r) per row: (n,)."""
+        dev = eta - self.alpha_F
+        return (self._log_likelihood(codes, z, eta[:, None, :])[:, 0]
+                - 0.5 * np.sum((dev @ self.prior_precision) * dev, axis=1))
+
+    def _mode(self, codes: np.ndarray, z: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Each row's posterior mode of eta_F and the Cholesky factor of the inverse of the log-posterior's negative
+        Hessian there (the Laplace approximation's covariance; Liu & Pierce 1994): Newton's steps from the prior
+        mean, each halved until the log-posterior rises (Armijo's rule; Nocedal & Wright 2006, ch. 3).  The
+        log-posterior is strictly concave, so the steps lead to its one maximum from any start."""
+        n, r = len(codes), len(self.F)
+        eta = np.broadcast_to(self.alpha_F, (n, r)).copy()
+        active = np.arange(n)
+        for _ in range(MODE_ITERATIONS):
+            if not len(active):
+                break
+            e, cd, zz = eta[active], codes[active], z[active]
+            _, g, h = self._log_likelihood_derivatives(cd, zz, e)
+            g = g - (e - self.alpha_F) @ self.prior_precision
+            curvature = self.prior_precision - h  # negative Hessian of the log-posterior: positive definite
+            step = np.linalg.solve(curvature, g[:, :, None])[:, :, 0]
+            rise = np.sum(g * step, axis=1)  # the directional derivative, >= 0
+            start = self._log_posterior(cd, zz, e)
+            t = np.ones(len(active))
+            for _ in range(60):
+                trial = e + t[:, None] * step
+                short = self._log_posterior(cd, zz, trial) < start + 1e-4 * t * rise
+                short &= t * np.max(np.abs(step) / self.prior_sd, axis=1) > MODE_TOLERANCE
+                if not short.any():
+                    break
+                t = np.where(short, 0.5 * t, t)
+            eta[active] = e + t[:, None] * step
+            active = active[np.max(np.abs(t[:, None] * step) / self.prior_sd, axis=1) > MODE_TOLERANCE]
+        _, _, h = self._log_likelihood_derivatives(codes, z, eta)
+        covariance = np.linalg.inv(self.prior_precision - h)
+        return eta, np.linalg.cholesky(0.5 * (covariance + np.swapaxes(covariance, 1, 2)))
+
     def _moments(self, codes, z, centre, chol, rule: Rule):
         """Posterior mean and covariance of eta_F from ``rule`` placed at centre + chol u."""
         u, log_w = rule.points, rule.log_weights
@@ -174,20 +262,22 @@ class EapScorer:
         return mean, 0.5 * (cov + np.swapaxes(cov, 1, 2))
 
     def _posterior_F(self, codes: np.ndarray, z: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        n, r = len(codes), len(self.F)
-        centre = np.broadcast_to(self.alpha_F, (n, r)).copy()
-        chol = np.broadcast_to(self.prior_chol, (n, r, r)).copy()
+        centre, chol = self._mode(codes, z)
         mean = centre.copy()
-        cov = np.broadcast_to(self.phi_FF, (n, r, r)).copy()
+        cov = chol @ np.swapaxes(chol, 1, 2)
         for rule, tolerance in self._stages:
-            active = np.arange(n)
+            active = np.arange(len(codes))
             for _ in range(MAX_ITERATIONS):
                 m_new, c_new = self._moments(codes[active], z[active], centre[active], chol[active], rule)
                 change = np.max(np.abs(m_new - mean[active]) / self.prior_sd, axis=1)
                 mean[active], cov[active] = m_new, c_new
                 values = np.linalg.eigvalsh(c_new)
                 good = np.all(values > 1e-12 * self.prior_sd.max() ** 2, axis=1)
-                new_chol = np.linalg.cholesky(np.where(good[:, None, None], c_new, chol[active]))
+                # a covariance the rule cannot resolve keeps the grid's scale (before s23 its Cholesky factor was
+                # factorised again as if it were a covariance, which crashed: new-user trial s23b, finding 5)
+                new_chol = chol[active]
+                if good.any():
+                    new_chol[good] = np.linalg.cholesky(c_new[good])
                 centre[active] = m_new
                 chol[active] = new_chol
                 active = active[change > tolerance]

@@ -98,7 +98,7 @@ def test_every_command_counts_the_respondents_only(rider_demo, rider_model, tmp_
     out = tmp_path / "scores.csv"
     code, _, _ = run_cli(["scores", model, "--data", path, "--id", "rider_id", "--output", out], capsys)
     assert code == 0
-    scores = pd.read_csv(out)
+    scores = pd.read_csv(out, sep=";", decimal=",")  # the scores file follows the data file (a semicolon export)
     assert len(scores) == n and not scores["rider_id"].astype(str).str.startswith(("Notes", "Source")).any()
     grouped = cfa_tool.invariance(rider_model, str(path), group="district")
     assert grouped.steps[0].result.data.rows_read == n and grouped.steps[0].result.n_obs == n
