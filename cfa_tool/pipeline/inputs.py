@@ -1063,7 +1063,7 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
                        "person and fit one model of both times (each item at each time its own indicator, its "
                        "residuals correlated across the times), holding its loadings and intercepts equal across the "
                        "times to test invariance over time; if the groups hold different people, correct the ids in a "
-                       "copy of the data file",))
+                       "copy of the data file.",))
     return (Problem(ProblemKind.REPEATED_IDS, (), float(len(found)),
                     Note((f"{holder} {gives} one {what[:-1]} to {count_text(rows)} rows: " if len(found) == 1 else
                           f"{holder} {gives} {count_text(len(found))} {what} each to more than one row "
