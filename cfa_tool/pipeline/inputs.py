@@ -326,7 +326,10 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     frame, coding_notes = code_answer_words(spec, frame, loaded.source,  # 'answers' statements: words as codes
                                             missing_codes=missing_codes_option(missing_codes),
                                             value_labels=loaded.value_labels)
-    notes += [f"{loaded.source}: " + n for n in coding_notes] if name_the_file else coding_notes  # whose answers
+    # a file of several read alike (replicate's) whose answers are numbers: its note names it, since the other file's
+    # may be words (hostile s23b); a coding of words, alike in both files, is said once
+    notes += ([f"{loaded.source}: " + n for n in coding_notes] if name_the_file and frame.attrs.get(NUMBERS_ONLY)
+              else coding_notes)
     check_declared_ranges(spec, frame, loaded.source, loaded.value_labels)
     values = item_values(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it
     notes += answer_range_notes(spec, frame, loaded.source, loaded.value_labels, values)
