@@ -8,7 +8,7 @@ import numpy as np
 from cfa_tool.numbers import user_number
 from cfa_tool.estimation.optimizer import Outcome
 from cfa_tool.language.names import reference_text, written_group, written_name
-from cfa_tool.model.description import label_words
+from cfa_tool.model.description import label_words, split_label
 from cfa_tool.estimation.strategy import Restart, Search
 from cfa_tool.note_parts import Command, Note, Text, joined
 from cfa_tool.options import Option
@@ -23,15 +23,17 @@ def two_item_factors(spec, labels: tuple[str, ...]) -> tuple[tuple[str, tuple[st
     other factors, and where those are near zero it is not identified in the data (empirical under-identification;
     Kenny 1979, as recalled; Bollen 1989, ch. 7)."""
     observed = set(spec.observed_names)
-    free = {label.split(" [", 1)[0] for label in labels}  # a group's parameters carry ' [group]' (hostile s23b)
+    # the free loadings (factor, item), read by the language's rules (a group's label carries its group, a quoted
+    # name its own brackets), and the loadings the model file holds equal
+    free = {names for kind, names, _ in map(split_label, labels) if kind == "loading"}
+    held = {tuple(str(n) for n in ref.names) for group in spec.equal for ref in group if ref.kind == "loading"}
     out = []
     for each in spec.factors:
         factor, items = str(each.name), tuple(str(x) for x in each.indicators)
-        if len(items) == 2 and all(x in observed for x in items) \
-                and sum(f"loading({factor}, {x})" in free for x in items) >= 1 \
-                and not any(f"loading({factor}, {x})" == str(ref) for group in spec.equal for ref in group
-                            for x in items):
-            out.append((str(factor), items))
+        loadings = [(factor, x) for x in items]
+        if len(items) == 2 and all(x in observed for x in items) and any(k in free for k in loadings) \
+                and not any(k in held for k in loadings):
+            out.append((factor, items))
     return tuple(out)
 
 

@@ -8,8 +8,9 @@ import numpy as np
 
 from cfa_tool.numbers import rounded_number
 from cfa_tool.errors import ModelError, NotIdentified, UnboundedSolution
-from cfa_tool.language.names import written_name
+from cfa_tool.language.names import reference_text, written_name
 from cfa_tool.language.spec import Spec
+from cfa_tool.model.description import split_label
 from cfa_tool.model.parameters import ParameterTable
 from cfa_tool.numerics.linalg import ScaledFactor, scaled_factor
 
@@ -80,15 +81,16 @@ def check_information_rank(information: np.ndarray, labels: tuple[str, ...], fac
     vals, vecs = np.linalg.eigh(normalised)
     weights = np.abs(vecs[:, 0])
     involved = [labels[k] for k in np.argsort(-weights) if weights[k] > 0.1][:6]
-    bases = {label.split(" [", 1)[0] for label in involved}
-    pair = next(((f, items) for f, items in two_items if any(f"loading({f}, {x})" in bases for x in items)), None)
+    loadings = {names for kind, names, _ in map(split_label, involved) if kind == "loading"}
+    pair = next(((f, items) for f, items in two_items if any((f, x) in loadings for x in items)), None)
     if pair is not None:  # a two-item factor's loadings among them (hostile s23b: advice to fix a residual variance)
         f, (a, b) = pair
         raise NotIdentified(
             f"the model is not identified with these data (the information matrix is singular); the parameters "
             f"involved are: {', '.join(involved)}: the factor '{f}' has two items ({a}, {b}) and is identified only "
             f"through its covariances with the other factors, which these data leave near zero (empirical "
-            f"under-identification); hold its two loadings equal ('equal loading({f}, {a}), loading({f}, {b})')",
+            f"under-identification); hold its two loadings equal ('equal {reference_text('loading', (f, a))}, "
+            f"{reference_text('loading', (f, b))}')",
             tuple(involved),
         )
     raise NotIdentified(
