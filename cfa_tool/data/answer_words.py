@@ -69,10 +69,10 @@ NUMBERS_ONLY = "answers_numbers_only"
 _LABEL_CODE = re.compile(r"^\s*[-+]?\d+(?:[.,]\d+)?(?:\s*[-\u2013:=.)]\s*|\s+)(?=\S)")
 
 
-def _numbers_by_labels(labels: dict, words: dict) -> str:
-    """'1 = 5, 2 = 4, ...': each labelled number with the code its label's word has in a statement (``words``: the
-    statement's codes by word), '' when no label is one of its words."""
-    pairs = []
+def _labelled_codes(labels: dict, words: dict) -> list[tuple[float, str, float]]:
+    """(number, label, code) of each of a column's value labels (value -> text) whose word, or the word after the code
+    a label carries ('1 Strongly agree', '5 - agree'), a statement codes (``words``: its codes by word)."""
+    found = []
     for value, text in labels.items():
         number = strict_number(str(value).strip()) if isinstance(value, str) else value
         if not isinstance(number, (int, float, np.integer, np.floating)) or isinstance(number, (bool, np.bool_)):
@@ -81,8 +81,14 @@ def _numbers_by_labels(labels: dict, words: dict) -> str:
         if code is None and _LABEL_CODE.match(str(text)):
             code = words.get(answer_key(_LABEL_CODE.sub("", str(text))))
         if code is not None:
-            pairs.append((float(number), code))
-    return ", ".join(f"{user_number(n)} = {user_number(c)}" for n, c in sorted(pairs))
+            found.append((float(number), str(text).strip(), code))
+    return found
+
+
+def _numbers_by_labels(labels: dict, words: dict) -> str:
+    """'1 = 5, 2 = 4, ...': each labelled number with the code its label's word has in a statement (``words``: the
+    statement's codes by word), '' when no label is one of its words."""
+    return ", ".join(f"{user_number(n)} = {user_number(c)}" for n, _, c in sorted(_labelled_codes(labels, words)))
 
 
 def refuse_labels_against_coding(codings: dict, value_labels: dict, source: str) -> None:
@@ -96,17 +102,11 @@ def refuse_labels_against_coding(codings: dict, value_labels: dict, source: str)
         labels = value_labels.get(item) or {}
         if not labels:
             continue
-        words, numbers = coding.codes_by_word(), coding.codes_by_number()
-        for value, text in labels.items():
-            number = strict_number(str(value).strip()) if isinstance(value, str) else value
-            if not isinstance(number, (int, float, np.integer, np.floating)) or isinstance(number, (bool, np.bool_)):
-                continue
-            word_code = words.get(answer_key(str(text)))
-            if word_code is None:  # a label that carries its code ('1 Strongly agree', '5 - agree')
-                word_code = words.get(answer_key(_LABEL_CODE.sub("", str(text)))) if _LABEL_CODE.match(str(text)) else None
-            number_code = numbers.get(float(number))
-            if word_code is not None and number_code is not None and word_code != number_code:
-                found.append((item, float(number), str(text).strip(), word_code, coding))
+        numbers = coding.codes_by_number()
+        for number, text, word_code in _labelled_codes(labels, coding.codes_by_word()):
+            number_code = numbers.get(number)
+            if number_code is not None and word_code != number_code:
+                found.append((item, number, text, word_code, coding))
                 break
     if not found:
         return
