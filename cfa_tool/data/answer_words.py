@@ -163,12 +163,13 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
         else:
             coded_missing = np.zeros(len(column), dtype=bool)
         distinct = pd.unique(column.to_numpy(dtype=object))
-        if not any(isinstance(v, str) and answer_key(v) in words for v in distinct):
+        worded = any(isinstance(v, str) and answer_key(v) in words for v in distinct)  # a word of the statement
+        if not worded:
             numbers_only.append(item)
         mapping: dict[object, float] = {}
         for value in distinct:
             code, wrong = _code_of(value, words, numbers)
-            if wrong == "number" and not any(isinstance(v, str) and answer_key(v) in words for v in distinct):
+            if wrong == "number" and not worded:
                 labelled = _numbers_by_labels((value_labels or {}).get(item) or {}, words)
                 if labelled:  # numbers the file labels with the statement's words (hostile s23b): how to list them
                     raise DataError(f"{source}: column '{printable(item)}' holds numbers whose value labels are the "
