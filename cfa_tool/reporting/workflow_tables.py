@@ -27,6 +27,7 @@ from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, cfi_not_de
 from cfa_tool.reporting.numbers import (est_num, est_unit, fit_index_text, guides_text, index_text, missing, needed_decimals, num,
                                         p_phrase, p_value, short, signed, signed_num, unit, word_list)
 from cfa_tool.language.spec import equality_words
+from cfa_tool.reporting.nested_power_report import nested_parts
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
 from cfa_tool.workflows.invariance import CONFIGURAL_INDICES
 from cfa_tool.workflows.nesting import heavy_tails_caution
@@ -1568,6 +1569,8 @@ def montecarlo_report(result) -> Report:
              f"({100 * result.converged / result.replications:.1f}%)."
              ] + _ordinal_power_lines(result)
     lines += not_carried_line(result.not_carried)
+    nested_lines, nested_tables, paragraph = nested_parts((result,))  # a nested model's difference test: its power
+    lines += nested_lines
     # what decides the plan first: power, then whether intervals and estimates can be trusted at this N
     rows = [[label_words(p.label, article=False, observed=result.observed or None), unit(p.power, 2), f"{100 * p.coverage:.1f}%",
              _percent(p.relative_bias), _percent(p.se_bias)] for p in result.parameters]
@@ -1587,8 +1590,9 @@ def montecarlo_report(result) -> Report:
                    values=(["Parameter", "Power", "Coverage", "Estimate relative bias", "SE relative bias"], values))
     return Report(ResultKind.POWER_SIMULATION,
                   f"Monte Carlo power: N = {count_text(result.n_obs)}, {count_text(result.replications)} replications (seed {result.seed})",
-                  _notice([], _inadmissible_cautions([result])), tuple(lines), (table, *population),
-                  warnings=one_group_defaults_caution(result) + few_replications(result.replications))
+                  _notice([], _inadmissible_cautions([result])), tuple(lines), (*nested_tables, table, *population),
+                  warnings=one_group_defaults_caution(result) + few_replications(result.replications),
+                  paragraph=paragraph)
 
 
 def _zero_population_words(parameters) -> str:
@@ -1621,6 +1625,8 @@ def power_curve_report(curve) -> Report:
         lines += [lacked_sentence(r.lacking, r.converged, r.lacked, f"replications at N = {count_text(r.n_obs)}",
                                   "every figure of that size") for r in curve.results if r.lacking]
     lines += not_carried_line(first.not_carried)
+    nested_lines, nested_tables, paragraph = nested_parts(curve.results)  # a nested model's difference test
+    lines += nested_lines
     names = [label_words(p.label, article=False, observed=first.observed or None) for p in first.parameters]
     rows = [[name, *(unit(r.parameters[k].power, 2) for r in curve.results)] for k, name in enumerate(names)]
     values = [[name, *(r.parameters[k].power for r in curve.results)] for k, name in enumerate(names)]
@@ -1645,8 +1651,10 @@ def power_curve_report(curve) -> Report:
                    values=([h for h, _ in heads], values))
     return Report(ResultKind.POWER_SIMULATION, f"Monte Carlo power by sample size: {count_text(first.replications)} replications "
                                                f"per size (seed {first.seed})",
-                  _notice([], _inadmissible_cautions(curve.results)), tuple(lines), (table, trust, *_population_of(first)),
-                  warnings=one_group_defaults_caution(first) + few_replications(first.replications))
+                  _notice([], _inadmissible_cautions(curve.results)), tuple(lines),
+                  (*nested_tables, table, trust, *_population_of(first)),
+                  warnings=one_group_defaults_caution(first) + few_replications(first.replications),
+                  paragraph=paragraph)
 
 
 #: the values a population takes where the model file gives none (workflows.simulation: STANDARDIZED_LOADING,
