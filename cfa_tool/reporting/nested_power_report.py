@@ -11,6 +11,19 @@ from cfa_tool.reporting.paragraph import nested_power_paragraph
 from cfa_tool.reporting.tables import ReportTable, _table
 
 
+def boundary_words(nested) -> str:
+    """What the nested model fixes on the boundary of the model's space, and which p-value the power is that of
+    ('' when nothing lies there); said under the simulated power and the planned one alike."""
+    if not nested.boundary:
+        return ""
+    df = nested.df_difference
+    return (f" On the boundary of the model's parameter space: {'; '.join(nested.boundary)}. The fits, as every fit of this tool, do not hold an estimate inside that boundary (a "
+            f"factor correlation may pass 1, reported as not admissible), so the power is that of the p-value from "
+            f"chi-square with {df} df, which keeps its level where the nested model holds; the 50:50 mixture p-value "
+            f"(Self & Liang 1987) assumes estimates held inside the boundary and rejects more often than its level "
+            f"where they are not.")
+
+
 def nested_parts(results) -> tuple[list[Text], tuple[ReportTable, ...], str | None]:
     """(lines, tables, paragraph) of the nested model of ``results`` (workflows.montecarlo results, one per sample
     size); nothing without one."""
@@ -37,13 +50,7 @@ def nested_parts(results) -> tuple[list[Text], tuple[ReportTable, ...], str | No
             f"normal data and a discrepancy small beside the sampling error."
             + (" The nested model holds in this population (discrepancy 0), so the power column is the share of "
                "false rejections (nominal alpha)." if holds else ""))
-    if nested.boundary:
-        note += (f" The nested model fixes {'; '.join(nested.boundary)}: a value on the boundary of what the "
-                 f"model's parameters mean. The fits here, as every fit of this tool, do not hold an estimate inside "
-                 f"that boundary (a factor correlation may pass 1, reported as not admissible), so the power counts the "
-                 f"p-value from chi-square with {df} df, which keeps its level where the nested model holds; the 50:50 "
-                 f"mixture p-value (Self & Liang 1987) assumes estimates held inside the boundary and rejects more "
-                 f"often than its level where they are not.")
+    note += boundary_words(nested)
     table = _table("difference_test_power", f"Power of the difference test against '{nested.name}'",
                    [("N", "r"), ("Both converged", "r"), ("Power", "r"), ("Monte Carlo SE", "r"),
                     ("Approximate power", "r"), ("Noncentrality", "r")], rows, note,

@@ -26,7 +26,7 @@ from cfa_tool.pipeline.continuous import moments_from_rows, replicate_fits
 from cfa_tool.language.spec import Spec
 from cfa_tool.workflows.power_nested import difference_power, nested_plan
 from cfa_tool.workflows.parallel import REFITS_TOGETHER, refits_together, run_tasks
-from cfa_tool.workflows.simulation import population_from_spec, simulate_rows
+from cfa_tool.workflows.simulation import model_order_labels, population_from_spec, simulate_rows
 from cfa_tool.views import Presentable
 
 
@@ -130,27 +130,6 @@ class PowerCurve(Presentable):
                 "model_test_rejection_rate": [r.model_rejected for r in self.results] if first.ordinal else None,
                 **({"nested_model": nested_json(first.nested, [r.difference for r in self.results])}
                    if first.nested is not None else {})}
-
-
-def model_order_labels(table) -> dict[str, str]:
-    """Each free parameter's label (``table.free_labels``, a model file's reference, whose pair of names is sorted)
-    -> the same reference with the pair in the order the model names it (the parameter's variables), as the
-    population table and the fit name it: one parameter named one way in one report (new-user trial s21: 'dedication
-    and vigour' in the power table, 'vigour and dedication' in the population table)."""
-    from cfa_tool.language.names import read_reference, reference_text
-
-    first = {}
-    for par in table.parameters:
-        if len(par.terms) == 1 and par.terms[0][1] == 1.0:
-            first.setdefault(par.terms[0][0], par)
-    out = {}
-    for k, label in enumerate(table.free_labels):
-        kind, names, group = read_reference(label)
-        par = first.get(k)
-        if par is not None and len(names) == 2 and sorted(names) == sorted(par.variables):
-            names = par.variables
-        out[label] = reference_text(kind, names, group)
-    return out
 
 
 def _replicate(tasks: list) -> list[tuple]:

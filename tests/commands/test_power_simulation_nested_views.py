@@ -41,3 +41,28 @@ def test_every_view_reports_the_difference_test(tmp_path, monkeypatch, capsys):
     assert nested["name"] == "one factor" and nested["df_difference"] == 1
     assert [d["n_obs"] for d in nested["difference_test"]] == [120, 240]
     assert {"power", "approximate_power", "monte_carlo_se", "pairs_converged"} <= set(nested["difference_test"][0])
+
+
+def test_power_plans_the_difference_test_in_every_view(tmp_path, monkeypatch, capsys):
+    """``power MODEL --nested-model MODEL2``: the planned power and N in the terminal, HTML and Word reports (the
+    Word file naming no option) and the JSON."""
+    docx = pytest.importorskip("docx")
+    monkeypatch.chdir(tmp_path)
+    Path("two.cfa").write_text(TWO)
+    Path("one.cfa").write_text(ONE)
+    code = main(["power", "two.cfa", "--nested-model", "one.cfa", "--n", "150", "--json", "p.json", "--html",
+                 "p.html", "--docx", "p.docx"])
+    assert code == 0
+    terminal = re.sub(r"\s+", " ", capsys.readouterr().out)
+    html = re.sub(r"\s+", " ", Path("p.html").read_text(encoding="utf-8"))
+    document = docx.Document("p.docx")
+    word = " ".join([p.text for p in document.paragraphs]
+                    + [c.text for t in document.tables for row in t.rows for c in row.cells])
+    for text in (terminal, html, word):
+        assert "Power of the chi-square difference test against" in text
+        assert "Smallest N for power" in text
+    assert "--nested-model" in terminal  # the advice to simulate, with its option, where the program's user reads it
+    assert not re.search(r"--[a-z]", word)
+    saved = json.loads(Path("p.json").read_text(encoding="utf-8"))
+    assert saved["nested_model"] == "one factor" and saved["n_obs"] == 150
+    assert saved["required_n"] < 150 and saved["power"] > 0.80  # the smallest N for .80 lies below an N of more power

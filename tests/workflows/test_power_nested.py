@@ -113,3 +113,30 @@ def test_simulated_power_agrees_with_the_noncentral_chi_square():
     # the JSON carries the difference test at each sample size
     out = curve.to_dict()["nested_model"]
     assert out["df_difference"] == 1 and len(out["difference_test"]) == 2
+
+
+def test_the_planned_power_and_sample_size_of_power_nested_model():
+    """``power MODEL --nested-model MODEL2`` (workflows.power_nested.nested_power): the power at N and the smallest N
+    for .80, against scipy.stats.ncx2 with the discrepancy computed above by scipy.optimize."""
+    from cfa_tool.workflows.power_nested import nested_power
+
+    correlation = 0.9
+    found = nested_power(two_factors(correlation), ONE_FACTOR, n_obs=150)
+    discrepancy = one_factor_discrepancy(population_sigma(correlation))
+    critical = scipy_stats.chi2.ppf(0.95, 1)
+
+    def power(n: int) -> float:  # Satorra & Saris (1985)
+        return scipy_stats.ncx2.sf(critical, 1, n * discrepancy)
+
+    assert found.power == pytest.approx(power(150), abs=1e-4)
+    n = found.required_n
+    assert power(n - 1) < 0.80 <= power(n) + 1e-6  # the smallest N reaching .80 (161 here, by scipy)
+    assert found.to_dict()["required_n"] == n
+
+
+def test_a_nested_model_that_holds_has_no_sample_size():
+    from cfa_tool.errors import OptionError
+    from cfa_tool.workflows.power_nested import nested_power
+
+    with pytest.raises(OptionError, match="holds in the population the model file's values describe"):
+        nested_power(two_factors(1.0), ONE_FACTOR, n_obs=150)
