@@ -2367,9 +2367,9 @@ def nested_power_paragraph(results) -> str:
     approximate = _list([unit(r.difference.approximate, 2) for r in results])
     items = len(first.observed)
     return (f"The power of the chi-square difference test of the nested model '{nested.name}' against the model was "
-            f"estimated by Monte Carlo simulation: {count_text(first.replications)} data sets of {items} normally "
-            f"distributed items were drawn "
-            + (f"of {sizes} rows" if len(results) == 1 else f"for each sample size ({sizes})")
+            f"estimated by Monte Carlo simulation: {count_text(first.replications)} data sets "
+            + (f"of {sizes} rows of {items} normally distributed items were drawn" if len(results) == 1 else
+               f"of {items} normally distributed items were drawn for each sample size ({sizes})")
             + f" from the population the model's values "
             f"describe (seed {first.seed}); each was fitted by maximum likelihood under both models, and the "
             f"likelihood-ratio chi-square difference ({_count(nested.df_difference, 'degree')} of freedom) was tested "
