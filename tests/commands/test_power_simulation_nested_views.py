@@ -17,6 +17,16 @@ TWO = ("factor f: q1, q2, q3\nfactor g: q4, q5, q6\nscale latent by variance\nst
 ONE = 'name "one factor"\n' "factor h: q1, q2, q3, q4, q5, q6\n"
 
 
+def _views(capsys, stem: str, docx) -> tuple[str, str, str]:
+    """The terminal report, the HTML file ``stem``.html and the Word file ``stem``.docx (its paragraphs and table
+    cells) as text, each run of white space one space."""
+    document = docx.Document(f"{stem}.docx")
+    word = " ".join([p.text for p in document.paragraphs]
+                    + [c.text for t in document.tables for row in t.rows for c in row.cells])
+    return tuple(re.sub(r"\s+", " ", text) for text in (capsys.readouterr().out,
+                                                        Path(f"{stem}.html").read_text(encoding="utf-8"), word))
+
+
 def test_every_view_reports_the_difference_test(tmp_path, monkeypatch, capsys):
     docx = pytest.importorskip("docx")
     monkeypatch.chdir(tmp_path)
@@ -25,11 +35,7 @@ def test_every_view_reports_the_difference_test(tmp_path, monkeypatch, capsys):
     code = main(["power-simulation", "two.cfa", "--n", "120,240", "--replications", "20", "--seed", "3",
                  "--nested-model", "one.cfa", "--json", "o.json", "--html", "o.html", "--docx", "o.docx"])
     assert code == 0
-    terminal = re.sub(r"\s+", " ", capsys.readouterr().out)
-    html = Path("o.html").read_text(encoding="utf-8")
-    document = docx.Document("o.docx")
-    word = " ".join([p.text for p in document.paragraphs]
-                    + [c.text for t in document.tables for row in t.rows for c in row.cells])
+    terminal, html, word = _views(capsys, "o", docx)
     for text in (terminal, html, word):
         assert "Power of the difference test against" in text
         assert "Approximate power" in text
@@ -53,11 +59,7 @@ def test_power_plans_the_difference_test_in_every_view(tmp_path, monkeypatch, ca
     code = main(["power", "two.cfa", "--nested-model", "one.cfa", "--n", "150", "--json", "p.json", "--html",
                  "p.html", "--docx", "p.docx"])
     assert code == 0
-    terminal = re.sub(r"\s+", " ", capsys.readouterr().out)
-    html = re.sub(r"\s+", " ", Path("p.html").read_text(encoding="utf-8"))
-    document = docx.Document("p.docx")
-    word = " ".join([p.text for p in document.paragraphs]
-                    + [c.text for t in document.tables for row in t.rows for c in row.cells])
+    terminal, html, word = _views(capsys, "p", docx)
     for text in (terminal, html, word):
         assert "Power of the chi-square difference test against" in text
         assert "Smallest N for power" in text
