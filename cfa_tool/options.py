@@ -177,6 +177,7 @@ class Option(enum.Enum):
     POPULATION_FROM = ("--population-from", "population")
     GROUP_SIZES = ("--group-sizes", "group_sizes")
     HIGHEST_LEVEL = ("--highest-level", "highest_level")
+    NESTED_MODEL = ("--nested-model", "nested_model")  # power-simulation: a model nested in the simulated one
     DECIDE_BY = ("--decide-by", "decide_by")
     PARTIAL = ("--partial", "partial")
     DESIGN_EFFECT = ("--design-effect", "design_effect")  # power: a planned sample's design effect

@@ -231,7 +231,8 @@ def inputs_of(args: argparse.Namespace) -> list[str]:
     """Every file the command reads: models, data, calibration and validation files."""
     names = [getattr(args, "model", None), *(getattr(args, "models", None) or ()),
              getattr(args, "data", None), getattr(args, "calibration", None), getattr(args, "validation", None),
-             getattr(args, "population_from", None), (getattr(args, "half", None) or [None])[0]]
+             getattr(args, "population_from", None), getattr(args, "nested_model", None),
+             (getattr(args, "half", None) or [None])[0]]
     return [n for n in names if n]
 
 

@@ -4,6 +4,7 @@
 from __future__ import annotations
 
 import argparse
+from pathlib import Path
 
 from cfa_tool.commands import options as O
 from cfa_tool.commands.common import check_output, emit, inputs_of, progress
@@ -33,6 +34,10 @@ def add_parser(sub) -> None:
                     "statements the differences")
     mc.add_argument("--categories", type=int, help="cut the ordinal items (all items without an 'ordinal' statement) "
                     "into this many equally likely categories and fit them as ordinal")
+    mc.add_argument("--nested-model", metavar="MODEL2", help="a model nested in MODEL, of the same items (a restricted "
+                    "form of it: two of its factors merged into one, say): each data set is fitted by both models, and "
+                    "the report gives the power of their chi-square difference test at each sample size, beside its "
+                    "noncentral chi-square approximation (Satorra & Saris 1985); continuous items, one group")
     O.add_ordinal_estimator_option(mc)
     O.add_run_options(mc)
 
@@ -42,6 +47,9 @@ def run(args: argparse.Namespace) -> int:
     from cfa_tool.language.parser import read_model_file
 
     if args.group_sizes is not None:
+        if args.nested_model is not None:
+            raise OptionError("--nested-model cannot apply with --group-sizes: the difference test of a nested model "
+                              "is simulated for one group; the invariance ladder's steps are the nested models there")
         given = [flag for flag, value in (("--n", args.n), ("--categories", args.categories),
                                           ("--ordinal-estimator", args.ordinal_estimator)) if value is not None]
         if given and given[0] == "--n":
@@ -80,5 +88,6 @@ def run(args: argparse.Namespace) -> int:
     with progress(args.command) as advance:
         result = monte_carlo_power(spec, args.n, args.replications, args.seed, args.alpha,
                                    args.workers, args.scheduler, advance, args.population_from, args.categories,
-                                   args.ordinal_estimator)
+                                   args.ordinal_estimator,
+                                   Path(args.nested_model) if args.nested_model is not None else None)
     return emit(args, result)

@@ -207,11 +207,7 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
         return NormalLikelihood(model, moments)
 
     def pooled_moments() -> tuple[np.ndarray, np.ndarray]:
-        cov, mean = pooled([m for _, m in groups])
-        if tuple(groups[0][1].names) != table.observed:
-            order = [groups[0][1].names.index(n) for n in table.observed]
-            cov, mean = cov[np.ix_(order, order)], mean[order]
-        return cov, mean
+        return pooled_in_order(groups, table.observed)
 
     def variance_scaled_problem() -> Alternative | None:
         alt_spec = variance_scaled(spec, table)
@@ -232,6 +228,35 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
         found, table.free_labels, options.max_iterations, table.lower, table.upper, table.observed,
         two_item_factors(spec, table.free_labels))
     return Estimation(table, model, likelihood, opt.theta, opt.value, opt.converged, opt.iterations, message)
+
+
+def pooled_in_order(groups: list[tuple[str | None, SampleMoments]], observed: tuple[str, ...]
+                    ) -> tuple[np.ndarray, np.ndarray]:
+    """The groups' pooled covariance matrix and means (data.groups.pooled) in the order of ``observed``: what a fit's
+    start values are computed from."""
+    cov, mean = pooled([m for _, m in groups])
+    if tuple(groups[0][1].names) != tuple(observed):
+        order = [groups[0][1].names.index(n) for n in observed]
+        cov, mean = cov[np.ix_(order, order)], mean[order]
+    return cov, mean
+
+
+def refuse_impossible_start(spec: Spec, groups: list[tuple[str | None, SampleMoments]], fiml: bool) -> None:
+    """The error a fit of ``groups``' moments stops with before its search when a 'fix' statement's covariance lies
+    beyond what the variances at the start allow (model.parameters.fixed_values_at_start, named at its line), for a
+    check that does not fit: the start values :func:`estimate` takes (model.starts.starting_values at the pooled
+    moments), judged as the search judges them (a start whose implied covariance matrix is not positive definite in
+    some group cannot begin; estimation.optimizer's bad start)."""
+    multi = len(groups) > 1 or groups[0][0] is not None
+    labels = tuple(label for label, _ in groups) if multi else None
+    table, model = model_structure(spec, labels, fiml)
+    start = starting_values(table, *pooled_in_order(groups, table.observed))
+    for g in range(table.n_groups):
+        try:
+            np.linalg.cholesky(model.matrices(start, g).implied_covariance())
+        except np.linalg.LinAlgError:
+            fixed_values_at_start(spec, table, model.entry_values(start), labels)
+            return
 
 
 def _estimate_with_helpers(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options: FitOptions,

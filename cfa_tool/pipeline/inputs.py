@@ -2658,6 +2658,10 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     if not ordinal_items:
         table = build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION)
         check_counting_rule(spec, table)
+        if not stops and not sparse:  # a fixed covariance beyond the variances at the search's start: as fit stops
+            from cfa_tool.pipeline.continuous import refuse_impossible_start
+
+            refuse_impossible_start(spec, groups, options.missing is MissingData.FULL_INFORMATION)
     # the rows per parameter of the sample or of each group, by the fit's rule (an ordinal fit's thresholds: counted
     # by the fit)
     small, small_notes = ordinal_small if ordinal_items else group_size_problems(table, [m.n_obs for _, m in groups]) \

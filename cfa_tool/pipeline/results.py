@@ -212,7 +212,8 @@ class CheckResult(Presentable):
             return {"valid": True, "source": self.source, "factors": list(self.spec.factor_names),
                     "indicators": list(self.spec.observed_names), "n_obs": self.rows,
                     "matrix_analysed": self.analysed.name.lower(), "rows": None, "coverage": None,
-                    "problems": [p.to_dict() for p in self.problems], "notes": [str(x) for x in self.notes]}
+                    "problems": [p.to_dict() for p in self.problems], "notes": [str(x) for x in self.notes],
+                    "stops_fit": None}
         return {"valid": True, "source": self.source, "factors": list(self.spec.factor_names),
                 "indicators": list(self.spec.observed_names), "degrees_of_freedom": self.degrees_of_freedom,
                 "rows": self.rows, "complete_rows": self.complete,
@@ -232,6 +233,8 @@ class CheckResult(Presentable):
                     ("read", "complete", "with_gaps", "without_answers"), self.counted)),
                 "notes": [str(x) for x in self.notes],
                 "stops_an_ordinal_fit": list(self.refusals),
+                # the one line a fit of these rows (continuous items) stops with, as the check's exit gives it
+                "stops_fit": self.stops_fit or None,
                 "answers_per_category": [a.to_dict() for a in self.answers]}
 
 

@@ -2353,3 +2353,27 @@ def replication_paragraph(replications) -> str:
         lead = (f"calibrated on half {'AB'[k]} and validated on half {'BA'[k]}: " if len(reps) > 1 else "")
         parts += _replication_sentences(rep, lead, k == 0)
     return " ".join(parts)
+
+
+def nested_power_paragraph(results) -> str:
+    """The methods-and-results paragraph of a power simulation with a nested model (workflows.montecarlo results, one
+    per sample size, each with its ``difference``: workflows.power_nested.DifferencePower): how the data sets were
+    drawn and fitted, the difference test and its level, the simulated power at each size beside its noncentral
+    chi-square approximation (Satorra & Saris 1985)."""
+    first = results[0]
+    nested = first.nested
+    sizes = _list([f"N = {count_text(r.n_obs)}" for r in results])
+    powers = _list([f"{unit(r.difference.rejected, 2)} at N = {count_text(r.n_obs)}" for r in results])
+    approximate = _list([unit(r.difference.approximate, 2) for r in results])
+    items = len(first.observed)
+    return (f"The power of the chi-square difference test of the nested model '{nested.name}' against the model was "
+            f"estimated by Monte Carlo simulation: {count_text(first.replications)} data sets "
+            + (f"of {sizes} rows of {items} normally distributed items were drawn" if len(results) == 1 else
+               f"of {items} normally distributed items were drawn for each sample size ({sizes})")
+            + f" from the population the model's values "
+            f"describe (seed {first.seed}); each was fitted by maximum likelihood under both models, and the "
+            f"likelihood-ratio chi-square difference ({_count(nested.df_difference, 'degree')} of freedom) was tested "
+            f"at alpha = {unit(first.alpha, 2)} (Steiger, Shapiro & Browne, 1985). Of the data sets in which both "
+            f"models converged, the share that rejected the nested model was {powers}. The noncentral chi-square approximation "
+            f"(Satorra & Saris, 1985), with noncentrality N times the nested model's minimum discrepancy at the "
+            f"population ({num(nested.discrepancy, 4)}), gives {approximate}.")

@@ -21,7 +21,8 @@ _RESULT_CLASSES = (
     (ResultKind.REPLICATE, "cfa_tool.workflows.replication", ("Replication", "Replications")),
     (ResultKind.BOOTSTRAP, "cfa_tool.workflows.bootstrap", ("BootstrapResult",)),
     (ResultKind.CUTOFFS, "cfa_tool.workflows.cutoffs", ("CutoffResult",)),
-    (ResultKind.POWER, "cfa_tool.workflows.power", ("PowerResult",)),
+    (ResultKind.POWER, ("cfa_tool.workflows.power", "cfa_tool.workflows.power_nested"),
+     ("PowerResult", "NestedPower")),  # of an RMSEA test; of the difference test against a nested model
     (ResultKind.POWER_SIMULATION, ("cfa_tool.workflows.montecarlo", "cfa_tool.workflows.group_power"),
      ("MonteCarloPower", "PowerCurve", "InvariancePower")),  # one group; several groups (--group-sizes)
     (ResultKind.SIMULATE, "cfa_tool.workflows.simulation", ("SimulatedData",)),

@@ -27,6 +27,7 @@ from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, cfi_not_de
 from cfa_tool.reporting.numbers import (est_num, est_unit, fit_index_text, guides_text, index_text, missing, needed_decimals, num,
                                         p_phrase, p_value, short, signed, signed_num, unit, word_list)
 from cfa_tool.language.spec import equality_words
+from cfa_tool.reporting.nested_power_report import boundary_words, nested_parts
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
 from cfa_tool.workflows.invariance import CONFIGURAL_INDICES
 from cfa_tool.workflows.nesting import heavy_tails_caution
@@ -1423,6 +1424,8 @@ def cutoff_meaning(misspecification: str) -> str:
 # ---------------------------------------------------------------- power
 
 def power_report(result) -> Report:
+    if hasattr(result, "nested"):  # the difference test against a nested model (workflows.power_nested)
+        return nested_power_report(result)
     rows = [["Test", f"{result.test} fit", result.test],
             ["RMSEA under the null hypothesis", short(result.rmsea_null), result.rmsea_null],
             ["RMSEA under the alternative", short(result.rmsea_alternative), result.rmsea_alternative],
@@ -1431,19 +1434,7 @@ def power_report(result) -> Report:
     if result.power is not None:
         rows.append([f"Power with N = {count_text(result.n_obs)}", unit(result.power), result.power])
     rows.append([f"Smallest N for power {unit(result.target_power, needed_decimals(result.target_power, fewest=2))}", str(result.required_n), result.required_n])
-    planned = getattr(result, "clusters", None)  # a planned cluster sample (workflows.power.cluster_plan)
-    if planned is not None:
-        if planned.intraclass is not None:
-            rows.append(["Intraclass correlation (given)", short(planned.intraclass), planned.intraclass])
-        if planned.cluster_size is not None:
-            rows.append(["Rows per cluster (given)", user_number(planned.cluster_size), planned.cluster_size])
-        rows.append(["Design effect" + (" (1 + (m - 1) ICC, Kish 1965)" if planned.intraclass is not None
-                                        else " (given)"), num(planned.design_effect, 2), planned.design_effect])
-        rows.append(["Rows needed in the cluster sample", count_text(planned.rows), planned.rows])
-        if planned.clusters is not None:
-            size = planned.cluster_size
-            rows.append([f"Clusters of {user_number(size)} {'row' if size == 1 else 'rows'} needed",
-                         count_text(planned.clusters), planned.clusters])
+    rows += _cluster_rows(getattr(result, "clusters", None))
     table = _table("power", "Power and sample size", [("", "l"), ("Value", "r")], [r[:2] for r in rows],
                    f"Note: {result.note}." if result.note else None,
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
@@ -1455,6 +1446,80 @@ def power_report(result) -> Report:
 
 
 POWER_CAUTION = "Check before planning with this sample size"
+
+
+def _cluster_rows(planned) -> list[list]:
+    """The rows of a power plan's table for a planned cluster sample (workflows.power.cluster_plan; none without
+    one): (label, shown, value) each."""
+    if planned is None:
+        return []
+    rows = []
+    if planned.intraclass is not None:
+        rows.append(["Intraclass correlation (given)", short(planned.intraclass), planned.intraclass])
+    if planned.cluster_size is not None:
+        rows.append(["Rows per cluster (given)", user_number(planned.cluster_size), planned.cluster_size])
+    rows.append(["Design effect" + (" (1 + (m - 1) ICC, Kish 1965)" if planned.intraclass is not None
+                                    else " (given)"), num(planned.design_effect, 2), planned.design_effect])
+    rows.append(["Rows needed in the cluster sample", count_text(planned.rows), planned.rows])
+    if planned.clusters is not None:
+        size = planned.cluster_size
+        rows.append([f"Clusters of {user_number(size)} {'row' if size == 1 else 'rows'} needed",
+                     count_text(planned.clusters), planned.clusters])
+    return rows
+
+
+def nested_power_report(result) -> Report:
+    """The report of ``power MODEL --nested-model MODEL2`` (workflows.power_nested.NestedPower): the difference
+    test's power at N and the smallest N for the target power, by the noncentral chi-square (Satorra & Saris 1985)."""
+    nested = result.nested
+    df, discrepancy = nested.df_difference, nested.discrepancy
+    rows = [["Nested model", nested.name, nested.name],
+            ["Degrees of freedom of the difference", str(df), df],
+            ["Minimum discrepancy of the nested model at the population (F)", num(discrepancy, 4), discrepancy],
+            ["Significance level", short(result.alpha), result.alpha]]
+    if result.power is not None:
+        rows.append([f"Noncentrality with N = {count_text(result.n_obs)} (N F)",
+                     num(nested.noncentrality(result.n_obs), 2), nested.noncentrality(result.n_obs)])
+        rows.append([f"Power with N = {count_text(result.n_obs)}", unit(result.power), result.power])
+    rows.append([f"Smallest N for power {unit(result.target_power, needed_decimals(result.target_power, fewest=2))}",
+                 count_text(result.required_n), result.required_n])
+    rows += _cluster_rows(result.clusters)
+    table = _table("power", "Power of the difference test and sample size", [("", "l"), ("Value", "r")],
+                   [r[:2] for r in rows], f"Note: {result.note}." if result.note else None,
+                   values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
+    assumptions = Note((f"This power is that of the likelihood-ratio chi-square difference between maximum-likelihood "
+                        f"fits of the two models to independent, complete rows of normally distributed answers, by the "
+                        f"noncentral chi-square with {df} df and noncentrality N F, F the minimum discrepancy the "
+                        f"nested model leaves at the population the model file's values describe (Satorra & Saris "
+                        f"1985): an approximation, for discrepancies small beside the sampling error. A power "
+                        f"simulation fits both models to simulated data sets and gives the simulated power beside this "
+                        f"one", Command(f" ('cfa-tool power-simulation MODEL --n {result.required_n} "
+                                        f"{Option.NESTED_MODEL.given('MODEL2')}')"),
+                        "." + boundary_words(nested)))
+    defaulted = len(result.defaulted)
+    warnings = (Note((f"{defaulted} population value{'s' if defaulted != 1 else ''} not given in the model file "
+                      f"{'are the standardized defaults' if defaulted != 1 else 'is a standardized default'} "
+                      f"({STANDARDIZED_DEFAULTS}; listed in the population table), not values of this scale: the "
+                      f"power and the sample size are those of such a population. Give the values the model file lacks",
+                      Command(" with 'start' statements", " from an earlier fit of the model or from the literature"),
+                      ".")),) if defaulted else ()
+    population = _population_of(result)
+    notice = None
+    if result.below_rows_rule:  # the test's N is not what estimating the model needs: first
+        from cfa_tool.assessment.admissibility import ROWS_PER_PARAMETER, ROWS_RULE
+
+        below = result.below_rows_rule
+        one = len(below) == 1
+        notice = ProblemNotice(POWER_CAUTION, (
+            f"{' and '.join(f'N = {count_text(f.rows)}' for f in below)} {'is' if one else 'are'} judged by the "
+            f"difference test alone, not by what estimating the model needs: {'; '.join(f.figures() for f in below)}, "
+            f"fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; {count_text(ROWS_PER_PARAMETER * below[0].parameters)} "
+            f"rows here); this plan says nothing of how precisely the loadings, variances and correlations are "
+            f"estimated at {'that N' if one else 'those sizes'}, which a power simulation of the model gives",), False)
+    return Report(ResultKind.POWER, f"Power of the chi-square difference test against '{nested.name}' (Satorra & "
+                                    f"Saris 1985)", notice, (), (table, *population), (assumptions,),
+                  ("The power is a plan's figure for the population assumed; high-stakes decisions need validation "
+                   "and professional judgement.",), warnings=warnings)
 
 
 def rows_rule_caution(result) -> Note:
@@ -1568,6 +1633,8 @@ def montecarlo_report(result) -> Report:
              f"({100 * result.converged / result.replications:.1f}%)."
              ] + _ordinal_power_lines(result)
     lines += not_carried_line(result.not_carried)
+    nested_lines, nested_tables, paragraph = nested_parts((result,))  # a nested model's difference test: its power
+    lines += nested_lines
     # what decides the plan first: power, then whether intervals and estimates can be trusted at this N
     rows = [[label_words(p.label, article=False, observed=result.observed or None), unit(p.power, 2), f"{100 * p.coverage:.1f}%",
              _percent(p.relative_bias), _percent(p.se_bias)] for p in result.parameters]
@@ -1587,8 +1654,9 @@ def montecarlo_report(result) -> Report:
                    values=(["Parameter", "Power", "Coverage", "Estimate relative bias", "SE relative bias"], values))
     return Report(ResultKind.POWER_SIMULATION,
                   f"Monte Carlo power: N = {count_text(result.n_obs)}, {count_text(result.replications)} replications (seed {result.seed})",
-                  _notice([], _inadmissible_cautions([result])), tuple(lines), (table, *population),
-                  warnings=one_group_defaults_caution(result) + few_replications(result.replications))
+                  _notice([], _inadmissible_cautions([result])), tuple(lines), (*nested_tables, table, *population),
+                  warnings=one_group_defaults_caution(result) + few_replications(result.replications),
+                  paragraph=paragraph)
 
 
 def _zero_population_words(parameters) -> str:
@@ -1621,6 +1689,8 @@ def power_curve_report(curve) -> Report:
         lines += [lacked_sentence(r.lacking, r.converged, r.lacked, f"replications at N = {count_text(r.n_obs)}",
                                   "every figure of that size") for r in curve.results if r.lacking]
     lines += not_carried_line(first.not_carried)
+    nested_lines, nested_tables, paragraph = nested_parts(curve.results)  # a nested model's difference test
+    lines += nested_lines
     names = [label_words(p.label, article=False, observed=first.observed or None) for p in first.parameters]
     rows = [[name, *(unit(r.parameters[k].power, 2) for r in curve.results)] for k, name in enumerate(names)]
     values = [[name, *(r.parameters[k].power for r in curve.results)] for k, name in enumerate(names)]
@@ -1645,8 +1715,10 @@ def power_curve_report(curve) -> Report:
                    values=([h for h, _ in heads], values))
     return Report(ResultKind.POWER_SIMULATION, f"Monte Carlo power by sample size: {count_text(first.replications)} replications "
                                                f"per size (seed {first.seed})",
-                  _notice([], _inadmissible_cautions(curve.results)), tuple(lines), (table, trust, *_population_of(first)),
-                  warnings=one_group_defaults_caution(first) + few_replications(first.replications))
+                  _notice([], _inadmissible_cautions(curve.results)), tuple(lines),
+                  (*nested_tables, table, trust, *_population_of(first)),
+                  warnings=one_group_defaults_caution(first) + few_replications(first.replications),
+                  paragraph=paragraph)
 
 
 #: the values a population takes where the model file gives none (workflows.simulation: STANDARDIZED_LOADING,

@@ -3,12 +3,15 @@
 For each free parameter: mean estimate and relative bias against the
 population value, the spread of the estimates beside the mean standard error,
 coverage of the 95% Wald interval, and power (share of replications with
-p < alpha); plus the convergence rate (Muthén & Muthén 2002).
+p < alpha); plus the convergence rate (Muthén & Muthén 2002).  With a model
+nested in the simulated one, each data set is fitted by both, and the power of
+their chi-square difference test is counted too (workflows.power_nested).
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from pathlib import Path
 from typing import Sequence
 
 import numpy as np
@@ -21,8 +24,9 @@ from cfa_tool.errors import OptionError
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.pipeline.continuous import moments_from_rows, replicate_fits
 from cfa_tool.language.spec import Spec
+from cfa_tool.workflows.power_nested import difference_power, nested_plan
 from cfa_tool.workflows.parallel import REFITS_TOGETHER, refits_together, run_tasks
-from cfa_tool.workflows.simulation import population_from_spec, simulate_rows
+from cfa_tool.workflows.simulation import model_order_labels, population_from_spec, simulate_rows
 from cfa_tool.views import Presentable
 
 
@@ -74,6 +78,10 @@ class MonteCarloPower(Presentable):
     #: kept: workflows.ordinal_resampling), and the categories lacked with their counts (LackedCategory)
     lacking: int = 0
     lacked: tuple = ()
+    #: a model nested in the simulated one (workflows.power_nested.NestedPlan) and the power of the chi-square
+    #: difference test against it at this sample size (DifferencePower); None without one
+    nested: object = field(default=None, compare=False)
+    difference: object = None
 
     @property
     def observed(self) -> tuple[str, ...]:
@@ -89,7 +97,15 @@ class MonteCarloPower(Presentable):
                 "inadmissible": self.inadmissible,
                 "inadmissible_problems": self.inadmissible_named, "not_carried_over": list(self.not_carried),
                 **({"lacking_a_category": self.lacking, "categories_lacked": [c.to_dict() for c in self.lacked]}
-                   if self.lacking else {})}
+                   if self.lacking else {}),
+                **({"nested_model": nested_json(self.nested, (self.difference,))} if self.nested is not None else {})}
+
+
+def nested_json(nested, differences) -> dict:
+    """The nested model and its difference test's power at each sample size, for the JSON."""
+    return {"name": nested.name, "source": nested.source, "df_difference": nested.df_difference,
+            "population_discrepancy": nested.discrepancy, "on_the_boundary": list(nested.boundary),
+            "difference_test": [d.to_dict() for d in differences]}
 
 
 @dataclass(frozen=True)
@@ -111,43 +127,32 @@ class PowerCurve(Presentable):
                            "power": [r.parameters[k].power for r in self.results]} for k, p in enumerate(first.parameters)],
                 "by_sample_size": [r.to_dict() for r in self.results], "population_defaults": list(first.defaulted),
                 "ordinal_items_fitted_by": first.ordinal,
-                "model_test_rejection_rate": [r.model_rejected for r in self.results] if first.ordinal else None}
+                "model_test_rejection_rate": [r.model_rejected for r in self.results] if first.ordinal else None,
+                **({"nested_model": nested_json(first.nested, [r.difference for r in self.results])}
+                   if first.nested is not None else {})}
 
 
-def model_order_labels(table) -> dict[str, str]:
-    """Each free parameter's label (``table.free_labels``, a model file's reference, whose pair of names is sorted)
-    -> the same reference with the pair in the order the model names it (the parameter's variables), as the
-    population table and the fit name it: one parameter named one way in one report (new-user trial s21: 'dedication
-    and vigour' in the power table, 'vigour and dedication' in the population table)."""
-    from cfa_tool.language.names import read_reference, reference_text
-
-    first = {}
-    for par in table.parameters:
-        if len(par.terms) == 1 and par.terms[0][1] == 1.0:
-            first.setdefault(par.terms[0][0], par)
-    out = {}
-    for k, label in enumerate(table.free_labels):
-        kind, names, group = read_reference(label)
-        par = first.get(k)
-        if par is not None and len(names) == 2 and sorted(names) == sorted(par.variables):
-            names = par.variables
-        out[label] = reference_text(kind, names, group)
-    return out
-
-
-def _replicate(tasks: list) -> list[tuple[bool, np.ndarray, np.ndarray]]:
-    """(converged, estimates, standard errors) of each task's simulated data set, fitted together."""
-    spec, _, names, _, _, start = tasks[0]
+def _replicate(tasks: list) -> list[tuple]:
+    """(converged, estimates, standard errors) of each task's simulated data set, fitted together; with a nested
+    model (the task's last field: its spec and start values), also (the chi-square, whether the nested model
+    converged, its chi-square) of the same data set."""
+    spec, _, names, _, _, start, nested = tasks[0]
     samples = [moments_from_rows(simulate_rows(sigma, n, np.random.default_rng(seed)), names)
-               for _, sigma, _, n, seed, _ in tasks]
+               for _, sigma, _, n, seed, _, _ in tasks]
     fits = replicate_fits(spec, samples, start, standard_errors=True, fit_indices_wanted=False)
-    return [(fit.converged, fit.theta, fit.se if fit.se is not None else np.full(0, np.nan)) for fit in fits]
+    found = [(fit.converged, fit.theta, fit.se if fit.se is not None else np.full(0, np.nan)) for fit in fits]
+    if nested is None:
+        return found
+    rivals = replicate_fits(nested[0], samples, nested[1], standard_errors=False, fit_indices_wanted=False)
+    return [(*one, fit.chi_square, rival.converged, rival.chi_square)
+            for one, fit, rival in zip(found, fits, rivals)]
 
 
 def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications: int = 500, seed: int = 1,
                       alpha: float = 0.05, workers: int | None = None, scheduler: str | None = None, progress=None,
                       population=None, categories: int | None = None,
-                      ordinal_estimator: str | None = None) -> MonteCarloPower | PowerCurve:
+                      ordinal_estimator: str | None = None,
+                      nested_model: str | Path | Spec | None = None) -> MonteCarloPower | PowerCurve:
     """Monte Carlo power at one sample size, or a :class:`PowerCurve` when ``n_obs`` lists several
     (a list, or text such as '100,200,400'); every replication of every size runs in one batch of tasks.
 
@@ -155,7 +160,12 @@ def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications
     (every item when no statement declares any), or the items of an earlier ordinal fit given as ``population``,
     cut at its thresholds.  Each sample is then fitted by least squares (``ordinal_estimator``, diagonally
     weighted by default) with robust standard errors, and the share of replications whose adjusted test rejects
-    the true model is reported beside the power."""
+    the true model is reported beside the power.
+
+    ``nested_model``: a model nested in ``spec`` (a model file, model text or parsed model: a restricted form of it,
+    such as two of its factors merged into one), of continuous items; each data set is fitted by both models too,
+    and the power of their chi-square difference test at each sample size is reported beside its noncentral
+    chi-square approximation (workflows.power_nested; Satorra & Saris 1985)."""
     from cfa_tool.pipeline.inputs import load_spec, ordinal_estimator_option, without_exploratory_blocks
     from cfa_tool.workflows.simulation import refuse_set_residual_variances_first, with_categories
 
@@ -181,6 +191,7 @@ def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications
         raise OptionError("power-simulation counts how often each free parameter's test rejects zero, and the model "
                           "fixes every parameter; give the population values with 'start' statements instead (a "
                           "start value is the population value, and the parameter stays free to be estimated)")
+    nested = nested_plan(spec, nested_model, population) if nested_model is not None else None
     weighting = ordinal_estimator_option(ordinal_estimator, population.ordinal_items,
                                          f"an 'ordinal' statement, {check.Option.CATEGORIES} or an ordinal fit's "
                                          f"{check.Option.POPULATION_FROM}")
@@ -189,11 +200,13 @@ def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications
     if population.ordinal_items:
         return _ordinal_power(spec, population, sizes, streams, replications, seed, alpha, weighting, workers,
                               scheduler, progress)
-    tasks = [(spec, population.sigma, population.observed, n, int(s), population.theta)
+    rival = (nested.spec, nested.start) if nested is not None else None
+    tasks = [(spec, population.sigma, population.observed, n, int(s), population.theta, rival)
              for n, stream in zip(sizes, streams) for s in stream.generate_state(replications)]
     results = run_tasks(_replicate, tasks, workers, scheduler, progress,
                         refits_together(REFITS_TOGETHER, len(population.theta)), batched=True)
-    powers = tuple(_summary(population, n, replications, seed, alpha, results[k * replications:(k + 1) * replications])
+    powers = tuple(_summary(population, n, replications, seed, alpha, results[k * replications:(k + 1) * replications],
+                            nested)
                    for k, n in enumerate(sizes))
     return powers[0] if len(sizes) == 1 else PowerCurve(powers)
 
@@ -249,10 +262,12 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
     return powers[0] if len(sizes) == 1 else PowerCurve(tuple(powers))
 
 
-def _summary(population, n_obs: int, replications: int, seed: int, alpha: float, results: list) -> MonteCarloPower:
-    """Power, bias and coverage of one sample size's replications."""
+def _summary(population, n_obs: int, replications: int, seed: int, alpha: float, results: list,
+             nested=None) -> MonteCarloPower:
+    """Power, bias and coverage of one sample size's replications; with a ``nested`` model
+    (power_nested.NestedPlan), the power of the difference test over the replications both models converged in."""
     table = population.table
-    ok = [(theta, se) for converged, theta, se in results if converged]
+    ok = [(one[1], one[2]) for one in results if one[0]]
     if not ok:
         raise OptionError(f"no replication converged at N = {n_obs}; check the population values and the sample size")
     # SEs of theta: each theta index appears as an entry with one coefficient 1
@@ -265,10 +280,13 @@ def _summary(population, n_obs: int, replications: int, seed: int, alpha: float,
     labels = model_order_labels(table)
     rows = _parameter_rows(tuple(labels.values()), population.theta, thetas, ses, alpha)
     count, named = counted_problems(replicated_problems(table, StructuredModel(table), thetas))
+    difference = None
+    if nested is not None:
+        difference = difference_power(nested, n_obs, alpha, [(one[3], one[5]) for one in results if one[0] and one[4]])
     return MonteCarloPower(n_obs, replications, len(ok), alpha, seed, rows,
                            tuple(labels.get(label, label) for label in population.defaulted),
                            inadmissible=count, not_carried=population.not_carried, population=population,
-                           inadmissible_named=named)
+                           inadmissible_named=named, nested=nested, difference=difference)
 
 
 def _parameter_rows(labels, population: np.ndarray, thetas: np.ndarray, ses: np.ndarray,

@@ -359,6 +359,27 @@ def _fitted_means(model: StructuredModel, theta: np.ndarray, saved, payload: dic
     return means, ItemMeans.SAMPLE_MEANS
 
 
+def model_order_labels(table) -> dict[str, str]:
+    """Each free parameter's label (``table.free_labels``, a model file's reference, whose pair of names is sorted)
+    -> the same reference with the pair in the order the model names it (the parameter's variables), as the
+    population table and the fit name it: one parameter named one way in one report (new-user trial s21: 'dedication
+    and vigour' in the power table, 'vigour and dedication' in the population table)."""
+    from cfa_tool.language.names import read_reference, reference_text
+
+    first = {}
+    for par in table.parameters:
+        if len(par.terms) == 1 and par.terms[0][1] == 1.0:
+            first.setdefault(par.terms[0][0], par)
+    out = {}
+    for k, label in enumerate(table.free_labels):
+        kind, names, group = read_reference(label)
+        par = first.get(k)
+        if par is not None and len(names) == 2 and sorted(names) == sorted(par.variables):
+            names = par.variables
+        out[label] = reference_text(kind, names, group)
+    return out
+
+
 def population_from_spec(spec: Spec, fitted=None) -> Population:
     """The population of ``spec``: its 'start' and 'fix' values with standardized defaults beside them, or,
     with ``fitted`` (a fit result, its JSON dict or the JSON file), the estimates of that earlier fit."""

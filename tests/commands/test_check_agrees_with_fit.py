@@ -27,7 +27,6 @@ SHARED = {"--data": 1, "--group-column": 1, "--group": 1, "--sheet": 1, "--names
 # fit's refusals that check cannot make without fitting, each with the reason
 NOT_WITHOUT_FITTING = {
     "rotation_not_identified": "the information matrix at the estimates is singular: known only after the search",
-    "covariance_beyond_the_variances": "judged by fit at its search's start values, which check does not compute",
 }
 
 
@@ -130,4 +129,35 @@ def test_ordinal_models_checked_by_the_fits_rules(what, how, groups, tmp_path, m
     fit_code, fit_line = _first_line(["fit", *given], capsys)
     check_code, check_line = _first_line(["check", *given], capsys)
     assert (fit_code == 0) == (check_code == 0), (fit_line, check_line)
+    assert check_line == fit_line
+
+
+# a covariance fixed beyond what the variances at the search's start allow (plan s24: check accepted it, which fit
+# refuses before its search at the statement's line): the same first line from check and fit, in one group and in
+# groups, on complete rows and on rows with gaps (full-information ML), and with ordinal items; where fit begins its
+# search (ordinal items, their latent responses of variance 1 at the start), check accepts too
+BEYOND = "factor f: q1, q2, q3\nfactor g: q4, q5, q6\nfix covariance(f, g) = 5\n"
+WAYS = {"complete rows": ("good.csv", [], "", True), "groups": ("good.csv", ["--group-column", "site"], "", True),
+        "rows with gaps": ("gaps", [], "", True), "ordinal items": ("ordinal_survey.csv", [], "ordinal q1..q6\n", False)}
+
+
+@pytest.mark.parametrize("way", list(WAYS))
+def test_a_covariance_beyond_the_start_variances_stops_check_as_fit(way, tmp_path, monkeypatch, capsys):
+    import pandas as pd
+
+    monkeypatch.chdir(tmp_path)
+    data, option, statement, stops = WAYS[way]
+    Path("m.cfa").write_text(BEYOND + statement)
+    if data == "gaps":  # every tenth answer of q2 and q5 left out
+        frame = pd.read_csv(CORPUS / "data" / "good.csv")
+        frame.loc[frame.index % 10 == 0, "q2"] = None
+        frame.loc[frame.index % 10 == 5, "q5"] = None
+        frame.to_csv("d.csv", index=False)
+    else:
+        shutil.copy(CORPUS / "data" / data, "d.csv")
+    given = ["m.cfa", "--data", "d.csv", *option]
+    fit_code, fit_line = _first_line(["fit", *given], capsys)
+    check_code, check_line = _first_line(["check", *given], capsys)
+    assert (fit_code == 2 and "is fixed at 5, beyond what the variances" in fit_line) if stops else fit_code == 0, fit_line
+    assert check_code == fit_code
     assert check_line == fit_line
