@@ -357,7 +357,8 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             zero = {k for k in load_keys if entries[k]["origin"] == "user" and entries[k]["fixed"] is not None
                     and not fix_sets_scale("loading", entries[k]["fixed"])
                     or k in reached and not fix_sets_scale("loading", reached[k])}
-            if entries[var_key]["origin"] == "user" or var_key in reached or any(
+            # (a variance held equal to one fixed at 0, a disturbance, sets no scale: the factor keeps its marker)
+            if entries[var_key]["origin"] == "user" or reached.get(var_key, 0) != 0 or any(
                     entries[k]["origin"] == "user" or k in reached for k in load_keys if k not in zero):
                 continue
             load_keys = [k for k in load_keys if k not in zero]

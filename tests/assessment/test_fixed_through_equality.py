@@ -76,3 +76,20 @@ def test_fixes_held_equal_through_a_chain_of_statements_must_agree(data):
             "fix loading(f1, a2) = 0.5\nfix loading(f2, b3) = 0.7\n")
     with pytest.raises(ModelError, match="held equal but fixed at different values"):
         cfa_tool.fit(text, data)
+
+
+def test_a_disturbance_held_equal_to_one_fixed_at_zero_keeps_its_marker():
+    """A variance held at 0 sets no scale (a disturbance at 0 makes its factor a multiple of the one above): the
+    factor held equal to it keeps its marker, and the fit is identified."""
+    rng = np.random.default_rng(3)
+    g = rng.normal(size=500)
+    first = [0.8 * g + 0.6 * rng.normal(size=500) for _ in range(3)]
+    data = pd.DataFrame({f"x{i * 3 + j + 1}": first[i] * w + rng.normal(scale=0.6, size=500)
+                         for i in range(3) for j, w in enumerate((0.8, 0.7, 0.6))})
+    text = ("factor a: x1, x2, x3\nfactor b: x4, x5, x6\nfactor c: x7, x8, x9\nfactor g: a, b, c\n"
+            "fix variance(a) = 0\nfix loading(a, x1) = 1\nequal variance(a), variance(b)\n")
+    result = cfa_tool.fit(text, data)
+    assert result.converged and not result.problems or all("correlate" in str(p) for p in result.problems)
+    loadings = {e.variables: (e.estimate, e.free) for e in result.estimates if e.kind == "loading"}
+    assert loadings[("b", "x4")] == (1.0, False)
+    assert any("variance of factor b" in w for w in _notes(result))
