@@ -579,16 +579,23 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         start[k] = value
     lower = np.full(n_free, -np.inf)
     upper = np.full(n_free, np.inf)
+    set_by: dict[tuple[int, str], ParameterRef] = {}  # (free parameter, side) -> the bound's parameter that set it
     for bound in spec.bounds:
         for ref in bound.refs:
             for g in groups_of(ref):  # (a loading effects coding gives was refused above: it is in no group free)
                 k = free_index(ref, g)
                 if k is None:
                     continue
-                if bound.lower is not None:
-                    lower[k] = max(lower[k], bound.lower)
-                if bound.upper is not None:
-                    upper[k] = min(upper[k], bound.upper)
+                if bound.lower is not None and bound.lower > lower[k]:
+                    lower[k], set_by[(k, "lower")] = bound.lower, ref
+                if bound.upper is not None and bound.upper < upper[k]:
+                    upper[k], set_by[(k, "upper")] = bound.upper, ref
+                if lower[k] > upper[k]:  # bounds on parameters held equal (one free parameter) that leave no room
+                    low, high = set_by[(k, "lower")], set_by[(k, "upper")]
+                    raise _fail(spec, f"the bounds leave no room: {low} is bounded to at least "
+                                      f"{user_number(lower[k])} and {high} to at most {user_number(upper[k])}, and "
+                                      f"the two are held equal (one value), so no value meets both; "
+                                      f"change a bound or the equality", ref)
 
     parameters = []
     for key in order:

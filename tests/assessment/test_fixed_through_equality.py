@@ -93,3 +93,14 @@ def test_a_disturbance_held_equal_to_one_fixed_at_zero_keeps_its_marker():
     loadings = {e.variables: (e.estimate, e.free) for e in result.estimates if e.kind == "loading"}
     assert loadings[("b", "x4")] == (1.0, False)
     assert any("variance of factor b" in w for w in _notes(result))
+
+
+def test_bounds_on_parameters_held_equal_that_leave_no_room_are_refused(data):
+    """Hostile tester s24: 'bound variance(a2) >= 0.8' and 'bound variance(b2) <= 0.3' with the two held equal were
+    fitted, a2's variance reported at 0.3, under its own lower bound."""
+    text = (TWO + "equal variance(a2), variance(b2)\nbound variance(a2) >= 0.8\nbound variance(b2) <= 0.3\n")
+    with pytest.raises(ModelError, match="bounds leave no room.*held equal"):
+        cfa_tool.fit(text, data)
+    fine = cfa_tool.fit(TWO + "equal variance(a2), variance(b2)\nbound variance(a2) >= 0.1\n"
+                              "bound variance(b2) <= 0.9\n", data)
+    assert fine.converged
