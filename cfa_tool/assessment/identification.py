@@ -6,11 +6,11 @@ from __future__ import annotations
 
 import numpy as np
 
-from cfa_tool.numbers import rounded_number
+from cfa_tool.numbers import rounded_number, user_number
 from cfa_tool.errors import ModelError, NotIdentified, UnboundedSolution
 from cfa_tool.language.names import reference_text, written_name
 from cfa_tool.language.spec import Spec
-from cfa_tool.model.description import split_label
+from cfa_tool.model.description import parameter_words, split_label
 from cfa_tool.model.parameters import ParameterTable
 from cfa_tool.numerics.linalg import ScaledFactor, scaled_factor
 
@@ -25,6 +25,29 @@ def moments_count(table: ParameterTable) -> int:
     (Bollen 1989, ch. 4)."""
     p = table.p
     return table.n_groups * (p * (p + 1) // 2 + (p if table.mean_structure else 0))
+
+
+def fixed_through_equality_notes(table: ParameterTable) -> tuple[str, ...]:
+    """A note for each parameter an 'equal' statement fixes by holding it equal to a fixed one
+    (model.parameters.FixedThroughEquality): the model file fixed only the other one, and the report's tables then show
+    both fixed, so the note says why, and that the restriction is the model's (one more degree of freedom than the
+    equality alone would give, none counted for the fixed parameter)."""
+    notes = []
+    for tie in table.fixed_through_equality:
+        group = table.groups[tie.group] if table.multigroup else None
+        held = parameter_words(tie.kind, tie.variables, group, table.observed, groups=table.groups)
+        fixed = parameter_words(tie.fixed_kind, tie.fixed_variables, group, table.observed, groups=table.groups)
+        why = ("the marker that sets its factor's scale" if tie.sets_scale else "by a 'fix' statement")
+        note = (f"An 'equal' statement holds {held} equal to {fixed}, which is fixed at {user_number(tie.value)} "
+                f"({why}): so {held} is fixed at {user_number(tie.value)} too, not estimated.")
+        own = [par.variables[1] for par in table.parameters if par.origin == "scale" and par.kind == "loading"
+               and par.group == tie.group and tie.kind == "loading" and par.variables[0] == tie.variables[0]]
+        if tie.sets_scale and own:  # a factor scaled twice: a restriction the model file may not have meant
+            note += (f" '{tie.variables[0]}' also takes its scale from its own marker ({own[0]}), so two of its "
+                     f"loadings are fixed, one more restriction than its scale needs; to hold one item's loadings "
+                     f"equal across factors, list that item first in each (each factor's marker).")
+        notes.append(note)
+    return tuple(notes)
 
 
 def check_counting_rule(spec: Spec, table: ParameterTable) -> None:

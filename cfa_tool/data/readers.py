@@ -253,6 +253,8 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     if unused_note is not None:  # the words of --missing-codes that no item holds: said as a code that no cell holds is
         code_notes = tuple(code_notes) + (unused_note,)
     markers = loaded.frame.attrs.get(MARKER_CELLS)  # the reader's note on 'NA', '.': (note, {marker: rows})
+    if markers and mine is not None and any(n is markers[0] for n in loaded.notes):
+        markers, loaded = _markers_in_items(loaded, markers, mine)
     # the notes that count cells, kept with what they counted: written again over the rows analysed (row filters,
     # a group column: data.kept_counts)
     loaded = replace(loaded, counts=ReadingCounts(
@@ -406,7 +408,7 @@ def _renamed(loaded: LoadedData, renames: tuple[ColumnRename, ...], option: Opti
     if not renames:
         return loaded
     frame = renamed_frame(loaded.frame, renames, loaded.source, option, (SHEET_COLUMNS, MARKED, SPELLINGS,
-                                                                         MEASURE_LEVELS))
+                                                                         MEASURE_LEVELS, MARKER_COLUMN_ROWS))
     names = {r.old: r.new for r in renames}
     return replace(loaded, frame=frame, renamed=renames,
                    variable_labels={names.get(k, k): v for k, v in loaded.variable_labels.items()},
@@ -533,12 +535,14 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     _padded_as_shown(ws, body, kept, header, skipped, items, where, notes)
     marked: dict[int, dict[str, int]] = {}  # column position -> {marker: cells}, counted once
     marker_rows: dict[str, list[int]] = {}  # marker -> the body's row of each such cell
+    column_rows: dict[int, dict[str, list[int]]] = {}  # column position -> {marker: the body's rows}
     for i, r in enumerate(body):
         for k, v in enumerate(r):
             if isinstance(v, str) and v.strip() in _MARKER_SET:
                 counted = marked.setdefault(k, {})
                 counted[v.strip()] = counted.get(v.strip(), 0) + 1
                 marker_rows.setdefault(v.strip(), []).append(i)
+                column_rows.setdefault(k, {}).setdefault(v.strip(), []).append(i)
                 r[k] = None
     said = _say_markers(_marker_totals(marked.values()), where, notes)
     if any(v is None for r in body for v in r):
@@ -549,6 +553,8 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
         frame.attrs[MARKED] = {header[k]: counted for k, counted in marked.items()}
     if said is not None:
         frame.attrs[MARKER_CELLS] = (said, {m: frame.index[rows].to_numpy() for m, rows in marker_rows.items()})
+        frame.attrs[MARKER_COLUMN_ROWS] = {header[k]: {m: frame.index[rows].to_numpy() for m, rows in by.items()}
+                                           for k, by in column_rows.items()}
     _check_formula_errors(frame, where, items, _typed_errors(frame, ws))
     _check_repeated_header(frame, where, first + 1)
     _check_header_rows(frame, where, False, items=items, header_row=first + 1, names_option=names_option,
@@ -2111,6 +2117,7 @@ def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list
     cells = raw.frame()
     marked = {}  # column -> {marker: cells}, counted once for the note and the column's record
     marker_rows: dict[str, list] = {}  # marker -> the row (index label) of each such cell
+    column_rows: dict[str, dict[str, list]] = {}  # column -> {marker: the rows (index labels) of its cells}
     for k, name in enumerate(header):
         stripped = cells.iloc[:, k].str.strip()
         held = stripped[stripped.isin(MISSING_MARKERS)]
@@ -2119,11 +2126,14 @@ def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list
             marked[name] = {str(m): int(n) for m, n in counted.items()}
             for label, m in held.items():
                 marker_rows.setdefault(str(m), []).append(label)
+                column_rows.setdefault(name, {}).setdefault(str(m), []).append(label)
     said = _say_markers(_marker_totals(marked.values()), path, notes)
     if frame is not None and marked:
         frame.attrs[MARKED] = marked
         if said is not None and len(cells) == len(frame):
             frame.attrs[MARKER_CELLS] = (said, {m: np.asarray(rows) for m, rows in marker_rows.items()})
+            frame.attrs[MARKER_COLUMN_ROWS] = {name: {m: np.asarray(rows) for m, rows in by.items()}
+                                               for name, by in column_rows.items()}
 
 
 #: the key of DataFrame.attrs that keeps, for each column, the markers of no answer its cells were written as and
@@ -2134,6 +2144,28 @@ MARKED = "marked_no_answer"
 #: for each marker: (note, {marker: rows}), by which the note is counted again over the rows analysed
 #: (data.kept_counts.ReadingCounts)
 MARKER_CELLS = "marker_cells"
+#: the key of DataFrame.attrs that keeps the same rows column by column ({column: {marker: rows}}), by which the note
+#: counts the model's item columns alone (newuser s24: 'n/a' in a comment column was counted as items' gaps)
+MARKER_COLUMN_ROWS = "marker_column_rows"
+
+
+def _markers_in_items(loaded: LoadedData, markers: tuple, items: set[str]) -> tuple[tuple | None, LoadedData]:
+    """The reader's note on cells written as markers of no answer ('NA', 'n/a': ``markers``, its MARKER_CELLS) counted
+    again over the model's item columns (``items``) alone, in ``loaded``'s notes in its place (none when no item cell
+    holds one): a comment column's 'n/a' is a respondent's words, not a gap in the answers analysed (new-user trial
+    s24).  The note's rows by marker come with it, for the counts over the rows analysed (data.kept_counts)."""
+    by_column = loaded.frame.attrs.get(MARKER_COLUMN_ROWS)
+    if by_column is None:
+        return markers, loaded
+    found = [by for column, by in by_column.items() if str(column) in items]
+    rows = {m: np.concatenate([by[m] for by in found if m in by]) for m in MISSING_MARKERS
+            if any(m in by for by in found)}
+    totals = {m: len(r) for m, r in rows.items()}
+    if totals == {m: len(r) for m, r in markers[1].items()}:
+        return markers, loaded  # every marked cell is an item's
+    note = markers_note(totals, loaded.source)
+    notes = tuple(n for n in (note if n is markers[0] else n for n in loaded.notes) if n is not None)
+    return ((note, rows) if note is not None else None), replace(loaded, notes=notes)
 
 
 def _marker_totals(marked) -> dict[str, int]:

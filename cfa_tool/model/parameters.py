@@ -87,6 +87,22 @@ class Parameter:
 
 
 @dataclass(frozen=True)
+class FixedThroughEquality:
+    """A parameter an 'equal' statement holds equal to a fixed one, which is therefore fixed too, at the same value:
+    its group, its kind and variables, the fixed parameter's, the value, and whether the fixed one was fixed to set a
+    scale (a factor's marker loading, not a 'fix' statement).  Held in the table so that every fit can say so (the model file fixed only
+    the other one)."""
+
+    group: int
+    kind: str
+    variables: tuple[str, ...]
+    fixed_kind: str
+    fixed_variables: tuple[str, ...]
+    value: float
+    sets_scale: bool
+
+
+@dataclass(frozen=True)
 class ParameterTable:
     """Which matrix entries of which group are free, fixed or tied, and the free parameters' starts and bounds."""
     observed: tuple[str, ...]
@@ -102,6 +118,8 @@ class ParameterTable:
     multigroup: bool = False
     # (factor, item) of the items a 'reversed' statement declares, for the factors they orient (see keyed_pairs)
     reverse_keyed: frozenset[tuple[str, str]] = frozenset()
+    # the parameters an 'equal' statement fixes by holding them equal to a fixed parameter
+    fixed_through_equality: tuple[FixedThroughEquality, ...] = ()
 
     @property
     def p(self) -> int:
@@ -322,6 +340,10 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         variances (under the variance scaling) set the origin and unit the other groups' are estimated against."""
         return lambda kind_key: shares(0, kind_key) and shares(g, kind_key)
 
+    # an entry an 'equal' statement holds equal to one a 'fix' statement fixes is fixed by the user as much as that
+    # one: a loading so fixed sets its factor's scale as a 'fix' on it would (none is added), or, at 0, sets none
+    reached = _reached_by_fixes(spec, fixed_by, entries, groups_of)
+
     # ---- the automatic scale of each factor in each group
     reverse_keyed = keyed_pairs(spec)
     effects: dict[tuple, list[tuple]] = {}  # the tied loading -> the other loadings of its factor
@@ -333,9 +355,11 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             # a loading the model fixes at 0 (an item set apart, as for a nested comparison) sets no scale: the
             # automatic scale is kept and uses the factor's other loadings
             zero = {k for k in load_keys if entries[k]["origin"] == "user" and entries[k]["fixed"] is not None
-                    and not fix_sets_scale("loading", entries[k]["fixed"])}
-            if entries[var_key]["origin"] == "user" or any(entries[k]["origin"] == "user" for k in load_keys
-                                                           if k not in zero):
+                    and not fix_sets_scale("loading", entries[k]["fixed"])
+                    or k in reached and not fix_sets_scale("loading", reached[k])}
+            # (a variance held equal to one fixed at 0, a disturbance, sets no scale: the factor keeps its marker)
+            if entries[var_key]["origin"] == "user" or reached.get(var_key, 0) != 0 or any(
+                    entries[k]["origin"] == "user" or k in reached for k in load_keys if k not in zero):
                 continue
             load_keys = [k for k in load_keys if k not in zero]
             method = spec.scaling_of(f)
@@ -444,15 +468,22 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
     group_fixed: dict[tuple, tuple] = {}  # root of a set of tied entries -> the fixed entry among them
     for key, e in entries.items():
         if e["fixed"] is not None:
-            group_fixed.setdefault(find(key), key)
+            other = group_fixed.setdefault(find(key), key)
+            if entries[other]["fixed"] != e["fixed"]:  # a marker's 1 held equal to a 'fix' at 0, say: no value holds
+                raise _tied_fixes_differ(spec, (other, key), entries, group_labels if multi else None)
+    through: list[FixedThroughEquality] = []
     for key in entries:
         root = find(key)
         if root in group_fixed and entries[key]["fixed"] is None:
             if key in effects:
                 raise _scale_error(spec, key[2][0], "a loading tied by effects coding cannot also be set equal to a fixed parameter")
-            entries[key]["fixed"] = entries[group_fixed[root]]["fixed"]
+            fixed_key = group_fixed[root]
+            entries[key]["fixed"] = entries[fixed_key]["fixed"]
             entries[key]["origin"] = "user"
-            tied_to[key] = group_fixed[root]
+            tied_to[key] = fixed_key
+            through.append(FixedThroughEquality(key[0], _entry_kind(entries[key]), tuple(key[2]),
+                                                _entry_kind(entries[fixed_key]), tuple(fixed_key[2]),
+                                                float(entries[key]["fixed"]), entries[fixed_key]["origin"] == "scale"))
 
     order = sorted(entries, key=lambda k: _sort_key(k, entries[k]))
     index_of_root: dict[tuple, int] = {}
@@ -548,16 +579,23 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         start[k] = value
     lower = np.full(n_free, -np.inf)
     upper = np.full(n_free, np.inf)
+    set_by: dict[tuple[int, str], ParameterRef] = {}  # (free parameter, side) -> the bound's parameter that set it
     for bound in spec.bounds:
         for ref in bound.refs:
             for g in groups_of(ref):  # (a loading effects coding gives was refused above: it is in no group free)
                 k = free_index(ref, g)
                 if k is None:
                     continue
-                if bound.lower is not None:
-                    lower[k] = max(lower[k], bound.lower)
-                if bound.upper is not None:
-                    upper[k] = min(upper[k], bound.upper)
+                if bound.lower is not None and bound.lower > lower[k]:
+                    lower[k], set_by[(k, "lower")] = bound.lower, ref
+                if bound.upper is not None and bound.upper < upper[k]:
+                    upper[k], set_by[(k, "upper")] = bound.upper, ref
+                if lower[k] > upper[k]:  # bounds on parameters held equal (one free parameter) that leave no room
+                    low, high = set_by[(k, "lower")], set_by[(k, "upper")]
+                    raise _fail(spec, f"the bounds leave no room: {low} is bounded to at least "
+                                      f"{user_number(lower[k])} and {high} to at most {user_number(upper[k])}, and "
+                                      f"the two are held equal (one value), so no value meets both; "
+                                      f"change a bound or the equality", ref)
 
     parameters = []
     for key in order:
@@ -591,7 +629,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
     for array in (start, lower, upper):
         array.setflags(write=False)  # tables are shared between fits of the same model
     table = ParameterTable(observed, latent, tuple(parameters), n_free, start, lower, upper, tuple(free_labels),
-                           group_labels, means, multi, reverse_keyed)
+                           group_labels, means, multi, reverse_keyed, tuple(through))
     fixed_values_possible(spec, table)  # no estimate can mend impossible fixed values: refused at their statement
     return table
 
@@ -705,6 +743,47 @@ def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by
                     "differences from it)")
         return MEANS_FIXED_EVERYWHERE
     return f"fixed at {user_number(value)}"  # pragma: no cover - every fixed entry has one of the reasons above
+
+
+def _reached_by_fixes(spec: Spec, fixed_by: dict, entries: dict, groups_of) -> dict[tuple, float]:
+    """The entries that 'equal' statements hold equal, within a group and through any chain of them, to an entry a
+    'fix' statement fixes, each with that value (before the automatic scales are added: see build_parameter_table)."""
+    parent: dict[tuple, tuple] = {}
+
+    def find(k: tuple) -> tuple:
+        while parent.get(k, k) != k:
+            k = parent[k]
+        return k
+
+    for group in spec.equal:
+        for g in groups_of(group[0]):
+            first = find((g, *group[0].key()))
+            for ref in group[1:]:
+                other = find((g, *ref.key()))
+                if other != first:
+                    parent[other] = first
+    value_of = {find(k): entries[k]["fixed"] for k in fixed_by if entries[k]["fixed"] is not None}
+    return {k: value_of[find(k)] for k in parent.keys() | set(parent.values())
+            if find(k) in value_of and k not in fixed_by}
+
+
+def _tied_fixes_differ(spec: Spec, keys: tuple[tuple, tuple], entries: dict, group_labels) -> ModelError:
+    """An 'equal' statement (or a chain of them) holds two parameters equal that are fixed at different values: one by
+    a 'fix' statement, the other by a factor's automatic scale (its marker), so no value can hold both.  Refused at
+    the first 'equal' statement naming either, with the way out."""
+    def said(key: tuple) -> str:
+        how = {"scale": f"as the marker that sets the scale of '{key[2][0]}'",
+               "exploratory": "as an exploratory block's zero"}.get(entries[key]["origin"], "by a 'fix' statement")
+        return f"{_label(key, group_labels)} is fixed at {user_number(entries[key]['fixed'])} {how}"
+
+    where = next((group[0] for group in spec.equal if any(r.key() in (keys[0][1:], keys[1][1:]) for r in group)),
+                 None)
+    marker = any(entries[k]["origin"] == "scale" for k in keys)
+    return _fail(spec, f"these parameters are held equal but fixed at different values: {said(keys[0])}, and "
+                       f"{said(keys[1])}" + ("; list the item whose loading you fix or hold equal first in its "
+                                             "factor (the marker is the first item), or give the factor a scale of "
+                                             "its own with a 'fix' statement" if marker else ""),
+                 where.location if where is not None else None)
 
 
 def _entry_kind(entry: dict) -> str:

@@ -21,7 +21,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
 
 from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, rounded_number, user_number
 from cfa_tool.data.answer_words import NUMBERS_ONLY, code_answer_words, coding_record, refuse_for_summary_statistics
-from cfa_tool.data.filter_text import filter_text
+from cfa_tool.data.filter_text import filter_column, filter_text, filter_value
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
 from cfa_tool.data.kept_rows import (ROW_NAMES_COLUMN, RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
                                      unfinished_rows_note)
@@ -869,7 +869,7 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
 
     names = names if names is not None else (spec.observed_names if spec is not None else ())
     found: tuple = row_filter_problems(loaded, spec, where=where) + copied_row_problems(loaded, group, design, names, ids or {})
-    found += repeated_id_problems(loaded, ids or {}, id_column, group)  # ids of several rows: no merge by id one to one
+    found += repeated_id_problems(loaded, ids or {}, id_column, group, names)  # ids of several rows: no merge by id one to one
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {}, id_column=id_column)
@@ -1024,7 +1024,8 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
 REPEATED_IDS_SHOWN = 5  # ids of several rows that the caution names before 'and N more'
 
 
-def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, group: str | None = None) -> tuple:
+def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, group: str | None = None,
+                         items: tuple[str, ...] = ()) -> tuple:
     """A caution naming the ids that several rows hold (``ids``: data-row number -> id; ``id_column``: the column
     they are read from, data.kept_rows.ROW_NAMES_COLUMN for the file's row names: :func:`id_filter_column`), each with
     its rows, the first :data:`REPEATED_IDS_SHOWN`; () when every id names one row.  One rule for every command that
@@ -1035,7 +1036,10 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
     (new-user trial s20: the caution on copies showed the ids without saying that they repeat).  With a ``group``
     column, ids whose rows lie in more than one group are said to be the same people in several groups, which the
     multi-group fit and its tests take for independent samples (new-user trial s23: two waves of one staff stacked
-    and compared as groups), with the model of both occasions side by side as the way to test invariance over time."""
+    and compared as groups), with the model of both occasions side by side as the way to test invariance over time.
+    Where a column other than the id and the ``items`` tells each id's later rows from every other row (a survey
+    platform's submission time), the advice writes the row filter that keeps each id's first row, for a person who
+    submitted twice (new-user trial s24: only 'correct the ids in a copy' was advised)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.data.kept_rows import rows_listed
     from cfa_tool.data.row_ids import ids_of_several_rows
@@ -1078,7 +1082,40 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
                     advice if across else
                     Note(("correct the ids in a copy of the data file (a typing error?), or name the rows by a "
                           "column whose values differ in every row", Command(f" ({Option.ID_COLUMN.given('COLUMN')})"),
-                          "; if the rows are one person's at several times, merge by the id and the time together."))),)
+                          "; if the rows are one person's at several times, merge by the id and the time together")
+                         + (_first_rows_only(found, frame, id_column, items) or ("",)) + (".",))),)
+
+
+#: the most values a row filter written for the user lists (beyond it the advice names no filter)
+FILTER_VALUES_LISTED = 60
+
+
+def _first_rows_only(found: tuple, frame: pd.DataFrame, id_column: str | None, items: tuple[str, ...]) -> tuple:
+    """The advice's parts for a person who submitted twice: the row filter that keeps each repeated id's first row
+    (``found``: (id, its rows' numbers, file order)) by a column, not the id's nor an item, whose values on the later
+    rows are held by no other row ('submitted not in "2026-03-01 11:30", ...'), the first such column of the file;
+    () when none does or the filter would list more than :data:`FILTER_VALUES_LISTED` values."""
+    later = [r for _, rows in found for r in rows[1:]]
+    if not later or len(later) > FILTER_VALUES_LISTED:
+        return ()
+    numbers = row_numbers(frame)
+    at_later = np.isin(numbers, later)
+    for column in frame.columns:
+        if column == id_column or column in items or frame[column].dtype.kind not in "OUiuf":
+            continue
+        values = frame[column]
+        chosen = values[at_later]
+        if chosen.isna().any():
+            continue
+        distinct = list(dict.fromkeys(chosen.tolist()))
+        if not np.array_equal(values.isin(distinct).to_numpy(), at_later):
+            continue
+        name, written = filter_column(str(column)), [filter_value(v) for v in distinct]
+        if name is None or any(w is None for w in written):
+            continue
+        return ("; if some people submitted twice, keep each one's first row with the row filter on the column that "
+                "tells the later rows apart", Command(f" ({Option.KEEP.given(f'{name} not in ' + ', '.join(written))})"))
+    return ()
 
 
 def _ids_across_groups(found: tuple, frame: pd.DataFrame, group: str | None) -> int:

@@ -705,6 +705,10 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
                           f"remove it")
     if table is None and model is not None:
         table = model.table
+    if table is not None and table.fixed_through_equality:  # a fix that reaches further than its statement: said
+        from cfa_tool.assessment.identification import fixed_through_equality_notes
+
+        warnings = tuple(warnings) + fixed_through_equality_notes(table)
     held = held_equal_entries(table) if table is not None and group_column is not None else frozenset()
     blocks = ()
     if spec.exploratory:

@@ -1158,11 +1158,16 @@ def bootstrap_report(boot) -> Report:
     why_failed = ("an item was left with a single answer, or the correlations were not positive definite" if ordinal else
                   "an item had fewer than two answers, or a pair of items none together, so the saturated model could "
                   "not be estimated")
-    lines = [f"{count_text(boot.replications)} resamples of {count_text(result.n_obs)} rows{_left_out(result)} (seed {boot.seed}); "
-             f"{count_text(boot.converged)} converged, "
-             f"{count_text(not_converged)} did not" + (f" and {count_text(boot.failed)} could not be analysed ({why_failed})" if boot.failed
-                                           else "")
-             + "; those are left out of the intervals."]
+    opening = f"{count_text(boot.replications)} resamples of {count_text(result.n_obs)} rows{_left_out(result)} (seed {boot.seed}); "
+    if not_converged or boot.failed:
+        opening += (f"{count_text(boot.converged)} converged"
+                    + (f", {count_text(not_converged)} did not" if not_converged else "")
+                    + (f"{' and' if not_converged else ','} {count_text(boot.failed)} could not be analysed ({why_failed})"
+                       if boot.failed else "")
+                    + "; those are left out of the intervals.")
+    else:
+        opening += "every one converged."
+    lines = [opening]
     if ordinal:
         lines.append(ORDINAL_BOOTSTRAP.format(estimator=result.method.weighting.phrase))
     if boot.lacked:

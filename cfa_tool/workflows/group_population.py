@@ -5,7 +5,8 @@ Each group's items have the means and covariances that the model's matrices give
 The values shared by every group are those of the one-group population of the
 model file (:func:`cfa_tool.workflows.simulation.population_from_spec`: 'start'
 and 'fix' statements, standardized defaults beside them); intercepts and factor
-means are 0 unless a statement gives them; an ``in group NAME:`` statement gives
+means are 0 unless a statement gives them (an earlier fit's item means are the
+intercepts when the population comes from it); an ``in group NAME:`` statement gives
 a value for that group alone, which is how a researcher states the difference a
 study should detect (a loading of .8 instead of 1 in one language version: values in the model's own units, a
 marker's loading being 1, not standardized ones).
@@ -25,7 +26,7 @@ from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.model.implied import ModelMatrices, StructuredModel
 from cfa_tool.model.parameters import ParameterTable
 from cfa_tool.numerics.linalg import log_det_pd
-from cfa_tool.workflows.simulation import ItemMeans, Population, given_values_possible, population_from_spec
+from cfa_tool.workflows.simulation import Population, given_values_possible, population_from_spec
 
 #: parameters the one-group population cannot hold (it has no mean structure): given per group here
 MEAN_KINDS = ("intercept", "mean")
@@ -161,7 +162,8 @@ def group_population(spec: Spec, labels: tuple[str, ...], configural: Spec, fitt
     """The population of each group in ``labels`` (the first the reference group), with ``configural`` the model
     with no equality across groups (whose table lays out every group's parameters); ``fitted``: an earlier
     continuous fit of one group whose estimates every group shares (simulation.population_from_spec), its item means
-    left aside as every plan's intercepts are (0 unless a statement gives them)."""
+    every group's intercepts unless a statement gives them (without a fit, intercepts are 0 unless a statement gives
+    them)."""
     from cfa_tool.pipeline.continuous import model_structure
 
     check_groups_named(spec, labels)
@@ -171,10 +173,13 @@ def group_population(spec: Spec, labels: tuple[str, ...], configural: Spec, fitt
             raise OptionError(f"{shared.fitted_from}: the fit is of ordinal items, and "
                               + answers_in_categories_refused("plan continuous answers from a continuous fit of the "
                                                               "items"))
-        shared = replace(shared, means=None, means_from=ItemMeans.GROUPS)
     shared_model = StructuredModel(shared.table)
     value_of = {(par.kind, par.variables): float(v) for par, v in
                 zip(shared.table.parameters, shared_model.entry_values(shared.theta))}
+    if shared.means is not None:  # an earlier fit's item means are every group's intercepts (its factor means 0)
+        # unless a statement gives them: 'in group new: start intercept(x) = 3.45' is then in the fit's units, as
+        # every other value (newuser s24: they were 0, so a shift of .4 written as 3.45 was planned as 3.45)
+        value_of.update({("intercept", (x,)): float(v) for x, v in zip(shared.table.observed, shared.means)})
     table, model = model_structure(configural, labels, True)
     theta = np.full(table.n_free, np.nan)
     for par in table.parameters:

@@ -50,7 +50,6 @@ class ItemMeans(Enum):
     UNKNOWN = "not known to the earlier fit (summary statistics without means): every item centred at 0"
     THRESHOLDS = "set by the earlier fit's thresholds"
     CUT = "set by the thresholds that cut their latent responses into categories (answers 1 to k)"
-    GROUPS = "not carried over, as in every plan with groups"
 
 
 class ValueSource(Enum):

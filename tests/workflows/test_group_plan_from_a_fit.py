@@ -89,3 +89,21 @@ def test_the_command_plans_from_a_fits_json(fitted, tmp_path, capsys):
                  "--workers", "1", "--population-from", str(fit)]) == 0
     said = " ".join(capsys.readouterr().out.split())
     assert "Every value is an estimate of the earlier fit in" in said and "standardized defaults" not in said
+
+
+def test_the_fits_item_means_are_every_groups_intercepts_so_a_stated_intercept_is_in_its_units(fitted, hs_data):
+    """New-user trial s24: a plan from a fit left every intercept at 0, so 'in group east: start intercept(x2) = 6.5'
+    (the fit's mean of x2, about 6.09, plus the shift to detect) was planned as a shift of 6.5.  Every group's
+    intercepts are now the fit's item means (the fit has no mean structure: the means of the rows it fitted, the
+    maximum-likelihood means; Holzinger & Swineford 1939 data) unless a statement gives them."""
+    mean_x2 = float(hs_data["x2"].mean())
+    result = invariance_power(THREE_FACTORS + f"in group east: start intercept(x2) = {mean_x2 + 0.4}\n",
+                              "west=200,east=200", replications=2, seed=5, workers=1, population=fitted)
+    (difference,) = result.population.differences
+    assert (difference.kind, difference.variables) == ("intercept", ("x2",))
+    assert difference.reference_value == pytest.approx(mean_x2, abs=1e-10)
+    assert difference.value - difference.reference_value == pytest.approx(0.4)
+    np.testing.assert_allclose(result.population.means[0], hs_data[[f"x{i}" for i in range(1, 10)]].mean().to_numpy(),
+                               atol=1e-10)
+    assert "the items' means are the item means of the rows the earlier fit was fitted to" in " ".join(
+        result.summary().split())
