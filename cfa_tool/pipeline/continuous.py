@@ -686,7 +686,8 @@ def _kurtosis_with_gaps(likelihood, g: int, auxiliary) -> Normality | None:
     items it answered (assessment.normality.kurtosis_with_gaps; Yuan, Lambert & Fouladi 2004), at the saturated (EM)
     moments of those rows: the fit's own (with missing-data helpers, those of the items alone), estimated again
     unweighted under sampling weights, which the tests do not use (as for complete rows); None where it cannot be
-    computed (the report then says that the tails were not judged)."""
+    computed (the report then says that the tails were not judged).  (Complete rows have both of Mardia's tests
+    before this: _complete_pattern_rows; helpers over complete items are refused.)"""
     from cfa_tool.assessment.normality import kurtosis_with_gaps
 
     gm, data = likelihood.groups[g], likelihood.patterns[g]

@@ -1736,7 +1736,7 @@ def normality_lines(result) -> list[Text]:
         if n is None:
             continue
         where = _in_group(result, g.label)
-        if n.rows_with_gaps:  # full-information ML: the kurtosis alone, each row on the items it answered
+        if n.skewness is None:  # rows with gaps (full-information ML): the kurtosis alone, each on its answered items
             line = (f"Multivariate kurtosis{where} of every row, each on the items it answered ({counted(n.rows_with_gaps, 'row')} "
                     f"with gaps; Mardia 1970, for rows with gaps Yuan, Lambert & Fouladi 2004): {n.kurtosis:.3f} "
                     f"(normal: {n.kurtosis_expected:.3f}), z = {n.kurtosis_z:.2f}, p {p_phrase(n.kurtosis_p_value)}; "
