@@ -55,3 +55,21 @@ def test_missing_data_helpers_judge_the_items_alone(rider_demo, rider_model):
     rows = rows[~np.isnan(rows).all(axis=1)]
     found = cfa_tool.fit(rider_model, aged, missing_helpers=["age"]).groups[0].normality
     assert found is not None and found.kurtosis_z == pytest.approx(kurtosis_with_gaps(rows).kurtosis_z, rel=1e-6)
+
+
+def test_a_kurtosis_that_cannot_be_computed_is_said_so(rider_demo, rider_model, monkeypatch):
+    # the kurtosis of rows with gaps needs the information of the covariances (the largest matrix it makes: items plus
+    # their covariances, squared); with the tool's limit set below it the fit says why there is no test, and the remedies
+    from cfa_tool.numerics import sizes
+    from cfa_tool.reporting.tables import normality_lines
+
+    p = len(cfa_tool.parse_model(rider_model).observed_names)
+    monkeypatch.setattr(sizes, "MATRIX_BYTES", (p + p * (p + 1) // 2) ** 2 * 8 - 1)
+    full = cfa_tool.fit(rider_model, rider_demo, missing="full-information")
+    assert full.groups[0].normality is None
+    [line] = normality_lines(full)
+    text = " ".join(str(line).split())
+    assert text.startswith("Mardia's tests of multivariate normality were not computed: the skewness needs complete "
+                           "rows, and the kurtosis of rows with gaps")
+    assert "--incomplete-rows listwise" in text or "missing='listwise'" in text
+    assert "--robust" in text or "test='robust'" in text
