@@ -230,8 +230,8 @@ def kurtosis_with_gaps(rows: np.ndarray, moments: tuple[np.ndarray, np.ndarray] 
     H = moment_second_derivatives(A, counts / n, I, J)[p:, p:]
     estimation = float(c @ scaled_solve(H, c, positive_definite=True)) * 8.0 / n
     variance = (float(w @ (8.0 * answered * (answered + 2.0) * (answered + 3.0))) - estimation) / (n * n)
-    if not variance > 0:
-        raise np.linalg.LinAlgError("the kurtosis has no positive variance under normality at these moments")
-    z = (b - expected) / np.sqrt(variance)
+    z = (b - expected) / np.sqrt(variance) if variance > 0 else float("nan")
+    if not np.isfinite(z):
+        raise np.linalg.LinAlgError("the kurtosis has no finite z under normality at these moments")
     return Normality(None, None, None, None, b, expected, float(z), float(2 * dist.norm_sf(abs(z))),
                      int(np.count_nonzero(~observed.all(axis=1))))
