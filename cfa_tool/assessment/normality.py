@@ -24,7 +24,7 @@ simulation in tests/assessment/test_kurtosis_with_gaps.py): with h_i = d_i^4 - p
 not depend on the moments, E dh_i/dtheta = -Cov(h_i, score_i), so that
     V = (1/N^2) [sum_i Var h_i - N g' I^-1 g] = (1/N^2) [sum_i 8 p_i (p_i + 2)(p_i + 3) - (8/N) c' H^-1 c],
 Var h_i = E d^8 - (E d^4)^2 for chi-square(p_i); the mean's derivatives vanish by symmetry, and Sigma's are
-dE(d_i^4) = -2 (p_i + 2) tr(Sigma_oo^-1 dSigma_oo), so that c = vech-traces of sum_i (p_i + 2) A_i (A_i =
+E[d(d_i^4)] = -2 (p_i + 2) tr(Sigma_oo^-1 dSigma_oo) (as E[d^2 r r'] = (p + 2) Sigma for a normal r), so that c = vech-traces of sum_i (p_i + 2) A_i (A_i =
 Sigma_oo^-1 embedded in p x p: c_jj = C_jj, c_jk = 2 C_jk) and H = sum_k (n_k / N) tr(A_k D_a A_k D_b), the
 patterns-fixed information of -2/N log L in vech Sigma (estimation.fiml.moment_second_derivatives), whose inverse
 times 2/N is the covariance of vech Sigma-hat.  With every row complete, c = N (p + 2) vech-trace(Sigma^-1),
