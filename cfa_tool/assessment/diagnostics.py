@@ -24,7 +24,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from cfa_tool.assessment.held_rows import HeldRows
-from cfa_tool.assessment.normality import Whitened, whitened_rows
+from cfa_tool.assessment.normality import Whitened, answered_distances, whitened_rows
 from cfa_tool.data.kept_rows import ROW_NAMED_BY, RowNaming
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.linalg import spd_inverse
@@ -186,22 +186,6 @@ def largest_first(values: np.ndarray, top: int) -> np.ndarray:
     return among[np.argsort(negative[among], kind="stable")][:top]
 
 
-def _answered_distances(rows: np.ndarray, patterns: tuple[np.ndarray, np.ndarray], mean: np.ndarray,
-                        sigma: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Each row's squared Mahalanobis distance on its answered items under (mean, sigma), and log|Sigma_oo| of its
-    answered items; ``patterns``: (distinct patterns, pattern of each row).  Sigma_oo^-1 of every pattern comes
-    batched from the precision matrix (data.patterns.embedded_inverse, as the full-information likelihood has it)."""
-    from cfa_tool.data.patterns import embedded_inverse  # (fits of complete rows do not load it)
-
-    distinct, index = patterns
-    found = embedded_inverse(sigma, distinct)
-    if found is None:
-        raise np.linalg.LinAlgError("an implied covariance matrix of answered items is not positive definite")
-    A, log_det = found
-    dev = np.where(np.isnan(rows), 0.0, rows - mean)
-    return np.einsum("ij,ijk,ik->i", dev, A[index], dev), log_det[index]
-
-
 def incomplete_case_diagnostics(rows: np.ndarray, mean: np.ndarray, sigma: np.ndarray,
                                 saturated: tuple[np.ndarray, np.ndarray], row_numbers: np.ndarray | None,
                                 top: int = 10,
@@ -217,8 +201,8 @@ def incomplete_case_diagnostics(rows: np.ndarray, mean: np.ndarray, sigma: np.nd
     observed = ~np.isnan(rows)
     answered = observed.sum(axis=1)
     patterns = group_patterns(observed)[:2]
-    d_saturated, log_det_saturated = _answered_distances(rows, patterns, *saturated)
-    d_model, log_det_model = _answered_distances(rows, patterns, mean, sigma)
+    d_saturated, log_det_saturated = answered_distances(rows, patterns, *saturated)
+    d_model, log_det_model = answered_distances(rows, patterns, mean, sigma)
     share = log_det_model - log_det_saturated + d_model - d_saturated
     if frequencies is not None:
         share = share * frequencies

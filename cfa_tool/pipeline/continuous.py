@@ -22,14 +22,14 @@ from cfa_tool.assessment.fit_indices import (baseline_chi_square, cfi_value, fit
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
 from cfa_tool.assessment.modification import NO_INDICES, helper_modification_indices, modification_indices
 from cfa_tool.assessment.robust_scores import robust_score_tests, sampling_design
-from cfa_tool.assessment.normality import Whitened, mardia, whitened_rows
+from cfa_tool.assessment.normality import Normality, Whitened, mardia, whitened_rows
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
 from cfa_tool.assessment.standardized import r_squared, standardization, standardize_entries
 from cfa_tool.data.kept_rows import RowNaming, rows_listed
 from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments, moments_with_gaps
-from cfa_tool.errors import CfaError, NotIdentified, OptionError
+from cfa_tool.errors import CfaError, EstimationError, NotIdentified, OptionError
 from cfa_tool.numbers import count_text
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
 from cfa_tool.estimation.optimizer import Outcome
@@ -582,7 +582,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 sample_mean=gm.mean,
                 implied_mean=mats[g].implied_mean() if means else None,
                 latent_covariance=mats[g].latent_covariance(),
-                normality=mardia(rows, whitened, _frequency_weights(gm)) if whitened is not None else None,
+                normality=(mardia(rows, whitened, _frequency_weights(gm)) if whitened is not None else
+                           _kurtosis_with_gaps(likelihood, g, est.auxiliary)
+                           if options.diagnostics and rows is None and not likelihood.complete_data else None),
                 **_group_diagnostics(mats[g], table, gm, _answering_items(m, est.auxiliary.answered[g])
                                      if est.auxiliary is not None else m, sigma,
                                      est.converged and (options.diagnostics or options.reliability),
@@ -702,6 +704,25 @@ def _complete_pattern_rows(likelihood, g: int, auxiliary) -> np.ndarray | None:
         return None
     rows = likelihood.patterns[g].rows
     return rows if rows is not None and not np.isnan(rows).any() else None
+
+
+def _kurtosis_with_gaps(likelihood, g: int, auxiliary) -> Normality | None:
+    """Mardia's multivariate kurtosis of group ``g``'s rows with gaps under a full-information fit, each row on the
+    items it answered (assessment.normality.kurtosis_with_gaps; Yuan, Lambert & Fouladi 2004), at the saturated (EM)
+    moments of those rows: the fit's own (with missing-data helpers, those of the items alone), estimated again
+    unweighted under sampling weights, which the tests do not use (as for complete rows); None where it cannot be
+    computed (the report then says that the tails were not judged).  (Complete rows have both of Mardia's tests
+    before this: _complete_pattern_rows; helpers over complete items are refused.)"""
+    from cfa_tool.assessment.normality import kurtosis_with_gaps
+
+    gm, data = likelihood.groups[g], likelihood.patterns[g]
+    moments = (auxiliary.items_saturated[g] if auxiliary is not None else (gm.mean, gm.covariance))
+    frequencies = _frequency_weights(gm)
+    try:
+        return kurtosis_with_gaps(data.rows, moments if gm.design is None or frequencies is not None else None,
+                                  frequencies)
+    except (np.linalg.LinAlgError, ValueError, EstimationError):
+        return None
 
 
 def _frequency_weights(gm: GroupMoments) -> np.ndarray | None:

@@ -1736,10 +1736,21 @@ def normality_lines(result) -> list[Text]:
         if n is None:
             continue
         where = _in_group(result, g.label)
-        line = (f"Multivariate normality{where} (Mardia 1970): skewness {n.skewness:.3f}, chi-square {n.skewness_chi_square:.2f} "
-                f"on {n.skewness_df} df, p {p_phrase(n.skewness_p_value)}; kurtosis {n.kurtosis:.3f} "
-                f"(normal: {n.kurtosis_expected:g}), z = {n.kurtosis_z:.2f}, p {p_phrase(n.kurtosis_p_value)}.")
-        if (n.skewness_p_value < 0.05 or n.kurtosis_p_value < 0.05) and result.robust is None:
+        if n.skewness is None:  # rows with gaps (full-information ML): the kurtosis alone, each on its answered items
+            line = (f"Multivariate kurtosis{where} of every row, each on the items it answered ({counted(n.rows_with_gaps, 'row')} "
+                    f"with gaps; Mardia 1970, for rows with gaps Yuan, Lambert & Fouladi 2004): {n.kurtosis:.3f} "
+                    f"(normal: {n.kurtosis_expected:.3f}), z = {n.kurtosis_z:.2f}, p {p_phrase(n.kurtosis_p_value)}; "
+                    f"Mardia's skewness needs complete rows and is not given.")
+        else:
+            line = (f"Multivariate normality{where} (Mardia 1970): skewness {n.skewness:.3f}, chi-square "
+                    f"{n.skewness_chi_square:.2f} on {n.skewness_df} df, p {p_phrase(n.skewness_p_value)}; kurtosis "
+                    f"{n.kurtosis:.3f} (normal: {n.kurtosis_expected:g}), z = {n.kurtosis_z:.2f}, p {p_phrase(n.kurtosis_p_value)}.")
+        departs = n.kurtosis_p_value < 0.05 or (n.skewness_p_value is not None and n.skewness_p_value < 0.05)
+        if departs and result.robust is None and result.method.helpers:  # the robust test is refused with helpers
+            line += (" The data depart from normality, and the scaled test and robust standard errors, which would "
+                     "guard against that, are not offered with missing-data helpers: the chi-square and the standard "
+                     "errors rest on normal answers.")
+        elif departs and result.robust is None:
             line = line + " The data depart from normality: consider " + Remedy.ROBUST.said() + "."
         design = getattr(result, "design", None)
         if design is not None and design.columns.weights is not None:
@@ -1753,8 +1764,7 @@ def normality_lines(result) -> list[Text]:
                      "distinctness and the residuals come from the matrix.")
     elif not lines and result.method.full_information and not result.method.ordinal and result.method.helpers:
         # with missing-data helpers a fit of the complete rows only and the robust test are refused: neither advised
-        lines.append("Mardia's tests of multivariate normality need complete rows, so with full-information ML they "
-                     "are not computed.")
+        lines.append(KURTOSIS_NOT_COMPUTED + ".")
     elif not lines and result.method.full_information and not result.method.ordinal:
         # said, not silently left out: both need every row complete
         guarded = (", and " + Remedy.ROBUST.said() + " guard the test and the standard errors against non-normal "
@@ -1763,9 +1773,16 @@ def normality_lines(result) -> list[Text]:
                     "answers, but see the caution first" if design_doubts(result) else
                     "; the scaled test and robust standard errors of this fit guard against non-normal answers either "
                     "way"))  # advice never asks for what the fit already does
-        lines.append("Mardia's tests of multivariate normality need complete rows, so with full-information ML they "
-                     "are not computed; " + Remedy.COMPLETE_ROWS.said() + " gives them for those rows" + guarded + ".")
+        lines.append(KURTOSIS_NOT_COMPUTED + "; " + Remedy.COMPLETE_ROWS.said() + " gives Mardia's tests for the complete "
+                     "rows" + guarded + ".")
     return lines
+
+
+#: why a full-information fit's report has no test of normality (assessment.normality.kurtosis_with_gaps failed, or
+#: the diagnostics were not asked for)
+KURTOSIS_NOT_COMPUTED = ("Mardia's tests of multivariate normality were not computed: the skewness needs complete rows, "
+                         "and the kurtosis of rows with gaps (each row on the items it answered; Yuan, Lambert & "
+                         "Fouladi 2004) could not be computed for these rows")
 
 
 def local_fit_line(result) -> str | None:

@@ -665,9 +665,15 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                              if not ordinal_items and steps[0].result.robust is None else ((), ()))
     if tails_unjudged:
         notes = list(notes) + [tails_not_judged_note(tails_unjudged)]
+    # a caution first only where a step did not hold (the configural model's own test included); when every step
+    # held, a note on the tests' calibration
+    rejected = any((not s.holds and not s.untested) or s.full_holds is False for s in steps)
+    if heavy and not rejected:
+        notes = list(notes) + [heavy_tails_caution(heavy, None)]
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
                             tuple(impossible) + data_cautions + small + tuple(warnings)
-                            + ((heavy_tails_caution(heavy, "a step that did not hold"),) if heavy else ()), rule,
+                            + ((heavy_tails_caution(heavy, "a step that did not hold"),) if heavy and rejected else ()),
+                            rule,
                             differences, latent_note, not_estimated, tuple(notes), found, reference, gaps)
 
 

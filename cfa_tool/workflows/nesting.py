@@ -12,7 +12,7 @@ from typing import Callable
 
 import numpy as np
 
-from cfa_tool.numbers import cut_list, rounded_number
+from cfa_tool.numbers import count_text, counted, cut_list, rounded_number
 from cfa_tool.options import Option
 from cfa_tool.numerics import distributions as dist
 
@@ -29,14 +29,16 @@ NESTING_TOLERANCE = 1e-7  # minimum discrepancy below which the implied moments 
 def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None
                         ) -> tuple[tuple[str, ...], tuple[str, ...]]:
     """The groups (``labels``; None: one group of rows) whose answers are heavier-tailed than normal by Mardia's
-    (1970) kurtosis test at .05 (each group's complete rows), each said with its z: 'group south (z = 12.3)', or
-    'these rows (z = 12.3)' for one group.  Normal-theory chi-square statistics and their differences then reject
-    models that hold far more often than their level (Curran, West & Finch 1996: kurtosis, not skewness, inflates
-    them; light tails, as a short answer scale has, make them conservative instead, so those are not named); and the
-    groups whose complete rows are too few to judge (items + 2 or fewer: rows with gaps everywhere, fitted by
-    full-information ML), said apart (hostile trial s23b: the caution vanished without a word when every row had a
-    gap), as (found, not judged)."""
-    from cfa_tool.assessment.normality import mardia
+    (1970) kurtosis test at .05, each said with its z: 'group south (z = 12.3)', or 'these rows (z = 12.3)' for one
+    group.  Normal-theory chi-square statistics and their differences then reject models that hold far more often than
+    their level (Curran, West & Finch 1996: kurtosis, not skewness, inflates them; light tails, as a short answer
+    scale has, make them conservative instead, so those are not named).  Rows with gaps (full-information ML) are
+    judged each on the items it answered, at the group's saturated (EM) moments (assessment.normality.
+    kurtosis_with_gaps; Yuan, Lambert & Fouladi 2004), said so: 'group south (z = 12.3, each row on the items it
+    answered)' (hostile trial s23b: with a gap in every row the complete rows were too few and the caution vanished);
+    the groups where even that cannot be computed are said apart, as (found, not judged)."""
+    from cfa_tool.assessment.normality import kurtosis_with_gaps, mardia
+    from cfa_tool.errors import EstimationError
     from cfa_tool.language.names import written_group
 
     found, unjudged = [], []
@@ -45,38 +47,61 @@ def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None
         if rows is None:
             continue
         where = "these rows" if labels is None else f"group {written_group(labels[k], labels)}"
-        rows = rows[~np.isnan(rows).any(axis=1)]
-        if len(rows) <= rows.shape[1] + 1:
-            unjudged.append(f"{where} ({len(rows):,} complete rows)")
-            continue
+        gaps = np.isnan(rows).any(axis=1)
+        how = ", each row on the items it answered" if gaps.any() else ""
         try:
-            n = mardia(rows)
-        except np.linalg.LinAlgError:
+            if gaps.any():  # at the rows' own unweighted EM moments (the moments' may be weighted, or pairwise)
+                n = kurtosis_with_gaps(rows)
+            elif len(rows) > rows.shape[1] + 1:
+                n = mardia(rows)
+            else:
+                raise np.linalg.LinAlgError("too few rows")
+        except (np.linalg.LinAlgError, ValueError, EstimationError):
+            unjudged.append(f"{where} ({count_text(int(gaps.sum()))} of {counted(len(rows), 'row')} with gaps)")
             continue
         if n.kurtosis_p_value < 0.05 and n.kurtosis_z > 0:
-            found.append(f"{where} (z = {n.kurtosis_z:.1f})")
+            found.append(f"{where} (z = {n.kurtosis_z:.1f}{how})")
     return tuple(found), tuple(unjudged)
+
+
+#: the one rule of what heavy tails do to the tests, which the caution and the note on tails not judged both say
+OVER_HEAVY_TAILS = ("normal-theory chi-square differences over heavy tails reject restrictions that hold more often "
+                    "than their level")
 
 
 def tails_not_judged_note(unjudged: tuple[str, ...]) -> Note:
     """The note on groups whose tails :func:`heavy_tailed_groups` could not judge: normal-theory differences assume
     normal tails, which these rows cannot show."""
-    return Note((f"Whether the answers have heavier tails than normal ones (Mardia's multivariate kurtosis, which "
-                 f"needs complete rows) could not be judged in {cut_list(list(unjudged), 4)}: over heavy tails "
-                 f"normal-theory chi-square differences reject restrictions that hold more often than their level; "
-                 f"the scaled differences", Command(f" ({Option.ROBUST})"), " do not assume normal tails."))
+    return Note((f"Whether the answers have heavier tails than normal ones (Mardia's multivariate kurtosis, of rows "
+                 f"with gaps each on the items it answered) could not be judged in {cut_list(list(unjudged), 4)}: "
+                 f"{OVER_HEAVY_TAILS}; the scaled differences", Command(f" ({Option.ROBUST})"),
+                 " do not assume normal tails."))
 
 
-def heavy_tails_caution(found: tuple[str, ...], decided: str) -> Note:
+def heavy_tails_caution(found: tuple[str, ...], decided: str | None) -> Note:
     """The caution on normal-theory chi-square differences over answers heavier-tailed than normal
     (:func:`heavy_tailed_groups`), first in the report of a ladder or a comparison whose ``decided`` (words: 'a step
     that did not hold', 'a rejected restriction') rests on them (hostile trial s23: strict invariance rejected between
     two random halves of one population, p < .001, nothing said; with the scaled difference p = .135); the remedy is
-    the scaled difference (Satorra & Bentler 2001)."""
-    return Note((f"The answers have heavier tails than normal ones (Mardia's multivariate kurtosis) in "
-                 f"{cut_list(list(found), 4)}: normal-theory chi-square differences then reject restrictions that "
-                 f"hold more often than their level, so {decided} may be an artefact of the answers' distribution; "
-                 f"consider the scaled differences", Command(f" ({Option.ROBUST})"), ""))
+    the scaled difference (Satorra & Bentler 2001).  ``decided`` None: no test rejected, so no decision rests on the
+    inflation: a note on the tests' calibration, not a caution (their p-values are too small, a non-rejection
+    stands)."""
+    tails = (f"The answers have heavier tails than normal ones (Mardia's multivariate kurtosis) in "
+             f"{cut_list(list(found), 4)}: {OVER_HEAVY_TAILS}")
+    if decided is None:
+        return Note((f"{tails}, so these tests' p-values tend to be smaller than they should be; no test rejected a "
+                     f"restriction here, so no decision rests on that; the scaled differences", Command(f" ({Option.ROBUST})"),
+                     " do not assume normal tails."))
+    return Note((f"{tails}, so {decided} may be an artefact of the answers' distribution; consider the scaled "
+                 f"differences", Command(f" ({Option.ROBUST})"), ""))
+
+
+def rejects(test: DifferenceTest | None, alpha: float = 0.05) -> bool:
+    """Whether a difference test was computed and rejected its restriction at ``alpha`` (by the chi-square's p or,
+    one parameter on the boundary, by the mixture's)."""
+    if test is None or test.not_computed or test.df_difference <= 0:
+        return False
+    return bool(test.p_value < alpha or test.boundary_p_value < alpha)
 
 
 @dataclass(frozen=True)

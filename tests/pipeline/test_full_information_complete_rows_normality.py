@@ -1,6 +1,8 @@
 """A full-information fit of rows without a gap gives Mardia's (1970) tests of multivariate normality, as the fit of
 the same complete rows does (hostile trial s20: it said they 'need complete rows' and left them out while every row
-was complete); rows with a gap still leave them out, with the note that says why."""
+was complete); rows with gaps give Mardia's kurtosis with each row on the items it answered (Yuan, Lambert & Fouladi
+2004; assessment.normality.kurtosis_with_gaps, checked against Mardia's test and a direct computation in
+tests/assessment/test_kurtosis_with_gaps.py), the skewness left out with the words that say why."""
 
 from __future__ import annotations
 
@@ -22,8 +24,52 @@ def test_complete_rows_give_the_same_tests_under_full_information(rider_demo, ri
     assert "need complete rows" not in text and "Multivariate normality (Mardia 1970)" in text
 
 
-def test_rows_with_gaps_still_leave_the_tests_out(rider_demo, rider_model):
-    assert np.isnan(rider_demo.select_dtypes("number").to_numpy()).any()
+def test_rows_with_gaps_give_the_kurtosis_on_the_items_each_row_answered(rider_demo, rider_model):
+    from cfa_tool.assessment.normality import kurtosis_with_gaps
+
+    items = list(cfa_tool.parse_model(rider_model).observed_names)
+    rows = rider_demo[items].to_numpy(dtype=float)
+    rows = rows[~np.isnan(rows).all(axis=1)]
+    assert np.isnan(rows).any()
+    full = cfa_tool.fit(rider_model, rider_demo, missing="full-information")
+    found, alone = full.groups[0].normality, kurtosis_with_gaps(rows)
+    assert found.rows_with_gaps == int(np.isnan(rows).any(axis=1).sum()) > 0 and found.skewness is None
+    assert found.kurtosis_z == pytest.approx(alone.kurtosis_z, rel=1e-6)  # the fit's EM moments, or estimated again
+    text = " ".join(full.summary().split())
+    assert "need complete rows" not in text and "were not computed" not in text
+    assert (f"Multivariate kurtosis of every row, each on the items it answered ({found.rows_with_gaps} rows with gaps; "
+            f"Mardia 1970, for rows with gaps Yuan, Lambert & Fouladi 2004)") in text
+    assert "Mardia's skewness needs complete rows and is not given" in text
+    said = full.to_dict()["normality"]
+    assert said["rows_with_gaps"] == found.rows_with_gaps and said["skewness"] is None
+    assert said["kurtosis_z"] == pytest.approx(found.kurtosis_z)
+
+
+def test_missing_data_helpers_judge_the_items_alone(rider_demo, rider_model):
+    # with a helper the kurtosis is of the items' rows at the items' own EM moments, not of the helper
+    from cfa_tool.assessment.normality import kurtosis_with_gaps
+
+    aged = rider_demo.assign(age=np.random.default_rng(15).integers(18, 80, len(rider_demo)))
+    items = list(cfa_tool.parse_model(rider_model).observed_names)
+    rows = rider_demo[items].to_numpy(dtype=float)
+    rows = rows[~np.isnan(rows).all(axis=1)]
+    found = cfa_tool.fit(rider_model, aged, missing_helpers=["age"]).groups[0].normality
+    assert found is not None and found.kurtosis_z == pytest.approx(kurtosis_with_gaps(rows).kurtosis_z, rel=1e-6)
+
+
+def test_a_kurtosis_that_cannot_be_computed_is_said_so(rider_demo, rider_model, monkeypatch):
+    # the kurtosis of rows with gaps needs the information of the covariances (the largest matrix it makes: items plus
+    # their covariances, squared); with the tool's limit set below it the fit says why there is no test, and the remedies
+    from cfa_tool.numerics import sizes
+    from cfa_tool.reporting.tables import normality_lines
+
+    p = len(cfa_tool.parse_model(rider_model).observed_names)
+    monkeypatch.setattr(sizes, "MATRIX_BYTES", (p + p * (p + 1) // 2) ** 2 * 8 - 1)
     full = cfa_tool.fit(rider_model, rider_demo, missing="full-information")
     assert full.groups[0].normality is None
-    assert "need complete rows" in " ".join(full.summary().split())
+    [line] = normality_lines(full)
+    text = " ".join(str(line).split())
+    assert text.startswith("Mardia's tests of multivariate normality were not computed: the skewness needs complete "
+                           "rows, and the kurtosis of rows with gaps")
+    assert "--incomplete-rows listwise" in text or "missing='listwise'" in text
+    assert "--robust" in text or "test='robust'" in text

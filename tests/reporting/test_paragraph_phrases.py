@@ -35,11 +35,13 @@ def test_a_negative_loading_gives_the_range_in_absolute_value():
     assert f"ranged from {low} to {high} in absolute value (1 negative)" in text
 
 
-def test_full_information_says_why_mardias_tests_are_missing():
+def test_full_information_says_which_rows_the_kurtosis_judged():
     data = _hs()
     data.iloc[::10, 4] = np.nan
     text = report_text(fit_report(cfa_tool.fit(THREE_FACTORS, data)))
-    assert "Mardia's tests of multivariate normality need complete rows" in " ".join(text.split())
+    assert ("Multivariate kurtosis of every row, each on the items it answered (31 rows with gaps; Mardia 1970, for rows "
+            "with gaps Yuan, Lambert & Fouladi 2004)") in " ".join(text.split())  # 301 rows, every tenth with a gap
+    assert "Mardia's skewness needs complete rows and is not given" in " ".join(text.split())
     # the table of rows that contribute most to the chi-square is there: it measures rows on the items they answered
     assert "Rows that contribute most to the chi-square" in text and "table of rows" not in " ".join(text.split())
 
