@@ -80,7 +80,39 @@ def input_bytes(path: str | Path, what: str, error: type[UserInputError], limit:
         raise error(f"{what} '{shown_path(path)}' cannot be read ({exc.strerror or exc})") from None
     if len(data) > limit:
         raise error(f"{what} '{shown_path(path)}' holds more than {limit:,} bytes; a {what} is at most {limit:,} bytes")
+    kind = document_kind(data)
+    if kind is not None:  # read as text, its markup gave a parse error about a '{' or a byte 0x85 (hostile s24)
+        if "workbook" in kind or "spreadsheet" in kind:
+            advice = "give it a name with the workbook's own ending (.xlsx, .ods), which is read as a workbook"
+        else:
+            advice = ("save it as plain text (UTF-8, .txt) and give that file" if what != "data file" else
+                      "save the table as a CSV file and give that file")
+        raise error(f"{what} '{shown_path(path)}' is {kind}, not plain text: {advice}")
     return data
+
+
+#: the first bytes of documents that are not plain text, a word processor's or a spreadsheet's, with their names
+_DOCUMENTS = ((b"{\\rtf", "a word processor's document in rich text format (RTF)"),
+              (b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1", "an Office document of the old binary format (.doc or .xls)"),
+              (b"%PDF-", "a PDF document"))
+#: what a zip-based document holds that names its kind
+_ZIPPED = ((b"word/document.xml", "a Word document (.docx)"), (b"opendocument.text", "an OpenDocument text (.odt)"),
+           (b"xl/workbook.xml", "an Excel workbook (.xlsx)"), (b"opendocument.spreadsheet", "an OpenDocument spreadsheet"))
+
+
+def document_kind(data: bytes) -> str | None:
+    """What a file given as text is when it is a document of another kind (a Word or RTF document, a PDF, a
+    workbook), read from its first bytes (the formats' signatures: RTF's '{\\rtf', the compound-file and PDF headers,
+    a zip file and the part names it lists); None for anything else."""
+    for head, kind in _DOCUMENTS:
+        if data.startswith(head):
+            return kind
+    if data.startswith(b"PK\x03\x04"):
+        for part, kind in _ZIPPED:
+            if part in data:
+                return kind
+        return "a zip archive"
+    return None
 
 
 def _read_pipe(path: Path, limit: int) -> bytes:

@@ -41,6 +41,17 @@ def choice(kind, value: object, name: str):
         raise OptionError(f"{name} must be one of {', '.join(str(m.value) for m in kind)}, not {_shown(value)}") from None
 
 
+def yes_or_no(name: str, value: object, unset: bool = False) -> bool | None:
+    """True or False (numpy's booleans too), or None where ``unset`` allows it (the tool's choice); anything else,
+    'no' or 0 among them, an OptionError (hostile s24: diagnostics='no' was read as true)."""
+    if value is None and unset:
+        return None
+    if isinstance(value, bool) or (getattr(value, "dtype", None) is not None and value.dtype.kind == "b"
+                                   and getattr(value, "ndim", None) == 0):  # numpy's bool, without importing numpy
+        return bool(value)
+    raise OptionError(f"{name} must be True or False{' (or None)' if unset else ''}, not {_shown(value)}")
+
+
 def whole_number(name: str, value: object, minimum: int, maximum: int | None = None) -> int:
     """An integer (or a float with no fractional part) within [minimum, maximum]."""
     if isinstance(value, bool) or not isinstance(value, numbers.Real):

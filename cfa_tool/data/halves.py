@@ -79,6 +79,25 @@ def redraw_words(names: "tuple[str, ...] | list[str]", seed: str | int = "SEED",
     return f"from Python, {function} uses the same halves without a file; on the command line, {command}"
 
 
+#: fewer clusters than this in a half make the halves those clusters rather than samples of them (common practice: a
+#: random split needs enough units to balance the halves; no published cut-off)
+FEW_CLUSTERS_IN_A_HALF = 5
+
+
+def few_clusters_words(units: "tuple[int, ...] | list[int]", past: bool = False) -> str:
+    """What halves drawn cluster by cluster with a handful of clusters in a half are, as a clause that goes on a
+    sentence ('; with only 1 cluster in a half, ...'), or '' with enough clusters: a comparison of those clusters,
+    closer to a test across groups than to a replication in a new sample (hostile s24: two districts made two
+    'random halves' of one district each, without a word).  ``past``: a methods paragraph's tense."""
+    least = min(units) if len(units) else FEW_CLUSTERS_IN_A_HALF
+    if least >= FEW_CLUSTERS_IN_A_HALF:
+        return ""
+    are, is_ = ("were", "was") if past else ("are", "is")
+    return (f"; with only {least} cluster{'s' if least > 1 else ''} in a half, the halves {are} those clusters rather "
+            f"than samples of them, so the comparison {is_} one of those clusters (closer to a test of invariance "
+            f"across them, by groups) than a check in a new sample")
+
+
 def draw_halves(count: int, seed: int) -> tuple[np.ndarray, np.ndarray]:
     """The positions (in the rows' order) of the two random halves of ``count`` rows drawn with ``seed``: a random
     permutation (numpy's default generator), its first ceil(count / 2) positions the first half (which so takes the

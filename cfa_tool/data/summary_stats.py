@@ -34,7 +34,7 @@ from cfa_tool.data.moments import LARGEST_VALUE, SMALLEST_SPREAD, SampleMoments,
 from cfa_tool import options as check
 from cfa_tool.errors import DataError, clipped, printable
 from cfa_tool.input_files import DATA_FRAME, hidden_line_break, input_text, normalise_line_ends, text_lines, utf16_text
-from cfa_tool.numbers import number, whole_number, user_number
+from cfa_tool.numbers import number, user_number
 from cfa_tool.options import MAX_OBSERVATIONS
 
 
@@ -183,11 +183,14 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
         raise DataError(f"{path}: the file has no 'n' row (the number of observations), e.g. 'n,301'")
     n_cells, n_line = extra["n"]
     n_text = n_cells[0] if n_cells else ""
-    if len(n_cells) != 1 or whole_number(n_text) is None or whole_number(n_text) < 1 or len(n_text) > 13:
+    # a whole number, also as a spreadsheet writes it ('301.0'), as the Python API's n_obs=301.0 (hostile s24)
+    value = number(n_text.strip()) if len(n_cells) == 1 else None
+    if (value is None or not np.isfinite(value) or not float(value).is_integer() or not 1 <= value <= MAX_OBSERVATIONS
+            or len(n_text) > 16):
         shown = clipped(",".join(n_cells), 20)
         raise DataError(f"{path}:{n_line}: the number of observations must be one whole number from 1 to "
                         f"{MAX_OBSERVATIONS:,}, not '{shown}'")
-    n_obs = int(n_text)
+    n_obs = int(value)
     divisor = "n-1"
     if "divisor" in extra:
         cells, line = extra["divisor"]

@@ -212,6 +212,9 @@ def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> 
         if _name_goes_on(exc, lines, line, column):
             message += f"; {QUOTE_HINT}, and names in a list are separated by commas"
         written = lines[line - 1].split("#", 1)[0].strip() if 1 <= line <= len(lines) else ""
+        if re.match(r"scale\s+latent\s*,", written) and exc.token.type == "COMMA":  # hostile s24: a factor named latent
+            message += ("; 'scale latent' scales every factor, so a factor named latent is written in double quotes "
+                        "in a list: 'scale \"latent\", comfort by variance'")
         if written.split(" ", 1)[0] == "reversed" and "ON" in set(exc.accepts or exc.expected):
             message += (f"; a 'reversed' statement ends with the scale's lowest and highest possible answers, as in "
                         f"'{clipped(written, 60)} on 1 to 5' for answers from 1 to 5")

@@ -118,6 +118,8 @@ class FitOptions:
             object.__setattr__(self, "mi_top", check.whole_number("the number of modification indices to show", self.mi_top, 1))
         object.__setattr__(self, "max_iterations",
                            check.whole_number("the iteration limit", self.max_iterations, 1, check.MAX_ITERATIONS))
+        for name in ("diagnostics", "modification_indices"):
+            object.__setattr__(self, name, check.yes_or_no(name, getattr(self, name)))
         object.__setattr__(self, "missing_helpers", helper_names(self.missing_helpers))
         if self.missing_helpers:
             if self.missing is MissingData.LISTWISE:

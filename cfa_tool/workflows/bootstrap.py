@@ -463,6 +463,9 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     hold the answers, with gaps where the fit kept them), with percentile intervals only.  ``bca``: BCa intervals
     beside the percentile ones (None: where they apply, that is for continuous items; asked for with ordinal items,
     an error, never dropped silently)."""
+    from cfa_tool import options as check
+
+    bollen_stine, bca = check.yes_or_no("bollen_stine", bollen_stine, True), check.yes_or_no("bca", bca, True)
     if result.multigroup:
         raise OptionError("the bootstrap works on single-group fits")
     if not result.converged:

@@ -18,7 +18,7 @@ import enum
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.halves import drawn_halves
+from cfa_tool.data.halves import drawn_halves, few_clusters_words
 from cfa_tool.data.kept_rows import FINISHED_COLUMNS, ROW_NAMING, row_naming
 from cfa_tool.data.moments import stray_word_message
 from cfa_tool.data.non_answers import run_words
@@ -93,7 +93,8 @@ class SplitHalves:
         if self.cluster is not None:
             return (f"The halves were drawn cluster by cluster{within}: every row of a cluster of {self.cluster} is in "
                     f"one half ({_clusters(self.units[0])} in the exploration half, {self.units[1]} in the "
-                    f"confirmation half); within each half the rows are still taken as independent.")
+                    f"confirmation half); within each half the rows are still taken as independent"
+                    f"{few_clusters_words(self.units, past=True)}.")
         return f"The halves were drawn row by row{within}." if self.strata is not None else ""
 
     def to_dict(self) -> dict:

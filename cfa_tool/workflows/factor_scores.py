@@ -26,7 +26,7 @@ from cfa_tool.data.sample_design import check_design, design_columns
 from cfa_tool.data.summary_stats import NotGiven
 from cfa_tool.errors import DataError, EstimationError, OptionError, printable
 from cfa_tool.note_parts import Command, Note
-from cfa_tool.options import Option, group_column, own_keywords
+from cfa_tool.options import Option, group_column, own_keywords, yes_or_no
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.scoring.item_sums import ItemSumRule, ItemSums
@@ -825,8 +825,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         raise OptionError(f"'{data}' holds summary statistics; factor scores need the rows of answers")
     chosen = method_option(methods)
     rule = item_rule(chosen, least_answered)
-    if not isinstance(standard_errors, bool):
-        raise OptionError("standard_errors must be True or False")
+    standard_errors = yes_or_no("standard_errors", standard_errors)
     fit_options = api.make_options(options, SCORES_KEYWORDS)
     design = design_columns(weights, cluster, strata, weight_kind)
     spec, loaded, notes = api.read_inputs_with_notes(model, data, sheet, missing_codes, keep,

@@ -84,6 +84,9 @@ def designs_of(value: object) -> tuple[tuple[str, ...], tuple[tuple[int, ...], .
             label, equals, sizes = part.partition("=")
             if not equals or not label.strip() or not sizes.strip():
                 raise OptionError(f"{name}: each group is written NAME=SIZE (north=300,south=200), not '{part}'")
+            if "=" in sizes:  # 'a=100;b=100' (hostile s24: read as one group 'a' of size '100;b=100')
+                raise OptionError(f"{name}: groups are separated by commas (north=300,south=200), so '{part}' "
+                                  f"reads as one group; write a comma between the groups")
             pairs.append((label.strip(), sizes.strip().split("/")))
     elif isinstance(value, dict):
         pairs = [(str(k), list(v) if isinstance(v, (list, tuple)) else [v]) for k, v in value.items()]

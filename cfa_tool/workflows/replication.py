@@ -64,7 +64,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.numbers import count_text, counted, cut_list, user_number
-from cfa_tool.data.halves import drawn_halves
+from cfa_tool.data.halves import drawn_halves, few_clusters_words
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.pipeline.inputs import (_described, data_problems, rows_named, keeps_rows_with_gaps, load_spec, make_options, odd_values_named,
                                       read_inputs_with_notes, refit_missing_handling, refuse_totals_rows,
@@ -821,9 +821,10 @@ class SplitRows:
         row, whose phrase says so)."""
         if self.cluster is None:
             return ""
+        few = few_clusters_words(self.units, past=True)
         return (f"Every row of a cluster was in one half ({self.units[0]} clusters in half A, {self.units[1]} in half "
                 f"B), so the halves were independent samples of clusters; within each half the rows were taken as "
-                f"independent, so the test of one solution is too liberal if rows of one cluster answer alike.")
+                f"independent, so the test of one solution is too liberal if rows of one cluster answer alike{few}.")
 
     def how_drawn(self) -> str:
         """How the halves were drawn and what that means for rows that come in clusters, in the words of the split
@@ -838,7 +839,7 @@ class SplitRows:
                 f"half ({self.units[0]} clusters in half A, {self.units[1]} in half B), so the halves are independent "
                 f"samples of clusters; within each half the fits, the test of one solution and the cross-validation "
                 f"index still take the rows as independent, so the test's p-value comes out too small when rows of one "
-                f"cluster answer alike")
+                f"cluster answer alike" + few_clusters_words(self.units))
 
     #: how random halves are drawn, and what that means for rows that come in clusters (new-user trial s16: halves
     #: split households without a word); the split sentence of the report and the methods paragraph say it
