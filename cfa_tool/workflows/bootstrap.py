@@ -37,6 +37,7 @@ Bollen-Stine transformation uses the weighted means and covariance.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, replace
 from pathlib import Path
 
@@ -51,7 +52,8 @@ from cfa_tool.data.moments import SampleMoments, numeric_columns, sample_moments
 from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.language.spec import Spec
 from cfa_tool.assessment.admissibility import counted_problems, replicated_problems
-from cfa_tool.pipeline.continuous import FitOptions, fit_moments, model_structure, moments_from_rows, replicate_fits
+from cfa_tool.pipeline.continuous import (FitOptions, fit_moments, model_structure, moments_from_rows, ordered_moments,
+                                          replicate_fits)
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary, refuse_lone_strata
 from cfa_tool.method import MissingData, WeightKind
 from cfa_tool.data.matching import chosen_columns
@@ -132,6 +134,9 @@ class BootstrapResult(Presentable):
     lacked: tuple = ()
     #: how many converged resamples lacked some answer category (each fitted with the categories it held, and kept)
     resamples_lacking: int = 0
+    #: the intervals of the reliability coefficients the fit reports (assessment.reliability_intervals), each from
+    #: the resamples' refits by the fit's own function, withheld where the fit withholds the coefficient
+    reliability: tuple = ()
 
     def to_dict(self) -> dict:
         """The fit and, under "result", the bootstrap."""
@@ -143,7 +148,8 @@ class BootstrapResult(Presentable):
             "inadmissible": self.inadmissible, "inadmissible_problems": self.inadmissible_named,
             "resamples_lacking_a_category": self.resamples_lacking if self.lacked else None,
             "categories_lacked": [c.to_dict() for c in self.lacked] or None,
-            "intervals": [i.to_dict() for i in self.intervals]})}
+            "intervals": [i.to_dict() for i in self.intervals],
+            "reliability_intervals": [i.to_dict() for i in self.reliability] or None})}
 
 
 def _replicate(tasks: list) -> list:
@@ -173,12 +179,32 @@ def _replicate(tasks: list) -> list:
     out = []
     for m in samples:
         if m is None:
-            out.append((False, None, None, float("nan"), True, ()))
+            out.append((False, None, None, float("nan"), True, (), None))
         else:
             fit = next(fits)
             found = next(problems, ()) if fit.converged else ()
-            out.append((fit.converged, fit.values, fit.standardized, fit.chi_square, False, found))
+            # each converged resample's reliability, by the fit's own function (Bollen-Stine resamples: not judged)
+            coefficients = (resample_reliability(spec, table, model, fit.theta,
+                                                 ordered_moments(m, table.observed).covariance)
+                            if judged and fit.converged else None)
+            out.append((fit.converged, fit.values, fit.standardized, fit.chi_square, False, found, coefficients))
     return out
+
+
+def resample_reliability(spec, table, model, theta: np.ndarray, covariance: np.ndarray) -> dict:
+    """The reliability coefficients of the fit at ``theta`` of a model (``table``, ``model``: its structure) to one
+    group's sample ``covariance`` (in the table's order of items), computed as the fit computes them
+    (assessment.reliability.reliability on the fitted matrices and the sample covariances, the keys declared by the
+    model's 'reversed' statement or read from the loadings' signs, method factors left out) and read by
+    assessment.reliability_intervals.coefficient_values."""
+    from cfa_tool.assessment.reliability import reliability
+    from cfa_tool.assessment.reliability_intervals import coefficient_values
+
+    with np.errstate(divide="ignore", invalid="ignore"):
+        rows, _ = reliability(model.matrices(theta), table.observed, table.latent, covariance,
+                              declared=spec.reverse_keyed or None, sum_scores=False,
+                              not_traits=spec.method_factors | spec.exploratory_factors)
+    return coefficient_values(rows)
 
 
 def resampled_moments(rows: np.ndarray, names: tuple[str, ...], seeds: list[int]) -> list[SampleMoments]:
@@ -288,6 +314,14 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     (:func:`full_information_influence`), under a design weighted and summed within clusters as above.
     Entries are affine in theta; standardized values follow by the chain rule, their
     derivatives taken by central differences of the closed-form standardization."""
+    return _influences(spec, rows, names, theta, design, full_information)[:2]
+
+
+def _influences(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.ndarray, design=None,
+                full_information: bool | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray | None]:
+    """:func:`influence_values`, and apart from them each row's (or cluster's) influence on the estimate theta
+    (N, q) and, for complete rows, on the sample moments vech(S) (N, p*; None for rows with gaps, whose saturated
+    moments come from EM), by which :func:`reliability_acceleration` follows the reliability."""
     from cfa_tool.assessment.standardized import standardize_entries
     from cfa_tool.pipeline.continuous import estimate
 
@@ -298,6 +332,7 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     est = estimate(spec, [(None, moments_from_rows(rows, names, weights=w, full_information=gaps, weight_kind=kind))],
                    options, start=theta)
     model, table, theta = est.model, est.table, est.theta
+    influence_moments = None
     if gaps:
         influence_theta = full_information_influence(est.likelihood, theta)
         if design is not None and _row_counts(design) is None:  # weighted scores (weights rescaled to mean
@@ -306,7 +341,7 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
             influence_theta = np.vstack([influence_theta[rows_of].sum(axis=0) for clusters in sampling_units(design)
                                          for rows_of in clusters])
     else:
-        influence_theta = _complete_row_influence(est, rows, w, design)
+        influence_theta, influence_moments = _complete_row_influence(est, rows, w, design)
     codes, erows, ecols = table.entry_arrays()
 
     def standardized(t: np.ndarray) -> np.ndarray:
@@ -319,7 +354,7 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
         up[k] += step[k]
         down[k] -= step[k]
         d_std[:, k] = (standardized(up) - standardized(down)) / (2 * step[k])
-    return influence_theta @ model.J.T, influence_theta @ d_std.T
+    return influence_theta @ model.J.T, influence_theta @ d_std.T, influence_theta, influence_moments
 
 
 def full_information_influence(likelihood, theta: np.ndarray) -> np.ndarray:
@@ -354,8 +389,10 @@ def full_information_influence(likelihood, theta: np.ndarray) -> np.ndarray:
     return -scores @ scaled_inverse(hessian)
 
 
-def _complete_row_influence(est, rows: np.ndarray, w: np.ndarray | None, design) -> np.ndarray:
-    """Each complete row's (or cluster's) influence on the ML estimate (N, q); see :func:`influence_values`."""
+def _complete_row_influence(est, rows: np.ndarray, w: np.ndarray | None, design) -> tuple[np.ndarray, np.ndarray]:
+    """Each complete row's (or cluster's) influence on the ML estimate (N, q), and on the sample covariances
+    vech(S) (N, p*: vech(d_i d_i') - vech(S), weighted and summed within clusters alike); see
+    :func:`influence_values`."""
     from cfa_tool.numerics.linalg import scaled_inverse
     from cfa_tool.inference.robust import NormalWeight, vech_indices
 
@@ -380,7 +417,7 @@ def _complete_row_influence(est, rows: np.ndarray, w: np.ndarray | None, design)
     hessian = est.likelihood.observed_hessian(theta)
     if hessian is None:
         hessian = 2.0 * (delta.T @ WD)
-    return 2.0 * U @ WD @ scaled_inverse(hessian)  # (N, q); the Hessian is symmetric
+    return 2.0 * U @ WD @ scaled_inverse(hessian), U  # (N, q); the Hessian is symmetric
 
 
 def acceleration(influence: np.ndarray, counts: np.ndarray | None = None,
@@ -507,10 +544,16 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     standardized = np.array([d[2] for d in ok])
     accel_values = accel_std = None
     if bca:
-        influence, influence_std = influence_values(spec, moments_rows, names, start, design, gaps)
+        influence, influence_std, influence_theta, influence_moments = _influences(spec, moments_rows, names, start,
+                                                                                   design, gaps)
         counts, strata = _row_counts(design), unit_strata(design)
         accel_values, accel_std = acceleration(influence, counts, strata), acceleration(influence_std, counts, strata)
     intervals = _intervals(result, values, standardized, accel_values, accel_std)
+    accel_reliability, no_bca = None, ""
+    if bca:
+        accel_reliability, no_bca = reliability_acceleration(spec, moments_rows, names, start, design, gaps,
+                                                             influence_theta, influence_moments, result)
+    reliability_intervals = _reliability_intervals(result, [d[6] for d in ok], accel_reliability, no_bca)
     p_bs = converged_bs = None
     if bollen_stine is not False:
         transformed = bollen_stine_rows(moments_rows, result.implied_covariance,
@@ -526,7 +569,7 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     return BootstrapResult(fit=result, replications=replications, converged=len(ok), seed=seed,
                            intervals=intervals, bollen_stine_p=p_bs, bollen_stine_converged=converged_bs,
                            failed=sum(d[4] for d in draws), bollen_stine_not_computed=not_computed,
-                           inadmissible=count, inadmissible_named=named)
+                           inadmissible=count, inadmissible_named=named, reliability=reliability_intervals)
 
 
 def _bootstrap_ordinal(result: FitResult, spec, values: np.ndarray, replications: int, seed: int, workers, scheduler,
@@ -553,12 +596,14 @@ def _bootstrap_ordinal(result: FitResult, spec, values: np.ndarray, replications
     lacked = np.array([d.lacked or (0,) * len(keys) for d in ok])
     intervals = _intervals(result, np.array([d.values for d in ok]), np.array([d.standardized for d in ok]),
                            lacked=lacked)
+    reliability_intervals = _reliability_intervals(result, [dict(d.reliability) for d in ok])
     count, named = counted_problems(d.problems for d in ok)  # as each resample's fit judged itself
     lacking, lacked_each = lacked_categories(ok, result.observed)
     return BootstrapResult(fit=result, replications=replications, converged=len(ok), seed=seed, intervals=intervals,
                            bollen_stine_p=None, bollen_stine_converged=None,
                            failed=sum(d.outcome is Outcome.FAILED for d in draws), inadmissible=count,
-                           inadmissible_named=named, resamples_lacking=lacking, lacked=lacked_each)
+                           inadmissible_named=named, resamples_lacking=lacking, lacked=lacked_each,
+                           reliability=reliability_intervals)
 
 
 def _intervals(result: FitResult, values: np.ndarray, standardized: np.ndarray, accel_values: np.ndarray | None = None,
@@ -591,6 +636,105 @@ def _intervals(result: FitResult, values: np.ndarray, standardized: np.ndarray, 
                                           _bca(draws_e, point, accel) if accel is not None else (np.nan, np.nan),
                                           float(np.std(draws_e, ddof=1))))
     return tuple(intervals)
+
+
+#: why a coefficient computed from the sample covariances (alpha) has no BCa interval in a full-information bootstrap
+ALPHA_BCA_WITH_GAPS = ("BCa needs each row's influence on the saturated (EM) covariances alpha is computed from with "
+                       "rows with gaps, which is not built; its percentile interval is given")
+
+
+def reliability_acceleration(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.ndarray, design, gaps: bool,
+                             influence_theta: np.ndarray, influence_moments: np.ndarray | None,
+                             result: FitResult) -> tuple[dict, dict]:
+    """BCa acceleration of each reliability coefficient of the fit (assessment.reliability_intervals), and why a
+    coefficient has none: ({(factor, coefficient): a}, {(factor, coefficient): why not}).
+
+    A coefficient is a function of the estimates theta (omega: of the fitted loadings, factor covariances and
+    residual variances) and of the sample covariances S (alpha), computed by the fit's own function
+    (:func:`resample_reliability`); each row's influence on it is by the chain rule its influence on theta
+    (:func:`influence_values`) times the coefficient's derivatives in theta, plus its influence on vech(S) times
+    the derivatives in S (Hampel et al. 1986), the derivatives taken by central differences of that function.  Rows
+    with gaps have no influence on the saturated moments here: a coefficient that depends on them gets no BCa
+    interval (:data:`ALPHA_BCA_WITH_GAPS`)."""
+    from cfa_tool.assessment.reliability_intervals import coefficient_values
+    from cfa_tool.inference.robust import vech_indices
+
+    table, model = model_structure(spec, None, gaps)
+    keys = list(coefficient_values(result.groups[0].reliability))
+    if not keys:
+        return {}, {}
+    S = np.asarray(result.groups[0].sample_covariance, dtype=float)
+
+    def values(t: np.ndarray, cov: np.ndarray) -> np.ndarray:
+        found = resample_reliability(spec, table, model, t, cov)
+        return np.array([found.get(k, np.nan) for k in keys])
+
+    step = 1e-6 * np.maximum(1.0, np.abs(theta))
+    d_theta = np.empty((len(theta), len(keys)))
+    for k in range(len(theta)):
+        up, down = theta.copy(), theta.copy()
+        up[k] += step[k]
+        down[k] -= step[k]
+        d_theta[k] = (values(up, S) - values(down, S)) / (2 * step[k])
+    p = len(S)
+    I, J = vech_indices(p)  # the order of _complete_row_influence's vech(S)
+    d_moments = np.empty((len(I), len(keys)))
+    h = 1e-6 * max(1.0, float(np.abs(S).max()))
+    for k, (i, j) in enumerate(zip(I.tolist(), J.tolist())):
+        up, down = S.copy(), S.copy()
+        up[i, j] += h
+        down[i, j] -= h
+        if i != j:
+            up[j, i] += h
+            down[j, i] -= h
+        d_moments[k] = (values(theta, up) - values(theta, down)) / (2 * h)
+    on_moments = np.abs(d_moments).max(axis=0) > 0
+    influence = influence_theta @ d_theta
+    why = {}
+    if influence_moments is not None:
+        influence = influence + influence_moments @ d_moments
+    else:
+        why = {k: ALPHA_BCA_WITH_GAPS for k, depends in zip(keys, on_moments.tolist()) if depends}
+    with np.errstate(invalid="ignore"):
+        accel = acceleration(influence, _row_counts(design), unit_strata(design))
+    return {k: float(a) for k, a, depends in zip(keys, accel.tolist(), on_moments.tolist())
+            if influence_moments is not None or not depends}, why
+
+
+def _reliability_intervals(result: FitResult, draws: list[dict], accel: dict | None = None,
+                           not_given: dict | None = None) -> tuple:
+    """The bootstrap intervals of every reliability coefficient of the fit (assessment.reliability_intervals) from
+    each converged resample's coefficients (``draws``: :func:`resample_reliability`'s dictionaries), by the
+    percentile method and, where ``accel`` gives the acceleration, BCa (:func:`_bca`), as the estimates' intervals
+    are made; ``not_given``: why a coefficient has no BCa interval.  A coefficient the fit withholds has none, with
+    the reason; one that some resample gave no finite value has none either, with that count, never taken from the
+    other resamples alone."""
+    from cfa_tool.assessment.reliability_intervals import ReliabilityInterval, coefficients, withheld
+
+    if result.multigroup or not result.groups:
+        return ()
+    nan2 = (float("nan"), float("nan"))
+    accel = accel or {}
+    not_given = not_given or {}
+    out = []
+    for row in result.groups[0].reliability:
+        why = withheld(row)
+        for coefficient, estimate in coefficients(row):
+            key = (row.factor, coefficient)
+            if why is not None:
+                out.append(ReliabilityInterval(row.factor, coefficient, estimate, nan2, nan2, float("nan"), why))
+                continue
+            values = np.array([d.get(key, np.nan) for d in draws], dtype=float)
+            lacking = int(np.sum(~np.isfinite(values)))
+            if lacking or not len(values):
+                out.append(ReliabilityInterval(row.factor, coefficient, estimate, nan2, nan2, float("nan"),
+                                               without_value=lacking))
+                continue
+            a = accel.get(key)
+            bca = _bca(values, estimate, a) if a is not None and math.isfinite(estimate) else nan2
+            out.append(ReliabilityInterval(row.factor, coefficient, estimate, _percentile(values), bca,
+                                           float(np.std(values, ddof=1)), bca_not_given=not_given.get(key, "")))
+    return tuple(out)
 
 
 def _percentile(draws: np.ndarray) -> tuple[float, float]:
