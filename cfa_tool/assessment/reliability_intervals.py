@@ -86,6 +86,21 @@ def coefficient_values(rows) -> dict[Key, float]:
     return {(r.factor, c): v for r in rows for c, v in coefficients(r)}
 
 
+def keyed_values(rows) -> tuple[tuple[str, Coefficient, float, tuple[str, ...]], ...]:
+    """(factor, coefficient, value, the items reversed in the factor's keyed sum) of every coefficient of one fit's
+    reliability ``rows``: what a refit whose keys come from its own loadings' signs (an ordinal resample) gives back,
+    so that a coefficient of a sum keyed otherwise than the fit's is told apart (:func:`of_fit_sums`)."""
+    return tuple((r.factor, c, v, tuple(r.reversed)) for r in rows for c, v in coefficients(r))
+
+
+def of_fit_sums(values, fit_rows) -> dict[Key, float]:
+    """:func:`keyed_values` of a refit read against the fit's reliability ``fit_rows``: each coefficient's value where
+    the refit keyed the factor's sum as the fit did, NaN where its loadings' signs reversed other items (the
+    coefficient of another sum, not a value of the fit's)."""
+    keyed = {r.factor: tuple(r.reversed) for r in fit_rows}
+    return {(f, c): (v if keyed.get(f) == reversed_ else float("nan")) for f, c, v, reversed_ in values}
+
+
 @dataclass(frozen=True)
 class ReliabilityInterval:
     """One coefficient's bootstrap intervals (95%) and standard error, or why it has none."""

@@ -1279,8 +1279,14 @@ def bootstrap_reliability_table(boot) -> ReportTable | None:
             + "), the resamples counted as for the estimates' intervals (Kelley & Pornprasertmanit 2016 recommend "
               "bootstrap intervals for omega and alpha).")
     if ordinal:
-        note += (" Omega of the answers' sum: of the keyed sum of the answers' codes (Green & Yang 2009), the one to "
-                 "report for a sum score; the latent-response coefficients describe the responses behind the items.")
+        note += (" Omega of the answers' sum: of the keyed sum of the answers' codes, from the fitted thresholds too "
+                 "(Green & Yang 2009), the one to report for a sum score; the latent-response coefficients describe "
+                 "the responses behind the items. Each resample keys the sums by its own loadings' signs, as a fit "
+                 "does; a resample that keys a factor's sum otherwise than the fit gives that factor's coefficients no "
+                 "value.")
+    else:
+        note += (" Every resample keeps the keys of the fit's sums (its reversed items), so that each coefficient is of "
+                 "the sum the fit scores.")
     for reason in dict.fromkeys(i.withheld for i in found if i.withheld is not None):
         factors = list(dict.fromkeys(i.factor for i in found if i.withheld is reason))
         its = "its" if len(factors) == 1 else "their"
@@ -1288,8 +1294,9 @@ def bootstrap_reliability_table(boot) -> ReportTable | None:
     lacking = [i for i in found if i.withheld is None and i.without_value]
     for i in lacking:
         note += (f" Not available for {_coefficient_words(i, ordinal)} of {i.factor}: {count_text(i.without_value)} of "
-                 f"the {count_text(boot.converged)} converged resamples gave it no value, and an interval from the "
-                 f"others alone would leave them out.")
+                 f"the {count_text(boot.converged)} converged resamples gave it no value"
+                 + (" (or keyed its sum otherwise than the fit)" if ordinal else "")
+                 + ", and an interval from the others alone would leave them out.")
     for reason in dict.fromkeys(i.bca_not_given for i in found if i.bca_not_given):
         which = [f"{_coefficient_words(i, ordinal)} of {i.factor}" for i in found if i.bca_not_given == reason]
         note += f" No BCa interval for {word_list(which)}: {reason}."

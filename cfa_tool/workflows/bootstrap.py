@@ -158,7 +158,8 @@ def _replicate(tasks: list) -> list:
     converged resample's solution is not admissible, judged here in the worker as a single fit would judge it
     (assessment.admissibility.replicated_problems; empty: admissible, or not judged, as the Bollen-Stine resamples
     are not, whose task says ``judged`` false)."""
-    spec, rows, names, _, start, design, gaps, judged = tasks[0]
+    spec, rows, names, _, start, design, gaps, keys = tasks[0]
+    judged = keys is not None  # the Bollen-Stine resamples are not judged, and their reliability is not wanted
     if design is None and not gaps:  # resamples of complete rows: their moments in one stacked computation
         samples = resampled_moments(rows, names, [task[3] for task in tasks])
     else:
@@ -185,24 +186,40 @@ def _replicate(tasks: list) -> list:
             found = next(problems, ()) if fit.converged else ()
             # each converged resample's reliability, by the fit's own function (Bollen-Stine resamples: not judged)
             coefficients = (resample_reliability(spec, table, model, fit.theta,
-                                                 ordered_moments(m, table.observed).covariance)
+                                                 ordered_moments(m, table.observed).covariance, keys)
                             if judged and fit.converged else None)
             out.append((fit.converged, fit.values, fit.standardized, fit.chi_square, False, found, coefficients))
     return out
 
 
-def resample_reliability(spec, table, model, theta: np.ndarray, covariance: np.ndarray) -> dict:
+def fit_keys(spec, result: FitResult) -> dict | None:
+    """The reversed items of the fit's keyed sums, as the ``declared`` keys of assessment.reliability.reliability:
+    the model's 'reversed' statement when it has one; else the items the fit's loadings' signs reversed (an empty
+    dict when none), so that a resample whose weak loading changes sign still gives the reliability of the sum the
+    fit scores, not of another (a bifactor model's specific factor: one resample keyed otherwise put alpha .3 below
+    the others).  None, each resample then keyed by its own signs, only where an item is reversed in one factor's
+    sum and not in another's (one key per item cannot hold both)."""
+    if spec.reverse_keyed:
+        return spec.reverse_keyed
+    rows = result.groups[0].reliability if result.groups else ()
+    turned = {x for r in rows for x in r.reversed}
+    if any(x in turned and x not in r.reversed for r in rows for x in r.items):
+        return None
+    return {x: (float("nan"), float("nan")) for x in turned}
+
+
+def resample_reliability(spec, table, model, theta: np.ndarray, covariance: np.ndarray, keys) -> dict:
     """The reliability coefficients of the fit at ``theta`` of a model (``table``, ``model``: its structure) to one
     group's sample ``covariance`` (in the table's order of items), computed as the fit computes them
-    (assessment.reliability.reliability on the fitted matrices and the sample covariances, the keys declared by the
-    model's 'reversed' statement or read from the loadings' signs, method factors left out) and read by
-    assessment.reliability_intervals.coefficient_values."""
+    (assessment.reliability.reliability on the fitted matrices and the sample covariances, method factors left out)
+    and read by assessment.reliability_intervals.coefficient_values; ``keys``: the reversed items of the fit's keyed
+    sums (:func:`fit_keys`), held in every resample, so that each coefficient is of the sum the fit scores."""
     from cfa_tool.assessment.reliability import reliability
     from cfa_tool.assessment.reliability_intervals import coefficient_values
 
     with np.errstate(divide="ignore", invalid="ignore"):
         rows, _ = reliability(model.matrices(theta), table.observed, table.latent, covariance,
-                              declared=spec.reverse_keyed or None, sum_scores=False,
+                              declared=keys, sum_scores=False,
                               not_traits=spec.method_factors | spec.exploratory_factors)
     return coefficient_values(rows)
 
@@ -533,7 +550,8 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     names = result.observed
     start = result.theta
     seeds = np.random.SeedSequence(seed).generate_state(2 * replications)
-    tasks = [(spec, moments_rows, names, int(s), start, design, gaps, True) for s in seeds[:replications]]
+    tasks = [(spec, moments_rows, names, int(s), start, design, gaps, fit_keys(spec, result))
+             for s in seeds[:replications]]
     draws = run_tasks(_replicate, tasks, workers, scheduler, progress, refits_together(REFITS_TOGETHER, len(start)),
                       batched=True)
     ok = [d for d in draws if d[0]]
@@ -558,7 +576,7 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     if bollen_stine is not False:
         transformed = bollen_stine_rows(moments_rows, result.implied_covariance,
                                         design.weights if design is not None else None)
-        btasks = [(spec, transformed, names, int(s), start, design, False, False) for s in seeds[replications:]]
+        btasks = [(spec, transformed, names, int(s), start, design, False, None) for s in seeds[replications:]]
         bdraws = [d for d in run_tasks(_replicate, btasks, workers, scheduler, progress,
                                          refits_together(REFITS_TOGETHER, len(start)), batched=True)
                   if d[0]]
@@ -596,7 +614,11 @@ def _bootstrap_ordinal(result: FitResult, spec, values: np.ndarray, replications
     lacked = np.array([d.lacked or (0,) * len(keys) for d in ok])
     intervals = _intervals(result, np.array([d.values for d in ok]), np.array([d.standardized for d in ok]),
                            lacked=lacked)
-    reliability_intervals = _reliability_intervals(result, [dict(d.reliability) for d in ok])
+    from cfa_tool.assessment.reliability_intervals import of_fit_sums
+
+    fit_rows = result.groups[0].reliability if result.groups else ()  # each resample keyed by its own loadings' signs:
+    # a coefficient of a sum keyed otherwise than the fit's has no value there (assessment.reliability_intervals)
+    reliability_intervals = _reliability_intervals(result, [of_fit_sums(d.reliability, fit_rows) for d in ok])
     count, named = counted_problems(d.problems for d in ok)  # as each resample's fit judged itself
     lacking, lacked_each = lacked_categories(ok, result.observed)
     return BootstrapResult(fit=result, replications=replications, converged=len(ok), seed=seed, intervals=intervals,
@@ -666,7 +688,7 @@ def reliability_acceleration(spec, rows: np.ndarray, names: tuple[str, ...], the
     S = np.asarray(result.groups[0].sample_covariance, dtype=float)
 
     def values(t: np.ndarray, cov: np.ndarray) -> np.ndarray:
-        found = resample_reliability(spec, table, model, t, cov)
+        found = resample_reliability(spec, table, model, t, cov, fit_keys(spec, result))
         return np.array([found.get(k, np.nan) for k in keys])
 
     step = 1e-6 * np.maximum(1.0, np.abs(theta))
