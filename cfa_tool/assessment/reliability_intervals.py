@@ -24,6 +24,8 @@ import math
 from dataclasses import dataclass
 from enum import Enum
 
+import numpy as np
+
 from cfa_tool.assessment.reliability import BifactorPart, FactorReliability, miskeyed
 from cfa_tool.numerics.plain import clean
 
@@ -135,3 +137,96 @@ class ReliabilityInterval:
         if self.bca_not_given:
             out["bca_not_given"] = self.bca_not_given
         return clean(out)
+
+
+# ---------------------------------------------------------------- the delta method for omega
+
+#: the critical value of a two-sided 95% normal interval
+Z95 = 1.959963984540054
+
+
+def omega_matrix_gradient(mats, keys: np.ndarray, f: int) -> dict[int, np.ndarray]:
+    """The derivatives of the keyed sum's omega of factor ``f`` (assessment.reliability.keyed_omega:
+    omega = a^2 / (Phi_ff s), a = k'L Phi e_f, s = k'Sigma k = u'Phi u + k'Theta k with u = L'k, Phi = A P A' and
+    A = (I - B)^-1) with respect to each entry of L, B, P and T taken as a general matrix (by matrix code:
+    0 L, 1 B, 2 P, 3 T), for the delta method of Raykov (2002).  Analytic, by matrix calculus:
+    d omega = 2a / (Phi_ff s) da - omega / Phi_ff dPhi_ff - omega / s ds, with
+    dA/dL = k (Phi' e_f)', dA/dPhi = e_f u', ds/dL = k ((Phi + Phi')u)', ds/dPhi = u u', ds/dTheta = k k', and through
+    Phi = A P A': d/dP = A' G A, d/dB = A' G Phi' + A' G' Phi for G the derivative in Phi (dA = A dB A).
+    ``keys``: the items' keys (p) of the factor's sum, 0 for items outside it."""
+    L, T = mats.L, mats.T
+    phi = np.asarray(mats.latent_covariance(), dtype=float)
+    u = L.T @ keys
+    a = float((phi @ u)[f])
+    s = float(u @ phi @ u + keys @ T @ keys)
+    ff = float(phi[f, f])
+    omega = a * a / (ff * s)
+    lead = 2.0 * a / (ff * s)
+    m = len(phi)
+    e = np.zeros(m)
+    e[f] = 1.0
+    g_phi = lead * np.outer(e, u) - omega / ff * np.outer(e, e) - omega / s * np.outer(u, u)
+    g_l = lead * np.outer(keys, phi[f, :]) - omega / s * np.outer(keys, (phi + phi.T) @ u)
+    g_t = -omega / s * np.outer(keys, keys)
+    if mats.has_paths:
+        A = np.asarray(mats.A, dtype=float)
+        g_p = A.T @ g_phi @ A
+        g_b = A.T @ g_phi @ phi.T + A.T @ g_phi.T @ phi
+    else:
+        g_p, g_b = g_phi, np.zeros((m, m))
+    return {0: g_l, 1: g_b, 2: g_p, 3: g_t}
+
+
+def omega_gradient(mats, keys: np.ndarray, f: int, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray,
+                   J: np.ndarray) -> np.ndarray:
+    """The derivatives of factor ``f``'s omega with respect to the free parameters theta (q): those of
+    :func:`omega_matrix_gradient` gathered at the parameter table's entries (``codes``, ``rows``, ``cols``: one
+    group's; an entry of the symmetric P or T off the diagonal stands for both of its places) and carried to theta by
+    the entries' coefficients ``J`` (every entry is affine in theta)."""
+    grads = omega_matrix_gradient(mats, keys, f)
+    d = np.zeros(len(codes))
+    for code, g in grads.items():
+        sel = codes == code
+        r, c = rows[sel], cols[sel]
+        d[sel] = g[r, c] + (np.where(r != c, g[c, r], 0.0) if code in (2, 3) else 0.0)
+    return d @ J
+
+
+def sum_keys(row: FactorReliability, observed: tuple[str, ...]) -> np.ndarray:
+    """The keys (p) of the fit's keyed sum of ``row``'s factor: -1 for its reversed items, +1 for its other items,
+    0 for items outside it."""
+    reversed_ = set(row.reversed)
+    members = set(row.items)
+    return np.array([(-1.0 if x in reversed_ else 1.0) if x in members else 0.0 for x in observed])
+
+
+def with_omega_errors(rows, model, theta: np.ndarray, covariance: np.ndarray, group: int = 0) -> tuple:
+    """One group's reliability ``rows`` with the delta-method standard error of each factor's omega (Raykov 2002):
+    sqrt(g' V g), g the analytic gradient of omega in theta (:func:`omega_gradient`) and V the estimates' covariance
+    the fit computed (``covariance``, of theta: by its information, or the sandwich of a robust or design-based fit).
+    Rows whose omega is withheld (:func:`withheld`) or not finite keep None."""
+    from dataclasses import replace
+
+    table = model.table
+    codes, erows, ecols = table.entry_arrays()
+    sel = model.groups == group
+    codes, erows, ecols, J = codes[sel], erows[sel], ecols[sel], model.J[sel]
+    mats = model.matrices(theta, group)
+    latent, observed = table.latent, table.observed
+    out = []
+    for r in rows:
+        if withheld(r) is not None or not math.isfinite(r.omega) or r.factor not in latent:
+            out.append(r)
+            continue
+        g = omega_gradient(mats, sum_keys(r, observed), latent.index(r.factor), codes, erows, ecols, J)
+        variance = float(g @ covariance @ g)
+        out.append(replace(r, omega_se=math.sqrt(variance) if variance >= 0 else float("nan")))
+    return tuple(out)
+
+
+def delta_interval(row: FactorReliability) -> tuple[float, float] | None:
+    """The delta-method 95% interval of a factor's omega, omega -/+ 1.96 SE (Raykov 2002), None without a standard
+    error."""
+    if row.omega_se is None or not math.isfinite(row.omega_se):
+        return None
+    return row.omega - Z95 * row.omega_se, row.omega + Z95 * row.omega_se
