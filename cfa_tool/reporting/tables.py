@@ -972,6 +972,9 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
                "to the factor (for a higher-order factor: omega hierarchical); ") + "omega total: due to all factors; alpha "
             "from the " + ("polychoric correlations" if ordinal else "sample covariances") + " of the keyed items; "
             + ("composite" if ordinal else "composite reliability") + " from the standardized loadings.")
+    delta = _with_omega_interval(rows, columns, body, names, values)
+    if delta:
+        note += " " + delta
     if any(r.bifactor is not None for r in rows):
         columns = [("Omega hierarchical", "r") if c == ("Omega", "r") else c for c in columns]
         for row, r in zip(body, rows):
@@ -985,9 +988,6 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
         values = [row[:1] + [r.bifactor.value if r.bifactor is not None else None] + row[1:]
                   for row, r in zip(values, rows)]
         note += " " + bifactor_reliability_sentence(rows)
-    delta = _with_omega_interval(rows, columns, body, names, values)
-    if delta:
-        note += " " + delta
     single = one_item_factors(result.estimates, result.observed)
     note += one_item_sentence(single, "reliability coefficients",
                               f"no coefficients are shown, and {'it takes' if len(single) == 1 else 'they take'} no "
