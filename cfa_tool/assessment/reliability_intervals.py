@@ -118,8 +118,6 @@ class ReliabilityInterval:
     #: converged resamples in which the coefficient had no finite value: the interval is then not available, never
     #: taken from the other resamples alone
     without_value: int = 0
-    #: the intervals' method(s) whose bounds cannot be given for this coefficient, and why ('' when all are given)
-    bca_not_given: str = ""
 
     @property
     def available(self) -> bool:
@@ -134,8 +132,6 @@ class ReliabilityInterval:
             out.update(interval_available=False, withheld=self.withheld.value)
         elif self.without_value:
             out.update(interval_available=False, resamples_without_value=self.without_value)
-        if self.bca_not_given:
-            out["bca_not_given"] = self.bca_not_given
         return clean(out)
 
 

@@ -1297,9 +1297,6 @@ def bootstrap_reliability_table(boot) -> ReportTable | None:
                  f"the {count_text(boot.converged)} converged resamples gave it no value"
                  + (" (or keyed its sum otherwise than the fit)" if ordinal else "")
                  + ", and an interval from the others alone would leave them out.")
-    for reason in dict.fromkeys(i.bca_not_given for i in found if i.bca_not_given):
-        which = [f"{_coefficient_words(i, ordinal)} of {i.factor}" for i in found if i.bca_not_given == reason]
-        note += f" No BCa interval for {word_list(which)}: {reason}."
     names = ["Factor", "Coefficient", "Estimate", "Bootstrap SE", "Percentile lower", "Percentile upper",
              *([] if ordinal else ["BCa lower", "BCa upper"]), "Withheld because", "Resamples without a value"]
     return _table("bootstrap_reliability", "Bootstrap intervals of the reliability (95%)",

@@ -337,8 +337,8 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
 def _influences(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.ndarray, design=None,
                 full_information: bool | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray | None]:
     """:func:`influence_values`, and apart from them each row's (or cluster's) influence on the estimate theta
-    (N, q) and, for complete rows, on the sample moments vech(S) (N, p*; None for rows with gaps, whose saturated
-    moments come from EM), by which :func:`reliability_acceleration` follows the reliability."""
+    (N, q) and on the sample covariances vech(S) (N, p*: with gaps, the saturated EM covariances,
+    :func:`saturated_influence`), by which :func:`reliability_acceleration` follows the reliability."""
     from cfa_tool.assessment.standardized import standardize_entries
     from cfa_tool.pipeline.continuous import estimate
 
@@ -346,17 +346,20 @@ def _influences(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.ndarra
     gaps = bool(np.isnan(rows).any()) if full_information is None else full_information
     options = FitOptions(diagnostics=False, missing=MissingData.FULL_INFORMATION if gaps else None)
     kind = design.kind if design is not None else WeightKind.SAMPLING
-    est = estimate(spec, [(None, moments_from_rows(rows, names, weights=w, full_information=gaps, weight_kind=kind))],
-                   options, start=theta)
+    moments = moments_from_rows(rows, names, weights=w, full_information=gaps, weight_kind=kind)
+    est = estimate(spec, [(None, moments)], options, start=theta)
     model, table, theta = est.model, est.table, est.theta
     influence_moments = None
     if gaps:
         influence_theta = full_information_influence(est.likelihood, theta)
+        influence_moments = saturated_influence(rows, moments.means, moments.covariance, w)
         if design is not None and _row_counts(design) is None:  # weighted scores (weights rescaled to mean
             # one), summed within clusters; a frequency-weighted record without clusters keeps its rows' influence
-            influence_theta = influence_theta * (w * len(w) / w.sum())[:, None]
-            influence_theta = np.vstack([influence_theta[rows_of].sum(axis=0) for clusters in sampling_units(design)
-                                         for rows_of in clusters])
+            scale = (w * len(w) / w.sum())[:, None]
+            influence_theta, influence_moments = influence_theta * scale, influence_moments * scale
+            influence_theta, influence_moments = (
+                np.vstack([x[rows_of].sum(axis=0) for clusters in sampling_units(design) for rows_of in clusters])
+                for x in (influence_theta, influence_moments))
     else:
         influence_theta, influence_moments = _complete_row_influence(est, rows, w, design)
     codes, erows, ecols = table.entry_arrays()
@@ -372,6 +375,56 @@ def _influences(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.ndarra
         down[k] -= step[k]
         d_std[:, k] = (standardized(up) - standardized(down)) / (2 * step[k])
     return influence_theta @ model.J.T, influence_theta @ d_std.T, influence_theta, influence_moments
+
+
+def saturated_influence(rows: np.ndarray, mean: np.ndarray, covariance: np.ndarray,
+                        weights: np.ndarray | None = None) -> np.ndarray:
+    """Each row's empirical influence on the saturated (EM) covariances of rows with gaps, vech(S) (N, p*).
+
+    The saturated estimate psi = (mu, vech Sigma) minimises sum_i w_i f_i, f_i = log|Sigma_oo| + r_i' Sigma_oo^-1 r_i
+    the casewise discrepancy (Arbuckle 1996) with r_i = x_i,o - mu_o, whose gradient is dF_i/dmu = -2 u_i and
+    dF_i/dSigma = A_i - u_i u_i' (A_i = Sigma_oo^-1 embedded in p x p, u_i = A_i r_i; the form of
+    :func:`full_information_influence`), an entry off the diagonal of vech counting both of its places.  By the
+    implicit function theorem row i's influence is -H^-1 g_i, H = sum_i w_i dg_i/dpsi taken by central differences
+    of the summed gradient (Hampel et al. 1986), of which the Sigma part is returned; ``weights``: the rows'
+    weights (the caller weights and sums the influence within clusters, as it does the estimates')."""
+    from cfa_tool.inference.robust import vech_indices
+
+    n, p = rows.shape
+    I, J = vech_indices(p)
+    seen = ~np.isnan(rows)
+    patterns, index = np.unique(seen, axis=0, return_inverse=True)
+    index = index.ravel()
+    w = np.ones(n) if weights is None else np.asarray(weights, dtype=float)
+    both = np.where(I != J, 2.0, 1.0)
+
+    def scores(mu: np.ndarray, sigma: np.ndarray) -> np.ndarray:
+        A = np.zeros((len(patterns), p, p))
+        for k, o in enumerate(patterns):
+            A[k][np.ix_(o, o)] = np.linalg.inv(sigma[np.ix_(o, o)])
+        r = np.where(seen, rows - mu, 0.0)
+        u = np.einsum("nij,nj->ni", A[index], r)
+        return np.hstack([-2.0 * u, (A[:, I, J][index] - u[:, I] * u[:, J]) * both])
+
+    psi = len(I) + p
+    hessian = np.empty((psi, psi))
+    for k in range(psi):
+        h = 1e-6 * max(1.0, float(abs(mean[k])) if k < p else float(abs(covariance[I[k - p], J[k - p]])))
+        sums = []
+        for sign in (1.0, -1.0):
+            mu, sigma = mean.astype(float).copy(), covariance.astype(float).copy()
+            if k < p:
+                mu[k] += sign * h
+            else:
+                i, j = I[k - p], J[k - p]
+                sigma[i, j] += sign * h
+                if i != j:
+                    sigma[j, i] += sign * h
+            sums.append(w @ scores(mu, sigma))
+        hessian[:, k] = (sums[0] - sums[1]) / (2 * h)
+    # on the scale of an influence function (H the mean Hessian), as the complete rows' vech(d d') - vech(S)
+    influence = -w.sum() * np.linalg.solve((hessian + hessian.T) / 2, scores(mean, covariance).T).T
+    return influence[:, p:]
 
 
 def full_information_influence(likelihood, theta: np.ndarray) -> np.ndarray:
@@ -567,11 +620,11 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
         counts, strata = _row_counts(design), unit_strata(design)
         accel_values, accel_std = acceleration(influence, counts, strata), acceleration(influence_std, counts, strata)
     intervals = _intervals(result, values, standardized, accel_values, accel_std)
-    accel_reliability, no_bca = None, ""
+    accel_reliability = None
     if bca:
-        accel_reliability, no_bca = reliability_acceleration(spec, moments_rows, names, start, design, gaps,
-                                                             influence_theta, influence_moments, result)
-    reliability_intervals = _reliability_intervals(result, [d[6] for d in ok], accel_reliability, no_bca)
+        accel_reliability = reliability_acceleration(spec, moments_rows, names, start, design, gaps, influence_theta,
+                                                     influence_moments, result)
+    reliability_intervals = _reliability_intervals(result, [d[6] for d in ok], accel_reliability)
     p_bs = converged_bs = None
     if bollen_stine is not False:
         transformed = bollen_stine_rows(moments_rows, result.implied_covariance,
@@ -660,31 +713,25 @@ def _intervals(result: FitResult, values: np.ndarray, standardized: np.ndarray, 
     return tuple(intervals)
 
 
-#: why a coefficient computed from the sample covariances (alpha) has no BCa interval in a full-information bootstrap
-ALPHA_BCA_WITH_GAPS = ("BCa needs each row's influence on the saturated (EM) covariances alpha is computed from with "
-                       "rows with gaps, which is not built; its percentile interval is given")
-
-
 def reliability_acceleration(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.ndarray, design, gaps: bool,
-                             influence_theta: np.ndarray, influence_moments: np.ndarray | None,
-                             result: FitResult) -> tuple[dict, dict]:
-    """BCa acceleration of each reliability coefficient of the fit (assessment.reliability_intervals), and why a
-    coefficient has none: ({(factor, coefficient): a}, {(factor, coefficient): why not}).
+                             influence_theta: np.ndarray, influence_moments: np.ndarray,
+                             result: FitResult) -> dict:
+    """BCa acceleration of each reliability coefficient of the fit (assessment.reliability_intervals):
+    {(factor, coefficient): a}.
 
     A coefficient is a function of the estimates theta (omega: of the fitted loadings, factor covariances and
     residual variances) and of the sample covariances S (alpha), computed by the fit's own function
     (:func:`resample_reliability`); each row's influence on it is by the chain rule its influence on theta
     (:func:`influence_values`) times the coefficient's derivatives in theta, plus its influence on vech(S) times
-    the derivatives in S (Hampel et al. 1986), the derivatives taken by central differences of that function.  Rows
-    with gaps have no influence on the saturated moments here: a coefficient that depends on them gets no BCa
-    interval (:data:`ALPHA_BCA_WITH_GAPS`)."""
+    the derivatives in S (Hampel et al. 1986; with gaps S is the saturated EM covariance matrix,
+    :func:`saturated_influence`), the derivatives taken by central differences of that function."""
     from cfa_tool.assessment.reliability_intervals import coefficient_values
     from cfa_tool.inference.robust import vech_indices
 
     table, model = model_structure(spec, None, gaps)
     keys = list(coefficient_values(result.groups[0].reliability))
     if not keys:
-        return {}, {}
+        return {}
     S = np.asarray(result.groups[0].sample_covariance, dtype=float)
 
     def values(t: np.ndarray, cov: np.ndarray) -> np.ndarray:
@@ -710,25 +757,17 @@ def reliability_acceleration(spec, rows: np.ndarray, names: tuple[str, ...], the
             up[j, i] += h
             down[j, i] -= h
         d_moments[k] = (values(theta, up) - values(theta, down)) / (2 * h)
-    on_moments = np.abs(d_moments).max(axis=0) > 0
-    influence = influence_theta @ d_theta
-    why = {}
-    if influence_moments is not None:
-        influence = influence + influence_moments @ d_moments
-    else:
-        why = {k: ALPHA_BCA_WITH_GAPS for k, depends in zip(keys, on_moments.tolist()) if depends}
+    influence = influence_theta @ d_theta + influence_moments @ d_moments
     with np.errstate(invalid="ignore"):
         accel = acceleration(influence, _row_counts(design), unit_strata(design))
-    return {k: float(a) for k, a, depends in zip(keys, accel.tolist(), on_moments.tolist())
-            if influence_moments is not None or not depends}, why
+    return dict(zip(keys, accel.tolist()))
 
 
-def _reliability_intervals(result: FitResult, draws: list[dict], accel: dict | None = None,
-                           not_given: dict | None = None) -> tuple:
+def _reliability_intervals(result: FitResult, draws: list[dict], accel: dict | None = None) -> tuple:
     """The bootstrap intervals of every reliability coefficient of the fit (assessment.reliability_intervals) from
     each converged resample's coefficients (``draws``: :func:`resample_reliability`'s dictionaries), by the
     percentile method and, where ``accel`` gives the acceleration, BCa (:func:`_bca`), as the estimates' intervals
-    are made; ``not_given``: why a coefficient has no BCa interval.  A coefficient the fit withholds has none, with
+    are made.  A coefficient the fit withholds has none, with
     the reason; one that some resample gave no finite value has none either, with that count, never taken from the
     other resamples alone."""
     from cfa_tool.assessment.reliability_intervals import ReliabilityInterval, coefficients, withheld
@@ -737,7 +776,6 @@ def _reliability_intervals(result: FitResult, draws: list[dict], accel: dict | N
         return ()
     nan2 = (float("nan"), float("nan"))
     accel = accel or {}
-    not_given = not_given or {}
     out = []
     for row in result.groups[0].reliability:
         why = withheld(row)
@@ -755,7 +793,7 @@ def _reliability_intervals(result: FitResult, draws: list[dict], accel: dict | N
             a = accel.get(key)
             bca = _bca(values, estimate, a) if a is not None and math.isfinite(estimate) else nan2
             out.append(ReliabilityInterval(row.factor, coefficient, estimate, _percentile(values), bca,
-                                           float(np.std(values, ddof=1)), bca_not_given=not_given.get(key, "")))
+                                           float(np.std(values, ddof=1))))
     return tuple(out)
 
 

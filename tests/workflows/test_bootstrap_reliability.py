@@ -42,7 +42,7 @@ def test_holzinger_swineford_alphas_and_intervals(hs_boot):
         assert alpha.estimate == pytest.approx(recalled, abs=0.005)
         omega = found[(factor, Coefficient.OMEGA)]
         for i in (alpha, omega):
-            assert i.available and not i.bca_not_given
+            assert i.available
             assert i.percentile[0] < i.estimate < i.percentile[1]
             assert i.bca[0] < i.estimate < i.bca[1]
             assert 0 < i.bootstrap_se < 0.1
@@ -87,9 +87,8 @@ def test_alpha_acceleration_is_the_jackknifes(hs_data, hs_boot):
     fit = hs_boot.fit
     rows = hs_data[list(fit.observed)].to_numpy(float)
     _, _, influence_theta, influence_moments = _influences(spec, rows, tuple(fit.observed), fit.theta)
-    accel, why = reliability_acceleration(spec, rows, tuple(fit.observed), fit.theta, None, False, influence_theta,
-                                          influence_moments, fit)
-    assert not why
+    accel = reliability_acceleration(spec, rows, tuple(fit.observed), fit.theta, None, False, influence_theta,
+                                     influence_moments, fit)
     n = len(rows)
     for factor, items in ITEMS.items():
         x = hs_data[items].to_numpy(float)
@@ -111,8 +110,8 @@ def test_omega_acceleration_is_the_jackknifes(hs_data, hs_boot):
     names = tuple(fit.observed)
     rows = hs_data[list(names)].to_numpy(float)
     _, _, influence_theta, influence_moments = _influences(spec, rows, names, fit.theta)
-    accel, _ = reliability_acceleration(spec, rows, names, fit.theta, None, False, influence_theta, influence_moments,
-                                        fit)
+    accel = reliability_acceleration(spec, rows, names, fit.theta, None, False, influence_theta, influence_moments,
+                                     fit)
     samples = [moments_from_rows(np.delete(rows, i, axis=0), names) for i in range(len(rows))]
     fits = replicate_fits(spec, samples, fit.theta, fit_indices_wanted=False)
     table, model = model_structure(spec, None, False)
@@ -147,19 +146,37 @@ def test_a_resample_of_the_rows_themselves_gives_the_fits_reliability_with_gaps(
         assert found[(r.factor, Coefficient.ALPHA)] == pytest.approx(r.alpha, rel=1e-12)
 
 
-def test_full_information_bootstrap_says_why_alpha_has_no_bca(hs_data):
+def test_with_gaps_alphas_acceleration_is_the_jackknifes_of_the_em_covariances(hs_data):
+    """Rows with gaps: alpha comes from the saturated EM covariances; BCa's acceleration from each row's influence on
+    them (workflows.bootstrap.saturated_influence) against the jackknife's, each leave-one-out alpha by numpy's
+    formula on the EM covariances of the other rows (Efron & Tibshirani 1993, eq. 14.15); and the bootstrap of such
+    rows gives every coefficient a BCa interval."""
+    from cfa_tool.data.moments import moments_with_gaps
+    from cfa_tool.language.parser import parse_model
+    from cfa_tool.workflows.bootstrap import _influences, reliability_acceleration
+
     data = hs_data.copy()
     rng = np.random.default_rng(3)
-    data.loc[rng.choice(len(data), 20, replace=False), "x4"] = np.nan
+    for x in ("x2", "x4", "x8"):
+        data.loc[rng.choice(len(data), 25, replace=False), x] = np.nan
+    spec = parse_model(THREE_FACTORS)
     boot = bootstrap(THREE_FACTORS, data, replications=20, seed=2, bollen_stine=False)
+    fit = boot.fit
+    names = tuple(fit.observed)
+    rows = data[list(names)].to_numpy(float)
+    _, _, influence_theta, influence_moments = _influences(spec, rows, names, fit.theta)
+    accel = reliability_acceleration(spec, rows, names, fit.theta, None, True, influence_theta, influence_moments, fit)
+    left_out = [moments_with_gaps(np.delete(rows, i, axis=0), names, "<jackknife>").covariance
+                for i in range(len(rows))]
+    for factor, items in ITEMS.items():
+        idx = [names.index(x) for x in items]
+        leave_out = np.array([len(idx) / (len(idx) - 1) * (1 - np.trace(S[np.ix_(idx, idx)]) / S[np.ix_(idx, idx)].sum())
+                              for S in left_out])
+        d = leave_out.mean() - leave_out
+        jackknife = (d**3).sum() / (6 * (d**2).sum() ** 1.5)
+        assert accel[(factor, Coefficient.ALPHA)] == pytest.approx(jackknife, rel=0.05, abs=2e-3)
     for i in boot.reliability:
-        assert i.available and i.percentile[0] < i.percentile[1]
-        if i.coefficient is Coefficient.ALPHA:
-            assert math.isnan(i.bca[0]) and "saturated (EM) covariances" in i.bca_not_given
-        else:
-            assert not i.bca_not_given and i.bca[0] < i.bca[1]
-    table = next(t for t in _tables(boot) if t.key == "bootstrap_reliability")
-    assert "No BCa interval for alpha of visual" in str(table.note)
+        assert i.available and i.percentile[0] < i.percentile[1] and i.bca[0] < i.bca[1]
 
 
 def _tables(boot):
