@@ -398,13 +398,18 @@ def saturated_influence(rows: np.ndarray, mean: np.ndarray, covariance: np.ndarr
     w = np.ones(n) if weights is None else np.asarray(weights, dtype=float)
     both = np.where(I != J, 2.0, 1.0)
 
+    members = [np.flatnonzero(index == k) for k in range(len(patterns))]
+    centred = np.where(seen, rows, 0.0)
+
     def scores(mu: np.ndarray, sigma: np.ndarray) -> np.ndarray:
-        A = np.zeros((len(patterns), p, p))
-        for k, o in enumerate(patterns):
-            A[k][np.ix_(o, o)] = np.linalg.inv(sigma[np.ix_(o, o)])
-        r = np.where(seen, rows - mu, 0.0)
-        u = np.einsum("nij,nj->ni", A[index], r)
-        return np.hstack([-2.0 * u, (A[:, I, J][index] - u[:, I] * u[:, J]) * both])
+        u = np.empty((n, p))
+        A_vech = np.empty((len(patterns), len(I)))
+        for k, o in enumerate(patterns):  # pattern by pattern: no (N, p, p) stack
+            A = np.zeros((p, p))
+            A[np.ix_(o, o)] = np.linalg.inv(sigma[np.ix_(o, o)])
+            u[members[k]] = (centred[members[k]] - np.where(o, mu, 0.0)) @ A
+            A_vech[k] = A[I, J]
+        return np.hstack([-2.0 * u, (A_vech[index] - u[:, I] * u[:, J]) * both])
 
     psi = len(I) + p
     hessian = np.empty((psi, psi))
