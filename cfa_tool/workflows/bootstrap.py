@@ -367,14 +367,21 @@ def _influences(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.ndarra
     def standardized(t: np.ndarray) -> np.ndarray:
         return standardize_entries(model.matrices(t), codes, erows, ecols, model.entry_values(t))[0]
 
+    d_std = theta_derivatives(standardized, theta)
+    return influence_theta @ model.J.T, influence_theta @ d_std.T, influence_theta, influence_moments
+
+
+def theta_derivatives(function, theta: np.ndarray) -> np.ndarray:
+    """The derivatives of a vector ``function`` of theta in each parameter by central differences (steps 1e-6 of
+    each parameter's size, at least 1e-6): (outputs, q)."""
     step = 1e-6 * np.maximum(1.0, np.abs(theta))
-    d_std = np.empty((len(codes), len(theta)))
+    columns = []
     for k in range(len(theta)):
         up, down = theta.copy(), theta.copy()
         up[k] += step[k]
         down[k] -= step[k]
-        d_std[:, k] = (standardized(up) - standardized(down)) / (2 * step[k])
-    return influence_theta @ model.J.T, influence_theta @ d_std.T, influence_theta, influence_moments
+        columns.append((function(up) - function(down)) / (2 * step[k]))
+    return np.array(columns).T
 
 
 def saturated_influence(rows: np.ndarray, mean: np.ndarray, covariance: np.ndarray,
@@ -743,13 +750,7 @@ def reliability_acceleration(spec, rows: np.ndarray, names: tuple[str, ...], the
         found = resample_reliability(spec, table, model, t, cov, fit_keys(spec, result))
         return np.array([found.get(k, np.nan) for k in keys])
 
-    step = 1e-6 * np.maximum(1.0, np.abs(theta))
-    d_theta = np.empty((len(theta), len(keys)))
-    for k in range(len(theta)):
-        up, down = theta.copy(), theta.copy()
-        up[k] += step[k]
-        down[k] -= step[k]
-        d_theta[k] = (values(up, S) - values(down, S)) / (2 * step[k])
+    d_theta = theta_derivatives(lambda t: values(t, S), theta).T
     p = len(S)
     I, J = vech_indices(p)  # the order of _complete_row_influence's vech(S)
     d_moments = np.empty((len(I), len(keys)))
