@@ -158,13 +158,13 @@ def _replicate(tasks: list) -> list:
     converged resample's solution is not admissible, judged here in the worker as a single fit would judge it
     (assessment.admissibility.replicated_problems; empty: admissible, or not judged, as the Bollen-Stine resamples
     are not, whose task says ``judged`` false)."""
-    spec, rows, names, _, start, design, gaps, keys = tasks[0]
-    judged = keys is not None  # the Bollen-Stine resamples are not judged, and their reliability is not wanted
+    spec, rows, names, _, start, design, gaps, judged, *keyed = tasks[0]
+    keys = keyed[0] if keyed else None  # the keys of the fit's sums (fit_keys; None: each resample's signs)
     if design is None and not gaps:  # resamples of complete rows: their moments in one stacked computation
         samples = resampled_moments(rows, names, [task[3] for task in tasks])
     else:
         samples = []
-        for _, rows, _, seed, _, design, _, _ in tasks:
+        for _, rows, _, seed, _, design, *_ in tasks:
             try:
                 samples.append(_resample(rows, names, seed, design, gaps))
             except (DataError, EstimationError):  # too few answers of an item or pair, or EM without convergence
@@ -184,7 +184,7 @@ def _replicate(tasks: list) -> list:
         else:
             fit = next(fits)
             found = next(problems, ()) if fit.converged else ()
-            # each converged resample's reliability, by the fit's own function (Bollen-Stine resamples: not judged)
+            # each converged resample's reliability, by the fit's own function (Bollen-Stine resamples: not wanted)
             coefficients = (resample_reliability(spec, table, model, fit.theta,
                                                  ordered_moments(m, table.observed).covariance, keys)
                             if judged and fit.converged else None)
@@ -335,7 +335,7 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
 
 
 def _influences(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.ndarray, design=None,
-                full_information: bool | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray | None]:
+                full_information: bool | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """:func:`influence_values`, and apart from them each row's (or cluster's) influence on the estimate theta
     (N, q) and on the sample covariances vech(S) (N, p*: with gaps, the saturated EM covariances,
     :func:`saturated_influence`), by which :func:`reliability_acceleration` follows the reliability."""
@@ -349,7 +349,6 @@ def _influences(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.ndarra
     moments = moments_from_rows(rows, names, weights=w, full_information=gaps, weight_kind=kind)
     est = estimate(spec, [(None, moments)], options, start=theta)
     model, table, theta = est.model, est.table, est.theta
-    influence_moments = None
     if gaps:
         influence_theta = full_information_influence(est.likelihood, theta)
         influence_moments = saturated_influence(rows, moments.means, moments.covariance, w)
@@ -615,8 +614,8 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     names = result.observed
     start = result.theta
     seeds = np.random.SeedSequence(seed).generate_state(2 * replications)
-    tasks = [(spec, moments_rows, names, int(s), start, design, gaps, fit_keys(spec, result))
-             for s in seeds[:replications]]
+    keys = fit_keys(spec, result)
+    tasks = [(spec, moments_rows, names, int(s), start, design, gaps, True, keys) for s in seeds[:replications]]
     draws = run_tasks(_replicate, tasks, workers, scheduler, progress, refits_together(REFITS_TOGETHER, len(start)),
                       batched=True)
     ok = [d for d in draws if d[0]]
@@ -641,7 +640,7 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     if bollen_stine is not False:
         transformed = bollen_stine_rows(moments_rows, result.implied_covariance,
                                         design.weights if design is not None else None)
-        btasks = [(spec, transformed, names, int(s), start, design, False, None) for s in seeds[replications:]]
+        btasks = [(spec, transformed, names, int(s), start, design, False, False) for s in seeds[replications:]]
         bdraws = [d for d in run_tasks(_replicate, btasks, workers, scheduler, progress,
                                          refits_together(REFITS_TOGETHER, len(start)), batched=True)
                   if d[0]]
@@ -745,9 +744,10 @@ def reliability_acceleration(spec, rows: np.ndarray, names: tuple[str, ...], the
     if not keys:
         return {}
     S = np.asarray(result.groups[0].sample_covariance, dtype=float)
+    held = fit_keys(spec, result)
 
     def values(t: np.ndarray, cov: np.ndarray) -> np.ndarray:
-        found = resample_reliability(spec, table, model, t, cov, fit_keys(spec, result))
+        found = resample_reliability(spec, table, model, t, cov, held)
         return np.array([found.get(k, np.nan) for k in keys])
 
     d_theta = theta_derivatives(lambda t: values(t, S), theta).T

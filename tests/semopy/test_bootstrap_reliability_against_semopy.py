@@ -42,7 +42,7 @@ def test_each_resamples_omega_is_semopys_textbook_omega(hs_data):
     fit = cfa_tool.fit(THREE_FACTORS, hs_data)
     rows = hs_data[list(fit.observed)].to_numpy(float)
     seeds = [101, 202]
-    draws = _replicate([(spec, rows, tuple(fit.observed), s, fit.theta, None, False, fit_keys(spec, fit))
+    draws = _replicate([(spec, rows, tuple(fit.observed), s, fit.theta, None, False, True, fit_keys(spec, fit))
                         for s in seeds])
     for seed, draw in zip(seeds, draws):
         assert draw[0]

@@ -62,7 +62,7 @@ def test_each_resample_alpha_is_numpys_on_its_rows_and_intervals_are_their_perce
     names = tuple(hs_boot.fit.observed)
     keys = fit_keys(spec, hs_boot.fit)
     seeds = np.random.SeedSequence(5).generate_state(400)[:200]
-    tasks = [(spec, rows, names, int(s), hs_boot.fit.theta, None, False, keys) for s in seeds]
+    tasks = [(spec, rows, names, int(s), hs_boot.fit.theta, None, False, True, keys) for s in seeds]
     draws = _replicate(tasks)
     assert all(d[0] for d in draws)
     for factor, items in ITEMS.items():
