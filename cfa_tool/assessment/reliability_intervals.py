@@ -16,6 +16,8 @@ withholds, with the reason.
 
 The bootstrap's intervals of these coefficients (percentile; bias-corrected and accelerated, Efron 1987, where the
 bootstrap gives them for the estimates) are recommended for omega and alpha by Kelley & Pornprasertmanit (2016).
+The fit itself gives omega a delta-method interval (Raykov 2002): omega -/+ 1.96 sqrt(g'Vg), g omega's analytic
+derivatives in the free parameters (:func:`omega_matrix_gradient`), V the estimates' covariance.
 """
 
 from __future__ import annotations
