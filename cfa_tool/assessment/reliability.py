@@ -109,6 +109,9 @@ class FactorReliability:
     # structure (a general factor's specific factors; a specific factor's general factor)
     bifactor: BifactorPart | None = None
     shares_items_with: tuple[str, ...] = ()
+    #: the delta-method standard error of omega from the estimates' covariance (Raykov 2002;
+    #: assessment.reliability_intervals.with_omega_errors), None where not computed
+    omega_se: float | None = None
 
     def to_dict(self) -> dict:
         d = dict(vars(self))  # every field is a number, a word or a tuple of them, converted below

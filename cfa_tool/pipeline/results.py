@@ -746,6 +746,15 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
         if fit is not None:
             problems += uninformative_baseline_problems(fit, robust, n_obs, max(len(groups), 1))
             problems += poor_fit_problems(IndicesToRead.of(fit, robust))
+    if (converged and parameter_covariance is not None and model is not None and not method.ordinal
+            and any(g.reliability for g in groups)):  # (fits for loops have no reliability rows: nothing to add)
+        # the delta-method standard error of each factor's omega (Raykov 2002), from the estimates' covariance
+        from dataclasses import replace
+
+        from cfa_tool.assessment.reliability_intervals import with_omega_errors
+
+        groups = tuple(replace(g, reliability=with_omega_errors(g.reliability, model, theta, parameter_covariance, k))
+                       for k, g in enumerate(groups))
     if len(groups) <= 1:  # one group: the rule of rows per parameter (groups of several: each group's, by the same rule)
         from cfa_tool.assessment.admissibility import one_sample_size_problems
 

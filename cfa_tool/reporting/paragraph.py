@@ -1225,12 +1225,16 @@ def _reliability_sentence(result) -> str:
     specific = [r for r in rows if r.bifactor is BifactorPart.SPECIFIC and shown(r.omega)]
     parts = []
     if first:
-        parts.append(f"omega (McDonald, 1999) was {_list([f'{unit(r.omega, 2)} for {_name(r.factor)}' for r in first])}")
+        parts.append(f"omega (McDonald, 1999) was "
+                     f"{_list([f'{unit(r.omega, 2)}{_delta_brackets(r)} for {_name(r.factor)}' for r in first])}")
     if higher:
         general = any(r.bifactor is BifactorPart.GENERAL for r in higher)
         parts.append("omega hierarchical (Zinbarg, Revelle, Yovel & Li, 2005"
                      + ("; Rodriguez, Reise & Haviland, 2016" if general else "") + ") was "
-                     + _list([f"{unit(r.omega_hierarchical, 2)} for {_name(r.factor)}" for r in higher]))
+                     + _list([f"{unit(r.omega_hierarchical, 2)}{_delta_brackets(r)} for {_name(r.factor)}"
+                              for r in higher]))
+    if any(_delta_brackets(r) for r in first + higher):  # relint-s24: the delta-method intervals the table shows
+        parts[-1] += " (in brackets, 95% delta-method intervals; Raykov, 2002)"
     if specific:
         parts.append("omega hierarchical subscale, the share of a specific factor's keyed subscale sum due to that "
                      "factor beyond the general factor (Rodriguez, Reise & Haviland, 2016), was "
@@ -1239,6 +1243,15 @@ def _reliability_sentence(result) -> str:
         return ""
     return (f"For the reliability of the factors' keyed sum scores, {'; '.join(parts)}"
             f"{_keyed_sum_words(first + higher + specific)}.")
+
+
+def _delta_brackets(r) -> str:
+    """' [.55, .70]', a factor's omega's delta-method 95% interval (assessment.reliability_intervals.delta_interval),
+    or ''."""
+    from cfa_tool.assessment.reliability_intervals import delta_interval
+
+    interval = delta_interval(r)
+    return f" [{unit(interval[0], 2)}, {unit(interval[1], 2)}]" if interval else ""
 
 
 def _factor_means_sentence(result) -> str:

@@ -972,6 +972,9 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
                "to the factor (for a higher-order factor: omega hierarchical); ") + "omega total: due to all factors; alpha "
             "from the " + ("polychoric correlations" if ordinal else "sample covariances") + " of the keyed items; "
             + ("composite" if ordinal else "composite reliability") + " from the standardized loadings.")
+    delta = _with_omega_interval(rows, columns, body, names, values)
+    if delta:
+        note += " " + delta
     if any(r.bifactor is not None for r in rows):
         columns = [("Omega hierarchical", "r") if c == ("Omega", "r") else c for c in columns]
         for row, r in zip(body, rows):
@@ -999,6 +1002,32 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
         " (sum omega for the answers' sum of ordinal items)" if ordinal else "")
     return _table(f"reliability_{group}", title, columns, body, _unusable(result) + note,
                   _all_if_unusable(result, body), values=(names, values))
+
+
+def _with_omega_interval(rows, columns: list, body: list, names: list, values: list) -> str:
+    """The delta-method 95% interval of each factor's omega (assessment.reliability_intervals.delta_interval; Raykov
+    2002) as a column right of omega's, in place in ``columns``, ``body``, ``names`` and ``values``; the note's
+    sentence on it, '' when no factor has one (an ordinal fit, a fit without the estimates' covariance)."""
+    from cfa_tool.assessment.reliability_intervals import delta_interval
+
+    intervals = [delta_interval(r) for r in rows]
+    if not any(intervals):
+        return ""
+    at = next(k for k, (c, _) in enumerate(columns) if c.startswith("Omega")) + 1
+    columns.insert(at, ("Omega 95% CI (delta method)", "r"))
+    for row, interval in zip(body, intervals):
+        row.insert(at, f"[{unit(interval[0])}, {unit(interval[1])}]" if interval else "")
+    named = names.index("Omega total")
+    names[named:named] = ["Omega SE (delta method)", "Omega lower (delta method)", "Omega upper (delta method)"]
+    for row, r, interval in zip(values, rows, intervals):
+        row[named:named] = [r.omega_se, *(interval or (None, None))]
+    beyond = [r.factor for r, i in zip(rows, intervals) if i and (i[1] > 1 or i[0] < 0)]
+    return ("Omega 95% CI (delta method): omega -/+ 1.96 standard errors, the standard error from omega's analytic "
+            "derivatives in the loadings, factor (co)variances and residual (co)variances and the estimates' covariance "
+            "(Raykov 2002); it assumes omega's sampling distribution is normal, and the bootstrap's percentile and BCa "
+            "intervals do not." + (f" The interval of {word_list(beyond)} passes the bounds of 0 and 1: the normal "
+                                   f"approximation fails there, so read the bootstrap's interval instead."
+                                   if beyond else ""))
 
 
 def _continuous_factors_sentence(result, rows) -> str:

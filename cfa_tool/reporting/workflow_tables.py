@@ -1235,8 +1235,9 @@ def bootstrap_report(boot) -> Report:
     if unavailable:  # thresholds without an interval: in the first box, with what would give them one
         without = _without_interval(boot, unavailable)
         notice = replace(notice, lines=notice.lines + (without,)) if notice is not None else _notice([], [without])
+    reliability = bootstrap_reliability_table(boot)
     return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", notice, tuple(lines),
-                  (table,) if boot.intervals else (),
+                  ((table,) if boot.intervals else ()) + ((reliability,) if reliability is not None else ()),
                   tuple(result.warnings), (HIGH_STAKES_NOTE,),
                   warnings=((rare,) if rare else ()) + T.higher_order_cautions(result)
                   + ((kept,) if kept else ()) + ((few,) if few else ()))
@@ -1244,6 +1245,73 @@ def bootstrap_report(boot) -> Report:
 
 #: the interval cell of a threshold that some resamples gave no value (workflows.bootstrap.BootInterval.available)
 NOT_AVAILABLE = "not available"
+#: the interval cell of a coefficient whose reliability the fit withholds (assessment.reliability_intervals.Withheld)
+WITHHELD = "withheld"
+
+
+def _coefficient_words(interval, ordinal: bool) -> str:
+    """A coefficient's name in the bootstrap's reliability table: the latent responses' for ordinal items, beside the
+    omega of the answers' sum (assessment.reliability_intervals.Coefficient)."""
+    from cfa_tool.assessment.reliability_intervals import Coefficient
+
+    words = interval.coefficient.value
+    return f"latent-response {words}" if ordinal and interval.coefficient is not Coefficient.SUM_OMEGA else words
+
+
+def bootstrap_reliability_table(boot) -> ReportTable | None:
+    """The bootstrap intervals (95%) of the reliability coefficients the fit reports (workflows.bootstrap:
+    each resample's coefficients from its refit by the fit's own function), by the estimates' methods; withheld where
+    the fit withholds the coefficient, with the reason; marked not interpretable, as the fit's reliability table is,
+    when the solution is not admissible.  None when the fit reports no reliability."""
+    result = boot.fit
+    found = boot.reliability
+    if not found:
+        return None
+    ordinal = result.method.ordinal
+    body, values = [], []
+    for i in found:
+        if i.available:
+            cells = [f"[{unit(i.percentile[0])}, {unit(i.percentile[1])}]"]
+            if not ordinal:
+                cells.append(f"[{unit(i.bca[0])}, {unit(i.bca[1])}]" if not missing(i.bca[0]) else "-")
+        else:
+            cells = [WITHHELD if i.withheld is not None else NOT_AVAILABLE] * (1 if ordinal else 2)
+        body.append([i.factor, _coefficient_words(i, ordinal), unit(i.estimate),
+                     est_num(i.bootstrap_se) if i.available else "-", *cells])
+        values.append([i.factor, _coefficient_words(i, ordinal), i.estimate, i.bootstrap_se, *i.percentile,
+                       *([] if ordinal else i.bca), i.withheld.value if i.withheld is not None else None,
+                       i.without_value or None])
+    kinds = "Percentile intervals" if ordinal else "Percentile and BCa intervals"
+    note = (f"{kinds} of each coefficient from its value in every converged resample, computed from the resample's "
+            f"refit as the fit computes it (omega from the fitted loadings, factor variances and residual variances; "
+            f"alpha from the resample's " + ("polychoric correlations" if ordinal else "sample covariances")
+            + "), the resamples counted as for the estimates' intervals (Kelley & Pornprasertmanit 2016 recommend "
+              "bootstrap intervals for omega and alpha).")
+    if ordinal:
+        note += (" Omega of the answers' sum: of the keyed sum of the answers' codes, from the fitted thresholds too "
+                 "(Green & Yang 2009), the one to report for a sum score; the latent-response coefficients describe "
+                 "the responses behind the items. Each resample keys the sums by its own loadings' signs, as a fit "
+                 "does; a resample that keys a factor's sum otherwise than the fit gives that factor's coefficients no "
+                 "value.")
+    else:
+        note += (" Every resample keeps the keys of the fit's sums (its reversed items), so that each coefficient is of "
+                 "the sum the fit scores.")
+    for reason in dict.fromkeys(i.withheld for i in found if i.withheld is not None):
+        factors = list(dict.fromkeys(i.factor for i in found if i.withheld is reason))
+        its = "its" if len(factors) == 1 else "their"
+        note += f" Withheld for {word_list(factors)}, as the fit withholds {its} reliability: {reason.value}."
+    lacking = [i for i in found if i.withheld is None and i.without_value]
+    for i in lacking:
+        note += (f" Not available for {_coefficient_words(i, ordinal)} of {i.factor}: {count_text(i.without_value)} of "
+                 f"the {count_text(boot.converged)} converged resamples gave it no value"
+                 + (" (or keyed its sum otherwise than the fit)" if ordinal else "")
+                 + ", and an interval from the others alone would leave them out.")
+    names = ["Factor", "Coefficient", "Estimate", "Bootstrap SE", "Percentile lower", "Percentile upper",
+             *([] if ordinal else ["BCa lower", "BCa upper"]), "Withheld because", "Resamples without a value"]
+    return _table("bootstrap_reliability", "Bootstrap intervals of the reliability (95%)",
+                  [("Factor", "l"), ("Coefficient", "l"), ("Estimate", "r"), ("Bootstrap SE", "r"),
+                   ("Percentile", "r"), *([] if ordinal else [("BCa", "r")])], body,
+                  T._unusable(result) + note, T._all_if_unusable(result, body), values=(names, values))
 
 
 def _answers_words(values) -> str:

@@ -37,6 +37,7 @@ Bollen-Stine transformation uses the weighted means and covariance.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, replace
 from pathlib import Path
 
@@ -51,7 +52,8 @@ from cfa_tool.data.moments import SampleMoments, numeric_columns, sample_moments
 from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.language.spec import Spec
 from cfa_tool.assessment.admissibility import counted_problems, replicated_problems
-from cfa_tool.pipeline.continuous import FitOptions, fit_moments, model_structure, moments_from_rows, replicate_fits
+from cfa_tool.pipeline.continuous import (FitOptions, fit_moments, model_structure, moments_from_rows, ordered_moments,
+                                          replicate_fits)
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary, refuse_lone_strata
 from cfa_tool.method import MissingData, WeightKind
 from cfa_tool.data.matching import chosen_columns
@@ -132,6 +134,9 @@ class BootstrapResult(Presentable):
     lacked: tuple = ()
     #: how many converged resamples lacked some answer category (each fitted with the categories it held, and kept)
     resamples_lacking: int = 0
+    #: the intervals of the reliability coefficients the fit reports (assessment.reliability_intervals), each from
+    #: the resamples' refits by the fit's own function, withheld where the fit withholds the coefficient
+    reliability: tuple = ()
 
     def to_dict(self) -> dict:
         """The fit and, under "result", the bootstrap."""
@@ -143,7 +148,8 @@ class BootstrapResult(Presentable):
             "inadmissible": self.inadmissible, "inadmissible_problems": self.inadmissible_named,
             "resamples_lacking_a_category": self.resamples_lacking if self.lacked else None,
             "categories_lacked": [c.to_dict() for c in self.lacked] or None,
-            "intervals": [i.to_dict() for i in self.intervals]})}
+            "intervals": [i.to_dict() for i in self.intervals],
+            "reliability_intervals": [i.to_dict() for i in self.reliability] or None})}
 
 
 def _replicate(tasks: list) -> list:
@@ -152,12 +158,13 @@ def _replicate(tasks: list) -> list:
     converged resample's solution is not admissible, judged here in the worker as a single fit would judge it
     (assessment.admissibility.replicated_problems; empty: admissible, or not judged, as the Bollen-Stine resamples
     are not, whose task says ``judged`` false)."""
-    spec, rows, names, _, start, design, gaps, judged = tasks[0]
+    spec, rows, names, _, start, design, gaps, judged, *keyed = tasks[0]
+    keys = keyed[0] if keyed else None  # the keys of the fit's sums (fit_keys; None: each resample's signs)
     if design is None and not gaps:  # resamples of complete rows: their moments in one stacked computation
         samples = resampled_moments(rows, names, [task[3] for task in tasks])
     else:
         samples = []
-        for _, rows, _, seed, _, design, _, _ in tasks:
+        for _, rows, _, seed, _, design, *_ in tasks:
             try:
                 samples.append(_resample(rows, names, seed, design, gaps))
             except (DataError, EstimationError):  # too few answers of an item or pair, or EM without convergence
@@ -173,12 +180,48 @@ def _replicate(tasks: list) -> list:
     out = []
     for m in samples:
         if m is None:
-            out.append((False, None, None, float("nan"), True, ()))
+            out.append((False, None, None, float("nan"), True, (), None))
         else:
             fit = next(fits)
             found = next(problems, ()) if fit.converged else ()
-            out.append((fit.converged, fit.values, fit.standardized, fit.chi_square, False, found))
+            # each converged resample's reliability, by the fit's own function (Bollen-Stine resamples: not wanted)
+            coefficients = (resample_reliability(spec, table, model, fit.theta,
+                                                 ordered_moments(m, table.observed).covariance, keys)
+                            if judged and fit.converged else None)
+            out.append((fit.converged, fit.values, fit.standardized, fit.chi_square, False, found, coefficients))
     return out
+
+
+def fit_keys(spec, result: FitResult) -> dict | None:
+    """The reversed items of the fit's keyed sums, as the ``declared`` keys of assessment.reliability.reliability:
+    the model's 'reversed' statement when it has one; else the items the fit's loadings' signs reversed (an empty
+    dict when none), so that a resample whose weak loading changes sign still gives the reliability of the sum the
+    fit scores, not of another (a bifactor model's specific factor: one resample keyed otherwise put alpha .3 below
+    the others).  None, each resample then keyed by its own signs, only where an item is reversed in one factor's
+    sum and not in another's (one key per item cannot hold both)."""
+    if spec.reverse_keyed:
+        return spec.reverse_keyed
+    rows = result.groups[0].reliability if result.groups else ()
+    turned = {x for r in rows for x in r.reversed}
+    if any(x in turned and x not in r.reversed for r in rows for x in r.items):
+        return None
+    return {x: (float("nan"), float("nan")) for x in turned}
+
+
+def resample_reliability(spec, table, model, theta: np.ndarray, covariance: np.ndarray, keys) -> dict:
+    """The reliability coefficients of the fit at ``theta`` of a model (``table``, ``model``: its structure) to one
+    group's sample ``covariance`` (in the table's order of items), computed as the fit computes them
+    (assessment.reliability.reliability on the fitted matrices and the sample covariances, method factors left out)
+    and read by assessment.reliability_intervals.coefficient_values; ``keys``: the reversed items of the fit's keyed
+    sums (:func:`fit_keys`), held in every resample, so that each coefficient is of the sum the fit scores."""
+    from cfa_tool.assessment.reliability import reliability
+    from cfa_tool.assessment.reliability_intervals import coefficient_values
+
+    with np.errstate(divide="ignore", invalid="ignore"):
+        rows, _ = reliability(model.matrices(theta), table.observed, table.latent, covariance,
+                              declared=keys, sum_scores=False,
+                              not_traits=spec.method_factors | spec.exploratory_factors)
+    return coefficient_values(rows)
 
 
 def resampled_moments(rows: np.ndarray, names: tuple[str, ...], seeds: list[int]) -> list[SampleMoments]:
@@ -288,6 +331,14 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     (:func:`full_information_influence`), under a design weighted and summed within clusters as above.
     Entries are affine in theta; standardized values follow by the chain rule, their
     derivatives taken by central differences of the closed-form standardization."""
+    return _influences(spec, rows, names, theta, design, full_information)[:2]
+
+
+def _influences(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.ndarray, design=None,
+                full_information: bool | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """:func:`influence_values`, and apart from them each row's (or cluster's) influence on the estimate theta
+    (N, q) and on the sample covariances vech(S) (N, p*: with gaps, the saturated EM covariances,
+    :func:`saturated_influence`), by which :func:`reliability_acceleration` follows the reliability."""
     from cfa_tool.assessment.standardized import standardize_entries
     from cfa_tool.pipeline.continuous import estimate
 
@@ -295,31 +346,96 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     gaps = bool(np.isnan(rows).any()) if full_information is None else full_information
     options = FitOptions(diagnostics=False, missing=MissingData.FULL_INFORMATION if gaps else None)
     kind = design.kind if design is not None else WeightKind.SAMPLING
-    est = estimate(spec, [(None, moments_from_rows(rows, names, weights=w, full_information=gaps, weight_kind=kind))],
-                   options, start=theta)
+    moments = moments_from_rows(rows, names, weights=w, full_information=gaps, weight_kind=kind)
+    est = estimate(spec, [(None, moments)], options, start=theta)
     model, table, theta = est.model, est.table, est.theta
     if gaps:
         influence_theta = full_information_influence(est.likelihood, theta)
+        influence_moments = saturated_influence(rows, moments.means, moments.covariance, w)
         if design is not None and _row_counts(design) is None:  # weighted scores (weights rescaled to mean
             # one), summed within clusters; a frequency-weighted record without clusters keeps its rows' influence
-            influence_theta = influence_theta * (w * len(w) / w.sum())[:, None]
-            influence_theta = np.vstack([influence_theta[rows_of].sum(axis=0) for clusters in sampling_units(design)
-                                         for rows_of in clusters])
+            scale = (w * len(w) / w.sum())[:, None]
+            influence_theta, influence_moments = influence_theta * scale, influence_moments * scale
+            influence_theta, influence_moments = (
+                np.vstack([x[rows_of].sum(axis=0) for clusters in sampling_units(design) for rows_of in clusters])
+                for x in (influence_theta, influence_moments))
     else:
-        influence_theta = _complete_row_influence(est, rows, w, design)
+        influence_theta, influence_moments = _complete_row_influence(est, rows, w, design)
     codes, erows, ecols = table.entry_arrays()
 
     def standardized(t: np.ndarray) -> np.ndarray:
         return standardize_entries(model.matrices(t), codes, erows, ecols, model.entry_values(t))[0]
 
+    d_std = theta_derivatives(standardized, theta)
+    return influence_theta @ model.J.T, influence_theta @ d_std.T, influence_theta, influence_moments
+
+
+def theta_derivatives(function, theta: np.ndarray) -> np.ndarray:
+    """The derivatives of a vector ``function`` of theta in each parameter by central differences (steps 1e-6 of
+    each parameter's size, at least 1e-6): (outputs, q)."""
     step = 1e-6 * np.maximum(1.0, np.abs(theta))
-    d_std = np.empty((len(codes), len(theta)))
+    columns = []
     for k in range(len(theta)):
         up, down = theta.copy(), theta.copy()
         up[k] += step[k]
         down[k] -= step[k]
-        d_std[:, k] = (standardized(up) - standardized(down)) / (2 * step[k])
-    return influence_theta @ model.J.T, influence_theta @ d_std.T
+        columns.append((function(up) - function(down)) / (2 * step[k]))
+    return np.array(columns).T
+
+
+def saturated_influence(rows: np.ndarray, mean: np.ndarray, covariance: np.ndarray,
+                        weights: np.ndarray | None = None) -> np.ndarray:
+    """Each row's empirical influence on the saturated (EM) covariances of rows with gaps, vech(S) (N, p*).
+
+    The saturated estimate psi = (mu, vech Sigma) minimises sum_i w_i f_i, f_i = log|Sigma_oo| + r_i' Sigma_oo^-1 r_i
+    the casewise discrepancy (Arbuckle 1996) with r_i = x_i,o - mu_o, whose gradient is dF_i/dmu = -2 u_i and
+    dF_i/dSigma = A_i - u_i u_i' (A_i = Sigma_oo^-1 embedded in p x p, u_i = A_i r_i; the form of
+    :func:`full_information_influence`), an entry off the diagonal of vech counting both of its places.  By the
+    implicit function theorem row i's influence is -H^-1 g_i, H = sum_i w_i dg_i/dpsi taken by central differences
+    of the summed gradient (Hampel et al. 1986), of which the Sigma part is returned; ``weights``: the rows'
+    weights (the caller weights and sums the influence within clusters, as it does the estimates')."""
+    from cfa_tool.inference.robust import vech_indices
+
+    n, p = rows.shape
+    I, J = vech_indices(p)
+    seen = ~np.isnan(rows)
+    patterns, index = np.unique(seen, axis=0, return_inverse=True)
+    index = index.ravel()
+    w = np.ones(n) if weights is None else np.asarray(weights, dtype=float)
+    both = np.where(I != J, 2.0, 1.0)
+
+    members = [np.flatnonzero(index == k) for k in range(len(patterns))]
+    centred = np.where(seen, rows, 0.0)
+
+    def scores(mu: np.ndarray, sigma: np.ndarray) -> np.ndarray:
+        u = np.empty((n, p))
+        A_vech = np.empty((len(patterns), len(I)))
+        for k, o in enumerate(patterns):  # pattern by pattern: no (N, p, p) stack
+            A = np.zeros((p, p))
+            A[np.ix_(o, o)] = np.linalg.inv(sigma[np.ix_(o, o)])
+            u[members[k]] = (centred[members[k]] - np.where(o, mu, 0.0)) @ A
+            A_vech[k] = A[I, J]
+        return np.hstack([-2.0 * u, (A_vech[index] - u[:, I] * u[:, J]) * both])
+
+    psi = len(I) + p
+    hessian = np.empty((psi, psi))
+    for k in range(psi):
+        h = 1e-6 * max(1.0, float(abs(mean[k])) if k < p else float(abs(covariance[I[k - p], J[k - p]])))
+        sums = []
+        for sign in (1.0, -1.0):
+            mu, sigma = mean.astype(float).copy(), covariance.astype(float).copy()
+            if k < p:
+                mu[k] += sign * h
+            else:
+                i, j = I[k - p], J[k - p]
+                sigma[i, j] += sign * h
+                if i != j:
+                    sigma[j, i] += sign * h
+            sums.append(w @ scores(mu, sigma))
+        hessian[:, k] = (sums[0] - sums[1]) / (2 * h)
+    # on the scale of an influence function (H the mean Hessian), as the complete rows' vech(d d') - vech(S)
+    influence = -w.sum() * np.linalg.solve((hessian + hessian.T) / 2, scores(mean, covariance).T).T
+    return influence[:, p:]
 
 
 def full_information_influence(likelihood, theta: np.ndarray) -> np.ndarray:
@@ -354,8 +470,10 @@ def full_information_influence(likelihood, theta: np.ndarray) -> np.ndarray:
     return -scores @ scaled_inverse(hessian)
 
 
-def _complete_row_influence(est, rows: np.ndarray, w: np.ndarray | None, design) -> np.ndarray:
-    """Each complete row's (or cluster's) influence on the ML estimate (N, q); see :func:`influence_values`."""
+def _complete_row_influence(est, rows: np.ndarray, w: np.ndarray | None, design) -> tuple[np.ndarray, np.ndarray]:
+    """Each complete row's (or cluster's) influence on the ML estimate (N, q), and on the sample covariances
+    vech(S) (N, p*: vech(d_i d_i') - vech(S), weighted and summed within clusters alike); see
+    :func:`influence_values`."""
     from cfa_tool.numerics.linalg import scaled_inverse
     from cfa_tool.inference.robust import NormalWeight, vech_indices
 
@@ -380,7 +498,7 @@ def _complete_row_influence(est, rows: np.ndarray, w: np.ndarray | None, design)
     hessian = est.likelihood.observed_hessian(theta)
     if hessian is None:
         hessian = 2.0 * (delta.T @ WD)
-    return 2.0 * U @ WD @ scaled_inverse(hessian)  # (N, q); the Hessian is symmetric
+    return 2.0 * U @ WD @ scaled_inverse(hessian), U  # (N, q); the Hessian is symmetric
 
 
 def acceleration(influence: np.ndarray, counts: np.ndarray | None = None,
@@ -499,7 +617,8 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     names = result.observed
     start = result.theta
     seeds = np.random.SeedSequence(seed).generate_state(2 * replications)
-    tasks = [(spec, moments_rows, names, int(s), start, design, gaps, True) for s in seeds[:replications]]
+    keys = fit_keys(spec, result)
+    tasks = [(spec, moments_rows, names, int(s), start, design, gaps, True, keys) for s in seeds[:replications]]
     draws = run_tasks(_replicate, tasks, workers, scheduler, progress, refits_together(REFITS_TOGETHER, len(start)),
                       batched=True)
     ok = [d for d in draws if d[0]]
@@ -510,10 +629,16 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     standardized = np.array([d[2] for d in ok])
     accel_values = accel_std = None
     if bca:
-        influence, influence_std = influence_values(spec, moments_rows, names, start, design, gaps)
+        influence, influence_std, influence_theta, influence_moments = _influences(spec, moments_rows, names, start,
+                                                                                   design, gaps)
         counts, strata = _row_counts(design), unit_strata(design)
         accel_values, accel_std = acceleration(influence, counts, strata), acceleration(influence_std, counts, strata)
     intervals = _intervals(result, values, standardized, accel_values, accel_std)
+    accel_reliability = None
+    if bca:
+        accel_reliability = reliability_acceleration(spec, moments_rows, names, start, design, gaps, influence_theta,
+                                                     influence_moments, result)
+    reliability_intervals = _reliability_intervals(result, [d[6] for d in ok], accel_reliability)
     p_bs = converged_bs = None
     if bollen_stine is not False:
         transformed = bollen_stine_rows(moments_rows, result.implied_covariance,
@@ -529,7 +654,7 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     return BootstrapResult(fit=result, replications=replications, converged=len(ok), seed=seed,
                            intervals=intervals, bollen_stine_p=p_bs, bollen_stine_converged=converged_bs,
                            failed=sum(d[4] for d in draws), bollen_stine_not_computed=not_computed,
-                           inadmissible=count, inadmissible_named=named)
+                           inadmissible=count, inadmissible_named=named, reliability=reliability_intervals)
 
 
 def _bootstrap_ordinal(result: FitResult, spec, values: np.ndarray, replications: int, seed: int, workers, scheduler,
@@ -556,12 +681,18 @@ def _bootstrap_ordinal(result: FitResult, spec, values: np.ndarray, replications
     lacked = np.array([d.lacked or (0,) * len(keys) for d in ok])
     intervals = _intervals(result, np.array([d.values for d in ok]), np.array([d.standardized for d in ok]),
                            lacked=lacked)
+    from cfa_tool.assessment.reliability_intervals import of_fit_sums
+
+    fit_rows = result.groups[0].reliability if result.groups else ()  # each resample keyed by its own loadings' signs:
+    # a coefficient of a sum keyed otherwise than the fit's has no value there (assessment.reliability_intervals)
+    reliability_intervals = _reliability_intervals(result, [of_fit_sums(d.reliability, fit_rows) for d in ok])
     count, named = counted_problems(d.problems for d in ok)  # as each resample's fit judged itself
     lacking, lacked_each = lacked_categories(ok, result.observed)
     return BootstrapResult(fit=result, replications=replications, converged=len(ok), seed=seed, intervals=intervals,
                            bollen_stine_p=None, bollen_stine_converged=None,
                            failed=sum(d.outcome is Outcome.FAILED for d in draws), inadmissible=count,
-                           inadmissible_named=named, resamples_lacking=lacking, lacked=lacked_each)
+                           inadmissible_named=named, resamples_lacking=lacking, lacked=lacked_each,
+                           reliability=reliability_intervals)
 
 
 def _intervals(result: FitResult, values: np.ndarray, standardized: np.ndarray, accel_values: np.ndarray | None = None,
@@ -594,6 +725,85 @@ def _intervals(result: FitResult, values: np.ndarray, standardized: np.ndarray, 
                                           _bca(draws_e, point, accel) if accel is not None else (np.nan, np.nan),
                                           float(np.std(draws_e, ddof=1))))
     return tuple(intervals)
+
+
+def reliability_acceleration(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.ndarray, design, gaps: bool,
+                             influence_theta: np.ndarray, influence_moments: np.ndarray,
+                             result: FitResult) -> dict:
+    """BCa acceleration of each reliability coefficient of the fit (assessment.reliability_intervals):
+    {(factor, coefficient): a}.
+
+    A coefficient is a function of the estimates theta (omega: of the fitted loadings, factor covariances and
+    residual variances) and of the sample covariances S (alpha), computed by the fit's own function
+    (:func:`resample_reliability`); each row's influence on it is by the chain rule its influence on theta
+    (:func:`influence_values`) times the coefficient's derivatives in theta, plus its influence on vech(S) times
+    the derivatives in S (Hampel et al. 1986; with gaps S is the saturated EM covariance matrix,
+    :func:`saturated_influence`), the derivatives taken by central differences of that function."""
+    from cfa_tool.assessment.reliability_intervals import coefficient_values
+    from cfa_tool.inference.robust import vech_indices
+
+    table, model = model_structure(spec, None, gaps)
+    keys = list(coefficient_values(result.groups[0].reliability))
+    if not keys:
+        return {}
+    S = np.asarray(result.groups[0].sample_covariance, dtype=float)
+    held = fit_keys(spec, result)
+
+    def values(t: np.ndarray, cov: np.ndarray) -> np.ndarray:
+        found = resample_reliability(spec, table, model, t, cov, held)
+        return np.array([found.get(k, np.nan) for k in keys])
+
+    d_theta = theta_derivatives(lambda t: values(t, S), theta).T
+    p = len(S)
+    I, J = vech_indices(p)  # the order of _complete_row_influence's vech(S)
+    d_moments = np.empty((len(I), len(keys)))
+    h = 1e-6 * max(1.0, float(np.abs(S).max()))
+    for k, (i, j) in enumerate(zip(I.tolist(), J.tolist())):
+        up, down = S.copy(), S.copy()
+        up[i, j] += h
+        down[i, j] -= h
+        if i != j:
+            up[j, i] += h
+            down[j, i] -= h
+        d_moments[k] = (values(theta, up) - values(theta, down)) / (2 * h)
+    influence = influence_theta @ d_theta + influence_moments @ d_moments
+    with np.errstate(invalid="ignore"):
+        accel = acceleration(influence, _row_counts(design), unit_strata(design))
+    return dict(zip(keys, accel.tolist()))
+
+
+def _reliability_intervals(result: FitResult, draws: list[dict], accel: dict | None = None) -> tuple:
+    """The bootstrap intervals of every reliability coefficient of the fit (assessment.reliability_intervals) from
+    each converged resample's coefficients (``draws``: :func:`resample_reliability`'s dictionaries), by the
+    percentile method and, where ``accel`` gives the acceleration, BCa (:func:`_bca`), as the estimates' intervals
+    are made.  A coefficient the fit withholds has none, with
+    the reason; one that some resample gave no finite value has none either, with that count, never taken from the
+    other resamples alone."""
+    from cfa_tool.assessment.reliability_intervals import ReliabilityInterval, coefficients, withheld
+
+    if result.multigroup or not result.groups:
+        return ()
+    nan2 = (float("nan"), float("nan"))
+    accel = accel or {}
+    out = []
+    for row in result.groups[0].reliability:
+        why = withheld(row)
+        for coefficient, estimate in coefficients(row):
+            key = (row.factor, coefficient)
+            if why is not None:
+                out.append(ReliabilityInterval(row.factor, coefficient, estimate, nan2, nan2, float("nan"), why))
+                continue
+            values = np.array([d.get(key, np.nan) for d in draws], dtype=float)
+            lacking = int(np.sum(~np.isfinite(values)))
+            if lacking or not len(values):
+                out.append(ReliabilityInterval(row.factor, coefficient, estimate, nan2, nan2, float("nan"),
+                                               without_value=lacking))
+                continue
+            a = accel.get(key)
+            bca = _bca(values, estimate, a) if a is not None and math.isfinite(estimate) else nan2
+            out.append(ReliabilityInterval(row.factor, coefficient, estimate, _percentile(values), bca,
+                                           float(np.std(values, ddof=1))))
+    return tuple(out)
 
 
 def _percentile(draws: np.ndarray) -> tuple[float, float]:

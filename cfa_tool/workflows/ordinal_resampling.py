@@ -31,6 +31,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.assessment.admissibility import inadmissible_words
+from cfa_tool.assessment.reliability_intervals import keyed_values
 from cfa_tool.data.polychoric import ordinal_moments
 from cfa_tool.errors import CfaError
 from cfa_tool.method import MissingData, Weighting
@@ -115,6 +116,9 @@ class Refit:
     #: why the refit's solution is not admissible, as the fit judged itself (its inadmissible problems in the words
     #: of assessment.admissibility.replicated_problem_words; empty: admissible)
     problems: tuple[str, ...] = ()
+    #: the refit's reliability coefficients with the items reversed in each factor's keyed sum, read from its own
+    #: reliability rows (assessment.reliability_intervals.keyed_values), for the bootstrap's intervals of them
+    reliability: tuple = ()
 
     @property
     def converged(self) -> bool:
@@ -176,7 +180,8 @@ def _refit(result: FitResult | Outcome, keys: tuple[Key, ...], levels: dict | No
     return Refit(Outcome.CONVERGED, of("estimate"), of("standardized"), of("se"), lost,
                  tuple(lacked) if any(lacked) else (), result.robust.cfi_robust, result.robust.rmsea_robust,
                  result.fit.srmr, result.robust.p_value_scaled,
-                 inadmissible_words(result.problems))
+                 inadmissible_words(result.problems),
+                 keyed_values(result.groups[0].reliability) if result.groups else ())
 
 
 @dataclass(frozen=True)

@@ -98,7 +98,9 @@ def test_a_weak_marker_judges_no_declared_keying(data):
     assert ProblemKind.FACTOR_POINTS_AGAINST_ITEMS not in kinds
     comfort = next(r for r in result.groups[0].reliability if r.factor == "comfort")
     assert comfort.against_keying == () and comfort.points_against
-    assert f"{comfort.omega:.2f}"[1:] + " for comfort" in _flat(methods_paragraph(result))
+    from cfa_tool.reporting.paragraph import _delta_brackets  # omega's delta-method interval in brackets after it
+
+    assert f"{comfort.omega:.2f}"[1:] + _delta_brackets(comfort) + " for comfort" in _flat(methods_paragraph(result))
 
 
 def test_a_marker_the_model_file_fixes_is_advised_on_its_fix(data):

@@ -62,7 +62,8 @@ def test_paragraph_and_reliability_table_describe_one_bifactor_structure(fits, k
         assert wrong not in text, wrong
     # the omegas the paragraph gives are the reliability rows' own
     rows = {r.factor: r for r in result.groups[0].reliability}
-    said = dict((f, float("0" + v)) for v, f in re.findall(r"(\.\d\d) for (\w+)", text))
+    # (a value's delta-method interval in brackets after it, where the fit gives one)
+    said = dict((f, float("0" + v)) for v, f in re.findall(r"(\.\d\d)(?: \[[^\]]*\])? for (\w+)", text))
     assert said["experience"] == pytest.approx(rows["experience"].omega_hierarchical, abs=0.005)
     for s in SPECIFIC:
         assert rows[s].bifactor is BifactorPart.SPECIFIC and said[s] == pytest.approx(rows[s].omega, abs=0.005)

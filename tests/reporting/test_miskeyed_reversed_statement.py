@@ -84,4 +84,8 @@ def test_the_methods_paragraph_states_no_reliability_of_the_miskeyed_scale(miske
     right = cfa_tool.fit(KEYED_MODEL + f"reversed {', '.join(x for items in REVERSED.values() for x in items)} on "
                                        f"1 to 6\n", keyed_scale)
     assert not any(p.kind is ProblemKind.KEYING_AGAINST_LOADINGS for p in right.problems)
-    assert "and " + f"{right.groups[0].reliability[-1].omega:.2f}"[1:] + " for e" in _flat(methods_paragraph(right))
+    from cfa_tool.reporting.paragraph import _delta_brackets
+
+    last = right.groups[0].reliability[-1]
+    assert ("and " + f"{last.omega:.2f}"[1:] + _delta_brackets(last) + " for e"
+            in _flat(methods_paragraph(right)))

@@ -13,7 +13,7 @@ import pytest
 
 import cfa_tool
 from cfa_tool.reporting.numbers import unit
-from cfa_tool.reporting.paragraph import comparison_paragraph, methods_paragraph
+from cfa_tool.reporting.paragraph import _delta_brackets, comparison_paragraph, methods_paragraph
 from tests.conftest import THREE_FACTORS, holzinger_swineford, simulate_cfa
 
 ITEMS = [f"q{i}" for i in range(1, 10)]
@@ -104,8 +104,10 @@ def test_continuous_omega_is_the_fits_own_and_agrees_with_the_formula():
     assert [round(rows[f].omega, 1) for f in ("visual", "textual", "speed")] == [0.6, 0.9, 0.7]
     text = _flat(methods_paragraph(result))
     assert (f"For the reliability of the factors' keyed sum scores, omega (McDonald, 1999) was "
-            f"{unit(rows['visual'].omega, 2)} for visual, {unit(rows['textual'].omega, 2)} for textual, and "
-            f"{unit(rows['speed'].omega, 2)} for speed.") in text
+            f"{unit(rows['visual'].omega, 2)}{_delta_brackets(rows['visual'])} for visual, "
+            f"{unit(rows['textual'].omega, 2)}{_delta_brackets(rows['textual'])} for textual, and "
+            f"{unit(rows['speed'].omega, 2)}{_delta_brackets(rows['speed'])} for speed (in brackets, 95% delta-method "
+            f"intervals; Raykov, 2002).") in text
 
 
 def test_declared_reverse_keyed_items_enter_omega_turned(answers):
@@ -114,7 +116,7 @@ def test_declared_reverse_keyed_items_enter_omega_turned(answers):
     assert rows["a"].reversed == ("q2",)
     assert rows["a"].omega == pytest.approx(_omega_by_hand(result, "a", {"q2": -1}), rel=1e-6)
     text = _flat(methods_paragraph(result))
-    assert f"omega (McDonald, 1999) was {unit(rows['a'].omega, 2)} for a" in text
+    assert f"omega (McDonald, 1999) was {unit(rows['a'].omega, 2)}{_delta_brackets(rows['a'])} for a" in text
     assert "with q2, q5, and q8 reversed in the sums (as declared)" in text
 
 
@@ -123,7 +125,7 @@ def test_a_higher_order_factor_gets_omega_hierarchical():
     result = cfa_tool.fit(model, holzinger_swineford())
     top = next(r for r in result.groups[0].reliability if r.factor == "g")
     assert top.level == "higher-order" and top.omega_hierarchical is not None
-    assert (f"omega hierarchical (Zinbarg, Revelle, Yovel & Li, 2005) was {unit(top.omega_hierarchical, 2)} for g"
+    assert (f"omega hierarchical (Zinbarg, Revelle, Yovel & Li, 2005) was {unit(top.omega_hierarchical, 2)}{_delta_brackets(top)} for g"
             in _flat(methods_paragraph(result)))
 
 
