@@ -180,3 +180,96 @@ def _schur_inverses(sigma: np.ndarray, observed: np.ndarray, logdet_sigma: float
         A[which] -= np.swapaxes(side, 1, 2) @ np.linalg.solve(block, side)
     outer = observed[:, :, None] & observed[:, None, :]
     return np.where(outer, A, 0.0), logdet
+
+
+@dataclass(frozen=True)
+class PatternInverses:
+    """Every pattern's Sigma_oo^-1 in the low-rank form of the Schur complement, never as a stack of p x p matrices:
+    with L = Sigma^-1 and C_k = (L_mm)^-1 for the items m pattern k misses,
+        Sigma_oo^-1 = L_oo - L_om C_k L_mo,   log|Sigma_oo| = log|Sigma| + log|L_mm|
+    (the partitioned inverse; Little & Rubin 2002, ch. 11, as :func:`embedded_inverse`), so that a product with a
+    pattern's inverse costs p^2 once for all patterns and p m a pattern, and V' A_k V is V' L V less a rank-m term.
+    ``batches``: (patterns, their missing columns (k, m), C_k (k, m, m)) for each number m > 0 of missing items."""
+
+    precision: np.ndarray  # (p, p) L = Sigma^-1, symmetrised
+    logdet: np.ndarray  # (P,) log|Sigma_oo|
+    batches: tuple  # ((patterns, missing columns, C), ...)
+
+
+def pattern_inverses(sigma: np.ndarray, observed: np.ndarray, missing: list | None = None) -> PatternInverses | None:
+    """The patterns' inverses of :class:`PatternInverses` (None if Sigma or some Sigma_oo is not positive definite);
+    ``missing`` as :func:`embedded_inverse` takes it."""
+    P, p = observed.shape
+    try:
+        chol = np.linalg.cholesky(sigma)
+    except np.linalg.LinAlgError:
+        return None
+    if np.any(np.diag(chol) <= 0):
+        return None
+    logdet = np.full(P, 2.0 * float(np.sum(np.log(np.diag(chol)))))
+    try:
+        precision = np.linalg.inv(sigma)
+        precision = 0.5 * (precision + precision.T)
+        batches = []
+        for which, miss in missing_groups(observed) if missing is None else missing:
+            block = precision[miss[:, :, None], miss[:, None, :]]  # (k, m, m) = L_mm
+            block_chol = np.linalg.cholesky(block)
+            logdet[which] += 2.0 * np.sum(np.log(np.diagonal(block_chol, axis1=1, axis2=2)), axis=1)
+            batches.append((which, miss, np.linalg.inv(block)))
+    except np.linalg.LinAlgError:  # numerically singular although its Cholesky factor exists
+        return None
+    return PatternInverses(precision, logdet, tuple(batches))
+
+
+def batch_members(inverses_batches: list, pattern_of: np.ndarray) -> list[tuple[np.ndarray, np.ndarray]]:
+    """For each batch of :func:`missing_groups` (``inverses_batches``: its (patterns, missing columns) pairs), the rows
+    whose pattern (``pattern_of``) it holds and each one's place in the batch: fixed by the data, found once."""
+    out = []
+    for which, _ in inverses_batches:
+        rows = np.flatnonzero(np.isin(pattern_of, which))
+        out.append((rows, np.searchsorted(which, pattern_of[rows])))
+    return out
+
+
+def applied_inverses(inverses: PatternInverses, x: np.ndarray, members: list, observed: np.ndarray) -> np.ndarray:
+    """A_k x for each row x of ``x`` (zeros where its pattern k misses; ``observed``: each row's answered items),
+    A_k = Sigma_oo^-1 embedded in p x p (:class:`PatternInverses`; ``members``: :func:`batch_members` of the rows):
+    x L, less (L_.m C_k (L x)_m) for rows with gaps, np^2 + n m p where the embedded stack took n m p^2 to make."""
+    L = inverses.precision
+    v = x @ L
+    u = v.copy()
+    for (_, miss, C), (rows, at) in zip(inverses.batches, members):
+        if not len(rows):
+            continue
+        cols = miss[at]  # (n_b, m) each row's missing columns
+        z = (C[at] @ v[rows[:, None], cols][:, :, None])[:, :, 0]
+        u[rows] -= np.einsum("rk,rkp->rp", z, L[cols])
+    return np.where(observed, u, 0.0)
+
+
+def weighted_inverse_sum(inverses: PatternInverses, observed: np.ndarray, w: np.ndarray) -> np.ndarray:
+    """sum_k w_k A_k (A_k = Sigma_oo^-1 embedded, :class:`PatternInverses`) from L restricted to each pattern's
+    answered pairs, less each pattern's side' C_k side with side = L_m. on its answered columns: one matrix product
+    over the patterns' (pattern, missing item) pairs, no stack of p x p matrices."""
+    L = inverses.precision
+    p = L.shape[0]
+    total = L * ((observed * w[:, None]).T @ observed.astype(float))
+    for which, miss, C in inverses.batches:
+        side = L[miss] * observed[which][:, None, :]  # (k, m, p) L_m. on the answered columns
+        total -= (side * w[which, None, None]).reshape(-1, p).T @ (C @ side).reshape(-1, p)
+    return total
+
+
+def inverse_bases(inverses: PatternInverses, V: np.ndarray) -> np.ndarray:
+    """V' A_k V for every pattern (P, r, r), A_k = Sigma_oo^-1 embedded (:class:`PatternInverses`):
+    V' L V - R_k' C_k R_k with R_k = (L V)_m, p^2 r once and m r (m + r) a pattern, where V' A_k V from the
+    embedded A_k took p r (p + r) a pattern (the rows and columns A_k leaves at zero come out zero to rounding)."""
+    L = inverses.precision
+    LV = L @ V
+    K0 = V.T @ LV
+    K0 = 0.5 * (K0 + K0.T)
+    K = np.broadcast_to(K0, (len(inverses.logdet),) + K0.shape).copy()
+    for which, miss, C in inverses.batches:
+        R = LV[miss]  # (k, m, r)
+        K[which] -= np.swapaxes(R, 1, 2) @ (C @ R)
+    return K
