@@ -110,8 +110,18 @@ def _scatter(centred: np.ndarray, w: np.ndarray, starts: np.ndarray) -> np.ndarr
             continue
         last = max(first + 1, int(np.searchsorted(stops, r0 + limit, side="right")))
         rows = centred[r0:stops[last - 1]]
-        outer = (rows * w[r0:stops[last - 1], None])[:, :, None] * rows[:, None, :]
-        scatter[first:last] = np.add.reduceat(outer, starts[first:last] - r0, axis=0)
+        weighted = rows * w[r0:stops[last - 1], None]
+        single = stops[first:last] - starts[first:last] == 1
+        if single.all():  # a pattern a row (gaps at random): each its own outer product, nothing to add
+            np.multiply(weighted[:, :, None], rows[:, None, :], out=scatter[first:last])
+        else:  # the patterns of one row written, those of several added up (the same sums as over the whole run)
+            at = starts[first:last][single] - r0
+            scatter[first:last][single] = weighted[at][:, :, None] * rows[at][:, None, :]
+            several = np.flatnonzero(~single) + first
+            taken = np.concatenate([np.arange(starts[k], stops[k]) for k in several]) - r0
+            outer = weighted[taken][:, :, None] * rows[taken][:, None, :]
+            sizes = stops[several] - starts[several]
+            scatter[several] = np.add.reduceat(outer, np.concatenate([[0], np.cumsum(sizes)[:-1]]), axis=0)
         first = last
     return scatter
 
