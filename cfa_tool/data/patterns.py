@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 
@@ -17,10 +18,26 @@ class PatternData:
     observed: np.ndarray  # (P, p) bool
     counts: np.ndarray  # (P,) rows in each pattern (the sum of their weights)
     means: np.ndarray  # (P, p) mean of the observed values
-    scatter: np.ndarray  # (P, p, p) covariance of the observed values about their own mean, divisor count
     index: np.ndarray  # pattern of each row
     rows: np.ndarray  # the rows themselves (NaN where missing)
     weights: np.ndarray | None = None  # weight of each row (None: every row weighs one)
+
+    @cached_property
+    def scatter(self) -> np.ndarray:
+        """(P, p, p) covariance of each pattern's observed values about their own mean, divisor count: a stack of one
+        p x p matrix per pattern, made on first use (the routes that take the patterns' matrices whole: the robust
+        routes' information in the moments; the likelihood itself sums over the rows), within the one limit of
+        :mod:`cfa_tool.numerics.sizes` (:func:`refuse_large_patterns`)."""
+        P, p = self.observed.shape
+        refuse_large_patterns(P, p, p)
+        mask = ~np.isnan(self.rows)
+        w = self.row_weights
+        order = np.argsort(self.index, kind="stable")
+        starts = np.searchsorted(self.index[order], np.arange(P))
+        centred = np.where(mask, np.where(mask, self.rows, 0.0) - self.means[self.index], 0.0)[order]
+        scatter = _scatter(centred, w[order], starts)
+        scatter /= self.counts[:, None, None]
+        return scatter
 
     @property
     def n_obs(self) -> int:
@@ -71,7 +88,6 @@ def pattern_data(rows: np.ndarray, weights: np.ndarray | None = None) -> Pattern
     mask = ~np.isnan(rows)
     patterns, index, counts = group_patterns(mask)
     P, p = patterns.shape
-    refuse_large_patterns(P, p, p)
     filled = np.where(mask, rows, 0.0)
     if weights is not None:
         counts = np.bincount(index, weights=weights, minlength=P)
@@ -80,10 +96,7 @@ def pattern_data(rows: np.ndarray, weights: np.ndarray | None = None) -> Pattern
     order = np.argsort(index, kind="stable")
     starts = np.searchsorted(index[order], np.arange(P))
     means = np.add.reduceat((filled * w[:, None])[order], starts, axis=0) / counts[:, None]
-    centred = np.where(mask, filled - means[index], 0.0)[order]
-    scatter = _scatter(centred, w[order], starts)
-    scatter /= counts[:, None, None]
-    return PatternData(patterns, counts, means, scatter, index, rows, weights)
+    return PatternData(patterns, counts, means, index, rows, weights)
 
 
 #: the most bytes of the rows' outer products :func:`_scatter` makes at once
@@ -129,10 +142,13 @@ def _scatter(centred: np.ndarray, w: np.ndarray, starts: np.ndarray) -> np.ndarr
 def refuse_large_patterns(patterns: int, side: int, items: int) -> None:
     """Refuse, with a one-line EstimationError naming the size and what to do, full-information ML whose stacks of
     one side x side matrix per pattern of missing answers would exceed the one limit of a matrix of
-    :mod:`cfa_tool.numerics.sizes` (the patterns' scatter here; the likelihood's inverses, their products and its
-    rank-two gathers, each such a stack and about seven at once, ``side`` then the widest: estimation.fiml), before
-    any is made: at 200 items each stack takes 0.3 MB a pattern, 0.6 GB for 2,000 rows with gaps everywhere, which no
-    other limit held.  ``items``: the items (and missing-data helpers) of the rows."""
+    :mod:`cfa_tool.numerics.sizes`, before any is made.  What a fit holds (speed-s24, bench/fiml_patterns.py): its
+    search keeps every pattern's inverse in the low-rank form of :class:`PatternInverses` and makes V' A_k V a chunk
+    of at most :data:`CHUNK_BYTES` at a time, so the stacks a fit makes whole are the case diagnostics' inverses
+    (the whole default fit's traced peak at 100 items and 1,500 rows, one pattern a row, was 293 MB: 2.4 times its
+    stack of 120 MB) and, on the robust routes, the scatter, A_k, A_k T_k A_k and T_k (about five at once).  Before,
+    every evaluation held several such stacks and the search's V' A_k V, wider still: 7-8.5 times a stack, 1.13 GB at
+    100 items.  ``side``: the columns of the rows, ``items``: the items (and missing-data helpers) of the rows."""
     from cfa_tool.errors import EstimationError
     from cfa_tool.numerics import sizes
     from cfa_tool.options import Option
@@ -141,7 +157,8 @@ def refuse_large_patterns(patterns: int, side: int, items: int) -> None:
         return
     raise EstimationError(
         f"full-information ML holds one matrix of the {items} analysed columns by themselves for each pattern of "
-        f"missing answers (which columns a row answered), several such stacks at once; the {patterns:,} patterns of "
+        f"missing answers (which columns a row answered) in its case diagnostics and robust routes, up to five such "
+        f"stacks at once; the {patterns:,} patterns of "
         f"these rows make each stack {patterns:,} matrices of {side} x {side}, "
         f"{sizes.stack_too_large_words(patterns, side)}; "
         f"fit the items in smaller sets, or keep only the complete rows ({Option.INCOMPLETE_ROWS.given('listwise')}) "
@@ -235,7 +252,7 @@ def batch_members(inverses_batches: list, pattern_of: np.ndarray) -> list[tuple[
     """For each batch of :func:`missing_groups` (``inverses_batches``: its (patterns, missing columns) pairs), the rows
     whose pattern (``pattern_of``) it holds and each one's place in the batch: fixed by the data, found once."""
     out = []
-    for which, _ in inverses_batches:
+    for which, *_ in inverses_batches:
         rows = np.flatnonzero(np.isin(pattern_of, which))
         out.append((rows, np.searchsorted(which, pattern_of[rows])))
     return out
@@ -270,16 +287,39 @@ def weighted_inverse_sum(inverses: PatternInverses, observed: np.ndarray, w: np.
     return total
 
 
-def inverse_bases(inverses: PatternInverses, V: np.ndarray) -> np.ndarray:
-    """V' A_k V for every pattern (P, r, r), A_k = Sigma_oo^-1 embedded (:class:`PatternInverses`):
-    V' L V - R_k' C_k R_k with R_k = (L V)_m, p^2 r once and m r (m + r) a pattern, where V' A_k V from the
-    embedded A_k took p r (p + r) a pattern (the rows and columns A_k leaves at zero come out zero to rounding)."""
-    L = inverses.precision
-    LV = L @ V
-    K0 = V.T @ LV
-    K0 = 0.5 * (K0 + K0.T)
-    K = np.broadcast_to(K0, (len(inverses.logdet),) + K0.shape).copy()
-    for which, miss, C in inverses.batches:
-        R = LV[miss]  # (k, m, r)
-        K[which] -= np.swapaxes(R, 1, 2) @ (C @ R)
-    return K
+#: the most bytes of one chunk of the patterns' V' A_k V (:class:`PatternBases`)
+CHUNK_BYTES = 1 << 25
+
+
+class PatternBases:
+    """V' A_k V of every pattern (A_k = Sigma_oo^-1 embedded, :class:`PatternInverses`), made a chunk of patterns at
+    a time and never all at once: V' L V - R_k' C_k R_k with R_k = (L V)_m, p^2 r once and m r (m + r) a pattern,
+    where V' A_k V from the embedded A_k took p r (p + r) a pattern (the rows and columns A_k leaves at zero come out
+    zero to rounding).  A chunk holds at most :data:`CHUNK_BYTES` (32 MiB): the whole stack was 173 MB at 100 items and
+    1,500 rows with gaps everywhere, and held with several others of its size.  Iterating gives the patterns' matrices
+    one by one in the patterns' order; :meth:`chunks` gives (first pattern, stop, their stack)."""
+
+    def __init__(self, inverses: PatternInverses, V: np.ndarray):
+        self.inverses = inverses
+        self.LV = inverses.precision @ V
+        K0 = V.T @ self.LV
+        self.K0 = 0.5 * (K0 + K0.T)
+        self.patterns = len(inverses.logdet)
+        r = V.shape[1]
+        self.step = max(1, CHUNK_BYTES // (8 * r * r))
+
+    def chunks(self):
+        for start in range(0, self.patterns, self.step):
+            stop = min(self.patterns, start + self.step)
+            K = np.broadcast_to(self.K0, (stop - start,) + self.K0.shape).copy()
+            for which, miss, C in self.inverses.batches:
+                lo, hi = np.searchsorted(which, (start, stop))
+                if lo == hi:
+                    continue
+                R = self.LV[miss[lo:hi]]  # (k, m, r)
+                K[which[lo:hi] - start] -= np.swapaxes(R, 1, 2) @ (C[lo:hi] @ R)
+            yield start, stop, K
+
+    def __iter__(self):
+        for *_, K in self.chunks():
+            yield from K

@@ -40,22 +40,31 @@ from cfa_tool.estimation.objective import Evaluation, ScoreRoute
 from cfa_tool.model.rank_two import (basis_vectors, gradient_and_information, mean_coefficients, mean_second_derivatives,
                                      path_second_derivatives, second_derivative_contraction)
 from cfa_tool.data.em import weighted_available_moments
-from cfa_tool.data.patterns import (PatternData, applied_inverses, batch_members, embedded_inverse,
-                                    inverse_bases, missing_groups, pattern_inverses, refuse_large_patterns,
+from cfa_tool.data.patterns import (PatternBases, PatternData, applied_inverses, batch_members, embedded_inverse,
+                                    missing_groups, pattern_inverses, refuse_large_patterns,
                                     weighted_inverse_sum)
 from cfa_tool.model.implied import StructuredModel
 
 
 def pattern_objective(data: PatternData, mu: np.ndarray, sigma: np.ndarray) -> float:
-    """f(mu, Sigma) summed over patterns, weighted by n_k / N (inf if some Sigma_oo is not positive definite)."""
-    inv = embedded_inverse(sigma, data.observed)
+    """f(mu, Sigma) summed over patterns, weighted by n_k / N (inf if some Sigma_oo is not positive definite): the
+    patterns' log|Sigma_oo| and the traces tr(A_k T_k) summed over the rows (:func:`row_objective`), no pattern's p x p
+    matrix made."""
+    missing = list(missing_groups(data.observed))
+    inv = pattern_inverses(sigma, data.observed, missing)
     if inv is None:
         return np.inf
-    A, logdet = inv
-    dev = np.where(data.observed, data.means - mu, 0.0)
-    T = data.scatter + dev[:, :, None] * dev[:, None, :]
-    w = data.counts / data.n_obs
-    return float(w @ (logdet + np.einsum("kij,kji->k", A, T)))
+    observed = ~np.isnan(data.rows)
+    resid = np.where(observed, data.rows - mu, 0.0)
+    return row_objective(data, inv, resid, applied_inverses(inv, resid, batch_members(missing, data.index), observed))
+
+
+def row_objective(data: PatternData, inv, resid: np.ndarray, u: np.ndarray) -> float:
+    """sum_k w_k (log|Sigma_oo| + tr(A_k T_k)) with w_k = n_k / N and T_k the mean of the pattern's rows'
+    e_i e_i' (e_i = x_i - mu; ``resid``), so that the traces are (1/N) sum_i e_i' A_k e_i over the rows (``u``: the rows'
+    A_k e_i; with row weights every sum weighted)."""
+    traces = data.row_weights @ np.einsum("ij,ij->i", resid, u) / data.n_obs
+    return float(data.counts / data.n_obs @ inv.logdet + traces)
 
 
 def moment_hessian(data: PatternData, mu: np.ndarray, sigma: np.ndarray, rows: np.ndarray, cols: np.ndarray
@@ -113,8 +122,11 @@ class MissingDataLikelihood:
                  groups):
         self.model = model
         self.patterns = patterns
-        # the widest stack of the patterns' matrices, their K_k = V' A_k V, within the one limit before any is made
-        refuse_large_patterns(max((len(d.counts) for d in patterns), default=0), self._basis_width(model), model.p)
+        # the stacks of one p x p matrix per pattern that a fit makes whole (the case diagnostics' inverses, the robust
+        # routes' A_k, A T A and scatter) within the one limit before any is made; the search's own K_k = V' A_k V
+        # come a chunk at a time (PatternBases) and hold no such stack
+        refuse_large_patterns(max((len(d.counts) for d in patterns), default=0),
+                              max((d.rows.shape[1] for d in patterns), default=0), model.p)
         self.groups = groups  # GroupMoments holding the EM (saturated) moments, for reports and starts
         self.n_total = sum(d.n_obs for d in patterns)
         self.weights = [d.n_obs / self.n_total for d in patterns]
@@ -130,14 +142,6 @@ class MissingDataLikelihood:
         self._pattern_members = [batch_members(m, np.arange(len(d.counts))) for d, m in zip(patterns, self._missing)]
         self._sorted = [_pattern_runs(d.index, len(d.counts)) for d in patterns]
         self._at = None  # the last point's per-pattern pieces: (theta's bytes, {group: pieces})
-
-    @staticmethod
-    def _basis_width(model) -> int:
-        """The columns of the rank-two route's basis V (:meth:`_layout`): p + 2m for a StructuredModel, a joint model's
-        own ``basis_width``, else the model's p."""
-        if isinstance(model, StructuredModel):
-            return model.p + 2 * model.m
-        return max(model.p, getattr(model, "basis_width", 0))
 
     def _pieces(self, theta: np.ndarray, g: int):
         """Group g's pieces at theta: (matrices, the patterns' inverses (:class:`~cfa_tool.data.patterns.PatternInverses`,
@@ -219,7 +223,7 @@ class MissingDataLikelihood:
         if ("rank two", g) not in kept:
             mats, inv = state[0], state[1]
             V, a, basis, J = self._layout(mats, g)
-            kept[("rank two", g)] = V, a, inverse_bases(inv, V), basis, J
+            kept[("rank two", g)] = V, a, PatternBases(inv, V), basis, J
         return kept[("rank two", g)]
 
     def _rank_two(self, theta: np.ndarray, g: int) -> tuple[np.ndarray, np.ndarray] | None:
@@ -275,19 +279,21 @@ class MissingDataLikelihood:
         uc = np.concatenate([c.u for c in chunks]) if chunks else np.zeros(0, dtype=int)
         vc = np.concatenate([c.v for c in chunks]) if chunks else np.zeros(0, dtype=int)
         H = np.zeros((len(uc), len(model.u)))
-        for entries, Z in pattern_pair_sums(model, K, w):  # (e in a batch, r, r)
-            H[:, entries] = (Z[:, uc, vc] + Z[:, vc, uc]).T * (2.0 * model.c[entries])
-        flat = K.reshape(len(K), -1)
-        r = K.shape[1]
+        r = len(K.K0)
+        # sum_k w_k (K_k[u, u] K_k[v, v] + K_k[u, v]^2) of each candidate: the diagonal of H_cc, three gathers a pattern
+        own = np.zeros(len(uc))
+        for first, stop, part in K.chunks():  # the patterns' K_k a chunk at a time, every sum over them added up
+            for entries, Z in pattern_pair_sums(model, part, w[first:stop]):  # (e in a batch, r, r)
+                H[:, entries] += (Z[:, uc, vc] + Z[:, vc, uc]).T * (2.0 * model.c[entries])
+            flat = part.reshape(len(part), -1)
+            own += w[first:stop] @ (flat[:, uc * r + uc] * flat[:, vc * r + vc] + flat[:, uc * r + vc] ** 2)
         start = 0
         for cand in chunks:
             stop = start + len(cand.u)
             sc = mean_coefficients(cand, a)
             d = 2.0 * cand.c * Q[cand.u, cand.v] + sc * Vm[cand.w]
             block = H[start:stop] * cand.c[:, None] + 2.0 * np.outer(sc, s_model) * K_bar[np.ix_(cand.w, model.w)]
-            # sum_k w_k (K_k[u, u] K_k[v, v] + K_k[u, v]^2): the diagonal of H_cc, three gathers a pattern
-            own = w @ (flat[:, cand.u * r + cand.u] * flat[:, cand.v * r + cand.v] + flat[:, cand.u * r + cand.v] ** 2)
-            h = 2.0 * cand.c ** 2 * own + 2.0 * sc ** 2 * K_bar[cand.w, cand.w]
+            h = 2.0 * cand.c ** 2 * own[start:stop] + 2.0 * sc ** 2 * K_bar[cand.w, cand.w]
             yield d, block @ J, h
             start = stop
 
@@ -313,10 +319,8 @@ class MissingDataLikelihood:
         pieces = self._pieces(theta, g)
         if pieces is None:
             return np.inf
-        _, inv, w, _, resid, u = pieces  # pattern_objective's sum, its traces tr(A_k T_k) over the rows
-        data = self.patterns[g]
-        traces = data.row_weights @ np.einsum("ij,ij->i", resid, u) / data.n_obs
-        return float(w @ inv.logdet + traces) - self.saturated_value[g]
+        _, inv, _, _, resid, u = pieces  # pattern_objective's sum
+        return row_objective(self.patterns[g], inv, resid, u) - self.saturated_value[g]
 
     def value(self, theta: np.ndarray) -> float:
         return float(sum(w * self.group_discrepancy(theta, g) for g, w in enumerate(self.weights)))
@@ -580,10 +584,11 @@ def pattern_pair_sums(basis, K: np.ndarray, w: np.ndarray):
         yield entries, np.matmul(left, right)
 
 
-def pattern_trace_sum(basis, K: np.ndarray, w: np.ndarray) -> np.ndarray:
+def pattern_trace_sum(basis, K, w: np.ndarray) -> np.ndarray:
     """sum_k w_k tr(A_k D_e A_k D_f) over the entries of ``basis`` (:mod:`cfa_tool.model.rank_two`), K the patterns'
     V' A_k V: sum_k w_k 2 c_e c_f (K_k[u_e, u_f] K_k[v_e, v_f] + K_k[u_e, v_f] K_k[v_e, u_f]); pattern by pattern,
-    each's E x E gathers small enough to stay in the processor's caches, for the entries with a covariance part."""
+    each's E x E gathers small enough to stay in the processor's caches, for the entries with a covariance part (``K``:
+    any iterable of the K_k in the patterns' order, such as :class:`~cfa_tool.data.patterns.PatternBases`)."""
     E = len(basis.u)
     cov = np.flatnonzero(basis.c)
     u, v = basis.u[cov], basis.v[cov]
@@ -599,7 +604,7 @@ def pattern_trace_sum(basis, K: np.ndarray, w: np.ndarray) -> np.ndarray:
     return out
 
 
-def pattern_cross_sum(basis, K: np.ndarray, Q: np.ndarray, w: np.ndarray) -> np.ndarray:
+def pattern_cross_sum(basis, K, Q, w: np.ndarray) -> np.ndarray:
     """sum_k w_k tr(A_k D_e B_k D_f) over the entries of ``basis``, K and Q the patterns' V' A_k V and V' B_k V
     (:func:`cfa_tool.model.rank_two.cross_term`, pattern by pattern; Q may be any iterable of them in the patterns'
     order, made one at a time)."""
@@ -620,7 +625,7 @@ def pattern_cross_sum(basis, K: np.ndarray, Q: np.ndarray, w: np.ndarray) -> np.
     return out
 
 
-def pattern_mean_sum(basis, K: np.ndarray, VAd: np.ndarray, w: np.ndarray, s: np.ndarray) -> np.ndarray:
+def pattern_mean_sum(basis, K, VAd: np.ndarray, w: np.ndarray, s: np.ndarray) -> np.ndarray:
     """sum_k w_k d_k' A_k D_e A_k dmu_f over the entries of ``basis``, with (V' A d)_k the rows of ``VAd``:
     c_e s_f sum_k w_k ((V'Ad)_k[u_e] K_k[v_e, w_f] + (V'Ad)_k[v_e] K_k[u_e, w_f])."""
     E = len(basis.u)

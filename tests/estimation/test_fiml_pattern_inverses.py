@@ -16,8 +16,9 @@ import pandas as pd
 import pytest
 
 import cfa_tool
+import cfa_tool.data.patterns as patterns
 from cfa_tool.data.em import em_saturated
-from cfa_tool.data.patterns import (applied_inverses, batch_members, inverse_bases, missing_groups, pattern_data,
+from cfa_tool.data.patterns import (PatternBases, applied_inverses, batch_members, missing_groups, pattern_data,
                                     pattern_inverses, weighted_inverse_sum)
 from cfa_tool.estimation.fiml import MissingDataLikelihood
 from cfa_tool.data.moments import sample_moments
@@ -44,7 +45,10 @@ def _one_row_per_pattern(n: int = 150, seed: int = 5) -> pd.DataFrame:
     return pd.DataFrame(X, columns=[f"y{j + 1}" for j in range(12)])
 
 
-def test_the_patterns_inverses_are_each_patterns_own():
+@pytest.mark.parametrize("chunk", [None, 3], ids=["one-chunk", "chunks-of-three-patterns"])
+def test_the_patterns_inverses_are_each_patterns_own(monkeypatch, chunk):
+    if chunk is not None:  # V' A_k V made three patterns at a time
+        monkeypatch.setattr(patterns, "CHUNK_BYTES", 8 * 14 * 14 * chunk)
     rng = np.random.default_rng(24)
     p, r = 10, 14
     sigma = _spd(p, rng)
@@ -57,7 +61,9 @@ def test_the_patterns_inverses_are_each_patterns_own():
     x = np.where(observed, rng.normal(size=(40, p)), 0.0)
     members = batch_members(list(missing_groups(observed)), np.arange(40))
     u = applied_inverses(inv, x, members, observed)
-    K = inverse_bases(inv, V)
+    bases = PatternBases(inv, V)
+    K = list(bases)
+    assert len(K) == 40 and len(list(bases.chunks())) == (14 if chunk else 1)
     total = np.zeros((p, p))
     for k, o in enumerate(observed):
         A = np.zeros((p, p))
@@ -156,3 +162,17 @@ def test_a_fit_of_one_row_per_pattern_is_the_minimum_of_the_casewise_likelihood(
     found = [r.estimate for r in result.estimates if r.kind == "loading" and r.estimate != 1.0]
     assert len(found) == 9
     assert np.allclose(sorted(found), sorted(best.x[:9]), rtol=2e-4, atol=0)
+
+
+def test_a_fit_whose_patterns_bases_come_in_chunks_is_the_fit_made_at_once(monkeypatch):
+    frame = _one_row_per_pattern()
+    whole = cfa_tool.fit(TWELVE, frame).to_dict()
+    monkeypatch.setattr(patterns, "CHUNK_BYTES", 8 * 18 * 18 * 7)  # V' A_k V of 7 patterns at a time (r = 18)
+    chunked = cfa_tool.fit(TWELVE, frame).to_dict()
+    assert chunked["fit"]["chi_square"] == pytest.approx(whole["fit"]["chi_square"], rel=1e-10)
+    assert len(chunked["modification_indices"]) == len(whole["modification_indices"]) > 0
+    for ours, at_once in zip(chunked["modification_indices"], whole["modification_indices"]):
+        assert ours["index"] == pytest.approx(at_once["index"], rel=1e-8, abs=1e-10)
+    for ours, at_once in zip(chunked["estimates"], whole["estimates"]):
+        assert (ours["se"] is None) == (at_once["se"] is None)
+        assert ours["se"] is None or ours["se"] == pytest.approx(at_once["se"], rel=1e-8)
