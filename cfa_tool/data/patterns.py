@@ -175,18 +175,24 @@ def embedded_inverse(sigma: np.ndarray, observed: np.ndarray, missing: list | No
     same number of missing items are handled in one batch.  ``missing``: the batches
     (``list(missing_groups(observed))``), when the caller keeps them for many calls.
     """
-    P, p = observed.shape
+    logdet_sigma = _log_determinant(sigma)
+    if logdet_sigma is None:
+        return None
+    try:
+        return _schur_inverses(sigma, observed, logdet_sigma, missing)
+    except np.linalg.LinAlgError:  # numerically singular although its Cholesky factor exists
+        return None
+
+
+def _log_determinant(sigma: np.ndarray) -> float | None:
+    """log|Sigma| from its Cholesky factor, None if Sigma is not positive definite."""
     try:
         chol = np.linalg.cholesky(sigma)
     except np.linalg.LinAlgError:
         return None
     if np.any(np.diag(chol) <= 0):
         return None
-    logdet_sigma = 2.0 * float(np.sum(np.log(np.diag(chol))))
-    try:
-        return _schur_inverses(sigma, observed, logdet_sigma, missing)
-    except np.linalg.LinAlgError:  # numerically singular although its Cholesky factor exists
-        return None
+    return 2.0 * float(np.sum(np.log(np.diag(chol))))
 
 
 def _schur_inverses(sigma: np.ndarray, observed: np.ndarray, logdet_sigma: float, missing: list | None = None
@@ -226,14 +232,10 @@ class PatternInverses:
 def pattern_inverses(sigma: np.ndarray, observed: np.ndarray, missing: list | None = None) -> PatternInverses | None:
     """The patterns' inverses of :class:`PatternInverses` (None if Sigma or some Sigma_oo is not positive definite);
     ``missing`` as :func:`embedded_inverse` takes it."""
-    P, p = observed.shape
-    try:
-        chol = np.linalg.cholesky(sigma)
-    except np.linalg.LinAlgError:
+    logdet_sigma = _log_determinant(sigma)
+    if logdet_sigma is None:
         return None
-    if np.any(np.diag(chol) <= 0):
-        return None
-    logdet = np.full(P, 2.0 * float(np.sum(np.log(np.diag(chol)))))
+    logdet = np.full(len(observed), logdet_sigma)
     try:
         precision = np.linalg.inv(sigma)
         precision = 0.5 * (precision + precision.T)
