@@ -10,6 +10,7 @@ shared machine (wall-clock times here vary by up to 2x between runs).
     python bench/instructions.py --call csv --fits 30       # case 1 read from its CSV file (every column) and fitted
     python bench/instructions.py --call spss --fits 30      # the rider survey read from an SPSS file and fitted
     python bench/instructions.py --call design --items 30 --fits 10 --base 1   # 1,000 rows in 50 clusters, cluster=
+    python bench/instructions.py --call gaps --items 30 --fits 2 --base 1     # 10% of answers missing at random (FIML)
 
 Runs the fit 10 (``--base``) and 10 + ``--fits`` (default 1000) times under ``valgrind --tool=callgrind`` in two
 processes and reports the difference divided by ``--fits``, so that start-up (imports, the first fit)
@@ -78,14 +79,16 @@ def count(fits: int, script: Path, data: Path, model: Path, call: str) -> subpro
 
 def main() -> None:
     parser = argparse.ArgumentParser()
-    parser.add_argument("--call", choices=["lean", "default", "bootstrap", "grouped", "csv", "spss", "design"], default="lean",
+    parser.add_argument("--call", choices=["lean", "default", "bootstrap", "grouped", "csv", "spss", "design", "gaps"], default="lean",
                         help="lean: no modification indices or diagnostics; default: the full report and to_dict(); "
                              "bootstrap: a bootstrap of 10 and of 10 + --fits resamples (percentile intervals, one process); "
                              "grouped: the default call with group='school' (every column); csv: the default call on "
                              "the CSV file (every column), read at each fit; spss: the rider survey's three-factor "
                              "model on an SPSS file of its answers (value labels, a 'Refused' code), read at each fit; "
                              "design: the default call with cluster='cluster' on a simulated model of --items items "
-                             "(1,000 rows in 50 clusters, bench/same_output.py's design case)")
+                             "(1,000 rows in 50 clusters, bench/same_output.py's design case); gaps: the default call "
+                             "on a simulated model of --items items with 10%% of the answers missing at random (1,000 "
+                             "rows, nearly every row its own pattern: bench/fiml_patterns.py's case)")
     parser.add_argument("--items", type=int, default=9, help="9: Holzinger-Swineford (case 1); 30, 60...: run.py's simulated models")
     parser.add_argument("--fits", type=int, default=1000)
     parser.add_argument("--base", type=int, default=10,
@@ -114,6 +117,10 @@ def main() -> None:
             from run import simulated
 
             text, _, frame = simulated(args.items, args.items // 10, 1000, args.items)
+            if args.call == "gaps":  # bench/fiml_patterns.py's case
+                from fiml_patterns import gapped
+
+                text, frame = gapped(args.items, 1000, 0.10)
             if args.call == "design":  # the clusters of bench/same_output.py's design case
                 import numpy as np
 

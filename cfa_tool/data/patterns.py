@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 
@@ -17,10 +18,26 @@ class PatternData:
     observed: np.ndarray  # (P, p) bool
     counts: np.ndarray  # (P,) rows in each pattern (the sum of their weights)
     means: np.ndarray  # (P, p) mean of the observed values
-    scatter: np.ndarray  # (P, p, p) covariance of the observed values about their own mean, divisor count
     index: np.ndarray  # pattern of each row
     rows: np.ndarray  # the rows themselves (NaN where missing)
     weights: np.ndarray | None = None  # weight of each row (None: every row weighs one)
+
+    @cached_property
+    def scatter(self) -> np.ndarray:
+        """(P, p, p) covariance of each pattern's observed values about their own mean, divisor count: a stack of one
+        p x p matrix per pattern, made on first use (the routes that take the patterns' matrices whole: the robust
+        routes' information in the moments; the likelihood itself sums over the rows), within the one limit of
+        :mod:`cfa_tool.numerics.sizes` (:func:`refuse_large_patterns`)."""
+        P, p = self.observed.shape
+        refuse_large_patterns(P, p, p)
+        mask = ~np.isnan(self.rows)
+        w = self.row_weights
+        order = np.argsort(self.index, kind="stable")
+        starts = np.searchsorted(self.index[order], np.arange(P))
+        centred = np.where(mask, np.where(mask, self.rows, 0.0) - self.means[self.index], 0.0)[order]
+        scatter = _scatter(centred, w[order], starts)
+        scatter /= self.counts[:, None, None]
+        return scatter
 
     @property
     def n_obs(self) -> int:
@@ -71,7 +88,6 @@ def pattern_data(rows: np.ndarray, weights: np.ndarray | None = None) -> Pattern
     mask = ~np.isnan(rows)
     patterns, index, counts = group_patterns(mask)
     P, p = patterns.shape
-    refuse_large_patterns(P, p, p)
     filled = np.where(mask, rows, 0.0)
     if weights is not None:
         counts = np.bincount(index, weights=weights, minlength=P)
@@ -80,10 +96,7 @@ def pattern_data(rows: np.ndarray, weights: np.ndarray | None = None) -> Pattern
     order = np.argsort(index, kind="stable")
     starts = np.searchsorted(index[order], np.arange(P))
     means = np.add.reduceat((filled * w[:, None])[order], starts, axis=0) / counts[:, None]
-    centred = np.where(mask, filled - means[index], 0.0)[order]
-    scatter = _scatter(centred, w[order], starts)
-    scatter /= counts[:, None, None]
-    return PatternData(patterns, counts, means, scatter, index, rows, weights)
+    return PatternData(patterns, counts, means, index, rows, weights)
 
 
 #: the most bytes of the rows' outer products :func:`_scatter` makes at once
@@ -110,8 +123,18 @@ def _scatter(centred: np.ndarray, w: np.ndarray, starts: np.ndarray) -> np.ndarr
             continue
         last = max(first + 1, int(np.searchsorted(stops, r0 + limit, side="right")))
         rows = centred[r0:stops[last - 1]]
-        outer = (rows * w[r0:stops[last - 1], None])[:, :, None] * rows[:, None, :]
-        scatter[first:last] = np.add.reduceat(outer, starts[first:last] - r0, axis=0)
+        weighted = rows * w[r0:stops[last - 1], None]
+        single = stops[first:last] - starts[first:last] == 1
+        if single.all():  # a pattern a row (gaps at random): each its own outer product, nothing to add
+            np.multiply(weighted[:, :, None], rows[:, None, :], out=scatter[first:last])
+        else:  # the patterns of one row written, those of several added up (the same sums as over the whole run)
+            at = starts[first:last][single] - r0
+            scatter[first:last][single] = weighted[at][:, :, None] * rows[at][:, None, :]
+            several = np.flatnonzero(~single) + first
+            taken = np.concatenate([np.arange(starts[k], stops[k]) for k in several]) - r0
+            outer = weighted[taken][:, :, None] * rows[taken][:, None, :]
+            sizes = stops[several] - starts[several]
+            scatter[several] = np.add.reduceat(outer, np.concatenate([[0], np.cumsum(sizes)[:-1]]), axis=0)
         first = last
     return scatter
 
@@ -119,10 +142,13 @@ def _scatter(centred: np.ndarray, w: np.ndarray, starts: np.ndarray) -> np.ndarr
 def refuse_large_patterns(patterns: int, side: int, items: int) -> None:
     """Refuse, with a one-line EstimationError naming the size and what to do, full-information ML whose stacks of
     one side x side matrix per pattern of missing answers would exceed the one limit of a matrix of
-    :mod:`cfa_tool.numerics.sizes` (the patterns' scatter here; the likelihood's inverses, their products and its
-    rank-two gathers, each such a stack and about seven at once, ``side`` then the widest: estimation.fiml), before
-    any is made: at 200 items each stack takes 0.3 MB a pattern, 0.6 GB for 2,000 rows with gaps everywhere, which no
-    other limit held.  ``items``: the items (and missing-data helpers) of the rows."""
+    :mod:`cfa_tool.numerics.sizes`, before any is made.  What a fit holds (speed-s24, bench/fiml_patterns.py): its
+    search keeps every pattern's inverse in the low-rank form of :class:`PatternInverses` and makes V' A_k V a chunk
+    of at most :data:`CHUNK_BYTES` at a time, so the stacks a fit makes whole are the case diagnostics' inverses
+    (the whole default fit's traced peak at 100 items and 1,500 rows, one pattern a row, was 293 MB: 2.4 times its
+    stack of 120 MB) and, on the robust routes, the scatter, A_k, A_k T_k A_k and T_k (about five at once).  Before,
+    every evaluation held several such stacks and the search's V' A_k V, wider still: 7-8.5 times a stack, 1.13 GB at
+    100 items.  ``side``: the columns of the rows, ``items``: the items (and missing-data helpers) of the rows."""
     from cfa_tool.errors import EstimationError
     from cfa_tool.numerics import sizes
     from cfa_tool.options import Option
@@ -131,7 +157,8 @@ def refuse_large_patterns(patterns: int, side: int, items: int) -> None:
         return
     raise EstimationError(
         f"full-information ML holds one matrix of the {items} analysed columns by themselves for each pattern of "
-        f"missing answers (which columns a row answered), several such stacks at once; the {patterns:,} patterns of "
+        f"missing answers (which columns a row answered) in its case diagnostics and robust routes, up to five such "
+        f"stacks at once; the {patterns:,} patterns of "
         f"these rows make each stack {patterns:,} matrices of {side} x {side}, "
         f"{sizes.stack_too_large_words(patterns, side)}; "
         f"fit the items in smaller sets, or keep only the complete rows ({Option.INCOMPLETE_ROWS.given('listwise')}) "
@@ -148,18 +175,24 @@ def embedded_inverse(sigma: np.ndarray, observed: np.ndarray, missing: list | No
     same number of missing items are handled in one batch.  ``missing``: the batches
     (``list(missing_groups(observed))``), when the caller keeps them for many calls.
     """
-    P, p = observed.shape
+    logdet_sigma = _log_determinant(sigma)
+    if logdet_sigma is None:
+        return None
+    try:
+        return _schur_inverses(sigma, observed, logdet_sigma, missing)
+    except np.linalg.LinAlgError:  # numerically singular although its Cholesky factor exists
+        return None
+
+
+def _log_determinant(sigma: np.ndarray) -> float | None:
+    """log|Sigma| from its Cholesky factor, None if Sigma is not positive definite."""
     try:
         chol = np.linalg.cholesky(sigma)
     except np.linalg.LinAlgError:
         return None
     if np.any(np.diag(chol) <= 0):
         return None
-    logdet_sigma = 2.0 * float(np.sum(np.log(np.diag(chol))))
-    try:
-        return _schur_inverses(sigma, observed, logdet_sigma, missing)
-    except np.linalg.LinAlgError:  # numerically singular although its Cholesky factor exists
-        return None
+    return 2.0 * float(np.sum(np.log(np.diag(chol))))
 
 
 def _schur_inverses(sigma: np.ndarray, observed: np.ndarray, logdet_sigma: float, missing: list | None = None
@@ -180,3 +213,115 @@ def _schur_inverses(sigma: np.ndarray, observed: np.ndarray, logdet_sigma: float
         A[which] -= np.swapaxes(side, 1, 2) @ np.linalg.solve(block, side)
     outer = observed[:, :, None] & observed[:, None, :]
     return np.where(outer, A, 0.0), logdet
+
+
+@dataclass(frozen=True)
+class PatternInverses:
+    """Every pattern's Sigma_oo^-1 in the low-rank form of the Schur complement, never as a stack of p x p matrices:
+    with L = Sigma^-1 and C_k = (L_mm)^-1 for the items m pattern k misses,
+        Sigma_oo^-1 = L_oo - L_om C_k L_mo,   log|Sigma_oo| = log|Sigma| + log|L_mm|
+    (the partitioned inverse; Little & Rubin 2002, ch. 11, as :func:`embedded_inverse`), so that a product with a
+    pattern's inverse costs p^2 once for all patterns and p m a pattern, and V' A_k V is V' L V less a rank-m term.
+    ``batches``: (patterns, their missing columns (k, m), C_k (k, m, m)) for each number m > 0 of missing items."""
+
+    precision: np.ndarray  # (p, p) L = Sigma^-1, symmetrised
+    logdet: np.ndarray  # (P,) log|Sigma_oo|
+    batches: tuple  # ((patterns, missing columns, C), ...)
+
+
+def pattern_inverses(sigma: np.ndarray, observed: np.ndarray, missing: list | None = None) -> PatternInverses | None:
+    """The patterns' inverses of :class:`PatternInverses` (None if Sigma or some Sigma_oo is not positive definite);
+    ``missing`` as :func:`embedded_inverse` takes it."""
+    logdet_sigma = _log_determinant(sigma)
+    if logdet_sigma is None:
+        return None
+    logdet = np.full(len(observed), logdet_sigma)
+    try:
+        precision = np.linalg.inv(sigma)
+        precision = 0.5 * (precision + precision.T)
+        batches = []
+        for which, miss in missing_groups(observed) if missing is None else missing:
+            block = precision[miss[:, :, None], miss[:, None, :]]  # (k, m, m) = L_mm
+            block_chol = np.linalg.cholesky(block)
+            logdet[which] += 2.0 * np.sum(np.log(np.diagonal(block_chol, axis1=1, axis2=2)), axis=1)
+            batches.append((which, miss, np.linalg.inv(block)))
+    except np.linalg.LinAlgError:  # numerically singular although its Cholesky factor exists
+        return None
+    return PatternInverses(precision, logdet, tuple(batches))
+
+
+def batch_members(inverses_batches: list, pattern_of: np.ndarray) -> list[tuple[np.ndarray, np.ndarray]]:
+    """For each batch of :func:`missing_groups` (``inverses_batches``: its (patterns, missing columns) pairs), the rows
+    whose pattern (``pattern_of``) it holds and each one's place in the batch: fixed by the data, found once."""
+    out = []
+    for which, *_ in inverses_batches:
+        rows = np.flatnonzero(np.isin(pattern_of, which))
+        out.append((rows, np.searchsorted(which, pattern_of[rows])))
+    return out
+
+
+def applied_inverses(inverses: PatternInverses, x: np.ndarray, members: list, observed: np.ndarray) -> np.ndarray:
+    """A_k x for each row x of ``x`` (zeros where its pattern k misses; ``observed``: each row's answered items),
+    A_k = Sigma_oo^-1 embedded in p x p (:class:`PatternInverses`; ``members``: :func:`batch_members` of the rows):
+    x L, less (L_.m C_k (L x)_m) for rows with gaps, np^2 + n m p where the embedded stack took n m p^2 to make."""
+    L = inverses.precision
+    v = x @ L
+    u = v.copy()
+    for (_, miss, C), (rows, at) in zip(inverses.batches, members):
+        if not len(rows):
+            continue
+        cols = miss[at]  # (n_b, m) each row's missing columns
+        z = (C[at] @ v[rows[:, None], cols][:, :, None])[:, :, 0]
+        u[rows] -= np.einsum("rk,rkp->rp", z, L[cols])
+    return np.where(observed, u, 0.0)
+
+
+def weighted_inverse_sum(inverses: PatternInverses, observed: np.ndarray, w: np.ndarray) -> np.ndarray:
+    """sum_k w_k A_k (A_k = Sigma_oo^-1 embedded, :class:`PatternInverses`) from L restricted to each pattern's
+    answered pairs, less each pattern's side' C_k side with side = L_m. on its answered columns: one matrix product
+    over the patterns' (pattern, missing item) pairs, no stack of p x p matrices."""
+    L = inverses.precision
+    p = L.shape[0]
+    total = L * ((observed * w[:, None]).T @ observed.astype(float))
+    for which, miss, C in inverses.batches:
+        side = L[miss] * observed[which][:, None, :]  # (k, m, p) L_m. on the answered columns
+        total -= (side * w[which, None, None]).reshape(-1, p).T @ (C @ side).reshape(-1, p)
+    return total
+
+
+#: the most bytes of one chunk of the patterns' V' A_k V (:class:`PatternBases`)
+CHUNK_BYTES = 1 << 25
+
+
+class PatternBases:
+    """V' A_k V of every pattern (A_k = Sigma_oo^-1 embedded, :class:`PatternInverses`), made a chunk of patterns at
+    a time and never all at once: V' L V - R_k' C_k R_k with R_k = (L V)_m, p^2 r once and m r (m + r) a pattern,
+    where V' A_k V from the embedded A_k took p r (p + r) a pattern (the rows and columns A_k leaves at zero come out
+    zero to rounding).  A chunk holds at most :data:`CHUNK_BYTES` (32 MiB): the whole stack was 173 MB at 100 items and
+    1,500 rows with gaps everywhere, and held with several others of its size.  Iterating gives the patterns' matrices
+    one by one in the patterns' order; :meth:`chunks` gives (first pattern, stop, their stack)."""
+
+    def __init__(self, inverses: PatternInverses, V: np.ndarray):
+        self.inverses = inverses
+        self.LV = inverses.precision @ V
+        K0 = V.T @ self.LV
+        self.K0 = 0.5 * (K0 + K0.T)
+        self.patterns = len(inverses.logdet)
+        r = V.shape[1]
+        self.step = max(1, CHUNK_BYTES // (8 * r * r))
+
+    def chunks(self):
+        for start in range(0, self.patterns, self.step):
+            stop = min(self.patterns, start + self.step)
+            K = np.broadcast_to(self.K0, (stop - start,) + self.K0.shape).copy()
+            for which, miss, C in self.inverses.batches:
+                lo, hi = np.searchsorted(which, (start, stop))
+                if lo == hi:
+                    continue
+                R = self.LV[miss[lo:hi]]  # (k, m, r)
+                K[which[lo:hi] - start] -= np.swapaxes(R, 1, 2) @ (C[lo:hi] @ R)
+            yield start, stop, K
+
+    def __iter__(self):
+        for *_, K in self.chunks():
+            yield from K

@@ -17,8 +17,14 @@ the observed information).
 For a model whose derivatives are rank-two (a StructuredModel: D_e = c_e (u v' + v u') for columns u, v of
 V = [I, C', G], :mod:`cfa_tool.model.rank_two`) every trace is a product of entries of the patterns'
 K_k = V' A_k V (and Q_k = V' A_k T_k A_k V for the observed Hessian), so the search's gradient and information,
-the observed Hessian and the modification indices need p_o^2 (p + 2m) a pattern and gathers, never a p x p
-derivative or the patterns' (p*p, p*p) weight matrix; the joint model of missing-data helpers and its baseline
+the observed Hessian and the modification indices need gathers, never a p x p derivative or the patterns' (p*p, p*p)
+weight matrix.  No pattern's p x p matrix is made on this route either (speed-s24): A_k is kept in the low-rank form of
+the Schur complement, L - L_.m C_k L_m. with L = Sigma^-1 and C_k = (L_mm)^-1 (:class:`~cfa_tool.data.patterns.
+PatternInverses`), so that K_k = V' L V - R_k' C_k R_k (R_k = (L V)_m: m r (m + r) a pattern, where V' A_k V took
+p r (p + r)), and the sums in T_k are sums over the rows: with u_i = A_k (x_i - mu),
+    sum_k w_k tr(A_k T_k) = (1/N) sum_i e_i' u_i,   sum_k w_k A_k T_k A_k = (1/N) sum_i u_i u_i',
+    Q_k = V' A_k T_k A_k V = (1/n_k) sum_{i in k} (V' u_i)(V' u_i)'
+(n p^2 for all rows, where A_k T_k A_k took 2 p^3 a pattern); the joint model of missing-data helpers and its baseline
 give their own basis (``rank_two_layout``, :mod:`cfa_tool.estimation.auxiliary`) and take the same gathers.  The
 information in the moments themselves (the robust routes and the robust score tests) is gathered from one product
 over the patterns' distinct elements (:func:`moment_second_derivatives`).  The general route, with whole (q, p, p)
@@ -34,20 +40,31 @@ from cfa_tool.estimation.objective import Evaluation, ScoreRoute
 from cfa_tool.model.rank_two import (basis_vectors, gradient_and_information, mean_coefficients, mean_second_derivatives,
                                      path_second_derivatives, second_derivative_contraction)
 from cfa_tool.data.em import weighted_available_moments
-from cfa_tool.data.patterns import PatternData, embedded_inverse, missing_groups, refuse_large_patterns
+from cfa_tool.data.patterns import (PatternBases, PatternData, applied_inverses, batch_members, embedded_inverse,
+                                    missing_groups, pattern_inverses, refuse_large_patterns,
+                                    weighted_inverse_sum)
 from cfa_tool.model.implied import StructuredModel
 
 
 def pattern_objective(data: PatternData, mu: np.ndarray, sigma: np.ndarray) -> float:
-    """f(mu, Sigma) summed over patterns, weighted by n_k / N (inf if some Sigma_oo is not positive definite)."""
-    inv = embedded_inverse(sigma, data.observed)
+    """f(mu, Sigma) summed over patterns, weighted by n_k / N (inf if some Sigma_oo is not positive definite): the
+    patterns' log|Sigma_oo| and the traces tr(A_k T_k) summed over the rows (:func:`row_objective`), no pattern's p x p
+    matrix made."""
+    missing = list(missing_groups(data.observed))
+    inv = pattern_inverses(sigma, data.observed, missing)
     if inv is None:
         return np.inf
-    A, logdet = inv
-    dev = np.where(data.observed, data.means - mu, 0.0)
-    T = data.scatter + dev[:, :, None] * dev[:, None, :]
-    w = data.counts / data.n_obs
-    return float(w @ (logdet + np.einsum("kij,kji->k", A, T)))
+    observed = ~np.isnan(data.rows)
+    resid = np.where(observed, data.rows - mu, 0.0)
+    return row_objective(data, inv, resid, applied_inverses(inv, resid, batch_members(missing, data.index), observed))
+
+
+def row_objective(data: PatternData, inv, resid: np.ndarray, u: np.ndarray) -> float:
+    """sum_k w_k (log|Sigma_oo| + tr(A_k T_k)) with w_k = n_k / N and T_k the mean of the pattern's rows'
+    e_i e_i' (e_i = x_i - mu; ``resid``), so that the traces are (1/N) sum_i e_i' A_k e_i over the rows (``u``: the rows'
+    A_k e_i; with row weights every sum weighted)."""
+    traces = data.row_weights @ np.einsum("ij,ij->i", resid, u) / data.n_obs
+    return float(data.counts / data.n_obs @ inv.logdet + traces)
 
 
 def moment_hessian(data: PatternData, mu: np.ndarray, sigma: np.ndarray, rows: np.ndarray, cols: np.ndarray
@@ -105,8 +122,11 @@ class MissingDataLikelihood:
                  groups):
         self.model = model
         self.patterns = patterns
-        # the widest stack of the patterns' matrices, their K_k = V' A_k V, within the one limit before any is made
-        refuse_large_patterns(max((len(d.counts) for d in patterns), default=0), self._basis_width(model), model.p)
+        # the stacks of one p x p matrix per pattern that a fit makes whole (the case diagnostics' inverses, the robust
+        # routes' A_k, A T A and scatter) within the one limit before any is made; the search's own K_k = V' A_k V
+        # come a chunk at a time (PatternBases) and hold no such stack
+        refuse_large_patterns(max((len(d.counts) for d in patterns), default=0),
+                              max((d.rows.shape[1] for d in patterns), default=0), model.p)
         self.groups = groups  # GroupMoments holding the EM (saturated) moments, for reports and starts
         self.n_total = sum(d.n_obs for d in patterns)
         self.weights = [d.n_obs / self.n_total for d in patterns]
@@ -117,20 +137,18 @@ class MissingDataLikelihood:
         self._row_blocks = [_row_blocks(d.rows, d.row_weights) for d in patterns]  # fixed by the data: computed once
         # each group's missing items by pattern, batched by their number (fixed by the data), for embedded_inverse
         self._missing = [list(missing_groups(d.observed)) for d in patterns]
+        # each row's batch of patterns and place in it, the rows sorted by pattern (for the patterns' sums over rows)
+        self._members = [batch_members(m, d.index) for d, m in zip(patterns, self._missing)]
+        self._pattern_members = [batch_members(m, np.arange(len(d.counts))) for d, m in zip(patterns, self._missing)]
+        self._sorted = [_pattern_runs(d.index, len(d.counts)) for d in patterns]
         self._at = None  # the last point's per-pattern pieces: (theta's bytes, {group: pieces})
 
-    @staticmethod
-    def _basis_width(model) -> int:
-        """The columns of the rank-two route's basis V (:meth:`_layout`): p + 2m for a StructuredModel, a joint model's
-        own ``basis_width``, else the model's p."""
-        if isinstance(model, StructuredModel):
-            return model.p + 2 * model.m
-        return max(model.p, getattr(model, "basis_width", 0))
-
     def _pieces(self, theta: np.ndarray, g: int):
-        """Group g's per-pattern pieces at theta: (matrices, A, log|Sigma_oo|, w, d, T), None if some Sigma_oo is
-        not positive definite.  The search asks for the value, the gradient and information, and the Hessian at the
-        same point one after the other; the pieces of the last point are kept, so they are computed once."""
+        """Group g's pieces at theta: (matrices, the patterns' inverses (:class:`~cfa_tool.data.patterns.PatternInverses`,
+        no stack of p x p matrices), w, d, the rows' residuals e_i = x_i - mu and u_i = A_k e_i (zeros where a row has
+        gaps)), None if some Sigma_oo is not positive definite.  The search asks for the value, the gradient and
+        information, and the Hessian at the same point one after the other; the pieces of the last point are kept, so
+        they are computed once."""
         key = theta.tobytes()
         if self._at is None or self._at[0] != key:
             self._at = (key, {})
@@ -138,15 +156,32 @@ class MissingDataLikelihood:
         if g not in kept:
             data = self.patterns[g]
             mats = self.model.matrices(theta, g)
-            inv = embedded_inverse(mats.implied_covariance(), data.observed, self._missing[g])
+            inv = pattern_inverses(mats.implied_covariance(), data.observed, self._missing[g])
             if inv is None:
                 kept[g] = None
             else:
-                A, logdet = inv
-                dev = np.where(data.observed, data.means - mats.implied_mean(), 0.0)
-                T = data.scatter + dev[:, :, None] * dev[:, None, :]
-                kept[g] = (mats, A, logdet, data.counts / data.n_obs, dev, T)
+                mu = mats.implied_mean()
+                observed = self._row_blocks[g][0]
+                dev = np.where(data.observed, data.means - mu, 0.0)
+                resid = np.where(observed, data.rows - mu, 0.0)
+                u = applied_inverses(inv, resid, self._members[g], observed)
+                kept[g] = (mats, inv, data.counts / data.n_obs, dev, resid, u)
         return kept[g]
+
+    def _stacks(self, theta: np.ndarray, g: int):
+        """(A, A T A) of group g at theta as stacks of one p x p matrix per pattern (A_k = Sigma_oo^-1 embedded,
+        T_k = S_k + d_k d_k'), for the routes that take them whole: the general route of models whose derivatives are
+        not rank-two gathers and the information in the moments (:meth:`moment_hessian`); kept with the point's
+        pieces."""
+        pieces = self._pieces(theta, g)
+        kept = self._at[1]
+        if ("stacks", g) not in kept:
+            data = self.patterns[g]
+            A, _ = embedded_inverse(pieces[0].implied_covariance(), data.observed, self._missing[g])
+            dev = pieces[3]
+            T = data.scatter + dev[:, :, None] * dev[:, None, :]
+            kept[("stacks", g)] = A, A @ T @ A
+        return kept[("stacks", g)]
 
     def matrices(self, theta: np.ndarray, g: int):
         """Group g's model matrices at theta: those of the point's pieces when kept (as
@@ -186,9 +221,9 @@ class MissingDataLikelihood:
             return None
         kept = self._at[1]
         if ("rank two", g) not in kept:
-            mats, A = state[0], state[1]
+            mats, inv = state[0], state[1]
             V, a, basis, J = self._layout(mats, g)
-            kept[("rank two", g)] = V, a, pattern_bases(A, V), basis, J
+            kept[("rank two", g)] = V, a, PatternBases(inv, V), basis, J
         return kept[("rank two", g)]
 
     def _rank_two(self, theta: np.ndarray, g: int) -> tuple[np.ndarray, np.ndarray] | None:
@@ -200,7 +235,7 @@ class MissingDataLikelihood:
         pieces = self._rank_two_pieces(theta, g)
         if pieces is None:
             return None
-        _, A, w, _, M, _, mean_gradient = self._pattern_state(theta, g)
+        _, _, w, M, _, mean_gradient, _ = self._pattern_state(theta, g)
         V, a, K, basis, J = pieces
         g_e, _, K_bar, _ = gradient_and_information(basis, V, a, self._mean_weight(theta, g), M, mean_gradient,
                                                     with_information=False)
@@ -234,7 +269,7 @@ class MissingDataLikelihood:
         pieces = self._rank_two_pieces(theta, g)
         if pieces is None:
             return
-        _, A, w, _, M, _, mean_gradient = self._pattern_state(theta, g)
+        _, _, w, M, _, mean_gradient, _ = self._pattern_state(theta, g)
         V, a, K, model, J = pieces
         Q = V.T @ M @ V
         Vm = V.T @ mean_gradient
@@ -244,39 +279,37 @@ class MissingDataLikelihood:
         uc = np.concatenate([c.u for c in chunks]) if chunks else np.zeros(0, dtype=int)
         vc = np.concatenate([c.v for c in chunks]) if chunks else np.zeros(0, dtype=int)
         H = np.zeros((len(uc), len(model.u)))
-        for entries, Z in pattern_pair_sums(model, K, w):  # (e in a batch, r, r)
-            H[:, entries] = (Z[:, uc, vc] + Z[:, vc, uc]).T * (2.0 * model.c[entries])
-        flat = K.reshape(len(K), -1)
-        r = K.shape[1]
+        r = len(K.K0)
+        # sum_k w_k (K_k[u, u] K_k[v, v] + K_k[u, v]^2) of each candidate: the diagonal of H_cc, three gathers a pattern
+        own = np.zeros(len(uc))
+        for first, stop, part in K.chunks():  # the patterns' K_k a chunk at a time, every sum over them added up
+            for entries, Z in pattern_pair_sums(model, part, w[first:stop]):  # (e in a batch, r, r)
+                H[:, entries] += (Z[:, uc, vc] + Z[:, vc, uc]).T * (2.0 * model.c[entries])
+            flat = part.reshape(len(part), -1)
+            own += w[first:stop] @ (flat[:, uc * r + uc] * flat[:, vc * r + vc] + flat[:, uc * r + vc] ** 2)
         start = 0
         for cand in chunks:
             stop = start + len(cand.u)
             sc = mean_coefficients(cand, a)
             d = 2.0 * cand.c * Q[cand.u, cand.v] + sc * Vm[cand.w]
             block = H[start:stop] * cand.c[:, None] + 2.0 * np.outer(sc, s_model) * K_bar[np.ix_(cand.w, model.w)]
-            # sum_k w_k (K_k[u, u] K_k[v, v] + K_k[u, v]^2): the diagonal of H_cc, three gathers a pattern
-            own = w @ (flat[:, cand.u * r + cand.u] * flat[:, cand.v * r + cand.v] + flat[:, cand.u * r + cand.v] ** 2)
-            h = 2.0 * cand.c ** 2 * own + 2.0 * sc ** 2 * K_bar[cand.w, cand.w]
+            h = 2.0 * cand.c ** 2 * own[start:stop] + 2.0 * sc ** 2 * K_bar[cand.w, cand.w]
             yield d, block @ J, h
             start = stop
 
     def _mean_weight(self, theta: np.ndarray, g: int) -> np.ndarray:
         """sum_k w_k A_k at theta (kept with the point's pieces)."""
-        kept = self._at[1]
-        if ("mean weight", g) not in kept:
-            _, A, w, *_ = self._pattern_state(theta, g)
-            kept[("mean weight", g)] = np.tensordot(w, A, axes=1)
-        return kept[("mean weight", g)]
+        return self._pattern_state(theta, g)[6]
 
     def _rank_two_hessian(self, theta: np.ndarray, g: int, state) -> np.ndarray:
         """:func:`first_order_hessian`'s terms in theta from rank-two gathers: with K_k = V' A_k V, Q_k = V' (A T A)_k V
         and (V' A d)_k per pattern, each trace a sum over the patterns of products of their entries (the formulas of
         :mod:`cfa_tool.model.rank_two`, pattern by pattern)."""
-        _, A, w, ATA, _, Ad, _ = state
+        _, _, w, _, Ad, _, _ = state
         V, a, K, basis, J = self._rank_two_pieces(theta, g)
         s = mean_coefficients(basis, a)
         same = pattern_trace_sum(basis, K, w)
-        mixed = pattern_cross_sum(basis, K, pattern_bases(ATA, V), w)
+        mixed = pattern_cross_sum(basis, K, self._row_bases(theta, g, V), w)
         cross = pattern_mean_sum(basis, K, Ad @ V, w, s)
         K_bar = V.T @ self._mean_weight(theta, g) @ V
         H = (-same + (mixed + mixed.T) + 2.0 * (cross + cross.T) + 2.0 * np.outer(s, s) * K_bar.ravel()[basis.ww])
@@ -286,33 +319,51 @@ class MissingDataLikelihood:
         pieces = self._pieces(theta, g)
         if pieces is None:
             return np.inf
-        _, A, logdet, w, _, T = pieces  # pattern_objective's sum
-        return float(w @ (logdet + np.einsum("kij,kji->k", A, T))) - self.saturated_value[g]
+        _, inv, _, _, resid, u = pieces  # pattern_objective's sum
+        return row_objective(self.patterns[g], inv, resid, u) - self.saturated_value[g]
 
     def value(self, theta: np.ndarray) -> float:
         return float(sum(w * self.group_discrepancy(theta, g) for g, w in enumerate(self.weights)))
 
     def _pattern_state(self, theta: np.ndarray, g: int):
-        """Group g's per-pattern pieces at theta (None if some Sigma_oo is not positive definite):
-        (matrices, A, w, A T A, M, A d, m) in the notation of the module docstring."""
+        """Group g's pieces at theta (None if some Sigma_oo is not positive definite): (matrices, the patterns'
+        inverses, w, M, A d, m, sum_k w_k A_k) in the notation of the module docstring, with
+            sum_k w_k A_k T_k A_k = (1/N) sum_i w_i u_i u_i'   (u_i = A_k (x_i - mu), T_k the rows' mean of
+        (x_i - mu)(x_i - mu)' over pattern k), so that no pattern's p x p matrix is made."""
         pieces = self._pieces(theta, g)
         if pieces is None:
             return None
         kept = self._at[1]
         if ("state", g) not in kept:
-            mats, A, _, w, dev, T = pieces
-            ATA = A @ T @ A
-            M = np.tensordot(w, A - ATA, axes=1)
-            Ad = (A @ dev[:, :, None])[:, :, 0]
-            kept[("state", g)] = mats, A, w, ATA, M, Ad, -2.0 * w @ Ad
+            mats, inv, w, dev, _, u = pieces
+            data = self.patterns[g]
+            mean_weight = weighted_inverse_sum(inv, data.observed, w)
+            wu = u * (data.row_weights / data.n_obs)[:, None]
+            M = mean_weight - wu.T @ u
+            Ad = applied_inverses(inv, dev, self._pattern_members[g], data.observed)
+            kept[("state", g)] = mats, inv, w, M, Ad, -2.0 * w @ Ad, mean_weight
         return kept[("state", g)]
+
+    def _row_bases(self, theta: np.ndarray, g: int, V: np.ndarray):
+        """Q_k = V' A_k T_k A_k V for each pattern in turn (a generator: no stack of them is made), as the weighted mean
+        over the pattern's rows of (V' u_i)(V' u_i)' (u_i = A_k (x_i - mu)): n r^2 over the rows, where V' (A T A)_k V
+        from the patterns' stacks took p^2 (p + r) a pattern and made two stacks of p x p matrices."""
+        pieces = self._pieces(theta, g)
+        data = self.patterns[g]
+        order, starts = self._sorted[g]
+        z = pieces[5][order] @ V
+        weights = data.row_weights[order]
+        stops = np.append(starts[1:], len(order))
+        for k, (r0, r1) in enumerate(zip(starts, stops)):
+            rows = z[r0:r1]
+            yield (rows * (weights[r0:r1] / data.counts[k])[:, None]).T @ rows
 
     def group_parts(self, theta: np.ndarray, g: int) -> MissingParts | None:
         state = self._pattern_state(theta, g)
         if state is None:
             return None
-        _, A, w, _, M, _, mean_gradient = state
-        return MissingParts(M, mean_gradient, A, w)
+        _, _, w, M, _, mean_gradient, _ = state
+        return MissingParts(M, mean_gradient, self._stacks(theta, g)[0], w)
 
     def moment_hessian(self, theta: np.ndarray, g: int, rows: np.ndarray, cols: np.ndarray,
                        observed: bool = True) -> np.ndarray | None:
@@ -325,7 +376,8 @@ class MissingDataLikelihood:
         state = self._pattern_state(theta, g)
         if state is None:
             return None
-        _, A, w, ATA, _, Ad, _ = state
+        _, _, w, _, Ad, _, _ = state
+        A, ATA = self._stacks(theta, g)
         if not observed:
             return moment_second_derivatives(A, w, rows, cols)
         return moment_second_derivatives(A, w, rows, cols, ATA, Ad)
@@ -369,10 +421,11 @@ class MissingDataLikelihood:
             state = self._pattern_state(theta, g)
             if state is None:
                 return None
-            mats, A, w, ATA, M, Ad, mean_gradient = state
+            mats, _, w, M, Ad, mean_gradient, _ = state
             if self._rank_two_model:
                 H = self._rank_two_hessian(theta, g, state)
             else:
+                A, ATA = self._stacks(theta, g)
                 H = first_order_hessian(A, w, ATA, Ad, *self._jacobian(theta, g))
             total += w_group * (H + self._second_order(g, mats, M, mean_gradient))
         return 0.5 * (total + total.T)
@@ -517,15 +570,6 @@ def model_second_order(model: StructuredModel, g: int, mats, M: np.ndarray, mean
     return J.T @ second @ J
 
 
-def pattern_bases(X: np.ndarray, V: np.ndarray) -> np.ndarray:
-    """V' X_k V for each pattern's symmetric X_k (P, p, p): the rank-two route's K_k (X = A) and Q_k (X = A T A), as
-    two products of stacked rows (X_k V, then (X_k V)' V), each one matrix product for all patterns."""
-    P, p, _ = X.shape
-    r = V.shape[1]
-    XV = (X.reshape(P * p, p) @ V).reshape(P, p, r)
-    return (XV.transpose(0, 2, 1).reshape(P * r, p) @ V).reshape(P, r, r)
-
-
 def pattern_pair_sums(basis, K: np.ndarray, w: np.ndarray):
     """(entries, Z) for batches of the entries of ``basis`` with a covariance part: Z[b] = sum_k w_k K_k[:, u_e]
     K_k[:, v_e]' (r x r) for each entry e of the batch, one stacked matrix product over the patterns K_k = V' A_k V,
@@ -540,10 +584,11 @@ def pattern_pair_sums(basis, K: np.ndarray, w: np.ndarray):
         yield entries, np.matmul(left, right)
 
 
-def pattern_trace_sum(basis, K: np.ndarray, w: np.ndarray) -> np.ndarray:
+def pattern_trace_sum(basis, K, w: np.ndarray) -> np.ndarray:
     """sum_k w_k tr(A_k D_e A_k D_f) over the entries of ``basis`` (:mod:`cfa_tool.model.rank_two`), K the patterns'
     V' A_k V: sum_k w_k 2 c_e c_f (K_k[u_e, u_f] K_k[v_e, v_f] + K_k[u_e, v_f] K_k[v_e, u_f]); pattern by pattern,
-    each's E x E gathers small enough to stay in the processor's caches, for the entries with a covariance part."""
+    each's E x E gathers small enough to stay in the processor's caches, for the entries with a covariance part (``K``:
+    any iterable of the K_k in the patterns' order, such as :class:`~cfa_tool.data.patterns.PatternBases`)."""
     E = len(basis.u)
     cov = np.flatnonzero(basis.c)
     u, v = basis.u[cov], basis.v[cov]
@@ -559,9 +604,10 @@ def pattern_trace_sum(basis, K: np.ndarray, w: np.ndarray) -> np.ndarray:
     return out
 
 
-def pattern_cross_sum(basis, K: np.ndarray, Q: np.ndarray, w: np.ndarray) -> np.ndarray:
+def pattern_cross_sum(basis, K, Q, w: np.ndarray) -> np.ndarray:
     """sum_k w_k tr(A_k D_e B_k D_f) over the entries of ``basis``, K and Q the patterns' V' A_k V and V' B_k V
-    (:func:`cfa_tool.model.rank_two.cross_term`, pattern by pattern)."""
+    (:func:`cfa_tool.model.rank_two.cross_term`, pattern by pattern; Q may be any iterable of them in the patterns'
+    order, made one at a time)."""
     E = len(basis.u)
     cov = np.flatnonzero(basis.c)
     u, v = basis.u[cov], basis.v[cov]
@@ -579,7 +625,7 @@ def pattern_cross_sum(basis, K: np.ndarray, Q: np.ndarray, w: np.ndarray) -> np.
     return out
 
 
-def pattern_mean_sum(basis, K: np.ndarray, VAd: np.ndarray, w: np.ndarray, s: np.ndarray) -> np.ndarray:
+def pattern_mean_sum(basis, K, VAd: np.ndarray, w: np.ndarray, s: np.ndarray) -> np.ndarray:
     """sum_k w_k d_k' A_k D_e A_k dmu_f over the entries of ``basis``, with (V' A d)_k the rows of ``VAd``:
     c_e s_f sum_k w_k ((V'Ad)_k[u_e] K_k[v_e, w_f] + (V'Ad)_k[v_e] K_k[u_e, w_f])."""
     E = len(basis.u)
@@ -660,6 +706,14 @@ def _trace_contract(T: np.ndarray, y_sigma: np.ndarray) -> np.ndarray:
     """sum_k w_k tr(X_k D_a Y_k E_b) for every E_b in y_sigma, T from :func:`_trace_products`."""
     kx = len(T)
     return T.reshape(kx, -1) @ y_sigma.transpose(0, 2, 1).reshape(len(y_sigma), -1).T
+
+
+def _pattern_runs(index: np.ndarray, patterns: int) -> tuple[np.ndarray, np.ndarray]:
+    """(the rows sorted by pattern, each pattern's first place among them): the layout of
+    :func:`cfa_tool.data.patterns.pattern_data`'s sums over each pattern's rows, as :meth:`MissingDataLikelihood._row_bases`
+    takes them."""
+    order = np.argsort(index, kind="stable")
+    return order, np.searchsorted(index[order], np.arange(patterns))
 
 
 def _row_blocks(rows: np.ndarray, weights: np.ndarray):

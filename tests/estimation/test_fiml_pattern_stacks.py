@@ -1,5 +1,6 @@
-"""Full-information ML holds one matrix of the items by themselves for each pattern of missing answers (the patterns'
-scatter, the inverses A_k, their products and the rank-two gathers K_k, about seven such stacks at once): at 200
+"""Full-information ML held one matrix of the items by themselves for each pattern of missing answers (the patterns'
+scatter, the inverses A_k, their products and the rank-two gathers K_k, about seven such stacks at once; since speed-s24
+the search makes its K_k a chunk at a time and the case diagnostics and robust routes alone make such stacks): at 200
 items and 2,000 rows with gaps everywhere each stack is 0.6 GB, and no limit covered them (large-s22).  A fit whose
 stack would exceed the one limit of a matrix (numerics/sizes.py) is refused in one line before any is made (exit 3);
 the scatter's rows' outer products are made a run of patterns at a time.  The limit is lowered here, so that a small
@@ -54,19 +55,22 @@ def test_a_fit_whose_patterns_stack_is_too_large_is_refused_before_the_scatter(m
     assert sorted(p.name for p in tmp_path.iterdir()) == ["d.csv", "m.cfa"]
 
 
-def test_the_rank_two_stack_is_checked_before_the_search(monkeypatch):
-    # the scatter's stack (8 x 8 a pattern) fits, the likelihood's K_k = V' A_k V (12 x 12: p + 2m for two factors)
-    # does not: refused when the likelihood is made, before any evaluation
+def test_the_searchs_rank_two_gathers_hold_no_stack_and_the_items_stack_is_checked_before_the_search(monkeypatch):
+    # speed-s24: the likelihood's K_k = V' A_k V (12 x 12: p + 2m for two factors) are made a chunk at a time, so a
+    # limit below their whole stack fits the model; the stacks a fit still makes whole are of the 8 items by
+    # themselves (case diagnostics, robust routes): refused when the likelihood is made, before any evaluation
     frame = _rows()
     P = _pattern_count(frame)
+    monkeypatch.setattr(sizes, "MATRIX_BYTES", P * 12 * 12 * 8 - 1)
+    assert cfa_tool.fit(MODEL, frame, missing="full-information").converged
     evaluated = []
     original = fiml.MissingDataLikelihood._pieces
     monkeypatch.setattr(fiml.MissingDataLikelihood, "_pieces", lambda *args: evaluated.append(1) or original(*args))
-    monkeypatch.setattr(sizes, "MATRIX_BYTES", P * 12 * 12 * 8 - 1)
-    with pytest.raises(EstimationError, match=rf"{P:,} matrices of 12 x 12"):
+    monkeypatch.setattr(sizes, "MATRIX_BYTES", P * 8 * 8 * 8 - 1)
+    with pytest.raises(EstimationError, match=rf"{P:,} matrices of 8 x 8"):
         cfa_tool.fit(MODEL, frame, missing="full-information")
     assert evaluated == []
-    monkeypatch.setattr(sizes, "MATRIX_BYTES", P * 12 * 12 * 8)  # at the limit: fitted
+    monkeypatch.setattr(sizes, "MATRIX_BYTES", P * 8 * 8 * 8)  # at the limit: fitted
     assert cfa_tool.fit(MODEL, frame, missing="full-information").converged
 
 
@@ -74,8 +78,8 @@ def test_the_helpers_joint_stack_is_checked_too(monkeypatch):
     frame = _rows()
     frame["age"] = np.random.default_rng(2).normal(size=len(frame))
     P = _pattern_count(frame)
-    monkeypatch.setattr(sizes, "MATRIX_BYTES", P * 13 * 13 * 8 - 1)  # V* of 8 items, two factors and one helper
-    with pytest.raises(EstimationError, match=rf"{P:,} matrices of 13 x 13"):
+    monkeypatch.setattr(sizes, "MATRIX_BYTES", P * 9 * 9 * 8 - 1)  # the rows of 8 items and one helper
+    with pytest.raises(EstimationError, match=rf"{P:,} matrices of 9 x 9"):
         cfa_tool.fit(MODEL, frame, missing="full-information", missing_helpers=["age"])
 
 
