@@ -4,6 +4,8 @@ the empirical check of McDonald & Krane 1979)."""
 
 from __future__ import annotations
 
+from collections.abc import Callable
+
 import numpy as np
 
 from cfa_tool.numbers import rounded_number, user_number
@@ -86,10 +88,10 @@ def _scale_shared_with_first_group(table: ParameterTable, j: int, g: int) -> boo
 
 
 def check_information_rank(information: np.ndarray, labels: tuple[str, ...], factor: ScaledFactor | None = None,
-                           two_items: tuple[tuple[str, tuple[str, str]], ...] = ()) -> None:
+                           two_items: "tuple[tuple[str, tuple[str, str]], ...] | Callable[[], tuple]" = ()) -> None:
     """Raise if the information matrix is (numerically) singular, naming the parameters involved (and, when they hold
-    a loading of a two-item factor among ``two_items``, :func:`~cfa_tool.assessment.convergence.two_item_factors`, that
-    factor with the language's remedy); ``factor``:
+    a loading of a two-item factor among ``two_items``, :func:`~cfa_tool.assessment.convergence.two_item_factors`, or
+    a function that finds them, called only for a singular matrix, that factor with the language's remedy); ``factor``:
     :func:`~cfa_tool.numerics.linalg.scaled_factor` of it when the caller has made it (the standard errors and the
     score tests read the same factor)."""
     if information.size == 0:
@@ -105,6 +107,8 @@ def check_information_rank(information: np.ndarray, labels: tuple[str, ...], fac
     weights = np.abs(vecs[:, 0])
     involved = [labels[k] for k in np.argsort(-weights) if weights[k] > 0.1][:6]
     loadings = {names for kind, names, _ in map(split_label, involved) if kind == "loading"}
+    if callable(two_items):  # found only when the information is singular (every converged fit comes here)
+        two_items = two_items()
     pair = next(((f, items) for f, items in two_items if any((f, x) in loadings for x in items)), None)
     if pair is not None:  # a two-item factor's loadings among them (hostile s23b: advice to fix a residual variance)
         f, (a, b) = pair

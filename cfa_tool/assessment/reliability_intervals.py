@@ -181,13 +181,69 @@ def omega_gradient(mats, keys: np.ndarray, f: int, codes: np.ndarray, rows: np.n
     :func:`omega_matrix_gradient` gathered at the parameter table's entries (``codes``, ``rows``, ``cols``: one
     group's; an entry of the symmetric P or T off the diagonal stands for both of its places) and carried to theta by
     the entries' coefficients ``J`` (every entry is affine in theta)."""
-    grads = omega_matrix_gradient(mats, keys, f)
-    d = np.zeros(len(codes))
-    for code, g in grads.items():
-        sel = codes == code
-        r, c = rows[sel], cols[sel]
-        d[sel] = g[r, c] + (np.where(r != c, g[c, r], 0.0) if code in (2, 3) else 0.0)
-    return d @ J
+    return _EntryPlaces(codes, rows, cols).gathered(omega_matrix_gradient(mats, keys, f)) @ J
+
+
+class _EntryPlaces:
+    """Where each parameter-table entry sits (its matrix code, row and column), grouped by matrix once so that the
+    derivatives of several factors' omegas are gathered at the entries without a search per factor."""
+
+    def __init__(self, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray) -> None:
+        self.size = len(codes)
+        self.places = []
+        for code in (0, 1, 2, 3):
+            where = np.flatnonzero(codes == code)
+            if len(where):
+                r, c = rows[where], cols[where]
+                self.places.append((code, where, r, c, (r != c) if code in (2, 3) else None))
+
+    def gathered(self, grads: dict[int, np.ndarray]) -> np.ndarray:
+        """The derivatives in each entry (an off-diagonal entry of the symmetric P or T summing both places)."""
+        d = np.zeros(self.size)
+        for code, where, r, c, off in self.places:
+            g = grads[code]
+            d[where] = g[r, c] if off is None else g[r, c] + np.where(off, g[c, r], 0.0)
+        return d
+
+
+def entry_gradients(mats, keys: np.ndarray, factors: np.ndarray, codes: np.ndarray, rows: np.ndarray,
+                    cols: np.ndarray) -> np.ndarray:
+    """The derivatives of several factors' omegas (one per column of ``keys``, p x k, factor ``factors[j]``) in each
+    parameter-table entry (k x entries), for a model without paths among the factors (Phi = P): the formulas of
+    :func:`omega_matrix_gradient` evaluated at the entries only, for every factor at once (equal to gathering that
+    function's matrices: tests/assessment/test_omega_delta_method.py compares the two routes, and the first with scipy's numerical derivatives)."""
+    L, T = mats.L, mats.T
+    phi = np.asarray(mats.latent_covariance(), dtype=float)
+    U = L.T @ keys  # m x k
+    PU = phi @ U
+    k = keys.shape[1]
+    cols_k = np.arange(k)
+    a = PU[factors, cols_k]
+    s = np.einsum("mk,mk->k", U, PU) + np.einsum("pk,pk->k", keys, T @ keys)
+    ff = phi[factors, factors]
+    omega = a * a / (ff * s)
+    lead, w = 2.0 * a / (ff * s), omega / s
+    W = (phi + phi.T) @ U  # m x k
+    E = np.zeros_like(U)
+    E[factors, cols_k] = 1.0
+    D = np.zeros((k, len(codes)))
+    at = np.flatnonzero(codes == 0)  # loadings: L[r, c] (item r, factor c)
+    if len(at):
+        r, c = rows[at], cols[at]
+        D[:, at] = (keys[r] * (lead[None, :] * phi[factors][:, c].T - w[None, :] * W[c])).T
+    at = np.flatnonzero(codes == 3)  # residual (co)variances: T[r, c], an off-diagonal entry for both places
+    if len(at):
+        r, c = rows[at], cols[at]
+        D[:, at] = (-w[None, :] * keys[r] * keys[c] * np.where(r != c, 2.0, 1.0)[:, None]).T
+    at = np.flatnonzero(codes == 2)  # factor (co)variances: P[r, c] = Phi[r, c]
+    if len(at):
+        r, c = rows[at], cols[at]
+
+        def g(i, j):
+            return lead[None, :] * E[i] * U[j] - (omega / ff)[None, :] * E[i] * E[j] - w[None, :] * U[i] * U[j]
+
+        D[:, at] = (g(r, c) + np.where(r != c, 1.0, 0.0)[:, None] * g(c, r)).T
+    return D
 
 
 def sum_keys(row: FactorReliability, observed: tuple[str, ...]) -> np.ndarray:
@@ -202,23 +258,34 @@ def with_omega_errors(rows, model, theta: np.ndarray, covariance: np.ndarray, gr
     """One group's reliability ``rows`` with the delta-method standard error of each factor's omega (Raykov 2002):
     sqrt(g' V g), g the analytic gradient of omega in theta (:func:`omega_gradient`) and V the estimates' covariance
     the fit computed (``covariance``, of theta: by its information, or the sandwich of a robust or design-based fit).
-    Rows whose omega is withheld (:func:`withheld`) or not finite keep None."""
+    Rows whose omega is withheld (:func:`withheld`) or not finite keep None.  Every factor's gradient is gathered at
+    the entries by one plan and carried to theta by one product (the default call computes this on every fit)."""
     from dataclasses import replace
 
     table = model.table
-    codes, erows, ecols = table.entry_arrays()
-    sel = model.groups == group
-    codes, erows, ecols, J = codes[sel], erows[sel], ecols[sel], model.J[sel]
-    mats = model.matrices(theta, group)
     latent, observed = table.latent, table.observed
-    out = []
-    for r in rows:
-        if withheld(r) is not None or not math.isfinite(r.omega) or r.factor not in latent:
-            out.append(r)
-            continue
-        g = omega_gradient(mats, sum_keys(r, observed), latent.index(r.factor), codes, erows, ecols, J)
-        variance = float(g @ covariance @ g)
-        out.append(replace(r, omega_se=math.sqrt(variance) if variance >= 0 else float("nan")))
+    wanted = [k for k, r in enumerate(rows)
+              if withheld(r) is None and math.isfinite(r.omega) and r.factor in latent]
+    if not wanted:
+        return tuple(rows)
+    codes, erows, ecols = table.entry_arrays()
+    J = model.J
+    if table.multigroup:  # this group's entries
+        sel = model.groups == group
+        codes, erows, ecols, J = codes[sel], erows[sel], ecols[sel], J[sel]
+    mats = model.matrices(theta, group)
+    keys = np.stack([sum_keys(rows[k], observed) for k in wanted], axis=1)
+    factors = np.array([latent.index(rows[k].factor) for k in wanted])
+    if mats.has_paths:  # higher-order factors: each factor's gradient through A = (I - B)^-1, one at a time
+        places = _EntryPlaces(codes, erows, ecols)
+        D = np.stack([places.gathered(omega_matrix_gradient(mats, keys[:, j], f)) for j, f in enumerate(factors)])
+    else:
+        D = entry_gradients(mats, keys, factors, codes, erows, ecols)
+    G = D @ J
+    variances = np.einsum("ij,ij->i", G @ covariance, G)
+    out = list(rows)
+    for k, variance in zip(wanted, variances):
+        out[k] = replace(rows[k], omega_se=math.sqrt(variance) if variance >= 0 else float("nan"))
     return tuple(out)
 
 

@@ -490,7 +490,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         evaluation = likelihood.evaluate(theta)
         information = evaluation.information
         factor = scaled_factor(information)  # read by the rank check, the standard errors and the score tests
-        check_information_rank(information, table.free_labels, factor, two_item_factors(spec, table.free_labels))
+        check_information_rank(information, table.free_labels, factor, lambda: two_item_factors(spec, table.free_labels))
         per_group = []
         for g, gm in enumerate(likelihood.groups):
             dev = gm.mean - mats[g].implied_mean() if means else None

@@ -1247,11 +1247,14 @@ def _reliability_sentence(result) -> str:
 
 def _delta_brackets(r) -> str:
     """' [.55, .70]', a factor's omega's delta-method 95% interval (assessment.reliability_intervals.delta_interval),
-    or ''."""
+    or '' (also for an interval that passes 0 or 1, which no reliability can reach: the table's note sends the reader
+    to the bootstrap's interval there, and a paper's text does not print an impossible bound)."""
     from cfa_tool.assessment.reliability_intervals import delta_interval
 
     interval = delta_interval(r)
-    return f" [{unit(interval[0], 2)}, {unit(interval[1], 2)}]" if interval else ""
+    if interval is None or interval[0] < 0 or interval[1] > 1:
+        return ""
+    return f" [{unit(interval[0], 2)}, {unit(interval[1], 2)}]"
 
 
 def _factor_means_sentence(result) -> str:

@@ -106,3 +106,15 @@ def test_an_ordinal_fit_has_no_delta_interval(hs_data):
     fit = cfa_tool.fit(MODELS["three factors"], pd.DataFrame(data), ordinal="all")
     assert all(r.omega_se is None for r in fit.groups[0].reliability)
     assert "Omega 95% CI (delta method)" not in reliability_table(fit).columns
+
+
+def test_the_paragraph_prints_no_interval_that_passes_one(hs_three):
+    """An interval that passes 1 (a very reliable short scale) is not printed in the methods paragraph, which would
+    give a paper an impossible bound; the table keeps it with the note that sends the reader to the bootstrap."""
+    from dataclasses import replace
+
+    from cfa_tool.reporting.paragraph import _delta_brackets
+
+    row = hs_three.groups[0].reliability[1]  # textual, omega .885
+    assert _delta_brackets(row).startswith(" [")
+    assert _delta_brackets(replace(row, omega=0.97, omega_se=0.02)) == ""  # .97 + 1.96 x .02 = 1.009
