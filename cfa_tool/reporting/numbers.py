@@ -93,19 +93,25 @@ def fit_index_text(index: str, value, digits: int = 3) -> str:
 
 
 # The one typographic rule of the views a reader prints (the Word file, the HTML page, the path diagram that both
-# show): a minus sign before a number is the true minus (U+2212, which is as wide as a plus and after which no line
-# breaks, where a hyphen-minus is narrower and may end a line), and a relation written with two characters before a
+# show): a minus sign before a number, and the minus of a formula, is the true minus (U+2212, which is as wide as a
+# plus and after which no line breaks, where a hyphen-minus is narrower and may end a line), and a relation written with two characters before a
 # number is its mathematical sign ('>= .95' as '\u2265 .95').  Values are formatted once, with the plain hyphen-minus
 # (:func:`unit`, :func:`num`): the terminal, Markdown and the data files (CSV, where '\u2212.63' would not read as a
 # number) keep them so, and the printed views pass their text through :func:`printed`.
 _MINUS = re.compile(r"(?<![\w.\u2212])-(?=[\d.])")  # a hyphen before a number that is not inside a word
+# ... and the minus of a formula ('1 - (RMSEA / baseline RMSEA)\u00b2', '1 + (m - 1) ICC', 'N F - c df'): a hyphen
+# between spaces with an operand on each side, a number, a bracket, a square or a one-letter symbol, never a word
+# (so that a name such as 'wave - two' keeps its hyphen)
+_OPERATOR_MINUS = re.compile(r"((?<![\w.])[A-Za-z]|[\d)\u00b2]) - (?=(?:[A-Za-z](?![\w'])|[\d(.]))")
 _RELATION = re.compile(r"(?<![<>=!])([<>])=(?=\s?[\d.\u2212-])")  # '>= .95', '(RMSEA <= .05)'
 PRINTED_RELATIONS = {">": "\u2265", "<": "\u2264"}
 
 
 def printed(text: str) -> str:
-    """``text`` as a printed view sets it (the rule above): '-.63' as '\u2212.63', '>= .95' as '\u2265 .95'."""
-    return _RELATION.sub(lambda m: PRINTED_RELATIONS[m.group(1)], _MINUS.sub("\u2212", text))
+    """``text`` as a printed view sets it (the rule above): '-.63' as '\u2212.63', '1 - (a / b)' as '1 \u2212 (a / b)',
+    '>= .95' as '\u2265 .95'."""
+    text = _OPERATOR_MINUS.sub("\\1 \u2212 ", _MINUS.sub("\u2212", text))
+    return _RELATION.sub(lambda m: PRINTED_RELATIONS[m.group(1)], text)
 
 
 def printed_line(text: Text, view: View) -> str:
