@@ -7,6 +7,7 @@ import re
 
 from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.note_parts import Command, Note, Text, View, said
+from cfa_tool import numbers as _shared
 from cfa_tool.numbers import rounded_number, user_number
 from cfa_tool.numerics.plain import decimals_beside
 
@@ -48,6 +49,10 @@ def est_unit(value, digits: int = 2) -> str:
         text = rounded_number(value, 2)
         return text[1:] if text.startswith("0.") else "-" + text[2:]
     return unit(value, digits)
+
+#: words joined as a sentence lists them ('a, b, and c'): the one list rule, declared in cfa_tool.numbers for the
+#: workflows' notes too
+word_list = _shared.word_list
 
 
 def needed_decimals(value: float, fewest: int = 0, most: int = 9, within: float = 0.0) -> int:
@@ -184,11 +189,3 @@ def short(value) -> str:
         return ""
     text = user_number(value)
     return text[1:] if text.startswith("0.") else ("-" + text[2:] if text.startswith("-0.") else text)
-
-
-def word_list(words) -> str:
-    """Words joined as a sentence lists them: 'a', 'a and b', 'a, b, and c'."""
-    words = list(words)
-    if len(words) <= 2:
-        return " and ".join(words)
-    return ", ".join(words[:-1]) + ", and " + words[-1]

@@ -79,6 +79,13 @@ def group_labels(result) -> tuple[str, ...]:
     return tuple(g.label for g in result.groups) if getattr(result, "multigroup", False) else ()
 
 
+def group_words(result, g: int) -> str:
+    """Group ``g`` of ``result`` as its headings and titles name it: by the one rule of every text of the report
+    (language.names.written_group among the fit's groups: 'North', or '"South side"' with every label quoted when
+    one needs it; s23: the headings wrote the label bare beside the quoted one of the notes)."""
+    return written_group(result.groups[g].label, group_labels(result))
+
+
 def _phrase(problem, result) -> str:
     """A problem of ``result`` in the paragraph's words: its names quoted as the model language writes them, its
     group named among the fit's groups (language.names.written_group)."""
