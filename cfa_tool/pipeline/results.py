@@ -725,17 +725,21 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
 
         from cfa_tool.assessment.admissibility import poor_fit_problems, uninformative_baseline_problems
 
-        from cfa_tool.assessment.markers import weak_markers
+        from cfa_tool.assessment.markers import weak_item_notes, weak_items, weak_markers
 
         weak = weak_markers(estimates, spec.exploratory_factors)  # markers that hardly measure their factors
-        if weak:  # their signs judge no keying (assessment.reliability.apart_from_weak_markers)
+        faint = weak_items(estimates, spec.exploratory_factors)  # items that hardly measure theirs, markers too
+        if weak or faint:  # their signs judge no keying (assessment.reliability.apart_from_weak_markers)
             from dataclasses import replace
 
+            warnings = tuple(warnings) + tuple(weak_item_notes(
+                tuple(w for w in faint if (w.group, w.factor, w.item) not in {(m.group, m.factor, m.item) for m in weak}),
+                [(g.label, g.reliability) for g in groups], len(groups) > 1))
             groups = tuple(replace(g, reliability=apart_from_weak_markers(
-                g.reliability, [w for w in weak if w.group is None or w.group == g.label])) for g in groups)
+                g.reliability, [w for w in weak + faint if w.group is None or w.group == g.label])) for g in groups)
         problems = tuple(problems) + tuple(weak_factor_problems(estimates, latent, observed, groups, spec.method_factors,
                                                                 spec.exploratory_factors)) + tuple(
-            keying_problems(groups, weak))
+            keying_problems(groups, weak, estimates))
         if fit is not None:
             problems += uninformative_baseline_problems(fit, robust, n_obs, max(len(groups), 1))
             problems += poor_fit_problems(IndicesToRead.of(fit, robust))
