@@ -519,6 +519,15 @@ def miskeyed(r: FactorReliability) -> bool:
     return bool(r.against_keying) and not r.evenly_split
 
 
+#: why a factor's reliability coefficients are withheld where its loadings contradict the declared keying
+#: (:func:`miskeyed`): said by the report's table and written into the JSON beside the coefficients it withholds
+WITHHELD_BECAUSE = ("its loadings contradict the keying the model declares, so its keyed sum adds items that run "
+                    "against each other and its coefficients describe no scale")
+#: the coefficients of a factor's keyed sum that such a keying withholds (FactorReliability's fields)
+WITHHELD_COEFFICIENTS = ("omega", "omega_total", "omega_hierarchical", "composite_reliability", "alpha",
+                         "observed_sum_omega")
+
+
 def withheld_sums(problems) -> frozenset[tuple[str | None, str]]:
     """(group label, None with one group; factor) of each keyed sum whose reliability a fit withholds because its
     loadings contradict the declared keying (:func:`miskeyed`), read from the fit's problems (``problems``: its

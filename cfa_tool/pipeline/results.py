@@ -441,7 +441,16 @@ class GroupResult:
     latent_covariance: np.ndarray | None = field(repr=False, default=None)
 
     def reliability_dict(self) -> dict:
-        return {"factors": factor_dicts(self.reliability), "htmt": [clean(h.to_dict()) for h in self.htmt]}
+        """The reliability rows as JSON; a factor whose loadings contradict the declared keying (reliability.miskeyed)
+        has its coefficients withheld, null with the reason beside them, as every view withholds them (s24: the JSON
+        and the report's table gave the omega the methods paragraph and the scores withhold)."""
+        from cfa_tool.assessment.reliability import WITHHELD_BECAUSE, WITHHELD_COEFFICIENTS, miskeyed
+
+        factors = factor_dicts(self.reliability)
+        for d, r in zip(factors, self.reliability):
+            if miskeyed(r):
+                d.update({key: None for key in WITHHELD_COEFFICIENTS if key in d}, withheld=WITHHELD_BECAUSE)
+        return {"factors": factors, "htmt": [clean(h.to_dict()) for h in self.htmt]}
 
 
     def diagnostics_dict(self, naming: RowNaming = RowNaming.FILE_ROW) -> dict:
