@@ -870,7 +870,9 @@ def indistinct_problems(table: ParameterTable, mats: ModelMatrices, group: int =
             ProblemKind.FACTORS_HARDLY_DISTINCT, (reference_text("factor_covariance", (latent[a], latent[b])),), r,
             f"The factors {latent[a]} and {latent[b]} correlate {journal_decimal(r)}: nearly 1, so the data hardly tell them "
             f"apart, and read as two traits they may mislead.",
-            Note(("compare this model with one in which they are one factor", Command(" (cfa-tool compare)"),
+            Note(("compare this model with one in which they are one factor",
+                  Command(" (cfa-tool compare)", runs="compare", inside=" (among the models compared here, or added to "
+                                                                        "them)"),
                   ", and read the distinctness of the factors (HTMT, AVE); common practice reads correlations above "
                   ".85 or .90 as a sign that two factors are not distinct, a convention, not a law.")), label))
     return out

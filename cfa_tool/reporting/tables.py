@@ -873,7 +873,7 @@ def full_information_score_tests(helpers: bool) -> Text:
         return (said + "refitting with the parameter freed and the same missing-data helpers and taking the difference "
                 "of the two chi-squares tests it when they are missing at random.")
     # the command's name is advice to the program's user: the Word file says the test in words (advice-s16's rule)
-    return Note((said + "freeing a parameter and comparing the two fits", Command(" ('cfa-tool compare')"),
+    return Note((said + "freeing a parameter and comparing the two fits", Command(" ('cfa-tool compare')", runs="compare"),
                  " tests it when they are missing at random."))
 
 
