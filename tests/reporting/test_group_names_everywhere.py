@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import html
 
-import numpy as np
 import pandas as pd
 import pytest
 
