@@ -33,7 +33,7 @@ from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words, split_label
 from cfa_tool.note_parts import WORDS as MANUSCRIPT, said as said_in  # ('said' names sentences here)
-from cfa_tool.reporting.numbers import (est_num, est_unit, fit_index_text, guides_text, missing, p_phrase, short,
+from cfa_tool.reporting.numbers import (est_num, est_unit, fit_index_text, guides_text, missing, num, p_phrase, short,
                                         signed, unit)
 from cfa_tool.reporting.numbers import word_list as _list
 
@@ -1813,7 +1813,7 @@ def comparison_paragraph(comparison) -> str:
         t = shown[(restricted, general)][0]
         which = f", {t.method}" if len(methods) > 1 else ""
         cfi = "\u0394CFI not defined" if undefined(restricted, general) else _change('CFI', t.delta_cfi)
-        sentence = (f"{pair}: {CHI}({t.df_difference}) = {est_num(t.chi_square_difference, 2)}, {_p(t.p_value)}{which}"
+        sentence = (f"{pair}: {CHI}({t.df_difference}) = {num(t.chi_square_difference, 2)}, {_p(t.p_value)}{which}"
                     + ("." if first.method.ordinal else f"; {cfi}, {_change('RMSEA', t.delta_rmsea)}."))
         if t.boundary:
             sentence += (f" Because {label[restricted]} has {_list(list(t.boundary))}, values on the boundary of the "
@@ -1858,7 +1858,7 @@ def _step_figures(step, steps) -> str:
         return "no difference statistic"
     if step.untested:
         return "0 degrees of freedom"
-    text = f"{CHI}({t.df_difference}) = {est_num(t.chi_square_difference, 2)}, {_p(t.p_value)}"
+    text = f"{CHI}({t.df_difference}) = {num(t.chi_square_difference, 2)}, {_p(t.p_value)}"
     if not step.result.method.ordinal:  # the adjusted indices of ordinal fits are not compared between models
         from cfa_tool.workflows.invariance import (CFI_GUIDE, RMSEA_GUIDE, SRMR_GUIDE, SRMR_GUIDE_LATER,
                                                    delta_cfi_not_defined)
@@ -2116,7 +2116,7 @@ def invariance_paragraph(result, levels) -> str:
                          f"{_held(step, basis)} ({_step_figures(step, steps)}).")
         elif step.partial:
             full = step.full_test
-            with_all = (f"{CHI}({full.df_difference}) = {est_num(full.chi_square_difference, 2)}, {_p(full.p_value)}"
+            with_all = (f"{CHI}({full.df_difference}) = {num(full.chi_square_difference, 2)}, {_p(full.p_value)}"
                         if full is not None and not full.not_computed else "no difference statistic")
             if step.full_result is not None and step.full_result.converged and not step.full_result.admissible:
                 found = _list([_phrase(p, step.full_result) for p in step.full_result.problems if p.kind.inadmissible])
