@@ -18,10 +18,15 @@ class Command:
     """What the program's user runs or writes to take a piece of advice, as that reader reads it (" (--robust; from
     Python, test='robust')", or a statement of the model language, " ('scale latent by variance')", its spaces and
     brackets included); ``words``: the same for a reader who runs nothing and edits no model file, where the line is
-    incomplete without it (a manuscript's: "the factor's variance fixed at 1"), else nothing."""
+    incomplete without it (a manuscript's: "the factor's variance fixed at 1"), else nothing.  ``runs``: the command
+    of this tool the text names ('compare'), and ``inside``: what the line says in that command's own report in its
+    place, where naming the command the reader is running would send them to it again (s24: compare advised 'cfa-tool
+    compare'); nothing there without it."""
 
     text: str
     words: str = ""
+    runs: str = ""
+    inside: str = ""
 
 
 @dataclass(frozen=True)
@@ -50,6 +55,7 @@ class View:
 
     commands: bool
     tables: Mapping[str, str] = field(default_factory=dict)
+    running: str = ""  # the command whose report this is (document.ResultKind's word): its own name is not advised
 
     def name(self, reference: TableReference) -> str:
         """The referred table's name in this view; a table the report does not hold (a saved report changed by
@@ -63,10 +69,10 @@ RUNNING = View(commands=True)
 WORDS = View(commands=False)
 
 
-def titled(tables, commands: bool = True) -> View:
+def titled(tables, commands: bool = True, running: str = "") -> View:
     """The view of a reader who runs the program (without ``commands``: who runs nothing), naming each of
-    ``tables`` (ReportTable) by its title in quotes."""
-    return View(commands, {t.key: f'the table "{t.title}"' for t in tables})
+    ``tables`` (ReportTable) by its title in quotes; ``running``: the command whose report it is."""
+    return View(commands, {t.key: f'the table "{t.title}"' for t in tables}, running)
 
 
 def numbered(tables) -> View:
@@ -92,7 +98,8 @@ class Note:
     def said(self, view: View) -> str:
         return "".join(p if isinstance(p, str) else view.name(p) if isinstance(p, TableReference) else
                        (p.text if view.commands else "") if isinstance(p, RowId) else
-                       p.text if view.commands else p.words for p in self.parts)
+                       (p.inside if p.runs and p.runs == view.running else p.text) if view.commands else p.words
+                       for p in self.parts)
 
     def __str__(self) -> str:  # as the program's user reads it (what a result's JSON holds)
         return self.said(RUNNING)
@@ -120,7 +127,8 @@ class Note:
     def to_dict(self) -> dict:
         return {"parts": [p if isinstance(p, str) else {"table": p.key} if isinstance(p, TableReference) else
                           {"id": p.text} if isinstance(p, RowId) else
-                          {"command": p.text, "words": p.words} for p in self.parts]}
+                          {"command": p.text, "words": p.words, **({"runs": p.runs, "inside": p.inside} if p.runs
+                                                                   else {})} for p in self.parts]}
 
     @classmethod
     def from_dict(cls, d: dict) -> "Note":
@@ -132,7 +140,8 @@ class Note:
             elif isinstance(p, dict) and isinstance(p.get("table"), str):
                 parts.append(TableReference(p["table"]))
             elif isinstance(p, dict) and isinstance(p.get("command"), str):
-                parts.append(Command(p["command"], str(p.get("words", ""))))
+                parts.append(Command(p["command"], str(p.get("words", "")), str(p.get("runs", "")),
+                                     str(p.get("inside", ""))))
             elif isinstance(p, dict) and isinstance(p.get("id"), str):
                 parts.append(RowId(p["id"]))
             else:

@@ -99,6 +99,15 @@ def count_text(value: float) -> str:
     return text.rstrip("0").rstrip(".")
 
 
+def word_list(words) -> str:
+    """Words joined as a sentence lists them: 'a', 'a and b', 'a, b, and c': the one rule of a list in a sentence,
+    for the reports and the workflows' notes alike (s23: alignment's note joined group labels by ', ')."""
+    words = list(words)
+    if len(words) <= 2:
+        return " and ".join(words)
+    return ", ".join(words[:-1]) + ", and " + words[-1]
+
+
 def names_shown(total: int, most: int) -> int:
     """How many of ``total`` names (items, rows, values) a list that cuts after ``most`` of them names before 'and N
     more': every one when at most one would be left over, since 'and 1 more item' hides a name to save none (new-user

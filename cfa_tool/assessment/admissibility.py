@@ -36,14 +36,19 @@ if TYPE_CHECKING:  # a saved fit's estimate rows, for the hints only (a fit that
 
 
 class ProblemKind(enum.Enum):
-    """What is wrong; ``value`` is the word the JSON uses, ``short`` the words a table row shows, and
-    ``inadmissible`` says whether the solution is impossible (True) or only needs a caution (False)."""
+    """What is wrong; ``value`` is the word the JSON uses, ``short`` the words a table row shows,
+    ``inadmissible`` says whether the solution is impossible (True) or only needs a caution (False), and
+    ``solution_caution`` whether that caution is one on a solution that is admissible but needs care in reading, which
+    every view of several solutions (a comparison, a ladder, a replication) says first, as fit does
+    (reporting.workflow_tables.SOLUTION_CAUTIONS, read from here: a new kind is declared one with its other words,
+    s23: the list was kept by hand)."""
 
-    def __new__(cls, word: str, short: str, inadmissible: bool):
+    def __new__(cls, word: str, short: str, inadmissible: bool, solution_caution: bool = False):
         member = object.__new__(cls)
         member._value_ = word
         member.short = short
         member.inadmissible = inadmissible
+        member.solution_caution = solution_caution
         return member
 
     @classmethod
@@ -68,7 +73,7 @@ class ProblemKind(enum.Enum):
     RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE = ("residual covariance matrix not positive definite",
                                                   "in a matrix that is not positive definite", True)
     # with cross-loadings or correlated factors a standardized loading above 1 is possible (Joreskog 1999)
-    STANDARDIZED_LOADING_ABOVE_ONE = ("standardized loading above 1", "standardized above 1", False)
+    STANDARDIZED_LOADING_ABOVE_ONE = ("standardized loading above 1", "standardized above 1", False, True)
     ON_BOUND = ("estimate on a bound", "held at a bound", True)
     EMPIRICALLY_UNDERIDENTIFIED = ("empirically under-identified", "barely determined by the data", True)
     # not of the solution but of its standard errors: a sampling design with too few clusters
@@ -102,7 +107,7 @@ class ProblemKind(enum.Enum):
     # values the data file itself marks as no answer, read as missing (data.non_answers): said, not a problem
     VALUES_READ_AS_MISSING = ("values the file marks as no answer", "read as missing", False)
     # not of the solution but of the data: fewer rows than the model has free parameters (one group)
-    SMALL_SAMPLE = ("fewer rows than parameters", "fewer rows than parameters", False)
+    SMALL_SAMPLE = ("fewer rows than parameters", "fewer rows than parameters", False, True)
     # not of the solution but of the data: group labels that differ only in case ('north', 'North'), kept apart
     GROUP_LABELS_BY_CASE = ("group labels differing only in case", "labels differing only in case", False)
     # the same of a cluster or strata column ('School A', 'school a'): two clusters, so clustering understated
@@ -117,18 +122,19 @@ class ProblemKind(enum.Enum):
     # its variance rests on those rows; pipeline.inputs.few_answers_problems)
     NEARLY_CONSTANT = ("item answered alike by nearly every row", "nearly constant", False)
     # a method or bifactor-like factor whose standardized loadings are all small (assessment.method_factors)
-    WEAK_METHOD_FACTOR = ("weak method factor", "small loadings only", False)
+    WEAK_METHOD_FACTOR = ("weak method factor", "small loadings only", False, True)
     # a factor whose loadings mostly run against its items' keying (assessment.reliability.keying_problems): its
     # correlations, mean differences and scores read the wrong way
-    FACTOR_POINTS_AGAINST_ITEMS = ("factor points against its items", "points against its items", False)
+    FACTOR_POINTS_AGAINST_ITEMS = ("factor points against its items", "points against its items", False, True)
     # a 'reversed' statement that the loadings' signs contradict (assessment.reliability.keying_problems): items
     # declared reversed that load with the factor's other items, or items not declared that load against them (a
     # typing error in the statement, or answers coded the other way), so the factor's keyed sum adds items running
     # against each other and its omega and alpha describe no scale
-    KEYING_AGAINST_LOADINGS = ("declared keying contradicted by the loadings", "against the declared keying", False)
+    KEYING_AGAINST_LOADINGS = ("declared keying contradicted by the loadings", "against the declared keying", False,
+                               True)
     # a factor's marker whose standardized loading is negligible (assessment.markers): the other loadings' values,
     # standard errors and tests depend on it, and the factor takes its direction from it
-    WEAK_MARKER = ("marker that hardly measures its factor", "marker hardly loads", False)
+    WEAK_MARKER = ("marker that hardly measures its factor", "marker hardly loads", False, True)
     # not of the solution but of the data: rows that gave one answer to every item, reverse-worded ones included
     # (data.same_answers), kept in the analysis
     SAME_ANSWER_ROWS = ("same answer to every item", "same answer throughout", False)
@@ -204,14 +210,14 @@ class ProblemKind(enum.Enum):
     SCORED_FACTORS_HARDLY_DISTINCT = ("scored factors hardly distinct", "hardly distinct", False)
     # a possible solution whose two trait factors correlate nearly 1 (:data:`HARDLY_DISTINCT` or more in size): the
     # data hardly tell them apart, so reading them as two traits may mislead (:func:`indistinct_problems`)
-    FACTORS_HARDLY_DISTINCT = ("factors that correlate nearly 1", "nearly the same factor", False)
+    FACTORS_HARDLY_DISTINCT = ("factors that correlate nearly 1", "nearly the same factor", False, True)
     # not of a solution but of the rows a check screened: gaps that leave full-information ML's saturated model
     # without an estimate (pairs of items no row answers together, or too few answers together), which a fit stops at
     # (assessment.missingness.sparse_answers_problem)
     SPARSE_ANSWERS = ("answers too sparse for full-information ML", "too few answers together", False)
     # not of the solution but of its test: a scaling factor of the robust test that is not positive, so the scaled
     # statistic (or the robust CFI and TLI) cannot be computed (inference.robust.robust_fit)
-    SCALED_TEST_NOT_COMPUTED = ("scaled test not computed", "no scaled test", False)
+    SCALED_TEST_NOT_COMPUTED = ("scaled test not computed", "no scaled test", False, True)
 
 
 #: problems not of the solution but of the sampling design it was fitted under (the methods paragraph states them
@@ -864,7 +870,9 @@ def indistinct_problems(table: ParameterTable, mats: ModelMatrices, group: int =
             ProblemKind.FACTORS_HARDLY_DISTINCT, (reference_text("factor_covariance", (latent[a], latent[b])),), r,
             f"The factors {latent[a]} and {latent[b]} correlate {journal_decimal(r)}: nearly 1, so the data hardly tell them "
             f"apart, and read as two traits they may mislead.",
-            Note(("compare this model with one in which they are one factor", Command(" (cfa-tool compare)"),
+            Note(("compare this model with one in which they are one factor",
+                  Command(" (cfa-tool compare)", runs="compare", inside=" (among the models compared here, or added to "
+                                                                        "them)"),
                   ", and read the distinctness of the factors (HTMT, AVE); common practice reads correlations above "
                   ".85 or .90 as a sign that two factors are not distinct, a convention, not a law.")), label))
     return out

@@ -97,7 +97,8 @@ def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, l
         parts.append("with every factor's variance fixed at 1 the model converged, but the search in the model's own "
                      "scaling did not confirm that minimum")
         advice.append(Note((Command("write 'scale latent by variance'", "fix every factor's variance at 1"),)))
-    if two_items and not advice:  # named first, with the language's own remedy (the limit does not help)
+    general = not advice  # no remedy of the search's own ending: the general advice, each line once
+    if two_items and general:  # named first, with the language's own remedy (the limit does not help)
         named = ", ".join(f"'{f}' ({a}, {b})" for f, (a, b) in two_items)
         one = len(two_items) == 1
         parts.append(f"{'the factor' if one else 'the factors'} {named} {'has' if one else 'have'} two items and "
@@ -109,13 +110,11 @@ def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, l
                             "hold each one's two loadings equal, which identifies a two-item factor",
                             Command(f" ('equal {reference_text('loading', (f, a))}, "
                                     f"{reference_text('loading', (f, b))}')"))))
-        advice.append(IDENTIFICATION_HINT)
-        advice.append(Note(("give start values near the expected solution", Command(" ('start ...')"))))
-    if not advice:
-        if outcome is Outcome.ITERATION_LIMIT:
-            advice.append(Note(("raise the limit", Command(f" ({Option.MAX_ITERATIONS})"))))
-        advice.append(IDENTIFICATION_HINT)
-        advice.append(Note(("give start values near the expected solution", Command(" ('start ...')"))))
+    elif general and outcome is Outcome.ITERATION_LIMIT:
+        advice.append(Note(("raise the limit", Command(f" ({Option.MAX_ITERATIONS})"))))
+    if general:
+        advice += [IDENTIFICATION_HINT,
+                   Note(("give start values near the expected solution", Command(" ('start ...')")))]
     return joined(parts, "; ") + ". What to try: " + _or_list(advice)  # type: ignore[operator]
 
 

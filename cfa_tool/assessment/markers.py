@@ -19,7 +19,7 @@ from dataclasses import dataclass
 
 from cfa_tool.assessment.admissibility import Problem, ProblemKind
 from cfa_tool.assessment.method_factors import SMALL_LOADING, loading_size
-from cfa_tool.language.names import reference_text, written_name
+from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.numbers import user_number
 from cfa_tool.numerics.plain import journal_decimal
@@ -67,6 +67,59 @@ def weak_markers(estimates, leave_out: frozenset[str] = frozenset()) -> tuple[We
         out.append(WeakMarker(factor, marker.variables[1], group, marker.standardized, marker.estimate,
                               marker.origin != "scale", others))
     return tuple(out)
+
+
+@dataclass(frozen=True)
+class WeakItem:
+    """An item whose standardized loading on a factor is below :data:`SMALL_LOADING` in size, in one group
+    (``group``: its label, None with one group), on a factor some other loading of which is not small: a weak item,
+    which hardly measures the factor, whichever its sign."""
+
+    factor: str
+    item: str
+    group: str | None
+    standardized: float
+
+
+def weak_items(estimates, leave_out: frozenset[str] = frozenset()) -> tuple[WeakItem, ...]:
+    """The items of the estimate rows (``estimates``: EstimateRow) whose standardized loading is below
+    :data:`SMALL_LOADING` in size, the markers' included, on factors with a loading that is not small (a factor whose
+    every loading is small is a weak factor, assessment.method_factors).  The sign of a loading that small says nothing
+    of how the item is keyed: sampling error alone turns it (s23's closing note: a weak item not declared reversed,
+    standardized -.08, was called a contradiction of the declared keying and its factor's omega withheld).
+    ``leave_out``: factors not to judge (exploratory blocks)."""
+    loadings: dict[tuple[str | None, str], list] = {}
+    for r in estimates:
+        if r.kind == "loading" and r.variables[0] not in leave_out and (r.free or r.estimate != 0.0):
+            loadings.setdefault((r.group, r.variables[0]), []).append(r)
+    out = []
+    for (group, factor), rows in loadings.items():
+        sizes = [abs(r.standardized) if math.isfinite(r.standardized) else math.nan for r in rows]
+        if not any(s >= SMALL_LOADING for s in sizes):
+            continue
+        out += [WeakItem(factor, r.variables[1], group, float(r.standardized)) for r, s in zip(rows, sizes)
+                if s < SMALL_LOADING]
+    return tuple(out)
+
+
+def weak_item_notes(weak: tuple[WeakItem, ...], judged, several_groups: bool) -> list[str]:
+    """A note on each weak item (``weak``) whose sign ran against the declared keying (``judged``: the groups'
+    reliability rows before the weak items were taken out of ``against_keying``, as (label, rows) pairs): what the
+    evidence is, a loading too small for its sign to say how the item is keyed, so a weak item, not a contradiction of
+    the keying (assessment.reliability.apart_from_weak_markers takes it out of the judgement)."""
+    out = []
+    labels = [label for label, _ in judged if label is not None]
+    for label, rows in judged:
+        against = {(r.factor, x) for r in rows for x in r.against_keying}
+        for w in weak:
+            if (w.group is None or w.group == label) and (w.factor, w.item) in against:
+                where = f" in group {written_group(label, labels)}" if several_groups and label is not None else ""
+                out.append(f"{w.item} hardly measures factor '{w.factor}'{where} (standardized loading "
+                           f"{'-' if w.standardized < 0 else ''}{loading_size(abs(w.standardized))}, below the "
+                           f"{loading_size(SMALL_LOADING)} in size that common practice reads as negligible): a weak "
+                           f"item, whose sign says nothing of how it is keyed, so it is not taken as evidence against "
+                           f"the declared keying; check whether {w.item} belongs to '{w.factor}'")
+    return out
 
 
 def weak_marker_problem(w: WeakMarker, several_groups: bool, turned_from: tuple[str, ...] = (),

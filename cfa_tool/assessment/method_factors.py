@@ -28,6 +28,7 @@ import numpy as np
 
 from cfa_tool.assessment.admissibility import Problem, ProblemKind
 from cfa_tool.language.names import reference_text
+from cfa_tool.numbers import rounded_number
 
 #: standardized loadings below this size (in absolute value) are read as negligible (common practice)
 SMALL_LOADING = 0.20
@@ -123,7 +124,10 @@ def weak_factor_problems(estimates, latent: tuple[str, ...], observed: tuple[str
 
 
 def loading_size(value: float) -> str:
-    """A loading's size as reports write it: '.19'."""
+    """A loading's size as reports write it: '.19'; one below .005 to two significant digits, never a rounded zero
+    ('.0044', the rule of reporting.numbers.est_unit)."""
+    if 0 < value < 0.005:
+        return rounded_number(value, 2).removeprefix("0")
     text = f"{value:.2f}"
     if float(text) >= SMALL_LOADING > value:  # .1996 is not '.20'
         text = f"{value:.3f}"

@@ -522,6 +522,15 @@ def miskeyed(r: FactorReliability) -> bool:
     return bool(r.against_keying) and not r.evenly_split
 
 
+#: why a factor's reliability coefficients are withheld where its loadings contradict the declared keying
+#: (:func:`miskeyed`): said by the report's table and written into the JSON beside the coefficients it withholds
+WITHHELD_BECAUSE = ("its loadings contradict the keying the model declares, so its keyed sum adds items that run "
+                    "against each other and its coefficients describe no scale")
+#: the coefficients of a factor's keyed sum that such a keying withholds (FactorReliability's fields)
+WITHHELD_COEFFICIENTS = ("omega", "omega_total", "omega_hierarchical", "composite_reliability", "alpha",
+                         "observed_sum_omega")
+
+
 def withheld_sums(problems) -> frozenset[tuple[str | None, str]]:
     """(group label, None with one group; factor) of each keyed sum whose reliability a fit withholds because its
     loadings contradict the declared keying (:func:`miskeyed`), read from the fit's problems (``problems``: its
@@ -534,10 +543,12 @@ def withheld_sums(problems) -> frozenset[tuple[str | None, str]]:
                      if p.kind is ProblemKind.KEYING_AGAINST_LOADINGS for label in p.parameters[:1])
 
 
-def _miskeyed_warning(r: FactorReliability) -> tuple[Note, Note]:
+def _miskeyed_warning(r: FactorReliability, standardized=None) -> tuple[Note, Note]:
     """(what is wrong, what to try) for a factor whose loadings contradict the declared keying (:func:`miskeyed`):
     its keyed sum adds items that run against each other, so its omega and alpha describe no scale.  The model
-    file's statement apart (note_parts.Command): a manuscript says it in words."""
+    file's statement apart (note_parts.Command): a manuscript says it in words.  ``standardized``: each item's
+    standardized loading on the factor, by item (None: not said), the evidence, said beside the items it judges
+    (s24: the caution did not say what its judgement rested on)."""
     declared = [x for x in r.against_keying if x in r.reversed]  # declared reversed, loading with the others
     undeclared = [x for x in r.against_keying if x not in r.reversed]  # loading against the others, not declared
     said = "; ".join(part for part in (
@@ -553,9 +564,26 @@ def _miskeyed_warning(r: FactorReliability) -> tuple[Note, Note]:
                  f"a higher '{r.factor}' means less of what its other items ask")
         turned = (f" The factor points the way of {', '.join(r.against_keying)} too: {lower}, and its correlations, "
                   f"mean differences and scores read the wrong way.")
+    evidence = ""
+    if standardized:
+        from cfa_tool.assessment.method_factors import loading_size
+
+        def shown(x: str) -> str:
+            v = standardized.get(x, math.nan)
+            return "" if not math.isfinite(v) else f"{'-' if v < 0 else ''}{loading_size(abs(v))}"
+
+        def listed(items) -> str:
+            return ", ".join(f"{x} {shown(x)}" for x in items)
+
+        plain = [x for x in r.items if x not in r.against_keying and x not in r.reversed and shown(x)]
+        as_declared = [x for x in r.items if x not in r.against_keying and x in r.reversed and shown(x)]
+        if all(shown(x) for x in r.against_keying) and (plain or as_declared):
+            evidence = (f" (standardized loadings: {listed(r.against_keying)}; of the other items "
+                        + "; ".join(part for part in (listed(plain), f"declared reversed: {listed(as_declared)}"
+                                                      if as_declared else "") if part) + ")")
     return (Note((f"The loadings of {', '.join(repr(x) for x in r.against_keying)} on factor '{r.factor}' point the "
                   f"other way from the keying the model declares", Command(REVERSED_STATEMENT),
-                  f": {said}; the factor's keyed sum adds items that run against each other, so its reliability "
+                  f": {said}{evidence}; the factor's keyed sum adds items that run against each other, so its reliability "
                   f"(omega, alpha) and its sum scores describe no scale.{turned}")),
             Note(("check the declared keying", Command(REVERSED_STATEMENT), " for a typing error (an item named in "
                   "place of another) and how the answers were coded, then fit again"
@@ -614,17 +642,18 @@ def _turned_warning(r: FactorReliability) -> tuple[str, Text]:
 
 
 def apart_from_weak_markers(rows, weak) -> tuple[FactorReliability, ...]:
-    """One group's reliability rows with the factors' weak markers (``weak``: assessment.markers.WeakMarker of that
-    group) taken out of ``against_keying``: the sign of a loading that small says nothing of how the item is keyed (a
-    random-answer item as the marker, hostile s23); the marker's own caution says what it does to the factor."""
+    """One group's reliability rows with the factors' weak markers and weak items (``weak``: assessment.markers
+    .WeakMarker or WeakItem of that group, each with its factor and item) taken out of ``against_keying``: the sign of
+    a loading that small says nothing of how the item is keyed (a random-answer item as the marker, hostile s23; a weak
+    item of either sign, s24); the marker's own caution and the weak item's note say what the evidence is."""
     if not weak:
         return tuple(rows)
-    marker = {w.factor: w.item for w in weak}
-    return tuple(replace(r, against_keying=tuple(x for x in r.against_keying if x != marker[r.factor]))
-                 if r.factor in marker and marker[r.factor] in r.against_keying else r for r in rows)
+    faint = {(w.factor, w.item) for w in weak}
+    return tuple(replace(r, against_keying=tuple(x for x in r.against_keying if (r.factor, x) not in faint))
+                 if any((r.factor, x) in faint for x in r.against_keying) else r for r in rows)
 
 
-def keying_problems(groups, weak=()) -> list:
+def keying_problems(groups, weak=(), estimates=()) -> list:
     """A caution, first in every view, for each factor of each group (``groups``: GroupResult, with their
     reliability rows) whose loadings contradict the keying a 'reversed' statement declares (new-user trial s17: a
     typing error in the statement gave omega .14 in a paste-ready paragraph, the contradiction only among the notes),
@@ -651,7 +680,9 @@ def keying_problems(groups, weak=()) -> list:
             marked.add(w.factor)
         for r in g.reliability:
             if miskeyed(r):
-                explanation, advice = _miskeyed_warning(r)
+                explanation, advice = _miskeyed_warning(r, {e.variables[1]: e.standardized for e in estimates
+                                                            if e.kind == "loading" and e.variables[0] == r.factor
+                                                            and e.group == g.label})
                 out.append(Problem(ProblemKind.KEYING_AGAINST_LOADINGS,
                                    tuple(reference_text("loading", (r.factor, x)) for x in r.against_keying), None,
                                    explanation, advice, label))

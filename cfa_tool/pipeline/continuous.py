@@ -30,6 +30,7 @@ from cfa_tool.data.kept_rows import RowNaming, rows_listed
 from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments, moments_with_gaps
 from cfa_tool.errors import CfaError, EstimationError, NotIdentified, OptionError
+from cfa_tool.language.names import written_group
 from cfa_tool.numbers import count_text
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
 from cfa_tool.estimation.optimizer import Outcome
@@ -426,10 +427,11 @@ def rows_left_out(groups, missing: MissingData | None,
     present rows) the rows that answered none of the model variables, in a note naming the first of them."""
     cautions: list[Problem] = []
     notes: list[str] = []
+    labels = [g[0] for g in groups if g[0] is not None]  # each named by the one rule of group names among them
     for label, dropped, read, analysed, *named in groups:
         if not dropped:
             continue
-        where = f" in group '{label}'" if label is not None else ""
+        where = f" in group {written_group(label, labels)}" if label is not None else ""
         if missing is MissingData.LISTWISE or missing is None:
             caution = listwise_problem(dropped, read, where, instead)
             if caution is not None:
@@ -597,7 +599,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             )
         )
     for g, result in enumerate(group_results):
-        warnings.extend(keying_warnings(result.reliability, f"group '{table.groups[g]}': " if multi else ""))
+        warnings.extend(keying_warnings(result.reliability,
+                                        f"group {written_group(table.groups[g], table.groups)}: " if multi else ""))
     first = groups[0][1]
     if multi:
         pooled_cov, pooled_mean = pooled([m for _, m in groups])

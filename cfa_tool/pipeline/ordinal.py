@@ -27,6 +27,7 @@ from cfa_tool.assessment.modification import (ModificationIndices, candidate_arr
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.errors import CfaError, ModelError, NotIdentified, OptionError
+from cfa_tool.language.names import written_group
 from cfa_tool.numbers import count_text
 from cfa_tool.estimation.least_squares import MixedLeastSquares, OrdinalLeastSquares, group_statistics
 from cfa_tool.estimation.optimizer import Outcome
@@ -578,7 +579,8 @@ def _unit_variance_entries(table: ParameterTable, unit_variances: tuple[np.ndarr
 
 def _unit_variance_note(table: ParameterTable, unit_variances: tuple[np.ndarray, ...]) -> str:
     """What the metric of a multi-group ordinal fit is where latent responses were held at variance 1."""
-    held = "; ".join(f"{', '.join(table.observed[j] for j in np.flatnonzero(u))} in group {table.groups[g]}"
+    held = "; ".join(f"{', '.join(table.observed[j] for j in np.flatnonzero(u))} in group "
+                     f"{written_group(table.groups[g], table.groups)}"
                      for g, u in enumerate(unit_variances) if u.any())
     return (f"Latent responses held at variance 1 rather than residual variance 1 (the same model in the correlation "
             f"metric of a one-group fit): {held}. With residual variance 1 the estimates grew without bound towards a "
@@ -658,8 +660,9 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
     warnings = []
     dropped = sum(m.rows_dropped for m in moments)
     model_order = list(range(p))  # the groups' moments are in model order
+    labels = [label for label, _ in groups]  # each named by the one rule of group names among them
     for (label, _), m in zip(groups, moments):
-        warnings.extend(_rows_notes(m, model_order, f" in group {label}"))
+        warnings.extend(_rows_notes(m, model_order, f" in group {written_group(label, labels)}"))
     fit = robust = inference = None
     modification_rows = ModificationIndices()
     shares = [None] * G
@@ -709,7 +712,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         warnings.append(ORDINAL_NOTE)
     small, small_notes = group_size_problems(table, [m.n_obs for m in moments])
     warnings.extend(small_notes)
-    left_out = sum((_left_out(m, f" in group {label}") for (label, _), m in zip(groups, moments)), ())
+    left_out = sum((_left_out(m, f" in group {written_group(label, labels)}") for (label, _), m in zip(groups, moments)),
+                   ())
     problems = left_out + small + tuple(solution_problems(
         table, list(mats), theta, cov_theta if est.converged else None, est.converged, est.message, options.max_iterations))
     estimates = estimate_rows(table, values, inference, standardized, factors_standardized, derived)
@@ -732,7 +736,7 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
                                           {table.observed[j]: np.asarray(mg.categories[j], float) for j in ordinal_items},
                                           mats[g].implied_mean())
         if est.converged:
-            warnings.extend(keying_warnings(factors, f"group {lab}: "))
+            warnings.extend(keying_warnings(factors, f"group {written_group(lab, labels)}: "))
         group_results.append(GroupResult(label=lab, data=summary, chi_square=shares[g], srmr=srmrs[g],
                                          r_squared=dict(zip(table.observed, (float(v) for v in r_squared(mats[g])))),
                                          sample_covariance=mg.correlations, implied_covariance=rho,

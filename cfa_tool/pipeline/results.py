@@ -444,7 +444,16 @@ class GroupResult:
     latent_covariance: np.ndarray | None = field(repr=False, default=None)
 
     def reliability_dict(self) -> dict:
-        return {"factors": factor_dicts(self.reliability), "htmt": [clean(h.to_dict()) for h in self.htmt]}
+        """The reliability rows as JSON; a factor whose loadings contradict the declared keying (reliability.miskeyed)
+        has its coefficients withheld, null with the reason beside them, as every view withholds them (s24: the JSON
+        and the report's table gave the omega the methods paragraph and the scores withhold)."""
+        from cfa_tool.assessment.reliability import WITHHELD_BECAUSE, WITHHELD_COEFFICIENTS, miskeyed
+
+        factors = factor_dicts(self.reliability)
+        for d, r in zip(factors, self.reliability):
+            if miskeyed(r):
+                d.update({key: None for key in WITHHELD_COEFFICIENTS if key in d}, withheld=WITHHELD_BECAUSE)
+        return {"factors": factors, "htmt": [clean(h.to_dict()) for h in self.htmt]}
 
 
     def diagnostics_dict(self, naming: RowNaming = RowNaming.FILE_ROW) -> dict:
@@ -732,17 +741,21 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
 
         from cfa_tool.assessment.admissibility import poor_fit_problems, uninformative_baseline_problems
 
-        from cfa_tool.assessment.markers import weak_markers
+        from cfa_tool.assessment.markers import weak_item_notes, weak_items, weak_markers
 
         weak = weak_markers(estimates, spec.exploratory_factors)  # markers that hardly measure their factors
-        if weak:  # their signs judge no keying (assessment.reliability.apart_from_weak_markers)
+        faint = weak_items(estimates, spec.exploratory_factors)  # items that hardly measure theirs, markers too
+        if weak or faint:  # their signs judge no keying (assessment.reliability.apart_from_weak_markers)
             from dataclasses import replace
 
+            warnings = tuple(warnings) + tuple(weak_item_notes(
+                tuple(w for w in faint if (w.group, w.factor, w.item) not in {(m.group, m.factor, m.item) for m in weak}),
+                [(g.label, g.reliability) for g in groups], len(groups) > 1))
             groups = tuple(replace(g, reliability=apart_from_weak_markers(
-                g.reliability, [w for w in weak if w.group is None or w.group == g.label])) for g in groups)
+                g.reliability, [w for w in weak + faint if w.group is None or w.group == g.label])) for g in groups)
         problems = tuple(problems) + tuple(weak_factor_problems(estimates, latent, observed, groups, spec.method_factors,
                                                                 spec.exploratory_factors)) + tuple(
-            keying_problems(groups, weak))
+            keying_problems(groups, weak, estimates))
         if fit is not None:
             problems += uninformative_baseline_problems(fit, robust, n_obs, max(len(groups), 1))
             problems += poor_fit_problems(IndicesToRead.of(fit, robust))

@@ -775,7 +775,7 @@ def _draw(result, group: int) -> Drawing:
     methods = _method_factors(result)
     parts: list[str] = []
     drawn: set[Drawn] = set()
-    named, head, lay.width = _group_name(label, lay.width)  # the group is named on its own diagram
+    named, head, lay.width = _group_name(result, group, lay.width)  # the group is named on its own diagram
     parts += named
     parts.append(f'<g transform="translate(0,{head:.0f})">')
     y = lay.table_top
@@ -903,13 +903,17 @@ def _draw(result, group: int) -> Drawing:
 GROUP_NAME_SIZE = 15  # font size of a group's name over its drawing
 
 
-def _group_name(label, width: float) -> tuple[list[str], float, float]:
-    """A group's name over its drawing ('Group north'; nothing without groups): its texts, the height they take and
-    the drawing's width, widened to hold the name up to ``MAX_WIDTH``; a name longer than that goes on in lines under
-    it (a group label of 88 characters had run 137 units past a drawing 767 wide, out of the picture)."""
-    if label is None:
+def _group_name(result, group: int, width: float) -> tuple[list[str], float, float]:
+    """Group ``group``'s name over its drawing ('Group north', 'Group "east side"' among labels one of which needs
+    quotes: the one rule of the report's group names, paragraph.group_words, as the figure's title names it; s23:
+    the label bare; nothing without groups): its texts, the height they take and the drawing's width, widened to hold
+    the name up to ``MAX_WIDTH``; a name longer than that goes on in lines under it (a group label of 88 characters had
+    run 137 units past a drawing 767 wide, out of the picture)."""
+    from cfa_tool.reporting.paragraph import group_words
+
+    if result.groups[group].label is None:
         return [], 0.0, width
-    text = f"Group {printable(label)}"
+    text = f"Group {printable(group_words(result, group))}"
     lines = wrapped(text, GROUP_NAME_SIZE, MAX_WIDTH - 2 * MARGIN, bold=True)
     width = max(width, min(MAX_WIDTH, 2 * MARGIN + max(text_width(line, GROUP_NAME_SIZE, bold=True) for line in lines)))
     parts = [f'<text class="group-name" x="{MARGIN:.1f}" y="{20 + 18 * k}" font-size="{GROUP_NAME_SIZE}" '
@@ -1388,11 +1392,10 @@ def _side_ports(covariances, side: _Side) -> dict:
 
 def _draw_sideways(result, group: int, rows, side: _Side, flagged) -> Drawing:
     """One group's drawing laid out by ``_sideways``."""
-    label = result.groups[group].label
     r_squared = result.groups[group].r_squared
     parts: list[str] = []
     drawn: set[Drawn] = set()
-    named, head, side.width = _group_name(label, side.width)
+    named, head, side.width = _group_name(result, group, side.width)
     parts += named
     parts.append(f'<g transform="translate(0,{head:.0f})">')
     x, y = side.x, side.y

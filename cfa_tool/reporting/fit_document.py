@@ -9,11 +9,10 @@ from dataclasses import replace
 from functools import partial
 
 from cfa_tool.numbers import count_text
-from cfa_tool.language.names import written_group
 from cfa_tool.note_parts import joined
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Figure, Listing, Report, ResultKind, in_section
-from cfa_tool.reporting.paragraph import group_labels, methods_paragraph
+from cfa_tool.reporting.paragraph import group_words, methods_paragraph
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable
 
 NOT_CONVERGED = "The estimation did not converge: nothing in this report is a result."
@@ -48,13 +47,6 @@ def fit_tables(result) -> list[ReportTable]:
         data += of_group(result, g, [T.correlation_table(result, g)])
     out += in_section("Data", data + T.label_tables(result))
     return out
-
-
-def group_words(result, g: int) -> str:
-    """Group ``g`` of ``result`` as its headings and titles name it: by the one rule of every text of the report
-    (language.names.written_group among the fit's groups: 'North', or '"South side"' with every label quoted when
-    one needs it; s23: the headings wrote the label bare beside the quoted one of the notes)."""
-    return written_group(result.groups[g].label, group_labels(result))
 
 
 def of_group(result, g: int, tables) -> list[ReportTable]:

@@ -122,7 +122,7 @@ def report_html_fragment(report, heading: bool = False) -> str:
     (cfa_tool.note_parts)."""
     import base64
 
-    view = titled(report.tables)
+    view = titled(report.tables, running=report.kind.value)  # its own command not advised in it
     parts = [notice_html(report.notice, view)] + ([f"<h1>{esc(report.title)}</h1>"] if heading else [])
     parts += [f'<p class="note">{esc(printed_line(line, view))}</p>' for line in report.lines]
     if report.warnings:

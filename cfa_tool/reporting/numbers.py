@@ -7,6 +7,7 @@ import re
 
 from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.note_parts import Command, Note, Text, View, said
+from cfa_tool import numbers as _shared
 from cfa_tool.numbers import rounded_number, user_number
 from cfa_tool.numerics.plain import decimals_beside
 
@@ -48,6 +49,10 @@ def est_unit(value, digits: int = 2) -> str:
         text = rounded_number(value, 2)
         return text[1:] if text.startswith("0.") else "-" + text[2:]
     return unit(value, digits)
+
+#: words joined as a sentence lists them ('a, b, and c'): the one list rule, declared in cfa_tool.numbers for the
+#: workflows' notes too
+word_list = _shared.word_list
 
 
 def needed_decimals(value: float, fewest: int = 0, most: int = 9, within: float = 0.0) -> int:
@@ -93,19 +98,25 @@ def fit_index_text(index: str, value, digits: int = 3) -> str:
 
 
 # The one typographic rule of the views a reader prints (the Word file, the HTML page, the path diagram that both
-# show): a minus sign before a number is the true minus (U+2212, which is as wide as a plus and after which no line
-# breaks, where a hyphen-minus is narrower and may end a line), and a relation written with two characters before a
+# show): a minus sign before a number, and the minus of a formula, is the true minus (U+2212, which is as wide as a
+# plus and after which no line breaks, where a hyphen-minus is narrower and may end a line), and a relation written with two characters before a
 # number is its mathematical sign ('>= .95' as '\u2265 .95').  Values are formatted once, with the plain hyphen-minus
 # (:func:`unit`, :func:`num`): the terminal, Markdown and the data files (CSV, where '\u2212.63' would not read as a
 # number) keep them so, and the printed views pass their text through :func:`printed`.
 _MINUS = re.compile(r"(?<![\w.\u2212])-(?=[\d.])")  # a hyphen before a number that is not inside a word
+# ... and the minus of a formula ('1 - (RMSEA / baseline RMSEA)\u00b2', '1 + (m - 1) ICC', 'N F - c df'): a hyphen
+# between spaces with an operand on each side, a number, a bracket, a square or a one-letter symbol, never a word
+# (so that a name such as 'wave - two' keeps its hyphen)
+_OPERATOR_MINUS = re.compile(r"((?<![\w.])[A-Za-z]|[\d)\u00b2]) - (?=(?:[A-Za-z](?![\w'])|[\d(.]))")
 _RELATION = re.compile(r"(?<![<>=!])([<>])=(?=\s?[\d.\u2212-])")  # '>= .95', '(RMSEA <= .05)'
 PRINTED_RELATIONS = {">": "\u2265", "<": "\u2264"}
 
 
 def printed(text: str) -> str:
-    """``text`` as a printed view sets it (the rule above): '-.63' as '\u2212.63', '>= .95' as '\u2265 .95'."""
-    return _RELATION.sub(lambda m: PRINTED_RELATIONS[m.group(1)], _MINUS.sub("\u2212", text))
+    """``text`` as a printed view sets it (the rule above): '-.63' as '\u2212.63', '1 - (a / b)' as '1 \u2212 (a / b)',
+    '>= .95' as '\u2265 .95'."""
+    text = _OPERATOR_MINUS.sub("\\1 \u2212 ", _MINUS.sub("\u2212", text))
+    return _RELATION.sub(lambda m: PRINTED_RELATIONS[m.group(1)], text)
 
 
 def printed_line(text: Text, view: View) -> str:
@@ -178,11 +189,3 @@ def short(value) -> str:
         return ""
     text = user_number(value)
     return text[1:] if text.startswith("0.") else ("-" + text[2:] if text.startswith("-0.") else text)
-
-
-def word_list(words) -> str:
-    """Words joined as a sentence lists them: 'a', 'a and b', 'a, b, and c'."""
-    words = list(words)
-    if len(words) <= 2:
-        return " and ".join(words)
-    return ", ".join(words[:-1]) + ", and " + words[-1]

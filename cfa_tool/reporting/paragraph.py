@@ -33,7 +33,8 @@ from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words, split_label
 from cfa_tool.note_parts import WORDS as MANUSCRIPT, said as said_in  # ('said' names sentences here)
-from cfa_tool.reporting.numbers import fit_index_text, guides_text, missing, num, p_phrase, signed, unit
+from cfa_tool.reporting.numbers import (est_num, est_unit, fit_index_text, guides_text, missing, num, p_phrase, short,
+                                        signed, unit)
 from cfa_tool.reporting.numbers import word_list as _list
 
 CHI = "\u03c7\u00b2"
@@ -77,6 +78,13 @@ def group_labels(result) -> tuple[str, ...]:
     """The group labels of a fit in groups (empty for one group), among which every text names each group
     (language.names.written_group)."""
     return tuple(g.label for g in result.groups) if getattr(result, "multigroup", False) else ()
+
+
+def group_words(result, g: int) -> str:
+    """Group ``g`` of ``result`` as its headings and titles name it: by the one rule of every text of the report
+    (language.names.written_group among the fit's groups: 'North', or '"South side"' with every label quoted when
+    one needs it; s23: the headings wrote the label bare beside the quoted one of the notes)."""
+    return written_group(result.groups[g].label, group_labels(result))
 
 
 def _phrase(problem, result) -> str:
@@ -660,7 +668,7 @@ def _range(values: list[float], one: str, many: str) -> str:
     """'{many} ranged from a to b' (in absolute value when some are negative), or '{one} was a' for one value: the
     subject in the number of its verb (s23: 'The standardized loadings ... was 1.00')."""
     if len(values) == 1:
-        return f"{one} was {unit(values[0], 2)}"
+        return f"{one} was {est_unit(values[0], 2)}"
     return f"{many} {_spread(values)}"
 
 
@@ -668,8 +676,8 @@ def _spread(values: list[float]) -> str:
     """'ranged from a to b' of several values, in absolute value when some are negative."""
     if any(v < 0 for v in values):
         sizes = [abs(v) for v in values]
-        return f"ranged from {unit(min(sizes), 2)} to {unit(max(sizes), 2)} in absolute value"
-    return f"ranged from {unit(min(values), 2)} to {unit(max(values), 2)}"
+        return f"ranged from {est_unit(min(sizes), 2)} to {est_unit(max(sizes), 2)} in absolute value"
+    return f"ranged from {est_unit(min(values), 2)} to {est_unit(max(values), 2)}"
 
 
 def _capital(text: str) -> str:
@@ -1187,7 +1195,7 @@ def _reliability_sentence(result) -> str:
                       and r.bifactor is None and shown(r.omega)]
         parts = []
         if found:
-            values = _list([f"{unit(r.observed_sum_omega, 2)} for {_name(r.factor)}" for r in found])
+            values = _list([f"{est_unit(r.observed_sum_omega, 2)} for {_name(r.factor)}" for r in found])
             parts.append(f"The reliability of the factors' keyed sums of the answers' codes (the omega of the observed "
                          f"sum, from the fitted thresholds, loadings and factor variances; Green & Yang, 2009) was "
                          f"{values}{_keyed_sum_words(found)}.")
@@ -1196,7 +1204,7 @@ def _reliability_sentence(result) -> str:
                          f"sum of the answers' codes of the items below it, the share of that sum's variance due to the "
                          f"higher-order factor alone (from the fitted thresholds, "
                          f"loadings and factor variances; Green & Yang, 2009; Zinbarg, Revelle, Yovel & Li, 2005), was "
-                         f"{_list([f'{unit(r.observed_sum_omega, 2)} for {_name(r.factor)}' for r in above])}"
+                         f"{_list([f'{est_unit(r.observed_sum_omega, 2)} for {_name(r.factor)}' for r in above])}"
                          f"{_keyed_sum_words(above)}.")
         general = [r for r in parts_of if r.bifactor is BifactorPart.GENERAL]
         specific = [r for r in parts_of if r.bifactor is BifactorPart.SPECIFIC]
@@ -1205,15 +1213,15 @@ def _reliability_sentence(result) -> str:
                          f"hierarchical of the keyed sum of the answers' codes, the share of that sum's variance due to "
                          f"the general factor alone (from the fitted thresholds, loadings and factor variances; Green & "
                          f"Yang, 2009; Rodriguez, Reise & Haviland, 2016), was "
-                         f"{_list([f'{unit(r.observed_sum_omega, 2)} for {_name(r.factor)}' for r in general])}"
+                         f"{_list([f'{est_unit(r.observed_sum_omega, 2)} for {_name(r.factor)}' for r in general])}"
                          f"{_keyed_sum_words(general)}.")
         if specific:
             parts.append(f"Omega hierarchical subscale of the keyed subscale sum of the answers' codes, the share due "
                          f"to a specific factor beyond the general factor (Rodriguez, Reise & Haviland, 2016), was "
-                         f"{_list([f'{unit(r.observed_sum_omega, 2)} for {_name(r.factor)}' for r in specific])}"
+                         f"{_list([f'{est_unit(r.observed_sum_omega, 2)} for {_name(r.factor)}' for r in specific])}"
                          f"{_keyed_sum_words(specific)}.")
         if continuous:
-            values = _list([f"{unit(r.omega, 2)} for {_name(r.factor)}" for r in continuous])
+            values = _list([f"{est_unit(r.omega, 2)} for {_name(r.factor)}" for r in continuous])
             parts.append(f"For the keyed sum scores of the factors of continuous items, omega (McDonald, 1999) was "
                          f"{values}{_keyed_sum_words(continuous)}.")
         if mixed:  # the table's note says it; the paragraph too (hostile s22: the paragraph said nothing of them)
@@ -1226,19 +1234,19 @@ def _reliability_sentence(result) -> str:
     parts = []
     if first:
         parts.append(f"omega (McDonald, 1999) was "
-                     f"{_list([f'{unit(r.omega, 2)}{_delta_brackets(r)} for {_name(r.factor)}' for r in first])}")
+                     f"{_list([f'{est_unit(r.omega, 2)}{_delta_brackets(r)} for {_name(r.factor)}' for r in first])}")
     if higher:
         general = any(r.bifactor is BifactorPart.GENERAL for r in higher)
         parts.append("omega hierarchical (Zinbarg, Revelle, Yovel & Li, 2005"
                      + ("; Rodriguez, Reise & Haviland, 2016" if general else "") + ") was "
-                     + _list([f"{unit(r.omega_hierarchical, 2)}{_delta_brackets(r)} for {_name(r.factor)}"
+                     + _list([f"{est_unit(r.omega_hierarchical, 2)}{_delta_brackets(r)} for {_name(r.factor)}"
                               for r in higher]))
     if any(_delta_brackets(r) for r in first + higher):  # relint-s24: the delta-method intervals the table shows
         parts[-1] += " (in brackets, 95% delta-method intervals; Raykov, 2002)"
     if specific:
         parts.append("omega hierarchical subscale, the share of a specific factor's keyed subscale sum due to that "
                      "factor beyond the general factor (Rodriguez, Reise & Haviland, 2016), was "
-                     + _list([f"{unit(r.omega, 2)} for {_name(r.factor)}" for r in specific]))
+                     + _list([f"{est_unit(r.omega, 2)} for {_name(r.factor)}" for r in specific]))
     if not parts:
         return ""
     return (f"For the reliability of the factors' keyed sum scores, {'; '.join(parts)}"
@@ -1471,11 +1479,11 @@ def methods_paragraph(result) -> str:
         negative = sum(v < 0 for v in loadings)
         if negative:  # reverse-keyed items: a range from -.76 to .81 would read as if -.76 were the weakest
             sizes = [abs(v) for v in loadings]
-            parts.append(f"Standardized loadings {which}ranged from {unit(min(sizes), 2)} to {unit(max(sizes), 2)} in "
+            parts.append(f"Standardized loadings {which}ranged from {est_unit(min(sizes), 2)} to {est_unit(max(sizes), 2)} in "
                          f"absolute value{across} ({_negative_count(item_loadings, groups)}).")
         else:
-            parts.append(f"Standardized loadings {which}ranged from {unit(min(loadings), 2)} to "
-                         f"{unit(max(loadings), 2)}{across}.")
+            parts.append(f"Standardized loadings {which}ranged from {est_unit(min(loadings), 2)} to "
+                         f"{est_unit(max(loadings), 2)}{across}.")
     for factor in sorted(methods):  # apart from the traits' loadings, which they would otherwise widen
         items = _method_items(result, factor)
         on_factor = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[0] == factor
@@ -1495,18 +1503,18 @@ def methods_paragraph(result) -> str:
     correlated = [r for r in result.estimates if r.kind == "factor_covariance" and r.free]
     corr = [r.standardized for r in correlated]
     if len(corr) > len(groups) and groups:  # each group's correlations, standardized in its own group
-        parts.append(f"Factor correlations ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}{across}.")
+        parts.append(f"Factor correlations ranged from {est_unit(min(corr), 2)} to {est_unit(max(corr), 2)}{across}.")
     elif corr and groups:
-        parts.append(f"The factor correlation ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}{across}.")
+        parts.append(f"The factor correlation ranged from {est_unit(min(corr), 2)} to {est_unit(max(corr), 2)}{across}.")
     if corr and not result.multigroup:
         which = " of the confirmatory factors" if blocks else ""
         if higher and all(set(r.variables) <= higher for r in correlated):
             which = " of the higher-order factors" + (f" ({_names(sorted(higher))})" if len(corr) == 1 else "")
         if len(corr) == 1:
             parts.append(f"The {'' if which.startswith(' of the higher') else 'factor '}correlation{which} was "
-                         f"{unit(corr[0], 2)}.")
+                         f"{est_unit(corr[0], 2)}.")
         else:
-            parts.append(f"Factor correlations{which} ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}.")
+            parts.append(f"Factor correlations{which} ranged from {est_unit(min(corr), 2)} to {est_unit(max(corr), 2)}.")
     reliability = _reliability_sentence(result)
     if reliability:
         parts.append(reliability)
@@ -1518,7 +1526,7 @@ def methods_paragraph(result) -> str:
 
 def _values_of(factors, values) -> str:
     """'.93 for punctuality, .88 for comfort, and .90 for courtesy' (values missing for a factor left out)."""
-    return _list([f"{unit(v, 2)} for {_name(f)}" for f, v in zip(factors, values) if not math.isnan(v)])
+    return _list([f"{est_unit(v, 2)} for {_name(f)}" for f, v in zip(factors, values) if not math.isnan(v)])
 
 
 def _items_of_factors(fit) -> dict[str, set[str]]:
@@ -2087,7 +2095,8 @@ def invariance_paragraph(result, levels) -> str:
     parts += _design_sentences([s.result for s in steps])
     methods = sorted({s.versus_previous.method for s in steps[1:] if s.versus_previous is not None
                       and not s.versus_previous.not_computed}, key=_PREFERRED.index)
-    rule = result.rule.description.replace("alpha", unit(result.alpha, 2)).replace(">=", "\u2265")
+    # the level as the user gave it (reporting.numbers.short: .005 is not '.01')
+    rule = result.rule.description.replace("alpha", short(result.alpha)).replace(">=", "\u2265")
     parts.append("The configural model was judged by its own fit against conventional guide values ("
                  f"{guides_text(CONFIGURAL_INDICES, signs=True)}; Hu & Bentler, 1999); each later model by "
                  f"{rule}" + (f", the difference test being {_list([m.phrase for m in methods])}" if methods else "")
@@ -2149,9 +2158,9 @@ def invariance_paragraph(result, levels) -> str:
                      f"that did not hold, so {'they compare' if len(conditional) > 1 else 'it compares'} models "
                      f"already rejected.")
     if result.latent_differences:
-        diffs = "; ".join(f"{_name(x.factor)} in group {written_group(x.group, result.groups)}, {num(x.mean, 2)} "
-                          f"(SE = {num(x.se, 2)}, {_p(x.p_value)}, "
-                          f"d = {num(x.standardized, 2)})" for x in result.latent_differences)
+        diffs = "; ".join(f"{_name(x.factor)} in group {written_group(x.group, result.groups)}, {est_num(x.mean, 2)} "
+                          f"(SE = {est_num(x.se, 2)}, {_p(x.p_value)}, "
+                          f"d = {est_num(x.standardized, 2)})" for x in result.latent_differences)
         scalar = next(k for k, s in enumerate(steps) if s.level == "scalar")
         basis = _basis(steps, scalar)
         source = (f"atent mean differences from the "
@@ -2310,8 +2319,8 @@ def _replication_sentences(rep, lead: str, test: bool = True) -> list[str]:
     pairs = _loading_pairs(rep) if rep.loose.converged else []
     if pairs:
         (factor, item), a, b = max(pairs, key=lambda k: abs(k[2] - k[1]))
-        parts.append(f"Standardized loadings differed between the samples by at most {unit(abs(b - a), 2)} "
-                     f"({_name(item)} on {_name(factor)}: {unit(a, 2)} and {unit(b, 2)}).")
+        parts.append(f"Standardized loadings differed between the samples by at most {est_unit(abs(b - a), 2)} "
+                     f"({_name(item)} on {_name(factor)}: {est_unit(a, 2)} and {est_unit(b, 2)}).")
         reversed_ = reversed_loadings(rep)
         if reversed_:  # said in the manuscript too: the test above fails for the coding (hostile s20)
             parts.append(f"The loading{'s' if len(reversed_) > 1 else ''} of "

@@ -796,7 +796,7 @@ def _with_precision_problems(result):
                  for line in precision_cautions(result))
     pairs = _indistinct_pairs(result)
     said += tuple(Problem(ProblemKind.SCORED_FACTORS_HARDLY_DISTINCT, (), None, line,
-                          Note(("compare a model in which they are one factor", Command(" (cfa-tool compare)"),
+                          Note(("compare a model in which they are one factor", Command(" (cfa-tool compare)", runs="compare"),
                                 " before handing their scores out as two traits.")))
                   for _, _, _, line in pairs)
     # the fit's own caution on a pair the scores' caution names says it again: the scores' words stand for both

@@ -11,7 +11,7 @@ from cfa_tool.numbers import count_text, counted, cut_list, user_number
 from cfa_tool.assessment.admissibility import ProblemKind, solution_first
 from cfa_tool.assessment.identification import JUST_IDENTIFIED
 from cfa_tool.assessment.fit_indices import TLI_NOT_CUT
-from cfa_tool.assessment.reliability import BifactorPart, Keying
+from cfa_tool.assessment.reliability import WITHHELD_BECAUSE, BifactorPart, Keying, miskeyed
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST, Items, MissingData, WeightKind
@@ -873,7 +873,7 @@ def full_information_score_tests(helpers: bool) -> Text:
         return (said + "refitting with the parameter freed and the same missing-data helpers and taking the difference "
                 "of the two chi-squares tests it when they are missing at random.")
     # the command's name is advice to the program's user: the Word file says the test in words (advice-s16's rule)
-    return Note((said + "freeing a parameter and comparing the two fits", Command(" ('cfa-tool compare')"),
+    return Note((said + "freeing a parameter and comparing the two fits", Command(" ('cfa-tool compare')", runs="compare"),
                  " tests it when they are missing at random."))
 
 
@@ -988,6 +988,14 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
         values = [row[:1] + [r.bifactor.value if r.bifactor is not None else None] + row[1:]
                   for row, r in zip(values, rows)]
         note += " " + bifactor_reliability_sentence(rows)
+    withheld = [k for k, r in enumerate(rows) if miskeyed(r)]  # the one rule that withholds them (every view's)
+    if withheld:
+        for k in withheld:  # every coefficient of the keyed sum; the factor and its count of items stay
+            body[k] = body[k][:2] + ["withheld"] * (len(body[k]) - 2)
+            values[k] = values[k][:len(values[k]) - len(body[k]) + 2] + [None] * (len(body[k]) - 2)
+        named = [rows[k].factor for k in withheld]
+        note += (f" Withheld for {word_list(named)} (see the caution on the keying above): "
+                 f"{'for each, ' if len(named) > 1 else ''}{WITHHELD_BECAUSE}.")
     single = one_item_factors(result.estimates, result.observed)
     note += one_item_sentence(single, "reliability coefficients",
                               f"no coefficients are shown, and {'it takes' if len(single) == 1 else 'they take'} no "

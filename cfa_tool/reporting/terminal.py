@@ -260,7 +260,7 @@ def render_report(report, console: Console) -> None:
     """Any command's report (cfa_tool.reporting.document.Report): the problems first, then what was done, the
     tables, the notes and the cautions.  A note's advice names its command (the reader runs the program), and a
     table it refers to is named by its title (cfa_tool.note_parts)."""
-    view = titled(report.tables)
+    view = titled(report.tables, running=report.kind.value)  # its own command not advised in it
     if report.notice is not None:
         console.print(problem_panel(report.notice, view))
         console.print()

@@ -103,7 +103,7 @@ def report_markdown(report) -> str:
     names its command (the reader runs the program), and a table it refers to is named by its title
     (cfa_tool.note_parts); the user's files by their names, not their folders (document.by_file_name)."""
     report = by_file_name(report)
-    view = titled(report.tables)
+    view = titled(report.tables, running=report.kind.value)  # its own command not advised in it
     parts = []
     if report.notice is not None:
         parts += [f"## {markdown_text(report.notice.heading)}", ""] + [f"- {markdown_text(said(line, view))}"

@@ -87,14 +87,11 @@ def _failed_lines(named_results) -> list[Text]:
 
 
 #: the cautions on a solution that is admissible but needs care in reading, which every view of several solutions (a
-#: comparison, a ladder, a replication) says first, as fit does: a method factor that carries next to nothing, a
-#: standardized loading above 1, two factors that correlate nearly 1 (s23: a ladder and a comparison left out the .954
-#: that fit put first), fewer rows than free parameters, a keying the loadings contradict, a factor pointing against its
-#: items, a robust test whose scaling factor is not positive
-SOLUTION_CAUTIONS = (ProblemKind.WEAK_METHOD_FACTOR, ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE,
-                     ProblemKind.FACTORS_HARDLY_DISTINCT, ProblemKind.SMALL_SAMPLE, ProblemKind.KEYING_AGAINST_LOADINGS,
-                     ProblemKind.FACTOR_POINTS_AGAINST_ITEMS, ProblemKind.WEAK_MARKER,
-                     ProblemKind.SCALED_TEST_NOT_COMPUTED)
+#: comparison, a ladder, a replication) says first, as fit does: the kinds declared so (ProblemKind.solution_caution:
+#: a method factor that carries next to nothing, a standardized loading above 1, two factors that correlate nearly 1,
+#: fewer rows than free parameters, a keying the loadings contradict, a factor pointing against its items, a weak
+#: marker, a robust test whose scaling factor is not positive)
+SOLUTION_CAUTIONS = tuple(kind for kind in ProblemKind if kind.solution_caution)
 
 
 def _ladder_caution_lines(named_steps) -> list[Text]:

@@ -52,8 +52,10 @@ from cfa_tool.data.groups import reference_rule
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
+from cfa_tool.language.names import written_group
 from cfa_tool.language.spec import ScaleSetting, Spec
 from cfa_tool.method import ALIGNMENT_FLAG_LEVEL, ALIGNMENT_TRIALS, ReferenceMean
+from cfa_tool.numbers import word_list
 from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
@@ -680,9 +682,9 @@ def _align(spec: Spec, frame: pd.DataFrame, source: str, group: str, reference_g
         blocks = np.stack([covariance[np.ix_(row, row)] for row in index])
         signs = orientation(loadings)
         if (signs < 0).any():
+            turned = [written_group(labels[g], labels) for g in np.flatnonzero(signs < 0)]  # the one rule of each
             notes.append(f"the configural solution has factor {name} turned round (its loadings negative) in group"
-                         f"{'s' if (signs < 0).sum() > 1 else ''} "
-                         f"{', '.join(labels[g] for g in np.flatnonzero(signs < 0))}; it was turned back (loadings "
+                         f"{'s' if len(turned) > 1 else ''} {word_list(turned)}; it was turned back (loadings "
                          f"and factor reversed), which leaves the model unchanged")
         loadings, blocks = loadings * signs[:, None], _reflect_blocks(blocks, signs)
         problem = FactorProblem(loadings, intercepts, sizes, variant is ReferenceMean.ESTIMATED)
@@ -792,7 +794,8 @@ def _layout(spec: Spec, table) -> _Layout:
                 if p.free or p.offset != wanted:
                     raise OptionError(f"alignment starts from every factor's variance 1 and mean 0 in every group, and the "
                                       f"model sets the {key[0].replace('factor_', '')} of {name} in group "
-                                      f"'{table.groups[g]}' otherwise; remove the statement that sets it")
+                                      f"{written_group(table.groups[g], table.groups)} otherwise; remove the statement "
+                                      f"that sets it")
         rows = []
         for kind, variables in (("loading", lambda x: (name, x)), ("intercept", lambda x: (x,))):
             index = np.empty((table.n_groups, len(names)), dtype=int)
@@ -801,7 +804,8 @@ def _layout(spec: Spec, table) -> _Layout:
                     p = by_key[(g, kind, variables(x))]
                     if len(p.terms) != 1 or p.terms[0][1] != 1.0 or p.offset != 0.0 or counts[p.terms[0][0]] != 1:
                         raise OptionError(f"alignment needs every loading and intercept free in every group, and the model "
-                                          f"fixes or ties {p.label} (group '{table.groups[g]}'); remove that statement")
+                                          f"fixes or ties {p.label} (group {written_group(table.groups[g], table.groups)}); "
+                                          f"remove that statement")
                     index[g, i] = p.terms[0][0]
             rows.append(index)
         factors.append(name)

@@ -213,7 +213,8 @@ def test_declared_keying_takes_precedence_and_a_contradiction_is_named(keyed_sca
     [problem] = [p for p in result.problems if p.kind is ProblemKind.KEYING_AGAINST_LOADINGS]
     assert problem.parameters == ("loading(e, e5)",) and str(problem.explanation).startswith(
         "The loadings of 'e5' on factor 'e' point the other way from the keying the model declares (its 'reversed' "
-        "statement): e5 loads against the factor's other items but is not declared reversed; ")
+        "statement): e5 loads against the factor's other items but is not declared reversed (standardized loadings: "
+        "e5 ")  # the evidence said (s24)
     # the declared keys hold, right or wrong: alpha of the sum with only e3 reversed, by hand
     as_declared = keyed_scale[[f"e{i}" for i in range(1, 6)]].copy()
     as_declared["e3"] = 7 - as_declared["e3"]

@@ -87,7 +87,9 @@ def test_rows_left_out_listwise_are_said_first_as_fit_says_them(holes):
     for school, rows in holes.groupby("school"):
         dropped = int(rows.isna().any(axis=1).sum())
         assert dropped > 0.05 * len(rows)  # the share over which fit cautions (LISTWISE_WARNING_SHARE)
-        line = (f"Listwise deletion left out {dropped} of {len(rows)} rows in group '{school}' "
+        # the group named by the one rule of group names (language.names.written_group: one-word labels bare; s24:
+        # these lines quoted them in single quotes)
+        line = (f"Listwise deletion left out {dropped} of {len(rows)} rows in group {school} "
                 f"({100 * dropped / len(rows):.0f}%) because they miss an answer on a model variable")
         assert any(str(w).startswith(line) for w in ladder.warnings), ladder.warnings
         assert any(p.explanation.startswith(line) for p in grouped.problems)  # the same words as fit's
