@@ -992,7 +992,9 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
     if withheld:
         for k in withheld:  # every coefficient of the keyed sum; the factor and its count of items stay
             body[k] = body[k][:2] + ["withheld"] * (len(body[k]) - 2)
-            values[k] = values[k][:len(values[k]) - len(body[k]) + 2] + [None] * (len(body[k]) - 2)
+            # by the values' names, not their count: the delta-method interval is one column shown, three written
+            values[k] = [v if name in ("Factor", "Items", "Bifactor part") else None
+                         for name, v in zip(names, values[k])]
         named = [rows[k].factor for k in withheld]
         note += (f" Withheld for {word_list(named)} (see the caution on the keying above): "
                  f"{'for each, ' if len(named) > 1 else ''}{WITHHELD_BECAUSE}.")

@@ -30,9 +30,9 @@ def test_the_omega_of_a_miskeyed_factor_is_withheld_in_every_view():
     omega_a, omega_b = f"{a.omega:.3f}"[1:], f"{b.omega:.3f}"[1:]
     report = fit_report(result)
     [table] = [t for t in report.tables if t.key == "reliability_0"]
-    assert list(table.rows[0]) == ["a", "5", "withheld", "withheld", "withheld", "withheld"]
+    assert list(table.rows[0][:2]) == ["a", "5"] and set(table.rows[0][2:]) == {"withheld"}
     assert table.rows[1][2] == omega_b  # the other factor's as before
-    assert table.values[0][2:] == (None, None, None, None)
+    assert set(table.values[0][2:]) == {None}  # every coefficient, the delta-method interval's too
     assert f"Withheld for a (see the caution on the keying above): {WITHHELD_BECAUSE}." in " ".join(
         str(table.note).split())
     terminal = report_text(report, 3000)
