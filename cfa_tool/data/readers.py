@@ -9,6 +9,7 @@ and whose variable and value labels are kept for reports.
 
 from __future__ import annotations
 
+import codecs
 import csv
 import io
 import re
@@ -21,6 +22,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.csv_convention import UTF8 as UTF8_NAME, UTF8_MARK, separator_words
 from cfa_tool.data.case_filter import filter_variable, kept_rows_words
 from cfa_tool.data.kept_rows import (SHEET_COLUMNS, TEXT_LINES, line_words, row_naming, row_words, rows_listed,
                                      text_lines)
@@ -1255,17 +1257,10 @@ def decoded_table(raw: bytes) -> tuple[str, TextEncoding]:
 class TextEncoding(Enum):
     """How the bytes of a delimited file were read as text."""
 
-    UTF8 = "UTF-8"
+    UTF8 = UTF8_NAME
     UTF16 = "UTF-16"
     WINDOWS_WESTERN = "Windows-1252 (Western European)"
     LATIN1 = "Latin-1"
-
-
-def separator_words(separator: str, decimal: str) -> str:
-    """'fields separated by semicolons, decimals written with commas': how delimited text is written, the words of the
-    reading's note and of the scores file's format alike."""
-    fields = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "vertical bars ('|')"}[separator]
-    return f"fields separated by {fields}, decimals written with {'commas' if decimal == ',' else 'points'}"
 
 
 @dataclass(frozen=True)
@@ -1278,6 +1273,9 @@ class TextReading:
     decimal: str
     names_line: int  # the text line of the column names
     names_row: int  # their row as a spreadsheet shows the file (one per record), by which rows are numbered
+    #: whether the file began with a byte-order mark (a spreadsheet's 'CSV UTF-8'), which the CSV files the tool writes
+    #: from these data keep (data.csv_convention)
+    byte_order_mark: bool = False
 
     def plain(self) -> bool:
         """UTF-8 text with commas between fields and decimal points, the reading every note would otherwise repeat
@@ -1292,7 +1290,7 @@ class TextReading:
 
     def to_dict(self) -> dict:
         return {"encoding": self.encoding.value, "separator": self.separator, "decimal_mark": self.decimal,
-                "names_line": self.names_line, "names_row": self.names_row}
+                "byte_order_mark": self.byte_order_mark, "names_line": self.names_line, "names_row": self.names_row}
 
 
 def _filled(fields: list[str], delimiters_only: bool = False) -> bool:
@@ -1666,7 +1664,8 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
                                  names_row=names_row)
     decimal = _decimal_mark(body, delimiter)
     if reading is not None:
-        reading.append(TextReading(encoding, delimiter, decimal, header_line, header_row))
+        reading.append(TextReading(encoding, delimiter, decimal, header_line, header_row,
+                                   raw.startswith((UTF8_MARK, codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE))))
     try:
         frame = pd.read_csv(
             io.StringIO(body),

@@ -135,6 +135,9 @@ class ExploreResult(Presentable):
     #: the columns of numbers left out of the items explored by default, each with why (:class:`LeftOut`): the items'
     #: note says them in words; () when the items were named
     left_out: tuple[tuple[str, LeftOut], ...] = ()
+    #: how a delimited text file was read (data.readers.TextReading; None otherwise), whose convention the CSV files
+    #: of the report's tables follow (data.csv_convention)
+    reading: object | None = None
 
     @property
     def factors(self) -> int:
@@ -218,7 +221,8 @@ class ExploreResult(Presentable):
             "data_problems": [p.to_dict() for p in self.data_problems],
             "data": {"source": self.source, "rows_read": self.rows_read, "rows_used": ex.data.n_obs,
                      "correlations": ex.data.kind.value, "answer_coding": coding_json(self.answer_coding),
-                     "few_categories_analysed_as_continuous": list(self.few_categories)},
+                     "few_categories_analysed_as_continuous": list(self.few_categories),
+                     **({"reading": self.reading.to_dict()} if self.reading is not None else {})},
             "items": list(self.items),
             "items_left_out": [{"column": c, "reason": why.value} for c, why in self.left_out],
             "factor_count": {
@@ -1048,7 +1052,7 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         split_result = replace(_confirm(exploration, halves, split, source, statements, id_column), **design_split)
     return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
                          sorted_items(exploration), sample_problems + data_problems, statements, coding_record(spec),
-                         few, left_out if by_default else ())
+                         few, left_out if by_default else (), loaded.reading)
 
 
 def _few_categories(frame: pd.DataFrame, names: tuple[str, ...], ordinal_items: tuple[str, ...],

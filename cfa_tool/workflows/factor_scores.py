@@ -20,6 +20,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.numbers import counted, cut_list, more_words, names_shown, user_number
+from cfa_tool.data.csv_convention import PLAIN, CsvConvention, convention_of
 from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, caller_labels, row_naming
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
@@ -632,44 +633,6 @@ class OrdinalQuality:
                                                    for f, low, high in self.precision_by_level]})
 
 
-@dataclass(frozen=True)
-class ScoresFileFormat:
-    """How the scores file is written: the separator between its fields and its decimal mark (UTF-8 text in either
-    case)."""
-
-    separator: str = ","
-    decimal: str = "."
-
-    def plain(self) -> bool:
-        """Commas between fields and decimal points, which the report does not repeat."""
-        return self.separator == "," and self.decimal == "."
-
-    def words(self) -> str:
-        from cfa_tool.data.readers import separator_words
-
-        return separator_words(self.separator, self.decimal)
-
-    def to_dict(self) -> dict:
-        return {"separator": self.separator, "decimal_mark": self.decimal}
-
-
-def scores_file_format(reading) -> ScoresFileFormat:
-    """The scores file in the format of the data file scored (``reading``: its data.readers.TextReading; None for a
-    workbook, an SPSS or Stata file or a data frame, whose scores get commas and decimal points), so that the
-    spreadsheet that saved the data reads the scores back as numbers (new-user trial s23b, finding 4: a semicolon file
-    of decimal commas got a comma file of decimal points, in which a German spreadsheet reads the prorated sum 23.625
-    as 23625 or the whole line as one cell).  The data's decimal mark is kept; decimal commas are separated by
-    semicolons, as spreadsheets of decimal-comma locales write CSV, whatever separated the data's fields (a tab file
-    of decimal commas too: the scores file is a .csv file, which a spreadsheet splits at its locale's list
-    separator); decimal points keep a semicolon of the data, and are separated by commas otherwise (tabs and vertical
-    bars too, for the same reason)."""
-    if reading is None:
-        return ScoresFileFormat()
-    if reading.decimal == ",":
-        return ScoresFileFormat(";", ",")
-    return ScoresFileFormat(";" if reading.separator == ";" else ",", ".")
-
-
 @dataclass(frozen=True, eq=False)
 class ScoreResult(Presentable):
     """Scores of every row of the data, with the fit they come from and their quality."""
@@ -696,8 +659,9 @@ class ScoreResult(Presentable):
     #: as a CSV file begins with its header, and the report says so where it says which empty lines stand for rows of
     #: the file without data (reporting.score_report.rows_above_names)
     names_row: int = 1
-    #: the scores file's separator and decimal mark, those of the data file scored (:func:`scores_file_format`)
-    file_format: ScoresFileFormat = ScoresFileFormat()
+    #: the scores file's separator, decimal mark and byte-order mark: those of the data file scored, by the one rule of
+    #: every CSV file the tool writes (data.csv_convention.convention_of; new-user trial s23b, finding 4)
+    file_format: CsvConvention = PLAIN
 
     @property
     def rows(self) -> int:
@@ -776,9 +740,16 @@ class ScoreResult(Presentable):
         """The scores as CSV text: full precision, empty cells where there is no score, every id and column name as
         written in the data (a file of rows merged back by its ids: '-A12' stays '-A12', never given the
         spreadsheet-formula guard of report tables, reporting.text_formats, which would change the key; hostile
-        trial s17, finding 3), with the separator and decimal mark of the data file (:attr:`file_format`)."""
+        trial s17, finding 3), with the separator and decimal mark of the data file (:attr:`file_format`; the file's
+        whole text, with the byte-order mark the data file's convention has: :meth:`file_text`)."""
         return self.table.to_csv(index=False, na_rep="", float_format="%.10g", lineterminator="\n",
                                  sep=self.file_format.separator, decimal=self.file_format.decimal)
+
+    def file_text(self) -> str:
+        """The scores file's whole text as written (in UTF-8): :meth:`csv`, after a byte-order mark when the data
+        file's convention has one (a spreadsheet's 'CSV UTF-8', or data in a Windows code page: data.csv_convention);
+        ``Path(...).write_text(result.file_text(), encoding="utf-8")`` writes the file the command writes."""
+        return self.file_format.file_text(self.csv())
 
 
     def __str__(self) -> str:
@@ -931,7 +902,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                        bool(standard_errors or ordinal_items), tuple(extra),
                        item_sums=summaries,
                        unanswered=unanswered, names_row=_names_row(loaded, data),
-                       file_format=scores_file_format(loaded.reading))
+                       file_format=convention_of(loaded.reading))
 
 
 def _id_column_note(read_frame: pd.DataFrame, source: str, spec, group, design) -> list[Note]:
@@ -1289,7 +1260,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     table.index = caller_labels(table.index, loaded.frame_index)
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
                        unscored, with_errors, tuple(notes), source, (), summaries, unanswered,
-                       _names_row(loaded, data), scores_file_format(loaded.reading))
+                       _names_row(loaded, data), convention_of(loaded.reading))
 
 
 def _names_row(loaded, data) -> int:
