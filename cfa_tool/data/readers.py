@@ -701,7 +701,7 @@ class OtherSheets:
         name = source.replace("\\", "/").rsplit("/", 1)[-1]
         listed = " and ".join(f"'{printable(s)}'" for s in self.sheets)
         other = "sheet" if len(self.sheets) == 1 else "sheets"
-        return (f"{name}: only the sheet '{printable(self.read)}' is read, and the workbook's {other} {listed} "
+        return (f"{name}: only the sheet '{printable(self.read)}' was read, and the workbook's {other} {listed} "
                 f"{'holds' if len(self.sheets) == 1 else 'hold'} columns named as every item of the model too.")
 
     def advice(self) -> Note:

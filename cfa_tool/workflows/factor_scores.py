@@ -1191,8 +1191,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     again = {p.kind for p in own} if (source, len(read_frame)) == (result.data.source, result.data.rows_read) else set()
     result, few = _few_clusters_as_note(result)
     notes[:0] = few
-    result = replace(result, problems=own + tuple(replace(p, explanation=ABOUT_THE_FIT + p.explanation)
-                                                  for p in result.problems if p not in own and p.kind not in again))
+    result = replace(result, problems=own + tuple(_about_the_fit(p) for p in result.problems
+                                                  if p not in own and p.kind not in again))
     from cfa_tool.scoring.model import OrdinalScoringModel
 
     ordinal = isinstance(models[0], OrdinalScoringModel)
@@ -1330,6 +1330,25 @@ class SavedFit:
 
     def to_dict(self) -> dict:
         return {k: v for k, v in self.payload.items() if k not in ("tool", "version")}
+
+
+def _about_the_fit(problem):
+    """An earlier fit's problem as the report of other data scored with it carries it: said to be about the fit
+    (:data:`ABOUT_THE_FIT`); a problem of the rows the fit read from its data file (a workbook's other sheets, its
+    hidden rows, rows a saved case filter deselects) without its advice, whose options (--sheet, --keep) this run
+    takes too and would apply to the data scored (new-user trial s23: the other-sheets box read as about the scores
+    file), but with advice about the fit instead."""
+    from cfa_tool.assessment.admissibility import ProblemKind as K
+
+    problem = replace(problem, explanation=ABOUT_THE_FIT + problem.explanation)
+    if problem.kind not in (K.OTHER_SHEETS_WITH_ITEMS, K.HIDDEN_ROWS, K.DESELECTED_ROWS):
+        return problem
+    return replace(problem, advice=FIT_ROWS_ADVICE)
+
+
+#: the advice on the rows an earlier fit read from its data file, when other data are scored with it
+FIT_ROWS_ADVICE = ("This concerns the rows the fit's parameters come from, not the data scored here: to change those "
+                   "rows, fit the model again as the fit's own report advises, and score with the new fit.")
 
 
 def read_saved_fit(path) -> SavedFit:
