@@ -30,8 +30,9 @@ from cfa_tool.data.kept_counts import ReadingCounts, emptied_cells, markers_note
 from cfa_tool.data.missing_codes import apply_missing_codes, codes_on_answers, missing_codes_note
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.notes_rows import end_of_data, notes_lines, notes_note
-from cfa_tool.data.non_answers import GIVEN_CODES, answers_labelled_like_none, declared_missing, labelled_non_answers, \
-    non_answer_note, read_fit_marked, run_words, says_no_answer, unused_run_words, written_non_answers
+from cfa_tool.data.non_answers import GIVEN_CODES, answers_labelled_like_none, declared_missing, declared_ranges, \
+    labelled_non_answers, \
+    non_answer_note, fit_marked_note, read_fit_marked, run_words, says_no_answer, unused_run_words, written_non_answers
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
 from cfa_tool.data.row_ids import id_text
 from cfa_tool.errors import DataError, clipped, printable
@@ -106,6 +107,9 @@ class LoadedData:
     #: the words given with --missing-codes (data.non_answers.run_words, as given), which advice that adds a code to
     #: the list keeps beside ``missing_codes`` (data.non_answers.codes_given)
     missing_words: tuple[str, ...] = ()
+    #: the ranges of values an SPSS file declares missing (data.non_answers.DeclaredRange), which a fit keeps for its
+    #: items and scoring other data with the fit reads as no answer, every value of them
+    declared_ranges: tuple = ()
 
     def column_hint(self) -> str:
         """Words for a message about a missing column: the columns read under new names (a name the model uses may
@@ -238,8 +242,9 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     coded = emptied_cells(before, frame) if missing_codes else ()  # (their notes written again over the rows kept)
     frame, labelled = labelled_non_answers(frame, item_labels, tuple(missing_codes))
     frame, carried = read_fit_marked(frame, mine, str(where), item_labels)  # scores: what the fit's file marked
-    if carried:
-        code_notes = tuple(code_notes) + (carried,)
+    carried_note = fit_marked_note(carried, str(where)) if carried else None
+    if carried_note:
+        code_notes = tuple(code_notes) + (carried_note,)
     if frame is not loaded.frame:
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
     if on_answers:
@@ -261,7 +266,8 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
         str(where), None if mine is None else frozenset(mine), tuple(missing_codes), coded, item_labels,
         code_notes[0] if missing_codes else None, read_as_none, like_none,
         markers[0] if markers and any(n is markers[0] for n in loaded.notes) else None,
-        markers[1] if markers else {}, tuple(run_words()), unused_note, _code_rows(before, found, mine)))
+        markers[1] if markers else {}, tuple(run_words()), unused_note, _code_rows(before, found, mine),
+        carried, carried_note))
     if code_notes:
         loaded = replace(loaded, notes=loaded.notes + tuple(code_notes))
     numbers = tuple(float(c) for c in missing_codes if isinstance(c, (int, float)) and not isinstance(c, bool))
@@ -1122,10 +1128,11 @@ def _read_labelled(path: Path) -> LoadedData:
             values[column] = {tagged.get(k, k) if isinstance(k, str) else k: v for k, v in values.get(column, {}).items()}
             ranges[column] = [{"lo": t, "hi": t} for t in tagged.values()]
     frame, declared = declared_missing(frame, ranges, values)
+    spans = declared_ranges(ranges)  # the declarations themselves: a fit keeps its items', scoring reads them so
     measures = read_measure_levels(getattr(meta, "variable_measure", None))
     if measures:  # kept with the frame, through row filters and copies, for the notes on items and groups
         frame.attrs[MEASURE_LEVELS] = measures
-    return LoadedData(frame, str(path), labels, values, non_answers=declared)
+    return LoadedData(frame, str(path), labels, values, non_answers=declared, declared_ranges=spans)
 
 
 #: how each kind of binary file starts (its signature): a workbook is a zip archive; an SPSS file '$FL2' ('$FL3'

@@ -713,6 +713,9 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     if codes or words or marked or odd:
         read.update(missing_codes=codes, no_answer_words=words, non_answers=marked, odd_values=odd,
                     codes_found=tuple(c for c in codes if c in found))
+    declared = tuple(r for r in loaded.declared_ranges if r.column in items)  # scoring other data reads them so
+    if declared:
+        read["declared_ranges"] = declared
     return replace(result, data=replace(result.data, **read)) if read else result
 
 

@@ -269,6 +269,9 @@ class DataSummary:
     # values of the model's items that the data file itself marks as no answer, read as missing
     # (data.non_answers.NonAnswer): the methods paragraph names them
     non_answers: tuple = ()
+    # the ranges of values the data file declares missing in the model's items (data.non_answers.DeclaredRange: SPSS
+    # '90 thru 99'), every value of which scoring other data with this fit reads as no answer
+    declared_ranges: tuple = ()
     # summary statistics: which matrix was analysed (data.summary_stats.AnalysedMatrix); None for rows of answers
     analysed: object | None = None
     # per item, the lowest and highest answer of the rows analysed (empty without rows), so that scoring other data
@@ -357,6 +360,8 @@ class DataSummary:
             marked = saved_non_answers(self.non_answers)
             if marked:
                 out["marked_no_answer_by_the_file"] = clean(marked)
+        if self.declared_ranges:
+            out["missing_ranges_declared_by_the_file"] = clean([r.to_dict() for r in self.declared_ranges])
         if self.reading is not None:
             out["reading"] = clean(self.reading.to_dict())
         if self.renamed:

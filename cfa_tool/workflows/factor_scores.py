@@ -19,7 +19,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import counted, cut_list, more_words, names_shown, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, user_number
 from cfa_tool.data.csv_convention import PLAIN, CsvConvention, convention_of
 from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, caller_labels, row_naming
 from cfa_tool.data.moments import row_numbers
@@ -1147,7 +1147,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 
-    from cfa_tool.data.missing_codes import codes_shown
+    from cfa_tool.data.missing_codes import names_the_given_codes
     from cfa_tool.data.non_answers import fit_marked, run_words
 
     given, words = api.missing_values_option(missing_codes)
@@ -1156,7 +1156,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     carried = tuple(c for c in result.data.missing_codes if c not in given) + tuple(
         w for w in result.data.no_answer_words if w.casefold() not in known)
     # and the codes its data file declared missing or labelled so, in their own items (an export without them)
-    with fit_marked(tuple(getattr(result.data, "non_answers", ()) or ())):
+    with fit_marked(tuple(getattr(result.data, "non_answers", ()) or ()),
+                    tuple(getattr(result.data, "declared_ranges", ()) or ())):
         spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, given + words + carried, keep,
                                                          (id_column,) if isinstance(id_column, str) else (),
                                                          names_row=names_row, first_data_row=first_data_row,
@@ -1177,10 +1178,9 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         raise OptionError(f"the fit has groups by '{printable(group)}', which is not a column of {source}")
     ids = row_ids(read_frame, source, id_column, result.observed, group, loaded.row_names)
     if carried:
-        one = len(carried) == 1
-        notes.insert(0, f"{'The value' if one else 'The values'} {codes_shown(carried)} in {source} "
-                        f"{'was' if one else 'were'} read as no answer, as the earlier fit read {'it' if one else 'them'} "
-                        f"(its missing-value codes and words of no answer)")
+        if not given and not words:  # no code was given in this run: the reading's notes that say so are not said
+            notes[:] = [n for n in notes if not names_the_given_codes(n)]
+        notes.insert(0, _carried_note(carried, loaded, source))
     # the cautions about the scored file computed on it, first; the earlier fit's own said to be about the fit
     # (ids of several rows first, as every command names them: pipeline.inputs.repeated_id_problems)
     own = api.repeated_id_problems(loaded, ids_by_row_number(ids, read_frame), api.id_filter_column(id_column, loaded)) \
@@ -1332,6 +1332,32 @@ class SavedFit:
         return {k: v for k, v in self.payload.items() if k not in ("tool", "version")}
 
 
+def _carried_note(carried: tuple, loaded, source: str) -> str:
+    """The note on the earlier fit's codes and words of no answer (its --missing-codes, ``carried``) read so in the
+    data scored: each with the rows of the data scored that held it, counted over the rows the row filters kept
+    (rows-s24: the note said every code 'was read as no answer' whether or not a row scored held it)."""
+    from cfa_tool.data.kept_counts import analysed_words
+    from cfa_tool.data.missing_codes import codes_shown
+    from cfa_tool.data.non_answers import rows_saying
+
+    kept = loaded.frame.index
+    code_rows = dict(loaded.counts.code_rows) if loaded.counts is not None else {}
+    held = []
+    for c in carried:
+        rows = code_rows.get(c, ()) if not isinstance(c, str) else rows_saying(loaded.non_answers, c)
+        held.append((c, len(set(r for r in rows if r in kept))))
+    filtered = loaded.read_frame is not None and len(loaded.read_frame) != len(loaded.frame)
+    rows = f"the {counted(len(kept), 'row')}" + (f" {analysed_words(True, None)}" if filtered else " of the file")
+    if len(held) == 1:
+        (c, n), = held
+        return (f"The earlier fit's code of no answer {codes_shown((c,))} (its missing-value codes and words of no "
+                f"answer) was read as no answer in {source} too: {count_text(n) if n else 'no row'} of {rows} "
+                f"held it")
+    listed = ", ".join(f"{codes_shown((c,))} in {count_text(n) if n else 'none'}" for c, n in held)
+    return (f"The earlier fit's codes of no answer (its missing-value codes and words of no answer) were read as no "
+            f"answer in {source} too, held by these numbers of {rows}: {listed}")
+
+
 def _about_the_fit(problem):
     """An earlier fit's problem as the report of other data scored with it carries it: said to be about the fit
     (:data:`ABOUT_THE_FIT`); a problem of the rows the fit read from its data file (a workbook's other sheets, its
@@ -1358,7 +1384,7 @@ def read_saved_fit(path) -> SavedFit:
     from cfa_tool.assessment.admissibility import saved_fit_problems
     from cfa_tool.data.answer_words import coding_from_json
     from cfa_tool.data.missing_codes import codes_and_words
-    from cfa_tool.data.non_answers import non_answers_from_saved
+    from cfa_tool.data.non_answers import non_answers_from_saved, ranges_from_saved
     from cfa_tool.input_files import input_json
     from cfa_tool.model.saved_estimates import saved_fit_payload, saved_rows
     from cfa_tool.pipeline.results import DataSummary, saved_categories
@@ -1386,6 +1412,7 @@ def read_saved_fit(path) -> SavedFit:
                               missing_codes=codes_and_words(d.get("missing_codes", ()))[0],
                               no_answer_words=codes_and_words(d.get("no_answer_words", ()))[1],
                               non_answers=non_answers_from_saved(d.get("marked_no_answer_by_the_file")),
+                              declared_ranges=ranges_from_saved(d.get("missing_ranges_declared_by_the_file")),
                               ranges=tuple((float(d["answer_ranges"][x][0]), float(d["answer_ranges"][x][1]))
                                            for x in d["variables"]) if d.get("answer_ranges") else (),
                               answer_coding=coding_from_json(d.get("answer_coding"), source))
