@@ -1418,7 +1418,7 @@ def _few_answers_in_groups(names: tuple[str, ...], loaded: LoadedData, group: st
 
 def _nearly_constant_problems(names: tuple[str, ...], loaded: LoadedData | None, group: str | None) -> tuple:
     """The caution of :func:`few_answers_problems` on items answered alike by all rows but a few."""
-    from cfa_tool.data.descriptives import nearly_constant_items
+    from cfa_tool.data.descriptives import NEARLY_CONSTANT_WORDS, nearly_constant_items
 
     names = tuple(names)
     if loaded is None or not names:
@@ -1438,7 +1438,8 @@ def _nearly_constant_problems(names: tuple[str, ...], loaded: LoadedData | None,
     listed = cut_list(found, 5, lambda c: f"'{printable(c.name)}' is {user_number(c.common)} in all but {c.others} of "
                       f"the {c.answered} rows answering it", sep="; ", lead="; and ")
     return (Problem(ProblemKind.NEARLY_CONSTANT, (), float(min(c.others for c in found)),
-                    f"Nearly constant {'item' if one else 'items'}: {listed}. {'Its' if one else 'Their'} variance, "
+                    f"Nearly constant {'item' if one else 'items'} ({NEARLY_CONSTANT_WORDS}): {listed}. "
+                    f"{'Its' if one else 'Their'} variance, "
                     f"and the size and sign of {'its' if one else 'their'} loading, rest on those few rows alone, and "
                     f"so does whether the keyed sum scores reverse {'it' if one else 'them'}; analysed as ordered "
                     f"categories, a category of so few rows leaves the polychoric correlations undetermined.",

@@ -408,10 +408,14 @@ class UnlikeTheItems:
     groupings: tuple[tuple[str, float, float], ...] = ()
     off_scale: tuple[tuple[str, float, float, bool], ...] = ()
     scale: tuple[float, float] | None = None
+    #: [(column, one value, the other)]: two values alone where the items answer on a scale of three values or more
+    #: (a wave 1 and 2, a sex coded 0 and 1; session note s23: a 1/2 wave column was explored as an item)
+    two_valued: tuple[tuple[str, float, float], ...] = ()
 
     @property
     def columns(self) -> tuple[str, ...]:
-        return tuple(f[0] for f in self.groupings) + tuple(f[0] for f in self.off_scale)
+        return (tuple(f[0] for f in self.groupings) + tuple(f[0] for f in self.two_valued)
+                + tuple(f[0] for f in self.off_scale))
 
 
 def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float, ...] = ()) -> UnlikeTheItems:
@@ -420,7 +424,8 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float
     ``others`` given as the numbers they code, answers recorded as words read by their 'answers' statement), and that have
     no relation to the items (no correlation of RELATED_TO_THE_ITEMS or more, in absolute value, with any of the
     other columns or of ``others``, further item columns such as answers recorded as words, each correlation from
-    the rows that answered both).  Two kinds: groupings or records, few whole values (at most
+    the rows that answered both).  Three kinds: codes of two groups, two whole values alone where the scale has three
+    or more (a wave 1 and 2, a sex 0 and 1, session note s23); groupings or records, few whole values (at most
     data.polychoric.MAX_CATEGORIES), none as low as the scale begins and most of them above its end (a grade of 5 to
     9 among items answered 1 to 4, a year, a school's number); and values off the scale, most of the answered cells
     fractions (years of service as 0.5 to 30.0), or more whole values than MAX_CATEGORIES over a range more than twice
@@ -449,15 +454,17 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float
     (low, high), _ = shared[0]
     groupings = [(c, float(v[0]), float(v[-1])) for c, v in whole.items() if len(v) <= MAX_CATEGORIES
                  and v[0] > low and 2 * int((v > high).sum()) > len(v)]
+    two_valued = [(c, float(v[0]), float(v[-1])) for c, v in whole.items() if len(v) == 2 and high - low >= 2
+                  and c not in {f[0] for f in groupings}]
     off_scale = []
     for c, v in distinct.items():
-        if len(v) < 2 or c in {f[0] for f in groupings}:
+        if len(v) < 2 or c in {f[0] for f in groupings + two_valued}:
             continue
         fractions = 2 * int((values[c] != np.round(values[c])).sum()) > len(values[c])
         wide = len(v) > MAX_CATEGORIES and v[-1] - v[0] > 2 * (high - low)
         if fractions or wide:
             off_scale.append((c, float(v[0]), float(v[-1]), bool(fractions)))
-    found = [f[0] for f in groupings] + [f[0] for f in off_scale]
+    found = [f[0] for f in groupings] + [f[0] for f in two_valued] + [f[0] for f in off_scale]
     if found:
         items = [c for c in columns if c not in found] + [c for c in others if c not in found]
         # the items' codes of no answer are no answers: those given, and the values set aside from their scales
@@ -466,7 +473,8 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float
         related = dict(zip(found, _largest_correlations(answered, found, items)))
         groupings = [f for f in groupings if not related[f[0]] >= RELATED_TO_THE_ITEMS]
         off_scale = [f for f in off_scale if not related[f[0]] >= RELATED_TO_THE_ITEMS]
-    return UnlikeTheItems(tuple(groupings), tuple(off_scale), (low, high))
+        two_valued = [f for f in two_valued if not related[f[0]] >= RELATED_TO_THE_ITEMS]
+    return UnlikeTheItems(tuple(groupings), tuple(off_scale), (low, high), tuple(two_valued))
 
 
 def _stray_values(frame: pd.DataFrame, columns: list[str], codes: tuple[float, ...]) -> dict[str, tuple[float, ...]]:
@@ -699,6 +707,12 @@ def _default_items(first, columns: list[str], codings: tuple, design: tuple[str,
                f"{journal_decimal(RELATED_TO_THE_ITEMS, digits=2)} or more with any item, as a grade or a year would be): "
                + ", ".join(f"{printable(c)} ({user_number(low)} to {user_number(high)})" for c, low, high in unlike.groupings)
                + Note((name_them, ".")) if unlike.groupings else "")
+            + (f" Left out as codes of two groups rather than answers (two values alone, where most columns hold "
+               f"answers from {user_number(unlike.scale[0])} to {user_number(unlike.scale[1])}, and no correlation of "
+               f"{journal_decimal(RELATED_TO_THE_ITEMS, digits=2)} or more with any item, as a wave or a sex would "
+               f"be): " + ", ".join(f"{printable(c)} ({user_number(a)} and {user_number(b)})"
+                                    for c, a, b in unlike.two_valued)
+               + Note((name_them, ".")) if unlike.two_valued else "")
             + (f" Left out as measures rather than answers on the {user_number(unlike.scale[0])} to {user_number(unlike.scale[1])} scale "
                f"that most columns hold (mostly fractions, or far more values over a far wider range, and no "
                f"correlation of {journal_decimal(RELATED_TO_THE_ITEMS, digits=2)} or more with any item, as years of service or an income "
@@ -712,7 +726,7 @@ def _default_items(first, columns: list[str], codings: tuple, design: tuple[str,
             + _text_columns_phrase(frame, tuple(numeric) + tuple(worded) + drawn_by, codings))
     left_out = (tuple((c, LeftOut.HALVES_DESIGN) for c in drawn_by) + tuple((c, LeftOut.ROW_IDS) for c in ids) + tuple((c, LeftOut.CATEGORY_CODES) for c in coded)
                 + tuple((c, LeftOut.NAMED_FOR_ANOTHER_PART) for c in roles)
-                + tuple((c, LeftOut.GROUPING_OR_RECORD) for c, _, _ in unlike.groupings)
+                + tuple((c, LeftOut.GROUPING_OR_RECORD) for c, _, _ in unlike.groupings + unlike.two_valued)
                 + tuple((c, LeftOut.MEASURE_OFF_THE_SCALE) for c, _, _, _ in unlike.off_scale))
     return chosen, note, worded, left_out
 

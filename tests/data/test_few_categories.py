@@ -200,7 +200,7 @@ def test_the_screen_of_nearly_constant_items_finds_what_counting_every_column_fi
     must be that of counting every column's answers with numpy.unique, the rule as written, on random columns of
     every size (tiny samples, whose limit reaches half the rows, included, and samples of hundreds to thousands of rows
     with gaps, whose columns' middle places differ)."""
-    from cfa_tool.data.descriptives import NearlyConstant, nearly_constant_items, rare_answer_limit
+    from cfa_tool.data.descriptives import NearlyConstant, nearly_constant_items
 
     def counted(values, names):
         found = []
@@ -209,7 +209,8 @@ def test_the_screen_of_nearly_constant_items_finds_what_counting_every_column_fi
             if len(column):
                 levels, counts = np.unique(column, return_counts=True)
                 others = len(column) - int(counts.max())
-                if 0 < others < rare_answer_limit(len(column)) and others < int(counts.max()):
+                # the rule as written: all rows but fewer than 5, or but at most 2%, give the common answer
+                if 0 < others < int(counts.max()) and (others < 5 or others <= 0.02 * len(column)):
                     found.append(NearlyConstant(name, float(levels[counts.argmax()]), others, len(column)))
         return tuple(found)
 
