@@ -27,12 +27,14 @@ import enum
 import functools
 import math
 import re
+import unicodedata
 from collections.abc import Iterable, Iterator
 from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
 
+from cfa_tool.language.names import composed
 from cfa_tool.language.spec import answer_key
 from cfa_tool.errors import DataError, clipped, printable
 from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, number, user_number
@@ -68,8 +70,14 @@ NON_ANSWER_MARKS = frozenset({"#NULL!", "-"})
 
 
 def _plain(text: str) -> str:
-    """Lower case; apostrophes, punctuation and runs of spaces as one space."""
-    return " ".join(re.sub(r"[^\w]+", " ", text.lower().replace("_", " ")).split())
+    """Lower case; apostrophes, punctuation and runs of spaces as one space; accents kept, in Unicode's composed form
+    (language.names.composed), whatever form the text came in: a word that differs by an accent is another word
+    ('avó' and 'avô', grandmother and grandfather), where a decomposed accent, a combining mark, was dropped as
+    punctuation and merged the two (session note s23, 'Noticed, left alone')."""
+    text = composed(text).lower().replace("_", " ")
+    if not text.isascii():  # combining marks without a composed form stay with their letter
+        text = "".join(ch if ch.isalnum() or unicodedata.category(ch).startswith("M") else " " for ch in text)
+    return " ".join(re.sub(r"[^\w]+", " ", text).split()) if text.isascii() else " ".join(text.split())
 
 
 @dataclass(frozen=True)

@@ -57,7 +57,7 @@ from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.language.names import case_twins, composed
 from cfa_tool.method import ADJUSTED_TEST, FitTest, MissingData, WeightKind, Weighting
 from cfa_tool.pipeline.results import CheckResult, FitResult
-from cfa_tool.suggest import close_names
+from cfa_tool.suggest import close_names, did_you_mean
 
 
 def load_spec(model: str | os.PathLike | Spec) -> Spec:
@@ -1927,7 +1927,7 @@ def check_helper_columns(helpers: tuple[str, ...], frame: pd.DataFrame, source: 
     for name in helpers:
         if name not in columns:
             guess = close_names(name, columns)
-            hint = renamed_hint(frame, name) or (f"; did you mean '{printable(guess[0])}'?" if guess else "")
+            hint = renamed_hint(frame, name) or (did_you_mean(name, guess[0]) if guess else "")
             raise OptionError(f"the missing-data helper '{printable(name)}' ({Option.MISSING_HELPERS}) is not a column "
                               f"of {source}{hint}")
         if name in spec.observed_names:

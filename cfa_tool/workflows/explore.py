@@ -317,7 +317,7 @@ def item_names(text: str | list[str] | tuple[str, ...] | None, columns: list[str
         for end in ends:
             if end not in columns:
                 from cfa_tool.language.names import comma_hint
-                from cfa_tool.suggest import close_names, dotted_span
+                from cfa_tool.suggest import close_names, did_you_mean, dotted_span
 
                 span = dotted_span(end)
                 if span is not None and all(e in columns for e in span.split("..")):
@@ -326,7 +326,7 @@ def item_names(text: str | list[str] | tuple[str, ...] | None, columns: list[str
                 hint = comma_hint(end, columns)
                 guess = close_names(end, columns)
                 raise OptionError(f"{Option.ITEMS}: {source} has no column '{printable(end)}'"
-                                  + (hint or (f"; did you mean '{printable(guess[0])}'?" if guess else "")))
+                                  + (hint or (did_you_mean(end, guess[0]) if guess else "")))
         if len(ends) == 2:
             option = Option.ITEMS.given(piece)
             span = range_names(ends[0], ends[1], lambda message: OptionError(
