@@ -2709,7 +2709,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        row_naming=row_naming(frame), text_lines=dict(text_lines(frame)),
                        answers=_answers_per_category(spec, frame, source, group, reference_group, ordinal_items,
                                                      loaded),
-                       refusals=refusals, stops_fit=stops,
+                       refusals=refusals, stops_fit=stops, reading=loaded.reading,
                        group_coverage=_group_coverage(spec, frame, source, group, reference_group),
                        degrees_of_freedom=None if ordinal_items else moments_count(table) - table.n_free)
 

@@ -140,6 +140,9 @@ class CheckResult(Presentable):
     #: the model's degrees of freedom for continuous items (variances, covariances and means less the free
     #: parameters; assessment.identification.moments_count); None for ordinal items, whose fit counts thresholds too
     degrees_of_freedom: int | None = None
+    #: how a delimited text file was read (data.readers.TextReading; None otherwise): the report's CSV tables follow
+    #: its convention (data.csv_convention)
+    reading: object | None = None
 
     @property
     def admissible(self) -> bool:
@@ -232,7 +235,8 @@ class CheckResult(Presentable):
                     ("read", "complete", "with_gaps", "without_answers"), self.counted)),
                 "notes": [str(x) for x in self.notes],
                 "stops_an_ordinal_fit": list(self.refusals),
-                "answers_per_category": [a.to_dict() for a in self.answers]}
+                "answers_per_category": [a.to_dict() for a in self.answers],
+                **({"reading": clean(self.reading.to_dict())} if self.reading is not None else {})}
 
 
 @dataclass(frozen=True)

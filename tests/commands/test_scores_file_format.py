@@ -152,7 +152,12 @@ def test_report_tables_follow_the_data_files_convention(tmp_path, capsys):
     assert main(["fit", str(model), "--data", str(data), "--tables", str(tmp_path / "tabellen"),
                  "--json", str(tmp_path / "fit.json")]) == 0
     assert main(["report", str(tmp_path / "fit.json"), "--tables", str(tmp_path / "again")]) == 0
+    assert main(["check", str(model), "--data", str(data), "--tables", str(tmp_path / "checked")]) == 0
+    assert main(["explore", "--data", str(data), "--tables", str(tmp_path / "explored")]) == 0
     capsys.readouterr()
+    for folder in ("checked", "explored"):  # every command's tables, whatever its result
+        written = sorted((tmp_path / folder).glob("*.csv"))
+        assert written and all(f.read_bytes().startswith(b"\xef\xbb\xbf") for f in written)
     for folder in ("tabellen", "again"):
         raw = (tmp_path / folder / "items.csv").read_bytes()
         assert raw.startswith("\ufeffItem;".encode("utf-8"))
