@@ -684,14 +684,12 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     (scores of other data with the fit read them so too) and the values of its items that the file itself marks as
     no answer (``loaded.non_answers``), which the methods paragraph names; and the values of its items that look like
     no answers but were analysed as answers (``loaded.odd_values``), and the row filters that chose its rows
-    (:func:`with_row_filters`), which it names too; how a text file was read (``loaded.reading``) and how its rows are
+    (:func:`with_row_filters`), which it names too, with how a text file was read (``loaded.reading``); how its rows are
     named (a data frame's by their index labels, data.kept_rows.RowNaming)."""
     result = with_row_filters(result, loaded)
     read = {}  # what the reading adds to the result's data, put in with one copy of the result
     if loaded.renamed:
         read["renamed"] = loaded.renamed
-    if loaded.reading is not None:
-        read["reading"] = loaded.reading
     naming = row_naming(loaded.frame)
     if naming is not RowNaming.FILE_ROW:
         read["row_naming"] = naming
@@ -916,7 +914,9 @@ def with_odd_values(result, loaded: LoadedData, group: str | None = None, spec: 
                     design: DesignColumns | None = None, ids: dict | None = None, id_column: str | None = None):
     """``result`` (a fit: anything with ``problems``, ``observed``, ``n_obs`` and ``missing_data``) with the
     cautions about its data (:func:`data_problems`, the few answers judged by its own coverage) before its own,
-    each once (scores of the fitted file, say)."""
+    each once (scores of the fitted file, say), and how its text file was read (:func:`with_reading`: every workflow
+    decorates its fit so, its CSV files following the data file's convention)."""
+    result = with_reading(result, loaded)
     coverage = (getattr(result, "missing_data", None) or {}).get("coverage", {})
     helpers = tuple(getattr(getattr(result, "method", None), "helpers", None) or ())  # read as the items are
     listwise = getattr(getattr(result, "method", None), "missing", None) is MissingData.LISTWISE
@@ -1573,11 +1573,24 @@ def _fit_read_rows(spec, loaded, notes, group, reference_group, fit_options, ord
 
 def with_row_filters(result, loaded: LoadedData):
     """``result`` (a fit of rows) with the row filters that chose its rows and the rows the file held before them
-    in its data summary, which the reports and the methods paragraph name (unchanged without filters)."""
+    in its data summary, which the reports and the methods paragraph name, and how a text file was read
+    (``loaded.reading``), whose convention the CSV files the run writes follow (data.csv_convention): every fit of
+    rows, a workflow's too (bootstrap, cutoffs), carries it (unchanged without filters and reading)."""
+    result = with_reading(result, loaded)
     if not loaded.row_filters:
         return result
     return replace(result, data=replace(result.data, row_filters=loaded.row_filters,
                                         rows_in_file=len(loaded.read_frame)))
+
+
+def with_reading(result, loaded: LoadedData):
+    """``result`` (a fit of rows) with how its text file was read (``loaded.reading``: data.readers.TextReading) in its
+    data summary: the notes and the JSON say it, and the CSV files of the run follow its convention
+    (data.csv_convention); unchanged for other files."""
+    data = getattr(result, "data", None)
+    if loaded.reading is None or not hasattr(data, "reading") or data.reading is not None:
+        return result
+    return replace(result, data=replace(data, reading=loaded.reading))
 
 
 def refuse_groups_filtered_out(spec: Spec, loaded: LoadedData, group: str | None,

@@ -195,8 +195,11 @@ def test_a_halves_file_follows_the_data_files_convention_and_is_read_back(tmp_pa
     assert main(["fit", str(model), "--data", str(data), "--half", str(halves), first]) == 0
     # the report tables of a workflow (replicate) follow the data file too, and so does `report` of its JSON
     assert main(["report", str(tmp_path / "rep.json"), "--tables", str(tmp_path / "again")]) == 0
+    # and those of a workflow that fits the data by its own route (bootstrap)
+    assert main(["bootstrap", str(model), "--data", str(data), "--replications", "20", "--tables",
+                 str(tmp_path / "resampled")]) == 0
     capsys.readouterr()
-    for folder in ("tables", "again"):
+    for folder in ("tables", "again", "resampled"):
         written = sorted((tmp_path / folder).glob("*.csv"))
         assert written and all(f.read_bytes().startswith(b"\xef\xbb\xbf") for f in written)
         headers = [f.read_text(encoding="utf-8-sig").splitlines()[0] for f in written]
