@@ -145,13 +145,16 @@ def test_a_nearly_constant_item_is_named_first_and_its_rare_category_in_the_ordi
     data.loc[10, "clean"] = 4.0
     counted = Counter(data["clean"].dropna().tolist())
     assert counted == {3.0: len(data) - 1, 4.0: 1}
-    # the rule: all rows but fewer than 5 (or 1% of the rows answering, when more) give one answer
+    # the rule: all rows but fewer than 5, or but at most 2% of the rows answering, give one answer (98%: common
+    # practice, data.descriptives.NEARLY_CONSTANT_SHARE)
     values = np.array([[1, 2, 1], [1, 2, 2], [1, 2, 1], [1, 2, 1], [1, 3, 1], [1, 2, 2]] * 100, dtype=float)
-    values[:4, 0] = 2.0  # 4 of 600 rows differ: fewer than 1% of 600 (6) -> nearly constant
+    values[:4, 0] = 2.0  # 4 of 600 rows differ: fewer than 5 -> nearly constant
     values[:100, 1] = 3.0  # many differ -> not
     found = nearly_constant_items(values, ("a", "b", "c"))
     assert [(c.name, c.common, c.others, c.answered) for c in found] == [("a", 1.0, 4, 600)]
-    values[:7, 0] = 2.0  # 7 rows of 600 differ: not fewer than 6
+    values[:12, 0] = 2.0  # 12 rows of 600 differ: 2% -> nearly constant
+    assert [(c.name, c.others) for c in nearly_constant_items(values, ("a", "b", "c"))] == [("a", 12)]
+    values[:13, 0] = 2.0  # 13 rows of 600 differ: more than 2% -> not
     assert nearly_constant_items(values, ("a", "b", "c")) == ()
     # a tiny sample (the limit of 5 rows reaches every row): 5 rows answered 5 ways hold no common answer (it read
     # "'x1' is -0.49 in all but 4 of the 5 rows answering it"); 4 alike and 1 other is nearly constant
