@@ -37,7 +37,26 @@ def _presenter():
 def _scorer():
     from cfa_tool.workflows.factor_scores import score_with_fit
 
-    return score_with_fit
+    return composing(score_with_fit)
+
+
+def composing(function):
+    """``function`` (an entry point of the Python API) with its keywords that name columns, groups or words of the
+    data (options.NAMING: group=, id_column=, keep=, weights=, cluster=, strata=, items=, ordinal=, missing_codes=...)
+    in Unicode's composed form, by the one rule the command line's options follow (language.names.composed_value): a
+    name written with decomposed accents is the column written composed (s23: only the command line composed them)."""
+    import functools
+
+    from cfa_tool.language.names import composed_value
+    from cfa_tool.options import NAMING
+
+    naming = {o.keyword for o in NAMING}
+
+    @functools.wraps(function)
+    def composed_call(*args, **kwargs):
+        return function(*args, **{k: composed_value(v) if k in naming else v for k, v in kwargs.items()})
+
+    return composed_call
 
 
 views.install(_presenter)
@@ -45,6 +64,14 @@ views.install(_scorer, "scorer")
 
 
 def __getattr__(name: str):
+    found = _entry_point(name)
+    if name != "parse_model":
+        found = composing(found)
+    globals()[name] = found  # made once: later look-ups find it without this function
+    return found
+
+
+def _entry_point(name: str):
     if name in ("fit", "check"):
         from cfa_tool.pipeline import inputs
 

@@ -116,13 +116,14 @@ def docx_file(args: argparse.Namespace, report, dpi: int | None = None) -> list[
 
 
 def table_files(args: argparse.Namespace, report, inputs: list[str | None]) -> dict[str, str]:
-    """The --tables files of a report (name -> text), checked against the folder before anything is written."""
+    """The --tables files of a report (name -> text), checked against the folder before anything is written; the CSV
+    files in the convention of the data file the result read (reporting.document.Report.csv_convention)."""
     if not getattr(args, "tables", None):
         return {}
     from cfa_tool.output_files import check_table_folder
     from cfa_tool.reporting.text_formats import report_table_files
 
-    files = report_table_files(report)
+    files = report_table_files(report, report.csv_convention)
     check_table_folder("--tables", args.tables, files, [i for i in inputs if i])
     return files
 
@@ -181,7 +182,9 @@ def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
     itself, such as simulated rows) and write them, then show the report (:func:`show`)."""
     from cfa_tool.reporting.reports import report_of
 
-    report = replace(report_of(result), files=named_files(args, inputs))
+    from cfa_tool.data.csv_convention import convention_of_result
+
+    report = replace(report_of(result), files=named_files(args, inputs), csv_convention=convention_of_result(result))
     files = list(first)
     if getattr(args, "json", None):
         from cfa_tool.reporting.json_report import to_json
@@ -248,16 +251,18 @@ def add_halves_file(parser: argparse.ArgumentParser, asked: str) -> None:
 
 
 def halves_file(args: argparse.Namespace, halves: list[tuple[str, tuple[int, ...]]],
-                seed: int, drawn_by=None) -> list[tuple[str, object, str]]:
+                seed: int, drawn_by, result) -> list[tuple[str, object, str]]:
     """(option, content, message) of --halves-file when asked (data.halves.halves_text: one line per row split, in
     the order of the rows, with the ``seed`` and the data file's name and checksum; ``halves``: each half's name and
     its rows' numbers, data.moments.row_numbers; ``drawn_by``: the clusters and strata they were drawn by,
-    data.halves.DrawnBy)."""
+    data.halves.DrawnBy); written in the convention of the data file (data.csv_convention) the ``result`` read."""
     if not getattr(args, "halves_file", None):
         return []
+    from cfa_tool.data.csv_convention import convention_of_result
     from cfa_tool.data.halves import halves_text
 
-    return [(HALVES_FILE, halves_text(halves, seed, args.data, getattr(args, "sheet", None), drawn_by),
+    return [(HALVES_FILE, halves_text(halves, seed, args.data, getattr(args, "sheet", None), drawn_by,
+                                      convention_of_result(result)),
              f"The rows of each half written to {args.halves_file}")]
 
 

@@ -80,7 +80,7 @@ def run(args: argparse.Namespace) -> int:
         first, second = EXPLORE_HALVES
         files += halves_file(args, [(first, result.split.exploration_rows),
                                     (second, result.split.confirmation_rows)], result.split.seed,
-                            result.split.drawn_by)
+                            result.split.drawn_by, result)
         if files[-1:] and files[-1][0] == HALVES_FILE:  # the way to fit an edited draft on the confirmation half
             import shlex
 

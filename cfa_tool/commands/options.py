@@ -8,6 +8,7 @@ import argparse
 
 from cfa_tool.errors import OptionError
 from cfa_tool.method import FitTest, MissingData, Weighting
+from cfa_tool.options import NAMING, Option
 
 
 class Renamed(argparse.Action):
@@ -123,32 +124,24 @@ def no_answer_words(args: argparse.Namespace) -> tuple[str, ...]:
     return tuple(v for v in getattr(args, "missing_codes", ()) if isinstance(v, str))
 
 
-#: the options that name columns of the data, a group by its label or words of the data (--missing-codes' words), as
-#: their attributes of the parsed arguments: each read in Unicode's composed form by :func:`composed_names`
-NAMING_OPTIONS = ("group", "reference_group", "id", "keep", "weights", "cluster", "strata", "items", "ordinal",
-                  "missing_helpers", "rename", "validation_rename", "missing_codes")
+#: the attributes of the parsed arguments of the options that name columns, groups or words of the data
+#: (options.NAMING, declared once for the command line and Python alike): each keyword's attribute, '--id' aside
+NAMING_OPTIONS = tuple({Option.ID_COLUMN: "id"}.get(o, o.keyword) for o in NAMING)
 
 
 def composed_names(args: argparse.Namespace) -> argparse.Namespace:
     """Every option of ``args`` that names a column, a group or a word of the data (:data:`NAMING_OPTIONS`:
     --group-column, --id, --keep, --weights, --cluster, --strata, --items, --ordinal, the words of --missing-codes, ...)
-    in Unicode's composed form, by the one rule of names
-    (language.names.composed) by which the data's column names and the model's are read: a name typed or pasted with
+    in Unicode's composed form, by the one rule of names (language.names.composed_value, which the Python API's
+    keywords follow too) by which the data's column names and the model's are read: a name typed or pasted with
     decomposed accents ('cafe' + U+0301, as some systems write it) is the column written composed (s23: refused with
     a 'did you mean' that showed the same-looking name).  The one place the command line reads them, for every
     command (commands.run)."""
-    from cfa_tool.language.names import composed
-
-    def each(value):
-        if isinstance(value, str):
-            return composed(value)
-        if isinstance(value, (list, tuple)):
-            return type(value)(each(v) for v in value)
-        return value
+    from cfa_tool.language.names import composed_value
 
     for name in NAMING_OPTIONS:
         if getattr(args, name, None) is not None:
-            setattr(args, name, each(getattr(args, name)))
+            setattr(args, name, composed_value(getattr(args, name)))
     return args
 
 

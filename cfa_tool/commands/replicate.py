@@ -83,6 +83,7 @@ def run(args: argparse.Namespace) -> int:
     from cfa_tool.data.halves import REPLICATE_HALVES
 
     first, second = REPLICATE_HALVES
+    result = Replications(tuple(pair))
     halves = halves_file(args, [(first, split.half_a), (second, split.half_b)],
-                         1 if args.seed is None else args.seed, split.drawn_by()) if split is not None else []
-    return emit(args, Replications(tuple(pair)), halves)
+                         1 if args.seed is None else args.seed, split.drawn_by(), result) if split is not None else []
+    return emit(args, result, halves)

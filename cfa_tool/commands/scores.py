@@ -116,12 +116,12 @@ def run(args: argparse.Namespace) -> int:
 
     empty = result.rows - result.rows_scored
     lines = lines_without_data(result)
-    rows = ("--output", result.csv(), f"Scores of {rows_scored(result)} written to {args.output}"
+    rows = ("--output", result.file_text(), f"Scores of {rows_scored(result)} written to {args.output}"
             + (f"; the {empty} without any score {'keeps its' if empty == 1 else 'keep their'} line, empty, with the "
                f"reason in {WHY_NOT_SCORED_COLUMN}"
                if empty else "") + (f"; it holds {lines}" if lines else "")
             + (f"; it has {rows_above_names(result)}" if rows_above_names(result) else "")
-            + ("" if result.file_format.plain() else f"; {result.file_format.words()}, as in the data file"))
+            + ("" if result.file_format.plain() else f"; {result.file_format.said()}"))
     emit_report(args, result, [args.model, args.data, args.from_fit], first=[rows])
     if result.low_determinacy:
         say(args, f"Caution: the determinacy of {', '.join(result.low_determinacy)} is below .80; see the report")

@@ -96,12 +96,24 @@ def shared_extremes(values: np.ndarray | None) -> AnswerExtremes | None:
 FEW_CATEGORIES = 4
 
 
-#: an item whose answers are one value in all rows but fewer than this many (or than NEARLY_CONSTANT_SHARE of the rows
-#: answering it, whichever is more) is nearly constant: its variance, and its loading's size and sign, rest on those
-#: few rows (a rule of thumb of this project, not a published cutoff; it extends the rule for items answered by few
-#: rows, pipeline.inputs.few_answers_problems)
+#: an answer given by fewer rows than this many (or than RARE_SHARE of the rows answering the item, whichever is more) is
+#: rare: a category of so few rows leaves its threshold and the polychoric correlations it enters resting on those
+#: rows (:func:`rare_answer_limit`; a rule of thumb of this project, not a published cutoff)
 NEARLY_CONSTANT_ROWS = 5
-NEARLY_CONSTANT_SHARE = 0.01
+RARE_SHARE = 0.01
+#: an item is nearly constant when one answer is given by all the rows answering it but fewer than NEARLY_CONSTANT_ROWS,
+#: or but at most this share of them (the common answer given by 98% of the rows or more: at 400 rows, up to 8 other
+#: answers): its variance, and its loading's size and sign, rest on those few rows.  Where the line lies is common
+#: practice, not a published cutoff: a researcher calls an item nearly constant when some 98-99% of the sample gave one
+#: answer (recalled from memory; screening rules of 'near-zero variance' in data analysis draw it at about 95:5 of the
+#: two most common answers, a looser line); the share extends the rule for items answered by few rows
+#: (pipeline.inputs.few_answers_problems).  A tester found the former line (1%, at least 5 rows) missing items with 5 to 8
+#: other answers of 400 (session note s23).
+NEARLY_CONSTANT_SHARE = 0.02
+#: where the line lies, in the words of the caution
+NEARLY_CONSTANT_WORDS = (f"one answer given by {100 - 100 * NEARLY_CONSTANT_SHARE:.0f}% or more of the rows answering, "
+                         f"or by all but fewer than {NEARLY_CONSTANT_ROWS}: a line of common practice, not a published "
+                         f"cutoff")
 
 
 @dataclass(frozen=True)
@@ -115,17 +127,25 @@ class NearlyConstant:
 
 
 def rare_answer_limit(answered: int) -> float:
-    """How few rows make an answer (or the answers other than the common one) rare among ``answered`` rows:
-    fewer than NEARLY_CONSTANT_ROWS, or than NEARLY_CONSTANT_SHARE of them when that is more."""
-    return max(NEARLY_CONSTANT_ROWS, NEARLY_CONSTANT_SHARE * answered)
+    """How few rows make an answer rare among ``answered`` rows: fewer than NEARLY_CONSTANT_ROWS, or than RARE_SHARE
+    of them when that is more."""
+    return max(NEARLY_CONSTANT_ROWS, RARE_SHARE * answered)
+
+
+def few_others(others, answered):
+    """Whether ``others`` answers other than an item's common one, of ``answered`` rows, leave it nearly constant
+    (arrays elementwise): fewer than NEARLY_CONSTANT_ROWS, or at most NEARLY_CONSTANT_SHARE of the rows."""
+    others, answered = np.asarray(others), np.asarray(answered)
+    return (others < NEARLY_CONSTANT_ROWS) | (others <= NEARLY_CONSTANT_SHARE * answered + 1e-9)
 
 
 def nearly_constant_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[NearlyConstant, ...]:
     """The items (columns of ``values``, gaps NaN) whose answers differ from their most common answer in at
-    least one row but fewer than :func:`rare_answer_limit` rows, and in fewer rows than that answer's."""
+    least one row but in few enough to leave them nearly constant (:func:`few_others`), and in fewer rows than that
+    answer's."""
     found = []
     answered = np.isfinite(values).sum(axis=0)
-    limits = np.maximum(NEARLY_CONSTANT_ROWS, NEARLY_CONSTANT_SHARE * answered)
+    limits = np.maximum(NEARLY_CONSTANT_ROWS, NEARLY_CONSTANT_SHARE * answered + 1)
     # an answer held by all rows but fewer than the limit holds more than half of them when the limit is below half,
     # so it is the middle answer: only such items (and those of so few rows that the limit reaches half) are counted.
     # The middle answers by a partial sort (each column's answer at its middle place found, the columns not sorted
@@ -146,7 +166,7 @@ def nearly_constant_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[N
         others = len(column) - int(counts.max())
         # the common answer must also outnumber the others together: among 5 rows answered 5 ways, none is
         # "the answer of all rows but 4" (a tiny sample's limit of 5 rows reaches every row)
-        if 0 < others < rare_answer_limit(len(column)) and others < int(counts.max()):
+        if 0 < others < int(counts.max()) and few_others(others, len(column)):
             found.append(NearlyConstant(name, float(levels[counts.argmax()]), others, len(column)))
     return tuple(found)
 

@@ -30,7 +30,7 @@ from cfa_tool.options import Option
 from cfa_tool.language.names import written_name
 from cfa_tool.numbers import count_text, cut_list, more_words, number, user_number
 from cfa_tool.data.renamed_columns import renamed_hint
-from cfa_tool.suggest import close_names
+from cfa_tool.suggest import close_names, did_you_mean
 
 #: the test of each operator a row filter may use (the comparisons of the filter's column with its value)
 OPERATOR_TESTS = {"=": operator.eq, "!=": operator.ne, "<": operator.lt, "<=": operator.le, ">": operator.gt,
@@ -390,7 +390,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         if f.column not in frame.columns and not by_row_names:
             named = [str(c) for c in frame.columns] + ([ROW_NAMES_COLUMN] if row_names is not None else [])
             guess = close_names(f.column, named)
-            hint = renamed_hint(frame, f.column) or (f"; did you mean '{guess[0]}'?" if guess else "")
+            hint = renamed_hint(frame, f.column) or (did_you_mean(f.column, guess[0]) if guess else "")
             raise OptionError(f"row filter {quoted_filter(f)}: {source} has no column '{printable(f.column)}'{hint}")
         column = row_names.reindex(frame.index).rename(f.column) if by_row_names else frame[f.column]
         labels = (value_labels or {}).get(f.column)

@@ -12,7 +12,7 @@ import pandas as pd
 from cfa_tool.data.labels import (code_order, distinct_cells, group_keys, label_text, listed_labels, merged_labels,
                                   ordered_labels)
 from cfa_tool.data.renamed_columns import renamed_hint
-from cfa_tool.suggest import close_names
+from cfa_tool.suggest import close_names, did_you_mean
 from cfa_tool.data.moments import SampleMoments, numeric_columns, sample_moments
 from cfa_tool.errors import DataError, OptionError, check_rows_counted, printable
 from cfa_tool.method import MissingData
@@ -31,7 +31,7 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
         raise OptionError(f"the group column must be given by its name (text), not {type(column).__name__}")
     if column not in frame.columns:
         guess = close_names(column, [str(c) for c in frame.columns])
-        hint = renamed_hint(frame, column) or (f"; did you mean '{guess[0]}'?" if guess else "")
+        hint = renamed_hint(frame, column) or (did_you_mean(column, guess[0]) if guess else "")
         raise OptionError(f"{source}: there is no group column '{printable(column)}'{hint}")
     values = frame[column].dropna()
     labels = ordered_labels({label_text(v) for v in distinct_cells(values)[0]} - {""}, frame,  # each distinct cell once

@@ -31,6 +31,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.csv_convention import PLAIN, CsvConvention
 from cfa_tool.data.kept_rows import KEPT_BY, row_naming, rows_listed
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.numbers import count_text
@@ -278,16 +279,18 @@ class DrawnBy:
 
 
 def halves_text(halves: list[tuple[str, tuple[int, ...]]], seed: int, data, sheet: str | None = None,
-                drawn_by: DrawnBy | None = None) -> str:
+                drawn_by: DrawnBy | None = None, convention: CsvConvention = PLAIN) -> str:
     """The halves file: one line per row split, in the order of the rows (``halves``: each half's name and its rows'
     numbers, data.moments.row_numbers, the first half first), each with the seed, the data file's name and checksum
     and the sheet read (``sheet``: the one asked for; data.readers.sheet_read); halves drawn by cluster within strata
-    (``drawn_by``) add the columns and each row's cluster and stratum (:data:`DRAWN_BY_COLUMNS`)."""
+    (``drawn_by``) add the columns and each row's cluster and stratum (:data:`DRAWN_BY_COLUMNS`).  Written in
+    ``convention``, the data file's (data.csv_convention: its separator and byte-order mark, the one rule of every CSV
+    file the tool writes), which :func:`read_halves` reads back."""
     name = Path(data).name if isinstance(data, (str, Path)) else ""
     sums = fingerprint(data)
     sheet = sheet_read(data, sheet)
     out = io.StringIO()
-    writer = csv.writer(out, lineterminator="\n")
+    writer = csv.writer(out, delimiter=convention.separator, lineterminator="\n")
     writer.writerow(HALVES_COLUMNS if drawn_by is None else DRAWN_BY_COLUMNS)
     for row, half in sorted((row, half) for half, numbers in halves for row in numbers):
         line = (row, half, seed, name, sums, sheet or "")
@@ -295,7 +298,7 @@ def halves_text(halves: list[tuple[str, tuple[int, ...]]], seed: int, data, shee
             cluster, stratum = drawn_by.labels[row]
             line += (drawn_by.cluster or "", cluster, drawn_by.strata or "", stratum)
         writer.writerow(line)
-    return out.getvalue()
+    return convention.file_text(out.getvalue())
 
 
 @dataclass(frozen=True)
@@ -341,7 +344,8 @@ def read_halves(path) -> SavedHalves:
                         f"the CSV file --halves-file wrote)") from None
     except OSError as exc:
         raise DataError(f"{shown}: cannot read the halves file ({printable(exc.strerror or 'unreadable')})") from None
-    reader = csv.reader(io.StringIO(text, newline=""))
+    first = text.split("\n", 1)[0]  # its header: separated by semicolons when the data file's fields were
+    reader = csv.reader(io.StringIO(text, newline=""), delimiter=";" if first.count(";") > first.count(",") else ",")
     try:
         lines = list(reader)
     except csv.Error:  # a value longer than the csv module's limit: a quote never closed, or not a halves file

@@ -22,8 +22,8 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.missing_codes import missing_codes_note
-from cfa_tool.data.non_answers import (FILTERS_KEPT, NonAnswer, answers_labelled_like_none, non_answer_note,
-                                       unused_run_words)
+from cfa_tool.data.non_answers import (FILTERS_KEPT, NonAnswer, answers_labelled_like_none, fit_marked_note,
+                                       non_answer_note, unused_run_words)
 from cfa_tool.note_parts import Text
 from cfa_tool.numbers import counted
 
@@ -112,6 +112,10 @@ class ReadingCounts:
     unused_note: Text | None = None
     #: each code of ``codes`` that some item cell held, with the rows (index labels) of those cells
     code_rows: tuple[tuple[float, tuple], ...] = ()
+    #: scores of other data with an earlier fit: the cells read as no answer because the fit's data file marked their
+    #: values so (data.non_answers.CarriedCells), and the note over every row read that says them
+    carried: tuple = ()
+    carried_note: Text | None = None
 
     def codes_among(self, frame: pd.DataFrame) -> tuple[float, ...]:
         """The codes given with --missing-codes that some item cell of the rows of ``frame`` held (the methods
@@ -146,6 +150,9 @@ class ReadingCounts:
             out[id(self.non_answer_note)] = ((note,) if note else ()) + (said_unused if self.unused_note is None else ())
         if self.unused_note is not None:
             out[id(self.unused_note)] = said_unused
+        if self.carried_note is not None:
+            note = fit_marked_note(self.carried, self.source, kept, among)
+            out[id(self.carried_note)] = (note,) if note else ()
         if self.labelled_notes:
             codes = tuple(self.codes)
             out[id(self.labelled_notes[0])] = tuple(a.note(self.source, codes) for a in answers_labelled_like_none(

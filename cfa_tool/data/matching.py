@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from cfa_tool.numbers import more_words, names_shown, user_number
-from cfa_tool.suggest import close_names
+from cfa_tool.suggest import LOOK_ALIKE, close_names, look_alike
 from cfa_tool.errors import DataError, ModelError, OptionError, character_names, printable
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
@@ -53,8 +53,9 @@ def check_columns(spec: Spec, columns: list[str], data_source: str, sheet_hint: 
             guess = close_names(name, columns)
             # the sheet, the renames and the row of names read after a guess too: a guess among a row of answers
             # read as names ('1' for 'q1') is no help without the row that holds the names (s20)
-            hint = (f"; did you mean '{guess[0]}'{character_names(guess[0], name)}?{_spaces_only(name, guess[0])}"
-                    if guess else "") + sheet_hint
+            hint = (f"; did you mean '{guess[0]}'{character_names(guess[0], name)}?" + (
+                _spaces_only(name, guess[0]) or (LOOK_ALIKE if look_alike(name, guess[0]) else ""))
+                if guess else "") + sheet_hint
             raise ModelError(
                 f"unknown variable '{name}' (not a column of {data_name}{hint})",
                 loc,

@@ -71,6 +71,16 @@ def codes_shown(codes) -> str:
     return ", ".join(f"{user_number(c)}" if isinstance(c, (int, float)) else f"'{printable(str(c))}'" for c in codes)
 
 
+#: the words of a note on the codes given with --missing-codes where it names the option (a manuscript's words)
+GIVEN_WORDS = " as codes of no answer"
+
+
+def names_the_given_codes(note) -> bool:
+    """Whether ``note`` is one of :func:`missing_codes_note`'s, which say the codes were given with --missing-codes
+    (scores of other data with an earlier fit read its codes without the option: those notes are not said then)."""
+    return isinstance(note, Note) and any(isinstance(p, Command) and p.words == GIVEN_WORDS for p in note.parts)
+
+
 def missing_codes_note(source: str | Path, codes: Collection[float | str], read_as_none: list[tuple[str, int]],
                        where: str = "") -> Note:
     """What --missing-codes (``codes``) did in the data file ``source``: how many cells of which columns
@@ -80,7 +90,7 @@ def missing_codes_note(source: str | Path, codes: Collection[float | str], read_
     The option apart (note_parts.Command): a manuscript says 'given as codes of no answer'."""
     given = codes_shown(codes)
     name = base_name(source)
-    with_option = Command(f" with {Option.MISSING_CODES}", " as codes of no answer")
+    with_option = Command(f" with {Option.MISSING_CODES}", GIVEN_WORDS)
     if not read_as_none:
         return Note((f"{name}: no cell {where or 'of numbers'} holds any of the codes given", with_option,
                      f" ({given})"))

@@ -27,12 +27,14 @@ import enum
 import functools
 import math
 import re
+import unicodedata
 from collections.abc import Iterable, Iterator
 from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
 
+from cfa_tool.language.names import composed
 from cfa_tool.language.spec import answer_key
 from cfa_tool.errors import DataError, clipped, printable
 from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, number, user_number
@@ -68,8 +70,14 @@ NON_ANSWER_MARKS = frozenset({"#NULL!", "-"})
 
 
 def _plain(text: str) -> str:
-    """Lower case; apostrophes, punctuation and runs of spaces as one space."""
-    return " ".join(re.sub(r"[^\w]+", " ", text.lower().replace("_", " ")).split())
+    """Lower case; apostrophes, punctuation and runs of spaces as one space; accents kept, in Unicode's composed form
+    (language.names.composed), whatever form the text came in: a word that differs by an accent is another word
+    ('avó' and 'avô', grandmother and grandfather), where a decomposed accent, a combining mark, was dropped as
+    punctuation and merged the two (session note s23, 'Noticed, left alone')."""
+    text = composed(text).lower().replace("_", " ")
+    if not text.isascii():  # combining marks without a composed form stay with their letter
+        text = "".join(ch if ch.isalnum() or unicodedata.category(ch).startswith("M") else " " for ch in text)
+    return " ".join(re.sub(r"[^\w]+", " ", text).split()) if text.isascii() else " ".join(text.split())
 
 
 @dataclass(frozen=True)
@@ -184,6 +192,14 @@ def _says(text: str, explained: bool, own: frozenset[str]) -> bool:
 def _parts(text: str) -> list[str]:
     """The phrases of ``text`` joined by '/', ',', ';', '&' or 'or', each as :func:`_plain` reads it."""
     return [_plain(p) for p in re.split(r"[/,;&]|\bor\b", text.lower())]
+
+
+def rows_saying(found: tuple["NonAnswer", ...], word: str) -> tuple:
+    """The rows (index labels) whose cells or labelled codes read as no answer (``found``) say ``word`` (a word of no
+    answer given or carried: compared as :func:`unused_run_words` compares them)."""
+    plain = _plain(word)
+    return tuple(r for f in found for r in f.rows
+                 if any(isinstance(t, str) and (_plain(t) == plain or plain in _parts(t)) for t in (f.value, f.label)))
 
 
 def unused_run_words(found: tuple["NonAnswer", ...], words: tuple[str, ...] | None = None) -> tuple[str, ...]:
@@ -322,7 +338,7 @@ class LabelledAnswer:
         total = sum(self.cells)
         codes = tuple(c for c in given if isinstance(c, (int, float))) + run_words() + (self.value,)
         return Note((f"{base_name(source)}: {user_number(self.value)} '{printable(self.label)}' lies between other answers of "
-                     f"the item{'s' if len(self.columns) != 1 else ''} and is analysed as an answer ({count_text(total)} "
+                     f"the item{'s' if len(self.columns) != 1 else ''} and is read as an answer ({count_text(total)} "
                      f"cell{'s' if total != 1 else ''}: {listed}), though its label reads like no answer",
                      Command(f"; to read it as no answer, give {codes_given(codes)}")))
 
@@ -411,7 +427,7 @@ class BeyondScale:
                               noun="item")
             where = (f"{len(self.columns)} items of {name} hold the code {user_number(self.value)} labelled "
                      f"'{printable(self.label)}' ({cells} cells: {listed}), beyond their other labelled answers")
-        return f"{where} ({user_number(self.scale[0])} to {user_number(self.scale[1])}), analysed as an answer: a code of no answer?"
+        return f"{where} ({user_number(self.scale[0])} to {user_number(self.scale[1])}), read as an answer: a code of no answer?"
 
     def advice(self) -> Note:
         return Note((f"If {user_number(self.value)} '{printable(self.label)}' is not an answer on the scale, ",
@@ -482,16 +498,66 @@ def declared_missing(frame: pd.DataFrame, ranges: dict, value_labels: dict) -> t
 #: every file by the one vocabulary, and the run's codes and words are carried as codes
 MARKED_BY_FILE = (NonAnswerKind.DECLARED, NonAnswerKind.LABELLED)
 
-_FIT_MARKED: contextvars.ContextVar[tuple[NonAnswer, ...]] = contextvars.ContextVar("cfa_tool_fit_marked", default=())
+_FIT_MARKED: contextvars.ContextVar[tuple[tuple[NonAnswer, ...], tuple]] = contextvars.ContextVar(
+    "cfa_tool_fit_marked", default=((), ()))
+
+
+@dataclass(frozen=True)
+class DeclaredRange:
+    """A range of values an SPSS file declares missing in one column ('90 thru 99'; a discrete missing value is a
+    range of one value): the declaration itself, which a fit keeps for its item columns, so that scoring other data
+    with the fit reads every value of the range as no answer, also those the fit's own rows never took (rows-s24: only
+    the values the fit's data held were carried, and a 98 of the scored file was scored as an answer)."""
+
+    column: str
+    low: float
+    high: float
+
+    def shown(self) -> str:
+        return user_number(self.low) if self.low == self.high else f"{user_number(self.low)} to {user_number(self.high)}"
+
+    def to_dict(self) -> dict:
+        return {"column": self.column, "low": self.low, "high": self.high}
+
+
+def declared_ranges(ranges: dict) -> tuple[DeclaredRange, ...]:
+    """The numeric ranges an SPSS file declares missing (``ranges``: pyreadstat's {column: [{'lo': .., 'hi': ..}]});
+    Stata's tagged missing values (.a to .z) are letters, which no file of numbers holds, and are left out."""
+    out = []
+    for column, spans in (ranges or {}).items():
+        for span in spans or ():
+            lo, hi = span.get("lo"), span.get("hi")
+            if isinstance(lo, (int, float)) and isinstance(hi, (int, float)) and not isinstance(lo, bool) \
+                    and np.isfinite(lo) and np.isfinite(hi) and lo <= hi:
+                out.append(DeclaredRange(str(column), float(lo), float(hi)))
+    return tuple(out)
+
+
+def ranges_from_saved(saved) -> tuple[DeclaredRange, ...]:
+    """:meth:`DeclaredRange.to_dict` read back (a saved fit's ``data.missing_ranges_declared_by_the_file``); a list
+    changed by hand raises KeyError, TypeError or ValueError, which the reader of the saved fit names."""
+    return tuple(DeclaredRange(str(d["column"]), float(d["low"]), float(d["high"])) for d in saved or ())
+
+
+@dataclass(frozen=True)
+class CarriedCells:
+    """The cells of one column holding one value that an earlier fit read as no answer (its data file's declarations
+    or labels), read so in the data scored: their rows (index labels), by which the note counts the rows kept."""
+
+    value: float
+    column: str
+    rows: tuple
 
 
 @contextlib.contextmanager
-def fit_marked(found: tuple[NonAnswer, ...]) -> Iterator[None]:
+def fit_marked(found: tuple[NonAnswer, ...], ranges: tuple[DeclaredRange, ...] = ()) -> Iterator[None]:
     """Within: the codes that an earlier fit's data file declared missing or labelled as no answer (``found``, the
-    fit's values read as no answer; those of :data:`MARKED_BY_FILE` with numbers) are read as no answer in the same
-    item columns of the data read (:func:`read_fit_marked`): scores of another file with the fit (an export of the
-    same survey without the declarations, say) treat as missing what the fit did."""
-    token = _FIT_MARKED.set(tuple(f for f in found if f.kind in MARKED_BY_FILE and isinstance(f.value, float)))
+    fit's values read as no answer; those of :data:`MARKED_BY_FILE` with numbers), and every value of the ranges it
+    declared missing in its item columns (``ranges``), are read as no answer in the same item columns of the data read
+    (:func:`read_fit_marked`): scores of another file with the fit (an export of the same survey without the
+    declarations, say) treat as missing what the fit did."""
+    token = _FIT_MARKED.set((tuple(f for f in found if f.kind in MARKED_BY_FILE and isinstance(f.value, float)),
+                             tuple(ranges)))
     try:
         yield
     finally:
@@ -516,48 +582,77 @@ def non_answers_from_saved(saved) -> tuple[NonAnswer, ...]:
                            None if d.get("label") is None else str(d["label"]), ()) for d in saved or ())
 
 
-def _marked_how(f: NonAnswer) -> str:
+def _marked_how(f: NonAnswer | DeclaredRange) -> str:
     """How a fit's data file marked the value ``f`` as no answer, in words."""
+    if isinstance(f, DeclaredRange):
+        return "declared it missing" if f.low == f.high else f"declared {f.shown()} missing"
     if f.kind is NonAnswerKind.DECLARED:
         return "declared it missing"
     return f"labelled it '{printable(f.label)}'" if f.label else "labelled it as no answer"
 
 
-def read_fit_marked(frame: pd.DataFrame, items, source: str, value_labels: dict) -> tuple[pd.DataFrame, str | None]:
+def read_fit_marked(frame: pd.DataFrame, items, source: str, value_labels: dict
+                    ) -> tuple[pd.DataFrame, tuple[CarriedCells, ...]]:
     """``frame`` with the codes of :func:`fit_marked` read as no answer in their item columns (``items``; None: every
-    column), and the note saying so (None when no cell holds one); a code that the file read labels as an answer
-    is refused, naming both readings: the files code that answer otherwise (the scores would read an answer as
-    no answer)."""
-    carried = _FIT_MARKED.get()
-    if not carried:
-        return frame, None
+    column), and the cells read so (:func:`fit_marked_note` says them, over the rows kept); a code that the file read
+    labels as an answer is refused, naming both readings: the files code that answer otherwise (the scores would read
+    an answer as no answer)."""
+    values, ranges = _FIT_MARKED.get()
+    if not values and not ranges:
+        return frame, ()
     mine = None if items is None else {str(x) for x in items}
-    found: dict[float, list[tuple[str, int]]] = {}
+    found: list[CarriedCells] = []
     out = frame
-    for f in carried:
+    for f in values + ranges:
         if f.column not in frame.columns or (mine is not None and f.column not in mine) \
                 or not pd.api.types.is_numeric_dtype(frame[f.column]):
             continue
-        label = (value_labels.get(f.column) or {}).get(f.value)
-        if label is not None and not says_no_answer(label, explained=True):
-            raise DataError(f"{base_name(source)}: column '{printable(f.column)}' labels {user_number(f.value)} "
-                            f"'{printable(label)}', an answer, but the earlier fit read {user_number(f.value)} as no "
-                            f"answer (its data file {_marked_how(f)}): the two files code the answers otherwise; "
-                            f"recode one as the other before scoring")
-        cells = (out[f.column] == f.value).to_numpy(dtype=bool)
-        if cells.any():
-            if out is frame:
-                out = frame.copy()
-            out[f.column] = out[f.column].where(~cells)
-            found.setdefault(f.value, []).append((f.column, int(cells.sum())))
-    if not found:
-        return frame, None
-    total = sum(n for held in found.values() for _, n in held)
-    listed = "; ".join(f"{user_number(v)} ({cut_list(held, SHOWN, lambda cn: f'{printable(cn[0])} {cn[1]}', noun='item')})"
-                       for v, held in found.items())
-    return out, (f"{base_name(source)}: {counted(total, 'cell')} of the items holding a value that the earlier fit's "
-                 f"data file marked as no answer (declared missing, or labelled so) {'was' if total == 1 else 'were'} "
-                 f"read as no answer, as the fit read {'it' if total == 1 else 'them'}: {listed}")
+        column = out[f.column]
+        cells = ((column >= f.low) & (column <= f.high) if isinstance(f, DeclaredRange)
+                 else column == f.value).to_numpy(dtype=bool)
+        if not cells.any():
+            continue
+        taken = np.asarray(column.to_numpy(dtype=float)[cells])
+        for value in np.unique(taken):
+            label = (value_labels.get(f.column) or {}).get(float(value))
+            if label is not None and not says_no_answer(label, explained=True):
+                raise DataError(f"{base_name(source)}: column '{printable(f.column)}' labels {user_number(value)} "
+                                f"'{printable(label)}', an answer, but the earlier fit read {user_number(value)} as "
+                                f"no answer (its data file {_marked_how(f)}): the two files code the answers "
+                                f"otherwise; recode one as the other before scoring")
+            same = cells & (column.to_numpy(dtype=float) == value)
+            found.append(CarriedCells(float(value), f.column, tuple(frame.index[same].tolist())))
+        if out is frame:
+            out = frame.copy()
+        out[f.column] = column.where(~cells)
+    return out, tuple(found)
+
+
+def fit_marked_note(found: tuple[CarriedCells, ...], source: str, kept: pd.Index | None = None,
+                    among: str = "") -> str | None:
+    """The note on the cells :func:`read_fit_marked` read as no answer, counted over the rows ``kept`` (the rows row
+    filters kept: ``among`` names them after 'the N rows'; None: every row read), by the rule of every count of the
+    rows analysed (data.kept_counts; rows-s24: the note counted the cells of rows the filters left out); None when no
+    cell of those rows holds one."""
+    counts: dict[float, dict[str, int]] = {}
+    rows: set = set()
+    for f in found:
+        held = [r for r in f.rows if kept is None or r in kept]
+        if held:
+            counts.setdefault(f.value, {})
+            counts[f.value][f.column] = counts[f.value].get(f.column, 0) + len(held)
+            rows.update(held)
+    if not counts:
+        return None
+    total = sum(n for held in counts.values() for n in held.values())
+    listed = "; ".join(f"{user_number(v)} ({cut_list(list(held.items()), SHOWN, lambda cn: f'{printable(cn[0])} {cn[1]}', noun='item')})"
+                       for v, held in sorted(counts.items()))
+    held = (f"{count_text(len(rows))} of the {counted(len(kept), 'row')} {among}" if kept is not None and among
+            else counted(len(rows), "row"))
+    return (f"{base_name(source)}: {counted(total, 'cell')} of the items (in {held}) holding "
+            f"a value that the earlier fit's data file marked as no answer (declared missing, or labelled so) "
+            f"{'was' if total == 1 else 'were'} read as no answer, as the fit read {'it' if total == 1 else 'them'}: "
+            f"{listed}")
 
 
 #: what a data frame built in Python may hold in a cell that is neither a number nor a word (never a file's cell)

@@ -156,7 +156,7 @@ class OddValues:
                      f"{len(self.columns)} item columns of {name} ({_listed(self.columns)}) hold")
             return (f"{where} the value {value} ({self.answers} answer{'s' if self.answers != 1 else ''} in "
                     f"{self._rows_named()}), outside the answer "
-                    f"scale of the other answers ({_number(low)} to {_number(high)}), analysed as an answer: "
+                    f"scale of the other answers ({_number(low)} to {_number(high)}), read as an answer: "
                     f"{self._guess()}?")
         if self.kind is OddKind.SUMMARY_BLOCK:
             return _block_caution(self, name)
@@ -167,8 +167,9 @@ class OddValues:
             return (f"{len(columns)} {self.role} columns of {name} ({_listed(columns)}) share {self._values_words()}, "
                     f"set apart from their other answers ({_number(low)} to {_number(high)}): "
                     f"{self._share_words()}, in {count_text(len(self.rows))} {rows} ({self._rows_named()}). Codes of "
-                    f"no answer ('don't know', 'refused') lie so; {'it is' if one else 'they are'} analysed as "
-                    f"answers, beyond the scale's ends.")
+                    f"no answer ('don't know', 'refused') lie so; "
+                    f"{'it is read as an answer' if one else 'they are read as answers'}, beyond the scale's "
+                    f"{'end' if one else 'ends'}.")
         guess = ("a totals or means row, or a typing error?" if self.kind is OddKind.FAR_BEYOND
                  else "a totals or means row of a spreadsheet?")
         return f"{self._row_holds(name)}: {guess}"

@@ -9,6 +9,7 @@ and whose variable and value labels are kept for reports.
 
 from __future__ import annotations
 
+import codecs
 import csv
 import io
 import re
@@ -21,6 +22,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.csv_convention import UTF8 as UTF8_NAME, UTF8_MARK, separator_words
 from cfa_tool.data.case_filter import filter_variable, kept_rows_words
 from cfa_tool.data.kept_rows import (SHEET_COLUMNS, TEXT_LINES, line_words, row_naming, row_words, rows_listed,
                                      text_lines)
@@ -28,8 +30,9 @@ from cfa_tool.data.kept_counts import ReadingCounts, emptied_cells, markers_note
 from cfa_tool.data.missing_codes import apply_missing_codes, codes_on_answers, missing_codes_note
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.notes_rows import end_of_data, notes_lines, notes_note
-from cfa_tool.data.non_answers import GIVEN_CODES, answers_labelled_like_none, declared_missing, labelled_non_answers, \
-    non_answer_note, read_fit_marked, run_words, says_no_answer, unused_run_words, written_non_answers
+from cfa_tool.data.non_answers import GIVEN_CODES, answers_labelled_like_none, declared_missing, declared_ranges, \
+    labelled_non_answers, \
+    non_answer_note, fit_marked_note, read_fit_marked, run_words, says_no_answer, unused_run_words, written_non_answers
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
 from cfa_tool.data.row_ids import id_text
 from cfa_tool.errors import DataError, clipped, printable
@@ -104,6 +107,9 @@ class LoadedData:
     #: the words given with --missing-codes (data.non_answers.run_words, as given), which advice that adds a code to
     #: the list keeps beside ``missing_codes`` (data.non_answers.codes_given)
     missing_words: tuple[str, ...] = ()
+    #: the ranges of values an SPSS file declares missing (data.non_answers.DeclaredRange), which a fit keeps for its
+    #: items and scoring other data with the fit reads as no answer, every value of them
+    declared_ranges: tuple = ()
 
     def column_hint(self) -> str:
         """Words for a message about a missing column: the columns read under new names (a name the model uses may
@@ -236,8 +242,9 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     coded = emptied_cells(before, frame) if missing_codes else ()  # (their notes written again over the rows kept)
     frame, labelled = labelled_non_answers(frame, item_labels, tuple(missing_codes))
     frame, carried = read_fit_marked(frame, mine, str(where), item_labels)  # scores: what the fit's file marked
-    if carried:
-        code_notes = tuple(code_notes) + (carried,)
+    carried_note = fit_marked_note(carried, str(where)) if carried else None
+    if carried_note:
+        code_notes = tuple(code_notes) + (carried_note,)
     if frame is not loaded.frame:
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
     if on_answers:
@@ -261,7 +268,8 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
         str(where), None if mine is None else frozenset(mine), tuple(missing_codes), coded, item_labels,
         code_notes[0] if missing_codes else None, read_as_none, like_none,
         markers[0] if markers and any(n is markers[0] for n in loaded.notes) else None,
-        markers[1] if markers else {}, tuple(run_words()), unused_note, _code_rows(before, found, mine)))
+        markers[1] if markers else {}, tuple(run_words()), unused_note, _code_rows(before, found, mine),
+        carried, carried_note))
     if code_notes:
         loaded = replace(loaded, notes=loaded.notes + tuple(code_notes))
     numbers = tuple(float(c) for c in missing_codes if isinstance(c, (int, float)) and not isinstance(c, bool))
@@ -705,7 +713,7 @@ class OtherSheets:
         name = source.replace("\\", "/").rsplit("/", 1)[-1]
         listed = " and ".join(f"'{printable(s)}'" for s in self.sheets)
         other = "sheet" if len(self.sheets) == 1 else "sheets"
-        return (f"{name}: only the sheet '{printable(self.read)}' is read, and the workbook's {other} {listed} "
+        return (f"{name}: only the sheet '{printable(self.read)}' was read, and the workbook's {other} {listed} "
                 f"{'holds' if len(self.sheets) == 1 else 'hold'} columns named as every item of the model too.")
 
     def advice(self) -> Note:
@@ -1126,10 +1134,11 @@ def _read_labelled(path: Path) -> LoadedData:
             values[column] = {tagged.get(k, k) if isinstance(k, str) else k: v for k, v in values.get(column, {}).items()}
             ranges[column] = [{"lo": t, "hi": t} for t in tagged.values()]
     frame, declared = declared_missing(frame, ranges, values)
+    spans = declared_ranges(ranges)  # the declarations themselves: a fit keeps its items', scoring reads them so
     measures = read_measure_levels(getattr(meta, "variable_measure", None))
     if measures:  # kept with the frame, through row filters and copies, for the notes on items and groups
         frame.attrs[MEASURE_LEVELS] = measures
-    return LoadedData(frame, str(path), labels, values, non_answers=declared)
+    return LoadedData(frame, str(path), labels, values, non_answers=declared, declared_ranges=spans)
 
 
 #: how each kind of binary file starts (its signature): a workbook is a zip archive; an SPSS file '$FL2' ('$FL3'
@@ -1261,17 +1270,10 @@ def decoded_table(raw: bytes) -> tuple[str, TextEncoding]:
 class TextEncoding(Enum):
     """How the bytes of a delimited file were read as text."""
 
-    UTF8 = "UTF-8"
+    UTF8 = UTF8_NAME
     UTF16 = "UTF-16"
     WINDOWS_WESTERN = "Windows-1252 (Western European)"
     LATIN1 = "Latin-1"
-
-
-def separator_words(separator: str, decimal: str) -> str:
-    """'fields separated by semicolons, decimals written with commas': how delimited text is written, the words of the
-    reading's note and of the scores file's format alike."""
-    fields = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "vertical bars ('|')"}[separator]
-    return f"fields separated by {fields}, decimals written with {'commas' if decimal == ',' else 'points'}"
 
 
 @dataclass(frozen=True)
@@ -1284,6 +1286,9 @@ class TextReading:
     decimal: str
     names_line: int  # the text line of the column names
     names_row: int  # their row as a spreadsheet shows the file (one per record), by which rows are numbered
+    #: whether the file began with a byte-order mark (a spreadsheet's 'CSV UTF-8'), which the CSV files the tool writes
+    #: from these data keep (data.csv_convention)
+    byte_order_mark: bool = False
 
     def plain(self) -> bool:
         """UTF-8 text with commas between fields and decimal points, the reading every note would otherwise repeat
@@ -1298,7 +1303,7 @@ class TextReading:
 
     def to_dict(self) -> dict:
         return {"encoding": self.encoding.value, "separator": self.separator, "decimal_mark": self.decimal,
-                "names_line": self.names_line, "names_row": self.names_row}
+                "byte_order_mark": self.byte_order_mark, "names_line": self.names_line, "names_row": self.names_row}
 
 
 def _filled(fields: list[str], delimiters_only: bool = False) -> bool:
@@ -1672,7 +1677,8 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
                                  names_row=names_row)
     decimal = _decimal_mark(body, delimiter)
     if reading is not None:
-        reading.append(TextReading(encoding, delimiter, decimal, header_line, header_row))
+        reading.append(TextReading(encoding, delimiter, decimal, header_line, header_row,
+                                   raw.startswith((UTF8_MARK, codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE))))
     try:
         frame = pd.read_csv(
             io.StringIO(body),

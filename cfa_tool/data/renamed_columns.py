@@ -14,7 +14,7 @@ from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.language.names import composed
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
-from cfa_tool.suggest import close_names
+from cfa_tool.suggest import close_names, did_you_mean
 
 
 #: What a rename option takes (:func:`column_renames`): a mapping {'OLD': 'NEW'}, text 'OLD=NEW' (several separated by
@@ -116,7 +116,7 @@ def renamed_frame(frame: pd.DataFrame, renames: tuple[ColumnRename, ...], source
         if r.old not in columns:
             near = close_names(r.old, columns)
             raise DataError(f"{source}: {given}: there is no column '{printable(r.old)}' in the file"
-                            + (f"; did you mean '{printable(near[0])}'?" if near else ""))
+                            + (did_you_mean(r.old, near[0]) if near else ""))
         if r.new in columns and r.new not in olds:
             raise DataError(f"{source}: {given}: the file already has a column '{printable(r.new)}'; two columns "
                             f"cannot share a name (rename that one too, or give another name)")

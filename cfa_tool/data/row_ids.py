@@ -13,7 +13,7 @@ import pandas as pd
 from cfa_tool.errors import OptionError, clipped, printable
 from cfa_tool.numbers import user_number
 from cfa_tool.data.renamed_columns import renamed_hint
-from cfa_tool.suggest import close_names
+from cfa_tool.suggest import close_names, did_you_mean
 from cfa_tool.note_parts import Note, RowId, Text
 
 
@@ -43,7 +43,7 @@ def row_ids(frame: pd.DataFrame, source: str, id_column: str | None, model_varia
     columns = [str(c) for c in frame.columns]
     if id_column not in columns:
         guess = close_names(id_column, columns)
-        hint = renamed_hint(frame, id_column) or (f"; did you mean '{printable(guess[0])}'?" if guess else "")
+        hint = renamed_hint(frame, id_column) or (did_you_mean(id_column, guess[0]) if guess else "")
         raise OptionError(f"the id column '{printable(id_column)}' is not a column of {source}{hint}")
     if id_column in model_variables:
         raise OptionError(f"'{printable(id_column)}' is a variable of the model and cannot also be the id column "

@@ -21,7 +21,7 @@ from cfa_tool.language.names import written_group
 from cfa_tool.options import Option
 from cfa_tool.method import MissingData, WeightKind
 from cfa_tool.data.renamed_columns import renamed_hint
-from cfa_tool.suggest import close_names
+from cfa_tool.suggest import close_names, did_you_mean
 
 SMALL_NUMBER_OF_CLUSTERS = 30  # below about 30-50 clusters cluster-robust errors are too small (common practice)
 
@@ -529,8 +529,7 @@ def _check_names(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
         if name not in frame.columns:
             near = close_names(name, frame.columns)
             raise OptionError(f"{source}: there is no {what} column '{printable(name)}'"
-                              + (renamed_hint(frame, name) or (f"; did you mean '{printable(near[0])}'?" if near
-                                                               else "")))
+                              + (renamed_hint(frame, name) or (did_you_mean(name, near[0]) if near else "")))
         if name in model_variables:
             raise OptionError(f"'{printable(name)}' is an item in the model and cannot also be the {what} column")
         if name == group:

@@ -26,6 +26,20 @@ def composed(text: str) -> str:
     return text if text.isascii() else unicodedata.normalize("NFC", text)
 
 
+def composed_value(value):
+    """An option's value that names columns, groups or words of the data in Unicode's composed form (:func:`composed`):
+    a text, or each text of a list, a tuple or a dict (--rename's old and new names); anything else (a number, a row
+    selection object) as given.  The one rule of the command line's options and the Python API's keywords alike
+    (options.NAMING)."""
+    if isinstance(value, str):
+        return composed(value)
+    if isinstance(value, (list, tuple)):
+        return type(value)(composed_value(v) for v in value)
+    if isinstance(value, dict):
+        return {composed_value(k): composed_value(v) for k, v in value.items()}
+    return value
+
+
 def case_twins(read, columns) -> dict[str, tuple[str, ...]]:
     """For each name of ``read`` (the columns a run reads: the model's items, the group, id and design columns, a row
     filter's column) that is one of ``columns``, the other columns whose names differ from it only in upper and lower
@@ -264,7 +278,7 @@ def ordinal_names(given: str | Sequence[str], items: Sequence[str], among: str) 
     that counts a name that is no item are errors naming the option and the name."""
     from cfa_tool.errors import OptionError, printable
     from cfa_tool.options import Option
-    from cfa_tool.suggest import close_names, dotted_span
+    from cfa_tool.suggest import close_names, did_you_mean, dotted_span
 
     names: list[str] = []
     for name in [given] if isinstance(given, str) else given:
@@ -285,7 +299,7 @@ def ordinal_names(given: str | Sequence[str], items: Sequence[str], among: str) 
             if end not in items:
                 guess = _numbered_end(end, items, place) or close_names(end, items)
                 raise OptionError(f"{option}: the range's {place} '{printable(end)}' is not {among}"
-                                  + (f"; did you mean '{printable(guess[0])}'?" if guess else ""))
+                                  + (did_you_mean(end, guess[0]) if guess else ""))
         counted = range_names(ends[0], ends[1], lambda message: OptionError(f"{option}: {message}"))
         missing = [x for x in counted if x not in items]
         if missing:

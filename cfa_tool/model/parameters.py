@@ -35,7 +35,7 @@ import numpy as np
 
 from cfa_tool.numbers import rounded_number, user_number
 from cfa_tool.numerics.plain import journal_decimal
-from cfa_tool.suggest import close_names
+from cfa_tool.suggest import close_names, did_you_mean
 from cfa_tool.errors import ModelError, printable
 from cfa_tool.options import Option
 from cfa_tool.language.checks import all_refs, exogenous_factors
@@ -1155,7 +1155,7 @@ def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, mea
     for ref in refs:
         if ref.group not in group_labels:
             guess = close_names(ref.group, group_labels)
-            hint = f"; did you mean '{guess[0]}'?" if guess else f"; the groups are {', '.join(group_labels)}"
+            hint = did_you_mean(ref.group, guess[0]) if guess else f"; the groups are {', '.join(group_labels)}"
             raise _fail(spec, f"there is no group '{ref.group}' in the data{hint}", ref)
 
 

@@ -57,7 +57,7 @@ from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.language.names import case_twins, composed
 from cfa_tool.method import ADJUSTED_TEST, FitTest, MissingData, WeightKind, Weighting
 from cfa_tool.pipeline.results import CheckResult, FitResult
-from cfa_tool.suggest import close_names
+from cfa_tool.suggest import close_names, did_you_mean
 
 
 def load_spec(model: str | os.PathLike | Spec) -> Spec:
@@ -684,14 +684,12 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     (scores of other data with the fit read them so too) and the values of its items that the file itself marks as
     no answer (``loaded.non_answers``), which the methods paragraph names; and the values of its items that look like
     no answers but were analysed as answers (``loaded.odd_values``), and the row filters that chose its rows
-    (:func:`with_row_filters`), which it names too; how a text file was read (``loaded.reading``) and how its rows are
+    (:func:`with_row_filters`), which it names too, with how a text file was read (``loaded.reading``); how its rows are
     named (a data frame's by their index labels, data.kept_rows.RowNaming)."""
     result = with_row_filters(result, loaded)
     read = {}  # what the reading adds to the result's data, put in with one copy of the result
     if loaded.renamed:
         read["renamed"] = loaded.renamed
-    if loaded.reading is not None:
-        read["reading"] = loaded.reading
     naming = row_naming(loaded.frame)
     if naming is not RowNaming.FILE_ROW:
         read["row_naming"] = naming
@@ -713,6 +711,9 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     if codes or words or marked or odd:
         read.update(missing_codes=codes, no_answer_words=words, non_answers=marked, odd_values=odd,
                     codes_found=tuple(c for c in codes if c in found))
+    declared = tuple(r for r in loaded.declared_ranges if r.column in items)  # scoring other data reads them so
+    if declared:
+        read["declared_ranges"] = declared
     return replace(result, data=replace(result.data, **read)) if read else result
 
 
@@ -913,7 +914,9 @@ def with_odd_values(result, loaded: LoadedData, group: str | None = None, spec: 
                     design: DesignColumns | None = None, ids: dict | None = None, id_column: str | None = None):
     """``result`` (a fit: anything with ``problems``, ``observed``, ``n_obs`` and ``missing_data``) with the
     cautions about its data (:func:`data_problems`, the few answers judged by its own coverage) before its own,
-    each once (scores of the fitted file, say)."""
+    each once (scores of the fitted file, say), and how its text file was read (:func:`with_reading`: every workflow
+    decorates its fit so, its CSV files following the data file's convention)."""
+    result = with_reading(result, loaded)
     coverage = (getattr(result, "missing_data", None) or {}).get("coverage", {})
     helpers = tuple(getattr(getattr(result, "method", None), "helpers", None) or ())  # read as the items are
     listwise = getattr(getattr(result, "method", None), "missing", None) is MissingData.LISTWISE
@@ -1452,7 +1455,7 @@ def _few_answers_in_groups(names: tuple[str, ...], loaded: LoadedData, group: st
 
 def _nearly_constant_problems(names: tuple[str, ...], loaded: LoadedData | None, group: str | None) -> tuple:
     """The caution of :func:`few_answers_problems` on items answered alike by all rows but a few."""
-    from cfa_tool.data.descriptives import nearly_constant_items
+    from cfa_tool.data.descriptives import NEARLY_CONSTANT_WORDS, nearly_constant_items
 
     names = tuple(names)
     if loaded is None or not names:
@@ -1472,7 +1475,8 @@ def _nearly_constant_problems(names: tuple[str, ...], loaded: LoadedData | None,
     listed = cut_list(found, 5, lambda c: f"'{printable(c.name)}' is {user_number(c.common)} in all but {c.others} of "
                       f"the {c.answered} rows answering it", sep="; ", lead="; and ")
     return (Problem(ProblemKind.NEARLY_CONSTANT, (), float(min(c.others for c in found)),
-                    f"Nearly constant {'item' if one else 'items'}: {listed}. {'Its' if one else 'Their'} variance, "
+                    f"Nearly constant {'item' if one else 'items'} ({NEARLY_CONSTANT_WORDS}): {listed}. "
+                    f"{'Its' if one else 'Their'} variance, "
                     f"and the size and sign of {'its' if one else 'their'} loading, rest on those few rows alone, and "
                     f"so does whether the keyed sum scores reverse {'it' if one else 'them'}; analysed as ordered "
                     f"categories, a category of so few rows leaves the polychoric correlations undetermined.",
@@ -1606,11 +1610,24 @@ def _fit_read_rows(spec, loaded, notes, group, reference_group, fit_options, ord
 
 def with_row_filters(result, loaded: LoadedData):
     """``result`` (a fit of rows) with the row filters that chose its rows and the rows the file held before them
-    in its data summary, which the reports and the methods paragraph name (unchanged without filters)."""
+    in its data summary, which the reports and the methods paragraph name, and how a text file was read
+    (``loaded.reading``), whose convention the CSV files the run writes follow (data.csv_convention): every fit of
+    rows, a workflow's too (bootstrap, cutoffs), carries it (unchanged without filters and reading)."""
+    result = with_reading(result, loaded)
     if not loaded.row_filters:
         return result
     return replace(result, data=replace(result.data, row_filters=loaded.row_filters,
                                         rows_in_file=len(loaded.read_frame)))
+
+
+def with_reading(result, loaded: LoadedData):
+    """``result`` (a fit of rows) with how its text file was read (``loaded.reading``: data.readers.TextReading) in its
+    data summary: the notes and the JSON say it, and the CSV files of the run follow its convention
+    (data.csv_convention); unchanged for other files."""
+    data = getattr(result, "data", None)
+    if loaded.reading is None or not hasattr(data, "reading") or data.reading is not None:
+        return result
+    return replace(result, data=replace(data, reading=loaded.reading))
 
 
 def refuse_groups_filtered_out(spec: Spec, loaded: LoadedData, group: str | None,
@@ -1960,7 +1977,7 @@ def check_helper_columns(helpers: tuple[str, ...], frame: pd.DataFrame, source: 
     for name in helpers:
         if name not in columns:
             guess = close_names(name, columns)
-            hint = renamed_hint(frame, name) or (f"; did you mean '{printable(guess[0])}'?" if guess else "")
+            hint = renamed_hint(frame, name) or (did_you_mean(name, guess[0]) if guess else "")
             raise OptionError(f"the missing-data helper '{printable(name)}' ({Option.MISSING_HELPERS}) is not a column "
                               f"of {source}{hint}")
         if name in spec.observed_names:
@@ -2746,7 +2763,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        row_naming=row_naming(frame), text_lines=dict(text_lines(frame)),
                        answers=_answers_per_category(spec, frame, source, group, reference_group, ordinal_items,
                                                      loaded),
-                       refusals=refusals, stops_fit=stops,
+                       refusals=refusals, stops_fit=stops, reading=loaded.reading,
                        group_coverage=_group_coverage(spec, frame, source, group, reference_group),
                        degrees_of_freedom=None if ordinal_items else moments_count(table) - table.n_free)
 

@@ -140,6 +140,9 @@ class CheckResult(Presentable):
     #: the model's degrees of freedom for continuous items (variances, covariances and means less the free
     #: parameters; assessment.identification.moments_count); None for ordinal items, whose fit counts thresholds too
     degrees_of_freedom: int | None = None
+    #: how a delimited text file was read (data.readers.TextReading; None otherwise): the report's CSV tables follow
+    #: its convention (data.csv_convention)
+    reading: object | None = None
 
     @property
     def admissible(self) -> bool:
@@ -235,7 +238,8 @@ class CheckResult(Presentable):
                 "stops_an_ordinal_fit": list(self.refusals),
                 # the one line a fit of these rows (continuous items) stops with, as the check's exit gives it
                 "stops_fit": self.stops_fit or None,
-                "answers_per_category": [a.to_dict() for a in self.answers]}
+                "answers_per_category": [a.to_dict() for a in self.answers],
+                **({"reading": clean(self.reading.to_dict())} if self.reading is not None else {})}
 
 
 @dataclass(frozen=True)
@@ -272,6 +276,9 @@ class DataSummary:
     # values of the model's items that the data file itself marks as no answer, read as missing
     # (data.non_answers.NonAnswer): the methods paragraph names them
     non_answers: tuple = ()
+    # the ranges of values the data file declares missing in the model's items (data.non_answers.DeclaredRange: SPSS
+    # '90 thru 99'), every value of which scoring other data with this fit reads as no answer
+    declared_ranges: tuple = ()
     # summary statistics: which matrix was analysed (data.summary_stats.AnalysedMatrix); None for rows of answers
     analysed: object | None = None
     # per item, the lowest and highest answer of the rows analysed (empty without rows), so that scoring other data
@@ -360,6 +367,8 @@ class DataSummary:
             marked = saved_non_answers(self.non_answers)
             if marked:
                 out["marked_no_answer_by_the_file"] = clean(marked)
+        if self.declared_ranges:
+            out["missing_ranges_declared_by_the_file"] = clean([r.to_dict() for r in self.declared_ranges])
         if self.reading is not None:
             out["reading"] = clean(self.reading.to_dict())
         if self.renamed:

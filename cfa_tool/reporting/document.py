@@ -11,6 +11,7 @@ from dataclasses import dataclass, field, replace
 from functools import cached_property
 from typing import Callable
 
+from cfa_tool.data.csv_convention import PLAIN, CsvConvention
 from cfa_tool.note_parts import Command, Note, Text, read, saved
 from cfa_tool.reporting.tables import ProblemNotice, ReportTable
 
@@ -124,6 +125,9 @@ class Report:
     # the paths of the user's files as the report's words give them (the command line's models, data and outputs):
     # the views written for others to read name each by its file name (:func:`by_file_name`)
     files: tuple[str, ...] = ()
+    #: how the report's tables are written as CSV files (--tables): in the convention of the data file the result
+    #: read, the one rule of every CSV file the tool writes (data.csv_convention.convention_of_result)
+    csv_convention: CsvConvention = PLAIN
 
     def __post_init__(self) -> None:
         # the notices' lines as sentences, in every view and in a saved report (those saved before too)
@@ -143,7 +147,7 @@ class Report:
                                                          for f in self.figures],
                 "problem_table": None if self.problem_table is None else self.problem_table.to_dict(),
                 "warnings": [saved(x) for x in self.warnings], "listings": [{"title": x.title, "text": x.text} for x in self.listings],
-                "files": list(self.files)}
+                "files": list(self.files), "csv_convention": self.csv_convention.to_dict()}
 
     @classmethod
     def from_dict(cls, d: dict) -> "Report":
@@ -164,7 +168,7 @@ class Report:
                    None if d.get("problem_table") is None else ReportTable.from_dict(d["problem_table"]),
                    tuple(map(read, _listed(d, "warnings", ()))),
                    tuple(Listing(str(x["title"]), str(x["text"])) for x in _listed(d, "listings", ())),
-                   tuple(map(str, _listed(d, "files", ()))))
+                   tuple(map(str, _listed(d, "files", ()))), CsvConvention.from_dict(d.get("csv_convention")))
 
 
 def _listed(d: dict, key: str, default=None) -> list:

@@ -7,6 +7,7 @@ import re
 import sys
 from dataclasses import replace
 
+from cfa_tool.data.csv_convention import convention_in
 from cfa_tool.errors import OptionError
 from cfa_tool.version import check_written_version
 from cfa_tool.reporting.document import Report, ResultKind
@@ -92,6 +93,8 @@ def saved_report(payload: object, source: str) -> Report:
                           f"again with --json") from None
     if isinstance(saved, dict) and "files" not in saved:  # saved before reports listed the user's files
         report = replace(report, files=saved_paths(report, payload))
+    if isinstance(saved, dict) and "csv_convention" not in saved:  # saved before reports recorded it: the data's
+        report = replace(report, csv_convention=convention_in(payload))
     return _with_estimate_problems(report, payload, source)
 
 

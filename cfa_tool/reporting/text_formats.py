@@ -5,9 +5,11 @@ from __future__ import annotations
 import base64
 import csv
 import io
+import re
 
 import numpy as np
 
+from cfa_tool.data.csv_convention import PLAIN, CsvConvention
 from cfa_tool.note_parts import RUNNING, WORDS, View, said, titled
 from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.output_files import TABLE_CONTENTS
@@ -33,8 +35,8 @@ def markdown_table(table: ReportTable, view: View = RUNNING) -> str:
     return "\n".join(lines) + "\n"
 
 
-def _csv_number(value) -> str:
-    """A number as a data file holds it: full precision, a missing value empty."""
+def _csv_number(value, convention: CsvConvention = PLAIN) -> str:
+    """A number as a data file holds it: full precision in the convention's decimal mark, a missing value empty."""
     if value is None:
         return ""
     if isinstance(value, (bool, np.bool_)):
@@ -42,21 +44,34 @@ def _csv_number(value) -> str:
     if isinstance(value, (int, np.integer)):
         return str(int(value))
     if isinstance(value, (float, np.floating)):
-        return "" if not np.isfinite(value) else repr(float(value))
-    return csv_cell(value)
+        return "" if not np.isfinite(value) else convention.number(repr(float(value)))
+    return _csv_text(value, convention)
 
 
-def csv_table(table: ReportTable) -> str:
+def _csv_text(value, convention: CsvConvention) -> str:
+    """A cell of text guarded against spreadsheet formulas; a cell that is a number written with a decimal point
+    ('0.52', '-1.3') in the convention's decimal mark, so that a spreadsheet of decimal commas reads it as a number."""
+    text = csv_cell(value)
+    if convention.decimal == "," and _DECIMAL.fullmatch(text):
+        return convention.number(text)
+    return text
+
+
+_DECIMAL = re.compile(r"[-−]?\d*\.\d+")  # a number with a decimal point and no thousands separator
+
+
+def csv_table(table: ReportTable, convention: CsvConvention = PLAIN) -> str:
     """A table as CSV: numbers as numbers (the table's values when it has them: p-values and interval ends in
-    their own columns), text guarded against spreadsheet formulas."""
+    their own columns), text guarded against spreadsheet formulas; written in ``convention``, the data file's
+    (data.csv_convention: its separator and decimal mark)."""
     buffer = io.StringIO()
-    writer = csv.writer(buffer, lineterminator="\n")
+    writer = csv.writer(buffer, delimiter=convention.separator, lineterminator="\n")
     if table.values is not None:
         writer.writerow([csv_cell(c) for c in table.value_columns])
-        writer.writerows([_csv_number(v) for v in row] for row in table.values)
+        writer.writerows([_csv_number(v, convention) for v in row] for row in table.values)
     else:
         writer.writerow([csv_cell(c) for c in table.columns])
-        writer.writerows([csv_cell(v) for v in row] for row in table.rows)
+        writer.writerows([_csv_text(v, convention) for v in row] for row in table.rows)
     return buffer.getvalue()
 
 
@@ -135,21 +150,24 @@ def report_markdown(report) -> str:
     return "\n".join(parts)
 
 
-def report_table_files(report) -> dict[str, str]:
-    """Every table of a report as CSV and LaTeX, file name -> text; the problems first.  The tables go into
-    manuscripts and to colleagues: the user's files by their names, not their folders (document.by_file_name)."""
+def report_table_files(report, convention: CsvConvention = PLAIN) -> dict[str, str]:
+    """Every table of a report as CSV and LaTeX, file name -> text; the problems first.  The tables go
+    into manuscripts and to colleagues: the user's files by their names, not their folders (document.by_file_name).
+    The CSV files are written in ``convention``, that of the data file the result read (data.csv_convention: its
+    separator, decimal mark and byte-order mark, the one rule of every CSV file the tool writes)."""
     report = by_file_name(report)
     problems = report.problem_table or (notice_table(report.notice) if report.notice is not None else None)
     tables = ([problems] if problems is not None else []) + list(report.tables)
     files = {}
     manuscript = titled(tables, commands=False)  # a LaTeX table goes into a manuscript: advice without commands
     for table in tables:
-        files[f"{table.key}.csv"] = csv_table(table)
+        files[f"{table.key}.csv"] = convention.file_text(csv_table(table, convention))
         files[f"{table.key}.tex"] = latex_table(table, manuscript)
     # which table is in which file, and of what report (hostile trial s11: the CSV files carry no title, and tables
     # of two models in one folder could not be told apart)
     files[TABLE_CONTENTS] = "\n".join([report.title, *map(said, report.lines), ""] + [
-        f"{table.key}.csv, {table.key}.tex: {table.title}" for table in tables]) + "\n"
+        f"{table.key}.csv, {table.key}.tex: {table.title}" for table in tables]
+        + ([f"The CSV files: {convention.said()}."] if not convention.plain() else [])) + "\n"
     return files
 
 

@@ -136,6 +136,9 @@ class ExploreResult(Presentable):
     #: the columns of numbers left out of the items explored by default, each with why (:class:`LeftOut`): the items'
     #: note says them in words; () when the items were named
     left_out: tuple[tuple[str, LeftOut], ...] = ()
+    #: how a delimited text file was read (data.readers.TextReading; None otherwise), whose convention the CSV files
+    #: of the report's tables follow (data.csv_convention)
+    reading: object | None = None
 
     @property
     def factors(self) -> int:
@@ -219,7 +222,8 @@ class ExploreResult(Presentable):
             "data_problems": [p.to_dict() for p in self.data_problems],
             "data": {"source": self.source, "rows_read": self.rows_read, "rows_used": ex.data.n_obs,
                      "correlations": ex.data.kind.value, "answer_coding": coding_json(self.answer_coding),
-                     "few_categories_analysed_as_continuous": list(self.few_categories)},
+                     "few_categories_analysed_as_continuous": list(self.few_categories),
+                     **({"reading": self.reading.to_dict()} if self.reading is not None else {})},
             "items": list(self.items),
             "items_left_out": [{"column": c, "reason": why.value} for c, why in self.left_out],
             "factor_count": {
@@ -314,7 +318,7 @@ def item_names(text: str | list[str] | tuple[str, ...] | None, columns: list[str
         for end in ends:
             if end not in columns:
                 from cfa_tool.language.names import comma_hint
-                from cfa_tool.suggest import close_names, dotted_span
+                from cfa_tool.suggest import close_names, did_you_mean, dotted_span
 
                 span = dotted_span(end)
                 if span is not None and all(e in columns for e in span.split("..")):
@@ -323,7 +327,7 @@ def item_names(text: str | list[str] | tuple[str, ...] | None, columns: list[str
                 hint = comma_hint(end, columns)
                 guess = close_names(end, columns)
                 raise OptionError(f"{Option.ITEMS}: {source} has no column '{printable(end)}'"
-                                  + (hint or (f"; did you mean '{printable(guess[0])}'?" if guess else "")))
+                                  + (hint or (did_you_mean(end, guess[0]) if guess else "")))
         if len(ends) == 2:
             option = Option.ITEMS.given(piece)
             span = range_names(ends[0], ends[1], lambda message: OptionError(
@@ -405,10 +409,14 @@ class UnlikeTheItems:
     groupings: tuple[tuple[str, float, float], ...] = ()
     off_scale: tuple[tuple[str, float, float, bool], ...] = ()
     scale: tuple[float, float] | None = None
+    #: [(column, one value, the other)]: two values alone where the items answer on a scale of three values or more
+    #: (a wave 1 and 2, a sex coded 0 and 1; session note s23: a 1/2 wave column was explored as an item)
+    two_valued: tuple[tuple[str, float, float], ...] = ()
 
     @property
     def columns(self) -> tuple[str, ...]:
-        return tuple(f[0] for f in self.groupings) + tuple(f[0] for f in self.off_scale)
+        return (tuple(f[0] for f in self.groupings) + tuple(f[0] for f in self.two_valued)
+                + tuple(f[0] for f in self.off_scale))
 
 
 def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float, ...] = ()) -> UnlikeTheItems:
@@ -417,7 +425,8 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float
     ``others`` given as the numbers they code, answers recorded as words read by their 'answers' statement), and that have
     no relation to the items (no correlation of RELATED_TO_THE_ITEMS or more, in absolute value, with any of the
     other columns or of ``others``, further item columns such as answers recorded as words, each correlation from
-    the rows that answered both).  Two kinds: groupings or records, few whole values (at most
+    the rows that answered both).  Three kinds: codes of two groups, two whole values alone where the scale has three
+    or more (a wave 1 and 2, a sex 0 and 1, session note s23); groupings or records, few whole values (at most
     data.polychoric.MAX_CATEGORIES), none as low as the scale begins and most of them above its end (a grade of 5 to
     9 among items answered 1 to 4, a year, a school's number); and values off the scale, most of the answered cells
     fractions (years of service as 0.5 to 30.0), or more whole values than MAX_CATEGORIES over a range more than twice
@@ -446,15 +455,17 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float
     (low, high), _ = shared[0]
     groupings = [(c, float(v[0]), float(v[-1])) for c, v in whole.items() if len(v) <= MAX_CATEGORIES
                  and v[0] > low and 2 * int((v > high).sum()) > len(v)]
+    two_valued = [(c, float(v[0]), float(v[-1])) for c, v in whole.items() if len(v) == 2 and high - low >= 2
+                  and c not in {f[0] for f in groupings}]
     off_scale = []
     for c, v in distinct.items():
-        if len(v) < 2 or c in {f[0] for f in groupings}:
+        if len(v) < 2 or c in {f[0] for f in groupings + two_valued}:
             continue
         fractions = 2 * int((values[c] != np.round(values[c])).sum()) > len(values[c])
         wide = len(v) > MAX_CATEGORIES and v[-1] - v[0] > 2 * (high - low)
         if fractions or wide:
             off_scale.append((c, float(v[0]), float(v[-1]), bool(fractions)))
-    found = [f[0] for f in groupings] + [f[0] for f in off_scale]
+    found = [f[0] for f in groupings] + [f[0] for f in two_valued] + [f[0] for f in off_scale]
     if found:
         items = [c for c in columns if c not in found] + [c for c in others if c not in found]
         # the items' codes of no answer are no answers: those given, and the values set aside from their scales
@@ -463,7 +474,8 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float
         related = dict(zip(found, _largest_correlations(answered, found, items)))
         groupings = [f for f in groupings if not related[f[0]] >= RELATED_TO_THE_ITEMS]
         off_scale = [f for f in off_scale if not related[f[0]] >= RELATED_TO_THE_ITEMS]
-    return UnlikeTheItems(tuple(groupings), tuple(off_scale), (low, high))
+        two_valued = [f for f in two_valued if not related[f[0]] >= RELATED_TO_THE_ITEMS]
+    return UnlikeTheItems(tuple(groupings), tuple(off_scale), (low, high), tuple(two_valued))
 
 
 def _stray_values(frame: pd.DataFrame, columns: list[str], codes: tuple[float, ...]) -> dict[str, tuple[float, ...]]:
@@ -696,6 +708,12 @@ def _default_items(first, columns: list[str], codings: tuple, design: tuple[str,
                f"{journal_decimal(RELATED_TO_THE_ITEMS, digits=2)} or more with any item, as a grade or a year would be): "
                + ", ".join(f"{printable(c)} ({user_number(low)} to {user_number(high)})" for c, low, high in unlike.groupings)
                + Note((name_them, ".")) if unlike.groupings else "")
+            + (f" Left out as codes of two groups rather than answers (two values alone, where most columns hold "
+               f"answers from {user_number(unlike.scale[0])} to {user_number(unlike.scale[1])}, and no correlation of "
+               f"{journal_decimal(RELATED_TO_THE_ITEMS, digits=2)} or more with any item, as a wave or a sex would "
+               f"be): " + ", ".join(f"{printable(c)} ({user_number(a)} and {user_number(b)})"
+                                    for c, a, b in unlike.two_valued)
+               + Note((name_them, ".")) if unlike.two_valued else "")
             + (f" Left out as measures rather than answers on the {user_number(unlike.scale[0])} to {user_number(unlike.scale[1])} scale "
                f"that most columns hold (mostly fractions, or far more values over a far wider range, and no "
                f"correlation of {journal_decimal(RELATED_TO_THE_ITEMS, digits=2)} or more with any item, as years of service or an income "
@@ -709,7 +727,7 @@ def _default_items(first, columns: list[str], codings: tuple, design: tuple[str,
             + _text_columns_phrase(frame, tuple(numeric) + tuple(worded) + drawn_by, codings))
     left_out = (tuple((c, LeftOut.HALVES_DESIGN) for c in drawn_by) + tuple((c, LeftOut.ROW_IDS) for c in ids) + tuple((c, LeftOut.CATEGORY_CODES) for c in coded)
                 + tuple((c, LeftOut.NAMED_FOR_ANOTHER_PART) for c in roles)
-                + tuple((c, LeftOut.GROUPING_OR_RECORD) for c, _, _ in unlike.groupings)
+                + tuple((c, LeftOut.GROUPING_OR_RECORD) for c, _, _ in unlike.groupings + unlike.two_valued)
                 + tuple((c, LeftOut.MEASURE_OFF_THE_SCALE) for c, _, _, _ in unlike.off_scale))
     return chosen, note, worded, left_out
 
@@ -1049,7 +1067,7 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         split_result = replace(_confirm(exploration, halves, split, source, statements, id_column), **design_split)
     return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
                          sorted_items(exploration), sample_problems + data_problems, statements, coding_record(spec),
-                         few, left_out if by_default else ())
+                         few, left_out if by_default else (), loaded.reading)
 
 
 def _few_categories(frame: pd.DataFrame, names: tuple[str, ...], ordinal_items: tuple[str, ...],

@@ -19,7 +19,8 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import counted, cut_list, more_words, names_shown, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, user_number
+from cfa_tool.data.csv_convention import PLAIN, CsvConvention, convention_of
 from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, caller_labels, row_naming
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
@@ -632,44 +633,6 @@ class OrdinalQuality:
                                                    for f, low, high in self.precision_by_level]})
 
 
-@dataclass(frozen=True)
-class ScoresFileFormat:
-    """How the scores file is written: the separator between its fields and its decimal mark (UTF-8 text in either
-    case)."""
-
-    separator: str = ","
-    decimal: str = "."
-
-    def plain(self) -> bool:
-        """Commas between fields and decimal points, which the report does not repeat."""
-        return self.separator == "," and self.decimal == "."
-
-    def words(self) -> str:
-        from cfa_tool.data.readers import separator_words
-
-        return separator_words(self.separator, self.decimal)
-
-    def to_dict(self) -> dict:
-        return {"separator": self.separator, "decimal_mark": self.decimal}
-
-
-def scores_file_format(reading) -> ScoresFileFormat:
-    """The scores file in the format of the data file scored (``reading``: its data.readers.TextReading; None for a
-    workbook, an SPSS or Stata file or a data frame, whose scores get commas and decimal points), so that the
-    spreadsheet that saved the data reads the scores back as numbers (new-user trial s23b, finding 4: a semicolon file
-    of decimal commas got a comma file of decimal points, in which a German spreadsheet reads the prorated sum 23.625
-    as 23625 or the whole line as one cell).  The data's decimal mark is kept; decimal commas are separated by
-    semicolons, as spreadsheets of decimal-comma locales write CSV, whatever separated the data's fields (a tab file
-    of decimal commas too: the scores file is a .csv file, which a spreadsheet splits at its locale's list
-    separator); decimal points keep a semicolon of the data, and are separated by commas otherwise (tabs and vertical
-    bars too, for the same reason)."""
-    if reading is None:
-        return ScoresFileFormat()
-    if reading.decimal == ",":
-        return ScoresFileFormat(";", ",")
-    return ScoresFileFormat(";" if reading.separator == ";" else ",", ".")
-
-
 @dataclass(frozen=True, eq=False)
 class ScoreResult(Presentable):
     """Scores of every row of the data, with the fit they come from and their quality."""
@@ -696,8 +659,9 @@ class ScoreResult(Presentable):
     #: as a CSV file begins with its header, and the report says so where it says which empty lines stand for rows of
     #: the file without data (reporting.score_report.rows_above_names)
     names_row: int = 1
-    #: the scores file's separator and decimal mark, those of the data file scored (:func:`scores_file_format`)
-    file_format: ScoresFileFormat = ScoresFileFormat()
+    #: the scores file's separator, decimal mark and byte-order mark: those of the data file scored, by the one rule of
+    #: every CSV file the tool writes (data.csv_convention.convention_of; new-user trial s23b, finding 4)
+    file_format: CsvConvention = PLAIN
 
     @property
     def rows(self) -> int:
@@ -776,9 +740,16 @@ class ScoreResult(Presentable):
         """The scores as CSV text: full precision, empty cells where there is no score, every id and column name as
         written in the data (a file of rows merged back by its ids: '-A12' stays '-A12', never given the
         spreadsheet-formula guard of report tables, reporting.text_formats, which would change the key; hostile
-        trial s17, finding 3), with the separator and decimal mark of the data file (:attr:`file_format`)."""
+        trial s17, finding 3), with the separator and decimal mark of the data file (:attr:`file_format`; the file's
+        whole text, with the byte-order mark the data file's convention has: :meth:`file_text`)."""
         return self.table.to_csv(index=False, na_rep="", float_format="%.10g", lineterminator="\n",
                                  sep=self.file_format.separator, decimal=self.file_format.decimal)
+
+    def file_text(self) -> str:
+        """The scores file's whole text as written (in UTF-8): :meth:`csv`, after a byte-order mark when the data
+        file's convention has one (a spreadsheet's 'CSV UTF-8', or data in a Windows code page: data.csv_convention);
+        ``Path(...).write_text(result.file_text(), encoding="utf-8")`` writes the file the command writes."""
+        return self.file_format.file_text(self.csv())
 
 
     def __str__(self) -> str:
@@ -930,7 +901,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                        bool(standard_errors or ordinal_items), tuple(extra),
                        item_sums=summaries,
                        unanswered=unanswered, names_row=_names_row(loaded, data),
-                       file_format=scores_file_format(loaded.reading))
+                       file_format=convention_of(loaded.reading))
 
 
 def _id_column_note(read_frame: pd.DataFrame, source: str, spec, group, design) -> list[Note]:
@@ -1177,7 +1148,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 
-    from cfa_tool.data.missing_codes import codes_shown
+    from cfa_tool.data.missing_codes import names_the_given_codes
     from cfa_tool.data.non_answers import fit_marked, run_words
 
     given, words = api.missing_values_option(missing_codes)
@@ -1186,7 +1157,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     carried = tuple(c for c in result.data.missing_codes if c not in given) + tuple(
         w for w in result.data.no_answer_words if w.casefold() not in known)
     # and the codes its data file declared missing or labelled so, in their own items (an export without them)
-    with fit_marked(tuple(getattr(result.data, "non_answers", ()) or ())):
+    with fit_marked(tuple(getattr(result.data, "non_answers", ()) or ()),
+                    tuple(getattr(result.data, "declared_ranges", ()) or ())):
         spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, given + words + carried, keep,
                                                          (id_column,) if isinstance(id_column, str) else (),
                                                          names_row=names_row, first_data_row=first_data_row,
@@ -1207,10 +1179,9 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         raise OptionError(f"the fit has groups by '{printable(group)}', which is not a column of {source}")
     ids = row_ids(read_frame, source, id_column, result.observed, group, loaded.row_names)
     if carried:
-        one = len(carried) == 1
-        notes.insert(0, f"{'The value' if one else 'The values'} {codes_shown(carried)} in {source} "
-                        f"{'was' if one else 'were'} read as no answer, as the earlier fit read {'it' if one else 'them'} "
-                        f"(its missing-value codes and words of no answer)")
+        if not given and not words:  # no code was given in this run: the reading's notes that say so are not said
+            notes[:] = [n for n in notes if not names_the_given_codes(n)]
+        notes.insert(0, _carried_note(carried, loaded, source))
     # the cautions about the scored file computed on it, first; the earlier fit's own said to be about the fit
     # (ids of several rows first, as every command names them: pipeline.inputs.repeated_id_problems)
     own = api.repeated_id_problems(loaded, ids_by_row_number(ids, read_frame), api.id_filter_column(id_column, loaded)) \
@@ -1221,8 +1192,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     again = {p.kind for p in own} if (source, len(read_frame)) == (result.data.source, result.data.rows_read) else set()
     result, few = _few_clusters_as_note(result)
     notes[:0] = few
-    result = replace(result, problems=own + tuple(replace(p, explanation=ABOUT_THE_FIT + p.explanation)
-                                                  for p in result.problems if p not in own and p.kind not in again))
+    result = replace(result, problems=own + tuple(_about_the_fit(p) for p in result.problems
+                                                  if p not in own and p.kind not in again))
     from cfa_tool.scoring.model import OrdinalScoringModel
 
     ordinal = isinstance(models[0], OrdinalScoringModel)
@@ -1291,7 +1262,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     table.index = caller_labels(table.index, loaded.frame_index)
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
                        unscored, with_errors, tuple(notes), source, (), summaries, unanswered,
-                       _names_row(loaded, data), scores_file_format(loaded.reading))
+                       _names_row(loaded, data), convention_of(loaded.reading))
 
 
 def _names_row(loaded, data) -> int:
@@ -1363,6 +1334,51 @@ class SavedFit:
         return {k: v for k, v in self.payload.items() if k not in ("tool", "version")}
 
 
+def _carried_note(carried: tuple, loaded, source: str) -> str:
+    """The note on the earlier fit's codes and words of no answer (its --missing-codes, ``carried``) read so in the
+    data scored: each with the rows of the data scored that held it, counted over the rows the row filters kept
+    (rows-s24: the note said every code 'was read as no answer' whether or not a row scored held it)."""
+    from cfa_tool.data.kept_counts import analysed_words
+    from cfa_tool.data.missing_codes import codes_shown
+    from cfa_tool.data.non_answers import rows_saying
+
+    kept = loaded.frame.index
+    code_rows = dict(loaded.counts.code_rows) if loaded.counts is not None else {}
+    held = []
+    for c in carried:
+        rows = code_rows.get(c, ()) if not isinstance(c, str) else rows_saying(loaded.non_answers, c)
+        held.append((c, len(set(r for r in rows if r in kept))))
+    filtered = loaded.read_frame is not None and len(loaded.read_frame) != len(loaded.frame)
+    rows = f"the {counted(len(kept), 'row')}" + (f" {analysed_words(True, None)}" if filtered else " of the file")
+    if len(held) == 1:
+        (c, n), = held
+        return (f"The earlier fit's code of no answer {codes_shown((c,))} (its missing-value codes and words of no "
+                f"answer) was read as no answer in {source} too: {count_text(n) if n else 'no row'} of {rows} "
+                f"held it")
+    listed = ", ".join(f"{codes_shown((c,))} in {count_text(n) if n else 'none'}" for c, n in held)
+    return (f"The earlier fit's codes of no answer (its missing-value codes and words of no answer) were read as no "
+            f"answer in {source} too, held by these numbers of {rows}: {listed}")
+
+
+def _about_the_fit(problem):
+    """An earlier fit's problem as the report of other data scored with it carries it: said to be about the fit
+    (:data:`ABOUT_THE_FIT`); a problem of the rows the fit read from its data file (a workbook's other sheets, its
+    hidden rows, rows a saved case filter deselects) without its advice, whose options (--sheet, --keep) this run
+    takes too and would apply to the data scored (new-user trial s23: the other-sheets box read as about the scores
+    file), but with advice about the fit instead."""
+    from cfa_tool.assessment.admissibility import ProblemKind as K
+
+    problem = replace(problem, explanation=ABOUT_THE_FIT + problem.explanation)
+    if problem.kind not in (K.OTHER_SHEETS_WITH_ITEMS, K.HIDDEN_ROWS, K.DESELECTED_ROWS):
+        return problem
+    return replace(problem, advice=FIT_ROWS_ADVICE)
+
+
+#: the advice on the rows an earlier fit read from its data file, when other data are scored with it
+FIT_ROWS_ADVICE = ("This concerns the rows the fit's parameters come from, not the data scored here: to change those "
+                   "rows, fit the model again as the fit's own report advises, and score with the new fit.")
+
+
 def read_saved_fit(path) -> SavedFit:
     """A fit's JSON result (``fit --json``), checked to be one; its problems begin with those of its estimates
     themselves (:func:`~cfa_tool.assessment.admissibility.saved_fit_problems`), and a row that cannot be read (as
@@ -1370,7 +1386,7 @@ def read_saved_fit(path) -> SavedFit:
     from cfa_tool.assessment.admissibility import saved_fit_problems
     from cfa_tool.data.answer_words import coding_from_json
     from cfa_tool.data.missing_codes import codes_and_words
-    from cfa_tool.data.non_answers import non_answers_from_saved
+    from cfa_tool.data.non_answers import non_answers_from_saved, ranges_from_saved
     from cfa_tool.input_files import input_json
     from cfa_tool.model.saved_estimates import saved_fit_payload, saved_rows
     from cfa_tool.pipeline.results import DataSummary, saved_categories
@@ -1398,6 +1414,7 @@ def read_saved_fit(path) -> SavedFit:
                               missing_codes=codes_and_words(d.get("missing_codes", ()))[0],
                               no_answer_words=codes_and_words(d.get("no_answer_words", ()))[1],
                               non_answers=non_answers_from_saved(d.get("marked_no_answer_by_the_file")),
+                              declared_ranges=ranges_from_saved(d.get("missing_ranges_declared_by_the_file")),
                               ranges=tuple((float(d["answer_ranges"][x][0]), float(d["answer_ranges"][x][1]))
                                            for x in d["variables"]) if d.get("answer_ranges") else (),
                               answer_coding=coding_from_json(d.get("answer_coding"), source))

@@ -38,7 +38,12 @@ def test_the_caution_names_the_codes_the_items_share_and_carries_their_count():
     one = frame.replace({8: 7, 9: 7})
     caution = _codes(cfa_tool.check(MODEL, one).problems)
     assert "share the code 7, set apart from their other answers (1 to 5)" in str(caution.explanation)
-    assert "it is analysed as answers" in str(caution.explanation)
+    # in words true of a check, which analyses nothing, as of a fit; one code in the singular (session note s23,
+    # 'Noticed, left alone': check said 'a value ... is analysed as answers')
+    assert str(caution.explanation).endswith("it is read as an answer, beyond the scale's end.")
+    assert "analysed" not in str(caution.explanation)
+    assert str(_codes(cfa_tool.check(MODEL, frame).problems).explanation).endswith(
+        "they are read as answers, beyond the scale's ends.")
 
 
 def test_a_missing_value_code_beside_them_leaves_the_run_named_as_the_items_answers():

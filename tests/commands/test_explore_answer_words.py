@@ -141,7 +141,9 @@ def test_nearly_constant_items_are_named_first_as_fit_names_them(coded, tmp_path
     data.to_csv(path, index=False)
     result = cfa_tool.explore(str(path), items=ITEMS + ["x10"])
     first = result.problems()[0]
-    assert first.startswith("Nearly constant item: 'x10' is 3 in all but 2 of the 301 rows")
+    assert first.startswith("Nearly constant item (one answer given by 98% or more of the rows answering, or by all "
+                            "but fewer than 5: a line of common practice, not a published cutoff): 'x10' is 3 in all "
+                            "but 2 of the 301 rows")
 
 
 def test_a_typing_error_among_the_words_is_named_not_a_column_left_out(words_file, coded, tmp_path, capsys):

@@ -55,7 +55,9 @@ def test_scores_of_an_export_read_what_the_fits_file_marked_as_no_answer(rider_d
     assert (scored.loc[0:11, "punctuality_items_answered"] == 3).all()  # rows 0 to 11: on_time 9, set above
     notes = json.loads((tmp_path / "export_scores.json").read_text())["notes"]
     nines = {x: int((frame[x] == 9).sum()) for x in ("on_time", "clean")}  # pandas' count
-    assert (f"export.csv: {sum(nines.values())} cells of the items holding a value that the earlier fit's data file "
+    rows = int(((frame["on_time"] == 9) | (frame["clean"] == 9)).sum())
+    assert (f"export.csv: {sum(nines.values())} cells of the items (in {rows} rows) holding a value that the earlier "
+            f"fit's data file "
             f"marked as no answer (declared missing, or labelled so) were read as no answer, as the fit read them: "
             f"9 (on_time {nines['on_time']}, clean {nines['clean']})") in notes
     # the fit's own file: read so by its own declarations or labels, no note of the fit's
@@ -85,3 +87,44 @@ def test_scores_of_other_data_in_python_read_them_so_too(rider_demo, rider_model
     scored, reference = fitted.scores(str(export)), fitted.scores(str(empty))
     pd.testing.assert_frame_equal(scored.table, reference.table)
     assert (scored.table.loc[:, "punctuality_items_answered"].iloc[:12] == 3).all()  # on_time 9 in rows 0 to 11
+
+
+def test_every_value_of_a_declared_range_is_read_as_no_answer_when_other_data_are_scored(rider_demo, rider_model,
+                                                                                        tmp_path, capsys):
+    """An SPSS file declaring 97 to 99 missing, whose rows hold only 99: the fit keeps the declaration itself, so that
+    a 98 of the scored export (a code the fit's rows never took) is read as no answer too (rows-s24: only the values
+    the range took were carried, and 98 was scored as an answer).  The reference is the export with those cells left
+    empty (pandas); the note counts the cells and rows of the rows the row filters kept (pandas' counts)."""
+    items = [c for c in rider_demo.columns if c not in ("rider_id", "district")]
+    frame = rider_demo.copy()
+    frame.loc[0:5, "on_time"] = 99
+    sav = tmp_path / "survey.sav"
+    pyreadstat.write_sav(frame, str(sav), missing_ranges={c: [{"lo": 97, "hi": 99}] for c in items})
+    model, saved = tmp_path / "m.cfa", tmp_path / "fit.json"
+    model.write_text(rider_model)
+    assert run_cli(["fit", model, "--data", sav, "--json", saved], capsys)[0] == 0
+    other = rider_demo.copy()
+    other.loc[10:13, "clean"] = 98  # inside the range, never in the fit's rows
+    other.loc[20:22, "on_time"] = 97
+    export, empty = tmp_path / "export.csv", tmp_path / "empty.csv"
+    other.to_csv(export, index=False)
+    other.replace({c: {98: None, 97: None} for c in ("on_time", "clean")}).to_csv(empty, index=False)
+    scored = _scores(model, saved, export, tmp_path / "export_scores.csv", capsys)
+    pd.testing.assert_frame_equal(scored, _scores(model, saved, empty, tmp_path / "empty_scores.csv", capsys))
+    assert {"column": "on_time", "low": 97.0, "high": 99.0} in json.loads(saved.read_text())["data"][
+        "missing_ranges_declared_by_the_file"]
+    notes = json.loads((tmp_path / "export_scores.json").read_text())["notes"]
+    assert ("export.csv: 7 cells of the items (in 7 rows) holding a value that the earlier fit's data file marked as "
+            "no answer (declared missing, or labelled so) were read as no answer, as the fit read them: 97 (on_time "
+            "3); 98 (clean 4)") in notes
+    # scores of the rows a row filter keeps: the note counts those rows' cells, not every row read
+    district = other.loc[10, "district"]
+    kept = other[other["district"] == district]
+    cells = {code: int((kept[["on_time", "clean"]] == code).to_numpy().sum()) for code in (97, 98)}
+    code, _, err = run_cli(["scores", model, "--from-fit", saved, "--data", export, "--keep", f"district = {district}",
+                            "--output", tmp_path / "kept.csv", "--json", tmp_path / "kept.json"], capsys)
+    assert code == 0, err
+    said = [n for n in json.loads((tmp_path / "kept.json").read_text())["notes"] if "earlier fit's data file" in n]
+    total = sum(cells.values())
+    assert len(said) == 1 and said[0].startswith(f"export.csv: {total} cell{'s' if total != 1 else ''} of the items "
+                                                 f"(in {total} of the {len(kept)} rows that the row filters kept)")

@@ -107,7 +107,10 @@ def test_missing_value_codes_of_the_earlier_fit_are_read_so_and_codes_in_the_sco
     code, text, err = _run(["scores", model_file, "--data", rows, "--from-fit", saved, "--output", out, "--json", js],
                            capsys)
     assert code == 0, err
-    assert "-99 in" in " ".join(text.split()) and "read as no answer, as the earlier fit" in " ".join(text.split())
+    said = " ".join(text.split())
+    assert (f"The earlier fit's code of no answer -99 (its missing-value codes and words of no answer) was read as no "
+            f"answer in {rows} too: 3 of the {len(coded)} rows of the file held it") in said  # the three set above
+    assert "--missing-codes" not in said  # not given in this run
     assert _run(["scores", model_file, "--data", rows, "--missing-codes", "-99", "--output", reference], capsys)[0] == 0
     np.testing.assert_allclose(pd.read_csv(out).to_numpy(), pd.read_csv(reference).to_numpy(), atol=1e-8)
     assert json.loads(js.read_text())["problems"] == []

@@ -145,13 +145,16 @@ def test_a_nearly_constant_item_is_named_first_and_its_rare_category_in_the_ordi
     data.loc[10, "clean"] = 4.0
     counted = Counter(data["clean"].dropna().tolist())
     assert counted == {3.0: len(data) - 1, 4.0: 1}
-    # the rule: all rows but fewer than 5 (or 1% of the rows answering, when more) give one answer
+    # the rule: all rows but fewer than 5, or but at most 2% of the rows answering, give one answer (98%: common
+    # practice, data.descriptives.NEARLY_CONSTANT_SHARE)
     values = np.array([[1, 2, 1], [1, 2, 2], [1, 2, 1], [1, 2, 1], [1, 3, 1], [1, 2, 2]] * 100, dtype=float)
-    values[:4, 0] = 2.0  # 4 of 600 rows differ: fewer than 1% of 600 (6) -> nearly constant
+    values[:4, 0] = 2.0  # 4 of 600 rows differ: fewer than 5 -> nearly constant
     values[:100, 1] = 3.0  # many differ -> not
     found = nearly_constant_items(values, ("a", "b", "c"))
     assert [(c.name, c.common, c.others, c.answered) for c in found] == [("a", 1.0, 4, 600)]
-    values[:7, 0] = 2.0  # 7 rows of 600 differ: not fewer than 6
+    values[:12, 0] = 2.0  # 12 rows of 600 differ: 2% -> nearly constant
+    assert [(c.name, c.others) for c in nearly_constant_items(values, ("a", "b", "c"))] == [("a", 12)]
+    values[:13, 0] = 2.0  # 13 rows of 600 differ: more than 2% -> not
     assert nearly_constant_items(values, ("a", "b", "c")) == ()
     # a tiny sample (the limit of 5 rows reaches every row): 5 rows answered 5 ways hold no common answer (it read
     # "'x1' is -0.49 in all but 4 of the 5 rows answering it"); 4 alike and 1 other is nearly constant
@@ -200,7 +203,7 @@ def test_the_screen_of_nearly_constant_items_finds_what_counting_every_column_fi
     must be that of counting every column's answers with numpy.unique, the rule as written, on random columns of
     every size (tiny samples, whose limit reaches half the rows, included, and samples of hundreds to thousands of rows
     with gaps, whose columns' middle places differ)."""
-    from cfa_tool.data.descriptives import NearlyConstant, nearly_constant_items, rare_answer_limit
+    from cfa_tool.data.descriptives import NearlyConstant, nearly_constant_items
 
     def counted(values, names):
         found = []
@@ -209,7 +212,8 @@ def test_the_screen_of_nearly_constant_items_finds_what_counting_every_column_fi
             if len(column):
                 levels, counts = np.unique(column, return_counts=True)
                 others = len(column) - int(counts.max())
-                if 0 < others < rare_answer_limit(len(column)) and others < int(counts.max()):
+                # the rule as written: all rows but fewer than 5, or but at most 2%, give the common answer
+                if 0 < others < int(counts.max()) and (others < 5 or others <= 0.02 * len(column)):
                     found.append(NearlyConstant(name, float(levels[counts.argmax()]), others, len(column)))
         return tuple(found)
 

@@ -208,7 +208,8 @@ def test_a_windows_text_file_says_how_it_was_read(rider_demo, rider_model, tmp_p
     assert "Windows-1252" in note and "separated by semicolons" in note and "decimals written with commas" in note
     payload = cfa_tool.fit(rider_model, str(path)).to_dict()
     assert payload["data"]["reading"] == {"encoding": "Windows-1252 (Western European)", "separator": ";",
-                                          "decimal_mark": ",", "names_line": 1, "names_row": 1}
+                                          "decimal_mark": ",", "byte_order_mark": False, "names_line": 1,
+                                          "names_row": 1}
     plain = tmp_path / "plain.csv"
     rider_demo.to_csv(plain, index=False)
     assert not [n for n in read_data(plain).notes if "read as" in n]  # UTF-8 with commas: in the JSON only

@@ -70,7 +70,7 @@ def test_a_midpoint_whose_label_reads_like_no_answer_is_analysed_with_a_note(tmp
         assert result.fit.chi_square == pytest.approx(plain.fit.chi_square, rel=1e-9)
         assert result.n_obs == plain.n_obs
         [note] = [str(n) for n in result.warnings if "lies between other answers" in n]
-        assert note.startswith(f"riders.sav: 3 '{middle}' lies between other answers of the items and is analysed "
+        assert note.startswith(f"riders.sav: 3 '{middle}' lies between other answers of the items and is read "
                                f"as an answer ({threes:,} cells: on_time {int((data.on_time == 3).sum())}, ")
         assert note.endswith("though its label reads like no answer; to read it as no answer, give missing_codes=[3]")
         assert not any(p.kind in (ProblemKind.VALUES_READ_AS_MISSING, ProblemKind.ANSWERS_GIVEN_AS_MISSING)

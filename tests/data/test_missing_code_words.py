@@ -163,8 +163,9 @@ def test_scores_with_an_earlier_fit_read_its_words_as_it_did(answers, tmp_path, 
     scored = pd.read_csv(out)
     assert scored["rider_items_answered"].iloc[[4, 10, 20, 30]].tolist() == [3, 3, 3, 3]
     notes = json.loads((tmp_path / "scores.json").read_text())["notes"]
-    assert any("The values -99, 'Ne sait pas', 'No, not asked' in" in n and "as the earlier fit read them" in n
+    assert any(n.startswith("The earlier fit's codes of no answer") and "-99 in " in n and "'Ne sait pas' in " in n
                for n in notes)
+    assert not any("--missing-codes" in n for n in notes)  # no code was given in this run
     # the same scores as the file with those cells empty, scored with that fit
     reference = tmp_path / "reference.csv"
     assert cli.main(["scores", model, "--data", empty, "--from-fit", str(fitted), "--output", str(reference)]) == 0

@@ -296,5 +296,5 @@ def test_a_labelled_code_beyond_the_scale_of_many_items_is_one_caution_naming_th
     assert len(named) == 1
     assert named[0].explanation == (
         "4 items of riders.sav hold the code 9 labelled 'Other' (7 cells: c1 2, c3 1, s1 3, s2 1), beyond their other "
-        "labelled answers (0 to 3), analysed as an answer: a code of no answer?")
+        "labelled answers (0 to 3), read as an answer: a code of no answer?")
     assert str(named[0].advice).startswith("If 9 'Other' is not an answer on the scale, give missing_codes=[9]")

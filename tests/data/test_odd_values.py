@@ -312,7 +312,7 @@ def test_a_value_outside_the_scale_is_counted_in_every_item_of_the_scale_however
         (tuple(frame.columns), 8.0, int(held.sum()), (1.0, 4.0))]
     assert found[0].rows == tuple(int(r) + 1 for r in np.flatnonzero((frame == 8).any(axis=1)))
     assert "(x1, x2, x3 and 3 more) hold the value 8" in found[0].caution("school.csv")
-    assert found[0].caution("school.csv").endswith("analysed as an answer: a code for no answer, or typing errors?")
+    assert found[0].caution("school.csv").endswith("read as an answer: a code for no answer, or typing errors?")
     # a column of another scale (7 to 9) holding 8 among its answers is not counted
     frame["grade"] = rng.integers(7, 10, n).astype(float)
     found = [o for o in odd_values(frame, list(frame.columns)) if o.kind is OddKind.OUTSIDE_SCALE]

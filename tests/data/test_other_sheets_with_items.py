@@ -26,7 +26,7 @@ def test_other_sheets_with_the_items_are_named_first(rider_demo, rider_model, tm
     assert result.n_obs == 240  # the first sheet, as before
     first = result.problems[0]
     assert first.kind is ProblemKind.OTHER_SHEETS_WITH_ITEMS
-    assert first.explanation == ("waves.xlsx: only the sheet 'Wave1' is read, and the workbook's sheet 'Wave2' "
+    assert first.explanation == ("waves.xlsx: only the sheet 'Wave1' was read, and the workbook's sheet 'Wave2' "
                                  "holds columns named as every item of the model too.")  # not 'Notes'
     # the advice pools the sheets only if they are parts of one sample (new-user trial s23: one sheet per wave of the
     # same people, whose rows pooled would be taken for other people)
@@ -38,7 +38,7 @@ def test_other_sheets_with_the_items_are_named_first(rider_demo, rider_model, tm
     code, out, _ = run_cli(["fit", model, "--data", book, "--json", tmp_path / "r.json"], capsys)
     assert code == 0
     plain = " ".join(out.replace("│", " ").split())
-    assert plain.index("only the sheet 'Wave1' is read") < 200
+    assert plain.index("only the sheet 'Wave1' was read") < 200
     assert json.loads((tmp_path / "r.json").read_text())["problems"][0]["kind"] == ProblemKind.OTHER_SHEETS_WITH_ITEMS.value
     # a sheet named says nothing of the kind, nor does a workbook whose other sheet holds other columns
     named = cfa_tool.fit(rider_model, book, sheet="Wave2")
@@ -59,3 +59,37 @@ def test_a_sheet_of_question_texts_under_the_item_names_is_no_second_sheet_of_an
         rider_demo.to_excel(writer, sheet_name="Data", index=False)
         labels.to_excel(writer, sheet_name="Labels", index=False)
     assert ProblemKind.OTHER_SHEETS_WITH_ITEMS not in [p.kind for p in cfa_tool.fit(rider_model, book).problems]
+
+
+def test_other_data_scored_with_the_fit_get_its_other_sheets_caution_as_about_the_fit(rider_demo, rider_model,
+                                                                                     tmp_path, capsys):
+    """scores --from-fit of other data carried the fit's other-sheets caution with its advice, whose --sheet this run
+    takes too and would apply to the data scored (new-user trial s23; session note s23, 'Noticed, left alone'): the
+    caution is said to be about the fit, with advice about the fit and no option; scoring the fit's own workbook
+    again says it once, of the scored file, with the --sheet advice."""
+    book = tmp_path / "waves.xlsx"
+    with pd.ExcelWriter(book) as writer:
+        rider_demo.iloc[:240].to_excel(writer, sheet_name="Wave1", index=False)
+        rider_demo.iloc[240:].to_excel(writer, sheet_name="Wave2", index=False)
+    other = tmp_path / "other.csv"
+    rider_demo.iloc[240:].to_csv(other, index=False)
+    model = tmp_path / "m.cfa"
+    model.write_text(rider_model)
+    code, _, _ = run_cli(["fit", model, "--data", book, "--json", tmp_path / "fit.json"], capsys)
+    assert code == 0
+    code, out, _ = run_cli(["scores", model, "--from-fit", tmp_path / "fit.json", "--data", other, "--output",
+                            tmp_path / "s.csv", "--json", tmp_path / "s.json"], capsys)
+    assert code == 0
+    sheets = [p for p in json.loads((tmp_path / "s.json").read_text())["problems"]
+              if p["kind"] == ProblemKind.OTHER_SHEETS_WITH_ITEMS.value]
+    assert len(sheets) == 1
+    assert sheets[0]["explanation"].startswith("About the fit (not the scored data): waves.xlsx: only the sheet "
+                                               "'Wave1' was read")
+    assert "--sheet" not in sheets[0]["advice"] and "fit the model again" in sheets[0]["advice"]
+    box = " ".join(out.split("Factor scores:")[0].replace("│", " ").split())
+    assert "--sheet" not in box and "the rows the fit's parameters come from, not the data scored here" in box
+    code, out, _ = run_cli(["scores", model, "--from-fit", tmp_path / "fit.json", "--data", book, "--output",
+                            tmp_path / "again.csv"], capsys)
+    box = " ".join(out.split("Factor scores:")[0].replace("│", " ").split())
+    assert code == 0 and box.count("only the sheet 'Wave1' was read") == 1 and "About the fit" not in box
+    assert "name it with --sheet" in box

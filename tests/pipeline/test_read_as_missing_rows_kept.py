@@ -98,11 +98,11 @@ def test_a_code_labelled_like_no_answer_between_the_answers_is_counted_in_the_ro
                          missing_ranges={c: [8] for c in ITEMS})
     whole = int((riders[ITEMS] == 2).to_numpy().sum())  # counted by numpy on every row: above 1,000
     (note,) = _notes(cfa_tool.check(MODEL, path), "lies between other answers")
-    assert whole >= 1000 and f"and is analysed as an answer ({whole:,} cells: " in note
+    assert whole >= 1000 and f"and is read as an answer ({whole:,} cells: " in note
     kept = riders.iloc[: ROWS // 2]
     cells = {c: int((kept[c] == 2).sum()) for c in ITEMS}  # counted by numpy on the rows of depot 1
     (note,) = _notes(cfa_tool.check(MODEL, path, keep=["depot = 1"]), "lies between other answers")
-    assert f"and is analysed as an answer ({sum(cells.values()):,} cells: " in note
+    assert f"and is read as an answer ({sum(cells.values()):,} cells: " in note
     assert all(f"{c} {n}" in note for c, n in cells.items())
 
 

@@ -74,7 +74,7 @@ def test_check_compare_and_invariance_give_fits_data_cautions_first(folder, caps
     assert kish < 0.5 * len(w)
     weights_said = f"the {len(w)} rows count as about {kish:.1f}"
     scale_said = "declares answers from 1 to 7 for short_wait, clean, but no answer of the items it covers reaches 7"
-    constant_said = "Nearly constant item: 'greeting' is 3 in all but 4 of the 480 rows"
+    constant_said = "'greeting' is 3 in all but 4 of the 480 rows"
     title = {"fit": "Rider experience, three factors", "check": "Model check", "compare": "Model comparison",
              "invariance": "Measurement invariance across district"}
     runs = {
