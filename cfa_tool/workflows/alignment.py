@@ -48,6 +48,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.assessment.admissibility import refuse_inadmissible_fit
+from cfa_tool.assessment.directions import relative_direction
 from cfa_tool.data.groups import reference_rule
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool import options as check
@@ -813,9 +814,9 @@ def _layout(spec: Spec, table) -> _Layout:
 
 def orientation(loadings: np.ndarray) -> np.ndarray:
     """+1 or -1 per group: -1 where the group's loadings point against the reference group's (a factor fixed by its
-    variance has no sign of its own, so a configural fit may return it reversed in some groups)."""
-    agreement = loadings @ loadings[0]
-    return np.where(agreement < 0, -1.0, 1.0)
+    variance has no sign of its own, so a configural fit may return it reversed in some groups), by the one rule of a
+    factor's direction relative to another solution's (assessment.directions.relative_direction)."""
+    return np.array([relative_direction(loadings[0], row) for row in loadings])
 
 
 def _reflect_blocks(blocks: np.ndarray, signs: np.ndarray) -> np.ndarray:
