@@ -12,6 +12,7 @@ from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import html_text as esc
+from cfa_tool.data.halves import halves_named_alike
 from cfa_tool.numbers import count_text
 from cfa_tool.reporting.numbers import est_num, est_unit, num, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, ReportTable, _table
@@ -206,6 +207,7 @@ def split_lines(result) -> list[Text]:
                                     second=count_text(len(s.confirmation_rows)))]
     if s.how_drawn():  # by clusters or strata (workflows.explore.SplitHalves)
         lines.append(s.how_drawn())
+    lines.append(halves_named_alike(s.seed, explored=True))  # replicate's names of the same halves
     if s.note:
         lines.append(f"No confirmation: {s.note}.")
     return lines

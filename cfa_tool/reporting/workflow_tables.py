@@ -13,6 +13,7 @@ from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATE
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.data.groups import reference_words
+from cfa_tool.data.halves import halves_named_alike
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
@@ -1020,7 +1021,10 @@ def replication_report(replications) -> Report:
     title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
     # the data's cautions first (the halves of one file: once), then the calibration fits'
     cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems)) + cautions
-    split = tuple(dict.fromkeys(_split_sentence(rep.split) for rep in reps if rep.split is not None))
+    split = tuple(dict.fromkeys([_split_sentence(rep.split) for rep in reps if rep.split is not None]
+                                + [halves_named_alike(rep.split.seed, explored=False) for rep in reps
+                                   if rep.split is not None and rep.split.seed is not None
+                                   and rep.split.split >= rep.split.in_file]))  # explore's halves when the same rows
     read = tuple(dict.fromkeys([c for rep in reps for c in T.higher_order_cautions(rep.calibration_result)]
                                + [n for rep in reps for n in getattr(rep, "notes", ())]))  # as fit says them
     rare = tuple(dict.fromkeys(w for rep in reps for r in (rep.calibration_result, rep.loose)
