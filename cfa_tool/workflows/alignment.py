@@ -56,6 +56,7 @@ from cfa_tool.errors import EstimationError, ModelError, OptionError
 from cfa_tool.language.spec import ScaleSetting, Spec
 from cfa_tool.method import ALIGNMENT_FLAG_LEVEL, ALIGNMENT_TRIALS, ReferenceMean
 from cfa_tool.numerics.plain import journal_decimal
+from cfa_tool.numerics.distributions import correlation_null_sf
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 
@@ -67,6 +68,17 @@ CAUTION_SHARE = 0.25
 #: the correlation of true and estimated means the Monte Carlo check should reach (Muthén & Asparouhov 2014,
 #: a rule of thumb, recalled)
 TRUSTED_CORRELATION = 0.98
+#: the chance, at or above which the Monte Carlo check's correlations over so few groups are said to show little:
+#: group means unrelated to the true ones reach :data:`TRUSTED_CORRELATION` with at least this probability (this
+#: tool's rule: 3 to 5 groups, where it is .064, .010 and .0017; :func:`chance_trusted`)
+FEW_GROUPS_CHANCE = 0.001
+
+
+def chance_trusted(groups: int) -> float:
+    """P(r >= TRUSTED_CORRELATION) for the correlation over ``groups`` pairs of values unrelated to each other
+    (normal): how often the Monte Carlo check's correlation of true and estimated means over so few groups reaches the
+    authors' figure by chance alone (numerics.distributions.correlation_null_sf; Fisher 1915)."""
+    return float(correlation_null_sf(TRUSTED_CORRELATION, groups))
 #: a Hessian of the loss whose smallest eigenvalue is below this share of its largest: the group means and
 #: variances are barely determined by the loss (its minimum is flat in some direction)
 FLAT_MINIMUM = 1e-7
