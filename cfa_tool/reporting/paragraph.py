@@ -33,7 +33,7 @@ from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words, split_label
-from cfa_tool.note_parts import WORDS as MANUSCRIPT, said as said_in  # ('said' names sentences here)
+from cfa_tool.note_parts import WORDS as MANUSCRIPT, capitalised, said as said_in  # ('said' names sentences here)
 from cfa_tool.reporting.numbers import fit_index_text, guides_text, missing, num, p_phrase, signed, unit
 from cfa_tool.reporting.numbers import word_list as _list
 
@@ -674,7 +674,8 @@ def _spread(values: list[float]) -> str:
 
 
 def _capital(text: str) -> str:
-    return text[:1].upper() + text[1:]
+    """``text`` as a sentence, by the one rule of a line's capital (note_parts.capitalised): a name keeps its case."""
+    return capitalised(text)
 
 
 #: what pairwise present rows assume, at the end of the rows' phrase (inside parentheses: the citation after a comma)
