@@ -320,7 +320,19 @@ def explore_report(result):
     return Report(ResultKind.EXPLORE, "Exploratory factor analysis", notice, lines, tuple(tables),
                   tuple(split_lines(result)), (_rules_caution(), GUIDE_NOTE),
                   figures=(Figure("Scree plot: eigenvalues beside those of random data", lambda: (scree_svg(result), "")),),
-                  warnings=tuple(result.notes), listings=(Listing("Draft model", result.draft_text),))
+                  warnings=tuple(result.notes) + _keying_lines(result),
+                  listings=(Listing("Draft model", result.draft_text),))
+
+
+def _keying_lines(result) -> tuple[Text, ...]:
+    """The draft's sentence on factors that correlate negatively (exploration.draft.keying_sentence), naming the
+    model language's method statement: a trait split by its items' keying (new-user trial s24)."""
+    from cfa_tool.exploration.draft import METHOD_WORDS
+
+    before, after = getattr(result.exploration.draft, "keying", ("", ""))
+    if not before:
+        return ()
+    return (Note((before, Command(" ('method NAME' in the model file, docs/model-language.md)", METHOD_WORDS), after)),)
 
 
 __all__ = ["explore_report", "scree_svg"]
