@@ -207,7 +207,7 @@ def split_lines(result) -> list[Text]:
                                     second=count_text(len(s.confirmation_rows)))]
     if s.how_drawn():  # by clusters or strata (workflows.explore.SplitHalves)
         lines.append(s.how_drawn())
-    lines.append(halves_named_alike(s.seed, explored=True))  # replicate's names of the same halves
+    lines.append(halves_named_alike(s.seed, True, s.cluster, s.strata))  # replicate's names of the same halves
     if s.note:
         lines.append(f"No confirmation: {s.note}.")
     return lines

@@ -1024,7 +1024,8 @@ def replication_report(replications) -> Report:
     # the data's cautions first (the halves of one file: once), then the calibration fits'
     cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems)) + cautions
     split = tuple(dict.fromkeys([_split_sentence(rep.split) for rep in reps if rep.split is not None]
-                                + [halves_named_alike(rep.split.seed, explored=False) for rep in reps
+                                + [halves_named_alike(rep.split.seed, False, rep.split.cluster, rep.split.strata)
+                                   for rep in reps
                                    if rep.split is not None and rep.split.seed is not None
                                    and rep.split.split >= rep.split.in_file]))  # explore's halves when the same rows
     read = tuple(dict.fromkeys([c for rep in reps for c in T.higher_order_cautions(rep.calibration_result)]

@@ -11,6 +11,8 @@ from __future__ import annotations
 
 import csv
 
+import pytest
+
 from tests.conftest import run_cli
 
 
@@ -26,21 +28,23 @@ def _halves(path) -> dict[str, set[int]]:
     return out
 
 
-def test_each_command_names_the_others_halves_truly(tmp_path, capsys, rider_demo, rider_model):
+@pytest.mark.parametrize("design", [[], ["--strata", "district"]])
+def test_each_command_names_the_others_halves_truly(tmp_path, capsys, rider_demo, rider_model, design):
     data = tmp_path / "survey.csv"
     rider_demo.to_csv(data, index=False)
     model = tmp_path / "m.cfa"
     model.write_text(rider_model)
     code, explored, err = run_cli(["explore", "--data", data, "--split", "7", "--replications", "20",
-                                   "--halves-file", tmp_path / "e.csv"], capsys)
+                                   "--halves-file", tmp_path / "e.csv"] + design, capsys)
     assert code == 0, err
     code, replicated, err = run_cli(["replicate", model, "--data", data, "--seed", "7",
-                                     "--halves-file", tmp_path / "r.csv"], capsys)
+                                     "--halves-file", tmp_path / "r.csv"] + design, capsys)
     assert code == 0, err
+    by = " --strata district" if design else ""
     assert ("names the exploration half 'half A' and the confirmation half 'half B' (replicate MODEL --data FILE "
-            "--seed 7)") in _flat(explored)
+            f"--seed 7{by})") in _flat(explored)
     assert ("Half A holds the rows that an exploration of the same rows with the same seed explores (its exploration "
-            "half), and half B those of its confirmation half (explore --data FILE --split 7)") in _flat(replicated)
+            f"half), and half B those of its confirmation half (explore --data FILE --split 7{by})") in _flat(replicated)
     e, r = _halves(tmp_path / "e.csv"), _halves(tmp_path / "r.csv")
     assert e["exploration"] == r["A"] and e["confirmation"] == r["B"]
 
