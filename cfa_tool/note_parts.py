@@ -9,8 +9,14 @@ stays text."""
 
 from __future__ import annotations
 
+import re
 from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field
+
+#: a plain lower-case first word ("listwise deletion left out ..."): not a file or a variable name ("data.csv: ...",
+#: "x1: ...", "q_3 ..."), which keeps its case: the one rule of a line's capital (:func:`capitalised`; new-user trial
+#: s24: align wrote a data file's name as 'Survey_export.csv')
+PLAIN_FIRST_WORD = re.compile(r"[a-z]+(?:['\u2019-][a-z]+)*(?=[ ,;(]|$)")  # 'non-invariant', 'group's' too
 
 
 @dataclass(frozen=True)
@@ -118,9 +124,10 @@ class Note:
         return Note((other,) + self.parts)
 
     def capitalised(self) -> "Note":
-        """The line with the first letter of its first words in capitals."""
+        """The line with the first letter of its first words in capitals, when they start with a plain lower-case
+        word (:data:`PLAIN_FIRST_WORD`): a name keeps its case."""
         first = self.parts[0] if self.parts else ""
-        if not isinstance(first, str) or not first:
+        if not isinstance(first, str) or not PLAIN_FIRST_WORD.match(first):
             return self
         return Note((first[0].upper() + first[1:],) + self.parts[1:])
 
@@ -169,8 +176,11 @@ def joined(texts: Iterable[Text | None], between: str = " ") -> Text:
 
 
 def capitalised(text: Text) -> Text:
-    """``text`` with the first letter of its first words in capitals."""
-    return text.capitalised() if isinstance(text, Note) else text[:1].upper() + text[1:]
+    """``text`` with the first letter of its first words in capitals when it starts with a plain lower-case word
+    (:data:`PLAIN_FIRST_WORD`); a line that starts with a name (a file's, a variable's) keeps the name's case."""
+    if isinstance(text, Note):
+        return text.capitalised()
+    return text[:1].upper() + text[1:] if PLAIN_FIRST_WORD.match(text) else text
 
 
 def saved(text: Text) -> str | dict:

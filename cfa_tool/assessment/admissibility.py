@@ -26,7 +26,7 @@ from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.model.description import label_words, split_label
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.model.parameters import ParameterTable
-from cfa_tool.note_parts import Command, Note, Text
+from cfa_tool.note_parts import Command, Note, Text, capitalised
 from cfa_tool.numerics.linalg import cholesky_log_det
 from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.options import Option
@@ -619,7 +619,8 @@ HEYWOOD_ADVICE = ("Look for what the model leaves out near it (a residual covari
 
 
 def _capital(text: str) -> str:
-    return text[:1].upper() + text[1:]
+    """``text`` as a sentence, by the one rule of a line's capital (note_parts.capitalised): a name keeps its case."""
+    return capitalised(text)
 
 
 def _fmt(value: float) -> str:

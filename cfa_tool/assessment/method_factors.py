@@ -36,12 +36,15 @@ SMALL_LOADING = 0.20
 
 def cross_cutting_factors(loadings: dict[str, set[str]], declared: frozenset[str]) -> list[str]:
     """Factors that stand beside others on the same items: declared method factors, and factors whose every item
-    loads on another factor too.  ``loadings``: each factor's items (observed indicators only)."""
+    loads on another factor too, a declared method factor aside (it stands beside every factor of its items, so
+    that a trait whose items all load on it too is no more method-like for that: new-user s24, where an acquiescence
+    factor on every item had each trait called method-like).  ``loadings``: each factor's items (observed indicators
+    only)."""
     out = []
     for factor, items in loadings.items():
         if not items:
             continue
-        others = set().union(*(i for f, i in loadings.items() if f != factor))
+        others = set().union(*(i for f, i in loadings.items() if f != factor and f not in declared))
         if factor in declared or items <= others:
             out.append(factor)
     return out

@@ -55,6 +55,29 @@ REPLICATE_HALVES = ("A", "B")
 DRAWN_HALVES = (EXPLORE_HALVES, REPLICATE_HALVES)
 
 
+def halves_named_alike(seed: int, explored: bool, cluster: str | None = None, strata: str | None = None) -> Note:
+    """Which half of explore --split is which half of replicate --data (new-user s24: the same seed draws the same
+    halves of the same rows, data.halves.draw_halves, and the one named them exploration and confirmation, the other
+    A and B, so that the researcher matched chi-squares to learn which half had been explored): said by the run
+    that drew them (``explored``: explore's, else replicate's), each naming the other's halves by the names of
+    :data:`EXPLORE_HALVES` and :data:`REPLICATE_HALVES`; halves drawn by ``cluster`` within ``strata`` are drawn alike
+    by the same columns, which the command named gives."""
+    (explored_name, confirming), (a, b) = EXPLORE_HALVES, REPLICATE_HALVES
+    python = interface() is not Interface.COMMAND_LINE
+    design = [(word, name) for word, name in (("cluster", cluster), ("strata", strata)) if name]
+    by = "".join(f", {word}={name!r}" for word, name in design) if python else \
+        "".join(f" --{word} {_shell_word(name)}" for word, name in design)
+    if explored:
+        other = f"split_half(model, data, seed={seed}{by})" if python else \
+            f"replicate MODEL --data FILE --seed {seed}{by}"
+        return Note((f"A replication in random halves of the same rows with the same seed draws these two halves and "
+                     f"names the {explored_name} half 'half {a}' and the {confirming} half 'half {b}'",
+                     Command(f" ({other})"), "."))
+    other = f"explore(data, split={seed}{by})" if python else f"explore --data FILE {Option.SPLIT.flag} {seed}{by}"
+    return Note((f"Half {a} holds the rows that an exploration of the same rows with the same seed explores (its "
+                 f"{explored_name} half), and half {b} those of its {confirming} half", Command(f" ({other})"), "."))
+
+
 def redraw_words(names: "tuple[str, ...] | list[str]", seed: str | int = "SEED", cluster: str = "",
                  strata: str = "", every_row: bool = False) -> str:
     """How to write the halves again: with the command that drew halves of these ``names`` (review s14: a replicate

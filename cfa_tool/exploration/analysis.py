@@ -111,5 +111,5 @@ def explore_correlations(data: CorrelationInput, settings: ExploreSettings = Exp
         rotated = rotate(solution.loadings, settings.rotation)
         errors = loading_errors(data, solution, rotated) if settings.standard_errors else None
     draft = draft_model(data.names, rotated.pattern, settings.threshold, data.ordinal, describe(settings, data, factors),
-                        settings.factor_names)
+                        settings.factor_names, rotated.factor_correlations if rotated.oblique else None)
     return Exploration(data, settings, count, solution, rotated, errors, draft)

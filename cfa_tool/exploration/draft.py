@@ -48,6 +48,9 @@ class DraftModel:
     written: tuple[bool, ...]  # whether each factor became a statement (False: too few items, left as a comment)
     placements: tuple[ItemPlacement, ...]
     threshold: float
+    #: the sentence on factors that correlate negatively, which may be a trait split by its items' keying
+    #: (:func:`keying_sentence`: its words before and after the method statement's name; empty when none do)
+    keying: tuple[str, str] = ("", "")
 
     @property
     def usable(self) -> bool:
@@ -118,12 +121,47 @@ def _comment(text: str, indent: str = "") -> list[str]:
                          break_long_words=False, break_on_hyphens=False)
 
 
+#: the least size of a negative correlation of two factors of an oblique solution that is named as a possible split
+#: by keying (a rule of thumb of this tool: .10, a small correlation by Cohen 1988's conventions, recalled)
+NEGATIVE_CORRELATION = 0.10
+
+
+#: how the draft's comment names the model language's method factors, where the report names the statement
+METHOD_WORDS = " (a 'method' statement of the model language)"
+
+
+def keying_sentence(labels: tuple[str, ...], correlations: np.ndarray | None) -> tuple[str, str]:
+    """What factors that correlate negatively (by at least :data:`NEGATIVE_CORRELATION`, each factor turned so that
+    most of its salient loadings are positive) may be (new-user trial s24: a trait of two positively and two
+    reverse-worded items, with acquiescence on every item, came out as two factors of two items each, marked only
+    'reverse-worded item?'): items that run against each other, as reverse-worded items not recoded run against
+    the others, and a trait split into its positively and its reverse-worded items is the known pattern of keying
+    and acquiescence (Marsh 1996), modelled by one trait factor with a method factor beside it.  The sentence's
+    words before and after the place where the method statement is named (:data:`METHOD_WORDS` in the draft);
+    ('', '') when no pair correlates so."""
+    if correlations is None or len(labels) < 2:
+        return "", ""
+    phi = np.asarray(correlations, dtype=float)
+    pairs = [(labels[i], labels[j], phi[i, j]) for i in range(len(labels)) for j in range(i + 1, len(labels))
+             if phi[i, j] <= -NEGATIVE_CORRELATION]
+    if not pairs:
+        return "", ""
+    listed = "; ".join(f"{a} and {b}, {_two(r)}" for a, b, r in pairs)
+    return (f"Factors that correlate negatively ({listed}) hold items that run against each other, as reverse-worded "
+            f"items not recoded run against the others. When one such factor holds the reverse-worded items of an "
+            f"item set and another its positively worded ones, the split may be the known pattern of keying and "
+            f"acquiescence (a way of answering that items worded the same way share; Marsh 1996), not two traits: "
+            f"fit the items as one trait factor with a method factor beside it",
+            " and compare the two models on other data.")
+
+
 def draft_model(names: tuple[str, ...], pattern: np.ndarray, threshold: float = DEFAULT_THRESHOLD,
                 ordinal: tuple[str, ...] = (), description: str = "",
-                given_names: tuple[str, ...] | None = None) -> DraftModel:
+                given_names: tuple[str, ...] | None = None, correlations: np.ndarray | None = None) -> DraftModel:
     """The draft model text (module docstring); ``description`` (one line, e.g. the extraction and
     rotation used) goes into the first comment; ``ordinal`` names items to declare ordinal; ``given_names``:
-    the factors' names (a target file's columns), else placeholders."""
+    the factors' names (a target file's columns), else placeholders; ``correlations``: the factors' correlations
+    of an oblique solution, whose negative ones the draft's last comment names (:func:`keying_sentence`)."""
     from cfa_tool import options
 
     threshold = options.real_number("the loading threshold", threshold, 0.0, 1.0, open_low=True, open_high=True)
@@ -197,4 +235,7 @@ def draft_model(names: tuple[str, ...], pattern: np.ndarray, threshold: float = 
     if declared:
         lines += [""]
         lines.extend(_statement("ordinal", declared))
-    return DraftModel("\n".join(lines) + "\n", labels, tuple(written), placements, threshold)
+    keying = keying_sentence(labels, correlations)
+    if keying[0]:
+        lines += [""] + _comment(keying[0] + METHOD_WORDS + keying[1])
+    return DraftModel("\n".join(lines) + "\n", labels, tuple(written), placements, threshold, keying)

@@ -543,3 +543,33 @@ def norm_ppf(q):
 def norm_pdf(x):
     x = np.asarray(x, dtype=float)
     return np.exp(-0.5 * x * x) / np.sqrt(2.0 * np.pi)
+
+
+def correlation_null_sf(r: float, n: int) -> float:
+    """P(R >= r) for the correlation R of ``n`` pairs of values (n >= 3) drawn from two independent normal variables
+    (R. A. Fisher 1915: t = R sqrt(n - 2) / sqrt(1 - R^2) follows Student's t with n - 2 df).  With theta = asin(r)
+    (so that tan theta = t / sqrt(df)), Student's t's central probability A(t | df) = P(|T| <= t) is the finite sum of
+    Abramowitz & Stegun (1964) 26.7.3 (odd df: 2/pi (theta + sin theta (cos theta + 2/3 cos^3 theta + ... + 2 4 ...
+    (df - 3) / (1 3 ... (df - 2)) cos^(df-2) theta))) and 26.7.4 (even df: sin theta (1 + 1/2 cos^2 theta + ... + 1 3
+    ... (df - 3) / (2 4 ... (df - 2)) cos^(df-2) theta)), and P(R >= r) = (1 - A) / 2 for r >= 0 (1 - that for r <
+    0).  For n = 3, arccos(r) / pi."""
+    if n < 3:
+        return _NAN
+    df = n - 2
+    a = abs(min(max(r, -1.0), 1.0))
+    theta = math.asin(a)
+    s, c = a, math.sqrt(max(0.0, 1.0 - a * a))
+    if df % 2:  # odd df
+        term, total = c, 0.0
+        for k in range(1, (df - 1) // 2 + 1):  # cos, 2/3 cos^3, (2 4)/(3 5) cos^5, ...: (df - 1) / 2 terms
+            total += term
+            term *= (2 * k) / (2 * k + 1) * c * c
+        central = 2.0 / math.pi * (theta + s * total) if df > 1 else 2.0 * theta / math.pi
+    else:
+        term, total = 1.0, 0.0
+        for k in range(1, df // 2 + 1):  # 1, 1/2 cos^2, (1 3)/(2 4) cos^4, ...: df / 2 terms
+            total += term
+            term *= (2 * k - 1) / (2 * k) * c * c
+        central = s * total
+    upper = 0.5 * (1.0 - central)
+    return upper if r >= 0 else 1.0 - upper

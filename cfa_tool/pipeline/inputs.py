@@ -869,7 +869,7 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 
     names = names if names is not None else (spec.observed_names if spec is not None else ())
-    found: tuple = row_filter_problems(loaded, spec, where=where) + copied_row_problems(loaded, group, design, names, ids or {})
+    found: tuple = row_filter_problems(loaded, spec, names, where=where) + copied_row_problems(loaded, group, design, names, ids or {})
     found += repeated_id_problems(loaded, ids or {}, id_column, group, names)  # ids of several rows: no merge by id one to one
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)

@@ -5,7 +5,8 @@ from __future__ import annotations
 
 from cfa_tool.data.groups import reference_words
 from cfa_tool.language.names import written_group
-from cfa_tool.note_parts import Text, capitalised, said
+from cfa_tool.note_parts import Command, Note, Text, capitalised, said
+from cfa_tool.options import Option
 from cfa_tool.reporting import tables as T
 from cfa_tool.numbers import count_text
 from cfa_tool.reporting.numbers import est_num, num, p_phrase, unit
@@ -64,7 +65,37 @@ def _fit_words(fit) -> str:
 
 
 def caution_lines(result) -> list[Text]:
-    return [capitalised(w) + "." for w in result.warnings]
+    few = few_groups_line(result)
+    return [capitalised(w) + "." for w in result.warnings] + ([few] if few is not None else [])
+
+
+def few_groups_line(result) -> Note | None:
+    """What alignment over few groups can and cannot show (new-user trial s24: three language versions, whose Monte
+    Carlo check gave correlations of three means, .002 to .94, as trust figures): the method was made for many
+    groups, where a search for partially invariant parameters group by group is impractical (Asparouhov & Muthén
+    2014), and over G groups the check's correlation of true and estimated means rests on G pairs, which reach the
+    authors' .98 by chance alone with a probability (workflows.alignment.chance_trusted) at or above
+    FEW_GROUPS_CHANCE for 3 to 5 groups.  None for more groups, or where the check was not run and two groups
+    leave no correlation to read (the check table's note says so)."""
+    from cfa_tool.workflows.alignment import FEW_GROUPS_CHANCE, TRUSTED_CORRELATION, chance_trusted
+
+    groups = len(result.groups)
+    if groups < 2 or (groups >= 3 and chance_trusted(groups) < FEW_GROUPS_CHANCE):
+        return None
+    text = (f"Only {groups} groups: the alignment method was made for comparing many groups, where a search for "
+            f"partially invariant loadings and intercepts group by group is impractical (Asparouhov & Muthén 2014); "
+            f"with {groups} groups that search is practical, and its score tests say which parameters differ")
+    if result.check is None or groups < 3:
+        return Note((text, Command(f" (the invariance ladder with {Option.PARTIAL.given('auto')})"), "."))
+    chance = chance_trusted(groups)
+    share = f"{100 * chance:.0f}%" if chance >= 0.01 else f"{100 * chance:.1f}%"
+    return Note((text, Command(f" (the invariance ladder with {Option.PARTIAL.given('auto')})"),
+                 f". The Monte Carlo check's correlations are each over {groups} pairs of true and estimated means: they "
+                 f"say whether the order and spacing of {groups} means is recovered, no more; {groups} means unrelated "
+                 f"to the true ones reach the {unit(TRUSTED_CORRELATION, 2)} asked for in {share} of draws by chance "
+                 f"alone (the distribution of a correlation of {groups} pairs, Fisher 1915), and a low correlation may "
+                 f"only mean that the true means hardly differ. Its root mean square error of the means says how far "
+                 f"they miss."))
 
 
 #: the heading of the box of the alignment's cautions, first in every view (the one report model's rule: a problem

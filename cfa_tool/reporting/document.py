@@ -12,25 +12,18 @@ from functools import cached_property
 from typing import Callable
 
 from cfa_tool.data.csv_convention import PLAIN, CsvConvention
-from cfa_tool.note_parts import Command, Note, Text, read, saved
+from cfa_tool.note_parts import Command, Note, Text, capitalised, read, saved
 from cfa_tool.reporting.tables import ProblemNotice, ReportTable
 
 
 WARNINGS = "Notes and warnings on the data and the estimation"  # the heading of a report's warnings in every view
 
 
-# a plain lower-case first word ("listwise deletion left out ..."): not a file or a variable name ("data.csv: ...",
-# "x1: ...", "q_3 ..."), which keeps its case
-_PLAIN_FIRST_WORD = re.compile(r"[a-z]+(?=[ ,;(]|$)")
-
-
 def sentence(line: Text) -> Text:
-    """A notice's line as a sentence: starting with a capital when its first word is a plain lower-case word.
-    Every line of a report's notices passes here (:class:`Report`), whichever part of the tool made it."""
-    if isinstance(line, Note):
-        first = line.parts[0] if line.parts else ""
-        return line.capitalised() if isinstance(first, str) and _PLAIN_FIRST_WORD.match(first) else line
-    return line[0].upper() + line[1:] if _PLAIN_FIRST_WORD.match(line) else line
+    """A notice's line as a sentence: starting with a capital when its first word is a plain lower-case word, by the
+    one rule (note_parts.capitalised).  Every line of a report's notices passes here (:class:`Report`), whichever part
+    of the tool made it."""
+    return capitalised(line)
 
 
 def in_section(section: str, tables) -> list[ReportTable]:

@@ -264,11 +264,15 @@ def _caption(document, label: str, title: str, keep: bool = True) -> None:
     name.paragraph_format.keep_with_next = keep
 
 
-def _note(document, text: str) -> None:
+def _note(document, text: str, whole: bool = False) -> None:
+    """A table's or a figure's note; ``whole``: kept on one page (keep-together: a figure's note, whose drawing is
+    kept with it by keep-with-next, which holds only the note's first line; new-user trial s24: the last two lines of
+    a figure's note fell alone on the next page)."""
     paragraph = document.add_paragraph()
     paragraph.add_run("Note. ").italic = True
     paragraph.add_run(typeset(text))
     paragraph.paragraph_format.space_after = Pt(12)
+    paragraph.paragraph_format.keep_together = whole or None
 
 
 def _grid(document, table: ReportTable, columns: list[int], widths: list[float], size: float, padding: float,
@@ -487,7 +491,7 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
                     picture.space_after = Pt(PICTURE_GAP)
                     picture.keep_with_next = bool(figure.note) and k == len(pieces) - 1  # the note on its page
                 if figure.note:
-                    _note(document, figure.note)
+                    _note(document, figure.note, whole=True)
     # each table turns its page as it needs; the text after them turns it back (never an empty page at the end)
     section = ""
     for number, table in enumerate(report.tables, start=1):

@@ -12,6 +12,7 @@ from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import html_text as esc
+from cfa_tool.data.halves import halves_named_alike
 from cfa_tool.numbers import count_text
 from cfa_tool.reporting.numbers import est_num, est_unit, num, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, ReportTable, _table
@@ -206,6 +207,7 @@ def split_lines(result) -> list[Text]:
                                     second=count_text(len(s.confirmation_rows)))]
     if s.how_drawn():  # by clusters or strata (workflows.explore.SplitHalves)
         lines.append(s.how_drawn())
+    lines.append(halves_named_alike(s.seed, True, s.cluster, s.strata))  # replicate's names of the same halves
     if s.note:
         lines.append(f"No confirmation: {s.note}.")
     return lines
@@ -318,7 +320,19 @@ def explore_report(result):
     return Report(ResultKind.EXPLORE, "Exploratory factor analysis", notice, lines, tuple(tables),
                   tuple(split_lines(result)), (_rules_caution(), GUIDE_NOTE),
                   figures=(Figure("Scree plot: eigenvalues beside those of random data", lambda: (scree_svg(result), "")),),
-                  warnings=tuple(result.notes), listings=(Listing("Draft model", result.draft_text),))
+                  warnings=tuple(result.notes) + _keying_lines(result),
+                  listings=(Listing("Draft model", result.draft_text),))
+
+
+def _keying_lines(result) -> tuple[Text, ...]:
+    """The draft's sentence on factors that correlate negatively (exploration.draft.keying_sentence), naming the
+    model language's method statement: a trait split by its items' keying (new-user trial s24)."""
+    from cfa_tool.exploration.draft import METHOD_WORDS
+
+    before, after = getattr(result.exploration.draft, "keying", ("", ""))
+    if not before:
+        return ()
+    return (Note((before, Command(" ('method NAME' in the model file, docs/model-language.md)", METHOD_WORDS), after)),)
 
 
 __all__ = ["explore_report", "scree_svg"]

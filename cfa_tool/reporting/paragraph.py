@@ -22,6 +22,7 @@ from cfa_tool.numbers import user_number, count_text
 from cfa_tool.method import (MISSING_AT_RANDOM, MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               WeightKind, Weighting)
 from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, design_cautions, failure_words
+from cfa_tool.assessment.directions import relative_direction
 from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors, uncorrelated_pairs
 from cfa_tool.assessment.reliability import BifactorPart, Keying, miskeyed
 from cfa_tool.data.non_answers import non_answer_clause
@@ -32,7 +33,7 @@ from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words, split_label
-from cfa_tool.note_parts import WORDS as MANUSCRIPT, said as said_in  # ('said' names sentences here)
+from cfa_tool.note_parts import WORDS as MANUSCRIPT, capitalised, said as said_in  # ('said' names sentences here)
 from cfa_tool.reporting.numbers import (est_num, est_unit, fit_index_text, guides_text, missing, num, p_phrase, short,
                                         signed, unit)
 from cfa_tool.reporting.numbers import word_list as _list
@@ -681,7 +682,8 @@ def _spread(values: list[float]) -> str:
 
 
 def _capital(text: str) -> str:
-    return text[:1].upper() + text[1:]
+    """``text`` as a sentence, by the one rule of a line's capital (note_parts.capitalised): a name keeps its case."""
+    return capitalised(text)
 
 
 #: what pairwise present rows assume, at the end of the rows' phrase (inside parentheses: the citation after a comma)
@@ -2233,41 +2235,41 @@ def _reversed(a: float, b: float) -> bool:
     return a * b < 0 and min(abs(a), abs(b)) >= REVERSED_LOADING_SIZE
 
 
-def _directions(result) -> dict[tuple[str | None, str], float]:
-    """Each factor's direction in each group of ``result`` ((group, factor): +1 or -1): the sign most of its items'
-    standardized loadings take, ties broken by their sum.  A factor turned as a whole in one group or sample (by a
-    marker that hardly measures it, whose sign is chance: hostile s23) then turns none of its items, and an item coded
-    the other way round is told from the others by its sign relative to theirs, the marker's too."""
-    votes: dict = {}
-    for r in result.estimates:
-        if r.kind == "loading" and r.variables[1] in result.observed and r.standardized is not None:
-            vote, total = votes.get((r.group, r.variables[0]), (0, 0.0))
-            votes[(r.group, r.variables[0])] = (vote + (r.standardized > 0) - (r.standardized < 0),
-                                                total + r.standardized)
-    return {key: -1.0 if (vote or total) < 0 else 1.0 for key, (vote, total) in votes.items()}
+def _turned(pairs) -> dict[str, float]:
+    """Each factor's direction in the second of two solutions relative to the first (``pairs``: ((factor, item),
+    first loading, second loading)), by the one rule (:func:`cfa_tool.assessment.directions.relative_direction`): a
+    factor turned as a whole in one group or sample (by a marker that hardly measures it, whose sign is chance:
+    hostile s23) then turns none of its items, and an item coded the other way round is told from the others by its
+    sign relative to theirs, the marker's too; a factor of as many reverse-worded items as others keeps its
+    direction (new-user s24)."""
+    by_factor: dict = {}
+    for (factor, _), a, b in pairs:
+        first, second = by_factor.setdefault(factor, ([], []))
+        first.append(a)
+        second.append(b)
+    return {factor: relative_direction(first, second) for factor, (first, second) in by_factor.items()}
 
 
 def reversed_loadings(rep) -> list[tuple[tuple[str, str], float, float]]:
     """((factor, item), calibration, validation) of the standardized loadings that have opposite signs in the two
-    samples relative to their factor's other items (:func:`_directions`), both at least :data:`REVERSED_LOADING_SIZE`
-    in size (none when the loose refit did not converge)."""
+    samples once each factor is put the same way round in both (:func:`_turned`), both at least
+    :data:`REVERSED_LOADING_SIZE` in size (none when the loose refit did not converge)."""
     if not rep.loose.converged:
         return []
-    first, second = _directions(rep.calibration_result), _directions(rep.loose)
-    return [(key, a, b) for key, a, b in _loading_pairs(rep)
-            if _reversed(a * first.get((None, key[0]), 1.0), b * second.get((None, key[0]), 1.0))]
+    pairs = _loading_pairs(rep)
+    turned = _turned(pairs)
+    return [(key, a, b) for key, a, b in pairs if _reversed(a, b * turned[key[0]])]
 
 
 def reversed_across_groups(result) -> list[tuple[tuple[str, str], str, float, str, float]]:
     """((factor, item), first group, its loading, other group, its loading) of the standardized loadings of a grouped
-    fit (the configural model of an invariance ladder) whose sign in a group, relative to its factor's other items
-    there (:func:`_directions`), is the opposite of the first group's, both at least :data:`REVERSED_LOADING_SIZE` in
+    fit (the configural model of an invariance ladder) whose sign in a group is the opposite of the first group's once
+    the factor is put the same way round in both (:func:`_turned`), both at least :data:`REVERSED_LOADING_SIZE` in
     size: an item coded the other way round in one group."""
     if not result.converged:
         return []
-    direction = _directions(result)
-    first: dict = {}
-    found = []
+    first: dict = {}  # (factor, item): (the first group of the item, its loading there)
+    later: dict = {}  # (first group, later group): ((factor, item), first loading, later loading) of their items
     for r in result.estimates:
         if r.kind != "loading" or r.variables[1] not in result.observed or r.standardized is None:
             continue
@@ -2275,10 +2277,11 @@ def reversed_across_groups(result) -> list[tuple[tuple[str, str], str, float, st
             first[r.variables] = (r.group, r.standardized)
             continue
         group, a = first[r.variables]
-        b = r.standardized
-        factor = r.variables[0]
-        if _reversed(a * direction[(group, factor)], b * direction[(r.group, factor)]):
-            found.append((r.variables, group, a, r.group, b))
+        later.setdefault((group, r.group), []).append((r.variables, a, r.standardized))
+    found = []
+    for (group, other), pairs in later.items():
+        turned = _turned(pairs)
+        found += [(key, group, a, other, b) for key, a, b in pairs if _reversed(a, b * turned[key[0]])]
     return found
 
 

@@ -9,6 +9,7 @@ from dataclasses import replace
 
 from cfa_tool.data.csv_convention import convention_in
 from cfa_tool.errors import OptionError
+from cfa_tool.note_parts import capitalised
 from cfa_tool.version import check_written_version
 from cfa_tool.reporting.document import Report, ResultKind
 
@@ -188,10 +189,10 @@ def _with_estimate_problems(report: Report, payload: dict, source: str) -> Repor
         # not the notice's words, decide); otherwise the problems it lists that make it inadmissible come first
         said = fit.get("admissible") is False and report.notice is not None and report.notice.inadmissible
         unshown = [] if said else [q for q in listed_problems(fit["problems"], source) if q.kind.inadmissible]
-        lines += [f"{name[0].upper() + name[1:]} is not admissible, and the report saved with it does not say so "
+        lines += [f"{capitalised(name)} is not admissible, and the report saved with it does not say so "
                   f"(changed after the run?): {q.explanation} Do not interpret its estimates or fit." for q in unshown]
         if fit.get("admissible") is False and not said and not unshown:
-            lines.append(f"{name[0].upper() + name[1:]} is marked not admissible in this file, and the report saved "
+            lines.append(f"{capitalised(name)} is marked not admissible in this file, and the report saved "
                          f"with it does not say so (changed after the run?): do not interpret its estimates or fit.")
     if not lines:
         return report

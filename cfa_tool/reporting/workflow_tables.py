@@ -13,10 +13,11 @@ from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATE
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.data.groups import reference_words
+from cfa_tool.data.halves import halves_named_alike
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
-from cfa_tool.note_parts import Command, Note, TableReference, Text, joined
+from cfa_tool.note_parts import Command, Note, TableReference, Text, capitalised, joined
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANGE_WHY, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
@@ -168,10 +169,10 @@ def _design_caution_lines(named_results) -> list[str]:
     # factor) under its own name (re-check s18: one model's extreme factor, 0.407, was said of the other, 0.651)
     same = [n for n, found in own if n != name and (found == problems or steps_of_one_model)]
     whose = f"{name} (the model with the most free parameters{'; ' + word_list(same) + ' too' if same else ''}): "
-    lines = [whose[0].upper() + whose[1:] + p.line() for p in problems]
+    lines = [capitalised(whose) + p.line() for p in problems]  # a model's name keeps its case (note_parts)
     for other, found in own:
         if other != name and found != problems and not steps_of_one_model:
-            lines += [other[0].upper() + other[1:] + ": " + p.line() for p in found]
+            lines += [capitalised(other) + ": " + p.line() for p in found]
     return lines
 
 
@@ -481,7 +482,9 @@ def comparison_report(comparison) -> Report:
             computed = any(not t.not_computed for t in found)  # no p-value to read as approximate otherwise
             read = ("read the p-values of this comparison as approximate" if computed
                     else "no difference test of this comparison could be computed")
-            cautions.append(f"{restricted} against {general}: the restricted model has {'; '.join(boundary)}: "
+            # said after a word of its own: a line that starts with a model's name would have it capitalised as
+            # the first word of a sentence (new-user s24: 'One against gen' for the model file one.cfa)
+            cautions.append(f"Comparing {restricted} with {general}: the restricted model has {'; '.join(boundary)}: "
                             + (("values on the boundary too, so read the p-values of this comparison as approximate "
                                 "as well." if computed else f"values on the boundary too; {read}.")
                                if explained is not None else
@@ -1021,7 +1024,11 @@ def replication_report(replications) -> Report:
     title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
     # the data's cautions first (the halves of one file: once), then the calibration fits'
     cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems)) + cautions
-    split = tuple(dict.fromkeys(_split_sentence(rep.split) for rep in reps if rep.split is not None))
+    split = tuple(dict.fromkeys([_split_sentence(rep.split) for rep in reps if rep.split is not None]
+                                + [halves_named_alike(rep.split.seed, False, rep.split.cluster, rep.split.strata)
+                                   for rep in reps
+                                   if rep.split is not None and rep.split.seed is not None
+                                   and rep.split.split >= rep.split.in_file]))  # explore's halves when the same rows
     read = tuple(dict.fromkeys([c for rep in reps for c in T.higher_order_cautions(rep.calibration_result)]
                                + [n for rep in reps for n in getattr(rep, "notes", ())]))  # as fit says them
     rare = tuple(dict.fromkeys(w for rep in reps for r in (rep.calibration_result, rep.loose)

@@ -48,6 +48,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.assessment.admissibility import refuse_inadmissible_fit
+from cfa_tool.assessment.directions import relative_direction
 from cfa_tool.data.groups import reference_rule
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool import options as check
@@ -57,6 +58,7 @@ from cfa_tool.language.spec import ScaleSetting, Spec
 from cfa_tool.method import ALIGNMENT_FLAG_LEVEL, ALIGNMENT_TRIALS, ReferenceMean
 from cfa_tool.numbers import word_list
 from cfa_tool.numerics.plain import journal_decimal
+from cfa_tool.numerics.distributions import correlation_null_sf
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 
@@ -68,6 +70,17 @@ CAUTION_SHARE = 0.25
 #: the correlation of true and estimated means the Monte Carlo check should reach (Muthén & Asparouhov 2014,
 #: a rule of thumb, recalled)
 TRUSTED_CORRELATION = 0.98
+#: the chance, at or above which the Monte Carlo check's correlations over so few groups are said to show little:
+#: group means unrelated to the true ones reach :data:`TRUSTED_CORRELATION` with at least this probability (this
+#: tool's rule: 3 to 5 groups, where it is .064, .010 and .0017; :func:`chance_trusted`)
+FEW_GROUPS_CHANCE = 0.001
+
+
+def chance_trusted(groups: int) -> float:
+    """P(r >= TRUSTED_CORRELATION) for the correlation over ``groups`` pairs of values unrelated to each other
+    (normal): how often the Monte Carlo check's correlation of true and estimated means over so few groups reaches the
+    authors' figure by chance alone (numerics.distributions.correlation_null_sf; Fisher 1915)."""
+    return float(correlation_null_sf(TRUSTED_CORRELATION, groups))
 #: a Hessian of the loss whose smallest eigenvalue is below this share of its largest: the group means and
 #: variances are barely determined by the loss (its minimum is flat in some direction)
 FLAT_MINIMUM = 1e-7
@@ -817,9 +830,9 @@ def _layout(spec: Spec, table) -> _Layout:
 
 def orientation(loadings: np.ndarray) -> np.ndarray:
     """+1 or -1 per group: -1 where the group's loadings point against the reference group's (a factor fixed by its
-    variance has no sign of its own, so a configural fit may return it reversed in some groups)."""
-    agreement = loadings @ loadings[0]
-    return np.where(agreement < 0, -1.0, 1.0)
+    variance has no sign of its own, so a configural fit may return it reversed in some groups), by the one rule of a
+    factor's direction relative to another solution's (assessment.directions.relative_direction)."""
+    return np.array([relative_direction(loadings[0], row) for row in loadings])
 
 
 def _reflect_blocks(blocks: np.ndarray, signs: np.ndarray) -> np.ndarray:

@@ -1014,10 +1014,13 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     # the cautions every command composes once (pipeline.inputs.data_problems): a row filter's selection on an item,
     # rows pasted twice, ids of several rows (s20: explore named copies but not repeated ids), codes kept in a filter's
     # column, values that look like no answers (codes set apart from the scale among them) and items answered by few
-    # the codes given (advice adding a code keeps them; a filter or group column holding one is named)
+    # the codes given (advice adding a code keeps them; a filter or group column holding one is named); judged on the
+    # items explored (``chosen``, the columns left out as constant aside: new-user s24, a --keep column constant after
+    # its filter was called 'an item of factor1'), without the placeholder model of one factor of them all, whose
+    # factor is no factor of the exploration
     data_problems = api.data_problems(replace(screened, row_filters=loaded.row_filters, read_frame=loaded.read_frame,
                                               missing_codes=loaded.missing_codes, missing_words=loaded.missing_words),
-                                      spec, ids=ids, names=tuple(chosen), id_column=named_by)
+                                      None, ids=ids, names=tuple(chosen), id_column=named_by)
     halves = None
     if split is not None:
         split = options.seed(split)

@@ -22,6 +22,7 @@ import pandas as pd
 from cfa_tool.data.answer_words import coding_json
 from cfa_tool.data.groups import reference_rule
 from cfa_tool.data.renamed_columns import ColumnRenames
+from cfa_tool.note_parts import capitalised
 from cfa_tool.options import own_keywords
 from cfa_tool.data.matching import chosen_columns
 from cfa_tool.pipeline.inputs import (_described, rows_named, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_categories, keeps_rows_with_gaps,
@@ -836,7 +837,8 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str, tuple[
 
 
 def _capital_first(text: str) -> str:
-    return text[:1].upper() + text[1:]
+    """``text`` as a sentence, by the one rule of a line's capital (note_parts.capitalised): a name keeps its case."""
+    return capitalised(text)
 
 
 def _higher_order_parents(result: FitResult) -> dict[str, dict[str, dict[str, float]]]:

@@ -16,6 +16,7 @@ from cfa_tool.numbers import count_text, counted, cut_list, rounded_number
 from cfa_tool.options import Option
 from cfa_tool.numerics import distributions as dist
 
+from cfa_tool.assessment.method_factors import cross_cutting_factors
 from cfa_tool.data.moments import SampleMoments
 from cfa_tool.pipeline.continuous import Estimation, FitOptions, estimate
 from cfa_tool.language.spec import Spec
@@ -177,9 +178,9 @@ def _first_order_items(spec: Spec) -> dict[str, frozenset[str]]:
 def _cross_cutting(factor: str, items: dict[str, frozenset[str]], spec: Spec) -> bool:
     """Whether ``factor`` is a method factor or one whose every item loads on another factor too (a wording factor
     beside traits, a bifactor model's factors): when the restricted model has no factor of exactly its items, it
-    is left out, not merged with the factors its items also load on."""
-    others = set().union(*(i for f, i in items.items() if f != factor))
-    return factor in spec.method_factors or items[factor] <= others
+    is left out, not merged with the factors its items also load on (the one rule:
+    assessment.method_factors.cross_cutting_factors, by which a declared method factor makes no trait cross-cutting)."""
+    return factor in cross_cutting_factors(items, spec.method_factors)
 
 
 def _count(n: int, noun: str) -> str:

@@ -739,7 +739,7 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     rows = SplitRows(split, len(frame), split < len(frame.dropna(subset=list(spec.observed_names), how="all")),
                      *halves, filters=loaded.row_filters,
                      rows_in_file=len(loaded.read_frame) if loaded.read_frame is not None else None,
-                     cluster=cluster, strata=strata, units=units, labels=labels)
+                     cluster=cluster, strata=strata, units=units, labels=labels, seed=seed)
     # the rows left out before the split (the halves hold complete rows only): fit's caution, after the data's
     from cfa_tool.pipeline.column_codes import column_code_problems
 
@@ -787,6 +787,8 @@ class SplitRows:
     #: each row's number, cluster and stratum as read ('' for a column not given), when drawn by them: what a halves
     #: file records to draw the halves again (data.halves.DrawnBy)
     labels: tuple[tuple[int, str, str], ...] = field(default=(), repr=False)
+    #: the seed the halves were drawn with (None where not known)
+    seed: int | None = None
 
     def to_dict(self) -> dict:
         out = {"rows_split": self.split, "rows_in_file": self.in_file, "complete_rows_only": self.complete_only,
