@@ -42,19 +42,26 @@ def data() -> pd.DataFrame:
     return _rows(0.95)
 
 
+def _merged(comparison, reading: BoundaryReading) -> list:
+    """The computed tests of a comparison of one factor against two (a and b merged into g), each checked to say the
+    merge and ``reading``, and to have one df."""
+    assert comparison.tests
+    for t in comparison.tests:
+        assert t.boundary == ("factors a and b merged into g (their correlation fixed at 1)",)
+        assert t.boundary_reading is reading
+    computed = [t for t in comparison.tests if not t.not_computed]
+    assert computed and all(t.df_difference == 1 for t in computed)
+    return computed
+
+
 def test_two_factors_merged_into_one_are_read_by_the_usual_chi_square(data):
     # the two-factor fit holds nothing at or below a correlation of 1, so the difference follows the usual
     # chi-square (Savalei & Kolenikov 2008): the printed p-value is the reading, unmarked, no mixture given
     from cfa_tool.reporting.workflow_tables import BOUNDARY_CAUTION, BOUNDARY_UNHELD
 
     comparison = compare([ONE, TWO], data, test="satorra-bentler")
-    assert comparison.tests
-    for t in comparison.tests:
-        assert t.boundary == ("factors a and b merged into g (their correlation fixed at 1)",)
-        assert t.boundary_reading is BoundaryReading.CHI_SQUARE
-        assert np.isnan(t.boundary_p_value)
-        if not t.not_computed:
-            assert t.df_difference == 1 and t.read_p_value == t.p_value
+    for t in _merged(comparison, BoundaryReading.CHI_SQUARE):
+        assert np.isnan(t.boundary_p_value) and t.read_p_value == t.p_value
     plain = next(t for t in comparison.tests if not t.not_computed and t.method.value == "likelihood ratio")
     assert plain.p_value == pytest.approx(stats.chi2.sf(plain.chi_square_difference, 1), rel=1e-8)
     report = comparison_report(comparison)
@@ -76,13 +83,7 @@ def test_two_factors_merged_into_one_are_read_by_the_usual_chi_square(data):
 def test_two_factors_merged_get_the_mixture_where_a_bound_holds_their_correlation(data):
     # variance scaling and 'bound covariance(a, b) <= 1' hold the correlation inside the boundary: the 50:50 mixture
     comparison = compare([ONE, HELD], data, test="satorra-bentler")
-    assert comparison.tests
-    for t in comparison.tests:
-        assert t.boundary == ("factors a and b merged into g (their correlation fixed at 1)",)
-        assert t.boundary_reading is BoundaryReading.MIXTURE
-        if t.not_computed:
-            continue
-        assert t.df_difference == 1
+    for t in _merged(comparison, BoundaryReading.MIXTURE):
         # Self & Liang (1987): .5 chi2(0) + .5 chi2(1), i.e. half the chi-square(1) tail
         assert t.boundary_p_value == pytest.approx(0.5 * stats.chi2.sf(t.chi_square_difference, 1), rel=1e-10)
         assert t.boundary_p_value == pytest.approx(t.p_value / 2, rel=1e-10) and t.read_p_value == t.boundary_p_value
@@ -98,8 +99,8 @@ def test_two_factors_merged_get_the_mixture_where_a_bound_holds_their_correlatio
     out = first.to_dict()
     assert out["boundary"] == list(first.boundary) and out["boundary_p_value"] == pytest.approx(first.boundary_p_value)
     assert out["boundary_reading"] == "50:50 mixture"
-    assert (f"with one parameter on the boundary, held inside it by a bound of Model 2, its p-value from the 50:50 "
-            f"mixture of chi-square distributions with 0 and 1 df is p") in " ".join(report.paragraph.split())
+    assert ("with one parameter on the boundary, held inside it by a bound of Model 2, its p-value from the 50:50 "
+            "mixture of chi-square distributions with 0 and 1 df is p") in " ".join(report.paragraph.split())
 
 
 def test_a_residual_variance_fixed_at_zero_beside_an_interior_constraint(data):
@@ -275,7 +276,7 @@ def test_ordinal_models_that_differ_only_by_a_bound_are_said_to_be_so_as_continu
     (pair,) = result.not_nested
     text = " ".join(pair.reason.split())
     which = "first" if bounded_first else "second"
-    assert (f"the two models differ only by a bound, which holds the loading of y2 on a" in text
+    assert ("the two models differ only by a bound, which holds the loading of y2 on a" in text
             and f"at its bound in the {which} model: the {which} is a restricted form of the other under an "
                 f"inequality restriction" in text)
     assert "neither is a restricted form" not in text
