@@ -507,7 +507,9 @@ def comparison_report(comparison) -> Report:
         if marked:
             computed = any(not t.not_computed for t in found)  # no p-value to read as approximate otherwise
             mixed = reading is BoundaryReading.MIXTURE
-            read = ("read the 50:50 mixture's p-value, not the printed one" if computed and mixed else
+            mixture_p = ("p-values, not the printed ones" if sum(not t.not_computed for t in found) > 1
+                         else "p-value, not the printed one")
+            read = (f"read the 50:50 mixture's {mixture_p}" if computed and mixed else
                     "read the p-values of this comparison as approximate" if computed
                     else "no difference test of this comparison could be computed")
             head = f"{restricted} against {general}: the restricted model has {'; '.join(boundary)}: "
