@@ -1741,7 +1741,11 @@ def comparison_paragraph(comparison) -> str:
     """The methods-and-results paragraph of a comparison: exactly the models compared (each one's factors, scales and
     departures from simple structure), the estimator and the rows, which difference test was used (with its authors)
     and its result for every nested pair, whether a restricted model sits on the boundary of the general model's
-    space (Self & Liang 1987; Stoel, Garre, Dolan & van den Wittenboer 2006), and the pairs that are not nested."""
+    space (Self & Liang 1987; Stoel, Garre, Dolan & van den Wittenboer 2006) and which distribution its difference
+    was read against (nesting.BoundaryReading: the usual chi-square when the estimation does not hold the one
+    parameter there inside it, Savalei & Kolenikov 2008), and the pairs that are not nested."""
+    from cfa_tool.workflows.nesting import BoundaryReading
+
     names, results = comparison.names, comparison.results
     label = {name: f"Model {k}" for k, name in enumerate(names, start=1)}
     first = results[0]
@@ -1833,12 +1837,18 @@ def comparison_paragraph(comparison) -> str:
         cfi = "\u0394CFI not defined" if undefined(restricted, general) else _change('CFI', t.delta_cfi)
         sentence = (f"{pair}: {CHI}({t.df_difference}) = {num(t.chi_square_difference, 2)}, {_p(t.p_value)}{which}"
                     + ("." if first.method.ordinal else f"; {cfi}, {_change('RMSEA', t.delta_rmsea)}."))
-        if t.boundary:
+        if t.boundary and t.boundary_reading is BoundaryReading.CHI_SQUARE:  # unconstrained: the usual chi-square
+            sentence += (f" {label[restricted]} has {_list(list(t.boundary))}, a value on the boundary of the parameter "
+                         f"space of {label[general]}; as the estimation did not hold {label[general]}'s estimate "
+                         f"inside that boundary (estimates beyond it are reported as improper solutions), the "
+                         f"difference follows the usual chi-square distribution (Savalei & Kolenikov, 2008).")
+        elif t.boundary:
             sentence += (f" Because {label[restricted]} has {_list(list(t.boundary))}, values on the boundary of the "
                          f"parameter space of {label[general]}, the difference does not follow the usual chi-square "
                          f"distribution (Self & Liang, 1987; Stoel, Garre, Dolan, & van den Wittenboer, 2006)")
-            sentence += (f"; with one parameter on the boundary, its p-value from the 50:50 mixture of chi-square "
-                         f"distributions with {t.df_difference - 1} and {t.df_difference} df is {_p(t.boundary_p_value)}."
+            sentence += (f"; with one parameter on the boundary, held inside it by a bound of {label[general]}, its "
+                         f"p-value from the 50:50 mixture of chi-square distributions with {t.df_difference - 1} and "
+                         f"{t.df_difference} df is {_p(t.boundary_p_value)}."
                          if not math.isnan(t.boundary_p_value) else
                          ", so its p-value is only approximate.")
         parts.append(sentence)

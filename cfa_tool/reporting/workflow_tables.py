@@ -31,7 +31,7 @@ from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.nested_power_report import boundary_words, nested_parts
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
 from cfa_tool.workflows.invariance import CONFIGURAL_INDICES
-from cfa_tool.workflows.nesting import heavy_tails_caution, rejects
+from cfa_tool.workflows.nesting import BoundaryReading, heavy_tails_caution, rejects
 
 SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
 CHECK_SOLUTIONS = "Check before interpreting these solutions"  # the cautions of several models' solutions
@@ -319,6 +319,15 @@ BOUNDARY_CAUTION = ("values on the boundary of what the general model allows, so
                     "follow the usual chi-square distribution (Self & Liang 1987; Stoel, Garre, Dolan & van den "
                     "Wittenboer 2006)")
 
+#: why a difference test with one parameter on the boundary, which the general model's fit does not hold inside it,
+#: is read as printed (nesting.BoundaryReading.CHI_SQUARE; Savalei & Kolenikov 2008)
+BOUNDARY_UNHELD = ("a value on the boundary of what the general model allows, but the general model's fit does not "
+                   "hold its estimate inside that boundary (a correlation may go past 1, a variance below 0: an "
+                   "improper solution, named first when it happens), so the difference follows the usual chi-square "
+                   "distribution (Savalei & Kolenikov 2008); the 50:50 mixture of chi-square distributions (Self & "
+                   "Liang 1987) holds only for estimates held inside the boundary, and would reject a true "
+                   "restriction about twice as often as its level here")
+
 
 def ordinal_decision_note(boundary: bool) -> str:
     """The one statement of what decides between nested models of ordinal items, and how rough each part is: the
@@ -339,9 +348,12 @@ def ordinal_decision_note(boundary: bool) -> str:
 
 
 def boundary_note(tests, explained: str | None = None, criteria: bool = True, ordinal: bool = False) -> Text:
-    """The note under a difference-test table whose restricted model sits on the boundary: what lies there, why the
-    printed p-values are not exact, and the mixture's p-value when one parameter lies there.  The why, and the
-    mixture's distribution, are said in full under the first such table of a comparison only; the later tables
+    """The note under a difference-test table whose restricted model sits on the boundary: what lies there and which
+    p-value to read (``tests[0].boundary_reading``, nesting.BoundaryReading): the printed ones, unmarked, when the
+    general model's fit does not hold the one parameter on the boundary inside it (Savalei & Kolenikov 2008); the
+    50:50 mixture's when a bound of the general model holds it (Self & Liang 1987); none exactly otherwise.  The why,
+    and the mixture's distribution, are said in full under the first table of the usual chi-square's reading and under
+    the first of the others only; the later tables
     name what lies on their boundary, their own p-values and the table whose note says the why (``explained``, its
     key: each view names it as it names its tables; new-user trial: five one-row tables repeated the same five
     lines); ``criteria``: the models have AIC and BIC to weigh them by (not for least-squares fits of ordinal items
@@ -352,13 +364,19 @@ def boundary_note(tests, explained: str | None = None, criteria: bool = True, or
     mixture = [t for t in tests if not missing(t.boundary_p_value)]
     computed = sum(not t.not_computed for t in tests)
     shown = "p-value" if computed == 1 else "p-values"
+    unheld = tests[0].boundary_reading is BoundaryReading.CHI_SQUARE
     if not computed:  # no p-value in the table, so none is marked: the boundary said, and what is left to weigh
         weigh = f"weigh the models by their fit indices{', AIC and BIC' if criteria else ''}"
         if explained is not None:
             return Note((f"On the boundary: {what}; see the note under ", TableReference(explained),
                          f". No difference test could be computed here: {weigh}."))
-        return (f"On the boundary: {what}: {BOUNDARY_CAUTION}. No difference test could be computed here: "
-                f"{weigh}.")
+        return (f"On the boundary: {what}: {BOUNDARY_UNHELD if unheld else BOUNDARY_CAUTION}. No difference test "
+                f"could be computed here: {weigh}.")
+    if unheld:  # the usual chi-square: the p-values as printed, unmarked (Savalei & Kolenikov 2008)
+        if explained is not None:
+            return Note((f"On the boundary: {what}; see the note under ", TableReference(explained),
+                         f": read the {shown} as printed."))
+        return f"On the boundary: {what}: {BOUNDARY_UNHELD}. Read the {shown} as printed."
     if mixture:
         found = ", ".join(f"p {p_phrase(t.boundary_p_value)} for the {t.method}" for t in mixture)
         approximate = " (for the scaled differences as an approximation)" if len(mixture) > 1 else ""
@@ -366,9 +384,10 @@ def boundary_note(tests, explained: str | None = None, criteria: bool = True, or
         if explained is not None:
             return Note((f"* On the boundary: {what}; see the note under ", TableReference(explained),
                          f". The 50:50 mixture gives {found}{approximate}{read}"))
-        reading = (f"With one parameter on the boundary the difference follows the 50:50 mixture of chi-square "
-                   f"distributions with {mixture[0].df_difference - 1} and {mixture[0].df_difference} df (Self & Liang "
-                   f"1987; Stram & Lee 1994), which gives {found}{approximate}{read}")
+        reading = (f"With one parameter on the boundary, which the general model's bound holds inside it, the "
+                   f"difference follows the 50:50 mixture of chi-square distributions with "
+                   f"{mixture[0].df_difference - 1} and {mixture[0].df_difference} df (Self & Liang 1987; Stram & Lee "
+                   f"1994), which gives {found}{approximate}{read}")
     else:
         if explained is not None:
             return Note((f"* On the boundary: {what}; see the note under ", TableReference(explained),
@@ -454,11 +473,15 @@ def comparison_report(comparison) -> Report:
     for t in comparison.tests:
         pairs.setdefault((t.restricted, t.general), []).append(t)
     notes = []
-    explained = None  # the key of the first table on the boundary, whose note says the why in full: referred to after
+    # the key of the first table on the boundary whose note says the why in full, referred to after: one for the
+    # usual chi-square's why (nesting.BoundaryReading.CHI_SQUARE, BOUNDARY_UNHELD), one for the others' (BOUNDARY_CAUTION)
+    explained: dict = {}
+    cautioned = False  # the why of the cautions said once, in the first
     for k, ((restricted, general), found) in enumerate(pairs.items()):  # one small table per nested pair
         key = f"difference_tests_{k + 1}"
         rows, values = [], []
-        boundary = found[0].boundary
+        boundary, reading = found[0].boundary, found[0].boundary_reading
+        marked = bool(boundary) and reading is not BoundaryReading.CHI_SQUARE  # the printed p-values not the reading
         # a CFI of 0/0 (the baseline model fits no worse): the change from or to it is not defined, and said so
         undefined = [name for name in (restricted, general) if compared_cfi_not_defined(by_name[name])]
         cfi_change = (lambda t: "not defined") if undefined else (lambda t: _change(t.delta_cfi, dashes))
@@ -470,34 +493,48 @@ def comparison_report(comparison) -> Report:
                              + ".")
             else:
                 rows.append([t.method, f"{num(t.chi_square_difference, 3)} ({t.df_difference})",
-                             p_value(t.p_value) + (" *" if boundary else ""), cfi_change(t),
+                             p_value(t.p_value) + (" *" if marked else ""), cfi_change(t),
                              _change(t.delta_rmsea, dashes)])
                 if t.scaled_by:  # the factors and correction a scaled difference took, as computed (nesting._scaled_by)
                     pair = f" ({restricted} against {general})" if len(pairs) > 1 else ""
                     notes.append(f"{t.method}{pair}: {t.scaled_by}.")
             values.append([t.method, None if t.not_computed else t.chi_square_difference, t.df_difference,
                            None if t.not_computed else t.p_value, t.delta_cfi, t.delta_rmsea, str(t.not_computed),
-                           "; ".join(t.boundary), None if missing(t.boundary_p_value) else t.boundary_p_value])
-        if boundary:  # the why once, in the first such caution; the later ones name what lies on their boundary
+                           "; ".join(t.boundary), None if missing(t.boundary_p_value) else t.boundary_p_value,
+                           None if t.boundary_reading is None else t.boundary_reading.value])
+        # a caution first only where the printed p-values are not the reading (the usual chi-square is read as
+        # printed, Savalei & Kolenikov 2008: said under the table); the why once, in the first such caution
+        if marked:
             computed = any(not t.not_computed for t in found)  # no p-value to read as approximate otherwise
-            read = ("read the p-values of this comparison as approximate" if computed
+            mixed = reading is BoundaryReading.MIXTURE
+            mixture_p = ("p-values, not the printed ones" if sum(not t.not_computed for t in found) > 1
+                         else "p-value, not the printed one")
+            read = (f"read the 50:50 mixture's {mixture_p}" if computed and mixed else
+                    "read the p-values of this comparison as approximate" if computed
                     else "no difference test of this comparison could be computed")
             # said after a word of its own: a line that starts with a model's name would have it capitalised as
             # the first word of a sentence (new-user s24: 'One against gen' for the model file one.cfa)
-            cautions.append(f"Comparing {restricted} with {general}: the restricted model has {'; '.join(boundary)}: "
-                            + (("values on the boundary too, so read the p-values of this comparison as approximate "
-                                "as well." if computed else f"values on the boundary too; {read}.")
-                               if explained is not None else
-                               Note((f"{BOUNDARY_CAUTION}; {read}; see the note under ", TableReference(key), "."))))
+            head = f"Comparing {restricted} with {general}: the restricted model has {'; '.join(boundary)}: "
+            if not cautioned:
+                cautions.append(head + Note((f"{BOUNDARY_CAUTION}; {read}; see the note under ", TableReference(key),
+                                             ".")))
+            elif computed and mixed:
+                cautions.append(head + Note((f"values on the boundary too; {read}; see the note under ",
+                                             TableReference(key), ".")))
+            else:
+                cautions.append(head + ("values on the boundary too, so read the p-values of this comparison as "
+                                        "approximate as well." if computed else f"values on the boundary too; {read}."))
+            cautioned = True
         columns = [("Test", "l"), ("Difference (df)", "r"), ("p", "r"), ("\u0394CFI", "r"), ("\u0394RMSEA", "r")]
         value_names = ["Test", "Chi-square difference", "df difference", "p", "\u0394CFI", "\u0394RMSEA",
-                       "Not computed because", "On the boundary", "p, one parameter on the boundary"]
+                       "Not computed because", "On the boundary", "p, 50:50 mixture", "Reading on the boundary"]
         if ordinal:  # no changes in fit indices to show (ORDINAL_FIT_CHANGE, in the notes)
             columns, rows = columns[:3], [row[:3] for row in rows]
             value_names = value_names[:4] + value_names[6:]
             values = [row[:4] + row[6:] for row in values]
         tables.append(_table(key, f"{restricted} (restricted) against {general}: difference tests",
-                             columns, rows, joined((boundary_note(found, explained, criteria, ordinal) if boundary
+                             columns, rows, joined((boundary_note(found, explained.get(not marked), criteria, ordinal)
+                                                    if boundary
                                                     else None, _changes_note(rows, dashes, ordinal),
                                                     None if ordinal or not undefined else
                                                     f"\u0394CFI not defined: CFI has no value for {word_list(undefined)} "
@@ -506,7 +543,8 @@ def comparison_report(comparison) -> Report:
                                                     f"noncentralities at most 0, so CFI is 0/0); read the difference "
                                                     f"test and \u0394RMSEA.")) or None,
                              values=(value_names, values)))
-        explained = key if boundary and explained is None else explained
+        if boundary:
+            explained.setdefault(not marked, key)
     if comparison.heavy_tails and not any(rejects(t) for t in comparison.tests):
         notes.append(heavy_tails_caution(comparison.heavy_tails, None))
     if any(t.method is DifferenceMethod.SATORRA_BENTLER_2010 and not t.not_computed for t in comparison.tests):
@@ -516,7 +554,8 @@ def comparison_report(comparison) -> Report:
                   else " Compare them by AIC and BIC (lower is better)." if n.information_criteria else "")
         notes.append(f"Not tested: {n.first} and {n.second}: {n.reason}.{advice}")
     if comparison.tests:
-        notes.append(ordinal_decision_note(any(t.boundary for t in comparison.tests)) if ordinal
+        notes.append(ordinal_decision_note(any(t.boundary and t.boundary_reading is not BoundaryReading.CHI_SQUARE
+                                               for t in comparison.tests)) if ordinal
                      else CHANGE_GUIDES if comparison.change_guides_apply else CHANGES_DESCRIBED)
     # the notes on the data and the estimation (answers outside a scale, codes read as labels) come under the lines,
     # first, as fit and invariance give them

@@ -8,6 +8,7 @@ them exactly (minimum discrepancy zero) and R has more degrees of freedom.
 from __future__ import annotations
 
 from dataclasses import dataclass, replace
+from enum import Enum
 from typing import Callable
 
 import numpy as np
@@ -118,12 +119,13 @@ class DifferenceTest:
     delta_rmsea: float
     # why the statistic could not be computed ('' when it was): words, or a Note whose option a manuscript leaves out
     not_computed: Text = ""
-    # what the restricted model fixes on the boundary of the general model's space (in words; empty when nothing):
-    # the difference then does not follow the chi-square distribution of ``p_value``
+    # what the restricted model fixes on the boundary of the general model's space (in words; empty when nothing)
     boundary: tuple[str, ...] = ()
-    # p from the 50:50 mixture of chi-square(df - 1) and chi-square(df) when exactly one parameter lies on the
-    # boundary (Self & Liang 1987); NaN otherwise
+    # p from the 50:50 mixture of chi-square(df - 1) and chi-square(df) when the reading is the mixture (one
+    # parameter on the boundary, held inside it by a bound of the general model; Self & Liang 1987); NaN otherwise
     boundary_p_value: float = float("nan")
+    # which p-value reads the test when something lies on the boundary (:class:`BoundaryReading`); None when nothing
+    boundary_reading: BoundaryReading | None = None
     # a scaled difference: the two scaling factors its correction took (the restricted model's, the general
     # model's), the correction c_d, and how they were computed, in words (NaN and '' otherwise)
     scaling_factors: tuple[float, float] = (float("nan"), float("nan"))
@@ -133,35 +135,98 @@ class DifferenceTest:
     # difference'), apart from the reason: a methods paragraph gives the whole reason and leaves the advice out
     advice: str = ""
 
+    @property
+    def read_p_value(self) -> float:
+        """The p-value to read: the 50:50 mixture's where that is the boundary's reading, else ``p_value``."""
+        return self.boundary_p_value if self.boundary_reading is BoundaryReading.MIXTURE else self.p_value
+
     def to_dict(self) -> dict:
         out = clean(dict(self.__dict__))
         out["not_computed"] = str(self.not_computed) or None  # a Note as its reader reads it
         out["scaled_by"] = self.scaled_by or None
+        out["boundary_reading"] = None if self.boundary_reading is None else self.boundary_reading.value
         return out
+
+
+class BoundaryReading(str, Enum):
+    """Which p-value reads a difference test whose restricted model fixes a parameter of the general model on the
+    boundary of its space (the value is the JSON's ``boundary_reading``).
+
+    The 50:50 mixture of chi-square(df - 1) and chi-square(df) (Self & Liang 1987; Stoel, Garre, Dolan & van den
+    Wittenboer 2006) assumes that the general model's estimate is held inside the boundary (constrained estimation).
+    This tool's fits hold nothing there unless the model file bounds it: a factor correlation may go past 1 and a
+    variance below 0 (an improper solution, which the reports name first), and under such unconstrained estimation
+    the difference follows the usual chi-square distribution (Savalei & Kolenikov 2008, Psychological Methods 13,
+    150-170; the reference recalled from memory).  Checked by simulation in
+    tests/workflows/test_boundary_reading_simulated.py: with the merge true in the population the mixture rejected
+    about twice as often as its level, the usual chi-square about at it; with a bound holding the parameter, the
+    reverse."""
+
+    #: one parameter on the boundary, held inside it by a bound of the general model ('bound variance(x) >= 0' for a
+    #: variance the restricted model fixes at 0; a covariance bounded at +/-1 between two variances fixed at 1),
+    #: every parameter identified: the 50:50 mixture (Self & Liang 1987)
+    MIXTURE = "50:50 mixture"
+    #: one parameter on the boundary, not held inside it, every parameter identified: the usual chi-square
+    #: (Savalei & Kolenikov 2008)
+    CHI_SQUARE = "usual chi-square"
+    #: several parameters on the boundary, or loadings the restricted model leaves unidentified (a factor left out,
+    #: fewer factors than an exploratory block): no chi-square reading is exact
+    APPROXIMATE = "approximate"
 
 
 @dataclass(frozen=True)
 class Boundary:
     """What a restricted model fixes on the boundary of the general model's parameter space: factors merged (their
     correlation at 1, a factor covariance matrix of lower rank), a factor left out (its variance at 0), a variance
-    fixed at 0 or a correlation fixed at +/-1.  The chi-square difference then does not follow the usual chi-square
-    distribution (Self & Liang 1987; Stoel, Garre, Dolan & van den Wittenboer 2006).  ``single``: exactly one
-    parameter lies on the boundary and every parameter stays identified, so that the difference follows the 50:50
-    mixture of chi-square(df - 1) and chi-square(df) (Self & Liang 1987; Stram & Lee 1994)."""
+    fixed at 0 or a correlation fixed at +/-1, and which p-value reads the test then (``reading``,
+    :class:`BoundaryReading`; None when nothing lies on the boundary)."""
 
     parts: tuple[str, ...] = ()
-    single: bool = False
+    reading: BoundaryReading | None = None
 
     def __bool__(self) -> bool:
         return bool(self.parts)
 
     def mark(self, test: DifferenceTest) -> DifferenceTest:
-        """``test`` with the boundary said, and the mixture's p-value when it applies."""
+        """``test`` with the boundary and its reading said, and the mixture's p-value when that is the reading."""
         if not self.parts:
             return test
         p = (dist.boundary_mixture_sf(test.chi_square_difference, test.df_difference)
-             if self.single and not test.not_computed and test.df_difference > 0 else float("nan"))
-        return replace(test, boundary=self.parts, boundary_p_value=p)
+             if self.reading is BoundaryReading.MIXTURE and not test.not_computed and test.df_difference > 0
+             else float("nan"))
+        return replace(test, boundary=self.parts, boundary_p_value=p, boundary_reading=self.reading)
+
+
+def _bounded(general_spec: Spec, kind: str, variables: tuple[str, ...], group: str | None) -> list:
+    """The bound statements of the general model on ``kind(variables)`` (kind 'variance' or 'covariance') that
+    apply in ``group``."""
+    key = (kind, tuple(sorted(variables)) if kind == "covariance" else tuple(variables))
+    return [b for b in general_spec.bounds for ref in b.refs
+            if ref.key() == key and (ref.group is None or ref.group == group)]
+
+
+def _variance_held(general_spec: Spec, variable: str, group: str | None) -> bool:
+    """Whether the general model holds the variance of ``variable`` at or above 0 (a bound '>= 0' or higher; a
+    higher one would not nest a restricted model at 0)."""
+    return any(b.lower is not None and b.lower >= 0.0 for b in _bounded(general_spec, "variance", (variable,), group))
+
+
+def _correlation_held(general_spec: Spec, general: FitResult, pair: tuple[str, str], group: str | None,
+                      sign: float) -> bool:
+    """Whether the general model holds the correlation of ``pair`` inside +/-1 (``sign``): both variances fixed
+    (a factor scaled by its variance) and the covariance bounded at or within +/-sqrt(v1 v2)."""
+    fixed = {}
+    for e in general.estimates:
+        if e.group == group and e.kind in ("factor_variance", "residual_variance") and e.variables[0] in pair:
+            fixed[e.variables[0]] = None if e.free else e.estimate
+    if any(fixed.get(v) is None or fixed[v] <= 0 for v in pair):
+        return False
+    edge = float(np.sqrt(fixed[pair[0]] * fixed[pair[1]]))
+    for b in _bounded(general_spec, "covariance", pair, group):
+        limit = b.upper if sign > 0 else b.lower
+        if limit is not None and sign * limit <= edge * (1 + 1e-12):
+            return True
+    return False
 
 
 def _first_order_items(spec: Spec) -> dict[str, frozenset[str]]:
@@ -207,9 +272,14 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
       fewer factors on the block's items (the likelihood-ratio test of the number of factors is not chi-square
       distributed then either; Hayashi, Bentler & Yuan 2007);
     * a variance the restricted model fixes at 0, or a covariance it fixes at a correlation of +/-1, where the
-      general model estimates it (one parameter each; a factor's variance at 0 leaves its loadings unidentified)."""
+      general model estimates it (one parameter each; a factor's variance at 0 leaves its loadings unidentified).
+
+    The reading (:class:`BoundaryReading`): with one parameter on the boundary and every parameter identified, the
+    50:50 mixture where the general model's bound holds that parameter inside the boundary (a variance bounded
+    '>= 0'; the correlation of two factors or of a covariance between two variances fixed at 1, bounded at 1), the
+    usual chi-square elsewhere (unconstrained estimation; Savalei & Kolenikov 2008); no exact reading otherwise."""
     parts: list[str] = []
-    on_boundary, identified = 0, True
+    on_boundary, identified, held = 0, True, 0
     items_r, items_g = _first_order_items(restricted_spec), _first_order_items(general_spec)
     for block in general_spec.exploratory:  # exploratory blocks: their factors all load on every item of the block
         block_items = set(block.item_names)
@@ -246,6 +316,8 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
                 parts.append(f"factors {_listed(merged)} merged into {r} (their correlation"
                              f"{'s' if len(merged) > 2 else ''} fixed at 1)")
                 on_boundary += len(merged) - 1
+                held += len(merged) == 2 and _correlation_held(general_spec, general, (merged[0], merged[1]),
+                                                               general.groups[0].label, 1.0)
     free_in_general = {(e.kind, frozenset(e.variables) if "covariance" in e.kind else e.variables, e.group)
                        for e in general.estimates if e.free}
     for e in restricted.estimates:
@@ -258,11 +330,18 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
                          f"at 0{where}")
             on_boundary += 1
             identified = identified and e.kind == "residual_variance"
+            held += _variance_held(general_spec, e.variables[0], e.group)
         elif e.kind in ("factor_covariance", "residual_covariance") and abs(abs(e.standardized) - 1.0) < 1e-6:
             parts.append(f"the {'residual ' if e.kind == 'residual_covariance' else ''}correlation of "
                          f"{_listed(list(e.variables))} fixed at {'-1' if e.standardized < 0 else '1'}{where}")
             on_boundary += 1
-    return Boundary(tuple(parts), single=identified and on_boundary == 1)
+            held += _correlation_held(general_spec, general, (e.variables[0], e.variables[1]), e.group,
+                                      -1.0 if e.standardized < 0 else 1.0)
+    if not parts:
+        return Boundary()
+    if not identified or on_boundary != 1:
+        return Boundary(tuple(parts), BoundaryReading.APPROXIMATE)
+    return Boundary(tuple(parts), BoundaryReading.MIXTURE if held else BoundaryReading.CHI_SQUARE)
 
 
 def difference_test(restricted: FitResult, general: FitResult, restricted_name: str, general_name: str) -> DifferenceTest:

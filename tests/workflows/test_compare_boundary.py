@@ -1,8 +1,11 @@
 """A restricted model that fixes a parameter of the general one on the boundary of its space (factors merged: their
-correlation at 1; a factor left out or a variance fixed at 0) is found from the two models' structures, said beside
-the test and in the cautions, and, with one parameter on the boundary, given the p-value of the 50:50 mixture of
-chi-square(df - 1) and chi-square(df) (Self & Liang 1987; Stram & Lee 1994; Stoel, Garre, Dolan & van den
-Wittenboer 2006), computed here by scipy."""
+correlation at 1; a factor left out or a variance fixed at 0) is found from the two models' structures and said beside
+the test, with the p-value to read: with one parameter on the boundary and every parameter identified, the usual
+chi-square when the general model's fit does not hold that parameter inside the boundary (unconstrained estimation:
+Savalei & Kolenikov 2008, recalled from memory; checked by simulation in test_boundary_reading_simulated.py), and the
+50:50 mixture of chi-square(df - 1) and chi-square(df) where a bound of the general model holds it there (Self & Liang
+1987; Stram & Lee 1994; Stoel, Garre, Dolan & van den Wittenboer 2006), computed here by scipy; no exact reading
+otherwise, said in the cautions."""
 
 from __future__ import annotations
 
@@ -17,11 +20,14 @@ from cfa_tool.reporting.numbers import missing, p_phrase
 from cfa_tool.reporting.terminal import report_text
 from cfa_tool.reporting.workflow_tables import comparison_report
 from cfa_tool.workflows.compare import compare
+from cfa_tool.workflows.nesting import BoundaryReading
 from tests.conftest import simulate_cfa
 from tests.reporting.test_advice_views import _word_text
 
 TWO = "factor a: y1, y2, y3\nfactor b: y4, y5, y6\n"
 ONE = "factor g: y1, y2, y3, y4, y5, y6\n"
+# the two factors scaled by their variances, their covariance (their correlation) held at or below 1 by a bound
+HELD = TWO + "scale latent by variance\nbound covariance(a, b) <= 1\n"
 
 
 def _rows(correlation: float, seed: int = 20261203, n: int = 400) -> pd.DataFrame:
@@ -36,44 +42,95 @@ def data() -> pd.DataFrame:
     return _rows(0.95)
 
 
-def test_two_factors_merged_into_one_get_the_mixture_p_value(data):
-    comparison = compare([ONE, TWO], data, test="satorra-bentler")
+def _merged(comparison, reading: BoundaryReading) -> list:
+    """The computed tests of a comparison of one factor against two (a and b merged into g), each checked to say the
+    merge and ``reading``, and to have one df."""
     assert comparison.tests
     for t in comparison.tests:
         assert t.boundary == ("factors a and b merged into g (their correlation fixed at 1)",)
-        if t.not_computed:
-            continue
-        assert t.df_difference == 1
+        assert t.boundary_reading is reading
+    computed = [t for t in comparison.tests if not t.not_computed]
+    assert computed and all(t.df_difference == 1 for t in computed)
+    return computed
+
+
+def test_two_factors_merged_into_one_are_read_by_the_usual_chi_square(data):
+    # the two-factor fit holds nothing at or below a correlation of 1, so the difference follows the usual
+    # chi-square (Savalei & Kolenikov 2008): the printed p-value is the reading, unmarked, no mixture given
+    from cfa_tool.reporting.workflow_tables import BOUNDARY_CAUTION, BOUNDARY_UNHELD
+
+    comparison = compare([ONE, TWO], data, test="satorra-bentler")
+    for t in _merged(comparison, BoundaryReading.CHI_SQUARE):
+        assert np.isnan(t.boundary_p_value) and t.read_p_value == t.p_value
+    plain = next(t for t in comparison.tests if not t.not_computed and t.method.value == "likelihood ratio")
+    assert plain.p_value == pytest.approx(stats.chi2.sf(plain.chi_square_difference, 1), rel=1e-8)
+    report = comparison_report(comparison)
+    table = next(t for t in report.tables if t.key.startswith("difference_tests"))
+    assert not any(row[2].endswith("*") for row in table.rows)
+    note = said(table.note)
+    assert BOUNDARY_UNHELD in note and "Savalei & Kolenikov 2008" in note and "50:50 mixture" in note
+    assert note.endswith("Read the p-values as printed.")
+    # no caution of the boundary first: the p-values printed are the reading
+    assert not any("merged into g" in str(line) or BOUNDARY_CAUTION in str(line)
+                   for line in (report.notice.lines if report.notice else ()))
+    out = plain.to_dict()
+    assert out["boundary"] == list(plain.boundary) and out["boundary_p_value"] is None
+    assert out["boundary_reading"] == "usual chi-square"
+    assert table.value_columns[-2:] == ("p, 50:50 mixture", "Reading on the boundary")
+    assert all(row[-1] == "usual chi-square" and row[-2] is None for row in table.values)
+
+
+def test_two_factors_merged_get_the_mixture_where_a_bound_holds_their_correlation(data):
+    # variance scaling and 'bound covariance(a, b) <= 1' hold the correlation inside the boundary: the 50:50 mixture
+    comparison = compare([ONE, HELD], data, test="satorra-bentler")
+    for t in _merged(comparison, BoundaryReading.MIXTURE):
         # Self & Liang (1987): .5 chi2(0) + .5 chi2(1), i.e. half the chi-square(1) tail
         assert t.boundary_p_value == pytest.approx(0.5 * stats.chi2.sf(t.chi_square_difference, 1), rel=1e-10)
-        assert t.boundary_p_value == pytest.approx(t.p_value / 2, rel=1e-10)
+        assert t.boundary_p_value == pytest.approx(t.p_value / 2, rel=1e-10) and t.read_p_value == t.boundary_p_value
     report = comparison_report(comparison)
     table = next(t for t in report.tables if t.key.startswith("difference_tests"))
     assert all(row[2].endswith("*") for row in table.rows if row[2])
     first = comparison.tests[0]
     assert "50:50 mixture" in table.note and "Self & Liang 1987" in table.note
+    assert "which the general model's bound holds inside it" in said(table.note)
     assert f"p {p_phrase(first.boundary_p_value)} for the likelihood ratio" in table.note
-    assert any("merged into g" in str(line) and "Stoel" in str(line) for line in report.notice.lines)
+    several = "p-values, not the printed ones" if len(comparison.tests) > 1 else "p-value, not the printed one"
+    assert any("merged into g" in said(line) and "Stoel" in said(line) and f"50:50 mixture's {several}" in said(line)
+               for line in report.notice.lines)
     out = first.to_dict()
     assert out["boundary"] == list(first.boundary) and out["boundary_p_value"] == pytest.approx(first.boundary_p_value)
+    assert out["boundary_reading"] == "50:50 mixture"
+    assert ("with one parameter on the boundary, held inside it by a bound of Model 2, its p-value from the 50:50 "
+            "mixture of chi-square distributions with 0 and 1 df is p") in " ".join(report.paragraph.split())
 
 
 def test_a_residual_variance_fixed_at_zero_beside_an_interior_constraint(data):
-    # one parameter on the boundary and one inside: .5 chi2(1) + .5 chi2(2) (Self & Liang 1987)
     restricted = TWO + "fix variance(y3) = 0\nequal loading(b, y5), loading(b, y6)\n"
-    comparison = compare([restricted, TWO], data)
-    (t,) = comparison.tests
-    assert t.df_difference == 2 and t.boundary == ("the residual variance of y3 fixed at 0",)
+    (free,) = compare([restricted, TWO], data).tests
+    assert free.df_difference == 2 and free.boundary == ("the residual variance of y3 fixed at 0",)
+    assert free.boundary_reading is BoundaryReading.CHI_SQUARE and np.isnan(free.boundary_p_value)
+    # held at or above 0 by the general model: one parameter on the boundary and one inside, .5 chi2(1) + .5 chi2(2)
+    # (Self & Liang 1987)
+    (t,) = compare([restricted, TWO + "bound variance(y3) >= 0\n"], data).tests
+    assert t.boundary_reading is BoundaryReading.MIXTURE
     expected = 0.5 * stats.chi2.sf(t.chi_square_difference, 1) + 0.5 * stats.chi2.sf(t.chi_square_difference, 2)
     assert t.boundary_p_value == pytest.approx(expected, rel=1e-10)
+    # a bound that lets the variance below 0 holds nothing at the boundary
+    (below,) = compare([restricted, TWO + "bound variance(y3) >= -1\n"], data).tests
+    assert below.boundary_reading is BoundaryReading.CHI_SQUARE
 
 
 def test_a_correlation_fixed_at_one_by_the_model_file(data):
     scaled = "factor a: y1, y2, y3\nfactor b: y4, y5, y6\nscale latent by variance\n"
-    comparison = compare([scaled + "fix covariance(a, b) = 1\n", scaled], data)
-    (t,) = comparison.tests
+    (t,) = compare([scaled + "fix covariance(a, b) = 1\n", scaled], data).tests
     assert t.boundary == ("the correlation of a and b fixed at 1",)
-    assert t.boundary_p_value == pytest.approx(0.5 * stats.chi2.sf(t.chi_square_difference, 1), rel=1e-10)
+    assert t.boundary_reading is BoundaryReading.CHI_SQUARE and np.isnan(t.boundary_p_value)
+    (held,) = compare([scaled + "fix covariance(a, b) = 1\n", scaled + "bound covariance(a, b) <= 1\n"], data).tests
+    assert held.boundary_reading is BoundaryReading.MIXTURE
+    assert held.boundary_p_value == pytest.approx(0.5 * stats.chi2.sf(held.chi_square_difference, 1), rel=1e-10)
+    # under marker scaling a covariance bounded at 1 is no correlation held at 1 (the variances are free)
+    marker = compare([ONE, TWO + "bound covariance(a, b) <= 1\n"], data).tests
+    assert all(x.boundary_reading is BoundaryReading.CHI_SQUARE for x in marker)
 
 
 def test_a_factor_left_out_is_said_without_a_mixture(data):
@@ -83,7 +140,7 @@ def test_a_factor_left_out_is_said_without_a_mixture(data):
     comparison = compare([TWO, general], data)
     (t,) = comparison.tests
     assert t.boundary == ("factor m left out (its variance fixed at 0)",)
-    assert np.isnan(t.boundary_p_value)
+    assert np.isnan(t.boundary_p_value) and t.boundary_reading is BoundaryReading.APPROXIMATE
     table = next(x for x in comparison_report(comparison).tables if x.key.startswith("difference_tests"))
     assert "no exact p-value" in table.note
 
@@ -91,7 +148,8 @@ def test_a_factor_left_out_is_said_without_a_mixture(data):
 def test_interior_constraints_are_not_on_the_boundary(data):
     comparison = compare([TWO + "equal loading(a, y2), loading(a, y3)\n", TWO], data)
     (t,) = comparison.tests
-    assert t.boundary == () and np.isnan(t.boundary_p_value)
+    assert t.boundary == () and np.isnan(t.boundary_p_value) and t.boundary_reading is None
+    assert t.to_dict()["boundary_reading"] is None
     report = comparison_report(comparison)
     # no caution of a boundary; the factors' correlation near 1 (population .95) is said, as fit says it (s23)
     assert report.notice is not None and all("correlate" in str(line) and "nearly 1" in str(line)
@@ -105,7 +163,11 @@ def test_ordinal_comparisons_say_it_too(data):
     comparison = compare([ONE, TWO], cut, ordinal="all")
     (t,) = comparison.tests
     assert t.boundary == ("factors a and b merged into g (their correlation fixed at 1)",)
-    assert t.boundary_p_value == pytest.approx(0.5 * stats.chi2.sf(t.chi_square_difference, 1), rel=1e-10)
+    # least squares holds the correlation no more than maximum likelihood does: the adjusted difference as printed
+    assert t.boundary_reading is BoundaryReading.CHI_SQUARE and np.isnan(t.boundary_p_value)
+    report = comparison_report(comparison)
+    deciding = next(n for n in report.notes if str(n).startswith("Deciding between nested models"))
+    assert "rough" not in deciding
 
 
 def test_fewer_factors_than_an_exploratory_block_is_said_without_a_mixture():
@@ -115,7 +177,7 @@ def test_fewer_factors_than_an_exploratory_block_is_said_without_a_mixture():
     comparison = compare([ONE, "exploratory factors f1, f2 from y1..y6\n"], data)
     (t,) = comparison.tests
     assert t.boundary == ("1 factor of the exploratory block of f1 and f2 left out (its loadings at 0)",)
-    assert np.isnan(t.boundary_p_value)
+    assert np.isnan(t.boundary_p_value) and t.boundary_reading is BoundaryReading.APPROXIMATE
     # the same number of factors, confirmatory against exploratory: nothing on the boundary
     (same,) = compare([TWO, "exploratory factors f1, f2 from y1..y6\n"], data).tests
     assert same.boundary == ()
@@ -139,10 +201,10 @@ def test_factors_merged_under_a_higher_order_factor_put_their_disturbances_on_th
     for t in against_second:
         assert t.boundary == ("factors c and d merged into cd (their correlation fixed at 1: in the general model, "
                               "the disturbance variances of c and d at 0)",)
-        assert np.isnan(t.boundary_p_value)
+        assert np.isnan(t.boundary_p_value) and t.boundary_reading is BoundaryReading.APPROXIMATE
     against_first = [t for t in comparison.tests if t.general == comparison.names[2] and t.restricted ==
                      comparison.names[0] and not t.not_computed]
-    assert against_first and all(np.isfinite(t.boundary_p_value) for t in against_first)
+    assert against_first and all(t.boundary_reading is BoundaryReading.CHI_SQUARE for t in against_first)
     # the change-in-fit guides were set for invariance steps: for rival structures the changes are descriptions
     report = comparison_report(comparison)
     assert any("describe the difference only" in n for n in report.notes)
@@ -153,11 +215,11 @@ def test_factors_merged_under_a_higher_order_factor_put_their_disturbances_on_th
 
 def test_the_note_under_the_table_counts_the_p_values_it_names(data):
     # new-user trial 7, U15: 'read those, not the p-values marked *' when the table's only p was the marked one
-    single = compare([ONE, TWO], data)
+    single = compare([ONE, HELD], data)
     table = next(t for t in comparison_report(single).tables if t.key.startswith("difference_tests"))
     assert sum(bool(row[2]) for row in table.rows) == 1
     assert table.note.endswith(": read that, not the p-value marked *.")
-    several = compare([ONE, TWO], data, test="satorra-bentler")
+    several = compare([ONE, HELD], data, test="satorra-bentler")
     table = next(t for t in comparison_report(several).tables if t.key.startswith("difference_tests"))
     shown = sum(bool(row[2]) for row in table.rows)
     marked = sum(not missing(t.boundary_p_value) for t in several.tests)
@@ -215,7 +277,7 @@ def test_ordinal_models_that_differ_only_by_a_bound_are_said_to_be_so_as_continu
     (pair,) = result.not_nested
     text = " ".join(pair.reason.split())
     which = "first" if bounded_first else "second"
-    assert (f"the two models differ only by a bound, which holds the loading of y2 on a" in text
+    assert ("the two models differ only by a bound, which holds the loading of y2 on a" in text
             and f"at its bound in the {which} model: the {which} is a restricted form of the other under an "
                 f"inequality restriction" in text)
     assert "neither is a restricted form" not in text
@@ -226,13 +288,20 @@ def test_ordinal_models_that_differ_only_by_a_bound_are_said_to_be_so_as_continu
 
 def test_the_boundary_is_explained_once_under_several_tables(data):
     # new-user trial: five one-row difference-test tables each repeated the same five-line note on the boundary
-    from cfa_tool.reporting.workflow_tables import BOUNDARY_CAUTION
+    # (the general models hold the factors' correlation at 1 by a bound: the 50:50 mixture, or no exact reading)
+    from cfa_tool.reporting.workflow_tables import BOUNDARY_CAUTION, BOUNDARY_UNHELD
 
-    general = TWO + "factor m: y2, y3, y5, y6\nmethod m\nuncorrelated m, a\nuncorrelated m, b\nscale m by variance\n"
-    comparison = compare([ONE, TWO, general], data)
+    method = "factor m: y2, y3, y5, y6\nmethod m\nuncorrelated m, a\nuncorrelated m, b\nscale m by variance\n"
+    comparison = compare([ONE, HELD, HELD + method], data)
     report = comparison_report(comparison)
     tables = [t for t in report.tables if t.key.startswith("difference_tests")]
     assert len(tables) == 3 and all(t.note for t in tables)
+    assert [t.boundary_reading for t in comparison.tests] == [BoundaryReading.MIXTURE] + [BoundaryReading.APPROXIMATE] * 2
+    # the usual chi-square's why is another, said once too, under the first table of its own reading
+    unheld = [t for t in comparison_report(compare([ONE, TWO, TWO + method], data)).tables
+              if t.key.startswith("difference_tests")]
+    assert [BOUNDARY_UNHELD in said(t.note) for t in unheld] == [True, False, False]
+    assert [BOUNDARY_CAUTION in said(t.note) for t in unheld] == [False, True, False]
     explained = [t for t in tables if BOUNDARY_CAUTION in said(t.note)]
     assert explained == tables[:1]  # the why, once, under the first table
     # the later notes refer to that table by its key, and each view names it as it names its tables: the Word file
