@@ -42,8 +42,8 @@ from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_f
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DOMINANT_SHARE, DOMINANT_TIMES, DesignColumns, apply_design, check_design,
                                          design_columns, design_summary, design_weights, few_clusters_advice)
-from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, NotGiven, holds_summary, pasted_matrix, read_summary_file,
-                                         summary_in_other_text, summary_moments)
+from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, NotGiven, by_variable, holds_summary, pasted_matrix,
+                                         read_summary_file, summary_in_other_text, summary_moments)
 from cfa_tool import options as opt
 from cfa_tool.note_parts import Command, Note, RowId, Text, joined
 from cfa_tool.options import Option, option_in_both, own_keywords
@@ -2436,6 +2436,7 @@ def _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor):
         raise OptionError("the covariance matrix holds complex numbers; it must hold real numbers")
     if divisor not in ("n-1", "n"):
         raise OptionError(f"divisor must be 'n-1' or 'n', not '{divisor}'")
+    sds, means = by_variable(sds, names, "the standard deviations (sds)"), by_variable(means, names, "the means")
     return summary_moments(names, values, n_obs, matrix, sds, means, divisor, "<covariance matrix>")
 
 
