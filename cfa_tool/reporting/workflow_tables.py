@@ -1428,10 +1428,12 @@ def power_report(result) -> Report:
             ["RMSEA under the alternative", short(result.rmsea_alternative), result.rmsea_alternative],
             ["Degrees of freedom", str(result.df), result.df],
             ["Significance level", short(result.alpha), result.alpha]]
+    effective = getattr(result, "effective_n", None)  # N / design effect of a planned cluster sample (Kish 1965)
     if result.power is not None:
-        rows.append([f"Power with N = {count_text(result.n_obs)}", unit(result.power), result.power])
-    rows.append([f"Smallest N for power {unit(result.target_power, needed_decimals(result.target_power, fewest=2))}", str(result.required_n), result.required_n])
+        rows.append([f"Power with N = {count_text(result.n_obs)}" + (" rows of the cluster sample" if effective else ""),
+                     unit(result.power), result.power])
     planned = getattr(result, "clusters", None)  # a planned cluster sample (workflows.power.cluster_plan)
+    rows.append([f"Smallest N{' of independent rows' if planned is not None else ''} for power {unit(result.target_power, needed_decimals(result.target_power, fewest=2))}", str(result.required_n), result.required_n])
     if planned is not None:
         if planned.intraclass is not None:
             rows.append(["Intraclass correlation (given)", short(planned.intraclass), planned.intraclass])
@@ -1439,6 +1441,9 @@ def power_report(result) -> Report:
             rows.append(["Rows per cluster (given)", user_number(planned.cluster_size), planned.cluster_size])
         rows.append(["Design effect" + (" (1 + (m - 1) ICC, Kish 1965)" if planned.intraclass is not None
                                         else " (given)"), num(planned.design_effect, 2), planned.design_effect])
+        if effective is not None:
+            rows.append([f"Independent rows N = {count_text(result.n_obs)} is worth (N / design effect, Kish 1965)",
+                         num(effective, 1), effective])
         rows.append(["Rows needed in the cluster sample", count_text(planned.rows), planned.rows])
         if planned.clusters is not None:
             size = planned.cluster_size
@@ -1495,7 +1500,8 @@ def power_assumptions() -> Note:
             "intraclass correlation and the rows per cluster; given here",
             Command(f" ({Option.DESIGN_EFFECT.given('D')}, or {Option.INTRACLASS.given('ICC')} with "
                     f"{Option.CLUSTER_SIZE.given('M')})", " as the plan's design effect"),
-            ", the table gives the rows and clusters needed). For answers on a few categories (4-point items, say), power-simulation "
+            ", the table gives the rows and clusters needed, and the power at an N given is that of the independent rows it "
+            "is worth). For answers on a few categories (4-point items, say), power-simulation "
             "simulates ordinal answers, cut from normal latent responses at the thresholds of an earlier ordinal fit",
             Command(f" ({Option.POPULATION_FROM.given('fit.json')})"), " or into equally likely categories",
             Command(f" ({Option.CATEGORIES.given(4)})"), ", and fits them as an ordinal fit does; it simulates no "
