@@ -144,10 +144,14 @@ def missing_codes_option(codes) -> tuple[float, ...]:
 def of_summary_statistics(result, moments, notes) -> object:
     """A fit of summary statistics with what every view says of them: the reading notes first among the warnings,
     the matrix analysed and what the file did not give (means, standard deviations: without means the keyed sums'
-    means are unknown too)."""
+    means are unknown too, without standard deviations their standard deviations)."""
     groups = result.groups
     if NotGiven.MEANS in moments.not_given:  # no means: the keyed sums' means are not known either
         groups = tuple(replace(g, reliability=tuple(replace(r, sum_score_mean=None) for r in g.reliability))
+                       for g in groups)
+    if NotGiven.STANDARD_DEVIATIONS in moments.not_given:  # correlations alone: a sum of standardized items' SD is
+        # no sum of the answers' (hostile tester s24), so the sums' SDs are not known either
+        groups = tuple(replace(g, reliability=tuple(replace(r, sum_score_sd=None) for r in g.reliability))
                        for g in groups)
     return replace(result, warnings=tuple(notes) + result.warnings, groups=groups,
                    data=replace(result.data, not_given=moments.not_given, analysed=moments.analysed))
