@@ -1719,7 +1719,7 @@ def _worded_lines(simulated) -> list[Text]:
     """Which simulated items were written as the words of the model's 'answers' statements, and how."""
     from cfa_tool.data.answer_words import coding_described
     from cfa_tool.errors import printable
-    from cfa_tool.workflows.simulation import written_answers
+    from cfa_tool.workflows.simulation import scale_answers, written_answers
 
     worded = getattr(simulated, "worded", ())
     spec = simulated.population.spec
@@ -1742,6 +1742,20 @@ def _worded_lines(simulated) -> list[Text]:
                          f"first with that code ({', '.join(printable(w) if w is not None else f'{user_number(n)}' for w, n, _ in written)})"))
         lines.append(f"{which} " + said + f" (the latent responses {how}), so the file reads back with the same model "
                                           f"file.")
+    scaled = getattr(simulated, "scaled", ())
+    on_scale = scale_answers(spec) if scaled else {}  # item -> (its answers, the 'reversed' statement)
+    for keying in spec.reversed:
+        items = [x for x in scaled if on_scale[x][1] is keying]
+        if not items:
+            continue
+        low, high = user_number(keying.minimum), user_number(keying.maximum)
+        lines.append(Note((f"{len(items)} item{'s' if len(items) > 1 else ''} ({names_text(items)}) "
+                           f"{'are' if len(items) > 1 else 'is'} written as "
+                           f"whole answers {low} to {high}, the scale",
+                           Command(f" of the 'reversed' statement on line {keying.location.line}",
+                                   " the model declares for its reverse-keyed items"),
+                           " (the latent responses cut into equally likely categories), so the file reads back with "
+                           "the same model file.")))
     return lines
 
 
