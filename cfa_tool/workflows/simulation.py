@@ -23,7 +23,7 @@ from enum import Enum
 import numpy as np
 import pandas as pd
 from cfa_tool.numbers import rounded_number, user_number
-from cfa_tool.model.parameters import one_group_only
+from cfa_tool.model.parameters import no_mean_statements, one_group_only
 from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.numerics import distributions as dist
 
@@ -365,9 +365,11 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
     from cfa_tool.data.moments import SampleMoments
     from cfa_tool.pipeline.continuous import FitOptions, estimate
 
+    one_group_only(spec, "the simulation draws rows of one group")
+    no_mean_statements(spec, "the simulation draws rows of items about means of 0 (or an earlier fit's), and its "
+                             "model has no intercepts or factor means")
     if fitted is not None:
         return _population_from_fit(spec, fitted)
-    one_group_only(spec, "the simulation draws rows of one group")
     _no_factor_without_variance(spec)
     table = build_parameter_table(spec)
     model = StructuredModel(table)
