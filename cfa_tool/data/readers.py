@@ -2143,39 +2143,6 @@ def _marker_totals(marked) -> dict[str, int]:
     return {m: sum(counted.get(m, 0) for counted in marked) for m in MISSING_MARKERS}
 
 
-def frame_markers_read(frame: pd.DataFrame, where: str) -> tuple[pd.DataFrame, str | None]:
-    """A data frame's text cells that hold a marker of no answer (MISSING_MARKERS: '.', 'nan', 'NA', ...; Stata and
-    SAS exports, pandas' astype(str) of a gap) read as empty, with the note a file's reader writes and the record
-    it keeps (:data:`MARKED`, :data:`MARKER_CELLS`): the one rule of files and frames (hostile tester s24: the cells
-    a CSV file reads as no answer were refused from a data frame).  The caller's frame is never changed."""
-    marked: dict[str, dict[str, int]] = {}  # column -> {marker: cells}
-    marker_rows: dict[str, list] = {}  # marker -> the row (index label) of each such cell
-    for position, dtype in enumerate(column_dtypes(frame)):
-        if not (dtype.kind == "O" and isinstance(dtype, (np.dtype, pd.StringDtype))):
-            continue
-        cells = frame.iloc[:, position].to_numpy(dtype=object, na_value=None)
-        try:
-            distinct = set(cells.tolist())
-        except TypeError:  # unhashable cells (lists in an object column) are no text
-            continue
-        if not any(isinstance(v, str) and v.strip() in _MARKER_SET for v in distinct):
-            continue
-        counted: dict[str, int] = {}
-        for label, v in zip(frame.index, cells):
-            if isinstance(v, str) and v.strip() in _MARKER_SET:
-                counted[v.strip()] = counted.get(v.strip(), 0) + 1
-                marker_rows.setdefault(v.strip(), []).append(label)
-        marked[frame.columns[position]] = counted
-    if not marked:
-        return frame, None
-    said = _say_markers(_marker_totals(marked.values()), where, [])
-    out = blank_text_as_missing(frame, markers=MISSING_MARKERS)
-    out = out.copy(deep=False) if out is frame else out
-    out.attrs = {**out.attrs, MARKED: marked,
-                 **({MARKER_CELLS: (said, {m: np.asarray(rows) for m, rows in marker_rows.items()})} if said else {})}
-    return out, said
-
-
 def _say_markers(found: dict[str, int], where, notes: list[str] | None) -> str | None:
     """The note naming how many cells of each marker of no answer were read as empty (data.kept_counts.markers_note),
     added to ``notes`` and returned (None when none)."""

@@ -36,7 +36,7 @@ from cfa_tool.data.descriptives import AnswerExtremes, few_category_items, few_c
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.notes_rows import drop_notes_lines
-from cfa_tool.data.readers import (LoadedData, blank_text_as_missing, drop_blank_rows, frame_markers_read,
+from cfa_tool.data.readers import (LoadedData, blank_text_as_missing, drop_blank_rows,
                                    first_data_option, read_data, with_no_answers_read)
 from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame, renamed_hint
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
@@ -184,7 +184,6 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             raise OptionError(f"a first row of data ({first_data_option(names_option)}) is read from a file, and the "
                               f"data are a data frame, whose rows are all data; leave it out")
         frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
-        frame, markers = frame_markers_read(frame, DATA_FRAME)  # and '.', 'nan', 'NA', with a note, as a file's are
         # column names in Unicode's composed form, as a file's are read (names.composed: a column named with
         # decomposed accents is the model's name written composed; diagram-s22: "did you mean" the same name)
         names = [composed(c) if isinstance(c, str) else c for c in frame.columns]
@@ -194,8 +193,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         frame, notes_lines = drop_notes_lines(frame, DATA_FRAME)  # the readers' rules: notes lines under the data,
         frame, blank = drop_blank_rows(frame, DATA_FRAME)  # then blank rows
         blank = notes_lines + blank
-        renamed = ((rename_note(renames, DATA_FRAME, rename_option),) if renames else ()) + (
-            (markers,) if markers else ())
+        renamed = (rename_note(renames, DATA_FRAME, rename_option),) if renames else ()
         by_position = row_naming(frame) is RowNaming.POSITION  # indexed by position: the caller's labels kept
         return with_no_answers_read(LoadedData(frame, DATA_FRAME, notes=renamed + blank, renamed=renames,
                                                frame_index=data.index if by_position else None),

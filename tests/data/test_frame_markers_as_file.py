@@ -1,6 +1,7 @@
 """A data frame's text cells that hold a marker of no answer ('.', 'nan': Stata and SAS exports, pandas' astype(str)
-of a gap) are read as no answer with the note a CSV file of the same cells gets, where the frame was refused as
-holding text among numbers (hostile tester s24; docs/python.md promises the same checks from Python).  Check values:
+of a gap) are read as no answer, as a CSV file of the same cells is, with the note of text that says no answer in a data frame
+(data.non_answers.NON_ANSWER_MARKS), where the frame was refused as holding text among numbers (hostile tester s24;
+docs/python.md promises the same checks from Python).  Check values:
 the frame and the file of the same cells give the same rows and chi-square, the file's reading being the reference."""
 
 from __future__ import annotations
@@ -29,15 +30,10 @@ def test_frame_reads_markers_as_the_file_does(tmp_path):
     from_frame = cfa_tool.fit(MODEL, data)
     assert from_frame.data.n_obs == from_file.data.n_obs
     assert from_frame.fit.chi_square == pytest.approx(from_file.fit.chi_square, rel=1e-10)
-    said = [w for w in from_frame.warnings if "were read as no answer" in w]
-    assert said == ["<data frame>: cells written as 'nan' (1 cell), '.' (1 cell) were read as no answer"]
-    assert any(str(w).endswith("marked.csv" + said[0].removeprefix("<data frame>")) for w in from_file.warnings)
-    assert data.loc[3, "clean"] == "." and data.loc[4, "clean"] == "nan" and not data.attrs  # the caller's frame
-
-
-def test_the_note_counts_the_rows_a_filter_keeps():
-    data = _marked()
-    kept = cfa_tool.fit(MODEL, data, keep=["district = north"])
-    assert data.loc[3, "district"] == "north" and data.loc[4, "district"] != "north"
-    assert "<data frame>: cells written as '.' (1 cell) of the 250 rows that the row filters kept were read as no " \
-           "answer" in kept.warnings
+    said = [str(w) for w in from_frame.warnings if "says no answer" in str(w)]
+    assert said == ["2 cells of the items in the data frame hold text that says no answer, read as missing, not as "
+                    "answers: '.' (1 cell: clean 1); 'nan' (1 cell: clean 1). To analyse one as an answer, write the "
+                    "answer's number in the cell, in a copy of the data frame"]
+    assert any("cells written as 'nan' (1 cell), '.' (1 cell) were read as no answer" in str(w)
+               for w in from_file.warnings)
+    assert data.loc[3, "clean"] == "." and data.loc[4, "clean"] == "nan"  # the caller's frame as it was
