@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from cfa_tool.numbers import more_words, names_shown, user_number
+from cfa_tool.numbers import count_text, more_words, names_shown, user_number
 from cfa_tool.suggest import LOOK_ALIKE, close_names, look_alike
 from cfa_tool.errors import DataError, ModelError, OptionError, character_names, printable
 from cfa_tool.note_parts import Command, Note
@@ -135,6 +135,12 @@ def _spaces_only(name: str, guess: str) -> str:
     return " (the two differ only in their spaces, which look alike when printed: copy the column's name exactly)"
 
 
+#: an item with more distinct values than this outside a declared scale (or with more than OTHER_SCALE_SHARE of its
+#: answers outside it, not all of them labelled or code-like, as a standardized item's) is not answered on that
+#: scale (a wrong 'on MIN to MAX', or a measure rather than answers on a scale), and its values are not offered as
+#: codes for no answer: the project's own rule (hostile tester s24: 331 values of a 0-100 slider were advised as --missing-codes)
+CODES_AT_MOST = 5
+
 #: a partner item (not named in the 'reversed' statement) with more than this share of its answers outside the
 #: statement's scale is read as answered on another scale (named in a note), not as holding stray values (refused);
 #: the project's own rule: typing errors and codes for no answer are a few cells, another scale's answers many
@@ -224,7 +230,11 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
             labels = {}
             for a in coding.answers:
                 labels[a.code] = labels[a.code] + " / " + a.shown if a.code in labels else a.shown
-        for v in sorted(set(values[outside].tolist())):
+        distinct = sorted(set(values[outside].tolist()))
+        if coding is None and (len(distinct) > CODES_AT_MOST or not few and not all(
+                labels.get(v) or code_like(v) for v in distinct)):  # too many values, or many cells of non-codes
+            _refuse_off_scale(spec, keying, name, named, values, outside, distinct, data_name)
+        for v in distinct:
             found.setdefault(keying, []).append((name, v, rows[values == v], labels.get(v)))
     if found:
         _summary_row_first(frame, spec, data_source, {int(r) for stray in found.values() for *_, where, _ in stray
@@ -258,6 +268,30 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
             location,
             spec.source_line(location),
         )
+
+
+def _refuse_off_scale(spec: Spec, keying, name: str, named: bool, values, outside, distinct: list[float],
+                      data_name: str) -> None:
+    """The refusal of an item with more than CODES_AT_MOST distinct values outside the scale a 'reversed' statement
+    declares, or many cells outside it that are neither labelled nor code-like: too many to be typing errors or codes for no answer, so the statement's scale is wrong for it or it is
+    not answered on a scale; one short line naming the item and the range of its values, no list of them."""
+    import numpy as np
+
+    answered = int(np.isfinite(values).sum())
+    lowest, highest = float(np.nanmin(values)), float(np.nanmax(values))
+    scale = f"{user_number(keying.minimum)} to {user_number(keying.maximum)}"
+    whose = ("" if named else f" (the scale of its factor's reversed items, which '{printable(name)}' is read as "
+                              f"answered on too)")
+    remedy = ("or leave it out of this statement if it is a measure rather than answers on a scale" if named else
+              "or check the scale its factor's other items share")
+    location = next((i.location for i in keying.items if i.text == name), keying.items[0].location)
+    raise ModelError(
+        f"{data_name}: '{printable(name)}' is not answered on the scale {scale} declared here{whose}: "
+        f"{count_text(len(distinct))} different values lie outside it, in {count_text(int(outside.sum()))} of its "
+        f"{count_text(answered)} answers "
+        f"(its values run from {user_number(lowest)} to {user_number(highest)}), too many to be typing errors or "
+        f"codes for no answer; give here the scale it is answered on, {remedy}",
+        location, spec.source_line(location))
 
 
 def _summary_row_first(frame, spec: Spec, data_source: str, strays: set[int]) -> None:

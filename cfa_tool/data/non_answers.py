@@ -15,8 +15,9 @@ The words are the project's own list of the phrases survey files commonly use fo
 of survey data management, not a published standard); a label counts when, in lower case and with punctuation
 and extra spaces ignored, it is one of the phrases or several joined by '/', ',', ';', '&' or 'or' ("don't know / refused").
 A run adds its own words (those a researcher gives with --missing-codes, such as 'Ne sait pas': :func:`also_no_answer`),
-read and named exactly as the listed ones.  Two marks are compared as written, not as words: '#NULL!' (what a
-statistics package writes into a spreadsheet for a system-missing value) and a lone '-'.
+read and named exactly as the listed ones.  Some marks are compared as written, not as words: '#NULL!' (what a
+statistics package writes into a spreadsheet for a system-missing value), a lone '-', and '.' and 'nan' (a Stata or
+SAS export's gap, pandas' text of one).
 """
 
 from __future__ import annotations
@@ -65,8 +66,11 @@ SHOWN = 6  # columns a caution names before 'and N more'
 
 #: cells that say no answer by a mark, not a word (compared as written, spaces at the ends aside): '#NULL!', which a
 #: statistics package writes into a spreadsheet export for a system-missing value (as text: a workbook's error cell
-#: of it is a failed formula, refused by data.readers.TYPED_ERRORS), and a lone dash
-NON_ANSWER_MARKS = frozenset({"#NULL!", "-"})
+#: of it is a failed formula, refused by data.readers.TYPED_ERRORS), a lone dash, and the markers of an empty cell
+#: that are no words: '.' (Stata and SAS exports) and 'nan' (pandas' astype(str) of a gap), which a file's reader
+#: reads as empty (data.readers.MISSING_MARKERS) and a data frame's cells therefore too (hostile tester s24: refused
+#: from a frame as text among numbers)
+NON_ANSWER_MARKS = frozenset({"#NULL!", "-", ".", "nan", "NaN"})
 
 
 def _plain(text: str) -> str:

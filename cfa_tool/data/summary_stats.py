@@ -34,7 +34,7 @@ from cfa_tool.data.moments import LARGEST_VALUE, SMALLEST_SPREAD, SampleMoments,
 from cfa_tool import options as check
 from cfa_tool.errors import DataError, clipped, printable
 from cfa_tool.input_files import DATA_FRAME, hidden_line_break, input_text, normalise_line_ends, text_lines, utf16_text
-from cfa_tool.numbers import number, user_number
+from cfa_tool.numbers import cut_list, number, user_number
 from cfa_tool.options import MAX_OBSERVATIONS
 
 
@@ -264,6 +264,36 @@ def _number_array(values, source: str, what: str) -> np.ndarray:
     except (TypeError, ValueError, OverflowError):
         raise DataError(f"{source}: {what} must hold numbers only") from None
     return array
+
+
+def by_variable(values, names: list[str], what: str):
+    """``values`` (standard deviations or means given beside a matrix) in the order of the matrix's ``names``: a
+    pandas Series with labels other than its default 0, 1, ... or a mapping is read by its labels, which must be
+    the matrix's variables, each once (a Series sorted or built from another source is otherwise read in the wrong
+    order without a sign: hostile tester s24); a plain list or array is read by position, as given."""
+    if isinstance(values, pd.Series) and not isinstance(values.index, pd.RangeIndex):
+        labels = [str(k) for k in values.index]
+        read = values.to_numpy()
+    elif isinstance(values, dict):
+        labels = [str(k) for k in values]
+        read = list(values.values())
+    else:
+        return values
+    doubled = sorted({k for k in labels if labels.count(k) > 1})
+    unknown = [k for k in labels if k not in names]
+    missing = [k for k in names if k not in labels]
+    if doubled or unknown or missing:
+        quoted = lambda k: f"'{printable(k)}'"  # noqa: E731
+        found = "; ".join(part for part in (
+            f"{cut_list(doubled, 5, quoted)} twice" if doubled else "",
+            f"{cut_list(unknown, 5, quoted)}, not {'a variable' if len(unknown) == 1 else 'variables'} of the matrix"
+            if unknown else "",
+            f"none for {cut_list(missing, 5, quoted)}" if missing else "") if part)
+        raise DataError(f"{what} are labelled by variable, and their labels do not match the matrix's variables "
+                        f"({found}); label each of the matrix's variables once, or give a plain list in the matrix's "
+                        f"order")
+    place = {k: i for i, k in enumerate(labels)}
+    return [read[place[k]] for k in names]
 
 
 def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str = "covariance",

@@ -1132,6 +1132,16 @@ def one_group_only(spec: Spec, what: str) -> None:
                           f"(fit, invariance and align take a group column)", where)
 
 
+def no_mean_statements(spec: Spec, what: str) -> None:
+    """A model with statements on intercepts or factor means cannot be used by a command that has no mean structure
+    and no option to give it one (simulation, RMSEA power): an error at the statement that says so, without the
+    fit's advice of groups or full-information ML, options these commands do not have (hostile tester s24)."""
+    refs = [r for r in all_refs(spec) if r.kind in ("intercept", "mean")]
+    if refs:
+        raise _fail(spec, f"{refs[0]}: {what}, so a statement on intercepts or factor means cannot apply; remove it "
+                          f"for this command (a fit estimates them with groups or by full-information ML)", refs[0])
+
+
 def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, means: bool) -> None:
     refs = [r for r in all_refs(spec) if r.group is not None]
     mean_refs = [r for r in all_refs(spec) if r.kind in ("intercept", "mean")]

@@ -42,8 +42,8 @@ from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_f
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DOMINANT_SHARE, DOMINANT_TIMES, DesignColumns, apply_design, check_design,
                                          design_columns, design_summary, design_weights, few_clusters_advice)
-from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, NotGiven, holds_summary, pasted_matrix, read_summary_file,
-                                         summary_in_other_text, summary_moments)
+from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, NotGiven, by_variable, holds_summary, pasted_matrix,
+                                         read_summary_file, summary_in_other_text, summary_moments)
 from cfa_tool import options as opt
 from cfa_tool.note_parts import Command, Note, RowId, Text, joined
 from cfa_tool.options import Option, option_in_both, own_keywords
@@ -144,10 +144,14 @@ def missing_codes_option(codes) -> tuple[float, ...]:
 def of_summary_statistics(result, moments, notes) -> object:
     """A fit of summary statistics with what every view says of them: the reading notes first among the warnings,
     the matrix analysed and what the file did not give (means, standard deviations: without means the keyed sums'
-    means are unknown too)."""
+    means are unknown too, without standard deviations their standard deviations)."""
     groups = result.groups
     if NotGiven.MEANS in moments.not_given:  # no means: the keyed sums' means are not known either
         groups = tuple(replace(g, reliability=tuple(replace(r, sum_score_mean=None) for r in g.reliability))
+                       for g in groups)
+    if NotGiven.STANDARD_DEVIATIONS in moments.not_given:  # correlations alone: a sum of standardized items' SD is
+        # no sum of the answers' (hostile tester s24), so the sums' SDs are not known either
+        groups = tuple(replace(g, reliability=tuple(replace(r, sum_score_sd=None) for r in g.reliability))
                        for g in groups)
     return replace(result, warnings=tuple(notes) + result.warnings, groups=groups,
                    data=replace(result.data, not_given=moments.not_given, analysed=moments.analysed))
@@ -2490,6 +2494,7 @@ def _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor):
         raise OptionError("the covariance matrix holds complex numbers; it must hold real numbers")
     if divisor not in ("n-1", "n"):
         raise OptionError(f"divisor must be 'n-1' or 'n', not '{divisor}'")
+    sds, means = by_variable(sds, names, "the standard deviations (sds)"), by_variable(means, names, "the means")
     return summary_moments(names, values, n_obs, matrix, sds, means, divisor, "<covariance matrix>")
 
 

@@ -1000,12 +1000,14 @@ def _matrix_sentence(result, subject: str = "The model was") -> str:
     if analysed is None:
         return ""
     text = (f"{subject} fitted to summary statistics, not to rows of answers: {analysed.value}"
-            + ("" if NotGiven.MEANS in result.data.not_given else ", with the items' means")
             + f", and N = {count_text(result.n_obs)} as given in the file")
     if analysed is AnalysedMatrix.CORRELATION:
         text += ("; the correlations were analysed as if they were covariances, so the unstandardized estimates are in "
                  "standard-deviation units and their standard errors are only approximate (Cudeck, 1989), while the "
                  "standardized solution and the fit are unaffected")
+    if NotGiven.MEANS not in result.data.not_given:  # given beside the matrix, never fitted (hostile tester s24)
+        text += (". The items' means given with the matrix were not fitted (the model has no means); they give only "
+                 "the means of the keyed sum scores")
     return text + "."
 
 

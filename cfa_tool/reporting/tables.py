@@ -1251,17 +1251,21 @@ def _sums_across_groups(result, rows) -> str:
 
 
 def sum_score_table(result, group: int = 0) -> ReportTable | None:
-    rows = [r for r in result.groups[group].reliability if r.sum_score_sd is not None]
+    no_means = any(g.value == "means" for g in result.data.not_given)  # summary statistics without means
+    no_sds = any(g.value == "standard_deviations" for g in result.data.not_given)  # correlations without SDs
+    rows = [r for r in result.groups[group].reliability
+            if r.sum_score_sd is not None or no_sds and r.level == "first-order"]
     if not rows:
         return None
-    no_means = any(g.value == "means" for g in result.data.not_given)  # summary statistics without means
     body = [[r.factor, str(len(r.items)), ", ".join(r.reversed), "not given" if no_means else est_num(r.sum_score_mean, 2),
-             est_num(r.sum_score_sd, 2), unit(min(r.item_total), 2) if r.item_total else ""] for r in rows]
+             "not given" if no_sds else est_num(r.sum_score_sd, 2), unit(min(r.item_total), 2) if r.item_total else ""]
+            for r in rows]
     note = (f"The sum of each factor's items with reverse-keyed items reversed. Mean, SD (divisor N - 1) and "
             f"item-rest r come from the item means and covariances the fit analysed: {moments_source(result, group)}.")
-    if no_means:
-        note += " The file gives no means, so the sums' means are not shown."
-    elif any(r.sum_score_mean is None for r in rows):
+    if no_means or no_sds:
+        note += (f" The file gives no {' or '.join(w for w, none in (('means', no_means), ('standard deviations', no_sds)) if none)}, "
+                 f"so the sums' {' and '.join(w for w, none in (('means', no_means), ('SDs', no_sds)) if none)} are not shown.")
+    if not no_means and any(r.sum_score_mean is None for r in rows):
         note += Note((" A mean is shown once the answer scale of the reversed items is known: declare it in the model",
                       Command(" with 'reversed ITEMS on LOWEST to HIGHEST'"), "."))
     if result.multigroup:

@@ -1550,10 +1550,13 @@ def power_report(result) -> Report:
             ["RMSEA under the alternative", short(result.rmsea_alternative), result.rmsea_alternative],
             ["Degrees of freedom", str(result.df), result.df],
             ["Significance level", short(result.alpha), result.alpha]]
+    effective = getattr(result, "effective_n", None)  # N / design effect of a planned cluster sample (Kish 1965)
     if result.power is not None:
-        rows.append([f"Power with N = {count_text(result.n_obs)}", unit(result.power), result.power])
-    rows.append([f"Smallest N for power {unit(result.target_power, needed_decimals(result.target_power, fewest=2))}", str(result.required_n), result.required_n])
-    rows += _cluster_rows(getattr(result, "clusters", None))
+        rows.append([f"Power with N = {count_text(result.n_obs)}" + (" rows of the cluster sample" if effective else ""),
+                     unit(result.power), result.power])
+    planned = getattr(result, "clusters", None)  # a planned cluster sample (workflows.power.cluster_plan)
+    rows.append([f"Smallest N{' of independent rows' if planned is not None else ''} for power {unit(result.target_power, needed_decimals(result.target_power, fewest=2))}", str(result.required_n), result.required_n])
+    rows += _cluster_rows(planned, effective, result.n_obs)
     table = _table("power", "Power and sample size", [("", "l"), ("Value", "r")], [r[:2] for r in rows],
                    f"Note: {result.note}." if result.note else None,
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
@@ -1567,9 +1570,10 @@ def power_report(result) -> Report:
 POWER_CAUTION = "Check before planning with this sample size"
 
 
-def _cluster_rows(planned) -> list[list]:
+def _cluster_rows(planned, effective: float | None = None, n_obs: int | None = None) -> list[list]:
     """The rows of a power plan's table for a planned cluster sample (workflows.power.cluster_plan; none without
-    one): (label, shown, value) each."""
+    one): (label, shown, value) each; ``effective``: what the N = ``n_obs`` rows of that sample are worth as
+    independent rows (N / design effect, Kish 1965), the N the power at N was computed for."""
     if planned is None:
         return []
     rows = []
@@ -1579,6 +1583,9 @@ def _cluster_rows(planned) -> list[list]:
         rows.append(["Rows per cluster (given)", user_number(planned.cluster_size), planned.cluster_size])
     rows.append(["Design effect" + (" (1 + (m - 1) ICC, Kish 1965)" if planned.intraclass is not None
                                     else " (given)"), num(planned.design_effect, 2), planned.design_effect])
+    if effective is not None:
+        rows.append([f"Independent rows N = {count_text(n_obs)} is worth (N / design effect, Kish 1965)",
+                     num(effective, 1), effective])
     rows.append(["Rows needed in the cluster sample", count_text(planned.rows), planned.rows])
     if planned.clusters is not None:
         size = planned.cluster_size
@@ -1679,7 +1686,8 @@ def power_assumptions() -> Note:
             "intraclass correlation and the rows per cluster; given here",
             Command(f" ({Option.DESIGN_EFFECT.given('D')}, or {Option.INTRACLASS.given('ICC')} with "
                     f"{Option.CLUSTER_SIZE.given('M')})", " as the plan's design effect"),
-            ", the table gives the rows and clusters needed). For answers on a few categories (4-point items, say), power-simulation "
+            ", the table gives the rows and clusters needed, and the power at an N given is that of the independent rows it "
+            "is worth). For answers on a few categories (4-point items, say), power-simulation "
             "simulates ordinal answers, cut from normal latent responses at the thresholds of an earlier ordinal fit",
             Command(f" ({Option.POPULATION_FROM.given('fit.json')})"), " or into equally likely categories",
             Command(f" ({Option.CATEGORIES.given(4)})"), ", and fits them as an ordinal fit does; it simulates no "
@@ -1904,7 +1912,7 @@ def _worded_lines(simulated) -> list[Text]:
     """Which simulated items were written as the words of the model's 'answers' statements, and how."""
     from cfa_tool.data.answer_words import coding_described
     from cfa_tool.errors import printable
-    from cfa_tool.workflows.simulation import written_answers
+    from cfa_tool.workflows.simulation import scale_answers, written_answers
 
     worded = getattr(simulated, "worded", ())
     spec = simulated.population.spec
@@ -1927,6 +1935,20 @@ def _worded_lines(simulated) -> list[Text]:
                          f"first with that code ({', '.join(printable(w) if w is not None else f'{user_number(n)}' for w, n, _ in written)})"))
         lines.append(f"{which} " + said + f" (the latent responses {how}), so the file reads back with the same model "
                                           f"file.")
+    scaled = getattr(simulated, "scaled", ())
+    on_scale = scale_answers(spec) if scaled else {}  # item -> (its answers, the 'reversed' statement)
+    for keying in spec.reversed:
+        items = [x for x in scaled if on_scale[x][1] is keying]
+        if not items:
+            continue
+        low, high = user_number(keying.minimum), user_number(keying.maximum)
+        lines.append(Note((f"{len(items)} item{'s' if len(items) > 1 else ''} ({names_text(items)}) "
+                           f"{'are' if len(items) > 1 else 'is'} written as "
+                           f"whole answers {low} to {high}, the scale",
+                           Command(f" of the 'reversed' statement on line {keying.location.line}",
+                                   " the model declares for its reverse-keyed items"),
+                           " (the latent responses cut into equally likely categories), so the file reads back with "
+                           "the same model file.")))
     return lines
 
 

@@ -50,6 +50,10 @@ class PowerResult(Presentable):
     #: a planned cluster sample (:class:`ClusterPlan`): the rows and clusters the smallest N needs under its design
     #: effect; None without one
     clusters: ClusterPlan | None = None
+    #: with a planned cluster sample and an N asked about: the independent rows that N is worth, N / design effect
+    #: (Kish 1965), at which ``power`` is computed; None otherwise (hostile tester s24: the power of N independent
+    #: rows was shown beside the design)
+    effective_n: float | None = None
 
     def to_dict(self) -> dict:
         return asdict(self)
@@ -107,7 +111,8 @@ def cluster_plan(required_n: int, design_effect: float | None = None, cluster_si
     return ClusterPlan(deff, rows, size, rho, ceil(rows / size - 1e-9) if size is not None else None)
 
 
-def rmsea_power(df: int, n_obs: int, rmsea_null: float, rmsea_alt: float, alpha: float = 0.05) -> float:
+def rmsea_power(df: int, n_obs: float, rmsea_null: float, rmsea_alt: float, alpha: float = 0.05) -> float:
+    """The power at ``n_obs`` rows (an effective N, which need not be whole, for a cluster sample)."""
     if df < 1 or n_obs < 2:
         raise OptionError("power needs at least 1 degree of freedom and 2 observations")
     n = n_obs - 1
@@ -143,10 +148,12 @@ def model_degrees_of_freedom(spec: Spec) -> tuple[int, int]:
     p(p + 1)/2 - q (Joreskog 1969).  With ordinal items a statement on a residual variance is an error at its line,
     as the ordinal fit would refuse it (:func:`cfa_tool.pipeline.ordinal.refuse_set_residual_variances`): a fixed
     one would add a degree of freedom to a model that is never fitted."""
-    from cfa_tool.model.parameters import build_parameter_table, one_group_only
+    from cfa_tool.model.parameters import build_parameter_table, no_mean_statements, one_group_only
     from cfa_tool.pipeline.ordinal import refuse_set_residual_variances
 
     one_group_only(spec, "the power of the RMSEA test is computed for one group's model")
+    no_mean_statements(spec, "the RMSEA test planned here is of the covariance structure, which has no intercepts "
+                             "or factor means")
     if spec.ordinal:
         refuse_set_residual_variances(spec)
     table = build_parameter_table(spec)
@@ -164,7 +171,9 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
     nothing of how precisely the model's parameters are estimated (new-user trial s17: N = 96 for 46 parameters).
     ``ordinal``: the model declares ordinal items (the report then says the plan is for the normal-theory test).
     ``design_effect``, or ``intraclass`` with ``cluster_size``: a planned cluster sample, whose rows and clusters
-    the plan gives (:func:`cluster_plan`; new-user trial s20: how many schools?)."""
+    the plan gives (:func:`cluster_plan`; new-user trial s20: how many schools?), and the power at ``n_obs`` rows of
+    that sample is that of the N / design effect independent rows they are worth (Kish 1965's effective sample size,
+    recalled from memory)."""
     if test not in TESTS:
         raise OptionError(f"test must be one of {', '.join(TESTS)}, not '{clipped(test, 40)}'")
     df = check.whole_number("the degrees of freedom", df, 1, 10**7)
@@ -193,7 +202,16 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
         free = variables * (variables + 1) // 2 - df
         below = tuple(facts for n in dict.fromkeys((required, n_obs)) if n is not None
                       for facts in rows_per_parameter((n,), (free,)))
+    effective = None
     if clusters is not None:  # the plan's N is the design's, not that of independent rows
         clusters = cluster_plan(required, design_effect, cluster_size, intraclass)
+        if n_obs is not None:  # so is the N asked about: its power is that of the independent rows it is worth
+            effective = n_obs / clusters.design_effect
+            if effective < 2:
+                raise OptionError(f"N = {n_obs} rows of a cluster sample with a design effect of "
+                                  f"{user_number(round(clusters.design_effect, 4))} are worth about "
+                                  f"{user_number(round(effective, 2))} independent rows, too few for a test of fit; "
+                                  f"give a larger N")
+            power = rmsea_power(df, effective, eps0, epsa, alpha)
     return PowerResult(test, df, eps0, epsa, alpha, n_obs, power, required, target_power, note, ordinal, below,
-                       clusters)
+                       clusters, effective)

@@ -23,7 +23,7 @@ from enum import Enum
 import numpy as np
 import pandas as pd
 from cfa_tool.numbers import rounded_number, user_number
-from cfa_tool.model.parameters import one_group_only
+from cfa_tool.model.parameters import no_mean_statements, one_group_only
 from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.numerics import distributions as dist
 
@@ -385,9 +385,11 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
     from cfa_tool.data.moments import SampleMoments
     from cfa_tool.pipeline.continuous import FitOptions, estimate
 
+    one_group_only(spec, "the simulation draws rows of one group")
+    no_mean_statements(spec, "the simulation draws rows of items about means of 0 (or an earlier fit's), and its "
+                             "model has no intercepts or factor means")
     if fitted is not None:
         return _population_from_fit(spec, fitted)
-    one_group_only(spec, "the simulation draws rows of one group")
     _no_factor_without_variance(spec)
     table = build_parameter_table(spec)
     model = StructuredModel(table)
@@ -592,6 +594,30 @@ def answer_categories(spec: Spec) -> dict[str, tuple[float, ...]]:
     return {x: c.codes() for x, c in spec.answer_codings().items()}
 
 
+def scale_answers(spec: Spec) -> dict[str, tuple[tuple[float, ...], object]]:
+    """Each item a 'reversed ... on MIN to MAX' statement puts on a scale (its own items and their factor's other
+    items, by the one rule of data.matching.declared_scales) -> (its answers MIN, MIN + 1, ..., MAX, the statement):
+    simulate writes such an item as whole answers on that scale, cut as an 'answers' statement's (hostile tester s24:
+    continuous values around 0, which the same model file then refused as outside the scale).  A scale whose ends
+    are not whole numbers, or of more answers than a category count may have, is an error at the statement."""
+    if not spec.reversed:
+        return {}
+    from cfa_tool.data.matching import declared_scales
+
+    out = {}
+    for x, (low, high, keying, _) in declared_scales(spec, pd.DataFrame(columns=list(spec.observed_names))).items():
+        count = high - low + 1
+        if not (float(low).is_integer() and float(high).is_integer()) or count > check.MAX_CATEGORIES:
+            raise ModelError(f"simulated answers of '{printable(x)}' would be whole answers on the scale "
+                             f"{user_number(low)} to {user_number(high)} this statement declares, which "
+                             + ("does not run between whole numbers" if count <= check.MAX_CATEGORIES else
+                                f"has more than {check.MAX_CATEGORIES} answers")
+                             + "; remove the statement from a copy of the model file to simulate continuous values",
+                             keying.location, spec.source_line(keying.location))
+        out[x] = (tuple(float(v) for v in np.arange(low, high + 1)), keying)
+    return out
+
+
 def written_answers(coding) -> tuple[tuple[str | None, float | None, float], ...]:
     """How simulate writes the categories of an 'answers' statement (``coding``): each code, lowest first, as the
     answer the statement lists first with that code, a word or a number, as (word, number, code) triples; the file
@@ -635,6 +661,7 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
 
     declared = [x.text for x in spec.ordinal]
     coded = answer_categories(spec)
+    scaled = {x: codes for x, codes in scale_answers(spec).items() if x not in coded}
     thresholds = dict(population.thresholds or {})
     if population.thresholds is not None:
         if categories is not None:
@@ -655,7 +682,7 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
         cut = set(thresholds)
     else:
         if categories is None:
-            lacking = [x for x in declared if x not in coded]
+            lacking = [x for x in declared if x not in coded and x not in scaled]
             if lacking:
                 raise OptionError(f"the model declares ordinal items ({', '.join(lacking[:5])}); give the number of "
                                   f"categories to cut them into ({check.Option.CATEGORIES})")
@@ -668,8 +695,29 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
                                                  f"codes for it; leave {check.Option.CATEGORIES} out (the statement gives the "
                                                  f"categories) or make them agree")
                 thresholds[x] = equal_thresholds(len(coded[x]))
+            elif x in cut and x in scaled and categories is not None and len(scaled[x][0]) != categories:
+                keying = scaled[x][1]
+                raise ModelError(f"{check.Option.CATEGORIES.given(categories)} cuts '{printable(x)}' into {categories} "
+                                 f"categories, and this statement declares its scale {user_number(keying.minimum)} to "
+                                 f"{user_number(keying.maximum)}, {len(scaled[x][0])} answers; leave "
+                                 f"{check.Option.CATEGORIES} out (the scale gives the categories) or make them agree",
+                                 keying.location, spec.source_line(keying.location))
+            elif x in cut and x in scaled:
+                thresholds[x] = equal_thresholds(len(scaled[x][0]))
             elif x in cut:
                 thresholds[x] = equal_thresholds(categories)
+    for x, (codes, keying) in scaled.items():  # continuous values are no answers on the statement's scale
+        if x in cut:
+            continue
+        if command != "simulate":
+            raise ModelError(f"this statement puts the answers of '{printable(x)}' on the scale "
+                             f"{user_number(keying.minimum)} to {user_number(keying.maximum)}, and {command} "
+                             f"simulates continuous values for the items the model does not declare ordinal; declare "
+                             f"them ordinal (an 'ordinal' statement, or {check.Option.CATEGORIES.given(len(codes))}) "
+                             f"to simulate answers on the scale, or remove the statement from a copy of the model "
+                             f"file for the power of continuous answers",
+                             keying.location, spec.source_line(keying.location))
+        thresholds[x] = equal_thresholds(len(codes))  # simulate writes answers on the scale
     for x, codes in coded.items():
         if x in cut:
             continue
@@ -733,6 +781,9 @@ class SimulatedData(Presentable):
     missing: float
     #: the items written as the words of the model's 'answers' statements (their answer categories)
     worded: tuple[str, ...] = ()
+    #: the items written as whole answers on the scale a 'reversed ... on MIN to MAX' statement declares
+    #: (:func:`scale_answers`)
+    scaled: tuple[str, ...] = ()
 
     def to_dict(self) -> dict:
         from cfa_tool.data.answer_words import coding_json, coding_record
@@ -776,6 +827,11 @@ def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing
     worded = tuple(x for x in population.observed if x in spec.answer_codings())
     # the earlier fit's own answer codes (written_as_words writes the worded items' categories as the statement's)
     own = {x: c for x, c in (population.answer_codes or {}).items() if x not in worded}
+    scaled = []
+    for x, (codes, _) in scale_answers(spec).items():  # answers on a 'reversed' statement's scale, as MIN to MAX
+        if x in cut and x not in worded and x not in own and len(population.thresholds[x]) + 1 == len(codes):
+            own[x] = codes
+            scaled.append(x)
     if cut:
         rows = cut_at_thresholds(rows, population.sigma, population.observed, population.thresholds, own)
     if missing:
@@ -785,4 +841,5 @@ def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing
         frame = frame.astype({x: "Int64" for x in cut if all(float(c).is_integer() for c in own.get(x, (1.0,)))})
     if worded:  # the model's 'answers' statements: the words, as the data the model reads hold them
         frame = written_as_words(frame, spec, population.observed)
-    return SimulatedData(frame, population, seed, categories, missing, worded)
+    return SimulatedData(frame, population, seed, categories, missing, worded,
+                         tuple(x for x in population.observed if x in scaled))

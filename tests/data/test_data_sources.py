@@ -320,6 +320,29 @@ def test_correlation_matrix_without_sds_is_fitted_with_a_note(hs_items, hs_three
     assert [r.estimate for r in with_sd.estimates] == pytest.approx([r.estimate for r in hs_three.estimates], rel=1e-6)
 
 
+def test_labelled_sds_and_means_are_read_by_their_labels(hs_items, hs_three):
+    # hostile tester s24: a pandas Series of sds or means in another order than the matrix (sorted, or built from
+    # another source) was read by position, giving other loadings without a sign; labelled values are read by
+    # label, and the fit equals the raw data's (Holzinger & Swineford 1939 rows, the matrix's own moments)
+    corr = hs_items[ITEMS].corr()
+    sds, means = hs_items[ITEMS].std(), hs_items[ITEMS].mean()
+    result = cfa_tool.fit(THREE_FACTORS, covariance=corr, n_obs=301, matrix="correlation", sds=sds[::-1],
+                          means=means.sample(frac=1.0, random_state=1))
+    assert [r.estimate for r in result.estimates] == pytest.approx([r.estimate for r in hs_three.estimates], rel=1e-6)
+    assert list(result.data.means) == pytest.approx(list(means.to_numpy()), rel=1e-12)
+    as_dict = cfa_tool.fit(THREE_FACTORS, covariance=corr, n_obs=301, matrix="correlation",
+                           sds=dict(reversed(list(sds.items()))))
+    assert [r.estimate for r in as_dict.estimates] == pytest.approx([r.estimate for r in hs_three.estimates], rel=1e-6)
+    # a plain array stays positional: reversed values are other sds, so other loadings
+    plain = cfa_tool.fit(THREE_FACTORS, covariance=corr, n_obs=301, matrix="correlation", sds=sds.to_numpy()[::-1])
+    assert plain.estimates[1].estimate != pytest.approx(hs_three.estimates[1].estimate, rel=1e-3)
+    with pytest.raises(DataError, match=r"'a', 'b', 'c'.*not variables of the matrix; none for 'x1'"):
+        cfa_tool.fit(THREE_FACTORS, covariance=corr, n_obs=301, matrix="correlation",
+                     sds=pd.Series(sds.to_numpy(), index=list("abcdefghi")))
+    with pytest.raises(DataError, match=r"the means are labelled by variable.*none for 'x9'"):
+        cfa_tool.fit(THREE_FACTORS, covariance=corr, n_obs=301, matrix="correlation", means=means[:8])
+
+
 @pytest.mark.parametrize(
     "content, words",
     [

@@ -56,3 +56,34 @@ def test_compare_checks_every_models_declared_scale():
     for models in ([MODEL, narrow], [narrow, MODEL]):
         with pytest.raises(ModelError, match="holds answers outside the scale 1 to 4 declared here: 'short_wait' 5"):
             cfa_tool.compare(models, data)
+
+
+def test_an_item_not_on_the_declared_scale_is_named_without_a_list_of_codes():
+    # a 0-100 slider (or a standardized item) under 'reversed clean on 1 to 5': the refusal advised every distinct
+    # value outside 1 to 5 as --missing-codes (331 values on one line; following it deletes nearly every answer;
+    # hostile tester s24); it names the item as not answered on that scale in one short line instead
+    import numpy as np
+    import pandas as pd
+    import pytest
+
+    from cfa_tool.errors import ModelError
+
+    data = pd.read_csv(resource_dir("demo") / "rider_survey.csv")
+    rng = np.random.default_rng(1)
+    slider = data.copy()
+    slider["clean"] = np.round((data["clean"] - 1) * 25 + rng.uniform(-10, 10, len(data)), 1).clip(0, 100)
+    standardized = data.copy()
+    standardized["clean"] = (data["clean"] - data["clean"].mean()) / data["clean"].std()
+    for frame in (slider, standardized):
+        with pytest.raises(ModelError) as caught:
+            cfa_tool.fit(MODEL + "reversed clean on 1 to 5\n", frame)
+        message = str(caught.value)
+        assert "'clean' is not answered on the scale 1 to 5 declared here" in message
+        assert "missing-codes" not in message and "missing_codes" not in message and len(message) < 600
+    # a few codes are still offered as codes: two values outside the scale, each a code for no answer
+    coded = data.copy()
+    coded.loc[[3, 50], "clean"] = -9
+    coded.loc[[7], "clean"] = 99
+    with pytest.raises(ModelError, match=r"holds answers outside the scale 1 to 5 declared here: 'clean' -9 .*"
+                                         r"missing_codes=\[-9, 99\]"):
+        cfa_tool.fit(MODEL + "reversed clean on 1 to 5\n", coded)

@@ -58,3 +58,24 @@ def test_what_needs_rows_is_named_and_no_mean_is_made_up():
     table = T.sum_score_table(matrix)
     assert all(row[3] == "not given" for row in table.rows) and "gives no means" in str(table.note)
     assert "summary statistics given (N = 301)" in str(table.note)
+
+
+def test_a_correlation_matrix_without_sds_gives_no_sum_sd():
+    # the SD of a sum of standardized items is no sum of the answers' SD (hostile tester s24: 2.27 printed where the
+    # raw sums' SD is 2.63): 'not given' in every view, as the mean is; with the SDs the sum's SD is the raw sum's
+    import json
+
+    from cfa_tool.reporting.json_report import to_json
+
+    data = holzinger_swineford()[ITEMS]
+    corr = data.corr()
+    without = cfa_tool.fit(THREE_FACTORS, covariance=corr, n_obs=len(data), matrix="correlation")
+    assert all(r.sum_score_sd is None for r in without.groups[0].reliability)
+    table = T.sum_score_table(without)
+    assert len(table.rows) == 3 and all(row[3] == row[4] == "not given" for row in table.rows)
+    assert "gives no means or standard deviations, so the sums' means and SDs are not shown" in str(table.note)
+    assert all(f["sum_score_sd"] is None for f in json.loads(to_json(without))["reliability"]["factors"])
+    with_sds = cfa_tool.fit(THREE_FACTORS, covariance=corr, n_obs=len(data), matrix="correlation", sds=data.std())
+    visual = next(r for r in with_sds.groups[0].reliability if r.factor == "visual")
+    # pandas' SD (divisor N - 1) of the raw sum x1 + x2 + x3 of the Holzinger & Swineford (1939) rows
+    assert np.isclose(visual.sum_score_sd, data[["x1", "x2", "x3"]].sum(axis=1).std(), rtol=1e-6)

@@ -43,8 +43,11 @@ def model(tmp_path):
 
 
 @pytest.mark.parametrize("rows, said", [
+    # the means given are not fitted (the fit is the same without them), so they are not among what was fitted
+    # (hostile tester s24: "..., with the items' means, and N = 301")
     (SDS + MEANS, "fitted to summary statistics, not to rows of answers: a correlation matrix and standard deviations "
-                  "(covariances rebuilt from them), with the items' means, and N = 301 as given in the file."),
+                  "(covariances rebuilt from them), and N = 301 as given in the file. The items' means given with the "
+                  "matrix were not fitted (the model has no means); they give only the means of the keyed sum scores."),
     ("", "fitted to summary statistics, not to rows of answers: a correlation matrix without standard deviations, "
          "and N = 301 as given in the file; the correlations were analysed as if they were covariances, so the "
          "unstandardized estimates are in standard-deviation units and their standard errors are only approximate"),
