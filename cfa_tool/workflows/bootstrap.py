@@ -374,6 +374,8 @@ def theta_derivatives(function, theta: np.ndarray) -> np.ndarray:
     """The derivatives of a vector ``function`` of theta in each parameter by central differences (steps 1e-6 of
     each parameter's size, at least 1e-6): (outputs, q)."""
     step = 1e-6 * np.maximum(1.0, np.abs(theta))
+    if not len(theta):  # every parameter fixed: no derivatives, but their shape (outputs, 0) for the products after
+        return np.zeros((len(function(theta)), 0))
     columns = []
     for k in range(len(theta)):
         up, down = theta.copy(), theta.copy()
