@@ -82,11 +82,14 @@ def input_bytes(path: str | Path, what: str, error: type[UserInputError], limit:
         raise error(f"{what} '{shown_path(path)}' holds more than {limit:,} bytes; a {what} is at most {limit:,} bytes")
     kind = document_kind(data)
     if kind is not None:  # read as text, its markup gave a parse error about a '{' or a byte 0x85 (hostile s24)
-        if "workbook" in kind or "spreadsheet" in kind:
+        if what == "data file" and ("workbook" in kind or "spreadsheet" in kind):
             advice = "give it a name with the workbook's own ending (.xlsx, .ods), which is read as a workbook"
+        elif what == "data file":
+            advice = "save the table as a CSV file and give that file"
+        elif what == "result file":  # (hostile s24b: a Word report told to be saved as text)
+            advice = "give the JSON file a run wrote with --json"
         else:
-            advice = ("save it as plain text (UTF-8, .txt) and give that file" if what != "data file" else
-                      "save the table as a CSV file and give that file")
+            advice = "write it as plain text in a text editor, save it as UTF-8 (.txt), and give that file"
         raise error(f"{what} '{shown_path(path)}' is {kind}, not plain text: {advice}")
     return data
 

@@ -39,10 +39,12 @@ def fixed_through_equality_notes(table: ParameterTable) -> tuple[str, ...]:
         group = table.groups[tie.group] if table.multigroup else None
         held = parameter_words(tie.kind, tie.variables, group, table.observed, groups=table.groups)
         fixed = parameter_words(tie.fixed_kind, tie.fixed_variables, group, table.observed, groups=table.groups)
-        why = ("the marker that sets its factor's scale" if tie.sets_scale else "by a 'fix' statement")
+        why = (("the marker that sets its factor's scale" if tie.kind == "loading" else
+                "fixed to set its factor's scale") if tie.sets_scale else "by a 'fix' statement")
         note = (f"An 'equal' statement holds {held} equal to {fixed}, which is fixed at {user_number(tie.value)} "
                 f"({why}): so {held} is fixed at {user_number(tie.value)} too, not estimated.")
         own = [par.variables[1] for par in table.parameters if par.origin == "scale" and par.kind == "loading"
+               and not par.free  # (effects coding marks a free loading 'scale': no marker; hostile s24b)
                and par.group == tie.group and tie.kind == "loading" and par.variables[0] == tie.variables[0]]
         if tie.sets_scale and own:  # a factor scaled twice: a restriction the model file may not have meant
             note += (f" '{tie.variables[0]}' also takes its scale from its own marker ({own[0]}), so two of its "

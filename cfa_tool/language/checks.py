@@ -459,6 +459,10 @@ def _check_contradictions(spec: Spec) -> None:
             if ref.kind == "variance" and bound.upper is not None and bound.upper < 0:
                 raise _fail(spec, f"{ref} is bounded to at most {user_number(bound.upper)}, but a variance cannot be negative",
                             ref.location)
+            if key in lower and key in upper and lower[key][0] == upper[key][0]:  # hostile s24b: fitted as free
+                raise _fail(spec, f"the bounds on {ref} leave it one value, {user_number(lower[key][0])}, so they fix "
+                                  f"it: write 'fix {ref} = {user_number(lower[key][0])}' instead of the two bounds",
+                            ref.location)
             if key in lower and key in upper and lower[key][0] > upper[key][0]:
                 raise _fail(spec, f"the bounds on {ref} leave no room: at least {user_number(lower[key][0])} and at most "
                                   f"{user_number(upper[key][0])}", ref.location)

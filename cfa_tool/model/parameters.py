@@ -342,7 +342,14 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
 
     # an entry an 'equal' statement holds equal to one a 'fix' statement fixes is fixed by the user as much as that
     # one: a loading so fixed sets its factor's scale as a 'fix' on it would (none is added), or, at 0, sets none
-    reached = _reached_by_fixes(spec, fixed_by, entries, groups_of)
+    # a factor scaled by its variance (one group) has that variance fixed at 1 as surely as a 'fix' would: an
+    # 'equal' that holds another factor's variance to it scales that factor too (hostile s24b: it kept its marker)
+    scale_ones = {} if multi else {
+        (0, "variance", (f.name.text,)): 1.0 for f in spec.factors if spec.scaling_of(f.name.text) == "variance"
+        and entries[(0, "variance", (f.name.text,))]["origin"] != "user"
+        and not any(entries[(0, "loading", (f.name.text, i.text))]["origin"] == "user"
+                    and entries[(0, "loading", (f.name.text, i.text))]["fixed"] not in (None, 0.0) for i in f.indicators)}
+    reached = _reached_by_fixes(spec, fixed_by, entries, groups_of, scale_ones)
 
     # ---- the automatic scale of each factor in each group
     reverse_keyed = keyed_pairs(spec)
@@ -590,7 +597,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                     lower[k], set_by[(k, "lower")] = bound.lower, ref
                 if bound.upper is not None and bound.upper < upper[k]:
                     upper[k], set_by[(k, "upper")] = bound.upper, ref
-                if lower[k] > upper[k]:  # bounds on parameters held equal (one free parameter) that leave no room
+                if lower[k] >= upper[k]:  # bounds on parameters held equal (one free parameter) that leave no room
                     low, high = set_by[(k, "lower")], set_by[(k, "upper")]
                     raise _fail(spec, f"the bounds leave no room: {low} is bounded to at least "
                                       f"{user_number(lower[k])} and {high} to at most {user_number(upper[k])}, and "
@@ -745,9 +752,11 @@ def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by
     return f"fixed at {user_number(value)}"  # pragma: no cover - every fixed entry has one of the reasons above
 
 
-def _reached_by_fixes(spec: Spec, fixed_by: dict, entries: dict, groups_of) -> dict[tuple, float]:
+def _reached_by_fixes(spec: Spec, fixed_by: dict, entries: dict, groups_of,
+                      scale_ones: dict | None = None) -> dict[tuple, float]:
     """The entries that 'equal' statements hold equal, within a group and through any chain of them, to an entry a
-    'fix' statement fixes, each with that value (before the automatic scales are added: see build_parameter_table)."""
+    'fix' statement fixes, or to a factor's variance its variance scaling fixes at 1 (``scale_ones``), each with that
+    value (before the automatic scales are added: see build_parameter_table)."""
     parent: dict[tuple, tuple] = {}
 
     def find(k: tuple) -> tuple:
@@ -763,8 +772,10 @@ def _reached_by_fixes(spec: Spec, fixed_by: dict, entries: dict, groups_of) -> d
                 if other != first:
                     parent[other] = first
     value_of = {find(k): entries[k]["fixed"] for k in fixed_by if entries[k]["fixed"] is not None}
+    for k, value in (scale_ones or {}).items():
+        value_of.setdefault(find(k), value)
     return {k: value_of[find(k)] for k in parent.keys() | set(parent.values())
-            if find(k) in value_of and k not in fixed_by}
+            if find(k) in value_of and k not in fixed_by and k not in (scale_ones or {})}
 
 
 def _tied_fixes_differ(spec: Spec, keys: tuple[tuple, tuple], entries: dict, group_labels) -> ModelError:

@@ -176,6 +176,7 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
     recalled from memory)."""
     if test not in TESTS:
         raise OptionError(f"test must be one of {', '.join(TESTS)}, not '{clipped(test, 40)}'")
+    ordinal = check.yes_or_no("ordinal", ordinal)  # (hostile s24b: ordinal='no' was read as true)
     df = check.whole_number("the degrees of freedom", df, 1, 10**7)
     if n_obs is not None:
         n_obs = check.observations(n_obs, "the sample size", minimum=2)

@@ -824,9 +824,10 @@ class SplitRows:
         if self.cluster is None:
             return ""
         few = few_clusters_words(self.units, past=True)
+        samples = (", so the halves were independent samples of clusters" if not few else "")  # (else: those clusters)
         return (f"Every row of a cluster was in one half ({self.units[0]} clusters in half A, {self.units[1]} in half "
-                f"B), so the halves were independent samples of clusters; within each half the rows were taken as "
-                f"independent, so the test of one solution is too liberal if rows of one cluster answer alike{few}.")
+                f"B){samples}{few}; within each half the rows were taken as independent, so the test of one solution is "
+                f"too liberal if rows of one cluster answer alike.")
 
     def how_drawn(self) -> str:
         """How the halves were drawn and what that means for rows that come in clusters, in the words of the split
@@ -837,11 +838,12 @@ class SplitRows:
                 words = words.replace("drawn row by row", f"drawn row by row within each stratum of {self.strata}", 1)
             return words
         within = f" within each stratum of {self.strata}" if self.strata is not None else ""
+        few = few_clusters_words(self.units)  # a handful of clusters: the halves are those clusters (hostile s24b)
         return (f"the halves are drawn cluster by cluster{within}: every row of a cluster of {self.cluster} is in one "
-                f"half ({self.units[0]} clusters in half A, {self.units[1]} in half B), so the halves are independent "
-                f"samples of clusters; within each half the fits, the test of one solution and the cross-validation "
-                f"index still take the rows as independent, so the test's p-value comes out too small when rows of one "
-                f"cluster answer alike" + few_clusters_words(self.units))
+                f"half ({self.units[0]} clusters in half A, {self.units[1]} in half B)"
+                + (few if few else ", so the halves are independent samples of clusters")
+                + "; within each half the fits, the test of one solution and the cross-validation index still take the "
+                  "rows as independent, so the test's p-value comes out too small when rows of one cluster answer alike")
 
     #: how random halves are drawn, and what that means for rows that come in clusters (new-user trial s16: halves
     #: split households without a word); the split sentence of the report and the methods paragraph say it

@@ -104,3 +104,27 @@ def test_bounds_on_parameters_held_equal_that_leave_no_room_are_refused(data):
     fine = cfa_tool.fit(TWO + "equal variance(a2), variance(b2)\nbound variance(a2) >= 0.1\n"
                               "bound variance(b2) <= 0.9\n", data)
     assert fine.converged
+
+
+def test_a_variance_held_equal_to_one_its_scaling_fixes_scales_that_factor_too(data):
+    """Hostile tester s24b: 'scale f1 by variance' with f2's variance held equal to f1's fixed f2's variance at 1 and
+    kept f2's marker too (one restriction more than 'fix variance(f1) = 1' gives, the spelling the docs describe)."""
+    by_scale = cfa_tool.fit(TWO + "scale f1 by variance\nequal variance(f1), variance(f2)\n", data)
+    by_fix = cfa_tool.fit(TWO + "fix variance(f1) = 1\nequal variance(f1), variance(f2)\n", data)
+    assert by_scale.fit.df == by_fix.fit.df
+    assert by_scale.fit.chi_square == pytest.approx(by_fix.fit.chi_square, rel=1e-6)
+    [note] = _notes(by_scale)
+    assert "fixed to set its factor's scale" in note and "marker" not in note
+
+
+def test_equal_bounds_are_refused_as_a_fix(data):
+    with pytest.raises(ModelError, match="leave it one value, 0.9, so they fix it: write 'fix variance\\(a2\\) = 0.9'"):
+        cfa_tool.fit(TWO + "bound variance(a2) >= 0.9\nbound variance(a2) <= 0.9\n", data)
+    with pytest.raises(ModelError, match="bounds leave no room"):  # the same through an equality
+        cfa_tool.fit(TWO + "equal variance(a2), variance(b2)\nbound variance(a2) >= 0.5\nbound variance(b2) <= 0.5\n",
+                     data)
+
+
+def test_effects_coding_names_no_marker_it_does_not_have(data):
+    result = cfa_tool.fit(TWO + "scale f2 by effects\nequal loading(f1, a1), loading(f2, b2)\n", data)
+    assert not any("own marker" in note for note in _notes(result))

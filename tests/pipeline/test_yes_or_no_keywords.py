@@ -28,3 +28,8 @@ def test_scores_and_bootstrap_refuse_them_too(hs_data):
         cfa_tool.scores(THREE_FACTORS, hs_data, standard_errors="yes")
     with pytest.raises(OptionError, match="bca must be True or False"):
         cfa_tool.bootstrap(THREE_FACTORS, hs_data, replications=10, bca="no")
+
+
+def test_power_refuses_ordinal_as_a_word():
+    with pytest.raises(OptionError, match="ordinal must be True or False"):
+        cfa_tool.power(24, ordinal="no")
