@@ -455,8 +455,10 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float
     (low, high), _ = shared[0]
     groupings = [(c, float(v[0]), float(v[-1])) for c, v in whole.items() if len(v) <= MAX_CATEGORIES
                  and v[0] > low and 2 * int((v > high).sum()) > len(v)]
+    # two values at the scale's low end or below it, as groups are coded (0 and 1, 1 and 2): an item answered only 4
+    # or 5 of a scale of 1 to 5 is a ceiling, not a code (hostile s24b)
     two_valued = [(c, float(v[0]), float(v[-1])) for c, v in whole.items() if len(v) == 2 and high - low >= 2
-                  and c not in {f[0] for f in groupings}]
+                  and v[-1] <= low + 1 and c not in {f[0] for f in groupings}]
     off_scale = []
     for c, v in distinct.items():
         if len(v) < 2 or c in {f[0] for f in groupings + two_valued}:
@@ -474,7 +476,12 @@ def unlike_the_items(frame: pd.DataFrame, columns, others=(), codes: tuple[float
         related = dict(zip(found, _largest_correlations(answered, found, items)))
         groupings = [f for f in groupings if not related[f[0]] >= RELATED_TO_THE_ITEMS]
         off_scale = [f for f in off_scale if not related[f[0]] >= RELATED_TO_THE_ITEMS]
-        two_valued = [f for f in two_valued if not related[f[0]] >= RELATED_TO_THE_ITEMS]
+        # a two-valued column that goes with another one (a yes/no subscale: its items correlate with each other) is
+        # an item too (hostile s24b: four 0/1 items correlating .46 were left out as group codes)
+        pairs = [f[0] for f in two_valued]
+        among = dict(zip(pairs, (_largest_correlations(answered, [c], [d for d in pairs if d != c])[0] for c in pairs)))
+        two_valued = [f for f in two_valued if not related[f[0]] >= RELATED_TO_THE_ITEMS
+                      and not among[f[0]] >= RELATED_TO_THE_ITEMS]
     return UnlikeTheItems(tuple(groupings), tuple(off_scale), (low, high), tuple(two_valued))
 
 

@@ -78,3 +78,20 @@ def test_an_item_answered_alike_by_98_percent_of_the_rows_is_nearly_constant():
     small = np.full((50, 1), 2.0)
     small[:4, 0] = [1, 3, 1, 3]
     assert [c.others for c in nearly_constant_items(small, ("x",))] == [4]
+
+
+def test_a_yes_no_subscale_and_a_ceiling_item_stay_items(rider_demo):
+    """Hostile tester s24b: four 0/1 items that correlate with each other (a yes/no subscale), and an item of the 1-5
+    scale answered only 4 or 5 (a ceiling), were left out as the codes of two groups."""
+    rng = np.random.default_rng(3)
+    frame = rider_demo.drop(columns=["rider_id", "district"]).copy()
+    f = rng.normal(size=len(frame))
+    for k in range(4):
+        frame[f"b{k + 1}"] = (0.9 * f + rng.normal(size=len(frame)) * 0.6 > 0).astype(int)
+    assert frame[["b1", "b2"]].corr().iloc[0, 1] > 0.3  # pandas: they go together
+    frame["polite_driver"] = np.where(rng.normal(size=len(frame)) > 0.2, 5, 4)
+    result = explore(frame, replications=20)
+    text = " ".join(result.summary().split())
+    assert "b1 (0 and 1)" not in text and "polite_driver (4 and 5)" not in text
+    frame["wave"] = np.where(np.arange(len(frame)) % 2 == 0, 1, 2)  # a wave code still is one
+    assert "wave (1 and 2)" in " ".join(explore(frame, replications=20).summary().split())
