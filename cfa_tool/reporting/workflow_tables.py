@@ -1603,13 +1603,17 @@ def nested_power_report(result) -> Report:
             ["Degrees of freedom of the difference", str(df), df],
             ["Minimum discrepancy of the nested model at the population (F)", num(discrepancy, 4), discrepancy],
             ["Significance level", short(result.alpha), result.alpha]]
+    effective = result.effective_n  # a planned cluster sample: the N asked about is worth N / design effect rows
     if result.power is not None:
-        rows.append([f"Noncentrality with N = {count_text(result.n_obs)} (N F)",
-                     num(nested.noncentrality(result.n_obs), 2), nested.noncentrality(result.n_obs)])
-        rows.append([f"Power with N = {count_text(result.n_obs)}", unit(result.power), result.power])
-    rows.append([f"Smallest N for power {unit(result.target_power, needed_decimals(result.target_power, fewest=2))}",
+        at = effective if effective is not None else result.n_obs
+        rows.append([f"Noncentrality with N = {count_text(result.n_obs)} ({'N' if effective is None else 'N / design effect'} F)",
+                     num(nested.noncentrality(at), 2), nested.noncentrality(at)])
+        rows.append([f"Power with N = {count_text(result.n_obs)}" + (" rows of the cluster sample" if effective else ""),
+                     unit(result.power), result.power])
+    rows.append([f"Smallest N{' of independent rows' if result.clusters is not None else ''} for power "
+                 f"{unit(result.target_power, needed_decimals(result.target_power, fewest=2))}",
                  count_text(result.required_n), result.required_n])
-    rows += _cluster_rows(result.clusters)
+    rows += _cluster_rows(result.clusters, effective, result.n_obs)
     table = _table("power", "Power of the difference test and sample size", [("", "l"), ("Value", "r")],
                    [r[:2] for r in rows], f"Note: {result.note}." if result.note else None,
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))

@@ -72,6 +72,19 @@ class ClusterPlan:
     clusters: int | None = None  # ceil(rows / cluster size)
 
 
+def effective_rows(n_obs: int, clusters) -> float:
+    """What ``n_obs`` rows of a planned cluster sample (``clusters``: :class:`ClusterPlan`) are worth as independent
+    rows, N / design effect (Kish 1965's effective sample size, recalled from memory): the N a power at N is computed
+    for, by every plan (the RMSEA test's and the difference test's); too few for a test (below 2) refused."""
+    effective = n_obs / clusters.design_effect
+    if effective < 2:
+        raise OptionError(f"N = {n_obs} rows of a cluster sample with a design effect of "
+                          f"{user_number(round(clusters.design_effect, 4))} are worth about "
+                          f"{user_number(round(effective, 2))} independent rows, too few for a test of fit; "
+                          f"give a larger N")
+    return effective
+
+
 def cluster_plan(required_n: int, design_effect: float | None = None, cluster_size: float | None = None,
                  intraclass: float | None = None) -> ClusterPlan | None:
     """The rows and clusters a cluster sample needs for the power of ``required_n`` independent rows: under a
@@ -207,12 +220,7 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
     if clusters is not None:  # the plan's N is the design's, not that of independent rows
         clusters = cluster_plan(required, design_effect, cluster_size, intraclass)
         if n_obs is not None:  # so is the N asked about: its power is that of the independent rows it is worth
-            effective = n_obs / clusters.design_effect
-            if effective < 2:
-                raise OptionError(f"N = {n_obs} rows of a cluster sample with a design effect of "
-                                  f"{user_number(round(clusters.design_effect, 4))} are worth about "
-                                  f"{user_number(round(effective, 2))} independent rows, too few for a test of fit; "
-                                  f"give a larger N")
+            effective = effective_rows(n_obs, clusters)
             power = rmsea_power(df, effective, eps0, epsa, alpha)
     return PowerResult(test, df, eps0, epsa, alpha, n_obs, power, required, target_power, note, ordinal, below,
                        clusters, effective)

@@ -174,6 +174,9 @@ class NestedPower(Presentable):
     #: model (assessment.admissibility.rows_per_parameter): the test's N says nothing of how precisely the model's
     #: parameters are estimated, which the report says first
     below_rows_rule: tuple = ()
+    #: what the N asked about is worth as independent rows in a planned cluster sample (N / design effect), the N its
+    #: power is computed for (workflows.power.effective_rows; hostile s24b: the power of N independent rows was given)
+    effective_n: float | None = None
 
     @property
     def observed(self) -> tuple[str, ...]:
@@ -185,8 +188,9 @@ class NestedPower(Presentable):
         return {"nested_model": self.nested.name, "source": self.nested.source,
                 "df_difference": self.nested.df_difference, "population_discrepancy": self.nested.discrepancy,
                 "on_the_boundary": list(self.nested.boundary), "alpha": self.alpha, "n_obs": self.n_obs,
-                "power": self.power, "noncentrality": (self.nested.noncentrality(self.n_obs)
-                                                       if self.n_obs is not None else None),
+                "power": self.power, "effective_n": self.effective_n,
+                "noncentrality": (self.nested.noncentrality(self.effective_n if self.effective_n is not None
+                                                            else self.n_obs) if self.n_obs is not None else None),
                 "required_n": self.required_n, "target_power": self.target_power,
                 "population_defaults": list(self.defaulted), "note": self.note,
                 "below_rows_per_parameter": [n.rows for n in self.below_rows_rule],
@@ -209,7 +213,7 @@ def nested_power(model: str | Path | Spec, nested_model: str | Path | Spec, n_ob
     from cfa_tool.model.parameters import group_statement
     from cfa_tool.numbers import user_number
     from cfa_tool.pipeline.inputs import load_spec, without_exploratory_blocks
-    from cfa_tool.workflows.power import cluster_plan
+    from cfa_tool.workflows.power import cluster_plan, effective_rows
     from cfa_tool.workflows.simulation import model_order_labels, population_from_spec
 
     spec = without_exploratory_blocks(load_spec(model), "power",
@@ -259,7 +263,9 @@ def nested_power(model: str | Path | Spec, nested_model: str | Path | Spec, n_ob
     free = population.table.n_free
     below = tuple(facts for n in dict.fromkeys((required, n_obs)) if n is not None
                   for facts in rows_per_parameter((n,), (free,)))
-    return NestedPower(plan, alpha, n_obs,
-                       approximate_power(plan.discrepancy, df, n_obs, alpha) if n_obs is not None else None,
+    clusters = cluster_plan(required, design_effect, cluster_size, intraclass)
+    effective = effective_rows(n_obs, clusters) if clusters is not None and n_obs is not None else None
+    at = effective if effective is not None else n_obs
+    return NestedPower(plan, alpha, n_obs, approximate_power(plan.discrepancy, df, at, alpha) if n_obs is not None else None,
                        required, target_power, tuple(labels.get(x, x) for x in population.defaulted),
-                       cluster_plan(required, design_effect, cluster_size, intraclass), note, population, below)
+                       clusters, note, population, below, effective)

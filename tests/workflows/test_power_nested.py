@@ -140,3 +140,18 @@ def test_a_nested_model_that_holds_has_no_sample_size():
 
     with pytest.raises(OptionError, match="holds in the population the model file's values describe"):
         nested_power(two_factors(1.0), ONE_FACTOR, n_obs=150)
+
+
+def test_the_power_at_n_of_a_cluster_sample_is_that_of_the_rows_it_is_worth():
+    """Hostile tester s24b: with a design effect the difference test's power at N was that of N independent rows
+    (.80 at N = 10 with a design effect of 2, where 10 such rows are worth 5); the check value is scipy's noncentral
+    chi-square at N / design effect (Kish 1965, recalled), the RMSEA plan's rule."""
+    from cfa_tool.workflows.power_nested import nested_power
+
+    plain = nested_power(two_factors(0.9), ONE_FACTOR, n_obs=300)
+    clustered = nested_power(two_factors(0.9), ONE_FACTOR, n_obs=300, design_effect=2.0)
+    assert clustered.effective_n == pytest.approx(150.0)
+    df, f = clustered.nested.df_difference, clustered.nested.discrepancy
+    expected = scipy_stats.ncx2.sf(scipy_stats.chi2.ppf(0.95, df), df, 150.0 * f)
+    assert clustered.power == pytest.approx(expected, rel=1e-8) and clustered.power < plain.power
+    assert clustered.to_dict()["effective_n"] == pytest.approx(150.0)
