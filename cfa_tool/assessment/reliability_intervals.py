@@ -127,7 +127,8 @@ class ReliabilityInterval:
         return self.withheld is None and not self.without_value
 
     def to_dict(self) -> dict:
-        out = {"factor": self.factor, "coefficient": self.coefficient.value, "estimate": self.estimate,
+        out = {"factor": self.factor, "coefficient": self.coefficient.value,
+               "estimate": None if self.withheld is not None else self.estimate,  # withheld in every view
                "percentile_ci95": list(self.percentile), "bca_ci95": list(self.bca),
                "bootstrap_se": self.bootstrap_se}
         if self.withheld is not None:

@@ -1319,9 +1319,11 @@ def bootstrap_reliability_table(boot) -> ReportTable | None:
                 cells.append(f"[{unit(i.bca[0])}, {unit(i.bca[1])}]" if not missing(i.bca[0]) else "-")
         else:
             cells = [WITHHELD if i.withheld is not None else NOT_AVAILABLE] * (1 if ordinal else 2)
-        body.append([i.factor, _coefficient_words(i, ordinal), unit(i.estimate),
+        shown = None if i.withheld is not None else i.estimate  # withheld: no value in any view (hostile s24b)
+        body.append([i.factor, _coefficient_words(i, ordinal), WITHHELD if shown is None else unit(shown),
                      est_num(i.bootstrap_se) if i.available else "-", *cells])
-        values.append([i.factor, _coefficient_words(i, ordinal), i.estimate, i.bootstrap_se, *i.percentile,
+        values.append([i.factor, _coefficient_words(i, ordinal), shown, i.bootstrap_se if i.available else None,
+                       *i.percentile,
                        *([] if ordinal else i.bca), i.withheld.value if i.withheld is not None else None,
                        i.without_value or None])
     kinds = "Percentile intervals" if ordinal else "Percentile and BCa intervals"

@@ -205,6 +205,9 @@ def test_a_reliability_the_fit_withholds_is_withheld_with_the_reason(hs_data):
     assert "Withheld for visual, as the fit withholds its reliability: its loadings contradict" in str(table.note)
     out = boot.to_dict()["result"]["reliability_intervals"]
     assert [d["withheld"] for d in out if d["factor"] == "visual"] == [Withheld.KEYING.value] * 2
+    # no value of a withheld coefficient in any view (hostile s24b: the estimate column printed omega and alpha)
+    assert [row[2] for row in table.rows if row[0] == "visual"] == ["withheld", "withheld"]
+    assert [d.get("estimate") for d in out if d["factor"] == "visual"] == [None, None]
 
 
 def test_a_resample_keyed_otherwise_gives_no_value():
