@@ -340,8 +340,27 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         variances (under the variance scaling) set the origin and unit the other groups' are estimated against."""
         return lambda kind_key: shares(0, kind_key) and shares(g, kind_key)
 
+    # ---- equal parameters share one index (union-find): the 'equal' statements' ties, read by the scales below too
+    parent: dict[tuple, tuple] = {}
+
+    def find(k: tuple) -> tuple:
+        while parent.get(k, k) != k:
+            k = parent[k]
+        return k
+
+    def union(a: tuple, b: tuple) -> None:
+        ra, rb = find(a), find(b)
+        if ra != rb:
+            parent[rb] = ra
+
+    for group in spec.equal:
+        for g in groups_of(group[0]):
+            keys = [(g, *r.key()) for r in group]
+            for k in keys[1:]:
+                union(keys[0], k)
+
     # an entry an 'equal' statement holds equal to one a 'fix' statement fixes is fixed by the user as much as that
-    # one: a loading so fixed sets its factor's scale as a 'fix' on it would (none is added), or, at 0, sets none
+    # one: a loading so fixed sets its factor's scale as a 'fix' on it would (none is added), or, at 0, sets none;
     # a factor scaled by its variance (one group) has that variance fixed at 1 as surely as a 'fix' would: an
     # 'equal' that holds another factor's variance to it scales that factor too (hostile s24b: it kept its marker)
     scale_ones = {} if multi else {
@@ -349,7 +368,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         and entries[(0, "variance", (f.name.text,))]["origin"] != "user"
         and not any(entries[(0, "loading", (f.name.text, i.text))]["origin"] == "user"
                     and entries[(0, "loading", (f.name.text, i.text))]["fixed"] not in (None, 0.0) for i in f.indicators)}
-    reached = _reached_by_fixes(spec, fixed_by, entries, groups_of, scale_ones)
+    reached = _reached_by_fixes(find, set(parent) | set(parent.values()), fixed_by, entries, scale_ones)
 
     # ---- the automatic scale of each factor in each group
     reverse_keyed = keyed_pairs(spec)
@@ -434,24 +453,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             if entries[(g, "variance", (x,))]["origin"] != "user" and not free_scale:
                 entries[(g, "variance", (x,))].update(fixed=1.0, origin="scale")
 
-    # ---- free indices: equal parameters share one index (union-find)
-    parent: dict[tuple, tuple] = {}
-
-    def find(k: tuple) -> tuple:
-        while parent.get(k, k) != k:
-            k = parent[k]
-        return k
-
-    def union(a: tuple, b: tuple) -> None:
-        ra, rb = find(a), find(b)
-        if ra != rb:
-            parent[rb] = ra
-
-    for group in spec.equal:
-        for g in groups_of(group[0]):
-            keys = [(g, *r.key()) for r in group]
-            for k in keys[1:]:
-                union(keys[0], k)
+    # ---- free indices: equal parameters share one index (the union-find above, ties across groups added here)
     tied_to: dict[tuple, tuple] = {}  # an entry fixed through a tie -> the fixed entry it is tied to
     if multi:
         tied_kinds: set[str] = set()  # kinds of which at least one parameter is held equal across groups
@@ -752,35 +754,22 @@ def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by
     return f"fixed at {user_number(value)}"  # pragma: no cover - every fixed entry has one of the reasons above
 
 
-def _reached_by_fixes(spec: Spec, fixed_by: dict, entries: dict, groups_of,
+def _reached_by_fixes(find, tied: set[tuple], fixed_by: dict, entries: dict,
                       scale_ones: dict | None = None) -> dict[tuple, float]:
-    """The entries that 'equal' statements hold equal, within a group and through any chain of them, to an entry a
-    'fix' statement fixes, or to a factor's variance its variance scaling fixes at 1 (``scale_ones``), each with that
-    value (before the automatic scales are added: see build_parameter_table)."""
-    parent: dict[tuple, tuple] = {}
-
-    def find(k: tuple) -> tuple:
-        while parent.get(k, k) != k:
-            k = parent[k]
-        return k
-
-    for group in spec.equal:
-        for g in groups_of(group[0]):
-            first = find((g, *group[0].key()))
-            for ref in group[1:]:
-                other = find((g, *ref.key()))
-                if other != first:
-                    parent[other] = first
+    """The entries that 'equal' statements hold equal (``tied``, with ``find`` their ties' union-find: within a group
+    and through any chain of statements) to an entry a 'fix' statement fixes, or to a factor's variance its variance
+    scaling fixes at 1 (``scale_ones``), each with that value (before the automatic scales are added: see
+    build_parameter_table)."""
+    scale_ones = scale_ones or {}
     value_of = {find(k): entries[k]["fixed"] for k in fixed_by if entries[k]["fixed"] is not None}
-    for k, value in (scale_ones or {}).items():
+    for k, value in scale_ones.items():
         value_of.setdefault(find(k), value)
-    return {k: value_of[find(k)] for k in parent.keys() | set(parent.values())
-            if find(k) in value_of and k not in fixed_by and k not in (scale_ones or {})}
+    return {k: value_of[find(k)] for k in tied if find(k) in value_of and k not in fixed_by and k not in scale_ones}
 
 
 def _tied_fixes_differ(spec: Spec, keys: tuple[tuple, tuple], entries: dict, group_labels) -> ModelError:
-    """An 'equal' statement (or a chain of them) holds two parameters equal that are fixed at different values: one by
-    a 'fix' statement, the other by a factor's automatic scale (its marker), so no value can hold both.  Refused at
+    """An 'equal' statement (or a chain of them) holds two parameters equal that are fixed at different values (by two
+    'fix' statements, or a fix and a factor's automatic scale), so no value can hold both.  Refused at
     the first 'equal' statement naming either, with the way out."""
     def said(key: tuple) -> str:
         how = {"scale": f"as the marker that sets the scale of '{key[2][0]}'",
