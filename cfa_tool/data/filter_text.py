@@ -13,6 +13,9 @@ import re
 from cfa_tool.errors import printable
 from cfa_tool.numbers import number, user_number
 
+#: the operators of a filter with a list of values (a value equal to one of them, to none): declared here, by the one
+#: writer of a filter's text, and read by the parser (data.filters)
+SET_OPERATORS = ("in", "not in")
 #: a column a filter writes bare: the parser's plain name (data.filters._PATTERN)
 PLAIN_COLUMN = re.compile(r'[^\s=!<>"]+')
 #: a text value a filter writes bare: no space, quote or operator character, and not read as a number
@@ -48,10 +51,12 @@ def filter_value(value) -> str | None:
 
 
 def filter_text(column: str, operator: str, value) -> str | None:
-    """One comparison, 'district != north', 'gender != "another / prefers to describe"', '"wave 2" < 3', written so
-    that it parses back to ``column``, ``operator`` and ``value``; None when it cannot be (:func:`filter_column`,
-    :func:`filter_value`)."""
-    name, written = filter_column(column), filter_value(value)
-    if name is None or written is None:
+    """One comparison, 'district != north', 'gender != "another / prefers to describe"', '"wave 2" < 3', or for the
+    list operators ('in', 'not in') a list of values, 'submitted not in "2026-03-01 11:00", "2026-03-01 11:05"',
+    written so that it parses back to ``column``, ``operator`` and ``value``; None when it cannot be
+    (:func:`filter_column`, :func:`filter_value`)."""
+    values = list(value) if operator in SET_OPERATORS else [value]
+    name, written = filter_column(column), [filter_value(v) for v in values]
+    if name is None or not written or any(w is None for w in written):
         return None
-    return f"{name} {operator} {written}"
+    return f"{name} {operator} {', '.join(written)}"

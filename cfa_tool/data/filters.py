@@ -21,7 +21,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.filter_text import filter_column, filter_text
+from cfa_tool.data.filter_text import SET_OPERATORS, filter_column, filter_text
 from cfa_tool.data.kept_rows import KEPT_BY, ROW_NAMES_COLUMN, cell_words, row_naming
 from cfa_tool.data.labels import label_text, listed_labels, merged_labels, other_case, shared_labels
 from cfa_tool.data.moments import row_numbers
@@ -36,8 +36,6 @@ from cfa_tool.suggest import close_names, did_you_mean
 OPERATOR_TESTS = {"=": operator.eq, "!=": operator.ne, "<": operator.lt, "<=": operator.le, ">": operator.gt,
              ">=": operator.ge}
 
-#: the operators of a filter with a list of values (a value equal to one of them, to none)
-SET_OPERATORS = ("in", "not in")
 #: values of a list a filter's words name before '...' (the methods paragraph, the notes)
 SHOWN_VALUES = 3
 _SET_PATTERN = re.compile(r'^\s*(?:"(?P<quoted>[^"]+)"|(?P<plain>[^\s=!<>"]+))\s+(?P<op>not\s+in|in)'

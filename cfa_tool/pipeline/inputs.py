@@ -21,7 +21,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
 
 from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, rounded_number, user_number
 from cfa_tool.data.answer_words import NUMBERS_ONLY, code_answer_words, coding_record, refuse_for_summary_statistics
-from cfa_tool.data.filter_text import filter_column, filter_text, filter_value
+from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
 from cfa_tool.data.kept_rows import (ROW_NAMES_COLUMN, RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
                                      unfinished_rows_note)
@@ -1117,11 +1117,11 @@ def _first_rows_only(found: tuple, frame: pd.DataFrame, id_column: str | None, i
         distinct = list(dict.fromkeys(chosen.tolist()))
         if not np.array_equal(values.isin(distinct).to_numpy(), at_later):
             continue
-        name, written = filter_column(str(column)), [filter_value(v) for v in distinct]
-        if name is None or any(w is None for w in written):
+        written = filter_text(str(column), "not in", distinct)  # the one writer of a filter's text
+        if written is None:
             continue
         return ("; if some people submitted twice, keep each one's first row with the row filter on the column that "
-                "tells the later rows apart", Command(f" ({Option.KEEP.given(f'{name} not in ' + ', '.join(written))})"))
+                "tells the later rows apart", Command(f" ({Option.KEEP.given(written)})"))
     return ()
 
 
