@@ -12,7 +12,7 @@ from cfa_tool import views
 from cfa_tool.version import __version__
 
 __all__ = ["fit", "check", "bootstrap", "cutoffs", "scores", "explore", "compare", "invariance", "align", "replicate",
-           "split_half", "power", "power_simulation", "invariance_power", "simulate", "parse_model", "__version__"]
+           "split_half", "power", "nested_power", "power_simulation", "invariance_power", "simulate", "parse_model", "__version__"]
 
 # workflow entry points: public name -> (module, function)
 _WORKFLOWS = {
@@ -22,6 +22,7 @@ _WORKFLOWS = {
     "replicate": ("cfa_tool.workflows.replication", "replicate"),
     "split_half": ("cfa_tool.workflows.replication", "split_half"),
     "power": ("cfa_tool.workflows.power", "plan"),
+    "nested_power": ("cfa_tool.workflows.power_nested", "nested_power"),
     "power_simulation": ("cfa_tool.workflows.montecarlo", "monte_carlo_power"),
     "invariance_power": ("cfa_tool.workflows.group_power", "invariance_power"),
     "simulate": ("cfa_tool.workflows.simulation", "simulate"),

@@ -10,6 +10,9 @@ import pytest
 
 import cfa_tool
 
+NESTED_TWO = ("factor f: q1, q2, q3\nfactor g: q4, q5, q6\nscale latent by variance\n"
+              + "".join(f"start loading({'f' if k <= 3 else 'g'}, q{k}) = 0.7\nstart variance(q{k}) = 0.51\n"
+                        for k in range(1, 7)) + "start covariance(f, g) = 0.8\n")
 THREE = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
 
 
@@ -22,7 +25,7 @@ def _shows_itself(result) -> None:
 
 
 @pytest.mark.parametrize("command", ["compare", "invariance", "split_half", "power", "power_simulation", "simulate",
-                                     "fit", "scores", "explore"])
+                                     "fit", "scores", "explore", "nested_power"])
 def test_every_command_from_python(command, hs_data):
     call = {
         "compare": lambda: cfa_tool.compare([THREE, THREE + "covary x7, x8\n"], hs_data),
@@ -34,6 +37,9 @@ def test_every_command_from_python(command, hs_data):
         "fit": lambda: cfa_tool.fit(THREE, hs_data),
         "scores": lambda: cfa_tool.scores(THREE, hs_data),
         "explore": lambda: cfa_tool.explore(hs_data[[f"x{i}" for i in range(1, 10)]], factors=3),
+        # power --nested-model had no entry point of its own (plan2-s24's note): two factors of .7 loadings correlating
+        # .8 against one factor of the same items
+        "nested_power": lambda: cfa_tool.nested_power(NESTED_TWO, "factor f: q1, q2, q3, q4, q5, q6\n", n_obs=200),
     }[command]
     _shows_itself(call())
     assert command in cfa_tool.__all__
