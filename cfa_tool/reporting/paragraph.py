@@ -1840,8 +1840,8 @@ def comparison_paragraph(comparison) -> str:
         sentence = (f"{pair}: {CHI}({t.df_difference}) = {num(t.chi_square_difference, 2)}, {_p(t.p_value)}{which}"
                     + ("." if first.method.ordinal else f"; {cfi}, {_change('RMSEA', t.delta_rmsea)}."))
         if t.boundary and t.boundary_reading is BoundaryReading.CHI_SQUARE:  # unconstrained: the usual chi-square
-            sentence += (f" {label[restricted]} has {_list(list(t.boundary))}, a value on the boundary of the parameter "
-                         f"space of {label[general]}; as the estimation did not hold {label[general]}'s estimate "
+            sentence += (f" {label[restricted]} has {_list(list(t.boundary))}, on the boundary of the parameter "
+                         f"space of {label[general]}; as the estimation did not hold {label[general]}'s estimates "
                          f"inside that boundary (estimates beyond it are reported as improper solutions), the "
                          f"difference follows the usual chi-square distribution (Savalei & Kolenikov, 2008).")
         elif t.boundary:

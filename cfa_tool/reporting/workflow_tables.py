@@ -319,14 +319,14 @@ BOUNDARY_CAUTION = ("values on the boundary of what the general model allows, so
                     "follow the usual chi-square distribution (Self & Liang 1987; Stoel, Garre, Dolan & van den "
                     "Wittenboer 2006)")
 
-#: why a difference test with one parameter on the boundary, which the general model's fit does not hold inside it,
+#: why a difference test with parameters on the boundary, which the general model's fit does not hold inside it,
 #: is read as printed (nesting.BoundaryReading.CHI_SQUARE; Savalei & Kolenikov 2008)
-BOUNDARY_UNHELD = ("a value on the boundary of what the general model allows, but the general model's fit does not "
-                   "hold its estimate inside that boundary (a correlation may go past 1, a variance below 0: an "
-                   "improper solution, named first when it happens), so the difference follows the usual chi-square "
-                   "distribution (Savalei & Kolenikov 2008); the 50:50 mixture of chi-square distributions (Self & "
-                   "Liang 1987) holds only for estimates held inside the boundary, and would reject a true "
-                   "restriction about twice as often as its level here")
+BOUNDARY_UNHELD = ("the edge of what the general model allows, but the general model's fit does not hold its "
+                   "estimates inside that edge (a correlation may go past 1, a variance below 0: an improper solution, "
+                   "named first when it happens), so the difference follows the usual chi-square distribution "
+                   "(Savalei & Kolenikov 2008); the 50:50 mixture of chi-square distributions (Self & Liang 1987) "
+                   "holds only for estimates held inside the boundary, and would reject a true restriction about "
+                   "twice as often as its level here")
 
 
 def ordinal_decision_note(boundary: bool) -> str:
@@ -350,7 +350,7 @@ def ordinal_decision_note(boundary: bool) -> str:
 def boundary_note(tests, explained: str | None = None, criteria: bool = True, ordinal: bool = False) -> Text:
     """The note under a difference-test table whose restricted model sits on the boundary: what lies there and which
     p-value to read (``tests[0].boundary_reading``, nesting.BoundaryReading): the printed ones, unmarked, when the
-    general model's fit does not hold the one parameter on the boundary inside it (Savalei & Kolenikov 2008); the
+    general model's fit does not hold the parameters on the boundary inside it (Savalei & Kolenikov 2008); the
     50:50 mixture's when a bound of the general model holds it (Self & Liang 1987); none exactly otherwise.  The why,
     and the mixture's distribution, are said in full under the first table of the usual chi-square's reading and under
     the first of the others only; the later tables
@@ -394,8 +394,8 @@ def boundary_note(tests, explained: str | None = None, criteria: bool = True, or
                          f". No exact p-value: read the {shown} marked * as rough."))
         weigh = ("; what else decides between these models, and how rough each part is: the note after the tables"
                  if ordinal else f", and weigh the models also by their fit indices{', AIC and BIC' if criteria else ''}")
-        reading = ("Its distribution depends on the model here (several parameters on the boundary, or loadings that the "
-                   "restricted model leaves undefined), so no exact p-value is given: read the "
+        reading = ("Its distribution depends on the model here (several parameters on the boundary with bounds "
+                   "holding some of them, or loadings that the restricted model leaves undefined), so no exact p-value is given: read the "
                    f"{shown} marked * as rough{weigh}.")
     return f"* On the boundary: {what}: {BOUNDARY_CAUTION}. {reading}"
 

@@ -166,11 +166,13 @@ class BoundaryReading(str, Enum):
     #: variance the restricted model fixes at 0; a covariance bounded at +/-1 between two variances fixed at 1),
     #: every parameter identified: the 50:50 mixture (Self & Liang 1987)
     MIXTURE = "50:50 mixture"
-    #: one parameter on the boundary, not held inside it, every parameter identified: the usual chi-square
-    #: (Savalei & Kolenikov 2008)
+    #: parameters on the boundary, none held inside it by a bound, every parameter identified: the usual chi-square
+    #: (Savalei & Kolenikov 2008; with several such parameters too: under unconstrained estimation each lies inside
+    #: the space the search moves in, checked by simulation for three factors merged into one)
     CHI_SQUARE = "usual chi-square"
-    #: several parameters on the boundary, or loadings the restricted model leaves unidentified (a factor left out,
-    #: fewer factors than an exploratory block): no chi-square reading is exact
+    #: several parameters on the boundary with a bound holding some of them (a mixture whose weights depend on the
+    #: model), or loadings the restricted model leaves unidentified (a factor left out, fewer factors than an
+    #: exploratory block): no chi-square reading is exact
     APPROXIMATE = "approximate"
 
 
@@ -266,18 +268,21 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
       correlations at 1 (a factor covariance matrix of rank k - 1 lower for k merged; one merge of two factors is
       one parameter on the boundary); merged factors that are indicators of a higher-order factor in the general
       model correlate 1 only with their disturbance variances at 0, one parameter on the boundary each (two
-      first-order factors merged under one higher-order factor: two, so no 50:50 mixture; Stoel et al. 2006);
+      first-order factors merged under one higher-order factor: two, so no 50:50 mixture; Stoel et al. 2006); a
+      merge in a model of several groups puts its parameters on the boundary in each group;
     * a factor belonging to none is left out: its variance is 0 and its loadings are then not identified, so no
       mixture applies; so is a factor of an exploratory block of the general model when the restricted model has
       fewer factors on the block's items (the likelihood-ratio test of the number of factors is not chi-square
       distributed then either; Hayashi, Bentler & Yuan 2007);
     * a variance the restricted model fixes at 0, or a covariance it fixes at a correlation of +/-1, where the
-      general model estimates it (one parameter each; a factor's variance at 0 leaves its loadings unidentified).
+      general model estimates it (one parameter each; a factor's variance at 0 leaves its loadings unidentified,
+      unless it is the disturbance variance of a factor under a higher-order factor).
 
-    The reading (:class:`BoundaryReading`): with one parameter on the boundary and every parameter identified, the
-    50:50 mixture where the general model's bound holds that parameter inside the boundary (a variance bounded
-    '>= 0'; the correlation of two factors or of a covariance between two variances fixed at 1, bounded at 1), the
-    usual chi-square elsewhere (unconstrained estimation; Savalei & Kolenikov 2008); no exact reading otherwise."""
+    The reading (:class:`BoundaryReading`), every parameter identified: the usual chi-square where no bound of the
+    general model holds a parameter on the boundary inside it (unconstrained estimation, however many parameters;
+    Savalei & Kolenikov 2008); the 50:50 mixture where one parameter lies there and the general model's bound holds
+    it (a variance bounded '>= 0'; the correlation of two factors or of a covariance between two variances fixed
+    at 1, bounded at 1); no exact reading otherwise (several parameters with bounds holding some of them)."""
     parts: list[str] = []
     on_boundary, identified, held = 0, True, 0
     items_r, items_g = _first_order_items(restricted_spec), _first_order_items(general_spec)
@@ -304,6 +309,7 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
             parts.append(f"factor {g} left out (its variance fixed at 0)")
             identified = False
     explained = {i.text for f in general_spec.factors for i in f.indicators if i.text in general_spec.factor_names}
+    labels = [g.label for g in general.groups]  # a merge fixes its correlations at 1 in every group
     for r, merged in owner.items():
         if len(merged) > 1:
             below = [g for g in merged if g in explained]
@@ -311,13 +317,14 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
                 parts.append(f"factors {_listed(merged)} merged into {r} (their correlation"
                              f"{'s' if len(merged) > 2 else ''} fixed at 1: in the general model, the disturbance "
                              f"variance{'s' if len(below) > 1 else ''} of {_listed(below)} at 0)")
-                on_boundary += max(len(below), len(merged) - 1)
+                on_boundary += len(labels) * max(len(below), len(merged) - 1)
+                held += sum(_variance_held(general_spec, g, label) for g in below for label in labels)
             else:
                 parts.append(f"factors {_listed(merged)} merged into {r} (their correlation"
                              f"{'s' if len(merged) > 2 else ''} fixed at 1)")
-                on_boundary += len(merged) - 1
-                held += len(merged) == 2 and _correlation_held(general_spec, general, (merged[0], merged[1]),
-                                                               general.groups[0].label, 1.0)
+                on_boundary += len(labels) * (len(merged) - 1)
+                held += sum(_correlation_held(general_spec, general, (a, b), label, 1.0)
+                            for k, a in enumerate(merged) for b in merged[k + 1:] for label in labels)
     free_in_general = {(e.kind, frozenset(e.variables) if "covariance" in e.kind else e.variables, e.group)
                        for e in general.estimates if e.free}
     for e in restricted.estimates:
@@ -329,7 +336,9 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
             parts.append(f"the {'residual ' if e.kind == 'residual_variance' else ''}variance of {e.variables[0]} fixed "
                          f"at 0{where}")
             on_boundary += 1
-            identified = identified and e.kind == "residual_variance"
+            # a factor's variance at 0 leaves its loadings undefined, unless it is the disturbance of a factor under
+            # a higher-order factor, whose loadings the higher-order factor still defines
+            identified = identified and (e.kind == "residual_variance" or e.variables[0] in explained)
             held += _variance_held(general_spec, e.variables[0], e.group)
         elif e.kind in ("factor_covariance", "residual_covariance") and abs(abs(e.standardized) - 1.0) < 1e-6:
             parts.append(f"the {'residual ' if e.kind == 'residual_covariance' else ''}correlation of "
@@ -339,7 +348,7 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
                                       -1.0 if e.standardized < 0 else 1.0)
     if not parts:
         return Boundary()
-    if not identified or on_boundary != 1:
+    if not identified or (held and on_boundary != 1):
         return Boundary(tuple(parts), BoundaryReading.APPROXIMATE)
     return Boundary(tuple(parts), BoundaryReading.MIXTURE if held else BoundaryReading.CHI_SQUARE)
 

@@ -1,7 +1,9 @@
 """The boundary note under compare's difference tests tells the reader to weigh the models also by AIC and BIC only
 when the models have them: least-squares fits of ordinal items have no likelihood, and the table beside the note said
 "not defined" (new-user trial s15, finding 7).  Data: the bundled rider survey (invented); the one-factor model
-merges the three factors (their correlations at 1: several parameters on the boundary, no exact p-value)."""
+merges the three factors (their correlations at 1: several parameters on the boundary), and the three-factor model
+bounds one of them at 1, so the reading is no exact p-value (workflows.nesting.boundary_of; without the bound, the usual
+chi-square: lead s25)."""
 
 from __future__ import annotations
 
@@ -15,6 +17,7 @@ THREE = (resource_dir("models") / "rider_three_factors.cfa").read_text()
 ITEMS = ("on_time, short_wait, accurate_info, easy_transfer, seat_available, clean, temperature, room_to_stand, "
          "greeting, helpful, respectful, clear_answers")
 ONE = f"factor service: {ITEMS}\n"
+HELD = THREE + "scale latent by variance\nbound covariance(punctuality, comfort) <= 1\n"
 
 
 def _boundary_notes(comparison) -> list[str]:
@@ -23,9 +26,9 @@ def _boundary_notes(comparison) -> list[str]:
 
 def test_aic_and_bic_advised_only_where_defined():
     data = pd.read_csv(resource_dir("demo") / "rider_survey.csv").dropna()
-    continuous = _boundary_notes(cfa_tool.compare([THREE, ONE], data))
+    continuous = _boundary_notes(cfa_tool.compare([HELD, ONE], data))
     assert continuous and "weigh the models also by their fit indices, AIC and BIC." in continuous[0]
-    ordinal = _boundary_notes(cfa_tool.compare([THREE, ONE], data, ordinal="all"))
+    ordinal = _boundary_notes(cfa_tool.compare([HELD, ONE], data, ordinal="all"))
     # ordinal fits: the note refers to the one statement after the tables (test_ordinal_decision_is_one_statement)
     assert ordinal and "AIC" not in ordinal[0] and "weigh the models also by their fit indices" not in ordinal[0]
 
@@ -38,7 +41,7 @@ def test_ordinal_decision_is_one_statement():
     2006, rough on the boundary; each model's own indices; their changes, no test: Sass, Schmitt & Marsh 2014) and
     how rough each is, and no note sends the reader to the rough test alone."""
     data = pd.read_csv(resource_dir("demo") / "rider_survey.csv").dropna()
-    report = comparison_report(cfa_tool.compare([THREE, ONE], data, ordinal="all"))
+    report = comparison_report(cfa_tool.compare([HELD, ONE], data, ordinal="all"))
     boundary = [str(t.note) for t in report.tables if t.note and "On the boundary" in str(t.note)]
     assert boundary and "the note after the tables" in boundary[0]
     notes = [str(n) for n in report.notes]

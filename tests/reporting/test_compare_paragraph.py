@@ -47,7 +47,7 @@ def test_the_paragraph_describes_each_model_and_the_likelihood_ratio_test(data):
     assert f"Model 1 against Model 2: \u03c7\u00b2(1) = {difference:.2f}" in text
     # merging a and b puts their correlation at 1, which the two-factor fit does not hold at or below 1: said, with
     # the usual chi-square as the reading (Savalei & Kolenikov 2008), no mixture
-    assert ("Model 1 has factors a and b merged into g (their correlation fixed at 1), a value on the boundary of the "
+    assert ("Model 1 has factors a and b merged into g (their correlation fixed at 1), on the boundary of the "
             "parameter space of Model 2") in text
     assert "the difference follows the usual chi-square distribution (Savalei & Kolenikov, 2008)." in text
     assert "50:50 mixture" not in text and np.isnan(one_two.boundary_p_value)

@@ -12,6 +12,9 @@ from cfa_tool.workflows.compare import compare
 from cfa_tool.workflows.nesting import scaled_difference_tests
 
 THREE = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+#: factors scaled by their variances and one correlation bounded at 1: a merge of the three factors then has a bound
+#: holding one of its parameters on the boundary (workflows.nesting.boundary_of: no exact reading)
+HELD = "scale latent by variance\nbound covariance(visual, textual) <= 1\n"
 
 
 def _text(comparison) -> str:
@@ -172,7 +175,8 @@ def test_a_pair_without_any_statistic_shows_its_changes_in_fit_and_marks_no_p_va
     from cfa_tool.workflows.nesting import PSEUDO_LIKELIHOOD
 
     one = "factor g: x1..x9\n"
-    found = compare([one, THREE], hs_data, test="robust")
+    # a bound on one of the merged correlations: several parameters on the boundary, one held, no exact reading
+    found = compare([one, THREE + HELD], hs_data, test="robust")
     assert found.tests[0].boundary  # three factors merged into one: their correlations at 1
     reasons = [PSEUDO_LIKELIHOOD, "its scaling correction is not positive (-0.159), so the difference cannot be scaled",
                "the general model's scaling factor at the restricted model's estimates is not defined"]
@@ -209,7 +213,7 @@ def test_a_design_comparison_marks_the_p_values_its_note_reads(hs_data):
     rng = np.random.default_rng(5)
     data["household"] = np.repeat(np.arange(len(data) // 2 + 1), 2)[: len(data)]
     data["weight"] = rng.uniform(0.5, 2.0, len(data))
-    found = compare(["factor g: x1..x9\n", THREE], data, weights="weight", cluster="household")
+    found = compare(["factor g: x1..x9\n", THREE + HELD], data, weights="weight", cluster="household")
     tests = {t.method.value: t for t in found.tests}
     assert tests["likelihood ratio"].not_computed and not tests["Satorra-Bentler 2010 strictly positive scaled "
                                                                    "difference"].not_computed
