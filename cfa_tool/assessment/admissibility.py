@@ -225,6 +225,17 @@ class ProblemKind(enum.Enum):
 DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.DESIGN_DOMINATED, ProblemKind.SMALL_EFFECTIVE_SAMPLE,
                              ProblemKind.FREQUENCY_WEIGHTS_LARGE, ProblemKind.GROUPS_SHARE_STRATA})
 
+#: the design's cautions that say its scaled test and robust indices mean little (too few clusters for the parameters,
+#: a design-based test whose scaling is extreme or dominated by one cluster): the fit table then recommends none of
+#: them, and the invariance paragraph calls no step held or not held by such a test alone
+DOUBTED_BY_THE_DESIGN = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.DESIGN_DOMINATED})
+
+
+def design_doubts(result) -> bool:
+    """Whether a caution of the sampling design says that the fit's scaled test means little (re-check s18: the table
+    still called it 'the test to read for these data')."""
+    return any(p.kind in DOUBTED_BY_THE_DESIGN for p in getattr(result, "problems", ()))
+
 
 #: the size of a correlation of two trait factors at or above which they are said to be hardly distinct (a line of
 #: this tool, above the .85 to .90 that common practice reads as a sign that two factors are not distinct: Henseler,

@@ -8,7 +8,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from cfa_tool.numbers import count_text, counted, cut_list, user_number
-from cfa_tool.assessment.admissibility import ProblemKind, solution_first
+from cfa_tool.assessment.admissibility import ProblemKind, design_doubts, solution_first
 from cfa_tool.assessment.identification import JUST_IDENTIFIED
 from cfa_tool.assessment.fit_indices import TLI_NOT_CUT
 from cfa_tool.assessment.reliability import WITHHELD_BECAUSE, BifactorPart, Keying, miskeyed
@@ -246,17 +246,6 @@ def not_computed_words(robust) -> str:
                 f"({num(robust.scaling_factor, 3)}) is not positive")
     return (f"the robust CFI and TLI: the baseline model's scaling factor ({num(robust.baseline_scaling_factor, 3)}) "
             f"is not positive")
-
-
-#: the design's cautions that say its scaled test and robust indices mean little (too few clusters for the parameters,
-#: a design-based test whose scaling is extreme or dominated by one cluster): the table then recommends none of them
-DOUBTED_BY_THE_DESIGN = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.DESIGN_DOMINATED})
-
-
-def design_doubts(result) -> bool:
-    """Whether a caution of the sampling design says that the fit's scaled test means little (re-check s18: the table
-    still called it 'the test to read for these data')."""
-    return any(p.kind in DOUBTED_BY_THE_DESIGN for p in getattr(result, "problems", ()))
 
 
 def baseline_uninformative(result) -> bool:

@@ -201,3 +201,23 @@ def test_a_step_after_a_rejected_step_is_not_called_held():
            "not hold" in text
     steps = next(t for t in invariance_report(result).tables if t.key == "steps")
     assert steps.rows[-1][-1] == "test met *" and "rests on a step that did not hold" in steps.note
+
+
+def test_steps_judged_by_tests_the_design_doubts_are_no_findings(hs_data):
+    """New-user trial s25: under 60 team clusters for 114 parameters the caution first called the scaled tests
+    unreliable, yet the paragraph said 'Strict invariance did not hold (p = .043)' as a finding.  Here 24 clusters of
+    the Holzinger-Swineford rows (households of about 12, invented) for the ladder's 60-odd parameters: each later
+    step is said to have passed or failed its difference test, and one sentence says none is a firm finding; the
+    same ladder without clusters keeps 'held' / 'did not hold'."""
+    data = hs_data.copy()
+    data["unit"] = np.arange(len(data)) % 24
+    ladder = invariance(THREE_FACTORS, data, "school", cluster="unit")
+    assert any(p.kind.name == "FEW_CLUSTERS" for s in ladder.steps for p in s.result.problems)
+    text = _text(ladder)
+    assert "no step's result is a firm finding" in text
+    steps = text[text.index("Metric invariance"):text.index("no step's result is a firm finding")]
+    assert "did not hold" not in steps and " held (" not in steps
+    assert "Metric invariance passed its difference test" in text or "Metric invariance failed its difference test" in text
+    plain = _text(invariance(THREE_FACTORS, hs_data, "school"))
+    assert "firm finding" not in plain and "its difference test" not in plain
+    assert "Scalar invariance did not hold" in plain  # 40.06 on 6 df (the tutorial's figures above)
