@@ -8,8 +8,8 @@ from cfa_tool.errors import DataError, ModelError, OptionError, character_names,
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 from cfa_tool.language.spec import Spec
-from cfa_tool.data.non_answers import advice_codes
-from cfa_tool.data.odd_values import code_like
+from cfa_tool.data.non_answers import advice_codes, says_no_answer
+from cfa_tool.data.odd_values import FEW_SHARE, SHOWN, code_like
 from cfa_tool.input_files import base_name
 
 
@@ -346,6 +346,7 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
             scale_of[x] = (low, high, factor)
     columns = _answer_columns(frame, judged, spec.observed_names, values)
     out = []
+    beyond: dict[tuple[float, float], list[tuple[str, float]]] = {}  # labelled scale -> (item, value) beyond it, often
     rows = None
 
     def listed(mask) -> str:
@@ -366,12 +367,36 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
                            f"so many of its answers lie outside that it is read as answered on another scale; if "
                            f"{user_number(v)} is a typing error or means 'no answer', " + _read_as_none(v, frame))
             continue
-        known = {float(k) for k in labels.get(x) or () if isinstance(k, (int, float))}
-        if known:
-            for v in sorted(set(column[answered].tolist()) - known):
-                out.append(f"{data_name}: '{x}' has the value {user_number(v)} ({listed(column == v)}), which has no value "
-                           f"label, while its other values are labelled; if it is a typing error or means 'no "
-                           f"answer', " + _read_as_none(v, frame) + " (or correct it in a copy of the file)")
+        known = {float(k): text for k, text in (labels.get(x) or {}).items() if isinstance(k, (int, float))}
+        # the answers the labels name (a label saying no answer names none): a value between them is an answer, as
+        # a labelled code between answers is (non_answers.between_answers); only values beyond them are judged, and
+        # only when the labels name a scale (hostile s25: labels on the two ends only, or on 9 'Refused' only, had
+        # every middle answer called a possible typing error, 36 and 60 notes)
+        named = [k for k, text in known.items() if not says_no_answer(text, explained=True)]
+        if len(named) < 2:
+            continue
+        low, high = min(named), max(named)
+        given = column[answered]
+        for v in sorted(set(given.tolist()) - set(known)):
+            if low < v < high:
+                continue
+            if np.mean(given == v) > FEW_SHARE:  # too many for typing errors: labels of another coding (0 to 4 on 1 to 5)
+                beyond.setdefault((low, high), []).append((x, v))
+                continue
+            out.append(f"{data_name}: '{x}' has the value {user_number(v)} ({listed(column == v)}), which has no value "
+                       f"label, {'below' if v < low else 'above'} its labelled answers {user_number(low)} to "
+                       f"{user_number(high)}; if it is a typing error or means 'no answer', " + _read_as_none(v, frame)
+                       + " (or correct it in a copy of the file)")
+    for (low, high), found in beyond.items():  # one note per labelled scale, the values analysed as answers
+        items = [x for x, _ in found]
+        values = sorted({v for _, v in found})
+        k = names_shown(len(items), SHOWN)
+        shown = ", ".join(f"'{x}'" for x in items[:k]) + more_words(len(items) - k)
+        out.append(f"{data_name}: the value labels of {shown} name the answers {user_number(low)} to {user_number(high)}, "
+                   f"but more than {FEW_SHARE:.0%} of {'their' if len(items) > 1 else 'its'} answers are "
+                   f"{' and '.join(user_number(v) for v in values)}, beyond them: too many for typing errors, so they "
+                   f"are analysed as answers; the labels may belong to another coding of the scale (labels of 0 to 4 "
+                   f"on answers 1 to 5, say), so check them against the questionnaire before reading the labels table")
     return out
 
 

@@ -62,12 +62,53 @@ def test_values_without_a_value_label_are_named(tmp_path, answers):
     result = cfa_tool.fit(MODEL, path)
     named = [str(w) for w in result.warnings if "has no value label" in w]
     assert named == [
-        "labelled.sav: 'a2' has the value 0 (rows 10, 20), which has no value label, while its other values are "
-        "labelled; if it is a typing error or means 'no answer', give missing_codes=[0] (or correct it in a copy of "
-        "the file)",
-        "labelled.sav: 'b3' has the value 9 (row 41), which has no value label, while its other values are "
-        "labelled; if it is a typing error or means 'no answer', give missing_codes=[9] (or correct it in a copy of "
-        "the file)"]
+        "labelled.sav: 'a2' has the value 0 (rows 10, 20), which has no value label, below its labelled answers 1 to "
+        "5; if it is a typing error or means 'no answer', give missing_codes=[0] (or correct it in a copy of the file)",
+        "labelled.sav: 'b3' has the value 9 (row 41), which has no value label, above its labelled answers 1 to 5; "
+        "if it is a typing error or means 'no answer', give missing_codes=[9] (or correct it in a copy of the file)"]
+
+
+@pytest.mark.parametrize("labels", [
+    {1: "never", 5: "always"},  # the two ends only, as many questionnaires label them
+    {1: "never", 3: "sometimes", 5: "always"},
+    {9: "Refused"},  # the no-answer code only: no scale named
+], ids=["ends", "ends and middle", "no-answer code only"])
+def test_answers_between_labelled_answers_are_answers(tmp_path, answers, labels):
+    """Hostile tester s25: labels on the ends only (or on 9 'Refused' only) had every middle answer called a
+    possible typing error, one note per item and value (36 and 60 notes); a value between labelled answers is an
+    answer, as a labelled code between answers is (data.non_answers.between_answers).  The stray 0s and the 9 set in
+    the fixture are still named where labels name a scale around them."""
+    import pyreadstat
+
+    path = tmp_path / "ends.sav"
+    pyreadstat.write_sav(answers, str(path), variable_value_labels={c: labels for c in ITEMS})
+    named = [str(w) for w in cfa_tool.fit(MODEL, path).warnings if "has no value label" in w]
+    if 9 in labels:
+        assert named == []
+    else:
+        assert [w.split(" (")[0] for w in named] == ["ends.sav: 'a2' has the value 0", "ends.sav: 'b3' has the value 9"]
+
+
+def test_labels_of_another_coding_are_said_once_and_no_answer_is_dropped(tmp_path, answers):
+    """Hostile tester s25: labels 0 to 4 over answers 1 to 5 (the top answer 5 in about a tenth of the cells) had
+    each item's 5 called a typing error, with advice to read it as no answer (deleting real answers).  Too many
+    for typing errors (more than data.odd_values.FEW_SHARE of the answers): one note naming the items, the 5s
+    analysed as answers, and no advice to drop them."""
+    import pyreadstat
+
+    shifted = {0: "never", 1: "rarely", 2: "sometimes", 3: "often", 4: "always"}
+    data = answers.copy()
+    data.loc[[9, 19], "a2"] = 1  # the fixture's 0s: the labels' own 0 aside
+    assert (data[ITEMS] == 5).mean().min() > 0.02
+    path = tmp_path / "shifted.sav"
+    pyreadstat.write_sav(data, str(path), variable_value_labels={c: shifted for c in ITEMS})
+    result = cfa_tool.fit(MODEL, path)
+    notes = [str(w) for w in result.warnings if "value labels of" in w or "no value label" in w]
+    assert len([n for n in notes if "value labels of" in n]) == 1
+    (note,) = [n for n in notes if "value labels of" in n]
+    assert note.startswith("shifted.sav: the value labels of 'a1', 'a2', 'a3' and 3 more name the answers 0 to 4")
+    assert "analysed as answers" in note and "missing_codes=[5]" not in " ".join(notes)
+    assert result.data.n_obs == 300
 
 
 def test_a_partner_measured_in_fractions_is_not_judged_by_the_declared_scale(answers):
