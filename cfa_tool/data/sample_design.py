@@ -845,11 +845,14 @@ def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list, l
     SampleMoments or OrdinalMoments, carrying its RowDesign; ``labels``: the groups' labels, for the cautions that
     judge each group of independent samples on its own clusters and weights)."""
     rows = sum(len(m.design.weights) for m in moments)
-    total = square = None
-    if columns.weights is not None:
-        total = sum(m.design.given[0] for m in moments)
-        square = sum(m.design.given[1] for m in moments)
-    kish = total ** 2 / square if total is not None and columns.kind is WeightKind.SAMPLING else total
+    total = sum(m.design.given[0] for m in moments) if columns.weights is not None else None
+    sampling = total is not None and columns.kind is WeightKind.SAMPLING
+    # each group's own Kish effective size: sampling weights are rescaled within each group (row_design), so the rows
+    # count as the sum of these, not as the raw weights over the whole file say (hostile s25: weights 2 in one group
+    # and 1 in the other fit as unweighted, yet 'Kish's effective N 433.3' of 480 was reported)
+    own = tuple(float(m.design.given[0] ** 2 / m.design.given[1]) if m.design.given[1] else 0.0 for m in moments) \
+        if sampling else ()
+    kish = sum(own) if sampling else total
     clusters = sum(len(np.unique(m.design.clusters)) for m in moments) if columns.cluster else None
     strata = len(pd.unique(_labels(frame[columns.strata]))) if columns.strata else None
     group_rows = tuple(len(m.design.weights) for m in moments) if len(moments) > 1 else ()
@@ -867,8 +870,7 @@ def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list, l
     labels = tuple(str(x) for x in labels) if len(moments) > 1 and len(labels) == len(moments) else ()
     per_clusters = (tuple(len(np.unique(d.clusters)) for d in designs) if labels and columns.cluster and not shared
                     else ())
-    per_effective = (tuple(float(d.given[0] ** 2 / d.given[1]) if d.given[1] else 0.0 for d in designs)
-                     if labels and columns.weights is not None and columns.kind is WeightKind.SAMPLING else ())
+    per_effective = own if labels else ()
     return SampleDesign(columns, rows, total, kish, clusters, strata, group_rows, lone, shared, across, labels,
                         per_clusters, per_effective, _similarity(moments) if columns.cluster else None)
 
