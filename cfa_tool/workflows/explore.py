@@ -664,6 +664,18 @@ class LeftOut(enum.Enum):
     HALVES_DESIGN = "cluster or strata of the halves"
 
 
+def _kept_by_filters(scan, keep):
+    """The first reading ``scan`` (data.readers.LoadedData of every row) with only the rows the row filters of
+    ``keep`` keep (text filters; a half of a halves file, drawn by another run, is left to the reading that follows),
+    by which the default items are chosen: the rows analysed, so that a filter's column, constant in them, is not
+    named as codes of two groups as it would be over every row read."""
+    from cfa_tool.data.filters import parse_filter
+    from cfa_tool.pipeline.inputs import keep_option, rows_kept
+
+    filters = [parse_filter(k) for k in keep_option(keep) if isinstance(k, str)]
+    return rows_kept(scan, filters)[0] if filters else scan
+
+
 def _default_items(first, columns: list[str], codings: tuple, design: tuple[str, ...] = (),
                    codes: tuple[float, ...] = (), id_column: str | None = None
                    ) -> tuple[tuple[str, ...], str, tuple[str, ...], tuple[tuple[str, LeftOut], ...]]:
@@ -955,8 +967,9 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     if not by_default:
         _refuse_too_few_named(chosen)
     item_note = None
-    if by_default:
-        chosen, item_note, worded, left_out = _default_items(scan, columns, codings,
+    if by_default:  # judged on the rows the row filters keep, the rows analysed (a filter's column constant in them
+        # is no code of two groups: rows-s25)
+        chosen, item_note, worded, left_out = _default_items(_kept_by_filters(scan, keep), columns, codings,
                                                              tuple(c for c in (cluster, strata) if c is not None),
                                                              api.missing_values_option(missing_codes)[0],
                                                              id_column if isinstance(id_column, str) else None)
