@@ -586,7 +586,7 @@ def declared_ranges(ranges: dict) -> tuple[DeclaredRange, ...]:
 
 
 @dataclass(frozen=True)
-class LabelledCode:
+class LabelledNoAnswer:
     """A code that an item's value label marks as no answer, by the one rule of labelled codes
     (:func:`labelled_non_answers`), whatever cells hold it: a fit keeps those of its items, as it keeps the ranges its
     file declares missing (:class:`DeclaredRange`), so that scoring other data with the fit reads the code as no
@@ -609,7 +609,7 @@ class LabelledCode:
         return {"column": self.column, "value": self.value, "label": self.label}
 
 
-def labelled_codes(frame: pd.DataFrame, value_labels: dict, skip: tuple = ()) -> tuple[LabelledCode, ...]:
+def no_answer_codes(frame: pd.DataFrame, value_labels: dict, skip: tuple = ()) -> tuple[LabelledNoAnswer, ...]:
     """The codes of ``frame``'s numeric columns whose value labels (``value_labels``) mark them as no answer, by the
     rule :func:`labelled_non_answers` reads cells by (``skip``: codes given as missing codes, left to them), whether
     or not a cell holds them."""
@@ -617,15 +617,15 @@ def labelled_codes(frame: pd.DataFrame, value_labels: dict, skip: tuple = ()) ->
     for column, labels in value_labels.items():
         if column in frame.columns and pd.api.types.is_numeric_dtype(frame[column]):
             values = frame[column].to_numpy(dtype=float, na_value=np.nan)
-            out += [LabelledCode(str(column), code, str(text))
+            out += [LabelledNoAnswer(str(column), code, str(text))
                     for code, text in sorted(_labelled_none(labels, values, skip)[0].items())]
     return tuple(out)
 
 
-def labelled_codes_from_saved(saved) -> tuple[LabelledCode, ...]:
-    """:meth:`LabelledCode.to_dict` read back (a saved fit's ``data.codes_labelled_no_answer_by_the_file``); a list
+def no_answer_codes_from_saved(saved) -> tuple[LabelledNoAnswer, ...]:
+    """:meth:`LabelledNoAnswer.to_dict` read back (a saved fit's ``data.codes_labelled_no_answer_by_the_file``); a list
     changed by hand raises KeyError, TypeError or ValueError, which the reader of the saved fit names."""
-    return tuple(LabelledCode(str(d["column"]), float(d["value"]), str(d["label"])) for d in saved or ())
+    return tuple(LabelledNoAnswer(str(d["column"]), float(d["value"]), str(d["label"])) for d in saved or ())
 
 
 def ranges_from_saved(saved) -> tuple[DeclaredRange, ...]:
@@ -645,7 +645,7 @@ class CarriedCells:
 
 
 @contextlib.contextmanager
-def fit_marked(found: tuple[NonAnswer, ...], ranges: tuple[DeclaredRange | LabelledCode, ...] = ()) -> Iterator[None]:
+def fit_marked(found: tuple[NonAnswer, ...], ranges: tuple[DeclaredRange | LabelledNoAnswer, ...] = ()) -> Iterator[None]:
     """Within: the codes that an earlier fit's data file declared missing or labelled as no answer (``found``, the
     fit's values read as no answer; those of :data:`MARKED_BY_FILE` with numbers), and every value of the ranges it
     declared missing and the codes it labelled so in its item columns, held by its rows or not (``ranges``), are read
@@ -678,9 +678,9 @@ def non_answers_from_saved(saved) -> tuple[NonAnswer, ...]:
                            None if d.get("label") is None else str(d["label"]), ()) for d in saved or ())
 
 
-def _marked_how(f: NonAnswer | DeclaredRange | LabelledCode) -> str:
+def _marked_how(f: NonAnswer | DeclaredRange | LabelledNoAnswer) -> str:
     """How a fit's data file marked the value ``f`` as no answer, in words."""
-    if isinstance(f, LabelledCode):
+    if isinstance(f, LabelledNoAnswer):
         return f"labelled it '{printable(f.label)}'"
     if isinstance(f, DeclaredRange):
         return "declared it missing" if f.low == f.high else f"declared {f.shown()} missing"
@@ -706,7 +706,7 @@ def read_fit_marked(frame: pd.DataFrame, items, source: str, value_labels: dict
                 or not pd.api.types.is_numeric_dtype(frame[f.column]):
             continue
         column = out[f.column]
-        cells = ((column >= f.low) & (column <= f.high) if isinstance(f, (DeclaredRange, LabelledCode))
+        cells = ((column >= f.low) & (column <= f.high) if isinstance(f, (DeclaredRange, LabelledNoAnswer))
                  else column == f.value).to_numpy(dtype=bool)
         if not cells.any():
             continue

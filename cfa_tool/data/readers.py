@@ -31,7 +31,7 @@ from cfa_tool.data.missing_codes import apply_missing_codes, codes_on_answers, m
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.notes_rows import end_of_data, notes_lines, notes_note
 from cfa_tool.data.non_answers import GIVEN_CODES, answers_labelled_like_none, declared_missing, declared_ranges, \
-    labelled_codes, \
+    no_answer_codes, \
     labelled_non_answers, \
     non_answer_note, fit_marked_note, read_fit_marked, run_words, says_no_answer, unused_run_words, written_non_answers
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
@@ -109,7 +109,7 @@ class LoadedData:
     #: the list keeps beside ``missing_codes`` (data.non_answers.codes_given)
     missing_words: tuple[str, ...] = ()
     #: the ranges of values an SPSS file declares missing (data.non_answers.DeclaredRange) and the codes its value
-    #: labels mark as no answer (data.non_answers.LabelledCode), held by cells or not, which a fit keeps for its items
+    #: labels mark as no answer (data.non_answers.LabelledNoAnswer), held by cells or not, which a fit keeps for its items
     #: and scoring other data with the fit reads as no answer, every value of them
     declared_ranges: tuple = ()
 
@@ -242,7 +242,7 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     before = frame
     frame, code_notes, found = apply_missing_codes(frame, missing_codes, where, mine, filters)  # in the items only
     coded = emptied_cells(before, frame) if missing_codes else ()  # (their notes written again over the rows kept)
-    kept_codes = labelled_codes(frame, item_labels, tuple(missing_codes))  # those no cell gives too: a fit keeps them
+    kept_codes = no_answer_codes(frame, item_labels, tuple(missing_codes))  # those no cell gives too: a fit keeps them
     frame, labelled = labelled_non_answers(frame, item_labels, tuple(missing_codes))
     frame, carried = read_fit_marked(frame, mine, str(where), item_labels)  # scores: what the fit's file marked
     carried_note = fit_marked_note(carried, str(where)) if carried else None
