@@ -429,8 +429,10 @@ def _scale_ends_apart(labels: tuple, own: frozenset[str]) -> tuple[tuple[float, 
     the item's labels alone (``labels``: their items; ``own``: the run's words of no answer, which decide which
     labels say no answer): items of one questionnaire share their labels, so each set is judged once (the last few
     hundred kept)."""
-    coded = sorted((float(k), v) for k, v in labels
-                   if isinstance(k, (int, float)) and not says_no_answer(v, explained=True))
+    every = dict(labels)
+    coded = sorted((float(k), v) for k, v in labels  # the codes labelled as no answer aside (loosely_none too)
+                   if isinstance(k, (int, float)) and not says_no_answer(v, explained=True)
+                   and not loosely_none(float(k), every))
     if len(coded) < 4:  # too few labels to speak of a scale of answers
         return ()
     out = []
@@ -499,7 +501,8 @@ def beyond_scale(frame: pd.DataFrame, names, value_labels: dict, rows: np.ndarra
         values = frame[column].to_numpy(dtype=float, na_value=np.nan)
         for code, text in unlabelled_extra_codes(values, labels):
             scale = sorted(float(k) for k, v in labels.items()
-                           if isinstance(k, (int, float)) and float(k) != code and not says_no_answer(v, True))
+                           if isinstance(k, (int, float)) and float(k) != code and not says_no_answer(v, True)
+                           and not loosely_none(float(k), labels))
             found.setdefault((code, text, scale[0], scale[-1]), []).append(
                 (column, tuple(int(r) for r in rows[values == code])))
     return tuple(BeyondScale(tuple(c for c, _ in held), code, text, tuple(r for _, r in held), (low, high))

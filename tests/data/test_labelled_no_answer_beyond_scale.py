@@ -122,3 +122,16 @@ def test_scoring_other_data_reads_every_code_the_fits_labels_mark(tmp_path, ride
     assert (scored.loc[:2, "comfort_items_answered"] == 3).all()  # clean (the sixth item) left unanswered
     saved = json.loads((tmp_path / "fit.json").read_text())["data"]
     assert {d["column"] for d in saved["codes_labelled_no_answer_by_the_file"]} == set(items)
+
+
+def test_a_code_beyond_the_scale_is_named_against_the_answers_alone():
+    """The caution on a labelled code beyond the answers (6 'Something else' beside 1 to 5, analysed as an answer)
+    names the scale of the answers, not one that a code read as no answer (97 'REFUSED (VOL)') stretches to 97."""
+    from cfa_tool.data.non_answers import beyond_scale
+
+    labels = {**SCALE, 6.0: "Something else", 97.0: "REFUSED (VOL)"}
+    frame = pd.DataFrame({"q": [1.0, 2.0, 3.0, 4.0, 5.0, 6.0, 6.0, 97.0]})
+    out, found = labelled_non_answers(frame, {"q": labels})
+    assert [(f.value, f.rows) for f in found] == [(97.0, (7,))] and out["q"].isna().sum() == 1
+    named = beyond_scale(out, ["q"], {"q": labels}, np.arange(2, 10))
+    assert [(b.value, b.scale, b.rows) for b in named] == [(6.0, (1.0, 5.0), ((7, 8),))]
