@@ -351,11 +351,10 @@ def between_answers(code: float, labels: dict, present=(), skip=()) -> bool:
     """Whether ``code`` lies between the answers of an item: a lower and a higher code are answers, either
     labelled so (a value label, ``labels``, that does not say no answer) or answered (a value ``present`` in the
     item without a label; a lone 9, 99, 999 aside, which data programs write for no answer, as the nines of
-    data.odd_values.code_like: its negative codes are answers of scales such as -2 to 2 here); codes in ``skip`` (given as missing codes) are no answers, and so are
-    codes labelled with a phrase of no answer among other words beyond the scale (:func:`loosely_none`: 97 'REFUSED
-    (VOL)' and 99 'Not applicable - skipped' leave 98 "Don't know" outside the answers 1 to 5).  The one rule of a
-    labelled code on the
-    answer scale: such a code is an answer whatever its label's words or their order ('Not sure / neutral' and
+    data.odd_values.code_like: its negative codes are answers of scales such as -2 to 2 here); codes in ``skip``
+    (given as missing codes) are no answers, and so are codes labelled with a phrase of no answer among other words
+    beyond the scale (:func:`loosely_none`: 97 'REFUSED (VOL)' and 99 'Not applicable - skipped' leave 98 "Don't
+    know" outside the answers 1 to 5).  The one rule of a labelled code on the answer scale: such a code is an answer whatever its label's words or their order ('Not sure / neutral' and
     'Neutral / not sure' alike, :func:`labelled_non_answers`), and a missing code given for it is said first
     (data.missing_codes.codes_on_answers); codes outside the answers (8, 9, 99, -1) labelled as no answer stay no
     answer.  The project's own rule (a code labelled as the midpoint of a scale is analysed as an answer unless the
