@@ -29,7 +29,11 @@ def run(args: argparse.Namespace) -> int:
                          args.population_from)
     frame = simulated.frame
     # the model's names as written, never given the formula guard of report tables: the file is read back with the
-    # same model file (a name '-a' written "'-a" was no column of it; hostile trial s17, finding 3's neighbour)
-    rows = ("--output", frame.to_csv(index=False, na_rep=""),
-            f"{len(frame)} rows of {frame.shape[1]} variables written to {args.output} (seed {args.seed})")
+    # same model file (a name '-a' written "'-a" was no column of it; hostile trial s17, finding 3's neighbour); in
+    # the convention of the earlier fit's data file (--population-from), commas and points without one
+    convention = simulated.population.csv_convention
+    rows = ("--output", convention.file_text(frame.to_csv(index=False, na_rep="", sep=convention.separator,
+                                                          decimal=convention.decimal)),
+            f"{len(frame)} rows of {frame.shape[1]} variables written to {args.output} (seed {args.seed})"
+            + (f"; {convention.said()}" if not convention.plain() else ""))
     return emit_report(args, simulated, inputs_of(args), first=[rows])

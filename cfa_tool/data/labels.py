@@ -470,17 +470,21 @@ def refuse_moved_labels(fitted: dict | None, value_labels: dict, items, source: 
 
 def _codes_by_label(labels: dict | None) -> dict[str, tuple[str, float]]:
     """{label as compared (:func:`label_text`, case aside): (label, code)} of one item's numeric codes whose label no
-    other code carries and does not say no answer; codes written as text ('1.0', as a fit's JSON keeps them) read as
+    other code carries and does not say no answer (data.non_answers.says_no_answer, loosely_none); codes written as text ('1.0', as a fit's JSON keeps them) read as
     numbers."""
-    from cfa_tool.data.non_answers import says_no_answer
+    from cfa_tool.data.non_answers import loosely_none, says_no_answer
     from cfa_tool.numbers import number
 
     found: dict[str, list[tuple[str, float]]] = {}
+    numeric = {}
     for code, text in (labels or {}).items():
         value = number(code) if isinstance(code, str) else code
-        if isinstance(value, (int, float)) and not isinstance(value, bool) and isinstance(text, str) and text.strip() \
-                and not says_no_answer(text, explained=True):
-            found.setdefault(label_text(text).casefold(), []).append((text, float(value)))
+        if isinstance(value, (int, float)) and not isinstance(value, bool):
+            numeric[float(value)] = text
+    for value, text in numeric.items():
+        if isinstance(text, str) and text.strip() and not says_no_answer(text, explained=True) \
+                and not loosely_none(value, numeric):
+            found.setdefault(label_text(text).casefold(), []).append((text, value))
     return {key: codes[0] for key, codes in found.items() if len(codes) == 1}
 
 

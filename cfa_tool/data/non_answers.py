@@ -185,12 +185,53 @@ def _says(text: str, explained: bool, own: frozenset[str]) -> bool:
     if text.strip() in NON_ANSWER_MARKS:
         return True
     phrases = NON_ANSWER_PHRASES | own if own else NON_ANSWER_PHRASES
-    if _plain(text) in phrases:
+    if _plain_kept(text) in phrases:
         return True
     parts = [p for p in _parts(text) if p]
     if not parts:
         return False
     return all(p in phrases for p in parts) or (explained and len(parts) > 1 and any(p in phrases for p in parts))
+
+
+@functools.lru_cache(maxsize=4096)
+def _plain_kept(text: str) -> str:
+    """:func:`_plain` of a whole label or cell, kept for the last few thousand texts: :func:`_says` and
+    :func:`_holds_phrase` read each once."""
+    return _plain(text)
+
+
+@functools.lru_cache(maxsize=4096)
+def _holds_phrase(text: str, own: frozenset[str]) -> bool:
+    """Whether a phrase of no answer (or of the run's words ``own``) stands among the words of ``text`` as whole words
+    ('REFUSED (VOL)', 'Not applicable - question skipped', 'DK (do not read)'): :func:`loosely_none` reads a code so
+    labelled beyond an item's answers as no answer."""
+    plain = f" {_plain_kept(text)} "
+    return any(f" {phrase} " in plain for phrase in (NON_ANSWER_PHRASES | own if own else NON_ANSWER_PHRASES))
+
+
+def loosely_none(code: float, labels: dict, present=(), skip=()) -> bool:
+    """Whether the labelled code ``code`` of an item is no answer by the two pieces of evidence a file gives beside
+    exact words (:func:`says_no_answer`): its label holds a phrase of no answer among other words ('REFUSED (VOL)',
+    'Not applicable - question skipped', "Don't know (do not read)"), and the code lies beyond the item's answer scale
+    by more than the scale's step: above its highest or below its lowest answer (the codes labelled without any such
+    phrase, and the values the item holds unlabelled, ``present``, a lone 9, 99, 999 aside), farther from it than its
+    answers are from each other (97, 98 and 99 beside 1 to 5; -1 beside 1 to 5; codes in ``skip``, given as missing
+    codes, aside).  A label of such words one step from the scale's end ('Never skip' at 1 of 1 to 5, 6 "Don't know
+    (VOL)" beside 1 to 5) stays an answer, as a code between answers does (:func:`between_answers`): the project's
+    own rule (common practice of reading survey codebooks), not a published one; the reading note names each code and
+    label read so, and another value label in a copy of the file keeps a code as an answer."""
+    text = labels.get(code)
+    own = _RUN_WORDS.get().phrases
+    if not isinstance(text, str) or says_no_answer(text, explained=True) or not _holds_phrase(text, own):
+        return False
+    scale = {float(k) for k, v in labels.items() if isinstance(k, (int, float)) and not isinstance(k, bool)
+             and not (isinstance(v, str) and _holds_phrase(v, own))}
+    scale |= {float(v) for v in present if v not in labels and not _nines(float(v))}
+    scale = sorted(v for v in scale - set(skip) - {code} if math.isfinite(v))
+    if len(scale) < 2:  # no answer scale to lie beyond
+        return False
+    step = float(np.diff(scale).min())
+    return code > scale[-1] + step * (1 + 1e-9) or code < scale[0] - step * (1 + 1e-9)
 
 
 def _parts(text: str) -> list[str]:
@@ -295,25 +336,31 @@ def _labelled_none(labels: dict, values: np.ndarray, skip=()) -> tuple[dict, dic
     between the item's answers and so kept as answers)."""
     said = {code: text for code, text in labels.items()
             if isinstance(code, float) and code not in skip and says_no_answer(text, explained=True)}
-    if not said:
+    own = _RUN_WORDS.get().phrases
+    worded = [code for code, text in labels.items() if isinstance(code, float) and code not in skip
+              and code not in said and isinstance(text, str) and _holds_phrase(text, own)]
+    if not said and not worded:
         return {}, {}
     present = np.unique(values[np.isfinite(values)]).tolist()
     kept = {code: text for code, text in said.items() if between_answers(code, labels, present, skip)}
-    return {c: t for c, t in said.items() if c not in kept}, kept
+    beyond = {code: labels[code] for code in worded if loosely_none(code, labels, present, skip)}
+    return {c: t for c, t in said.items() if c not in kept} | beyond, kept
 
 
 def between_answers(code: float, labels: dict, present=(), skip=()) -> bool:
     """Whether ``code`` lies between the answers of an item: a lower and a higher code are answers, either
     labelled so (a value label, ``labels``, that does not say no answer) or answered (a value ``present`` in the
     item without a label; a lone 9, 99, 999 aside, which data programs write for no answer, as the nines of
-    data.odd_values.code_like: its negative codes are answers of scales such as -2 to 2 here); codes in ``skip`` (given as missing codes) are no answers.  The one rule of a labelled code on the
-    answer scale: such a code is an answer whatever its label's words or their order ('Not sure / neutral' and
+    data.odd_values.code_like: its negative codes are answers of scales such as -2 to 2 here); codes in ``skip``
+    (given as missing codes) are no answers, and so are codes labelled with a phrase of no answer among other words
+    beyond the scale (:func:`loosely_none`: 97 'REFUSED (VOL)' and 99 'Not applicable - skipped' leave 98 "Don't
+    know" outside the answers 1 to 5).  The one rule of a labelled code on the answer scale: such a code is an answer whatever its label's words or their order ('Not sure / neutral' and
     'Neutral / not sure' alike, :func:`labelled_non_answers`), and a missing code given for it is said first
     (data.missing_codes.codes_on_answers); codes outside the answers (8, 9, 99, -1) labelled as no answer stay no
     answer.  The project's own rule (a code labelled as the midpoint of a scale is analysed as an answer unless the
     researcher says otherwise), not a published one."""
     answers = [float(k) for k, v in labels.items() if isinstance(k, (int, float)) and not isinstance(k, bool)
-               and not says_no_answer(v, explained=True)]
+               and not says_no_answer(v, explained=True) and not loosely_none(float(k), labels, present, skip)]
     answers += [float(v) for v in present if v not in labels and not _nines(float(v))]
     answers = [a for a in answers if a not in skip and a != code]
     return any(a < code for a in answers) and any(a > code for a in answers)
@@ -381,8 +428,10 @@ def _scale_ends_apart(labels: tuple, own: frozenset[str]) -> tuple[tuple[float, 
     the item's labels alone (``labels``: their items; ``own``: the run's words of no answer, which decide which
     labels say no answer): items of one questionnaire share their labels, so each set is judged once (the last few
     hundred kept)."""
-    coded = sorted((float(k), v) for k, v in labels
-                   if isinstance(k, (int, float)) and not says_no_answer(v, explained=True))
+    every = dict(labels)
+    coded = sorted((float(k), v) for k, v in labels  # the codes labelled as no answer aside (loosely_none too)
+                   if isinstance(k, (int, float)) and not says_no_answer(v, explained=True)
+                   and not loosely_none(float(k), every))
     if len(coded) < 4:  # too few labels to speak of a scale of answers
         return ()
     out = []
@@ -451,7 +500,8 @@ def beyond_scale(frame: pd.DataFrame, names, value_labels: dict, rows: np.ndarra
         values = frame[column].to_numpy(dtype=float, na_value=np.nan)
         for code, text in unlabelled_extra_codes(values, labels):
             scale = sorted(float(k) for k, v in labels.items()
-                           if isinstance(k, (int, float)) and float(k) != code and not says_no_answer(v, True))
+                           if isinstance(k, (int, float)) and float(k) != code and not says_no_answer(v, True)
+                           and not loosely_none(float(k), labels))
             found.setdefault((code, text, scale[0], scale[-1]), []).append(
                 (column, tuple(int(r) for r in rows[values == code])))
     return tuple(BeyondScale(tuple(c for c, _ in held), code, text, tuple(r for _, r in held), (low, high))
@@ -537,6 +587,49 @@ def declared_ranges(ranges: dict) -> tuple[DeclaredRange, ...]:
     return tuple(out)
 
 
+@dataclass(frozen=True)
+class LabelledNoAnswer:
+    """A code that an item's value label marks as no answer, by the one rule of labelled codes
+    (:func:`labelled_non_answers`), whatever cells hold it: a fit keeps those of its items, as it keeps the ranges its
+    file declares missing (:class:`DeclaredRange`), so that scoring other data with the fit reads the code as no
+    answer where the fit's own rows never gave it (8 'Refused' labelled in every item, given in some: an export of the
+    same survey without its labels scored an 8 of another item as an answer)."""
+
+    column: str
+    value: float
+    label: str
+
+    @property
+    def low(self) -> float:
+        return self.value
+
+    @property
+    def high(self) -> float:
+        return self.value
+
+    def to_dict(self) -> dict:
+        return {"column": self.column, "value": self.value, "label": self.label}
+
+
+def no_answer_codes(frame: pd.DataFrame, value_labels: dict, skip: tuple = ()) -> tuple[LabelledNoAnswer, ...]:
+    """The codes of ``frame``'s numeric columns whose value labels (``value_labels``) mark them as no answer, by the
+    rule :func:`labelled_non_answers` reads cells by (``skip``: codes given as missing codes, left to them), whether
+    or not a cell holds them."""
+    out = []
+    for column, labels in value_labels.items():
+        if column in frame.columns and pd.api.types.is_numeric_dtype(frame[column]):
+            values = frame[column].to_numpy(dtype=float, na_value=np.nan)
+            out += [LabelledNoAnswer(str(column), code, str(text))
+                    for code, text in sorted(_labelled_none(labels, values, skip)[0].items())]
+    return tuple(out)
+
+
+def no_answer_codes_from_saved(saved) -> tuple[LabelledNoAnswer, ...]:
+    """:meth:`LabelledNoAnswer.to_dict` read back (a saved fit's ``data.codes_labelled_no_answer_by_the_file``); a list
+    changed by hand raises KeyError, TypeError or ValueError, which the reader of the saved fit names."""
+    return tuple(LabelledNoAnswer(str(d["column"]), float(d["value"]), str(d["label"])) for d in saved or ())
+
+
 def ranges_from_saved(saved) -> tuple[DeclaredRange, ...]:
     """:meth:`DeclaredRange.to_dict` read back (a saved fit's ``data.missing_ranges_declared_by_the_file``); a list
     changed by hand raises KeyError, TypeError or ValueError, which the reader of the saved fit names."""
@@ -554,10 +647,11 @@ class CarriedCells:
 
 
 @contextlib.contextmanager
-def fit_marked(found: tuple[NonAnswer, ...], ranges: tuple[DeclaredRange, ...] = ()) -> Iterator[None]:
+def fit_marked(found: tuple[NonAnswer, ...], ranges: tuple[DeclaredRange | LabelledNoAnswer, ...] = ()) -> Iterator[None]:
     """Within: the codes that an earlier fit's data file declared missing or labelled as no answer (``found``, the
     fit's values read as no answer; those of :data:`MARKED_BY_FILE` with numbers), and every value of the ranges it
-    declared missing in its item columns (``ranges``), are read as no answer in the same item columns of the data read
+    declared missing and the codes it labelled so in its item columns, held by its rows or not (``ranges``), are read
+    as no answer in the same item columns of the data read
     (:func:`read_fit_marked`): scores of another file with the fit (an export of the same survey without the
     declarations, say) treat as missing what the fit did."""
     token = _FIT_MARKED.set((tuple(f for f in found if f.kind in MARKED_BY_FILE and isinstance(f.value, float)),
@@ -586,8 +680,10 @@ def non_answers_from_saved(saved) -> tuple[NonAnswer, ...]:
                            None if d.get("label") is None else str(d["label"]), ()) for d in saved or ())
 
 
-def _marked_how(f: NonAnswer | DeclaredRange) -> str:
+def _marked_how(f: NonAnswer | DeclaredRange | LabelledNoAnswer) -> str:
     """How a fit's data file marked the value ``f`` as no answer, in words."""
+    if isinstance(f, LabelledNoAnswer):
+        return f"labelled it '{printable(f.label)}'"
     if isinstance(f, DeclaredRange):
         return "declared it missing" if f.low == f.high else f"declared {f.shown()} missing"
     if f.kind is NonAnswerKind.DECLARED:
@@ -612,14 +708,17 @@ def read_fit_marked(frame: pd.DataFrame, items, source: str, value_labels: dict
                 or not pd.api.types.is_numeric_dtype(frame[f.column]):
             continue
         column = out[f.column]
-        cells = ((column >= f.low) & (column <= f.high) if isinstance(f, DeclaredRange)
+        cells = ((column >= f.low) & (column <= f.high) if isinstance(f, (DeclaredRange, LabelledNoAnswer))
                  else column == f.value).to_numpy(dtype=bool)
         if not cells.any():
             continue
         taken = np.asarray(column.to_numpy(dtype=float)[cells])
+        own = value_labels.get(f.column) or {}
+        present = np.unique(column.to_numpy(dtype=float, na_value=np.nan)).tolist()
         for value in np.unique(taken):
-            label = (value_labels.get(f.column) or {}).get(float(value))
-            if label is not None and not says_no_answer(label, explained=True):
+            label = own.get(float(value))
+            if label is not None and not says_no_answer(label, explained=True) \
+                    and not loosely_none(float(value), own, [v for v in present if math.isfinite(v)]):
                 raise DataError(f"{base_name(source)}: column '{printable(f.column)}' labels {user_number(value)} "
                                 f"'{printable(label)}', an answer, but the earlier fit read {user_number(value)} as "
                                 f"no answer (its data file {_marked_how(f)}): the two files code the answers "
@@ -790,7 +889,7 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | Non
         parts.append(f"{group[0].shown()} ({counted(cells, 'cell')}: {listed})")
     total = sum(len(f.rows) for f in mine)
     kinds = {f.kind for f in mine}
-    how = " and ".join(w for k, w in ((NonAnswerKind.LABELLED, "labels as no answer"),
+    how = " or ".join(w for k, w in ((NonAnswerKind.LABELLED, "labels as no answer"),
                                       (NonAnswerKind.DECLARED, "declares as missing values"),
                                       (NonAnswerKind.WRITTEN, "writes as no answer")) if k in kinds)
     held = "text that says no answer" if frame else f"values that the file {how}"

@@ -31,6 +31,7 @@ from cfa_tool.data.missing_codes import apply_missing_codes, codes_on_answers, m
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.notes_rows import end_of_data, notes_lines, notes_note
 from cfa_tool.data.non_answers import GIVEN_CODES, answers_labelled_like_none, declared_missing, declared_ranges, \
+    no_answer_codes, \
     labelled_non_answers, \
     non_answer_note, fit_marked_note, read_fit_marked, run_words, says_no_answer, unused_run_words, written_non_answers
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
@@ -107,8 +108,9 @@ class LoadedData:
     #: the words given with --missing-codes (data.non_answers.run_words, as given), which advice that adds a code to
     #: the list keeps beside ``missing_codes`` (data.non_answers.codes_given)
     missing_words: tuple[str, ...] = ()
-    #: the ranges of values an SPSS file declares missing (data.non_answers.DeclaredRange), which a fit keeps for its
-    #: items and scoring other data with the fit reads as no answer, every value of them
+    #: the ranges of values an SPSS file declares missing (data.non_answers.DeclaredRange) and the codes its value
+    #: labels mark as no answer (data.non_answers.LabelledNoAnswer), held by cells or not, which a fit keeps for its items
+    #: and scoring other data with the fit reads as no answer, every value of them
     declared_ranges: tuple = ()
 
     def column_hint(self) -> str:
@@ -240,6 +242,7 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     before = frame
     frame, code_notes, found = apply_missing_codes(frame, missing_codes, where, mine, filters)  # in the items only
     coded = emptied_cells(before, frame) if missing_codes else ()  # (their notes written again over the rows kept)
+    kept_codes = no_answer_codes(frame, item_labels, tuple(missing_codes))  # those no cell gives too: a fit keeps them
     frame, labelled = labelled_non_answers(frame, item_labels, tuple(missing_codes))
     frame, carried = read_fit_marked(frame, mine, str(where), item_labels)  # scores: what the fit's file marked
     carried_note = fit_marked_note(carried, str(where)) if carried else None
@@ -249,6 +252,8 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
     if on_answers:
         loaded = replace(loaded, cautions=loaded.cautions + on_answers)
+    if kept_codes:
+        loaded = replace(loaded, declared_ranges=tuple(dict.fromkeys(loaded.declared_ranges + kept_codes)))
     read_as_none = non_answer_note(loaded.non_answers, str(where), mine)  # a note; rows lost: a caution too
     if read_as_none:
         code_notes = tuple(code_notes) + (read_as_none,)
@@ -259,7 +264,7 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     unused_note = missing_codes_note(where, unused, [], "of the items") if unused else None
     if unused_note is not None:  # the words of --missing-codes that no item holds: said as a code that no cell holds is
         code_notes = tuple(code_notes) + (unused_note,)
-    markers = loaded.frame.attrs.get(MARKER_CELLS)  # the reader's note on 'NA', '.': (note, {marker: rows})
+    markers = _marker_cells(loaded.frame)  # the reader's note on 'NA', '.': (note, {marker: rows})
     if markers and mine is not None and any(n is markers[0] for n in loaded.notes):
         markers, loaded = _markers_in_items(loaded, markers, mine)
     # the notes that count cells, kept with what they counted: written again over the rows analysed (row filters,
@@ -542,14 +547,12 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
     _padded_as_shown(ws, body, kept, header, skipped, items, where, notes)
     marked: dict[int, dict[str, int]] = {}  # column position -> {marker: cells}, counted once
-    marker_rows: dict[str, list[int]] = {}  # marker -> the body's row of each such cell
     column_rows: dict[int, dict[str, list[int]]] = {}  # column position -> {marker: the body's rows}
     for i, r in enumerate(body):
         for k, v in enumerate(r):
             if isinstance(v, str) and v.strip() in _MARKER_SET:
                 counted = marked.setdefault(k, {})
                 counted[v.strip()] = counted.get(v.strip(), 0) + 1
-                marker_rows.setdefault(v.strip(), []).append(i)
                 column_rows.setdefault(k, {}).setdefault(v.strip(), []).append(i)
                 r[k] = None
     said = _say_markers(_marker_totals(marked.values()), where, notes)
@@ -560,7 +563,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     if marked:
         frame.attrs[MARKED] = {header[k]: counted for k, counted in marked.items()}
     if said is not None:
-        frame.attrs[MARKER_CELLS] = (said, {m: frame.index[rows].to_numpy() for m, rows in marker_rows.items()})
+        frame.attrs[MARKER_CELLS] = said
         frame.attrs[MARKER_COLUMN_ROWS] = {header[k]: {m: frame.index[rows].to_numpy() for m, rows in by.items()}
                                            for k, by in column_rows.items()}
     _check_formula_errors(frame, where, items, _typed_errors(frame, ws))
@@ -2122,7 +2125,6 @@ def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list
         return
     cells = raw.frame()
     marked = {}  # column -> {marker: cells}, counted once for the note and the column's record
-    marker_rows: dict[str, list] = {}  # marker -> the row (index label) of each such cell
     column_rows: dict[str, dict[str, list]] = {}  # column -> {marker: the rows (index labels) of its cells}
     for k, name in enumerate(header):
         stripped = cells.iloc[:, k].str.strip()
@@ -2131,13 +2133,12 @@ def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list
         if len(counted):
             marked[name] = {str(m): int(n) for m, n in counted.items()}
             for label, m in held.items():
-                marker_rows.setdefault(str(m), []).append(label)
                 column_rows.setdefault(name, {}).setdefault(str(m), []).append(label)
     said = _say_markers(_marker_totals(marked.values()), path, notes)
     if frame is not None and marked:
         frame.attrs[MARKED] = marked
         if said is not None and len(cells) == len(frame):
-            frame.attrs[MARKER_CELLS] = (said, {m: np.asarray(rows) for m, rows in marker_rows.items()})
+            frame.attrs[MARKER_CELLS] = said
             frame.attrs[MARKER_COLUMN_ROWS] = {name: {m: np.asarray(rows) for m, rows in by.items()}
                                                for name, by in column_rows.items()}
 
@@ -2145,14 +2146,32 @@ def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list
 #: the key of DataFrame.attrs that keeps, for each column, the markers of no answer its cells were written as and
 #: how many ({column: {marker: cells}}): a group column's note names them (cfa_tool.data.labels.label_notes)
 MARKED = "marked_no_answer"
-#: the key of DataFrame.attrs that keeps the reader's note on cells written as markers of no answer and the rows
-#: (index labels, an array: the attrs are copied with every frame made from this one) of those cells, one per cell,
-#: for each marker: (note, {marker: rows}), by which the note is counted again over the rows analysed
-#: (data.kept_counts.ReadingCounts)
+#: the key of DataFrame.attrs that keeps the reader's note on cells written as markers of no answer; the rows of those
+#: cells are :data:`MARKER_COLUMN_ROWS`'s, the one record of them (:func:`_marker_cells`)
 MARKER_CELLS = "marker_cells"
-#: the key of DataFrame.attrs that keeps the same rows column by column ({column: {marker: rows}}), by which the note
-#: counts the model's item columns alone (newuser s24: 'n/a' in a comment column was counted as items' gaps)
+#: the key of DataFrame.attrs that keeps the rows (index labels, an array: the attrs are copied with every frame made
+#: from this one) of the cells written as markers of no answer, one per cell, column by column ({column: {marker:
+#: rows}}), by which the note is counted again over the model's item columns alone (newuser s24: 'n/a' in a comment
+#: column was counted as items' gaps) and over the rows analysed (data.kept_counts.ReadingCounts)
 MARKER_COLUMN_ROWS = "marker_column_rows"
+
+
+def _rows_by_marker(by_column) -> dict[str, np.ndarray]:
+    """{marker: the rows of its cells, one per cell} of the columns' records ``by_column`` ({marker: rows} each, of
+    :data:`MARKER_COLUMN_ROWS`), in the order of MISSING_MARKERS."""
+    by_column = list(by_column)
+    return {m: np.concatenate([by[m] for by in by_column if m in by]) for m in MISSING_MARKERS
+            if any(m in by for by in by_column)}
+
+
+def _marker_cells(frame: pd.DataFrame) -> tuple | None:
+    """The reader's note on cells written as markers of no answer with the rows of those cells for each marker
+    (note, {marker: rows}), from the frame's one record of them (:data:`MARKER_CELLS`, :data:`MARKER_COLUMN_ROWS`);
+    None when the reader wrote no such note."""
+    note, by_column = frame.attrs.get(MARKER_CELLS), frame.attrs.get(MARKER_COLUMN_ROWS)
+    if note is None or by_column is None:
+        return None
+    return note, _rows_by_marker(by_column.values())
 
 
 def _markers_in_items(loaded: LoadedData, markers: tuple, items: set[str]) -> tuple[tuple | None, LoadedData]:
@@ -2163,9 +2182,7 @@ def _markers_in_items(loaded: LoadedData, markers: tuple, items: set[str]) -> tu
     by_column = loaded.frame.attrs.get(MARKER_COLUMN_ROWS)
     if by_column is None:
         return markers, loaded
-    found = [by for column, by in by_column.items() if str(column) in items]
-    rows = {m: np.concatenate([by[m] for by in found if m in by]) for m in MISSING_MARKERS
-            if any(m in by for by in found)}
+    rows = _rows_by_marker(by for column, by in by_column.items() if str(column) in items)
     totals = {m: len(r) for m, r in rows.items()}
     if totals == {m: len(r) for m, r in markers[1].items()}:
         return markers, loaded  # every marked cell is an item's

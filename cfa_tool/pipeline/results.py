@@ -277,7 +277,8 @@ class DataSummary:
     # (data.non_answers.NonAnswer): the methods paragraph names them
     non_answers: tuple = ()
     # the ranges of values the data file declares missing in the model's items (data.non_answers.DeclaredRange: SPSS
-    # '90 thru 99'), every value of which scoring other data with this fit reads as no answer
+    # '90 thru 99') and the codes its value labels mark as no answer there (data.non_answers.LabelledNoAnswer), held by
+    # the rows or not, every value of which scoring other data with this fit reads as no answer
     declared_ranges: tuple = ()
     # summary statistics: which matrix was analysed (data.summary_stats.AnalysedMatrix); None for rows of answers
     analysed: object | None = None
@@ -368,7 +369,14 @@ class DataSummary:
             if marked:
                 out["marked_no_answer_by_the_file"] = clean(marked)
         if self.declared_ranges:
-            out["missing_ranges_declared_by_the_file"] = clean([r.to_dict() for r in self.declared_ranges])
+            from cfa_tool.data.non_answers import LabelledNoAnswer
+
+            for key, kept in (("missing_ranges_declared_by_the_file",
+                               [r for r in self.declared_ranges if not isinstance(r, LabelledNoAnswer)]),
+                              ("codes_labelled_no_answer_by_the_file",
+                               [r for r in self.declared_ranges if isinstance(r, LabelledNoAnswer)])):
+                if kept:
+                    out[key] = clean([r.to_dict() for r in kept])
         if self.reading is not None:
             out["reading"] = clean(self.reading.to_dict())
         if self.renamed:

@@ -98,22 +98,32 @@ SCALED_RMSEA = ("population-corrected, of maximum likelihood on the polychoric c
 
 
 def fits_table(result) -> ReportTable:
-    rows = []
+    """The fit of each solution tried: its chi-square test and RMSEA interval as one cell each for reading, and for the
+    data files (CSV) as numbers in columns of their own (the chi-square, its df and p, the RMSEA and its bounds), which
+    are written in the data file's decimal mark like every other number (hostile trial s24b, case 05: those cells were
+    text of decimal points beside decimal commas in the same rows)."""
+    rows, values = [], []
     scaled = _scaled(result)
     improper = any(step.improper for step in result.fits)  # a Problem column only where a solution has one
     for step in result.fits:
         f = step.solution.fit
         low, high = f.rmsea_ci90
-        test = "no test" if f.df == 0 else f"{f.chi_square:.3f} on {f.df} df, p {T.p_phrase(f.p_value)}"
-        rows.append([str(step.factors), test, "" if f.df == 0 else f"{unit(f.rmsea)} [{unit(low)}, {unit(high)}]",
-                     *([] if scaled else [num(f.bic, 1)]), unit(f.srmr)] + (["Heywood case" if step.improper else ""]
-                                                                         if improper else []))
-    return _table("solution_fits", "Fit of maximum-likelihood solutions with 1 to K + 2 factors",
-                  [("Factors", "r"), ("Scaled chi-square" if scaled else "Chi-square", "r"),
-                   ("RMSEA [90% interval]", "r"), *([] if scaled else [("BIC", "r")]), ("SRMR", "r"),
-                   *([("Problem", "l")] if improper else [])], rows,
+        tested = f.df != 0
+        test = f"{f.chi_square:.3f} on {f.df} df, p {T.p_phrase(f.p_value)}" if tested else "no test"
+        problem = ["Heywood case" if step.improper else ""] if improper else []
+        rows.append([str(step.factors), test, f"{unit(f.rmsea)} [{unit(low)}, {unit(high)}]" if tested else "",
+                     *([] if scaled else [num(f.bic, 1)]), unit(f.srmr)] + problem)
+        values.append([step.factors, *((f.chi_square, f.df, f.p_value, f.rmsea, low, high) if tested else
+                                       (None, f.df, None, None, None, None)),
+                       *([] if scaled else [f.bic]), f.srmr] + problem)
+    chi_square = "Scaled chi-square" if scaled else "Chi-square"
+    columns = [("Factors", "r"), (chi_square, "r"), ("RMSEA [90% interval]", "r"), *([] if scaled else [("BIC", "r")]),
+               ("SRMR", "r"), *([("Problem", "l")] if improper else [])]
+    value_columns = ["Factors", chi_square, "df", "p", "RMSEA", "RMSEA 90% lower", "RMSEA 90% upper",
+                     *([] if scaled else ["BIC"]), "SRMR", *(["Problem"] if improper else [])]
+    return _table("solution_fits", "Fit of maximum-likelihood solutions with 1 to K + 2 factors", columns, rows,
                   f"{SCALED_NOTE} {GUIDE_NOTE}" if scaled else GUIDE_NOTE,
-                  flagged=tuple(i for i, s in enumerate(result.fits) if s.improper))
+                  flagged=tuple(i for i, s in enumerate(result.fits) if s.improper), values=(value_columns, values))
 
 
 def _faint(matrix: np.ndarray, threshold: float, offset: int = 1) -> tuple[tuple[int, int], ...]:

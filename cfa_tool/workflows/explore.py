@@ -664,6 +664,29 @@ class LeftOut(enum.Enum):
     HALVES_DESIGN = "cluster or strata of the halves"
 
 
+def _kept_by_filters(scan, keep):
+    """The first reading ``scan`` (data.readers.LoadedData of every row) with only the rows the row filters of
+    ``keep`` keep (text filters; a half of a halves file, drawn by another run, is left to the reading that follows),
+    by which the items are chosen and judged: the rows analysed, so that a filter's column, constant in them, is not
+    named as codes of two groups as it would be over every row read, and a word in a row left out (a column of text
+    in the rows read, of numbers in those kept) neither leaves out nor refuses the item."""
+    from cfa_tool.data.filters import parse_filter
+    from cfa_tool.pipeline.inputs import keep_option, rows_kept
+
+    filters = [parse_filter(k) for k in keep_option(keep) if isinstance(k, str)]
+    if not filters:
+        return scan
+    kept = rows_kept(scan, filters)[0]
+    numbers = {}  # columns of text only for a word in rows left out: numbers in the rows analysed
+    for column in kept.frame.columns:
+        if kept.frame[column].dtype == object or pd.api.types.is_string_dtype(kept.frame[column]):
+            try:
+                numbers[column] = pd.to_numeric(kept.frame[column])
+            except (ValueError, TypeError):
+                continue
+    return replace(kept, frame=kept.frame.assign(**numbers)) if numbers else kept
+
+
 def _default_items(first, columns: list[str], codings: tuple, design: tuple[str, ...] = (),
                    codes: tuple[float, ...] = (), id_column: str | None = None
                    ) -> tuple[tuple[str, ...], str, tuple[str, ...], tuple[tuple[str, LeftOut], ...]]:
@@ -955,15 +978,18 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     if not by_default:
         _refuse_too_few_named(chosen)
     item_note = None
+    # the items are chosen and judged on the rows the row filters keep, the rows analysed (rows-s25: a filter's column
+    # constant in them was named as codes of two groups, a word in a row left out refused an item named)
+    kept = _kept_by_filters(scan, keep)
     if by_default:
-        chosen, item_note, worded, left_out = _default_items(scan, columns, codings,
+        chosen, item_note, worded, left_out = _default_items(kept, columns, codings,
                                                              tuple(c for c in (cluster, strata) if c is not None),
                                                              api.missing_values_option(missing_codes)[0],
                                                              id_column if isinstance(id_column, str) else None)
         _refuse_too_few(chosen, scan, codings)
     spec = _explored_spec(chosen, codings, answers, worded if by_default else None)
     if not by_default:
-        _refuse_text_items(scan.frame.set_axis(columns, axis=1), chosen, source, codings,
+        _refuse_text_items(kept.frame.set_axis(columns, axis=1), chosen, source, codings,
                            sum(api.missing_values_option(missing_codes), ()) + run_words())
     spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, missing_codes, api.keep_option(keep),
                                                      (id_column,) if isinstance(id_column, str) else (),

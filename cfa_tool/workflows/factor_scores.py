@@ -1386,7 +1386,7 @@ def read_saved_fit(path) -> SavedFit:
     from cfa_tool.assessment.admissibility import saved_fit_problems
     from cfa_tool.data.answer_words import coding_from_json
     from cfa_tool.data.missing_codes import codes_and_words
-    from cfa_tool.data.non_answers import non_answers_from_saved, ranges_from_saved
+    from cfa_tool.data.non_answers import no_answer_codes_from_saved, non_answers_from_saved, ranges_from_saved
     from cfa_tool.input_files import input_json
     from cfa_tool.model.saved_estimates import saved_fit_payload, saved_rows
     from cfa_tool.pipeline.results import DataSummary, saved_categories
@@ -1414,7 +1414,8 @@ def read_saved_fit(path) -> SavedFit:
                               missing_codes=codes_and_words(d.get("missing_codes", ()))[0],
                               no_answer_words=codes_and_words(d.get("no_answer_words", ()))[1],
                               non_answers=non_answers_from_saved(d.get("marked_no_answer_by_the_file")),
-                              declared_ranges=ranges_from_saved(d.get("missing_ranges_declared_by_the_file")),
+                              declared_ranges=ranges_from_saved(d.get("missing_ranges_declared_by_the_file"))
+                              + no_answer_codes_from_saved(d.get("codes_labelled_no_answer_by_the_file")),
                               ranges=tuple((float(d["answer_ranges"][x][0]), float(d["answer_ranges"][x][1]))
                                            for x in d["variables"]) if d.get("answer_ranges") else (),
                               answer_coding=coding_from_json(d.get("answer_coding"), source))

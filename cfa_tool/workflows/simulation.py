@@ -22,6 +22,7 @@ from enum import Enum
 
 import numpy as np
 import pandas as pd
+from cfa_tool.data.csv_convention import PLAIN, CsvConvention, convention_in
 from cfa_tool.numbers import rounded_number, user_number
 from cfa_tool.model.parameters import no_mean_statements, one_group_only
 from cfa_tool.numerics.linalg import log_det_pd
@@ -91,6 +92,10 @@ class Population:
     #: 1, 2, 4, 5 with 3 never chosen), which simulated answers are written in so that the file reads back with that
     #: fit (hostile s22: written 1 to k, which scores --from-fit of the same fit refused); None: answers 1 to k
     answer_codes: dict[str, tuple[float, ...]] | None = None
+    #: how the data file of the earlier fit was written (data.csv_convention: its separator, decimal mark and
+    #: byte-order mark), in which simulated rows and report tables are written, as every CSV file made from that data
+    #: file; commas and points without one (a model file's values, a fit of a workbook or of summary statistics)
+    csv_convention: CsvConvention = PLAIN
 
     @property
     def ordinal_items(self) -> tuple[str, ...]:
@@ -299,7 +304,8 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
                                                ("pattern of missing answers", payload.get("missing_data") is not None)) if had)
     return Population(spec, table, theta, sigma, (), source, cuts or None, means, means_from,
                       "standard_deviations" in not_given, not_carried,
-                      answer_codes=_fitted_answer_codes(payload, cuts, source) or None)
+                      answer_codes=_fitted_answer_codes(payload, cuts, source) or None,
+                      csv_convention=convention_in(payload))
 
 
 def _fitted_answer_codes(payload: dict, cuts: dict[str, np.ndarray], source: str) -> dict[str, tuple[float, ...]]:

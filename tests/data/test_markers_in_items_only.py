@@ -48,3 +48,25 @@ def test_the_items_markers_are_counted_alone(tmp_path, suffix):
     assert "'NA' (3 cells)" in note and "n/a" not in note
     [kept] = _marker_notes(cfa_tool.fit(MODEL, str(path), keep=["site = north"]))
     assert "'NA' (1 cell)" in kept and "n/a" not in kept
+
+
+@pytest.mark.parametrize("suffix", [".csv", ".xlsx"])
+def test_the_rows_of_marker_cells_are_recorded_once(tmp_path, suffix):
+    """The reader records the rows of the cells written as markers once, column by column (MARKER_COLUMN_ROWS), and
+    the rows of each marker over every column come from that record (rows-s25: a second record of the same cells,
+    MARKER_CELLS's, could disagree with the first); the counts are pandas' own of the cells written 'NA' and 'n/a'."""
+    from cfa_tool.data.readers import MARKER_CELLS, MARKER_COLUMN_ROWS, _marker_cells, read_data
+
+    path = tmp_path / f"survey{suffix}"
+    frame = _frame(gaps=True)
+    frame.to_csv(path, index=False) if suffix == ".csv" else frame.to_excel(path, index=False)
+    read = read_data(path).frame
+    assert isinstance(read.attrs[MARKER_CELLS], str)  # the note alone: the rows are the columns' record
+    by_column = read.attrs[MARKER_COLUMN_ROWS]
+    assert {c: {m: len(r) for m, r in by.items()} for c, by in by_column.items()} == {"w2": {"NA": 3},
+                                                                                       "comment": {"n/a": 40}}
+    note, rows = _marker_cells(read)
+    assert note == read.attrs[MARKER_CELLS]
+    # the rows as the frame read names them: the file's row numbers less one, the header being row 1
+    assert {m: sorted(r.tolist()) for m, r in rows.items()} == {
+        m: sorted((frame.index[(frame[c] == m).to_numpy()] + 1).tolist()) for c, m in (("w2", "NA"), ("comment", "n/a"))}
