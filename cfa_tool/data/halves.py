@@ -34,7 +34,7 @@ import pandas as pd
 from cfa_tool.data.csv_convention import PLAIN, CsvConvention
 from cfa_tool.data.kept_rows import KEPT_BY, row_naming, rows_listed
 from cfa_tool.data.moments import row_numbers
-from cfa_tool.numbers import count_text
+from cfa_tool.numbers import count_text, counted
 from cfa_tool.data.readers import sheet_read
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.note_parts import Command, Note, Text
@@ -70,7 +70,7 @@ def halves_named_alike(seed: int, explored: bool, cluster: str | None = None, st
     if explored:
         other = f"split_half(model, data, seed={seed}{by})" if python else \
             f"replicate MODEL --data FILE --seed {seed}{by}"
-        return Note((f"A replication in random halves of the same rows with the same seed draws these two halves and "
+        return Note((f"A replication in two halves of the same rows with the same seed draws these two halves and "
                      f"names the {explored_name} half 'half {a}' and the {confirming} half 'half {b}'",
                      Command(f" ({other})"), "."))
     other = f"explore(data, split={seed}{by})" if python else f"explore --data FILE {Option.SPLIT.flag} {seed}{by}"
@@ -118,8 +118,46 @@ def few_clusters_words(units: "tuple[int, ...] | list[int]", past: bool = False)
         return ""
     are, is_ = ("were", "was") if past else ("are", "is")
     return (f"; with only {least} cluster{'s' if least > 1 else ''} in a half, the halves {are} those clusters rather "
-            f"than samples of them, so the comparison {is_} one of those clusters (closer to a test of invariance "
-            f"across them, by groups) than a check in a new sample")
+            f"than samples of them, so the comparison {is_} one of those clusters, closer to a test of invariance "
+            f"across them as groups than to a check in a new sample")
+
+
+def few_clusters_caution(units: "tuple[int, ...] | list[int]", cluster: str, explored: bool,
+                         strata: str | None = None) -> tuple[str, Note] | None:
+    """The caution, first in every view, of halves drawn cluster by cluster with a handful of clusters in a half
+    (:data:`FEW_CLUSTERS_IN_A_HALF`), as (explanation, advice), or None with enough clusters: the one rule of both
+    commands that draw halves (replicate --data and explore --split with --cluster; hostile s24b: two districts made
+    two 'random halves' of one district each, and no caution said so), in the words of :func:`few_clusters_words`.
+    ``explored``: explore's halves, else replicate's (their names, :func:`half_phrase`); ``strata``: the strata the
+    clusters were drawn within."""
+    few = few_clusters_words(units)
+    if not few:
+        return None
+    first, second = (half_phrase(explored, k) for k in (0, 1))
+    within = f" within each stratum of {strata}" if strata else ""
+    explanation = (f"The halves were drawn cluster by cluster{within} from only {counted(sum(units), 'cluster')} of "
+                   f"{cluster} ({units[0]} in {first}, {units[1]} in {second}){few}.")
+    python = interface() is not Interface.COMMAND_LINE
+    invariance = (f"invariance(model, data, group={cluster!r})" if python
+                  else f"cfa-tool invariance MODEL --data FILE {Option.GROUP_COLUMN.given(cluster)}")
+    by_rows, drop = Option.STRATA.given(cluster), Option.CLUSTER.given(cluster)
+    if explored:
+        other = ("confirm the draft model in data of other clusters, or draw the halves row by row within each "
+                 "cluster")
+    else:
+        other = ("replicate in data of other clusters, or draw the halves row by row within each cluster")
+    advice = Note(("to compare these clusters, test invariance across them", Command(f" ({invariance})", runs="invariance"),
+                   f"; for a check in a new sample, {other}", Command(f" ({by_rows} in place of {drop})"),
+                   ", so that each half holds rows of every cluster (the rows of one cluster in both halves then look "
+                   "more alike than independent samples would)."))
+    return explanation, advice
+
+
+def half_phrase(explored: bool, k: int) -> str:
+    """Half ``k`` (0: the first drawn) as a sentence names it, in its command's names (:data:`EXPLORE_HALVES`,
+    :data:`REPLICATE_HALVES`): 'the exploration half', 'half A'."""
+    name = (EXPLORE_HALVES if explored else REPLICATE_HALVES)[k]
+    return f"the {name} half" if explored else f"half {name}"
 
 
 def draw_halves(count: int, seed: int) -> tuple[np.ndarray, np.ndarray]:

@@ -17,7 +17,7 @@ from cfa_tool.numbers import count_text
 from cfa_tool.reporting.numbers import est_num, est_unit, num, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, ReportTable, _table
 
-SPLIT_STATEMENT = ("The rows were divided at random into two halves (seed {seed}): the number of factors, the solution "
+SPLIT_STATEMENT = ("The rows were {divided} (seed {seed}): the number of factors, the solution "
                    "and the draft model come from the exploration half ({first} rows) alone; the confirmation half "
                    "({second} rows) was not used to choose the model, only to fit it.")
 COUNT_SECTION = "How many factors"
@@ -203,7 +203,7 @@ def split_lines(result) -> list[Text]:
     s = result.split
     if s is None:
         return [same_data_caution()]
-    lines = [SPLIT_STATEMENT.format(seed=s.seed, first=count_text(len(s.exploration_rows)),
+    lines = [SPLIT_STATEMENT.format(divided=s.divided_words(), seed=s.seed, first=count_text(len(s.exploration_rows)),
                                     second=count_text(len(s.confirmation_rows)))]
     if s.how_drawn():  # by clusters or strata (workflows.explore.SplitHalves)
         lines.append(s.how_drawn())

@@ -2361,7 +2361,7 @@ def replication_paragraph(replications) -> str:
     by = estimator if other == estimator else f"{estimator} (in the validation sample by {other})"
     if first.split is not None:
         rows = first.split
-        parts = [f"The replication of {model} was examined in two random halves, {rows.drawn_phrase}, of {count_text(rows.split)} of "
+        parts = [f"The replication of {model} was examined in {rows.halves_words}, {rows.drawn_phrase}, of {count_text(rows.split)} of "
                  f"the {count_text(rows.in_file)} rows of one data file{rows.kept_words()}: each half served once as the calibration sample, where the model was "
                  f"estimated by {by}, and once as the validation sample, where it was refitted (double "
                  f"cross-validation; Cudeck & Browne, 1983), and whether one solution holds in both halves was "

@@ -1060,7 +1060,8 @@ def replication_report(replications) -> Report:
                      f"the two-sample fits' robust statistics, and its chi-square is that scaled difference; the "
                      f"strictly positive version (Satorra & Bentler 2010) is used when the 2001 correction is not "
                      f"positive.")
-    title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
+    halves = next((rep.split.halves_words for rep in reps if rep.split is not None), "two random halves")
+    title = "Replication" if len(reps) == 1 else f"Replication in {halves}, each way"
     # the data's cautions first (the halves of one file: once), then the calibration fits'
     cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems)) + cautions
     split = tuple(dict.fromkeys([_split_sentence(rep.split) for rep in reps if rep.split is not None]
@@ -1174,11 +1175,11 @@ def _split_sentence(rows) -> str:
     drawn = rows.how_drawn()  # row by row, or cluster by cluster within strata (workflows.replication.SplitRows)
     clusters = f" {drawn[0].upper()}{drawn[1:]}."
     if rows.split >= rows.in_file:
-        return (f"The {count_text(rows.split)} rows {f'{rows.kept_words()[1:]}' if rows.filters else 'of the file'} were split at "
-                f"random into two halves.{clusters}")
+        return (f"The {count_text(rows.split)} rows {f'{rows.kept_words()[1:]}' if rows.filters else 'of the file'} were "
+                f"{rows.split_words()}.{clusters}")
     why = ("they miss some answers, and the halves hold complete rows only" if rows.complete_only else
            "they answer none of the model's items")
-    return (f"{count_text(rows.split)} of the {count_text(rows.in_file)} rows{rows.kept_words()} were split at random into two halves; the other "
+    return (f"{count_text(rows.split)} of the {count_text(rows.in_file)} rows{rows.kept_words()} were {rows.split_words()}; the other "
             f"{count_text(rows.in_file - rows.split)} were left out before the split ({why}).{clusters}")
 
 

@@ -18,13 +18,13 @@ import enum
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.halves import drawn_halves, few_clusters_words
+from cfa_tool.data.halves import drawn_halves, few_clusters_words, half_phrase
 from cfa_tool.data.kept_rows import FINISHED_COLUMNS, ROW_NAMING, row_naming
 from cfa_tool.data.moments import stray_word_message
 from cfa_tool.data.non_answers import run_words
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.assessment.admissibility import sample_size_problems
-from cfa_tool.numbers import count_text, cut_list, more_words, names_shown, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, user_number, word_list
 from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.note_parts import Command, Note, Text
@@ -94,8 +94,23 @@ class SplitHalves:
             return (f"The halves were drawn cluster by cluster{within}: every row of a cluster of {self.cluster} is in "
                     f"one half ({_clusters(self.units[0])} in the exploration half, {self.units[1]} in the "
                     f"confirmation half); within each half the rows are still taken as independent"
-                    f"{few_clusters_words(self.units, past=True)}.")
+                    f"{few_clusters_words(self.units)}.")
         return f"The halves were drawn row by row{within}." if self.strata is not None else ""
+
+    def divided_words(self) -> str:
+        """How the rows were divided, after 'The rows were': 'divided at random into two halves', or, drawn from a
+        handful of clusters (data.halves.few_clusters_words), what was done instead: 'divided into two halves by their
+        2 clusters of district, drawn at random: north to the exploration half and south to the confirmation half'
+        (hostile s24b: such halves are those clusters, not random halves)."""
+        if self.cluster is None or not few_clusters_words(self.units):
+            return "divided at random into two halves"
+        labels = getattr(self.drawn_by, "labels", {}) or {}
+        named = [word_list(dict.fromkeys(labels[r][0] for r in rows if r in labels))
+                 for rows in (self.exploration_rows, self.confirmation_rows)]
+        which = (f": {named[0]} to {half_phrase(True, 0)} and {named[1]} to {half_phrase(True, 1)}"
+                 if all(named) else "")
+        return (f"divided into two halves by their {counted(sum(self.units), 'cluster')} of {self.cluster}, drawn at "
+                f"random{which}")
 
     def to_dict(self) -> dict:
         return {"seed": self.seed, "exploration_rows": list(self.exploration_rows),
@@ -1041,6 +1056,10 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         confirming.attrs[ROW_NAMING] = row_naming(frame)
         halves = (tuple(int(v) for v in numbers[first]), tuple(int(v) for v in numbers[second]), confirming)
         design_split = dict(cluster=cluster, strata=strata, units=units, drawn_by=drawn_by)
+        from cfa_tool.workflows.replication import few_clusters_problems
+
+        # halves of a handful of clusters first: they are those clusters, not random halves (hostile s24b)
+        data_problems = few_clusters_problems(units, cluster, True, strata) + tuple(data_problems)
         frame = explored
     names = tuple(chosen)
     if by_default and ordinal_items:
