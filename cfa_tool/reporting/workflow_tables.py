@@ -1644,10 +1644,10 @@ def nested_power_report(result) -> Report:
         below = result.below_rows_rule
         one = len(below) == 1
         notice = ProblemNotice(POWER_CAUTION, (
-            f"{' and '.join(f'N = {count_text(f.rows)}' for f in below)} {'is' if one else 'are'} judged by the "
+            f"{' and '.join(_sizes_judged(result))} {'is' if one else 'are'} judged by the "
             f"difference test alone, not by what estimating the model needs: {'; '.join(f.figures() for f in below)}, "
-            f"fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; {count_text(ROWS_PER_PARAMETER * below[0].parameters)} "
-            f"rows here); this plan says nothing of how precisely the loadings, variances and correlations are "
+            f"fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; {_rows_enough(result)} "
+            f"here); this plan says nothing of how precisely the loadings, variances and correlations are "
             f"estimated at {'that N' if one else 'those sizes'}, which a power simulation of the model gives",), False)
     return Report(ResultKind.POWER, f"Power of the chi-square difference test against '{nested.name}' (Satorra & "
                                     f"Saris 1985)", notice, (), (table, *population), (assumptions,),
@@ -1661,15 +1661,17 @@ def rows_rule_caution(result) -> Note:
     test's N is not what the model's estimates need, and a power simulation of the model gives that."""
     from cfa_tool.assessment.admissibility import ROWS_PER_PARAMETER, ROWS_RULE
 
+    from math import ceil
+
     below = result.below_rows_rule
     one = len(below) == 1
     enough = ROWS_PER_PARAMETER * below[0].parameters
-    sizes = [f.rows for f in below] + [enough]
+    sizes = [ceil(f.rows - 1e-9) for f in below] + [enough]  # independent rows, which power-simulation simulates
     typed = [user_number(n) for n in sizes]  # as a command takes them: no grouping comma inside a list of commas
-    return Note((f"{' and '.join(f'N = {count_text(f.rows)}' for f in below)} {'is' if one else 'are'} judged by the RMSEA "
+    return Note((f"{' and '.join(_sizes_judged(result))} {'is' if one else 'are'} judged by the RMSEA "
                  f"test of {result.test} fit alone, not by what estimating the model needs: "
                  f"{'; '.join(f.figures() for f in below)}, fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; "
-                 f"{count_text(enough)} rows here); this plan says nothing of how precisely the loadings, variances and "
+                 f"{_rows_enough(result)} here); this plan says nothing of how precisely the loadings, variances and "
                  f"correlations are estimated at {'that N' if one else 'those sizes'}. What to try: plan the N with a "
                  f"power simulation of the model, which gives each parameter's power, bias and coverage at each sample "
                  f"size",
@@ -1677,6 +1679,32 @@ def rows_rule_caution(result) -> Note:
                          f"power_simulation(model, [{', '.join(typed)}]))",
                          f" ({' and '.join(count_text(n) for n in sizes)} rows, say)"),
                  "."))
+
+
+def _sizes_judged(result) -> list[str]:
+    """The sample sizes of a power plan below the rule of rows per parameter, each as the plan's table names it
+    (workflows.power.rows_rule_judged): 'N = 211' of independent rows, and under a planned cluster sample 'N = 200 rows
+    of the cluster sample, worth 80 independent rows (N / design effect, Kish 1965)', the rows the rule judges."""
+    effective = getattr(result, "effective_n", None)
+    planned = getattr(result, "clusters", None) is not None
+    return [f"N = {count_text(result.n_obs)} rows of the cluster sample, worth {num(f.rows, 1)} independent rows "
+            f"(N / design effect, Kish 1965)" if effective is not None and f.rows == effective else
+            f"N = {count_text(f.rows)}{' independent rows' if planned else ''}" for f in result.below_rows_rule]
+
+
+def _rows_enough(result) -> str:
+    """The rows the rule of rows per parameter asks for ('135 rows'), and under a planned cluster sample the rows
+    of that sample they take ('135 independent rows, 338 rows of the cluster sample': times the design effect)."""
+    from math import ceil
+
+    from cfa_tool.assessment.admissibility import ROWS_PER_PARAMETER
+
+    enough = ROWS_PER_PARAMETER * result.below_rows_rule[0].parameters
+    planned = getattr(result, "clusters", None)
+    if planned is None:
+        return f"{count_text(enough)} rows"
+    return (f"{count_text(enough)} independent rows, {count_text(ceil(enough * planned.design_effect - 1e-9))} rows of "
+            f"the cluster sample")
 
 
 def power_assumptions() -> Note:
