@@ -13,7 +13,7 @@ from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATE
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.data.groups import reference_words
-from cfa_tool.data.halves import halves_named_alike
+from cfa_tool.data.halves import REPLICATE_NAMES, halves_named_alike
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
@@ -1102,7 +1102,8 @@ ROWS_WITH_GAPS_USED = {
 def _rows_table(rep) -> ReportTable:
     """The rows of each sample (workflows.replication.SampleRows): read, analysed, with gaps, and how those were used
     (random halves: half A is the first replication's calibration sample)."""
-    names = (("Half A", "Half B") if rep.split is not None else ("Calibration", "Validation"))
+    names = ((REPLICATE_NAMES.label(0), REPLICATE_NAMES.label(1)) if rep.split is not None
+             else ("Calibration", "Validation"))
     # with a row filter the rows the file holds come first and the rows read are those the filter kept (hostile
     # tester s13: 'Rows read 123' where the file held 240 and the filter kept 123)
     filtered = any(sample.in_file is not None for sample in rep.rows)

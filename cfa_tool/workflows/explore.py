@@ -92,8 +92,8 @@ class SplitHalves:
         within = f" within each stratum of {self.strata}" if self.strata is not None else ""
         if self.cluster is not None:
             return (f"The halves were drawn cluster by cluster{within}: every row of a cluster of {self.cluster} is in "
-                    f"one half ({_clusters(self.units[0])} in the exploration half, {self.units[1]} in the "
-                    f"confirmation half); within each half the rows are still taken as independent"
+                    f"one half ({_clusters(self.units[0])} in {half_phrase(True, 0)}, {self.units[1]} in "
+                    f"{half_phrase(True, 1)}); within each half the rows are still taken as independent"
                     f"{few_clusters_words(self.units)}.")
         return f"The halves were drawn row by row{within}." if self.strata is not None else ""
 
@@ -1253,7 +1253,7 @@ def _confirm(exploration: Exploration, halves, seed: int, source: str, statement
     except CfaError as exc:
         return SplitHalves(seed, first, second, None, f"the draft model could not be fitted on the confirmation half: "
                                                       f"{exc}")
-    fitted = replace_source(fitted, f"{source} (confirmation half, {count_text(len(second))} rows)")
+    fitted = replace_source(fitted, f"{source} ({half_phrase(True, 1, False)}, {count_text(len(second))} rows)")
     if statements:
         written = parse_model(exploration.draft.text + "".join(line + "\n" for line in statements), "draft model")
         fitted = replace(fitted, data=replace(fitted.data, answer_coding=coding_record(written)))
@@ -1264,7 +1264,7 @@ def replace_source(result: FitResult, source: str) -> FitResult:
     from dataclasses import replace
 
     return replace(result, data=replace(result.data, source=source), model_name="Draft model from the exploration",
-                   model_source="draft model (exploration half)")
+                   model_source=f"draft model ({half_phrase(True, 0, False)})")
 
 
 def sorted_items(exploration: Exploration) -> tuple[int, ...]:

@@ -851,7 +851,7 @@ class SplitRows:
         return "drawn row by row" + (f" {within}" if self.strata is not None else "")
 
     def _clusters_per_half(self) -> str:
-        return f"{counted(self.units[0], 'cluster')} in half A, {self.units[1]} in half B"
+        return f"{counted(self.units[0], 'cluster')} in {half_phrase(False, 0)}, {self.units[1]} in {half_phrase(False, 1)}"
 
     def independence_sentence(self) -> str:
         """What halves drawn by cluster still assume, a sentence of the methods paragraph ('' for halves drawn row by
@@ -920,6 +920,11 @@ def few_clusters_problems(units: tuple[int, ...], cluster: str | None, explored:
     return (Problem(ProblemKind.HALVES_OF_FEW_CLUSTERS, (), float(sum(units)), *words),)
 
 
+def _half_source(source: str, k: int, seed: int) -> str:
+    """A half's data as its fit names them: 'data.csv (half A, seed 1)' (data.halves.REPLICATE_NAMES)."""
+    return f"{source} ({half_phrase(False, k)}, seed {seed})"
+
+
 def _split_design(cluster: str | None, strata: str | None):
     """The design columns the halves are drawn by (data.sample_design.DesignColumns without weights), or None."""
     from cfa_tool.data.sample_design import DesignColumns
@@ -959,15 +964,15 @@ def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal
     b = complete.iloc[second]
     rows = (tuple(int(v) for v in row_numbers(a)), tuple(int(v) for v in row_numbers(b)))
     if ordinal_items:
-        ma = _ordinal_moments(spec, a, f"{source} (half A, seed {seed})", ordinal_items, pairwise)
-        mb = _ordinal_moments(spec, b, f"{source} (half B, seed {seed})", ordinal_items, pairwise)
+        ma = _ordinal_moments(spec, a, _half_source(source, 0, seed), ordinal_items, pairwise)
+        mb = _ordinal_moments(spec, b, _half_source(source, 1, seed), ordinal_items, pairwise)
         first = replicate_ordinal(spec, ma, mb, method, _two_samples(spec, (a, b), source, ordinal_items, pairwise),
                                   **options)
         # one test of one solution for both directions: the same two halves (not fitted twice)
         second = replace(replicate_ordinal(spec, mb, ma, method, "", **options), same_solution=first.same_solution)
         return (first, second), rows, units, labels
-    ma = sample_moments(a, spec.observed_names, f"{source} (half A, seed {seed})", missing=handling)
-    mb = sample_moments(b, spec.observed_names, f"{source} (half B, seed {seed})", missing=handling)
+    ma = sample_moments(a, spec.observed_names, _half_source(source, 0, seed), missing=handling)
+    mb = sample_moments(b, spec.observed_names, _half_source(source, 1, seed), missing=handling)
 
     first = replicate_moments(spec, ma, mb, **options)
     # one test of one solution for both directions: the same two halves (not fitted twice)
