@@ -162,19 +162,21 @@ def few_clusters_words(units: "tuple[int, ...] | list[int]", past: bool = False)
 
 
 def few_clusters_caution(units: "tuple[int, ...] | list[int]", cluster: str, explored: bool,
-                         strata: str | None = None) -> tuple[str, Note] | None:
+                         strata: str | None = None, analysed: str = "") -> tuple[str, Note] | None:
     """The caution, first in every view, of halves drawn cluster by cluster with a handful of clusters in a half
     (:data:`FEW_CLUSTERS_IN_A_HALF`), as (explanation, advice), or None with enough clusters: the one rule of both
     commands that draw halves (replicate --data and explore --split with --cluster; hostile s24b: two districts made
     two 'random halves' of one district each, and no caution said so), in the words of :func:`few_clusters_words`.
     ``explored``: explore's halves, else replicate's (their names, :func:`half_phrase`); ``strata``: the strata the
-    clusters were drawn within."""
+    clusters were drawn within; ``analysed``: the half a run analyses alone (--half: 'half A of h.csv'), named
+    first."""
     few = few_clusters_words(units)
     if not few:
         return None
     first, second = (half_phrase(explored, k) for k in (0, 1))
     within = f" within each stratum of {strata}" if strata else ""
-    explanation = (f"The halves were drawn cluster by cluster{within} from only {counted(sum(units), 'cluster')} of "
+    lead = f"The rows analysed are {analysed}, and the halves" if analysed else "The halves"
+    explanation = (f"{lead} were drawn cluster by cluster{within} from only {counted(sum(units), 'cluster')} of "
                    f"{cluster} ({units[0]} in {first}, {units[1]} in {second}){few}.")
     python = interface() is not Interface.COMMAND_LINE
     invariance = (f"invariance(model, data, group={cluster!r})" if python
@@ -311,6 +313,9 @@ class HalfRows:
     #: for halves drawn row by row): what the notes and the methods text say of how the rows were split
     cluster_column: str = ""
     strata_column: str = ""
+    #: the clusters in each half, the half drawn first first, when drawn by clusters (() else): a handful of them is a
+    #: caution first (pipeline.row_filter_cautions.few_clusters_problems)
+    units: tuple[int, ...] = ()
     column = None  # no column of the data file chose the rows
     operator = "="
     empty = 0
@@ -330,12 +335,18 @@ class HalfRows:
     def text(self) -> str:
         """'confirmation half (seed 17) of halves.csv', 'half A (seed 3) of halves.csv': the selection as the data line
         and the JSON name it, in its command's words (:class:`HalfNames`)."""
-        return f"{self._phrase(False)} (seed {self.seed}) of {self.halves_file}"
+        return f"{self.phrase(False)} (seed {self.seed}) of {self.halves_file}"
 
-    def _phrase(self, article: bool = True) -> str:
+    def phrase(self, article: bool = True) -> str:
         """The half in a sentence, as the command that drew it names it ('the confirmation half', 'half A')."""
         found = named_half(self.name)
         return found[0].phrase(found[1], article) if found is not None else f"the half '{self.name}'"
+
+    @property
+    def explored(self) -> bool:
+        """A half of explore's halves (else of replicate's)."""
+        found = named_half(self.name)
+        return found is not None and found[0] == EXPLORE_NAMES
 
     def __str__(self) -> str:
         return self.text
@@ -353,7 +364,7 @@ class HalfRows:
 
     def note(self) -> Text:
         """The note of a report: which rows were analysed (the option apart, note_parts.Command)."""
-        return (f"Only the rows of {self._phrase()} (seed {self.seed}) of {self.halves_file} are analysed: "
+        return (f"Only the rows of {self.phrase()} (seed {self.seed}) of {self.halves_file} are analysed: "
                 f"{count_text(self.rows)} of the {count_text(self.split)} rows {self.drawn}" + (
                     Note((f", those with an answer to every model variable ({self.with_gaps} "
                           f"{'row' if self.with_gaps == 1 else 'rows'} with gaps left out before the split",
@@ -370,7 +381,7 @@ class HalfRows:
         clusters = f" of the clusters of {self.cluster_column}{rows}, each cluster whole in one half" \
             if self.cluster_column else rows
         within = f" within the strata of {self.strata_column}" if self.strata_column else ""
-        return (f"the row fell in {self._phrase()} of two random halves{clusters}, drawn{within} with seed "
+        return (f"the row fell in {self.phrase()} of two random halves{clusters}, drawn{within} with seed "
                 f"{self.seed} and listed in {Path(self.halves_file).name}")
 
 
@@ -576,9 +587,24 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet:
     mask = np.isin(numbers, saved.rows[np.asarray(saved.halves) == choice.name])
     chosen = frame[mask]
     half = HalfRows(shown, choice.name, saved.seed, int(mask.sum()), len(saved.rows),
-                    len(with_gaps) if with_gaps is not None else 0, saved.cluster_column, saved.strata_column)
+                    len(with_gaps) if with_gaps is not None else 0, saved.cluster_column, saved.strata_column,
+                    _clusters_per_half(saved))
     chosen.attrs[KEPT_BY] = tuple(frame.attrs.get(KEPT_BY, ())) + (half.text,)
     return chosen, half
+
+
+def _clusters_per_half(saved: SavedHalves) -> tuple[int, ...]:
+    """The clusters in each half of a halves file drawn by clusters, the half drawn first first (its command's
+    names, :class:`HalfNames`); () for halves drawn row by row.  Clusters are told apart within their strata, as the
+    halves were drawn (data.halves.draw_cluster_halves)."""
+    found = named_half(saved.names()[0]) if saved.names() else None
+    if not saved.cluster_column or found is None:
+        return ()
+    halves = np.asarray(saved.halves)
+    units = np.asarray(list(zip(saved.strata, saved.clusters)), dtype=object) if saved.strata_column else \
+        np.asarray(saved.clusters, dtype=object)
+    return tuple(len({tuple(u) if saved.strata_column else u for u in units[halves == name]})
+                 for name in found[0].names)
 
 
 def _named_by_the_other(name: str, names: tuple[str, ...], path) -> str:

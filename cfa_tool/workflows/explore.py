@@ -1056,7 +1056,7 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         confirming.attrs[ROW_NAMING] = row_naming(frame)
         halves = (tuple(int(v) for v in numbers[first]), tuple(int(v) for v in numbers[second]), confirming)
         design_split = dict(cluster=cluster, strata=strata, units=units, drawn_by=drawn_by)
-        from cfa_tool.workflows.replication import few_clusters_problems
+        from cfa_tool.pipeline.row_filter_cautions import few_clusters_problems
 
         # halves of a handful of clusters first: they are those clusters, not random halves (hostile s24b)
         data_problems = few_clusters_problems(units, cluster, True, strata) + tuple(data_problems)

@@ -746,6 +746,8 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     # (a cluster or strata column the halves are drawn by that keeps a no-answer code: one cluster of its rows)
     ids, named_by = rows_named(loaded, id_column, spec.observed_names)
     # halves of a handful of clusters first: they are those clusters, not random halves (hostile s24b)
+    from cfa_tool.pipeline.row_filter_cautions import few_clusters_problems
+
     problems = few_clusters_problems(units, cluster, False, strata) + tuple(dict.fromkeys(data_problems(loaded, spec, ids=ids, listwise=rows.complete_only, id_column=named_by)
                                    + column_code_problems(loaded, None, design))) + _left_out(
         len(frame) - split, len(frame), source, MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
@@ -904,20 +906,6 @@ class SplitRows:
         from cfa_tool.data.filters import kept_by_words
 
         return f" kept by {kept_by_words(self.filters)} (of the {count_text(self.rows_in_file)} rows in the file)"
-
-
-def few_clusters_problems(units: tuple[int, ...], cluster: str | None, explored: bool,
-                          strata: str | None = None) -> tuple:
-    """The caution, first in every view, of random halves drawn cluster by cluster from a handful of clusters
-    (data.halves.few_clusters_caution, the one rule of replicate --data and explore --split, ``explored``), as a
-    problem of its own kind; () with enough clusters or without them."""
-    from cfa_tool.assessment.admissibility import Problem, ProblemKind
-    from cfa_tool.data.halves import few_clusters_caution
-
-    words = few_clusters_caution(units, cluster, explored, strata) if cluster is not None and units else None
-    if words is None:
-        return ()
-    return (Problem(ProblemKind.HALVES_OF_FEW_CLUSTERS, (), float(sum(units)), *words),)
 
 
 def _half_source(source: str, k: int, seed: int) -> str:

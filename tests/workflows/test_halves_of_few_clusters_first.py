@@ -110,3 +110,25 @@ def test_enough_clusters_are_no_caution(rider_demo):
                                             for line in report.notice.lines)
     result = cfa_tool.explore(frame, split=1, cluster="household", factors=3)
     assert not any("halves were drawn" in line for line in result.problems())
+
+
+@pytest.mark.parametrize("draw, name", [(("replicate", str(MODEL), "--data", str(DATA)), "B"),
+                                        (("explore", "--data", str(DATA), "--split", "1", "--factors", "3"),
+                                         "confirmation")])
+def test_one_half_of_such_halves_read_back_is_the_same_caution_first(draw, name, tmp_path, capsys):
+    """The neighbour: a fit of one half of their file (--half) analyses one district, which its data line calls 'a
+    random half' (hostile s24b's case, one step on)."""
+    from tests.conftest import run_cli
+
+    halves = tmp_path / "halves.csv"
+    assert run_cli([*draw, "--cluster", "district", "--halves-file", halves], capsys)[0] == 0
+    code, out, _ = run_cli(["fit", MODEL, "--data", DATA, "--half", halves, name, "--json", tmp_path / "f.json"],
+                           capsys)
+    assert code == 0
+    terminal = _flat(out)
+    phrase = "half B" if name == "B" else "the confirmation half"
+    assert terminal.startswith(f"Check before interpreting this solution - The rows analysed are {phrase} of {halves}, "
+                               f"and the halves were drawn cluster by cluster from only 2 clusters of district"), \
+        terminal[:300]
+    problems = json.loads((tmp_path / "f.json").read_text(encoding="utf-8"))["problems"]
+    assert any(p["kind"] == "halves of few clusters" for p in problems)
