@@ -1566,7 +1566,9 @@ def power_report(result) -> Report:
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
     notes = [power_assumptions()] + ([POWER_ORDINAL] if result.ordinal else [])
     below = getattr(result, "below_rows_rule", ())
-    notice = ProblemNotice(POWER_CAUTION, (rows_rule_caution(result),), False) if below else None
+    lines = (rows_rule_caution(result),) if below else ()
+    lines += planned_clusters_lines(result.clusters, getattr(result, "free_parameters", None))
+    notice = ProblemNotice(POWER_CAUTION, lines, False) if lines else None
     return Report(ResultKind.POWER, "Power of the RMSEA test (MacCallum, Browne & Sugawara 1996)", notice, (),
                   (table,), tuple(notes), ("RMSEA values of close and not-close fit are conventions, not laws.",))
 
@@ -1639,6 +1641,9 @@ def nested_power_report(result) -> Report:
                       ".")),) if defaulted else ()
     population = _population_of(result)
     notice = None
+    few = planned_clusters_lines(result.clusters, result.population.table.n_free if result.population else None)
+    if few:
+        notice = ProblemNotice(POWER_CAUTION, few, False)
     if result.below_rows_rule:  # the test's N is not what estimating the model needs: first
         from cfa_tool.assessment.admissibility import ROWS_PER_PARAMETER, ROWS_RULE
 
@@ -1649,7 +1654,8 @@ def nested_power_report(result) -> Report:
             f"difference test alone, not by what estimating the model needs: {'; '.join(f.figures() for f in below)}, "
             f"fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; {_rows_enough(result)} "
             f"here); this plan says nothing of how precisely the loadings, variances and correlations are "
-            f"estimated at {'that N' if one else 'those sizes'}, which a power simulation of the model gives",), False)
+            f"estimated at {'that N' if one else 'those sizes'}, which a power simulation of the model gives",) + few,
+            False)
     return Report(ResultKind.POWER, f"Power of the chi-square difference test against '{nested.name}' (Satorra & "
                                     f"Saris 1985)", notice, (), (table, *population), (assumptions,),
                   ("The power is a plan's figure for the population assumed; high-stakes decisions need validation "
@@ -1680,6 +1686,27 @@ def rows_rule_caution(result) -> Note:
                          f"power_simulation(model, [{', '.join(typed)}]))",
                          f" ({' and '.join(count_text(n) for n in sizes)} rows, say)"),
                  "."))
+
+
+def planned_clusters_lines(planned, free: int | None) -> tuple[Note, ...]:
+    """The caution, first, of a power plan whose cluster sample (workflows.power.ClusterPlan) has too few clusters
+    (data.sample_design.planned_clusters_caution, in the words of a fit's design), with what to try: more clusters of
+    fewer rows, whose design effect 1 + (m - 1) ICC is smaller too when it came from the intraclass correlation
+    (Kish 1965); () without a number of clusters or with enough."""
+    from cfa_tool.data.sample_design import planned_clusters_caution
+    from cfa_tool.options import Interface, interface
+
+    on_command_line = interface() is Interface.COMMAND_LINE
+    if planned is None or planned.clusters is None:
+        return ()
+    words = planned_clusters_caution(planned.clusters, free)
+    if words is None:
+        return ()
+    lower = (", which lowers the design effect too (1 + (m - 1) ICC, Kish 1965)" if planned.intraclass is not None
+             else "")
+    return (Note((f"{words} What to try: plan more clusters of fewer rows each",
+                  Command(f" (a smaller {Option.CLUSTER_SIZE.flag if on_command_line else Option.CLUSTER_SIZE.keyword})"),
+                  f"{lower}.")),)
 
 
 def _sizes_judged(result) -> list[str]:

@@ -54,6 +54,9 @@ class PowerResult(Presentable):
     #: (Kish 1965), at which ``power`` is computed; None otherwise (hostile tester s24: the power of N independent
     #: rows was shown beside the design)
     effective_n: float | None = None
+    #: the model's free parameters of its covariance structure, p(p + 1)/2 - df, when its variables are known (None
+    #: else): a planned cluster sample of no more clusters is cautioned (data.sample_design.planned_clusters_caution)
+    free_parameters: int | None = None
 
     def to_dict(self) -> dict:
         return asdict(self)
@@ -230,7 +233,8 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
             effective = effective_rows(n_obs, clusters)
             power = rmsea_power(df, effective, eps0, epsa, alpha)
     below: tuple[RowsPerParameter, ...] = ()
-    if variables is not None:
-        below = rows_rule_judged(variables * (variables + 1) // 2 - df, required, n_obs, effective)
+    free = variables * (variables + 1) // 2 - df if variables is not None else None
+    if free is not None:
+        below = rows_rule_judged(free, required, n_obs, effective)
     return PowerResult(test, df, eps0, epsa, alpha, n_obs, power, required, target_power, note, ordinal, below,
-                       clusters, effective)
+                       clusters, effective, free)
