@@ -1223,11 +1223,13 @@ def bootstrap_report(boot) -> Report:
     if _design_lines(result):
         lines += [*_design_lines(result), "Resamples draw whole clusters (each row its own cluster without them) within "
                                           "strata, and keep the rows' weights."]
-        clusters = result.design.clusters
-        if clusters is not None and clusters < SMALL_NUMBER_OF_CLUSTERS:
-            lines.append(f"With only {clusters} clusters the resamples are few kinds of the same clusters, so the "
-                         f"bootstrap intervals are too narrow and unsteady (fewer than about {SMALL_NUMBER_OF_CLUSTERS} "
-                         f"clusters, common practice); read them as rough.")
+    clusters = result.design.clusters if _design_lines(result) else None
+    # resamples of a handful of clusters: a problem of every interval, first (s25: said among the lines before)
+    few_resampled = (f"With only {clusters} clusters the resamples are few kinds of the same clusters, so the bootstrap "
+                     f"intervals are too narrow and unsteady (fewer than about {SMALL_NUMBER_OF_CLUSTERS} clusters, "
+                     f"common practice). What to try: read them as rough, beside the fit's cluster-robust standard "
+                     f"errors; more clusters in a later sample help."
+                     if clusters is not None and clusters < SMALL_NUMBER_OF_CLUSTERS else None)
     if boot.bollen_stine_p is not None:
         lines.append(f"Bollen-Stine bootstrap p-value of the chi-square test: {unit(boot.bollen_stine_p)} "
                      f"({count_text(boot.bollen_stine_converged)} converged resamples; normal-theory p {p_phrase(result.fit.p_value)}).")
@@ -1277,6 +1279,9 @@ def bootstrap_report(boot) -> Report:
     notice = _fit_notice(result)
     if lost:  # intervals conditional on what the left-out resamples lacked: in the first box, as cutoffs' samples
         notice = replace(notice, lines=notice.lines + (lost,)) if notice is not None else _notice([], [lost])
+    if few_resampled:
+        notice = (replace(notice, lines=notice.lines + (few_resampled,)) if notice is not None
+                  else _notice([], [few_resampled]))
     if unavailable:  # thresholds without an interval: in the first box, with what would give them one
         without = _without_interval(boot, unavailable)
         notice = replace(notice, lines=notice.lines + (without,)) if notice is not None else _notice([], [without])
