@@ -186,7 +186,7 @@ def few_clusters_caution(units: "tuple[int, ...] | list[int]", cluster: str, exp
         other = ("confirm the draft model in data of other clusters, or draw the halves row by row within each "
                  "cluster")
     else:
-        other = ("replicate in data of other clusters, or draw the halves row by row within each cluster")
+        other = "replicate in data of other clusters, or draw the halves row by row within each cluster"
     advice = Note(("to compare these clusters, test invariance across them", Command(f" ({invariance})", runs="invariance"),
                    f"; for a check in a new sample, {other}", Command(f" ({by_rows} in place of {drop})"),
                    ", so that each half holds rows of every cluster (the rows of one cluster in both halves then look "
@@ -595,16 +595,13 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet:
 
 def _clusters_per_half(saved: SavedHalves) -> tuple[int, ...]:
     """The clusters in each half of a halves file drawn by clusters, the half drawn first first (its command's
-    names, :class:`HalfNames`); () for halves drawn row by row.  Clusters are told apart within their strata, as the
-    halves were drawn (data.halves.draw_cluster_halves)."""
+    names, :class:`HalfNames`); () for halves drawn row by row.  A cluster's label names one cluster whatever its
+    stratum: the design checks that clusters are nested in strata (data.sample_design.check_design)."""
     found = named_half(saved.names()[0]) if saved.names() else None
     if not saved.cluster_column or found is None:
         return ()
-    halves = np.asarray(saved.halves)
-    units = np.asarray(list(zip(saved.strata, saved.clusters)), dtype=object) if saved.strata_column else \
-        np.asarray(saved.clusters, dtype=object)
-    return tuple(len({tuple(u) if saved.strata_column else u for u in units[halves == name]})
-                 for name in found[0].names)
+    halves, clusters = np.asarray(saved.halves), np.asarray(saved.clusters, dtype=object)
+    return tuple(len(set(clusters[halves == name].tolist())) for name in found[0].names)
 
 
 def _named_by_the_other(name: str, names: tuple[str, ...], path) -> str:
