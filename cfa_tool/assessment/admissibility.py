@@ -78,6 +78,9 @@ class ProblemKind(enum.Enum):
     EMPIRICALLY_UNDERIDENTIFIED = ("empirically under-identified", "barely determined by the data", True)
     # not of the solution but of its standard errors: a sampling design with too few clusters
     FEW_CLUSTERS = ("too few clusters", "too few clusters", False)
+    # nor of a solution: random halves drawn cluster by cluster from a handful of clusters, which are those clusters
+    # rather than samples of them (replicate --data, explore --split: data.halves.few_clusters_caution)
+    HALVES_OF_FEW_CLUSTERS = ("halves of few clusters", "halves are the clusters", False)
     # nor of the solution: a design-based test whose scaling is extreme (pipeline.inputs.extreme_scaling) or one
     # cluster holding most of the design effect of the statistics (data.sample_design.DominantCluster), so the
     # cluster-robust standard errors and the design-based test describe that cluster
@@ -495,6 +498,8 @@ class Problem:
                         f"held at a bound",
             K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
+            K.HALVES_OF_FEW_CLUSTERS: f"halves drawn from only {v.split('.')[0]} clusters, which are those clusters "
+                                      f"rather than samples of them",
             K.DESIGN_DOMINATED: "a design-based test whose scaling is extreme or a design effect that one cluster "
                                 "dominates, so that the cluster-robust standard errors and test say little",
             K.SMALL_EFFECTIVE_SAMPLE: f"very uneven weights (Kish's effective sample size {v})",

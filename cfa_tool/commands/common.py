@@ -259,11 +259,12 @@ def halves_file(args: argparse.Namespace, halves: list[tuple[str, tuple[int, ...
     if not getattr(args, "halves_file", None):
         return []
     from cfa_tool.data.csv_convention import convention_of_result
-    from cfa_tool.data.halves import halves_text
+    from cfa_tool.data.halves import halves_text, names_in_file
 
     return [(HALVES_FILE, halves_text(halves, seed, args.data, getattr(args, "sheet", None), drawn_by,
                                       convention_of_result(result)),
-             f"The rows of each half written to {args.halves_file}")]
+             f"The rows of each half written to {args.halves_file} "
+             f"({names_in_file(tuple(name for name, _ in halves), args.halves_file)})")]
 
 
 HALF = "--half"
@@ -283,7 +284,8 @@ def add_half_option(parser) -> None:
     """The option that analyses one half of a halves file (data.halves.RandomHalf)."""
     parser.add_argument(HALF, nargs=2, metavar=("HALVES.csv", "NAME"), default=None,
                         help="analyse only the rows of one random half that explore --split (or replicate --data) "
-                             "wrote with --halves-file, such as: --half halves.csv confirmation; the halves file is "
+                             "wrote with --halves-file, such as: --half halves.csv confirmation (explore names its "
+                             "halves exploration and confirmation, replicate A and B); the halves file is "
                              "checked against the data file (the same contents and rows, after the --keep filters of "
                              "the run that drew them), and every report names the half, its rows and the seed")
 

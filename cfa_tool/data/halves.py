@@ -34,7 +34,7 @@ import pandas as pd
 from cfa_tool.data.csv_convention import PLAIN, CsvConvention
 from cfa_tool.data.kept_rows import KEPT_BY, row_naming, rows_listed
 from cfa_tool.data.moments import row_numbers
-from cfa_tool.numbers import count_text
+from cfa_tool.numbers import count_text, counted
 from cfa_tool.data.readers import sheet_read
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.note_parts import Command, Note, Text
@@ -49,10 +49,48 @@ SHEET_ASKED_COLUMNS = HALVES_COLUMNS[:5] + ("sheet",)
 DRAWN_BY_COLUMNS = HALVES_COLUMNS + ("cluster_column", "cluster", "strata_column", "stratum")
 
 
+@dataclass(frozen=True)
+class HalfNames:
+    """The names one command gives the two halves it draws, the first drawn first, and how its reports say them: the
+    one vocabulary of halves (review s25: replicate's reports said 'half A', a half of its file read back 'the A
+    half', explore's 'the exploration half', each written where it was said).  ``command``: the command and option
+    that draw them; ``before``: the name goes before the word half ('the exploration half'), else after it ('half
+    A').  The names are those the halves file's column ``half`` holds and ``--half FILE NAME`` takes."""
+
+    command: str
+    names: tuple[str, str]
+    before: bool
+
+    def phrase(self, k: int, article: bool = True) -> str:
+        """Half ``k`` (0: the first drawn) in a sentence: 'the exploration half' ('exploration half' without the
+        ``article``), 'half A'."""
+        if not self.before:
+            return f"half {self.names[k]}"
+        return f"{'the ' if article else ''}{self.names[k]} half"
+
+    def label(self, k: int) -> str:
+        """Half ``k`` as a table's row or a sample's label: 'Half A', 'Exploration half'."""
+        words = self.phrase(k, article=False)
+        return words[:1].upper() + words[1:]
+
+
+#: explore --split's halves and replicate --data's: the same seed draws the same halves of the same rows
+#: (:func:`draw_halves`, :func:`draw_cluster_halves`), the first of one command being the first of the other
+EXPLORE_NAMES = HalfNames("explore --split", ("exploration", "confirmation"), True)
+REPLICATE_NAMES = HalfNames("replicate --data", ("A", "B"), False)
 #: the names of the two halves as the commands write them, the first drawn first (explore --split; replicate --data)
-EXPLORE_HALVES = ("exploration", "confirmation")
-REPLICATE_HALVES = ("A", "B")
+EXPLORE_HALVES = EXPLORE_NAMES.names
+REPLICATE_HALVES = REPLICATE_NAMES.names
 DRAWN_HALVES = (EXPLORE_HALVES, REPLICATE_HALVES)
+
+
+def named_half(name: str) -> tuple[HalfNames, int] | None:
+    """The command's names a half's ``name`` is one of, and its place among them (0: drawn first); None for a name of
+    neither command."""
+    for names in (EXPLORE_NAMES, REPLICATE_NAMES):
+        if name in names.names:
+            return names, names.names.index(name)
+    return None
 
 
 def halves_named_alike(seed: int, explored: bool, cluster: str | None = None, strata: str | None = None) -> Note:
@@ -62,7 +100,8 @@ def halves_named_alike(seed: int, explored: bool, cluster: str | None = None, st
     that drew them (``explored``: explore's, else replicate's), each naming the other's halves by the names of
     :data:`EXPLORE_HALVES` and :data:`REPLICATE_HALVES`; halves drawn by ``cluster`` within ``strata`` are drawn alike
     by the same columns, which the command named gives."""
-    (explored_name, confirming), (a, b) = EXPLORE_HALVES, REPLICATE_HALVES
+    (explored_name, confirming), (a, b) = (EXPLORE_NAMES.phrase(0), EXPLORE_NAMES.phrase(1)), (
+        REPLICATE_NAMES.phrase(0), REPLICATE_NAMES.phrase(1))
     python = interface() is not Interface.COMMAND_LINE
     design = [(word, name) for word, name in (("cluster", cluster), ("strata", strata)) if name]
     by = "".join(f", {word}={name!r}" for word, name in design) if python else \
@@ -70,12 +109,12 @@ def halves_named_alike(seed: int, explored: bool, cluster: str | None = None, st
     if explored:
         other = f"split_half(model, data, seed={seed}{by})" if python else \
             f"replicate MODEL --data FILE --seed {seed}{by}"
-        return Note((f"A replication in random halves of the same rows with the same seed draws these two halves and "
-                     f"names the {explored_name} half 'half {a}' and the {confirming} half 'half {b}'",
-                     Command(f" ({other})"), "."))
+        return Note((f"A replication in two halves of the same rows with the same seed draws these two halves and "
+                     f"names {explored_name} '{a}' and {confirming} '{b}'", Command(f" ({other})"), "."))
     other = f"explore(data, split={seed}{by})" if python else f"explore --data FILE {Option.SPLIT.flag} {seed}{by}"
-    return Note((f"Half {a} holds the rows that an exploration of the same rows with the same seed explores (its "
-                 f"{explored_name} half), and half {b} those of its {confirming} half", Command(f" ({other})"), "."))
+    return Note((f"{REPLICATE_NAMES.label(0)} holds the rows that an exploration of the same rows with the same seed "
+                 f"explores (its {EXPLORE_NAMES.phrase(0, False)}), and {b} those of its "
+                 f"{EXPLORE_NAMES.phrase(1, False)}", Command(f" ({other})"), "."))
 
 
 def redraw_words(names: "tuple[str, ...] | list[str]", seed: str | int = "SEED", cluster: str = "",
@@ -118,8 +157,59 @@ def few_clusters_words(units: "tuple[int, ...] | list[int]", past: bool = False)
         return ""
     are, is_ = ("were", "was") if past else ("are", "is")
     return (f"; with only {least} cluster{'s' if least > 1 else ''} in a half, the halves {are} those clusters rather "
-            f"than samples of them, so the comparison {is_} one of those clusters (closer to a test of invariance "
-            f"across them, by groups) than a check in a new sample")
+            f"than samples of them, so the comparison {is_} one of those clusters, closer to a test of invariance "
+            f"across them as groups than to a check in a new sample")
+
+
+def few_clusters_caution(units: "tuple[int, ...] | list[int]", cluster: str, explored: bool,
+                         strata: str | None = None, analysed: str = "") -> tuple[str, Note] | None:
+    """The caution, first in every view, of halves drawn cluster by cluster with a handful of clusters in a half
+    (:data:`FEW_CLUSTERS_IN_A_HALF`), as (explanation, advice), or None with enough clusters: the one rule of both
+    commands that draw halves (replicate --data and explore --split with --cluster; hostile s24b: two districts made
+    two 'random halves' of one district each, and no caution said so), in the words of :func:`few_clusters_words`.
+    ``explored``: explore's halves, else replicate's (their names, :func:`half_phrase`); ``strata``: the strata the
+    clusters were drawn within; ``analysed``: the half a run analyses alone (--half: 'half A of h.csv'), named
+    first."""
+    few = few_clusters_words(units)
+    if not few:
+        return None
+    first, second = (half_phrase(explored, k) for k in (0, 1))
+    within = f" within each stratum of {strata}" if strata else ""
+    lead = f"The rows analysed are {analysed}, and the halves" if analysed else "The halves"
+    explanation = (f"{lead} were drawn cluster by cluster{within} from only {counted(sum(units), 'cluster')} of "
+                   f"{cluster} ({units[0]} in {first}, {units[1]} in {second}){few}.")
+    python = interface() is not Interface.COMMAND_LINE
+    invariance = (f"invariance(model, data, group={cluster!r})" if python
+                  else f"cfa-tool invariance MODEL --data FILE {Option.GROUP_COLUMN.given(cluster)}")
+    by_rows, drop = Option.STRATA.given(cluster), Option.CLUSTER.given(cluster)
+    if explored:
+        other = ("confirm the draft model in data of other clusters, or draw the halves row by row within each "
+                 "cluster")
+    else:
+        other = "replicate in data of other clusters, or draw the halves row by row within each cluster"
+    advice = Note(("to compare these clusters, test invariance across them", Command(f" ({invariance})", runs="invariance"),
+                   f"; for a check in a new sample, {other}", Command(f" ({by_rows} in place of {drop})"),
+                   ", so that each half holds rows of every cluster (the rows of one cluster in both halves then look "
+                   "more alike than independent samples would)."))
+    return explanation, advice
+
+
+def names_in_file(names: tuple[str, ...], path) -> str:
+    """How a halves file just written names its halves, after its name in the message that says it was written:
+    "half A and half B, named 'A' and 'B' in its column half, as --half h.csv NAME takes them" (the command's words,
+    :class:`HalfNames`)."""
+    found = named_half(names[0])
+    if found is None:
+        return ""
+    words = found[0]
+    return (f"{words.phrase(0)} and {words.phrase(1)}, named '{words.names[0]}' and '{words.names[1]}' in its column "
+            f"half, as {_half_given(path, 'NAME')} takes them")
+
+
+def half_phrase(explored: bool, k: int, article: bool = True) -> str:
+    """Half ``k`` (0: the first drawn) as a sentence names it, in its command's names (explore's, ``explored``, else
+    replicate's: :class:`HalfNames`): 'the exploration half', 'half A'."""
+    return (EXPLORE_NAMES if explored else REPLICATE_NAMES).phrase(k, article)
 
 
 def draw_halves(count: int, seed: int) -> tuple[np.ndarray, np.ndarray]:
@@ -223,6 +313,9 @@ class HalfRows:
     #: for halves drawn row by row): what the notes and the methods text say of how the rows were split
     cluster_column: str = ""
     strata_column: str = ""
+    #: the clusters in each half, the half drawn first first, when drawn by clusters (() else): a handful of them is a
+    #: caution first (pipeline.row_filter_cautions.few_clusters_problems)
+    units: tuple[int, ...] = ()
     column = None  # no column of the data file chose the rows
     operator = "="
     empty = 0
@@ -240,8 +333,20 @@ class HalfRows:
 
     @property
     def text(self) -> str:
-        """'confirmation half (seed 17) of halves.csv': the selection as the data line and the JSON name it."""
-        return f"{self.name} half (seed {self.seed}) of {self.halves_file}"
+        """'confirmation half (seed 17) of halves.csv', 'half A (seed 3) of halves.csv': the selection as the data line
+        and the JSON name it, in its command's words (:class:`HalfNames`)."""
+        return f"{self.phrase(False)} (seed {self.seed}) of {self.halves_file}"
+
+    def phrase(self, article: bool = True) -> str:
+        """The half in a sentence, as the command that drew it names it ('the confirmation half', 'half A')."""
+        found = named_half(self.name)
+        return found[0].phrase(found[1], article) if found is not None else f"the half '{self.name}'"
+
+    @property
+    def explored(self) -> bool:
+        """A half of explore's halves (else of replicate's)."""
+        found = named_half(self.name)
+        return found is not None and found[0] == EXPLORE_NAMES
 
     def __str__(self) -> str:
         return self.text
@@ -259,7 +364,7 @@ class HalfRows:
 
     def note(self) -> Text:
         """The note of a report: which rows were analysed (the option apart, note_parts.Command)."""
-        return (f"Only the rows of the {self.name} half (seed {self.seed}) of {self.halves_file} are analysed: "
+        return (f"Only the rows of {self.phrase()} (seed {self.seed}) of {self.halves_file} are analysed: "
                 f"{count_text(self.rows)} of the {count_text(self.split)} rows {self.drawn}" + (
                     Note((f", those with an answer to every model variable ({self.with_gaps} "
                           f"{'row' if self.with_gaps == 1 else 'rows'} with gaps left out before the split",
@@ -276,7 +381,7 @@ class HalfRows:
         clusters = f" of the clusters of {self.cluster_column}{rows}, each cluster whole in one half" \
             if self.cluster_column else rows
         within = f" within the strata of {self.strata_column}" if self.strata_column else ""
-        return (f"the row fell in the {self.name} half of two random halves{clusters}, drawn{within} with seed "
+        return (f"the row fell in {self.phrase()} of two random halves{clusters}, drawn{within} with seed "
                 f"{self.seed} and listed in {Path(self.halves_file).name}")
 
 
@@ -442,7 +547,8 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet:
     _check_drawn(saved, shown)
     if choice.name not in saved.names():
         listed = " and ".join(f"'{printable(n)}'" for n in saved.names())
-        raise OptionError(f"{shown} holds the halves {listed}, not '{printable(choice.name)}'")
+        raise OptionError(f"{shown} holds the halves {listed}, not '{printable(choice.name)}'"
+                          + _named_by_the_other(choice.name, saved.names(), choice.path))
     if not isinstance(data, (str, Path)):
         raise OptionError(f"a half of {shown} is checked against the data file its rows were drawn from "
                           f"({printable(saved.data_file)}): give that file's path as the data, not a data frame")
@@ -481,9 +587,42 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet:
     mask = np.isin(numbers, saved.rows[np.asarray(saved.halves) == choice.name])
     chosen = frame[mask]
     half = HalfRows(shown, choice.name, saved.seed, int(mask.sum()), len(saved.rows),
-                    len(with_gaps) if with_gaps is not None else 0, saved.cluster_column, saved.strata_column)
+                    len(with_gaps) if with_gaps is not None else 0, saved.cluster_column, saved.strata_column,
+                    _clusters_per_half(saved))
     chosen.attrs[KEPT_BY] = tuple(frame.attrs.get(KEPT_BY, ())) + (half.text,)
     return chosen, half
+
+
+def _clusters_per_half(saved: SavedHalves) -> tuple[int, ...]:
+    """The clusters in each half of a halves file drawn by clusters, the half drawn first first (its command's
+    names, :class:`HalfNames`); () for halves drawn row by row.  A cluster's label names one cluster whatever its
+    stratum: the design checks that clusters are nested in strata (data.sample_design.check_design)."""
+    found = named_half(saved.names()[0]) if saved.names() else None
+    if not saved.cluster_column or found is None:
+        return ()
+    halves, clusters = np.asarray(saved.halves), np.asarray(saved.clusters, dtype=object)
+    return tuple(len(set(clusters[halves == name].tolist())) for name in found[0].names)
+
+
+def _named_by_the_other(name: str, names: tuple[str, ...], path) -> str:
+    """What a half's ``name`` of the other command's halves is in a file of ``names`` (explore's, or replicate's):
+    '; 'B' is what replicate --data names the half drawn second, which explore --split names 'confirmation': give
+    --half h.csv confirmation'; '' for any other name."""
+    asked, here = named_half(name), next((named_half(n) for n in names if named_half(n) is not None), None)
+    if asked is None or here is None or asked[0] == here[0]:
+        return ""
+    other, k = asked
+    this = here[0].names[k]
+    return (f"; '{printable(name)}' is what {other.command} names the half drawn {('first', 'second')[k]}, which "
+            f"{here[0].command} names '{this}': give {_half_given(path, this)}")
+
+
+def _half_given(path, name: str) -> str:
+    """The choice of the half ``name`` of the halves file ``path`` as the caller writes it ('--half h.csv
+    confirmation', "keep=[RandomHalf('h.csv', 'confirmation')]")."""
+    if interface() is Interface.COMMAND_LINE:
+        return f"{Option.HALF.flag} {_shell_word(str(path))} {name}"
+    return f"{Option.HALF.keyword}=[RandomHalf({str(path)!r}, {name!r})]"
 
 
 def _check_labels(saved: SavedHalves, frame: pd.DataFrame, numbers: np.ndarray, shown: str, source: str,

@@ -14,7 +14,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import count_text, cut_list, rounded_number, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, rounded_number, user_number
 from cfa_tool.data.kept_rows import row_of
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.language.names import written_group
@@ -24,6 +24,10 @@ from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names, did_you_mean
 
 SMALL_NUMBER_OF_CLUSTERS = 30  # below about 30-50 clusters cluster-robust errors are too small (common practice)
+#: what too few clusters do, in the words of every caution that says it: a fit's design (SampleDesign.caution) and a
+#: power plan's cluster sample (planned_clusters_caution)
+FEW_CLUSTERS_WORDS = ("with fewer than about 30-50 clusters (common practice) cluster-robust standard errors and tests "
+                      "tend to be too small")
 
 
 @dataclass(frozen=True)
@@ -429,13 +433,13 @@ class SampleDesign:
         if self.clusters is None:
             return None
         carried = free_parameters + thresholds
-        counted = (f"the {carried} free parameters ({free_parameters} of the model and {thresholds} thresholds)"
+        parameters = (f"the {carried} free parameters ({free_parameters} of the model and {thresholds} thresholds)"
                    if thresholds else f"the {free_parameters} free parameters")
         where = f"Only {self.clusters} clusters in '{self.columns.cluster}'"
         if self.clusters <= carried:
-            return (f"{where}, no more than {counted}: the cluster-robust covariance of the estimates is built from "
-                    f"the clusters' sums, so it can describe at most {max(self.clusters - 1, 0)} independent "
-                    f"directions (one fewer than the clusters), fewer than the parameters it covers. Tests of many "
+            return (f"{where}, no more than {parameters}: the cluster-robust covariance of the estimates is built from "
+                    f"the clusters' sums, so it can describe at most "
+                    f"{counted(max(self.clusters - 1, 0), 'independent direction')} (one fewer than the clusters), fewer than the parameters it covers. Tests of many "
                     f"parameters at once rest on the whole of that covariance and are unreliable here: the scaled "
                     f"chi-square test, its p-value and the robust CFI, TLI and RMSEA made from it (Cameron & Miller, "
                     f"2015). Each standard error on its own is less affected, though with few clusters standard "
@@ -450,8 +454,22 @@ class SampleDesign:
                     f"than about 30-50 clusters (common practice) the standard errors tend to be too small, and with "
                     f"no more clusters than the group's free parameters tests of many parameters at once are "
                     f"unreliable.")
-        return (f"{where}: with fewer than about 30-50 clusters (common practice) cluster-robust standard errors and "
-                f"tests tend to be too small, so p-values near the chosen level are less certain than they look.")
+        return f"{where}: {FEW_CLUSTERS_WORDS}, so p-values near the chosen level are less certain than they look."
+
+
+def planned_clusters_caution(clusters: int, free: int | None = None) -> str | None:
+    """The caution of a power plan whose cluster sample has only ``clusters`` clusters (workflows.power.ClusterPlan;
+    None from :data:`SMALL_NUMBER_OF_CLUSTERS` on), in the words of a fit's design (:data:`FEW_CLUSTERS_WORDS`,
+    :meth:`SampleDesign.caution`): the fit of such a sample tests less surely than the plan, a test of independent rows
+    by the design effect alone, assumes; with no more clusters than the model's ``free`` parameters, its design-based
+    test of fit is unreliable (Cameron & Miller 2015, recalled from memory, as the fit's caution cites it)."""
+    if clusters >= SMALL_NUMBER_OF_CLUSTERS:
+        return None
+    joint = (f"; with no more clusters than the model's {free} free parameters, the design-based test of fit, a test "
+             f"of many parameters at once, is unreliable (Cameron & Miller, 2015)" if free is not None and
+             clusters <= free else "")
+    return (f"The plan's cluster sample has only {clusters} cluster{'s' if clusters != 1 else ''}: {FEW_CLUSTERS_WORDS}, "
+            f"so its fit would reject more often than the power and the sample size planned here assume{joint}.")
 
 
 def few_clusters_advice(ordinal: bool = False) -> str:

@@ -1,6 +1,7 @@
 """Cautions on what the row filters (--keep, keep=...) did to the sample, first in every view of every command that
 takes them (composed with the data's other cautions by pipeline.inputs.data_problems): a filter that selects rows by
-their answers to a model item, and a filter whose value label several codes of the column carry."""
+their answers to a model item, a filter whose value label several codes of the column carry, and one half (--half) of
+halves drawn from a handful of clusters, with the halves of such clusters that replicate and explore draw."""
 
 from __future__ import annotations
 
@@ -36,7 +37,24 @@ def row_filter_problems(loaded: LoadedData, spec: Spec | None = None,
                 found.append(label_of_several_codes(one, where))
             if one.other_case:
                 found.append(labels_by_case(one, where))
+        if getattr(f, "units", ()):  # one half of a halves file drawn by cluster (data.halves.HalfRows)
+            found += few_clusters_problems(f.units, f.cluster_column, f.explored, f.strata_column or None,
+                                           f"{f.phrase()} of {f.halves_file}{where}")
     return tuple(found)
+
+
+def few_clusters_problems(units: tuple[int, ...], cluster: str | None, explored: bool, strata: str | None = None,
+                          analysed: str = "") -> tuple[Problem, ...]:
+    """The caution, first in every view, of random halves drawn cluster by cluster from a handful of clusters
+    (data.halves.few_clusters_caution: the one rule of replicate --data and explore --split, ``explored``, and of one
+    half of their file read back, ``analysed`` naming it), as a problem of its own kind; () with enough clusters or
+    without them (hostile s24b: two districts made two 'random halves' of one district each)."""
+    from cfa_tool.data.halves import few_clusters_caution
+
+    words = few_clusters_caution(units, cluster, explored, strata, analysed) if cluster and units else None
+    if words is None:
+        return ()
+    return (Problem(ProblemKind.HALVES_OF_FEW_CLUSTERS, (), float(sum(units)), *words),)
 
 
 def selections_on_items(filters, analysed) -> tuple:

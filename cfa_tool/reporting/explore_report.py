@@ -12,13 +12,13 @@ from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import html_text as esc
-from cfa_tool.data.halves import halves_named_alike
+from cfa_tool.data.halves import EXPLORE_NAMES, halves_named_alike
 from cfa_tool.numbers import count_text
 from cfa_tool.reporting.numbers import est_num, est_unit, num, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, ReportTable, _table
 
-SPLIT_STATEMENT = ("The rows were divided at random into two halves (seed {seed}): the number of factors, the solution "
-                   "and the draft model come from the exploration half ({first} rows) alone; the confirmation half "
+SPLIT_STATEMENT = ("The rows were {divided} (seed {seed}): the number of factors, the solution "
+                   "and the draft model come from {explored} ({first} rows) alone; {confirming} "
                    "({second} rows) was not used to choose the model, only to fit it.")
 COUNT_SECTION = "How many factors"
 CONFIRMATION_SECTION = "Confirmation half: the draft model fitted"
@@ -36,7 +36,7 @@ def problem_notice(result) -> T.ProblemNotice | None:
 
 def header_lines(result) -> list[str]:
     ex = result.exploration
-    half = " (the exploration half)" if result.split is not None else ""
+    half = f" ({EXPLORE_NAMES.phrase(0)})" if result.split is not None else ""
     kind = "polychoric" if ex.data.kind.value == "polychoric" else "Pearson"
     return [f"Data: {result.source}; {count_text(ex.data.n_obs)} rows analysed{half} of {count_text(result.rows_read)} read",
             f"Items ({len(result.items)}): {names_text(result.items)}",  # as --items takes them: commas stay inside
@@ -213,7 +213,8 @@ def split_lines(result) -> list[Text]:
     s = result.split
     if s is None:
         return [same_data_caution()]
-    lines = [SPLIT_STATEMENT.format(seed=s.seed, first=count_text(len(s.exploration_rows)),
+    lines = [SPLIT_STATEMENT.format(divided=s.divided_words(), explored=EXPLORE_NAMES.phrase(0),
+                                    confirming=EXPLORE_NAMES.phrase(1), seed=s.seed, first=count_text(len(s.exploration_rows)),
                                     second=count_text(len(s.confirmation_rows)))]
     if s.how_drawn():  # by clusters or strata (workflows.explore.SplitHalves)
         lines.append(s.how_drawn())

@@ -868,8 +868,8 @@ def _filtered(data, file: str = "the data file") -> str:
     each filter worded by RowFilter.in_words, several '!=' of one column as one clause (data.filters.filters_in_words),
     then the rows a filter left out for an empty cell ('; 54 rows with no value of mode were left out'); '' without
     filters.  ``file``: the file's words (replicate's two files are named).  Said inside the parentheses of a
-    sample's description, and so without parentheses of its own (new-user trial 18: 'those where the row fell in the
-    A half of two random halves (seed 11; listed in halves.csv)' nested them)."""
+    sample's description, and so without parentheses of its own (new-user trial 18: 'those where the row fell in
+    half A of two random halves (seed 11; listed in halves.csv)' nested them)."""
     if not data.row_filters:
         return ""
     from cfa_tool.data.filters import filters_in_words
@@ -2376,13 +2376,16 @@ def replication_paragraph(replications) -> str:
     other = _estimator_phrase(first.loose)
     by = estimator if other == estimator else f"{estimator} (in the validation sample by {other})"
     if first.split is not None:
+        from cfa_tool.data.halves import half_phrase
+
         rows = first.split
-        parts = [f"The replication of {model} was examined in two random halves, {rows.drawn_phrase}, of {count_text(rows.split)} of "
+        parts = [f"The replication of {model} was examined in {rows.halves_words}, {rows.drawn_phrase}, of {count_text(rows.split)} of "
                  f"the {count_text(rows.in_file)} rows of one data file{rows.kept_words()}: each half served once as the calibration sample, where the model was "
                  f"estimated by {by}, and once as the validation sample, where it was refitted (double "
                  f"cross-validation; Cudeck & Browne, 1983), and whether one solution holds in both halves was "
-                 f"tested once, with the same two halves either way: half A ({_sample_rows_phrase(first.rows[0])}) "
-                 f"and half B ({_sample_rows_phrase(first.rows[1])})."] if first.rows else []
+                 f"tested once, with the same two halves either way: {half_phrase(False, 0)} "
+                 f"({_sample_rows_phrase(first.rows[0])}) and {half_phrase(False, 1)} "
+                 f"({_sample_rows_phrase(first.rows[1])})."] if first.rows else []
     else:
         parts = [f"The replication of {model} was examined in two samples: the model was estimated in a calibration "
                  f"sample ({_sample_rows_phrase(first.rows[0], result.data, first.calibration)}) and refitted in a "

@@ -13,7 +13,7 @@ from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATE
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.data.groups import reference_words
-from cfa_tool.data.halves import halves_named_alike
+from cfa_tool.data.halves import REPLICATE_NAMES, halves_named_alike
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
@@ -1060,7 +1060,8 @@ def replication_report(replications) -> Report:
                      f"the two-sample fits' robust statistics, and its chi-square is that scaled difference; the "
                      f"strictly positive version (Satorra & Bentler 2010) is used when the 2001 correction is not "
                      f"positive.")
-    title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
+    halves = next((rep.split.halves_words for rep in reps if rep.split is not None), "two random halves")
+    title = "Replication" if len(reps) == 1 else f"Replication in {halves}, each way"
     # the data's cautions first (the halves of one file: once), then the calibration fits'
     cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems)) + cautions
     split = tuple(dict.fromkeys([_split_sentence(rep.split) for rep in reps if rep.split is not None]
@@ -1101,7 +1102,8 @@ ROWS_WITH_GAPS_USED = {
 def _rows_table(rep) -> ReportTable:
     """The rows of each sample (workflows.replication.SampleRows): read, analysed, with gaps, and how those were used
     (random halves: half A is the first replication's calibration sample)."""
-    names = (("Half A", "Half B") if rep.split is not None else ("Calibration", "Validation"))
+    names = ((REPLICATE_NAMES.label(0), REPLICATE_NAMES.label(1)) if rep.split is not None
+             else ("Calibration", "Validation"))
     # with a row filter the rows the file holds come first and the rows read are those the filter kept (hostile
     # tester s13: 'Rows read 123' where the file held 240 and the filter kept 123)
     filtered = any(sample.in_file is not None for sample in rep.rows)
@@ -1174,11 +1176,11 @@ def _split_sentence(rows) -> str:
     drawn = rows.how_drawn()  # row by row, or cluster by cluster within strata (workflows.replication.SplitRows)
     clusters = f" {drawn[0].upper()}{drawn[1:]}."
     if rows.split >= rows.in_file:
-        return (f"The {count_text(rows.split)} rows {f'{rows.kept_words()[1:]}' if rows.filters else 'of the file'} were split at "
-                f"random into two halves.{clusters}")
+        return (f"The {count_text(rows.split)} rows {f'{rows.kept_words()[1:]}' if rows.filters else 'of the file'} were "
+                f"{rows.split_words()}.{clusters}")
     why = ("they miss some answers, and the halves hold complete rows only" if rows.complete_only else
            "they answer none of the model's items")
-    return (f"{count_text(rows.split)} of the {count_text(rows.in_file)} rows{rows.kept_words()} were split at random into two halves; the other "
+    return (f"{count_text(rows.split)} of the {count_text(rows.in_file)} rows{rows.kept_words()} were {rows.split_words()}; the other "
             f"{count_text(rows.in_file - rows.split)} were left out before the split ({why}).{clusters}")
 
 
@@ -1221,11 +1223,13 @@ def bootstrap_report(boot) -> Report:
     if _design_lines(result):
         lines += [*_design_lines(result), "Resamples draw whole clusters (each row its own cluster without them) within "
                                           "strata, and keep the rows' weights."]
-        clusters = result.design.clusters
-        if clusters is not None and clusters < SMALL_NUMBER_OF_CLUSTERS:
-            lines.append(f"With only {clusters} clusters the resamples are few kinds of the same clusters, so the "
-                         f"bootstrap intervals are too narrow and unsteady (fewer than about {SMALL_NUMBER_OF_CLUSTERS} "
-                         f"clusters, common practice); read them as rough.")
+    clusters = result.design.clusters if _design_lines(result) else None
+    # resamples of a handful of clusters: a problem of every interval, first (s25: said among the lines before)
+    few_resampled = (f"With only {clusters} clusters the resamples are few kinds of the same clusters, so the bootstrap "
+                     f"intervals are too narrow and unsteady (fewer than about {SMALL_NUMBER_OF_CLUSTERS} clusters, "
+                     f"common practice). What to try: read them as rough, beside the fit's cluster-robust standard "
+                     f"errors; more clusters in a later sample help."
+                     if clusters is not None and clusters < SMALL_NUMBER_OF_CLUSTERS else None)
     if boot.bollen_stine_p is not None:
         lines.append(f"Bollen-Stine bootstrap p-value of the chi-square test: {unit(boot.bollen_stine_p)} "
                      f"({count_text(boot.bollen_stine_converged)} converged resamples; normal-theory p {p_phrase(result.fit.p_value)}).")
@@ -1275,6 +1279,9 @@ def bootstrap_report(boot) -> Report:
     notice = _fit_notice(result)
     if lost:  # intervals conditional on what the left-out resamples lacked: in the first box, as cutoffs' samples
         notice = replace(notice, lines=notice.lines + (lost,)) if notice is not None else _notice([], [lost])
+    if few_resampled:
+        notice = (replace(notice, lines=notice.lines + (few_resampled,)) if notice is not None
+                  else _notice([], [few_resampled]))
     if unavailable:  # thresholds without an interval: in the first box, with what would give them one
         without = _without_interval(boot, unavailable)
         notice = replace(notice, lines=notice.lines + (without,)) if notice is not None else _notice([], [without])
@@ -1564,7 +1571,9 @@ def power_report(result) -> Report:
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
     notes = [power_assumptions()] + ([POWER_ORDINAL] if result.ordinal else [])
     below = getattr(result, "below_rows_rule", ())
-    notice = ProblemNotice(POWER_CAUTION, (rows_rule_caution(result),), False) if below else None
+    lines = (rows_rule_caution(result),) if below else ()
+    lines += planned_clusters_lines(result.clusters, getattr(result, "free_parameters", None))
+    notice = ProblemNotice(POWER_CAUTION, lines, False) if lines else None
     return Report(ResultKind.POWER, "Power of the RMSEA test (MacCallum, Browne & Sugawara 1996)", notice, (),
                   (table,), tuple(notes), ("RMSEA values of close and not-close fit are conventions, not laws.",))
 
@@ -1637,17 +1646,21 @@ def nested_power_report(result) -> Report:
                       ".")),) if defaulted else ()
     population = _population_of(result)
     notice = None
+    few = planned_clusters_lines(result.clusters, result.population.table.n_free if result.population else None)
+    if few:
+        notice = ProblemNotice(POWER_CAUTION, few, False)
     if result.below_rows_rule:  # the test's N is not what estimating the model needs: first
         from cfa_tool.assessment.admissibility import ROWS_PER_PARAMETER, ROWS_RULE
 
         below = result.below_rows_rule
         one = len(below) == 1
         notice = ProblemNotice(POWER_CAUTION, (
-            f"{' and '.join(f'N = {count_text(f.rows)}' for f in below)} {'is' if one else 'are'} judged by the "
+            f"{' and '.join(_sizes_judged(result))} {'is' if one else 'are'} judged by the "
             f"difference test alone, not by what estimating the model needs: {'; '.join(f.figures() for f in below)}, "
-            f"fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; {count_text(ROWS_PER_PARAMETER * below[0].parameters)} "
-            f"rows here); this plan says nothing of how precisely the loadings, variances and correlations are "
-            f"estimated at {'that N' if one else 'those sizes'}, which a power simulation of the model gives",), False)
+            f"fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; {_rows_enough(result)} "
+            f"here); this plan says nothing of how precisely the loadings, variances and correlations are "
+            f"estimated at {'that N' if one else 'those sizes'}, which a power simulation of the model gives",) + few,
+            False)
     return Report(ResultKind.POWER, f"Power of the chi-square difference test against '{nested.name}' (Satorra & "
                                     f"Saris 1985)", notice, (), (table, *population), (assumptions,),
                   ("The power is a plan's figure for the population assumed; high-stakes decisions need validation "
@@ -1660,15 +1673,17 @@ def rows_rule_caution(result) -> Note:
     test's N is not what the model's estimates need, and a power simulation of the model gives that."""
     from cfa_tool.assessment.admissibility import ROWS_PER_PARAMETER, ROWS_RULE
 
+    from math import ceil
+
     below = result.below_rows_rule
     one = len(below) == 1
     enough = ROWS_PER_PARAMETER * below[0].parameters
-    sizes = [f.rows for f in below] + [enough]
+    sizes = [ceil(f.rows - 1e-9) for f in below] + [enough]  # independent rows, which power-simulation simulates
     typed = [user_number(n) for n in sizes]  # as a command takes them: no grouping comma inside a list of commas
-    return Note((f"{' and '.join(f'N = {count_text(f.rows)}' for f in below)} {'is' if one else 'are'} judged by the RMSEA "
+    return Note((f"{' and '.join(_sizes_judged(result))} {'is' if one else 'are'} judged by the RMSEA "
                  f"test of {result.test} fit alone, not by what estimating the model needs: "
                  f"{'; '.join(f.figures() for f in below)}, fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; "
-                 f"{count_text(enough)} rows here); this plan says nothing of how precisely the loadings, variances and "
+                 f"{_rows_enough(result)} here); this plan says nothing of how precisely the loadings, variances and "
                  f"correlations are estimated at {'that N' if one else 'those sizes'}. What to try: plan the N with a "
                  f"power simulation of the model, which gives each parameter's power, bias and coverage at each sample "
                  f"size",
@@ -1676,6 +1691,53 @@ def rows_rule_caution(result) -> Note:
                          f"power_simulation(model, [{', '.join(typed)}]))",
                          f" ({' and '.join(count_text(n) for n in sizes)} rows, say)"),
                  "."))
+
+
+def planned_clusters_lines(planned, free: int | None) -> tuple[Note, ...]:
+    """The caution, first, of a power plan whose cluster sample (workflows.power.ClusterPlan) has too few clusters
+    (data.sample_design.planned_clusters_caution, in the words of a fit's design), with what to try: more clusters of
+    fewer rows, whose design effect 1 + (m - 1) ICC is smaller too when it came from the intraclass correlation
+    (Kish 1965); () without a number of clusters or with enough."""
+    from cfa_tool.data.sample_design import planned_clusters_caution
+    from cfa_tool.options import Interface, interface
+
+    on_command_line = interface() is Interface.COMMAND_LINE
+    if planned is None or planned.clusters is None:
+        return ()
+    words = planned_clusters_caution(planned.clusters, free)
+    if words is None:
+        return ()
+    lower = (", which lowers the design effect too (1 + (m - 1) ICC, Kish 1965)" if planned.intraclass is not None
+             else "")
+    return (Note((f"{words} What to try: plan more clusters of fewer rows each",
+                  Command(f" (a smaller {Option.CLUSTER_SIZE.flag if on_command_line else Option.CLUSTER_SIZE.keyword})"),
+                  f"{lower}.")),)
+
+
+def _sizes_judged(result) -> list[str]:
+    """The sample sizes of a power plan below the rule of rows per parameter, each as the plan's table names it
+    (workflows.power.rows_rule_judged): 'N = 211' of independent rows, and under a planned cluster sample 'N = 200 rows
+    of the cluster sample, worth 80 independent rows (N / design effect, Kish 1965)', the rows the rule judges."""
+    effective = getattr(result, "effective_n", None)
+    planned = getattr(result, "clusters", None) is not None
+    return [f"N = {count_text(result.n_obs)} rows of the cluster sample, worth {num(f.rows, 1)} independent rows "
+            f"(N / design effect, Kish 1965)" if effective is not None and f.rows == effective else
+            f"N = {count_text(f.rows)}{' independent rows' if planned else ''}" for f in result.below_rows_rule]
+
+
+def _rows_enough(result) -> str:
+    """The rows the rule of rows per parameter asks for ('135 rows'), and under a planned cluster sample the rows
+    of that sample they take ('135 independent rows, 338 rows of the cluster sample': times the design effect)."""
+    from math import ceil
+
+    from cfa_tool.assessment.admissibility import ROWS_PER_PARAMETER
+
+    enough = ROWS_PER_PARAMETER * result.below_rows_rule[0].parameters
+    planned = getattr(result, "clusters", None)
+    if planned is None:
+        return f"{count_text(enough)} rows"
+    return (f"{count_text(enough)} independent rows, {count_text(ceil(enough * planned.design_effect - 1e-9))} rows of "
+            f"the cluster sample")
 
 
 def power_assumptions() -> Note:

@@ -18,13 +18,13 @@ import enum
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.halves import drawn_halves, few_clusters_words
+from cfa_tool.data.halves import drawn_halves, few_clusters_words, half_phrase
 from cfa_tool.data.kept_rows import FINISHED_COLUMNS, ROW_NAMING, row_naming
 from cfa_tool.data.moments import stray_word_message
 from cfa_tool.data.non_answers import run_words
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.assessment.admissibility import sample_size_problems
-from cfa_tool.numbers import count_text, cut_list, more_words, names_shown, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, user_number, word_list
 from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.note_parts import Command, Note, Text
@@ -92,10 +92,25 @@ class SplitHalves:
         within = f" within each stratum of {self.strata}" if self.strata is not None else ""
         if self.cluster is not None:
             return (f"The halves were drawn cluster by cluster{within}: every row of a cluster of {self.cluster} is in "
-                    f"one half ({_clusters(self.units[0])} in the exploration half, {self.units[1]} in the "
-                    f"confirmation half); within each half the rows are still taken as independent"
-                    f"{few_clusters_words(self.units, past=True)}.")
+                    f"one half ({_clusters(self.units[0])} in {half_phrase(True, 0)}, {self.units[1]} in "
+                    f"{half_phrase(True, 1)}); within each half the rows are still taken as independent"
+                    f"{few_clusters_words(self.units)}.")
         return f"The halves were drawn row by row{within}." if self.strata is not None else ""
+
+    def divided_words(self) -> str:
+        """How the rows were divided, after 'The rows were': 'divided at random into two halves', or, drawn from a
+        handful of clusters (data.halves.few_clusters_words), what was done instead: 'divided into two halves by their
+        2 clusters of district, drawn at random: north to the exploration half and south to the confirmation half'
+        (hostile s24b: such halves are those clusters, not random halves)."""
+        if self.cluster is None or not few_clusters_words(self.units):
+            return "divided at random into two halves"
+        labels = getattr(self.drawn_by, "labels", {}) or {}
+        named = [word_list(dict.fromkeys(labels[r][0] for r in rows if r in labels))
+                 for rows in (self.exploration_rows, self.confirmation_rows)]
+        which = (f": {named[0]} to {half_phrase(True, 0)} and {named[1]} to {half_phrase(True, 1)}"
+                 if all(named) else "")
+        return (f"divided into two halves by their {counted(sum(self.units), 'cluster')} of {self.cluster}, drawn at "
+                f"random{which}")
 
     def to_dict(self) -> dict:
         return {"seed": self.seed, "exploration_rows": list(self.exploration_rows),
@@ -1067,6 +1082,10 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         confirming.attrs[ROW_NAMING] = row_naming(frame)
         halves = (tuple(int(v) for v in numbers[first]), tuple(int(v) for v in numbers[second]), confirming)
         design_split = dict(cluster=cluster, strata=strata, units=units, drawn_by=drawn_by)
+        from cfa_tool.pipeline.row_filter_cautions import few_clusters_problems
+
+        # halves of a handful of clusters first: they are those clusters, not random halves (hostile s24b)
+        data_problems = few_clusters_problems(units, cluster, True, strata) + tuple(data_problems)
         frame = explored
     names = tuple(chosen)
     if by_default and ordinal_items:
@@ -1260,7 +1279,7 @@ def _confirm(exploration: Exploration, halves, seed: int, source: str, statement
     except CfaError as exc:
         return SplitHalves(seed, first, second, None, f"the draft model could not be fitted on the confirmation half: "
                                                       f"{exc}")
-    fitted = replace_source(fitted, f"{source} (confirmation half, {count_text(len(second))} rows)")
+    fitted = replace_source(fitted, f"{source} ({half_phrase(True, 1, False)}, {count_text(len(second))} rows)")
     if statements:
         written = parse_model(exploration.draft.text + "".join(line + "\n" for line in statements), "draft model")
         fitted = replace(fitted, data=replace(fitted.data, answer_coding=coding_record(written)))
@@ -1271,7 +1290,7 @@ def replace_source(result: FitResult, source: str) -> FitResult:
     from dataclasses import replace
 
     return replace(result, data=replace(result.data, source=source), model_name="Draft model from the exploration",
-                   model_source="draft model (exploration half)")
+                   model_source=f"draft model ({half_phrase(True, 0, False)})")
 
 
 def sorted_items(exploration: Exploration) -> tuple[int, ...]:

@@ -54,6 +54,9 @@ class PowerResult(Presentable):
     #: (Kish 1965), at which ``power`` is computed; None otherwise (hostile tester s24: the power of N independent
     #: rows was shown beside the design)
     effective_n: float | None = None
+    #: the model's free parameters of its covariance structure, p(p + 1)/2 - df, when its variables are known (None
+    #: else): a planned cluster sample of no more clusters is cautioned (data.sample_design.planned_clusters_caution)
+    free_parameters: int | None = None
 
     def to_dict(self) -> dict:
         return asdict(self)
@@ -83,6 +86,18 @@ def effective_rows(n_obs: int, clusters) -> float:
                           f"{user_number(round(effective, 2))} independent rows, too few for a test of fit; "
                           f"give a larger N")
     return effective
+
+
+def rows_rule_judged(free: int, required: int, n_obs: int | None,
+                     effective: float | None = None) -> tuple[RowsPerParameter, ...]:
+    """The sample sizes of a plan below the rule of rows per free parameter (assessment.admissibility
+    .rows_per_parameter), as independent rows: the smallest N, of independent rows, and the N asked about, or under a
+    planned cluster sample the ``effective`` rows it is worth, N / design effect (Kish 1965's effective sample size,
+    recalled from memory), by which its power is computed too (s25: N = 200 rows under a design effect of
+    2.5, worth 80 rows for 27 parameters, passed the rule as 200).  The one judgement of every plan (the RMSEA
+    test's and the difference test's)."""
+    judged = (required, effective if effective is not None else n_obs)
+    return tuple(facts for n in dict.fromkeys(judged) if n is not None for facts in rows_per_parameter((n,), (free,)))
 
 
 def cluster_plan(required_n: int, design_effect: float | None = None, cluster_size: float | None = None,
@@ -211,16 +226,15 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
                 f"rows than that to be estimated at all (and a factor analysis far more); N = {variables + 2} is shown "
                 f"as the least possible")
         required = variables + 2
-    below: tuple[RowsPerParameter, ...] = ()
-    if variables is not None:
-        free = variables * (variables + 1) // 2 - df
-        below = tuple(facts for n in dict.fromkeys((required, n_obs)) if n is not None
-                      for facts in rows_per_parameter((n,), (free,)))
     effective = None
     if clusters is not None:  # the plan's N is the design's, not that of independent rows
         clusters = cluster_plan(required, design_effect, cluster_size, intraclass)
         if n_obs is not None:  # so is the N asked about: its power is that of the independent rows it is worth
             effective = effective_rows(n_obs, clusters)
             power = rmsea_power(df, effective, eps0, epsa, alpha)
+    below: tuple[RowsPerParameter, ...] = ()
+    free = variables * (variables + 1) // 2 - df if variables is not None else None
+    if free is not None:
+        below = rows_rule_judged(free, required, n_obs, effective)
     return PowerResult(test, df, eps0, epsa, alpha, n_obs, power, required, target_power, note, ordinal, below,
-                       clusters, effective)
+                       clusters, effective, free)

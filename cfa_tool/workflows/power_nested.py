@@ -209,11 +209,10 @@ def nested_power(model: str | Path | Spec, nested_model: str | Path | Spec, n_ob
     N).  The N is never below what estimating the model needs (more rows than items).  ``design_effect``, or
     ``intraclass`` with ``cluster_size``: a planned cluster sample (workflows.power.cluster_plan)."""
     from cfa_tool import options as check
-    from cfa_tool.assessment.admissibility import rows_per_parameter
     from cfa_tool.model.parameters import group_statement
     from cfa_tool.numbers import user_number
     from cfa_tool.pipeline.inputs import load_spec, without_exploratory_blocks
-    from cfa_tool.workflows.power import cluster_plan, effective_rows
+    from cfa_tool.workflows.power import cluster_plan, effective_rows, rows_rule_judged
     from cfa_tool.workflows.simulation import model_order_labels, population_from_spec
 
     spec = without_exploratory_blocks(load_spec(model), "power",
@@ -261,10 +260,9 @@ def nested_power(model: str | Path | Spec, nested_model: str | Path | Spec, n_ob
         required = p + 2
     labels = model_order_labels(population.table)
     free = population.table.n_free
-    below = tuple(facts for n in dict.fromkeys((required, n_obs)) if n is not None
-                  for facts in rows_per_parameter((n,), (free,)))
     clusters = cluster_plan(required, design_effect, cluster_size, intraclass)
     effective = effective_rows(n_obs, clusters) if clusters is not None and n_obs is not None else None
+    below = rows_rule_judged(free, required, n_obs, effective)  # as independent rows
     at = effective if effective is not None else n_obs
     return NestedPower(plan, alpha, n_obs, approximate_power(plan.discrepancy, df, at, alpha) if n_obs is not None else None,
                        required, target_power, tuple(labels.get(x, x) for x in population.defaulted),

@@ -63,8 +63,8 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import count_text, counted, cut_list, user_number
-from cfa_tool.data.halves import drawn_halves, few_clusters_words
+from cfa_tool.numbers import count_text, counted, cut_list, user_number, word_list
+from cfa_tool.data.halves import drawn_halves, few_clusters_words, half_phrase
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.pipeline.inputs import (_described, data_problems, rows_named, keeps_rows_with_gaps, load_spec, make_options, odd_values_named,
                                       read_inputs_with_notes, refit_missing_handling, refuse_totals_rows,
@@ -745,7 +745,10 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
 
     # (a cluster or strata column the halves are drawn by that keeps a no-answer code: one cluster of its rows)
     ids, named_by = rows_named(loaded, id_column, spec.observed_names)
-    problems = tuple(dict.fromkeys(data_problems(loaded, spec, ids=ids, listwise=rows.complete_only, id_column=named_by)
+    # halves of a handful of clusters first: they are those clusters, not random halves (hostile s24b)
+    from cfa_tool.pipeline.row_filter_cautions import few_clusters_problems
+
+    problems = few_clusters_problems(units, cluster, False, strata) + tuple(dict.fromkeys(data_problems(loaded, spec, ids=ids, listwise=rows.complete_only, id_column=named_by)
                                    + column_code_problems(loaded, None, design))) + _left_out(
         len(frame) - split, len(frame), source, MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
     # what the file read as no answer kept with each half's fit, as fit keeps it (with_missing_reading; the filters,
@@ -809,14 +812,48 @@ class SplitRows:
         return DrawnBy(self.cluster, self.strata, {row: (c, h) for row, c, h in self.labels})
 
     @property
+    def few_clusters(self) -> bool:
+        """Drawn cluster by cluster from a handful of clusters in a half (data.halves.few_clusters_words): the halves
+        are those clusters rather than samples of them, which every view says first (hostile s24b)."""
+        return self.cluster is not None and bool(few_clusters_words(self.units))
+
+    @property
+    def halves_words(self) -> str:
+        """The halves as the title and the methods paragraph name them: 'two random halves', or, drawn from a
+        handful of clusters, 'two halves of only 2 clusters of district' (they are those clusters)."""
+        if not self.few_clusters:
+            return "two random halves"
+        return f"two halves of only {counted(sum(self.units), 'cluster')} of {self.cluster}"
+
+    def clusters_in(self, k: int) -> tuple[str, ...]:
+        """The clusters in half ``k`` (0: half A), by their labels as read, in the rows' order."""
+        rows = set(self.half_a if k == 0 else self.half_b)
+        return tuple(dict.fromkeys(c for row, c, _ in self.labels if row in rows))
+
+    def _which_clusters(self) -> str:
+        """'district south to half A and north to half B': the clusters of each half by name, when they are few
+        ('' else, or without their labels)."""
+        if not self.few_clusters or not self.labels:
+            return ""
+        named = [word_list(names) for names in (self.clusters_in(0), self.clusters_in(1))]
+        return f"{named[0]} to {half_phrase(False, 0)} and {named[1]} to {half_phrase(False, 1)}"
+
+    @property
     def drawn_phrase(self) -> str:
         """How the halves were drawn, after 'two random halves, ' in a methods paragraph: 'drawn row by row', 'drawn
-        cluster by cluster (whole clusters of school to each half, within the strata of region)'."""
+        cluster by cluster (whole clusters of school to each half, within the strata of region)'; from a handful of
+        clusters, which went to which half ('whole clusters of district to each half by a random draw: south to half
+        A and north to half B')."""
         within = f"within the strata of {self.strata}"
         if self.cluster is not None:
+            which = self._which_clusters()
             return (f"drawn cluster by cluster (whole clusters of {self.cluster} to each half"
-                    + (f", {within})" if self.strata is not None else ")"))
+                    + (f", {within}" if self.strata is not None else "")
+                    + (f", by a random draw: {which})" if which else ")"))
         return "drawn row by row" + (f" {within}" if self.strata is not None else "")
+
+    def _clusters_per_half(self) -> str:
+        return f"{counted(self.units[0], 'cluster')} in {half_phrase(False, 0)}, {self.units[1]} in {half_phrase(False, 1)}"
 
     def independence_sentence(self) -> str:
         """What halves drawn by cluster still assume, a sentence of the methods paragraph ('' for halves drawn row by
@@ -825,9 +862,9 @@ class SplitRows:
             return ""
         few = few_clusters_words(self.units, past=True)
         samples = (", so the halves were independent samples of clusters" if not few else "")  # (else: those clusters)
-        return (f"Every row of a cluster was in one half ({self.units[0]} clusters in half A, {self.units[1]} in half "
-                f"B){samples}{few}; within each half the rows were taken as independent, so the test of one solution is "
-                f"too liberal if rows of one cluster answer alike.")
+        return (f"Every row of a cluster was in one half ({self._clusters_per_half()}){samples}{few}; within each half "
+                f"the rows were taken as independent, so the test of one solution is too liberal if rows of one "
+                f"cluster answer alike.")
 
     def how_drawn(self) -> str:
         """How the halves were drawn and what that means for rows that come in clusters, in the words of the split
@@ -840,10 +877,19 @@ class SplitRows:
         within = f" within each stratum of {self.strata}" if self.strata is not None else ""
         few = few_clusters_words(self.units)  # a handful of clusters: the halves are those clusters (hostile s24b)
         return (f"the halves are drawn cluster by cluster{within}: every row of a cluster of {self.cluster} is in one "
-                f"half ({self.units[0]} clusters in half A, {self.units[1]} in half B)"
+                f"half ({self._clusters_per_half()})"
                 + (few if few else ", so the halves are independent samples of clusters")
                 + "; within each half the fits, the test of one solution and the cross-validation index still take the "
                   "rows as independent, so the test's p-value comes out too small when rows of one cluster answer alike")
+
+    def split_words(self) -> str:
+        """'split at random into two halves', or, drawn from a handful of clusters, what was done instead: 'split into
+        two halves by their clusters of district, drawn at random: south to half A and north to half B'."""
+        if not self.few_clusters:
+            return "split at random into two halves"
+        which = self._which_clusters()
+        return (f"split into two halves by their {counted(sum(self.units), 'cluster')} of {self.cluster}, drawn at "
+                f"random" + (f": {which}" if which else ""))
 
     #: how random halves are drawn, and what that means for rows that come in clusters (new-user trial s16: halves
     #: split households without a word); the split sentence of the report and the methods paragraph say it
@@ -860,6 +906,11 @@ class SplitRows:
         from cfa_tool.data.filters import kept_by_words
 
         return f" kept by {kept_by_words(self.filters)} (of the {count_text(self.rows_in_file)} rows in the file)"
+
+
+def _half_source(source: str, k: int, seed: int) -> str:
+    """A half's data as its fit names them: 'data.csv (half A, seed 1)' (data.halves.REPLICATE_NAMES)."""
+    return f"{source} ({half_phrase(False, k)}, seed {seed})"
 
 
 def _split_design(cluster: str | None, strata: str | None):
@@ -901,15 +952,15 @@ def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal
     b = complete.iloc[second]
     rows = (tuple(int(v) for v in row_numbers(a)), tuple(int(v) for v in row_numbers(b)))
     if ordinal_items:
-        ma = _ordinal_moments(spec, a, f"{source} (half A, seed {seed})", ordinal_items, pairwise)
-        mb = _ordinal_moments(spec, b, f"{source} (half B, seed {seed})", ordinal_items, pairwise)
+        ma = _ordinal_moments(spec, a, _half_source(source, 0, seed), ordinal_items, pairwise)
+        mb = _ordinal_moments(spec, b, _half_source(source, 1, seed), ordinal_items, pairwise)
         first = replicate_ordinal(spec, ma, mb, method, _two_samples(spec, (a, b), source, ordinal_items, pairwise),
                                   **options)
         # one test of one solution for both directions: the same two halves (not fitted twice)
         second = replace(replicate_ordinal(spec, mb, ma, method, "", **options), same_solution=first.same_solution)
         return (first, second), rows, units, labels
-    ma = sample_moments(a, spec.observed_names, f"{source} (half A, seed {seed})", missing=handling)
-    mb = sample_moments(b, spec.observed_names, f"{source} (half B, seed {seed})", missing=handling)
+    ma = sample_moments(a, spec.observed_names, _half_source(source, 0, seed), missing=handling)
+    mb = sample_moments(b, spec.observed_names, _half_source(source, 1, seed), missing=handling)
 
     first = replicate_moments(spec, ma, mb, **options)
     # one test of one solution for both directions: the same two halves (not fitted twice)

@@ -75,7 +75,7 @@ def test_halves_of_the_complete_rows_read_back_when_rows_with_gaps_are_left_out(
     assert half.n_obs == direct.n_obs == pair[0].calibration_result.n_obs == len(rows_a) == 133
     assert half.fit.chi_square == pytest.approx(direct.fit.chi_square, rel=1e-9)
     assert half.fit.chi_square == pytest.approx(pair[0].calibration_result.fit.chi_square, rel=1e-9)
-    note = next(n for n in half.warnings if "half (seed 3)" in n)
+    note = next(n for n in half.warnings if "half A (seed 3)" in n)
     assert ("133 of the 265 rows split at random into two halves, those with an answer to every model variable "
             "(34 rows with gaps left out before the split, as missing='listwise' leaves them out)") in note
     assert "two random halves of the rows with an answer to every model variable, drawn with seed 3" in \
@@ -256,7 +256,7 @@ def test_every_command_that_selects_rows_takes_the_half_of_a_halves_file(grouped
         code = cli.main([str(a) for a in argv + ["--data", data, "--half", halves, "A"] + rows])
     assert code == 0, err.getvalue()
     said = " ".join(out.getvalue().split())
-    assert f"Only the rows of the A half (seed 3) of {halves}" in said, said[:800]
+    assert f"Only the rows of half A (seed 3) of {halves}" in said, said[:800]
     assert "133 of the 265 rows split at random into two halves" in said
     if command == "scores":
         written = pd.read_csv(folder / "scores.csv")

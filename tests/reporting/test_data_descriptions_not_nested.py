@@ -2,7 +2,7 @@
 
 New-user trial 18: replicate's cautions named each fit 'The loose refit (data/belonging.dta (half B, seed 11))', and
 the methods paragraph of fit, compare and scores on one half said the rows analysed as '(N = 240 of the 480 rows in
-the data file, those where the row fell in the A half of two random halves (seed 11; listed in halves.csv); ...)';
+the data file, those where the row fell in half A of two random halves (seed 11; listed in halves.csv); ...)';
 a row filter's rows left out for an empty cell ('(54 rows with no value of district left out)') and replicate's
 samples ('(N = 240 ...; used pairwise (each item's thresholds ...) ... (Little & Rubin, 2002))') nested the same
 way, and so did the rows without a group ('(N = ...; 29 of 480 rows had no value in the group column (district)

@@ -23,7 +23,7 @@ def test_replicate_halves_of_two_districts_say_they_compare_those_districts(ride
 
 def test_explore_halves_of_two_districts_say_so(rider_demo):
     result = cfa_tool.explore(rider_demo, split=3, cluster="district")
-    assert "the halves were those clusters rather than samples of them" in " ".join(result.summary().split())
+    assert "the halves are those clusters rather than samples of them" in " ".join(result.summary().split())
 
 
 def test_enough_clusters_add_nothing(rider_demo):

@@ -202,7 +202,7 @@ def test_a_half_of_clusters_is_said_to_be_one_in_the_notes_and_the_methods_parag
     assert code == 0, err
     result = cfa_tool.fit(THREE_FACTORS, str(data), keep=[RandomHalf(str(halves), "B")])
     paragraph = " ".join(methods_paragraph(result).split())
-    assert ("the row fell in the B half of two random halves of the clusters of unit, each cluster whole in one half, "
+    assert ("the row fell in half B of two random halves of the clusters of unit, each cluster whole in one half, "
             "drawn within the strata of school with seed 5 and listed in h.csv") in paragraph
     assert str(tmp_path) not in paragraph
     notes = " ".join(" ".join(str(w).split()) for w in result.warnings)
