@@ -1644,6 +1644,7 @@ def refuse_groups_filtered_out(spec: Spec, loaded: LoadedData, group: str | None
     from cfa_tool.data.filters import kept_by_words
     from cfa_tool.data.groups import group_keys
     from cfa_tool.language.checks import all_refs
+    from cfa_tool.language.names import written_group
 
     named = [r.group for r in all_refs(spec) if r.group is not None]
     if reference_group is not None:
@@ -1655,7 +1656,8 @@ def refuse_groups_filtered_out(spec: Spec, loaded: LoadedData, group: str | None
             reference = name == reference_group
             what = "the reference group" if reference else "a group the model file names"
             instead = "choose another reference group" if reference else "remove the statements naming that group"
-            raise OptionError(f"{loaded.source}: '{name}', {what}, has rows in the file but none among those "
+            label = printable(written_group(str(name), [str(x) for x in before]))  # the one rule of group labels
+            raise OptionError(f"{loaded.source}: group {label} ({what}) has rows in the file but none among those "
                               f"{kept_by_words(loaded.row_filters)} kept; change the filter, or {instead}")
 
 
