@@ -15,7 +15,7 @@ from cfa_tool.assessment.reliability import WITHHELD_BECAUSE, BifactorPart, Keyi
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST, Items, MissingData, WeightKind
-from cfa_tool.note_parts import Command, Note, TableReference, Text, read, said, saved
+from cfa_tool.note_parts import Command, Note, TableReference, Text, View, read, said, saved
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.options import option_in_both
 from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words
@@ -157,16 +157,20 @@ def problem_notice(result) -> ProblemNotice | None:
     return ProblemNotice(NOT_ADMISSIBLE if inadmissible else CAUTION, lines, inadmissible)
 
 
-def problem_table(result) -> ReportTable | None:
-    """The problems of the solution as a table (for data files, where the notice of the views cannot go)."""
+def problem_table(result, running: str = "") -> ReportTable | None:
+    """The problems of the solution as a table (for data files, where the notice of the views cannot go), their words
+    as the reader of the report of command ``running`` reads them (note_parts.View.running: compare's table does not
+    advise 'cfa-tool compare', s24)."""
     notice = problem_notice(result)
     if notice is None:
         return None
+    view = View(commands=True, running=running)
     problems = solution_first(result.problems)
     rows = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()),
-             "" if p.value is None else est_num(p.value), p.group or "", said(p.explanation), said(p.advice)] for p in problems]
+             "" if p.value is None else est_num(p.value), p.group or "", said(p.explanation, view), said(p.advice, view)]
+            for p in problems]
     values = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()), p.value, p.group or "",
-               said(p.explanation), said(p.advice)] for p in problems]
+               said(p.explanation, view), said(p.advice, view)] for p in problems]
     columns = [("Problem", "l"), ("Makes it inadmissible", "l"), ("Parameters", "l"), ("Value", "r"), ("Group", "l"),
                ("Explanation", "l"), ("What to try", "l")]
     return _table("problems", notice.heading, columns, rows, values=([c for c, _ in columns], values))

@@ -185,10 +185,11 @@ def _notice(problems: list[str], cautions: list[str] = (), failed: bool = False)
 
 
 def _models_problem_table(named_results, notice: ProblemNotice | None) -> ReportTable | None:
-    """Every model's problems as one table for data files (a fit's table, T.problem_table, with the model first)."""
+    """Every model's problems as one table for data files (a fit's table, T.problem_table, with the model first), in
+    the words of compare's report."""
     rows, values, columns = [], [], None
     for name, r in named_results:
-        own = T.problem_table(r)
+        own = T.problem_table(r, running=ResultKind.COMPARE.value)
         if own is None:
             continue
         columns = [("Model", "l")] + list(zip(own.columns, own.align))
