@@ -214,7 +214,7 @@ def by_file_name(report: Report) -> Report:
         if text is None or isinstance(text, str):
             return None if text is None else plain(text)
         return Note(tuple(plain(p) if isinstance(p, str) else
-                          Command(plain(p.text), plain(p.words)) if isinstance(p, Command) else p
+                          replace(p, text=plain(p.text), words=plain(p.words)) if isinstance(p, Command) else p
                           for p in text.parts))
 
     def table(t: ReportTable | None) -> ReportTable | None:

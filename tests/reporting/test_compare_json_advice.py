@@ -64,3 +64,14 @@ def test_compare_json_writes_the_advice_as_compare_reads_it(tmp_path, capsys):
     fit = json.loads(fitted.read_text())
     assert _distinct(fit["problems"])["advice"] == advice.said(View(commands=True, running="fit"))
     assert command.text in _distinct(fit["problems"])["advice"]
+
+
+def test_compare_html_keeps_compare_words_where_files_are_named_by_their_names(tmp_path, capsys):
+    # the views written for others name the user's files by their file names (document.by_file_name), which rebuilt
+    # each command without its 'runs' and 'inside': compare's HTML advised '(cfa-tool compare)' given full paths
+    one, two, data = _data(tmp_path)
+    page = tmp_path / "c.html"
+    assert main(["compare", one, two, "--data", data, "--html", str(page)]) == 0
+    capsys.readouterr()
+    text = page.read_text()
+    assert "cfa-tool compare" not in text and "among the models compared here" in text
