@@ -17,7 +17,7 @@ from cfa_tool.data.halves import halves_named_alike
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
-from cfa_tool.note_parts import Command, Note, TableReference, Text, capitalised, joined
+from cfa_tool.note_parts import Command, Name, Note, TableReference, Text, joined
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANGE_WHY, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
@@ -168,11 +168,12 @@ def _design_caution_lines(named_results) -> list[str]:
     # 'too' only for the models whose cautions are the same; a model's cautions of other figures (its own scaling
     # factor) under its own name (re-check s18: one model's extreme factor, 0.407, was said of the other, 0.651)
     same = [n for n, found in own if n != name and (found == problems or steps_of_one_model)]
-    whose = f"{name} (the model with the most free parameters{'; ' + word_list(same) + ' too' if same else ''}): "
-    lines = [capitalised(whose) + p.line() for p in problems]  # a model's name keeps its case (note_parts)
+    # a model's name keeps its case at the line's start (note_parts.Name: no sentence's capital recases it)
+    whose = Note((Name(name), f" (the model with the most free parameters{'; ' + word_list(same) + ' too' if same else ''}): "))
+    lines = [whose + p.line() for p in problems]
     for other, found in own:
         if other != name and found != problems and not steps_of_one_model:
-            lines += [capitalised(other) + ": " + p.line() for p in found]
+            lines += [Note((Name(other), ": ")) + p.line() for p in found]
     return lines
 
 
