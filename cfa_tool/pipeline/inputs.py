@@ -2497,7 +2497,10 @@ def _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor):
     if divisor not in ("n-1", "n"):
         raise OptionError(f"divisor must be 'n-1' or 'n', not '{divisor}'")
     sds, means = by_variable(sds, names, "the standard deviations (sds)"), by_variable(means, names, "the means")
-    return summary_moments(names, values, n_obs, matrix, sds, means, divisor, "<covariance matrix>")
+    from cfa_tool.data.summary_stats import ARRAY_SOURCE, FRAME_SOURCE
+
+    source = FRAME_SOURCE if isinstance(covariance, pd.DataFrame) else ARRAY_SOURCE  # 'as given with the data frame'
+    return summary_moments(names, values, n_obs, matrix, sds, means, divisor, source)
 
 
 #: keywords a researcher may reach for that name no option, and what asks for the same

@@ -12,6 +12,7 @@ from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATED, ProblemKind, design_cautions, failure_words,
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
+from cfa_tool.data.summary_stats import given_with
 from cfa_tool.data.groups import reference_words
 from cfa_tool.data.halves import halves_named_alike
 from cfa_tool.language.names import names_text, written_group
@@ -445,7 +446,8 @@ def comparison_report(comparison) -> Report:
         rows_line = f"All models fitted to the same {count_text(comparison.n_obs)} rows, {how} ({left})."
     elif getattr(comparison.results[0].data, "analysed", None) is not None:  # summary statistics: no rows
         rows_line = (f"All models fitted to the same summary statistics "
-                     f"({comparison.results[0].data.analysed.value}), N = {count_text(comparison.n_obs)} as given in the file.")
+                     f"({comparison.results[0].data.analysed.value}), N = {count_text(comparison.n_obs)} as given "
+                     f"{given_with(comparison.results[0].data.source)}.")
     else:
         rows_line = (f"All models fitted to the same {count_text(comparison.n_obs)} rows ({count_text(comparison.rows_dropped)} rows with a missing "
                      f"answer on any model's variables left out).")
