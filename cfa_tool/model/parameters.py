@@ -1471,7 +1471,7 @@ def impossible_fixed_values(table: ParameterTable, source: str, starts: bool = T
             what = "factor correlations" if kind == "factor" else "residual correlations"
             hows = {pairs[frozenset((members[i], members[j]))][1] for i in range(len(members)) for j in range(i)}
             how = "fixed at" if hows == {"fixed at"} else "given as"
-            said = (f"the {what} {how} {', '.join(values[:-1])} and {values[-1]} cannot hold together (their "
+            said = (f"the {what} {how} {word_list(values)} cannot hold together (their "
                     f"matrix is not positive {'' if starts else 'semi-'}definite), so no population has them; change "
                     f"the values")
             statements = (tuple(spec.starts) if starts else ()) + tuple(spec.fixed) if spec is not None else ()

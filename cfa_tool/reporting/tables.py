@@ -1148,7 +1148,8 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
     if not any(row[3] for row in body):  # no interval to show (fixed correlations, or factors scaled otherwise)
         columns.pop(3)
         body = [row[:3] + row[4:] for row in body]
-        note += " No interval of r is shown: " + _no_interval_reasons(other_scale, not parameters_are_correlations)
+        note += " No interval of r is shown: " + _no_interval_reasons([n for n in names if n in other_scale],
+                                                                      not parameters_are_correlations)
     else:
         note += (" The interval of a correlation is shown when both factors are scaled by their variances (then their "
                  "covariance is the correlation).")
@@ -1173,16 +1174,17 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
                            "sqrt(AVE) > |r|"], numbers))
 
 
-def _no_interval_reasons(other_scale: set[str], implied: bool) -> Text:
+def _no_interval_reasons(other_scale: list[str], implied: bool) -> Text:
     """Why no correlation of the distinct table has an interval: a higher-order factor implies them, or some factors
     are scaled otherwise than by their variances (the only case the advice to scale by variance fits, so that it
     never asks for what the model already does); the correlations the model fixes are left out of the table.  The
-    model file's statement apart (note_parts.Command): a manuscript says it in words."""
+    model file's statement apart (note_parts.Command): a manuscript says it in words.  ``other_scale``: those factors
+    in the model's order, as the table lists them (not sorted by name)."""
     if implied:
         return "the correlations of factors below a higher-order factor are implied by it, not parameters."
     if other_scale:
         return Note(("a correlation is a parameter of the model only when both factors are scaled by their variances",
-                     Command(SCALE_BY_VARIANCE), f", and {word_list(sorted(other_scale))} "
+                     Command(SCALE_BY_VARIANCE), f", and {word_list(other_scale)} "
                      f"{'are' if len(other_scale) > 1 else 'is'} scaled otherwise."))
     return "none of these correlations is a parameter of the model."
 
@@ -1511,7 +1513,8 @@ def _just_identified_higher_order(result) -> tuple[str, ...]:
 
 
 def _and(names) -> str:
-    return names[0] if len(names) == 1 else f"{', '.join(names[:-1])} and {names[-1]}"
+    """Names as a sentence lists them: the one rule of a list (numbers.word_list)."""
+    return word_list(list(names))
 
 
 def higher_order_cautions(result) -> tuple[str, ...]:

@@ -1612,7 +1612,7 @@ def nested_power_report(result) -> Report:
     effective = result.effective_n  # a planned cluster sample: the N asked about is worth N / design effect rows
     if result.power is not None:
         at = effective if effective is not None else result.n_obs
-        rows.append([f"Noncentrality with N = {count_text(result.n_obs)} ({'N' if effective is None else 'N / design effect'} F)",
+        rows.append([f"Noncentrality with N = {count_text(result.n_obs)} ({'N' if effective is None else '(N / design effect)'} × F)",
                      num(nested.noncentrality(at), 2), nested.noncentrality(at)])
         rows.append([f"Power with N = {count_text(result.n_obs)}" + (" rows of the cluster sample" if effective else ""),
                      unit(result.power), result.power])
@@ -1625,7 +1625,7 @@ def nested_power_report(result) -> Report:
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
     assumptions = Note((f"This power is that of the likelihood-ratio chi-square difference between maximum-likelihood "
                         f"fits of the two models to independent, complete rows of normally distributed answers, by the "
-                        f"noncentral chi-square with {df} df and noncentrality N F, F the minimum discrepancy the "
+                        f"noncentral chi-square with {df} df and noncentrality N × F, F being the minimum discrepancy the "
                         f"nested model leaves at the population the model file's values describe (Satorra & Saris "
                         f"1985): an approximation, for discrepancies small beside the sampling error. A power "
                         f"simulation fits both models to simulated data sets and gives the simulated power beside this "
