@@ -51,7 +51,16 @@ class RowId:
     text: str
 
 
-Part = str | Command | TableReference | RowId
+@dataclass(frozen=True)
+class Name:
+    """A name the user gave (a model's, a file's, an item's, a factor's) where a line starts with it: every view
+    writes it as given, and no sentence's capital recases it (:func:`capitalised`; s24: 'One' for a model file
+    'one.cfa' at a line's start)."""
+
+    text: str
+
+
+Part = str | Command | TableReference | RowId | Name
 
 
 @dataclass(frozen=True)
@@ -103,6 +112,7 @@ class Note:
 
     def said(self, view: View) -> str:
         return "".join(p if isinstance(p, str) else view.name(p) if isinstance(p, TableReference) else
+                       p.text if isinstance(p, Name) else
                        (p.text if view.commands else "") if isinstance(p, RowId) else
                        (p.inside if p.runs and p.runs == view.running else p.text) if view.commands else p.words
                        for p in self.parts)
@@ -125,7 +135,8 @@ class Note:
 
     def capitalised(self) -> "Note":
         """The line with the first letter of its first words in capitals, when they start with a plain lower-case
-        word (:data:`PLAIN_FIRST_WORD`): a name keeps its case."""
+        word (:data:`PLAIN_FIRST_WORD`): a name keeps its case, and a line that starts with a :class:`Name` is left
+        as it is."""
         first = self.parts[0] if self.parts else ""
         if not isinstance(first, str) or not PLAIN_FIRST_WORD.match(first):
             return self
@@ -133,7 +144,7 @@ class Note:
 
     def to_dict(self) -> dict:
         return {"parts": [p if isinstance(p, str) else {"table": p.key} if isinstance(p, TableReference) else
-                          {"id": p.text} if isinstance(p, RowId) else
+                          {"id": p.text} if isinstance(p, RowId) else {"name": p.text} if isinstance(p, Name) else
                           {"command": p.text, "words": p.words, **({"runs": p.runs, "inside": p.inside} if p.runs
                                                                    else {})} for p in self.parts]}
 
@@ -151,8 +162,10 @@ class Note:
                                      str(p.get("inside", ""))))
             elif isinstance(p, dict) and isinstance(p.get("id"), str):
                 parts.append(RowId(p["id"]))
+            elif isinstance(p, dict) and isinstance(p.get("name"), str):
+                parts.append(Name(p["name"]))
             else:
-                raise ValueError("a part of a note that is neither words, a command, a table nor a row's id")
+                raise ValueError("a part of a note that is neither words, a command, a table, a row's id nor a name")
         return cls(tuple(parts))
 
 

@@ -124,5 +124,9 @@ def run(args: argparse.Namespace) -> int:
             + ("" if result.file_format.plain() else f"; {result.file_format.said()}"))
     emit_report(args, result, [args.model, args.data, args.from_fit], first=[rows])
     if result.low_determinacy:
-        say(args, f"Caution: the determinacy of {', '.join(result.low_determinacy)} is below .80; see the report")
+        from cfa_tool.language.names import written_name
+        from cfa_tool.numbers import word_list
+
+        named = word_list(written_name(f) for f in result.low_determinacy)  # the one list of words in a sentence
+        say(args, f"Caution: the determinacy of {named} is below .80; see the report")
     return 0

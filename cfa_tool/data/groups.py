@@ -15,6 +15,8 @@ from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names, did_you_mean
 from cfa_tool.data.moments import SampleMoments, numeric_columns, sample_moments
 from cfa_tool.errors import DataError, OptionError, check_rows_counted, printable
+from cfa_tool.language.names import written_group
+from cfa_tool.numbers import word_list
 from cfa_tool.method import MissingData
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
@@ -42,7 +44,7 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
                           f"multi-group fit estimates the model in each group, at most {MAX_GROUPS} of them (is it the "
                           f"right column? an identifier of classes or persons is not a grouping for invariance)")
     if len(labels) < 2:
-        only = f" ('{labels[0]}')" if labels else ""
+        only = f" ({printable(written_group(labels[0], labels))})" if labels else ""
         merged = [texts for _, texts in merged_labels(values) if len(texts) > 1]
         read = (f" (labels that differ only by spaces at their ends, by invisible format characters or by Unicode form "
                 f"are one group: {listed_labels([(labels[0], merged[0])])})") if merged and labels else ""
@@ -55,7 +57,8 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
         if reference not in labels:  # a labelled column's group may be given by its code, as row filters take it
             reference = code_order(frame, column).get(label_text(reference), reference)
         if reference not in labels:
-            raise OptionError(f"{source}: '{reference}' is not a group of column '{column}' (groups: {', '.join(labels)})")
+            raise OptionError(f"{source}: {printable(written_group(str(reference), labels))} is not a group of column "
+                              f"'{printable(column)}' (groups: {printable(word_list(written_group(g, labels) for g in labels))})")
     labels.remove(reference)
     labels.insert(0, reference)  # the reference group first, the others in the order of their labels
     return labels
@@ -169,13 +172,19 @@ def has_group(frame: pd.DataFrame, group: str) -> np.ndarray:
     return labelled
 
 
+def group_words(label: str, labels, column: str) -> str:
+    """A group as messages about its rows name it after the word 'group': "north of 'region'", "\"land 01\" of
+    'region'" (the label by the one rule of group labels among ``labels``, language.names.written_group)."""
+    return f"{printable(written_group(label, labels))} of '{printable(column)}'"
+
+
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,
                   reference: str | None = None, missing: MissingData | str = MissingData.LISTWISE,
                   weights: str | None = None) -> tuple[list[tuple[str, SampleMoments]], int]:
     """Per-group moments (reference group first) and the number of rows without a group value;
     ``weights`` a column of row weights (see :func:`sample_moments`)."""
     parts, without = group_rows(frame, column, source, reference)
-    where = [f"'{label}' of {column}" for label, _ in parts]
+    where = [group_words(label, [label for label, _ in parts], column) for label, _ in parts]
     values = [numeric_columns(part, names, f"{source} (group {group})") for (_, part), group in zip(parts, where)]
     labels = [label for label, _ in parts]
     small = too_small_groups(labels, values, missing)
@@ -183,7 +192,8 @@ def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], sour
         left_out = {g.label for g in small}
         complete_only = small[0].complete_only
         refuse_small_groups(small, column, source, sum(usable_rows(v, complete_only)
-                                                       for label, v in zip(labels, values) if label not in left_out))
+                                                       for label, v in zip(labels, values) if label not in left_out),
+                            labels)
     out = [(label, sample_moments(part, names, source, group=group, missing=missing, weights=weights, values=v))
            for (label, part), group, v in zip(parts, where, values)]
     # each row in one group at most (errors.check_rows_counted)
@@ -254,7 +264,8 @@ def leaving_out(column: str, label: str) -> str | None:
     return filter_text(column, "!=", label)  # the one writer of a filter's text, which parses back to it
 
 
-def small_group_words(small: tuple[SmallGroup, ...], column: str, kept: int, named: bool = True) -> tuple[str, str]:
+def small_group_words(small: tuple[SmallGroup, ...], column: str, kept: int, named: bool = True,
+                      labels=()) -> tuple[str, str]:
     """(what, remedy) of groups too small to analyse (:func:`too_small_groups`) in a refusal's or a check's words: the
     groups, their rows and the rule; the exact row filter that leaves them out, then joining each with a similar
     group.  ``kept``: the rows of the other groups that the advised run analyses (complete rows with listwise
@@ -266,11 +277,11 @@ def small_group_words(small: tuple[SmallGroup, ...], column: str, kept: int, nam
     if one and not named:
         said = f"{only}{small[0].rows_words()} for the model's {small[0].variables} variables"
     elif one:
-        said = (f"group '{printable(small[0].label)}' of '{printable(column)}' has {only}{small[0].rows_words()} for "
+        said = (f"group {group_words(small[0].label, labels, column)} has {only}{small[0].rows_words()} for "
                 f"the model's {small[0].variables} variables")
     else:
-        listed = ", ".join(f"'{printable(g.label)}' ({g.rows_words()})" for g in small[:-1])
-        said = (f"groups {listed} and '{printable(small[-1].label)}' ({small[-1].rows_words()}) of "
+        listed = word_list(f"{printable(written_group(g.label, labels))} ({g.rows_words()})" for g in small)
+        said = (f"groups {listed} of "
                 f"'{printable(column)}' have too few rows for the model's {small[0].variables} variables")
     filters = [leaving_out(column, g.label) for g in small]
     them = "it" if one else "them"
@@ -283,10 +294,10 @@ def small_group_words(small: tuple[SmallGroup, ...], column: str, kept: int, nam
             f"by recoding '{printable(column)}' in a copy of the data file")
 
 
-def refuse_small_groups(small: tuple[SmallGroup, ...], column: str, source: str, kept: int) -> None:
+def refuse_small_groups(small: tuple[SmallGroup, ...], column: str, source: str, kept: int, labels=()) -> None:
     """Raise the one-line refusal of groups too small to analyse (:func:`small_group_words`), holding each group's
     own words for a check's findings."""
-    said, remedy = small_group_words(small, column, kept)
+    said, remedy = small_group_words(small, column, kept, labels=labels)
     raise SmallGroupsError(f"{source}: {said}: {remedy}", small,
                            tuple(small_group_words((g,), column, kept, named=False) for g in small))
 
@@ -305,10 +316,10 @@ def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ..
     labels, parts = [label for label, _ in split], [part for _, part in split]
     levels = shared_levels(parts, names, source, pairwise, continuous)  # (a continuous item's are not used)
     # every empty category of every group and item in one message (not one per run)
-    empty_categories_in_groups(parts, [f" (group '{label}' of {column})" for label in labels], names, source, levels,
+    empty_categories_in_groups(parts, [f" (group {group_words(label, labels, column)})" for label in labels], names, source, levels,
                                pairwise, continuous, [leaving_out(column, label) for label in labels])
     out = [(label, ordinal_moments(part, names, source, continuous, levels=levels,
-                                   where=f" (group '{label}' of {column})", pairwise=pairwise, design=design))
+                                   where=f" (group {group_words(label, labels, column)})", pairwise=pairwise, design=design))
            for label, part in zip(labels, parts)]
     return out, without
 
@@ -356,7 +367,7 @@ def ordinal_refusals(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         split, _ = group_rows(frame, column, source, reference)
         labels = [label for label, _ in split]
         try:
-            empty_categories_in_groups([part for _, part in split], [f" (group '{label}' of {column})" for label in labels],
+            empty_categories_in_groups([part for _, part in split], [f" (group {group_words(label, labels, column)})" for label in labels],
                                        names, source, levels, pairwise, skipped,
                                        [leaving_out(column, label) for label in labels])
         except DataError as refused:

@@ -60,6 +60,26 @@ class NotGiven(Enum):
         return {NotGiven.MEANS: "the items' means", NotGiven.STANDARD_DEVIATIONS: "their standard deviations"}[self]
 
 
+#: the sources of a matrix given through the Python API (``covariance=``), which messages name as a file's path
+FRAME_SOURCE, ARRAY_SOURCE = "<covariance data frame>", "<covariance matrix>"
+#: what a correlation matrix without standard deviations makes of the figures computed from it (alpha, item-rest
+#: correlations): those of the standardized items, whatever the answers' own variances (s24)
+STANDARDIZED_ITEMS = "those of the standardized items, as the matrix gives correlations without standard deviations"
+
+
+def given_with(source: str) -> str:
+    """Where a fit of summary statistics found its matrix, its N and what it left out, in words after 'as given' or
+    'gives': 'in the file', 'with the data frame' or 'with the array' (the Python API, by :data:`FRAME_SOURCE` and
+    :data:`ARRAY_SOURCE`; s24: a matrix passed from Python was said to be 'as given in the file')."""
+    return {FRAME_SOURCE: "with the data frame", ARRAY_SOURCE: "with the array"}.get(source, "in the file")
+
+
+def source_words(source: str) -> str:
+    """The source of a fit's summary statistics as the subject of a sentence: 'the file', 'the data frame', 'the
+    array' (:func:`given_with`)."""
+    return "the " + given_with(source).split(" ", 2)[-1] if source in (FRAME_SOURCE, ARRAY_SOURCE) else "the file"
+
+
 MAX_SUMMARY_BYTES = 50_000_000
 KINDS = ("covariance", "correlation")
 EXTRA_ROWS = ("n", "sd", "mean", "divisor")

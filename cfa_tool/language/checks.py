@@ -14,7 +14,7 @@ from cfa_tool.numbers import user_number
 
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import Location, ModelError
-from cfa_tool.language.names import written_name
+from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import NamePair, ParameterRef, Spec, answer_key, fix_sets_scale
 
 
@@ -476,7 +476,7 @@ def _check_contradictions(spec: Spec) -> None:
             continue
         plain = replace(ref, group=None)
         if ref.kind == "threshold":  # the identification of ordinal items' latent responses group by group: not yet
-            raise _fail(spec, f"setting the thresholds of '{ref.names[0]}' apart in group {written_name(ref.group)} "
+            raise _fail(spec, f"setting the thresholds of '{ref.names[0]}' apart in group {written_group(ref.group)} "
                               f"alone is not available yet; write 'noninvariant {plain}' to let them differ in every "
                               f"group", ref.location)
         every = exempt.get((None, ref.key()))

@@ -12,7 +12,7 @@ from functools import cached_property
 
 from cfa_tool.errors import Location
 from cfa_tool.numbers import user_number
-from cfa_tool.language.names import composed, reference_text
+from cfa_tool.language.names import composed, reference_text, written_group
 
 #: Parameter kinds a reference may name, with the number of names each takes.
 REFERENCE_KINDS: dict[str, int] = {"loading": 2, "variance": 1, "covariance": 2, "intercept": 1, "mean": 1, "threshold": 1}
@@ -97,8 +97,10 @@ class ParameterRef:
         return (self.kind, self.names)
 
     def __str__(self) -> str:
+        """'loading(f, x2)', 'loading(f, x2) in group "land 01"': the group named by the one rule of group labels
+        in messages (language.names.written_group; s24: 'in group land 01' bare ran into the sentence)."""
         text = reference_text(self.kind, self.names)
-        return f"{text} in group {self.group}" if self.group is not None else text
+        return f"{text} in group {written_group(self.group)}" if self.group is not None else text
 
 
 @dataclass(frozen=True)

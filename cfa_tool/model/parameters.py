@@ -33,13 +33,13 @@ from typing import Callable
 
 import numpy as np
 
-from cfa_tool.numbers import rounded_number, user_number
+from cfa_tool.numbers import rounded_number, user_number, word_list
 from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.suggest import close_names, did_you_mean
 from cfa_tool.errors import ModelError, printable
 from cfa_tool.options import Option
 from cfa_tool.language.checks import all_refs, exogenous_factors
-from cfa_tool.language.names import reference_text, written_name
+from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.language.spec import (GROUP_EQUALITY_WORDS, INVARIANCE_CLASSES, INVARIANCE_LEVELS, ParameterRef, Spec,
                                     equality_words, fix_sets_scale)
 
@@ -550,7 +550,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             # one reason in every group is said once, naming no group; else the reason of one group, as one of them
             # (new user s22: 'fixed in every group (in group North Hospital: ...)' read as contradicting itself)
             why = (f"{why}, in every group" if len(set(reasons)) == 1 else
-                   f"fixed in every group (in group {group_labels[first_key[0]]}, for one: {why})")
+                   f"fixed in every group (in group {written_group(group_labels[first_key[0]], group_labels)}, for one: {why})")
         how = (" (the invariance command reads it at the step that holds the intercepts equal)"
                if everywhere and statement.read_at_ladder_step else "")
         return _fail(spec, f"{ref} is {why}, so {statement.phrase} on it has no effect; remove the {statement.removed}"
@@ -719,7 +719,7 @@ def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by
     value = e["fixed"]
     if key in tied_to:
         other = tied_to[key]
-        label = reference_text(other[1], other[2]) + (f" in group {group_labels[other[0]]}" if multi else "")
+        label = reference_text(other[1], other[2]) + (f" in group {written_group(group_labels[other[0]], group_labels)}" if multi else "")
         lines = sorted({group[0].location.line for group in spec.equal
                         if (kind, names) in {r.key() for r in group}})
         if other[0] != g:
@@ -874,15 +874,15 @@ def _set_apart_in_one_group(spec: Spec, ref: ParameterRef, kind: str, scale: boo
     set apart in one group either (:func:`_marker_set_apart`)."""
     says, _ = _held_by(spec, kind)
     plain = replace(ref, group=None)
-    group = written_name(ref.group)
+    group, named = written_name(ref.group), written_group(ref.group)  # in the statement; in the sentence
     if scale:
-        return _fail(spec, f"'in group {group}: free {plain}' cannot set {plain} apart in group {group}: {says}, "
+        return _fail(spec, f"'in group {group}: free {plain}' cannot set {plain} apart in group {named}: {says}, "
                            f"and {plain} is the marker that sets the scale of '{ref.names[0]}' in every group; make "
                            f"another indicator the marker ('free {plain}': the next indicator then sets the scale) and "
                            f"write 'in group {group}: noninvariant {plain}', or remove the statement", ref)
-    return _fail(spec, f"'in group {group}: free {plain}' does not set {plain} apart in group {group}: {says}, and "
+    return _fail(spec, f"'in group {group}: free {plain}' does not set {plain} apart in group {named}: {says}, and "
                        f"'free' leaves that equality as it is; write 'in group {group}: noninvariant {plain}' to "
-                       f"estimate it freely in group {group} while the other groups' stay equal, or 'noninvariant "
+                       f"estimate it freely in group {named} while the other groups' stay equal, or 'noninvariant "
                        f"{plain}' to let it differ in every group (the reports name either)", ref)
 
 
@@ -895,7 +895,7 @@ def _marker_set_apart(spec: Spec, ref: ParameterRef) -> ModelError:
     plain = replace(ref, group=None)
     factor = ref.names[0]
     return _fail(spec, f"{plain} is the marker that sets the scale of '{factor}' in every group, so it cannot be set "
-                       f"apart in group {written_name(ref.group)} alone; make another indicator the marker ('free "
+                       f"apart in group {written_group(ref.group)} alone; make another indicator the marker ('free "
                        f"{plain}': the next indicator then sets the scale, and this loading may be set apart) or scale "
                        f"'{factor}' by its variance ('scale {written_name(factor)} by variance')", ref)
 
@@ -909,7 +909,7 @@ def _check_set_apart_use(spec: Spec, ordinal: dict[str, int]) -> None:
         if ref.group is not None and ref.kind != "threshold" and set(ref.names) & set(ordinal):
             item = next(n for n in ref.names if n in ordinal)
             plain = replace(ref, group=None)
-            raise _fail(spec, f"setting {plain} apart in group {written_name(ref.group)} alone is not available yet, "
+            raise _fail(spec, f"setting {plain} apart in group {written_group(ref.group)} alone is not available yet, "
                               f"as '{item}' is ordinal (its latent response's origin and unit follow from which of its "
                               f"parameters are held equal); write 'noninvariant {plain}' to let it differ in every "
                               f"group", ref)
@@ -925,9 +925,9 @@ def _unit_left_unidentified(spec: Spec, factor, group_labels: tuple[str, ...]) -
     at = max(refs, key=lambda r: (r.location.line, r.location.column) if r.location is not None else (0, 0),
              default=None)
     return _fail(spec, f"these statements set apart every loading of '{f}' held equal in group "
-                       f"{written_name(group_labels[0])}, the first group, whose variance of '{f}' (1) gives the other "
+                       f"{written_group(group_labels[0], group_labels)}, the first group, whose variance of '{f}' (1) gives the other "
                        f"groups' factor its unit through the loadings they share with it; keep at least one loading of "
-                       f"'{f}' held equal in group {written_name(group_labels[0])}, or let those loadings differ in "
+                       f"'{f}' held equal in group {written_group(group_labels[0], group_labels)}, or let those loadings differ in "
                        f"every group ('noninvariant')", at)
 
 
@@ -1003,7 +1003,7 @@ def _mean_without_origin(spec: Spec, ref: ParameterRef, group: str | None, g: in
                  "fixed (as the intercepts of one item at two occasions are, the first occasion's mean 0 the origin "
                  "of the later one's)")
     else:
-        where = f" in group {written_name(group)}"
+        where = f" in group {written_group(group)}"
         how = ("; with groups, a factor's mean is estimated in the groups after the first where the loading and "
                "intercept of one of its indicators are held equal across groups ('invariance scalar'), the first "
                "group's mean being 0, the origin of the others', without a 'free' statement")
@@ -1028,12 +1028,12 @@ def _mean_left_unidentified(spec: Spec, factor, g: int, group_labels: tuple[str,
              default=None)
     named = at.group if at is not None else group_labels[g]
     if at is not None and at.group == group_labels[0]:
-        whose = f"the mean of '{f}' in the other groups can no longer be compared with group {written_name(named)}'s"
+        whose = f"the mean of '{f}' in the other groups can no longer be compared with group {written_group(named, group_labels)}'s"
     else:
-        whose = f"the mean of '{f}' in group {written_name(named)} can no longer be compared with the other groups'"
+        whose = f"the mean of '{f}' in group {written_group(named, group_labels)} can no longer be compared with the other groups'"
     return _fail(spec, f"these statements set apart every intercept of the indicators of '{f}' that was held equal "
-                       f"in group {written_name(named)} (with its loading), so {whose} and is not identified; keep at "
-                       f"least one intercept of '{f}' held equal in group {written_name(named)}", at)
+                       f"in group {written_group(named, group_labels)} (with its loading), so {whose} and is not identified; keep at "
+                       f"least one intercept of '{f}' held equal in group {written_group(named, group_labels)}", at)
 
 
 def _free_without_effect(spec: Spec, ref: ParameterRef, keys: list[tuple], released: set[tuple], entries: dict,
@@ -1078,8 +1078,8 @@ def _free_without_effect(spec: Spec, ref: ParameterRef, keys: list[tuple], relea
                            f"factor's marker loading or its mean); remove the statement", ref)
     why = reasons[fixed]
     if multi and len(keys) > 1:
-        why += (f" in group {group_labels[keys[fixed][0]]}" if any(r is None for r in reasons)
-                else f" (in group {group_labels[keys[fixed][0]]}, and fixed in every group)")
+        named = written_group(group_labels[keys[fixed][0]], group_labels)
+        why += (f" in group {named}" if any(r is None for r in reasons) else f" (in group {named}, and fixed in every group)")
     return _fail(spec, f"{ref} is {why}, so 'free' on it has no effect; remove the statement", ref)
 
 
@@ -1111,7 +1111,7 @@ def group_statement(spec: Spec) -> str | None:
     equalities across groups), or None when the model has none."""
     refs = [r for r in all_refs(spec) if r.group is not None]
     if refs:
-        return f"'in group {refs[0].group}'"
+        return f"'in group {written_name(refs[0].group)}'"
     if spec.noninvariant:
         return "'noninvariant'"
     if spec.invariant:
@@ -1153,7 +1153,7 @@ def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, mea
                           f"missing)", mean_refs[0])
     if not multi:
         if refs:
-            raise _fail(spec, f"'in group {refs[0].group}' needs groups: give the group column ({groups})", refs[0])
+            raise _fail(spec, f"'in group {written_name(refs[0].group)}' needs groups: give the group column ({groups})", refs[0])
         if spec.noninvariant:
             raise _fail(spec, "'noninvariant' lets a parameter differ across groups, and this fit has no groups: give "
                               f"the group column ({groups}) or remove the statement", spec.noninvariant[0])
@@ -1165,8 +1165,9 @@ def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, mea
     for ref in refs:
         if ref.group not in group_labels:
             guess = close_names(ref.group, group_labels)
-            hint = did_you_mean(ref.group, guess[0]) if guess else f"; the groups are {', '.join(group_labels)}"
-            raise _fail(spec, f"there is no group '{ref.group}' in the data{hint}", ref)
+            hint = did_you_mean(ref.group, guess[0]) if guess else (
+                f"; the groups are {word_list(written_group(g, group_labels) for g in group_labels)}")
+            raise _fail(spec, f"there is no group {written_group(ref.group, group_labels)} in the data{hint}", ref)
 
 
 def _check_ordinal_intercept_fixes(spec: Spec, ordinal: dict[str, int], first_group: str) -> None:
@@ -1346,10 +1347,11 @@ def given_values_possible(spec: Spec, table: ParameterTable, values: np.ndarray,
     trial s18: 'fix covariance(a, b) = 5' between factors of variance about 0.5 was blamed on the start values)."""
     entry = {(par.kind, par.variables): float(v) for par, v in zip(table.parameters, values) if par.group == group}
     settings = _settings_for(spec, label, starts)
-    whose = "" if label is None else f" of group '{printable(label)}'"
+    named = None if label is None else printable(written_group(label, table.groups))
+    whose = "" if label is None else f" of group {named}"
 
     def fail(ref, how: str, words: str) -> ModelError:
-        where = "" if label is None or ref.group is not None else f" (a value for every group, here group '{label}')"
+        where = "" if label is None or ref.group is not None else f" (a value for every group, here group {named})"
         if search_start:
             return ImpossibleAtStart(f"the model{whose} cannot hold a covariance larger than the variances allow: {ref}{where} "
                               f"is {how} {words} (the variances as the data give them at the start of the search, "
@@ -1469,7 +1471,7 @@ def impossible_fixed_values(table: ParameterTable, source: str, starts: bool = T
             what = "factor correlations" if kind == "factor" else "residual correlations"
             hows = {pairs[frozenset((members[i], members[j]))][1] for i in range(len(members)) for j in range(i)}
             how = "fixed at" if hows == {"fixed at"} else "given as"
-            said = (f"the {what} {how} {', '.join(values[:-1])} and {values[-1]} cannot hold together (their "
+            said = (f"the {what} {how} {word_list(values)} cannot hold together (their "
                     f"matrix is not positive {'' if starts else 'semi-'}definite), so no population has them; change "
                     f"the values")
             statements = (tuple(spec.starts) if starts else ()) + tuple(spec.fixed) if spec is not None else ()

@@ -1644,6 +1644,7 @@ def refuse_groups_filtered_out(spec: Spec, loaded: LoadedData, group: str | None
     from cfa_tool.data.filters import kept_by_words
     from cfa_tool.data.groups import group_keys
     from cfa_tool.language.checks import all_refs
+    from cfa_tool.language.names import written_group
 
     named = [r.group for r in all_refs(spec) if r.group is not None]
     if reference_group is not None:
@@ -1655,7 +1656,8 @@ def refuse_groups_filtered_out(spec: Spec, loaded: LoadedData, group: str | None
             reference = name == reference_group
             what = "the reference group" if reference else "a group the model file names"
             instead = "choose another reference group" if reference else "remove the statements naming that group"
-            raise OptionError(f"{loaded.source}: '{name}', {what}, has rows in the file but none among those "
+            label = printable(written_group(str(name), [str(x) for x in before]))  # the one rule of group labels
+            raise OptionError(f"{loaded.source}: group {label} ({what}) has rows in the file but none among those "
                               f"{kept_by_words(loaded.row_filters)} kept; change the filter, or {instead}")
 
 
@@ -2495,7 +2497,10 @@ def _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor):
     if divisor not in ("n-1", "n"):
         raise OptionError(f"divisor must be 'n-1' or 'n', not '{divisor}'")
     sds, means = by_variable(sds, names, "the standard deviations (sds)"), by_variable(means, names, "the means")
-    return summary_moments(names, values, n_obs, matrix, sds, means, divisor, "<covariance matrix>")
+    from cfa_tool.data.summary_stats import ARRAY_SOURCE, FRAME_SOURCE
+
+    source = FRAME_SOURCE if isinstance(covariance, pd.DataFrame) else ARRAY_SOURCE  # 'as given with the data frame'
+    return summary_moments(names, values, n_obs, matrix, sds, means, divisor, source)
 
 
 #: keywords a researcher may reach for that name no option, and what asks for the same

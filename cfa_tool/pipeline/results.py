@@ -169,7 +169,10 @@ class CheckResult(Presentable):
         elif self.groups:
             lines.append(f"Groups: {len(self.groups)} ({', '.join(self.groups)}).")
         if self.analysed is not None:
-            lines.append(f"Data: summary statistics, {self.analysed.value}, with N = {self.rows} as given in the file; "
+            from cfa_tool.data.summary_stats import given_with
+
+            lines.append(f"Data: summary statistics, {self.analysed.value}, with N = {self.rows} as given "
+                         f"{given_with(self.source)}; "
                          f"it holds no rows of answers, so there are no row counts or coverage.")
             lines.extend("Note: " + note + "." for note in self.notes)
             return lines

@@ -12,7 +12,7 @@ from functools import cached_property
 from typing import Callable
 
 from cfa_tool.data.csv_convention import PLAIN, CsvConvention
-from cfa_tool.note_parts import Command, Note, Text, capitalised, read, saved
+from cfa_tool.note_parts import Command, Name, Note, Text, capitalised, read, saved
 from cfa_tool.reporting.tables import ProblemNotice, ReportTable
 
 
@@ -214,7 +214,8 @@ def by_file_name(report: Report) -> Report:
         if text is None or isinstance(text, str):
             return None if text is None else plain(text)
         return Note(tuple(plain(p) if isinstance(p, str) else
-                          Command(plain(p.text), plain(p.words)) if isinstance(p, Command) else p
+                          replace(p, text=plain(p.text), words=plain(p.words)) if isinstance(p, Command) else
+                          replace(p, text=plain(p.text)) if isinstance(p, Name) else p
                           for p in text.parts))
 
     def table(t: ReportTable | None) -> ReportTable | None:

@@ -994,13 +994,13 @@ def answer_coding_sentence(data) -> str:
 def _matrix_sentence(result, subject: str = "The model was") -> str:
     """For a fit of summary statistics: which matrix was analysed instead of rows of answers ('' for rows), and,
     for correlations without standard deviations, what that means for the estimates (Cudeck 1989)."""
-    from cfa_tool.data.summary_stats import AnalysedMatrix, NotGiven
+    from cfa_tool.data.summary_stats import AnalysedMatrix, NotGiven, given_with
 
     analysed = getattr(result.data, "analysed", None)
     if analysed is None:
         return ""
     text = (f"{subject} fitted to summary statistics, not to rows of answers: {analysed.value}"
-            + f", and N = {count_text(result.n_obs)} as given in the file")
+            + f", and N = {count_text(result.n_obs)} as given {given_with(result.data.source)}")
     if analysed is AnalysedMatrix.CORRELATION:
         text += ("; the correlations were analysed as if they were covariances, so the unstandardized estimates are in "
                  "standard-deviation units and their standard errors are only approximate (Cudeck, 1989), while the "

@@ -9,7 +9,7 @@ from dataclasses import replace
 
 from cfa_tool.data.csv_convention import convention_in
 from cfa_tool.errors import OptionError
-from cfa_tool.note_parts import capitalised
+from cfa_tool.note_parts import Name, Note, Text, capitalised
 from cfa_tool.version import check_written_version
 from cfa_tool.reporting.document import Report, ResultKind
 
@@ -148,8 +148,9 @@ def _fits_in(payload: dict, where: str = "") -> list[tuple[str, dict]]:
     if "admissible" in payload and isinstance(payload.get("problems"), list):
         name = payload.get("name") if isinstance(payload.get("name"), str) else None
         level = payload.get("level") if isinstance(payload.get("level"), str) else None
-        found.append((name or (f"the {level} model" if level else None) or _NESTED_NAMES.get(where) or "this fit",
-                      payload))
+        # a model's name as given (note_parts.Name: never recased at a line's start), else words naming the fit
+        found.append((Name(name) if name else (f"the {level} model" if level else None) or _NESTED_NAMES.get(where)
+                      or "this fit", payload))
     for key, value in payload.items():
         if key == "report":
             continue
@@ -173,7 +174,7 @@ def _with_estimate_problems(report: Report, payload: dict, source: str) -> Repor
     from cfa_tool.reporting.workflow_tables import SOME_NOT_ADMISSIBLE
 
     old = report.notice.lines if report.notice is not None else ()
-    lines: list[str] = []
+    lines: list[Text] = []
     if "estimates" in payload:
         listed = payload.get("problems")
         known = {(q.get("kind"), tuple(q.get("parameters", ()))) for q in listed if isinstance(q, dict)} \
@@ -189,11 +190,12 @@ def _with_estimate_problems(report: Report, payload: dict, source: str) -> Repor
         # not the notice's words, decide); otherwise the problems it lists that make it inadmissible come first
         said = fit.get("admissible") is False and report.notice is not None and report.notice.inadmissible
         unshown = [] if said else [q for q in listed_problems(fit["problems"], source) if q.kind.inadmissible]
-        lines += [f"{capitalised(name)} is not admissible, and the report saved with it does not say so "
-                  f"(changed after the run?): {q.explanation} Do not interpret its estimates or fit." for q in unshown]
+        who = Note((name,)) if isinstance(name, Name) else capitalised(name)
+        lines += [who + (f" is not admissible, and the report saved with it does not say so (changed after the "
+                         f"run?): {q.explanation} Do not interpret its estimates or fit.") for q in unshown]
         if fit.get("admissible") is False and not said and not unshown:
-            lines.append(f"{capitalised(name)} is marked not admissible in this file, and the report saved "
-                         f"with it does not say so (changed after the run?): do not interpret its estimates or fit.")
+            lines.append(who + " is marked not admissible in this file, and the report saved with it does not say "
+                               "so (changed after the run?): do not interpret its estimates or fit.")
     if not lines:
         return report
     if report.notice is not None and report.notice.inadmissible:

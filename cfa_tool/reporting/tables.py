@@ -13,9 +13,10 @@ from cfa_tool.assessment.identification import JUST_IDENTIFIED
 from cfa_tool.assessment.fit_indices import TLI_NOT_CUT
 from cfa_tool.assessment.reliability import WITHHELD_BECAUSE, BifactorPart, Keying, miskeyed
 from cfa_tool.data.labels import label_text
+from cfa_tool.data.summary_stats import STANDARDIZED_ITEMS, given_with, source_words
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST, Items, MissingData, WeightKind
-from cfa_tool.note_parts import Command, Note, TableReference, Text, read, said, saved
+from cfa_tool.note_parts import Command, Note, TableReference, Text, View, capitalised, read, said, saved
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.options import option_in_both
 from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words
@@ -157,16 +158,20 @@ def problem_notice(result) -> ProblemNotice | None:
     return ProblemNotice(NOT_ADMISSIBLE if inadmissible else CAUTION, lines, inadmissible)
 
 
-def problem_table(result) -> ReportTable | None:
-    """The problems of the solution as a table (for data files, where the notice of the views cannot go)."""
+def problem_table(result, running: str = "") -> ReportTable | None:
+    """The problems of the solution as a table (for data files, where the notice of the views cannot go), their words
+    as the reader of the report of command ``running`` reads them (note_parts.View.running: compare's table does not
+    advise 'cfa-tool compare', s24)."""
     notice = problem_notice(result)
     if notice is None:
         return None
+    view = View(commands=True, running=running)
     problems = solution_first(result.problems)
     rows = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()),
-             "" if p.value is None else est_num(p.value), p.group or "", said(p.explanation), said(p.advice)] for p in problems]
+             "" if p.value is None else est_num(p.value), p.group or "", said(p.explanation, view), said(p.advice, view)]
+            for p in problems]
     values = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()), p.value, p.group or "",
-               said(p.explanation), said(p.advice)] for p in problems]
+               said(p.explanation, view), said(p.advice, view)] for p in problems]
     columns = [("Problem", "l"), ("Makes it inadmissible", "l"), ("Parameters", "l"), ("Value", "r"), ("Group", "l"),
                ("Explanation", "l"), ("What to try", "l")]
     return _table("problems", notice.heading, columns, rows, values=([c for c, _ in columns], values))
@@ -959,7 +964,8 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
                                       "keyed item sum's variance") + " due "
             + ("to the factor; " if any(r.bifactor is not None for r in rows) else
                "to the factor (for a higher-order factor: omega hierarchical); ") + "omega total: due to all factors; alpha "
-            "from the " + ("polychoric correlations" if ordinal else "sample covariances") + " of the keyed items; "
+            "from the " + ("polychoric correlations" if ordinal else "sample covariances") + " of the keyed items"
+            + ("" if ordinal or not _correlations_alone(result) else f" ({STANDARDIZED_ITEMS})") + "; "
             + ("composite" if ordinal else "composite reliability") + " from the standardized loadings.")
     delta = _with_omega_interval(rows, columns, body, names, values)
     if delta:
@@ -1131,7 +1137,8 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
     if not any(row[3] for row in body):  # no interval to show (fixed correlations, or factors scaled otherwise)
         columns.pop(3)
         body = [row[:3] + row[4:] for row in body]
-        note += " No interval of r is shown: " + _no_interval_reasons(other_scale, not parameters_are_correlations)
+        note += " No interval of r is shown: " + _no_interval_reasons([n for n in names if n in other_scale],
+                                                                      not parameters_are_correlations)
     else:
         note += (" The interval of a correlation is shown when both factors are scaled by their variances (then their "
                  "covariance is the correlation).")
@@ -1156,16 +1163,17 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
                            "sqrt(AVE) > |r|"], numbers))
 
 
-def _no_interval_reasons(other_scale: set[str], implied: bool) -> Text:
+def _no_interval_reasons(other_scale: list[str], implied: bool) -> Text:
     """Why no correlation of the distinct table has an interval: a higher-order factor implies them, or some factors
     are scaled otherwise than by their variances (the only case the advice to scale by variance fits, so that it
     never asks for what the model already does); the correlations the model fixes are left out of the table.  The
-    model file's statement apart (note_parts.Command): a manuscript says it in words."""
+    model file's statement apart (note_parts.Command): a manuscript says it in words.  ``other_scale``: those factors
+    in the model's order, as the table lists them (not sorted by name)."""
     if implied:
         return "the correlations of factors below a higher-order factor are implied by it, not parameters."
     if other_scale:
         return Note(("a correlation is a parameter of the model only when both factors are scaled by their variances",
-                     Command(SCALE_BY_VARIANCE), f", and {word_list(sorted(other_scale))} "
+                     Command(SCALE_BY_VARIANCE), f", and {word_list(other_scale)} "
                      f"{'are' if len(other_scale) > 1 else 'is'} scaled otherwise."))
     return "none of these correlations is a parameter of the model."
 
@@ -1251,8 +1259,10 @@ def sum_score_table(result, group: int = 0) -> ReportTable | None:
             for r in rows]
     note = (f"The sum of each factor's items with reverse-keyed items reversed. Mean, SD (divisor N - 1) and "
             f"item-rest r come from the item means and covariances the fit analysed: {moments_source(result, group)}.")
+    if no_sds:
+        note += f" The item-rest r are {STANDARDIZED_ITEMS}."
     if no_means or no_sds:
-        note += (f" The file gives no {' or '.join(w for w, none in (('means', no_means), ('standard deviations', no_sds)) if none)}, "
+        note += (f" {capitalised(source_words(result.data.source))} gives no {' or '.join(w for w, none in (('means', no_means), ('standard deviations', no_sds)) if none)}, "
                  f"so the sums' {' and '.join(w for w, none in (('means', no_means), ('SDs', no_sds)) if none)} are not shown.")
     if not no_means and any(r.sum_score_mean is None for r in rows):
         note += Note((" A mean is shown once the answer scale of the reversed items is known: declare it in the model",
@@ -1359,15 +1369,16 @@ def item_table(result) -> ReportTable:
             numbers += [factor, "reversed" if flipped else "", value]
         body.append(row)
         values.append(numbers)
-    note = "SD with divisor N - 1." + (" The file gives no means, so none are shown (the fit takes every item's mean "
+    given = capitalised(source_words(result.data.source))  # 'The file', 'The data frame'
+    note = "SD with divisor N - 1." + (f" {given} gives no means, so none are shown (the fit takes every item's mean "
                                        "as 0, which affects no estimate of this model)." if no_means else "") + (
-        " The file gives correlations without standard deviations, so none are shown." if no_sds else "")
+        f" {given} gives correlations without standard deviations, so none are shown." if no_sds else "")
     if shape:
         note += (" Skewness g1 and excess kurtosis g2 (moment estimators; 0 for a normal distribution), each from "
                  "the rows answering the item.")
     if rest:
         note += (" Item-rest r: the correlation of the (keyed) item with the keyed sum of the other items of its "
-                 "factor (corrected item-total correlation).")
+                 "factor (corrected item-total correlation)" + (f", {STANDARDIZED_ITEMS}." if no_sds else "."))
     weights = _weights_column(result)
     if _estimated_for_gaps(result):
         note += f" Mean{', SD and item-rest r' if rest else ' and SD'}: {moments_source(result, 0)}."
@@ -1379,6 +1390,12 @@ def item_table(result) -> ReportTable:
              + ("" if weights is None else f"; means and SDs weighted by {weights}") + ")")
     return _table("items", title, columns, body, note,
                   values=([c for c, _ in columns], values))
+
+
+def _correlations_alone(result) -> bool:
+    """Whether the fit analysed a correlation matrix without standard deviations (summary statistics), whose alpha and
+    item-rest correlations are the standardized items' (data.summary_stats.STANDARDIZED_ITEMS)."""
+    return any(g.value == "standard_deviations" for g in getattr(result.data, "not_given", ()))
 
 
 def _estimated_for_gaps(result) -> bool:
@@ -1485,7 +1502,8 @@ def _just_identified_higher_order(result) -> tuple[str, ...]:
 
 
 def _and(names) -> str:
-    return names[0] if len(names) == 1 else f"{', '.join(names[:-1])} and {names[-1]}"
+    """Names as a sentence lists them: the one rule of a list (numbers.word_list)."""
+    return word_list(list(names))
 
 
 def higher_order_cautions(result) -> tuple[str, ...]:
@@ -1681,7 +1699,7 @@ def rows_phrase(data, design=None) -> str:
                 f"of {kept}{pair_rows_phrase(data)}")
     analysed = getattr(data, "analysed", None)
     if analysed is not None:  # summary statistics: no rows were read
-        return f"summary statistics ({analysed.value}), N = {count_text(data.n_obs)} as given in the file"
+        return f"summary statistics ({analysed.value}), N = {count_text(data.n_obs)} as given {given_with(data.source)}"
     return f"{count_text(data.n_obs)} rows analysed of {kept}{pair_rows_phrase(data)}"
 
 

@@ -12,12 +12,13 @@ from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATED, ProblemKind, design_cautions, failure_words,
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
+from cfa_tool.data.summary_stats import given_with
 from cfa_tool.data.groups import reference_words
 from cfa_tool.data.halves import REPLICATE_NAMES, halves_named_alike
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
-from cfa_tool.note_parts import Command, Note, TableReference, Text, capitalised, joined
+from cfa_tool.note_parts import Command, Name, Note, TableReference, Text, joined
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANGE_WHY, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
@@ -168,11 +169,12 @@ def _design_caution_lines(named_results) -> list[str]:
     # 'too' only for the models whose cautions are the same; a model's cautions of other figures (its own scaling
     # factor) under its own name (re-check s18: one model's extreme factor, 0.407, was said of the other, 0.651)
     same = [n for n, found in own if n != name and (found == problems or steps_of_one_model)]
-    whose = f"{name} (the model with the most free parameters{'; ' + word_list(same) + ' too' if same else ''}): "
-    lines = [capitalised(whose) + p.line() for p in problems]  # a model's name keeps its case (note_parts)
+    # a model's name keeps its case at the line's start (note_parts.Name: no sentence's capital recases it)
+    whose = Note((Name(name), f" (the model with the most free parameters{'; ' + word_list(same) + ' too' if same else ''}): "))
+    lines = [whose + p.line() for p in problems]
     for other, found in own:
         if other != name and found != problems and not steps_of_one_model:
-            lines += [capitalised(other) + ": " + p.line() for p in found]
+            lines += [Note((Name(other), ": ")) + p.line() for p in found]
     return lines
 
 
@@ -185,10 +187,11 @@ def _notice(problems: list[str], cautions: list[str] = (), failed: bool = False)
 
 
 def _models_problem_table(named_results, notice: ProblemNotice | None) -> ReportTable | None:
-    """Every model's problems as one table for data files (a fit's table, T.problem_table, with the model first)."""
+    """Every model's problems as one table for data files (a fit's table, T.problem_table, with the model first), in
+    the words of compare's report."""
     rows, values, columns = [], [], None
     for name, r in named_results:
-        own = T.problem_table(r)
+        own = T.problem_table(r, running=ResultKind.COMPARE.value)
         if own is None:
             continue
         columns = [("Model", "l")] + list(zip(own.columns, own.align))
@@ -443,7 +446,8 @@ def comparison_report(comparison) -> Report:
         rows_line = f"All models fitted to the same {count_text(comparison.n_obs)} rows, {how} ({left})."
     elif getattr(comparison.results[0].data, "analysed", None) is not None:  # summary statistics: no rows
         rows_line = (f"All models fitted to the same summary statistics "
-                     f"({comparison.results[0].data.analysed.value}), N = {count_text(comparison.n_obs)} as given in the file.")
+                     f"({comparison.results[0].data.analysed.value}), N = {count_text(comparison.n_obs)} as given "
+                     f"{given_with(comparison.results[0].data.source)}.")
     else:
         rows_line = (f"All models fitted to the same {count_text(comparison.n_obs)} rows ({count_text(comparison.rows_dropped)} rows with a missing "
                      f"answer on any model's variables left out).")
@@ -1617,7 +1621,7 @@ def nested_power_report(result) -> Report:
     effective = result.effective_n  # a planned cluster sample: the N asked about is worth N / design effect rows
     if result.power is not None:
         at = effective if effective is not None else result.n_obs
-        rows.append([f"Noncentrality with N = {count_text(result.n_obs)} ({'N' if effective is None else 'N / design effect'} F)",
+        rows.append([f"Noncentrality with N = {count_text(result.n_obs)} ({'N' if effective is None else '(N / design effect)'} × F)",
                      num(nested.noncentrality(at), 2), nested.noncentrality(at)])
         rows.append([f"Power with N = {count_text(result.n_obs)}" + (" rows of the cluster sample" if effective else ""),
                      unit(result.power), result.power])
@@ -1630,7 +1634,7 @@ def nested_power_report(result) -> Report:
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
     assumptions = Note((f"This power is that of the likelihood-ratio chi-square difference between maximum-likelihood "
                         f"fits of the two models to independent, complete rows of normally distributed answers, by the "
-                        f"noncentral chi-square with {df} df and noncentrality N F, F the minimum discrepancy the "
+                        f"noncentral chi-square with {df} df and noncentrality N × F, F being the minimum discrepancy the "
                         f"nested model leaves at the population the model file's values describe (Satorra & Saris "
                         f"1985): an approximation, for discrepancies small beside the sampling error. A power "
                         f"simulation fits both models to simulated data sets and gives the simulated power beside this "

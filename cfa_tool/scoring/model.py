@@ -21,6 +21,7 @@ import numpy as np
 
 from cfa_tool.numbers import user_number
 from cfa_tool.errors import DataError, EstimationError
+from cfa_tool.language.names import written_group
 from cfa_tool.model.implied import ModelMatrices
 
 
@@ -147,7 +148,7 @@ def checked_covariance(model: ScoringModel) -> np.ndarray:
     """Sigma, refused when it is not positive definite (no score can be computed from it)."""
     sigma = model.implied_covariance
     if not np.all(np.isfinite(sigma)) or np.linalg.eigvalsh(sigma)[0] <= 1e-12 * max(1.0, float(np.abs(sigma).max())):
-        where = f" in group '{model.group}'" if model.group else ""
+        where = f" in group {written_group(model.group)}" if model.group else ""  # the one rule of group labels
         raise EstimationError(f"the model's implied covariance matrix of the items{where} is not positive definite, "
                               f"so no factor scores can be computed from it")
     return sigma

@@ -18,10 +18,11 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import user_number, word_list
 from cfa_tool import options as check
 from cfa_tool.errors import ModelError, OptionError
 from cfa_tool.language.checks import all_refs
+from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.model.implied import ModelMatrices, StructuredModel
 from cfa_tool.model.parameters import ParameterTable
@@ -96,15 +97,16 @@ def designs_of(value: object) -> tuple[tuple[str, ...], tuple[tuple[int, ...], .
     labels = tuple(label for label, _ in pairs)
     if len(set(labels)) < len(labels):
         twice = next(x for x in labels if labels.count(x) > 1)
-        raise OptionError(f"{name}: group '{twice}' is given twice; give each group once")
+        raise OptionError(f"{name}: group {written_group(twice, labels)} is given twice; give each group once")
     if len(labels) < 2:
         raise OptionError(f"{name}: an invariance design needs at least two groups, and {len(labels)} is given")
     counts = {len(sizes) for _, sizes in pairs}
     if len(counts) > 1:
         raise OptionError(f"{name}: every group needs as many sizes as the others (one per design, separated by "
-                          f"'/'), and they have {', '.join(f'{label}: {len(s)}' for label, s in pairs)}")
+                          f"'/'), and they have {', '.join(f'{written_group(label, labels)}: {len(s)}' for label, s in pairs)}")
     sized = [[check.observations(int(s) if isinstance(s, str) and s.strip().isdigit() else s,
-                                 f"{name}: the size of group '{label}'") for s in sizes] for label, sizes in pairs]
+                                 f"{name}: the size of group {written_group(label, labels)}") for s in sizes]
+             for label, sizes in pairs]
     designs = sorted(set(zip(*sized)), key=lambda d: (sum(d), d))
     if len(designs) < counts.pop():
         raise OptionError(f"{name}: a design is given twice; give each once")
@@ -138,8 +140,9 @@ def check_groups_named(spec: Spec, labels: tuple[str, ...]) -> None:
     missing = [g for g in groups_named(spec) if g not in labels]
     if missing:
         raise OptionError(f"the model file names {'groups' if len(missing) > 1 else 'group'} "
-                          f"{', '.join(repr(g) for g in missing)} in 'in group' statements, which "
-                          f"{check.Option.GROUP_SIZES} does not give (it gives {', '.join(labels)}); give "
+                          f"{word_list(written_group(g, missing) for g in missing)} in 'in group' statements, "
+                          f"which {check.Option.GROUP_SIZES} does not give (it gives "
+                          f"{word_list(written_group(g, labels) for g in labels)}); give "
                           f"{'their sizes' if len(missing) > 1 else 'its size'} or correct the name")
 
 
@@ -208,8 +211,9 @@ def group_population(spec: Spec, labels: tuple[str, ...], configural: Spec, fitt
             own = [(ref, s.value, how) for how, settings in (("start", spec.starts), ("fix", spec.fixed))
                    for s in settings for ref in s.refs if ref.group == label]
             listed = "; ".join(f"line {ref.location.line}: {how} {ref} = {user_number(value)}" for ref, value, how in own)
-            message = (f"the population values of group '{label}' imply a covariance matrix that is not positive "
-                       f"definite or not finite: check its 'in group {label}:' values"
+            message = (f"the population values of group {written_group(label, labels)} imply a covariance matrix "
+                       f"that is not positive definite or not finite: check its 'in group {written_name(label)}:' "
+                       f"values"
                        + (f" ({listed})" if own else ""))
             if own:
                 raise ModelError(message, own[0][0].location, spec.source_line(own[0][0].location))

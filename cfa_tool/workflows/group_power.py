@@ -25,6 +25,7 @@ from cfa_tool import options as check
 from cfa_tool.assessment.admissibility import counted_problems, replicated_problems
 from cfa_tool.data.moments import SampleMoments
 from cfa_tool.errors import CfaError, EstimationError, ModelError, OptionError, printable
+from cfa_tool.language.names import names_text, written_group
 from cfa_tool.language.spec import Spec
 from cfa_tool.method import DifferenceMethod
 from cfa_tool.numerics import distributions as dist
@@ -176,8 +177,10 @@ def _differences_tested(spec: Spec, population: GroupPopulation, highest: str) -
         if level is None or [name for name, _, _ in LEVELS].index(level) <= stop:
             continue
         ref = _statement_of(d, spec.starts + spec.fixed)
-        what = f"{ref}" if ref is not None else f"{ref_kind(d.kind)}({', '.join(d.variables)}) in group {d.group}"
-        message = (f"{what} makes group '{d.group}' differ from '{population.labels[0]}' ({user_number(d.value)} against "
+        labels = population.labels
+        group, first = written_group(d.group, labels), written_group(labels[0], labels)
+        what = f"{ref}" if ref is not None else f"{ref_kind(d.kind)}({names_text(d.variables)}) in group {group}"
+        message = (f"{what} makes group {group} differ from group {first} ({user_number(d.value)} against "
                    f"{user_number(d.reference_value)}), which only the {level} step tests, and {check.Option.HIGHEST_LEVEL} "
                    f"{highest} stops before it: up to {highest} the parameter is free in each group, so the difference "
                    f"changes no step's test; give {check.Option.HIGHEST_LEVEL.given(level)} to plan for it, or remove "
@@ -195,7 +198,7 @@ def _fixed_differences(spec: Spec, population: GroupPopulation) -> None:
         if ref is None:
             continue
         message = (f"'fix' holds {ref} at {user_number(d.value)} (against {user_number(d.reference_value)} in group "
-                   f"'{population.labels[0]}') in every model the ladder fits, so no step tests the difference; write "
+                   f"{written_group(population.labels[0], population.labels)}) in every model the ladder fits, so no step tests the difference; write "
                    f"'start' to give it as the population value, which the fitted models then estimate")
         raise ModelError(message, ref.location, spec.source_line(ref.location))
 
@@ -223,7 +226,7 @@ def _scaled_alike(spec: Spec, labels: tuple[str, ...], configural: Spec) -> None
         return {"variance": "by its variance", "effects": "by effects coding"}.get(scale.method,
                                                                                   "by a value the model fixes")
 
-    ways = "; ".join(f"{words(t)} in group '{label}'" for label, t in how)
+    ways = "; ".join(f"{words(t)} in group {written_group(label, labels)}" for label, t in how)
     settings = ([r for r in spec.freed] + [r for s in spec.fixed for r in s.refs])
     ref = next((r for r in settings if r.group is not None and r.names[0] == factor
                 and r.kind in ("loading", "variance")), None)
@@ -347,7 +350,7 @@ def invariance_power(model: str | Path | Spec, group_sizes: str | Mapping[str, i
     for design in designs:
         for label, n in zip(labels, design):
             if n <= p + 1:
-                raise OptionError(f"the size {n} of group '{label}' is too small for {p} variables: each simulated "
+                raise OptionError(f"the size {n} of group {written_group(label, labels)} is too small for {p} variables: each simulated "
                                   f"group needs at least {p + 2} rows (a factor analysis far more)")
         if sum(design) * p > check.MAX_SIMULATED_CELLS:
             raise OptionError(f"{sum(design):,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} "

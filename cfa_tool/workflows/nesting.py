@@ -13,7 +13,7 @@ from typing import Callable
 
 import numpy as np
 
-from cfa_tool.numbers import count_text, counted, cut_list, rounded_number
+from cfa_tool.numbers import count_text, counted, cut_list, rounded_number, word_list
 from cfa_tool.options import Option
 from cfa_tool.numerics import distributions as dist
 
@@ -255,7 +255,9 @@ def _count(n: int, noun: str) -> str:
 
 
 def _listed(names: list[str]) -> str:
-    return names[0] if len(names) == 1 else ", ".join(names[:-1]) + " and " + names[-1]
+    """Names as a sentence lists them, by the one rule of a list (numbers.word_list: 'a, b, and c'; s24: these
+    lists alone wrote 'a, b and c' beside the paragraph's 'a, b, and c')."""
+    return word_list(names)
 
 
 def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec, general: FitResult) -> Boundary:

@@ -26,7 +26,7 @@ def test_a_group_the_model_names_left_out_by_the_filter(tmp_path, rider_demo, ca
     code = main(["fit", model, "--data", data, "--group-column", "g3", "--keep", "g3 != east side"])
     err = capsys.readouterr().err
     assert code == 2 and len(err.strip().splitlines()) == 1
-    assert "'east side', a group the model file names, has rows in the file but none among those the row filter" in err
+    assert 'group "east side" (a group the model file names) has rows in the file but none among those the row filter' in err
     assert "there is no group" not in err
 
 
@@ -36,7 +36,7 @@ def test_the_reference_group_left_out_by_the_filter_in_fit_and_invariance(tmp_pa
         code = main([command, model, "--data", data, "--group-column", "g3", "--keep", "g3 != east side",
                      "--reference-group", "east side"])
         err = capsys.readouterr().err
-        assert code == 2 and "'east side', the reference group, has rows in the file but none" in err, (command, err)
+        assert code == 2 and 'group "east side" (the reference group) has rows in the file but none' in err, (command, err)
         assert "choose another reference group" in err
 
 
@@ -44,4 +44,4 @@ def test_a_group_no_row_has_is_still_said_absent(tmp_path, rider_demo, capsys):
     model, data = _files(tmp_path, rider_demo, 'in group "west side": fix loading(comfort, clean) = 1\n')
     code = main(["fit", model, "--data", data, "--group-column", "g3", "--keep", "g3 != east side"])
     err = capsys.readouterr().err
-    assert code == 2 and "there is no group 'west side'" in err
+    assert code == 2 and "there is no group \"west side\"" in err

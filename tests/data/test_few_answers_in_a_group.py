@@ -75,7 +75,7 @@ def test_no_more_answers_in_a_group_than_variables_are_refused_naming_the_item_a
     text = str(refused.value)
     south = frame.index[frame["district"] == "south"]
     rows = ", ".join(str(i) for i in south[:min(k, 5)])  # a data frame's rows are named by their index labels
-    assert f"(group 'south' of district): 'clean' has only {k} answer" in text
+    assert f"(group south of 'district'): 'clean' has only {k} answer" in text
     assert f"in this group ({'index label' if k == 1 else 'index labels'} {rows}" in text
     # the model's 12 items: at least 13 answers (one more than the variables analysed, data.moments.fewest_answers)
     assert "full-information ML needs at least 13 answers of an item in this group" in text
@@ -83,7 +83,7 @@ def test_no_more_answers_in_a_group_than_variables_are_refused_naming_the_item_a
     frame.to_csv(path, index=False)
     done = run("fit", str(MODEL), "--data", str(path), "--group-column", "district")
     assert done.returncode == 2 and "not identified" not in done.stderr
-    assert f"south.csv (group 'south' of district): 'clean' has only {k} answer" in done.stderr
+    assert f"south.csv (group south of 'district'): 'clean' has only {k} answer" in done.stderr
     listed = ", ".join(str(i + 2) for i in south[:min(k, 5)])  # the file's rows, its names row 1
     assert f"({'row' if k == 1 else 'rows'} {listed}" in done.stderr
     assert len(done.stderr.strip().splitlines()) == 1
@@ -124,7 +124,7 @@ def test_three_answers_in_a_group_of_a_four_item_model_name_the_item_and_the_gro
     assert done.returncode == 2, done.stderr
     assert "not identified" not in done.stderr and "loading(" not in done.stderr
     rows = ", ".join(str(i + 2) for i in sorted(keep))  # the file's rows, its names row 1
-    assert (f"few.csv (group 'south' of district): 'easy_transfer' has only 3 answers in this group (rows {rows}); "
+    assert (f"few.csv (group south of 'district'): 'easy_transfer' has only 3 answers in this group (rows {rows}); "
             f"full-information ML needs at least 5 answers") in done.stderr  # 4 items analysed: one more
     assert len(done.stderr.strip().splitlines()) == 1 and not out.exists()
 

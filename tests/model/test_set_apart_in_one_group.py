@@ -157,7 +157,7 @@ def _refused(statements: str) -> ModelError:
     ("in group east: noninvariant variance(x2)\n", (3, 29),
      "'in group east: noninvariant variance(x2)' exempts a parameter from being held equal across groups, but error "
      "variances are not held equal"),
-    ("in group west: noninvariant intercept(x2)\n", (3, 29), "there is no group 'west'"),
+    ("in group west: noninvariant intercept(x2)\n", (3, 29), "there is no group west"),
 ])
 def test_what_cannot_be_set_apart_is_refused_at_its_line(statements, place, words):
     error = _refused(statements)

@@ -62,7 +62,7 @@ def test_a_group_too_small_is_refused_with_the_filter_that_leaves_it_out_and_tha
     code, _, err = run_cli(argv, capsys)
     assert code == 2, err
     assert len(err.strip().splitlines()) == 1 and "Traceback" not in err
-    assert (f"group '{SMALL}' of 'gender' has only 5 complete rows for the model's 6 variables, and a group needs more "
+    assert (f"group \"{SMALL}\" of 'gender' has only 5 complete rows for the model's 6 variables, and a group needs more "
             f"rows than variables") in err
     # the remedies: the exact filter first, then joining groups
     assert f"leave it out with --keep 'gender != \"{SMALL}\"' (the other groups' 300 complete rows stay), or join it" in err
@@ -84,7 +84,7 @@ def test_a_group_too_small_with_gaps_is_counted_by_its_rows_with_any_answer(tmp_
     code, _, err = run_cli(["fit", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "s.sav"), "--group-column",
                             "gender"], capsys)
     assert code == 2, err
-    assert f"group '{SMALL}' of 'gender' has only 6 rows with any answer for the model's 6 variables" in err
+    assert f"group \"{SMALL}\" of 'gender' has only 6 rows with any answer for the model's 6 variables" in err
 
 
 @pytest.mark.parametrize("incomplete, kept", [("listwise", "200 complete rows"), ("full-information", "300 rows with any answer")])
@@ -116,8 +116,8 @@ def test_several_small_groups_are_named_in_one_message_with_one_filter_each():
 
         fit(MODEL, frame, group="site")
     message = str(refused.value)
-    assert ("groups 'east' (3 complete rows) and 'far west' (3 complete rows) of 'site' have too few rows for the "
-            "model's 6 variables") in message
+    assert ("groups \"east\" (3 complete rows) and \"far west\" (3 complete rows) of 'site' have too few rows for "
+            "the model's 6 variables") in message  # every label quoted, as one of them needs quotes
     assert "leave them out with keep=['site != east', 'site != \"far west\"'] (the other groups' 300 complete rows stay)" \
         in message
 
@@ -186,9 +186,9 @@ def test_a_group_without_a_complete_row_is_said_so_and_one_without_any_answer_ke
     frame = pd.DataFrame(_answers(310, 5), columns=ITEMS)
     frame["site"] = ["north"] * 150 + ["south"] * 150 + ["east"] * 10
     frame.loc[frame.index[-10:], "q1"] = np.nan  # every row of 'east' misses q1
-    with pytest.raises(DataError, match=r"group 'east' of 'site' has no complete row for the model's 6 variables, "
+    with pytest.raises(DataError, match=r"group east of 'site' has no complete row for the model's 6 variables, "
                                         r"and a group needs more rows than variables .*keep=\['site != east'\]"):
         fit(MODEL, frame, group="site", missing="listwise")
     frame.loc[frame.index[-10:], ITEMS] = np.nan  # no answer at all: the moments' own message
-    with pytest.raises(DataError, match=r"group 'east' of site\): no row answers any of the model's 6 variables"):
+    with pytest.raises(DataError, match=r"group east of 'site'\): no row answers any of the model's 6 variables"):
         fit(MODEL, frame, group="site", missing="listwise")

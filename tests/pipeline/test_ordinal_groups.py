@@ -155,8 +155,8 @@ def test_every_empty_category_of_every_group_is_named_in_one_message():
         cfa_tool.fit(MODEL, data, group="site")
     message = str(found.value)
     assert "some categories of 3 ordinal items that other groups used" in message
-    assert ("in group 'east' of site: category 5 of 'q2', category 1 of 'q3'; "
-            "in group 'south' of site: category 5 of 'q2', category 1 of 'q5'") in message  # groups in their order
+    assert ("in group east of 'site': category 5 of 'q2', category 1 of 'q3'; "
+            "in group south of 'site': category 5 of 'q2', category 1 of 'q5'") in message  # groups in their order
     # one recoding for every group, each empty category into its nearest one answered in every group
     assert "recode 'q2' (5 as 4) and 'q3' (1 as 2) and 'q5' (1 as 2) in every group" in message
     assert "leave those groups out" in message
@@ -169,7 +169,7 @@ def test_every_empty_category_of_every_group_is_named_in_one_message():
 def test_errors_for_groups_with_ordinal_items():
     a, b = _draw(300, 1), _draw(300, 2)
     b.loc[b.q2 == 4, "q2"] = 3  # the south group never uses category 4 of q2
-    with pytest.raises(DataError, match=r"group 'south' of site\): no one answered category 4 on ordinal item 'q2'"):
+    with pytest.raises(DataError, match=r"group south of 'site'\): no one answered category 4 on ordinal item 'q2'"):
         cfa_tool.fit(MODEL, _two_groups(a, b), group="site")
     with pytest.raises(ModelError, match="can only be named in 'noninvariant'"):
         cfa_tool.fit(MODEL + "fix threshold(q1) = 0\n", _two_groups(a, _draw(300, 2)), group="site")

@@ -137,7 +137,7 @@ def test_invariance_ladder_with_mixed_items_counts_its_steps_and_finds_a_shifted
 def test_a_continuous_item_constant_in_one_group_is_named():
     a, b = _draw(300, 6), _draw(300, 7)
     b["y2"] = 3.0
-    with pytest.raises(DataError, match=r"\(group 'south' of site\): column 'y2' has the same value in every row"):
+    with pytest.raises(DataError, match=r"\(group south of 'site'\): column 'y2' has the same value in every row"):
         cfa_tool.fit(MODEL, _groups(a, b), group="site")
 
 

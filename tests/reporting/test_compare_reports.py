@@ -191,7 +191,7 @@ def test_a_pair_without_any_statistic_shows_its_changes_in_fit_and_marks_no_p_va
     assert all(row[2] == "" for row in table.rows)  # no p-value, so none marked
     for name, text in _views(report).items():
         assert "marked *" not in text, name
-        assert "On the boundary: factors visual, textual and speed merged into g" in text, name
+        assert "On the boundary: factors visual, textual, and speed merged into g" in text, name
         assert "No difference test could be computed here: weigh the models by their fit indices, AIC and BIC" in text
         assert "no difference test of this comparison could be computed" in text, name
         for t in tests:

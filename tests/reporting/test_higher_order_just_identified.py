@@ -45,7 +45,7 @@ def test_the_second_order_fit_over_three_factors_is_the_correlated_factors_fit(f
 def test_every_view_of_the_fit_says_it_does_not_test_the_higher_order_factor(fits):
     second = fits[1]
     report = fit_report(second)
-    caution = [w for w in report.warnings if "Higher-order factor ability over visual, textual and speed" in str(w)]
+    caution = [w for w in report.warnings if "Higher-order factor ability over visual, textual, and speed" in str(w)]
     assert len(caution) == 1 and SAID in str(caution[0]) and "Rindskopf & Rose 1988" in str(caution[0])
     paragraph = methods_paragraph(second)
     assert ("the higher-order factor ability explaining visual, textual, and speed, is just-identified, so this fit "

@@ -74,7 +74,7 @@ def test_the_rare_categories_advice_of_a_small_ordinal_group_names_the_ways_out(
     with pytest.raises(DataError) as found:
         cfa_tool.invariance("factor f: a, b, c, d, e\n", frame, "g", ordinal="all")
     text = str(found.value)
-    assert "group 'small' of g" in text and "not positive definite" in text
+    assert "group small of 'g'" in text and "not positive definite" in text
     assert "(answers recorded as words: an 'answers' statement in the model file may give two words one code)" in text
     assert "or leave this group out with a row filter (keep=...)" in text
 

@@ -70,7 +70,7 @@ def test_a_group_difference_given_by_fix_is_an_error_at_its_statement():
     # 'fix' stays in every model of the ladder (only 'start' values are population values alone): the scalar step
     # would hold the intercept difference in every model and report a false-alarm rate where the groups differ
     with pytest.raises(ModelError, match=r"'fix' holds intercept\(a2\) in group south at 0.5 \(against 0 in group "
-                                         r"'north'\) in every model the ladder fits, so no step tests") as caught:
+                                         r"north\) in every model the ladder fits, so no step tests") as caught:
         invariance_power(POPULATION + "in group south: fix intercept(a2) = 0.5\n", "north=150,south=150",
                          replications=4, workers=1)
     assert caught.value.location is not None and caught.value.location.line == 5

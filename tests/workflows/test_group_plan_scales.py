@@ -26,7 +26,7 @@ def _refused(model: str) -> ModelError:
 def test_another_marker_in_one_group_is_an_error_at_its_statement():
     error = _refused(ONE + "in group south: free loading(f, a1)\n")
     assert str(error).startswith("<model text>:3:22: factor 'f' is scaled differently in different groups (by the loading of a1 in "
-                                 "group 'north'; by the loading of a2 in group 'south'), so it is not on the same "
+                                 "group north; by the loading of a2 in group south), so it is not on the same "
                                  "metric in every group")
     assert "no step tests it" in str(error)
     assert (error.location.line, error.location.column) == (3, 22)
@@ -47,7 +47,7 @@ def test_an_in_group_fix_that_makes_the_groups_differ_is_an_error_whatever_its_k
 def test_a_fixed_factor_variance_in_one_group_is_an_error():
     # the variance fixed in south alone scales f there (the marker is then south's free loading of a1): refused
     error = _refused(ONE + "in group south: fix variance(f) = 1.5\n")
-    assert "by a value the model fixes in group 'south'" in str(error) and error.location.line == 3
+    assert "by a value the model fixes in group south" in str(error) and error.location.line == 3
 
 
 def test_the_same_difference_given_by_start_is_planned():

@@ -131,7 +131,7 @@ def test_group_specific_statements(hs_data):
 @pytest.mark.parametrize(
     "model, words",
     [
-        ("factor f: x1..x3\nin group Pastuer: fix variance(x1) = 1\n", "no group 'Pastuer' in the data; did you mean 'Pasteur'?"),
+        ("factor f: x1..x3\nin group Pastuer: fix variance(x1) = 1\n", "no group Pastuer in the data; did you mean 'Pasteur'?"),
         ("factor f: x1..x3\nfix intercept(f) = 0\n", "factors have means, not intercepts"),
     ],
 )
@@ -154,6 +154,6 @@ def test_group_column_problems(hs_data):
         cfa_tool.fit(THREE_FACTORS, hs_data.assign(one="all"), group="one")
     tiny = hs_data.copy()
     tiny.loc[tiny.index[:3], "school"] = "tiny"
-    with pytest.raises(DataError, match="group 'tiny' of 'school' has only 3 complete rows for the model's 9 variables.*leave it out with "
+    with pytest.raises(DataError, match="group tiny of 'school' has only 3 complete rows for the model's 9 variables.*leave it out with "
                        r"keep=\['school != tiny'\]"):
         cfa_tool.fit(THREE_FACTORS, tiny, group="school")

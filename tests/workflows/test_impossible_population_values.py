@@ -21,7 +21,7 @@ def _model(tmp_path, rider_model, line: str):
 
 @pytest.mark.parametrize("line, column, said", [
     ("in group south: start variance(clean) = -0.05", 23,
-     "the start values make the population covariance matrix of group 'south' impossible: variance(clean) in group "
+     "the start values make the population covariance matrix of group south impossible: variance(clean) in group "
      "south is given the start value -0.05, and a variance cannot be negative"),
     # the factors' population variances are .49 (loadings .7 of standardized items): .9 is a correlation of 1.84
     ("in group south: start covariance(punctuality, comfort) = 0.9", 23,

@@ -163,12 +163,12 @@ def test_several_designs_are_sorted_and_seeded_like_the_sample_sizes_of_one_grou
 
 
 @pytest.mark.parametrize("model, sizes, words", [
-    (SHIFTED, "north=100,east=100", "names group 'south' in 'in group' statements, which --group-sizes does not give"),
+    (SHIFTED, "north=100,east=100", "names group south in 'in group' statements, which --group-sizes does not give"),
     (ONE_FACTOR, "north=100", "needs at least two groups"),
-    (ONE_FACTOR, "north=100,north=200", "group 'north' is given twice"),
+    (ONE_FACTOR, "north=100,north=200", "group north is given twice"),
     (ONE_FACTOR, "north=100/200,south=100", "every group needs as many sizes"),
-    (ONE_FACTOR, "north=100,south=many", "the size of group 'south' must be a whole number"),
-    (ONE_FACTOR, "north=5,south=100", "the size 5 of group 'north' is too small"),
+    (ONE_FACTOR, "north=100,south=many", "the size of group south must be a whole number"),
+    (ONE_FACTOR, "north=5,south=100", "the size 5 of group north is too small"),
 ])
 def test_bad_designs_are_one_line_errors(model, sizes, words, tmp_path, capsys):
     path = tmp_path / "plan.cfa"
