@@ -1992,10 +1992,14 @@ def _dominant(moments, result: FitResult):
 def with_design(result: FitResult, design, moments=()) -> FitResult:
     """The result stating the design it was fitted under (status line, JSON, methods paragraph, cautions);
     ``moments``: each group's moments the fit was made from, for the cautions that read the rows' statistics
-    (one cluster dominating the design effect) and an ordinal fit's thresholds."""
+    (one cluster dominating the design effect) and an ordinal fit's thresholds.  The thresholds of one group are
+    carried by the design-based covariance whether a first step estimates them (fit) or the model does (compare's
+    fits, whose count of free parameters leaves them out as fit's does: workflows.ordinal_compare), and counted so
+    in every command (new-user trial s25: the ordinal compare dropped the few-clusters caution that fit gave); in
+    several groups they are among the free parameters."""
     from cfa_tool.assessment.admissibility import free_parameters
 
-    thresholds = (sum(len(t) for t in moments[0].thresholds) if result.method.ordinal and not result.method.thresholds
+    thresholds = (sum(len(t) for t in moments[0].thresholds) if result.method.ordinal
                   and len(moments) == 1 and hasattr(moments[0], "thresholds") else 0)
     problems = result.problems + design_problems(design, free_parameters(result), thresholds,
                                                  _dominant(moments, result) if design.columns.cluster else None,
