@@ -32,7 +32,7 @@ from cfa_tool.data.matching import (answer_range_notes, refuse_name_twins, check
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.kept_counts import analysed_rows, kept_non_answers, kept_reading_notes
 from cfa_tool.data.non_answers import also_no_answer, beyond_scale, non_answer_caution, run_words
-from cfa_tool.data.descriptives import AnswerExtremes, few_category_items, few_category_note
+from cfa_tool.data.descriptives import AnswerExtremes, few_category_items, few_category_note, piled_up_items
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.notes_rows import drop_notes_lines
@@ -2341,13 +2341,15 @@ def continuous_only(spec: Spec, command: str) -> Spec:
 def few_categories(frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarray | None = None,
                    extremes: AnswerExtremes | None = None) -> tuple[tuple[str, ...], list[str]]:
     """For a command that treats ``names`` as continuous: the items of few answer categories
-    (data.descriptives.few_category_items), which the methods paragraph names, and the note on them
+    (data.descriptives.few_category_items), which the methods paragraph names, and the note on them and on the items
+    whose answers pile up at one end (data.descriptives.piled_up_items: new-user trial s25, about 60% at the top of
+    four items passed without a word), one note with the ordinal fit as the remedy
     (data.descriptives.few_category_note), empty when there are none (``values``: the items taken out already)."""
     values = item_values(frame, names) if values is None else values
     if values is None:  # not plain numbers: the reading of the items names what is wrong
         return (), []
     few = few_category_items(values, names, extremes)
-    note = few_category_note(few, names)
+    note = few_category_note(few, names, piled_up_items(values, names, extremes, skip=few))
     return few, [note] if note else []
 
 
