@@ -75,6 +75,9 @@ def suggested_statement(values: np.ndarray) -> str | None:
     written = {answer_key(w): w for w in distinct_words(values)}
     if not written:
         return None
+    ends = end_points_statement(values, list(written.values()))
+    if ends is not None:  # two words beside a run of numbers: the words label the scale's ends
+        return ends
     keyed = [(scale, [answer_key(w) for w in scale]) for scale in COMMON_SCALES]
     whole = [(scale, keys) for scale, keys in keyed if set(written) == set(keys)]
     holding = [(scale, keys) for scale, keys in keyed if set(written) <= set(keys)]
@@ -91,3 +94,37 @@ def suggested_statement(values: np.ndarray) -> str | None:
         return f"answers {listed}"
     return (f"answers {listed} (no cell holds {absent}: if your scale has no such answer, leave it out and number "
             f"the other answers from 1)")
+
+
+def _whole_numbers(values: np.ndarray) -> list[int]:
+    """The distinct whole numbers a column's cells hold (numbers or text reading as one), lowest first."""
+    found = set()
+    for value in values:
+        number = strict_number(value.strip()) if isinstance(value, str) else value
+        if isinstance(number, (int, float, np.integer, np.floating)) and not isinstance(number, (bool, np.bool_)) \
+                and number == number and float(number).is_integer():
+            found.add(int(number))
+    return sorted(found)
+
+
+def end_points_statement(values: np.ndarray, words: list[str]) -> str | None:
+    """The 'answers' statement for a column whose answers are numbers with words at the two ends only, as many survey
+    platforms export a scale labelled at its end points ('Never', 1, 2, 3, 4, 5, 'Always'; new-user trial s25: the
+    advice coded the words from 1 up, giving 'Never' the code of the answer 1): every number listed as itself, and
+    each word coded by its place on the scale, one below the lowest number and one above the highest.  The words'
+    order is that of the common scales holding both (``words``: the column's two distinct words); when no common scale
+    orders them, the statement says which word it takes for the lowest.  None unless the column holds exactly two
+    words and at least two whole numbers in an unbroken run."""
+    numbers = _whole_numbers(values)
+    if len(words) != 2 or len(numbers) < 2 or numbers != list(range(numbers[0], numbers[-1] + 1)):
+        return None
+    first, second = (answer_key(w) for w in words)
+    orders = {scale.index(first) < scale.index(second)
+              for scale in ([answer_key(w) for w in s] for s in COMMON_SCALES) if first in scale and second in scale}
+    low, high = (words if orders == {True} else words[::-1] if orders == {False} else words)
+    listed = ", ".join([f'"{low}" = {numbers[0] - 1}'] + [f"{k} = {k}" for k in numbers]
+                       + [f'"{high}" = {numbers[-1] + 1}'])
+    assumed = "" if len(orders) == 1 else f" (if \"{low}\" is the lowest answer and \"{high}\" the highest)"
+    return (f"answers {listed}{assumed}: the numbers {numbers[0]} to {numbers[-1]} listed as themselves, and each "
+            f"word coded by its place on the scale, one below the lowest number and one above the highest; the words' "
+            f"codes come from the questionnaire's scale, never from this tool")

@@ -9,7 +9,7 @@ import numpy as np
 
 from cfa_tool.language.names import written_name
 from cfa_tool.note_parts import Command, Note
-from cfa_tool.numbers import cut_list
+from cfa_tool.numbers import cut_list, user_number
 from cfa_tool.options import option_in_both
 
 
@@ -199,22 +199,87 @@ def few_category_items(values: np.ndarray, names: tuple[str, ...],
     return tuple(name for name in candidates if name not in constant)
 
 
-def few_category_note(few: tuple[str, ...], names: tuple[str, ...]) -> Note | None:
-    """The note of a fit that treats ``few`` (:func:`few_category_items` of the items ``names``) as continuous (None
-    when there are none)."""
-    if not few:
+#: an item of whole-number answers with more than this share of its answers in its lowest or its highest category
+#: has its answers piled at one end (a ceiling or a floor): a rule of thumb of this project (common practice speaks of
+#: floor and ceiling effects without one cutoff for items; half the answers in one end category leaves the item
+#: few informative categories), not a published cutoff
+PILED_UP_SHARE = 0.5
+
+
+@dataclass(frozen=True)
+class PiledUp:
+    """An item whose answers pile up at one end: its name, the end's answer, the share of its answers there, and
+    whether it is the highest (a ceiling) or the lowest (a floor)."""
+
+    name: str
+    answer: float
+    share: float
+    ceiling: bool
+
+
+def piled_up_items(values: np.ndarray, names: tuple[str, ...], extremes: AnswerExtremes | None = None,
+                   skip: tuple[str, ...] = ()) -> tuple[PiledUp, ...]:
+    """The items (columns of ``values``, gaps NaN; not those of ``skip``: the few-category items, named by their own
+    rule) answered in whole numbers over more than :data:`FEW_CATEGORIES` values with more than
+    :data:`PILED_UP_SHARE` of their answers in the lowest or highest of them; a nearly constant item
+    (:func:`nearly_constant_items`) is not among them, a caution names it.  Analysed as continuous by maximum
+    likelihood such items give loadings that tend to be too small and a test that rejects too often (Muthén &
+    Kaplan 1985; Rhemtulla, Brosseau-Liard & Savalei 2012, their asymmetric thresholds)."""
+    if not values.size:
+        return ()
+    known = extremes.for_values(values) if extremes is not None else None
+    answered = ~np.isnan(values)
+    low, high = known if known is not None else answer_extremes(values, answered)
+    wide = (high - low > FEW_CATEGORIES - 1) & np.isfinite(low) & np.isfinite(high)
+    wide &= np.array([name not in skip for name in names], dtype=bool)
+    if not wide.any():
+        return ()
+    counts = answered.sum(axis=0)
+    with np.errstate(invalid="ignore"):
+        at_low, at_high = (values == low).sum(axis=0), (values == high).sum(axis=0)
+        whole = np.all(~answered | (values == np.round(values)), axis=0)
+    share_low, share_high = at_low / np.maximum(counts, 1), at_high / np.maximum(counts, 1)
+    piled = wide & whole & ((share_low > PILED_UP_SHARE) | (share_high > PILED_UP_SHARE))
+    if not piled.any():
+        return ()
+    candidates = tuple(name for name, flag in zip(names, piled) if flag)
+    constant = {c.name for c in nearly_constant_items(values[:, piled], candidates)}
+    return tuple(PiledUp(name, float(high[k] if share_high[k] > PILED_UP_SHARE else low[k]),
+                         float(max(share_high[k], share_low[k])), bool(share_high[k] > PILED_UP_SHARE))
+                 for k, name in enumerate(names) if piled[k] and name not in constant)
+
+
+def few_category_note(few: tuple[str, ...], names: tuple[str, ...], piled: tuple[PiledUp, ...] = ()) -> Note | None:
+    """The note of a fit that treats ``few`` (:func:`few_category_items` of the items ``names``) and ``piled``
+    (:func:`piled_up_items`) as continuous, with the ordinal fit of them all as the remedy: one note of the items
+    whose answers are ordered categories a continuous fit describes poorly (None when there are none)."""
+    if not few and not piled:
         return None
-    listed = cut_list(few, 8)
-    which = "all" if len(few) == len(names) else ",".join(written_name(x) for x in few)
-    if which != "all" and which != ",".join(few):  # names written in double quotes: the list in single quotes
+    chosen = tuple(dict.fromkeys(few + tuple(p.name for p in piled)))
+    which = "all" if len(chosen) == len(names) else ",".join(written_name(x) for x in chosen)
+    if which != "all" and which != ",".join(chosen):  # names written in double quotes: the list in single quotes
         which = f"'{which}'"
-    one = len(few) == 1
-    return Note((f"{len(few)} of the {len(names)} items ({listed}) {'has' if one else 'have'} at most {FEW_CATEGORIES} "
-                 f"answer categories and {'is' if one else 'are'} analysed here as continuous by maximum likelihood; "
-                 f"with so few categories loadings tend to come out too small and the fit to be misjudged, and analysing the answers as ordered categories is "
-                 f"usually preferred (Rhemtulla, Brosseau-Liard & Savalei 2012)",
+    parts: list[str] = []
+    if few:
+        one = len(few) == 1
+        parts.append(f"{len(few)} of the {len(names)} items ({cut_list(few, 8)}) {'has' if one else 'have'} at most "
+                     f"{FEW_CATEGORIES} answer categories and {'is' if one else 'are'} analysed here as continuous by "
+                     f"maximum likelihood; with so few categories loadings tend to come out too small and the fit to "
+                     f"be misjudged, and analysing the answers as ordered categories is usually preferred (Rhemtulla, "
+                     f"Brosseau-Liard & Savalei 2012)")
+    if piled:
+        one = len(piled) == 1
+        shown = cut_list(piled, 8, lambda p: f"{p.name} {round(100 * p.share)}% at {user_number(p.answer)}")
+        parts.append(f"{'Of the other items, ' if few else ''}{len(piled)}{'' if few else f' of the {len(names)} items'} "
+                     f"{'has' if one else 'have'} more than half of {'its' if one else 'their'} answers at {'its' if one else 'their'} "
+                     f"highest or lowest answer ({shown}), a ceiling or a floor, and {'is' if one else 'are'} analysed here as "
+                     f"continuous by maximum likelihood; with answers piled at one end loadings tend to come out too "
+                     f"small and the test to reject too often, and analysing the answers as ordered categories is "
+                     f"usually preferred (Muthén & Kaplan 1985; Rhemtulla, Brosseau-Liard & Savalei 2012; more than "
+                     f"half: this project's rule of thumb)")
+    return Note((". ".join(parts),
                  Command(": " + option_in_both(f"--ordinal {which}",
-                                               "ordinal=" + repr("all" if which == "all" else list(few)))),
+                                               "ordinal=" + repr("all" if which == "all" else list(chosen)))),
                  Command(ANSWERS_PER_CATEGORY)))
 
 

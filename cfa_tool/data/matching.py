@@ -168,6 +168,20 @@ def declared_scales(spec: Spec, frame) -> dict[str, tuple[float, float, object, 
     return out
 
 
+def declared_answer_scales(spec: Spec, frame) -> dict[str, tuple[float, float]]:
+    """The lowest and highest answer the model declares for each item of ``frame`` it declares one for: a
+    'reversed ... on MIN to MAX' statement's scale (its items and their partners, :func:`declared_scales`), else
+    the codes of the 'answers' statement that covers it (language.spec.AnswerCoding.codes: 'answers "Never" = 0,
+    ..., "Always" = 6').  What an answer is judged by before the answers a fit's rows happened to give (new-user
+    trial s25: an answer 0 of an item declared on 0 to 6 was called outside the fitted rows' 1 to 6)."""
+    out = {name: (low, high) for name, (low, high, _, _) in declared_scales(spec, frame).items()}
+    for name, coding in spec.answer_codings().items():
+        codes = coding.codes()
+        if name not in out and name in frame.columns and codes:
+            out[name] = (codes[0], codes[-1])
+    return out
+
+
 def check_codes_off_scales(spec: Spec, missing_codes: tuple[float, ...]) -> None:
     """A code given with --missing-codes must not be an answer of a scale a 'reversed ... on MIN to MAX' statement
     declares (a whole number from MIN to MAX): '--missing-codes 5' with 'reversed short_wait on 1 to 5' would read

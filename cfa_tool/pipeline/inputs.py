@@ -32,7 +32,7 @@ from cfa_tool.data.matching import (answer_range_notes, refuse_name_twins, check
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.kept_counts import analysed_rows, kept_non_answers, kept_reading_notes
 from cfa_tool.data.non_answers import also_no_answer, beyond_scale, non_answer_caution, run_words
-from cfa_tool.data.descriptives import AnswerExtremes, few_category_items, few_category_note
+from cfa_tool.data.descriptives import AnswerExtremes, few_category_items, few_category_note, piled_up_items
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.notes_rows import drop_notes_lines
@@ -874,7 +874,9 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
 
     names = names if names is not None else (spec.observed_names if spec is not None else ())
     found: tuple = row_filter_problems(loaded, spec, names, where=where) + copied_row_problems(loaded, group, design, names, ids or {})
-    found += repeated_id_problems(loaded, ids or {}, id_column, group, names)  # ids of several rows: no merge by id one to one
+    # ids of several rows: no merge by id one to one, and the same people's rows taken as independent cases
+    repeated = repeated_id_problems(loaded, ids or {}, id_column, group, names, design, fitted=True)
+    found += repeated or named_id_problems(loaded, id_column, group, design, names)
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {}, id_column=id_column)
@@ -1032,7 +1034,8 @@ REPEATED_IDS_SHOWN = 5  # ids of several rows that the caution names before 'and
 
 
 def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, group: str | None = None,
-                         items: tuple[str, ...] = ()) -> tuple:
+                         items: tuple[str, ...] = (), design: DesignColumns | None = None, fitted: bool = False,
+                         by_name: bool = False) -> tuple:
     """A caution naming the ids that several rows hold (``ids``: data-row number -> id; ``id_column``: the column
     they are read from, data.kept_rows.ROW_NAMES_COLUMN for the file's row names: :func:`id_filter_column`), each with
     its rows, the first :data:`REPEATED_IDS_SHOWN`; () when every id names one row.  One rule for every command that
@@ -1046,8 +1049,18 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
     and compared as groups), with the model of both occasions side by side as the way to test invariance over time.
     Where a column other than the id and the ``items`` tells each id's later rows from every other row (a survey
     platform's submission time), the advice writes the row filter that keeps each id's first row, for a person who
-    submitted twice (new-user trial s24: only 'correct the ids in a copy' was advised)."""
+    submitted twice (new-user trial s24: only 'correct the ids in a copy' was advised).  ``fitted``: the rows are
+    analysed (every command but the scoring of other data with an earlier fit), so that the caution says what the
+    analysis does with one person's rows in one group too (taken as independent cases, unless each id's rows lie in
+    one cluster of the ``design``), with the ways to allow for them (pipeline.same_people); the groups' sentence,
+    likewise, says that the design's sandwich allows for ids whose rows lie in one cluster the groups share
+    (new-user trial s25: two waves of one staff under team clusters were said to be taken for independent samples).
+    ``by_name``: ``id_column`` was not given but named as an id (data.column_roles.id_named_column), which the
+    caution says, leaving out the merge by id that no id given implies; nothing then when the design allows for
+    the rows and no groups hold them."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.pipeline.same_people import (allow_for_them, groups_taken_as_independent, ids_outside_one_cluster,
+                                               occasion_filter, taken_as_independent)
     from cfa_tool.data.kept_rows import rows_listed
     from cfa_tool.data.row_ids import ids_of_several_rows
 
@@ -1060,7 +1073,8 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
         return ()
     naming, lines = row_naming(frame), text_lines(frame)
     by_column = id_column is not None and (id_column != ROW_NAMES_COLUMN or loaded.row_names is None)
-    holder = f"The id column '{printable(id_column)}'" if by_column else f"The row names of {loaded.source}"
+    holder = (f"The column '{printable(id_column)}', an id by its name," if by_name else
+              f"The id column '{printable(id_column)}'" if by_column else f"The row names of {loaded.source}")
     few = names_shown(len(found), REPEATED_IDS_SHOWN)
     shown = joined([Note((RowId(f"'{clipped(value, 40)}' in "),)) + rows_listed(rows, 4, naming=naming, lines=lines)
                     for value, rows in found[:few]], "; ")
@@ -1068,29 +1082,61 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
     rows = sum(len(r) for _, r in found)
     what, gives = ("ids", "gives") if by_column else ("names", "give")
     across = _ids_across_groups(found, frame, group)
+    cluster = design.cluster if design is not None else None
+    outside = ids_outside_one_cluster(found, frame, cluster) if fitted else None
+    if by_name and not across and outside == 0:  # the design allows for them, and no merge by id was asked for
+        return ()
+    several = len(found) > 1
     if across:
         spread = (f" {'It' if len(found) == 1 else f'{count_text(across)} of these {what}'} name{'s' if across == 1 else ''} "
-                  f"rows in more than one group of '{printable(group)}': the same people in several groups? The "
-                  f"multi-group fit and its tests take the groups for independent samples, which the same people "
-                  f"answering twice are not (the standard errors and difference tests are then wrong).")
+                  f"rows in more than one group of '{printable(group)}': the same people in several groups?"
+                  + groups_taken_as_independent(across, several, outside, cluster))
         advice = Note(("for the same people at several times, put each time's answers side by side in one row per "
                        "person and fit one model of both times (each item at each time its own indicator, its "
                        "residuals correlated across the times), holding its loadings and intercepts equal across the "
-                       "times to test invariance over time; if the groups hold different people, correct the ids in a "
-                       "copy of the data file.",))
+                       "times to test invariance over time" + (", which compares each person with themselves"
+                                                                if outside == 0 else "")
+                       + "; if the groups hold different people, correct the ids in a copy of the data file.",))
+    else:
+        spread = taken_as_independent(outside, cluster, several) if fitted else ""
+        skip = {id_column, group, *(name for _, name in (design.names if design else ()))} | set(items)
+        allow = (allow_for_them(id_column, occasion_filter(found, frame, skip), outside)
+                 if fitted and outside != 0 else None)
+        advice = (allow + "." if by_name else
+                  Note(("correct the ids in a copy of the data file (a typing error?), or name the rows by a "
+                        "column whose values differ in every row", Command(f" ({Option.ID_COLUMN.given('COLUMN')})"),
+                        "; if the rows are one person's at several times, merge by the id and the time together")
+                       + (_first_rows_only(found, frame, id_column, items) or ("",)))
+                  + (("; and in the analysis, " + allow) if allow is not None else "") + ".")
+    merge = ("" if by_name else
+             f" These {what} do not stand for one row each, so a file merged by them (a scores file, say) cannot be "
+             f"matched to the rows one to one: a merge that expects one row per {what[:-1]} refuses, and one that "
+             f"allows several gives a row another row's values.")
     return (Problem(ProblemKind.REPEATED_IDS, (), float(len(found)),
                     Note((f"{holder} {gives} one {what[:-1]} to {count_text(rows)} rows: " if len(found) == 1 else
                           f"{holder} {gives} {count_text(len(found))} {what} each to more than one row "
                           f"({count_text(rows)} rows in all): ",))
-                    + shown + f"{more}. These {what} do not stand for one row each, so a file "
-                    f"merged by them (a scores file, say) cannot be matched to the rows one to one: a merge that "
-                    f"expects one row per {what[:-1]} refuses, and one that allows several gives a row another "
-                    f"row's values." + (spread if across else ""),
-                    advice if across else
-                    Note(("correct the ids in a copy of the data file (a typing error?), or name the rows by a "
-                          "column whose values differ in every row", Command(f" ({Option.ID_COLUMN.given('COLUMN')})"),
-                          "; if the rows are one person's at several times, merge by the id and the time together")
-                         + (_first_rows_only(found, frame, id_column, items) or ("",)) + (".",))),)
+                    + shown + f"{more}." + merge + spread,
+                    advice),)
+
+
+def named_id_problems(loaded: LoadedData, id_column: str | None, group: str | None, design: DesignColumns | None,
+                      items: tuple[str, ...]) -> tuple:
+    """The caution on repeated ids (:func:`repeated_id_problems`) by the column the tool takes for the rows' id when
+    no id column was given (``id_column`` None or the file's row names): by the one rule of names explore leaves out
+    as ids (data.column_roles.id_named_column), over the rows analysed (new-user trial s25: 4,303 rows of 2,400
+    employees in long form were fitted as independent without a word, while explore knew 'employee_id' for an id)."""
+    from cfa_tool.data.column_roles import id_named_column
+    from cfa_tool.data.row_ids import id_text
+
+    frame = loaded.frame
+    if id_column is not None and id_column in frame.columns:  # an id column given: its own caution
+        return ()
+    named = id_named_column(frame, {group, *items})
+    if named is None:
+        return ()
+    ids = ids_by_row_number(frame[named].map(id_text), frame)
+    return repeated_id_problems(loaded, ids, named, group, items, design, fitted=True, by_name=True)
 
 
 #: the most values a row filter written for the user lists (beyond it the advice names no filter)
@@ -1948,10 +1994,14 @@ def _dominant(moments, result: FitResult):
 def with_design(result: FitResult, design, moments=()) -> FitResult:
     """The result stating the design it was fitted under (status line, JSON, methods paragraph, cautions);
     ``moments``: each group's moments the fit was made from, for the cautions that read the rows' statistics
-    (one cluster dominating the design effect) and an ordinal fit's thresholds."""
+    (one cluster dominating the design effect) and an ordinal fit's thresholds.  The thresholds of one group are
+    carried by the design-based covariance whether a first step estimates them (fit) or the model does (compare's
+    fits, whose count of free parameters leaves them out as fit's does: workflows.ordinal_compare), and counted so
+    in every command (new-user trial s25: the ordinal compare dropped the few-clusters caution that fit gave); in
+    several groups they are among the free parameters."""
     from cfa_tool.assessment.admissibility import free_parameters
 
-    thresholds = (sum(len(t) for t in moments[0].thresholds) if result.method.ordinal and not result.method.thresholds
+    thresholds = (sum(len(t) for t in moments[0].thresholds) if result.method.ordinal
                   and len(moments) == 1 and hasattr(moments[0], "thresholds") else 0)
     problems = result.problems + design_problems(design, free_parameters(result), thresholds,
                                                  _dominant(moments, result) if design.columns.cluster else None,
@@ -2293,13 +2343,15 @@ def continuous_only(spec: Spec, command: str) -> Spec:
 def few_categories(frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarray | None = None,
                    extremes: AnswerExtremes | None = None) -> tuple[tuple[str, ...], list[str]]:
     """For a command that treats ``names`` as continuous: the items of few answer categories
-    (data.descriptives.few_category_items), which the methods paragraph names, and the note on them
+    (data.descriptives.few_category_items), which the methods paragraph names, and the note on them and on the items
+    whose answers pile up at one end (data.descriptives.piled_up_items: new-user trial s25, about 60% at the top of
+    four items passed without a word), one note with the ordinal fit as the remedy
     (data.descriptives.few_category_note), empty when there are none (``values``: the items taken out already)."""
     values = item_values(frame, names) if values is None else values
     if values is None:  # not plain numbers: the reading of the items names what is wrong
         return (), []
     few = few_category_items(values, names, extremes)
-    note = few_category_note(few, names)
+    note = few_category_note(few, names, piled_up_items(values, names, extremes, skip=few))
     return few, [note] if note else []
 
 

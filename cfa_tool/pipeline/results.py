@@ -777,7 +777,10 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
                                                                 spec.exploratory_factors)) + tuple(
             keying_problems(groups, weak, estimates))
         if fit is not None:
-            problems += uninformative_baseline_problems(fit, robust, n_obs, max(len(groups), 1))
+            from cfa_tool.assessment.admissibility import within_factor_correlation
+
+            within = within_factor_correlation(spec, tuple(observed), [g.sample_covariance for g in groups])
+            problems += uninformative_baseline_problems(fit, robust, n_obs, max(len(groups), 1), within)
             problems += poor_fit_problems(IndicesToRead.of(fit, robust))
     if (converged and parameter_covariance is not None and model is not None and not method.ordinal
             and any(g.reliability for g in groups)):  # (fits for loops have no reliability rows: nothing to add)

@@ -1042,7 +1042,8 @@ def _uninformative_baseline_sentence(result) -> str:
     if found is None:
         return ""
     robust = "robust " if result.robust is not None else ""
-    opening = (f"The items correlated weakly: the baseline (independence) model had an RMSEA of "
+    # the index's figure, not a claim about the items, which may correlate well within their factors (s25)
+    opening = (f"The baseline (independence) model had an RMSEA of "
                f"{unit(found.value, 3, BOUND)}, below the rule of thumb of {unit(BOUND)} (Kenny, Kaniskan & McCoach, "
                f"2015)")
     fits = baseline_fits_words(result.fit, result.robust, paper=True)

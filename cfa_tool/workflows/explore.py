@@ -19,7 +19,8 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.halves import drawn_halves, few_clusters_words, half_phrase
-from cfa_tool.data.kept_rows import FINISHED_COLUMNS, ROW_NAMING, row_naming
+from cfa_tool.data.column_roles import column_role
+from cfa_tool.data.kept_rows import ROW_NAMING, row_naming
 from cfa_tool.data.moments import stray_word_message
 from cfa_tool.data.non_answers import run_words
 from cfa_tool.data.renamed_columns import ColumnRenames
@@ -373,35 +374,6 @@ def _as_column(name: str, columns: list[str]) -> str:
 def _numeric_columns(frame: pd.DataFrame) -> tuple[str, ...]:
     return tuple(str(c) for c in frame.columns if pd.api.types.is_numeric_dtype(frame[c]) and not
                  pd.api.types.is_bool_dtype(frame[c]))
-
-
-#: words that name a column's part in the data other than answers (the sampling design, ids, groups, who answered): a column
-#: whose name is one of them, or has one as a word of its own ('final_weight', 'respondent_id'; 'w1' has none), is
-#: left out of explore's default items
-COLUMN_ROLE_WORDS = {
-    "weights": ("weight", "weights", "wt", "wgt", "w", "fw", "pw", "pweight", "fweight", "freq", "frequency"),
-    "clusters": ("cluster", "clusters", "psu"),
-    "strata": ("stratum", "strata"),
-    "ids": ("id", "ids", "identifier"),
-    "groups": ("group", "grp"),
-    # who answered (new-user trial s11: a clinic's age column was explored as an item)
-    "the respondents' particulars": ("age", "sex", "gender", "dob", "birthyear"),
-    # the records a survey platform adds to an export: how far and how long a respondent answered, where from
-    "survey records": ("progress", *FINISHED_COLUMNS, "duration", "latitude", "longitude", "locationlatitude",
-                       "locationlongitude"),
-}
-_ROLE_OF_WORD = {word: role for role, words in COLUMN_ROLE_WORDS.items() for word in words}
-
-
-def column_role(name: str) -> str | None:
-    """The part a column plays by its name (a key of COLUMN_ROLE_WORDS), or None for a column that may hold
-    answers.  The name is split into words at spaces, underscores, dots and hyphens."""
-    import re
-
-    for word in re.split(r"[\s_.\-]+", name.casefold()):
-        if word in _ROLE_OF_WORD:
-            return _ROLE_OF_WORD[word]
-    return None
 
 
 #: a column whose values are not answers on the items' scale (unlike_the_items: a grouping or a record, a count of

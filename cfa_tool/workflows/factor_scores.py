@@ -1233,8 +1233,10 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                                           "write each row's group as the fit's data wrote it, or fit the model to "
                                           "these groups."))
     # answers coded otherwise than in the fit's data, first: every score of the factor moves with them
+    from cfa_tool.data.matching import declared_answer_scales
+
     scored_problems[:0] = [Problem(kind, (), None, text, advice) for kind, text, advice in
-                           _coded_otherwise(result.data, base, rows, source, ordinal)]
+                           _coded_otherwise(result.data, base, rows, source, ordinal, declared_answer_scales(spec, frame))]
     if scored_problems:
         result = _after_data_cautions(result, own, scored_problems)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names", False) \
@@ -1747,15 +1749,18 @@ def _numeric(frame: pd.DataFrame, items: tuple[str, ...], source: str) -> np.nda
 RECODE_ADVICE = "check that both files code the answers alike, and recode one as the other before scoring."
 
 
-def _coded_otherwise(data, model, rows: np.ndarray, source: str, ordinal: bool) -> list[tuple]:
+def _coded_otherwise(data, model, rows: np.ndarray, source: str, ordinal: bool,
+                     declared: dict | None = None) -> list[tuple]:
     """The cautions (ProblemKind, words, advice) on answers of the scored file coded otherwise than in the rows the
     earlier fit analysed, the one rule of both ways a coding differs: a shifted scale (answers outside the fitted
     ranges, :func:`_outside_fitted_ranges`; continuous items, whose scores move with the codes) and an item coded
-    the other way round (:func:`_items_against_loadings`); ``model``: the fit's ScoringModel (of its first group)."""
+    the other way round (:func:`_items_against_loadings`); ``model``: the fit's ScoringModel (of its first group);
+    ``declared``: the scale the model declares for an item (data.matching.declared_answer_scales), whose answers are
+    not outside."""
     from cfa_tool.assessment.admissibility import ProblemKind
 
     found = []
-    outside = None if ordinal else _outside_fitted_ranges(data, model.items, rows, source)
+    outside = None if ordinal else _outside_fitted_ranges(data, model.items, rows, source, declared or {})
     if outside:
         found.append((ProblemKind.ANSWERS_BEYOND_FITTED, outside, RECODE_ADVICE))
     against = _items_against_loadings(model, rows, source)
@@ -1816,13 +1821,18 @@ def _items_against_loadings(model, rows: np.ndarray, source: str) -> str | None:
             f"pull every score of {'its factor' if one else 'their factors'} the wrong way.")
 
 
-def _outside_fitted_ranges(data, items, rows: np.ndarray, source: str) -> str | None:
+def _outside_fitted_ranges(data, items, rows: np.ndarray, source: str, declared: dict | None = None) -> str | None:
     """The caution for answers of the scored file outside the lowest and highest answers of the rows the earlier fit
     analysed (``data``: its DataSummary, whose ``ranges`` are empty for a fit of summary statistics): a file coded
-    0-4 scored with a fit of answers coded 1-5 gets scores shifted by the difference, with no other sign of it."""
+    0-4 scored with a fit of answers coded 1-5 gets scores shifted by the difference, with no other sign of it.  The
+    scale the model declares for an item (``declared``: item -> (lowest, highest)) is read first: its answers are
+    on the scale of both files, whichever of them the fitted rows gave (new-user trial s25)."""
     if not data.ranges:
         return None
     fitted = dict(zip(data.variables, data.ranges))
+    for item, (low, high) in (declared or {}).items():
+        if item in fitted:
+            fitted[item] = (min(low, fitted[item][0]), max(high, fitted[item][1]))
     found = []
     with np.errstate(invalid="ignore"):
         for k, item in enumerate(items):
