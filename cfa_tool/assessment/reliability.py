@@ -5,8 +5,10 @@ manual), so every coefficient here describes the keyed sum: item i enters with k
 is reversed and +1 otherwise.  Keys come from a 'reversed' statement in the model when there is one
 (it then names every reverse-keyed item of the model), and otherwise from the signs of the
 loadings: an item whose loading has the sign opposite to the majority of its factor's items (ties
-broken by the sum of the standardized loadings) is reversed.  For a higher-order factor the signs
-are those of the items' total effects through the factors below.
+broken by the factor's first item in the model's order, whose half keeps its answers as given) is
+reversed; a weak item (standardized loading below .20 in size, common practice) neither votes nor is
+reversed, since sampling error alone turns the sign of a loading that small.  For a higher-order
+factor the signs are those of the items' total effects through the factors below.
 
 For a factor f and the items it reaches (directly, or through the factors below it), with G = L A
 the total effects of factors on items, Phi the factor covariance matrix, Sigma the implied item
@@ -56,7 +58,7 @@ from functools import lru_cache
 
 import numpy as np
 
-from cfa_tool.assessment.method_factors import bifactor_parts, uncorrelated_pairs
+from cfa_tool.assessment.method_factors import SMALL_LOADING, bifactor_parts, uncorrelated_pairs
 from cfa_tool.language.names import reference_text
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.note_parts import Command, Note, Text
@@ -189,34 +191,79 @@ class Htmt:
         return out
 
 
-def item_keys(G: np.ndarray, member: np.ndarray, observed: tuple[str, ...],
-              declared: Collection[str] | None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """The one rule that keys the items of every keyed sum (reliability here, sum scores in scoring/quality.py):
-    (K, direction, split).  K (p, m): item i's key for factor j, 0 where ``member`` (the items that measure j, directly
-    or through the factors below it) is False.
+def item_keys(G: np.ndarray, member: np.ndarray, observed: tuple[str, ...], declared: Collection[str] | None,
+              standardized: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The one rule that keys the items of every keyed sum (reliability here, sum scores in scoring/quality.py, both
+    through :func:`sum_keys` or :func:`reliability`): (K, direction, split).  K (p, m): item i's key for factor j, 0
+    where ``member`` (the items that measure j, directly or through the factors below it) is False.
 
     With a 'reversed' statement (``declared``: the items it names) the keys are the declaration's: -1 for a
     declared item, +1 otherwise, whatever the loadings' signs.  Without one they follow the signs of the total
-    loadings G: an item whose loading has the sign opposite to most of its factor's items (ties broken by the
-    sum of the loadings) is reversed.  ``direction`` (m): +1 where the factor points the keyed way (most keyed
-    items load positively), -1 where it points against its keys; ``split`` (m): True where half of a factor's
-    items point each way, so that no majority gives its direction."""
+    loadings G: an item whose loading has the sign opposite to most of its factor's items is reversed.
+    ``direction`` (m): +1 where the factor points the keyed way (most keyed items load positively), -1 where it
+    points against its keys; ``split`` (m): True where half of a factor's items point each way, so that no majority
+    gives its direction: the tie is then broken by the factor's first item in the model's order (of those that are
+    not weak), whose half keeps its answers as given, so that every group of a fit, and every sample, keys and lists
+    the halves alike (s25: a tie broken by the sum of the loadings reversed d1, d3 in one group and d2, d4 in
+    another).
+
+    ``standardized`` (p, m): the standardized total loadings, which mark the weak items (:func:`weak_loadings`): the
+    sign of a loading that small says nothing of how the item is keyed (sampling error alone turns it), so a weak item
+    takes no part in the majority or the tie-break, and without a 'reversed' statement it keeps its answers as given
+    (key +1) whatever its sign (words s24: a weak item's sign reversed it in the keyed sums).  None: no item weak."""
     below = G < 0
     if declared is None and not below.any():  # no loading below zero (the usual case): what the rule below gives
         # then, to the bit, without its arithmetic: every sign +1, so K is the members times 1.0, a factor's vote is its
-        # count of items (a factor reaching none: a vote and tie-break of 0), every factor points the keyed way and none
-        # is split
+        # count of items (a factor reaching none: a vote of 0), every factor points the keyed way and none is split
         m = member.shape[1]
         return member.astype(float), np.ones(m), np.zeros(m, dtype=bool)
+    weak = None if standardized is None else weak_loadings(standardized, member)
     signs = np.where(below, -1.0, 1.0)
-    if declared is None:  # every key +1: the products below without them (multiplying by 1.0 changes no bit)
-        vote, tie_break = (signs * member).sum(axis=0), (G * member).sum(axis=0)
-    else:
-        keys = np.array([-1.0 if x in declared else 1.0 for x in observed])[:, None]
-        vote, tie_break = (keys * signs * member).sum(axis=0), (keys * G * member).sum(axis=0)
+    if weak is not None and weak.any():
+        signs = np.where(weak, 1.0, signs)  # a weak item's sign: as answered
+    keys = (np.ones((len(observed), 1)) if declared is None else
+            np.array([-1.0 if x in declared else 1.0 for x in observed])[:, None])
+    voting = member if weak is None else member & ~weak
+    keyed = keys * signs * voting  # +1 or -1 where an item votes, 0 elsewhere
+    vote = keyed.sum(axis=0)
+    # the tie-break: the keyed sign of each factor's first voting item (0 for a factor with none)
+    first = np.argmax(voting, axis=0)
+    tie_break = np.where(voting.any(axis=0), keyed[first, np.arange(keyed.shape[1])], 0.0)
     direction = np.where(np.where(vote == 0, tie_break, vote) < 0, -1.0, 1.0)  # each factor's majority
-    K = (signs * direction if declared is None else keys) * member
-    return K, direction, (vote == 0) & member.any(axis=0)
+    if declared is None:
+        K = np.where(weak, 1.0, signs * direction) * member if weak is not None else signs * direction * member
+    else:
+        K = keys * member
+    return K, direction, (vote == 0) & voting.any(axis=0)
+
+
+def weak_loadings(standardized: np.ndarray, member: np.ndarray) -> np.ndarray:
+    """(p, m) the weak items of each factor: a standardized loading (or total effect) below
+    assessment.method_factors.SMALL_LOADING in size (common practice's line of a negligible loading) on a factor some
+    other item of which is not below it (a factor whose every loading is small is a weak factor, not weak items): the
+    rule of assessment.markers.weak_items, on the fitted matrices."""
+    size = np.abs(standardized)
+    weak = member & (size < SMALL_LOADING)
+    return weak & (member & (size >= SMALL_LOADING)).any(axis=0)
+
+
+def standardized_effects(G: np.ndarray, factor_variances: np.ndarray, item_variances: np.ndarray) -> np.ndarray:
+    """The standardized total loadings G_ij sd(eta_j) / sd(x_i), for :func:`item_keys`' weak items."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return G * np.sqrt(np.maximum(factor_variances, 0.0)) / np.sqrt(np.maximum(item_variances, 0.0))[:, None]
+
+
+def sum_keys(L: np.ndarray, G: np.ndarray, factor_covariance: np.ndarray, implied_covariance: np.ndarray,
+             observed: tuple[str, ...], declared: Collection[str] | None) -> np.ndarray:
+    """(p, m) the keys of every factor's keyed sum from fitted matrices (direct loadings L, total loadings G = L A,
+    the factors' covariance Phi and the items' implied covariance Sigma): +1 or -1 for the items that measure each
+    factor (directly or through the factors below it), 0 for the others, by :func:`item_keys` (``declared``: the items
+    of the model's 'reversed' statement, None without one).  The one reading of the keys of the fit's sums, which
+    the fit's reliability (:func:`reliability`), the delta method of its omega (assessment.reliability_intervals)
+    and the scores' sums (scoring/quality.py, scoring/item_sums.py) share."""
+    member = (np.abs(G) > 1e-12) | (L != 0)
+    return item_keys(G, member, observed, declared,
+                     standardized_effects(G, np.diagonal(factor_covariance), np.diagonal(implied_covariance)))[0]
 
 
 def keyed_omega(K: np.ndarray, C: np.ndarray, factor_variances: np.ndarray, sum_variances: np.ndarray) -> np.ndarray:
@@ -321,7 +368,11 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         higher = np.abs(mats.B).sum(axis=0) > 0
     else:  # G is L (so every item the loadings reach is one of direct's) and B is zero: no higher-order factor
         member, higher = direct, np.zeros(m, dtype=bool)
-    K, direction, split = item_keys(G, member, observed, declared)
+    # the standardized total loadings mark the weak items, whose signs key nothing (item_keys); needed only where some
+    # loading is below zero or keys are declared (the usual fit has neither: no arithmetic spent)
+    standardized = (standardized_effects(G, phi.diagonal(), sigma.diagonal())
+                    if declared is not None or (G < 0).any() else None)
+    K, direction, split = item_keys(G, member, observed, declared, standardized)
     layout = _layout(direct, member, higher, observed, latent, not_traits)
     first_order, compared = layout.first_order, layout.compared
     if declared is None:
@@ -658,8 +709,8 @@ def keying_problems(groups, weak=(), estimates=()) -> list:
     reliability rows) whose loadings contradict the keying a 'reversed' statement declares (new-user trial s17: a
     typing error in the statement gave omega .14 in a paste-ready paragraph, the contradiction only among the notes),
     or that points against its items; and for each factor whose marker hardly measures it (``weak``:
-    assessment.markers.WeakMarker), whose caution says too where that marker turns the factor against its items or
-    is reversed in the keyed sums, in place of advice to declare it reversed (hostile s23)."""
+    assessment.markers.WeakMarker), whose caution says too where that marker turns the factor against its items, in
+    place of advice to declare it reversed (hostile s23; the keyed sums never reverse it for its sign: item_keys)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.assessment.markers import weak_marker_problem
 
@@ -675,8 +726,7 @@ def keying_problems(groups, weak=(), estimates=()) -> list:
             r = rows.get(w.factor)
             turned = r is not None and r.points_against and not miskeyed(r)
             out.append(weak_marker_problem(w, several, tuple(x for x in r.items if x != w.item and x not in r.reversed)
-                                           if turned else (),
-                                           r is not None and r.keying is Keying.SIGNS and w.item in r.reversed))
+                                           if turned else ()))
             marked.add(w.factor)
         for r in g.reliability:
             if miskeyed(r):

@@ -1199,7 +1199,7 @@ def keying_sentence(rows) -> Text:
                 "Every item loads in its factor's direction, so none is reversed for scoring. ")
     why = (Note(("as the model declares", Command(" in its 'reversed' statement"))) if declared else
            "their loadings have the sign opposite to most items of their factor"
-           + ("; where half of a factor's items load each way, opposite to the half with the larger loadings"
+           + ("; where half of a factor's items load each way, opposite to the half that holds its first item"
               if any(r.evenly_split for r in rows) else ""))
     return "Computed for keyed sums; reversed for scoring (" + why + f"): {'; '.join(lists)}. "
 

@@ -490,9 +490,9 @@ def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSum
     quality (scoring.quality.SumScore), which leaves out a factor whose sum mixes continuous and ordinal items
     (scoring.quality.ordinal_sum_quality); ``categories``: ordinal items' answer values in the fitted rows, item by
     item, which give that scale when the fit keeps no answer ranges)."""
-    from cfa_tool.scoring.quality import sum_keys
+    from cfa_tool.scoring.quality import model_keys
 
-    keys = sum_keys(model, _declared(spec))
+    keys = model_keys(model, _declared(spec))
     direct = model.loadings != 0
     alone = model.measured & (model.reach == direct).all(axis=0)
     method_factors = spec.method_factors
@@ -1955,7 +1955,7 @@ def _linear_quality(models, spec, sums: list) -> list[ScoreQuality]:
 
 def _declared(spec):
     """The items of the model's 'reversed' statement, None without one: the keys of the sums (one rule with the
-    fit's reliability, scoring.quality.sum_keys)."""
+    fit's reliability, assessment.reliability.sum_keys)."""
     return frozenset(spec.reverse_keyed) if spec.reversed else None
 
 
