@@ -553,33 +553,31 @@ def keying_warnings(factors: list[FactorReliability] | tuple, prefix: str = "") 
     split = [r for r in factors if r.evenly_split and not r.points_against and r.keying is not Keying.DECLARED]
     if split:  # one caution for all such factors: the advice is the same for each
         out.append(_split_warning(split, prefix))
-    for r in factors:
-        if r.points_against or (r.evenly_split and r.keying is not Keying.DECLARED) or miskeyed(r):
-            continue  # pointing against, or keyed against the loadings: problems of the solution (keying_problems)
-        if r.evenly_split:
-            out.append(Note((f"{prefix}factor '{r.factor}': half of its items load against the keying the model "
-                             f"declares", Command(REVERSED_STATEMENT), ", so no majority tells which way it points; "
-                             "check the declared keying and how the answers were coded")))
     return out
 
 
 def miskeyed(r: FactorReliability) -> bool:
     """Whether the loadings of some of the factor's items contradict the keying a 'reversed' statement declares
     (``against_keying``: the items whose keyed loadings run against most of the factor's items, judged by their signs
-    relative to the others, the marker's too); half each way has no majority to judge by.  Whichever way the factor
-    points: the items are the same in every order of the factor's items (hostile s23: with the item coded the other
-    way listed first, as the marker, the factor pointed its way and the contradiction went unnamed, its omega .35
-    printed)."""
-    return bool(r.against_keying) and not r.evenly_split
+    relative to the others, the marker's too).  Whichever way the factor points: the items are the same in every
+    order of the factor's items (hostile s23: with the item coded the other way listed first, as the marker, the
+    factor pointed its way and the contradiction went unnamed, its omega .35 printed).  Half each way against a
+    declared keying is a contradiction too, the plainest: the keyed sum adds two halves that cancel, whichever of
+    them is keyed wrongly (hostile s24b case 07: two of four items declared reversed that load with the others gave
+    omega .00059 and alpha -.916 in the paragraph and the table, with a note only, where one such item withheld them
+    with a caution first).  A balanced scale without a 'reversed' statement (keys by the loadings' signs) is keyed
+    as its loadings run and contradicts nothing: its caution is of the factor's direction (:func:`keying_warnings`)."""
+    return bool(r.against_keying) and (not r.evenly_split or r.keying is Keying.DECLARED)
 
 
 #: why a factor's reliability coefficients are withheld where its loadings contradict the declared keying
 #: (:func:`miskeyed`): said by the report's table and written into the JSON beside the coefficients it withholds
 WITHHELD_BECAUSE = ("its loadings contradict the keying the model declares, so its keyed sum adds items that run "
-                    "against each other and its coefficients describe no scale")
-#: the coefficients of a factor's keyed sum that such a keying withholds (FactorReliability's fields)
+                    "against each other and describes no scale")
+#: the figures of a factor's keyed sum that such a keying withholds (FactorReliability's fields): its coefficients,
+#: and its mean and standard deviation (the item-total correlations, the evidence of the contradiction, stay)
 WITHHELD_COEFFICIENTS = ("omega", "omega_total", "omega_hierarchical", "composite_reliability", "alpha",
-                         "observed_sum_omega")
+                         "observed_sum_omega", "sum_score_mean", "sum_score_sd")
 
 
 def withheld_sums(problems) -> frozenset[tuple[str | None, str]]:
@@ -600,6 +598,8 @@ def _miskeyed_warning(r: FactorReliability, standardized=None) -> tuple[Note, No
     file's statement apart (note_parts.Command): a manuscript says it in words.  ``standardized``: each item's
     standardized loading on the factor, by item (None: not said), the evidence, said beside the items it judges
     (s24: the caution did not say what its judgement rested on)."""
+    if r.evenly_split:
+        return _split_against_declared(r, standardized)
     declared = [x for x in r.against_keying if x in r.reversed]  # declared reversed, loading with the others
     undeclared = [x for x in r.against_keying if x not in r.reversed]  # loading against the others, not declared
     said = "; ".join(part for part in (
@@ -640,6 +640,33 @@ def _miskeyed_warning(r: FactorReliability, standardized=None) -> tuple[Note, No
                   "place of another) and how the answers were coded, then fit again"
                   + ("; with the keying right, the automatic marker, an item not declared reversed, orients the "
                      "factor." if r.points_against else "."))))
+
+
+def _split_against_declared(r: FactorReliability, standardized=None) -> tuple[Note, Note]:
+    """(what is wrong, what to try) for a factor half of whose items, keyed as a 'reversed' statement declares, run
+    against the other half (``evenly_split`` with declared keys, :func:`miskeyed`): both halves named in the model's
+    order, each item with its standardized loading (``standardized``, by item; None: not said) and whether it is
+    declared reversed, since no majority tells which half is keyed wrongly (hostile s24b case 07)."""
+    from cfa_tool.assessment.method_factors import loading_size
+
+    def shown(x: str) -> str:
+        v = (standardized or {}).get(x, math.nan)
+        size = f" {'-' if v < 0 else ''}{loading_size(abs(v))}" if math.isfinite(v) else ""
+        return f"{x}{size}{' (declared reversed)' if x in r.reversed else ''}"
+
+    against = [x for x in r.items if x in r.against_keying]
+    weak = {x for x, v in (standardized or {}).items() if math.isfinite(v) and abs(v) < SMALL_LOADING}
+    other = [x for x in r.items if x not in r.against_keying and x not in weak]
+    halves = [other, against] if other and r.items.index(other[0]) < r.items.index(against[0]) else [against, other]
+    loadings = " (standardized loadings)" if standardized else ""
+    return (Note((f"Half of the items of factor '{r.factor}' run against the other half as the model declares their "
+                  f"keying", Command(REVERSED_STATEMENT), f": keyed as declared, {', '.join(map(shown, halves[0]))} "
+                  f"run one way and {', '.join(map(shown, halves[1]))} the other{loadings}, so no majority tells which "
+                  f"half is keyed wrongly; the factor's keyed sum adds two halves that cancel, so its reliability "
+                  f"(omega, alpha) and its sum scores describe no scale.")),
+            Note(("check which of these items are worded against the trait, the declared keying",
+                  Command(REVERSED_STATEMENT), " for a typing error (an item named in place of another, or one left "
+                  "out) and how the answers were coded, then fit again.")))
 
 
 def _split_warning(split: list[FactorReliability], prefix: str) -> Note:
