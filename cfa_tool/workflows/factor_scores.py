@@ -1033,7 +1033,8 @@ def _sum_scores(models, spec, ordinal: bool, labels, problems) -> list[tuple[Sum
     """Each group's keyed sums with their reliability and spread under the fitted model (scoring.quality
     .sum_quality, or ordinal_sum_quality for ordinal items), computed once: the quality tables and the item sums'
     summary read the same objects.  A sum whose reliability the fit withholds (``problems``, the fit's: its loadings
-    contradict the declared keying, assessment.reliability.withheld_sums) has no omega here either."""
+    contradict the declared keying, assessment.reliability.withheld_sums) has no omega here either, nor a correlation
+    with its factor or a spread (the fit withholds its SD: it describes no scale; the JSON gave them, s25)."""
     from cfa_tool.assessment.reliability import withheld_sums
 
     declared = _declared(spec)
@@ -1042,9 +1043,10 @@ def _sum_scores(models, spec, ordinal: bool, labels, problems) -> list[tuple[Sum
     if not withheld:
         return sums
     one = len(models) == 1  # one group: its problems name no group
-    return [tuple(replace(s, omega=float("nan")) if (None if one else label, s.factor) in withheld else s
-                  for s in group_sums) for group_sums, label in zip(sums, labels if labels is not None
-                                                                    else [None] * len(sums))]
+    nan = float("nan")
+    return [tuple(replace(s, omega=nan, validity=nan, variance=nan)
+                  if (None if one else label, s.factor) in withheld else s for s in group_sums)
+            for group_sums, label in zip(sums, labels if labels is not None else [None] * len(sums))]
 
 
 def _partly_answered(model, answered: np.ndarray, chosen, errors: dict) -> list[str]:

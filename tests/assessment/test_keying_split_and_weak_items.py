@@ -102,6 +102,9 @@ def test_the_scores_withhold_it_too(demo):
     result = cfa_tool.scores(SPLIT, demo, methods="item-sum")
     sums = {s.factor: s for s in result.quality[0].sums}
     assert math.isnan(sums["punctuality"].omega) and sums["comfort"].omega > 0.5
+    # nor its correlation with the factor or its SD, which the fit withholds too (the JSON gave them)
+    assert math.isnan(sums["punctuality"].validity) and math.isnan(sums["punctuality"].sd)
+    assert sums["comfort"].validity > 0.8 and sums["comfort"].sd > 0
 
 
 def _weak_item_answers() -> pd.DataFrame:
