@@ -122,11 +122,10 @@ def weak_item_notes(weak: tuple[WeakItem, ...], judged, several_groups: bool) ->
     return out
 
 
-def weak_marker_problem(w: WeakMarker, several_groups: bool, turned_from: tuple[str, ...] = (),
-                        reversed_in_sums: bool = False) -> Problem:
+def weak_marker_problem(w: WeakMarker, several_groups: bool, turned_from: tuple[str, ...] = ()) -> Problem:
     """The caution of one weak marker, first in every view: what it does to the other loadings' values and tests;
     ``turned_from``: the items the factor points against when its marker turns it against most of them (the keying
-    of assessment.reliability), ``reversed_in_sums``: the keyed sums reverse the marker for the sign of its loading.
+    of assessment.reliability, whose keyed sums never reverse a weak item for its sign: item_keys).
     What to try: another marker, or the factor's variance as its scale (model statements apart, note_parts.Command)."""
     f, x = w.factor, w.item
     sizes = [abs(s) for s, _ in w.others if math.isfinite(s)]
@@ -144,8 +143,6 @@ def weak_marker_problem(w: WeakMarker, several_groups: bool, turned_from: tuple[
     if turned_from:
         said += (f" The factor's direction follows {x} too: a higher '{f}' means lower answers on "
                  f"{', '.join(turned_from)}, so its correlations, mean differences and scores read the wrong way.")
-    if reversed_in_sums:
-        said += f" The keyed sums reverse {x} for no more than the sign of that near-zero loading."
     ref = reference_text("loading", (f, x))
     by_variance = Command(f" ('scale {written_name(f)} by variance')")
     if w.by_model:  # the model file's 'fix' sets it: the automatic scale is the model file's to restore

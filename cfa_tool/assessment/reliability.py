@@ -5,8 +5,10 @@ manual), so every coefficient here describes the keyed sum: item i enters with k
 is reversed and +1 otherwise.  Keys come from a 'reversed' statement in the model when there is one
 (it then names every reverse-keyed item of the model), and otherwise from the signs of the
 loadings: an item whose loading has the sign opposite to the majority of its factor's items (ties
-broken by the sum of the standardized loadings) is reversed.  For a higher-order factor the signs
-are those of the items' total effects through the factors below.
+broken by the factor's first item in the model's order, whose half keeps its answers as given) is
+reversed; a weak item (standardized loading below .20 in size, common practice) neither votes nor is
+reversed, since sampling error alone turns the sign of a loading that small.  For a higher-order
+factor the signs are those of the items' total effects through the factors below.
 
 For a factor f and the items it reaches (directly, or through the factors below it), with G = L A
 the total effects of factors on items, Phi the factor covariance matrix, Sigma the implied item
@@ -56,7 +58,7 @@ from functools import lru_cache
 
 import numpy as np
 
-from cfa_tool.assessment.method_factors import bifactor_parts, uncorrelated_pairs
+from cfa_tool.assessment.method_factors import SMALL_LOADING, bifactor_parts, uncorrelated_pairs
 from cfa_tool.language.names import reference_text
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.note_parts import Command, Note, Text
@@ -189,34 +191,79 @@ class Htmt:
         return out
 
 
-def item_keys(G: np.ndarray, member: np.ndarray, observed: tuple[str, ...],
-              declared: Collection[str] | None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """The one rule that keys the items of every keyed sum (reliability here, sum scores in scoring/quality.py):
-    (K, direction, split).  K (p, m): item i's key for factor j, 0 where ``member`` (the items that measure j, directly
-    or through the factors below it) is False.
+def item_keys(G: np.ndarray, member: np.ndarray, observed: tuple[str, ...], declared: Collection[str] | None,
+              standardized: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The one rule that keys the items of every keyed sum (reliability here, sum scores in scoring/quality.py, both
+    through :func:`sum_keys` or :func:`reliability`): (K, direction, split).  K (p, m): item i's key for factor j, 0
+    where ``member`` (the items that measure j, directly or through the factors below it) is False.
 
     With a 'reversed' statement (``declared``: the items it names) the keys are the declaration's: -1 for a
     declared item, +1 otherwise, whatever the loadings' signs.  Without one they follow the signs of the total
-    loadings G: an item whose loading has the sign opposite to most of its factor's items (ties broken by the
-    sum of the loadings) is reversed.  ``direction`` (m): +1 where the factor points the keyed way (most keyed
-    items load positively), -1 where it points against its keys; ``split`` (m): True where half of a factor's
-    items point each way, so that no majority gives its direction."""
+    loadings G: an item whose loading has the sign opposite to most of its factor's items is reversed.
+    ``direction`` (m): +1 where the factor points the keyed way (most keyed items load positively), -1 where it
+    points against its keys; ``split`` (m): True where half of a factor's items point each way, so that no majority
+    gives its direction: the tie is then broken by the factor's first item in the model's order (of those that are
+    not weak), whose half keeps its answers as given, so that every group of a fit, and every sample, keys and lists
+    the halves alike (s25: a tie broken by the sum of the loadings reversed d1, d3 in one group and d2, d4 in
+    another).
+
+    ``standardized`` (p, m): the standardized total loadings, which mark the weak items (:func:`weak_loadings`): the
+    sign of a loading that small says nothing of how the item is keyed (sampling error alone turns it), so a weak item
+    takes no part in the majority or the tie-break, and without a 'reversed' statement it keeps its answers as given
+    (key +1) whatever its sign (words s24: a weak item's sign reversed it in the keyed sums).  None: no item weak."""
     below = G < 0
     if declared is None and not below.any():  # no loading below zero (the usual case): what the rule below gives
         # then, to the bit, without its arithmetic: every sign +1, so K is the members times 1.0, a factor's vote is its
-        # count of items (a factor reaching none: a vote and tie-break of 0), every factor points the keyed way and none
-        # is split
+        # count of items (a factor reaching none: a vote of 0), every factor points the keyed way and none is split
         m = member.shape[1]
         return member.astype(float), np.ones(m), np.zeros(m, dtype=bool)
+    weak = None if standardized is None else weak_loadings(standardized, member)
     signs = np.where(below, -1.0, 1.0)
-    if declared is None:  # every key +1: the products below without them (multiplying by 1.0 changes no bit)
-        vote, tie_break = (signs * member).sum(axis=0), (G * member).sum(axis=0)
-    else:
-        keys = np.array([-1.0 if x in declared else 1.0 for x in observed])[:, None]
-        vote, tie_break = (keys * signs * member).sum(axis=0), (keys * G * member).sum(axis=0)
+    if weak is not None and weak.any():
+        signs = np.where(weak, 1.0, signs)  # a weak item's sign: as answered
+    keys = (np.ones((len(observed), 1)) if declared is None else
+            np.array([-1.0 if x in declared else 1.0 for x in observed])[:, None])
+    voting = member if weak is None else member & ~weak
+    keyed = keys * signs * voting  # +1 or -1 where an item votes, 0 elsewhere
+    vote = keyed.sum(axis=0)
+    # the tie-break: the keyed sign of each factor's first voting item (0 for a factor with none)
+    first = np.argmax(voting, axis=0)
+    tie_break = np.where(voting.any(axis=0), keyed[first, np.arange(keyed.shape[1])], 0.0)
     direction = np.where(np.where(vote == 0, tie_break, vote) < 0, -1.0, 1.0)  # each factor's majority
-    K = (signs * direction if declared is None else keys) * member
-    return K, direction, (vote == 0) & member.any(axis=0)
+    if declared is None:
+        K = np.where(weak, 1.0, signs * direction) * member if weak is not None else signs * direction * member
+    else:
+        K = keys * member
+    return K, direction, (vote == 0) & voting.any(axis=0)
+
+
+def weak_loadings(standardized: np.ndarray, member: np.ndarray) -> np.ndarray:
+    """(p, m) the weak items of each factor: a standardized loading (or total effect) below
+    assessment.method_factors.SMALL_LOADING in size (common practice's line of a negligible loading) on a factor some
+    other item of which is not below it (a factor whose every loading is small is a weak factor, not weak items): the
+    rule of assessment.markers.weak_items, on the fitted matrices."""
+    size = np.abs(standardized)
+    weak = member & (size < SMALL_LOADING)
+    return weak & (member & (size >= SMALL_LOADING)).any(axis=0)
+
+
+def standardized_effects(G: np.ndarray, factor_variances: np.ndarray, item_variances: np.ndarray) -> np.ndarray:
+    """The standardized total loadings G_ij sd(eta_j) / sd(x_i), for :func:`item_keys`' weak items."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return G * np.sqrt(np.maximum(factor_variances, 0.0)) / np.sqrt(np.maximum(item_variances, 0.0))[:, None]
+
+
+def sum_keys(L: np.ndarray, G: np.ndarray, factor_covariance: np.ndarray, implied_covariance: np.ndarray,
+             observed: tuple[str, ...], declared: Collection[str] | None) -> np.ndarray:
+    """(p, m) the keys of every factor's keyed sum from fitted matrices (direct loadings L, total loadings G = L A,
+    the factors' covariance Phi and the items' implied covariance Sigma): +1 or -1 for the items that measure each
+    factor (directly or through the factors below it), 0 for the others, by :func:`item_keys` (``declared``: the items
+    of the model's 'reversed' statement, None without one).  The one reading of the keys of the fit's sums, which
+    the fit's reliability (:func:`reliability`), the delta method of its omega (assessment.reliability_intervals)
+    and the scores' sums (scoring/quality.py, scoring/item_sums.py) share."""
+    member = (np.abs(G) > 1e-12) | (L != 0)
+    return item_keys(G, member, observed, declared,
+                     standardized_effects(G, np.diagonal(factor_covariance), np.diagonal(implied_covariance)))[0]
 
 
 def keyed_omega(K: np.ndarray, C: np.ndarray, factor_variances: np.ndarray, sum_variances: np.ndarray) -> np.ndarray:
@@ -321,7 +368,11 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         higher = np.abs(mats.B).sum(axis=0) > 0
     else:  # G is L (so every item the loadings reach is one of direct's) and B is zero: no higher-order factor
         member, higher = direct, np.zeros(m, dtype=bool)
-    K, direction, split = item_keys(G, member, observed, declared)
+    # the standardized total loadings mark the weak items, whose signs key nothing (item_keys); needed only where some
+    # loading is below zero or keys are declared (the usual fit has neither: no arithmetic spent)
+    standardized = (standardized_effects(G, phi.diagonal(), sigma.diagonal())
+                    if declared is not None or (G < 0).any() else None)
+    K, direction, split = item_keys(G, member, observed, declared, standardized)
     layout = _layout(direct, member, higher, observed, latent, not_traits)
     first_order, compared = layout.first_order, layout.compared
     if declared is None:
@@ -502,33 +553,31 @@ def keying_warnings(factors: list[FactorReliability] | tuple, prefix: str = "") 
     split = [r for r in factors if r.evenly_split and not r.points_against and r.keying is not Keying.DECLARED]
     if split:  # one caution for all such factors: the advice is the same for each
         out.append(_split_warning(split, prefix))
-    for r in factors:
-        if r.points_against or (r.evenly_split and r.keying is not Keying.DECLARED) or miskeyed(r):
-            continue  # pointing against, or keyed against the loadings: problems of the solution (keying_problems)
-        if r.evenly_split:
-            out.append(Note((f"{prefix}factor '{r.factor}': half of its items load against the keying the model "
-                             f"declares", Command(REVERSED_STATEMENT), ", so no majority tells which way it points; "
-                             "check the declared keying and how the answers were coded")))
     return out
 
 
 def miskeyed(r: FactorReliability) -> bool:
     """Whether the loadings of some of the factor's items contradict the keying a 'reversed' statement declares
     (``against_keying``: the items whose keyed loadings run against most of the factor's items, judged by their signs
-    relative to the others, the marker's too); half each way has no majority to judge by.  Whichever way the factor
-    points: the items are the same in every order of the factor's items (hostile s23: with the item coded the other
-    way listed first, as the marker, the factor pointed its way and the contradiction went unnamed, its omega .35
-    printed)."""
-    return bool(r.against_keying) and not r.evenly_split
+    relative to the others, the marker's too).  Whichever way the factor points: the items are the same in every
+    order of the factor's items (hostile s23: with the item coded the other way listed first, as the marker, the
+    factor pointed its way and the contradiction went unnamed, its omega .35 printed).  Half each way against a
+    declared keying is a contradiction too, the plainest: the keyed sum adds two halves that cancel, whichever of
+    them is keyed wrongly (hostile s24b case 07: two of four items declared reversed that load with the others gave
+    omega .00059 and alpha -.916 in the paragraph and the table, with a note only, where one such item withheld them
+    with a caution first).  A balanced scale without a 'reversed' statement (keys by the loadings' signs) is keyed
+    as its loadings run and contradicts nothing: its caution is of the factor's direction (:func:`keying_warnings`)."""
+    return bool(r.against_keying) and (not r.evenly_split or r.keying is Keying.DECLARED)
 
 
 #: why a factor's reliability coefficients are withheld where its loadings contradict the declared keying
 #: (:func:`miskeyed`): said by the report's table and written into the JSON beside the coefficients it withholds
 WITHHELD_BECAUSE = ("its loadings contradict the keying the model declares, so its keyed sum adds items that run "
-                    "against each other and its coefficients describe no scale")
-#: the coefficients of a factor's keyed sum that such a keying withholds (FactorReliability's fields)
+                    "against each other and describes no scale")
+#: the figures of a factor's keyed sum that such a keying withholds (FactorReliability's fields): its coefficients,
+#: and its mean and standard deviation (the item-total correlations, the evidence of the contradiction, stay)
 WITHHELD_COEFFICIENTS = ("omega", "omega_total", "omega_hierarchical", "composite_reliability", "alpha",
-                         "observed_sum_omega")
+                         "observed_sum_omega", "sum_score_mean", "sum_score_sd")
 
 
 def withheld_sums(problems) -> frozenset[tuple[str | None, str]]:
@@ -549,6 +598,8 @@ def _miskeyed_warning(r: FactorReliability, standardized=None) -> tuple[Note, No
     file's statement apart (note_parts.Command): a manuscript says it in words.  ``standardized``: each item's
     standardized loading on the factor, by item (None: not said), the evidence, said beside the items it judges
     (s24: the caution did not say what its judgement rested on)."""
+    if r.evenly_split:
+        return _split_against_declared(r, standardized)
     declared = [x for x in r.against_keying if x in r.reversed]  # declared reversed, loading with the others
     undeclared = [x for x in r.against_keying if x not in r.reversed]  # loading against the others, not declared
     said = "; ".join(part for part in (
@@ -589,6 +640,33 @@ def _miskeyed_warning(r: FactorReliability, standardized=None) -> tuple[Note, No
                   "place of another) and how the answers were coded, then fit again"
                   + ("; with the keying right, the automatic marker, an item not declared reversed, orients the "
                      "factor." if r.points_against else "."))))
+
+
+def _split_against_declared(r: FactorReliability, standardized=None) -> tuple[Note, Note]:
+    """(what is wrong, what to try) for a factor half of whose items, keyed as a 'reversed' statement declares, run
+    against the other half (``evenly_split`` with declared keys, :func:`miskeyed`): both halves named in the model's
+    order, each item with its standardized loading (``standardized``, by item; None: not said) and whether it is
+    declared reversed, since no majority tells which half is keyed wrongly (hostile s24b case 07)."""
+    from cfa_tool.assessment.method_factors import loading_size
+
+    def shown(x: str) -> str:
+        v = (standardized or {}).get(x, math.nan)
+        size = f" {'-' if v < 0 else ''}{loading_size(abs(v))}" if math.isfinite(v) else ""
+        return f"{x}{size}{' (declared reversed)' if x in r.reversed else ''}"
+
+    against = [x for x in r.items if x in r.against_keying]
+    weak = {x for x, v in (standardized or {}).items() if math.isfinite(v) and abs(v) < SMALL_LOADING}
+    other = [x for x in r.items if x not in r.against_keying and x not in weak]
+    halves = [other, against] if other and r.items.index(other[0]) < r.items.index(against[0]) else [against, other]
+    loadings = " (standardized loadings)" if standardized else ""
+    return (Note((f"Half of the items of factor '{r.factor}' run against the other half as the model declares their "
+                  f"keying", Command(REVERSED_STATEMENT), f": keyed as declared, {', '.join(map(shown, halves[0]))} "
+                  f"run one way and {', '.join(map(shown, halves[1]))} the other{loadings}, so no majority tells which "
+                  f"half is keyed wrongly; the factor's keyed sum adds two halves that cancel, so its reliability "
+                  f"(omega, alpha) and its sum scores describe no scale.")),
+            Note(("check which of these items are worded against the trait, the declared keying",
+                  Command(REVERSED_STATEMENT), " for a typing error (an item named in place of another, or one left "
+                  "out) and how the answers were coded, then fit again.")))
 
 
 def _split_warning(split: list[FactorReliability], prefix: str) -> Note:
@@ -658,8 +736,8 @@ def keying_problems(groups, weak=(), estimates=()) -> list:
     reliability rows) whose loadings contradict the keying a 'reversed' statement declares (new-user trial s17: a
     typing error in the statement gave omega .14 in a paste-ready paragraph, the contradiction only among the notes),
     or that points against its items; and for each factor whose marker hardly measures it (``weak``:
-    assessment.markers.WeakMarker), whose caution says too where that marker turns the factor against its items or
-    is reversed in the keyed sums, in place of advice to declare it reversed (hostile s23)."""
+    assessment.markers.WeakMarker), whose caution says too where that marker turns the factor against its items, in
+    place of advice to declare it reversed (hostile s23; the keyed sums never reverse it for its sign: item_keys)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.assessment.markers import weak_marker_problem
 
@@ -675,8 +753,7 @@ def keying_problems(groups, weak=(), estimates=()) -> list:
             r = rows.get(w.factor)
             turned = r is not None and r.points_against and not miskeyed(r)
             out.append(weak_marker_problem(w, several, tuple(x for x in r.items if x != w.item and x not in r.reversed)
-                                           if turned else (),
-                                           r is not None and r.keying is Keying.SIGNS and w.item in r.reversed))
+                                           if turned else ()))
             marked.add(w.factor)
         for r in g.reliability:
             if miskeyed(r):

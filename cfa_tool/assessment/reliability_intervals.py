@@ -28,7 +28,7 @@ from enum import Enum
 
 import numpy as np
 
-from cfa_tool.assessment.reliability import BifactorPart, FactorReliability, miskeyed
+from cfa_tool.assessment.reliability import BifactorPart, FactorReliability, miskeyed, sum_keys
 from cfa_tool.numerics.plain import clean
 
 
@@ -247,20 +247,15 @@ def entry_gradients(mats, keys: np.ndarray, factors: np.ndarray, codes: np.ndarr
     return D
 
 
-def sum_keys(row: FactorReliability, observed: tuple[str, ...]) -> np.ndarray:
-    """The keys (p) of the fit's keyed sum of ``row``'s factor: -1 for its reversed items, +1 for its other items,
-    0 for items outside it."""
-    reversed_ = set(row.reversed)
-    members = set(row.items)
-    return np.array([(-1.0 if x in reversed_ else 1.0) if x in members else 0.0 for x in observed])
-
-
-def with_omega_errors(rows, model, theta: np.ndarray, covariance: np.ndarray, group: int = 0) -> tuple:
+def with_omega_errors(rows, model, theta: np.ndarray, covariance: np.ndarray, group: int = 0,
+                      declared=None) -> tuple:
     """One group's reliability ``rows`` with the delta-method standard error of each factor's omega (Raykov 2002):
     sqrt(g' V g), g the analytic gradient of omega in theta (:func:`omega_gradient`) and V the estimates' covariance
     the fit computed (``covariance``, of theta: by its information, or the sandwich of a robust or design-based fit).
     Rows whose omega is withheld (:func:`withheld`) or not finite keep None.  Every factor's gradient is gathered at
-    the entries by one plan and carried to theta by one product (the default call computes this on every fit)."""
+    the entries by one plan and carried to theta by one product (the default call computes this on every fit).
+    The keys of each sum: assessment.reliability.sum_keys of the group's fitted matrices (``declared``: the items of
+    the model's 'reversed' statement, None without one), the one reading of the keys that made ``rows``."""
     from dataclasses import replace
 
     table = model.table
@@ -275,8 +270,8 @@ def with_omega_errors(rows, model, theta: np.ndarray, covariance: np.ndarray, gr
         sel = model.groups == group
         codes, erows, ecols, J = codes[sel], erows[sel], ecols[sel], J[sel]
     mats = model.matrices(theta, group)
-    keys = np.stack([sum_keys(rows[k], observed) for k in wanted], axis=1)
     factors = np.array([latent.index(rows[k].factor) for k in wanted])
+    keys = sum_keys(mats.L, mats.G, mats.latent_covariance(), mats.implied_covariance(), observed, declared)[:, factors]
     if mats.has_paths:  # higher-order factors: each factor's gradient through A = (I - B)^-1, one at a time
         places = _EntryPlaces(codes, erows, ecols)
         D = np.stack([places.gathered(omega_matrix_gradient(mats, keys[:, j], f)) for j, f in enumerate(factors)])

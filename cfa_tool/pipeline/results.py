@@ -789,7 +789,8 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
 
         from cfa_tool.assessment.reliability_intervals import with_omega_errors
 
-        groups = tuple(replace(g, reliability=with_omega_errors(g.reliability, model, theta, parameter_covariance, k))
+        groups = tuple(replace(g, reliability=with_omega_errors(g.reliability, model, theta, parameter_covariance, k,
+                                                                     spec.reverse_keyed or None))
                        for k, g in enumerate(groups))
     if len(groups) <= 1:  # one group: the rule of rows per parameter (groups of several: each group's, by the same rule)
         from cfa_tool.assessment.admissibility import one_sample_size_problems

@@ -1196,7 +1196,7 @@ def keying_sentence(rows) -> Text:
                 "Every item loads in its factor's direction, so none is reversed for scoring. ")
     why = (Note(("as the model declares", Command(" in its 'reversed' statement"))) if declared else
            "their loadings have the sign opposite to most items of their factor"
-           + ("; where half of a factor's items load each way, opposite to the half with the larger loadings"
+           + ("; where half of a factor's items load each way, opposite to the half that holds its first item"
               if any(r.evenly_split for r in rows) else ""))
     return "Computed for keyed sums; reversed for scoring (" + why + f"): {'; '.join(lists)}. "
 
@@ -1271,6 +1271,16 @@ def sum_score_table(result, group: int = 0) -> ReportTable | None:
         note = _sums_across_groups(result, rows) + " " + note  # (a Note stays one: no f-string)
     values = [[r.factor, len(r.items), ", ".join(r.reversed), None if no_means else r.sum_score_mean, r.sum_score_sd,
                min(r.item_total) if r.item_total else None] for r in rows]
+    withheld = [k for k, r in enumerate(rows) if miskeyed(r)]  # the reliability table's one rule (every view's)
+    for k in withheld:  # the sum's mean and SD describe no scale; the item-rest r, the evidence, stays
+        body[k][3:5] = ["withheld", "withheld"]
+        values[k][3:5] = [None, None]
+    if withheld:
+        named = [rows[k].factor for k in withheld]
+        many = len(named) > 1
+        note += (f" Mean and SD withheld for {word_list(named)} (see the caution on the keying above): "
+                 f"{'for each, ' if many else ''}{WITHHELD_BECAUSE}; the lowest item-rest r is shown, the item that "
+                 f"runs most against the keyed sum of the others.")
     columns = [("Factor", "l"), ("Items", "r"), ("Reversed for scoring", "l"), ("Mean", "r"), ("SD", "r"),
                ("Lowest item-rest r", "r")]
     return _table(f"sum_scores_{group}", "Keyed sum scores", columns, body, note,

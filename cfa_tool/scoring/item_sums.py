@@ -1,7 +1,7 @@
 """Item sums and item means: the plain scale score of scale manuals, beside the factor scores.
 
 For a factor f measured by items alone (its own items, none through factors below it) with J_f items, keys
-k_i = +1 or -1 (:func:`cfa_tool.scoring.quality.sum_keys`, the rule the fit's reliability keys its sums by) and
+k_i = +1 or -1 (:func:`cfa_tool.assessment.reliability.sum_keys`, the rule the fit's reliability keys its sums by) and
 each reverse-keyed item's answer scale lowest_i to highest_i, a row's keyed answers are y_i = x_i (k_i = +1) or
 lowest_i + highest_i - x_i (k_i = -1), the reversal of scale manuals (common practice).  With a the number of f's
 items the row answered:

@@ -34,7 +34,7 @@ factors below it), each reverse-keyed item (negative total loading) reversed (it
 omega of the sum (McDonald 1999): omega = (k'C_f)^2 / (Phi_ff k'Sigma k) for keys k and the items' covariances
 with the factors C = L Phi ((k'G_f)^2 Phi_ff / k'Sigma k, G = L A, where the items measure the factor alone), by the
 formula and keys of the fit's reliability (:func:`cfa_tool.assessment.reliability.keyed_omega`,
-:func:`cfa_tool.assessment.reliability.item_keys`).
+:func:`cfa_tool.assessment.reliability.sum_keys`).
 Each person's item sum and mean, prorated from the answered items: :mod:`cfa_tool.scoring.item_sums`.
 """
 
@@ -47,7 +47,7 @@ import numpy as np
 
 from cfa_tool.assessment.ordinal_reliability import (due_to_factor, observed_sum_factor_correlation,
                                                       observed_sum_reliability)
-from cfa_tool.assessment.reliability import item_keys, keyed_omega
+from cfa_tool.assessment.reliability import keyed_omega, sum_keys
 from cfa_tool.numerics.plain import clean
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_METHODS, ScoreMethod
 from cfa_tool.scoring.model import OrdinalScoringModel, ScoringModel, checked_covariance
@@ -214,13 +214,12 @@ def method_quality(model: ScoringModel, methods: tuple[ScoreMethod, ...] = LINEA
     return tuple(out)
 
 
-def sum_keys(model: ScoringModel, declared: Collection[str] | None = None) -> np.ndarray:
-    """(p, m) keys of the sum scores: +1 or -1 for the items that measure each factor (directly or through
-    the factors below it), 0 for the others, by the rule the fit's reliability uses
-    (:func:`cfa_tool.assessment.reliability.item_keys`): the declared keys when the model has a 'reversed'
-    statement (``declared``: the items it names), the signs of the loadings otherwise."""
-    G, L = model.total_loadings, model.loadings
-    return item_keys(np.where(G != 0, G, L), model.reach, model.items, declared)[0]
+def model_keys(model: ScoringModel, declared: Collection[str] | None = None) -> np.ndarray:
+    """(p, m) the keys of a scoring model's sums: :func:`cfa_tool.assessment.reliability.sum_keys` (the one reading
+    of the keys of the fit's sums, which the fit's reliability and its omega's delta method use) of its matrices
+    (``declared``: the items of the model's 'reversed' statement, None without one)."""
+    return sum_keys(model.loadings, model.total_loadings, model.factor_covariance, model.implied_covariance,
+                    model.items, declared)
 
 
 def _keyed_variances(sigma: np.ndarray, keys: np.ndarray) -> np.ndarray:
@@ -236,9 +235,9 @@ def _one_item_omega(omega: float, items: Sequence) -> float:
 
 
 def sum_quality(model: ScoringModel, declared: Collection[str] | None = None) -> tuple[SumScore, ...]:
-    """Omega (McDonald 1999), validity and variance k'Sigma k of each factor's keyed sum (keys: :func:`sum_keys`)."""
+    """Omega (McDonald 1999), validity and variance k'Sigma k of each factor's keyed sum (keys: :func:`model_keys`)."""
     sigma = checked_covariance(model)
-    keys = sum_keys(model, declared)
+    keys = model_keys(model, declared)
     phi, C = model.factor_covariance, model.item_factor_covariance
     variances = _keyed_variances(sigma, keys)
     with np.errstate(invalid="ignore", divide="ignore"):
@@ -257,7 +256,7 @@ def sum_quality(model: ScoringModel, declared: Collection[str] | None = None) ->
 
 
 def _ordinal_sum_items(model: OrdinalScoringModel, keys: np.ndarray) -> np.ndarray | None:
-    """The items of one factor's keyed sum of ordinal answers (``keys``: its column of :func:`sum_keys`); None when
+    """The items of one factor's keyed sum of ordinal answers (``keys``: its column of :func:`model_keys`); None when
     it has none, or takes in a continuous item beside the ordinal ones (whose codes are no answers to a threshold
     model, so that the sum's reliability and spread under the model are not known)."""
     idx = np.flatnonzero(keys)
@@ -289,7 +288,7 @@ def ordinal_sum_quality(model: OrdinalScoringModel, declared: Collection[str] | 
     (assessment.ordinal_reliability)."""
     base = model.base
     sigma = checked_covariance(base)
-    keys = sum_keys(base, declared)
+    keys = model_keys(base, declared)
     phi, C = base.factor_covariance, base.item_factor_covariance
     mean = base.implied_mean  # nu + L alpha (G alpha counted a higher-order factor's mean twice)
     out = []
@@ -321,7 +320,7 @@ def _ordinal_sum_parts(model: OrdinalScoringModel, sigma: np.ndarray, mean: np.n
 def answered_sum_sems(model: ScoringModel | OrdinalScoringModel, sums: Sequence[SumScore], keys: np.ndarray,
                       answered: np.ndarray) -> dict[str, np.ndarray]:
     """factor -> (n,) the standard error of measurement of each row's keyed sum of the items of the factor it answered
-    (``answered`` (n, p): whether each row answered each item; ``keys`` (p, m): :func:`sum_keys`), for the factors of
+    (``answered`` (n, p): whether each row answered each item; ``keys`` (p, m): :func:`model_keys`), for the factors of
     ``sums`` that have an omega: SEM = SD_A sqrt(1 - omega_A) (Lord & Novick 1968), SD_A the spread under the fitted
     model of the sum of the answered items A and omega_A its reliability (McDonald 1999 from the fitted loadings,
     Green & Yang 2009 for ordinal answers' codes), computed once per pattern of answered items; NaN for a row that

@@ -490,9 +490,9 @@ def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSum
     quality (scoring.quality.SumScore), which leaves out a factor whose sum mixes continuous and ordinal items
     (scoring.quality.ordinal_sum_quality); ``categories``: ordinal items' answer values in the fitted rows, item by
     item, which give that scale when the fit keeps no answer ranges)."""
-    from cfa_tool.scoring.quality import sum_keys
+    from cfa_tool.scoring.quality import model_keys
 
-    keys = sum_keys(model, _declared(spec))
+    keys = model_keys(model, _declared(spec))
     direct = model.loadings != 0
     alone = model.measured & (model.reach == direct).all(axis=0)
     method_factors = spec.method_factors
@@ -1033,7 +1033,8 @@ def _sum_scores(models, spec, ordinal: bool, labels, problems) -> list[tuple[Sum
     """Each group's keyed sums with their reliability and spread under the fitted model (scoring.quality
     .sum_quality, or ordinal_sum_quality for ordinal items), computed once: the quality tables and the item sums'
     summary read the same objects.  A sum whose reliability the fit withholds (``problems``, the fit's: its loadings
-    contradict the declared keying, assessment.reliability.withheld_sums) has no omega here either."""
+    contradict the declared keying, assessment.reliability.withheld_sums) has no omega here either, nor a correlation
+    with its factor or a spread (the fit withholds its SD: it describes no scale; the JSON gave them, s25)."""
     from cfa_tool.assessment.reliability import withheld_sums
 
     declared = _declared(spec)
@@ -1042,9 +1043,10 @@ def _sum_scores(models, spec, ordinal: bool, labels, problems) -> list[tuple[Sum
     if not withheld:
         return sums
     one = len(models) == 1  # one group: its problems name no group
-    return [tuple(replace(s, omega=float("nan")) if (None if one else label, s.factor) in withheld else s
-                  for s in group_sums) for group_sums, label in zip(sums, labels if labels is not None
-                                                                    else [None] * len(sums))]
+    nan = float("nan")
+    return [tuple(replace(s, omega=nan, validity=nan, variance=nan)
+                  if (None if one else label, s.factor) in withheld else s for s in group_sums)
+            for group_sums, label in zip(sums, labels if labels is not None else [None] * len(sums))]
 
 
 def _partly_answered(model, answered: np.ndarray, chosen, errors: dict) -> list[str]:
@@ -1966,7 +1968,7 @@ def _linear_quality(models, spec, sums: list) -> list[ScoreQuality]:
 
 def _declared(spec):
     """The items of the model's 'reversed' statement, None without one: the keys of the sums (one rule with the
-    fit's reliability, scoring.quality.sum_keys)."""
+    fit's reliability, assessment.reliability.sum_keys)."""
     return frozenset(spec.reverse_keyed) if spec.reversed else None
 
 

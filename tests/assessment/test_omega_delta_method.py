@@ -14,8 +14,8 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from cfa_tool.assessment.reliability import reliability
-from cfa_tool.assessment.reliability_intervals import delta_interval, omega_gradient, sum_keys
+from cfa_tool.assessment.reliability import reliability, sum_keys
+from cfa_tool.assessment.reliability_intervals import delta_interval, omega_gradient
 
 MODELS = {
     "three factors": "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n",
@@ -38,8 +38,10 @@ def test_the_analytic_gradient_is_scipys_numerical_one(hs_data, name):
     fit = cfa_tool.fit(text, hs_data)
     table, model = model_structure(parse_model(text), None, False)
     codes, rows, cols = table.entry_arrays()
+    mats = model.matrices(fit.theta)
+    every = sum_keys(mats.L, mats.G, mats.latent_covariance(), mats.implied_covariance(), table.observed, None)
     for r in fit.groups[0].reliability:
-        keys = sum_keys(r, table.observed)
+        keys = every[:, table.latent.index(r.factor)]
 
         def omega(theta: np.ndarray) -> float:
             found, _ = reliability(model.matrices(theta), table.observed, table.latent, None, declared={})

@@ -70,7 +70,11 @@ def test_the_weak_marker_is_the_first_caution_and_not_called_reversed(weak, data
     assert f"here p up to {largest[1:]} for items" in said  # the estimates' table's largest p
     # the factor points the way of z (z at +1, the others negative): said as the marker's doing, not as a keying
     assert "The factor's direction follows z too" in said
-    assert "The keyed sums reverse z for no more than the sign of that near-zero loading" in said
+    # the keyed sums keep z's answers as given: the sign of a loading that small keys nothing (s25; it was reversed
+    # for that sign, and the caution said so)
+    assert "The keyed sums reverse z" not in said
+    comfort = next(r for r in weak.groups[0].reliability if r.factor == "comfort")
+    assert comfort.reversed == ()
     assert "'free loading(comfort, z)'" in said and "'scale comfort by variance'" in said
     assert not any(p.kind is ProblemKind.FACTOR_POINTS_AGAINST_ITEMS for p in weak.problems)
     assert not any("scored in reverse" in _flat(p.line()) for p in weak.problems)

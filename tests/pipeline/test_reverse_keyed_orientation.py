@@ -156,18 +156,20 @@ def test_a_factor_whose_items_split_evenly_is_named():
     (r,) = [r for r in result.groups[0].reliability if r.factor == "k"]
     assert r.evenly_split and r.to_dict()["evenly_split"] is True
     text = " ".join(result.summary().split())
-    assert "where half of a factor's items load each way, opposite to the half with the larger loadings" in text
+    assert "where half of a factor's items load each way, opposite to the half that holds its first item" in text
     # declared keys settle it: no caution
-    # the tie is broken by the sum of the loadings, which only orders the keys: whichever its sign (two samples, so
-    # both signs occur whatever the random numbers), a split factor is named as split, never as pointing against its
-    # items (a new numpy's draws gave a negative sum, and the split factor was called turned)
+    # the tie is broken by the factor's first item (the model's order), which only orders the keys: whichever the sign
+    # of the sum of the loadings (four samples, so both signs occur whatever the random numbers), a split factor is
+    # named as split, never as pointing against its items (a new numpy's draws gave a negative sum, and the split
+    # factor was called turned), and the half without d1 is the one reversed (s25: the sum's sign chose the half)
     sums = set()
     for seed in (31, 32, 33, 34):
         sample = simulate_cfa(L, np.eye(1), np.diag(np.full(4, 0.51)), 600, seed, ["d1", "d2", "d3", "d4"])
         each = cfa_tool.fit("factor k: d1..d4\n", sample)
         sums.add(sum(e.estimate for e in each.estimates if e.kind == "loading") > 0)
         assert not any(p.kind is ProblemKind.FACTOR_POINTS_AGAINST_ITEMS for p in each.problems)
-        assert any("half of its items load each way" in w for w in each.warnings)
+        assert any("half of its items load each way (d1, d3 against d2, d4)" in w for w in each.warnings)
+        assert each.groups[0].reliability[0].reversed == ("d2", "d4")
     assert sums == {True, False}
     keyed = cfa_tool.fit("factor k: d1..d4\nreversed d1, d3 on -9 to 9\n", rows)
     assert not any("half of its items" in w for w in keyed.warnings)

@@ -20,7 +20,7 @@ from cfa_tool.scoring.linear import score_rows
 from cfa_tool.scoring.methods import ScoreMethod, Unscored
 from cfa_tool.scoring.model import ScoringModel, score_inputs
 from cfa_tool.scoring.item_sums import ItemSumRule, item_sums
-from cfa_tool.scoring.quality import score_quality, sum_keys
+from cfa_tool.scoring.quality import model_keys, score_quality
 from cfa_tool.scoring.weights import pattern_weights
 from tests.conftest import THREE_FACTORS, single_group
 
@@ -134,7 +134,7 @@ def test_sum_score_omega_is_the_reliability_modules_omega_with_positive_keys(hs_
 def sum_scores(model, rows, least_share: float = 1.0):
     """Keyed sums with a reversed answer's sign flipped (its scale taken as 0 to 0: 0 + 0 - x), by scoring.item_sums."""
     zero = np.zeros(model.p)
-    return item_sums(rows, sum_keys(model), zero, zero, [None] * model.m, model.factors, ItemSumRule(least_share)).sums
+    return item_sums(rows, model_keys(model), zero, zero, [None] * model.m, model.factors, ItemSumRule(least_share)).sums
 
 
 def test_a_reverse_keyed_item_is_reversed_in_the_sum_and_its_omega(hs_data):

@@ -20,7 +20,7 @@ from cfa_tool.scoring.linear import score_rows
 from cfa_tool.scoring.methods import ScoreMethod
 from cfa_tool.scoring.model import ScoringModel
 from cfa_tool.scoring.item_sums import item_sums
-from cfa_tool.scoring.quality import score_quality, sum_keys
+from cfa_tool.scoring.quality import model_keys, score_quality
 
 N = 50_000
 METHODS = (ScoreMethod.REGRESSION, ScoreMethod.BARTLETT, ScoreMethod.CORRELATION_PRESERVING)
@@ -107,7 +107,7 @@ def test_correlation_preserving_scores_correlate_as_the_factors_do(simulated):
 def test_omega_of_the_keyed_sum_is_its_squared_correlation_with_the_factor(simulated):
     model, eta, x, scores = simulated
     zero = np.zeros(model.p)  # a reversed answer counts as 0 + 0 - x: its sign flipped, which omega does not see
-    sums = item_sums(x, sum_keys(model), zero, zero, [None] * model.m, model.factors).sums
+    sums = item_sums(x, model_keys(model), zero, zero, [None] * model.m, model.factors).sums
     quality = score_quality(model)
     for k in range(3):
         r = _corr(sums[:, k], eta[:, k])
