@@ -58,13 +58,16 @@ def test_missing_data_helpers_judge_the_items_alone(rider_demo, rider_model):
 
 
 def test_a_kurtosis_that_cannot_be_computed_is_said_so(rider_demo, rider_model, monkeypatch):
-    # the kurtosis of rows with gaps needs the information of the covariances (the largest matrix it makes: items plus
-    # their covariances, squared); with the tool's limit set below it the fit says why there is no test, and the remedies
-    from cfa_tool.numerics import sizes
+    # the kurtosis of rows with gaps needs the information of the covariances to be positive definite (and, before
+    # s25, to fit within the largest matrix the tool makes, which it no longer forms); where it cannot be solved the
+    # fit says why there is no test, and the remedies
+    from cfa_tool.assessment import normality
     from cfa_tool.reporting.tables import normality_lines
 
-    p = len(cfa_tool.parse_model(rider_model).observed_names)
-    monkeypatch.setattr(sizes, "MATRIX_BYTES", (p + p * (p + 1) // 2) ** 2 * 8 - 1)
+    def unsolved(*_args, **_kwargs):
+        raise np.linalg.LinAlgError("the information of the saturated covariances is not positive definite")
+
+    monkeypatch.setattr(normality, "information_quadratic", unsolved)
     full = cfa_tool.fit(rider_model, rider_demo, missing="full-information")
     assert full.groups[0].normality is None
     [line] = normality_lines(full)
