@@ -47,8 +47,10 @@ from cfa_tool.numerics.linalg import cholesky_log_det, triangular_inverse
 @dataclass(frozen=True)
 class Normality:
     """Mardia's (1970) multivariate skewness and kurtosis, each with its test; of rows with gaps
-    (``rows_with_gaps`` > 0, :func:`kurtosis_with_gaps`) the kurtosis alone, each row on the items it answered, and
-    the skewness fields None (Mardia's skewness pairs rows on every item)."""
+    (``rows_with_gaps`` > 0, :func:`kurtosis_with_gaps`) the kurtosis of every row, each on the items it answered,
+    the skewness fields None (Mardia's skewness pairs rows on every item), and beside it both of Mardia's tests of
+    the ``complete_rows`` rows without a gap (``of_complete_rows``; None where they are p + 1 or fewer, or their
+    covariance matrix is singular)."""
     skewness: float | None
     skewness_chi_square: float | None
     skewness_df: int | None
@@ -58,9 +60,14 @@ class Normality:
     kurtosis_z: float
     kurtosis_p_value: float
     rows_with_gaps: int = 0  # rows judged on the items they answered (0: every row judged was complete)
+    complete_rows: int = 0  # of rows with gaps: how many rows are complete
+    of_complete_rows: Normality | None = None  # of rows with gaps: Mardia's tests of the complete rows alone
 
     def to_dict(self) -> dict:
-        return dict(vars(self))
+        out = dict(vars(self))
+        if self.of_complete_rows is not None:
+            out["of_complete_rows"] = self.of_complete_rows.to_dict()
+        return out
 
 
 BLOCK = 1 << 20  # numbers held at once by the blocked sums (8 MB)
@@ -221,8 +228,15 @@ def kurtosis_with_gaps(rows: np.ndarray, moments: tuple[np.ndarray, np.ndarray] 
     z = (b - expected) / np.sqrt(variance) if variance > 0 else float("nan")
     if not np.isfinite(z):
         raise np.linalg.LinAlgError("the kurtosis has no finite z under normality at these moments")
+    complete = observed.all(axis=1)
+    whole = None
+    if complete.sum() > p + 1 and not complete.all():  # Mardia's own tests of the complete rows, beside (s25)
+        try:
+            whole = mardia(rows[complete], frequencies=None if frequencies is None else w[complete])
+        except np.linalg.LinAlgError:  # their covariance matrix is singular: said as not computed
+            whole = None
     return Normality(None, None, None, None, b, expected, float(z), float(2 * dist.norm_sf(abs(z))),
-                     int(np.count_nonzero(~observed.all(axis=1))))
+                     int(np.count_nonzero(~complete)), int(np.count_nonzero(complete)), whole)
 
 
 #: the conjugate gradients of :func:`information_quadratic` stop when the preconditioned residual's norm is this
