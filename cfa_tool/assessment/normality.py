@@ -69,6 +69,34 @@ class Normality:
             out["of_complete_rows"] = self.of_complete_rows.to_dict()
         return out
 
+    @property
+    def relative_kurtosis(self) -> float:
+        """Mardia's kurtosis over its value under normality, b2,p / p(p+2) (of rows with gaps b / e), known as the
+        relative multivariate kurtosis (the name recalled from memory): 1 for normal answers, and under an elliptical
+        distribution an estimate of 1 + kappa, the factor by which the normal-theory chi-square statistic is off
+        (Browne 1984; Shapiro & Browne 1987; recalled from memory)."""
+        return self.kurtosis / self.kurtosis_expected
+
+
+#: Mardia's normalized kurtosis (z) beyond which the answers are read as departing from normality: normalized
+#: estimates above 5 (Bentler 2006, recalled from memory; a rule of thumb, not a law)
+NORMALIZED_KURTOSIS_BOUND = 5.0
+#: how far the relative multivariate kurtosis (:attr:`Normality.relative_kurtosis`) lies from 1 before the departure
+#: matters: under an elliptical distribution the normal-theory chi-square is about that ratio times its value under
+#: normality (Browne 1984, recalled from memory), so a tenth or more off (a line of this tool, not a published cutoff)
+RELATIVE_KURTOSIS_BOUND = 0.10
+
+
+def departs_materially(n: Normality) -> bool:
+    """Whether the answers' tails depart from normal ones enough to matter for normal-theory chi-square statistics
+    and standard errors: Mardia's kurtosis (of rows with gaps, of every row on the items it answered) beyond
+    :data:`NORMALIZED_KURTOSIS_BOUND` in z, so not chance, and at least :data:`RELATIVE_KURTOSIS_BOUND` from its
+    normal value as a ratio, so not trivial with many rows, where a small z is easy to exceed.  Kurtosis decides,
+    not skewness: it is kurtosis that moves the normal-theory chi-square (Curran, West & Finch 1996, recalled from
+    memory)."""
+    return (abs(n.kurtosis_z) > NORMALIZED_KURTOSIS_BOUND
+            and abs(n.relative_kurtosis - 1.0) >= RELATIVE_KURTOSIS_BOUND)
+
 
 BLOCK = 1 << 20  # numbers held at once by the blocked sums (8 MB)
 GRAM_ROWS = 128  # rows per block of the Gram matrix: its blocks stay in the processor's cache (3x faster at p = 60

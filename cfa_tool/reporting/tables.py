@@ -1795,7 +1795,11 @@ def normality_lines(result) -> list[Text]:
         tested = [n] + ([n.of_complete_rows] if n.of_complete_rows is not None else [])
         departs = any(t.kurtosis_p_value < 0.05 or (t.skewness_p_value is not None and t.skewness_p_value < 0.05)
                       for t in tested)
-        if departs and result.robust is None and result.method.helpers:  # the robust test is refused with helpers
+        cautioned = any(c.kind is ProblemKind.NON_NORMAL_ANSWERS and c.group == (g.label if result.multigroup else None)
+                        for c in getattr(result, "problems", ()))
+        if cautioned:  # the caution first says what it does to the test and names the remedy: not said twice (s25)
+            line += " The data depart from normality: see the caution first."
+        elif departs and result.robust is None and result.method.helpers:  # the robust test is refused with helpers
             line += (" The data depart from normality, and the scaled test and robust standard errors, which would "
                      "guard against that, are not offered with missing-data helpers: the chi-square and the standard "
                      "errors rest on normal answers.")
