@@ -221,6 +221,10 @@ class ProblemKind(enum.Enum):
     # not of the solution but of its test: a scaling factor of the robust test that is not positive, so the scaled
     # statistic (or the robust CFI and TLI) cannot be computed (inference.robust.robust_fit)
     SCALED_TEST_NOT_COMPUTED = ("scaled test not computed", "no scaled test", False, True)
+    # not of the solution but of the answers: tails so far from normal ones (assessment.normality.departs_materially)
+    # that the normal-theory chi-square and standard errors of a fit without the robust ones are off
+    # (:func:`non_normal_problems`)
+    NON_NORMAL_ANSWERS = ("answers far from multivariate normal", "non-normal answers", False)
 
 
 #: problems not of the solution but of the sampling design it was fitted under (the methods paragraph states them
@@ -565,6 +569,7 @@ class Problem:
                                 "the analysis)",
             K.FACTOR_POINTS_AGAINST_ITEMS: f"factor {', '.join(names)} pointing against its items (a higher score "
                                            f"means less of what most of them ask)",
+            K.NON_NORMAL_ANSWERS: f"answers whose multivariate kurtosis is {v} times that of normal answers",
         }[self.kind]
         where = written_group(self.group, groups) if quoted or groups else str(self.group)
         return text + (f" in group {where}" if self.group is not None else "")
@@ -1255,3 +1260,55 @@ def poor_fit_problems(read) -> tuple[Problem, ...]:
                     f"reliability and any scores describe a model the data do not support.",
                     "read the largest residual correlations and modification indices and compare rival models before "
                     "interpreting the estimates; a model changed because of these data needs new data to confirm it."),)
+
+
+def non_normal_problems(judged: Sequence[tuple[str | None, object]], robust, method) -> tuple[Problem, ...]:
+    """A caution for each group (``judged``: its label, None for one group of rows, and its answers'
+    assessment.normality.Normality, or None where not computed) whose answers' tails depart from normal ones enough
+    to matter (assessment.normality.departs_materially), in a fit whose chi-square and standard errors assume normal
+    answers: none when the fit has the robust ones (``robust``: inference.robust.RobustFit or None) and none of
+    ordinal items (``method``: method.FitMethod), whose least squares assume no normal answers.  The remedy is named:
+    the scaled test and robust standard errors (with missing-data helpers, with which they are not offered, a fit
+    without the helpers).  Fit, compare and invariance give it alike (s25: a kurtosis z of 131 was a note under the
+    fit table)."""
+    from cfa_tool.assessment.normality import (NORMALIZED_KURTOSIS_BOUND, RELATIVE_KURTOSIS_BOUND,
+                                               departs_materially)
+
+    if robust is not None or method.ordinal:
+        return ()
+    found = []
+    for label, n in judged:
+        if n is None or not departs_materially(n):
+            continue
+        ratio = n.relative_kurtosis
+        heavy = ratio > 1.0
+        each = (f"; {counted(n.rows_with_gaps, 'row')} with gaps judged each on the items it answered, Yuan, Lambert & "
+                f"Fouladi 2004" if n.rows_with_gaps else "")
+        effect = ("so it rejects models that hold more often than its level, and the standard errors tend to be too "
+                  "small" if heavy else
+                  "so it passes models that misfit more often than its level says, and the standard errors tend to be "
+                  "too large")
+        explanation = (
+            f"The answers depart from multivariate normality: their tails are {'heavier' if heavy else 'lighter'} than "
+            f"normal ones, with Mardia's multivariate kurtosis {n.kurtosis:.1f} where normal answers give "
+            f"{n.kurtosis_expected:.1f}, {ratio:.2f} times as much (z = {n.kurtosis_z:.1f}; Mardia 1970{each}). Under "
+            f"such tails a normal-theory chi-square is about {ratio:.2f} times its value under normality (for "
+            f"elliptical distributions; Browne 1984, recalled from memory), {effect}. (Judged by a z beyond "
+            f"{NORMALIZED_KURTOSIS_BOUND:g}, a rule of thumb after Bentler 2006, recalled from memory, and a kurtosis "
+            f"at least {journal_decimal(RELATIVE_KURTOSIS_BOUND).rstrip('0')} away from its normal value as a ratio, "
+            f"a line of this tool: conventions, not laws.)")
+        found.append(Problem(ProblemKind.NON_NORMAL_ANSWERS, (), float(ratio), explanation,
+                             _robust_advice(bool(method.helpers)), label))
+    return tuple(found)
+
+
+def _robust_advice(helpers: bool) -> Note:
+    """What to try about answers far from normal: the scaled test and robust standard errors (the words of
+    reporting.remedies.Remedy.ROBUST, its option a Command, which the Word file leaves out); with missing-data
+    helpers, with which they are not offered, a fit without the helpers beside this one."""
+    if helpers:
+        return Note(("the scaled test and robust standard errors, which do not assume normal answers, are not offered "
+                     "with missing-data helpers: fit the model again without the helpers and with the scaled test and "
+                     "robust standard errors", Command(f" ({Option.ROBUST})"), ", and read the two fits side by side."))
+    return Note(("fit with the scaled test and robust standard errors", Command(f" ({Option.ROBUST})"),
+                 ", which do not assume normal answers, and read their chi-square, fit indices and standard errors."))

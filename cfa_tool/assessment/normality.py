@@ -27,8 +27,9 @@ Var h_i = E d^8 - (E d^4)^2 for chi-square(p_i); the mean's derivatives vanish b
 E[d(d_i^4)] = -2 (p_i + 2) tr(Sigma_oo^-1 dSigma_oo) (as E[d^2 r r'] = (p + 2) Sigma for a normal r), so that c = vech-traces of sum_i (p_i + 2) A_i (A_i =
 Sigma_oo^-1 embedded in p x p: c_jj = C_jj, c_jk = 2 C_jk) and H = sum_k (n_k / N) tr(A_k D_a A_k D_b), the
 patterns-fixed information of -2/N log L in vech Sigma (estimation.fiml.moment_second_derivatives), whose inverse
-times 2/N is the covariance of vech Sigma-hat.  With every row complete, c = N (p + 2) vech-trace(Sigma^-1),
-c' H^-1 c = N^2 (p + 2)^2 p and V = 8 p (p + 2) / N: Mardia's test itself.  Under answers missing at random but not
+times 2/N is the covariance of vech Sigma-hat; c' H^-1 c is found without H (:func:`information_quadratic`: conjugate
+gradients on p x p matrices, where H's Cholesky factor took 2 s at 60 items).  With every row complete,
+c = N (p + 2) vech-trace(Sigma^-1), c' H^-1 c = N^2 (p + 2)^2 p and V = 8 p (p + 2) / N: Mardia's test itself.  Under answers missing at random but not
 completely at random the rows of each pattern are a selection on their answers, and e is then only approximately the
 expectation (so the test, like Little's, reads the rows as missing completely at random).
 """
@@ -46,8 +47,10 @@ from cfa_tool.numerics.linalg import cholesky_log_det, triangular_inverse
 @dataclass(frozen=True)
 class Normality:
     """Mardia's (1970) multivariate skewness and kurtosis, each with its test; of rows with gaps
-    (``rows_with_gaps`` > 0, :func:`kurtosis_with_gaps`) the kurtosis alone, each row on the items it answered, and
-    the skewness fields None (Mardia's skewness pairs rows on every item)."""
+    (``rows_with_gaps`` > 0, :func:`kurtosis_with_gaps`) the kurtosis of every row, each on the items it answered,
+    the skewness fields None (Mardia's skewness pairs rows on every item), and beside it both of Mardia's tests of
+    the ``complete_rows`` rows without a gap (``of_complete_rows``; None where they are p + 1 or fewer, or their
+    covariance matrix is singular)."""
     skewness: float | None
     skewness_chi_square: float | None
     skewness_df: int | None
@@ -57,9 +60,42 @@ class Normality:
     kurtosis_z: float
     kurtosis_p_value: float
     rows_with_gaps: int = 0  # rows judged on the items they answered (0: every row judged was complete)
+    complete_rows: int = 0  # of rows with gaps: how many rows are complete
+    of_complete_rows: Normality | None = None  # of rows with gaps: Mardia's tests of the complete rows alone
 
     def to_dict(self) -> dict:
-        return dict(vars(self))
+        out = dict(vars(self))
+        if self.of_complete_rows is not None:
+            out["of_complete_rows"] = self.of_complete_rows.to_dict()
+        return out
+
+    @property
+    def relative_kurtosis(self) -> float:
+        """Mardia's kurtosis over its value under normality, b2,p / p(p+2) (of rows with gaps b / e), known as the
+        relative multivariate kurtosis (the name recalled from memory): 1 for normal answers, and under an elliptical
+        distribution an estimate of 1 + kappa, the factor by which the normal-theory chi-square statistic is off
+        (Browne 1984; Shapiro & Browne 1987; recalled from memory)."""
+        return self.kurtosis / self.kurtosis_expected
+
+
+#: Mardia's normalized kurtosis (z) beyond which the answers are read as departing from normality: normalized
+#: estimates above 5 (Bentler 2006, recalled from memory; a rule of thumb, not a law)
+NORMALIZED_KURTOSIS_BOUND = 5.0
+#: how far the relative multivariate kurtosis (:attr:`Normality.relative_kurtosis`) lies from 1 before the departure
+#: matters: under an elliptical distribution the normal-theory chi-square is about that ratio times its value under
+#: normality (Browne 1984, recalled from memory), so a tenth or more off (a line of this tool, not a published cutoff)
+RELATIVE_KURTOSIS_BOUND = 0.10
+
+
+def departs_materially(n: Normality) -> bool:
+    """Whether the answers' tails depart from normal ones enough to matter for normal-theory chi-square statistics
+    and standard errors: Mardia's kurtosis (of rows with gaps, of every row on the items it answered) beyond
+    :data:`NORMALIZED_KURTOSIS_BOUND` in z, so not chance, and at least :data:`RELATIVE_KURTOSIS_BOUND` from its
+    normal value as a ratio, so not trivial with many rows, where a small z is easy to exceed.  Kurtosis decides,
+    not skewness: it is kurtosis that moves the normal-theory chi-square (Curran, West & Finch 1996, recalled from
+    memory)."""
+    return (abs(n.kurtosis_z) > NORMALIZED_KURTOSIS_BOUND
+            and abs(n.relative_kurtosis - 1.0) >= RELATIVE_KURTOSIS_BOUND)
 
 
 BLOCK = 1 << 20  # numbers held at once by the blocked sums (8 MB)
@@ -193,19 +229,12 @@ def kurtosis_with_gaps(rows: np.ndarray, moments: tuple[np.ndarray, np.ndarray] 
     ``moments``: the rows' saturated (EM) mean and covariance when the caller has them (else estimated here);
     ``frequencies``: frequency weights, each row counted as often as its weight (N their sum).  With every row
     complete it is :func:`mardia`'s kurtosis test.  Raises LinAlgError where the covariance or the information is not
-    positive definite, EstimationError where the EM estimates cannot be found, and ValueError where the information
-    would exceed the largest matrix the tool makes (numerics.sizes)."""
+    positive definite, and EstimationError where the EM estimates cannot be found."""
     from cfa_tool.data.em import em_saturated
-    from cfa_tool.data.patterns import embedded_inverse, group_patterns, pattern_data
-    from cfa_tool.estimation.fiml import moment_second_derivatives
-    from cfa_tool.inference.robust import vech_indices
-    from cfa_tool.numerics import sizes
-    from cfa_tool.numerics.linalg import scaled_solve
+    from cfa_tool.data.patterns import group_patterns, pattern_data, pattern_inverses
 
     rows = np.asarray(rows, dtype=float)
     n_rows, p = rows.shape
-    if not sizes.fits(p + p * (p + 1) // 2):
-        raise ValueError(f"the information of {p} items' covariances exceeds the largest matrix this tool makes")
     w = np.ones(n_rows) if frequencies is None else np.asarray(frequencies, dtype=float)
     if moments is None:
         mean, sigma, _ = em_saturated(pattern_data(rows, None if frequencies is None else w))
@@ -218,20 +247,93 @@ def kurtosis_with_gaps(rows: np.ndarray, moments: tuple[np.ndarray, np.ndarray] 
     n = float(w.sum())
     b = float(w @ d2**2 / n)
     expected = float(w @ (answered * (answered + 2.0)) / n)
-    found = embedded_inverse(sigma, distinct)
-    if found is None:
+    inverses = pattern_inverses(sigma, distinct)
+    if inverses is None:
         raise np.linalg.LinAlgError("the saturated covariance matrix is not positive definite")
-    A = found[0]
-    counts = np.bincount(index, weights=w, minlength=len(distinct))  # rows (sums of weights) in each pattern
-    items = distinct.sum(axis=1).astype(float)
-    C = np.tensordot(counts * (items + 2.0), A, axes=1)  # sum_i (p_i + 2) A_i
-    I, J = vech_indices(p)
-    c = np.where(I == J, 1.0, 2.0) * C[I, J]  # tr(C D_a) for the vech directions
-    H = moment_second_derivatives(A, counts / n, I, J)[p:, p:]
-    estimation = float(c @ scaled_solve(H, c, positive_definite=True)) * 8.0 / n
+    share = np.bincount(index, weights=w, minlength=len(distinct)) / n  # pi_k: each pattern's share of the rows
+    estimation = 8.0 * n * information_quadratic(inverses, distinct, share, sigma)
     variance = (float(w @ (8.0 * answered * (answered + 2.0) * (answered + 3.0))) - estimation) / (n * n)
     z = (b - expected) / np.sqrt(variance) if variance > 0 else float("nan")
     if not np.isfinite(z):
         raise np.linalg.LinAlgError("the kurtosis has no finite z under normality at these moments")
+    complete = observed.all(axis=1)
+    whole = None
+    if complete.sum() > p + 1 and not complete.all():  # Mardia's own tests of the complete rows, beside (s25)
+        try:
+            whole = mardia(rows[complete], frequencies=None if frequencies is None else w[complete])
+        except np.linalg.LinAlgError:  # their covariance matrix is singular: said as not computed
+            whole = None
     return Normality(None, None, None, None, b, expected, float(z), float(2 * dist.norm_sf(abs(z))),
-                     int(np.count_nonzero(~observed.all(axis=1))))
+                     int(np.count_nonzero(~complete)), int(np.count_nonzero(complete)), whole)
+
+
+#: the conjugate gradients of :func:`information_quadratic` stop when the preconditioned residual's norm is this
+#: share of the right side's (about the last digits of double precision), and accept no worse than the square root
+#: of it where rounding stops them earlier
+SOLVED = 1e-12
+
+
+def information_quadratic(inverses, observed: np.ndarray, share: np.ndarray, sigma: np.ndarray) -> float:
+    """tr(R X) for the symmetric X that solves H(X) = R, with H(X) = sum_k pi_k A_k X A_k the patterns-fixed
+    information of the saturated covariances (in vech coordinates estimation.fiml.moment_second_derivatives's block of
+    the covariances, so that c' H^-1 c with c = vech-traces of N R is N^2 tr(R X)) and R = sum_k pi_k (p_k + 2) A_k
+    (:func:`kurtosis_with_gaps`'s estimation term); ``inverses``: data.patterns.PatternInverses of the patterns
+    ``observed`` (A_k = Sigma_oo^-1 embedded), ``share``: pi_k, each pattern's share of the rows (summing to 1).
+
+    No matrix of the covariances by the covariances is made (it was a Cholesky factor of p(p+1)/2 x p(p+1)/2, 2 s at
+    60 items).  With L = Sigma^-1 and N_k = C_k = (L_mm)^-1 scattered on the items m pattern k misses,
+    A_k = L - L N_k L (the partitioned inverse; Little & Rubin 2002, ch. 11), so that with Y = L X L
+        H(X) = Y - Y Q L - L Q Y + L S L,   Q = sum_k pi_k N_k,   S = sum_k pi_k N_k Y N_k
+    (S from each pattern's m x m block of Y): a few p x p products and each pattern's small blocks.  X solves
+    H(X) = R by conjugate gradients (Hestenes & Stiefel 1952) in the trace inner product, H being self-adjoint and
+    positive definite there, preconditioned by the inverse of H with every row complete, r -> Sigma r Sigma, and
+    started at that case's exact solution X = (p + 2) Sigma: with every row complete it is the solution, and since
+    0 <= A_k <= L the preconditioned operator's eigenvalues lie in [1 - (share of rows with gaps), 1], so few
+    iterations suffice when few rows have gaps; at most p(p+1)/2, the dimension, in exact arithmetic.  Raises
+    LinAlgError where H is not positive definite or the iterations do not converge."""
+    from cfa_tool.data.patterns import weighted_inverse_sum
+
+    L = inverses.precision
+    p = L.shape[0]
+    items = observed.sum(axis=1).astype(float)
+    R = weighted_inverse_sum(inverses, observed, share * (items + 2.0))
+    R = 0.5 * (R + R.T)
+    Q = np.zeros((p, p))
+    places = []
+    for which, miss, C in inverses.batches:
+        at = (miss[:, :, None], miss[:, None, :])
+        weighted = C * share[which, None, None]
+        np.add.at(Q, at, weighted)
+        places.append((at, C, weighted))
+    QL = Q @ L
+
+    def information(X: np.ndarray) -> np.ndarray:
+        Y = L @ X @ L
+        S = np.zeros((p, p))
+        for at, C, weighted in places:
+            np.add.at(S, at, weighted @ Y[at] @ C)
+        T = Y @ QL
+        return Y - T - T.T + L @ S @ L
+
+    X = (p + 2.0) * sigma
+    r = R - information(X)
+    z = sigma @ r @ sigma
+    rz = float(np.vdot(r, z))
+    reference = float(np.vdot(R, sigma @ R @ sigma))
+    d = z
+    for _ in range(p * (p + 1) // 2):
+        if rz <= SOLVED**2 * reference:
+            break
+        Hd = information(d)
+        curvature = float(np.vdot(d, Hd))
+        if not curvature > 0:
+            raise np.linalg.LinAlgError("the information of the saturated covariances is not positive definite")
+        step = rz / curvature
+        X = X + step * d
+        r = r - step * Hd
+        z = sigma @ r @ sigma
+        rz, previous = float(np.vdot(r, z)), rz
+        d = z + (rz / previous) * d
+    if not rz <= SOLVED * reference:
+        raise np.linalg.LinAlgError("the information of the saturated covariances could not be solved")
+    return float(np.vdot(R, X))

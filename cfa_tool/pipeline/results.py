@@ -759,7 +759,8 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
 
         from cfa_tool.assessment.reliability import apart_from_weak_markers, keying_problems
 
-        from cfa_tool.assessment.admissibility import poor_fit_problems, uninformative_baseline_problems
+        from cfa_tool.assessment.admissibility import (non_normal_problems, poor_fit_problems,
+                                                       uninformative_baseline_problems)
 
         from cfa_tool.assessment.markers import weak_item_notes, weak_items, weak_markers
 
@@ -781,6 +782,9 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
 
             within = within_factor_correlation(spec, tuple(observed), [g.sample_covariance for g in groups])
             problems += uninformative_baseline_problems(fit, robust, n_obs, max(len(groups), 1), within)
+            # tails the normal-theory test cannot bear: before the poor fit, which that test may have judged
+            problems += non_normal_problems([(g.label if len(groups) > 1 else None, g.normality) for g in groups],
+                                            robust, method)
             problems += poor_fit_problems(IndicesToRead.of(fit, robust))
     if (converged and parameter_covariance is not None and model is not None and not method.ordinal
             and any(g.reliability for g in groups)):  # (fits for loops have no reliability rows: nothing to add)

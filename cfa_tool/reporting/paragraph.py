@@ -1053,6 +1053,27 @@ def _uninformative_baseline_sentence(result) -> str:
             f"beside the RMSEA and SRMR.")
 
 
+def non_normal_sentence(problems, groups: tuple[str, ...] = (), several: bool = False) -> str:
+    """That the answers departed from multivariate normality enough to matter, so that the normal-theory chi-square
+    and standard errors are off, when a caution among ``problems`` says so (assessment.admissibility.
+    non_normal_problems; ``groups``: the fit's labels, each group named among them; ``several``: the chi-squares of
+    several models of those answers, a comparison's or a ladder's); '' otherwise.  A limit of the results, in a
+    paper's words: no advice and no option."""
+    found = [p for p in problems if p.kind is ProblemKind.NON_NORMAL_ANSWERS]
+    if not found:
+        return ""
+    where = [f" in group {written_group(p.group, groups)}" if p.group is not None else "" for p in found]
+    ratios = _list([f"{p.value:.2f} times its normal value{w}" for p, w in zip(found, where)])
+    heavy = [p.value > 1 for p in found]
+    effect = ("too large and the standard errors too small" if all(heavy) else
+              "too small and the standard errors too large" if not any(heavy) else
+              "off (too large where the tails are heavier than normal, too small where they are lighter) and so are "
+              "the standard errors")
+    return (f"The answers departed from multivariate normality (Mardia's multivariate kurtosis {ratios}; Mardia, "
+            f"1970), so the normal-theory {'chi-squares below tend' if several else 'chi-square below tends'} to be "
+            f"{effect} (Browne, 1984).")
+
+
 def _method_items(result, factor: str) -> list[str]:
     """The items a method factor loads on, in the model's order."""
     return [r.variables[1] for r in result.estimates
@@ -1460,6 +1481,9 @@ def methods_paragraph(result) -> str:
     baseline = _uninformative_baseline_sentence(result)
     if baseline:  # before the CFI and TLI it says how to read
         parts.append(baseline)
+    tails = non_normal_sentence(result.problems, group_labels(result))
+    if tails:  # before the chi-square it qualifies
+        parts.append(tails)
     parts.append(_fit_sentence(result))
     untested = [(h, lower) for h, lower in (d.higher_order if d is not None else ())
                 if h in getattr(d, "just_identified_higher_order", ())]
@@ -1795,6 +1819,10 @@ def comparison_paragraph(comparison) -> str:
     # the same rows in every model: the caution of the model with the most such groups (review s14)
     if small:
         parts.append(small)
+    fitted = next((r for r in results if r.converged), None)  # the same rows in every model: the first's answers
+    tails = non_normal_sentence(comparison.problems, group_labels(fitted), True) if fitted is not None else ""
+    if tails:  # before the chi-squares it qualifies
+        parts.append(tails)
     parts.append(f"Fit{statistic}: " + "; ".join(f"{label[name]}, {_fit_figures(r)}" for name, r in zip(names, results)) + ".")
     for name, r in zip(names, results):
         weak = _weak_factor_sentence(r, f"The solution of {label[name]}") if r.converged else ""
@@ -2130,6 +2158,9 @@ def invariance_paragraph(result, levels) -> str:
     small = _small_groups(first)
     if small:  # the report's first caution, in the paper too (new user s14)
         parts.append(small)
+    tails = non_normal_sentence(getattr(result, "data_problems", ()), group_labels(first), True)
+    if tails:  # before the chi-squares it qualifies
+        parts.append(tails)
     parts.append(f"The configural model {_held(steps[0])}" + (f" ({_fit_figures(first)})." if first.converged else "."))
     # the tests that judge the later steps mean little under this design (too few clusters for the parameters, one
     # cluster dominating: admissibility.design_doubts): no step is said to hold or not by them alone (new-user trial

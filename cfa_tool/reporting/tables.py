@@ -1796,17 +1796,27 @@ def normality_lines(result) -> list[Text]:
         if n is None:
             continue
         where = _in_group(result, g.label)
-        if n.skewness is None:  # rows with gaps (full-information ML): the kurtosis alone, each on its answered items
+        if n.skewness is None:  # rows with gaps (full-information ML): the kurtosis of every row, each on its answered
+            # items, and beside it Mardia's tests of the complete rows alone (s25: the skewness was lost)
+            whole = n.of_complete_rows
             line = (f"Multivariate kurtosis{where} of every row, each on the items it answered ({counted(n.rows_with_gaps, 'row')} "
                     f"with gaps; Mardia 1970, for rows with gaps Yuan, Lambert & Fouladi 2004): {n.kurtosis:.3f} "
                     f"(normal: {n.kurtosis_expected:.3f}), z = {n.kurtosis_z:.2f}, p {p_phrase(n.kurtosis_p_value)}; "
-                    f"Mardia's skewness needs complete rows and is not given.")
+                    + (f"of the {count_text(n.complete_rows)} complete rows alone (Mardia 1970): skewness "
+                       f"{_mardia_figures(whole)}." if whole is not None else
+                       f"Mardia's skewness needs complete rows, and the {counted(n.complete_rows, 'complete row')} "
+                       f"{'are' if n.complete_rows != 1 else 'is'} too few for it (more than one beyond the items are "
+                       f"needed), so it is not given."))
         else:
-            line = (f"Multivariate normality{where} (Mardia 1970): skewness {n.skewness:.3f}, chi-square "
-                    f"{n.skewness_chi_square:.2f} on {n.skewness_df} df, p {p_phrase(n.skewness_p_value)}; kurtosis "
-                    f"{n.kurtosis:.3f} (normal: {n.kurtosis_expected:g}), z = {n.kurtosis_z:.2f}, p {p_phrase(n.kurtosis_p_value)}.")
-        departs = n.kurtosis_p_value < 0.05 or (n.skewness_p_value is not None and n.skewness_p_value < 0.05)
-        if departs and result.robust is None and result.method.helpers:  # the robust test is refused with helpers
+            line = f"Multivariate normality{where} (Mardia 1970): skewness {_mardia_figures(n)}."
+        tested = [n] + ([n.of_complete_rows] if n.of_complete_rows is not None else [])
+        departs = any(t.kurtosis_p_value < 0.05 or (t.skewness_p_value is not None and t.skewness_p_value < 0.05)
+                      for t in tested)
+        cautioned = any(c.kind is ProblemKind.NON_NORMAL_ANSWERS and c.group == (g.label if result.multigroup else None)
+                        for c in getattr(result, "problems", ()))
+        if cautioned:  # the caution first says what it does to the test and names the remedy: not said twice (s25)
+            line += " The data depart from normality: see the caution first."
+        elif departs and result.robust is None and result.method.helpers:  # the robust test is refused with helpers
             line += (" The data depart from normality, and the scaled test and robust standard errors, which would "
                      "guard against that, are not offered with missing-data helpers: the chi-square and the standard "
                      "errors rest on normal answers.")
@@ -1836,6 +1846,13 @@ def normality_lines(result) -> list[Text]:
         lines.append(KURTOSIS_NOT_COMPUTED + "; " + Remedy.COMPLETE_ROWS.said() + " gives Mardia's tests for the complete "
                      "rows" + guarded + ".")
     return lines
+
+
+def _mardia_figures(n) -> str:
+    """Mardia's (1970) two tests of complete rows (assessment.normality.Normality) after the word 'skewness'."""
+    return (f"{n.skewness:.3f}, chi-square {n.skewness_chi_square:.2f} on {n.skewness_df} df, p "
+            f"{p_phrase(n.skewness_p_value)}; kurtosis {n.kurtosis:.3f} (normal: {n.kurtosis_expected:g}), z = "
+            f"{n.kurtosis_z:.2f}, p {p_phrase(n.kurtosis_p_value)}")
 
 
 #: why a full-information fit's report has no test of normality (assessment.normality.kurtosis_with_gaps failed, or

@@ -16,7 +16,7 @@ from cfa_tool.pipeline.inputs import (_described, rows_named, _no_group_notes, c
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
                                       refuse_for_summary, refuse_row_options,
                                       summary_source, with_design)
-from cfa_tool.assessment.admissibility import solution_first
+from cfa_tool.assessment.admissibility import non_normal_problems, solution_first
 from cfa_tool.data.answer_words import code_answer_words, coding_json, refuse_different_codings
 from cfa_tool.data.labels import label_notes
 from cfa_tool.data.matching import check_columns, check_declared_ranges, chosen_columns
@@ -255,14 +255,19 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         reference_group_applies(results, reference_group)
         notes = list(notes) + reference_note(results, complete, group, reference_group)
         tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
-        normal_theory = bool(tests) and all(r.robust is None for r in results if r.converged)
-        heavy, unjudged = heavy_tailed_groups([m for _, m in data_groups[0]], tuple(label for label, _ in data_groups[0])
-                                              if group is not None else None) if normal_theory else ((), ())
+        normal_fits = all(r.robust is None for r in results if r.converged)
+        normal_theory = bool(tests) and normal_fits
+        heavy, unjudged, judged = heavy_tailed_groups([m for _, m in data_groups[0]], tuple(
+            label for label, _ in data_groups[0]) if group is not None else None) if normal_fits else ((), (), ())
+        if not normal_theory:  # no difference test: nothing rests on normal tails but the fits' own figures
+            heavy, unjudged = (), ()
         if unjudged:
             notes = list(notes) + [tails_not_judged_note(unjudged)]
+        # answers far from normal under every model's normal-theory chi-square and standard errors: as fit cautions
+        tails = non_normal_problems(judged, None, results[0].method)
         return _some_estimated(_with_data_problems(Comparison(tuple(names), tuple(results), tuple(tests),
                                                               tuple(not_nested), len(complete), dropped,
-                                                              fit_options.missing, tuple(notes),
+                                                              fit_options.missing, tuple(notes), tails,
                                                               without_group=without_group, heavy_tails=heavy),
                                                    loaded, specs, group, design, dropped, False, False, id_rows))
 
@@ -309,7 +314,8 @@ def _with_data_problems(found: Comparison, loaded, specs, group, design, dropped
         left = listwise_problem(dropped, found.n_obs + dropped, " from every model",
                                 pairwise_instead() if ordinal else full_information_instead())
         found_all += [left] if left is not None else []
-    return replace(found, results=tuple(results), problems=tuple(dict.fromkeys(found_all)))
+    # the data's cautions, then those the comparison found of its answers (answers far from normal)
+    return replace(found, results=tuple(results), problems=tuple(dict.fromkeys(found_all + list(found.problems))))
 
 
 def _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items, method,

@@ -31,7 +31,7 @@ from cfa_tool.pipeline.inputs import (_described, rows_named, analysed_odd_value
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
                                       with_design_weights, with_missing_reading, with_rows_read,
                                       refuse_groups_filtered_out)
-from cfa_tool.assessment.admissibility import WHY_NOT_ESTIMATED, ProblemKind, group_size_problems
+from cfa_tool.assessment.admissibility import WHY_NOT_ESTIMATED, ProblemKind, group_size_problems, non_normal_problems
 from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.model.description import parameter_words
 from cfa_tool.numerics import distributions as dist
@@ -662,8 +662,12 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                   if p.kind is ProblemKind.SMALL_GROUP)
     # a normal-theory ladder over heavy-tailed answers: its differences reject too often (fit says so beside its
     # normality tests; a ladder, whose decisions are those differences, among its cautions)
-    heavy, tails_unjudged = (heavy_tailed_groups([m for _, m in groups], labels)
-                             if not ordinal_items and steps[0].result.robust is None else ((), ()))
+    heavy, tails_unjudged, judged = (heavy_tailed_groups([m for _, m in groups], labels)
+                                     if not ordinal_items and steps[0].result.robust is None else ((), (), ()))
+    # each group's answers far from normal under the steps' normal-theory chi-squares and standard errors: a caution
+    # of the data, as fit gives it (s25)
+    tails = non_normal_problems(judged, None, steps[0].result.method)
+    small = small + tuple(f"Group {written_group(p.group, labels)}: " + p.line() for p in tails)
     if tails_unjudged:
         notes = list(notes) + [tails_not_judged_note(tails_unjudged)]
     # a caution first only where a step did not hold (the configural model's own test included); when every step
@@ -675,7 +679,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                             tuple(impossible) + data_cautions + small + tuple(warnings)
                             + ((heavy_tails_caution(heavy, "a step that did not hold"),) if heavy and rejected else ()),
                             rule,
-                            differences, latent_note, not_estimated, tuple(notes), found, reference, gaps)
+                            differences, latent_note, not_estimated, tuple(notes), found + tails, reference, gaps)
 
 
 

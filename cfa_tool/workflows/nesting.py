@@ -29,7 +29,7 @@ NESTING_TOLERANCE = 1e-7  # minimum discrepancy below which the implied moments 
 
 
 def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None
-                        ) -> tuple[tuple[str, ...], tuple[str, ...]]:
+                        ) -> tuple[tuple[str, ...], tuple[str, ...], tuple[tuple[str | None, object], ...]]:
     """The groups (``labels``; None: one group of rows) whose answers are heavier-tailed than normal by Mardia's
     (1970) kurtosis test at .05, each said with its z: 'group south (z = 12.3)', or 'these rows (z = 12.3)' for one
     group.  Normal-theory chi-square statistics and their differences then reject models that hold far more often than
@@ -38,12 +38,14 @@ def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None
     judged each on the items it answered, at the group's saturated (EM) moments (assessment.normality.
     kurtosis_with_gaps; Yuan, Lambert & Fouladi 2004), said so: 'group south (z = 12.3, each row on the items it
     answered)' (hostile trial s23b: with a gap in every row the complete rows were too few and the caution vanished);
-    the groups where even that cannot be computed are said apart, as (found, not judged)."""
+    the groups where even that cannot be computed are said apart, as (found, not judged, judged), the last each
+    judged group's (label, or None for one group of rows; assessment.normality.Normality), from which a comparison or
+    a ladder cautions on answers far from normal as fit does (assessment.admissibility.non_normal_problems)."""
     from cfa_tool.assessment.normality import kurtosis_with_gaps, mardia
     from cfa_tool.errors import EstimationError
     from cfa_tool.language.names import written_group
 
-    found, unjudged = [], []
+    found, unjudged, judged = [], [], []
     for k, m in enumerate(moments):
         rows = getattr(m, "rows", None)
         if rows is None:
@@ -61,9 +63,10 @@ def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None
         except (np.linalg.LinAlgError, ValueError, EstimationError):
             unjudged.append(f"{where} ({count_text(int(gaps.sum()))} of {counted(len(rows), 'row')} with gaps)")
             continue
+        judged.append((None if labels is None else labels[k], n))
         if n.kurtosis_p_value < 0.05 and n.kurtosis_z > 0:
             found.append(f"{where} (z = {n.kurtosis_z:.1f}{how})")
-    return tuple(found), tuple(unjudged)
+    return tuple(found), tuple(unjudged), tuple(judged)
 
 
 #: the one rule of what heavy tails do to the tests, which the caution and the note on tails not judged both say

@@ -124,3 +124,102 @@ def test_heavy_tailed_rows_with_gaps_are_rejected():
     x = _with_gaps(rng, _correlated(rng, n, 5) * np.sqrt(4.0 / rng.chisquare(4, n))[:, None])  # multivariate t, 4 df
     found = kurtosis_with_gaps(x)
     assert found.kurtosis_z > 1.96 and found.kurtosis_p_value < 0.05
+
+
+def _dense_quadratic(rows: np.ndarray, mean: np.ndarray, sigma: np.ndarray) -> float:
+    """c' H^-1 c of the module docstring written with numpy from the formula (Yuan, Lambert & Fouladi 2004's
+    variance, derived in assessment/normality.py): H = sum_i (1/N) D' (A_i kron A_i) D over the duplication matrix D
+    (Magnus & Neudecker 1988: vec Sigma = D vech Sigma), c = D' vec(sum_i (p_i + 2) A_i), A_i = Sigma_oo^-1 embedded,
+    made in full (rows of one pattern of answers share their A_i: counted, by numpy.unique)."""
+    n, p = rows.shape
+    D = np.zeros((p * p, p * (p + 1) // 2))
+    column = 0
+    for j in range(p):
+        for k in range(j, p):
+            D[j * p + k, column] = D[k * p + j, column] = 1.0
+            column += 1
+    H = np.zeros((D.shape[1], D.shape[1]))
+    C = np.zeros((p, p))
+    patterns, counts = np.unique(~np.isnan(rows), axis=0, return_counts=True)
+    for o, count in zip(patterns, counts):
+        A = np.zeros((p, p))
+        A[np.ix_(o, o)] = np.linalg.inv(sigma[np.ix_(o, o)])
+        H += count * (D.T @ np.kron(A, A) @ D) / n
+        C += count * (o.sum() + 2.0) * A
+    c = D.T @ C.reshape(-1)
+    return float(c @ np.linalg.solve(H, c))
+
+
+@pytest.mark.parametrize("share", [0.02, 0.3])
+def test_the_information_term_without_the_matrix_of_covariances(share):
+    # the conjugate-gradient route (assessment.normality.information_quadratic) against the dense formula above, at
+    # 10 items: a few rows with gaps (as the demo: 9 of 480) and many
+    from cfa_tool.assessment.normality import information_quadratic
+    from cfa_tool.data.em import em_saturated
+    from cfa_tool.data.patterns import group_patterns, pattern_data, pattern_inverses
+
+    rng = np.random.default_rng(25)
+    x = _correlated(rng, 300, 10)
+    gaps = rng.random(x.shape) < 0.15
+    gaps[rng.random(len(x)) > share] = False
+    x[gaps] = np.nan
+    mean, sigma, _ = em_saturated(pattern_data(x))
+    observed = ~np.isnan(x)
+    distinct, index, _ = group_patterns(observed)
+    share_k = np.bincount(index, minlength=len(distinct)) / len(x)
+    found = information_quadratic(pattern_inverses(sigma, distinct), distinct, share_k, sigma) * len(x) ** 2
+    assert found == pytest.approx(_dense_quadratic(x, mean, sigma), rel=1e-9)
+
+
+def test_the_kurtosis_of_rows_with_gaps_at_many_items():
+    from cfa_tool.numerics.threads import one_blas_thread
+
+    # 128 items: the information of their covariances (8,384 x 8,384 with the means) was beyond the largest matrix
+    # the tool makes (numerics.sizes), and the kurtosis was not given; it needs no such matrix now.  Normal rows: z
+    # within the spread of a standard normal, after Mardia's (1974) downward bias of b2 (E b2 = p(p+2)(N-1)/(N+1),
+    # recalled from memory: -3.7 here)
+    rng = np.random.default_rng(130)
+    n, p = 600, 128
+    x = _correlated(rng, n, p)
+    gaps = rng.random(x.shape) < 0.02
+    gaps[40:] = False  # gaps in the first 40 rows only
+    x[gaps] = np.nan
+    with one_blas_thread():  # (matrices of 128 items: several threads only wait for each other on a busy machine)
+        normal = kurtosis_with_gaps(x)
+    bias = -2.0 * p * (p + 2) / (n + 1) / np.sqrt(8.0 * p * (p + 2) / n)
+    assert normal.rows_with_gaps == int(gaps.any(axis=1).sum()) > 20 and abs(normal.kurtosis_z - bias) < 3.5
+
+
+def _mardia_by_hand(rows: np.ndarray) -> tuple[float, float]:
+    """Mardia's (1970) b1,p and b2,p from their definitions, every pair of rows at once:
+    b1 = (1/N^2) sum_ij (z_i' S^-1 z_j)^3, b2 = (1/N) sum_i (z_i' S^-1 z_i)^2, S with divisor N."""
+    z = rows - rows.mean(axis=0)
+    G = z @ np.linalg.inv(z.T @ z / len(rows)) @ z.T
+    return float((G**3).sum() / len(rows) ** 2), float((np.diag(G) ** 2).mean())
+
+
+def test_rows_with_gaps_also_give_both_tests_of_the_complete_rows():
+    # the demo lost Mardia's skewness of its 471 complete rows when 9 rows had gaps: both tests of the complete rows
+    # now stand beside the kurtosis of every row, labelled as the complete rows'
+    from scipy import stats
+
+    rng = np.random.default_rng(12)
+    x = rng.gamma(2.0, size=(200, 5)) @ (np.eye(5) + 0.3 * rng.standard_normal((5, 5)))  # skewed
+    x[rng.choice(200, 12, replace=False), rng.integers(0, 5, 12)] = np.nan
+    complete = x[~np.isnan(x).any(axis=1)]
+    found = kurtosis_with_gaps(x)
+    whole = found.of_complete_rows
+    assert found.complete_rows == len(complete) and found.rows_with_gaps == 200 - len(complete)
+    b1, b2 = _mardia_by_hand(complete)
+    p, n = 5, len(complete)
+    assert whole.skewness == pytest.approx(b1, rel=1e-10) and whole.kurtosis == pytest.approx(b2, rel=1e-10)
+    assert whole.skewness_df == p * (p + 1) * (p + 2) // 6
+    assert whole.skewness_p_value == pytest.approx(stats.chi2.sf(n * b1 / 6, p * (p + 1) * (p + 2) // 6), rel=1e-8)
+    z = (b2 - p * (p + 2)) / np.sqrt(8 * p * (p + 2) / n)
+    assert whole.kurtosis_z == pytest.approx(z, rel=1e-10)
+    assert whole.kurtosis_p_value == pytest.approx(2 * stats.norm.sf(abs(z)), rel=1e-8)
+    assert found.to_dict()["of_complete_rows"]["skewness"] == pytest.approx(b1, rel=1e-10)
+    # too few complete rows (no more than the items and one): none, and said so
+    few = x.copy()
+    few[np.arange(6, 200), np.arange(6, 200) % 5] = np.nan
+    assert kurtosis_with_gaps(few).of_complete_rows is None

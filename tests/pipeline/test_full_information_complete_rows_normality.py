@@ -2,7 +2,7 @@
 the same complete rows does (hostile trial s20: it said they 'need complete rows' and left them out while every row
 was complete); rows with gaps give Mardia's kurtosis with each row on the items it answered (Yuan, Lambert & Fouladi
 2004; assessment.normality.kurtosis_with_gaps, checked against Mardia's test and a direct computation in
-tests/assessment/test_kurtosis_with_gaps.py), the skewness left out with the words that say why."""
+tests/assessment/test_kurtosis_with_gaps.py), and beside it both of Mardia's tests of the complete rows alone."""
 
 from __future__ import annotations
 
@@ -39,10 +39,19 @@ def test_rows_with_gaps_give_the_kurtosis_on_the_items_each_row_answered(rider_d
     assert "need complete rows" not in text and "were not computed" not in text
     assert (f"Multivariate kurtosis of every row, each on the items it answered ({found.rows_with_gaps} rows with gaps; "
             f"Mardia 1970, for rows with gaps Yuan, Lambert & Fouladi 2004)") in text
-    assert "Mardia's skewness needs complete rows and is not given" in text
+    # beside it, both of Mardia's tests of the complete rows, labelled as theirs (s25: the demo's 471 complete rows
+    # lost their skewness), as the fit of those rows alone gives them (Mardia 1970)
+    complete = cfa_tool.fit(rider_model, rider_demo.dropna(subset=items)).groups[0].normality
+    whole = found.of_complete_rows
+    assert found.complete_rows == len(rider_demo.dropna(subset=items)) == 471  # the demo: 9 of 480 rows with gaps
+    for field in ("skewness", "skewness_chi_square", "skewness_p_value", "kurtosis", "kurtosis_z", "kurtosis_p_value"):
+        assert getattr(whole, field) == pytest.approx(getattr(complete, field), rel=1e-8), field
+    assert (f"of the 471 complete rows alone (Mardia 1970): skewness {complete.skewness:.3f}, chi-square "
+            f"{complete.skewness_chi_square:.2f} on {complete.skewness_df} df") in text
     said = full.to_dict()["normality"]
     assert said["rows_with_gaps"] == found.rows_with_gaps and said["skewness"] is None
     assert said["kurtosis_z"] == pytest.approx(found.kurtosis_z)
+    assert said["complete_rows"] == 471 and said["of_complete_rows"]["skewness"] == pytest.approx(complete.skewness)
 
 
 def test_missing_data_helpers_judge_the_items_alone(rider_demo, rider_model):
@@ -58,13 +67,16 @@ def test_missing_data_helpers_judge_the_items_alone(rider_demo, rider_model):
 
 
 def test_a_kurtosis_that_cannot_be_computed_is_said_so(rider_demo, rider_model, monkeypatch):
-    # the kurtosis of rows with gaps needs the information of the covariances (the largest matrix it makes: items plus
-    # their covariances, squared); with the tool's limit set below it the fit says why there is no test, and the remedies
-    from cfa_tool.numerics import sizes
+    # the kurtosis of rows with gaps needs the information of the covariances to be positive definite (and, before
+    # s25, to fit within the largest matrix the tool makes, which it no longer forms); where it cannot be solved the
+    # fit says why there is no test, and the remedies
+    from cfa_tool.assessment import normality
     from cfa_tool.reporting.tables import normality_lines
 
-    p = len(cfa_tool.parse_model(rider_model).observed_names)
-    monkeypatch.setattr(sizes, "MATRIX_BYTES", (p + p * (p + 1) // 2) ** 2 * 8 - 1)
+    def unsolved(*_args, **_kwargs):
+        raise np.linalg.LinAlgError("the information of the saturated covariances is not positive definite")
+
+    monkeypatch.setattr(normality, "information_quadratic", unsolved)
     full = cfa_tool.fit(rider_model, rider_demo, missing="full-information")
     assert full.groups[0].normality is None
     [line] = normality_lines(full)

@@ -117,12 +117,16 @@ def test_rows_with_gaps_are_judged_on_the_items_they_answered():
 
 
 def test_tails_that_cannot_be_judged_are_said_so(monkeypatch):
-    # the kurtosis of rows with gaps needs the information of the covariances (6 items: 27 x 27 with the means);
-    # with the largest matrix the tool makes set below that, it cannot be computed and the note says so
-    from cfa_tool.numerics import sizes
+    # the kurtosis of rows with gaps needs the information of the covariances to be positive definite (before s25 also
+    # to fit within the largest matrix the tool makes, which it no longer forms); where it cannot be solved, the
+    # tails cannot be judged and the note says so
+    from cfa_tool.assessment import normality
+
+    def unsolved(*_args, **_kwargs):
+        raise np.linalg.LinAlgError("the information of the saturated covariances is not positive definite")
 
     gaps = _gap_in_every_row(_rows(heavy=True))
-    monkeypatch.setattr(sizes, "MATRIX_BYTES", 27 * 27 * 8 - 1)
+    monkeypatch.setattr(normality, "information_quadratic", unsolved)
     found = cfa_tool.invariance(MODEL, gaps, group="site")
     notes = " ".join(" ".join(str(n).split()) for n in found.notes)
     assert not any("heavier tails than normal ones (Mardia's multivariate kurtosis) in" in str(w) for w in found.warnings)
