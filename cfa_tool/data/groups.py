@@ -271,7 +271,8 @@ def small_group_words(small: tuple[SmallGroup, ...], column: str, kept: int, nam
     group.  ``kept``: the rows of the other groups that the advised run analyses (complete rows with listwise
     deletion, rows with any answer with full-information ML: :func:`usable_rows`; new-user trial s19, which was
     promised the other groups' 855 rows and analysed their 251 complete ones); ``named`` False: one group, which the
-    words beside them name (a check's caution of that group)."""
+    words beside them name (a check's caution of that group); ``labels``: every group's label, among which the
+    groups are named by the one rule of group labels (language.names.written_group)."""
     one = len(small) == 1
     only = "only " if small[0].rows else ""
     if one and not named:

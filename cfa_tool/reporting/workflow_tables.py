@@ -18,7 +18,7 @@ from cfa_tool.data.halves import REPLICATE_NAMES, halves_named_alike
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
-from cfa_tool.note_parts import Command, Name, Note, TableReference, Text, joined
+from cfa_tool.note_parts import Command, Name, Note, TableReference, Text, capitalised, joined
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANGE_WHY, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
@@ -65,6 +65,13 @@ def _in_group(problem, result) -> str:
     return "" if problem.group is None else f"group {written_group(problem.group, group_labels(result))}: "
 
 
+def _named_line(name: str, rest: str, given: bool) -> Text:
+    """A line that starts with what names a fit: a model's name as given (``given``: note_parts.Name, which no
+    sentence's capital recases; s24: 'One' for a model file 'one.cfa'), or words naming it ('the calibration fit on
+    ...') as a sentence starts them."""
+    return Note((Name(name), rest)) if given else capitalised(name + rest)
+
+
 def _failed_lines(named_results) -> list[Text]:
     """One line per model that could not be estimated, with the problems that say why first (fewer rows than free
     parameters, a group smaller than its model), as fit names them when it stops: problems first in every view."""
@@ -81,9 +88,10 @@ def _failed_lines(named_results) -> list[Text]:
                if failure is not None and failure.kind is ProblemKind.UNBOUNDED_HEYWOOD else
                r.message if failure is not None and failure.kind is ProblemKind.NOT_IDENTIFIED else
                "its estimation did not converge (" + r.message + ")")
-        lines.append(f"{name} could not be estimated: " + why + "; nothing of it is a result, and no model is tested "
-                     "against it." + advice)
-        lines += [f"{name}: " + _in_group(p, r) + p.line() for p in r.problems
+        # the model's name as given at the line's start (note_parts.Name: no sentence's capital recases it)
+        lines.append(_named_line(name, " could not be estimated: " + why + "; nothing of it is a result, and no "
+                                 "model is tested against it." + advice, True))
+        lines += [_named_line(name, ": " + _in_group(p, r), True) + p.line() for p in r.problems
                   if p.kind in (ProblemKind.SMALL_SAMPLE, ProblemKind.SMALL_GROUP)]
     return lines
 
@@ -127,7 +135,7 @@ def _ladder_caution_lines(named_steps) -> list[Text]:
 
 
 def _caution_lines(named_results, poor_fit: bool = True, small_groups: bool = True,
-                   only: tuple[ProblemKind, ...] | None = None) -> list[str]:
+                   only: tuple[ProblemKind, ...] | None = None, given: bool = True) -> list[Text]:
     """One line per caution about a solution that is admissible but needs care in reading (a method factor that
     carries next to nothing, a standardized loading above 1, fewer rows than free parameters in the sample or a
     group, a fit poor by common bounds, unless ``poor_fit`` is False: an invariance test judges its configural
@@ -138,14 +146,15 @@ def _caution_lines(named_results, poor_fit: bool = True, small_groups: bool = Tr
     unnamed, the caution on a baseline model that misfits little, which bounds the CFI and TLI of every model of
     the same rows alike (assessment.admissibility.uninformative_baseline_problems: a fit says it, and a comparison
     or a ladder printed CFI and TLI without it).  ``only``: these kinds alone (an invariance ladder's later steps:
-    what their own fits could not compute)."""
+    what their own fits could not compute); ``given``: the fits are named by the models' names as given, else by
+    words (:func:`_named_line`)."""
     kinds = only if only is not None else SOLUTION_CAUTIONS + (
         (ProblemKind.SMALL_GROUP,) if small_groups else ()) + ((ProblemKind.POOR_FIT,) if poor_fit else ())
     lines: list[str] = []
     baseline: list[str] = []
     for name, r in named_results:
         for p in getattr(r, "problems", ()) if r.converged else ():
-            line = f"{name}: " + _in_group(p, r) + p.line()
+            line = _named_line(name, ": " + _in_group(p, r), given) + p.line()
             if p.kind in kinds and line not in lines:
                 lines.append(line)
             elif only is None and p.kind is ProblemKind.UNINFORMATIVE_BASELINE and not baseline:
@@ -153,10 +162,11 @@ def _caution_lines(named_results, poor_fit: bool = True, small_groups: bool = Tr
     return lines + baseline
 
 
-def _design_caution_lines(named_results) -> list[str]:
+def _design_caution_lines(named_results, given: bool = True) -> list[Text]:
     """The sampling design's cautions (too few clusters, a small effective sample) of several fits of the same rows,
     once (admissibility.design_cautions), named by their fit when the fits' cautions differ (e.g. 'no more than the 78
-    free parameters' of one model only), with the other fits that have cautions of their own."""
+    free parameters' of one model only), with the other fits that have cautions of their own; ``given``: the fits are
+    named by the models' names as given, else by words (:func:`_named_line`)."""
     most, problems = design_cautions([r for _, r in named_results])
     if most is None:
         return []
@@ -170,11 +180,12 @@ def _design_caution_lines(named_results) -> list[str]:
     # factor) under its own name (re-check s18: one model's extreme factor, 0.407, was said of the other, 0.651)
     same = [n for n, found in own if n != name and (found == problems or steps_of_one_model)]
     # a model's name keeps its case at the line's start (note_parts.Name: no sentence's capital recases it)
-    whose = Note((Name(name), f" (the model with the most free parameters{'; ' + word_list(same) + ' too' if same else ''}): "))
+    whose = _named_line(name, f" (the model with the most free parameters{'; ' + word_list(same) + ' too' if same else ''}): ",
+                        given)
     lines = [whose + p.line() for p in problems]
     for other, found in own:
         if other != name and found != problems and not steps_of_one_model:
-            lines += [Note((Name(other), ": ")) + p.line() for p in found]
+            lines += [_named_line(other, ": ", given) + p.line() for p in found]
     return lines
 
 
@@ -947,7 +958,7 @@ def invariance_report(result) -> Report:
     inadmissible = any(s.result.converged and not s.result.admissible for s in result.steps)
     first = result.steps[0].result
     # the design's caution first: it doubts every step's test, the verdicts among the warnings included
-    warnings = (tuple(_design_caution_lines([(f"the {s.level} model", s.result) for s in result.steps]))
+    warnings = (tuple(_design_caution_lines([(f"the {s.level} model", s.result) for s in result.steps], given=False))
                 + tuple(_reversed_in_group_lines(first, result.groups))
                 # every step's solution's cautions (two factors that correlate nearly 1, a robust test that could not
                 # be computed: its dashes in the tables), once each, with the steps that have them: first, as fit
@@ -1003,7 +1014,7 @@ def replication_report(replications) -> Report:
         named = [(f"the calibration fit on {rep.calibration}", rep.calibration_result),
                  (f"the loose refit on {rep.validation}", rep.loose)]
         problems += _problem_lines(named)
-        cautions += _caution_lines(named)
+        cautions += _caution_lines(named, given=False)
         cautions += _reversed_loading_lines(rep)
         cal = _replication_figures(rep.calibration_result, rep.adjusted)
         total = rep.calibration_result.n_obs + rep.loose.n_obs
