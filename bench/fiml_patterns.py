@@ -60,6 +60,9 @@ PIECES = {
     "  score tests (modification indices)": ("cfa_tool.pipeline.continuous", "modification_indices", None),
     "  baseline model": ("cfa_tool.estimation.fiml", "fiml_baseline", None),
     "  case diagnostics and other group diagnostics": ("cfa_tool.pipeline.continuous", "_group_diagnostics", None),
+    "    case diagnostics (rows with gaps)": ("cfa_tool.pipeline.continuous", "incomplete_case_diagnostics", None),
+    "  Little's test (missing completely at random)": ("cfa_tool.pipeline.continuous", "_completely_at_random", None),
+    "  kurtosis with gaps (Mardia's, rows with gaps)": ("cfa_tool.pipeline.continuous", "_kurtosis_with_gaps", None),
     "to_dict()": (None, None, None),
 }
 
