@@ -148,7 +148,8 @@ def refuse_large_patterns(patterns: int, side: int, items: int) -> None:
     (speed-s25), so the stacks a fit makes whole are the inverses of Mardia's kurtosis of rows with gaps
     (assessment.normality.kurtosis_with_gaps: at 100 items and 1,500 rows the default fit's traced peak, 919 MB) and,
     on the robust routes, the scatter, A_k, A_k T_k A_k and T_k (about five at once).  Before, every evaluation held
-    several such stacks and the search's V' A_k V, wider still: 7-8.5 times a stack, 1.13 GB at 100 items.  ``side``: the columns of the rows, ``items``: the items (and missing-data helpers) of the rows."""
+    several such stacks and the search's V' A_k V, wider still: 7-8.5 times a stack, 1.13 GB at 100 items.
+    ``side``: the columns of the rows, ``items``: the items (and missing-data helpers) of the rows."""
     from cfa_tool.errors import EstimationError
     from cfa_tool.numerics import sizes
     from cfa_tool.options import Option
@@ -157,8 +158,8 @@ def refuse_large_patterns(patterns: int, side: int, items: int) -> None:
         return
     raise EstimationError(
         f"full-information ML holds one matrix of the {items} analysed columns by themselves for each pattern of "
-        f"missing answers (which columns a row answered) in its test of multivariate kurtosis and its robust routes, up to five such "
-        f"stacks at once; the {patterns:,} patterns of "
+        f"missing answers (which columns a row answered) in its test of multivariate kurtosis and its robust routes, "
+        f"up to five such stacks at once; the {patterns:,} patterns of "
         f"these rows make each stack {patterns:,} matrices of {side} x {side}, "
         f"{sizes.stack_too_large_words(patterns, side)}; "
         f"fit the items in smaller sets, or keep only the complete rows ({Option.INCOMPLETE_ROWS.given('listwise')}) "
@@ -316,7 +317,8 @@ class PatternBases:
     where V' A_k V from the embedded A_k took p r (p + r) a pattern (the rows and columns A_k leaves at zero come out
     zero to rounding).  A chunk holds at most :data:`CHUNK_BYTES` (32 MiB): the whole stack was 173 MB at 100 items and
     1,500 rows with gaps everywhere, and held with several others of its size.  Iterating gives the patterns' matrices
-    one by one in the patterns' order; :meth:`chunks` gives (first pattern, stop, their stack)."""
+    one by one in the patterns' order; :meth:`chunks` gives (first pattern, stop, their stack) (the score tests);
+    :attr:`factors`, the rank-m form in which the information and the Hessian take their sums."""
 
     def __init__(self, inverses: PatternInverses, V: np.ndarray):
         self.inverses = inverses
@@ -326,6 +328,15 @@ class PatternBases:
         self.patterns = len(inverses.logdet)
         r = V.shape[1]
         self.step = max(1, CHUNK_BYTES // (8 * r * r))
+
+    @cached_property
+    def factors(self) -> tuple:
+        """(patterns, F) for each batch of the inverses (the patterns missing m > 0 items), F of shape (k, m, r) with
+        R_k' C_k R_k = F_k' F_k (F_k = H_k' R_k, C_k = H_k H_k' by Cholesky), so that K_k = K0 - F_k' F_k: the
+        rank-m form of the patterns' V' A_k V in which the sums over the patterns are taken
+        (estimation.fiml.low_rank_trace_sum and its neighbours), m r a pattern to hold."""
+        return tuple((which, np.swapaxes(np.linalg.cholesky(C), 1, 2) @ self.LV[miss])
+                     for which, miss, C in self.inverses.batches)
 
     def chunks(self):
         for start in range(0, self.patterns, self.step):
