@@ -83,25 +83,16 @@ def child(items: int, rows: int, share: float) -> dict:
 
     import cfa_tool
     from cfa_tool.numerics.threads import one_blas_thread
+    from extras_profile import thread_timed  # the bench's one timing wrapper
 
     warnings.filterwarnings("ignore")
     spent: dict[str, float] = defaultdict(float)
-
-    def timed(name, fn):
-        def wrapper(*args, **kwargs):
-            start = time.thread_time()
-            try:
-                return fn(*args, **kwargs)
-            finally:
-                spent[name] += time.thread_time() - start
-        return wrapper
-
     for name, (module, attribute, owner) in PIECES.items():
         if module is None:
             continue
         target = importlib.import_module(module)
         target = getattr(target, owner) if owner else target
-        setattr(target, attribute, timed(name, getattr(target, attribute)))
+        setattr(target, attribute, thread_timed(name, getattr(target, attribute), spent))
     text, frame = gapped(items, rows, share)
     patterns = len(np.unique(~np.isnan(frame.to_numpy()), axis=0))
     with one_blas_thread():
