@@ -42,23 +42,25 @@ PIECES = {  # name in the report: (module, attribute)
     "  case diagnostics": (continuous, "case_diagnostics"),
     "_summary": (continuous, "_summary"),
 }
-spent: dict[str, list[float]] = defaultdict(list)
+spent: dict[str, float] = defaultdict(float)  # seconds of each piece since it was last cleared
 
 
-def timed(name, fn):
+def thread_timed(name: str, fn, into: dict[str, float] = spent):
+    """``fn`` wrapped so that the processor time of the calling thread in each call (``time.thread_time``) is added to
+    ``into[name]`` (a defaultdict(float)): the one timing wrapper of the bench's profiles (bench/fiml_patterns.py too)."""
     def wrapper(*args, **kwargs):
         start = time.thread_time()
         try:
             return fn(*args, **kwargs)
         finally:
-            spent[name][-1] += time.thread_time() - start
+            into[name] += time.thread_time() - start
     return wrapper
 
 
 def install() -> None:
     for name, (module, attribute) in PIECES.items():
-        setattr(module, attribute, timed(name, getattr(module, attribute)))
-    results.FitResult.to_dict = timed("to_dict()", results.FitResult.to_dict)
+        setattr(module, attribute, thread_timed(name, getattr(module, attribute)))
+    results.FitResult.to_dict = thread_timed("to_dict()", results.FitResult.to_dict)
 
 
 def data_for(items: int):
@@ -85,13 +87,12 @@ def main() -> None:
         pieces = {call: defaultdict(list) for call in calls}
         for _ in range(args.fits + 2):
             for call, run in calls.items():
-                for name in names:
-                    spent[name].append(0.0)
+                spent.clear()
                 start = time.thread_time()
                 run()
                 whole[call].append(time.thread_time() - start)
                 for name in names:
-                    pieces[call][name].append(spent[name][-1])
+                    pieces[call][name].append(spent[name])
         # the first two fits of each size warm the caches and the model's layouts
         table[items] = {(call, name): statistics.median(pieces[call][name][2:]) for call in calls for name in names}
         for call in calls:

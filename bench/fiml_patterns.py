@@ -60,6 +60,9 @@ PIECES = {
     "  score tests (modification indices)": ("cfa_tool.pipeline.continuous", "modification_indices", None),
     "  baseline model": ("cfa_tool.estimation.fiml", "fiml_baseline", None),
     "  case diagnostics and other group diagnostics": ("cfa_tool.pipeline.continuous", "_group_diagnostics", None),
+    "    case diagnostics (rows with gaps)": ("cfa_tool.pipeline.continuous", "incomplete_case_diagnostics", None),
+    "  Little's test (missing completely at random)": ("cfa_tool.pipeline.continuous", "_completely_at_random", None),
+    "  kurtosis with gaps (Mardia's, rows with gaps)": ("cfa_tool.pipeline.continuous", "_kurtosis_with_gaps", None),
     "to_dict()": (None, None, None),
 }
 
@@ -80,25 +83,16 @@ def child(items: int, rows: int, share: float) -> dict:
 
     import cfa_tool
     from cfa_tool.numerics.threads import one_blas_thread
+    from extras_profile import thread_timed  # the bench's one timing wrapper
 
     warnings.filterwarnings("ignore")
     spent: dict[str, float] = defaultdict(float)
-
-    def timed(name, fn):
-        def wrapper(*args, **kwargs):
-            start = time.thread_time()
-            try:
-                return fn(*args, **kwargs)
-            finally:
-                spent[name] += time.thread_time() - start
-        return wrapper
-
     for name, (module, attribute, owner) in PIECES.items():
         if module is None:
             continue
         target = importlib.import_module(module)
         target = getattr(target, owner) if owner else target
-        setattr(target, attribute, timed(name, getattr(target, attribute)))
+        setattr(target, attribute, thread_timed(name, getattr(target, attribute), spent))
     text, frame = gapped(items, rows, share)
     patterns = len(np.unique(~np.isnan(frame.to_numpy()), axis=0))
     with one_blas_thread():

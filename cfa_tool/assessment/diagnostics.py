@@ -24,7 +24,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from cfa_tool.assessment.held_rows import HeldRows
-from cfa_tool.assessment.normality import Whitened, answered_distances, whitened_rows
+from cfa_tool.assessment.normality import Whitened, whitened_rows
 from cfa_tool.data.kept_rows import ROW_NAMED_BY, RowNaming
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.linalg import spd_inverse
@@ -196,13 +196,11 @@ def incomplete_case_diagnostics(rows: np.ndarray, mean: np.ndarray, sigma: np.nd
     ``sigma`` are the fitted model's, ``saturated`` the EM means and covariances (Yuan & Bentler 2000; Enders 2010).
     The shares sum over the rows to the full-information chi-square of the group; under ``frequencies`` (frequency
     weights) each row's share is weighted, as its casewise likelihood is."""
-    from cfa_tool.data.patterns import group_patterns
-
     observed = ~np.isnan(rows)
     answered = observed.sum(axis=1)
-    patterns = group_patterns(observed)[:2]
-    d_saturated, log_det_saturated = answered_distances(rows, patterns, *saturated)
-    d_model, log_det_model = answered_distances(rows, patterns, mean, sigma)
+    distances = _answered_distances(rows, observed)
+    d_saturated, log_det_saturated = distances(*saturated)
+    d_model, log_det_model = distances(mean, sigma)
     share = log_det_model - log_det_saturated + d_model - d_saturated
     if frequencies is not None:
         share = share * frequencies
@@ -217,3 +215,27 @@ def incomplete_case_diagnostics(rows: np.ndarray, mean: np.ndarray, sigma: np.nd
         return Cases(*(None if c is None else tuple(c[sl]) for c in found))
 
     return part(slice(None, shown)), part(slice(shown, None))
+
+
+def _answered_distances(rows: np.ndarray, observed: np.ndarray):
+    """A function of (mean, sigma) giving each row's squared Mahalanobis distance on the items it answered and
+    log|Sigma_oo| of those items, d_i = (x_o - mu_o)' Sigma_oo^-1 (x_o - mu_o) (Yuan & Bentler 2000; Enders 2010,
+    ch. 10), every pattern's Sigma_oo^-1 in the Schur complement's low-rank form (data.patterns.PatternInverses:
+    one p x p inverse and each pattern's block of missing items, no stack of one p x p matrix per pattern); the rows'
+    patterns and their batches found once for both moments.  Raises LinAlgError where Sigma or some Sigma_oo is not
+    positive definite."""
+    from cfa_tool.data.patterns import (batch_members, group_patterns, inverse_quadratic_forms, missing_groups,
+                                        pattern_inverses)
+
+    distinct, index, _ = group_patterns(observed)
+    missing = list(missing_groups(distinct))
+    members = batch_members(missing, index)
+
+    def distances(mean: np.ndarray, sigma: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        inverses = pattern_inverses(sigma, distinct, missing)
+        if inverses is None:
+            raise np.linalg.LinAlgError("an implied covariance matrix of answered items is not positive definite")
+        dev = np.where(observed, rows - mean, 0.0)
+        return inverse_quadratic_forms(inverses, dev, members), inverses.logdet[index]
+
+    return distances

@@ -7,8 +7,9 @@ with mu and Sigma the maximum-likelihood estimates of the unrestricted normal mo
 the full-information fit already has), ybar_j the mean of pattern j's n_j rows on the p_j items they answered, and
 mu_j, Sigma_jj the parts of mu and Sigma for those items (Little 1988, J. Amer. Statist. Assoc. 83, 1198-1202,
 eq. 5).  Under MCAR and normality d^2 is approximately chi-square on df.  The patterns' counts and means come
-grouped (data.patterns.PatternData) and Sigma_jj^-1 of every pattern from one precision matrix
-(data.patterns.embedded_inverse), so the test costs one p x p inverse and one small block per pattern.
+grouped (data.patterns.PatternData) and Sigma_jj^-1 of every pattern from one precision matrix in the Schur
+complement's low-rank form (data.patterns.PatternInverses), so the test costs one p x p inverse and one small block per
+pattern, and no stack of one p x p matrix per pattern is made.
 """
 
 from __future__ import annotations
@@ -69,16 +70,17 @@ def little_distance(data: PatternData, mu: np.ndarray, sigma: np.ndarray) -> tup
     """(d^2, df) of Little's (1988) test for one sample's patterns ``data`` and its EM estimates ``mu``, ``sigma``
     (rows weighted by frequency weights count as often as their weight: ``data.counts`` are then sums of weights).
     NaN for d^2 where Sigma is not positive definite."""
-    from cfa_tool.data.patterns import embedded_inverse  # (the report's words alone do not load it)
+    # (the report's words alone do not load them)
+    from cfa_tool.data.patterns import batch_members, inverse_quadratic_forms, pattern_inverses
 
     p = len(mu)
     df = int(data.observed.sum()) - p
-    found = embedded_inverse(sigma, data.observed)
-    if found is None:
+    inverses = pattern_inverses(sigma, data.observed)  # Sigma_jj^-1 of each pattern in the Schur complement's form
+    if inverses is None:
         return float("nan"), df
-    inverse = found[0]  # Sigma_jj^-1 of each pattern embedded in p x p, zeros outside its answered items
     dev = np.where(data.observed, data.means - mu, 0.0)
-    d2 = float(np.einsum("j,ja,jab,jb->", data.counts, dev, inverse, dev))
+    members = batch_members(inverses.batches, np.arange(len(dev)))  # each pattern's mean its own row
+    d2 = float(data.counts @ inverse_quadratic_forms(inverses, dev, members))
     return d2, df
 
 

@@ -144,11 +144,12 @@ def refuse_large_patterns(patterns: int, side: int, items: int) -> None:
     one side x side matrix per pattern of missing answers would exceed the one limit of a matrix of
     :mod:`cfa_tool.numerics.sizes`, before any is made.  What a fit holds (speed-s24, bench/fiml_patterns.py): its
     search keeps every pattern's inverse in the low-rank form of :class:`PatternInverses` and makes V' A_k V a chunk
-    of at most :data:`CHUNK_BYTES` at a time, so the stacks a fit makes whole are the case diagnostics' inverses
-    (the whole default fit's traced peak at 100 items and 1,500 rows, one pattern a row, was 293 MB: 2.4 times its
-    stack of 120 MB) and, on the robust routes, the scatter, A_k, A_k T_k A_k and T_k (about five at once).  Before,
-    every evaluation held several such stacks and the search's V' A_k V, wider still: 7-8.5 times a stack, 1.13 GB at
-    100 items.  ``side``: the columns of the rows, ``items``: the items (and missing-data helpers) of the rows."""
+    of at most :data:`CHUNK_BYTES` at a time, and the case diagnostics and Little's test read the same low-rank form
+    (speed-s25), so the stacks a fit makes whole are the inverses of Mardia's kurtosis of rows with gaps
+    (assessment.normality.kurtosis_with_gaps: at 100 items and 1,500 rows the default fit's traced peak, 919 MB) and,
+    on the robust routes, the scatter, A_k, A_k T_k A_k and T_k (about five at once).  Before, every evaluation held
+    several such stacks and the search's V' A_k V, wider still: 7-8.5 times a stack, 1.13 GB at 100 items.
+    ``side``: the columns of the rows, ``items``: the items (and missing-data helpers) of the rows."""
     from cfa_tool.errors import EstimationError
     from cfa_tool.numerics import sizes
     from cfa_tool.options import Option
@@ -157,8 +158,8 @@ def refuse_large_patterns(patterns: int, side: int, items: int) -> None:
         return
     raise EstimationError(
         f"full-information ML holds one matrix of the {items} analysed columns by themselves for each pattern of "
-        f"missing answers (which columns a row answered) in its case diagnostics and robust routes, up to five such "
-        f"stacks at once; the {patterns:,} patterns of "
+        f"missing answers (which columns a row answered) in its test of multivariate kurtosis and its robust routes, "
+        f"up to five such stacks at once; the {patterns:,} patterns of "
         f"these rows make each stack {patterns:,} matrices of {side} x {side}, "
         f"{sizes.stack_too_large_words(patterns, side)}; "
         f"fit the items in smaller sets, or keep only the complete rows ({Option.INCOMPLETE_ROWS.given('listwise')}) "
@@ -276,6 +277,23 @@ def applied_inverses(inverses: PatternInverses, x: np.ndarray, members: list, ob
     return np.where(observed, u, 0.0)
 
 
+def inverse_quadratic_forms(inverses: PatternInverses, x: np.ndarray, members: list) -> np.ndarray:
+    """x_i' A_k x_i for each row x_i of ``x`` (zeros on the items its pattern k misses), A_k = Sigma_oo^-1 embedded
+    (:class:`PatternInverses`; ``members``: :func:`batch_members` of the rows): with v = x L, x' L x less
+    v_m' C_k v_m, since x is zero on m, so that (L x)_m = L_mo x_o and x_o' Sigma_oo^-1 x_o = x_o' L_oo x_o -
+    x_o' L_om C_k L_mo x_o (the partitioned inverse; Little & Rubin 2002, ch. 11).  n p^2 + n m^2 for n rows, where
+    the embedded stack took a p x p matrix a pattern to hold and n p^2 to read: the squared Mahalanobis distances of
+    rows on their answered items (the case diagnostics) and of the patterns' means (Little's test)."""
+    v = x @ inverses.precision
+    d = np.einsum("ij,ij->i", x, v)
+    for (_, miss, C), (rows, at) in zip(inverses.batches, members):
+        if not len(rows):
+            continue
+        z = v[rows[:, None], miss[at]]  # (n_b, m) (L x)_m of each row
+        d[rows] -= np.einsum("ri,rij,rj->r", z, C[at], z)
+    return d
+
+
 def weighted_inverse_sum(inverses: PatternInverses, observed: np.ndarray, w: np.ndarray) -> np.ndarray:
     """sum_k w_k A_k (A_k = Sigma_oo^-1 embedded, :class:`PatternInverses`) from L restricted to each pattern's
     answered pairs, less each pattern's side' C_k side with side = L_m. on its answered columns: one matrix product
@@ -299,7 +317,8 @@ class PatternBases:
     where V' A_k V from the embedded A_k took p r (p + r) a pattern (the rows and columns A_k leaves at zero come out
     zero to rounding).  A chunk holds at most :data:`CHUNK_BYTES` (32 MiB): the whole stack was 173 MB at 100 items and
     1,500 rows with gaps everywhere, and held with several others of its size.  Iterating gives the patterns' matrices
-    one by one in the patterns' order; :meth:`chunks` gives (first pattern, stop, their stack)."""
+    one by one in the patterns' order; :meth:`chunks` gives (first pattern, stop, their stack) (the score tests);
+    :attr:`factors`, the rank-m form in which the information and the Hessian take their sums."""
 
     def __init__(self, inverses: PatternInverses, V: np.ndarray):
         self.inverses = inverses
@@ -309,6 +328,15 @@ class PatternBases:
         self.patterns = len(inverses.logdet)
         r = V.shape[1]
         self.step = max(1, CHUNK_BYTES // (8 * r * r))
+
+    @cached_property
+    def factors(self) -> tuple:
+        """(patterns, F) for each batch of the inverses (the patterns missing m > 0 items), F of shape (k, m, r) with
+        R_k' C_k R_k = F_k' F_k (F_k = H_k' R_k, C_k = H_k H_k' by Cholesky), so that K_k = K0 - F_k' F_k: the
+        rank-m form of the patterns' V' A_k V in which the sums over the patterns are taken
+        (estimation.fiml.low_rank_trace_sum and its neighbours), m r a pattern to hold."""
+        return tuple((which, np.swapaxes(np.linalg.cholesky(C), 1, 2) @ self.LV[miss])
+                     for which, miss, C in self.inverses.batches)
 
     def chunks(self):
         for start in range(0, self.patterns, self.step):

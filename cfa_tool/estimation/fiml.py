@@ -24,12 +24,16 @@ PatternInverses`), so that K_k = V' L V - R_k' C_k R_k (R_k = (L V)_m: m r (m + 
 p r (p + r)), and the sums in T_k are sums over the rows: with u_i = A_k (x_i - mu),
     sum_k w_k tr(A_k T_k) = (1/N) sum_i e_i' u_i,   sum_k w_k A_k T_k A_k = (1/N) sum_i u_i u_i',
     Q_k = V' A_k T_k A_k V = (1/n_k) sum_{i in k} (V' u_i)(V' u_i)'
-(n p^2 for all rows, where A_k T_k A_k took 2 p^3 a pattern); the joint model of missing-data helpers and its baseline
-give their own basis (``rank_two_layout``, :mod:`cfa_tool.estimation.auxiliary`) and take the same gathers.  The
-information in the moments themselves (the robust routes and the robust score tests) is gathered from one product
-over the patterns' distinct elements (:func:`moment_second_derivatives`).  The general route, with whole (q, p, p)
-derivatives (``model.jacobian``) and that weight matrix a block at a time, is the reference both are checked
-against (tests/estimation/test_fiml_rank_two.py, tests/estimation/test_fiml_without_weight_matrix.py).
+(n p^2 for all rows, where A_k T_k A_k took 2 p^3 a pattern).  The sums over the patterns of products of the K_k's
+entries (the information's and the Hessian's traces) are taken in the rank-m form K_k = K0 - F_k' F_k (speed-s25,
+:func:`low_rank_trace_sum`): terms of K0, of sum_k w_k F_k' F_k and of the rows' V' u_i, and one symmetric product of
+the patterns' pairs of missing items, at the processor's matrix speed instead of E x E gathers a pattern.  The joint
+model of missing-data helpers and its baseline give their own basis (``rank_two_layout``,
+:mod:`cfa_tool.estimation.auxiliary`) and take the same sums.  The information in the moments themselves (the robust
+routes and the robust score tests) is gathered from one product over the patterns' distinct elements
+(:func:`moment_second_derivatives`).  The general route, with whole (q, p, p) derivatives (``model.jacobian``) and
+that weight matrix a block at a time, is the reference both are checked against (tests/estimation/test_fiml_rank_two.py,
+tests/estimation/test_fiml_without_weight_matrix.py).
 """
 
 from __future__ import annotations
@@ -140,7 +144,6 @@ class MissingDataLikelihood:
         # each row's batch of patterns and place in it, the rows sorted by pattern (for the patterns' sums over rows)
         self._members = [batch_members(m, d.index) for d, m in zip(patterns, self._missing)]
         self._pattern_members = [batch_members(m, np.arange(len(d.counts))) for d, m in zip(patterns, self._missing)]
-        self._sorted = [_pattern_runs(d.index, len(d.counts)) for d in patterns]
         self._at = None  # the last point's per-pattern pieces: (theta's bytes, {group: pieces})
 
     def _pieces(self, theta: np.ndarray, g: int):
@@ -240,8 +243,18 @@ class MissingDataLikelihood:
         g_e, _, K_bar, _ = gradient_and_information(basis, V, a, self._mean_weight(theta, g), M, mean_gradient,
                                                     with_information=False)
         s = mean_coefficients(basis, a)
-        H = pattern_trace_sum(basis, K, w) + 2.0 * np.outer(s, s) * K_bar.ravel()[basis.ww]
+        H = self._trace_sum(theta, g) + 2.0 * np.outer(s, s) * K_bar.ravel()[basis.ww]
         return g_e @ J, J.T @ H @ J
+
+    def _trace_sum(self, theta: np.ndarray, g: int) -> np.ndarray:
+        """sum_k w_k tr(A_k D_e A_k D_f) over group g's entries at theta (:func:`low_rank_trace_sum`), kept with the
+        point's pieces: the information of :meth:`evaluate` and the observed Hessian at the same point share it."""
+        kept = self._at[1]
+        if ("trace", g) not in kept:
+            _, _, w, *_ = self._pattern_state(theta, g)
+            _, _, K, basis, _ = self._rank_two_pieces(theta, g)
+            kept[("trace", g)] = low_rank_trace_sum(basis, K, w)
+        return kept[("trace", g)]
 
     @property
     def score_route(self) -> ScoreRoute:
@@ -304,13 +317,16 @@ class MissingDataLikelihood:
     def _rank_two_hessian(self, theta: np.ndarray, g: int, state) -> np.ndarray:
         """:func:`first_order_hessian`'s terms in theta from rank-two gathers: with K_k = V' A_k V, Q_k = V' (A T A)_k V
         and (V' A d)_k per pattern, each trace a sum over the patterns of products of their entries (the formulas of
-        :mod:`cfa_tool.model.rank_two`, pattern by pattern)."""
+        :mod:`cfa_tool.model.rank_two`), taken in the rank-m form K_k = K0 - F_k' F_k (:func:`low_rank_trace_sum`,
+        :func:`low_rank_cross_sum` over the rows, :func:`low_rank_mean_sum`): no pattern's Q_k is made."""
         _, _, w, _, Ad, _, _ = state
         V, a, K, basis, J = self._rank_two_pieces(theta, g)
         s = mean_coefficients(basis, a)
-        same = pattern_trace_sum(basis, K, w)
-        mixed = pattern_cross_sum(basis, K, self._row_bases(theta, g, V), w)
-        cross = pattern_mean_sum(basis, K, Ad @ V, w, s)
+        data = self.patterns[g]
+        same = self._trace_sum(theta, g)
+        mixed = low_rank_cross_sum(basis, K, self._pieces(theta, g)[5] @ V, data.row_weights / data.n_obs,
+                                   self._members[g])
+        cross = low_rank_mean_sum(basis, K, Ad @ V, w, s)
         K_bar = V.T @ self._mean_weight(theta, g) @ V
         H = (-same + (mixed + mixed.T) + 2.0 * (cross + cross.T) + 2.0 * np.outer(s, s) * K_bar.ravel()[basis.ww])
         return J.T @ H @ J
@@ -343,20 +359,6 @@ class MissingDataLikelihood:
             Ad = applied_inverses(inv, dev, self._pattern_members[g], data.observed)
             kept[("state", g)] = mats, inv, w, M, Ad, -2.0 * w @ Ad, mean_weight
         return kept[("state", g)]
-
-    def _row_bases(self, theta: np.ndarray, g: int, V: np.ndarray):
-        """Q_k = V' A_k T_k A_k V for each pattern in turn (a generator: no stack of them is made), as the weighted mean
-        over the pattern's rows of (V' u_i)(V' u_i)' (u_i = A_k (x_i - mu)): n r^2 over the rows, where V' (A T A)_k V
-        from the patterns' stacks took p^2 (p + r) a pattern and made two stacks of p x p matrices."""
-        pieces = self._pieces(theta, g)
-        data = self.patterns[g]
-        order, starts = self._sorted[g]
-        z = pieces[5][order] @ V
-        weights = data.row_weights[order]
-        stops = np.append(starts[1:], len(order))
-        for k, (r0, r1) in enumerate(zip(starts, stops)):
-            rows = z[r0:r1]
-            yield (rows * (weights[r0:r1] / data.counts[k])[:, None]).T @ rows
 
     def group_parts(self, theta: np.ndarray, g: int) -> MissingParts | None:
         state = self._pattern_state(theta, g)
@@ -584,61 +586,107 @@ def pattern_pair_sums(basis, K: np.ndarray, w: np.ndarray):
         yield entries, np.matmul(left, right)
 
 
-def pattern_trace_sum(basis, K, w: np.ndarray) -> np.ndarray:
-    """sum_k w_k tr(A_k D_e A_k D_f) over the entries of ``basis`` (:mod:`cfa_tool.model.rank_two`), K the patterns'
-    V' A_k V: sum_k w_k 2 c_e c_f (K_k[u_e, u_f] K_k[v_e, v_f] + K_k[u_e, v_f] K_k[v_e, u_f]); pattern by pattern,
-    each's E x E gathers small enough to stay in the processor's caches, for the entries with a covariance part (``K``:
-    any iterable of the K_k in the patterns' order, such as :class:`~cfa_tool.data.patterns.PatternBases`)."""
+#: the most bytes of the products of one chunk of patterns :func:`low_rank_trace_sum` makes at once: small enough for
+#: the processor's caches (at 100 items' shapes, one call's processor time 0.34-0.35 s with chunks of 256-512 KiB,
+#: 0.45 s with 1 MiB, 1.7 s with 32 MiB; the gathers pattern by pattern took 0.86 s)
+LOW_RANK_BYTES = 1 << 19
+
+
+def _pair_products(A: np.ndarray, B: np.ndarray, u: np.ndarray, v: np.ndarray) -> np.ndarray:
+    """A[u_e, u_f] B[v_e, v_f] + A[u_e, v_f] B[v_e, u_f] for the entries e, f (rows and columns)."""
+    return A[np.ix_(u, u)] * B[np.ix_(v, v)] + A[np.ix_(u, v)] * B[np.ix_(v, u)]
+
+
+def low_rank_trace_sum(basis, K, w: np.ndarray) -> np.ndarray:
+    """sum_k w_k tr(A_k D_e A_k D_f) over the entries of ``basis`` (:mod:`cfa_tool.model.rank_two`):
+    sum_k w_k 2 c_e c_f (K_k[u_e, u_f] K_k[v_e, v_f] + K_k[u_e, v_f] K_k[v_e, u_f]), from the rank-m
+    form K_k = K0 - F_k' F_k of the patterns' V' A_k V (:class:`~cfa_tool.data.patterns.PatternBases`, ``K``: its
+    ``factors``; m the items pattern k misses).  With T(A, B)_ef = A[u_e, u_f] B[v_e, v_f] + A[u_e, v_f] B[v_e, u_f] and
+    G = sum_k w_k F_k' F_k,
+        sum_k w_k T(K_k, K_k) = (sum_k w_k) T(K0, K0) - T(K0, G) - T(G, K0) + Y' Y,
+    where the last term, sum_k w_k sum_ij (F_ui F_uj)(F_vi F_vj)-type products, is one symmetric product of a column
+    per pattern and pair i <= j of its missing items: Y_e = sqrt(w_k) (F[i, u_e] F[j, v_e] + F[j, u_e] F[i, v_e]),
+    the pairs i = j scaled by sqrt(1/2).  E^2 m (m + 1) / 2 multiply-adds a pattern at the processor's matrix speed,
+    where the gathers pattern by pattern (speed-s24's route, replaced in speed-s25) were about ten passes over E x E
+    numbers a pattern."""
     E = len(basis.u)
     cov = np.flatnonzero(basis.c)
     u, v = basis.u[cov], basis.v[cov]
+    K0 = K.K0
+    r = len(K0)
+    G = np.zeros((r, r))
     total = np.zeros((len(cov), len(cov)))
-    for Kk, wk in zip(K, w):
-        Ku, Kv = Kk[u], Kk[v]
-        Kuv = Ku[:, v]
-        product = Ku[:, u] * Kv[:, v]
-        product += Kuv * Kuv.T
-        total += wk * product
+    for which, F in K.factors:
+        wk = w[which]
+        G += (F * wk[:, None, None]).reshape(-1, r).T @ F.reshape(-1, r)
+        iu, ju = np.triu_indices(F.shape[1])
+        scale = np.where(iu == ju, np.sqrt(0.5), 1.0)
+        step = max(1, LOW_RANK_BYTES // (8 * len(iu) * max(1, len(cov))))
+        for lo in range(0, len(which), step):
+            Fu, Fv = F[lo:lo + step][:, :, u], F[lo:lo + step][:, :, v]  # (k, m, E)
+            Y = Fu[:, iu] * Fv[:, ju]
+            Y += Fu[:, ju] * Fv[:, iu]
+            Y *= np.sqrt(wk[lo:lo + step])[:, None, None] * scale[None, :, None]
+            Y = Y.reshape(-1, len(cov))
+            total += Y.T @ Y
+    total += float(w.sum()) * _pair_products(K0, K0, u, v) - _pair_products(K0, G, u, v) - _pair_products(G, K0, u, v)
     out = np.zeros((E, E))
     out[np.ix_(cov, cov)] = 2.0 * np.outer(basis.c[cov], basis.c[cov]) * total
     return out
 
 
-def pattern_cross_sum(basis, K, Q, w: np.ndarray) -> np.ndarray:
-    """sum_k w_k tr(A_k D_e B_k D_f) over the entries of ``basis``, K and Q the patterns' V' A_k V and V' B_k V
-    (:func:`cfa_tool.model.rank_two.cross_term`, pattern by pattern; Q may be any iterable of them in the patterns'
-    order, made one at a time)."""
+def low_rank_cross_sum(basis, K, z: np.ndarray, row_w: np.ndarray, members: list) -> np.ndarray:
+    """sum_k w_k tr(A_k D_e B_k D_f) with B_k = A_k T_k A_k (:func:`cfa_tool.model.rank_two.cross_term`, summed over
+    the patterns with Q_k = V' B_k V), from the rows: with
+    z_i = V' u_i (u_i = A_k (x_i - mu)) and the rows' weights ``row_w`` (w_k Q_k = sum_{i in k} row_w_i z_i z_i'),
+    Qbar = sum_i row_w_i z_i z_i' and K_k = K0 - F_k' F_k (:func:`low_rank_trace_sum`),
+        sum_k w_k T2(Q_k, K_k) = T2(Qbar, K0) - sum_i row_w_i P_i' P_i,
+    T2(Q, K)_ef = Q[v_e, u_f] K[u_e, v_f] + Q[v_e, v_f] K[u_e, u_f] + Q[u_e, u_f] K[v_e, v_f] + Q[u_e, v_f] K[v_e, u_f],
+    P_i[j, e] = z_i[v_e] F_k[j, u_e] + z_i[u_e] F_k[j, v_e]: E^2 m a row in one product, no pattern's Q_k made.
+    ``members``: each batch's rows and their places in it (data.patterns.batch_members)."""
     E = len(basis.u)
     cov = np.flatnonzero(basis.c)
     u, v = basis.u[cov], basis.v[cov]
-    total = np.zeros((len(cov), len(cov)))
-    for Kk, Qk, wk in zip(K, Q, w):
-        Ku, Kv, Qu, Qv = Kk[u], Kk[v], Qk[u], Qk[v]
-        Kuv = Ku[:, v]
-        product = Qv[:, u] * Kuv
-        product += Qv[:, v] * Ku[:, u]
-        product += Qu[:, u] * Kv[:, v]
-        product += Qu[:, v] * Kuv.T
-        total += wk * product
+    Qbar = (z * row_w[:, None]).T @ z
+    K0 = K.K0
+    total = (Qbar[np.ix_(v, u)] * K0[np.ix_(u, v)] + Qbar[np.ix_(v, v)] * K0[np.ix_(u, u)]
+             + Qbar[np.ix_(u, u)] * K0[np.ix_(v, v)] + Qbar[np.ix_(u, v)] * K0[np.ix_(v, u)])
+    for (_, F), (rows, at) in zip(K.factors, members):
+        if not len(rows):
+            continue
+        step = max(1, LOW_RANK_BYTES // (8 * F.shape[1] * max(1, len(cov))))
+        for lo in range(0, len(rows), step):
+            Fr, zr = F[at[lo:lo + step]], z[rows[lo:lo + step]]  # (n, m, r), (n, r)
+            P = zr[:, None, v] * Fr[:, :, u]
+            P += zr[:, None, u] * Fr[:, :, v]
+            P *= np.sqrt(row_w[rows[lo:lo + step]])[:, None, None]
+            P = P.reshape(-1, len(cov))
+            total -= P.T @ P
     out = np.zeros((E, E))
     out[np.ix_(cov, cov)] = np.outer(basis.c[cov], basis.c[cov]) * total
     return out
 
 
-def pattern_mean_sum(basis, K, VAd: np.ndarray, w: np.ndarray, s: np.ndarray) -> np.ndarray:
-    """sum_k w_k d_k' A_k D_e A_k dmu_f over the entries of ``basis``, with (V' A d)_k the rows of ``VAd``:
-    c_e s_f sum_k w_k ((V'Ad)_k[u_e] K_k[v_e, w_f] + (V'Ad)_k[v_e] K_k[u_e, w_f])."""
+def low_rank_mean_sum(basis, K, VAd: np.ndarray, w: np.ndarray, s: np.ndarray) -> np.ndarray:
+    """sum_k w_k d_k' A_k D_e A_k dmu_f over the entries of ``basis``, c_e s_f sum_k w_k ((V'Ad)_k[u_e] K_k[v_e, w_f] +
+    (V'Ad)_k[v_e] K_k[u_e, w_f]), from K_k = K0 - F_k' F_k (:func:`low_rank_trace_sum`): with abar = sum_k w_k
+    (V' A d)_k,
+        c_e s_f [abar[u_e] K0[v_e, w_f] + abar[v_e] K0[u_e, w_f] - sum_k w_k sum_j P_k[j, e] F_k[j, w_f]],
+    P_k[j, e] = (V'Ad)_k[u_e] F_k[j, v_e] + (V'Ad)_k[v_e] F_k[j, u_e]: one product over the patterns' missing items."""
     E = len(basis.u)
     cov, mean = np.flatnonzero(basis.c), np.flatnonzero(s)
     out = np.zeros((E, E))
     if not len(mean) or not len(cov):
         return out
     u, v, at = basis.u[cov], basis.v[cov], basis.w[mean]
-    total = np.zeros((len(cov), len(mean)))
-    weighted = VAd * w[:, None]
-    for Kk, ad in zip(K, weighted):
-        Kw = Kk[:, at]
-        total += ad[u][:, None] * Kw[v] + ad[v][:, None] * Kw[u]
+    abar = w @ VAd
+    K0 = K.K0
+    total = abar[u][:, None] * K0[np.ix_(v, at)] + abar[v][:, None] * K0[np.ix_(u, at)]
+    for which, F in K.factors:
+        ad = VAd[which] * w[which][:, None]  # (k, r)
+        P = ad[:, None, u] * F[:, :, v]
+        P += ad[:, None, v] * F[:, :, u]
+        total -= P.reshape(-1, len(cov)).T @ F[:, :, at].reshape(-1, len(mean))
     out[np.ix_(cov, mean)] = basis.c[cov][:, None] * total * s[mean][None, :]
     return out
 
@@ -706,14 +754,6 @@ def _trace_contract(T: np.ndarray, y_sigma: np.ndarray) -> np.ndarray:
     """sum_k w_k tr(X_k D_a Y_k E_b) for every E_b in y_sigma, T from :func:`_trace_products`."""
     kx = len(T)
     return T.reshape(kx, -1) @ y_sigma.transpose(0, 2, 1).reshape(len(y_sigma), -1).T
-
-
-def _pattern_runs(index: np.ndarray, patterns: int) -> tuple[np.ndarray, np.ndarray]:
-    """(the rows sorted by pattern, each pattern's first place among them): the layout of
-    :func:`cfa_tool.data.patterns.pattern_data`'s sums over each pattern's rows, as :meth:`MissingDataLikelihood._row_bases`
-    takes them."""
-    order = np.argsort(index, kind="stable")
-    return order, np.searchsorted(index[order], np.arange(patterns))
 
 
 def _row_blocks(rows: np.ndarray, weights: np.ndarray):

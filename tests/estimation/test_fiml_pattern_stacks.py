@@ -1,6 +1,7 @@
 """Full-information ML held one matrix of the items by themselves for each pattern of missing answers (the patterns'
 scatter, the inverses A_k, their products and the rank-two gathers K_k, about seven such stacks at once; since speed-s24
-the search makes its K_k a chunk at a time and the case diagnostics and robust routes alone make such stacks): at 200
+the search makes its K_k a chunk at a time, and since speed-s25 the case diagnostics read the low-rank form too:
+the kurtosis of rows with gaps and the robust routes alone make such stacks): at 200
 items and 2,000 rows with gaps everywhere each stack is 0.6 GB, and no limit covered them (large-s22).  A fit whose
 stack would exceed the one limit of a matrix (numerics/sizes.py) is refused in one line before any is made (exit 3);
 the scatter's rows' outer products are made a run of patterns at a time.  The limit is lowered here, so that a small
