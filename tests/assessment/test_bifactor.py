@@ -147,8 +147,12 @@ def test_the_normality_note_does_not_ask_for_the_robust_test_a_fit_already_has()
     line = " ".join(map(str, normality_lines(robust)))
     assert "each on the items it answered" in line and robust.groups[0].normality.kurtosis_p_value < 0.05
     assert "--robust" not in line and "consider" not in line
-    plain = " ".join(map(str, normality_lines(cfa_tool.fit(BIFACTOR, data))))
-    assert "The data depart from normality: consider" in plain and "--robust" in plain
+    plain_fit = cfa_tool.fit(BIFACTOR, data)
+    plain = " ".join(map(str, normality_lines(plain_fit)))
+    # the advice is the caution first's (tails-s25: answers far from normal under plain ML), the line points there
+    assert "The data depart from normality: see the caution first" in plain
+    (caution,) = [p for p in plain_fit.problems if p.kind.name == "NON_NORMAL_ANSWERS"]
+    assert "test='robust'" in str(caution.advice)  # from Python, its keyword
 
 
 def test_an_ordinal_bifactor_table_keeps_its_sum_omega_column_and_labels_the_others():
