@@ -9,7 +9,7 @@ from dataclasses import replace
 
 from cfa_tool.numbers import cut_list, user_number, count_text
 from cfa_tool.numerics.plain import journal_decimal
-from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATED, ProblemKind, design_cautions, failure_words,
+from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATED, ProblemKind, design_cautions, design_doubts, failure_words,
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.data.summary_stats import given_with
@@ -675,6 +675,11 @@ TEST_MET_NOTE = (f"'{TEST_MET}': the step met its test but rests on a step that 
                  f"cannot be read as held.")
 
 
+#: what a step's 'Holds' cell adds when the design's cautions doubt the tests and robust indices that judged it
+#: (admissibility.design_doubts; hostile s25b: 'yes' for every step beside the caution that called them unreliable)
+DOUBTED_MARK = " \u2020"
+
+
 def _verdict(holds: bool | None, result) -> str:
     """A step's 'Holds' cell: an inadmissible solution says why it does not hold."""
     if holds:
@@ -827,6 +832,7 @@ def invariance_report(result) -> Report:
                     for step in result.steps if step.partial and step.full_result is not None]
     named_levels += [(f"the {step.level} model", step.result) for step in result.steps]
     dashes = not_computed_note(named_levels)  # robust figures not computed: dashes, said under the levels' table
+    doubted = any(design_doubts(s.result) for s in result.steps)  # the paragraph's rule (invariance_paragraph)
     for k, step in enumerate(result.steps):
         inherited = any(s.freed for s in result.steps[:k])
         label = _step_label(step, inherited)
@@ -852,7 +858,7 @@ def invariance_report(result) -> Report:
         verdict = ("not tested (0 df)" if step.untested else f"{NOT_JUDGED} (did not converge)"
                    if not step.result.converged else NOT_JUDGED if step.unjudged and step.result.admissible
                    else TEST_MET if step.holds and unsound_basis(result.steps, k) is not None
-                   else _verdict(step.holds, step.result)) \
+                   else _verdict(step.holds, step.result) + (DOUBTED_MARK if doubted else "")) \
             + (" *" if step.conditional else "")
         if step.versus_previous is not None:
             cells, values = _step_cells(step.versus_previous, step.delta_srmr, step.level, dashes is not None,
@@ -891,6 +897,8 @@ def invariance_report(result) -> Report:
                       f"{s.unjudged}.", True) for s in result.steps if s.unjudged and s.result.admissible),
                    ("* tested after a step that did not hold: the comparison is between models already rejected.",
                     any(step.conditional for step in result.steps)),
+                   (f"{DOUBTED_MARK.strip()} judged by tests and robust fit indices that the sampling design leaves "
+                    f"unreliable (see the caution first): no firm finding.", doubted),
                    (cfi_not_defined_sentence(result), True),
                    (Note((f"{T.NOT_COMPUTED} in \u0394CFI or \u0394RMSEA: a robust index of a level was not computed "
                           f"(see the note under ", TableReference("levels"), ").")),

@@ -338,8 +338,9 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
             continue
         where = f" in group {e.group}" if e.group is not None else ""
         if e.kind in ("factor_variance", "residual_variance") and e.estimate == 0.0:
-            parts.append(f"the {'residual ' if e.kind == 'residual_variance' else ''}variance of {e.variables[0]} fixed "
-                         f"at 0{where}")
+            kind = ("residual " if e.kind == "residual_variance" else
+                    "disturbance " if e.variables[0] in explained else "")  # fit's word for a factor under another
+            parts.append(f"the {kind}variance of {e.variables[0]} fixed at 0{where}")
             on_boundary += 1
             # a factor's variance at 0 leaves its loadings undefined, unless it is the disturbance of a factor under
             # a higher-order factor, whose loadings the higher-order factor still defines

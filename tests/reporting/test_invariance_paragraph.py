@@ -218,6 +218,14 @@ def test_steps_judged_by_tests_the_design_doubts_are_no_findings(hs_data):
     steps = text[text.index("Metric invariance"):text.index("no step's result is a firm finding")]
     assert "did not hold" not in steps and " held (" not in steps
     assert "Metric invariance passed its difference test" in text or "Metric invariance failed its difference test" in text
+    # the configural model is judged by the robust indices the caution names too (hostile s25b), and the table's
+    # 'Holds' cells carry the mark its note explains
+    assert "The configural model met the guide values (" in text or "The configural model did not meet the guide" in text
+    steps_table = next(t for t in invariance_report(ladder).tables if t.key == "steps")
+    assert all(row[-1].rstrip(" *").endswith("\u2020") for row in steps_table.rows)
+    assert "no firm finding" in str(steps_table.note)
     plain = _text(invariance(THREE_FACTORS, hs_data, "school"))
-    assert "firm finding" not in plain and "its difference test" not in plain
+    assert "firm finding" not in plain and "passed its difference test" not in plain
+    assert "failed its difference test" not in plain and "met the guide values" not in plain
+    assert "The configural model did not hold (" in plain  # CFI about .92 against the guide of .95
     assert "Scalar invariance did not hold" in plain  # 40.06 on 6 df (the tutorial's figures above)

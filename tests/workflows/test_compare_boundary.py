@@ -367,7 +367,7 @@ def test_a_disturbance_variance_at_zero_leaves_the_loadings_defined():
     general = FOUR_FACTORS + "factor e: a, b\nfactor f: c, d\n"
     at_zero = general + "fix variance(c) = 0\nfix loading(c, y7) = 1\n"  # its marker kept, as the language asks
     (t,) = compare([at_zero, general], rows).tests
-    assert t.boundary == ("the variance of c fixed at 0",)
+    assert t.boundary == ("the disturbance variance of c fixed at 0",)  # fit's word (hostile s25b: 'the variance')
     assert t.boundary_reading is BoundaryReading.CHI_SQUARE and np.isnan(t.boundary_p_value)
     (held,) = compare([at_zero, general + "bound variance(c) >= 0\n"], rows).tests
     assert held.boundary_reading is BoundaryReading.MIXTURE
