@@ -35,7 +35,7 @@ import pandas as pd
 from scipy import optimize
 from scipy.special import ndtr  # the normal cdf over arrays in inner loops (numerics.distributions' rule)
 
-from cfa_tool.numbers import counted, cut_list, user_number
+from cfa_tool.numbers import counted, cut_list, user_number, word_list
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.plain import journal_decimal
 
@@ -486,6 +486,8 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         raise DataError(f"{source}{where}: the polychoric correlation matrix is not positive definite: "
                         f"{sparse.words}, and need not fit with the other correlations, each from other rows"
                         f"{sparse.remedy(bool(where))}")
+    if np.linalg.eigvalsh(R)[0] <= 1e-8 and pairwise and not present.all() and not rare:
+        raise DataError(_pairs_apart_words(source, where, R, present, names))
     if np.linalg.eigvalsh(R)[0] <= 1e-8:
         complete = int(present.all(axis=1).sum())
         gaps = pairwise and not present.all() and complete > p  # listwise deletion keeps enough rows to work
@@ -502,6 +504,40 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                           R, gamma, codes, means, sds, frozenset(continuous), joint_gamma,
                           pair_counts if pairwise else None, rows_design,
                           joint if rows_design is not None else None, mixed_gamma)
+
+
+#: an item whose share in the eigenvector of the smallest eigenvalue of a correlation matrix is at least this (in
+#: size) is named among those whose correlations do not fit together (a rule of this project)
+NOT_FITTING_SHARE = 0.3
+
+
+def _pairs_apart_words(source: str, where: str, R: np.ndarray, present: np.ndarray, names) -> str:
+    """The refusal of a polychoric correlation matrix that is not positive definite with gaps in the rows (pairwise
+    present rows), no category of which is rare: the correlations of the items that the eigenvector of its smallest
+    eigenvalue weighs (:data:`NOT_FITTING_SHARE`) come from rows that answered each pair, which need not be the same
+    rows, so together they need not describe any population; named with the rows that answered all of them
+    together, and listwise deletion advised only where it keeps more complete rows than items (hostile trial s25,
+    finding 7: with no complete row the message blamed near duplicates and empty categories, and named no item)."""
+    values, vectors = np.linalg.eigh(R)
+    weights = np.abs(vectors[:, 0])
+    named = [j for j in np.argsort(-weights) if weights[j] >= NOT_FITTING_SHARE] or list(np.argsort(-weights)[:3])
+    named = sorted(named[:6])
+    together = int(present[:, named].all(axis=1).sum())
+    complete = int(present.all(axis=1).sum())
+    p = len(names)
+    items = word_list([f"'{printable(names[j])}'" for j in named])
+    rows = ("no row answered all of them" if together == 0 else
+            f"only {counted(together, 'row')} answered all of them")
+    pairs = "; ".join(f"'{printable(names[a])}' and '{printable(names[b])}' {journal_decimal(R[a, b], digits=2)} "
+                      f"({counted(int((present[:, a] & present[:, b]).sum()), 'row')})"
+                      for k, a in enumerate(named) for b in named[k + 1:])
+    few = "no row" if complete == 0 else f"only {counted(complete, 'row')}"
+    way = (f"; {Option.INCOMPLETE_ROWS.given('listwise')} uses the {complete:,} complete rows only" if complete > p else
+           f"; {few} answered every item, too few to analyse the complete rows alone, so leave one of those items out "
+           f"of the model, or gather rows that answer them together")
+    return (f"{source}{where}: the polychoric correlation matrix is not positive definite: the correlations of {items} "
+            f"come from the rows that answered each pair ({pairs}), and {rows}, so together they need not fit "
+            f"(no population has these correlations at once){way}")
 
 
 def _refuse_large_covariance(source: str, per_item: int, p: int) -> None:
