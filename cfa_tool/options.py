@@ -98,8 +98,14 @@ def replications(value: object, minimum: int = 1) -> int:
     return whole_number("the number of replications", value, minimum, MAX_REPLICATIONS)
 
 
-def workers(value: object) -> int | None:
-    """Local worker processes; None means one per core."""
+def workers(value: object, scheduler: object = None) -> int | None:
+    """Local worker processes; None means one per core.  Given beside a Dask ``scheduler`` they cannot apply (the
+    scheduler's own workers run the tasks): an OptionError naming both (hostile trial s25, finding 8: --workers 2
+    beside --scheduler was accepted and ignored by cutoffs, bootstrap and power-simulation)."""
+    if value is not None and scheduler:
+        raise OptionError(f"{Option.WORKERS} and {Option.SCHEDULER} cannot be given together: with a scheduler its own "
+                          f"workers run the tasks, so the local processes of {Option.WORKERS} would not be used; "
+                          f"give one of them")
     return None if value is None else whole_number("the number of workers", value, 1, MAX_WORKERS)
 
 
@@ -212,6 +218,8 @@ class Option(enum.Enum):
     HALF = ("--half", "keep")  # one half of a halves file; in Python a data.halves.RandomHalf among the row selections
     SIMULATED_MISSING = ("--missing", "missing")  # simulate's share of answers removed at random
     RENAME = ("--rename", "rename", None, True)
+    WORKERS = ("--workers", "workers")  # local processes of the resampling and simulating commands
+    SCHEDULER = ("--scheduler", "scheduler")  # ... or the Dask scheduler they run on
     VALIDATION_RENAME = ("--validation-rename", "validation_rename", None, True)  # replicate's validation file
 
     def __init__(self, flag: str, keyword: str, switch: str | None = None, listed: bool = False) -> None:

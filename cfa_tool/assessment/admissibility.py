@@ -116,6 +116,9 @@ class ProblemKind(enum.Enum):
     # the same of a cluster or strata column ('School A', 'school a'): two clusters, so clustering understated
     DESIGN_LABELS_BY_CASE = ("cluster or stratum labels differing only in case", "labels differing only in case",
                              False)
+    # not of the solution but of the data: an item whose answers lie on shifted codes in different groups (0 to 4 in
+    # one, 1 to 5 in another: data.shifted_scales), which reads as non-invariance of its intercept or thresholds
+    SHIFTED_CODES_IN_GROUPS = ("answers on shifted codes in different groups", "codes shifted between groups", False)
     # not of the solution but of the data: an item answered by few of the rows (pipeline.inputs.with_odd_values)
     FEW_ANSWERS = ("item answered by few rows", "answered by few rows", False)
     # not of the solution but of the data: a pair of items answered together by few of the rows, whose correlation
@@ -524,6 +527,8 @@ class Problem:
             K.CODE_KEPT_AS_VALUE: "a no-answer code kept as a value in a column that chooses or groups the rows",
             K.VALUES_READ_AS_MISSING: "values that the data file marks as no answer (by their value labels, as declared "
                                       "missing values, or as text such as 'refused') were treated as missing",
+            K.SHIFTED_CODES_IN_GROUPS: "items whose answers lie on shifted codes in different groups (0 to 4 in one, "
+                                       "1 to 5 in another), read as differences between the groups",
             K.FEW_ANSWERS: "items answered by few of the rows",
             K.FEW_ANSWERED_TOGETHER: "pairs of items answered together by few of the rows",
             K.ROWS_LEFT_OUT: f"{rows} left out listwise for a missing answer",

@@ -193,7 +193,7 @@ def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], sour
         complete_only = small[0].complete_only
         refuse_small_groups(small, column, source, sum(usable_rows(v, complete_only)
                                                        for label, v in zip(labels, values) if label not in left_out),
-                            labels)
+                            labels, len(labels) - len(small))
     out = [(label, sample_moments(part, names, source, group=group, missing=missing, weights=weights, values=v))
            for (label, part), group, v in zip(parts, where, values)]
     # each row in one group at most (errors.check_rows_counted)
@@ -265,14 +265,16 @@ def leaving_out(column: str, label: str) -> str | None:
 
 
 def small_group_words(small: tuple[SmallGroup, ...], column: str, kept: int, named: bool = True,
-                      labels=()) -> tuple[str, str]:
+                      labels=(), others: int = 2) -> tuple[str, str]:
     """(what, remedy) of groups too small to analyse (:func:`too_small_groups`) in a refusal's or a check's words: the
     groups, their rows and the rule; the exact row filter that leaves them out, then joining each with a similar
     group.  ``kept``: the rows of the other groups that the advised run analyses (complete rows with listwise
     deletion, rows with any answer with full-information ML: :func:`usable_rows`; new-user trial s19, which was
     promised the other groups' 855 rows and analysed their 251 complete ones); ``named`` False: one group, which the
     words beside them name (a check's caution of that group); ``labels``: every group's label, among which the
-    groups are named by the one rule of group labels (language.names.written_group)."""
+    groups are named by the one rule of group labels (language.names.written_group); ``others``: the groups that are
+    not too small, where leaving the small ones out is advised only when two of them stay to be compared (hostile
+    s25, finding 5's neighbour: two small groups beside one large one were advised the filters that leave one group)."""
     one = len(small) == 1
     only = "only " if small[0].rows else ""
     if one and not named:
@@ -290,17 +292,24 @@ def small_group_words(small: tuple[SmallGroup, ...], column: str, kept: int, nam
     rows = "no rows" if not kept else rows
     leave = (f"leave {them} out with {Option.KEEP.given([printable(f) for f in filters])}" if all(filters) else
              f"leave {them} out with a row filter ({Option.KEEP}) on '{printable(column)}'")
+    join = (f"join {'it' if one else 'each'} with a similar group by recoding '{printable(column)}' in a copy of the "
+            f"data file")
+    if others < 2:  # leaving them out would leave one group or none: nothing to compare
+        return (f"{said}, and a group needs more rows than variables (a factor analysis far more)",
+                f"{join} (leaving {them} out would leave {'one group' if others == 1 else 'no group'}, with nothing "
+                f"to compare)")
     return (f"{said}, and a group needs more rows than variables (a factor analysis far more)",
-            f"{leave} (the other groups' {rows} stay), or join {'it' if one else 'each'} with a similar group "
-            f"by recoding '{printable(column)}' in a copy of the data file")
+            f"{leave} (the other groups' {rows} stay), or {join}")
 
 
-def refuse_small_groups(small: tuple[SmallGroup, ...], column: str, source: str, kept: int, labels=()) -> None:
+def refuse_small_groups(small: tuple[SmallGroup, ...], column: str, source: str, kept: int, labels=(),
+                        others: int = 2) -> None:
     """Raise the one-line refusal of groups too small to analyse (:func:`small_group_words`), holding each group's
-    own words for a check's findings."""
-    said, remedy = small_group_words(small, column, kept, labels=labels)
+    own words for a check's findings; ``labels``: every group's label; ``others``: the groups that are not too small."""
+    said, remedy = small_group_words(small, column, kept, labels=labels, others=others)
     raise SmallGroupsError(f"{source}: {said}: {remedy}", small,
-                           tuple(small_group_words((g,), column, kept, named=False) for g in small))
+                           tuple(small_group_words((g,), column, kept, named=False, labels=labels, others=others)
+                                 for g in small))
 
 
 def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,

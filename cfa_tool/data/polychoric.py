@@ -35,7 +35,7 @@ import pandas as pd
 from scipy import optimize
 from scipy.special import ndtr  # the normal cdf over arrays in inner loops (numerics.distributions' rule)
 
-from cfa_tool.numbers import counted, cut_list, user_number
+from cfa_tool.numbers import counted, cut_list, user_number, word_list
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.plain import journal_decimal
 
@@ -486,6 +486,8 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         raise DataError(f"{source}{where}: the polychoric correlation matrix is not positive definite: "
                         f"{sparse.words}, and need not fit with the other correlations, each from other rows"
                         f"{sparse.remedy(bool(where))}")
+    if np.linalg.eigvalsh(R)[0] <= 1e-8 and pairwise and not present.all() and not rare:
+        raise DataError(_pairs_apart_words(source, where, R, present, names))
     if np.linalg.eigvalsh(R)[0] <= 1e-8:
         complete = int(present.all(axis=1).sum())
         gaps = pairwise and not present.all() and complete > p  # listwise deletion keeps enough rows to work
@@ -502,6 +504,40 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                           R, gamma, codes, means, sds, frozenset(continuous), joint_gamma,
                           pair_counts if pairwise else None, rows_design,
                           joint if rows_design is not None else None, mixed_gamma)
+
+
+#: an item whose share in the eigenvector of the smallest eigenvalue of a correlation matrix is at least this (in
+#: size) is named among those whose correlations do not fit together (a rule of this project)
+NOT_FITTING_SHARE = 0.3
+
+
+def _pairs_apart_words(source: str, where: str, R: np.ndarray, present: np.ndarray, names) -> str:
+    """The refusal of a polychoric correlation matrix that is not positive definite with gaps in the rows (pairwise
+    present rows), no category of which is rare: the correlations of the items that the eigenvector of its smallest
+    eigenvalue weighs (:data:`NOT_FITTING_SHARE`) come from rows that answered each pair, which need not be the same
+    rows, so together they need not describe any population; named with the rows that answered all of them
+    together, and listwise deletion advised only where it keeps more complete rows than items (hostile trial s25,
+    finding 7: with no complete row the message blamed near duplicates and empty categories, and named no item)."""
+    values, vectors = np.linalg.eigh(R)
+    weights = np.abs(vectors[:, 0])
+    named = [j for j in np.argsort(-weights) if weights[j] >= NOT_FITTING_SHARE] or list(np.argsort(-weights)[:3])
+    named = sorted(named[:6])
+    together = int(present[:, named].all(axis=1).sum())
+    complete = int(present.all(axis=1).sum())
+    p = len(names)
+    items = word_list([f"'{printable(names[j])}'" for j in named])
+    rows = ("no row answered all of them" if together == 0 else
+            f"only {counted(together, 'row')} answered all of them")
+    pairs = "; ".join(f"'{printable(names[a])}' and '{printable(names[b])}' {journal_decimal(R[a, b], digits=2)} "
+                      f"({counted(int((present[:, a] & present[:, b]).sum()), 'row')})"
+                      for k, a in enumerate(named) for b in named[k + 1:])
+    few = "no row" if complete == 0 else f"only {counted(complete, 'row')}"
+    way = (f"; {Option.INCOMPLETE_ROWS.given('listwise')} uses the {complete:,} complete rows only" if complete > p else
+           f"; {few} answered every item, too few to analyse the complete rows alone, so leave one of those items out "
+           f"of the model, or gather rows that answer them together")
+    return (f"{source}{where}: the polychoric correlation matrix is not positive definite: the correlations of {items} "
+            f"come from the rows that answered each pair ({pairs}), and {rows}, so together they need not fit "
+            f"(no population has these correlations at once){way}")
 
 
 def _refuse_large_covariance(source: str, per_item: int, p: int) -> None:
@@ -635,24 +671,54 @@ class EmptyCategoryCosts:
     answers_recoded: int
     answers_dropped: int
     filters: tuple[str | None, ...]
+    #: the groups the row filters keep, counted by applying them (data.filters.apply_filters, the one filter code) to
+    #: the groups' rows: leaving groups out is advised only when at least two groups stay to be compared (hostile
+    #: trial s25, finding 5: "--keep 'g != north' --keep 'g != south'" left out every row)
+    groups_kept: int = 2
+    #: the answers that undoing a shift of codes between groups moves (data.shifted_scales)
+    answers_moved: int = 0
 
 
 def _costs(values: list[np.ndarray], wheres: list[str], filters: list[str | None], names: tuple[str, ...],
-           found: dict[str, dict[str, list[float]]]) -> EmptyCategoryCosts:
+           found: dict[str, dict[str, list[float]]], shifted=(), frames: list[pd.DataFrame] | None = None
+           ) -> EmptyCategoryCosts:
     """:class:`EmptyCategoryCosts` of the empty categories ``found`` (by group ``where``), from each group's
-    ``values`` (the rows analysed)."""
+    ``values`` (the rows analysed); ``shifted``: items on shifted codes in some groups (data.shifted_scales), whose
+    recoding moves their answers in those groups instead of merging categories."""
     empty: dict[str, set] = {}
     for by_item in found.values():
         for name, categories in by_item.items():
             empty.setdefault(name, set()).update(categories)
     columns = [names.index(name) for name in empty]
     left = [v for v, where in zip(values, wheres) if where in found]
+    moved = {s.item: set(s.shifted_groups()) for s in shifted}
+    chosen = tuple(f for f, where in zip(filters, wheres) if where in found)
     return EmptyCategoryCosts(
         sum(len(v) for v in left), sum(int((~np.isnan(v)).sum()) for v in left),
         sum(int(np.isin(v[:, names.index(name)], list(categories)).sum()) for v in values
             for name, categories in empty.items()),
-        sum(int((~np.isnan(v[:, columns])).sum()) for v in values),
-        tuple(f for f, where in zip(filters, wheres) if where in found))
+        sum(int((~np.isnan(v[:, columns])).sum()) for v in values), chosen,
+        _groups_kept(frames, chosen) if frames is not None and all(chosen) else len(wheres) - len(found),
+        sum(int((~np.isnan(v[:, names.index(name)])).sum()) for v, where in zip(values, wheres)
+            for name, groups in moved.items() if _group_words(where) in groups))
+
+
+def _groups_kept(frames: list[pd.DataFrame], filters) -> int:
+    """How many of the groups (each group's rows: ``frames``) keep a row under the row filters ``filters``, applied
+    by the one filter code (data.filters.apply_filters) to the groups' rows together; 0 when no row is left."""
+    from cfa_tool.data.filters import apply_filters, parse_filter
+    from cfa_tool.errors import UserInputError
+
+    try:
+        kept, _, _ = apply_filters(pd.concat(frames), [parse_filter(f) for f in filters], "the rows")
+    except UserInputError:  # no row left (or a filter that cannot be applied): no group to compare
+        return 0
+    return sum(bool(frame.index.isin(kept.index).any()) for frame in frames)
+
+
+def _group_words(where: str) -> str:
+    """A group's ' (group 'north' of district)' as a sentence names it: "group 'north' of district"."""
+    return where.replace(" (", "", 1).rstrip(")")
 
 
 def empty_categories_in_groups(frames: list[pd.DataFrame], wheres: list[str], names: tuple[str, ...], source: str,
@@ -682,23 +748,34 @@ def empty_categories_in_groups(frames: list[pd.DataFrame], wheres: list[str], na
             if empty and seen:
                 found.setdefault(where, {})[name] = empty
     if found:
-        costs = _costs(analysed, wheres, filters, names, found) if filters is not None else None
+        from cfa_tool.data.shifted_scales import shifted_scales
+
+        empty_items = {name for by_item in found.values() for name in by_item}
+        shifted = tuple(s for s in shifted_scales(names, [(_group_words(where), v) for v, where in zip(analysed, wheres)])
+                        if s.item in empty_items)  # 0 to 4 in one group, 1 to 5 in another: undone, not merged
+        costs = _costs(analysed, wheres, filters, names, found, shifted, frames) if filters is not None else None
         raise _empty_categories_error(source, found, {name: np.array(sorted(v)) for name, v in answered_everywhere.items()},
                                       frames[0].attrs.get(CODED_BY_STATEMENT, {}) if frames else {}, costs,
-                                      frames[0] if frames else None)
+                                      frames[0] if frames else None, shifted, len(wheres) - len(found))
 
 
 def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]], seen: dict,
                             coded: dict | None = None, costs: EmptyCategoryCosts | None = None,
-                            given=None) -> DataError:
+                            given=None, shifted=(), others: int = 2) -> DataError:
     """The one message of every empty category: ``found`` maps each group's ' (group ...)' to its items' empty
     categories, ``seen`` each item's categories answered in every group (what an empty one is recoded as), ``coded``
     the items whose answers are words an 'answers' statement coded (data.answer_words.CODED_BY_STATEMENT): for
     them the model file itself can merge the empty category into the nearest one answered, with a statement of the
     item's own that gives their words one code; answers recorded as codes are recoded in a copy of the data file
     (the model language codes words, not numbers); ``given``: the rows read, which know the codes of no answer the
-    run gave already, kept in the advice to add a code (data.non_answers.advice_codes)."""
+    run gave already, kept in the advice to add a code (data.non_answers.advice_codes); ``shifted``: items whose
+    answers lie on shifted codes in some groups (data.shifted_scales: 0 to 4 in one, 1 to 5 in another), for which
+    the advice undoes the shift instead of merging categories (hostile trial s25, finding 4)."""
     coded = coded or {}
+    moved = {s.item: s for s in shifted}
+    # leaving the groups out is a way only when two groups stay to be compared (``others``: the groups without an
+    # empty category; with costs, those the row filters keep, counted by the filter code)
+    can_leave = (costs.groups_kept if costs is not None else others) >= 2
     items: dict[str, list[float]] = {}  # each item's empty categories in any group
     for by_item in found.values():
         for name, empty in by_item.items():
@@ -709,8 +786,8 @@ def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]
     mergeable = {name: empty for name, empty in items.items() if len(seen[name]) > 1}
     constant = [name for name in items if len(seen[name]) <= 1]
     worded = {name: empty for name, empty in mergeable.items()
-              if any(word is not None for word, _, _ in coded.get(name, ()))}
-    beyond = sorted({v for name, empty in items.items() for v in empty if name not in worded  # a word's code is real
+              if any(word is not None for word, _, _ in coded.get(name, ())) and name not in moved}
+    beyond = sorted({v for name, empty in items.items() for v in empty if name not in worded and name not in moved  # a word's code is real
                      and len(seen[name]) and (v < min(seen[name]) or v > max(seen[name])) and code_like(v)})  # a code?
     codes = [f"{user_number(v)}" for v in beyond]
     first = (f"if {' and '.join(codes)} {'is' if len(codes) == 1 else 'are'} not a real answer (a typing "
@@ -735,36 +812,48 @@ def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]
                     f"the code of the nearest category answered, in every group, with a statement of "
                     f"{'the item' if len(worded) == 1 else 'each item'}'s own (the report then says which words share "
                     f"a code): {statements}")
+    # an item on shifted codes in some groups (0 to 4 against 1 to 5): its empty categories are the ends of the
+    # shift, so undoing it comes first, before merging its categories (hostile trial s25, finding 4)
+    undo = (f"{'; '.join(m.ranges_words() for m in moved.values())}, as one answer scale coded on shifted codes "
+            f"would: if the groups' codes differ, undo the shift in a copy of the data file "
+            f"({'; '.join(m.undoing_words() for m in moved.values())}), which merges no category") if moved else ""
     recoded = {name: empty for name, empty in mergeable.items() if name not in worded}
     alike = (f"{_quoted(constant)} {'has' if len(constant) == 1 else 'have'} at most one answer that every group "
              f"gave, so merging {'its' if len(constant) == 1 else 'their'} categories would leave "
              f"{'it' if len(constant) == 1 else 'them'} with one answer everywhere") if constant else ""
     if recoded:
         recode = " and ".join(f"'{printable(name)}' ({_merged_into(empty, seen[name])})" for name, empty in recoded.items())
-        ways.append(f"{first}in a copy of the data file, recode {recode} in every group")
+        ways.append(f"{first}{'if the codes are alike in every group, ' if undo else ''}in a copy of the data file, "
+                    f"recode {recode} in every group")
     elif first:
         ways.append(first.removesuffix("; if real, "))
     drop = f"drop {'the item' if one_item else 'those items'} from the model"
     group = "this group" if one_group else "those groups"
     why = f" ({alike})" if alike else ""  # items one group answered alike: merging would not help them
+    left_out = f", or leave {group} out with a row filter ({Option.KEEP})" if can_leave else ""
     if costs is None:
-        if not ways:
+        if not ways and not undo:
             return DataError(f"{said}; thresholds cannot be compared across groups with an empty category, and "
-                             f"{alike}: {drop}, or leave {group} out with a row filter ({Option.KEEP})")
+                             f"{alike}: {drop}{left_out}")
         return DataError(f"{said}; thresholds cannot be compared across groups with an empty category. The tool does "
-                         f"not merge categories on its own{why}: {'; '.join(ways)}; or {drop}, or leave {group} out "
-                         f"with a row filter ({Option.KEEP})")
+                         f"not merge categories on its own{why}: {'; '.join(([undo] if undo else []) + ways)}; or "
+                         f"{drop}{left_out}")
     leave = (f"leave {group} out with {Option.KEEP.given([printable(f) for f in costs.filters])}"
              if all(costs.filters) else f"leave {group} out with a row filter ({Option.KEEP})")
     # (answers changed or left out, a code that may mean no answer first, words)
-    offered = [(costs.answers_recoded, not first, " ".join(ways) if len(ways) == 1 else f"{ways[0]} (and {ways[1]})",
-                f" ({_answers(costs.answers_recoded)} recoded)")] if ways else []
+    offered = [(costs.answers_recoded, not first, " ".join(ways) if len(ways) == 1 else
+                f"{ways[0]} (and {'; and '.join(ways[1:])})", f" ({_answers(costs.answers_recoded)} recoded)")] if ways else []
     offered += [(costs.answers_left_out, True, leave,
                  f" ({costs.rows_left_out:,} row{'' if costs.rows_left_out == 1 else 's'}, "
-                 f"{_answers(costs.answers_left_out)} left out)"),
-                (costs.answers_dropped, True, drop, f" ({_answers(costs.answers_dropped)} left out)")]
+                 f"{_answers(costs.answers_left_out)} left out)")] if can_leave else []
+    offered += [(costs.answers_dropped, True, drop, f" ({_answers(costs.answers_dropped)} left out)")]
     offered.sort(key=lambda way: (way[1], way[0]))  # stable: recoding first where they keep as much
+    if undo:  # first: a coding slip is checked before any category is merged or any answer left out
+        offered.insert(0, (costs.answers_moved, False, undo, f" ({_answers(costs.answers_moved)} recoded)"))
     listed = [f"{text}{cost}" for _, _, text, cost in offered]
+    if len(listed) == 1:
+        return DataError(f"{said}; thresholds cannot be compared across groups with an empty category, and "
+                         f"{alike or 'no other way keeps two groups to compare'}: {listed[0]}")
     return DataError(f"{said}; thresholds cannot be compared across groups with an empty category. The tool does not "
                      f"merge categories on its own{why}; the ways that keep the most answers first: "
                      f"{'; '.join(listed[:-1])}; or {listed[-1]}")

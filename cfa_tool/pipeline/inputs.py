@@ -888,11 +888,46 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     found += column_code_problems(loaded, group, design)  # no-answer codes kept in the columns choosing rows
     found += odd_value_problems(loaded, group, design, helpers, listwise) + few_answers_problems(names, coverage or {}, n_obs, loaded,
                                                                               group, listwise)
+    found += shifted_scale_problems(loaded, group, names)  # an item coded on shifted codes in some group
     if group is not None and group in loaded.frame.columns:  # rows without a group label: the rule of _labelled
         without = without_group_problem(len(loaded.frame) - len(_labelled(loaded.frame, group)), len(loaded.frame),
                                         group)
         found += (without,) if without is not None else ()
     return tuple(dict.fromkeys(found))  # each once
+
+
+def shifted_scale_problems(loaded: LoadedData, group: str | None, names: tuple[str, ...]) -> tuple:
+    """A caution, first, naming the items whose answers lie on shifted codes in different groups (0 to 4 in one, 1
+    to 5 in another: data.shifted_scales, the one rule), with each group's range and the recoding that undoes the
+    shift: a coding slip reads as a difference of the item's intercept (or thresholds) between the groups, and
+    the search of partial invariance frees it (hostile trial s25, finding 4).  () without groups or shifts."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.data.groups import group_rows
+    from cfa_tool.data.shifted_scales import shifted_scales
+    from cfa_tool.language.names import written_group
+
+    if group is None or group not in loaded.frame.columns:
+        return ()
+    items = [name for name in names if name in loaded.frame.columns]
+    if not items:
+        return ()
+    split, _ = group_rows(_labelled(loaded.frame, group), group, loaded.source)
+    groups = [(f"group {written_group(label, [x for x, _ in split])}",
+               part[items].apply(pd.to_numeric, errors="coerce").to_numpy(float)) for label, part in split]
+    found = shifted_scales(items, groups)
+    if not found:
+        return ()
+    one = len(found) == 1
+    listed = "; ".join(f.ranges_words() for f in found)
+    return (Problem(ProblemKind.SHIFTED_CODES_IN_GROUPS, (), float(len(found)),
+                    f"{'An item has' if one else 'Items have'} answers on shifted codes in different groups: {listed}. "
+                    f"One answer scale coded otherwise in some group (0 to 4 against 1 to 5, as two exports merged "
+                    f"into one file may be) reads as a difference between the groups in {'its' if one else 'their'} "
+                    f"intercepts (thresholds, of ordinal items), that is as non-invariance, and shifts "
+                    f"{'its' if one else 'their'} means in those groups.",
+                    f"check how each group's answers are coded; if the groups share one scale, undo the shift in a "
+                    f"copy of the data file ({'; '.join(f.undoing_words() for f in found)}) before comparing the "
+                    f"groups."),)
 
 
 def id_filter_column(id_column: str | None, loaded: LoadedData) -> str | None:

@@ -577,7 +577,17 @@ def comparison_report(comparison) -> Report:
     notice = _notice(problems, cautions, failed=not all(r.converged for r in comparison.results))
     return Report(ResultKind.COMPARE, "Model comparison", notice, lines, tuple(tables),
                   tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE), comparison_paragraph(comparison),
-                  problem_table=_models_problem_table(named, notice), warnings=tuple(comparison.notes))
+                  problem_table=_models_problem_table(named, notice),
+                  warnings=few_answers_lines(comparison.results) + tuple(comparison.notes))
+
+
+def few_answers_lines(results) -> tuple[Text, ...]:
+    """The caution on categories of ordinal items given by few rows (tables.few_answers_warning, the one rule of
+    fit, scores, bootstrap, cutoffs and check) of each fit of a workflow's several ones (compare's models, the
+    invariance ladder's configural step), each once (hostile trial s25, finding 6: both said nothing of a category
+    given by one row, whose threshold the ladder's threshold step equates across the groups)."""
+    return tuple(dict.fromkeys(w for r in results if r is not None
+                               and (w := T.few_answers_warning(r, table=False)) is not None))
 
 
 # ---------------------------------------------------------------- invariance
@@ -992,7 +1002,8 @@ def invariance_report(result) -> Report:
                   f"({', '.join(written_group(g, result.groups) for g in result.groups)})",  # a title: as prose (s20)
                   notice, lines, tuple(tables), tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE),
                   invariance_paragraph(result, ORDINAL_LEVELS if ordinal else LEVELS),
-                  warnings=T.higher_order_cautions(first) + tuple(getattr(result, "notes", ())))
+                  warnings=few_answers_lines((first,)) + T.higher_order_cautions(first)
+                  + tuple(getattr(result, "notes", ())))
 
 
 # ---------------------------------------------------------------- replicate

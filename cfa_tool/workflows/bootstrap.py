@@ -546,9 +546,10 @@ def _row_counts(design) -> np.ndarray | None:
     return None
 
 
-def bootstrap_options(replications: int, seed: int, workers: int | None) -> tuple[int, int]:
-    """The bootstrap's options checked (at least 10 resamples)."""
-    check.workers(workers)
+def bootstrap_options(replications: int, seed: int, workers: int | None, scheduler: str | None = None
+                      ) -> tuple[int, int]:
+    """The bootstrap's options checked (at least 10 resamples; local workers not beside a scheduler)."""
+    check.workers(workers, scheduler)
     return check.replications(replications, minimum=10), check.seed(seed)
 
 
@@ -590,7 +591,7 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
         raise OptionError("the bootstrap works on single-group fits")
     if not result.converged:
         raise OptionError("the model did not converge, so there is nothing to bootstrap")
-    replications, seed = bootstrap_options(replications, seed, workers)
+    replications, seed = bootstrap_options(replications, seed, workers, scheduler)
     if result.method.ordinal:
         if design is not None:
             raise OptionError(f"{ORDINAL_DESIGN}; leave out the design")
@@ -840,7 +841,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     percentile intervals only (``bca``: BCa intervals too, None where they apply: for continuous items; asked for
     with ordinal items, an error).  ``id_column``: the column that names each row (never analysed), beside the row numbers of the cautions about
     rows, as for ``fit``."""
-    replications, seed = bootstrap_options(replications, seed, workers)
+    replications, seed = bootstrap_options(replications, seed, workers, scheduler)
     design = design_columns(weights, cluster, strata, weight_kind)
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,
                                                  (id_column,) if isinstance(id_column, str) else (),

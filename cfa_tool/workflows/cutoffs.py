@@ -200,9 +200,9 @@ def misspecified_covariance(spec: Spec, result: FitResult, scale: float = 1.0,
     return wrong, what, size
 
 
-def cutoff_options(replications: int, seed: int, workers: int | None) -> tuple[int, int]:
-    """The options checked (at least 20 samples per population)."""
-    check.workers(workers)
+def cutoff_options(replications: int, seed: int, workers: int | None, scheduler: str | None = None) -> tuple[int, int]:
+    """The options checked (at least 20 samples per population; local workers not beside a scheduler)."""
+    check.workers(workers, scheduler)
     return check.replications(replications, minimum=20), check.seed(seed)
 
 
@@ -222,7 +222,7 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
     refuse_inadmissible_fit(result.problems, f"{spec.source} fitted to {result.data.source}",
                             "it cannot serve as a population",
                             remedy="simulate its cutoffs")
-    replications, seed = cutoff_options(replications, seed, workers)
+    replications, seed = cutoff_options(replications, seed, workers, scheduler)
     n = result.n_obs
     seeds = np.random.SeedSequence(seed)
     if result.method.ordinal:
@@ -384,7 +384,7 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
     rows, as for ``fit``."""
     from cfa_tool.data.matching import chosen_columns
 
-    replications, seed = cutoff_options(replications, seed, workers)
+    replications, seed = cutoff_options(replications, seed, workers, scheduler)
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,
                                                  (id_column,) if isinstance(id_column, str) else (),
                                                  names_row=names_row, first_data_row=first_data_row, rename=rename,

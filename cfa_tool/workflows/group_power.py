@@ -336,6 +336,7 @@ def invariance_power(model: str | Path | Spec, group_sizes: str | Mapping[str, i
                                       "its rotation")
     replications = check.replications(replications, minimum=2)
     seed = check.seed(seed)
+    check.workers(workers, scheduler)
     alpha = check.probability("alpha (the level of the difference tests)", alpha)
     if highest_level not in HIGHEST_LEVELS:
         raise OptionError(f"{check.Option.HIGHEST_LEVEL} must be one of {', '.join(HIGHEST_LEVELS)}, not "

@@ -173,6 +173,7 @@ def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications
                                       "its power would be of the block's unrotated loadings, which no report shows")
     replications = check.replications(replications, minimum=2)
     seed = check.seed(seed)
+    check.workers(workers, scheduler)
     alpha = check.probability("alpha (the significance level)", alpha)
     if categories is not None:
         categories = check.whole_number("the number of categories", categories, 2, check.MAX_CATEGORIES)

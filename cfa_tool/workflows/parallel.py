@@ -45,7 +45,7 @@ def run_tasks(fn: Callable, tasks: Sequence, workers: int | None = None, schedul
     gives the list of their results (a function that computes several tasks together).  ``progress(0,
     more=n)`` announces the n tasks before they start (a workflow may run several batches), and
     ``progress(k)`` is called as tasks finish."""
-    workers = check.workers(workers)
+    workers = check.workers(workers, scheduler)
     progress = _progress_function(progress)
     if progress:
         progress(0, more=len(tasks))

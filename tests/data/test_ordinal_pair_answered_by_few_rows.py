@@ -101,6 +101,21 @@ def test_listwise_deletion_is_not_offered_when_it_keeps_too_few_rows():
     assert "not positive definite" in str(refused.value) and "listwise" not in str(refused.value)
 
 
+def test_the_refusal_without_complete_rows_names_the_items_whose_pairs_come_from_different_rows():
+    """Hostile trial s25, finding 7: with no complete row the refusal blamed near duplicates or nearly empty
+    categories (no correlation is near 1; every category has dozens of rows) and named no item.  By construction
+    (:func:`three_pairs`) the pairs of a, b and c come from three sets of 300 rows, none answering all three."""
+    from cfa_tool.data.polychoric import ordinal_moments
+
+    with pytest.raises(DataError) as refused:
+        ordinal_moments(three_pairs(4, 0), ("a", "b", "c"), "<data frame>", pairwise=True)
+    text = str(refused.value)
+    assert "near duplicates" not in text and "nearly empty" not in text
+    assert "the correlations of 'a', 'b', and 'c' come from the rows that answered each pair" in text
+    assert "(300 rows)" in text and "no row answered all of them" in text  # each pair's 300 rows, none of all three
+    assert "leave one of those items out of the model" in text
+
+
 def test_check_of_ordinal_items_does_not_say_a_full_information_fit_stops():
     """An ordinal fit keeps rows with gaps pairwise and runs; its check said the saturated model of full-information
     ML could not be estimated and 'a fit of these rows stops' (re-check s17, N2 neighbour).  The pair answered by few

@@ -192,3 +192,20 @@ def test_a_group_without_a_complete_row_is_said_so_and_one_without_any_answer_ke
     frame.loc[frame.index[-10:], ITEMS] = np.nan  # no answer at all: the moments' own message
     with pytest.raises(DataError, match=r"group east of 'site'\): no row answers any of the model's 6 variables"):
         fit(MODEL, frame, group="site", missing="listwise")
+
+
+def test_leaving_small_groups_out_is_not_advised_when_one_group_would_stay():
+    # hostile s25, finding 5's neighbour: two groups of 5 rows beside one of 470 were advised the filters that leave
+    # them out, which leave one group, where a multi-group analysis has nothing to compare; the rider survey
+    # (invented) split so by construction
+    import cfa_tool
+    from cfa_tool.resources import resource_dir
+
+    data = pd.read_csv(resource_dir("demo") / "rider_survey.csv")
+    data["site"] = "big"
+    data.loc[:4, "site"], data.loc[5:9, "site"] = "s1", "s2"
+    with pytest.raises(DataError) as refused:
+        cfa_tool.fit((resource_dir("models") / "rider_three_factors.cfa").read_text(), data, group="site")
+    message = str(refused.value)
+    assert "keep=" not in message and "join each with a similar group by recoding 'site'" in message
+    assert "leaving them out would leave one group, with nothing to compare" in message

@@ -51,3 +51,25 @@ def test_scores_cutoffs_and_replicate_say_the_rare_category(one_row):
     assert FEW in _said(cutoffs_report(cfa_tool.cutoffs(MODEL, one_row, replications=20, workers=1)).warnings)
     rep = cfa_tool.replicate(MODEL, one_row.iloc[:240], one_row.iloc[240:])
     assert FEW in _said(replication_report(rep).warnings)
+
+
+def test_invariance_and_compare_say_the_rare_category_too():
+    # hostile trial s25, finding 6: both were silent, though the ladder's threshold step equates the threshold next to
+    # the category across the groups; by construction north keeps one answer 1 of on_time, south all of its own
+    from cfa_tool.reporting.workflow_tables import comparison_report, invariance_report
+    from cfa_tool.workflows.compare import compare
+    from cfa_tool.workflows.invariance import invariance
+
+    data = pd.read_csv(resource_dir("demo") / "rider_survey.csv")
+    north = data.index[(data.district == "north") & (data.on_time == 1)]
+    data.loc[north[1:], "on_time"] = 2
+    assert (data[data.district == "north"].on_time == 1).sum() == 1  # the construction
+    ladder = invariance(MODEL, data, "district")
+    assert "on_time 1 (1 row) in group north" in _said(invariance_report(ladder).warnings)
+    one_factor = ("factor f: on_time, short_wait, accurate_info, easy_transfer, seat_available, clean, temperature, "
+                  "room_to_stand\nordinal on_time, short_wait, accurate_info, easy_transfer\n")
+    pooled = data.copy()
+    rare = pooled.index[pooled.on_time == 1]
+    pooled.loc[rare[1:], "on_time"] = 2
+    said = _said(comparison_report(compare([MODEL, one_factor], pooled)).warnings)
+    assert said.count("on_time 1 (1 row)") == 1  # once, though both models have the item
