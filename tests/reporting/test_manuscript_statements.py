@@ -49,7 +49,7 @@ def test_a_declared_keying_the_loadings_contradict_is_said_in_words_in_word():
     # the distinct table's note: the scaling in words, the statement where the user edits the model
     assert "scaled by their variances, and punctuality, comfort, and courtesy are scaled otherwise" in word
     for view in (terminal, page.replace("&#x27;", "'")):
-        assert "scaled by their variances ('scale latent by variance'), and comfort" in view
+        assert "scaled by their variances ('scale latent by variance'), and punctuality" in view
 
 
 def test_items_scored_in_reverse_as_declared_are_named_without_the_statement(tmp_path):
