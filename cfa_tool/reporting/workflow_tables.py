@@ -65,11 +65,11 @@ def _in_group(problem, result) -> str:
     return "" if problem.group is None else f"group {written_group(problem.group, group_labels(result))}: "
 
 
-def _named_line(name: str, rest: str, given: bool) -> Text:
+def _named_line(name: str, rest: Text, given: bool) -> Text:
     """A line that starts with what names a fit: a model's name as given (``given``: note_parts.Name, which no
     sentence's capital recases; s24: 'One' for a model file 'one.cfa'), or words naming it ('the calibration fit on
     ...') as a sentence starts them."""
-    return Note((Name(name), rest)) if given else capitalised(name + rest)
+    return Note((Name(name),)) + rest if given else capitalised(name + rest)  # (``rest`` words or a Note)
 
 
 def _failed_lines(named_results) -> list[Text]:

@@ -110,7 +110,7 @@ def test_correlations_that_round_to_zero_have_no_sign(rider_model, rider_demo):
                      rider_demo)
     # three correlations each within +/-1 but not together: 1 - 2(.95^2) - .003^2 - 2(.95^2)(.003) < 0 (the
     # determinant of the 3 x 3 matrix, by hand); model.parameters' own 'two_decimals' printed '-.00'
-    assert ".95 (punctuality with courtesy) and .00 (comfort with courtesy) cannot hold together" in str(raised.value)
+    assert ".95 (punctuality with courtesy), and .00 (comfort with courtesy) cannot hold together" in str(raised.value)
 
 
 def test_a_tiny_negative_variance_in_plain_digits():

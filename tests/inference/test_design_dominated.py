@@ -168,7 +168,7 @@ def test_each_models_own_design_caution_is_said_of_that_model():
                                design=None)
 
     four, one = model("four factors", 54, 0.407), model("one factor", 48, 0.651)
-    lines = " ".join(_design_caution_lines([("Four factors", four), ("One factor", one)]))
+    lines = " ".join(map(str, _design_caution_lines([("Four factors", four), ("One factor", one)])))
     assert "Four factors (the model with the most free parameters): The design-based scaling factor is 0.407" in lines
     assert "One factor: The design-based scaling factor is 0.651" in lines and "too" not in lines
     same = model("one factor", 48, 0.407)

@@ -47,9 +47,9 @@ def test_a_declared_keying_the_loadings_contradict_is_said_in_words_in_word():
     assert "point the other way from the keying the model declares (its 'reversed' statement): clean" in terminal
     assert "check the declared keying (its 'reversed' statement) for a typing error" in terminal
     # the distinct table's note: the scaling in words, the statement where the user edits the model
-    assert "scaled by their variances, and comfort, courtesy, and punctuality are scaled otherwise" in word
+    assert "scaled by their variances, and punctuality, comfort, and courtesy are scaled otherwise" in word
     for view in (terminal, page.replace("&#x27;", "'")):
-        assert "scaled by their variances ('scale latent by variance'), and comfort" in view
+        assert "scaled by their variances ('scale latent by variance'), and punctuality" in view
 
 
 def test_items_scored_in_reverse_as_declared_are_named_without_the_statement(tmp_path):
