@@ -520,20 +520,23 @@ class _ItemParts:
         return [j for j, why in enumerate(self.not_summed) if why is None]
 
 
-def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSumRule, categories=None) -> _ItemParts:
+def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSumRule, categories=None,
+                withheld: frozenset = frozenset()) -> _ItemParts:
     """One group's :class:`_ItemParts` (``model``: its ScoringModel; ``fit_data``: the fit's DataSummary, whose
     answer ranges give the scale of a reverse-keyed item no statement gives one; ``sums``: the group's keyed sums'
     quality (scoring.quality.SumScore), which leaves out a factor whose sum mixes continuous and ordinal items
     (scoring.quality.ordinal_sum_quality); ``categories``: ordinal items' answer values in the fitted rows, item by
-    item, which give that scale when the fit keeps no answer ranges)."""
+    item, which give that scale when the fit keeps no answer ranges; ``withheld``: the factors whose keyed sum the fit
+    withholds, its loadings contradicting the declared keying, which get no sum or mean either, their cells empty
+    as every view withholds their figures (keying-s25: the file still wrote them))."""
     from cfa_tool.scoring.quality import model_keys
 
     keys = model_keys(model, _declared(spec))
     direct = model.loadings != 0
     alone = model.measured & (model.reach == direct).all(axis=0)
     method_factors = spec.method_factors
-    not_summed = [Unscored.NOT_A_TRAIT if f in method_factors else None if alone[j] else Unscored.NOT_ITEMS_ALONE
-                  for j, f in enumerate(model.factors)]
+    not_summed = [Unscored.NOT_A_TRAIT if f in method_factors else Unscored.NOT_ITEMS_ALONE if not alone[j] else
+                  Unscored.KEYING_WITHHELD if f in withheld else None for j, f in enumerate(model.factors)]
     summed = [j for j, why in enumerate(not_summed) if why is None]
     declared, codings = spec.reverse_keyed, spec.answer_codings()
     observed = dict(zip(fit_data.variables, fit_data.ranges)) if getattr(fit_data, "ranges", ()) else {}
@@ -1051,10 +1054,14 @@ def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group
         if line is not None:
             announce(line)
     summaries = []
+    from cfa_tool.assessment.reliability import withheld_sums
+
+    withheld = withheld_sums(fit.problems)  # (group, factor) of the sums the fit withholds: one group names none
     for model_g, label, sums_g in zip(models, labels, sums):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(rows))
+        held = frozenset(f for g, f in withheld if g == (label if len(models) > 1 else None))
         parts = None if rule is None else _item_parts(model_g.base if ordinal else model_g, spec, fit.data, sums_g,
-                                                       rule, model_g.categories if ordinal else None)
+                                                       rule, model_g.categories if ordinal else None, held)
         prorated: tuple = ()
         spread: tuple = ()
         if len(sel):
