@@ -18,7 +18,9 @@ def add_parser(sub) -> None:
     p.add_argument("--data", required=True, metavar="FILE", help="data file (rows of answers)")
     p.add_argument("--output", required=True, metavar="PATH",
                    help="CSV file to write the scores to ('-' for standard output); its columns, in this order in "
-                        "every run: the id (--id or the file's row names, when given), each factor's score by each "
+                        "every run: the id (--id or the file's row names, when given), the columns the run chose or "
+                        "grouped rows by (--keep's, --group-column, --cluster, --strata) as the data name them, each "
+                        "factor's score by each "
                         "method (with its standard error when asked for), each factor's items answered, "
                         "same_answer_to_every_item (1 for a row that gave one answer to every item, reversed ones "
                         "included; empty without a 'reversed' statement) and why_not_scored (empty for rows scored "

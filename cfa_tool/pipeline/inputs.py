@@ -1140,7 +1140,10 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
         advice = (allow + "." if by_name else
                   Note(("correct the ids in a copy of the data file (a typing error?), or name the rows by a "
                         "column whose values differ in every row", Command(f" ({Option.ID_COLUMN.given('COLUMN')})"),
-                        "; if the rows are one person's at several times, merge by the id and the time together")
+                        "; if the rows are one person's at several times, merge by the id and the time together "
+                        "(a scores file carries beside the id the columns its run's row filters, groups, clusters "
+                        "and strata read, named as in the data file), or set a scores file beside the data line by "
+                        "line: its lines follow the data's rows in order")
                        + (_first_rows_only(found, frame, id_column, items) or ("",)))
                   + (("; and in the analysis, " + allow) if allow is not None else "") + ".")
     merge = ("" if by_name else

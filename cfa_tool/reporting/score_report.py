@@ -70,7 +70,11 @@ def _where(result, q) -> str:
 def header_lines(result) -> list[str]:
     fit = result.fit
     methods = ", ".join(METHOD_LABELS[m] for m in result.methods)
-    first = f"{result.id_name}, then " if result.id_name else ""
+    carried = tuple(getattr(result, "carried", ()))
+    first = ((f"{result.id_name}, " if result.id_name else "")
+             + (f"{word_list(carried)} (as in the data file: the {'column' if len(carried) == 1 else 'columns'} the "
+                f"run chose or grouped its rows by), " if carried else "")
+             + "then ") if result.id_name or carried else ""
     scored = [f"Scored data: {result.scored_source} (with the parameters of the fit above)"] if result.scored_source else []
     return [f"Model file: {fit.model_source}", f"Data: {fit.data.source}; the model was fitted to {count_text(fit.n_obs)} rows",
             f"Estimation of the fit: {fit.estimator}", *scored,

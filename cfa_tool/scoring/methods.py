@@ -51,6 +51,11 @@ class Unscored(Enum):
     NOT_ITEMS_ALONE = "an item sum or mean is only for a factor measured by its own items alone"
     #: item sums and means: a method factor describes a way of answering (wording, acquiescence), not a trait
     NOT_A_TRAIT = "a method factor describes a way of answering, not a trait, and has no item sum or mean"
+    #: item sums and means: the fit's loadings contradict the keying the model declares for the factor's items, so
+    #: the fit withholds the keyed sum's reliability (assessment.reliability.withheld_sums): a sum of items that run
+    #: against each other describes no scale, and its cells are left empty as its figures are withheld
+    KEYING_WITHHELD = ("the fit's loadings contradict the keying the model declares for the factor's items, so their "
+                       "keyed sum describes no scale")
     #: the row answered none of the factor's items, and its score of the factor (a prediction from its other answers)
     #: was asked to be left empty (:attr:`UnansweredFactor.LEAVE_EMPTY`)
     LEFT_EMPTY = "none of the factor's items answered: its prediction from the other answers left empty, as asked"

@@ -202,16 +202,46 @@ def _refuse_id_named_as(id_name: str | None, written, what: str = "a column") ->
                           f"column in the data, or name the rows by another column")
 
 
+def carried_columns(row_filters, group: str | None, design=None) -> tuple[str, ...]:
+    """The columns of the data by which a run chose or grouped its rows, which the scores file carries beside the ids,
+    named and written as in the data file: each row filter's column (--keep; a half of a halves file names none),
+    the group column, the cluster and strata columns (``design``: data.sample_design.DesignColumns), each once, in
+    that order.  The file has a line for every row of the data, the rows left out too, so a person of data in long
+    form has a line per wave: without the column a filter chose the wave by, a merge by the id alone doubles the
+    rows, and the caution's advice to merge by the id and the time together cannot be followed (new-user trial s25,
+    finding 2); with the cluster column the units' means are a groupby away (finding 10)."""
+    from cfa_tool.data.filters import RowFilter
+
+    names = [f.column for f in row_filters if isinstance(f, RowFilter)] + [group]
+    if design is not None:
+        names += [design.cluster, design.strata]
+    return tuple(dict.fromkeys(n for n in names if isinstance(n, str)))
+
+
+def _refuse_carried_named_as(carried, columns) -> None:
+    """The one error when a column the scores file carries from the data (:func:`carried_columns`) has the name of a
+    column the output writes of its own: one would overwrite the other."""
+    for name in carried:
+        if name in columns:
+            raise OptionError(f"the column '{printable(name)}', which the scores file carries from the data beside the "
+                              f"ids (the run chose or grouped its rows by it), has the name of a column of the scores "
+                              f"file; rename that column in the data")
+
+
 def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, errors: dict,
-                   with_errors: bool, answered: np.ndarray) -> tuple[str | None, dict[str, object]]:
-    """(name of the id column or None, the output's columns): the ids first, then each method's score of each
-    factor, with its standard error when asked for, then the number of each factor's items each row answered
-    (``answered``, see :func:`_items_answered`): 0 marks a score that rests on the other factors' items alone."""
+                   with_errors: bool, answered: np.ndarray, carried: dict | None = None
+                   ) -> tuple[str | None, dict[str, object]]:
+    """(name of the id column or None, the output's columns): the ids first, then the columns of the data the run
+    chose or grouped rows by (``carried``: name -> values, :func:`carried_columns`; the id column not again), then
+    each method's score of each factor, with its standard error when asked for, then the number of each factor's
+    items each row answered (``answered``, see :func:`_items_answered`): 0 marks a score that rests on the other
+    factors' items alone."""
     columns: dict[str, object] = {}
     id_name = None
     if ids is not None:
         id_name = id_column if id_column is not None else ROW_NAME_HEADER
         columns[id_name] = ids.tolist()
+    columns.update({name: values_of for name, values_of in (carried or {}).items() if name != id_name})
     for meth in chosen:
         for f, name in enumerate(factors):
             # an item sum's or mean's error is its standard error of measurement (about its own true score)
@@ -225,6 +255,12 @@ def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, er
         _refuse_id_named_as(id_name, (answered_column(name),))
         columns[answered_column(name)] = pd.array([None if np.isnan(v) else int(v) for v in answered[:, f]],
                                                   dtype="Int64")
+    # the scores' own columns, written after the carried ones: none may take a carried column's name
+    own = [column_name(name, meth, what) for meth in chosen for name in factors
+           for what in (("", "sem" if meth in ITEM_METHODS else "se") if with_errors else ("",))]
+    _refuse_carried_named_as([n for n in (carried or {}) if n != id_name],
+                             own + [answered_column(name) for name in factors] + [SAME_ANSWER_COLUMN,
+                                                                                  WHY_NOT_SCORED_COLUMN])
     return id_name, columns
 
 
@@ -484,20 +520,23 @@ class _ItemParts:
         return [j for j, why in enumerate(self.not_summed) if why is None]
 
 
-def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSumRule, categories=None) -> _ItemParts:
+def _item_parts(model, spec, fit_data, sums: tuple[SumScore, ...], rule: ItemSumRule, categories=None,
+                withheld: frozenset = frozenset()) -> _ItemParts:
     """One group's :class:`_ItemParts` (``model``: its ScoringModel; ``fit_data``: the fit's DataSummary, whose
     answer ranges give the scale of a reverse-keyed item no statement gives one; ``sums``: the group's keyed sums'
     quality (scoring.quality.SumScore), which leaves out a factor whose sum mixes continuous and ordinal items
     (scoring.quality.ordinal_sum_quality); ``categories``: ordinal items' answer values in the fitted rows, item by
-    item, which give that scale when the fit keeps no answer ranges)."""
+    item, which give that scale when the fit keeps no answer ranges; ``withheld``: the factors whose keyed sum the fit
+    withholds, its loadings contradicting the declared keying, which get no sum or mean either, their cells empty
+    as every view withholds their figures (keying-s25: the file still wrote them))."""
     from cfa_tool.scoring.quality import model_keys
 
     keys = model_keys(model, _declared(spec))
     direct = model.loadings != 0
     alone = model.measured & (model.reach == direct).all(axis=0)
     method_factors = spec.method_factors
-    not_summed = [Unscored.NOT_A_TRAIT if f in method_factors else None if alone[j] else Unscored.NOT_ITEMS_ALONE
-                  for j, f in enumerate(model.factors)]
+    not_summed = [Unscored.NOT_A_TRAIT if f in method_factors else Unscored.NOT_ITEMS_ALONE if not alone[j] else
+                  Unscored.KEYING_WITHHELD if f in withheld else None for j, f in enumerate(model.factors)]
     summed = [j for j, why in enumerate(not_summed) if why is None]
     declared, codings = spec.reverse_keyed, spec.answer_codings()
     observed = dict(zip(fit_data.variables, fit_data.ranges)) if getattr(fit_data, "ranges", ()) else {}
@@ -662,6 +701,9 @@ class ScoreResult(Presentable):
     #: the scores file's separator, decimal mark and byte-order mark: those of the data file scored, by the one rule of
     #: every CSV file the tool writes (data.csv_convention.convention_of; new-user trial s23b, finding 4)
     file_format: CsvConvention = PLAIN
+    #: the columns of the data the run chose or grouped rows by (row filters, groups, clusters, strata), which the
+    #: scores file carries beside the ids as the data file names them (:func:`carried_columns`)
+    carried: tuple[str, ...] = ()
 
     @property
     def rows(self) -> int:
@@ -724,6 +766,7 @@ class ScoreResult(Presentable):
             "scored_data": self.scored_source,
             "scores_file": self.file_format.to_dict(),
             "columns": [str(c) for c in self.table.columns],
+            "columns_of_the_data": list(self.carried),
             "standard_errors": self.standard_errors,
             "unscored": [{"reason": r, "method": m, "rows": dict(zip(self.factors, map(int, counts)))}
                          for r, m, counts in self.unscored],
@@ -867,8 +910,10 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     answered = _items_answered(models[0].base if ordinal_items else models[0], rows,
                                position.loc[kept].to_numpy(), len(read_index))
     written, written_errors, left = _left_empty(answered, values, errors, chosen, unanswered, counts)
+    carried = tuple(c for c in carried_columns(loaded.row_filters, group, design) if c in read_frame.columns)
     id_name, columns = _score_columns(ids, id_column, chosen, factors, written, written_errors,
-                                      bool(standard_errors or ordinal_items), answered)
+                                      bool(standard_errors or ordinal_items), answered,
+                                      {c: read_frame[c].tolist() for c in carried})
     columns = _with_same_answer_column(columns, id_name, spec, items, rows, position.loc[kept].to_numpy(),
                                        len(read_index))
     table = _in_file_order(pd.DataFrame(columns, index=read_index), data, loaded.names_row_read)  # a frame's own index: joins
@@ -901,7 +946,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                        bool(standard_errors or ordinal_items), tuple(extra),
                        item_sums=summaries,
                        unanswered=unanswered, names_row=_names_row(loaded, data),
-                       file_format=convention_of(loaded.reading))
+                       file_format=convention_of(loaded.reading), carried=_carried_here(carried, id_name))
 
 
 def _id_column_note(read_frame: pd.DataFrame, source: str, spec, group, design) -> list[Note]:
@@ -1009,10 +1054,14 @@ def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group
         if line is not None:
             announce(line)
     summaries = []
+    from cfa_tool.assessment.reliability import withheld_sums
+
+    withheld = withheld_sums(fit.problems)  # (group, factor) of the sums the fit withholds: one group names none
     for model_g, label, sums_g in zip(models, labels, sums):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(rows))
+        held = frozenset(f for g, f in withheld if g == (label if len(models) > 1 else None))
         parts = None if rule is None else _item_parts(model_g.base if ordinal else model_g, spec, fit.data, sums_g,
-                                                       rule, model_g.categories if ordinal else None)
+                                                       rule, model_g.categories if ordinal else None, held)
         prorated: tuple = ()
         spread: tuple = ()
         if len(sel):
@@ -1220,7 +1269,9 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     with_errors = bool(standard_errors or ordinal)  # a posterior mean always comes with its posterior SD
     answered = _items_answered(base, rows, position.loc[frame.index].to_numpy(), n)
     written, written_errors, left = _left_empty(answered, values, errors, chosen, unanswered, counts)
-    id_name, columns = _score_columns(ids, id_column, chosen, factors, written, written_errors, with_errors, answered)
+    carried = tuple(c for c in carried_columns(loaded.row_filters, group) if c in read_frame.columns)
+    id_name, columns = _score_columns(ids, id_column, chosen, factors, written, written_errors, with_errors, answered,
+                                      {c: read_frame[c].tolist() for c in carried})
     columns = _with_same_answer_column(columns, id_name, spec, base.items, rows, position.loc[frame.index].to_numpy(), n)
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
@@ -1266,7 +1317,12 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     table.index = caller_labels(table.index, loaded.frame_index)
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
                        unscored, with_errors, tuple(notes), source, (), summaries, unanswered,
-                       _names_row(loaded, data), convention_of(loaded.reading))
+                       _names_row(loaded, data), convention_of(loaded.reading), _carried_here(carried, id_name))
+
+
+def _carried_here(carried: tuple[str, ...], id_name: str | None) -> tuple[str, ...]:
+    """The carried columns (:func:`carried_columns`) the scores file writes beside the ids: the id column not again."""
+    return tuple(c for c in carried if c != id_name)
 
 
 def _names_row(loaded, data) -> int:

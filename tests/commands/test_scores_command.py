@@ -242,7 +242,8 @@ def test_python_entry_point_with_groups(hs_data):
 
     result = cfa_tool.scores(THREE_FACTORS, hs_data, group="school", methods="bartlett", id_column="id")
     assert dataclasses.is_dataclass(result) and result.__dataclass_params__.frozen
-    assert list(result.table.columns) == (["id"] + [f"{f}_bartlett" for f in FACTORS]
+    # the group column carried beside the id, as the data hold it (scores-s25)
+    assert list(result.table.columns) == (["id", "school"] + [f"{f}_bartlett" for f in FACTORS]
                                           + [f"{f}_items_answered" for f in FACTORS]
                                           + ["same_answer_to_every_item", "why_not_scored"])
     assert len(result.table) == len(hs_data) and not result.table.iloc[:, :-2].isna().any().any()

@@ -57,9 +57,15 @@ def test_scores_from_the_json_equal_the_scores_of_the_fit(tmp_path, model, group
     own = scores(model_file, data, group=group)
     saved = score_with_saved_fit(model_file, _saved(own.fit, tmp_path), data)
     assert list(saved.table.columns) == list(own.table.columns)
-    np.testing.assert_allclose(saved.table.to_numpy(float), own.table.to_numpy(float), rtol=0, atol=1e-10)
+    # the group column, carried as the data hold it (its labels: text), alike in both; the scores numbers
+    assert saved.carried == own.carried == ((group,) if group else ())
+    assert saved.table[list(own.carried)].equals(own.table[list(own.carried)])
+    np.testing.assert_allclose(saved.table.drop(columns=list(own.carried)).to_numpy(float),
+                               own.table.drop(columns=list(own.carried)).to_numpy(float), rtol=0, atol=1e-10)
     again = own.fit.scores(data)  # the Python path from the fit result itself
-    np.testing.assert_allclose(again.table.to_numpy(float), own.table.to_numpy(float), rtol=0, atol=1e-10)
+    assert again.carried == own.carried
+    np.testing.assert_allclose(again.table.drop(columns=list(own.carried)).to_numpy(float),
+                               own.table.drop(columns=list(own.carried)).to_numpy(float), rtol=0, atol=1e-10)
 
 
 def test_posterior_means_of_new_rows_are_the_integrals_with_the_reported_parameters(tmp_path):
