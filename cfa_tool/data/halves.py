@@ -34,7 +34,7 @@ import pandas as pd
 from cfa_tool.data.csv_convention import PLAIN, CsvConvention
 from cfa_tool.data.kept_rows import KEPT_BY, row_naming, rows_listed
 from cfa_tool.data.moments import row_numbers
-from cfa_tool.numbers import count_text, counted
+from cfa_tool.numbers import count_text, counted, word_list
 from cfa_tool.data.readers import sheet_read
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.note_parts import Command, Note, Text
@@ -316,6 +316,10 @@ class HalfRows:
     #: the clusters in each half, the half drawn first first, when drawn by clusters (() else): a handful of them is a
     #: caution first (pipeline.row_filter_cautions.few_clusters_problems)
     units: tuple[int, ...] = ()
+    #: the clusters of this half by their labels, in the order of the file, when a half holds fewer than
+    #: FEW_CLUSTERS_IN_A_HALF of them (() else): the methods text names them, as the halves are those clusters
+    #: (hostile s25b: 'half A of two random halves of the clusters' for 3 of 6 depots, never named)
+    cluster_labels: tuple[str, ...] = ()
     column = None  # no column of the data file chose the rows
     operator = "="
     empty = 0
@@ -381,6 +385,11 @@ class HalfRows:
         clusters = f" of the clusters of {self.cluster_column}{rows}, each cluster whole in one half" \
             if self.cluster_column else rows
         within = f" within the strata of {self.strata_column}" if self.strata_column else ""
+        if self.cluster_labels:  # a handful of clusters: the half is those clusters, named
+            return (f"the row fell in {self.phrase()}, the cluster{'s' if len(self.cluster_labels) > 1 else ''} "
+                    f"{word_list(list(self.cluster_labels))} of "
+                    f"{self.cluster_column}{rows} (of {sum(self.units)} clusters drawn into two halves{within} with "
+                    f"seed {self.seed} and listed in {Path(self.halves_file).name})")
         return (f"the row fell in {self.phrase()} of two random halves{clusters}, drawn{within} with seed "
                 f"{self.seed} and listed in {Path(self.halves_file).name}")
 
@@ -586,9 +595,14 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet:
     _check_labels(saved, frame, numbers, shown, source, value_labels or {})
     mask = np.isin(numbers, saved.rows[np.asarray(saved.halves) == choice.name])
     chosen = frame[mask]
+    units = _clusters_per_half(saved)
+    labels = ()
+    if units and min(units) < FEW_CLUSTERS_IN_A_HALF:
+        inside = np.asarray(saved.clusters, dtype=object)[np.asarray(saved.halves) == choice.name]
+        labels = tuple(printable(str(c)) for c in dict.fromkeys(inside.tolist()))
     half = HalfRows(shown, choice.name, saved.seed, int(mask.sum()), len(saved.rows),
                     len(with_gaps) if with_gaps is not None else 0, saved.cluster_column, saved.strata_column,
-                    _clusters_per_half(saved))
+                    units, labels)
     chosen.attrs[KEPT_BY] = tuple(frame.attrs.get(KEPT_BY, ())) + (half.text,)
     return chosen, half
 

@@ -130,5 +130,11 @@ def test_one_half_of_such_halves_read_back_is_the_same_caution_first(draw, name,
     assert terminal.startswith(f"Check before interpreting this solution - The rows analysed are {phrase} of {halves}, "
                                f"and the halves were drawn cluster by cluster from only 2 clusters of district"), \
         terminal[:300]
-    problems = json.loads((tmp_path / "f.json").read_text(encoding="utf-8"))["problems"]
-    assert any(p["kind"] == "halves of few clusters" for p in problems)
+    saved = json.loads((tmp_path / "f.json").read_text(encoding="utf-8"))
+    assert any(p["kind"] == "halves of few clusters" for p in saved["problems"])
+    # the methods text names the cluster the half is (hostile s25b: 'half A of two random halves of the clusters')
+    paragraph = " ".join(saved["report"]["paragraph"].split())
+    assert "two random halves" not in paragraph
+    assert re.search(r"the row fell in (half B|the confirmation half), the cluster (north|south) of district \(of 2 "
+                     r"clusters drawn into two halves", paragraph), paragraph[:600]
+
