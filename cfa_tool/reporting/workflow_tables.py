@@ -1603,7 +1603,7 @@ def power_report(result) -> Report:
     table = _table("power", "Power and sample size", [("", "l"), ("Value", "r")], [r[:2] for r in rows],
                    f"Note: {result.note}." if result.note else None,
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
-    notes = [power_assumptions()] + ([POWER_ORDINAL] if result.ordinal else [])
+    notes = [power_assumptions(planned is not None)] + ([POWER_ORDINAL] if result.ordinal else [])
     below = getattr(result, "below_rows_rule", ())
     lines = (rows_rule_caution(result),) if below else ()
     lines += planned_clusters_lines(result.clusters, getattr(result, "free_parameters", None))
@@ -1774,12 +1774,21 @@ def _rows_enough(result) -> str:
             f"the cluster sample")
 
 
-def power_assumptions() -> Note:
+def power_assumptions(design: bool = False) -> Note:
     """What the RMSEA power of MacCallum, Browne & Sugawara (1996) assumes, what lowers it, and what power-simulation
     models instead (ordinal answers; not missing answers, a sampling design or skewed continuous answers), with the
-    options as the caller writes them."""
+    options as the caller writes them; ``design``: the plan takes a design effect (a planned cluster sample), which
+    it then says it models (new-user trial s25: 'this plan models none of them' under a table of that design)."""
     from cfa_tool.options import Option
 
+    if design:
+        lowered = ("A sampling design (clusters or uneven weights make the effective sample size smaller), missing "
+                   "answers and non-normal data lower it. This plan takes the design effect given for the clusters "
+                   "(the table gives the rows and clusters needed, and the power at an N given is that of the "
+                   "independent rows it is worth, N / design effect), but not uneven weights, missing answers or "
+                   "non-normal data: count on more rows than shown if the study will have them")
+        return Note(("This power is that of the normal-theory likelihood-ratio test for rows answered in full by "
+                     "normally distributed data. " + lowered + ". For answers",) + _power_simulation_tail())
     return Note(("This power is that of the normal-theory likelihood-ratio test for independent, equally weighted rows "
             "answered in full by normally distributed data. A sampling design (clusters or uneven weights make the "
             "effective sample size smaller), missing answers and non-normal data lower it, and this plan models none "
@@ -1789,11 +1798,18 @@ def power_assumptions() -> Note:
             Command(f" ({Option.DESIGN_EFFECT.given('D')}, or {Option.INTRACLASS.given('ICC')} with "
                     f"{Option.CLUSTER_SIZE.given('M')})", " as the plan's design effect"),
             ", the table gives the rows and clusters needed, and the power at an N given is that of the independent rows it "
-            "is worth). For answers on a few categories (4-point items, say), power-simulation "
-            "simulates ordinal answers, cut from normal latent responses at the thresholds of an earlier ordinal fit",
+            "is worth). For answers") + _power_simulation_tail())
+
+
+def _power_simulation_tail() -> tuple:
+    """The end of :func:`power_assumptions`: what power-simulation models for answers on few categories."""
+    from cfa_tool.options import Option
+
+    return (" on a few categories (4-point items, say), power-simulation simulates ordinal answers, cut from normal "
+            "latent responses at the thresholds of an earlier ordinal fit",
             Command(f" ({Option.POPULATION_FROM.given('fit.json')})"), " or into equally likely categories",
             Command(f" ({Option.CATEGORIES.given(4)})"), ", and fits them as an ordinal fit does; it simulates no "
-            "missing answers, sampling design or skewed continuous answers either."))
+            "missing answers, sampling design or skewed continuous answers either.")
 
 
 POWER_ORDINAL = ("The model declares ordinal items, whose fits use the adjusted test of least squares on polychoric "

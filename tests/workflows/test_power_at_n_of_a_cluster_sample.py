@@ -47,3 +47,15 @@ def test_without_a_design_the_power_at_n_is_unchanged():
 def test_too_few_independent_rows_refused():
     with pytest.raises(OptionError, match="worth about 1.5 independent rows, too few"):
         plan(24, n_obs=15, design_effect=10)
+
+
+def test_the_note_says_the_plan_takes_the_design_it_shows():
+    """New-user trial s25: under a table that gives the design effect, rows and clusters, the note said 'this plan
+    models none of them' (a sampling design among them); with a planned design it says what the plan takes and what
+    it does not; without one the note is as before."""
+    planned = " ".join(str(n) for n in power_report(plan(24, n_obs=300, intraclass=0.06, cluster_size=40)).notes)
+    assert "models none of them" not in planned
+    assert "This plan takes the design effect given for the clusters" in planned
+    assert "but not uneven weights, missing answers or non-normal data" in planned
+    plain = " ".join(str(n) for n in power_report(plan(24, n_obs=300)).notes)
+    assert "this plan models none of them" in plain
