@@ -28,7 +28,7 @@ THREE = "factor f1: a1, a2, a3\nfactor f2: b1, b2, b3\nfactor f3: c1, c2, c3\nsc
 @pytest.mark.parametrize("text, words", [
     (THREE + "fix covariance(f1, f2) = 0.95\nfix covariance(f2, f3) = 0.95\nfix covariance(f1, f3) = -0.95\n",
      # re-check 6: each value named with its pair (the values and the factors were listed apart)
-     "the factor correlations fixed at .95 (f1 with f2), -.95 (f1 with f3) and .95 (f2 with f3) cannot hold together "
+     "the factor correlations fixed at .95 (f1 with f2), -.95 (f1 with f3), and .95 (f2 with f3) cannot hold together "
      # since hostile tester s15 every fit refuses fixed values no population has, before the population check:
      # semi-definite (a fit's fixed correlations of 1 are possible, a population's rows need a definite matrix)
      "(their matrix is not positive semi-definite)"),
