@@ -855,7 +855,7 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
                   design: DesignColumns | None = None, ids: dict | None = None, names: tuple[str, ...] | None = None,
                   coverage: dict | None = None, n_obs: int | None = None, where: str = "",
                   helpers: tuple[str, ...] = (), listwise: bool = False, by_loadings: tuple[str, ...] = (),
-                  id_column: str | None = None) -> tuple:
+                  id_column: str | None = None, takes_design: bool = True) -> tuple:
     """The cautions on the data that come first in every view, composed here once for every command (fit, check,
     compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: what the row filters did to
     the sample (pipeline.row_filter_cautions: a selection on a model item, a label several codes carry); rows that are copies of
@@ -869,14 +869,16 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     know better.  ``where``: which of several files filtered alike the row filters' cautions are about (replicate's
     ' on the calibration data (spring.csv)'); ``helpers``: the missing-data helpers, whose values read as missing are
     named with the items' ones; ``id_column``: the column ``ids`` are read from (:func:`id_filter_column`), by which
-    advice writes a row filter."""
+    advice writes a row filter; ``takes_design`` False: the command takes no sampling design (replicate, explore:
+    their --cluster draws halves), so no advice offers one."""
     from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 
     names = names if names is not None else (spec.observed_names if spec is not None else ())
     found: tuple = row_filter_problems(loaded, spec, names, where=where) + copied_row_problems(loaded, group, design, names, ids or {})
     # ids of several rows: no merge by id one to one, and the same people's rows taken as independent cases
-    repeated = repeated_id_problems(loaded, ids or {}, id_column, group, names, design, fitted=True)
-    found += repeated or named_id_problems(loaded, id_column, group, design, names)
+    repeated = repeated_id_problems(loaded, ids or {}, id_column, group, names, design, fitted=True,
+                                    takes_design=takes_design)
+    found += repeated or named_id_problems(loaded, id_column, group, design, names, takes_design)
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {}, id_column=id_column)
@@ -1070,7 +1072,7 @@ REPEATED_IDS_SHOWN = 5  # ids of several rows that the caution names before 'and
 
 def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, group: str | None = None,
                          items: tuple[str, ...] = (), design: DesignColumns | None = None, fitted: bool = False,
-                         by_name: bool = False) -> tuple:
+                         by_name: bool = False, takes_design: bool = True) -> tuple:
     """A caution naming the ids that several rows hold (``ids``: data-row number -> id; ``id_column``: the column
     they are read from, data.kept_rows.ROW_NAMES_COLUMN for the file's row names: :func:`id_filter_column`), each with
     its rows, the first :data:`REPEATED_IDS_SHOWN`; () when every id names one row.  One rule for every command that
@@ -1135,7 +1137,7 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
     else:
         spread = taken_as_independent(outside, cluster, several) if fitted else ""
         skip = {id_column, group, *(name for _, name in (design.names if design else ()))} | set(items)
-        allow = (allow_for_them(id_column, occasion_filter(found, frame, skip), outside)
+        allow = (allow_for_them(id_column, occasion_filter(found, frame, skip), outside, takes_design)
                  if fitted and outside != 0 else None)
         advice = (allow + "." if by_name else
                   Note(("correct the ids in a copy of the data file (a typing error?), or name the rows by a "
@@ -1159,7 +1161,7 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
 
 
 def named_id_problems(loaded: LoadedData, id_column: str | None, group: str | None, design: DesignColumns | None,
-                      items: tuple[str, ...]) -> tuple:
+                      items: tuple[str, ...], takes_design: bool = True) -> tuple:
     """The caution on repeated ids (:func:`repeated_id_problems`) by the column the tool takes for the rows' id when
     no id column was given (``id_column`` None or the file's row names): by the one rule of names explore leaves out
     as ids (data.column_roles.id_named_column), over the rows analysed (new-user trial s25: 4,303 rows of 2,400
@@ -1174,7 +1176,8 @@ def named_id_problems(loaded: LoadedData, id_column: str | None, group: str | No
     if named is None:
         return ()
     ids = ids_by_row_number(frame[named].map(id_text), frame)
-    return repeated_id_problems(loaded, ids, named, group, items, design, fitted=True, by_name=True)
+    return repeated_id_problems(loaded, ids, named, group, items, design, fitted=True, by_name=True,
+                                takes_design=takes_design)
 
 
 #: the most values a row filter written for the user lists (beyond it the advice names no filter)

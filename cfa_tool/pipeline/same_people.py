@@ -99,14 +99,15 @@ def groups_taken_as_independent(across: int, several: bool, outside: int | None,
             f"answering twice are not{spread}: the standard errors and difference tests are then wrong.")
 
 
-def allow_for_them(id_column: str, occasions: str | None, outside: int | None) -> Note:
+def allow_for_them(id_column: str, occasions: str | None, outside: int | None, design: bool = True) -> Note:
     """The advice for rows that share an id in one group: one row per person by a row filter (``occasions``, the
     filter that keeps one occasion, when a column tells them apart: :func:`occasion_filter`), the id as the cluster
-    (unless a cluster column already holds each id's rows, ``outside`` 0), or a model of the occasions side by
-    side."""
+    (unless a cluster column already holds each id's rows, ``outside`` 0, or the command takes no sampling design,
+    ``design`` False: replicate and explore, whose --cluster only draws the halves; hostile s25b: replicate --cluster
+    respondent_id was advised '(--cluster respondent_id)'), or a model of the occasions side by side."""
     keep = (("keep one row per person with a row filter", Command(f" ({Option.KEEP.given(occasions)})"), ", or ")
             if occasions else ())
-    cluster = (() if outside == 0 else
+    cluster = (() if outside == 0 or not design else
                ("take the id for the cluster", Command(f" ({Option.CLUSTER.given(id_column)})"),
                 " so that the standard errors and tests allow for the rows of one id, or "))
     return Note(keep + cluster + ("for the same people at several times, put each time's answers side by side in one "

@@ -1040,7 +1040,7 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     # factor is no factor of the exploration
     data_problems = api.data_problems(replace(screened, row_filters=loaded.row_filters, read_frame=loaded.read_frame,
                                               missing_codes=loaded.missing_codes, missing_words=loaded.missing_words),
-                                      None, ids=ids, names=tuple(chosen), id_column=named_by)
+                                      None, ids=ids, names=tuple(chosen), id_column=named_by, takes_design=False)
     halves = None
     if split is not None:
         split = options.seed(split)

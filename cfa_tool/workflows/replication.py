@@ -644,7 +644,7 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                                                                        (result.calibration_result, result.loose), named)
                                 for p in data_problems(s, spec, ids=ids_of, where=f" on the {which} data ({s.source})",
                                                        listwise=r.method.missing is MissingData.LISTWISE,
-                                                       id_column=by)))
+                                                       id_column=by, takes_design=False)))
     found += _same_people(named, id_column, read)
     # what each file read as no answer, as fit keeps it (with_missing_reading, the filters too): the paragraph names it
     cal, loose = (with_missing_reading(result.calibration_result, read[0], missing_codes),
@@ -748,7 +748,8 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     # halves of a handful of clusters first: they are those clusters, not random halves (hostile s24b)
     from cfa_tool.pipeline.row_filter_cautions import few_clusters_problems
 
-    problems = few_clusters_problems(units, cluster, False, strata) + tuple(dict.fromkeys(data_problems(loaded, spec, ids=ids, listwise=rows.complete_only, id_column=named_by)
+    problems = few_clusters_problems(units, cluster, False, strata) + tuple(dict.fromkeys(data_problems(loaded, spec, ids=ids, listwise=rows.complete_only, id_column=named_by,
+                                                                      takes_design=False)
                                    + column_code_problems(loaded, None, design))) + _left_out(
         len(frame) - split, len(frame), source, MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
     # what the file read as no answer kept with each half's fit, as fit keeps it (with_missing_reading; the filters,
