@@ -967,7 +967,11 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     item_note = None
     # the items are chosen and judged on the rows the row filters keep, the rows analysed (rows-s25: a filter's column
     # constant in them was named as codes of two groups, a word in a row left out refused an item named)
-    kept = _kept_by_filters(scan, keep)
+    try:
+        kept = _kept_by_filters(scan, keep)
+    except DataError:  # the first reading takes no-answer words in every column ('Not applicable' in a filter's
+        # column read as no answer): the reading below, which reads them in the items only, applies the filters
+        kept = scan
     if by_default:
         chosen, item_note, worded, left_out = _default_items(kept, columns, codings,
                                                              tuple(c for c in (cluster, strata) if c is not None),

@@ -322,7 +322,8 @@ def test_scores_fit_under_the_design_and_score_every_row(survey, tmp_path, capsy
     weighted = cfa_tool.scores(model, data, weights="w", cluster="unit")
     plain = cfa_tool.scores(model, data)
     assert weighted.fit.design is not None and weighted.rows == len(data)
-    assert not np.allclose(weighted.table.iloc[:, 0], plain.table.iloc[:, 0])
+    # (the scores by name: the scores file carries the cluster column first, scores-s25)
+    assert not np.allclose(weighted.table["f_regression"], plain.table["f_regression"])
     fit_json = tmp_path / "fit.json"
     assert main(["fit", str(tmp_path / "m.cfa"), "--data", str(path), "--weights", "w", "--cluster", "unit",
                  "--json", str(fit_json)]) == 0
@@ -335,7 +336,7 @@ def test_scores_fit_under_the_design_and_score_every_row(survey, tmp_path, capsy
     assert "Estimation of the fit: " in said and "weights (w;" in said
     saved_notes = json.loads(fit_json.read_text())["warnings"]
     assert all(f"About the fit (not the scored data): {' '.join(w.split())}" in said for w in saved_notes)
-    np.testing.assert_allclose(pd.read_csv(again).iloc[:, 0], weighted.table.iloc[:, 0], rtol=1e-6)
+    np.testing.assert_allclose(pd.read_csv(again)["f_regression"], weighted.table["f_regression"], rtol=1e-6)
     assert json.loads(fit_json.read_text())["design"]["weights"] == "w"
     ordinal = cfa_tool.scores(ONE_FACTOR, survey, ordinal="all", weights="freq", weight_kind="frequency")
     repeated = survey.loc[survey.index.repeat(survey["freq"])].reset_index(drop=True)
