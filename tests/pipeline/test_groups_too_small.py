@@ -192,3 +192,25 @@ def test_a_group_without_a_complete_row_is_said_so_and_one_without_any_answer_ke
     frame.loc[frame.index[-10:], ITEMS] = np.nan  # no answer at all: the moments' own message
     with pytest.raises(DataError, match=r"group east of 'site'\): no row answers any of the model's 6 variables"):
         fit(MODEL, frame, group="site", missing="listwise")
+
+
+@pytest.mark.parametrize("label", ["St Mary's", 'Say "no"'])
+def test_the_keep_advice_for_a_label_with_quotes_runs_as_written_and_leaves_the_group_out(tmp_path, capsys, label):
+    # hostile s25b case 09: a group labelled St Mary's got '--keep "district != "St Mary's""', an unterminated quote
+    # in a shell; a label holding double quotes got advice the shell turned into another filter. The advice, split as
+    # a POSIX shell splits it (Python's shlex, not the tool's), runs and leaves just that group's rows out.
+    (tmp_path / "m.cfa").write_text(MODEL)
+    frame = pd.DataFrame(_answers(305, 9), columns=ITEMS)
+    frame["district"] = ["north"] * 150 + ["south"] * 150 + [label] * 5
+    frame.to_csv(tmp_path / "d.csv", index=False)
+    argv = ["fit", tmp_path / "m.cfa", "--data", tmp_path / "d.csv", "--group-column", "district"]
+    code, _, err = run_cli(argv, capsys)
+    assert code == 2, err
+    advised = re.search(r"leave it out with (--keep .*?) \(the other", " ".join(err.split())).group(1)
+    words = shlex.split(advised)
+    assert words[0] == "--keep" and len(words) == 2
+    code, out, err = run_cli(argv + words, capsys)
+    assert code == 0, err
+    said = " ".join(out.split())
+    assert "300 rows analysed of 300 kept by the row filter" in said and "(305 rows in the file)" in said
+    assert f"Row filter '{words[1]}' kept 300 of 305 rows" in said  # the filter the advice wrote, as given
