@@ -238,7 +238,7 @@ class Option(enum.Enum):
             value = ",".join(f"{_name_in_list(old)}={_name_in_list(new)}" for old, new in value.items())
         values = [str(v) for v in value] if isinstance(value, (list, tuple)) else [str(value)]
         if interface() is Interface.COMMAND_LINE:
-            return " ".join(f"{self.flag} {_quoted(text)}" for text in values)
+            return " ".join(f"{self.flag} {shell_word(text)}" for text in values)
         if not self.listed:
             return f"{self.keyword}={value!r}" if isinstance(value, str) else f"{self.keyword}={value}"
         if len(values) == 1 and _numbers(values[0]):
@@ -268,7 +268,7 @@ _SHELL_SPECIAL = frozenset("'\"\\$`!;&|<>()*?[]{}#~")
 _DOUBLE_QUOTE_SPECIAL = re.compile(r'["\\`]|\$[\w{(@*#?$!-]|![^\s=]')
 
 
-def _quoted(text: str) -> str:
+def shell_word(text: str) -> str:
     """A value as typed in a POSIX shell, which gives the program ``text`` as it is: bare when it holds no space and
     nothing the shell reads as its own; else in double quotes (the usual '--keep "district = north"'); in single
     quotes when it holds a double quote, '`', a backslash, or a '$' or '!' the shell would read, each single quote in it

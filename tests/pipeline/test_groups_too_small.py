@@ -14,7 +14,7 @@ import pytest
 
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.errors import DataError
-from cfa_tool.options import _quoted
+from cfa_tool.options import shell_word
 from cfa_tool.pipeline.inputs import check
 from tests.conftest import run_cli
 
@@ -176,7 +176,7 @@ def test_recoding_comes_first_when_it_changes_fewer_answers_than_leaving_the_gro
 
 def test_a_filter_holding_double_quotes_is_given_in_single_quotes_as_a_shell_reads_it():
     for text in ('gender != "another / prefers to describe"', '"wave 2" != 1', "site != far west"):
-        (back,) = shlex.split(_quoted(text))  # Python's shell-like splitter, not the tool's
+        (back,) = shlex.split(shell_word(text))  # Python's shell-like splitter, not the tool's
         assert back == text
 
 
@@ -214,3 +214,15 @@ def test_the_keep_advice_for_a_label_with_quotes_runs_as_written_and_leaves_the_
     said = " ".join(out.split())
     assert "300 rows analysed of 300 kept by the row filter" in said and "(305 rows in the file)" in said
     assert f"Row filter '{words[1]}' kept 300 of 305 rows" in said  # the filter the advice wrote, as given
+
+
+def test_the_halves_advice_writes_a_cluster_column_as_the_shell_reads_it():
+    # the neighbour of case 09 (data.halves wrote names in double quotes by a rule of its own, so a column named
+    # cost$ward or holding a double quote broke in the shell): the one rule, options.shell_word, split back by shlex
+    from cfa_tool.data.halves import REPLICATE_HALVES, redraw_words
+
+    for column in ('cost$ward', 'the "depot"', "St Mary's", "depot"):
+        words = redraw_words(REPLICATE_HALVES, 3, cluster=column)
+        command = re.search(r"(cfa-tool replicate .*? --halves-file NEW\.csv)", words).group(1)
+        split = shlex.split(command)
+        assert split[split.index("--cluster") + 1] == column
