@@ -12,6 +12,7 @@ import contextvars
 import enum
 import math
 import numbers
+import re
 from collections.abc import Iterator
 
 from cfa_tool.errors import OptionError, clipped
@@ -245,7 +246,7 @@ class Option(enum.Enum):
             value = ",".join(f"{_name_in_list(old)}={_name_in_list(new)}" for old, new in value.items())
         values = [str(v) for v in value] if isinstance(value, (list, tuple)) else [str(value)]
         if interface() is Interface.COMMAND_LINE:
-            return " ".join(f"{self.flag} {_quoted(text)}" for text in values)
+            return " ".join(f"{self.flag} {shell_word(text)}" for text in values)
         if not self.listed:
             return f"{self.keyword}={value!r}" if isinstance(value, str) else f"{self.keyword}={value}"
         if len(values) == 1 and _numbers(values[0]):
@@ -267,12 +268,27 @@ def _name_in_list(name: object) -> str:
     return f'"{text}"' if any(c in text for c in ',="') or text != text.strip() else text
 
 
-def _quoted(text: str) -> str:
-    """A value as typed in a shell: in double quotes when it holds a space (in single quotes when it holds a double
-    quote and no single one: a row filter 'gender != "another / prefers to describe"')."""
-    if not any(c.isspace() for c in text) or (len(text) > 1 and text[0] == text[-1] and text[0] in "\"'"):
-        return text  # no space, or already quoted
-    return f"'{text}'" if '"' in text and "'" not in text else f'"{text}"'
+#: characters a POSIX shell (sh, bash) reads as its own outside quotes: a word holding one is quoted
+_SHELL_SPECIAL = frozenset("'\"\\$`!;&|<>()*?[]{}#~")
+#: what a shell still reads inside double quotes: a double quote, a backslash, '`', '$' before a name, a brace, a
+#: parenthesis or a special parameter ('filter_$ = 1' it leaves alone), and '!' before another than a space, '=' or
+#: the end, which interactive bash reads as history ('!=' it leaves alone)
+_DOUBLE_QUOTE_SPECIAL = re.compile(r'["\\`]|\$[\w{(@*#?$!-]|![^\s=]')
+
+
+def shell_word(text: str) -> str:
+    """A value as typed in a POSIX shell, which gives the program ``text`` as it is: bare when it holds no space and
+    nothing the shell reads as its own; else in double quotes (the usual '--keep "district = north"'); in single
+    quotes when it holds a double quote, '`', a backslash, or a '$' or '!' the shell would read, each single quote in it
+    written '\\'' (close the quotes, a quoted quote, open them again: the POSIX shell's rule, Shell Command Language
+    2.2.2-2.2.3; recalled from memory), so that
+    a filter of a value with an apostrophe ("district != \"St Mary's\"") or with double quotes runs as written
+    (hostile s25b case 09: '--keep "district != "St Mary's""' was an unterminated quote)."""
+    if text and not any(c.isspace() or c in _SHELL_SPECIAL for c in text):
+        return text
+    if not _DOUBLE_QUOTE_SPECIAL.search(text):
+        return f'"{text}"'
+    return "'" + text.replace("'", "'\\''") + "'"
 
 
 def _numbers(text: str) -> bool:

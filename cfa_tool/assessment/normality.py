@@ -60,7 +60,7 @@ class Normality:
     kurtosis_z: float
     kurtosis_p_value: float
     rows_with_gaps: int = 0  # rows judged on the items they answered (0: every row judged was complete)
-    complete_rows: int = 0  # of rows with gaps: how many rows are complete
+    complete_rows: int = 0  # how many of the rows judged are complete (every one of them without gaps)
     of_complete_rows: Normality | None = None  # of rows with gaps: Mardia's tests of the complete rows alone
 
     def to_dict(self) -> dict:
@@ -167,7 +167,9 @@ def mardia(rows: np.ndarray, whitened: Whitened | None = None,
     chi = n * b1 / 6.0
     expected = p * (p + 2.0)
     z = (b2 - expected) / np.sqrt(8.0 * p * (p + 2.0) / n)
-    return Normality(b1, chi, df, float(dist.chi2_sf(chi, df)), b2, expected, float(z), float(2 * dist.norm_sf(abs(z))))
+    # every row Mardia's tests read is complete: their number is the complete rows' (hostile s25b case 03: 0 was written)
+    return Normality(b1, chi, df, float(dist.chi2_sf(chi, df)), b2, expected, float(z), float(2 * dist.norm_sf(abs(z))),
+                     complete_rows=int(rows.shape[0]))
 
 
 def _sum_of_cubed_products(Y: np.ndarray, w: np.ndarray | None = None) -> float:

@@ -114,10 +114,16 @@ class FactorReliability:
     #: the delta-method standard error of omega from the estimates' covariance (Raykov 2002;
     #: assessment.reliability_intervals.with_omega_errors), None where not computed
     omega_se: float | None = None
+    #: the factor's weak items (item_keys, weak_loadings): their signs key nothing, so they count on neither side of
+    #: the factor's majority (nor of a split) and, without a 'reversed' statement, are left as answered
+    weak: tuple[str, ...] = ()
+    #: ... of them (keys by the loadings' signs), those whose loading runs against the factor's direction: left as
+    #: answered only because they are weak (what the keying note says beside 'none is reversed')
+    weak_against: tuple[str, ...] = ()
 
     def to_dict(self) -> dict:
         d = dict(vars(self))  # every field is a number, a word or a tuple of them, converted below
-        for flag in ("points_against", "evenly_split"):
+        for flag in ("points_against", "evenly_split", "weak", "weak_against"):
             if not getattr(self, flag):
                 del d[flag]  # written only when it warns
         if self.bifactor is None:  # written only for a bifactor model, so that other models' results stay as they were
@@ -131,6 +137,9 @@ class FactorReliability:
         own = self.items[: len(self.item_total)]
         d["item_total"] = dict(zip(own, self.item_total))
         d["against_keying"] = list(self.against_keying)
+        for flag in ("weak", "weak_against"):
+            if flag in d:
+                d[flag] = list(d[flag])
         return d
 
 
@@ -159,6 +168,9 @@ def factor_dicts(factors) -> list[dict]:
                 totals = dict(zip(r.items[: len(value)], value))
                 plain = all(type(v) is float and v - v == 0.0 for v in value)
                 d[key] = totals if plain else clean(totals)
+            elif key in _WEAK:
+                if value:
+                    d[key] = _names(value)
             elif key in _FLAGS:
                 if value:
                     d[key] = value if kind in PLAIN_TYPES else clean(value)
@@ -175,6 +187,9 @@ def factor_dicts(factors) -> list[dict]:
 
 _NAMES = frozenset(("items", "reversed", "against_keying"))
 _FLAGS = frozenset(("points_against", "evenly_split"))
+#: the size below which a standardized loading is weak (assessment.method_factors.SMALL_LOADING), as words write it
+WEAK_LINE = f"{SMALL_LOADING:.2f}".removeprefix("0")
+_WEAK = frozenset(("weak", "weak_against"))  # written, as lists, only when the factor has such items
 
 
 @dataclass(frozen=True)
@@ -373,6 +388,13 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     standardized = (standardized_effects(G, phi.diagonal(), sigma.diagonal())
                     if declared is not None or (G < 0).any() else None)
     K, direction, split = item_keys(G, member, observed, declared, standardized)
+    weak = None if standardized is None else weak_loadings(standardized, member)
+    if weak is not None and not weak.any():
+        weak = None
+    weak_l = None if weak is None else weak.T.tolist()
+    # a weak item whose sign runs against its factor's direction: left as answered only because it is weak
+    weak_against_l = (None if weak is None or declared is not None else
+                      (weak & (np.where(G < 0, -1.0, 1.0) != direction)).T.tolist())
     layout = _layout(direct, member, higher, observed, latent, not_traits)
     first_order, compared = layout.first_order, layout.compared
     if declared is None:
@@ -449,10 +471,13 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         reversed_items = tuple([observed[i] for i in items if turned_j[i]])
         against_items = () if against_l is None else tuple([observed[i] for i in items if against_l[j][i]])
         turned, tied = turned_l[j], tied_l[j]
+        faint = () if weak_l is None else tuple([observed[i] for i in items if weak_l[j][i]])
+        faint_against = () if weak_against_l is None else tuple([observed[i] for i in items if weak_against_l[j][i]])
         if higher_l[j]:
             results.append(FactorReliability(name, names, "higher-order", omega_l[j], omega_total_l[j], omega_l[j],
                                              None, None, None, None, None, reversed_items, keying, None, None, (),
-                                             against_items, points_against=turned, evenly_split=tied))
+                                             against_items, points_against=turned, evenly_split=tied,
+                                             weak=faint, weak_against=faint_against))
             continue
         alpha_j = mean = sd = None
         item_total: tuple[float, ...] = ()
@@ -469,7 +494,7 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         if counts_l[j] == 1:  # one item: its coefficients only restate the error variance the model had to fix
             results.append(FactorReliability(name, names, "first-order", float("nan"), float("nan"), None, None, None,
                                              None, None, None, reversed_items, keying, mean, sd, item_total,
-                                             against_items))
+                                             against_items, weak=faint, weak_against=faint_against))
             continue
         largest = holds = None
         if compared_l[j]:  # another first-order factor to compare with
@@ -480,7 +505,8 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
                                          None if part is not None else cr_l[j], ave_l[j], alpha_j, largest, holds,
                                          reversed_items, keying, mean, sd, item_total, against_items,
                                          points_against=turned, evenly_split=tied, bifactor=part,
-                                         shares_items_with=shared.get(name, ())))
+                                         shares_items_with=shared.get(name, ()), weak=faint,
+                                         weak_against=faint_against))
     htmt = []
     if S is not None:
         for a_pos, a in enumerate(first_order):
@@ -673,7 +699,11 @@ def _split_warning(split: list[FactorReliability], prefix: str) -> Note:
     """The caution for the factors half of whose items load each way (``evenly_split``) with no 'reversed'
     statement: one sentence for all of them, each factor's two halves named."""
     def halves(r: FactorReliability) -> str:
-        return f"{', '.join(x for x in r.items if x not in r.reversed)} against {', '.join(r.reversed)}"
+        """The two halves, weak items on neither side (item_keys: their signs key nothing), named after them."""
+        kept = ', '.join(x for x in r.items if x not in r.reversed and x not in r.weak)
+        weak = (f"; {', '.join(r.weak)}, of standardized loading{'' if len(r.weak) == 1 else 's'} below {WEAK_LINE} "
+                f"in size, load{'s' if len(r.weak) == 1 else ''} too weakly to count on either side" if r.weak else "")
+        return f"{kept} against {', '.join(r.reversed)}{weak}"
 
     if len(split) == 1:
         r = split[0]

@@ -38,7 +38,7 @@ from cfa_tool.numbers import count_text, counted, word_list
 from cfa_tool.data.readers import sheet_read
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.note_parts import Command, Note, Text
-from cfa_tool.options import Interface, Option, interface
+from cfa_tool.options import Interface, Option, interface, shell_word
 
 #: the columns of a halves file, in order
 HALVES_COLUMNS = ("row", "half", "seed", "data_file", "data_sha256", "sheet_read")
@@ -105,7 +105,7 @@ def halves_named_alike(seed: int, explored: bool, cluster: str | None = None, st
     python = interface() is not Interface.COMMAND_LINE
     design = [(word, name) for word, name in (("cluster", cluster), ("strata", strata)) if name]
     by = "".join(f", {word}={name!r}" for word, name in design) if python else \
-        "".join(f" --{word} {_shell_word(name)}" for word, name in design)
+        "".join(f" --{word} {shell_word(name)}" for word, name in design)
     if explored:
         other = f"split_half(model, data, seed={seed}{by})" if python else \
             f"replicate MODEL --data FILE --seed {seed}{by}"
@@ -126,7 +126,7 @@ def redraw_words(names: "tuple[str, ...] | list[str]", seed: str | int = "SEED",
     caller reads the function that uses the same halves, then the command that writes their file, which only the
     command line writes (the command last: messages go on after it)."""
     if set(names) == set(REPLICATE_HALVES):
-        by = "".join(f" {flag} {_shell_word(name)}" for flag, name in (("--cluster", cluster), ("--strata", strata))
+        by = "".join(f" {flag} {shell_word(name)}" for flag, name in (("--cluster", cluster), ("--strata", strata))
                      if name)
         command = f"cfa-tool replicate MODEL --data FILE --seed {seed}{by} --halves-file NEW.csv"
         keywords = "".join(f", {word}={name!r}" for word, name in (("cluster", cluster), ("strata", strata)) if name)
@@ -219,10 +219,6 @@ def draw_halves(count: int, seed: int) -> tuple[np.ndarray, np.ndarray]:
     order = np.random.default_rng(seed).permutation(count)
     first = (count + 1) // 2
     return np.sort(order[:first]), np.sort(order[first:])
-
-
-def _shell_word(text: str) -> str:
-    return f'"{text}"' if not text or any(c.isspace() or c in "'\"$`" for c in text) else text
 
 
 def draw_cluster_halves(units: np.ndarray, strata: np.ndarray | None, seed: int) -> tuple[np.ndarray, np.ndarray]:
@@ -635,7 +631,7 @@ def _half_given(path, name: str) -> str:
     """The choice of the half ``name`` of the halves file ``path`` as the caller writes it ('--half h.csv
     confirmation', "keep=[RandomHalf('h.csv', 'confirmation')]")."""
     if interface() is Interface.COMMAND_LINE:
-        return f"{Option.HALF.flag} {_shell_word(str(path))} {name}"
+        return f"{Option.HALF.flag} {shell_word(str(path))} {name}"
     return f"{Option.HALF.keyword}=[RandomHalf({str(path)!r}, {name!r})]"
 
 

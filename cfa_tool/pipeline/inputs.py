@@ -1276,17 +1276,21 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
     values = frame[items].apply(pd.to_numeric, errors="coerce").to_numpy(dtype=float)
     if spec.reversed:
         declared = spec.reverse_keyed
-        reversed_words = "reverse-worded items"
+        reversed_noun = ("reverse-worded item", "reverse-worded items")
     else:  # the ends of each such item's answers in the rows analysed: its scale as answered
         with np.errstate(all="ignore"):
             ends = {x: (float(np.nanmin(values[:, k])), float(np.nanmax(values[:, k])))
                     for k, x in enumerate(items) if x in by_loadings and not np.isnan(values[:, k]).all()}
         declared = ends
-        reversed_words = "items loading against their factors (reversed in the keyed sums)"
+        reversed_noun = ("item loading against its factor (reversed in the keyed sums)",
+                         "items loading against their factors (reversed in the keyed sums)")
     middles = np.array([sum(declared[x]) / 2 if x in declared else np.nan for x in items])
     found = same_answer_rows(values, row_numbers(frame), np.array([x in declared for x in items]), middles)
     if found is None:
         return ()
+    # the items in the number their count takes (numbers.counted; hostile s25b case 10: 'the 1 reverse-worded items')
+    reversed_words = reversed_noun[found.reversed_items != 1]
+    reversed_count = counted(found.reversed_items, *reversed_noun)
 
     lines = text_lines(frame)
 
@@ -1296,7 +1300,7 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
         def one_row(k: int) -> Text:  # the id apart: a manuscript names rows by number alone (note_parts.RowId)
             r = found.rows[k]
             number = f"{r}{line_words(r, lines)}"  # a text file's row on a line of another number: both
-            answered = (f"{found.reversed_answered[k]} of the {found.reversed_items} {reversed_words} answered"
+            answered = (f"{found.reversed_answered[k]} of the {reversed_count} answered"
                         if skipped and found.reversed_answered[k] < found.reversed_items else "")
             if ids.get(r) is None:
                 return f"{number} ({answered})" if answered else number
@@ -1322,7 +1326,7 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
     if against:
         # what each row answered: a row that skipped a reverse-worded item is not said to have answered it
         every = all(found.reversed_answered[k] == found.reversed_items for k in against)
-        included = f"the {found.reversed_items} {reversed_words} included" if every else f"{reversed_words} included"
+        included = f"the {reversed_count} included" if every else f"{reversed_words} included"
         parts.append(f"{rows_gave(against, gave(against))}, {included} (" + listed(against, skipped=True)
                      + "): agreeing alike with an item and its reversal suggests careless responding (a long string of "
                        "identical answers; Johnson 2005, Curran 2016).")

@@ -11,7 +11,7 @@ from cfa_tool.numbers import count_text, counted, cut_list, user_number
 from cfa_tool.assessment.admissibility import ProblemKind, design_doubts, solution_first
 from cfa_tool.assessment.identification import JUST_IDENTIFIED
 from cfa_tool.assessment.fit_indices import TLI_NOT_CUT
-from cfa_tool.assessment.reliability import WITHHELD_BECAUSE, BifactorPart, Keying, miskeyed
+from cfa_tool.assessment.reliability import WEAK_LINE, WITHHELD_BECAUSE, BifactorPart, Keying, miskeyed
 from cfa_tool.data.labels import label_text
 from cfa_tool.data.summary_stats import STANDARDIZED_ITEMS, given_with, source_words
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
@@ -1190,15 +1190,22 @@ def keying_sentence(rows) -> Text:
     (note_parts.Command), which a manuscript leaves out."""
     lists = [f"{r.factor}: {', '.join(r.reversed)}" for r in rows if r.reversed]
     declared = any(r.keying is Keying.DECLARED for r in rows)
+    # weak items loading against their factor: left as answered because weak (assessment.reliability.item_keys)
+    faint = [f"{r.factor}: {', '.join(r.weak_against)}" for r in rows if r.weak_against]
+    left = (f"Left as answered although they load against their factor's other items, because too weakly "
+            f"(standardized loading below {WEAK_LINE} in size) for the sign to key them: {'; '.join(faint)}. "
+            if faint else "")
     if not lists:
         return (Note(("Every item is keyed as the model declares", Command(REVERSED_STATEMENT),
                       ": none is scored in reverse. ")) if declared else
+                "No item is reversed for scoring. " + left if faint else
                 "Every item loads in its factor's direction, so none is reversed for scoring. ")
     why = (Note(("as the model declares", Command(" in its 'reversed' statement"))) if declared else
            "their loadings have the sign opposite to most items of their factor"
-           + ("; where half of a factor's items load each way, opposite to the half that holds its first item"
+           + (f"; where half of a factor's items load each way, opposite to the half that holds its first item"
+              f"{' not weak' if any(r.evenly_split and r.weak for r in rows) else ''}"
               if any(r.evenly_split for r in rows) else ""))
-    return "Computed for keyed sums; reversed for scoring (" + why + f"): {'; '.join(lists)}. "
+    return "Computed for keyed sums; reversed for scoring (" + why + f"): {'; '.join(lists)}. " + left
 
 
 def _fixed_alike(result) -> bool:

@@ -66,8 +66,8 @@ import pandas as pd
 from cfa_tool.numbers import count_text, counted, cut_list, user_number, word_list
 from cfa_tool.data.halves import drawn_halves, few_clusters_words, half_phrase
 from cfa_tool.model.parameters import one_group_only
-from cfa_tool.pipeline.inputs import (_described, data_problems, rows_named, keeps_rows_with_gaps, load_spec, make_options, odd_values_named,
-                                      read_inputs_with_notes, refit_missing_handling, refuse_totals_rows,
+from cfa_tool.pipeline.inputs import (_described, data_problems, few_category_notes, rows_named, keeps_rows_with_gaps, load_spec,
+                                      make_options, odd_values_named, read_inputs_with_notes, refit_missing_handling, refuse_totals_rows,
                                       with_missing_reading)
 from cfa_tool.assessment.admissibility import inadmissible_words
 from cfa_tool.data.answer_words import coding_json, coding_record
@@ -655,8 +655,12 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     if both != cal.data.numbers_only:
         cal = replace(cal, data=replace(cal.data, numbers_only=both))
     rows = tuple(replace(r, in_file=fitted.data.rows_in_file) for r, fitted in zip(result.rows, (cal, loose)))
+    # continuous items of few answer categories or piled up at one end: fit's note, of both samples' answers (hostile
+    # s25b case 05: fit, compare, invariance, scores and bootstrap named them, replicate did not)
+    few = () if ordinal_items else tuple(few_category_notes(pd.concat([cal_frame, val_frame], ignore_index=True),
+                                                            spec.observed_names))
     return replace(result, calibration_result=cal, loose=loose, rows=rows, data_problems=found + left_out,
-                   notes=tuple(dict.fromkeys(n for file_notes in notes for n in file_notes)),
+                   notes=tuple(dict.fromkeys([n for file_notes in notes for n in file_notes] + list(few))),
                    answer_coding=coding_record(spec))
 
 
@@ -730,8 +734,10 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
                                               first_data_row=first_data_row, rename=rename,
                                               chosen=chosen_columns(id_column=id_column, design=design),
                                               keeps_gaps=keeps_rows_with_gaps(missing))  # as fit reads it
-    notes = tuple(notes)
     frame, source = loaded.frame, loaded.source
+    # continuous items of few answer categories or piled up at one end: fit's note, of the rows read (hostile s25b
+    # case 05)
+    notes = tuple(dict.fromkeys(list(notes) + ([] if ordinal_items else few_category_notes(frame, spec.observed_names))))
     with odd_values_named(loaded):
         pair, halves, units, labels = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, design,
                                           **options)

@@ -18,6 +18,7 @@ them; the check values are the constructions (which items load which way, which 
 
 from __future__ import annotations
 
+import json
 import math
 
 import numpy as np
@@ -29,7 +30,7 @@ from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.assessment.reliability_intervals import Coefficient, Withheld
 from cfa_tool.reporting.json_report import to_json
 from cfa_tool.reporting.paragraph import methods_paragraph
-from cfa_tool.reporting.tables import reliability_table, sum_score_table
+from cfa_tool.reporting.tables import keying_sentence, reliability_table, sum_score_table
 from cfa_tool.resources import resource_dir
 from tests.conftest import simulate_cfa
 
@@ -167,3 +168,40 @@ def test_a_balanced_scale_is_keyed_in_one_order_in_every_group():
     assert {g.reliability[0].reversed for g in result.groups} == {("d2", "d4")}
     said = [str(w) for w in result.warnings if "half of its items load each way" in str(w)]
     assert len(said) == 3 and all("(d1, d3 against d2, d4)" in w for w in said)
+
+
+def test_a_weak_item_counts_on_neither_side_of_a_split_factor():
+    # hostile s25b case 01: w (population loading .03, weak by construction) listed first, x3, x4 loading -.7 and
+    # x1, x2 .7 (invented); the note called 3 against 2 'half each way' by counting w among the halves
+    L = np.array([[0.03], [-0.7], [0.7], [-0.7], [0.7]])
+    data = simulate_cfa(L, np.eye(1), np.diag(1.0 - (L**2).ravel()), 500, 2525, ["w", "x3", "x1", "x4", "x2"])
+    fit = cfa_tool.fit("factor f: w, x3, x1, x4, x2\nscale latent by variance\n", data)
+    [w] = [e.standardized for e in fit.estimates if e.kind == "loading" and e.variables == ("f", "w")]
+    assert abs(w) < 0.2  # the case: weak
+    (row,) = fit.groups[0].reliability
+    assert row.evenly_split
+    # the tie is broken by the first item not weak (x3): its half kept as answered, the other reversed, w kept
+    assert row.reversed == ("x1", "x2")
+    said = [_flat(w) for w in fit.warnings if "half of its items load each way" in str(w)]
+    assert len(said) == 1
+    assert "(x3, x4 against x1, x2; w, of standardized loading below .20 in size, loads too weakly to count on " \
+           "either side)" in said[0]
+    assert "(w, x3, x4 against" not in said[0]
+    assert "opposite to the half that holds its first item not weak" in _flat(keying_sentence(fit.groups[0].reliability))
+    assert row.weak == ("w",) and json.loads(to_json(fit))["reliability"]["factors"][0]["weak"] == ["w"]
+
+
+def test_a_weak_item_loading_against_its_factor_is_said_to_be_left_as_answered():
+    # hostile s25b case 02 (words): a5 loads -.05 in the population (weak by construction), so it is left as answered;
+    # the note said 'Every item loads in its factor's direction' beside the paragraph's '1 negative'
+    data = _weak_item_answers()
+    fit = cfa_tool.fit("factor a: a1..a5\nfactor b: b1..b4\n", data)
+    rows = fit.groups[0].reliability
+    (a,) = [r for r in rows if r.factor == "a"]
+    assert a.reversed == ()
+    said = _flat(keying_sentence(rows))
+    assert "Every item loads in its factor's direction" not in said
+    assert "No item is reversed for scoring. Left as answered although they load against their factor's other " \
+           "items, because too weakly (standardized loading below .20 in size) for the sign to key them: a: a5." in said
+    assert "(1 negative)" in _flat(methods_paragraph(fit))  # the paragraph's count, which the note now agrees with
+    assert a.weak_against == ("a5",)

@@ -162,3 +162,19 @@ def test_the_scores_file_marks_the_same_answer_rows():
     plain = cfa_tool.scores(MODEL, frame).table
     assert list(plain.columns[-2:]) == ["same_answer_to_every_item", "why_not_scored"]
     assert plain["same_answer_to_every_item"].isna().all()
+
+
+def test_one_reverse_worded_item_is_counted_in_the_singular():
+    # hostile s25b case 10: one item declared reversed gave 'the 1 reverse-worded items included', and keys by the
+    # loadings' signs 'the 1 items loading against their factors' (numbers.counted is the one rule of a count)
+    frame = _planted(_answers())
+    [declared] = [p for p in cfa_tool.fit(MODEL + "reversed a2 on 1 to 5\n", frame).problems
+                  if p.kind is ProblemKind.SAME_ANSWER_ROWS]
+    text = " ".join(str(declared.explanation).split())
+    assert "the 1 reverse-worded item included" in text and "reverse-worded items" not in text
+    # by the signs: a model of a1..a4 alone, where a2 alone loads against its factor (its population loading negative)
+    [keyed] = [p for p in cfa_tool.fit("factor f: a1, a2, a3, a4\n", frame).problems
+               if p.kind is ProblemKind.SAME_ANSWER_ROWS]
+    text = " ".join(str(keyed.explanation).split())
+    assert "the 1 item loading against its factor (reversed in the keyed sums) included" in text
+    assert "1 items" not in text

@@ -85,3 +85,15 @@ def test_a_kurtosis_that_cannot_be_computed_is_said_so(rider_demo, rider_model, 
                            "rows, and the kurtosis of rows with gaps")
     assert "--incomplete-rows listwise" in text or "missing='listwise'" in text
     assert "--robust" in text or "test='robust'" in text
+
+
+def test_the_json_counts_the_complete_rows_of_every_record(rider_demo, rider_model):
+    # hostile s25b case 03: docs/json.md's complete_rows, 'the number of complete rows', was 0 for a file of complete
+    # rows and inside of_complete_rows; the counts are the demo's (471 of 480 rows complete, by pandas' dropna)
+    items = list(cfa_tool.parse_model(rider_model).observed_names)
+    complete = rider_demo.dropna(subset=items)
+    assert len(complete) == 471
+    said = cfa_tool.fit(rider_model, complete).to_dict()["normality"]
+    assert said["complete_rows"] == 471 and said["rows_with_gaps"] == 0
+    gaps = cfa_tool.fit(rider_model, rider_demo, missing="full-information").to_dict()["normality"]
+    assert gaps["complete_rows"] == 471 and gaps["of_complete_rows"]["complete_rows"] == 471

@@ -14,7 +14,7 @@ import pytest
 
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.errors import DataError
-from cfa_tool.options import _quoted
+from cfa_tool.options import shell_word
 from cfa_tool.pipeline.inputs import check
 from tests.conftest import run_cli
 
@@ -176,7 +176,7 @@ def test_recoding_comes_first_when_it_changes_fewer_answers_than_leaving_the_gro
 
 def test_a_filter_holding_double_quotes_is_given_in_single_quotes_as_a_shell_reads_it():
     for text in ('gender != "another / prefers to describe"', '"wave 2" != 1', "site != far west"):
-        (back,) = shlex.split(_quoted(text))  # Python's shell-like splitter, not the tool's
+        (back,) = shlex.split(shell_word(text))  # Python's shell-like splitter, not the tool's
         assert back == text
 
 
@@ -209,3 +209,37 @@ def test_leaving_small_groups_out_is_not_advised_when_one_group_would_stay():
     message = str(refused.value)
     assert "keep=" not in message and "join each with a similar group by recoding 'site'" in message
     assert "leaving them out would leave one group, with nothing to compare" in message
+
+
+@pytest.mark.parametrize("label", ["St Mary's", 'Say "no"'])
+def test_the_keep_advice_for_a_label_with_quotes_runs_as_written_and_leaves_the_group_out(tmp_path, capsys, label):
+    # hostile s25b case 09: a group labelled St Mary's got '--keep "district != "St Mary's""', an unterminated quote
+    # in a shell; a label holding double quotes got advice the shell turned into another filter. The advice, split as
+    # a POSIX shell splits it (Python's shlex, not the tool's), runs and leaves just that group's rows out.
+    (tmp_path / "m.cfa").write_text(MODEL)
+    frame = pd.DataFrame(_answers(305, 9), columns=ITEMS)
+    frame["district"] = ["north"] * 150 + ["south"] * 150 + [label] * 5
+    frame.to_csv(tmp_path / "d.csv", index=False)
+    argv = ["fit", tmp_path / "m.cfa", "--data", tmp_path / "d.csv", "--group-column", "district"]
+    code, _, err = run_cli(argv, capsys)
+    assert code == 2, err
+    advised = re.search(r"leave it out with (--keep .*?) \(the other", " ".join(err.split())).group(1)
+    words = shlex.split(advised)
+    assert words[0] == "--keep" and len(words) == 2
+    code, out, err = run_cli(argv + words, capsys)
+    assert code == 0, err
+    said = " ".join(out.split())
+    assert "300 rows analysed of 300 kept by the row filter" in said and "(305 rows in the file)" in said
+    assert f"Row filter '{words[1]}' kept 300 of 305 rows" in said  # the filter the advice wrote, as given
+
+
+def test_the_halves_advice_writes_a_cluster_column_as_the_shell_reads_it():
+    # the neighbour of case 09 (data.halves wrote names in double quotes by a rule of its own, so a column named
+    # cost$ward or holding a double quote broke in the shell): the one rule, options.shell_word, split back by shlex
+    from cfa_tool.data.halves import REPLICATE_HALVES, redraw_words
+
+    for column in ('cost$ward', 'the "depot"', "St Mary's", "depot"):
+        words = redraw_words(REPLICATE_HALVES, 3, cluster=column)
+        command = re.search(r"(cfa-tool replicate .*? --halves-file NEW\.csv)", words).group(1)
+        split = shlex.split(command)
+        assert split[split.index("--cluster") + 1] == column
