@@ -187,6 +187,8 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the data: a code given with --missing-codes that lies between the items' other
     # answers, labelled or not (data.missing_codes.CodeOnAnswer): its answers were read as gaps
     ANSWERS_GIVEN_AS_MISSING = ("answers given as missing codes", "answers read as gaps", False)
+    # the data file's own declaration of missing values on an answer between the items' other answers
+    ANSWERS_DECLARED_MISSING = ("answers the file declares missing", "answers read as gaps", False)
     UNKNOWN_GROUPS_SCORED = ("rows in groups the fit does not have", "groups the fit lacks", False)
     # not of the solution but of the rows: ids of the id column (or row names) that name several rows, so nothing
     # merged by them (a scores file) matches the rows one to one (pipeline.inputs.repeated_id_problems)
@@ -543,6 +545,8 @@ class Problem:
             K.DESELECTED_ROWS: "rows that the data file's saved case filter marks as not selected, analysed with the "
                                "selected ones as the file holds them",
             K.ANSWERS_GIVEN_AS_MISSING: "a missing-value code that the data file labels as an answer between the "
+                                        "items' other answers, whose answers were treated as missing",
+            K.ANSWERS_DECLARED_MISSING: "a missing value the data file declares on an answer it labels between the "
                                         "items' other answers, whose answers were treated as missing",
             K.FILTER_LABELS_BY_CASE: "a row filter whose text the column also holds in other upper and lower case, "
                                      "which it treated as another value",

@@ -203,6 +203,9 @@ class CodeOnAnswer:
     scale: tuple[float, float]
     #: the kind of problem every view files it under (assessment.admissibility.ProblemKind's value)
     problem_kind: str = "answers given as missing codes"
+    #: the data file's own declaration of missing values made the gaps (an SPSS file's MISSING VALUES), not a code
+    #: the run gave (hostile s25: 3 'Neither agree nor disagree' declared missing lost 39% of the answers with a note)
+    declared: bool = False
 
     def among(self, kept) -> CodeOnAnswer | None:
         """The cells in the rows that row filters kept (``kept``: row numbers), or None when they kept none."""
@@ -219,7 +222,12 @@ class CodeOnAnswer:
         many = len(self.columns) != 1
         name = base_name(source)
         given = Option.MISSING_CODES.given(f'{user_number(self.value)}')
-        if self.label is None:  # an unlabelled code, an answer by its place among the answers given
+        if self.declared:  # the file's declaration, with the label it gives the code
+            opening = (f"{name} declares the code {user_number(self.value)} a missing value, which it labels "
+                       f"'{printable(self.label)}', an answer between the other answers ({user_number(self.scale[0])} "
+                       f"to {user_number(self.scale[1])})",)
+            instead = f"as '{printable(self.label)}'"
+        elif self.label is None:  # an unlabelled code, an answer by its place among the answers given
             opening = (Command(f"{given} read as no answer the code {user_number(self.value)}, which lies in {name}",
                                f"The code {user_number(self.value)}, given as a code of no answer, was read as no answer; in "
                                f"{name} it lies"),
@@ -239,6 +247,10 @@ class CodeOnAnswer:
 
     def advice(self) -> Note:
         answer = f"{user_number(self.value)}" if self.label is None else f"'{printable(self.label)}'"
+        if self.declared:
+            return Note((f"If {answer} is an answer, remove its declaration as a missing value in a copy of the data "
+                         f"file; if these items' {user_number(self.value)} means no answer, nothing (gaps so made are "
+                         f"missing because of their own value, which full-information ML does not assume).",))
         return Note((f"If {answer} is an answer, leave {user_number(self.value)} out of ",
                      Command(f"{Option.MISSING_CODES}", "the codes of no answer"),
                      f"; if these items' {user_number(self.value)} means no answer, nothing (gaps so made are missing because "
@@ -279,4 +291,43 @@ def codes_on_answers(frame: pd.DataFrame, codes, value_labels: dict, items: Coll
             found.setdefault((code, text, min(answers), max(answers)), []).append(
                 (column, tuple(int(r) for r in rows[cells])))
     return tuple(CodeOnAnswer(code, text, tuple(c for c, _ in held), tuple(r for _, r in held), (low, high))
+                 for (code, text, low, high), held in found.items())
+
+
+def declared_codes_on_answers(frame: pd.DataFrame, declared, value_labels: dict, items: Collection[str] | None
+                              ) -> tuple[CodeOnAnswer, ...]:
+    """The codes the data file declares missing (``declared``: data.non_answers.NonAnswer of kind DECLARED, read as
+    missing by the reader) that lie between the other answers of the item columns ``items`` (None: every column), by
+    the one rule of a code on the answer scale (data.non_answers.between_answers), the label of the code not saying no
+    answer: the same caution first as a code given with --missing-codes (:func:`codes_on_answers`), said as the file's
+    declaration.  ``frame``: the rows with the declared codes already read as missing."""
+    from cfa_tool.data.moments import row_numbers
+    from cfa_tool.data.non_answers import NonAnswerKind, between_answers, says_no_answer
+
+    mine = None if items is None else {str(x) for x in items}
+    found: dict[tuple, list] = {}
+    numbers = dict(zip(frame.index.tolist(), row_numbers(frame).tolist()))
+    codes = {}
+    for n in declared:
+        if n.kind is NonAnswerKind.DECLARED and isinstance(n.value, float):
+            codes.setdefault(n.column, []).append(n.value)
+    for n in declared:
+        if (n.kind is not NonAnswerKind.DECLARED or not isinstance(n.value, float) or n.column not in frame.columns
+                or (mine is not None and str(n.column) not in mine) or not n.label
+                or says_no_answer(n.label, explained=True)
+                or not pd.api.types.is_numeric_dtype(frame[n.column])):
+            continue
+        labels = value_labels.get(n.column, {})
+        values = frame[n.column].to_numpy(dtype=float, na_value=np.nan)
+        present = np.unique(values[np.isfinite(values)]).tolist()
+        skip = tuple(codes.get(n.column, ()))
+        if not between_answers(n.value, labels, present, skip):
+            continue
+        answers = [float(k) for k, v in labels.items() if isinstance(k, float) and k not in skip
+                   and not says_no_answer(v, explained=True)] + present
+        rows = tuple(int(numbers[r]) for r in n.rows if r in numbers)
+        if rows:
+            found.setdefault((n.value, n.label, min(answers), max(answers)), []).append((n.column, rows))
+    return tuple(CodeOnAnswer(code, text, tuple(c for c, _ in held), tuple(r for _, r in held), (low, high),
+                              "answers the file declares missing", True)
                  for (code, text, low, high), held in found.items())

@@ -27,7 +27,7 @@ from cfa_tool.data.case_filter import filter_variable, kept_rows_words
 from cfa_tool.data.kept_rows import (SHEET_COLUMNS, TEXT_LINES, line_words, row_naming, row_words, rows_listed,
                                      text_lines)
 from cfa_tool.data.kept_counts import ReadingCounts, emptied_cells, markers_note
-from cfa_tool.data.missing_codes import apply_missing_codes, codes_on_answers, missing_codes_note
+from cfa_tool.data.missing_codes import apply_missing_codes, codes_on_answers, declared_codes_on_answers, missing_codes_note
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.notes_rows import end_of_data, notes_lines, notes_note
 from cfa_tool.data.non_answers import GIVEN_CODES, answers_labelled_like_none, declared_missing, declared_ranges, \
@@ -239,6 +239,7 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     frame, written = written_non_answers(loaded.frame, as_written, listed)  # before the codes: 'refused' made a column text
     item_labels = {c: v for c, v in loaded.value_labels.items() if c not in as_written}
     on_answers = codes_on_answers(frame, missing_codes, item_labels, mine, row_numbers(frame)) if missing_codes else ()
+    on_answers += declared_codes_on_answers(frame, loaded.non_answers, item_labels, mine)  # the file's own (hostile s25)
     before = frame
     frame, code_notes, found = apply_missing_codes(frame, missing_codes, where, mine, filters)  # in the items only
     coded = emptied_cells(before, frame) if missing_codes else ()  # (their notes written again over the rows kept)
