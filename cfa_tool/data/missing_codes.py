@@ -286,11 +286,26 @@ def codes_on_answers(frame: pd.DataFrame, codes, value_labels: dict, items: Coll
             if (text is not None and says_no_answer(text, explained=True)) or not cells.any() \
                     or not between_answers(code, labels, present, numeric_codes):
                 continue
-            answers = [float(k) for k, v in labels.items() if isinstance(k, float) and k not in numeric_codes
-                       and not says_no_answer(v, explained=True)] + present
-            found.setdefault((code, text, min(answers), max(answers)), []).append(
+            found.setdefault((code, text, *_answer_scale(labels, present, numeric_codes)), []).append(
                 (column, tuple(int(r) for r in rows[cells])))
-    return tuple(CodeOnAnswer(code, text, tuple(c for c, _ in held), tuple(r for _, r in held), (low, high))
+    return _codes_on_answers(found)
+
+
+def _answer_scale(labels: dict, present: list, skip) -> tuple[float, float]:
+    """The lowest and highest of an item's other answers: its labelled codes whose label does not say no answer and
+    the values it holds (``present``), the codes read as no answer (``skip``) aside."""
+    from cfa_tool.data.non_answers import says_no_answer
+
+    answers = [float(k) for k, v in labels.items() if isinstance(k, float) and k not in skip
+               and not says_no_answer(v, explained=True)] + list(present)
+    return min(answers), max(answers)
+
+
+def _codes_on_answers(found: dict, declared: bool = False) -> tuple[CodeOnAnswer, ...]:
+    """One :class:`CodeOnAnswer` for each (code, label, lowest, highest) of ``found``, naming every (item, rows) that
+    holds it; ``declared``: the data file's own declaration of missing values made the gaps."""
+    kind = {"problem_kind": "answers the file declares missing", "declared": True} if declared else {}
+    return tuple(CodeOnAnswer(code, text, tuple(c for c, _ in held), tuple(r for _, r in held), (low, high), **kind)
                  for (code, text, low, high), held in found.items())
 
 
@@ -323,11 +338,7 @@ def declared_codes_on_answers(frame: pd.DataFrame, declared, value_labels: dict,
         skip = tuple(codes.get(n.column, ()))
         if not between_answers(n.value, labels, present, skip):
             continue
-        answers = [float(k) for k, v in labels.items() if isinstance(k, float) and k not in skip
-                   and not says_no_answer(v, explained=True)] + present
         rows = tuple(int(numbers[r]) for r in n.rows if r in numbers)
         if rows:
-            found.setdefault((n.value, n.label, min(answers), max(answers)), []).append((n.column, rows))
-    return tuple(CodeOnAnswer(code, text, tuple(c for c, _ in held), tuple(r for _, r in held), (low, high),
-                              "answers the file declares missing", True)
-                 for (code, text, low, high), held in found.items())
+            found.setdefault((n.value, n.label, *_answer_scale(labels, present, skip)), []).append((n.column, rows))
+    return _codes_on_answers(found, declared=True)
