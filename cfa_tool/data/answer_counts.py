@@ -10,6 +10,7 @@ import numpy as np
 
 from cfa_tool.numbers import user_number
 from cfa_tool.data.descriptives import rare_answer_limit
+from cfa_tool.language.spec import join_statement
 
 
 @dataclass(frozen=True)
@@ -29,6 +30,16 @@ class AnswerCounts:
     #: the codes and words of no answer the run gave (--missing-codes), which advice to give another keeps
     #: (data.non_answers.codes_given)
     given: tuple = ()
+    #: the model's 'join answers' statements (data.joined_answers.joins_record): (items, codes joined, their code);
+    #: the counts are of the categories as analysed, so a code joined into another holds none of its own
+    joined: tuple = ()
+
+    def joined_into(self, i: int, code: float) -> float | None:
+        """The code that ``code`` of item ``i`` was joined into by a 'join answers' statement (None: not joined)."""
+        for items, values, into in self.joined:
+            if self.items[i] in items and code in values and code != into:
+                return into
+        return None
 
     def answered(self, i: int) -> int:
         """Rows that answered item ``i``."""
@@ -36,7 +47,7 @@ class AnswerCounts:
 
     def empty(self, i: int, j: int) -> bool:
         """Code ``j`` is on item ``i``'s scale but no row here gave it."""
-        return self.counts[i][j] == 0 and self.codes[j] in self.scale[i]
+        return self.counts[i][j] == 0 and self.codes[j] in self.scale[i] and self.joined_into(i, self.codes[j]) is None
 
     def sparse(self, i: int, j: int) -> bool:
         """Code ``j`` of item ``i`` was given by fewer rows than :func:`data.descriptives.rare_answer_limit` of the
@@ -52,7 +63,9 @@ class AnswerCounts:
         return {"group": self.group, "codes": list(self.codes),
                 "items": {name: {user_number(code): count for code, count, in_scale in
                                  zip(self.codes, counts, [c in scale for c in self.codes]) if in_scale or count}
-                          for name, counts, scale in zip(self.items, self.counts, self.scale)}}
+                          for name, counts, scale in zip(self.items, self.counts, self.scale)}} | (
+            {"joined_answers": [{"items": list(items), "codes": list(values), "as": into}
+                                for items, values, into in self.joined]} if self.joined else {})
 
 
 def category_items(values: np.ndarray, names: tuple[str, ...], most: int) -> tuple[str, ...]:
@@ -68,12 +81,13 @@ def category_items(values: np.ndarray, names: tuple[str, ...], most: int) -> tup
 
 
 def answer_counts(parts: list[tuple[str | None, np.ndarray]], names: tuple[str, ...], items: tuple[str, ...],
-                  labels: dict[str, dict] | None = None, given: tuple = ()) -> tuple[AnswerCounts, ...]:
+                  labels: dict[str, dict] | None = None, given: tuple = (), joined: tuple = ()) -> tuple[AnswerCounts, ...]:
     """The :class:`AnswerCounts` of ``items`` in each part of the rows (``parts``: (group label or None, the values
     of ``names`` in its rows, gaps NaN)), every part on the same columns: the codes any part gave to any of the
     items.  An item's scale runs from its lowest to its highest answer over all parts, so that a category one group
     never gave while another did shows as empty.  ``labels``: item -> {code: words} (value labels of the file, or
-    the words of 'answers' statements); ``given``: the codes and words of no answer the run gave."""
+    the words of 'answers' statements); ``given``: the codes and words of no answer the run gave; ``joined``: the
+    model's 'join answers' statements, whose joins ``parts`` hold already (data.joined_answers.joins_record)."""
     labels = labels or {}
     columns = [names.index(x) for x in items]
     seen = [np.concatenate([v[:, j][np.isfinite(v[:, j])] for _, v in parts]) for j in columns]
@@ -89,7 +103,7 @@ def answer_counts(parts: list[tuple[str | None, np.ndarray]], names: tuple[str, 
             found = column[np.isfinite(column)]
             counts.append(tuple(int(n) for n in (found[:, None] == codes[None, :]).sum(axis=0)))
         out.append(AnswerCounts(label, tuple(items), tuple(float(c) for c in codes), tuple(counts), scale, named,
-                                tuple(given)))
+                                tuple(given), tuple(joined)))
     return tuple(out)
 
 
@@ -99,3 +113,50 @@ def _keys(item_labels: dict, code: float) -> list:
         if key in item_labels:
             return [key]
     return []
+
+
+def join_advice(parts) -> tuple[str, ...]:
+    """The 'join answers' statements that join each empty or sparse category of ``parts`` (:class:`AnswerCounts`, one
+    per group, on the same items) with its neighbours towards the middle of the item's scale up to the first category
+    that no group marks (the joined category takes that one's code, so it keeps its place), items joined alike in one
+    statement (language.spec.join_statement, the one writer, so that the advice parses: tests/language); () when no
+    category is marked or none can be joined (every category of an item marked)."""
+    parts = tuple(parts)
+    if not parts:
+        return ()
+    first = parts[0]
+    joins: dict[tuple[tuple[float, ...], float], list[str]] = {}
+    for i, name in enumerate(first.items):
+        scale = sorted({c for a in parts for c in a.scale[i]})
+        if len(scale) < 3:
+            continue
+        total = {c: sum(a.counts[i][a.codes.index(c)] for a in parts if c in a.codes) for c in scale}
+        marked = {c for a in parts for j, c in enumerate(a.codes)
+                  if c in scale and (a.empty(i, j) or a.sparse(i, j))}
+        if not marked or len(marked) >= len(scale) - 1:
+            continue
+        middle = (scale[0] + scale[-1]) / 2
+        groups: list[set[float]] = []
+        for c in sorted(marked):
+            k = scale.index(c)
+            step = 1 if c < middle else -1 if c > middle else (
+                1 if total.get(scale[min(k + 1, len(scale) - 1)], 0) >= total.get(scale[max(k - 1, 0)], 0) else -1)
+            run = [c]
+            while 0 <= k + step < len(scale) and scale[k] in marked:
+                k += step
+                run.append(scale[k])
+            if scale[k] in marked:
+                continue
+            groups.append(set(run))
+        merged: list[set[float]] = []
+        for g in groups:  # runs that share a code are one join
+            for m in merged:
+                if m & g:
+                    m |= g
+                    break
+            else:
+                merged.append(set(g))
+        for m in merged:
+            into = next(c for c in sorted(m, key=lambda c: -total.get(c, 0)) if c not in marked)
+            joins.setdefault((tuple(sorted(m)), into), []).append(name)
+    return tuple(join_statement(values, into, items) for (values, into), items in joins.items())

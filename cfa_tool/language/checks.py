@@ -14,6 +14,7 @@ from cfa_tool.numbers import user_number
 
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import Location, ModelError
+from cfa_tool.options import Option
 from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.spec import NamePair, ParameterRef, Spec, answer_key, fix_sets_scale
 
@@ -63,6 +64,7 @@ def check_spec(spec: Spec) -> None:
     _check_method(spec)
     _check_reversed(spec)
     _check_answers(spec)
+    _check_joins(spec)
     _check_pairs(spec)
     _check_references(spec)
     _check_contradictions(spec)
@@ -251,6 +253,29 @@ def _check_answers(spec: Spec) -> None:
             general = coding.location
         _items_once(spec, coding.items, covered, "'answers' says what the answers to items mean",
                     "the answers of '{name}' are given twice (first on line {line}); give each item's answers once")
+
+
+def _check_joins(spec: Spec) -> None:
+    """'join answers' statements: each item named an item of the model, and an item's codes joined by one statement
+    only (two statements of one item that share a code would join in an order; one statement says the category)."""
+    observed = set(spec.observed_names)
+    joined: dict[str, list] = {}
+    for join in spec.joins:
+        for name in join.items:
+            if name.text in spec.factor_names:
+                raise _fail(spec, f"'{name}' is a factor; 'join answers' joins answer categories of ordinal items",
+                            name.location)
+            if name.text not in observed:
+                raise _unknown_name(spec, name.text, name.location)
+            for earlier in joined.get(name.text, ()):
+                shared = sorted(set(earlier.values) & set(join.values))
+                if shared:
+                    both = sorted(set(earlier.values) | set(join.values))
+                    raise _fail(spec, f"the answers {', '.join(user_number(v) for v in shared)} of '{name}' are "
+                                      f"joined by the statement on line {earlier.location.line} too; join the "
+                                      f"category once, in one statement ('join answers "
+                                      f"{', '.join(user_number(v) for v in both)} as ...')", name.location)
+            joined.setdefault(name.text, []).append(join)
 
 
 def _known_names(spec: Spec) -> list[str]:
@@ -559,3 +584,18 @@ def _check_indicator_counts(spec: Spec) -> None:
                     f"add an indicator, let it correlate with another factor, or set its loadings equal",
                     factor.name.location,
                 )
+
+
+def refuse_continuous_joins(spec: Spec, ordinal_items, how: str = "") -> None:
+    """A 'join answers' statement naming an item the run analyses as continuous is an error at the item's name: the
+    statement analyses neighbouring categories as one, which an ordinal item's thresholds allow, while a continuous
+    item's recoded answers would have another scale (other means, variances and covariances) with no threshold to
+    absorb it.  ``how``: how the run declares ordinal items (an 'ordinal' statement or the command's option), for the
+    message."""
+    for join in spec.joins:
+        for name in join.items:
+            if name.text not in ordinal_items:
+                declared = how or f"an 'ordinal' statement or {Option.ORDINAL}"
+                raise _fail(spec, f"'join answers' joins categories of ordinal items, and '{name}' is analysed as "
+                                  f"continuous, whose recoded answers would change its scale; declare it ordinal "
+                                  f"with {declared}, or remove it from the statement", name.location)

@@ -35,6 +35,7 @@ from cfa_tool.language.spec import (
     AnswerWord,
     ExploratoryBlock,
     Factor,
+    JoinedAnswers,
     Name,
     NamePair,
     ParameterRef,
@@ -47,7 +48,7 @@ from cfa_tool.language.grammar_tables import model_parser
 from cfa_tool.language.names import composed, range_names
 
 STATEMENT_WORDS = ("name", "factor", "covary", "uncorrelated", "fix", "free", "equal", "start", "bound", "scale", "in",
-                   "invariance", "noninvariant", "ordinal", "reversed", "method", "exploratory", "near", "answers")
+                   "invariance", "noninvariant", "ordinal", "reversed", "method", "exploratory", "near", "answers", "join")
 
 # Plain words for the grammar's terminals, used in "expected ..." messages.
 _TERMINAL_WORDS = {
@@ -350,6 +351,7 @@ class _Builder:
         blocks: list[ExploratoryBlock] = []
         near_zero: list[tuple[Name, tuple[Name, ...], Tree]] = []
         answers: list[AnswerCoding] = []
+        joins: list[JoinedAnswers] = []
         for stmt in tree.children:
             kind = stmt.data
             self.group = None
@@ -435,6 +437,8 @@ class _Builder:
                 near_zero.append((self.name(stmt.children[0]), self.name_list(stmt.children[1]), stmt))
             elif kind == "answers_stmt":
                 answers.append(self.answers(stmt))
+            elif kind == "join_stmt":
+                joins.append(self.join(stmt))
             elif kind == "reversed_stmt":
                 low, high = self.number(stmt.children[1]), self.number(stmt.children[2])
                 for value, child in ((low, stmt.children[1]), (high, stmt.children[2])):
@@ -486,6 +490,7 @@ class _Builder:
             invariance_level=level,
             equalities_location=equalities_at,
             answers=tuple(answers),
+            joins=tuple(joins),
             exploratory=tuple(blocks),
             lines=self.lines,
         ), ordinal)
@@ -509,6 +514,40 @@ class _Builder:
                 out.append(AnswerWord(None, self.number(key), code, self.loc(key.children[0])))
         items = self.name_list(stmt.children[1]) if len(stmt.children) > 1 else ()
         return AnswerCoding(tuple(out), tuple(items), self.loc(stmt))
+
+    def join(self, stmt: Tree) -> JoinedAnswers:
+        """A 'join answers 0, 1 as 1 for ITEMS' statement: at least two answer codes, whole numbers each written once,
+        joined into one of them (so that the joined category keeps its place on the scale); whether they neighbour
+        each other on an item's scale, and whether the item is ordinal, is checked against the data and the run
+        (data.joined_answers, pipeline.inputs.ordinal_items_of)."""
+        values_node, into_node, items_node = stmt.children
+        values, places = [], []
+        for node in values_node.children:
+            value = self.number(node)
+            token = node.children[0]
+            if not abs(value) <= LARGEST_SCALE_END or value != round(value):
+                raise self.error(f"{user_number(value)} is not an answer code of an ordinal item; the answers of an "
+                                 f"ordinal item are whole numbers (codes such as 1 to 5)", token)
+            if value in values:
+                raise self.error(f"the answer code {user_number(value)} is listed twice; list each code once", token)
+            values.append(value)
+            places.append(self.loc(token))
+        into = self.number(into_node)
+        if len(values) < 2:
+            raise self.error(f"'join answers' needs at least two answer codes to analyse as one, as in 'join answers "
+                             f"{user_number(values[0])}, {user_number(values[0] + 1)} as {user_number(values[0] + 1)} "
+                             f"for ...'", values_node.children[0].children[0])
+        if into not in values:
+            raise self.error(f"the joined category is coded {user_number(into)}, which is not one of the codes joined "
+                             f"({', '.join(user_number(v) for v in values)}); write one of them after 'as', so that the "
+                             f"category keeps its place among the item's answers", into_node.children[0])
+        items = self.name_list(items_node)
+        seen: set[str] = set()
+        for item in items:
+            if item.text in seen:
+                raise self.error(f"'{printable(item.text)}' is named twice in this 'join answers' statement", item.location)
+            seen.add(item.text)
+        return JoinedAnswers(tuple(values), into, items, self.loc(stmt), tuple(places))
 
     def block(self, stmt: Tree) -> ExploratoryBlock:
         """An 'exploratory factors ... from ... [rotated by ...]' statement, its counts checked: the block's items

@@ -12,7 +12,7 @@ from functools import cached_property
 
 from cfa_tool.errors import Location
 from cfa_tool.numbers import user_number
-from cfa_tool.language.names import composed, reference_text, written_group
+from cfa_tool.language.names import composed, reference_text, written_group, written_name
 
 #: Parameter kinds a reference may name, with the number of names each takes.
 REFERENCE_KINDS: dict[str, int] = {"loading": 2, "variance": 1, "covariance": 2, "intercept": 1, "mean": 1, "threshold": 1}
@@ -223,6 +223,41 @@ class AnswerCoding:
 
 
 
+@dataclass(frozen=True)
+class JoinedAnswers:
+    """``join answers 0, 1 as 1 for item3, item4``: neighbouring answer categories of ordinal items analysed as one
+    category, coded ``into`` (one of ``values``), after any 'answers' statement has coded answer words; the same in
+    every group and every command that reads the rows (data.joined_answers)."""
+
+    values: tuple[float, ...]  # the codes joined, as written (at least two, whole numbers, each once)
+    into: float  # the code of the joined category: one of ``values``
+    items: tuple[Name, ...]
+    location: Location
+    value_locations: tuple[Location, ...] = field(default=(), compare=False)  # where each value is written
+
+    @property
+    def item_names(self) -> tuple[str, ...]:
+        return tuple(i.text for i in self.items)
+
+    @property
+    def merged(self) -> tuple[float, ...]:
+        """The codes recoded as ``into``: the joined values other than it, lowest first."""
+        return tuple(sorted(v for v in self.values if v != self.into))
+
+    @property
+    def statement(self) -> str:
+        """The statement as the language writes it (:func:`join_statement`)."""
+        return join_statement(self.values, self.into, self.item_names)
+
+
+def join_statement(values, into: float, items) -> str:
+    """The one writer of a 'join answers' statement ('join answers 0, 1 as 1 for item3, "Item 4"'): the codes lowest
+    first, the names as the language writes them (quoted unless plain), so that the text parses back to them; advice
+    that offers the statement (data.answer_counts, data.polychoric) and the reports that name it use it alike."""
+    return (f"join answers {', '.join(user_number(v) for v in sorted(values))} as {user_number(into)} "
+            f"for {', '.join(written_name(x) for x in items)}")
+
+
 #: The rotations an exploratory block may name (gradient-projection criteria; see exploration.rotation).
 BLOCK_ROTATIONS = ("geomin", "target", "quartimin", "varimax")
 DEFAULT_BLOCK_ROTATION = "geomin"
@@ -296,6 +331,7 @@ class Spec:
     equalities_location: Location | None = field(default=None, compare=False)
     answers: tuple[AnswerCoding, ...] = ()  # 'answers' statements: what answers recorded as words mean
     exploratory: tuple[ExploratoryBlock, ...] = ()  # their factors are in ``factors`` too, with their identification
+    joins: tuple[JoinedAnswers, ...] = ()  # 'join answers' statements: categories of ordinal items analysed as one
     # one step of the invariance ladder (workflows.invariance.spec_of_level): a start on a factor mean fixed at 0 at
     # this step applies at the steps that free it (and gives a group's mean in a power study's population), so it is
     # not refused here as it is in a plain fit
@@ -347,6 +383,14 @@ class Spec:
         if general:
             out.update({x: general[0] for x in self.observed_names if x not in named})
         return {x: out[x] for x in self.observed_names if x in out}
+
+    def joined_items(self) -> dict[str, tuple[JoinedAnswers, ...]]:
+        """Each item a 'join answers' statement names -> the statements that name it, in the order written."""
+        out: dict[str, list[JoinedAnswers]] = {}
+        for join in self.joins:
+            for item in join.item_names:
+                out.setdefault(item, []).append(join)
+        return {x: tuple(v) for x, v in out.items()}
 
     def first_mention(self, name: str) -> Location | None:
         """Where ``name`` first appears as an indicator (for error messages)."""

@@ -21,6 +21,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
 
 from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, rounded_number, user_number
 from cfa_tool.data.answer_words import NUMBERS_ONLY, code_answer_words, coding_record, refuse_for_summary_statistics
+from cfa_tool.data.joined_answers import join_answers
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
 from cfa_tool.data.kept_rows import (ROW_NAMES_COLUMN, RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
@@ -53,6 +54,7 @@ from cfa_tool.input_files import DATA_FRAME
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import LISTWISE_WARNING_SHARE, FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
+from cfa_tool.language.checks import refuse_continuous_joins
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.language.names import case_twins, composed
 from cfa_tool.method import ADJUSTED_TEST, FitTest, MissingData, WeightKind, Weighting
@@ -334,6 +336,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     # may be words (hostile s23b); a coding of words, alike in both files, is said once
     notes += ([f"{loaded.source}: " + n for n in coding_notes] if name_the_file and frame.attrs.get(NUMBERS_ONLY)
               else coding_notes)
+    frame, joined_notes = join_answers(spec, frame, loaded.source)  # 'join answers': categories analysed as one
+    notes += joined_notes
     check_declared_ranges(spec, frame, loaded.source, loaded.value_labels)
     values = item_values(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it
     notes += answer_range_notes(spec, frame, loaded.source, loaded.value_labels, values)
@@ -2314,6 +2318,10 @@ def _described(result: FitResult, spec: Spec, groups: tuple[str, ...] | None, or
 def _with_coding(data, spec: Spec):
     """A fit's data summary with how the model coded answers recorded as words (its 'answers' statements), kept with
     the fit as the missing-value codes are: the methods paragraph says it, and scores of other data read so too."""
+    from cfa_tool.data.joined_answers import joins_record
+
+    if spec.joins:
+        data = replace(data, joined_answers=joins_record(spec))
     return replace(data, answer_coding=coding_record(spec)) if spec.answers else data
 
 
@@ -2536,6 +2544,15 @@ def ordinal_model(spec: Spec, ordinal) -> tuple[Spec, set[str]]:
 
 
 def ordinal_items_of(spec: Spec, ordinal) -> set[str]:
+    """The items a run analyses as ordinal: those of the model's 'ordinal' statements and of the ``ordinal`` option
+    (--ordinal); a 'join answers' statement naming any other item is an error at its name
+    (language.checks.refuse_continuous_joins)."""
+    items = _ordinal_items(spec, ordinal)
+    refuse_continuous_joins(spec, items)
+    return items
+
+
+def _ordinal_items(spec: Spec, ordinal) -> set[str]:
     items = {n.text for n in spec.ordinal}
     if ordinal is not None and not isinstance(ordinal, str) and not (
             isinstance(ordinal, (list, tuple, set)) and all(isinstance(x, str) for x in ordinal)):
@@ -2909,5 +2926,7 @@ def _answers_per_category(spec: Spec, frame: pd.DataFrame, source: str, group: s
             labels[name] = {code: word for word, _, code in coded if word is not None}
     from cfa_tool.data.non_answers import given_codes
 
-    return answer_counts(parts, spec.observed_names, items, labels, given_codes(frame)) if items else ()
+    from cfa_tool.data.joined_answers import joins_record
+
+    return answer_counts(parts, spec.observed_names, items, labels, given_codes(frame), joins_record(spec)) if items else ()
 

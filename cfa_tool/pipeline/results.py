@@ -299,6 +299,9 @@ class DataSummary:
     # the model's coding of answers recorded as words (data.answer_words.coding_record), which scoring other data with
     # this fit reads so too
     answer_coding: tuple = ()
+    # the model's 'join answers' statements (data.joined_answers.joins_record): categories of ordinal items analysed as
+    # one, which the methods paragraph names and scoring other data with this fit applies too
+    joined_answers: tuple = ()
     # the items of answer_coding whose answers in the data held no word, numbers alone (data.answer_words.NUMBERS_ONLY):
     # the methods paragraph says their numbers were read, not that words were coded
     numbers_only: tuple[str, ...] = ()
@@ -400,6 +403,10 @@ class DataSummary:
             out["answer_coding"] = clean(coding_json(self.answer_coding))
             if self.numbers_only:
                 out["answers_read_as_numbers"] = list(self.numbers_only)
+        if self.joined_answers:
+            from cfa_tool.data.joined_answers import joins_json
+
+            out["joined_answers"] = clean(joins_json(self.joined_answers))
         if self.ranges:
             out["answer_ranges"] = _answer_ranges(self.variables, self.ranges)
         return out

@@ -965,9 +965,10 @@ def answer_coding_sentence(data) -> str:
     """How answers recorded as words were coded (the model's 'answers' statements), e.g. 'Answers recorded as words
     were coded 1 (Strongly disagree) to 5 (Strongly agree).', naming the items when a statement coded only some of
     them; empty when the answers were numbers."""
+    joined = joined_sentence(data)
     record = getattr(data, "answer_coding", ())
     if not record:
-        return ""
+        return joined
     numbers = set(getattr(data, "numbers_only", ()))  # items whose answers held no word: their numbers were read
     worded = tuple((tuple(x for x in items if x not in numbers), answers) for items, answers in record)
     read = tuple((tuple(x for x in items if x in numbers), named_codes(answers)) for items, answers in record
@@ -988,7 +989,20 @@ def answer_coding_sentence(data) -> str:
 
     return " ".join(s for s in (said(worded, "Answers recorded as words were coded"),
                                 said(read, "Answers were recorded as the numbers"),
-                                said(recoded, "Answers recorded as numbers were coded")) if s)
+                                said(recoded, "Answers recorded as numbers were coded"), joined) if s)
+
+
+def joined_sentence(data) -> str:
+    """Which answer categories of which ordinal items were analysed as one (the model's 'join answers' statements,
+    data.joined_answers), e.g. 'Answers 0 and 1 of item3 and item4 were analysed as one category (coded 1), for
+    categories chosen by few respondents.'; empty without joins."""
+    record = getattr(data, "joined_answers", ())
+    if not record:
+        return ""
+    parts = [f"answers {_list([user_number(v) for v in values])} of {_names(items)} (coded {user_number(into)})"
+             for items, values, into in record]
+    return (f"Neighbouring answer categories of ordinal items were analysed as one category: {'; '.join(parts)}; "
+            f"the thresholds and polychoric correlations are those of the joined categories.")
 
 
 def _matrix_sentence(result, subject: str = "The model was") -> str:

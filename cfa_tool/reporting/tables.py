@@ -1459,7 +1459,8 @@ def fit_answer_counts(result, group: int = 0):
     labels = fit_answer_labels(result, names)
     return AnswerCounts(result.groups[group].label, names, codes, counts, scale,
                         tuple(tuple((v, labels[name][v]) for v in codes if v in labels.get(name, {})) for name in names),
-                        tuple(result.data.missing_codes) + tuple(result.data.no_answer_words))
+                        tuple(result.data.missing_codes) + tuple(result.data.no_answer_words),
+                        tuple(getattr(result.data, "joined_answers", ())))
 
 
 def category_table(result) -> ReportTable | None:
@@ -1552,10 +1553,25 @@ def few_answers_warning(result, table: bool = True) -> Note | None:
     said = (f"Categories of ordinal items given by few rows (fewer than 5, or 1% of the item's answers when that "
             f"is more: a rule of thumb of this project): {_listed(found)}; a threshold next to such a category "
             f"rests on those few answers and is unstable; check those answers first")
+    join = _join_advice(result)
     if not table:
-        return Note((said + ".",))
-    return Note((said + f" (marked '{FEW_ANSWERS_MARK}' in ", TableReference(key), ")."))
+        return Note((said, *join, "."))
+    return Note((said + f" (marked '{FEW_ANSWERS_MARK}' in ", TableReference(key), ")", *join, "."))
 
+
+def _join_advice(result) -> tuple:
+    """The parts of a caution that advise the model's 'join answers' statements for a fit's sparse categories
+    (data.answer_counts.join_advice): a statement of the model file, which the Word file says in words."""
+    from cfa_tool.data.answer_counts import join_advice
+
+    statements = join_advice([a for a in (fit_answer_counts(result, g) for g in range(len(result.groups)))
+                              if a is not None])
+    if not statements:
+        return ()
+    quoted = "; ".join(f"'{s}'" for s in statements)
+    return (Command(f"; if they are real answers, the model file can join such a category with its neighbour: "
+                    f"{quoted}",
+                    "; if they are real answers, such a category can be joined with its neighbour in the model file"),)
 
 def fit_answer_labels(result, items=None) -> dict[str, dict[float, str]]:
     """item -> {code: words} of a fit's answers (of ``items``, or of every item): the data file's value labels, or
@@ -1571,7 +1587,22 @@ def fit_answer_labels(result, items=None) -> dict[str, dict[float, str]]:
 
 
 #: the marks of the cells of a table of answers per category (:func:`answer_table`)
-NO_ANSWER_MARK, FEW_ANSWERS_MARK = "none", "few"
+NO_ANSWER_MARK, FEW_ANSWERS_MARK, JOINED_MARK = "none", "few", "in"
+
+
+def _joining(parts) -> tuple:
+    """The end of a table's advice on empty and sparse categories: the 'join answers' statements of the model file
+    that join them with their neighbours (data.answer_counts.join_advice; a statement, said in words in the Word
+    file), for ordinal items."""
+    from cfa_tool.data.answer_counts import join_advice
+
+    statements = join_advice(parts)
+    words = "a real answer's category of an ordinal item can be joined with its neighbour's in the model file."
+    if not statements:
+        return (words,)
+    quoted = "; ".join(f"'{s}'" for s in statements)
+    return (Command(f"a real answer's category of an ordinal item can be joined with its neighbour's by the model "
+                    f"file: {quoted}.", words),)
 
 
 def answer_table(answers, key: str, where: str = "", groups: bool = False, analysed: str = "",
@@ -1592,6 +1623,7 @@ def answer_table(answers, key: str, where: str = "", groups: bool = False, analy
     if any(_shared_labels(a) != shared for a in parts[1:]) or (shared and set(shared) != set(codes)):
         shared = {}
     rows, values, flagged, few, none, ends = [], [], [], [], [], set()
+    joined_cells: list[str] = []
     for a, group in zip(parts, names):
         in_group = f" in group {group}" if several else ""
         for i, name in enumerate(a.items):
@@ -1601,7 +1633,11 @@ def answer_table(answers, key: str, where: str = "", groups: bool = False, analy
                 j = a.codes.index(v) if v in a.codes else None  # a code of another group only: outside this item's
                 c = 0 if j is None else a.counts[i][j]
                 counts.append(c if c or (j is not None and v in a.scale[i]) else None)
-                if j is not None and a.empty(i, j):
+                into = a.joined_into(i, v)
+                if into is not None:  # analysed as part of another category (a 'join answers' statement)
+                    cells.append(f"{JOINED_MARK} {user_number(into)}")
+                    joined_cells.append(f"{name} {user_number(v)} as {user_number(into)}")
+                elif j is not None and a.empty(i, j):
                     cells.append(NO_ANSWER_MARK)
                     none.append(f"{name} {user_number(v)}{in_group}")
                 elif c == 0:
@@ -1623,6 +1659,10 @@ def answer_table(answers, key: str, where: str = "", groups: bool = False, analy
             + "; an empty cell: a code outside the item's answers.")
     if not shared:
         note += _labels_note(parts[0])
+    if joined_cells:
+        note += (f" {JOINED_MARK} N: a category analysed as one with category N, as the model's 'join answers' "
+                 f"statements say; the counts are of the categories as analysed, those as answered are in the notes "
+                 f"({_listed(list(dict.fromkeys(joined_cells)))}).")
     if few:
         note += (f" {FEW_ANSWERS_MARK}: fewer than 5 rows, or 1% of the item's answers when that is more (a rule of "
                  f"thumb of this project, not a published cutoff): a threshold next to such a category rests on those "
@@ -1645,8 +1685,7 @@ def answer_table(answers, key: str, where: str = "", groups: bool = False, analy
                              + option_in_both(codes_given(given, Interface.COMMAND_LINE),
                                               codes_given(given, Interface.PYTHON)) + "; ", missing_as)
                      if ends else missing_as,
-                     "a real answer's category can be merged with its neighbour's in a copy of the data file."
-                     + after))
+                     *_joining(parts), after))
     else:
         text = note + after
     columns = ([("Group", "l")] if several else []) + [("Item", "l")] + [

@@ -1,0 +1,156 @@
+"""Neighbouring answer categories of ordinal items analysed as one: the model's 'join answers' statements applied to
+the rows read, once, after its 'answers' statements coded answer words (data.answer_words) and before any command
+reads thresholds, correlations or counts of answers from them, so that fit, compare, invariance (the same join in
+every group), replicate, bootstrap, scores and cutoffs analyse the same categories.
+
+A joined category is coded as one of its codes, so it keeps its place among the item's answers: the item's
+thresholds are then those of the recoded item, tau_c = Phi^-1(P(x <= c)) over its remaining categories (Olsson
+1979), and its polychoric correlations those of the recoded table; the threshold between the joined categories is
+no longer estimated."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from cfa_tool.errors import ModelError, printable
+from cfa_tool.language.spec import JoinedAnswers, Spec
+from cfa_tool.numbers import count_text, counted, user_number, word_list
+
+#: the key of ``frame.attrs`` that keeps what the joins changed (a tuple of :class:`JoinedItem`)
+JOINED = "joined_answers"
+
+
+@dataclass(frozen=True)
+class JoinedItem:
+    """What one 'join answers' statement did to one item: the codes ``values`` analysed as ``into``, and how many of
+    the rows read gave each of them (``answered``, in the order of ``values``), before the join."""
+
+    item: str
+    values: tuple[float, ...]
+    into: float
+    answered: tuple[int, ...]
+    line: int
+
+    @property
+    def recoded(self) -> int:
+        """The answers the join recoded (those of the codes other than ``into``)."""
+        return sum(c for v, c in zip(self.values, self.answered) if v != self.into)
+
+    def to_dict(self) -> dict:
+        return {"item": self.item, "codes": list(self.values), "as": self.into,
+                "rows_per_code": {user_number(v): c for v, c in zip(self.values, self.answered)},
+                "recoded": self.recoded, "line": self.line}
+
+
+def _numbers(column: pd.Series) -> pd.Series:
+    """A column's cells as numbers (text cells that hold a number read as that number, the rest NaN): how the reading
+    of ordinal items will read them (data.moments.numeric_columns refuses what is not a number, with its row)."""
+    if column.dtype.kind in "biuf":
+        return column.astype(float)
+    return pd.to_numeric(column.map(lambda v: v.strip() if isinstance(v, str) else v), errors="coerce")
+
+
+def _scale(spec: Spec, item: str, held: set[float]) -> list[float]:
+    """The categories of ``item``'s scale: the codes the rows read hold, with the codes an 'answers' statement gives
+    the item (categories of its scale even where no row chose them)."""
+    coding = spec.answer_codings().get(item)
+    return sorted(held | set(coding.codes() if coding is not None else ()))
+
+
+def _codes(values) -> str:
+    return word_list([user_number(v) for v in sorted(values)])
+
+
+def join_answers(spec: Spec, frame: pd.DataFrame, source: str) -> tuple[pd.DataFrame, list[str]]:
+    """``frame`` (a copy; the caller's is not changed) with the answers of each 'join answers' statement's items
+    recoded (every code joined as the statement's ``as`` code), the record kept in ``frame.attrs[JOINED]``, and one
+    note per statement; unchanged without such statements.
+
+    Refused, each at the statement's line: a code no item of the statement was given in the rows read (the statement
+    would join a category that is not there, a typing error such as 'join answers 5, 6' on answers 1 to 5, and the
+    methods text would name a join that joined nothing); codes that are not neighbours on an item's scale (a category
+    between them, answered or given by an 'answers' statement, would be joined over); a join that leaves an item
+    one category."""
+    if not spec.joins:
+        return frame, []
+    frame = frame.copy()
+    record: list[JoinedItem] = []
+    notes = []
+    for join in spec.joins:
+        done = [_join_item(spec, frame, source, join, item.text) for item in join.items if item.text in frame.columns]
+        held_any = {v for item in done for v, c in zip(item.values, item.answered) if c}
+        missing = [v for v in join.values if v not in held_any]
+        if missing:
+            at = join.value_locations[join.values.index(missing[0])] if join.value_locations else join.location
+            raise ModelError(f"{source}: no row read gave the answer {_codes(missing)} to "
+                             f"{_items(join.item_names)}, so 'join answers' would join a category that is not there; "
+                             f"list the codes of the categories to join as the data hold them", at,
+                             spec.source_line(at))
+        record += done
+        notes.append(_note(join, done))
+    frame.attrs[JOINED] = tuple(record)
+    return frame, notes
+
+
+def _items(names) -> str:
+    shown = [f"'{printable(x)}'" for x in names]
+    return shown[0] if len(shown) == 1 else "any of " + word_list(shown)
+
+
+def _join_item(spec: Spec, frame: pd.DataFrame, source: str, join: JoinedAnswers, item: str) -> JoinedItem:
+    """Recode ``item``'s answers in ``frame`` by ``join``, after checking that its codes neighbour each other."""
+    numbers = _numbers(frame[item])
+    held = {float(v) for v in pd.unique(numbers.dropna())}
+    low, high = min(join.values), max(join.values)
+    between = [v for v in _scale(spec, item, held) if low < v < high and v not in join.values]
+    if between:
+        raise ModelError(f"{source}: 'join answers' joins neighbouring categories, and '{printable(item)}' has the "
+                         f"{'answer' if len(between) == 1 else 'answers'} {_codes(between)} between "
+                         f"{user_number(low)} and {user_number(high)}; list {'it' if len(between) == 1 else 'them'} "
+                         f"too, or join categories next to each other", join.location,
+                         spec.source_line(join.location))
+    left = held - set(join.merged)
+    if len(held) > 1 and len(left) < 2:
+        raise ModelError(f"{source}: 'join answers' would leave '{printable(item)}' a single category "
+                         f"({user_number(next(iter(left)))}), since its rows hold only the answers "
+                         f"{_codes(held)}; an ordinal item needs at least two categories, so join fewer", join.location,
+                         spec.source_line(join.location))
+    answered = tuple(int((numbers == v).sum()) for v in join.values)
+    merged = numbers.isin(join.merged).to_numpy(dtype=bool)
+    if merged.any():
+        column = frame[item]
+        column = column.astype(float) if column.dtype.kind in "biuf" else column.astype(object)
+        frame[item] = column.where(~merged, join.into)
+    return JoinedItem(item, join.values, join.into, answered, join.location.line)
+
+
+def _note(join: JoinedAnswers, done: list[JoinedItem]) -> str:
+    """The note of one statement: which answers of which items are analysed as one category, and the rows recoded."""
+    per_item = "; ".join(f"{printable(d.item)} " + word_list([f"{user_number(v)} ({counted(c, 'row')})"
+                                                                for v, c in zip(d.values, d.answered)])
+                         for d in done)
+    recoded = sum(d.recoded for d in done)
+    return (f"The answers {_codes(join.values)} of {word_list([printable(x) for x in join.item_names])} are analysed "
+            f"as one category coded {user_number(join.into)} (the 'join answers' statement on line "
+            f"{join.location.line}; {count_text(recoded)} {'answer' if recoded == 1 else 'answers'} recoded; as "
+            f"answered: {per_item}): their thresholds, correlations and counts of answers per category are those of "
+            f"the joined category.")
+
+
+def joined_in(frame: pd.DataFrame) -> tuple[JoinedItem, ...]:
+    """What the joins did to the rows ``frame`` holds (:data:`JOINED`); () without joins."""
+    return tuple(frame.attrs.get(JOINED, ()))
+
+
+def joins_record(spec: Spec) -> tuple:
+    """The model's joins as a fit keeps them (pipeline.results.DataSummary.joined_answers): per statement, its items, the
+    codes it joins and their code."""
+    return tuple((join.item_names, tuple(sorted(join.values)), join.into) for join in spec.joins)
+
+
+def joins_json(record: tuple) -> list[dict]:
+    """The JSON of a :func:`joins_record`: [{"items": [...], "codes": [...], "as": code}]."""
+    return [{"items": list(items), "codes": list(values), "as": into} for items, values, into in record]
