@@ -12,10 +12,9 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-import numpy as np
 import pandas as pd
 
-from cfa_tool.errors import ModelError, printable
+from cfa_tool.errors import ModelError, OptionError, printable
 from cfa_tool.language.spec import JoinedAnswers, Spec
 from cfa_tool.numbers import count_text, counted, user_number, word_list
 
@@ -133,16 +132,11 @@ def _note(join: JoinedAnswers, done: list[JoinedItem]) -> str:
                                                                 for v, c in zip(d.values, d.answered)])
                          for d in done)
     recoded = sum(d.recoded for d in done)
-    return (f"The answers {_codes(join.values)} of {word_list([printable(x) for x in join.item_names])} are analysed "
+    return (f"the answers {_codes(join.values)} of {word_list([printable(x) for x in join.item_names])} are analysed "
             f"as one category coded {user_number(join.into)} (the 'join answers' statement on line "
             f"{join.location.line}; {count_text(recoded)} {'answer' if recoded == 1 else 'answers'} recoded; as "
             f"answered: {per_item}): their thresholds, correlations and counts of answers per category are those of "
-            f"the joined category.")
-
-
-def joined_in(frame: pd.DataFrame) -> tuple[JoinedItem, ...]:
-    """What the joins did to the rows ``frame`` holds (:data:`JOINED`); () without joins."""
-    return tuple(frame.attrs.get(JOINED, ()))
+            f"the joined category")
 
 
 def joins_record(spec: Spec) -> tuple:
@@ -154,3 +148,47 @@ def joins_record(spec: Spec) -> tuple:
 def joins_json(record: tuple) -> list[dict]:
     """The JSON of a :func:`joins_record`: [{"items": [...], "codes": [...], "as": code}]."""
     return [{"items": list(items), "codes": list(values), "as": into} for items, values, into in record]
+
+
+def _joins_of(spec: Spec) -> dict[str, set]:
+    """Item -> the (codes, code) of the joins of its categories."""
+    return {x: {(tuple(sorted(j.values)), j.into) for j in joins} for x, joins in spec.joined_items().items()}
+
+
+def refuse_different_joins(specs, names) -> None:
+    """Models compared on one data file analyse its categories one way: an item whose categories two models join
+    differently (or one joins and another does not) is an error naming the item and the models (the rows are read
+    once, with the first model's joins)."""
+    first = _joins_of(specs[0])
+    for spec, name in zip(specs[1:], names[1:]):
+        mine = _joins_of(spec)
+        for item in set(spec.observed_names) & set(specs[0].observed_names):
+            if first.get(item, set()) != mine.get(item, set()):
+                raise OptionError(f"the models {names[0]} and {name} join the answer categories of "
+                                  f"'{printable(item)}' differently (their 'join answers' statements differ, or one "
+                                  f"has none); give the models the same 'join answers' statements")
+        for item in set(mine) - set(specs[0].observed_names):
+            raise OptionError(f"the model {name} joins answer categories of '{printable(item)}', which the first "
+                              f"model {names[0]} does not analyse; the rows are read once for every model, so join "
+                              f"its categories in the first model too, or in none")
+
+
+def refuse_joins_for_summary_statistics(spec: Spec, source: str) -> None:
+    """A 'join answers' statement cannot apply to summary statistics (no answers to recode): an error naming it."""
+    if spec.joins:
+        join = spec.joins[0]
+        raise ModelError(f"the 'join answers' statement joins answer categories of ordinal items, and {source} holds "
+                         f"summary statistics, not answers; remove the statement or give the rows of answers",
+                         join.location, spec.source_line(join.location))
+
+
+def refuse_other_joins(spec: Spec, saved: list, source: str) -> None:
+    """Scores of other data with a saved fit read the rows with the model file's joins, which must be the fit's
+    (``saved``: its JSON's 'joined_answers'): other joins would put the answers on categories the fitted thresholds
+    do not have.  An error otherwise."""
+    def key(entries) -> set:
+        return {(str(x), tuple(float(v) for v in e["codes"]), float(e["as"])) for e in entries for x in e["items"]}
+
+    if key(joins_json(joins_record(spec))) != key(saved):
+        raise OptionError(f"the model's 'join answers' statements join answer categories otherwise than the earlier "
+                          f"fit {source} did; give the model file the fit was made with")

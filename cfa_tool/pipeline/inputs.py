@@ -21,7 +21,7 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
 
 from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, rounded_number, user_number
 from cfa_tool.data.answer_words import NUMBERS_ONLY, code_answer_words, coding_record, refuse_for_summary_statistics
-from cfa_tool.data.joined_answers import join_answers
+from cfa_tool.data.joined_answers import join_answers, refuse_joins_for_summary_statistics
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
 from cfa_tool.data.kept_rows import (ROW_NAMES_COLUMN, RowNaming, line_words, named_by_index_label, row_naming, row_of, text_lines,
@@ -2504,6 +2504,7 @@ def refuse_for_summary(spec: Spec, source: str, ordinal=None, ordinal_estimator=
     _refuse_ordinal_for_summary(spec, ordinal, ordinal_estimator)
     _refuse_means_for_summary(spec)
     refuse_for_summary_statistics(spec, source)
+    refuse_joins_for_summary_statistics(spec, source)
 
 
 def _refuse_ordinal_for_summary(spec: Spec, ordinal, ordinal_estimator) -> None:

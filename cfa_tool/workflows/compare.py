@@ -18,6 +18,7 @@ from cfa_tool.pipeline.inputs import (_described, rows_named, _no_group_notes, c
                                       summary_source, with_design)
 from cfa_tool.assessment.admissibility import non_normal_problems, solution_first
 from cfa_tool.data.answer_words import code_answer_words, coding_json, refuse_different_codings
+from cfa_tool.data.joined_answers import refuse_different_joins
 from cfa_tool.data.labels import label_notes
 from cfa_tool.data.matching import check_columns, check_declared_ranges, chosen_columns
 from cfa_tool.data.moments import row_numbers
@@ -165,6 +166,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                               f"raw data")
         return _some_estimated(_compare_summary(specs, names, data, fit_options, group))
     refuse_different_codings(specs, names)
+    refuse_different_joins(specs, names)
     _, loaded, notes = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep,
                                               (id_column,) if isinstance(id_column, str) else (),
                                               items={x for spec in specs for x in spec.observed_names}, names_row=names_row, first_data_row=first_data_row,

@@ -1773,6 +1773,7 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
     (``announce``: as :func:`scores` has it)."""
     from cfa_tool.assessment.admissibility import refuse_inadmissible_saved_fit
     from cfa_tool.data.answer_words import with_saved_coding
+    from cfa_tool.data.joined_answers import refuse_other_joins
     from cfa_tool.pipeline import inputs as api
 
     given = api.load_spec(model)
@@ -1783,6 +1784,7 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
     refuse_unknown_scale(saved.data, f"the fit in '{printable(str(saved_path))}'")
     refuse_inadmissible_saved_fit(saved.payload, saved.problems, saved.source, "no factor scores are computed with it")
     spec = with_saved_coding(given, saved.data.answer_coding, saved.source)  # the fit's coding
+    refuse_other_joins(spec, (saved.payload.get("data") or {}).get("joined_answers") or [], saved.source)
     chosen = _saved_methods(methods, bool(saved.payload.get("ordinal_items")), standard_errors)
     rule = item_rule(chosen, least_answered)
     unanswered = unanswered_option(unanswered_factors, chosen)
