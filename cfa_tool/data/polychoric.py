@@ -40,6 +40,7 @@ from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.plain import journal_decimal
 
 from cfa_tool.data.answer_words import CODED_BY_STATEMENT, answers_statement
+from cfa_tool.language.spec import join_statement
 from cfa_tool.data.descriptives import rare_answer_limit
 from cfa_tool.data.kept_rows import row_of
 from cfa_tool.data.moments import numeric_columns, row_numbers
@@ -614,8 +615,9 @@ def category_count_refusal(source: str, where: str, name: str, levels) -> str | 
 
 
 #: what to do with categories answered by very few rows (the refusals of a singular polychoric matrix)
-_RARE_REMEDY = ("merge such a category with its neighbour in a copy of the data (answers recorded as words: an "
-                "'answers' statement in the model file may give two words one code); or leave the item out")
+_RARE_REMEDY = ("join such a category with its neighbour by a 'join answers' statement in the model file (as in "
+                "'join answers 1, 2 as 2 for ITEM', which analyses answers 1 and 2 of ITEM as one category); or leave "
+                "the item out")
 
 
 def _rare_listed(rare: list[tuple[str, float, int]]) -> str:
@@ -766,8 +768,8 @@ def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]
     categories, ``seen`` each item's categories answered in every group (what an empty one is recoded as), ``coded``
     the items whose answers are words an 'answers' statement coded (data.answer_words.CODED_BY_STATEMENT): for
     them the model file itself can merge the empty category into the nearest one answered, with a statement of the
-    item's own that gives their words one code; answers recorded as codes are recoded in a copy of the data file
-    (the model language codes words, not numbers); ``given``: the rows read, which know the codes of no answer the
+    item's own that gives their words one code; answers recorded as codes are joined by 'join answers' statements
+    of the model file (data.joined_answers); ``given``: the rows read, which know the codes of no answer the
     run gave already, kept in the advice to add a code (data.non_answers.advice_codes); ``shifted``: items whose
     answers lie on shifted codes in some groups (data.shifted_scales: 0 to 4 in one, 1 to 5 in another), for which
     the advice undoes the shift instead of merging categories (hostile trial s25, finding 4)."""
@@ -822,9 +824,10 @@ def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]
              f"gave, so merging {'its' if len(constant) == 1 else 'their'} categories would leave "
              f"{'it' if len(constant) == 1 else 'them'} with one answer everywhere") if constant else ""
     if recoded:
-        recode = " and ".join(f"'{printable(name)}' ({_merged_into(empty, seen[name])})" for name, empty in recoded.items())
-        ways.append(f"{first}{'if the codes are alike in every group, ' if undo else ''}in a copy of the data file, "
-                    f"recode {recode} in every group")
+        joins = "; ".join(f"'{statement}'" for name, empty in recoded.items()
+                          for statement in _joining_statements(empty, seen[name], name))
+        ways.append(f"{first}{'if the codes are alike in every group, ' if undo else ''}join each empty category "
+                    f"with its nearest category answered, in every group, by a statement of the model file: {joins}")
     elif first:
         ways.append(first.removesuffix("; if real, "))
     drop = f"drop {'the item' if one_item else 'those items'} from the model"
@@ -883,9 +886,14 @@ def _nearest(value: float, seen) -> float:
     return float(min(seen, key=lambda s: (abs(s - value), abs(s - middle))))
 
 
-def _merged_into(empty, seen) -> str:
-    """'1 as 2, 5 as 4': each empty category recoded as its nearest category that was answered (:func:`_nearest`)."""
-    return ", ".join(f"{user_number(v)} as {user_number(_nearest(v, seen))}" for v in empty)
+def _joining_statements(empty, seen, name: str) -> list[str]:
+    """The 'join answers' statements of item ``name`` that join each ``empty`` category with its nearest category
+    answered in every group (:func:`_nearest`), those joined into one category in one statement
+    (language.spec.join_statement, the one writer: 'join answers 1, 2 as 2 for q2')."""
+    into: dict[float, list[float]] = {}
+    for v in empty:
+        into.setdefault(_nearest(v, seen), []).append(float(v))
+    return [join_statement([*values, target], target, (name,)) for target, values in into.items()]
 
 
 def _categories(values) -> str:

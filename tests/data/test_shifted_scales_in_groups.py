@@ -71,8 +71,9 @@ def test_the_ordinal_refusal_undoes_the_shift_before_merging_categories():
     moved = int(data[data.district == "south"].clean.notna().sum())  # every answer of clean in south moves by 1
     undo = message.index(f"undo the shift in a copy of the data file (subtract 1 from 'clean' in group south of "
                          f"'district'), which merges no category ({moved} answers recoded)")
-    merge = message.index("if the codes are alike in every group, in a copy of the data file, recode 'clean' (0 as 1, "
-                          "5 as 4) in every group")
+    merge = message.index("if the codes are alike in every group, join each empty category with its nearest category "
+                          "answered, in every group, by a statement of the model file: 'join answers 0, 1 as 1 for "
+                          "clean'; 'join answers 4, 5 as 4 for clean'")
     assert "'clean' runs 0 to 4 in group north of 'district' and 1 to 5 in group south of 'district'" in message
     assert undo < merge  # the shift first
     # the advice undone as it says, the ordinal fit runs

@@ -54,5 +54,6 @@ def test_codes_keep_the_advice_to_recode_a_copy():
     with pytest.raises(DataError) as found:
         cfa_tool.fit(MODEL, _groups(), group="site")
     message = str(found.value)
-    assert "in a copy of the data file, recode 'q2' (1 as 2) in every group" in message
+    assert ("join each empty category with its nearest category answered, in every group, by a statement of the "
+            "model file: 'join answers 1, 2 as 2 for q2'") in message
     assert "answers \"" not in message

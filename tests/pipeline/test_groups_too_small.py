@@ -152,10 +152,14 @@ def test_ordinal_ways_past_an_empty_category_come_by_how_much_of_the_data_they_k
     dropped = int(frame[ITEMS].notna().sum().sum())
     assert left_out < recoded < dropped
     leave = f"leave this group out with --keep 'gender != \"{SMALL}\"' (30 rows, {left_out:,} answers left out)"
-    recode = f"in every group ({recoded:,} answers recoded)"
+    recode = f"' ({recoded:,} answers recoded)"
     drop = f"or drop those items from the model ({dropped:,} answers left out)"
     assert "the ways that keep the most answers first: " + leave in err
     assert err.index(leave) < err.index(recode) < err.index(drop)
+
+
+#: the words of the refusal of an empty category in a group that advise 'join answers' statements
+JOIN_ADVICE = "join each empty category with its nearest category answered, in every group, by a statement of the model file: "
 
 
 def test_recoding_comes_first_when_it_changes_fewer_answers_than_leaving_the_group_out(tmp_path, capsys):
@@ -169,8 +173,8 @@ def test_recoding_comes_first_when_it_changes_fewer_answers_than_leaving_the_gro
                             "gender", "--ordinal", "all"], capsys)
     assert code == 2, err
     recoded = int((frame.loc[~small, "q1"] == 4).sum())
-    assert f"the ways that keep the most answers first: in a copy of the data file, recode 'q1' (4 as 3) in every " \
-           f"group ({recoded:,} answers recoded); drop the item from the model" in err
+    assert f"the ways that keep the most answers first: {JOIN_ADVICE}'join answers 3, 4 as 3 for q1' " \
+           f"({recoded:,} answers recoded); drop the item from the model" in err
     assert err.index("drop the item") < err.index("or leave this group out")
 
 

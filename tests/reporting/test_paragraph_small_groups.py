@@ -59,8 +59,7 @@ def test_a_change_that_rounds_to_zero_has_no_sign():
 
 def test_the_rare_categories_advice_of_a_small_ordinal_group_names_the_ways_out():
     """An ordinal group of 14 rows whose polychoric matrix is not positive definite: the advice names the model's
-    'answers' statement (two words one code) and a row filter for the group, not only a copy of the data (new user
-    s14). Simulated ordinal answers (seed 27, found by trying seeds for this error)."""
+    'join answers' statement and a row filter for the group, not only a copy of the data (new user s14). Simulated ordinal answers (seed 27, found by trying seeds for this error)."""
     import numpy as np
     import pytest
 
@@ -75,7 +74,7 @@ def test_the_rare_categories_advice_of_a_small_ordinal_group_names_the_ways_out(
         cfa_tool.invariance("factor f: a, b, c, d, e\n", frame, "g", ordinal="all")
     text = str(found.value)
     assert "group small of 'g'" in text and "not positive definite" in text
-    assert "(answers recorded as words: an 'answers' statement in the model file may give two words one code)" in text
+    assert "join such a category with its neighbour by a 'join answers' statement in the model file" in text
     assert "or leave this group out with a row filter (keep=...)" in text
 
 
