@@ -103,6 +103,13 @@ def _join_item(spec: Spec, frame: pd.DataFrame, source: str, join: JoinedAnswers
     """Recode ``item``'s answers in ``frame`` by ``join``, after checking that its codes neighbour each other."""
     numbers = _numbers(frame[item])
     held = {float(v) for v in pd.unique(numbers.dropna())}
+    fractional = sorted(v for v in held if v != round(v))
+    if fractional:  # answers on a finer scale than categories: the item is no ordinal one (data.polychoric)
+        where = next(i.location for i in join.items if i.text == item)
+        raise ModelError(f"{source}: 'join answers' joins categories of ordinal items, and '{printable(item)}' has "
+                         f"answers that are not whole numbers ({_codes(fractional[:3])}"
+                         f"{', ...' if len(fractional) > 3 else ''}), as a continuous item has; remove it from the "
+                         f"statement", where, spec.source_line(where))
     low, high = min(join.values), max(join.values)
     between = [v for v in _scale(spec, item, held) if low < v < high and v not in join.values]
     if between:

@@ -216,6 +216,12 @@ def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> 
         if re.match(r"scale\s+latent\s*,", written) and exc.token.type == "COMMA":  # hostile s24: a factor named latent
             message += ("; 'scale latent' scales every factor, so a factor named latent is written in double quotes "
                         "in a list: 'scale \"latent\", comfort by variance'")
+        if written.split(" ", 1)[0] == "join" and "FOR" in set(exc.accepts or exc.expected):
+            message += ("; a 'join answers' statement names its items after 'for', as in 'join answers 1, 2 as 2 for "
+                        "item3, item4'")
+        if re.match(r"in\s+group\b.*:\s*join\b", written) and str(exc.token) == "join":
+            message += ("; the same join applies in every group (thresholds are compared across groups on the same "
+                        "categories), so 'join answers' is written on a line of its own, outside 'in group'")
         if written.split(" ", 1)[0] == "reversed" and "ON" in set(exc.accepts or exc.expected):
             message += (f"; a 'reversed' statement ends with the scale's lowest and highest possible answers, as in "
                         f"'{clipped(written, 60)} on 1 to 5' for answers from 1 to 5")
