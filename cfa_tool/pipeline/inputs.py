@@ -2390,6 +2390,11 @@ def continuous_only(spec: Spec, command: str) -> Spec:
                          f"remove the 'ordinal' statement to analyse the items as continuous (the other commands, "
                          f"'invariance' across a few groups among them, handle ordinal items)", name.location,
                          spec.source_line(name.location))
+    if spec.joins:
+        join = spec.joins[0]
+        raise ModelError(f"'{command}' treats every item as continuous, and 'join answers' joins categories of ordinal "
+                         f"items; remove the statement (the other commands analyse ordinal items)", join.location,
+                         spec.source_line(join.location))
     return spec
 
 
