@@ -1426,8 +1426,8 @@ def _without_interval(boot, unavailable) -> str:
     return (f"No interval for {cut_list(phrases, 6, sep='; ', lead='; and ')}: a resample holding no answer on one side "
             f"of a threshold gives it no value, and an interval from the other resamples alone would be too narrow "
             f"(it could end at the estimate); every other interval comes from all {count_text(boot.converged)} "
-            f"converged resamples. Merge a rare category with its neighbour in a copy of the data to bootstrap the "
-            f"merged threshold")
+            f"converged resamples. Join a rare category with its neighbour by a 'join answers' statement of the "
+            f"model file to bootstrap the joined category's threshold")
 
 
 def lacked_sentence(lacking: int, converged: int, lacked, samples: str, kept_in: str) -> str:
@@ -1463,8 +1463,8 @@ def _resamples_left_out(boot, why: str) -> str:
             f"({100 * boot.failed / boot.replications:.0f}%) could not be analysed ({why}) and are left out, so the "
             f"intervals come only from resamples that kept what the others lacked (two answers of a rarely answered "
             f"item, say): the intervals of the estimates it touches are too narrow, and one may end at the "
-            f"estimate. Merge a rare category with its neighbour in a copy of the data, or read those intervals as "
-            f"too narrow")
+            f"estimate. Join a rare category with its neighbour by a 'join answers' statement of the model file, "
+            f"or read those intervals as too narrow")
 
 
 #: fewer draws than this beyond a percentile make it move with the seed (a rule of thumb of this program)
