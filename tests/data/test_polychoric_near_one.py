@@ -61,7 +61,7 @@ def test_a_correlation_near_one_from_a_sparse_table_names_the_rare_categories_no
     assert "the same answers" not in said and "drop one of them" not in said
     assert "items 'x' and 'y' correlate -.99" in said
     assert "yet categories of theirs are answered by very few rows: 'x' 3 (1 row)" in said
-    assert "merge such a category with its neighbour" in said
+    assert "join such a category with its neighbour by a 'join answers' statement" in said
     base = _answers()
     # a true near duplicate keeps its words however rare a category of it is
     copy = base.assign(q5=base["q1"])
