@@ -117,46 +117,56 @@ def _keys(item_labels: dict, code: float) -> list:
 
 def join_advice(parts) -> tuple[str, ...]:
     """The 'join answers' statements that join each empty or sparse category of ``parts`` (:class:`AnswerCounts`, one
-    per group, on the same items) with its neighbours towards the middle of the item's scale up to the first category
-    that no group marks (the joined category takes that one's code, so it keeps its place), items joined alike in one
-    statement (language.spec.join_statement, the one writer, so that the advice parses: tests/language); () when no
-    category is marked or none can be joined (every category of an item marked)."""
+    per group, on the same items) with its neighbours (:func:`joins_of_marked`), items joined alike in one statement
+    (language.spec.join_statement, the one writer, so that the advice parses: tests/language); () when no category is
+    marked or none can be joined."""
     parts = tuple(parts)
     if not parts:
         return ()
-    first = parts[0]
     joins: dict[tuple[tuple[float, ...], float], list[str]] = {}
-    for i, name in enumerate(first.items):
+    for i, name in enumerate(parts[0].items):
         scale = sorted({c for a in parts for c in a.scale[i]})
-        if len(scale) < 3:
-            continue
         total = {c: sum(a.counts[i][a.codes.index(c)] for a in parts if c in a.codes) for c in scale}
         marked = {c for a in parts for j, c in enumerate(a.codes)
                   if c in scale and (a.empty(i, j) or a.sparse(i, j))}
-        if not marked or len(marked) >= len(scale) - 1:
-            continue
-        middle = (scale[0] + scale[-1]) / 2
-        groups: list[set[float]] = []
-        for c in sorted(marked):
-            k = scale.index(c)
-            step = 1 if c < middle else -1 if c > middle else (
-                1 if total.get(scale[min(k + 1, len(scale) - 1)], 0) >= total.get(scale[max(k - 1, 0)], 0) else -1)
-            run = [c]
-            while 0 <= k + step < len(scale) and scale[k] in marked:
-                k += step
-                run.append(scale[k])
-            if scale[k] in marked:
-                continue
-            groups.append(set(run))
-        merged: list[set[float]] = []
-        for g in groups:  # runs that share a code are one join
-            for m in merged:
-                if m & g:
-                    m |= g
-                    break
-            else:
-                merged.append(set(g))
-        for m in merged:
-            into = next(c for c in sorted(m, key=lambda c: -total.get(c, 0)) if c not in marked)
-            joins.setdefault((tuple(sorted(m)), into), []).append(name)
+        for join in joins_of_marked(scale, marked, total):
+            joins.setdefault(join, []).append(name)
+    return joined_statements(joins)
+
+
+def joined_statements(joins: dict) -> tuple[str, ...]:
+    """(codes, code) -> items, as 'join answers' statements."""
     return tuple(join_statement(values, into, items) for (values, into), items in joins.items())
+
+
+def joins_of_marked(scale, marked, total) -> list[tuple[tuple[float, ...], float]]:
+    """The joins (codes, their code) of an item of the categories ``scale`` that join each ``marked`` category (empty
+    or rare) with its neighbours towards the middle of the scale up to the first category not marked, whose code the
+    joined category takes (so it keeps its place); at the middle, towards the neighbour given by more rows
+    (``total``: rows per category).  Runs that share a code are one join; none when fewer than two categories would
+    be left unmarked (the item's answers are too few to join: leaving it out is the way)."""
+    scale = sorted(scale)
+    if not marked or len(scale) < 3 or len(marked) >= len(scale) - 1:
+        return []
+    middle = (scale[0] + scale[-1]) / 2
+    runs: list[set[float]] = []
+    for c in sorted(marked):
+        k = scale.index(c)
+        step = 1 if c < middle else -1 if c > middle else (
+            1 if total.get(scale[min(k + 1, len(scale) - 1)], 0) >= total.get(scale[max(k - 1, 0)], 0) else -1)
+        run = [c]
+        while 0 <= k + step < len(scale) and scale[k] in marked:
+            k += step
+            run.append(scale[k])
+        if scale[k] not in marked:
+            runs.append(set(run))
+    merged: list[set[float]] = []
+    for run in runs:
+        for m in merged:
+            if m & run:
+                m |= run
+                break
+        else:
+            merged.append(set(run))
+    return [(tuple(sorted(m)), next(c for c in sorted(m, key=lambda c: -total.get(c, 0)) if c not in marked))
+            for m in merged]

@@ -478,7 +478,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             raise DataError(f"{source}{where}: items '{printable(names[j])}' and '{printable(names[i])}' correlate "
                             f"{near_one(R[i, j])}, yet categories of theirs are answered by very few rows: "
                             f"{_rare_listed(pair_rare)}, so their table says nothing of answers given alike and the "
-                            f"correlation matrix is singular; {_RARE_REMEDY}"
+                            f"correlation matrix is singular; {_rare_remedy(pair_rare, names, categories)}"
                             + (f"; or leave this group out with a row filter ({Option.KEEP})" if where else ""))
         raise DataError(f"{source}{where}: items '{printable(names[j])}' and '{printable(names[i])}' correlate "
                         f"{near_one(R[i, j])}: they give (nearly) the same answers, so one adds nothing and the correlation "
@@ -493,7 +493,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         complete = int(present.all(axis=1).sum())
         gaps = pairwise and not present.all() and complete > p  # listwise deletion keeps enough rows to work
         raise DataError(f"{source}{where}: the polychoric correlation matrix is not positive definite; "
-                        + (f"categories answered by very few rows: {_rare_listed(rare)} ({_RARE_REMEDY}"
+                        + (f"categories answered by very few rows: {_rare_listed(rare)} ({_rare_remedy(rare, names, categories)}"
                            + (f"; or leave this group out with a row filter ({Option.KEEP})" if where else "") + ")"
                            if rare else
                            "some items may be near duplicates or some categories nearly empty")
@@ -615,9 +615,24 @@ def category_count_refusal(source: str, where: str, name: str, levels) -> str | 
 
 
 #: what to do with categories answered by very few rows (the refusals of a singular polychoric matrix)
-_RARE_REMEDY = ("join such a category with its neighbour by a 'join answers' statement in the model file (as in "
-                "'join answers 1, 2 as 2 for ITEM', which analyses answers 1 and 2 of ITEM as one category); or leave "
-                "the item out")
+def _rare_remedy(rare: list[tuple[str, float, int]], names, categories) -> str:
+    """What to do with categories answered by very few rows (the refusals of a singular polychoric matrix): the
+    'join answers' statements that join them with their neighbours towards the middle of the item's scale
+    (data.answer_counts.joins_of_marked, the rule of the cautions, written so that they parse), or leave the item
+    out."""
+    from cfa_tool.data.answer_counts import joined_statements, joins_of_marked
+
+    joins: dict[tuple, list[str]] = {}
+    for name in dict.fromkeys(r[0] for r in rare):
+        marked = {value: rows for item, value, rows in rare if item == name}
+        for join in joins_of_marked(categories[list(names).index(name)], set(marked), marked):
+            joins.setdefault(join, []).append(name)
+    statements = "; ".join(f"'{s}'" for s in joined_statements(joins))
+    join = (f"join such a category with its neighbour by a 'join answers' statement in the model file "
+            f"({statements}), which analyses them as one category; or " if statements else
+            "join such a category with its neighbour by a 'join answers' statement in the model file where the item "
+            "has other categories answered by more rows; or ")
+    return join + "leave the item out"
 
 
 def _rare_listed(rare: list[tuple[str, float, int]]) -> str:
