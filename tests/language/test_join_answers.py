@@ -97,3 +97,18 @@ def test_the_advice_of_the_rare_category_caution_parses():
     north = AnswerCounts("north", ("a",), codes, ((0, 40, 80, 60, 17),), (codes,))
     south = AnswerCounts("south", ("a",), codes, ((12, 40, 80, 60, 17),), (codes,))
     assert join_advice([north, south]) == ("join answers 1, 2 as 2 for a",)
+
+
+def test_the_refusal_of_a_singular_polychoric_matrix_writes_statements_that_parse():
+    """data.polychoric's refusal names rare categories (item, code, rows) and writes their joins by the cautions'
+    rule; the statements it quotes parse (counts invented for the test)."""
+    import re
+
+    from cfa_tool.data.polychoric import _rare_remedy
+
+    said = _rare_remedy([("a", 1.0, 2), ("a", 2.0, 3), ("item d", 5.0, 1)], ("a", "item d"),
+                        [(1.0, 2.0, 3.0, 4.0, 5.0), (1.0, 2.0, 3.0, 4.0, 5.0)])
+    statements = re.findall(r"'(join answers [^']*)'", said)
+    assert statements == ["join answers 1, 2, 3 as 3 for a", 'join answers 4, 5 as 4 for "item d"']
+    spec = parse_model(MODEL + "\n".join(statements) + "\n")
+    assert [j.into for j in spec.joins] == [3.0, 4.0]
