@@ -118,7 +118,7 @@ def _join_item(spec: Spec, frame: pd.DataFrame, source: str, join: JoinedAnswers
                          f"{user_number(low)} and {user_number(high)}; list {'it' if len(between) == 1 else 'them'} "
                          f"too, or join categories next to each other", join.location,
                          spec.source_line(join.location))
-    left = held - set(join.merged)
+    left = {join.into if v in join.values else v for v in held}  # the categories as analysed
     if len(held) > 1 and len(left) < 2:
         raise ModelError(f"{source}: 'join answers' would leave '{printable(item)}' a single category "
                          f"({user_number(next(iter(left)))}), since its rows hold only the answers "

@@ -132,6 +132,7 @@ def test_the_same_join_applies_in_every_group():
     ("join answers 1, 3 as 3 for q1", "'q1' has the answer 2 between 1 and 3"),
     ("join answers 5, 6 as 5 for q1", "no row read gave the answer 6 to 'q1'"),
     ("join answers 1, 2, 3, 4, 5 as 3 for q1", "would leave 'q1' a single category (3)"),
+    ("join answers 1, 2, 3, 4, 5, 6 as 6 for q1", "would leave 'q1' a single category (6)"),  # 6 not answered
 ])
 def test_joins_the_data_refuse(statement, words):
     with pytest.raises(ModelError) as refused:
