@@ -1,0 +1,379 @@
+"""Measurement invariance over occasions: the same people answering the same items at two or more times, in one
+group.  The model is written once, for one occasion; each step of the ladder is the model of every occasion side by
+side (each occasion its own factors and indicators, each item's residuals correlated across the occasions, the
+factors' covariances across the occasions free), with the equalities of its level held across the occasions:
+configural, metric (loadings), scalar (intercepts, the later occasions' factor means freed against the first's at 0)
+and strict (residual variances) (Meredith 1993; Widaman, Ferrer & Conger 2010; Little, Slegers & Card 2006 on the
+first occasion's mean as the origin).  The steps are fitted to the same rows and tested against the one before by
+the chi-square difference test (scaled by Satorra & Bentler 2001 with a robust test), as ``compare`` fits rival
+models; each step is judged by the rule of the ladder across groups (workflows.invariance).
+
+Data arrive in long form (one row per person and occasion: an id column and a column telling the occasions apart),
+set side by side here by the id, or in wide form (one row per person, each item's column at an occasion named by the
+item and that occasion's ending).  A person missing at one occasion keeps the answers of the others by
+full-information ML, which the means of the scalar step need in any case.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from cfa_tool.errors import DataError, ModelError, OptionError, shown_path
+from cfa_tool.language.names import written_name
+from cfa_tool.language.parser import parse_model
+from cfa_tool.language.spec import Spec
+from cfa_tool.method import DecisionRule, MissingData
+from cfa_tool.numbers import count_text, names_shown
+from cfa_tool.options import Option, own_keywords
+from cfa_tool import options as check
+from cfa_tool.pipeline.inputs import load_spec, read_inputs_with_notes
+from cfa_tool.pipeline.results import FitResult, clean
+from cfa_tool.pipeline.same_people import OCCASIONS_AT_MOST
+from cfa_tool.views import Presentable
+from cfa_tool.workflows.invariance import (LEVELS, InvarianceStep, LatentDifference, _fit_values, _judged,
+                                           _step_holds, configural_fits, unjudged)
+
+#: what each level holds equal across the occasions, in the words of the report and the paragraph
+HELD_OVER_OCCASIONS = {"configural": "nothing (the same pattern at every occasion)", "metric": "loadings",
+                       "scalar": "loadings and intercepts", "strict": "loadings, intercepts and residual variances"}
+
+
+@dataclass(frozen=True)
+class OccasionLayout:
+    """How the occasions are laid out side by side: each occasion's label (as the data give it) and the ending of
+    its columns and factors in the model of every occasion ('vig1' at occasion '2' is 'vig1_2')."""
+
+    occasions: tuple[str, ...]
+    endings: tuple[str, ...]
+
+    def name(self, name: str, k: int) -> str:
+        """``name`` (an item or a factor of the one-occasion model) at the k-th occasion."""
+        return f"{name}{self.endings[k]}"
+
+
+def _refuse_statements(spec: Spec) -> None:
+    """The one-occasion model of this first version: factors of items, residual covariances and uncorrelated factors
+    of one occasion; any other statement is an error at its line (not yet available over occasions)."""
+    others = (("fix", spec.fixed), ("free", spec.freed), ("equal", spec.equal), ("start", spec.starts),
+              ("bound", spec.bounds), ("scale", spec.scaling), ("ordinal", spec.ordinal), ("reversed", spec.reversed),
+              ("method", spec.method), ("answers", spec.answers), ("exploratory block", spec.exploratory),
+              ("invariance", spec.invariant or ((spec.invariance_level,) if spec.invariance_level else ())),
+              ("noninvariant", spec.noninvariant))
+    for word, found in others:
+        if found:
+            where = _location(found[0])
+            raise ModelError(f"a '{word}' statement is not yet available in a model tested over occasions (the "
+                             f"ladder writes the model of every occasion from factors, their items, 'covary' and "
+                             f"'uncorrelated' statements alone; see not-yet-available.md)", where,
+                             spec.source_line(where) if where is not None else None)
+    latent = set(spec.factor_names)
+    for factor in spec.factors:
+        for item in factor.indicators:
+            if item.text in latent:
+                raise ModelError(f"a higher-order factor ({factor.name.text} explains {item.text}) is not yet "
+                                 f"available in a model tested over occasions", item.location,
+                                 spec.source_line(item.location))
+
+
+def _location(found):
+    """Where a statement of the model file is, for its error (the first location its parts give)."""
+    for part in (found, *(getattr(found, "refs", ()) or ()), *(getattr(found, "items", ()) or ()),
+                 *(getattr(found, "factors", ()) or ())):
+        at = getattr(part, "location", None)
+        if at is not None:
+            return at
+    if isinstance(found, tuple) and found:
+        return _location(found[0])
+    return None
+
+
+def step_text(spec: Spec, layout: OccasionLayout, level: str) -> str:
+    """The model of every occasion side by side at ``level`` (one of :data:`invariance.LEVELS`), in the model
+    language: what the step fits, which the report and the JSON give so that it can be fitted again by ``fit``.
+    Each factor's first item is its marker (loading 1 at every occasion); from the metric level the other loadings
+    are equal across the occasions, from the scalar level every intercept, the first occasion's factor means fixed
+    at 0 and the later ones' free, from the strict level every residual variance."""
+    classes = next(c for lv, c, _ in LEVELS if lv == level)
+    n = len(layout.occasions)
+    w = written_name
+    lines = [f'name "{level} over occasions"']
+    for k in range(n):
+        for factor in spec.factors:
+            items = ", ".join(w(layout.name(i.text, k)) for i in factor.indicators)
+            lines.append(f"factor {w(layout.name(factor.name.text, k))}: {items}")
+        lines += [f"covary {w(layout.name(p.first.text, k))}, {w(layout.name(p.second.text, k))}" for p in spec.covary]
+        lines += [f"uncorrelated {w(layout.name(p.first.text, k))}, {w(layout.name(p.second.text, k))}"
+                  for p in spec.uncorrelated]
+    for item in spec.observed_names:  # each item's residuals correlated across the occasions
+        lines += [f"covary {w(layout.name(item, a))}, {w(layout.name(item, b))}"
+                  for a in range(n) for b in range(a + 1, n)]
+    if "loadings" in classes:
+        for factor in spec.factors:
+            for item in factor.indicators[1:]:
+                lines.append("equal " + ", ".join(
+                    f"loading({w(layout.name(factor.name.text, k))}, {w(layout.name(item.text, k))})"
+                    for k in range(n)))
+    if "intercepts" in classes:
+        for item in spec.observed_names:
+            lines.append("equal " + ", ".join(f"intercept({w(layout.name(item, k))})" for k in range(n)))
+        lines += [f"free mean({w(layout.name(f, k))})" for k in range(1, n) for f in spec.factor_names]
+    if "residuals" in classes:
+        for item in spec.observed_names:
+            lines.append("equal " + ", ".join(f"variance({w(layout.name(item, k))})" for k in range(n)))
+    return "\n".join(lines) + "\n"
+
+
+def _chosen(id_column: str, occasion_column: str):
+    """The columns of other roles than items (data.matching.chosen_columns): the id and the occasion column."""
+    from cfa_tool.data.matching import chosen_columns
+
+    chosen = chosen_columns(None, id_column)
+    chosen[occasion_column] = "the occasion column"
+    return chosen
+
+
+def _occasion_order(values: pd.Series) -> list:
+    """The occasions in order: numbers from the smallest, text in the order the rows first give it."""
+    distinct = list(dict.fromkeys(values.tolist()))
+    if all(isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool) for v in distinct):
+        return sorted(distinct)
+    return distinct
+
+
+def _label(value) -> str:
+    """An occasion's label: a whole number without its '.0' (wave 2.0 of a column with gaps is wave 2)."""
+    if isinstance(value, (float, np.floating)) and float(value).is_integer():
+        return str(int(value))
+    return str(value)
+
+
+def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, occasion_column: str,
+                   source: str) -> tuple[pd.DataFrame, OccasionLayout, list[str]]:
+    """Rows of one person and occasion set side by side, one row per person (by ``id_column``), each item's column at
+    the k-th occasion named by the layout; people missing at an occasion have gaps there.  Errors: a row without an
+    id or an occasion, fewer than 2 or more than OCCASIONS_AT_MOST occasions, an id given twice at one occasion
+    (naming them), an item without an answer at some occasion."""
+    for column, what in ((id_column, "id"), (occasion_column, "occasion")):
+        empty = frame[column].isna().to_numpy()
+        if empty.any():
+            rows = [str(i + 1) for i in np.flatnonzero(empty)]
+            raise DataError(f"{shown_path(source)}: column '{column}' gives no {what} in "
+                            f"{count_text(int(empty.sum()))} row{'s' if empty.sum() > 1 else ''} (row "
+                            f"{names_shown(rows)} among the rows read); each row needs a person's id and an occasion")
+    order = _occasion_order(frame[occasion_column])
+    if not 2 <= len(order) <= OCCASIONS_AT_MOST:
+        raise DataError(f"{shown_path(source)}: column '{occasion_column}' holds {count_text(len(order))} occasion"
+                        f"{'s' if len(order) != 1 else ''}; invariance over occasions needs 2 to {OCCASIONS_AT_MOST}")
+    labels = [_label(v) for v in order]
+    if len(set(labels)) < len(labels):
+        raise DataError(f"{shown_path(source)}: column '{occasion_column}' holds occasions that read alike "
+                        f"({', '.join(labels)}); give each occasion one value")
+    ids = frame[id_column].astype(str)
+    twice = frame.assign(_id=ids).duplicated(["_id", occasion_column], keep=False).to_numpy()
+    if twice.any():
+        pairs = list(dict.fromkeys(f"'{i}' at {_label(o)}" for i, o in zip(ids[twice], frame[occasion_column][twice])))
+        raise DataError(f"{shown_path(source)}: the id column '{id_column}' gives one id to several rows of one "
+                        f"occasion of '{occasion_column}' ({names_shown(pairs)}); each person answers once per "
+                        f"occasion: remove the repeated rows or tell them apart")
+    endings = tuple(f"_{label}" for label in labels)
+    layout = OccasionLayout(tuple(labels), endings)
+    people = list(dict.fromkeys(ids.tolist()))
+    wide = pd.DataFrame({id_column: people})
+    for k, value in enumerate(order):
+        at = frame[occasion_column] == value
+        part = frame.loc[at, list(items)].set_axis(ids[at].tolist())
+        for item in items:
+            answered = part[item].notna().any()
+            if not answered:
+                raise DataError(f"{shown_path(source)}: item '{item}' has no answer at occasion {labels[k]} of "
+                                f"'{occasion_column}': every occasion needs the same items")
+            wide[layout.name(item, k)] = part[item].reindex(people).to_numpy()
+    clash = set(wide.columns[1:]) & {id_column}
+    if clash or len(set(wide.columns)) < len(wide.columns):
+        raise DataError(f"{shown_path(source)}: the items' names with the occasions' endings clash with each other or "
+                        f"with the id column; rename the items or the occasions")
+    counts = [int((frame[occasion_column] == v).sum()) for v in order]
+    notes = [f"Rows set side by side by '{id_column}': {count_text(len(frame))} rows of "
+             f"{count_text(len(people))} people at {len(order)} occasions of '{occasion_column}' ("
+             + ", ".join(f"{lab}: {count_text(c)}" for lab, c in zip(labels, counts)) + ")"
+             + (f"; {count_text(len(people) * len(order) - len(frame))} occasions of people missing there are gaps, "
+                f"kept by full-information ML" if len(frame) < len(people) * len(order) else "") + "."]
+    return wide, layout, notes
+
+
+@dataclass(frozen=True, eq=False)
+class OccasionsResult(Presentable):
+    """The invariance ladder over occasions of the same people, in one group."""
+
+    occasion_column: str | None  # long form: the column telling the occasions apart; None for wide form
+    id_column: str | None
+    layout: OccasionLayout
+    steps: tuple[InvarianceStep, ...]
+    texts: tuple[str, ...]  # each step's model of every occasion, as fitted (step_text)
+    alpha: float
+    rule: DecisionRule
+    warnings: tuple[str, ...]
+    notes: tuple[str, ...]
+    data_problems: tuple = ()
+    latent_changes: tuple[LatentDifference, ...] = ()  # each later occasion's factor mean and variance vs the first
+    latent_note: str = ""
+    people: int = 0
+
+    @property
+    def occasions(self) -> tuple[str, ...]:
+        return self.layout.occasions
+
+    def to_dict(self) -> dict:
+        return {
+            "warnings": [str(w) for w in self.warnings],
+            "data_problems": [p.to_dict() for p in self.data_problems],
+            "notes": [str(x) for x in self.notes],
+            "over_occasions": True,
+            "occasion_column": self.occasion_column,
+            "id_column": self.id_column,
+            "occasions": [{"occasion": o, "column_ending": e} for o, e in zip(self.layout.occasions,
+                                                                            self.layout.endings)],
+            "people": self.people,
+            "alpha": self.alpha,
+            "decision_rule": {"name": self.rule.value, "description": self.rule.description},
+            "steps": [{**s.to_dict(), "model": text} for s, text in zip(self.steps, self.texts)],
+            "latent_changes": [clean({**d.to_dict(), "occasion": d.group, "group": None,
+                                      "reference_occasion": self.layout.occasions[0]}) for d in self.latent_changes],
+            "latent_changes_note": self.latent_note,
+        }
+
+
+def _latent_changes(steps: Sequence[InvarianceStep], spec: Spec,
+                    layout: OccasionLayout) -> tuple[tuple[LatentDifference, ...], str]:
+    """Each later occasion's factor means and variances against the first occasion's (mean 0), from the scalar
+    model, when the metric and scalar steps held; d: the change over the pooled latent standard deviation of the two
+    occasions (the same people, so equal sizes); else none, with the reason."""
+    scalar = next((s for s in steps if s.level == "scalar"), None)
+    if scalar is None:
+        return (), "No latent mean changes: the ladder did not reach the scalar step."
+    if any(not s.holds for s in steps if s.level in ("metric", "scalar")):
+        return (), ("No latent mean changes: the scalar step (or the metric step before it) did not hold, so the "
+                    "factor means of the occasions are not on a common scale.")
+    if not scalar.result.admissible:
+        return (), "No latent mean changes: the scalar model's solution is not admissible."
+    rows = {(r.kind, r.variables): r for r in scalar.result.estimates if r.kind in ("mean", "factor_variance")}
+    out = []
+    for factor in spec.factor_names:
+        first = rows.get(("factor_variance", (layout.name(factor, 0),)))
+        for k in range(1, len(layout.occasions)):
+            mean = rows.get(("mean", (layout.name(factor, k),)))
+            var = rows.get(("factor_variance", (layout.name(factor, k),)))
+            if mean is None or var is None or first is None:
+                continue
+            pooled = (first.estimate + var.estimate) / 2
+            d = mean.estimate / np.sqrt(pooled) if pooled > 0 else float("nan")
+            out.append(LatentDifference(factor, layout.occasions[k], float(mean.estimate), float(mean.se),
+                                        tuple(mean.ci95), float(mean.p_value), float(d), float(var.estimate),
+                                        float(var.se), float(first.estimate)))
+    return tuple(out), (f"From the scalar model: each factor's mean at a later occasion against occasion "
+                        f"{layout.occasions[0]} (whose means are fixed at 0); d: the change over the pooled latent "
+                        f"standard deviation of the two occasions; Var. ratio: the factor's variance at that occasion "
+                        f"over its variance at occasion {layout.occasions[0]}.")
+
+
+def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str | Path,
+                              occasion_column: str | None = None, id_column: str | None = None,
+                              occasion_endings: Sequence[str] | None = None, alpha: float | None = None,
+                              decide_by: str | DecisionRule = DecisionRule.DIFFERENCE_TEST,
+                              sheet: str | None = None, names_row: int | None = None,
+                              first_data_row: int | None = None, missing_codes: tuple = (),
+                              keep: tuple[str, ...] | list[str] = (), rename=None, test: str | None = None,
+                              missing: str | None = None) -> OccasionsResult:
+    """Fit the configural, metric, scalar and strict models over occasions of the same people (one group) and test
+    each against the one before.  Long data: ``occasion_column`` and ``id_column`` (one row per person and occasion).
+    Wide data: ``occasion_endings`` ('_t1', '_t2': the item vig1 at the first occasion is the column vig1_t1), with
+    ``id_column`` optional.  ``test='robust'`` fits every step with the robust test and tests the steps by the
+    scaled difference; rows with gaps are kept by full-information ML, which the scalar step's means need."""
+    rule = check.choice(DecisionRule, decide_by, "the decision rule")
+    alpha = check.probability("alpha (the level of the difference tests)", 0.05 if alpha is None else alpha)
+    if missing is not None and MissingData(missing) is MissingData.LISTWISE:
+        raise OptionError(f"over occasions every step is fitted by full-information ML, which the means of the scalar "
+                          f"step need in one group and which keeps a person missing at one occasion; "
+                          f"{Option.INCOMPLETE_ROWS.given('listwise')} cannot apply")
+    if (occasion_column is None) == (occasion_endings is None):
+        raise OptionError("invariance over occasions needs either the column that tells the occasions apart (long "
+                          "data, with the id column) or the endings of each occasion's columns (wide data), not "
+                          + ("both" if occasion_column is not None else "neither"))
+    spec = load_spec(model)
+    _refuse_statements(spec)
+    reading = dict(names_row=names_row, first_data_row=first_data_row, rename=rename)
+    if occasion_column is not None:
+        if not isinstance(id_column, str):
+            raise OptionError(f"long data over occasions need the id column that names each person "
+                              f"({Option.ID_COLUMN.given('COLUMN')}), to set each person's occasions side by side")
+        _, loaded, read_notes = read_inputs_with_notes(spec, data, sheet, missing_codes, keep,
+                                                       (id_column, occasion_column), keeps_gaps=True,
+                                                       chosen=_chosen(id_column, occasion_column), **reading)
+        for column in (occasion_column, id_column):
+            if column not in loaded.frame.columns:
+                raise DataError(f"{shown_path(loaded.source)}: no column '{column}'")
+        wide, layout, shaped = wide_from_long(loaded.frame, spec.observed_names, id_column, occasion_column,
+                                              loaded.source)
+    else:
+        endings = tuple(str(e) for e in occasion_endings)
+        if len(endings) < 2 or len(set(endings)) < len(endings) or not all(endings):
+            raise OptionError(f"wide data over occasions need two or more different column endings, one per "
+                              f"occasion, not {', '.join(repr(e) for e in endings) or 'none'}")
+        layout = OccasionLayout(tuple(e.strip("_ .-") or e for e in endings), endings)
+        wide_spec = parse_model(step_text(spec, layout, "configural"), spec.source)
+        _, loaded, read_notes = read_inputs_with_notes(wide_spec, data, sheet, missing_codes, keep,
+                                                       (id_column,) if isinstance(id_column, str) else (),
+                                                       keeps_gaps=True, **reading)
+        wide, shaped = loaded.frame, []
+    texts = tuple(step_text(spec, layout, level) for level, _, _ in LEVELS)
+    specs = [parse_model(text, f"{spec.source} ({level} over occasions)") for text, (level, _, _) in zip(texts, LEVELS)]
+    from cfa_tool.workflows.compare import compare
+
+    found = compare(specs, wide, test=test, missing=MissingData.FULL_INFORMATION.value, id_column=id_column)
+    steps: list[InvarianceStep] = []
+    for k, ((level, _, _), result) in enumerate(zip(LEVELS, found.results)):
+        previous = steps[-1] if steps else None
+        test_k = None if previous is None else next(
+            (t for t in found.tests if t.restricted == found.names[k] and t.general == found.names[k - 1]), None)
+        if not result.converged or (previous is not None and test_k is None):
+            steps.append(InvarianceStep(level, result, test_k, False, (), any(not s.holds for s in steps)))
+            break
+        not_judged = unjudged(rule, (level, result), (previous.level, previous.result) if previous else None)
+        untested = test_k is not None and test_k.df_difference == 0
+        holds = bool(result.admissible and not untested and not not_judged and (
+            configural_fits(result) if test_k is None else
+            _step_holds(rule, test_k, alpha, result, previous.result, level)))
+        srmr = None if previous is None else result.fit.srmr - previous.result.fit.srmr
+        steps.append(InvarianceStep(level, result, test_k, holds, (), any(not s.holds for s in steps),
+                                    delta_srmr=srmr, unjudged=not_judged))
+    warnings: list[str] = [p.line() for p in found.problems]
+    for step in steps:
+        if step.result.converged and not step.result.admissible:
+            warnings.insert(0, f"the {step.level} model's solution is not admissible ("
+                            + "; ".join(p.phrase() for p in step.result.problems if p.kind.inadmissible)
+                            + "): its fit and its difference test cannot show that invariance holds")
+        elif not step.result.converged:
+            warnings.insert(0, f"the {step.level} model did not converge ({step.result.message}); the ladder stops "
+                               f"there")
+    if steps[0].result.admissible and steps[0].result.converged and not steps[0].holds and not steps[0].unjudged:
+        warnings.insert(0, "the configural model does not fit by the guide values (" + _judged(_fit_values(
+            steps[0].result)) + "): every later step compares models that already misfit, so its test says little "
+            "about invariance; first find out why the model misfits (fit it at each occasion alone and read the "
+            "modification indices and residuals), then test invariance")
+    elif any(s.conditional for s in steps):
+        first = next(s for s in steps if not s.holds)
+        warnings.insert(0, f"the {first.level} step did not hold, so the steps after it compare models that already "
+                           f"fail it; they are marked as conditional on a rejected step")
+    changes, note = _latent_changes(steps, spec, layout)
+    return OccasionsResult(occasion_column, id_column, layout, tuple(steps), texts[:len(steps)], alpha, rule,
+                           tuple(warnings), tuple(read_notes) + tuple(shaped) + tuple(found.notes),
+                           tuple(found.problems), changes, note, len(wide))
+
+
+#: the keywords of :func:`invariance_over_occasions`
+OCCASIONS_KEYWORDS = own_keywords(invariance_over_occasions)
