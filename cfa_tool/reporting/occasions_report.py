@@ -5,7 +5,6 @@ group, with the latent mean and variance changes and the model each step fitted.
 from __future__ import annotations
 
 from cfa_tool.numbers import count_text, word_list
-from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Listing, Report, ResultKind
 from cfa_tool.reporting.numbers import est_num, num, p_phrase, p_value, signed, unit
 from cfa_tool.reporting.paragraph import _estimator_phrase, _sample_phrase

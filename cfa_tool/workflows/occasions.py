@@ -28,11 +28,11 @@ from cfa_tool.language.names import written_name
 from cfa_tool.language.parser import parse_model
 from cfa_tool.language.spec import Spec
 from cfa_tool.method import DecisionRule, MissingData
-from cfa_tool.numbers import count_text, names_shown
+from cfa_tool.numbers import count_text, cut_list
 from cfa_tool.options import Option, own_keywords
 from cfa_tool import options as check
 from cfa_tool.pipeline.inputs import load_spec, read_inputs_with_notes
-from cfa_tool.pipeline.results import FitResult, clean
+from cfa_tool.pipeline.results import clean
 from cfa_tool.pipeline.same_people import OCCASIONS_AT_MOST
 from cfa_tool.views import Presentable
 from cfa_tool.workflows.invariance import (LEVELS, InvarianceStep, LatentDifference, _fit_values, _judged,
@@ -161,10 +161,11 @@ def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, oc
     for column, what in ((id_column, "id"), (occasion_column, "occasion")):
         empty = frame[column].isna().to_numpy()
         if empty.any():
-            rows = [str(i + 1) for i in np.flatnonzero(empty)]
+            rows = [str(int(i) + 1) for i in frame.index[empty]]  # as a spreadsheet shows them (moments.file_rows_index)
+            many = "s" if empty.sum() > 1 else ""
             raise DataError(f"{shown_path(source)}: column '{column}' gives no {what} in "
-                            f"{count_text(int(empty.sum()))} row{'s' if empty.sum() > 1 else ''} (row "
-                            f"{names_shown(rows)} among the rows read); each row needs a person's id and an occasion")
+                            f"{count_text(int(empty.sum()))} row{many} (row{many} {cut_list(rows, 5)}); each row needs "
+                            f"a person's id and an occasion")
     order = _occasion_order(frame[occasion_column])
     if not 2 <= len(order) <= OCCASIONS_AT_MOST:
         raise DataError(f"{shown_path(source)}: column '{occasion_column}' holds {count_text(len(order))} occasion"
@@ -178,7 +179,7 @@ def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, oc
     if twice.any():
         pairs = list(dict.fromkeys(f"'{i}' at {_label(o)}" for i, o in zip(ids[twice], frame[occasion_column][twice])))
         raise DataError(f"{shown_path(source)}: the id column '{id_column}' gives one id to several rows of one "
-                        f"occasion of '{occasion_column}' ({names_shown(pairs)}); each person answers once per "
+                        f"occasion of '{occasion_column}' ({cut_list(pairs, 5)}); each person answers once per "
                         f"occasion: remove the repeated rows or tell them apart")
     endings = tuple(f"_{label}" for label in labels)
     layout = OccasionLayout(tuple(labels), endings)
@@ -325,10 +326,17 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             raise OptionError(f"wide data over occasions need two or more different column endings, one per "
                               f"occasion, not {', '.join(repr(e) for e in endings) or 'none'}")
         layout = OccasionLayout(tuple(e.strip("_ .-") or e for e in endings), endings)
-        wide_spec = parse_model(step_text(spec, layout, "configural"), spec.source)
-        _, loaded, read_notes = read_inputs_with_notes(wide_spec, data, sheet, missing_codes, keep,
-                                                       (id_column,) if isinstance(id_column, str) else (),
-                                                       keeps_gaps=True, **reading)
+        wide_source = f"{spec.source} (every item at every occasion)"
+        wide_spec = parse_model(step_text(spec, layout, "configural"), wide_source)
+        try:
+            _, loaded, read_notes = read_inputs_with_notes(wide_spec, data, sheet, missing_codes, keep,
+                                                           (id_column,) if isinstance(id_column, str) else (),
+                                                           keeps_gaps=True, **reading)
+        except ModelError as error:  # a column of the model of every occasion, not a line of the user's file
+            if error.location is None or error.location.source != wide_source:
+                raise
+            raise DataError(f"wide data over occasions need a column for every item at every occasion (the item's "
+                            f"name with the ending of the occasion: {', '.join(endings)}): {error.message}") from None
         wide, shaped = loaded.frame, []
     texts = tuple(step_text(spec, layout, level) for level, _, _ in LEVELS)
     specs = [parse_model(text, f"{spec.source} ({level} over occasions)") for text, (level, _, _) in zip(texts, LEVELS)]
