@@ -118,7 +118,7 @@ _HELD = {"configural": "the same pattern of loadings at every occasion", "metric
 def occasions_paragraph(result) -> str:
     """The methods-and-results paragraph: over time, with the same people, exactly the models of the ladder, the
     estimator and the difference test with its authors, each step's figures and verdict, and the latent changes."""
-    from cfa_tool.workflows.invariance import unsound_basis
+    from cfa_tool.workflows.invariance import _fit_values, unsound_basis
 
     steps = result.steps
     first = steps[0].result
@@ -140,7 +140,11 @@ def occasions_paragraph(result) -> str:
         if fit is None or not s.result.converged:
             figures.append(f"the {s.level} model did not converge")
             continue
-        own = f"\u03c7\u00b2({fit.df}) = {num(fit.chi_square, 2)}, CFI = {unit(fit.cfi)}, RMSEA = {unit(fit.rmsea)}"
+        robust = s.result.robust
+        chi = fit.chi_square if robust is None else robust.chi_square_scaled  # the figures the tables show
+        shown = _fit_values(s.result)
+        own = (f"{'scaled ' if robust is not None else ''}\u03c7\u00b2({fit.df}) = {num(chi, 2)}, "
+               f"CFI = {unit(shown['cfi'])}, RMSEA = {unit(shown['rmsea'])}")
         t = s.versus_previous
         verdict = ("held" if s.holds and unsound_basis(steps, k) is None else
                    "met its test but rests on a step that did not hold" if s.holds else "did not hold")

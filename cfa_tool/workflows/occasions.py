@@ -27,7 +27,7 @@ from cfa_tool.errors import DataError, ModelError, OptionError, shown_path
 from cfa_tool.language.names import written_name
 from cfa_tool.language.parser import parse_model
 from cfa_tool.language.spec import Spec
-from cfa_tool.method import DecisionRule, MissingData
+from cfa_tool.method import DecisionRule, DifferenceMethod, MissingData
 from cfa_tool.numbers import count_text, cut_list
 from cfa_tool.options import Option, own_keywords
 from cfa_tool import options as check
@@ -282,6 +282,19 @@ def _latent_changes(steps: Sequence[InvarianceStep], spec: Spec,
                         f"over its variance at occasion {layout.occasions[0]}.")
 
 
+def _ladder_test(tests, restricted: str, general: str):
+    """The one difference test of a step against the one before among compare's tests of the pair, by the ladder's
+    rule (workflows.nesting.scaled_difference): with robust fits the scaled difference (Satorra & Bentler 2001), or
+    its strictly positive version (2010) when the 2001 correction is not positive; else the likelihood-ratio
+    difference.  None when compare found the pair not nested."""
+    pair = [t for t in tests if t.restricted == restricted and t.general == general]
+    for method in (DifferenceMethod.SATORRA_BENTLER_2001, DifferenceMethod.SATORRA_BENTLER_2010):
+        scaled = next((t for t in pair if t.method is method and not t.not_computed), None)
+        if scaled is not None:
+            return scaled
+    return next((t for t in pair if t.method is DifferenceMethod.LIKELIHOOD_RATIO), None)
+
+
 def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str | Path,
                               occasion_column: str | None = None, id_column: str | None = None,
                               occasion_endings: Sequence[str] | None = None, alpha: float | None = None,
@@ -346,8 +359,7 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
     steps: list[InvarianceStep] = []
     for k, ((level, _, _), result) in enumerate(zip(LEVELS, found.results)):
         previous = steps[-1] if steps else None
-        test_k = None if previous is None else next(
-            (t for t in found.tests if t.restricted == found.names[k] and t.general == found.names[k - 1]), None)
+        test_k = None if previous is None else _ladder_test(found.tests, found.names[k], found.names[k - 1])
         if not result.converged or (previous is not None and test_k is None):
             steps.append(InvarianceStep(level, result, test_k, False, (), any(not s.holds for s in steps)))
             break

@@ -180,3 +180,18 @@ def test_every_view_says_over_time_and_problems_first(scalar_fails, tmp_path):
     assert "the scalar step did not hold" in report.paragraph
     assert report.notice is not None and "scalar step did not hold" in str(report.notice.lines[0])
     assert json.loads(json.dumps(result.to_dict()))["over_occasions"] is True
+
+
+def test_robust_steps_are_the_scaled_differences_of_the_wide_models(scalar_fails):
+    from cfa_tool.method import DifferenceMethod
+
+    long, _ = scalar_fails
+    result = invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="person_id",
+                                       test="robust")
+    by_hand = compare(BY_HAND, widened(long), missing="full-information", test="robust")
+    for k, step in enumerate(result.steps[1:], start=1):
+        scaled = next(t for t in by_hand.tests if t.restricted == by_hand.names[k]
+                      and t.general == by_hand.names[k - 1] and t.method is DifferenceMethod.SATORRA_BENTLER_2001)
+        # the ladder's rule (nesting.scaled_difference): the 2001 scaled difference where its correction is positive
+        assert step.versus_previous.method is DifferenceMethod.SATORRA_BENTLER_2001
+        assert step.versus_previous.chi_square_difference == pytest.approx(scaled.chi_square_difference, abs=1e-6)
