@@ -176,6 +176,7 @@ class Option(enum.Enum):
     MISSING_CODES = ("--missing-codes", "missing_codes", None, True)
     KEEP = ("--keep", "keep", None, True)
     GROUP_COLUMN = ("--group-column", "group")
+    OCCASION_COLUMN = ("--occasion-column", "occasion_column")  # invariance over occasions of long data
     REFERENCE_GROUP = ("--reference-group", "reference_group")
     ID_COLUMN = ("--id", "id_column")
     NAMES_ROW = ("--names-row", "names_row")
