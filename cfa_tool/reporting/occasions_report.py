@@ -111,7 +111,7 @@ def occasions_report(result) -> Report:
 
 _HELD = {"configural": "the same pattern of loadings at every occasion", "metric": "loadings equal across occasions",
          "scalar": "loadings and intercepts equal across occasions, the later occasions' factor means estimated "
-                   "against the first occasion's (fixed at 0)",
+                   "against the first occasion's, fixed at 0",
          "strict": "loadings, intercepts and residual variances equal across occasions"}
 
 
@@ -123,8 +123,8 @@ def occasions_paragraph(result) -> str:
     steps = result.steps
     first = steps[0].result
     method = next((s.versus_previous.method for s in steps if s.versus_previous is not None), None)
-    parts = [f"Measurement invariance over time was tested with the same people answering at {_where(result)} "
-             f"(n = {count_text(first.n_obs)}), in one group, with a sequence of models each adding equality "
+    parts = [f"Measurement invariance over time was tested with the same people answering at {_where(result)}, "
+             f"n = {count_text(first.n_obs)}, in one group, with a sequence of models each adding equality "
              f"constraints to the one before: "
              + "; ".join(f"{s.level} ({_HELD[s.level]})" for s in steps) + ". Each model held every occasion's "
              f"factors and items side by side, each item's residuals correlated across the occasions and the factors' "

@@ -66,8 +66,8 @@ def _refuse_statements(spec: Spec) -> None:
               ("noninvariant", spec.noninvariant))
     for word, found in others:
         if found:
-            where = _location(found[0])
-            raise ModelError(f"a '{word}' statement is not yet available in a model tested over occasions (the "
+            where = spec.equalities_location if word == "invariance" else _location(found[0])
+            raise ModelError(f"the '{word}' statement is not yet available in a model tested over occasions (the "
                              f"ladder writes the model of every occasion from factors, their items, 'covary' and "
                              f"'uncorrelated' statements alone; see not-yet-available.md)", where,
                              spec.source_line(where) if where is not None else None)
