@@ -4,6 +4,7 @@ group, with the latent mean and variance changes and the model each step fitted.
 
 from __future__ import annotations
 
+from cfa_tool.model.description import parameter_words
 from cfa_tool.numbers import count_text, word_list
 from cfa_tool.reporting.document import Listing, Report, ResultKind
 from cfa_tool.reporting.numbers import est_num, num, p_phrase, p_value, signed, unit
@@ -12,11 +13,36 @@ from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotic
 from cfa_tool.reporting.workflow_tables import (CHECK_SOLUTIONS, CONFIGURAL_NOTE, INADMISSIBLE_VERDICT_NOTE, NOT_JUDGED,
                                                 SOME_NOT_ADMISSIBLE, TEST_MET, TEST_MET_NOTE, _admissible_cell,
                                                 _ladder_caution_lines, _level_fit_cells, _other_differences,
-                                                _step_cells, _verdict)
+                                                _score_tests_mcar_note, _step_cells, _verdict)
 
 #: the change-in-fit guides were studied for groups; over occasions they are read by the same convention
 OCCASIONS_GUIDES_NOTE = ("The change-in-fit guides were studied for invariance across groups; over occasions of the "
                          "same people they are used by common practice, as conventions.")
+
+
+def _misfit_sources(step, result) -> str:
+    """The score tests of a step that did not hold: those significant at the steps' level named as likely sources
+    (each an item's parameter at a later occasion against the first occasion's), or the largest when none is."""
+    from cfa_tool.numerics import distributions as dist
+
+    def words(c) -> str:
+        parts = [result.at_occasion(v) for v in c.variables]
+        return (parameter_words(c.kind, tuple(name for name, _ in parts), article=True)
+                + f" at occasion {parts[-1][1]}")
+
+    significant = [c for c in step.culprits if dist.chi2_sf(c.index, 1) < result.alpha]
+    level = unit(result.alpha, 2)
+    if not significant:
+        top = step.culprits[0]
+        return (f"No score test of the {step.level} step's equalities is significant at {level} "
+                f"({result.score_tests.phrase}; the largest: {words(top)}, {top.index:.2f}), so these data point to "
+                f"no single equality as the source of its misfit.")
+    which = "those" if len(significant) <= 5 else f"the 5 largest of the {len(significant)}"
+    return (f"Likeliest sources of misfit at the {step.level} step ({result.score_tests.phrase}; {which} significant "
+            f"at {level}, each against the first occasion's): "
+            + "; ".join(f"{words(c)} ({c.index:.2f})" for c in significant[:5])
+            + ". A step with such an equality freed (partial invariance over occasions) is not yet fitted by this "
+              "command.")
 
 
 def _where(result) -> str:
@@ -77,6 +103,8 @@ def occasions_report(result) -> Report:
                      f"({', '.join(tests)}), and each difference test is the scaled difference of those statistics "
                      f"(Satorra & Bentler 2001){_other_differences(steps)}.")
     notes += [CONFIGURAL_NOTE, OCCASIONS_GUIDES_NOTE]
+    notes += [_misfit_sources(step, result) for step in steps if not step.holds and step.culprits]
+    notes += _score_tests_mcar_note(result)
     first_occasion = result.occasions[0]
     if result.latent_changes:
         cells = [[d.factor, d.group, est_num(d.mean), est_num(d.se),

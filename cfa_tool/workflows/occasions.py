@@ -35,7 +35,7 @@ from cfa_tool.pipeline.inputs import load_spec, read_inputs_with_notes
 from cfa_tool.pipeline.results import clean
 from cfa_tool.pipeline.same_people import OCCASIONS_AT_MOST
 from cfa_tool.views import Presentable
-from cfa_tool.workflows.invariance import (LEVELS, InvarianceStep, LatentDifference, _fit_values, _judged,
+from cfa_tool.workflows.invariance import (LEVELS, InvarianceStep, LatentDifference, ScoreTests, _fit_values, _judged,
                                            _step_holds, configural_fits, unjudged)
 
 #: what each level holds equal across the occasions, in the words of the report and the paragraph
@@ -224,10 +224,32 @@ class OccasionsResult(Presentable):
     latent_changes: tuple[LatentDifference, ...] = ()  # each later occasion's factor mean and variance vs the first
     latent_note: str = ""
     people: int = 0
+    #: rows with gaps were fitted by full-information ML (what the normal-theory score tests then assume)
+    gaps_by_full_information: bool = False
+    freed: tuple = ()  # no partial search over occasions yet (not-yet-available.md)
 
     @property
     def occasions(self) -> tuple[str, ...]:
         return self.layout.occasions
+
+    @property
+    def score_tests(self) -> ScoreTests:
+        """The score tests of the steps' equalities: robust with a robust test, normal-theory otherwise (the ladder
+        across groups' rule, workflows.invariance.InvarianceResult.score_tests)."""
+        return ScoreTests.NORMAL if self.steps[0].result.robust is None else ScoreTests.ROBUST
+
+    @property
+    def score_tests_assume_mcar(self) -> bool:
+        """Whether the score tests rest on the patterns' expected information (normal-theory ones with rows with
+        gaps), as across groups (workflows.invariance.InvarianceResult.score_tests_assume_mcar)."""
+        return self.score_tests is ScoreTests.NORMAL and self.gaps_by_full_information
+
+    def at_occasion(self, name: str) -> tuple[str, str]:
+        """A name of the model of every occasion as (the one-occasion model's name, its occasion): 'vig3_2' is
+        ('vig3', '2'); by the longest ending it has."""
+        k = max((k for k, e in enumerate(self.layout.endings) if name.endswith(e)),
+                key=lambda k: len(self.layout.endings[k]))
+        return name[:len(name) - len(self.layout.endings[k])], self.layout.occasions[k]
 
     def to_dict(self) -> dict:
         return {
@@ -246,6 +268,8 @@ class OccasionsResult(Presentable):
             "latent_changes": [clean({**d.to_dict(), "occasion": d.group, "group": None,
                                       "reference_occasion": self.layout.occasions[0]}) for d in self.latent_changes],
             "latent_changes_note": self.latent_note,
+            "score_tests": {"name": self.score_tests.value, "description": self.score_tests.phrase,
+                            "assume_missing_completely_at_random": self.score_tests_assume_mcar},
         }
 
 
@@ -280,6 +304,46 @@ def _latent_changes(steps: Sequence[InvarianceStep], spec: Spec,
                         f"{layout.occasions[0]} (whose means are fixed at 0); d: the change over the pooled latent "
                         f"standard deviation of the two occasions; Var. ratio: the factor's variance at that occasion "
                         f"over its variance at occasion {layout.occasions[0]}.")
+
+
+def _later_entries(table, kinds: tuple[str, ...]) -> list:
+    """The entries of ``kinds`` that an equality holds to an earlier occasion's (one free parameter shared by
+    several entries: the model's 'equal' statements over the occasions), each but the first of its parameter, as the
+    candidates of the score tests of a step's equalities (assessment.modification.score_tests): releasing one frees
+    that occasion's parameter from the first occasion's."""
+    seen: set[int] = set()
+    out = []
+    for par in table.parameters:
+        if par.kind in kinds and len(par.terms) == 1:
+            index = par.terms[0][0]
+            if index in seen:
+                out.append((par.kind, par.variables, par.matrix, par.row, par.col))
+            seen.add(index)
+    return out
+
+
+def _constraint_tests(step_spec: Spec, wide: pd.DataFrame, kinds: tuple[str, ...], test: str | None) -> tuple:
+    """The score tests (largest first) of a step's equalities over the occasions: the step's model fitted again to the
+    rows compare fitted (those with some answer), its estimates the same, and each later occasion's equal entry
+    released in turn (normal-theory score tests, Sörbom 1989; with a robust test the generalized ones of Satorra
+    1989, as the ladder across groups reads them: workflows.invariance.NormalLadder.constraint_tests)."""
+    from dataclasses import replace
+
+    from cfa_tool.assessment.modification import score_tests
+    from cfa_tool.assessment.robust_scores import robust_score_tests
+    from cfa_tool.pipeline.continuous import estimate
+    from cfa_tool.pipeline.inputs import make_options, moments_for
+
+    answered = wide[list(step_spec.observed_names)].notna().to_numpy().any(axis=1)
+    options = replace(make_options({"missing": MissingData.FULL_INFORMATION.value, "test": test}),
+                      diagnostics=False)
+    groups, _ = moments_for(step_spec, wide.loc[answered], "the occasions side by side", None, None,
+                            MissingData.FULL_INFORMATION)
+    est = estimate(step_spec, groups, options)
+    found = score_tests(est.model, est.theta, est.likelihood, [_later_entries(est.table, kinds)])
+    if test is not None:
+        found = robust_score_tests(found, est.model, est.theta, est.likelihood)
+    return tuple(sorted(found, key=lambda c: -c.index))
 
 
 def _ladder_test(tests, restricted: str, general: str):
@@ -369,7 +433,11 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             configural_fits(result) if test_k is None else
             _step_holds(rule, test_k, alpha, result, previous.result, level)))
         srmr = None if previous is None else result.fit.srmr - previous.result.fit.srmr
-        steps.append(InvarianceStep(level, result, test_k, holds, (), any(not s.holds for s in steps),
+        kinds = next(k for lv, _, k in LEVELS if lv == level)
+        # the sources of a step's misfit: the score tests of its equalities where it did not hold (the ladder's rule)
+        culprits = (_constraint_tests(specs[k], wide, kinds, test) if kinds and not holds and result.admissible
+                    and not untested else ())
+        steps.append(InvarianceStep(level, result, test_k, holds, culprits, any(not s.holds for s in steps),
                                     delta_srmr=srmr, unjudged=not_judged))
     warnings: list[str] = [p.line() for p in found.problems]
     for step in steps:
@@ -390,9 +458,10 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
         warnings.insert(0, f"the {first.level} step did not hold, so the steps after it compare models that already "
                            f"fail it; they are marked as conditional on a rejected step")
     changes, note = _latent_changes(steps, spec, layout)
+    gaps = bool(wide[list(specs[0].observed_names)].isna().to_numpy().any())
     return OccasionsResult(occasion_column, id_column, layout, tuple(steps), texts[:len(steps)], alpha, rule,
                            tuple(warnings), tuple(read_notes) + tuple(shaped) + tuple(found.notes),
-                           tuple(found.problems), changes, note, len(wide))
+                           tuple(found.problems), changes, note, len(wide), gaps)
 
 
 #: the keywords of :func:`invariance_over_occasions`

@@ -89,6 +89,14 @@ def test_metric_holds_and_scalar_fails_in_a_known_population(scalar_fails):
     scalar = next(s for s in result.steps if s.level == "scalar")
     assert scalar.versus_previous.p_value < 0.001 and scalar.versus_previous.df_difference == 3
     assert result.latent_changes == () and "did not hold" in result.latent_note
+    # the score tests of the scalar step's equalities point first to the intercept the population shifted (vig3)
+    top = scalar.culprits[0]
+    assert (top.kind, top.variables) == ("intercept", ("vig3_2",))
+    assert result.at_occasion("vig3_2") == ("vig3", "2")
+    from cfa_tool.reporting.reports import report_of
+
+    said = " ".join(str(n) for n in report_of(result).notes)
+    assert "Likeliest sources of misfit at the scalar step" in said and "the intercept of vig3 at occasion 2" in said
 
 
 def test_each_step_equals_the_wide_model_written_by_hand(scalar_fails):
