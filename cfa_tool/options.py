@@ -258,7 +258,7 @@ class Option(enum.Enum):
 #: the options that name columns of the data, a group by its label or words of the data (--missing-codes' words):
 #: each read in Unicode's composed form (language.names.composed_value), on the command line
 #: (commands.options.composed_names) and by the Python API's entry points (cfa_tool.composing) alike
-NAMING = (Option.GROUP_COLUMN, Option.REFERENCE_GROUP, Option.ID_COLUMN, Option.KEEP, Option.WEIGHTS, Option.CLUSTER,
+NAMING = (Option.GROUP_COLUMN, Option.REFERENCE_GROUP, Option.ID_COLUMN, Option.OCCASION_COLUMN, Option.KEEP, Option.WEIGHTS, Option.CLUSTER,
           Option.STRATA, Option.ITEMS, Option.ORDINAL, Option.MISSING_HELPERS, Option.RENAME, Option.VALIDATION_RENAME,
           Option.MISSING_CODES)
 

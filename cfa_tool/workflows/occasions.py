@@ -23,6 +23,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.row_ids import id_text
 from cfa_tool.errors import DataError, ModelError, OptionError, shown_path
 from cfa_tool.language.names import written_name
 from cfa_tool.language.parser import parse_model
@@ -145,13 +146,6 @@ def _occasion_order(values: pd.Series) -> list:
     return distinct
 
 
-def _label(value) -> str:
-    """An occasion's label: a whole number without its '.0' (wave 2.0 of a column with gaps is wave 2)."""
-    if isinstance(value, (float, np.floating)) and float(value).is_integer():
-        return str(int(value))
-    return str(value)
-
-
 def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, occasion_column: str,
                    source: str) -> tuple[pd.DataFrame, OccasionLayout, list[str]]:
     """Rows of one person and occasion set side by side, one row per person (by ``id_column``), each item's column at
@@ -170,14 +164,14 @@ def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, oc
     if not 2 <= len(order) <= OCCASIONS_AT_MOST:
         raise DataError(f"{shown_path(source)}: column '{occasion_column}' holds {count_text(len(order))} occasion"
                         f"{'s' if len(order) != 1 else ''}; invariance over occasions needs 2 to {OCCASIONS_AT_MOST}")
-    labels = [_label(v) for v in order]
+    labels = [id_text(v) for v in order]  # as ids are read: wave 2.0 of a column with gaps is 2
     if len(set(labels)) < len(labels):
         raise DataError(f"{shown_path(source)}: column '{occasion_column}' holds occasions that read alike "
                         f"({', '.join(labels)}); give each occasion one value")
-    ids = frame[id_column].astype(str)
+    ids = frame[id_column].map(id_text)  # the one rule of an id's text (data.row_ids)
     twice = frame.assign(_id=ids).duplicated(["_id", occasion_column], keep=False).to_numpy()
     if twice.any():
-        pairs = list(dict.fromkeys(f"'{i}' at {_label(o)}" for i, o in zip(ids[twice], frame[occasion_column][twice])))
+        pairs = list(dict.fromkeys(f"'{i}' at {id_text(o)}" for i, o in zip(ids[twice], frame[occasion_column][twice])))
         raise DataError(f"{shown_path(source)}: the id column '{id_column}' gives one id to several rows of one "
                         f"occasion of '{occasion_column}' ({cut_list(pairs, 5)}); each person answers once per "
                         f"occasion: remove the repeated rows or tell them apart")
