@@ -177,6 +177,7 @@ class Option(enum.Enum):
     KEEP = ("--keep", "keep", None, True)
     GROUP_COLUMN = ("--group-column", "group")
     OCCASION_COLUMN = ("--occasion-column", "occasion_column")  # invariance over occasions of long data
+    OCCASION_ORDER = ("--occasion-order", "occasion_order")  # ... the order of occasions named by text
     REFERENCE_GROUP = ("--reference-group", "reference_group")
     ID_COLUMN = ("--id", "id_column")
     NAMES_ROW = ("--names-row", "names_row")

@@ -23,6 +23,9 @@ def add_parser(sub) -> None:
                      help="long data (one row per person and occasion): the column telling the occasions apart (wave, "
                           "time); with --id, each person's occasions are set side by side and the ladder is tested over "
                           "the occasions in one group, the model file written for one occasion")
+    inv.add_argument("--occasion-order", metavar="OCCASIONS",
+                     help="with --occasion-column: the occasions in order, comma-separated, the first first (needed "
+                          "when they are named by text: 'pre,post,follow-up'; numbers are ordered from the smallest)")
     inv.add_argument("--occasion-endings", metavar="ENDINGS",
                      help="wide data (one row per person): the endings of each occasion's columns, in order, "
                           "comma-separated ('_t1,_t2': item vig1 is the column vig1_t1 at the first occasion); the "
@@ -46,6 +49,10 @@ def run(args: argparse.Namespace) -> int:
     check_output(args, inputs_of(args))
     if args.occasion_column is not None or args.occasion_endings is not None:
         return _over_occasions(args)
+    if args.occasion_order is not None:
+        from cfa_tool.errors import OptionError
+
+        raise OptionError("--occasion-order orders the occasions of --occasion-column (long data), which is not given")
     if args.group is None:
         from cfa_tool.errors import OptionError
 
@@ -84,8 +91,10 @@ def _over_occasions(args: argparse.Namespace) -> int:
                           f"group of continuous items, without a sampling design or a partial search); see "
                           f"not-yet-available.md")
     endings = None if args.occasion_endings is None else [e.strip() for e in args.occasion_endings.split(",")]
+    order = None if args.occasion_order is None else [o.strip() for o in args.occasion_order.split(",")]
     result = invariance_over_occasions(Path(args.model), args.data, occasion_column=args.occasion_column,
-                                       id_column=args.id, occasion_endings=endings, alpha=args.alpha,
+                                       id_column=args.id, occasion_endings=endings, occasion_order=order,
+                                       alpha=args.alpha,
                                        decide_by=args.decide_by, test=O.fit_test(args), missing=args.missing,
                                        **O.reading_args(args))
     return emit(args, result)

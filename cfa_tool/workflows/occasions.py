@@ -29,7 +29,7 @@ from cfa_tool.language.names import written_name
 from cfa_tool.language.parser import parse_model
 from cfa_tool.language.spec import Spec
 from cfa_tool.method import DecisionRule, DifferenceMethod, MissingData
-from cfa_tool.numbers import count_text, cut_list
+from cfa_tool.numbers import count_text, cut_list, number
 from cfa_tool.options import Option, own_keywords
 from cfa_tool import options as check
 from cfa_tool.pipeline.inputs import load_spec, read_inputs_with_notes
@@ -138,16 +138,33 @@ def _chosen(id_column: str, occasion_column: str):
     return chosen
 
 
-def _occasion_order(values: pd.Series) -> list:
-    """The occasions in order: numbers from the smallest, text in the order the rows first give it."""
+def _occasion_order(values: pd.Series, column: str, given: Sequence[str] | None, source: str) -> list:
+    """The occasions in order: as ``given`` (their labels, data.row_ids.id_text), else numbers from the smallest;
+    occasions named by text without a given order are an error (the first occasion is the origin of the means, and
+    no order of words can be guessed: 'pre', 'post', 'follow-up')."""
     distinct = list(dict.fromkeys(values.tolist()))
-    if all(isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool) for v in distinct):
-        return sorted(distinct)
-    return distinct
+    if given is not None:
+        by_label = {id_text(v): v for v in distinct}
+        wanted = [str(g) for g in given]
+        unknown = [g for g in wanted if g not in by_label]
+        left = [label for label in by_label if label not in wanted]
+        if unknown or left or len(set(wanted)) < len(wanted):
+            raise OptionError(f"the order of the occasions names each occasion of '{column}' in {shown_path(source)} "
+                              f"once ({', '.join(by_label)})"
+                              + (f"; not among them: {', '.join(unknown)}" if unknown else "")
+                              + (f"; left out: {', '.join(left)}" if left else ""))
+        return [by_label[g] for g in wanted]
+    values = [v if isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool)
+              else number(str(v)) for v in distinct]  # numbers, or text that reads as one (a column read as text)
+    if all(v is not None for v in values):
+        return [d for _, d in sorted(zip(values, distinct), key=lambda pair: pair[0])]
+    raise OptionError(f"the occasions of '{column}' are named by text ({cut_list([id_text(v) for v in distinct], 5)}), "
+                      f"whose order cannot be read from the data: give it ({Option.OCCASION_ORDER} with the occasions in "
+                      f"their order, comma-separated, the first first)")
 
 
 def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, occasion_column: str,
-                   source: str) -> tuple[pd.DataFrame, OccasionLayout, list[str]]:
+                   source: str, order: Sequence[str] | None = None) -> tuple[pd.DataFrame, OccasionLayout, list[str]]:
     """Rows of one person and occasion set side by side, one row per person (by ``id_column``), each item's column at
     the k-th occasion named by the layout; people missing at an occasion have gaps there.  Errors: a row without an
     id or an occasion, fewer than 2 or more than OCCASIONS_AT_MOST occasions, an id given twice at one occasion
@@ -160,7 +177,7 @@ def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, oc
             raise DataError(f"{shown_path(source)}: column '{column}' gives no {what} in "
                             f"{count_text(int(empty.sum()))} row{many} (row{many} {cut_list(rows, 5)}); each row needs "
                             f"a person's id and an occasion")
-    order = _occasion_order(frame[occasion_column])
+    order = _occasion_order(frame[occasion_column], occasion_column, order, source)
     if not 2 <= len(order) <= OCCASIONS_AT_MOST:
         raise DataError(f"{shown_path(source)}: column '{occasion_column}' holds {count_text(len(order))} occasion"
                         f"{'s' if len(order) != 1 else ''}; invariance over occasions needs 2 to {OCCASIONS_AT_MOST}")
@@ -355,7 +372,8 @@ def _ladder_test(tests, restricted: str, general: str):
 
 def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str | Path,
                               occasion_column: str | None = None, id_column: str | None = None,
-                              occasion_endings: Sequence[str] | None = None, alpha: float | None = None,
+                              occasion_endings: Sequence[str] | None = None,
+                              occasion_order: Sequence[str] | None = None, alpha: float | None = None,
                               decide_by: str | DecisionRule = DecisionRule.DIFFERENCE_TEST,
                               sheet: str | None = None, names_row: int | None = None,
                               first_data_row: int | None = None, missing_codes: tuple = (),
@@ -390,8 +408,11 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             if column not in loaded.frame.columns:
                 raise DataError(f"{shown_path(loaded.source)}: no column '{column}'")
         wide, layout, shaped = wide_from_long(loaded.frame, spec.observed_names, id_column, occasion_column,
-                                              loaded.source)
+                                              loaded.source, occasion_order)
     else:
+        if occasion_order is not None:  # the endings' order is the occasions' order
+            raise OptionError(f"the endings of wide data give the occasions' order ({Option.OCCASION_ORDER} is for "
+                              f"long data, with {Option.OCCASION_COLUMN})")
         endings = tuple(str(e) for e in occasion_endings)
         if len(endings) < 2 or len(set(endings)) < len(endings) or not all(endings):
             raise OptionError(f"wide data over occasions need two or more different column endings, one per "

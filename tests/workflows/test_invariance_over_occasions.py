@@ -203,3 +203,17 @@ def test_robust_steps_are_the_scaled_differences_of_the_wide_models(scalar_fails
         # the ladder's rule (nesting.scaled_difference): the 2001 scaled difference where its correction is positive
         assert step.versus_previous.method is DifferenceMethod.SATORRA_BENTLER_2001
         assert step.versus_previous.chi_square_difference == pytest.approx(scaled.chi_square_difference, abs=1e-6)
+
+
+def test_occasions_named_by_text_need_their_order():
+    long = people(200, 5)
+    named = long.assign(wave=long["wave"].map({1: "before", 2: "after"}))
+    with pytest.raises(OptionError, match=r"named by text \(before, after\)"):
+        invariance_over_occasions(ONE_OCCASION, named, occasion_column="wave", id_column="person_id")
+    ordered = invariance_over_occasions(ONE_OCCASION, named, occasion_column="wave", id_column="person_id",
+                                        occasion_order=["before", "after"])
+    numbered = invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="person_id")
+    # the same people and waves, named by words in their order: the same ladder
+    assert ordered.occasions == ("before", "after")
+    assert [s.result.fit.chi_square for s in ordered.steps] == pytest.approx(
+        [s.result.fit.chi_square for s in numbered.steps], abs=1e-6)
