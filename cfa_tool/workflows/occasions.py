@@ -24,6 +24,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.row_ids import id_text
+from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.errors import DataError, ModelError, OptionError, shown_path
 from cfa_tool.language.names import written_name
 from cfa_tool.language.parser import parse_model
@@ -32,7 +33,7 @@ from cfa_tool.method import DecisionRule, DifferenceMethod, MissingData
 from cfa_tool.numbers import count_text, cut_list, number
 from cfa_tool.options import Option, own_keywords
 from cfa_tool import options as check
-from cfa_tool.pipeline.inputs import load_spec, read_inputs_with_notes
+from cfa_tool.pipeline.inputs import analysed_odd_values, data_problems, load_spec, read_inputs_with_notes
 from cfa_tool.pipeline.results import clean
 from cfa_tool.pipeline.same_people import OCCASIONS_AT_MOST
 from cfa_tool.views import Presentable
@@ -407,6 +408,10 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
         for column in (occasion_column, id_column):
             if column not in loaded.frame.columns:
                 raise DataError(f"{shown_path(loaded.source)}: no column '{column}'")
+        # the cautions on the rows of the long file, named by its rows (a person's id repeats there by design, so the
+        # rows are named by number alone): not those of the rows set side by side, which no file holds
+        long_problems = tuple(p for p in data_problems(analysed_odd_values(loaded, spec, None), spec)
+                              if p.kind is not ProblemKind.REPEATED_IDS)  # once per occasion by design
         wide, layout, shaped = wide_from_long(loaded.frame, spec.observed_names, id_column, occasion_column,
                                               loaded.source, occasion_order)
     else:
@@ -429,7 +434,7 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
                 raise
             raise DataError(f"wide data over occasions need a column for every item at every occasion (the item's "
                             f"name with the ending of the occasion: {', '.join(endings)}): {error.message}") from None
-        wide, shaped = loaded.frame, []
+        wide, shaped, long_problems = loaded.frame, [], None
     texts = tuple(step_text(spec, layout, level) for level, _, _ in LEVELS)
     specs = [parse_model(text, f"{spec.source} ({level} over occasions)") for text, (level, _, _) in zip(texts, LEVELS)]
     from cfa_tool.workflows.compare import compare
@@ -448,21 +453,23 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             configural_fits(result) if test_k is None else
             _step_holds(rule, test_k, alpha, result, previous.result, level)))
         srmr = None if previous is None else result.fit.srmr - previous.result.fit.srmr
-        kinds = next(k for lv, _, k in LEVELS if lv == level)
+        kinds = next(added for lv, _, added in LEVELS if lv == level)
         # the sources of a step's misfit: the score tests of its equalities where it did not hold (the ladder's rule)
         culprits = (_constraint_tests(specs[k], wide, kinds, test) if kinds and not holds and result.admissible
                     and not untested else ())
         steps.append(InvarianceStep(level, result, test_k, holds, culprits, any(not s.holds for s in steps),
                                     delta_srmr=srmr, unjudged=not_judged))
-    warnings: list[str] = [p.line() for p in found.problems]
+    problems = tuple(found.problems) if long_problems is None else tuple(long_problems)
+    warnings: list[str] = []  # the steps' impossible solutions first, in the ladder's order, then the data's
     for step in steps:
         if step.result.converged and not step.result.admissible:
-            warnings.insert(0, f"the {step.level} model's solution is not admissible ("
+            warnings.append(f"the {step.level} model's solution is not admissible ("
                             + "; ".join(p.phrase() for p in step.result.problems if p.kind.inadmissible)
                             + "): its fit and its difference test cannot show that invariance holds")
         elif not step.result.converged:
-            warnings.insert(0, f"the {step.level} model did not converge ({step.result.message}); the ladder stops "
-                               f"there")
+            warnings.append(f"the {step.level} model did not converge ({step.result.message}); the ladder stops "
+                            f"there")
+    warnings += [p.line() for p in problems]
     if steps[0].result.admissible and steps[0].result.converged and not steps[0].holds and not steps[0].unjudged:
         warnings.insert(0, "the configural model does not fit by the guide values (" + _judged(_fit_values(
             steps[0].result)) + "): every later step compares models that already misfit, so its test says little "
@@ -470,13 +477,15 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             "modification indices and residuals), then test invariance")
     elif any(s.conditional for s in steps):
         first = next(s for s in steps if not s.holds)
-        warnings.insert(0, f"the {first.level} step did not hold, so the steps after it compare models that already "
-                           f"fail it; they are marked as conditional on a rejected step")
+        why = ("was not admissible" if first.result.converged and not first.result.admissible else
+               f"could not be judged ({first.unjudged})" if first.unjudged else "did not hold")
+        warnings.insert(0, f"the {first.level} step {why}, so the steps after it compare models that already fail "
+                           f"it; they are marked as conditional on a rejected step")
     changes, note = _latent_changes(steps, spec, layout)
     gaps = bool(wide[list(specs[0].observed_names)].isna().to_numpy().any())
     return OccasionsResult(occasion_column, id_column, layout, tuple(steps), texts[:len(steps)], alpha, rule,
                            tuple(warnings), tuple(read_notes) + tuple(shaped) + tuple(found.notes),
-                           tuple(found.problems), changes, note, len(wide), gaps)
+                           problems, changes, note, len(wide), gaps)
 
 
 #: the keywords of :func:`invariance_over_occasions`

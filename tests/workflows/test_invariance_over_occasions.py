@@ -217,3 +217,18 @@ def test_occasions_named_by_text_need_their_order():
     assert ordered.occasions == ("before", "after")
     assert [s.result.fit.chi_square for s in ordered.steps] == pytest.approx(
         [s.result.fit.chi_square for s in numbered.steps], abs=1e-6)
+
+
+def test_the_long_files_rows_are_named_and_its_ids_repeat_by_design(tmp_path):
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    long = people(150, 13)
+    long.loc[[10, 11, 250], "vig2"] = 99  # a missing-value code read as an answer, in three rows of the long file
+    path = tmp_path / "waves.csv"
+    long.to_csv(path, index=False)
+    result = invariance_over_occasions(ONE_OCCASION, path, occasion_column="wave", id_column="person_id")
+    kinds = {p.kind for p in result.data_problems}
+    # each id once per wave is the design of long data, not a caution; the code's rows are the file's (header row 1)
+    assert ProblemKind.REPEATED_IDS not in kinds
+    said = " ".join(str(w) for w in result.warnings)
+    assert "value 99" in said and "rows 12, 13, 252" in said
