@@ -23,8 +23,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.row_ids import id_text
-from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.data.row_ids import id_text, ids_by_row_number
 from cfa_tool.errors import DataError, ModelError, OptionError, shown_path
 from cfa_tool.language.names import written_name
 from cfa_tool.language.parser import parse_model
@@ -408,12 +407,14 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
         for column in (occasion_column, id_column):
             if column not in loaded.frame.columns:
                 raise DataError(f"{shown_path(loaded.source)}: no column '{column}'")
-        # the cautions on the rows of the long file, named by its rows (a person's id repeats there by design, so the
-        # rows are named by number alone): not those of the rows set side by side, which no file holds
-        long_problems = tuple(p for p in data_problems(analysed_odd_values(loaded, spec, None), spec)
-                              if p.kind is not ProblemKind.REPEATED_IDS)  # once per occasion by design
         wide, layout, shaped = wide_from_long(loaded.frame, spec.observed_names, id_column, occasion_column,
                                               loaded.source, occasion_order)
+        # the cautions on the rows of the long file, named by its rows and each row by its person and occasion (an id
+        # repeats once per occasion by design, and no id twice at one occasion is left: wide_from_long), not those of
+        # the rows set side by side, which no file holds
+        frame = loaded.frame
+        ids = ids_by_row_number(frame[id_column].map(id_text) + " at " + frame[occasion_column].map(id_text), frame)
+        long_problems = data_problems(analysed_odd_values(loaded, spec, None), spec, ids=ids, id_column=id_column)
     else:
         if occasion_order is not None:  # the endings' order is the occasions' order
             raise OptionError(f"the endings of wide data give the occasions' order ({Option.OCCASION_ORDER} is for "
