@@ -11,13 +11,15 @@ from __future__ import annotations
 from cfa_tool import views
 from cfa_tool.version import __version__
 
-__all__ = ["fit", "check", "bootstrap", "cutoffs", "scores", "explore", "compare", "invariance", "align", "replicate",
-           "split_half", "power", "nested_power", "power_simulation", "invariance_power", "simulate", "parse_model", "__version__"]
+__all__ = ["fit", "check", "bootstrap", "cutoffs", "scores", "explore", "compare", "invariance",
+           "invariance_over_occasions", "align", "replicate", "split_half", "power", "nested_power",
+           "power_simulation", "invariance_power", "simulate", "parse_model", "__version__"]
 
 # workflow entry points: public name -> (module, function)
 _WORKFLOWS = {
     "compare": ("cfa_tool.workflows.compare", "compare"),
     "invariance": ("cfa_tool.workflows.invariance", "invariance"),
+    "invariance_over_occasions": ("cfa_tool.workflows.occasions", "invariance_over_occasions"),
     "align": ("cfa_tool.workflows.alignment", "align"),
     "replicate": ("cfa_tool.workflows.replication", "replicate"),
     "split_half": ("cfa_tool.workflows.replication", "split_half"),

@@ -176,6 +176,8 @@ class Option(enum.Enum):
     MISSING_CODES = ("--missing-codes", "missing_codes", None, True)
     KEEP = ("--keep", "keep", None, True)
     GROUP_COLUMN = ("--group-column", "group")
+    OCCASION_COLUMN = ("--occasion-column", "occasion_column")  # invariance over occasions of long data
+    OCCASION_ORDER = ("--occasion-order", "occasion_order")  # ... the order of occasions named by text
     REFERENCE_GROUP = ("--reference-group", "reference_group")
     ID_COLUMN = ("--id", "id_column")
     NAMES_ROW = ("--names-row", "names_row")
@@ -257,7 +259,7 @@ class Option(enum.Enum):
 #: the options that name columns of the data, a group by its label or words of the data (--missing-codes' words):
 #: each read in Unicode's composed form (language.names.composed_value), on the command line
 #: (commands.options.composed_names) and by the Python API's entry points (cfa_tool.composing) alike
-NAMING = (Option.GROUP_COLUMN, Option.REFERENCE_GROUP, Option.ID_COLUMN, Option.KEEP, Option.WEIGHTS, Option.CLUSTER,
+NAMING = (Option.GROUP_COLUMN, Option.REFERENCE_GROUP, Option.ID_COLUMN, Option.OCCASION_COLUMN, Option.KEEP, Option.WEIGHTS, Option.CLUSTER,
           Option.STRATA, Option.ITEMS, Option.ORDINAL, Option.MISSING_HELPERS, Option.RENAME, Option.VALIDATION_RENAME,
           Option.MISSING_CODES)
 

@@ -1132,12 +1132,14 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
         spread = (f" {'It' if len(found) == 1 else f'{count_text(across)} of these {what}'} name{'s' if across == 1 else ''} "
                   f"rows in more than one group of '{printable(group)}': the same people in several groups?"
                   + groups_taken_as_independent(across, several, outside, cluster))
-        advice = Note(("for the same people at several times, put each time's answers side by side in one row per "
-                       "person and fit one model of both times (each item at each time its own indicator, its "
-                       "residuals correlated across the times), holding its loadings and intercepts equal across the "
-                       "times to test invariance over time" + (", which compares each person with themselves"
-                                                                if outside == 0 else "")
-                       + "; if the groups hold different people, correct the ids in a copy of the data file.",))
+        # the ladder over occasions of one group sets each person's times side by side (workflows.occasions)
+        over_time = (Option.OCCASION_COLUMN.given(group)
+                     + (f" {Option.ID_COLUMN.given(id_column)}" if by_column or by_name else ""))
+        advice = Note(("for the same people at several times, test invariance over time in one group, with one model "
+                       "of both times side by side (each item at each time its own indicator, its residuals "
+                       "correlated across the times)", Command(f" (the invariance command with {over_time})"),
+                       (", which compares each person with themselves" if outside == 0 else "")
+                       + "; if the groups hold different people, correct the ids in a copy of the data file."))
     else:
         spread = taken_as_independent(outside, cluster, several) if fitted else ""
         skip = {id_column, group, *(name for _, name in (design.names if design else ()))} | set(items)

@@ -19,7 +19,8 @@ _RESULT_CLASSES = (
     (ResultKind.FIT, "cfa_tool.pipeline.results", ("FitResult",)),
     (ResultKind.CHECK, "cfa_tool.pipeline.results", ("CheckResult",)),
     (ResultKind.COMPARE, "cfa_tool.workflows.compare", ("Comparison",)),
-    (ResultKind.INVARIANCE, "cfa_tool.workflows.invariance", ("InvarianceResult",)),
+    (ResultKind.INVARIANCE, ("cfa_tool.workflows.invariance", "cfa_tool.workflows.occasions"),
+     ("InvarianceResult", "OccasionsResult")),  # across groups; over occasions of the same people
     (ResultKind.REPLICATE, "cfa_tool.workflows.replication", ("Replication", "Replications")),
     (ResultKind.BOOTSTRAP, "cfa_tool.workflows.bootstrap", ("BootstrapResult",)),
     (ResultKind.CUTOFFS, "cfa_tool.workflows.cutoffs", ("CutoffResult",)),
@@ -66,6 +67,11 @@ def report_of(result: object) -> Report:
         from cfa_tool.reporting.group_power_report import invariance_power_report
 
         return invariance_power_report(result)
+    occasions = sys.modules.get("cfa_tool.workflows.occasions")  # a ladder over occasions: its own report
+    if occasions is not None and isinstance(result, occasions.OccasionsResult):
+        from cfa_tool.reporting.occasions_report import occasions_report
+
+        return occasions_report(result)
     if kind is ResultKind.ALIGN:
         from cfa_tool.reporting.align_report import alignment_report
 

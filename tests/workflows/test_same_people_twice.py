@@ -40,6 +40,8 @@ def test_ids_in_both_groups_are_said_to_be_the_same_people(tmp_path):
     first = _flat(ladder.warnings[0])
     assert "200 of these ids name rows in more than one group of 'wave': the same people in several groups?" in first
     assert "take the groups for independent samples" in first and "one model of both times" in first
+    # the ladder over occasions is the way to test invariance over time (workflows.occasions)
+    assert "test invariance over time in one group" in first and "occasion_column='wave' id_column='rider'" in first
     fitted = cfa_tool.fit(MODEL, stacked, group="wave", id_column="rider")
     said = next(p for p in fitted.problems if p.kind is ProblemKind.REPEATED_IDS)
     assert "in more than one group of 'wave'" in _flat(said.explanation)

@@ -1,0 +1,493 @@
+"""Measurement invariance over occasions: the same people answering the same items at two or more times, in one
+group.  The model is written once, for one occasion; each step of the ladder is the model of every occasion side by
+side (each occasion its own factors and indicators, each item's residuals correlated across the occasions, the
+factors' covariances across the occasions free), with the equalities of its level held across the occasions:
+configural, metric (loadings), scalar (intercepts, the later occasions' factor means freed against the first's at 0)
+and strict (residual variances) (Meredith 1993; Widaman, Ferrer & Conger 2010; Little, Slegers & Card 2006 on the
+first occasion's mean as the origin).  The steps are fitted to the same rows and tested against the one before by
+the chi-square difference test (scaled by Satorra & Bentler 2001 with a robust test), as ``compare`` fits rival
+models; each step is judged by the rule of the ladder across groups (workflows.invariance).
+
+Data arrive in long form (one row per person and occasion: an id column and a column telling the occasions apart),
+set side by side here by the id, or in wide form (one row per person, each item's column at an occasion named by the
+item and that occasion's ending).  A person missing at one occasion keeps the answers of the others by
+full-information ML, which the means of the scalar step need in any case.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from cfa_tool.data.row_ids import id_text, ids_by_row_number
+from cfa_tool.errors import DataError, ModelError, OptionError, shown_path
+from cfa_tool.language.names import written_name
+from cfa_tool.language.parser import parse_model
+from cfa_tool.language.spec import Spec
+from cfa_tool.method import DecisionRule, DifferenceMethod, MissingData
+from cfa_tool.numbers import count_text, cut_list, number
+from cfa_tool.options import Option, own_keywords
+from cfa_tool import options as check
+from cfa_tool.pipeline.inputs import analysed_odd_values, data_problems, load_spec, read_inputs_with_notes
+from cfa_tool.pipeline.results import clean
+from cfa_tool.pipeline.same_people import OCCASIONS_AT_MOST
+from cfa_tool.views import Presentable
+from cfa_tool.workflows.invariance import (LEVELS, InvarianceStep, LatentDifference, ScoreTests, _fit_values, _judged,
+                                           _step_holds, configural_fits, unjudged)
+
+#: what each level holds equal across the occasions, in the words of the report and the paragraph
+HELD_OVER_OCCASIONS = {"configural": "nothing (the same pattern at every occasion)", "metric": "loadings",
+                       "scalar": "loadings and intercepts", "strict": "loadings, intercepts and residual variances"}
+
+
+@dataclass(frozen=True)
+class OccasionLayout:
+    """How the occasions are laid out side by side: each occasion's label (as the data give it) and the ending of
+    its columns and factors in the model of every occasion ('vig1' at occasion '2' is 'vig1_2')."""
+
+    occasions: tuple[str, ...]
+    endings: tuple[str, ...]
+
+    def name(self, name: str, k: int) -> str:
+        """``name`` (an item or a factor of the one-occasion model) at the k-th occasion."""
+        return f"{name}{self.endings[k]}"
+
+
+def _refuse_statements(spec: Spec) -> None:
+    """The one-occasion model of this first version: factors of items, residual covariances and uncorrelated factors
+    of one occasion; any other statement is an error at its line (not yet available over occasions)."""
+    others = (("fix", spec.fixed), ("free", spec.freed), ("equal", spec.equal), ("start", spec.starts),
+              ("bound", spec.bounds), ("scale", spec.scaling), ("ordinal", spec.ordinal), ("reversed", spec.reversed),
+              ("method", spec.method), ("answers", spec.answers), ("exploratory block", spec.exploratory),
+              ("invariance", spec.invariant or ((spec.invariance_level,) if spec.invariance_level else ())),
+              ("noninvariant", spec.noninvariant))
+    for word, found in others:
+        if found:
+            where = spec.equalities_location if word == "invariance" else _location(found[0])
+            raise ModelError(f"the '{word}' statement is not yet available in a model tested over occasions (the "
+                             f"ladder writes the model of every occasion from factors, their items, 'covary' and "
+                             f"'uncorrelated' statements alone; see not-yet-available.md)", where,
+                             spec.source_line(where) if where is not None else None)
+    latent = set(spec.factor_names)
+    for factor in spec.factors:
+        for item in factor.indicators:
+            if item.text in latent:
+                raise ModelError(f"a higher-order factor ({factor.name.text} explains {item.text}) is not yet "
+                                 f"available in a model tested over occasions", item.location,
+                                 spec.source_line(item.location))
+
+
+def _location(found):
+    """Where a statement of the model file is, for its error (the first location its parts give)."""
+    for part in (found, *(getattr(found, "refs", ()) or ()), *(getattr(found, "items", ()) or ()),
+                 *(getattr(found, "factors", ()) or ())):
+        at = getattr(part, "location", None)
+        if at is not None:
+            return at
+    if isinstance(found, tuple) and found:
+        return _location(found[0])
+    return None
+
+
+def step_text(spec: Spec, layout: OccasionLayout, level: str) -> str:
+    """The model of every occasion side by side at ``level`` (one of :data:`invariance.LEVELS`), in the model
+    language: what the step fits, which the report and the JSON give so that it can be fitted again by ``fit``.
+    Each factor's first item is its marker (loading 1 at every occasion); from the metric level the other loadings
+    are equal across the occasions, from the scalar level every intercept, the first occasion's factor means fixed
+    at 0 and the later ones' free, from the strict level every residual variance."""
+    classes = next(c for lv, c, _ in LEVELS if lv == level)
+    n = len(layout.occasions)
+    w = written_name
+    lines = [f'name "{level} over occasions"']
+    for k in range(n):
+        for factor in spec.factors:
+            items = ", ".join(w(layout.name(i.text, k)) for i in factor.indicators)
+            lines.append(f"factor {w(layout.name(factor.name.text, k))}: {items}")
+        lines += [f"covary {w(layout.name(p.first.text, k))}, {w(layout.name(p.second.text, k))}" for p in spec.covary]
+        lines += [f"uncorrelated {w(layout.name(p.first.text, k))}, {w(layout.name(p.second.text, k))}"
+                  for p in spec.uncorrelated]
+    for item in spec.observed_names:  # each item's residuals correlated across the occasions
+        lines += [f"covary {w(layout.name(item, a))}, {w(layout.name(item, b))}"
+                  for a in range(n) for b in range(a + 1, n)]
+    if "loadings" in classes:
+        for factor in spec.factors:
+            for item in factor.indicators[1:]:
+                lines.append("equal " + ", ".join(
+                    f"loading({w(layout.name(factor.name.text, k))}, {w(layout.name(item.text, k))})"
+                    for k in range(n)))
+    if "intercepts" in classes:
+        for item in spec.observed_names:
+            lines.append("equal " + ", ".join(f"intercept({w(layout.name(item, k))})" for k in range(n)))
+        lines += [f"free mean({w(layout.name(f, k))})" for k in range(1, n) for f in spec.factor_names]
+    if "residuals" in classes:
+        for item in spec.observed_names:
+            lines.append("equal " + ", ".join(f"variance({w(layout.name(item, k))})" for k in range(n)))
+    return "\n".join(lines) + "\n"
+
+
+def _chosen(id_column: str, occasion_column: str):
+    """The columns of other roles than items (data.matching.chosen_columns): the id and the occasion column."""
+    from cfa_tool.data.matching import chosen_columns
+
+    chosen = chosen_columns(None, id_column)
+    chosen[occasion_column] = "the occasion column"
+    return chosen
+
+
+def _occasion_order(values: pd.Series, column: str, given: Sequence[str] | None, source: str) -> list:
+    """The occasions in order: as ``given`` (their labels, data.row_ids.id_text), else numbers from the smallest;
+    occasions named by text without a given order are an error (the first occasion is the origin of the means, and
+    no order of words can be guessed: 'pre', 'post', 'follow-up')."""
+    distinct = list(dict.fromkeys(values.tolist()))
+    if given is not None:
+        by_label = {id_text(v): v for v in distinct}
+        wanted = [str(g) for g in given]
+        unknown = [g for g in wanted if g not in by_label]
+        left = [label for label in by_label if label not in wanted]
+        if unknown or left or len(set(wanted)) < len(wanted):
+            raise OptionError(f"the order of the occasions names each occasion of '{column}' in {shown_path(source)} "
+                              f"once ({', '.join(by_label)})"
+                              + (f"; not among them: {', '.join(unknown)}" if unknown else "")
+                              + (f"; left out: {', '.join(left)}" if left else ""))
+        return [by_label[g] for g in wanted]
+    values = [v if isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool)
+              else number(str(v)) for v in distinct]  # numbers, or text that reads as one (a column read as text)
+    if all(v is not None for v in values):
+        return [d for _, d in sorted(zip(values, distinct), key=lambda pair: pair[0])]
+    raise OptionError(f"the occasions of '{column}' are named by text ({cut_list([id_text(v) for v in distinct], 5)}), "
+                      f"whose order cannot be read from the data: give it ({Option.OCCASION_ORDER} with the occasions in "
+                      f"their order, comma-separated, the first first)")
+
+
+def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, occasion_column: str,
+                   source: str, order: Sequence[str] | None = None) -> tuple[pd.DataFrame, OccasionLayout, list[str]]:
+    """Rows of one person and occasion set side by side, one row per person (by ``id_column``), each item's column at
+    the k-th occasion named by the layout; people missing at an occasion have gaps there.  Errors: a row without an
+    id or an occasion, fewer than 2 or more than OCCASIONS_AT_MOST occasions, an id given twice at one occasion
+    (naming them), an item without an answer at some occasion."""
+    for column, what in ((id_column, "id"), (occasion_column, "occasion")):
+        empty = frame[column].isna().to_numpy()
+        if empty.any():
+            rows = [str(int(i) + 1) for i in frame.index[empty]]  # as a spreadsheet shows them (moments.file_rows_index)
+            many = "s" if empty.sum() > 1 else ""
+            raise DataError(f"{shown_path(source)}: column '{column}' gives no {what} in "
+                            f"{count_text(int(empty.sum()))} row{many} (row{many} {cut_list(rows, 5)}); each row needs "
+                            f"a person's id and an occasion")
+    order = _occasion_order(frame[occasion_column], occasion_column, order, source)
+    if not 2 <= len(order) <= OCCASIONS_AT_MOST:
+        raise DataError(f"{shown_path(source)}: column '{occasion_column}' holds {count_text(len(order))} occasion"
+                        f"{'s' if len(order) != 1 else ''}; invariance over occasions needs 2 to {OCCASIONS_AT_MOST}")
+    labels = [id_text(v) for v in order]  # as ids are read: wave 2.0 of a column with gaps is 2
+    if len(set(labels)) < len(labels):
+        raise DataError(f"{shown_path(source)}: column '{occasion_column}' holds occasions that read alike "
+                        f"({', '.join(labels)}); give each occasion one value")
+    ids = frame[id_column].map(id_text)  # the one rule of an id's text (data.row_ids)
+    twice = frame.assign(_id=ids).duplicated(["_id", occasion_column], keep=False).to_numpy()
+    if twice.any():
+        pairs = list(dict.fromkeys(f"'{i}' at {id_text(o)}" for i, o in zip(ids[twice], frame[occasion_column][twice])))
+        raise DataError(f"{shown_path(source)}: the id column '{id_column}' gives one id to several rows of one "
+                        f"occasion of '{occasion_column}' ({cut_list(pairs, 5)}); each person answers once per "
+                        f"occasion: remove the repeated rows or tell them apart")
+    endings = tuple(f"_{label}" for label in labels)
+    layout = OccasionLayout(tuple(labels), endings)
+    people = list(dict.fromkeys(ids.tolist()))
+    wide = pd.DataFrame({id_column: people})
+    for k, value in enumerate(order):
+        at = frame[occasion_column] == value
+        part = frame.loc[at, list(items)].set_axis(ids[at].tolist())
+        for item in items:
+            answered = part[item].notna().any()
+            if not answered:
+                raise DataError(f"{shown_path(source)}: item '{item}' has no answer at occasion {labels[k]} of "
+                                f"'{occasion_column}': every occasion needs the same items")
+            wide[layout.name(item, k)] = part[item].reindex(people).to_numpy()
+    clash = set(wide.columns[1:]) & {id_column}
+    if clash or len(set(wide.columns)) < len(wide.columns):
+        raise DataError(f"{shown_path(source)}: the items' names with the occasions' endings clash with each other or "
+                        f"with the id column; rename the items or the occasions")
+    counts = [int((frame[occasion_column] == v).sum()) for v in order]
+    notes = [f"Rows set side by side by '{id_column}': {count_text(len(frame))} rows of "
+             f"{count_text(len(people))} people at {len(order)} occasions of '{occasion_column}' ("
+             + ", ".join(f"{lab}: {count_text(c)}" for lab, c in zip(labels, counts)) + ")"
+             + (f"; {count_text(len(people) * len(order) - len(frame))} occasions of people missing there are gaps, "
+                f"kept by full-information ML" if len(frame) < len(people) * len(order) else "") + "."]
+    return wide, layout, notes
+
+
+@dataclass(frozen=True, eq=False)
+class OccasionsResult(Presentable):
+    """The invariance ladder over occasions of the same people, in one group."""
+
+    occasion_column: str | None  # long form: the column telling the occasions apart; None for wide form
+    id_column: str | None
+    layout: OccasionLayout
+    steps: tuple[InvarianceStep, ...]
+    texts: tuple[str, ...]  # each step's model of every occasion, as fitted (step_text)
+    alpha: float
+    rule: DecisionRule
+    warnings: tuple[str, ...]
+    notes: tuple[str, ...]
+    data_problems: tuple = ()
+    latent_changes: tuple[LatentDifference, ...] = ()  # each later occasion's factor mean and variance vs the first
+    latent_note: str = ""
+    people: int = 0
+    #: rows with gaps were fitted by full-information ML (what the normal-theory score tests then assume)
+    gaps_by_full_information: bool = False
+    freed: tuple = ()  # no partial search over occasions yet (not-yet-available.md)
+
+    @property
+    def occasions(self) -> tuple[str, ...]:
+        return self.layout.occasions
+
+    @property
+    def score_tests(self) -> ScoreTests:
+        """The score tests of the steps' equalities: robust with a robust test, normal-theory otherwise (the ladder
+        across groups' rule, workflows.invariance.InvarianceResult.score_tests)."""
+        return ScoreTests.NORMAL if self.steps[0].result.robust is None else ScoreTests.ROBUST
+
+    @property
+    def score_tests_assume_mcar(self) -> bool:
+        """Whether the score tests rest on the patterns' expected information (normal-theory ones with rows with
+        gaps), as across groups (workflows.invariance.InvarianceResult.score_tests_assume_mcar)."""
+        return self.score_tests is ScoreTests.NORMAL and self.gaps_by_full_information
+
+    def at_occasion(self, name: str) -> tuple[str, str]:
+        """A name of the model of every occasion as (the one-occasion model's name, its occasion): 'vig3_2' is
+        ('vig3', '2'); by the longest ending it has."""
+        k = max((k for k, e in enumerate(self.layout.endings) if name.endswith(e)),
+                key=lambda k: len(self.layout.endings[k]))
+        return name[:len(name) - len(self.layout.endings[k])], self.layout.occasions[k]
+
+    def to_dict(self) -> dict:
+        return {
+            "warnings": [str(w) for w in self.warnings],
+            "data_problems": [p.to_dict() for p in self.data_problems],
+            "notes": [str(x) for x in self.notes],
+            "over_occasions": True,
+            "occasion_column": self.occasion_column,
+            "id_column": self.id_column,
+            "occasions": [{"occasion": o, "column_ending": e} for o, e in zip(self.layout.occasions,
+                                                                            self.layout.endings)],
+            "people": self.people,
+            "alpha": self.alpha,
+            "decision_rule": {"name": self.rule.value, "description": self.rule.description},
+            "steps": [{**s.to_dict(), "model": text} for s, text in zip(self.steps, self.texts)],
+            "latent_changes": [clean({**d.to_dict(), "occasion": d.group, "group": None,
+                                      "reference_occasion": self.layout.occasions[0]}) for d in self.latent_changes],
+            "latent_changes_note": self.latent_note,
+            "score_tests": {"name": self.score_tests.value, "description": self.score_tests.phrase,
+                            "assume_missing_completely_at_random": self.score_tests_assume_mcar},
+        }
+
+
+def _latent_changes(steps: Sequence[InvarianceStep], spec: Spec,
+                    layout: OccasionLayout) -> tuple[tuple[LatentDifference, ...], str]:
+    """Each later occasion's factor means and variances against the first occasion's (mean 0), from the scalar
+    model, when the metric and scalar steps held; d: the change over the pooled latent standard deviation of the two
+    occasions (the same people, so equal sizes); else none, with the reason."""
+    scalar = next((s for s in steps if s.level == "scalar"), None)
+    if scalar is None:
+        return (), "No latent mean changes: the ladder did not reach the scalar step."
+    if any(not s.holds for s in steps if s.level in ("metric", "scalar")):
+        return (), ("No latent mean changes: the scalar step (or the metric step before it) did not hold, so the "
+                    "factor means of the occasions are not on a common scale.")
+    if not scalar.result.admissible:
+        return (), "No latent mean changes: the scalar model's solution is not admissible."
+    rows = {(r.kind, r.variables): r for r in scalar.result.estimates if r.kind in ("mean", "factor_variance")}
+    out = []
+    for factor in spec.factor_names:
+        first = rows.get(("factor_variance", (layout.name(factor, 0),)))
+        for k in range(1, len(layout.occasions)):
+            mean = rows.get(("mean", (layout.name(factor, k),)))
+            var = rows.get(("factor_variance", (layout.name(factor, k),)))
+            if mean is None or var is None or first is None:
+                continue
+            pooled = (first.estimate + var.estimate) / 2
+            d = mean.estimate / np.sqrt(pooled) if pooled > 0 else float("nan")
+            out.append(LatentDifference(factor, layout.occasions[k], float(mean.estimate), float(mean.se),
+                                        tuple(mean.ci95), float(mean.p_value), float(d), float(var.estimate),
+                                        float(var.se), float(first.estimate)))
+    return tuple(out), (f"From the scalar model: each factor's mean at a later occasion against occasion "
+                        f"{layout.occasions[0]} (whose means are fixed at 0); d: the change over the pooled latent "
+                        f"standard deviation of the two occasions; Var. ratio: the factor's variance at that occasion "
+                        f"over its variance at occasion {layout.occasions[0]}.")
+
+
+def _later_entries(table, kinds: tuple[str, ...]) -> list:
+    """The entries of ``kinds`` that an equality holds to an earlier occasion's (one free parameter shared by
+    several entries: the model's 'equal' statements over the occasions), each but the first of its parameter, as the
+    candidates of the score tests of a step's equalities (assessment.modification.score_tests): releasing one frees
+    that occasion's parameter from the first occasion's."""
+    seen: set[int] = set()
+    out = []
+    for par in table.parameters:
+        if par.kind in kinds and len(par.terms) == 1:
+            index = par.terms[0][0]
+            if index in seen:
+                out.append((par.kind, par.variables, par.matrix, par.row, par.col))
+            seen.add(index)
+    return out
+
+
+def _constraint_tests(step_spec: Spec, wide: pd.DataFrame, kinds: tuple[str, ...], test: str | None) -> tuple:
+    """The score tests (largest first) of a step's equalities over the occasions: the step's model fitted again to the
+    rows compare fitted (those with some answer), its estimates the same, and each later occasion's equal entry
+    released in turn (normal-theory score tests, Sörbom 1989; with a robust test the generalized ones of Satorra
+    1989, as the ladder across groups reads them: workflows.invariance.NormalLadder.constraint_tests)."""
+    from dataclasses import replace
+
+    from cfa_tool.assessment.modification import score_tests
+    from cfa_tool.assessment.robust_scores import robust_score_tests
+    from cfa_tool.pipeline.continuous import estimate
+    from cfa_tool.pipeline.inputs import make_options, moments_for
+
+    answered = wide[list(step_spec.observed_names)].notna().to_numpy().any(axis=1)
+    options = replace(make_options({"missing": MissingData.FULL_INFORMATION.value, "test": test}),
+                      diagnostics=False)
+    groups, _ = moments_for(step_spec, wide.loc[answered], "the occasions side by side", None, None,
+                            MissingData.FULL_INFORMATION)
+    est = estimate(step_spec, groups, options)
+    found = score_tests(est.model, est.theta, est.likelihood, [_later_entries(est.table, kinds)])
+    if test is not None:
+        found = robust_score_tests(found, est.model, est.theta, est.likelihood)
+    return tuple(sorted(found, key=lambda c: -c.index))
+
+
+def _ladder_test(tests, restricted: str, general: str):
+    """The one difference test of a step against the one before among compare's tests of the pair, by the ladder's
+    rule (workflows.nesting.scaled_difference): with robust fits the scaled difference (Satorra & Bentler 2001), or
+    its strictly positive version (2010) when the 2001 correction is not positive; else the likelihood-ratio
+    difference.  None when compare found the pair not nested."""
+    pair = [t for t in tests if t.restricted == restricted and t.general == general]
+    for method in (DifferenceMethod.SATORRA_BENTLER_2001, DifferenceMethod.SATORRA_BENTLER_2010):
+        scaled = next((t for t in pair if t.method is method and not t.not_computed), None)
+        if scaled is not None:
+            return scaled
+    return next((t for t in pair if t.method is DifferenceMethod.LIKELIHOOD_RATIO), None)
+
+
+def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str | Path,
+                              occasion_column: str | None = None, id_column: str | None = None,
+                              occasion_endings: Sequence[str] | None = None,
+                              occasion_order: Sequence[str] | None = None, alpha: float | None = None,
+                              decide_by: str | DecisionRule = DecisionRule.DIFFERENCE_TEST,
+                              sheet: str | None = None, names_row: int | None = None,
+                              first_data_row: int | None = None, missing_codes: tuple = (),
+                              keep: tuple[str, ...] | list[str] = (), rename=None, test: str | None = None,
+                              missing: str | None = None) -> OccasionsResult:
+    """Fit the configural, metric, scalar and strict models over occasions of the same people (one group) and test
+    each against the one before.  Long data: ``occasion_column`` and ``id_column`` (one row per person and occasion).
+    Wide data: ``occasion_endings`` ('_t1', '_t2': the item vig1 at the first occasion is the column vig1_t1), with
+    ``id_column`` optional.  ``test='robust'`` fits every step with the robust test and tests the steps by the
+    scaled difference; rows with gaps are kept by full-information ML, which the scalar step's means need."""
+    rule = check.choice(DecisionRule, decide_by, "the decision rule")
+    alpha = check.probability("alpha (the level of the difference tests)", 0.05 if alpha is None else alpha)
+    if missing is not None and MissingData(missing) is MissingData.LISTWISE:
+        raise OptionError(f"over occasions every step is fitted by full-information ML, which the means of the scalar "
+                          f"step need in one group and which keeps a person missing at one occasion; "
+                          f"{Option.INCOMPLETE_ROWS.given('listwise')} cannot apply")
+    if (occasion_column is None) == (occasion_endings is None):
+        raise OptionError("invariance over occasions needs either the column that tells the occasions apart (long "
+                          "data, with the id column) or the endings of each occasion's columns (wide data), not "
+                          + ("both" if occasion_column is not None else "neither"))
+    spec = load_spec(model)
+    _refuse_statements(spec)
+    reading = dict(names_row=names_row, first_data_row=first_data_row, rename=rename)
+    if occasion_column is not None:
+        if not isinstance(id_column, str):
+            raise OptionError(f"long data over occasions need the id column that names each person "
+                              f"({Option.ID_COLUMN.given('COLUMN')}), to set each person's occasions side by side")
+        _, loaded, read_notes = read_inputs_with_notes(spec, data, sheet, missing_codes, keep,
+                                                       (id_column, occasion_column), keeps_gaps=True,
+                                                       chosen=_chosen(id_column, occasion_column), **reading)
+        for column in (occasion_column, id_column):
+            if column not in loaded.frame.columns:
+                raise DataError(f"{shown_path(loaded.source)}: no column '{column}'")
+        wide, layout, shaped = wide_from_long(loaded.frame, spec.observed_names, id_column, occasion_column,
+                                              loaded.source, occasion_order)
+        # the cautions on the rows of the long file, named by its rows and each row by its person and occasion (an id
+        # repeats once per occasion by design, and no id twice at one occasion is left: wide_from_long), not those of
+        # the rows set side by side, which no file holds
+        frame = loaded.frame
+        ids = ids_by_row_number(frame[id_column].map(id_text) + " at " + frame[occasion_column].map(id_text), frame)
+        long_problems = data_problems(analysed_odd_values(loaded, spec, None), spec, ids=ids, id_column=id_column)
+    else:
+        if occasion_order is not None:  # the endings' order is the occasions' order
+            raise OptionError(f"the endings of wide data give the occasions' order ({Option.OCCASION_ORDER} is for "
+                              f"long data, with {Option.OCCASION_COLUMN})")
+        endings = tuple(str(e) for e in occasion_endings)
+        if len(endings) < 2 or len(set(endings)) < len(endings) or not all(endings):
+            raise OptionError(f"wide data over occasions need two or more different column endings, one per "
+                              f"occasion, not {', '.join(repr(e) for e in endings) or 'none'}")
+        layout = OccasionLayout(tuple(e.strip("_ .-") or e for e in endings), endings)
+        wide_source = f"{spec.source} (every item at every occasion)"
+        wide_spec = parse_model(step_text(spec, layout, "configural"), wide_source)
+        try:
+            _, loaded, read_notes = read_inputs_with_notes(wide_spec, data, sheet, missing_codes, keep,
+                                                           (id_column,) if isinstance(id_column, str) else (),
+                                                           keeps_gaps=True, **reading)
+        except ModelError as error:  # a column of the model of every occasion, not a line of the user's file
+            if error.location is None or error.location.source != wide_source:
+                raise
+            raise DataError(f"wide data over occasions need a column for every item at every occasion (the item's "
+                            f"name with the ending of the occasion: {', '.join(endings)}): {error.message}") from None
+        wide, shaped, long_problems = loaded.frame, [], None
+    texts = tuple(step_text(spec, layout, level) for level, _, _ in LEVELS)
+    specs = [parse_model(text, f"{spec.source} ({level} over occasions)") for text, (level, _, _) in zip(texts, LEVELS)]
+    from cfa_tool.workflows.compare import compare
+
+    found = compare(specs, wide, test=test, missing=MissingData.FULL_INFORMATION.value, id_column=id_column)
+    steps: list[InvarianceStep] = []
+    for k, ((level, _, _), result) in enumerate(zip(LEVELS, found.results)):
+        previous = steps[-1] if steps else None
+        test_k = None if previous is None else _ladder_test(found.tests, found.names[k], found.names[k - 1])
+        if not result.converged or (previous is not None and test_k is None):
+            steps.append(InvarianceStep(level, result, test_k, False, (), any(not s.holds for s in steps)))
+            break
+        not_judged = unjudged(rule, (level, result), (previous.level, previous.result) if previous else None)
+        untested = test_k is not None and test_k.df_difference == 0
+        holds = bool(result.admissible and not untested and not not_judged and (
+            configural_fits(result) if test_k is None else
+            _step_holds(rule, test_k, alpha, result, previous.result, level)))
+        srmr = None if previous is None else result.fit.srmr - previous.result.fit.srmr
+        kinds = next(added for lv, _, added in LEVELS if lv == level)
+        # the sources of a step's misfit: the score tests of its equalities where it did not hold (the ladder's rule)
+        culprits = (_constraint_tests(specs[k], wide, kinds, test) if kinds and not holds and result.admissible
+                    and not untested else ())
+        steps.append(InvarianceStep(level, result, test_k, holds, culprits, any(not s.holds for s in steps),
+                                    delta_srmr=srmr, unjudged=not_judged))
+    problems = tuple(found.problems) if long_problems is None else tuple(long_problems)
+    warnings: list[str] = []  # the steps' impossible solutions first, in the ladder's order, then the data's
+    for step in steps:
+        if step.result.converged and not step.result.admissible:
+            warnings.append(f"the {step.level} model's solution is not admissible ("
+                            + "; ".join(p.phrase() for p in step.result.problems if p.kind.inadmissible)
+                            + "): its fit and its difference test cannot show that invariance holds")
+        elif not step.result.converged:
+            warnings.append(f"the {step.level} model did not converge ({step.result.message}); the ladder stops "
+                            f"there")
+    warnings += [p.line() for p in problems]
+    if steps[0].result.admissible and steps[0].result.converged and not steps[0].holds and not steps[0].unjudged:
+        warnings.insert(0, "the configural model does not fit by the guide values (" + _judged(_fit_values(
+            steps[0].result)) + "): every later step compares models that already misfit, so its test says little "
+            "about invariance; first find out why the model misfits (fit it at each occasion alone and read the "
+            "modification indices and residuals), then test invariance")
+    elif any(s.conditional for s in steps):
+        first = next(s for s in steps if not s.holds)
+        why = ("was not admissible" if first.result.converged and not first.result.admissible else
+               f"could not be judged ({first.unjudged})" if first.unjudged else "did not hold")
+        warnings.insert(0, f"the {first.level} step {why}, so the steps after it compare models that already fail "
+                           f"it; they are marked as conditional on a rejected step")
+    changes, note = _latent_changes(steps, spec, layout)
+    gaps = bool(wide[list(specs[0].observed_names)].isna().to_numpy().any())
+    return OccasionsResult(occasion_column, id_column, layout, tuple(steps), texts[:len(steps)], alpha, rule,
+                           tuple(warnings), tuple(read_notes) + tuple(shaped) + tuple(found.notes),
+                           problems, changes, note, len(wide), gaps)
+
+
+#: the keywords of :func:`invariance_over_occasions`
+OCCASIONS_KEYWORDS = own_keywords(invariance_over_occasions)

@@ -1,0 +1,234 @@
+"""The invariance ladder over occasions of the same people (workflows.occasions): each step against the same model
+written by hand as a wide model and fitted by the tool's own compare (chi-squares equal to 1e-6); simulated people
+with a known population (fixed seeds) where metric invariance holds and scalar invariance fails, and where both
+hold, the latent mean change then recovered; long and wide data alike; gaps by full-information ML; the errors."""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from cfa_tool.errors import DataError, ModelError, OptionError
+from cfa_tool.workflows.compare import compare
+from cfa_tool.workflows.occasions import invariance_over_occasions
+
+ONE_OCCASION = "factor vigour: vig1, vig2, vig3, vig4\n"
+LOADINGS = np.array([1.0, 0.8, 0.9, 0.7])
+INTERCEPTS = np.array([3.0, 3.2, 2.9, 3.1])
+MEAN_CHANGE = 0.3  # the population's factor mean at the second occasion (the first's is 0)
+
+
+def people(n: int, seed: int, intercept_shift=(0.0, 0.0, 0.0, 0.0)) -> pd.DataFrame:
+    """Long data of ``n`` people at waves 1 and 2 from a known population: loadings equal at both waves, factor
+    variances 1 and 1.2 correlated .6 (covariance .66), residual variances .4 with covariance .1 across the waves,
+    intercepts equal but for ``intercept_shift`` at wave 2, factor mean 0 and MEAN_CHANGE."""
+    rng = np.random.default_rng(seed)
+    cov = np.array([[1.0, 0.66], [0.66, 1.2]])
+    eta = rng.multivariate_normal([0.0, MEAN_CHANGE], cov, size=n)
+    residual = 0.4 * np.eye(8)
+    for i in range(4):
+        residual[i, i + 4] = residual[i + 4, i] = 0.1
+    e = rng.multivariate_normal(np.zeros(8), residual, size=n)
+    first = INTERCEPTS + eta[:, [0]] * LOADINGS + e[:, :4]
+    second = INTERCEPTS + np.asarray(intercept_shift) + eta[:, [1]] * LOADINGS + e[:, 4:]
+    rows = [{"person_id": f"p{i:04d}", "wave": w, **{f"vig{j + 1}": x[j] for j in range(4)}}
+            for i in range(n) for w, x in ((1, first[i]), (2, second[i]))]
+    return pd.DataFrame(rows)
+
+
+def widened(long: pd.DataFrame) -> pd.DataFrame:
+    """The long data side by side, written here by pandas alone: vig1_t1 ... vig4_t2."""
+    wide = long.pivot(index="person_id", columns="wave", values=[f"vig{j}" for j in range(1, 5)])
+    wide.columns = [f"{item}_t{wave}" for item, wave in wide.columns]
+    return wide.reset_index()
+
+
+#: the steps written by hand as wide models (the recipe docs/commands.md gave before the command existed)
+BASE = """factor vigour_t1: vig1_t1, vig2_t1, vig3_t1, vig4_t1
+factor vigour_t2: vig1_t2, vig2_t2, vig3_t2, vig4_t2
+covary vig1_t1, vig1_t2
+covary vig2_t1, vig2_t2
+covary vig3_t1, vig3_t2
+covary vig4_t1, vig4_t2
+"""
+METRIC = """equal loading(vigour_t1, vig2_t1), loading(vigour_t2, vig2_t2)
+equal loading(vigour_t1, vig3_t1), loading(vigour_t2, vig3_t2)
+equal loading(vigour_t1, vig4_t1), loading(vigour_t2, vig4_t2)
+"""
+SCALAR = """equal intercept(vig1_t1), intercept(vig1_t2)
+equal intercept(vig2_t1), intercept(vig2_t2)
+equal intercept(vig3_t1), intercept(vig3_t2)
+equal intercept(vig4_t1), intercept(vig4_t2)
+free mean(vigour_t2)
+"""
+STRICT = """equal variance(vig1_t1), variance(vig1_t2)
+equal variance(vig2_t1), variance(vig2_t2)
+equal variance(vig3_t1), variance(vig3_t2)
+equal variance(vig4_t1), variance(vig4_t2)
+"""
+BY_HAND = ['name "c"\n' + BASE, 'name "m"\n' + BASE + METRIC, 'name "s"\n' + BASE + METRIC + SCALAR,
+           'name "r"\n' + BASE + METRIC + SCALAR + STRICT]
+
+
+@pytest.fixture(scope="module")
+def scalar_fails():
+    """Population: loadings equal, the intercept of vig3 higher by .5 at wave 2 (metric holds, scalar fails)."""
+    long = people(500, 20261205, (0.0, 0.0, 0.5, 0.0))
+    return long, invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="person_id")
+
+
+def test_metric_holds_and_scalar_fails_in_a_known_population(scalar_fails):
+    _, result = scalar_fails
+    held = {s.level: s.holds for s in result.steps}
+    # the population (people()): loadings equal across the waves, one intercept shifted by .5 residual SDs
+    assert held["configural"] and held["metric"]
+    assert not held["scalar"]
+    scalar = next(s for s in result.steps if s.level == "scalar")
+    assert scalar.versus_previous.p_value < 0.001 and scalar.versus_previous.df_difference == 3
+    assert result.latent_changes == () and "did not hold" in result.latent_note
+    # the score tests of the scalar step's equalities point first to the intercept the population shifted (vig3)
+    top = scalar.culprits[0]
+    assert (top.kind, top.variables) == ("intercept", ("vig3_2",))
+    assert result.at_occasion("vig3_2") == ("vig3", "2")
+    from cfa_tool.reporting.reports import report_of
+
+    said = " ".join(str(n) for n in report_of(result).notes)
+    assert "Likeliest sources of misfit at the scalar step" in said and "the intercept of vig3 at occasion 2" in said
+
+
+def test_each_step_equals_the_wide_model_written_by_hand(scalar_fails):
+    long, result = scalar_fails
+    by_hand = compare(BY_HAND, widened(long), missing="full-information")
+    for step, own in zip(result.steps, by_hand.results):
+        assert step.result.fit.chi_square == pytest.approx(own.fit.chi_square, abs=1e-6)
+        assert step.result.fit.df == own.fit.df
+    # dfs of the hand-written models: 44 moments (8 means, 36 covariances) less 25, 22, 19 (18 with the mean), 15
+    assert [s.result.fit.df for s in result.steps] == [15, 18, 21, 25]
+
+
+def test_wide_data_give_the_long_data_ladder(scalar_fails):
+    long, result = scalar_fails
+    wide = invariance_over_occasions(ONE_OCCASION, widened(long), occasion_endings=("_t1", "_t2"),
+                                     id_column="person_id")
+    assert [s.result.fit.chi_square for s in wide.steps] == pytest.approx(
+        [s.result.fit.chi_square for s in result.steps], abs=1e-6)
+    assert wide.occasions == ("t1", "t2")
+
+
+def test_latent_mean_change_when_scalar_holds():
+    long = people(600, 9)  # one draw (seed 9) of the population
+    result = invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="person_id")
+    assert all(s.holds for s in result.steps if s.level in ("configural", "metric", "scalar"))
+    (change,) = result.latent_changes
+    # population: mean change MEAN_CHANGE (people()); its 95% interval covers it, and the variance ratio 1.2
+    assert change.ci95[0] < MEAN_CHANGE < change.ci95[1]
+    assert change.variance_ratio == pytest.approx(1.2, abs=0.25)
+    assert change.group == "2" and change.factor == "vigour"
+    payload = result.to_dict()
+    assert payload["latent_changes"][0]["occasion"] == "2"
+    assert "free mean(vigour_2)" in payload["steps"][2]["model"]
+
+
+def test_a_person_missing_at_one_occasion_is_kept_by_full_information():
+    long = people(300, 11)
+    gone = long[~((long["wave"] == 2) & long["person_id"].isin([f"p{i:04d}" for i in range(40)]))]
+    result = invariance_over_occasions(ONE_OCCASION, gone, occasion_column="wave", id_column="person_id")
+    assert result.steps[0].result.n_obs == 300  # every person, 40 of them with the second wave missing
+    by_hand = compare(BY_HAND[:2], widened(gone), missing="full-information")
+    for step, own in zip(result.steps, by_hand.results):
+        assert step.result.fit.chi_square == pytest.approx(own.fit.chi_square, abs=1e-6)
+    assert any("gaps" in n for n in result.notes)
+
+
+def test_an_id_twice_at_one_occasion_is_an_error_naming_it():
+    long = people(50, 3)
+    twice = pd.concat([long, long.iloc[[2]]], ignore_index=True)
+    with pytest.raises(DataError, match=r"'p0001' at 1"):
+        invariance_over_occasions(ONE_OCCASION, twice, occasion_column="wave", id_column="person_id")
+
+
+def test_an_item_unanswered_at_one_occasion_is_an_error():
+    long = people(50, 3)
+    long.loc[long["wave"] == 2, "vig4"] = np.nan
+    with pytest.raises(DataError, match=r"vig4.*occasion 2.*same items"):
+        invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="person_id")
+
+
+def test_wide_data_without_an_occasions_column_is_an_error_naming_it():
+    wide = widened(people(50, 3)).drop(columns=["vig4_t2"])
+    with pytest.raises(DataError, match="vig4_t2"):
+        invariance_over_occasions(ONE_OCCASION, wide, occasion_endings=("_t1", "_t2"))
+
+
+@pytest.mark.parametrize("statement", ["ordinal vig1, vig2, vig3, vig4", "fix loading(vigour, vig2) = 1"])
+def test_statements_not_yet_available_are_errors_at_their_line(statement):
+    with pytest.raises(ModelError, match="not yet available"):
+        invariance_over_occasions(ONE_OCCASION + statement + "\n", people(50, 3), occasion_column="wave",
+                                  id_column="person_id")
+
+
+def test_listwise_and_missing_id_are_errors():
+    long = people(50, 3)
+    with pytest.raises(OptionError, match="full-information"):
+        invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="person_id",
+                                  missing="listwise")
+    with pytest.raises(OptionError, match="id column"):
+        invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave")
+
+
+def test_every_view_says_over_time_and_problems_first(scalar_fails, tmp_path):
+    from cfa_tool.reporting.reports import report_of
+
+    _, result = scalar_fails
+    report = report_of(result)
+    assert "over time" in report.paragraph and "same people" in report.paragraph
+    assert "the scalar step did not hold" in report.paragraph
+    assert report.notice is not None and "scalar step did not hold" in str(report.notice.lines[0])
+    assert json.loads(json.dumps(result.to_dict()))["over_occasions"] is True
+
+
+def test_robust_steps_are_the_scaled_differences_of_the_wide_models(scalar_fails):
+    from cfa_tool.method import DifferenceMethod
+
+    long, _ = scalar_fails
+    result = invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="person_id",
+                                       test="robust")
+    by_hand = compare(BY_HAND, widened(long), missing="full-information", test="robust")
+    for k, step in enumerate(result.steps[1:], start=1):
+        scaled = next(t for t in by_hand.tests if t.restricted == by_hand.names[k]
+                      and t.general == by_hand.names[k - 1] and t.method is DifferenceMethod.SATORRA_BENTLER_2001)
+        # the ladder's rule (nesting.scaled_difference): the 2001 scaled difference where its correction is positive
+        assert step.versus_previous.method is DifferenceMethod.SATORRA_BENTLER_2001
+        assert step.versus_previous.chi_square_difference == pytest.approx(scaled.chi_square_difference, abs=1e-6)
+
+
+def test_occasions_named_by_text_need_their_order():
+    long = people(200, 5)
+    named = long.assign(wave=long["wave"].map({1: "before", 2: "after"}))
+    with pytest.raises(OptionError, match=r"named by text \(before, after\)"):
+        invariance_over_occasions(ONE_OCCASION, named, occasion_column="wave", id_column="person_id")
+    ordered = invariance_over_occasions(ONE_OCCASION, named, occasion_column="wave", id_column="person_id",
+                                        occasion_order=["before", "after"])
+    numbered = invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="person_id")
+    # the same people and waves, named by words in their order: the same ladder
+    assert ordered.occasions == ("before", "after")
+    assert [s.result.fit.chi_square for s in ordered.steps] == pytest.approx(
+        [s.result.fit.chi_square for s in numbered.steps], abs=1e-6)
+
+
+def test_the_long_files_rows_are_named_and_its_ids_repeat_by_design(tmp_path):
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    long = people(150, 13)
+    long.loc[[10, 11, 250], "vig2"] = 99  # a missing-value code read as an answer, in three rows of the long file
+    path = tmp_path / "waves.csv"
+    long.to_csv(path, index=False)
+    result = invariance_over_occasions(ONE_OCCASION, path, occasion_column="wave", id_column="person_id")
+    kinds = {p.kind for p in result.data_problems}
+    # each id once per wave is the design of long data, not a caution; the code's rows are the file's (header row 1)
+    assert ProblemKind.REPEATED_IDS not in kinds
+    said = " ".join(str(w) for w in result.warnings)
+    assert "value 99" in said and "rows 12, 13, 252" in said
