@@ -165,17 +165,18 @@ class BoundaryReading(str, Enum):
     about twice as often as its level, the usual chi-square about at it; with a bound holding the parameter, the
     reverse."""
 
-    #: one parameter on the boundary, held inside it by a bound of the general model ('bound variance(x) >= 0' for a
-    #: variance the restricted model fixes at 0; a covariance bounded at +/-1 between two variances fixed at 1),
-    #: every parameter identified: the 50:50 mixture (Self & Liang 1987)
+    #: exactly one parameter on the boundary held inside it by a bound of the general model ('bound variance(x) >= 0'
+    #: for a variance the restricted model fixes at 0; a covariance bounded at +/-1 between two variances fixed at 1),
+    #: any others there unbounded, every parameter identified: the 50:50 mixture (Self & Liang 1987: one parameter on
+    #: the boundary beside interior ones; checked by simulation for three factors merged, one correlation bounded)
     MIXTURE = "50:50 mixture"
     #: parameters on the boundary, none held inside it by a bound, every parameter identified: the usual chi-square
     #: (Savalei & Kolenikov 2008; with several such parameters too: under unconstrained estimation each lies inside
     #: the space the search moves in, checked by simulation for three factors merged into one)
     CHI_SQUARE = "usual chi-square"
-    #: several parameters on the boundary with a bound holding some of them (a mixture whose weights depend on the
+    #: two or more parameters on the boundary held inside it by bounds (a mixture whose weights depend on the
     #: model), or loadings the restricted model leaves unidentified (a factor left out, fewer factors than an
-    #: exploratory block): no chi-square reading is exact
+    #: exploratory block): no chi-square reading is exact; the p-value printed is the usual chi-square's, read as rough
     APPROXIMATE = "approximate"
 
 
@@ -285,9 +286,15 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
 
     The reading (:class:`BoundaryReading`), every parameter identified: the usual chi-square where no bound of the
     general model holds a parameter on the boundary inside it (unconstrained estimation, however many parameters;
-    Savalei & Kolenikov 2008); the 50:50 mixture where one parameter lies there and the general model's bound holds
+    Savalei & Kolenikov 2008); the 50:50 mixture where the general model's bound holds exactly one of them inside
     it (a variance bounded '>= 0'; the correlation of two factors or of a covariance between two variances fixed
-    at 1, bounded at 1); no exact reading otherwise (several parameters with bounds holding some of them)."""
+    at 1, bounded at 1), whatever the others on the boundary, which the estimation leaves free to pass it (three
+    factors merged with one of their three correlations bounded at 1: the space the search moves in is a half-space
+    at the restricted model, so the difference is the 50:50 mixture of chi-square(df - 1) and chi-square(df); Self &
+    Liang 1987, one parameter on the boundary beside interior ones); no exact reading where bounds hold two or more
+    (a mixture whose weights depend on the angles between the bounds in the model's information; Shapiro 1985,
+    recalled from memory) or loadings are left unidentified: the usual chi-square's p-value is then printed, marked
+    as rough."""
     parts: list[str] = []
     on_boundary, identified, held = 0, True, 0
     items_r, items_g = _first_order_items(restricted_spec), _first_order_items(general_spec)
@@ -354,7 +361,7 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
                                       -1.0 if e.standardized < 0 else 1.0)
     if not parts:
         return Boundary()
-    if not identified or (held and on_boundary != 1):
+    if not identified or held > 1:
         return Boundary(tuple(parts), BoundaryReading.APPROXIMATE)
     return Boundary(tuple(parts), BoundaryReading.MIXTURE if held else BoundaryReading.CHI_SQUARE)
 
