@@ -32,7 +32,7 @@ from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.nested_power_report import boundary_words, nested_parts
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
 from cfa_tool.workflows.invariance import CONFIGURAL_INDICES
-from cfa_tool.workflows.nesting import BoundaryReading, heavy_tails_caution, rejects
+from cfa_tool.workflows.nesting import REJECTED_RESTRICTION, BoundaryReading, heavy_tails_caution, rejects
 from cfa_tool.workflows.power import effective_shown
 
 SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
@@ -445,9 +445,10 @@ def comparison_report(comparison) -> Report:
                  f"is not admissible: that is no reason to prefer it." for name, indices in lowest.items()]
     cautions = [p.line() for p in comparison.problems]  # the data's, first
     cautions += _design_caution_lines(named) + _caution_lines(named)
-    if comparison.heavy_tails and any(rejects(t) for t in comparison.tests):  # normal-theory differences over
-        # heavy-tailed answers, a rejection among them (without one: a note on the tests' calibration, below)
-        cautions.append(heavy_tails_caution(comparison.heavy_tails, "a restriction the difference test rejects"))
+    heavy = comparison.heavy_tails_cautioned  # those without a caution of their own (nesting.tails_said_once)
+    if heavy and any(rejects(t) for t in comparison.tests):  # normal-theory differences over heavy-tailed answers,
+        # a rejection among them (without one: a note on the tests' calibration, below)
+        cautions.append(heavy_tails_caution(heavy, REJECTED_RESTRICTION))
     full_information = comparison.missing is MissingData.FULL_INFORMATION
     pairwise = comparison.missing is MissingData.PAIRWISE
     if full_information or pairwise:
@@ -564,8 +565,8 @@ def comparison_report(comparison) -> Report:
                              values=(value_names, values)))
         if boundary:
             explained.setdefault(not marked, key)
-    if comparison.heavy_tails and not any(rejects(t) for t in comparison.tests):
-        notes.append(heavy_tails_caution(comparison.heavy_tails, None))
+    if heavy and not any(rejects(t) for t in comparison.tests):
+        notes.append(heavy_tails_caution(heavy, None))
     if any(t.method is DifferenceMethod.SATORRA_BENTLER_2010 and not t.not_computed for t in comparison.tests):
         notes.append(READ_POSITIVE)
     for n in comparison.not_nested:

@@ -28,7 +28,7 @@ from cfa_tool.pipeline.results import FitResult, clean
 NESTING_TOLERANCE = 1e-7  # minimum discrepancy below which the implied moments count as reproduced
 
 
-def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None
+def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None, items: str = ""
                         ) -> tuple[tuple[str, ...], tuple[str, ...], tuple[tuple[str | None, object], ...]]:
     """The groups (``labels``; None: one group of rows) whose answers are heavier-tailed than normal by Mardia's
     (1970) kurtosis test at .05, each said with its z: 'group south (z = 12.3)', or 'these rows (z = 12.3)' for one
@@ -40,7 +40,9 @@ def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None
     answered)' (hostile trial s23b: with a gap in every row the complete rows were too few and the caution vanished);
     the groups where even that cannot be computed are said apart, as (found, not judged, judged), the last each
     judged group's (label, or None for one group of rows; assessment.normality.Normality), from which a comparison or
-    a ladder cautions on answers far from normal as fit does (assessment.admissibility.non_normal_problems)."""
+    a ladder cautions on answers far from normal as fit does (assessment.admissibility.non_normal_problems).
+    ``items``: which items were judged, after the rows' words ('on the items of one and two'), where a comparison's
+    models hold different items and each set is judged apart."""
     from cfa_tool.assessment.normality import kurtosis_with_gaps, mardia
     from cfa_tool.errors import EstimationError
     from cfa_tool.language.names import written_group
@@ -50,7 +52,8 @@ def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None
         rows = getattr(m, "rows", None)
         if rows is None:
             continue
-        where = "these rows" if labels is None else f"group {written_group(labels[k], labels)}"
+        where = ("these rows" if labels is None else f"group {written_group(labels[k], labels)}") + (
+            f" {items}" if items else "")
         gaps = np.isnan(rows).any(axis=1)
         how = ", each row on the items it answered" if gaps.any() else ""
         try:
@@ -67,6 +70,31 @@ def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None
         if n.kurtosis_p_value < 0.05 and n.kurtosis_z > 0:
             found.append(f"{where} (z = {n.kurtosis_z:.1f}{how})")
     return tuple(found), tuple(unjudged), tuple(judged)
+
+
+#: what a comparison's difference tests decided when one rejected a restriction (the cautions on heavy tails)
+REJECTED_RESTRICTION = "a restriction the difference test rejects"
+
+
+def tails_said_once(heavy: tuple[str, ...], judged, tails: tuple, decided: str | None
+                    ) -> tuple[tuple[str, ...], tuple]:
+    """The heavy tails of :func:`heavy_tailed_groups` said once (fixleft s26: a comparison and a ladder said them
+    twice, as the caution on answers far from normal, ``tails`` (assessment.admissibility.non_normal_problems of
+    ``judged``), and again as the caution on the difference tests): the groups with a caution of their own among
+    ``tails`` leave ``heavy``, and that caution says what the tails do to the differences, with ``decided`` (words:
+    'a step that did not hold'; None: no test rejected) as :func:`heavy_tails_caution` says it.  Returns (the groups
+    left for :func:`heavy_tails_caution`, ``tails`` with the differences said)."""
+    covered = {p.group for p in tails if p.value > 1.0}  # heavier tails than normal ones (a ratio above 1)
+    if not covered:
+        return heavy, tails
+    flagged = [label for label, n in judged if n.kurtosis_p_value < 0.05 and n.kurtosis_z > 0]  # heavy's order
+    left = tuple(h for h, label in zip(heavy, flagged) if label not in covered)
+    differences = (f" The chi-square differences inherit it, so {decided} may be an artefact of these tails."
+                   if decided is not None else
+                   " The chi-square differences inherit it; no test rejected a restriction here, so no decision "
+                   "rests on that.")
+    return left, tuple(replace(p, explanation=p.explanation + differences) if p.group in covered and p.value > 1.0
+                       else p for p in tails)
 
 
 #: the one rule of what heavy tails do to the tests, which the caution and the note on tails not judged both say
