@@ -109,8 +109,8 @@ DECIMAL = re.compile(r"[-\u2212]?\d*\.\d+")
 
 
 def test_no_table_file_holds_numbers_rounded_for_reading(comma_file):
-    """fixleft s26: explore's loadings, factor correlations and eigenvalues and scores' quality, correlation and
-    keyed-sum tables had no numbers for the files (ReportTable.values), so their CSV files held the rounded text of
+    """fixleft s26: explore's loadings, factor correlations and eigenvalues, scores' quality, correlation and
+    keyed-sum tables and align's tables of items, groups and its Monte Carlo check had no numbers for the files (ReportTable.values), so their CSV files held the rounded text of
     the printed views, '.82' written ',82': a spreadsheet reads two decimals of a loading, not the loading.  Every
     table with a decimal number in a number column now gives its values; swept over every command of the sweep
     above, and the files of explore and scores checked against the JSON's figures, in the data file's mark."""
@@ -119,7 +119,8 @@ def test_no_table_file_holds_numbers_rounded_for_reading(comma_file):
     three.write_text((resource_dir("models") / "rider_three_factors.cfa").read_text())
     one.write_text((resource_dir("models") / "rider_one_factor.cfa").read_text())
     rounded = []
-    for name, argv in COMMANDS.items():
+    aligned = {"align": lambda d, m, o: ["align", m, "--data", d, "--group-column", "district", "--trials", 20]}
+    for name, argv in {**COMMANDS, **aligned}.items():
         saved = folder / f"rounded_{name}.json"
         data.with_name("scores.csv").unlink(missing_ok=True)  # the earlier sweep's scores file, which no run replaces
         _run([*argv(data, three, one), "--json", saved])
