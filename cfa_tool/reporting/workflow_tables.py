@@ -412,9 +412,8 @@ def boundary_note(tests, explained: str | None = None, criteria: bool = True, or
         df = sorted({t.df_difference for t in tests if not t.not_computed})
         reading = ("Its distribution depends on the model here (two or more parameters on the boundary held inside "
                    "it by bounds, or loadings that the restricted model leaves undefined), so no exact p-value is "
-                   f"given: the {shown} marked * {'is' if computed == 1 else 'are'} the usual chi-square's with "
-                   f"{' or '.join(str(d) for d in df)} df, not corrected for the boundary; read "
-                   f"{'it' if computed == 1 else 'them'} as rough{weigh}.")
+                   f"given: read the {shown} marked * (the usual chi-square's with {' or '.join(str(d) for d in df)} "
+                   f"df, not corrected for the boundary) as rough{weigh}.")
     return f"* On the boundary: {what}: {BOUNDARY_CAUTION}. {reading}"
 
 

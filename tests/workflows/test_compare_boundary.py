@@ -419,4 +419,5 @@ def test_three_factors_merged_with_one_correlation_bounded_read_the_mixture():
     assert both.boundary_reading is BoundaryReading.APPROXIMATE and np.isnan(both.boundary_p_value)
     note = next(x for x in comparison_report(compare([one, three + "bound covariance(a, c) <= 1\n"], rows)).tables
                 if x.key.startswith("difference_tests")).note
-    assert "the p-value marked * is the usual chi-square's with 3 df, not corrected for the boundary" in said(note)
+    assert ("read the p-value marked * (the usual chi-square's with 3 df, not corrected for the boundary) as rough"
+            in said(note))
