@@ -1271,7 +1271,7 @@ def poor_fit_problems(read) -> tuple[Problem, ...]:
                     "interpreting the estimates; a model changed because of these data needs new data to confirm it."),)
 
 
-def non_normal_problems(judged: Sequence[tuple[str | None, object]], robust, method) -> tuple[Problem, ...]:
+def non_normal_problems(judged: Sequence[tuple[str | None, object]], robust, method, where: str = "") -> tuple[Problem, ...]:
     """A caution for each group (``judged``: its label, None for one group of rows, and its answers'
     assessment.normality.Normality, or None where not computed) whose answers' tails depart from normal ones enough
     to matter (assessment.normality.departs_materially), in a fit whose chi-square and standard errors assume normal
@@ -1279,7 +1279,8 @@ def non_normal_problems(judged: Sequence[tuple[str | None, object]], robust, met
     ordinal items (``method``: method.FitMethod), whose least squares assume no normal answers.  The remedy is named:
     the scaled test and robust standard errors (with missing-data helpers, with which they are not offered, a fit
     without the helpers).  Fit, compare and invariance give it alike (s25: a kurtosis z of 131 was a note under the
-    fit table)."""
+    fit table).  ``where``: the rows or items judged, after 'The answers' (' of the calibration sample (a.csv)',
+    ' on the items of models one and two'), where a report judges several sets of them."""
     from cfa_tool.assessment.normality import (NORMALIZED_KURTOSIS_BOUND, RELATIVE_KURTOSIS_BOUND,
                                                departs_materially)
 
@@ -1298,7 +1299,7 @@ def non_normal_problems(judged: Sequence[tuple[str | None, object]], robust, met
                   "so it passes models that misfit more often than its level says, and the standard errors tend to be "
                   "too large")
         explanation = (
-            f"The answers depart from multivariate normality: their tails are {'heavier' if heavy else 'lighter'} than "
+            f"The answers{where} depart from multivariate normality: their tails are {'heavier' if heavy else 'lighter'} than "
             f"normal ones, with Mardia's multivariate kurtosis {n.kurtosis:.1f} where normal answers give "
             f"{n.kurtosis_expected:.1f}, {ratio:.2f} times as much (z = {n.kurtosis_z:.1f}; Mardia 1970{each}). Under "
             f"such tails a normal-theory chi-square is about {ratio:.2f} times its value under normality (for "

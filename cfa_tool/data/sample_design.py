@@ -457,19 +457,22 @@ class SampleDesign:
         return f"{where}: {FEW_CLUSTERS_WORDS}, so p-values near the chosen level are less certain than they look."
 
 
-def planned_clusters_caution(clusters: int, free: int | None = None) -> str | None:
+def planned_clusters_caution(clusters: int, free: int | None = None, head: str = "") -> str | None:
     """The caution of a power plan whose cluster sample has only ``clusters`` clusters (workflows.power.ClusterPlan;
     None from :data:`SMALL_NUMBER_OF_CLUSTERS` on), in the words of a fit's design (:data:`FEW_CLUSTERS_WORDS`,
     :meth:`SampleDesign.caution`): the fit of such a sample tests less surely than the plan, a test of independent rows
     by the design effect alone, assumes; with no more clusters than the model's ``free`` parameters, its design-based
-    test of fit is unreliable (Cameron & Miller 2015, recalled from memory, as the fit's caution cites it)."""
+    test of fit is unreliable (Cameron & Miller 2015, recalled from memory, as the fit's caution cites it).  ``head``:
+    the plans concerned and their clusters in words, where a plan has several samples (the N asked about and the
+    smallest N), in place of 'The plan's cluster sample has only N clusters'; ``clusters`` is then the fewest."""
     if clusters >= SMALL_NUMBER_OF_CLUSTERS:
         return None
     joint = (f"; with no more clusters than the model's {free} free parameters, the design-based test of fit, a test "
              f"of many parameters at once, is unreliable (Cameron & Miller, 2015)" if free is not None and
              clusters <= free else "")
-    return (f"The plan's cluster sample has only {clusters} cluster{'s' if clusters != 1 else ''}: {FEW_CLUSTERS_WORDS}, "
-            f"so its fit would reject more often than the power and the sample size planned here assume{joint}.")
+    head = head or f"The plan's cluster sample has only {clusters} cluster{'s' if clusters != 1 else ''}"
+    return (f"{head}: {FEW_CLUSTERS_WORDS}, so the fit of such a sample would reject more often than the power and the sample size "
+            f"planned here assume{joint}.")
 
 
 def few_clusters_advice(ordinal: bool = False) -> str:

@@ -180,28 +180,31 @@ def item_table(result, k: int) -> ReportTable:
     factor = result.factors[k]
     by_item = {(p.item, p.kind): p for p in factor.invariance}
     shares = {(f, i): s for f, i, s in result.item_shares()}
-    rows, flagged = [], []
+    rows, flagged, numbers = [], [], []
     for n, item in enumerate(factor.items):
         loading, intercept = by_item[(item, "loading")], by_item[(item, "intercept")]
         share = shares[(factor.factor, item)]
         high = share > CAUTION_SHARE
+        differs = [_groups(result, loading.noninvariant_groups), _groups(result, intercept.noninvariant_groups)]
         rows.append([item, _percent(share) + (f" {HIGH_MARK}" if high else ""), est_num(loading.value),
-                     est_num(intercept.value), _groups(result, loading.noninvariant_groups),
-                     _groups(result, intercept.noninvariant_groups)])
+                     est_num(intercept.value), *differs])
+        numbers.append([item, share, loading.value, intercept.value, *differs])  # the files' figures as computed
         if high:
             flagged.append(n)
     two = len(result.groups) == 2
-    return _table(f"noninvariance_{k}", f"Non-invariant loadings and intercepts of {factor.factor}, by item",
-                  [("Item", "l"), ("Share", "r"), ("Loading", "r"), ("Intercept", "r"),
-                   ("Loading differs" if two else "Loading differs in", "l"),
-                   ("Intercept differs" if two else "Intercept differs in", "l")], rows,
+    columns = [("Item", "l"), ("Share", "r"), ("Loading", "r"), ("Intercept", "r"),
+               ("Loading differs" if two else "Loading differs in", "l"),
+               ("Intercept differs" if two else "Intercept differs in", "l")]
+    return _table(f"noninvariance_{k}", f"Non-invariant loadings and intercepts of {factor.factor}, by item", columns,
+                  rows,
                   "Share: the item's share of non-invariant values over groups and both parameters"
                   + (" (with two groups a flagged parameter differs between them, so it counts in both)" if two else "")
                   + f"; a share above {_percent(CAUTION_SHARE)} is marked {HIGH_MARK}. Loading and Intercept: the "
                   "average aligned value in the groups where the parameter is invariant. "
                   + ("Differs: whether the two groups' values differ" if two else "Differs in: the groups flagged")
                   + ", by pairwise Wald tests and tests against the invariant groups' average (after Asparouhov & "
-                  "Muthén 2014).", flagged=tuple(flagged))
+                  "Muthén 2014).", flagged=tuple(flagged),
+                  values=(["Item", "Share (proportion)", *(c for c, _ in columns[2:])], numbers))
 
 
 #: the mark of an item whose share of non-invariant values is above the method's authors' rule of thumb (25%)
@@ -263,12 +266,16 @@ def check_table(result) -> ReportTable | None:
     check = result.check
     if check is None:
         return None
+    trusted = {True: "yes", False: "no", None: ""}
     rows = [[c.factor, unit(c.mean_correlation), unit(c.lowest_mean_correlation), unit(c.variance_correlation),
-             unit(c.lowest_variance_correlation), num(c.mean_error), {True: "yes", False: "no", None: ""}[c.trusted]]
-            for c in check.factors]
+             unit(c.lowest_variance_correlation), num(c.mean_error), trusted[c.trusted]] for c in check.factors]
+    numbers = [[c.factor, c.mean_correlation, c.lowest_mean_correlation, c.variance_correlation,
+                c.lowest_variance_correlation, c.mean_error, trusted[c.trusted]] for c in check.factors]
+    columns = [("Factor", "l"), ("Means r", "r"), ("Lowest means r", "r"), ("Variances r", "r"),
+               ("Lowest variances r", "r"), ("RMSE of means", "r"), (f"r >= {unit(TRUSTED_CORRELATION, 2)}", "l")]
     return _table("trust_check", "Monte Carlo check of the aligned means",
-                  [("Factor", "l"), ("Means r", "r"), ("lowest", "r"), ("Variances r", "r"), ("lowest", "r"),
-                   ("RMSE of means", "r"), (f"r >= {unit(TRUSTED_CORRELATION, 2)}", "l")], rows,
+                  [c if c[0] not in ("Lowest means r", "Lowest variances r") else ("lowest", "r") for c in columns],
+                  rows,
                   f"{check.completed} of {check.trials} simulated data sets (seed {check.seed}), each group's rows drawn "
                   f"from the aligned solution with the group's size (complete rows, normal), refitted and realigned: the "
                   f"correlation over groups "
@@ -276,7 +283,8 @@ def check_table(result) -> ReportTable | None:
                   f"method's authors ask for a correlation of means of about {unit(TRUSTED_CORRELATION, 2)} or more (a "
                   f"rule of thumb)." + (" With fewer than three groups a correlation over groups is not defined."
                                          if len(result.groups) < 3 else ""),
-                  flagged=tuple(n for n, c in enumerate(check.factors) if c.trusted is False))
+                  flagged=tuple(n for n, c in enumerate(check.factors) if c.trusted is False),
+                  values=([c for c, _ in columns], numbers))
 
 
 def group_table(result) -> ReportTable:
@@ -288,7 +296,8 @@ def group_table(result) -> ReportTable:
                   "Over every item of every factor." + (" With two groups a flagged parameter differs between them, "
                                                        "so it counts in both." if len(result.groups) == 2 else ""),
                   flagged=tuple(n for n, (_, s) in enumerate(result.group_shares())
-                                                                    if s > CAUTION_SHARE))
+                                                                    if s > CAUTION_SHARE),
+                  values=(["Group", "Non-invariant (proportion)"], [[g, s] for g, s in result.group_shares()]))
 
 
 def alignment_tables(result) -> list[ReportTable]:

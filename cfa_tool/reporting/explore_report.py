@@ -70,11 +70,15 @@ def eigenvalue_table(result) -> ReportTable:
     k = min(len(pa.component_eigenvalues), SCREE_ROWS)
     rows = [[str(i + 1), num(pa.component_eigenvalues[i]), num(pa.component_reference[i]),
              num(pa.factor_eigenvalues[i]), num(pa.factor_reference[i])] for i in range(k)]
-    return _table("eigenvalues", "Eigenvalues beside those of random data",
-                  [("Position", "r"), ("Components", "r"), ("Random components, 95th percentile", "r"),
-                   ("Factors", "r"), ("Random factors, 95th percentile", "r")], rows,
+    numbers = [[i + 1, *(v[i] for v in (pa.component_eigenvalues, pa.component_reference, pa.factor_eigenvalues,
+                                         pa.factor_reference))] for i in range(k)]
+    columns = [("Position", "r"), ("Components", "r"), ("Random components, 95th percentile", "r"),
+               ("Factors", "r"), ("Random factors, 95th percentile", "r")]
+    return _table("eigenvalues", "Eigenvalues beside those of random data", columns, rows,
                   "Components: eigenvalues of the correlation matrix; factors: of the reduced matrix (squared multiple "
-                  "correlations on the diagonal). A factor counts while its eigenvalue exceeds the random one.")
+                  "correlations on the diagonal). A factor counts while its eigenvalue exceeds the random one.",
+                  values=([c for c, _ in columns], numbers))
+
 
 
 def _scaled(result) -> bool:
@@ -140,22 +144,29 @@ def loading_table(result, structure: bool = False) -> ReportTable:
     threshold = ex.draft.threshold
     errors = ex.errors.pattern[list(order)] if (not structure and ex.errors is not None
                                                 and ex.errors.unavailable is None) else None
-    rows = []
+    rows, numbers = [], []
     marked = not structure and any(result.items[k] in ex.solution.at_bound for k in order)  # a Problem column if any
     for i, k in enumerate(order):
         if errors is None:
             cells = [result.items[k]] + [est_unit(v, 2) for v in shown[i]]
+            figures = [result.items[k], *shown[i]]
         else:  # each loading with its standard error beside it
             cells = [result.items[k]] + [c for v, e in zip(shown[i], errors[i])
                                          for c in (est_unit(v, 2), est_num(e, 3) if np.isfinite(e) else "")]
+            figures = [result.items[k]] + [c for v, e in zip(shown[i], errors[i]) for c in (v, e)]
         if not structure:
-            cells += [unit(ex.communalities[k], 2)] + (["at bound" if result.items[k] in ex.solution.at_bound else ""]
-                                                       if marked else [])
+            problem = ["at bound" if result.items[k] in ex.solution.at_bound else ""] if marked else []
+            cells += [unit(ex.communalities[k], 2)] + problem
+            figures += [ex.communalities[k]] + problem
         rows.append(cells)
+        numbers.append(figures)
     cols = [("Item", "l")] + ([(n, "r") for n in names] if errors is None else
                               [c for n in names for c in ((n, "r"), ("SE", "r"))])
+    value_columns = ["Item"] + (list(names) if errors is None else
+                                [c for n in names for c in (n, f"SE of {n}")])
     if not structure:
         cols += [("Communality", "r")] + ([("Problem", "l")] if marked else [])
+        value_columns += ["Communality"] + (["Problem"] if marked else [])
     title = ("Structure loadings (correlations of items with factors)" if structure else
              "Pattern loadings" + (" (oblique rotation)" if ex.rotated.oblique else ""))
     note = (f"Items sorted by the factor of their largest loading, then by its size. Loadings below {unit(threshold, 2)} "
@@ -172,6 +183,7 @@ def loading_table(result, structure: bool = False) -> ReportTable:
     at_bound = tuple(i for i, k in enumerate(order) if result.items[k] in ex.solution.at_bound) if not structure else ()
     return ReportTable(("structure" if structure else "pattern"), title, tuple(c for c, _ in cols),
                        tuple(a for _, a in cols), tuple(tuple(r) for r in rows), note, at_bound,
+                       value_columns=tuple(value_columns), values=tuple(tuple(r) for r in numbers),
                        faint=_faint(shown, threshold) if errors is None else
                        tuple((int(i), int(1 + 2 * j)) for i, j in zip(*np.nonzero(np.abs(shown) < threshold))))
 
@@ -184,7 +196,10 @@ def factor_correlation_table(result) -> ReportTable | None:
     phi = ex.rotated.factor_correlations
     rows = [[names[i]] + [unit(phi[i, j], 2) for j in range(i)] + [""] * (len(names) - 1 - i)
             for i in range(1, len(names))]
-    return _table("factor_correlations", "Factor correlations", [("", "l")] + [(n, "r") for n in names[:-1]], rows)
+    numbers = [[names[i]] + [phi[i, j] for j in range(i)] + [None] * (len(names) - 1 - i)
+               for i in range(1, len(names))]
+    return _table("factor_correlations", "Factor correlations", [("", "l")] + [(n, "r") for n in names[:-1]], rows,
+                  values=(["Factor", *names[:-1]], numbers))
 
 
 def solution_line(result) -> str:

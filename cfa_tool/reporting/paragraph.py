@@ -1891,11 +1891,13 @@ def comparison_paragraph(comparison) -> str:
             sentence += (f" Because {label[restricted]} has {_list(list(t.boundary))}, values on the boundary of the "
                          f"parameter space of {label[general]}, the difference does not follow the usual chi-square "
                          f"distribution (Self & Liang, 1987; Stoel, Garre, Dolan, & van den Wittenboer, 2006)")
-            sentence += (f"; with one parameter on the boundary, held inside it by a bound of {label[general]}, its "
+            sentence += (f"; with one parameter on the boundary held inside it by a bound of {label[general]} (any "
+                         f"other there unbounded), its "
                          f"p-value from the 50:50 mixture of chi-square distributions with {t.df_difference - 1} and "
                          f"{t.df_difference} df is {_p(t.boundary_p_value)}."
                          if not math.isnan(t.boundary_p_value) else
-                         ", so its p-value is only approximate.")
+                         f", so its p-value, from the usual chi-square distribution with {t.df_difference} df, is "
+                         f"only approximate.")
         parts.append(sentence)
     for n in comparison.not_nested:
         after = ("; as equivalent models fit any data equally well, the data cannot choose between them, and the "

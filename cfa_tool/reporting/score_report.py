@@ -199,12 +199,14 @@ def quality_table(result, k: int) -> ReportTable:
     if ordinal:
         rows = [[name, unit(rho) + (" (below .80)" if low else ""), unit(rel)]
                 for name, rho, rel, low in zip(q.factors, q.determinacy, q.reliability, q.low_determinacy)]
+        numbers = [[name, rho, rel] for name, rho, rel in zip(q.factors, q.determinacy, q.reliability)]
         cols = [("Factor", "l"), ("Determinacy", "r"), ("Reliability", "r")]
         note = ("Posterior-mean scores in these data: reliability Var(score) / (Var(score) + mean posterior variance), the "
                 "squared correlation of the score with its factor (law of total variance); determinacy its square root.")
         if sums is not None:
             cols.append(("Item sum ω", "r"))
             rows = [row + [_omega_cell(sums, name)] for row, name in zip(rows, q.factors)]
+            numbers = [row + [_omega_of(sums, name)] for row, name in zip(numbers, q.factors)]
             note += (" Item sum ω: the reliability of the keyed sum of the answers' codes (and of the item mean, its "
                      "multiple) of rows that answered every item, from the fitted thresholds, loadings and factor "
                      "variance (Green & Yang 2009; a prorated sum of fewer items is less reliable), as the "
@@ -219,9 +221,11 @@ def quality_table(result, k: int) -> ReportTable:
             rows.append([name, unit(q.determinacy[f], 3, DETERMINACY_CAUTION)
                          + (f" (below {unit(DETERMINACY_CAUTION, 2)})" if q.low_determinacy[f] else "")]
                         + [unit(m.reliability[f]) for m in q.methods])
+        numbers = [[name, q.determinacy[f]] + [m.reliability[f] for m in q.methods] for f, name in enumerate(q.factors)]
         if sums is not None:
             cols.append(("Item sum ω", "r"))
             rows = [row + [_omega_cell(sums, name)] for row, name in zip(rows, q.factors)]
+            numbers = [row + [_omega_of(sums, name)] for row, name in zip(numbers, q.factors)]
         note = ("Determinacy: the correlation of the regression scores with their factor (Grice 2001). Then the "
                 "reliability of each method's scores (Corr.-preserving: correlation-preserving scores): the squared correlation of "
                 "the score with its factor (Beauducel 2011). Values "
@@ -237,13 +241,20 @@ def quality_table(result, k: int) -> ReportTable:
                 + _one_item_sentence(result.fit))
     title = "Quality of the scores" + _where(result, q) + ("" if ordinal else ": determinacy, and reliability by method")
     return _table(f"score_quality_{k}", title, cols, rows, note,
-                  flagged=tuple(i for i, low in enumerate(q.low_determinacy) if low))
+                  flagged=tuple(i for i, low in enumerate(q.low_determinacy) if low),
+                  values=([c for c, _ in cols], numbers))
+
+
+def _omega_of(sums, factor: str) -> float:
+    """The item sum's omega of ``factor``: the one value of the sums' table (scoring.quality.SumScore, read through
+    the item sums' summary), NaN where it has none."""
+    return dict(zip(sums.factors, sums.omega)).get(factor, float("nan"))
 
 
 def _omega_cell(sums, factor: str) -> str:
-    """The item sum's omega of ``factor`` in the quality table: the one value of the sums' table
-    (scoring.quality.SumScore, read through the item sums' summary), '—' where it has none."""
-    return _or_dash(dict(zip(sums.factors, sums.omega)).get(factor, float("nan")))
+    """The item sum's omega of ``factor`` in the quality table (:func:`_omega_of`), '—' where it has none."""
+    return _or_dash(_omega_of(sums, factor))
+
 
 
 def _precision_of(result, q) -> tuple[ScoreMethod | None, tuple]:
@@ -591,22 +602,28 @@ def correlation_table(result, k: int) -> ReportTable | None:
             return None
         rows = [[q.factors[j], q.factors[i], unit(q.factor_correlations[i, j]), unit(q.score_correlations[i, j])]
                 for i in range(len(q.factors)) for j in range(i)]
+        numbers = [[q.factors[j], q.factors[i], q.factor_correlations[i, j],
+                    q.score_correlations[i, j]] for i in range(len(q.factors)) for j in range(i)]
         return _table(f"score_correlations_{k}", "Correlations of the scores beside the factors' correlations" + _where(result, q),
                       [("Factor", "l"), ("With", "l"), ("Factors", "r"), ("Posterior means", "r")], rows,
                       "The factors' correlations under the fitted model, then those of the posterior-mean scores of "
                       "the rows scored on every factor. Posterior means shrink towards the mean, by more for rows "
-                      "that answered less, so their correlations differ from the factors'.")
-    rows = []
+                      "that answered less, so their correlations differ from the factors'.",
+                      values=(["Factor", "With", "Factors", "Posterior means"], numbers))
+    rows, numbers = [], []
     for i in range(len(q.factors)):
         for j in range(i):
             rows.append([q.factors[j], q.factors[i], unit(q.factor_correlations[i, j])]
                         + [unit(m.score_correlations[i, j]) for m in q.methods])
+            numbers.append([q.factors[j], q.factors[i], q.factor_correlations[i, j]]
+                           + [m.score_correlations[i, j] for m in q.methods])
+    cols = [("Factor", "l"), ("With", "l"), ("Factors", "r")] + [(METHOD_COLUMNS[m.method], "r") for m in q.methods]
     return _table(f"score_correlations_{k}", "Correlations of the scores beside the factors' correlations" + _where(result, q),
-                  [("Factor", "l"), ("With", "l"), ("Factors", "r")]
-                  + [(METHOD_COLUMNS[m.method], "r") for m in q.methods], rows,
+                  cols, rows,
                   "The factors' correlations, then those of each method's scores (Corr.-preserving: correlation-preserving "
                   "scores), under the fitted model. Regression scores as a rule overstate the factors' correlations; "
-                  "correlation-preserving scores keep them (Grice 2001; ten Berge et al. 1999).")
+                  "correlation-preserving scores keep them (Grice 2001; ten Berge et al. 1999).",
+                  values=([c for c, _ in cols], numbers))
 
 
 def _written_words(written: list[str], unwritten: list[str]) -> Text:
@@ -627,6 +644,7 @@ def sum_table(result, k: int) -> ReportTable | None:
     if not hasattr(q, "methods"):  # ordinal items: the sum of the answers' codes (Green & Yang 2009)
         rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), _sum_omega(s), _sum_validity(s),
                  unit(rho[s.factor])] for s in q.sums]
+        numbers = _sum_numbers(q.sums, rho)
         return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(result, q),
                       [("Factor", "l"), ("Items", "r"), ("Reversed", "l"), ("Sum omega", "r"),
                        ("Sum's r", "r"), ("Score's r", "r")], rows,
@@ -637,7 +655,7 @@ def sum_table(result, k: int) -> ReportTable | None:
                       "agreement with the factor. Sum's r: the sum's correlation with the factor under the fitted "
                       "model; score's r: the posterior-mean score's in these data (the square root of its reliability "
                       "in the quality table); the two show what the simpler score loses." + _withheld_sentence(result, q)
-                      + _one_item_sentence(result.fit))
+                      + _one_item_sentence(result.fit), values=(SUM_COLUMNS, numbers))
     rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), _sum_omega(s), _sum_validity(s),
              unit(rho[s.factor])] for s in q.sums]
     return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(result, q),
@@ -647,7 +665,17 @@ def sum_table(result, k: int) -> ReportTable | None:
                   "sum); sum omega: its reliability (McDonald 1999); sum's r and score's r: the correlations of the "
                   "sum and of the regression score with the factor under the fitted model, which show what the "
                   "simpler score loses against the factor score." + _withheld_sentence(result, q)
-                  + _one_item_sentence(result.fit))
+                  + _one_item_sentence(result.fit), values=(SUM_COLUMNS, _sum_numbers(q.sums, rho)))
+
+
+#: the columns of the keyed sums' table as its data file holds them (:func:`sum_table`)
+SUM_COLUMNS = ["Factor", "Items", "Reversed", "Sum omega", "Sum's r", "Score's r"]
+
+
+def _sum_numbers(sums, rho: dict) -> list[list]:
+    """The keyed sums' table as numbers (:func:`sum_table`): empty where a cell shows '—'."""
+    return [[s.factor, len(s.items), ", ".join(s.reversed_items), s.omega,
+             s.validity if s.omega == s.omega else float("nan"), rho[s.factor]] for s in sums]
 
 
 def _sum_omega(s) -> str:

@@ -7,7 +7,7 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
-from cfa_tool.numbers import cut_list, user_number, count_text
+from cfa_tool.numbers import count_text, counted, cut_list, user_number
 from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATED, ProblemKind, design_cautions, design_doubts, failure_words,
                                                not_admissible_sentence)
@@ -32,7 +32,8 @@ from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.nested_power_report import boundary_words, nested_parts
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
 from cfa_tool.workflows.invariance import CONFIGURAL_INDICES
-from cfa_tool.workflows.nesting import BoundaryReading, heavy_tails_caution, rejects
+from cfa_tool.workflows.nesting import REJECTED_RESTRICTION, BoundaryReading, heavy_tails_caution, rejects
+from cfa_tool.workflows.power import effective_shown
 
 SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
 CHECK_SOLUTIONS = "Check before interpreting these solutions"  # the cautions of several models' solutions
@@ -398,8 +399,8 @@ def boundary_note(tests, explained: str | None = None, criteria: bool = True, or
         if explained is not None:
             return Note((f"* On the boundary: {what}; see the note under ", TableReference(explained),
                          f". The 50:50 mixture gives {found}{approximate}{read}"))
-        reading = (f"With one parameter on the boundary, which the general model's bound holds inside it, the "
-                   f"difference follows the 50:50 mixture of chi-square distributions with "
+        reading = (f"With one parameter on the boundary held inside it by a bound of the general model (any other "
+                   f"there unbounded, free to pass it), the difference follows the 50:50 mixture of chi-square distributions with "
                    f"{mixture[0].df_difference - 1} and {mixture[0].df_difference} df (Self & Liang 1987; Stram & Lee "
                    f"1994), which gives {found}{approximate}{read}")
     else:
@@ -408,9 +409,11 @@ def boundary_note(tests, explained: str | None = None, criteria: bool = True, or
                          f". No exact p-value: read the {shown} marked * as rough."))
         weigh = ("; what else decides between these models, and how rough each part is: the note after the tables"
                  if ordinal else f", and weigh the models also by their fit indices{', AIC and BIC' if criteria else ''}")
-        reading = ("Its distribution depends on the model here (several parameters on the boundary with bounds "
-                   "holding some of them, or loadings that the restricted model leaves undefined), so no exact p-value is given: read the "
-                   f"{shown} marked * as rough{weigh}.")
+        df = sorted({t.df_difference for t in tests if not t.not_computed})
+        reading = ("Its distribution depends on the model here (two or more parameters on the boundary held inside "
+                   "it by bounds, or loadings that the restricted model leaves undefined), so no exact p-value is "
+                   f"given: read the {shown} marked * (the usual chi-square's with {' or '.join(str(d) for d in df)} "
+                   f"df, not corrected for the boundary) as rough{weigh}.")
     return f"* On the boundary: {what}: {BOUNDARY_CAUTION}. {reading}"
 
 
@@ -441,9 +444,10 @@ def comparison_report(comparison) -> Report:
                  f"is not admissible: that is no reason to prefer it." for name, indices in lowest.items()]
     cautions = [p.line() for p in comparison.problems]  # the data's, first
     cautions += _design_caution_lines(named) + _caution_lines(named)
-    if comparison.heavy_tails and any(rejects(t) for t in comparison.tests):  # normal-theory differences over
-        # heavy-tailed answers, a rejection among them (without one: a note on the tests' calibration, below)
-        cautions.append(heavy_tails_caution(comparison.heavy_tails, "a restriction the difference test rejects"))
+    heavy = comparison.heavy_tails_cautioned  # those without a caution of their own (nesting.tails_said_once)
+    if heavy and any(rejects(t) for t in comparison.tests):  # normal-theory differences over heavy-tailed answers,
+        # a rejection among them (without one: a note on the tests' calibration, below)
+        cautions.append(heavy_tails_caution(heavy, REJECTED_RESTRICTION))
     full_information = comparison.missing is MissingData.FULL_INFORMATION
     pairwise = comparison.missing is MissingData.PAIRWISE
     if full_information or pairwise:
@@ -560,8 +564,8 @@ def comparison_report(comparison) -> Report:
                              values=(value_names, values)))
         if boundary:
             explained.setdefault(not marked, key)
-    if comparison.heavy_tails and not any(rejects(t) for t in comparison.tests):
-        notes.append(heavy_tails_caution(comparison.heavy_tails, None))
+    if heavy and not any(rejects(t) for t in comparison.tests):
+        notes.append(heavy_tails_caution(heavy, None))
     if any(t.method is DifferenceMethod.SATORRA_BENTLER_2010 and not t.not_computed for t in comparison.tests):
         notes.append(READ_POSITIVE)
     for n in comparison.not_nested:
@@ -1606,7 +1610,8 @@ def power_report(result) -> Report:
     notes = [power_assumptions(planned is not None)] + ([POWER_ORDINAL] if result.ordinal else [])
     below = getattr(result, "below_rows_rule", ())
     lines = (rows_rule_caution(result),) if below else ()
-    lines += planned_clusters_lines(result.clusters, getattr(result, "free_parameters", None))
+    lines += planned_clusters_lines(result.clusters, getattr(result, "free_parameters", None), result.n_obs,
+                                    result.target_power)
     notice = ProblemNotice(POWER_CAUTION, lines, False) if lines else None
     return Report(ResultKind.POWER, "Power of the RMSEA test (MacCallum, Browne & Sugawara 1996)", notice, (),
                   (table,), tuple(notes), ("RMSEA values of close and not-close fit are conventions, not laws.",))
@@ -1630,7 +1635,7 @@ def _cluster_rows(planned, effective: float | None = None, n_obs: int | None = N
                                     else " (given)"), num(planned.design_effect, 2), planned.design_effect])
     if effective is not None:
         rows.append([f"Independent rows N = {count_text(n_obs)} is worth (N / design effect, Kish 1965)",
-                     num(effective, 1), effective])
+                     count_text(effective_shown(effective)), effective])
     rows.append(["Rows needed in the cluster sample", count_text(planned.rows), planned.rows])
     if planned.clusters is not None:
         size = planned.cluster_size
@@ -1680,7 +1685,8 @@ def nested_power_report(result) -> Report:
                       ".")),) if defaulted else ()
     population = _population_of(result)
     notice = None
-    few = planned_clusters_lines(result.clusters, result.population.table.n_free if result.population else None)
+    few = planned_clusters_lines(result.clusters, result.population.table.n_free if result.population else None,
+                                 result.n_obs, result.target_power)
     if few:
         notice = ProblemNotice(POWER_CAUTION, few, False)
     if result.below_rows_rule:  # the test's N is not what estimating the model needs: first
@@ -1727,18 +1733,39 @@ def rows_rule_caution(result) -> Note:
                  "."))
 
 
-def planned_clusters_lines(planned, free: int | None) -> tuple[Note, ...]:
+def planned_clusters_lines(planned, free: int | None, n_obs: int | None = None,
+                           target: float | None = None) -> tuple[Note, ...]:
     """The caution, first, of a power plan whose cluster sample (workflows.power.ClusterPlan) has too few clusters
     (data.sample_design.planned_clusters_caution, in the words of a fit's design), with what to try: more clusters of
     fewer rows, whose design effect 1 + (m - 1) ICC is smaller too when it came from the intraclass correlation
-    (Kish 1965); () without a number of clusters or with enough."""
-    from cfa_tool.data.sample_design import planned_clusters_caution
+    (Kish 1965); () without a number of clusters or with enough.  With an N asked about (``n_obs`` rows of the
+    cluster sample, in clusters of the same size) the plan has two samples, that N's and the smallest N's for power
+    ``target``: the caution names every one with too few clusters (fixleft s26: N = 90 rows in 6 clusters passed
+    unnamed beside a smallest N of 153 clusters)."""
+    from math import ceil
+
+    from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS, planned_clusters_caution
     from cfa_tool.options import Interface, interface
 
     on_command_line = interface() is Interface.COMMAND_LINE
     if planned is None or planned.clusters is None:
         return ()
-    words = planned_clusters_caution(planned.clusters, free)
+    samples = [(planned.clusters, f"for the smallest N (power {unit(target, needed_decimals(target, fewest=2))}, "
+                                  f"{count_text(planned.rows)} rows)" if target is not None else
+                f"for the smallest N ({count_text(planned.rows)} rows)")]
+    if n_obs is not None and n_obs == planned.rows:  # one sample: the N asked about is the smallest N's
+        samples = [(planned.clusters, f"at N = {count_text(n_obs)} (the smallest N's rows too)")]
+    elif n_obs is not None:
+        samples.insert(0, (ceil(n_obs / planned.cluster_size - 1e-9), f"at N = {count_text(n_obs)}"))
+    few = [(c, where) for c, where in samples if c < SMALL_NUMBER_OF_CLUSTERS]
+    if not few:
+        return ()
+    head = ""
+    if n_obs is not None:  # two samples: say which, each with its clusters
+        head = (f"The plan's cluster sample {few[0][1]} has only {counted(few[0][0], 'cluster')}" if len(few) == 1 else
+                f"The plan's cluster samples {word_list([w for _, w in few])} have only "
+                f"{word_list([count_text(c) for c, _ in few])} clusters")
+    words = planned_clusters_caution(min(c for c, _ in few), free, head)
     if words is None:
         return ()
     lower = (", which lowers the design effect too (1 + (m - 1) ICC, Kish 1965)" if planned.intraclass is not None
@@ -1754,8 +1781,8 @@ def _sizes_judged(result) -> list[str]:
     of the cluster sample, worth 80 independent rows (N / design effect, Kish 1965)', the rows the rule judges."""
     effective = getattr(result, "effective_n", None)
     planned = getattr(result, "clusters", None) is not None
-    return [f"N = {count_text(result.n_obs)} rows of the cluster sample, worth {num(f.rows, 1)} independent rows "
-            f"(N / design effect, Kish 1965)" if effective is not None and f.rows == effective else
+    return [f"N = {count_text(result.n_obs)} rows of the cluster sample, worth {count_text(f.rows)} independent rows "
+            f"(N / design effect, Kish 1965)" if effective is not None and f.rows == effective_shown(effective) else
             f"N = {count_text(f.rows)}{' independent rows' if planned else ''}" for f in result.below_rows_rule]
 
 

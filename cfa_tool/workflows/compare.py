@@ -27,7 +27,7 @@ from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary, design_weights
 from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import EstimationError, NotIdentified, OptionError, estimation_of, printable
-from cfa_tool.numbers import cut_list
+from cfa_tool.numbers import cut_list, word_list
 from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.pipeline.continuous import (fit_moments, full_information_instead, pairwise_instead,
@@ -37,7 +37,8 @@ from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import ORDINAL_FIT_CHANGE_WHY, FitTest, MissingData
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.nesting import (DifferenceTest, boundary_of, difference_test, heavy_tailed_groups, is_nested,
-                                       tails_not_judged_note,
+                                       REJECTED_RESTRICTION, rejects, tails_not_judged_note,
+                                       tails_said_once,
                                        probably_equivalent, scaled_difference_tests, scaling_at_restricted)
 from cfa_tool.views import Presentable
 
@@ -73,6 +74,9 @@ class Comparison(Presentable):
     # with a normal-theory difference test: the groups (or 'these rows') whose answers are heavier-tailed than normal
     # (workflows.nesting.heavy_tailed_groups), cautioned first in every view
     heavy_tails: tuple[str, ...] = ()
+    # of those, the groups the caution on the difference tests names: those without a caution of their own on answers
+    # far from normal among ``problems``, which says what the tails do to the differences (nesting.tails_said_once)
+    heavy_tails_cautioned: tuple[str, ...] = ()
 
     @property
     def change_guides_apply(self) -> bool:
@@ -259,19 +263,46 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
         normal_fits = all(r.robust is None for r in results if r.converged)
         normal_theory = bool(tests) and normal_fits
-        heavy, unjudged, judged = heavy_tailed_groups([m for _, m in data_groups[0]], tuple(
-            label for label, _ in data_groups[0]) if group is not None else None) if normal_fits else ((), (), ())
+        heavy, unjudged, tails, cautioned = _tails(names, results, data_groups, group is not None, normal_fits,
+                                                   tests)
         if not normal_theory:  # no difference test: nothing rests on normal tails but the fits' own figures
-            heavy, unjudged = (), ()
+            heavy, unjudged, cautioned = (), (), ()
         if unjudged:
             notes = list(notes) + [tails_not_judged_note(unjudged)]
-        # answers far from normal under every model's normal-theory chi-square and standard errors: as fit cautions
-        tails = non_normal_problems(judged, None, results[0].method)
         return _some_estimated(_with_data_problems(Comparison(tuple(names), tuple(results), tuple(tests),
                                                               tuple(not_nested), len(complete), dropped,
                                                               fit_options.missing, tuple(notes), tails,
-                                                              without_group=without_group, heavy_tails=heavy),
+                                                              without_group=without_group, heavy_tails=heavy,
+                                                              heavy_tails_cautioned=cautioned),
                                                    loaded, specs, group, design, dropped, False, False, id_rows))
+
+
+def _tails(names, results, data_groups, grouped: bool, normal_fits: bool, tests):
+    """The answers' tails judged once for each set of items the models hold (fixleft s26: judged on the first model's
+    items alone; models of the same items, as nested ones are, share one judgement, said without naming them), by
+    Mardia's (1970) kurtosis (workflows.nesting.heavy_tailed_groups): (every group heavier-tailed than normal, the
+    groups not judged, the cautions on answers far from normal under normal-theory fits as fit gives them
+    (assessment.admissibility.non_normal_problems), and the heavy-tailed groups the caution on the difference tests
+    names: those without a caution of their own, whose caution says what the tails do to the differences instead,
+    so that nothing is said twice (workflows.nesting.tails_said_once))."""
+    if not normal_fits:
+        return (), (), (), ()
+    labels = tuple(label for label, _ in data_groups[0]) if grouped else None
+    sets: dict[tuple[str, ...], list[int]] = {}
+    for k, groups in enumerate(data_groups):
+        sets.setdefault(tuple(groups[0][1].names), []).append(k)
+    decided = REJECTED_RESTRICTION if any(rejects(t) for t in tests) else None
+    heavy, unjudged, tails, cautioned = [], [], [], []
+    for models in sets.values():
+        items = f"on the items of {word_list([names[k] for k in models])}" if len(sets) > 1 else ""
+        found, left, judged = heavy_tailed_groups([m for _, m in data_groups[models[0]]], labels, items)
+        problems = non_normal_problems(judged, None, results[0].method, f" {items}" if items else "")
+        apart, problems = tails_said_once(found, judged, problems, decided)
+        heavy += found
+        unjudged += left
+        tails += problems
+        cautioned += apart
+    return tuple(heavy), tuple(unjudged), tuple(tails), tuple(cautioned)
 
 
 def _some_estimated(found: Comparison) -> Comparison:

@@ -47,6 +47,7 @@ from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.workflows.nesting import (DifferenceTest, heavy_tailed_groups, heavy_tails_caution, scaled_difference,
+                                       tails_said_once,
                                        tails_not_judged_note)
 from cfa_tool.views import Presentable
 from cfa_tool.method import ORDINAL_FIT_CHANGE, Choice, DecisionRule, MissingData  # (declared with the other choices; imported from here too)
@@ -667,12 +668,14 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     # each group's answers far from normal under the steps' normal-theory chi-squares and standard errors: a caution
     # of the data, as fit gives it (s25)
     tails = non_normal_problems(judged, None, steps[0].result.method)
-    small = small + tuple(f"Group {written_group(p.group, labels)}: " + p.line() for p in tails)
-    if tails_unjudged:
-        notes = list(notes) + [tails_not_judged_note(tails_unjudged)]
     # a caution first only where a step did not hold (the configural model's own test included); when every step
     # held, a note on the tests' calibration
     rejected = any((not s.holds and not s.untested) or s.full_holds is False for s in steps)
+    # said once: a group with a caution of its own says there what its tails do to the differences (fixleft s26)
+    heavy, tails = tails_said_once(heavy, judged, tails, "a step that did not hold" if rejected else None)
+    small = small + tuple(f"Group {written_group(p.group, labels)}: " + p.line() for p in tails)
+    if tails_unjudged:
+        notes = list(notes) + [tails_not_judged_note(tails_unjudged)]
     if heavy and not rejected:
         notes = list(notes) + [heavy_tails_caution(heavy, None)]
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,

@@ -28,7 +28,7 @@ from cfa_tool.pipeline.results import FitResult, clean
 NESTING_TOLERANCE = 1e-7  # minimum discrepancy below which the implied moments count as reproduced
 
 
-def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None
+def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None, items: str = ""
                         ) -> tuple[tuple[str, ...], tuple[str, ...], tuple[tuple[str | None, object], ...]]:
     """The groups (``labels``; None: one group of rows) whose answers are heavier-tailed than normal by Mardia's
     (1970) kurtosis test at .05, each said with its z: 'group south (z = 12.3)', or 'these rows (z = 12.3)' for one
@@ -40,7 +40,9 @@ def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None
     answered)' (hostile trial s23b: with a gap in every row the complete rows were too few and the caution vanished);
     the groups where even that cannot be computed are said apart, as (found, not judged, judged), the last each
     judged group's (label, or None for one group of rows; assessment.normality.Normality), from which a comparison or
-    a ladder cautions on answers far from normal as fit does (assessment.admissibility.non_normal_problems)."""
+    a ladder cautions on answers far from normal as fit does (assessment.admissibility.non_normal_problems).
+    ``items``: which items were judged, after the rows' words ('on the items of one and two'), where a comparison's
+    models hold different items and each set is judged apart."""
     from cfa_tool.assessment.normality import kurtosis_with_gaps, mardia
     from cfa_tool.errors import EstimationError
     from cfa_tool.language.names import written_group
@@ -50,7 +52,8 @@ def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None
         rows = getattr(m, "rows", None)
         if rows is None:
             continue
-        where = "these rows" if labels is None else f"group {written_group(labels[k], labels)}"
+        where = ("these rows" if labels is None else f"group {written_group(labels[k], labels)}") + (
+            f" {items}" if items else "")
         gaps = np.isnan(rows).any(axis=1)
         how = ", each row on the items it answered" if gaps.any() else ""
         try:
@@ -67,6 +70,31 @@ def heavy_tailed_groups(moments: list, labels: tuple[str, ...] | None = None
         if n.kurtosis_p_value < 0.05 and n.kurtosis_z > 0:
             found.append(f"{where} (z = {n.kurtosis_z:.1f}{how})")
     return tuple(found), tuple(unjudged), tuple(judged)
+
+
+#: what a comparison's difference tests decided when one rejected a restriction (the cautions on heavy tails)
+REJECTED_RESTRICTION = "a restriction the difference test rejects"
+
+
+def tails_said_once(heavy: tuple[str, ...], judged, tails: tuple, decided: str | None
+                    ) -> tuple[tuple[str, ...], tuple]:
+    """The heavy tails of :func:`heavy_tailed_groups` said once (fixleft s26: a comparison and a ladder said them
+    twice, as the caution on answers far from normal, ``tails`` (assessment.admissibility.non_normal_problems of
+    ``judged``), and again as the caution on the difference tests): the groups with a caution of their own among
+    ``tails`` leave ``heavy``, and that caution says what the tails do to the differences, with ``decided`` (words:
+    'a step that did not hold'; None: no test rejected) as :func:`heavy_tails_caution` says it.  Returns (the groups
+    left for :func:`heavy_tails_caution`, ``tails`` with the differences said)."""
+    covered = {p.group for p in tails if p.value > 1.0}  # heavier tails than normal ones (a ratio above 1)
+    if not covered:
+        return heavy, tails
+    flagged = [label for label, n in judged if n.kurtosis_p_value < 0.05 and n.kurtosis_z > 0]  # heavy's order
+    left = tuple(h for h, label in zip(heavy, flagged) if label not in covered)
+    differences = (f" The chi-square differences inherit it, so {decided} may be an artefact of these tails."
+                   if decided is not None else
+                   " The chi-square differences inherit it; no test rejected a restriction here, so no decision "
+                   "rests on that.")
+    return left, tuple(replace(p, explanation=p.explanation + differences) if p.group in covered and p.value > 1.0
+                       else p for p in tails)
 
 
 #: the one rule of what heavy tails do to the tests, which the caution and the note on tails not judged both say
@@ -165,17 +193,18 @@ class BoundaryReading(str, Enum):
     about twice as often as its level, the usual chi-square about at it; with a bound holding the parameter, the
     reverse."""
 
-    #: one parameter on the boundary, held inside it by a bound of the general model ('bound variance(x) >= 0' for a
-    #: variance the restricted model fixes at 0; a covariance bounded at +/-1 between two variances fixed at 1),
-    #: every parameter identified: the 50:50 mixture (Self & Liang 1987)
+    #: exactly one parameter on the boundary held inside it by a bound of the general model ('bound variance(x) >= 0'
+    #: for a variance the restricted model fixes at 0; a covariance bounded at +/-1 between two variances fixed at 1),
+    #: any others there unbounded, every parameter identified: the 50:50 mixture (Self & Liang 1987: one parameter on
+    #: the boundary beside interior ones; checked by simulation for three factors merged, one correlation bounded)
     MIXTURE = "50:50 mixture"
     #: parameters on the boundary, none held inside it by a bound, every parameter identified: the usual chi-square
     #: (Savalei & Kolenikov 2008; with several such parameters too: under unconstrained estimation each lies inside
     #: the space the search moves in, checked by simulation for three factors merged into one)
     CHI_SQUARE = "usual chi-square"
-    #: several parameters on the boundary with a bound holding some of them (a mixture whose weights depend on the
+    #: two or more parameters on the boundary held inside it by bounds (a mixture whose weights depend on the
     #: model), or loadings the restricted model leaves unidentified (a factor left out, fewer factors than an
-    #: exploratory block): no chi-square reading is exact
+    #: exploratory block): no chi-square reading is exact; the p-value printed is the usual chi-square's, read as rough
     APPROXIMATE = "approximate"
 
 
@@ -285,9 +314,15 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
 
     The reading (:class:`BoundaryReading`), every parameter identified: the usual chi-square where no bound of the
     general model holds a parameter on the boundary inside it (unconstrained estimation, however many parameters;
-    Savalei & Kolenikov 2008); the 50:50 mixture where one parameter lies there and the general model's bound holds
+    Savalei & Kolenikov 2008); the 50:50 mixture where the general model's bound holds exactly one of them inside
     it (a variance bounded '>= 0'; the correlation of two factors or of a covariance between two variances fixed
-    at 1, bounded at 1); no exact reading otherwise (several parameters with bounds holding some of them)."""
+    at 1, bounded at 1), whatever the others on the boundary, which the estimation leaves free to pass it (three
+    factors merged with one of their three correlations bounded at 1: the space the search moves in is a half-space
+    at the restricted model, so the difference is the 50:50 mixture of chi-square(df - 1) and chi-square(df); Self &
+    Liang 1987, one parameter on the boundary beside interior ones); no exact reading where bounds hold two or more
+    (a mixture whose weights depend on the angles between the bounds in the model's information; Shapiro 1985,
+    recalled from memory) or loadings are left unidentified: the usual chi-square's p-value is then printed, marked
+    as rough."""
     parts: list[str] = []
     on_boundary, identified, held = 0, True, 0
     items_r, items_g = _first_order_items(restricted_spec), _first_order_items(general_spec)
@@ -354,7 +389,7 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
                                       -1.0 if e.standardized < 0 else 1.0)
     if not parts:
         return Boundary()
-    if not identified or (held and on_boundary != 1):
+    if not identified or held > 1:
         return Boundary(tuple(parts), BoundaryReading.APPROXIMATE)
     return Boundary(tuple(parts), BoundaryReading.MIXTURE if held else BoundaryReading.CHI_SQUARE)
 

@@ -88,6 +88,13 @@ def effective_rows(n_obs: int, clusters) -> float:
     return effective
 
 
+def effective_shown(rows: float) -> float:
+    """The independent rows a planned cluster sample is worth (N / design effect) as every view writes them and the
+    rule of rows per parameter judges them: to one decimal (fixleft s26: '42.19 rows for 13 parameters' in the caution
+    beside '42.2' in the table, and 13.996 judged apart from a smallest N of 14, naming 14 rows twice)."""
+    return round(float(rows), 1)
+
+
 def rows_rule_judged(free: int, required: int, n_obs: int | None,
                      effective: float | None = None) -> tuple[RowsPerParameter, ...]:
     """The sample sizes of a plan below the rule of rows per free parameter (assessment.admissibility
@@ -96,7 +103,7 @@ def rows_rule_judged(free: int, required: int, n_obs: int | None,
     recalled from memory), by which its power is computed too (s25: N = 200 rows under a design effect of
     2.5, worth 80 rows for 27 parameters, passed the rule as 200).  The one judgement of every plan (the RMSEA
     test's and the difference test's)."""
-    judged = (required, effective if effective is not None else n_obs)
+    judged = (required, effective_shown(effective) if effective is not None else n_obs)
     return tuple(facts for n in dict.fromkeys(judged) if n is not None for facts in rows_per_parameter((n,), (free,)))
 
 

@@ -382,7 +382,32 @@ def replicate_moments(spec: Spec, calibration: SampleMoments, validation: Sample
     test = same_solution or _impossible(_samples(cal, loose)) or _same_solution(spec, calibration, validation, cal,
                                                                                  loose, options)
     return Replication(calibration.source, validation.source, cal, loose, test, F, F_saturated,
+                       data_problems=_tails((calibration, validation), cal, loose, test),
                        rows=(sample_rows(calibration, cal), sample_rows(validation, loose)))
+
+
+def _tails(samples: tuple[SampleMoments, SampleMoments], cal: FitResult, loose: FitResult,
+           test: DifferenceTest) -> tuple:
+    """The caution on answers far from normal under normal-theory fits, as fit gives it (assessment.admissibility
+    .non_normal_problems), of each sample judged by its own rows (Mardia 1970; of rows with gaps, each on the items
+    it answered: workflows.nesting.heavy_tailed_groups), each named by its source (a half by its letter, which both
+    directions of a split share; two data frames by their parts as well), with what heavy tails do to the
+    test of one solution, a likelihood-ratio difference (nesting.tails_said_once; fixleft s26: replicate said
+    nothing of tails that fit, compare and invariance caution on).  None under the robust test."""
+    from cfa_tool.assessment.admissibility import non_normal_problems
+    from cfa_tool.workflows.nesting import heavy_tailed_groups, rejects, tails_said_once
+
+    if cal.robust is not None or loose.robust is not None or cal.method.ordinal:
+        return ()
+    decided = "the rejection of one solution by its test" if rejects(test) else None
+    alike = samples[0].source == samples[1].source  # two data frames: named by their parts
+    found: list = []
+    for moments, role in zip(samples, ("calibration", "validation")):
+        heavy, _, judged = heavy_tailed_groups([moments], None)
+        where = f" in the {role} sample ({moments.source})" if alike else f" in {moments.source}"
+        problems = non_normal_problems(judged, None, cal.method, where)
+        found += tails_said_once(heavy, judged, problems, decided)[1]
+    return tuple(found)
 
 
 def replicate_ordinal(spec: Spec, calibration, validation, method: Weighting | str = Weighting.DIAGONAL,
@@ -659,7 +684,8 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     # s25b case 05: fit, compare, invariance, scores and bootstrap named them, replicate did not)
     few = () if ordinal_items else tuple(few_category_notes(pd.concat([cal_frame, val_frame], ignore_index=True),
                                                             spec.observed_names))
-    return replace(result, calibration_result=cal, loose=loose, rows=rows, data_problems=found + left_out,
+    return replace(result, calibration_result=cal, loose=loose, rows=rows,
+                   data_problems=found + left_out + result.data_problems,  # the samples' tails last, as fit's
                    notes=tuple(dict.fromkeys([n for file_notes in notes for n in file_notes] + list(few))),
                    answer_coding=coding_record(spec))
 
@@ -762,7 +788,8 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     # which chose the rows before the split, are the split's: SplitRows names them)
     unfiltered = replace(loaded, row_filters=())
     return tuple(replace(rep, calibration_result=with_missing_reading(rep.calibration_result, unfiltered, missing_codes),
-                         loose=with_missing_reading(rep.loose, unfiltered, missing_codes), data_problems=problems,
+                         loose=with_missing_reading(rep.loose, unfiltered, missing_codes),
+                         data_problems=problems + rep.data_problems,
                          split=rows, notes=notes, answer_coding=coding_record(spec))
                  for rep in pair)
 

@@ -102,3 +102,43 @@ def test_a_table_of_text_in_a_number_column_gives_its_numbers_for_the_files(comm
                            for cell, align in zip(row, table["align"])
                            if align == "r" and cell.strip() and not NUMBER.fullmatch(cell.strip())]
     assert text_cells == []
+
+
+#: a cell of a number rounded for reading: a decimal mark with digits after it ('.82', '0.037', '3.986')
+DECIMAL = re.compile(r"[-\u2212]?\d*\.\d+")
+
+
+def test_no_table_file_holds_numbers_rounded_for_reading(comma_file):
+    """fixleft s26: explore's loadings, factor correlations and eigenvalues, scores' quality, correlation and
+    keyed-sum tables and align's tables of items, groups and its Monte Carlo check had no numbers for the files (ReportTable.values), so their CSV files held the rounded text of
+    the printed views, '.82' written ',82': a spreadsheet reads two decimals of a loading, not the loading.  Every
+    table with a decimal number in a number column now gives its values; swept over every command of the sweep
+    above, and the files of explore and scores checked against the JSON's figures, in the data file's mark."""
+    folder, data = comma_file
+    three, one = folder / "three.cfa", folder / "one.cfa"
+    three.write_text((resource_dir("models") / "rider_three_factors.cfa").read_text())
+    one.write_text((resource_dir("models") / "rider_one_factor.cfa").read_text())
+    rounded = []
+    aligned = {"align": lambda d, m, o: ["align", m, "--data", d, "--group-column", "district", "--trials", 20]}
+    for name, argv in {**COMMANDS, **aligned}.items():
+        saved = folder / f"rounded_{name}.json"
+        data.with_name("scores.csv").unlink(missing_ok=True)  # the earlier sweep's scores file, which no run replaces
+        _run([*argv(data, three, one), "--json", saved])
+        report = json.loads(saved.read_text())["report"]
+        rounded += [(name, table["key"]) for table in report["tables"] if table["values"] is None
+                    and any(align == "r" and DECIMAL.fullmatch(cell.strip())
+                            for row in table["rows"] for cell, align in zip(row, table["align"]))]
+    assert rounded == []
+    _run(["explore", "--data", data, "--replications", 20, "--factors", 3, "--tables", folder / "three_factors",
+          "--json", folder / "three_factors.json"])
+    pattern = pd.read_csv(folder / "three_factors" / "pattern.csv", sep=";", decimal=",", encoding="utf-8-sig")
+    shown = json.loads((folder / "three_factors.json").read_text())["report"]["tables"]
+    (table,) = [t for t in shown if t["key"] == "pattern"]
+    assert pattern.columns.tolist() == table["value_columns"]
+    for row, values in zip(pattern.itertuples(index=False), table["values"]):
+        assert list(row)[1:] == pytest.approx(values[1:], abs=1e-12)  # as computed, not to two decimals
+    assert any(abs(v * 100 - round(v * 100)) > 1e-6 for v in pattern.iloc[:, 1])  # more than two decimals
+    _run(["scores", three, "--data", data, "--output", folder / "scored.csv", "--tables", folder / "scored"])
+    quality = pd.read_csv(folder / "scored" / "score_quality_0.csv", sep=";", decimal=",", encoding="utf-8-sig")
+    assert pd.api.types.is_float_dtype(quality["Determinacy"])
+    assert all(abs(v * 1000 - round(v * 1000)) > 1e-9 for v in quality["Determinacy"])  # not three decimals

@@ -125,3 +125,17 @@ def test_several_parameters_on_the_boundary_without_a_bound_read_the_plain_p_val
     assert reading is BoundaryReading.CHI_SQUARE
     assert _near(read, ALPHA) and read == plain
     assert mixture > plain
+
+
+def test_three_factors_merged_with_one_correlation_bounded_read_the_mixture():
+    """Three factors merged into one, the general model bounding one of the three correlations at 1 (fixleft s26: read
+    as 'approximate' though only one parameter is held inside the boundary): the unbounded two are free to pass 1,
+    so the difference follows the 50:50 mixture of chi-square(2) and chi-square(3) (Self & Liang 1987: one parameter
+    on the boundary beside interior ones).  Measured before the change in a scratch run (400 replications, seed
+    20261210): the mixture rejected 23 (5.75%), the printed p-value 11 (2.75%)."""
+    three = ("factor a: y1, y2, y3\nfactor b: y4, y5, y6\nfactor c: y7, y8, y9\n" + BY_VARIANCE
+             + "bound covariance(a, b) <= 1\n")
+    reading, read, plain, mixture = _rejections("factor g: y1..y9\n", three, _one_factor_of_nine(), 20261210)
+    assert reading is BoundaryReading.MIXTURE
+    assert _near(read, ALPHA) and read == mixture
+    assert _near(plain, ALPHA / 2)

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import numpy as np
 import pandas as pd
+import pytest
 
 import cfa_tool
 from cfa_tool.cli import main
@@ -34,6 +35,16 @@ def _rows(heavy: bool, n: int = 600, seed: int = 20261205) -> pd.DataFrame:
     return frame
 
 
+@pytest.fixture
+def not_material(monkeypatch):
+    """Tails heavier than normal by Mardia's test but not materially so (assessment.normality.departs_materially
+    false): the caution on the difference tests alone says them (with material ones the caution on answers far from
+    normal says them, once: test_heavy_tails_are_said_once)."""
+    from cfa_tool.assessment import normality
+
+    monkeypatch.setattr(normality, "departs_materially", lambda n: False)
+
+
 def _kurtosis_z(rows: np.ndarray) -> float:
     """Mardia (1970): b2,p and its z, by hand."""
     n, p = rows.shape
@@ -43,7 +54,7 @@ def _kurtosis_z(rows: np.ndarray) -> float:
     return (np.mean(d2 ** 2) - p * (p + 2)) / np.sqrt(8 * p * (p + 2) / n)
 
 
-def test_a_ladder_over_heavy_tailed_groups_says_so_first(tmp_path, capsys):
+def test_a_ladder_over_heavy_tailed_groups_says_so_first(tmp_path, capsys, not_material):
     frame = _rows(heavy=True)
     found = cfa_tool.invariance(MODEL, frame, group="site")
     first = " ".join(str(found.warnings[-1]).split())
@@ -71,7 +82,7 @@ def test_normal_answers_get_no_such_caution():
     assert compared.heavy_tails == ()
 
 
-def test_a_comparison_over_heavy_tailed_answers_says_so_first(tmp_path, capsys):
+def test_a_comparison_over_heavy_tailed_answers_says_so_first(tmp_path, capsys, not_material):
     frame = _rows(heavy=True).drop(columns="site")
     one = "factor both: seat, clean, quiet, driver, info, punctual\n"
     compared = cfa_tool.compare([MODEL, one], frame)
@@ -95,7 +106,7 @@ def _gap_in_every_row(frame: pd.DataFrame) -> pd.DataFrame:
     return gaps
 
 
-def test_rows_with_gaps_are_judged_on_the_items_they_answered():
+def test_rows_with_gaps_are_judged_on_the_items_they_answered(not_material):
     # hostile trial s23b (02): with a gap in every row (full-information ML) there were no complete rows for Mardia's
     # kurtosis, and the tails were not judged; now each row is judged on the items it answered (Yuan, Lambert &
     # Fouladi 2004), its z the one tests/assessment/test_kurtosis_with_gaps.py checks against a direct computation
@@ -138,7 +149,7 @@ def test_tails_that_cannot_be_judged_are_said_so(monkeypatch):
     assert "could not be judged in these rows (600 of 600 rows with gaps)" in said
 
 
-def test_a_comparison_that_rejects_nothing_gets_no_caution_of_artefacts(tmp_path, capsys):
+def test_a_comparison_that_rejects_nothing_gets_no_caution_of_artefacts(tmp_path, capsys, not_material):
     # a restriction that holds (two loadings of .7 held equal), over heavy tails: no test rejected (p = .57), so
     # 'a rejected restriction may be an artefact' would describe nothing; the note says what the tails do to the p-values
     frame = _rows(heavy=True).drop(columns="site")
@@ -155,10 +166,88 @@ def test_a_comparison_that_rejects_nothing_gets_no_caution_of_artefacts(tmp_path
     assert "p-values tend to be smaller than they should be; no test rejected a restriction here" in out
 
 
-def test_a_ladder_whose_every_step_held_gets_no_caution_of_artefacts():
+def test_a_ladder_whose_every_step_held_gets_no_caution_of_artefacts(not_material):
     # the neighbour in invariance: 'a step that did not hold may be an artefact' when every step held
     found = cfa_tool.invariance(MODEL, _rows(heavy=True, n=300, seed=1), group="site")
     assert all(s.holds for s in found.steps)
     assert not any("heavier tails" in str(w) for w in found.warnings)
     notes = " ".join(" ".join(str(n).split()) for n in found.notes)
     assert "heavier tails than normal ones" in notes and "no test rejected a restriction here" in notes
+
+
+def test_heavy_tails_are_said_once(tmp_path, capsys):
+    """fixleft s26: tails far from normal were said twice in a comparison and a ladder, by the caution on answers far
+    from normal (as fit gives it) and again by the caution on the difference tests.  Now once, the first saying what
+    the tails do to the differences; the JSON's heavy_tailed_answers still lists them.  The z is Mardia's (1970),
+    by hand."""
+    frame = _rows(heavy=True).drop(columns="site")
+    one = "factor both: seat, clean, quiet, driver, info, punctual\n"
+    compared = cfa_tool.compare([MODEL, one], frame)
+    z = _kurtosis_z(frame.to_numpy())
+    assert compared.heavy_tails == (f"these rows (z = {z:.1f})",) and compared.heavy_tails_cautioned == ()
+    (tmp_path / "a.cfa").write_text(MODEL)
+    (tmp_path / "b.cfa").write_text(one)
+    frame.to_csv(tmp_path / "d.csv", index=False)
+    assert main(["compare", str(tmp_path / "a.cfa"), str(tmp_path / "b.cfa"), "--data", str(tmp_path / "d.csv")]) == 0
+    out = " ".join(capsys.readouterr().out.replace("\u2502", " ").split())  # the box's sides left out
+    box = out[:out.index("Model comparison")]
+    assert box.count("Mardia 1970") == 1 and f"z = {z:.1f}; Mardia 1970" in box
+    assert "heavier tails than normal ones (Mardia's multivariate kurtosis) in" not in out
+    assert ("The chi-square differences inherit it, so a restriction the difference test rejects may be an artefact "
+            "of these tails.") in box
+    found = cfa_tool.invariance(MODEL, _rows(heavy=True), group="site")
+    said = [" ".join(str(w).split()) for w in found.warnings]
+    assert not any("heavier tails than normal ones (Mardia's multivariate kurtosis) in" in w for w in said)
+    frame = _rows(heavy=True)
+    for label in ("harbour", "hills"):
+        z = _kurtosis_z(frame.loc[frame.site == label, list(ITEMS)].to_numpy())
+        (line,) = [w for w in said if w.startswith(f"Group {label}: The answers depart")]
+        assert f"z = {z:.1f}; Mardia 1970" in line and "so a step that did not hold may be an artefact" in line
+
+
+def test_a_comparison_judges_each_set_of_items_its_models_hold():
+    """fixleft s26: the tails were judged on the first model's items alone.  A first model of normal items beside a
+    second with heavy-tailed ones: each set judged, said with the models whose items they are (z by hand, Mardia
+    1970)."""
+    rng = np.random.default_rng(20261226)
+    frame = _rows(heavy=True).drop(columns="site")
+    normal = pd.DataFrame(rng.normal(size=(len(frame), 3)) @ np.linalg.cholesky([[1, .5, .5], [.5, 1, .5],
+                                                                                 [.5, .5, 1]]).T,
+                          columns=["calm1", "calm2", "calm3"])
+    frame = pd.concat([frame, normal], axis=1)
+    calm = "factor calm: calm1, calm2, calm3\nfactor comfort: seat, clean, quiet\n"
+    compared = cfa_tool.compare(["factor calm: calm1, calm2, calm3\n", MODEL, calm], frame)
+    z = _kurtosis_z(frame[list(ITEMS)].to_numpy())
+    lines = [" ".join(str(p.explanation).split()) for p in compared.problems
+             if "depart from multivariate normality" in str(p.explanation)]
+    assert any(line.startswith("The answers on the items of <model text> (2) depart") and f"z = {z:.1f}" in line
+               for line in lines)
+    assert not any(line.startswith("The answers on the items of <model text> depart") for line in lines)  # normal
+    assert len(lines) == 2  # the second model's items and the third's (three of them heavy-tailed)
+
+
+def test_replicate_judges_each_sample():
+    """fixleft s26: replicate said nothing of tails far from normal, which fit, compare and invariance caution on.
+    Each sample judged by its own rows (z by hand, Mardia 1970), named; random halves once each in the report,
+    though each direction of the split holds both; none under the robust test."""
+    from cfa_tool.reporting.reports import report_of
+
+    frame = _rows(heavy=True).drop(columns="site")
+    cal, val = frame.iloc[:300], frame.iloc[300:]
+    found = cfa_tool.replicate(MODEL, cal, val)
+    lines = [" ".join(str(p.explanation).split()) for p in found.data_problems
+             if "depart from multivariate normality" in str(p.explanation)]
+    assert len(lines) == 2
+    for line, role, rows in zip(lines, ("calibration", "validation"), (cal, val)):
+        assert line.startswith(f"The answers in the {role} sample (<data frame>) depart")
+        assert f"z = {_kurtosis_z(rows.to_numpy()):.1f}; Mardia 1970" in line
+    assert not cfa_tool.replicate(MODEL, cal, val, test="robust").data_problems
+    cautions = [str(c) for c in report_of(found).notice.lines]
+    assert sum("depart from multivariate normality" in c for c in cautions) == 2
+    from cfa_tool.workflows.replication import Replications
+
+    pair = cfa_tool.split_half(MODEL, frame)
+
+    halves = report_of(Replications(tuple(pair)))
+    said = [" ".join(str(c).split()) for c in halves.notice.lines if "depart from multivariate normality" in str(c)]
+    assert [s[:40] for s in said] == ["The answers in <data frame> (half A, see", "The answers in <data frame> (half B, see"]

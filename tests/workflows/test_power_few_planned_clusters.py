@@ -44,3 +44,29 @@ def test_the_fits_design_caution_says_it_in_the_same_words():
 
     assert FEW_CLUSTERS_WORDS in planned_clusters_caution(12)
     assert planned_clusters_caution(30) is None
+
+
+def test_the_caution_names_every_sample_of_the_plan_with_few_clusters():
+    # fixleft s26: N = 90 rows asked about, in clusters of 15 rows, are 6 clusters (90 / 15), yet the caution judged
+    # the smallest N's sample alone (ICC .10: deff 1 + 14 x .10 = 2.4, Kish 1965; close fit, df 51, 211 independent
+    # rows, MacCallum, Browne & Sugawara 1996, the plan's table; 211 x 2.4 = 506.4, so 507 rows in 34 clusters)
+    result = plan(51, "close", n_obs=90, variables=12, intraclass=0.10, cluster_size=15)
+    assert result.clusters.clusters == 34  # ceil(507 / 15)
+    caution = _caution(result)
+    assert "The plan's cluster sample at N = 90 has only 6 clusters: with fewer than about 30-50 clusters" in caution
+    assert "the model's 27 free parameters" in caution  # 6 clusters, no more than 27
+    # both samples few: ICC .10, 40 rows per cluster (26 clusters for the smallest N, above), N = 400 in 10
+    both = _caution(plan(51, "close", n_obs=400, variables=12, intraclass=0.10, cluster_size=40))
+    assert ("The plan's cluster samples at N = 400 and for the smallest N (power .80, 1,034 rows) have only 10 and 26 "
+            "clusters") in both
+    # the N asked about is the smallest N's rows: one sample, named once (1,034 rows in 26 clusters)
+    once = _caution(plan(51, "close", n_obs=1034, variables=12, intraclass=0.10, cluster_size=40))
+    assert "The plan's cluster sample at N = 1,034 (the smallest N's rows too) has only 26 clusters" in once
+    # the difference test's plan says it alike
+    from cfa_tool.workflows.power_nested import nested_power
+
+    two, one = "factor a: y1, y2, y3\nfactor b: y4, y5, y6\n", "factor g: y1, y2, y3, y4, y5, y6\n"
+    from cfa_tool.language.parser import parse_model
+
+    nested = _caution(nested_power(parse_model(two), parse_model(one), n_obs=100, design_effect=2.0, cluster_size=20))
+    assert "The plan's cluster samples at N = 100 and for the smallest N" in nested and "have only 5 and " in nested
