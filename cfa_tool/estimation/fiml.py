@@ -293,6 +293,8 @@ class MissingDataLikelihood:
         vc = np.concatenate([c.v for c in chunks]) if chunks else np.zeros(0, dtype=int)
         # the cross-information with the model's entries and the diagonal of H_cc, sums over the patterns
         H, own = low_rank_pair_sums(model, K, w, uc, vc)
+        if isinstance(self.model, StructuredModel) and self.model.identity_J[g]:
+            J = None  # each parameter one entry: the blocks are the cross-information with theta already
         start = 0
         for cand in chunks:
             stop = start + len(cand.u)
@@ -300,7 +302,7 @@ class MissingDataLikelihood:
             d = 2.0 * cand.c * Q[cand.u, cand.v] + sc * Vm[cand.w]
             block = H[start:stop] * cand.c[:, None] + 2.0 * np.outer(sc, s_model) * K_bar[np.ix_(cand.w, model.w)]
             h = 2.0 * cand.c ** 2 * own[start:stop] + 2.0 * sc ** 2 * K_bar[cand.w, cand.w]
-            yield d, block @ J, h
+            yield d, (block if J is None else block @ J), h
             start = stop
 
     def _mean_weight(self, theta: np.ndarray, g: int) -> np.ndarray:
@@ -565,9 +567,11 @@ def model_second_order(model: StructuredModel, g: int, mats, M: np.ndarray, mean
     return J.T @ second @ J
 
 
-#: the most bytes of one batch of :func:`low_rank_pair_sums`' p x p sums (one per model entry) or of one chunk of the
-#: patterns' products scattered into them
-PAIR_BYTES = 1 << 23
+#: the most bytes of :func:`low_rank_pair_sums`' products of the patterns' pairs of missing items for a batch of model
+#: entries (added into the entries' p x p sums by one sparse product)
+PAIR_BYTES = 1 << 25
+#: the most bytes of a chunk of the patterns' S_k = F_k' F_k that :func:`low_rank_pair_sums` makes at once
+SQUARE_BYTES = 1 << 21
 
 
 def low_rank_pair_sums(basis, K, w: np.ndarray, uc: np.ndarray, vc: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -593,20 +597,12 @@ def low_rank_pair_sums(basis, K, w: np.ndarray, uc: np.ndarray, vc: np.ndarray) 
     K0, LV = K.K0, K.LV
     p, r = LV.shape
     total_w = float(w.sum())
-    # each batch's patterns in chunks: a chunk's (k, m, m) places in a p x p matrix as a sparse sum, and C_k R_k
-    batch = max(1, min(len(cov), PAIR_BYTES // (8 * p * p)))
-    pieces = []
-    for which, miss, C in K.inverses.batches:
-        m = miss.shape[1]
-        step = max(1, PAIR_BYTES // (8 * m * max(m * batch, r)))
-        for lo in range(0, len(which), step):
-            at = miss[lo:lo + step]
-            places = (at[:, :, None] * p + at[:, None, :]).ravel()
-            spread = csr_matrix((np.ones(len(places)), (places, np.arange(len(places)))), shape=(p * p, len(places)))
-            CR = C[lo:lo + step] @ LV[at]  # (k, m, r)
-            wk = w[which[lo:lo + step]]
-            pieces.append((spread, C[lo:lo + step] * wk[:, None, None], CR, CR * wk[:, None, None]))
-    c_bar = sum((spread @ wC.ravel() for spread, wC, _, _ in pieces), np.zeros(p * p))
+    # every pattern's pairs (a, b) of missing items and their place in a p x p matrix, one sparse sum for them all
+    batches = K.inverses.batches
+    places = np.concatenate([(miss[:, :, None] * p + miss[:, None, :]).ravel() for _, miss, _ in batches]
+                            or [np.zeros(0, dtype=int)])
+    spread = csr_matrix((np.ones(len(places)), (places, np.arange(len(places)))), shape=(p * p, len(places)))
+    c_bar = spread @ np.concatenate([(C * w[which][:, None, None]).ravel() for which, _, C in batches] or [np.zeros(0)])
     G = LV.T @ c_bar.reshape(p, p) @ LV
     G = 0.5 * (G + G.T)
     # the candidates' own sums
@@ -614,7 +610,7 @@ def low_rank_pair_sums(basis, K, w: np.ndarray, uc: np.ndarray, vc: np.ndarray) 
     squares = np.zeros((r, r))
     for which, F in K.factors:
         diag[which] -= np.einsum("kmr,kmr->kr", F, F)
-        step = max(1, PAIR_BYTES // (8 * r * r))
+        step = max(1, SQUARE_BYTES // (8 * r * r))
         for lo in range(0, len(which), step):
             Fk = F[lo:lo + step]
             S = np.swapaxes(Fk, 1, 2) @ Fk
@@ -626,12 +622,20 @@ def low_rank_pair_sums(basis, K, w: np.ndarray, uc: np.ndarray, vc: np.ndarray) 
     if not len(cov) or not len(uc):
         return cross, own
     u, v = basis.u[cov], basis.v[cov]
+    CR = [(C @ LV[miss], w[which]) for which, miss, C in batches]  # C_k R_k (k, m, r) and the patterns' weights
+    batch = max(1, min(len(cov), PAIR_BYTES // (8 * max(len(places), p * p))))
+    products = np.empty(len(places) * batch)
     for start in range(0, len(cov), batch):
         part = slice(start, start + batch)
         ub, vb = u[part], v[part]
-        omega = np.zeros((p * p, len(ub)))
-        for spread, _, CR, wCR in pieces:
-            omega += spread @ (wCR[:, :, None, ub] * CR[:, None, :, vb]).reshape(-1, len(ub))
+        pairs = products[: len(places) * len(ub)].reshape(len(places), len(ub))  # w_k a_k b_k' of every pattern
+        at = 0
+        for R, wk in CR:
+            k, m, _ = R.shape
+            np.multiply((R[:, :, ub] * wk[:, None, None])[:, :, None, :], R[:, None, :, vb],
+                        out=pairs[at:at + k * m * m].reshape(k, m, m, len(ub)))
+            at += k * m * m
+        omega = spread @ pairs  # (p * p, b)
         omega = omega.T.reshape(-1, p, p)
         Z = np.matmul(LV.T, (omega.reshape(-1, p) @ LV).reshape(len(omega), p, r))  # (b, r, r)
         # the terms of K0 and G, rank two an entry
