@@ -568,7 +568,7 @@ def model_second_order(model: StructuredModel, g: int, mats, M: np.ndarray, mean
 
 
 #: the most bytes of :func:`low_rank_pair_sums`' products of the patterns' pairs of missing items for a batch of model
-#: entries (added into the entries' p x p sums by one sparse product)
+#: entries (added into each entry's p x p sum by np.bincount)
 PAIR_BYTES = 1 << 25
 #: the most bytes of a chunk of the patterns' S_k = F_k' F_k that :func:`low_rank_pair_sums` makes at once
 SQUARE_BYTES = 1 << 21
@@ -585,24 +585,22 @@ def low_rank_pair_sums(basis, K, w: np.ndarray, uc: np.ndarray, vc: np.ndarray) 
           W K0[:, u] K0[:, v]' - K0[:, u] G[:, v]' - G[:, u] K0[:, v]' + (L V)' Omega_e (L V),
       W = sum_k w_k, G = sum_k w_k S_k = (L V)' Cbar (L V) with Cbar = sum_k w_k C_k (each C_k in its items' rows and
       columns of a p x p matrix), and Omega_e = sum_k w_k a_k b_k' with a_k = C_k R_k[:, u_e], b_k = C_k R_k[:, v_e]
-      placed likewise: m^2 numbers a pattern and entry added into p x p, then p^2 r + p r^2 an entry, where the
+      placed likewise: m^2 numbers a pattern and entry added into p x p (np.bincount), then p^2 r + p r^2 an entry, where the
       patterns' Z_e took r^2 a pattern and entry (5.5 billion multiply-adds at 100 items and 1,500 patterns);
     * their own, sum_k w_k (K_k[u_c, u_c] K_k[v_c, v_c] + K_k[u_c, v_c]^2) = (D' w D)[u_c, v_c] + Y[u_c, v_c], with D the
       patterns' diagonals (D[k] = diag K0 - the column sums of F_k * F_k) and Y = sum_k w_k K_k * K_k (elementwise) =
       W K0 * K0 - 2 K0 * G + sum_k w_k S_k * S_k: m r^2 a pattern (each S_k made a chunk at a time)."""
-    from scipy.sparse import csr_matrix
-
     E = len(basis.u)
     cov = np.flatnonzero(basis.c)
     K0, LV = K.K0, K.LV
     p, r = LV.shape
     total_w = float(w.sum())
-    # every pattern's pairs (a, b) of missing items and their place in a p x p matrix, one sparse sum for them all
+    # every pattern's pairs (a, b) of missing items and their place in a p x p matrix, added up by np.bincount
     batches = K.inverses.batches
     places = np.concatenate([(miss[:, :, None] * p + miss[:, None, :]).ravel() for _, miss, _ in batches]
                             or [np.zeros(0, dtype=int)])
-    spread = csr_matrix((np.ones(len(places)), (places, np.arange(len(places)))), shape=(p * p, len(places)))
-    c_bar = spread @ np.concatenate([(C * w[which][:, None, None]).ravel() for which, _, C in batches] or [np.zeros(0)])
+    c_bar = np.bincount(places, np.concatenate([(C * w[which][:, None, None]).ravel() for which, _, C in batches]
+                                               or [np.zeros(0)]), minlength=p * p)
     G = LV.T @ c_bar.reshape(p, p) @ LV
     G = 0.5 * (G + G.T)
     # the candidates' own sums
@@ -625,18 +623,21 @@ def low_rank_pair_sums(basis, K, w: np.ndarray, uc: np.ndarray, vc: np.ndarray) 
     CR = [(C @ LV[miss], w[which]) for which, miss, C in batches]  # C_k R_k (k, m, r) and the patterns' weights
     batch = max(1, min(len(cov), PAIR_BYTES // (8 * max(len(places), p * p))))
     products = np.empty(len(places) * batch)
+    sums = np.empty((batch, p * p))
     for start in range(0, len(cov), batch):
         part = slice(start, start + batch)
         ub, vb = u[part], v[part]
-        pairs = products[: len(places) * len(ub)].reshape(len(places), len(ub))  # w_k a_k b_k' of every pattern
+        b = len(ub)
+        pairs = products[: len(places) * b].reshape(b, len(places))  # w_k a_k b_k' of every pattern, an entry a row
         at = 0
         for R, wk in CR:
             k, m, _ = R.shape
-            np.multiply((R[:, :, ub] * wk[:, None, None])[:, :, None, :], R[:, None, :, vb],
-                        out=pairs[at:at + k * m * m].reshape(k, m, m, len(ub)))
+            np.multiply((R[:, :, ub] * wk[:, None, None]).transpose(2, 0, 1)[:, :, :, None],
+                        R[:, :, vb].transpose(2, 0, 1)[:, :, None, :], out=pairs[:, at:at + k * m * m].reshape(b, k, m, m))
             at += k * m * m
-        omega = spread @ pairs  # (p * p, b)
-        omega = omega.T.reshape(-1, p, p)
+        for e in range(b):  # each entry's p x p sum Omega_e
+            sums[e] = np.bincount(places, pairs[e], minlength=p * p)
+        omega = sums[:b].reshape(b, p, p)
         Z = np.matmul(LV.T, (omega.reshape(-1, p) @ LV).reshape(len(omega), p, r))  # (b, r, r)
         # the terms of K0 and G, rank two an entry
         left = np.stack([K0[:, ub], -G[:, ub]], axis=0).transpose(2, 1, 0)  # (b, r, 2)
