@@ -275,8 +275,8 @@ class MissingDataLikelihood:
         """(d, H_ct, h) of group g's candidate entries for score tests, one triple per chunk (``chunks``: their
         :class:`~cfa_tool.model.rank_two.EntryBasis`), as :meth:`cfa_tool.estimation.ml.NormalLikelihood.candidate_scores`
         gives them: the gradient, the patterns-fixed information with theta and the candidates' own, of this group's
-        discrepancy (unweighted).  With Z_e = sum_k w_k K_k[:, u_e] K_k[:, v_e]' for each model entry e (one matrix
-        product over the patterns, :func:`pattern_pair_sums`),
+        discrepancy (unweighted).  With Z_e = sum_k w_k K_k[:, u_e] K_k[:, v_e]' for each model entry e (taken in the
+        rank-m form K_k = K0 - F_k' F_k, :func:`low_rank_pair_sums`),
             H_ce = 2 c_c c_e (Z_e[u_c, v_c] + Z_e[v_c, u_c]) + 2 s_c s_e Kbar[w_c, w_e],
         with Kbar = V' (sum_k w_k A_k) V: no (p*p, p*p) weight matrix, and no candidate's p x p derivative."""
         pieces = self._rank_two_pieces(theta, g)
@@ -291,15 +291,10 @@ class MissingDataLikelihood:
         chunks = tuple(chunks)
         uc = np.concatenate([c.u for c in chunks]) if chunks else np.zeros(0, dtype=int)
         vc = np.concatenate([c.v for c in chunks]) if chunks else np.zeros(0, dtype=int)
-        H = np.zeros((len(uc), len(model.u)))
-        r = len(K.K0)
-        # sum_k w_k (K_k[u, u] K_k[v, v] + K_k[u, v]^2) of each candidate: the diagonal of H_cc, three gathers a pattern
-        own = np.zeros(len(uc))
-        for first, stop, part in K.chunks():  # the patterns' K_k a chunk at a time, every sum over them added up
-            for entries, Z in pattern_pair_sums(model, part, w[first:stop]):  # (e in a batch, r, r)
-                H[:, entries] += (Z[:, uc, vc] + Z[:, vc, uc]).T * (2.0 * model.c[entries])
-            flat = part.reshape(len(part), -1)
-            own += w[first:stop] @ (flat[:, uc * r + uc] * flat[:, vc * r + vc] + flat[:, uc * r + vc] ** 2)
+        # the cross-information with the model's entries and the diagonal of H_cc, sums over the patterns
+        H, own = low_rank_pair_sums(model, K, w, uc, vc)
+        if isinstance(self.model, StructuredModel) and self.model.identity_J[g]:
+            J = None  # each parameter one entry: the blocks are the cross-information with theta already
         start = 0
         for cand in chunks:
             stop = start + len(cand.u)
@@ -307,7 +302,7 @@ class MissingDataLikelihood:
             d = 2.0 * cand.c * Q[cand.u, cand.v] + sc * Vm[cand.w]
             block = H[start:stop] * cand.c[:, None] + 2.0 * np.outer(sc, s_model) * K_bar[np.ix_(cand.w, model.w)]
             h = 2.0 * cand.c ** 2 * own[start:stop] + 2.0 * sc ** 2 * K_bar[cand.w, cand.w]
-            yield d, block @ J, h
+            yield d, (block if J is None else block @ J), h
             start = stop
 
     def _mean_weight(self, theta: np.ndarray, g: int) -> np.ndarray:
@@ -572,18 +567,85 @@ def model_second_order(model: StructuredModel, g: int, mats, M: np.ndarray, mean
     return J.T @ second @ J
 
 
-def pattern_pair_sums(basis, K: np.ndarray, w: np.ndarray):
-    """(entries, Z) for batches of the entries of ``basis`` with a covariance part: Z[b] = sum_k w_k K_k[:, u_e]
-    K_k[:, v_e]' (r x r) for each entry e of the batch, one stacked matrix product over the patterns K_k = V' A_k V,
-    a batch taking at most :data:`BLOCK_BYTES` (the score tests' cross-information reads Z_e[u_c, v_c])."""
-    P, r, _ = K.shape
+#: the most bytes of :func:`low_rank_pair_sums`' products of the patterns' pairs of missing items for a batch of model
+#: entries (added into each entry's p x p sum by np.bincount)
+PAIR_BYTES = 1 << 25
+#: the most bytes of a chunk of the patterns' S_k = F_k' F_k that :func:`low_rank_pair_sums` makes at once
+SQUARE_BYTES = 1 << 21
+
+
+def low_rank_pair_sums(basis, K, w: np.ndarray, uc: np.ndarray, vc: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The score tests' sums over the patterns for candidates c (basis columns ``uc``, ``vc``) from the rank-m form
+    K_k = K0 - S_k of the patterns' V' A_k V (:class:`~cfa_tool.data.patterns.PatternBases` ``K``; S_k = F_k' F_k =
+    R_k' C_k R_k, R_k = (L V)_m the rows of L V at the m items pattern k misses, C_k = (L_mm)^-1), no pattern's K_k made:
+
+    * their cross-information with the entries e of ``basis``, shape (C, E) (zero for the entries without a covariance
+      part): sum_k w_k 2 c_e (K_k[u_c, u_e] K_k[v_c, v_e] + K_k[u_c, v_e] K_k[v_c, u_e]) = 2 c_e (Z_e + Z_e')[u_c, v_c]
+      with Z_e = sum_k w_k K_k[:, u_e] K_k[:, v_e]' =
+          W K0[:, u] K0[:, v]' - K0[:, u] G[:, v]' - G[:, u] K0[:, v]' + (L V)' Omega_e (L V),
+      W = sum_k w_k, G = sum_k w_k S_k = (L V)' Cbar (L V) with Cbar = sum_k w_k C_k (each C_k in its items' rows and
+      columns of a p x p matrix), and Omega_e = sum_k w_k a_k b_k' with a_k = C_k R_k[:, u_e], b_k = C_k R_k[:, v_e]
+      placed likewise: m^2 numbers a pattern and entry added into p x p (np.bincount), then p^2 r + p r^2 an entry, where the
+      patterns' Z_e took r^2 a pattern and entry (5.5 billion multiply-adds at 100 items and 1,500 patterns);
+    * their own, sum_k w_k (K_k[u_c, u_c] K_k[v_c, v_c] + K_k[u_c, v_c]^2) = (D' w D)[u_c, v_c] + Y[u_c, v_c], with D the
+      patterns' diagonals (D[k] = diag K0 - the column sums of F_k * F_k) and Y = sum_k w_k K_k * K_k (elementwise) =
+      W K0 * K0 - 2 K0 * G + sum_k w_k S_k * S_k: m r^2 a pattern (each S_k made a chunk at a time)."""
+    E = len(basis.u)
     cov = np.flatnonzero(basis.c)
-    step = max(1, BLOCK_BYTES // (8 * max(P * r, r * r)))
-    for start in range(0, len(cov), step):
-        entries = cov[start:start + step]
-        left = (K[:, :, basis.u[entries]] * w[:, None, None]).transpose(2, 1, 0)  # (b, r, P)
-        right = K[:, :, basis.v[entries]].transpose(2, 0, 1)  # (b, P, r)
-        yield entries, np.matmul(left, right)
+    K0, LV = K.K0, K.LV
+    p, r = LV.shape
+    total_w = float(w.sum())
+    # every pattern's pairs (a, b) of missing items and their place in a p x p matrix, added up by np.bincount
+    batches = K.inverses.batches
+    places = np.concatenate([(miss[:, :, None] * p + miss[:, None, :]).ravel() for _, miss, _ in batches]
+                            or [np.zeros(0, dtype=int)])
+    c_bar = np.bincount(places, np.concatenate([(C * w[which][:, None, None]).ravel() for which, _, C in batches]
+                                               or [np.zeros(0)]), minlength=p * p)
+    G = LV.T @ c_bar.reshape(p, p) @ LV
+    G = 0.5 * (G + G.T)
+    # the candidates' own sums
+    diag = np.broadcast_to(np.diagonal(K0), (len(w), r)).copy()
+    squares = np.zeros((r, r))
+    for which, F in K.factors:
+        diag[which] -= np.einsum("kmr,kmr->kr", F, F)
+        step = max(1, SQUARE_BYTES // (8 * r * r))
+        for lo in range(0, len(which), step):
+            Fk = F[lo:lo + step]
+            S = np.swapaxes(Fk, 1, 2) @ Fk
+            S *= S
+            squares += (w[which[lo:lo + step]] @ S.reshape(len(S), -1)).reshape(r, r)
+    squares += total_w * K0 * K0 - 2.0 * K0 * G
+    own = ((diag * w[:, None]).T @ diag + squares)[uc, vc]
+    cross = np.zeros((len(uc), E))
+    if not len(cov) or not len(uc):
+        return cross, own
+    u, v = basis.u[cov], basis.v[cov]
+    CR = [(C @ LV[miss], w[which]) for which, miss, C in batches]  # C_k R_k (k, m, r) and the patterns' weights
+    batch = max(1, min(len(cov), PAIR_BYTES // (8 * max(len(places), p * p))))
+    products = np.empty(len(places) * batch)
+    sums = np.empty((batch, p * p))
+    for start in range(0, len(cov), batch):
+        part = slice(start, start + batch)
+        ub, vb = u[part], v[part]
+        b = len(ub)
+        pairs = products[: len(places) * b].reshape(b, len(places))  # w_k a_k b_k' of every pattern, an entry a row
+        at = 0
+        for R, wk in CR:
+            k, m, _ = R.shape
+            np.multiply((R[:, :, ub] * wk[:, None, None]).transpose(2, 0, 1)[:, :, :, None],
+                        R[:, :, vb].transpose(2, 0, 1)[:, :, None, :], out=pairs[:, at:at + k * m * m].reshape(b, k, m, m))
+            at += k * m * m
+        for e in range(b):  # each entry's p x p sum Omega_e
+            sums[e] = np.bincount(places, pairs[e], minlength=p * p)
+        omega = sums[:b].reshape(b, p, p)
+        Z = np.matmul(LV.T, (omega.reshape(-1, p) @ LV).reshape(len(omega), p, r))  # (b, r, r)
+        # the terms of K0 and G, rank two an entry
+        left = np.stack([K0[:, ub], -G[:, ub]], axis=0).transpose(2, 1, 0)  # (b, r, 2)
+        right = np.stack([total_w * K0[:, vb] - G[:, vb], K0[:, vb]], axis=0).transpose(2, 0, 1)  # (b, 2, r)
+        Z += left @ right
+        cross[:, cov[part]] = (Z[:, uc, vc] + Z[:, vc, uc]).T
+    cross[:, cov] *= 2.0 * basis.c[cov]
+    return cross, own
 
 
 #: the most bytes of the products of one chunk of patterns :func:`low_rank_trace_sum` makes at once: small enough for

@@ -104,8 +104,8 @@ def test_a_fit_with_gaps_makes_no_weight_matrix_of_the_patterns(monkeypatch):
 @pytest.mark.parametrize("model, group", [(ONE_GROUP, None), (HIGHER_ORDER, None), (TWO_GROUPS, "site")],
                          ids=["means-equal-covary", "higher-order", "two-groups"])
 def test_the_score_tests_from_rank_two_gathers_are_the_general_ones(monkeypatch, model, group):
-    # modification indices with gaps: the candidates' cross-information from one matrix product over the patterns
-    # per model entry (fiml.pattern_pair_sums), against the general route's whole derivative matrices
+    # modification indices with gaps: the candidates' cross-information in the rank-m form of the patterns' V' A_k V
+    # (fiml.low_rank_pair_sums), against the general route's whole derivative matrices
     frame = _rows(300, 44)
     if group is not None:
         frame = pd.concat([frame, _rows(300, 45, 0.3)], ignore_index=True)
