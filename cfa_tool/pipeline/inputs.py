@@ -157,6 +157,36 @@ def of_summary_statistics(result, moments, notes) -> object:
                    data=replace(result.data, not_given=moments.not_given, analysed=moments.analysed))
 
 
+def _refuse_reordered_numbers(frame: pd.DataFrame, items) -> None:
+    """An item given as an ordered categorical of numbers whose declared order is not the numbers' order
+    (categories [5, 4, 3, 2, 1], ordered: 5 the lowest answer) is refused, naming the column and how to recode it:
+    the model reads an item's numbers as its answers, and taking them in another order than the one the frame
+    declares would silently contradict it, as an ordered categorical of words is refused rather than ordered by the
+    tool (data.moments).  An unordered categorical, or one whose order is its numbers', is read by its numbers
+    (hostile trial s26, 04).  ``items``: the columns read as the model's items (None: none named yet)."""
+    if items is None:
+        return
+    for name in (x for x in items if x in frame.columns):
+        dtype = frame[name].dtype
+        if not isinstance(dtype, pd.CategoricalDtype) or not dtype.ordered:
+            continue
+        categories = dtype.categories
+        if not pd.api.types.is_numeric_dtype(categories.dtype) or categories.is_monotonic_increasing:
+            continue
+        shown = [user_number(float(c)) for c in categories]
+        recode = ", ".join(f"{c}: {i}" for i, c in enumerate(shown[:MOST_CODES_SHOWN], start=1))
+        more = ", ..." if len(shown) > MOST_CODES_SHOWN else ""
+        raise DataError(f"{DATA_FRAME}: column '{printable(str(name))}' is an ordered categorical whose declared order "
+                        f"({', '.join(shown[:MOST_CODES_SHOWN])}{more}, lowest first) is not the order of its numbers, "
+                        f"and an item's numbers are read as its answers: recode it so the numbers follow the order "
+                        f"(such as frame['{printable(str(name))}'].map({{{recode}{more}}}).astype(float)), or, if the "
+                        f"numbers are the answers, drop the declared order with .astype(float)")
+
+
+#: the categories an ordered categorical's refusal shows (and recodes in its example)
+MOST_CODES_SHOWN = 10
+
+
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               text_columns: tuple[str, ...] = (), items=None, listed=None, filters=(),
               names_row: int | None = None, names_option: Option = Option.NAMES_ROW,
@@ -184,6 +214,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             raise OptionError(f"a first row of data ({first_data_option(names_option)}) is read from a file, and the "
                               f"data are a data frame, whose rows are all data; leave it out")
         frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
+        _refuse_reordered_numbers(frame, items)
         # column names in Unicode's composed form, as a file's are read (names.composed: a column named with
         # decomposed accents is the model's name written composed; diagram-s22: "did you mean" the same name)
         names = [composed(c) if isinstance(c, str) else c for c in frame.columns]
