@@ -25,12 +25,13 @@ def _reversed(frame: pd.DataFrame, column: str) -> pd.DataFrame:
     lambda d: cfa_tool.check(MODEL, d),
     lambda d: cfa_tool.compare([MODEL, MODEL + "covary clean, temperature\n"], d),
     lambda d: cfa_tool.scores(MODEL, d),
+    lambda d: cfa_tool.fit(MODEL.replace("clean", "tidy"), d, rename={"clean": "tidy"}),
     lambda d: cfa_tool.explore(d, items=["seat_available", "clean", "temperature", "room_to_stand"], seed=1),
-], ids=["fit", "fit ordinal", "check", "compare", "scores", "explore items named"])
+], ids=["fit", "fit ordinal", "check", "compare", "scores", "explore items named", "fit renamed"])
 def test_an_item_ordered_against_its_numbers_is_refused(rider_demo, call):
     with pytest.raises(DataError) as caught:
         call(_reversed(rider_demo, "clean"))
-    message = str(caught.value)
+    message = str(caught.value)  # a renamed column by the frame's own name, which the recoding changes
     assert "column 'clean' is an ordered categorical whose declared order (5, 4, 3, 2, 1, lowest first)" in message
     assert "frame['clean'].map({5: 1, 4: 2, 3: 3, 2: 4, 1: 5}).astype(float)" in message
     assert ".astype(float)" in message
