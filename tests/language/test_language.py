@@ -220,6 +220,7 @@ def _error(text: str) -> ModelError:
         # hostile trial s26, 03: a blank name gave every report a blank title
         ('name "   "\nfactor f: a, b, c\n', 1, 6, "the model's name is blank"),
         ('factor f: a, b, c\nname ""\n', 2, 6, "the model's name is blank"),
+        ('factor f: a, b, c\nname "\u200b\u00a0"\n', 2, 6, "the model's name is blank"),  # hidden characters only
         # hostile trial s26, 02: 'covary' of two factors that covary by default changed nothing, silently
         ("factor f: a, b, c\nfactor g: d, e, h\ncovary f, g\n", 3, 8, "'f' and 'g' covary already"),
         ("factor f: a, b, c\nfactor g: d, e, h\nfactor k: f, g\nfactor m: i, j, l\ncovary k, m\n", 5, 8,
