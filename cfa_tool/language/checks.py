@@ -66,6 +66,7 @@ def check_spec(spec: Spec) -> None:
     _check_answers(spec)
     _check_joins(spec)
     _check_pairs(spec)
+    _check_covary_without_effect(spec)
     _check_references(spec)
     _check_contradictions(spec)
     _check_indicator_counts(spec)
@@ -326,6 +327,20 @@ def _check_pairs(spec: Spec) -> None:
     for pair in spec.uncorrelated:
         if pair.key() in covaried:
             raise _fail(spec, f"'{pair.first}' and '{pair.second}' are declared both to covary and to be uncorrelated", pair.first.location)
+
+
+def _check_covary_without_effect(spec: Spec) -> None:
+    """A 'covary' of two factors below no other factor changes nothing: their covariance is estimated by default
+    (unless 'uncorrelated' fixes it at 0, a contradiction _check_pairs refuses). As 'free' of a parameter free
+    already is refused (model.parameters._free_without_effect), so is this: the model listing shows the line and
+    a reader takes it for part of the model (hostile trial s26, 02)."""
+    exo = set(exogenous_factors(spec))
+    for pair in spec.covary:
+        a, b = pair.first.text, pair.second.text
+        if a in exo and b in exo:
+            raise _fail(spec, f"'{pair.first}' and '{pair.second}' covary already (the covariance of two factors "
+                              f"below no other factor is estimated by default), so 'covary' changes nothing; remove "
+                              f"the statement", pair.first.location)
 
 
 def all_refs(spec: Spec) -> list[ParameterRef]:

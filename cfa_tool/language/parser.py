@@ -369,6 +369,10 @@ class _Builder:
                 if title is not None:
                     raise self.error("the model already has a name; give it once", stmt)
                 title = str(stmt.children[0])[1:-1]
+                if not any(c.isprintable() and not c.isspace() for c in title):  # spaces or hidden characters
+                    # only: every report's title was blank (hostile trial s26, 03)
+                    raise self.error("the model's name is blank; write the name between the quotes, or leave out "
+                                     "the 'name' line to use the file's name", stmt.children[0])
             elif kind == "factor_stmt":
                 name = self.name(stmt.children[0])
                 factors.append(Factor(name, self.name_list(stmt.children[1])))

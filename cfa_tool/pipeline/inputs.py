@@ -159,6 +159,39 @@ def of_summary_statistics(result, moments, notes) -> object:
                    data=replace(result.data, not_given=moments.not_given, analysed=moments.analysed))
 
 
+def _refuse_reordered_numbers(frame: pd.DataFrame, items, old_names: dict[str, str]) -> None:
+    """An item given as an ordered categorical of numbers whose declared order is not the numbers' order
+    (categories [5, 4, 3, 2, 1], ordered: 5 the lowest answer) is refused, naming the column and how to recode it:
+    the model reads an item's numbers as its answers, and taking them in another order than the one the frame
+    declares would silently contradict it, as an ordered categorical of words is refused rather than ordered by the
+    tool (data.moments).  An unordered categorical, or one whose order is its numbers', is read by its numbers
+    (hostile trial s26, 04).  ``items``: the columns read as the model's items (None: none named yet), by their names
+    after a rename; ``old_names``: the frame's own name of each renamed column (new name: old), which the recoding
+    example names."""
+    if items is None:
+        return
+    for name in (x for x in items if x in frame.columns):
+        dtype = frame[name].dtype
+        if not isinstance(dtype, pd.CategoricalDtype) or not dtype.ordered:
+            continue
+        categories = dtype.categories
+        if not pd.api.types.is_numeric_dtype(categories.dtype) or categories.is_monotonic_increasing:
+            continue
+        shown = [user_number(float(c)) for c in categories]
+        recode = ", ".join(f"{c}: {i}" for i, c in enumerate(shown[:MOST_CODES_SHOWN], start=1))
+        more = ", ..." if len(shown) > MOST_CODES_SHOWN else ""
+        own = printable(str(old_names.get(name, name)))
+        raise DataError(f"{DATA_FRAME}: column '{own}' is an ordered categorical whose declared order "
+                        f"({', '.join(shown[:MOST_CODES_SHOWN])}{more}, lowest first) is not the order of its numbers, "
+                        f"and an item's numbers are read as its answers: recode it so the numbers follow the order "
+                        f"(such as frame['{own}'].map({{{recode}{more}}}).astype(float)), or, if the "
+                        f"numbers are the answers, drop the declared order with .astype(float)")
+
+
+#: the categories an ordered categorical's refusal shows (and recodes in its example)
+MOST_CODES_SHOWN = 10
+
+
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               text_columns: tuple[str, ...] = (), items=None, listed=None, filters=(),
               names_row: int | None = None, names_option: Option = Option.NAMES_ROW,
@@ -192,6 +225,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         if names != list(frame.columns):  # set anew only when a name changes (set_axis copies the frame, every fit)
             frame = frame.set_axis(names, axis=1)
         frame = renamed_frame(frame, renames, DATA_FRAME, rename_option)
+        _refuse_reordered_numbers(frame, items, {r.new: r.old for r in renames})  # the names the model reads
         frame, notes_lines = drop_notes_lines(frame, DATA_FRAME)  # the readers' rules: notes lines under the data,
         frame, blank = drop_blank_rows(frame, DATA_FRAME)  # then blank rows
         blank = notes_lines + blank

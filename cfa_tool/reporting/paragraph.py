@@ -1412,6 +1412,21 @@ def _stated_groups_sentence(result, d) -> str:
             f"{_list(named)}, stated differently for different groups.")
 
 
+def analysis_name(d) -> str:
+    """The analysis the model is, as the methods text names it (``d``: its model.description.ModelDescription, or
+    None): an exploratory factor analysis when every factor is in one exploratory block and the model has no other
+    part (no residual covariance, no higher-order factor); an exploratory structural equation model when an
+    exploratory block is one part among others (the block's own sentence names the method: Asparouhov & Muthén,
+    2009); else a confirmatory factor analysis.  Hostile trial s26, 01: a model of one exploratory block alone was
+    called "a confirmatory factor analysis with 12 indicators of three exploratory factors"."""
+    if d is None or not d.exploratory:
+        return "a confirmatory factor analysis"
+    if (len(d.exploratory) == 1 and not d.first_order and not d.confirmatory_indicators and not d.higher_order
+            and not d.residual_covariances):
+        return "an exploratory factor analysis"
+    return "an exploratory structural equation model"
+
+
 def _estimated_by(result, groups: str) -> str:
     """'was estimated by maximum likelihood, with standard errors from ...'; for a model fixing every parameter,
     what was done instead (review s13: the text said estimated, with standard errors, where nothing was)."""
@@ -1432,7 +1447,7 @@ def methods_paragraph(result) -> str:
     parts = []
     if d is not None:
         shape = _shape(result, d)
-        parts.append(f"A confirmatory factor analysis with {_structure(d, shape)} {_estimated_by(result, groups)} "
+        parts.append(f"{_capital(analysis_name(d))} with {_structure(d, shape)} {_estimated_by(result, groups)} "
                      f"({_sample_phrase(result)}).")
         parts += _scale_sentences(d, result.problems)
         if d.exploratory:
@@ -1451,7 +1466,7 @@ def methods_paragraph(result) -> str:
         parts += [sentence for sentence in (_factor_means_sentence(result), _latent_response_sentence(result))
                   if sentence]
     else:
-        parts.append(f"A confirmatory factor analysis with {len(result.observed)} indicators "
+        parts.append(f"{_capital(analysis_name(d))} with {len(result.observed)} indicators "
                      f"{_estimated_by(result, groups)} ({_sample_phrase(result)}).")
     matrix = _matrix_sentence(result)
     if matrix:  # right after the sentence naming the estimation and N
@@ -2422,8 +2437,8 @@ def replication_paragraph(replications) -> str:
     first = reps[0]
     result = first.calibration_result
     d = result.description
-    model = (f"a confirmatory factor analysis with {_structure(d, _shape(result, d)).rstrip(',')}" if d is not None else
-             f"a confirmatory factor analysis of {_count(len(result.observed), 'indicator')}")
+    model = (f"{analysis_name(d)} with {_structure(d, _shape(result, d)).rstrip(',')}" if d is not None else
+             f"{analysis_name(d)} of {_count(len(result.observed), 'indicator')}")
     estimator = _estimator_phrase(result)
     other = _estimator_phrase(first.loose)
     by = estimator if other == estimator else f"{estimator} (in the validation sample by {other})"

@@ -16,6 +16,7 @@
 
 from __future__ import annotations
 
+import json
 from types import SimpleNamespace
 
 import numpy as np
@@ -420,3 +421,26 @@ def test_methods_paragraph_counts_each_factors_items_and_a_one_factor_block_is_n
     # a one-factor block is the confirmatory three-factor model of these data; its standardized speed loadings
     # .570, .723, .665 (the widely reproduced Holzinger-Swineford three-factor example; recalled from memory)
     np.testing.assert_allclose(block.standardized[:, 0], [0.570, 0.723, 0.665], atol=2e-3)
+
+
+def test_the_methods_text_names_the_analysis_the_model_is(hs_data, geomin_fit):
+    """A model of one exploratory block alone was called "a confirmatory factor analysis with nine indicators of three
+    exploratory factors" (hostile trial s26, 01): it is an exploratory factor analysis, and a block among other parts
+    (a confirmatory factor, a residual covariance) makes an exploratory structural equation model (Asparouhov &
+    Muthén, 2009), in the paragraph of every view."""
+    from cfa_tool.reporting.fit_document import fit_report
+    from cfa_tool.reporting.paragraph import methods_paragraph
+    from cfa_tool.reporting.text_formats import report_markdown
+
+    alone = methods_paragraph(geomin_fit)
+    assert alone.startswith("An exploratory factor analysis with nine indicators of three exploratory factors (f1, f2, "
+                            "and f3) was estimated by maximum likelihood")
+    for view in (alone, report_markdown(fit_report(geomin_fit)), json.dumps(geomin_fit.to_dict())):
+        assert "confirmatory" not in view.lower()
+    with_residuals = cfa_tool.fit(GEOMIN + "covary x2, x3\n", hs_data)
+    assert methods_paragraph(with_residuals).startswith(
+        "An exploratory structural equation model with nine indicators of three exploratory factors")
+    side = cfa_tool.fit("factor speed: x7, x8, x9\nexploratory factors visual, textual from x1, x4, x2, x3, x5, x6\n",
+                        hs_data)
+    assert methods_paragraph(side).startswith("An exploratory structural equation model with three indicators of one "
+                                              "factor (speed) and six indicators of two exploratory factors")

@@ -217,6 +217,14 @@ def _error(text: str) -> ModelError:
         ("factor f: a\n", 1, 8, "single indicator 'a'"),
         ("factor f: a, b\n", 1, 8, "two indicators and no correlation"),
         ("factor f: a, b, c\nscale f by effects\nfactor g: d\nfix variance(d) = 0\nname \"x\"\nname \"y\"\n", 6, 1, "already has a name"),
+        # hostile trial s26, 03: a blank name gave every report a blank title
+        ('name "   "\nfactor f: a, b, c\n', 1, 6, "the model's name is blank"),
+        ('factor f: a, b, c\nname ""\n', 2, 6, "the model's name is blank"),
+        ('factor f: a, b, c\nname "\u200b\u00a0"\n', 2, 6, "the model's name is blank"),  # hidden characters only
+        # hostile trial s26, 02: 'covary' of two factors that covary by default changed nothing, silently
+        ("factor f: a, b, c\nfactor g: d, e, h\ncovary f, g\n", 3, 8, "'f' and 'g' covary already"),
+        ("factor f: a, b, c\nfactor g: d, e, h\nfactor k: f, g\nfactor m: i, j, l\ncovary k, m\n", 5, 8,
+         "'k' and 'm' covary already"),
         ("factor f: a, b, c\nreversed b on 6 to 1\n", 2, 15, "from a smaller to a larger number; got 6 to 1"),
         ("factor f: a, b, c\nreversed b on 5 to 5\n", 2, 15, "from a smaller to a larger number"),
         # hostile trial 7, H10c: 'on 1 to 1e308' was accepted (the keyed sum's mean printed with 76 digits)
