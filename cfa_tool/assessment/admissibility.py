@@ -20,7 +20,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from cfa_tool.numbers import count_text, counted, rounded_number, user_number
+from cfa_tool.numbers import count_text, counted, rounded_number, user_number, word_list
 from cfa_tool.errors import OptionError
 from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.model.description import label_words, split_label
@@ -321,7 +321,7 @@ def left_out_words(intercepts: int | None, thresholds: int | None) -> str:
              if intercepts != 0 else "",
              (f"{thresholds} " if thresholds is not None else "") + f"threshold{'s' if thresholds != 1 else ''}"
              if thresholds != 0 else ""]
-    return " and ".join(p for p in parts if p)
+    return word_list(p for p in parts if p)
 
 
 def rows_per_parameter(rows: Sequence[float], free: Sequence[int], groups: Sequence[str] | None = None,
@@ -374,7 +374,7 @@ def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Seq
                           f"more from sample to sample",)
     labels = tuple(groups)
     each = [f"{written_group(f.group, labels)} ({f.figures()})" for f in noted]
-    listed = each[0] if len(each) == 1 else f"{', '.join(each[:-1])} and {each[-1]}"
+    listed = word_list(each)
     means, steps = {f.uncounted for f in noted}, {f.thresholds for f in noted}
     shared = left_out_words(means.pop() if len(means) == 1 else None if 0 not in means else 0,
                             steps.pop() if len(steps) == 1 else None if 0 not in steps else 0)
@@ -498,12 +498,12 @@ class Problem:
             K.NOT_IDENTIFIED: "a model that the data do not identify",
             K.NEGATIVE_RESIDUAL_VARIANCE: f"a negative residual variance of {', '.join(names)} ({v})",
             K.NEGATIVE_FACTOR_VARIANCE: f"a negative variance of factor {', '.join(names)} ({v})",
-            K.FACTOR_CORRELATION_BEYOND_ONE: f"a correlation of factors {' and '.join(names)} of {v}",
-            K.RESIDUAL_CORRELATION_BEYOND_ONE: f"a residual correlation of {' and '.join(names)} of {v}",
+            K.FACTOR_CORRELATION_BEYOND_ONE: f"a correlation of factors {word_list(names)} of {v}",
+            K.RESIDUAL_CORRELATION_BEYOND_ONE: f"a residual correlation of {word_list(names)} of {v}",
             K.FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE: "a factor covariance matrix that is not positive definite",
             K.RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE: "a residual covariance matrix that is not positive definite",
             K.STANDARDIZED_LOADING_ABOVE_ONE: f"a standardized loading of {names[-1] if names else ''} above 1 ({v})",
-            K.ON_BOUND: f"{', '.join(label_words(label, quoted=quoted, groups=tuple(groups)) for label in self.parameters)} "
+            K.ON_BOUND: f"{word_list(label_words(label, quoted=quoted, groups=tuple(groups)) for label in self.parameters)} "
                         f"held at a bound",
             K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
@@ -551,7 +551,7 @@ class Problem:
             K.FILTER_LABELS_BY_CASE: "a row filter whose text the column also holds in other upper and lower case, "
                                      "which it treated as another value",
             K.KEYING_AGAINST_LOADINGS: f"a declared keying of reverse-scored items contradicted by the loadings of "
-                                       f"{', '.join(keyed)} on {names[0] if names else ''}",
+                                       f"{word_list(keyed)} on {names[0] if names else ''}",
             K.WEAK_MARKER: f"a marker of factor {names[0] if names else ''}, {keyed[0] if keyed else ''}, whose "
                            f"standardized loading ({journal_decimal(self.value or 0.0, digits=2)}) is below the .20 in "
                            f"size that common practice reads as negligible, on which the unstandardized loadings and "
@@ -569,7 +569,7 @@ class Problem:
                                         "factor's items",
             K.SCORES_LESS_RELIABLE: "scores less reliable than decisions about individuals usually need",
             K.SCORED_FACTORS_HARDLY_DISTINCT: "scores of factors that correlate nearly 1 in the model",
-            K.FACTORS_HARDLY_DISTINCT: f"a correlation of factors {' and '.join(names)} of "
+            K.FACTORS_HARDLY_DISTINCT: f"a correlation of factors {word_list(names)} of "
                                        f"{journal_decimal(self.value or 0.0, digits=2)}, nearly 1",
             K.SPARSE_ANSWERS: "rows with gaps that answer too few items together for the saturated model of "
                               "full-information ML",
@@ -1023,7 +1023,7 @@ def not_admissible_sentence(counts: Iterable[tuple[int, int, str, str]], samples
     parts = [f"{n} of the {converged} converged {samples}{where} ({named or 'problems not recorded'})"
              for n, converged, named, where in counts]
     one = len(counts) == 1 and counts[0][0] == 1
-    return (f"{' and '.join(parts)} {'has' if one else 'have'} a solution that is not admissible, as a single fit "
+    return (f"{word_list(parts)} {'has' if one else 'have'} a solution that is not admissible, as a single fit "
             f"would judge it; {'it is' if one else 'they are'} kept in {kept_in}")
 
 

@@ -62,6 +62,7 @@ from cfa_tool.assessment.method_factors import SMALL_LOADING, bifactor_parts, un
 from cfa_tool.language.names import reference_text
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.note_parts import Command, Note, Text
+from cfa_tool.numbers import word_list
 from cfa_tool.numerics.plain import PLAIN_TYPES, clean
 
 
@@ -515,7 +516,7 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
                     continue  # docstring)
                 short = [latent[f] for f in (a, b) if counts_l[f] < 2]
                 if short:
-                    htmt.append(Htmt(latent[a], latent[b], None, f"{' and '.join(short)} "
+                    htmt.append(Htmt(latent[a], latent[b], None, f"{word_list(short)} "
                                      f"{'has' if len(short) == 1 else 'have'} fewer than two items of its own, so there "
                                      f"is no correlation within it to compare with"))
                     continue
@@ -525,7 +526,7 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
                     htmt.append(Htmt(latent[a], latent[b], abs(hetero) / math.sqrt(mono_a * mono_b)))
                 else:
                     weak = [latent[f] for f, value in ((a, mono_a), (b, mono_b)) if value <= 0]
-                    htmt.append(Htmt(latent[a], latent[b], None, f"the keyed items of {' and '.join(weak)} do not "
+                    htmt.append(Htmt(latent[a], latent[b], None, f"the keyed items of {word_list(weak)} do not "
                                      f"correlate positively on average, so the ratio is not defined"))
     return results, htmt
 
@@ -712,7 +713,7 @@ def _split_warning(split: list[FactorReliability], prefix: str) -> Note:
                      f"differences and scores may read the wrong way; declare the items worded against the trait as "
                      f"scored in reverse", Command(DECLARE_REVERSED), ", which orients the factor by its other items "
                      "and keys the sums"))
-    named = ", ".join(f"'{r.factor}'" for r in split[:-1]) + f" and '{split[-1].factor}'"
+    named = word_list(f"'{r.factor}'" for r in split)
     return Note((f"{prefix}factors {named}: half of each one's items load each way "
                  f"({'; '.join(f'{r.factor}: {halves(r)}' for r in split)}), so the data cannot tell which way each "
                  f"points: its direction follows its marker, and its correlations, mean differences and scores may "

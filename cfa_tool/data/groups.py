@@ -78,7 +78,7 @@ def refuse_look_alike_labels(values: pd.Series, column: str, source: str) -> Non
     if not alike:
         return
     found = alike[0]
-    listed = " and ".join(f"'{spelled_out(label)}' ({n:,} row{'s' if n != 1 else ''})" for label, n in found)
+    listed = word_list(f"'{spelled_out(label)}' ({n:,} row{'s' if n != 1 else ''})" for label, n in found)
     marks = dict.fromkeys(ch for label, _ in found for ch in label if unicodedata.category(ch) == "Cf")
     named = ", ".join(f"U+{ord(ch):04X} {unicodedata.name(ch, 'UNNAMED CHARACTER')}" for ch in marks)
     more = f" ({len(alike) - 1} more such set{'s' if len(alike) > 2 else ''} of labels)" if len(alike) > 1 else ""

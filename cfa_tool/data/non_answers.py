@@ -38,7 +38,7 @@ import pandas as pd
 from cfa_tool.language.names import composed
 from cfa_tool.language.spec import answer_key
 from cfa_tool.errors import DataError, clipped, printable
-from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, number, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, number, user_number, word_list
 from cfa_tool.input_files import DATA_FRAME, base_name
 from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.options import Option
@@ -830,7 +830,7 @@ def _brief(names: list[str], noun: str) -> str:
     over: numbers.names_shown)."""
     if len(names) > names_shown(len(names), BRIEF):
         return cut_list(names, BRIEF, noun=noun)
-    return names[0] if len(names) == 1 else f"{', '.join(names[:-1])} and {names[-1]}"
+    return word_list(names)
 
 
 def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | None = None,
@@ -889,9 +889,9 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | Non
         parts.append(f"{group[0].shown()} ({counted(cells, 'cell')}: {listed})")
     total = sum(len(f.rows) for f in mine)
     kinds = {f.kind for f in mine}
-    how = " or ".join(w for k, w in ((NonAnswerKind.LABELLED, "labels as no answer"),
+    how = word_list([w for k, w in ((NonAnswerKind.LABELLED, "labels as no answer"),
                                       (NonAnswerKind.DECLARED, "declares as missing values"),
-                                      (NonAnswerKind.WRITTEN, "writes as no answer")) if k in kinds)
+                                      (NonAnswerKind.WRITTEN, "writes as no answer")) if k in kinds], "or")
     held = "text that says no answer" if frame else f"values that the file {how}"
     said = (f"{count_text(total)} cell{'s' if total != 1 else ''} of the items in {name} "
             f"hold{'s' if total == 1 else ''} {held}, "

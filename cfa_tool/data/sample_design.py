@@ -14,7 +14,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import count_text, counted, cut_list, rounded_number, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, rounded_number, user_number, word_list
 from cfa_tool.data.kept_rows import row_of
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.language.names import written_group
@@ -253,7 +253,7 @@ class SampleDesign:
         if ordinal:
             weights = ("The least-squares weights come from the variances of the thresholds and correlations with the "
                        "rows taken as independent" + (" (weights applied)" if c.weights is not None else "")
-                       + f", so the {' and '.join(x for x, col in (('clusters', c.cluster), ('strata', c.strata)) if col)}"
+                       + f", so the {word_list(x for x, col in (('clusters', c.cluster), ('strata', c.strata)) if col)}"
                        " change the standard errors and the test but not the estimates; "
                        "the standard errors and the scale-shifted test come from the design-based covariance of the "
                        "thresholds and correlations"
@@ -279,7 +279,7 @@ class SampleDesign:
         parts = [what for what, there in (("sampling weights", c.weights is not None and c.kind is WeightKind.SAMPLING),
                                           ("clusters", c.cluster is not None), ("strata", c.strata is not None))
                  if there]
-        return SCORE_TESTS_BY_DESIGN.format(parts[0] if len(parts) == 1 else ", ".join(parts[:-1]) + " and " + parts[-1],
+        return SCORE_TESTS_BY_DESIGN.format(word_list(parts),
                                             "weighted " if c.weights is not None else "")  # (s23: also without)
 
     def shared_strata_caution(self) -> str | None:
@@ -736,7 +736,7 @@ def _without_silent_rows(frame: pd.DataFrame, rows: np.ndarray, w: np.ndarray | 
     count = int(lacking.sum())
     named = (f"row {rows[lacking][0]}" if count == 1 else f"{count} rows (the first row {rows[lacking][0]})")
     note = (f"{named} {'answers' if count == 1 else 'answer'} no model variable and {'has' if count == 1 else 'have'} "
-            f"no {' or '.join(missing_parts)}, so {'it was' if count == 1 else 'they were'} left out (a notes line "
+            f"no {word_list(missing_parts, 'or')}, so {'it was' if count == 1 else 'they were'} left out (a notes line "
             f"under the data, perhaps)")
     keep = ~lacking
     return frame.loc[keep], rows[keep], (None if w is None else w[keep]), [note], keep

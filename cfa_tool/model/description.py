@@ -16,6 +16,7 @@ from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.names import read_reference, written_group, written_name
 from cfa_tool.language.spec import Spec, equality_words
 from cfa_tool.model.parameters import ParameterTable
+from cfa_tool.numbers import word_list
 
 
 #: the scale of a factor scaled by its variance in the first group, in a later group where its loadings are held equal
@@ -138,7 +139,7 @@ def parameter_words(kind: str, names: tuple[str, ...], group: str | None = None,
     if quoted:
         names = tuple(written_name(n) for n in names[:1]) + (
             tuple(names[1:]) if kind == "threshold" else tuple(written_name(n) for n in names[1:]))
-    pair = " and ".join(map(str, names))
+    pair = word_list(map(str, names))
     if kind == "loading" and len(names) == 2:
         text = f"loading of {names[1]} on {names[0]}"
     elif kind == "threshold" and len(names) == 2:

@@ -19,7 +19,8 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
     from cfa_tool.assessment.admissibility import Problem
     from cfa_tool.data.halves import RandomHalf
 
-from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, rounded_number, user_number
+from cfa_tool.numbers import (count_text, counted, cut_list, more_words, names_shown, rounded_number, user_number,
+                              word_list)
 from cfa_tool.data.answer_words import NUMBERS_ONLY, code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.groups import SmallGroupsError, has_group, split_moments
@@ -812,7 +813,7 @@ def group_case_problems(frame: pd.DataFrame, group: str, part: str = "group",
     found = case_variants(labels)
     if not found:
         return ()
-    listed = cut_list(found, CASE_VARIANTS_SHOWN, lambda variants: " and ".join(
+    listed = cut_list(found, CASE_VARIANTS_SHOWN, lambda variants: word_list(
         f"'{printable(label)}' ({counted(n, 'row')})" for label, n in variants), sep="; ", lead="; and ", noun="such set")
     kind = ProblemKind.GROUP_LABELS_BY_CASE if part == "group" else ProblemKind.DESIGN_LABELS_BY_CASE
     return (Problem(kind, (), float(len(found)),
@@ -1400,7 +1401,7 @@ def scale_ends_problems(frame: pd.DataFrame, spec: Spec) -> tuple:
             # the model file's statement apart (note_parts.Command): a manuscript's reader edits no model file
             Note(("The model", Command(f" (its 'reversed' statement on line {keying.location.line})"),
                   f" declares answers from {user_number(keying.minimum)} to {user_number(keying.maximum)} for {reversed_items}, but no answer "
-                  f"of the items it covers reaches {' or '.join(unreached)}: they run from {user_number(low)} to {user_number(high)} in "
+                  f"of the items it covers reaches {word_list(unreached, 'or')}: they run from {user_number(low)} to {user_number(high)} in "
                   f"{len(values)} rows. A reversed answer x counts as {user_number(keying.minimum + keying.maximum)} - x in the "
                   f"keyed sums; {effect}.")),
             Note(("declare the questionnaire's own lowest and highest answers",

@@ -26,7 +26,7 @@ from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary, design_weights
 from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import EstimationError, NotIdentified, OptionError, estimation_of, printable
-from cfa_tool.numbers import cut_list
+from cfa_tool.numbers import cut_list, word_list
 from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.pipeline.continuous import (fit_moments, full_information_instead, pairwise_instead,
@@ -401,7 +401,7 @@ def _each_pair(names, results, test_pair, specs, likelihood: bool) -> tuple[list
                 continue
             if not (results[a].converged and results[b].converged):
                 failed = [names[k] for k in (a, b) if not results[k].converged]
-                not_nested.append(NotNested(names[a], names[b], f"{' and '.join(failed)} could not be estimated",
+                not_nested.append(NotNested(names[a], names[b], f"{word_list(failed)} could not be estimated",
                                             information_criteria=False))
                 continue
             found, reason = test_pair(a, b)

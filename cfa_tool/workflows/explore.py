@@ -203,7 +203,7 @@ class ExploreResult(Presentable):
         # the rules' counts in a sentence of their own: a rule's name holds its source in parentheses
         rules = [f"{RULE_WORDS[r]} " + ("gives no count" if count.suggestion(r) is None else f"counts {count.suggestion(r)}")
                  for r in count.combined]
-        counted = (", ".join(rules[:-1]) + ", and " + rules[-1] if len(rules) > 1 else "".join(rules))
+        counted = word_list(rules)
         counted = counted[:1].upper() + counted[1:]
         middle = self._middle_count()
         if middle == 0:
@@ -773,7 +773,7 @@ def _refuse_too_few_named(chosen: tuple[str, ...]) -> None:
     items for each factor."""
     if len(chosen) >= 3:
         return
-    named = " and ".join(f"'{printable(c)}'" for c in chosen)
+    named = word_list(f"'{printable(c)}'" for c in chosen)
     raise OptionError(f"{Option.ITEMS} names {'one item' if len(chosen) == 1 else 'two items'} ({named}), too few "
                       f"for a factor: an exploratory factor analysis needs at least three items for each factor; name "
                       f"more items")

@@ -19,7 +19,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, user_number, word_list
 from cfa_tool.data.csv_convention import PLAIN, CsvConvention, convention_of
 from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, caller_labels, row_naming
 from cfa_tool.data.moments import row_numbers
@@ -1000,19 +1000,19 @@ def _item_sums_across_groups(models, labels, sums: list, chosen, ordinal: bool, 
                           [s for s in sums[0] if s.factor not in method_factors])
     if not shifts:
         return ()
-    kinds = " and ".join(dict.fromkeys(("item sums" if m is ScoreMethod.ITEM_SUM else "item means") for m in summed))
+    kinds = word_list(dict.fromkeys(("item sums" if m is ScoreMethod.ITEM_SUM else "item means") for m in summed))
     factors = tuple(dict.fromkeys(x.factor for x in shifts))
 
     def said(x) -> str:
-        what = " and ".join(("intercept" if k == "intercept" else "loading" if k == "loading" else "thresholds")
+        what = word_list(("intercept" if k == "intercept" else "loading" if k == "loading" else "thresholds")
                             for k in x.parameters)
         of = f"{printable(x.factor)}: " if len(factors) > 1 else ""
         if x.intercepts:
             values = ", ".join(f"{printable(g)} {v:.2f}" for g, v in zip(x.groups, x.intercepts))
             return f"the {what} of {printable(x.item)} ({of}intercept {values})"
-        return f"the {what} of {printable(x.item)} ({of}differing in {', '.join(printable(g) for g in x.groups)})"
+        return f"the {what} of {printable(x.item)} ({of}differing in {word_list(printable(g) for g in x.groups)})"
 
-    names = ", ".join(printable(f) for f in factors)
+    names = word_list(printable(f) for f in factors)
     model_based = "posterior means" if ordinal else "regression or Bartlett scores"
     return (Problem(ProblemKind.ITEM_SUMS_ACROSS_GROUPS, (), float(len(shifts)),
                     f"The {kinds} of {names} do not compare across the groups of {printable(group)}: while it "
@@ -1160,10 +1160,10 @@ def refuse_unknown_scale(data, what: str) -> None:
     lacking = tuple(getattr(data, "not_given", ()))
     if not lacking:
         return
-    words = " or ".join(g.label for g in lacking)
+    words = word_list([g.label for g in lacking], "or")
     raise OptionError(f"{what} is of summary statistics ({printable(str(data.source))}) without {words}, and scores of "
                       f"answers need the fitted sample's item means and standard deviations; add the "
-                      f"{' and '.join(repr(_SUMMARY_ROW[g]) for g in lacking)} row{'s' if len(lacking) > 1 else ''} to "
+                      f"{word_list(repr(_SUMMARY_ROW[g]) for g in lacking)} row{'s' if len(lacking) > 1 else ''} to "
                       f"that file and fit again, or fit the model to the rows of answers")
 
 
@@ -1663,8 +1663,8 @@ def _same_model(spec, saved: SavedFit) -> None:
         if factors and here != fitted_keys:
             added, dropped = sorted(here - fitted_keys), sorted(fitted_keys - here)
             said = "; ".join(part for part in (
-                f"it declares {', '.join(printable(x) for x in added)} reversed, which the fit did not" if added else "",
-                f"it does not declare {', '.join(printable(x) for x in dropped)} reversed, as the fit did"
+                f"it declares {word_list(printable(x) for x in added)} reversed, which the fit did not" if added else "",
+                f"it does not declare {word_list(printable(x) for x in dropped)} reversed, as the fit did"
                 if dropped else "") if part)
     if said:
         raise OptionError(f"the model file {spec.source} is not the model {saved.source} was fitted with ({said}); "
@@ -2105,7 +2105,7 @@ def not_comparable_problems(estimates, chosen) -> tuple:
     test = (", once ", Command("the invariance command", "a test of measurement invariance"),
             " finds that level holds.")
     scores = "The factor scores" if any(m in ITEM_METHODS for m in chosen) else "The scores"  # not the item sums
-    names, one = ", ".join(printable(f) for f in centred), len(centred) == 1
+    names, one = word_list(printable(f) for f in centred), len(centred) == 1
     every = len(centred) == len({r.variables[0] for r in estimates if r.kind == "mean"})
     if every:
         text = (f"{scores} of different groups cannot be compared: the model fixes every factor's mean at zero in "
@@ -2144,7 +2144,7 @@ def _without_own_answers(answered: np.ndarray, values: dict, chosen, factors,
     if unanswered is UnansweredFactor.LEAVE_EMPTY:
         rows = "; ".join(f"{n} {'row' if n == 1 else 'rows'} answered none of the items of {name}" for name, n in counted)
         names = [answered_column(name) for name, _ in counted]
-        columns = ", ".join(names[:-1]) + " and " + names[-1] if len(names) > 1 else names[0]
+        columns = word_list(names)
         one = len(counted) == 1 and counted[0][1] == 1
         text = (f"{rows}: {'this score, a prediction' if one else 'these scores, predictions'} from the other "
                 f"factors' items alone, {'is' if one else 'are'} left empty, as asked; {columns} "
