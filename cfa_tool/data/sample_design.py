@@ -589,9 +589,9 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             rows = rows[~zero]
             gone, left = groups_weighted_out(before, columns.weights, group, w)
             if gone and len(left) < 2:  # the multi-group analysis cannot run: the weights, not the labels, are why
-                raise DataError(f"{source}: {weighted_out_words(gone, group, columns.weights)}, so only {len(left)} "
-                                f"group is left ({', '.join(repr(printable(g)) for g in left)}); a multi-group "
-                                f"analysis needs at least two")
+                left_words = f"every row left is in group '{printable(left[0])}'" if left else "no group is left"
+                raise DataError(f"{source}: {weighted_out_words(gone, group, columns.weights)}, so {left_words}; a "
+                                f"multi-group analysis needs at least two groups")
             # a group weighted out is a caution of the fit, first (pipeline.inputs.odd_value_problems)
     for what, name in (("cluster", columns.cluster), ("stratum", columns.strata)):
         if name is not None:
@@ -676,7 +676,7 @@ def groups_weighted_out(frame: pd.DataFrame, weights: str, group: str | None, w:
 
 def weighted_out_words(gone: list[tuple[str, int]], group: str, weights: str) -> str:
     return (f"every row of group{'s' if len(gone) > 1 else ''} "
-            + ", ".join(f"'{printable(g)}' ({n} row{'s' if n != 1 else ''})" for g, n in gone)
+            + word_list(f"'{printable(g)}' ({n} row{'s' if n != 1 else ''})" for g, n in gone)
             + f" of '{printable(group)}' has weight 0 in '{printable(weights)}'")
 
 
