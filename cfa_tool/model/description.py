@@ -310,6 +310,12 @@ def higher_order_saving(spec: Spec, table: ParameterTable) -> tuple[tuple[str, .
     return (tuple(alone) if alone and together == 0 else ()), (whole if len(checked) == higher else None)
 
 
+def factor_scales(spec: Spec, table: ParameterTable, group: int = 0) -> dict[str, FactorScale]:
+    """How each factor's scale is set in ``group``, by the factor's name (what decides the way a factor points, for
+    the caution on factors without a majority of their items: assessment.reliability.keying_warnings)."""
+    return {s.factor: s for s in _scales(spec, table, group)}
+
+
 def _scales(spec: Spec, table: ParameterTable, group: int = 0) -> tuple[FactorScale, ...]:
     """How each factor got its scale, read from one group's parameters."""
     out = []

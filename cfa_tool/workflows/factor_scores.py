@@ -933,7 +933,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         extra[:0] = _id_column_note(read_frame, source, spec, group, design)
     own = not_comparable_problems(result.estimates, chosen) + _without_own_answers(
         answered, values, chosen, factors, unanswered) + _item_sums_across_groups(
-        models, labels, sums, chosen, bool(ordinal_items), group, spec.method_factors)
+        models, labels, sums, chosen, bool(ordinal_items), group, spec.method_factors, result.problems)
     if own:
         result = _after_data_cautions(result, data_cautions, own)
     unweighted = len(frame) - len(fitted_rows)  # weight 0: not in the fit, yet scored like every row
@@ -981,23 +981,30 @@ def _few_clusters_as_note(result) -> tuple[FitResult, list[str]]:
 
 
 def _item_sums_across_groups(models, labels, sums: list, chosen, ordinal: bool, group: str | None,
-                             method_factors: frozenset = frozenset()) -> tuple:
+                             method_factors: frozenset = frozenset(), problems=()) -> tuple:
     """The caution, first in every view, on item sums and means of several groups whose model sets an item of the
     sum apart between them (its intercept, loading or thresholds: scoring.item_sums.group_shifts) while it compares
     the factor's means: the groups' sums and means differ by that item's own shift besides the factor, and the
     model-based scores, which allow for it, are the ones to compare (new-user trial s20: a translated version's
     shifted item made its item means differ by a quarter of their SD while the factor's scores agreed, with no
     word).  () without item sums or means, groups or such items.  ``method_factors`` get no item sum or mean (their
-    column is empty), so no caution names them (new-user trial s24: an acquiescence factor on every item was named)."""
+    column is empty), so no caution names them (new-user trial s24: an acquiescence factor on every item was named);
+    nor the factors whose sums the fit withholds in every group (``problems``: the fit's; their loadings contradict
+    the declared keying, assessment.reliability.withheld_sums), whose columns are empty too (s26)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.scoring.item_sums import group_shifts
+
+    from cfa_tool.assessment.reliability import withheld_sums
 
     summed = [m for m in ITEM_METHODS if m in chosen]
     if not summed or group is None or len(models) < 2 or not sums:
         return ()
+    withheld = withheld_sums(problems)
+    empty = method_factors | {s.factor for s in sums[0]
+                              if all((str(label), s.factor) in withheld for label in labels)}
     bases = [m.base for m in models] if ordinal else list(models)
     shifts = group_shifts(bases, [m.thresholds for m in models] if ordinal else None, [str(x) for x in labels],
-                          [s for s in sums[0] if s.factor not in method_factors])
+                          [s for s in sums[0] if s.factor not in empty])
     if not shifts:
         return ()
     kinds = word_list(dict.fromkeys(("item sums" if m is ScoreMethod.ITEM_SUM else "item means") for m in summed))
@@ -1280,7 +1287,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     scored_problems = list(not_comparable_problems(result.estimates, chosen)
                            + _without_own_answers(answered, values, chosen, factors, unanswered)
                            + _item_sums_across_groups(models, labels, sums, chosen, ordinal, group,
-                                                      spec.method_factors))
+                                                      spec.method_factors, result.problems))
     if unknown_groups:
         scored_problems.insert(0, Problem(ProblemKind.UNKNOWN_GROUPS_SCORED, (), None, unknown_groups + ".",
                                           "write each row's group as the fit's data wrote it, or fit the model to "
