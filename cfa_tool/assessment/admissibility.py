@@ -166,8 +166,9 @@ class ProblemKind(enum.Enum):
     # thumb (assessment.fit_indices.UNINFORMATIVE_BASELINE_RMSEA), so that CFI and TLI are bounded by how little it
     # misfits and are read beside RMSEA, SRMR and the residuals; ranked after every other problem (solution_first)
     # (its word, a kind like the others' and no advice, s23: 'baseline model misfits little: read CFI and TLI beside
-    # RMSEA and SRMR', which a saved fit of earlier versions still lists: EARLIER_WORDS)
-    UNINFORMATIVE_BASELINE = ("weakly correlated items", "CFI and TLI bounded by the baseline", False)
+    # RMSEA and SRMR'; the kind's own name, s26: 'weakly correlated items', which the caution no longer says of items
+    # that correlate well within their factors; a saved fit of earlier versions still lists either: EARLIER_WORDS)
+    UNINFORMATIVE_BASELINE = ("uninformative baseline", "CFI and TLI bounded by the baseline", False)
     # not of the solution but of the sample: a row filter that selects rows by their answers to a model item
     # (pipeline.row_filter_cautions): the item's range is restricted, its correlations changed
     SELECTED_ON_ITEM = ("rows selected on a model item", "selected on an item", False)
@@ -1150,7 +1151,8 @@ def refuse_inadmissible_fit(problems, source: str, purpose: str, flagged: bool =
 
 #: the words earlier versions wrote as a problem's kind into a saved fit's JSON -> the kind's member name
 #: (ProblemKind._missing_)
-EARLIER_WORDS = {"baseline model misfits little: read CFI and TLI beside RMSEA and SRMR": "UNINFORMATIVE_BASELINE"}
+EARLIER_WORDS = {"baseline model misfits little: read CFI and TLI beside RMSEA and SRMR": "UNINFORMATIVE_BASELINE",
+                 "weakly correlated items": "UNINFORMATIVE_BASELINE"}
 
 
 #: the average correlation of the items of one factor below which items correlate weakly: the lower end of the
