@@ -796,7 +796,7 @@ def _refuse_numbers_with_slips(frame: pd.DataFrame, taken: tuple[str, ...], sour
                 or column.dtype.kind in "mM"):
             continue
         values = column.to_numpy(dtype=object)
-        if not stray_text(values):
+        if not stray_text(values, few=False):  # however many cells, as fit reads them (data.moments.stray_words)
             continue
         row, cell = next((r, v) for r, v in zip(row_numbers(column), values) if isinstance(v, str) and v.strip()
                          and strict_number(v.strip()) is None)
@@ -829,7 +829,7 @@ def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str
                     and not any(ch.isdigit() for ch in cell) and cell.strip().lower() not in ("true", "false")):
                 continue
             shown = clipped(cell.strip(), 40)
-            if stray_text(values):  # a slip among numbers, as fit reads it (data.answer_scales.stray_text)
+            if stray_text(values, few=False):  # text among numbers, as fit reads it (data.moments.stray_words)
                 raise DataError(stray_word_message(source, name, shown, cell_words(column, name, row), cell.strip(),
                                                    given))
             statement = suggested_statement(values)
