@@ -194,6 +194,10 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the rows: ids of the id column (or row names) that name several rows, so nothing
     # merged by them (a scores file) matches the rows one to one (pipeline.inputs.repeated_id_problems)
     REPEATED_IDS = ("ids that name several rows", "repeated ids", False)
+    # ... and a column named as the id of teams, schools or classes (data.column_roles.unit_id_column) whose units the
+    # design does not take for clusters: their members' rows analysed as independent cases (s26: said as people
+    # answering twice)
+    UNIT_ROWS_AS_INDEPENDENT = ("rows of one team or school as independent cases", "units not clusters", False)
     ANSWERS_BEYOND_FITTED = ("answers beyond the fitted rows", "answers beyond the fit's", False)
     # not of the solution but of the rows scored: an item that runs against its factor in the scored file while its
     # loading in the earlier fit runs with it (coded the other way round: workflows.factor_scores)

@@ -1175,10 +1175,38 @@ def named_id_problems(loaded: LoadedData, id_column: str | None, group: str | No
         return ()
     named = id_named_column(frame, {group, *items})
     if named is None:
-        return ()
+        return _unit_rows_problems(frame, {group, *items, *(n for _, n in (design.names if design else ()))},
+                                   design, takes_design)
     ids = ids_by_row_number(frame[named].map(id_text), frame)
     return repeated_id_problems(loaded, ids, named, group, items, design, fitted=True, by_name=True,
                                 takes_design=takes_design)
+
+
+def _unit_rows_problems(frame: pd.DataFrame, skip, design: DesignColumns | None, takes_design: bool) -> tuple:
+    """The caution on a column named as the id of teams, schools or classes (data.column_roles.unit_id_column), which
+    is not the rows' id, when the design has no clusters: the rows of one unit are taken for independent cases, with
+    the units as the design's clusters for the remedy (where the command takes them)."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.data.column_roles import unit_id_column
+
+    found = unit_id_column(frame, skip)
+    if found is None or (design is not None and design.cluster is not None):
+        return ()
+    name, word = found
+    units = int(frame[name].nunique())
+    rows = int(frame[name].notna().sum())
+    plural = (word + "es" if word.endswith(("s", "sh", "ch", "x")) else
+              word[:-1] + "ies" if word.endswith("y") and word[-2:-1] not in "aeiou" else word + "s")
+    explanation = (f"The column '{printable(name)}', an id of {plural} by its name, gives {counted(units, word, plural)} "
+                   f"to {count_text(rows)} rows ({rounded_number(rows / units)} rows each on average): the analysis "
+                   f"takes the rows of one {word} for independent cases, so if its members answer alike the standard "
+                   f"errors are too small and the tests reject too readily.")
+    advice = (Note((f"take the {plural} for the clusters of the sampling design",
+                    Command(f" ({Option.CLUSTER.given(name)})"),
+                    f" so that the standard errors and tests allow for the rows of one {word}.")) if takes_design else
+              Note((f"read the standard errors and tests as those of independent rows, which the members of one "
+                    f"{word} may not be.",)))
+    return (Problem(ProblemKind.UNIT_ROWS_AS_INDEPENDENT, (), float(units), explanation, advice),)
 
 
 #: the most values a row filter written for the user lists (beyond it the advice names no filter)
