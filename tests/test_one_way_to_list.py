@@ -85,3 +85,12 @@ def test_no_module_writes_a_word_list_of_its_own():
     left = {str(path.relative_to(PACKAGE)): lines for path in sorted(PACKAGE.rglob("*.py"))
             if path.name != "numbers.py" and (lines := _private_word_lists(path))}
     assert not left, f"lists in sentences written by their own join instead of numbers.word_list: {left}"
+
+
+def test_no_module_ends_a_list_with_and_others():
+    # s26: 'The data barely determine a, b, c, d, e and others' hid the names and the count beyond five, and named five
+    # of six where numbers.names_shown names all six; numbers.cut_list counts them
+    left = {str(path.relative_to(PACKAGE)): node.lineno for path in sorted(PACKAGE.rglob("*.py"))
+            for node in ast.walk(ast.parse(path.read_text(encoding="utf-8")))
+            if isinstance(node, ast.Constant) and isinstance(node.value, str) and node.value.rstrip().endswith(" and others")}
+    assert not left, f"lists ended by 'and others': {left}"

@@ -20,7 +20,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from cfa_tool.numbers import count_text, counted, rounded_number, user_number, word_list
+from cfa_tool.numbers import count_text, counted, cut_list, rounded_number, user_number, word_list
 from cfa_tool.errors import OptionError
 from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.model.description import label_words, split_label
@@ -781,7 +781,7 @@ def identification_problems(labels: tuple[str, ...], se: np.ndarray, estimates: 
         return []
     return [Problem(
         ProblemKind.EMPIRICALLY_UNDERIDENTIFIED, tuple(labels[k] for k in weak), float(np.max(se[weak])),
-        "The data barely determine " + ", ".join(label_words(labels[k]) for k in weak[:5]) + (" and others" if len(weak) > 5 else "")
+        "The data barely determine " + cut_list(weak, 5, lambda k: label_words(labels[k]))
         + ": their standard errors are huge, so the model is close to not identified with these data.",
         "Check factors with two indicators (they need a clear correlation with another factor) and loadings near zero; "
         "fix or drop what the data cannot inform.", None)]

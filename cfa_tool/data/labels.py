@@ -458,7 +458,7 @@ def refuse_moved_labels(fitted: dict | None, value_labels: dict, items, source: 
         return
     item, pairs = moved[0]
     label, code, their_code = pairs[0]
-    recode = ", ".join(f"{user_number(c)} as {user_number(t)}" for _, c, t in pairs)
+    recode = word_list(f"{user_number(c)} as {user_number(t)}" for _, c, t in pairs)
     others = [printable(i) for i, _ in moved[1:]]
     more = (f"; {len(others)} more item{'s' if len(others) != 1 else ''} ({cut_list(others, 5)}) {'has' if len(others) == 1 else 'have'} labels on other "
             f"codes too") if others else ""

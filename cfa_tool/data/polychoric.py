@@ -890,7 +890,7 @@ def _merged_into(empty, seen) -> str:
 
 def _categories(values) -> str:
     text = [f"{user_number(v)}" for v in values]
-    return f"category {text[0]}" if len(text) == 1 else "categories " + ", ".join(text)
+    return f"category {text[0]}" if len(text) == 1 else "categories " + word_list(text)
 
 
 def shared_levels(frames: list[pd.DataFrame], names: tuple[str, ...], source: str, pairwise: bool = False,
