@@ -13,6 +13,7 @@ from dataclasses import dataclass
 from enum import Enum
 
 from cfa_tool.errors import OptionError, clipped
+from cfa_tool.numbers import word_list
 
 
 class Choice(str, Enum):
@@ -138,7 +139,7 @@ class FitTest(Choice):
     @property
     def correction(self) -> str:
         """The pieces in the words of a table row: 'scale and shift', 'scaling factor'."""
-        return " and ".join(self.pieces)
+        return word_list(self.pieces)
 
     @property
     def rule(self) -> str:

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import math
 import re
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterable, Sequence
 from decimal import Decimal
 from typing import TypeVar
 
@@ -99,13 +99,15 @@ def count_text(value: float) -> str:
     return text.rstrip("0").rstrip(".")
 
 
-def word_list(words) -> str:
-    """Words joined as a sentence lists them: 'a', 'a and b', 'a, b, and c': the one rule of a list in a sentence,
-    for the reports and the workflows' notes alike (s23: alignment's note joined group labels by ', ')."""
+def word_list(words: Iterable[str], conjunction: str = "and", sep: str = ", ") -> str:
+    """Words joined as a sentence lists them: 'a', 'a and b', 'a, b, and c' ('a, b, or c' with ``conjunction``
+    'or'; 'a; b; and c' with ``sep`` '; ' for parts that hold commas themselves): the one rule of a list in a
+    sentence, for the reports, the workflows' notes and the messages alike (s23: alignment's note joined group labels
+    by ', '; s26: private joins wrote 'a, b and c' in one message and 'a and b and c' in another)."""
     words = list(words)
     if len(words) <= 2:
-        return " and ".join(words)
-    return ", ".join(words[:-1]) + ", and " + words[-1]
+        return f" {conjunction} ".join(words)
+    return sep.join(words[:-1]) + f"{sep}{conjunction} " + words[-1]
 
 
 def names_shown(total: int, most: int) -> int:

@@ -290,7 +290,19 @@ def shell_word(text: str) -> str:
         return text
     if not _DOUBLE_QUOTE_SPECIAL.search(text):
         return f'"{text}"'
+    return _single_quoted(text)
+
+
+def _single_quoted(text: str) -> str:
     return "'" + text.replace("'", "'\\''") + "'"
+
+
+def quoted_word(text: str) -> str:
+    """A name a message suggests for the user to copy (suggest.did_you_mean), in quotes whatever it holds, as the run's
+    interface takes it: on the command line in single quotes by the shell's rule of :func:`shell_word` (each single
+    quote in it written '\\''), so that 'district' reads as it always did and "St Mary's" pastes as one word; in the
+    Python API a Python string ('district', "St Mary's")."""
+    return _single_quoted(text) if interface() is Interface.COMMAND_LINE else repr(text)
 
 
 def _numbers(text: str) -> bool:

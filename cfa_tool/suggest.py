@@ -24,10 +24,13 @@ def did_you_mean(word: str, guess: str) -> str:
     when the two look alike and differ only in their Unicode form or in characters that cannot be seen (a full-width
     letter, a ligature, a no-break space, a zero-width space: :func:`look_alike`), it says so and names the characters
     that differ, since a suggestion that shows the same name would not tell the user what to change (session note
-    s23, 'Noticed, left alone')."""
+    s23, 'Noticed, left alone').  The suggestion is quoted as the user copies it into the command
+    (options.quoted_word: the shell's single quotes on the command line, a Python string in the Python API), not by a
+    rule of its own: "did you mean 'St Mary's'?" cut the name at its apostrophe when pasted (s26)."""
     from cfa_tool.errors import character_names, printable
+    from cfa_tool.options import quoted_word
 
-    said = f"; did you mean '{printable(guess)}'"
+    said = f"; did you mean {printable(quoted_word(guess))}"
     if guess != word and look_alike(word, guess):
         differ = character_names(guess, word) or character_names(word, guess)
         return f"{said}{differ}?{LOOK_ALIKE}"

@@ -61,3 +61,36 @@ def _hand_lists(path: Path) -> list[int]:
 def test_no_module_lists_by_hand():
     left = {str(path.relative_to(PACKAGE)): lines for path in sorted(PACKAGE.rglob("*.py")) if (lines := _hand_lists(path))}
     assert not left, f"hand-written 'and N more' lists: {left}"
+
+
+def _private_word_lists(path: Path) -> list[int]:
+    """Lines of ``path`` that write a list in a sentence by a join of their own instead of numbers.word_list: a join
+    by ' and ' or ' or ' ('a and b and c' for three), or a join of all but the last name with the last added by hand
+    ('a, b and c', where word_list writes 'a, b, and c')."""
+    found = []
+    for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+        if not (isinstance(node, ast.Call) and isinstance(node.func, ast.Attribute) and node.func.attr == "join"
+                and isinstance(node.func.value, ast.Constant) and isinstance(node.func.value.value, str)):
+            continue
+        by_hand = node.func.value.value.strip() in {"and", "or"}
+        all_but_last = any(isinstance(s, ast.Subscript) and isinstance(s.slice, ast.Slice) and s.slice.lower is None
+                           and isinstance(s.slice.upper, ast.UnaryOp) and isinstance(s.slice.upper.operand, ast.Constant)
+                           and s.slice.upper.operand.value == 1 for arg in node.args for s in ast.walk(arg))
+        if by_hand or all_but_last:
+            found.append(node.lineno)
+    return found
+
+
+def test_no_module_writes_a_word_list_of_its_own():
+    left = {str(path.relative_to(PACKAGE)): lines for path in sorted(PACKAGE.rglob("*.py"))
+            if path.name != "numbers.py" and (lines := _private_word_lists(path))}
+    assert not left, f"lists in sentences written by their own join instead of numbers.word_list: {left}"
+
+
+def test_no_module_ends_a_list_with_and_others():
+    # s26: 'The data barely determine a, b, c, d, e and others' hid the names and the count beyond five, and named five
+    # of six where numbers.names_shown names all six; numbers.cut_list counts them
+    left = {str(path.relative_to(PACKAGE)): node.lineno for path in sorted(PACKAGE.rglob("*.py"))
+            for node in ast.walk(ast.parse(path.read_text(encoding="utf-8")))
+            if isinstance(node, ast.Constant) and isinstance(node.value, str) and node.value.rstrip().endswith(" and others")}
+    assert not left, f"lists ended by 'and others': {left}"

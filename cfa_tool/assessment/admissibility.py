@@ -20,7 +20,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from cfa_tool.numbers import count_text, counted, rounded_number, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, rounded_number, user_number, word_list
 from cfa_tool.errors import OptionError
 from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.model.description import label_words, split_label
@@ -166,8 +166,9 @@ class ProblemKind(enum.Enum):
     # thumb (assessment.fit_indices.UNINFORMATIVE_BASELINE_RMSEA), so that CFI and TLI are bounded by how little it
     # misfits and are read beside RMSEA, SRMR and the residuals; ranked after every other problem (solution_first)
     # (its word, a kind like the others' and no advice, s23: 'baseline model misfits little: read CFI and TLI beside
-    # RMSEA and SRMR', which a saved fit of earlier versions still lists: EARLIER_WORDS)
-    UNINFORMATIVE_BASELINE = ("weakly correlated items", "CFI and TLI bounded by the baseline", False)
+    # RMSEA and SRMR'; the kind's own name, s26: 'weakly correlated items', which the caution no longer says of items
+    # that correlate well within their factors; a saved fit of earlier versions still lists either: EARLIER_WORDS)
+    UNINFORMATIVE_BASELINE = ("uninformative baseline", "CFI and TLI bounded by the baseline", False)
     # not of the solution but of the sample: a row filter that selects rows by their answers to a model item
     # (pipeline.row_filter_cautions): the item's range is restricted, its correlations changed
     SELECTED_ON_ITEM = ("rows selected on a model item", "selected on an item", False)
@@ -193,6 +194,10 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the rows: ids of the id column (or row names) that name several rows, so nothing
     # merged by them (a scores file) matches the rows one to one (pipeline.inputs.repeated_id_problems)
     REPEATED_IDS = ("ids that name several rows", "repeated ids", False)
+    # ... and a column named as the id of teams, schools or classes (data.column_roles.unit_id_column) whose units the
+    # design does not take for clusters: their members' rows analysed as independent cases (s26: said as people
+    # answering twice)
+    UNIT_ROWS_AS_INDEPENDENT = ("rows of one team or school as independent cases", "units not clusters", False)
     ANSWERS_BEYOND_FITTED = ("answers beyond the fitted rows", "answers beyond the fit's", False)
     # not of the solution but of the rows scored: an item that runs against its factor in the scored file while its
     # loading in the earlier fit runs with it (coded the other way round: workflows.factor_scores)
@@ -321,7 +326,7 @@ def left_out_words(intercepts: int | None, thresholds: int | None) -> str:
              if intercepts != 0 else "",
              (f"{thresholds} " if thresholds is not None else "") + f"threshold{'s' if thresholds != 1 else ''}"
              if thresholds != 0 else ""]
-    return " and ".join(p for p in parts if p)
+    return word_list(p for p in parts if p)
 
 
 def rows_per_parameter(rows: Sequence[float], free: Sequence[int], groups: Sequence[str] | None = None,
@@ -374,7 +379,7 @@ def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Seq
                           f"more from sample to sample",)
     labels = tuple(groups)
     each = [f"{written_group(f.group, labels)} ({f.figures()})" for f in noted]
-    listed = each[0] if len(each) == 1 else f"{', '.join(each[:-1])} and {each[-1]}"
+    listed = word_list(each)
     means, steps = {f.uncounted for f in noted}, {f.thresholds for f in noted}
     shared = left_out_words(means.pop() if len(means) == 1 else None if 0 not in means else 0,
                             steps.pop() if len(steps) == 1 else None if 0 not in steps else 0)
@@ -498,12 +503,12 @@ class Problem:
             K.NOT_IDENTIFIED: "a model that the data do not identify",
             K.NEGATIVE_RESIDUAL_VARIANCE: f"a negative residual variance of {', '.join(names)} ({v})",
             K.NEGATIVE_FACTOR_VARIANCE: f"a negative variance of factor {', '.join(names)} ({v})",
-            K.FACTOR_CORRELATION_BEYOND_ONE: f"a correlation of factors {' and '.join(names)} of {v}",
-            K.RESIDUAL_CORRELATION_BEYOND_ONE: f"a residual correlation of {' and '.join(names)} of {v}",
+            K.FACTOR_CORRELATION_BEYOND_ONE: f"a correlation of factors {word_list(names)} of {v}",
+            K.RESIDUAL_CORRELATION_BEYOND_ONE: f"a residual correlation of {word_list(names)} of {v}",
             K.FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE: "a factor covariance matrix that is not positive definite",
             K.RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE: "a residual covariance matrix that is not positive definite",
             K.STANDARDIZED_LOADING_ABOVE_ONE: f"a standardized loading of {names[-1] if names else ''} above 1 ({v})",
-            K.ON_BOUND: f"{', '.join(label_words(label, quoted=quoted, groups=tuple(groups)) for label in self.parameters)} "
+            K.ON_BOUND: f"{word_list(label_words(label, quoted=quoted, groups=tuple(groups)) for label in self.parameters)} "
                         f"held at a bound",
             K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
@@ -551,7 +556,7 @@ class Problem:
             K.FILTER_LABELS_BY_CASE: "a row filter whose text the column also holds in other upper and lower case, "
                                      "which it treated as another value",
             K.KEYING_AGAINST_LOADINGS: f"a declared keying of reverse-scored items contradicted by the loadings of "
-                                       f"{', '.join(keyed)} on {names[0] if names else ''}",
+                                       f"{word_list(keyed)} on {names[0] if names else ''}",
             K.WEAK_MARKER: f"a marker of factor {names[0] if names else ''}, {keyed[0] if keyed else ''}, whose "
                            f"standardized loading ({journal_decimal(self.value or 0.0, digits=2)}) is below the .20 in "
                            f"size that common practice reads as negligible, on which the unstandardized loadings and "
@@ -569,7 +574,7 @@ class Problem:
                                         "factor's items",
             K.SCORES_LESS_RELIABLE: "scores less reliable than decisions about individuals usually need",
             K.SCORED_FACTORS_HARDLY_DISTINCT: "scores of factors that correlate nearly 1 in the model",
-            K.FACTORS_HARDLY_DISTINCT: f"a correlation of factors {' and '.join(names)} of "
+            K.FACTORS_HARDLY_DISTINCT: f"a correlation of factors {word_list(names)} of "
                                        f"{journal_decimal(self.value or 0.0, digits=2)}, nearly 1",
             K.SPARSE_ANSWERS: "rows with gaps that answer too few items together for the saturated model of "
                               "full-information ML",
@@ -776,7 +781,7 @@ def identification_problems(labels: tuple[str, ...], se: np.ndarray, estimates: 
         return []
     return [Problem(
         ProblemKind.EMPIRICALLY_UNDERIDENTIFIED, tuple(labels[k] for k in weak), float(np.max(se[weak])),
-        "The data barely determine " + ", ".join(label_words(labels[k]) for k in weak[:5]) + (" and others" if len(weak) > 5 else "")
+        "The data barely determine " + cut_list(weak, 5, lambda k: label_words(labels[k]))
         + ": their standard errors are huge, so the model is close to not identified with these data.",
         "Check factors with two indicators (they need a clear correlation with another factor) and loadings near zero; "
         "fix or drop what the data cannot inform.", None)]
@@ -1023,7 +1028,7 @@ def not_admissible_sentence(counts: Iterable[tuple[int, int, str, str]], samples
     parts = [f"{n} of the {converged} converged {samples}{where} ({named or 'problems not recorded'})"
              for n, converged, named, where in counts]
     one = len(counts) == 1 and counts[0][0] == 1
-    return (f"{' and '.join(parts)} {'has' if one else 'have'} a solution that is not admissible, as a single fit "
+    return (f"{word_list(parts)} {'has' if one else 'have'} a solution that is not admissible, as a single fit "
             f"would judge it; {'it is' if one else 'they are'} kept in {kept_in}")
 
 
@@ -1150,7 +1155,8 @@ def refuse_inadmissible_fit(problems, source: str, purpose: str, flagged: bool =
 
 #: the words earlier versions wrote as a problem's kind into a saved fit's JSON -> the kind's member name
 #: (ProblemKind._missing_)
-EARLIER_WORDS = {"baseline model misfits little: read CFI and TLI beside RMSEA and SRMR": "UNINFORMATIVE_BASELINE"}
+EARLIER_WORDS = {"baseline model misfits little: read CFI and TLI beside RMSEA and SRMR": "UNINFORMATIVE_BASELINE",
+                 "weakly correlated items": "UNINFORMATIVE_BASELINE"}
 
 
 #: the average correlation of the items of one factor below which items correlate weakly: the lower end of the

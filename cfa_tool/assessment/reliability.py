@@ -51,7 +51,7 @@ covariance, Theta the residual covariances and k the keys:
 from __future__ import annotations
 
 import math
-from collections.abc import Collection
+from collections.abc import Collection, Mapping, Sequence
 from dataclasses import dataclass, replace
 from enum import Enum
 from functools import lru_cache
@@ -59,9 +59,11 @@ from functools import lru_cache
 import numpy as np
 
 from cfa_tool.assessment.method_factors import SMALL_LOADING, bifactor_parts, uncorrelated_pairs
-from cfa_tool.language.names import reference_text
+from cfa_tool.language.names import reference_text, written_group
+from cfa_tool.model.description import FactorScale
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.note_parts import Command, Note, Text
+from cfa_tool.numbers import word_list
 from cfa_tool.numerics.plain import PLAIN_TYPES, clean
 
 
@@ -515,7 +517,7 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
                     continue  # docstring)
                 short = [latent[f] for f in (a, b) if counts_l[f] < 2]
                 if short:
-                    htmt.append(Htmt(latent[a], latent[b], None, f"{' and '.join(short)} "
+                    htmt.append(Htmt(latent[a], latent[b], None, f"{word_list(short)} "
                                      f"{'has' if len(short) == 1 else 'have'} fewer than two items of its own, so there "
                                      f"is no correlation within it to compare with"))
                     continue
@@ -525,7 +527,7 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
                     htmt.append(Htmt(latent[a], latent[b], abs(hetero) / math.sqrt(mono_a * mono_b)))
                 else:
                     weak = [latent[f] for f, value in ((a, mono_a), (b, mono_b)) if value <= 0]
-                    htmt.append(Htmt(latent[a], latent[b], None, f"the keyed items of {' and '.join(weak)} do not "
+                    htmt.append(Htmt(latent[a], latent[b], None, f"the keyed items of {word_list(weak)} do not "
                                      f"correlate positively on average, so the ratio is not defined"))
     return results, htmt
 
@@ -571,15 +573,39 @@ REVERSED_STATEMENT = " (its 'reversed' statement)"
 DECLARE_REVERSED = " with 'reversed ... on LOWEST to HIGHEST'"
 
 
-def keying_warnings(factors: list[FactorReliability] | tuple, prefix: str = "") -> list[Text]:
+def keying_warnings(factors: list[FactorReliability] | tuple, prefix: str = "",
+                    scales: Mapping[str, FactorScale] | None = None) -> list[Text]:
     """Notes on factors half of whose items load each way (no majority tells which way they point).  Where the
     declared keying contradicts the loadings' signs, and factors that point against their items, are problems of
-    the solution, first in every view (:func:`keying_problems`)."""
-    out = []
-    split = [r for r in factors if r.evenly_split and not r.points_against and r.keying is not Keying.DECLARED]
-    if split:  # one caution for all such factors: the advice is the same for each
-        out.append(_split_warning(split, prefix))
+    the solution, first in every view (:func:`keying_problems`).  ``scales``: how each factor's scale is set
+    (model.description.FactorScale), which decides its direction (the marker, its loadings' sum under effects
+    coding, the start of the estimation under variance scaling); none: the marker."""
+    split = _split(factors)
+    return [_split_warning(split, prefix, scales or {})] if split else []  # one caution for all: the same advice
+
+
+def group_keying_warnings(per_group: Sequence[tuple[str, Sequence[FactorReliability]]],
+                          scales: Mapping[str, FactorScale] | None = None) -> list[Text]:
+    """:func:`keying_warnings` of a fit of several groups (``per_group``: each group's label and its factors), each
+    caution said once: for every group where it holds alike ('in every group, factor 'f': half of its items load each
+    way ...'), else naming the groups where it holds as said ('in groups north and south, ...'), one caution for each
+    way it differs (s26: a balanced scale's caution was repeated, word for word, once per group)."""
+    labels = [label for label, _ in per_group]
+    said: dict[Note, list[str]] = {}
+    for label, factors in per_group:
+        split = _split(factors)
+        if split:
+            said.setdefault(_split_warning(split, "", scales or {}), []).append(label)
+    out: list[Text] = []
+    for note, groups in said.items():
+        where = ("in every group, " if len(groups) == len(labels) else
+                 f"in group{'s' if len(groups) > 1 else ''} {word_list(written_group(g, labels) for g in groups)}, ")
+        out.append(Note((where,) + note.parts))
     return out
+
+
+def _split(factors) -> list[FactorReliability]:
+    return [r for r in factors if r.evenly_split and not r.points_against and r.keying is not Keying.DECLARED]
 
 
 def miskeyed(r: FactorReliability) -> bool:
@@ -695,29 +721,56 @@ def _split_against_declared(r: FactorReliability, standardized=None) -> tuple[No
                   "out) and how the answers were coded, then fit again.")))
 
 
-def _split_warning(split: list[FactorReliability], prefix: str) -> Note:
+def _split_warning(split: list[FactorReliability], prefix: str, scales: Mapping[str, FactorScale]) -> Note:
     """The caution for the factors half of whose items load each way (``evenly_split``) with no 'reversed'
-    statement: one sentence for all of them, each factor's two halves named."""
+    statement: one sentence for all of them, each factor's two halves named, and what decides the way each points
+    (:func:`_direction_words`: the marker, or what takes its place under another scaling)."""
     def halves(r: FactorReliability) -> str:
         """The two halves, weak items on neither side (item_keys: their signs key nothing), named after them."""
-        kept = ', '.join(x for x in r.items if x not in r.reversed and x not in r.weak)
-        weak = (f"; {', '.join(r.weak)}, of standardized loading{'' if len(r.weak) == 1 else 's'} below {WEAK_LINE} "
+        kept = word_list(x for x in r.items if x not in r.reversed and x not in r.weak)
+        weak = (f"; {word_list(r.weak)}, of standardized loading{'' if len(r.weak) == 1 else 's'} below {WEAK_LINE} "
                 f"in size, load{'s' if len(r.weak) == 1 else ''} too weakly to count on either side" if r.weak else "")
-        return f"{kept} against {', '.join(r.reversed)}{weak}"
+        return f"{kept} against {word_list(r.reversed)}{weak}"
 
     if len(split) == 1:
         r = split[0]
         return Note((f"{prefix}factor '{r.factor}': half of its items load each way ({halves(r)}), so the data "
-                     f"cannot tell which way it points: its direction follows its marker, and its correlations, mean "
-                     f"differences and scores may read the wrong way; declare the items worded against the trait as "
-                     f"scored in reverse", Command(DECLARE_REVERSED), ", which orients the factor by its other items "
-                     "and keys the sums"))
-    named = ", ".join(f"'{r.factor}'" for r in split[:-1]) + f" and '{split[-1].factor}'"
+                     f"cannot tell which way it points: {_direction_words([scales.get(r.factor)])}, and its "
+                     f"correlations, mean differences and scores may read the wrong way; declare the items worded "
+                     f"against the trait as scored in reverse", Command(DECLARE_REVERSED), ", which orients the "
+                     "factor by its other items and keys the sums"))
+    named = word_list(f"'{r.factor}'" for r in split)
     return Note((f"{prefix}factors {named}: half of each one's items load each way "
                  f"({'; '.join(f'{r.factor}: {halves(r)}' for r in split)}), so the data cannot tell which way each "
-                 f"points: its direction follows its marker, and its correlations, mean differences and scores may "
-                 f"read the wrong way; declare the items worded against the trait as scored in reverse",
-                 Command(DECLARE_REVERSED), ", which orients each factor by its other items and keys the sums"))
+                 f"points: {_direction_words([scales.get(r.factor) for r in split])}, and its correlations, mean "
+                 f"differences and scores may read the wrong way; declare the items worded against the trait as "
+                 f"scored in reverse", Command(DECLARE_REVERSED), ", which orients each factor by its other items and "
+                 "keys the sums"))
+
+
+def _direction_words(scales: Sequence[FactorScale | None]) -> str:
+    """What decides the way a factor without a majority of its items points ('its direction follows its marker,
+    x1'), by how its scale is set (``scales``: one per factor named, None where not known: a marker).  A marker's
+    sign gives the direction; effects coding holds the loadings' sum positive; under variance scaling no value the
+    model fixes does, and the estimation keeps the way its start takes: the majority of the items, on a tie the
+    larger sum of the loadings (model.starts._orientation), so the half that loads more strongly points up.  Several
+    factors: each one's (s26: 'its direction follows its marker' was said of factors scaled by their variance)."""
+    methods = {s.method if s is not None else "marker" for s in scales}
+    one = len(scales) == 1
+    if methods == {"marker"}:
+        marker = scales[0].marker if one and scales[0] is not None else None
+        return "its direction follows its marker" + (f" ({marker})" if marker else "") if one else \
+            "each one's direction follows its marker"
+    if methods == {"variance"}:
+        return ("no marker sets its direction (its variance is fixed at 1), so the estimation takes the way its more "
+                "strongly loading half points" if one else
+                "no marker sets their directions (their variances are fixed at 1), so the estimation takes the way "
+                "each one's more strongly loading half points")
+    if methods == {"effects"}:
+        return ("its direction follows the sum of its loadings, which effects coding holds positive" if one else
+                "each one's direction follows the sum of its loadings, which effects coding holds positive")
+    return ("its direction follows how the model sets its scale, not the data" if one else
+            "each one's direction follows how the model sets its scale, not the data")
 
 
 def _turned_warning(r: FactorReliability) -> tuple[str, Text]:

@@ -38,9 +38,11 @@ def distinct_words(values: np.ndarray) -> list[str]:
     return list(written.values())
 
 
-def stray_text(values: np.ndarray) -> bool:
+def stray_text(values: np.ndarray, few: bool = True) -> bool:
     """Whether a column's text cells look like slips among numbers (a typed 'x', a '?'), not answers recorded as
-    words: at most 3 text cells (or 1% of the cells), against at least ten times as many numbers."""
+    words: at most 3 text cells (or 1% of the cells), against at least ten times as many numbers.  ``few`` False:
+    text among numbers however many its cells, against ten times as many numbers (a word of no answer such as 'Weiß
+    nicht' in 5 of 300 cells, which a researcher gives with --missing-codes: data.moments.stray_words, s26)."""
     texts = numbers = 0
     for value in values:
         if isinstance(value, str):
@@ -51,7 +53,7 @@ def stray_text(values: np.ndarray) -> bool:
                     numbers += 1
         elif value is not None and not (isinstance(value, float) and value != value):
             numbers += 1
-    return 0 < texts <= max(3, len(values) // 100) and numbers >= 10 * texts
+    return 0 < texts and (not few or texts <= max(3, len(values) // 100)) and numbers >= 10 * texts
 
 
 def _scale_numbers(values: np.ndarray, points: int) -> bool:

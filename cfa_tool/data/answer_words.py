@@ -23,7 +23,7 @@ from cfa_tool.errors import DataError, Location, ModelError, OptionError, charac
 from cfa_tool.options import Option
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.language.spec import AnswerCoding, AnswerWord, Name, Spec, answer_key
-from cfa_tool.numbers import number as strict_number, user_number
+from cfa_tool.numbers import number as strict_number, user_number, word_list
 
 def _shown(value: object) -> str:
     if isinstance(value, (int, float, np.integer, np.floating)) and not isinstance(value, (bool, np.bool_)):
@@ -341,7 +341,7 @@ def answer_notes(spec: Spec, coded: tuple[str, ...] | None = None, numbers_only:
         for answer in coding.answers:
             if not (answer.word is None and answer.number == answer.code):  # a number kept as itself: said apart
                 by_code.setdefault(answer.code, []).append(answer.shown)
-        shared = [f"{' and '.join(repr(printable(w)) for w in words)} share the code {user_number(code)}"
+        shared = [f"{word_list(repr(printable(w)) for w in words)} share the code {user_number(code)}"
                   for code, words in by_code.items() if len(words) > 1]
         one = ("" if not shared else
                f"; {shared[0]}, so they are analysed as one answer" if len(shared) == 1 else

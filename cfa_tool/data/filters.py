@@ -28,7 +28,7 @@ from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.options import Option
 from cfa_tool.language.names import written_name
-from cfa_tool.numbers import count_text, cut_list, more_words, number, user_number
+from cfa_tool.numbers import count_text, cut_list, more_words, number, user_number, word_list
 from cfa_tool.data.renamed_columns import renamed_hint
 from cfa_tool.suggest import close_names, did_you_mean
 
@@ -187,7 +187,7 @@ def kept_by_words(filters) -> str:
     merged = [f for f, _ in merged_exclusions(list(filters))]
     if not merged:
         return ""
-    return f"the row filter{'s' if len(merged) > 1 else ''} {', '.join(quoted_filter(f) for f in merged)}"
+    return f"the row filter{'s' if len(merged) > 1 else ''} {word_list(quoted_filter(f) for f in merged)}"
 
 
 def filters_in_words(filters) -> list[str]:
@@ -224,7 +224,7 @@ def kept_range_words(filters) -> str:
     for f in others:
         words = f.in_words()
         bits.append(words[len(f"{name} was "):] if words.startswith(f"{name} was ") else words)
-    listed = bits[0] if len(bits) == 1 else f"{', '.join(bits[:-1])} and {bits[-1]}"
+    listed = word_list(bits)
     return f"{name} was {listed}"
 
 
@@ -434,7 +434,7 @@ def quoted_filter(f: RowFilter) -> str:
 
 def _listed(texts: list[str]) -> str:
     """'a', 'a and b', 'a, b and c'."""
-    return texts[0] if len(texts) == 1 else f"{', '.join(texts[:-1])} and {texts[-1]}"
+    return word_list(texts)
 
 
 def _filter_notes(counted: list[RowFilter], said: list[tuple]) -> list[str]:
@@ -690,7 +690,7 @@ def _case_hint(alike: tuple[tuple[str, int], ...]) -> str:
     the words of an 'answers' statement, which ignore case), with the labels present that differ only in case
     (``alike``: data.labels.other_case)."""
     return ("; a row filter matches text exactly, upper and lower case included (unlike the answer words a model "
-            "file codes)" + (f": write {' or '.join(repr(printable(a)) for a, _ in alike)} as the data have it"
+            "file codes)" + (f": write {word_list([repr(printable(a)) for a, _ in alike], 'or')} as the data have it"
                             if alike else ""))
 
 

@@ -43,13 +43,14 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
         raise OptionError(f"{source}: the group column '{printable(column)}' has {len(labels):,} different values; a "
                           f"multi-group fit estimates the model in each group, at most {MAX_GROUPS} of them (is it the "
                           f"right column? an identifier of classes or persons is not a grouping for invariance)")
-    if len(labels) < 2:
-        only = f" ({printable(written_group(labels[0], labels))})" if labels else ""
+    if len(labels) < 2:  # in words, not 'has only 1 group (a)' (s26)
         merged = [texts for _, texts in merged_labels(values) if len(texts) > 1]
         read = (f" (labels that differ only by spaces at their ends, by invisible format characters or by Unicode form "
                 f"are one group: {listed_labels([(labels[0], merged[0])])})") if merged and labels else ""
-        raise DataError(f"{source}: the group column '{column}' has only {len(labels)} group{only}{read}; a "
-                        f"multi-group analysis needs at least two")
+        said = (f"puts every row in group {printable(written_group(labels[0], labels))}" if labels else
+                "is empty in every row")
+        raise DataError(f"{source}: the group column '{printable(column)}' {said}{read}; a multi-group analysis needs "
+                        f"at least two groups")
     if reference is None:
         reference, _ = default_reference(frame, column, labels)
     else:
@@ -78,7 +79,7 @@ def refuse_look_alike_labels(values: pd.Series, column: str, source: str) -> Non
     if not alike:
         return
     found = alike[0]
-    listed = " and ".join(f"'{spelled_out(label)}' ({n:,} row{'s' if n != 1 else ''})" for label, n in found)
+    listed = word_list(f"'{spelled_out(label)}' ({n:,} row{'s' if n != 1 else ''})" for label, n in found)
     marks = dict.fromkeys(ch for label, _ in found for ch in label if unicodedata.category(ch) == "Cf")
     named = ", ".join(f"U+{ord(ch):04X} {unicodedata.name(ch, 'UNNAMED CHARACTER')}" for ch in marks)
     more = f" ({len(alike) - 1} more such set{'s' if len(alike) > 2 else ''} of labels)" if len(alike) > 1 else ""

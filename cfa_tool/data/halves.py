@@ -551,7 +551,7 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet:
     shown = printable(str(choice.path))
     _check_drawn(saved, shown)
     if choice.name not in saved.names():
-        listed = " and ".join(f"'{printable(n)}'" for n in saved.names())
+        listed = word_list(f"'{printable(n)}'" for n in saved.names())
         raise OptionError(f"{shown} holds the halves {listed}, not '{printable(choice.name)}'"
                           + _named_by_the_other(choice.name, saved.names(), choice.path))
     if not isinstance(data, (str, Path)):

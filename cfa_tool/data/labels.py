@@ -14,7 +14,7 @@ from dataclasses import dataclass
 from collections.abc import Iterable
 from typing import TYPE_CHECKING
 
-from cfa_tool.numbers import cut_list, more_words, names_shown, user_number
+from cfa_tool.numbers import cut_list, more_words, names_shown, user_number, word_list
 from cfa_tool.errors import printable
 from cfa_tool.language.names import composed
 from cfa_tool.note_parts import Command, Note, Text
@@ -245,7 +245,7 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
         notes.append(f"the {part} column '{printable(column)}' holds codes with value labels in the data file; its "
                      f"{units} are named by those labels ({listed})")
         for label, codes in shared_labels(coded):
-            said = ", ".join(printable(c) for c in codes[:-1]) + f" and {printable(codes[-1])}"
+            said = word_list(printable(c) for c in codes)
             notes.append(f"in the {part} column '{printable(column)}', codes {said} carry the same value label "
                          f"'{printable(label)}' and were read as one {unit}; if they are different {units}, give them "
                          f"different value labels in the data file")
@@ -278,7 +278,7 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
 
     marked = frame.attrs.get(MARKED, {}).get(column)
     if marked:  # 'N/A' read as no answer: a marker of missing data, or the name of a group?
-        listed = ", ".join(f"'{printable(m)}' ({n} cell{'s' if n != 1 else ''})" for m, n in marked.items())
+        listed = word_list(f"'{printable(m)}' ({n} cell{'s' if n != 1 else ''})" for m, n in marked.items())
         notes.append(f"in the {part} column '{printable(column)}', cells written as {listed} were read as no answer, "
                      f"so their rows have no {unit}; if such a marker names a {unit}, write it as a word (such as 'not "
                      f"applicable') in a copy of the file")
@@ -293,7 +293,7 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
         few = names_shown(len(said), shown)
         named = [f"'{printable(label)}' ({n} row{'s' if n != 1 else ''})" for label, n in said[:few]]
         listed = (", ".join(named) + more_words(len(said) - few) if few < len(said) else
-                  named[0] if len(named) == 1 else f"{', '.join(named[:-1])} and {named[-1]}")
+                  word_list(named))
         first = printable(said[0][0]).replace("'", "")
         filter_text = f"{printable(column)} != '{first}'"
         notes.append(f"in the {part} column '{printable(column)}', {listed} read{'s' if len(said) == 1 else ''} "
@@ -317,9 +317,9 @@ def nominal_items_note(frame: "pd.DataFrame", items, source: str) -> list[str]:
     if not nominal or not others:
         return []
     one = len(nominal) == 1
-    named = ", ".join(f"'{printable(x)}'" for x in nominal)
+    named = word_list(f"'{printable(x)}'" for x in nominal)
     return [f"{source}: the SPSS file measures the item{'' if one else 's'} {named} as nominal (categories without "
-            f"an order) and the other items as {' or '.join(others)}; the model analyses every item's codes as "
+            f"an order) and the other items as {word_list(others, 'or')}; the model analyses every item's codes as "
             f"ordered answers: check that {'its' if one else 'their'} codes are answers on the scale of the others, "
             f"or leave {'it' if one else 'them'} out of the model"]
 
@@ -364,7 +364,7 @@ def listed_labels(merged: list[tuple[str, list]], shown: int = 5) -> str:
             return f"'{spelled_out(str(text[0]))}' ({said})"
         return f"'{spelled_out(str(text))}'"
 
-    return cut_list(merged, shown, lambda m: f"{' and '.join(written(t) for t in m[1])} as '{printable(m[0])}'",
+    return cut_list(merged, shown, lambda m: f"{word_list(written(t) for t in m[1])} as '{printable(m[0])}'",
                     sep="; ", lead="; and ")
 
 
@@ -458,7 +458,7 @@ def refuse_moved_labels(fitted: dict | None, value_labels: dict, items, source: 
         return
     item, pairs = moved[0]
     label, code, their_code = pairs[0]
-    recode = ", ".join(f"{user_number(c)} as {user_number(t)}" for _, c, t in pairs)
+    recode = word_list(f"{user_number(c)} as {user_number(t)}" for _, c, t in pairs)
     others = [printable(i) for i, _ in moved[1:]]
     more = (f"; {len(others)} more item{'s' if len(others) != 1 else ''} ({cut_list(others, 5)}) {'has' if len(others) == 1 else 'have'} labels on other "
             f"codes too") if others else ""

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from cfa_tool.numbers import count_text, more_words, names_shown, user_number
+from cfa_tool.numbers import count_text, more_words, names_shown, user_number, word_list
 from cfa_tool.suggest import LOOK_ALIKE, close_names, look_alike
 from cfa_tool.errors import DataError, ModelError, OptionError, character_names, printable
 from cfa_tool.note_parts import Command, Note
@@ -269,7 +269,7 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
         if lines and all(n in codings for n in strays):  # the codes are words' codes: the two statements disagree
             raise ModelError(
                 f"the 'answers' {'statement' if len(lines) == 1 else 'statements'} on line "
-                f"{' and '.join(str(n) for n in lines)} {'codes' if len(lines) == 1 else 'code'} answers of "
+                f"{word_list(str(n) for n in lines)} {'codes' if len(lines) == 1 else 'code'} answers of "
                 f"{data_name} outside the scale {user_number(keying.minimum)} to {user_number(keying.maximum)} declared here: "
                 f"{'; '.join(shown)}{more}; number the words to match this scale, or give the scale's true lowest "
                 f"and highest answers here",
@@ -408,7 +408,7 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
         shown = ", ".join(f"'{x}'" for x in items[:k]) + more_words(len(items) - k)
         out.append(f"{data_name}: the value labels of {shown} name the answers {user_number(low)} to {user_number(high)}, "
                    f"but more than {FEW_SHARE:.0%} of {'their' if len(items) > 1 else 'its'} answers are "
-                   f"{' and '.join(user_number(v) for v in values)}, beyond them: too many for typing errors, so they "
+                   f"{word_list(user_number(v) for v in values)}, beyond them: too many for typing errors, so they "
                    f"are analysed as answers; the labels may belong to another coding of the scale (labels of 0 to 4 "
                    f"on answers 1 to 5, say), so check them against the questionnaire before reading the labels table")
     return out

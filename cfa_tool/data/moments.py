@@ -192,10 +192,12 @@ STRAY_WORDS_SHOWN = 5
 
 
 def stray_words(names: Sequence[str], columns: list[pd.Series], source: str) -> None:
-    """Text cells among numbers (data.answer_scales.stray_text: slips, not answers recorded as words) in several
+    """Text cells among numbers (data.answer_scales.stray_text: not answers recorded as words) in several
     cells of the columns ``names``: one error counting them and naming each different word with its cells and the
     first cell, rather than the first cell alone (new-user trial s13, U4: 'Ne sait pas' in 11 cells of 9 items, of
-    which one was named).  One such cell is left to :func:`_object_column`'s message."""
+    which one was named), with the --missing-codes that reads them as no answer; also where they are more than a slip
+    leaves in a column, though no more than a tenth of its numbers (s26: 'Weiß nicht' in 5 of 300 cells was told to
+    recode the column as numbers, without the option).  One such cell is left to :func:`_object_column`'s message."""
     found: dict[str, int] = {}
     columns_with: list[str] = []
     first = None
@@ -203,7 +205,7 @@ def stray_words(names: Sequence[str], columns: list[pd.Series], source: str) -> 
         if column.dtype.kind in "iufbcmM":
             continue
         values = column.to_numpy(dtype=object)
-        if not stray_text(values):
+        if not stray_text(values, few=False):
             continue
         cells = [k for k, v in enumerate(values) if isinstance(v, str) and v.strip()
                  and strict_number(v.strip()) is None and v.strip().lower() not in ("true", "false")]

@@ -38,10 +38,10 @@ import pandas as pd
 from cfa_tool.language.names import composed
 from cfa_tool.language.spec import answer_key
 from cfa_tool.errors import DataError, clipped, printable
-from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, number, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, number, user_number, word_list
 from cfa_tool.input_files import DATA_FRAME, base_name
 from cfa_tool.note_parts import Command, Note, Text
-from cfa_tool.options import Option
+from cfa_tool.options import Option, shell_word
 
 #: phrases that say a value is not an answer (compared after :func:`_plain`): one vocabulary for labels and cells
 NON_ANSWER_PHRASES = frozenset({
@@ -115,8 +115,10 @@ def run_words() -> tuple[str, ...]:
 def codes_given(codes, shown_as=None) -> str:
     """--missing-codes with ``codes`` (numbers and words, as data.missing_codes.missing_value reads them) as a shell takes it:
     the list written as a CSV line (numbers as written, :func:`user_number`; a word holding a comma in double quotes,
-    as the option reads it), each code once (words alike but for case once), the whole in double quotes when it holds
-    spaces or quotes: --missing-codes -99,8,9, --missing-codes "Ne sait pas,\\"No, not asked\\""; in Python, the list
+    as the option reads it), each code once (words alike but for case once), the line as the shell takes a word of
+    advice (options.shell_word, the one rule: s26, its own quoting left a '!' in double quotes, which an interactive
+    bash reads as history): --missing-codes -99,8,9, --missing-codes "Ne sait pas", --missing-codes
+    'Ne sait pas,"No, not asked"'; in Python, the list
     as ``missing_codes=`` takes it: missing_codes=[-99, 8, 'Ne sait pas'].  The one writer of a list of codes that
     advice gives to copy: advice that adds a code keeps those the run gave (s21: '--missing-codes 8,9' after
     '--missing-codes -99' would have read -99 as an answer again).  ``shown_as``: the interface whose form to write
@@ -138,10 +140,7 @@ def codes_given(codes, shown_as=None) -> str:
     line = io.StringIO()
     csv.writer(line, lineterminator="").writerow(user_number(c) if isinstance(c, float) else c
                                                  for c in unique.values())
-    text = line.getvalue()
-    if any(c.isspace() or c in "\"'\\$`" for c in text):
-        text = '"' + "".join("\\" + c if c in '"\\$`' else c for c in text) + '"'
-    return f"{Option.MISSING_CODES.flag} {text}"
+    return f"{Option.MISSING_CODES.flag} {shell_word(line.getvalue())}"
 
 
 #: the key of a frame's ``attrs`` that holds the codes and words of no answer the run gave (--missing-codes, as
@@ -830,7 +829,7 @@ def _brief(names: list[str], noun: str) -> str:
     over: numbers.names_shown)."""
     if len(names) > names_shown(len(names), BRIEF):
         return cut_list(names, BRIEF, noun=noun)
-    return names[0] if len(names) == 1 else f"{', '.join(names[:-1])} and {names[-1]}"
+    return word_list(names)
 
 
 def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | None = None,
@@ -889,9 +888,9 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | Non
         parts.append(f"{group[0].shown()} ({counted(cells, 'cell')}: {listed})")
     total = sum(len(f.rows) for f in mine)
     kinds = {f.kind for f in mine}
-    how = " or ".join(w for k, w in ((NonAnswerKind.LABELLED, "labels as no answer"),
+    how = word_list([w for k, w in ((NonAnswerKind.LABELLED, "labels as no answer"),
                                       (NonAnswerKind.DECLARED, "declares as missing values"),
-                                      (NonAnswerKind.WRITTEN, "writes as no answer")) if k in kinds)
+                                      (NonAnswerKind.WRITTEN, "writes as no answer")) if k in kinds], "or")
     held = "text that says no answer" if frame else f"values that the file {how}"
     said = (f"{count_text(total)} cell{'s' if total != 1 else ''} of the items in {name} "
             f"hold{'s' if total == 1 else ''} {held}, "

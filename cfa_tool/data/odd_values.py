@@ -55,7 +55,7 @@ from functools import cached_property
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import count_text, cut_list, user_number
+from cfa_tool.numbers import count_text, cut_list, user_number, word_list
 from cfa_tool.data.descriptives import AnswerExtremes, answer_extremes
 from cfa_tool.data.missing_codes import beyond_as_a_code
 from cfa_tool.data.kept_rows import RowNaming, row_naming, row_words, rows_listed, text_lines
@@ -275,7 +275,7 @@ class OddValues:
         values = [_number(v) for v in self.distinct_values()]
         if len(values) == 1:
             return f"the code {values[0]}"
-        return f"the codes {', '.join(values[:-1])} and {values[-1]}"
+        return f"the codes {word_list(values)}"
 
     def _share_words(self) -> str:
         """'480 of their 4,800 answers (10.0%)': the cells named among the answers of their columns."""
@@ -611,7 +611,7 @@ def _block_advice(odd: OddValues, holder: str) -> Note:
 
 
 def _joined(items: list[str]) -> str:
-    return items[0] if len(items) == 1 else f"{', '.join(items[:-1])} and {items[-1]}"
+    return word_list(items)
 
 
 def _odd_values(frame: pd.DataFrame, columns, row_numbers, X, extremes: AnswerExtremes | None = None) -> tuple[OddValues, ...]:

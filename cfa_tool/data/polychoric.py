@@ -807,7 +807,7 @@ def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]
     beyond = sorted({v for name, empty in items.items() for v in empty if name not in worded and name not in moved  # a word's code is real
                      and len(seen[name]) and (v < min(seen[name]) or v > max(seen[name])) and code_like(v)})  # a code?
     codes = [f"{user_number(v)}" for v in beyond]
-    first = (f"if {' and '.join(codes)} {'is' if len(codes) == 1 else 'are'} not a real answer (a typing "
+    first = (f"if {word_list(codes)} {'is' if len(codes) == 1 else 'are'} not a real answer (a typing "
              f"error or a code for no answer), give {advice_codes(given, beyond)}; if real, "
              if codes else "")
     one_item, one_group = len(items) == 1, len(found) == 1
@@ -874,7 +874,7 @@ def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]
                          f"{alike or 'no other way keeps two groups to compare'}: {listed[0]}")
     return DataError(f"{said}; thresholds cannot be compared across groups with an empty category. The tool does not "
                      f"merge categories on its own{why}; the ways that keep the most answers first: "
-                     f"{'; '.join(listed[:-1])}; or {listed[-1]}")
+                     f"{word_list(listed, 'or', sep='; ')}")
 
 
 def _answers(n: int) -> str:
@@ -883,7 +883,7 @@ def _answers(n: int) -> str:
 
 def _quoted(names) -> str:
     shown = [f"'{printable(name)}'" for name in names]
-    return shown[0] if len(shown) == 1 else ", ".join(shown[:-1]) + f" and {shown[-1]}"
+    return word_list(shown)
 
 
 def _merging_statement(answers, empty, seen, name: str) -> str:
@@ -913,7 +913,7 @@ def _joining_statements(empty, seen, name: str) -> list[str]:
 
 def _categories(values) -> str:
     text = [f"{user_number(v)}" for v in values]
-    return f"category {text[0]}" if len(text) == 1 else "categories " + ", ".join(text)
+    return f"category {text[0]}" if len(text) == 1 else "categories " + word_list(text)
 
 
 def shared_levels(frames: list[pd.DataFrame], names: tuple[str, ...], source: str, pairwise: bool = False,

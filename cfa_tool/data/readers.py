@@ -41,7 +41,7 @@ from cfa_tool.note_parts import Command, Note
 from cfa_tool.options import Option
 from cfa_tool.input_files import base_name, check_input_path, input_bytes, line_count, utf16_text
 from cfa_tool.language.names import composed as composed_text
-from cfa_tool.numbers import counted, cut_list, number
+from cfa_tool.numbers import counted, cut_list, number, word_list
 
 if TYPE_CHECKING:
     from cfa_tool.data.moments import ItemColumns
@@ -309,7 +309,7 @@ def sheet_of_each(sources, sheet: str | None, option: Option = Option.SHEET) -> 
     if sheet is None:
         return tuple(None for _ in sources)
     if not any(workbook):
-        named = " and ".join(f"'{printable(str(s))}'" if isinstance(s, (str, Path)) else "a data frame" for s in sources)
+        named = word_list(f"'{printable(str(s))}'" if isinstance(s, (str, Path)) else "a data frame" for s in sources)
         raise DataError(f"none of {named} is an Excel workbook, so a sheet ('{printable(str(sheet))}') cannot be "
                         f"chosen; leave {option} out")
     return tuple(sheet if w else None for w in workbook)
@@ -715,7 +715,7 @@ class OtherSheets:
 
     def caution(self, source: str) -> str:
         name = source.replace("\\", "/").rsplit("/", 1)[-1]
-        listed = " and ".join(f"'{printable(s)}'" for s in self.sheets)
+        listed = word_list(f"'{printable(s)}'" for s in self.sheets)
         other = "sheet" if len(self.sheets) == 1 else "sheets"
         return (f"{name}: only the sheet '{printable(self.read)}' was read, and the workbook's {other} {listed} "
                 f"{'holds' if len(self.sheets) == 1 else 'hold'} columns named as every item of the model too.")

@@ -13,6 +13,7 @@ import pandas as pd
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.language.names import composed
 from cfa_tool.note_parts import Command, Note
+from cfa_tool.numbers import word_list
 from cfa_tool.options import Option
 from cfa_tool.suggest import close_names, did_you_mean
 
@@ -161,14 +162,14 @@ def rename_note(renames: tuple[ColumnRename, ...], source: str, option: Option =
     apart (note_parts.Command: a manuscript's reader runs nothing)."""
     several = len(renames) > 1
     return Note((f"{source}: column{'s' if several else ''} "
-                 + ", ".join(f"'{printable(r.old)}' read as '{printable(r.new)}'" for r in renames),
+                 + word_list(f"'{printable(r.old)}' read as '{printable(r.new)}'" for r in renames),
                  Command(f" ({option.given({r.old: r.new for r in renames})})")))
 
 
 def rename_sentence(renames: tuple[ColumnRename, ...], source: str) -> str:
     """The methods paragraph's sentence: 'In data.csv, the column named SL3r was analysed as SL3_r.'"""
     def joined(names: list[str]) -> str:
-        return names[0] if len(names) == 1 else ", ".join(names[:-1]) + " and " + names[-1]
+        return word_list(names)
 
     several = len(renames) > 1
     return (f"In {printable(source)}, the column{'s' if several else ''} named "

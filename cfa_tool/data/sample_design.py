@@ -14,7 +14,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import count_text, counted, cut_list, rounded_number, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, rounded_number, user_number, word_list
 from cfa_tool.data.kept_rows import row_of
 from cfa_tool.errors import DataError, OptionError, clipped, printable
 from cfa_tool.language.names import written_group
@@ -253,7 +253,7 @@ class SampleDesign:
         if ordinal:
             weights = ("The least-squares weights come from the variances of the thresholds and correlations with the "
                        "rows taken as independent" + (" (weights applied)" if c.weights is not None else "")
-                       + f", so the {' and '.join(x for x, col in (('clusters', c.cluster), ('strata', c.strata)) if col)}"
+                       + f", so the {word_list(x for x, col in (('clusters', c.cluster), ('strata', c.strata)) if col)}"
                        " change the standard errors and the test but not the estimates; "
                        "the standard errors and the scale-shifted test come from the design-based covariance of the "
                        "thresholds and correlations"
@@ -279,7 +279,7 @@ class SampleDesign:
         parts = [what for what, there in (("sampling weights", c.weights is not None and c.kind is WeightKind.SAMPLING),
                                           ("clusters", c.cluster is not None), ("strata", c.strata is not None))
                  if there]
-        return SCORE_TESTS_BY_DESIGN.format(parts[0] if len(parts) == 1 else ", ".join(parts[:-1]) + " and " + parts[-1],
+        return SCORE_TESTS_BY_DESIGN.format(word_list(parts),
                                             "weighted " if c.weights is not None else "")  # (s23: also without)
 
     def shared_strata_caution(self) -> str | None:
@@ -592,9 +592,9 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             rows = rows[~zero]
             gone, left = groups_weighted_out(before, columns.weights, group, w)
             if gone and len(left) < 2:  # the multi-group analysis cannot run: the weights, not the labels, are why
-                raise DataError(f"{source}: {weighted_out_words(gone, group, columns.weights)}, so only {len(left)} "
-                                f"group is left ({', '.join(repr(printable(g)) for g in left)}); a multi-group "
-                                f"analysis needs at least two")
+                left_words = f"every row left is in group '{printable(left[0])}'" if left else "no group is left"
+                raise DataError(f"{source}: {weighted_out_words(gone, group, columns.weights)}, so {left_words}; a "
+                                f"multi-group analysis needs at least two groups")
             # a group weighted out is a caution of the fit, first (pipeline.inputs.odd_value_problems)
     for what, name in (("cluster", columns.cluster), ("stratum", columns.strata)):
         if name is not None:
@@ -679,7 +679,7 @@ def groups_weighted_out(frame: pd.DataFrame, weights: str, group: str | None, w:
 
 def weighted_out_words(gone: list[tuple[str, int]], group: str, weights: str) -> str:
     return (f"every row of group{'s' if len(gone) > 1 else ''} "
-            + ", ".join(f"'{printable(g)}' ({n} row{'s' if n != 1 else ''})" for g, n in gone)
+            + word_list(f"'{printable(g)}' ({n} row{'s' if n != 1 else ''})" for g, n in gone)
             + f" of '{printable(group)}' has weight 0 in '{printable(weights)}'")
 
 
@@ -739,7 +739,7 @@ def _without_silent_rows(frame: pd.DataFrame, rows: np.ndarray, w: np.ndarray | 
     count = int(lacking.sum())
     named = (f"row {rows[lacking][0]}" if count == 1 else f"{count} rows (the first row {rows[lacking][0]})")
     note = (f"{named} {'answers' if count == 1 else 'answer'} no model variable and {'has' if count == 1 else 'have'} "
-            f"no {' or '.join(missing_parts)}, so {'it was' if count == 1 else 'they were'} left out (a notes line "
+            f"no {word_list(missing_parts, 'or')}, so {'it was' if count == 1 else 'they were'} left out (a notes line "
             f"under the data, perhaps)")
     keep = ~lacking
     return frame.loc[keep], rows[keep], (None if w is None else w[keep]), [note], keep

@@ -29,7 +29,7 @@ from cfa_tool.assessment.fit_indices import cfi_from, rmsea_from, rmsea_interval
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.inference.design import GroupsMeat, groups_meat, moment_contributions, moment_covariance
 from cfa_tool.method import FitTest
-from cfa_tool.numbers import rounded_number
+from cfa_tool.numbers import rounded_number, word_list
 from cfa_tool.model.implied import StructuredModel
 
 
@@ -346,7 +346,7 @@ def _not_positive(c: float, cb: float, test: FitTest) -> str:
         return ""
     what = (f"the {test.label} scaled test could not be computed" if not (c > 0 and np.isfinite(c)) else
             f"the robust CFI and TLI could not be computed (the {test.label} scaled test could)")
-    return (f"{what}: {' and '.join(bad)}, and a scaling factor is an "
+    return (f"{what}: {word_list(bad)}, and a scaling factor is an "
             f"estimated average of eigenvalues that must be positive; its estimate from these rows is not (heavy-tailed "
             f"answers in few rows, or answers missing in patterns that carry little information, can drive it below "
             f"zero)")

@@ -18,7 +18,7 @@ from pathlib import Path
 from lark import Lark, Token, Tree
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import user_number, word_list
 from cfa_tool.suggest import close_names, dotted_span
 from cfa_tool.errors import Location, ModelError, character_names, clipped, printable
 from cfa_tool.input_files import hidden_line_break, input_bytes, normalise_line_ends, text_lines, utf16_text
@@ -309,9 +309,7 @@ def _terminal_word(name: str) -> str:
 
 
 def _or_list(words: list[str]) -> str:
-    if len(words) <= 1:
-        return "".join(words)
-    return ", ".join(words[:-1]) + " or " + words[-1]
+    return word_list(words, "or")
 
 
 # ---------------------------------------------------------------- tree -> Spec

@@ -16,6 +16,7 @@ from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.names import read_reference, written_group, written_name
 from cfa_tool.language.spec import Spec, equality_words
 from cfa_tool.model.parameters import ParameterTable
+from cfa_tool.numbers import word_list
 
 
 #: the scale of a factor scaled by its variance in the first group, in a later group where its loadings are held equal
@@ -138,7 +139,7 @@ def parameter_words(kind: str, names: tuple[str, ...], group: str | None = None,
     if quoted:
         names = tuple(written_name(n) for n in names[:1]) + (
             tuple(names[1:]) if kind == "threshold" else tuple(written_name(n) for n in names[1:]))
-    pair = " and ".join(map(str, names))
+    pair = word_list(map(str, names))
     if kind == "loading" and len(names) == 2:
         text = f"loading of {names[1]} on {names[0]}"
     elif kind == "threshold" and len(names) == 2:
@@ -307,6 +308,12 @@ def higher_order_saving(spec: Spec, table: ParameterTable) -> tuple[tuple[str, .
     # the saving of the whole structure only where every higher-order factor could be taken out
     higher = sum(any(i.text in latent for i in f.indicators) for f in spec.factors)
     return (tuple(alone) if alone and together == 0 else ()), (whole if len(checked) == higher else None)
+
+
+def factor_scales(spec: Spec, table: ParameterTable, group: int = 0) -> dict[str, FactorScale]:
+    """How each factor's scale is set in ``group``, by the factor's name (what decides the way a factor points, for
+    the caution on factors without a majority of their items: assessment.reliability.keying_warnings)."""
+    return {s.factor: s for s in _scales(spec, table, group)}
 
 
 def _scales(spec: Spec, table: ParameterTable, group: int = 0) -> tuple[FactorScale, ...]:

@@ -681,14 +681,14 @@ def _start_values(spec: Spec, groups_of, free_index, multi: bool) -> dict[int, f
                 lines = sorted({group[0].location.line for group in spec.equal
                                 if {r.key() for r in group} & {key0[1:], key[1:]}})
                 if lines:
-                    ties.append(f"(line{'s' if len(lines) > 1 else ''} {' and '.join(map(str, lines))})")
+                    ties.append(f"(line{'s' if len(lines) > 1 else ''} {word_list(map(str, lines))})")
             if key[0] != key0[0]:
                 where = spec.equalities_location
                 ties.append("across groups" + (f" (line {where.line})" if where is not None  # else set by a step
                                                else " (by the invariance step being fitted)"))  # of 'invariance'
             exempt = (f", or let them differ across groups with 'noninvariant {reference_text(*key[1:])}'"
                       if multi and key[1:] == key0[1:] else "")
-            held = " ".join(["held equal", " and ".join(ties)]).strip()
+            held = " ".join(["held equal", word_list(ties)]).strip()
             raise _fail(spec, f"{ref0} and {ref} are {held} but given different start values: {user_number(value0)} on line "
                               f"{ref0.location.line} and {user_number(value)} on line {ref.location.line}; give them "
                               f"one{exempt}", ref)
@@ -727,7 +727,7 @@ def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by
             how = "held equal across groups" + (f" (line {where.line})" if where is not None else "")
         else:
             how = f"held equal by the 'equal' statement{'s' if len(lines) > 1 else ''} on line" + (
-                f"{'s' if len(lines) > 1 else ''} {' and '.join(map(str, lines))}")
+                f"{'s' if len(lines) > 1 else ''} {word_list(map(str, lines))}")
         why = (_why_not_free(spec, other, entries, effects, fixed_by, tied_to, multi, group_labels)
                or f"fixed at {user_number(entries[other]['fixed'])} in the first group, which sets the origin of the means")
         return f"fixed through its tie to {label} ({how}), which is {why}"

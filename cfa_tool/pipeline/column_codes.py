@@ -13,7 +13,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import user_number, word_list
 from cfa_tool.assessment.admissibility import Problem, ProblemKind
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.kept_rows import rows_listed, row_naming
@@ -87,7 +87,7 @@ def _caution(loaded: LoadedData, column: str, said: list[str], value: float, mas
     count, n = int(mask.sum()), len(frame)
     rows = rows_listed(row_numbers(frame)[mask], SHOWN, naming=row_naming(frame))
     shown = _number(value)
-    kinds = " and ".join(dict.fromkeys("row filter" if s.startswith("row filter") else s for s in said))
+    kinds = word_list(dict.fromkeys("row filter" if s.startswith("row filter") else s for s in said))
     what = (Note(("a value given as a code of no answer", Command(f" ({Option.MISSING_CODES.given(shown)})", ""),
                   ", which applies to the model's items only")) if given else
             f"far outside its other values ({_number(others[0])} to {_number(others[1])})" if others else

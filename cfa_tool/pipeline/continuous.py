@@ -23,7 +23,7 @@ from cfa_tool.assessment.identification import check_counting_rule, check_inform
 from cfa_tool.assessment.modification import NO_INDICES, helper_modification_indices, modification_indices
 from cfa_tool.assessment.robust_scores import robust_score_tests, sampling_design
 from cfa_tool.assessment.normality import Normality, Whitened, mardia, whitened_rows
-from cfa_tool.assessment.reliability import keying_warnings, reliability
+from cfa_tool.assessment.reliability import group_keying_warnings, keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
 from cfa_tool.assessment.standardized import r_squared, standardization, standardize_entries
 from cfa_tool.data.kept_rows import RowNaming, rows_listed
@@ -39,6 +39,7 @@ from cfa_tool.inference.standard_errors import observed_information, parameter_c
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import Spec
 from cfa_tool.method import Estimator, FitMethod, FitTest, Information, MissingData, WeightKind
+from cfa_tool.model.description import factor_scales
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import ImpossibleAtStart, ParameterTable, build_parameter_table, fixed_values_at_start
 from cfa_tool.model.rescale import variance_scaled
@@ -598,9 +599,10 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                                      reliability_only=not options.diagnostics),
             )
         )
-    for g, result in enumerate(group_results):
-        warnings.extend(keying_warnings(result.reliability,
-                                        f"group {written_group(table.groups[g], table.groups)}: " if multi else ""))
+    scales = factor_scales(spec, table)  # what decides the way a factor points (keying_warnings)
+    warnings.extend(group_keying_warnings([(table.groups[g], r.reliability) for g, r in enumerate(group_results)],
+                                          scales) if multi else keying_warnings(group_results[0].reliability, "",
+                                                                                scales))
     first = groups[0][1]
     if multi:
         pooled_cov, pooled_mean = pooled([m for _, m in groups])

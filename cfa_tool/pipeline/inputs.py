@@ -19,7 +19,8 @@ if TYPE_CHECKING:  # the cautions' type, for the hints only (the module imports 
     from cfa_tool.assessment.admissibility import Problem
     from cfa_tool.data.halves import RandomHalf
 
-from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, rounded_number, user_number
+from cfa_tool.numbers import (count_text, counted, cut_list, more_words, names_shown, rounded_number, user_number,
+                              word_list)
 from cfa_tool.data.answer_words import NUMBERS_ONLY, code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.joined_answers import join_answers, refuse_joins_for_summary_statistics
 from cfa_tool.data.filter_text import filter_text
@@ -850,7 +851,7 @@ def group_case_problems(frame: pd.DataFrame, group: str, part: str = "group",
     found = case_variants(labels)
     if not found:
         return ()
-    listed = cut_list(found, CASE_VARIANTS_SHOWN, lambda variants: " and ".join(
+    listed = cut_list(found, CASE_VARIANTS_SHOWN, lambda variants: word_list(
         f"'{printable(label)}' ({counted(n, 'row')})" for label, n in variants), sep="; ", lead="; and ", noun="such set")
     kind = ProblemKind.GROUP_LABELS_BY_CASE if part == "group" else ProblemKind.DESIGN_LABELS_BY_CASE
     return (Problem(kind, (), float(len(found)),
@@ -1214,10 +1215,38 @@ def named_id_problems(loaded: LoadedData, id_column: str | None, group: str | No
         return ()
     named = id_named_column(frame, {group, *items})
     if named is None:
-        return ()
+        return _unit_rows_problems(frame, {group, *items, *(n for _, n in (design.names if design else ()))},
+                                   design, takes_design)
     ids = ids_by_row_number(frame[named].map(id_text), frame)
     return repeated_id_problems(loaded, ids, named, group, items, design, fitted=True, by_name=True,
                                 takes_design=takes_design)
+
+
+def _unit_rows_problems(frame: pd.DataFrame, skip, design: DesignColumns | None, takes_design: bool) -> tuple:
+    """The caution on a column named as the id of teams, schools or classes (data.column_roles.unit_id_column), which
+    is not the rows' id, when the design has no clusters: the rows of one unit are taken for independent cases, with
+    the units as the design's clusters for the remedy (where the command takes them)."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.data.column_roles import unit_id_column
+
+    found = unit_id_column(frame, skip)
+    if found is None or (design is not None and design.cluster is not None):
+        return ()
+    name, word = found
+    units = int(frame[name].nunique())
+    rows = int(frame[name].notna().sum())
+    plural = (word + "es" if word.endswith(("s", "sh", "ch", "x")) else
+              word[:-1] + "ies" if word.endswith("y") and word[-2:-1] not in "aeiou" else word + "s")
+    explanation = (f"The column '{printable(name)}', an id of {plural} by its name, gives {counted(units, word, plural)} "
+                   f"to {count_text(rows)} rows ({rounded_number(rows / units)} rows each on average): the analysis "
+                   f"takes the rows of one {word} for independent cases, so if its members answer alike the standard "
+                   f"errors are too small and the tests reject too readily.")
+    advice = (Note((f"take the {plural} for the clusters of the sampling design",
+                    Command(f" ({Option.CLUSTER.given(name)})"),
+                    f" so that the standard errors and tests allow for the rows of one {word}.")) if takes_design else
+              Note((f"read the standard errors and tests as those of independent rows, which the members of one "
+                    f"{word} may not be.",)))
+    return (Problem(ProblemKind.UNIT_ROWS_AS_INDEPENDENT, (), float(units), explanation, advice),)
 
 
 #: the most values a row filter written for the user lists (beyond it the advice names no filter)
@@ -1440,7 +1469,7 @@ def scale_ends_problems(frame: pd.DataFrame, spec: Spec) -> tuple:
             # the model file's statement apart (note_parts.Command): a manuscript's reader edits no model file
             Note(("The model", Command(f" (its 'reversed' statement on line {keying.location.line})"),
                   f" declares answers from {user_number(keying.minimum)} to {user_number(keying.maximum)} for {reversed_items}, but no answer "
-                  f"of the items it covers reaches {' or '.join(unreached)}: they run from {user_number(low)} to {user_number(high)} in "
+                  f"of the items it covers reaches {word_list(unreached, 'or')}: they run from {user_number(low)} to {user_number(high)} in "
                   f"{len(values)} rows. A reversed answer x counts as {user_number(keying.minimum + keying.maximum)} - x in the "
                   f"keyed sums; {effect}.")),
             Note(("declare the questionnaire's own lowest and highest answers",

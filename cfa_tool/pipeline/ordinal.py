@@ -24,7 +24,7 @@ from cfa_tool.assessment.identification import check_bounded_responses, check_in
 from cfa_tool.assessment.ordinal_reliability import with_observed_sum_omega
 from cfa_tool.assessment.modification import (ModificationIndices, candidate_arrays, candidate_entries,
                                                collected_indices, least_squares_score_tests)
-from cfa_tool.assessment.reliability import keying_warnings, reliability
+from cfa_tool.assessment.reliability import group_keying_warnings, keying_warnings, reliability
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.errors import CfaError, ModelError, NotIdentified, OptionError
 from cfa_tool.language.names import written_group
@@ -38,6 +38,7 @@ from cfa_tool.inference.standard_errors import wald_inference
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import ParameterRef, Spec, ValueSetting
 from cfa_tool.method import ADJUSTED_TEST, MISSING_COMPLETELY_AT_RANDOM, Estimator, FitMethod, FitTest, Information, Items, MissingData, Weighting
+from cfa_tool.model.description import factor_scales
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table, fixed_values_at_start
 from cfa_tool.model.rescale import variance_scaled
@@ -361,7 +362,7 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
                                       {moments.names[k]: np.asarray(moments.thresholds[k], float) for k in ordinal_items},
                                       {moments.names[k]: np.asarray(moments.categories[k], float) for k in ordinal_items})
     if opt.converged:
-        warnings.extend(keying_warnings(factors))
+        warnings.extend(keying_warnings(factors, "", factor_scales(spec, table)))
     summary = DataSummary(moments.source, moments.rows_read, moments.rows_dropped, n, table.observed,
                           tuple(float(moments.means[k]) for k in order), tuple(float(moments.sds[k]) for k in order),
                           categories=_category_counts(moments, order), pair_rows=_pair_rows(moments, order))
@@ -717,7 +718,7 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
     problems = left_out + small + tuple(solution_problems(
         table, list(mats), theta, cov_theta if est.converged else None, est.converged, est.message, options.max_iterations))
     estimates = estimate_rows(table, values, inference, standardized, factors_standardized, derived)
-    group_results = []
+    group_results, keyed = [], []
     for g, (lab, m) in enumerate(groups):
         mg = moments[g]
         sigma = mats[g].implied_covariance()
@@ -735,14 +736,15 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
                                           {table.observed[j]: tau[obj.item_of == j] for j in ordinal_items},
                                           {table.observed[j]: np.asarray(mg.categories[j], float) for j in ordinal_items},
                                           mats[g].implied_mean())
-        if est.converged:
-            warnings.extend(keying_warnings(factors, f"group {written_group(lab, labels)}: "))
+        keyed.append((lab, factors))
         group_results.append(GroupResult(label=lab, data=summary, chi_square=shares[g], srmr=srmrs[g],
                                          r_squared=dict(zip(table.observed, (float(v) for v in r_squared(mats[g])))),
                                          sample_covariance=mg.correlations, implied_covariance=rho,
                                          residual_correlations=mg.correlations - rho, sample_mean=np.zeros(p),
                                          implied_mean=None, normality=None, reliability=tuple(factors), htmt=tuple(htmt),
                                          latent_covariance=mats[g].latent_covariance()))
+    if est.converged:  # each caution on a factor's direction once, naming the groups where it differs
+        warnings.extend(group_keying_warnings(keyed, factor_scales(spec, table)))
     per_group = [_pair_rows(m, list(range(p))) for m in moments]
     total_pairs = tuple((a, b, sum(rows[k][2] for rows in per_group)) for k, (a, b, _) in enumerate(per_group[0]))
     per_group_counts = [_category_counts(m, list(range(p))) for m in moments]  # every group has every category

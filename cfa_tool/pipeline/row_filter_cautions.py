@@ -8,7 +8,7 @@ from __future__ import annotations
 from cfa_tool.assessment.admissibility import Problem, ProblemKind
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.filters import merged_exclusions, quoted_filter
-from cfa_tool.numbers import number
+from cfa_tool.numbers import number, word_list
 from cfa_tool.data.readers import LoadedData
 from cfa_tool.errors import printable
 from cfa_tool.language.spec import Spec
@@ -80,11 +80,11 @@ def selected_on_item(filters, spec: Spec | None, where: str = "") -> Problem:
     dropped = sum(g.dropped for g in filters)
     factors = ([factor.name.text for factor in spec.factors if any(i.text == item for i in factor.indicators)]
                if spec is not None else [])
-    of = " and ".join(printable(name) for name in factors)
+    of = word_list(printable(name) for name in factors)
     what = (f"the loading of '{printable(item)}', the variance of {of} and the reliability (omega) of {of}" if factors
             else f"the loadings of '{printable(item)}'")
     several = len(filters) > 1
-    which = (f"Row filters {' and '.join(quoted_filter(g) for g in filters)}{where} select" if several else
+    which = (f"Row filters {word_list(quoted_filter(g) for g in filters)}{where} select" if several else
              f"Row filter {quoted_filter(f)}{where} selects")
     kept = f", keeping those where {kept_range_words(filters)}" if several else ""
     return Problem(
@@ -108,7 +108,7 @@ def label_of_several_codes(f, where: str = "") -> Problem:
     mean the same, and the researcher can filter by one code (a number compares with the codes) when they do not.
     ``where``: the file, as :func:`row_filter_problems` takes it."""
     codes = [f"{printable(code)} ({n} row{'s' if n != 1 else ''})" for code, n in f.shared]
-    listed = ", ".join(codes[:-1]) + f" and {codes[-1]}"
+    listed = word_list(codes)
     did = "kept" if f.operator == "=" else "left out"
     column = printable(f.column)
     first = f.shared[0][0]
@@ -130,7 +130,7 @@ def labels_by_case(f, where: str = "") -> Problem:
     out by '=', kept by '!='), as the group column keeps such labels apart (pipeline.inputs.group_case_problems):
     only the researcher knows whether they are one.  A caution first, not a silent choice either way.  ``where``: the
     file, as :func:`row_filter_problems` takes it."""
-    listed = " and ".join(f"'{printable(label)}' ({n} row{'s' if n != 1 else ''})" for label, n in f.other_case)
+    listed = word_list(f"'{printable(label)}' ({n} row{'s' if n != 1 else ''})" for label, n in f.other_case)
     column = printable(f.column)
     them = "it" if len(f.other_case) == 1 else "them"
     did = f"left {them} out" if f.operator == "=" else f"kept {them}"

@@ -385,7 +385,7 @@ def _declared_words(refs, d) -> str:
     parts = [f"{words(every)} specified as not held equal across groups"] if every else []
     if one:  # last, its clause closed by the caller (set_apart_words)
         parts.append(f"{words(one)} {set_apart_words(len(d.groups) if d is not None else 0, 'were')}")
-    return " and ".join(parts)
+    return _list(parts)
 
 
 def _scale_sentence(d) -> str:

@@ -363,7 +363,7 @@ def _correction_row(r) -> list[str]:
 
 def correction_text(r) -> str:
     """The values of the pieces that make the corrected statistic, as every table shows them: '1.155 and 36.256'."""
-    return " and ".join(num(value) for _, value in r.pieces)
+    return word_list(num(value) for _, value in r.pieces)
 
 
 def robust_definition(r) -> str:
@@ -1269,8 +1269,8 @@ def sum_score_table(result, group: int = 0) -> ReportTable | None:
     if no_sds:
         note += f" The item-rest r are {STANDARDIZED_ITEMS}."
     if no_means or no_sds:
-        note += (f" {capitalised(source_words(result.data.source))} gives no {' or '.join(w for w, none in (('means', no_means), ('standard deviations', no_sds)) if none)}, "
-                 f"so the sums' {' and '.join(w for w, none in (('means', no_means), ('SDs', no_sds)) if none)} are not shown.")
+        note += (f" {capitalised(source_words(result.data.source))} gives no {word_list([w for w, none in (('means', no_means), ('standard deviations', no_sds)) if none], 'or')}, "
+                 f"so the sums' {word_list(w for w, none in (('means', no_means), ('SDs', no_sds)) if none)} are not shown.")
     if not no_means and any(r.sum_score_mean is None for r in rows):
         note += Note((" A mean is shown once the answer scale of the reversed items is known: declare it in the model",
                       Command(" with 'reversed ITEMS on LOWEST to HIGHEST'"), "."))
@@ -1681,7 +1681,7 @@ def answer_table(answers, key: str, where: str = "", groups: bool = False, analy
         given = tuple(parts[0].given) + tuple(sorted(ends))  # after the codes the run gave, which it keeps
         missing_as = "a typing error or a code for no answer can be given as missing; "
         text = Note((note + " Check such an answer first: ",
-                     Command(f"if {' or '.join(stray)} is a typing error or a code for no answer, give "
+                     Command(f"if {word_list(stray, 'or')} is a typing error or a code for no answer, give "
                              + option_in_both(codes_given(given, Interface.COMMAND_LINE),
                                               codes_given(given, Interface.PYTHON)) + "; ", missing_as)
                      if ends else missing_as,

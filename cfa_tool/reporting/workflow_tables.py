@@ -440,7 +440,7 @@ def comparison_report(comparison) -> Report:
             _, name, best = min(scored, key=lambda t: t[0])
             if not best.admissible:
                 lowest.setdefault(name, []).append(index)
-    problems += [f"The lowest {' and '.join(indices)} belong{'s' if len(indices) == 1 else ''} to {name}, whose solution "
+    problems += [f"The lowest {word_list(indices)} belong{'s' if len(indices) == 1 else ''} to {name}, whose solution "
                  f"is not admissible: that is no reason to prefer it." for name, indices in lowest.items()]
     cautions = [p.line() for p in comparison.problems]  # the data's, first
     cautions += _design_caution_lines(named) + _caution_lines(named)
@@ -1094,7 +1094,7 @@ def replication_report(replications) -> Report:
                                 and rep.same_solution.method in (DifferenceMethod.SATORRA_BENTLER_2001,
                                                                  DifferenceMethod.SATORRA_BENTLER_2010)))
     if scaled:  # a robust test asked for: the two-sample fits' robust statistics, not the normal-theory ones
-        notes.append(f"With the robust test, the test of one solution is {' or '.join(m.phrase for m in scaled)} of "
+        notes.append(f"With the robust test, the test of one solution is {word_list([m.phrase for m in scaled], 'or')} of "
                      f"the two-sample fits' robust statistics, and its chi-square is that scaled difference; the "
                      f"strictly positive version (Satorra & Bentler 2010) is used when the 2001 correction is not "
                      f"positive.")
@@ -1695,7 +1695,7 @@ def nested_power_report(result) -> Report:
         below = result.below_rows_rule
         one = len(below) == 1
         notice = ProblemNotice(POWER_CAUTION, (
-            f"{' and '.join(_sizes_judged(result))} {'is' if one else 'are'} judged by the "
+            f"{word_list(_sizes_judged(result))} {'is' if one else 'are'} judged by the "
             f"difference test alone, not by what estimating the model needs: {'; '.join(f.figures() for f in below)}, "
             f"fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; {_rows_enough(result)} "
             f"here); this plan says nothing of how precisely the loadings, variances and correlations are "
@@ -1720,7 +1720,7 @@ def rows_rule_caution(result) -> Note:
     enough = ROWS_PER_PARAMETER * below[0].parameters
     sizes = [ceil(f.rows - 1e-9) for f in below] + [enough]  # independent rows, which power-simulation simulates
     typed = [user_number(n) for n in sizes]  # as a command takes them: no grouping comma inside a list of commas
-    return Note((f"{' and '.join(_sizes_judged(result))} {'is' if one else 'are'} judged by the RMSEA "
+    return Note((f"{word_list(_sizes_judged(result))} {'is' if one else 'are'} judged by the RMSEA "
                  f"test of {result.test} fit alone, not by what estimating the model needs: "
                  f"{'; '.join(f.figures() for f in below)}, fewer than {ROWS_PER_PARAMETER} per parameter ({ROWS_RULE}; "
                  f"{_rows_enough(result)} here); this plan says nothing of how precisely the loadings, variances and "
@@ -1729,7 +1729,7 @@ def rows_rule_caution(result) -> Note:
                  f"size",
                  Command(f" ('cfa-tool power-simulation MODEL --n {','.join(typed)}'; from Python, "
                          f"power_simulation(model, [{', '.join(typed)}]))",
-                         f" ({' and '.join(count_text(n) for n in sizes)} rows, say)"),
+                         f" ({word_list(count_text(n) for n in sizes)} rows, say)"),
                  "."))
 
 

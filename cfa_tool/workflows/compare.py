@@ -434,7 +434,7 @@ def _each_pair(names, results, test_pair, specs, likelihood: bool) -> tuple[list
                 continue
             if not (results[a].converged and results[b].converged):
                 failed = [names[k] for k in (a, b) if not results[k].converged]
-                not_nested.append(NotNested(names[a], names[b], f"{' and '.join(failed)} could not be estimated",
+                not_nested.append(NotNested(names[a], names[b], f"{word_list(failed)} could not be estimated",
                                             information_criteria=False))
                 continue
             found, reason = test_pair(a, b)

@@ -203,7 +203,7 @@ class ExploreResult(Presentable):
         # the rules' counts in a sentence of their own: a rule's name holds its source in parentheses
         rules = [f"{RULE_WORDS[r]} " + ("gives no count" if count.suggestion(r) is None else f"counts {count.suggestion(r)}")
                  for r in count.combined]
-        counted = (", ".join(rules[:-1]) + ", and " + rules[-1] if len(rules) > 1 else "".join(rules))
+        counted = word_list(rules)
         counted = counted[:1].upper() + counted[1:]
         middle = self._middle_count()
         if middle == 0:
@@ -773,7 +773,7 @@ def _refuse_too_few_named(chosen: tuple[str, ...]) -> None:
     items for each factor."""
     if len(chosen) >= 3:
         return
-    named = " and ".join(f"'{printable(c)}'" for c in chosen)
+    named = word_list(f"'{printable(c)}'" for c in chosen)
     raise OptionError(f"{Option.ITEMS} names {'one item' if len(chosen) == 1 else 'two items'} ({named}), too few "
                       f"for a factor: an exploratory factor analysis needs at least three items for each factor; name "
                       f"more items")
@@ -796,7 +796,7 @@ def _refuse_numbers_with_slips(frame: pd.DataFrame, taken: tuple[str, ...], sour
                 or column.dtype.kind in "mM"):
             continue
         values = column.to_numpy(dtype=object)
-        if not stray_text(values):
+        if not stray_text(values, few=False):  # however many cells, as fit reads them (data.moments.stray_words)
             continue
         row, cell = next((r, v) for r, v in zip(row_numbers(column), values) if isinstance(v, str) and v.strip()
                          and strict_number(v.strip()) is None)
@@ -829,7 +829,7 @@ def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str
                     and not any(ch.isdigit() for ch in cell) and cell.strip().lower() not in ("true", "false")):
                 continue
             shown = clipped(cell.strip(), 40)
-            if stray_text(values):  # a slip among numbers, as fit reads it (data.answer_scales.stray_text)
+            if stray_text(values, few=False):  # text among numbers, as fit reads it (data.moments.stray_words)
                 raise DataError(stray_word_message(source, name, shown, cell_words(column, name, row), cell.strip(),
                                                    given))
             statement = suggested_statement(values)

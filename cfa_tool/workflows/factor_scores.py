@@ -19,7 +19,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, user_number, word_list
 from cfa_tool.data.csv_convention import PLAIN, CsvConvention, convention_of
 from cfa_tool.data.kept_rows import ROW_NAMES_COLUMN, RowNaming, caller_labels, row_naming
 from cfa_tool.data.moments import row_numbers
@@ -933,7 +933,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         extra[:0] = _id_column_note(read_frame, source, spec, group, design)
     own = not_comparable_problems(result.estimates, chosen) + _without_own_answers(
         answered, values, chosen, factors, unanswered) + _item_sums_across_groups(
-        models, labels, sums, chosen, bool(ordinal_items), group, spec.method_factors)
+        models, labels, sums, chosen, bool(ordinal_items), group, spec.method_factors, result.problems)
     if own:
         result = _after_data_cautions(result, data_cautions, own)
     unweighted = len(frame) - len(fitted_rows)  # weight 0: not in the fit, yet scored like every row
@@ -981,38 +981,45 @@ def _few_clusters_as_note(result) -> tuple[FitResult, list[str]]:
 
 
 def _item_sums_across_groups(models, labels, sums: list, chosen, ordinal: bool, group: str | None,
-                             method_factors: frozenset = frozenset()) -> tuple:
+                             method_factors: frozenset = frozenset(), problems=()) -> tuple:
     """The caution, first in every view, on item sums and means of several groups whose model sets an item of the
     sum apart between them (its intercept, loading or thresholds: scoring.item_sums.group_shifts) while it compares
     the factor's means: the groups' sums and means differ by that item's own shift besides the factor, and the
     model-based scores, which allow for it, are the ones to compare (new-user trial s20: a translated version's
     shifted item made its item means differ by a quarter of their SD while the factor's scores agreed, with no
     word).  () without item sums or means, groups or such items.  ``method_factors`` get no item sum or mean (their
-    column is empty), so no caution names them (new-user trial s24: an acquiescence factor on every item was named)."""
+    column is empty), so no caution names them (new-user trial s24: an acquiescence factor on every item was named);
+    nor the factors whose sums the fit withholds in every group (``problems``: the fit's; their loadings contradict
+    the declared keying, assessment.reliability.withheld_sums), whose columns are empty too (s26)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.scoring.item_sums import group_shifts
+
+    from cfa_tool.assessment.reliability import withheld_sums
 
     summed = [m for m in ITEM_METHODS if m in chosen]
     if not summed or group is None or len(models) < 2 or not sums:
         return ()
+    withheld = withheld_sums(problems)
+    empty = method_factors | {s.factor for s in sums[0]
+                              if all((str(label), s.factor) in withheld for label in labels)}
     bases = [m.base for m in models] if ordinal else list(models)
     shifts = group_shifts(bases, [m.thresholds for m in models] if ordinal else None, [str(x) for x in labels],
-                          [s for s in sums[0] if s.factor not in method_factors])
+                          [s for s in sums[0] if s.factor not in empty])
     if not shifts:
         return ()
-    kinds = " and ".join(dict.fromkeys(("item sums" if m is ScoreMethod.ITEM_SUM else "item means") for m in summed))
+    kinds = word_list(dict.fromkeys(("item sums" if m is ScoreMethod.ITEM_SUM else "item means") for m in summed))
     factors = tuple(dict.fromkeys(x.factor for x in shifts))
 
     def said(x) -> str:
-        what = " and ".join(("intercept" if k == "intercept" else "loading" if k == "loading" else "thresholds")
+        what = word_list(("intercept" if k == "intercept" else "loading" if k == "loading" else "thresholds")
                             for k in x.parameters)
         of = f"{printable(x.factor)}: " if len(factors) > 1 else ""
         if x.intercepts:
             values = ", ".join(f"{printable(g)} {v:.2f}" for g, v in zip(x.groups, x.intercepts))
             return f"the {what} of {printable(x.item)} ({of}intercept {values})"
-        return f"the {what} of {printable(x.item)} ({of}differing in {', '.join(printable(g) for g in x.groups)})"
+        return f"the {what} of {printable(x.item)} ({of}differing in {word_list(printable(g) for g in x.groups)})"
 
-    names = ", ".join(printable(f) for f in factors)
+    names = word_list(printable(f) for f in factors)
     model_based = "posterior means" if ordinal else "regression or Bartlett scores"
     return (Problem(ProblemKind.ITEM_SUMS_ACROSS_GROUPS, (), float(len(shifts)),
                     f"The {kinds} of {names} do not compare across the groups of {printable(group)}: while it "
@@ -1160,10 +1167,10 @@ def refuse_unknown_scale(data, what: str) -> None:
     lacking = tuple(getattr(data, "not_given", ()))
     if not lacking:
         return
-    words = " or ".join(g.label for g in lacking)
+    words = word_list([g.label for g in lacking], "or")
     raise OptionError(f"{what} is of summary statistics ({printable(str(data.source))}) without {words}, and scores of "
                       f"answers need the fitted sample's item means and standard deviations; add the "
-                      f"{' and '.join(repr(_SUMMARY_ROW[g]) for g in lacking)} row{'s' if len(lacking) > 1 else ''} to "
+                      f"{word_list(repr(_SUMMARY_ROW[g]) for g in lacking)} row{'s' if len(lacking) > 1 else ''} to "
                       f"that file and fit again, or fit the model to the rows of answers")
 
 
@@ -1280,7 +1287,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     scored_problems = list(not_comparable_problems(result.estimates, chosen)
                            + _without_own_answers(answered, values, chosen, factors, unanswered)
                            + _item_sums_across_groups(models, labels, sums, chosen, ordinal, group,
-                                                      spec.method_factors))
+                                                      spec.method_factors, result.problems))
     if unknown_groups:
         scored_problems.insert(0, Problem(ProblemKind.UNKNOWN_GROUPS_SCORED, (), None, unknown_groups + ".",
                                           "write each row's group as the fit's data wrote it, or fit the model to "
@@ -1663,8 +1670,8 @@ def _same_model(spec, saved: SavedFit) -> None:
         if factors and here != fitted_keys:
             added, dropped = sorted(here - fitted_keys), sorted(fitted_keys - here)
             said = "; ".join(part for part in (
-                f"it declares {', '.join(printable(x) for x in added)} reversed, which the fit did not" if added else "",
-                f"it does not declare {', '.join(printable(x) for x in dropped)} reversed, as the fit did"
+                f"it declares {word_list(printable(x) for x in added)} reversed, which the fit did not" if added else "",
+                f"it does not declare {word_list(printable(x) for x in dropped)} reversed, as the fit did"
                 if dropped else "") if part)
     if said:
         raise OptionError(f"the model file {spec.source} is not the model {saved.source} was fitted with ({said}); "
@@ -2107,7 +2114,7 @@ def not_comparable_problems(estimates, chosen) -> tuple:
     test = (", once ", Command("the invariance command", "a test of measurement invariance"),
             " finds that level holds.")
     scores = "The factor scores" if any(m in ITEM_METHODS for m in chosen) else "The scores"  # not the item sums
-    names, one = ", ".join(printable(f) for f in centred), len(centred) == 1
+    names, one = word_list(printable(f) for f in centred), len(centred) == 1
     every = len(centred) == len({r.variables[0] for r in estimates if r.kind == "mean"})
     if every:
         text = (f"{scores} of different groups cannot be compared: the model fixes every factor's mean at zero in "
@@ -2146,7 +2153,7 @@ def _without_own_answers(answered: np.ndarray, values: dict, chosen, factors,
     if unanswered is UnansweredFactor.LEAVE_EMPTY:
         rows = "; ".join(f"{n} {'row' if n == 1 else 'rows'} answered none of the items of {name}" for name, n in counted)
         names = [answered_column(name) for name, _ in counted]
-        columns = ", ".join(names[:-1]) + " and " + names[-1] if len(names) > 1 else names[0]
+        columns = word_list(names)
         one = len(counted) == 1 and counted[0][1] == 1
         text = (f"{rows}: {'this score, a prediction' if one else 'these scores, predictions'} from the other "
                 f"factors' items alone, {'is' if one else 'are'} left empty, as asked; {columns} "

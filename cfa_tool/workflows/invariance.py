@@ -23,6 +23,7 @@ from cfa_tool.data.answer_words import coding_json
 from cfa_tool.data.groups import reference_rule
 from cfa_tool.data.renamed_columns import ColumnRenames
 from cfa_tool.note_parts import capitalised
+from cfa_tool.numbers import word_list
 from cfa_tool.options import own_keywords
 from cfa_tool.data.matching import chosen_columns
 from cfa_tool.pipeline.inputs import (_described, rows_named, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_categories, keeps_rows_with_gaps,
@@ -911,7 +912,7 @@ def _judged(fit: dict[str, float]) -> str:
             f"{journal_decimal(FIT_GUIDES[k].value).rstrip('0')}" for k in missed]
     met = [f"{k.upper()} {journal_decimal(v, FIT_GUIDES[k].value)}" for k, v in fit.items() if k not in missed]
     if met:
-        said.append(f"{' and '.join(met)} {'meets its' if len(met) == 1 else 'meet theirs'}")
+        said.append(f"{word_list(met)} {'meets its' if len(met) == 1 else 'meet theirs'}")
     said += [f"{k.upper()} not defined" for k in undefined]
     return "; ".join(said)
 
@@ -953,7 +954,7 @@ def unjudged(rule: DecisionRule, step: tuple[str, FitResult], before: tuple[str,
     why = "a scaling factor of the robust test is not positive"
     if before is None:
         return f"its robust CFI and RMSEA were not computed ({why})"
-    levels = " and ".join(f"the {level} model" for level in missing)
+    levels = word_list(f"the {level} model" for level in missing)
     return (f"the changes in robust CFI and RMSEA it is judged by need those of {levels}, which were not computed "
             f"({why})")
 

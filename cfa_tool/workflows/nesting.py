@@ -517,12 +517,12 @@ def _not_positive_factor(factors) -> str:
     bad = [(name, c, own) for name, c, own in factors if not (c is not None and np.isfinite(c) and c > 0)]
     if not bad:
         return ""
-    said = " and ".join(f"{name}{'' if own else AT_RESTRICTED} ({rounded_number(c)})" for name, c, own in bad)
+    said = word_list(f"{name}{'' if own else AT_RESTRICTED} ({rounded_number(c)})" for name, c, own in bad)
     one = len(bad) == 1
     own_test = [name for name, _, own in bad if own]
     return (f"the scaling factor{'' if one else 's'} of {said} {'is' if one else 'are'} not positive, so the "
             f"difference cannot be scaled (a scaling factor is an estimated average of eigenvalues that must be "
-            f"positive" + (f"; the scaled test{'' if len(own_test) == 1 else 's'} of {' and '.join(own_test)} "
+            f"positive" + (f"; the scaled test{'' if len(own_test) == 1 else 's'} of {word_list(own_test)} "
                            f"{'was' if len(own_test) == 1 else 'were'} not computed either" if own_test else "")
             + ")")
 
@@ -649,7 +649,7 @@ def same_degrees_of_freedom(first: FitResult, second: FitResult, reproduces: Cal
     if first.parameter_labels == second.parameter_labels and held and len({k for k, _ in held}) == 1 and reproduces():
         which = ("first", "second")[held[0][0]]
         held_words = [w for _, p in held for w in p.parameter_words()]
-        return (f"the two models differ only by a bound, which holds {' and '.join(held_words)} at "
+        return (f"the two models differ only by a bound, which holds {word_list(held_words)} at "
                 f"{'its bound' if len(held_words) == 1 else 'their bounds'} in the {which} model: the {which} is a "
                 f"restricted form of the other under an inequality restriction, which a test by degrees of freedom "
                 f"cannot judge, both having the same degrees of freedom")

@@ -167,7 +167,7 @@ def test_the_note_says_the_indices_take_the_design_in(hs_data):
     data = _clustered(hs_data)
     note = modification_table(cfa_tool.fit(THREE_FACTORS, data, weights="w", cluster="unit", strata="st",
                                            mi_threshold=0)).note
-    assert note.startswith("These indices take the sampling design (sampling weights, clusters and strata) into "
+    assert note.startswith("These indices take the sampling design (sampling weights, clusters, and strata) into "
                            "account: each is a design-based score test (Satorra's 1989 generalized score test)")
     gaps = _clustered(hs_data, gaps=True)
     with_gaps = modification_table(cfa_tool.fit(THREE_FACTORS, gaps, cluster="unit", mi_threshold=0)).note

@@ -69,7 +69,7 @@ def test_noise_reads_tli_not_defined_in_every_view(tmp_path, capsys):
     assert "TLI = not defined" in out and "TLI not defined" in out  # the paragraph and the table's row
     saved = json.loads(outputs["json"].read_text())
     assert saved["fit"]["tli"] is None and saved["fit"]["cfi"] is None
-    assert "weakly correlated items" in [p["kind"] for p in saved["problems"]]
+    assert "uninformative baseline" in [p["kind"] for p in saved["problems"]]
     html = " ".join(outputs["html"].read_text().split())
     assert "TLI = not defined" in html
     document = docx.Document(io.BytesIO(outputs["docx"].read_bytes()))

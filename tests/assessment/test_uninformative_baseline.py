@@ -23,7 +23,7 @@ import pandas as pd
 import pytest
 
 import cfa_tool
-from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.assessment.admissibility import EARLIER_WORDS, ProblemKind
 from cfa_tool.assessment.fit_indices import cfi_from, tli_value
 from cfa_tool.cli import main
 from cfa_tool.errors import OptionError
@@ -86,7 +86,10 @@ def test_noise_gets_no_cfi_and_a_caution_first_in_every_view(tmp_path, capsys):
     assert out.index("The items correlate weakly: the baseline model") < out.index("Model fit")
     saved = json.loads((tmp_path / "o.json").read_text())
     assert saved["fit"]["cfi"] is None
-    assert "weakly correlated items" in [p["kind"] for p in saved["problems"]]  # a kind, no advice (s23)
+    kinds = [p["kind"] for p in saved["problems"]]
+    assert "uninformative baseline" in kinds  # a kind, no advice (s23), by the kind's own name (s26)
+    # every kind the JSON lists is a value of the one vocabulary of kinds, none of the words of earlier versions
+    assert all(ProblemKind(k).value == k and k not in EARLIER_WORDS for k in kinds)
 
 
 def test_a_robust_fit_follows_the_same_rules():
@@ -188,8 +191,12 @@ def test_its_kind_is_a_plain_value_and_a_saved_fit_of_earlier_versions_is_still_
     kind (assessment.admissibility.listed_problems, as report and scores --from-fit read it)."""
     from cfa_tool.assessment.admissibility import listed_problems
 
-    assert ProblemKind.UNINFORMATIVE_BASELINE.value == "weakly correlated items"
-    assert ":" not in ProblemKind.UNINFORMATIVE_BASELINE.value
+    # one name for the kind: the JSON's word is the enum member's name in words (s26: it stayed 'weakly correlated
+    # items' after the caution stopped saying so of items that correlate well within their factors)
+    kind = ProblemKind.UNINFORMATIVE_BASELINE
+    assert kind.value == kind.name.lower().replace("_", " ") == "uninformative baseline"
+    assert ":" not in kind.value
+    assert ProblemKind("weakly correlated items") is kind  # a saved fit of the previous version is read as this kind
     saved = {"kind": "baseline model misfits little: read CFI and TLI beside RMSEA and SRMR", "parameters": [],
              "value": 0.07, "explanation": "The items correlate weakly.", "advice": "read them beside", "group": None}
     [read] = listed_problems([saved], "fit.json")

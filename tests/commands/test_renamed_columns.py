@@ -27,7 +27,7 @@ MODEL = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7
 #: the columns of the renamed copy: as a follow-up file might name them
 IN_FILE = {"x3": "x3r", "school": "School"}
 RENAME = "x3r=x3,School=school"
-NOTE = "columns 'x3r' read as 'x3', 'School' read as 'school'"
+NOTE = "columns 'x3r' read as 'x3' and 'School' read as 'school'"
 
 
 def _flat(text: str) -> str:

@@ -37,3 +37,27 @@ def test_several_stray_words_are_counted_and_named(cells, rider_demo, rider_mode
     assert 'if the word means no answer, give it with --missing-codes "Ne sait pas"' in err
     code, _, err = run_cli(["check", model, "--data", data, "--missing-codes", "Ne sait pas"], capsys)
     assert code == 0, err  # the advice followed: the cell read as no answer
+
+
+@pytest.mark.parametrize("command", ["check", "explore"])
+def test_a_word_of_no_answer_in_more_cells_than_a_slip_gets_the_option_that_reads_it(command, rider_demo, rider_model,
+                                                                                     tmp_path, capsys):
+    # s26: 'Weiß nicht' (German for "don't know") in 5 cells of one item, more than the 3 cells (or 1%) of a slip, was
+    # refused with 'recode the answers as numbers' (explore left the item out as 'answers recorded as words'), and no
+    # word of the option that reads it as no answer
+    frame = rider_demo.astype(object)
+    rows = [3, 10, 50, 80, 120]
+    frame.loc[rows, "clean"] = "Weiß nicht"
+    data = tmp_path / "survey.csv"
+    frame.to_csv(data, index=False)
+    model = tmp_path / "m.cfa"
+    model.write_text(rider_model)
+    code, _, err = run_cli([command, model, "--data", data] if command == "check" else [command, "--data", data],
+                           capsys)
+    assert code == 2 and "recode the answers as numbers" not in err
+    assert 'if the word means no answer, give it with --missing-codes "Weiß nicht"' in err
+    if command == "check":
+        assert f"{len(rows)} cells of 1 column ('clean') hold text among numbers: 'Weiß nicht' ({len(rows)} cells)" in err
+    code, _, err = run_cli([command, model, "--data", data, "--missing-codes", "Weiß nicht"] if command == "check" else
+                           [command, "--data", data, "--missing-codes", "Weiß nicht"], capsys)
+    assert code == 0, err  # the advice followed: the cells read as no answer

@@ -507,7 +507,8 @@ def test_zero_weights_that_leave_one_group_are_named_in_the_error(hs_data):
     data = hs_data.assign(w=np.where(hs_data.school == "Pasteur", 0.0, 1.0))
     pasteur = int((hs_data.school == "Pasteur").sum())  # 156 rows (Holzinger & Swineford 1939)
     with pytest.raises(DataError, match=rf"every row of group 'Pasteur' \({pasteur} rows\) of 'school' has weight 0 in "
-                                        rf"'w', so only 1 group is left \('Grant-White'\)"):
+                                        rf"'w', so every row left is in group 'Grant-White'; a multi-group analysis needs "
+                                        rf"at least two groups"):
         cfa_tool.fit(THREE_FACTORS, data, group="school", weights="w")
 
 

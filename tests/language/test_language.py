@@ -234,7 +234,7 @@ def _error(text: str) -> ModelError:
         ("factor f: a, b, c\nreversed f on 1 to 5\n", 2, 10, "'f' is a factor; only items can be reverse-keyed"),
         ("factor f: a, b, c\nreversed z on 1 to 5\n", 2, 10, "'z' is not a factor or an indicator"),
         ("factor f: a, b, c\nreversed b on 1 to 5\nreversed c, b on 1 to 5\n", 3, 13, "'b' is declared reversed twice (first on line 2)"),
-        ("factor f: a, b, c\nreversed b 1 to 5\n", 2, 12, "expected ',', '..' or 'on'"),
+        ("factor f: a, b, c\nreversed b 1 to 5\n", 2, 12, "expected ',', '..', or 'on'"),
         ("factor f: a, b, c\nreversed b on 1\n", 2, 16, "expected 'to'"),
         ("factor f: a, b, c\nreverse b on 1 to 5\n", 2, 1, "unknown statement 'reverse'; did you mean 'reversed'?"),
         ("factor f: a, b, c\nanswer 'No' = 0\n", 2, 1, "did you mean 'answers'?"),  # of answers recorded as words

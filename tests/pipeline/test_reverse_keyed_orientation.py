@@ -168,7 +168,7 @@ def test_a_factor_whose_items_split_evenly_is_named():
         each = cfa_tool.fit("factor k: d1..d4\n", sample)
         sums.add(sum(e.estimate for e in each.estimates if e.kind == "loading") > 0)
         assert not any(p.kind is ProblemKind.FACTOR_POINTS_AGAINST_ITEMS for p in each.problems)
-        assert any("half of its items load each way (d1, d3 against d2, d4)" in w for w in each.warnings)
+        assert any("half of its items load each way (d1 and d3 against d2 and d4)" in w for w in each.warnings)
         assert each.groups[0].reliability[0].reversed == ("d2", "d4")
     assert sums == {True, False}
     keyed = cfa_tool.fit("factor k: d1..d4\nreversed d1, d3 on -9 to 9\n", rows)
@@ -189,5 +189,5 @@ def test_several_split_factors_share_one_caution_that_names_each_ones_halves():
     assert len(said) == 1 and said[0].startswith("factors 'k' and 'm': half of each one's items load each way")
     for r in result.groups[0].reliability:
         rest = [x for x in r.items if x not in r.reversed]
-        assert f"{r.factor}: {', '.join(rest)} against {', '.join(r.reversed)}" in said[0]
+        assert f"{r.factor}: {' and '.join(rest)} against {' and '.join(r.reversed)}" in said[0]  # two items each
     assert said[0].count("declare the items worded against the trait") == 1

@@ -84,11 +84,14 @@ def test_no_caution_when_the_rows_have_an_id_each_or_the_design_holds_each_perso
     assert not _repeated(cfa_tool.fit(MODEL, stacked, cluster="depot_id"))
     # columns not named as ids repeat: nothing is said (the rule is explore's, by name)
     assert not _repeated(cfa_tool.fit(MODEL, stacked.rename(columns={"rider_id": "rider", "depot_id": "depot"})))
-    # the depots' id alone, repeated within each wave: said, with the depots as clusters for the remedy, and no row
-    # filter of one wave (it would not give one row per id)
-    said = _repeated(cfa_tool.fit(MODEL, stacked.rename(columns={"rider_id": "rider"})))[0]
-    assert _flat(said.explanation).startswith("The column 'depot_id', an id by its name, gives 12 ids")
-    assert "or of one team or site whose members answer alike" in _flat(said.explanation)
+    # the depots' id alone, repeated within each wave: a depot's id names no rider (s26: it was said as people
+    # answering twice), so its own caution, with the depots as clusters for the remedy
+    fitted = cfa_tool.fit(MODEL, stacked.rename(columns={"rider_id": "rider"}))
+    assert not _repeated(fitted)
+    [said] = [p for p in fitted.problems if p.kind is ProblemKind.UNIT_ROWS_AS_INDEPENDENT]
+    assert _flat(said.explanation).startswith(f"The column 'depot_id', an id of depots by its name, gives 12 depots "
+                                              f"to {len(stacked)} rows (35 rows each on average)")  # 420 / 12, pandas
+    assert "same people" not in _flat(said.explanation)
     assert _commands(said.advice) == [f" ({Option.CLUSTER.given('depot_id')})"]
 
 
@@ -145,3 +148,24 @@ def test_the_rule_of_names_is_explores(name, role):
     from cfa_tool.workflows.explore import column_role as explores
 
     assert column_role(name) == role and explores is column_role  # one rule, declared once
+
+
+def test_a_file_with_a_team_id_alone_is_not_taken_for_people_answering_twice():
+    # s26: 'team_id' (each team many rows) and no person id: the repeated-ids caution, meant for people answering
+    # twice, listed the teams' rows and advised one row per person; a team's id is no person's (column_roles.UNIT_WORDS)
+    from cfa_tool.data.column_roles import id_named_column, unit_word
+
+    one = _riders().query("wave == 'first'").drop(columns=["rider_id", "wave"]).rename(columns={"depot_id": "team_id"})
+    assert unit_word("team_id") == "team" and unit_word("School ID") == "school" and unit_word("employee_id") is None
+    assert unit_word("team_size") is None  # not named as an id
+    assert id_named_column(one, set(ITEMS)) is None
+    fitted = cfa_tool.fit(MODEL, one)
+    assert not _repeated(fitted)
+    [said] = [p for p in fitted.problems if p.kind is ProblemKind.UNIT_ROWS_AS_INDEPENDENT]
+    assert _flat(said.explanation).startswith("The column 'team_id', an id of teams by its name, gives 12 teams to "
+                                              "240 rows (20 rows each on average)")  # 240 riders in 12 depots
+    assert not [p for p in cfa_tool.fit(MODEL, one, cluster="team_id").problems
+                if p.kind is ProblemKind.UNIT_ROWS_AS_INDEPENDENT]  # the teams as clusters: allowed for
+    # beside a person's id that repeats, the person's id is the rows' id, as before
+    both = _riders().rename(columns={"depot_id": "team_id"})
+    assert id_named_column(both, set(ITEMS) | {"wave"}) == "rider_id"

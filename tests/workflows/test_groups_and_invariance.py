@@ -150,7 +150,8 @@ def test_group_statements_need_groups(hs_data):
 def test_group_column_problems(hs_data):
     with pytest.raises(OptionError, match="no group column 'schol'; did you mean 'school'"):
         cfa_tool.fit(THREE_FACTORS, hs_data, group="schol")
-    with pytest.raises(DataError, match="only 1 group"):
+    with pytest.raises(DataError, match="the group column 'one' puts every row in group all; a multi-group analysis "
+                                        "needs at least two groups"):  # not 'has only 1 group (all)'(s26)
         cfa_tool.fit(THREE_FACTORS, hs_data.assign(one="all"), group="one")
     tiny = hs_data.copy()
     tiny.loc[tiny.index[:3], "school"] = "tiny"

@@ -80,3 +80,15 @@ def test_the_command_line_says_it_first_and_in_the_json(riders, tmp_path, capsys
     printed = " ".join(capsys.readouterr().out.replace("│", " ").split())
     assert printed.index("The item sums of waiting do not compare") < printed.index("Factor scores:")
     assert json.loads(out.read_text())["problems"][0]["kind"] == ProblemKind.ITEM_SUMS_ACROSS_GROUPS.value
+
+
+def test_no_caution_names_a_factor_whose_sums_the_fit_withholds(riders):
+    # wait2 and wait4 declared reversed though every loading of the population is positive (by construction): half
+    # of waiting's items run against the declared keying in both versions, so the fit withholds its sums and their
+    # column is empty; the caution on comparing item means across groups named it all the same (s26)
+    keyed = PARTIAL + "reversed wait2, wait4 on -10 to 20\n"
+    result = cfa_tool.scores(keyed, riders, group="version", methods=["regression", "item-mean"])
+    withheld = [p for p in result.fit.problems if p.kind is ProblemKind.KEYING_AGAINST_LOADINGS]
+    assert {p.group for p in withheld} == {"paper", "tablet"}
+    assert result.table["waiting_item_mean"].isna().all()
+    assert not _cautions(result)
