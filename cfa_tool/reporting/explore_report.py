@@ -14,7 +14,7 @@ from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.data.halves import EXPLORE_NAMES, halves_named_alike
 from cfa_tool.numbers import count_text
-from cfa_tool.reporting.numbers import est_num, est_unit, num, unit
+from cfa_tool.reporting.numbers import est_num, explored_unit, num, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, ReportTable, _table
 
 SPLIT_STATEMENT = ("The rows were {divided} (seed {seed}): the number of factors, the solution "
@@ -140,18 +140,23 @@ def loading_table(result, structure: bool = False) -> ReportTable:
     threshold = ex.draft.threshold
     errors = ex.errors.pattern[list(order)] if (not structure and ex.errors is not None
                                                 and ex.errors.unavailable is None) else None
-    rows = []
+    rows, values = [], []  # the cells by explored_unit's rule; the data files' numbers in full
     marked = not structure and any(result.items[k] in ex.solution.at_bound for k in order)  # a Problem column if any
     for i, k in enumerate(order):
+        bound = ["at bound" if result.items[k] in ex.solution.at_bound else ""] if marked else []
         if errors is None:
-            cells = [result.items[k]] + [est_unit(v, 2) for v in shown[i]]
+            cells = [result.items[k]] + [explored_unit(v) for v in shown[i]]
+            numbers = [result.items[k]] + [float(v) for v in shown[i]]
         else:  # each loading with its standard error beside it
             cells = [result.items[k]] + [c for v, e in zip(shown[i], errors[i])
-                                         for c in (est_unit(v, 2), est_num(e, 3) if np.isfinite(e) else "")]
+                                         for c in (explored_unit(v), est_num(e, 3) if np.isfinite(e) else "")]
+            numbers = [result.items[k]] + [c for v, e in zip(shown[i], errors[i])
+                                           for c in (float(v), float(e) if np.isfinite(e) else None)]
         if not structure:
-            cells += [unit(ex.communalities[k], 2)] + (["at bound" if result.items[k] in ex.solution.at_bound else ""]
-                                                       if marked else [])
+            cells += [explored_unit(ex.communalities[k])] + bound
+            numbers += [float(ex.communalities[k])] + bound
         rows.append(cells)
+        values.append(numbers)
     cols = [("Item", "l")] + ([(n, "r") for n in names] if errors is None else
                               [c for n in names for c in ((n, "r"), ("SE", "r"))])
     if not structure:
@@ -172,6 +177,7 @@ def loading_table(result, structure: bool = False) -> ReportTable:
     at_bound = tuple(i for i, k in enumerate(order) if result.items[k] in ex.solution.at_bound) if not structure else ()
     return ReportTable(("structure" if structure else "pattern"), title, tuple(c for c, _ in cols),
                        tuple(a for _, a in cols), tuple(tuple(r) for r in rows), note, at_bound,
+                       tuple(c for c, _ in cols), tuple(tuple(v) for v in values),
                        faint=_faint(shown, threshold) if errors is None else
                        tuple((int(i), int(1 + 2 * j)) for i, j in zip(*np.nonzero(np.abs(shown) < threshold))))
 
@@ -182,9 +188,13 @@ def factor_correlation_table(result) -> ReportTable | None:
         return None
     names = ex.draft.factor_names
     phi = ex.rotated.factor_correlations
-    rows = [[names[i]] + [unit(phi[i, j], 2) for j in range(i)] + [""] * (len(names) - 1 - i)
+    rows = [[names[i]] + [explored_unit(phi[i, j]) for j in range(i)] + [""] * (len(names) - 1 - i)
             for i in range(1, len(names))]
-    return _table("factor_correlations", "Factor correlations", [("", "l")] + [(n, "r") for n in names[:-1]], rows)
+    values = [[names[i]] + [float(phi[i, j]) for j in range(i)] + [None] * (len(names) - 1 - i)
+              for i in range(1, len(names))]  # the data files' numbers in full
+    columns = [("", "l")] + [(n, "r") for n in names[:-1]]
+    return _table("factor_correlations", "Factor correlations", columns, rows,
+                  values=([c for c, _ in columns], values))
 
 
 def solution_line(result) -> str:
