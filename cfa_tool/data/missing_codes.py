@@ -291,6 +291,18 @@ def codes_on_answers(frame: pd.DataFrame, codes, value_labels: dict, items: Coll
     return _codes_on_answers(found)
 
 
+def labelled_scale(labels: dict, skip=()) -> tuple[float, float] | None:
+    """The lowest and highest answer an item's value labels declare: its labelled codes whose label does not say no
+    answer, the codes read as no answer (``skip``) aside; None when no label declares an answer.  What a fit keeps of
+    its file's labels (pipeline.results.DataSummary.labelled_scales), so that scoring other data with it judges an
+    answer 0 labelled 'Never' on the scale although none of the fit's rows gave it (new-user trial s25)."""
+    from cfa_tool.data.non_answers import says_no_answer
+
+    answers = [float(k) for k, v in labels.items() if isinstance(k, float) and k not in skip
+               and not says_no_answer(v, explained=True)]
+    return (min(answers), max(answers)) if answers else None
+
+
 def _answer_scale(labels: dict, present: list, skip) -> tuple[float, float]:
     """The lowest and highest of an item's other answers: its labelled codes whose label does not say no answer and
     the values it holds (``present``), the codes read as no answer (``skip``) aside."""
