@@ -90,6 +90,12 @@ def add_report_options(p: argparse.ArgumentParser, json: bool = True) -> None:
     p.add_argument("--tables", metavar="FOLDER", help="write every table as CSV and as LaTeX (booktabs) into FOLDER")
 
 
+def add_diagram_option(p: argparse.ArgumentParser) -> None:
+    """--diagram, the fit's path diagram as a file: of a fit (fit, demo) and of a saved fit (report)."""
+    p.add_argument("--diagram", metavar="PATH", help="write the path diagram (every group) as SVG, or as PNG "
+                   "or PDF when PATH ends in .png or .pdf (needs the rsvg-convert program)")
+
+
 def document_files(args: argparse.Namespace, report, dpi: int | None = None) -> list[tuple[str, object, str]]:
     """(option, content, message) of the HTML, Markdown and Word files asked for, drawn from one report
     (cfa_tool.reporting.document.Report)."""
@@ -352,7 +358,14 @@ def diagram_files(args: argparse.Namespace, result) -> list[tuple[str, object, s
     if not getattr(args, "diagram", None):
         return []
     from cfa_tool.reporting.diagram import diagram_file
+
+    return diagram_output(args, diagram_file(result))
+
+
+def diagram_output(args: argparse.Namespace, svg: str) -> list[tuple[str, object, str]]:
+    """(option, content, message) of the path diagram ``svg`` as --diagram asks for it (SVG, PNG at --dpi, PDF): a
+    fit's, or a saved fit's (cfa-tool report)."""
     from cfa_tool.reporting.picture import picture, picture_format
 
-    content = picture(diagram_file(result), picture_format("--diagram", args.diagram), args.dpi)
+    content = picture(svg, picture_format("--diagram", args.diagram), args.dpi)
     return [("--diagram", content, f"Path diagram written to {args.diagram}")]

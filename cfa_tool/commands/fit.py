@@ -6,7 +6,8 @@ import argparse
 from pathlib import Path
 
 from cfa_tool.commands import options as O
-from cfa_tool.commands.common import add_report_options, check_output, diagram_files, emit, inputs_of
+from cfa_tool.commands.common import add_diagram_option, add_report_options, check_output, diagram_files, emit, \
+    inputs_of
 from cfa_tool.method import Information
 
 
@@ -30,8 +31,7 @@ def add_parser(sub) -> None:
 def add_fit_outputs(p: argparse.ArgumentParser) -> None:
     """The options of a fit's estimation and of its report files."""
     add_report_options(p)  # JSON, HTML, Markdown, Word and tables, as every command has them
-    p.add_argument("--diagram", metavar="PATH", help="write the path diagram (every group) as SVG, or as PNG "
-                   "or PDF when PATH ends in .png or .pdf (needs the rsvg-convert program)")
+    add_diagram_option(p)
     p.add_argument("--dpi", type=int, default=None, help="resolution of pictures (PNG diagram, Word figure; default "
                                                          "300); only with --diagram FILE.png or --docx")
     p.add_argument("--standard-errors-from", dest="information", choices=Information.words(), default=None,

@@ -206,6 +206,9 @@ class CodeOnAnswer:
     #: the data file's own declaration of missing values made the gaps (an SPSS file's MISSING VALUES), not a code
     #: the run gave (hostile s25: 3 'Neither agree nor disagree' declared missing lost 39% of the answers with a note)
     declared: bool = False
+    #: with ``declared``: the declaration is the earlier fit's data file's, carried to the file scored with the fit
+    #: (scores --from-fit of a plain export of the same survey, data.non_answers.read_fit_marked)
+    carried: bool = False
 
     def among(self, kept) -> CodeOnAnswer | None:
         """The cells in the rows that row filters kept (``kept``: row numbers), or None when they kept none."""
@@ -222,7 +225,12 @@ class CodeOnAnswer:
         many = len(self.columns) != 1
         name = base_name(source)
         given = Option.MISSING_CODES.given(f'{user_number(self.value)}')
-        if self.declared:  # the file's declaration, with the label it gives the code
+        if self.carried:  # the earlier fit's file's declaration, read so in the file scored
+            opening = (f"The earlier fit's data file declares the code {user_number(self.value)} a missing value, which "
+                       f"it labels '{printable(self.label)}', and {name} holds it as an answer between the other "
+                       f"answers ({user_number(self.scale[0])} to {user_number(self.scale[1])})",)
+            instead = f"as '{printable(self.label)}'"
+        elif self.declared:  # the file's declaration, with the label it gives the code
             opening = (f"{name} declares the code {user_number(self.value)} a missing value, which it labels "
                        f"'{printable(self.label)}', an answer between the other answers ({user_number(self.scale[0])} "
                        f"to {user_number(self.scale[1])})",)
@@ -241,12 +249,18 @@ class CodeOnAnswer:
                        f"({user_number(self.scale[0])} to {user_number(self.scale[1])})")
             instead = f"as '{printable(self.label)}'"
         return Note(opening + (
-            f" of {len(self.columns) if many else 'the'} item{'s' if many else ''} holding it: {cells} "
-            f"cell{'s' if cells != 1 else ''} ({listed}) in {rows} row{'s' if rows != 1 else ''} became gaps, "
-            f"analysed as missing answers, not {instead}.",))
+            f" of {len(self.columns) if many else 'the'} item{'s' if many else ''} holding it: {count_text(cells)} "
+            f"cell{'s' if cells != 1 else ''} ({listed}) in {count_text(rows)} row{'s' if rows != 1 else ''} became "
+            f"gaps, {'scored' if self.carried else 'analysed'} as missing answers, not {instead}"
+            + (", as the fit read it." if self.carried else "."),))
 
     def advice(self) -> Note:
         answer = f"{user_number(self.value)}" if self.label is None else f"'{printable(self.label)}'"
+        if self.carried:
+            return Note((f"If {answer} is an answer, the fit read it as no answer too: remove its declaration as a "
+                         f"missing value in a copy of the fit's data file and fit again before scoring; if these "
+                         f"items' {user_number(self.value)} means no answer, nothing (gaps so made are missing because "
+                         f"of their own value, which scores computed from each row's other answers do not assume).",))
         if self.declared:
             return Note((f"If {answer} is an answer, remove its declaration as a missing value in a copy of the data "
                          f"file; if these items' {user_number(self.value)} means no answer, nothing (gaps so made are "
@@ -291,6 +305,18 @@ def codes_on_answers(frame: pd.DataFrame, codes, value_labels: dict, items: Coll
     return _codes_on_answers(found)
 
 
+def labelled_scale(labels: dict, skip=()) -> tuple[float, float] | None:
+    """The lowest and highest answer an item's value labels declare: its labelled codes whose label does not say no
+    answer, the codes read as no answer (``skip``) aside; None when no label declares an answer.  What a fit keeps of
+    its file's labels (pipeline.results.DataSummary.labelled_scales), so that scoring other data with it judges an
+    answer 0 labelled 'Never' on the scale although none of the fit's rows gave it (new-user trial s25)."""
+    from cfa_tool.data.non_answers import says_no_answer
+
+    answers = [float(k) for k, v in labels.items() if isinstance(k, float) and k not in skip
+               and not says_no_answer(v, explained=True)]
+    return (min(answers), max(answers)) if answers else None
+
+
 def _answer_scale(labels: dict, present: list, skip) -> tuple[float, float]:
     """The lowest and highest of an item's other answers: its labelled codes whose label does not say no answer and
     the values it holds (``present``), the codes read as no answer (``skip``) aside."""
@@ -301,12 +327,46 @@ def _answer_scale(labels: dict, present: list, skip) -> tuple[float, float]:
     return min(answers), max(answers)
 
 
-def _codes_on_answers(found: dict, declared: bool = False) -> tuple[CodeOnAnswer, ...]:
+def _codes_on_answers(found: dict, declared: bool = False, carried: bool = False) -> tuple[CodeOnAnswer, ...]:
     """One :class:`CodeOnAnswer` for each (code, label, lowest, highest) of ``found``, naming every (item, rows) that
-    holds it; ``declared``: the data file's own declaration of missing values made the gaps."""
-    kind = {"problem_kind": "answers the file declares missing", "declared": True} if declared else {}
+    holds it; ``declared``: the data file's own declaration of missing values made the gaps; ``carried``: the
+    earlier fit's data file's, read so in a file scored with the fit."""
+    kind = {"problem_kind": "answers the file declares missing", "declared": True, "carried": carried} \
+        if declared or carried else {}
     return tuple(CodeOnAnswer(code, text, tuple(c for c, _ in held), tuple(r for _, r in held), (low, high), **kind)
                  for (code, text, low, high), held in found.items())
+
+
+def carried_codes_on_answers(frame: pd.DataFrame, carried, value_labels: dict) -> tuple[CodeOnAnswer, ...]:
+    """The codes an earlier fit's data file declared missing with a label that names an answer (3 'Neither agree nor
+    disagree'; data.non_answers.CarriedCells.declared_label), read as no answer in a file scored with the fit
+    (``carried``, data.non_answers.read_fit_marked), that lie between the other answers of that file's items by the
+    one rule of a code on the answer scale (data.non_answers.between_answers: its own labels, ``value_labels``, or
+    its answers given): the caution first that the fit gives of its own file (:func:`declared_codes_on_answers`;
+    hostile s25: a plain export scored with the fit lost its midpoint answers with a note only).  ``frame``: the rows
+    before the carried codes were read as missing."""
+    from cfa_tool.data.moments import row_numbers
+    from cfa_tool.data.non_answers import between_answers, says_no_answer
+
+    numbers = dict(zip(frame.index.tolist(), row_numbers(frame).tolist()))
+    codes: dict[str, set] = {}
+    for c in carried:
+        codes.setdefault(c.column, set()).add(c.value)
+    found: dict[tuple, list] = {}
+    for c in carried:
+        if not c.declared_label or says_no_answer(c.declared_label, explained=True):
+            continue
+        labels = value_labels.get(c.column, {})
+        values = frame[c.column].to_numpy(dtype=float, na_value=np.nan)
+        skip = tuple(codes[c.column])
+        present = [v for v in np.unique(values[np.isfinite(values)]).tolist() if v not in skip]
+        if not between_answers(c.value, labels, present, skip):
+            continue
+        rows = tuple(int(numbers[r]) for r in c.rows if r in numbers)
+        if rows:
+            found.setdefault((c.value, c.declared_label, *_answer_scale(labels, present, skip)), []).append(
+                (c.column, rows))
+    return _codes_on_answers(found, carried=True)
 
 
 def declared_codes_on_answers(frame: pd.DataFrame, declared, value_labels: dict, items: Collection[str] | None

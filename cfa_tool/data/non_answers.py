@@ -643,6 +643,9 @@ class CarriedCells:
     value: float
     column: str
     rows: tuple
+    #: the label the fit's data file gave the code, when the fit read it as declared missing (NonAnswerKind.DECLARED):
+    #: a label that names an answer makes the cells a caution first (data.missing_codes.carried_codes_on_answers)
+    declared_label: str | None = None
 
 
 @contextlib.contextmanager
@@ -723,7 +726,8 @@ def read_fit_marked(frame: pd.DataFrame, items, source: str, value_labels: dict
                                 f"no answer (its data file {_marked_how(f)}): the two files code the answers "
                                 f"otherwise; recode one as the other before scoring")
             same = cells & (column.to_numpy(dtype=float) == value)
-            found.append(CarriedCells(float(value), f.column, tuple(frame.index[same].tolist())))
+            declared = f.label if isinstance(f, NonAnswer) and f.kind is NonAnswerKind.DECLARED else None
+            found.append(CarriedCells(float(value), f.column, tuple(frame.index[same].tolist()), declared))
         if out is frame:
             out = frame.copy()
         out[f.column] = column.where(~cells)

@@ -27,7 +27,8 @@ from cfa_tool.data.case_filter import filter_variable, kept_rows_words
 from cfa_tool.data.kept_rows import (SHEET_COLUMNS, TEXT_LINES, line_words, row_naming, row_words, rows_listed,
                                      text_lines)
 from cfa_tool.data.kept_counts import ReadingCounts, emptied_cells, markers_note
-from cfa_tool.data.missing_codes import apply_missing_codes, codes_on_answers, declared_codes_on_answers, missing_codes_note
+from cfa_tool.data.missing_codes import apply_missing_codes, carried_codes_on_answers, codes_on_answers, \
+    declared_codes_on_answers, missing_codes_note
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.notes_rows import end_of_data, notes_lines, notes_note
 from cfa_tool.data.non_answers import GIVEN_CODES, answers_labelled_like_none, declared_missing, declared_ranges, \
@@ -245,7 +246,10 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     coded = emptied_cells(before, frame) if missing_codes else ()  # (their notes written again over the rows kept)
     kept_codes = no_answer_codes(frame, item_labels, tuple(missing_codes))  # those no cell gives too: a fit keeps them
     frame, labelled = labelled_non_answers(frame, item_labels, tuple(missing_codes))
+    unmarked = frame
     frame, carried = read_fit_marked(frame, mine, str(where), item_labels)  # scores: what the fit's file marked
+    # its declared missing values on answers of the scored file: a caution first, as the fit's of its own file
+    on_answers += carried_codes_on_answers(unmarked, carried, item_labels) if carried else ()
     carried_note = fit_marked_note(carried, str(where)) if carried else None
     if carried_note:
         code_notes = tuple(code_notes) + (carried_note,)

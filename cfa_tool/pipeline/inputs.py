@@ -757,7 +757,29 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     declared = tuple(r for r in loaded.declared_ranges if r.column in items)  # scoring other data reads them so
     if declared:
         read["declared_ranges"] = declared
+    scales = labelled_scales(loaded, result.observed)  # and judges answers by the scale the labels declare
+    if scales:
+        read["labelled_scales"] = scales
     return replace(result, data=replace(result.data, **read)) if read else result
+
+
+def labelled_scales(loaded: LoadedData, items) -> tuple[tuple[str, float, float], ...]:
+    """(item, lowest, highest) of each of ``items`` whose value labels declare answers (data.missing_codes.
+    labelled_scale), the codes the file marks as no answer or declares missing aside."""
+    from cfa_tool.data.missing_codes import labelled_scale
+
+    out = []
+    for item in items:
+        labels = loaded.value_labels.get(item)
+        if not labels:
+            continue
+        skip = {n.value for n in loaded.non_answers if n.column == item} | {
+            k for k in labels for r in loaded.declared_ranges
+            if r.column == item and isinstance(k, float) and r.low <= k <= r.high}
+        scale = labelled_scale(labels, skip)
+        if scale is not None:
+            out.append((item, *scale))
+    return tuple(out)
 
 
 def with_design_weights(loaded: LoadedData, design: DesignColumns | None, spec: Spec, group: str | None) -> LoadedData:

@@ -288,6 +288,10 @@ class DataSummary:
     # per item, the lowest and highest answer of the rows analysed (empty without rows), so that scoring other data
     # with this fit can name answers outside them (a file coded 0-4 scored with a fit of answers coded 1-5)
     ranges: tuple[tuple[float, float], ...] = ()
+    # per item whose data file's value labels declare its answers, (item, lowest, highest) of the labelled answers
+    # (data.missing_codes.labelled_scale), so that scoring other data with this fit judges answers by the scale the
+    # file declared, as it does by an 'answers' statement's codes, not only by those its rows happened to give
+    labelled_scales: tuple[tuple[str, float, float], ...] = ()
     # the rows the ``answered`` counts are of (None: N), which frequency weights make fewer than N (hostile s21: 190
     # rows answering an item of a group of 191 rows counted as 400 read as 47.5%)
     answered_of: int | None = None
@@ -409,6 +413,9 @@ class DataSummary:
             out["joined_answers"] = clean(joins_json(self.joined_answers))
         if self.ranges:
             out["answer_ranges"] = _answer_ranges(self.variables, self.ranges)
+        if self.labelled_scales:
+            out["answer_scales_labelled_by_the_file"] = {item: clean_list((low, high))
+                                                         for item, low, high in self.labelled_scales}
         return out
 
 

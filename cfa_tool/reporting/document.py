@@ -121,6 +121,9 @@ class Report:
     #: how the report's tables are written as CSV files (--tables): in the convention of the data file the result
     #: read, the one rule of every CSV file the tool writes (data.csv_convention.convention_of_result)
     csv_convention: CsvConvention = PLAIN
+    #: a fit's path diagram as one file (every group, one legend: reporting.diagram.diagram_file), which ``fit
+    #: --diagram`` writes and a saved result keeps, so that ``cfa-tool report --diagram`` writes it later
+    diagram: Figure | None = None
 
     def __post_init__(self) -> None:
         # the notices' lines as sentences, in every view and in a saved report (those saved before too)
@@ -140,7 +143,8 @@ class Report:
                                                          for f in self.figures],
                 "problem_table": None if self.problem_table is None else self.problem_table.to_dict(),
                 "warnings": [saved(x) for x in self.warnings], "listings": [{"title": x.title, "text": x.text} for x in self.listings],
-                "files": list(self.files), "csv_convention": self.csv_convention.to_dict()}
+                "files": list(self.files), "csv_convention": self.csv_convention.to_dict(),
+                **({} if self.diagram is None else {"diagram": self.diagram.svg})}
 
     @classmethod
     def from_dict(cls, d: dict) -> "Report":
@@ -161,7 +165,8 @@ class Report:
                    None if d.get("problem_table") is None else ReportTable.from_dict(d["problem_table"]),
                    tuple(map(read, _listed(d, "warnings", ()))),
                    tuple(Listing(str(x["title"]), str(x["text"])) for x in _listed(d, "listings", ())),
-                   tuple(map(str, _listed(d, "files", ()))), CsvConvention.from_dict(d.get("csv_convention")))
+                   tuple(map(str, _listed(d, "files", ()))), CsvConvention.from_dict(d.get("csv_convention")),
+                   None if d.get("diagram") is None else Figure("Path diagram", drawn(str(d["diagram"]))))
 
 
 def _listed(d: dict, key: str, default=None) -> list:

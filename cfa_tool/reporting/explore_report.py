@@ -14,7 +14,7 @@ from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.data.halves import EXPLORE_NAMES, halves_named_alike
 from cfa_tool.numbers import count_text
-from cfa_tool.reporting.numbers import est_num, est_unit, num, unit
+from cfa_tool.reporting.numbers import est_num, explored_unit, num, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, ReportTable, _table
 
 SPLIT_STATEMENT = ("The rows were {divided} (seed {seed}): the number of factors, the solution "
@@ -148,15 +148,15 @@ def loading_table(result, structure: bool = False) -> ReportTable:
     marked = not structure and any(result.items[k] in ex.solution.at_bound for k in order)  # a Problem column if any
     for i, k in enumerate(order):
         if errors is None:
-            cells = [result.items[k]] + [est_unit(v, 2) for v in shown[i]]
+            cells = [result.items[k]] + [explored_unit(v) for v in shown[i]]
             figures = [result.items[k], *shown[i]]
         else:  # each loading with its standard error beside it
             cells = [result.items[k]] + [c for v, e in zip(shown[i], errors[i])
-                                         for c in (est_unit(v, 2), est_num(e, 3) if np.isfinite(e) else "")]
+                                         for c in (explored_unit(v), est_num(e, 3) if np.isfinite(e) else "")]
             figures = [result.items[k]] + [c for v, e in zip(shown[i], errors[i]) for c in (v, e)]
         if not structure:
             problem = ["at bound" if result.items[k] in ex.solution.at_bound else ""] if marked else []
-            cells += [unit(ex.communalities[k], 2)] + problem
+            cells += [explored_unit(ex.communalities[k])] + problem
             figures += [ex.communalities[k]] + problem
         rows.append(cells)
         numbers.append(figures)
@@ -194,7 +194,7 @@ def factor_correlation_table(result) -> ReportTable | None:
         return None
     names = ex.draft.factor_names
     phi = ex.rotated.factor_correlations
-    rows = [[names[i]] + [unit(phi[i, j], 2) for j in range(i)] + [""] * (len(names) - 1 - i)
+    rows = [[names[i]] + [explored_unit(phi[i, j]) for j in range(i)] + [""] * (len(names) - 1 - i)
             for i in range(1, len(names))]
     numbers = [[names[i]] + [phi[i, j] for j in range(i)] + [None] * (len(names) - 1 - i)
                for i in range(1, len(names))]

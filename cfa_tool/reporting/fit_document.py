@@ -89,4 +89,11 @@ def fit_report(result) -> Report:
     left_out = T.matrices_left_out(result)
     return Report(ResultKind.FIT, result.model_name, T.problem_notice(result), lines, tuple(fit_tables(result)),
                   () if left_out is None else (left_out,), (HIGH_STAKES_NOTE,), methods_paragraph(result), figures, T.problem_table(result), warnings,
-                  (Listing("Model", result.model_text),))
+                  (Listing("Model", result.model_text),), diagram=Figure("Path diagram", partial(_diagram_file, result)))
+
+
+def _diagram_file(result) -> tuple[str, str]:
+    """The fit's path diagram as one file (every group, one legend), drawn when a view or the JSON asks for it."""
+    from cfa_tool.reporting.diagram import diagram_file
+
+    return diagram_file(result), ""

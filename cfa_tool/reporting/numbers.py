@@ -50,6 +50,17 @@ def est_unit(value, digits: int = 2) -> str:
         return text[1:] if text.startswith("0.") else "-" + text[2:]
     return unit(value, digits)
 
+def explored_unit(value, digits: int = 2) -> str:
+    """An entry of an exploratory solution (a pattern or structure loading, a factor correlation, a communality) as
+    :func:`unit` prints it, to ``digits`` decimals in every cell, a value that rounds to zero as '.00' without a sign.
+    Every entry of an exploratory solution is an estimate (none is fixed), so a rounded zero cannot be taken for a
+    fixed one, which is why :func:`est_unit` keeps a confirmatory table's free estimate from printing as zero; the
+    sign of a loading of -.0004 says nothing, and a reader of a pattern matrix scans columns of two decimals (new-user
+    trial s25: '-.00038' among two-decimal loadings).  The one rule of the values of every view of ``explore``; its
+    data files (CSV) keep the full numbers."""
+    return unit(value, digits)
+
+
 #: words joined as a sentence lists them ('a, b, and c'): the one list rule, declared in cfa_tool.numbers for the
 #: workflows' notes too
 word_list = _shared.word_list

@@ -535,21 +535,42 @@ def _departures(d, shape: _Shape) -> str:
     """The departures from simple structure; ``shape``: the model's factors as the fit read them (:func:`_shape`):
     a bifactor model's general factors with their specific factors and the undeclared factors of a method factor's
     shape, whose loadings are no cross-loadings, and the zero correlations the structure's sentence states."""
-    parts = []
+    included, sentences = _departure_parts(d, shape)
+    return " ".join(([f"The model also included {_included_words(included)}."] if included else []) + sentences)
+
+
+#: the parameters a model adds to simple structure, one entry each (:func:`_departure_parts`), in the order a
+#: sentence lists their kinds
+_INCLUDED = ("cross-loading", "residual covariance", "disturbance covariance")
+
+
+def _included_words(included) -> str:
+    """The parameters a model adds to simple structure ((kind, words) of :func:`_departure_parts`) as a sentence
+    lists them: 'a cross-loading of x4 (on f1 and f2) and two residual covariances (x1 with x2 and x3 with x5)'."""
+    parts = [words for kind, words in included if kind == "cross-loading"]
+    pairs = [words for kind, words in included if kind == "residual covariance"]
+    if pairs:
+        parts.append(f"{_count(len(pairs), 'residual covariance')} ({_list(pairs)})")
+    pairs = [words for kind, words in included if kind == "disturbance covariance"]
+    if pairs:
+        parts.append(f"{_count(len(pairs), 'covariance')} between factor disturbances ({_list(pairs)})")
+    return _list(parts)
+
+
+def _departure_parts(d, shape: _Shape) -> tuple[list[tuple[str, str]], list[str]]:
+    """The departures from simple structure (:func:`_departures`) as (the parameters added, one (kind, words) each:
+    a cross-loading, a residual covariance, a covariance of factor disturbances; the other sentences), so that a
+    comparison can say a model by what differs from another (:func:`_model_sentences`)."""
+    included: list[tuple[str, str]] = []
     general, unnamed = shape.general, shape.unnamed
     methods = set(d.method_factors) | set(general) | set(unnamed)
     for item, factors in d.cross_loadings:
         if sum(f not in methods for f in factors) > 1:  # a loading on a method factor is not a cross-loading
-            parts.append(f"a cross-loading of {_name(item)} (on {_names([f for f in factors if f not in methods])})")
-    if d.residual_covariances:
-        n = len(d.residual_covariances)
-        parts.append(f"{_count(n, 'residual covariance')} ({_list([_pair(p) for p in d.residual_covariances])})")
-    if d.factor_covariances_added:
-        parts.append(f"{_count(len(d.factor_covariances_added), 'covariance')} between factor disturbances "
-                     f"({_list([_pair(p) for p in d.factor_covariances_added])})")
+            included.append(("cross-loading", f"a cross-loading of {_name(item)} (on "
+                                              f"{_names([f for f in factors if f not in methods])})"))
+    included += [("residual covariance", _pair(p)) for p in d.residual_covariances]
+    included += [("disturbance covariance", _pair(p)) for p in d.factor_covariances_added]
     sentences = []
-    if parts:
-        sentences.append(f"The model also included {_list(parts)}.")
     if d.method_factors:
         many = len(d.method_factors) > 1
         sentences.append(f"The {'factors' if many else 'factor'} {_names(d.method_factors)} "
@@ -584,7 +605,7 @@ def _departures(d, shape: _Shape) -> str:
             return f"{_parameter(ref, d)} was kept at or above {user_number(lo)}" if lo is not None else \
                 f"{_parameter(ref, d)} was kept at or below {user_number(hi)}"
         sentences.append(_capital(_list([bound(*b) for b in d.bounds])) + ".")
-    return " ".join(sentences)
+    return included, sentences
 
 
 #: kinds of the model file's parameters whose equalities one sentence gathers, by the words of their plural
@@ -1165,9 +1186,13 @@ def _scale_sentences(d, problems=(), keys_said: bool = False) -> list[str]:
     """The items declared reverse-keyed (with the ends of their declared scale that no answer reached, among
     ``problems``; ``keys_said``: said already, for every model of a comparison), then how each factor got its scale
     (what the declaration changed in it)."""
-    found = ["" if keys_said else _reverse_keyed_sentence(d), _unreached_sentence(d, problems),
-             _scale_sentence(d) if d.scales else "", _method_scale_sentence(d)]
-    return [sentence for sentence in found if sentence]
+    return [sentence for _, sentence in _scale_pieces(d, problems, keys_said) if sentence]
+
+
+def _scale_pieces(d, problems=(), keys_said: bool = False) -> list[tuple[str, str]]:
+    """:func:`_scale_sentences` each with its kind ('' where a model has none of that kind)."""
+    return [("keyed", "" if keys_said else _reverse_keyed_sentence(d)), ("unreached", _unreached_sentence(d, problems)),
+            ("scale", _scale_sentence(d) if d.scales else ""), ("method scale", _method_scale_sentence(d))]
 
 
 def _method_scale_sentence(d) -> str:
@@ -1722,25 +1747,98 @@ _PREFERRED = (DifferenceMethod.SCALE_SHIFTED, DifferenceMethod.SATORRA_BENTLER_2
               DifferenceMethod.SATORRA_BENTLER_2001, DifferenceMethod.LIKELIHOOD_RATIO)
 
 
-def _model_sentences(name: str, result, keys_said: bool = False) -> str:
-    """Exactly one model of a comparison: its factors and indicators, scales and departures from simple structure
-    (``keys_said``: the items declared reverse-keyed were said once for every model, not again)."""
+#: where a model's name stands in the pieces of :func:`_model_pieces`, filled in when a piece is said
+_MODEL = "\x00model\x00"
+
+
+def _model_pieces(result, keys_said: bool = False) -> list[tuple[str, str]]:
+    """Exactly one model of a comparison as (kind, words) pieces, its name written :data:`_MODEL`: its factors and
+    indicators ('structure'), how its factors got their scales ('scale'), each parameter it adds to simple structure
+    (a cross-loading, a residual covariance, a covariance of disturbances: :data:`_INCLUDED`), its other departures
+    ('departure': equalities, fixed values, bounds, method factors), its factor means ('means') and its equalities
+    across groups ('groups'); the scale's sentences by their kinds (:func:`_scale_pieces`) (``keys_said``: the items declared reverse-keyed were said once for every model)."""
     d = result.description
     if d is None:
-        return f"{name} had {_count(len(result.observed), 'indicator')}."
+        return [("structure", f"{_MODEL} had {_count(len(result.observed), 'indicator')}.")]
     shape = _shape(result, d)
-    parts = [f"{name} had {_structure(d, shape).rstrip(',')}."] + _scale_sentences(d, result.problems, keys_said)
-    departures = _departures(d, shape)
-    if departures:
-        parts.append(departures.replace("The model also included", f"{name} also included", 1))
+    pieces = [("structure", f"{_MODEL} had {_structure(d, shape).rstrip(',')}.")]
+    pieces += [(kind, sentence) for kind, sentence in _scale_pieces(d, result.problems, keys_said) if sentence]
+    included, sentences = _departure_parts(d, shape)
+    pieces += included + [("departure", sentence) for sentence in sentences]
     means = "" if result.multigroup else _factor_means_sentence(result)
     if means:  # a one-group model's means where they are more than the intercepts' origin, as fit's paragraph says
-        parts.append(means.replace("The mean", f"In {name}, the mean", 1) if means.startswith("The mean") else
-                     f"In {name}, {means[0].lower()}{means[1:]}")
+        pieces.append(("means", means.replace("The mean", f"In {_MODEL}, the mean", 1) if means.startswith("The mean")
+                       else f"In {_MODEL}, {means[0].lower()}{means[1:]}"))
     if result.multigroup:  # what distinguishes grouped models: their equalities across groups
-        parts.append(_held_equal_sentences(d, name) if d.invariant else
-                     f"{name} held no parameter equal across groups (the same pattern in every group).")
-    return " ".join(parts)
+        pieces.append(("groups", _held_equal_sentences(d, _MODEL) if d.invariant else
+                       f"{_MODEL} held no parameter equal across groups (the same pattern in every group)."))
+    return pieces
+
+
+def _model_sentences(name: str, pieces: list[tuple[str, str]], first: list[tuple[str, str]] | None = None,
+                     short: str = "", first_name: str = "Model 1") -> str:
+    """One model of a comparison in words: in full (its :func:`_model_pieces`), or, given an earlier model's pieces
+    (``first``, named ``first_name``), by what differs from it when they share some, so that the paragraph of models of
+    many items stays of a manuscript's size (new-user trial s25: two longitudinal models of 18 items took about 1,000
+    words, each model's lists said again): what this model adds is said in full, what it leaves out of the first
+    model is named, and nothing else differs.  ``name``: its first mention ('Model 2 (free)'), ``short`` the later
+    ones ('Model 2')."""
+    short = short or name
+    same = [p for p in pieces if first is not None and p in first]
+    if not same:  # nothing shared (or the first model itself): every piece in full
+        return _said_in_full(pieces, name)
+    added = [p for p in pieces if p not in first]
+    replaced = {kind for kind, _ in added if kind not in _INCLUDED and kind != "departure"}
+    # the first model's pieces this one lacks, but for those its own of the same kind replace (its structure, how its
+    # factors got their scales, its items declared reverse-keyed, its means, its equalities across groups)
+    dropped = [p for p in first if p not in pieces and p[0] not in replaced]
+    if not added and not dropped:
+        return f"{name} was specified as {first_name}."
+    lines = []
+    for kind, words in added:
+        if kind in _INCLUDED:
+            continue
+        if _MODEL in words:  # the sentence names the model itself
+            lines.append(words.replace(_MODEL, short))
+        elif words.startswith("The "):
+            lines.append(f"in {short}, the {words[4:]}")
+        else:
+            lines.append(f"in {short}: {words}")
+    more = [p for p in added if p[0] in _INCLUDED]
+    if more:
+        lines.append(f"{short} also included {_included_words(more)}.")
+    fewer = [p for p in dropped if p[0] in _INCLUDED]
+    if fewer:
+        lines.append(f"{short} did not include {first_name}'s {_included_words(fewer)}.")
+    left = [_in_sentence(words.replace(_MODEL, first_name)).removesuffix(".") for kind, words in dropped
+            if kind not in _INCLUDED]
+    if left:
+        lines.append(f"{short} left out {'this part' if len(left) == 1 else 'these parts'} of {first_name}: "
+                     f"{'; '.join(left)}.")
+    return " ".join([f"{name} was specified as {first_name} except as follows."] + [_capital(line) for line in lines])
+
+
+#: the first words of the paragraph's sentences that go on in lower case inside another sentence (a name keeps its case)
+_SENTENCE_WORDS = ("The ", "In ", "No ", "A ", "An ", "Each ", "Every ")
+
+
+def _in_sentence(text: str) -> str:
+    """A sentence of the paragraph as it goes on after a colon: its first word in lower case when it is one of
+    :data:`_SENTENCE_WORDS`, never a name."""
+    return text[:1].lower() + text[1:] if text.startswith(_SENTENCE_WORDS) else text
+
+
+def _said_in_full(pieces: list[tuple[str, str]], name: str) -> str:
+    """A model's :func:`_model_pieces` as sentences, its name ``name``."""
+    parts, included = [], [p for p in pieces if p[0] in _INCLUDED]
+    for kind, words in pieces:
+        if kind in _INCLUDED:
+            if included:  # said once, where the first of them stands
+                parts.append(f"{_MODEL} also included {_included_words(included)}.")
+                included = []
+            continue
+        parts.append(words)
+    return " ".join(parts).replace(_MODEL, name)
 
 
 def _fit_figures(result) -> str:
@@ -1837,7 +1935,11 @@ def comparison_paragraph(comparison) -> str:
     if keys_said:
         said = _reverse_keyed_sentence(first.description)
         parts.append(f"In every model, {said[:1].lower()}{said[1:]}")
-    parts += [_model_sentences(f"{label[name]} ({name})", r, keys_said) for name, r in zip(names, results)]
+    pieces = [_model_pieces(r, keys_said) for r in results]
+    for k, (name, own) in enumerate(zip(names, pieces)):  # each by what differs from the earlier model nearest it
+        near = max(range(k), key=lambda j: (sum(p in pieces[j] for p in own), -j), default=None)
+        parts.append(_model_sentences(f"{label[name]} ({name})", own, None if near is None else pieces[near],
+                                      label[name], "" if near is None else label[names[near]]))
     parts += _design_sentences(list(results))
     statistic = f" (the {first.robust.statistic()} and robust indices)" if first.robust is not None else ""
     for name, r in zip(names, results):  # problems first: before the figures a reader might take as support

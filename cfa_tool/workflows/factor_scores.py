@@ -1293,10 +1293,9 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                                           "write each row's group as the fit's data wrote it, or fit the model to "
                                           "these groups."))
     # answers coded otherwise than in the fit's data, first: every score of the factor moves with them
-    from cfa_tool.data.matching import declared_answer_scales
-
     scored_problems[:0] = [Problem(kind, (), None, text, advice) for kind, text, advice in
-                           _coded_otherwise(result.data, base, rows, source, ordinal, declared_answer_scales(spec, frame))]
+                           _coded_otherwise(result.data, base, rows, source, ordinal,
+                                            declared_scales_of(result.data, spec, frame))]
     if scored_problems:
         result = _after_data_cautions(result, own, scored_problems)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names", False) \
@@ -1485,6 +1484,8 @@ def read_saved_fit(path) -> SavedFit:
                               + no_answer_codes_from_saved(d.get("codes_labelled_no_answer_by_the_file")),
                               ranges=tuple((float(d["answer_ranges"][x][0]), float(d["answer_ranges"][x][1]))
                                            for x in d["variables"]) if d.get("answer_ranges") else (),
+                              labelled_scales=tuple((str(x), float(low), float(high)) for x, (low, high) in
+                                                    (d.get("answer_scales_labelled_by_the_file") or {}).items()),
                               answer_coding=coding_from_json(d.get("answer_coding"), source))
         model = payload["model"]
     except (ValueError, KeyError, TypeError, AttributeError):
@@ -1814,6 +1815,16 @@ def _numeric(frame: pd.DataFrame, items: tuple[str, ...], source: str) -> np.nda
 
 #: the advice of every caution on answers coded otherwise than in the fit's data (:func:`_coded_otherwise`)
 RECODE_ADVICE = "check that both files code the answers alike, and recode one as the other before scoring."
+
+
+def declared_scales_of(data, spec, frame) -> dict[str, tuple[float, float]]:
+    """Each item's answer scale as the fit declared it (item -> (lowest, highest)): by the model's statements
+    (data.matching.declared_answer_scales: 'reversed ... on', 'answers'), else by the value labels of the fit's data
+    file (``data``: its DataSummary, whose ``labelled_scales`` a saved fit keeps)."""
+    from cfa_tool.data.matching import declared_answer_scales
+
+    out = {item: (low, high) for item, low, high in getattr(data, "labelled_scales", ()) or ()}
+    return out | declared_answer_scales(spec, frame)
 
 
 def _coded_otherwise(data, model, rows: np.ndarray, source: str, ordinal: bool,

@@ -77,3 +77,30 @@ def test_an_answer_on_the_declared_scale_is_not_outside(tmp_path, capsys):
         **{c: keyed_first[c].map(dict(enumerate(WORDS))) for c in ("driver", "info", "punctual")}),
         pd.concat(worded, axis=1))
     assert said == ""
+
+
+def test_an_answer_on_the_scale_the_fits_labels_declare_is_not_outside(tmp_path, capsys):
+    """The fit's data an SPSS file whose value labels declare 0 'Never' to 6 'Always' (and 9 'No answer', which says
+    no answer and is no part of the scale): the saved fit records each item's labelled scale and scoring a plain CSV
+    of the next wave reads it back, so its 0 answers are on the scale (new-user trial s25, finding 4: the saved fit did
+    not record the labels' scale, and 0 was called outside 1 to 6); an answer 7, beyond every label, still is."""
+    import pyreadstat
+
+    first, second = _waves()
+    second.loc[2, "seat"] = 7
+    labels = {**{float(k): w for k, w in enumerate(WORDS)}, 9.0: "No answer"}
+    pyreadstat.write_sav(first.astype(float), str(tmp_path / "w1.sav"),
+                         variable_value_labels={c: labels for c in ("clean", "info", "seat")})
+    model_file, fitted, js = tmp_path / "m.cfa", tmp_path / "fit.json", tmp_path / "s.json"
+    model_file.write_text("factor comfort: seat, clean, quiet\nfactor service: driver, info, punctual\n")
+    second.to_csv(tmp_path / "w2.csv", index=False)
+    assert _run(["fit", model_file, "--data", tmp_path / "w1.sav", "--json", fitted], capsys)[0] == 0
+    saved = json.loads(fitted.read_text())["data"]["answer_scales_labelled_by_the_file"]
+    assert saved == {"seat": [0.0, 6.0], "clean": [0.0, 6.0], "info": [0.0, 6.0]}  # the labels written above
+    code, _, err = _run(["scores", model_file, "--data", tmp_path / "w2.csv", "--from-fit", fitted, "--output",
+                         tmp_path / "s.csv", "--json", js], capsys)
+    assert code == 0, err
+    said = " ".join(p["explanation"] for p in json.loads(js.read_text())["problems"]
+                    if p["kind"] == "answers beyond the fitted rows")
+    assert "'clean'" not in said and "'info'" not in said  # the planted 0s, on the labelled scale
+    assert "'seat', 1 answer outside 0 to 6" in said  # the planted 7, beyond it

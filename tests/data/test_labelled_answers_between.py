@@ -94,14 +94,14 @@ def test_a_missing_code_on_a_labelled_answer_is_a_caution_first(tmp_path, rider)
     assert (cells, rows) == (2250, 475)  # counted by pandas from the CSV file
     assert str(first.explanation).startswith(
         "missing_codes=[3] read as no answer the code 3, which riders.sav labels 'Neutral', an answer between the "
-        f"other answers (1 to 5) of 12 items holding it: {cells} cells (on_time {int(threes.on_time.sum())}, ")
+        f"other answers (1 to 5) of 12 items holding it: {cells:,} cells (on_time {int(threes.on_time.sum())}, ")
     assert f") in {rows} rows became gaps" in first.explanation
     assert str(first.advice).startswith("If 'Neutral' is an answer, leave 3 out of missing_codes")
     # after a row filter, the cells and rows of the rows kept
     north = data.district == "north"
     kept = cfa_tool.fit(model, path, missing_codes=[3], keep=["district = north"])
     [caution] = [p for p in kept.problems if p.kind is ProblemKind.ANSWERS_GIVEN_AS_MISSING]
-    assert (f"{int(threes[north].sum().sum())} cells (on_time {int(threes.on_time[north].sum())}, " in caution.explanation
+    assert (f"{int(threes[north].sum().sum()):,} cells (on_time {int(threes.on_time[north].sum())}, " in caution.explanation
             and f") in {int(threes[north].any(axis=1).sum())} rows became gaps" in caution.explanation)
 
 
@@ -139,7 +139,7 @@ def test_a_missing_value_the_file_declares_on_a_labelled_answer_is_a_caution_fir
     assert (cells, rows) == (2250, 475)
     assert str(first.explanation).startswith(
         "declared.sav declares the code 3 a missing value, which it labels 'Neither agree nor disagree', an answer "
-        f"between the other answers (1 to 5) of 12 items holding it: {cells} cells (on_time {int(threes.on_time.sum())}, ")
+        f"between the other answers (1 to 5) of 12 items holding it: {cells:,} cells (on_time {int(threes.on_time.sum())}, ")
     assert f") in {rows} rows became gaps" in first.explanation
     assert str(first.advice).startswith("If 'Neither agree nor disagree' is an answer, remove its declaration")
     refused = tmp_path / "refused.sav"

@@ -38,7 +38,7 @@ def test_a_missing_code_between_unlabelled_answers_is_a_caution_first(rider, sou
     assert first.kind is ProblemKind.ANSWERS_GIVEN_AS_MISSING
     text = str(first.explanation)
     assert text.startswith("missing_codes=[3] read as no answer the code 3, which lies in ")
-    assert f"between the other answers ({low} to {high}) of 12 items holding it: {cells} cells " \
+    assert f"between the other answers ({low} to {high}) of 12 items holding it: {cells:,} cells " \
            f"(on_time {int(threes.on_time.sum())}, " in text
     assert f") in {rows} rows became gaps, analysed as missing answers, not as the answer 3." in text
     assert str(first.advice).startswith("If 3 is an answer, leave 3 out of missing_codes")

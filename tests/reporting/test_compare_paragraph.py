@@ -36,7 +36,9 @@ def test_the_paragraph_describes_each_model_and_the_likelihood_ratio_test(data):
     assert text.startswith("Three models of the same six indicators were compared on the same rows (N = 500")
     assert "Model 1 (<model text>) had six indicators of one factor (g)." in text
     assert "had six indicators of two correlated factors (a and b)" in text
-    assert "Model 3 (<model text> (3)) also included one residual covariance (y1 with y2)." in text
+    # Model 3 said by what differs from Model 2, the earlier model it shares most with
+    assert ("Model 3 (<model text> (3)) was specified as Model 2 except as follows. Model 3 also included one residual "
+            "covariance (y1 with y2).") in text
     assert "by maximum likelihood" in text
     assert "the likelihood-ratio chi-square difference test (Steiger, Shapiro & Browne, 1985)" in text
     one_two = next(t for t in comparison.tests if t.restricted == comparison.names[0] and t.general == comparison.names[1])

@@ -1,0 +1,63 @@
+"""``cfa-tool report RESULT.json --diagram PATH`` writes a saved fit's path diagram as ``fit --diagram`` writes it (the
+same file, byte for byte: one drawing per group with one legend, which the saved report keeps), under the same output
+guard (never the result file, never a file this tool did not write); a result that draws no diagram, and a fit saved
+before its result kept the file, are refused in one line that says what to do (new-user trial s25: 'report' could
+not write the diagram although the fit's figures were in the JSON).  Data: the bundled demo (a fictional transit
+agency's rider survey, simulated with a fixed seed), by district for two groups."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pytest
+
+from cfa_tool.cli import main
+from cfa_tool.resources import resource_dir
+
+MODEL = "rider_three_factors.cfa"
+
+
+@pytest.fixture(scope="module")
+def folder(tmp_path_factory) -> Path:
+    here = tmp_path_factory.mktemp("diagram")
+    (here / "rider.csv").write_bytes((resource_dir("demo") / "rider_survey.csv").read_bytes())
+    (here / MODEL).write_text((resource_dir("models") / MODEL).read_text())
+    return here
+
+
+@pytest.mark.parametrize("groups", [False, True])
+def test_report_writes_the_fits_diagram_file(folder, monkeypatch, groups, capsys):
+    monkeypatch.chdir(folder)
+    tag = "groups" if groups else "one"
+    assert main(["fit", MODEL, "--data", "rider.csv", "--json", f"{tag}.json", "--diagram", f"{tag}-fit.svg",
+                 *(["--group-column", "district"] if groups else [])]) == 0
+    assert main(["report", f"{tag}.json", "--diagram", f"{tag}-report.svg"]) == 0
+    assert f"Path diagram written to {tag}-report.svg" in capsys.readouterr().out
+    assert (folder / f"{tag}-report.svg").read_bytes() == (folder / f"{tag}-fit.svg").read_bytes()
+    assert main(["report", f"{tag}.json", "--diagram", f"{tag}-report.svg"]) == 0  # its own file again: replaced
+
+
+def test_the_output_guard_and_refusals(folder, monkeypatch, capsys):
+    monkeypatch.chdir(folder)
+    assert main(["fit", MODEL, "--data", "rider.csv", "--json", "fit.json"]) == 0
+    saved = (folder / "fit.json").read_bytes()
+    (folder / "someone.svg").write_text('<svg xmlns="http://www.w3.org/2000/svg"/>')
+    capsys.readouterr()
+    assert main(["report", "fit.json", "--diagram", "someone.svg"]) == 2  # a file the tool did not write
+    assert "not replaced" in capsys.readouterr().err
+    assert (folder / "someone.svg").read_text() == '<svg xmlns="http://www.w3.org/2000/svg"/>'
+    assert main(["report", "fit.json", "--diagram", "d.svg", "--dpi", "150"]) == 2  # no picture at that resolution
+    assert "--dpi" in capsys.readouterr().err
+    old = json.loads(saved)
+    del old["report"]["diagram"]  # as a fit saved before results kept the diagram file
+    (folder / "old.json").write_text(json.dumps(old))
+    assert main(["report", "old.json", "--diagram", "old.svg"]) == 2
+    err = capsys.readouterr().err
+    assert "run the fit again with --diagram" in err and err.count("\n") == 1
+    assert main(["check", MODEL, "--data", "rider.csv", "--json", "check.json"]) == 0
+    capsys.readouterr()
+    assert main(["report", "check.json", "--diagram", "check.svg"]) == 2
+    assert "draws no path diagram" in capsys.readouterr().err
+    assert not any((folder / name).exists() for name in ("d.svg", "old.svg", "check.svg"))
+    assert (folder / "fit.json").read_bytes() == saved
