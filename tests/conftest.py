@@ -27,6 +27,27 @@ factor ability: x1..x9
 """
 
 
+@pytest.fixture(autouse=True)
+def wide_unconnected_terminal(monkeypatch):
+    """Reports printed to a terminal the output is not connected to are as wide as COLUMNS says: 250 columns
+    here, wider than any path a test writes, so that a test reading a report's words is not broken by where a
+    long temporary path (longer under parallel workers) happens to wrap.  Tests of the layout set their own
+    width (COLUMNS=80, the width rich takes when it has none, or narrower)."""
+    monkeypatch.setenv("COLUMNS", "250")
+
+
+@pytest.fixture(scope="session", autouse=True)
+def one_blas_thread_per_worker():
+    """Under parallel test workers (pytest-xdist, one process per core) each worker's BLAS runs one thread, so
+    that the workers never oversubscribe the cores (the package's own rule for its worker processes)."""
+    import os
+
+    if os.environ.get("PYTEST_XDIST_WORKER"):
+        from cfa_tool.numerics.threads import one_blas_thread_from_now
+
+        one_blas_thread_from_now()
+
+
 @pytest.fixture(scope="session")
 def rider_demo() -> pd.DataFrame:
     """The bundled demo data: a fictional transit agency's rider survey, simulated with a fixed seed."""
@@ -88,7 +109,7 @@ def simulate_cfa(loadings: np.ndarray, phi: np.ndarray, theta: np.ndarray, n: in
     """Normal data from Sigma = L Phi L' + Theta (a test helper, not part of the tool)."""
     rng = np.random.default_rng(seed)
     sigma = loadings @ phi @ loadings.T + theta
-    data = rng.multivariate_normal(np.zeros(len(sigma)), sigma, size=n)
+    data = rng.multivariate_normal(np.zeros(len(sigma)), sigma, size=n, method="cholesky")
     names = names or [f"y{i + 1}" for i in range(len(sigma))]
     return pd.DataFrame(data, columns=names)
 
