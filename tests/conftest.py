@@ -27,6 +27,26 @@ factor ability: x1..x9
 """
 
 
+@pytest.fixture
+def wide_terminal(monkeypatch):
+    """Reports printed 250 columns wide (COLUMNS), wider than any temporary path a test writes: for tests that read
+    words with a path among them in the terminal report, which a long temporary path (longer under parallel
+    workers, a folder per worker) would otherwise break where the 80 columns of an unconnected terminal end."""
+    monkeypatch.setenv("COLUMNS", "250")
+
+
+@pytest.fixture(scope="session", autouse=True)
+def one_blas_thread_per_worker():
+    """Under parallel test workers (pytest-xdist, one process per core) each worker's BLAS runs one thread, so
+    that the workers never oversubscribe the cores (the package's own rule for its worker processes)."""
+    import os
+
+    if os.environ.get("PYTEST_XDIST_WORKER"):
+        from cfa_tool.numerics.threads import one_blas_thread_from_now
+
+        one_blas_thread_from_now()
+
+
 @pytest.fixture(scope="session")
 def rider_demo() -> pd.DataFrame:
     """The bundled demo data: a fictional transit agency's rider survey, simulated with a fixed seed."""
@@ -84,11 +104,17 @@ def hs_three(hs_data):
     return cfa_tool.fit(THREE_FACTORS, hs_data)
 
 
-def simulate_cfa(loadings: np.ndarray, phi: np.ndarray, theta: np.ndarray, n: int, seed: int, names=None) -> pd.DataFrame:
-    """Normal data from Sigma = L Phi L' + Theta (a test helper, not part of the tool)."""
+def simulate_cfa(loadings: np.ndarray, phi: np.ndarray, theta: np.ndarray, n: int, seed: int, names=None,
+                 method: str = "svd") -> pd.DataFrame:
+    """Normal data from Sigma = L Phi L' + Theta (a test helper, not part of the tool).  ``method``: numpy's
+    factor of Sigma the draws are made by.  Its default, "svd", gives rows that depend on the machine's LAPACK
+    kernels when Sigma has repeated eigenvalues (equal loadings on factors alike: the vectors of such an
+    eigenvalue are any basis of its space), so a model of such a design fitted to them can differ from one
+    processor to another; "cholesky" is the same on every machine: designs of equal loadings whose test depends on
+    the sample drawn use it."""
     rng = np.random.default_rng(seed)
     sigma = loadings @ phi @ loadings.T + theta
-    data = rng.multivariate_normal(np.zeros(len(sigma)), sigma, size=n)
+    data = rng.multivariate_normal(np.zeros(len(sigma)), sigma, size=n, method=method)
     names = names or [f"y{i + 1}" for i in range(len(sigma))]
     return pd.DataFrame(data, columns=names)
 

@@ -12,9 +12,14 @@ import subprocess
 import sys
 from pathlib import Path
 
+import pytest
+
 from cfa_tool import cli
 from cfa_tool.reporting.document import ResultKind
 from cfa_tool.reporting.reports import _RESULT_CLASSES, kind_of
+
+# these tests read words with a temporary path among them in the terminal report
+pytestmark = pytest.mark.usefixtures("wide_terminal")
 
 DATA = Path(__file__).resolve().parents[1] / "datasets" / "holzinger_swineford_1939.csv"
 MODEL = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"

@@ -19,6 +19,9 @@ from cfa_tool.errors import DataError, OptionError
 from tests.commands.test_halves_file import _run
 from tests.conftest import DATASETS
 
+# these tests read words with a temporary path among them in the terminal report
+pytestmark = pytest.mark.usefixtures("wide_terminal")
+
 HS_FILE = DATASETS / "holzinger_swineford_1939.csv"
 EDITED = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
 

@@ -19,6 +19,9 @@ import pytest
 from tests.commands.test_scores_command import FACTORS, ITEMS, _estimates, _run, model_file  # noqa: F401 (a fixture)
 from tests.conftest import THREE_FACTORS
 
+# these tests read words with a temporary path among them in the terminal report
+pytestmark = pytest.mark.usefixtures("wide_terminal")
+
 
 def _stats_file(path, frame: pd.DataFrame, kind: str, sd: bool, mean: bool) -> None:
     """A summary-statistics file of ``frame``'s items: the covariance or correlation matrix (divisor n-1), n, and

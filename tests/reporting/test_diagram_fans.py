@@ -46,7 +46,7 @@ def bifactor(parts: int, items: int):
     for i in range(p):
         loadings[i, 1 + i // items] = 0.5
     names, specific = _names("q", p, 20), _names("s", parts, 6)
-    data = simulate_cfa(loadings, np.eye(parts + 1), np.diag(np.full(p, 0.4)), 800, 3, names)
+    data = simulate_cfa(loadings, np.eye(parts + 1), np.diag(np.full(p, 0.4)), 800, 3, names, method="cholesky")
     model = "factor general: " + ", ".join(names) + "\n" + "".join(
         f"factor {f}: " + ", ".join(names[j * items:(j + 1) * items]) + "\n" for j, f in enumerate(specific))
     return cfa_tool.fit(model + "scale latent by variance\nuncorrelated general, " + ", ".join(specific) + "\n", data,

@@ -59,7 +59,7 @@ def _data(seed: int, general: float = 0.0):
     loadings[:, 0] = general
     phi = np.eye(4) if general else np.block([[np.eye(1), np.zeros((1, 3))], [np.zeros((3, 1)), 0.5 * np.eye(3) + 0.5]])
     implied = loadings @ phi @ loadings.T
-    return simulate_cfa(loadings, phi, np.diag(1 - np.diag(implied)), 600, seed, QUESTIONS)
+    return simulate_cfa(loadings, phi, np.diag(1 - np.diag(implied)), 600, seed, QUESTIONS, method="cholesky")
 
 
 THREE = "".join(f"factor {f}: {_quoted(QUESTIONS[5 * k:5 * k + 5])}\n" for k, f in enumerate(FACTORS))

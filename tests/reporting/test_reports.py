@@ -24,6 +24,9 @@ from cfa_tool.reporting.text_formats import report_markdown, report_table_files
 from tests.conftest import simulate_cfa
 from tests.commands.test_cli import DATA, MODEL, run
 
+# these tests read words with a temporary path among them in the terminal report
+pytestmark = pytest.mark.usefixtures("wide_terminal")
+
 
 def figure_svgs(page: str) -> list[str]:
     """The SVG text of every picture of an HTML report (images with a base64 data address)."""

@@ -13,6 +13,9 @@ import pytest
 
 from cfa_tool.cli import main
 
+# these tests read words with a temporary path among them in the terminal report
+pytestmark = pytest.mark.usefixtures("wide_terminal")
+
 MATRIX = """x1,1
 x2,.30,1
 x3,.44,.34,1

@@ -21,6 +21,9 @@ from cfa_tool.reporting.reports import report_of
 from cfa_tool.resources import resource_dir
 from cfa_tool.workflows.replication import Replications, split_half
 
+# these tests read words with a temporary path among them in the terminal report
+pytestmark = pytest.mark.usefixtures("wide_terminal")
+
 MODEL = resource_dir("models") / "rider_three_factors.cfa"
 DATA = resource_dir("demo") / "rider_survey.csv"
 CAUTION = "The halves were drawn cluster by cluster from only 2 clusters of district"
