@@ -2178,6 +2178,9 @@ class HeldRows:
     def __hash__(self) -> int:
         return hash(tuple(self.labels.tolist()))
 
+    def __len__(self) -> int:
+        return len(self.labels)
+
     def __deepcopy__(self, memo: dict) -> HeldRows:
         return self
 
