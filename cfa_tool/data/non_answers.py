@@ -845,18 +845,26 @@ def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | No
     it, briefly: values the data file marks as no answer were treated as missing (8 'refused' in q1, q2, q3 and 2
     more items; 'don't know' in q4), or 'in all 20 items' when a value is in every one of more than a few
     ``model_items`` (the model's items); '' when there are none.  ``source``: the data's source, whose words name a data
-    frame as one ('the data frame holds')."""
+    frame as one ('the data frame holds').  Words the run declared (--missing-codes 'k.A.': NonAnswerKind.GIVEN) are
+    said first, as declared: the word declared to mean no answer was treated as missing ('k.A.' in q2)."""
     mine = [f for f in found if items is None or f.column in set(items)]
     given = [f for f in mine if f.kind is NonAnswerKind.GIVEN]
-    if given:  # the run's words, declared as a code given is: 'the word 'k.A.', declared to mean no answer, ...'
+    if given:  # the run's words, declared as a code given is: 'the word declared to mean no answer was ...'
         rest = non_answer_clause(tuple(f for f in mine if f not in given), None, source, model_items)
-        words = list(dict.fromkeys(f.shown() for f in given))
-        one = len(words) == 1
-        held = _brief([printable(n) for n in dict.fromkeys(f.column for f in given)], "item")
-        return (f"the word{'' if one else 's'} {_brief(words, 'word')}, declared to mean no answer, "
-                f"{'was' if one else 'were'} treated as missing (in {held})" + (f"; {rest}" if rest else ""))
+        one = len({f.value for f in given}) == 1
+        return (f"the word{'' if one else 's'} declared to mean no answer {'was' if one else 'were'} treated as "
+                f"missing ({_held_values(given, model_items)})" + (f"; {rest}" if rest else ""))
     if not mine:
         return ""
+    shown = _held_values(mine, model_items)
+    if source == DATA_FRAME:
+        return f"text cells of the data frame that say no answer were treated as missing ({shown})"
+    return f"values the data file marks as no answer were treated as missing ({shown})"
+
+
+def _held_values(mine: list[NonAnswer], model_items: tuple[str, ...]) -> str:
+    """Each value of ``mine`` with the items holding it, for :func:`non_answer_clause`: "8 'refused' in q1, q2, q3
+    and 2 more items; 'don't know' in q4", or 'in all 20 items' (of the model's items, ``model_items``)."""
     columns: dict[str, list[str]] = {}
     for f in mine:
         columns.setdefault(f.shown(), []).append(f.column)
@@ -869,10 +877,7 @@ def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | No
         return _brief([printable(n) for n in names], "item")
 
     values = [f"{value} in {held_in(names)}" for value, names in columns.items()]
-    shown = cut_list(values, BRIEF, sep="; ", lead="; and ", noun="value")
-    if source == DATA_FRAME:
-        return f"text cells of the data frame that say no answer were treated as missing ({shown})"
-    return f"values the data file marks as no answer were treated as missing ({shown})"
+    return cut_list(values, BRIEF, sep="; ", lead="; and ", noun="value")
 
 
 #: the words after 'the N rows' of a note counted over the rows that row filters kept (data.kept_counts)
@@ -914,7 +919,8 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | Non
     undo = "; ".join(w for k, w in ((NonAnswerKind.LABELLED, "give its code another value label"),
                                      (NonAnswerKind.DECLARED, "remove its declaration as a missing value"),
                                      (NonAnswerKind.WRITTEN, "write the answer's number in the cell"),
-                                     (NonAnswerKind.GIVEN, f"leave its word out of {Option.MISSING_CODES}")) if k in kinds)
+                                     (NonAnswerKind.GIVEN, "leave its word out of the codes of no answer given"))
+                     if k in kinds)
     copy = f", in a copy of the {'data frame' if frame else 'file'}" if kinds - {NonAnswerKind.GIVEN} else ""
     return said, f"To analyse one as an answer, {undo}{copy}."
 

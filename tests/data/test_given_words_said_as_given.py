@@ -40,10 +40,10 @@ def test_a_word_given_is_said_as_declared_in_notes_and_methods(tmp_path):
     notes = [_flat(w) for w in result.warnings if "k.A." in str(w)]
     assert notes and not any("file writes" in n or "file marks" in n for n in notes)
     assert any("8 cells of the items in d.csv hold words given as codes of no answer" in n
-               and "leave its word out of missing_codes=..." in n and "copy of the file" not in n for n in notes)
+               and "leave its word out of the codes of no answer given" in n and "copy of the file" not in n for n in notes)
     text = _flat(methods_paragraph(result))
     assert "the code 999, declared to mean no answer, was treated as missing" in text
-    assert "the word 'k.A.', declared to mean no answer, was treated as missing (in q2)" in text
+    assert "the word declared to mean no answer was treated as missing ('k.A.' in q2)" in text
     assert "data file marks" not in text
 
 
@@ -54,5 +54,5 @@ def test_a_word_the_file_writes_keeps_its_words_beside_one_given(tmp_path):
     assert "hold values that the file writes as no answer or words given as codes of no answer" in note
     assert "in a copy of the file" in note  # the file's own word is undone there
     text = _flat(methods_paragraph(result))
-    assert "the word 'k.A.', declared to mean no answer, was treated as missing (in q2); values the data file marks " \
-           "as no answer were treated as missing ('refused' in q3)" in text
+    assert "the word declared to mean no answer was treated as missing ('k.A.' in q2); values the data file marks as " \
+           "no answer were treated as missing ('refused' in q3)" in text
