@@ -210,6 +210,10 @@ class ProblemKind(enum.Enum):
     # .not_comparable_problems)
     SCORES_NOT_COMPARABLE_ACROSS_GROUPS = ("scores that do not compare across groups", "groups not comparable", False)
     ITEM_AGAINST_FITTED_LOADING = ("item against its fitted loading", "coded the other way?", False)
+    # not of the solution but of the rows scored: an ordinal item's lowest or highest answer, which the earlier fit's
+    # thresholds expect in many rows scored, in none of them (a file coded 1 higher with its top answer read as no
+    # answer: workflows.factor_scores)
+    END_ANSWERS_UNUSED = ("end answers the fit expects, never given", "end answer unused", False)
     # not of the solution but of the rows scored: a factor score of a row that answered none of the factor's items,
     # which rests on the other factors' items alone (through the factors' correlations)
     SCORED_WITHOUT_OWN_ANSWERS = ("scores without the factor's own answers", "scored without its items", False)
@@ -569,6 +573,8 @@ class Problem:
             K.ANSWERS_BEYOND_FITTED: "answers outside the range of the rows the earlier fit analysed",
             K.ITEM_AGAINST_FITTED_LOADING: "items of the scored file that run against their factor, unlike their "
                                            "loadings in the earlier fit (coded the other way round?)",
+            K.END_ANSWERS_UNUSED: "an item's lowest or highest answer, which the earlier fit's thresholds expect in "
+                                  "many rows scored, given in none of them (the answers coded otherwise?)",
             K.SCORED_WITHOUT_OWN_ANSWERS: "factor scores of rows that answered none of the factor's items",
             K.FACTOR_SCORES_LEFT_EMPTY: "factor scores left empty, as asked, for rows that answered none of the "
                                         "factor's items",

@@ -217,7 +217,8 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
     """Answers of the items a 'reversed ... on MIN to MAX' statement covers (:func:`declared_scales`) must lie on
     that scale: one error naming every such item, value (with its value label) and row, and --missing-codes as the
     remedy (a value beyond the scale is a typing error or a code for no answer); a wider scale is offered second,
-    only when no such value has a value label or looks like a code (data.odd_values.code_like)."""
+    only when no such value has a value label or looks like a code (data.odd_values.code_like).  Items whose answers
+    all lie on the scale moved by one amount are refused with the recoding instead (:func:`_shifted_refusal`)."""
     if not spec.reversed:  # no statement declares a scale (the common case): nothing to judge
         return
     import numpy as np
@@ -231,6 +232,7 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
     naming = row_naming(frame)
     found: dict[object, list[tuple[str, float, np.ndarray, str | None]]] = {}
     codings = spec.answer_codings()
+    spans: dict[str, tuple[float, float]] = {}  # item -> its lowest and highest answer, of items with answers outside
     for name, (low, high, keying, named) in declared_scales(spec, frame).items():
         judged = _outside(frame, name, low, high)
         if judged is None:
@@ -250,6 +252,7 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
             _refuse_off_scale(spec, keying, name, named, values, outside, distinct, data_name)
         for v in distinct:
             found.setdefault(keying, []).append((name, v, rows[values == v], labels.get(v)))
+        spans[name] = (float(np.nanmin(values)), float(np.nanmax(values)))
     if found:
         _summary_row_first(frame, spec, data_source, {int(r) for stray in found.values() for *_, where, _ in stray
                                                       for r in where})
@@ -274,6 +277,8 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
                 f"{'; '.join(shown)}{more}; number the words to match this scale, or give the scale's true lowest "
                 f"and highest answers here",
                 location, spec.source_line(location))
+        order = list(spec.observed_names) + list(spans)
+        _shifted_refusal(spec, keying, sorted(strays, key=order.index), spans, data_name, location)
         raise ModelError(
             f"{data_name} holds answers outside the scale {user_number(keying.minimum)} to {user_number(keying.maximum)} declared here: "
             f"{'; '.join(shown)}{more}; if they are typing errors or codes for no answer, give "
@@ -282,6 +287,28 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
             location,
             spec.source_line(location),
         )
+
+
+def _shifted_refusal(spec: Spec, keying, strays: list[str], spans: dict, data_name: str, location) -> None:
+    """The refusal of items whose answers all lie on the declared scale moved by one amount (1 to 4 against 0 to 3:
+    data.shifted_scales.scale_shift), a file exported with other codes: recoding in a copy is the remedy, never
+    reading the top answer as a code of no answer, which lies on the file's own answer scale (new-user trial s26)."""
+    from cfa_tool.data.shifted_scales import scale_shift, shift_words
+
+    scale = (keying.minimum, keying.maximum)
+    shifts = {scale_shift(scale, spans[name]) for name in strays}
+    if len(shifts) != 1 or None in shifts:
+        return
+    shift = shifts.pop()
+    moved = f"{user_number(scale[0] + shift)} to {user_number(scale[1] + shift)}"
+    one, named = len(strays) == 1, word_list([f"'{printable(n)}'" for n in strays])
+    raise ModelError(
+        f"{data_name}: the answers of {named} run {moved}, the scale "
+        f"{user_number(scale[0])} to {user_number(scale[1])} declared here moved by {user_number(shift)}: if the file "
+        f"codes the same answers {user_number(abs(shift))} {'higher' if shift > 0 else 'lower'} (an export's "
+        f"setting), {shift_words(shift)} {'its' if one else 'their'} answers in a copy of the file; if the scale "
+        f"really runs {moved}, give that here",
+        location, spec.source_line(location))
 
 
 def _refuse_off_scale(spec: Spec, keying, name: str, named: bool, values, outside, distinct: list[float],

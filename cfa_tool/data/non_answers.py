@@ -264,6 +264,9 @@ class NonAnswerKind(enum.Enum):
     LABELLED = "value label says no answer"
     DECLARED = "declared missing in the file"
     WRITTEN = "cell text says no answer"
+    #: a cell's word that the run declared to mean no answer (--missing-codes 'k.A.'), not the file: said as a code
+    #: given is (new-user trial s26: 'values the data file marks as no answer' sent a reviewer to look for it there)
+    GIVEN = "word given as no answer"
 
 
 @dataclass(frozen=True)
@@ -281,7 +284,7 @@ class NonAnswer:
     def shown(self) -> str:
         code = (f"{user_number(self.value)}" if isinstance(self.value, float) else printable(self.value)
                 if self.kind is NonAnswerKind.DECLARED else f"'{printable(self.value)}'")  # Stata's .a unquoted
-        return code + (f" '{printable(self.label)}'" if self.label and self.kind is not NonAnswerKind.WRITTEN else "")
+        return code + (f" '{printable(self.label)}'" if self.label and self.kind in MARKED_BY_FILE else "")
 
 
 def _numbers(values) -> np.ndarray:
@@ -814,9 +817,11 @@ def written_non_answers(frame: pd.DataFrame, keep_text: tuple[str, ...] = (),
         rest = series.where(~texts)
         stripped = series.map(lambda v: v.strip() if isinstance(v, str) else v)  # Excel: numbers beside the text
         numbers = pd.to_numeric(stripped.where(~texts), errors="coerce").astype(float)
+        own = _RUN_WORDS.get().phrases
         for text in sorted({v.strip() for v in said}):
             cells = (stripped == text).to_numpy(dtype=bool)
-            found.append(NonAnswer(NonAnswerKind.WRITTEN, column, text, None, tuple(frame.index[cells].tolist())))
+            kind = NonAnswerKind.GIVEN if _plain(text) in own else NonAnswerKind.WRITTEN
+            found.append(NonAnswer(kind, column, text, None, tuple(frame.index[cells].tolist())))
         if out is frame:
             out = frame.copy()
         # a column of numbers with those cells empty; one that holds other text keeps it (its reader names the cell)
@@ -843,10 +848,26 @@ def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | No
     it, briefly: values the data file marks as no answer were treated as missing (8 'refused' in q1, q2, q3 and 2
     more items; 'don't know' in q4), or 'in all 20 items' when a value is in every one of more than a few
     ``model_items`` (the model's items); '' when there are none.  ``source``: the data's source, whose words name a data
-    frame as one ('the data frame holds')."""
+    frame as one ('the data frame holds').  Words the run declared (--missing-codes 'k.A.': NonAnswerKind.GIVEN) are
+    said first, as declared: the word declared to mean no answer was treated as missing ('k.A.' in q2)."""
     mine = [f for f in found if items is None or f.column in set(items)]
+    given = [f for f in mine if f.kind is NonAnswerKind.GIVEN]
+    if given:  # the run's words, declared as a code given is: 'the word declared to mean no answer was ...'
+        rest = non_answer_clause(tuple(f for f in mine if f not in given), None, source, model_items)
+        one = len({f.value for f in given}) == 1
+        return (f"the word{'' if one else 's'} declared to mean no answer {'was' if one else 'were'} treated as "
+                f"missing ({_held_values(given, model_items)})" + (f"; {rest}" if rest else ""))
     if not mine:
         return ""
+    shown = _held_values(mine, model_items)
+    if source == DATA_FRAME:
+        return f"text cells of the data frame that say no answer were treated as missing ({shown})"
+    return f"values the data file marks as no answer were treated as missing ({shown})"
+
+
+def _held_values(mine: list[NonAnswer], model_items: tuple[str, ...]) -> str:
+    """Each value of ``mine`` with the items holding it, for :func:`non_answer_clause`: "8 'refused' in q1, q2, q3
+    and 2 more items; 'don't know' in q4", or 'in all 20 items' (of the model's items, ``model_items``)."""
     columns: dict[str, list[str]] = {}
     for f in mine:
         columns.setdefault(f.shown(), []).append(f.column)
@@ -859,10 +880,7 @@ def non_answer_clause(found: tuple[NonAnswer, ...], items=None, source: str | No
         return _brief([printable(n) for n in names], "item")
 
     values = [f"{value} in {held_in(names)}" for value, names in columns.items()]
-    shown = cut_list(values, BRIEF, sep="; ", lead="; and ", noun="value")
-    if source == DATA_FRAME:
-        return f"text cells of the data frame that say no answer were treated as missing ({shown})"
-    return f"values the data file marks as no answer were treated as missing ({shown})"
+    return cut_list(values, BRIEF, sep="; ", lead="; and ", noun="value")
 
 
 #: the words after 'the N rows' of a note counted over the rows that row filters kept (data.kept_counts)
@@ -895,14 +913,19 @@ def _said(found: tuple[NonAnswer, ...], source: str, items=None, kept: int | Non
     how = word_list([w for k, w in ((NonAnswerKind.LABELLED, "labels as no answer"),
                                       (NonAnswerKind.DECLARED, "declares as missing values"),
                                       (NonAnswerKind.WRITTEN, "writes as no answer")) if k in kinds], "or")
-    held = "text that says no answer" if frame else f"values that the file {how}"
+    held = word_list((["text that says no answer" if frame else f"values that the file {how}"] if how else [])
+                     + ([("a word given as a code" if total == 1 else "words given as codes") + " of no answer"]
+                        if NonAnswerKind.GIVEN in kinds else []), "or")
     said = (f"{count_text(total)} cell{'s' if total != 1 else ''} of the items in {name} "
             f"hold{'s' if total == 1 else ''} {held}, "
             f"read as missing, not as answers: {'; '.join(parts)}.")
     undo = "; ".join(w for k, w in ((NonAnswerKind.LABELLED, "give its code another value label"),
                                      (NonAnswerKind.DECLARED, "remove its declaration as a missing value"),
-                                     (NonAnswerKind.WRITTEN, "write the answer's number in the cell")) if k in kinds)
-    return said, f"To analyse one as an answer, {undo}, in a copy of the {'data frame' if frame else 'file'}."
+                                     (NonAnswerKind.WRITTEN, "write the answer's number in the cell"),
+                                     (NonAnswerKind.GIVEN, "leave its word out of the codes of no answer given"))
+                     if k in kinds)
+    copy = f", in a copy of the {'data frame' if frame else 'file'}" if kinds - {NonAnswerKind.GIVEN} else ""
+    return said, f"To analyse one as an answer, {undo}{copy}."
 
 
 def non_answer_note(found: tuple[NonAnswer, ...], source: str, items: Iterable[str] | None = None,

@@ -332,8 +332,15 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         return int(rows.sum()) if w is None else float(w[rows].sum())
 
     if n <= p:
-        kind = "with an answer" if pairwise else "complete"
-        raise DataError(f"{source}{where}: {n} {kind} {'row' if n == 1 else 'rows'} for {p} items; more rows are needed")
+        from cfa_tool.data.kept_rows import KEPT_BY, rows_described
+
+        held = rows_described(frame)
+        if n < len(frame):  # rows without an answer (or, listwise, with a gap) are left out too
+            held = f"of {held}, {n} answered {'some' if pairwise else 'every'} item, which"
+        remedy = ("keep more rows (a wider row filter) or fit fewer items" if frame.attrs.get(KEPT_BY) else
+                  "more rows are needed, or fewer items")
+        raise DataError(f"{source}{where}: {held} {'is' if n == 1 else 'are'} too few for "
+                        f"{p} items: their correlations need more rows than items ({p + 1} or more); {remedy}")
     pair_counts = present.T.astype(np.int64) @ present.astype(np.int64)  # rows answering both items (diagonal: each)
     if pairwise and (pair_counts < 2).any():
         alone = np.flatnonzero(pair_counts.diagonal() < 2)  # an item hardly answered is named before its pairs

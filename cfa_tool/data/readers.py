@@ -569,7 +569,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
         frame.attrs[MARKED] = {header[k]: counted for k, counted in marked.items()}
     if said is not None:
         frame.attrs[MARKER_CELLS] = said
-        frame.attrs[MARKER_COLUMN_ROWS] = {header[k]: {m: frame.index[rows].to_numpy() for m, rows in by.items()}
+        frame.attrs[MARKER_COLUMN_ROWS] = {header[k]: {m: HeldRows(frame.index[rows]) for m, rows in by.items()}
                                            for k, by in column_rows.items()}
     _check_formula_errors(frame, where, items, _typed_errors(frame, ws))
     _check_repeated_header(frame, where, first + 1)
@@ -2144,7 +2144,7 @@ def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list
         frame.attrs[MARKED] = marked
         if said is not None and len(cells) == len(frame):
             frame.attrs[MARKER_CELLS] = said
-            frame.attrs[MARKER_COLUMN_ROWS] = {name: {m: np.asarray(rows) for m, rows in by.items()}
+            frame.attrs[MARKER_COLUMN_ROWS] = {name: {m: HeldRows(rows) for m, rows in by.items()}
                                                for name, by in column_rows.items()}
 
 
@@ -2154,18 +2154,46 @@ MARKED = "marked_no_answer"
 #: the key of DataFrame.attrs that keeps the reader's note on cells written as markers of no answer; the rows of those
 #: cells are :data:`MARKER_COLUMN_ROWS`'s, the one record of them (:func:`_marker_cells`)
 MARKER_CELLS = "marker_cells"
-#: the key of DataFrame.attrs that keeps the rows (index labels, an array: the attrs are copied with every frame made
-#: from this one) of the cells written as markers of no answer, one per cell, column by column ({column: {marker:
-#: rows}}), by which the note is counted again over the model's item columns alone (newuser s24: 'n/a' in a comment
-#: column was counted as items' gaps) and over the rows analysed (data.kept_counts.ReadingCounts)
+#: the key of DataFrame.attrs that keeps the rows (index labels, :class:`HeldRows`) of the cells written as markers of
+#: no answer, one per cell, column by column ({column: {marker: rows}}), by which the note is counted again over the
+#: model's item columns alone (newuser s24: 'n/a' in a comment column was counted as items' gaps) and over the rows
+#: analysed (data.kept_counts.ReadingCounts)
 MARKER_COLUMN_ROWS = "marker_column_rows"
+
+
+@dataclass(frozen=True, eq=False)
+class HeldRows:
+    """Row labels kept in a data frame's ``attrs`` (:data:`MARKER_COLUMN_ROWS`), read-only.  pandas compares the attrs
+    of the frames it concatenates or joins with ``==`` (one truth value wanted) and deep-copies them into every frame
+    made from one: a bare numpy array answers ``==`` cell by cell, an internal error in every command that joined or
+    concatenated a file with two 'NA' cells in one column (new-user trial s26), and would be copied each time.  These
+    compare whole and are shared, never copied (they cannot change)."""
+
+    labels: np.ndarray
+
+    def __post_init__(self) -> None:
+        held = np.array(self.labels)
+        held.flags.writeable = False
+        object.__setattr__(self, "labels", held)
+
+    def __eq__(self, other: object) -> bool:
+        return isinstance(other, HeldRows) and np.array_equal(self.labels, other.labels)
+
+    def __hash__(self) -> int:
+        return hash(tuple(self.labels.tolist()))
+
+    def __len__(self) -> int:
+        return len(self.labels)
+
+    def __deepcopy__(self, memo: dict) -> HeldRows:
+        return self
 
 
 def _rows_by_marker(by_column) -> dict[str, np.ndarray]:
     """{marker: the rows of its cells, one per cell} of the columns' records ``by_column`` ({marker: rows} each, of
     :data:`MARKER_COLUMN_ROWS`), in the order of MISSING_MARKERS."""
     by_column = list(by_column)
-    return {m: np.concatenate([by[m] for by in by_column if m in by]) for m in MISSING_MARKERS
+    return {m: np.concatenate([by[m].labels for by in by_column if m in by]) for m in MISSING_MARKERS
             if any(m in by for by in by_column)}
 
 

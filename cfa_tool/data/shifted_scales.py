@@ -52,6 +52,22 @@ class ShiftedScale:
         return tuple(group for (group, _, _), shift in zip(self.ranges, self.shifts) if shift)
 
 
+def scale_shift(scale: tuple[float, float], answers: tuple[float, float]) -> float | None:
+    """How far answers running from ``answers[0]`` to ``answers[1]`` lie from the scale ``scale`` (lowest, highest):
+    the amount added to every code (1 for answers 1 to 4 on the scale 0 to 3), by the one rule of this module (the
+    same width, both ends moved by the same amount); None when they are not the scale moved.  A file of 0-3 items
+    exported as 1-4 is read so, instead of its top answer being taken for a code of no answer (new-user trial s26)."""
+    (low, high), (lowest, highest) = scale, answers
+    shift = lowest - low
+    return float(shift) if shift != 0 and highest - lowest == high - low and high > low else None
+
+
+def shift_words(shift: float) -> str:
+    """"subtract 1 from": what brings answers shifted by ``shift`` back onto the scale, before the answers named."""
+    amount = user_number(abs(shift))
+    return f"subtract {amount} from" if shift > 0 else f"add {amount} to"
+
+
 def shifted_scales(items, groups) -> tuple[ShiftedScale, ...]:
     """The items of ``items`` whose answers lie on shifted codes in some of ``groups`` ((words naming the group, its
     rows' answers: an array with one column per item, gaps NaN)), by the rule of this module; () when none.  Groups

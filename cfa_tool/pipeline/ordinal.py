@@ -157,12 +157,33 @@ def ordinal_spec(spec: Spec) -> tuple[Spec, set[str]]:
     return dc_replace(spec, fixed=spec.fixed + ((ValueSetting(refs, 1.0),) if refs else ())), derived_items
 
 
+def _refuse_means_in_one_group(spec: Spec) -> None:
+    """A statement on an intercept or a factor mean in a one-group fit of ordinal items: an error at the statement
+    that names only what works, not the continuous fit's advice (groups or full-information ML), of which
+    full-information ML is refused for ordinal items and groups are other people (new-user trial s26: equal intercepts
+    of one item answered twice by the same people, test and retest, sent the researcher in a circle)."""
+    from cfa_tool.language.checks import all_refs
+    from cfa_tool.options import Option
+
+    ref = next((r for r in all_refs(spec) if r.kind in ("intercept", "mean")), None)
+    if ref is None:
+        return
+    raise ModelError(
+        f"{ref}: a fit of ordinal items in one group has no intercepts or factor means to estimate (each item's "
+        f"thresholds place its answers), and holding thresholds or intercepts equal across repeated measures of the "
+        f"same people is not available yet (docs/not-yet-available.md); remove the statement; groups of different "
+        f"people take it ({Option.GROUP_COLUMN.given('COLUMN')}), and so do continuous items in one group, fitted "
+        f"by full-information ML (without the 'ordinal' statements, {Option.INCOMPLETE_ROWS.given('full-information')})",
+        ref.location, spec.source_line(ref.location))
+
+
 def one_group_model(spec: Spec) -> tuple[Spec, set[str], ParameterTable]:
     """The model a one-group ordinal fit estimates (:func:`ordinal_spec`), the items whose residual variance follows
     from it, and its parameter table, refused as that fit refuses it: a statement on an item's residual variance,
     more free parameters than the items' correlations.  The one reading of the model that :func:`fit_ordinal` and a
     check of the same model and options (pipeline.inputs.check) share, so that check refuses what fit refuses, with
     the same line, and accepts what fit accepts."""
+    _refuse_means_in_one_group(spec)
     fixed_spec, derived_items = ordinal_spec(spec)
     table = build_parameter_table(fixed_spec)
     p = table.p

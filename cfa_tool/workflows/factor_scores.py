@@ -1295,7 +1295,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     # answers coded otherwise than in the fit's data, first: every score of the factor moves with them
     scored_problems[:0] = [Problem(kind, (), None, text, advice) for kind, text, advice in
                            _coded_otherwise(result.data, base, rows, source, ordinal,
-                                            declared_scales_of(result.data, spec, frame))]
+                                            declared_scales_of(result.data, spec, frame),
+                                            models[0] if ordinal and len(models) == 1 else None)]
     if scored_problems:
         result = _after_data_cautions(result, own, scored_problems)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names", False) \
@@ -1349,9 +1350,39 @@ def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: st
         unknown = ~np.isnan(column) & ~np.isin(column, np.asarray(cats))
         if unknown.any():
             k = int(np.flatnonzero(unknown)[0])
-            raise DataError(f"{source}: ordinal item '{printable(model.base.items[j])}' has the answer {user_number(column[k])} in "
-                            f"{naming.one_row(int(data_rows[k]))}, which is not one of the categories the earlier fit "
-                            f"estimated thresholds for ({', '.join(f'{user_number(v)}' for v in cats)}); recode it or leave it out")
+            said = (f"{source}: ordinal item '{printable(model.base.items[j])}' has the answer {user_number(column[k])} in "
+                    f"{naming.one_row(int(data_rows[k]))}, which is not one of the categories the earlier fit "
+                    f"estimated thresholds for ({', '.join(f'{user_number(v)}' for v in cats)})")
+            shifted = _shifted_items(model, rows)
+            if j in shifted:
+                shift, items = shifted[j], [model.base.items[i] for i, s in shifted.items() if s == shifted[j]]
+                from cfa_tool.data.shifted_scales import shift_words
+
+                named = word_list([f"'{printable(x)}'" for x in items])
+                raise DataError(f"{said}; {named} "
+                                f"{'runs' if len(items) == 1 else 'run'} {user_number(cats[0] + shift)} to "
+                                f"{user_number(cats[-1] + shift)} in {source}, the fit's categories moved by "
+                                f"{user_number(shift)}: if the file codes the same answers {user_number(abs(shift))} "
+                                f"{'higher' if shift > 0 else 'lower'}, {shift_words(shift)} "
+                                f"{'its' if len(items) == 1 else 'their'} answers in a copy of the file and score "
+                                f"the copy")
+            raise DataError(f"{said}; recode it or leave it out")
+
+
+def _shifted_items(model, rows: np.ndarray) -> dict[int, float]:
+    """{item's position: the shift} of the ordinal items whose answers in ``rows`` run over the earlier fit's
+    categories moved by one amount (data.shifted_scales.scale_shift), every answer on the moved categories."""
+    from cfa_tool.data.shifted_scales import scale_shift
+
+    found = {}
+    for j, cats in enumerate(model.categories):
+        column = rows[:, j][~np.isnan(rows[:, j])]
+        if not cats or not len(column):
+            continue
+        shift = scale_shift((cats[0], cats[-1]), (float(column.min()), float(column.max())))
+        if shift is not None and np.isin(column, np.asarray(cats) + shift).all():
+            found[j] = shift
+    return found
 
 
 def _saved_methods(methods, ordinal: bool, standard_errors: bool = False) -> tuple[ScoreMethod, ...]:
@@ -1828,23 +1859,64 @@ def declared_scales_of(data, spec, frame) -> dict[str, tuple[float, float]]:
 
 
 def _coded_otherwise(data, model, rows: np.ndarray, source: str, ordinal: bool,
-                     declared: dict | None = None) -> list[tuple]:
+                     declared: dict | None = None, thresholds=None) -> list[tuple]:
     """The cautions (ProblemKind, words, advice) on answers of the scored file coded otherwise than in the rows the
     earlier fit analysed, the one rule of both ways a coding differs: a shifted scale (answers outside the fitted
     ranges, :func:`_outside_fitted_ranges`; continuous items, whose scores move with the codes) and an item coded
     the other way round (:func:`_items_against_loadings`); ``model``: the fit's ScoringModel (of its first group);
     ``declared``: the scale the model declares for an item (data.matching.declared_answer_scales), whose answers are
-    not outside."""
+    not outside; ``thresholds``: the fit's OrdinalScoringModel of a one-group fit of ordinal items, whose end answers
+    never given are a third way (:func:`_end_answers_unused`)."""
     from cfa_tool.assessment.admissibility import ProblemKind
 
     found = []
     outside = None if ordinal else _outside_fitted_ranges(data, model.items, rows, source, declared or {})
     if outside:
         found.append((ProblemKind.ANSWERS_BEYOND_FITTED, outside, RECODE_ADVICE))
+    unused = _end_answers_unused(thresholds, rows, source) if thresholds is not None else None
+    if unused:
+        found.append((ProblemKind.END_ANSWERS_UNUSED, unused, RECODE_ADVICE))
     against = _items_against_loadings(model, rows, source)
     if against:
         found.append((ProblemKind.ITEM_AGAINST_FITTED_LOADING, against, RECODE_ADVICE))
     return found
+
+
+#: answers the fit's thresholds expect at least this many of in the rows scored, of which none is given, make the
+#: caution of an end answer unused: the chance of none, about exp(-5) < .01 (Poisson), a rule of this tool
+END_ANSWERS_EXPECTED = 5.0
+
+
+def _end_answers_unused(model, rows: np.ndarray, source: str) -> str | None:
+    """The caution for ordinal items whose lowest or highest answer, which the earlier fit expects in at least
+    END_ANSWERS_EXPECTED of the rows scored, is given in none: a file whose answers are coded one higher, its top
+    answer then read as a code of no answer, scores every row on the wrong categories without another sign (new-user
+    trial s26).  Each answer's share is the fit's marginal probability of its latent response beyond the threshold,
+    P(y* <= tau_1) = Phi((tau_1 - mu) / sigma) with mu = nu + L alpha and sigma^2 the implied variance (the
+    latent-response formulation, Muthen 1984); ``model``: the fit's OrdinalScoringModel."""
+    from cfa_tool.numerics.distributions import norm_cdf
+
+    base = model.base
+    mean = base.intercepts + base.loadings @ base.factor_means
+    sd = np.sqrt(np.diag(base.implied_covariance))
+    found = []
+    for j, (tau, cats) in enumerate(zip(model.thresholds, model.categories)):
+        column = rows[:, j][~np.isnan(rows[:, j])]
+        if len(cats) < 2 or not len(column):
+            continue
+        low, high = float(norm_cdf((tau[0] - mean[j]) / sd[j])), float(1 - norm_cdf((tau[-1] - mean[j]) / sd[j]))
+        for end, share, category in (("lowest", low, cats[0]), ("highest", high, cats[-1])):
+            expected = share * len(column)
+            if expected >= END_ANSWERS_EXPECTED and not (column == category).any():
+                found.append((base.items[j], end, category, expected, len(column)))
+    if not found:
+        return None
+    listed = cut_list(found, 5, lambda f: f"'{printable(f[0])}' never has its {f[1]} answer {user_number(f[2])}, which "
+                      f"the fit expects in about {round(f[3])} of its {f[4]} answers", sep="; ", lead="; and ",
+                      noun="item")
+    return (f"In {source}, answers the earlier fit's rows gave often are never given: {listed}. A file that codes the "
+            f"answers otherwise (1 to 4 for 0 to 3, its top answer read as a code of no answer) looks so, and then "
+            f"every score of the factor is shifted.")
 
 
 def _items_against_loadings(model, rows: np.ndarray, source: str) -> str | None:
