@@ -183,12 +183,36 @@ def test_named_pipe_and_character_device_are_written_in_place(corpus, capsys):
     os.mkfifo(fifo)
     code, _, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "pipe"], capsys)
     assert code == 2 and "no program is reading from the named pipe 'pipe'" in err  # instead of waiting forever
-    reader = os.open(fifo, os.O_RDONLY | os.O_NONBLOCK)  # a reader first (the JSON fits the pipe's buffer)
+    import threading
+    import time
+
+    reader = os.open(fifo, os.O_RDONLY | os.O_NONBLOCK)  # a reader first, which reads as the fit writes: the JSON
+    chunks: list[bytes] = []  # is larger than the pipe's buffer (64 KiB here), and a writer waits for room
+
+    def read_all() -> None:
+        import select
+
+        while True:
+            select.select([reader], [], [], 0.05)
+            try:
+                chunk = os.read(reader, 1 << 16)
+            except BlockingIOError:
+                continue
+            if chunk:
+                chunks.append(chunk)
+            elif chunks:  # end of file: the writer closed the pipe
+                return
+            else:  # no writer yet
+                time.sleep(0.01)
+
+    thread = threading.Thread(target=read_all, daemon=True)
+    thread.start()
     try:
         code, _, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "pipe"], capsys)
-        received = os.read(reader, 1 << 20).decode()
+        thread.join(timeout=60)
     finally:
         os.close(reader)
+    received = b"".join(chunks).decode()
     assert code == 0, err
     assert '"converged": true' in received
     assert fifo.is_fifo()  # never renamed over
