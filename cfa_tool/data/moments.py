@@ -15,7 +15,8 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.descriptives import AnswerExtremes, shared_extremes
-from cfa_tool.data.answer_scales import MOST_WORDS_SHOWN, distinct_words, stray_text, suggested_statement
+from cfa_tool.data.answer_scales import (MOST_WORDS_SHOWN, distinct_words, end_points_statement, stray_text,
+                                         suggested_statement)
 from cfa_tool.data.kept_rows import ROW_NAMING, RowNaming, cell_words, row_naming, text_lines
 from cfa_tool.data.non_answers import given_codes
 from cfa_tool.errors import DataError, EstimationError, clipped, printable
@@ -207,6 +208,9 @@ def stray_words(names: Sequence[str], columns: list[pd.Series], source: str) -> 
         values = column.to_numpy(dtype=object)
         if not stray_text(values, few=False):
             continue
+        if not stray_text(values) and end_points_statement(values, distinct_words(values)) is not None:
+            continue  # more than a slip's words at the two ends of a run of numbers label the scale's ends: the
+            # column's own message gives the 'answers' statement (answer_scales.end_points_statement), no missing codes
         cells = [k for k, v in enumerate(values) if isinstance(v, str) and v.strip()
                  and strict_number(v.strip()) is None and v.strip().lower() not in ("true", "false")]
         if not cells:

@@ -409,10 +409,10 @@ def boundary_note(tests, explained: str | None = None, criteria: bool = True, or
                          f". No exact p-value: read the {shown} marked * as rough."))
         weigh = ("; what else decides between these models, and how rough each part is: the note after the tables"
                  if ordinal else f", and weigh the models also by their fit indices{', AIC and BIC' if criteria else ''}")
-        df = sorted({t.df_difference for t in tests if not t.not_computed})
+        df = word_list((str(d) for d in sorted({t.df_difference for t in tests if not t.not_computed})), "or")
         reading = ("Its distribution depends on the model here (two or more parameters on the boundary held inside "
                    "it by bounds, or loadings that the restricted model leaves undefined), so no exact p-value is "
-                   f"given: read the {shown} marked * (the usual chi-square's with {' or '.join(str(d) for d in df)} "
+                   f"given: read the {shown} marked * (the usual chi-square's with {df} "
                    f"df, not corrected for the boundary) as rough{weigh}.")
     return f"* On the boundary: {what}: {BOUNDARY_CAUTION}. {reading}"
 

@@ -21,7 +21,7 @@ def test_a_list_never_cuts_one_name_and_counts_the_rest_in_the_plural():
     assert f"q{SHOWN} 1). To analyse" in note and "more item" not in note
     note = non_answer_note(_found(SHOWN + 2), "survey.csv")
     assert f"q{SHOWN - 1} 1 and 2 more items). To analyse" in note
-    assert non_answer_clause(_found(BRIEF + 1)).endswith("in q0, q1, q2 and q3)")
+    assert non_answer_clause(_found(BRIEF + 1)).endswith("in q0, q1, q2, and q3)")
     assert non_answer_clause(_found(BRIEF + 4)).endswith("q2 and 4 more items)")
     assert [names_shown(n, 3) for n in range(7)] == [0, 1, 2, 3, 4, 3, 3]
 
@@ -37,4 +37,4 @@ def test_a_value_in_every_item_is_said_so():
     items = tuple(f"q{i}" for i in range(20))
     assert non_answer_clause(_found(20), model_items=items).endswith("'Don't know' in all 20 items)")
     assert non_answer_clause(_found(19), model_items=items).endswith("q2 and 16 more items)")
-    assert non_answer_clause(_found(BRIEF), model_items=items[:BRIEF]).endswith("q0, q1 and q2)")  # a short list named
+    assert non_answer_clause(_found(BRIEF), model_items=items[:BRIEF]).endswith("q0, q1, and q2)")  # a short list named

@@ -73,7 +73,7 @@ def test_words_given_are_read_as_no_answer_counted_and_named(answers, tmp_path, 
              (20, "q3"): "No, not asked", (30, "q4"): -99}
     model, written, empty = _files(tmp_path, answers, cells)
     refused = cli.main(["fit", model, "--data", written])  # without the option: text among numbers, an error
-    assert refused == 2 and 'give them with --missing-codes "Ne sait pas,\\"No, not asked\\""' in capsys.readouterr().err
+    assert refused == 2 and 'give them with --missing-codes \'Ne sait pas,"No, not asked"\'' in capsys.readouterr().err
     result = _fit([model, "--data", written, "--missing-codes", '-99,Ne sait pas,"No, not asked"'], tmp_path, "words")
     reference = _fit([model, "--data", empty], tmp_path, "empty")
     assert result["fit"]["chi_square"] == pytest.approx(reference["fit"]["chi_square"], rel=1e-9)

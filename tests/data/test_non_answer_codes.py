@@ -106,8 +106,8 @@ def test_stata_codes_labelled_as_non_answers_are_read_as_missing_and_said_first(
     from cfa_tool.reporting.paragraph import methods_paragraph
 
     # the paragraph names the values and their items (the cells written by the fixture above)
-    assert ("values the data file marks as no answer were treated as missing (8 'refused' in c2, s1 and s3; "
-            "9 'Not asked' in c2, c3 and s2)") in " ".join(methods_paragraph(result).split())
+    assert ("values the data file marks as no answer were treated as missing (8 'refused' in c2, s1, and s3; "
+            "9 'Not asked' in c2, c3, and s2)") in " ".join(methods_paragraph(result).split())
     # the check says so as the fit does
     checked = cfa_tool.check(MODEL, path)
     assert _read_note(checked) == first

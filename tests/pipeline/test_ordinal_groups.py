@@ -158,10 +158,11 @@ def test_every_empty_category_of_every_group_is_named_in_one_message():
     assert ("in group east of 'site': category 5 of 'q2', category 1 of 'q3'; "
             "in group south of 'site': category 5 of 'q2', category 1 of 'q5'") in message  # groups in their order
     # one recoding for every group, each empty category into its nearest one answered in every group
-    assert "recode 'q2' (5 as 4) and 'q3' (1 as 2) and 'q5' (1 as 2) in every group" in message
+    for statement in ("join answers 4, 5 as 4 for q2", "join answers 1, 2 as 2 for q3", "join answers 1, 2 as 2 for q5"):
+        assert f"'{statement}'" in message
     # leaving south and east out would leave north alone, with nothing to compare: not advised (hostile s25, 5)
     assert "leave those groups out" not in message and "--keep" not in message and "keep=" not in message
-    # the recoding it gives lets the fit run (no second round of messages)
+    # the joins it gives (as the data recoded by hand) let the fit run (no second round of messages)
     for x, (old, new) in {"q2": (5, 4), "q5": (1, 2), "q3": (1, 2)}.items():
         data.loc[data[x] == old, x] = new
     assert cfa_tool.fit(MODEL, data, group="site").converged

@@ -28,7 +28,7 @@ def test_the_indices_under_a_design_say_first_that_they_take_it_in(hs_data):
     data = _clustered(hs_data)
     fitted = cfa_tool.fit(THREE_FACTORS, data, weights="w", cluster="unit", strata="st", mi_threshold=0)
     note = modification_table(fitted).note
-    assert note.startswith("These indices take the sampling design (sampling weights, clusters and strata) into "
+    assert note.startswith("These indices take the sampling design (sampling weights, clusters, and strata) into "
                            "account: each is a design-based score test")
     only = modification_table(cfa_tool.fit(THREE_FACTORS, data, cluster="unit", mi_threshold=0)).note
     assert only.startswith("These indices take the sampling design (clusters) into account")

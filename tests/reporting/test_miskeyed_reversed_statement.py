@@ -75,7 +75,7 @@ def test_every_view_opens_with_it(miskeyed):
 
 def test_the_methods_paragraph_states_no_reliability_of_the_miskeyed_scale(miskeyed, keyed_scale):
     paragraph = _flat(methods_paragraph(miskeyed))
-    assert ("The solution has a declared keying of reverse-scored items contradicted by the loadings of e3, e4 on e: "
+    assert ("The solution has a declared keying of reverse-scored items contradicted by the loadings of e3 and e4 on e: "
             "the keyed sum adds "
             "items that run against each other, so its reliability is not reported here.") in paragraph
     omega = paragraph[paragraph.index("omega (McDonald, 1999) was"):]

@@ -39,7 +39,7 @@ def test_labels_on_other_codes_are_refused_with_the_recoding():
     from cfa_tool.data.labels import refuse_moved_labels
 
     message = "val.sav: the value label 'Strongly agree' of q1 is code 1 here but code 5 in the fit's data (cal.sav)"
-    with pytest.raises(DataError, match="recode q1 in a copy of val.sav .1 as 5, 2 as 4, 4 as 2, 5 as 1.") as caught:
+    with pytest.raises(DataError, match="recode q1 in a copy of val.sav .1 as 5, 2 as 4, 4 as 2, and 5 as 1.") as caught:
         refuse_moved_labels({"values": {"q1": {"1.0": "Strongly disagree", "5.0": "Strongly agree", "4.0": "Agree",
                                                "2.0": "Disagree", "3.0": "Neutral"}}},
                             {"q1": REVERSED}, ["q1"], "data/val.sav", "cal.sav")
