@@ -172,14 +172,16 @@ def console():
     return SafeConsole(highlight=False, markup=False, emoji=False)
 
 
-def notice_on_standard_error(notice) -> None:
+def notice_on_standard_error(notice, view=None) -> None:
     """The problems box (reporting.tables.ProblemNotice; None: nothing to say) on standard error, for a run whose
-    standard output carries an output instead of the report: the problems still come first."""
+    standard output carries an output instead of the report: the problems still come first; ``view``: how its
+    lines name tables (note_parts.View; by default as a report's terminal view does)."""
     if notice is None:
         return
     from cfa_tool.reporting.terminal import SafeConsole, problem_panel
 
-    SafeConsole(highlight=False, markup=False, emoji=False, stderr=True).print(problem_panel(notice))
+    panel = problem_panel(notice) if view is None else problem_panel(notice, view)
+    SafeConsole(highlight=False, markup=False, emoji=False, stderr=True).print(panel)
 
 
 def emit_report(args: argparse.Namespace, result, inputs: list[str | None],

@@ -99,6 +99,8 @@ def run_several(args: argparse.Namespace) -> int:
             from cfa_tool.reporting.docx_report import NO_PICTURE
 
             print(f"cfa-tool: note: {NO_PICTURE}", file=sys.stderr)
+    from cfa_tool.reporting.combined import notice_view
+
     files = combined_files(args, document)
     tables = combined_table_files(args, document, paths)
     written = write_reports(args, files) + write_tables(args, tables, paths)
@@ -108,13 +110,13 @@ def run_several(args: argparse.Namespace) -> int:
 
         shown = console()
         if document.notice is not None:
-            shown.print(problem_panel(document.notice))
+            shown.print(problem_panel(document.notice, notice_view(document, numbers=False)))
             shown.print()
         for report, _ in reports:  # each result's own report in turn, on the terminal
             render_report(report, shown)
             shown.print()
     else:
-        notice_on_standard_error(document.notice)
+        notice_on_standard_error(document.notice, notice_view(document, numbers=False))
     for line in written:
         say(args, line)
     return 0

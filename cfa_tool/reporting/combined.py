@@ -13,7 +13,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, replace
 
-from cfa_tool.note_parts import Note, Text, said
+from cfa_tool.note_parts import Note, TableReference, Text, View, said
 from cfa_tool.reporting.document import DataRead, Report, ResultKind, by_file_name, file_names
 from cfa_tool.reporting.tables import ProblemNotice
 
@@ -81,7 +81,8 @@ def combined(reports: list[tuple[Report, str]]) -> Combined:
     for part in parts:
         notice = part.report.notice
         if notice is not None:
-            problems += [Note((f"{_who(part)}: ",)) + line for line in (notice.lines or (notice.heading + ".",))]
+            problems += [Note((f"{_who(part)}: ",)) + _of_part(line, part.number)
+                         for line in (notice.lines or (notice.heading + ".",))]
     inadmissible = any(p.report.notice is not None and p.report.notice.inadmissible for p in parts)
     lines = tuple(problems) + (() if same else data_lines)
     notice = None if not lines else ProblemNotice(READ_FIRST_PROBLEMS if inadmissible else READ_FIRST_CAUTIONS,
@@ -91,6 +92,27 @@ def combined(reports: list[tuple[Report, str]]) -> Combined:
         for line in report.cautions:
             cautions.setdefault(said(line), line)
     return Combined(TITLE, notice, data_lines if same else (), parts, tuple(cautions.values()))
+
+
+def _of_part(line: Text, number: int) -> Text:
+    """A line of a result's notice as the document's "Read first" notice holds it: a reference to a table of that
+    result keyed by the result's number too ('2/model_fit'), so that it names that result's table
+    (:func:`notice_view`), whichever other result has a table of the same key."""
+    if isinstance(line, str):
+        return line
+    return Note(tuple(TableReference(f"{number}/{p.key}") if isinstance(p, TableReference) else p for p in line.parts))
+
+
+def notice_view(document: Combined, numbers: bool) -> View:
+    """The view of the document's "Read first" notice and lines: for a manuscript (``numbers``: the Word file)
+    without commands, each result's table named by its number in the whole document ('Table 7'); otherwise with
+    the commands, a table named by its title and its result."""
+    tables = {}
+    for part, first in zip(document.parts, table_numbers(document)):
+        for k, table in enumerate(part.report.tables):
+            tables[f"{part.number}/{table.key}"] = (f"Table {first + k}" if numbers else
+                                                    f'the table "{table.title}" of Result {part.number}')
+    return View(not numbers, tables)
 
 
 def _identity(data: DataRead) -> tuple:

@@ -477,11 +477,12 @@ def combined_docx(document_model, dpi: int = DEFAULT_DPI) -> bytes:
     same rows), the title and what the results read, then each result under its heading (its own problems first,
     its methods paragraph, tables and figures), the tables and figures numbered through the document, and the
     cautions once at the end."""
-    from cfa_tool.reporting.combined import figure_numbers, table_numbers
+    from cfa_tool.reporting.combined import figure_numbers, notice_view, table_numbers
 
-    document = _document(document_model.title, document_model.notice, level=0)
+    whole = notice_view(document_model, numbers=True)
+    document = _document(document_model.title, document_model.notice, whole, level=0)
     for line in document_model.lines:
-        document.add_paragraph(printable(printed_line(line, WORDS)))
+        document.add_paragraph(printable(printed_line(line, whole)))
     for part, first_table, first_figure in zip(document_model.parts, table_numbers(document_model),
                                                figure_numbers(document_model)):
         report = part.report
@@ -490,7 +491,7 @@ def combined_docx(document_model, dpi: int = DEFAULT_DPI) -> bytes:
         document.add_heading(printable(part.heading), level=1)
         _notice(document, report.notice, view)
         _body(document, report, view, dpi, first_table, first_figure)
-    _cautions(document, document_model.cautions, WORDS)
+    _cautions(document, document_model.cautions, whole)
     return _saved(document)
 
 

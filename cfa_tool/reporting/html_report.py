@@ -174,13 +174,16 @@ def combined_html(document) -> str:
     """A document of several results (reporting.combined.Combined) as one self-contained HTML file: the "Read
     first" notice, the title and what the results read, each result under its heading (its own problems first, its
     ids apart from the other parts'), and the cautions once."""
-    parts = [notice_html(document.notice), f"<h1>{esc(document.title)}</h1>"]
-    parts += [f'<p class="note">{esc(printed_line(line, RUNNING))}</p>' for line in document.lines]
+    from cfa_tool.reporting.combined import notice_view
+
+    whole = notice_view(document, numbers=False)
+    parts = [notice_html(document.notice, whole), f"<h1>{esc(document.title)}</h1>"]
+    parts += [f'<p class="note">{esc(printed_line(line, whole))}</p>' for line in document.lines]
     for part in document.parts:
         parts += [f'<section id="result-{part.number}"><h2>{esc(part.heading)}</h2>',
                   report_html_fragment(part.report, level=2, ids=f"result-{part.number}-"), "</section>"]
     if document.cautions:
-        parts += ["<h2>Cautions</h2>", *cautions_html(document.cautions)]
+        parts += ["<h2>Cautions</h2>", *cautions_html(document.cautions, whole)]
     return _page(document.title, "\n".join(p for p in parts if p))
 
 

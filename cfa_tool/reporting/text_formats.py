@@ -108,9 +108,9 @@ def latex_table(table: ReportTable, view: View = WORDS) -> str:
     return "\n".join(lines) + "\n"
 
 
-def notice_table(notice: T.ProblemNotice) -> ReportTable:
+def notice_table(notice: T.ProblemNotice, view: View = RUNNING) -> ReportTable:
     """The problems that every view shows first, as a table for data files (where no notice can go)."""
-    return ReportTable("problems", notice.heading, ("Problem",), ("l",), tuple((said(line),) for line in notice.lines))
+    return ReportTable("problems", notice.heading, ("Problem",), ("l",), tuple((said(line, view),) for line in notice.lines))
 
 
 def report_markdown(report) -> str:
@@ -126,13 +126,16 @@ def report_markdown(report) -> str:
 def combined_markdown(document) -> str:
     """A document of several results (reporting.combined.Combined) as Markdown: the "Read first" notice, the title
     and what the results read, each result under its heading (its own problems first), the cautions once."""
-    parts = _markdown_notice(document.notice) + [f"# {markdown_text(document.title)}", ""]
-    parts += [markdown_text(said(line)) + "  " for line in document.lines] + ([""] if document.lines else [])
+    from cfa_tool.reporting.combined import notice_view
+
+    whole = notice_view(document, numbers=False)
+    parts = _markdown_notice(document.notice, whole) + [f"# {markdown_text(document.title)}", ""]
+    parts += [markdown_text(said(line, whole)) + "  " for line in document.lines] + ([""] if document.lines else [])
     for part in document.parts:
         view = titled(part.report.tables, running=part.report.kind.value)
         parts += [f"## {markdown_text(part.heading)}", ""] + _markdown_notice(part.report.notice, view, 3)
         parts += _markdown_body(part.report, view, 3)
-    return "\n".join(parts + _markdown_cautions(document.cautions))
+    return "\n".join(parts + _markdown_cautions(document.cautions, whole))
 
 
 def _markdown_notice(notice, view: View = RUNNING, level: int = 2) -> list[str]:
@@ -209,9 +212,10 @@ def combined_table_files(document) -> dict[str, str]:
     files: dict[str, str] = {}
     contents: list[str] = []
     if document.notice is not None:
-        for suffix, text in (("csv", csv_table(notice_table(document.notice))),
-                             ("tex", latex_table(notice_table(document.notice)))):
-            files[f"read_first.{suffix}"] = text
+        from cfa_tool.reporting.combined import notice_view
+
+        problems = notice_table(document.notice, notice_view(document, numbers=False))
+        files["read_first.csv"], files["read_first.tex"] = csv_table(problems), latex_table(problems)
         contents += [f"read_first.csv, read_first.tex: {document.notice.heading}", ""]
     for part in document.parts:
         own = report_table_files(part.report, part.report.csv_convention)
