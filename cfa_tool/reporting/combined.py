@@ -165,17 +165,18 @@ def _data_lines(parts: tuple[Part, ...], sources: list[str]) -> tuple[tuple[Text
 
 def table_numbers(combined_document: Combined) -> list[int]:
     """The number of each part's first table: the tables numbered through the document (Table 1 .. n)."""
-    starts, k = [], 1
-    for part in combined_document.parts:
-        starts.append(k)
-        k += len(part.report.tables)
-    return starts
+    return _starts([len(part.report.tables) for part in combined_document.parts])
 
 
 def figure_numbers(combined_document: Combined) -> list[int]:
     """The number of each part's first figure: the figures numbered through the document (Figure 1 .. n)."""
+    return _starts([len(part.report.figures) for part in combined_document.parts])
+
+
+def _starts(counts: list[int]) -> list[int]:
+    """The number of the first of each run of ``counts`` things numbered from 1 through them all."""
     starts, k = [], 1
-    for part in combined_document.parts:
+    for count in counts:
         starts.append(k)
-        k += len(part.report.figures)
+        k += count
     return starts
