@@ -75,7 +75,7 @@ def run_several(args: argparse.Namespace) -> int:
     from pathlib import Path
 
     from cfa_tool.errors import shown_path
-    from cfa_tool.reporting.combined import combined
+    from cfa_tool.reporting.combined import combined, notice_view
     from cfa_tool.reporting.reports import saved_report
 
     paths = list(args.result)
@@ -99,8 +99,6 @@ def run_several(args: argparse.Namespace) -> int:
             from cfa_tool.reporting.docx_report import NO_PICTURE
 
             print(f"cfa-tool: note: {NO_PICTURE}", file=sys.stderr)
-    from cfa_tool.reporting.combined import notice_view
-
     files = combined_files(args, document)
     tables = combined_table_files(args, document, paths)
     written = write_reports(args, files) + write_tables(args, tables, paths)

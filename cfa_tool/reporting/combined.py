@@ -27,10 +27,9 @@ ANALYSIS = {ResultKind.FIT: "Confirmatory factor analysis", ResultKind.CHECK: "C
             ResultKind.EXPLORE: "Exploratory factor analysis", ResultKind.ALIGN: "Alignment of group parameters"}
 
 TITLE = "Results"  # the document's title, over its parts
-READ_FIRST = "Read first"
-READ_FIRST_PROBLEMS = "Read first: some of these results have problems, and some are not admissible"
+#: the headings of the "Read first" notice: when some result's solution is not admissible, and otherwise
+READ_FIRST_PROBLEMS = "Read first: some solutions are not admissible: do not interpret them"
 READ_FIRST_CAUTIONS = "Read first: check these results before interpreting them"
-CAUTIONS = "Cautions"
 
 
 @dataclass(frozen=True)
@@ -154,8 +153,8 @@ def _data_lines(parts: tuple[Part, ...], sources: list[str]) -> tuple[tuple[Text
                             "codes.")]
     for part, read, source in zip(parts, reads, sources):
         if read is None:
-            lines.append(f"{_who(part)} does not record the data it read (saved from Python or by an earlier "
-                         f"version of the tool: {source}); see the data lines of its part.")
+            lines.append(f"{_who(part)} does not record the data it read ({source} was saved from Python, or by an "
+                         f"earlier version of the tool); see the data lines of its part.")
         elif not read:
             lines.append(f"{_who(part)} read no data file (it plans or simulates).")
         else:
