@@ -222,3 +222,13 @@ def test_tables_of_several_results_each_named_by_its_result(folder, monkeypatch)
     assert "read_first.csv" in names
     contents = (folder / "tables" / "contents.txt").read_text()
     assert contents.index("Result 1. ") < contents.index("result1-fit.csv") < contents.index("Result 2. ")
+
+
+def test_without_a_file_the_terminal_shows_read_first_then_each_result(folder, monkeypatch, capsys):
+    monkeypatch.setenv("COLUMNS", "100")
+    capsys.readouterr()
+    assert _run(folder, monkeypatch, "fit.json", "heywood.json") == 0
+    out = capsys.readouterr().out
+    assert out.index("Read first: some solutions are not admissible") < out.index("Model file: three.cfa") \
+        < out.index("Model file: heywood.cfa")
+    assert "Result 2 (confirmatory factor analysis): " in out[:out.index("Model file: three.cfa")]
