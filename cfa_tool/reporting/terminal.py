@@ -70,7 +70,42 @@ class _Folded:
 
     def __rich_console__(self, console, options):
         text = printable(self.text, keep_newlines=True)  # (Text is not escaped otherwise)
-        yield Text("\n".join(_names_broken(line, options.max_width) for line in text.split("\n")), style=self.style)
+        words = Text("\n".join(_names_broken(line, options.max_width) for line in text.split("\n")), style=self.style)
+        lines = _wrapped_lines(words.plain, options.max_width)
+        if lines is None:
+            yield words
+            return
+        from rich.segment import Segment
+
+        style = console.get_style(self.style) if self.style else None
+        for line in lines:
+            yield Segment(line, style)
+            yield Segment.line()
+
+
+def _wrapped_lines(text: str, width: int) -> list[str] | None:
+    """The lines rich's Text of one style wraps ``text`` into at ``width`` (overflow 'fold', no justification), by
+    rich's own line division, without the Text's spans and copies: most of a report's words are drawn here.  None
+    where rich would expand tabs, or when its division is not found (then the Text itself is drawn)."""
+    if "\t" in text:
+        return None
+    try:
+        from rich._wrap import divide_line
+        from rich.cells import cell_len, set_cell_size
+    except ImportError:  # pragma: no cover - another rich
+        return None
+    out = []
+    for line in text.split("\n"):
+        offsets = divide_line(line, width, fold=True)
+        for start, end in zip([0, *offsets], [*offsets, len(line)]):
+            piece = line[start:end]
+            if len(piece) > width:  # Text.rstrip_end: spaces beyond the width dropped
+                spaces = len(piece) - len(piece.rstrip())
+                piece = piece[:len(piece) - min(spaces, len(piece) - width)]
+            if cell_len(piece) > width:  # Text.truncate, overflow 'fold'
+                piece = set_cell_size(piece, width)
+            out.append(piece)
+    return out
 
 
 class _ColumnParts:
@@ -166,7 +201,6 @@ class _Drawn:
         yield from lines
 
     def _lines(self, console, options):
-        from rich.cells import cell_len
         from rich.segment import Segment
         from rich.style import Style
 
@@ -181,7 +215,7 @@ class _Drawn:
         split = [[cell.split("\n") for cell in header]] + [[cell.split("\n") for cell in row] for row in body]
         widths = []
         for j, column in enumerate(columns):
-            longest = max((cell_len(line) for row in split for line in row[j]), default=0)
+            longest = max((_cells(line) for row in split for line in row[j]), default=0)
             if column.min_width is not None:
                 longest = max(longest, column.min_width)
             if column.max_width is not None:
@@ -192,10 +226,11 @@ class _Drawn:
         for j, column in enumerate(columns):  # a line longer than its column wrapped as the table wraps it
             inner = widths[j] - table._get_padding_width(j)
             for row in split:
-                if any(cell_len(line) > inner for line in row[j]):
+                if any(_cells(line) > inner for line in row[j]):
                     row[j] = [line.plain for line in Text("\n".join(row[j])).wrap(
                         console, inner, justify=column.justify, overflow=column.overflow)]
         lefts = [0 if (j == 0 and not table.pad_edge) else 1 for j in range(len(columns))]
+        pads = [table._get_padding_width(j) for j in range(len(columns))]
         frame = table.box.substitute(options, safe=console.safe_box)
         border, get_style = Style.null(), console.get_style
         header_style = get_style(table.header_style or "")
@@ -205,21 +240,27 @@ class _Drawn:
             height = max(len(c) for c in cells)
             left_edge, vertical, right_edge = edges
             for i in range(height):
-                out.append(Segment(left_edge, border))
+                pieces = [(left_edge, border)]
                 for j, (lines, column) in enumerate(zip(cells, columns)):
                     if j:
-                        out.append(Segment(vertical, border))
+                        pieces.append((vertical, border))
                     k = i - (height - len(lines)) if bottom else i
                     line = lines[k] if 0 <= k < len(lines) else ""
-                    inner = widths[j] - table._get_padding_width(j)
+                    inner = widths[j] - pads[j]
                     if column.justify == "right":
                         line = line.rstrip()
-                        line = " " * (inner - cell_len(line)) + line
+                        line = " " * (inner - _cells(line)) + line
                     else:
-                        line = line + " " * (inner - cell_len(line))
-                    right = widths[j] - inner - lefts[j]
-                    out.append(Segment(" " * lefts[j] + line + " " * right, styles[j]))
-                out.append(Segment(right_edge, border))
+                        line = line + " " * (inner - _cells(line))
+                    pieces.append((" " * lefts[j] + line + " " * (widths[j] - inner - lefts[j]), styles[j]))
+                pieces.append((right_edge, border))
+                merged = [list(pieces[0])]  # neighbours of one style as one segment: fewer for the console to split
+                for text, style in pieces[1:]:
+                    if style is merged[-1][1] or style == merged[-1][1]:
+                        merged[-1][0] += text
+                    else:
+                        merged.append([text, style])
+                out.extend(Segment(text, style) for text, style in merged)
                 out.append(Segment.line())
 
         # the table's edges: the heading's row, the rows between, the last row (as rich.table.Table._render)
@@ -234,6 +275,17 @@ class _Drawn:
                               else row_style for c in cells], False, foot if k == len(self.rows) - 1 else mid)
         out += [Segment(frame.get_bottom(widths), border), Segment.line()]
         return out
+
+
+def _cells(text: str) -> int:
+    """The terminal cells ``text`` takes: its length when it is ASCII (printable, as every cell is by then), else as
+    rich counts wide letters."""
+    if text.isascii():
+        return len(text)
+    from rich.cells import cell_len
+
+    return cell_len(text)
+
 
 CELL_PADDING = 3  # characters a column takes beside its text: padding and the gap to the next column
 

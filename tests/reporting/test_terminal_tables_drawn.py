@@ -89,3 +89,23 @@ def test_a_fits_tables_take_the_quick_route(rider_demo, rider_model):
     finally:
         terminal._Drawn._lines = original
     assert taken and all(taken)
+
+
+@pytest.mark.parametrize("width", [12, 30, 80, 133])
+def test_words_are_wrapped_as_richs_text_wraps_them(width):
+    """The report's lines of words (titles, notes, the paragraph: terminal._Folded) drawn as rich's Text of the same
+    style draws them."""
+    texts = ["", "One line.", "The model fits  with two  spaces and a trailing space ",
+             "A long paragraph " * 20, "first line\nsecond line that is a little longer than the first\n\nafter a blank",
+             "a_really_very_long_item_name_without_any_space_in_it_at_all_longer_than_the_room_of_the_terminal",
+             "Wide letters 満足度_全体の評価 and more words after them " * 3, "   leading spaces kept"]
+    for text in texts:
+        for style in ("", "bold", "dim"):
+            quick = io.StringIO()
+            terminal.SafeConsole(file=quick, width=width, no_color=True, highlight=False).print(
+                terminal._Folded(text, style))
+            slow = io.StringIO()
+            terminal.SafeConsole(file=slow, width=width, no_color=True, highlight=False).print(
+                terminal.Text("\n".join(terminal._names_broken(line, width) for line in text.split("\n")),
+                              style=style))
+            assert quick.getvalue() == slow.getvalue(), (text, width)
