@@ -70,7 +70,42 @@ class _Folded:
 
     def __rich_console__(self, console, options):
         text = printable(self.text, keep_newlines=True)  # (Text is not escaped otherwise)
-        yield Text("\n".join(_names_broken(line, options.max_width) for line in text.split("\n")), style=self.style)
+        words = Text("\n".join(_names_broken(line, options.max_width) for line in text.split("\n")), style=self.style)
+        lines = _wrapped_lines(words.plain, options.max_width)
+        if lines is None:
+            yield words
+            return
+        from rich.segment import Segment
+
+        style = console.get_style(self.style) if self.style else None
+        for line in lines:
+            yield Segment(line, style)
+            yield Segment.line()
+
+
+def _wrapped_lines(text: str, width: int) -> list[str] | None:
+    """The lines rich's Text of one style wraps ``text`` into at ``width`` (overflow 'fold', no justification), by
+    rich's own line division, without the Text's spans and copies: most of a report's words are drawn here.  None
+    where rich would expand tabs, or when its division is not found (then the Text itself is drawn)."""
+    if "\t" in text:
+        return None
+    try:
+        from rich._wrap import divide_line
+        from rich.cells import cell_len, set_cell_size
+    except ImportError:  # pragma: no cover - another rich
+        return None
+    out = []
+    for line in text.split("\n"):
+        offsets = divide_line(line, width, fold=True)
+        for start, end in zip([0, *offsets], [*offsets, len(line)]):
+            piece = line[start:end]
+            if len(piece) > width:  # Text.rstrip_end: spaces beyond the width dropped
+                spaces = len(piece) - len(piece.rstrip())
+                piece = piece[:len(piece) - min(spaces, len(piece) - width)]
+            if cell_len(piece) > width:  # Text.truncate, overflow 'fold'
+                piece = set_cell_size(piece, width)
+            out.append(piece)
+    return out
 
 
 class _ColumnParts:
@@ -107,7 +142,7 @@ class _ColumnParts:
             yield _key(keyed[1], room)
 
     @staticmethod
-    def _table(report: ReportTable, columns: list[int], widths: dict[int, float], room: int) -> Table:
+    def _table(report: ReportTable, columns: list[int], widths: dict[int, float], room: int) -> "_Drawn":
         table = _table("", [(report.columns[j], "left" if report.align[j] == "l" else "right") for j in columns])
         for column, j in zip(table.columns, columns):
             # text wraps at its column's width, within words only when a word is longer (never cut short);
@@ -131,13 +166,125 @@ class _ColumnParts:
         shown = set(range(len(report.rows))) if not report.matrix else {
             k for k, (row, number) in enumerate(zip(report.rows, T.matrix_row_numbers(report)))
             if number in {report.columns[j] for j in columns} or any(row[j] for j in columns[1:])}
+        drawn = _Drawn(table)
         for k, row in enumerate(report.rows):
             if k not in shown:
                 continue
             cells = [_names_broken(row[j], text_widths[j]) if j in text_widths else row[j] for j in columns]
             cells = [Text(printable(cell), style="dim") if (k, j) in faint else cell for j, cell in zip(columns, cells)]
-            table.add_row(*cells, style="bold red" if k in report.flagged else None)
-        return table
+            drawn.add_row(cells, "bold red" if k in report.flagged else None)
+        return drawn
+
+
+
+class _Drawn:
+    """A report table drawn as rich's :class:`~rich.table.Table` of :func:`_table`'s layout would draw it, line by
+    line, when every cell's lines fit its column unwrapped and the table fits the room (the common case, where the
+    table's own measuring and wrapping cost most of a report's time); otherwise the rich table itself, which wraps
+    the cells that need it.  The widths are the table's: each column its longest line (heading or cell, in terminal
+    cells), no narrower than its least width, plus its padding; a left column's lines padded on the right, a right
+    column's on the left; a heading of several lines at the bottom of its row, a cell's at the top."""
+
+    def __init__(self, table: Table):
+        self.table = table
+        self.rows: list[tuple[list, str | None]] = []
+
+    def add_row(self, cells: list, style: str | None) -> None:
+        self.table.add_row(*cells, style=style)
+        self.rows.append((cells, style))
+
+    def __rich_console__(self, console, options):
+        lines = self._lines(console, options)
+        if lines is None:
+            yield self.table
+            return
+        yield from lines
+
+    def _lines(self, console, options):
+        from rich.segment import Segment
+        from rich.style import Style
+
+        table, columns = self.table, self.table.columns
+        if table.box is None or table.title or table.caption or not table.show_edge:
+            return None
+        header = [printable(str(c.header), keep_newlines=True) for c in columns]
+        body = [[c.plain if isinstance(c, Text) else printable(c, keep_newlines=True) for c in cells]
+                for cells, _ in self.rows]
+        if any("\t" in cell or "\r" in cell or cell.endswith("\n") for cell in header + [c for r in body for c in r]):
+            return None
+        split = [[cell.split("\n") for cell in header]] + [[cell.split("\n") for cell in row] for row in body]
+        widths = []
+        for j, column in enumerate(columns):
+            longest = max((_cells(line) for row in split for line in row[j]), default=0)
+            if column.min_width is not None:
+                longest = max(longest, column.min_width)
+            if column.max_width is not None:
+                longest = min(longest, column.max_width)
+            widths.append(min(longest + table._get_padding_width(j), options.max_width))
+        if sum(widths) + table._extra_width > options.max_width:
+            return None  # columns to narrow further: the table's own layout
+        for j, column in enumerate(columns):  # a line longer than its column wrapped as the table wraps it
+            inner = widths[j] - table._get_padding_width(j)
+            for row in split:
+                if any(_cells(line) > inner for line in row[j]):
+                    row[j] = [line.plain for line in Text("\n".join(row[j])).wrap(
+                        console, inner, justify=column.justify, overflow=column.overflow)]
+        lefts = [0 if (j == 0 and not table.pad_edge) else 1 for j in range(len(columns))]
+        pads = [table._get_padding_width(j) for j in range(len(columns))]
+        frame = table.box.substitute(options, safe=console.safe_box)
+        border, get_style = Style.null(), console.get_style
+        header_style = get_style(table.header_style or "")
+        out = [Segment(frame.get_top(widths), border), Segment.line()]
+
+        def row_lines(cells: list[list[str]], styles: list[Style], bottom: bool, edges: tuple[str, str, str]) -> None:
+            height = max(len(c) for c in cells)
+            left_edge, vertical, right_edge = edges
+            for i in range(height):
+                pieces = [(left_edge, border)]
+                for j, (lines, column) in enumerate(zip(cells, columns)):
+                    if j:
+                        pieces.append((vertical, border))
+                    k = i - (height - len(lines)) if bottom else i
+                    line = lines[k] if 0 <= k < len(lines) else ""
+                    inner = widths[j] - pads[j]
+                    if column.justify == "right":
+                        line = line.rstrip()
+                        line = " " * (inner - _cells(line)) + line
+                    else:
+                        line = line + " " * (inner - _cells(line))
+                    pieces.append((" " * lefts[j] + line + " " * (widths[j] - inner - lefts[j]), styles[j]))
+                pieces.append((right_edge, border))
+                merged = [list(pieces[0])]  # neighbours of one style as one segment: fewer for the console to split
+                for text, style in pieces[1:]:
+                    if style is merged[-1][1] or style == merged[-1][1]:
+                        merged[-1][0] += text
+                    else:
+                        merged.append([text, style])
+                out.extend(Segment(text, style) for text, style in merged)
+                out.append(Segment.line())
+
+        # the table's edges: the heading's row, the rows between, the last row (as rich.table.Table._render)
+        head = (frame.head_left, frame.head_vertical, frame.head_right)
+        mid = (frame.mid_left, frame.mid_vertical, frame.mid_right)
+        foot = (frame.foot_left, frame.foot_vertical, frame.foot_right)
+        row_lines(split[0], [header_style] * len(columns), True, foot if not self.rows else head)
+        out += [Segment(frame.get_row(widths, "head", edge=True), border), Segment.line()]
+        for k, ((cells, style), lines) in enumerate(zip(self.rows, split[1:])):
+            row_style = get_style(style or "")
+            row_lines(lines, [get_style(c.style) + row_style if isinstance(c, Text) and isinstance(c.style, str)
+                              else row_style for c in cells], False, foot if k == len(self.rows) - 1 else mid)
+        out += [Segment(frame.get_bottom(widths), border), Segment.line()]
+        return out
+
+
+def _cells(text: str) -> int:
+    """The terminal cells ``text`` takes: its length when it is ASCII (printable, as every cell is by then), else as
+    rich counts wide letters."""
+    if text.isascii():
+        return len(text)
+    from rich.cells import cell_len
+
+    return cell_len(text)
 
 
 CELL_PADDING = 3  # characters a column takes beside its text: padding and the gap to the next column
