@@ -90,9 +90,10 @@ def titled(tables, commands: bool = True, running: str = "") -> View:
     return View(commands, {t.key: f'the table "{t.title}"' for t in tables}, running)
 
 
-def numbered(tables) -> View:
-    """The view of a manuscript: no commands, each of ``tables`` named by its number in order ('Table 2')."""
-    return View(False, {t.key: f"Table {k}" for k, t in enumerate(tables, start=1)})
+def numbered(tables, start: int = 1) -> View:
+    """The view of a manuscript: no commands, each of ``tables`` named by its number in order ('Table 2'), the first
+    numbered ``start`` (a document of several results numbers its tables through)."""
+    return View(False, {t.key: f"Table {k}" for k, t in enumerate(tables, start=start)})
 
 
 @dataclass(frozen=True)

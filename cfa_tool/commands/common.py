@@ -172,14 +172,16 @@ def console():
     return SafeConsole(highlight=False, markup=False, emoji=False)
 
 
-def notice_on_standard_error(notice) -> None:
+def notice_on_standard_error(notice, view=None) -> None:
     """The problems box (reporting.tables.ProblemNotice; None: nothing to say) on standard error, for a run whose
-    standard output carries an output instead of the report: the problems still come first."""
+    standard output carries an output instead of the report: the problems still come first; ``view``: how its
+    lines name tables (note_parts.View; by default as a report's terminal view does)."""
     if notice is None:
         return
     from cfa_tool.reporting.terminal import SafeConsole, problem_panel
 
-    SafeConsole(highlight=False, markup=False, emoji=False, stderr=True).print(problem_panel(notice))
+    panel = problem_panel(notice) if view is None else problem_panel(notice, view)
+    SafeConsole(highlight=False, markup=False, emoji=False, stderr=True).print(panel)
 
 
 def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
@@ -190,7 +192,8 @@ def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
 
     from cfa_tool.data.csv_convention import convention_of_result
 
-    report = replace(report_of(result), files=named_files(args, inputs), csv_convention=convention_of_result(result))
+    report = replace(report_of(result), files=named_files(args, inputs), csv_convention=convention_of_result(result),
+                     data=data_read(args))
     files = list(first)
     if getattr(args, "json", None):
         from cfa_tool.reporting.json_report import to_json
@@ -200,6 +203,43 @@ def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
     tables = table_files(args, report, inputs)
     show(args, report, write_reports(args, files) + write_tables(args, tables, inputs))
     return 0
+
+
+def data_read(args: argparse.Namespace) -> tuple:
+    """The data files the run read and how (reporting.document.DataRead: the path as given, its bytes' SHA-256, the
+    reading options in words), kept in its report so that a document of several saved results can say whether they
+    describe the same rows: --data (or --calibration) read with --sheet, --names-row, --first-data-row,
+    --missing-codes, --rename, --keep and --half; replicate's --validation with its own reading options and the same
+    codes and filters."""
+    from cfa_tool.data.halves import fingerprint
+    from cfa_tool.reporting.document import DataRead
+
+    read = [(getattr(args, "data", None) or getattr(args, "calibration", None), ""),
+            (getattr(args, "validation", None), "validation_")]
+    return tuple(DataRead(path, fingerprint(path), reading_said(args, prefix)) for path, prefix in read
+                 if isinstance(path, str) and path)
+
+
+def reading_said(args: argparse.Namespace, prefix: str = "") -> tuple[str, ...]:
+    """How the command line asked a data file to be read, in words for any reader (commands.options.reading_words
+    gives the same as options to type): the sheet, the rows of names and of the first data (``prefix``
+    'validation_': those of replicate's --validation file), the renamed columns, the codes read as no answer, the
+    row filters and the random half."""
+    from cfa_tool.numbers import user_number, word_list
+
+    def given(name: str):
+        return getattr(args, prefix + name, None)
+
+    codes = [f'"{v}"' if isinstance(v, str) else user_number(v) for v in getattr(args, "missing_codes", None) or ()]
+    half = getattr(args, "half", None)
+    words = [f'sheet "{given("sheet")}"' if given("sheet") else "",
+             f"column names in row {given('names_row')}" if given("names_row") else "",
+             f"data from row {given('first_data_row')}" if given("first_data_row") else "",
+             f"columns renamed ({'; '.join(given('rename'))})" if given("rename") else "",
+             f"code{'s' if len(codes) > 1 else ''} {word_list(codes)} read as missing" if codes else "",
+             *(f"rows where {f}" for f in getattr(args, "keep", None) or ()),
+             f'the random half "{half[1]}" of {Path(half[0]).name}' if half else ""]
+    return tuple(printable(w) for w in words if w)
 
 
 def named_files(args: argparse.Namespace, inputs: list[str | None]) -> tuple[str, ...]:

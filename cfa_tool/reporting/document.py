@@ -89,6 +89,26 @@ class Listing:
 
 
 
+@dataclass(frozen=True)
+class DataRead:
+    """A data file a result read, and how: its path as given, the SHA-256 of its bytes ('' where it is no regular
+    file: standard input, a data frame from Python) and how its rows were read and kept, in words ('rows where
+    district == "north"', 'codes 9 and 99 read as no answer'; nothing when every row was read as it stands).  Two
+    results describe the same rows only when they read the same file the same way: a document of several results
+    says so, or says that they do not (reporting.combined)."""
+
+    file: str
+    checksum: str = ""
+    reading: tuple[str, ...] = ()
+
+    def to_dict(self) -> dict:
+        return {"file": self.file, "checksum": self.checksum, "reading": list(self.reading)}
+
+    @classmethod
+    def from_dict(cls, d: dict) -> "DataRead":
+        return cls(str(d["file"]), str(d.get("checksum", "")), tuple(map(str, _listed(d, "reading", ()))))
+
+
 #: the heading of a report's methods-and-results paragraph, in every view that has headings (HTML, Markdown, Word)
 PARAGRAPH_HEADING = "Summary for a paper"
 
@@ -124,6 +144,10 @@ class Report:
     #: a fit's path diagram as one file (every group, one legend: reporting.diagram.diagram_file), which ``fit
     #: --diagram`` writes and a saved result keeps, so that ``cfa-tool report --diagram`` writes it later
     diagram: Figure | None = None
+    #: the data files the result read (:class:`DataRead`), as the command line gave them: () for a result that read
+    #: none (a plan, a simulation), None where it is not known (a result made from Python, or saved before results
+    #: recorded it)
+    data: tuple[DataRead, ...] | None = None
 
     def __post_init__(self) -> None:
         # the notices' lines as sentences, in every view and in a saved report (those saved before too)
@@ -144,7 +168,8 @@ class Report:
                 "problem_table": None if self.problem_table is None else self.problem_table.to_dict(),
                 "warnings": [saved(x) for x in self.warnings], "listings": [{"title": x.title, "text": x.text} for x in self.listings],
                 "files": list(self.files), "csv_convention": self.csv_convention.to_dict(),
-                **({} if self.diagram is None else {"diagram": self.diagram.svg})}
+                **({} if self.diagram is None else {"diagram": self.diagram.svg}),
+                **({} if self.data is None else {"data_read": [x.to_dict() for x in self.data]})}
 
     @classmethod
     def from_dict(cls, d: dict) -> "Report":
@@ -166,7 +191,8 @@ class Report:
                    tuple(map(read, _listed(d, "warnings", ()))),
                    tuple(Listing(str(x["title"]), str(x["text"])) for x in _listed(d, "listings", ())),
                    tuple(map(str, _listed(d, "files", ()))), CsvConvention.from_dict(d.get("csv_convention")),
-                   None if d.get("diagram") is None else Figure("Path diagram", drawn(str(d["diagram"]))))
+                   None if d.get("diagram") is None else Figure("Path diagram", drawn(str(d["diagram"]))),
+                   None if d.get("data_read") is None else tuple(DataRead.from_dict(x) for x in _listed(d, "data_read")))
 
 
 def _listed(d: dict, key: str, default=None) -> list:

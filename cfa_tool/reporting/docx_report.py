@@ -426,21 +426,29 @@ def _add_table(document, table: ReportTable, number: int, view: View = WORDS) ->
         document.add_paragraph()
 
 
-def _document(title: str, notice, view: View = WORDS) -> Document:
-    """A document with the problems first, then the title."""
+def _document(title: str, notice, view: View = WORDS, level: int = 1) -> Document:
+    """A document with the problems first, then the title (at heading ``level``: 0, the title style, over the
+    parts of a document of several results)."""
     document = Document()
     style = document.styles["Normal"]
     style.font.name = FONT
     style.font.size = Pt(12)
-    if notice is not None:
-        heading = document.add_paragraph()
-        run = heading.add_run(printable(notice.heading))
-        run.bold = True
-        run.font.color.rgb = PROBLEM_RED
-        for line in notice.lines:
-            document.add_paragraph(printable(printed_line(line, view)), style="List Bullet")
-    document.add_heading(printable(title), level=1)
+    _notice(document, notice, view)
+    document.add_heading(printable(title), level=level)
     return document
+
+
+def _notice(document, notice, view: View = WORDS) -> None:
+    """The problems of a solution (reporting.tables.ProblemNotice; None: nothing), in red, each a bullet."""
+    if notice is None:
+        return
+    heading = document.add_paragraph()
+    run = heading.add_run(printable(notice.heading))
+    run.bold = True
+    run.font.color.rgb = PROBLEM_RED
+    heading.paragraph_format.keep_with_next = True
+    for line in notice.lines:
+        document.add_paragraph(printable(printed_line(line, view)), style="List Bullet")
 
 
 def _saved(document) -> bytes:
@@ -458,6 +466,40 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
     report = by_file_name(report)
     view = numbered(report.tables)
     document = _document(report.title, report.notice, view)
+    _body(document, report, view, dpi)
+    _cautions(document, report.cautions, view)
+    return _saved(document)
+
+
+def combined_docx(document_model, dpi: int = DEFAULT_DPI) -> bytes:
+    """A document of several results (reporting.combined.Combined) as a .docx file's bytes: the "Read first"
+    notice (every result's problems, each naming its result, and the data when the results do not describe the
+    same rows), the title and what the results read, then each result under its heading (its own problems first,
+    its methods paragraph, tables and figures), the tables and figures numbered through the document, and the
+    cautions once at the end."""
+    from cfa_tool.reporting.combined import figure_numbers, notice_view, table_numbers
+
+    whole = notice_view(document_model, numbers=True)
+    document = _document(document_model.title, document_model.notice, whole, level=0)
+    for line in document_model.lines:
+        document.add_paragraph(printable(printed_line(line, whole)))
+    for part, first_table, first_figure in zip(document_model.parts, table_numbers(document_model),
+                                               figure_numbers(document_model)):
+        report = part.report
+        view = numbered(report.tables, first_table)
+        _set_orientation(document, landscape=False)
+        document.add_heading(printable(part.heading), level=1)
+        _notice(document, report.notice, view)
+        _body(document, report, view, dpi, first_table, first_figure)
+    _cautions(document, document_model.cautions, whole)
+    return _saved(document)
+
+
+def _body(document, report, view: View, dpi: int = DEFAULT_DPI, first_table: int = 1, first_figure: int = 1,
+          level: int = 2) -> None:
+    """A report after its problems and title: what was done, the warnings, the methods paragraph, the figures and the
+    tables (the first of each numbered ``first_figure`` and ``first_table``: numbered through a document of several
+    results), the listings and the notes, under headings of ``level``."""
     for line in report.lines:
         document.add_paragraph(printable(printed_line(line, view)))
     if report.warnings:
@@ -467,20 +509,21 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
         for line in report.warnings:
             document.add_paragraph(printable(printed_line(line, view)), style="List Bullet")
     if report.paragraph:
-        document.add_heading(PARAGRAPH_HEADING, level=2)
+        document.add_heading(PARAGRAPH_HEADING, level=level)
         document.add_paragraph(typeset(report.paragraph))
     if report.figures:
         if png_converter() is None:
-            document.add_heading(FIGURES, level=2)
+            document.add_heading(FIGURES, level=level)
             document.add_paragraph(NO_PICTURE)
         else:
-            for number, figure in enumerate(report.figures, start=1):
+            for number, figure in enumerate(report.figures, start=first_figure):
+                first = number == first_figure
                 # the heading on the first figure's page (a landscape page starts after the heading had been left
                 # alone at the foot of the page before it): its room taken before the layout is chosen
-                wider, pieces, area = _figure_layout(document, figure.svg, figure.note, heading=number == 1)
+                wider, pieces, area = _figure_layout(document, figure.svg, figure.note, heading=first)
                 _set_orientation(document, wider)  # a wide drawing (many items) on a landscape page: larger labels
-                if number == 1:
-                    document.add_heading(FIGURES, level=2).paragraph_format.keep_with_next = True
+                if first:
+                    document.add_heading(FIGURES, level=level).paragraph_format.keep_with_next = True
                 for k, piece in enumerate(pieces):
                     _caption(document, f"Figure {number}" + (" (continued)" if k else ""), figure.title)
                     png = svg_to_png(piece, dpi)
@@ -494,16 +537,16 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
                     _note(document, figure.note, whole=True)
     # each table turns its page as it needs; the text after them turns it back (never an empty page at the end)
     section = ""
-    for number, table in enumerate(report.tables, start=1):
+    for number, table in enumerate(report.tables, start=first_table):
         if table.section and table.section != section:
             _set_orientation(document, table_layout(document, table).landscape)
-            document.add_heading(printable(table.section), level=2).paragraph_format.keep_with_next = True
+            document.add_heading(printable(table.section), level=level).paragraph_format.keep_with_next = True
         section = table.section
         _add_table(document, table, number, view)
-    if report.listings or report.notes or report.cautions:
+    if report.listings or report.notes:
         _set_orientation(document, landscape=False)
     for listing in report.listings:
-        document.add_heading(printable(listing.title), level=2)
+        document.add_heading(printable(listing.title), level=level)
         for line in listing.text.splitlines():
             paragraph = document.add_paragraph()
             paragraph.paragraph_format.space_after = Pt(0)
@@ -511,11 +554,15 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
             run.font.name = "Courier New"
             run.font.size = Pt(10)
     if report.notes:
-        document.add_heading("Notes", level=2)
+        document.add_heading("Notes", level=level)
         for line in report.notes:
             document.add_paragraph(printable(printed_line(line, view)), style="List Bullet")
-    if report.cautions:
+
+
+def _cautions(document, cautions, view: View) -> None:
+    """The cautions, last (in a document of several results, once for them all)."""
+    if cautions:
+        _set_orientation(document, landscape=False)
         document.add_heading("Cautions", level=2)
-        for line in report.cautions:
+        for line in cautions:
             document.add_paragraph(printable(printed_line(line, view)))
-    return _saved(document)

@@ -27,7 +27,7 @@ td.r,th.r{text-align:right;font-variant-numeric:tabular-nums} td.l,th.l{text-ali
 .diagram img{display:block;max-width:100%;height:auto}
 ul.warnings li{margin:.3em 0}
 .problems{background:#fdecea;border:2px solid #b3261e;padding:.6em 1em;margin:1em 0}
-.problems.caution-only{background:#fff7e6;border-color:#e0a030} .problems h2{border:none;margin:.2em 0;color:#b3261e}
+.problems.caution-only{background:#fff7e6;border-color:#e0a030} .problems h2,.problems h3{border:none;margin:.2em 0;color:#b3261e}
 .problems li{margin:.35em 0} tr.problem td{background:#fdecea;color:#8c1d18;font-weight:bold}
 td.faint{color:#aaa}
 table.matrix td,table.matrix th{padding:.15em .35em} table.matrix td.l{white-space:nowrap}
@@ -86,7 +86,7 @@ def _indent(text: str) -> str:
     return f' style="padding-left:{0.35 + 0.5 * spaces:g}em"' if spaces else ""
 
 
-def table_html(table: ReportTable, view: View = RUNNING, heading: str = "") -> str:
+def table_html(table: ReportTable, view: View = RUNNING, heading: str = "", ids: str = "") -> str:
     """A table with its caption and its note (and ``heading``, the section's heading it opens, when given).  A matrix
     of the items prints on a landscape page of its own: the heading and the note go on that page with it (a heading
     had been left alone at the foot of the portrait page before it, the note alone on a page after it)."""
@@ -100,36 +100,44 @@ def table_html(table: ReportTable, view: View = RUNNING, heading: str = "") -> s
     note = " ".join(text for text in (said(table.note or "", view), T.HEAT_LEGEND if table.heat else "") if text)
     note = f'<p class="note">{_set(note)}</p>' if note else ""
     matrix = ' class="matrix"' if table.matrix else ""  # a matrix of the items: compact cells
-    html = (f'<table id="{esc(table.key)}"{matrix}><caption>{_set(table.title)}</caption><thead><tr>{head}</tr></thead>'
+    html = (f'<table id="{esc(ids + table.key)}"{matrix}><caption>{_set(table.title)}</caption><thead><tr>{head}</tr></thead>'
             f"<tbody>{body}</tbody></table>")
     # a matrix scrolls inside its own box on screen (its item column kept in view) and prints on a landscape page
     return f'<div class="wide">{heading}{html}{note}</div>' if table.matrix else heading + html + note
 
 
-def notice_html(notice: T.ProblemNotice | None, view: View = RUNNING) -> str:
+def notice_html(notice: T.ProblemNotice | None, view: View = RUNNING, ids: str = "", level: int = 2) -> str:
+    """The problems box; ``ids``: what the page's ids start with (a part of a page of several results), ``level``:
+    its heading's."""
     if notice is None:
         return ""
     cls = "problems" if notice.inadmissible else "problems caution-only"
     items = "".join(f"<li>{esc(printed_line(line, view))}</li>" for line in notice.lines)
-    return f'<div class="{cls}" id="problems" role="alert"><h2>{esc(notice.heading)}</h2><ul>{items}</ul></div>'
+    return (f'<div class="{cls}" id="{ids}problems" role="alert"><h{level}>{esc(notice.heading)}</h{level}>'
+            f'<ul>{items}</ul></div>')
 
 
-def report_html_fragment(report, heading: bool = False) -> str:
+def report_html_fragment(report, heading: bool = False, level: int = 1, ids: str = "") -> str:
     """Any command's report (cfa_tool.reporting.document.Report) as an HTML fragment (also what notebooks show):
-    the problems first, then (with ``heading``) the title, what was done, the tables, the notes and the cautions.
+    the problems first, then (with ``heading``) the title, what was done, the tables, the notes and the cautions;
+    the title at heading ``level`` and the sections under it, and every id starting with ``ids`` (a part of a page
+    of several results: reporting.combined).
     Pictures are images of their SVG (a data address), so that nothing in a saved result can run as a script.  A
     note's advice names its command (the reader runs the program), and a table it refers to is named by its title
     (cfa_tool.note_parts)."""
     import base64
 
     view = titled(report.tables, running=report.kind.value)  # its own command not advised in it
-    parts = [notice_html(report.notice, view)] + ([f"<h1>{esc(report.title)}</h1>"] if heading else [])
+    sub = f"h{level + 1}"
+    parts = [notice_html(report.notice, view, ids, level + 1)] + ([f"<h{level}>{esc(report.title)}</h{level}>"]
+                                                                  if heading else [])
     parts += [f'<p class="note">{esc(printed_line(line, view))}</p>' for line in report.lines]
     if report.warnings:
-        parts.append(f'<div class="caution" id="warnings"><strong>{esc(WARNINGS)}</strong><ul class="warnings">'
+        parts.append(f'<div class="caution" id="{ids}warnings"><strong>{esc(WARNINGS)}</strong><ul class="warnings">'
                      + "".join(f"<li>{esc(printed_line(w, view))}</li>" for w in report.warnings) + "</ul></div>")
     if report.paragraph:
-        parts += [f"<h2>{PARAGRAPH_HEADING}</h2>", f'<p class="summary" id="methods-paragraph">{_set(report.paragraph)}</p>']
+        parts += [f"<{sub}>{PARAGRAPH_HEADING}</{sub}>",
+                  f'<p class="summary" id="{ids}methods-paragraph">{_set(report.paragraph)}</p>']
     for figure in report.figures:
         data = base64.b64encode(figure.svg.encode("utf-8")).decode("ascii")
         wide = " landscape" if landscape_figure(figure.svg) else ""  # printed on a landscape page, as wide tables
@@ -139,23 +147,48 @@ def report_html_fragment(report, heading: bool = False) -> str:
             parts.append(f'<p class="note">{_set(figure.note)}</p>')
     section = ""
     for table in report.tables:
-        heading = f"<h2>{esc(table.section)}</h2>" if table.section and table.section != section else ""
+        heading = f"<{sub}>{esc(table.section)}</{sub}>" if table.section and table.section != section else ""
         section = table.section
-        parts.append(table_html(table, view, heading))
+        parts.append(table_html(table, view, heading, ids))
     for listing in report.listings:
         lines = "\n".join(esc(line) for line in listing.text.split("\n"))  # its line breaks kept, other controls shown
-        parts += [f"<h2>{esc(listing.title)}</h2>", f"<pre>{lines}</pre>"]
+        parts += [f"<{sub}>{esc(listing.title)}</{sub}>", f"<pre>{lines}</pre>"]
     if report.notes:
         parts.append('<ul class="warnings">' + "".join(f"<li>{esc(printed_line(w, view))}</li>" for w in report.notes) + "</ul>")
-    parts += [f'<p class="caution">{esc(printed_line(c, view))}</p>' for c in report.cautions]
+    parts += cautions_html(report.cautions, view)
     return "\n".join(p for p in parts if p)
+
+
+def cautions_html(cautions, view: View = RUNNING) -> list[str]:
+    return [f'<p class="caution">{esc(printed_line(c, view))}</p>' for c in cautions]
 
 
 def report_html(report) -> str:
     """Any command's report as one self-contained HTML file, a page people pass on: the user's files named by their
     names, not their folders (document.by_file_name)."""
     report = by_file_name(report)
-    body = f'{report_html_fragment(report, heading=True)}\n<p class="note">Made by cfa-tool {esc(__version__)}.</p>'
+    return _page(report.title, report_html_fragment(report, heading=True))
+
+
+def combined_html(document) -> str:
+    """A document of several results (reporting.combined.Combined) as one self-contained HTML file: the "Read
+    first" notice, the title and what the results read, each result under its heading (its own problems first, its
+    ids apart from the other parts'), and the cautions once."""
+    from cfa_tool.reporting.combined import notice_view
+
+    whole = notice_view(document, numbers=False)
+    parts = [notice_html(document.notice, whole), f"<h1>{esc(document.title)}</h1>"]
+    parts += [f'<p class="note">{esc(printed_line(line, whole))}</p>' for line in document.lines]
+    for part in document.parts:
+        parts += [f'<section id="result-{part.number}"><h2>{esc(part.heading)}</h2>',
+                  report_html_fragment(part.report, level=2, ids=f"result-{part.number}-"), "</section>"]
+    if document.cautions:
+        parts += ["<h2>Cautions</h2>", *cautions_html(document.cautions, whole)]
+    return _page(document.title, "\n".join(p for p in parts if p))
+
+
+def _page(title: str, body: str) -> str:
+    body = f'{body}\n<p class="note">Made by cfa-tool {esc(__version__)}.</p>'
     return (f'<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8">'
             f'<meta name="viewport" content="width=device-width, initial-scale=1">'
-            f"<title>{esc(report.title)}</title><style>{CSS}</style></head>\n<body>\n{body}\n</body></html>\n")
+            f"<title>{esc(title)}</title><style>{CSS}</style></head>\n<body>\n{body}\n</body></html>\n")

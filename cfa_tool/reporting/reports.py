@@ -10,6 +10,7 @@ from dataclasses import replace
 from cfa_tool.data.csv_convention import convention_in
 from cfa_tool.errors import OptionError
 from cfa_tool.note_parts import Name, Note, Text, capitalised
+from cfa_tool.numbers import word_list
 from cfa_tool.version import check_written_version
 from cfa_tool.reporting.document import Report, ResultKind
 
@@ -100,9 +101,27 @@ def saved_report(payload: object, source: str) -> Report:
                           f"again with --json") from None
     if isinstance(saved, dict) and "files" not in saved:  # saved before reports listed the user's files
         report = replace(report, files=saved_paths(report, payload))
+    if isinstance(saved, dict) and "data_read" not in saved:  # saved before reports recorded it: the data's
+        report = replace(report, data=data_in(payload))
     if isinstance(saved, dict) and "csv_convention" not in saved:  # saved before reports recorded it: the data's
         report = replace(report, csv_convention=convention_in(payload))
     return _with_estimate_problems(report, payload, source)
+
+
+def data_in(payload: dict) -> tuple | None:
+    """The data file a result saved before its report recorded it (document.DataRead) read, where the result says
+    (a fit's and an exploration's 'data' part: its source, row filters and missing codes; no checksum); None where
+    it does not."""
+    from cfa_tool.reporting.document import DataRead
+
+    data = payload.get("data")
+    if not isinstance(data, dict) or not isinstance(data.get("source"), str) or not data["source"]:
+        return None
+    codes = data.get("missing_codes") if isinstance(data.get("missing_codes"), list) else []
+    filters = data.get("row_filters") if isinstance(data.get("row_filters"), list) else []
+    reading = ([f"code{'s' if len(codes) > 1 else ''} {word_list([str(c) for c in codes])} read as missing"] if codes else []) + \
+        [f"rows where {f}" for f in filters]
+    return (DataRead(data["source"], "", tuple(reading)),)
 
 
 #: a path that names folders, as a report's words give a file: from the root ('/home/x/data.csv'), the home

@@ -108,9 +108,9 @@ def latex_table(table: ReportTable, view: View = WORDS) -> str:
     return "\n".join(lines) + "\n"
 
 
-def notice_table(notice: T.ProblemNotice) -> ReportTable:
+def notice_table(notice: T.ProblemNotice, view: View = RUNNING) -> ReportTable:
     """The problems that every view shows first, as a table for data files (where no notice can go)."""
-    return ReportTable("problems", notice.heading, ("Problem",), ("l",), tuple((said(line),) for line in notice.lines))
+    return ReportTable("problems", notice.heading, ("Problem",), ("l",), tuple((said(line, view),) for line in notice.lines))
 
 
 def report_markdown(report) -> str:
@@ -119,17 +119,49 @@ def report_markdown(report) -> str:
     (cfa_tool.note_parts); the user's files by their names, not their folders (document.by_file_name)."""
     report = by_file_name(report)
     view = titled(report.tables, running=report.kind.value)  # its own command not advised in it
+    parts = _markdown_notice(report.notice, view) + [f"# {markdown_text(report.title)}", ""]
+    return "\n".join(parts + _markdown_body(report, view) + _markdown_cautions(report.cautions, view))
+
+
+def combined_markdown(document) -> str:
+    """A document of several results (reporting.combined.Combined) as Markdown: the "Read first" notice, the title
+    and what the results read, each result under its heading (its own problems first), the cautions once."""
+    from cfa_tool.reporting.combined import notice_view
+
+    whole = notice_view(document, numbers=False)
+    parts = _markdown_notice(document.notice, whole) + [f"# {markdown_text(document.title)}", ""]
+    parts += [markdown_text(said(line, whole)) + "  " for line in document.lines] + ([""] if document.lines else [])
+    for part in document.parts:
+        view = titled(part.report.tables, running=part.report.kind.value)
+        parts += [f"## {markdown_text(part.heading)}", ""] + _markdown_notice(part.report.notice, view, 3)
+        parts += _markdown_body(part.report, view, 3)
+    return "\n".join(parts + _markdown_cautions(document.cautions, whole))
+
+
+def _markdown_notice(notice, view: View = RUNNING, level: int = 2) -> list[str]:
+    if notice is None:
+        return []
+    return [f"{'#' * level} {markdown_text(notice.heading)}", ""] + [f"- {markdown_text(said(line, view))}"
+                                                                     for line in notice.lines] + [""]
+
+
+def _markdown_cautions(cautions, view: View = RUNNING) -> list[str]:
+    if not cautions:
+        return []
+    return ["## Cautions", ""] + [markdown_text(said(c, view)) + "\n" for c in cautions]
+
+
+def _markdown_body(report, view: View, level: int = 2) -> list[str]:
+    """A report after its problems and title: what was done, the warnings, the methods paragraph, the figures, the
+    tables, the listings and the notes, under headings of ``level``."""
+    heading = "#" * level
     parts = []
-    if report.notice is not None:
-        parts += [f"## {markdown_text(report.notice.heading)}", ""] + [f"- {markdown_text(said(line, view))}"
-                                                                        for line in report.notice.lines] + [""]
-    parts += [f"# {markdown_text(report.title)}", ""]
     if report.lines:
         parts += [markdown_text(said(line, view)) + "  " for line in report.lines] + [""]
     if report.warnings:
         parts += [f"**{WARNINGS}**", ""] + [f"- {markdown_text(said(w, view))}" for w in report.warnings] + [""]
     if report.paragraph:
-        parts += [f"## {PARAGRAPH_HEADING}", "", markdown_text(report.paragraph), ""]
+        parts += [f"{heading} {PARAGRAPH_HEADING}", "", markdown_text(report.paragraph), ""]
     for figure in report.figures:  # an image of its SVG (a data address): nothing in it can run
         data = base64.b64encode(figure.svg.encode("utf-8")).decode("ascii")
         parts += [f"**{markdown_text(figure.title)}**", "", f"![{markdown_text(figure.title)}](data:image/svg+xml;base64,"
@@ -137,17 +169,15 @@ def report_markdown(report) -> str:
     section = ""
     for table in report.tables:
         if table.section and table.section != section:
-            parts += [f"## {markdown_text(table.section)}", ""]
+            parts += [f"{heading} {markdown_text(table.section)}", ""]
         section = table.section
         parts.append(markdown_table(table, view))
     for listing in report.listings:  # escaped line by line (a code block would pass markup to lenient readers)
         lines = [markdown_text(line) if line.strip() else "" for line in listing.text.rstrip("\n").split("\n")]
-        parts += [f"## {markdown_text(listing.title)}", "", "  \n".join(lines).replace("  \n  \n", "\n\n"), ""]
+        parts += [f"{heading} {markdown_text(listing.title)}", "", "  \n".join(lines).replace("  \n  \n", "\n\n"), ""]
     if report.notes:
-        parts += ["## Notes", ""] + [f"- {markdown_text(said(w, view))}" for w in report.notes] + [""]
-    if report.cautions:
-        parts += ["## Cautions", ""] + [markdown_text(said(c, view)) + "\n" for c in report.cautions]
-    return "\n".join(parts)
+        parts += [f"{heading} Notes", ""] + [f"- {markdown_text(said(w, view))}" for w in report.notes] + [""]
+    return parts
 
 
 def report_table_files(report, convention: CsvConvention = PLAIN) -> dict[str, str]:
@@ -172,3 +202,27 @@ def report_table_files(report, convention: CsvConvention = PLAIN) -> dict[str, s
 
 
 #: the file of a --tables folder that lists its tables with their titles and the report they belong to
+
+
+def combined_table_files(document) -> dict[str, str]:
+    """Every table of a document of several results (reporting.combined.Combined) as CSV and LaTeX, file name ->
+    text: each result's tables as its own report writes them (report_table_files, in the convention of the data it
+    read), their names starting with the result's number ('result2-model_fit.csv'), the "Read first" problems
+    first; one contents file names each result and its tables."""
+    files: dict[str, str] = {}
+    contents: list[str] = []
+    if document.notice is not None:
+        from cfa_tool.reporting.combined import notice_view
+
+        problems = notice_table(document.notice, notice_view(document, numbers=False))
+        files["read_first.csv"], files["read_first.tex"] = csv_table(problems), latex_table(problems)
+        contents += [f"read_first.csv, read_first.tex: {document.notice.heading}", ""]
+    for part in document.parts:
+        own = report_table_files(part.report, part.report.csv_convention)
+        prefix = f"result{part.number}-"
+        listed = own.pop(TABLE_CONTENTS).rstrip("\n").split("\n")
+        files.update({prefix + name: text for name, text in own.items()})
+        contents += [part.heading] + [re.sub(r"^([\w.-]+\.csv), ([\w.-]+\.tex):", rf"{prefix}\1, {prefix}\2:", line)
+                                      for line in listed[1:]] + [""]
+    files[TABLE_CONTENTS] = "\n".join(contents)
+    return files

@@ -1,0 +1,181 @@
+"""One document of several results (``cfa-tool report A.json B.json --docx paper.docx``): the report model of
+each result (reporting.document.Report) in the order given, each under a heading that says what analysis it is, in
+the report model of a document (:class:`Combined`), which the HTML, Markdown and Word writers draw.
+
+What a reader must see first comes first: a "Read first" notice at the top gathers every result's problems, each
+line naming the result it belongs to (and each result's own problems still open its part); the data the results
+read is said at the top, plainly when they do not describe the same rows (another data file, or the same file read
+with other row filters or missing codes); each result keeps its own methods paragraph (never merged into one claim);
+the cautions every result gives (fit-index guide values are conventions, high-stakes use) are said once, at the
+end.  Tables and figures are numbered through the whole document (:func:`table_numbers`, :func:`figure_numbers`)."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+
+from cfa_tool.note_parts import Note, TableReference, Text, View, said
+from cfa_tool.reporting.document import DataRead, Report, ResultKind, by_file_name, file_names
+from cfa_tool.reporting.tables import ProblemNotice
+
+#: what each command's result is, in plain words: the heading of its part of a document of several results
+ANALYSIS = {ResultKind.FIT: "Confirmatory factor analysis", ResultKind.CHECK: "Check of the model and the data",
+            ResultKind.COMPARE: "Comparison of models", ResultKind.INVARIANCE: "Measurement invariance",
+            ResultKind.REPLICATE: "Replication in a second sample", ResultKind.BOOTSTRAP: "Bootstrap of the fit",
+            ResultKind.CUTOFFS: "Fit-index cutoffs from simulated samples",
+            ResultKind.POWER: "Statistical power", ResultKind.POWER_SIMULATION: "Statistical power by simulation",
+            ResultKind.SIMULATE: "Simulated data", ResultKind.SCORES: "Factor scores",
+            ResultKind.EXPLORE: "Exploratory factor analysis", ResultKind.ALIGN: "Alignment of group parameters"}
+
+TITLE = "Results"  # the document's title, over its parts
+#: the headings of the "Read first" notice: when some result's solution is not admissible, and otherwise
+READ_FIRST_PROBLEMS = "Read first: some solutions are not admissible: do not interpret them"
+READ_FIRST_CAUTIONS = "Read first: check these results before interpreting them"
+
+
+@dataclass(frozen=True)
+class Part:
+    """One result of the document: its report (without the cautions, which the document says once and without
+    the user's folders, as the views for others name files), its number among the results and the heading of its
+    part."""
+
+    number: int
+    heading: str
+    report: Report
+
+
+@dataclass(frozen=True)
+class Combined:
+    """A document of several results: the "Read first" notice (every result's problems, each naming its result,
+    and the data when the results do not describe the same rows), the lines under the title (what each result
+    read), the parts in the order given, and the cautions once."""
+
+    title: str
+    notice: ProblemNotice | None
+    lines: tuple[Text, ...]
+    parts: tuple[Part, ...]
+    cautions: tuple[Text, ...]
+
+
+def part_heading(number: int, report: Report) -> str:
+    """'Result 2. Model comparison': the result's number and its report's title, which says what analysis it is,
+    but for a fit's, which is the model's name: 'Result 1. Confirmatory factor analysis: Rider experience, three
+    factors'."""
+    title = report.title.strip()
+    if report.kind is ResultKind.FIT or not title:
+        return f"Result {number}. {ANALYSIS[report.kind]}" + (f": {title}" if title else "")
+    return f"Result {number}. {title}"
+
+
+def _who(part: Part) -> str:
+    return f"Result {part.number} ({ANALYSIS[part.report.kind].lower()})"
+
+
+def combined(reports: list[tuple[Report, str]]) -> Combined:
+    """The document of ``reports`` (each with the name of the file it was read from, which the data lines use
+    when a result does not record its data), in the order given."""
+    parts = tuple(Part(k, part_heading(k, by_file_name(r)), replace(by_file_name(r), cautions=()))
+                  for k, (r, _) in enumerate(reports, start=1))
+    data_lines, same = _data_lines(parts, [source for _, source in reports])
+    problems: list[Text] = []
+    for part in parts:
+        notice = part.report.notice
+        if notice is not None:
+            problems += [Note((f"{_who(part)}: ",)) + _of_part(line, part.number)
+                         for line in (notice.lines or (notice.heading + ".",))]
+    inadmissible = any(p.report.notice is not None and p.report.notice.inadmissible for p in parts)
+    lines = tuple(problems) + (() if same else data_lines)
+    notice = None if not lines else ProblemNotice(READ_FIRST_PROBLEMS if inadmissible else READ_FIRST_CAUTIONS,
+                                                  lines, inadmissible)
+    cautions: dict[str, Text] = {}
+    for report, _ in reports:
+        for line in report.cautions:
+            cautions.setdefault(said(line), line)
+    return Combined(TITLE, notice, data_lines if same else (), parts, tuple(cautions.values()))
+
+
+def _of_part(line: Text, number: int) -> Text:
+    """A line of a result's notice as the document's "Read first" notice holds it: a reference to a table of that
+    result keyed by the result's number too ('2/model_fit'), so that it names that result's table
+    (:func:`notice_view`), whichever other result has a table of the same key."""
+    if isinstance(line, str):
+        return line
+    return Note(tuple(TableReference(f"{number}/{p.key}") if isinstance(p, TableReference) else p for p in line.parts))
+
+
+def notice_view(document: Combined, numbers: bool) -> View:
+    """The view of the document's "Read first" notice and lines: for a manuscript (``numbers``: the Word file)
+    without commands, each result's table named by its number in the whole document ('Table 7'); otherwise with
+    the commands, a table named by its title and its result."""
+    tables = {}
+    for part, first in zip(document.parts, table_numbers(document)):
+        for k, table in enumerate(part.report.tables):
+            tables[f"{part.number}/{table.key}"] = (f"Table {first + k}" if numbers else
+                                                    f'the table "{table.title}" of Result {part.number}')
+    return View(not numbers, tables)
+
+
+def _identity(data: DataRead) -> tuple:
+    """What makes two reads of data the same rows: the file's contents (its name where a checksum is missing) and
+    how its rows were read and kept."""
+    return (data.checksum or data.file, data.reading)
+
+
+def _data_lines(parts: tuple[Part, ...], sources: list[str]) -> tuple[tuple[Text, ...], bool]:
+    """The lines that say what data the results read, and whether those that read data all describe the same rows:
+    one line when they read the same file the same way; otherwise a line that says they do not, then one line per
+    result (its file and how its rows were read and kept)."""
+    reads = [p.report.data for p in parts]
+    names = file_names([d.file for read in reads if read for d in read])
+    named = {d.file: names.get(d.file, d.file) for read in reads if read for d in read}
+    known = [read for read in reads if read]
+    identities = {tuple(_identity(d) for d in read) for read in known}
+    none = [f"{_who(p)} read no data file (it plans or simulates)." for p, read in zip(parts, reads) if read == ()]
+
+    def described(read: tuple[DataRead, ...]) -> str:
+        same_name: dict[str, set[str]] = {}
+        for d in (d for r in known for d in r):
+            same_name.setdefault(named[d.file], set()).add(d.checksum)
+        return "; ".join(named[d.file] + (" (another file of this name: its contents differ)"
+                                          if len(same_name[named[d.file]] - {""}) > 1 else "")
+                         + (", " + ", ".join(d.reading) if d.reading else ", every row of the file as it stands")
+                         for d in read)
+
+    if None not in reads and len(identities) <= 1:
+        if not known:
+            return tuple(none), True
+        who = ("Both results" if len(parts) == 2 else f"All {len(parts)} results") if len(known) == len(parts) else \
+            f"{_who(parts[reads.index(known[0])])}" if len(known) == 1 else f"The {len(known)} results that read data"
+        verb = "read" if len(known) == 1 else "read the same data the same way:"
+        return (f"{who} {verb} {described(known[0])}.", *none), True
+    lines: list[Text] = ["These results do not all describe the same rows of data: "
+                         + ("some result does not record the data it read." if len(identities) <= 1 else
+                            "they read different data files, or the same file with other row filters or missing "
+                            "codes.")]
+    for part, read, source in zip(parts, reads, sources):
+        if read is None:
+            lines.append(f"{_who(part)} does not record the data it read ({source} was saved from Python, or by an "
+                         f"earlier version of the tool); see the data lines of its part.")
+        elif not read:
+            lines.append(f"{_who(part)} read no data file (it plans or simulates).")
+        else:
+            lines.append(f"{_who(part)}: {described(read)}.")
+    return tuple(lines), False
+
+
+def table_numbers(combined_document: Combined) -> list[int]:
+    """The number of each part's first table: the tables numbered through the document (Table 1 .. n)."""
+    return _starts([len(part.report.tables) for part in combined_document.parts])
+
+
+def figure_numbers(combined_document: Combined) -> list[int]:
+    """The number of each part's first figure: the figures numbered through the document (Figure 1 .. n)."""
+    return _starts([len(part.report.figures) for part in combined_document.parts])
+
+
+def _starts(counts: list[int]) -> list[int]:
+    """The number of the first of each run of ``counts`` things numbered from 1 through them all."""
+    starts, k = [], 1
+    for count in counts:
+        starts.append(k)
+        k += count
+    return starts
