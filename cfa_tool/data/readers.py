@@ -1087,17 +1087,67 @@ def _title_above_header(rows: list) -> str | None:
 
 def _check_uncomputed_formulas(path: Path, title: str, first: int) -> None:
     """Cells that are empty in the saved values but hold a formula: the workbook was written by a program that
-    stores formulas without calculating them, and reading them as missing answers would be wrong."""
-    import openpyxl
+    stores formulas without calculating them, and reading them as missing answers would be wrong.  Read from the
+    sheet's own XML (a formula cell ``<c><f>...</f></c>`` with no saved value ``<v>``, ECMA-376 Part 1, 18.3.1.4),
+    which needs no second and third reading of the whole workbook; through openpyxl's two readings (formulas, then
+    values) when the file does not name its cells so."""
+    found = _formula_without_value(path, title, first)
+    if found is False:  # not readable so: the workbook's formulas and values read by openpyxl
+        import openpyxl
 
-    formulas = openpyxl.load_workbook(path, read_only=True, data_only=False)[title]
-    values = openpyxl.load_workbook(path, read_only=True, data_only=True)[title]
-    for row_f, row_v in zip(formulas.iter_rows(min_row=first + 2), values.iter_rows(min_row=first + 2, values_only=True)):
-        for cell, value in zip(row_f, row_v):
-            if value is None and isinstance(cell.value, str) and cell.value.startswith("="):
-                raise DataError(f"{path} (sheet '{printable(title)}'): cell {cell.coordinate} holds a formula whose value "
-                                f"was never calculated (the program that wrote the file does not calculate); open and save "
-                                f"the workbook in a spreadsheet program, or save the table as CSV")
+        formulas = openpyxl.load_workbook(path, read_only=True, data_only=False)[title]
+        values = openpyxl.load_workbook(path, read_only=True, data_only=True)[title]
+        found = next((cell.coordinate for row_f, row_v in zip(formulas.iter_rows(min_row=first + 2),
+                                                               values.iter_rows(min_row=first + 2, values_only=True))
+                      for cell, value in zip(row_f, row_v)
+                      if value is None and isinstance(cell.value, str) and cell.value.startswith("=")), None)
+    if found:
+        raise DataError(f"{path} (sheet '{printable(title)}'): cell {found} holds a formula whose value "
+                        f"was never calculated (the program that wrote the file does not calculate); open and save "
+                        f"the workbook in a spreadsheet program, or save the table as CSV")
+
+
+_SHEET_XML = "{http://schemas.openxmlformats.org/spreadsheetml/2006/main}"
+_RELATIONS = "{http://schemas.openxmlformats.org/officeDocument/2006/relationships}"
+
+
+def _formula_without_value(path: Path, title: str, first: int) -> str | None | bool:
+    """The first cell (its reference, 'B7') from row ``first + 2`` on of the sheet ``title`` that holds a formula and
+    no saved value, None when there is none, False when the sheet's XML cannot be read so (a cell without its
+    reference, a part not found)."""
+    import posixpath
+    import zipfile
+    from xml.etree import ElementTree
+
+    try:
+        with zipfile.ZipFile(path) as book:
+            workbook = ElementTree.fromstring(book.read("xl/workbook.xml"))
+            relations = ElementTree.fromstring(book.read("xl/_rels/workbook.xml.rels"))
+            rid = next((s.get(f"{_RELATIONS}id") for s in workbook.iter(f"{_SHEET_XML}sheet") if s.get("name") == title),
+                       None)
+            target = next((r.get("Target") for r in relations if r.get("Id") == rid), None)
+            if rid is None or target is None:
+                return False
+            part = target.lstrip("/") if target.startswith("/") else posixpath.normpath(posixpath.join("xl", target))
+            with book.open(part) as sheet:
+                for _, row in ElementTree.iterparse(sheet):
+                    if row.tag != f"{_SHEET_XML}row":
+                        continue
+                    row_number = row.get("r")
+                    if row_number is None:
+                        return False
+                    if int(row_number) >= first + 2:
+                        for cell in row.iter(f"{_SHEET_XML}c"):
+                            if cell.get("r") is None:
+                                return False
+                            value = cell.find(f"{_SHEET_XML}v")
+                            if cell.find(f"{_SHEET_XML}f") is not None and (
+                                    value is None or (value.text is None and cell.get("t") != "str")):
+                                return cell.get("r")
+                    row.clear()
+    except (KeyError, OSError, ValueError, zipfile.BadZipFile, ElementTree.ParseError):
+        return False
+    return None
 
 
 def _header_taken(where: str, names_option: Option = Option.NAMES_ROW, below: int | None = None, items=None,
