@@ -17,7 +17,7 @@ import pandas as pd
 from cfa_tool.data.descriptives import AnswerExtremes, shared_extremes
 from cfa_tool.data.answer_scales import (MOST_WORDS_SHOWN, distinct_words, end_points_statement, stray_text,
                                          suggested_statement)
-from cfa_tool.data.kept_rows import ROW_NAMING, RowNaming, cell_words, row_naming, text_lines
+from cfa_tool.data.kept_rows import ROW_NAMING, RowNaming, cell_words, row_naming, text_lines, too_few_rows
 from cfa_tool.data.non_answers import given_codes
 from cfa_tool.errors import DataError, EstimationError, clipped, printable
 from cfa_tool.options import Option
@@ -479,7 +479,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     p = values.shape[1]
     if missing == MissingData.FULL_INFORMATION:  # the member or its word
         found = _incomplete_moments(values, names, source, file_source, group, len(frame), w, row_numbers(frame),
-                                    row_naming(frame), extremes)
+                                    row_naming(frame), extremes, frame)
         return replace(found, text_lines=text_lines(frame)) if text_lines(frame) else found
     complete = None if finite else ~np.isnan(values).any(axis=1)  # checked finite: every row is complete
     every_row = complete is None or bool(complete.all())
@@ -488,10 +488,9 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     if n == 0:
         raise DataError(f"{source}: no row has answers on all {p} model variables, so nothing is left to analyse")
     if n <= p:
-        raise DataError(
-            f"{source}: {count_text(n)} complete {'row' if n == 1 else 'rows'} for {p} variables; the covariance matrix needs more rows than variables "
-            f"(and a factor analysis far more)"
-        )
+        raise DataError(f"{source}: " + too_few_rows(frame, n, p, "every model variable", "variable",
+                                                     f"the covariance matrix needs more rows than variables ({p + 1} "
+                                                     f"or more, and a factor analysis far more)"))
     if w is None:
         means = data.mean(axis=0)
         centred = data - means
@@ -574,7 +573,8 @@ def too_few_answers(name: str, answers: int, source: str, group: str | None = No
 
 def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int,
                         weights: np.ndarray | None = None, numbers: np.ndarray | None = None,
-                        naming: RowNaming = RowNaming.FILE_ROW, extremes: AnswerExtremes | None = None) -> SampleMoments:
+                        naming: RowNaming = RowNaming.FILE_ROW, extremes: AnswerExtremes | None = None,
+                        frame: pd.DataFrame | None = None) -> SampleMoments:
     from cfa_tool.data.em import SingularCovariance, em_saturated
     from cfa_tool.data.patterns import pattern_data
 
@@ -582,7 +582,8 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
     data = values[answered]
     n, p = data.shape
     if n <= p:
-        raise DataError(f"{source}: {n} row{'' if n == 1 else 's'} with any answer for {p} variables; the analysis needs more rows than variables")
+        raise DataError(f"{source}: " + too_few_rows(frame, n, p, "some model variable", "variable",
+                                                     f"the analysis needs more rows than variables ({p + 1} or more)"))
     counts = (~np.isnan(data)).sum(axis=0)
     for j, c in enumerate(counts):
         if c < fewest_answers(p):
