@@ -18,7 +18,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.numbers import user_number, count_text
+from cfa_tool.numbers import discrepancy_text, user_number, count_text
 from cfa_tool.method import (MISSING_AT_RANDOM, MISSING_COMPLETELY_AT_RANDOM, DecisionRule, DifferenceMethod, Information, FitTest, Items, MissingData,
                               WeightKind, Weighting)
 from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, design_cautions, design_doubts, failure_words
@@ -2604,4 +2604,4 @@ def nested_power_paragraph(results) -> str:
             f"at alpha = {unit(first.alpha, 2)} (Steiger, Shapiro & Browne, 1985). Of the data sets in which both "
             f"models converged, the share that rejected the nested model was {powers}. The noncentral chi-square approximation "
             f"(Satorra & Saris, 1985), with noncentrality N times the nested model's minimum discrepancy at the "
-            f"population ({num(nested.discrepancy, 4)}), gives {approximate}.")
+            f"population ({discrepancy_text(nested.discrepancy)}), gives {approximate}.")

@@ -7,7 +7,7 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
-from cfa_tool.numbers import count_text, counted, cut_list, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, discrepancy_text, user_number
 from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATED, ProblemKind, design_cautions, design_doubts, failure_words,
                                                not_admissible_sentence)
@@ -1651,7 +1651,7 @@ def nested_power_report(result) -> Report:
     df, discrepancy = nested.df_difference, nested.discrepancy
     rows = [["Nested model", nested.name, nested.name],
             ["Degrees of freedom of the difference", str(df), df],
-            ["Minimum discrepancy of the nested model at the population (F)", num(discrepancy, 4), discrepancy],
+            ["Minimum discrepancy of the nested model at the population (F)", discrepancy_text(discrepancy), discrepancy],
             ["Significance level", short(result.alpha), result.alpha]]
     effective = result.effective_n  # a planned cluster sample: the N asked about is worth N / design effect rows
     if result.power is not None:
