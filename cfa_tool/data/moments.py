@@ -235,13 +235,23 @@ def stray_words(names: Sequence[str], columns: list[pd.Series], source: str) -> 
                     + _no_answer_advice([w for w, _ in words], given_codes(columns[0])))
 
 
-def stray_word_message(source: str, name: str, shown: str, where: str, word: str, given: tuple = ()) -> str:
+def stray_word_message(source: str, name: str, shown: str, where: str, word: str, given: tuple = (),
+                       values=None) -> str:
     """The one message of a word typed among a column's numbers (a slip, data.answer_scales.stray_text): which
     cell, and the two ways on (correct it, or read the word as no answer), for every command (re-read s14: explore
     said 'leave it empty' where fit gave the option); ``given``: the codes and words of no answer the run gave
-    already, which the advice keeps (data.non_answers.codes_given)."""
-    return (f"{source}: column '{printable(name)}' holds text ('{shown}' in {where}) among numbers; correct the cell, "
-            f"or, if the word means no answer, " + _no_answer_advice([word], given))
+    already, which the advice keeps (data.non_answers.codes_given); ``values``: the column's cells, whose other cells
+    of text it counts, so that the advice names the cells it means (s26: 'correct the cell' of several)."""
+    others = text_cells(values) - 1 if values is not None else 0
+    more = f", and in {counted(others, 'other cell')}" if others > 0 else ""
+    return (f"{source}: column '{printable(name)}' holds text ('{shown}' in {where}{more}) among numbers; "
+            f"{'correct the cell' if others <= 0 else 'correct those cells'}, or, if the word means no answer, "
+            + _no_answer_advice([word], given))
+
+
+def text_cells(values) -> int:
+    """The cells of ``values`` that hold text that is not a number (spaces alone are an empty cell)."""
+    return sum(1 for v in values if isinstance(v, str) and v.strip() and strict_number(v.strip()) is None)
 
 
 def _no_answer_advice(words: list[str], given: tuple = ()) -> str:
@@ -284,7 +294,7 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
             shown = clipped(text, 40)
             if stray_text(values):  # a slip among numbers, not a column of words
                 raise DataError(stray_word_message(source, name, shown, cell_words(column, name, numbers[row]), text,
-                                                   given_codes(column)))
+                                                   given_codes(column), values))
             raise DataError(f"{source}: column '{printable(name)}' is used as an indicator but holds text ('{shown}' in "
                             f"{cell_words(column, name, numbers[row])}); indicators must be numbers: {_recoding(text)}"
                             + _statement_hint(values))
