@@ -1013,17 +1013,18 @@ def answer_coding_sentence(data) -> str:
                                 said(recoded, "Answers recorded as numbers were coded"), joined) if s)
 
 
-def joined_sentence(data) -> str:
+def joined_sentence(data, where: str = "") -> str:
     """Which answer categories of which ordinal items were analysed as one (the model's 'join answers' statements,
     data.joined_answers), e.g. 'Answers 0 and 1 of item3 and item4 were analysed as one category (coded 1), for
-    categories chosen by few respondents.'; empty without joins."""
+    categories chosen by few respondents.'; empty without joins.  ``where``: the analyses it holds for beside the
+    fit's (', in the fit and in every resample' for the bootstrap's methods lines)."""
     record = getattr(data, "joined_answers", ())
     if not record:
         return ""
     parts = [f"answers {_list([user_number(v) for v in values])} of {_names(items)} (coded {user_number(into)})"
              for items, values, into in record]
     return (f"Neighbouring answer categories of ordinal items were analysed as one category: {'; '.join(parts)}; "
-            f"the thresholds and polychoric correlations are those of the joined categories.")
+            f"the thresholds and polychoric correlations are those of the joined categories{where}.")
 
 
 def _matrix_sentence(result, subject: str = "The model was") -> str:

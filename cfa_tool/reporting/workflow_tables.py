@@ -25,7 +25,7 @@ from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, cfi_not_defined_sentence, compared_cfi_not_defined,
                                           comparison_paragraph, set_apart_words, group_labels, design_sentence,
                                           mcar_score_tests, reversed_across_groups, reversed_loadings,
-                                          invariance_paragraph, replication_paragraph)
+                                          invariance_paragraph, joined_sentence, replication_paragraph)
 from cfa_tool.reporting.numbers import (est_num, est_unit, fit_index_text, guides_text, index_text, missing, needed_decimals, num,
                                         p_phrase, p_value, short, signed, signed_num, unit, word_list)
 from cfa_tool.language.spec import equality_words
@@ -1256,6 +1256,9 @@ def bootstrap_report(boot) -> Report:
     lines = [opening]
     if ordinal:
         lines.append(ORDINAL_BOOTSTRAP.format(estimator=result.method.weighting.phrase))
+        joined = joined_sentence(result.data, ", in the fit and in every resample")  # as fit's paragraph names them
+        if joined:
+            lines.append(joined)
     if boot.lacked:
         lines.append(_lacked_sentence(boot))
     if _design_lines(result):
