@@ -3,7 +3,8 @@
 Examples: ``district = north``, ``age >= 18``, ``"wave 2" != 1``,
 ``visit_date >= 2026-03-01``.  A filter is parsed, never evaluated as code.
 Operators: = != < <= > >= (text columns take only = and !=; date columns, and
-text written YYYY-MM-DD, compare as dates; a date without a time of day means the whole day).
+text written YYYY-MM-DD, compare as dates, and text dates in another form when their cells say the order of day
+and month; a date without a time of day means the whole day).
 
 A list of values in one filter: COLUMN in V1, V2, ... keeps the rows whose value is one of them, COLUMN not in
 V1, V2, ... the rows whose value is none of them (``student_id not in S-00601, S-00602``; a value that holds a comma
