@@ -76,6 +76,19 @@ def rounded_number(value: float, digits: int = 3, apart_from: float | None = Non
     return user_number(float(f"{value:.{digits}g}"))
 
 
+def discrepancy_text(value: float) -> str:
+    """A minimum discrepancy (a fit function's value, F: the nesting check's, the population's of power) in words, the
+    one rule of every view: four decimals ('0.0019', '0.2000'), which tell apart the sizes that matter beside N x F
+    at hundreds of rows; a positive value that four decimals would write as zero is 'below 0.0001', never '0.0000'
+    (s26: compare wrote 'discrepancy 0.000058' beside 'discrepancy 0.2'); zero or below (a rounding error) '0'."""
+    value = float(value)
+    if not math.isfinite(value):
+        return str(value)
+    if value <= 0:
+        return "0"
+    return "below 0.0001" if value < 0.00005 else f"{value:.4f}"
+
+
 def counted(count: int, noun: str, plural: str | None = None) -> str:
     """A count with its noun in the number it takes: '1 row', '2 rows', '1,204 rows' (:func:`count_text`); ``plural``
     where it is not the noun with an 's' ('1 category', '2 categories').  Messages that could say '1 rows' (the s20

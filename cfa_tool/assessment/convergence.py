@@ -13,6 +13,9 @@ from cfa_tool.estimation.strategy import Restart, Search
 from cfa_tool.note_parts import Command, Note, Text, joined
 from cfa_tool.options import Option
 
+#: where a message of a search that did not converge turns from what happened to what to try (a workflow that writes
+#: the model itself gives its own remedies there: workflows.occasions)
+WHAT_TO_TRY = ". What to try: "
 IDENTIFICATION_HINT = ("check that every factor is identified (three or more items with clear loadings, or two items "
                        "and a correlation with another factor)")
 
@@ -115,7 +118,7 @@ def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, l
     if general:
         advice += [IDENTIFICATION_HINT,
                    Note(("give start values near the expected solution", Command(" ('start ...')")))]
-    return joined(parts, "; ") + ". What to try: " + _or_list(advice)  # type: ignore[operator]
+    return joined(parts, "; ") + WHAT_TO_TRY + _or_list(advice)  # type: ignore[operator]
 
 
 def _named(label: str, observed: tuple[str, ...]) -> Note:

@@ -3,7 +3,8 @@
 Examples: ``district = north``, ``age >= 18``, ``"wave 2" != 1``,
 ``visit_date >= 2026-03-01``.  A filter is parsed, never evaluated as code.
 Operators: = != < <= > >= (text columns take only = and !=; date columns, and
-text written YYYY-MM-DD, compare as dates; a date without a time of day means the whole day).
+text written YYYY-MM-DD, compare as dates, and text dates in another form when their cells say the order of day
+and month; a date without a time of day means the whole day).
 
 A list of values in one filter: COLUMN in V1, V2, ... keeps the rows whose value is one of them, COLUMN not in
 V1, V2, ... the rows whose value is none of them (``student_id not in S-00601, S-00602``; a value that holds a comma
@@ -531,7 +532,8 @@ def _compared(frame: pd.DataFrame, f: RowFilter, column: pd.Series, labels, sour
     numeric = pd.to_numeric(column, errors="coerce") if column.dtype.kind in "iuf" else \
         column.map(lambda v: np.nan if pd.isna(v) else _number_or_nan(v))
     if dates is not None:
-        values, target, by_day = _dates_compared(f, dates)
+        values, target, by_day = _dates_compared(f, dates, None if column.dtype.kind == "M" else
+                                                 _text_date_order(column))
         by_label += by_day
     elif isinstance(f.value, float) and numeric.notna().sum() == column.notna().sum():
         values, target = numeric, f.value
@@ -723,6 +725,9 @@ _ISO_DATE = re.compile(r"\d{4}-\d{2}-\d{2}(?:[ T]\d{2}:\d{2}(?::\d{2}(?:\.\d+)?)
 _DAY_ONLY = re.compile(r"\d{4}-\d{2}-\d{2}")
 #: a date in another form (14/03/2026, 3.14.26): day and month in an order the file does not say
 _OTHER_DATE = re.compile(r"\d{1,2}[/.-]\d{1,2}[/.-]\d{2,4}")
+#: such a date with a four-digit year and one separator, its parts apart (the order of day and month read from the
+#: column's cells: _text_date_order)
+_TEXT_DATE = re.compile(r"(\d{1,2})([/.-])(\d{1,2})([/.-])\d{4}")
 
 
 def _as_dates(column: pd.Series) -> pd.Series | None:
@@ -739,7 +744,48 @@ def _as_dates(column: pd.Series) -> pd.Series | None:
         parsed = pd.to_datetime(column.map(lambda v: v.strip() if isinstance(v, str) else v), errors="coerce",
                                 format="ISO8601")
         return parsed if parsed.notna().sum() == len(present) else None
+    order = _text_date_order(column)
+    if order is not None:
+        return pd.to_datetime(column.map(lambda v: v.strip() if isinstance(v, str) else v), format=order.form)
     return None
+
+
+@dataclass(frozen=True)
+class _DateOrder:
+    """The order of day and month of a text column of dates in another form than YYYY-MM-DD, where its cells say
+    it: ``form`` (strptime's, '%d.%m.%Y'), ``words`` ('day.month.year') and ``witness``, a cell whose day is above 12,
+    which no month is."""
+
+    form: str
+    words: str
+    witness: str
+
+
+def _text_date_order(column: pd.Series) -> _DateOrder | None:
+    """The order of day and month of a text column of dates written 14.03.2026, 14/03/2026 or 03-14-2026 (one
+    separator, a four-digit year), when it is not in doubt: some cell's first number is above 12 and no cell's
+    second is (day first), or the other way round (month first), and every cell is a day that exists in that order;
+    None otherwise (every cell's day at most 12: the file does not say which is the day)."""
+    present = [v.strip() for v in column.dropna() if isinstance(v, str) and v.strip()]
+    found = [_TEXT_DATE.fullmatch(v) for v in present]
+    if not present or not all(found) or len({m.group(2) for m in found}) != 1 or \
+            any(m.group(2) != m.group(4) for m in found):
+        return None
+    first = [int(m.group(1)) for m in found]
+    second = [int(m.group(3)) for m in found]
+    sep = found[0].group(2)
+    if max(first) > 12 >= max(second):
+        order = _DateOrder(f"%d{sep}%m{sep}%Y", f"day{sep}month{sep}year", present[first.index(max(first))])
+    elif max(second) > 12 >= max(first):
+        order = _DateOrder(f"%m{sep}%d{sep}%Y", f"month{sep}day{sep}year", present[second.index(max(second))])
+    else:
+        return None
+    try:
+        for v in present:
+            datetime.datetime.strptime(v, order.form)
+    except ValueError:  # a day that does not exist (31.02.2026): not read as dates
+        return None
+    return order
 
 
 def _not_dates(column: pd.Series) -> list[tuple[int, object]] | None:
@@ -763,31 +809,39 @@ def _not_dates(column: pd.Series) -> list[tuple[int, object]] | None:
     return [(int(i), column.iloc[i]) for i in np.flatnonzero(~good)]
 
 
-def _date_target(f: RowFilter) -> pd.Timestamp:
-    """The date a filter of a date column compares with, written YYYY-MM-DD (with a time or not)."""
+def _date_target(f: RowFilter, order: _DateOrder | None = None) -> pd.Timestamp:
+    """The date a filter of a date column compares with, written YYYY-MM-DD (with a time or not), or in the form of
+    the column's own text dates when their order of day and month is known (``order``: '01.03.2026' of a column of
+    day.month.year)."""
     text = str(f.value).strip() if isinstance(f.value, str) else ""
     try:
         if _ISO_DATE.fullmatch(text):
             return pd.Timestamp(text)
+        if order is not None:
+            return pd.Timestamp(datetime.datetime.strptime(text, order.form))
     except ValueError:
         pass
+    also = f", or as its cells write them ({order.words})" if order is not None else ""
     raise OptionError(f"row filter {quoted_filter(f)}: '{printable(f.column)}' holds dates, which are compared with a "
-                      f"date written as YYYY-MM-DD (such as '{f.column} >= 2026-03-01')")
+                      f"date written as YYYY-MM-DD (such as '{f.column} >= 2026-03-01'){also}")
 
 
-def _dates_compared(f: RowFilter, dates: pd.Series) -> tuple[pd.Series, pd.Timestamp, str]:
+def _dates_compared(f: RowFilter, dates: pd.Series, order: _DateOrder | None = None
+                    ) -> tuple[pd.Series, pd.Timestamp, str]:
     """The values of a date column and the date a filter compares them with, and words for its note: a date
     written without a time of day means the whole day, so every operator compares it with the day of each value
     ('visit <= 2026-04-01' keeps the visits at 08:30 on April 1, 'visit = 2026-04-01' every visit that day); the
     note says so when the column holds times of day.  A date with a time compares with the values as they are."""
-    target = _date_target(f)
-    if not _DAY_ONLY.fullmatch(str(f.value).strip()):
-        return dates, target, ""
+    target = _date_target(f, order)
+    read = (f" (the text dates of '{printable(f.column)}' read as {order.words}: '{printable(order.witness)}' has no "
+            f"month above 12)" if order is not None else "")
+    if order is None and not _DAY_ONLY.fullmatch(str(f.value).strip()):
+        return dates, target, read
     days = dates.dt.normalize()
     timed = bool((days != dates)[dates.notna()].any())
     words = (f" (compared with the day of each value, since '{printable(f.column)}' holds times of day and the filter "
              f"gives a date without one)" if timed else "")
-    return days, target, words
+    return days, target, read + words
 
 
 def _written_date(column: pd.Series) -> str | None:

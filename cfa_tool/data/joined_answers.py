@@ -189,6 +189,16 @@ def refuse_joins_for_summary_statistics(spec: Spec, source: str) -> None:
                          join.location, spec.source_line(join.location))
 
 
+def refuse_joins_without_answers(spec: Spec, command: str, instead: str) -> None:
+    """A 'join answers' statement in a command that reads no answers (power plans from the model alone,
+    power-simulation draws its answers in the categories it is given): an error at its line, never left unapplied
+    without a word (s26: analytic power ignored it); ``instead``: what the command does in its place."""
+    if spec.joins:
+        join = spec.joins[0]
+        raise ModelError(f"'join answers' joins categories of the answers read from a data file, and {command} "
+                         f"{instead}; remove the statement", join.location, spec.source_line(join.location))
+
+
 def refuse_other_joins(spec: Spec, saved: list, source: str) -> None:
     """Scores of other data with a saved fit read the rows with the model file's joins, which must be the fit's
     (``saved``: its JSON's 'joined_answers'): other joins would put the answers on categories the fitted thresholds

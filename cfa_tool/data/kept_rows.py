@@ -11,7 +11,7 @@ import pandas as pd
 
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.errors import clipped, printable
-from cfa_tool.numbers import count_text, more_words, names_shown
+from cfa_tool.numbers import count_text, counted, more_words, names_shown
 from cfa_tool.note_parts import Command, Note, RowId, Text
 from cfa_tool.options import Option
 
@@ -164,6 +164,24 @@ def rows_described(frame: pd.DataFrame) -> str:
     filters = frame.attrs.get(KEPT_BY, ())
     kept = Option.KEEP.given([printable(text) for text in filters])
     return f"the {len(frame)} {'row' if len(frame) == 1 else 'rows'}" + (f" kept by {kept}" if filters else "")
+
+
+def too_few_rows(frame: pd.DataFrame | None, n: int, p: int, answered: str, noun: str, needs: str) -> str:
+    """The one wording of rows too few for ``p`` ``noun``s (``n`` of the rows of ``frame`` that ``answered`` as the
+    analysis needs: 'every item', 'some item'), naming the row filter that left them (new-user trial s26: 'the 9
+    rows kept by --keep ... are too few for 10 items'), what the analysis ``needs``, and what works: more rows (a
+    wider row filter where one was applied) or fewer of them; ``frame`` None: rows that no filter chose (a matrix's
+    sample size)."""
+    if frame is None:
+        held = f"the {counted(n, 'row')}"
+    else:
+        held = rows_described(frame)
+        if n < len(frame):  # rows without an answer (or, listwise, with a gap) are left out too
+            held = f"of {held}, {count_text(n)} answered {answered}, which"
+    filtered = frame is not None and bool(frame.attrs.get(KEPT_BY))
+    remedy = (f"keep more rows (a wider row filter) or analyse fewer {noun}s" if filtered else
+              f"more rows are needed, or fewer {noun}s")
+    return f"{held} {'is' if n == 1 else 'are'} too few for {counted(p, noun)}: {needs}; {remedy}"
 
 
 #: a survey platform's record of whether a respondent finished the questionnaire: the column's name (case aside)

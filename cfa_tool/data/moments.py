@@ -17,7 +17,7 @@ import pandas as pd
 from cfa_tool.data.descriptives import AnswerExtremes, shared_extremes
 from cfa_tool.data.answer_scales import (MOST_WORDS_SHOWN, distinct_words, end_points_statement, stray_text,
                                          suggested_statement)
-from cfa_tool.data.kept_rows import ROW_NAMING, RowNaming, cell_words, row_naming, text_lines
+from cfa_tool.data.kept_rows import ROW_NAMING, RowNaming, cell_words, row_naming, text_lines, too_few_rows
 from cfa_tool.data.non_answers import given_codes
 from cfa_tool.errors import DataError, EstimationError, clipped, printable
 from cfa_tool.options import Option
@@ -235,13 +235,23 @@ def stray_words(names: Sequence[str], columns: list[pd.Series], source: str) -> 
                     + _no_answer_advice([w for w, _ in words], given_codes(columns[0])))
 
 
-def stray_word_message(source: str, name: str, shown: str, where: str, word: str, given: tuple = ()) -> str:
+def stray_word_message(source: str, name: str, shown: str, where: str, word: str, given: tuple = (),
+                       values=None) -> str:
     """The one message of a word typed among a column's numbers (a slip, data.answer_scales.stray_text): which
     cell, and the two ways on (correct it, or read the word as no answer), for every command (re-read s14: explore
     said 'leave it empty' where fit gave the option); ``given``: the codes and words of no answer the run gave
-    already, which the advice keeps (data.non_answers.codes_given)."""
-    return (f"{source}: column '{printable(name)}' holds text ('{shown}' in {where}) among numbers; correct the cell, "
-            f"or, if the word means no answer, " + _no_answer_advice([word], given))
+    already, which the advice keeps (data.non_answers.codes_given); ``values``: the column's cells, whose other cells
+    of text it counts, so that the advice names the cells it means (s26: 'correct the cell' of several)."""
+    others = text_cells(values) - 1 if values is not None else 0
+    more = f", and in {counted(others, 'other cell')}" if others > 0 else ""
+    return (f"{source}: column '{printable(name)}' holds text ('{shown}' in {where}{more}) among numbers; "
+            f"{'correct the cell' if others <= 0 else 'correct those cells'}, or, if the word means no answer, "
+            + _no_answer_advice([word], given))
+
+
+def text_cells(values) -> int:
+    """The cells of ``values`` that hold text that is not a number (spaces alone are an empty cell)."""
+    return sum(1 for v in values if isinstance(v, str) and v.strip() and strict_number(v.strip()) is None)
 
 
 def _no_answer_advice(words: list[str], given: tuple = ()) -> str:
@@ -284,7 +294,7 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
             shown = clipped(text, 40)
             if stray_text(values):  # a slip among numbers, not a column of words
                 raise DataError(stray_word_message(source, name, shown, cell_words(column, name, numbers[row]), text,
-                                                   given_codes(column)))
+                                                   given_codes(column), values))
             raise DataError(f"{source}: column '{printable(name)}' is used as an indicator but holds text ('{shown}' in "
                             f"{cell_words(column, name, numbers[row])}); indicators must be numbers: {_recoding(text)}"
                             + _statement_hint(values))
@@ -479,7 +489,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     p = values.shape[1]
     if missing == MissingData.FULL_INFORMATION:  # the member or its word
         found = _incomplete_moments(values, names, source, file_source, group, len(frame), w, row_numbers(frame),
-                                    row_naming(frame), extremes)
+                                    row_naming(frame), extremes, frame)
         return replace(found, text_lines=text_lines(frame)) if text_lines(frame) else found
     complete = None if finite else ~np.isnan(values).any(axis=1)  # checked finite: every row is complete
     every_row = complete is None or bool(complete.all())
@@ -488,10 +498,9 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     if n == 0:
         raise DataError(f"{source}: no row has answers on all {p} model variables, so nothing is left to analyse")
     if n <= p:
-        raise DataError(
-            f"{source}: {count_text(n)} complete {'row' if n == 1 else 'rows'} for {p} variables; the covariance matrix needs more rows than variables "
-            f"(and a factor analysis far more)"
-        )
+        raise DataError(f"{source}: " + too_few_rows(frame, n, p, "every model variable", "variable",
+                                                     f"the covariance matrix needs more rows than variables ({p + 1} "
+                                                     f"or more, and a factor analysis far more)"))
     if w is None:
         means = data.mean(axis=0)
         centred = data - means
@@ -574,7 +583,8 @@ def too_few_answers(name: str, answers: int, source: str, group: str | None = No
 
 def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int,
                         weights: np.ndarray | None = None, numbers: np.ndarray | None = None,
-                        naming: RowNaming = RowNaming.FILE_ROW, extremes: AnswerExtremes | None = None) -> SampleMoments:
+                        naming: RowNaming = RowNaming.FILE_ROW, extremes: AnswerExtremes | None = None,
+                        frame: pd.DataFrame | None = None) -> SampleMoments:
     from cfa_tool.data.em import SingularCovariance, em_saturated
     from cfa_tool.data.patterns import pattern_data
 
@@ -582,7 +592,8 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
     data = values[answered]
     n, p = data.shape
     if n <= p:
-        raise DataError(f"{source}: {n} row{'' if n == 1 else 's'} with any answer for {p} variables; the analysis needs more rows than variables")
+        raise DataError(f"{source}: " + too_few_rows(frame, n, p, "some model variable", "variable",
+                                                     f"the analysis needs more rows than variables ({p + 1} or more)"))
     counts = (~np.isnan(data)).sum(axis=0)
     for j, c in enumerate(counts):
         if c < fewest_answers(p):

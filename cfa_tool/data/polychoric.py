@@ -332,15 +332,11 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         return int(rows.sum()) if w is None else float(w[rows].sum())
 
     if n <= p:
-        from cfa_tool.data.kept_rows import KEPT_BY, rows_described
+        from cfa_tool.data.kept_rows import too_few_rows
 
-        held = rows_described(frame)
-        if n < len(frame):  # rows without an answer (or, listwise, with a gap) are left out too
-            held = f"of {held}, {n} answered {'some' if pairwise else 'every'} item, which"
-        remedy = ("keep more rows (a wider row filter) or fit fewer items" if frame.attrs.get(KEPT_BY) else
-                  "more rows are needed, or fewer items")
-        raise DataError(f"{source}{where}: {held} {'is' if n == 1 else 'are'} too few for "
-                        f"{p} items: their correlations need more rows than items ({p + 1} or more); {remedy}")
+        raise DataError(f"{source}{where}: " + too_few_rows(frame, n, p, f"{'some' if pairwise else 'every'} item",
+                                                         "item", f"their correlations need more rows than items "
+                                                         f"({p + 1} or more)"))
     pair_counts = present.T.astype(np.int64) @ present.astype(np.int64)  # rows answering both items (diagonal: each)
     if pairwise and (pair_counts < 2).any():
         alone = np.flatnonzero(pair_counts.diagonal() < 2)  # an item hardly answered is named before its pairs

@@ -20,7 +20,6 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.errors import DataError
-from cfa_tool.numbers import count_text
 from cfa_tool.numerics.linalg import cholesky_log_det
 from cfa_tool.exploration.choices import CorrelationKind
 
@@ -90,7 +89,10 @@ def _checked(R: np.ndarray, names: tuple[str, ...], n_obs: int, source: str) -> 
     if not np.all(np.isfinite(R)) or not np.allclose(R, R.T, atol=1e-10) or not np.allclose(np.diag(R), 1.0, atol=1e-10):
         raise DataError(f"{source}: the correlations must form a finite symmetric matrix with ones on the diagonal")
     if n_obs <= p:
-        raise DataError(f"{source}: {count_text(n_obs)} rows for {p} items; an exploratory factor analysis needs far more rows than items")
+        from cfa_tool.data.kept_rows import too_few_rows  # a matrix's sample size: rows no filter of this run chose
+
+        raise DataError(f"{source}: " + too_few_rows(None, n_obs, p, "", "item", "an exploratory factor analysis "
+                                                     "needs far more rows than items"))
     if cholesky_log_det(R) is None:
         raise DataError(f"{source}: the correlation matrix is not positive definite; some items are exact or near "
                         f"combinations of others (drop one of them)")

@@ -1481,8 +1481,8 @@ def scale_ends_problems(frame: pd.DataFrame, spec: Spec) -> tuple:
         unreached = [f"{user_number(v)}" for v in (keying.minimum, keying.maximum)
                      if (v < low if v == keying.minimum else v > high)]
         reversed_items = ", ".join(i.text for i in keying.items)
-        shift = (keying.minimum + keying.maximum) - (low + high)
-        effect = (f"if the answer scale is {user_number(low)} to {user_number(high)}, each reversed answer counts {user_number(abs(shift))} too "
+        shift = round((keying.minimum + keying.maximum) - (low + high), 9)  # no float noise (6 - 5.9 = 0.0999...)
+        effect = (f"if the answer scale is {user_number(low)} to {user_number(high)}, each reversed answer counts {rounded_number(abs(shift), 6)} too "
                   f"{'high' if shift > 0 else 'low'}, and each keyed sum's mean by as much for every reversed item in it "
                   f"(their spread, correlations and omega do not change)" if shift else
                   f"the keyed sums would be the same on {user_number(low)} to {user_number(high)}")
@@ -1492,7 +1492,7 @@ def scale_ends_problems(frame: pd.DataFrame, spec: Spec) -> tuple:
             Note(("The model", Command(f" (its 'reversed' statement on line {keying.location.line})"),
                   f" declares answers from {user_number(keying.minimum)} to {user_number(keying.maximum)} for {reversed_items}, but no answer "
                   f"of the items it covers reaches {word_list(unreached, 'or')}: they run from {user_number(low)} to {user_number(high)} in "
-                  f"{len(values)} rows. A reversed answer x counts as {user_number(keying.minimum + keying.maximum)} - x in the "
+                  f"{len(values)} rows. A reversed answer x counts as {rounded_number(keying.minimum + keying.maximum, 6)} - x in the "
                   f"keyed sums; {effect}.")),
             Note(("declare the questionnaire's own lowest and highest answers",
                   Command(" in the 'reversed' statement"), f" (on {user_number(low)} to {user_number(high)} if that is the scale); if the "

@@ -4,7 +4,7 @@ sample size beside its noncentral chi-square approximation, and the methods para
 
 from __future__ import annotations
 
-from cfa_tool.numbers import count_text
+from cfa_tool.numbers import count_text, discrepancy_text
 from cfa_tool.note_parts import Text
 from cfa_tool.reporting.numbers import num, unit
 from cfa_tool.reporting.paragraph import nested_power_paragraph
@@ -46,7 +46,7 @@ def nested_parts(results) -> tuple[list[Text], tuple[ReportTable, ...], str | No
     note = (f"Power: share of the replications in which both models converged whose chi-square difference ({df} df) "
             f"had p < {unit(first.alpha, 2)}; Monte Carlo SE: sqrt(p (1 - p) / R) over those replications. Approximate "
             f"power: the noncentral chi-square with {df} df and noncentrality N times the nested model's minimum "
-            f"discrepancy at the population, {num(nested.discrepancy, 4)} (Satorra & Saris 1985), which assumes "
+            f"discrepancy at the population, {discrepancy_text(0.0 if holds else nested.discrepancy)} (Satorra & Saris 1985), which assumes "
             f"normal data and a discrepancy small beside the sampling error."
             + (" The nested model holds in this population (discrepancy 0), so the power column is the share of "
                "false rejections (nominal alpha)." if holds else ""))

@@ -18,7 +18,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.numbers import user_number, count_text
+from cfa_tool.numbers import discrepancy_text, user_number, count_text
 from cfa_tool.method import (MISSING_AT_RANDOM, MISSING_COMPLETELY_AT_RANDOM, DecisionRule, DifferenceMethod, Information, FitTest, Items, MissingData,
                               WeightKind, Weighting)
 from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, design_cautions, design_doubts, failure_words
@@ -1013,17 +1013,18 @@ def answer_coding_sentence(data) -> str:
                                 said(recoded, "Answers recorded as numbers were coded"), joined) if s)
 
 
-def joined_sentence(data) -> str:
+def joined_sentence(data, where: str = "") -> str:
     """Which answer categories of which ordinal items were analysed as one (the model's 'join answers' statements,
     data.joined_answers), e.g. 'Answers 0 and 1 of item3 and item4 were analysed as one category (coded 1), for
-    categories chosen by few respondents.'; empty without joins."""
+    categories chosen by few respondents.'; empty without joins.  ``where``: the analyses it holds for beside the
+    fit's (', in the fit and in every resample' for the bootstrap's methods lines)."""
     record = getattr(data, "joined_answers", ())
     if not record:
         return ""
     parts = [f"answers {_list([user_number(v) for v in values])} of {_names(items)} (coded {user_number(into)})"
              for items, values, into in record]
     return (f"Neighbouring answer categories of ordinal items were analysed as one category: {'; '.join(parts)}; "
-            f"the thresholds and polychoric correlations are those of the joined categories.")
+            f"the thresholds and polychoric correlations are those of the joined categories{where}.")
 
 
 def _matrix_sentence(result, subject: str = "The model was") -> str:
@@ -2604,4 +2605,4 @@ def nested_power_paragraph(results) -> str:
             f"at alpha = {unit(first.alpha, 2)} (Steiger, Shapiro & Browne, 1985). Of the data sets in which both "
             f"models converged, the share that rejected the nested model was {powers}. The noncentral chi-square approximation "
             f"(Satorra & Saris, 1985), with noncentrality N times the nested model's minimum discrepancy at the "
-            f"population ({num(nested.discrepancy, 4)}), gives {approximate}.")
+            f"population ({discrepancy_text(nested.discrepancy)}), gives {approximate}.")

@@ -7,7 +7,7 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
-from cfa_tool.numbers import count_text, counted, cut_list, user_number
+from cfa_tool.numbers import count_text, counted, cut_list, discrepancy_text, user_number
 from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATED, ProblemKind, design_cautions, design_doubts, failure_words,
                                                not_admissible_sentence)
@@ -25,7 +25,7 @@ from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, cfi_not_defined_sentence, compared_cfi_not_defined,
                                           comparison_paragraph, set_apart_words, group_labels, design_sentence,
                                           mcar_score_tests, reversed_across_groups, reversed_loadings,
-                                          invariance_paragraph, replication_paragraph)
+                                          invariance_paragraph, joined_sentence, replication_paragraph)
 from cfa_tool.reporting.numbers import (est_num, est_unit, fit_index_text, guides_text, index_text, missing, needed_decimals, num,
                                         p_phrase, p_value, short, signed, signed_num, unit, word_list)
 from cfa_tool.language.spec import equality_words
@@ -1256,6 +1256,9 @@ def bootstrap_report(boot) -> Report:
     lines = [opening]
     if ordinal:
         lines.append(ORDINAL_BOOTSTRAP.format(estimator=result.method.weighting.phrase))
+        joined = joined_sentence(result.data, ", in the fit and in every resample")  # as fit's paragraph names them
+        if joined:
+            lines.append(joined)
     if boot.lacked:
         lines.append(_lacked_sentence(boot))
     if _design_lines(result):
@@ -1651,7 +1654,7 @@ def nested_power_report(result) -> Report:
     df, discrepancy = nested.df_difference, nested.discrepancy
     rows = [["Nested model", nested.name, nested.name],
             ["Degrees of freedom of the difference", str(df), df],
-            ["Minimum discrepancy of the nested model at the population (F)", num(discrepancy, 4), discrepancy],
+            ["Minimum discrepancy of the nested model at the population (F)", discrepancy_text(discrepancy), discrepancy],
             ["Significance level", short(result.alpha), result.alpha]]
     effective = result.effective_n  # a planned cluster sample: the N asked about is worth N / design effect rows
     if result.power is not None:

@@ -801,7 +801,7 @@ def _refuse_numbers_with_slips(frame: pd.DataFrame, taken: tuple[str, ...], sour
         row, cell = next((r, v) for r, v in zip(row_numbers(column), values) if isinstance(v, str) and v.strip()
                          and strict_number(v.strip()) is None)
         raise DataError(stray_word_message(source, str(name), clipped(cell.strip(), 40),
-                                           cell_words(column, str(name), row), cell.strip(), given)
+                                           cell_words(column, str(name), row), cell.strip(), given, values)
                         + f"; or leave the column out by naming the items with {Option.ITEMS}")
 
 
@@ -831,7 +831,7 @@ def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str
             shown = clipped(cell.strip(), 40)
             if stray_text(values, few=False):  # text among numbers, as fit reads it (data.moments.stray_words)
                 raise DataError(stray_word_message(source, name, shown, cell_words(column, name, row), cell.strip(),
-                                                   given))
+                                                   given, values))
             statement = suggested_statement(values)
             where = (f"{source}: column '{printable(name)}' holds words ('{shown}' in {row_of(column, row)}), "
                      f"and explore analyses numbers")

@@ -1873,7 +1873,8 @@ def _coded_otherwise(data, model, rows: np.ndarray, source: str, ordinal: bool,
     outside = None if ordinal else _outside_fitted_ranges(data, model.items, rows, source, declared or {})
     if outside:
         found.append((ProblemKind.ANSWERS_BEYOND_FITTED, outside, RECODE_ADVICE))
-    unused = _end_answers_unused(thresholds, rows, source) if thresholds is not None else None
+    unused = _end_answers_unused(model.items, _end_shares(thresholds) if thresholds is not None else
+                                 _continuous_end_shares(model, data), rows, source)
     if unused:
         found.append((ProblemKind.END_ANSWERS_UNUSED, unused, RECODE_ADVICE))
     against = _items_against_loadings(model, rows, source)
@@ -1887,28 +1888,68 @@ def _coded_otherwise(data, model, rows: np.ndarray, source: str, ordinal: bool,
 END_ANSWERS_EXPECTED = 5.0
 
 
-def _end_answers_unused(model, rows: np.ndarray, source: str) -> str | None:
-    """The caution for ordinal items whose lowest or highest answer, which the earlier fit expects in at least
-    END_ANSWERS_EXPECTED of the rows scored, is given in none: a file whose answers are coded one higher, its top
-    answer then read as a code of no answer, scores every row on the wrong categories without another sign (new-user
-    trial s26).  Each answer's share is the fit's marginal probability of its latent response beyond the threshold,
-    P(y* <= tau_1) = Phi((tau_1 - mu) / sigma) with mu = nu + L alpha and sigma^2 the implied variance (the
-    latent-response formulation, Muthen 1984); ``model``: the fit's OrdinalScoringModel."""
+def _end_shares(model) -> list[tuple[int, tuple[tuple[str, float, float], ...]]]:
+    """Each ordinal item's end answers with the share of answers the earlier fit expects of them: (item's index,
+    (('lowest', its code, share), ('highest', its code, share))).  Each share is the fit's marginal probability of its
+    latent response beyond the end threshold, P(y* <= tau_1) = Phi((tau_1 - mu) / sigma) with mu = nu + L alpha and
+    sigma^2 the implied variance (the latent-response formulation, Muthen 1984); ``model``: the fit's
+    OrdinalScoringModel."""
     from cfa_tool.numerics.distributions import norm_cdf
 
     base = model.base
     mean = base.intercepts + base.loadings @ base.factor_means
     sd = np.sqrt(np.diag(base.implied_covariance))
-    found = []
+    out = []
     for j, (tau, cats) in enumerate(zip(model.thresholds, model.categories)):
-        column = rows[:, j][~np.isnan(rows[:, j])]
-        if len(cats) < 2 or not len(column):
+        if len(cats) >= 2:
+            out.append((j, (("lowest", cats[0], float(norm_cdf((tau[0] - mean[j]) / sd[j]))),
+                            ("highest", cats[-1], float(1 - norm_cdf((tau[-1] - mean[j]) / sd[j]))))))
+    return out
+
+
+def _continuous_end_shares(model, data) -> list[tuple[int, tuple[tuple[str, float, float], ...]]]:
+    """The same for items of a scale of whole-number answers analysed as continuous: their end answers are the lowest
+    and highest of the fitted rows (``data.ranges``, whole numbers at most :data:`SCALE_POINTS_AT_MOST` - 1 apart),
+    and each share is the fitted normal distribution's beyond half a step from the end, Phi((lowest + 1/2 - mu) /
+    sigma), with mu and sigma^2 the item's implied mean and variance (``model``: the fit's ScoringModel): the ordinal
+    rule with thresholds midway between neighbouring answers, an approximation of this tool's (s26: a file coded 1
+    higher, or 5 of a 1-5 scale, given with --missing-codes, was scored without a word for continuous items)."""
+    from cfa_tool.numerics.distributions import norm_cdf
+
+    ranges = dict(zip(data.variables, data.ranges)) if data.ranges else {}
+    mean = model.intercepts + model.loadings @ model.factor_means
+    sd = np.sqrt(np.diag(model.implied_covariance))
+    out = []
+    for j, item in enumerate(model.items):
+        low, high = (float(v) for v in ranges.get(item, (np.nan, np.nan)))
+        if not (np.isfinite(low) and np.isfinite(high) and low.is_integer() and high.is_integer()
+                and 0 < high - low < SCALE_POINTS_AT_MOST and sd[j] > 0):
             continue
-        low, high = float(norm_cdf((tau[0] - mean[j]) / sd[j])), float(1 - norm_cdf((tau[-1] - mean[j]) / sd[j]))
-        for end, share, category in (("lowest", low, cats[0]), ("highest", high, cats[-1])):
+        out.append((j, (("lowest", low, float(norm_cdf((low + 0.5 - mean[j]) / sd[j]))),
+                        ("highest", high, float(1 - norm_cdf((high - 0.5 - mean[j]) / sd[j]))))))
+    return out
+
+
+#: the most points of an answer scale whose end answers the scoring of continuous items checks (0 to 10)
+SCALE_POINTS_AT_MOST = 11
+
+
+def _end_answers_unused(items, shares, rows: np.ndarray, source: str) -> str | None:
+    """The caution for items whose lowest or highest answer, which the earlier fit expects in at least
+    END_ANSWERS_EXPECTED of the rows scored, is given in none: a file whose answers are coded one higher, its top
+    answer then read as a code of no answer, scores every row on the wrong categories without another sign (new-user
+    trial s26).  ``items``: the columns of ``rows``; ``shares``: each item's end answers and their expected shares, of ordinal items
+    (:func:`_end_shares`) or of items of few answers analysed as continuous (:func:`_continuous_end_shares`), one
+    rule for both."""
+    found = []
+    for j, ends in shares:
+        column = rows[:, j][~np.isnan(rows[:, j])]
+        if not len(column) or (column != np.round(column)).any():  # answers on a finer scale have no end answers
+            continue
+        for end, category, share in ends:
             expected = share * len(column)
             if expected >= END_ANSWERS_EXPECTED and not (column == category).any():
-                found.append((base.items[j], end, category, expected, len(column)))
+                found.append((items[j], end, category, expected, len(column)))
     if not found:
         return None
     listed = cut_list(found, 5, lambda f: f"'{printable(f[0])}' never has its {f[1]} answer {user_number(f[2])}, which "

@@ -20,7 +20,7 @@ from enum import Enum
 
 import numpy as np
 
-from cfa_tool.numbers import rounded_number, user_number
+from cfa_tool.numbers import discrepancy_text, user_number
 from cfa_tool import options as check
 from cfa_tool.assessment.admissibility import counted_problems, replicated_problems
 from cfa_tool.data.moments import SampleMoments
@@ -305,7 +305,7 @@ def _population_steps(population: GroupPopulation, ladder, sizes: tuple[int, ...
         out.append((df, sum(sizes) * max(float(est.value), 0.0), float(est.value) < NESTING_TOLERANCE))
     if not out[0][2]:
         raise ModelError(f"the configural model does not reproduce the population (minimum discrepancy "
-                         f"{rounded_number(fits[0][0].value)}): a value given for one group is fixed in a way the model of that "
+                         f"{discrepancy_text(fits[0][0].value)}): a value given for one group is fixed in a way the model of that "
                          f"group cannot take; check the 'in group' statements")
     return out
 

@@ -13,7 +13,7 @@ from typing import Callable
 
 import numpy as np
 
-from cfa_tool.numbers import count_text, counted, cut_list, rounded_number, word_list
+from cfa_tool.numbers import count_text, counted, cut_list, discrepancy_text, rounded_number, word_list
 from cfa_tool.options import Option
 from cfa_tool.numerics import distributions as dist
 
@@ -729,5 +729,5 @@ def is_nested(restricted: FitResult, general_spec: Spec, general: FitResult) -> 
         return False, "the nesting check did not converge", None
     if est.value > NESTING_TOLERANCE:
         return False, (f"the second model cannot reproduce the first model's implied covariances "
-                       f"(discrepancy {rounded_number(est.value, 2)}), so the first is not a special case of it"), None
+                       f"(discrepancy {discrepancy_text(est.value)}), so the first is not a special case of it"), None
     return True, "", est

@@ -17,7 +17,8 @@ full-information ML, which the means of the scalar step need in any case.
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
+import re
+from dataclasses import dataclass, replace
 from pathlib import Path
 
 import numpy as np
@@ -28,6 +29,7 @@ from cfa_tool.errors import DataError, ModelError, OptionError, shown_path
 from cfa_tool.language.names import written_name
 from cfa_tool.language.parser import parse_model
 from cfa_tool.language.spec import Spec
+from cfa_tool.note_parts import Command, Note
 from cfa_tool.method import DecisionRule, DifferenceMethod, MissingData
 from cfa_tool.numbers import count_text, cut_list, number
 from cfa_tool.options import Option, own_keywords
@@ -127,6 +129,100 @@ def step_text(spec: Spec, layout: OccasionLayout, level: str) -> str:
         for item in spec.observed_names:
             lines.append("equal " + ", ".join(f"variance({w(layout.name(item, k))})" for k in range(n)))
     return "\n".join(lines) + "\n"
+
+
+class _OccasionWords:
+    """The fits' words over occasions: each name of the model of every occasion as the report names occasions
+    ('vig2 at occasion 1', never the side-by-side column 'vig2_1', which no file of long data holds), and advice that
+    this route takes.  The ladder writes every step's model from the one-occasion model's factors, items, 'covary' and
+    'uncorrelated' statements, each factor's first item its marker at every occasion, and takes no other statement
+    and no iteration limit (overtime s26: a step's message advised 'scale latent by variance', which the route
+    refuses): any advice that names a statement or option is replaced by what works here."""
+
+    def __init__(self, spec: Spec, layout: OccasionLayout) -> None:
+        self.spec, self.layout = spec, layout
+        wide = {layout.name(n, k): (n, layout.occasions[k]) for n in (*spec.observed_names, *spec.factor_names)
+                for k in range(len(layout.occasions))}
+        self.wide = wide
+        alternatives = "|".join(re.escape(n) for n in sorted(wide, key=len, reverse=True))
+        self._pattern = re.compile(rf"(?<![\w.])('?)({alternatives})\1(?![\w])") if wide else None
+
+    def named(self, text: str) -> str:
+        """``text`` with each side-by-side name as its one-occasion name at its occasion ('vigour' at occasion 1)."""
+        if self._pattern is None:
+            return text
+        return self._pattern.sub(lambda m: f"{m.group(1)}{self.wide[m.group(2)][0]}{m.group(1)} at occasion "
+                                           f"{self.wide[m.group(2)][1]}", text)
+
+    def said(self, text):
+        """A line (words or a Note) in the words of this route: names by occasion; a Note's commands kept only when
+        they are the statements the one-occasion model may hold ('covary', 'uncorrelated')."""
+        if isinstance(text, str):
+            return self.named(text)
+        parts = tuple(self.named(p) if isinstance(p, str) else
+                      replace(p, text=self.named(p.text), words=self.named(p.words)) if isinstance(p, Command) else p
+                      for p in text.parts)
+        return Note(parts)
+
+    @staticmethod
+    def takes(advice) -> bool:
+        """Whether ``advice`` names nothing this route refuses: no command but the one-occasion model's 'covary' and
+        'uncorrelated' statements."""
+        return not isinstance(advice, Note) or all(
+            not isinstance(p, Command) or p.text.lstrip(" (").startswith(("'covary ", "'uncorrelated "))
+            for p in advice.parts)
+
+    def marker_advice(self, wide_factor: str):
+        """What works over occasions for a factor whose marker hardly measures it: another item first in the
+        one-occasion model, which makes it the marker at every occasion."""
+        factor = self.wide.get(wide_factor, (wide_factor, ""))[0]
+        first = next((f.indicators[0].text for f in self.spec.factors if f.name.text == factor), "")
+        return (f"give '{factor}' the unit of an item that measures it: list that item first among the factor's items "
+                f"in the one-occasion model, which makes it the marker at every occasion; and check whether {first} "
+                f"belongs to '{factor}' at all.")
+
+    GENERAL = ("check that every factor is identified (three or more items with clear loadings, or two items and a "
+               "correlation with another factor) and that each factor's first item, its marker at every occasion, "
+               "measures it clearly (list another item first otherwise); or fit the one-occasion model to each "
+               "occasion's rows alone, where the model file's other statements are available to find the cause.")
+
+    def problem(self, p):
+        """A problem of a step's solution in this route's words, its advice one this route takes."""
+        from cfa_tool.assessment.admissibility import ProblemKind
+
+        advice = p.advice
+        if not self.takes(advice):
+            advice = (self.marker_advice(_loading_factor(p.parameters[0])) if p.kind is ProblemKind.WEAK_MARKER
+                      and p.parameters else self.GENERAL)
+        return replace(p, explanation=self.said(p.explanation), advice=self.said(advice))
+
+    def message(self, text):
+        """A search's message (assessment.convergence.nonconvergence_message) in this route's words: what happened,
+        then what works here in place of advice this route refuses."""
+        from cfa_tool.assessment.convergence import WHAT_TO_TRY
+
+        parts = (text,) if isinstance(text, str) else text.parts
+        at = next((k for k, p in enumerate(parts) if isinstance(p, str) and WHAT_TO_TRY in p), None)
+        if at is None:
+            return self.said(text)
+        head, _, tail = parts[at].partition(WHAT_TO_TRY)
+        advice = Note((tail, *parts[at + 1:]))
+        if self.takes(advice):
+            return self.said(text)
+        return self.said(Note((*parts[:at], head + WHAT_TO_TRY + self.GENERAL)))
+
+    def result(self, result):
+        """A step's fit in this route's words (its problems and message; the parameter labels stay the keys of the
+        model of every occasion, as its JSON gives that model)."""
+        return replace(result, problems=tuple(self.problem(p) for p in result.problems),
+                       message=self.message(result.message) if not result.converged else result.message)
+
+
+def _loading_factor(label: str) -> str:
+    """The factor of a loading's label as the parameter table writes it ('loading(vigour_1, vig1_1)')."""
+    from cfa_tool.language.names import read_reference
+
+    return read_reference(label)[1][0]
 
 
 def _chosen(id_column: str, occasion_column: str):
@@ -441,6 +537,9 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
     from cfa_tool.workflows.compare import compare
 
     found = compare(specs, wide, test=test, missing=MissingData.FULL_INFORMATION.value, id_column=id_column)
+    words = _OccasionWords(spec, layout)
+    found = replace(found, results=tuple(words.result(r) for r in found.results),
+                    notes=tuple(words.said(n) for n in found.notes))
     steps: list[InvarianceStep] = []
     for k, ((level, _, _), result) in enumerate(zip(LEVELS, found.results)):
         previous = steps[-1] if steps else None

@@ -19,7 +19,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from cfa_tool.numbers import rounded_number
+from cfa_tool.numbers import discrepancy_text
 from cfa_tool.data.polychoric import ordinal_moments
 from cfa_tool.assessment.admissibility import ProblemKind, estimation_failure
 from cfa_tool.errors import NotIdentified, OptionError, UnboundedSolution, estimation_of
@@ -178,7 +178,7 @@ def ordinal_difference_test(restricted, general, restricted_result, general_resu
         return None, "the nesting check did not converge"
     if opt.value > NESTING_TOLERANCE:
         return None, (f"the second model cannot reproduce the first model's implied thresholds and correlations "
-                      f"(discrepancy {rounded_number(opt.value, 2)}), so the first is not a special case of it")
+                      f"(discrepancy {discrepancy_text(opt.value)}), so the first is not a special case of it")
     D_g, *_ = target.stacked(opt.theta)
     back = np.empty_like(order)
     back[order] = np.arange(len(order))  # general's order -> restricted's

@@ -183,9 +183,12 @@ def model_degrees_of_freedom(spec: Spec) -> tuple[int, int]:
     p(p + 1)/2 - q (Joreskog 1969).  With ordinal items a statement on a residual variance is an error at its line,
     as the ordinal fit would refuse it (:func:`cfa_tool.pipeline.ordinal.refuse_set_residual_variances`): a fixed
     one would add a degree of freedom to a model that is never fitted."""
+    from cfa_tool.data.joined_answers import refuse_joins_without_answers
     from cfa_tool.model.parameters import build_parameter_table, no_mean_statements, one_group_only
     from cfa_tool.pipeline.ordinal import refuse_set_residual_variances
 
+    refuse_joins_without_answers(spec, "power", "plans from the model alone, with no answers to join (the degrees "
+                                                "of freedom it tests are the same without the statement)")
     one_group_only(spec, "the power of the RMSEA test is computed for one group's model")
     no_mean_statements(spec, "the RMSEA test planned here is of the covariance structure, which has no intercepts "
                              "or factor means")

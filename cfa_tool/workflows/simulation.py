@@ -665,11 +665,11 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
     (:func:`cfa_tool.pipeline.ordinal.refuse_set_residual_variances`, the rule of the ordinal fit)."""
     from dataclasses import replace
 
-    if spec.joins:  # drawn answers are cut into the categories asked for: a join of the data has nothing to join
-        join = spec.joins[0]
-        raise ModelError(f"'join answers' joins categories of the answers read from a data file, and {command} draws "
-                         f"its answers in the categories it is given; remove the statement (give the number of "
-                         f"categories the joined items have)", join.location, spec.source_line(join.location))
+    from cfa_tool.data.joined_answers import refuse_joins_without_answers
+
+    # drawn answers are cut into the categories asked for: a join of the data has nothing to join
+    refuse_joins_without_answers(spec, command, "draws its answers in the categories it is given (give the number of "
+                                                "categories the joined items have)")
     declared = [x.text for x in spec.ordinal]
     coded = answer_categories(spec)
     scaled = {x: codes for x, codes in scale_answers(spec).items() if x not in coded}

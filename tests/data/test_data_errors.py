@@ -58,7 +58,7 @@ def test_constant_column():
 
 
 def test_fewer_rows_than_variables():
-    with pytest.raises(DataError, match="3 complete rows for 3 variables"):
+    with pytest.raises(DataError, match="the 3 rows are too few for 3 variables"):
         cfa_tool.fit(MODEL, _frame(3))
 
 

@@ -49,11 +49,32 @@ def test_text_dates_compare_as_dates_only_when_written_year_first(tmp_path, ride
     iso.to_csv(tmp_path / "iso.csv", index=False)
     assert (cfa_tool.check(MODEL, tmp_path / "iso.csv", keep=["ride_date >= 2026-03-01"]).rows
             == _on_or_after(rides, datetime.date(2026, 3, 1)))
-    # 07/03/2026 is the 7th of March or the 3rd of July: the file does not say, and the message says what to do
-    rides.assign(ride_date=[d.strftime("%d/%m/%Y") for d in rides["ride_date"]]).to_csv(tmp_path / "dmy.csv", index=False)
+    # 07/03/2026 is the 7th of March or the 3rd of July: where no cell says which (every day at most 12), the file
+    # does not say, and the message says what to do
+    early = rides[[d.day <= 12 for d in rides["ride_date"]]]
+    early.assign(ride_date=[d.strftime("%d/%m/%Y") for d in early["ride_date"]]).to_csv(tmp_path / "dmy.csv",
+                                                                                         index=False)
     with pytest.raises(OptionError, match=r"holds dates written as text in another form than YYYY-MM-DD .*write them "
                                           r"as YYYY-MM-DD"):
         cfa_tool.check(MODEL, tmp_path / "dmy.csv", keep=["ride_date >= 2026-03-01"])
+
+
+@pytest.mark.parametrize("form, value", [("%d.%m.%Y", "01.03.2026"), ("%d/%m/%Y", "2026-03-01"),
+                                         ("%m/%d/%Y", "03/01/2026")])
+def test_text_dates_whose_cells_say_the_order_compare_as_dates(tmp_path, rides, form, value):
+    # new-user trial s26 09: 'visit >= 01.03.2026' of dates written 26.02.2026 was refused; a day above 12 (26) says
+    # which number is the day, and no month is above 12, so the order is not in doubt.  Check value: the rows on or
+    # after March 1 by Python's own datetime.date comparisons
+    rides.assign(ride_date=[d.strftime(form) for d in rides["ride_date"]]).to_csv(tmp_path / "d.csv", index=False)
+    result = cfa_tool.check(MODEL, tmp_path / "d.csv", keep=[f"ride_date >= {value}"])
+    assert result.rows == _on_or_after(rides, datetime.date(2026, 3, 1))
+
+
+def test_a_date_in_another_form_than_the_columns_names_both_forms(tmp_path, rides):
+    rides.assign(ride_date=[d.strftime("%d.%m.%Y") for d in rides["ride_date"]]).to_csv(tmp_path / "d.csv",
+                                                                                        index=False)
+    with pytest.raises(OptionError, match=r"written as YYYY-MM-DD .*or as its cells write them \(day\.month\.year\)"):
+        cfa_tool.check(MODEL, tmp_path / "d.csv", keep=["ride_date >= 03/01/2026"])
 
 
 def test_a_date_column_of_a_workbook_is_filtered_by_date(tmp_path, rides):

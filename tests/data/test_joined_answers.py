@@ -147,3 +147,21 @@ def test_a_code_some_items_hold_is_joined_where_held():
     frame.loc[frame.q3 == 1, "q3"] = 2
     joined, _ = join_answers(parse_model(MODEL + "join answers 1, 2 as 2 for q1, q3\n"), frame, "answers.csv")
     assert joined.attrs[JOINED][1].recoded == 0 and not (joined.q1 == 1).any()
+
+
+def test_power_refuses_a_join_it_cannot_apply():
+    # analytic power plans from the model alone: a join has no answers to apply to, said at its line as
+    # power-simulation says it (s26: power ignored the statement without a word)
+    from cfa_tool.workflows.power import model_degrees_of_freedom
+
+    spec = parse_model(MODEL + "ordinal q1..q4\n" + JOIN, "m.cfa")
+    with pytest.raises(ModelError, match="'join answers' joins categories .* power plans from the model alone"):
+        model_degrees_of_freedom(spec)
+
+
+def test_the_bootstraps_methods_lines_name_the_joins():
+    from cfa_tool.reporting.reports import report_of
+
+    boot = cfa_tool.bootstrap(MODEL + "ordinal q1..q4\n" + JOIN, _answers(), replications=20, seed=3)
+    lines = " ".join(str(line) for line in report_of(boot).lines)
+    assert "answers 1 and 2 of q1 and q2 (coded 2)" in lines and "in every resample" in lines, lines

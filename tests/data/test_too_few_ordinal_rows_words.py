@@ -44,3 +44,23 @@ def test_listwise_says_how_many_answered_every_item(tmp_path):
         cfa_tool.fit(MODEL, str(path), keep=["clinic = C1"], missing="listwise")
     said = str(refused.value)
     assert "of the 9 rows kept by " in said and ", 8 answered every item, which are too few for 10 items" in said
+
+
+def test_continuous_rows_too_few_name_the_filter_by_the_same_words():
+    # the same wording (data.kept_rows.too_few_rows) for items analysed as continuous: complete rows (listwise) and
+    # rows with any answer (full-information ML); and explore, whose moments are read by the same rule
+    import cfa_tool
+    from cfa_tool.errors import DataError
+
+    rng = np.random.default_rng(4)
+    frame = pd.DataFrame(rng.normal(size=(40, 4)), columns=["a", "b", "c", "d"])
+    frame["site"] = ["x"] * 4 + ["y"] * 36
+    model = "factor f: a, b, c, d\n"
+    for missing in ("listwise", "full-information"):
+        with pytest.raises(DataError) as refused:
+            cfa_tool.fit(model, frame, keep=["site = x"], missing=missing)
+        said = str(refused.value)
+        assert "the 4 rows kept by " in said and "site" in said and "are too few for 4 variables" in said, said
+        assert "(5 or more" in said and "wider row filter" in said
+    with pytest.raises(DataError, match=r"the 4 rows kept by .*site.* are too few for 4 variables"):
+        cfa_tool.explore(frame, items=["a", "b", "c", "d"], keep=["site = x"])

@@ -87,3 +87,38 @@ def test_a_file_on_the_fits_categories_has_no_such_caution(fitted):
     fit, _ = fitted
     scored = fit.scores(_answers(150, 14))
     assert not any(p.kind is ProblemKind.END_ANSWERS_UNUSED for p in scored.fit.problems)
+
+
+@pytest.fixture(scope="module")
+def fitted_continuous():
+    first = _answers(400, 12)
+    return cfa_tool.fit("factor f: q1, q2, q3, q4, q5\n", first), first
+
+
+def test_continuous_items_get_the_same_caution_once(fitted_continuous):
+    # items of a 0-3 scale analysed as continuous, scored on a file coded 1 higher with its top answer 4 given as a
+    # code of no answer (new-user trial s26): 1 to 3 lie inside the fitted range, so only the unused end shows it
+    fit, first = fitted_continuous
+    shifted = _answers(150, 13) + 1
+    scored = fit.scores(shifted, missing_codes=[4])
+    unused = [p for p in scored.fit.problems if p.kind is ProblemKind.END_ANSWERS_UNUSED]
+    assert len(unused) == 1 and scored.fit.problems[0] is unused[0]
+    said = str(unused[0].explanation)
+    for x in ITEMS:
+        answered = int((shifted[x] != 4).sum())
+        # the fitted normal's share below 0.5 (this tool's approximation of the share of the answer 0), checked
+        # loosely against the fit's file's own share of that answer (pandas): the same order of rows
+        shown = re.search(rf"'{x}' never has its lowest answer 0, which the fit expects in about (\d+) of its "
+                          rf"{answered} answers", said)
+        expected = (first[x] == 0).mean() * answered
+        assert shown and abs(int(shown.group(1)) - expected) <= 0.35 * expected, (x, expected, said)
+
+
+def test_a_top_answer_given_as_no_answer_is_a_caution_for_continuous_items(fitted_continuous):
+    # the same coding as the fit's, its top answer 3 given with --missing-codes: the highest answer never given
+    fit, _ = fitted_continuous
+    scored = fit.scores(_answers(150, 14), missing_codes=[3])
+    unused = [p for p in scored.fit.problems if p.kind is ProblemKind.END_ANSWERS_UNUSED]
+    assert unused and "never has its highest answer 3" in str(unused[0].explanation)
+    plain = fit.scores(_answers(150, 14))
+    assert not any(p.kind is ProblemKind.END_ANSWERS_UNUSED for p in plain.fit.problems)
