@@ -58,6 +58,15 @@ def target_fit(hs_data):
     return cfa_tool.fit(TARGET, hs_data)
 
 
+SIDE = "factor speed: x7, x8, x9\nexploratory factors visual, textual from x1, x4, x2, x3, x5, x6\n"
+
+
+@pytest.fixture(scope="module")
+def side_fit(hs_data):
+    """A geomin block of two factors beside a confirmatory factor."""
+    return cfa_tool.fit(SIDE, hs_data)
+
+
 def test_block_over_all_items_is_the_exploratory_ml_solution(hs_data, geomin_fit):
     from sklearn.decomposition import FactorAnalysis
 
@@ -301,14 +310,15 @@ def test_names_stay_with_their_anchor_items(hs_data, rotation):
     of Holzinger & Swineford 1939's tests) head the columns of those abilities' items, whatever the order of the
     factors' sizes, and each anchor loads positively."""
     text = f"exploratory factors visual, textual, speed from x1, x4, x7, x2, x3, x5, x6, x8, x9 rotated by {rotation}\n"
-    block = cfa_tool.fit(text, hs_data).exploratory[0]
+    fit = cfa_tool.fit(text, hs_data)
+    block = fit.exploratory[0]
     assert block.factors == ("visual", "textual", "speed")
     home = {item: block.factors[int(np.argmax(np.abs(block.standardized[i])))] for i, item in enumerate(block.items)}
     assert home == {**dict.fromkeys(("x1", "x2", "x3"), "visual"), **dict.fromkeys(("x4", "x5", "x6"), "textual"),
                     **dict.fromkeys(("x7", "x8", "x9"), "speed")}
     assert np.all(block.standardized[[0, 1, 2], [0, 1, 2]] > 0.5)
     assert block.to_dict()["names_by"] == "anchor-items"
-    assert "the k-th name (visual, textual, speed)" in " ".join(cfa_tool.fit(text, hs_data).summary().split())
+    assert "the k-th name (visual, textual, speed)" in " ".join(fit.summary().split())
 
 
 def _two_blocks_data() -> "pd.DataFrame":
@@ -328,13 +338,17 @@ TWO_BLOCKS = ("exploratory factors a1, a2 from y1, y4, y2, y3, y5\n"
               "exploratory factors b1, b2 from y6, y9, y7, y8, y10 rotated by quartimin\n")
 
 
-def test_correlations_between_two_blocks_are_reported_with_delta_method_errors():
+@pytest.fixture(scope="module")
+def two_blocks_fit():
+    return cfa_tool.fit(TWO_BLOCKS, _two_blocks_data())
+
+
+def test_correlations_between_two_blocks_are_reported_with_delta_method_errors(two_blocks_fit):
     """Block a's rotated factors with block b's: cov(a*, b*) = Ma^-1 cov(a, b) Mb^-1' (Asparouhov & Muthén 2009),
     recomputed here from the fitted matrices with each block rotated afresh (explore's rotation at the estimates,
     iterated to convergence again from there at perturbed ones: ``_warm_rotation``), and its SEs by central
     differences of that whole computation (step 1e-4) against the reported delta method."""
-    data = _two_blocks_data()
-    fit = cfa_tool.fit(TWO_BLOCKS, data)
+    fit = two_blocks_fit
     a, b = fit.exploratory
     assert a.other_factors == ("b1", "b2") and b.other_factors == ("a1", "a2")
     spec = parse_model(TWO_BLOCKS)
@@ -404,11 +418,10 @@ def test_an_orthogonal_block_reports_its_correlations_with_the_other_factors(hs_
         assert "Correlations of the rotated factors visual, textual" in report and value in report
 
 
-def test_diagram_draws_each_correlation_between_two_blocks_once():
+def test_diagram_draws_each_correlation_between_two_blocks_once(two_blocks_fit):
     from cfa_tool.reporting.diagram import _block_rows
 
-    fit = cfa_tool.fit(TWO_BLOCKS, _two_blocks_data())
-    pairs = [frozenset(r.variables) for r in _block_rows(fit) if r.kind == "factor_covariance"]
+    pairs = [frozenset(r.variables) for r in _block_rows(two_blocks_fit) if r.kind == "factor_covariance"]
     assert len(pairs) == len(set(pairs)) == 1 + 1 + 4  # within a, within b, a with b
 
 
@@ -435,17 +448,15 @@ def test_reversed_item_of_a_block_and_a_factor_is_checked_against_the_factor_onl
     assert not any("visual" in w or "speed" in w for w in fit.warnings)
 
 
-def test_methods_paragraph_counts_each_factors_items_and_a_one_factor_block_is_not_rotated(hs_data):
+def test_methods_paragraph_counts_each_factors_items_and_a_one_factor_block_is_not_rotated(hs_data, side_fit):
     """Three items of 'speed' and six of the block (the model file's own counts); a one-factor block has nothing to
     rotate, and its loadings are those of the same factor fitted as a confirmatory factor with variance 1."""
     from cfa_tool.reporting.paragraph import methods_paragraph
     from cfa_tool.reporting.fit_document import fit_report
     from cfa_tool.reporting.text_formats import report_markdown
 
-    side = cfa_tool.fit("factor speed: x7, x8, x9\nexploratory factors visual, textual from x1, x4, x2, x3, x5, x6\n",
-                        hs_data)
     assert ("three indicators of one factor (speed) and six indicators of two exploratory factors (visual and textual)"
-            in methods_paragraph(side))
+            in methods_paragraph(side_fit))
     one = cfa_tool.fit("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nexploratory factors speed from x7..x9\n",
                        hs_data)
     block = one.exploratory[0]
@@ -458,7 +469,7 @@ def test_methods_paragraph_counts_each_factors_items_and_a_one_factor_block_is_n
     np.testing.assert_allclose(block.standardized[:, 0], [0.570, 0.723, 0.665], atol=2e-3)
 
 
-def test_the_methods_text_names_the_analysis_the_model_is(hs_data, geomin_fit):
+def test_the_methods_text_names_the_analysis_the_model_is(hs_data, geomin_fit, side_fit):
     """A model of one exploratory block alone was called "a confirmatory factor analysis with nine indicators of three
     exploratory factors" (hostile trial s26, 01): it is an exploratory factor analysis, and a block among other parts
     (a confirmatory factor, a residual covariance) makes an exploratory structural equation model (Asparouhov &
@@ -475,7 +486,5 @@ def test_the_methods_text_names_the_analysis_the_model_is(hs_data, geomin_fit):
     with_residuals = cfa_tool.fit(GEOMIN + "covary x2, x3\n", hs_data)
     assert methods_paragraph(with_residuals).startswith(
         "An exploratory structural equation model with nine indicators of three exploratory factors")
-    side = cfa_tool.fit("factor speed: x7, x8, x9\nexploratory factors visual, textual from x1, x4, x2, x3, x5, x6\n",
-                        hs_data)
-    assert methods_paragraph(side).startswith("An exploratory structural equation model with three indicators of one "
-                                              "factor (speed) and six indicators of two exploratory factors")
+    assert methods_paragraph(side_fit).startswith("An exploratory structural equation model with three indicators of "
+                                                  "one factor (speed) and six indicators of two exploratory factors")
