@@ -77,21 +77,32 @@ COMMANDS = {  # the commands whose reports are swept, each on the same decimal-c
     "scores": lambda d, m, o: ["scores", m, "--data", d, "--output", d.with_name("scores.csv")],
     "explore": lambda d, m, o: ["explore", "--data", d, "--replications", 20, "--split", 5],
 }
+ALIGN = {"align": lambda d, m, o: ["align", m, "--data", d, "--group-column", "district", "--trials", 20]}
 
 
-def test_a_table_of_text_in_a_number_column_gives_its_numbers_for_the_files(comma_file):
-    """The neighbours of the case: a table whose number columns (right-aligned) hold a cell that is not a number ('<
-    .001', '[.04, .09]', '17.5 on 24 df') gives the same content as numbers (ReportTable.values), which the CSV file
-    writes in the data file's mark; swept over the reports of every command that reads a data file and fits."""
+@pytest.fixture(scope="module")
+def swept_reports(comma_file) -> dict[str, dict]:
+    """The JSON report of each command of the sweep (COMMANDS, then align), each run once on the decimal-comma file
+    for the module's tests."""
     folder, data = comma_file
     three, one = folder / "three.cfa", folder / "one.cfa"
     three.write_text((resource_dir("models") / "rider_three_factors.cfa").read_text())
     one.write_text((resource_dir("models") / "rider_one_factor.cfa").read_text())
-    text_cells = []
-    for name, argv in COMMANDS.items():
-        saved = folder / f"{name}.json"
+    reports = {}
+    for name, argv in {**COMMANDS, **ALIGN}.items():
+        saved = folder / f"swept_{name}.json"
         _run([*argv(data, three, one), "--json", saved])
-        report = json.loads(saved.read_text())["report"]
+        reports[name] = json.loads(saved.read_text())["report"]
+    return reports
+
+
+def test_a_table_of_text_in_a_number_column_gives_its_numbers_for_the_files(swept_reports):
+    """The neighbours of the case: a table whose number columns (right-aligned) hold a cell that is not a number ('<
+    .001', '[.04, .09]', '17.5 on 24 df') gives the same content as numbers (ReportTable.values), which the CSV file
+    writes in the data file's mark; swept over the reports of every command that reads a data file and fits."""
+    text_cells = []
+    for name in COMMANDS:
+        report = swept_reports[name]
         assert report["csv_convention"]["decimal_mark"] == ","
         tables = report["tables"] + ([report["problem_table"]] if report.get("problem_table") else [])
         assert tables
@@ -108,23 +119,17 @@ def test_a_table_of_text_in_a_number_column_gives_its_numbers_for_the_files(comm
 DECIMAL = re.compile(r"[-\u2212]?\d*\.\d+")
 
 
-def test_no_table_file_holds_numbers_rounded_for_reading(comma_file):
+def test_no_table_file_holds_numbers_rounded_for_reading(comma_file, swept_reports):
     """fixleft s26: explore's loadings, factor correlations and eigenvalues, scores' quality, correlation and
     keyed-sum tables and align's tables of items, groups and its Monte Carlo check had no numbers for the files (ReportTable.values), so their CSV files held the rounded text of
     the printed views, '.82' written ',82': a spreadsheet reads two decimals of a loading, not the loading.  Every
     table with a decimal number in a number column now gives its values; swept over every command of the sweep
-    above, and the files of explore and scores checked against the JSON's figures, in the data file's mark."""
+    above (the same runs: swept_reports), and the files of explore and scores checked against the JSON's figures, in
+    the data file's mark."""
     folder, data = comma_file
-    three, one = folder / "three.cfa", folder / "one.cfa"
-    three.write_text((resource_dir("models") / "rider_three_factors.cfa").read_text())
-    one.write_text((resource_dir("models") / "rider_one_factor.cfa").read_text())
+    three = folder / "three.cfa"
     rounded = []
-    aligned = {"align": lambda d, m, o: ["align", m, "--data", d, "--group-column", "district", "--trials", 20]}
-    for name, argv in {**COMMANDS, **aligned}.items():
-        saved = folder / f"rounded_{name}.json"
-        data.with_name("scores.csv").unlink(missing_ok=True)  # the earlier sweep's scores file, which no run replaces
-        _run([*argv(data, three, one), "--json", saved])
-        report = json.loads(saved.read_text())["report"]
+    for name, report in swept_reports.items():
         rounded += [(name, table["key"]) for table in report["tables"] if table["values"] is None
                     and any(align == "r" and DECIMAL.fullmatch(cell.strip())
                             for row in table["rows"] for cell, align in zip(row, table["align"]))]

@@ -10,7 +10,10 @@
   rotated loadings of the exploratory solution rotated to the same target (explore's rotation).
 * Standard errors of rotated loadings and factor correlations (implicit differentiation of the
   rotation's conditions) agree with a delta method written here from finite differences of the whole
-  rotation rerun from scratch at perturbed estimates.
+  rotation rerun at perturbed estimates: the gradient projection iterated to convergence again at each
+  perturbed estimate, started from the rotation found at the estimates (with all its random starts) - the
+  same local optimum a rerun with random starts returns there, without searching for it 2 x (number of
+  parameters) times over.
 * A block beside an ordinary factor has the fit semopy finds (tests/semopy/test_exploratory_blocks_against_semopy.py).
 """
 
@@ -26,6 +29,7 @@ import cfa_tool
 from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import ModelError
 from cfa_tool.exploration import RotationMethod, RotationSpec, extract, from_sample_moments, rotate
+from cfa_tool.exploration.rotation import gp_oblique
 from cfa_tool.language.parser import parse_model
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import build_parameter_table
@@ -52,6 +56,15 @@ def geomin_fit(hs_data):
 @pytest.fixture(scope="module")
 def target_fit(hs_data):
     return cfa_tool.fit(TARGET, hs_data)
+
+
+SIDE = "factor speed: x7, x8, x9\nexploratory factors visual, textual from x1, x4, x2, x3, x5, x6\n"
+
+
+@pytest.fixture(scope="module")
+def side_fit(hs_data):
+    """A geomin block of two factors beside a confirmatory factor."""
+    return cfa_tool.fit(SIDE, hs_data)
 
 
 def test_block_over_all_items_is_the_exploratory_ml_solution(hs_data, geomin_fit):
@@ -92,9 +105,30 @@ def test_geomin_block_recovers_the_three_abilities(geomin_fit):
     assert abs(L[8, groups[0]]) > 0.3
 
 
+def _warm_rotation(spec: RotationSpec, A0: np.ndarray):
+    """The oblique rotation of unrotated loadings A near A0 by ``spec``'s criterion, iterated by gradient projection
+    (Jennrich 2002) to ``spec``'s tolerance from the optimum found at A0 by the full rotation (every random start):
+    a function of A returning (pattern, factor correlations, M) with pattern = A M, its columns in A0's rotated
+    order and signs.  A perturbation of 1e-4 moves the optimum by about as much, so it is the optimum a rerun from
+    scratch keeps there; the rotation at A0 is explore's own (rotate)."""
+    spec = spec.checked(*A0.shape)
+    assert spec.oblique and not spec.row_normalization  # the route written here: no rows normalized
+    start = np.linalg.inv(rotate(A0, spec).transformation).T  # T of the reported optimum (columns ordered and signed)
+    criterion = spec.criterion()
+
+    def rotated(A):
+        T, _, _, converged = gp_oblique(A, criterion, start, spec.tolerance, spec.max_iterations)
+        assert converged
+        M = np.linalg.inv(T).T
+        return A @ M, T.T @ T, M
+
+    return rotated
+
+
 def _numeric_delta(fit, text: str, data, spec_of_rotation) -> tuple[np.ndarray, np.ndarray]:
     """SEs of the standardized rotated loadings and factor correlations: central differences (step 1e-4) of the
-    whole rotation, rerun from the unrotated start at perturbed estimates, matched to the reported columns."""
+    whole rotation, iterated to convergence again at perturbed estimates (``_warm_rotation``), matched to the
+    reported columns."""
     spec = parse_model(text)
     model = StructuredModel(build_parameter_table(spec))
     block = spec.exploratory[0]
@@ -102,11 +136,14 @@ def _numeric_delta(fit, text: str, data, spec_of_rotation) -> tuple[np.ndarray, 
     rows = [model.table.observed.index(x) for x in block.item_names]
     cols = [model.table.latent.index(f) for f in block.factor_names]
 
-    def rotated(theta):
+    def standardized(theta):
         mats = model.matrices(theta)
-        A = mats.L[np.ix_(rows, cols)] / np.sqrt(np.diag(mats.implied_covariance())[rows])[:, None]
-        solution = rotate(A, spec_of_rotation)
-        P, Phi = solution.pattern, solution.factor_correlations
+        return mats.L[np.ix_(rows, cols)] / np.sqrt(np.diag(mats.implied_covariance())[rows])[:, None]
+
+    rotation = _warm_rotation(spec_of_rotation, standardized(fit.theta))
+
+    def rotated(theta):
+        P, Phi, _ = rotation(standardized(theta))
         # the same columns as reported: best matching order and sign
         order = [int(np.argmax(np.abs(reported.standardized.T @ P)[k])) for k in range(P.shape[1])]
         P, Phi = P[:, order], Phi[np.ix_(order, order)]
@@ -273,14 +310,15 @@ def test_names_stay_with_their_anchor_items(hs_data, rotation):
     of Holzinger & Swineford 1939's tests) head the columns of those abilities' items, whatever the order of the
     factors' sizes, and each anchor loads positively."""
     text = f"exploratory factors visual, textual, speed from x1, x4, x7, x2, x3, x5, x6, x8, x9 rotated by {rotation}\n"
-    block = cfa_tool.fit(text, hs_data).exploratory[0]
+    fit = cfa_tool.fit(text, hs_data)
+    block = fit.exploratory[0]
     assert block.factors == ("visual", "textual", "speed")
     home = {item: block.factors[int(np.argmax(np.abs(block.standardized[i])))] for i, item in enumerate(block.items)}
     assert home == {**dict.fromkeys(("x1", "x2", "x3"), "visual"), **dict.fromkeys(("x4", "x5", "x6"), "textual"),
                     **dict.fromkeys(("x7", "x8", "x9"), "speed")}
     assert np.all(block.standardized[[0, 1, 2], [0, 1, 2]] > 0.5)
     assert block.to_dict()["names_by"] == "anchor-items"
-    assert "the k-th name (visual, textual, speed)" in " ".join(cfa_tool.fit(text, hs_data).summary().split())
+    assert "the k-th name (visual, textual, speed)" in " ".join(fit.summary().split())
 
 
 def _two_blocks_data() -> "pd.DataFrame":
@@ -300,30 +338,41 @@ TWO_BLOCKS = ("exploratory factors a1, a2 from y1, y4, y2, y3, y5\n"
               "exploratory factors b1, b2 from y6, y9, y7, y8, y10 rotated by quartimin\n")
 
 
-def test_correlations_between_two_blocks_are_reported_with_delta_method_errors():
+@pytest.fixture(scope="module")
+def two_blocks_fit():
+    return cfa_tool.fit(TWO_BLOCKS, _two_blocks_data())
+
+
+def test_correlations_between_two_blocks_are_reported_with_delta_method_errors(two_blocks_fit):
     """Block a's rotated factors with block b's: cov(a*, b*) = Ma^-1 cov(a, b) Mb^-1' (Asparouhov & Muthén 2009),
-    recomputed here from the fitted matrices with each block rotated afresh by explore's rotation, and its
-    SEs by central differences of that whole computation (step 1e-4) against the reported delta method."""
-    data = _two_blocks_data()
-    fit = cfa_tool.fit(TWO_BLOCKS, data)
+    recomputed here from the fitted matrices with each block rotated afresh (explore's rotation at the estimates,
+    iterated to convergence again from there at perturbed ones: ``_warm_rotation``), and its SEs by central
+    differences of that whole computation (step 1e-4) against the reported delta method."""
+    fit = two_blocks_fit
     a, b = fit.exploratory
     assert a.other_factors == ("b1", "b2") and b.other_factors == ("a1", "a2")
     spec = parse_model(TWO_BLOCKS)
     model = StructuredModel(build_parameter_table(spec))
     rotations = [RotationSpec(RotationMethod.GEOMIN, tolerance=1e-11), RotationSpec(RotationMethod.QUARTIMIN, tolerance=1e-11)]
 
-    def cross(theta):
+    places = [([model.table.observed.index(x) for x in block.item_names],
+               [model.table.latent.index(f) for f in block.factor_names]) for block in spec.exploratory]
+
+    def standardized(theta):
         mats = model.matrices(theta)
         sd = np.sqrt(np.diag(mats.implied_covariance()))
+        return mats, [mats.L[np.ix_(rows, cols)] / sd[rows, None] for rows, cols in places]
+
+    warm = [_warm_rotation(rotation, A0) for rotation, A0 in zip(rotations, standardized(fit.theta)[1])]
+
+    def cross(theta):
+        mats, unrotated = standardized(theta)
         inverses = []
-        for block, reported, rotation in zip(spec.exploratory, (a, b), rotations):
-            rows = [model.table.observed.index(x) for x in block.item_names]
-            cols = [model.table.latent.index(f) for f in block.factor_names]
-            solution = rotate(mats.L[np.ix_(rows, cols)] / sd[rows, None], rotation)
-            P = solution.pattern
+        for (_, cols), A, reported, rotation in zip(places, unrotated, (a, b), warm):
+            P, _, M = rotation(A)
             order = [int(np.argmax(np.abs(reported.standardized.T @ P)[k])) for k in range(2)]
             signs = np.sign(np.sum(P[:, order] * reported.standardized, axis=0))
-            M = solution.transformation[:, order] * signs  # A_std M = the reported pattern
+            M = M[:, order] * signs  # A_std M = the reported pattern
             inverses.append((np.linalg.inv(M), cols))
         (Wa, ca), (Wb, cb) = inverses
         return (Wa @ mats.latent_covariance()[np.ix_(ca, cb)] @ Wb.T).ravel()
@@ -369,11 +418,10 @@ def test_an_orthogonal_block_reports_its_correlations_with_the_other_factors(hs_
         assert "Correlations of the rotated factors visual, textual" in report and value in report
 
 
-def test_diagram_draws_each_correlation_between_two_blocks_once():
+def test_diagram_draws_each_correlation_between_two_blocks_once(two_blocks_fit):
     from cfa_tool.reporting.diagram import _block_rows
 
-    fit = cfa_tool.fit(TWO_BLOCKS, _two_blocks_data())
-    pairs = [frozenset(r.variables) for r in _block_rows(fit) if r.kind == "factor_covariance"]
+    pairs = [frozenset(r.variables) for r in _block_rows(two_blocks_fit) if r.kind == "factor_covariance"]
     assert len(pairs) == len(set(pairs)) == 1 + 1 + 4  # within a, within b, a with b
 
 
@@ -400,17 +448,15 @@ def test_reversed_item_of_a_block_and_a_factor_is_checked_against_the_factor_onl
     assert not any("visual" in w or "speed" in w for w in fit.warnings)
 
 
-def test_methods_paragraph_counts_each_factors_items_and_a_one_factor_block_is_not_rotated(hs_data):
+def test_methods_paragraph_counts_each_factors_items_and_a_one_factor_block_is_not_rotated(hs_data, side_fit):
     """Three items of 'speed' and six of the block (the model file's own counts); a one-factor block has nothing to
     rotate, and its loadings are those of the same factor fitted as a confirmatory factor with variance 1."""
     from cfa_tool.reporting.paragraph import methods_paragraph
     from cfa_tool.reporting.fit_document import fit_report
     from cfa_tool.reporting.text_formats import report_markdown
 
-    side = cfa_tool.fit("factor speed: x7, x8, x9\nexploratory factors visual, textual from x1, x4, x2, x3, x5, x6\n",
-                        hs_data)
     assert ("three indicators of one factor (speed) and six indicators of two exploratory factors (visual and textual)"
-            in methods_paragraph(side))
+            in methods_paragraph(side_fit))
     one = cfa_tool.fit("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nexploratory factors speed from x7..x9\n",
                        hs_data)
     block = one.exploratory[0]
@@ -423,7 +469,7 @@ def test_methods_paragraph_counts_each_factors_items_and_a_one_factor_block_is_n
     np.testing.assert_allclose(block.standardized[:, 0], [0.570, 0.723, 0.665], atol=2e-3)
 
 
-def test_the_methods_text_names_the_analysis_the_model_is(hs_data, geomin_fit):
+def test_the_methods_text_names_the_analysis_the_model_is(hs_data, geomin_fit, side_fit):
     """A model of one exploratory block alone was called "a confirmatory factor analysis with nine indicators of three
     exploratory factors" (hostile trial s26, 01): it is an exploratory factor analysis, and a block among other parts
     (a confirmatory factor, a residual covariance) makes an exploratory structural equation model (Asparouhov &
@@ -440,7 +486,5 @@ def test_the_methods_text_names_the_analysis_the_model_is(hs_data, geomin_fit):
     with_residuals = cfa_tool.fit(GEOMIN + "covary x2, x3\n", hs_data)
     assert methods_paragraph(with_residuals).startswith(
         "An exploratory structural equation model with nine indicators of three exploratory factors")
-    side = cfa_tool.fit("factor speed: x7, x8, x9\nexploratory factors visual, textual from x1, x4, x2, x3, x5, x6\n",
-                        hs_data)
-    assert methods_paragraph(side).startswith("An exploratory structural equation model with three indicators of one "
-                                              "factor (speed) and six indicators of two exploratory factors")
+    assert methods_paragraph(side_fit).startswith("An exploratory structural equation model with three indicators of "
+                                                  "one factor (speed) and six indicators of two exploratory factors")

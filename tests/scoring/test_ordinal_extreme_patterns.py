@@ -11,8 +11,9 @@ two-factor model stopped scoring with 'LinAlgError: Matrix is not positive defin
 
 Check values and their sources:
 * the posterior mean and SD of one factor as integrals over the factor, evaluated by scipy.integrate.quad (QUADPACK,
-  general-purpose adaptive quadrature) with the category probabilities written here from scipy.stats.norm, to 1e-6
-  (the issue's tolerance); of two factors by scipy.integrate.dblquad, to 1e-6 for the top pattern;
+  general-purpose adaptive quadrature) with the category probabilities written here from scipy.special.ndtr (the
+  normal distribution function), to 1e-6 (the issue's tolerance); of two factors by scipy.integrate.dblquad, to 1e-6
+  for the top pattern;
 * one factor with positive loadings: the posterior mean rises with every answer.  The normal-ogive graded model's
   category probabilities have a monotone likelihood ratio in the factor, P(y = c + 1 | eta) / P(y = c | eta)
   increasing, because the normal density is log-concave; a likelihood that rises in the likelihood-ratio order moves
@@ -66,26 +67,33 @@ def _two_factors() -> OrdinalScoringModel:
     return _model(loadings, phi, thresholds)
 
 
-def _likelihood(model: OrdinalScoringModel, y: np.ndarray, eta: np.ndarray) -> float:
-    """prod_j P(y_j | eta) of the normal-ogive graded model, from scipy's standard normal distribution function
-    (scipy.special.ndtr, which scipy.stats.norm.cdf evaluates, called here without its per-call overhead: the double
-    integrals below call this function some 100,000 times)."""
-    base, out = model.base, 1.0
-    for j in range(base.p):
-        limits = np.concatenate([[-np.inf], model.thresholds[j], [np.inf]])
-        c = int(y[j])
-        x = base.loadings[j] @ eta
-        s = np.sqrt(base.residual_covariance[j, j])
-        out *= ndtr((limits[c + 1] - x) / s) - ndtr((limits[c] - x) / s)
-    return out
+def _likelihood(model: OrdinalScoringModel, y: np.ndarray):
+    """eta -> prod_j P(y_j | eta) of the normal-ogive graded model for the answer pattern y, from scipy's standard
+    normal distribution function (scipy.special.ndtr, which scipy.stats.norm.cdf evaluates, called here without its
+    per-call overhead and once for all items: the integrals below call this function some 100,000 times)."""
+    base = model.base
+    codes = y.astype(int)
+    limits = [np.concatenate([[-np.inf], t, [np.inf]]) for t in model.thresholds]
+    lower = np.array([limits[j][c] for j, c in enumerate(codes)])
+    upper = np.array([limits[j][c + 1] for j, c in enumerate(codes)])
+    s = np.sqrt(np.diag(base.residual_covariance))
+    loadings = base.loadings
+
+    def likelihood(eta: np.ndarray) -> float:
+        x = loadings @ eta
+        return float(np.prod(ndtr((upper - x) / s) - ndtr((lower - x) / s)))
+
+    return likelihood
 
 
 def test_severe_uneven_patterns_of_one_factor_equal_the_posterior_integrals():
     model = _one_factor()
     out = eap_scores(model, PATTERNS)
     for i, y in enumerate(PATTERNS):
+        likelihood = _likelihood(model, y)
+
         def density(e, power):
-            return e**power * _likelihood(model, y, np.array([e])) * np.exp(-0.5 * e * e / ONE_VARIANCE)
+            return e**power * likelihood(np.array([e])) * np.exp(-0.5 * e * e / ONE_VARIANCE)
         moments = [integrate.quad(density, -12.0, 12.0, args=(k,), epsabs=0, epsrel=1e-12, limit=400, points=[0.0])[0]
                    for k in range(3)]
         mean = moments[1] / moments[0]
@@ -116,11 +124,11 @@ def test_two_factors_score_the_top_answer_to_every_item_as_the_double_integral()
     # correlation is positive)
     assert (out.scores[0] >= out.scores[1:].max(axis=0)).all()
     precision = np.linalg.inv(model.base.factor_covariance)
-    top = rows[0]
+    likelihood = _likelihood(model, rows[0])
 
     def density(b, a, which):
         e = np.array([a, b])
-        return (1.0 if which < 0 else e[which]) * _likelihood(model, top, e) * np.exp(-0.5 * e @ precision @ e)
+        return (1.0 if which < 0 else e[which]) * likelihood(e) * np.exp(-0.5 * e @ precision @ e)
 
     lo, hi = out.scores[0] - 9 * out.standard_errors[0], out.scores[0] + 9 * out.standard_errors[0]
     mass, first, second = (integrate.dblquad(density, lo[0], hi[0], lo[1], hi[1], args=(k,), epsabs=0,

@@ -277,22 +277,42 @@ def _moments(beta: np.ndarray, p: int) -> tuple[np.ndarray, np.ndarray]:
 
 def _numeric_moment_hessian(mu: np.ndarray, sigma: np.ndarray, x: np.ndarray, h: float = 1e-4) -> np.ndarray:
     """The second derivatives of F = mean_i f_i in beta = (mu, vech Sigma) by central differences of F's values
-    (four points per pair; Abramowitz & Stegun 1964, 25.3.26)."""
+    (four points per pair; Abramowitz & Stegun 1964, 25.3.26), F evaluated at all the points in stacks
+    (:func:`_mean_discrepancies`)."""
     patterns = _patterns(x)
     p = len(mu)
     beta = np.concatenate([mu, _vech(sigma)])
     k = len(beta)
 
-    def F(b: np.ndarray) -> float:
-        return float(_row_discrepancies(*_moments(b, p), x, patterns).mean())
-
-    H = np.zeros((k, k))
     E = np.eye(k) * h
-    for i in range(k):
-        for j in range(i, k):
-            H[i, j] = H[j, i] = (F(beta + E[i] + E[j]) - F(beta + E[i] - E[j]) - F(beta - E[i] + E[j])
-                                 + F(beta - E[i] - E[j])) / (4 * h * h)
+    pairs = [(i, j) for i in range(k) for j in range(i, k)]
+    points = np.array([beta + si * E[i] + sj * E[j] for i, j in pairs for si, sj in ((1, 1), (1, -1), (-1, 1), (-1, -1))])
+    values = _mean_discrepancies(points, p, x, patterns).reshape(len(pairs), 4)
+    H = np.zeros((k, k))
+    for (i, j), (pp, pm, mp, mm) in zip(pairs, values):
+        H[i, j] = H[j, i] = (pp - pm - mp + mm) / (4 * h * h)
     return H
+
+
+def _mean_discrepancies(betas: np.ndarray, p: int, x: np.ndarray, patterns, chunk: int = 256) -> np.ndarray:
+    """F = mean_i f_i (:func:`_row_discrepancies`) at each row of ``betas`` (mu, vech Sigma), the same sums evaluated
+    for a chunk of betas at once (stacked determinants and inverses) instead of one beta at a time."""
+    rows, cols = np.tril_indices(p)
+    out = np.empty(len(betas))
+    for start in range(0, len(betas), chunk):
+        b = betas[start:start + chunk]
+        mu = b[:, :p]
+        sigma = np.zeros((len(b), p, p))
+        sigma[:, rows, cols] = b[:, p:]
+        sigma[:, cols, rows] = b[:, p:]
+        total = np.zeros(len(b))
+        for seen, which in patterns:
+            s = sigma[:, seen[:, None], seen[None, :]]
+            r = x[np.ix_(which, seen)][None, :, :] - mu[:, None, seen]
+            quad = np.einsum("bri,bij,brj->b", r, np.linalg.inv(s), r)
+            total += len(which) * np.linalg.slogdet(s)[1] + quad
+        out[start:start + chunk] = total / len(x)
+    return out
 
 
 def _numeric_row_scores(mu: np.ndarray, sigma: np.ndarray, x: np.ndarray, h: float = 1e-5) -> np.ndarray:

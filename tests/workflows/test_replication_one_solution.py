@@ -116,13 +116,19 @@ def test_true_replications_are_rejected_at_about_alpha_with_gaps_and_with_ordina
     _within_binomial(rejected, tested)
 
 
-def _minus_two_log_likelihood(rows: np.ndarray, mean: np.ndarray, sigma: np.ndarray) -> float:
-    """-2 log L of rows with gaps, each row by the normal density of its answered items (scipy.stats)."""
-    total = 0.0
+def _by_pattern(rows: np.ndarray) -> list[tuple[np.ndarray, np.ndarray]]:
+    """The rows with gaps split once by the items they answer: (answered items, those rows' answers) pairs."""
     answered = ~np.isnan(rows)
-    for o in np.unique(answered, axis=0):
-        same = rows[(answered == o).all(axis=1)][:, o]
-        total += np.sum(np.atleast_1d(stats.multivariate_normal(mean[o], sigma[np.ix_(o, o)]).logpdf(same)))
+    return [(o, rows[(answered == o).all(axis=1)][:, o]) for o in np.unique(answered, axis=0)]
+
+
+def _minus_two_log_likelihood(patterns: list[tuple[np.ndarray, np.ndarray]], mean: np.ndarray,
+                              sigma: np.ndarray) -> float:
+    """-2 log L of rows with gaps (split by ``_by_pattern``), each row by the normal density of its answered items
+    (scipy.stats)."""
+    total = 0.0
+    for o, same in patterns:
+        total += np.sum(np.atleast_1d(stats.multivariate_normal.logpdf(same, mean[o], sigma[np.ix_(o, o)])))
     return -2.0 * total
 
 
@@ -140,21 +146,22 @@ def test_the_two_sample_full_information_test_is_the_likelihood_ratio_scipy_maxi
 
     rng = np.random.default_rng(31)
     samples = [_draw(rng, 180, 0.12).to_numpy(), _draw(rng, 150, 0.12).to_numpy()]
+    patterns = [_by_pattern(rows) for rows in samples]
     start = np.array([0.8, 0.8, 0.8, np.log(0.6), *np.log([0.4] * 4)])
 
-    def separate(rows: np.ndarray) -> float:
-        means = np.nanmean(rows, axis=0)
-        found = minimize(lambda x: _minus_two_log_likelihood(rows, x[8:], _one_factor_sigma(x)),
+    def separate(g: int) -> float:
+        means = np.nanmean(samples[g], axis=0)
+        found = minimize(lambda x: _minus_two_log_likelihood(patterns[g], x[8:], _one_factor_sigma(x)),
                          np.concatenate([start, means]), method="BFGS", options={"gtol": 1e-7})
         return found.fun
 
     def together(x: np.ndarray) -> float:
         sigma = _one_factor_sigma(x)
-        return sum(_minus_two_log_likelihood(rows, x[8 + 4 * g: 12 + 4 * g], sigma) for g, rows in enumerate(samples))
+        return sum(_minus_two_log_likelihood(split, x[8 + 4 * g: 12 + 4 * g], sigma) for g, split in enumerate(patterns))
 
     one = minimize(together, np.concatenate([start, *[np.nanmean(r, axis=0) for r in samples]]), method="BFGS",
                    options={"gtol": 1e-7})
-    statistic = one.fun - sum(separate(rows) for rows in samples)
+    statistic = one.fun - sum(separate(g) for g in range(len(samples)))
     frames = [pd.DataFrame(rows, columns=list(NAMES)) for rows in samples]
     rep = replicate(ONE_FACTOR, *frames)
     assert rep.same_solution.df_difference == 8
