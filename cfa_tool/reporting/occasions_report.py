@@ -124,9 +124,14 @@ def occasions_report(result) -> Report:
     notice = None if not warnings else ProblemNotice(SOME_NOT_ADMISSIBLE if inadmissible else CHECK_SOLUTIONS,
                                                      warnings, inadmissible)
     first = steps[0].result
-    lines = (f"The same {count_text(result.people)} people at {_where(result)}, in one group: each step is the model "
-             f"of every occasion side by side, each item's residuals correlated across the occasions",
-             f"{count_text(first.n_obs)} people analysed; estimation: {first.estimator}",
+    counts = result.people_counts
+    both = f" ({counts.at_both()})" if counts is not None else ""
+    gone = counts.read - counts.analysed if counts is not None else 0
+    read = (f" of the {count_text(counts.read)} read ({count_text(gone)} answered no item at any occasion and "
+            f"{'was' if gone == 1 else 'were'} left out)" if gone else "")
+    lines = (f"The same people at {_where(result)}, in one group{both}: each step is the model of every occasion side "
+             f"by side, each item's residuals correlated across the occasions",
+             f"{count_text(first.n_obs)} people analysed{read}; estimation: {first.estimator}",
              f"Each step after the configural one is judged by "
              f"{result.rule.description.replace('alpha', unit(result.alpha, 2))}.")
     last = steps[-1]
@@ -158,6 +163,13 @@ def occasions_paragraph(result) -> str:
              f"factors and items side by side, each item's residuals correlated across the occasions and the factors' "
              f"covariances across the occasions free; each factor was scaled by its first item's loading fixed at 1 at "
              f"every occasion. The models were estimated by {_estimator_phrase(first)} ({_sample_phrase(first)})."]
+    counts = result.people_counts
+    if counts is not None:  # who was left out and who was seen at both occasions, as the report's first lines say
+        gone = counts.read - counts.analysed
+        parts.append((f"Of the {count_text(counts.read)} people read, {count_text(gone)} answered none of the items at "
+                      f"any occasion and {'was' if gone == 1 else 'were'} left out; of the {count_text(counts.analysed)}"
+                      f" analysed, " if gone else f"Of the {count_text(counts.analysed)} people, ")
+                     + counts.at_both().replace(" of them", "", 1) + ".")
     if method is not None:
         parts.append(f"Each step was compared with the one before by {method.phrase}, and judged by "
                      f"{result.rule.description.replace('alpha', unit(result.alpha, 2))}; the configural model by its "

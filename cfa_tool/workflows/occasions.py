@@ -23,13 +23,14 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.moments import FEW_TOGETHER_SHARE
 from cfa_tool.data.row_ids import id_text, ids_by_row_number
 from cfa_tool.errors import DataError, ModelError, OptionError, shown_path
 from cfa_tool.language.names import written_name
 from cfa_tool.language.parser import parse_model
 from cfa_tool.language.spec import Spec
 from cfa_tool.method import DecisionRule, DifferenceMethod, MissingData
-from cfa_tool.numbers import count_text, cut_list, number
+from cfa_tool.numbers import count_text, counted, cut_list, number
 from cfa_tool.options import Option, own_keywords
 from cfa_tool import options as check
 from cfa_tool.pipeline.inputs import analysed_odd_values, data_problems, load_spec, read_inputs_with_notes
@@ -55,6 +56,21 @@ class OccasionLayout:
     def name(self, name: str, k: int) -> str:
         """``name`` (an item or a factor of the one-occasion model) at the k-th occasion."""
         return f"{name}{self.endings[k]}"
+
+    def clash(self, names: Sequence[str]) -> str:
+        """The first name of the model of every occasion that two (name, occasion) pairs of ``names`` (the
+        one-occasion model's items and factors) would share, in words ('' when none does): item 'a' at ending '11'
+        and item 'a1' at ending '1' are both 'a11', so one column would be two items' column (hostile s27)."""
+        seen: dict[str, tuple[str, int]] = {}
+        for name in names:
+            for k in range(len(self.endings)):
+                written = self.name(name, k)
+                if written in seen and seen[written] != (name, k):
+                    other, j = seen[written]
+                    return (f"'{written}' would be both '{other}' at occasion {self.occasions[j]} and '{name}' at "
+                            f"occasion {self.occasions[k]}")
+                seen.setdefault(written, (name, k))
+        return ""
 
 
 def _refuse_statements(spec: Spec) -> None:
@@ -205,10 +221,11 @@ def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, oc
                 raise DataError(f"{shown_path(source)}: item '{item}' has no answer at occasion {labels[k]} of "
                                 f"'{occasion_column}': every occasion needs the same items")
             wide[layout.name(item, k)] = part[item].reindex(people).to_numpy()
-    clash = set(wide.columns[1:]) & {id_column}
-    if clash or len(set(wide.columns)) < len(wide.columns):
-        raise DataError(f"{shown_path(source)}: the items' names with the occasions' endings clash with each other or "
-                        f"with the id column; rename the items or the occasions")
+    clash = (f"'{id_column}' would be both the id column and an item at an occasion"
+             if id_column in set(wide.columns[1:]) else layout.clash(items))
+    if clash:
+        raise DataError(f"{shown_path(source)}: the items' names with the occasions' endings clash: {clash}; rename "
+                        f"the items or the occasions")
     counts = [int((frame[occasion_column] == v).sum()) for v in order]
     notes = [f"Rows set side by side by '{id_column}': {count_text(len(frame))} rows of "
              f"{count_text(len(people))} people at {len(order)} occasions of '{occasion_column}' ("
@@ -216,6 +233,83 @@ def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, oc
              + (f"; {count_text(len(people) * len(order) - len(frame))} occasions of people missing there are gaps, "
                 f"kept by full-information ML" if len(frame) < len(people) * len(order) else "") + "."]
     return wide, layout, notes
+
+
+#: fewer people than this share of those analysed answering at both occasions of a pair: a caution first (the rule
+#: of pairs of items answered together, data.moments.FEW_TOGETHER_SHARE: a rule of thumb of this project)
+FEW_AT_BOTH_SHARE = FEW_TOGETHER_SHARE
+
+
+@dataclass(frozen=True)
+class OccasionPeople:
+    """Who the ladder analyses: the people read (rows of wide data, ids of long data), those who answered some item
+    at some occasion (the rest are left out, as a fit leaves out rows that answer none of the model variables), how
+    many rows of a long file the people left out had, and for each pair of occasions the people who answered some
+    item at both, on whom every covariance across the pair rests."""
+
+    read: int
+    analysed: int
+    rows_left_out: int  # rows of the long file (0 for wide data: each person one row)
+    occasions: tuple[str, ...]
+    together: tuple[tuple[int, int, int], ...]  # (occasion k, occasion j, people answering at both)
+
+    @property
+    def fewest(self) -> tuple[int, int, int]:
+        """The pair of occasions answered together by the fewest people."""
+        return min(self.together, key=lambda t: t[2])
+
+    def pair_words(self, pair: tuple[int, int, int]) -> str:
+        """'both occasions' with two occasions, else 'both occasions 1 and 3'."""
+        if len(self.occasions) == 2:
+            return "both occasions"
+        return f"both occasions {self.occasions[pair[0]]} and {self.occasions[pair[1]]}"
+
+    def at_both(self) -> str:
+        """How many of the people analysed answered at both occasions (at the pair answered by the fewest)."""
+        pair = self.fewest
+        fewest = "" if len(self.occasions) == 2 else ", the fewest of any pair"
+        return f"{count_text(pair[2])} of them answered at {self.pair_words(pair)}{fewest}"
+
+    def few_together(self, long: bool) -> str:
+        """The caution when few of the people analysed answered at both occasions of some pair ('' otherwise)."""
+        pair = self.fewest
+        if not self.analysed or pair[2] >= FEW_AT_BOTH_SHARE * self.analysed:
+            return ""
+        cause = ("each person's id written alike at every occasion: 'P7' at one occasion and '7' at another are two "
+                 "people, each missing at the other occasion" if long else
+                 "each person's answers at every occasion in one row")
+        return (f"only {count_text(pair[2])} of the {count_text(self.analysed)} people analysed answered at "
+                f"{self.pair_words(pair)}: every covariance across the occasions, and so each step's test and the "
+                f"change of the means, rests on those {count_text(pair[2])} people; check {cause}")
+
+    def notes(self, long: bool) -> tuple[str, ...]:
+        """The note on the people left out for answering no item at any occasion (none when no one was)."""
+        gone = self.read - self.analysed
+        if not gone:
+            return ()
+        rows = f" ({counted(self.rows_left_out, 'row')} of the file)" if long and self.rows_left_out else ""
+        return (f"{count_text(gone)} of {count_text(self.read)} people{rows} answered none of the model's items at any "
+                f"occasion and {'was' if gone == 1 else 'were'} left out.",)
+
+    def to_dict(self) -> dict:
+        return {"people_read": self.read,
+                "people_at_both_occasions": [{"occasions": [self.occasions[k], self.occasions[j]], "people": n}
+                                             for k, j, n in self.together]}
+
+
+def occasion_people(wide: pd.DataFrame, spec: Spec, layout: OccasionLayout,
+                    long: pd.DataFrame | None = None, id_column: str | None = None) -> OccasionPeople:
+    """The counts of :class:`OccasionPeople` from the occasions side by side (one row per person)."""
+    answered = np.column_stack([wide[[layout.name(i, k) for i in spec.observed_names]].notna().to_numpy().any(axis=1)
+                                for k in range(len(layout.occasions))])
+    some = answered.any(axis=1)
+    rows = 0
+    if long is not None and id_column is not None:
+        gone = set(wide[id_column][~some].tolist())
+        rows = int(long[id_column].map(id_text).isin(gone).sum())
+    n = answered.shape[1]
+    together = tuple((k, j, int((answered[:, k] & answered[:, j]).sum())) for k in range(n) for j in range(k + 1, n))
+    return OccasionPeople(len(wide), int(some.sum()), rows, layout.occasions, together)
 
 
 @dataclass(frozen=True, eq=False)
@@ -238,6 +332,7 @@ class OccasionsResult(Presentable):
     #: rows with gaps were fitted by full-information ML (what the normal-theory score tests then assume)
     gaps_by_full_information: bool = False
     freed: tuple = ()  # no partial search over occasions yet (not-yet-available.md)
+    people_counts: OccasionPeople | None = None
 
     @property
     def occasions(self) -> tuple[str, ...]:
@@ -273,6 +368,7 @@ class OccasionsResult(Presentable):
             "occasions": [{"occasion": o, "column_ending": e} for o, e in zip(self.layout.occasions,
                                                                             self.layout.endings)],
             "people": self.people,
+            **({} if self.people_counts is None else self.people_counts.to_dict()),
             "alpha": self.alpha,
             "decision_rule": {"name": self.rule.value, "description": self.rule.description},
             "steps": [{**s.to_dict(), "model": text} for s, text in zip(self.steps, self.texts)],
@@ -424,6 +520,11 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             raise OptionError(f"wide data over occasions need two or more different column endings, one per "
                               f"occasion, not {', '.join(repr(e) for e in endings) or 'none'}")
         layout = OccasionLayout(tuple(e.strip("_ .-") or e for e in endings), endings)
+        clash = layout.clash((*spec.observed_names, *spec.factor_names))
+        if clash:
+            raise OptionError(f"the column endings {', '.join(repr(e) for e in endings)} make names of two items (or "
+                              f"factors) at two occasions alike: {clash}; give endings that keep them apart, such as "
+                              f"'_t1', '_t2'")
         wide_source = f"{spec.source} (every item at every occasion)"
         wide_spec = parse_model(step_text(spec, layout, "configural"), wide_source)
         try:
@@ -436,6 +537,7 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             raise DataError(f"wide data over occasions need a column for every item at every occasion (the item's "
                             f"name with the ending of the occasion: {', '.join(endings)}): {error.message}") from None
         wide, shaped, long_problems = loaded.frame, [], None
+    people = occasion_people(wide, spec, layout, loaded.frame if occasion_column is not None else None, id_column)
     texts = tuple(step_text(spec, layout, level) for level, _, _ in LEVELS)
     specs = [parse_model(text, f"{spec.source} ({level} over occasions)") for text, (level, _, _) in zip(texts, LEVELS)]
     from cfa_tool.workflows.compare import compare
@@ -471,6 +573,9 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             warnings.append(f"the {step.level} model did not converge ({step.result.message}); the ladder stops "
                             f"there")
     warnings += [p.line() for p in problems]
+    few = people.few_together(occasion_column is not None)
+    if few:  # before the ladder's own cautions: every covariance across the occasions rests on those people
+        warnings.insert(0, few)
     if steps[0].result.admissible and steps[0].result.converged and not steps[0].holds and not steps[0].unjudged:
         warnings.insert(0, "the configural model does not fit by the guide values (" + _judged(_fit_values(
             steps[0].result)) + "): every later step compares models that already misfit, so its test says little "
@@ -485,8 +590,8 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
     changes, note = _latent_changes(steps, spec, layout)
     gaps = bool(wide[list(specs[0].observed_names)].isna().to_numpy().any())
     return OccasionsResult(occasion_column, id_column, layout, tuple(steps), texts[:len(steps)], alpha, rule,
-                           tuple(warnings), tuple(read_notes) + tuple(shaped) + tuple(found.notes),
-                           problems, changes, note, len(wide), gaps)
+                           tuple(warnings), tuple(read_notes) + tuple(shaped) + people.notes(occasion_column is not None)
+                           + tuple(found.notes), problems, changes, note, people.analysed, gaps, people_counts=people)
 
 
 #: the keywords of :func:`invariance_over_occasions`

@@ -232,3 +232,38 @@ def test_the_long_files_rows_are_named_and_its_ids_repeat_by_design(tmp_path):
     assert ProblemKind.REPEATED_IDS not in kinds
     said = " ".join(str(w) for w in result.warnings)
     assert "value 99" in said and "rows 12, 13, 252" in said
+
+
+def test_wide_endings_that_make_one_column_two_items_are_an_error_naming_it():
+    # item 'a' at ending '11' and item 'a1' at ending '1' are both column 'a11' (hostile trial s27, case 01)
+    wide = pd.DataFrame(np.random.default_rng(1).normal(size=(60, 7)),
+                        columns=["a1", "a11", "a111", "b1", "b11", "c1", "c11"])
+    with pytest.raises(OptionError, match=r"'a11' would be both 'a' at occasion 11 and 'a1' at occasion 1"):
+        invariance_over_occasions("factor f: a, a1, b, c\n", wide, occasion_endings=("1", "11"))
+
+
+def test_people_left_out_and_people_at_both_occasions_are_counted_first(tmp_path):
+    from cfa_tool.reporting.reports import report_of
+
+    long = people(300, 21)
+    blank = long["person_id"].isin([f"p{i:04d}" for i in range(100)])
+    long.loc[blank, ["vig1", "vig2", "vig3", "vig4"]] = np.nan  # 100 people (200 rows) answered nothing
+    result = invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="person_id")
+    # counted from the data built here: 300 people read, 100 with no answer, 200 at both waves
+    assert (result.people, result.to_dict()["people_read"]) == (200, 300)
+    assert result.to_dict()["people_at_both_occasions"] == [{"occasions": ["1", "2"], "people": 200}]
+    assert any("100 of 300 people (200 rows of the file) answered none" in n for n in result.notes)
+    report = report_of(result)
+    assert "100 answered none of the items at any occasion and were left out" in report.paragraph
+    assert "200 people analysed of the 300 read" in str(report.lines[1])
+
+
+def test_few_people_at_both_occasions_is_a_caution_first_naming_the_ids():
+    long = people(300, 22)
+    # 255 of the ids of wave 2 written without their letter: 45 people matched, 555 seen (hostile trial s27, case 13)
+    renamed = (long["wave"] == 2) & ~long["person_id"].isin([f"p{i:04d}" for i in range(45)])
+    long.loc[renamed, "person_id"] = long.loc[renamed, "person_id"].str[1:]
+    result = invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="person_id")
+    assert result.people == 555
+    assert result.warnings[0].startswith("only 45 of the 555 people analysed answered at both occasions")
+    assert "id written alike" in result.warnings[0]
