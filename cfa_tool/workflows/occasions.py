@@ -333,6 +333,9 @@ class OccasionsResult(Presentable):
     gaps_by_full_information: bool = False
     freed: tuple = ()  # no partial search over occasions yet (not-yet-available.md)
     people_counts: OccasionPeople | None = None
+    #: the model of one occasion as the model file writes it (model.description), which the paragraph describes
+    one_occasion: object | None = None
+    factor_items: tuple[tuple[str, tuple[str, ...]], ...] = ()  # each factor of one occasion with its items
 
     @property
     def occasions(self) -> tuple[str, ...]:
@@ -411,6 +414,15 @@ def _latent_changes(steps: Sequence[InvarianceStep], spec: Spec,
                         f"{layout.occasions[0]} (whose means are fixed at 0); d: the change over the pooled latent "
                         f"standard deviation of the two occasions; Var. ratio: the factor's variance at that occasion "
                         f"over its variance at occasion {layout.occasions[0]}.")
+
+
+def _description(spec: Spec):
+    """The one-occasion model in the terms of a methods section (model.description.describe): its factors, their
+    items, its 'covary' and 'uncorrelated' statements, as each occasion holds them."""
+    from cfa_tool.model.description import describe
+    from cfa_tool.model.parameters import build_parameter_table
+
+    return describe(spec, build_parameter_table(spec, mean_structure=True))
 
 
 def _later_entries(table, kinds: tuple[str, ...]) -> list:
@@ -591,7 +603,9 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
     gaps = bool(wide[list(specs[0].observed_names)].isna().to_numpy().any())
     return OccasionsResult(occasion_column, id_column, layout, tuple(steps), texts[:len(steps)], alpha, rule,
                            tuple(warnings), tuple(read_notes) + tuple(shaped) + people.notes(occasion_column is not None)
-                           + tuple(found.notes), problems, changes, note, people.analysed, gaps, people_counts=people)
+                           + tuple(found.notes), problems, changes, note, people.analysed, gaps, people_counts=people,
+                           one_occasion=_description(spec),
+                           factor_items=tuple((f.name.text, tuple(i.text for i in f.indicators)) for f in spec.factors))
 
 
 #: the keywords of :func:`invariance_over_occasions`

@@ -267,3 +267,39 @@ def test_few_people_at_both_occasions_is_a_caution_first_naming_the_ids():
     assert result.people == 555
     assert result.warnings[0].startswith("only 45 of the 555 people analysed answered at both occasions")
     assert "id written alike" in result.warnings[0]
+
+
+def test_the_paragraph_describes_the_model_of_one_occasion():
+    from cfa_tool.reporting.reports import report_of
+
+    rng = np.random.default_rng(2)
+    n = 300
+    first = rng.normal(size=(n, 2))
+    second = 0.7 * first + 0.5 * rng.normal(size=(n, 2))
+    rows = [{"pid": i, "wave": w, **{f"{x}{j}": 0.8 * f[i, k] + 0.6 * rng.normal() + 3
+                                     for k, x in enumerate("ab") for j in (1, 2, 3)}}
+            for i in range(n) for w, f in ((1, first), (2, second))]
+    model = "factor fa: a1, a2, a3\nfactor fb: b1, b2, b3\nuncorrelated fa, fb\ncovary a2, b2\n"
+    result = invariance_over_occasions(model, pd.DataFrame(rows), occasion_column="wave", id_column="pid")
+    paragraph = report_of(result).paragraph
+    # the model file's factors, its 'uncorrelated' and its 'covary' statements (hostile trial s27, case 14)
+    assert "six indicators of two uncorrelated factors (fa and fb)" in paragraph
+    assert "one residual covariance (a2 with b2)" in paragraph
+
+
+def test_the_paragraph_names_the_steps_whose_solutions_are_not_admissible():
+    from cfa_tool.reporting.reports import report_of
+
+    # vig1 nearly without error in 60 people: negative residual variances at every step (hostile trial s27, case 06)
+    rng = np.random.default_rng(1)
+    f1 = rng.normal(size=60)
+    f2 = 0.7 * f1 + 0.5 * rng.normal(size=60) + 0.3
+    rows = [{"person_id": f"P{i}", "wave": k, "vig1": f[i] + 0.02 * rng.normal() + 3,
+             **{f"vig{j}": 0.5 * f[i] + 0.9 * rng.normal() + 3 for j in (2, 3, 4)}}
+            for i in range(60) for k, f in ((1, f1), (2, f2))]
+    result = invariance_over_occasions(ONE_OCCASION, pd.DataFrame(rows), occasion_column="wave",
+                                       id_column="person_id")
+    assert not result.steps[0].result.admissible
+    paragraph = report_of(result).paragraph
+    assert "The solution of the configural model was not admissible (a negative residual variance of vig1_1" in paragraph
+    assert "the metric step did not hold: its solution was not admissible" in paragraph
