@@ -179,6 +179,31 @@ def _occasion_order(values: pd.Series, column: str, given: Sequence[str] | None,
                       f"their order, comma-separated, the first first)")
 
 
+def _refuse_split_people(loaded, id_column: str) -> None:
+    """A half of a halves file (--half) drawn row by row, or by another column than the people's ids, that leaves some
+    of its people's occasions in the other half: an error naming how many (hostile s27: 144 of 222 people of a half
+    had their other occasion in the other half, so the halves shared people and the missing occasions read as
+    skipped).  Halves drawn whole people at a time (by the id column as the cluster) keep each person in one half."""
+    from cfa_tool.data.halves import HalfRows
+
+    half = next((f for f in loaded.row_filters if isinstance(f, HalfRows)), None)
+    if half is None or half.cluster_column == id_column or loaded.read_frame is None:
+        return
+    whole = loaded.read_frame
+    ids = whole[id_column].map(id_text)
+    inside = whole.index.isin(loaded.frame.index)
+    people = set(ids[inside].dropna())
+    split = people & set(ids[~inside].dropna())
+    if not split:
+        return
+    drawn = f"by {half.cluster_column}" if half.cluster_column else "row by row"
+    raise DataError(f"{shown_path(half.halves_file)} was drawn {drawn}, and {count_text(len(split))} of the "
+                    f"{count_text(len(people))} people of {half.phrase()} have rows of other occasions in the other "
+                    f"half: the halves share people, and those occasions would read as missing; draw the halves whole "
+                    f"people at a time ({Option.CLUSTER.given(id_column)} beside {Option.SPLIT} or replicate's "
+                    f"--halves-file)")
+
+
 def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, occasion_column: str,
                    source: str, order: Sequence[str] | None = None) -> tuple[pd.DataFrame, OccasionLayout, list[str]]:
     """Rows of one person and occasion set side by side, one row per person (by ``id_column``), each item's column at
@@ -515,6 +540,7 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
         for column in (occasion_column, id_column):
             if column not in loaded.frame.columns:
                 raise DataError(f"{shown_path(loaded.source)}: no column '{column}'")
+        _refuse_split_people(loaded, id_column)
         wide, layout, shaped = wide_from_long(loaded.frame, spec.observed_names, id_column, occasion_column,
                                               loaded.source, occasion_order)
         # the cautions on the rows of the long file, named by its rows and each row by its person and occasion (an id

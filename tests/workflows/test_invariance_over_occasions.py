@@ -303,3 +303,34 @@ def test_the_paragraph_names_the_steps_whose_solutions_are_not_admissible():
     paragraph = report_of(result).paragraph
     assert "The solution of the configural model was not admissible (a negative residual variance of vig1_1" in paragraph
     assert "the metric step did not hold: its solution was not admissible" in paragraph
+
+
+def test_a_half_drawn_row_by_row_that_splits_people_over_occasions_is_an_error(tmp_path, monkeypatch, capsys):
+    from cfa_tool.cli import main
+    from cfa_tool.data.halves import RandomHalf
+
+    monkeypatch.chdir(tmp_path)
+    long = people(200, 23)
+    long.to_csv("long.csv", index=False)
+    halves = {}
+    for name, by in (("rows.csv", []), ("people.csv", ["--cluster", "person_id"])):
+        assert main(["explore", "--data", "long.csv", "--items", "vig1,vig2,vig3,vig4", "--factors", "1",
+                     "--split", "1", "--halves-file", name, *by]) == 0
+        halves[name] = pd.read_csv(name)
+    capsys.readouterr()
+    # the people of the confirmation half of rows.csv with a row in the other half, counted here from the file (its
+    # 'row' the file's row, the header being row 1)
+    half = halves["rows.csv"]
+    person = pd.read_csv("long.csv")["person_id"]
+    at = {name: set(person.iloc[half.loc[half["half"] == name, "row"] - 2]) for name in half["half"].unique()}
+    mine = at["confirmation"]
+    split = len(mine & set().union(*(v for k, v in at.items() if k != "confirmation")))
+    assert split > 0
+    with pytest.raises(DataError, match=rf"rows.csv was drawn row by row, and {split} of the {len(mine)} people of "
+                                        rf"the confirmation half have rows of other occasions in the other half"):
+        invariance_over_occasions(ONE_OCCASION, "long.csv", occasion_column="wave", id_column="person_id",
+                                  keep=[RandomHalf("rows.csv", "confirmation")])
+    kept = invariance_over_occasions(ONE_OCCASION, "long.csv", occasion_column="wave", id_column="person_id",
+                                     keep=[RandomHalf("people.csv", "confirmation")])
+    # drawn whole people at a time: every person of the half at both waves
+    assert kept.to_dict()["people_at_both_occasions"][0]["people"] == kept.people
