@@ -517,6 +517,10 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
     Wide data: ``occasion_endings`` ('_t1', '_t2': the item vig1 at the first occasion is the column vig1_t1), with
     ``id_column`` optional.  ``test='robust'`` fits every step with the robust test and tests the steps by the
     scaled difference; rows with gaps are kept by full-information ML, which the scalar step's means need."""
+    for given, option in ((occasion_order, Option.OCCASION_ORDER), (occasion_endings, Option.OCCASION_ENDINGS)):
+        if isinstance(given, str):  # its characters would be read as the occasions (hostile s27)
+            raise OptionError(f"{option} takes a list of the occasions' {'labels' if given is occasion_order else 'endings'}"
+                              f", one item each (['pre', 'post']), not one text ({given!r})")
     rule = check.choice(DecisionRule, decide_by, "the decision rule")
     alpha = check.probability("alpha (the level of the difference tests)", 0.05 if alpha is None else alpha)
     if missing is not None and MissingData(missing) is MissingData.LISTWISE:

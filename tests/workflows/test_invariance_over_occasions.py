@@ -334,3 +334,22 @@ def test_a_half_drawn_row_by_row_that_splits_people_over_occasions_is_an_error(t
                                      keep=[RandomHalf("people.csv", "confirmation")])
     # drawn whole people at a time: every person of the half at both waves
     assert kept.to_dict()["people_at_both_occasions"][0]["people"] == kept.people
+
+
+def test_an_order_given_as_one_text_is_refused_and_quoted_labels_keep_their_commas(tmp_path, monkeypatch, capsys):
+    from cfa_tool.cli import main
+
+    long = people(150, 24)
+    named = long.assign(wave=long["wave"].map({1: "time 1", 2: "time, 2"}))
+    # a str would be read character by character as occasions (hostile trial s27, case 08)
+    with pytest.raises(OptionError, match=r"takes a list of the occasions' labels.*not one text \('time 1,time 2'\)"):
+        invariance_over_occasions(ONE_OCCASION, named, occasion_column="wave", id_column="person_id",
+                                  occasion_order="time 1,time 2")
+    monkeypatch.chdir(tmp_path)
+    named.to_csv("waves.csv", index=False)
+    (tmp_path / "vig.cfa").write_text(ONE_OCCASION)
+    # a label with a comma in double quotes, as --keep and --missing-codes read theirs (hostile trial s27, case 16)
+    code = main(["invariance", "vig.cfa", "--data", "waves.csv", "--occasion-column", "wave", "--id", "person_id",
+                 "--occasion-order", 'time 1,"time, 2"', "--json", "out.json"])
+    assert code == 0, capsys.readouterr().err
+    assert [o["occasion"] for o in json.loads((tmp_path / "out.json").read_text())["occasions"]] == ["time 1", "time, 2"]
