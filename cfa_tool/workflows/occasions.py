@@ -173,10 +173,34 @@ def _occasion_order(values: pd.Series, column: str, given: Sequence[str] | None,
     values = [v if isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool)
               else number(str(v)) for v in distinct]  # numbers, or text that reads as one (a column read as text)
     if all(v is not None for v in values):
+        if len(set(values)) < len(values):  # 1 and '1.0' in a column read as text (hostile s27): one occasion?
+            alike = [id_text(d) for v, d in zip(values, distinct) if values.count(v) > 1]
+            raise DataError(f"{shown_path(source)}: column '{column}' holds occasions that read alike "
+                            f"({', '.join(alike)}); give each occasion one value")
         return [d for _, d in sorted(zip(values, distinct), key=lambda pair: pair[0])]
     raise OptionError(f"the occasions of '{column}' are named by text ({cut_list([id_text(v) for v in distinct], 5)}), "
                       f"whose order cannot be read from the data: give it ({Option.OCCASION_ORDER} with the occasions in "
                       f"their order, comma-separated, the first first)")
+
+
+def _refuse_no_one_at_both(people: OccasionPeople, loaded, occasion_column: str | None, id_column: str | None) -> None:
+    """No person answering at both occasions of some pair: the covariances across them have no data (hostile s27:
+    ids 'P0' at wave 1 and '0' at wave 2 stopped the fit on a pair of columns of no file); an error naming the file
+    and, for long data, a few ids of each occasion, which show how they are written."""
+    k, j, n = people.fewest
+    if n or not people.analysed:
+        return
+    a, b = people.occasions[k], people.occasions[j]
+    if occasion_column is not None:
+        frame = loaded.frame
+        labels = frame[occasion_column].map(id_text)
+        seen = [cut_list(list(dict.fromkeys(frame.loc[labels == o, id_column].map(id_text).dropna()))[:3], 3,
+                         lambda i: f"'{i}'") for o in (a, b)]
+        raise DataError(f"{shown_path(loaded.source)}: no person of '{id_column}' answered at both occasions {a} and "
+                        f"{b} of '{occasion_column}' (ids at {a} such as {seen[0]}; at {b} such as {seen[1]}); write "
+                        f"each person's id alike at every occasion")
+    raise DataError(f"{shown_path(loaded.source)}: no row answers items at both occasions {a} and {b}; each row holds "
+                    f"one person's answers at every occasion")
 
 
 def _refuse_split_people(loaded, id_column: str) -> None:
@@ -538,6 +562,12 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
         if not isinstance(id_column, str):
             raise OptionError(f"long data over occasions need the id column that names each person "
                               f"({Option.ID_COLUMN.given('COLUMN')}), to set each person's occasions side by side")
+        for column, role in ((id_column, "the id column (an id column is never analysed)"),
+                             (occasion_column, "the occasion column")):
+            if column in spec.observed_names:  # the words of every other route (data.row_ids.row_ids)
+                raise OptionError(f"'{column}' is a variable of the model and cannot also be {role}")
+        if id_column == occasion_column:
+            raise OptionError(f"'{id_column}' cannot be both the id column and the occasion column")
         _, loaded, read_notes = read_inputs_with_notes(spec, data, sheet, missing_codes, keep,
                                                        (id_column, occasion_column), keeps_gaps=True,
                                                        chosen=_chosen(id_column, occasion_column), **reading)
@@ -562,6 +592,10 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             raise OptionError(f"wide data over occasions need two or more different column endings, one per "
                               f"occasion, not {', '.join(repr(e) for e in endings) or 'none'}")
         layout = OccasionLayout(tuple(e.strip("_ .-") or e for e in endings), endings)
+        if len(set(layout.occasions)) < len(endings):  # '_1' and '-1': two occasions both called 1 (hostile s27)
+            raise OptionError(f"the column endings {', '.join(repr(e) for e in endings)} name occasions that read "
+                              f"alike ({', '.join(layout.occasions)}): give endings that differ in more than their "
+                              f"punctuation, such as '_t1', '_t2'")
         clash = layout.clash((*spec.observed_names, *spec.factor_names))
         if clash:
             raise OptionError(f"the column endings {', '.join(repr(e) for e in endings)} make names of two items (or "
@@ -580,6 +614,7 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
                             f"name with the ending of the occasion: {', '.join(endings)}): {error.message}") from None
         wide, shaped, long_problems = loaded.frame, [], None
     people = occasion_people(wide, spec, layout, loaded.frame if occasion_column is not None else None, id_column)
+    _refuse_no_one_at_both(people, loaded, occasion_column, id_column)
     texts = tuple(step_text(spec, layout, level) for level, _, _ in LEVELS)
     specs = [parse_model(text, f"{spec.source} ({level} over occasions)") for text, (level, _, _) in zip(texts, LEVELS)]
     from cfa_tool.workflows.compare import compare

@@ -353,3 +353,24 @@ def test_an_order_given_as_one_text_is_refused_and_quoted_labels_keep_their_comm
                  "--occasion-order", 'time 1,"time, 2"', "--json", "out.json"])
     assert code == 0, capsys.readouterr().err
     assert [o["occasion"] for o in json.loads((tmp_path / "out.json").read_text())["occasions"]] == ["time 1", "time, 2"]
+
+
+def test_the_messages_name_the_file_and_the_occasions_in_the_users_words(tmp_path):
+    # hostile trial s27: cases 12 (ids never matching), 03 (1 and 1.0), 10 ('_1' and '-1'), 09 (--id an item)
+    long = people(60, 25)
+    path = tmp_path / "waves.csv"
+    apart = long.assign(person_id=long["person_id"].where(long["wave"] == 1, long["person_id"].str[1:]))
+    apart.to_csv(path, index=False)
+    with pytest.raises(DataError, match=r"waves.csv: no person of 'person_id' answered at both occasions 1 and 2 of "
+                                        r"'wave' \(ids at 1 such as 'p0000', 'p0001', 'p0002'; at 2 such as '0000'"):
+        invariance_over_occasions(ONE_OCCASION, path, occasion_column="wave", id_column="person_id")
+    written = long.assign(wave=long["wave"].astype(str))
+    written.loc[:4, "wave"] = "1.0"  # written as a spreadsheet may export some of them
+    written.to_csv(path, index=False)
+    with pytest.raises(DataError, match=r"waves.csv: column 'wave' holds occasions that read alike \(1.0, 1\)"):
+        invariance_over_occasions(ONE_OCCASION, path, occasion_column="wave", id_column="person_id")
+    wide = widened(long).rename(columns=lambda c: c.replace("_t1", "_1").replace("_t2", "-1"))
+    with pytest.raises(OptionError, match=r"name occasions that read alike \(1, 1\)"):
+        invariance_over_occasions(ONE_OCCASION, wide, occasion_endings=("_1", "-1"))
+    with pytest.raises(OptionError, match=r"'vig1' is a variable of the model and cannot also be the id column"):
+        invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="vig1")
