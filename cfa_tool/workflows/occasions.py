@@ -276,11 +276,12 @@ def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, oc
         raise DataError(f"{shown_path(source)}: the items' names with the occasions' endings clash: {clash}; rename "
                         f"the items or the occasions")
     counts = [int((frame[occasion_column] == v).sum()) for v in order]
-    notes = [f"Rows set side by side by '{id_column}': {count_text(len(frame))} rows of "
-             f"{count_text(len(people))} people at {len(order)} occasions of '{occasion_column}' ("
+    missing = len(people) * len(order) - len(frame)
+    notes = [f"Rows set side by side by '{id_column}': {counted(len(frame), 'row')} of "
+             f"{counted(len(people), 'person', 'people')} at {len(order)} occasions of '{occasion_column}' ("
              + ", ".join(f"{lab}: {count_text(c)}" for lab, c in zip(labels, counts)) + ")"
-             + (f"; {count_text(len(people) * len(order) - len(frame))} occasions of people missing there are gaps, "
-                f"kept by full-information ML" if len(frame) < len(people) * len(order) else "") + "."]
+             + (f"; {counted(missing, 'occasion')} of people missing there {'is a gap' if missing == 1 else 'are gaps'}"
+                f", kept by full-information ML" if missing else "") + "."]
     return wide, layout, notes
 
 

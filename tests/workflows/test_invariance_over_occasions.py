@@ -374,3 +374,11 @@ def test_the_messages_name_the_file_and_the_occasions_in_the_users_words(tmp_pat
         invariance_over_occasions(ONE_OCCASION, wide, occasion_endings=("_1", "-1"))
     with pytest.raises(OptionError, match=r"'vig1' is a variable of the model and cannot also be the id column"):
         invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="vig1")
+
+
+def test_one_occasion_missing_is_counted_in_the_singular():
+    long = people(100, 26)
+    gone = long.drop(index=long.index[(long["wave"] == 2) & (long["person_id"] == "p0003")])
+    result = invariance_over_occasions(ONE_OCCASION, gone, occasion_column="wave", id_column="person_id")
+    # one row dropped above: one person missing at one occasion
+    assert any("; 1 occasion of people missing there is a gap, kept by full-information ML" in n for n in result.notes)
