@@ -583,7 +583,8 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
         # the rows set side by side, which no file holds
         frame = loaded.frame
         ids = ids_by_row_number(frame[id_column].map(id_text) + " at " + frame[occasion_column].map(id_text), frame)
-        long_problems = data_problems(analysed_odd_values(loaded, spec, None), spec, ids=ids, id_column=id_column)
+        long_problems = data_problems(analysed_odd_values(loaded, spec, None), spec, ids=ids, id_column=id_column,
+                                      takes_design=False)  # over occasions no --cluster applies yet
     else:
         if occasion_order is not None:  # the endings' order is the occasions' order
             raise OptionError(f"the endings of wide data give the occasions' order ({Option.OCCASION_ORDER} is for "
@@ -613,7 +614,12 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
                 raise
             raise DataError(f"wide data over occasions need a column for every item at every occasion (the item's "
                             f"name with the ending of the occasion: {', '.join(endings)}): {error.message}") from None
-        wide, shaped, long_problems = loaded.frame, [], None
+        wide, shaped = loaded.frame, []
+        # the cautions on the file's rows, named by the file's rows (not the rows of a data frame compare reads)
+        ids = (ids_by_row_number(loaded.frame[id_column].map(id_text), loaded.frame)
+               if isinstance(id_column, str) and id_column in loaded.frame.columns else None)
+        long_problems = data_problems(analysed_odd_values(loaded, wide_spec, None), wide_spec, ids=ids,
+                                      id_column=id_column if ids is not None else None, takes_design=False)
     people = occasion_people(wide, spec, layout, loaded.frame if occasion_column is not None else None, id_column)
     _refuse_no_one_at_both(people, loaded, occasion_column, id_column)
     texts = tuple(step_text(spec, layout, level) for level, _, _ in LEVELS)

@@ -382,3 +382,15 @@ def test_one_occasion_missing_is_counted_in_the_singular():
     result = invariance_over_occasions(ONE_OCCASION, gone, occasion_column="wave", id_column="person_id")
     # one row dropped above: one person missing at one occasion
     assert any("; 1 occasion of people missing there is a gap, kept by full-information ML" in n for n in result.notes)
+
+
+def test_repeated_ids_of_wide_data_are_named_by_the_files_rows_without_advice_the_route_refuses(tmp_path):
+    wide = widened(people(120, 27))
+    wide.loc[:9, "person_id"] = wide.loc[60:69, "person_id"].to_numpy()  # 10 ids on two rows each
+    path = tmp_path / "wide.csv"
+    wide.to_csv(path, index=False)
+    result = invariance_over_occasions(ONE_OCCASION, path, occasion_endings=("_t1", "_t2"), id_column="person_id")
+    said = " ".join(str(w) for w in result.warnings) + " ".join(str(p.advice) for p in result.data_problems)
+    # the file's rows (header row 1): frame rows 0 and 60 are file rows 2 and 62 (hostile trial s27, case 04)
+    assert "rows 2, 62" in said and "index label" not in said
+    assert "--cluster" not in said  # refused over occasions (commands.invariance._NOT_OVER_OCCASIONS)
