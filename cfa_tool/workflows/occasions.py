@@ -646,7 +646,11 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
                     and not untested else ())
         steps.append(InvarianceStep(level, result, test_k, holds, culprits, any(not s.holds for s in steps),
                                     delta_srmr=srmr, unjudged=not_judged))
-    problems = tuple(found.problems) if long_problems is None else tuple(long_problems)
+    problems = tuple(long_problems)
+    if occasion_column is None:  # wide data: the fit's cautions on the analysed answers (their tails, say) too, those
+        # of the kinds named above by the file's rows left out
+        named = {p.kind for p in problems}
+        problems += tuple(p for p in found.problems if p.kind not in named)
     warnings: list[str] = []  # the steps' impossible solutions first, in the ladder's order, then the data's
     for step in steps:
         if step.result.converged and not step.result.admissible:
