@@ -8,8 +8,8 @@ from cfa_tool.model.description import parameter_words
 from cfa_tool.numbers import count_text, word_list
 from cfa_tool.reporting.document import Listing, Report, ResultKind
 from cfa_tool.reporting.numbers import est_num, num, p_phrase, p_value, signed, unit
-from cfa_tool.reporting.paragraph import (_Shape, _basis, _departures, _held, _estimator_phrase, _sample_phrase, _step_problems,
-                                         _structure)
+from cfa_tool.reporting.paragraph import (_Shape, _basis, _departures, _estimator_phrase, _held, _sample_phrase,
+                                         _step_problems, _structure)
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, _table
 from cfa_tool.reporting.workflow_tables import (CHECK_SOLUTIONS, CONFIGURAL_NOTE, INADMISSIBLE_VERDICT_NOTE, NOT_JUDGED,
                                                 SOME_NOT_ADMISSIBLE, TEST_MET, TEST_MET_NOTE, _admissible_cell,
@@ -177,12 +177,15 @@ def occasions_paragraph(result) -> str:
     counts = result.people_counts
     if counts is not None:  # who was left out and who was seen at both occasions, as the report's first lines say
         gone = counts.read - counts.analysed
-        parts.append((f"Of the {count_text(counts.read)} people read, {count_text(gone)} answered none of the items at "
-                      f"any occasion and {'was' if gone == 1 else 'were'} left out; of the {count_text(counts.analysed)}"
-                      f" analysed, " if gone else f"Of the {count_text(counts.analysed)} people, ")
-                     + counts.at_both().replace(" of them", "", 1) + "."
-                     if gone or counts.fewest[2] < counts.analysed else
-                     f"Each of the {count_text(counts.analysed)} people answered at every occasion.")
+        both = counts.at_both().replace(" of them", "", 1)
+        if gone:
+            parts.append(f"Of the {count_text(counts.read)} people read, {count_text(gone)} answered none of the items "
+                         f"at any occasion and {'was' if gone == 1 else 'were'} left out; of the "
+                         f"{count_text(counts.analysed)} analysed, {both}.")
+        elif counts.fewest[2] < counts.analysed:
+            parts.append(f"Of the {count_text(counts.analysed)} people, {both}.")
+        else:
+            parts.append(f"Each of the {count_text(counts.analysed)} people answered at every occasion.")
     if method is not None:
         parts.append(f"Each step was compared with the one before by {method.phrase}, and judged by "
                      f"{result.rule.description.replace('alpha', unit(result.alpha, 2))}; the configural model by its "

@@ -544,7 +544,8 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
     scaled difference; rows with gaps are kept by full-information ML, which the scalar step's means need."""
     for given, option in ((occasion_order, Option.OCCASION_ORDER), (occasion_endings, Option.OCCASION_ENDINGS)):
         if isinstance(given, str):  # its characters would be read as the occasions (hostile s27)
-            raise OptionError(f"{option} takes a list of the occasions' {'labels' if given is occasion_order else 'endings'}"
+            what = "labels" if given is occasion_order else "endings"
+            raise OptionError(f"{option} takes a list of the occasions' {what}"
                               f", one item each (['pre', 'post']), not one text ({given!r})")
     rule = check.choice(DecisionRule, decide_by, "the decision rule")
     alpha = check.probability("alpha (the level of the difference tests)", 0.05 if alpha is None else alpha)
@@ -571,7 +572,7 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             raise OptionError(f"'{id_column}' cannot be both the id column and the occasion column")
         _, loaded, read_notes = read_inputs_with_notes(spec, data, sheet, missing_codes, keep,
                                                        (id_column, occasion_column), keeps_gaps=True,
-                                                       chosen=_chosen(id_column, occasion_column), **reading)
+                                                       listwise_applies=False, chosen=_chosen(id_column, occasion_column), **reading)
         for column in (occasion_column, id_column):
             if column not in loaded.frame.columns:
                 raise DataError(f"{shown_path(loaded.source)}: no column '{column}'")
@@ -608,7 +609,7 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
         try:
             _, loaded, read_notes = read_inputs_with_notes(wide_spec, data, sheet, missing_codes, keep,
                                                            (id_column,) if isinstance(id_column, str) else (),
-                                                           keeps_gaps=True, **reading)
+                                                           keeps_gaps=True, listwise_applies=False, **reading)
         except ModelError as error:  # a column of the model of every occasion, not a line of the user's file
             if error.location is None or error.location.source != wide_source:
                 raise
@@ -678,7 +679,8 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
     changes, note = _latent_changes(steps, spec, layout)
     gaps = bool(wide[list(specs[0].observed_names)].isna().to_numpy().any())
     return OccasionsResult(occasion_column, id_column, layout, tuple(steps), texts[:len(steps)], alpha, rule,
-                           tuple(warnings), tuple(read_notes) + tuple(shaped) + people.notes(occasion_column is not None)
+                           tuple(warnings),
+                           tuple(read_notes) + tuple(shaped) + people.notes(occasion_column is not None)
                            + tuple(found.notes), problems, changes, note, people.analysed, gaps, people_counts=people,
                            one_occasion=_description(spec),
                            factor_items=tuple((f.name.text, tuple(i.text for i in f.indicators)) for f in spec.factors))

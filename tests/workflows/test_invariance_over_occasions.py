@@ -394,3 +394,22 @@ def test_repeated_ids_of_wide_data_are_named_by_the_files_rows_without_advice_th
     # the file's rows (header row 1): frame rows 0 and 60 are file rows 2 and 62 (hostile trial s27, case 04)
     assert "rows 2, 62" in said and "index label" not in said
     assert "--cluster" not in said  # refused over occasions (commands.invariance._NOT_OVER_OCCASIONS)
+
+
+def test_a_half_of_complete_rows_is_refused_with_advice_the_route_takes(tmp_path, monkeypatch, capsys):
+    from cfa_tool.cli import main
+    from cfa_tool.data.halves import RandomHalf
+
+    monkeypatch.chdir(tmp_path)
+    long = people(150, 28)
+    long.loc[long.index[::17], "vig2"] = np.nan  # some rows with a gap
+    long.to_csv("long.csv", index=False)
+    (tmp_path / "vig.cfa").write_text(ONE_OCCASION)
+    assert main(["replicate", "vig.cfa", "--data", "long.csv", "--incomplete-rows", "listwise", "--cluster",
+                 "person_id", "--seed", "2", "--halves-file", "hl.csv"]) == 0
+    capsys.readouterr()
+    with pytest.raises(DataError, match="draw halves of every row with an answer") as found:
+        invariance_over_occasions(ONE_OCCASION, "long.csv", occasion_column="wave", id_column="person_id",
+                                  keep=[RandomHalf("hl.csv", "A")])
+    # the route refuses listwise deletion (hostile trial s27, case 07): no advice to give it
+    assert "analyse the half as it was drawn" not in str(found.value)
