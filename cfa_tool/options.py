@@ -178,6 +178,7 @@ class Option(enum.Enum):
     GROUP_COLUMN = ("--group-column", "group")
     OCCASION_COLUMN = ("--occasion-column", "occasion_column")  # invariance over occasions of long data
     OCCASION_ORDER = ("--occasion-order", "occasion_order")  # ... the order of occasions named by text
+    OCCASION_ENDINGS = ("--occasion-endings", "occasion_endings")  # ... the column endings of wide data
     REFERENCE_GROUP = ("--reference-group", "reference_group")
     ID_COLUMN = ("--id", "id_column")
     NAMES_ROW = ("--names-row", "names_row")

@@ -9,7 +9,7 @@ from dataclasses import replace
 from pathlib import Path
 
 from cfa_tool.errors import OptionError, printable
-from cfa_tool.numbers import cut_list
+from cfa_tool.numbers import cut_list, word_list
 
 
 def check_files(args: argparse.Namespace, outputs: list[tuple[str, str | None]], inputs: list[str | None],
@@ -24,6 +24,8 @@ def check_files(args: argparse.Namespace, outputs: list[tuple[str, str | None]],
     outputs = list(outputs) + [(o, getattr(args, a, None)) for o, a in REPORT_FILES if o not in asked]
     targets = check_outputs(outputs, [i for i in inputs if i], [("--tables", getattr(args, "tables", None))],
                             new_only=never_replaced)
+    for option, attribute in REPORT_FILES:  # after the guard's refusals, which name an input or a folder
+        require_report_ending(option, getattr(args, attribute, None))
     args._targets = targets
     args._stdout_taken = any(t.is_stdout for t in targets.values())
     return targets
@@ -37,6 +39,35 @@ def require_suffix(option: str, given: str | None, suffix: str, what: str) -> No
     if given and given != "-" and Path(given).suffix.lower() != suffix and not special_file(given):
         raise OptionError(f"{option}: {what} are written as {suffix[1:].upper()}; give a file name ending in {suffix}, "
                           f"not '{printable(given)}'")
+
+
+#: the endings of each report option's files (the first the one advice gives)
+REPORT_ENDINGS = {"--json": (".json",), "--html": (".html", ".htm"), "--markdown": (".md", ".markdown", ".txt"),
+                  "--docx": (".docx",)}
+#: the endings of files of other kinds (reports, data, models, pictures, tables): a report written under one of them
+#: would replace such a file with another kind, or leave a file whose name says what it does not hold (hostile s27:
+#: '--docx r1.json' replaced a saved JSON result with a Word file)
+OTHER_KINDS = frozenset({".json", ".html", ".htm", ".md", ".markdown", ".txt", ".docx", ".doc", ".odt", ".rtf",
+                         ".csv", ".tsv", ".dat", ".xlsx", ".xlsm", ".xls", ".ods", ".sav", ".zsav", ".por", ".dta",
+                         ".sas7bdat", ".cfa", ".svg", ".png", ".pdf", ".tex", ".py", ".r", ".zip"})
+
+
+def require_report_ending(option: str, given: str | None) -> None:
+    """A report option's file (--json, --html, --markdown, --docx) must not carry the ending of another kind of file:
+    the one check of every command (:func:`check_files`), as --diagram and --draft check theirs.  A Word file must end
+    in .docx (Word opens no other); the other reports may carry an ending of no known kind, or none; standard output
+    and special files (written in place, whatever their names) need none."""
+    from cfa_tool.output_files import special_file
+
+    endings = REPORT_ENDINGS.get(option)
+    if not given or not endings or given == "-" or special_file(given):
+        return
+    ending = Path(given).suffix.lower()
+    if ending in endings or (option != "--docx" and ending not in OTHER_KINDS):
+        return
+    raise OptionError(f"{option}: '{printable(given)}' "
+                      + (f"ends in {ending}, the ending of another kind of file" if ending else "has no ending")
+                      + f"; give a file name ending in {word_list(endings, 'or')}")
 
 
 def say(args: argparse.Namespace, text: str) -> None:

@@ -90,11 +90,19 @@ def _over_occasions(args: argparse.Namespace) -> int:
         raise OptionError(f"{given[0]} is not yet available over occasions (the ladder over occasions is fitted in one "
                           f"group of continuous items, without a sampling design or a partial search); see "
                           f"not-yet-available.md")
-    endings = None if args.occasion_endings is None else [e.strip() for e in args.occasion_endings.split(",")]
-    order = None if args.occasion_order is None else [o.strip() for o in args.occasion_order.split(",")]
+    endings = None if args.occasion_endings is None else _comma_values(args.occasion_endings)
+    order = None if args.occasion_order is None else _comma_values(args.occasion_order)
     result = invariance_over_occasions(Path(args.model), args.data, occasion_column=args.occasion_column,
                                        id_column=args.id, occasion_endings=endings, occasion_order=order,
                                        alpha=args.alpha,
                                        decide_by=args.decide_by, test=O.fit_test(args), missing=args.missing,
                                        **O.reading_args(args))
     return emit(args, result)
+
+
+def _comma_values(text: str) -> list[str]:
+    """A list option's values split at its commas, a value in double quotes holding commas as in a CSV line (as
+    --keep and --missing-codes read theirs): --occasion-order 'time 1,"time, 2"' (hostile s27)."""
+    import csv
+
+    return [v.strip() for v in next(csv.reader([text], skipinitialspace=True), [])]

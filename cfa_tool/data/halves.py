@@ -536,7 +536,7 @@ def read_halves(path) -> SavedHalves:
 
 def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet: str | None = None, read: str = "",
               items: tuple[str, ...] = (), keeps_gaps: bool | None = None,
-              value_labels: dict | None = None) -> tuple[pd.DataFrame, HalfRows]:
+              value_labels: dict | None = None, listwise_applies: bool = True) -> tuple[pd.DataFrame, HalfRows]:
     """The rows of ``frame`` (the data file's rows after the row filters; ``sheet`` the sheet asked for and ``read``
     the sheet read, data.readers.LoadedData.sheet_read) in the half ``choice`` names, and the half as found; a
     refusal when the halves file is not that of these rows: drawn from a file of other contents (the checksum) or
@@ -575,10 +575,13 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str, sheet:
     with_gaps = _rows_with_gaps(frame, numbers, unlisted, items) if len(unlisted) and not len(absent) else None
     if with_gaps is not None and len(with_gaps) and keeps_gaps:
         listwise = Option.INCOMPLETE_ROWS.given("listwise")
+        # ``listwise_applies`` False: a route that keeps rows with gaps whatever it is given (invariance over
+        # occasions) is advised only halves drawn again (hostile s27: it was advised the option it refuses)
+        give = f"give {listwise} to analyse the half as it was drawn, or " if listwise_applies else ""
         raise DataError(f"{shown} split the {len(saved.rows)} rows of {source} with an answer to every model "
                         f"variable: it leaves out {rows_listed(with_gaps, naming=naming)}, which miss some answers, "
-                        f"as {listwise} leaves them out, and this run keeps the rows with gaps; give {listwise} to "
-                        f"analyse the half as it was drawn, or draw halves of every row with an answer "
+                        f"as {listwise} leaves them out, and this run keeps the rows with gaps; {give}draw halves of "
+                        f"every row with an answer "
                         f"({redraw_words(saved.names(), saved.seed, saved.cluster_column, saved.strata_column, True)})")
     if (len(absent) or len(unlisted)) and with_gaps is None:
         kept = " after the row filters" if frame.attrs.get(KEPT_BY) else ""

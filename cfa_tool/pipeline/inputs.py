@@ -312,7 +312,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
                            names_row: int | None = None, names_option: Option = Option.NAMES_ROW,
                            first_data_row: int | None = None, name_the_file: bool = False, rename=None,
                            rename_option: Option = Option.RENAME, chosen: dict[str, str] | None = None,
-                           keeps_gaps: bool | None = None) -> tuple[Spec, LoadedData, list[str]]:
+                           keeps_gaps: bool | None = None,
+                           listwise_applies: bool = True) -> tuple[Spec, LoadedData, list[str]]:
     """The model and the data read for it, as every command that reads rows reads each of its files; no-answer
     words and labels are read as missing in ``items`` only (None: the model's items), never in a group, id or design
     column; ``names_option``: the option that gave ``names_row`` (replicate's validation file has its own);
@@ -321,13 +322,14 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     ``chosen``: the columns the run chooses for other roles (data.matching.chosen_columns), which may not share a
     factor's name (a column that does and that the run does not read is named in a note); ``keeps_gaps``: whether the
     fit keeps rows with gaps (None: no fit says), by which a half of halves of the complete rows is read or refused
-    (data.halves.half_kept)."""
+    (data.halves.half_kept); ``listwise_applies`` False: the route cannot leave them out, which that refusal's advice
+    then leaves out."""
     words = missing_values_option(missing_codes)[1]
     if words:  # words given in Python: read as no answer as the command line's are (commands.run)
         with also_no_answer(run_words() + words):
             return read_inputs_with_notes(model, data, sheet, missing_codes_option(missing_codes), keep, text_columns,
                                           items, names_row, names_option, first_data_row, name_the_file, rename,
-                                          rename_option, chosen, keeps_gaps)
+                                          rename_option, chosen, keeps_gaps, listwise_applies)
     keep = keep_option(keep)
     spec = load_spec(model)
     halves = _halves(keep)
@@ -347,7 +349,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     refuse_container_cells(frame, [*(chosen or {}), *(f.column for f in filters if f.column is not None)])
     loaded, filter_notes = rows_kept(replace(loaded, frame=frame) if frame is not loaded.frame else loaded, filters)
     if halves:  # the halves were drawn from the rows the filters kept
-        loaded = half_of(loaded, halves[0], data, sheet, spec.observed_names, keeps_gaps)
+        loaded = half_of(loaded, halves[0], data, sheet, spec.observed_names, keeps_gaps, listwise_applies)
         notes.append(loaded.row_filters[-1].note())
     frame, cautions, filters = loaded.frame, loaded.cautions, loaded.row_filters
     analysed, among = rows_analysed(loaded, getattr(chosen, "group", None))  # a fit of groups leaves some out
@@ -470,14 +472,14 @@ def rows_analysed(loaded: LoadedData, group: str | None = None) -> tuple[pd.Data
 
 
 def half_of(loaded: LoadedData, choice: RandomHalf, data, sheet: str | None = None, items: tuple[str, ...] = (),
-            keeps_gaps: bool | None = None) -> LoadedData:
+            keeps_gaps: bool | None = None, listwise_applies: bool = True) -> LoadedData:
     """``loaded`` with only the rows of one half of a halves file (data.halves.half_kept, checked against the data
     file ``data``, the ``sheet`` asked for and the sheet read, and the model's ``items`` with the handling of rows
     with gaps), the half joining the row filters that the reports name."""
     from cfa_tool.data.halves import half_kept
 
     frame, half = half_kept(loaded.frame, choice, data, loaded.source, sheet, loaded.sheet_read, items, keeps_gaps,
-                            loaded.value_labels)
+                            loaded.value_labels, listwise_applies)
     return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame),
                    non_answers=kept_non_answers(loaded.non_answers, frame),
                    read_frame=loaded.read_frame if loaded.read_frame is not None else loaded.frame,

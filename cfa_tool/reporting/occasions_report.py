@@ -8,7 +8,8 @@ from cfa_tool.model.description import parameter_words
 from cfa_tool.numbers import count_text, word_list
 from cfa_tool.reporting.document import Listing, Report, ResultKind
 from cfa_tool.reporting.numbers import est_num, num, p_phrase, p_value, signed, unit
-from cfa_tool.reporting.paragraph import _estimator_phrase, _sample_phrase
+from cfa_tool.reporting.paragraph import (_Shape, _basis, _departures, _estimator_phrase, _held, _sample_phrase,
+                                         _step_problems, _structure)
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, _table
 from cfa_tool.reporting.workflow_tables import (CHECK_SOLUTIONS, CONFIGURAL_NOTE, INADMISSIBLE_VERDICT_NOTE, NOT_JUDGED,
                                                 SOME_NOT_ADMISSIBLE, TEST_MET, TEST_MET_NOTE, _admissible_cell,
@@ -124,9 +125,14 @@ def occasions_report(result) -> Report:
     notice = None if not warnings else ProblemNotice(SOME_NOT_ADMISSIBLE if inadmissible else CHECK_SOLUTIONS,
                                                      warnings, inadmissible)
     first = steps[0].result
-    lines = (f"The same {count_text(result.people)} people at {_where(result)}, in one group: each step is the model "
-             f"of every occasion side by side, each item's residuals correlated across the occasions",
-             f"{count_text(first.n_obs)} people analysed; estimation: {first.estimator}",
+    counts = result.people_counts
+    both = f" ({counts.at_both()})" if counts is not None else ""
+    gone = counts.read - counts.analysed if counts is not None else 0
+    read = (f" of the {count_text(counts.read)} read ({count_text(gone)} answered no item at any occasion and "
+            f"{'was' if gone == 1 else 'were'} left out)" if gone else "")
+    lines = (f"The same people at {_where(result)}, in one group{both}: each step is the model of every occasion side "
+             f"by side, each item's residuals correlated across the occasions",
+             f"{count_text(first.n_obs)} people analysed{read}; estimation: {first.estimator}",
              f"Each step after the configural one is judged by "
              f"{result.rule.description.replace('alpha', unit(result.alpha, 2))}.")
     last = steps[-1]
@@ -146,7 +152,7 @@ _HELD = {"configural": "the same pattern of loadings at every occasion", "metric
 def occasions_paragraph(result) -> str:
     """The methods-and-results paragraph: over time, with the same people, exactly the models of the ladder, the
     estimator and the difference test with its authors, each step's figures and verdict, and the latent changes."""
-    from cfa_tool.workflows.invariance import _fit_values, unsound_basis
+    from cfa_tool.workflows.invariance import _fit_values
 
     steps = result.steps
     first = steps[0].result
@@ -158,10 +164,35 @@ def occasions_paragraph(result) -> str:
              f"factors and items side by side, each item's residuals correlated across the occasions and the factors' "
              f"covariances across the occasions free; each factor was scaled by its first item's loading fixed at 1 at "
              f"every occasion. The models were estimated by {_estimator_phrase(first)} ({_sample_phrase(first)})."]
+    d = result.one_occasion
+    if d is not None:  # the model of one occasion, in the words of the ladder across groups' paragraph
+        shape = _Shape({f: set(items) for f, items in result.factor_items},
+                       frozenset(frozenset(p) for p in d.uncorrelated), {}, ())
+        parts.append(f"At each occasion the model had {_structure(d, shape).rstrip(',')}, the same at every "
+                     f"occasion.")
+        departures = _departures(d, shape)
+        if departures:
+            parts.append(departures.replace("The model also included", "At each occasion the model also included", 1)
+                         .replace("The covariance", "At each occasion the covariance"))
+    counts = result.people_counts
+    if counts is not None:  # who was left out and who was seen at both occasions, as the report's first lines say
+        gone = counts.read - counts.analysed
+        both = counts.at_both().replace(" of them", "", 1)
+        if gone:
+            parts.append(f"Of the {count_text(counts.read)} people read, {count_text(gone)} answered none of the items "
+                         f"at any occasion and {'was' if gone == 1 else 'were'} left out; of the "
+                         f"{count_text(counts.analysed)} analysed, {both}.")
+        elif counts.fewest[2] < counts.analysed:
+            parts.append(f"Of the {count_text(counts.analysed)} people, {both}.")
+        else:
+            parts.append(f"Each of the {count_text(counts.analysed)} people answered at every occasion.")
     if method is not None:
         parts.append(f"Each step was compared with the one before by {method.phrase}, and judged by "
                      f"{result.rule.description.replace('alpha', unit(result.alpha, 2))}; the configural model by its "
                      f"own fit against common-practice guide values (Hu & Bentler 1999).")
+    problems = _step_problems(steps)
+    if problems:  # problems first: before any step reads as held (the ladder across groups' sentence)
+        parts.append(problems)
     figures = []
     for k, s in enumerate(steps):
         fit = s.result.fit
@@ -174,10 +205,12 @@ def occasions_paragraph(result) -> str:
         own = (f"{'scaled ' if robust is not None else ''}\u03c7\u00b2({fit.df}) = {num(chi, 2)}, "
                f"CFI = {unit(shown['cfi'])}, RMSEA = {unit(shown['rmsea'])}")
         t = s.versus_previous
-        verdict = ("held" if s.holds and unsound_basis(steps, k) is None else
-                   "met its test but rests on a step that did not hold" if s.holds else "did not hold")
+        verdict = _held(s, _basis(steps, k))  # the ladder across groups' words: an inadmissible step says why
         if t is None:
-            figures.append(f"the configural model ({own}) {'fitted' if s.holds else 'did not fit'} by the guide values")
+            figures.append(f"the configural model ({own}) " + ("did not hold: its solution was not admissible"
+                                                               if not s.result.admissible else
+                                                               f"{'fitted' if s.holds else 'did not fit'} by the guide "
+                                                               f"values"))
         else:
             figures.append(f"the {s.level} step {verdict} (\u0394\u03c7\u00b2({t.df_difference}) = "
                            f"{num(t.chi_square_difference, 2)}, p {p_phrase(t.p_value)}, "

@@ -24,6 +24,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.moments import FEW_TOGETHER_SHARE
 from cfa_tool.data.row_ids import id_text, ids_by_row_number
 from cfa_tool.errors import DataError, ModelError, OptionError, shown_path
 from cfa_tool.language.names import written_name
@@ -31,7 +32,7 @@ from cfa_tool.language.parser import parse_model
 from cfa_tool.language.spec import Spec
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.method import DecisionRule, DifferenceMethod, MissingData
-from cfa_tool.numbers import count_text, cut_list, number
+from cfa_tool.numbers import count_text, counted, cut_list, number
 from cfa_tool.options import Option, own_keywords
 from cfa_tool import options as check
 from cfa_tool.pipeline.inputs import analysed_odd_values, data_problems, load_spec, read_inputs_with_notes
@@ -57,6 +58,21 @@ class OccasionLayout:
     def name(self, name: str, k: int) -> str:
         """``name`` (an item or a factor of the one-occasion model) at the k-th occasion."""
         return f"{name}{self.endings[k]}"
+
+    def clash(self, names: Sequence[str]) -> str:
+        """The first name of the model of every occasion that two (name, occasion) pairs of ``names`` (the
+        one-occasion model's items and factors) would share, in words ('' when none does): item 'a' at ending '11'
+        and item 'a1' at ending '1' are both 'a11', so one column would be two items' column (hostile s27)."""
+        seen: dict[str, tuple[str, int]] = {}
+        for name in names:
+            for k in range(len(self.endings)):
+                written = self.name(name, k)
+                if written in seen and seen[written] != (name, k):
+                    other, j = seen[written]
+                    return (f"'{written}' would be both '{other}' at occasion {self.occasions[j]} and '{name}' at "
+                            f"occasion {self.occasions[k]}")
+                seen.setdefault(written, (name, k))
+        return ""
 
 
 def _refuse_statements(spec: Spec) -> None:
@@ -253,10 +269,59 @@ def _occasion_order(values: pd.Series, column: str, given: Sequence[str] | None,
     values = [v if isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool)
               else number(str(v)) for v in distinct]  # numbers, or text that reads as one (a column read as text)
     if all(v is not None for v in values):
+        if len(set(values)) < len(values):  # 1 and '1.0' in a column read as text (hostile s27): one occasion?
+            alike = [id_text(d) for v, d in zip(values, distinct) if values.count(v) > 1]
+            raise DataError(f"{shown_path(source)}: column '{column}' holds occasions that read alike "
+                            f"({', '.join(alike)}); give each occasion one value")
         return [d for _, d in sorted(zip(values, distinct), key=lambda pair: pair[0])]
     raise OptionError(f"the occasions of '{column}' are named by text ({cut_list([id_text(v) for v in distinct], 5)}), "
                       f"whose order cannot be read from the data: give it ({Option.OCCASION_ORDER} with the occasions in "
                       f"their order, comma-separated, the first first)")
+
+
+def _refuse_no_one_at_both(people: OccasionPeople, loaded, occasion_column: str | None, id_column: str | None) -> None:
+    """No person answering at both occasions of some pair: the covariances across them have no data (hostile s27:
+    ids 'P0' at wave 1 and '0' at wave 2 stopped the fit on a pair of columns of no file); an error naming the file
+    and, for long data, a few ids of each occasion, which show how they are written."""
+    k, j, n = people.fewest
+    if n or not people.analysed:
+        return
+    a, b = people.occasions[k], people.occasions[j]
+    if occasion_column is not None:
+        frame = loaded.frame
+        labels = frame[occasion_column].map(id_text)
+        seen = [cut_list(list(dict.fromkeys(frame.loc[labels == o, id_column].map(id_text).dropna()))[:3], 3,
+                         lambda i: f"'{i}'") for o in (a, b)]
+        raise DataError(f"{shown_path(loaded.source)}: no person of '{id_column}' answered at both occasions {a} and "
+                        f"{b} of '{occasion_column}' (ids at {a} such as {seen[0]}; at {b} such as {seen[1]}); write "
+                        f"each person's id alike at every occasion")
+    raise DataError(f"{shown_path(loaded.source)}: no row answers items at both occasions {a} and {b}; each row holds "
+                    f"one person's answers at every occasion")
+
+
+def _refuse_split_people(loaded, id_column: str) -> None:
+    """A half of a halves file (--half) drawn row by row, or by another column than the people's ids, that leaves some
+    of its people's occasions in the other half: an error naming how many (hostile s27: 144 of 222 people of a half
+    had their other occasion in the other half, so the halves shared people and the missing occasions read as
+    skipped).  Halves drawn whole people at a time (by the id column as the cluster) keep each person in one half."""
+    from cfa_tool.data.halves import HalfRows
+
+    half = next((f for f in loaded.row_filters if isinstance(f, HalfRows)), None)
+    if half is None or half.cluster_column == id_column or loaded.read_frame is None:
+        return
+    whole = loaded.read_frame
+    ids = whole[id_column].map(id_text)
+    inside = whole.index.isin(loaded.frame.index)
+    people = set(ids[inside].dropna())
+    split = people & set(ids[~inside].dropna())
+    if not split:
+        return
+    drawn = f"by {half.cluster_column}" if half.cluster_column else "row by row"
+    raise DataError(f"{shown_path(half.halves_file)} was drawn {drawn}, and {count_text(len(split))} of the "
+                    f"{count_text(len(people))} people of {half.phrase()} have rows of other occasions in the other "
+                    f"half: the halves share people, and those occasions would read as missing; draw the halves whole "
+                    f"people at a time ({Option.CLUSTER.given(id_column)} beside {Option.SPLIT} or replicate's "
+                    f"--halves-file)")
 
 
 def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, occasion_column: str,
@@ -301,17 +366,96 @@ def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, oc
                 raise DataError(f"{shown_path(source)}: item '{item}' has no answer at occasion {labels[k]} of "
                                 f"'{occasion_column}': every occasion needs the same items")
             wide[layout.name(item, k)] = part[item].reindex(people).to_numpy()
-    clash = set(wide.columns[1:]) & {id_column}
-    if clash or len(set(wide.columns)) < len(wide.columns):
-        raise DataError(f"{shown_path(source)}: the items' names with the occasions' endings clash with each other or "
-                        f"with the id column; rename the items or the occasions")
+    clash = (f"'{id_column}' would be both the id column and an item at an occasion"
+             if id_column in set(wide.columns[1:]) else layout.clash(items))
+    if clash:
+        raise DataError(f"{shown_path(source)}: the items' names with the occasions' endings clash: {clash}; rename "
+                        f"the items or the occasions")
     counts = [int((frame[occasion_column] == v).sum()) for v in order]
-    notes = [f"Rows set side by side by '{id_column}': {count_text(len(frame))} rows of "
-             f"{count_text(len(people))} people at {len(order)} occasions of '{occasion_column}' ("
+    missing = len(people) * len(order) - len(frame)
+    notes = [f"Rows set side by side by '{id_column}': {counted(len(frame), 'row')} of "
+             f"{counted(len(people), 'person', 'people')} at {len(order)} occasions of '{occasion_column}' ("
              + ", ".join(f"{lab}: {count_text(c)}" for lab, c in zip(labels, counts)) + ")"
-             + (f"; {count_text(len(people) * len(order) - len(frame))} occasions of people missing there are gaps, "
-                f"kept by full-information ML" if len(frame) < len(people) * len(order) else "") + "."]
+             + (f"; {counted(missing, 'occasion')} of people missing there {'is a gap' if missing == 1 else 'are gaps'}"
+                f", kept by full-information ML" if missing else "") + "."]
     return wide, layout, notes
+
+
+#: fewer people than this share of those analysed answering at both occasions of a pair: a caution first (the rule
+#: of pairs of items answered together, data.moments.FEW_TOGETHER_SHARE: a rule of thumb of this project)
+FEW_AT_BOTH_SHARE = FEW_TOGETHER_SHARE
+
+
+@dataclass(frozen=True)
+class OccasionPeople:
+    """Who the ladder analyses: the people read (rows of wide data, ids of long data), those who answered some item
+    at some occasion (the rest are left out, as a fit leaves out rows that answer none of the model variables), how
+    many rows of a long file the people left out had, and for each pair of occasions the people who answered some
+    item at both, on whom every covariance across the pair rests."""
+
+    read: int
+    analysed: int
+    rows_left_out: int  # rows of the long file (0 for wide data: each person one row)
+    occasions: tuple[str, ...]
+    together: tuple[tuple[int, int, int], ...]  # (occasion k, occasion j, people answering at both)
+
+    @property
+    def fewest(self) -> tuple[int, int, int]:
+        """The pair of occasions answered together by the fewest people."""
+        return min(self.together, key=lambda t: t[2])
+
+    def pair_words(self, pair: tuple[int, int, int]) -> str:
+        """'both occasions' with two occasions, else 'both occasions 1 and 3'."""
+        if len(self.occasions) == 2:
+            return "both occasions"
+        return f"both occasions {self.occasions[pair[0]]} and {self.occasions[pair[1]]}"
+
+    def at_both(self) -> str:
+        """How many of the people analysed answered at both occasions (at the pair answered by the fewest)."""
+        pair = self.fewest
+        fewest = "" if len(self.occasions) == 2 else ", the fewest of any pair"
+        return f"{count_text(pair[2])} of them answered at {self.pair_words(pair)}{fewest}"
+
+    def few_together(self, long: bool) -> str:
+        """The caution when few of the people analysed answered at both occasions of some pair ('' otherwise)."""
+        pair = self.fewest
+        if not self.analysed or pair[2] >= FEW_AT_BOTH_SHARE * self.analysed:
+            return ""
+        cause = ("each person's id written alike at every occasion: 'P7' at one occasion and '7' at another are two "
+                 "people, each missing at the other occasion" if long else
+                 "each person's answers at every occasion in one row")
+        return (f"only {count_text(pair[2])} of the {count_text(self.analysed)} people analysed answered at "
+                f"{self.pair_words(pair)}: every covariance across the occasions, and so each step's test and the "
+                f"change of the means, rests on those {count_text(pair[2])} people; check {cause}")
+
+    def notes(self, long: bool) -> tuple[str, ...]:
+        """The note on the people left out for answering no item at any occasion (none when no one was)."""
+        gone = self.read - self.analysed
+        if not gone:
+            return ()
+        rows = f" ({counted(self.rows_left_out, 'row')} of the file)" if long and self.rows_left_out else ""
+        return (f"{count_text(gone)} of {count_text(self.read)} people{rows} answered none of the model's items at any "
+                f"occasion and {'was' if gone == 1 else 'were'} left out.",)
+
+    def to_dict(self) -> dict:
+        return {"people_read": self.read,
+                "people_at_both_occasions": [{"occasions": [self.occasions[k], self.occasions[j]], "people": n}
+                                             for k, j, n in self.together]}
+
+
+def occasion_people(wide: pd.DataFrame, spec: Spec, layout: OccasionLayout,
+                    long: pd.DataFrame | None = None, id_column: str | None = None) -> OccasionPeople:
+    """The counts of :class:`OccasionPeople` from the occasions side by side (one row per person)."""
+    answered = np.column_stack([wide[[layout.name(i, k) for i in spec.observed_names]].notna().to_numpy().any(axis=1)
+                                for k in range(len(layout.occasions))])
+    some = answered.any(axis=1)
+    rows = 0
+    if long is not None and id_column is not None:
+        gone = set(wide[id_column][~some].tolist())
+        rows = int(long[id_column].map(id_text).isin(gone).sum())
+    n = answered.shape[1]
+    together = tuple((k, j, int((answered[:, k] & answered[:, j]).sum())) for k in range(n) for j in range(k + 1, n))
+    return OccasionPeople(len(wide), int(some.sum()), rows, layout.occasions, together)
 
 
 @dataclass(frozen=True, eq=False)
@@ -334,6 +478,10 @@ class OccasionsResult(Presentable):
     #: rows with gaps were fitted by full-information ML (what the normal-theory score tests then assume)
     gaps_by_full_information: bool = False
     freed: tuple = ()  # no partial search over occasions yet (not-yet-available.md)
+    people_counts: OccasionPeople | None = None
+    #: the model of one occasion as the model file writes it (model.description), which the paragraph describes
+    one_occasion: object | None = None
+    factor_items: tuple[tuple[str, tuple[str, ...]], ...] = ()  # each factor of one occasion with its items
 
     @property
     def occasions(self) -> tuple[str, ...]:
@@ -369,6 +517,7 @@ class OccasionsResult(Presentable):
             "occasions": [{"occasion": o, "column_ending": e} for o, e in zip(self.layout.occasions,
                                                                             self.layout.endings)],
             "people": self.people,
+            **({} if self.people_counts is None else self.people_counts.to_dict()),
             "alpha": self.alpha,
             "decision_rule": {"name": self.rule.value, "description": self.rule.description},
             "steps": [{**s.to_dict(), "model": text} for s, text in zip(self.steps, self.texts)],
@@ -411,6 +560,15 @@ def _latent_changes(steps: Sequence[InvarianceStep], spec: Spec,
                         f"{layout.occasions[0]} (whose means are fixed at 0); d: the change over the pooled latent "
                         f"standard deviation of the two occasions; Var. ratio: the factor's variance at that occasion "
                         f"over its variance at occasion {layout.occasions[0]}.")
+
+
+def _description(spec: Spec):
+    """The one-occasion model in the terms of a methods section (model.description.describe): its factors, their
+    items, its 'covary' and 'uncorrelated' statements, as each occasion holds them."""
+    from cfa_tool.model.description import describe
+    from cfa_tool.model.parameters import build_parameter_table
+
+    return describe(spec, build_parameter_table(spec, mean_structure=True))
 
 
 def _later_entries(table, kinds: tuple[str, ...]) -> list:
@@ -480,6 +638,11 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
     Wide data: ``occasion_endings`` ('_t1', '_t2': the item vig1 at the first occasion is the column vig1_t1), with
     ``id_column`` optional.  ``test='robust'`` fits every step with the robust test and tests the steps by the
     scaled difference; rows with gaps are kept by full-information ML, which the scalar step's means need."""
+    for given, option in ((occasion_order, Option.OCCASION_ORDER), (occasion_endings, Option.OCCASION_ENDINGS)):
+        if isinstance(given, str):  # its characters would be read as the occasions (hostile s27)
+            what = "labels" if given is occasion_order else "endings"
+            raise OptionError(f"{option} takes a list of the occasions' {what}"
+                              f", one item each (['pre', 'post']), not one text ({given!r})")
     rule = check.choice(DecisionRule, decide_by, "the decision rule")
     alpha = check.probability("alpha (the level of the difference tests)", 0.05 if alpha is None else alpha)
     if missing is not None and MissingData(missing) is MissingData.LISTWISE:
@@ -497,12 +660,19 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
         if not isinstance(id_column, str):
             raise OptionError(f"long data over occasions need the id column that names each person "
                               f"({Option.ID_COLUMN.given('COLUMN')}), to set each person's occasions side by side")
+        for column, role in ((id_column, "the id column (an id column is never analysed)"),
+                             (occasion_column, "the occasion column")):
+            if column in spec.observed_names:  # the words of every other route (data.row_ids.row_ids)
+                raise OptionError(f"'{column}' is a variable of the model and cannot also be {role}")
+        if id_column == occasion_column:
+            raise OptionError(f"'{id_column}' cannot be both the id column and the occasion column")
         _, loaded, read_notes = read_inputs_with_notes(spec, data, sheet, missing_codes, keep,
                                                        (id_column, occasion_column), keeps_gaps=True,
-                                                       chosen=_chosen(id_column, occasion_column), **reading)
+                                                       listwise_applies=False, chosen=_chosen(id_column, occasion_column), **reading)
         for column in (occasion_column, id_column):
             if column not in loaded.frame.columns:
                 raise DataError(f"{shown_path(loaded.source)}: no column '{column}'")
+        _refuse_split_people(loaded, id_column)
         wide, layout, shaped = wide_from_long(loaded.frame, spec.observed_names, id_column, occasion_column,
                                               loaded.source, occasion_order)
         # the cautions on the rows of the long file, named by its rows and each row by its person and occasion (an id
@@ -510,7 +680,8 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
         # the rows set side by side, which no file holds
         frame = loaded.frame
         ids = ids_by_row_number(frame[id_column].map(id_text) + " at " + frame[occasion_column].map(id_text), frame)
-        long_problems = data_problems(analysed_odd_values(loaded, spec, None), spec, ids=ids, id_column=id_column)
+        long_problems = data_problems(analysed_odd_values(loaded, spec, None), spec, ids=ids, id_column=id_column,
+                                      takes_design=False)  # over occasions no --cluster applies yet
     else:
         if occasion_order is not None:  # the endings' order is the occasions' order
             raise OptionError(f"the endings of wide data give the occasions' order ({Option.OCCASION_ORDER} is for "
@@ -520,18 +691,34 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             raise OptionError(f"wide data over occasions need two or more different column endings, one per "
                               f"occasion, not {', '.join(repr(e) for e in endings) or 'none'}")
         layout = OccasionLayout(tuple(e.strip("_ .-") or e for e in endings), endings)
+        if len(set(layout.occasions)) < len(endings):  # '_1' and '-1': two occasions both called 1 (hostile s27)
+            raise OptionError(f"the column endings {', '.join(repr(e) for e in endings)} name occasions that read "
+                              f"alike ({', '.join(layout.occasions)}): give endings that differ in more than their "
+                              f"punctuation, such as '_t1', '_t2'")
+        clash = layout.clash((*spec.observed_names, *spec.factor_names))
+        if clash:
+            raise OptionError(f"the column endings {', '.join(repr(e) for e in endings)} make names of two items (or "
+                              f"factors) at two occasions alike: {clash}; give endings that keep them apart, such as "
+                              f"'_t1', '_t2'")
         wide_source = f"{spec.source} (every item at every occasion)"
         wide_spec = parse_model(step_text(spec, layout, "configural"), wide_source)
         try:
             _, loaded, read_notes = read_inputs_with_notes(wide_spec, data, sheet, missing_codes, keep,
                                                            (id_column,) if isinstance(id_column, str) else (),
-                                                           keeps_gaps=True, **reading)
+                                                           keeps_gaps=True, listwise_applies=False, **reading)
         except ModelError as error:  # a column of the model of every occasion, not a line of the user's file
             if error.location is None or error.location.source != wide_source:
                 raise
             raise DataError(f"wide data over occasions need a column for every item at every occasion (the item's "
                             f"name with the ending of the occasion: {', '.join(endings)}): {error.message}") from None
-        wide, shaped, long_problems = loaded.frame, [], None
+        wide, shaped = loaded.frame, []
+        # the cautions on the file's rows, named by the file's rows (not the rows of a data frame compare reads)
+        ids = (ids_by_row_number(loaded.frame[id_column].map(id_text), loaded.frame)
+               if isinstance(id_column, str) and id_column in loaded.frame.columns else None)
+        long_problems = data_problems(analysed_odd_values(loaded, wide_spec, None), wide_spec, ids=ids,
+                                      id_column=id_column if ids is not None else None, takes_design=False)
+    people = occasion_people(wide, spec, layout, loaded.frame if occasion_column is not None else None, id_column)
+    _refuse_no_one_at_both(people, loaded, occasion_column, id_column)
     texts = tuple(step_text(spec, layout, level) for level, _, _ in LEVELS)
     specs = [parse_model(text, f"{spec.source} ({level} over occasions)") for text, (level, _, _) in zip(texts, LEVELS)]
     from cfa_tool.workflows.compare import compare
@@ -559,7 +746,11 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
                     and not untested else ())
         steps.append(InvarianceStep(level, result, test_k, holds, culprits, any(not s.holds for s in steps),
                                     delta_srmr=srmr, unjudged=not_judged))
-    problems = tuple(found.problems) if long_problems is None else tuple(long_problems)
+    problems = tuple(long_problems)
+    if occasion_column is None:  # wide data: the fit's cautions on the analysed answers (their tails, say) too, those
+        # of the kinds named above by the file's rows left out
+        named = {p.kind for p in problems}
+        problems += tuple(p for p in found.problems if p.kind not in named)
     warnings: list[str] = []  # the steps' impossible solutions first, in the ladder's order, then the data's
     for step in steps:
         if step.result.converged and not step.result.admissible:
@@ -570,6 +761,9 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             warnings.append(f"the {step.level} model did not converge ({step.result.message}); the ladder stops "
                             f"there")
     warnings += [p.line() for p in problems]
+    few = people.few_together(occasion_column is not None)
+    if few:  # before the ladder's own cautions: every covariance across the occasions rests on those people
+        warnings.insert(0, few)
     if steps[0].result.admissible and steps[0].result.converged and not steps[0].holds and not steps[0].unjudged:
         warnings.insert(0, "the configural model does not fit by the guide values (" + _judged(_fit_values(
             steps[0].result)) + "): every later step compares models that already misfit, so its test says little "
@@ -584,8 +778,11 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
     changes, note = _latent_changes(steps, spec, layout)
     gaps = bool(wide[list(specs[0].observed_names)].isna().to_numpy().any())
     return OccasionsResult(occasion_column, id_column, layout, tuple(steps), texts[:len(steps)], alpha, rule,
-                           tuple(warnings), tuple(read_notes) + tuple(shaped) + tuple(found.notes),
-                           problems, changes, note, len(wide), gaps)
+                           tuple(warnings),
+                           tuple(read_notes) + tuple(shaped) + people.notes(occasion_column is not None)
+                           + tuple(found.notes), problems, changes, note, people.analysed, gaps, people_counts=people,
+                           one_occasion=_description(spec),
+                           factor_items=tuple((f.name.text, tuple(i.text for i in f.indicators)) for f in spec.factors))
 
 
 #: the keywords of :func:`invariance_over_occasions`

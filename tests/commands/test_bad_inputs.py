@@ -176,6 +176,23 @@ def test_json_to_a_hard_link_of_the_model_is_refused(corpus, capsys):
     _check(code, err, 2, ["refusing to write to 'same.cfa'"], before, corpus)
 
 
+@pytest.mark.parametrize("command", [["fit", "models/good.cfa", "--data", "data/good.csv"],
+                                     ["invariance", "models/good.cfa", "--data", "data/good.csv", "--group-column",
+                                      "site"], ["report", "saved.json"]])
+def test_a_report_under_another_kinds_ending_leaves_the_file_there(corpus, capsys, command):
+    # hostile trial s27, case 15: '--docx r1.json' replaced a JSON result this tool had saved with a Word file
+    for saved in ("saved.json", "r1.json"):
+        code, _, _ = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", saved], capsys)
+        assert code == 0
+    for option, name in (("--docx", "r1.json"), ("--html", "r1.json"), ("--markdown", "new.csv"),
+                         ("--docx", "new.txt"), *((("--json", "new.docx"),) if command[0] != "report" else ())):
+        before = _snapshot(corpus)
+        code, _, err = _run(command + [option, name], capsys)
+        ending = name[name.rindex("."):]
+        _check(code, err, 2, [f"{option}: '{name}' ends in {ending}, the ending of another kind of file"], before,
+               corpus)
+
+
 def test_named_pipe_and_character_device_are_written_in_place(corpus, capsys):
     import os
 

@@ -232,3 +232,184 @@ def test_the_long_files_rows_are_named_and_its_ids_repeat_by_design(tmp_path):
     assert ProblemKind.REPEATED_IDS not in kinds
     said = " ".join(str(w) for w in result.warnings)
     assert "value 99" in said and "rows 12, 13, 252" in said
+
+
+def test_wide_endings_that_make_one_column_two_items_are_an_error_naming_it():
+    # item 'a' at ending '11' and item 'a1' at ending '1' are both column 'a11' (hostile trial s27, case 01)
+    wide = pd.DataFrame(np.random.default_rng(1).normal(size=(60, 7)),
+                        columns=["a1", "a11", "a111", "b1", "b11", "c1", "c11"])
+    with pytest.raises(OptionError, match=r"'a11' would be both 'a' at occasion 11 and 'a1' at occasion 1"):
+        invariance_over_occasions("factor f: a, a1, b, c\n", wide, occasion_endings=("1", "11"))
+
+
+def test_people_left_out_and_people_at_both_occasions_are_counted_first(tmp_path):
+    from cfa_tool.reporting.reports import report_of
+
+    long = people(300, 21)
+    blank = long["person_id"].isin([f"p{i:04d}" for i in range(100)])
+    long.loc[blank, ["vig1", "vig2", "vig3", "vig4"]] = np.nan  # 100 people (200 rows) answered nothing
+    result = invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="person_id")
+    # counted from the data built here: 300 people read, 100 with no answer, 200 at both waves
+    assert (result.people, result.to_dict()["people_read"]) == (200, 300)
+    assert result.to_dict()["people_at_both_occasions"] == [{"occasions": ["1", "2"], "people": 200}]
+    assert any("100 of 300 people (200 rows of the file) answered none" in n for n in result.notes)
+    report = report_of(result)
+    assert "100 answered none of the items at any occasion and were left out" in report.paragraph
+    assert "200 people analysed of the 300 read" in str(report.lines[1])
+
+
+def test_few_people_at_both_occasions_is_a_caution_first_naming_the_ids():
+    long = people(300, 22)
+    # 255 of the ids of wave 2 written without their letter: 45 people matched, 555 seen (hostile trial s27, case 13)
+    renamed = (long["wave"] == 2) & ~long["person_id"].isin([f"p{i:04d}" for i in range(45)])
+    long.loc[renamed, "person_id"] = long.loc[renamed, "person_id"].str[1:]
+    result = invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="person_id")
+    assert result.people == 555
+    assert result.warnings[0].startswith("only 45 of the 555 people analysed answered at both occasions")
+    assert "id written alike" in result.warnings[0]
+
+
+def test_the_paragraph_describes_the_model_of_one_occasion():
+    from cfa_tool.reporting.reports import report_of
+
+    rng = np.random.default_rng(2)
+    n = 300
+    first = rng.normal(size=(n, 2))
+    second = 0.7 * first + 0.5 * rng.normal(size=(n, 2))
+    rows = [{"pid": i, "wave": w, **{f"{x}{j}": 0.8 * f[i, k] + 0.6 * rng.normal() + 3
+                                     for k, x in enumerate("ab") for j in (1, 2, 3)}}
+            for i in range(n) for w, f in ((1, first), (2, second))]
+    model = "factor fa: a1, a2, a3\nfactor fb: b1, b2, b3\nuncorrelated fa, fb\ncovary a2, b2\n"
+    result = invariance_over_occasions(model, pd.DataFrame(rows), occasion_column="wave", id_column="pid")
+    paragraph = report_of(result).paragraph
+    # the model file's factors, its 'uncorrelated' and its 'covary' statements (hostile trial s27, case 14)
+    assert "six indicators of two uncorrelated factors (fa and fb)" in paragraph
+    assert "one residual covariance (a2 with b2)" in paragraph
+
+
+def test_the_paragraph_names_the_steps_whose_solutions_are_not_admissible():
+    from cfa_tool.reporting.reports import report_of
+
+    # vig1 nearly without error in 60 people: negative residual variances at every step (hostile trial s27, case 06)
+    rng = np.random.default_rng(1)
+    f1 = rng.normal(size=60)
+    f2 = 0.7 * f1 + 0.5 * rng.normal(size=60) + 0.3
+    rows = [{"person_id": f"P{i}", "wave": k, "vig1": f[i] + 0.02 * rng.normal() + 3,
+             **{f"vig{j}": 0.5 * f[i] + 0.9 * rng.normal() + 3 for j in (2, 3, 4)}}
+            for i in range(60) for k, f in ((1, f1), (2, f2))]
+    result = invariance_over_occasions(ONE_OCCASION, pd.DataFrame(rows), occasion_column="wave",
+                                       id_column="person_id")
+    assert not result.steps[0].result.admissible
+    paragraph = report_of(result).paragraph
+    assert "The solution of the configural model was not admissible (a negative residual variance of vig1_1" in paragraph
+    assert "the metric step did not hold: its solution was not admissible" in paragraph
+
+
+def test_a_half_drawn_row_by_row_that_splits_people_over_occasions_is_an_error(tmp_path, monkeypatch, capsys):
+    from cfa_tool.cli import main
+    from cfa_tool.data.halves import RandomHalf
+
+    monkeypatch.chdir(tmp_path)
+    long = people(200, 23)
+    long.to_csv("long.csv", index=False)
+    halves = {}
+    for name, by in (("rows.csv", []), ("people.csv", ["--cluster", "person_id"])):
+        assert main(["explore", "--data", "long.csv", "--items", "vig1,vig2,vig3,vig4", "--factors", "1",
+                     "--split", "1", "--halves-file", name, *by]) == 0
+        halves[name] = pd.read_csv(name)
+    capsys.readouterr()
+    # the people of the confirmation half of rows.csv with a row in the other half, counted here from the file (its
+    # 'row' the file's row, the header being row 1)
+    half = halves["rows.csv"]
+    person = pd.read_csv("long.csv")["person_id"]
+    at = {name: set(person.iloc[half.loc[half["half"] == name, "row"] - 2]) for name in half["half"].unique()}
+    mine = at["confirmation"]
+    split = len(mine & set().union(*(v for k, v in at.items() if k != "confirmation")))
+    assert split > 0
+    with pytest.raises(DataError, match=rf"rows.csv was drawn row by row, and {split} of the {len(mine)} people of "
+                                        rf"the confirmation half have rows of other occasions in the other half"):
+        invariance_over_occasions(ONE_OCCASION, "long.csv", occasion_column="wave", id_column="person_id",
+                                  keep=[RandomHalf("rows.csv", "confirmation")])
+    kept = invariance_over_occasions(ONE_OCCASION, "long.csv", occasion_column="wave", id_column="person_id",
+                                     keep=[RandomHalf("people.csv", "confirmation")])
+    # drawn whole people at a time: every person of the half at both waves
+    assert kept.to_dict()["people_at_both_occasions"][0]["people"] == kept.people
+
+
+def test_an_order_given_as_one_text_is_refused_and_quoted_labels_keep_their_commas(tmp_path, monkeypatch, capsys):
+    from cfa_tool.cli import main
+
+    long = people(150, 24)
+    named = long.assign(wave=long["wave"].map({1: "time 1", 2: "time, 2"}))
+    # a str would be read character by character as occasions (hostile trial s27, case 08)
+    with pytest.raises(OptionError, match=r"takes a list of the occasions' labels.*not one text \('time 1,time 2'\)"):
+        invariance_over_occasions(ONE_OCCASION, named, occasion_column="wave", id_column="person_id",
+                                  occasion_order="time 1,time 2")
+    monkeypatch.chdir(tmp_path)
+    named.to_csv("waves.csv", index=False)
+    (tmp_path / "vig.cfa").write_text(ONE_OCCASION)
+    # a label with a comma in double quotes, as --keep and --missing-codes read theirs (hostile trial s27, case 16)
+    code = main(["invariance", "vig.cfa", "--data", "waves.csv", "--occasion-column", "wave", "--id", "person_id",
+                 "--occasion-order", 'time 1,"time, 2"', "--json", "out.json"])
+    assert code == 0, capsys.readouterr().err
+    assert [o["occasion"] for o in json.loads((tmp_path / "out.json").read_text())["occasions"]] == ["time 1", "time, 2"]
+
+
+def test_the_messages_name_the_file_and_the_occasions_in_the_users_words(tmp_path):
+    # hostile trial s27: cases 12 (ids never matching), 03 (1 and 1.0), 10 ('_1' and '-1'), 09 (--id an item)
+    long = people(60, 25)
+    path = tmp_path / "waves.csv"
+    apart = long.assign(person_id=long["person_id"].where(long["wave"] == 1, long["person_id"].str[1:]))
+    apart.to_csv(path, index=False)
+    with pytest.raises(DataError, match=r"waves.csv: no person of 'person_id' answered at both occasions 1 and 2 of "
+                                        r"'wave' \(ids at 1 such as 'p0000', 'p0001', 'p0002'; at 2 such as '0000'"):
+        invariance_over_occasions(ONE_OCCASION, path, occasion_column="wave", id_column="person_id")
+    written = long.assign(wave=long["wave"].astype(str))
+    written.loc[:4, "wave"] = "1.0"  # written as a spreadsheet may export some of them
+    written.to_csv(path, index=False)
+    with pytest.raises(DataError, match=r"waves.csv: column 'wave' holds occasions that read alike \(1.0, 1\)"):
+        invariance_over_occasions(ONE_OCCASION, path, occasion_column="wave", id_column="person_id")
+    wide = widened(long).rename(columns=lambda c: c.replace("_t1", "_1").replace("_t2", "-1"))
+    with pytest.raises(OptionError, match=r"name occasions that read alike \(1, 1\)"):
+        invariance_over_occasions(ONE_OCCASION, wide, occasion_endings=("_1", "-1"))
+    with pytest.raises(OptionError, match=r"'vig1' is a variable of the model and cannot also be the id column"):
+        invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="vig1")
+
+
+def test_one_occasion_missing_is_counted_in_the_singular():
+    long = people(100, 26)
+    gone = long.drop(index=long.index[(long["wave"] == 2) & (long["person_id"] == "p0003")])
+    result = invariance_over_occasions(ONE_OCCASION, gone, occasion_column="wave", id_column="person_id")
+    # one row dropped above: one person missing at one occasion
+    assert any("; 1 occasion of people missing there is a gap, kept by full-information ML" in n for n in result.notes)
+
+
+def test_repeated_ids_of_wide_data_are_named_by_the_files_rows_without_advice_the_route_refuses(tmp_path):
+    wide = widened(people(120, 27))
+    wide.loc[:9, "person_id"] = wide.loc[60:69, "person_id"].to_numpy()  # 10 ids on two rows each
+    path = tmp_path / "wide.csv"
+    wide.to_csv(path, index=False)
+    result = invariance_over_occasions(ONE_OCCASION, path, occasion_endings=("_t1", "_t2"), id_column="person_id")
+    said = " ".join(str(w) for w in result.warnings) + " ".join(str(p.advice) for p in result.data_problems)
+    # the file's rows (header row 1): frame rows 0 and 60 are file rows 2 and 62 (hostile trial s27, case 04)
+    assert "rows 2, 62" in said and "index label" not in said
+    assert "--cluster" not in said  # refused over occasions (commands.invariance._NOT_OVER_OCCASIONS)
+
+
+def test_a_half_of_complete_rows_is_refused_with_advice_the_route_takes(tmp_path, monkeypatch, capsys):
+    from cfa_tool.cli import main
+    from cfa_tool.data.halves import RandomHalf
+
+    monkeypatch.chdir(tmp_path)
+    long = people(150, 28)
+    long.loc[long.index[::17], "vig2"] = np.nan  # some rows with a gap
+    long.to_csv("long.csv", index=False)
+    (tmp_path / "vig.cfa").write_text(ONE_OCCASION)
+    assert main(["replicate", "vig.cfa", "--data", "long.csv", "--incomplete-rows", "listwise", "--cluster",
+                 "person_id", "--seed", "2", "--halves-file", "hl.csv"]) == 0
+    capsys.readouterr()
+    with pytest.raises(DataError, match="draw halves of every row with an answer") as found:
+        invariance_over_occasions(ONE_OCCASION, "long.csv", occasion_column="wave", id_column="person_id",
+                                  keep=[RandomHalf("hl.csv", "A")])
+    # the route refuses listwise deletion (hostile trial s27, case 07): no advice to give it
+    assert "analyse the half as it was drawn" not in str(found.value)
