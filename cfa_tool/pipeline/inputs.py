@@ -171,8 +171,10 @@ def _refuse_reordered_numbers(frame: pd.DataFrame, items, old_names: dict[str, s
     example names."""
     if items is None:
         return
-    for name in (x for x in items if x in frame.columns):
-        dtype = frame[name].dtype
+    # the frame's column types read once, without a Series of each item (which copies the frame's attrs, every fit)
+    types = dict(zip(frame.columns, frame.dtypes.tolist()))
+    for name in (x for x in items if x in types):
+        dtype = types[name]
         if not isinstance(dtype, pd.CategoricalDtype) or not dtype.ordered:
             continue
         categories = dtype.categories
