@@ -13,6 +13,7 @@ explanation and what the researcher can try; every view shows them first.
 from __future__ import annotations
 
 import enum
+import functools
 import math
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
@@ -1171,6 +1172,16 @@ EARLIER_WORDS = {"baseline model misfits little: read CFI and TLI beside RMSEA a
 WEAK_ITEM_CORRELATION = 0.15
 
 
+@functools.lru_cache(maxsize=64)
+def _upper_pairs(size: int) -> tuple[np.ndarray, np.ndarray]:
+    """The places above the diagonal of a matrix of ``size`` rows (numpy.triu_indices with offset 1), made once per
+    size (they cost more than the means they pick, every fit)."""
+    rows, cols = np.triu_indices(size, 1)
+    rows.setflags(write=False)
+    cols.setflags(write=False)
+    return rows, cols
+
+
 def within_factor_correlation(spec, observed: tuple[str, ...], covariances) -> float | None:
     """The average absolute correlation of the items that share a factor (each factor's pairs averaged, then the
     factors and ``covariances``' groups averaged; the sample covariances over the items ``observed``), the factors
@@ -1189,7 +1200,7 @@ def within_factor_correlation(spec, observed: tuple[str, ...], covariances) -> f
         corr = cov / np.outer(sd, sd)
         for block in blocks:
             part = np.abs(corr[np.ix_(block, block)])
-            means.append(float(part[np.triu_indices(len(block), 1)].mean()))
+            means.append(float(part[_upper_pairs(len(block))].mean()))
     return float(np.mean(means)) if means else None
 
 

@@ -7,11 +7,12 @@ w_i rows) the sums run over the rows each counted w_i times, N = sum w_i: the te
 repeated by its weight (means and S weighted, b1 = (1/N^2) sum_ij w_i w_j (.)^3, b2 = (1/N) sum_i w_i (.)^2).
 
 The double sum never holds an N x N or N x p^2 array at once.  With whitened rows y_i it is either
-sum_abc T_abc^2 where T_abc = sum_i y_ia y_ib y_ic (N p^3 / 3 operations, as T is symmetric: one item a at a
-time, the block U = T_a.. over b, c >= a, whose triples have smallest index a; by inclusion and exclusion the
-ordered triples with smallest index a add 3 |U|^2 - 3 |U_a.|^2 + U_aa^2; for few items and many rows:
-p^2 < 1.5 N) or the cubed Gram matrix Y Y' taken in blocks of rows small enough to stay in the processor's
-cache, each pair of blocks once (N^2 p / 2 operations, for many items), whichever was timed faster for the shape.
+sum_abc T_abc^2 where T_abc = sum_i y_ia y_ib y_ic (N p^3 / 6 multiply-adds, as T is symmetric: each unordered
+triple a <= b <= c once, one middle index b at a time, the block M = T_.b. over a <= b <= c; an ordered triple of
+three different items stands for 6 orders, of two for 3, so the block adds 6 |M|^2 - 3 |M_.b.(c = b)|^2
+- 3 |M_.b.(a = b)|^2 + T_bbb^2; for few items and many rows: p^2 < 2 N) or the cubed Gram matrix Y Y' taken in
+blocks of rows small enough to stay in the processor's cache, each pair of blocks once (N^2 p / 2 operations, for
+many items), whichever was timed faster for the shape.
 
 Rows with gaps (:func:`kurtosis_with_gaps`; Yuan, Lambert & Fouladi 2004, Mardia's multivariate kurtosis with
 missing data, Multivariate Behavioral Research 39, 413-437 -- the journal, pages and the construction below are
@@ -177,7 +178,9 @@ def _sum_of_cubed_products(Y: np.ndarray, w: np.ndarray | None = None) -> float:
     the Gram matrix, whichever is cheaper."""
     n, p = Y.shape
     total = 0.0
-    if p * p >= 1.5 * n:  # Gram blocks (pairs of row blocks, off-diagonal blocks counted twice): timed faster here
+    if p * p >= 2.0 * n:  # Gram blocks (pairs of row blocks, off-diagonal blocks counted twice): timed faster here
+        # (one BLAS thread: 300 rows of 30 items, 1,000 of 50 and 60; the triples faster at 1,000 rows of 40 items and
+        # at 3,000 of 60, bench/README.md's twenty-seventh round)
         size = max(1, min(n, GRAM_ROWS, BLOCK // n))
         space = np.empty(size * n)  # every block's products in the same memory, taken once (fresh memory each time:
         # about a tenth slower at 60 items and N = 1,000)
@@ -195,9 +198,10 @@ def _sum_of_cubed_products(Y: np.ndarray, w: np.ndarray | None = None) -> float:
         return total
     columns = np.ascontiguousarray(Y.T)
     weighted = columns if w is None else columns * w
-    for a in range(p):  # U = T_a.. over b, c >= a: the triples whose smallest index is a
-        U = (columns[a:] * weighted[a]) @ Y[:, a:]
-        total += 3.0 * float(np.vdot(U, U)) - 3.0 * float(U[0] @ U[0]) + float(U[0, 0]) ** 2
+    for b in range(p):  # M = T_.b. over a <= b <= c: the triples whose middle index is b, each once
+        M = (columns[b:] * weighted[b]) @ Y[:, : b + 1]  # M[c - b, a] = T_abc
+        total += (6.0 * float(np.vdot(M, M)) - 3.0 * float(M[0] @ M[0]) - 3.0 * float(M[:, b] @ M[:, b])
+                  + float(M[0, b]) ** 2)
     return total
 
 

@@ -248,14 +248,16 @@ def entry_gradients(mats, keys: np.ndarray, factors: np.ndarray, codes: np.ndarr
 
 
 def with_omega_errors(rows, model, theta: np.ndarray, covariance: np.ndarray, group: int = 0,
-                      declared=None) -> tuple:
+                      declared=None, mats=None) -> tuple:
     """One group's reliability ``rows`` with the delta-method standard error of each factor's omega (Raykov 2002):
     sqrt(g' V g), g the analytic gradient of omega in theta (:func:`omega_gradient`) and V the estimates' covariance
     the fit computed (``covariance``, of theta: by its information, or the sandwich of a robust or design-based fit).
     Rows whose omega is withheld (:func:`withheld`) or not finite keep None.  Every factor's gradient is gathered at
     the entries by one plan and carried to theta by one product (the default call computes this on every fit).
     The keys of each sum: assessment.reliability.sum_keys of the group's fitted matrices (``declared``: the items of
-    the model's 'reversed' statement, None without one), the one reading of the keys that made ``rows``."""
+    the model's 'reversed' statement, None without one), the one reading of the keys that made ``rows``.  ``mats``:
+    the group's matrices at ``theta`` (model.implied.ModelMatrices) when the caller has them (the fit's, with their
+    implied and latent covariances made), else made here."""
     from dataclasses import replace
 
     table = model.table
@@ -269,7 +271,7 @@ def with_omega_errors(rows, model, theta: np.ndarray, covariance: np.ndarray, gr
     if table.multigroup:  # this group's entries
         sel = model.groups == group
         codes, erows, ecols, J = codes[sel], erows[sel], ecols[sel], J[sel]
-    mats = model.matrices(theta, group)
+    mats = model.matrices(theta, group) if mats is None else mats
     factors = np.array([latent.index(rows[k].factor) for k in wanted])
     keys = sum_keys(mats.L, mats.G, mats.latent_covariance(), mats.implied_covariance(), observed, declared)[:, factors]
     if mats.has_paths:  # higher-order factors: each factor's gradient through A = (I - B)^-1, one at a time

@@ -64,7 +64,7 @@ def id_named_column(frame: pd.DataFrame, skip) -> str | None:
     a unique 'employee_id' names teams, not rows).  Of several so named, all repeating, the one of most distinct
     values (the people's id before the teams'); never a column named as the id of a unit of many respondents
     (:data:`UNIT_WORDS`: 'team_id', 'school_id'), whose repeats are its members (:func:`unit_id_column`)."""
-    named = [c for c in frame.columns if isinstance(c, str) and c not in skip and column_role(c) == IDS
+    named = [c for c in frame.columns.tolist() if isinstance(c, str) and c not in skip and column_role(c) == IDS
              and unit_word(c) is None]  # a team's or a school's id names no row (:data:`UNIT_WORDS`)
     counts = []
     for name in named:
@@ -85,7 +85,7 @@ def unit_id_column(frame: pd.DataFrame, skip) -> tuple[str, str] | None:
     """(the column, its unit's word) of the first column of ``frame`` outside ``skip`` named as the id of a unit of
     many respondents (:func:`unit_word`: 'team_id', 'team') whose values repeat among the rows, else None: the rows
     of one unit, which a fit takes for independent cases unless the units are the design's clusters."""
-    for name in frame.columns:
+    for name in frame.columns.tolist():
         if isinstance(name, str) and name not in skip and (word := unit_word(name)) is not None:
             values = frame[name].dropna()
             try:

@@ -195,7 +195,7 @@ def unfinished_rows_note(frame: pd.DataFrame, source: str) -> Note | None:
     """A note when a survey export's 'Finished' column (FINISHED_COLUMNS) marks some of the rows analysed as not
     finished: they are analysed with the answers they gave, and a row filter leaves them out (a new user had to
     decide alone: 69 unfinished, partly answered responses were fitted without a word).  None otherwise."""
-    column = next((c for c in frame.columns if str(c).strip().casefold() in FINISHED_COLUMNS), None)
+    column = next((c for c in frame.columns.tolist() if str(c).strip().casefold() in FINISHED_COLUMNS), None)
     if column is None:
         return None
     values = frame[column]

@@ -790,7 +790,7 @@ def written_non_answers(frame: pd.DataFrame, keep_text: tuple[str, ...] = (),
     out = frame
     kept = set(keep_text)
     texts_by_type = {}  # columns of text only, judged by their dtypes once (a default fit reads every frame so)
-    for column, dtype in zip(frame.columns, frame.dtypes):
+    for column, dtype in zip(frame.columns.tolist(), frame.dtypes):
         if column in kept:
             continue
         if dtype not in texts_by_type:

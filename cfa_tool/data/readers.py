@@ -236,7 +236,8 @@ def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], w
     ``missing_codes`` and value labels that say no answer.  The one reading of no answers, so that a file and the
     same table given as a data frame are read alike."""
     mine = None if items is None else {str(x) for x in items}
-    as_written = tuple(text_columns) if mine is None else tuple(c for c in loaded.frame.columns if str(c) not in mine)
+    as_written = tuple(text_columns) if mine is None else tuple(c for c in loaded.frame.columns.tolist()
+                                                                if str(c) not in mine)
     frame, written = written_non_answers(loaded.frame, as_written, listed)  # before the codes: 'refused' made a column text
     item_labels = {c: v for c, v in loaded.value_labels.items() if c not in as_written}
     on_answers = codes_on_answers(frame, missing_codes, item_labels, mine, row_numbers(frame)) if missing_codes else ()

@@ -635,7 +635,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                       robust=robust, estimates=estimates, modification_indices=mis, groups=group_results,
                       warnings=warnings, options=options, group_column=group_column, problems=problems,
                       parameter_covariance=cov_theta if est.converged else None, parameter_labels=table.free_labels, model=model,
-                      completely_at_random=missingness)
+                      completely_at_random=missingness, group_matrices=mats)
 
 
 def helpers_only_note(count: int, read: int) -> str:

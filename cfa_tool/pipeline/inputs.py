@@ -31,7 +31,8 @@ from cfa_tool.data.labels import (CODED_LABELS, cells_as_labels, label_notes, la
                                   refuse_container_cells)
 from cfa_tool.data.matching import (answer_range_notes, refuse_name_twins, check_codes_off_scales, check_columns, check_declared_ranges,
                                     chosen_columns)
-from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
+from cfa_tool.data.moments import (ItemColumns, SampleMoments, column_dtypes, item_values, missing_summary, row_numbers,
+                                   sample_moments)
 from cfa_tool.data.kept_counts import analysed_rows, kept_non_answers, kept_reading_notes
 from cfa_tool.data.non_answers import also_no_answer, beyond_scale, non_answer_caution, run_words
 from cfa_tool.data.descriptives import AnswerExtremes, few_category_items, few_category_note, piled_up_items
@@ -171,8 +172,11 @@ def _refuse_reordered_numbers(frame: pd.DataFrame, items, old_names: dict[str, s
     example names."""
     if items is None:
         return
-    for name in (x for x in items if x in frame.columns):
-        dtype = frame[name].dtype
+    # the frame's column types read once (data.moments.column_dtypes), without a Series of each item (each copied the
+    # frame's attrs, every fit)
+    types = dict(zip(frame.columns.tolist(), column_dtypes(frame)))
+    for name in (x for x in items if x in types):
+        dtype = types[name]
         if not isinstance(dtype, pd.CategoricalDtype) or not dtype.ordered:
             continue
         categories = dtype.categories
@@ -222,8 +226,9 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
         # column names in Unicode's composed form, as a file's are read (names.composed: a column named with
         # decomposed accents is the model's name written composed; diagram-s22: "did you mean" the same name)
-        names = [composed(c) if isinstance(c, str) else c for c in frame.columns]
-        if names != list(frame.columns):  # set anew only when a name changes (set_axis copies the frame, every fit)
+        columns = frame.columns.tolist()  # (a list: iterating the frame's Index of text cost 3x as much, every fit)
+        names = [composed(c) if isinstance(c, str) else c for c in columns]
+        if names != columns:  # set anew only when a name changes (set_axis copies the frame, every fit)
             frame = frame.set_axis(names, axis=1)
         frame = renamed_frame(frame, renames, DATA_FRAME, rename_option)
         _refuse_reordered_numbers(frame, items, {r.new: r.old for r in renames})  # the names the model reads

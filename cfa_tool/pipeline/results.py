@@ -727,7 +727,8 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
                robust: RobustFit | None, estimates, modification_indices, groups, warnings, options,
                group_column: str | None = None, problems: tuple = (), parameter_covariance: np.ndarray | None = None,
                parameter_labels: tuple[str, ...] = (), model=None,
-               unit_variance_items: frozenset[str] = frozenset(), completely_at_random=None, table=None) -> FitResult:
+               unit_variance_items: frozenset[str] = frozenset(), completely_at_random=None, table=None,
+               group_matrices=None) -> FitResult:
     """The one place a FitResult is assembled, for every estimator (continuous, incomplete and ordinal
     items, one group or several), from the estimation's and the assessment's pieces.  The model's
     names and text come from ``spec``, the estimator line from ``method``, the display settings of
@@ -737,7 +738,9 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
     (they would test the unrotated factors, which the report does not show).
     ``completely_at_random``: Little's test of the rows with gaps (assessment.missingness), when computed.
     ``table``: the model's parameter table (model.parameters.ParameterTable; ``model.table`` when not given), from
-    which the estimates held equal across groups are read (:func:`held_equal_entries`)."""
+    which the estimates held equal across groups are read (:func:`held_equal_entries`).  ``group_matrices``: each
+    group's model matrices at ``theta`` (model.implied.ModelMatrices, as the fit made them), which the intervals of
+    omega read when given (else they are made again)."""
     groups = tuple(groups)
     chosen = getattr(options, "mi_chosen", ())
     if chosen and fit is not None and fit.df == 0:  # an option that cannot apply is an error, never ignored
@@ -808,7 +811,8 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
         from cfa_tool.assessment.reliability_intervals import with_omega_errors
 
         groups = tuple(replace(g, reliability=with_omega_errors(g.reliability, model, theta, parameter_covariance, k,
-                                                                     spec.reverse_keyed or None))
+                                                                     spec.reverse_keyed or None,
+                                                                     group_matrices[k] if group_matrices else None))
                        for k, g in enumerate(groups))
     if len(groups) <= 1:  # one group: the rule of rows per parameter (groups of several: each group's, by the same rule)
         from cfa_tool.assessment.admissibility import one_sample_size_problems
