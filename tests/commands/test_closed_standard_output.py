@@ -9,7 +9,7 @@ import sys
 
 import pytest
 
-from tests.commands.test_cli import _env, workdir  # noqa: F401 - the fixture
+from tests.commands.test_cli import _env, run, workdir  # noqa: F401 - the fixture
 
 
 def _closed_early(args: list[str], cwd) -> tuple[int, bytes]:
@@ -38,8 +38,7 @@ def test_a_closed_standard_output_loses_no_file_and_prints_no_traceback(args, fi
 
 
 def test_report_of_a_saved_result_to_a_closed_standard_output(workdir):  # noqa: F811
-    subprocess.run([sys.executable, "-m", "cfa_tool", "fit", "rider.cfa", "--data", "rider.csv", "--json", "fit.json"],
-                   cwd=workdir, env=_env(), capture_output=True, check=True)
+    assert run("fit", "rider.cfa", "--data", "rider.csv", "--json", "fit.json", cwd=workdir).returncode == 0  # the input
     code, err = _closed_early(["report", "fit.json"], workdir)  # the terminal view only
     assert code == 141 and err == b""
     code, err = _closed_early(["report", "fit.json", "--html", "fit.html"], workdir)  # files: the problems only

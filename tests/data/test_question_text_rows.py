@@ -9,9 +9,6 @@ written without the question-text row (by openpyxl and pandas, independent write
 
 from __future__ import annotations
 
-import subprocess
-import sys
-
 import numpy as np
 import openpyxl
 import pandas as pd
@@ -24,6 +21,7 @@ from cfa_tool.data.readers import read_data
 from cfa_tool.errors import DataError, OptionError
 from cfa_tool.note_parts import WORDS as MANUSCRIPT, said as said_as
 from cfa_tool.reporting.paragraph import methods_paragraph
+from tests.commands.test_cli import run
 from tests.conftest import simulate_cfa
 
 ITEMS = ["c1", "c2", "c3", "s1", "s2", "s3"]
@@ -122,8 +120,8 @@ def test_scores_file_scores_no_row_of_question_texts(tmp_path):
     path, model, out = tmp_path / "riders.xlsx", tmp_path / "riders.cfa", tmp_path / "scores.csv"
     _workbook(path, frame)
     model.write_text(MODEL + CODED, encoding="utf-8")
-    done = subprocess.run([sys.executable, "-m", "cfa_tool", "scores", str(model), "--data", str(path), "--id",
-                           "Response ID", "--first-data-row", "3", "--output", str(out)], capture_output=True, text=True)
+    done = run("scores", str(model), "--data", str(path), "--id", "Response ID", "--first-data-row", "3", "--output",
+               str(out))
     assert done.returncode == 0, done.stderr
     written = pd.read_csv(out)
     # the question texts' row keeps an empty line, as a blank row does, so that line k of the scores is row k of the
@@ -150,8 +148,7 @@ def test_a_first_row_of_data_that_cannot_apply(tmp_path):
         cfa_tool.check(MODEL + CODED, text, names_row=4, first_data_row=4)
     with pytest.raises(OptionError, match=r"a first row of data \(first_data_row=\.\.\.\) is read from a file"):
         cfa_tool.fit(MODEL + CODED, frame, first_data_row=3)
-    done = subprocess.run([sys.executable, "-m", "cfa_tool", "check", str(tmp_path / "m.cfa"), "--data", str(book),
-                           "--first-data-row", "1"], capture_output=True, text=True)
+    done = run("check", str(tmp_path / "m.cfa"), "--data", str(book), "--first-data-row", "1")
     assert done.returncode == 2 and "the first row of data must be a row number (2 or more" in done.stderr
 
 

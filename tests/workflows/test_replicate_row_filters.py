@@ -7,15 +7,13 @@ the same analysis of the rows kept, selected here by pandas and written to their
 
 from __future__ import annotations
 
-import subprocess
-import sys
-
 import numpy as np
 import pandas as pd
 import pytest
 
 from cfa_tool.reporting.paragraph import replication_paragraph
 from cfa_tool.workflows.replication import Replications, replicate, split_half
+from tests.commands.test_cli import run
 from tests.conftest import simulate_cfa
 
 ITEMS = ["c1", "c2", "c3", "s1", "s2", "s3"]
@@ -74,8 +72,7 @@ def test_replicate_takes_keep_on_the_command_line(tmp_path):
     path, model = tmp_path / "riders.csv", tmp_path / "riders.cfa"
     frame.to_csv(path, index=False)
     model.write_text(MODEL, encoding="utf-8")
-    done = subprocess.run([sys.executable, "-m", "cfa_tool", "replicate", str(model), "--data", str(path), "--seed", "7",
-                           "--keep", "Finished = yes"], capture_output=True, text=True)
+    done = run("replicate", str(model), "--data", str(path), "--seed", "7", "--keep", "Finished = yes")
     assert done.returncode == 0, done.stderr
     text = " ".join(done.stdout.split())
     kept = int((frame["Finished"] == "yes").sum())
