@@ -1133,7 +1133,7 @@ REPEATED_IDS_SHOWN = 5  # ids of several rows that the caution names before 'and
 
 def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, group: str | None = None,
                          items: tuple[str, ...] = (), design: DesignColumns | None = None, fitted: bool = False,
-                         by_name: bool = False, takes_design: bool = True) -> tuple:
+                         by_name: bool = False, takes_design: bool = True, by_values: bool = False) -> tuple:
     """A caution naming the ids that several rows hold (``ids``: data-row number -> id; ``id_column``: the column
     they are read from, data.kept_rows.ROW_NAMES_COLUMN for the file's row names: :func:`id_filter_column`), each with
     its rows, the first :data:`REPEATED_IDS_SHOWN`; () when every id names one row.  One rule for every command that
@@ -1155,7 +1155,8 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
     (new-user trial s25: two waves of one staff under team clusters were said to be taken for independent samples).
     ``by_name``: ``id_column`` was not given but named as an id (data.column_roles.id_named_column), which the
     caution says, leaving out the merge by id that no id given implies; nothing then when the design allows for
-    the rows and no groups hold them."""
+    the rows and no groups hold them.  ``by_values`` (with ``by_name``): the column was taken for the id not by its
+    name but by its values, one per row in each group and shared across the groups (data.column_roles.id_across_groups)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.pipeline.same_people import (allow_for_them, groups_taken_as_independent, ids_outside_one_cluster,
                                                occasion_filter, taken_as_independent)
@@ -1171,7 +1172,8 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
         return ()
     naming, lines = row_naming(frame), text_lines(frame)
     by_column = id_column is not None and (id_column != ROW_NAMES_COLUMN or loaded.row_names is None)
-    holder = (f"The column '{printable(id_column)}', an id by its name," if by_name else
+    holder = (f"The column '{printable(id_column)}', an id by its values (none twice in one group)," if by_values else
+              f"The column '{printable(id_column)}', an id by its name," if by_name else
               f"The id column '{printable(id_column)}'" if by_column else f"The row names of {loaded.source}")
     few = names_shown(len(found), REPEATED_IDS_SHOWN)
     shown = joined([Note((RowId(f"'{clipped(value, 40)}' in "),)) + rows_listed(rows, 4, naming=naming, lines=lines)
@@ -1229,27 +1231,32 @@ def named_id_problems(loaded: LoadedData, id_column: str | None, group: str | No
     no id column was given (``id_column`` None or the file's row names): by the one rule of names explore leaves out
     as ids (data.column_roles.id_named_column), over the rows analysed (new-user trial s25: 4,303 rows of 2,400
     employees in long form were fitted as independent without a word, while explore knew 'employee_id' for an id)."""
-    from cfa_tool.data.column_roles import id_named_column
+    from cfa_tool.data.column_roles import id_across_groups, id_named_column
     from cfa_tool.data.row_ids import id_text
 
     frame = loaded.frame
     if id_column is not None and id_column in frame.columns:  # an id column given: its own caution
         return ()
     named = id_named_column(frame, {group, *items})
+    by_values = False
+    if named is None and group is not None:  # whatever its name, a column of the people's ids shared by the groups
+        named = id_across_groups(frame, group, {*items, *(n for _, n in (design.names if design else ()))})
+        by_values = named is not None
     if named is None:
         return _unit_rows_problems(frame, {group, *items, *(n for _, n in (design.names if design else ()))},
                                    design, takes_design)
     ids = ids_by_row_number(frame[named].map(id_text), frame)
     return repeated_id_problems(loaded, ids, named, group, items, design, fitted=True, by_name=True,
-                                takes_design=takes_design)
+                                takes_design=takes_design, by_values=by_values)
 
 
 def _unit_rows_problems(frame: pd.DataFrame, skip, design: DesignColumns | None, takes_design: bool) -> tuple:
-    """The caution on a column named as the id of teams, schools or classes (data.column_roles.unit_id_column), which
+    """The caution on a column named as the id of teams, schools or classes, or for them alone ('Team', 'TeamID':
+    data.column_roles.unit_id_column; new-user trial s27: only 'team_id' was read so), which
     is not the rows' id, when the design has no clusters: the rows of one unit are taken for independent cases, with
     the units as the design's clusters for the remedy (where the command takes them)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
-    from cfa_tool.data.column_roles import unit_id_column
+    from cfa_tool.data.column_roles import IDS, column_role, unit_id_column
 
     found = unit_id_column(frame, skip)
     if found is None or (design is not None and design.cluster is not None):
@@ -1259,7 +1266,8 @@ def _unit_rows_problems(frame: pd.DataFrame, skip, design: DesignColumns | None,
     rows = int(frame[name].notna().sum())
     plural = (word + "es" if word.endswith(("s", "sh", "ch", "x")) else
               word[:-1] + "ies" if word.endswith("y") and word[-2:-1] not in "aeiou" else word + "s")
-    explanation = (f"The column '{printable(name)}', an id of {plural} by its name, gives {counted(units, word, plural)} "
+    named = f"an id of {plural}" if column_role(name) == IDS else f"a column of {plural}"  # 'team_id' or 'Team'
+    explanation = (f"The column '{printable(name)}', {named} by its name, gives {counted(units, word, plural)} "
                    f"to {count_text(rows)} rows ({rounded_number(rows / units)} rows each on average): the analysis "
                    f"takes the rows of one {word} for independent cases, so if its members answer alike the standard "
                    f"errors are too small and the tests reject too readily.")
