@@ -1171,6 +1171,10 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
     if not found:
         return ()
     naming, lines = row_naming(frame), text_lines(frame)
+    twice, found = _same_answers_again(found, frame, items)
+    first = _submitted_twice_problem(twice, frame, id_column, items, naming, lines, by_name and not by_values)
+    if not found:
+        return first
     by_column = id_column is not None and (id_column != ROW_NAMES_COLUMN or loaded.row_names is None)
     holder = (f"The column '{printable(id_column)}', an id by its values (none twice in one group)," if by_values else
               f"The column '{printable(id_column)}', an id by its name," if by_name else
@@ -1217,7 +1221,7 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
              f" These {what} do not stand for one row each, so a file merged by them (a scores file, say) cannot be "
              f"matched to the rows one to one: a merge that expects one row per {what[:-1]} refuses, and one that "
              f"allows several gives a row another row's values.")
-    return (Problem(ProblemKind.REPEATED_IDS, (), float(len(found)),
+    return first + (Problem(ProblemKind.REPEATED_IDS, (), float(len(found)),
                     Note((f"{holder} {gives} one {what[:-1]} to {count_text(rows)} rows: " if len(found) == 1 else
                           f"{holder} {gives} {count_text(len(found))} {what} each to more than one row "
                           f"({count_text(rows)} rows in all): ",))
@@ -1288,9 +1292,18 @@ def _first_rows_only(found: tuple, frame: pd.DataFrame, id_column: str | None, i
     (``found``: (id, its rows' numbers, file order)) by a column, not the id's nor an item, whose values on the later
     rows are held by no other row ('submitted not in "2026-03-01 11:30", ...'), the first such column of the file;
     () when none does or the filter would list more than :data:`FILTER_VALUES_LISTED` values."""
+    written = _later_rows_filter(found, frame, id_column, items)
+    if written is None:
+        return ()
+    return ("; if some people submitted twice, keep each one's first row with the row filter on the column that "
+            "tells the later rows apart", Command(f" ({Option.KEEP.given(written)})"))
+
+
+def _later_rows_filter(found: tuple, frame: pd.DataFrame, id_column: str | None, items) -> str | None:
+    """The text of the row filter of :func:`_first_rows_only` (None when none can be written)."""
     later = [r for _, rows in found for r in rows[1:]]
     if not later or len(later) > FILTER_VALUES_LISTED:
-        return ()
+        return None
     numbers = row_numbers(frame)
     at_later = np.isin(numbers, later)
     for column in frame.columns:
@@ -1304,11 +1317,9 @@ def _first_rows_only(found: tuple, frame: pd.DataFrame, id_column: str | None, i
         if not np.array_equal(values.isin(distinct).to_numpy(), at_later):
             continue
         written = filter_text(str(column), "not in", distinct)  # the one writer of a filter's text
-        if written is None:
-            continue
-        return ("; if some people submitted twice, keep each one's first row with the row filter on the column that "
-                "tells the later rows apart", Command(f" ({Option.KEEP.given(written)})"))
-    return ()
+        if written is not None:
+            return written
+    return None
 
 
 def _ids_across_groups(found: tuple, frame: pd.DataFrame, group: str | None) -> int:
@@ -1318,6 +1329,70 @@ def _ids_across_groups(found: tuple, frame: pd.DataFrame, group: str | None) -> 
         return 0
     label = dict(zip(row_numbers(frame).tolist(), frame[group].tolist()))
     return sum(len({label[r] for r in rows if r in label and label[r] == label[r]}) > 1 for _, rows in found)
+
+
+def _same_answers_again(found: tuple, frame: pd.DataFrame, items) -> tuple[tuple, tuple]:
+    """``found`` (id, its rows' numbers) split in two: (id, an earlier row, the later rows that give the same answers
+    to every item in ``items`` as it, empty cells alike) for each id that has such rows (a respondent who submitted
+    twice), and the ids left to several rows without those later rows."""
+    items = [x for x in items if x in frame.columns]
+    place = pd.Series(np.arange(len(frame)), index=row_numbers(frame))
+    if not items or not place.index.is_unique:
+        return (), found
+    answers = frame[items]
+    twice, rest = [], []
+    for value, rows in found:
+        at = place.reindex(list(rows)).dropna().astype(int)
+        if len(at) < 2:
+            rest.append((value, rows))
+            continue
+        block = answers.iloc[at.to_numpy()]
+        try:
+            again = block.duplicated(keep="first").to_numpy()
+        except TypeError:  # cells pandas cannot hash: compared as text
+            again = block.astype(str).duplicated(keep="first").to_numpy()
+        later = tuple(int(r) for r in at.index[again])
+        if later:
+            original = int(at.index[~again][0])
+            twice.append((value, original, later))
+        left = tuple(r for r in rows if r not in later)
+        if len(left) > 1:
+            rest.append((value, left))
+    return tuple(twice), tuple(rest)
+
+
+def _submitted_twice_problem(twice: tuple, frame: pd.DataFrame, id_column: str | None, items, naming, lines,
+                             by_name: bool) -> tuple:
+    """The caution on rows of one id that give the same answers to every item as an earlier row of it
+    (:func:`_same_answers_again`: a respondent who submitted twice, counted as two people; new-user trial s27: only
+    'a typing error?' was said), with the row filter that leaves out the later rows where a column tells them apart
+    (:func:`_first_rows_only`); the rows stay in the analysis (defaults keep data)."""
+    if not twice:
+        return ()
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    def row(r: int) -> str:
+        return f"{r}{line_words(r, lines)}"
+
+    later = sum(len(rows) for _, _, rows in twice)
+    few = names_shown(len(twice), REPEATED_IDS_SHOWN)
+    shown = joined([Note((f"rows {row(o)} and {word_list([row(r) for r in rows])}",
+                          RowId(f" ('{clipped(value, 40)}')"))) for value, o, rows in twice[:few]], "; ")
+    more = more_words(len(twice) - few, "; and ", "id")
+    holder = (f"the column '{printable(id_column)}', an id by its name" if by_name else
+              f"the id column '{printable(id_column)}'" if id_column not in (None, ROW_NAMES_COLUMN) else "the row names")
+    whose = "each such" if later > 1 else "the"
+    explanation = (Note((f"{count_text(later)} {'row gives' if later == 1 else 'rows give'} the same id ({holder}) "
+                         f"and the same answers to every item as an earlier row: ",)) + shown
+                   + f"{more} (submitted twice?). If so, {whose} respondent is counted as "
+                     f"{'two people' if later == 1 else 'several people'}, so N is too large and the standard errors "
+                     f"too small; the rows stay in the analysis.")
+    written = _later_rows_filter(tuple((v, (o, *rows)) for v, o, rows in twice), frame, id_column, items)
+    advice = Note(("if they are second submissions, leave the later rows out with the row filter on the column that "
+                   "tells them apart", Command(f" ({Option.KEEP.given(written)})"), ", or delete them in a copy of "
+                   "the data file.") if written is not None else
+                  ("if they are second submissions, delete the later rows in a copy of the data file.",))
+    return (Problem(ProblemKind.SUBMITTED_TWICE, (), float(later), explanation, advice),)
 
 
 def _without_copies(found: tuple, frame: pd.DataFrame) -> tuple:

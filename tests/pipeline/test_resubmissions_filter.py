@@ -48,3 +48,33 @@ def test_no_filter_is_written_where_no_column_tells_the_later_rows_apart():
     data["submitted"] = "2026-03-01"  # the same time on every row: nothing tells a resubmission apart
     advice = _advice(cfa_tool.check(MODEL, data, id_column="rid"))
     assert "keep=" not in advice and "correct the ids in a copy" in advice
+
+
+def test_a_second_submission_with_the_same_answers_is_named_first_as_such():
+    # new-user trial s27: the same id, the same answers to every item and a later time was told only 'a typing
+    # error?'; it is now a caution of its own, first, with the filter that leaves the later row out
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    data = _export()
+    again = data.iloc[[5]].copy()
+    again["submitted"] = "2026-03-02 09:05:00"  # R0005 once more, the same answers a day later
+    data = pd.concat([data, again], ignore_index=True)
+    for result in (cfa_tool.check(MODEL, data, id_column="rid"), cfa_tool.fit(MODEL, data, id_column="rid"),
+                   cfa_tool.fit(MODEL, data.rename(columns={"rid": "RespondentID"}))):  # given, or an id by its name
+        twice = [p for p in result.problems if p.kind is ProblemKind.SUBMITTED_TWICE]
+        assert twice and result.problems[0] is twice[0]
+        words = " ".join(str(twice[0].explanation).split())
+        # a data frame's rows by their index labels: R0005 at 5, the appended row at 308 (300 + 8 rows before it)
+        assert "the same answers to every item as an earlier row: rows 5 and 308 ('R0005') (submitted twice?)" in words
+        assert "submitted not in" in str(twice[0].advice)
+        # the 8 resubmissions with other answers stay in the caution on repeated ids, which no longer names R0005
+        [other] = [p for p in result.problems if p.kind is ProblemKind.REPEATED_IDS]
+        assert "gives 8 ids each to more than one row" in " ".join(str(other.explanation).split())
+        assert "R0005" not in str(other.explanation)
+    # the filter it writes, given back, leaves each id's first row (pandas' duplicated(), not the tool's)
+    found = re.search(r"keep=\['(submitted not in [^']*)'\]", str(twice[0].advice))
+    assert found and found.group(1) == 'submitted not in "2026-03-02 09:05:00"'
+    kept = cfa_tool.check(MODEL, data, id_column="rid", keep=[found.group(1)])
+    assert not [p for p in kept.problems if p.kind is ProblemKind.SUBMITTED_TWICE]
+    left = data[data["submitted"] != "2026-03-02 09:05:00"]
+    assert len(left) == 308 and left["rid"].duplicated().sum() == 8  # pandas: R0005 once, the 8 others as before
