@@ -1057,6 +1057,11 @@ COPIED_RUN_OF_ANSWERS_ALONE = 5
 IDENTIFYING_SHARE = 0.9
 
 
+def _at(frame: pd.DataFrame, number: int):
+    """The index label of the row of ``frame`` whose row number is ``number``."""
+    return frame.index[int(np.flatnonzero(row_numbers(frame) == number)[0])]
+
+
 def _identifying_column(frame: pd.DataFrame, skip: set, copies: int) -> bool:
     """Whether a column of ``frame`` other than those in ``skip`` (the model's items, groups, design, a row-number
     column) tells respondents apart, so that rows identical in it too are unlikely to agree by chance (review s11: a
@@ -1078,7 +1083,8 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     group and design columns, identical rows may be respondents who answered alike: named only when
     :data:`COPIED_RUN_OF_ANSWERS_ALONE` of them or more in a row repeat earlier rows in the same order."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
-    from cfa_tool.data.copied_rows import copied_rows
+    from cfa_tool.data.column_roles import id_named_column
+    from cfa_tool.data.copied_rows import copied_rows, time_stamp_column
 
     frame = _labelled(loaded.frame, group)
     items = [x for x in names if x in frame.columns]
@@ -1087,12 +1093,16 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
         block = item_values(frame, tuple(items))
     elif block is not None and frame is not loaded.frame:
         block = block[has_group(loaded.frame, group)]  # the rows _labelled keeps
-    found = copied_rows(frame, row_numbers(frame), block)
+    described = set(names) | {group} | {name for _, name in (design.names if design is not None else ())}
+    # without an id (given or named so), a survey platform's time stamp left out: a second submission differs from
+    # the first there alone (new-user trial s27); with one, the caution on ids names such rows by their id
+    stamp = (time_stamp_column(frame, described) if not ids and id_named_column(frame, described) is None
+             else None)
+    found = copied_rows(frame, row_numbers(frame), block, stamp)
     if found is None:
         return ()
-    described = set(names) | {group} | {name for _, name in (design.names if design is not None else ())}
     if found.longest_run() < COPIED_RUN_OF_ANSWERS_ALONE and not _identifying_column(
-            frame, described | {found.numbering}, len(found)):
+            frame, described | {found.numbering, found.time_stamp}, len(found)):
         return ()
     def row(r: int) -> Text:  # the id apart: a manuscript names rows by number alone (note_parts.RowId)
         return row_of(frame, r) + (Note((RowId(f" ({printable(ids[r])})"),)) if ids.get(r) is not None else "")
@@ -1101,7 +1111,11 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     few = names_shown(n, COPIED_ROWS_SHOWN)
     pairs = joined([row(c) + " repeats " + row(o) for c, o in list(zip(found.copies, found.originals))[:few]], "; ")
     more = more_words(n - few, "; and ")
-    numbering = f" but the row-number column '{printable(found.numbering)}'" if found.numbering else ""
+    numbering = (f" but the row-number column '{printable(found.numbering)}'" if found.numbering else "") + (
+        f"{' and' if found.numbering else ' but'} the time stamp '{printable(found.time_stamp)}'" if found.time_stamp else "")
+    stamped = found.time_stamp is not None and any(
+        frame.at[_at(frame, c), found.time_stamp] != frame.at[_at(frame, o), found.time_stamp]
+        for c, o in zip(found.copies, found.originals))  # a later submission, not a copy
     # a row filter can leave the copies out only by a column in which they differ from their originals: a row-number
     # column, or row names (``ids`` not read from a column of the file, which the copies repeat); rows identical in
     # every column have none (new-user trial s20: the advice named a filter that no column could write)
@@ -1114,10 +1128,18 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
         number = isinstance(first, Real) and not isinstance(first, bool)
         written = filter_text(found.numbering, "<", first if number else label_text(first))
         example = f" (here {Option.KEEP.given(written)})" if written else ""  # the one writer (data.filter_text)
+    if stamped:  # the filter that leaves the later submissions out, by the time stamp
+        written = _later_rows_filter(tuple((None, (o, c)) for c, o in zip(found.copies, found.originals)), frame,
+                                     None, tuple(names))
+        example = f" (here {Option.KEEP.given(written)})" if written else example
+        apart = True
     return (Problem(ProblemKind.COPIED_ROWS, (), float(n),
                     f"{count_text(n)} of the {count_text(len(frame))} rows analysed {'is' if n == 1 else 'are'} identical in every column"
-                    f"{numbering} to an earlier row: " + pairs + f"{more}. If they are copies (a file appended to itself, "
-                    f"rows pasted twice), each is counted as another respondent, so N is too large, the standard "
+                    f"{numbering} to an earlier row: " + pairs + f"{more}"
+                    + (" (submitted twice?)" if stamped else "")
+                    + f". If they are copies (a file appended to itself, "
+                    f"rows pasted twice{', a second submission' if stamped else ''}), each is counted as another "
+                    f"respondent, so N is too large, the standard "
                     f"errors too small and the chi-square too large." + (
                         " Each copy repeats its original's id too, so a file merged by the ids (a scores file, say) "
                         "cannot be matched to the rows one to one while the copies are there." if same_ids else ""),
@@ -1371,13 +1393,12 @@ def _submitted_twice_problem(twice: tuple, frame: pd.DataFrame, id_column: str |
         return ()
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
-    def row(r: int) -> str:
-        return f"{r}{line_words(r, lines)}"
+    from cfa_tool.data.kept_rows import rows_listed
 
     later = sum(len(rows) for _, _, rows in twice)
     few = names_shown(len(twice), REPEATED_IDS_SHOWN)
-    shown = joined([Note((f"rows {row(o)} and {word_list([row(r) for r in rows])}",
-                          RowId(f" ('{clipped(value, 40)}')"))) for value, o, rows in twice[:few]], "; ")
+    shown = joined([rows_listed((o, *rows), 4, naming=naming, lines=lines) + Note((RowId(f" ('{clipped(value, 40)}')"),))
+                    for value, o, rows in twice[:few]], "; ")
     more = more_words(len(twice) - few, "; and ", "id")
     holder = (f"the column '{printable(id_column)}', an id by its name" if by_name else
               f"the id column '{printable(id_column)}'" if id_column not in (None, ROW_NAMES_COLUMN) else "the row names")

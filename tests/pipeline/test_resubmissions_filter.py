@@ -65,7 +65,7 @@ def test_a_second_submission_with_the_same_answers_is_named_first_as_such():
         assert twice and result.problems[0] is twice[0]
         words = " ".join(str(twice[0].explanation).split())
         # a data frame's rows by their index labels: R0005 at 5, the appended row at 308 (300 + 8 rows before it)
-        assert "the same answers to every item as an earlier row: rows 5 and 308 ('R0005') (submitted twice?)" in words
+        assert "the same answers to every item as an earlier row: index labels 5, 308 ('R0005') (submitted twice?)" in words
         assert "submitted not in" in str(twice[0].advice)
         # the 8 resubmissions with other answers stay in the caution on repeated ids, which no longer names R0005
         [other] = [p for p in result.problems if p.kind is ProblemKind.REPEATED_IDS]
@@ -78,3 +78,27 @@ def test_a_second_submission_with_the_same_answers_is_named_first_as_such():
     assert not [p for p in kept.problems if p.kind is ProblemKind.SUBMITTED_TWICE]
     left = data[data["submitted"] != "2026-03-02 09:05:00"]
     assert len(left) == 308 and left["rid"].duplicated().sum() == 8  # pandas: R0005 once, the 8 others as before
+
+
+def test_without_an_id_a_second_submission_is_a_copy_but_for_its_time_stamp():
+    # new-user trial s27: without an id the caution on copies needed every column identical, which a submission's
+    # time stamp never is; the stamp is now left out of the comparison there, and the filter is written by it
+    from cfa_tool.assessment.admissibility import ProblemKind
+    from cfa_tool.data.copied_rows import time_stamp_column
+
+    data = _export().drop_duplicates("rid").rename(columns={"rid": "email"})  # no column named as an id
+    again = data.iloc[[5]].copy()
+    again["submitted"] = "2026-03-02 09:05:00"
+    data = pd.concat([data, again], ignore_index=True)
+    assert time_stamp_column(data) == "submitted" and time_stamp_column(data, {"submitted"}) is None
+    checked = cfa_tool.check(MODEL, data)
+    [copies] = [p for p in checked.problems if p.kind is ProblemKind.COPIED_ROWS]
+    words = " ".join(str(copies.explanation).split())
+    # a data frame's rows by index label: R0005 at 5, the appended row at 300 (300 rows before it)
+    assert words.startswith("1 of the 301 rows analysed is identical in every column but the time stamp 'submitted' "
+                            "to an earlier row: index label 300 repeats index label 5 (submitted twice?)")
+    assert "keep=['submitted not in \"2026-03-02 09:05:00\"']" in str(copies.advice)
+    # the same time on both rows: a copy as before, no word of a second submission
+    data.loc[300, "submitted"] = data.loc[5, "submitted"]
+    [copies] = [p for p in cfa_tool.check(MODEL, data).problems if p.kind is ProblemKind.COPIED_ROWS]
+    assert "submitted twice" not in str(copies.explanation)
