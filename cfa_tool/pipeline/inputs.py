@@ -1403,9 +1403,10 @@ def _submitted_twice_problem(twice: tuple, frame: pd.DataFrame, id_column: str |
     holder = (f"the column '{printable(id_column)}', an id by its name" if by_name else
               f"the id column '{printable(id_column)}'" if id_column not in (None, ROW_NAMES_COLUMN) else "the row names")
     whose = "each such" if later > 1 else "the"
-    explanation = (Note((f"{count_text(later)} {'row gives' if later == 1 else 'rows give'} the same id ({holder}) "
-                         f"and the same answers to every item as an earlier row: ",)) + shown
-                   + f"{more} (submitted twice?). If so, {whose} respondent is counted as "
+    explanation = (Note(("Submitted twice? In ",)) + shown
+                   + f"{more}, {'the later row gives' if later == 1 else f'{count_text(later)} later rows give'} the "
+                     f"same id ({holder}) and the same answers to every item as an earlier row. If so, {whose} "
+                     f"respondent is counted as "
                      f"{'two people' if later == 1 else 'several people'}, so N is too large and the standard errors "
                      f"too small; the rows stay in the analysis.")
     written = _later_rows_filter(tuple((v, (o, *rows)) for v, o, rows in twice), frame, id_column, items)

@@ -65,7 +65,8 @@ def test_a_second_submission_with_the_same_answers_is_named_first_as_such():
         assert twice and result.problems[0] is twice[0]
         words = " ".join(str(twice[0].explanation).split())
         # a data frame's rows by their index labels: R0005 at 5, the appended row at 308 (300 + 8 rows before it)
-        assert "the same answers to every item as an earlier row: index labels 5, 308 ('R0005') (submitted twice?)" in words
+        assert words.startswith("Submitted twice? In index labels 5, 308 ('R0005'), the later row gives the same id (")
+        assert "and the same answers to every item as an earlier row." in words
         assert "submitted not in" in str(twice[0].advice)
         # the 8 resubmissions with other answers stay in the caution on repeated ids, which no longer names R0005
         [other] = [p for p in result.problems if p.kind is ProblemKind.REPEATED_IDS]
