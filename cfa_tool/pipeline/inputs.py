@@ -932,6 +932,7 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     named with the items' ones; ``id_column``: the column ``ids`` are read from (:func:`id_filter_column`), by which
     advice writes a row filter; ``takes_design`` False: the command takes no sampling design (replicate, explore:
     their --cluster draws halves), so no advice offers one."""
+    from cfa_tool.assessment.admissibility import ProblemKind
     from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 
     names = names if names is not None else (spec.observed_names if spec is not None else ())
@@ -939,7 +940,12 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     # ids of several rows: no merge by id one to one, and the same people's rows taken as independent cases
     repeated = repeated_id_problems(loaded, ids or {}, id_column, group, names, design, fitted=True,
                                     takes_design=takes_design)
-    found += repeated or named_id_problems(loaded, id_column, group, design, names, takes_design)
+    repeated = repeated or named_id_problems(loaded, id_column, group, design, names, takes_design)
+    if not any(p.kind is ProblemKind.REPEATED_IDS for p in repeated):  # no id of several rows: the teams' rows
+        repeated += _unit_rows_problems(loaded.frame, {group, id_column, *names,
+                                                       *(n for _, n in (design.names if design else ()))},
+                                        design, takes_design)
+    found += repeated
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {}, id_column=id_column)
@@ -1268,9 +1274,8 @@ def named_id_problems(loaded: LoadedData, id_column: str | None, group: str | No
     if named is None and group is not None:  # whatever its name, a column of the people's ids shared by the groups
         named = id_across_groups(frame, group, {*items, *(n for _, n in (design.names if design else ()))})
         by_values = named is not None
-    if named is None:
-        return _unit_rows_problems(frame, {group, *items, *(n for _, n in (design.names if design else ()))},
-                                   design, takes_design)
+    if named is None:  # the caution on units of many respondents, if any, is data_problems'
+        return ()
     ids = ids_by_row_number(frame[named].map(id_text), frame)
     return repeated_id_problems(loaded, ids, named, group, items, design, fitted=True, by_name=True,
                                 takes_design=takes_design, by_values=by_values)

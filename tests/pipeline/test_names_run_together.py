@@ -93,3 +93,16 @@ def test_a_team_column_named_plainly_gets_the_clusters_caution(name):
     assert _flat(said.explanation).startswith(f"The column '{name}', {kind} by its name, gives 10 teams to 200 rows "
                                               f"(20 rows each on average)")  # 200 staff in 10 teams, planted above
     assert [p.text for p in said.advice.parts if isinstance(p, Command)] == [f" ({Option.CLUSTER.given(name)})"]
+
+
+def test_the_clusters_caution_stays_beside_an_id_that_names_no_person_twice():
+    # the teams' caution was given only without an id: an id given (each person once), or one whose only repeat is
+    # a copied row (its own caution), left the teams' rows taken as independent without a word
+    one = _waves().query("wave == 1").drop(columns=["wave"])
+    for result in (cfa_tool.fit(MODEL, one, id_column="RespondentID"),
+                   cfa_tool.fit(MODEL, pd.concat([one, one.iloc[[3]]], ignore_index=True))):
+        kinds = [p.kind for p in result.problems]
+        assert ProblemKind.UNIT_ROWS_AS_INDEPENDENT in kinds and ProblemKind.REPEATED_IDS not in kinds
+    # a person's id repeated across waves: its own caution, which names the ways to allow for them, alone as before
+    kinds = [p.kind for p in cfa_tool.fit(MODEL, _waves()).problems]
+    assert ProblemKind.REPEATED_IDS in kinds and ProblemKind.UNIT_ROWS_AS_INDEPENDENT not in kinds
