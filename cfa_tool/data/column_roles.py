@@ -105,10 +105,17 @@ def id_named_column(frame: pd.DataFrame, skip) -> str | None:
     return max(counts, key=lambda c: c[0])[1] if counts else None
 
 
+#: the fewest units a column named for the unit alone ('Team', 'school') must hold to be taken for units of many
+#: respondents (:func:`unit_id_column`): fewer are groups compared rather than clusters sampled (the two schools of
+#: Holzinger & Swineford's 1939 data), and too few clusters for a sandwich in any case (a rule of this project)
+UNITS_NAMED_ALONE_AT_LEAST = 5
+
+
 def unit_id_column(frame: pd.DataFrame, skip) -> tuple[str, str] | None:
     """(the column, its unit's word) of the first column of ``frame`` outside ``skip`` named as the id of a unit of
-    many respondents (:func:`unit_word`: 'team_id', 'team') whose values repeat among the rows, else None: the rows
-    of one unit, which a fit takes for independent cases unless the units are the design's clusters."""
+    many respondents (:func:`unit_word`: 'team_id', 'TeamID', or the unit alone, 'Team', then with at least
+    :data:`UNITS_NAMED_ALONE_AT_LEAST` units) whose values repeat among the rows, else None: the rows of one unit,
+    which a fit takes for independent cases unless the units are the design's clusters."""
     for name in frame.columns:
         if isinstance(name, str) and name not in skip and (word := unit_word(name)) is not None:
             values = frame[name].dropna()
@@ -116,7 +123,8 @@ def unit_id_column(frame: pd.DataFrame, skip) -> tuple[str, str] | None:
                 distinct = values.nunique()
             except TypeError:  # cells pandas cannot hash: compared as text
                 distinct = values.astype(str).nunique()
-            if 0 < distinct < len(values):
+            fewest = 1 if column_role(name) == IDS else UNITS_NAMED_ALONE_AT_LEAST
+            if fewest <= distinct < len(values):
                 return name, word
     return None
 

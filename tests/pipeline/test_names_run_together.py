@@ -106,3 +106,15 @@ def test_the_clusters_caution_stays_beside_an_id_that_names_no_person_twice():
     # a person's id repeated across waves: its own caution, which names the ways to allow for them, alone as before
     kinds = [p.kind for p in cfa_tool.fit(MODEL, _waves()).problems]
     assert ProblemKind.REPEATED_IDS in kinds and ProblemKind.UNIT_ROWS_AS_INDEPENDENT not in kinds
+
+
+def test_a_column_named_for_the_unit_alone_needs_some_units():
+    # Holzinger & Swineford's (1939) 'school' holds two schools, groups compared rather than clusters sampled: no
+    # caution (column_roles.UNITS_NAMED_ALONE_AT_LEAST, a rule of this project); 'school_id' is an id by its name
+    from cfa_tool.data.column_roles import UNITS_NAMED_ALONE_AT_LEAST, unit_id_column
+
+    one = _waves().query("wave == 1").drop(columns=["RespondentID", "wave"])
+    few = one.assign(Team=[f"T{k % (UNITS_NAMED_ALONE_AT_LEAST - 1)}" for k in range(len(one))])
+    assert unit_id_column(few, set(ITEMS)) is None
+    assert unit_id_column(few.rename(columns={"Team": "team_id"}), set(ITEMS)) == ("team_id", "team")
+    assert unit_id_column(one, set(ITEMS)) == ("Team", "team")  # 10 teams
