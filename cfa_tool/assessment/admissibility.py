@@ -195,6 +195,9 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the rows: ids of the id column (or row names) that name several rows, so nothing
     # merged by them (a scores file) matches the rows one to one (pipeline.inputs.repeated_id_problems)
     REPEATED_IDS = ("ids that name several rows", "repeated ids", False)
+    # ... and rows of one id that give the same answers to every item as an earlier row of it: a respondent who
+    # submitted twice, counted twice (new-user trial s27), named apart and before the other repeated ids
+    SUBMITTED_TWICE = ("rows of one id with the same answers to every item", "submitted twice", False)
     # ... and a column named as the id of teams, schools or classes (data.column_roles.unit_id_column) whose units the
     # design does not take for clusters: their members' rows analysed as independent cases (s26: said as people
     # answering twice)

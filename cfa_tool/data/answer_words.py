@@ -177,10 +177,7 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
                                     f"statement with the codes their labels' words have there: {labelled}")
                 raise DataError(f"{source}: column '{printable(item)}' holds numbers, not the words of {coding.origin} "
                                 f"('{_shown(value)}' in {_first_row(column, value, row_numbers(column))}); "
-                                + ("name the items whose answers are words with 'for ITEMS' at the end of the statement"
-                                   if coding.carried_from is None and not coding.items else
-                                   "take the column out of the statement's items" if coding.carried_from is None else
-                                   "score a file whose answers are the words the fit coded"))
+                                + _numbers_advice(coding, frame, codings))
             if wrong is not None:
                 raise _cell_error(source, item, column, value, wrong, coding, row_numbers(column))
             if value is not None and not (isinstance(value, float) and value != value) and value is not pd.NA:
@@ -201,6 +198,29 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
         notes.append(missing_codes_note(source, missing_codes, read_as_none,
                                         "of the items whose answer words the model codes"))
     return frame, notes
+
+
+def _numbers_advice(coding: AnswerCoding, frame: pd.DataFrame, codings: dict) -> str:
+    """What works when a column of the items of ``coding`` holds numbers, not its words: where some of its items hold
+    words, naming those with 'for ITEMS' (or taking the column out of the items named); where none does (an export of
+    numbers of the same survey: new-user trial s27, the advice to name the worded items led nowhere), listing each
+    number as itself in the statement, which reads the words and the numbers alike (with a scored earlier fit too:
+    :func:`with_saved_coding`); for the coding of an earlier fit, the fit's statement with the numbers so listed."""
+    words = coding.codes_by_word()
+    worded = [x for x, c in codings.items() if c is coding and x in frame.columns
+              and any(isinstance(v, str) and answer_key(v) in words for v in pd.unique(frame[x].to_numpy(dtype=object)))]
+    codes = sorted({a.code for a in coding.answers if a.word is not None})
+    itself = ", ".join(f"{user_number(c)} = {user_number(c)}" for c in codes)
+    if coding.carried_from is not None:
+        return (f"if its numbers are the codes the fit gave the words, give a model file with the fit's 'answers' "
+                f"statement and each number listed as itself at its end (..., {itself}); else score a file whose "
+                f"answers are the words the fit coded")
+    if worded:
+        return ("name the items whose answers are words with 'for ITEMS' at the end of the statement" if not coding.items
+                else "take the column out of the statement's items")
+    return (f"no item of the statement holds a word in this file: if its numbers are the codes the statement gives the "
+            f"words, list each number as itself at the end of the statement (..., {itself}), which reads the words "
+            f"and the numbers alike (a fit of this file alone reads it without the statement too)")
 
 
 def _check_codes_of_answers(coding: AnswerCoding, no_answer: set[float]) -> None:
@@ -411,15 +431,38 @@ def with_saved_coding(spec: Spec, record: tuple, source: str) -> Spec:
                               f"its answers as numbers; score data of the fit's kind, or fit the model again")
         return spec
     if mine:
-        if _comparable(mine) != _comparable(record):
+        if _comparable(mine) != _comparable(record) and not _numbers_as_their_codes(mine, record):
             raise OptionError(f"the model's 'answers' statements code the answers otherwise than the earlier fit "
-                              f"{source} did; give the model file the fit was made with")
+                              f"{source} did; give the model file the fit was made with (each number the fit gave a "
+                              f"word may be listed as itself at the statement's end, '7 = 7', to score numbers)")
         return spec
     where = Location(source, 1, 1)
     codings = tuple(AnswerCoding(tuple(AnswerWord(w, n, c, where) for w, n, c in answers),
                                  tuple(Name(x, where) for x in items), where, carried_from=source)
                     for items, answers in record)
     return replace(spec, answers=codings)
+
+
+def _numbers_as_their_codes(mine: tuple, record: tuple) -> bool:
+    """Whether the model's coding ``mine`` codes every item of the fit's ``record`` as the fit did, words and numbers,
+    and adds beside them only numbers listed as themselves that are codes the fit gave the item's words ('7 = 7'
+    beside '"Strongly agree" = 7'): the same answers on the same scale, the numbers export of a survey whose words
+    the fit read (new-user trial s27: no model file could score it)."""
+    theirs, ours = _by_item(record), _by_item(mine)
+    if set(theirs) != set(ours):
+        return False
+    for item, listed in theirs.items():
+        extra = ours[item] - listed
+        codes = {c for w, _, c in listed if w is not None}
+        if not listed <= ours[item] or any(w is not None or n != c or c not in codes for w, n, c in extra):
+            return False
+    return True
+
+
+def _by_item(record: tuple) -> dict:
+    """Per item, the set of (word key or None, number, code) a coding record lists."""
+    return {item: frozenset(((answer_key(w) if w is not None else None), n, c) for w, n, c in answers)
+            for items, answers in record for item in items}
 
 
 def _comparable(record: tuple) -> set:

@@ -6,6 +6,7 @@ from __future__ import annotations
 
 import re
 
+import numpy as np
 import pandas as pd
 
 from cfa_tool.data.kept_rows import FINISHED_COLUMNS
@@ -39,18 +40,41 @@ UNIT_WORDS = ("team", "school", "class", "classroom", "site", "clinic", "hospita
               "firm", "organisation", "organization", "village", "district", "region", "country", "interviewer")
 
 
+#: words that, beside a word of :data:`UNIT_WORDS` alone, still name the unit ('Team', 'team name', 'SiteCode')
+UNIT_NAMING_WORDS = ("name", "code", "number", "no", "nr")
+
+#: where a name's words meet inside a word run together: a lower-case letter or digit before a capital
+#: ('RespondentID', 'finalWeight'), and a run of capitals before a capital that starts a word ('IDNumber'), the word
+#: before it of at least two letters so that an item's code such as 'wA1' or 'pA2' stays one word
+_CAMEL_JOINT = re.compile(r"(?<=[a-z0-9]{2})(?=[A-Z])|(?<=[A-Z]{2})(?=[A-Z][a-z])")
+
+
+def name_words(name: str) -> tuple[str, ...]:
+    """The words of a column's name, case-folded, as the rules of names here read them: the name split at spaces,
+    underscores, dots and hyphens, and inside a word run together where a capital starts a new word
+    ('RespondentID' -> respondent, id; 'ResponseId', 'EmployeeID', 'TeamID' alike; new-user trial s27: a survey
+    platform's 'RespondentID' was no id), digits kept with the letters before them ('w1' stays one word, no
+    weight).  The one place where a column's name is read as words."""
+    return tuple(w.casefold() for part in re.split(r"[\s_.\-]+", name) for w in _CAMEL_JOINT.split(part) if w)
+
+
 def unit_word(name: str) -> str | None:
-    """The word of :data:`UNIT_WORDS` that a column named as an id has as a word of its own ('team' for 'team_id'),
-    else None (also for a column not named as an id: 'team_size')."""
-    if column_role(name) != IDS:
+    """The word of :data:`UNIT_WORDS` that a column named as an id has as a word of its own ('team' for 'team_id',
+    'TeamID'), or that is the column's name alone, or with a word of :data:`UNIT_NAMING_WORDS` ('Team', 'site
+    code'), else None (also for a column named otherwise: 'team_size')."""
+    words = name_words(name)
+    unit = next((w for w in words if w in UNIT_WORDS), None)
+    if unit is None:
         return None
-    return next((w for w in re.split(r"[\s_.\-]+", name.casefold()) if w in UNIT_WORDS), None)
+    if column_role(name) == IDS or all(w == unit or w in UNIT_NAMING_WORDS for w in words):
+        return unit
+    return None
 
 
 def column_role(name: str) -> str | None:
     """The part a column plays by its name (a key of COLUMN_ROLE_WORDS), or None for a column that may hold
-    answers.  The name is split into words at spaces, underscores, dots and hyphens."""
-    for word in re.split(r"[\s_.\-]+", name.casefold()):
+    answers.  The name is read as words by :func:`name_words`."""
+    for word in name_words(name):
         if word in _ROLE_OF_WORD:
             return _ROLE_OF_WORD[word]
     return None
@@ -81,10 +105,17 @@ def id_named_column(frame: pd.DataFrame, skip) -> str | None:
     return max(counts, key=lambda c: c[0])[1] if counts else None
 
 
+#: the fewest units a column named for the unit alone ('Team', 'school') must hold to be taken for units of many
+#: respondents (:func:`unit_id_column`): fewer are groups compared rather than clusters sampled (the two schools of
+#: Holzinger & Swineford's 1939 data), and too few clusters for a sandwich in any case (a rule of this project)
+UNITS_NAMED_ALONE_AT_LEAST = 5
+
+
 def unit_id_column(frame: pd.DataFrame, skip) -> tuple[str, str] | None:
     """(the column, its unit's word) of the first column of ``frame`` outside ``skip`` named as the id of a unit of
-    many respondents (:func:`unit_word`: 'team_id', 'team') whose values repeat among the rows, else None: the rows
-    of one unit, which a fit takes for independent cases unless the units are the design's clusters."""
+    many respondents (:func:`unit_word`: 'team_id', 'TeamID', or the unit alone, 'Team', then with at least
+    :data:`UNITS_NAMED_ALONE_AT_LEAST` units) whose values repeat among the rows, else None: the rows of one unit,
+    which a fit takes for independent cases unless the units are the design's clusters."""
     for name in frame.columns.tolist():
         if isinstance(name, str) and name not in skip and (word := unit_word(name)) is not None:
             values = frame[name].dropna()
@@ -92,6 +123,50 @@ def unit_id_column(frame: pd.DataFrame, skip) -> tuple[str, str] | None:
                 distinct = values.nunique()
             except TypeError:  # cells pandas cannot hash: compared as text
                 distinct = values.astype(str).nunique()
-            if 0 < distinct < len(values):
+            fewest = 1 if column_role(name) == IDS else UNITS_NAMED_ALONE_AT_LEAST
+            if fewest <= distinct < len(values):
                 return name, word
+    return None
+
+
+#: the fewest values a column must share across the groups to be taken for the people's id by its values
+#: (:func:`id_across_groups`), and the least share of its rows they must hold
+SHARED_IDS_AT_LEAST = 5
+SHARED_ROWS_SHARE = 0.2
+
+
+def id_across_groups(frame: pd.DataFrame, group: str, skip) -> str | None:
+    """The column of ``frame`` outside ``skip`` (the items, the group and design columns) that holds, whatever its
+    name, an id of people in each group of ``group``: a different value in every row of one group (no float that
+    is not whole), and values that name rows in more than one group, at least :data:`SHARED_IDS_AT_LEAST` of them
+    in :data:`SHARED_ROWS_SHARE` of the rows or more (the same people in several groups, as in a long file of two
+    waves); None when no column does (new-user trial s27: an id column named as the tool did not read an id went
+    unnoticed).  The first such column of the file."""
+    if group not in frame.columns:
+        return None
+    labels = frame[group]
+    has = labels.notna().to_numpy()
+    for name in frame.columns:
+        if name in skip or name == group or not isinstance(name, str):
+            continue
+        column = frame[name]
+        if column.dtype.kind == "f":
+            values = column.dropna().to_numpy()
+            if not len(values) or not np.all(np.mod(values, 1) == 0):
+                continue
+        elif column.dtype.kind not in "iuO":
+            continue
+        pairs = pd.DataFrame({"v": column.to_numpy(), "g": labels.to_numpy()})[has & column.notna().to_numpy()]
+        if len(pairs) < 2 * SHARED_IDS_AT_LEAST:
+            continue
+        try:
+            if pairs.duplicated().any():  # a value twice in one group: no id of the group's people
+                continue
+            groups_of = pairs.groupby("v", sort=False)["g"].nunique()
+        except TypeError:  # cells pandas cannot hash: compared as text
+            continue
+        shared = groups_of[groups_of > 1]
+        rows = int(pairs["v"].isin(shared.index).sum())
+        if len(shared) >= SHARED_IDS_AT_LEAST and rows >= SHARED_ROWS_SHARE * len(pairs):
+            return name
     return None

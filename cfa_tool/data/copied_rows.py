@@ -27,6 +27,8 @@ class CopiedRows:
     originals: tuple[int, ...]
     columns: int
     numbering: str | None = None
+    # a time-stamp column left out of the comparison too (:func:`time_stamp_column`), None if none
+    time_stamp: str | None = None
 
     def __len__(self) -> int:
         return len(self.copies)
@@ -62,11 +64,43 @@ def numbering_column(frame: pd.DataFrame) -> str | None:
     return None
 
 
-def copied_rows(frame: pd.DataFrame, row_numbers: np.ndarray, block: np.ndarray | None = None) -> CopiedRows | None:
+#: words of a column's name (data.column_roles.name_words) that name the time a row was submitted or recorded
+TIME_STAMP_WORDS = ("timestamp", "time", "date", "datetime", "submitted", "recorded", "completed")
+
+
+def time_stamp_column(frame: pd.DataFrame, skip=()) -> str | None:
+    """The first column of ``frame`` outside ``skip`` named as a time stamp (a word of :data:`TIME_STAMP_WORDS`:
+    'Timestamp', 'EndDate', 'submitted_at') whose cells are dates or times (each cell with a value read as one by
+    pandas), or None: a survey platform's stamp of each submission, which a respondent's second submission never
+    shares with the first."""
+    from cfa_tool.data.column_roles import name_words
+
+    for name in frame.columns:
+        if not isinstance(name, str) or name in skip or not any(w in TIME_STAMP_WORDS for w in name_words(name)):
+            continue
+        values = frame[name].dropna()
+        if not len(values):
+            continue
+        if values.dtype.kind == "M":
+            return name
+        if values.dtype.kind != "O" or not all(isinstance(v, str) for v in values):
+            continue
+        import warnings
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")  # pandas' word on a format it infers
+            read = pd.to_datetime(values, errors="coerce", format="mixed")
+        if read.notna().all():
+            return name
+    return None
+
+
+def copied_rows(frame: pd.DataFrame, row_numbers: np.ndarray, block: np.ndarray | None = None,
+                time_stamp: str | None = None) -> CopiedRows | None:
     """The rows of ``frame`` identical in every column (empty cells alike; a row-number column,
-    :func:`numbering_column`, left out) to an earlier row, with the row numbers ``row_numbers`` of the file (None
-    when no row repeats another).  ``block``: some columns of ``frame`` as floats (the items, taken out once per fit),
-    compared first: only rows that repeat an earlier row there are compared in every column."""
+    :func:`numbering_column`, left out, and the column ``time_stamp`` when given) to an earlier row, with the row
+    numbers ``row_numbers`` of the file (None when no row repeats another).  ``block``: some columns of ``frame`` as
+    floats (the items, taken out once per fit), compared first: only rows that repeat an earlier row there are
+    compared in every column."""
     if len(frame) < 2 or frame.shape[1] == 0:
         return None
     rows = np.arange(len(frame))
@@ -80,7 +114,8 @@ def copied_rows(frame: pd.DataFrame, row_numbers: np.ndarray, block: np.ndarray 
         rows = np.union1d(rows, original[rows])
     part = frame.iloc[rows] if len(rows) < len(frame) else frame
     numbering = numbering_column(frame)
-    compared = part.drop(columns=[numbering]) if numbering is not None else part
+    aside = [c for c in (numbering, time_stamp) if c is not None and c in frame.columns]
+    compared = part.drop(columns=aside) if aside else part
     if compared.shape[1] == 0:
         return None
     try:
@@ -100,7 +135,8 @@ def copied_rows(frame: pd.DataFrame, row_numbers: np.ndarray, block: np.ndarray 
         return None
     numbers = row_numbers[rows]
     return CopiedRows(tuple(int(r) for r in numbers[copies]), tuple(int(r) for r in numbers[original[copies]]),
-                      compared.shape[1], None if numbering is None else str(numbering))
+                      compared.shape[1], None if numbering is None else str(numbering),
+                      time_stamp if time_stamp in aside else None)
 
 
 #: fixed odd multipliers of the items' bits in a row's screening sum (any numbers do: equal rows have equal sums,

@@ -939,6 +939,7 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     named with the items' ones; ``id_column``: the column ``ids`` are read from (:func:`id_filter_column`), by which
     advice writes a row filter; ``takes_design`` False: the command takes no sampling design (replicate, explore:
     their --cluster draws halves), so no advice offers one."""
+    from cfa_tool.assessment.admissibility import ProblemKind
     from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 
     names = names if names is not None else (spec.observed_names if spec is not None else ())
@@ -946,7 +947,12 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     # ids of several rows: no merge by id one to one, and the same people's rows taken as independent cases
     repeated = repeated_id_problems(loaded, ids or {}, id_column, group, names, design, fitted=True,
                                     takes_design=takes_design)
-    found += repeated or named_id_problems(loaded, id_column, group, design, names, takes_design)
+    repeated = repeated or named_id_problems(loaded, id_column, group, design, names, takes_design)
+    if not any(p.kind is ProblemKind.REPEATED_IDS for p in repeated):  # no id of several rows: the teams' rows
+        repeated += _unit_rows_problems(loaded.frame, {group, id_column, *names,
+                                                       *(n for _, n in (design.names if design else ()))},
+                                        design, takes_design)
+    found += repeated
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {}, id_column=id_column)
@@ -1064,6 +1070,11 @@ COPIED_RUN_OF_ANSWERS_ALONE = 5
 IDENTIFYING_SHARE = 0.9
 
 
+def _at(frame: pd.DataFrame, number: int):
+    """The index label of the row of ``frame`` whose row number is ``number``."""
+    return frame.index[int(np.flatnonzero(row_numbers(frame) == number)[0])]
+
+
 def _identifying_column(frame: pd.DataFrame, skip: set, copies: int) -> bool:
     """Whether a column of ``frame`` other than those in ``skip`` (the model's items, groups, design, a row-number
     column) tells respondents apart, so that rows identical in it too are unlikely to agree by chance (review s11: a
@@ -1085,7 +1096,8 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     group and design columns, identical rows may be respondents who answered alike: named only when
     :data:`COPIED_RUN_OF_ANSWERS_ALONE` of them or more in a row repeat earlier rows in the same order."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
-    from cfa_tool.data.copied_rows import copied_rows
+    from cfa_tool.data.column_roles import id_named_column
+    from cfa_tool.data.copied_rows import copied_rows, time_stamp_column
 
     frame = _labelled(loaded.frame, group)
     items = [x for x in names if x in frame.columns]
@@ -1094,12 +1106,16 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
         block = item_values(frame, tuple(items))
     elif block is not None and frame is not loaded.frame:
         block = block[has_group(loaded.frame, group)]  # the rows _labelled keeps
-    found = copied_rows(frame, row_numbers(frame), block)
+    described = set(names) | {group} | {name for _, name in (design.names if design is not None else ())}
+    # without an id (given or named so), a survey platform's time stamp left out: a second submission differs from
+    # the first there alone (new-user trial s27); with one, the caution on ids names such rows by their id
+    stamp = (time_stamp_column(frame, described) if not ids and id_named_column(frame, described) is None
+             else None)
+    found = copied_rows(frame, row_numbers(frame), block, stamp)
     if found is None:
         return ()
-    described = set(names) | {group} | {name for _, name in (design.names if design is not None else ())}
     if found.longest_run() < COPIED_RUN_OF_ANSWERS_ALONE and not _identifying_column(
-            frame, described | {found.numbering}, len(found)):
+            frame, described | {found.numbering, found.time_stamp}, len(found)):
         return ()
     def row(r: int) -> Text:  # the id apart: a manuscript names rows by number alone (note_parts.RowId)
         return row_of(frame, r) + (Note((RowId(f" ({printable(ids[r])})"),)) if ids.get(r) is not None else "")
@@ -1108,7 +1124,11 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     few = names_shown(n, COPIED_ROWS_SHOWN)
     pairs = joined([row(c) + " repeats " + row(o) for c, o in list(zip(found.copies, found.originals))[:few]], "; ")
     more = more_words(n - few, "; and ")
-    numbering = f" but the row-number column '{printable(found.numbering)}'" if found.numbering else ""
+    numbering = (f" but the row-number column '{printable(found.numbering)}'" if found.numbering else "") + (
+        f"{' and' if found.numbering else ' but'} the time stamp '{printable(found.time_stamp)}'" if found.time_stamp else "")
+    stamped = found.time_stamp is not None and any(
+        frame.at[_at(frame, c), found.time_stamp] != frame.at[_at(frame, o), found.time_stamp]
+        for c, o in zip(found.copies, found.originals))  # a later submission, not a copy
     # a row filter can leave the copies out only by a column in which they differ from their originals: a row-number
     # column, or row names (``ids`` not read from a column of the file, which the copies repeat); rows identical in
     # every column have none (new-user trial s20: the advice named a filter that no column could write)
@@ -1121,10 +1141,18 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
         number = isinstance(first, Real) and not isinstance(first, bool)
         written = filter_text(found.numbering, "<", first if number else label_text(first))
         example = f" (here {Option.KEEP.given(written)})" if written else ""  # the one writer (data.filter_text)
+    if stamped:  # the filter that leaves the later submissions out, by the time stamp
+        written = _later_rows_filter(tuple((None, (o, c)) for c, o in zip(found.copies, found.originals)), frame,
+                                     None, tuple(names))
+        example = f" (here {Option.KEEP.given(written)})" if written else example
+        apart = True
     return (Problem(ProblemKind.COPIED_ROWS, (), float(n),
                     f"{count_text(n)} of the {count_text(len(frame))} rows analysed {'is' if n == 1 else 'are'} identical in every column"
-                    f"{numbering} to an earlier row: " + pairs + f"{more}. If they are copies (a file appended to itself, "
-                    f"rows pasted twice), each is counted as another respondent, so N is too large, the standard "
+                    f"{numbering} to an earlier row: " + pairs + f"{more}"
+                    + (" (submitted twice?)" if stamped else "")
+                    + f". If they are copies (a file appended to itself, "
+                    f"rows pasted twice{', a second submission' if stamped else ''}), each is counted as another "
+                    f"respondent, so N is too large, the standard "
                     f"errors too small and the chi-square too large." + (
                         " Each copy repeats its original's id too, so a file merged by the ids (a scores file, say) "
                         "cannot be matched to the rows one to one while the copies are there." if same_ids else ""),
@@ -1140,7 +1168,7 @@ REPEATED_IDS_SHOWN = 5  # ids of several rows that the caution names before 'and
 
 def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, group: str | None = None,
                          items: tuple[str, ...] = (), design: DesignColumns | None = None, fitted: bool = False,
-                         by_name: bool = False, takes_design: bool = True) -> tuple:
+                         by_name: bool = False, takes_design: bool = True, by_values: bool = False) -> tuple:
     """A caution naming the ids that several rows hold (``ids``: data-row number -> id; ``id_column``: the column
     they are read from, data.kept_rows.ROW_NAMES_COLUMN for the file's row names: :func:`id_filter_column`), each with
     its rows, the first :data:`REPEATED_IDS_SHOWN`; () when every id names one row.  One rule for every command that
@@ -1162,7 +1190,8 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
     (new-user trial s25: two waves of one staff under team clusters were said to be taken for independent samples).
     ``by_name``: ``id_column`` was not given but named as an id (data.column_roles.id_named_column), which the
     caution says, leaving out the merge by id that no id given implies; nothing then when the design allows for
-    the rows and no groups hold them."""
+    the rows and no groups hold them.  ``by_values`` (with ``by_name``): the column was taken for the id not by its
+    name but by its values, one per row in each group and shared across the groups (data.column_roles.id_across_groups)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.pipeline.same_people import (allow_for_them, groups_taken_as_independent, ids_outside_one_cluster,
                                                occasion_filter, taken_as_independent)
@@ -1177,8 +1206,13 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
     if not found:
         return ()
     naming, lines = row_naming(frame), text_lines(frame)
+    twice, found = _same_answers_again(found, frame, items)
+    first = _submitted_twice_problem(twice, frame, id_column, items, naming, lines, by_name and not by_values)
+    if not found:
+        return first
     by_column = id_column is not None and (id_column != ROW_NAMES_COLUMN or loaded.row_names is None)
-    holder = (f"The column '{printable(id_column)}', an id by its name," if by_name else
+    holder = (f"The column '{printable(id_column)}', an id by its values (none twice in one group)," if by_values else
+              f"The column '{printable(id_column)}', an id by its name," if by_name else
               f"The id column '{printable(id_column)}'" if by_column else f"The row names of {loaded.source}")
     few = names_shown(len(found), REPEATED_IDS_SHOWN)
     shown = joined([Note((RowId(f"'{clipped(value, 40)}' in "),)) + rows_listed(rows, 4, naming=naming, lines=lines)
@@ -1222,7 +1256,7 @@ def repeated_id_problems(loaded: LoadedData, ids: dict, id_column: str | None, g
              f" These {what} do not stand for one row each, so a file merged by them (a scores file, say) cannot be "
              f"matched to the rows one to one: a merge that expects one row per {what[:-1]} refuses, and one that "
              f"allows several gives a row another row's values.")
-    return (Problem(ProblemKind.REPEATED_IDS, (), float(len(found)),
+    return first + (Problem(ProblemKind.REPEATED_IDS, (), float(len(found)),
                     Note((f"{holder} {gives} one {what[:-1]} to {count_text(rows)} rows: " if len(found) == 1 else
                           f"{holder} {gives} {count_text(len(found))} {what} each to more than one row "
                           f"({count_text(rows)} rows in all): ",))
@@ -1236,27 +1270,31 @@ def named_id_problems(loaded: LoadedData, id_column: str | None, group: str | No
     no id column was given (``id_column`` None or the file's row names): by the one rule of names explore leaves out
     as ids (data.column_roles.id_named_column), over the rows analysed (new-user trial s25: 4,303 rows of 2,400
     employees in long form were fitted as independent without a word, while explore knew 'employee_id' for an id)."""
-    from cfa_tool.data.column_roles import id_named_column
+    from cfa_tool.data.column_roles import id_across_groups, id_named_column
     from cfa_tool.data.row_ids import id_text
 
     frame = loaded.frame
     if id_column is not None and id_column in frame.columns:  # an id column given: its own caution
         return ()
     named = id_named_column(frame, {group, *items})
-    if named is None:
-        return _unit_rows_problems(frame, {group, *items, *(n for _, n in (design.names if design else ()))},
-                                   design, takes_design)
+    by_values = False
+    if named is None and group is not None:  # whatever its name, a column of the people's ids shared by the groups
+        named = id_across_groups(frame, group, {*items, *(n for _, n in (design.names if design else ()))})
+        by_values = named is not None
+    if named is None:  # the caution on units of many respondents, if any, is data_problems'
+        return ()
     ids = ids_by_row_number(frame[named].map(id_text), frame)
     return repeated_id_problems(loaded, ids, named, group, items, design, fitted=True, by_name=True,
-                                takes_design=takes_design)
+                                takes_design=takes_design, by_values=by_values)
 
 
 def _unit_rows_problems(frame: pd.DataFrame, skip, design: DesignColumns | None, takes_design: bool) -> tuple:
-    """The caution on a column named as the id of teams, schools or classes (data.column_roles.unit_id_column), which
+    """The caution on a column named as the id of teams, schools or classes, or for them alone ('Team', 'TeamID':
+    data.column_roles.unit_id_column; new-user trial s27: only 'team_id' was read so), which
     is not the rows' id, when the design has no clusters: the rows of one unit are taken for independent cases, with
     the units as the design's clusters for the remedy (where the command takes them)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
-    from cfa_tool.data.column_roles import unit_id_column
+    from cfa_tool.data.column_roles import IDS, column_role, unit_id_column
 
     found = unit_id_column(frame, skip)
     if found is None or (design is not None and design.cluster is not None):
@@ -1266,7 +1304,8 @@ def _unit_rows_problems(frame: pd.DataFrame, skip, design: DesignColumns | None,
     rows = int(frame[name].notna().sum())
     plural = (word + "es" if word.endswith(("s", "sh", "ch", "x")) else
               word[:-1] + "ies" if word.endswith("y") and word[-2:-1] not in "aeiou" else word + "s")
-    explanation = (f"The column '{printable(name)}', an id of {plural} by its name, gives {counted(units, word, plural)} "
+    named = f"an id of {plural}" if column_role(name) == IDS else f"a column of {plural}"  # 'team_id' or 'Team'
+    explanation = (f"The column '{printable(name)}', {named} by its name, gives {counted(units, word, plural)} "
                    f"to {count_text(rows)} rows ({rounded_number(rows / units)} rows each on average): the analysis "
                    f"takes the rows of one {word} for independent cases, so if its members answer alike the standard "
                    f"errors are too small and the tests reject too readily.")
@@ -1287,9 +1326,18 @@ def _first_rows_only(found: tuple, frame: pd.DataFrame, id_column: str | None, i
     (``found``: (id, its rows' numbers, file order)) by a column, not the id's nor an item, whose values on the later
     rows are held by no other row ('submitted not in "2026-03-01 11:30", ...'), the first such column of the file;
     () when none does or the filter would list more than :data:`FILTER_VALUES_LISTED` values."""
+    written = _later_rows_filter(found, frame, id_column, items)
+    if written is None:
+        return ()
+    return ("; if some people submitted twice, keep each one's first row with the row filter on the column that "
+            "tells the later rows apart", Command(f" ({Option.KEEP.given(written)})"))
+
+
+def _later_rows_filter(found: tuple, frame: pd.DataFrame, id_column: str | None, items) -> str | None:
+    """The text of the row filter of :func:`_first_rows_only` (None when none can be written)."""
     later = [r for _, rows in found for r in rows[1:]]
     if not later or len(later) > FILTER_VALUES_LISTED:
-        return ()
+        return None
     numbers = row_numbers(frame)
     at_later = np.isin(numbers, later)
     for column in frame.columns:
@@ -1303,11 +1351,9 @@ def _first_rows_only(found: tuple, frame: pd.DataFrame, id_column: str | None, i
         if not np.array_equal(values.isin(distinct).to_numpy(), at_later):
             continue
         written = filter_text(str(column), "not in", distinct)  # the one writer of a filter's text
-        if written is None:
-            continue
-        return ("; if some people submitted twice, keep each one's first row with the row filter on the column that "
-                "tells the later rows apart", Command(f" ({Option.KEEP.given(written)})"))
-    return ()
+        if written is not None:
+            return written
+    return None
 
 
 def _ids_across_groups(found: tuple, frame: pd.DataFrame, group: str | None) -> int:
@@ -1317,6 +1363,70 @@ def _ids_across_groups(found: tuple, frame: pd.DataFrame, group: str | None) -> 
         return 0
     label = dict(zip(row_numbers(frame).tolist(), frame[group].tolist()))
     return sum(len({label[r] for r in rows if r in label and label[r] == label[r]}) > 1 for _, rows in found)
+
+
+def _same_answers_again(found: tuple, frame: pd.DataFrame, items) -> tuple[tuple, tuple]:
+    """``found`` (id, its rows' numbers) split in two: (id, an earlier row, the later rows that give the same answers
+    to every item in ``items`` as it, empty cells alike) for each id that has such rows (a respondent who submitted
+    twice), and the ids left to several rows without those later rows."""
+    items = [x for x in items if x in frame.columns]
+    place = pd.Series(np.arange(len(frame)), index=row_numbers(frame))
+    if not items or not place.index.is_unique:
+        return (), found
+    answers = frame[items]
+    twice, rest = [], []
+    for value, rows in found:
+        at = place.reindex(list(rows)).dropna().astype(int)
+        if len(at) < 2:
+            rest.append((value, rows))
+            continue
+        block = answers.iloc[at.to_numpy()]
+        try:
+            again = block.duplicated(keep="first").to_numpy()
+        except TypeError:  # cells pandas cannot hash: compared as text
+            again = block.astype(str).duplicated(keep="first").to_numpy()
+        later = tuple(int(r) for r in at.index[again])
+        if later:
+            original = int(at.index[~again][0])
+            twice.append((value, original, later))
+        left = tuple(r for r in rows if r not in later)
+        if len(left) > 1:
+            rest.append((value, left))
+    return tuple(twice), tuple(rest)
+
+
+def _submitted_twice_problem(twice: tuple, frame: pd.DataFrame, id_column: str | None, items, naming, lines,
+                             by_name: bool) -> tuple:
+    """The caution on rows of one id that give the same answers to every item as an earlier row of it
+    (:func:`_same_answers_again`: a respondent who submitted twice, counted as two people; new-user trial s27: only
+    'a typing error?' was said), with the row filter that leaves out the later rows where a column tells them apart
+    (:func:`_first_rows_only`); the rows stay in the analysis (defaults keep data)."""
+    if not twice:
+        return ()
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    from cfa_tool.data.kept_rows import rows_listed
+
+    later = sum(len(rows) for _, _, rows in twice)
+    few = names_shown(len(twice), REPEATED_IDS_SHOWN)
+    shown = joined([rows_listed((o, *rows), 4, naming=naming, lines=lines) + Note((RowId(f" ('{clipped(value, 40)}')"),))
+                    for value, o, rows in twice[:few]], "; ")
+    more = more_words(len(twice) - few, "; and ", "id")
+    holder = (f"the column '{printable(id_column)}', an id by its name" if by_name else
+              f"the id column '{printable(id_column)}'" if id_column not in (None, ROW_NAMES_COLUMN) else "the row names")
+    whose = "each such" if later > 1 else "the"
+    explanation = (Note(("Submitted twice? In ",)) + shown
+                   + f"{more}, {'the later row gives' if later == 1 else f'{count_text(later)} later rows give'} the "
+                     f"same id ({holder}) and the same answers to every item as an earlier row. If so, {whose} "
+                     f"respondent is counted as "
+                     f"{'two people' if later == 1 else 'several people'}, so N is too large and the standard errors "
+                     f"too small; the rows stay in the analysis.")
+    written = _later_rows_filter(tuple((v, (o, *rows)) for v, o, rows in twice), frame, id_column, items)
+    advice = Note(("if they are second submissions, leave the later rows out with the row filter on the column that "
+                   "tells them apart", Command(f" ({Option.KEEP.given(written)})"), ", or delete them in a copy of "
+                   "the data file.") if written is not None else
+                  ("if they are second submissions, delete the later rows in a copy of the data file.",))
+    return (Problem(ProblemKind.SUBMITTED_TWICE, (), float(later), explanation, advice),)
 
 
 def _without_copies(found: tuple, frame: pd.DataFrame) -> tuple:

@@ -9,7 +9,7 @@ from dataclasses import replace
 
 from cfa_tool.model.description import parameter_words
 from cfa_tool.numbers import count_text
-from cfa_tool.note_parts import Command, Note, joined
+from cfa_tool.note_parts import Command, Note, Text, joined
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.numbers import est_num, unit, word_list
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, _table
@@ -47,6 +47,33 @@ def _inadmissible_cautions(result) -> tuple[str, ...]:
         out += [f"The {level} model's solution is not admissible, as a single fit would judge it, in {count_text(count)} of the "
                 f"{count_text(d.converged)} converged replications{where} ({named}); they are included in the rejection shares"
                 for level, count, named in found if count]
+    return tuple(out)
+
+
+def _far_value_cautions(result) -> tuple[Text, ...]:
+    """A caution, first, per intercept a group's plan sets far from the reference group's
+    (workflows.group_population.GroupDifference.far): an 'in group' value is the intercept itself, in the model's
+    units (an earlier fit's, from its item means), not a shift, and a difference so large makes every step's power
+    about 1 and may make replications' solutions inadmissible (new-user trial s27)."""
+    observed = frozenset(result.population.observed)
+    out = []
+    for d in result.population.differences:
+        if not d.far():
+            continue
+        what = parameter_words(d.kind, d.variables, observed=observed, article=False)
+        shifted = d.reference_value + d.value
+        out.append(Note((f"Group {d.group}'s {what} is {est_num(d.value, 2)} against {est_num(d.reference_value, 2)} "
+                         f"in {result.labels[0]}, {est_num(d.standard_deviations(), 1)} standard deviations of the item "
+                         f"({est_num(d.reference_sd, 2)}) away: the value",
+                         Command(" of an 'in group' statement"),
+                         " is the intercept itself, in the model's units, not a shift from the other group, and a "
+                         "difference this large makes the power of the steps that test it about 1"
+                         + (" and may leave replications' solutions inadmissible" if any(
+                             d2.configural_inadmissible or any(s.inadmissible for s in d2.steps)
+                             for d2 in result.designs) else "")
+                         + f". If you meant a shift of {est_num(d.value, 2)}, give the intercept "
+                           f"{est_num(shifted, 2)} (the other group's {est_num(d.reference_value, 2)} plus "
+                           f"{est_num(d.value, 2)}).")))
     return tuple(out)
 
 
@@ -135,7 +162,8 @@ def invariance_power_report(result) -> Report:
     title = (f"Invariance power by simulation: {_sizes(labels, result.designs[0].sizes)}"
              if len(result.designs) == 1 else f"Invariance power by simulation at {len(result.designs)} designs")
     return Report(ResultKind.POWER_SIMULATION, f"{title}; {count_text(result.replications)} replications (seed {result.seed})",
-                  _notice([], list(_inadmissible_cautions(result))), tuple(lines), tuple(tables),
+                  _notice([], [*_far_value_cautions(result), *_inadmissible_cautions(result)]), tuple(lines),
+                  tuple(tables),
                   cautions=tuple(cautions), warnings=_defaults_caution(shared) + _few_replications(result.replications))
 
 

@@ -21,7 +21,8 @@ import numpy as np
 from cfa_tool.numbers import discrepancy_text, user_number, count_text
 from cfa_tool.method import (MISSING_AT_RANDOM, MISSING_COMPLETELY_AT_RANDOM, DecisionRule, DifferenceMethod, Information, FitTest, Items, MissingData,
                               WeightKind, Weighting)
-from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, design_cautions, design_doubts, failure_words
+from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, ProblemKind, design_cautions, design_doubts, failure_words,
+                                               free_parameters)
 from cfa_tool.assessment.directions import relative_direction
 from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors, uncorrelated_pairs
 from cfa_tool.assessment.reliability import BifactorPart, Keying, miskeyed
@@ -133,8 +134,20 @@ def _design_sentences(results) -> list[str]:
     if (len(results) == 1 or all(found == problems for _, found in own if found)
             or len({r.model_name for r in results}) < len(results)):  # the steps of one model: its largest's
         return [design_sentence(first)] + [p.explanation for p in problems]
-    # the models' cautions differ (each its own scaling factor): each said of its model (re-check s18)
-    return [design_sentence(first)] + [f"For {_name(r.model_name)}: {p.explanation}" for r, found in own for p in found]
+    # the models' cautions differ (each its own figures, re-check s18): each kind of caution said once, in the words of
+    # the model with the most free parameters that has it, naming the others it concerns (new-user trial s27: three
+    # models of one design repeated the same caution three times, 1,063 words)
+    parts, said = [design_sentence(first)], set()
+    ranked = sorted((r for r, found in own if found), key=free_parameters, reverse=True)
+    for r in ranked:
+        for p in (q for r2, found in own if r2 is r for q in found):
+            if p.kind in said:
+                continue
+            said.add(p.kind)
+            alike = [o.model_name for o, found in own if o is not r and any(q.kind is p.kind for q in found)]
+            also = f" (the same caution, with its own figures, for {_names(alike)})" if alike else ""
+            parts.append(f"For {_name(r.model_name)}{also}: {p.explanation}")
+    return parts
 
 
 def ordinal_item_names(result) -> tuple[str, ...]:

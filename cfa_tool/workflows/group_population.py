@@ -45,10 +45,34 @@ class GroupDifference:
     group: str
     value: float
     reference_value: float
+    # an intercept's: the item's standard deviation in the reference group's population, the unit in which
+    # :meth:`standard_deviations` measures the difference (None for other kinds)
+    reference_sd: float | None = None
+
+    def standard_deviations(self) -> float | None:
+        """An intercept's difference from the reference group's in the item's standard deviations there (None for
+        other kinds)."""
+        if self.reference_sd is None or not self.reference_sd > 0:
+            return None
+        return abs(self.value - self.reference_value) / self.reference_sd
+
+    def far(self) -> bool:
+        """Whether an intercept lies :data:`FAR_INTERCEPT_SDS` or more of the item's standard deviations from the
+        reference group's: a shift no study expects, the mark of a value written as a shift where the plan takes the
+        intercept itself (new-user trial s27: '.3' for '.3 higher' against 4.29, a power of 1.00)."""
+        size = self.standard_deviations()
+        return size is not None and size >= FAR_INTERCEPT_SDS
 
     def to_dict(self) -> dict:
         return {"kind": self.kind, "variables": list(self.variables), "group": self.group, "value": self.value,
-                "reference_value": self.reference_value}
+                "reference_value": self.reference_value} | (
+                    {"reference_sd": self.reference_sd} if self.reference_sd is not None else {})
+
+
+#: an intercept this many of the item's standard deviations from the reference group's is a caution first in a plan
+#: (a rule of this project: measurement-invariance studies report intercept differences of a fraction of an item's
+#: standard deviation, and 2 is far beyond them; not a published cutoff)
+FAR_INTERCEPT_SDS = 2.0
 
 
 @dataclass(frozen=True, eq=False)
@@ -219,7 +243,7 @@ def group_population(spec: Spec, labels: tuple[str, ...], configural: Spec, fitt
                 raise ModelError(message, own[0][0].location, spec.source_line(own[0][0].location))
             raise OptionError(message)
     return GroupPopulation(spec, labels, sigmas, means, shared, _differences(table, model.entry_values(theta),
-                                                                             factor_means, labels))
+                                                                             factor_means, labels, sigmas[0]))
 
 
 def _factor_means(spec: Spec, table: ParameterTable) -> list[np.ndarray]:
@@ -235,8 +259,9 @@ def _factor_means(spec: Spec, table: ParameterTable) -> list[np.ndarray]:
 
 
 def _differences(table: ParameterTable, values: np.ndarray, factor_means: list[np.ndarray],
-                 labels: tuple[str, ...]) -> tuple[GroupDifference, ...]:
-    """The values of each later group that differ from the reference group's, loadings first."""
+                 labels: tuple[str, ...], reference_sigma: np.ndarray) -> tuple[GroupDifference, ...]:
+    """The values of each later group that differ from the reference group's, loadings first; an intercept's with
+    the item's standard deviation in the reference group's population (``reference_sigma``)."""
     reference = {(par.kind, par.variables): float(v) for par, v in zip(table.parameters, values) if par.group == 0}
     out = []
     for par, v in zip(table.parameters, values):
@@ -244,7 +269,11 @@ def _differences(table: ParameterTable, values: np.ndarray, factor_means: list[n
             continue
         first = reference.get((par.kind, par.variables))
         if first is not None and not np.isclose(v, first, rtol=1e-9, atol=1e-12):
-            out.append(GroupDifference(par.kind, par.variables, labels[par.group], float(v), first))
+            sd = None
+            if par.kind == "intercept" and par.variables[0] in table.observed:
+                i = table.observed.index(par.variables[0])
+                sd = float(np.sqrt(reference_sigma[i, i]))
+            out.append(GroupDifference(par.kind, par.variables, labels[par.group], float(v), first, sd))
     for g in range(1, len(labels)):
         for f, (value, first) in enumerate(zip(factor_means[g], factor_means[0])):
             if value != first:

@@ -127,6 +127,45 @@ def test_scores_with_a_saved_fit_read_new_data_with_its_coding(files, tmp_path):
         score_with_saved_fit(other, tmp_path / "fit.json", files / "words.csv")
 
 
+def test_a_numbers_export_read_with_a_statement_of_words_gets_advice_that_works(files, tmp_path):
+    # new-user trial s27: the advice named 'for ITEMS' though no item held a word; listing each number as itself
+    # reads both exports with one model file, which the message now says, and a fit made so equals the plain fit
+    with pytest.raises(DataError) as refused:
+        cfa_tool.check(MODEL, files / "numbers.csv")
+    message = str(refused.value)
+    assert "no item of the statement holds a word in this file" in message and "for ITEMS" not in message
+    assert "(..., 1 = 1, 2 = 2, 3 = 3, 4 = 4, 5 = 5)" in message  # the statement's codes, 1 to 5 (STATEMENT above)
+    both = MODEL.rstrip("\n") + ", 1 = 1, 2 = 2, 3 = 3, 4 = 4, 5 = 5\n"
+    numbers, plain = cfa_tool.fit(both, files / "numbers.csv"), cfa_tool.fit(PLAIN, files / "numbers.csv")
+    assert np.allclose(numbers.theta, plain.theta, rtol=0, atol=1e-10)
+
+
+def test_scores_of_a_numbers_export_with_a_fit_of_words(files, tmp_path):
+    # new-user trial s27: no model file scored the numbers export with the fit of the words export; a statement that
+    # codes every word as the fit did and lists each code as itself is the same answers on the same scale
+    assert main(["fit", str(files / "words.cfa"), "--data", str(files / "words.csv"), "--json",
+                 str(tmp_path / "fit.json")]) == 0
+    both = tmp_path / "both.cfa"
+    both.write_text(MODEL.rstrip("\n") + ", 1 = 1, 2 = 2, 3 = 3, 4 = 4, 5 = 5\n")
+    assert main(["scores", str(both), "--from-fit", str(tmp_path / "fit.json"), "--data", str(files / "numbers.csv"),
+                 "--output", str(tmp_path / "n.csv")]) == 0
+    assert main(["scores", str(files / "words.cfa"), "--from-fit", str(tmp_path / "fit.json"), "--data",
+                 str(files / "words.csv"), "--output", str(tmp_path / "w.csv")]) == 0
+    w, n = pd.read_csv(tmp_path / "w.csv"), pd.read_csv(tmp_path / "n.csv")
+    assert np.allclose(w.select_dtypes("number"), n.select_dtypes("number"), equal_nan=True, rtol=0, atol=1e-10)
+    from cfa_tool.workflows.factor_scores import score_with_saved_fit
+    # a number listed as another code, or a number that is no code of the fit, is still another coding
+    for extra in (", 1 = 2", ", 6 = 6"):
+        other = tmp_path / "other.cfa"
+        other.write_text(MODEL.rstrip("\n") + extra + "\n")
+        with pytest.raises(OptionError, match="code the answers otherwise than the earlier fit"):
+            score_with_saved_fit(other, tmp_path / "fit.json", files / "numbers.csv")
+    # the fit's coding carried (a model file without the statement): the refusal says what works
+    from cfa_tool.errors import UserInputError
+    with pytest.raises(UserInputError, match="each number listed as itself at its end"):
+        score_with_saved_fit(files / "plain.cfa", tmp_path / "fit.json", files / "numbers.csv")
+
+
 def _fit_frame(frame: pd.DataFrame, model: str = MODEL):
     return cfa_tool.fit(model, frame)
 

@@ -48,3 +48,58 @@ def test_no_filter_is_written_where_no_column_tells_the_later_rows_apart():
     data["submitted"] = "2026-03-01"  # the same time on every row: nothing tells a resubmission apart
     advice = _advice(cfa_tool.check(MODEL, data, id_column="rid"))
     assert "keep=" not in advice and "correct the ids in a copy" in advice
+
+
+def test_a_second_submission_with_the_same_answers_is_named_first_as_such():
+    # new-user trial s27: the same id, the same answers to every item and a later time was told only 'a typing
+    # error?'; it is now a caution of its own, first, with the filter that leaves the later row out
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    data = _export()
+    again = data.iloc[[5]].copy()
+    again["submitted"] = "2026-03-02 09:05:00"  # R0005 once more, the same answers a day later
+    data = pd.concat([data, again], ignore_index=True)
+    for result in (cfa_tool.check(MODEL, data, id_column="rid"), cfa_tool.fit(MODEL, data, id_column="rid"),
+                   cfa_tool.fit(MODEL, data.rename(columns={"rid": "RespondentID"}))):  # given, or an id by its name
+        twice = [p for p in result.problems if p.kind is ProblemKind.SUBMITTED_TWICE]
+        assert twice and result.problems[0] is twice[0]
+        words = " ".join(str(twice[0].explanation).split())
+        # a data frame's rows by their index labels: R0005 at 5, the appended row at 308 (300 + 8 rows before it)
+        assert words.startswith("Submitted twice? In index labels 5, 308 ('R0005'), the later row gives the same id (")
+        assert "and the same answers to every item as an earlier row." in words
+        assert "submitted not in" in str(twice[0].advice)
+        # the 8 resubmissions with other answers stay in the caution on repeated ids, which no longer names R0005
+        [other] = [p for p in result.problems if p.kind is ProblemKind.REPEATED_IDS]
+        assert "gives 8 ids each to more than one row" in " ".join(str(other.explanation).split())
+        assert "R0005" not in str(other.explanation)
+    # the filter it writes, given back, leaves each id's first row (pandas' duplicated(), not the tool's)
+    found = re.search(r"keep=\['(submitted not in [^']*)'\]", str(twice[0].advice))
+    assert found and found.group(1) == 'submitted not in "2026-03-02 09:05:00"'
+    kept = cfa_tool.check(MODEL, data, id_column="rid", keep=[found.group(1)])
+    assert not [p for p in kept.problems if p.kind is ProblemKind.SUBMITTED_TWICE]
+    left = data[data["submitted"] != "2026-03-02 09:05:00"]
+    assert len(left) == 308 and left["rid"].duplicated().sum() == 8  # pandas: R0005 once, the 8 others as before
+
+
+def test_without_an_id_a_second_submission_is_a_copy_but_for_its_time_stamp():
+    # new-user trial s27: without an id the caution on copies needed every column identical, which a submission's
+    # time stamp never is; the stamp is now left out of the comparison there, and the filter is written by it
+    from cfa_tool.assessment.admissibility import ProblemKind
+    from cfa_tool.data.copied_rows import time_stamp_column
+
+    data = _export().drop_duplicates("rid").rename(columns={"rid": "email"})  # no column named as an id
+    again = data.iloc[[5]].copy()
+    again["submitted"] = "2026-03-02 09:05:00"
+    data = pd.concat([data, again], ignore_index=True)
+    assert time_stamp_column(data) == "submitted" and time_stamp_column(data, {"submitted"}) is None
+    checked = cfa_tool.check(MODEL, data)
+    [copies] = [p for p in checked.problems if p.kind is ProblemKind.COPIED_ROWS]
+    words = " ".join(str(copies.explanation).split())
+    # a data frame's rows by index label: R0005 at 5, the appended row at 300 (300 rows before it)
+    assert words.startswith("1 of the 301 rows analysed is identical in every column but the time stamp 'submitted' "
+                            "to an earlier row: index label 300 repeats index label 5 (submitted twice?)")
+    assert "keep=['submitted not in \"2026-03-02 09:05:00\"']" in str(copies.advice)
+    # the same time on both rows: a copy as before, no word of a second submission
+    data.loc[300, "submitted"] = data.loc[5, "submitted"]
+    [copies] = [p for p in cfa_tool.check(MODEL, data).problems if p.kind is ProblemKind.COPIED_ROWS]
+    assert "submitted twice" not in str(copies.explanation)

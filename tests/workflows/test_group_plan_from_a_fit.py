@@ -107,3 +107,28 @@ def test_the_fits_item_means_are_every_groups_intercepts_so_a_stated_intercept_i
                                atol=1e-10)
     assert "the items' means are the item means of the rows the earlier fit was fitted to" in " ".join(
         result.summary().split())
+
+
+def test_an_intercept_written_as_a_shift_is_a_caution_first(fitted, hs_data):
+    """New-user trial s27: 'in group east: start intercept(x2) = .4', written for '.4 higher', planned the intercept
+    .4 against the fit's mean of x2 (about 6.09), several of the item's standard deviations away, and the report said
+    nothing.  A caution now comes first, with the intercept that the shift meant; a plain shift of .4 added to the
+    mean (the test above) gets none."""
+    from cfa_tool.workflows.group_population import FAR_INTERCEPT_SDS
+
+    result = invariance_power(THREE_FACTORS + "in group east: start intercept(x2) = .4\n", "west=200,east=200",
+                              replications=2, seed=5, workers=1, population=fitted)
+    (difference,) = result.population.differences
+    # the item's SD in the reference population is its implied variance's root: the ML variance of x2 (divisor N),
+    # which a saturated mean and covariance reproduce only approximately, so checked against the data to 10%
+    sd = float(hs_data["x2"].std(ddof=0))
+    assert difference.reference_sd == pytest.approx(sd, rel=0.1)
+    assert difference.far() and difference.standard_deviations() > FAR_INTERCEPT_SDS
+    text = " ".join(result.summary().replace("\u2502", " ").split())  # the box's sides aside
+    mean_x2 = float(hs_data["x2"].mean())
+    start = f"Group east's intercept of x2 is 0.40 against {mean_x2:.2f} in west"
+    assert start in text and text.index(start) < text.index("Invariance power by simulation")
+    assert f"If you meant a shift of 0.40, give the intercept {mean_x2 + .4:.2f}" in text
+    near = invariance_power(THREE_FACTORS + f"in group east: start intercept(x2) = {mean_x2 + 0.4}\n",
+                            "west=200,east=200", replications=2, seed=5, workers=1, population=fitted)
+    assert not near.population.differences[0].far() and "If you meant a shift" not in near.summary()
