@@ -242,7 +242,7 @@ def data_read(args: argparse.Namespace) -> tuple:
     describe the same rows: --data (or --calibration) read with --sheet, --names-row, --first-data-row,
     --missing-codes, --rename, --keep and --half; replicate's --validation with its own reading options and the same
     codes and filters."""
-    from cfa_tool.data.halves import fingerprint
+    from cfa_tool.data.file_checksum import fingerprint
     from cfa_tool.reporting.document import DataRead
 
     read = [(getattr(args, "data", None) or getattr(args, "calibration", None), ""),

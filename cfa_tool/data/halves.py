@@ -23,7 +23,6 @@ listwise keeps them), whose notes then say the rows with gaps were left out befo
 from __future__ import annotations
 
 import csv
-import hashlib
 import io
 from dataclasses import dataclass
 from pathlib import Path
@@ -31,6 +30,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.file_checksum import fingerprint
 from cfa_tool.data.csv_convention import PLAIN, CsvConvention
 from cfa_tool.data.kept_rows import KEPT_BY, row_naming, rows_listed
 from cfa_tool.data.moments import row_numbers
@@ -388,17 +388,6 @@ class HalfRows:
                     f"seed {self.seed} and listed in {Path(self.halves_file).name})")
         return (f"the row fell in {self.phrase()} of two random halves{clusters}, drawn{within} with seed "
                 f"{self.seed} and listed in {Path(self.halves_file).name}")
-
-
-def fingerprint(path) -> str:
-    """The SHA-256 of a data file's bytes ('' when ``path`` is no regular file: a data frame, a special file)."""
-    if not isinstance(path, (str, Path)) or not Path(path).is_file():
-        return ""
-    digest = hashlib.sha256()
-    with open(path, "rb") as handle:
-        for block in iter(lambda: handle.read(1 << 20), b""):
-            digest.update(block)
-    return digest.hexdigest()
 
 
 @dataclass(frozen=True)

@@ -299,7 +299,7 @@ def test_a_column_of_numbers_with_two_slips_stops_the_default_items_as_fit_stops
     path = tmp_path / "hs.csv"
     frame.to_csv(path, index=False)
     before = path.read_bytes()
-    with pytest.raises(DataError, match=r"column 'x4' holds text \('\?' in row 4\) among numbers; .*or leave the "
+    with pytest.raises(DataError, match=r"column 'x4' holds text \('\?' in row 4, and in 1 other cell\) among numbers; .*or leave the "
                                         r"column out by naming the items"):
         cfa_tool.explore(path)
     assert main(["explore", "--data", str(path), "--draft", str(tmp_path / "draft.cfa")]) == 2
