@@ -1300,7 +1300,10 @@ def _unit_rows_problems(frame: pd.DataFrame, skip, design: DesignColumns | None,
     if found is None or (design is not None and design.cluster is not None):
         return ()
     name, word = found
-    units = int(frame[name].nunique())
+    try:
+        units = int(frame[name].nunique())
+    except TypeError:  # cells pandas cannot hash (a list in a cell): counted as their text
+        units = int(frame[name].dropna().astype(str).nunique())
     rows = int(frame[name].notna().sum())
     plural = (word + "es" if word.endswith(("s", "sh", "ch", "x")) else
               word[:-1] + "ies" if word.endswith("y") and word[-2:-1] not in "aeiou" else word + "s")

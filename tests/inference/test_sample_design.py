@@ -319,7 +319,7 @@ def test_few_clusters_bring_their_caution_to_compare_and_invariance_first(hs_dat
     one = "factor g: x1, x2, x3, x4, x5, x6, x7, x8, x9\n"
     comparison = compare([one, THREE_FACTORS], data, cluster="unit")
     report = comparison_report(comparison)
-    text = report_text(report)
+    text = report_text(report, width=250)  # (no phrase wrapped inside the problems box)
     assert text.index("no more than the 21 free parameters") < text.index("Fit of each model")
     # each model's own count of parameters, said of that model (re-check s18: one model's figures were said of both)
     assert sum("Only 12 clusters" in line for line in report.notice.lines) == 2

@@ -341,7 +341,7 @@ def test_a_saved_drawing_edited_without_its_size_is_a_one_line_error(tmp_path, c
     payload["report"]["figures"][0]["svg"] = '<svg xmlns="http://www.w3.org/2000/svg"><text>x</text></svg>'
     saved.write_text(json.dumps(payload))
     for view in ("--html", "--docx"):
-        code, out, err = _run(["report", saved, view, tmp_path / f"out{view[2:]}"], capsys)
+        code, out, err = _run(["report", saved, view, tmp_path / f"out.{view[2:]}"], capsys)
         assert code == 2 and "incomplete or changed by hand" in _error_line(err), err
 
 
