@@ -23,6 +23,8 @@ MAX_WORKERS = 1_024
 MAX_SEED = 2**63 - 1
 MAX_OBSERVATIONS = 10**12
 MAX_ITERATIONS = 1_000_000
+#: the iteration limit of a model's estimation when none is given (fit options' and the command line's default)
+ITERATION_LIMIT = 500
 MAX_SIMULATED_CELLS = 100_000_000  # rows x variables of simulated data held in memory
 MAX_CATEGORIES = 100
 

@@ -32,7 +32,7 @@ def add_parser(sub) -> None:
                         f"0 leaves the check out)")
     p.add_argument("--seed", type=int, default=None, help="random seed of the Monte Carlo check (default 1)")
     O.add_incomplete_rows_option(p)
-    p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
+    O.add_max_iterations_option(p)
     O.add_data_options(p)
     O.add_id_option(p)
     add_report_options(p)

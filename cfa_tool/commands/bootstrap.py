@@ -16,6 +16,7 @@ def add_parser(sub) -> None:
     O.add_ordinal_options(p)
     O.add_design_options(p)
     O.add_incomplete_rows_option(p, O.REFITS_AS_THE_FIT)
+    O.add_max_iterations_option(p, " of the fit to the data")
 
 
 def run(args: argparse.Namespace) -> int:
@@ -26,5 +27,5 @@ def run(args: argparse.Namespace) -> int:
         result = bootstrap(Path(args.model), args.data, args.replications, args.seed, workers=args.workers,
                            scheduler=args.scheduler, progress=advance, **O.reading_args(args), ordinal=O.ordinal_arg(args.ordinal),
                            ordinal_estimator=args.ordinal_estimator, missing=args.missing, id_column=args.id,
-                           **O.design_args(args))
+                           **O.design_args(args), **O.max_iterations_arg(args))
     return emit(args, result)

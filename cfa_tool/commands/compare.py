@@ -20,6 +20,7 @@ def add_parser(sub) -> None:
     O.add_incomplete_rows_option(compare, "; every model is fitted to the same rows either way")
     O.add_ordinal_options(compare)
     O.add_design_options(compare)
+    O.add_max_iterations_option(compare)
     add_report_options(compare)
 
 
@@ -30,5 +31,5 @@ def run(args: argparse.Namespace) -> int:
     result = compare([Path(m) for m in args.models], args.data, group=args.group, reference_group=args.reference_group,
                      test=O.fit_test(args), missing=args.missing, **O.reading_args(args),
                      ordinal=O.ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator,
-                     id_column=args.id, **O.design_args(args))
+                     id_column=args.id, **O.design_args(args), **O.max_iterations_arg(args))
     return emit(args, result)

@@ -15,6 +15,7 @@ def add_parser(sub) -> None:
                                 "samples per population")
     O.add_ordinal_options(p)
     O.add_incomplete_rows_option(p, O.REFITS_AS_THE_FIT)
+    O.add_max_iterations_option(p, " of the fit to the data")
     O.refuse_design_options(p, "cutoffs are simulated from samples of independent, equally weighted rows, and a "
                                "sampling design (weights, clusters, strata) cannot be simulated from the data alone; "
                                "run cutoffs without it and compare with the fit's design-based statistics with care")
@@ -28,5 +29,5 @@ def run(args: argparse.Namespace) -> int:
         result = cutoffs(Path(args.model), args.data, args.replications, args.seed, args.workers, args.scheduler,
                          advance, **O.reading_args(args),
                          ordinal=O.ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator,
-                         missing=args.missing, id_column=args.id)
+                         missing=args.missing, id_column=args.id, **O.max_iterations_arg(args))
     return emit(args, result)

@@ -45,6 +45,7 @@ def add_parser(sub) -> None:
     p.add_argument("--replications", type=int, default=100, help="random data sets of parallel analysis (default 100)")
     p.add_argument("--seed", type=int, default=0, help="seed of parallel analysis and of the rotation's random starts "
                                                        "(default 0)")
+    O.add_max_iterations_option(p, " of the draft model's fit on the confirmation half (with --split)")
     O.add_data_options(p)
     O.add_id_option(p)
     O.add_halves_design_options(p, "--split", ", as replicate --data draws them")
@@ -72,7 +73,8 @@ def run(args: argparse.Namespace) -> int:
                      extraction=args.extraction, ordinal=O.ordinal_arg(args.ordinal), split=args.split,
                      **O.reading_args(args),
                      replications=args.replications, seed=args.seed, target=args.target, answers=args.answers,
-                     cluster=args.cluster, strata=args.strata, id_column=args.id)
+                     cluster=args.cluster, strata=args.strata, id_column=args.id,
+                     **(O.max_iterations_arg(args) if "max_iterations" in getattr(args, "_given_options", ()) else {}))
     files = [("--draft", result.draft_text, f"Draft model written to {args.draft}")] if args.draft else []
     if result.split is not None:
         from cfa_tool.data.halves import EXPLORE_HALVES

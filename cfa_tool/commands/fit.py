@@ -43,7 +43,7 @@ def add_fit_outputs(p: argparse.ArgumentParser) -> None:
     p.add_argument("--mi-threshold", type=float, default=None, metavar="X",
                    help="show modification indices of at least X (default 3.84)")
     p.add_argument("--mi-top", type=int, default=None, metavar="N", help="show at most N modification indices")
-    p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
+    O.add_max_iterations_option(p)
     O.add_test_option(p)
     O.add_ordinal_options(p)
     O.add_incomplete_rows_option(p)

@@ -40,6 +40,7 @@ def add_parser(sub) -> None:
     O.add_ordinal_options(inv)
     O.add_incomplete_rows_option(inv)
     O.add_design_options(inv)
+    O.add_max_iterations_option(inv, " of each step's model")
     add_report_options(inv)
 
 
@@ -64,7 +65,7 @@ def run(args: argparse.Namespace) -> int:
                             ordinal=O.ordinal_arg(args.ordinal),
                             ordinal_estimator=args.ordinal_estimator, missing=args.missing, progress=advance,
                             id_column=args.id,
-                            **O.reading_args(args), **O.design_args(args))
+                            **O.reading_args(args), **O.design_args(args), **O.max_iterations_arg(args))
     return emit(args, result)
 
 
@@ -96,7 +97,7 @@ def _over_occasions(args: argparse.Namespace) -> int:
                                        id_column=args.id, occasion_endings=endings, occasion_order=order,
                                        alpha=args.alpha,
                                        decide_by=args.decide_by, test=O.fit_test(args), missing=args.missing,
-                                       **O.reading_args(args))
+                                       **O.reading_args(args), **O.max_iterations_arg(args))
     return emit(args, result)
 
 

@@ -328,6 +328,28 @@ def add_incomplete_rows_option(p: argparse.ArgumentParser, where: str = "") -> N
                                  + "|".join(MissingData.words()))
 
 
+#: the commands that fit a model to data, each with --max-iterations (:func:`add_max_iterations_option`)
+FITTING_COMMANDS = ("fit", "scores", "compare", "invariance", "replicate", "bootstrap", "cutoffs", "align", "explore")
+
+
+def add_max_iterations_option(p: argparse.ArgumentParser, which: str = "") -> None:
+    """--max-iterations, declared once for every command that fits a model to data (:data:`FITTING_COMMANDS`): a
+    search that stops at the limit advises raising it (assessment.convergence, by options.Option.MAX_ITERATIONS), so
+    every command that can show that advice takes the option (s28: compare, invariance, replicate, bootstrap and
+    cutoffs advised it and refused it).  ``which``: the fits it limits, where not every fit of the command
+    ('of the fit to the data')."""
+    from cfa_tool.options import ITERATION_LIMIT
+
+    p.add_argument("--max-iterations", type=int, default=ITERATION_LIMIT, metavar="N",
+                   help=f"iteration limit of the estimation{which} (default {ITERATION_LIMIT}); raise it when a search "
+                        f"stops at the limit")
+
+
+def max_iterations_arg(args: argparse.Namespace) -> dict:
+    """--max-iterations as the workflows' keyword."""
+    return {"max_iterations": args.max_iterations}
+
+
 def add_ordinal_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--ordinal", metavar="ITEMS",
                    help="'all' or comma-separated items to treat as ordinal (thresholds and polychoric correlations); "

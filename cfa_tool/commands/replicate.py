@@ -41,6 +41,7 @@ def add_parser(sub) -> None:
                           "--calibration file (or --data): each file's columns are renamed by its own option")
     O.add_ordinal_options(rep)
     O.add_incomplete_rows_option(rep, O.REFITS_AS_THE_FIT)
+    O.add_max_iterations_option(rep, " of every fit (each sample's, the pooled and the two-sample one)")
     O.add_halves_design_options(rep, "--data")
     O.refuse_design_options(rep, "replicate compares samples of independent, equally weighted rows and takes no "
                                  "weights: its test of one solution and cross-validation index would mislead under "
@@ -59,7 +60,7 @@ def run(args: argparse.Namespace) -> int:
         raise OptionError("give either --data (split-half) or --calibration and --validation, not both")
     O.refuse_validation_reading(args)
     ordinal = {"ordinal": O.ordinal_arg(args.ordinal), "ordinal_estimator": args.ordinal_estimator,
-               "missing": args.missing, "id_column": args.id, **O.reading_args(args)}
+               "missing": args.missing, "id_column": args.id, **O.reading_args(args), **O.max_iterations_arg(args)}
     if args.halves_file and not args.data:
         raise OptionError("--halves-file saves the random halves of one data file (--data), and --calibration and "
                           "--validation are not split")

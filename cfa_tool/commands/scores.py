@@ -51,7 +51,7 @@ def add_parser(sub) -> None:
     O.add_design_options(p, "the design the model is fitted under (weighted estimates, sandwich standard errors); a "
                             "row's score follows from its answers and the fitted parameters alone, so every row is "
                             "scored whatever its weight; not with --from-fit, whose fit had its own design")
-    p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
+    O.add_max_iterations_option(p, " (not with --from-fit, whose parameters are fitted already)")
     p.add_argument("--from-fit", metavar="RESULT.json",
                    help="score the data with the parameters of an earlier fit of MODEL (its 'fit --json' result) instead "
                         "of fitting the model to them (ordinal items by their posterior mean, from its thresholds)")

@@ -47,7 +47,7 @@ from cfa_tool.model.starts import starting_values
 from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.numerics.linalg import scaled_factor
 from cfa_tool.numerics.threads import blas_threads_for
-from cfa_tool.options import Option
+from cfa_tool.options import ITERATION_LIMIT, Option
 from cfa_tool.pipeline.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
 if TYPE_CHECKING:  # the full-information likelihood is imported by the fits that use it
@@ -66,7 +66,7 @@ class FitOptions:
     information: Information | None = None
     mi_threshold: float | None = None  # None: not given, DEFAULT_MI_THRESHOLD (set in __post_init__)
     mi_top: int | None = None
-    max_iterations: int = 500
+    max_iterations: int = ITERATION_LIMIT
     # the test of fit; None (not chosen) is the normal-theory test, and under a sampling design the design-based scaled
     # one (pipeline.inputs.design_test)
     test: FitTest | None = None

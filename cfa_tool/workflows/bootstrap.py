@@ -833,14 +833,16 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
               progress=None, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
               keep: tuple[str, ...] | list[str] = (), rename=None, weights: str | None = None, cluster: str | None = None,
               strata: str | None = None, weight_kind: str | None = None, ordinal: str | list[str] | None = None,
-              ordinal_estimator: str | None = None, missing: str | None = None, id_column: str | None = None):
+              ordinal_estimator: str | None = None, missing: str | None = None, id_column: str | None = None,
+              max_iterations: int = check.ITERATION_LIMIT):
     """Fit the model, then bootstrap it: the result holds the fit (``.fit``) and its bootstrap.  A sampling design (``weights``,
     ``cluster``, ``strata``, ``weight_kind``, as for ``fit``) weights the fit and every resample, and the
     resamples draw whole clusters within strata.  Ordinal items (an 'ordinal' statement, or ``ordinal`` and
     ``ordinal_estimator`` as for ``fit``) are fitted by least squares, and each resample is refitted so, with
     percentile intervals only (``bca``: BCa intervals too, None where they apply: for continuous items; asked for
     with ordinal items, an error).  ``id_column``: the column that names each row (never analysed), beside the row numbers of the cautions about
-    rows, as for ``fit``."""
+    rows, as for ``fit``; ``max_iterations``: the iteration limit of the fit to the data, as for ``fit`` (each
+    resample's refit starts from its estimates)."""
     replications, seed = bootstrap_options(replications, seed, workers, scheduler)
     design = design_columns(weights, cluster, strata, weight_kind)
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,
@@ -862,7 +864,8 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
         # missing='listwise' (a half of halves drawn from the complete rows is read so: data.halves.half_kept), in
         # the fit and in every resample (ordinal_resampling.analysed_rows); full-information ML refused as fit does
         with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
-            result = with_odd_values(_fit_rows(spec, loaded, notes, None, None, FitOptions(missing=missing), ordinal,
+            result = with_odd_values(_fit_rows(spec, loaded, notes, None, None, FitOptions(missing=missing, max_iterations=max_iterations),
+                                               ordinal,
                                                ordinal_estimator), loaded, None, spec, None, ids, named_by)
         return bootstrap_fit(result, spec, numeric_columns(frame, result.observed, source), replications, seed,
                              bollen_stine, bca, workers, scheduler, progress)
@@ -871,7 +874,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
         notes = list(notes) + design_notes
     handling, missing_notes = refit_missing_handling(frame, spec.observed_names, missing)
     notes = missing_notes + list(notes)
-    options = FitOptions(missing=handling)
+    options = FitOptions(missing=handling, max_iterations=max_iterations)
     if design is not None:
         options = design_test(options, design)
         refuse_large_robust_route(spec, options, design)  # before the moments and the fit

@@ -376,12 +376,13 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
             workers: int | None = None, scheduler: str | None = None, progress=None, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None,
             missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), rename=None,
             ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
-            id_column: str | None = None):
+            id_column: str | None = None, max_iterations: int = check.ITERATION_LIMIT):
     """Fit the model, then simulate model-specific fit-index cutoffs: the result holds the fit (``.fit``) and the
     cutoffs.  Ordinal items (an 'ordinal' statement, or ``ordinal`` and ``ordinal_estimator`` as for ``fit``) are
     fitted by least squares, the samples are simulated as ordinal answers and fitted so, and the cutoffs are of
     the adjusted indices the fit reports.  ``id_column``: the column that names each row (never analysed), beside the row numbers of the cautions about
-    rows, as for ``fit``."""
+    rows, as for ``fit``; ``max_iterations``: the iteration limit of the fit to the data, as for ``fit`` (each
+    simulated sample's fit starts from its estimates)."""
     from cfa_tool.data.matching import chosen_columns
 
     replications, seed = cutoff_options(replications, seed, workers, scheduler)
@@ -398,13 +399,14 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
         with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
             # the rows as fit takes them: pairwise present rows by default, the complete rows with missing='listwise'
             # (given before, it was left unused), full-information ML refused as fit refuses it
-            result = _fit_rows(spec, loaded, notes, None, None, FitOptions(missing=missing), ordinal, ordinal_estimator)
+            result = _fit_rows(spec, loaded, notes, None, None, FitOptions(missing=missing, max_iterations=max_iterations),
+                               ordinal, ordinal_estimator)
         return fit_cutoffs(spec, with_odd_values(result, loaded, None, spec, None, ids, named_by), replications, seed,
                            workers, scheduler, progress)
     handling, missing_notes = refit_missing_handling(frame, spec.observed_names, missing)
     moments = sample_moments(frame, spec.observed_names, source, missing=handling)
     with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
-        result = converged(fit_moments(spec, moments, FitOptions(missing=handling)))
+        result = converged(fit_moments(spec, moments, FitOptions(missing=handling, max_iterations=max_iterations)))
     result = replace(result, warnings=tuple(missing_notes) + tuple(notes) + result.warnings)  # reading, filters
     patterns = None
     if handling is MissingData.FULL_INFORMATION:

@@ -914,7 +914,7 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
             keep: tuple[str, ...] | list[str] = (), rename: ColumnRenames = None, replications: int = 100,
             seed: int = 0, threshold: float = 0.30, target: np.ndarray | Sequence[Sequence[float]] | str | Path | None = None,
             answers: str | Path | None = None, cluster: str | None = None, strata: str | None = None,
-            id_column: str | None = None) -> ExploreResult:
+            id_column: str | None = None, max_iterations: int | None = None) -> ExploreResult:
     """How many factors, an exploratory solution and a draft model file for ``items`` of ``data``.
 
     ``items``: column names, or text 'a, b, c' with 'q1..q9' for a numbered range, counted as a model file counts
@@ -937,6 +937,7 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     whole clusters of the column ``cluster`` to each half, within each stratum of ``strata``; those columns are never
     items.  ``id_column``: a column that names each row (never an item), which the caution about copies of earlier
     rows shows beside the row numbers, as fit shows it (without it, a row-name column of the file does).
+    ``max_iterations``, with ``split``: the iteration limit of the draft model's fit on the confirmation half, as for ``fit``.
     """
     from cfa_tool import options
     from cfa_tool.pipeline import inputs as api
@@ -951,6 +952,10 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
         # (a half given by --half was drawn by the run that wrote the halves file, by its clusters: re-check s18)
         raise OptionError(f"{given} draws the random halves of {Option.SPLIT} by cluster, and this run draws no "
                           f"halves: give {Option.SPLIT.given('SEED')} or leave {given} out")
+    if split is None and max_iterations is not None:
+        raise OptionError(f"{Option.MAX_ITERATIONS} limits the draft model's fit on the confirmation half of "
+                          f"{Option.SPLIT}, and this run draws no halves: give {Option.SPLIT.given('SEED')} or leave "
+                          f"{Option.MAX_ITERATIONS} out")
     codings = _answer_codings(answers)
     # a first reading names the columns and chooses the default items; the data are then read for those items as
     # fit reads them for a model's (pipeline.inputs.read_inputs_with_notes): --missing-codes and words or labels
@@ -1095,7 +1100,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     statements = tuple(answer_lines(spec, drafted))
     split_result = None
     if halves is not None:
-        split_result = replace(_confirm(exploration, halves, split, source, statements, id_column), **design_split)
+        split_result = replace(_confirm(exploration, halves, split, source, statements, id_column, max_iterations),
+                               **design_split)
     return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
                          sorted_items(exploration), sample_problems + data_problems, statements, coding_record(spec),
                          few, left_out if by_default else (), loaded.reading)
@@ -1235,11 +1241,12 @@ def _empty_rows_note(frame: pd.DataFrame, empty: np.ndarray) -> str:
 
 
 def _confirm(exploration: Exploration, halves, seed: int, source: str, statements: tuple[str, ...],
-             id_column: str | None = None) -> SplitHalves:
+             id_column: str | None = None, max_iterations: int | None = None) -> SplitHalves:
     """The draft model fitted on the confirmation half.  Its rows were read once, with the answers file's words
     coded, so the draft is fitted to their codes, and the fit keeps the coding that the draft model file's
     ``statements`` state (its methods paragraph says how the words were coded, as a fit of that file does); its rows
-    named by ``id_column`` as the exploration names them."""
+    named by ``id_column`` as the exploration names them; ``max_iterations``: the fit's iteration limit (None: fit's
+    own)."""
     from dataclasses import replace
 
     from cfa_tool.pipeline import inputs as api
@@ -1251,7 +1258,8 @@ def _confirm(exploration: Exploration, halves, seed: int, source: str, statement
         return SplitHalves(seed, first, second, None, "the draft model has no factor with enough items, so there is "
                                                       "nothing to confirm")
     try:
-        fitted = api.fit(exploration.draft.text, confirming, id_column=id_column)  # its index keeps the row numbers
+        fitted = api.fit(exploration.draft.text, confirming, id_column=id_column,  # its index keeps the row numbers
+                         **({} if max_iterations is None else {"max_iterations": max_iterations}))
     except CfaError as exc:
         return SplitHalves(seed, first, second, None, f"the draft model could not be fitted on the confirmation half: "
                                                       f"{exc}")

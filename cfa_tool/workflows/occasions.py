@@ -587,7 +587,8 @@ def _later_entries(table, kinds: tuple[str, ...]) -> list:
     return out
 
 
-def _constraint_tests(step_spec: Spec, wide: pd.DataFrame, kinds: tuple[str, ...], test: str | None) -> tuple:
+def _constraint_tests(step_spec: Spec, wide: pd.DataFrame, kinds: tuple[str, ...], test: str | None,
+                      max_iterations: int = check.ITERATION_LIMIT) -> tuple:
     """The score tests (largest first) of a step's equalities over the occasions: the step's model fitted again to the
     rows compare fitted (those with some answer), its estimates the same, and each later occasion's equal entry
     released in turn (normal-theory score tests, Sörbom 1989; with a robust test the generalized ones of Satorra
@@ -600,7 +601,8 @@ def _constraint_tests(step_spec: Spec, wide: pd.DataFrame, kinds: tuple[str, ...
     from cfa_tool.pipeline.inputs import make_options, moments_for
 
     answered = wide[list(step_spec.observed_names)].notna().to_numpy().any(axis=1)
-    options = replace(make_options({"missing": MissingData.FULL_INFORMATION.value, "test": test}),
+    options = replace(make_options({"missing": MissingData.FULL_INFORMATION.value, "test": test,
+                                    "max_iterations": max_iterations}),
                       diagnostics=False)
     groups, _ = moments_for(step_spec, wide.loc[answered], "the occasions side by side", None, None,
                             MissingData.FULL_INFORMATION)
@@ -632,12 +634,13 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
                               sheet: str | None = None, names_row: int | None = None,
                               first_data_row: int | None = None, missing_codes: tuple = (),
                               keep: tuple[str, ...] | list[str] = (), rename=None, test: str | None = None,
-                              missing: str | None = None) -> OccasionsResult:
+                              missing: str | None = None, max_iterations: int = check.ITERATION_LIMIT) -> OccasionsResult:
     """Fit the configural, metric, scalar and strict models over occasions of the same people (one group) and test
     each against the one before.  Long data: ``occasion_column`` and ``id_column`` (one row per person and occasion).
     Wide data: ``occasion_endings`` ('_t1', '_t2': the item vig1 at the first occasion is the column vig1_t1), with
     ``id_column`` optional.  ``test='robust'`` fits every step with the robust test and tests the steps by the
-    scaled difference; rows with gaps are kept by full-information ML, which the scalar step's means need."""
+    scaled difference; rows with gaps are kept by full-information ML, which the scalar step's means need;
+    ``max_iterations``: the iteration limit of each step's fit, as for ``fit``."""
     for given, option in ((occasion_order, Option.OCCASION_ORDER), (occasion_endings, Option.OCCASION_ENDINGS)):
         if isinstance(given, str):  # its characters would be read as the occasions (hostile s27)
             what = "labels" if given is occasion_order else "endings"
@@ -723,7 +726,8 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
     specs = [parse_model(text, f"{spec.source} ({level} over occasions)") for text, (level, _, _) in zip(texts, LEVELS)]
     from cfa_tool.workflows.compare import compare
 
-    found = compare(specs, wide, test=test, missing=MissingData.FULL_INFORMATION.value, id_column=id_column)
+    found = compare(specs, wide, test=test, missing=MissingData.FULL_INFORMATION.value, id_column=id_column,
+                    max_iterations=max_iterations)
     words = _OccasionWords(spec, layout)
     found = replace(found, results=tuple(words.result(r) for r in found.results),
                     notes=tuple(words.said(n) for n in found.notes))
@@ -742,7 +746,7 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
         srmr = None if previous is None else result.fit.srmr - previous.result.fit.srmr
         kinds = next(added for lv, _, added in LEVELS if lv == level)
         # the sources of a step's misfit: the score tests of its equalities where it did not hold (the ladder's rule)
-        culprits = (_constraint_tests(specs[k], wide, kinds, test) if kinds and not holds and result.admissible
+        culprits = (_constraint_tests(specs[k], wide, kinds, test, max_iterations) if kinds and not holds and result.admissible
                     and not untested else ())
         steps.append(InvarianceStep(level, result, test_k, holds, culprits, any(not s.holds for s in steps),
                                     delta_srmr=srmr, unjudged=not_judged))
