@@ -10,7 +10,10 @@ no longer estimated."""
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from collections.abc import Iterator
+from contextlib import contextmanager
+from contextvars import ContextVar
+from dataclasses import dataclass, field
 
 import pandas as pd
 
@@ -20,6 +23,38 @@ from cfa_tool.numbers import count_text, counted, user_number, word_list
 
 #: the key of ``frame.attrs`` that keeps what the joins changed (a tuple of :class:`JoinedItem`)
 JOINED = "joined_answers"
+
+
+@dataclass
+class _HeldAcross:
+    """The files read inside :func:`held_across` and, per 'join answers' statement (by its place in the model), the
+    codes its items were given there."""
+
+    check: bool
+    sources: list[str] = field(default_factory=list)
+    held: dict[int, set[float]] = field(default_factory=dict)
+
+
+_ACROSS: ContextVar[_HeldAcross | None] = ContextVar("joins_held_across", default=None)
+
+
+@contextmanager
+def held_across(spec: Spec, check: bool = True) -> Iterator[None]:
+    """Inside: each code a 'join answers' statement of ``spec`` joins need be given by some row of all the files read
+    together, not of each (replicate's calibration and validation files, whose rows the command analyses together,
+    as a code is joined across groups where it is held: hostile s27, a validation file without the answer 1 refused
+    the join the calibration file needed); the refusal, naming every file, when the reading is done.  ``check``
+    False: no such refusal, the codes having been held where the join was chosen (scores --from-fit scores rows
+    by an earlier fit's categories, and a file to score need not hold every one of them)."""
+    across = _HeldAcross(check)
+    token = _ACROSS.set(across)
+    try:
+        yield
+    finally:
+        _ACROSS.reset(token)
+    if check:
+        for k, join in enumerate(spec.joins):
+            _refuse_not_there(spec, join, across.held.get(k, set()), across.sources)
 
 
 @dataclass(frozen=True)
@@ -78,20 +113,37 @@ def join_answers(spec: Spec, frame: pd.DataFrame, source: str) -> tuple[pd.DataF
     frame = frame.copy()
     record: list[JoinedItem] = []
     notes = []
-    for join in spec.joins:
+    across = _ACROSS.get()
+    if across is not None:
+        across.sources.append(source)
+    for k, join in enumerate(spec.joins):
         done = [_join_item(spec, frame, source, join, item.text) for item in join.items if item.text in frame.columns]
         held_any = {v for item in done for v, c in zip(item.values, item.answered) if c}
-        missing = [v for v in join.values if v not in held_any]
-        if missing:
-            at = join.value_locations[join.values.index(missing[0])] if join.value_locations else join.location
-            raise ModelError(f"{source}: no row read gave the answer {_codes(missing)} to "
-                             f"{_items(join.item_names)}, so 'join answers' would join a category that is not there; "
-                             f"list the codes of the categories to join as the data hold them", at,
-                             spec.source_line(at))
+        if across is None:
+            _refuse_not_there(spec, join, held_any, [source])
+        else:  # checked over every file read together (held_across)
+            across.held.setdefault(k, set()).update(held_any)
         record += done
         notes.append(_note(join, done))
     frame.attrs[JOINED] = tuple(record)
     return frame, notes
+
+
+def _refuse_not_there(spec: Spec, join: JoinedAnswers, held: set[float], sources: list[str]) -> None:
+    """A code of ``join`` that no row of ``sources`` (one file, or several read together) gave any of its items: an
+    error at the code's place in the statement (a typing error such as 'join answers 5, 6' on answers 1 to 5, and
+    the methods text would name a join that joined nothing)."""
+    missing = [v for v in join.values if v not in held]
+    if not missing:
+        return
+    at = join.value_locations[join.values.index(missing[0])] if join.value_locations else join.location
+    read = list(dict.fromkeys(sources))  # two data frames are both '<data frame>'
+    where = (f"{read[0]}: no row read" if len(sources) == 1 else
+             f"{word_list(read)}: no row of {'either' if len(sources) == 2 else 'any'} read" if len(read) > 1 else
+             f"{read[0]}: no row of {'either' if len(sources) == 2 else 'any'} read")
+    raise ModelError(f"{where} gave the answer {_codes(missing)} to {_items(join.item_names)}, so 'join answers' "
+                     f"would join a category that is not there; list the codes of the categories to join as the "
+                     f"data hold them", at, spec.source_line(at))
 
 
 def _items(names) -> str:

@@ -1215,8 +1215,11 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     carried = tuple(c for c in result.data.missing_codes if c not in given) + tuple(
         w for w in result.data.no_answer_words if w.casefold() not in known)
     # and the codes its data file declared missing or labelled so, in their own items (an export without them)
+    from cfa_tool.data.joined_answers import held_across
+
+    # the earlier fit's joined categories need not all be answered in the rows scored (held_across's check False)
     with fit_marked(tuple(getattr(result.data, "non_answers", ()) or ()),
-                    tuple(getattr(result.data, "declared_ranges", ()) or ())):
+                    tuple(getattr(result.data, "declared_ranges", ()) or ())), held_across(spec, check=False):
         spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, given + words + carried, keep,
                                                          (id_column,) if isinstance(id_column, str) else (),
                                                          names_row=names_row, first_data_row=first_data_row,

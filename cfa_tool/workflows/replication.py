@@ -637,14 +637,19 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     # refuses; the row filters apply to each file, their notes naming it
     gaps = keeps_rows_with_gaps(missing)  # a half of halves of the complete rows only when they are left out
     ids = (id_column,) if isinstance(id_column, str) else ()
-    read, notes = zip(read_inputs_with_notes(spec, calibration, sheets[0], missing_codes, keep, ids, names_row=names_row,
-                                             first_data_row=first_data_row, name_the_file=True, rename=rename,
-                                             chosen=chosen_columns(id_column=id_column), keeps_gaps=gaps)[1:],
-                      read_inputs_with_notes(spec, validation, sheets[1], missing_codes, keep, ids,
-                                             names_row=validation_names_row, names_option=Option.VALIDATION_NAMES_ROW,
-                                             first_data_row=validation_first_data_row, name_the_file=True,
-                                             rename=validation_rename, rename_option=Option.VALIDATION_RENAME,
-                                             chosen=chosen_columns(id_column=id_column), keeps_gaps=gaps)[1:])
+    from cfa_tool.data.joined_answers import held_across
+
+    with held_across(spec):  # a code joined where either file holds it: the rows of both are analysed together
+        read, notes = zip(read_inputs_with_notes(spec, calibration, sheets[0], missing_codes, keep, ids,
+                                                 names_row=names_row, first_data_row=first_data_row,
+                                                 name_the_file=True, rename=rename,
+                                                 chosen=chosen_columns(id_column=id_column), keeps_gaps=gaps)[1:],
+                          read_inputs_with_notes(spec, validation, sheets[1], missing_codes, keep, ids,
+                                                 names_row=validation_names_row,
+                                                 names_option=Option.VALIDATION_NAMES_ROW,
+                                                 first_data_row=validation_first_data_row, name_the_file=True,
+                                                 rename=validation_rename, rename_option=Option.VALIDATION_RENAME,
+                                                 chosen=chosen_columns(id_column=id_column), keeps_gaps=gaps)[1:])
     named = [rows_named(each, id_column, spec.observed_names) for each in read]  # each file's ids and their column
     (cal_frame, cal_source), (val_frame, val_source) = [(loaded.frame, loaded.source) for loaded in read]
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)

@@ -165,3 +165,46 @@ def test_the_bootstraps_methods_lines_name_the_joins():
     boot = cfa_tool.bootstrap(MODEL + "ordinal q1..q4\n" + JOIN, _answers(), replications=20, seed=3)
     lines = " ".join(str(line) for line in report_of(boot).lines)
     assert "answers 1 and 2 of q1 and q2 (coded 2)" in lines and "in every resample" in lines, lines
+
+
+def _two_samples() -> tuple[pd.DataFrame, pd.DataFrame]:
+    """Two samples of the invented answers, the second without the rare answer 1 of q1 and q2 (given as 2), the first
+    with it (hostile s27: a validation file without the answer had replicate refuse the join the calibration file
+    needed)."""
+    cal, val = _answers(7, 400), _answers(8, 400)
+    assert (cal.q1 == 1).any() and (cal.q2 == 1).any()
+    return cal, _recoded(val)
+
+
+def test_replicate_joins_a_code_either_sample_holds():
+    """replicate analyses the rows of both files together (its test of one solution fits them at once): a code is
+    joined where either file holds it, as across groups, and the replication is that of the files recoded by
+    hand."""
+    cal, val = _two_samples()
+    joined = cfa_tool.replicate(MODEL + "ordinal q1..q4\n" + JOIN, cal, val)
+    by_hand = cfa_tool.replicate(MODEL + "ordinal q1..q4\n", _recoded(cal), val)
+    test, hand = joined.same_solution, by_hand.same_solution
+    assert not test.not_computed and not hand.not_computed, (test.not_computed, hand.not_computed)
+    assert test.chi_square_difference == pytest.approx(hand.chi_square_difference, rel=1e-8)
+    assert joined.cvi == pytest.approx(by_hand.cvi, rel=1e-8)
+
+
+def test_replicate_refuses_a_code_neither_sample_holds():
+    cal, val = _two_samples()
+    with pytest.raises(ModelError) as refused:
+        cfa_tool.replicate(MODEL + "ordinal q1..q4\njoin answers 5, 6 as 5 for q1\n", cal, val)
+    assert "<data frame>: no row of either read gave the answer 6 to 'q1'" in str(refused.value), refused.value
+
+
+def test_rows_scored_with_an_earlier_fit_need_not_hold_every_joined_code():
+    """Scores of other rows by an earlier fit (scores --from-fit; FitResult.scores) take the fit's categories, the
+    join checked against the fit's rows: a file to score without the answer 1 is scored (it was refused), alike by
+    the fit with the join and by the fit of its file recoded by hand."""
+
+    from cfa_tool.workflows.factor_scores import score_with_fit
+
+    cal, val = _two_samples()
+    joined = cfa_tool.fit(MODEL + "ordinal q1..q4\n" + JOIN, cal)
+    by_hand = cfa_tool.fit(MODEL + "ordinal q1..q4\n", _recoded(cal))
+    scored, hand = score_with_fit(joined, val), score_with_fit(by_hand, val)
+    np.testing.assert_allclose(scored.table["f_posterior_mean"], hand.table["f_posterior_mean"], atol=1e-8)
