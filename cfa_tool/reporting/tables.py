@@ -23,7 +23,7 @@ from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
 from cfa_tool.reporting.numbers import (est_num, est_unit, fit_index_text, guide_text, missing, num, p_phrase, p_value,
                                         short, unit, word_list)
-from cfa_tool.reporting.paragraph import (factors_by_item_kind, group_labels, mcar_score_tests,
+from cfa_tool.reporting.paragraph import (factors_by_item_kind, group_labels, group_words, mcar_score_tests,
                                          mixed_kinds_sentence)
 from cfa_tool.reporting.remedies import Remedy
 
@@ -959,7 +959,7 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
              "score. The other columns are ordinal versions on the latent "
              "responses behind the items, which no one observes; they usually run higher than the sum's reliability, "
              "most with few categories. " + _continuous_factors_sentence(result, rows)
-             if ordinal else "") + keying_sentence(rows) +
+             if ordinal else "") + _group_keying(result, group) +
             ("Omega hierarchical" if any(r.bifactor is not None for r in rows) else "Omega") + ": share of the " + ("variance of the keyed sum of the latent responses" if ordinal else
                                       "keyed item sum's variance") + " due "
             + ("to the factor; " if any(r.bifactor is not None for r in rows) else
@@ -1206,6 +1206,16 @@ def keying_sentence(rows) -> Text:
               f"{' not weak' if any(r.evenly_split and r.weak for r in rows) else ''}"
               if any(r.evenly_split for r in rows) else ""))
     return "Computed for keyed sums; reversed for scoring (" + why + f"): {'; '.join(lists)}. " + left
+
+
+def _group_keying(result, group: int) -> Text:
+    """The keying sentence of group ``group``'s reliability table (:func:`keying_sentence`), said once: a later
+    group keyed as the first points to the first group's table instead of repeating it (s27: every group's note
+    repeated the sentence); a group keyed otherwise has its own."""
+    own = keying_sentence(result.groups[group].reliability)
+    if group and result.multigroup and str(own) == str(keying_sentence(result.groups[0].reliability)):
+        return f"Items keyed as in group {group_words(result, 0)}. "
+    return own
 
 
 def _fixed_alike(result) -> bool:
