@@ -223,13 +223,27 @@ BASE_LEGEND = ("Standardized values. Ellipses: factors; rectangles: observed ite
 METHOD_LEGEND = "grey ellipses: method factors (a way of answering, not a trait)"
 
 
+@dataclass(frozen=True)
+class Legend:
+    """What a fit's legend says beside the parts each drawing holds: whether it has method factors and exploratory
+    blocks (of ``result``: :meth:`of`)."""
+
+    method_factors: bool = False
+    blocks: bool = False
+
+    @classmethod
+    def of(cls, result) -> "Legend":
+        return cls(bool(_method_factors(result)), bool(getattr(result, "exploratory", ())))
+
+
 def legend_parts(result, drawn: frozenset[Drawn]) -> list[str]:
     """What the shapes, lines and colours of ``result``'s drawings mean, one clause for each part ``drawn`` holds
-    (never a part they do not show)."""
+    (never a part they do not show); ``result`` may be its :class:`Legend`."""
+    legend = result if isinstance(result, Legend) else Legend.of(result)
     parts = [BASE_LEGEND] + [d.value for d in Drawn if d in drawn and d is not Drawn.PROBLEM]
-    if _method_factors(result):
+    if legend.method_factors:
         parts.append(METHOD_LEGEND)
-    if getattr(result, "exploratory", ()):
+    if legend.blocks:
         parts.append(BLOCK_LEGEND)
     return parts + ([Drawn.PROBLEM.value] if Drawn.PROBLEM in drawn else [])
 
@@ -675,7 +689,14 @@ def diagram_file(result) -> str:
 
 def _document(result, groups: list[int], legend: bool, drawings: list | None = None) -> str:
     drawings = drawings or [_draw(result, g) for g in groups]
-    lines = legend_lines(result, frozenset().union(*(d.drawn for d in drawings))) if legend else []
+    return _composed(result.model_name, [result.groups[g].label for g in groups], drawings,
+                     Legend.of(result) if legend else None)
+
+
+def _composed(model_name: str, labels: list, drawings: list, legend: "Legend | None") -> str:
+    """The SVG document of ``drawings`` (one per group, named by ``labels``, None for a fit without groups), one
+    under the other, with the items' key once at the bottom and, given a ``legend``, the legend in lines."""
+    lines = legend_lines(legend, frozenset().union(*(d.drawn for d in drawings))) if legend is not None else []
     key = [(short, name) for name, short in next((d.shown for d in drawings if d.shown), {}).items()]
     # from a label to its name: the widest label (bold) and a space
     indent = max((text_width(short, LIST_SIZE, bold=True) for short, _ in key), default=0.0) + text_width(" ", LIST_SIZE)
@@ -691,8 +712,7 @@ def _document(result, groups: list[int], legend: bool, drawings: list | None = N
     key_rows = math.ceil(len(key) / key_columns) if not goes_on else sum(len(part) for part in key_lines)
     key_height = 18 + 16 * key_rows + 10 if key else 0
     height = sum(d.height for d in drawings) + key_height + (10 + 18 * len(lines) if lines else 0)
-    labels = [result.groups[g].label for g in groups]
-    title = esc(result.model_name) + ("" if labels == [None] else " — group " + ", ".join(esc(str(x)) for x in labels))
+    title = esc(model_name) + ("" if labels == [None] else " — group " + ", ".join(esc(str(x)) for x in labels))
     parts = [
         f'<svg xmlns="http://www.w3.org/2000/svg" class="path-diagram" viewBox="0 0 {width:.0f} {height:.0f}" '
         f'width="{width:.0f}" height="{height:.0f}" style="width:100%;height:auto;min-width:{min(width, 900):.0f}px" '
@@ -701,7 +721,7 @@ def _document(result, groups: list[int], legend: bool, drawings: list | None = N
         '<defs><marker id="head" viewBox="0 0 10 10" refX="9" refY="5" markerWidth="7" markerHeight="7" orient="auto-start-reverse">'
         '<path d="M0,0 L10,5 L0,10 z" fill="#333"/></marker></defs>',
     ]
-    if legend:
+    if legend is not None:
         parts.append(f'<rect width="{width:.0f}" height="{height:.0f}" fill="#ffffff"/>')
     y = 0.0
     breaks = []  # where the drawing can be cut into strips that cut nothing: between bands and between groups
@@ -747,6 +767,72 @@ class Drawing:
     breaks: list[float]
     drawn: frozenset[Drawn]
     shown: dict[str, str] = field(default_factory=dict)  # each item's short label drawn, when drawn so (the key)
+
+    def to_dict(self) -> dict:
+        return {"width": self.width, "height": self.height, "parts": list(self.parts), "breaks": list(self.breaks),
+                "drawn": [d.name for d in Drawn if d in self.drawn], "shown": dict(self.shown)}
+
+    @classmethod
+    def from_dict(cls, d: dict) -> "Drawing":
+        """The drawing :meth:`to_dict` saved; a ValueError (KeyError, TypeError) for a part of another type, as a file
+        changed by hand may hold."""
+        width, height = _size(d["width"]), _size(d["height"])
+        parts, breaks, shown = d["parts"], d["breaks"], d["shown"]
+        if not (isinstance(parts, list) and all(isinstance(p, str) for p in parts) and isinstance(breaks, list)
+                and isinstance(shown, dict) and all(isinstance(v, str) for v in (*shown, *shown.values()))):
+            raise ValueError("a saved drawing's parts, breaks or labels of another type")
+        return cls(width, height, parts, [_size(b) for b in breaks], frozenset(Drawn[name] for name in d["drawn"]),
+                   shown)
+
+
+def _size(value) -> float:
+    """A size or place of a saved drawing: a finite number, not below zero (a ValueError otherwise)."""
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value) or value < 0:
+        raise ValueError("a saved drawing's size that is no number")
+    return float(value) if isinstance(value, float) else value
+
+
+@dataclass(frozen=True)
+class PathDrawings:
+    """A fit's path diagram drawn once: each group's :class:`Drawing`, with what the pictures' titles and legend take
+    of the fit (its model's name, its groups' labels, :class:`Legend`).  A report's figure of each group, its legend
+    as text (:meth:`figure`), and the file of every group with one legend (:meth:`file`, what ``fit --diagram``
+    writes) are both made from it, so that a saved fit keeps the drawing once (s28: its JSON held it twice, as the
+    figures and as the file) and ``report`` renders both as the fit did, byte for byte."""
+
+    model_name: str
+    labels: tuple[str | None, ...]
+    drawings: tuple[Drawing, ...]
+    legend: Legend
+
+    @classmethod
+    def of(cls, result) -> "PathDrawings":
+        return cls(result.model_name, tuple(None if g.label is None else str(g.label) for g in result.groups),
+                   tuple(_draw(result, g) for g in range(len(result.groups))), Legend.of(result))
+
+    def figure(self, group: int) -> tuple[str, str]:
+        """Group ``group``'s drawing (SVG text) and the legend a report puts under it: the parts it shows, only."""
+        drawing = self.drawings[group]
+        return (_composed(self.model_name, [self.labels[group]], [drawing], None),
+                legend_text(self.legend, drawing.drawn))
+
+    def file(self) -> str:
+        """The diagram a standalone file holds: every group's drawing, one under the other, each named, with the
+        legend once at the bottom."""
+        return _composed(self.model_name, list(self.labels), list(self.drawings), self.legend)
+
+    def to_dict(self) -> dict:
+        return {"model": self.model_name, "groups": list(self.labels), "drawings": [d.to_dict() for d in self.drawings],
+                "method_factors": self.legend.method_factors, "blocks": self.legend.blocks}
+
+    @classmethod
+    def from_dict(cls, d: dict) -> "PathDrawings":
+        labels, drawings = d["groups"], d["drawings"]
+        if not (isinstance(d["model"], str) and isinstance(labels, list) and isinstance(drawings, list)
+                and len(labels) == len(drawings) > 0 and all(x is None or isinstance(x, str) for x in labels)):
+            raise ValueError("a saved path diagram of another shape")
+        return cls(d["model"], tuple(labels), tuple(Drawing.from_dict(x) for x in drawings),
+                   Legend(bool(d["method_factors"]), bool(d["blocks"])))
 
 
 def _draw(result, group: int) -> Drawing:

@@ -8,7 +8,7 @@ from __future__ import annotations
 import enum
 import re
 from dataclasses import dataclass, field, replace
-from functools import cached_property
+from functools import cached_property, partial
 from typing import Callable
 
 from cfa_tool.data.csv_convention import PLAIN, CsvConvention
@@ -148,6 +148,10 @@ class Report:
     #: none (a plan, a simulation), None where it is not known (a result made from Python, or saved before results
     #: recorded it)
     data: tuple[DataRead, ...] | None = None
+    #: a fit's path diagram drawn once (reporting.diagram.PathDrawings, or what gives it: its ``to_dict``), from which
+    #: its figures and its diagram file are made: a saved result keeps it in their place, once (s28: the JSON held
+    #: the drawing twice, as the figures and as the file)
+    drawings: object = None
 
     def __post_init__(self) -> None:
         # the notices' lines as sentences, in every view and in a saved report (those saved before too)
@@ -163,12 +167,14 @@ class Report:
         return {"kind": self.kind.value, "title": self.title, "notice": notice, "lines": [saved(x) for x in self.lines],
                 "tables": [t.to_dict() for t in self.tables], "notes": [saved(x) for x in self.notes],
                 "cautions": [saved(x) for x in self.cautions],
-                "paragraph": self.paragraph, "figures": [{"title": f.title, "svg": f.svg, "note": f.note}
-                                                         for f in self.figures],
+                "paragraph": self.paragraph,
+                "figures": [{"title": f.title} if self.drawings is not None else
+                            {"title": f.title, "svg": f.svg, "note": f.note} for f in self.figures],
                 "problem_table": None if self.problem_table is None else self.problem_table.to_dict(),
                 "warnings": [saved(x) for x in self.warnings], "listings": [{"title": x.title, "text": x.text} for x in self.listings],
                 "files": list(self.files), "csv_convention": self.csv_convention.to_dict(),
-                **({} if self.diagram is None else {"diagram": self.diagram.svg}),
+                **({"drawings": self.drawings.to_dict()} if self.drawings is not None else
+                   {} if self.diagram is None else {"diagram": self.diagram.svg}),
                 **({} if self.data is None else {"data_read": [x.to_dict() for x in self.data]})}
 
     @classmethod
@@ -182,6 +188,16 @@ class Report:
         paragraph = d.get("paragraph")
         if paragraph is not None and not isinstance(paragraph, str):
             raise ValueError("a report's paragraph that is not text")
+        if d.get("drawings") is not None:  # a fit's path diagram, drawn once: its figures and its file
+            from cfa_tool.reporting.diagram import PathDrawings
+
+            drawings = PathDrawings.from_dict(d["drawings"])
+            titles = [str(f["title"]) for f in _listed(d, "figures", ())]
+            if len(titles) != len(drawings.drawings):
+                raise ValueError("a saved path diagram whose groups are not its figures")
+            return replace(cls.from_dict({k: v for k, v in d.items() if k not in ("drawings", "figures", "diagram")}),
+                           figures=tuple(Figure(t, partial(drawings.figure, k)) for k, t in enumerate(titles)),
+                           diagram=Figure("Path diagram", lambda: (drawings.file(), "")), drawings=drawings)
         return cls(ResultKind(d["kind"]), str(d["title"]), notice, tuple(map(read, _listed(d, "lines"))),
                    tuple(ReportTable.from_dict(t) for t in _listed(d, "tables")),
                    tuple(map(read, _listed(d, "notes", ()))), tuple(map(read, _listed(d, "cautions", ()))), paragraph,

@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import re
 from dataclasses import replace
-from functools import partial
+from functools import cached_property, partial
 
 from cfa_tool.numbers import count_text
 from cfa_tool.note_parts import joined
@@ -66,11 +66,27 @@ def of_group(result, g: int, tables) -> list[ReportTable]:
     return [replace(t, title=titled(t.title)) for t in tables]
 
 
-def _path_diagram(result, k: int) -> tuple[str, str]:
-    """Group ``k``'s path diagram (SVG text) and the note under it, drawn when a view shows it."""
-    from cfa_tool.reporting.diagram import diagram_with_legend
+class _Drawings:
+    """A fit's path diagram (reporting.diagram.PathDrawings), drawn once when a view or the JSON first asks for it:
+    the figures of the report, the file of ``--diagram`` and the saved result all take it from here."""
 
-    return diagram_with_legend(result, k)
+    def __init__(self, result) -> None:
+        self.result = result
+
+    @cached_property
+    def drawn(self):
+        from cfa_tool.reporting.diagram import PathDrawings
+
+        return PathDrawings.of(self.result)
+
+    def figure(self, k: int) -> tuple[str, str]:
+        return self.drawn.figure(k)
+
+    def file(self) -> tuple[str, str]:
+        return self.drawn.file(), ""
+
+    def to_dict(self) -> dict:
+        return self.drawn.to_dict()
 
 
 def fit_report(result) -> Report:
@@ -82,18 +98,12 @@ def fit_report(result) -> Report:
     few = T.few_answers_warning(result)  # categories of ordinal items given by few rows: first, with the table named
     warnings = (tuple(result.warnings) + (() if few is None else (few,)) + T.higher_order_cautions(result)
                 + (() if result.converged else (NOT_CONVERGED,)))
+    drawings = _Drawings(result)
     figures = tuple(Figure("Path diagram of the fitted model" + ("" if g.label is None else
                                                                  f", group {group_words(result, k)}")
-                           + " (standardized values)", partial(_path_diagram, result, k))
+                           + " (standardized values)", partial(drawings.figure, k))
                     for k, g in enumerate(result.groups))
     left_out = T.matrices_left_out(result)
     return Report(ResultKind.FIT, result.model_name, T.problem_notice(result), lines, tuple(fit_tables(result)),
                   () if left_out is None else (left_out,), (HIGH_STAKES_NOTE,), methods_paragraph(result), figures, T.problem_table(result), warnings,
-                  (Listing("Model", result.model_text),), diagram=Figure("Path diagram", partial(_diagram_file, result)))
-
-
-def _diagram_file(result) -> tuple[str, str]:
-    """The fit's path diagram as one file (every group, one legend), drawn when a view or the JSON asks for it."""
-    from cfa_tool.reporting.diagram import diagram_file
-
-    return diagram_file(result), ""
+                  (Listing("Model", result.model_text),), diagram=Figure("Path diagram", drawings.file), drawings=drawings)

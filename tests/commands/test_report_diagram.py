@@ -13,6 +13,7 @@ from pathlib import Path
 import pytest
 
 from cfa_tool.cli import main
+from cfa_tool.reporting.document import Report
 from cfa_tool.resources import resource_dir
 
 MODEL = "rider_three_factors.cfa"
@@ -50,7 +51,10 @@ def test_the_output_guard_and_refusals(folder, monkeypatch, capsys):
     assert main(["report", "fit.json", "--diagram", "d.svg", "--dpi", "150"]) == 2  # no picture at that resolution
     assert "--dpi" in capsys.readouterr().err
     old = json.loads(saved)
-    del old["report"]["diagram"]  # as a fit saved before results kept the diagram file
+    # as a fit saved before results kept the diagram file: its figures' pictures alone
+    figures = Report.from_dict(old["report"]).figures
+    old["report"]["figures"] = [{"title": f.title, "svg": f.svg, "note": f.note} for f in figures]
+    del old["report"]["drawings"]
     (folder / "old.json").write_text(json.dumps(old))
     assert main(["report", "old.json", "--diagram", "old.svg"]) == 2
     err = capsys.readouterr().err
@@ -61,3 +65,25 @@ def test_the_output_guard_and_refusals(folder, monkeypatch, capsys):
     assert "draws no path diagram" in capsys.readouterr().err
     assert not any((folder / name).exists() for name in ("d.svg", "old.svg", "check.svg"))
     assert (folder / "fit.json").read_bytes() == saved
+
+
+@pytest.mark.parametrize("groups", [False, True])
+def test_a_saved_fit_keeps_its_drawing_once_and_renders_it_as_the_fit_did(folder, monkeypatch, groups):
+    # s28: the JSON held each group's drawing twice, as the report's figures and as the diagram file; it keeps the
+    # drawing once, from which 'report' makes the figures (the HTML) and the file (--diagram) as the fit made them
+    monkeypatch.chdir(folder)
+    tag = "once-groups" if groups else "once"
+    grouped = ["--group-column", "district"] if groups else []
+    assert main(["fit", MODEL, "--data", "rider.csv", "--json", f"{tag}.json", "--html", f"{tag}-fit.html",
+                 "--diagram", f"{tag}-fit.svg", *grouped]) == 0
+    saved = (folder / f"{tag}.json").read_text()
+    assert saved.count("<svg") == 0 and '"diagram"' not in saved  # no picture written out, the parts once
+    report = json.loads(saved)["report"]
+    assert len(report["drawings"]["drawings"]) == len(report["figures"]) == (2 if groups else 1)
+    assert main(["report", f"{tag}.json", "--html", f"{tag}-report.html", "--diagram", f"{tag}-report.svg"]) == 0
+    assert (folder / f"{tag}-report.html").read_bytes() == (folder / f"{tag}-fit.html").read_bytes()
+    assert (folder / f"{tag}-report.svg").read_bytes() == (folder / f"{tag}-fit.svg").read_bytes()
+    # one figure per group, its legend as text under it
+    html = (folder / f"{tag}-report.html").read_text()
+    assert html.count("<figure class=\"diagram\">") == (2 if groups else 1)
+    assert "Standardized values. Ellipses: factors" in html
