@@ -27,12 +27,26 @@ class Command:
     incomplete without it (a manuscript's: "the factor's variance fixed at 1"), else nothing.  ``runs``: the command
     of this tool the text names ('compare'), and ``inside``: what the line says in that command's own report in its
     place, where naming the command the reader is running would send them to it again (s24: compare advised 'cfa-tool
-    compare'); nothing there without it."""
+    compare'); nothing there without it.  ``takes``: the commands that take the option the text names, and
+    ``elsewhere``: what the line says in its place in a report of any other command (s28: bootstrap, cutoffs,
+    replicate and scores advised --robust, which they refuse)."""
 
     text: str
     words: str = ""
     runs: str = ""
     inside: str = ""
+    takes: tuple[str, ...] = ()
+    elsewhere: str = ""
+
+    def said(self, view: "View") -> str:
+        """What ``view`` writes of it."""
+        if not view.commands:
+            return self.words
+        if self.runs and self.runs == view.running:
+            return self.inside
+        if self.takes and view.running and view.running not in self.takes:
+            return self.elsewhere
+        return self.text
 
 
 @dataclass(frozen=True)
@@ -115,8 +129,7 @@ class Note:
         return "".join(p if isinstance(p, str) else view.name(p) if isinstance(p, TableReference) else
                        p.text if isinstance(p, Name) else
                        (p.text if view.commands else "") if isinstance(p, RowId) else
-                       (p.inside if p.runs and p.runs == view.running else p.text) if view.commands else p.words
-                       for p in self.parts)
+                       p.said(view) for p in self.parts)
 
     def __str__(self) -> str:  # as the program's user reads it (what a result's JSON holds)
         return self.said(RUNNING)
@@ -147,7 +160,9 @@ class Note:
         return {"parts": [p if isinstance(p, str) else {"table": p.key} if isinstance(p, TableReference) else
                           {"id": p.text} if isinstance(p, RowId) else {"name": p.text} if isinstance(p, Name) else
                           {"command": p.text, "words": p.words, **({"runs": p.runs, "inside": p.inside} if p.runs
-                                                                   else {})} for p in self.parts]}
+                                                                   else {}),
+                           **({"takes": list(p.takes), "elsewhere": p.elsewhere} if p.takes else {})}
+                          for p in self.parts]}
 
     @classmethod
     def from_dict(cls, d: dict) -> "Note":
@@ -159,8 +174,11 @@ class Note:
             elif isinstance(p, dict) and isinstance(p.get("table"), str):
                 parts.append(TableReference(p["table"]))
             elif isinstance(p, dict) and isinstance(p.get("command"), str):
+                takes = p.get("takes", [])
+                if not isinstance(takes, list):
+                    raise ValueError("a command's list of the commands that take it that is not a list")
                 parts.append(Command(p["command"], str(p.get("words", "")), str(p.get("runs", "")),
-                                     str(p.get("inside", ""))))
+                                     str(p.get("inside", "")), tuple(map(str, takes)), str(p.get("elsewhere", ""))))
             elif isinstance(p, dict) and isinstance(p.get("id"), str):
                 parts.append(RowId(p["id"]))
             elif isinstance(p, dict) and isinstance(p.get("name"), str):

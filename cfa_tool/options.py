@@ -25,6 +25,10 @@ MAX_OBSERVATIONS = 10**12
 MAX_ITERATIONS = 1_000_000
 #: the iteration limit of a model's estimation when none is given (fit options' and the command line's default)
 ITERATION_LIMIT = 500
+#: the commands that take the robust test (Option.ROBUST: the command line's commands.options.add_test_option, the
+#: Python functions' test=...): a report of another command advises it as an option of a fit
+#: (note_parts.Command.takes)
+ROBUST_COMMANDS = ("fit", "compare", "invariance")
 MAX_SIMULATED_CELLS = 100_000_000  # rows x variables of simulated data held in memory
 MAX_CATEGORIES = 100
 

@@ -191,8 +191,10 @@ def show(args: argparse.Namespace, report, written: list[str], terminal: bool = 
         from cfa_tool.reporting.terminal import render_report
 
         render_report(report, console())
-    else:
-        notice_on_standard_error(report.notice)
+    else:  # as the terminal view names tables and advice (its own command's options: note_parts.View.running)
+        from cfa_tool.note_parts import titled
+
+        notice_on_standard_error(report.notice, titled(report.tables, running=report.kind.value))
     for line in written:
         say(args, line)
 

@@ -335,7 +335,7 @@ def explore_report(result):
     if second is not None:  # a confirmation fit that is not admissible: first, under the heading every fit's has
         # (tables.problem_notice, the one rule), never under the exploration's softer one (hostile trial s17, finding 4)
         own = notice.lines if notice is not None else ()
-        theirs = tuple(f"Confirmation half: {x}" for x in second.lines)
+        theirs = tuple("Confirmation half: " + x for x in second.lines)  # a Note stays one (its advice by the view)
         lines = theirs + own if second.inadmissible else own + theirs
         notice = T.ProblemNotice(second.heading if second.inadmissible or notice is None else notice.heading, lines,
                                  second.inadmissible or notice is not None)
