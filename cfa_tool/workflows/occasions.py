@@ -33,7 +33,7 @@ from cfa_tool.language.parser import parse_model
 from cfa_tool.language.spec import Spec
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.method import DecisionRule, DifferenceMethod, MissingData
-from cfa_tool.numbers import count_text, counted, cut_list, number
+from cfa_tool.numbers import count_text, counted, cut_list, number, word_list
 from cfa_tool.options import Option, own_keywords
 from cfa_tool import options as check
 from cfa_tool.pipeline.inputs import analysed_odd_values, data_problems, load_spec, read_inputs_with_notes
@@ -289,10 +289,12 @@ def _occasion_order(values: pd.Series, column: str, given: Sequence[str] | None,
         unknown = [g for g in wanted if g not in by_label]
         left = [label for label in by_label if label not in wanted]
         if unknown or left or len(set(wanted)) < len(wanted):
+            labels = [*by_label, *unknown]  # each quoted when one needs it ('time, 2' one label: written_group)
+            said = lambda texts: ", ".join(written_group(t, labels) for t in texts)  # noqa: E731
             raise OptionError(f"the order of the occasions names each occasion of '{column}' in {shown_path(source)} "
-                              f"once ({', '.join(by_label)})"
-                              + (f"; not among them: {', '.join(unknown)}" if unknown else "")
-                              + (f"; left out: {', '.join(left)}" if left else ""))
+                              f"once ({said(by_label)})"
+                              + (f"; not among them: {said(unknown)}" if unknown else "")
+                              + (f"; left out: {said(left)}" if left else ""))
         return [by_label[g] for g in wanted]
     values = [v if isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool)
               else number(str(v)) for v in distinct]  # numbers, or text that reads as one (a column read as text)
@@ -305,6 +307,20 @@ def _occasion_order(values: pd.Series, column: str, given: Sequence[str] | None,
     raise OptionError(f"the occasions of '{column}' are named by text ({cut_list([id_text(v) for v in distinct], 5)}), "
                       f"whose order cannot be read from the data: give it ({Option.OCCASION_ORDER} with the occasions in "
                       f"their order, comma-separated, the first first)")
+
+
+def _as_read_after(keep, missing_codes) -> str:
+    """What the run gave that changed the rows and answers set side by side (its row filters and codes of no answer),
+    for an error of the occasions' rows, which the user may not connect with them (hostile trial s27: an occasion
+    without answers after --missing-codes read them as gaps); '' when it gave neither."""
+    from cfa_tool.data.non_answers import codes_given
+
+    given = ([Option.KEEP.given([k for k in keep if isinstance(k, str)])] if any(isinstance(k, str) for k in keep)
+             else []) + [k.phrase() for k in keep if not isinstance(k, str) and hasattr(k, "phrase")]
+    given += [codes_given(missing_codes)] if missing_codes else []
+    if not given:
+        return ""
+    return f" (the rows and answers as read after {word_list(given)}, which change what is set side by side)"
 
 
 def _refuse_no_one_at_both(people: OccasionPeople, loaded, occasion_column: str | None, id_column: str | None) -> None:
@@ -703,8 +719,11 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             if column not in loaded.frame.columns:
                 raise DataError(f"{shown_path(loaded.source)}: no column '{column}'")
         _refuse_split_people(loaded, id_column)
-        wide, layout, shaped = wide_from_long(loaded.frame, spec.observed_names, id_column, occasion_column,
-                                              loaded.source, occasion_order)
+        try:
+            wide, layout, shaped = wide_from_long(loaded.frame, spec.observed_names, id_column, occasion_column,
+                                                  loaded.source, occasion_order)
+        except (DataError, OptionError) as error:  # the same kind of error, saying what the run read the rows after
+            raise type(error)(f"{error}{_as_read_after(keep, missing_codes)}") from None
         # the cautions on the rows of the long file, named by its rows and each row by its person and occasion (an id
         # repeats once per occasion by design, and no id twice at one occasion is left: wide_from_long), not those of
         # the rows set side by side, which no file holds
@@ -749,7 +768,10 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             analysed_odd_values(loaded, wide_spec, None), wide_spec, ids=ids,
             id_column=id_column if ids is not None else None, takes_design=False))
     people = occasion_people(wide, spec, layout, loaded.frame if occasion_column is not None else None, id_column)
-    _refuse_no_one_at_both(people, loaded, occasion_column, id_column)
+    try:
+        _refuse_no_one_at_both(people, loaded, occasion_column, id_column)
+    except DataError as error:
+        raise DataError(f"{error}{_as_read_after(keep, missing_codes)}") from None
     texts = tuple(step_text(spec, layout, level) for level, _, _ in LEVELS)
     specs = [parse_model(text, f"{spec.source} ({level} over occasions)") for text, (level, _, _) in zip(texts, LEVELS)]
     from cfa_tool.workflows.compare import compare

@@ -457,3 +457,23 @@ def test_occasion_labels_with_commas_are_quoted_as_group_labels_are():
     # that 'time 1 and time, 2' does not read as three occasions (hostile trial s27)
     assert 'occasions "time 1" and "time, 2" of wave' in report.title
     assert 'occasions "time 1" and "time, 2"' in report.paragraph and "time 1 and time, 2" not in report.paragraph
+
+
+def test_errors_of_setting_long_rows_side_by_side_name_the_options_that_changed_them(tmp_path):
+    long = people(80, 31)
+    long.loc[long["wave"] == 2, "vig2"] = 9  # every answer of vig2 at wave 2 a code of no answer
+    path = tmp_path / "waves.csv"
+    long.to_csv(path, index=False)
+    # the code read as no answer leaves vig2 without an answer at wave 2: the message names what the run gave, which
+    # the user may not connect with the data (hostile trial s27)
+    with pytest.raises(DataError, match=r"item 'vig2' has no answer at occasion 2 of 'wave'.*missing_codes=\[9\]"):
+        invariance_over_occasions(ONE_OCCASION, path, occasion_column="wave", id_column="person_id",
+                                  missing_codes=(9,))
+    with pytest.raises(DataError, match=r"holds 1 occasion; .*keep=\['wave = 1'\]"):
+        invariance_over_occasions(ONE_OCCASION, path, occasion_column="wave", id_column="person_id",
+                                  keep=["wave = 1"])
+    named = long.assign(wave=long["wave"].map({1: "time 1", 2: "time, 2"}))
+    with pytest.raises(OptionError, match=r'once \("time 1", "time, 2"\); not among them: "time 2"; left out: '
+                                          r'"time, 2"'):  # two labels, not three
+        invariance_over_occasions(ONE_OCCASION, named, occasion_column="wave", id_column="person_id",
+                                  occasion_order=["time 1", "time 2"])
