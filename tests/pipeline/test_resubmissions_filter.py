@@ -65,7 +65,7 @@ def test_a_second_submission_with_the_same_answers_is_named_first_as_such():
         assert twice and result.problems[0] is twice[0]
         words = " ".join(str(twice[0].explanation).split())
         # a data frame's rows by their index labels: R0005 at 5, the appended row at 308 (300 + 8 rows before it)
-        assert words.startswith("Submitted twice? In index labels 5, 308 ('R0005'), the later row gives the same id (")
+        assert words.startswith("Submitted twice? In rows labelled 5, 308 ('R0005'), the later row gives the same id (")
         assert "and the same answers to every item as an earlier row." in words
         assert "submitted not in" in str(twice[0].advice)
         # the 8 resubmissions with other answers stay in the caution on repeated ids, which no longer names R0005
@@ -97,7 +97,7 @@ def test_without_an_id_a_second_submission_is_a_copy_but_for_its_time_stamp():
     words = " ".join(str(copies.explanation).split())
     # a data frame's rows by index label: R0005 at 5, the appended row at 300 (300 rows before it)
     assert words.startswith("1 of the 301 rows analysed is identical in every column but the time stamp 'submitted' "
-                            "to an earlier row: index label 300 repeats index label 5 (submitted twice?)")
+                            "to an earlier row: row labelled 300 repeats row labelled 5 (submitted twice?)")
     assert "keep=['submitted not in \"2026-03-02 09:05:00\"']" in str(copies.advice)
     # the same time on both rows: a copy as before, no word of a second submission
     data.loc[300, "submitted"] = data.loc[5, "submitted"]

@@ -392,7 +392,7 @@ def test_repeated_ids_of_wide_data_are_named_by_the_files_rows_without_advice_th
     result = invariance_over_occasions(ONE_OCCASION, path, occasion_endings=("_t1", "_t2"), id_column="person_id")
     said = " ".join(str(w) for w in result.warnings) + " ".join(str(p.advice) for p in result.data_problems)
     # the file's rows (header row 1): frame rows 0 and 60 are file rows 2 and 62 (hostile trial s27, case 04)
-    assert "rows 2, 62" in said and "index label" not in said
+    assert "rows 2, 62" in said and "labelled" not in said
     assert "--cluster" not in said  # refused over occasions (commands.invariance._NOT_OVER_OCCASIONS)
 
 
