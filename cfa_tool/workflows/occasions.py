@@ -420,7 +420,7 @@ def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, oc
     missing = len(people) * len(order) - len(frame)
     notes = [f"Rows set side by side by '{id_column}': {counted(len(frame), 'row')} of "
              f"{counted(len(people), 'person', 'people')} at {len(order)} occasions of '{occasion_column}' ("
-             + ", ".join(f"{lab}: {count_text(c)}" for lab, c in zip(labels, counts)) + ")"
+             + ", ".join(f"{written_group(lab, labels)}: {count_text(c)}" for lab, c in zip(labels, counts)) + ")"
              + (f"; {counted(missing, 'occasion')} of people missing there {'is a gap' if missing == 1 else 'are gaps'}"
                 f", kept by full-information ML" if missing else "") + "."]
     return wide, layout, notes

@@ -457,6 +457,7 @@ def test_occasion_labels_with_commas_are_quoted_as_group_labels_are():
     # that 'time 1 and time, 2' does not read as three occasions (hostile trial s27)
     assert 'occasions "time 1" and "time, 2" of wave' in report.title
     assert 'occasions "time 1" and "time, 2"' in report.paragraph and "time 1 and time, 2" not in report.paragraph
+    assert any('("time 1": 150, "time, 2": 150)' in n for n in result.notes)  # the rows of each occasion
 
 
 def test_errors_of_setting_long_rows_side_by_side_name_the_options_that_changed_them(tmp_path):
