@@ -289,8 +289,11 @@ def _occasion_order(values: pd.Series, column: str, given: Sequence[str] | None,
         unknown = [g for g in wanted if g not in by_label]
         left = [label for label in by_label if label not in wanted]
         if unknown or left or len(set(wanted)) < len(wanted):
-            labels = [*by_label, *unknown]  # each quoted when one needs it ('time, 2' one label: written_group)
-            said = lambda texts: ", ".join(written_group(t, labels) for t in texts)  # noqa: E731
+            labels = [*by_label, *unknown]
+
+            def said(texts) -> str:  # each quoted when one needs it ('time, 2' one label: written_group)
+                return ", ".join(written_group(t, labels) for t in texts)
+
             raise OptionError(f"the order of the occasions names each occasion of '{column}' in {shown_path(source)} "
                               f"once ({said(by_label)})"
                               + (f"; not among them: {said(unknown)}" if unknown else "")
