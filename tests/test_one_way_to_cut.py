@@ -98,7 +98,7 @@ def test_a_long_word_among_an_items_numbers_is_cut_with_the_mark(rider):
     with pytest.raises(DataError) as refused:
         cfa_tool.fit(resource_dir("models") / "rider_three_factors.cfa", frame)
     quoted = str(refused.value).split(" among numbers")[0]  # (the advice after it gives the whole word to copy)
-    assert quoted.endswith("('no opinion " + "x" * 28 + "…' in index label 4)")
+    assert quoted.endswith("('no opinion " + "x" * 28 + "…' in row labelled 4)")
 
 
 def test_long_words_among_items_numbers_are_listed_cut_with_the_mark(rider):

@@ -29,6 +29,9 @@ class CopiedRows:
     numbering: str | None = None
     # a time-stamp column left out of the comparison too (:func:`time_stamp_column`), None if none
     time_stamp: str | None = None
+    # with a time stamp left out: the rows that repeat an earlier one are few (:func:`few_repeats`), so that rows alike
+    # in every column but their stamps read as a second submission, not as respondents who answered alike by chance
+    few_stamped: bool = False
 
     def __len__(self) -> int:
         return len(self.copies)
@@ -62,6 +65,18 @@ def numbering_column(frame: pd.DataFrame) -> str | None:
         if np.all(steps == 1.0) and float(values[0]).is_integer():
             return name
     return None
+
+
+#: the most rows, as a share of the rows compared, that may repeat an earlier row in every column but a time stamp for
+#: them to be named without a column that tells respondents apart (a rule of thumb of this project: where answers
+#: alike by chance are common, more rows repeat one another than a few second submissions)
+FEW_STAMPED_REPEATS_SHARE = 0.01
+
+
+def few_repeats(copies: int, rows: int) -> bool:
+    """Whether ``copies`` rows repeating an earlier row among ``rows`` are few: one, or at most
+    :data:`FEW_STAMPED_REPEATS_SHARE` of the rows."""
+    return 0 < copies <= max(1.0, FEW_STAMPED_REPEATS_SHARE * rows)
 
 
 #: words of a column's name (data.column_roles.name_words) that name the time a row was submitted or recorded
@@ -134,9 +149,10 @@ def copied_rows(frame: pd.DataFrame, row_numbers: np.ndarray, block: np.ndarray 
     if not len(copies):
         return None
     numbers = row_numbers[rows]
+    stamped = time_stamp if time_stamp in aside else None
     return CopiedRows(tuple(int(r) for r in numbers[copies]), tuple(int(r) for r in numbers[original[copies]]),
-                      compared.shape[1], None if numbering is None else str(numbering),
-                      time_stamp if time_stamp in aside else None)
+                      compared.shape[1], None if numbering is None else str(numbering), stamped,
+                      stamped is not None and few_repeats(len(copies), len(frame)))
 
 
 #: fixed odd multipliers of the items' bits in a row's screening sum (any numbers do: equal rows have equal sums,

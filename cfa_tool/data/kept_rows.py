@@ -45,10 +45,12 @@ ROW_NAMES_COLUMN = "row_name"
 class RowNaming(enum.Enum):
     """How messages and reports name a row of the data, declared once: a file's row by its number in the file as a
     spreadsheet shows it (a sheet's row, a text file's record), a data frame's row by its index label (the label
-    pandas shows and the scores table keeps), never by a count of our own."""
+    pandas shows, ``frame.loc[5]``, and the scores table keeps), never by a count of our own.  The one wording of
+    every message that names rows (fixleft s28: 'In index labels 5, 308' named labels, not rows): 'row 12', 'rows
+    labelled 5, 308', 'rows at positions 3, 9'."""
 
     FILE_ROW = ("row", "rows", "Row", "file_row")
-    INDEX_LABEL = ("index label", "index labels", "Index label", "index_label")
+    INDEX_LABEL = ("row labelled", "rows labelled", "Index label", "index_label")
     # a data frame whose index repeats labels (pd.concat without ignore_index) or is not of whole numbers (text ids):
     # its rows by their position, counted from 1 (frame.iloc[position - 1]), never called rows of a file
     POSITION = ("row at position", "rows at positions", "Position", "position")
@@ -65,11 +67,11 @@ class RowNaming(enum.Enum):
         return "file" if self is RowNaming.FILE_ROW else "data frame"
 
     def of(self, count: int) -> str:
-        """The word for ``count`` rows: 'row' / 'rows', 'index label' / 'index labels'."""
+        """The word for ``count`` rows: 'row' / 'rows', 'row labelled' / 'rows labelled'."""
         return self.one if count == 1 else self.several
 
     def one_row(self, number: int) -> str:
-        """One row by its number (data.moments.row_numbers): 'row 106' / 'index label 105'."""
+        """One row by its number (data.moments.row_numbers): 'row 106' / 'row labelled 105'."""
         return f"{self.one} {number}"
 
 
@@ -121,13 +123,13 @@ def line_words(number: int, lines: Mapping[int, int] | None) -> str:
 
 def row_words(number: int, lines: Mapping[int, int] | None = None, naming: RowNaming = RowNaming.FILE_ROW) -> str:
     """One row by its number, with its text line when it starts on a line of another number (``lines``:
-    :func:`text_lines`): 'row 501 (text line 575)', 'row 12', 'index label 11'."""
+    :func:`text_lines`): 'row 501 (text line 575)', 'row 12', 'row labelled 11'."""
     return naming.one_row(number) + line_words(number, lines)
 
 
 def row_of(frame: pd.DataFrame | pd.Series, number: int) -> str:
     """One row of ``frame`` by its number (data.moments.row_numbers) in the words of its naming, with its text line
-    when it starts on a line of another number: 'row 12', 'row 501 (text line 575)', 'index label 11'."""
+    when it starts on a line of another number: 'row 12', 'row 501 (text line 575)', 'row labelled 11'."""
     return row_words(number, text_lines(frame), row_naming(frame))
 
 
@@ -137,7 +139,7 @@ def rows_listed(numbers, shown: int = 5, ids=(), naming: RowNaming = RowNaming.F
     ``ids`` gives one (one per row, None where a row has none; a note_parts.RowId, which a manuscript leaves out) and
     its text line when it starts on a line of another number (``lines``: :func:`text_lines`), in the words of
     ``naming``: 'row 711 ('Total responses: 1204')', 'rows 152, 154, 424, 709, 710 and 3 more', 'row 501 (text line
-    575)', 'index labels 151, 153'."""
+    575)', 'rows labelled 151, 153'."""
     numbers = [int(n) for n in numbers]
     shown = names_shown(len(numbers), shown)  # never 'and 1 more'
     ids = list(ids) if len(ids) == len(numbers) else [None] * len(numbers)
@@ -153,7 +155,7 @@ def rows_listed(numbers, shown: int = 5, ids=(), naming: RowNaming = RowNaming.F
 def cell_words(frame: pd.DataFrame | pd.Series, column: str, row: int) -> str:
     """Where a cell is, for a message: 'row 425, cell E425' for a sheet's table (``row``: the number of the row as
     data.moments.row_numbers gives it, the sheet's own), 'row 425' otherwise ('row 501 (text line 575)' in a text file
-    whose quoted cells hold line breaks), 'index label 424' in a data frame."""
+    whose quoted cells hold line breaks), 'row labelled 424' in a data frame."""
     letter = frame.attrs.get(SHEET_COLUMNS, {}).get(column)
     return row_of(frame, row) + (f", cell {letter}{row}" if letter else "")
 

@@ -775,8 +775,8 @@ def refuse_containers(series: pd.Series, column) -> None:
     values = series.tolist()
     k = next(k for k, v in enumerate(values) if isinstance(v, CONTAINERS))
     kind = type(values[k]).__name__
-    raise DataError(f"{DATA_FRAME}: column '{printable(str(column))}', index label {printable(repr(series.index[k]))}: "
-                    f"holds a {kind} ({clipped(repr(values[k]), 40)}); a cell must hold one number or one word: "
+    raise DataError(f"{DATA_FRAME}: column '{printable(str(column))}', row labelled "
+                    f"{printable(repr(series.index[k]))}: holds a {kind} ({clipped(repr(values[k]), 40)}); a cell must hold one number or one word: "
                     f"unpack the {kind} into its own columns or rows first")
 
 

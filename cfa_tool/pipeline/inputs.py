@@ -1114,8 +1114,8 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     found = copied_rows(frame, row_numbers(frame), block, stamp)
     if found is None:
         return ()
-    if found.longest_run() < COPIED_RUN_OF_ANSWERS_ALONE and not _identifying_column(
-            frame, described | {found.numbering, found.time_stamp}, len(found)):
+    if found.longest_run() < COPIED_RUN_OF_ANSWERS_ALONE and not found.few_stamped and not _identifying_column(
+            frame, described | {found.numbering, found.time_stamp}, len(found)):  # (a few resubmissions: named)
         return ()
     def row(r: int) -> Text:  # the id apart: a manuscript names rows by number alone (note_parts.RowId)
         return row_of(frame, r) + (Note((RowId(f" ({printable(ids[r])})"),)) if ids.get(r) is not None else "")

@@ -11,9 +11,10 @@ end.  Tables and figures are numbered through the whole document (:func:`table_n
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, replace
 
-from cfa_tool.note_parts import Note, TableReference, Text, View, said
+from cfa_tool.note_parts import Command, Note, TableReference, Text, View, said
 from cfa_tool.reporting.document import DataRead, Report, ResultKind, by_file_name, file_names
 from cfa_tool.reporting.tables import ProblemNotice
 
@@ -73,14 +74,14 @@ def _who(part: Part) -> str:
 def combined(reports: list[tuple[Report, str]]) -> Combined:
     """The document of ``reports`` (each with the name of the file it was read from, which the data lines use
     when a result does not record its data), in the order given."""
-    parts = tuple(Part(k, part_heading(k, by_file_name(r)), replace(by_file_name(r), cautions=()))
+    parts = tuple(Part(k, part_heading(k, by_file_name(r)), _saved_words(replace(by_file_name(r), cautions=())))
                   for k, (r, _) in enumerate(reports, start=1))
     data_lines, same = _data_lines(parts, [source for _, source in reports])
     problems: list[Text] = []
     for part in parts:
         notice = part.report.notice
         if notice is not None:
-            problems += [Note((f"{_who(part)}: ",)) + _of_part(line, part.number)
+            problems += [Note((f"{_who(part)}: ",)) + _of_part(line, part.number, part.report.kind)
                          for line in (notice.lines or (notice.heading + ".",))]
     inadmissible = any(p.report.notice is not None and p.report.notice.inadmissible for p in parts)
     lines = tuple(problems) + (() if same else data_lines)
@@ -93,25 +94,78 @@ def combined(reports: list[tuple[Report, str]]) -> Combined:
     return Combined(TITLE, notice, data_lines if same else (), parts, tuple(cautions.values()))
 
 
-def _of_part(line: Text, number: int) -> Text:
+def _of_part(line: Text, number: int, kind: ResultKind | None = None) -> Text:
     """A line of a result's notice as the document's "Read first" notice holds it: a reference to a table of that
     result keyed by the result's number too ('2/model_fit'), so that it names that result's table
-    (:func:`notice_view`), whichever other result has a table of the same key."""
+    (:func:`notice_view`), whichever other result has a table of the same key; with the result's ``kind``, its
+    advice as its own report gives it (:func:`_in_its_words`)."""
     if isinstance(line, str):
         return line
+    line = _in_its_words(line, kind) if kind is not None else line
     return Note(tuple(TableReference(f"{number}/{p.key}") if isinstance(p, TableReference) else p for p in line.parts))
 
 
-def notice_view(document: Combined, numbers: bool) -> View:
-    """The view of the document's "Read first" notice and lines: for a manuscript (``numbers``: the Word file)
-    without commands, each result's table named by its number in the whole document ('Table 7'); otherwise with
-    the commands, a table named by its title and its result."""
+def _in_its_words(line: Text, kind: ResultKind) -> Text:
+    """A line of a result of ``kind`` as a document of saved results gives it, read by the user of ``cfa-tool
+    report`` (who runs neither that command nor its options): a command it names that is the result's own said by
+    the words of its own report (note_parts.Command.inside: 'among the models compared here', not 'cfa-tool
+    compare'), and an option advised ('--max-iterations') as running the result's command again with it
+    ('when running fit again: cfa-tool fit ... --max-iterations'), never as an option of ``report``."""
+    if isinstance(line, str):
+        return line
+    parts = []
+    for p in line.parts:
+        if isinstance(p, Command) and p.runs == kind.value:
+            p = replace(p, text=p.inside, runs="", inside="")
+        elif isinstance(p, Command) and _OPTION.match(p.text):
+            given = _OPTION.match(p.text).group(1)
+            again = (f"cfa-tool {kind.value} ... {given}" if given.startswith("--") else
+                     f"cfa_tool.{kind.value.replace('-', '_')}(..., {given})")
+            p = replace(p, text=f" (when running {kind.value} again: {again})")
+        parts.append(p)
+    return Note(tuple(parts))
+
+
+def _saved_words(report: Report) -> Report:
+    """A result's report as its part of a document of saved results says it: its notice, warnings and notes in the
+    words of :func:`_in_its_words` (an option advised as running its command again)."""
+    notice = report.notice
+    if notice is not None:
+        notice = replace(notice, lines=tuple(_in_its_words(line, report.kind) for line in notice.lines))
+    return replace(report, notice=notice, warnings=tuple(_in_its_words(w, report.kind) for w in report.warnings),
+                   notes=tuple(_in_its_words(n, report.kind) for n in report.notes))
+
+
+#: a command's text that is an option and nothing else, as the command line (' (--max-iterations)') or the Python
+#: API (' (max_iterations=...)') writes it (options.Option)
+_OPTION = re.compile(r"^\s*\(((?:--[a-z][a-z-]*|[a-z_]+=)[^;()]*)\)\s*$")
+
+
+def notice_view(document: Combined, numbers: bool, commands: bool | None = None) -> View:
+    """The view of the document's "Read first" notice and lines: with ``numbers`` (a document whose tables are
+    numbered through: Word, HTML, Markdown) each result's table named by its number in the whole document ('Table
+    7'), otherwise (the terminal, a --tables folder) by its title and its result; with the ``commands`` (by default
+    where there are no numbers: a manuscript's Word file runs nothing) or without."""
     tables = {}
     for part, first in zip(document.parts, table_numbers(document)):
         for k, table in enumerate(part.report.tables):
             tables[f"{part.number}/{table.key}"] = (f"Table {first + k}" if numbers else
                                                     f'the table "{table.title}" of Result {part.number}')
-    return View(not numbers, tables)
+    return View(not numbers if commands is None else commands, tables)
+
+
+def numbered_part(report: Report, first_table: int, first_figure: int) -> tuple[Report, View]:
+    """A result's report as a document numbered through shows it where its writer gives no numbers of its own (HTML,
+    Markdown; the Word file captions its tables and figures itself from the same :func:`table_numbers` and
+    :func:`figure_numbers`): each table's title and each figure's after its number ('Table 7. Fit of each level'),
+    and the view of a reader who runs the program that names its tables so ('Table 7'), its own command not
+    advised in it."""
+    tables = tuple(replace(t, title=f"Table {k}. {t.title}") for k, t in enumerate(report.tables, start=first_table))
+    figures = tuple(replace(f, title=f"Figure {k}. {f.title}") for k, f in enumerate(report.figures,
+                                                                                      start=first_figure))
+    view = View(True, {t.key: f"Table {k}" for k, t in enumerate(report.tables, start=first_table)},
+                report.kind.value)
+    return replace(report, tables=tables, figures=figures), view
 
 
 def _identity(data: DataRead) -> tuple:

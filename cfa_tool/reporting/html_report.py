@@ -117,7 +117,7 @@ def notice_html(notice: T.ProblemNotice | None, view: View = RUNNING, ids: str =
             f'<ul>{items}</ul></div>')
 
 
-def report_html_fragment(report, heading: bool = False, level: int = 1, ids: str = "") -> str:
+def report_html_fragment(report, heading: bool = False, level: int = 1, ids: str = "", view: View | None = None) -> str:
     """Any command's report (cfa_tool.reporting.document.Report) as an HTML fragment (also what notebooks show):
     the problems first, then (with ``heading``) the title, what was done, the tables, the notes and the cautions;
     the title at heading ``level`` and the sections under it, and every id starting with ``ids`` (a part of a page
@@ -127,7 +127,8 @@ def report_html_fragment(report, heading: bool = False, level: int = 1, ids: str
     (cfa_tool.note_parts)."""
     import base64
 
-    view = titled(report.tables, running=report.kind.value)  # its own command not advised in it
+    if view is None:  # (a part of a document numbered through names its tables by number: reporting.combined)
+        view = titled(report.tables, running=report.kind.value)  # its own command not advised in it
     sub = f"h{level + 1}"
     parts = [notice_html(report.notice, view, ids, level + 1)] + ([f"<h{level}>{esc(report.title)}</h{level}>"]
                                                                   if heading else [])
@@ -174,14 +175,15 @@ def combined_html(document) -> str:
     """A document of several results (reporting.combined.Combined) as one self-contained HTML file: the "Read
     first" notice, the title and what the results read, each result under its heading (its own problems first, its
     ids apart from the other parts'), and the cautions once."""
-    from cfa_tool.reporting.combined import notice_view
+    from cfa_tool.reporting.combined import figure_numbers, notice_view, numbered_part, table_numbers
 
-    whole = notice_view(document, numbers=False)
+    whole = notice_view(document, numbers=True, commands=True)  # the tables numbered through, as in Word
     parts = [notice_html(document.notice, whole), f"<h1>{esc(document.title)}</h1>"]
     parts += [f'<p class="note">{esc(printed_line(line, whole))}</p>' for line in document.lines]
-    for part in document.parts:
+    for part, first_table, first_figure in zip(document.parts, table_numbers(document), figure_numbers(document)):
+        report, view = numbered_part(part.report, first_table, first_figure)
         parts += [f'<section id="result-{part.number}"><h2>{esc(part.heading)}</h2>',
-                  report_html_fragment(part.report, level=2, ids=f"result-{part.number}-"), "</section>"]
+                  report_html_fragment(report, level=2, ids=f"result-{part.number}-", view=view), "</section>"]
     if document.cautions:
         parts += ["<h2>Cautions</h2>", *cautions_html(document.cautions, whole)]
     return _page(document.title, "\n".join(p for p in parts if p))

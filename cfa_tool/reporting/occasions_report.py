@@ -4,6 +4,7 @@ group, with the latent mean and variance changes and the model each step fitted.
 
 from __future__ import annotations
 
+from cfa_tool.language.names import written_group
 from cfa_tool.model.description import parameter_words
 from cfa_tool.numbers import count_text, word_list
 from cfa_tool.reporting.document import Listing, Report, ResultKind
@@ -29,7 +30,7 @@ def _misfit_sources(step, result) -> str:
     def words(c) -> str:
         parts = [result.at_occasion(v) for v in c.variables]
         return (parameter_words(c.kind, tuple(name for name, _ in parts), article=True)
-                + f" at occasion {parts[-1][1]}")
+                + f" at occasion {written_group(parts[-1][1], result.occasions)}")
 
     significant = [c for c in step.culprits if dist.chi2_sf(c.index, 1) < result.alpha]
     level = unit(result.alpha, 2)
@@ -49,7 +50,7 @@ def _misfit_sources(step, result) -> str:
 def _where(result) -> str:
     """The occasions in words: 'occasions 1 and 2 of wave' (long data) or 'occasions t1 and t2 (columns ending
     _t1, _t2)' (wide data)."""
-    occasions = word_list(list(result.occasions))
+    occasions = word_list([written_group(o, result.occasions) for o in result.occasions])  # 'time, 2' quoted
     if result.occasion_column is not None:
         return f"occasions {occasions} of {result.occasion_column}"
     return f"occasions {occasions} (columns ending {', '.join(result.layout.endings)})"
@@ -106,7 +107,7 @@ def occasions_report(result) -> Report:
     notes += [CONFIGURAL_NOTE, OCCASIONS_GUIDES_NOTE]
     notes += [_misfit_sources(step, result) for step in steps if not step.holds and step.culprits]
     notes += _score_tests_mcar_note(result)
-    first_occasion = result.occasions[0]
+    first_occasion = written_group(result.occasions[0], result.occasions)
     if result.latent_changes:
         cells = [[d.factor, d.group, est_num(d.mean), est_num(d.se),
                   f"[{est_num(d.ci95[0], 2)}, {est_num(d.ci95[1], 2)}]", p_value(d.p_value),
@@ -219,7 +220,8 @@ def occasions_paragraph(result) -> str:
                  + ".")
     if result.latent_changes:
         parts.append("From the scalar model, " + "; ".join(
-            f"the mean of {d.factor} at occasion {d.group} differed from occasion {result.occasions[0]} by "
+            f"the mean of {d.factor} at occasion {written_group(d.group, result.occasions)} differed from occasion "
+            f"{written_group(result.occasions[0], result.occasions)} by "
             f"{est_num(d.mean)} (SE = {est_num(d.se)}, p {p_phrase(d.p_value)}, d = "
             f"{est_num(d.standardized, 2)}), its variance ratio {est_num(d.variance_ratio, 2)}"
             for d in result.latent_changes) + ".")

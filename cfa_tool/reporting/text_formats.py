@@ -126,15 +126,15 @@ def report_markdown(report) -> str:
 def combined_markdown(document) -> str:
     """A document of several results (reporting.combined.Combined) as Markdown: the "Read first" notice, the title
     and what the results read, each result under its heading (its own problems first), the cautions once."""
-    from cfa_tool.reporting.combined import notice_view
+    from cfa_tool.reporting.combined import figure_numbers, notice_view, numbered_part, table_numbers
 
-    whole = notice_view(document, numbers=False)
+    whole = notice_view(document, numbers=True, commands=True)  # the tables numbered through, as in Word
     parts = _markdown_notice(document.notice, whole) + [f"# {markdown_text(document.title)}", ""]
     parts += [markdown_text(said(line, whole)) + "  " for line in document.lines] + ([""] if document.lines else [])
-    for part in document.parts:
-        view = titled(part.report.tables, running=part.report.kind.value)
-        parts += [f"## {markdown_text(part.heading)}", ""] + _markdown_notice(part.report.notice, view, 3)
-        parts += _markdown_body(part.report, view, 3)
+    for part, first_table, first_figure in zip(document.parts, table_numbers(document), figure_numbers(document)):
+        report, view = numbered_part(part.report, first_table, first_figure)
+        parts += [f"## {markdown_text(part.heading)}", ""] + _markdown_notice(report.notice, view, 3)
+        parts += _markdown_body(report, view, 3)
     return "\n".join(parts + _markdown_cautions(document.cautions, whole))
 
 

@@ -674,6 +674,19 @@ def _kept_by_filters(scan, keep):
     return replace(kept, frame=kept.frame.assign(**numbers)) if numbers else kept
 
 
+def _named_role(name: str) -> str | None:
+    """The part a column plays by its name (data.column_roles.column_role), or the units of many respondents it
+    names ('teams' for 'Team', data.column_roles.unit_word); None for a column that may hold answers."""
+    from cfa_tool.data.column_roles import unit_word
+
+    role = column_role(name)
+    if role is not None:
+        return role
+    unit = unit_word(name)
+    return None if unit is None else f"{unit}es" if unit.endswith(("ch", "sh", "ss", "x")) else (
+        f"{unit[:-1]}ies" if unit.endswith("y") and unit[-2:-1] not in "aeiou" else f"{unit}s")
+
+
 def _default_items(first, columns: list[str], codings: tuple, design: tuple[str, ...] = (),
                    codes: tuple[float, ...] = (), id_column: str | None = None
                    ) -> tuple[tuple[str, ...], str, tuple[str, ...], tuple[tuple[str, LeftOut], ...]]:
@@ -691,7 +704,9 @@ def _default_items(first, columns: list[str], codings: tuple, design: tuple[str,
     numeric = tuple(c for c in numeric if c not in design)
     named_id = [c for c in numeric if c == id_column]  # the id column given, whatever it holds
     ids = named_id + [c for c in numeric if c != id_column and _looks_like_row_ids(frame[c])]
-    roles = [c for c in numeric if c not in ids and column_role(c) is not None]
+    # named for their part, or for a unit of many respondents ('Team', 'site': data.column_roles.unit_word, the rule by
+    # which fit cautions on such a column), whatever they hold (new-user trial s27: a numeric 'Team' was explored)
+    roles = [c for c in numeric if c not in ids and _named_role(c) is not None]
     coded = [c for c in labelled_codes(frame, first.value_labels) if c in numeric and c not in ids + roles
              and own_labels(c, first.value_labels)]
     worded = _word_columns(frame, numeric, codings)
@@ -717,8 +732,11 @@ def _default_items(first, columns: list[str], codings: tuple, design: tuple[str,
                "department's do; the items share their answer scale's labels): "
                + Note((f"{', '.join(printable(c) for c in coded)}", name_them, "."))
                if coded else "")
-            + (" Left out by their names, as columns of the sampling design, ids, groups, the respondents' "
-               "particulars or the survey's records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
+            + (" Left out by their names, as columns of the sampling design, ids, groups, "
+               + ("units of many respondents such as teams or sites, " if any(column_role(c) is None for c in roles)
+                  else "")
+               + "the respondents' particulars or the survey's records rather than answers: "
+               + ", ".join(f"{printable(c)} ({_named_role(c)})" for c in roles)
                + Note((name_them, ".")) if roles else "")
             + (f" Left out as groupings or records rather than answers (a few whole values, most of them above the "
                f"{user_number(unlike.scale[0])} to {user_number(unlike.scale[1])} that most columns hold, and no correlation of "
@@ -792,7 +810,7 @@ def _refuse_numbers_with_slips(frame: pd.DataFrame, taken: tuple[str, ...], sour
 
     for name in frame.columns:
         column = frame[name]
-        if (name in taken or column_role(str(name)) is not None or pd.api.types.is_numeric_dtype(column)
+        if (name in taken or _named_role(str(name)) is not None or pd.api.types.is_numeric_dtype(column)
                 or column.dtype.kind in "mM"):
             continue
         values = column.to_numpy(dtype=object)

@@ -24,15 +24,16 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.data.moments import FEW_TOGETHER_SHARE
 from cfa_tool.data.row_ids import id_text, ids_by_row_number
 from cfa_tool.errors import DataError, ModelError, OptionError, shown_path
-from cfa_tool.language.names import written_name
+from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.parser import parse_model
 from cfa_tool.language.spec import Spec
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.method import DecisionRule, DifferenceMethod, MissingData
-from cfa_tool.numbers import count_text, counted, cut_list, number
+from cfa_tool.numbers import count_text, counted, cut_list, number, word_list
 from cfa_tool.options import Option, own_keywords
 from cfa_tool import options as check
 from cfa_tool.pipeline.inputs import analysed_odd_values, data_problems, load_spec, read_inputs_with_notes
@@ -59,6 +60,12 @@ class OccasionLayout:
         """``name`` (an item or a factor of the one-occasion model) at the k-th occasion."""
         return f"{name}{self.endings[k]}"
 
+    def said(self, k: int) -> str:
+        """The k-th occasion's label as a sentence names it among the occasions, by the one rule of group labels
+        (language.names.written_group: 'occasion 2', or 'occasion "time, 2"' with every label quoted when one
+        needs it, so that a label with a comma reads as one)."""
+        return written_group(self.occasions[k], self.occasions)
+
     def clash(self, names: Sequence[str]) -> str:
         """The first name of the model of every occasion that two (name, occasion) pairs of ``names`` (the
         one-occasion model's items and factors) would share, in words ('' when none does): item 'a' at ending '11'
@@ -69,8 +76,8 @@ class OccasionLayout:
                 written = self.name(name, k)
                 if written in seen and seen[written] != (name, k):
                     other, j = seen[written]
-                    return (f"'{written}' would be both '{other}' at occasion {self.occasions[j]} and '{name}' at "
-                            f"occasion {self.occasions[k]}")
+                    return (f"'{written}' would be both '{other}' at occasion {self.said(j)} and '{name}' at "
+                            f"occasion {self.said(k)}")
                 seen.setdefault(written, (name, k))
         return ""
 
@@ -157,7 +164,7 @@ class _OccasionWords:
 
     def __init__(self, spec: Spec, layout: OccasionLayout) -> None:
         self.spec, self.layout = spec, layout
-        wide = {layout.name(n, k): (n, layout.occasions[k]) for n in (*spec.observed_names, *spec.factor_names)
+        wide = {layout.name(n, k): (n, layout.said(k)) for n in (*spec.observed_names, *spec.factor_names)
                 for k in range(len(layout.occasions))}
         self.wide = wide
         alternatives = "|".join(re.escape(n) for n in sorted(wide, key=len, reverse=True))
@@ -241,6 +248,27 @@ def _loading_factor(label: str) -> str:
     return read_reference(label)[1][0]
 
 
+#: the kinds of the cautions on the answers set side by side (pipeline.inputs.data_problems, the fit's tails) that
+#: name items and counts, never rows: those a long file's ladder gives beside the long file's own
+_ANSWERS_SIDE_BY_SIDE = frozenset({ProblemKind.FEW_ANSWERS, ProblemKind.FEW_ANSWERED_TOGETHER,
+                                   ProblemKind.NEARLY_CONSTANT, ProblemKind.NON_NORMAL_ANSWERS,
+                                   ProblemKind.SPARSE_ANSWERS})
+
+
+def _one_row_per_person(problem, endings: Sequence[str]):
+    """``problem`` with advice that fits wide data over occasions when it is the caution on ids of several rows: the
+    file sets the occasions side by side already, each person one row, so the general advice (merge by the id and the
+    time, set each time's answers side by side) does not apply; ids of several rows are typing errors or one
+    person's occasions split over rows (hostile trial s27)."""
+    if problem.kind is not ProblemKind.REPEATED_IDS:
+        return problem
+    return replace(problem, advice=(
+        f"correct the ids in a copy of the data file (a typing error?); if the rows of one id are one person's answers "
+        f"at different occasions, join them into one row of that person, each occasion's answers in its own columns "
+        f"(ending {', '.join(endings)}), so that the ladder compares each person with themselves; if they are "
+        f"different people, give each an id of their own."))
+
+
 def _chosen(id_column: str, occasion_column: str):
     """The columns of other roles than items (data.matching.chosen_columns): the id and the occasion column."""
     from cfa_tool.data.matching import chosen_columns
@@ -261,10 +289,15 @@ def _occasion_order(values: pd.Series, column: str, given: Sequence[str] | None,
         unknown = [g for g in wanted if g not in by_label]
         left = [label for label in by_label if label not in wanted]
         if unknown or left or len(set(wanted)) < len(wanted):
+            labels = [*by_label, *unknown]
+
+            def said(texts) -> str:  # each quoted when one needs it ('time, 2' one label: written_group)
+                return ", ".join(written_group(t, labels) for t in texts)
+
             raise OptionError(f"the order of the occasions names each occasion of '{column}' in {shown_path(source)} "
-                              f"once ({', '.join(by_label)})"
-                              + (f"; not among them: {', '.join(unknown)}" if unknown else "")
-                              + (f"; left out: {', '.join(left)}" if left else ""))
+                              f"once ({said(by_label)})"
+                              + (f"; not among them: {said(unknown)}" if unknown else "")
+                              + (f"; left out: {said(left)}" if left else ""))
         return [by_label[g] for g in wanted]
     values = [v if isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool)
               else number(str(v)) for v in distinct]  # numbers, or text that reads as one (a column read as text)
@@ -279,6 +312,20 @@ def _occasion_order(values: pd.Series, column: str, given: Sequence[str] | None,
                       f"their order, comma-separated, the first first)")
 
 
+def _as_read_after(keep, missing_codes) -> str:
+    """What the run gave that changed the rows and answers set side by side (its row filters and codes of no answer),
+    for an error of the occasions' rows, which the user may not connect with them (hostile trial s27: an occasion
+    without answers after --missing-codes read them as gaps); '' when it gave neither."""
+    from cfa_tool.data.non_answers import codes_given
+
+    given = ([Option.KEEP.given([k for k in keep if isinstance(k, str)])] if any(isinstance(k, str) for k in keep)
+             else []) + [k.phrase() for k in keep if not isinstance(k, str) and hasattr(k, "phrase")]
+    given += [codes_given(missing_codes)] if missing_codes else []
+    if not given:
+        return ""
+    return f" (the rows and answers as read after {word_list(given)}, which change what is set side by side)"
+
+
 def _refuse_no_one_at_both(people: OccasionPeople, loaded, occasion_column: str | None, id_column: str | None) -> None:
     """No person answering at both occasions of some pair: the covariances across them have no data (hostile s27:
     ids 'P0' at wave 1 and '0' at wave 2 stopped the fit on a pair of columns of no file); an error naming the file
@@ -287,16 +334,17 @@ def _refuse_no_one_at_both(people: OccasionPeople, loaded, occasion_column: str 
     if n or not people.analysed:
         return
     a, b = people.occasions[k], people.occasions[j]
+    said_a, said_b = (written_group(o, people.occasions) for o in (a, b))  # 'time, 2' quoted, as one label
     if occasion_column is not None:
         frame = loaded.frame
         labels = frame[occasion_column].map(id_text)
         seen = [cut_list(list(dict.fromkeys(frame.loc[labels == o, id_column].map(id_text).dropna()))[:3], 3,
                          lambda i: f"'{i}'") for o in (a, b)]
-        raise DataError(f"{shown_path(loaded.source)}: no person of '{id_column}' answered at both occasions {a} and "
-                        f"{b} of '{occasion_column}' (ids at {a} such as {seen[0]}; at {b} such as {seen[1]}); write "
-                        f"each person's id alike at every occasion")
-    raise DataError(f"{shown_path(loaded.source)}: no row answers items at both occasions {a} and {b}; each row holds "
-                    f"one person's answers at every occasion")
+        raise DataError(f"{shown_path(loaded.source)}: no person of '{id_column}' answered at both occasions {said_a} "
+                        f"and {said_b} of '{occasion_column}' (ids at {said_a} such as {seen[0]}; at {said_b} such as "
+                        f"{seen[1]}); write each person's id alike at every occasion")
+    raise DataError(f"{shown_path(loaded.source)}: no row answers items at both occasions {said_a} and {said_b}; each "
+                    f"row holds one person's answers at every occasion")
 
 
 def _refuse_split_people(loaded, id_column: str) -> None:
@@ -375,7 +423,7 @@ def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, oc
     missing = len(people) * len(order) - len(frame)
     notes = [f"Rows set side by side by '{id_column}': {counted(len(frame), 'row')} of "
              f"{counted(len(people), 'person', 'people')} at {len(order)} occasions of '{occasion_column}' ("
-             + ", ".join(f"{lab}: {count_text(c)}" for lab, c in zip(labels, counts)) + ")"
+             + ", ".join(f"{written_group(lab, labels)}: {count_text(c)}" for lab, c in zip(labels, counts)) + ")"
              + (f"; {counted(missing, 'occasion')} of people missing there {'is a gap' if missing == 1 else 'are gaps'}"
                 f", kept by full-information ML" if missing else "") + "."]
     return wide, layout, notes
@@ -408,7 +456,8 @@ class OccasionPeople:
         """'both occasions' with two occasions, else 'both occasions 1 and 3'."""
         if len(self.occasions) == 2:
             return "both occasions"
-        return f"both occasions {self.occasions[pair[0]]} and {self.occasions[pair[1]]}"
+        return (f"both occasions {written_group(self.occasions[pair[0]], self.occasions)} and "
+                f"{written_group(self.occasions[pair[1]], self.occasions)}")
 
     def at_both(self) -> str:
         """How many of the people analysed answered at both occasions (at the pair answered by the fewest)."""
@@ -557,9 +606,9 @@ def _latent_changes(steps: Sequence[InvarianceStep], spec: Spec,
                                         tuple(mean.ci95), float(mean.p_value), float(d), float(var.estimate),
                                         float(var.se), float(first.estimate)))
     return tuple(out), (f"From the scalar model: each factor's mean at a later occasion against occasion "
-                        f"{layout.occasions[0]} (whose means are fixed at 0); d: the change over the pooled latent "
+                        f"{layout.said(0)} (whose means are fixed at 0); d: the change over the pooled latent "
                         f"standard deviation of the two occasions; Var. ratio: the factor's variance at that occasion "
-                        f"over its variance at occasion {layout.occasions[0]}.")
+                        f"over its variance at occasion {layout.said(0)}.")
 
 
 def _description(spec: Spec):
@@ -676,8 +725,11 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             if column not in loaded.frame.columns:
                 raise DataError(f"{shown_path(loaded.source)}: no column '{column}'")
         _refuse_split_people(loaded, id_column)
-        wide, layout, shaped = wide_from_long(loaded.frame, spec.observed_names, id_column, occasion_column,
-                                              loaded.source, occasion_order)
+        try:
+            wide, layout, shaped = wide_from_long(loaded.frame, spec.observed_names, id_column, occasion_column,
+                                                  loaded.source, occasion_order)
+        except (DataError, OptionError) as error:  # the same kind of error, saying what the run read the rows after
+            raise type(error)(f"{error}{_as_read_after(keep, missing_codes)}") from None
         # the cautions on the rows of the long file, named by its rows and each row by its person and occasion (an id
         # repeats once per occasion by design, and no id twice at one occasion is left: wide_from_long), not those of
         # the rows set side by side, which no file holds
@@ -718,10 +770,14 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
         # the cautions on the file's rows, named by the file's rows (not the rows of a data frame compare reads)
         ids = (ids_by_row_number(loaded.frame[id_column].map(id_text), loaded.frame)
                if isinstance(id_column, str) and id_column in loaded.frame.columns else None)
-        long_problems = data_problems(analysed_odd_values(loaded, wide_spec, None), wide_spec, ids=ids,
-                                      id_column=id_column if ids is not None else None, takes_design=False)
+        long_problems = tuple(_one_row_per_person(p, endings) for p in data_problems(
+            analysed_odd_values(loaded, wide_spec, None), wide_spec, ids=ids,
+            id_column=id_column if ids is not None else None, takes_design=False))
     people = occasion_people(wide, spec, layout, loaded.frame if occasion_column is not None else None, id_column)
-    _refuse_no_one_at_both(people, loaded, occasion_column, id_column)
+    try:
+        _refuse_no_one_at_both(people, loaded, occasion_column, id_column)
+    except DataError as error:
+        raise DataError(f"{error}{_as_read_after(keep, missing_codes)}") from None
     texts = tuple(step_text(spec, layout, level) for level, _, _ in LEVELS)
     specs = [parse_model(text, f"{spec.source} ({level} over occasions)") for text, (level, _, _) in zip(texts, LEVELS)]
     from cfa_tool.workflows.compare import compare
@@ -751,10 +807,15 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
         steps.append(InvarianceStep(level, result, test_k, holds, culprits, any(not s.holds for s in steps),
                                     delta_srmr=srmr, unjudged=not_judged))
     problems = tuple(long_problems)
+    named = {p.kind for p in problems}
     if occasion_column is None:  # wide data: the fit's cautions on the analysed answers (their tails, say) too, those
         # of the kinds named above by the file's rows left out
-        named = {p.kind for p in problems}
         problems += tuple(p for p in found.problems if p.kind not in named)
+    else:  # long data: the cautions on each occasion's answers, which the long file's columns mix (an item nearly
+        # constant at one occasion), those that name no row of the occasions side by side, which no file holds, each
+        # name said by item and occasion
+        problems += tuple(replace(p, explanation=words.said(p.explanation), advice=words.said(p.advice))
+                          for p in found.problems if p.kind not in named and p.kind in _ANSWERS_SIDE_BY_SIDE)
     warnings: list[str] = []  # the steps' impossible solutions first, in the ladder's order, then the data's
     for step in steps:
         if step.result.converged and not step.result.admissible:

@@ -310,3 +310,21 @@ def test_a_column_of_numbers_with_two_slips_stops_the_default_items_as_fit_stops
     frame = hs_data.assign(remark=["ok" if k % 2 else "late" for k in range(len(hs_data))])
     explored = cfa_tool.explore(frame, factors=3)
     assert "remark" not in explored.items
+
+
+def test_a_column_named_for_a_unit_of_many_respondents_is_not_taken_for_an_item(hs_data):
+    # new-user trial s27: a numeric 'Team' (80 teams numbered 1 to 8 here, within the tests' range) was explored as an
+    # item, while fit reads it by its name as the id of units of many respondents (data.column_roles.unit_word)
+    from cfa_tool.workflows.explore import explore
+
+    rng = np.random.default_rng(27)
+    tests = [f"x{i}" for i in range(1, 10)]
+    data = hs_data[tests].assign(Team=rng.integers(1, 9, len(hs_data)), site_code=rng.integers(1, 6, len(hs_data)))
+    result = explore(data, factors=3, replications=10)
+    assert result.to_dict()["items"] == tests
+    note = " ".join(next(str(n) for n in result.notes if str(n).startswith("Items:")).split())
+    assert ("Left out by their names, as columns of the sampling design, ids, groups, units of many respondents such "
+            "as teams or sites, the respondents' particulars or the survey's records rather than answers: Team "
+            "(teams), site_code (sites) (name them in items=... to explore them).") in note
+    named = explore(data, items="x1..x9, Team", factors=3, replications=10)  # named: explored, as meant
+    assert "Team" in named.to_dict()["items"]

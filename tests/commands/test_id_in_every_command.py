@@ -93,8 +93,8 @@ def _copies_named_by_ids(problems) -> None:
     said = " ".join(str(caution.explanation).split())
     # the planted pairs: index labels 400 and 401 of the data frame repeat labels 5 and 40 (a file's rows: 402, 403
     # repeat rows 7 and 42, under the row of names)
-    assert ("index label 400 (S-00006) repeats index label 5 (S-00006)" in said
-            and "index label 401 (S-00041) repeats index label 40 (S-00041)" in said), said
+    assert ("row labelled 400 (S-00006) repeats row labelled 5 (S-00006)" in said
+            and "row labelled 401 (S-00041) repeats row labelled 40 (S-00041)" in said), said
 
 
 def test_every_command_that_reads_rows_takes_the_id_option():

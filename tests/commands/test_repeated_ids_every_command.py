@@ -110,7 +110,7 @@ def test_explore_names_the_repeated_ids_first_by_the_one_rule(tmp_path, capsys):
     explored = cfa_tool.explore(rows, factors=3, replications=5, id_column="rider_id")
     [caution] = [p for p in explored.data_problems if p.kind is ProblemKind.REPEATED_IDS]
     assert explored.data_problems[0] is caution
-    assert said.replace("rows 6, 7", "index labels 4, 5").replace("rows 22, 32, 42", "index labels 20, 30, 40") \
+    assert said.replace("rows 6, 7", "rows labelled 4, 5").replace("rows 22, 32, 42", "rows labelled 20, 30, 40") \
         in _flat(caution.explanation)  # a data frame's rows by their index labels
     data = tmp_path / "riders.csv"
     rows.to_csv(data, index=False)

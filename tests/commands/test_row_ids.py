@@ -157,7 +157,7 @@ def test_ids_read_alike_by_the_repeated_id_caution_and_the_scores_file(tmp_path,
     frame["pid"] = [7.0, 7] + list(range(100, 100 + len(frame) - 2))
     scored = cfa_tool.scores(model, frame.astype({"pid": object}), id_column="pid")
     [caution] = [p for p in scored.fit.problems if p.kind is ProblemKind.REPEATED_IDS]
-    assert "'7' in index labels 0, 1" in str(caution.explanation)
+    assert "'7' in rows labelled 0, 1" in str(caution.explanation)
     assert [line.split(",")[0] for line in scored.csv().splitlines()[1:3]] == ["7", "7"]
     # a text file's '007' and 7 are two ids, written as they stand
     frame["pid"] = ["007", "7"] + [str(k) for k in range(100, 100 + len(frame) - 2)]

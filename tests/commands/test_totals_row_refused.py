@@ -95,8 +95,8 @@ def test_a_data_frame_names_the_row_by_its_index_label(rider_demo, rider_model):
     with pytest.raises(DataError) as caught:
         cfa_tool.fit(rider_model, frame)
     message = str(caught.value)
-    assert message.startswith(f"Index label {len(rider_demo)} of <data frame> holds the sums of the other rows' answers")
-    assert "delete index label" in message and "from the data frame" in message
+    assert message.startswith(f"Row labelled {len(rider_demo)} of <data frame> holds the sums of the other rows' answers")
+    assert "delete row labelled" in message and "from the data frame" in message
     assert "keep=['rider_id != Total']" in message  # the Python keyword, as a Python caller writes it
 
 

@@ -47,7 +47,7 @@ def test_words_among_numbers_keep_the_codes_given(rider_demo, rider_model, tmp_p
     one.loc[3, "on_time"] = "Ne sait pas"
     with pytest.raises(DataError) as caught:
         cfa_tool.fit(rider_model, one, missing_codes=[-99, 8])
-    assert "holds text ('Ne sait pas' in index label 3) among numbers" in str(caught.value)
+    assert "holds text ('Ne sait pas' in row labelled 3) among numbers" in str(caught.value)
     assert "give it with missing_codes=[-99, 8, 'Ne sait pas']" in str(caught.value)
     # explore reads a word among numbers by the same message
     with pytest.raises(DataError) as caught:

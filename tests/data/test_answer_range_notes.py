@@ -33,7 +33,7 @@ def test_partners_of_reversed_items_outside_the_declared_scale_are_refused_as_th
     # one rule for every item the statement's scale covers (new-user trial 7, U12: a note on the partners let the
     # stray answers become categories); the remedy first is missing_codes (--missing-codes), a wider scale only second
     assert refusal(MODEL + "reversed a1 on 1 to 5\n", answers) == (
-        "<data frame> holds answers outside the scale 1 to 5 declared here: 'a2' 0 (2 cells: index labels 9, 19); if "
+        "<data frame> holds answers outside the scale 1 to 5 declared here: 'a2' 0 (2 cells: rows labelled 9, 19); if "
         "they are typing errors or codes for no answer, give missing_codes=[0] (or correct them in a copy of the "
         "file); if the scale really runs wider, give its lowest and highest answers here")
     # b is not keyed by the statement: its 9 is not judged by that scale

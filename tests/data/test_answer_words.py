@@ -176,14 +176,14 @@ def test_a_word_the_statement_does_not_list_is_an_error_naming_the_cell(files):
     with pytest.raises(DataError) as err:
         _fit_frame(frame)
     message = str(err.value)
-    assert "column 'clean', index label 7: the answer 'Agreed' is not one of the words of the 'answers' statement on " \
+    assert "column 'clean', row labelled 7: the answer 'Agreed' is not one of the words of the 'answers' statement on " \
            "line 3 ('Strongly disagree', 'Disagree', 'Neither agree nor disagree', 'Agree', 'Strongly agree')" in message
 
 
 def test_a_number_among_the_words_is_an_error_unless_listed(files):
     frame = _as_words(_answers())
     frame.loc[10, "info"] = 4
-    with pytest.raises(DataError, match="column 'info', index label 10: holds the number 4 among answers recorded as "
+    with pytest.raises(DataError, match="column 'info', row labelled 10: holds the number 4 among answers recorded as "
                                         "words, and the 'answers' statement on line 3 does not list it"):
         _fit_frame(frame)
     frame.loc[10, "info"] = "3.24"  # a means row at the foot of an export

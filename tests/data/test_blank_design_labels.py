@@ -40,7 +40,7 @@ def test_a_blank_looking_cell_is_no_cluster_or_stratum(column, option, unit, cel
     frame.at[7, column] = cell
     with pytest.raises(DataError) as refused:
         cfa_tool.fit(MODEL, frame, **{option: column})
-    assert str(refused.value).startswith(f"<data frame>: column '{column}', index label 7: no {unit} given (the cell "
+    assert str(refused.value).startswith(f"<data frame>: column '{column}', row labelled 7: no {unit} given (the cell "
                                          f"holds only {said}, so it looks empty); every row needs one")
 
 

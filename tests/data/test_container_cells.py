@@ -27,7 +27,7 @@ def test_a_container_in_an_item_cell_is_named(rows, cell):
     data.at[3, "on_time"] = cell
     with pytest.raises(DataError) as err:
         fit(MODEL, data)
-    assert "column 'on_time', index label 3: holds a " in str(err.value)
+    assert "column 'on_time', row labelled 3: holds a " in str(err.value)
 
 
 def test_a_column_of_lists_the_model_does_not_use_is_left_alone(rows):

@@ -40,7 +40,7 @@ def test_a_container_cell_is_refused_naming_the_column_and_the_row(column, optio
     with pytest.raises(DataError) as refused:
         cfa_tool.fit(MODEL, with_cell(column, cell), **options)
     # the item columns' words (data.non_answers), the row by its index label as a data frame names it
-    assert str(refused.value).startswith(f"<data frame>: column '{column}', index label 7: holds a {kind} (")
+    assert str(refused.value).startswith(f"<data frame>: column '{column}', row labelled 7: holds a {kind} (")
     assert f"unpack the {kind} into its own columns or rows first" in str(refused.value)
 
 
@@ -48,7 +48,7 @@ def test_check_and_scores_refuse_it_too():
     frame = with_cell("district", ["north"])
     for run in (lambda: cfa_tool.check(MODEL, frame, group="district"),
                 lambda: cfa_tool.scores(MODEL, frame, group="district")):
-        with pytest.raises(DataError, match=r"column 'district', index label 7: holds a list \(\['north'\]\)"):
+        with pytest.raises(DataError, match=r"column 'district', row labelled 7: holds a list \(\['north'\]\)"):
             run()
 
 

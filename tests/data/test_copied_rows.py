@@ -114,4 +114,4 @@ def test_answers_alike_by_chance_beside_a_district_column_are_not_named(riders):
     appended = pd.concat([riders, riders], ignore_index=True)  # the id column repeats: still tells riders apart
     first = cfa_tool.fit(MODEL, appended).problems[0]
     assert first.kind is ProblemKind.COPIED_ROWS
-    assert "index label 300 repeats index label 0;" in first.explanation  # a frame's rows, by their labels
+    assert "row labelled 300 repeats row labelled 0;" in first.explanation  # a frame's rows, by their labels

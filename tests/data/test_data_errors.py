@@ -46,7 +46,7 @@ def test_missing_file(tmp_path):
 def test_text_in_an_indicator_column():
     data = _frame().astype(object)
     data.loc[7, "b"] = "see note"  # ('n/a?' says no answer: read as missing, from a data frame as from a file)
-    with pytest.raises(DataError, match=r"column 'b' holds text \('see note' in index label 7\) among numbers; correct the cell"):
+    with pytest.raises(DataError, match=r"column 'b' holds text \('see note' in row labelled 7\) among numbers; correct the cell"):
         cfa_tool.fit(MODEL, data)
 
 
@@ -65,7 +65,7 @@ def test_fewer_rows_than_variables():
 def test_infinite_value():
     data = _frame()
     data.loc[4, "a"] = np.inf
-    with pytest.raises(DataError, match="column 'a' has an infinite value in index label 4"):
+    with pytest.raises(DataError, match="column 'a' has an infinite value in row labelled 4"):
         cfa_tool.fit(MODEL, data)
 
 

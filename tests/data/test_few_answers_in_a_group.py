@@ -76,7 +76,7 @@ def test_no_more_answers_in_a_group_than_variables_are_refused_naming_the_item_a
     south = frame.index[frame["district"] == "south"]
     rows = ", ".join(str(i) for i in south[:min(k, 5)])  # a data frame's rows are named by their index labels
     assert f"(group south of 'district'): 'clean' has only {k} answer" in text
-    assert f"in this group ({'index label' if k == 1 else 'index labels'} {rows}" in text
+    assert f"in this group ({'row labelled' if k == 1 else 'rows labelled'} {rows}" in text
     # the model's 12 items: at least 13 answers (one more than the variables analysed, data.moments.fewest_answers)
     assert "full-information ML needs at least 13 answers of an item in this group" in text
     path = tmp_path / "south.csv"
@@ -132,7 +132,7 @@ def test_three_answers_in_a_group_of_a_four_item_model_name_the_item_and_the_gro
 def test_no_more_answers_than_variables_in_one_sample_are_refused_too():
     frame = pd.read_csv(DATA)
     frame.loc[frame.index[2:], "clean"] = np.nan
-    with pytest.raises(DataError, match=r"'clean' has only 2 answers \(index labels 0, 1\); full-information ML needs at least 13"):
+    with pytest.raises(DataError, match=r"'clean' has only 2 answers \(rows labelled 0, 1\); full-information ML needs at least 13"):
         cfa_tool.fit(MODEL, frame)
     frame = pd.read_csv(DATA)
     frame.loc[frame.index[12:], "clean"] = np.nan

@@ -35,11 +35,11 @@ def test_rows_of_a_frame_are_named_by_their_index_labels(indexed, rider_model):
     assert indexed.loc[105, ITEMS].isna().all() and indexed.loc[110, "clean"] == 999.0  # pandas' own labels
     result = cfa_tool.fit(rider_model, indexed)
     note = next(w for w in result.warnings if "answered none of the model variables" in w)
-    assert note.endswith("left out (index label 105)") and "row 106" not in note
+    assert note.endswith("left out (row labelled 105)") and "row 106" not in note
     code = next(p for p in result.problems if "999" in p.explanation)
-    assert "in 1 row: index label 110)" in code.explanation and "row 111" not in code.explanation
+    assert "in 1 row: row labelled 110)" in code.explanation and "row 111" not in code.explanation
     checked = cfa_tool.check(rider_model, indexed)
-    assert checked.empty_rows == (105,) and "no answer to any model variable (index label 105)." in checked.summary()
+    assert checked.empty_rows == (105,) and "no answer to any model variable (row labelled 105)." in checked.summary()
     assert result.data.row_naming is RowNaming.INDEX_LABEL
     # the case table: headed 'Index label', each row one of the frame's labels (the file's rows for a file)
     cases = result.groups[0].influential_cases
@@ -51,7 +51,7 @@ def test_rows_of_a_frame_are_named_by_their_index_labels(indexed, rider_model):
 def test_a_bad_cell_of_a_frame_is_named_by_its_label_and_of_its_file_by_its_line(indexed, rider_model, tmp_path):
     frame = indexed.astype({"greeting": object})
     frame.loc[107, "greeting"] = "x"
-    with pytest.raises(DataError, match=r"\('x' in index label 107\)"):
+    with pytest.raises(DataError, match=r"\('x' in row labelled 107\)"):
         cfa_tool.fit(rider_model, frame)
     path = tmp_path / "riders.csv"
     frame.to_csv(path, index=False)  # written by pandas: the header on line 1, label L on line L - 100 + 2
@@ -74,7 +74,7 @@ def test_the_scores_table_and_the_messages_name_the_same_rows(indexed, rider_mod
     scored = cfa_tool.scores(rider_model, indexed)
     assert scored.table.index.equals(indexed.index)  # the table keeps the labels
     said = scored.warnings + tuple(scored.fit.warnings) + tuple(scored.notes)
-    assert any("index label 105" in w for w in said) and not any("row 106" in w for w in said)
+    assert any("row labelled 105" in w for w in said) and not any("row 106" in w for w in said)
     assert scored.table.loc[105].filter(like="_regression").isna().all()  # the row named is the one without scores
 
 

@@ -174,8 +174,8 @@ def test_an_answer_outside_a_declared_scale_is_refused_in_every_item_it_covers(a
     data = answers.copy()
     data.loc[140, "c1"], data.loc[5, "c3"] = -1, 4
     assert refusal(MODEL + "reversed c2 on 0 to 3\n", data) == (
-        "<data frame> holds answers outside the scale 0 to 3 declared here: 'c1' -1 (index label 140); 'c3' 4 "
-        "(index label 5); if they are typing errors or codes for no answer, give missing_codes=[-1, 4] (or correct them in a copy "
+        "<data frame> holds answers outside the scale 0 to 3 declared here: 'c1' -1 (row labelled 140); 'c3' 4 "
+        "(row labelled 5); if they are typing errors or codes for no answer, give missing_codes=[-1, 4] (or correct them in a copy "
         "of the file)")
     assert cfa_tool.check(MODEL + "reversed c2 on 0 to 3\n", data, missing_codes=[-1, 4]).complete == len(data) - 2
 

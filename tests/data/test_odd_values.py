@@ -183,9 +183,9 @@ def test_a_means_row_that_stops_an_ordinal_fit_is_named_as_one_first():
     with pytest.raises(DataError) as found:
         cfa_tool.fit("factor f: q1..q6\n", frame, ordinal="all")
     message = str(found.value)
-    assert message.startswith("Index label 200 of <data frame> holds the means of the other rows' answers")
+    assert message.startswith("Row labelled 200 of <data frame> holds the means of the other rows' answers")
     assert "leave it out with a row filter, keep=..." in message  # a Python caller reads the Python keyword
-    assert message.index("What to try first") < message.index("has the answer") < message.index("in index label 200")
+    assert message.index("What to try first") < message.index("has the answer") < message.index("in row labelled 200")
 
 
 @pytest.mark.parametrize("value", [7, 10, 12, 20])

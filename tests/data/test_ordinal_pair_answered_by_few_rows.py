@@ -48,7 +48,7 @@ def test_the_pair_its_group_and_its_rows_are_named(tmp_path, answers, said):
         cfa_tool.fit(MODEL, frame, group="district", ordinal="all")
     text = str(refused.value)
     assert "(group south of 'district')" in text and said in text
-    assert (f"only 2 (index labels {both[0]}, {both[1]}) of the 230 rows analysed answer both 'on_time' and "
+    assert (f"only 2 (rows labelled {both[0]}, {both[1]}) of the 230 rows analysed answer both 'on_time' and "
             f"'easy_transfer'") in text
     assert "listwise" not in text and "nearly empty" not in text and "same answers" not in text
     assert "take 'on_time' or 'easy_transfer' out of the model, leave this group out with a row filter" in text

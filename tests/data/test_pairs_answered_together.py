@@ -58,7 +58,7 @@ def test_an_ordinal_fit_names_the_pair_and_its_rows_first():
     assert first.kind is ProblemKind.FEW_ANSWERED_TOGETHER and not first.kind.inadmissible
     rows = ", ".join(str(i) for i in both)  # a data frame's rows are named by their index labels
     assert first.explanation.startswith(f"Few of the rows answer both items of the pair 'clean' and 'temperature' "
-                                        f"(3 of 471 rows: index labels {rows}): its correlation rests on those rows")
+                                        f"(3 of 471 rows: rows labelled {rows}): its correlation rests on those rows")
     assert "a rule of thumb of this project" in first.explanation
     assert sum(p.kind is ProblemKind.FEW_ANSWERED_TOGETHER for p in result.problems) == 1
 
@@ -74,7 +74,7 @@ def test_the_line_is_a_tenth_of_the_rows():
 def test_the_failure_of_full_information_ml_names_the_pair(tmp_path):
     frame = split(3)
     rows = ", ".join(str(i) for i in frame.index[frame["clean"].notna() & frame["temperature"].notna()])
-    with pytest.raises(EstimationError, match=rf"only 3 \(index labels {rows}\) of its 471 rows answer both "
+    with pytest.raises(EstimationError, match=rf"only 3 \(rows labelled {rows}\) of its 471 rows answer both "
                                               r"'clean' and 'temperature'"):
         cfa_tool.fit(MODEL, frame)
     path = tmp_path / "split.csv"

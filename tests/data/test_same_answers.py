@@ -58,7 +58,7 @@ def test_fit_and_scores_name_the_rows_first_by_their_ids_and_keep_them():
     assert first.kind is ProblemKind.SAME_ANSWER_ROWS and not first.kind.inadmissible and result.admissible
     assert first.value == 2.0
     assert "2 rows gave one answer each (1, 5)" in first.explanation
-    assert "index labels 6 (P007), 40 (P041)" in first.explanation and "P100" not in first.explanation
+    assert "rows labelled 6 (P007), 40 (P041)" in first.explanation and "P100" not in first.explanation
     assert result.n_obs == 300  # kept in the analysis
     scored = cfa_tool.scores(MODEL + REVERSED, frame, id_column="respondent")
     assert scored.fit.problems[0] == first
@@ -142,11 +142,11 @@ def test_scores_of_other_data_name_that_files_rows_and_say_which_are_the_fits(sa
         scored = score_with_fit(result, wave, id_column="respondent")
     same = [p for p in scored.fit.problems if p.kind is ProblemKind.SAME_ANSWER_ROWS]
     own = same[0]
-    assert own.value == 1.0 and "index label 2 (P003)" in own.explanation and "scored like every row" in own.explanation
+    assert own.value == 1.0 and "row labelled 2 (P003)" in own.explanation and "scored like every row" in own.explanation
     assert not str(own.explanation).startswith(ABOUT_THE_FIT) and "fit again" not in own.advice
     # the earlier fit's rows are still said, as the fit's
     assert [str(p.explanation).startswith(ABOUT_THE_FIT) for p in same[1:]] == [True]
-    assert "index labels 6 (P007), 40 (P041)" in same[1].explanation
+    assert "rows labelled 6 (P007), 40 (P041)" in same[1].explanation
     assert all(str(p.explanation).startswith(ABOUT_THE_FIT) for p in scored.fit.problems[1:])
     assert not np.isnan(scored.table.iloc[2, 1])  # scored like every row
     # the scores file marks the row (a plain column, 1 or 0), the scored file's own rows only

@@ -59,7 +59,7 @@ def test_a_means_row_kept_by_a_filter_is_a_caution_first(rider_demo, rider_model
     assert kept.n_obs == int((rider_demo["district"] != "south").sum()) + 1  # the means row is analysed ...
     first = kept.problems[0]
     # ... and said first: among the kept rows its label 'Average' names it (review s15: a summary row by its label)
-    assert first.explanation.startswith(f"Index label {len(rider_demo)} of <data frame> ('Average') holds the means "
+    assert first.explanation.startswith(f"Row labelled {len(rider_demo)} of <data frame> ('Average') holds the means "
                                         f"of the rows above it in {len(items)} item columns")
     # a filter that leaves the row out says nothing of it
     plain = cfa_tool.fit(rider_model, means, keep="district = north")

@@ -34,7 +34,7 @@ def test_the_fit_of_a_model_without_reversed_statement_names_the_same_answer_row
     [said] = [str(p.explanation) for p in result.problems if p.kind is ProblemKind.SAME_ANSWER_ROWS]
     assert "12 rows gave the answer 1 to every item they answered" in said
     assert "the 2 items loading against their factors (reversed in the keyed sums) included" in said
-    assert "(index labels 0, 1, 2, 3, 4, 5, 6, 7, 8, 9 and 2 more)" in said  # a data frame names rows so
+    assert "(rows labelled 0, 1, 2, 3, 4, 5, 6, 7, 8, 9 and 2 more)" in said  # a data frame names rows so
 
 
 def test_a_model_whose_loadings_all_point_one_way_says_nothing_of_it(rider_demo, rider_model):

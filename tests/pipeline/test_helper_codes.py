@@ -73,7 +73,7 @@ def test_a_helper_of_dates_or_true_false_is_refused_as_a_helper(coded, tmp_path,
     dated.to_csv(text, index=False)
     code, _, err = run_cli(["fit", model, "--data", text, "--missing-helpers", "district"], capsys)
     assert code == 2 and "holds text ('south' in row 2, and" in err  # the file's row 2: its first row of data
-    with pytest.raises(OptionError, match=r"holds text \('south' in index label 0, and"):
+    with pytest.raises(OptionError, match=r"holds text \('south' in row labelled 0, and"):
         cfa_tool.fit(MODEL, dated, missing_helpers="district")
 
 

@@ -65,7 +65,7 @@ def test_a_second_submission_with_the_same_answers_is_named_first_as_such():
         assert twice and result.problems[0] is twice[0]
         words = " ".join(str(twice[0].explanation).split())
         # a data frame's rows by their index labels: R0005 at 5, the appended row at 308 (300 + 8 rows before it)
-        assert words.startswith("Submitted twice? In index labels 5, 308 ('R0005'), the later row gives the same id (")
+        assert words.startswith("Submitted twice? In rows labelled 5, 308 ('R0005'), the later row gives the same id (")
         assert "and the same answers to every item as an earlier row." in words
         assert "submitted not in" in str(twice[0].advice)
         # the 8 resubmissions with other answers stay in the caution on repeated ids, which no longer names R0005
@@ -97,9 +97,38 @@ def test_without_an_id_a_second_submission_is_a_copy_but_for_its_time_stamp():
     words = " ".join(str(copies.explanation).split())
     # a data frame's rows by index label: R0005 at 5, the appended row at 300 (300 rows before it)
     assert words.startswith("1 of the 301 rows analysed is identical in every column but the time stamp 'submitted' "
-                            "to an earlier row: index label 300 repeats index label 5 (submitted twice?)")
+                            "to an earlier row: row labelled 300 repeats row labelled 5 (submitted twice?)")
     assert "keep=['submitted not in \"2026-03-02 09:05:00\"']" in str(copies.advice)
     # the same time on both rows: a copy as before, no word of a second submission
     data.loc[300, "submitted"] = data.loc[5, "submitted"]
     [copies] = [p for p in cfa_tool.check(MODEL, data).problems if p.kind is ProblemKind.COPIED_ROWS]
     assert "submitted twice" not in str(copies.explanation)
+
+
+def test_without_an_id_or_any_column_telling_respondents_apart_a_second_submission_is_named_by_its_rows(tmp_path):
+    # fixleft s28: a file of a time stamp, a team and the items alone (no id, no e-mail) named no second submission,
+    # since answers alike by chance needed a column that tells respondents apart; rows that repeat an earlier row in
+    # every column but the stamp are named when they are few (data.copied_rows.few_repeats)
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    rng = np.random.default_rng(28)
+    n = 300
+    f = rng.normal(size=n)
+    items = {f"w{k}": np.clip(np.round(4 + 1.2 * f + rng.normal(scale=0.9, size=n)), 1, 7) for k in range(1, 7)}
+    data = pd.DataFrame({"Timestamp": [f"2026-03-01 10:{i // 10:02d}:{i % 10:02d}" for i in range(n)],
+                         "Team": [f"T{i % 20:02d}" for i in range(n)], **items})
+    data = data.drop_duplicates(list(items) + ["Team"], ignore_index=True)  # no respondents alike by chance
+    again = data.iloc[[120]].copy()
+    again["Timestamp"] = "2026-03-04 09:05:00"
+    path = tmp_path / "export.csv"
+    pd.concat([data, again], ignore_index=True).to_csv(path, index=False)
+    six = "factor warm: w1, w2, w3, w4, w5, w6\n"
+    [copies] = [p for p in cfa_tool.check(six, path).problems if p.kind is ProblemKind.COPIED_ROWS]
+    words = " ".join(str(copies.explanation).split())
+    last = len(data) + 2  # the appended row's number in the file (the header is row 1)
+    assert f"row {last} repeats row 122 (submitted twice?)" in words, words
+    # answers alike by chance are common on 4 items of 2 answers: many rows repeat others, none named as copies
+    common = pd.DataFrame({"Timestamp": data["Timestamp"],
+                           **{f"w{k}": (data[f"w{k}"] > 4).astype(int) for k in range(1, 5)}})
+    common.to_csv(path, index=False)
+    assert not [p for p in cfa_tool.check(MODEL, path).problems if p.kind is ProblemKind.COPIED_ROWS]

@@ -7,6 +7,7 @@ data differ.  The reports are made here by hand (two small reports of the same s
 from __future__ import annotations
 
 import io
+from dataclasses import replace
 
 import docx
 
@@ -43,8 +44,10 @@ def test_a_table_named_in_a_problem_is_that_results_table():
     assert "Result 2 (comparison of models): A model is on the boundary; see the note under Table 3." in texts
     assert "see the note under Table 3." in texts[texts.index("Result 2. Model comparison") + 2]  # in its part too
     html = combined_html(document)
-    assert 'see the note under the table &quot;Fit of the rival models&quot; of Result 2.' in html
-    assert 'the table "Fit of the rival models" of Result 2' in combined_markdown(document)
+    # HTML and Markdown number the tables through as Word does (one numbering: combined.table_numbers)
+    assert "A model is on the boundary; see the note under Table 3." in html and "Table 3. Fit of the rival models" in html
+    markdown = combined_markdown(document)
+    assert "see the note under Table 3." in markdown and "**Table 3. Fit of the rival models**" in markdown
     # the cautions both give: once, at the end
     assert texts.count(CAUTION) == 1 and texts.index(CAUTION) > texts.index("Result 2. Model comparison")
     assert html.count(CAUTION) == 1
@@ -70,3 +73,43 @@ def test_the_same_name_another_file_and_other_rows():
     assert lines[1:] == ["Result 1 (confirmatory factor analysis): d.csv, every row of the file as it stands.",
                          "Result 2 (confirmatory factor analysis): w2/d.csv, every row of the file as it stands.",
                          "Result 3 (confirmatory factor analysis): d.csv, code 9 read as missing."]
+
+
+def test_html_and_markdown_number_tables_and_figures_through_as_word_does():
+    from cfa_tool.reporting.document import Figure, drawn
+
+    svg = '<svg xmlns="http://www.w3.org/2000/svg" width="10" height="10"></svg>'
+    first = replace(_report(ResultKind.FIT, "One factor", [_table("fit", "Model fit"), _table("est", "Estimates")]),
+                    figures=(Figure("Path diagram", drawn(svg)),))
+    second = replace(_report(ResultKind.COMPARE, "Model comparison", [_table("model_fit", "Fit of each model")]),
+                     figures=(Figure("Path diagram of the rival", drawn(svg)),))
+    document = combined([(first, "a.json"), (second, "b.json")])
+    texts = [p.text for p in docx.Document(io.BytesIO(combined_docx(document))).paragraphs]
+    assert "Table 3" in texts  # Word's caption of the second result's first table (python-docx reads it back)
+    for text in (combined_html(document), combined_markdown(document)):
+        # never again at 1 in a later result: the second result's table is Table 3, its figure Figure 2
+        assert "Table 1. Model fit" in text and "Table 2. Estimates" in text and "Table 3. Fit of each model" in text
+        assert "Figure 1. Path diagram" in text and "Figure 2. Path diagram of the rival" in text
+
+
+def test_the_read_first_notice_advises_options_as_running_the_results_command_again():
+    from cfa_tool.note_parts import Command
+
+    advice = Note(("the search stopped at its limit. What to try: raise the limit", Command(" (--max-iterations)"),
+                   "; or compare a model without it", Command(" (cfa-tool compare)", runs="compare",
+                                                             inside=" (among the models compared here)"), "."))
+    notice = ProblemNotice("Check before interpreting these solutions", (advice,), False)
+    fit = _report(ResultKind.FIT, "One factor", [_table("fit", "Model fit")], notice)
+    rival = _report(ResultKind.COMPARE, "Model comparison", [_table("model_fit", "Fit of each model")], notice)
+    document = combined([(fit, "fit.json"), (rival, "compare.json")])
+    for text in (combined_html(document), combined_markdown(document)):
+        text = text.replace("&quot;", '"')
+        # an option of the result's own command, read in a report of saved results: said as running it again
+        assert "Result 1 (confirmatory factor analysis): The search stopped at its limit. What to try: raise the " \
+               "limit (when running fit again: cfa-tool fit ... --max-iterations)" in text
+        assert "(--max-iterations)" not in text  # nor in the result's own part
+        # the result's own command is not advised as another analysis: its own report's words
+        assert "Result 2 (comparison of models): The search stopped at its limit. What to try: raise the limit " \
+               "(when running compare again: cfa-tool compare ... --max-iterations); or compare a model without it " \
+               "(among the models compared here)." in text
+        assert "without it (cfa-tool compare) (among" not in text

@@ -14,7 +14,7 @@ from cfa_tool.reporting.paragraph import comparison_paragraph, invariance_paragr
 from cfa_tool.workflows.invariance import LEVELS
 from tests.conftest import THREE_FACTORS, holzinger_swineford
 
-MEANS_ROW = ("index label 301, whose values equal the means of the other rows' answers in every item column it answers "
+MEANS_ROW = ("row labelled 301, whose values equal the means of the other rows' answers in every item column it answers "
              "(9): perhaps a means row; this was analysed as answers, as the file holds it")
 
 

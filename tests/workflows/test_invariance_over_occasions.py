@@ -392,7 +392,7 @@ def test_repeated_ids_of_wide_data_are_named_by_the_files_rows_without_advice_th
     result = invariance_over_occasions(ONE_OCCASION, path, occasion_endings=("_t1", "_t2"), id_column="person_id")
     said = " ".join(str(w) for w in result.warnings) + " ".join(str(p.advice) for p in result.data_problems)
     # the file's rows (header row 1): frame rows 0 and 60 are file rows 2 and 62 (hostile trial s27, case 04)
-    assert "rows 2, 62" in said and "index label" not in said
+    assert "rows 2, 62" in said and "labelled" not in said
     assert "--cluster" not in said  # refused over occasions (commands.invariance._NOT_OVER_OCCASIONS)
 
 
@@ -413,3 +413,68 @@ def test_a_half_of_complete_rows_is_refused_with_advice_the_route_takes(tmp_path
                                   keep=[RandomHalf("hl.csv", "A")])
     # the route refuses listwise deletion (hostile trial s27, case 07): no advice to give it
     assert "analyse the half as it was drawn" not in str(found.value)
+
+
+def test_long_data_get_the_cautions_on_each_occasions_answers_too():
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    # an item nearly constant at wave 1 alone: the long file's column varies (wave 2's answers), so only the answers
+    # set side by side show it; named by item and occasion, never by the side-by-side column vig4_1 no file holds
+    long = people(150, 29)
+    at_one = long.index[long["wave"] == 1]
+    long.loc[at_one[3:], "vig4"] = 3.0  # 147 of 150 people give 3 at wave 1 (98% or more: the nearly-constant rule)
+    result = invariance_over_occasions(ONE_OCCASION, long, occasion_column="wave", id_column="person_id")
+    constant = [p for p in result.data_problems if p.kind is ProblemKind.NEARLY_CONSTANT]
+    assert constant, [p.kind for p in result.data_problems]
+    said = str(constant[0].explanation)
+    assert "vig4' at occasion 1" in said and "vig4_1" not in said
+    # the answers' tails of the occasions side by side are judged too (the wide route's caution), rows named nowhere
+    assert all(p.kind not in (ProblemKind.COPIED_ROWS, ProblemKind.REPEATED_IDS) for p in result.data_problems)
+
+
+def test_repeated_ids_of_wide_data_get_advice_that_fits_a_file_already_side_by_side(tmp_path):
+    wide = widened(people(120, 30))
+    wide.loc[:4, "person_id"] = wide.loc[60:64, "person_id"].to_numpy()  # 5 ids on two rows each
+    path = tmp_path / "wide.csv"
+    wide.to_csv(path, index=False)
+    for id_column in ("person_id", None):  # given, or taken for the id by its name
+        result = invariance_over_occasions(ONE_OCCASION, path, occasion_endings=("_t1", "_t2"), id_column=id_column)
+        advice = " ".join(str(p.advice) for p in result.data_problems if p.kind.name == "REPEATED_IDS")
+        # the file holds each occasion in its own columns already: no advice to set the times side by side
+        assert advice and "side by side" not in advice, advice
+        assert "one row" in advice and "_t1, _t2" in advice
+
+
+def test_occasion_labels_with_commas_are_quoted_as_group_labels_are():
+    from cfa_tool.reporting.occasions_report import occasions_report
+
+    long = people(150, 24)
+    named = long.assign(wave=long["wave"].map({1: "time 1", 2: "time, 2"}))
+    result = invariance_over_occasions(ONE_OCCASION, named, occasion_column="wave", id_column="person_id",
+                                       occasion_order=["time 1", "time, 2"])
+    report = occasions_report(result)
+    # the one rule of labels in a sentence (language.names.written_group): every label quoted when one needs it, so
+    # that 'time 1 and time, 2' does not read as three occasions (hostile trial s27)
+    assert 'occasions "time 1" and "time, 2" of wave' in report.title
+    assert 'occasions "time 1" and "time, 2"' in report.paragraph and "time 1 and time, 2" not in report.paragraph
+    assert any('("time 1": 150, "time, 2": 150)' in n for n in result.notes)  # the rows of each occasion
+
+
+def test_errors_of_setting_long_rows_side_by_side_name_the_options_that_changed_them(tmp_path):
+    long = people(80, 31)
+    long.loc[long["wave"] == 2, "vig2"] = 9  # every answer of vig2 at wave 2 a code of no answer
+    path = tmp_path / "waves.csv"
+    long.to_csv(path, index=False)
+    # the code read as no answer leaves vig2 without an answer at wave 2: the message names what the run gave, which
+    # the user may not connect with the data (hostile trial s27)
+    with pytest.raises(DataError, match=r"item 'vig2' has no answer at occasion 2 of 'wave'.*missing_codes=\[9\]"):
+        invariance_over_occasions(ONE_OCCASION, path, occasion_column="wave", id_column="person_id",
+                                  missing_codes=(9,))
+    with pytest.raises(DataError, match=r"holds 1 occasion; .*keep=\['wave = 1'\]"):
+        invariance_over_occasions(ONE_OCCASION, path, occasion_column="wave", id_column="person_id",
+                                  keep=["wave = 1"])
+    named = long.assign(wave=long["wave"].map({1: "time 1", 2: "time, 2"}))
+    with pytest.raises(OptionError, match=r'once \("time 1", "time, 2"\); not among them: "time 2"; left out: '
+                                          r'"time, 2"'):  # two labels, not three
+        invariance_over_occasions(ONE_OCCASION, named, occasion_column="wave", id_column="person_id",
+                                  occasion_order=["time 1", "time 2"])

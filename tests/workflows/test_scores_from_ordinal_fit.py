@@ -108,7 +108,7 @@ def test_an_answer_the_fit_never_saw_is_an_error_naming_item_row_and_value(tmp_p
     model_file.write_text(ONE)
     new = _draw(20, 6)
     new.loc[4, "q3"] = 9
-    with pytest.raises(DataError, match=r"ordinal item 'q3' has the answer 9 in index label 4, which is not one of the "
+    with pytest.raises(DataError, match=r"ordinal item 'q3' has the answer 9 in row labelled 4, which is not one of the "
                                         r"categories the earlier fit estimated thresholds for \(1, 2, 3, 4, 5\)"):
         score_with_saved_fit(model_file, _saved(fitted, tmp_path), new)
 

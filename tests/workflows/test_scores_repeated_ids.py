@@ -28,7 +28,7 @@ def test_a_repeated_id_is_a_caution_first_when_scoring(tmp_path, capsys):
     first = result.fit.problems[0]
     assert first.kind is ProblemKind.REPEATED_IDS and not first.kind.inadmissible
     # s20: the id and its rows named (index labels 4 and 5 of the data frame, the pair planted above)
-    assert f"The id column 'rider_id' gives one id to 2 rows: '{rows.loc[4, 'rider_id']}' in index labels 4, 5" \
+    assert f"The id column 'rider_id' gives one id to 2 rows: '{rows.loc[4, 'rider_id']}' in rows labelled 4, 5" \
         in first.explanation
     assert not any("repeat" in note for note in result.notes)  # said once, first
     table = result.table
