@@ -22,6 +22,7 @@ Data: invented (pupils of a fictional school district), simulated with fixed see
 
 from __future__ import annotations
 
+import functools
 import re
 
 import numpy as np
@@ -58,6 +59,28 @@ def _schools(seed: int, schools: int = 24, per_grade: int = 8, gaps: float = 0.0
 LABEL = re.compile(r"(\w+)\(([^)]*)\)(?: \[(.+)\])?$")
 
 
+@functools.lru_cache(maxsize=None)
+def _places(labels: tuple[str, ...], group: str, items: tuple[str, ...],
+            common: tuple[str, ...]) -> tuple[tuple[int, str, int], ...]:
+    """Each parameter of ``group`` read from its label once: (its position in theta, its kind -- 'loading',
+    'factor variance', 'variance', 'intercept' or 'mean' -- and its item's position, -1 for the factor's)."""
+    out = []
+    for at, label in enumerate(labels):
+        kind, inside, where = LABEL.match(label).groups()
+        if where is not None and where != group and kind not in common:
+            continue
+        names = [s.strip() for s in inside.split(",")]
+        if kind == "loading":
+            out.append((at, kind, items.index(names[1])))
+        elif kind == "variance" and names[0] == "f":
+            out.append((at, "factor variance", -1))
+        elif kind in ("variance", "intercept"):
+            out.append((at, kind, items.index(names[0])))
+        elif kind == "mean":
+            out.append((at, kind, -1))
+    return tuple(out)
+
+
 def _group_moments(labels: list[str], theta: np.ndarray, group: str, items: tuple[str, ...],
                    common: tuple[str, ...] = ()):
     """(mu, Sigma) of a one-factor model in ``group`` from the parameters by their labels (marker the first item,
@@ -66,35 +89,35 @@ def _group_moments(labels: list[str], theta: np.ndarray, group: str, items: tupl
     p = len(items)
     lam, psi, nu = np.ones(p), np.zeros(p), np.zeros(p)
     phi = kappa = 0.0
-    for label, value in zip(labels, theta):
-        kind, inside, where = LABEL.match(label).groups()
-        if where is not None and where != group and kind not in common:
-            continue
-        names = [s.strip() for s in inside.split(",")]
+    for at, kind, j in _places(tuple(labels), group, items, common):
+        value = theta[at]
         if kind == "loading":
-            lam[items.index(names[1])] = value
-        elif kind == "variance" and names[0] == "f":
+            lam[j] = value
+        elif kind == "factor variance":
             phi = value
         elif kind == "variance":
-            psi[items.index(names[0])] = value
+            psi[j] = value
         elif kind == "intercept":
-            nu[items.index(names[0])] = value
-        elif kind == "mean":
+            nu[j] = value
+        else:
             kappa = value
     return nu + lam * kappa, phi * np.outer(lam, lam) + np.diag(psi)
 
 
 def _row_scores(rows: np.ndarray, mu: np.ndarray, sigma: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Each row's score of its answered items' normal log-density in mu (n x p) and Sigma (n x p x p, the
-    derivative by each entry taken as free, symmetric entries counted once each)."""
+    derivative by each entry taken as free, symmetric entries counted once each); the rows of one pattern of
+    answers share their Sigma_oo^-1 (numpy.unique), the rest row by row as the formula reads."""
     n, p = rows.shape
     s_mu, s_sigma = np.zeros((n, p)), np.zeros((n, p, p))
-    for i, row in enumerate(rows):
-        o = ~np.isnan(row)
+    answered = ~np.isnan(rows)
+    patterns, index = np.unique(answered, axis=0, return_inverse=True)
+    for k, o in enumerate(patterns):
+        at = np.flatnonzero(index.ravel() == k)
         inv = np.linalg.inv(sigma[np.ix_(o, o)])
-        u = inv @ (row[o] - mu[o])
-        s_mu[i, o] = u
-        s_sigma[i][np.ix_(o, o)] = 0.5 * (np.outer(u, u) - inv)
+        u = (rows[np.ix_(at, o)] - mu[o]) @ inv  # inv symmetric: each row's S^-1 r
+        s_mu[np.ix_(at, o)] = u
+        s_sigma[np.ix_(at, o, o)] = 0.5 * (u[:, :, None] * u[:, None, :] - inv)
     return s_mu, s_sigma
 
 
