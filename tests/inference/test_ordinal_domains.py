@@ -149,7 +149,7 @@ def test_standard_errors_track_the_spread_of_estimates_under_cluster_sampling_wi
         p_values.append(shared.robust.p_value_scaled)
         if r % APART == 0:
             apart_fit = apart()
-            np.testing.assert_array_equal(apart_fit.theta, shared.theta)
+            np.testing.assert_allclose(apart_fit.theta, shared.theta, rtol=1e-8)  # the clusters change no estimate
             apart_se.append(np.sqrt(np.diag(apart_fit.parameter_covariance)[at]))
         if r == 0:  # the route is the fit's
             fitted = cfa_tool.fit(model, data, **options)
