@@ -85,17 +85,26 @@ def test_the_screen_judges_each_group_of_a_model_of_two(hs_data):
 
 def test_the_bootstrap_counts_the_same_inadmissible_resamples(hs_data, monkeypatch):
     # a model whose estimates lie at a Heywood case: most of its resamples are not admissible; they are counted and
-    # named as when every resample is judged one at a time (the screen made to flag every row)
+    # named as when every resample is judged one at a time: the converged resamples the bootstrap judged (recorded
+    # as it judges them) judged again with the screen made to flag every row give each resample the same words, and
+    # the bootstrap's count is that of the resamples with words
     from cfa_tool.assessment import admissibility
+    from cfa_tool.workflows import bootstrap as bootstrap_workflow
 
     text = MODELS["residual covariances (a Heywood case at the estimates)"]
+    judged = []
 
-    def run():
-        return cfa_tool.bootstrap(text, hs_data, replications=200, seed=3, bca=False, bollen_stine=False, workers=1)
+    def recorded(table, model, thetas, *args):
+        found = replicated_problems(table, model, thetas, *args)
+        judged.append((table, model, np.array(thetas), args, found))
+        return found
 
-    screened = run()
+    monkeypatch.setattr(bootstrap_workflow, "replicated_problems", recorded)
+    screened = cfa_tool.bootstrap(text, hs_data, replications=200, seed=3, bca=False, bollen_stine=False, workers=1)
+    assert judged and sum(len(thetas) for _, _, thetas, _, _ in judged) == screened.converged
     monkeypatch.setattr(admissibility, "could_have_problems", lambda table, model, thetas, *a: np.ones(len(thetas), bool))
-    every_row = run()
+    for table, model, thetas, args, found in judged:
+        assert replicated_problems(table, model, thetas, *args) == found
     assert 0 < screened.inadmissible < screened.converged
-    assert (screened.inadmissible, screened.inadmissible_named) == (every_row.inadmissible, every_row.inadmissible_named)
+    assert screened.inadmissible == sum(1 for *_, found in judged for words in found if words)
     assert "negative residual variance (the residual variance of x9)" in screened.inadmissible_named

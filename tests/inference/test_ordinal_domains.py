@@ -13,8 +13,11 @@ samples do not.  Data: invented (pupils of a fictional school district), simulat
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import numpy as np
 import pandas as pd
+import pytest
 from scipy import stats
 
 import cfa_tool
@@ -80,13 +83,36 @@ def test_the_groups_statistics_are_joined_over_their_shared_clusters_as_summed_b
     assert all(m.domains_gamma is None for m in ordinal_domains([m for _, m in groups]))
 
 
-REPLICATIONS = 200  # about 14 s of computing: a fit of a tiny ordinal model (4 items, 640 rows) per replication
+REPLICATIONS = 200  # a fit of a tiny ordinal model (4 items, 640 rows) per replication
 #: the grades taken apart are fitted in every APART-th replication only (50 of 200): their check is of the mean of
 #: the standard errors, whose Monte Carlo error over 50 replications (their coefficient of variation, .16 in this
 #: design, over sqrt(50): 2.3%) is small beside that of the empirical SD over all 200 (5%), which it shares; the
 #: ratio moved from 1.54 (all 200) to 1.56 (every fourth) with these seeds, the bound is 1.4 (s22: 400 fits were
 #: 250, about 22 s of processor time 14)
 APART = 4
+
+
+def _route(spec, data, design, options):
+    """The ordinal fit of ``data`` as ``cfa_tool.fit`` makes it under the design (pipeline.inputs._fit_ordinal: the
+    groups' moments joined over their shared clusters, the least-squares estimates, their robust covariance and the
+    adjusted test), without the fit's checks and descriptions of the data, which the replications do not need; and
+    the same with the grades taken as independent samples: each group's statistics with their own design-based
+    covariance alone (what a fit of the grades with each grade's schools its own computes; the least-squares
+    weights, and so the estimates, are the same, with the rows taken as independent)."""
+    from cfa_tool.pipeline.inputs import ordinal_groups
+    from cfa_tool.pipeline.ordinal import assess_ordinal_groups, estimate_ordinal_groups
+
+    groups, _ = ordinal_groups(spec, data, "simulated", "grade", None, set(ITEMS), True, design)
+    est = estimate_ordinal_groups(spec, groups, options)
+    assert est.converged
+    shared = assess_ordinal_groups(spec, groups, est, options, "grade", modification=False)
+    apart_groups = [(label, replace(m, domains_gamma=None)) for label, m in groups]
+
+    def apart():
+        again = estimate_ordinal_groups(spec, apart_groups, options, start=est.theta)
+        return assess_ordinal_groups(spec, apart_groups, again, options, "grade", modification=False)
+
+    return groups, shared, apart
 
 
 def test_standard_errors_track_the_spread_of_estimates_under_cluster_sampling_with_domains():
@@ -96,25 +122,44 @@ def test_standard_errors_track_the_spread_of_estimates_under_cluster_sampling_wi
     (SD / sqrt(2 (R - 1)), normal-theory approximation), so the mean standard error should lie within 15% of the SD;
     the grades taken as independent samples (each grade's schools its own) leave out that the school effect moves
     both grades together, which cancels in their latent mean difference: its standard error then comes out far too
-    large (1.54 times the SD over these 200 replications, 1.56 over every fourth, measured s22).  The scaled test's rejections at .05 lie within the central 99.9% of
-    Binomial(200, .05)."""
+    large (1.54 times the SD over these 200 replications, 1.56 over every fourth, measured s22).  The scaled test's
+    rejections at .05 lie within the central 99.9% of Binomial(200, .05).  The first replication is also fitted by
+    ``cfa_tool.fit``, the schools shared and each grade's its own: the route the replications take (:func:`_route`)
+    gives the same covariance of the estimates and the same scaled test."""
+    from cfa_tool.data.sample_design import DesignColumns
+    from cfa_tool.language import parse_model
+    from cfa_tool.pipeline.continuous import FitOptions
+    from cfa_tool.pipeline.inputs import ordinal_model
+
     model = "factor f: x1, x2, x3, x4\ninvariance scalar\n"
     wanted = ("loading(f, x2) [5]", "mean(f) [6]")  # held equal; the difference between the grades
     options = dict(group="grade", weights="w", cluster="school", strata="region", ordinal="all", diagnostics=False,
                    modification_indices=False)
+    spec, _ = ordinal_model(parse_model(model), "all")
+    design = DesignColumns(weights="w", cluster="school", strata="region")
+    lean = FitOptions(diagnostics=False, modification_indices=False)
     estimates, shared_se, apart_se, p_values = [], [], [], []
     for r in range(REPLICATIONS):
         data = _schools(3000 + r)
-        result = cfa_tool.fit(model, data, **options)
-        assert result.design.shared_clusters
-        at = [list(result.parameter_labels).index(label) for label in wanted]
-        estimates.append(np.asarray(result.theta)[at])
-        shared_se.append(np.sqrt(np.diag(result.parameter_covariance)[at]))
-        p_values.append(result.robust.p_value_scaled)
+        groups, shared, apart = _route(spec, data, design, lean)
+        assert all(m.domains_gamma is not None for _, m in groups)  # the schools are shared
+        at = [list(shared.parameter_labels).index(label) for label in wanted]
+        estimates.append(np.asarray(shared.theta)[at])
+        shared_se.append(np.sqrt(np.diag(shared.parameter_covariance)[at]))
+        p_values.append(shared.robust.p_value_scaled)
         if r % APART == 0:
-            apart = cfa_tool.fit(model, data.assign(school=data["grade"] + data["school"]), **options)
-            assert not apart.design.shared_clusters
-            apart_se.append(np.sqrt(np.diag(apart.parameter_covariance)[at]))
+            apart_fit = apart()
+            np.testing.assert_allclose(apart_fit.theta, shared.theta, rtol=1e-8)  # the clusters change no estimate
+            apart_se.append(np.sqrt(np.diag(apart_fit.parameter_covariance)[at]))
+        if r == 0:  # the route is the fit's
+            fitted = cfa_tool.fit(model, data, **options)
+            apart_fitted = cfa_tool.fit(model, data.assign(school=data["grade"] + data["school"]), **options)
+            assert fitted.design.shared_clusters and not apart_fitted.design.shared_clusters
+            for ours, theirs in ((shared, fitted), (apart_fit, apart_fitted)):
+                assert list(ours.parameter_labels) == list(theirs.parameter_labels)
+                np.testing.assert_allclose(ours.theta, theirs.theta, rtol=1e-12)
+                np.testing.assert_allclose(ours.parameter_covariance, theirs.parameter_covariance, rtol=1e-10)
+                assert ours.robust.p_value_scaled == pytest.approx(theirs.robust.p_value_scaled, rel=1e-10)
     spread = np.std(estimates, axis=0, ddof=1)
     ratio = np.mean(shared_se, axis=0) / spread
     assert np.all((ratio > 0.85) & (ratio < 1.15)), ratio
