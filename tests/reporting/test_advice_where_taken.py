@@ -130,3 +130,19 @@ def test_sparse_answers_advice_in_explore_is_a_fit_of_the_model():
     assert ("gaps (a fit of the model with --incomplete-rows listwise) would keep"
             in advice.said(View(True, running="explore")))
 
+
+def test_a_ladder_over_occasions_that_estimates_nothing_advises_what_it_takes():
+    from cfa_tool.errors import EstimationError
+    from cfa_tool.workflows.occasions import invariance_over_occasions
+
+    rng = np.random.default_rng(5)
+    n = 150
+    eta = rng.multivariate_normal([0.0, 0.3], [[1.0, 0.6], [0.6, 1.0]], size=n)
+    rows = [{"person": f"p{i}", "wave": w, **{f"v{j}": 3 + 0.8 * eta[i, w - 1] + 0.6 * rng.standard_normal()
+                                             for j in range(1, 5)}} for i in range(n) for w in (1, 2)]
+    with on_command_line(), pytest.raises(EstimationError) as error:
+        invariance_over_occasions("factor f: v1, v2, v3, v4\n", pd.DataFrame(rows), occasion_column="wave",
+                                  id_column="person", max_iterations=1)
+    said = str(error.value)
+    assert "'start" not in said and "the configural model over occasions did not converge" in said
+    assert f"raise the limit ({Option.MAX_ITERATIONS.flag})" in said
