@@ -146,3 +146,16 @@ def test_a_ladder_over_occasions_that_estimates_nothing_advises_what_it_takes():
     said = str(error.value)
     assert "'start" not in said and "the configural model over occasions did not converge" in said
     assert f"raise the limit ({Option.MAX_ITERATIONS.flag})" in said
+
+
+def test_explores_halves_are_drawn_by_the_schools_with_split_only():
+    from cfa_tool.assessment.admissibility import ProblemKind
+    from cfa_tool.workflows.explore import explore
+
+    def advice(**split):
+        with on_command_line():
+            found = explore(_schools(), items=["x1", "x2", "x3", "x4"], factors=1, replications=2, **split)
+        return next(str(p.advice) for p in found.data_problems if p.kind is ProblemKind.UNIT_ROWS_AS_INDEPENDENT)
+
+    assert "the schools for the clusters (--cluster school)" in advice(split=3)
+    assert "--cluster" not in advice()  # without --split, explore's --cluster applies to nothing
