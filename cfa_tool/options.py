@@ -25,10 +25,6 @@ MAX_OBSERVATIONS = 10**12
 MAX_ITERATIONS = 1_000_000
 #: the iteration limit of a model's estimation when none is given (fit options' and the command line's default)
 ITERATION_LIMIT = 500
-#: the commands that take the robust test (Option.ROBUST: the command line's commands.options.add_test_option, the
-#: Python functions' test=...): a report of another command advises it as an option of a fit
-#: (note_parts.Command.takes)
-ROBUST_COMMANDS = ("fit", "compare", "invariance")
 MAX_SIMULATED_CELLS = 100_000_000  # rows x variables of simulated data held in memory
 MAX_CATEGORIES = 100
 
@@ -261,6 +257,30 @@ class Option(enum.Enum):
         if len(values) == 1 and _numbers(values[0]):
             values = [part.strip() for part in values[0].split(",")]
         return f"{self.keyword}=[{', '.join(text if _numbers(text) else repr(text) for text in values)}]"
+
+
+#: the commands that take each option a piece of advice names where reports of other commands can show it too (the
+#: data's cautions, a fit's problems): a report of another command says that advice its own way (note_parts.Command's
+#: ``takes`` and ``elsewhere``; s28: bootstrap, cutoffs, replicate and scores advised --robust, cutoffs and align
+#: --cluster, which they refuse).  Declared once here, as the command line's parsers take them (demo's report is a
+#: fit's): tests/reporting/test_advice_where_taken.py checks the table against the parsers, and that every advice
+#: naming one of these options says where it is taken.  replicate's and explore's --cluster draws random halves by
+#: cluster, which their own advice says.  (Options that advice names only where the run gave them, '--weight-kind'
+#: to leave out, need no entry.)
+TAKEN_BY: dict[Option, tuple[str, ...]] = {
+    Option.ROBUST: ("fit", "compare", "invariance"),
+    Option.CLUSTER: ("fit", "check", "compare", "invariance", "replicate", "bootstrap", "scores", "explore"),
+    Option.INCOMPLETE_ROWS: ("fit", "compare", "invariance", "replicate", "bootstrap", "cutoffs", "scores", "align"),
+    Option.MAX_ITERATIONS: ("fit", "compare", "invariance", "replicate", "bootstrap", "cutoffs", "scores", "align",
+                            "explore"),
+    Option.REFERENCE_GROUP: ("fit", "compare", "invariance", "scores", "align"),
+    Option.MISSING_HELPERS: ("fit",),
+}
+
+
+def taken_by(option: Option) -> tuple[str, ...]:
+    """The commands that take ``option`` (:data:`TAKEN_BY`), for note_parts.Command's ``takes``."""
+    return TAKEN_BY[option]
 
 
 #: the options that name columns of the data, a group by its label or words of the data (--missing-codes' words):

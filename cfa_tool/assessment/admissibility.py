@@ -30,7 +30,7 @@ from cfa_tool.model.parameters import ParameterTable
 from cfa_tool.note_parts import Command, Note, Text, capitalised
 from cfa_tool.numerics.linalg import cholesky_log_det
 from cfa_tool.numerics.plain import journal_decimal
-from cfa_tool.options import ROBUST_COMMANDS, Option
+from cfa_tool.options import Option, taken_by
 
 if TYPE_CHECKING:  # a saved fit's estimate rows, for the hints only (a fit that reads none does not import them)
     from cfa_tool.model.saved_estimates import SavedRow
@@ -1342,7 +1342,7 @@ def _robust_advice(helpers: bool) -> Note:
     """What to try about answers far from normal: the scaled test and robust standard errors (the words of
     reporting.remedies.Remedy.ROBUST, its option a Command, which the Word file leaves out); with missing-data
     helpers, with which they are not offered, a fit without the helpers beside this one."""
-    robust = Command(f" ({Option.ROBUST})", takes=ROBUST_COMMANDS, elsewhere=f" (a fit of the model with {Option.ROBUST})")
+    robust = Command(f" ({Option.ROBUST})", takes=taken_by(Option.ROBUST), elsewhere=f" (a fit of the model with {Option.ROBUST})")
     if helpers:
         return Note(("the scaled test and robust standard errors, which do not assume normal answers, are not offered "
                      "with missing-data helpers: fit the model again without the helpers and with the scaled test and "

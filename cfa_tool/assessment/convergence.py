@@ -11,7 +11,7 @@ from cfa_tool.language.names import reference_text, written_group, written_name
 from cfa_tool.model.description import label_words, split_label
 from cfa_tool.estimation.strategy import Restart, Search
 from cfa_tool.note_parts import Command, Note, Text, joined
-from cfa_tool.options import Option
+from cfa_tool.options import Option, taken_by
 
 #: where a message of a search that did not converge turns from what happened to what to try (a workflow that writes
 #: the model itself gives its own remedies there: workflows.occasions)
@@ -114,7 +114,8 @@ def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, l
                             Command(f" ('equal {reference_text('loading', (f, a))}, "
                                     f"{reference_text('loading', (f, b))}')"))))
     elif general and outcome is Outcome.ITERATION_LIMIT:
-        advice.append(Note(("raise the limit", Command(f" ({Option.MAX_ITERATIONS})"))))
+        advice.append(Note(("raise the limit", Command(f" ({Option.MAX_ITERATIONS})", takes=taken_by(Option.MAX_ITERATIONS),
+                                                       elsewhere=f" (a fit of the model with {Option.MAX_ITERATIONS})"))))
     if general:
         advice += [IDENTIFICATION_HINT,
                    Note(("give start values near the expected solution", Command(" ('start ...')")))]

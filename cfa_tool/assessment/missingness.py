@@ -141,12 +141,13 @@ def sparse_answers_problem(values: np.ndarray, names: tuple[str, ...], failure: 
                 f"are {int(together[i, j])} ('{printable(names[i])}' and '{printable(names[j])}'), and {count_text(complete)} of "
                 f"the {count_text(len(rows))} rows answer all {len(names)} items; a fit of these rows stops.")
         value = float(together[i, j])
-    from cfa_tool.options import Option
+    from cfa_tool.options import Option, taken_by
 
     which = "one of each pair never answered together" if pairs else "those answered together by few rows"
     advice = Note((f"analyse fewer items ({which}), or gather rows that answer them together; leaving out the rows "
                    f"with gaps",
-                   Command(f" ({Option.INCOMPLETE_ROWS.given('listwise')})"),
+                   Command(f" ({Option.INCOMPLETE_ROWS.given('listwise')})", takes=taken_by(Option.INCOMPLETE_ROWS),
+                           elsewhere=f" (a fit of the model with {Option.INCOMPLETE_ROWS.given('listwise')})"),
                    f" would keep {counted(complete, 'complete row')}")) + (
         Note(("; or leave the group out with a row filter", Command(f" ({Option.KEEP})"))) if group is not None else "")
     return Problem(ProblemKind.SPARSE_ANSWERS, (), value, said, advice, group)

@@ -128,12 +128,13 @@ def reference_words(label: str, rule: ReferenceRule, labels=()) -> str | Note:
     leaves the command out); a group chosen by the user: its name alone.  The label is written by the one rule of
     group names among ``labels`` (every group's; language.names.written_group)."""
     from cfa_tool.language.names import written_group
-    from cfa_tool.options import Option
+    from cfa_tool.options import Option, taken_by
 
     written = written_group(label, labels)
     if rule is ReferenceRule.GIVEN:
         return written
-    return Note((f"{written}, {rule.phrase}", Command(f"; choose another with {Option.REFERENCE_GROUP}")))
+    return Note((f"{written}, {rule.phrase}", Command(f"; choose another with {Option.REFERENCE_GROUP}",
+                                                               takes=taken_by(Option.REFERENCE_GROUP))))
 
 
 def reference_rule(frame: pd.DataFrame, column: str, reference: str | None = None) -> ReferenceRule:

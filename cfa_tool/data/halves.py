@@ -38,7 +38,7 @@ from cfa_tool.numbers import count_text, counted, word_list
 from cfa_tool.data.readers import sheet_read
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.note_parts import Command, Note, Text
-from cfa_tool.options import Interface, Option, interface, shell_word
+from cfa_tool.options import Interface, Option, interface, shell_word, taken_by
 
 #: the columns of a halves file, in order
 HALVES_COLUMNS = ("row", "half", "seed", "data_file", "data_sha256", "sheet_read")
@@ -368,7 +368,8 @@ class HalfRows:
                 f"{count_text(self.rows)} of the {count_text(self.split)} rows {self.drawn}" + (
                     Note((f", those with an answer to every model variable ({self.with_gaps} "
                           f"{'row' if self.with_gaps == 1 else 'rows'} with gaps left out before the split",
-                          Command(f", as {Option.INCOMPLETE_ROWS.given('listwise')} leaves them out"), ")"))
+                          Command(f", as {Option.INCOMPLETE_ROWS.given('listwise')} leaves them out",
+                                  takes=taken_by(Option.INCOMPLETE_ROWS)), ")"))
                     if self.with_gaps else ""))
 
     def in_words(self) -> str:

@@ -41,7 +41,7 @@ from cfa_tool.errors import DataError, clipped, printable
 from cfa_tool.numbers import count_text, counted, cut_list, more_words, names_shown, number, user_number, word_list
 from cfa_tool.input_files import DATA_FRAME, base_name
 from cfa_tool.note_parts import Command, Note, Text
-from cfa_tool.options import Option, shell_word
+from cfa_tool.options import Option, shell_word, taken_by
 
 #: phrases that say a value is not an answer (compared after :func:`_plain`): one vocabulary for labels and cells
 NON_ANSWER_PHRASES = frozenset({
@@ -976,5 +976,7 @@ def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items: Iterabl
         keep = ""
     else:
         keep = Note((" To use the rows' other answers, ", Command(f"leave out {Option.INCOMPLETE_ROWS.given('listwise')}",
-                                                                   "fit them by full-information ML"), "."))
+                                                                   "fit them by full-information ML",
+                                                                   takes=taken_by(Option.INCOMPLETE_ROWS),
+                                                                   elsewhere="fit them by full-information ML"), "."))
     return caution, f"Nothing, if they are not answers. {said[1]}" + keep

@@ -47,7 +47,7 @@ from cfa_tool.model.starts import starting_values
 from cfa_tool.note_parts import Command, Note, Text
 from cfa_tool.numerics.linalg import scaled_factor
 from cfa_tool.numerics.threads import blas_threads_for
-from cfa_tool.options import ITERATION_LIMIT, Option
+from cfa_tool.options import ITERATION_LIMIT, Option, taken_by
 from cfa_tool.pipeline.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
 if TYPE_CHECKING:  # the full-information likelihood is imported by the fits that use it
@@ -319,7 +319,9 @@ def _estimate_with_helpers(spec: Spec, groups: list[tuple[str | None, SampleMome
                Note((f"the fit with the missing-data helpers {', '.join(helpers)} did not converge in {iterations} "
                      f"iterations (the model without them did); the helpers may go with the items too closely (a "
                      f"helper that nearly repeats an item), or the iteration limit",
-                     Command(f" ({Option.MAX_ITERATIONS})", f" ({options.max_iterations})"), " may be too low")))
+                     Command(f" ({Option.MAX_ITERATIONS})", f" ({options.max_iterations})",
+                             takes=taken_by(Option.MAX_ITERATIONS), elsewhere=f" ({options.max_iterations})"),
+                     " may be too low")))
     return Estimation(table, model, items, found.theta[: joint_model.q].copy(), found.value, found.converged,
                       iterations, message, AuxiliaryFit(helpers, likelihood, found.theta, tuple(items_saturated),
                                                         tuple(answered)))
@@ -389,13 +391,17 @@ def scaled_test_problem(robust) -> Problem:
 def full_information_instead() -> Note:
     """What keeps the rows listwise deletion leaves out of a fit of continuous items: full-information ML, its option
     named as the caller writes it (options.on_command_line; built per run, never once at import)."""
-    return Note(("full-information ML", Command(f" ({Option.INCOMPLETE_ROWS.given('full-information')})")))
+    return Note(("full-information ML", Command(f" ({Option.INCOMPLETE_ROWS.given('full-information')})",
+                                                takes=taken_by(Option.INCOMPLETE_ROWS),
+                                                elsewhere=" (a fit of the model with "
+                                                          f"{Option.INCOMPLETE_ROWS.given('full-information')})")))
 
 
 def pairwise_instead() -> Note:
     """What keeps them for ordinal items: pairwise present rows, the default."""
     return Note(("pairwise present rows (the default for ordinal items",
-                 Command(f", without {Option.INCOMPLETE_ROWS.given('listwise')}"), ")"))
+                 Command(f", without {Option.INCOMPLETE_ROWS.given('listwise')}", takes=taken_by(Option.INCOMPLETE_ROWS)),
+                 ")"))
 
 
 def listwise_problem(dropped: int, read: int, where: str = "",

@@ -49,7 +49,7 @@ from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, NotGiven, by_variable, 
                                          read_summary_file, summary_in_other_text, summary_moments)
 from cfa_tool import options as opt
 from cfa_tool.note_parts import Command, Note, RowId, Text, joined
-from cfa_tool.options import Option, option_in_both, own_keywords
+from cfa_tool.options import Option, option_in_both, own_keywords, taken_by
 from cfa_tool.errors import (DataError, EstimationError, ModelError, OptionError, RowDataError,
                              check_rows_counted, clipped, printable)
 from cfa_tool.input_files import DATA_FRAME
@@ -923,7 +923,7 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
                   design: DesignColumns | None = None, ids: dict | None = None, names: tuple[str, ...] | None = None,
                   coverage: dict | None = None, n_obs: int | None = None, where: str = "",
                   helpers: tuple[str, ...] = (), listwise: bool = False, by_loadings: tuple[str, ...] = (),
-                  id_column: str | None = None, takes_design: bool = True) -> tuple:
+                  id_column: str | None = None, takes_design: bool = True, halves: bool = False) -> tuple:
     """The cautions on the data that come first in every view, composed here once for every command (fit, check,
     compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: what the row filters did to
     the sample (pipeline.row_filter_cautions: a selection on a model item, a label several codes carry); rows that are copies of
@@ -938,7 +938,8 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     ' on the calibration data (spring.csv)'); ``helpers``: the missing-data helpers, whose values read as missing are
     named with the items' ones; ``id_column``: the column ``ids`` are read from (:func:`id_filter_column`), by which
     advice writes a row filter; ``takes_design`` False: the command takes no sampling design (replicate, explore:
-    their --cluster draws halves), so no advice offers one."""
+    their --cluster draws halves), so no advice offers one; ``halves``: with it, random halves of the rows are drawn,
+    by clusters where the command is given them (replicate --data), which advice on rows of teams or schools offers."""
     from cfa_tool.assessment.admissibility import ProblemKind
     from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 
@@ -951,7 +952,7 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     if not any(p.kind is ProblemKind.REPEATED_IDS for p in repeated):  # no id of several rows: the teams' rows
         repeated += _unit_rows_problems(loaded.frame, {group, id_column, *names,
                                                        *(n for _, n in (design.names if design else ()))},
-                                        design, takes_design)
+                                        design, takes_design, halves)
     found += repeated
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
@@ -1288,11 +1289,14 @@ def named_id_problems(loaded: LoadedData, id_column: str | None, group: str | No
                                 takes_design=takes_design, by_values=by_values)
 
 
-def _unit_rows_problems(frame: pd.DataFrame, skip, design: DesignColumns | None, takes_design: bool) -> tuple:
+def _unit_rows_problems(frame: pd.DataFrame, skip, design: DesignColumns | None, takes_design: bool,
+                        halves: bool = False) -> tuple:
     """The caution on a column named as the id of teams, schools or classes, or for them alone ('Team', 'TeamID':
     data.column_roles.unit_id_column; new-user trial s27: only 'team_id' was read so), which
     is not the rows' id, when the design has no clusters: the rows of one unit are taken for independent cases, with
-    the units as the design's clusters for the remedy (where the command takes them)."""
+    the units as the design's clusters for the remedy (where the command takes them: a fit of the model in the reports
+    of cutoffs and align, options.TAKEN_BY), or, with ``halves`` (replicate's random halves of one file), as the
+    clusters the halves are drawn by."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.data.column_roles import IDS, column_role, unit_id_column
 
@@ -1312,9 +1316,15 @@ def _unit_rows_problems(frame: pd.DataFrame, skip, design: DesignColumns | None,
                    f"to {count_text(rows)} rows ({rounded_number(rows / units)} rows each on average): the analysis "
                    f"takes the rows of one {word} for independent cases, so if its members answer alike the standard "
                    f"errors are too small and the tests reject too readily.")
+    cluster = Option.CLUSTER.given(name)
     advice = (Note((f"take the {plural} for the clusters of the sampling design",
-                    Command(f" ({Option.CLUSTER.given(name)})"),
+                    Command(f" ({cluster})", takes=taken_by(Option.CLUSTER),  # cutoffs and align take none
+                            elsewhere=f" (a fit of the model with {cluster})"),
                     f" so that the standard errors and tests allow for the rows of one {word}.")) if takes_design else
+              Note((f"draw the halves cluster by cluster, the {plural} for the clusters", Command(f" ({cluster})"),
+                    f", so that the rows of one {word} are all in one half; within each half the fits still take the "
+                    f"rows as independent, so read the standard errors and tests as those of independent rows, which "
+                    f"the members of one {word} may not be.")) if halves else
               Note((f"read the standard errors and tests as those of independent rows, which the members of one "
                     f"{word} may not be.",)))
     return (Problem(ProblemKind.UNIT_ROWS_AS_INDEPENDENT, (), float(units), explanation, advice),)
@@ -2146,7 +2156,8 @@ def shared_clusters_route() -> Note:
     Every estimator takes such groups since s21 (continuous items with complete rows or by full-information ML,
     ordinal items by least squares: inference.design.groups_meat joins the groups' rows' contributions), so the
     advice is the same for every run (new-user trials s18 and s20 found it sending ordinal runs to a refusal)."""
-    return Note((Command(f"give them with {Option.CLUSTER}", "give those clusters too"),
+    return Note((Command(f"give them with {Option.CLUSTER}", "give those clusters too", takes=taken_by(Option.CLUSTER),
+                         elsewhere=f"give them to a fit of the model with {Option.CLUSTER}"),
                  ": groups that share clusters are then analysed as domains of one sample, rows with gaps included"))
 
 
@@ -2215,7 +2226,8 @@ def dominant_cluster_problem(design, dominant, robust=None):
                        ") and compare, and report both fits if its rows are genuine answers."))
     else:
         advice = Note(("judge the fit by the SRMR and the residual correlations, and compare with a fit without ",
-                       Command(f"{Option.CLUSTER}", "the clusters"), "."))
+                       Command(f"{Option.CLUSTER}", "the clusters", takes=taken_by(Option.CLUSTER), elsewhere="the clusters"),
+                       "."))
     return Problem(ProblemKind.DESIGN_DOMINATED, (), round(dominant.share, 3) if dominant is not None else None,
                    extreme + cluster, advice)
 
@@ -2495,13 +2507,14 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
     note = Note((f"{count_text(gaps)} of {count_text(rows)} rows {'misses' if gaps == 1 else 'miss'} some answers on "
                  f"model variables; every answer is "
                  f"used by full-information ML, the default when answers are missing; a fit of the complete rows only",
-                 Command(f" ({Option.INCOMPLETE_ROWS.given('listwise')})"),
+                 Command(f" ({Option.INCOMPLETE_ROWS.given('listwise')})", takes=taken_by(Option.INCOMPLETE_ROWS)),
                  f" would leave {'that row' if gaps == 1 else 'those rows'} out"
                  + (("; under the sampling design the test is design-based, with the Yuan-Bentler scaling of "
                      "full-information ML" if design is not None and design.robust else
                      "; the robust test with full-information ML is the Yuan-Bentler one") if robust else "")))
     if design is not None and design.robust and not fit_options.missing_helpers:
-        note += Note(("; missing-data helpers (auxiliary variables that predict the gaps", Command(f", {Option.MISSING_HELPERS}"),
+        note += Note(("; missing-data helpers (auxiliary variables that predict the gaps",
+                      Command(f", {Option.MISSING_HELPERS}", takes=taken_by(Option.MISSING_HELPERS)),
                       ") cannot be used with sampling weights, clusters or strata, so answers are assumed missing at "
                       "random given the items only"))
     return replace(fit_options, missing=MissingData.FULL_INFORMATION), [note]

@@ -14,7 +14,7 @@ from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import printable
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.numbers import count_text
-from cfa_tool.options import Option
+from cfa_tool.options import Option, taken_by
 
 #: the most values a column telling the occasions apart may hold among the rows analysed (waves, times, sessions)
 OCCASIONS_AT_MOST = 20
@@ -108,7 +108,8 @@ def allow_for_them(id_column: str, occasions: str | None, outside: int | None, d
     keep = (("keep one row per person with a row filter", Command(f" ({Option.KEEP.given(occasions)})"), ", or ")
             if occasions else ())
     cluster = (() if outside == 0 or not design else
-               ("take the id for the cluster", Command(f" ({Option.CLUSTER.given(id_column)})"),
+               ("take the id for the cluster", Command(f" ({Option.CLUSTER.given(id_column)})", takes=taken_by(Option.CLUSTER),
+                                                       elsewhere=f" (a fit of the model with {Option.CLUSTER.given(id_column)})"),
                 " so that the standard errors and tests allow for the rows of one id, or "))
     return Note(keep + cluster + ("for the same people at several times, put each time's answers side by side in one "
                                   "row per person and fit one model of the times together (each item at each time "

@@ -17,7 +17,7 @@ from cfa_tool.data.groups import reference_words
 from cfa_tool.data.halves import REPLICATE_NAMES, halves_named_alike
 from cfa_tool.language.names import names_text, written_group
 from cfa_tool.model.description import label_words, parameter_words
-from cfa_tool.options import Option
+from cfa_tool.options import Option, taken_by
 from cfa_tool.note_parts import Command, Name, Note, TableReference, Text, capitalised, joined
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, ORDINAL_FIT_CHANGE_WHY, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
@@ -820,7 +820,7 @@ def _score_tests_mcar_note(result) -> list[Text]:
     if not (shown and result.score_tests_assume_mcar):
         return []
     return [Note((f"With rows with gaps, the normal-theory score tests {mcar_score_tests()}; robust score tests",
-                  Command(f" ({Option.ROBUST})"), " take the observed information, which holds when they are missing "
+                  Command(f" ({Option.ROBUST})", takes=taken_by(Option.ROBUST)), " take the observed information, which holds when they are missing "
                   "at random."))]
 
 
@@ -1209,17 +1209,20 @@ def _equal_tests_note(freed) -> str:
             f"{others} could be freed instead.")
 
 
-def _split_sentence(rows) -> str:
+def _split_sentence(rows) -> Text:
     """Which rows of the file random halves were drawn from (workflows.replication.SplitRows)."""
     drawn = rows.how_drawn()  # row by row, or cluster by cluster within strata (workflows.replication.SplitRows)
-    clusters = f" {drawn[0].upper()}{drawn[1:]}."
+    clusters: Text = f" {drawn[0].upper()}{drawn[1:]}."
+    if rows.cluster is None:  # the option that draws them cluster by cluster, with a column named for units if any
+        clusters = Note((clusters[:-1], Command(f" ({Option.CLUSTER.given(rows.unit_column or 'COLUMN')})",
+                                                takes=taken_by(Option.CLUSTER)), "."))
     if rows.split >= rows.in_file:
         return (f"The {count_text(rows.split)} rows {f'{rows.kept_words()[1:]}' if rows.filters else 'of the file'} were "
-                f"{rows.split_words()}.{clusters}")
+                f"{rows.split_words()}." + clusters)
     why = ("they miss some answers, and the halves hold complete rows only" if rows.complete_only else
            "they answer none of the model's items")
     return (f"{count_text(rows.split)} of the {count_text(rows.in_file)} rows{rows.kept_words()} were {rows.split_words()}; the other "
-            f"{count_text(rows.in_file - rows.split)} were left out before the split ({why}).{clusters}")
+            f"{count_text(rows.in_file - rows.split)} were left out before the split ({why})." + clusters)
 
 
 def _left_out(result) -> str:

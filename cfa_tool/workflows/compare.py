@@ -318,8 +318,18 @@ def _some_estimated(found: Comparison) -> Comparison:
         identified = not any(p.kind in WHY_NOT_ESTIMATED for p in r.problems)
         return small + (f"the estimation did not converge ({r.message})" if identified else r.message)
 
-    raise EstimationError("no model could be estimated, so nothing is compared: " + "; ".join(
-        f"model {name}: {why(r)}" for name, r in zip(found.names, found.results)))
+    raise NoneEstimated("no model could be estimated, so nothing is compared: " + "; ".join(
+        f"model {name}: {why(r)}" for name, r in zip(found.names, found.results)), found)
+
+
+class NoneEstimated(EstimationError):
+    """No model of a comparison could be estimated; ``comparison``: the comparison, whose results a route that
+    compares models of its own (workflows.occasions) says in its words (s28: the ladder over occasions advised
+    'start' statements, which it refuses, in compare's message)."""
+
+    def __init__(self, message: str, comparison: Comparison):
+        self.comparison = comparison
+        super().__init__(message)
 
 
 #: the keywords of :func:`compare` besides the fit options it passes on (an unknown keyword's near names,

@@ -1067,7 +1067,8 @@ def explore(data: pd.DataFrame | str | Path, *, items: str | list[str] | tuple[s
     # factor is no factor of the exploration
     data_problems = api.data_problems(replace(screened, row_filters=loaded.row_filters, read_frame=loaded.read_frame,
                                               missing_codes=loaded.missing_codes, missing_words=loaded.missing_words),
-                                      None, ids=ids, names=tuple(chosen), id_column=named_by, takes_design=False)
+                                      None, ids=ids, names=tuple(chosen), id_column=named_by, takes_design=False,
+                                      halves=split is not None and cluster is None)  # --split's halves by --cluster
     halves = None
     if split is not None:
         split = options.seed(split)

@@ -14,7 +14,7 @@ from typing import Callable
 import numpy as np
 
 from cfa_tool.numbers import count_text, counted, cut_list, discrepancy_text, rounded_number, word_list
-from cfa_tool.options import Option
+from cfa_tool.options import Option, taken_by
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool.assessment.method_factors import cross_cutting_factors
@@ -107,7 +107,7 @@ def tails_not_judged_note(unjudged: tuple[str, ...]) -> Note:
     normal tails, which these rows cannot show."""
     return Note((f"Whether the answers have heavier tails than normal ones (Mardia's multivariate kurtosis, of rows "
                  f"with gaps each on the items it answered) could not be judged in {cut_list(list(unjudged), 4)}: "
-                 f"{OVER_HEAVY_TAILS}; the scaled differences", Command(f" ({Option.ROBUST})"),
+                 f"{OVER_HEAVY_TAILS}; the scaled differences", Command(f" ({Option.ROBUST})", takes=taken_by(Option.ROBUST)),
                  " do not assume normal tails."))
 
 
@@ -123,10 +123,10 @@ def heavy_tails_caution(found: tuple[str, ...], decided: str | None) -> Note:
              f"{cut_list(list(found), 4)}: {OVER_HEAVY_TAILS}")
     if decided is None:
         return Note((f"{tails}, so these tests' p-values tend to be smaller than they should be; no test rejected a "
-                     f"restriction here, so no decision rests on that; the scaled differences", Command(f" ({Option.ROBUST})"),
+                     f"restriction here, so no decision rests on that; the scaled differences", Command(f" ({Option.ROBUST})", takes=taken_by(Option.ROBUST)),
                      " do not assume normal tails."))
     return Note((f"{tails}, so {decided} may be an artefact of the answers' distribution; consider the scaled "
-                 f"differences", Command(f" ({Option.ROBUST})"), ""))
+                 f"differences", Command(f" ({Option.ROBUST})", takes=taken_by(Option.ROBUST)), ""))
 
 
 def rejects(test: DifferenceTest | None, alpha: float = 0.05) -> bool:

@@ -27,14 +27,14 @@ import pandas as pd
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.data.moments import FEW_TOGETHER_SHARE
 from cfa_tool.data.row_ids import id_text, ids_by_row_number
-from cfa_tool.errors import DataError, ModelError, OptionError, shown_path
+from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, shown_path
 from cfa_tool.language.names import written_group, written_name
 from cfa_tool.language.parser import parse_model
 from cfa_tool.language.spec import Spec
 from cfa_tool.note_parts import Command, Note
 from cfa_tool.method import DecisionRule, DifferenceMethod, MissingData
 from cfa_tool.numbers import count_text, counted, cut_list, number, word_list
-from cfa_tool.options import Option, own_keywords
+from cfa_tool.options import Option, own_keywords, taken_by
 from cfa_tool import options as check
 from cfa_tool.pipeline.inputs import analysed_odd_values, data_problems, load_spec, read_inputs_with_notes
 from cfa_tool.pipeline.results import clean
@@ -159,11 +159,12 @@ class _OccasionWords:
     ('vig2 at occasion 1', never the side-by-side column 'vig2_1', which no file of long data holds), and advice that
     this route takes.  The ladder writes every step's model from the one-occasion model's factors, items, 'covary' and
     'uncorrelated' statements, each factor's first item its marker at every occasion, and takes no other statement
-    and no iteration limit (overtime s26: a step's message advised 'scale latent by variance', which the route
-    refuses): any advice that names a statement or option is replaced by what works here."""
+    (overtime s26: a step's message advised 'scale latent by variance', which the route refuses): any advice that
+    names a statement or option is replaced by what works here, with the iteration limit (``limit``, which the route
+    takes: --max-iterations) to raise first where a step's search reached it."""
 
-    def __init__(self, spec: Spec, layout: OccasionLayout) -> None:
-        self.spec, self.layout = spec, layout
+    def __init__(self, spec: Spec, layout: OccasionLayout, limit: int | None = None) -> None:
+        self.spec, self.layout, self.limit = spec, layout, limit
         wide = {layout.name(n, k): (n, layout.said(k)) for n in (*spec.observed_names, *spec.factor_names)
                 for k in range(len(layout.occasions))}
         self.wide = wide
@@ -219,9 +220,10 @@ class _OccasionWords:
                       and p.parameters else self.GENERAL)
         return replace(p, explanation=self.said(p.explanation), advice=self.said(advice))
 
-    def message(self, text):
+    def message(self, text, limited: bool = False):
         """A search's message (assessment.convergence.nonconvergence_message) in this route's words: what happened,
-        then what works here in place of advice this route refuses."""
+        then what works here in place of advice this route refuses (``limited``: the search stopped at the iteration
+        limit, which this route lets the user raise)."""
         from cfa_tool.assessment.convergence import WHAT_TO_TRY
 
         parts = (text,) if isinstance(text, str) else text.parts
@@ -232,13 +234,26 @@ class _OccasionWords:
         advice = Note((tail, *parts[at + 1:]))
         if self.takes(advice):
             return self.said(text)
-        return self.said(Note((*parts[:at], head + WHAT_TO_TRY + self.GENERAL)))
+        raise_limit = (("raise the limit", Command(f" ({Option.MAX_ITERATIONS})", takes=taken_by(Option.MAX_ITERATIONS)),
+                        "; or ") if limited else ())
+        return self.said(Note((*parts[:at], head + WHAT_TO_TRY, *raise_limit, self.GENERAL)))
 
     def result(self, result):
         """A step's fit in this route's words (its problems and message; the parameter labels stay the keys of the
         model of every occasion, as its JSON gives that model)."""
         return replace(result, problems=tuple(self.problem(p) for p in result.problems),
-                       message=self.message(result.message) if not result.converged else result.message)
+                       message=(self.message(result.message, self.limit is not None and result.iterations >= self.limit)
+                                if not result.converged else result.message))
+
+
+def _configural_failure(result) -> str:
+    """Why the configural model over occasions could not be estimated (its message in the route's words, ``result``
+    from _OccasionWords.result): the ladder stops there."""
+    from cfa_tool.assessment.admissibility import WHY_NOT_ESTIMATED
+
+    identified = not any(p.kind in WHY_NOT_ESTIMATED for p in result.problems)
+    return ("the configural model over occasions did not converge, so no step can be tested: " + str(result.message)
+            if identified else f"the configural model over occasions could not be estimated: {result.message}")
 
 
 def _loading_factor(label: str) -> str:
@@ -780,11 +795,16 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
         raise DataError(f"{error}{_as_read_after(keep, missing_codes)}") from None
     texts = tuple(step_text(spec, layout, level) for level, _, _ in LEVELS)
     specs = [parse_model(text, f"{spec.source} ({level} over occasions)") for text, (level, _, _) in zip(texts, LEVELS)]
-    from cfa_tool.workflows.compare import compare
+    from cfa_tool.workflows.compare import NoneEstimated, compare
 
-    found = compare(specs, wide, test=test, missing=MissingData.FULL_INFORMATION.value, id_column=id_column,
-                    max_iterations=max_iterations)
-    words = _OccasionWords(spec, layout)
+    words = _OccasionWords(spec, layout, max_iterations)
+    try:
+        found = compare(specs, wide, test=test, missing=MissingData.FULL_INFORMATION.value, id_column=id_column,
+                        max_iterations=max_iterations)
+    except NoneEstimated as error:  # the first step in this route's words and advice, as the ladder across groups
+        # stops on a configural model it cannot estimate (s28: compare's message advised 'start' statements, which
+        # this route refuses)
+        raise EstimationError(_configural_failure(words.result(error.comparison.results[0]))) from None
     found = replace(found, results=tuple(words.result(r) for r in found.results),
                     notes=tuple(words.said(n) for n in found.notes))
     steps: list[InvarianceStep] = []

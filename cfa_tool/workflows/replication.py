@@ -776,7 +776,8 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     rows = SplitRows(split, len(frame), split < len(frame.dropna(subset=list(spec.observed_names), how="all")),
                      *halves, filters=loaded.row_filters,
                      rows_in_file=len(loaded.read_frame) if loaded.read_frame is not None else None,
-                     cluster=cluster, strata=strata, units=units, labels=labels, seed=seed)
+                     cluster=cluster, strata=strata, units=units, labels=labels, seed=seed,
+                     unit_column=_unit_column(frame, spec, id_column) if cluster is None else None)
     # the rows left out before the split (the halves hold complete rows only): fit's caution, after the data's
     from cfa_tool.pipeline.column_codes import column_code_problems
 
@@ -786,7 +787,7 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     from cfa_tool.pipeline.row_filter_cautions import few_clusters_problems
 
     problems = few_clusters_problems(units, cluster, False, strata) + tuple(dict.fromkeys(data_problems(loaded, spec, ids=ids, listwise=rows.complete_only, id_column=named_by,
-                                                                      takes_design=False)
+                                                                      takes_design=False, halves=cluster is None)
                                    + column_code_problems(loaded, None, design))) + _left_out(
         len(frame) - split, len(frame), source, MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
     # what the file read as no answer kept with each half's fit, as fit keeps it (with_missing_reading; the filters,
@@ -802,6 +803,15 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
 #: the keywords of :func:`split_half` besides the fit options it passes on (an unknown keyword's near names,
 #: make_options), read from its signature once
 SPLIT_HALF_KEYWORDS = own_keywords(split_half)
+
+
+def _unit_column(frame, spec, id_column: str | None) -> str | None:
+    """The column named for units of many rows (teams, schools: data.column_roles.unit_id_column, the one rule of
+    the data's caution on them), outside the items and the id; None without one."""
+    from cfa_tool.data.column_roles import unit_id_column
+
+    found = unit_id_column(frame, {id_column, *spec.observed_names})
+    return found[0] if found is not None else None
 
 
 @dataclass(frozen=True)
@@ -831,6 +841,9 @@ class SplitRows:
     labels: tuple[tuple[int, str, str], ...] = field(default=(), repr=False)
     #: the seed the halves were drawn with (None where not known)
     seed: int | None = None
+    #: drawn row by row, the column named for teams, schools or other units of many rows (data.column_roles
+    #: .unit_id_column), by which the split sentence offers to draw them cluster by cluster (--cluster school)
+    unit_column: str | None = None
 
     def to_dict(self) -> dict:
         out = {"rows_split": self.split, "rows_in_file": self.in_file, "complete_rows_only": self.complete_only,

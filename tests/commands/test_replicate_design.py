@@ -18,10 +18,10 @@ THREE_FACTORS = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor s
 
 def test_the_split_says_that_halves_are_drawn_row_by_row(hs_data):
     pair = split_half(THREE_FACTORS, hs_data, seed=3)
-    first = report_of(Replications(pair)).lines[0]
+    first = str(report_of(Replications(pair)).lines[0])  # (a Note: the option that draws them by cluster apart)
     assert first.startswith("The 301 rows of the file were split at random into two halves. The halves are drawn row "
                             "by row, so rows of one household, school or other cluster can fall in both halves")
-    assert "draw the halves cluster by cluster from the column that names each row's cluster" in first
+    assert "draw the halves cluster by cluster from the column that names each row's cluster (cluster='COLUMN')" in first
     assert "two random halves, drawn row by row, of 301 of the 301 rows" in " ".join(replication_paragraph(
         Replications(pair)).split())
 

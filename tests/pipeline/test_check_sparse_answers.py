@@ -73,7 +73,8 @@ def test_answers_too_sparse_for_em_are_a_caution_with_the_least_answered_pair(tm
                               f"needs at least 7 answers"), out.err
     flat = " ".join(out.out.split()).replace("│ ", "").replace(" │", "")
     assert "answer too few items together for the saturated model of full-information ML" in flat
-    assert "(--incomplete-rows listwise) would keep 0 complete rows" in flat
+    # check takes no --incomplete-rows: the option is a fit's (options.TAKEN_BY; s28)
+    assert "(a fit of the model with --incomplete-rows listwise) would keep 0 complete rows" in flat
 
 
 def test_a_group_whose_pair_is_never_answered_together_is_named():

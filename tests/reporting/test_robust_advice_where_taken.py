@@ -1,6 +1,6 @@
 """Advice names only options of the command whose report gives it (an option that cannot apply is an error, so an
 advised option the command refuses sends the reader into one): the caution on answers far from normal advises the
-scaled test and robust standard errors, --robust in fit, compare and invariance (options.ROBUST_COMMANDS), and in
+scaled test and robust standard errors, --robust in fit, compare and invariance (options.TAKEN_BY), and in
 the reports of bootstrap, cutoffs, replicate and scores, which refuse it, a fit of the model with --robust
 (note_parts.Command.takes; s28: they advised '(--robust)').  Data: a one-factor model's answers with heavy tails
 (multivariate t with 4 degrees of freedom, loadings .8, residual SDs .6; invented, seeded), whose kurtosis the
@@ -59,11 +59,11 @@ def test_a_command_part_says_what_each_view_reads():
 
 def test_the_commands_declared_to_take_the_robust_test_are_those_that_do():
     from cfa_tool.cli import build_parser
-    from cfa_tool.options import ROBUST_COMMANDS
+    from cfa_tool.options import TAKEN_BY, Option
 
     parser = build_parser()
     sub = next(a for a in parser._actions if a.choices and "fit" in a.choices)  # noqa: SLF001 - argparse's own list
     taking = {name for name, p in sub.choices.items()
               if any("--robust" in a.option_strings and a.help is not None and "==SUPPRESS==" not in a.help
                      for a in p._actions)}  # noqa: SLF001
-    assert taking == set(ROBUST_COMMANDS) | {"demo"}  # demo's report is a fit's
+    assert taking == set(TAKEN_BY[Option.ROBUST]) | {"demo"}  # demo's report is a fit's
