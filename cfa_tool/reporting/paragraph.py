@@ -21,8 +21,8 @@ import numpy as np
 from cfa_tool.numbers import discrepancy_text, user_number, count_text
 from cfa_tool.method import (MISSING_AT_RANDOM, MISSING_COMPLETELY_AT_RANDOM, DecisionRule, DifferenceMethod, Information, FitTest, Items, MissingData,
                               WeightKind, Weighting)
-from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, ProblemKind, design_cautions, design_doubts, failure_words,
-                                               free_parameters)
+from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, ProblemKind, design_cautions, design_cautions_by_kind,
+                                               design_doubts, failure_words)
 from cfa_tool.assessment.directions import relative_direction
 from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors, uncorrelated_pairs
 from cfa_tool.assessment.reliability import BifactorPart, Keying, miskeyed
@@ -137,16 +137,10 @@ def _design_sentences(results) -> list[str]:
     # the models' cautions differ (each its own figures, re-check s18): each kind of caution said once, in the words of
     # the model with the most free parameters that has it, naming the others it concerns (new-user trial s27: three
     # models of one design repeated the same caution three times, 1,063 words)
-    parts, said = [design_sentence(first)], set()
-    ranked = sorted((r for r, found in own if found), key=free_parameters, reverse=True)
-    for r in ranked:
-        for p in (q for r2, found in own if r2 is r for q in found):
-            if p.kind in said:
-                continue
-            said.add(p.kind)
-            alike = [o.model_name for o, found in own if o is not r and any(q.kind is p.kind for q in found)]
-            also = f" (the same caution, with its own figures, for {_names(alike)})" if alike else ""
-            parts.append(f"For {_name(r.model_name)}{also}: {p.explanation}")
+    parts = [design_sentence(first)]
+    for r, p, alike in design_cautions_by_kind(results):
+        also = f" (the same caution, with its own figures, for {_names([o.model_name for o in alike])})" if alike else ""
+        parts.append(f"For {_name(r.model_name)}{also}: {p.explanation}")
     return parts
 
 
