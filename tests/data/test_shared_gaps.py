@@ -8,7 +8,6 @@ from __future__ import annotations
 
 import numpy as np
 import pandas as pd
-import pytest
 
 import cfa_tool
 from cfa_tool.data.moments import missing_summary
