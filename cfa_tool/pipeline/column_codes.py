@@ -4,10 +4,10 @@ labels that say no answer, apply to the model's items only (docs/data-files.md),
 as a value: a filter 'age <= 30' keeps the rows coded -99 as aged at most 30, a cluster column's -99 makes one
 cluster of every row without a school, a group column's -99 a group (hostile trial s18, finding 3).  Said first in
 every view (composed by pipeline.inputs.data_problems), naming the column, the value and its rows among those
-analysed, for a value given with --missing-codes that lies outside the column's other values (beyond them as a code
-lies in a column that only groups the rows: :func:`_codes`) and for one that the screening of the items and the
-missing-data helpers would take for a code (data.odd_values: a negative or all-nines whole number far outside the
-column's other values); the rows stay in, as the researcher may mean them."""
+analysed, for a value given with --missing-codes that lies outside the column's other values (one between them is
+the column's own: :func:`_codes`) and for one that the screening of the items and the missing-data helpers would
+take for a code (data.odd_values: a negative or all-nines whole number far outside the column's other values); the
+rows stay in, as the researcher may mean them."""
 
 from __future__ import annotations
 
@@ -18,7 +18,6 @@ from cfa_tool.numbers import user_number, word_list
 from cfa_tool.assessment.admissibility import Problem, ProblemKind
 from cfa_tool.data.filter_text import filter_text
 from cfa_tool.data.kept_rows import rows_listed, row_naming
-from cfa_tool.data.missing_codes import beyond_as_a_code
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.odd_values import OddKind, odd_values
 from cfa_tool.data.readers import LoadedData
@@ -48,8 +47,7 @@ def column_code_problems(loaded: LoadedData, group: str | None = None,
     for column, said in roles.items():
         if column not in frame.columns or not _numbers(frame[column]):
             continue
-        chooses = any(s.startswith("row filter") for s in said)
-        for value, mask, others, given in _codes(frame, column, loaded.missing_codes, chooses):
+        for value, mask, others, given in _codes(frame, column, loaded.missing_codes):
             found.append(_caution(loaded, column, said, value, mask, others, given))
     return tuple(found)
 
@@ -58,17 +56,14 @@ def _numbers(cells: pd.Series) -> bool:
     return cells.dtype.kind in "iuf"
 
 
-def _codes(frame: pd.DataFrame, column: str, given: tuple[float, ...], chooses: bool = True):
+def _codes(frame: pd.DataFrame, column: str, given: tuple[float, ...]):
     """(value, rows holding it, (lowest, highest) of the column's other values, whether given with --missing-codes)
     for each code ``column`` holds: the ``given`` codes first, then the values the screening of the items takes for a
-    missing-value code (data.odd_values, OddKind.MISSING_CODE).  A code given is judged by its place among the
-    column's other values: a value between the lowest and the highest of them is the column's own (depots numbered 1
-    to 40 hold the items' codes 8 and 9 as depots: no caution advising to leave two whole depots out, new-user trial
-    s28, finding 1); in a group, cluster or strata column, which no row filter compares (``chooses``), it is a code
-    only where a code lies beyond the other values (data.missing_codes.beyond_as_a_code, the one rule the items'
-    screening and the note on the codes other columns keep follow), while a filter's column is named for a code on
-    either side of its values, which the filter may meet (a filter 'age <= 30' meets a -99 or a 9 of ages 18 to 80).
-    The note on the codes other columns keep names every one (data.missing_codes.kept_codes_note)."""
+    missing-value code (data.odd_values, OddKind.MISSING_CODE).  A code given that lies between the lowest and the
+    highest of the column's other values is the column's own: depots numbered 1 to 40 hold the items' codes 8 and 9
+    as depots, and no caution advises to leave two whole depots out (new-user trial s28, finding 1); one beside them
+    (-9 beside depots 1 to 40, 9 beside grades 7 and 8) is named.  The note on the codes other columns keep names
+    every one (data.missing_codes.kept_codes_note)."""
     values = frame[column].to_numpy(dtype=float, na_value=np.nan)
     out = []
     for code in dict.fromkeys(float(c) for c in given):
@@ -76,8 +71,7 @@ def _codes(frame: pd.DataFrame, column: str, given: tuple[float, ...], chooses: 
         if not mask.any():
             continue
         others = _others(values, mask)
-        if others is None or (not others[0] < code < others[1]
-                              and (chooses or beyond_as_a_code(code, *others))):
+        if others is None or not others[0] < code < others[1]:
             out.append((code, mask, others, True))
     seen = {v for v, *_ in out}
     for odd in odd_values(frame, (column,), row_numbers(frame), values.reshape(-1, 1)):
