@@ -16,7 +16,7 @@ from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.data.summary_stats import given_with
 from cfa_tool.data.groups import reference_words
 from cfa_tool.data.halves import REPLICATE_NAMES, halves_named_alike
-from cfa_tool.language.names import names_text, written_group
+from cfa_tool.language.names import names_text, written_group, written_name
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
 from cfa_tool.note_parts import Command, Name, Note, TableReference, Text, capitalised, joined
@@ -203,8 +203,9 @@ def _rivals_design_lines(named_results, most, given: bool) -> list[Text]:
         largest = ["the model with the most free parameters"] if r is most else []
         theirs = [(o, next(q for q in o.problems if q.kind is p.kind)) for o in alike]
         if p.kind in SAID_ONCE_FOR_RIVALS:  # every model it concerns named, the others' figures in the fit table
+            # the other models' names quoted when they hold commas or spaces, as the methods paragraph lists them
             also = [f"the same caution, with its own count of free parameters, for "
-                    f"{word_list([names[id(o)] for o in alike])}"] if alike else []
+                    f"{word_list([written_name(names[id(o)]) for o in alike])}"] if alike else []
             theirs = []
         else:
             same = [names[id(o)] for o, q in theirs if q == p]

@@ -326,7 +326,9 @@ def test_few_clusters_bring_their_caution_to_compare_and_invariance_first(hs_dat
     # figures were not to be said of both)
     [said] = [str(line) for line in report.notice.lines if "Only 12 clusters" in str(line)]
     assert "no more than the 21 free parameters" in said and "the model with the most free parameters" in said
-    assert f"the same caution, with its own count of free parameters, for {comparison.names[0]})" in said
+    from cfa_tool.language.names import written_name  # (the name quoted as the model language writes it)
+
+    assert f"the same caution, with its own count of free parameters, for {written_name(comparison.names[0])})" in said
     paragraph = comparison_paragraph(comparison)
     assert "Only 12 clusters in 'unit', no more than the 21 free parameters" in paragraph
     assert paragraph.index("12 clusters defined by unit") < paragraph.index("Only 12 clusters")  # after the design
