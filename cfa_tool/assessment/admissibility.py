@@ -250,6 +250,12 @@ class ProblemKind(enum.Enum):
 DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.DESIGN_DOMINATED, ProblemKind.SMALL_EFFECTIVE_SAMPLE,
                              ProblemKind.FREQUENCY_WEIGHTS_LARGE, ProblemKind.GROUPS_SHARE_STRATA})
 
+#: the design's cautions whose figures differ between models of the same rows by each model's count of free parameters
+#: alone (too few clusters for them), which the first box of rival models says once, naming the models it concerns,
+#: as their methods paragraph does (new-user trial s28); a cluster that dominates the design-based test has each model's
+#: own figures (its scaling factor), said of that model
+SAID_ONCE_FOR_RIVALS = frozenset({ProblemKind.FEW_CLUSTERS})
+
 #: the design's cautions that say its scaled test and robust indices mean little (too few clusters for the parameters,
 #: a design-based test whose scaling is extreme or dominated by one cluster): the fit table then recommends none of
 #: them, and the invariance paragraph calls no step held or not held by such a test alone
@@ -456,6 +462,25 @@ def design_cautions(results) -> tuple[object | None, tuple]:
         return None, ()
     most = max(doubted, key=free_parameters)
     return most, tuple(p for p in most.problems if p.kind in DESIGN_CAUTIONS)
+
+
+def design_cautions_by_kind(results) -> list[tuple[object, Problem, list]]:
+    """The design cautions of fits of the same rows whose cautions differ in their figures (each model its own count
+    of free parameters), each kind once: (the fit whose words say it, the caution, the other fits it concerns), in the
+    words of the fit with the most free parameters that has it, which it weighs on most.  The one rule of the
+    methods paragraph and of the first box of several models (new-user trials s27 and s28: three models of one design
+    repeated the same caution of too few clusters three times)."""
+    own = [(r, tuple(p for p in getattr(r, "problems", ()) if p.kind in DESIGN_CAUTIONS)) for r in results]
+    said: set = set()
+    out = []
+    for r, found in sorted(((r, found) for r, found in own if found), key=lambda pair: free_parameters(pair[0]),
+                           reverse=True):
+        for p in found:
+            if p.kind in said:
+                continue
+            said.add(p.kind)
+            out.append((r, p, [o for o, theirs in own if o is not r and any(q.kind is p.kind for q in theirs)]))
+    return out
 
 
 @dataclass(frozen=True)

@@ -701,8 +701,10 @@ def pairs_answered_together(answered: np.ndarray, names: Sequence[str], share: f
 def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20,
                     frequency_weights: str | None = None) -> dict:
     """Coverage of each variable and the most frequent missing-data patterns, each named by the items its
-    rows did not answer (an empty list: complete rows).  ``frequency_weights``: a column of counts (checked
-    beforehand); each row then counts as often as its weight, as it does in N, and the summary names the column."""
+    rows did not answer (an empty list: complete rows), and the block of items a large share of the rows left
+    unanswered together, as a shorter form leaves them ("shared_gaps": data.shared_gaps).  ``frequency_weights``: a
+    column of counts (checked beforehand); each row then counts as often as its weight, as it does in N, and the
+    summary names the column."""
     observed = frame[list(names)].notna().to_numpy()
     counts = (np.ones(len(frame)) if frequency_weights is None
               else pd.to_numeric(frame[frequency_weights]).to_numpy(dtype=float))
@@ -715,10 +717,14 @@ def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20
     patterns, which = np.unique(observed, axis=0, return_inverse=True)
     sums = np.bincount(which.ravel(), weights=counts, minlength=len(patterns))
     order = np.argsort(-sums, kind="stable")[:limit]
+    from cfa_tool.data.shared_gaps import shared_gaps
+
+    form = shared_gaps(frame, names, None if frequency_weights is None else counts)  # a shorter form's gaps
     return {
         "coverage": coverage,
         "patterns": [{"not_answered": [name for name, answered in zip(names, patterns[k]) if not answered],
                       "rows": int(round(sums[k]))} for k in order],
         "n_patterns": int(len(patterns)),
         **weighted,
+        **({"shared_gaps": form.to_dict()} if form is not None else {}),
     }

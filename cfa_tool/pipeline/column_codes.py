@@ -4,9 +4,10 @@ labels that say no answer, apply to the model's items only (docs/data-files.md),
 as a value: a filter 'age <= 30' keeps the rows coded -99 as aged at most 30, a cluster column's -99 makes one
 cluster of every row without a school, a group column's -99 a group (hostile trial s18, finding 3).  Said first in
 every view (composed by pipeline.inputs.data_problems), naming the column, the value and its rows among those
-analysed, for a value given with --missing-codes and for one that the screening of the items and the missing-data
-helpers would take for a code (data.odd_values: a negative or all-nines whole number far outside the column's other
-values); the rows stay in, as the researcher may mean them."""
+analysed, for a value given with --missing-codes that lies outside the column's other values (one between them is
+the column's own: :func:`_codes`) and for one that the screening of the items and the missing-data helpers would
+take for a code (data.odd_values: a negative or all-nines whole number far outside the column's other values); the
+rows stay in, as the researcher may mean them."""
 
 from __future__ import annotations
 
@@ -58,13 +59,20 @@ def _numbers(cells: pd.Series) -> bool:
 def _codes(frame: pd.DataFrame, column: str, given: tuple[float, ...]):
     """(value, rows holding it, (lowest, highest) of the column's other values, whether given with --missing-codes)
     for each code ``column`` holds: the ``given`` codes first, then the values the screening of the items takes for a
-    missing-value code (data.odd_values, OddKind.MISSING_CODE)."""
+    missing-value code (data.odd_values, OddKind.MISSING_CODE).  A code given that lies between the lowest and the
+    highest of the column's other values is the column's own: depots numbered 1 to 40 hold the items' codes 8 and 9
+    as depots, and no caution advises to leave two whole depots out (new-user trial s28, finding 1); one beside them
+    (-9 beside depots 1 to 40, 9 beside grades 7 and 8) is named.  The note on the codes other columns keep names
+    every one (data.missing_codes.kept_codes_note)."""
     values = frame[column].to_numpy(dtype=float, na_value=np.nan)
     out = []
     for code in dict.fromkeys(float(c) for c in given):
         mask = values == code
-        if mask.any():
-            out.append((code, mask, _others(values, mask), True))
+        if not mask.any():
+            continue
+        others = _others(values, mask)
+        if others is None or not others[0] < code < others[1]:
+            out.append((code, mask, others, True))
     seen = {v for v, *_ in out}
     for odd in odd_values(frame, (column,), row_numbers(frame), values.reshape(-1, 1)):
         if odd.kind is OddKind.MISSING_CODE and float(odd.values[0]) not in seen:

@@ -21,8 +21,8 @@ import numpy as np
 from cfa_tool.numbers import discrepancy_text, user_number, count_text
 from cfa_tool.method import (MISSING_AT_RANDOM, MISSING_COMPLETELY_AT_RANDOM, DecisionRule, DifferenceMethod, Information, FitTest, Items, MissingData,
                               WeightKind, Weighting)
-from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, ProblemKind, design_cautions, design_doubts, failure_words,
-                                               free_parameters)
+from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, ProblemKind, design_cautions, design_cautions_by_kind,
+                                               design_doubts, failure_words)
 from cfa_tool.assessment.directions import relative_direction
 from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors, uncorrelated_pairs
 from cfa_tool.assessment.reliability import BifactorPart, Keying, miskeyed
@@ -137,16 +137,10 @@ def _design_sentences(results) -> list[str]:
     # the models' cautions differ (each its own figures, re-check s18): each kind of caution said once, in the words of
     # the model with the most free parameters that has it, naming the others it concerns (new-user trial s27: three
     # models of one design repeated the same caution three times, 1,063 words)
-    parts, said = [design_sentence(first)], set()
-    ranked = sorted((r for r, found in own if found), key=free_parameters, reverse=True)
-    for r in ranked:
-        for p in (q for r2, found in own if r2 is r for q in found):
-            if p.kind in said:
-                continue
-            said.add(p.kind)
-            alike = [o.model_name for o, found in own if o is not r and any(q.kind is p.kind for q in found)]
-            also = f" (the same caution, with its own figures, for {_names(alike)})" if alike else ""
-            parts.append(f"For {_name(r.model_name)}{also}: {p.explanation}")
+    parts = [design_sentence(first)]
+    for r, p, alike in design_cautions_by_kind(results):
+        also = f" (the same caution, with its own figures, for {_names([o.model_name for o in alike])})" if alike else ""
+        parts.append(f"For {_name(r.model_name)}{also}: {p.explanation}")
     return parts
 
 
@@ -728,6 +722,64 @@ _FULL_INFORMATION_ASSUMPTION = f", which assumes that {MISSING_AT_RANDOM}, Littl
 _LISTWISE_ASSUMPTION = _PAIRWISE_ASSUMPTION
 
 
+#: the source of planned missingness (recalled from memory: Graham, Taylor, Olchowski & Cumsille 2006, Psychological
+#: Methods 11, 323-343)
+PLANNED_MISSING_SOURCE = "Graham, Taylor, Olchowski & Cumsille, 2006"
+
+
+def form_gaps(summary: dict | None):
+    """The block of items a large share of the rows left unanswered together (data.shared_gaps.SharedGaps), from a
+    fit's missing-data summary; None without one."""
+    from cfa_tool.data.shared_gaps import SharedGaps
+
+    return SharedGaps.from_dict((summary or {}).get("shared_gaps"))
+
+
+def _form_rows(form) -> str:
+    """'792 rows (33.0%) answered none of the 8 items book3, ... and rel4' of a shorter form's block."""
+    share = f"{100 * form.share:.1f}%"
+    return (f"{count_text(form.rows)} {'row' if form.rows == 1 else 'rows'} ({share}) answered none of the "
+            f"{len(form.items)} items {_names(form.items)}")
+
+
+def form_gaps_sentence(summary: dict | None) -> str:
+    """The sentence of the table of missing-data patterns on a shorter form's gaps (data.shared_gaps: a third of the
+    rows given a form of 8 of the 16 items, new-user trial s28): which rows, which items, and what that means for the
+    estimation: gaps by design when a column of the file marks those rows as a form, else the pattern such a form
+    leaves, with what its gaps are if the rows stopped answering instead; '' without such a block."""
+    form = form_gaps(summary)
+    if form is None:
+        return ""
+    alone = f" ({count_text(form.alone)} of them answered every other item)" if form.alone != form.rows else ""
+    if form.marked_by:
+        column, value = form.marked_by
+        return (f" {_form_rows(form)}{alone}: a shorter form of the questionnaire, given to the rows where "
+                f"{_name(column)} is '{value}'. Its gaps are missing by design (completely at random when the form was "
+                f"assigned at random; planned missingness, {PLANNED_MISSING_SOURCE}), and full-information estimation "
+                f"uses every answer those rows gave; the other gaps are answers not given, assumed missing at random.")
+    return (f" {_form_rows(form)}{alone}, the pattern a shorter form of the questionnaire leaves (planned missingness, "
+            f"{PLANNED_MISSING_SOURCE}). If those rows were given such a form, their gaps are missing by design "
+            f"(completely at random when the form was assigned at random) and full-information estimation uses every "
+            f"answer they gave; if they stopped answering or skipped those items, the gaps are theirs, assumed missing "
+            f"at random like the others.")
+
+
+def _form_gaps_clause(result) -> str:
+    """The clause of the methods paragraph's rows on a shorter form's gaps (:func:`form_gaps_sentence`'s facts in
+    a manuscript's words); '' without such a block."""
+    form = form_gaps(getattr(result, "missing_data", None))
+    if form is None:
+        return ""
+    if form.marked_by:
+        column, value = form.marked_by
+        return (f"; {_form_rows(form)}, a shorter form given to the rows where {_name(column)} is '{value}', so that "
+                f"their gaps are missing by design and, with the form assigned at random, completely at random "
+                f"(planned missingness; {PLANNED_MISSING_SOURCE})")
+    return (f"; {_form_rows(form)}, the pattern of a shorter form of the questionnaire, whose gaps, if the form was "
+            f"given by design, are missing by design and, with the form assigned at random, completely at random "
+            f"(planned missingness; {PLANNED_MISSING_SOURCE})")
+
+
 def _listwise_clause(dropped: int, read: int, kept: int) -> str:
     """The rows listwise deletion left out and kept, with what it assumes (Little & Rubin, 2002), inside the
     parentheses of the rows' phrase (new-user trial s16: the text said only how many were excluded)."""
@@ -812,6 +864,8 @@ def _sample_phrase(result) -> str:
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
                  f"from the rows that answered both items, {count_text(pairs[0])} to {count_text(pairs[1])} rows per pair"
                  f"{_pairs_by_group(result)}{_PAIRWISE_ASSUMPTION}")
+    if (low is not None and low < 1.0) or _pairs_with_gaps(result):
+        text += _form_gaps_clause(result)
     read = _read_as_missing(data)
     if read:
         text += f"; {read}"

@@ -387,7 +387,10 @@ SCORES_PRECISION_HEADING = "Check before using these scores"
 def precision_cautions(result) -> list[str]:
     """Factors whose scores' reliability is below what decisions about individuals usually need: one caution per
     group, naming each method whose scores fall below with its factors (new-user trial s21: item means, regression
-    and Bartlett scores gave three nearly identical cautions in a row)."""
+    and Bartlett scores gave three nearly identical cautions in a row).  Its figures are those of rows answering every
+    item: the rows scored from some of a factor's items, less precise still, are said beside them, once, with their
+    standard errors (:func:`_fewer_items`; new-user trial s28: a third of the rows, given a shorter form, had SEs of
+    0.37 to 0.54 against 0.33, said only in a note near the end of the report)."""
     lines = []
     for q in result.quality:
         found = _item_sum_low(result, q)
@@ -403,7 +406,23 @@ def precision_cautions(result) -> list[str]:
             said = "; ".join(f"{what}{' (omega)' if what == _SUMS else ''}: {', '.join(low)}" for what, low in found)
             lines.append(f"The reliability of the {word_list(what for what, _ in found)}{_where(result, q)} is "
                          f"below {_NEEDED}: {said}.")
+    if lines:
+        lines[0] += _fewer_items(result)
     return lines
+
+
+def _fewer_items(result) -> str:
+    """The sentence of the first precision caution on the rows scored from some but not all of a factor's items
+    (workflows.factor_scores.partly_answered): how many, and how much less precise; '' when every row answered every
+    item of the factors it was scored on."""
+    from cfa_tool.workflows.factor_scores import partly_answered_words
+
+    found = getattr(result, "partly_answered", ())
+    if not found:
+        return ""
+    method = METHOD_LABELS[found[0].method]
+    return (f" These figures are for rows that answered every item; rows that answered some but not all of a "
+            f"factor's items have less precise {method} scores ({partly_answered_words(found)}).")
 
 
 #: the level of the precision cautions, with its source

@@ -23,8 +23,8 @@ from cfa_tool.model.description import CARRIED_BY_LOADINGS, parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
 from cfa_tool.reporting.numbers import (est_num, est_unit, fit_index_text, guide_text, missing, num, p_phrase, p_value,
                                         short, unit, word_list)
-from cfa_tool.reporting.paragraph import (factors_by_item_kind, group_labels, group_words, mcar_score_tests,
-                                         mixed_kinds_sentence)
+from cfa_tool.reporting.paragraph import (factors_by_item_kind, form_gaps, form_gaps_sentence, group_labels,
+                                         group_words, mcar_score_tests, mixed_kinds_sentence)
 from cfa_tool.reporting.remedies import Remedy
 
 GUIDE_NOTE = (
@@ -811,10 +811,14 @@ def missing_table(result) -> ReportTable | None:
     summary = result.missing_data
     if not summary:
         return None
+    form = form_gaps(summary)
+
     def named(items: list[str]) -> str:
         if not items:
             return "(none: complete rows)"
-        return cut_list(items, 6)
+        # every item of the most common patterns up to 12 (new-user trial s28: a short form's 8 items were cut at
+        # 'and 2 more'), and the block of a shorter form said so (data.shared_gaps)
+        return cut_list(items, 12) + (" (a shorter form)" if form is not None and tuple(items) == form.items else "")
 
     rows = [[named(p["not_answered"]), count_text(p["rows"])] for p in summary["patterns"][:8]]
     low = sorted(summary["coverage"].items(), key=lambda kv: kv[1])[:5]
@@ -822,7 +826,7 @@ def missing_table(result) -> ReportTable | None:
     weights = summary.get("counted_by_weights")
     if weights:
         note += f". Rows are counted by their frequency weights ('{weights}'), as N is"
-    note = note + "." + _completely_at_random_note(result)
+    note = note + "." + form_gaps_sentence(summary) + _completely_at_random_note(result)
     # the patterns shown are the most common ones: said in the title, where a table of 8 rows out of 191 patterns
     # would otherwise read as every pattern (the Word file of a new user's workbook, re-check s17)
     more = summary["n_patterns"] > len(rows)
@@ -830,7 +834,8 @@ def missing_table(result) -> ReportTable | None:
                   if more else "Missing answers",
                   [("Items not answered", "l"), ("Rows, weighted" if weights else "Rows", "r")], rows, note,
                   values=(["Items not answered", "Rows, weighted" if weights else "Rows"],
-                          [[row[0], p["rows"]] for row, p in zip(rows, summary["patterns"])]))
+                          [[", ".join(p["not_answered"]) or row[0], p["rows"]]
+                           for row, p in zip(rows, summary["patterns"])]))
 
 
 def _completely_at_random_note(result) -> Text:

@@ -9,13 +9,14 @@ from dataclasses import replace
 
 from cfa_tool.numbers import count_text, counted, cut_list, discrepancy_text, user_number
 from cfa_tool.numerics.plain import journal_decimal
-from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATED, ProblemKind, design_cautions, design_doubts, failure_words,
+from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, WHY_NOT_ESTIMATED, ProblemKind, SAID_ONCE_FOR_RIVALS, design_cautions,
+                                               design_cautions_by_kind, design_doubts, failure_words,
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.data.summary_stats import given_with
 from cfa_tool.data.groups import reference_words
 from cfa_tool.data.halves import REPLICATE_NAMES, halves_named_alike
-from cfa_tool.language.names import names_text, written_group
+from cfa_tool.language.names import names_text, written_group, written_name
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option, taken_by
 from cfa_tool.note_parts import Command, Name, Note, TableReference, Text, capitalised, joined
@@ -165,9 +166,13 @@ def _caution_lines(named_results, poor_fit: bool = True, small_groups: bool = Tr
 
 def _design_caution_lines(named_results, given: bool = True) -> list[Text]:
     """The sampling design's cautions (too few clusters, a small effective sample) of several fits of the same rows,
-    once (admissibility.design_cautions), named by their fit when the fits' cautions differ (e.g. 'no more than the 78
-    free parameters' of one model only), with the other fits that have cautions of their own; ``given``: the fits are
-    named by the models' names as given, else by words (:func:`_named_line`)."""
+    once (admissibility.design_cautions): those of the fit with the most free parameters when every fit has the same,
+    or when the fits are steps of one model (an invariance ladder), named by it; those of rival models whose cautions
+    differ in their figures (e.g. 'no more than the 78 free parameters'), each kind once in the words of the model
+    with the most free parameters that has it, naming the other models it concerns (admissibility.
+    design_cautions_by_kind, the methods paragraph's rule; new-user trial s28: one caution of about 120 words said
+    once per model of a comparison).  ``given``: the fits are named by the models' names as given, else by words
+    (:func:`_named_line`)."""
     most, problems = design_cautions([r for _, r in named_results])
     if most is None:
         return []
@@ -175,18 +180,40 @@ def _design_caution_lines(named_results, given: bool = True) -> list[Text]:
     own = [(name, found) for name, found in own if found]
     if all(found == problems for _, found in own):
         return [p.line() for p in problems]
-    steps_of_one_model = len({r.model_name for _, r in named_results}) < len(named_results)
+    if len({r.model_name for _, r in named_results}) == len(named_results):  # rival models
+        return _rivals_design_lines(named_results, most, given)
     name = next(n for n, r in named_results if r is most)
-    # 'too' only for the models whose cautions are the same; a model's cautions of other figures (its own scaling
-    # factor) under its own name (re-check s18: one model's extreme factor, 0.407, was said of the other, 0.651)
-    same = [n for n, found in own if n != name and (found == problems or steps_of_one_model)]
-    # a model's name keeps its case at the line's start (note_parts.Name: no sentence's capital recases it)
+    same = [n for n, _ in own if n != name]  # the steps of one model: its largest's
     whose = _named_line(name, f" (the model with the most free parameters{'; ' + word_list(same) + ' too' if same else ''}): ",
                         given)
-    lines = [whose + p.line() for p in problems]
-    for other, found in own:
-        if other != name and found != problems and not steps_of_one_model:
-            lines += [_named_line(other, ": ", given) + p.line() for p in found]
+    return [whose + p.line() for p in problems]
+
+
+def _rivals_design_lines(named_results, most, given: bool) -> list[Text]:
+    """The design cautions of rival models whose cautions differ, each kind once in the words of the model with the
+    most free parameters that has it (admissibility.design_cautions_by_kind): one line naming the other models for a
+    caution that differs by their counts of free parameters alone (admissibility.SAID_ONCE_FOR_RIVALS: too few
+    clusters, about 120 words said once per model of a comparison, new-user trial s28), as the methods paragraph does;
+    for the others (a dominated test's scaling factor), the models with the same caution named beside it and each
+    model's own figures under its own name (re-check s18: one model's extreme factor, 0.407, was said of the other,
+    0.651)."""
+    names = {id(r): n for n, r in named_results}
+    lines: list[Text] = []
+    for r, p, alike in design_cautions_by_kind([r for _, r in named_results]):
+        largest = ["the model with the most free parameters"] if r is most else []
+        theirs = [(o, next(q for q in o.problems if q.kind is p.kind)) for o in alike]
+        if p.kind in SAID_ONCE_FOR_RIVALS:  # every model it concerns named, the others' figures in the fit table
+            # the other models' names quoted when they hold commas or spaces, as the methods paragraph lists them
+            also = [f"the same caution, with its own count of free parameters, for "
+                    f"{word_list([written_name(names[id(o)]) for o in alike])}"] if alike else []
+            theirs = []
+        else:
+            same = [names[id(o)] for o, q in theirs if q == p]
+            also = [word_list(same) + " too"] if same else []
+        said = "; ".join(largest + also)
+        # a model's name keeps its case at the line's start (note_parts.Name: no sentence's capital recases it)
+        lines.append(_named_line(names[id(r)], f" ({said}): " if said else ": ", given) + p.line())
+        lines += [_named_line(names[id(o)], ": ", given) + q.line() for o, q in theirs if q != p]
     return lines
 
 

@@ -393,30 +393,57 @@ def _with_why_not_scored(table: pd.DataFrame, id_name, score_columns: list[str],
     return table.assign(**{WHY_NOT_SCORED_COLUMN: [None if w is None else w.value for w in why]})
 
 
-def partly_answered_note(model, answered: np.ndarray, method: ScoreMethod, errors: np.ndarray) -> list[str]:
-    """The note on the scored rows that answered some but not all of a factor's items (``answered``: see
-    :func:`_items_answered`; ``errors``: the standard errors of ``method``'s scores at the same places): their
-    scores rest on fewer items and are less precise than the figures for rows that answered every item, with the
-    range of their standard errors beside the typical one of complete rows (new-user trial s11: 36 patients scored
-    from 2-3 of 5 items had SEs of .45-.54 against .37, said nowhere)."""
+@dataclass(frozen=True)
+class PartlyAnswered:
+    """The scored rows that answered some but not all of a factor's items: ``rows`` of them, the standard errors of
+    their scores from ``low`` to ``high``, against the median ``every`` of the rows that answered every item (None
+    when no row did); ``method``: the scores these are of (the first factor-score method written)."""
+
+    factor: str
+    rows: int
+    low: float
+    high: float
+    every: float | None
+    method: ScoreMethod
+
+
+def partly_answered(model, answered: np.ndarray, method: ScoreMethod, errors: np.ndarray) -> tuple[PartlyAnswered, ...]:
+    """The scored rows that answered some but not all of each factor's items (``answered``: see
+    :func:`_items_answered`; ``errors``: the standard errors of ``method``'s scores at the same places), with the range
+    of their standard errors beside the typical one of complete rows: their scores rest on fewer items and are less
+    precise (new-user trial s11: 36 patients scored from 2-3 of 5 items had SEs of .45-.54 against .37, said nowhere;
+    s28: a third of the rows, given a shorter form, said only in a note near the end of the report)."""
     full = model.reach.sum(axis=0)
-    parts = []
+    found = []
     for f, name in enumerate(model.factors):
         some = (answered[:, f] > 0) & (answered[:, f] < full[f]) & ~np.isnan(errors[:, f])
         if not some.any():
             continue
         every = (answered[:, f] == full[f]) & ~np.isnan(errors[:, f])
         se = errors[some, f]
-        typical = f" against {float(np.median(errors[every, f])):.2f} with every item" if every.any() else ""
-        parts.append(f"{printable(name)}: {int(some.sum())} {'row' if some.sum() == 1 else 'rows'}, SE "
-                     + (f"{se.min():.2f}" if np.isclose(se.min(), se.max(), atol=5e-3) else
-                        f"{se.min():.2f} to {se.max():.2f}") + typical)
-    if not parts:
+        found.append(PartlyAnswered(str(name), int(some.sum()), float(se.min()), float(se.max()),
+                                    float(np.median(errors[every, f])) if every.any() else None, method))
+    return tuple(found)
+
+
+def partly_answered_words(found: tuple[PartlyAnswered, ...]) -> str:
+    """Each factor's rows answering some of its items with their standard errors ('booking: 1,043 rows, SE 0.37 to
+    0.54 against 0.33 with every item; ...'), by one rule for the note and the scores' first box."""
+    return "; ".join(
+        f"{printable(p.factor)}: {count_text(p.rows)} {'row' if p.rows == 1 else 'rows'}, SE "
+        + (f"{p.low:.2f}" if np.isclose(p.low, p.high, atol=5e-3) else f"{p.low:.2f} to {p.high:.2f}")
+        + (f" against {p.every:.2f} with every item" if p.every is not None else "") for p in found)
+
+
+def partly_answered_note(found: tuple[PartlyAnswered, ...]) -> list[str]:
+    """The note on the scored rows that answered some but not all of a factor's items (:func:`partly_answered`)."""
+    if not found:
         return []
+    method = found[0].method
     what = "posterior SD" if method is ScoreMethod.EXPECTED_A_POSTERIORI else f"{method.value} score's SE"
     return [f"Rows that answered some but not all of a factor's items are scored from the items they answered (the "
             f"_items_answered columns): their scores are less precise than the precision table says, which is for "
-            f"rows that answered every item ({'; '.join(parts)}; SE: the {what})."]
+            f"rows that answered every item ({partly_answered_words(found)}; SE: the {what})."]
 
 
 def score_columns(methods, factors) -> list[str]:
@@ -704,6 +731,9 @@ class ScoreResult(Presentable):
     #: the columns of the data the run chose or grouped rows by (row filters, groups, clusters, strata), which the
     #: scores file carries beside the ids as the data file names them (:func:`carried_columns`)
     carried: tuple[str, ...] = ()
+    #: the scored rows that answered some but not all of a factor's items, whose scores are less precise than the
+    #: quality figures of rows answering every item say (:func:`partly_answered`): in a note and the first box
+    partly_answered: tuple[PartlyAnswered, ...] = ()
 
     @property
     def rows(self) -> int:
@@ -923,8 +953,9 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
                                spec, answered, sums) if ordinal_items else _linear_quality(models, spec, sums)
     result, few = _few_clusters_as_note(result)
-    extra = few + duplicate_note(ids, "id column" if id_column is not None else "row names", False) + _partly_answered(
-        models[0].base if ordinal_items else models[0], answered, chosen, errors)
+    partly = _partly_answered(models[0].base if ordinal_items else models[0], answered, chosen, errors)
+    extra = few + duplicate_note(ids, "id column" if id_column is not None else "row names", False) \
+        + partly_answered_note(partly)
     if ids is not None and id_column is None:
         extra.insert(0, Note((f"The first column holds the row names of {source} (its first column, which has no "
                               f"name in the header)", Command(f"; give {Option.ID_COLUMN.given('COLUMN')} to name the "
@@ -946,7 +977,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                        bool(standard_errors or ordinal_items), tuple(extra),
                        item_sums=summaries,
                        unanswered=unanswered, names_row=_names_row(loaded, data),
-                       file_format=convention_of(loaded.reading), carried=_carried_here(carried, id_name))
+                       file_format=convention_of(loaded.reading), carried=_carried_here(carried, id_name),
+                       partly_answered=partly)
 
 
 def _id_column_note(read_frame: pd.DataFrame, source: str, spec, group, design) -> list[Note]:
@@ -1105,11 +1137,11 @@ def _sum_scores(models, spec, ordinal: bool, labels, problems) -> list[tuple[Sum
             for group_sums, label in zip(sums, labels if labels is not None else [None] * len(sums))]
 
 
-def _partly_answered(model, answered: np.ndarray, chosen, errors: dict) -> list[str]:
-    """:func:`partly_answered_note` of the first factor-score method written (none for item sums and means alone,
-    whose prorating the report says)."""
+def _partly_answered(model, answered: np.ndarray, chosen, errors: dict) -> tuple[PartlyAnswered, ...]:
+    """:func:`partly_answered` of the first factor-score method written (none for item sums and means alone, whose
+    prorating the report says)."""
     first = factor_methods(chosen)
-    return partly_answered_note(model, answered, first[0], errors[first[0]]) if first else []
+    return partly_answered(model, answered, first[0], errors[first[0]]) if first else ()
 
 
 def _ordinal_methods(methods, chosen, standard_errors: bool, whose: str) -> tuple[ScoreMethod, ...]:
@@ -1302,8 +1334,9 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                                             models[0] if ordinal and len(models) == 1 else None)]
     if scored_problems:
         result = _after_data_cautions(result, own, scored_problems)
+    partly = _partly_answered(base, answered, chosen, errors)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names", False) \
-        + _partly_answered(base, answered, chosen, errors)
+        + partly_answered_note(partly)
     if ids is None and not isinstance(data, pd.DataFrame):
         notes[:0] = _id_column_note(read_frame, source, spec, group, None)
     if group is not None:
@@ -1327,7 +1360,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     table.index = caller_labels(table.index, loaded.frame_index)
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
                        unscored, with_errors, tuple(notes), source, (), summaries, unanswered,
-                       _names_row(loaded, data), convention_of(loaded.reading), _carried_here(carried, id_name))
+                       _names_row(loaded, data), convention_of(loaded.reading), _carried_here(carried, id_name),
+                       partly_answered=partly)
 
 
 def _carried_here(carried: tuple[str, ...], id_name: str | None) -> tuple[str, ...]:

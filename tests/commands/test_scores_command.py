@@ -418,6 +418,14 @@ def test_rows_scored_from_some_of_a_factors_items_are_said_to_be_less_precise(hs
     assert shown, note
     assert [float(x) for x in shown.groups()] == [round(low, 2), round(high, 2), round(se(list(range(9))), 2)]
     assert "textual" not in note and "speed" not in note  # their items were all answered
+    # and in the first box, beside the reliability of rows answering every item (new-user trial s28: said only in
+    # this note near the end of the report), with the same check values
+    from cfa_tool.reporting.score_report import precision_cautions
+
+    first = precision_cautions(result)[0]
+    assert "These figures are for rows that answered every item" in first
+    assert (f"less precise regression scores (visual: 40 rows, SE {low:.2f} to {high:.2f} against "
+            f"{se(list(range(9))):.2f} with every item)") in first
 
 
 @pytest.mark.parametrize("from_fit", [False, True])

@@ -104,3 +104,33 @@ def test_power_gives_the_rows_and_clusters_of_a_planned_cluster_sample(tmp_path,
                         (["--design-effect", "0.5"], "the design effect (--design-effect) must be at least 1")):
         code, _, err = run_cli(["power", "--df", "98"] + argv, capsys)
         assert code == 2 and words in err and len(err.strip().splitlines()) == 1, err
+
+
+def test_the_weights_effective_n_is_named_as_theirs_and_the_designs_given_beside_it():
+    """Kish's effective N of sampling weights is the weights' alone: with clusters, the design's is that over the
+    clusters' design effect (new-user trial s28: 'Kish's effective N 2129.1' read as the sample's with a design effect
+    of 3.7).  Check values: Kish (1965), recalled from memory: n_eff = (sum w)^2 / sum w^2, deff = 1 + (m - 1) ICC,
+    the two design effects multiplied (Gabler, Haeder & Lahiri 1999, recalled from memory); the ICCs by the
+    estimator checked above, with numpy."""
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    data = _schools()
+    w = np.exp(np.random.default_rng(5).normal(0, 0.4, len(data)))
+    data = data.assign(w=w)
+    model = "factor F: x1, x2, x3, x4"
+    fitted = cfa_tool.fit(model, data, cluster="school", weights="w")
+    kish = w.sum() ** 2 / (w ** 2).sum()
+    answered = data["x2"].notna().to_numpy()
+    iccs = [intraclass_correlations(data[x].to_numpy()[answered] if x == "x2" else data[x].to_numpy(),
+                                    data["school"].to_numpy()[answered] if x == "x2" else data["school"].to_numpy())[0]
+            for x in ("x1", "x2", "x3", "x4")]
+    design = kish / (1 + 24 * np.median(iccs))
+    assert f"Kish's effective N of the weights alone {kish:.1f}" in fitted.estimator
+    assert f"effective N of the design about {round(design):,}, the weights' effective N over this design effect" \
+        in fitted.estimator
+    paragraph = " ".join(methods_paragraph(fitted).split())
+    assert f"Kish's effective sample size of the weights alone {kish:.1f}" in paragraph
+    assert f"an effective sample size of about {round(design):,} for the design as a whole" in paragraph
+    alone = cfa_tool.fit(model, data, cluster="school")  # no weights: the rows over the design effect
+    assert f"effective N of the design about {round(1000 / (1 + 24 * np.median(iccs))):,}, the rows over" \
+        in alone.estimator

@@ -73,3 +73,23 @@ def test_replicate_s_halves_drawn_by_such_a_cluster_column_say_it(with_age, ride
     pair = split_half(rider_model, with_age, seed=2, cluster="school")
     said = [str(p.explanation) for p in pair[0].data_problems if p.kind is ProblemKind.CODE_KEPT_AS_VALUE]
     assert any("The cluster column 'school'" in s and "holds -99 in 60 of the 480 rows analysed" in s for s in said)
+
+
+def test_ids_numbered_through_the_items_codes_are_no_codes_of_their_own_column(with_age):
+    """Depots or schools numbered 1 to 40 hold the items' codes of no answer 8 and 9 as ids: no caution first that
+    advises to leave two whole clusters out (new-user trial s28, finding 1), as a cluster, strata or group column, and
+    as a row filter's column, whose filter keeps its 8s and 9s as what they are; the note on the codes other columns
+    keep still names them.  A code beside the column's values (-9 beside 1 to 40) is still cautioned."""
+    data = with_age.copy()
+    data["age"] = np.random.default_rng(3).integers(18, 80, len(data)).astype(float)
+    data["school"] = np.arange(len(data)) % 40 + 1.0  # 1 to 40, an unbroken run
+    data["wave"] = np.arange(len(data)) % 10 + 1.0  # 1 to 10
+    result = cfa_tool.fit(TWO, data, cluster="school", strata="wave", missing_codes=[8, 9])
+    assert not _codes(result)
+    notes = " ".join(str(w) for w in result.warnings)
+    assert "'school' holds 8 in 12 rows" in notes and "'wave' holds 9 in 48 rows" in notes  # 480 / 40, 480 / 10
+    assert "school != 8" not in notes  # no advice to leave a school out
+    assert not _codes(cfa_tool.fit(TWO, data, keep=["school <= 20"], missing_codes=[8, 9]))
+    data.loc[:59, "school"] = -9  # beside the schools 1 to 40, not among them: named, as given
+    [said] = _codes(cfa_tool.fit(TWO, data, cluster="school", missing_codes=[-9, 8, 9]))
+    assert "holds -9 in 60 of the 480 rows analysed" in said and "a value given as a code of no answer" in said

@@ -39,6 +39,6 @@ def test_compare_names_the_model_of_a_design_caution_as_its_file_names_it(tmp_pa
     lines = [read(line) for line in json.loads(out.read_text())["report"]["notice"]["lines"]]
     named = [line for line in lines if isinstance(line, Note) and line.parts and isinstance(line.parts[0], Name)]
     assert named and named[0].parts[0] == Name("two")
-    assert named[0].said(numbered(())).startswith("two (the model with the most free parameters)")
-    assert "two (the model with the most free parameters)" in terminal
+    assert named[0].said(numbered(())).startswith("two (the model with the most free parameters;")
+    assert "two (the model with the most free parameters;" in terminal
     assert "Two (the model" not in terminal

@@ -38,3 +38,24 @@ def test_the_clusters_caution_is_said_once_for_the_models_it_concerns(tmp_path, 
     assert ("For \"two_covary.cfa\" (the same caution, with its own figures, for \"two.cfa\" and \"one.cfa\"): Only "
             "10 clusters "
             "in 'site', no more than the 14 free parameters") in paragraph
+
+
+def test_the_first_box_of_a_comparison_says_the_clusters_caution_once(tmp_path, monkeypatch):
+    """compare's first box as its methods paragraph: the caution on too few clusters once, in the words of the model
+    with the most free parameters, naming the others (new-user trial s28: three models under 40 depots repeated
+    about 120 words three times), in every view drawn from the report (terminal, JSON)."""
+    from cfa_tool.reporting.terminal import report_text
+    from cfa_tool.reporting.workflow_tables import comparison_report
+
+    monkeypatch.chdir(tmp_path)
+    files = []
+    for name, text in (("two", TWO), ("one", ONE), ("two_covary", TWO_COVARY)):
+        files.append(f"{name}.cfa")
+        (tmp_path / files[-1]).write_text(text)
+    report = comparison_report(cfa_tool.compare(files, _staff(), cluster="site"))
+    [said] = [line for line in report.notice.lines if "Only 10 clusters in 'site'" in str(line)]
+    assert str(said).startswith("two_covary (the model with the most free parameters; the same caution, with its "
+                                "own count of free parameters, for two and one): Only 10 clusters in 'site', "
+                                "no more than the 14 free parameters")  # 14: counted by hand (13 + 1 covariance)
+    box = report_text(report, width=250).split("Model comparison")[0]  # the box, before the report's title
+    assert box.count("Only 10 clusters in 'site'") == 1
