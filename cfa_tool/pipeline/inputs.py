@@ -7,7 +7,7 @@ import os
 from typing import TYPE_CHECKING
 from collections import Counter
 from contextlib import contextmanager
-from dataclasses import replace
+from dataclasses import dataclass, replace
 from types import SimpleNamespace
 from functools import lru_cache
 from pathlib import Path
@@ -1373,29 +1373,83 @@ def _same_answers_again(found: tuple, frame: pd.DataFrame, items) -> tuple[tuple
     to every item in ``items`` as it, empty cells alike) for each id that has such rows (a respondent who submitted
     twice), and the ids left to several rows without those later rows."""
     items = [x for x in items if x in frame.columns]
-    place = pd.Series(np.arange(len(frame)), index=row_numbers(frame))
-    if not items or not place.index.is_unique:
+    if not items:
+        return (), found
+    placed = _rows_of_each_id(found, frame)
+    if placed is None:
         return (), found
     answers = frame[items]
+    repeats = _repeats_within(answers, placed)
     twice, rest = [], []
-    for value, rows in found:
-        at = place.reindex(list(rows)).dropna().astype(int)
+    for (value, rows), (at, numbers) in zip(found, placed.each):
         if len(at) < 2:
             rest.append((value, rows))
             continue
-        block = answers.iloc[at.to_numpy()]
-        try:
-            again = block.duplicated(keep="first").to_numpy()
-        except TypeError:  # cells pandas cannot hash: compared as text
-            again = block.astype(str).duplicated(keep="first").to_numpy()
-        later = tuple(int(r) for r in at.index[again])
+        again = repeats[at] if repeats is not None else _repeats_of(answers.iloc[at])
+        later = tuple(int(r) for r in numbers[again])
         if later:
-            original = int(at.index[~again][0])
+            original = int(numbers[~again][0])
             twice.append((value, original, later))
         left = tuple(r for r in rows if r not in later)
         if len(left) > 1:
             rest.append((value, left))
     return tuple(twice), tuple(rest)
+
+
+@dataclass(frozen=True)
+class _PlacedIds:
+    """The rows of each repeated id (:func:`ids_of_several_rows`) placed in the frame they were read for: every id's
+    rows that the frame holds, one block after another (``positions``, ``owners``: the id's place in ``found``), and
+    for each id its positions in the frame and its rows' numbers (``each``; in the order ``found`` lists them)."""
+
+    positions: np.ndarray
+    owners: np.ndarray
+    each: list
+
+
+def _rows_of_each_id(found: tuple, frame: pd.DataFrame) -> _PlacedIds | None:
+    """:class:`_PlacedIds` of ``found`` in ``frame``; None when the frame's row numbers repeat (rows cannot be told
+    apart by number)."""
+    numbers = pd.Index(row_numbers(frame))
+    if not numbers.is_unique:
+        return None
+    listed = [r for _, rows in found for r in rows]
+    where = numbers.get_indexer(listed) if listed else np.zeros(0, dtype=np.intp)
+    listed = np.asarray(listed, dtype=object)
+    each, positions, owners, start = [], [], [], 0
+    for k, (_, rows) in enumerate(found):
+        at = where[start:start + len(rows)]
+        held = at >= 0
+        each.append((at[held], listed[start:start + len(rows)][held]))
+        positions.append(at[held])
+        owners.append(np.full(int(held.sum()), k))
+        start += len(rows)
+    return _PlacedIds(np.concatenate(positions) if positions else np.zeros(0, dtype=np.intp),
+                      np.concatenate(owners) if owners else np.zeros(0, dtype=np.intp), each)
+
+
+def _repeats_of(block: pd.DataFrame) -> np.ndarray:
+    """Which rows of ``block`` are identical in every column to an earlier row of it (cells pandas cannot hash
+    compared as text)."""
+    try:
+        return block.duplicated(keep="first").to_numpy()
+    except TypeError:
+        return block.astype(str).duplicated(keep="first").to_numpy()
+
+
+def _repeats_within(columns: pd.DataFrame, placed: _PlacedIds) -> np.ndarray | None:
+    """For every row of the frame, whether it is identical in ``columns`` to an earlier row of the same repeated id
+    (:class:`_PlacedIds`), by one comparison of every id's rows with the id beside them (a comparison per id took
+    seconds at 600 ids); None when a cell cannot be hashed (each id's rows are then compared apart, as text)."""
+    block = columns.iloc[placed.positions].set_axis(range(columns.shape[1]), axis=1)
+    block[columns.shape[1]] = placed.owners
+    try:
+        again = block.duplicated(keep="first").to_numpy()
+    except TypeError:
+        return None
+    out = np.zeros(len(columns), dtype=bool)
+    out[placed.positions] = again
+    return out
 
 
 def _submitted_twice_problem(twice: tuple, frame: pd.DataFrame, id_column: str | None, items, naming, lines,
@@ -1438,21 +1492,18 @@ def _without_copies(found: tuple, frame: pd.DataFrame) -> tuple:
     ids, and deleting the copies mends their ids too; the ids left to several rows after that."""
     from cfa_tool.data.copied_rows import numbering_column
 
-    place = pd.Series(np.arange(len(frame)), index=row_numbers(frame))
-    if not place.index.is_unique:
+    placed = _rows_of_each_id(found, frame)
+    if placed is None:
         return found
     numbering = numbering_column(frame)
     compared = frame.drop(columns=[numbering]) if numbering is not None else frame
+    repeats = _repeats_within(compared, placed)
     kept = []
-    for value, rows in found:
-        at = place.reindex(list(rows)).dropna().astype(int)
+    for (value, rows), (at, numbers) in zip(found, placed.each):
         copies: set = set()
         if len(at) > 1:
-            try:
-                repeat = compared.iloc[at.to_numpy()].duplicated(keep="first").to_numpy()
-            except TypeError:  # cells pandas cannot hash: compared as text
-                repeat = compared.iloc[at.to_numpy()].astype(str).duplicated(keep="first").to_numpy()
-            copies = set(at.index[repeat].tolist())
+            repeat = repeats[at] if repeats is not None else _repeats_of(compared.iloc[at])
+            copies = set(numbers[repeat].tolist())
         rest = tuple(r for r in rows if r not in copies)
         if len(rest) > 1:
             kept.append((value, rest))
