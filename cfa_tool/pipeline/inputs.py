@@ -978,7 +978,7 @@ def shifted_scale_problems(loaded: LoadedData, group: str | None, names: tuple[s
     shift: a coding slip reads as a difference of the item's intercept (or thresholds) between the groups, and
     the search of partial invariance frees it (hostile trial s25, finding 4).  () without groups or shifts."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
-    from cfa_tool.data.groups import group_rows
+    from cfa_tool.data.groups import group_keys, group_labels, group_rows
     from cfa_tool.data.shifted_scales import shifted_scales
     from cfa_tool.language.names import written_group
 
@@ -987,9 +987,17 @@ def shifted_scale_problems(loaded: LoadedData, group: str | None, names: tuple[s
     items = [name for name in names if name in loaded.frame.columns]
     if not items:
         return ()
-    split, _ = group_rows(_labelled(loaded.frame, group), group, loaded.source)
-    groups = [(f"group {written_group(label, [x for x, _ in split])}",
-               part[items].apply(pd.to_numeric, errors="coerce").to_numpy(float)) for label, part in split]
+    frame = _labelled(loaded.frame, group)
+    values = loaded.items.of(frame, items) if loaded.items is not None else None
+    values = values if values is not None else item_values(frame, items)  # numbers: taken out once, split by rows
+    if values is not None:
+        labels = group_labels(frame, group, loaded.source)
+        keys = group_keys(frame[group]).to_numpy(object)
+        parts = [(label, values[keys == label]) for label in labels]
+    else:  # cells that are not numbers: read as numbers where they are, group by group
+        split, _ = group_rows(frame, group, loaded.source)
+        parts = [(label, part[items].apply(pd.to_numeric, errors="coerce").to_numpy(float)) for label, part in split]
+    groups = [(f"group {written_group(label, [x for x, _ in parts])}", part) for label, part in parts]
     found = shifted_scales(items, groups)
     if not found:
         return ()
@@ -1714,25 +1722,30 @@ def few_answers_problems(names: tuple[str, ...], coverage: dict, n_obs: int | No
 
 
 def _few_together_problems(names: tuple[str, ...], loaded: LoadedData, group: str | None,
-                           few: tuple[str, ...] = (), label: str | None = None) -> tuple:
+                           few: tuple[str, ...] = ()) -> tuple:
     """The caution on pairs of items answered together by fewer than data.moments.FEW_TOGETHER_SHARE of the rows
-    analysed (the rows of ``loaded`` with a model item answered; with ``label``, those of that group of ``group``):
+    analysed (the rows of ``loaded`` with a model item answered; each group's apart, :func:`_pairs_answered_by_few`):
     their correlation (a polychoric one, or with full-information ML the covariance) rests on those rows alone,
     however many answer each item (hostile trial s16, case 06: 3 of 471 rows answered both clean and temperature,
     said only inside a note).  Pairs with an item of ``few`` (answered by few rows, said by its own caution) are
     left out.  One caution naming each pair, its rows answering both and, for the fewest, those rows."""
-    from cfa_tool.data.kept_rows import rows_listed
-    from cfa_tool.data.moments import FEW_TOGETHER_SHARE, pairs_answered_together
-
     names = tuple(names)
     frame = _labelled(loaded.frame, group)
-    if label is not None:
-        from cfa_tool.data.groups import group_keys
-
-        frame = frame.loc[(group_keys(frame[group]) == label).to_numpy()]
     values = loaded.items.of(frame, names) if loaded.items is not None else None
     if values is None:
         values = item_values(frame, names)
+    return _pairs_answered_by_few(names, frame, values, few)
+
+
+def _pairs_answered_by_few(names: tuple[str, ...], frame: pd.DataFrame, values: np.ndarray | None,
+                           few: tuple[str, ...] = (), label: str | None = None, rows_of: np.ndarray | None = None
+                           ) -> tuple:
+    """The caution of :func:`_few_together_problems` from the items' ``values`` (None: not plain numbers) of the
+    rows analysed of ``frame``, or of those ``rows_of`` selects (a group's, whose values ``values`` then are): the
+    frame's rows are taken out only when the caution names them."""
+    from cfa_tool.data.kept_rows import rows_listed
+    from cfa_tool.data.moments import FEW_TOGETHER_SHARE, pairs_answered_together
+
     if values is None or len(names) < 2:  # not plain numbers: the reading of the items names what is wrong
         return ()
     answered = ~np.isnan(values)
@@ -1740,6 +1753,8 @@ def _few_together_problems(names: tuple[str, ...], loaded: LoadedData, group: st
     found = pairs_answered_together(answered[rows], names, FEW_TOGETHER_SHARE, few)
     if not found:
         return ()
+    if rows_of is not None:
+        frame = frame.loc[rows_of]
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     n = int(rows.sum())
@@ -1806,7 +1821,8 @@ def _few_answers_in_groups(names: tuple[str, ...], loaded: LoadedData, group: st
             f"check why so few of the group's rows answer {'it' if one else 'them'} (a question put to some groups "
             f"only, an import that lost answers).", group=label))
     for label in labels:  # then the pairs answered together by few of a group's rows, without the items said
-        found.extend(_few_together_problems(names, loaded, group, few_items.get(label, ()), label))
+        mine = keys == label
+        found.extend(_pairs_answered_by_few(names, frame, values[mine], few_items.get(label, ()), label, mine))
     return tuple(found)
 
 
