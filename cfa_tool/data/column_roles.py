@@ -92,17 +92,35 @@ def id_named_column(frame: pd.DataFrame, skip) -> str | None:
              and unit_word(c) is None]  # a team's or a school's id names no row (:data:`UNIT_WORDS`)
     counts = []
     for name in named:
-        values = frame[name].dropna()
-        if not len(values):
+        distinct, held = distinct_values(frame, name)
+        if not held:
             continue
-        try:
-            distinct = values.nunique()
-        except TypeError:  # cells pandas cannot hash: compared as text
-            distinct = values.astype(str).nunique()
-        if distinct == len(values):
+        if distinct == held:
             return None
         counts.append((distinct, name))
     return max(counts, key=lambda c: c[0])[1] if counts else None
+
+
+def distinct_values(frame: pd.DataFrame, name: str) -> tuple[int, int]:
+    """(the different values of ``frame``'s column ``name``, its cells holding a value): pandas' nunique() of the
+    column without its empty cells, cells pandas cannot hash compared as text; read from the column's stored array
+    where the frame's names are unique (data.moments.stored_column: without the Series and its copies that each
+    selection and dropna() build, which cost more than the count on a questionnaire's data)."""
+    from cfa_tool.data.moments import stored_column
+
+    if frame.columns.is_unique:
+        values = stored_column(frame, frame.columns.get_loc(name))
+        values = values[~pd.isna(values)]
+        try:
+            return len(pd.unique(values)), len(values)
+        except TypeError:  # cells pandas cannot hash: compared as text, below
+            pass
+    values = frame[name].dropna()
+    try:
+        distinct = values.nunique()
+    except TypeError:  # cells pandas cannot hash: compared as text
+        distinct = values.astype(str).nunique()
+    return distinct, len(values)
 
 
 #: the fewest units a column named for the unit alone ('Team', 'school') must hold to be taken for units of many
@@ -118,13 +136,9 @@ def unit_id_column(frame: pd.DataFrame, skip) -> tuple[str, str] | None:
     which a fit takes for independent cases unless the units are the design's clusters."""
     for name in frame.columns.tolist():
         if isinstance(name, str) and name not in skip and (word := unit_word(name)) is not None:
-            values = frame[name].dropna()
-            try:
-                distinct = values.nunique()
-            except TypeError:  # cells pandas cannot hash: compared as text
-                distinct = values.astype(str).nunique()
+            distinct, held = distinct_values(frame, name)
             fewest = 1 if column_role(name) == IDS else UNITS_NAMED_ALONE_AT_LEAST
-            if fewest <= distinct < len(values):
+            if fewest <= distinct < held:
                 return name, word
     return None
 

@@ -9,15 +9,22 @@ completed rows, plus the conditional covariances.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 
 from cfa_tool.errors import EstimationError
-from cfa_tool.data.patterns import PatternData, missing_groups
+from cfa_tool.data.patterns import PatternData
+from cfa_tool.numerics.linalg import inverse
 
 
 def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float = 1e-10) -> tuple[np.ndarray, np.ndarray, int]:
     """(mean, covariance with divisor N, iterations) of the unrestricted normal model; with row weights
-    (``data.weights``) every mean and sum of the M-step is weighted (divisor the sum of the weights)."""
+    (``data.weights``) every mean and sum of the M-step is weighted (divisor the sum of the weights).
+
+    Each E-step inverts L_mm once per missing-data pattern, not once per row (:class:`_Batch`), and the conditional
+    covariances enter the M-step as each pattern's weight (the sum of its rows' weights, ``data.counts``) times its
+    own, added into the p x p matrix at once."""
     rows = data.rows
     w = data.row_weights
     total = float(w.sum())
@@ -25,21 +32,27 @@ def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float
     n, p = rows.shape
     mu, var = weighted_available_moments(rows, w)
     sigma = np.diag(np.where(var > 0, var, 1.0))
-    groups = list(missing_groups(mask))  # rows grouped by how many answers they miss, with the columns they miss
+    batches = _batches(data)
+    cells = np.concatenate([b.blocks for b in batches]) if batches else np.zeros(0, dtype=np.intp)
+    pattern_weights = [b.weights[:, None, None] for b in batches]
+    filled = np.where(mask, rows, 0.0)
     for iteration in range(1, max_iterations + 1):
         try:
-            precision = np.linalg.inv(sigma)
+            precision = inverse(sigma)
         except np.linalg.LinAlgError:
             raise SingularCovariance(sigma, mu) from None
-        dev = np.where(mask, rows - mu, 0.0)
+        dev = np.where(mask, filled - mu, 0.0)
         completed = mu + dev
-        extra = np.zeros((p, p))
-        for which, miss in groups:
-            block = precision[miss[:, :, None], miss[:, None, :]]  # L_mm of each row
-            cond = np.linalg.inv(block)  # covariance of the missing part given the observed part
-            side = np.einsum("rkp,rp->rk", precision[miss], dev[which])  # L_mo (x_o - mu_o)
-            completed[which[:, None], miss] = mu[miss] - np.einsum("rkj,rj->rk", cond, side)
-            np.add.at(extra, (miss[:, :, None], miss[:, None, :]), cond * w[which, None, None])
+        flat = completed.reshape(-1)  # the same memory: the rows' cells in order
+        weighted = []
+        for batch, weight in zip(batches, pattern_weights):
+            cond = inverse(precision.take(batch.blocks).reshape(batch.shape))  # (L_mm)^-1 of each pattern
+            side = precision[batch.missing] @ dev[batch.rows, :, None]  # L_mo (x_o - mu_o) of each row
+            # mu_m - (L_mm)^-1 L_mo (x_o - mu_o): each row's missing part given its observed part
+            flat[batch.cells] = (mu[batch.missing] - (cond[batch.pattern] @ side)[:, :, 0]).ravel()
+            weighted.append((cond * weight).ravel())
+        extra = (np.bincount(cells, weights=np.concatenate(weighted), minlength=p * p).reshape(p, p) if batches
+                 else 0.0)
         new_mu = w @ completed / total
         centred = completed - new_mu
         new_sigma = ((centred * w[:, None]).T @ centred + extra) / total
@@ -52,6 +65,42 @@ def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float
     if _smallest_share(sigma) < 1e-5:
         raise EstimationError(_no_maximum(sigma, max_iterations))
     raise EstimationError(f"the saturated model for the incomplete data did not converge in {max_iterations} EM iterations")
+
+
+@dataclass(frozen=True)
+class _Batch:
+    """The patterns missing m > 0 answers and their rows, as an E-step takes them, laid out once before the
+    iterations: indices into the p x p precision matrix and into the (n, p) completed rows."""
+
+    shape: tuple[int, int, int]  # (patterns, m, m)
+    blocks: np.ndarray  # the cells of a p x p matrix of each pattern's m x m block of missing items (flat)
+    weights: np.ndarray  # each pattern's weight (the sum of its rows' weights)
+    rows: np.ndarray  # the rows of these patterns
+    pattern: np.ndarray  # each row's pattern among them
+    missing: np.ndarray  # each row's missing columns (rows, m)
+    cells: np.ndarray  # each row's missing cells in the (n, p) rows (flat, row by row)
+
+
+def _batches(data: PatternData) -> list[_Batch]:
+    """One :class:`_Batch` for each number m > 0 of missing answers among the patterns."""
+    observed = data.observed
+    P, p = observed.shape
+    n_missing = p - observed.sum(axis=1)
+    place = np.full(P, -1)
+    batches = []
+    for m in np.unique(n_missing):
+        if m == 0:
+            continue
+        patterns = np.flatnonzero(n_missing == m)
+        miss = np.nonzero(~observed[patterns])[1].reshape(len(patterns), m)
+        place[patterns] = np.arange(len(patterns))
+        rows = np.flatnonzero(n_missing[data.index] == m)
+        local = place[data.index[rows]]
+        missing = miss[local]
+        batches.append(_Batch((len(patterns), int(m), int(m)), (miss[:, :, None] * p + miss[:, None, :]).ravel(),
+                              data.counts[patterns].astype(float), rows, local, missing,
+                              (rows[:, None] * p + missing).ravel()))
+    return batches
 
 
 class SingularCovariance(EstimationError):

@@ -2363,6 +2363,8 @@ def _keep_number_spellings(frame: pd.DataFrame, raw: _RawCells) -> None:
         if distinct > MAX_SPELLED_VALUES:
             continue
         cells = raw.column(position)[present]
+        if len(set(cells.tolist())) == distinct:  # one text per number (each text reads as one number): no two
+            continue  # spellings, without stripping every cell
         pairs = set(zip(values.tolist(), (c.strip() for c in cells)))
         if len(pairs) == distinct:
             continue

@@ -10,6 +10,7 @@ weights.  The effective sample size is Kish's (1965) (sum w)^2 / sum w^2.
 from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
+from functools import cached_property
 
 import numpy as np
 import pandas as pd
@@ -71,11 +72,25 @@ class RowDesign:
 
     def sampling_units(self) -> tuple[np.ndarray, np.ndarray]:
         """(the sampling unit of each row, the stratum code of each unit): units are the clusters, or the rows
-        when strata come without clusters; one stratum (code 0) when none is given."""
+        when strata come without clusters; one stratum (code 0) when none is given.  Units in the order of their
+        (stratum, cluster) pairs; made once per design (read-only arrays), which the meats of a fit ask for many
+        times."""
+        return self._sampling_units
+
+    @cached_property
+    def _sampling_units(self) -> tuple[np.ndarray, np.ndarray]:
         units = self.clusters if self.clusters is not None else np.arange(len(self.weights))
         strata = self.strata if self.strata is not None else np.zeros(len(self.weights), dtype=int)
-        pairs, unit_of_row = np.unique(np.stack([strata, units], axis=1), axis=0, return_inverse=True)
-        return unit_of_row.ravel(), pairs[:, 0]
+        if len(units):  # each (stratum, unit) pair as one whole number that sorts as the pairs do
+            shifted = units.astype(np.int64) - int(units.min())
+            key = (strata.astype(np.int64) - int(strata.min())) * (int(shifted.max()) + 1) + shifted
+        else:
+            key = np.zeros(0, dtype=np.int64)
+        _, first, unit_of_row = np.unique(key, return_index=True, return_inverse=True)
+        unit_of_row = unit_of_row.ravel()
+        stratum_of_unit = strata[first].astype(np.result_type(strata, units))
+        unit_of_row.flags.writeable = stratum_of_unit.flags.writeable = False
+        return unit_of_row, stratum_of_unit
 
     def lone_strata(self) -> tuple[str, ...]:
         """The strata with a single sampling unit (cluster, or row without clusters) among these rows, by name."""
@@ -851,28 +866,34 @@ FEWEST_EFFECTIVE_ROWS = 2.0
 MAX_FREQUENCY_TOTAL = 1e9
 
 
-def row_design(frame: pd.DataFrame, columns: DesignColumns, kept: np.ndarray, part: np.ndarray | None = None) -> RowDesign:
+def row_design(frame: pd.DataFrame, columns: DesignColumns, kept: np.ndarray, part: np.ndarray | None = None,
+               read: tuple | None = None) -> RowDesign:
     """The design of the rows ``kept`` (a mask over the rows of ``frame`` in ``part``, a mask over ``frame``; all of
     them when None), sampling weights rescaled to sum to their number; cluster and stratum codes are those of the
-    whole ``frame``, so that they mean the same in every group."""
+    whole ``frame``, so that they mean the same in every group.  ``read``: the design columns of the whole ``frame``
+    as :func:`design_columns_read` reads them (read here when not given), for a caller that takes several parts."""
     part = np.ones(len(frame), dtype=bool) if part is None else part
-    if columns.weights is not None:
-        w = pd.to_numeric(frame[columns.weights]).to_numpy(dtype=float)[part][kept]
-    else:
-        w = np.ones(int(kept.sum()))
+    weights, coded = read if read is not None else design_columns_read(frame, columns)
+    w = weights[part][kept] if weights is not None else np.ones(int(kept.sum()))
     given = (float(w.sum()), float(w @ w))
     if columns.kind is WeightKind.SAMPLING:
         w = w * (len(w) / w.sum())
-    codes, names = [], []
+    codes = [code[part][kept] if code is not None else None for code, _ in coded]
+    return RowDesign(w, columns.kind, *codes, given=given, cluster_names=coded[0][1], strata_names=coded[1][1])
+
+
+def design_columns_read(frame: pd.DataFrame, columns: DesignColumns) -> tuple:
+    """(the weights of ``frame``'s rows or None, [(each row's cluster code, the clusters' names), (the same of the
+    strata)], (None, ()) for a column not given): the codes by the labels of the whole frame (:func:`_labels`)."""
+    weights = (pd.to_numeric(frame[columns.weights]).to_numpy(dtype=float) if columns.weights is not None else None)
+    coded = []
     for name in (columns.cluster, columns.strata):
         if name is None:
-            codes.append(None)
-            names.append(())
+            coded.append((None, ()))
             continue
         code, labels = pd.factorize(_labels(frame[name]).to_numpy())
-        codes.append(code[part][kept])
-        names.append(tuple(str(label) for label in labels))
-    return RowDesign(w, columns.kind, *codes, given=given, cluster_names=names[0], strata_names=names[1])
+        coded.append((code, tuple(str(label) for label in labels)))
+    return weights, coded
 
 
 def kept_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, missing) -> np.ndarray:
@@ -962,8 +983,9 @@ def apply_design(groups: list, frame: pd.DataFrame, group_column: str | None, na
     """Each group's (label, SampleMoments) with the design of its rows attached."""
     out = []
     keys = _labels(frame[group_column]) if group_column is not None else None
+    read = design_columns_read(frame, columns)  # the design columns of every row, read once for every group
     for label, moments in groups:
         part = (keys == label).to_numpy() if keys is not None else np.ones(len(frame), dtype=bool)
         kept = kept_rows(frame.loc[part], names, source, missing)
-        out.append((label, with_row_design(moments, row_design(frame, columns, kept, part))))
+        out.append((label, with_row_design(moments, row_design(frame, columns, kept, part, read))))
     return out

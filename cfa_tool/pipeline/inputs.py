@@ -7,7 +7,7 @@ import os
 from typing import TYPE_CHECKING
 from collections import Counter
 from contextlib import contextmanager
-from dataclasses import replace
+from dataclasses import dataclass, replace
 from types import SimpleNamespace
 from functools import lru_cache
 from pathlib import Path
@@ -979,7 +979,7 @@ def shifted_scale_problems(loaded: LoadedData, group: str | None, names: tuple[s
     shift: a coding slip reads as a difference of the item's intercept (or thresholds) between the groups, and
     the search of partial invariance frees it (hostile trial s25, finding 4).  () without groups or shifts."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
-    from cfa_tool.data.groups import group_rows
+    from cfa_tool.data.groups import group_keys, group_labels, group_rows
     from cfa_tool.data.shifted_scales import shifted_scales
     from cfa_tool.language.names import written_group
 
@@ -988,9 +988,17 @@ def shifted_scale_problems(loaded: LoadedData, group: str | None, names: tuple[s
     items = [name for name in names if name in loaded.frame.columns]
     if not items:
         return ()
-    split, _ = group_rows(_labelled(loaded.frame, group), group, loaded.source)
-    groups = [(f"group {written_group(label, [x for x, _ in split])}",
-               part[items].apply(pd.to_numeric, errors="coerce").to_numpy(float)) for label, part in split]
+    frame = _labelled(loaded.frame, group)
+    values = loaded.items.of(frame, items) if loaded.items is not None else None
+    values = values if values is not None else item_values(frame, items)  # numbers: taken out once, split by rows
+    if values is not None:
+        labels = group_labels(frame, group, loaded.source)
+        keys = group_keys(frame[group]).to_numpy(object)
+        parts = [(label, values[keys == label]) for label in labels]
+    else:  # cells that are not numbers: read as numbers where they are, group by group
+        split, _ = group_rows(frame, group, loaded.source)
+        parts = [(label, part[items].apply(pd.to_numeric, errors="coerce").to_numpy(float)) for label, part in split]
+    groups = [(f"group {written_group(label, [x for x, _ in parts])}", part) for label, part in parts]
     found = shifted_scales(items, groups)
     if not found:
         return ()
@@ -1383,29 +1391,83 @@ def _same_answers_again(found: tuple, frame: pd.DataFrame, items) -> tuple[tuple
     to every item in ``items`` as it, empty cells alike) for each id that has such rows (a respondent who submitted
     twice), and the ids left to several rows without those later rows."""
     items = [x for x in items if x in frame.columns]
-    place = pd.Series(np.arange(len(frame)), index=row_numbers(frame))
-    if not items or not place.index.is_unique:
+    if not items:
+        return (), found
+    placed = _rows_of_each_id(found, frame)
+    if placed is None:
         return (), found
     answers = frame[items]
+    repeats = _repeats_within(answers, placed)
     twice, rest = [], []
-    for value, rows in found:
-        at = place.reindex(list(rows)).dropna().astype(int)
+    for (value, rows), (at, numbers) in zip(found, placed.each):
         if len(at) < 2:
             rest.append((value, rows))
             continue
-        block = answers.iloc[at.to_numpy()]
-        try:
-            again = block.duplicated(keep="first").to_numpy()
-        except TypeError:  # cells pandas cannot hash: compared as text
-            again = block.astype(str).duplicated(keep="first").to_numpy()
-        later = tuple(int(r) for r in at.index[again])
+        again = repeats[at] if repeats is not None else _repeats_of(answers.iloc[at])
+        later = tuple(int(r) for r in numbers[again])
         if later:
-            original = int(at.index[~again][0])
+            original = int(numbers[~again][0])
             twice.append((value, original, later))
         left = tuple(r for r in rows if r not in later)
         if len(left) > 1:
             rest.append((value, left))
     return tuple(twice), tuple(rest)
+
+
+@dataclass(frozen=True)
+class _PlacedIds:
+    """The rows of each repeated id (:func:`ids_of_several_rows`) placed in the frame they were read for: every id's
+    rows that the frame holds, one block after another (``positions``, ``owners``: the id's place in ``found``), and
+    for each id its positions in the frame and its rows' numbers (``each``; in the order ``found`` lists them)."""
+
+    positions: np.ndarray
+    owners: np.ndarray
+    each: list
+
+
+def _rows_of_each_id(found: tuple, frame: pd.DataFrame) -> _PlacedIds | None:
+    """:class:`_PlacedIds` of ``found`` in ``frame``; None when the frame's row numbers repeat (rows cannot be told
+    apart by number)."""
+    numbers = pd.Index(row_numbers(frame))
+    if not numbers.is_unique:
+        return None
+    listed = [r for _, rows in found for r in rows]
+    where = numbers.get_indexer(listed) if listed else np.zeros(0, dtype=np.intp)
+    listed = np.asarray(listed, dtype=object)
+    each, positions, owners, start = [], [], [], 0
+    for k, (_, rows) in enumerate(found):
+        at = where[start:start + len(rows)]
+        held = at >= 0
+        each.append((at[held], listed[start:start + len(rows)][held]))
+        positions.append(at[held])
+        owners.append(np.full(int(held.sum()), k))
+        start += len(rows)
+    return _PlacedIds(np.concatenate(positions) if positions else np.zeros(0, dtype=np.intp),
+                      np.concatenate(owners) if owners else np.zeros(0, dtype=np.intp), each)
+
+
+def _repeats_of(block: pd.DataFrame) -> np.ndarray:
+    """Which rows of ``block`` are identical in every column to an earlier row of it (cells pandas cannot hash
+    compared as text)."""
+    try:
+        return block.duplicated(keep="first").to_numpy()
+    except TypeError:
+        return block.astype(str).duplicated(keep="first").to_numpy()
+
+
+def _repeats_within(columns: pd.DataFrame, placed: _PlacedIds) -> np.ndarray | None:
+    """For every row of the frame, whether it is identical in ``columns`` to an earlier row of the same repeated id
+    (:class:`_PlacedIds`), by one comparison of every id's rows with the id beside them (a comparison per id took
+    seconds at 600 ids); None when a cell cannot be hashed (each id's rows are then compared apart, as text)."""
+    block = columns.iloc[placed.positions].set_axis(range(columns.shape[1]), axis=1)
+    block[columns.shape[1]] = placed.owners
+    try:
+        again = block.duplicated(keep="first").to_numpy()
+    except TypeError:
+        return None
+    out = np.zeros(len(columns), dtype=bool)
+    out[placed.positions] = again
+    return out
 
 
 def _submitted_twice_problem(twice: tuple, frame: pd.DataFrame, id_column: str | None, items, naming, lines,
@@ -1448,21 +1510,18 @@ def _without_copies(found: tuple, frame: pd.DataFrame) -> tuple:
     ids, and deleting the copies mends their ids too; the ids left to several rows after that."""
     from cfa_tool.data.copied_rows import numbering_column
 
-    place = pd.Series(np.arange(len(frame)), index=row_numbers(frame))
-    if not place.index.is_unique:
+    placed = _rows_of_each_id(found, frame)
+    if placed is None:
         return found
     numbering = numbering_column(frame)
     compared = frame.drop(columns=[numbering]) if numbering is not None else frame
+    repeats = _repeats_within(compared, placed)
     kept = []
-    for value, rows in found:
-        at = place.reindex(list(rows)).dropna().astype(int)
+    for (value, rows), (at, numbers) in zip(found, placed.each):
         copies: set = set()
         if len(at) > 1:
-            try:
-                repeat = compared.iloc[at.to_numpy()].duplicated(keep="first").to_numpy()
-            except TypeError:  # cells pandas cannot hash: compared as text
-                repeat = compared.iloc[at.to_numpy()].astype(str).duplicated(keep="first").to_numpy()
-            copies = set(at.index[repeat].tolist())
+            repeat = repeats[at] if repeats is not None else _repeats_of(compared.iloc[at])
+            copies = set(numbers[repeat].tolist())
         rest = tuple(r for r in rows if r not in copies)
         if len(rest) > 1:
             kept.append((value, rest))
@@ -1673,25 +1732,30 @@ def few_answers_problems(names: tuple[str, ...], coverage: dict, n_obs: int | No
 
 
 def _few_together_problems(names: tuple[str, ...], loaded: LoadedData, group: str | None,
-                           few: tuple[str, ...] = (), label: str | None = None) -> tuple:
+                           few: tuple[str, ...] = ()) -> tuple:
     """The caution on pairs of items answered together by fewer than data.moments.FEW_TOGETHER_SHARE of the rows
-    analysed (the rows of ``loaded`` with a model item answered; with ``label``, those of that group of ``group``):
+    analysed (the rows of ``loaded`` with a model item answered; each group's apart, :func:`_pairs_answered_by_few`):
     their correlation (a polychoric one, or with full-information ML the covariance) rests on those rows alone,
     however many answer each item (hostile trial s16, case 06: 3 of 471 rows answered both clean and temperature,
     said only inside a note).  Pairs with an item of ``few`` (answered by few rows, said by its own caution) are
     left out.  One caution naming each pair, its rows answering both and, for the fewest, those rows."""
-    from cfa_tool.data.kept_rows import rows_listed
-    from cfa_tool.data.moments import FEW_TOGETHER_SHARE, pairs_answered_together
-
     names = tuple(names)
     frame = _labelled(loaded.frame, group)
-    if label is not None:
-        from cfa_tool.data.groups import group_keys
-
-        frame = frame.loc[(group_keys(frame[group]) == label).to_numpy()]
     values = loaded.items.of(frame, names) if loaded.items is not None else None
     if values is None:
         values = item_values(frame, names)
+    return _pairs_answered_by_few(names, frame, values, few)
+
+
+def _pairs_answered_by_few(names: tuple[str, ...], frame: pd.DataFrame, values: np.ndarray | None,
+                           few: tuple[str, ...] = (), label: str | None = None, rows_of: np.ndarray | None = None
+                           ) -> tuple:
+    """The caution of :func:`_few_together_problems` from the items' ``values`` (None: not plain numbers) of the
+    rows analysed of ``frame``, or of those ``rows_of`` selects (a group's, whose values ``values`` then are): the
+    frame's rows are taken out only when the caution names them."""
+    from cfa_tool.data.kept_rows import rows_listed
+    from cfa_tool.data.moments import FEW_TOGETHER_SHARE, pairs_answered_together
+
     if values is None or len(names) < 2:  # not plain numbers: the reading of the items names what is wrong
         return ()
     answered = ~np.isnan(values)
@@ -1699,6 +1763,8 @@ def _few_together_problems(names: tuple[str, ...], loaded: LoadedData, group: st
     found = pairs_answered_together(answered[rows], names, FEW_TOGETHER_SHARE, few)
     if not found:
         return ()
+    if rows_of is not None:
+        frame = frame.loc[rows_of]
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     n = int(rows.sum())
@@ -1765,7 +1831,8 @@ def _few_answers_in_groups(names: tuple[str, ...], loaded: LoadedData, group: st
             f"check why so few of the group's rows answer {'it' if one else 'them'} (a question put to some groups "
             f"only, an import that lost answers).", group=label))
     for label in labels:  # then the pairs answered together by few of a group's rows, without the items said
-        found.extend(_few_together_problems(names, loaded, group, few_items.get(label, ()), label))
+        mine = keys == label
+        found.extend(_pairs_answered_by_few(names, frame, values[mine], few_items.get(label, ()), label, mine))
     return tuple(found)
 
 

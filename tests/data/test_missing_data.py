@@ -393,3 +393,41 @@ def test_an_item_answered_by_few_rows_is_named_first():
     found = cfa_tool.fit("factor f: a, b, c, d, e\n", grouped, missing="listwise", group="site")
     said = [p.explanation for p in found.problems if p.kind is ProblemKind.FEW_ANSWERS]
     assert len(said) == 2 and all("'e' (90 of 1,200 rows)" in " ".join(str(s).split()) for s in said)
+
+
+def test_em_with_weights_and_many_patterns_maximises_the_observed_data_likelihood():
+    """EM's moments (each pattern's conditional covariance inverted once and weighted by the sum of its rows'
+    weights) are the maximum of the weighted observed-data log-likelihood sum_i w_i log phi(x_io; mu_o, Sigma_oo)
+    (Little & Rubin 2002, sec. 8.2 and 11.2), each row's density by scipy.stats: its derivative along every mean and
+    every (co)variance, by central differences, is zero, and a step either way lowers it."""
+    from scipy import stats
+
+    rng = np.random.default_rng(8)
+    n, p = 240, 4
+    rows = rng.normal(size=(n, 1)) * np.array([1.0, 0.8, 0.6, 0.9]) + rng.normal(scale=0.7, size=(n, p))
+    rows[rng.random((n, p)) < np.array([0.0, 0.15, 0.3, 0.2])] = np.nan  # many patterns, one to three gaps
+    weights = rng.uniform(0.3, 3.0, n)
+    data = pattern_data(rows, weights)
+    assert len(data.counts) >= 7 and data.observed.sum(axis=1).min() == 1
+    mu, sigma, _ = em_saturated(data)
+
+    patterns = [(o, ~np.isnan(rows) == o) for o in {tuple(~np.isnan(x)) for x in rows}]
+    patterns = [(np.array(o), same.all(axis=1)) for o, same in patterns]
+
+    def log_likelihood(m, s):  # each pattern's rows at once
+        return sum(weights[at] @ np.atleast_1d(stats.multivariate_normal.logpdf(rows[np.ix_(at, o)], m[o], s[np.ix_(o, o)]))
+                   for o, at in patterns)
+
+    at = log_likelihood(mu, sigma)
+    h = 1e-5
+    for j in range(p):
+        e = np.zeros(p)
+        e[j] = h
+        up, down = log_likelihood(mu + e, sigma), log_likelihood(mu - e, sigma)
+        assert abs(up - down) / (2 * h) < 1e-5 * weights.sum() and up < at and down < at
+    for j in range(p):
+        for k in range(j + 1):
+            E = np.zeros((p, p))
+            E[j, k] = E[k, j] = h
+            up, down = log_likelihood(mu, sigma + E), log_likelihood(mu, sigma - E)
+            assert abs(up - down) / (2 * h) < 1e-5 * weights.sum() and up < at and down < at
