@@ -512,8 +512,11 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
         cov = (centred * w[:, None]).T @ centred / w.sum()
     factor = _check_moments(cov, means, names, source)
     numbers = row_numbers(frame) if every_row else row_numbers(frame)[complete]
+    # of the rows left out, those that answered nothing, which full-information ML would leave out too
+    unanswered = None if every_row else row_numbers(frame)[np.isnan(values).all(axis=1)]
     return SampleMoments(tuple(names), cov, means, n, len(frame), len(frame) - n, file_source, group, data, numbers,
-                         row_naming=row_naming(frame), text_lines=text_lines(frame), factor=factor, extremes=extremes)
+                         row_naming=row_naming(frame), text_lines=text_lines(frame), factor=factor, extremes=extremes,
+                         unanswered_rows=unanswered)
 
 
 def moments_with_gaps(values: np.ndarray, names: tuple[str, ...], source: str,

@@ -32,6 +32,7 @@ from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.pipeline.continuous import (fit_moments, full_information_instead, pairwise_instead,
                                           full_information_likelihood, listwise_problem, model_structure,
+                                          unanswered_problem,
                                           ordered_moments, unestimated)
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import ORDINAL_FIT_CHANGE_WHY, FitTest, MissingData
@@ -346,6 +347,9 @@ def _with_data_problems(found: Comparison, loaded, specs, group, design, dropped
     if found.missing is not MissingData.FULL_INFORMATION and not pairwise and dropped:  # after the data's, as in fit
         left = listwise_problem(dropped, found.n_obs + dropped, " from every model",
                                 pairwise_instead() if ordinal else full_information_instead())
+        found_all += [left] if left is not None else []
+    elif dropped:  # full-information ML or pairwise present rows: rows that answered none of some model's variables
+        left = unanswered_problem(dropped, found.n_obs + dropped, what="none of some model's variables")
         found_all += [left] if left is not None else []
     # the data's cautions, then those the comparison found of its answers (answers far from normal)
     return replace(found, results=tuple(results), problems=tuple(dict.fromkeys(found_all + list(found.problems))))
