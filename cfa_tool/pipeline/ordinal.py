@@ -226,7 +226,8 @@ def _left_out(moments, where: str = "") -> tuple:
     if moments.pairwise:  # the rows left out answered no model variable: a caution when many (as fit's, s28)
         found = unanswered_problem(moments.rows_dropped, moments.rows_read, where)
     else:
-        found = listwise_problem(moments.rows_dropped, moments.rows_read, where, pairwise_instead())
+        found = listwise_problem(moments.rows_dropped, moments.rows_read, where, pairwise_instead(),
+                                 getattr(moments, "unanswered", 0))
     return (found,) if found is not None else ()
 
 

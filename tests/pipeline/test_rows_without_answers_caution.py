@@ -72,6 +72,10 @@ def test_groups_and_ordinal_items_say_it_first_too():
     ordinal = cfa_tool.fit(MODEL, _data(100, ordinal=True), ordinal="all")
     first = ordinal.problems[0]
     assert first.kind is ProblemKind.ROWS_WITHOUT_ANSWERS and first.value == 100
+    listwise = cfa_tool.fit(MODEL, _data(100, ordinal=True), ordinal="all", missing="listwise")
+    [left] = [p for p in listwise.problems if p.kind is ProblemKind.ROWS_LEFT_OUT]
+    assert "(100 of them answered no model variable at all)" in str(left.explanation)
+    assert "would keep the 1 row with some answers" in str(left.advice)
 
 
 def test_compare_says_it_first_and_counts_them_listwise():
