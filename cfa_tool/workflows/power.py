@@ -30,9 +30,10 @@ TESTS = {  # name: (eps0, eps_a), the conventions of MacCallum, Browne & Sugawar
 
 
 def fewest_rows(variables: int) -> int:
-    """The fewest rows of ``variables`` items a model is estimated from at all, two more than the items (with no more
-    the sample covariance matrix is singular or leaves no degree of freedom beside it; a factor analysis needs far
-    more): the least N a plan shows and the least each simulated data set of power-simulation takes."""
+    """The fewest rows of ``variables`` items a model is estimated from at all, two more than the items (n centred
+    rows have rank n - 1 at most, so the sample covariance matrix of p items needs n >= p + 1, and one row more leaves
+    it a margin; a factor analysis needs far more): the least N a plan shows and the least each simulated data set of
+    power-simulation takes."""
     return variables + 2
 
 
