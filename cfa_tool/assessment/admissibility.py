@@ -154,6 +154,10 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the data: more than a share of the rows left out listwise for a missing answer
     # (pipeline.continuous.listwise_problem): the rows kept may differ from those left out
     ROWS_LEFT_OUT = ("rows left out listwise", "rows left out", False)
+    # not of the solution but of the data: more than the same share of the rows left out because they answered no
+    # model variable (pipeline.continuous.unanswered_problem: survey break-offs, say), by full-information ML or
+    # pairwise present rows, which keep every row with an answer
+    ROWS_WITHOUT_ANSWERS = ("rows that answered no model variable", "rows without answers", False)
     # not of the solution but of the data: a group with fewer rows than its model has free parameters
     SMALL_GROUP = ("group smaller than its model", "fewer rows than parameters", False)
     # not of the solution but of the data: a group every row of which has weight 0, so not in the analysis
@@ -572,6 +576,7 @@ class Problem:
             K.FEW_ANSWERS: "items answered by few of the rows",
             K.FEW_ANSWERED_TOGETHER: "pairs of items answered together by few of the rows",
             K.ROWS_LEFT_OUT: f"{rows} left out listwise for a missing answer",
+            K.ROWS_WITHOUT_ANSWERS: f"{rows} left out because they answered no model variable",
             K.SCALE_ENDS_UNREACHED: "a scale declared for reverse-keyed items whose ends no answer reaches",
             K.NEARLY_CONSTANT: "items answered alike by all rows but a few",
             K.SELECTED_ON_ITEM: "a row filter selecting rows by their answers to a model item (range restriction)",

@@ -249,6 +249,36 @@ def stray_word_message(source: str, name: str, shown: str, where: str, word: str
             + _no_answer_advice([word], given))
 
 
+_DECIMAL_COMMA = re.compile(r"[-+]?\d*,\d+")
+_WHOLE = re.compile(r"[-+]?\d+")
+_THOUSANDS = re.compile(r"[-+]?[1-9]\d{0,2},\d{3}")
+
+
+def decimal_commas(values) -> str:
+    """'a decimal comma' when every cell of ``values`` that holds a fraction writes it with a comma ('0,024'; the
+    others empty or whole numbers), as a comma-separated file of a decimal-comma locale quotes them; 'a comma (a decimal
+    comma, or a comma between thousands)' when each could separate thousands ('1,234', not '0,024'); '' otherwise."""
+    commas = []
+    for v in values:
+        if v is None or (isinstance(v, float) and v != v):
+            continue
+        if isinstance(v, (int, np.integer)) or (isinstance(v, (float, np.floating)) and float(v).is_integer()):
+            continue
+        text = str(v).strip() if isinstance(v, str) else None
+        if text is None:
+            return ""
+        if not text or _WHOLE.fullmatch(text):
+            continue
+        if not _DECIMAL_COMMA.fullmatch(text):
+            return ""
+        commas.append(text)
+    if not commas:
+        return ""
+    if all(_THOUSANDS.fullmatch(c) for c in commas):  # '0,024' is no thousands
+        return "a comma (a decimal comma, or a comma between thousands)"
+    return "a decimal comma"
+
+
 def text_cells(values) -> int:
     """The cells of ``values`` that hold text that is not a number (spaces alone are an empty cell)."""
     return sum(1 for v in values if isinstance(v, str) and v.strip() and strict_number(v.strip()) is None)
@@ -292,6 +322,13 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
             if text.lower() in ("true", "false"):
                 raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
             shown = clipped(text, 40)
+            commas = decimal_commas(values)
+            if commas:  # every number of the column written with a decimal comma (hostile tester s28, 08)
+                raise DataError(f"{source}: column '{printable(name)}' holds numbers written with {commas} ('{shown}' in "
+                                f"{cell_words(column, name, numbers[row])}, and so in every cell of the column that "
+                                f"holds a fraction), which were read as text; write the decimals with points, or save "
+                                f"the file as CSV with semicolons between the fields, which is read with decimal "
+                                f"commas")
             if stray_text(values):  # a slip among numbers, not a column of words
                 raise DataError(stray_word_message(source, name, shown, cell_words(column, name, numbers[row]), text,
                                                    given_codes(column), values))
@@ -512,8 +549,11 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
         cov = (centred * w[:, None]).T @ centred / w.sum()
     factor = _check_moments(cov, means, names, source)
     numbers = row_numbers(frame) if every_row else row_numbers(frame)[complete]
+    # of the rows left out, those that answered nothing, which full-information ML would leave out too
+    unanswered = None if every_row else row_numbers(frame)[np.isnan(values).all(axis=1)]
     return SampleMoments(tuple(names), cov, means, n, len(frame), len(frame) - n, file_source, group, data, numbers,
-                         row_naming=row_naming(frame), text_lines=text_lines(frame), factor=factor, extremes=extremes)
+                         row_naming=row_naming(frame), text_lines=text_lines(frame), factor=factor, extremes=extremes,
+                         unanswered_rows=unanswered)
 
 
 def moments_with_gaps(values: np.ndarray, names: tuple[str, ...], source: str,

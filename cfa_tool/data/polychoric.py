@@ -92,6 +92,9 @@ class OrdinalMoments:
     #: between groups from the clusters they share (inference.design.ordinal_domains); the same matrix in every
     #: group's moments; None for one group or independent groups
     domains_gamma: np.ndarray | None = field(repr=False, default=None)
+    #: the rows read that answered none of the items, which pairwise present rows leave out too: of the rows
+    #: listwise deletion leaves out, those its caution's advice does not promise to keep
+    unanswered: int = 0
 
     @property
     def pairwise(self) -> bool:
@@ -507,7 +510,8 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
     return OrdinalMoments(tuple(names), n_obs, len(frame), len(frame) - n, source, tuple(categories), tuple(thresholds),
                           R, gamma, codes, means, sds, frozenset(continuous), joint_gamma,
                           pair_counts if pairwise else None, rows_design,
-                          joint if rows_design is not None else None, mixed_gamma)
+                          joint if rows_design is not None else None, mixed_gamma,
+                          unanswered=int((~answered.any(axis=1)).sum()))
 
 
 #: an item whose share in the eigenvector of the smallest eigenvalue of a correlation matrix is at least this (in

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from dataclasses import replace
 
-from cfa_tool.numbers import user_number
+from cfa_tool.numbers import user_number, word_list
 
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import Location, ModelError
@@ -569,6 +569,13 @@ def _check_indicator_counts(spec: Spec) -> None:
     constrained = (fixed_keys - set_apart) | {r.key() for g in spec.equal for r in g}
     exo = exogenous_factors(spec)
     zero = {p.key() for p in spec.uncorrelated}
+    # a covariance fixed at 0 in every group ('fix covariance(a, b) = 0') is 'uncorrelated a, b' by another name:
+    # a two-indicator factor needs a covariance other than zero with another factor (Bollen 1989, ch. 7, the
+    # two-indicator rule).  Fixed at another value it identifies the loadings: with marker loadings the
+    # covariance of the first items is that value, and each other loading is a covariance across the factors over it
+    fixed_zero = {r.key()[1]: r for s in spec.fixed for r in s.refs
+                  if r.group is None and r.kind == "covariance" and s.value == 0}
+    zero |= set(fixed_zero)
     covary_partners: dict[str, list[str]] = {}
     for pair in spec.covary:
         a, b = pair.key()
@@ -593,10 +600,12 @@ def _check_indicator_counts(spec: Spec) -> None:
             else:
                 partners = covary_partners.get(name) or ["(higher-order factor)"]
             if not partners and not loads_constrained:
+                fixes = [f"'fix {ref} = 0'" for pair, ref in fixed_zero.items() if name in pair]
+                by_fix = f" ({word_list(fixes)} holds its covariance at 0)" if fixes else ""
                 raise _fail(
                     spec,
-                    f"factor '{name}' has two indicators and no correlation with another factor, so it cannot be identified; "
-                    f"add an indicator, let it correlate with another factor, or set its loadings equal",
+                    f"factor '{name}' has two indicators and no correlation with another factor{by_fix}, so it cannot "
+                    f"be identified; add an indicator, let it correlate with another factor, or set its loadings equal",
                     factor.name.location,
                 )
 

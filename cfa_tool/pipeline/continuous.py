@@ -31,7 +31,7 @@ from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments, moments_with_gaps
 from cfa_tool.errors import CfaError, EstimationError, NotIdentified, OptionError
 from cfa_tool.language.names import written_group
-from cfa_tool.numbers import count_text
+from cfa_tool.numbers import count_text, counted
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
 from cfa_tool.estimation.optimizer import Outcome
 from cfa_tool.estimation.strategy import Alternative, search
@@ -405,18 +405,53 @@ def pairwise_instead() -> Note:
 
 
 def listwise_problem(dropped: int, read: int, where: str = "",
-                     instead: Note | None = None) -> Problem | None:
+                     instead: Note | None = None, unanswered: int = 0) -> Problem | None:
     """The caution on rows that listwise deletion left out for a missing answer, first in every view of every
     command: more than :data:`LISTWISE_WARNING_SHARE` of the rows read, whose loss may bias the estimates unless the
     answers are missing completely at random (Little & Rubin 2002); None for fewer.  ``instead`` names what would
-    use every answer they have (None: :func:`full_information_instead`)."""
+    use every answer they have (None: :func:`full_information_instead`); ``unanswered``: how many of the rows left
+    out answered no model variable, which it would leave out too, so that the advice counts only the rows it keeps
+    (hostile tester s28: 'would use every answer they have' of 336 break-offs of 337 rows)."""
     if dropped <= LISTWISE_WARNING_SHARE * read:
         return None
     instead = full_information_instead() if instead is None else instead
+    unanswered = min(max(int(unanswered), 0), dropped)
+    with_gaps = dropped - unanswered
+    none = "" if not unanswered else (
+        f" ({'all of them answered' if not with_gaps else f'{count_text(unanswered)} of them answered'} "
+        f"no model variable at all)")
+    if not unanswered:
+        advice = instead + " would use every answer they have."
+    elif not with_gaps:
+        advice = ("find out why these rows answered nothing (break-offs, rows of another questionnaire) and say in "
+                  "the report which rows were analysed; " + instead + " would leave them out too: they have no answer "
+                  "to use.")
+    else:
+        advice = instead + (f" would keep the {counted(with_gaps, 'row')} with some answers and use every answer "
+                            f"{'it has' if with_gaps == 1 else 'they have'}; the {count_text(unanswered)} that answered "
+                            f"no model variable stay out whatever the method: find out why they answered nothing.")
     return Problem(ProblemKind.ROWS_LEFT_OUT, (), float(dropped),
                    f"Listwise deletion left out {count_text(dropped)} of {count_text(read)} rows{where} ({100 * dropped / read:.0f}%) because "
-                   f"they miss an answer on a model variable, and the rows left out may differ from those kept.",
-                   instead + " would use every answer they have.")
+                   f"they miss an answer on a model variable{none}, and the rows left out may differ from those kept.",
+                   advice)
+
+
+def unanswered_problem(unanswered: int, read: int, where: str = "", listed: str = "",
+                       what: str = "no model variable") -> Problem | None:
+    """The caution on the rows a method that keeps every row with an answer (full-information ML, pairwise present
+    rows) left out because they answered no model variable, first in every view as listwise deletion's is: more
+    than the same share of the rows read (:data:`LISTWISE_WARNING_SHARE`; hostile tester s28: 336 of 480 rows
+    that held only an id and a district were said in the second note), since the rows analysed may then differ from
+    the sample read; None for fewer, which a note says.  ``listed``: the first of them named (' (rows 2, 3, ...)');
+    ``what`` they answered none of (compare: 'none of some model's variables')."""
+    if unanswered <= LISTWISE_WARNING_SHARE * read:
+        return None
+    return Problem(ProblemKind.ROWS_WITHOUT_ANSWERS, (), float(unanswered),
+                   f"{count_text(unanswered)} of {count_text(read)} rows{where} ({100 * unanswered / read:.0f}%) "
+                   f"answered {what} and were left out{listed}, so the "
+                   f"{count_text(read - unanswered)} rows analysed may differ from the rows read.",
+                   "find out why these rows answered nothing (break-offs, rows of another questionnaire, a wrong "
+                   "sheet or filter), and say in the report which rows were analysed and why the others were left out.")
 
 
 def listwise_line(dropped: int, read: int, analysed: int, where: str = "") -> str:
@@ -440,7 +475,8 @@ def rows_left_out(groups, missing: MissingData | None,
             continue
         where = f" in group {written_group(label, labels)}" if label is not None else ""
         if missing is MissingData.LISTWISE or missing is None:
-            caution = listwise_problem(dropped, read, where, instead)
+            unanswered = len(named[0]) if named and named[0] is not None else 0
+            caution = listwise_problem(dropped, read, where, instead, unanswered)
             if caution is not None:
                 cautions.append(caution)
             else:
@@ -451,6 +487,10 @@ def rows_left_out(groups, missing: MissingData | None,
             naming = named[2] if len(named) > 2 else RowNaming.FILE_ROW
             lines = named[3] if len(named) > 3 else None  # a text file's rows on lines of other numbers
             listed = " (" + rows_listed(rows, ids=ids, naming=naming, lines=lines) + ")" if len(rows) else ""
+            caution = unanswered_problem(dropped, read, where, listed)
+            if caution is not None:
+                cautions.append(caution)
+                continue
             notes.append(f"{count_text(dropped)} of {count_text(read)} {'row' if read == 1 else 'rows'}{where} answered none of the model "
                          f"variables and {'was' if dropped == 1 else 'were'} left out" + listed)
     return tuple(cautions), notes

@@ -44,7 +44,8 @@ from cfa_tool.model.parameters import ParameterTable, build_parameter_table, fix
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
 from cfa_tool.note_parts import Text
-from cfa_tool.pipeline.continuous import FitOptions, estimate_rows, pairwise_instead, listwise_line, listwise_problem
+from cfa_tool.pipeline.continuous import (FitOptions, estimate_rows, pairwise_instead, listwise_line, listwise_problem,
+                                          unanswered_problem)
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.pipeline.results import DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
@@ -217,11 +218,16 @@ def _pair_rows(moments, order: list[int]) -> tuple[tuple[str, str, int], ...]:
 
 
 def _left_out(moments, where: str = "") -> tuple:
-    """The caution on the rows listwise deletion left out (pipeline.continuous.listwise_problem), first in every
-    view; () with pairwise present rows or few rows left out (:func:`_rows_notes` then says them)."""
-    if moments.pairwise or not moments.rows_dropped:
+    """The caution on the rows listwise deletion left out (pipeline.continuous.listwise_problem), or with pairwise
+    present rows on those that answered no model variable (pipeline.continuous.unanswered_problem), first in every
+    view; () for few rows left out (:func:`_rows_notes` then says them)."""
+    if not moments.rows_dropped:
         return ()
-    found = listwise_problem(moments.rows_dropped, moments.rows_read, where, pairwise_instead())
+    if moments.pairwise:  # the rows left out answered no model variable: a caution when many (as fit's, s28)
+        found = unanswered_problem(moments.rows_dropped, moments.rows_read, where)
+    else:
+        found = listwise_problem(moments.rows_dropped, moments.rows_read, where, pairwise_instead(),
+                                 getattr(moments, "unanswered", 0))
     return (found,) if found is not None else ()
 
 
@@ -233,7 +239,7 @@ def _rows_notes(moments, order: list[int], where: str = "") -> list[str]:
             return []
         return [listwise_line(moments.rows_dropped, moments.rows_read, len(moments.codes), where)]
     out = []
-    if moments.rows_dropped:
+    if moments.rows_dropped and not _left_out(moments, where):
         out.append(f"{count_text(moments.rows_dropped)} of {count_text(moments.rows_read)} rows{where} answered no model "
                    f"variable and {'was' if moments.rows_dropped == 1 else 'were'} left out")
     if moments.gaps:

@@ -34,7 +34,7 @@ from cfa_tool.reporting.nested_power_report import boundary_words, nested_parts
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
 from cfa_tool.workflows.invariance import CONFIGURAL_INDICES
 from cfa_tool.workflows.nesting import REJECTED_RESTRICTION, BoundaryReading, heavy_tails_caution, rejects
-from cfa_tool.workflows.power import effective_shown
+from cfa_tool.workflows.power import effective_shown, fewest_rows
 
 SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
 CHECK_SOLUTIONS = "Check before interpreting these solutions"  # the cautions of several models' solutions
@@ -1752,6 +1752,13 @@ def rows_rule_caution(result) -> Note:
     one = len(below) == 1
     enough = ROWS_PER_PARAMETER * below[0].parameters
     sizes = [ceil(f.rows - 1e-9) for f in below] + [enough]  # independent rows, which power-simulation simulates
+    variables, raised = getattr(result, "variables", None), ""
+    if variables is not None and min(sizes) < fewest_rows(variables):
+        # no size power-simulation refuses (hostile tester s28: '--n 5,135' for 12 items)
+        least = fewest_rows(variables)
+        raised = (f"; {count_text(least)} rather than fewer: each simulated data set of {variables} items needs at "
+                  f"least {count_text(least)} rows")
+        sizes = sorted({max(n, least) for n in sizes})
     typed = [user_number(n) for n in sizes]  # as a command takes them: no grouping comma inside a list of commas
     return Note((f"{word_list(_sizes_judged(result))} {'is' if one else 'are'} judged by the RMSEA "
                  f"test of {result.test} fit alone, not by what estimating the model needs: "
@@ -1763,7 +1770,7 @@ def rows_rule_caution(result) -> Note:
                  Command(f" ('cfa-tool power-simulation MODEL --n {','.join(typed)}'; from Python, "
                          f"power_simulation(model, [{', '.join(typed)}]))",
                          f" ({word_list(count_text(n) for n in sizes)} rows, say)"),
-                 "."))
+                 raised + "."))
 
 
 def planned_clusters_lines(planned, free: int | None, n_obs: int | None = None,

@@ -32,6 +32,7 @@ from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.pipeline.continuous import (fit_moments, full_information_instead, pairwise_instead,
                                           full_information_likelihood, listwise_problem, model_structure,
+                                          unanswered_problem,
                                           ordered_moments, unestimated)
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import ORDINAL_FIT_CHANGE_WHY, FitTest, MissingData
@@ -216,9 +217,12 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             fit_options, missing_notes = choose_missing_handling(fit_options, frame, tuple(used), None, design=design)
             few, few_note = few_categories(frame, tuple(used))
             notes = list(missing_notes) + few_note + list(notes)
-        if fit_options.missing is MissingData.FULL_INFORMATION or pairwise:  # the rows every model can use: some answers
-            answers = [frame[list(spec.observed_names)].notna().to_numpy().any(axis=1) for spec in specs]
-            kept = np.logical_and.reduce(answers)
+        # the rows every model can use with full-information ML or pairwise present rows: some answers to each
+        answers = [frame[list(spec.observed_names)].notna().to_numpy().any(axis=1) for spec in specs]
+        some = np.logical_and.reduce(answers)
+        unanswered = int((~some).sum())  # of the rows listwise deletion leaves out, those no method keeps
+        if fit_options.missing is MissingData.FULL_INFORMATION or pairwise:
+            kept = some
         else:
             kept = frame[used].notna().to_numpy().all(axis=1)
         complete, at = frame.loc[kept], at[kept]
@@ -235,7 +239,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             found = replace(found, notes=tuple(found.notes) + tuple(reference_note(found.results, complete, group,
                                                                                    reference_group)))
             found = _some_estimated(_with_data_problems(found, loaded, specs, group, design, dropped, pairwise, True,
-                                                        id_rows))
+                                                        id_rows, unanswered))
             return replace(found, results=tuple(with_missing_reading(r, loaded, missing_codes) for r in found.results),
                            without_group=without_group)
         for spec, name in zip(specs, names):  # every model's, before any moments or fit
@@ -274,7 +278,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                                                               fit_options.missing, tuple(notes), tails,
                                                               without_group=without_group, heavy_tails=heavy,
                                                               heavy_tails_cautioned=cautioned),
-                                                   loaded, specs, group, design, dropped, False, False, id_rows))
+                                                   loaded, specs, group, design, dropped, False, False, id_rows,
+                                                   unanswered))
 
 
 def _tails(names, results, data_groups, grouped: bool, normal_fits: bool, tests):
@@ -338,12 +343,12 @@ COMPARE_KEYWORDS = own_keywords(compare)
 
 
 def _with_data_problems(found: Comparison, loaded, specs, group, design, dropped: int, pairwise: bool,
-                        ordinal: bool, named: tuple[dict, str | None] = ({}, None)) -> Comparison:
+                        ordinal: bool, named: tuple[dict, str | None] = ({}, None), unanswered: int = 0) -> Comparison:
     """The comparison with the cautions on the data (pipeline.inputs.data_problems, as fit gives them): each model's
     own before its problems (its declared scales, its items judged by its fit's coverage), and all of them once in
     the comparison's, then the ``dropped`` rows listwise deletion left out of every model
-    (pipeline.continuous.listwise_problem).  ``named``: the rows' ids and their column
-    (pipeline.inputs.rows_named)."""
+    (pipeline.continuous.listwise_problem), of which ``unanswered`` answered none of some model's variables.
+    ``named``: the rows' ids and their column (pipeline.inputs.rows_named)."""
     results, found_all = [], []
     for r, spec in zip(found.results, specs):
         coverage = (r.missing_data or {}).get("coverage", {})
@@ -355,7 +360,10 @@ def _with_data_problems(found: Comparison, loaded, specs, group, design, dropped
                                                           + tuple(r.problems))))
     if found.missing is not MissingData.FULL_INFORMATION and not pairwise and dropped:  # after the data's, as in fit
         left = listwise_problem(dropped, found.n_obs + dropped, " from every model",
-                                pairwise_instead() if ordinal else full_information_instead())
+                                pairwise_instead() if ordinal else full_information_instead(), unanswered)
+        found_all += [left] if left is not None else []
+    elif dropped:  # full-information ML or pairwise present rows: rows that answered none of some model's variables
+        left = unanswered_problem(dropped, found.n_obs + dropped, what="none of some model's variables")
         found_all += [left] if left is not None else []
     # the data's cautions, then those the comparison found of its answers (answers far from normal)
     return replace(found, results=tuple(results), problems=tuple(dict.fromkeys(found_all + list(found.problems))))

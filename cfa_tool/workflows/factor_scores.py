@@ -858,8 +858,9 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     each row's score follows from its own answers and the parameters alone, so every row is scored, whatever
     its weight.
 
-    Raises :class:`~cfa_tool.errors.EstimationError` when the fitted solution is not admissible: such
-    a solution's scores would mean nothing.
+    Raises :class:`~cfa_tool.errors.EstimationError` when the estimation did not converge, and
+    :class:`~cfa_tool.errors.OptionError` (exit 2, as cutoffs and align refuse it) when the fitted solution is
+    estimated but not admissible: such a solution's scores would mean nothing.
     """
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
@@ -897,11 +898,14 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         result = api._fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
                                design, ids)  # the rows left out named by their ids, as fit names them
         api.reference_group_applies(result, reference_group)  # one that sets nothing cannot apply, as in fit
-        if not result.admissible:
-            problem = next((p for p in result.problems if p.kind.inadmissible), None)
-            why = problem.phrase() if problem is not None else result.message
-            raise EstimationError(f"the fitted solution is not admissible ({why}), so no factor scores are written; "
-                                  f"run 'fit' to see its problems")
+        if not result.converged:
+            raise EstimationError(f"the model's estimation did not converge ({result.message}), so no factor scores "
+                                  f"are written; run 'fit' to see its problems")
+        from cfa_tool.assessment.admissibility import refuse_inadmissible_fit
+        # estimated but not admissible: exit 2, the one code of cutoffs, align and a saved fit's scores for it
+        # (docs/commands.md: exit 3 is a model that could not be estimated)
+        refuse_inadmissible_fit(result.problems, f"{spec.source} fitted to {source}", "no factor scores are written",
+                                remedy="score its rows")
     # the data's cautions as fit gives them (rows that gave one answer to every item, reverse-worded ones included,
     # named by their ids: scored like every row)
     fitted_problems = result.problems

@@ -24,6 +24,7 @@ from cfa_tool.errors import OptionError
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.pipeline.continuous import moments_from_rows, replicate_fits
 from cfa_tool.language.spec import Spec
+from cfa_tool.workflows.power import fewest_rows
 from cfa_tool.workflows.power_nested import difference_power, nested_plan
 from cfa_tool.workflows.parallel import REFITS_TOGETHER, refits_together, run_tasks
 from cfa_tool.workflows.simulation import model_order_labels, population_from_spec, simulate_rows
@@ -180,9 +181,9 @@ def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications
     p = len(spec.observed_names)
     sizes = check.sample_sizes(n_obs)
     for n in sizes:
-        if n <= p + 1:
+        if n < fewest_rows(p):
             raise OptionError(f"the sample size {n} is too small for {p} variables: each simulated data set needs at "
-                              f"least {p + 2} rows (a factor analysis far more)")
+                              f"least {fewest_rows(p)} rows (a factor analysis far more)")
         if n * p > check.MAX_SIMULATED_CELLS:
             raise OptionError(f"{n:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values per "
                               f"simulated data set; plan with a smaller sample size")

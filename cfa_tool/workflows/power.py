@@ -29,6 +29,14 @@ TESTS = {  # name: (eps0, eps_a), the conventions of MacCallum, Browne & Sugawar
 }
 
 
+def fewest_rows(variables: int) -> int:
+    """The fewest rows of ``variables`` items a model is estimated from at all, two more than the items (n centred
+    rows have rank n - 1 at most, so the sample covariance matrix of p items needs n >= p + 1, and one row more leaves
+    it a margin; a factor analysis needs far more): the least N a plan shows and the least each simulated data set of
+    power-simulation takes."""
+    return variables + 2
+
+
 @dataclass(frozen=True)
 class PowerResult(Presentable):
     """The power of a test of fit by the RMSEA (MacCallum, Browne & Sugawara 1996)."""
@@ -57,6 +65,9 @@ class PowerResult(Presentable):
     #: the model's free parameters of its covariance structure, p(p + 1)/2 - df, when its variables are known (None
     #: else): a planned cluster sample of no more clusters is cautioned (data.sample_design.planned_clusters_caution)
     free_parameters: int | None = None
+    #: the model's variables when known (None else): advice names no sample size below :func:`fewest_rows` of them,
+    #: which power-simulation would refuse (hostile tester s28: '--n 5,135' for 12 items)
+    variables: int | None = None
 
     def to_dict(self) -> dict:
         return asdict(self)
@@ -231,11 +242,11 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
     required = required_sample_size(df, eps0, epsa, target_power, alpha)
     clusters = cluster_plan(required, design_effect, cluster_size, intraclass)  # its options checked first
     note = None
-    if variables is not None and required <= variables + 1:
+    if variables is not None and required < fewest_rows(variables):
         note = (f"the test alone would reach the power at N = {required}, but the model's {variables} variables need more "
-                f"rows than that to be estimated at all (and a factor analysis far more); N = {variables + 2} is shown "
-                f"as the least possible")
-        required = variables + 2
+                f"rows than that to be estimated at all (and a factor analysis far more); N = {fewest_rows(variables)} "
+                f"is shown as the least possible")
+        required = fewest_rows(variables)
     effective = None
     if clusters is not None:  # the plan's N is the design's, not that of independent rows
         clusters = cluster_plan(required, design_effect, cluster_size, intraclass)
@@ -247,4 +258,4 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
     if free is not None:
         below = rows_rule_judged(free, required, n_obs, effective)
     return PowerResult(test, df, eps0, epsa, alpha, n_obs, power, required, target_power, note, ordinal, below,
-                       clusters, effective, free)
+                       clusters, effective, free, variables)

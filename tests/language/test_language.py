@@ -216,6 +216,11 @@ def _error(text: str) -> ModelError:
         ("factor f: a, b, c\ncovary a, zz\n", 2, 11, "'zz' is not a factor or an indicator"),
         ("factor f: a\n", 1, 8, "single indicator 'a'"),
         ("factor f: a, b\n", 1, 8, "two indicators and no correlation"),
+        # hostile tester s28, 02: a covariance fixed at 0 is 'uncorrelated' by another name; two two-indicator factors
+        # left without a covariance are not identified (Bollen 1989, ch. 7, the two-indicator rule)
+        ("factor a: a1, a2\nfactor b: b1, b2\nfix covariance(a, b) = 0\n", 1, 8,
+         "no correlation with another factor ('fix covariance(a, b) = 0' holds its covariance at 0), so it cannot be"),
+        ("factor b: b1, b2, b3\nfactor a: a1, a2\nfix covariance(a, b) = -0\n", 2, 8, "holds its covariance at 0"),
         ("factor f: a, b, c\nscale f by effects\nfactor g: d\nfix variance(d) = 0\nname \"x\"\nname \"y\"\n", 6, 1, "already has a name"),
         # hostile trial s26, 03: a blank name gave every report a blank title
         ('name "   "\nfactor f: a, b, c\n', 1, 6, "the model's name is blank"),
@@ -287,6 +292,11 @@ def test_identified_special_cases_are_accepted():
     parse_model("factor f: a\nfix variance(a) = 0\n")
     parse_model("factor f: a, b\nfactor g: c, d, e\n")
     parse_model("factor f: a, b\nequal loading(f, a), loading(f, b)\n")
+    # a covariance fixed at a value other than 0 identifies the loadings (Bollen 1989, ch. 7: with marker loadings
+    # the first items' covariance is that value, and each other loading a covariance across the factors over it);
+    # a covariance fixed at 0 leaves a two-indicator factor its correlation with a third factor
+    parse_model("factor f: a, b\nfactor g: c, d\nfix covariance(f, g) = 0.3\n")
+    parse_model("factor f: a, b\nfactor g: c, d\nfactor h: e, i, j\nfix covariance(f, g) = 0\n")
 
 
 def test_non_utf8_model_file(tmp_path):

@@ -51,3 +51,21 @@ def test_the_report_says_it_first_and_points_to_power_simulation(tmp_path, capsy
     text = " ".join(p.text for p in docx.Document(io.BytesIO(report_docx(power_report(result), 72))).paragraphs)
     assert POWER_CAUTION in text and "power simulation of the model" in text
     assert "cfa-tool" not in text and "--n" not in text
+
+
+def test_the_advice_names_only_sizes_power_simulation_runs():
+    # hostile tester s28: 'power MODEL --n 5' for 12 items advised 'power-simulation MODEL --n 5,135', which
+    # power-simulation refuses (each simulated data set needs at least 12 + 2 = 14 rows).  The rider model: 12 items,
+    # 78 - 51 = 27 free parameters, 5 x 27 = 135 rows by the rule of thumb of 5 rows per parameter (common practice)
+    from cfa_tool.errors import OptionError
+    from cfa_tool.reporting.workflow_tables import rows_rule_caution
+    from cfa_tool.resources import resource_dir
+    from cfa_tool.workflows.montecarlo import monte_carlo_power
+
+    model = resource_dir("models") / "rider_three_factors.cfa"
+    result = plan(51, n_obs=5, variables=12)
+    said = str(rows_rule_caution(result))
+    assert "'cfa-tool power-simulation MODEL --n 14,135'" in said and "power_simulation(model, [14, 135])" in said
+    assert "each simulated data set of 12 items needs at least 14 rows" in said
+    with pytest.raises(OptionError, match="needs at least 14 rows"):  # the size advised is the least it takes
+        monte_carlo_power(model, [13], replications=20)
