@@ -16,7 +16,8 @@ from dataclasses import dataclass, replace
 
 from cfa_tool.note_parts import Command, Note, TableReference, Text, View, said
 from cfa_tool.reporting.document import DataRead, Report, ResultKind, by_file_name, file_names
-from cfa_tool.reporting.tables import ProblemNotice
+from cfa_tool.numbers import word_list
+from cfa_tool.reporting.tables import NoticeKind, ProblemNotice
 
 #: what each command's result is, in plain words: the heading of its part of a document of several results
 ANALYSIS = {ResultKind.FIT: "Confirmatory factor analysis", ResultKind.CHECK: "Check of the model and the data",
@@ -28,9 +29,20 @@ ANALYSIS = {ResultKind.FIT: "Confirmatory factor analysis", ResultKind.CHECK: "C
             ResultKind.EXPLORE: "Exploratory factor analysis", ResultKind.ALIGN: "Alignment of group parameters"}
 
 TITLE = "Results"  # the document's title, over its parts
-#: the headings of the "Read first" notice: when some result's solution is not admissible, and otherwise
-READ_FIRST_PROBLEMS = "Read first: some solutions are not admissible: do not interpret them"
+#: the heading of the "Read first" notice: what each kind of problem that some result has (tables.NoticeKind) says,
+#: gravest first, or, when the results give cautions only, READ_FIRST_CAUTIONS
+READ_FIRST = {NoticeKind.NOT_ESTIMATED: "some models could not be estimated: nothing of them is a result",
+              NoticeKind.NOT_ADMISSIBLE: "some solutions are not admissible: do not interpret them",
+              NoticeKind.DATA_STOP_FIT: "problems in the data stop a fit: fix them before fitting"}
 READ_FIRST_CAUTIONS = "Read first: check these results before interpreting them"
+
+
+def read_first_heading(kinds: set[NoticeKind]) -> str:
+    """The "Read first" notice's heading for results whose notices have problems of ``kinds``: each kind said, gravest
+    first ('Read first: some solutions are not admissible: do not interpret them; problems in the data stop a fit:
+    fix them before fitting'), or the heading of cautions."""
+    said_kinds = [words for kind, words in READ_FIRST.items() if kind in kinds]
+    return "Read first: " + "; ".join(said_kinds) if said_kinds else READ_FIRST_CAUTIONS
 
 
 @dataclass(frozen=True)
@@ -67,8 +79,18 @@ def part_heading(number: int, report: Report) -> str:
     return f"Result {number}. {title}"
 
 
-def _who(part: Part) -> str:
-    return f"Result {part.number} ({ANALYSIS[part.report.kind].lower()})"
+def _who(*parts: Part) -> str:
+    """'Result 2 (comparison of models)'; of several parts that give the same line, 'Results 1 and 3 (confirmatory
+    factor analysis, comparison of models)'."""
+    if len(parts) == 1:
+        return f"Result {parts[0].number} ({ANALYSIS[parts[0].report.kind].lower()})"
+    analyses = list(dict.fromkeys(ANALYSIS[p.report.kind].lower() for p in parts))
+    return f"Results {word_list([str(p.number) for p in parts])} ({', '.join(analyses)})"
+
+
+def _has_table(line: Text) -> bool:
+    """Whether ``line`` names a table of its result (a line said once for several results could name one only)."""
+    return not isinstance(line, str) and any(isinstance(p, TableReference) for p in line.parts)
 
 
 def combined(reports: list[tuple[Report, str]]) -> Combined:
@@ -77,16 +99,28 @@ def combined(reports: list[tuple[Report, str]]) -> Combined:
     parts = tuple(Part(k, part_heading(k, by_file_name(r)), _saved_words(replace(by_file_name(r), cautions=())))
                   for k, (r, _) in enumerate(reports, start=1))
     data_lines, same = _data_lines(parts, [source for _, source in reports])
-    problems: list[Text] = []
+    # each result's problems that make a solution not admissible (or stop its fit) before any result's cautions, as a
+    # single result's notice puts them (admissibility.solution_first), each result's order kept; a line that several
+    # results give in the same words said once, naming them all
+    grave: dict[object, tuple[list[Part], Text]] = {}
+    mild: dict[object, tuple[list[Part], Text]] = {}
     for part in parts:
         notice = part.report.notice
-        if notice is not None:
-            problems += [Note((f"{_who(part)}: ",)) + _of_part(line, part.number, part.report.kind)
-                         for line in (notice.lines or (notice.heading + ".",))]
-    inadmissible = any(p.report.notice is not None and p.report.notice.inadmissible for p in parts)
+        if notice is None:
+            continue
+        for k, line in enumerate(notice.lines or (notice.heading + ".",)):
+            line = _in_its_words(line, part.report.kind)
+            shared = (part.number, said(line)) if _has_table(line) else said(line)
+            (grave if k < notice.leading else mild).setdefault(shared, ([], line))[0].append(part)
+    rank = list(READ_FIRST).index
+    gravest = sorted(grave.values(), key=lambda shared: min(rank(p.report.notice.kind) for p in shared[0]))
+    problems = [Note((f"{_who(*whose)}: ",)) + _of_part(line, whose[0].number)
+                for whose, line in (*gravest, *mild.values())]
+    kinds = {p.report.notice.kind for p in parts if p.report.notice is not None and p.report.notice.leading}
     lines = tuple(problems) + (() if same else data_lines)
-    notice = None if not lines else ProblemNotice(READ_FIRST_PROBLEMS if inadmissible else READ_FIRST_CAUTIONS,
-                                                  lines, inadmissible)
+    notice = None if not lines else ProblemNotice(read_first_heading(kinds), lines, bool(kinds),
+                                                  min(kinds, key=rank) if kinds else None,
+                                                  len(grave))
     cautions: dict[str, Text] = {}
     for report, _ in reports:
         for line in report.cautions:

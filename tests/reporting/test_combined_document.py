@@ -113,3 +113,57 @@ def test_the_read_first_notice_advises_options_as_running_the_results_command_ag
                "(when running compare again: cfa-tool compare ... --max-iterations); or compare a model without it " \
                "(among the models compared here)." in text
         assert "without it (cfa-tool compare) (among" not in text
+
+
+def test_the_read_first_heading_says_the_kinds_of_problem_and_the_gravest_lead():
+    from cfa_tool.reporting.combined import READ_FIRST_CAUTIONS
+    from cfa_tool.reporting.tables import NoticeKind
+
+    # a check stopped by its data (nothing fitted, no solution at all) beside a fit with a caution: no solution is
+    # inadmissible, so the heading says what the check found, not 'not admissible' (hostile s28)
+    stopped = ProblemNotice("1 problem in the data stops an ordinal fit: fix each before fitting",
+                            ("Item a has fractional answers (2.5).", "A caution on the check."), True,
+                            NoticeKind.DATA_STOP_FIT, 1)
+    caution = ProblemNotice("Check before interpreting this solution", ("The reliability is low.",), False)
+    check = _report(ResultKind.CHECK, "Model check", [], stopped)
+    scores = _report(ResultKind.SCORES, "Factor scores", [_table("scores", "Scores")], caution)
+    document = combined([(scores, "sc.json"), (check, "chk.json")])
+    assert document.notice.heading == "Read first: problems in the data stop a fit: fix them before fitting"
+    assert "not admissible" not in document.notice.heading
+    # the check's line that stops the fit leads, though its result comes second; its caution after the scores' one
+    assert [str(x) for x in document.notice.lines] == [
+        "Result 2 (check of the model and the data): Item a has fractional answers (2.5).",
+        "Result 1 (factor scores): The reliability is low.",
+        "Result 2 (check of the model and the data): A caution on the check."]
+    # an inadmissible solution (its first line the negative variance, then a caution) leads every other line (the
+    # gravest kind first, as the heading names them), whatever the results' order
+    bad = ProblemNotice("This solution is not admissible: do not interpret its estimates or its fit",
+                        ("The residual variance of x1 is negative (-0.216).", "The reliability is low."), True,
+                        NoticeKind.NOT_ADMISSIBLE, 1)
+    fit = _report(ResultKind.FIT, "Two factors", [_table("fit", "Model fit")], bad)
+    document = combined([(scores, "sc.json"), (check, "chk.json"), (fit, "fit.json")])
+    assert document.notice.heading == ("Read first: some solutions are not admissible: do not interpret them; "
+                                       "problems in the data stop a fit: fix them before fitting")
+    lines = [str(x) for x in document.notice.lines]
+    assert lines[:2] == ["Result 3 (confirmatory factor analysis): The residual variance of x1 is negative (-0.216).",
+                         "Result 2 (check of the model and the data): Item a has fractional answers (2.5)."]
+    # the same caution in the same words from two results: said once, naming both
+    assert lines[2] == "Results 1 and 3 (factor scores, confirmatory factor analysis): The reliability is low."
+    assert sum("reliability is low" in x for x in lines) == 1
+    for text in (combined_html(document), combined_markdown(document)):
+        assert text.index("x1 is negative") < text.index("fractional answers") < text.index("reliability is low")
+    # cautions only: the heading of cautions
+    assert combined([(scores, "sc.json"), (scores, "sc2.json")]).notice.heading == READ_FIRST_CAUTIONS
+
+
+def test_a_saved_notice_keeps_its_kind_and_leading_lines():
+    from cfa_tool.reporting.tables import NoticeKind
+
+    stopped = ProblemNotice("1 problem stops a fit", ("Item a has fractional answers.", "A caution."), True,
+                            NoticeKind.DATA_STOP_FIT, 1)
+    report = Report.from_dict(_report(ResultKind.CHECK, "Model check", [], stopped).to_dict())
+    assert (report.notice.kind, report.notice.leading) == (NoticeKind.DATA_STOP_FIT, 1)
+    # a notice saved before it kept them: an inadmissible one's every line leads, a caution's none
+    saved = _report(ResultKind.FIT, "F", [], stopped).to_dict()
+    del saved["notice"]["problem_kind"], saved["notice"]["leading"]
+    assert (Report.from_dict(saved).notice.kind, Report.from_dict(saved).notice.leading) == (NoticeKind.NOT_ADMISSIBLE, 2)
