@@ -219,13 +219,22 @@ def _data_lines(parts: tuple[Part, ...], sources: list[str]) -> tuple[tuple[Text
     identities = {tuple(_identity(d) for d in read) for read in known}
     none = [f"{_who(p)} read no data file (it plans or simulates)." for p, read in zip(parts, reads) if read == ()]
 
+    # files of one name with other contents (read from other folders) told apart by their checksums: 'd.csv
+    # (version 2)', numbered in the order the results first read them; results that read the same bytes share a label
+    versions: dict[str, list[str]] = {}
+    for d in (d for r in known for d in r):
+        if d.checksum and d.checksum not in versions.setdefault(named[d.file], []):
+            versions[named[d.file]].append(d.checksum)
+
+    def label(d: DataRead) -> str:
+        among = versions[named[d.file]]
+        if len(among) < 2:
+            return named[d.file]
+        return named[d.file] + (f" (version {among.index(d.checksum) + 1})" if d.checksum else
+                                " (a version not recorded)")
+
     def described(read: tuple[DataRead, ...]) -> str:
-        same_name: dict[str, set[str]] = {}
-        for d in (d for r in known for d in r):
-            same_name.setdefault(named[d.file], set()).add(d.checksum)
-        return "; ".join(named[d.file] + (" (another file of this name: its contents differ)"
-                                          if len(same_name[named[d.file]] - {""}) > 1 else "")
-                         + (", " + ", ".join(d.reading) if d.reading else ", every row of the file as it stands")
+        return "; ".join(label(d) + (", " + ", ".join(d.reading) if d.reading else ", every row of the file as it stands")
                          for d in read)
 
     if None not in reads and len(identities) <= 1:
@@ -238,7 +247,9 @@ def _data_lines(parts: tuple[Part, ...], sources: list[str]) -> tuple[tuple[Text
     lines: list[Text] = ["These results do not all describe the same rows of data: "
                          + ("some result does not record the data it read." if len(identities) <= 1 else
                             "they read different data files, or the same file with other row filters or missing "
-                            "codes.")]
+                            "codes." + (" Files of one name with other contents are told apart as versions, numbered "
+                                        "in the order the results read them." if any(len(v) > 1 for v in
+                                                                                      versions.values()) else ""))]
     for part, read, source in zip(parts, reads, sources):
         if read is None:
             lines.append(f"{_who(part)} does not record the data it read ({source} was saved from Python, or by an "

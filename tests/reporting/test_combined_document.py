@@ -167,3 +167,19 @@ def test_a_saved_notice_keeps_its_kind_and_leading_lines():
     saved = _report(ResultKind.FIT, "F", [], stopped).to_dict()
     del saved["notice"]["problem_kind"], saved["notice"]["leading"]
     assert (Report.from_dict(saved).notice.kind, Report.from_dict(saved).notice.leading) == (NoticeKind.NOT_ADMISSIBLE, 2)
+
+
+def test_files_of_one_name_told_apart_by_their_contents():
+    # three results read 'd.csv' from two folders: the first and third the same bytes (checksum 'abc'), the second
+    # other bytes: the first and third share a label, the second has its own (hostile s28: all three were labelled
+    # 'another file of this name: its contents differ')
+    a = _report(ResultKind.FIT, "One factor", [_table("fit", "Model fit")])
+    b = _report(ResultKind.FIT, "One factor", [_table("fit", "Model fit")], data=(DataRead("d.csv", "def"),))
+    c = _report(ResultKind.FIT, "One factor", [_table("fit", "Model fit")],
+                data=(DataRead("d.csv", "abc", ('rows where district == "north"',)),))
+    lines = [str(line) for line in combined([(a, "a.json"), (b, "b.json"), (c, "c.json")]).notice.lines]
+    assert lines[0].endswith("Files of one name with other contents are told apart as versions, numbered in the "
+                             "order the results read them.")
+    assert lines[1:] == ["Result 1 (confirmatory factor analysis): d.csv (version 1), every row of the file as it stands.",
+                         "Result 2 (confirmatory factor analysis): d.csv (version 2), every row of the file as it stands.",
+                         'Result 3 (confirmatory factor analysis): d.csv (version 1), rows where district == "north".']
