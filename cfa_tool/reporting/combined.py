@@ -16,6 +16,7 @@ from dataclasses import dataclass, replace
 
 from cfa_tool.note_parts import Command, Note, TableReference, Text, View, said
 from cfa_tool.reporting.document import DataRead, Report, ResultKind, by_file_name, file_names
+from cfa_tool.data.csv_convention import PLAIN, CsvConvention, separator_words
 from cfa_tool.numbers import word_list
 from cfa_tool.reporting.tables import NoticeKind, ProblemNotice
 
@@ -278,3 +279,28 @@ def _starts(counts: list[int]) -> list[int]:
         starts.append(k)
         k += count
     return starts
+
+
+def folder_convention(document: Combined) -> tuple[CsvConvention, str]:
+    """The one convention of every CSV file of the document's --tables folder, and the line of its contents file that
+    says it ('' for commas and decimal points of every result, which no report repeats).  Each result's convention is
+    that of the data file it read (data.csv_convention); when they differ, the folder takes the one the results'
+    delimited data files share that is not commas and points (a researcher whose data files use decimal commas opens
+    the folder in a spreadsheet set so; a Stata, SPSS or workbook file sets none), or commas and points when they
+    share none, and the line names the results whose data were written otherwise: a folder of files written two ways
+    opened one of them as one column of text (new-user trial s28)."""
+    conventions = [part.report.csv_convention for part in document.parts]
+    own = list(dict.fromkeys(c for c in conventions if not c.plain()))
+    chosen = own[0] if len({(c.separator, c.decimal) for c in own}) == 1 else PLAIN
+    if len(set(conventions)) <= 1:
+        return chosen, "" if chosen.plain() else f"The CSV files: {chosen.said()}."
+    words = separator_words(chosen.separator, chosen.decimal) + (
+        "; UTF-8 with a byte-order mark, by which a spreadsheet reads its accented letters as written"
+        if chosen.byte_order_mark else "")
+    others = [p for p, c in zip(document.parts, conventions) if c != chosen]
+    whose = [p for p, c in zip(document.parts, conventions) if c == chosen]
+    return chosen, (f"The CSV files of every result: {words}, one way for the whole folder, so that a spreadsheet opens "
+                    f"them all alike" + (f" (as in the data of {word_list([f'Result {p.number}' for p in whose])}; "
+                                         if whose else " (") +
+                    f"{word_list([f'Result {p.number}' for p in others])} read data written otherwise, or a file "
+                    f"that sets no convention: a Stata, SPSS or workbook file).")

@@ -183,3 +183,26 @@ def test_files_of_one_name_told_apart_by_their_contents():
     assert lines[1:] == ["Result 1 (confirmatory factor analysis): d.csv (version 1), every row of the file as it stands.",
                          "Result 2 (confirmatory factor analysis): d.csv (version 2), every row of the file as it stands.",
                          'Result 3 (confirmatory factor analysis): d.csv (version 1), rows where district == "north".']
+
+
+def test_a_tables_folder_of_several_results_is_written_one_way_and_says_it():
+    from cfa_tool.data.csv_convention import CsvConvention
+    from cfa_tool.reporting.text_formats import combined_table_files
+
+    # Result 1 read a CSV file of semicolons and decimal commas, Result 2 a Stata file (no convention: commas and
+    # points): every CSV file of the folder in the first's convention, said once (new-user trial s28: the folder
+    # mixed the two, and a spreadsheet set for decimal commas opened Result 2's tables as one column of text)
+    semicolons = CsvConvention(";", ",")
+    notice = ProblemNotice("Check before interpreting this solution", ("A caution.",), False)
+    first = replace(_report(ResultKind.FIT, "One factor", [_table("fit", "Model fit")], notice),
+                    csv_convention=semicolons)
+    second = _report(ResultKind.FIT, "One factor", [_table("fit", "Model fit")], data=(DataRead("d.dta", "def"),))
+    files = combined_table_files(combined([(first, "a.json"), (second, "b.json")]))
+    csvs = {name: text for name, text in files.items() if name.endswith(".csv")}
+    assert set(csvs) == {"read_first.csv", "result1-problems.csv", "result1-fit.csv", "result2-fit.csv"}
+    assert files["result1-fit.csv"] == files["result2-fit.csv"] == "Model;CFI\na;,95\n"  # (one column: no separator)
+    contents = files["contents.txt"]
+    assert contents.count("The CSV files") == 1
+    assert ("The CSV files of every result: fields separated by semicolons, decimals written with commas, one way for "
+            "the whole folder, so that a spreadsheet opens them all alike (as in the data of Result 1; Result 2 read "
+            "data written otherwise") in contents
