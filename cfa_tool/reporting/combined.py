@@ -97,7 +97,7 @@ def _has_table(line: Text) -> bool:
 def combined(reports: list[tuple[Report, str]]) -> Combined:
     """The document of ``reports`` (each with the name of the file it was read from, which the data lines use
     when a result does not record its data), in the order given."""
-    parts = tuple(Part(k, part_heading(k, by_file_name(r)), _saved_words(replace(by_file_name(r), cautions=())))
+    parts = tuple(Part(k, part_heading(k, by_file_name(r)), in_saved_words(replace(by_file_name(r), cautions=())))
                   for k, (r, _) in enumerate(reports, start=1))
     data_lines, same = _data_lines(parts, [source for _, source in reports])
     # each result's problems that make a solution not admissible (or stop its fit) before any result's cautions, as a
@@ -153,27 +153,29 @@ def _in_its_words(line: Text, kind: ResultKind) -> Text:
         if isinstance(p, Command) and p.runs == kind.value:
             p = replace(p, text=p.inside, runs="", inside="")
         elif isinstance(p, Command) and _OPTION.match(p.text):
-            given = _OPTION.match(p.text).group(1)
-            again = (f"cfa-tool {kind.value} ... {given}" if given.startswith("--") else
+            given, python = _OPTION.match(p.text).group(1, 2)
+            again = (f"cfa-tool {kind.value} ... {given}{python or ''}" if given.startswith("--") else
                      f"cfa_tool.{kind.value.replace('-', '_')}(..., {given})")
             p = replace(p, text=f" (when running {kind.value} again: {again})")
         parts.append(p)
     return Note(tuple(parts))
 
 
-def _saved_words(report: Report) -> Report:
-    """A result's report as its part of a document of saved results says it: its notice, warnings and notes in the
-    words of :func:`_in_its_words` (an option advised as running its command again)."""
+def in_saved_words(report: Report) -> Report:
+    """A result's report as a view made by ``cfa-tool report`` says it (its part of a document of saved results, or
+    the one saved result's own views): its notice, warnings and notes in the words of :func:`_in_its_words` (an
+    option advised as running its command again, never as an option of ``report``)."""
     notice = report.notice
     if notice is not None:
         notice = replace(notice, lines=tuple(_in_its_words(line, report.kind) for line in notice.lines))
+    tables = tuple(t if t.note is None else replace(t, note=_in_its_words(t.note, report.kind)) for t in report.tables)
     return replace(report, notice=notice, warnings=tuple(_in_its_words(w, report.kind) for w in report.warnings),
-                   notes=tuple(_in_its_words(n, report.kind) for n in report.notes))
+                   notes=tuple(_in_its_words(n, report.kind) for n in report.notes), tables=tables)
 
 
 #: a command's text that is an option and nothing else, as the command line (' (--max-iterations)') or the Python
-#: API (' (max_iterations=...)') writes it (options.Option)
-_OPTION = re.compile(r"^\s*\(((?:--[a-z][a-z-]*|[a-z_]+=)[^;()]*)\)\s*$")
+#: API (' (max_iterations=...)') writes it (options.Option), or both (" (--robust; from Python, test='robust')")
+_OPTION = re.compile(r"^\s*\(((?:--[a-z][a-z-]*|[a-z_]+=)[^;()]*)(; from Python, [^;()]*)?\)\s*$")
 
 
 def notice_view(document: Combined, numbers: bool, commands: bool | None = None) -> View:

@@ -252,3 +252,26 @@ def test_without_a_file_the_terminal_shows_read_first_then_each_result(folder, m
     assert out.index("Read first: some solutions are not admissible") < out.index("Model file: three.cfa") \
         < out.index("Model file: heywood.cfa")
     assert "Result 2 (confirmatory factor analysis): " in out[:out.index("Model file: three.cfa")]
+
+
+def test_one_saved_result_advises_an_option_as_running_its_command_again(folder, monkeypatch, hs_data):
+    # the Holzinger-Swineford rows with gaps in x1 and x5: the fit's report advises '--incomplete-rows listwise' (a
+    # note) and '--robust' (under the fit table); a reader of 'report fit.json --html' runs 'report', which takes
+    # neither: its views say them as running the fit again, as a document of several results does, and are
+    # otherwise the fit's own (the HTML, with those words put back, is the fit's byte for byte)
+    gaps = hs_data.copy()
+    gaps.loc[::7, "x1"] = None
+    gaps.loc[::11, "x5"] = None
+    gaps.to_csv(folder / "gaps.csv", index=False)
+    monkeypatch.chdir(folder)
+    assert main(["fit", "three.cfa", "--data", "gaps.csv", "--json", "gaps.json", "--html", "gaps-fit.html"]) == 0
+    assert _run(folder, monkeypatch, "gaps.json", "--html", "gaps-report.html") == 0
+    fit, report = ((folder / f"gaps-{name}.html").read_text() for name in ("fit", "report"))
+    assert "(--incomplete-rows listwise)" in fit and "(--robust; from Python" in fit
+    assert "(--incomplete-rows" not in report and "(--robust" not in report
+    again = {"(when running fit again: cfa-tool fit ... --incomplete-rows listwise)": "(--incomplete-rows listwise)",
+             "(when running fit again: cfa-tool fit ... --robust; from Python,": "(--robust; from Python,"}
+    for said_so, option in again.items():
+        assert said_so in report
+        report = report.replace(said_so, option)
+    assert report == fit
