@@ -216,9 +216,17 @@ def _data_lines(parts: tuple[Part, ...], sources: list[str]) -> tuple[tuple[Text
     one line when they read the same file the same way; otherwise a line that says they do not, then one line per
     result (its file and how its rows were read and kept)."""
     reads = [p.report.data for p in parts]
-    names = file_names([d.file for read in reads if read for d in read])
-    named = {d.file: names.get(d.file, d.file) for read in reads if read for d in read}
     known = [read for read in reads if read]
+    # the same bytes read by other paths ('transit.csv', '../survey/transit.csv') are one file, named by the path the
+    # first result gave it
+    first = {}
+    for d in (d for read in known for d in read):
+        first.setdefault(d.checksum or d.file, d.file)
+    names = file_names(list(first.values()))
+
+    def name(d: DataRead) -> str:
+        path = first[d.checksum or d.file]
+        return names.get(path, path)
     identities = {tuple(_identity(d) for d in read) for read in known}
     none = [f"{_who(p)} read no data file (it plans or simulates)." for p, read in zip(parts, reads) if read == ()]
 
@@ -226,14 +234,14 @@ def _data_lines(parts: tuple[Part, ...], sources: list[str]) -> tuple[tuple[Text
     # (version 2)', numbered in the order the results first read them; results that read the same bytes share a label
     versions: dict[str, list[str]] = {}
     for d in (d for r in known for d in r):
-        if d.checksum and d.checksum not in versions.setdefault(named[d.file], []):
-            versions[named[d.file]].append(d.checksum)
+        if d.checksum and d.checksum not in versions.setdefault(name(d), []):
+            versions[name(d)].append(d.checksum)
 
     def label(d: DataRead) -> str:
-        among = versions[named[d.file]]
+        among = versions[name(d)]
         if len(among) < 2:
-            return named[d.file]
-        return named[d.file] + (f" (version {among.index(d.checksum) + 1})" if d.checksum else
+            return name(d)
+        return name(d) + (f" (version {among.index(d.checksum) + 1})" if d.checksum else
                                 " (a version not recorded)")
 
     def described(read: tuple[DataRead, ...]) -> str:

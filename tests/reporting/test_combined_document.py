@@ -206,3 +206,21 @@ def test_a_tables_folder_of_several_results_is_written_one_way_and_says_it():
     assert ("The CSV files of every result: fields separated by semicolons, decimals written with commas, one way for "
             "the whole folder, so that a spreadsheet opens them all alike (as in the data of Result 1; Result 2 read "
             "data written otherwise") in contents
+
+
+def test_the_same_bytes_read_by_other_paths_are_one_file():
+    # the same file (checksum 'abc') given as a path with folders by one run and by its name by another: one name,
+    # the first result's, and the two results describe the same rows (a trial of s28 named it
+    # 'scratch/transit.csv' for one result and 'transit.csv' for another, as if they were two files)
+    a = _report(ResultKind.FIT, "One factor", [_table("fit", "Model fit")], data=(DataRead("/home/r/survey/d.csv", "abc"),))
+    b = _report(ResultKind.COMPARE, "Model comparison", [_table("fit", "Model fit")])
+    document = combined([(a, "a.json"), (b, "b.json")])
+    assert document.notice is None
+    assert document.lines == ("Both results read the same data the same way: d.csv, every row of the file as it "
+                              "stands.",)
+    # beside a result of other data, each result's line names its file: the first two alike
+    c = _report(ResultKind.FIT, "One factor", [_table("fit", "Model fit")], data=(DataRead("e.dta", "def"),))
+    lines = [str(x) for x in combined([(a, "a.json"), (b, "b.json"), (c, "c.json")]).notice.lines]
+    assert lines[1:] == ["Result 1 (confirmatory factor analysis): d.csv, every row of the file as it stands.",
+                         "Result 2 (comparison of models): d.csv, every row of the file as it stands.",
+                         "Result 3 (confirmatory factor analysis): e.dta, every row of the file as it stands."]
