@@ -224,3 +224,25 @@ def test_the_same_bytes_read_by_other_paths_are_one_file():
     assert lines[1:] == ["Result 1 (confirmatory factor analysis): d.csv, every row of the file as it stands.",
                          "Result 2 (comparison of models): d.csv, every row of the file as it stands.",
                          "Result 3 (confirmatory factor analysis): e.dta, every row of the file as it stands."]
+
+
+def test_a_saved_fit_marked_not_admissible_by_hand_leads_with_that_line_alone():
+    from cfa_tool import __version__
+    from cfa_tool.reporting.reports import saved_report
+
+    # a fit whose report gives one caution, its file marked not admissible afterwards: the line that says so leads
+    # a document of several results, the fit's caution after the other result's grave line (a notice rebuilt so
+    # counted every line as grave)
+    caution = ProblemNotice("Check before interpreting this solution", ("The reliability is low.",), False)
+    fit = _report(ResultKind.FIT, "One factor", [_table("fit", "Model fit")], caution)
+    payload = {"tool": "cfa-tool", "version": __version__, "command": "fit", "admissible": False, "problems": [],
+               "report": fit.to_dict()}
+    edited = saved_report(payload, "fit.json")
+    assert edited.notice.inadmissible and edited.notice.leading == 1
+    bad = ProblemNotice("This solution is not admissible: do not interpret its estimates or its fit",
+                        ("The residual variance of x1 is negative.",), True)
+    other = _report(ResultKind.FIT, "Two factors", [_table("fit", "Model fit")], bad)
+    lines = [str(x) for x in combined([(edited, "fit.json"), (other, "other.json")]).notice.lines]
+    assert "marked not admissible in this file" in lines[0]
+    assert lines[1:] == ["Result 2 (confirmatory factor analysis): The residual variance of x1 is negative.",
+                         "Result 1 (confirmatory factor analysis): The reliability is low."]
