@@ -226,7 +226,7 @@ def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
     from cfa_tool.data.csv_convention import convention_of_result
 
     report = replace(report_of(result), files=named_files(args, inputs), csv_convention=convention_of_result(result),
-                     data=data_read(args))
+                     data=data_read(args, result))
     files = list(first)
     if getattr(args, "json", None):
         from cfa_tool.reporting.json_report import to_json
@@ -238,19 +238,39 @@ def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
     return 0
 
 
-def data_read(args: argparse.Namespace) -> tuple:
+def data_read(args: argparse.Namespace, result=None) -> tuple:
     """The data files the run read and how (reporting.document.DataRead: the path as given, its bytes' SHA-256, the
     reading options in words), kept in its report so that a document of several saved results can say whether they
     describe the same rows: --data (or --calibration) read with --sheet, --names-row, --first-data-row,
-    --missing-codes, --rename, --keep and --half; replicate's --validation with its own reading options and the same
-    codes and filters."""
+    --missing-codes, --rename, --keep and --half, and the values the file itself marks as no answer that ``result``
+    read as missing (:func:`file_marked_said`: a Stata file's value labels and extended missing values); replicate's
+    --validation with its own reading options and the same codes and filters."""
     from cfa_tool.data.file_checksum import fingerprint
     from cfa_tool.reporting.document import DataRead
 
     read = [(getattr(args, "data", None) or getattr(args, "calibration", None), ""),
             (getattr(args, "validation", None), "validation_")]
-    return tuple(DataRead(path, fingerprint(path), reading_said(args, prefix)) for path, prefix in read
-                 if isinstance(path, str) and path)
+    return tuple(DataRead(path, fingerprint(path), reading_said(args, prefix) + (file_marked_said(result) if not prefix
+                                                                                 else ()))
+                 for path, prefix in read if isinstance(path, str) and path)
+
+
+def file_marked_said(result) -> tuple[str, ...]:
+    """The values the data file marks as no answer (its value labels, its declared missing values, cells whose text
+    says no answer: data.non_answers) that ``result`` read as missing, in words for a document of saved results
+    ("values the file marks as no answer read as missing: 8 'Refused', 9 'Not applicable'"); () when there are none
+    or the result does not keep its data's summary (a fit keeps it; a comparison or ladder in its first fit)."""
+    from cfa_tool.data.non_answers import NonAnswerKind
+    from cfa_tool.numbers import word_list
+
+    holders = [result, *(getattr(result, "results", None) or ())[:1],
+               *(getattr(result, name, None) for name in ("fit", "calibration", "configural"))]
+    for holder in holders:
+        found = getattr(getattr(holder, "data", None), "non_answers", None)
+        if found:
+            shown = list(dict.fromkeys(f.shown() for f in found if f.kind is not NonAnswerKind.GIVEN))
+            return (f"values the file marks as no answer read as missing: {word_list(shown)}",) if shown else ()
+    return ()
 
 
 def reading_said(args: argparse.Namespace, prefix: str = "") -> tuple[str, ...]:

@@ -35,6 +35,7 @@ def read_result(path: str) -> object:
 
 def run(args: argparse.Namespace) -> int:
     from cfa_tool.errors import OptionError, shown_path
+    from cfa_tool.reporting.combined import in_saved_words
     from cfa_tool.reporting.picture import PictureFormat, picture_format, require_converter
     from cfa_tool.reporting.reports import saved_report
 
@@ -45,7 +46,8 @@ def run(args: argparse.Namespace) -> int:
     if diagram is not None:  # the format checked, and a missing converter said, before any work
         require_converter(diagram)
     check_files(args, [], [args.result])  # never the result file itself, never a file the run did not create
-    report = saved_report(read_result(args.result), shown_path(args.result))
+    # its views made by 'report': an option it advises said as running its command again (reporting.combined)
+    report = in_saved_words(saved_report(read_result(args.result), shown_path(args.result)))
     if diagram is not None and report.diagram is None:
         raise OptionError(diagram_missing(report, args.result))
     picture_resolution(args, (bool(args.docx) and bool(report.figures)) or diagram is PictureFormat.PNG,

@@ -16,7 +16,9 @@ from dataclasses import dataclass, replace
 
 from cfa_tool.note_parts import Command, Note, TableReference, Text, View, said
 from cfa_tool.reporting.document import DataRead, Report, ResultKind, by_file_name, file_names
-from cfa_tool.reporting.tables import ProblemNotice
+from cfa_tool.data.csv_convention import PLAIN, CsvConvention, separator_words
+from cfa_tool.numbers import word_list
+from cfa_tool.reporting.tables import NoticeKind, ProblemNotice
 
 #: what each command's result is, in plain words: the heading of its part of a document of several results
 ANALYSIS = {ResultKind.FIT: "Confirmatory factor analysis", ResultKind.CHECK: "Check of the model and the data",
@@ -28,9 +30,20 @@ ANALYSIS = {ResultKind.FIT: "Confirmatory factor analysis", ResultKind.CHECK: "C
             ResultKind.EXPLORE: "Exploratory factor analysis", ResultKind.ALIGN: "Alignment of group parameters"}
 
 TITLE = "Results"  # the document's title, over its parts
-#: the headings of the "Read first" notice: when some result's solution is not admissible, and otherwise
-READ_FIRST_PROBLEMS = "Read first: some solutions are not admissible: do not interpret them"
+#: the heading of the "Read first" notice: what each kind of problem that some result has (tables.NoticeKind) says,
+#: gravest first, or, when the results give cautions only, READ_FIRST_CAUTIONS
+READ_FIRST = {NoticeKind.NOT_ESTIMATED: "some models could not be estimated: nothing of them is a result",
+              NoticeKind.NOT_ADMISSIBLE: "some solutions are not admissible: do not interpret them",
+              NoticeKind.DATA_STOP_FIT: "problems in the data stop a fit: fix them before fitting"}
 READ_FIRST_CAUTIONS = "Read first: check these results before interpreting them"
+
+
+def read_first_heading(kinds: set[NoticeKind]) -> str:
+    """The "Read first" notice's heading for results whose notices have problems of ``kinds``: each kind said, gravest
+    first ('Read first: some solutions are not admissible: do not interpret them; problems in the data stop a fit:
+    fix them before fitting'), or the heading of cautions."""
+    said_kinds = [words for kind, words in READ_FIRST.items() if kind in kinds]
+    return "Read first: " + "; ".join(said_kinds) if said_kinds else READ_FIRST_CAUTIONS
 
 
 @dataclass(frozen=True)
@@ -67,26 +80,48 @@ def part_heading(number: int, report: Report) -> str:
     return f"Result {number}. {title}"
 
 
-def _who(part: Part) -> str:
-    return f"Result {part.number} ({ANALYSIS[part.report.kind].lower()})"
+def _who(*parts: Part) -> str:
+    """'Result 2 (comparison of models)'; of several parts that give the same line, 'Results 1 and 3 (confirmatory
+    factor analysis, comparison of models)'."""
+    if len(parts) == 1:
+        return f"Result {parts[0].number} ({ANALYSIS[parts[0].report.kind].lower()})"
+    analyses = list(dict.fromkeys(ANALYSIS[p.report.kind].lower() for p in parts))
+    return f"Results {word_list([str(p.number) for p in parts])} ({', '.join(analyses)})"
+
+
+def _has_table(line: Text) -> bool:
+    """Whether ``line`` names a table of its result (a line said once for several results could name one only)."""
+    return not isinstance(line, str) and any(isinstance(p, TableReference) for p in line.parts)
 
 
 def combined(reports: list[tuple[Report, str]]) -> Combined:
     """The document of ``reports`` (each with the name of the file it was read from, which the data lines use
     when a result does not record its data), in the order given."""
-    parts = tuple(Part(k, part_heading(k, by_file_name(r)), _saved_words(replace(by_file_name(r), cautions=())))
+    parts = tuple(Part(k, part_heading(k, by_file_name(r)), in_saved_words(replace(by_file_name(r), cautions=())))
                   for k, (r, _) in enumerate(reports, start=1))
     data_lines, same = _data_lines(parts, [source for _, source in reports])
-    problems: list[Text] = []
+    # each result's problems that make a solution not admissible (or stop its fit) before any result's cautions, as a
+    # single result's notice puts them (admissibility.solution_first), each result's order kept; a line that several
+    # results give in the same words said once, naming them all
+    grave: dict[object, tuple[list[Part], Text]] = {}
+    mild: dict[object, tuple[list[Part], Text]] = {}
     for part in parts:
         notice = part.report.notice
-        if notice is not None:
-            problems += [Note((f"{_who(part)}: ",)) + _of_part(line, part.number, part.report.kind)
-                         for line in (notice.lines or (notice.heading + ".",))]
-    inadmissible = any(p.report.notice is not None and p.report.notice.inadmissible for p in parts)
+        if notice is None:
+            continue
+        for k, line in enumerate(notice.lines or (notice.heading + ".",)):
+            line = _in_its_words(line, part.report.kind)
+            shared = (part.number, said(line)) if _has_table(line) else said(line)
+            (grave if k < notice.leading else mild).setdefault(shared, ([], line))[0].append(part)
+    rank = list(READ_FIRST).index
+    gravest = sorted(grave.values(), key=lambda shared: min(rank(p.report.notice.kind) for p in shared[0]))
+    problems = [Note((f"{_who(*whose)}: ",)) + _of_part(line, whose[0].number)
+                for whose, line in (*gravest, *mild.values())]
+    kinds = {p.report.notice.kind for p in parts if p.report.notice is not None and p.report.notice.leading}
     lines = tuple(problems) + (() if same else data_lines)
-    notice = None if not lines else ProblemNotice(READ_FIRST_PROBLEMS if inadmissible else READ_FIRST_CAUTIONS,
-                                                  lines, inadmissible)
+    notice = None if not lines else ProblemNotice(read_first_heading(kinds), lines, bool(kinds),
+                                                  min(kinds, key=rank) if kinds else None,
+                                                  len(grave))
     cautions: dict[str, Text] = {}
     for report, _ in reports:
         for line in report.cautions:
@@ -118,27 +153,29 @@ def _in_its_words(line: Text, kind: ResultKind) -> Text:
         if isinstance(p, Command) and p.runs == kind.value:
             p = replace(p, text=p.inside, runs="", inside="")
         elif isinstance(p, Command) and _OPTION.match(p.text):
-            given = _OPTION.match(p.text).group(1)
-            again = (f"cfa-tool {kind.value} ... {given}" if given.startswith("--") else
+            given, python = _OPTION.match(p.text).group(1, 2)
+            again = (f"cfa-tool {kind.value} ... {given}{python or ''}" if given.startswith("--") else
                      f"cfa_tool.{kind.value.replace('-', '_')}(..., {given})")
             p = replace(p, text=f" (when running {kind.value} again: {again})")
         parts.append(p)
     return Note(tuple(parts))
 
 
-def _saved_words(report: Report) -> Report:
-    """A result's report as its part of a document of saved results says it: its notice, warnings and notes in the
-    words of :func:`_in_its_words` (an option advised as running its command again)."""
+def in_saved_words(report: Report) -> Report:
+    """A result's report as a view made by ``cfa-tool report`` says it (its part of a document of saved results, or
+    the one saved result's own views): its notice, warnings and notes in the words of :func:`_in_its_words` (an
+    option advised as running its command again, never as an option of ``report``)."""
     notice = report.notice
     if notice is not None:
         notice = replace(notice, lines=tuple(_in_its_words(line, report.kind) for line in notice.lines))
+    tables = tuple(t if t.note is None else replace(t, note=_in_its_words(t.note, report.kind)) for t in report.tables)
     return replace(report, notice=notice, warnings=tuple(_in_its_words(w, report.kind) for w in report.warnings),
-                   notes=tuple(_in_its_words(n, report.kind) for n in report.notes))
+                   notes=tuple(_in_its_words(n, report.kind) for n in report.notes), tables=tables)
 
 
 #: a command's text that is an option and nothing else, as the command line (' (--max-iterations)') or the Python
-#: API (' (max_iterations=...)') writes it (options.Option)
-_OPTION = re.compile(r"^\s*\(((?:--[a-z][a-z-]*|[a-z_]+=)[^;()]*)\)\s*$")
+#: API (' (max_iterations=...)') writes it (options.Option), or both (" (--robust; from Python, test='robust')")
+_OPTION = re.compile(r"^\s*\(((?:--[a-z][a-z-]*|[a-z_]+=)[^;()]*)(; from Python, [^;()]*)?\)\s*$")
 
 
 def notice_view(document: Combined, numbers: bool, commands: bool | None = None) -> View:
@@ -179,19 +216,36 @@ def _data_lines(parts: tuple[Part, ...], sources: list[str]) -> tuple[tuple[Text
     one line when they read the same file the same way; otherwise a line that says they do not, then one line per
     result (its file and how its rows were read and kept)."""
     reads = [p.report.data for p in parts]
-    names = file_names([d.file for read in reads if read for d in read])
-    named = {d.file: names.get(d.file, d.file) for read in reads if read for d in read}
     known = [read for read in reads if read]
+    # the same bytes read by other paths ('transit.csv', '../survey/transit.csv') are one file, named by the path the
+    # first result gave it
+    first = {}
+    for d in (d for read in known for d in read):
+        first.setdefault(d.checksum or d.file, d.file)
+    names = file_names(list(first.values()))
+
+    def name(d: DataRead) -> str:
+        path = first[d.checksum or d.file]
+        return names.get(path, path)
     identities = {tuple(_identity(d) for d in read) for read in known}
     none = [f"{_who(p)} read no data file (it plans or simulates)." for p, read in zip(parts, reads) if read == ()]
 
+    # files of one name with other contents (read from other folders) told apart by their checksums: 'd.csv
+    # (version 2)', numbered in the order the results first read them; results that read the same bytes share a label
+    versions: dict[str, list[str]] = {}
+    for d in (d for r in known for d in r):
+        if d.checksum and d.checksum not in versions.setdefault(name(d), []):
+            versions[name(d)].append(d.checksum)
+
+    def label(d: DataRead) -> str:
+        among = versions[name(d)]
+        if len(among) < 2:
+            return name(d)
+        return name(d) + (f" (version {among.index(d.checksum) + 1})" if d.checksum else
+                                " (a version not recorded)")
+
     def described(read: tuple[DataRead, ...]) -> str:
-        same_name: dict[str, set[str]] = {}
-        for d in (d for r in known for d in r):
-            same_name.setdefault(named[d.file], set()).add(d.checksum)
-        return "; ".join(named[d.file] + (" (another file of this name: its contents differ)"
-                                          if len(same_name[named[d.file]] - {""}) > 1 else "")
-                         + (", " + ", ".join(d.reading) if d.reading else ", every row of the file as it stands")
+        return "; ".join(label(d) + (", " + ", ".join(d.reading) if d.reading else ", every row of the file as it stands")
                          for d in read)
 
     if None not in reads and len(identities) <= 1:
@@ -204,7 +258,9 @@ def _data_lines(parts: tuple[Part, ...], sources: list[str]) -> tuple[tuple[Text
     lines: list[Text] = ["These results do not all describe the same rows of data: "
                          + ("some result does not record the data it read." if len(identities) <= 1 else
                             "they read different data files, or the same file with other row filters or missing "
-                            "codes.")]
+                            "codes." + (" Files of one name with other contents are told apart as versions, numbered "
+                                        "in the order the results read them." if any(len(v) > 1 for v in
+                                                                                      versions.values()) else ""))]
     for part, read, source in zip(parts, reads, sources):
         if read is None:
             lines.append(f"{_who(part)} does not record the data it read ({source} was saved from Python, or by an "
@@ -233,3 +289,28 @@ def _starts(counts: list[int]) -> list[int]:
         starts.append(k)
         k += count
     return starts
+
+
+def folder_convention(document: Combined) -> tuple[CsvConvention, str]:
+    """The one convention of every CSV file of the document's --tables folder, and the line of its contents file that
+    says it ('' for commas and decimal points of every result, which no report repeats).  Each result's convention is
+    that of the data file it read (data.csv_convention); when they differ, the folder takes the one the results'
+    delimited data files share that is not commas and points (a researcher whose data files use decimal commas opens
+    the folder in a spreadsheet set so; a Stata, SPSS or workbook file sets none), or commas and points when they
+    share none, and the line names the results whose data were written otherwise: a folder of files written two ways
+    opened one of them as one column of text (new-user trial s28)."""
+    conventions = [part.report.csv_convention for part in document.parts]
+    own = list(dict.fromkeys(c for c in conventions if not c.plain()))
+    chosen = own[0] if len({(c.separator, c.decimal) for c in own}) == 1 else PLAIN
+    if len(set(conventions)) <= 1:
+        return chosen, "" if chosen.plain() else f"The CSV files: {chosen.said()}."
+    words = separator_words(chosen.separator, chosen.decimal) + (
+        "; UTF-8 with a byte-order mark, by which a spreadsheet reads its accented letters as written"
+        if chosen.byte_order_mark else "")
+    others = [p for p, c in zip(document.parts, conventions) if c != chosen]
+    whose = [p for p, c in zip(document.parts, conventions) if c == chosen]
+    return chosen, (f"The CSV files of every result: {words}, one way for the whole folder, so that a spreadsheet opens "
+                    f"them all alike" + (f" (as in the data of {word_list([f'Result {p.number}' for p in whose])}; "
+                                         if whose else " (") +
+                    f"{word_list([f'Result {p.number}' for p in others])} read data written otherwise, or a file "
+                    f"that sets no convention: a Stata, SPSS or workbook file).")

@@ -13,7 +13,7 @@ from typing import Callable
 
 from cfa_tool.data.csv_convention import PLAIN, CsvConvention
 from cfa_tool.note_parts import Command, Name, Note, Text, capitalised, read, saved
-from cfa_tool.reporting.tables import ProblemNotice, ReportTable
+from cfa_tool.reporting.tables import NoticeKind, ProblemNotice, ReportTable
 
 
 WARNINGS = "Notes and warnings on the data and the estimation"  # the heading of a report's warnings in every view
@@ -163,7 +163,9 @@ class Report:
     def to_dict(self) -> dict:
         notice = None if self.notice is None else {"heading": self.notice.heading,
                                                    "lines": [saved(x) for x in self.notice.lines],
-                                                   "inadmissible": self.notice.inadmissible}
+                                                   "inadmissible": self.notice.inadmissible,
+                                                   "problem_kind": self.notice.kind.value,
+                                                   "leading": self.notice.leading}
         return {"kind": self.kind.value, "title": self.title, "notice": notice, "lines": [saved(x) for x in self.lines],
                 "tables": [t.to_dict() for t in self.tables], "notes": [saved(x) for x in self.notes],
                 "cautions": [saved(x) for x in self.cautions],
@@ -183,8 +185,11 @@ class Report:
         file changed by hand may hold (hostile s19: a text as 'lines' was shown one character per line, a number as
         the paragraph ended in an internal error)."""
         n = d.get("notice")
-        notice = None if n is None else ProblemNotice(str(n["heading"]), tuple(map(read, _listed(n, "lines"))),
-                                                      bool(n["inadmissible"]))
+        # a notice saved before it kept its kind and leading lines: taken from 'inadmissible' (ProblemNotice)
+        notice = None if n is None else ProblemNotice(
+            str(n["heading"]), tuple(map(read, _listed(n, "lines"))), bool(n["inadmissible"]),
+            None if n.get("problem_kind") is None else NoticeKind(n["problem_kind"]),
+            None if n.get("leading") is None else max(0, min(int(n["leading"]), len(_listed(n, "lines")))))
         paragraph = d.get("paragraph")
         if paragraph is not None and not isinstance(paragraph, str):
             raise ValueError("a report's paragraph that is not text")

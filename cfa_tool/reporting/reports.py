@@ -227,4 +227,5 @@ def _with_estimate_problems(report: Report, payload: dict, source: str) -> Repor
         heading = report.notice.heading
     else:
         heading = NOT_ADMISSIBLE if "estimates" in payload else SOME_NOT_ADMISSIBLE
-    return replace(report, notice=ProblemNotice(heading, tuple(lines) + old, True))
+    kept = report.notice.leading if report.notice is not None and report.notice.inadmissible else 0
+    return replace(report, notice=ProblemNotice(heading, tuple(lines) + old, True, leading=len(lines) + kept))

@@ -4,6 +4,7 @@ every reporter: terminal, HTML, Markdown, LaTeX and CSV format the same tables."
 from __future__ import annotations
 
 from dataclasses import dataclass, replace
+from enum import Enum
 
 import numpy as np
 
@@ -127,13 +128,34 @@ def _table(key: str, title: str, columns: list[tuple[str, str]], rows: list[list
                        tuple(values[0]) if values else None, tuple(tuple(v) for v in values[1]) if values else None)
 
 
+class NoticeKind(Enum):
+    """What a notice's leading lines say is wrong (its other lines are cautions): the one vocabulary by which a
+    document of several results heads its "Read first" notice and puts the gravest problems first
+    (reporting.combined), never read from a notice's words."""
+
+    NOT_ESTIMATED = "not estimated"  # some model could not be estimated: nothing of it is a result
+    NOT_ADMISSIBLE = "not admissible"  # a solution is not admissible
+    DATA_STOP_FIT = "data stop a fit"  # a check: problems in the data stop the fit (nothing was fitted)
+    CAUTION = "caution"  # nothing wrong with a solution: check before interpreting it
+
+
 @dataclass(frozen=True)
 class ProblemNotice:
-    """What every view of a result shows before anything else when the solution has problems."""
+    """What every view of a result shows before anything else when the solution has problems: its ``kind`` (what its
+    first ``leading`` lines say is wrong; by default, from ``inadmissible``, a not admissible solution's every line,
+    or a caution's none), the other lines cautions."""
 
     heading: str
     lines: tuple[Text, ...]  # words, or Notes (cfa_tool.note_parts) with advice each view writes its own way
     inadmissible: bool
+    kind: NoticeKind | None = None
+    leading: int | None = None
+
+    def __post_init__(self) -> None:
+        if self.kind is None:
+            object.__setattr__(self, "kind", NoticeKind.NOT_ADMISSIBLE if self.inadmissible else NoticeKind.CAUTION)
+        if self.leading is None:
+            object.__setattr__(self, "leading", 0 if self.kind is NoticeKind.CAUTION else len(self.lines))
 
 
 NOT_ADMISSIBLE = "This solution is not admissible: do not interpret its estimates or its fit"
@@ -155,7 +177,8 @@ def problem_notice(result) -> ProblemNotice | None:
     lines = tuple((f"Group {written_group(p.group, group_labels(result))}: " if p.group is not None else "") + p.line()
                   for p in problems)
     inadmissible = not result.admissible
-    return ProblemNotice(NOT_ADMISSIBLE if inadmissible else CAUTION, lines, inadmissible)
+    return ProblemNotice(NOT_ADMISSIBLE if inadmissible else CAUTION, lines, inadmissible,
+                         leading=sum(p.kind.inadmissible for p in problems) if inadmissible else 0)
 
 
 def problem_table(result, running: str = "") -> ReportTable | None:

@@ -209,20 +209,23 @@ def combined_table_files(document) -> dict[str, str]:
     text: each result's tables as its own report writes them (report_table_files, in the convention of the data it
     read), their names starting with the result's number ('result2-model_fit.csv'), the "Read first" problems
     first; one contents file names each result and its tables."""
+    from cfa_tool.reporting.combined import folder_convention, notice_view
+
     files: dict[str, str] = {}
     contents: list[str] = []
+    convention, said_convention = folder_convention(document)  # one for the folder, said once
     if document.notice is not None:
-        from cfa_tool.reporting.combined import notice_view
-
         problems = notice_table(document.notice, notice_view(document, numbers=False))
-        files["read_first.csv"], files["read_first.tex"] = csv_table(problems), latex_table(problems)
+        files["read_first.csv"] = convention.file_text(csv_table(problems, convention))
+        files["read_first.tex"] = latex_table(problems)
         contents += [f"read_first.csv, read_first.tex: {document.notice.heading}", ""]
     for part in document.parts:
-        own = report_table_files(part.report, part.report.csv_convention)
+        own = report_table_files(part.report, convention)
         prefix = f"result{part.number}-"
-        listed = own.pop(TABLE_CONTENTS).rstrip("\n").split("\n")
+        listed = [line for line in own.pop(TABLE_CONTENTS).rstrip("\n").split("\n")
+                  if not line.startswith("The CSV files:")]
         files.update({prefix + name: text for name, text in own.items()})
         contents += [part.heading] + [re.sub(r"^([\w.-]+\.csv), ([\w.-]+\.tex):", rf"{prefix}\1, {prefix}\2:", line)
                                       for line in listed[1:]] + [""]
-    files[TABLE_CONTENTS] = "\n".join(contents)
+    files[TABLE_CONTENTS] = "\n".join(contents + ([said_convention, ""] if said_convention else []))
     return files

@@ -222,7 +222,8 @@ def _notice(problems: list[str], cautions: list[str] = (), failed: bool = False)
     if not problems and not cautions:
         return None
     heading = SOME_NOT_ESTIMATED if failed else SOME_NOT_ADMISSIBLE if problems else CHECK_SOLUTIONS
-    return ProblemNotice(heading, tuple(problems) + tuple(cautions), bool(problems))
+    kind = T.NoticeKind.NOT_ESTIMATED if failed else T.NoticeKind.NOT_ADMISSIBLE if problems else T.NoticeKind.CAUTION
+    return ProblemNotice(heading, tuple(problems) + tuple(cautions), bool(problems), kind, len(problems))
 
 
 def _models_problem_table(named_results, notice: ProblemNotice | None) -> ReportTable | None:
@@ -2213,7 +2214,8 @@ def check_report(found) -> Report:
         notice = ProblemNotice(T.DATA_CAUTION, notice.lines, False)
     if found.refusals:  # what stops an ordinal fit: every one, before the cautions
         notice = ProblemNotice(f"{stops_ordinal_fit(len(found.refusals))}: fix each before fitting",
-                               tuple(found.refusals) + (notice.lines if notice is not None else ()), True)
+                               tuple(found.refusals) + (notice.lines if notice is not None else ()), True,
+                               T.NoticeKind.DATA_STOP_FIT, len(found.refusals))
     # summary statistics hold no rows, so no share of rows answering
     return Report(ResultKind.CHECK, "Model check", notice, tuple(lines),
                   ((table,) if found.coverage else ()) + _answer_tables(found))

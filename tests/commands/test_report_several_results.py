@@ -165,8 +165,32 @@ def test_a_file_of_the_same_name_with_other_contents_is_another_data_file(folder
     monkeypatch.chdir(other)
     assert main(["fit", "three.cfa", "--data", "hs.csv", "--json", "fit2.json"]) == 0
     assert _run(folder, monkeypatch, "fit.json", "wave2/fit2.json", "--markdown", "names.md") == 0
-    top = (folder / "names.md").read_text().split("# Results")[0]
-    assert "do not all describe the same rows" in top and "its contents differ" in top
+    top = (folder / "names.md").read_text().split("# Results")[0].replace("\\", "")
+    # told apart by their contents: each its own version (hostile s28: both were 'its contents differ')
+    assert "do not all describe the same rows" in top
+    assert "Result 1 (confirmatory factor analysis): hs.csv (version 1), every row" in top
+    assert "Result 2 (confirmatory factor analysis): hs.csv (version 2), every row" in top
+
+
+def test_values_a_stata_file_marks_as_no_answer_are_said_as_read(folder, monkeypatch, hs_data):
+    # the Holzinger-Swineford rows written as a Stata file whose items x1 and x2 hold the code 9, labelled 'Refused'
+    # in the file, in 20 rows: the fit reads them as no answer by the file's label, and the saved report's data_read
+    # and a document of several results say so, never 'as it stands' (new-user trial s28: a .dta file read so was
+    # said to be read 'as it stands' beside a CSV file read with --missing-codes 8,9)
+    import pyreadstat
+
+    coded = hs_data[["x1", "x2", "x3", "x4", "x5", "x6", "x7", "x8", "x9"]].copy()
+    coded.iloc[:20, :2] = 9.0
+    pyreadstat.write_dta(coded, str(folder / "hs_coded.dta"),
+                         variable_value_labels={c: {9: "Refused"} for c in ("x1", "x2")})
+    monkeypatch.chdir(folder)
+    assert main(["fit", "three.cfa", "--data", "hs_coded.dta", "--json", "dta.json"]) == 0
+    assert _saved(folder, "dta.json")["data_read"][0]["reading"] == [
+        "values the file marks as no answer read as missing: 9 'Refused'"]
+    assert _run(folder, monkeypatch, "fit.json", "dta.json", "--markdown", "dta.md") == 0
+    top = (folder / "dta.md").read_text().split("# Results")[0].replace("\\", "")
+    assert ("Result 2 (confirmatory factor analysis): hs_coded.dta, values the file marks as no answer read as "
+            "missing: 9 'Refused'.") in top
 
 
 def test_a_result_saved_before_results_recorded_their_data(folder, monkeypatch):
@@ -228,3 +252,26 @@ def test_without_a_file_the_terminal_shows_read_first_then_each_result(folder, m
     assert out.index("Read first: some solutions are not admissible") < out.index("Model file: three.cfa") \
         < out.index("Model file: heywood.cfa")
     assert "Result 2 (confirmatory factor analysis): " in out[:out.index("Model file: three.cfa")]
+
+
+def test_one_saved_result_advises_an_option_as_running_its_command_again(folder, monkeypatch, hs_data):
+    # the Holzinger-Swineford rows with gaps in x1 and x5: the fit's report advises '--incomplete-rows listwise' (a
+    # note) and '--robust' (under the fit table); a reader of 'report fit.json --html' runs 'report', which takes
+    # neither: its views say them as running the fit again, as a document of several results does, and are
+    # otherwise the fit's own (the HTML, with those words put back, is the fit's byte for byte)
+    gaps = hs_data.copy()
+    gaps.loc[::7, "x1"] = None
+    gaps.loc[::11, "x5"] = None
+    gaps.to_csv(folder / "gaps.csv", index=False)
+    monkeypatch.chdir(folder)
+    assert main(["fit", "three.cfa", "--data", "gaps.csv", "--json", "gaps.json", "--html", "gaps-fit.html"]) == 0
+    assert _run(folder, monkeypatch, "gaps.json", "--html", "gaps-report.html") == 0
+    fit, report = ((folder / f"gaps-{name}.html").read_text() for name in ("fit", "report"))
+    assert "(--incomplete-rows listwise)" in fit and "(--robust; from Python" in fit
+    assert "(--incomplete-rows" not in report and "(--robust" not in report
+    again = {"(when running fit again: cfa-tool fit ... --incomplete-rows listwise)": "(--incomplete-rows listwise)",
+             "(when running fit again: cfa-tool fit ... --robust; from Python,": "(--robust; from Python,"}
+    for said_so, option in again.items():
+        assert said_so in report
+        report = report.replace(said_so, option)
+    assert report == fit

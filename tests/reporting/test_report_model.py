@@ -196,9 +196,16 @@ def test_every_format_holds_the_same_tables_and_report_writes_them_again(command
     for table in report.tables:
         assert replayed[printed(table.title)] == [[printed(c.lstrip(" ")) for c in r] for r in table.rows]
     for name in names:
-        assert (again / "tables" / name).read_text() == (written[4] / name).read_text(), name
-    assert (again / "r.md").read_text() == markdown
-    assert (again / "r.html").read_text() == written[1].read_text()
+        assert _as_run((again / "tables" / name).read_text()) == (written[4] / name).read_text(), name
+    assert _as_run((again / "r.md").read_text()) == markdown
+    assert _as_run((again / "r.html").read_text()) == written[1].read_text()
+
+
+def _as_run(text: str) -> str:
+    """A view made by 'report' with the options it advises as its command's own view gives them: 'report' says each
+    as running that command again ('(when running fit again: cfa-tool fit ... --robust)', as it takes none of them:
+    reporting.combined.in_saved_words), otherwise the same."""
+    return re.sub(r"\(when running ([a-z-]+) again: cfa-tool \1 \.\.\. (--)", r"(\2", text)
 
 
 def test_problems_come_first_in_the_report_of_a_comparison(hs_data):
