@@ -34,7 +34,7 @@ def test_many_rows_without_answers_are_a_caution_first():
     first = result.problems[0]
     assert first.kind is ProblemKind.ROWS_WITHOUT_ANSWERS and first.value == 100
     assert str(first.explanation).startswith("100 of 200 rows (50%) answered no model variable and were left out "
-                                             "(index labels 0, 1, 2, 3, 4 and 95 more), so the 100 rows analysed")
+                                             "(rows labelled 0, 1, 2, 3, 4 and 95 more), so the 100 rows analysed")
     said = result.to_dict()["problems"][0]
     assert said["kind"] == ProblemKind.ROWS_WITHOUT_ANSWERS.value and said["value"] == 100
     assert not any("answered none of the model variables" in str(w) for w in result.warnings)  # not said twice
