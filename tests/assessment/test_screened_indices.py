@@ -56,6 +56,14 @@ def test_the_terminal_report_of_a_screened_fit_is_that_of_every_index(hs_data, m
     assert "every" not in vars(screened.modification_indices)  # the report read the rows that reach the threshold
 
 
+def test_a_report_where_no_index_reaches_the_threshold_names_the_largest_of_every_index(hs_data, monkeypatch):
+    screened, every = _fits(monkeypatch, THREE_FACTORS, hs_data, mi_threshold=1000.0)
+    found = screened.modification_indices
+    assert found.count_reaching(1000.0) == 0 and screened.to_dict()["modification_indices"] == []
+    text = screened.summary(width=100)
+    assert "none reaches 1000" in text and text == every.summary(width=100)
+
+
 def test_the_eigenvalue_floor_lies_below_numpys_smallest_eigenvalue():
     rng = np.random.default_rng(28)
     for q, spread in ((5, 1.0), (40, 0.01), (120, 1e-4)):
