@@ -260,15 +260,16 @@ def candidate_layout(cands: list[Candidate], p: int, m: int) -> CandidateLayout:
 def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]],
                 layouts: list[CandidateLayout] | None = None, mats: list | None = None,
                 factor: ScaledFactor | None = None, joint: "JointModel | None" = None,
-                threshold: float | None = None) -> ModificationIndices | ScreenedIndices:
+                threshold: float | None = None, information: np.ndarray | None = None
+                ) -> ModificationIndices | ScreenedIndices:
     """MI and EPC for each group's candidate entries (``candidates[g]``; ``layouts[g]`` their
     :func:`candidate_layout`, made here when not given); ``mats``: each group's model matrices at theta when the
     caller has them (their implied moments computed once); ``factor``: with complete data, the
     :func:`~cfa_tool.numerics.linalg.scaled_factor` of the information at theta when the caller has made it (for the
     rank check and the standard errors); ``joint``: with missing-data helpers, see :func:`helper_modification_indices`.
-    ``threshold``: the index the report and the JSON show rows from; with complete data, a ``factor`` and many
-    candidates, only the candidates whose index can reach it are computed at once (:func:`_screened`), the others
-    when read (:class:`ScreenedIndices`)."""
+    ``threshold``: the index the report and the JSON show rows from; with rank-two gathers, a ``factor``, the
+    ``information`` it factorises and many candidates, only the candidates whose index can reach it are computed at
+    once (:func:`_screened`), the others when read (:class:`ScreenedIndices`)."""
     table = model.table
     if layouts is None:
         layouts = [candidate_layout(c, model.p, model.m) for c in candidates]
@@ -278,9 +279,10 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
     if not any(candidates):
         return ModificationIndices(labels=labels)
     floor = 0.0
-    if (threshold is not None and factor is not None and likelihood.score_route is ScoreRoute.RANK_TWO
+    if (threshold is not None and factor is not None and information is not None
+            and likelihood.score_route is ScoreRoute.RANK_TWO
             and sum(map(len, candidates)) * len(factor.scales) ** 2 >= SCREEN_FROM):
-        floor = _eigenvalue_floor(likelihood.evaluate(theta).information, factor)
+        floor = _eigenvalue_floor(information, factor)
 
     def columns(screen: tuple[float, float] | None = None) -> list[np.ndarray]:
         return _score_columns(model, theta, likelihood, candidates, layouts, mats, factor, joint, screen)
@@ -299,8 +301,9 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
     return ScreenedIndices(collected_indices(candidates, labels, mi, epc, std_epc, ok & computed), threshold, complete)
 
 
-#: candidates times parameters squared from which the score tests are screened (:func:`_screened`): about the
-#: 60-item model's (2,070 x 135^2 = 38 million); timed in bench/README.md, twenty-eighth round
+#: candidates times parameters squared from which the score tests are screened (:func:`_screened`): screening cost
+#: more than it saved at 40 items (bench/run.py's model, about 7 million) and saved a fifth at 60 (38 million;
+#: bench/README.md, twenty-eighth round)
 SCREEN_FROM = 10_000_000
 
 
@@ -457,12 +460,12 @@ def _with_helpers(d_sigma: np.ndarray, d_mu: np.ndarray, r: int) -> tuple[np.nda
 
 def modification_indices(model: StructuredModel, theta: np.ndarray, likelihood: Objective,
                          exogenous: tuple[str, ...], mats: list | None = None,
-                         factor: ScaledFactor | None = None,
-                         threshold: float | None = None) -> ModificationIndices | ScreenedIndices:
-    """Score tests of every zero parameter that could be freed (``mats``, ``factor`` and ``threshold``: as
-    :func:`score_tests` takes them)."""
+                         factor: ScaledFactor | None = None, threshold: float | None = None,
+                         information: np.ndarray | None = None) -> ModificationIndices | ScreenedIndices:
+    """Score tests of every zero parameter that could be freed (``mats``, ``factor``, ``threshold`` and
+    ``information``: as :func:`score_tests` takes them)."""
     return score_tests(model, theta, likelihood, *model_candidates(model, exogenous), mats=mats, factor=factor,
-                       threshold=threshold)
+                       threshold=threshold, information=information)
 
 
 def model_candidates(model: StructuredModel, exogenous: tuple[str, ...]) -> tuple[list, list]:
