@@ -138,6 +138,9 @@ class ScreenedIndices(HeldRows):
     def __init__(self, reaching: ModificationIndices, threshold: float, complete: Callable[[], ModificationIndices]):
         self.reaching, self.threshold, self._complete = reaching, threshold, complete
 
+    def __repr__(self) -> str:  # without computing the rows below the threshold
+        return f"ScreenedIndices(threshold={self.threshold!r}, reaching={self.reaching!r})"
+
     @cached_property
     def every(self) -> ModificationIndices:
         """Every row, computed when first read."""
