@@ -18,7 +18,8 @@ the latter, gamma is a deviation of that group's value from the common one
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING
+from functools import cached_property
+from typing import TYPE_CHECKING, Callable
 from itertools import chain
 
 import numpy as np
@@ -26,7 +27,7 @@ import numpy as np
 from cfa_tool.assessment.diagnostics import descending_order
 from cfa_tool.assessment.held_rows import HeldRows
 from cfa_tool.assessment.standardized import Standardization, standardization, standardize_entries
-from cfa_tool.numerics.linalg import ScaledFactor, inverse_quadratic_forms, scaled_inverse
+from cfa_tool.numerics.linalg import ScaledFactor, cholesky_log_det, inverse_quadratic_forms, scaled_inverse
 from cfa_tool.estimation.objective import Objective, ScoreRoute
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import MATRIX_CODES, ParameterTable
@@ -94,6 +95,10 @@ class ModificationIndices(HeldRows):
         """:meth:`dicts` of :meth:`reported`'s rows, read from these rows' columns (no record of them built)."""
         return self.dicts(self._shown(threshold, top))
 
+    def count_reaching(self, threshold: float) -> int:
+        """How many rows have an index of at least ``threshold``."""
+        return int(np.sum(self.index >= threshold))
+
     def _shown(self, threshold: float, top: int | None) -> slice | np.ndarray:
         """The positions of :meth:`reported`'s rows: the first ones when the rows are largest first (as
         :func:`collected_indices` orders them, NaN last), otherwise each row of at least ``threshold`` in turn."""
@@ -121,6 +126,60 @@ class ModificationIndices(HeldRows):
 
 #: the modification indices of a fit that computed none (every such fit shares it: its columns are empty)
 NO_INDICES = ModificationIndices()
+
+
+class ScreenedIndices(HeldRows):
+    """Every modification index of a fit, of which only the rows that can reach ``threshold`` were computed at the fit
+    (``reaching``: exact, largest first, every row of at least ``threshold`` among them): what the report and the JSON
+    show (the rows of at least the fit's threshold).  Any other reading (the columns, a row, the rows below the
+    threshold) computes them all once (``complete``, the rows of ``reaching`` keeping their values) and reads those:
+    the same rows as :class:`ModificationIndices` has."""
+
+    def __init__(self, reaching: ModificationIndices, threshold: float, complete: Callable[[], ModificationIndices]):
+        self.reaching, self.threshold, self._complete = reaching, threshold, complete
+
+    def __repr__(self) -> str:  # without computing the rows below the threshold
+        return f"ScreenedIndices(threshold={self.threshold!r}, reaching={self.reaching!r})"
+
+    @cached_property
+    def every(self) -> ModificationIndices:
+        """Every row, computed when first read."""
+        return self._complete()
+
+    # the columns of every row (ModificationIndices' fields)
+    candidates = property(lambda self: self.every.candidates)
+    labels = property(lambda self: self.every.labels)
+    rows = property(lambda self: self.every.rows)
+    groups = property(lambda self: self.every.groups)
+    index = property(lambda self: self.every.index)
+    expected_change = property(lambda self: self.every.expected_change)
+    standardized_expected_change = property(lambda self: self.every.standardized_expected_change)
+
+    def _row(self, j: int) -> ModificationIndex:
+        return self.every._row(j)
+
+    def _known(self, threshold: float) -> ModificationIndices:
+        """The rows that answer for ``threshold``: the computed ones at or above this object's threshold."""
+        return self.reaching if threshold >= self.threshold else self.every
+
+    def reported(self, threshold: float, top: int | None) -> ModificationIndices:
+        return self._known(threshold).reported(threshold, top)
+
+    def reported_dicts(self, threshold: float, top: int | None) -> list[dict]:
+        return self._known(threshold).reported_dicts(threshold, top)
+
+    def count_reaching(self, threshold: float) -> int:
+        return self._known(threshold).count_reaching(threshold)
+
+    def where(self, keep: np.ndarray) -> ModificationIndices:
+        return self.every.where(keep)
+
+    def without(self, names: frozenset[str]) -> ScreenedIndices:
+        every = self._complete
+        return ScreenedIndices(self.reaching.without(names), self.threshold, lambda: every().without(names))
+
+    def dicts(self, shown: slice | np.ndarray = slice(None)) -> list[dict]:
+        return self.every.dicts(shown)
 
 
 def collected_indices(candidates: list[list[Candidate]], labels: tuple[str | None, ...], index: np.ndarray,
@@ -203,17 +262,60 @@ def candidate_layout(cands: list[Candidate], p: int, m: int) -> CandidateLayout:
 
 def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]],
                 layouts: list[CandidateLayout] | None = None, mats: list | None = None,
-                factor: ScaledFactor | None = None, joint: "JointModel | None" = None) -> ModificationIndices:
+                factor: ScaledFactor | None = None, joint: "JointModel | None" = None,
+                threshold: float | None = None, information: np.ndarray | None = None
+                ) -> ModificationIndices | ScreenedIndices:
     """MI and EPC for each group's candidate entries (``candidates[g]``; ``layouts[g]`` their
     :func:`candidate_layout`, made here when not given); ``mats``: each group's model matrices at theta when the
     caller has them (their implied moments computed once); ``factor``: with complete data, the
     :func:`~cfa_tool.numerics.linalg.scaled_factor` of the information at theta when the caller has made it (for the
-    rank check and the standard errors); ``joint``: with missing-data helpers, see :func:`helper_modification_indices`."""
+    rank check and the standard errors); ``joint``: with missing-data helpers, see :func:`helper_modification_indices`.
+    ``threshold``: the index the report and the JSON show rows from; with rank-two gathers, a ``factor``, the
+    ``information`` it factorises and many candidates, only the candidates whose index can reach it are computed at
+    once (:func:`_screened`), the others when read (:class:`ScreenedIndices`)."""
     table = model.table
     if layouts is None:
         layouts = [candidate_layout(c, model.p, model.m) for c in candidates]
     if mats is None:
         mats = [model.matrices(theta, g) for g in range(table.n_groups)]
+    labels = tuple(table.groups) if table.multigroup else (None,) * table.n_groups
+    if not any(candidates):
+        return ModificationIndices(labels=labels)
+    floor = 0.0
+    if (threshold is not None and factor is not None and information is not None
+            and likelihood.score_route is ScoreRoute.RANK_TWO
+            and sum(map(len, candidates)) * len(factor.scales) ** 2 >= SCREEN_FROM):
+        floor = _eigenvalue_floor(information, factor)
+
+    def columns(screen: tuple[float, float] | None = None) -> list[np.ndarray]:
+        return _score_columns(model, theta, likelihood, candidates, layouts, mats, factor, joint, screen)
+
+    if floor <= 0.0:  # every index computed now
+        return collected_indices(candidates, labels, *columns())
+    mi, epc, std_epc, ok, computed = columns((floor, threshold))
+
+    def complete() -> ModificationIndices:
+        """Every row: the candidates left out computed now, those computed at the fit keeping their values."""
+        every = columns()
+        for column, known in zip(every, (mi, epc, std_epc, ok)):
+            column[computed] = known[computed]
+        return collected_indices(candidates, labels, *every)
+
+    return ScreenedIndices(collected_indices(candidates, labels, mi, epc, std_epc, ok & computed), threshold, complete)
+
+
+#: candidates times parameters squared from which the score tests are screened (:func:`_screened`): screening cost
+#: more than it saved at 40 items (bench/run.py's model, about 7 million) and saved a fifth at 60 (38 million;
+#: bench/README.md, twenty-eighth round)
+SCREEN_FROM = 10_000_000
+
+
+def _score_columns(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]],
+                   layouts: list[CandidateLayout], mats: list, factor: ScaledFactor | None, joint,
+                   screen: tuple[float, float] | None) -> list[np.ndarray]:
+    """[MI, EPC, standardized EPC, whether the candidate's information is positive] of every group's candidates in
+    turn (:func:`score_tests`'s arguments); with ``screen`` = (floor, threshold) (:func:`_screened`), also whether each
+    candidate's index was computed (the others' MI and EPC NaN, and not positive)."""
     rank_two = likelihood.score_route is ScoreRoute.RANK_TWO
     if rank_two:  # every block from rank-two derivatives, in chunks
         # the information itself only when the caller has not factorised it (the forms below read the factor alone)
@@ -227,17 +329,28 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
     forms = inverse_quadratic_forms(H_tt, factor if rank_two else None)
     n = likelihood.n_total
     columns = []
-    for g, weight, mats, blocks in parts:
-        d, h_cc, h_ct = [], [], []
+    for g, weight, group_mats, blocks in parts:
+        d, h_cc, h_ct, kept = [], [], [], []
         for d_part, H_ct, h_cc_part in blocks:
             if weight != 1.0:  # one group: nothing to weigh (H_ct, made for this loop, weighed in place)
                 d_part, h_cc_part = weight * d_part, weight * h_cc_part
                 H_ct *= weight
             d.append(d_part)
             h_cc.append(h_cc_part)
-            h_ct.append(forms(H_ct.T))
+            if screen is None:
+                h_ct.append(forms(H_ct.T))
+            else:  # the rows that can reach the threshold, copied (H_ct may be remade in place for the next chunk)
+                keep = _screened(d_part, H_ct, h_cc_part, factor.scales, n, *screen)
+                kept.append(keep)
+                h_ct.append(H_ct[keep])
         d, h_cc = _joined(d), _joined(h_cc)
-        h = h_cc - _joined(h_ct)
+        if screen is None:
+            form = _joined(h_ct)
+        else:
+            computed = _joined(kept)
+            form = np.full(len(d), np.nan)
+            form[computed] = forms(_joined(h_ct).T)
+        h = h_cc - form
         ok = h > 1e-10 * np.maximum(h_cc, 1e-300)
         if ok.all():  # every candidate's information positive (the usual case): the same quotients without the masks
             mi, epc = 0.5 * n * d**2 / h, -d / h
@@ -245,13 +358,55 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
             mi = np.where(ok, 0.5 * n * d**2 / np.where(ok, h, 1.0), np.nan)
             epc = np.where(ok, -d / np.where(ok, h, 1.0), np.nan)
         lay = layouts[g]
-        std_epc, _ = standardize_entries(mats, lay.codes, lay.rows, lay.cols, epc, lay.standardization, latent=False)
-        columns.append((mi, epc, std_epc, ok))
-    labels = tuple(table.groups) if table.multigroup else (None,) * table.n_groups
-    if not columns:
-        return ModificationIndices(labels=labels)
-    mi, epc, std_epc, ok = (_joined(c) for c in zip(*columns))
-    return collected_indices(candidates, labels, mi, epc, std_epc, ok)
+        std_epc, _ = standardize_entries(group_mats, lay.codes, lay.rows, lay.cols, epc, lay.standardization,
+                                         latent=False)
+        columns.append((mi, epc, std_epc, ok) if screen is None else (mi, epc, std_epc, ok, computed))
+    return [_joined(c) for c in zip(*columns)]
+
+
+def _screened(d: np.ndarray, H_ct: np.ndarray, h_cc: np.ndarray, scales: np.ndarray, n: int, floor: float,
+              threshold: float) -> np.ndarray:
+    """Whether each candidate's index can reach ``threshold``: MI = (N/2) d^2 / (h_cc - b' H^-1 b) with b its row of
+    ``H_ct``, and with D = diag(``scales``) and ``floor`` at most the smallest eigenvalue of D H D
+    (:func:`_eigenvalue_floor`), b' H^-1 b = (D b)' (D H D)^-1 (D b) <= |D b|^2 / floor (the Rayleigh quotient's
+    bound; Golub & Van Loan 2013, sec. 8.1), so MI <= (N/2) d^2 / (h_cc - |D b|^2 / floor) when that denominator is
+    positive.  The bound is widened by a millionth and by 1e-10 h_cc (the rounding of the exact forms where they
+    nearly cancel h_cc) and the threshold lowered by 1e-9, so that no index computed at or above the threshold is
+    left out; NaN anywhere keeps the candidate."""
+    bound = (H_ct * H_ct) @ (scales * scales) / floor
+    lowest = h_cc - (bound * (1.0 + 1e-6) + 1e-10 * np.abs(h_cc))
+    return ~(0.5 * n * d * d < threshold * (1.0 - 1e-9) * lowest)
+
+
+def _eigenvalue_floor(information: np.ndarray, factor: ScaledFactor) -> float:
+    """A positive number below the smallest eigenvalue of the scaled information D H D = L L' (``factor``: D and
+    L^-1), or 0 when none is found.  Power iteration on (D H D)^-1 = L^-T L^-1 (from the vector of ones, 16 steps)
+    gives a Rayleigh quotient r at most its largest eigenvalue 1 / lambda_min, so 0.9 / r is near lambda_min, above
+    or below; D H D - mu I is positive definite exactly when every eigenvalue exceeds mu, which a Cholesky
+    factorisation checks (mu halved up to three times when it fails).  The check's rounding moves the eigenvalues by
+    at most 4 q^2 eps for a matrix of unit diagonal (Higham 2002, thm. 10.5), taken off mu."""
+    inverse = factor.inverse
+    q = len(inverse)
+    x = np.full(q, 1.0 / np.sqrt(q))
+    for _ in range(16):
+        y = inverse.T @ (inverse @ x)
+        size = np.sqrt(y @ y)
+        if not size > 0.0:
+            return 0.0
+        x = y / size
+    rayleigh = float(np.sum((inverse @ x) ** 2))
+    if not rayleigh > 0.0 or not np.isfinite(rayleigh):
+        return 0.0
+    scaled = information * (factor.scales[:, None] * factor.scales)
+    diagonal = np.diag_indices(q)
+    mu = 0.9 / rayleigh
+    for _ in range(4):
+        shifted = scaled.copy()
+        shifted[diagonal] -= mu
+        if cholesky_log_det(shifted) is not None:
+            return max(mu - 4.0 * q * q * np.finfo(float).eps, 0.0)
+        mu *= 0.5
+    return 0.0
 
 
 def _joined(parts: list[np.ndarray] | tuple[np.ndarray, ...]) -> np.ndarray:
@@ -308,10 +463,12 @@ def _with_helpers(d_sigma: np.ndarray, d_mu: np.ndarray, r: int) -> tuple[np.nda
 
 def modification_indices(model: StructuredModel, theta: np.ndarray, likelihood: Objective,
                          exogenous: tuple[str, ...], mats: list | None = None,
-                         factor: ScaledFactor | None = None) -> ModificationIndices:
-    """Score tests of every zero parameter that could be freed (``mats`` and ``factor``: as :func:`score_tests` takes
-    them)."""
-    return score_tests(model, theta, likelihood, *model_candidates(model, exogenous), mats=mats, factor=factor)
+                         factor: ScaledFactor | None = None, threshold: float | None = None,
+                         information: np.ndarray | None = None) -> ModificationIndices | ScreenedIndices:
+    """Score tests of every zero parameter that could be freed (``mats``, ``factor``, ``threshold`` and
+    ``information``: as :func:`score_tests` takes them)."""
+    return score_tests(model, theta, likelihood, *model_candidates(model, exogenous), mats=mats, factor=factor,
+                       threshold=threshold, information=information)
 
 
 def model_candidates(model: StructuredModel, exogenous: tuple[str, ...]) -> tuple[list, list]:

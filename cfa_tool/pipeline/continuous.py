@@ -588,8 +588,12 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                                              factor if information is evaluation.information else None)
         inference = wald_inference(values, model.J, cov_theta)
         if options.modification_indices and est.auxiliary is None:
-            mis = modification_indices(model, theta, likelihood, exogenous_factors(spec), mats, factor)
-            if options.test.robust and sampling_design(likelihood):  # design-based score tests (Satorra 1989)
+            design_based = options.test.robust and sampling_design(likelihood)
+            # the rows the report and the JSON show (at least the threshold) computed now, the others when read; the
+            # design-based tests change every index, so they read them all
+            mis = modification_indices(model, theta, likelihood, exogenous_factors(spec), mats, factor,
+                                       None if design_based else options.mi_threshold, evaluation.information)
+            if design_based:  # design-based score tests (Satorra 1989)
                 mis = robust_score_tests(mis, model, theta, likelihood, sandwich)
         elif options.modification_indices:  # the joint likelihood's score tests, the helpers' parameters free
             joint = est.auxiliary

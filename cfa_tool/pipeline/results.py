@@ -526,7 +526,8 @@ class FitResult(Presentable):
     latent: tuple[str, ...]
     fit: FitIndices | None  # normal-theory: "for reference only" beside a robust test; fit_to_read is what to read
     estimates: tuple[EstimateRow, ...]
-    modification_indices: ModificationIndices  # every one, largest first (rows built when read)
+    # every one, largest first (rows built when read; those below the threshold computed when read: ScreenedIndices)
+    modification_indices: ModificationIndices
     groups: tuple[GroupResult, ...]
     robust: RobustFit | None = None
     group_column: str | None = None
@@ -694,8 +695,8 @@ class FitResult(Presentable):
             out["exploratory_blocks"] = [block.to_dict() for block in self.exploratory]
         out["modification_indices"] = self.modification_indices.reported_dicts(self.mi_threshold, self.mi_top)
         if self.mi_top is not None:  # the list cut: how many reach the threshold (re-check s18: 1 kept of 5, no count)
-            out["modification_indices_reaching_threshold"] = int(np.sum(self.modification_indices.index
-                                                                       >= self.mi_threshold))
+            out["modification_indices_reaching_threshold"] = self.modification_indices.count_reaching(
+                self.mi_threshold)
         out["warnings"] = [str(w) for w in self.warnings]  # a Note as its reader reads it
         return out
 

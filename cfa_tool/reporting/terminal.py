@@ -70,10 +70,11 @@ class _Folded:
 
     def __rich_console__(self, console, options):
         text = printable(self.text, keep_newlines=True)  # (Text is not escaped otherwise)
-        words = Text("\n".join(_names_broken(line, options.max_width) for line in text.split("\n")), style=self.style)
-        lines = _wrapped_lines(words.plain, options.max_width)
+        # printable text: rich's Text would hold these words unchanged (it strips control codes, none left here)
+        words = "\n".join(_names_broken(line, options.max_width) for line in text.split("\n"))
+        lines = _wrapped_lines(words, options.max_width)
         if lines is None:
-            yield words
+            yield Text(words, style=self.style)
             return
         from rich.segment import Segment
 
@@ -91,7 +92,7 @@ def _wrapped_lines(text: str, width: int) -> list[str] | None:
         return None
     try:
         from rich._wrap import divide_line
-        from rich.cells import cell_len, set_cell_size
+        from rich.cells import set_cell_size
     except ImportError:  # pragma: no cover - another rich
         return None
     out = []
@@ -102,7 +103,7 @@ def _wrapped_lines(text: str, width: int) -> list[str] | None:
             if len(piece) > width:  # Text.rstrip_end: spaces beyond the width dropped
                 spaces = len(piece) - len(piece.rstrip())
                 piece = piece[:len(piece) - min(spaces, len(piece) - width)]
-            if cell_len(piece) > width:  # Text.truncate, overflow 'fold'
+            if _cells(piece) > width:  # Text.truncate, overflow 'fold'
                 piece = set_cell_size(piece, width)
             out.append(piece)
     return out
