@@ -42,7 +42,9 @@ def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float
         except np.linalg.LinAlgError:
             raise SingularCovariance(sigma, mu) from None
         dev = np.where(mask, filled - mu, 0.0)
-        completed = mu + dev
+        # C order, so that ``flat`` is a view of it (rows a caller took out of a data frame come in Fortran order, and
+        # numpy's arithmetic keeps their order: reshape would then copy, and the E-step's cells be written to the copy)
+        completed = np.ascontiguousarray(mu + dev)
         flat = completed.reshape(-1)  # the same memory: the rows' cells in order
         weighted = []
         for batch, weight in zip(batches, pattern_weights):

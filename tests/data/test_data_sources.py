@@ -83,24 +83,25 @@ def test_numeric_group_labels_are_ordered_by_value(hs_items):
 
 
 def test_explore_leaves_out_a_labelled_code_column_as_fit_reads_it_as_labels(tmp_path, hs_items):
-    # an SPSS file of 5-point answers that share one answer scale's labels, beside a school column of codes 1/2
-    # labelled with the schools' names: fit reads the school codes as their labels (they name groups), and explore's
-    # default items leave the column out and say so, by the same rule (every code labelled), written once
+    # an SPSS file of 5-point answers that share one answer scale's labels, beside a column of campus codes 1/2
+    # labelled with the schools' names (a name that is no unit's word, so read by its labels, not its name): fit reads
+    # the codes as their labels (they name groups), and explore's default items leave the column out and say so, by
+    # the same rule (every code labelled), written once
     import pyreadstat
 
     scale = {1: "strongly disagree", 2: "disagree", 3: "neutral", 4: "agree", 5: "strongly agree"}
     data = pd.DataFrame({c: pd.qcut(hs_items[c], 5, labels=False).astype(float) + 1 for c in ITEMS})
-    data["school"] = (hs_items["school"] == "Pasteur").astype(float) + 1
+    data["campus"] = (hs_items["school"] == "Pasteur").astype(float) + 1
     path = tmp_path / "coded.sav"
     pyreadstat.write_sav(data, str(path), variable_value_labels={
-        **{c: scale for c in ITEMS}, "school": {1: "Grant-White", 2: "Pasteur"}})
-    grouped = cfa_tool.fit(THREE_FACTORS, path, group="school")
+        **{c: scale for c in ITEMS}, "campus": {1: "Grant-White", 2: "Pasteur"}})
+    grouped = cfa_tool.fit(THREE_FACTORS, path, group="campus")
     assert sorted(g.label for g in grouped.groups) == ["Grant-White", "Pasteur"]
     explored = cfa_tool.explore(path, factors=3, replications=5)
     assert explored.items == tuple(ITEMS)
-    assert any("Left out as codes of categories" in n and "school (name them in items=..." in n for n in explored.notes)
-    chosen = cfa_tool.explore(path, items=[*ITEMS, "school"], factors=3, replications=5)  # named: explored as asked
-    assert chosen.items == (*ITEMS, "school")
+    assert any("Left out as codes of categories" in n and "campus (name them in items=..." in n for n in explored.notes)
+    chosen = cfa_tool.explore(path, items=[*ITEMS, "campus"], factors=3, replications=5)  # named: explored as asked
+    assert chosen.items == (*ITEMS, "campus")
 
 
 def test_stata_file(tmp_path, hs_items, hs_three):

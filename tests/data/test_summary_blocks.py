@@ -58,7 +58,7 @@ def test_an_unlabelled_block_of_means_and_standard_deviations_is_found_by_its_va
     # through the Python interface, the rows are named by their index labels
     fit = cfa_tool.fit(rider_model, block)
     first = fit.problems[0].explanation
-    assert first.startswith(f"Index labels {len(rider_demo)}, {len(rider_demo) + 1} of <data frame> hold the means "
+    assert first.startswith(f"Rows labelled {len(rider_demo)}, {len(rider_demo) + 1} of <data frame> hold the means "
                             f"and the standard deviations of the rows above")
 
 

@@ -89,13 +89,13 @@ def test_explore_names_the_scale_and_a_columns_range_as_written(tmp_path, capsys
     loadings[:4, 0] = loadings[4:, 1] = 0.7
     answers = np.clip(np.round(latent @ loadings.T + rng.normal(size=(n, 8)) * 0.7 + 3), 1, 5)
     frame = pd.DataFrame(answers + 1_000_000, columns=[f"q{i}" for i in range(1, 9)])  # answers coded 1000001-1000005
-    frame["unit"] = rng.choice([5_000_000, 6_000_000, 7_000_000], size=n)  # a code of a unit: a grouping, left out
+    frame["batch"] = rng.choice([5_000_000, 6_000_000, 7_000_000], size=n)  # a code of a batch: out of the scale, left out
     path = tmp_path / "coded.csv"
     frame.to_csv(path, index=False)
     code, out, err = run_cli(["explore", "--data", path], capsys)
     assert code == 0, err
     flat = " ".join(out.split())
-    assert "above the 1000001 to 1000005 that most columns hold" in flat and "unit (5000000 to 7000000)" in flat
+    assert "above the 1000001 to 1000005 that most columns hold" in flat and "batch (5000000 to 7000000)" in flat
     assert "e+0" not in flat and "correlation of .30 or more" in flat  # bounded by 1: no leading zero
 
 

@@ -108,11 +108,11 @@ def test_split_halves_of_ordinal_items_keep_rows_with_gaps_and_the_report_says_w
     assert complete < 200
     pairwise = split_half(THREE_FACTORS, data, seed=2, ordinal="all")
     assert pairwise[0].calibration_result.n_obs + pairwise[0].loose.n_obs == 301
-    assert report_of(Replications(pairwise)).lines[0].startswith(
+    assert str(report_of(Replications(pairwise)).lines[0]).startswith(
         "The 301 rows of the file were split at random into two halves. The halves are drawn row by row")
     listwise = split_half(THREE_FACTORS, data, seed=2, ordinal="all", missing="listwise")
     assert listwise[0].calibration_result.n_obs + listwise[0].loose.n_obs == complete
-    assert report_of(Replications(listwise)).lines[0].startswith(
+    assert str(report_of(Replications(listwise)).lines[0]).startswith(
         f"{complete} of the 301 rows were split at random into two halves; the other {301 - complete} were left out")
 
 

@@ -94,8 +94,8 @@ def test_a_validation_category_the_calibration_never_had_is_an_error_naming_it()
 
     calibration, validation = _draw(600, 2), _draw(500, 3)
     validation.loc[[4, 9], "q2"] = 6  # index labels 4 and 9; the draws have categories 1 to 5 (four cuts)
-    with pytest.raises(DataError, match=r"^<data frame>: ordinal item 'q2' has the answer 6 \(2 rows, the first in index "
-                                        r"label 4\), "
+    with pytest.raises(DataError, match=r"^<data frame>: ordinal item 'q2' has the answer 6 \(2 rows, the first in row "
+                                        r"labelled 4\), "
                                         r"which the calibration sample <data frame> never had \(its categories: 1, 2, 3, 4, 5\)"):
         replicate(MODEL, calibration, validation)
     # a category the validation sample lacks is no new scale: the replication runs
