@@ -141,6 +141,12 @@ class ScreenedIndices(HeldRows):
     def __repr__(self) -> str:  # without computing the rows below the threshold
         return f"ScreenedIndices(threshold={self.threshold!r}, reaching={self.reaching!r})"
 
+    def __reduce__(self):
+        """Pickled (and deep-copied) as every row, a :class:`ModificationIndices`: the function that computes the rows
+        left out holds the fit's likelihood and cannot be pickled, and a caller's pickled result (multiprocessing,
+        a cache on disk) must load as the same rows."""
+        return _every_row, (self.every,)
+
     @cached_property
     def every(self) -> ModificationIndices:
         """Every row, computed when first read."""
@@ -180,6 +186,11 @@ class ScreenedIndices(HeldRows):
 
     def dicts(self, shown: slice | np.ndarray = slice(None)) -> list[dict]:
         return self.every.dicts(shown)
+
+
+def _every_row(every: ModificationIndices) -> ModificationIndices:
+    """What a pickled :class:`ScreenedIndices` loads as: its every row."""
+    return every
 
 
 def collected_indices(candidates: list[list[Candidate]], labels: tuple[str | None, ...], index: np.ndarray,

@@ -49,6 +49,19 @@ def test_screened_indices_show_and_read_what_every_index_computed_at_once_gives(
         every.modification_indices.without(frozenset({"speed"})).reported_dicts(3.84, None)
 
 
+def test_a_screened_fit_pickles_and_loads_with_every_index(hs_data, monkeypatch):
+    # a caller may pickle a result (worker processes, a cache on disk): the screened rows' closure cannot be pickled,
+    # so the result pickles with every row computed, and loads with the same JSON and rows as the fit of every index
+    import copy
+    import pickle
+
+    screened, every = _fits(monkeypatch, THREE_FACTORS, hs_data)
+    loaded = pickle.loads(pickle.dumps(screened))
+    assert repr(loaded.to_dict()) == repr(every.to_dict())
+    assert loaded.modification_indices == every.modification_indices
+    assert copy.deepcopy(screened).modification_indices == every.modification_indices
+
+
 @pytest.mark.parametrize("options", [{}, {"mi_top": 2}])
 def test_the_terminal_report_of_a_screened_fit_is_that_of_every_index(hs_data, monkeypatch, options):
     screened, every = _fits(monkeypatch, THREE_FACTORS, hs_data, **options)
