@@ -1079,11 +1079,6 @@ COPIED_RUN_OF_ANSWERS_ALONE = 5
 IDENTIFYING_SHARE = 0.9
 
 
-def _at(frame: pd.DataFrame, number: int):
-    """The index label of the row of ``frame`` whose row number is ``number``."""
-    return frame.index[int(np.flatnonzero(row_numbers(frame) == number)[0])]
-
-
 def _identifying_column(frame: pd.DataFrame, skip: set, copies: int) -> bool:
     """Whether a column of ``frame`` other than those in ``skip`` (the model's items, groups, design, a row-number
     column) tells respondents apart, so that rows identical in it too are unlikely to agree by chance (review s11: a
@@ -1135,9 +1130,11 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     more = more_words(n - few, "; and ")
     numbering = (f" but the row-number column '{printable(found.numbering)}'" if found.numbering else "") + (
         f"{' and' if found.numbering else ' but'} the time stamp '{printable(found.time_stamp)}'" if found.time_stamp else "")
-    stamped = found.time_stamp is not None and any(
-        frame.at[_at(frame, c), found.time_stamp] != frame.at[_at(frame, o), found.time_stamp]
-        for c, o in zip(found.copies, found.originals))  # a later submission, not a copy
+    stamped = False
+    if found.time_stamp is not None:  # a later submission, not a copy: the time stamp differs from its original's
+        # each row number's stamp, read once (the first row of a number, as row_of names it)
+        stamp = dict(zip(row_numbers(frame)[::-1].tolist(), frame[found.time_stamp].to_numpy(object)[::-1]))
+        stamped = any(stamp[c] != stamp[o] for c, o in zip(found.copies, found.originals))
     # a row filter can leave the copies out only by a column in which they differ from their originals: a row-number
     # column, or row names (``ids`` not read from a column of the file, which the copies repeat); rows identical in
     # every column have none (new-user trial s20: the advice named a filter that no column could write)
