@@ -77,7 +77,7 @@ def run_several(args: argparse.Namespace) -> int:
     from pathlib import Path
 
     from cfa_tool.errors import shown_path
-    from cfa_tool.reporting.combined import combined, notice_view
+    from cfa_tool.reporting.combined import combined, in_saved_words, notice_view
     from cfa_tool.reporting.reports import saved_report
 
     paths = list(args.result)
@@ -112,8 +112,8 @@ def run_several(args: argparse.Namespace) -> int:
         if document.notice is not None:
             shown.print(problem_panel(document.notice, notice_view(document, numbers=False)))
             shown.print()
-        for report, _ in reports:  # each result's own report in turn, on the terminal
-            render_report(report, shown)
+        for report, _ in reports:  # each result's own report in turn, on the terminal, as report's views say it
+            render_report(in_saved_words(report), shown)
             shown.print()
     else:
         notice_on_standard_error(document.notice, notice_view(document, numbers=False))

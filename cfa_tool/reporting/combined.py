@@ -109,8 +109,7 @@ def combined(reports: list[tuple[Report, str]]) -> Combined:
         notice = part.report.notice
         if notice is None:
             continue
-        for k, line in enumerate(notice.lines or (notice.heading + ".",)):
-            line = _in_its_words(line, part.report.kind)
+        for k, line in enumerate(notice.lines or (notice.heading + ".",)):  # (in its words: in_saved_words above)
             shared = (part.number, said(line)) if _has_table(line) else said(line)
             (grave if k < notice.leading else mild).setdefault(shared, ([], line))[0].append(part)
     rank = list(READ_FIRST).index
@@ -129,14 +128,12 @@ def combined(reports: list[tuple[Report, str]]) -> Combined:
     return Combined(TITLE, notice, data_lines if same else (), parts, tuple(cautions.values()))
 
 
-def _of_part(line: Text, number: int, kind: ResultKind | None = None) -> Text:
+def _of_part(line: Text, number: int) -> Text:
     """A line of a result's notice as the document's "Read first" notice holds it: a reference to a table of that
     result keyed by the result's number too ('2/model_fit'), so that it names that result's table
-    (:func:`notice_view`), whichever other result has a table of the same key; with the result's ``kind``, its
-    advice as its own report gives it (:func:`_in_its_words`)."""
+    (:func:`notice_view`), whichever other result has a table of the same key."""
     if isinstance(line, str):
         return line
-    line = _in_its_words(line, kind) if kind is not None else line
     return Note(tuple(TableReference(f"{number}/{p.key}") if isinstance(p, TableReference) else p for p in line.parts))
 
 
@@ -145,11 +142,15 @@ def _in_its_words(line: Text, kind: ResultKind) -> Text:
     report`` (who runs neither that command nor its options): a command it names that is the result's own said by
     the words of its own report (note_parts.Command.inside: 'among the models compared here', not 'cfa-tool
     compare'), and an option advised ('--max-iterations') as running the result's command again with it
-    ('when running fit again: cfa-tool fit ... --max-iterations'), never as an option of ``report``."""
+    ('when running fit again: cfa-tool fit ... --max-iterations'), never as an option of ``report``; an option the
+    command does not take as its own report says it (note_parts.Command's ``elsewhere``: 'a fit of the model with
+    --robust' in a bootstrap's)."""
     if isinstance(line, str):
         return line
     parts = []
     for p in line.parts:
+        if isinstance(p, Command) and p.takes and kind.value not in p.takes:  # as that command's own report says it
+            p = replace(p, text=p.elsewhere, takes=(), elsewhere="")  # (note_parts.Command.said)
         if isinstance(p, Command) and p.runs == kind.value:
             p = replace(p, text=p.inside, runs="", inside="")
         elif isinstance(p, Command) and _OPTION.match(p.text):

@@ -154,7 +154,7 @@ class ProblemNotice:
     def __post_init__(self) -> None:
         if self.kind is None:
             object.__setattr__(self, "kind", NoticeKind.NOT_ADMISSIBLE if self.inadmissible else NoticeKind.CAUTION)
-        if self.leading is None:
+        if self.leading is None or self.kind is NoticeKind.CAUTION:  # a caution's lines lead nothing (a saved file's too)
             object.__setattr__(self, "leading", 0 if self.kind is NoticeKind.CAUTION else len(self.lines))
 
 

@@ -275,3 +275,21 @@ def test_one_saved_result_advises_an_option_as_running_its_command_again(folder,
         assert said_so in report
         report = report.replace(said_so, option)
     assert report == fit
+
+
+def test_several_results_on_the_terminal_advise_an_option_as_running_their_command_again(folder, monkeypatch,
+                                                                                         hs_data, capsys):
+    # the terminal's view of several saved results, each result's own report in turn: an option its notes advise is
+    # said as running its command again, as the one saved result's views and the documents say it (the terminal once
+    # printed '(--incomplete-rows listwise)' there, as if it were an option of 'report')
+    gaps = hs_data.copy()
+    gaps.loc[::7, "x1"] = None
+    gaps.to_csv(folder / "gaps-terminal.csv", index=False)
+    monkeypatch.chdir(folder)
+    assert main(["fit", "three.cfa", "--data", "gaps-terminal.csv", "--json", "gaps-terminal.json"]) == 0
+    monkeypatch.setenv("COLUMNS", "250")
+    capsys.readouterr()
+    assert _run(folder, monkeypatch, "gaps-terminal.json", "fit.json") == 0
+    out = " ".join(capsys.readouterr().out.split())
+    assert "(when running fit again: cfa-tool fit ... --incomplete-rows listwise)" in out
+    assert "(--incomplete-rows listwise)" not in out

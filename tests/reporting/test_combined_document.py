@@ -115,6 +115,39 @@ def test_the_read_first_notice_advises_options_as_running_the_results_command_ag
         assert "without it (cfa-tool compare) (among" not in text
 
 
+def test_an_option_the_results_command_does_not_take_is_said_as_its_own_report_says_it():
+    # bootstrap takes no --robust: its own report says 'a fit of the model with --robust' (note_parts.Command's
+    # elsewhere), and so does a document of saved results, never 'when running bootstrap again: ... --robust'
+    from cfa_tool.note_parts import Command
+    from cfa_tool.options import Option, taken_by
+
+    advice = Note(("the answers have heavy tails. What to try: the scaled test",
+                   Command(" (--robust)", takes=taken_by(Option.ROBUST), elsewhere=" (a fit of the model with --robust)"),
+                   "."))
+    notice = ProblemNotice("Check before interpreting these solutions", (advice,), False)
+    boot = _report(ResultKind.BOOTSTRAP, "Bootstrap", [_table("fit", "Model fit")], notice)
+    fit = _report(ResultKind.FIT, "One factor", [_table("fit", "Model fit")], notice)
+    document = combined([(boot, "boot.json"), (fit, "fit.json")])
+    for text in (combined_html(document), combined_markdown(document)):
+        assert "the scaled test (a fit of the model with --robust)." in text
+        assert "when running bootstrap again" not in text
+        assert "the scaled test (when running fit again: cfa-tool fit ... --robust)." in text
+
+
+def test_a_caution_saved_with_leading_lines_leads_none():
+    # a saved notice edited by hand to a caution with a leading line: a caution leads nothing (the document's
+    # notice once stopped with an internal error ranking it among the grave kinds)
+    from cfa_tool.reporting.tables import NoticeKind
+
+    saved = _report(ResultKind.FIT, "F", [], ProblemNotice("Check", ("A caution.",), False)).to_dict()
+    saved["notice"]["problem_kind"], saved["notice"]["leading"] = "caution", 1
+    edited = Report.from_dict(saved)
+    assert (edited.notice.kind, edited.notice.leading) == (NoticeKind.CAUTION, 0)
+    other = _report(ResultKind.FIT, "G", [_table("fit", "Model fit")])
+    document = combined([(edited, "c.json"), (other, "g.json")])
+    assert document.notice.heading == "Read first: check these results before interpreting them"
+
+
 def test_the_read_first_heading_says_the_kinds_of_problem_and_the_gravest_lead():
     from cfa_tool.reporting.combined import READ_FIRST_CAUTIONS
     from cfa_tool.reporting.tables import NoticeKind
