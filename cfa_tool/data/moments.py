@@ -757,9 +757,9 @@ def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20
     patterns, which = np.unique(observed, axis=0, return_inverse=True)
     sums = np.bincount(which.ravel(), weights=counts, minlength=len(patterns))
     order = np.argsort(-sums, kind="stable")[:limit]
-    from cfa_tool.data.shared_gaps import shared_gaps
+    from cfa_tool.data.shared_gaps import shared_gaps_of_patterns
 
-    form = shared_gaps(frame, names, None if frequency_weights is None else counts)  # a shorter form's gaps
+    form = shared_gaps_of_patterns(frame, names, observed, patterns, sums, counts)  # a shorter form's gaps
     return {
         "coverage": coverage,
         "patterns": [{"not_answered": [name for name, answered in zip(names, patterns[k]) if not answered],

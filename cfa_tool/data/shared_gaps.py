@@ -15,6 +15,8 @@ from collections.abc import Sequence
 import numpy as np
 import pandas as pd
 
+from cfa_tool.numbers import user_number
+
 #: the share of the rows that must miss exactly one block of items for it to be taken for a form's gaps: far more than
 #: chance gaps in two or more given items leave (3% of the answers missing at random leave 0.09% of the rows without
 #: a given pair); a rule of this project
@@ -67,9 +69,20 @@ def shared_gaps(frame: pd.DataFrame, names: Sequence[str], counts: np.ndarray | 
         return None
     answered = frame[names].notna().to_numpy()
     counts = np.ones(len(frame)) if counts is None else np.asarray(counts, dtype=float)
-    total = float(counts.sum())
     patterns, which = np.unique(answered, axis=0, return_inverse=True)
     sums = np.bincount(which.ravel(), weights=counts, minlength=len(patterns))
+    return shared_gaps_of_patterns(frame, names, answered, patterns, sums, counts)
+
+
+def shared_gaps_of_patterns(frame: pd.DataFrame, names: Sequence[str], answered: np.ndarray, patterns: np.ndarray,
+                            sums: np.ndarray, counts: np.ndarray) -> SharedGaps | None:
+    """:func:`shared_gaps` from the rows' answered cells of ``names`` (``answered``), their distinct ``patterns`` and
+    each pattern's weighted count (``sums``), as the missing-data summary has them (data.moments.missing_summary),
+    ``counts`` each row's weight."""
+    names = list(names)
+    if len(names) < 4 or not len(frame):
+        return None
+    total = float(counts.sum())
     missed = (~patterns).sum(axis=1)
     usable = (missed >= 2) & (missed <= len(names) - 2)
     if not usable.any():
@@ -92,12 +105,15 @@ def _marked_by(frame: pd.DataFrame, items: set, within: np.ndarray) -> tuple[str
         if column in items:
             continue
         cells = frame[column]
-        values = pd.unique(cells.dropna())
+        try:
+            values = pd.unique(cells.dropna())
+        except TypeError:  # cells pandas cannot hash (a list in a cell): no column of forms
+            continue
         if not 1 < len(values) <= FORM_VALUES:
             continue
         for value in values:
             holds = (cells == value).to_numpy()
             if holds.any() and not (holds & ~within).any() and holds.sum() >= (1 - MARKED_OUTSIDE) * rows:
-                shown = f"{value:g}" if isinstance(value, float) else str(value)
+                shown = user_number(value) if isinstance(value, float) else str(value)  # as written, never rounded
                 return str(column), shown
     return None

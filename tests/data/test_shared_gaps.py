@@ -43,6 +43,18 @@ def test_a_block_left_unanswered_by_a_third_of_the_rows_is_found_with_its_column
     assert shared_gaps(data.drop(columns="form"), items).marked_by is None
 
 
+def test_a_form_coded_by_a_number_is_named_as_written_and_a_column_of_lists_is_passed_over(rider_demo):
+    # the form's code as the file holds it (1234567, never the '1.23457e+06' of Python's 'g' format, which names
+    # another number), and a column whose cells pandas cannot hash (a list in a cell) is no column of forms, not a
+    # stop (it once raised TypeError out of the fit)
+    data = _forms(rider_demo)
+    items = [c for c in rider_demo.columns if c not in ("rider_id", "district")]
+    data["notes"] = [[k] for k in range(len(data))]
+    data["form"] = np.where(data["form"] == "short", 1234567.0, 7654321.0)
+    found = shared_gaps(data[["notes", *data.columns.drop("notes")]], items)
+    assert found.marked_by == ("form", "1234567")
+
+
 def test_gaps_here_and_there_are_no_form(rider_demo):
     data = _forms(rider_demo)
     data.loc[data["form"] == "short", SHORT] = 4  # every row given the whole form
