@@ -774,8 +774,10 @@ def refuse_containers(series: pd.Series, column) -> None:
     a cell is neither a number nor a word, and no reading of it would be the researcher's."""
     values = series.tolist()
     k = next(k for k, v in enumerate(values) if isinstance(v, CONTAINERS))
+    from cfa_tool.data.kept_rows import RowNaming
+
     kind = type(values[k]).__name__
-    raise DataError(f"{DATA_FRAME}: column '{printable(str(column))}', row labelled "
+    raise DataError(f"{DATA_FRAME}: column '{printable(str(column))}', {RowNaming.INDEX_LABEL.one} "
                     f"{printable(repr(series.index[k]))}: holds a {kind} ({clipped(repr(values[k]), 40)}); a cell must hold one number or one word: "
                     f"unpack the {kind} into its own columns or rows first")
 
