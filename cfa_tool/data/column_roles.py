@@ -40,6 +40,12 @@ UNIT_WORDS = ("team", "school", "class", "classroom", "site", "clinic", "hospita
               "firm", "organisation", "organization", "village", "district", "region", "country", "interviewer")
 
 
+def unit_plural(word: str) -> str:
+    """The plural of a word of :data:`UNIT_WORDS` ('teams', 'classes', 'companies'), as messages name the units."""
+    return (f"{word}es" if word.endswith(("s", "sh", "ch", "x")) else
+            f"{word[:-1]}ies" if word.endswith("y") and word[-2:-1] not in "aeiou" else f"{word}s")
+
+
 #: words that, beside a word of :data:`UNIT_WORDS` alone, still name the unit ('Team', 'team name', 'SiteCode')
 UNIT_NAMING_WORDS = ("name", "code", "number", "no", "nr")
 

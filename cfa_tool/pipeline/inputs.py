@@ -1303,7 +1303,7 @@ def _unit_rows_problems(frame: pd.DataFrame, skip, design: DesignColumns | None,
     of cutoffs and align, options.TAKEN_BY), or, with ``halves`` (replicate's random halves of one file), as the
     clusters the halves are drawn by."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
-    from cfa_tool.data.column_roles import IDS, column_role, unit_id_column
+    from cfa_tool.data.column_roles import IDS, column_role, unit_id_column, unit_plural
 
     found = unit_id_column(frame, skip)
     if found is None or (design is not None and design.cluster is not None):
@@ -1314,8 +1314,7 @@ def _unit_rows_problems(frame: pd.DataFrame, skip, design: DesignColumns | None,
     except TypeError:  # cells pandas cannot hash (a list in a cell): counted as their text
         units = int(frame[name].dropna().astype(str).nunique())
     rows = int(frame[name].notna().sum())
-    plural = (word + "es" if word.endswith(("s", "sh", "ch", "x")) else
-              word[:-1] + "ies" if word.endswith("y") and word[-2:-1] not in "aeiou" else word + "s")
+    plural = unit_plural(word)
     named = f"an id of {plural}" if column_role(name) == IDS else f"a column of {plural}"  # 'team_id' or 'Team'
     explanation = (f"The column '{printable(name)}', {named} by its name, gives {counted(units, word, plural)} "
                    f"to {count_text(rows)} rows ({rounded_number(rows / units)} rows each on average): the analysis "

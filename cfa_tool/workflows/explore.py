@@ -677,14 +677,13 @@ def _kept_by_filters(scan, keep):
 def _named_role(name: str) -> str | None:
     """The part a column plays by its name (data.column_roles.column_role), or the units of many respondents it
     names ('teams' for 'Team', data.column_roles.unit_word); None for a column that may hold answers."""
-    from cfa_tool.data.column_roles import unit_word
+    from cfa_tool.data.column_roles import unit_plural, unit_word
 
     role = column_role(name)
     if role is not None:
         return role
     unit = unit_word(name)
-    return None if unit is None else f"{unit}es" if unit.endswith(("ch", "sh", "ss", "x")) else (
-        f"{unit[:-1]}ies" if unit.endswith("y") and unit[-2:-1] not in "aeiou" else f"{unit}s")
+    return None if unit is None else unit_plural(unit)
 
 
 def _default_items(first, columns: list[str], codings: tuple, design: tuple[str, ...] = (),
