@@ -37,6 +37,17 @@ def fewest_rows(variables: int) -> int:
     return variables + 2
 
 
+def least_rows(required: int, variables: int | None) -> tuple[int, str | None]:
+    """(``required`` raised to :func:`fewest_rows` of ``variables`` where it falls below, the note saying so or None):
+    the plan's N of both power routes (the RMSEA's and the nested models')."""
+    if variables is None or required >= fewest_rows(variables):
+        return required, None
+    return fewest_rows(variables), (
+        f"the test alone would reach the power at N = {required}, but the model's {variables} variables need more rows "
+        f"than that to be estimated at all (and a factor analysis far more); N = {fewest_rows(variables)} is shown as "
+        f"the least possible")
+
+
 @dataclass(frozen=True)
 class PowerResult(Presentable):
     """The power of a test of fit by the RMSEA (MacCallum, Browne & Sugawara 1996)."""
@@ -241,12 +252,7 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
     power = rmsea_power(df, n_obs, eps0, epsa, alpha) if n_obs is not None else None
     required = required_sample_size(df, eps0, epsa, target_power, alpha)
     clusters = cluster_plan(required, design_effect, cluster_size, intraclass)  # its options checked first
-    note = None
-    if variables is not None and required < fewest_rows(variables):
-        note = (f"the test alone would reach the power at N = {required}, but the model's {variables} variables need more "
-                f"rows than that to be estimated at all (and a factor analysis far more); N = {fewest_rows(variables)} "
-                f"is shown as the least possible")
-        required = fewest_rows(variables)
+    required, note = least_rows(required, variables)
     effective = None
     if clusters is not None:  # the plan's N is the design's, not that of independent rows
         clusters = cluster_plan(required, design_effect, cluster_size, intraclass)

@@ -212,7 +212,7 @@ def nested_power(model: str | Path | Spec, nested_model: str | Path | Spec, n_ob
     from cfa_tool.model.parameters import group_statement
     from cfa_tool.numbers import user_number
     from cfa_tool.pipeline.inputs import load_spec, without_exploratory_blocks
-    from cfa_tool.workflows.power import cluster_plan, effective_rows, fewest_rows, rows_rule_judged
+    from cfa_tool.workflows.power import cluster_plan, effective_rows, least_rows, rows_rule_judged
     from cfa_tool.workflows.simulation import model_order_labels, population_from_spec
 
     spec = without_exploratory_blocks(load_spec(model), "power",
@@ -252,12 +252,7 @@ def nested_power(model: str | Path | Spec, nested_model: str | Path | Spec, n_ob
             hi = mid
         else:
             lo = mid
-    required, note, p = hi, None, len(spec.observed_names)
-    if required < fewest_rows(p):
-        note = (f"the test alone would reach the power at N = {required}, but the model's {p} variables need more rows "
-                f"than that to be estimated at all (and a factor analysis far more); N = {fewest_rows(p)} is shown as "
-                f"the least possible")
-        required = fewest_rows(p)
+    required, note = least_rows(hi, len(spec.observed_names))
     labels = model_order_labels(population.table)
     free = population.table.n_free
     clusters = cluster_plan(required, design_effect, cluster_size, intraclass)
