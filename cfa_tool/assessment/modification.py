@@ -181,8 +181,7 @@ class ScreenedIndices(HeldRows):
         return self.every.where(keep)
 
     def without(self, names: frozenset[str]) -> ScreenedIndices:
-        every = self._complete
-        return ScreenedIndices(self.reaching.without(names), self.threshold, lambda: every().without(names))
+        return ScreenedIndices(self.reaching.without(names), self.threshold, lambda: self.every.without(names))
 
     def dicts(self, shown: slice | np.ndarray = slice(None)) -> list[dict]:
         return self.every.dicts(shown)
