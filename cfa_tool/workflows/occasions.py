@@ -408,7 +408,7 @@ def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, oc
     labels = [id_text(v) for v in order]  # as ids are read: wave 2.0 of a column with gaps is 2
     if len(set(labels)) < len(labels):
         raise DataError(f"{shown_path(source)}: column '{occasion_column}' holds occasions that read alike "
-                        f"({', '.join(labels)}); give each occasion one value")
+                        f"({', '.join(written_group(x, labels) for x in labels)}); give each occasion one value")
     ids = frame[id_column].map(id_text)  # the one rule of an id's text (data.row_ids)
     twice = frame.assign(_id=ids).duplicated(["_id", occasion_column], keep=False).to_numpy()
     if twice.any():
@@ -426,7 +426,7 @@ def wide_from_long(frame: pd.DataFrame, items: Sequence[str], id_column: str, oc
         for item in items:
             answered = part[item].notna().any()
             if not answered:
-                raise DataError(f"{shown_path(source)}: item '{item}' has no answer at occasion {labels[k]} of "
+                raise DataError(f"{shown_path(source)}: item '{item}' has no answer at occasion {layout.said(k)} of "
                                 f"'{occasion_column}': every occasion needs the same items")
             wide[layout.name(item, k)] = part[item].reindex(people).to_numpy()
     clash = (f"'{id_column}' would be both the id column and an item at an occasion"
@@ -744,7 +744,8 @@ def invariance_over_occasions(model: str | Path | Spec, data: pd.DataFrame | str
             wide, layout, shaped = wide_from_long(loaded.frame, spec.observed_names, id_column, occasion_column,
                                                   loaded.source, occasion_order)
         except (DataError, OptionError) as error:  # the same kind of error, saying what the run read the rows after
-            raise type(error)(f"{error}{_as_read_after(keep, missing_codes)}") from None
+            kind = OptionError if isinstance(error, OptionError) else DataError  # (a row's error needs its row)
+            raise kind(f"{error}{_as_read_after(keep, missing_codes)}") from None
         # the cautions on the rows of the long file, named by its rows and each row by its person and occasion (an id
         # repeats once per occasion by design, and no id twice at one occasion is left: wide_from_long), not those of
         # the rows set side by side, which no file holds
