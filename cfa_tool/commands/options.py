@@ -328,12 +328,8 @@ def add_incomplete_rows_option(p: argparse.ArgumentParser, where: str = "") -> N
                                  + "|".join(MissingData.words()))
 
 
-#: the commands that fit a model to data, each with --max-iterations (:func:`add_max_iterations_option`)
-FITTING_COMMANDS = ("fit", "scores", "compare", "invariance", "replicate", "bootstrap", "cutoffs", "align", "explore")
-
-
 def add_max_iterations_option(p: argparse.ArgumentParser, which: str = "") -> None:
-    """--max-iterations, declared once for every command that fits a model to data (:data:`FITTING_COMMANDS`): a
+    """--max-iterations, declared once for every command that fits a model to data (options.TAKEN_BY's list): a
     search that stops at the limit advises raising it (assessment.convergence, by options.Option.MAX_ITERATIONS), so
     every command that can show that advice takes the option (s28: compare, invariance, replicate, bootstrap and
     cutoffs advised it and refused it).  ``which``: the fits it limits, where not every fit of the command

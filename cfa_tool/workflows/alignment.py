@@ -628,7 +628,7 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
           reference_mean: str | ReferenceMean = ReferenceMean.ZERO, flag_level: float = ALIGNMENT_FLAG_LEVEL,
           trials: int = ALIGNMENT_TRIALS, seed: int = 1, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
           keep: tuple[str, ...] | list[str] = (), rename: ColumnRenames = None, missing: str | None = None,
-          max_iterations: int = 500, id_column: str | None = None) -> AlignmentResult:
+          max_iterations: int = check.ITERATION_LIMIT, id_column: str | None = None) -> AlignmentResult:
     """Group factor means and variances under approximate invariance by alignment (Asparouhov & Muthén 2014),
     from the configural model fitted with every factor's mean 0 and variance 1 in every group.
 

@@ -13,7 +13,7 @@ import pytest
 
 from cfa_tool import cli
 from cfa_tool.cli import build_parser
-from cfa_tool.commands.options import FITTING_COMMANDS
+from cfa_tool.options import TAKEN_BY, Option
 from cfa_tool.pipeline.continuous import FitOptions
 from tests.commands.test_cli import DATA, MODEL
 
@@ -36,7 +36,7 @@ def _parser(command: str):
     return sub.choices[command]
 
 
-@pytest.mark.parametrize("command", FITTING_COMMANDS)
+@pytest.mark.parametrize("command", TAKEN_BY[Option.MAX_ITERATIONS])
 def test_every_command_that_fits_takes_the_limit_with_the_fit_options_default(command):
     option = next((a for a in _parser(command)._actions if "--max-iterations" in a.option_strings), None)  # noqa: SLF001
     assert option is not None, command
