@@ -30,7 +30,6 @@ class _HeldAcross:
     """The files read inside :func:`held_across` and, per 'join answers' statement (by its place in the model), the
     codes its items were given there."""
 
-    check: bool
     sources: list[str] = field(default_factory=list)
     held: dict[int, set[float]] = field(default_factory=dict)
 
@@ -46,7 +45,7 @@ def held_across(spec: Spec, check: bool = True) -> Iterator[None]:
     the join the calibration file needed); the refusal, naming every file, when the reading is done.  ``check``
     False: no such refusal, the codes having been held where the join was chosen (scores --from-fit scores rows
     by an earlier fit's categories, and a file to score need not hold every one of them)."""
-    across = _HeldAcross(check)
+    across = _HeldAcross()
     token = _ACROSS.set(across)
     try:
         yield
