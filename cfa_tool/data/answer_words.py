@@ -146,7 +146,7 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
     if not codings:
         return frame, []
     refuse_labels_against_coding(codings, value_labels or {}, source)
-    frame = frame.copy()
+    given, frame = frame, frame.copy()  # the cells as read: the advice reads which items hold words in them
     numbers_only: list[str] = []
     no_answer = set(float(c) for c in missing_codes)
     for coding in {id(c): c for c in codings.values()}.values():
@@ -177,7 +177,7 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
                                     f"statement with the codes their labels' words have there: {labelled}")
                 raise DataError(f"{source}: column '{printable(item)}' holds numbers, not the words of {coding.origin} "
                                 f"('{_shown(value)}' in {_first_row(column, value, row_numbers(column))}); "
-                                + _numbers_advice(coding, frame, codings))
+                                + _numbers_advice(coding, given, codings))
             if wrong is not None:
                 raise _cell_error(source, item, column, value, wrong, coding, row_numbers(column))
             if value is not None and not (isinstance(value, float) and value != value) and value is not pd.NA:

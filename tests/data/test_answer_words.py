@@ -479,3 +479,19 @@ def test_a_slip_among_numbers_is_a_cell_to_correct_not_a_scale_of_words(tmp_path
     assert stray_text(np.array([1.0] * 30 + ["x"], dtype=object))
     assert not stray_text(np.array(["Agree", "Disagree"] * 20 + [1.0], dtype=object))  # a column of words
     assert not stray_text(np.array([1.0] * 5 + ["x"], dtype=object))  # too few numbers to call it a slip
+
+
+def test_the_advice_on_numbers_reads_which_items_hold_words_in_the_file_as_read(tmp_path):
+    # only the statement's first item holds words (seat), the next numbers (clean): the advice names the worded items
+    # ('for ITEMS'), as when a later item holds them; it once read the frame being recoded, where seat's words were
+    # numbers already, and said that no item of the statement holds a word in this file
+    numbers = _answers()
+    mixed = numbers.copy()
+    mixed["seat"] = _as_words(numbers)["seat"]
+    path = tmp_path / "first_worded.csv"
+    mixed.to_csv(path, index=False)
+    with pytest.raises(DataError) as refused:
+        cfa_tool.check(MODEL, path)
+    message = str(refused.value)
+    assert "column 'clean' holds numbers, not the words of" in message
+    assert "for ITEMS" in message and "no item of the statement holds a word" not in message
