@@ -12,6 +12,7 @@ cell, so the cost on a file without copies is one pass over its cells.
 
 from __future__ import annotations
 
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
@@ -100,7 +101,6 @@ def time_stamp_column(frame: pd.DataFrame, skip=()) -> str | None:
             return name
         if values.dtype.kind != "O" or not all(isinstance(v, str) for v in values):
             continue
-        import warnings
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # pandas' word on a format it infers
             read = pd.to_datetime(values, errors="coerce", format="mixed")
